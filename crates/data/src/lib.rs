@@ -1,0 +1,12 @@
+//! Data for crescendo: CSV loading into typed columns, the view engine that
+//! runs resolved view steps, and number/date formatting.
+
+pub mod format;
+pub mod load;
+pub mod model;
+pub mod time;
+pub mod view;
+
+pub use load::{load_csv, CsvSpec, LoadError};
+pub use model::*;
+pub use view::run_view;

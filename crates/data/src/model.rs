@@ -1,0 +1,138 @@
+//! Typed tables and the view-step IR that the planner produces.
+
+use serde::Serialize;
+
+/// A column's type, declared in the story or inferred from the CSV.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum ColType {
+    Text,
+    Number,
+    /// `YYYY-MM-DD`, stored as days since 1970-01-01.
+    Date,
+    /// `YYYY-MM`, stored as `year * 12 + (month - 1)`.
+    Month,
+    /// `YYYY`, stored as the year.
+    Year,
+}
+
+impl ColType {
+    pub fn name(self) -> &'static str {
+        match self {
+            ColType::Text => "text",
+            ColType::Number => "number",
+            ColType::Date => "date",
+            ColType::Month => "month",
+            ColType::Year => "year",
+        }
+    }
+
+    /// Time-like types are ordered and continuous (good for a line's x).
+    pub fn is_time(self) -> bool {
+        matches!(self, ColType::Date | ColType::Month | ColType::Year)
+    }
+}
+
+/// One cell. Missing cells are `Missing`, never zero.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+#[serde(untagged)]
+pub enum Value {
+    Missing,
+    Number(f64),
+    Text(String),
+    /// Days since 1970-01-01.
+    Date(i32),
+    /// `year * 12 + (month - 1)`.
+    Month(i32),
+    Year(i32),
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Column {
+    pub name: String,
+    pub ty: ColType,
+    pub values: Vec<Value>,
+}
+
+/// A table: columns of equal length, rows in a stable order.
+#[derive(Clone, Debug, Default, PartialEq, Serialize)]
+pub struct Table {
+    pub columns: Vec<Column>,
+}
+
+/// Comparison operators.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum CmpOp {
+    Eq,
+    Ne,
+    Lt,
+    Le,
+    Gt,
+    Ge,
+}
+
+/// Arithmetic operators.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ArithOp {
+    Add,
+    Sub,
+    Mul,
+    Div,
+}
+
+/// A resolved, type-checked expression over one row. Column references are
+/// indices into the input table of the step.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Expr {
+    Col(usize),
+    Lit(Value),
+    Neg(Box<Expr>),
+    Arith(ArithOp, Box<Expr>, Box<Expr>),
+    Cmp(CmpOp, Box<Expr>, Box<Expr>),
+    And(Box<Expr>, Box<Expr>),
+    Or(Box<Expr>, Box<Expr>),
+    Not(Box<Expr>),
+    /// `expr in (v1, v2, ...)`.
+    In(Box<Expr>, Vec<Value>),
+}
+
+/// Aggregate functions of a group step.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum AggFn {
+    Sum,
+    Mean,
+    Median,
+    Min,
+    Max,
+    /// Rows in the group (with no column) or non-missing cells (with one).
+    Count,
+    First,
+    Last,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Aggregate {
+    pub name: String,
+    pub func: AggFn,
+    /// Input column; `None` only for `Count` of rows.
+    pub column: Option<usize>,
+}
+
+/// One step of a view, applied to the previous step's table.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Step {
+    /// Keep rows where the predicate is true (missing compares as false).
+    Keep(Expr),
+    /// One row per distinct key combination, in order of first appearance;
+    /// output columns are the keys, then the aggregates.
+    Group { keys: Vec<usize>, aggregates: Vec<Aggregate> },
+    /// Append a computed number column.
+    Derive { name: String, expr: Expr },
+    /// Stable sort by the keys in order; `true` = descending. Missing sorts last.
+    Sort { keys: Vec<(usize, bool)> },
+    /// Keep the `n` categories of `key` with the largest total of `by`; the
+    /// rows of all other categories get `key = rest` and are folded into one
+    /// row per combination of the remaining non-number columns, summing the
+    /// number columns.
+    Top { key: usize, by: usize, n: usize, rest: String },
+}

@@ -1,0 +1,367 @@
+//! Located diagnostics shared by every stage of crescendo.
+//!
+//! A [`Diagnostic`] points into a [`Source`]: the story file, or an excerpt of
+//! a CSV file (one record, with the line number it starts on). Rendering uses
+//! `codespan-reporting`, which prints `file:line:column`, the offending line
+//! and a caret under the span.
+
+use std::fmt;
+use std::ops::Range;
+use std::sync::Arc;
+
+use codespan_reporting::diagnostic as cs;
+use codespan_reporting::files::{Error as FilesError, Files};
+use codespan_reporting::term::{self, termcolor};
+use serde::Serialize;
+
+/// How bad a diagnostic is.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Severity {
+    /// A hint that would improve the deck.
+    Advice,
+    /// Something probably wrong; the build continues.
+    Warning,
+    /// The build cannot produce a correct deck.
+    Error,
+}
+
+/// Text that diagnostics point into.
+///
+/// `first_line` is the 1-based line number of the first line of `text`; it is
+/// 1 for a whole file and larger for an excerpt (one CSV record, say), so a
+/// data error can show the right line number without loading the whole file.
+#[derive(Debug, PartialEq, Eq)]
+pub struct Source {
+    pub name: String,
+    pub text: String,
+    pub first_line: usize,
+}
+
+impl Source {
+    /// A whole file.
+    pub fn file(name: impl Into<String>, text: impl Into<String>) -> Arc<Source> {
+        Arc::new(Source {
+            name: name.into(),
+            text: text.into(),
+            first_line: 1,
+        })
+    }
+
+    /// An excerpt of a file that starts on line `first_line` (1-based).
+    pub fn excerpt(name: impl Into<String>, text: impl Into<String>, first_line: usize) -> Arc<Source> {
+        Arc::new(Source {
+            name: name.into(),
+            text: text.into(),
+            first_line: first_line.max(1),
+        })
+    }
+
+    fn line_starts(&self) -> Vec<usize> {
+        std::iter::once(0)
+            .chain(self.text.match_indices('\n').map(|(i, _)| i + 1))
+            .collect()
+    }
+
+    /// 1-based line and column (in characters) of a byte offset.
+    pub fn line_col(&self, offset: usize) -> (usize, usize) {
+        let offset = offset.min(self.text.len());
+        let starts = self.line_starts();
+        let idx = match starts.binary_search(&offset) {
+            Ok(i) => i,
+            Err(i) => i - 1,
+        };
+        let col = self.text[starts[idx]..floor_char_boundary(&self.text, offset)]
+            .chars()
+            .count();
+        (self.first_line + idx, col + 1)
+    }
+}
+
+fn floor_char_boundary(s: &str, mut i: usize) -> usize {
+    while i > 0 && !s.is_char_boundary(i) {
+        i -= 1;
+    }
+    i
+}
+
+/// A span in a source, with a short label printed under the caret.
+#[derive(Clone, Debug)]
+pub struct Located {
+    pub source: Arc<Source>,
+    pub span: Range<usize>,
+    pub label: String,
+}
+
+/// One problem found in a story, its data, or its output.
+#[derive(Clone, Debug)]
+pub struct Diagnostic {
+    pub severity: Severity,
+    /// Short machine-readable name of the problem kind, e.g. `unknown-name`.
+    pub code: &'static str,
+    pub message: String,
+    pub primary: Option<Located>,
+    pub secondary: Vec<Located>,
+    pub notes: Vec<String>,
+    /// A suggested fix, printed as `help: ...`.
+    pub help: Option<String>,
+}
+
+impl Diagnostic {
+    pub fn error(code: &'static str, message: impl Into<String>) -> Self {
+        Diagnostic {
+            severity: Severity::Error,
+            code,
+            message: message.into(),
+            primary: None,
+            secondary: Vec::new(),
+            notes: Vec::new(),
+            help: None,
+        }
+    }
+
+    pub fn warning(code: &'static str, message: impl Into<String>) -> Self {
+        Diagnostic {
+            severity: Severity::Warning,
+            ..Diagnostic::error(code, message)
+        }
+    }
+
+    /// Point the diagnostic at `span` in `source`.
+    pub fn at(mut self, source: &Arc<Source>, span: Range<usize>, label: impl Into<String>) -> Self {
+        self.primary = Some(Located {
+            source: Arc::clone(source),
+            span,
+            label: label.into(),
+        });
+        self
+    }
+
+    /// Add a secondary location (for example, where a name was declared).
+    pub fn also(mut self, source: &Arc<Source>, span: Range<usize>, label: impl Into<String>) -> Self {
+        self.secondary.push(Located {
+            source: Arc::clone(source),
+            span,
+            label: label.into(),
+        });
+        self
+    }
+
+    pub fn note(mut self, note: impl Into<String>) -> Self {
+        self.notes.push(note.into());
+        self
+    }
+
+    pub fn help(mut self, help: impl Into<String>) -> Self {
+        self.help = Some(help.into());
+        self
+    }
+
+    pub fn is_error(&self) -> bool {
+        self.severity == Severity::Error
+    }
+
+    /// `(file, line, column)` of the primary location, 1-based.
+    pub fn location(&self) -> Option<(String, usize, usize)> {
+        self.primary.as_ref().map(|p| {
+            let (l, c) = p.source.line_col(p.span.start);
+            (p.source.name.clone(), l, c)
+        })
+    }
+}
+
+impl fmt::Display for Diagnostic {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&render(std::slice::from_ref(self), false))
+    }
+}
+
+/// True when any diagnostic is an error.
+pub fn has_errors(diags: &[Diagnostic]) -> bool {
+    diags.iter().any(Diagnostic::is_error)
+}
+
+/// The sources of one render call, indexed by position.
+struct SourceSet {
+    sources: Vec<Arc<Source>>,
+    starts: Vec<Vec<usize>>,
+}
+
+impl SourceSet {
+    fn id_of(&mut self, s: &Arc<Source>) -> usize {
+        if let Some(i) = self.sources.iter().position(|x| Arc::ptr_eq(x, s) || **x == **s) {
+            return i;
+        }
+        self.starts.push(s.line_starts());
+        self.sources.push(Arc::clone(s));
+        self.sources.len() - 1
+    }
+}
+
+impl<'a> Files<'a> for SourceSet {
+    type FileId = usize;
+    type Name = &'a str;
+    type Source = &'a str;
+
+    fn name(&'a self, id: usize) -> Result<&'a str, FilesError> {
+        self.sources
+            .get(id)
+            .map(|s| s.name.as_str())
+            .ok_or(FilesError::FileMissing)
+    }
+
+    fn source(&'a self, id: usize) -> Result<&'a str, FilesError> {
+        self.sources
+            .get(id)
+            .map(|s| s.text.as_str())
+            .ok_or(FilesError::FileMissing)
+    }
+
+    fn line_index(&'a self, id: usize, byte_index: usize) -> Result<usize, FilesError> {
+        let starts = self.starts.get(id).ok_or(FilesError::FileMissing)?;
+        Ok(match starts.binary_search(&byte_index) {
+            Ok(i) => i,
+            Err(i) => i - 1,
+        })
+    }
+
+    fn line_number(&'a self, id: usize, line_index: usize) -> Result<usize, FilesError> {
+        let s = self.sources.get(id).ok_or(FilesError::FileMissing)?;
+        Ok(s.first_line + line_index)
+    }
+
+    fn line_range(&'a self, id: usize, line_index: usize) -> Result<Range<usize>, FilesError> {
+        let s = self.sources.get(id).ok_or(FilesError::FileMissing)?;
+        let starts = &self.starts[id];
+        let start = *starts.get(line_index).ok_or(FilesError::LineTooLarge {
+            given: line_index,
+            max: starts.len() - 1,
+        })?;
+        let end = starts.get(line_index + 1).copied().unwrap_or(s.text.len());
+        Ok(start..end)
+    }
+}
+
+fn clamp_span(source: &Source, span: &Range<usize>) -> Range<usize> {
+    let len = source.text.len();
+    let start = floor_char_boundary(&source.text, span.start.min(len));
+    let end = floor_char_boundary(&source.text, span.end.clamp(start, len));
+    start..end
+}
+
+/// Render diagnostics as text with carets; `color` adds ANSI colours.
+pub fn render(diags: &[Diagnostic], color: bool) -> String {
+    let mut set = SourceSet {
+        sources: Vec::new(),
+        starts: Vec::new(),
+    };
+    let mut converted = Vec::with_capacity(diags.len());
+    for d in diags {
+        let mut cd = match d.severity {
+            Severity::Error => cs::Diagnostic::error(),
+            Severity::Warning => cs::Diagnostic::warning(),
+            Severity::Advice => cs::Diagnostic::help(),
+        }
+        .with_message(&d.message)
+        .with_code(d.code);
+        let mut labels = Vec::new();
+        if let Some(p) = &d.primary {
+            let id = set.id_of(&p.source);
+            labels.push(cs::Label::primary(id, clamp_span(&p.source, &p.span)).with_message(&p.label));
+        }
+        for s in &d.secondary {
+            let id = set.id_of(&s.source);
+            labels.push(cs::Label::secondary(id, clamp_span(&s.source, &s.span)).with_message(&s.label));
+        }
+        let mut notes = d.notes.clone();
+        if let Some(h) = &d.help {
+            notes.push(format!("help: {h}"));
+        }
+        cd = cd.with_labels(labels).with_notes(notes);
+        converted.push(cd);
+    }
+    let config = term::Config::default();
+    let mut buf = if color {
+        termcolor::Buffer::ansi()
+    } else {
+        termcolor::Buffer::no_color()
+    };
+    for cd in &converted {
+        // Writing into an in-memory buffer only fails on a bad span, which
+        // `clamp_span` rules out; fall back to the bare message regardless.
+        if term::emit_to_write_style(&mut buf, &config, &set, cd).is_err() {
+            let _ = std::io::Write::write_all(&mut buf, format!("error: {}\n", cd.message).as_bytes());
+        }
+    }
+    String::from_utf8_lossy(buf.as_slice()).into_owned()
+}
+
+/// The closest candidate to `name` by edit distance, if it is close enough to
+/// be a plausible typo.
+pub fn closest<'a, I: IntoIterator<Item = &'a str>>(name: &str, candidates: I) -> Option<&'a str> {
+    let mut best: Option<(usize, &str)> = None;
+    for c in candidates {
+        let d = edit_distance(&name.to_lowercase(), &c.to_lowercase());
+        if best.is_none_or(|(bd, _)| d < bd) {
+            best = Some((d, c));
+        }
+    }
+    let limit = name.chars().count().div_ceil(3).max(2);
+    best.filter(|(d, _)| *d <= limit).map(|(_, c)| c)
+}
+
+fn edit_distance(a: &str, b: &str) -> usize {
+    let a: Vec<char> = a.chars().collect();
+    let b: Vec<char> = b.chars().collect();
+    let mut prev: Vec<usize> = (0..=b.len()).collect();
+    let mut cur = vec![0; b.len() + 1];
+    for i in 1..=a.len() {
+        cur[0] = i;
+        for j in 1..=b.len() {
+            let cost = usize::from(a[i - 1] != b[j - 1]);
+            cur[j] = (prev[j] + 1).min(cur[j - 1] + 1).min(prev[j - 1] + cost);
+        }
+        std::mem::swap(&mut prev, &mut cur);
+    }
+    prev[b.len()]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn line_col_counts_characters_from_one() {
+        let s = Source::file("a.cresc", "ab\ncdé f\n");
+        assert_eq!(s.line_col(0), (1, 1));
+        assert_eq!(s.line_col(3), (2, 1));
+        // 'f' comes after "cdé " (é is two bytes) -> column 5
+        assert_eq!(s.line_col(8), (2, 5));
+    }
+
+    #[test]
+    fn excerpt_keeps_real_line_numbers() {
+        let s = Source::excerpt("data.csv", "x,oops,3\n", 41);
+        let d = Diagnostic::error("bad-number", "not a number").at(&s, 2..6, "here");
+        let out = render(&[d.clone()], false);
+        assert!(out.contains("data.csv:41:3"), "{out}");
+        assert!(out.contains("^^^^"), "{out}");
+        assert_eq!(d.location(), Some(("data.csv".into(), 41, 3)));
+    }
+
+    #[test]
+    fn closest_suggests_typos_only() {
+        let words = ["spotlight", "show", "hide", "takeaway"];
+        assert_eq!(closest("spotlite", words), Some("spotlight"));
+        assert_eq!(closest("shwo", words), Some("show"));
+        assert_eq!(closest("banana", words), None);
+    }
+
+    #[test]
+    fn spans_past_the_end_do_not_panic() {
+        let s = Source::file("a", "abc");
+        let d = Diagnostic::error("x", "y").at(&s, 10..20, "z");
+        let out = render(&[d], false);
+        assert!(out.contains("a:1:4"), "{out}");
+    }
+}

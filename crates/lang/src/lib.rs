@@ -1,0 +1,8 @@
+//! The crescendo story language: the pest grammar in `grammar/story.pest`,
+//! a syntax tree with spans ([`ast`]) and a parser that reports every
+//! syntax error of a file ([`parse`]).
+
+pub mod ast;
+pub mod parser;
+
+pub use parser::{parse, TOP_KEYWORDS};

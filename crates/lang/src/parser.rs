@@ -1,0 +1,843 @@
+//! Parser: pest grammar (`grammar/story.pest`) to [`StoryAst`], with error
+//! recovery at top-level items so that every syntax error in a file is
+//! reported, not only the first.
+
+use std::sync::Arc;
+
+use crescendo_diag::{closest, Diagnostic, Source};
+use pest::error::{ErrorVariant, InputLocation};
+use pest::iterators::Pair;
+use pest::Parser;
+use pest_derive::Parser;
+
+use crate::ast::*;
+
+#[derive(Parser)]
+#[grammar = "../../grammar/story.pest"]
+struct StoryParser;
+
+/// Words that may start a top-level item.
+pub const TOP_KEYWORDS: &[&str] = &[
+    "story",
+    "byline",
+    "source",
+    "theme",
+    "data",
+    "view",
+    "compare",
+    "focus",
+    "conclusion",
+    "frame",
+];
+
+/// Parse a story file. Returns the items that parsed and one diagnostic per
+/// syntax error (at most one per top-level item).
+pub fn parse(source: &Arc<Source>) -> (StoryAst, Vec<Diagnostic>) {
+    let text = source.text.as_str();
+    let mut items = Vec::new();
+    let mut diags = Vec::new();
+    let mut pos = 0;
+    while pos < text.len() {
+        let rest = &text[pos..];
+        if StoryParser::parse(Rule::only_trivia, rest).is_ok() {
+            break;
+        }
+        match StoryParser::parse(Rule::next_item, rest) {
+            Ok(mut pairs) => {
+                let Some(pair) = pairs.next() else { break };
+                let end = pair.as_span().end();
+                match convert_item(pair, pos) {
+                    Ok(item) => items.push(item),
+                    Err(d) => diags.push(d.into_diag(source)),
+                }
+                pos += end.max(1);
+            }
+            Err(err) => {
+                let at = match err.location {
+                    InputLocation::Pos(p) => p,
+                    InputLocation::Span((s, _)) => s,
+                };
+                let at = pull_back_to_previous_token(rest, at);
+                diags.push(syntax_error(source, pos, at, &err.variant));
+                pos = next_item_start(text, pos, pos + at);
+            }
+        }
+    }
+    (StoryAst { items }, diags)
+}
+
+/// Where to resume after a syntax error at `error` in the item that starts
+/// at `item_start`: the first line after the item's first line, at or after
+/// the error's line, that starts (in column 1) with a top-level keyword; or
+/// the end of the text.
+fn next_item_start(text: &str, item_start: usize, error: usize) -> usize {
+    let starts_item = |line: &str| {
+        TOP_KEYWORDS.iter().any(|k| {
+            line.starts_with(k)
+                && !line[k.len()..]
+                    .chars()
+                    .next()
+                    .is_some_and(|c| c.is_ascii_alphanumeric() || c == '_')
+        })
+    };
+    let first_line_end = text[item_start..]
+        .find(|c: char| !c.is_whitespace() && c != '#')
+        .map(|o| item_start + o)
+        .and_then(|s| text[s..].find('\n').map(|nl| s + nl + 1))
+        .unwrap_or(text.len());
+    let error = error.min(text.len());
+    let mut i = text[..error].rfind('\n').map_or(0, |nl| nl + 1).max(first_line_end);
+    while i < text.len() {
+        if starts_item(&text[i..]) {
+            return i;
+        }
+        match text[i..].find('\n') {
+            Some(nl) => i += nl + 1,
+            None => break,
+        }
+    }
+    text.len()
+}
+
+/// When an error is found at the first token of a later line, report it just
+/// after the last token before it: "expected a string" belongs to the line
+/// that is missing it.
+fn pull_back_to_previous_token(text: &str, at: usize) -> usize {
+    let before = &text[..at.min(text.len())];
+    let trimmed = before.trim_end();
+    if before[trimmed.len()..].contains('\n') && !trimmed.is_empty() {
+        // skip back over a trailing comment on that line
+        let line_start = trimmed.rfind('\n').map_or(0, |i| i + 1);
+        let line = &trimmed[line_start..];
+        match line.find('#') {
+            Some(h) if !line[..h].contains('"') => line_start + line[..h].trim_end().len(),
+            _ => trimmed.len(),
+        }
+    } else {
+        at
+    }
+}
+
+/// What a rule looks like to a reader of an error message.
+fn describe(rule: Rule) -> Option<String> {
+    let name = format!("{rule:?}");
+    if let Some(kw) = name.strip_prefix("kw_") {
+        return Some(format!("`{kw}`"));
+    }
+    Some(
+        match rule {
+            Rule::ident => "a name",
+            Rule::string => "a quoted string",
+            Rule::number | Rule::integer => "a number",
+            Rule::expr
+            | Rule::or_expr
+            | Rule::and_expr
+            | Rule::not_expr
+            | Rule::negation
+            | Rule::compare_expr
+            | Rule::sum_expr
+            | Rule::product
+            | Rule::unary
+            | Rule::neg_sign => "an expression",
+            Rule::chart_form => "a chart (`line` or `bars`)",
+            Rule::axis_name => "an axis title (`x title` or `y title`)",
+            Rule::direction => "`ascending` or `descending`",
+            Rule::keep_step | Rule::by_step | Rule::add_step | Rule::sort_step | Rule::top_step => {
+                "a view step (`| keep`, `| by`, `| add`, `| sort`, `| top`)"
+            }
+            Rule::cmp_op => "a comparison",
+            Rule::add_op | Rule::mul_op => "an operator",
+            Rule::EOI => "the end of the file",
+            Rule::targets => "`all`, `none`, `focus` or quoted names",
+            Rule::chart_opt | Rule::opt_name => "a chart option (x, y, series, category, value, ordered)",
+            _ => return None,
+        }
+        .to_string(),
+    )
+}
+
+/// The keywords a rule can start with (for "did you mean" suggestions).
+fn keywords_of(rule: Rule) -> Vec<String> {
+    let words: &[&str] = match rule {
+        Rule::chart_form => &["line", "bars"],
+        Rule::axis_name => &["x", "y"],
+        Rule::direction => &["ascending", "descending"],
+        Rule::opt_name | Rule::chart_opt => &["x", "y", "series", "category", "value", "ordered"],
+        Rule::targets => &["all", "none", "focus"],
+        _ => {
+            return format!("{rule:?}")
+                .strip_prefix("kw_")
+                .map(|k| vec![k.to_string()])
+                .unwrap_or_default()
+        }
+    };
+    words.iter().map(|w| w.to_string()).collect()
+}
+
+fn syntax_error(source: &Arc<Source>, base: usize, at: usize, variant: &ErrorVariant<Rule>) -> Diagnostic {
+    let text = &source.text[base..];
+    let word: String = text[at..]
+        .chars()
+        .take_while(|c| c.is_ascii_alphanumeric() || *c == '_')
+        .collect();
+    let rest_of_line = text[at.min(text.len())..].split('\n').next().unwrap_or("");
+    let found = if text[at.min(text.len())..].trim().is_empty() {
+        "the end of the file".to_string()
+    } else if rest_of_line.trim().is_empty() || rest_of_line.trim_start().starts_with('#') {
+        "the end of the line".to_string()
+    } else if at >= text.len() {
+        "the end of the file".to_string()
+    } else if !word.is_empty() {
+        format!("`{word}`")
+    } else {
+        let c = text[at..].chars().next().unwrap_or(' ');
+        match c {
+            '\n' | '\r' => "the end of the line".to_string(),
+            _ => format!("`{c}`"),
+        }
+    };
+    let (expected, keywords): (Vec<String>, Vec<String>) = match variant {
+        ErrorVariant::ParsingError { positives, .. } => {
+            let mut exp: Vec<String> = positives.iter().filter_map(|r| describe(*r)).collect();
+            exp.sort();
+            exp.dedup();
+            let kws = positives.iter().flat_map(|r| keywords_of(*r)).collect();
+            (exp, kws)
+        }
+        ErrorVariant::CustomError { message } => (vec![message.clone()], Vec::new()),
+    };
+    // At the start of an item, a word that is no keyword is most likely a
+    // misspelt keyword.
+    let keywords: Vec<String> = if keywords.is_empty() && at == leading_trivia(text) {
+        TOP_KEYWORDS.iter().map(|s| s.to_string()).collect()
+    } else {
+        keywords
+    };
+    let expected_text = match expected.len() {
+        0 => "something else".to_string(),
+        1 => expected[0].clone(),
+        n if n <= 8 => format!("{} or {}", expected[..n - 1].join(", "), expected[n - 1]),
+        _ => format!("one of {}, ...", expected[..8].join(", ")),
+    };
+    let is_unknown_word = !word.is_empty() && !keywords.is_empty() && !keywords.contains(&word);
+    let (code, message) = if is_unknown_word && word.chars().next().is_some_and(|c| c.is_ascii_alphabetic()) {
+        ("unknown-keyword", format!("unknown keyword `{word}`: expected {expected_text}"))
+    } else {
+        ("syntax", format!("expected {expected_text}, found {found}"))
+    };
+    let start = base + at;
+    let at_line_end = found == "the end of the line" || found == "the end of the file";
+    let end = if at_line_end {
+        start
+    } else {
+        start + word.len().max(text[at..].chars().next().map_or(0, char::len_utf8))
+    };
+    let mut d = Diagnostic::error(code, message).at(source, start..end, "not expected here");
+    if is_unknown_word {
+        if let Some(s) = closest(&word, keywords.iter().map(String::as_str)) {
+            d = d.help(format!("did you mean `{s}`?"));
+        }
+    }
+    d
+}
+
+/// Length of the blank space and comments at the start of `text`.
+fn leading_trivia(text: &str) -> usize {
+    let mut i = 0;
+    let b = text.as_bytes();
+    while i < b.len() {
+        match b[i] {
+            b' ' | b'\t' | b'\r' | b'\n' => i += 1,
+            b'#' => {
+                while i < b.len() && b[i] != b'\n' {
+                    i += 1
+                }
+            }
+            _ => break,
+        }
+    }
+    i
+}
+
+/// A problem found while converting pairs (values out of range).
+struct ConvertError {
+    span: Span,
+    message: String,
+}
+
+impl ConvertError {
+    fn into_diag(self, source: &Arc<Source>) -> Diagnostic {
+        Diagnostic::error("syntax", self.message).at(source, self.span, "here")
+    }
+}
+
+type Res<T> = Result<T, ConvertError>;
+
+fn span_of(pair: &Pair<Rule>, base: usize) -> Span {
+    let s = pair.as_span();
+    base + s.start()..base + s.end()
+}
+
+fn ident(pair: Pair<Rule>, base: usize) -> Ident {
+    Ident {
+        name: pair.as_str().to_string(),
+        span: span_of(&pair, base),
+    }
+}
+
+fn string(pair: Pair<Rule>, base: usize) -> Str {
+    let span = span_of(&pair, base);
+    let raw = pair.into_inner().next().map(|p| p.as_str()).unwrap_or("");
+    let mut value = String::with_capacity(raw.len());
+    let mut chars = raw.chars();
+    while let Some(c) = chars.next() {
+        if c == '\\' {
+            match chars.next() {
+                Some('n') => value.push('\n'),
+                Some('t') => value.push('\t'),
+                Some(other) => value.push(other),
+                None => {}
+            }
+        } else {
+            value.push(c);
+        }
+    }
+    Str { value, span }
+}
+
+fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
+    let span = span_of(&pair, base);
+    let rule = pair.as_rule();
+    let mut inner: Vec<Pair<Rule>> = pair.into_inner().collect();
+    let text_item = |inner: &mut Vec<Pair<Rule>>, span: Span| -> TextItem {
+        let s = inner.pop().map(|p| string(p, base)).unwrap_or(Str {
+            value: String::new(),
+            span: span.clone(),
+        });
+        TextItem { text: s, span }
+    };
+    Ok(match rule {
+        Rule::title_item => Item::Title(text_item(&mut inner, span)),
+        Rule::byline_item => Item::Byline(text_item(&mut inner, span)),
+        Rule::source_item => Item::Source(text_item(&mut inner, span)),
+        Rule::conclusion_item => Item::Conclusion(text_item(&mut inner, span)),
+        Rule::theme_item => Item::Theme {
+            name: ident(inner.remove(1), base),
+            span,
+        },
+        Rule::data_item => {
+            let mut it = inner.into_iter().skip(1);
+            let name = ident(it.next().ok_or_else(|| internal(&span))?, base);
+            let _from = it.next();
+            let file = string(it.next().ok_or_else(|| internal(&span))?, base);
+            let mut missing = None;
+            let mut columns = Vec::new();
+            for p in it {
+                match p.as_rule() {
+                    Rule::missing_clause => {
+                        missing = Some(
+                            p.into_inner()
+                                .filter(|q| q.as_rule() == Rule::string)
+                                .map(|q| string(q, base))
+                                .collect(),
+                        )
+                    }
+                    Rule::column_block => {
+                        for c in p.into_inner() {
+                            let cspan = span_of(&c, base);
+                            let mut ci = c.into_inner();
+                            let (Some(n), Some(t)) = (ci.next(), ci.next()) else {
+                                return Err(internal(&cspan));
+                            };
+                            columns.push(ColumnDecl {
+                                name: ident(n, base),
+                                ty: ident(t, base),
+                                span: cspan,
+                            });
+                        }
+                    }
+                    _ => {}
+                }
+            }
+            Item::Data(DataDecl {
+                name,
+                file,
+                missing,
+                columns,
+                span,
+            })
+        }
+        Rule::view_item => {
+            let mut it = inner.into_iter().skip(1);
+            let name = ident(it.next().ok_or_else(|| internal(&span))?, base);
+            let input = ident(it.next().ok_or_else(|| internal(&span))?, base);
+            let steps = it.map(|p| convert_step(p, base)).collect::<Res<Vec<_>>>()?;
+            Item::View(ViewDecl {
+                name,
+                input,
+                steps,
+                span,
+            })
+        }
+        Rule::compare_item => {
+            let key = ident(inner.remove(1), base);
+            let measure = ident(inner.remove(2), base);
+            Item::Compare(CompareDecl { key, measure, span })
+        }
+        Rule::focus_item => Item::Focus {
+            names: inner
+                .into_iter()
+                .filter(|p| p.as_rule() == Rule::string)
+                .map(|p| string(p, base))
+                .collect(),
+            span,
+        },
+        Rule::frame_item => {
+            let mut it = inner.into_iter().skip(1);
+            let headline = string(it.next().ok_or_else(|| internal(&span))?, base);
+            let stmts = it.map(|p| convert_frame_stmt(p, base)).collect::<Res<Vec<_>>>()?;
+            Item::Frame(FrameDecl {
+                headline,
+                stmts,
+                span,
+            })
+        }
+        _ => return Err(internal(&span)),
+    })
+}
+
+fn internal(span: &Span) -> ConvertError {
+    ConvertError {
+        span: span.clone(),
+        message: "the parser could not read this item (an internal inconsistency; please report it)".into(),
+    }
+}
+
+fn convert_step(pair: Pair<Rule>, base: usize) -> Res<StepAst> {
+    let span = span_of(&pair, base);
+    let rule = pair.as_rule();
+    let inner: Vec<Pair<Rule>> = pair.into_inner().collect();
+    Ok(match rule {
+        Rule::keep_step => StepAst::Keep {
+            expr: convert_expr(inner[1].clone(), base)?,
+            span,
+        },
+        Rule::by_step => {
+            let mut keys = Vec::new();
+            let mut aggregates = Vec::new();
+            for p in inner.into_iter().skip(1) {
+                match p.as_rule() {
+                    Rule::ident => keys.push(ident(p, base)),
+                    Rule::aggregate => {
+                        let aspan = span_of(&p, base);
+                        let mut a = p.into_inner();
+                        let (Some(n), Some(f)) = (a.next(), a.next()) else {
+                            return Err(internal(&aspan));
+                        };
+                        aggregates.push(AggregateAst {
+                            name: ident(n, base),
+                            func: ident(f, base),
+                            column: a.next().map(|c| ident(c, base)),
+                            span: aspan,
+                        });
+                    }
+                    _ => {}
+                }
+            }
+            StepAst::By {
+                keys,
+                aggregates,
+                span,
+            }
+        }
+        Rule::add_step => StepAst::Add {
+            name: ident(inner[1].clone(), base),
+            expr: convert_expr(inner[2].clone(), base)?,
+            span,
+        },
+        Rule::sort_step => StepAst::Sort {
+            keys: inner
+                .into_iter()
+                .skip(1)
+                .map(|k| {
+                    let kspan = span_of(&k, base);
+                    let mut ki = k.into_inner();
+                    let column = ki.next().map(|c| ident(c, base));
+                    let descending = ki.next().is_some_and(|d| d.as_str() == "descending");
+                    column
+                        .map(|column| SortKey {
+                            column,
+                            descending,
+                            span: kspan.clone(),
+                        })
+                        .ok_or_else(|| internal(&kspan))
+                })
+                .collect::<Res<Vec<_>>>()?,
+            span,
+        },
+        Rule::top_step => {
+            let n_pair = &inner[1];
+            let n_span = span_of(n_pair, base);
+            let n = n_pair.as_str().parse::<u64>().map_err(|_| ConvertError {
+                span: n_span.clone(),
+                message: format!("`{}` is too large for a count", n_pair.as_str()),
+            })?;
+            StepAst::Top {
+                n,
+                n_span,
+                key: ident(inner[2].clone(), base),
+                by: ident(inner[4].clone(), base),
+                rest: inner.get(6).cloned().map(|p| string(p, base)),
+                span,
+            }
+        }
+        _ => return Err(internal(&span)),
+    })
+}
+
+fn convert_expr(pair: Pair<Rule>, base: usize) -> Res<Expr> {
+    let span = span_of(&pair, base);
+    match pair.as_rule() {
+        Rule::expr => convert_expr(pair.into_inner().next().ok_or_else(|| internal(&span))?, base),
+        Rule::or_expr | Rule::and_expr => {
+            let op = if pair.as_rule() == Rule::or_expr { BinOp::Or } else { BinOp::And };
+            let mut it = pair.into_inner().filter(|p| !matches!(p.as_rule(), Rule::kw_and | Rule::kw_or));
+            let mut left = convert_expr(it.next().ok_or_else(|| internal(&span))?, base)?;
+            for p in it {
+                let right = convert_expr(p, base)?;
+                let s = left.span().start..right.span().end;
+                left = Expr::Binary {
+                    op,
+                    left: Box::new(left),
+                    right: Box::new(right),
+                    span: s,
+                };
+            }
+            Ok(left)
+        }
+        Rule::not_expr => convert_expr(pair.into_inner().next().ok_or_else(|| internal(&span))?, base),
+        Rule::negation => {
+            let operand = pair.into_inner().nth(1).ok_or_else(|| internal(&span))?;
+            Ok(Expr::Not {
+                expr: Box::new(convert_expr(operand, base)?),
+                span,
+            })
+        }
+        Rule::compare_expr => {
+            let mut it = pair.into_inner();
+            let left = convert_expr(it.next().ok_or_else(|| internal(&span))?, base)?;
+            let Some(tail) = it.next() else { return Ok(left) };
+            match tail.as_rule() {
+                Rule::cmp_tail => {
+                    let mut t = tail.into_inner();
+                    let op = match t.next().map(|p| p.as_str()) {
+                        Some("=") | Some("==") => BinOp::Eq,
+                        Some("!=") => BinOp::Ne,
+                        Some("<") => BinOp::Lt,
+                        Some("<=") => BinOp::Le,
+                        Some(">") => BinOp::Gt,
+                        Some(">=") => BinOp::Ge,
+                        _ => return Err(internal(&span)),
+                    };
+                    let right = convert_expr(t.next().ok_or_else(|| internal(&span))?, base)?;
+                    Ok(Expr::Binary {
+                        op,
+                        left: Box::new(left),
+                        right: Box::new(right),
+                        span,
+                    })
+                }
+                Rule::in_tail => {
+                    let mut negated = false;
+                    let mut list = Vec::new();
+                    for p in tail.into_inner() {
+                        match p.as_rule() {
+                            Rule::kw_not => negated = true,
+                            Rule::kw_in => {}
+                            _ => list.push(convert_expr(p, base)?),
+                        }
+                    }
+                    Ok(Expr::In {
+                        expr: Box::new(left),
+                        list,
+                        negated,
+                        span,
+                    })
+                }
+                _ => Err(internal(&span)),
+            }
+        }
+        Rule::sum_expr | Rule::product => {
+            let mut it = pair.into_inner();
+            let mut left = convert_expr(it.next().ok_or_else(|| internal(&span))?, base)?;
+            while let (Some(op), Some(r)) = (it.next(), it.next()) {
+                let op = match op.as_str() {
+                    "+" => BinOp::Add,
+                    "-" => BinOp::Sub,
+                    "*" => BinOp::Mul,
+                    _ => BinOp::Div,
+                };
+                let right = convert_expr(r, base)?;
+                let s = left.span().start..right.span().end;
+                left = Expr::Binary {
+                    op,
+                    left: Box::new(left),
+                    right: Box::new(right),
+                    span: s,
+                };
+            }
+            Ok(left)
+        }
+        Rule::unary => {
+            let parts: Vec<Pair<Rule>> = pair.into_inner().collect();
+            let negs = parts.iter().filter(|p| p.as_rule() == Rule::neg_sign).count();
+            let atom = parts.into_iter().last().ok_or_else(|| internal(&span))?;
+            let mut e = convert_expr(atom, base)?;
+            for _ in 0..negs {
+                e = Expr::Neg {
+                    expr: Box::new(e),
+                    span: span.clone(),
+                };
+            }
+            Ok(e)
+        }
+        Rule::number => {
+            let value: f64 = pair.as_str().parse().map_err(|_| ConvertError {
+                span: span.clone(),
+                message: format!("`{}` is not a number", pair.as_str()),
+            })?;
+            if !value.is_finite() {
+                return Err(ConvertError {
+                    span,
+                    message: "this number is too large".into(),
+                });
+            }
+            Ok(Expr::Number { value, span })
+        }
+        Rule::string => Ok(Expr::Text(string(pair, base))),
+        Rule::ident => Ok(Expr::Column(ident(pair, base))),
+        _ => Err(internal(&span)),
+    }
+}
+
+fn targets(pair: Pair<Rule>, base: usize) -> Targets {
+    let span = span_of(&pair, base);
+    let first = pair.clone().into_inner().next();
+    match first.as_ref().map(|p| p.as_rule()) {
+        Some(Rule::kw_all) => Targets::All(span),
+        Some(Rule::kw_none) => Targets::None(span),
+        Some(Rule::kw_focus) => Targets::Focus(span),
+        _ => Targets::Names(pair.into_inner().map(|p| string(p, base)).collect()),
+    }
+}
+
+fn convert_frame_stmt(pair: Pair<Rule>, base: usize) -> Res<FrameStmt> {
+    let span = span_of(&pair, base);
+    let rule = pair.as_rule();
+    let inner: Vec<Pair<Rule>> = pair.into_inner().collect();
+    let last_string = |inner: &[Pair<Rule>]| {
+        inner
+            .iter()
+            .rev()
+            .find(|p| p.as_rule() == Rule::string)
+            .cloned()
+            .map(|p| string(p, base))
+            .ok_or_else(|| internal(&span))
+    };
+    Ok(match rule {
+        Rule::chart_stmt => {
+            let form = if inner[0].as_str() == "line" { ChartForm::Line } else { ChartForm::Bars };
+            let view = ident(inner[1].clone(), base);
+            let mut opts = Vec::new();
+            for o in inner.into_iter().skip(2) {
+                let ospan = span_of(&o, base);
+                let mut oi = o.into_inner();
+                let name = match oi.next().map(|p| p.as_str().to_string()).as_deref() {
+                    Some("x") => OptName::X,
+                    Some("y") => OptName::Y,
+                    Some("series") => OptName::Series,
+                    Some("category") => OptName::Category,
+                    Some("value") => OptName::Value,
+                    Some("ordered") => OptName::Ordered,
+                    _ => return Err(internal(&ospan)),
+                };
+                opts.push(ChartOpt {
+                    name,
+                    column: oi.next().map(|c| ident(c, base)),
+                    span: ospan,
+                });
+            }
+            FrameStmt::Chart(ChartStmt { form, view, opts, span })
+        }
+        Rule::axis_title_stmt => FrameStmt::AxisTitle {
+            axis: if inner[0].as_str() == "x" { AxisName::X } else { AxisName::Y },
+            text: last_string(&inner)?,
+            span,
+        },
+        Rule::show_stmt | Rule::hide_stmt | Rule::spotlight_stmt => {
+            let t = targets(inner[1].clone(), base);
+            match rule {
+                Rule::show_stmt => FrameStmt::Show { targets: t, span },
+                Rule::hide_stmt => FrameStmt::Hide { targets: t, span },
+                _ => FrameStmt::Spotlight { targets: t, span },
+            }
+        }
+        Rule::takeaway_stmt => FrameStmt::Takeaway {
+            text: last_string(&inner)?,
+            span,
+        },
+        Rule::notes_stmt => FrameStmt::Notes {
+            text: last_string(&inner)?,
+            span,
+        },
+        _ => return Err(internal(&span)),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn parse_str(text: &str) -> (StoryAst, Vec<Diagnostic>) {
+        parse(&Source::file("t.cresc", text))
+    }
+
+    const GOOD: &str = r#"
+# A comment
+story "Ferries: the \"Loop\" grows"
+byline "Planning"
+source "Ticket scans (demo)"
+theme clear
+
+data trips from "data/trips.csv" missing "NA", "" {
+  month: month, route: text
+  riders: number
+}
+
+view monthly = trips
+  | keep route != "Shuttle" and not (riders < 0 or month in ("2019-01", "2019-02"))
+  | by month, route: riders = sum(riders), n = count()
+  | add per = riders / n * -2 + 1
+  | sort riders descending, route
+  | top 3 route by riders rest "Other routes"
+
+compare route by riders
+focus "Harbour Loop"
+conclusion "Add a boat."
+
+frame "Riders since 2019" {
+  line monthly: x month, y riders, series route
+  y title "Riders per month"
+  hide all
+  notes "Intro"
+}
+frame "Then" {
+  show "Harbour Loop", "Bay"
+  spotlight focus
+  takeaway "It pulled away."
+}
+frame "Bars" { bars monthly: category route, value riders, ordered }
+"#;
+
+    #[test]
+    fn parses_every_kind_of_item() {
+        let (ast, diags) = parse_str(GOOD);
+        assert!(diags.is_empty(), "{diags:?}");
+        assert_eq!(ast.items.len(), 12);
+        let Item::Title(t) = &ast.items[0] else { panic!() };
+        assert_eq!(t.text.value, "Ferries: the \"Loop\" grows");
+        let Item::Data(d) = &ast.items[4] else { panic!() };
+        assert_eq!(d.columns.len(), 3);
+        assert_eq!(d.missing.as_ref().map(Vec::len), Some(2));
+        assert_eq!(&GOOD[d.columns[2].name.span.clone()], "riders");
+        let Item::View(v) = &ast.items[5] else { panic!() };
+        assert_eq!(v.steps.len(), 5);
+        let StepAst::Top { n, key, by, rest, .. } = &v.steps[4] else { panic!() };
+        assert_eq!((*n, key.name.as_str(), by.name.as_str()), (3, "route", "riders"));
+        assert_eq!(rest.as_ref().map(|r| r.value.as_str()), Some("Other routes"));
+        let Item::Frame(f) = &ast.items[9] else { panic!() };
+        assert_eq!(f.stmts.len(), 4);
+        let FrameStmt::Chart(c) = &f.stmts[0] else { panic!() };
+        assert_eq!(c.opts.len(), 3);
+        let Item::Frame(f3) = &ast.items[11] else { panic!() };
+        let FrameStmt::Chart(c3) = &f3.stmts[0] else { panic!() };
+        assert_eq!(c3.form, ChartForm::Bars);
+        assert_eq!(c3.opts[2].name, OptName::Ordered);
+    }
+
+    #[test]
+    fn expression_precedence_and_spans() {
+        let (ast, diags) = parse_str("view v = d | add z = 1 + 2 * 3 - -x");
+        assert!(diags.is_empty(), "{diags:?}");
+        let Item::View(v) = &ast.items[0] else { panic!() };
+        let StepAst::Add { expr, .. } = &v.steps[0] else { panic!() };
+        // ((1 + (2 * 3)) - (-x))
+        let Expr::Binary { op: BinOp::Sub, left, right, span } = expr else { panic!("{expr:?}") };
+        assert_eq!(*span, 21..35);
+        assert!(matches!(**right, Expr::Neg { .. }));
+        let Expr::Binary { op: BinOp::Add, right: r2, .. } = &**left else { panic!() };
+        assert!(matches!(**r2, Expr::Binary { op: BinOp::Mul, .. }));
+    }
+
+    #[test]
+    fn and_binds_tighter_than_or() {
+        let (ast, _) = parse_str("view v = d | keep a = 1 or b = 2 and c = 3");
+        let Item::View(v) = &ast.items[0] else { panic!() };
+        let StepAst::Keep { expr, .. } = &v.steps[0] else { panic!() };
+        let Expr::Binary { op: BinOp::Or, right, .. } = expr else { panic!() };
+        assert!(matches!(**right, Expr::Binary { op: BinOp::And, .. }));
+    }
+
+    #[test]
+    fn collects_an_error_per_broken_item() {
+        let text = "story \"ok\"\ndata d from \nview v = d | keep\nframe \"x\" { spotlite \"A\" }\nbyline \"fine\"\n";
+        let (ast, diags) = parse_str(text);
+        assert_eq!(diags.len(), 3, "{diags:#?}");
+        // the good items around the broken ones still parse
+        assert_eq!(ast.items.len(), 2);
+        let rendered = crescendo_diag::render(&diags, false);
+        assert!(rendered.contains("t.cresc:2:"), "{rendered}");
+        assert!(rendered.contains("t.cresc:3:"), "{rendered}");
+        assert!(rendered.contains("unknown keyword `spotlite`"), "{rendered}");
+        assert!(rendered.contains("did you mean `spotlight`?"), "{rendered}");
+    }
+
+    #[test]
+    fn misspelt_top_level_keyword_gets_a_suggestion() {
+        let (_, diags) = parse_str("stroy \"x\"\n");
+        assert_eq!(diags.len(), 1);
+        assert_eq!(diags[0].code, "unknown-keyword");
+        assert_eq!(diags[0].help.as_deref(), Some("did you mean `story`?"));
+        assert_eq!(diags[0].location(), Some(("t.cresc".into(), 1, 1)));
+    }
+
+    #[test]
+    fn unterminated_string_is_located() {
+        let (_, diags) = parse_str("story \"no end\nbyline \"b\"\n");
+        assert_eq!(diags.len(), 1, "{diags:#?}");
+        let (_, line, _) = diags[0].location().unwrap();
+        assert_eq!(line, 1);
+    }
+
+    #[test]
+    fn reserved_words_are_not_names() {
+        let (_, diags) = parse_str("view and = d\n");
+        assert_eq!(diags.len(), 1);
+    }
+
+    #[test]
+    fn empty_and_comment_only_files_parse() {
+        assert_eq!(parse_str("").0.items.len(), 0);
+        let (ast, d) = parse_str("# only a comment\n\n   # another\n");
+        assert!(ast.items.is_empty() && d.is_empty());
+    }
+
+    #[test]
+    fn never_panics_on_arbitrary_prefixes() {
+        for cut in 0..GOOD.len() {
+            if GOOD.is_char_boundary(cut) {
+                let _ = parse_str(&GOOD[..cut]);
+            }
+        }
+    }
+}
