@@ -125,7 +125,10 @@ pub enum Step {
     Keep(Expr),
     /// One row per distinct key combination, in order of first appearance;
     /// output columns are the keys, then the aggregates.
-    Group { keys: Vec<usize>, aggregates: Vec<Aggregate> },
+    Group {
+        keys: Vec<usize>,
+        aggregates: Vec<Aggregate>,
+    },
     /// Append a computed number column.
     Derive { name: String, expr: Expr },
     /// Stable sort by the keys in order; `true` = descending. Missing sorts last.
@@ -134,5 +137,10 @@ pub enum Step {
     /// rows of all other categories get `key = rest` and are folded into one
     /// row per combination of the remaining non-number columns, summing the
     /// number columns.
-    Top { key: usize, by: usize, n: usize, rest: String },
+    Top {
+        key: usize,
+        by: usize,
+        n: usize,
+        rest: String,
+    },
 }

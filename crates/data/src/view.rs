@@ -1,1 +1,1202 @@
-//! (being written)
+//! The view engine: runs resolved, type-checked [`Step`]s over a [`Table`].
+//!
+//! The planner resolves names and checks types before a view runs, so the
+//! engine trusts the steps' column indices and types. It still never panics:
+//! an out-of-range column reads as missing, and an ill-typed operation yields
+//! `Missing` (or `false` in a predicate).
+//!
+//! # Expressions
+//!
+//! * Arithmetic (`+ - * /`, unary minus) works on numbers; a `year` operand
+//!   counts as its number. Any missing operand gives `Missing`; division by zero
+//!   (and any other non-finite result) gives `Missing`.
+//! * Comparisons work between numbers, between texts (byte order, exact
+//!   equality), between values of the same time kind, and between a year and a
+//!   number. A comparison with a missing operand is `false` for every operator,
+//!   `!=` included. Values of unrelated kinds are never equal (`=` is false,
+//!   `!=` true, ordering comparisons false).
+//! * `and`, `or`, `not` work on booleans; anything that is not a true boolean
+//!   (a missing comparison, say) counts as false, so `not (x > 3)` is true when
+//!   `x` is missing.
+//! * `v in (a, b, ...)` is true when `v` equals one of the values (the same
+//!   equality as `=`); a missing `v` is never in the list.
+//!
+//! # Steps
+//!
+//! See [`run_view`] and the doc of each step's function.
+
+use std::cmp::Ordering;
+use std::collections::HashMap;
+
+use crate::model::{AggFn, Aggregate, ArithOp, CmpOp, ColType, Column, Expr, Step, Table, Value};
+
+/// Run `steps` in order over `input` and return the resulting table.
+///
+/// * `Keep(pred)`: keeps the rows where `pred` is true (see module docs:
+///   missing compares as false). Row order is kept.
+/// * `Group { keys, aggregates }`: see [`group`].
+/// * `Derive { name, expr }`: appends a `number` column named `name` holding
+///   `expr` for every row (`Missing` where the expression is missing or not a
+///   number).
+/// * `Sort { keys }`: stable sort; see [`sort`].
+/// * `Top { key, by, n, rest }`: see [`top`].
+pub fn run_view(input: &Table, steps: &[Step]) -> Table {
+    let mut table = input.clone();
+    for step in steps {
+        table = match step {
+            Step::Keep(pred) => keep(&table, pred),
+            Step::Group { keys, aggregates } => group(&table, keys, aggregates),
+            Step::Derive { name, expr } => derive(table, name, expr),
+            Step::Sort { keys } => sort(&table, keys),
+            Step::Top { key, by, n, rest } => top(&table, *key, *by, *n, rest),
+        };
+    }
+    table
+}
+
+/// Number of rows of a table (the length of its first column).
+fn row_count(t: &Table) -> usize {
+    t.columns.first().map_or(0, |c| c.values.len())
+}
+
+static MISSING: Value = Value::Missing;
+
+/// The cell at `(col, row)`, or `Missing` when out of range.
+fn cell(t: &Table, col: usize, row: usize) -> &Value {
+    t.columns
+        .get(col)
+        .and_then(|c| c.values.get(row))
+        .unwrap_or(&MISSING)
+}
+
+/// A table with the same columns holding the given rows, in that order.
+fn take_rows(t: &Table, rows: &[usize]) -> Table {
+    Table {
+        columns: t
+            .columns
+            .iter()
+            .map(|c| Column {
+                name: c.name.clone(),
+                ty: c.ty,
+                values: rows
+                    .iter()
+                    .map(|&r| c.values.get(r).cloned().unwrap_or(Value::Missing))
+                    .collect(),
+            })
+            .collect(),
+    }
+}
+
+// ---------------------------------------------------------------- expressions
+
+/// The numeric value of a number (or year) cell.
+fn as_number(v: &Value) -> Option<f64> {
+    match v {
+        Value::Number(x) => Some(*x),
+        Value::Year(y) => Some(f64::from(*y)),
+        _ => None,
+    }
+}
+
+fn finite(x: f64) -> Value {
+    if x.is_finite() {
+        Value::Number(x)
+    } else {
+        Value::Missing
+    }
+}
+
+/// Evaluate a value expression on one row. A boolean expression used as a
+/// value (which type-checking rules out) gives `Missing`.
+fn eval(t: &Table, row: usize, e: &Expr) -> Value {
+    match e {
+        Expr::Col(c) => cell(t, *c, row).clone(),
+        Expr::Lit(v) => v.clone(),
+        Expr::Neg(a) => match as_number(&eval(t, row, a)) {
+            Some(x) => finite(-x),
+            None => Value::Missing,
+        },
+        Expr::Arith(op, a, b) => {
+            let (Some(x), Some(y)) = (as_number(&eval(t, row, a)), as_number(&eval(t, row, b)))
+            else {
+                return Value::Missing;
+            };
+            match op {
+                ArithOp::Add => finite(x + y),
+                ArithOp::Sub => finite(x - y),
+                ArithOp::Mul => finite(x * y),
+                ArithOp::Div if y == 0.0 => Value::Missing,
+                ArithOp::Div => finite(x / y),
+            }
+        }
+        Expr::Cmp(..) | Expr::And(..) | Expr::Or(..) | Expr::Not(..) | Expr::In(..) => {
+            Value::Missing
+        }
+    }
+}
+
+/// Order of two non-missing values of comparable kinds; `None` otherwise.
+fn compare(a: &Value, b: &Value) -> Option<Ordering> {
+    match (a, b) {
+        (Value::Number(x), Value::Number(y)) => Some(x.total_cmp(y)),
+        (Value::Text(x), Value::Text(y)) => Some(x.as_bytes().cmp(y.as_bytes())),
+        (Value::Date(x), Value::Date(y))
+        | (Value::Month(x), Value::Month(y))
+        | (Value::Year(x), Value::Year(y)) => Some(x.cmp(y)),
+        (Value::Year(x), Value::Number(y)) => Some(f64::from(*x).total_cmp(y)),
+        (Value::Number(x), Value::Year(y)) => Some(x.total_cmp(&f64::from(*y))),
+        _ => None,
+    }
+}
+
+/// `a op b` with the module's rules: missing gives false.
+fn compare_op(op: CmpOp, a: &Value, b: &Value) -> bool {
+    if matches!(a, Value::Missing) || matches!(b, Value::Missing) {
+        return false;
+    }
+    match compare(a, b) {
+        Some(o) => match op {
+            CmpOp::Eq => o == Ordering::Equal,
+            CmpOp::Ne => o != Ordering::Equal,
+            CmpOp::Lt => o == Ordering::Less,
+            CmpOp::Le => o != Ordering::Greater,
+            CmpOp::Gt => o == Ordering::Greater,
+            CmpOp::Ge => o != Ordering::Less,
+        },
+        None => op == CmpOp::Ne,
+    }
+}
+
+/// Evaluate a predicate on one row. A value expression used as a predicate
+/// (which type-checking rules out) is false.
+fn truth(t: &Table, row: usize, e: &Expr) -> bool {
+    match e {
+        Expr::Cmp(op, a, b) => compare_op(*op, &eval(t, row, a), &eval(t, row, b)),
+        Expr::And(a, b) => truth(t, row, a) && truth(t, row, b),
+        Expr::Or(a, b) => truth(t, row, a) || truth(t, row, b),
+        Expr::Not(a) => !truth(t, row, a),
+        Expr::In(a, list) => {
+            let v = eval(t, row, a);
+            list.iter().any(|item| compare_op(CmpOp::Eq, &v, item))
+        }
+        Expr::Col(_) | Expr::Lit(_) | Expr::Neg(_) | Expr::Arith(..) => false,
+    }
+}
+
+// ---------------------------------------------------------------------- steps
+
+/// Keep the rows where `pred` is true, in order.
+fn keep(t: &Table, pred: &Expr) -> Table {
+    let rows: Vec<usize> = (0..row_count(t)).filter(|&r| truth(t, r, pred)).collect();
+    take_rows(t, &rows)
+}
+
+/// Append a number column holding `expr` for each row.
+fn derive(mut t: Table, name: &str, expr: &Expr) -> Table {
+    let values = (0..row_count(&t))
+        .map(|r| match as_number(&eval(&t, r, expr)) {
+            Some(x) => Value::Number(x),
+            None => Value::Missing,
+        })
+        .collect();
+    t.columns.push(Column {
+        name: name.to_owned(),
+        ty: ColType::Number,
+        values,
+    });
+    t
+}
+
+/// Neumaier's compensated sum (an improved Kahan summation; common practice
+/// for accurate floating-point totals). The result does not depend on how
+/// the terms are split, up to the final rounding, and is exact for sums of
+/// integers below 2^53.
+#[derive(Clone, Copy, Debug, Default)]
+struct Sum {
+    sum: f64,
+    comp: f64,
+    n: usize,
+}
+
+impl Sum {
+    fn add(&mut self, x: f64) {
+        let t = self.sum + x;
+        if self.sum.abs() >= x.abs() {
+            self.comp += (self.sum - t) + x;
+        } else {
+            self.comp += (x - t) + self.sum;
+        }
+        self.sum = t;
+        self.n += 1;
+    }
+
+    fn total(&self) -> Option<f64> {
+        (self.n > 0).then_some(self.sum + self.comp)
+    }
+}
+
+/// A hashable form of a cell, for grouping. `-0.0` and `0.0` are one key.
+#[derive(Clone, Debug, PartialEq, Eq, Hash)]
+enum Key {
+    Missing,
+    Number(u64),
+    Text(String),
+    Date(i32),
+    Month(i32),
+    Year(i32),
+}
+
+fn key_of(v: &Value) -> Key {
+    match v {
+        Value::Missing => Key::Missing,
+        Value::Number(x) => Key::Number(if *x == 0.0 { 0 } else { x.to_bits() }),
+        Value::Text(s) => Key::Text(s.clone()),
+        Value::Date(d) => Key::Date(*d),
+        Value::Month(m) => Key::Month(*m),
+        Value::Year(y) => Key::Year(*y),
+    }
+}
+
+/// Partition `rows` by the cells of `cols`, in order of first appearance.
+fn partition(t: &Table, cols: &[usize], rows: impl Iterator<Item = usize>) -> Vec<Vec<usize>> {
+    let mut index: HashMap<Vec<Key>, usize> = HashMap::new();
+    let mut groups: Vec<Vec<usize>> = Vec::new();
+    for r in rows {
+        let k: Vec<Key> = cols.iter().map(|&c| key_of(cell(t, c, r))).collect();
+        let g = *index.entry(k).or_insert_with(|| {
+            groups.push(Vec::new());
+            groups.len() - 1
+        });
+        groups[g].push(r);
+    }
+    groups
+}
+
+/// Group rows by `keys` and compute `aggregates` per group.
+///
+/// * One output row per distinct combination of key cells, in order of first
+///   appearance; a missing key cell is a key value of its own. With no keys
+///   the whole table is one group, so the output always has exactly one row
+///   (even for an empty input, where counts are 0 and other results missing).
+/// * Output columns: the keys (same name and type), then one column per
+///   aggregate named `Aggregate::name`.
+/// * `sum`, `mean`, `median`, `min`, `max`, `first`, `last` skip missing cells
+///   of their own column (so missing values are handled per column, not per
+///   row) and give `Missing` when the group has no non-missing cell.
+/// * `count` of a column counts its non-missing cells; `count` of rows counts
+///   rows. Both are numbers and never missing.
+/// * `sum` uses compensated summation; `mean` is that sum over the count;
+///   `median` of an even count is the mean of the two middle values.
+/// * `min`/`max`/`first`/`last` keep the input column's type and work on any
+///   type (texts by byte order, times by date).
+fn group(t: &Table, keys: &[usize], aggregates: &[Aggregate]) -> Table {
+    let n = row_count(t);
+    let groups = if keys.is_empty() {
+        vec![(0..n).collect()]
+    } else {
+        partition(t, keys, 0..n)
+    };
+    let firsts: Vec<usize> = groups.iter().filter_map(|g| g.first().copied()).collect();
+    let mut out = take_rows(
+        &Table {
+            columns: keys
+                .iter()
+                .map(|&k| match t.columns.get(k) {
+                    Some(c) => c.clone(),
+                    None => Column {
+                        name: String::new(),
+                        ty: ColType::Text,
+                        values: Vec::new(),
+                    },
+                })
+                .collect(),
+        },
+        &firsts,
+    );
+    for agg in aggregates {
+        let in_ty = agg
+            .column
+            .and_then(|c| t.columns.get(c))
+            .map_or(ColType::Number, |c| c.ty);
+        let ty = match agg.func {
+            AggFn::Min | AggFn::Max | AggFn::First | AggFn::Last => in_ty,
+            AggFn::Sum | AggFn::Mean | AggFn::Median | AggFn::Count => ColType::Number,
+        };
+        let values = groups
+            .iter()
+            .map(|rows| aggregate(t, agg.func, agg.column, rows))
+            .collect();
+        out.columns.push(Column {
+            name: agg.name.clone(),
+            ty,
+            values,
+        });
+    }
+    out
+}
+
+/// One aggregate over the given rows.
+fn aggregate(t: &Table, func: AggFn, column: Option<usize>, rows: &[usize]) -> Value {
+    let Some(col) = column else {
+        // Only `count` has no column; anything else has nothing to read.
+        return match func {
+            AggFn::Count => Value::Number(rows.len() as f64),
+            _ => Value::Missing,
+        };
+    };
+    let cells = rows
+        .iter()
+        .map(|&r| cell(t, col, r))
+        .filter(|v| !matches!(v, Value::Missing));
+    let number = |x: Option<f64>| x.map_or(Value::Missing, finite);
+    match func {
+        AggFn::Count => Value::Number(cells.count() as f64),
+        AggFn::Sum => number(sum_of(cells).total()),
+        AggFn::Mean => {
+            let s = sum_of(cells);
+            number(s.total().map(|x| x / s.n as f64))
+        }
+        AggFn::Median => {
+            let mut xs: Vec<f64> = cells.filter_map(as_number).collect();
+            xs.sort_by(f64::total_cmp);
+            let m = xs.len();
+            number(match m {
+                0 => None,
+                _ if m % 2 == 1 => Some(xs[m / 2]),
+                _ => Some(xs[m / 2 - 1] / 2.0 + xs[m / 2] / 2.0),
+            })
+        }
+        AggFn::Min => extreme(cells, Ordering::Less),
+        AggFn::Max => extreme(cells, Ordering::Greater),
+        AggFn::First => {
+            let mut cells = cells;
+            cells.next().cloned().unwrap_or(Value::Missing)
+        }
+        AggFn::Last => {
+            let mut cells = cells;
+            cells.next_back().cloned().unwrap_or(Value::Missing)
+        }
+    }
+}
+
+fn sum_of<'a>(cells: impl Iterator<Item = &'a Value>) -> Sum {
+    let mut s = Sum::default();
+    for x in cells.filter_map(as_number) {
+        s.add(x);
+    }
+    s
+}
+
+/// The first value that is strictly more `want` than every other (the first
+/// of equal extremes wins).
+fn extreme<'a>(cells: impl Iterator<Item = &'a Value>, want: Ordering) -> Value {
+    let mut best: Option<&Value> = None;
+    for v in cells {
+        best = match best {
+            Some(b) if compare(v, b) != Some(want) => Some(b),
+            _ => Some(v),
+        };
+    }
+    best.cloned().unwrap_or(Value::Missing)
+}
+
+/// Stable sort by `keys` in order (`true` = descending).
+///
+/// Missing cells sort last for every key regardless of direction; texts sort
+/// by byte order, numbers by value, times chronologically. Rows that tie on
+/// every key keep their input order.
+fn sort(t: &Table, keys: &[(usize, bool)]) -> Table {
+    let mut rows: Vec<usize> = (0..row_count(t)).collect();
+    rows.sort_by(|&a, &b| {
+        for &(col, desc) in keys {
+            let (x, y) = (cell(t, col, a), cell(t, col, b));
+            let o = match (x, y) {
+                (Value::Missing, Value::Missing) => Ordering::Equal,
+                (Value::Missing, _) => Ordering::Greater,
+                (_, Value::Missing) => Ordering::Less,
+                _ => {
+                    let o = compare(x, y).unwrap_or(Ordering::Equal);
+                    if desc {
+                        o.reverse()
+                    } else {
+                        o
+                    }
+                }
+            };
+            if o != Ordering::Equal {
+                return o;
+            }
+        }
+        Ordering::Equal
+    });
+    take_rows(t, &rows)
+}
+
+/// Keep the `n` largest categories of column `key`, folding the rest.
+///
+/// * Categories are the distinct cells of `key` (a missing cell is a category
+///   of its own), ranked by the total of column `by` over their rows (compensated
+///   sum, missing cells skipped; a category whose `by` cells are all missing
+///   ranks below every other). Ties are broken by first appearance.
+/// * A category whose text already equals `rest` is never kept: it is part of
+///   the rest. If there are at most `n` other categories, the table is returned
+///   unchanged.
+/// * The rows of the kept categories stay as they are, in their order. Every
+///   other row gets `key = rest` (a text), and those rows are folded into one
+///   row per combination of the table's non-number columns (`key` included),
+///   in order of first appearance of the combination, summing every number
+///   column (`Missing` when all its cells in the combination are missing).
+///   The folded rows follow the kept rows.
+fn top(t: &Table, key: usize, by: usize, n: usize, rest: &str) -> Table {
+    let rows = row_count(t);
+    let is_rest = |v: &Value| matches!(v, Value::Text(s) if s == rest);
+    let cats = partition(t, &[key], (0..rows).filter(|&r| !is_rest(cell(t, key, r))));
+    if cats.len() <= n {
+        return t.clone();
+    }
+    let mut ranked: Vec<(usize, Option<f64>)> = cats
+        .iter()
+        .enumerate()
+        .map(|(i, rs)| (i, sum_of(rs.iter().map(|&r| cell(t, by, r))).total()))
+        .collect();
+    // Stable: equal totals keep first-appearance order.
+    ranked.sort_by(|a, b| match (a.1, b.1) {
+        (Some(x), Some(y)) => y.total_cmp(&x),
+        (Some(_), None) => Ordering::Less,
+        (None, Some(_)) => Ordering::Greater,
+        (None, None) => Ordering::Equal,
+    });
+    let mut kept_row = vec![false; rows];
+    for &(i, _) in ranked.iter().take(n) {
+        for &r in &cats[i] {
+            kept_row[r] = true;
+        }
+    }
+    let kept: Vec<usize> = (0..rows).filter(|&r| kept_row[r]).collect();
+    let mut out = take_rows(t, &kept);
+
+    // Fold the rest: relabel, then group by every non-number column.
+    let mut relabeled = take_rows(t, &(0..rows).filter(|&r| !kept_row[r]).collect::<Vec<_>>());
+    if let Some(c) = relabeled.columns.get_mut(key) {
+        for v in &mut c.values {
+            *v = Value::Text(rest.to_owned());
+        }
+    }
+    let dims: Vec<usize> = (0..relabeled.columns.len())
+        .filter(|&c| c == key || relabeled.columns[c].ty != ColType::Number)
+        .collect();
+    let folds = partition(&relabeled, &dims, 0..row_count(&relabeled));
+    for rs in &folds {
+        for (c, col) in out.columns.iter_mut().enumerate() {
+            let v = if dims.contains(&c) {
+                rs.first()
+                    .map_or(Value::Missing, |&r| cell(&relabeled, c, r).clone())
+            } else {
+                sum_of(rs.iter().map(|&r| cell(&relabeled, c, r)))
+                    .total()
+                    .map_or(Value::Missing, finite)
+            };
+            col.values.push(v);
+        }
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn num(x: f64) -> Value {
+        Value::Number(x)
+    }
+    fn text(s: &str) -> Value {
+        Value::Text(s.to_owned())
+    }
+    fn col(name: &str, ty: ColType, values: Vec<Value>) -> Column {
+        Column {
+            name: name.to_owned(),
+            ty,
+            values,
+        }
+    }
+    fn c(i: usize) -> Box<Expr> {
+        Box::new(Expr::Col(i))
+    }
+    fn lit(v: Value) -> Box<Expr> {
+        Box::new(Expr::Lit(v))
+    }
+    fn values(t: &Table, i: usize) -> Vec<Value> {
+        t.columns[i].values.clone()
+    }
+
+    /// region, month, riders (with a missing rider count), fare
+    fn sample() -> Table {
+        use Value::Missing as M;
+        Table {
+            columns: vec![
+                col(
+                    "region",
+                    ColType::Text,
+                    vec![
+                        text("N"),
+                        text("S"),
+                        text("N"),
+                        text("E"),
+                        text("S"),
+                        text("W"),
+                    ],
+                ),
+                col(
+                    "month",
+                    ColType::Month,
+                    (0..6).map(|i| Value::Month(24_288 + i % 2)).collect(),
+                ),
+                col(
+                    "riders",
+                    ColType::Number,
+                    vec![num(10.0), num(5.0), M, num(1.0), num(7.0), num(2.0)],
+                ),
+                col(
+                    "fare",
+                    ColType::Number,
+                    vec![num(1.0), M, num(3.0), num(4.0), num(5.0), num(6.0)],
+                ),
+            ],
+        }
+    }
+
+    #[test]
+    fn arithmetic_missing_and_division_by_zero() {
+        let t = sample();
+        let e = Expr::Arith(ArithOp::Div, c(2), c(3));
+        assert_eq!(eval(&t, 0, &e), num(10.0));
+        assert_eq!(eval(&t, 1, &e), Value::Missing); // fare missing
+        assert_eq!(eval(&t, 2, &e), Value::Missing); // riders missing
+        let zero = Expr::Arith(ArithOp::Div, c(2), lit(num(0.0)));
+        assert_eq!(eval(&t, 0, &zero), Value::Missing);
+        let neg = Expr::Neg(Box::new(Expr::Arith(ArithOp::Sub, c(2), c(3))));
+        assert_eq!(eval(&t, 3, &neg), num(3.0));
+        let mul = Expr::Arith(ArithOp::Mul, c(2), lit(num(2.0)));
+        assert_eq!(eval(&t, 4, &mul), num(14.0));
+        let add = Expr::Arith(ArithOp::Add, lit(Value::Year(2000)), lit(num(4.0)));
+        assert_eq!(eval(&t, 0, &add), num(2004.0));
+        let overflow = Expr::Arith(ArithOp::Mul, lit(num(1e308)), lit(num(10.0)));
+        assert_eq!(eval(&t, 0, &overflow), Value::Missing);
+    }
+
+    #[test]
+    fn comparisons_and_logic() {
+        let t = sample();
+        let gt = |v: f64| Expr::Cmp(CmpOp::Gt, c(2), lit(num(v)));
+        assert!(truth(&t, 0, &gt(5.0)));
+        assert!(!truth(&t, 1, &gt(5.0)));
+        // Missing operand: every comparison is false, even !=.
+        for op in [
+            CmpOp::Eq,
+            CmpOp::Ne,
+            CmpOp::Lt,
+            CmpOp::Le,
+            CmpOp::Gt,
+            CmpOp::Ge,
+        ] {
+            assert!(!truth(&t, 2, &Expr::Cmp(op, c(2), lit(num(1.0)))), "{op:?}");
+        }
+        // Not of a missing comparison is true (missing counts as false).
+        assert!(truth(&t, 2, &Expr::Not(Box::new(gt(5.0)))));
+        // Texts: byte order, exact equality.
+        assert!(truth(&t, 0, &Expr::Cmp(CmpOp::Lt, c(0), lit(text("S")))));
+        assert!(truth(
+            &t,
+            0,
+            &Expr::Cmp(CmpOp::Lt, lit(text("Z")), lit(text("a")))
+        ));
+        assert!(!truth(&t, 0, &Expr::Cmp(CmpOp::Eq, c(0), lit(text("n")))));
+        assert!(truth(&t, 0, &Expr::Cmp(CmpOp::Ne, c(0), lit(text("n")))));
+        // Time kinds compare chronologically.
+        assert!(truth(
+            &t,
+            1,
+            &Expr::Cmp(CmpOp::Ge, c(1), lit(Value::Month(24_289)))
+        ));
+        assert!(!truth(
+            &t,
+            0,
+            &Expr::Cmp(CmpOp::Ge, c(1), lit(Value::Month(24_289)))
+        ));
+        // Unrelated kinds are never equal.
+        assert!(!truth(&t, 0, &Expr::Cmp(CmpOp::Eq, c(0), lit(num(1.0)))));
+        assert!(truth(&t, 0, &Expr::Cmp(CmpOp::Ne, c(0), lit(num(1.0)))));
+        assert!(!truth(&t, 0, &Expr::Cmp(CmpOp::Lt, c(0), lit(num(1.0)))));
+        // And / Or with missing-as-false.
+        let and = Expr::And(Box::new(gt(0.0)), Box::new(gt(5.0)));
+        assert!(truth(&t, 0, &and));
+        assert!(!truth(&t, 2, &and));
+        let or = Expr::Or(Box::new(gt(50.0)), Box::new(Expr::Not(Box::new(gt(0.0)))));
+        assert!(truth(&t, 2, &or));
+        assert!(!truth(&t, 0, &or));
+        // In.
+        let inn = Expr::In(c(0), vec![text("N"), text("E")]);
+        let hits: Vec<bool> = (0..6).map(|r| truth(&t, r, &inn)).collect();
+        assert_eq!(hits, [true, false, true, true, false, false]);
+        assert!(!truth(&t, 2, &Expr::In(c(2), vec![Value::Missing])));
+        // A value used as a predicate is false, a predicate as a value missing.
+        assert!(!truth(&t, 0, &Expr::Col(2)));
+        assert_eq!(eval(&t, 0, &gt(1.0)), Value::Missing);
+    }
+
+    #[test]
+    fn keep_filters_in_order() {
+        let out = run_view(
+            &sample(),
+            &[Step::Keep(Expr::Cmp(CmpOp::Ge, c(2), lit(num(5.0))))],
+        );
+        assert_eq!(values(&out, 0), vec![text("N"), text("S"), text("S")]);
+        assert_eq!(out.columns.len(), 4);
+        assert_eq!(out.columns[1].ty, ColType::Month);
+        let none = run_view(
+            &out,
+            &[Step::Keep(Expr::Cmp(CmpOp::Gt, c(2), lit(num(99.0))))],
+        );
+        assert_eq!(row_count(&none), 0);
+        assert_eq!(none.columns.len(), 4);
+    }
+
+    #[test]
+    fn derive_appends_a_number_column() {
+        let out = run_view(
+            &sample(),
+            &[Step::Derive {
+                name: "per".into(),
+                expr: Expr::Arith(ArithOp::Mul, c(2), c(3)),
+            }],
+        );
+        let last = &out.columns[4];
+        assert_eq!((last.name.as_str(), last.ty), ("per", ColType::Number));
+        assert_eq!(
+            last.values,
+            vec![
+                num(10.0),
+                Value::Missing,
+                Value::Missing,
+                num(4.0),
+                num(35.0),
+                num(12.0)
+            ]
+        );
+    }
+
+    fn agg(name: &str, func: AggFn, column: Option<usize>) -> Aggregate {
+        Aggregate {
+            name: name.into(),
+            func,
+            column,
+        }
+    }
+
+    #[test]
+    fn group_aggregates_skip_missing_per_column() {
+        let steps = [Step::Group {
+            keys: vec![0],
+            aggregates: vec![
+                agg("rows", AggFn::Count, None),
+                agg("n", AggFn::Count, Some(2)),
+                agg("sum", AggFn::Sum, Some(2)),
+                agg("mean", AggFn::Mean, Some(2)),
+                agg("fare_mean", AggFn::Mean, Some(3)),
+                agg("median", AggFn::Median, Some(3)),
+                agg("min", AggFn::Min, Some(2)),
+                agg("max", AggFn::Max, Some(3)),
+                agg("first", AggFn::First, Some(2)),
+                agg("last", AggFn::Last, Some(2)),
+                agg("first_month", AggFn::First, Some(1)),
+            ],
+        }];
+        let out = run_view(&sample(), &steps);
+        use Value::Missing as M;
+        assert_eq!(
+            values(&out, 0),
+            vec![text("N"), text("S"), text("E"), text("W")]
+        );
+        assert_eq!(
+            values(&out, 1),
+            vec![num(2.0), num(2.0), num(1.0), num(1.0)]
+        );
+        assert_eq!(
+            values(&out, 2),
+            vec![num(1.0), num(2.0), num(1.0), num(1.0)]
+        );
+        assert_eq!(
+            values(&out, 3),
+            vec![num(10.0), num(12.0), num(1.0), num(2.0)]
+        );
+        assert_eq!(
+            values(&out, 4),
+            vec![num(10.0), num(6.0), num(1.0), num(2.0)]
+        );
+        // N: fares 1 and 3 (both rows count for fare, although riders is missing in one).
+        assert_eq!(
+            values(&out, 5),
+            vec![num(2.0), num(5.0), num(4.0), num(6.0)]
+        );
+        assert_eq!(
+            values(&out, 6),
+            vec![num(2.0), num(5.0), num(4.0), num(6.0)]
+        );
+        assert_eq!(
+            values(&out, 7),
+            vec![num(10.0), num(5.0), num(1.0), num(2.0)]
+        );
+        assert_eq!(
+            values(&out, 8),
+            vec![num(3.0), num(5.0), num(4.0), num(6.0)]
+        );
+        assert_eq!(
+            values(&out, 9),
+            vec![num(10.0), num(5.0), num(1.0), num(2.0)]
+        );
+        assert_eq!(
+            values(&out, 10),
+            vec![num(10.0), num(7.0), num(1.0), num(2.0)]
+        );
+        assert_eq!(values(&out, 11)[0], Value::Month(24_288));
+        assert_eq!(out.columns[11].ty, ColType::Month);
+        assert_eq!(out.columns[0].ty, ColType::Text);
+        assert_eq!(out.columns[7].ty, ColType::Number);
+        // A group with only missing cells gives missing, but count 0.
+        let only_missing = Table {
+            columns: vec![
+                col("k", ColType::Text, vec![text("a"), text("a")]),
+                col("x", ColType::Number, vec![M, M]),
+            ],
+        };
+        let out = run_view(
+            &only_missing,
+            &[Step::Group {
+                keys: vec![0],
+                aggregates: vec![
+                    agg("s", AggFn::Sum, Some(1)),
+                    agg("m", AggFn::Median, Some(1)),
+                    agg("lo", AggFn::Min, Some(1)),
+                    agg("f", AggFn::First, Some(1)),
+                    agg("n", AggFn::Count, Some(1)),
+                ],
+            }],
+        );
+        assert_eq!(
+            out.columns
+                .iter()
+                .map(|c| c.values[0].clone())
+                .collect::<Vec<_>>(),
+            vec![text("a"), M, M, M, M, num(0.0)]
+        );
+    }
+
+    #[test]
+    fn group_median_even_and_odd_and_text_extremes() {
+        let t = Table {
+            columns: vec![
+                col(
+                    "k",
+                    ColType::Text,
+                    vec![text("a"); 4]
+                        .into_iter()
+                        .chain(vec![text("b"); 3])
+                        .collect(),
+                ),
+                col(
+                    "x",
+                    ColType::Number,
+                    [4.0, 1.0, 3.0, 2.0, 9.0, -1.0, 5.0].map(num).to_vec(),
+                ),
+                col(
+                    "name",
+                    ColType::Text,
+                    ["b", "B", "ab", "a", "z", "Z", "é"].map(text).to_vec(),
+                ),
+            ],
+        };
+        let out = run_view(
+            &t,
+            &[Step::Group {
+                keys: vec![0],
+                aggregates: vec![
+                    agg("med", AggFn::Median, Some(1)),
+                    agg("lo", AggFn::Min, Some(2)),
+                    agg("hi", AggFn::Max, Some(2)),
+                ],
+            }],
+        );
+        assert_eq!(values(&out, 1), vec![num(2.5), num(5.0)]);
+        // Byte order: uppercase before lowercase, non-ASCII after ASCII.
+        assert_eq!(values(&out, 2), vec![text("B"), text("Z")]);
+        assert_eq!(values(&out, 3), vec![text("b"), text("é")]);
+        assert_eq!(out.columns[2].ty, ColType::Text);
+    }
+
+    #[test]
+    fn group_keys_in_first_appearance_with_missing_key() {
+        let t = Table {
+            columns: vec![
+                col(
+                    "a",
+                    ColType::Text,
+                    vec![
+                        text("x"),
+                        Value::Missing,
+                        text("x"),
+                        text("y"),
+                        Value::Missing,
+                    ],
+                ),
+                col(
+                    "b",
+                    ColType::Year,
+                    [2020, 2020, 2021, 2020, 2020].map(Value::Year).to_vec(),
+                ),
+                col(
+                    "v",
+                    ColType::Number,
+                    [1.0, 2.0, 3.0, 4.0, 5.0].map(num).to_vec(),
+                ),
+            ],
+        };
+        let out = run_view(
+            &t,
+            &[Step::Group {
+                keys: vec![0, 1],
+                aggregates: vec![agg("s", AggFn::Sum, Some(2))],
+            }],
+        );
+        assert_eq!(
+            values(&out, 0),
+            vec![text("x"), Value::Missing, text("x"), text("y")]
+        );
+        assert_eq!(
+            values(&out, 1),
+            [2020, 2020, 2021, 2020].map(Value::Year).to_vec()
+        );
+        assert_eq!(values(&out, 2), [1.0, 7.0, 3.0, 4.0].map(num).to_vec());
+        assert_eq!(out.columns[1].ty, ColType::Year);
+        assert_eq!(out.columns[1].name, "b");
+    }
+
+    #[test]
+    fn group_on_empty_input_and_without_keys() {
+        let empty = Table {
+            columns: vec![
+                col("k", ColType::Text, vec![]),
+                col("x", ColType::Number, vec![]),
+            ],
+        };
+        let by_key = run_view(
+            &empty,
+            &[Step::Group {
+                keys: vec![0],
+                aggregates: vec![agg("n", AggFn::Count, None)],
+            }],
+        );
+        assert_eq!(by_key.columns.len(), 2);
+        assert_eq!(row_count(&by_key), 0);
+        let total = run_view(
+            &empty,
+            &[Step::Group {
+                keys: vec![],
+                aggregates: vec![agg("n", AggFn::Count, None), agg("s", AggFn::Sum, Some(1))],
+            }],
+        );
+        assert_eq!(values(&total, 0), vec![num(0.0)]);
+        assert_eq!(values(&total, 1), vec![Value::Missing]);
+        let all = run_view(
+            &sample(),
+            &[Step::Group {
+                keys: vec![],
+                aggregates: vec![agg("s", AggFn::Sum, Some(2))],
+            }],
+        );
+        assert_eq!(values(&all, 0), vec![num(25.0)]);
+    }
+
+    #[test]
+    fn compensated_sum_is_order_stable() {
+        // Naive left-to-right summation gives 0 for [1e16, 1, -1e16] and 2 for
+        // [1, 1e16, 1, -1e16]-style inputs; Neumaier recovers the exact 1 and 2.
+        let mut s = Sum::default();
+        for x in [1e16, 1.0, -1e16] {
+            s.add(x);
+        }
+        assert_eq!(s.total(), Some(1.0));
+        let mut a = Sum::default();
+        let mut b = Sum::default();
+        let xs = [0.1, 0.2, 0.3, 1e10, -1e10, 0.4];
+        for x in xs {
+            a.add(x);
+        }
+        for x in xs.iter().rev() {
+            b.add(*x);
+        }
+        assert_eq!(a.total(), b.total());
+        assert_eq!(Sum::default().total(), None);
+    }
+
+    #[test]
+    fn sort_is_stable_with_missing_last_both_ways() {
+        let t = sample();
+        let asc = run_view(
+            &t,
+            &[Step::Sort {
+                keys: vec![(2, false)],
+            }],
+        );
+        assert_eq!(
+            values(&asc, 2),
+            vec![
+                num(1.0),
+                num(2.0),
+                num(5.0),
+                num(7.0),
+                num(10.0),
+                Value::Missing
+            ]
+        );
+        let desc = run_view(
+            &t,
+            &[Step::Sort {
+                keys: vec![(2, true)],
+            }],
+        );
+        assert_eq!(
+            values(&desc, 2),
+            vec![
+                num(10.0),
+                num(7.0),
+                num(5.0),
+                num(2.0),
+                num(1.0),
+                Value::Missing
+            ]
+        );
+        // Two keys: region ascending (byte order), then riders descending;
+        // rows keep their other cells.
+        let two = run_view(
+            &t,
+            &[Step::Sort {
+                keys: vec![(0, false), (2, true)],
+            }],
+        );
+        assert_eq!(
+            values(&two, 0),
+            ["E", "N", "N", "S", "S", "W"].map(text).to_vec()
+        );
+        assert_eq!(
+            values(&two, 2),
+            vec![
+                num(1.0),
+                num(10.0),
+                Value::Missing,
+                num(7.0),
+                num(5.0),
+                num(2.0)
+            ]
+        );
+        assert_eq!(values(&two, 3)[4], Value::Missing); // S,5 has missing fare
+                                                        // Stability: ties keep input order.
+        let by_month = run_view(
+            &t,
+            &[Step::Sort {
+                keys: vec![(1, true)],
+            }],
+        );
+        assert_eq!(
+            values(&by_month, 0),
+            ["S", "E", "W", "N", "N", "S"].map(text).to_vec()
+        );
+        let empty = run_view(
+            &Table::default(),
+            &[Step::Sort {
+                keys: vec![(0, false)],
+            }],
+        );
+        assert_eq!(empty, Table::default());
+    }
+
+    #[test]
+    fn top_keeps_largest_and_folds_rest() {
+        // Totals of riders: N 10, S 12, E 1, W 2.
+        let out = run_view(
+            &sample(),
+            &[Step::Top {
+                key: 0,
+                by: 2,
+                n: 2,
+                rest: "Other".into(),
+            }],
+        );
+        // Kept rows (N, S) in original order, then the folded rest: E and W
+        // share a month, so they fold into one row.
+        assert_eq!(
+            values(&out, 0),
+            ["N", "S", "N", "S", "Other"].map(text).to_vec()
+        );
+        assert_eq!(
+            values(&out, 1),
+            [24_288, 24_289, 24_288, 24_288, 24_289]
+                .map(Value::Month)
+                .to_vec()
+        );
+        assert_eq!(values(&out, 2)[4], num(3.0));
+        assert_eq!(values(&out, 3)[4], num(10.0));
+        assert_eq!(values(&out, 2)[1], num(5.0));
+        assert_eq!(values(&out, 2)[2], Value::Missing);
+
+        // With W in the other month, the rest folds into one row per month,
+        // in order of first appearance of the combination.
+        let mut t = sample();
+        t.columns[1].values[5] = Value::Month(24_288);
+        let out = run_view(
+            &t,
+            &[Step::Top {
+                key: 0,
+                by: 2,
+                n: 2,
+                rest: "Other".into(),
+            }],
+        );
+        assert_eq!(values(&out, 0)[4..], [text("Other"), text("Other")]);
+        assert_eq!(
+            values(&out, 1)[4..],
+            [Value::Month(24_289), Value::Month(24_288)]
+        );
+        assert_eq!(values(&out, 2)[4..], [num(1.0), num(2.0)]);
+        assert_eq!(values(&out, 3)[4..], [num(4.0), num(6.0)]);
+    }
+
+    #[test]
+    fn top_ties_by_first_appearance_and_folds_all_missing() {
+        use Value::Missing as M;
+        let t = Table {
+            columns: vec![
+                col(
+                    "k",
+                    ColType::Text,
+                    ["a", "b", "c", "d", "c"].map(text).to_vec(),
+                ),
+                col(
+                    "v",
+                    ColType::Number,
+                    vec![num(5.0), num(5.0), num(2.0), M, num(3.0)],
+                ),
+                col("w", ColType::Number, vec![M, M, M, M, M]),
+            ],
+        };
+        // a and b tie at 5 with c; a comes first, so a is kept with n = 1.
+        let out = run_view(
+            &t,
+            &[Step::Top {
+                key: 0,
+                by: 1,
+                n: 1,
+                rest: "rest".into(),
+            }],
+        );
+        assert_eq!(values(&out, 0), vec![text("a"), text("rest")]);
+        assert_eq!(values(&out, 1), vec![num(5.0), num(10.0)]);
+        assert_eq!(values(&out, 2), vec![M, M]);
+        // n = 3: c (5) ties a and b, d (all missing) ranks last.
+        let out = run_view(
+            &t,
+            &[Step::Top {
+                key: 0,
+                by: 1,
+                n: 3,
+                rest: "rest".into(),
+            }],
+        );
+        assert_eq!(
+            values(&out, 0),
+            ["a", "b", "c", "c", "rest"].map(text).to_vec()
+        );
+        assert_eq!(values(&out, 1)[4], M);
+        // <= n categories: unchanged, including an empty table.
+        let same = run_view(
+            &t,
+            &[Step::Top {
+                key: 0,
+                by: 1,
+                n: 4,
+                rest: "rest".into(),
+            }],
+        );
+        assert_eq!(same, t);
+        let empty = Table {
+            columns: vec![
+                col("k", ColType::Text, vec![]),
+                col("v", ColType::Number, vec![]),
+            ],
+        };
+        assert_eq!(
+            run_view(
+                &empty,
+                &[Step::Top {
+                    key: 0,
+                    by: 1,
+                    n: 0,
+                    rest: "r".into()
+                }]
+            ),
+            empty
+        );
+    }
+
+    #[test]
+    fn top_existing_rest_category_is_folded_in() {
+        let t = Table {
+            columns: vec![
+                col(
+                    "k",
+                    ColType::Text,
+                    ["Other", "a", "b", "c"].map(text).to_vec(),
+                ),
+                col(
+                    "v",
+                    ColType::Number,
+                    [100.0, 3.0, 2.0, 1.0].map(num).to_vec(),
+                ),
+            ],
+        };
+        let out = run_view(
+            &t,
+            &[Step::Top {
+                key: 0,
+                by: 1,
+                n: 2,
+                rest: "Other".into(),
+            }],
+        );
+        assert_eq!(values(&out, 0), ["a", "b", "Other"].map(text).to_vec());
+        assert_eq!(values(&out, 1), [3.0, 2.0, 101.0].map(num).to_vec());
+    }
+
+    #[test]
+    fn steps_chain_in_order() {
+        let out = run_view(
+            &sample(),
+            &[
+                Step::Keep(Expr::Not(Box::new(Expr::In(c(0), vec![text("W")])))),
+                Step::Group {
+                    keys: vec![0],
+                    aggregates: vec![agg("riders", AggFn::Sum, Some(2))],
+                },
+                Step::Derive {
+                    name: "double".into(),
+                    expr: Expr::Arith(ArithOp::Mul, c(1), lit(num(2.0))),
+                },
+                Step::Sort {
+                    keys: vec![(2, true)],
+                },
+            ],
+        );
+        assert_eq!(values(&out, 0), ["S", "N", "E"].map(text).to_vec());
+        assert_eq!(values(&out, 2), [24.0, 20.0, 2.0].map(num).to_vec());
+        assert_eq!(run_view(&sample(), &[]), sample());
+    }
+}

@@ -49,7 +49,11 @@ impl Source {
     }
 
     /// An excerpt of a file that starts on line `first_line` (1-based).
-    pub fn excerpt(name: impl Into<String>, text: impl Into<String>, first_line: usize) -> Arc<Source> {
+    pub fn excerpt(
+        name: impl Into<String>,
+        text: impl Into<String>,
+        first_line: usize,
+    ) -> Arc<Source> {
         Arc::new(Source {
             name: name.into(),
             text: text.into(),
@@ -128,7 +132,12 @@ impl Diagnostic {
     }
 
     /// Point the diagnostic at `span` in `source`.
-    pub fn at(mut self, source: &Arc<Source>, span: Range<usize>, label: impl Into<String>) -> Self {
+    pub fn at(
+        mut self,
+        source: &Arc<Source>,
+        span: Range<usize>,
+        label: impl Into<String>,
+    ) -> Self {
         self.primary = Some(Located {
             source: Arc::clone(source),
             span,
@@ -138,7 +147,12 @@ impl Diagnostic {
     }
 
     /// Add a secondary location (for example, where a name was declared).
-    pub fn also(mut self, source: &Arc<Source>, span: Range<usize>, label: impl Into<String>) -> Self {
+    pub fn also(
+        mut self,
+        source: &Arc<Source>,
+        span: Range<usize>,
+        label: impl Into<String>,
+    ) -> Self {
         self.secondary.push(Located {
             source: Arc::clone(source),
             span,
@@ -189,7 +203,11 @@ struct SourceSet {
 
 impl SourceSet {
     fn id_of(&mut self, s: &Arc<Source>) -> usize {
-        if let Some(i) = self.sources.iter().position(|x| Arc::ptr_eq(x, s) || **x == **s) {
+        if let Some(i) = self
+            .sources
+            .iter()
+            .position(|x| Arc::ptr_eq(x, s) || **x == **s)
+        {
             return i;
         }
         self.starts.push(s.line_starts());
@@ -267,11 +285,15 @@ pub fn render(diags: &[Diagnostic], color: bool) -> String {
         let mut labels = Vec::new();
         if let Some(p) = &d.primary {
             let id = set.id_of(&p.source);
-            labels.push(cs::Label::primary(id, clamp_span(&p.source, &p.span)).with_message(&p.label));
+            labels.push(
+                cs::Label::primary(id, clamp_span(&p.source, &p.span)).with_message(&p.label),
+            );
         }
         for s in &d.secondary {
             let id = set.id_of(&s.source);
-            labels.push(cs::Label::secondary(id, clamp_span(&s.source, &s.span)).with_message(&s.label));
+            labels.push(
+                cs::Label::secondary(id, clamp_span(&s.source, &s.span)).with_message(&s.label),
+            );
         }
         let mut notes = d.notes.clone();
         if let Some(h) = &d.help {
@@ -290,7 +312,8 @@ pub fn render(diags: &[Diagnostic], color: bool) -> String {
         // Writing into an in-memory buffer only fails on a bad span, which
         // `clamp_span` rules out; fall back to the bare message regardless.
         if term::emit_to_write_style(&mut buf, &config, &set, cd).is_err() {
-            let _ = std::io::Write::write_all(&mut buf, format!("error: {}\n", cd.message).as_bytes());
+            let _ =
+                std::io::Write::write_all(&mut buf, format!("error: {}\n", cd.message).as_bytes());
         }
     }
     String::from_utf8_lossy(buf.as_slice()).into_owned()

@@ -92,11 +92,32 @@ pub struct ViewDecl {
 /// One view step.
 #[derive(Clone, Debug, PartialEq)]
 pub enum StepAst {
-    Keep { expr: Expr, span: Span },
-    By { keys: Vec<Ident>, aggregates: Vec<AggregateAst>, span: Span },
-    Add { name: Ident, expr: Expr, span: Span },
-    Sort { keys: Vec<SortKey>, span: Span },
-    Top { n: u64, n_span: Span, key: Ident, by: Ident, rest: Option<Str>, span: Span },
+    Keep {
+        expr: Expr,
+        span: Span,
+    },
+    By {
+        keys: Vec<Ident>,
+        aggregates: Vec<AggregateAst>,
+        span: Span,
+    },
+    Add {
+        name: Ident,
+        expr: Expr,
+        span: Span,
+    },
+    Sort {
+        keys: Vec<SortKey>,
+        span: Span,
+    },
+    Top {
+        n: u64,
+        n_span: Span,
+        key: Ident,
+        by: Ident,
+        rest: Option<Str>,
+        span: Span,
+    },
 }
 
 impl StepAst {
@@ -168,13 +189,32 @@ impl BinOp {
 #[derive(Clone, Debug, PartialEq)]
 pub enum Expr {
     Column(Ident),
-    Number { value: f64, span: Span },
+    Number {
+        value: f64,
+        span: Span,
+    },
     Text(Str),
-    Neg { expr: Box<Expr>, span: Span },
-    Not { expr: Box<Expr>, span: Span },
-    Binary { op: BinOp, left: Box<Expr>, right: Box<Expr>, span: Span },
+    Neg {
+        expr: Box<Expr>,
+        span: Span,
+    },
+    Not {
+        expr: Box<Expr>,
+        span: Span,
+    },
+    Binary {
+        op: BinOp,
+        left: Box<Expr>,
+        right: Box<Expr>,
+        span: Span,
+    },
     /// `expr [not] in (literals)`; the list holds only `Number` and `Text`.
-    In { expr: Box<Expr>, list: Vec<Expr>, negated: bool, span: Span },
+    In {
+        expr: Box<Expr>,
+        list: Vec<Expr>,
+        negated: bool,
+        span: Span,
+    },
 }
 
 impl Expr {
@@ -275,10 +315,29 @@ pub enum Targets {
 #[derive(Clone, Debug, PartialEq)]
 pub enum FrameStmt {
     Chart(ChartStmt),
-    AxisTitle { axis: AxisName, text: Str, span: Span },
-    Show { targets: Targets, span: Span },
-    Hide { targets: Targets, span: Span },
-    Spotlight { targets: Targets, span: Span },
-    Takeaway { text: Str, span: Span },
-    Notes { text: Str, span: Span },
+    AxisTitle {
+        axis: AxisName,
+        text: Str,
+        span: Span,
+    },
+    Show {
+        targets: Targets,
+        span: Span,
+    },
+    Hide {
+        targets: Targets,
+        span: Span,
+    },
+    Spotlight {
+        targets: Targets,
+        span: Span,
+    },
+    Takeaway {
+        text: Str,
+        span: Span,
+    },
+    Notes {
+        text: Str,
+        span: Span,
+    },
 }

@@ -58,7 +58,21 @@ pub fn parse(source: &Arc<Source>) -> (StoryAst, Vec<Diagnostic>) {
                     InputLocation::Span((s, _)) => s,
                 };
                 let at = pull_back_to_previous_token(rest, at);
-                diags.push(syntax_error(source, pos, at, &err.variant));
+                let lead = leading_trivia(rest);
+                let diag = match StoryParser::parse(Rule::lone_step, &rest[lead..]) {
+                    // A view step that starts a line but does not parse:
+                    // explain the step, not the missing item keyword.
+                    Err(step_err) if at == lead && rest[lead..].starts_with('|') => {
+                        let sat = match step_err.location {
+                            InputLocation::Pos(p) => p,
+                            InputLocation::Span((s, _)) => s,
+                        };
+                        let sat = pull_back_to_previous_token(&rest[lead..], sat);
+                        syntax_error(source, pos + lead, sat, &step_err.variant)
+                    }
+                    _ => syntax_error(source, pos, at, &err.variant),
+                };
+                diags.push(diag);
                 pos = next_item_start(text, pos, pos + at);
             }
         }
@@ -86,7 +100,10 @@ fn next_item_start(text: &str, item_start: usize, error: usize) -> usize {
         .and_then(|s| text[s..].find('\n').map(|nl| s + nl + 1))
         .unwrap_or(text.len());
     let error = error.min(text.len());
-    let mut i = text[..error].rfind('\n').map_or(0, |nl| nl + 1).max(first_line_end);
+    let mut i = text[..error]
+        .rfind('\n')
+        .map_or(0, |nl| nl + 1)
+        .max(first_line_end);
     while i < text.len() {
         if starts_item(&text[i..]) {
             return i;
@@ -105,7 +122,9 @@ fn next_item_start(text: &str, item_start: usize, error: usize) -> usize {
 fn pull_back_to_previous_token(text: &str, at: usize) -> usize {
     let before = &text[..at.min(text.len())];
     let trimmed = before.trim_end();
-    if before[trimmed.len()..].contains('\n') && !trimmed.is_empty() {
+    let after = &text[at.min(text.len())..];
+    let item_cut_short = after.is_empty() || TOP_KEYWORDS.iter().any(|k| after.starts_with(k));
+    if item_cut_short && before[trimmed.len()..].contains('\n') && !trimmed.is_empty() {
         // skip back over a trailing comment on that line
         let line_start = trimmed.rfind('\n').map_or(0, |i| i + 1);
         let line = &trimmed[line_start..];
@@ -148,8 +167,16 @@ fn describe(rule: Rule) -> Option<String> {
             Rule::cmp_op => "a comparison",
             Rule::add_op | Rule::mul_op => "an operator",
             Rule::EOI => "the end of the file",
+            Rule::eq => "`=`",
+            Rule::colon => "`:`",
+            Rule::open_brace => "`{`",
+            Rule::close_brace => "`}`",
+            Rule::open_paren => "`(`",
+            Rule::close_paren => "`)`",
             Rule::targets => "`all`, `none`, `focus` or quoted names",
-            Rule::chart_opt | Rule::opt_name => "a chart option (x, y, series, category, value, ordered)",
+            Rule::chart_opt | Rule::opt_name => {
+                "a chart option (x, y, series, category, value, ordered)"
+            }
             _ => return None,
         }
         .to_string(),
@@ -174,7 +201,12 @@ fn keywords_of(rule: Rule) -> Vec<String> {
     words.iter().map(|w| w.to_string()).collect()
 }
 
-fn syntax_error(source: &Arc<Source>, base: usize, at: usize, variant: &ErrorVariant<Rule>) -> Diagnostic {
+fn syntax_error(
+    source: &Arc<Source>,
+    base: usize,
+    at: usize,
+    variant: &ErrorVariant<Rule>,
+) -> Diagnostic {
     let text = &source.text[base..];
     let word: String = text[at..]
         .chars()
@@ -220,17 +252,24 @@ fn syntax_error(source: &Arc<Source>, base: usize, at: usize, variant: &ErrorVar
         _ => format!("one of {}, ...", expected[..8].join(", ")),
     };
     let is_unknown_word = !word.is_empty() && !keywords.is_empty() && !keywords.contains(&word);
-    let (code, message) = if is_unknown_word && word.chars().next().is_some_and(|c| c.is_ascii_alphabetic()) {
-        ("unknown-keyword", format!("unknown keyword `{word}`: expected {expected_text}"))
-    } else {
-        ("syntax", format!("expected {expected_text}, found {found}"))
-    };
+    let (code, message) =
+        if is_unknown_word && word.chars().next().is_some_and(|c| c.is_ascii_alphabetic()) {
+            (
+                "unknown-keyword",
+                format!("unknown keyword `{word}`: expected {expected_text}"),
+            )
+        } else {
+            ("syntax", format!("expected {expected_text}, found {found}"))
+        };
     let start = base + at;
     let at_line_end = found == "the end of the line" || found == "the end of the file";
     let end = if at_line_end {
         start
     } else {
-        start + word.len().max(text[at..].chars().next().map_or(0, char::len_utf8))
+        start
+            + word
+                .len()
+                .max(text[at..].chars().next().map_or(0, char::len_utf8))
     };
     let mut d = Diagnostic::error(code, message).at(source, start..end, "not expected here");
     if is_unknown_word {
@@ -273,6 +312,24 @@ impl ConvertError {
 
 type Res<T> = Result<T, ConvertError>;
 
+/// Punctuation tokens: named rules only so errors can say what was expected.
+fn is_punct(rule: Rule) -> bool {
+    matches!(
+        rule,
+        Rule::eq
+            | Rule::colon
+            | Rule::open_brace
+            | Rule::close_brace
+            | Rule::open_paren
+            | Rule::close_paren
+    )
+}
+
+/// The meaningful children of a pair (punctuation left out).
+fn children(pair: Pair<Rule>) -> impl Iterator<Item = Pair<Rule>> {
+    pair.into_inner().filter(|p| !is_punct(p.as_rule()))
+}
+
 fn span_of(pair: &Pair<Rule>, base: usize) -> Span {
     let s = pair.as_span();
     base + s.start()..base + s.end()
@@ -287,7 +344,7 @@ fn ident(pair: Pair<Rule>, base: usize) -> Ident {
 
 fn string(pair: Pair<Rule>, base: usize) -> Str {
     let span = span_of(&pair, base);
-    let raw = pair.into_inner().next().map(|p| p.as_str()).unwrap_or("");
+    let raw = children(pair).next().map(|p| p.as_str()).unwrap_or("");
     let mut value = String::with_capacity(raw.len());
     let mut chars = raw.chars();
     while let Some(c) = chars.next() {
@@ -308,7 +365,7 @@ fn string(pair: Pair<Rule>, base: usize) -> Str {
 fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
     let span = span_of(&pair, base);
     let rule = pair.as_rule();
-    let mut inner: Vec<Pair<Rule>> = pair.into_inner().collect();
+    let mut inner: Vec<Pair<Rule>> = children(pair).collect();
     let text_item = |inner: &mut Vec<Pair<Rule>>, span: Span| -> TextItem {
         let s = inner.pop().map(|p| string(p, base)).unwrap_or(Str {
             value: String::new(),
@@ -336,16 +393,16 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
                 match p.as_rule() {
                     Rule::missing_clause => {
                         missing = Some(
-                            p.into_inner()
+                            children(p)
                                 .filter(|q| q.as_rule() == Rule::string)
                                 .map(|q| string(q, base))
                                 .collect(),
                         )
                     }
                     Rule::column_block => {
-                        for c in p.into_inner() {
+                        for c in children(p) {
                             let cspan = span_of(&c, base);
-                            let mut ci = c.into_inner();
+                            let mut ci = children(c);
                             let (Some(n), Some(t)) = (ci.next(), ci.next()) else {
                                 return Err(internal(&cspan));
                             };
@@ -395,7 +452,9 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
         Rule::frame_item => {
             let mut it = inner.into_iter().skip(1);
             let headline = string(it.next().ok_or_else(|| internal(&span))?, base);
-            let stmts = it.map(|p| convert_frame_stmt(p, base)).collect::<Res<Vec<_>>>()?;
+            let stmts = it
+                .map(|p| convert_frame_stmt(p, base))
+                .collect::<Res<Vec<_>>>()?;
             Item::Frame(FrameDecl {
                 headline,
                 stmts,
@@ -409,14 +468,16 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
 fn internal(span: &Span) -> ConvertError {
     ConvertError {
         span: span.clone(),
-        message: "the parser could not read this item (an internal inconsistency; please report it)".into(),
+        message:
+            "the parser could not read this item (an internal inconsistency; please report it)"
+                .into(),
     }
 }
 
 fn convert_step(pair: Pair<Rule>, base: usize) -> Res<StepAst> {
     let span = span_of(&pair, base);
     let rule = pair.as_rule();
-    let inner: Vec<Pair<Rule>> = pair.into_inner().collect();
+    let inner: Vec<Pair<Rule>> = children(pair).collect();
     Ok(match rule {
         Rule::keep_step => StepAst::Keep {
             expr: convert_expr(inner[1].clone(), base)?,
@@ -430,7 +491,7 @@ fn convert_step(pair: Pair<Rule>, base: usize) -> Res<StepAst> {
                     Rule::ident => keys.push(ident(p, base)),
                     Rule::aggregate => {
                         let aspan = span_of(&p, base);
-                        let mut a = p.into_inner();
+                        let mut a = children(p);
                         let (Some(n), Some(f)) = (a.next(), a.next()) else {
                             return Err(internal(&aspan));
                         };
@@ -461,7 +522,7 @@ fn convert_step(pair: Pair<Rule>, base: usize) -> Res<StepAst> {
                 .skip(1)
                 .map(|k| {
                     let kspan = span_of(&k, base);
-                    let mut ki = k.into_inner();
+                    let mut ki = children(k);
                     let column = ki.next().map(|c| ident(c, base));
                     let descending = ki.next().is_some_and(|d| d.as_str() == "descending");
                     column
@@ -498,10 +559,15 @@ fn convert_step(pair: Pair<Rule>, base: usize) -> Res<StepAst> {
 fn convert_expr(pair: Pair<Rule>, base: usize) -> Res<Expr> {
     let span = span_of(&pair, base);
     match pair.as_rule() {
-        Rule::expr => convert_expr(pair.into_inner().next().ok_or_else(|| internal(&span))?, base),
+        Rule::expr => convert_expr(children(pair).next().ok_or_else(|| internal(&span))?, base),
         Rule::or_expr | Rule::and_expr => {
-            let op = if pair.as_rule() == Rule::or_expr { BinOp::Or } else { BinOp::And };
-            let mut it = pair.into_inner().filter(|p| !matches!(p.as_rule(), Rule::kw_and | Rule::kw_or));
+            let op = if pair.as_rule() == Rule::or_expr {
+                BinOp::Or
+            } else {
+                BinOp::And
+            };
+            let mut it =
+                children(pair).filter(|p| !matches!(p.as_rule(), Rule::kw_and | Rule::kw_or));
             let mut left = convert_expr(it.next().ok_or_else(|| internal(&span))?, base)?;
             for p in it {
                 let right = convert_expr(p, base)?;
@@ -515,21 +581,23 @@ fn convert_expr(pair: Pair<Rule>, base: usize) -> Res<Expr> {
             }
             Ok(left)
         }
-        Rule::not_expr => convert_expr(pair.into_inner().next().ok_or_else(|| internal(&span))?, base),
+        Rule::not_expr => convert_expr(children(pair).next().ok_or_else(|| internal(&span))?, base),
         Rule::negation => {
-            let operand = pair.into_inner().nth(1).ok_or_else(|| internal(&span))?;
+            let operand = children(pair).nth(1).ok_or_else(|| internal(&span))?;
             Ok(Expr::Not {
                 expr: Box::new(convert_expr(operand, base)?),
                 span,
             })
         }
         Rule::compare_expr => {
-            let mut it = pair.into_inner();
+            let mut it = children(pair);
             let left = convert_expr(it.next().ok_or_else(|| internal(&span))?, base)?;
-            let Some(tail) = it.next() else { return Ok(left) };
+            let Some(tail) = it.next() else {
+                return Ok(left);
+            };
             match tail.as_rule() {
                 Rule::cmp_tail => {
-                    let mut t = tail.into_inner();
+                    let mut t = children(tail);
                     let op = match t.next().map(|p| p.as_str()) {
                         Some("=") | Some("==") => BinOp::Eq,
                         Some("!=") => BinOp::Ne,
@@ -550,7 +618,7 @@ fn convert_expr(pair: Pair<Rule>, base: usize) -> Res<Expr> {
                 Rule::in_tail => {
                     let mut negated = false;
                     let mut list = Vec::new();
-                    for p in tail.into_inner() {
+                    for p in children(tail) {
                         match p.as_rule() {
                             Rule::kw_not => negated = true,
                             Rule::kw_in => {}
@@ -568,7 +636,7 @@ fn convert_expr(pair: Pair<Rule>, base: usize) -> Res<Expr> {
             }
         }
         Rule::sum_expr | Rule::product => {
-            let mut it = pair.into_inner();
+            let mut it = children(pair);
             let mut left = convert_expr(it.next().ok_or_else(|| internal(&span))?, base)?;
             while let (Some(op), Some(r)) = (it.next(), it.next()) {
                 let op = match op.as_str() {
@@ -589,8 +657,11 @@ fn convert_expr(pair: Pair<Rule>, base: usize) -> Res<Expr> {
             Ok(left)
         }
         Rule::unary => {
-            let parts: Vec<Pair<Rule>> = pair.into_inner().collect();
-            let negs = parts.iter().filter(|p| p.as_rule() == Rule::neg_sign).count();
+            let parts: Vec<Pair<Rule>> = children(pair).collect();
+            let negs = parts
+                .iter()
+                .filter(|p| p.as_rule() == Rule::neg_sign)
+                .count();
             let atom = parts.into_iter().last().ok_or_else(|| internal(&span))?;
             let mut e = convert_expr(atom, base)?;
             for _ in 0..negs {
@@ -622,19 +693,19 @@ fn convert_expr(pair: Pair<Rule>, base: usize) -> Res<Expr> {
 
 fn targets(pair: Pair<Rule>, base: usize) -> Targets {
     let span = span_of(&pair, base);
-    let first = pair.clone().into_inner().next();
+    let first = children(pair.clone()).next();
     match first.as_ref().map(|p| p.as_rule()) {
         Some(Rule::kw_all) => Targets::All(span),
         Some(Rule::kw_none) => Targets::None(span),
         Some(Rule::kw_focus) => Targets::Focus(span),
-        _ => Targets::Names(pair.into_inner().map(|p| string(p, base)).collect()),
+        _ => Targets::Names(children(pair).map(|p| string(p, base)).collect()),
     }
 }
 
 fn convert_frame_stmt(pair: Pair<Rule>, base: usize) -> Res<FrameStmt> {
     let span = span_of(&pair, base);
     let rule = pair.as_rule();
-    let inner: Vec<Pair<Rule>> = pair.into_inner().collect();
+    let inner: Vec<Pair<Rule>> = children(pair).collect();
     let last_string = |inner: &[Pair<Rule>]| {
         inner
             .iter()
@@ -646,12 +717,16 @@ fn convert_frame_stmt(pair: Pair<Rule>, base: usize) -> Res<FrameStmt> {
     };
     Ok(match rule {
         Rule::chart_stmt => {
-            let form = if inner[0].as_str() == "line" { ChartForm::Line } else { ChartForm::Bars };
+            let form = if inner[0].as_str() == "line" {
+                ChartForm::Line
+            } else {
+                ChartForm::Bars
+            };
             let view = ident(inner[1].clone(), base);
             let mut opts = Vec::new();
             for o in inner.into_iter().skip(2) {
                 let ospan = span_of(&o, base);
-                let mut oi = o.into_inner();
+                let mut oi = children(o);
                 let name = match oi.next().map(|p| p.as_str().to_string()).as_deref() {
                     Some("x") => OptName::X,
                     Some("y") => OptName::Y,
@@ -667,10 +742,19 @@ fn convert_frame_stmt(pair: Pair<Rule>, base: usize) -> Res<FrameStmt> {
                     span: ospan,
                 });
             }
-            FrameStmt::Chart(ChartStmt { form, view, opts, span })
+            FrameStmt::Chart(ChartStmt {
+                form,
+                view,
+                opts,
+                span,
+            })
         }
         Rule::axis_title_stmt => FrameStmt::AxisTitle {
-            axis: if inner[0].as_str() == "x" { AxisName::X } else { AxisName::Y },
+            axis: if inner[0].as_str() == "x" {
+                AxisName::X
+            } else {
+                AxisName::Y
+            },
             text: last_string(&inner)?,
             span,
         },
@@ -744,23 +828,48 @@ frame "Bars" { bars monthly: category route, value riders, ordered }
         let (ast, diags) = parse_str(GOOD);
         assert!(diags.is_empty(), "{diags:?}");
         assert_eq!(ast.items.len(), 12);
-        let Item::Title(t) = &ast.items[0] else { panic!() };
+        let Item::Title(t) = &ast.items[0] else {
+            panic!()
+        };
         assert_eq!(t.text.value, "Ferries: the \"Loop\" grows");
-        let Item::Data(d) = &ast.items[4] else { panic!() };
+        let Item::Data(d) = &ast.items[4] else {
+            panic!()
+        };
         assert_eq!(d.columns.len(), 3);
         assert_eq!(d.missing.as_ref().map(Vec::len), Some(2));
         assert_eq!(&GOOD[d.columns[2].name.span.clone()], "riders");
-        let Item::View(v) = &ast.items[5] else { panic!() };
+        let Item::View(v) = &ast.items[5] else {
+            panic!()
+        };
         assert_eq!(v.steps.len(), 5);
-        let StepAst::Top { n, key, by, rest, .. } = &v.steps[4] else { panic!() };
-        assert_eq!((*n, key.name.as_str(), by.name.as_str()), (3, "route", "riders"));
-        assert_eq!(rest.as_ref().map(|r| r.value.as_str()), Some("Other routes"));
-        let Item::Frame(f) = &ast.items[9] else { panic!() };
+        let StepAst::Top {
+            n, key, by, rest, ..
+        } = &v.steps[4]
+        else {
+            panic!()
+        };
+        assert_eq!(
+            (*n, key.name.as_str(), by.name.as_str()),
+            (3, "route", "riders")
+        );
+        assert_eq!(
+            rest.as_ref().map(|r| r.value.as_str()),
+            Some("Other routes")
+        );
+        let Item::Frame(f) = &ast.items[9] else {
+            panic!()
+        };
         assert_eq!(f.stmts.len(), 4);
-        let FrameStmt::Chart(c) = &f.stmts[0] else { panic!() };
+        let FrameStmt::Chart(c) = &f.stmts[0] else {
+            panic!()
+        };
         assert_eq!(c.opts.len(), 3);
-        let Item::Frame(f3) = &ast.items[11] else { panic!() };
-        let FrameStmt::Chart(c3) = &f3.stmts[0] else { panic!() };
+        let Item::Frame(f3) = &ast.items[11] else {
+            panic!()
+        };
+        let FrameStmt::Chart(c3) = &f3.stmts[0] else {
+            panic!()
+        };
         assert_eq!(c3.form, ChartForm::Bars);
         assert_eq!(c3.opts[2].name, OptName::Ordered);
     }
@@ -769,22 +878,52 @@ frame "Bars" { bars monthly: category route, value riders, ordered }
     fn expression_precedence_and_spans() {
         let (ast, diags) = parse_str("view v = d | add z = 1 + 2 * 3 - -x");
         assert!(diags.is_empty(), "{diags:?}");
-        let Item::View(v) = &ast.items[0] else { panic!() };
-        let StepAst::Add { expr, .. } = &v.steps[0] else { panic!() };
+        let Item::View(v) = &ast.items[0] else {
+            panic!()
+        };
+        let StepAst::Add { expr, .. } = &v.steps[0] else {
+            panic!()
+        };
         // ((1 + (2 * 3)) - (-x))
-        let Expr::Binary { op: BinOp::Sub, left, right, span } = expr else { panic!("{expr:?}") };
+        let Expr::Binary {
+            op: BinOp::Sub,
+            left,
+            right,
+            span,
+        } = expr
+        else {
+            panic!("{expr:?}")
+        };
         assert_eq!(*span, 21..35);
         assert!(matches!(**right, Expr::Neg { .. }));
-        let Expr::Binary { op: BinOp::Add, right: r2, .. } = &**left else { panic!() };
+        let Expr::Binary {
+            op: BinOp::Add,
+            right: r2,
+            ..
+        } = &**left
+        else {
+            panic!()
+        };
         assert!(matches!(**r2, Expr::Binary { op: BinOp::Mul, .. }));
     }
 
     #[test]
     fn and_binds_tighter_than_or() {
         let (ast, _) = parse_str("view v = d | keep a = 1 or b = 2 and c = 3");
-        let Item::View(v) = &ast.items[0] else { panic!() };
-        let StepAst::Keep { expr, .. } = &v.steps[0] else { panic!() };
-        let Expr::Binary { op: BinOp::Or, right, .. } = expr else { panic!() };
+        let Item::View(v) = &ast.items[0] else {
+            panic!()
+        };
+        let StepAst::Keep { expr, .. } = &v.steps[0] else {
+            panic!()
+        };
+        let Expr::Binary {
+            op: BinOp::Or,
+            right,
+            ..
+        } = expr
+        else {
+            panic!()
+        };
         assert!(matches!(**right, Expr::Binary { op: BinOp::And, .. }));
     }
 
@@ -798,7 +937,10 @@ frame "Bars" { bars monthly: category route, value riders, ordered }
         let rendered = crescendo_diag::render(&diags, false);
         assert!(rendered.contains("t.cresc:2:"), "{rendered}");
         assert!(rendered.contains("t.cresc:3:"), "{rendered}");
-        assert!(rendered.contains("unknown keyword `spotlite`"), "{rendered}");
+        assert!(
+            rendered.contains("unknown keyword `spotlite`"),
+            "{rendered}"
+        );
         assert!(rendered.contains("did you mean `spotlight`?"), "{rendered}");
     }
 

@@ -3,7 +3,10 @@
 //! scale domains and ticks. Its output, [`DeckPlan`], is the renderer's only
 //! input.
 
+mod build;
 pub mod model;
+mod resolve;
 pub mod scale;
 
+pub use build::{plan_story, slug, PlanResult};
 pub use model::*;

@@ -1,1 +1,1015 @@
-//! (being written)
+//! Scale domains and ticks for the frame plan.
+//!
+//! - [`extended`]: the "extended Wilkinson" tick search of J. Talbot, S. Lin
+//!   and P. Hanrahan, "An Extension of Wilkinson's Algorithm for Positioning
+//!   Tick Labels on Axes", IEEE TVCG 16(6), 2010, following the description
+//!   in `shared/refs/reference-values.md` §4.1 (itself a reading of the first
+//!   author's R package `labeling`).
+//! - [`linear_axis`]: a numeric axis whose domain always contains the data.
+//! - [`time_axis`]: month, day and year axes with ticks on calendar
+//!   boundaries.
+//!
+//! Everything here is deterministic and free of panics; every loop is
+//! bounded.
+
+use crate::model::{Axis, ScaleKind, Tick};
+use crescendo_data::format::tick_labels;
+use crescendo_data::time::{civil_from_days, days_from_civil, month_name};
+
+/// Nice step bases in order of preference (`labeling::extended` default,
+/// published in its documentation; see `shared/refs` §4.1).
+const Q: [f64; 6] = [1.0, 5.0, 2.0, 2.5, 4.0, 3.0];
+/// `Q` times ten, as exact integers: ticks are built from integers and a
+/// power of ten so that they carry no float noise.
+const Q10: [i64; 6] = [10, 50, 20, 25, 40, 30];
+/// Weights of simplicity, coverage, density and legibility
+/// (`labeling::extended` default, published; `shared/refs` §4.1).
+const W: [f64; 4] = [0.25, 0.2, 0.5, 0.05];
+
+/// Largest skip factor `j` tried. The pruning bound stops the search long
+/// before this in practice (at `j` ≤ 13 even when nothing was found yet).
+const MAX_J: i64 = 64;
+/// Bounds on the target label count `m`; larger requests are clamped.
+const MIN_M: usize = 2;
+const MAX_M: usize = 50;
+/// Powers of ten tried per (j, q, k) before giving up on larger steps.
+const MAX_Z_STEPS: usize = 40;
+/// Hard cap on scored candidates: a guarantee of quick termination whatever
+/// the input. Ordinary inputs score a few hundred to a few thousand.
+const MAX_CANDIDATES: usize = 2_000_000;
+/// Relative width under which a range counts as a single value.
+const DEGENERATE_RELATIVE: f64 = 1e-12;
+/// Ranges outside `10^±EXTREME_EXPONENT` are rescaled by a power of ten
+/// before the search so that the squared terms of the coverage score
+/// neither overflow nor underflow.
+const EXTREME_EXPONENT: i32 = 100;
+
+/// Target tick count of [`linear_axis`].
+const LINEAR_TICKS: usize = 5;
+/// At most this many ticks on a time axis.
+const MAX_TIME_TICKS: usize = 8;
+
+/// The winning labelling of the search, in exact integer terms: label `i`
+/// is `(start + i * j) * Q10[qi] * 10^(exp)`, and the step is
+/// `j * Q10[qi] * 10^(exp)`.
+#[derive(Clone, Copy, Debug)]
+struct Labeling {
+    start: f64,
+    j: i64,
+    qi: usize,
+    k: usize,
+    exp: i32,
+}
+
+/// Ticks with their step, both free of float noise.
+#[derive(Clone, Debug)]
+struct NiceTicks {
+    values: Vec<f64>,
+    step: f64,
+}
+
+/// `10^z` as the nearest `f64` (exact table for |z| ≤ 22, where both the
+/// power and its reciprocal come out correctly rounded).
+fn pow10(z: i32) -> f64 {
+    const TABLE: [f64; 23] = [
+        1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16,
+        1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
+    ];
+    match z {
+        0..=22 => TABLE[z as usize],
+        -22..=-1 => 1.0 / TABLE[(-z) as usize],
+        _ => 10f64.powi(z),
+    }
+}
+
+/// Multiply by `10^p` in chunks, so that intermediate powers stay finite.
+fn scale_pow10(x: f64, p: i32) -> f64 {
+    let mut x = x;
+    let mut p = p;
+    while p != 0 {
+        let chunk = p.clamp(-100, 100);
+        x *= pow10(chunk);
+        p -= chunk;
+    }
+    x
+}
+
+/// The `f64` nearest to the decimal `n × 10^exp` (`n` an integer value).
+fn decimal(n: f64, exp: i32) -> f64 {
+    format!("{n}e{exp}").parse().unwrap_or(f64::NAN)
+}
+
+/// Whether `n × 10^exp` is an integer (`n` an integer value).
+fn is_integer_decimal(n: f64, exp: i32) -> bool {
+    if exp >= 0 {
+        return true;
+    }
+    if exp < -18 {
+        return n == 0.0;
+    }
+    n % pow10(-exp) == 0.0
+}
+
+// The four scoring components of Talbot et al., as described in
+// shared/refs §4.1 (and as the `labeling` package computes them).
+
+fn simplicity(qi: usize, j: i64, zero_is_label: bool) -> f64 {
+    let v = if zero_is_label { 1.0 } else { 0.0 };
+    1.0 - qi as f64 / (Q.len() - 1) as f64 - j as f64 + v
+}
+
+fn simplicity_max(qi: usize, j: i64) -> f64 {
+    1.0 - qi as f64 / (Q.len() - 1) as f64 - j as f64 + 1.0
+}
+
+fn coverage(dmin: f64, dmax: f64, lmin: f64, lmax: f64) -> f64 {
+    let range = dmax - dmin;
+    1.0 - 0.5 * ((dmax - lmax).powi(2) + (dmin - lmin).powi(2)) / (0.1 * range).powi(2)
+}
+
+fn coverage_max(dmin: f64, dmax: f64, span: f64) -> f64 {
+    let range = dmax - dmin;
+    if span > range {
+        let half = (span - range) / 2.0;
+        1.0 - 0.5 * (2.0 * half * half) / (0.1 * range).powi(2)
+    } else {
+        1.0
+    }
+}
+
+fn density(k: usize, m: usize, dmin: f64, dmax: f64, lmin: f64, lmax: f64) -> f64 {
+    let r = (k - 1) as f64 / (lmax - lmin);
+    let rt = (m - 1) as f64 / (lmax.max(dmax) - dmin.min(lmin));
+    2.0 - (r / rt).max(rt / r)
+}
+
+fn density_max(k: usize, m: usize) -> f64 {
+    if k >= m {
+        2.0 - (k - 1) as f64 / (m - 1) as f64
+    } else {
+        1.0
+    }
+}
+
+/// Legibility is fixed at 1, as in the `labeling` package (its comment says
+/// the legibility tests lived in the authors' C# code). Our labels are
+/// always plain decimals in one format, and overlap is the renderer's
+/// concern.
+const LEGIBILITY: f64 = 1.0;
+
+/// The pruned search over j, q, k, z and start (loop order of
+/// shared/refs §4.1). `dmin < dmax`, both finite, range not extreme.
+/// `exp_shift` is added to the exponent of the result (the caller rescaled
+/// the data by `10^-exp_shift`). With `integer_only`, only labellings whose
+/// labels are all integers (after the shift) are considered.
+fn search(
+    dmin: f64,
+    dmax: f64,
+    m: usize,
+    only_loose: bool,
+    integer_only: bool,
+    exp_shift: i32,
+) -> Option<Labeling> {
+    let mut best: Option<Labeling> = None;
+    let mut best_score = -2.0;
+    let mut budget = MAX_CANDIDATES;
+    let max_k = 8 * m + 8;
+    'outer: for j in 1..=MAX_J {
+        for (qi, &q) in Q.iter().enumerate() {
+            let sm = simplicity_max(qi, j);
+            if W[0] * sm + W[1] + W[2] + W[3] < best_score {
+                break 'outer;
+            }
+            for k in 2..=max_k {
+                let dm = density_max(k, m);
+                if W[0] * sm + W[1] + W[2] * dm + W[3] < best_score {
+                    break;
+                }
+                let delta = (dmax - dmin) / (k + 1) as f64 / j as f64 / q;
+                let mut z = delta.log10().ceil() as i32;
+                for _ in 0..MAX_Z_STEPS {
+                    let step = j as f64 * q * pow10(z);
+                    let cm = coverage_max(dmin, dmax, step * (k - 1) as f64);
+                    if W[0] * sm + W[1] * cm + W[2] * dm + W[3] < best_score {
+                        break;
+                    }
+                    let jf = j as f64;
+                    let min_start = (dmax / step).floor() * jf - (k - 1) as f64 * jf;
+                    let max_start = (dmin / step).ceil() * jf;
+                    if min_start > max_start || !step.is_finite() {
+                        z += 1;
+                        continue;
+                    }
+                    let exp = z - 1 + exp_shift;
+                    let step_n = (j * Q10[qi]) as f64;
+                    let step_is_integer = is_integer_decimal(step_n, exp);
+                    let mut start = min_start;
+                    while start <= max_start {
+                        if budget == 0 {
+                            break 'outer;
+                        }
+                        budget -= 1;
+                        let this = start;
+                        start += 1.0;
+                        if integer_only
+                            && !(step_is_integer && is_integer_decimal(this * Q10[qi] as f64, exp))
+                        {
+                            continue;
+                        }
+                        let lmin = this * (step / jf);
+                        let lmax = lmin + step * (k - 1) as f64;
+                        // Zero is a label when it lies within the labels and
+                        // the first label is a whole number of steps from it,
+                        // i.e. `start` is a multiple of `j` (exact integer
+                        // test; `labeling` uses a float remainder instead).
+                        let zero_is_label = lmin <= 0.0 && lmax >= 0.0 && this % jf == 0.0;
+                        let s = simplicity(qi, j, zero_is_label);
+                        let c = coverage(dmin, dmax, lmin, lmax);
+                        let g = density(k, m, dmin, dmax, lmin, lmax);
+                        let score = W[0] * s + W[1] * c + W[2] * g + W[3] * LEGIBILITY;
+                        if score > best_score && (!only_loose || (lmin <= dmin && lmax >= dmax)) {
+                            best_score = score;
+                            best = Some(Labeling {
+                                start: this,
+                                j,
+                                qi,
+                                k,
+                                exp,
+                            });
+                        }
+                    }
+                    z += 1;
+                }
+            }
+        }
+    }
+    best
+}
+
+/// Widen a single value (or a range too narrow to resolve) to a range the
+/// search can label: zero becomes `[-1, 1]`, any other value `v` becomes
+/// `v ± |v|/10`.
+fn widen(center: f64) -> (f64, f64) {
+    if center == 0.0 {
+        (-1.0, 1.0)
+    } else {
+        let half = center.abs() * 0.1;
+        (center - half, center + half)
+    }
+}
+
+/// The search with all input handling: order, degenerate and extreme
+/// ranges, label construction.
+fn nice_ticks(
+    dmin: f64,
+    dmax: f64,
+    m: usize,
+    only_loose: bool,
+    integer_only: bool,
+) -> Option<NiceTicks> {
+    if !dmin.is_finite() || !dmax.is_finite() {
+        return None;
+    }
+    let (mut dmin, mut dmax) = if dmin <= dmax {
+        (dmin, dmax)
+    } else {
+        (dmax, dmin)
+    };
+    let m = m.clamp(MIN_M, MAX_M);
+    // Halves keep the range finite even for ±f64::MAX.
+    let half_range = dmax * 0.5 - dmin * 0.5;
+    let magnitude = dmin.abs().max(dmax.abs());
+    if half_range <= magnitude * DEGENERATE_RELATIVE {
+        let (lo, hi) = widen(dmin * 0.5 + dmax * 0.5);
+        if !lo.is_finite() || !hi.is_finite() {
+            return None;
+        }
+        dmin = lo;
+        dmax = hi;
+    }
+    let e = (dmax * 0.5 - dmin * 0.5).log10().floor() as i32;
+    let shift = if e.abs() > EXTREME_EXPONENT { e } else { 0 };
+    let (smin, smax) = (scale_pow10(dmin, -shift), scale_pow10(dmax, -shift));
+    let best = search(smin, smax, m, only_loose, integer_only, shift)?;
+    let q10 = Q10[best.qi] as f64;
+    let values: Vec<f64> = (0..best.k)
+        .map(|i| decimal((best.start + (i as i64 * best.j) as f64) * q10, best.exp))
+        .collect();
+    let step = decimal(best.j as f64 * q10, best.exp);
+    if values.iter().all(|v| v.is_finite()) && step.is_finite() && step > 0.0 {
+        // Normalise -0 (a start of -0.0 times a positive base).
+        let values = values.into_iter().map(|v| v + 0.0).collect();
+        Some(NiceTicks { values, step })
+    } else {
+        None
+    }
+}
+
+/// Tick values for the data range `[dmin, dmax]` by the extended Wilkinson
+/// algorithm (Talbot, Lin & Hanrahan 2010), aiming at about `m` labels.
+///
+/// - Q = [1, 5, 2, 2.5, 4, 3], weights 0.25, 0.2, 0.5, 0.05 for simplicity,
+///   coverage, density and legibility (legibility fixed at 1).
+/// - `only_loose`: the first and last labels must lie on or outside the
+///   data range.
+/// - The bounds may be given in either order. A single value (or a range
+///   narrower than 10^-12 of its magnitude) is widened first: 0 to
+///   `[-1, 1]`, `v` to `v ± |v|/10`.
+/// - `m` is clamped to 2..=50.
+/// - Values are exact decimals (`0.1 * 3` never appears as
+///   `0.30000000000000004`): each is the `f64` nearest to an integer times a
+///   power of ten.
+///
+/// Returns `None` for non-finite input, or when no labelling exists within
+/// the search bounds or the labels would overflow `f64`.
+pub fn extended(dmin: f64, dmax: f64, m: usize, only_loose: bool) -> Option<Vec<f64>> {
+    nice_ticks(dmin, dmax, m, only_loose, false).map(|t| t.values)
+}
+
+/// Replace non-finite bounds: by the other bound if that is finite, else 0.
+fn sanitize(lo: f64, hi: f64) -> (f64, f64) {
+    match (lo.is_finite(), hi.is_finite()) {
+        (true, true) => (lo, hi),
+        (true, false) => (lo, lo),
+        (false, true) => (hi, hi),
+        (false, false) => (0.0, 0.0),
+    }
+}
+
+/// Make sure a domain has positive width (the renderer divides by it).
+fn nonzero_domain(lo: f64, hi: f64) -> [f64; 2] {
+    if hi > lo {
+        [lo, hi]
+    } else {
+        let (a, b) = widen(lo);
+        [a, b]
+    }
+}
+
+/// A linear axis for values in `[dmin, dmax]`.
+///
+/// About five ticks by [`extended`] (flexible, so end ticks may fall inside
+/// the data). The domain is `[min(first tick, dmin), max(last tick, dmax)]`,
+/// so no data point ever leaves the plot. With `include_zero` (bars) the
+/// range is extended to contain 0; all-zero data then gets the axis
+/// `[0, 1]`, and ticks on the side of zero where there is no data are
+/// dropped (bars of positive values never get a negative tick). Labels come
+/// from [`tick_labels`]. Non-finite bounds are replaced by the other bound,
+/// or 0.
+pub fn linear_axis(dmin: f64, dmax: f64, include_zero: bool, title: Option<String>) -> Axis {
+    let (lo, hi) = sanitize(dmin, dmax);
+    let (mut lo, mut hi) = if lo <= hi { (lo, hi) } else { (hi, lo) };
+    if include_zero {
+        lo = lo.min(0.0);
+        hi = hi.max(0.0);
+        if lo == 0.0 && hi == 0.0 {
+            hi = 1.0;
+        }
+    }
+    let mut ticks = Vec::new();
+    let mut domain = nonzero_domain(lo, hi);
+    if let Some(nice) = nice_ticks(lo, hi, LINEAR_TICKS, false, false) {
+        let mut values = nice.values;
+        if include_zero {
+            values.retain(|&v| (v >= 0.0 || lo < 0.0) && (v <= 0.0 || hi > 0.0));
+        }
+        if let (Some(&first), Some(&last)) = (values.first(), values.last()) {
+            domain = nonzero_domain(first.min(lo), last.max(hi));
+        }
+        let labels = tick_labels(&values, nice.step);
+        ticks = values
+            .into_iter()
+            .zip(labels)
+            .map(|(value, label)| Tick { value, label })
+            .collect();
+    }
+    Axis {
+        title,
+        scale: ScaleKind::Linear,
+        domain,
+        ticks,
+    }
+}
+
+/// A time axis over exactly `[lo, hi]` (lines start and end at the data).
+///
+/// Ticks sit on calendar boundaries inside the domain, at most eight; the
+/// finest spacing that keeps to that limit wins.
+///
+/// - [`ScaleKind::Months`] (month index `year * 12 + month - 1`): every 1,
+///   2, 3 or 6 months (aligned on January: bi-monthly ticks fall on Jan,
+///   Mar, May…, quarterly on Jan, Apr, Jul, Oct), labelled "Mar", with the
+///   year added ("Jan 2024") at each January and on the first tick; or
+///   every 1, 2, 5, 10, 20, 50… years at January, labelled "2024".
+/// - [`ScaleKind::Days`] (days since 1970-01-01): every day, every other
+///   day (the 1st, 3rd … 29th of each month), weekly or fortnightly on
+///   Mondays (ISO weeks; fortnights counted from Monday 1970-01-05),
+///   labelled "Mar 4" with the year on the first tick and whenever the year
+///   changes ("Mar 4, 2024"); then month and year spacings as for months,
+///   on the first day of the month.
+/// - [`ScaleKind::Years`]: integer ticks by [`extended`] restricted to
+///   integer labels, labelled without separators ("2024").
+/// - [`ScaleKind::Linear`] is passed on to [`linear_axis`] (without zero).
+///
+/// The bounds may come in either order; non-finite bounds are replaced by
+/// the other bound, or 0. A zero-width domain is widened (see [`extended`])
+/// so that the renderer can map it; its ticks still come from the original
+/// single value.
+pub fn time_axis(scale: ScaleKind, lo: f64, hi: f64, title: Option<String>) -> Axis {
+    let (lo, hi) = sanitize(lo, hi);
+    let (lo, hi) = if lo <= hi { (lo, hi) } else { (hi, lo) };
+    let ticks = match scale {
+        ScaleKind::Linear => return linear_axis(lo, hi, false, title),
+        ScaleKind::Months => month_ticks(lo, hi),
+        ScaleKind::Days => day_ticks(lo, hi),
+        ScaleKind::Years => year_ticks(lo, hi),
+    };
+    Axis {
+        title,
+        scale,
+        domain: nonzero_domain(lo, hi),
+        ticks,
+    }
+}
+
+/// Clamp a float bound to an integer range (after rounding inwards).
+fn int_bounds(lo: f64, hi: f64, limit: i64) -> Option<(i64, i64)> {
+    let first = lo.ceil().clamp(-(limit as f64), limit as f64) as i64;
+    let last = hi.floor().clamp(-(limit as f64), limit as f64) as i64;
+    (first <= last).then_some((first, last))
+}
+
+/// Year spacings after the sub-year ones: 1, 2, 5, 10, 20, 50, …
+fn year_steps() -> impl Iterator<Item = i64> {
+    (0..12).flat_map(|p| [1, 2, 5].map(|b| b * 10i64.pow(p)))
+}
+
+/// Smallest multiple of `step` that is ≥ `x`.
+fn ceil_to(x: i64, step: i64) -> i64 {
+    let r = x.rem_euclid(step);
+    if r == 0 {
+        x
+    } else {
+        x - r + step
+    }
+}
+
+/// Month indices are limited to years within ±100 million.
+const MONTH_LIMIT: i64 = 1_200_000_000;
+/// Day counts are limited to ±100 million (about ±270 000 years), safely
+/// inside the range of the calendar functions.
+const DAY_LIMIT: i64 = 100_000_000;
+
+fn month_ticks(lo: f64, hi: f64) -> Vec<Tick> {
+    let Some((first, last)) = int_bounds(lo, hi, MONTH_LIMIT) else {
+        return Vec::new();
+    };
+    let steps = [1, 2, 3, 6].into_iter().chain(year_steps().map(|y| 12 * y));
+    for step in steps {
+        let count = last.div_euclid(step) - ceil_to(first, step) / step + 1;
+        if count as usize <= MAX_TIME_TICKS || step >= MONTH_LIMIT {
+            let mut ticks = Vec::new();
+            let mut idx = ceil_to(first, step);
+            while idx <= last && ticks.len() < MAX_TIME_TICKS {
+                let year = idx.div_euclid(12);
+                let month = (idx.rem_euclid(12) + 1) as u32;
+                let label = if step >= 12 {
+                    year.to_string()
+                } else if month == 1 || ticks.is_empty() {
+                    format!("{} {year}", month_name(month))
+                } else {
+                    month_name(month).to_string()
+                };
+                ticks.push(Tick {
+                    value: idx as f64,
+                    label,
+                });
+                idx += step;
+            }
+            return ticks;
+        }
+    }
+    Vec::new()
+}
+
+/// Spacings for day axes, finest first.
+#[derive(Clone, Copy, Debug)]
+enum DayStep {
+    /// Every `n` days (1, or 2 on the odd days of the month).
+    Days(u32),
+    /// Every `n` weeks on Mondays.
+    Weeks(i64),
+    /// Every `n` months on the 1st.
+    Months(i64),
+    /// Every `n` years on 1 January.
+    Years(i64),
+}
+
+/// Ticks of one spacing, at most `MAX_TIME_TICKS + 1` (one more than
+/// allowed, so the caller can tell it does not fit).
+fn day_candidates(step: DayStep, first: i64, last: i64) -> Vec<i64> {
+    let cap = MAX_TIME_TICKS + 1;
+    let mut out = Vec::new();
+    match step {
+        DayStep::Days(n) => {
+            let mut d = first;
+            // At most two days between accepted ticks, so this loop stays
+            // within 2 × cap + 2 iterations.
+            while d <= last && out.len() < cap {
+                let (_, _, day) = civil_from_days(d as i32);
+                if n == 1 || (day % 2 == 1 && day < 31) {
+                    out.push(d);
+                }
+                d += 1;
+            }
+        }
+        DayStep::Weeks(n) => {
+            // 1970-01-05 (day 4) was a Monday.
+            let period = 7 * n;
+            let mut d = 4 + ceil_to(first - 4, period);
+            while d <= last && out.len() < cap {
+                out.push(d);
+                d += period;
+            }
+        }
+        DayStep::Months(n) => {
+            let (y, m, day) = civil_from_days(first as i32);
+            let mut idx = y as i64 * 12 + m as i64 - 1;
+            if day > 1 {
+                idx += 1;
+            }
+            idx = ceil_to(idx, n);
+            loop {
+                let (y, m) = (idx.div_euclid(12), (idx.rem_euclid(12) + 1) as u32);
+                let d = days_from_civil(y as i32, m, 1) as i64;
+                if d > last || out.len() >= cap {
+                    break;
+                }
+                out.push(d);
+                idx += n;
+            }
+        }
+        DayStep::Years(n) => {
+            let (y, m, day) = civil_from_days(first as i32);
+            let mut year = y as i64;
+            if m > 1 || day > 1 {
+                year += 1;
+            }
+            year = ceil_to(year, n);
+            loop {
+                let d = days_from_civil(year as i32, 1, 1) as i64;
+                if d > last || out.len() >= cap {
+                    break;
+                }
+                out.push(d);
+                year += n;
+            }
+        }
+    }
+    out
+}
+
+fn day_ticks(lo: f64, hi: f64) -> Vec<Tick> {
+    let Some((first, last)) = int_bounds(lo, hi, DAY_LIMIT) else {
+        return Vec::new();
+    };
+    let steps = [
+        DayStep::Days(1),
+        DayStep::Days(2),
+        DayStep::Weeks(1),
+        DayStep::Weeks(2),
+        DayStep::Months(1),
+        DayStep::Months(2),
+        DayStep::Months(3),
+        DayStep::Months(6),
+    ]
+    .into_iter()
+    .chain(
+        year_steps()
+            .take_while(|&y| y <= 1_000_000)
+            .map(DayStep::Years),
+    );
+    for step in steps {
+        let days = day_candidates(step, first, last);
+        if days.len() > MAX_TIME_TICKS {
+            continue;
+        }
+        let mut ticks: Vec<Tick> = Vec::new();
+        let mut previous_year = None;
+        for d in days {
+            let (y, m, day) = civil_from_days(d as i32);
+            let new_year = previous_year != Some(y);
+            previous_year = Some(y);
+            let label = match step {
+                DayStep::Days(_) | DayStep::Weeks(_) if new_year => {
+                    format!("{} {day}, {y}", month_name(m))
+                }
+                DayStep::Days(_) | DayStep::Weeks(_) => format!("{} {day}", month_name(m)),
+                DayStep::Months(_) if m == 1 || ticks.is_empty() => {
+                    format!("{} {y}", month_name(m))
+                }
+                DayStep::Months(_) => month_name(m).to_string(),
+                DayStep::Years(_) => y.to_string(),
+            };
+            ticks.push(Tick {
+                value: d as f64,
+                label,
+            });
+        }
+        return ticks;
+    }
+    Vec::new()
+}
+
+/// Years beyond ±1 billion are not calendar years; no ticks there.
+const YEAR_LIMIT: f64 = 1e9;
+
+fn year_ticks(lo: f64, hi: f64) -> Vec<Tick> {
+    if lo.abs() > YEAR_LIMIT || hi.abs() > YEAR_LIMIT {
+        return Vec::new();
+    }
+    let values: Vec<f64> = if hi - lo < 1.0 {
+        // Too short for a search: the whole years inside, if any.
+        int_bounds(lo, hi, YEAR_LIMIT as i64)
+            .map(|(a, b)| (a..=b).map(|y| y as f64).collect())
+            .unwrap_or_default()
+    } else {
+        nice_ticks(lo, hi, LINEAR_TICKS, false, true)
+            .map(|t| t.values)
+            .unwrap_or_default()
+    };
+    values
+        .into_iter()
+        .filter(|&v| v >= lo && v <= hi)
+        .map(|v| Tick {
+            value: v,
+            label: format!("{}", v as i64),
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn ext(dmin: f64, dmax: f64, m: usize, loose: bool) -> Vec<f64> {
+        extended(dmin, dmax, m, loose).expect("a labelling")
+    }
+
+    /// Rows of shared/refs/reference-values.md §4.1, flexible search. The
+    /// provenance comment of each row is quoted from that file.
+    #[test]
+    fn reference_rows_flexible() {
+        // published: `labeling` package docs (`extended(8.1, 14.1, 4) # 8 10
+        // 12 14`) and the paper's Fig. 1(d), x-axis panel.
+        assert_eq!(ext(8.1, 14.1, 4, false), [8.0, 10.0, 12.0, 14.0]);
+        // Output published: paper Fig. 1(d) second panel (40, 50, 60); the
+        // data range 36.6..62.9 is "inferred, not verified" (shared/refs).
+        assert_eq!(ext(36.6, 62.9, 4, false), [40.0, 50.0, 60.0]);
+        // The remaining rows: own computation in shared/refs, a Python
+        // transcription not checked against R.
+        assert_eq!(ext(0.0, 100.0, 5, false), [0.0, 25.0, 50.0, 75.0, 100.0]);
+        assert_eq!(ext(-4.2, 8.1, 5, false), [-4.0, 0.0, 4.0, 8.0]);
+        assert_eq!(ext(0.97, 3.03, 5, false), [1.0, 1.5, 2.0, 2.5, 3.0]);
+        assert_eq!(ext(-0.3, 17.2, 5, false), [0.0, 5.0, 10.0, 15.0]);
+        assert_eq!(ext(1.0, 20.0, 5, false), [0.0, 5.0, 10.0, 15.0, 20.0]);
+        assert_eq!(ext(0.0, 1.0, 5, false), [0.0, 0.25, 0.5, 0.75, 1.0]);
+        assert_eq!(
+            ext(105.0, 543.0, 5, false),
+            [100.0, 200.0, 300.0, 400.0, 500.0]
+        );
+        assert_eq!(
+            ext(-13.7, 2.3, 6, false),
+            [-12.5, -10.0, -7.5, -5.0, -2.5, 0.0, 2.5]
+        );
+        assert_eq!(
+            ext(0.001, 0.0092, 5, false),
+            [0.0, 0.0025, 0.005, 0.0075, 0.01]
+        );
+    }
+
+    /// Rows of shared/refs §4.1 with only.loose = TRUE. All are "own
+    /// computation" in shared/refs (a Python transcription not checked
+    /// against R); none is published.
+    #[test]
+    fn reference_rows_only_loose() {
+        // own computation (shared/refs): 7.5, 10, 12.5, 15
+        assert_eq!(ext(8.1, 14.1, 4, true), [7.5, 10.0, 12.5, 15.0]);
+        // own computation (shared/refs): 0, 25, 50, 75, 100
+        assert_eq!(ext(0.0, 100.0, 5, true), [0.0, 25.0, 50.0, 75.0, 100.0]);
+        // own computation (shared/refs): -5, 0, 5, 10
+        assert_eq!(ext(-4.2, 8.1, 5, true), [-5.0, 0.0, 5.0, 10.0]);
+        // own computation (shared/refs): 0.8, 1.2, …, 3.2
+        assert_eq!(
+            ext(0.97, 3.03, 5, true),
+            [0.8, 1.2, 1.6, 2.0, 2.4, 2.8, 3.2]
+        );
+        // own computation (shared/refs): -2.5 … 17.5 step 2.5, 9 labels
+        assert_eq!(
+            ext(-0.3, 17.2, 5, true),
+            [-2.5, 0.0, 2.5, 5.0, 7.5, 10.0, 12.5, 15.0, 17.5]
+        );
+        // own computation (shared/refs): same as flexible
+        assert_eq!(ext(1.0, 20.0, 5, true), [0.0, 5.0, 10.0, 15.0, 20.0]);
+        // own computation (shared/refs): same as flexible
+        assert_eq!(ext(0.0, 1.0, 5, true), [0.0, 0.25, 0.5, 0.75, 1.0]);
+        // own computation (shared/refs): 100, 200, …, 600
+        assert_eq!(
+            ext(105.0, 543.0, 5, true),
+            [100.0, 200.0, 300.0, 400.0, 500.0, 600.0]
+        );
+        // own computation (shared/refs): -15, -12.5, …, 2.5
+        assert_eq!(
+            ext(-13.7, 2.3, 6, true),
+            [-15.0, -12.5, -10.0, -7.5, -5.0, -2.5, 0.0, 2.5]
+        );
+        // own computation (shared/refs): same as flexible
+        assert_eq!(
+            ext(0.001, 0.0092, 5, true),
+            [0.0, 0.0025, 0.005, 0.0075, 0.01]
+        );
+    }
+
+    #[test]
+    fn loose_labels_cover_the_data() {
+        for &(a, b) in &[
+            (8.1, 14.1),
+            (-13.7, 2.3),
+            (0.97, 3.03),
+            (3.3, 3.31),
+            (-7e-9, 2e-8),
+        ] {
+            let t = ext(a, b, 5, true);
+            assert!(t[0] <= a && *t.last().unwrap() >= b, "{a}..{b}: {t:?}");
+        }
+    }
+
+    #[test]
+    fn degenerate_reversed_and_extreme_inputs() {
+        // Reversed bounds give the same labels.
+        assert_eq!(ext(14.1, 8.1, 4, false), ext(8.1, 14.1, 4, false));
+        // A single value is widened around itself (0 to [-1, 1]).
+        let t = ext(0.0, 0.0, 5, false);
+        assert!(
+            t.contains(&0.0) && t[0] < 0.0 && *t.last().unwrap() > 0.0,
+            "{t:?}"
+        );
+        let t = ext(5.0, 5.0, 5, true);
+        assert!(
+            t[0] <= 5.0 && *t.last().unwrap() >= 5.0 && t.len() >= 2,
+            "{t:?}"
+        );
+        // Non-finite input.
+        assert_eq!(extended(f64::NAN, 1.0, 5, false), None);
+        assert_eq!(extended(0.0, f64::INFINITY, 5, false), None);
+        // Tiny and huge magnitudes come out as clean decimals.
+        assert_eq!(
+            ext(1e-9, 9.2e-9, 5, false),
+            [0.0, 2.5e-9, 5e-9, 7.5e-9, 1e-8]
+        );
+        assert_eq!(
+            ext(1.05e12, 5.43e12, 5, false),
+            [1e12, 2e12, 3e12, 4e12, 5e12]
+        );
+        assert_eq!(
+            ext(1.05e250, 5.43e250, 5, false),
+            [1e250, 2e250, 3e250, 4e250, 5e250]
+        );
+        assert_eq!(
+            ext(1.05e-250, 5.43e-250, 5, false),
+            [1e-250, 2e-250, 3e-250, 4e-250, 5e-250]
+        );
+        // Extremes terminate and stay finite (or give up cleanly).
+        for &(a, b) in &[
+            (-f64::MAX, f64::MAX),
+            (f64::MIN_POSITIVE, 2.0 * f64::MIN_POSITIVE),
+            (5e-324, 1e-323),
+            (1e15, 1e15 + 1.0),
+            (f64::MAX, f64::MAX),
+            (-1e300, 1e-300),
+        ] {
+            if let Some(t) = extended(a, b, 5, false) {
+                assert!(
+                    t.iter().all(|v| v.is_finite()) && !t.is_empty(),
+                    "{a}..{b}: {t:?}"
+                );
+            }
+        }
+        // Odd m values are clamped rather than rejected.
+        assert!(extended(0.0, 1.0, 0, false).is_some());
+        assert!(extended(0.0, 1.0, 10_000, false).is_some());
+    }
+
+    #[test]
+    fn no_float_noise_in_ticks() {
+        for &(a, b) in &[(0.1, 0.7), (0.0, 0.3), (-0.07, 0.23), (1.1, 1.9)] {
+            for loose in [false, true] {
+                for v in ext(a, b, 5, loose) {
+                    let shortest = format!("{v}");
+                    assert!(shortest.len() <= 6, "{a}..{b}: {shortest}");
+                }
+            }
+        }
+    }
+
+    fn labels(axis: &Axis) -> Vec<&str> {
+        axis.ticks.iter().map(|t| t.label.as_str()).collect()
+    }
+
+    fn values(axis: &Axis) -> Vec<f64> {
+        axis.ticks.iter().map(|t| t.value).collect()
+    }
+
+    #[test]
+    fn linear_axis_contains_data_and_zero() {
+        let a = linear_axis(0.97, 3.03, false, Some("Rate".into()));
+        assert_eq!(a.scale, ScaleKind::Linear);
+        assert_eq!(a.title.as_deref(), Some("Rate"));
+        assert_eq!(labels(&a), ["1", "1.5", "2", "2.5", "3"]);
+        assert_eq!(a.domain, [0.97, 3.03]);
+
+        // Bars: zero included; ticks from 0; the domain reaches the data.
+        let a = linear_axis(12.0, 17.2, true, None);
+        assert_eq!(labels(&a), ["0", "4", "8", "12", "16"]);
+        assert_eq!(a.domain, [0.0, 17.2]);
+        let a = linear_axis(-13.7, -2.0, true, None);
+        assert!(a.domain[0] <= -13.7 && a.domain[1] == 0.0, "{:?}", a.domain);
+        assert!(values(&a).iter().all(|&v| v <= 0.0), "{:?}", values(&a));
+        assert_eq!(a.ticks.last().map(|t| t.label.as_str()), Some("0"));
+
+        // Without zero the axis hugs the data.
+        let a = linear_axis(1200.0, 1800.0, false, None);
+        assert!(a.domain[0] > 0.0);
+        assert!(labels(&a).contains(&"1,500"), "{:?}", labels(&a));
+
+        // All-zero bars and a flat line.
+        let a = linear_axis(0.0, 0.0, true, None);
+        assert_eq!(a.domain, [0.0, 1.0]);
+        assert_eq!(labels(&a), ["0", "0.25", "0.5", "0.75", "1"]);
+        let a = linear_axis(5.0, 5.0, false, None);
+        assert!(a.domain[0] < 5.0 && a.domain[1] > 5.0, "{:?}", a.domain);
+
+        // Non-finite input still gives a usable axis.
+        let a = linear_axis(f64::NAN, f64::NAN, true, None);
+        assert_eq!(a.domain, [0.0, 1.0]);
+    }
+
+    #[test]
+    fn linear_domain_always_contains_data_and_ticks() {
+        let cases = [
+            (8.1, 14.1),
+            (-4.2, 8.1),
+            (0.001, 0.0092),
+            (-13.7, 2.3),
+            (3.3, 3.31),
+            (99.0, 101.0),
+            (-1e6, -999_000.0),
+        ];
+        for (a, b) in cases {
+            for zero in [false, true] {
+                let axis = linear_axis(a, b, zero, None);
+                let [lo, hi] = axis.domain;
+                assert!(lo <= a && hi >= b && lo < hi, "{a}..{b}: {lo}..{hi}");
+                assert!(axis.ticks.len() >= 2, "{a}..{b}: {:?}", axis.ticks);
+                for t in &axis.ticks {
+                    assert!(t.value >= lo && t.value <= hi);
+                }
+                if zero {
+                    assert!(lo <= 0.0 && hi >= 0.0);
+                }
+            }
+        }
+    }
+
+    fn month(y: i32, m: i32) -> f64 {
+        (y * 12 + m - 1) as f64
+    }
+
+    #[test]
+    fn months_over_six_years_tick_yearly() {
+        let a = time_axis(ScaleKind::Months, month(2019, 1), month(2024, 12), None);
+        assert_eq!(a.domain, [month(2019, 1), month(2024, 12)]);
+        assert_eq!(labels(&a), ["2019", "2020", "2021", "2022", "2023", "2024"]);
+        assert_eq!(values(&a)[0], month(2019, 1));
+    }
+
+    #[test]
+    fn months_within_a_year_tick_bimonthly() {
+        let a = time_axis(ScaleKind::Months, month(2024, 1), month(2024, 12), None);
+        assert_eq!(labels(&a), ["Jan 2024", "Mar", "May", "Jul", "Sep", "Nov"]);
+        let a = time_axis(ScaleKind::Months, month(2024, 3), month(2024, 8), None);
+        assert_eq!(labels(&a), ["Mar 2024", "Apr", "May", "Jun", "Jul", "Aug"]);
+    }
+
+    #[test]
+    fn months_over_eighteen_months_and_three_years() {
+        // 2023-07 .. 2024-12: quarters, the year at January.
+        let a = time_axis(ScaleKind::Months, month(2023, 7), month(2024, 12), None);
+        assert_eq!(
+            labels(&a),
+            ["Jul 2023", "Oct", "Jan 2024", "Apr", "Jul", "Oct"]
+        );
+        // 2022-01 .. 2024-12: half-years.
+        let a = time_axis(ScaleKind::Months, month(2022, 1), month(2024, 12), None);
+        assert_eq!(
+            labels(&a),
+            ["Jan 2022", "Jul", "Jan 2023", "Jul", "Jan 2024", "Jul"]
+        );
+        // Twenty-five years: every five years.
+        let a = time_axis(ScaleKind::Months, month(1999, 6), month(2024, 6), None);
+        assert_eq!(labels(&a), ["2000", "2005", "2010", "2015", "2020"]);
+        // Reversed bounds and a single month.
+        let a = time_axis(ScaleKind::Months, month(2024, 12), month(2024, 1), None);
+        assert_eq!(a.domain, [month(2024, 1), month(2024, 12)]);
+        let a = time_axis(ScaleKind::Months, month(2024, 5), month(2024, 5), None);
+        assert_eq!(labels(&a), ["May 2024"]);
+        assert!(a.domain[0] < a.domain[1]);
+    }
+
+    #[test]
+    fn time_ticks_stay_in_domain_and_few() {
+        for (lo, hi) in [
+            (0.0, 5.0),
+            (-500.0, 30_000.0),
+            (24_000.0, 24_290.0),
+            (1.5, 1.7),
+        ] {
+            for scale in [ScaleKind::Months, ScaleKind::Days, ScaleKind::Years] {
+                let a = time_axis(scale, lo, hi, None);
+                assert!(a.ticks.len() <= MAX_TIME_TICKS, "{scale:?} {lo}..{hi}");
+                for t in &a.ticks {
+                    assert!(t.value >= lo && t.value <= hi, "{scale:?} {lo}..{hi}");
+                }
+            }
+        }
+        // Enormous spans still terminate with few ticks.
+        let a = time_axis(ScaleKind::Days, -1e12, 1e12, None);
+        assert!(a.ticks.len() <= MAX_TIME_TICKS);
+        let a = time_axis(ScaleKind::Months, -1e15, 1e15, None);
+        assert!(a.ticks.len() <= MAX_TIME_TICKS);
+    }
+
+    fn day(y: i32, m: u32, d: u32) -> f64 {
+        days_from_civil(y, m, d) as f64
+    }
+
+    #[test]
+    fn day_axes() {
+        // One week: every day.
+        let a = time_axis(ScaleKind::Days, day(2024, 3, 4), day(2024, 3, 10), None);
+        assert_eq!(
+            labels(&a),
+            [
+                "Mar 4, 2024",
+                "Mar 5",
+                "Mar 6",
+                "Mar 7",
+                "Mar 8",
+                "Mar 9",
+                "Mar 10"
+            ]
+        );
+        // Six weeks: Mondays (2024-03-04 was a Monday).
+        let a = time_axis(ScaleKind::Days, day(2024, 3, 1), day(2024, 4, 12), None);
+        assert_eq!(
+            labels(&a),
+            [
+                "Mar 4, 2024",
+                "Mar 11",
+                "Mar 18",
+                "Mar 25",
+                "Apr 1",
+                "Apr 8"
+            ]
+        );
+        // Across New Year with daily ticks every other day.
+        let a = time_axis(ScaleKind::Days, day(2023, 12, 27), day(2024, 1, 6), None);
+        assert_eq!(
+            labels(&a),
+            ["Dec 27, 2023", "Dec 29", "Jan 1, 2024", "Jan 3", "Jan 5"]
+        );
+        // One year of days: bi-monthly on the 1st.
+        let a = time_axis(ScaleKind::Days, day(2024, 1, 1), day(2024, 12, 31), None);
+        assert_eq!(labels(&a), ["Jan 2024", "Mar", "May", "Jul", "Sep", "Nov"]);
+        assert_eq!(values(&a)[1], day(2024, 3, 1));
+        // Five years of days: yearly on 1 January.
+        let a = time_axis(ScaleKind::Days, day(2019, 6, 1), day(2024, 6, 1), None);
+        assert_eq!(labels(&a), ["2020", "2021", "2022", "2023", "2024"]);
+        assert_eq!(a.domain, [day(2019, 6, 1), day(2024, 6, 1)]);
+    }
+
+    #[test]
+    fn year_axes() {
+        let a = time_axis(ScaleKind::Years, 2015.0, 2024.0, Some("Year".into()));
+        assert_eq!(a.domain, [2015.0, 2024.0]);
+        assert!(labels(&a).iter().all(|l| l.len() == 4 && !l.contains(',')));
+        assert!(a.ticks.iter().all(|t| t.value.fract() == 0.0));
+        assert!(a.ticks.len() >= 3, "{:?}", labels(&a));
+        // A short span must still tick whole years, never 2020.5.
+        let a = time_axis(ScaleKind::Years, 2020.0, 2022.0, None);
+        assert_eq!(labels(&a), ["2020", "2021", "2022"]);
+        let a = time_axis(ScaleKind::Years, 2024.0, 2024.0, None);
+        assert_eq!(labels(&a), ["2024"]);
+        assert!(a.domain[0] < a.domain[1]);
+    }
+}

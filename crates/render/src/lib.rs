@@ -1,1 +1,74 @@
-//! (being written)
+//! crescendo-render: draws [`FramePlan`]s as clean SVG with plotters and
+//! assembles the self-contained HTML deck.
+//!
+//! The renderer owns all geometry: text measurement with the bundled DejaVu
+//! Sans ([`metrics`]), margins, label placement and de-overlapping. It never
+//! reads the story and never writes files; callers get strings back.
+//!
+//! Layout that positions the chart depends only on what every frame of a
+//! build-up sequence shares (axes, all series and bar names, the tallest
+//! headline block of the sequence), so axes stay still from frame to frame.
+
+#![warn(missing_docs)]
+
+mod bars;
+pub mod canvas;
+mod html;
+pub mod inspect;
+pub mod layout;
+mod line;
+pub mod metrics;
+pub mod theme;
+
+use crescendo_plan::{Chart, DeckPlan, FramePlan};
+use std::fmt;
+
+pub use html::render_deck_html;
+pub use theme::{Rgb, Theme};
+
+/// Why a frame could not be drawn.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct RenderError {
+    /// Human-readable explanation.
+    pub message: String,
+}
+
+impl RenderError {
+    /// Builds an error from a message.
+    pub fn new(message: impl Into<String>) -> Self {
+        Self {
+            message: message.into(),
+        }
+    }
+}
+
+impl fmt::Display for RenderError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.message)
+    }
+}
+
+impl std::error::Error for RenderError {}
+
+/// Renders one frame of `deck` as a complete 1280×720 SVG document.
+///
+/// `deck` supplies the theme, the fallback source note and the other frames
+/// of `frame`'s build-up sequence (so the layout is shared across it).
+/// Identical input gives identical bytes.
+pub fn render_frame(deck: &DeckPlan, frame: &FramePlan) -> Result<String, RenderError> {
+    let theme = theme::theme(&deck.theme)?;
+    let mut buf = String::new();
+    {
+        let canvas = canvas::Canvas::new(&mut buf)?;
+        let region = layout::draw_page(&canvas, theme, deck, frame)?;
+        match &frame.chart {
+            Chart::Line(chart) => line::draw(&canvas, theme, chart, region)?,
+            Chart::Bars(chart) => bars::draw(&canvas, theme, chart, region)?,
+        }
+        canvas.finish()?;
+    }
+    Ok(buf)
+}
+
+#[cfg(test)]
+mod tests;

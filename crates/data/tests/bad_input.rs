@@ -1,0 +1,257 @@
+//! `load_csv` on bad input: every failure is a clear, located error, never a
+//! panic and never a silently wrong table.
+
+mod common;
+
+use common::{describe, load_err, spec_for};
+use crescendo_data::{load_csv, ColType, CsvSpec, LoadError};
+
+#[test]
+fn missing_file_is_a_story_error_naming_the_file() {
+    let spec = CsvSpec {
+        path: common::temp_dir("missing").join("nope.csv"),
+        display_name: "data/nope.csv".into(),
+        declared: vec![],
+        missing: vec![],
+    };
+    match load_csv(&spec) {
+        Err(LoadError::Story {
+            code,
+            message,
+            declared,
+            ..
+        }) => {
+            assert_eq!(code, "data-file");
+            assert_eq!(
+                message,
+                "cannot read data file `data/nope.csv`: no such file"
+            );
+            assert_eq!(declared, None);
+        }
+        other => panic!("expected a data-file error, got {other:?}"),
+    }
+}
+
+#[test]
+fn a_directory_is_not_readable_data() {
+    let spec = CsvSpec {
+        path: common::temp_dir("dir"),
+        display_name: "folder".into(),
+        declared: vec![],
+        missing: vec![],
+    };
+    let err = load_csv(&spec).expect_err("a directory is not a CSV file");
+    assert_eq!(err.code(), "data-file");
+    assert!(
+        err.to_string()
+            .starts_with("cannot read data file `folder`: "),
+        "{err}"
+    );
+    assert!(!err.to_string().contains("os error"), "{err}");
+}
+
+#[test]
+fn empty_file_and_header_only_file() {
+    for (body, what) in [
+        (&b""[..], "is empty"),
+        (&b"\r\n\n"[..], "is empty"),
+        (&b"\xEF\xBB\xBF"[..], "is empty"),
+        (&b"a,b\n"[..], "has a header but no data rows"),
+        (&b"a,b"[..], "has a header but no data rows"),
+    ] {
+        let err = load_csv(&spec_for("e.csv", body)).expect_err("no data");
+        match &err {
+            LoadError::Story { code, message, .. } => {
+                assert_eq!(*code, "empty-data");
+                assert_eq!(message, &format!("data file `e.csv` {what}"), "{body:?}");
+            }
+            other => panic!("expected empty-data for {body:?}, got {other:?}"),
+        }
+    }
+}
+
+#[test]
+fn ragged_row_shows_file_line_and_caret() {
+    let body = b"city,month,riders\nOslo,2024-01,10\nBergen,2024-01\nOslo,2024-02,12\n";
+    let err = load_err("riders.csv", body, &[]);
+    let out = describe(&err);
+    assert_eq!(err.code(), "ragged-row", "{out}");
+    assert!(
+        out.contains("row 2 has 2 fields, but the header has 3"),
+        "{out}"
+    );
+    assert!(out.contains("riders.csv:3:15"), "{out}");
+    assert!(out.contains("Bergen,2024-01"), "{out}");
+    assert!(out.contains('^'), "{out}");
+    assert!(out.contains("expected 3 fields, found 2"), "{out}");
+
+    // Too many fields: the caret covers the extra ones.
+    let err = load_err("wide.csv", b"a,b\n1,2\n3,4,5,6\n", &[]);
+    let LoadError::Csv(d) = &err else {
+        panic!("{}", describe(&err))
+    };
+    let p = d.primary.as_ref().expect("located");
+    assert_eq!(&p.source.text[p.span.clone()], "5,6");
+    assert_eq!(d.location(), Some(("wide.csv".into(), 3, 5)));
+}
+
+#[test]
+fn declared_number_holding_text_names_the_first_offending_row() {
+    let mut body = String::from("station,riders\n");
+    for i in 1..=20 {
+        let cell = match i {
+            14 => "n/a".to_owned(),
+            17 => "unknown".to_owned(),
+            7 => "NA".to_owned(), // a missing token, fine
+            _ => format!("{}", i * 10),
+        };
+        body.push_str(&format!("s{i},{cell}\n"));
+    }
+    let err = load_err(
+        "counts.csv",
+        body.as_bytes(),
+        &[("riders", ColType::Number)],
+    );
+    let out = describe(&err);
+    assert_eq!(err.code(), "bad-value", "{out}");
+    assert!(
+        out.contains("column `riders` is declared number, but row 14 holds `n/a`"),
+        "{out}"
+    );
+    // Row 14 is on line 15 (line 1 is the header); the field starts at column 5.
+    assert!(out.contains("counts.csv:15:5"), "{out}");
+    assert!(out.contains("s14,n/a"), "{out}");
+    assert!(out.contains("^^^"), "{out}");
+    assert!(
+        out.contains("declare `riders` as text, or add `n/a`"),
+        "{out}"
+    );
+}
+
+#[test]
+fn declared_time_and_year_columns_reject_bad_cells() {
+    for (ty, cell, label) in [
+        (ColType::Date, "2024-02-30", "not a date (YYYY-MM-DD)"),
+        (ColType::Month, "2024-7", "not a month (YYYY-MM)"),
+        (ColType::Year, "24", "not a year (YYYY)"),
+        (ColType::Number, "1,5", "not a number"),
+    ] {
+        let body = format!("k,v\na,\"{cell}\"\n");
+        let err = load_err("t.csv", body.as_bytes(), &[("v", ty)]);
+        let out = describe(&err);
+        assert_eq!(err.code(), "bad-value", "{out}");
+        assert!(
+            out.contains(&format!(
+                "is declared {}, but row 1 holds `{cell}`",
+                ty.name()
+            )),
+            "{out}"
+        );
+        assert!(out.contains(label), "{out}");
+    }
+}
+
+#[test]
+fn number_with_spaces_gets_a_specific_hint() {
+    let err = load_err("sp.csv", b"k,v\na, 12\n", &[("v", ColType::Number)]);
+    let out = describe(&err);
+    assert!(out.contains("row 1 holds ` 12`"), "{out}");
+    assert!(out.contains("remove the spaces around `12`"), "{out}");
+}
+
+#[test]
+fn declared_column_not_in_header_suggests_the_closest() {
+    let err = load_err(
+        "r.csv",
+        b"station,month,riders\nA,2024-01,1\n",
+        &[("month", ColType::Month), ("rider", ColType::Number)],
+    );
+    match err {
+        LoadError::Story {
+            code,
+            message,
+            help,
+            declared,
+        } => {
+            assert_eq!(code, "unknown-column");
+            assert_eq!(declared, Some(1));
+            assert!(
+                message.contains("column `rider` is not in the header of `r.csv`"),
+                "{message}"
+            );
+            assert!(
+                message.contains("`station`, `month`, `riders`"),
+                "{message}"
+            );
+            assert_eq!(help.as_deref(), Some("did you mean `riders`?"));
+        }
+        other => panic!("expected unknown-column, got {other:?}"),
+    }
+    // Nothing close: no suggestion.
+    let err = load_err("r.csv", b"a,b\n1,2\n", &[("population", ColType::Number)]);
+    assert!(
+        matches!(
+            err,
+            LoadError::Story {
+                help: None,
+                declared: Some(0),
+                ..
+            }
+        ),
+        "{err:?}"
+    );
+}
+
+#[test]
+fn duplicate_and_empty_header_names_are_located_on_the_header() {
+    let err = load_err("dup.csv", b"a,b,a\n1,2,3\n", &[]);
+    let out = describe(&err);
+    assert_eq!(err.code(), "bad-header", "{out}");
+    assert!(
+        out.contains("column `a` appears twice in the header"),
+        "{out}"
+    );
+    assert!(out.contains("dup.csv:1:5"), "{out}");
+
+    let err = load_err("noname.csv", b"a,,c\n1,2,3\n", &[]);
+    let out = describe(&err);
+    assert_eq!(err.code(), "bad-header", "{out}");
+    assert!(out.contains("header field 2 has no name"), "{out}");
+    assert!(out.contains("noname.csv:1:3"), "{out}");
+}
+
+#[test]
+fn invalid_utf8_is_located() {
+    let err = load_err("latin1.csv", b"city,n\nZ\xFCrich,1\n", &[]);
+    let out = describe(&err);
+    assert_eq!(err.code(), "bad-encoding", "{out}");
+    assert!(
+        out.contains("row 1, column `city` is not valid UTF-8"),
+        "{out}"
+    );
+    assert!(out.contains("latin1.csv:2:1"), "{out}");
+}
+
+#[test]
+fn hostile_inputs_fail_cleanly_or_load() {
+    // Each input either loads or fails with a specific, located error.
+    let cases: [(&[u8], Result<usize, &str>); 8] = [
+        (b"\"", Err("bad-quote")),
+        (b"\"\"\"", Err("bad-quote")),
+        (b",\n,\n", Err("bad-header")),
+        (b"a\n\"", Err("bad-quote")),
+        (b"\xFF\xFEa\x00", Err("bad-encoding")),
+        (b"a\r\r\r\"\r", Err("bad-quote")),
+        (b"\"a\"\"\nb\",c\n1,2", Ok(2)),
+        (b"a,b\n\"\",\"\"\"\"\n", Ok(2)),
+    ];
+    for (body, want) in cases {
+        let got = load_csv(&spec_for("g.csv", body))
+            .map(|t| t.columns.len())
+            .map_err(|e| e.code());
+        assert_eq!(got, want, "{body:?}");
+    }
+    // The quoted header name keeps its quote and line break.
+    let t = load_csv(&spec_for("h.csv", b"\"a\"\"\nb\",c\n1,2")).expect("loads");
+    assert_eq!(t.columns[0].name, "a\"\nb");
+}

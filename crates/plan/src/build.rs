@@ -1,0 +1,1079 @@
+//! From a parsed story to a [`DeckPlan`]: header, data, views, then the
+//! frames with their build-up state.
+
+use std::collections::BTreeSet;
+use std::path::Path;
+use std::sync::Arc;
+
+use crescendo_data::{format, time, ColType, Table, Value};
+use crescendo_diag::{closest, has_errors, Diagnostic, Source};
+use crescendo_lang::ast::{
+    self, AxisName, ChartForm, ChartStmt, FrameStmt, Ident, Item, OptName, Str, Targets,
+};
+
+use crate::model::*;
+use crate::resolve::{self, schema_of, Named, Tables};
+use crate::scale;
+
+/// The result of planning: the plan, or every error found.
+pub type PlanResult = Result<(DeckPlan, Vec<Diagnostic>), Vec<Diagnostic>>;
+
+/// Parse, resolve, load and plan a story. `story_dir` is the folder data
+/// paths are relative to. Returns the plan and its warnings, or all errors.
+pub fn plan_story(src: &Arc<Source>, story_dir: &Path) -> PlanResult {
+    let (story, mut diags) = crescendo_lang::parse(src);
+    if has_errors(&diags) {
+        return Err(diags);
+    }
+    let plan = Planner::new(src, story_dir, &mut diags).run(&story);
+    if has_errors(&diags) {
+        Err(diags)
+    } else {
+        match plan {
+            Some(p) => Ok((p, diags)),
+            None => Err(vec![Diagnostic::error(
+                "internal",
+                "the story produced no plan",
+            )]),
+        }
+    }
+}
+
+struct Planner<'a> {
+    src: &'a Arc<Source>,
+    dir: &'a Path,
+    diags: &'a mut Vec<Diagnostic>,
+    tables: Tables,
+}
+
+/// Header values with where they were set (to report duplicates).
+#[derive(Default)]
+struct Header {
+    title: Option<Str>,
+    byline: Option<Str>,
+    source: Option<Str>,
+    theme: Option<Ident>,
+    conclusion: Option<Str>,
+    compare: Option<ast::CompareDecl>,
+    focus: Option<Vec<Str>>,
+}
+
+/// A resolved chart statement: the table and the columns playing each role.
+struct ChartSpec {
+    form: ChartForm,
+    table_name: String,
+    table: Table,
+    /// Line: x; bars: category.
+    x: usize,
+    /// Line: y; bars: value.
+    y: usize,
+    series: Option<usize>,
+    ordered: bool,
+    /// Label of a folded "other" row, drawn last among sorted bars.
+    rest: Option<String>,
+}
+
+/// The build-up state carried from frame to frame within a sequence.
+struct SeqState {
+    chart: Chart,
+    /// Every series or bar name in the chart, in display order.
+    names: Vec<String>,
+    hidden: BTreeSet<String>,
+    spotlight: BTreeSet<String>,
+    x_title: Option<String>,
+    y_title: Option<String>,
+    view_name: String,
+    key_name: String,
+}
+
+fn display(v: &Value) -> String {
+    match v {
+        Value::Missing => "(missing)".to_string(),
+        Value::Number(n) => format::number(*n, None),
+        Value::Text(t) => t.clone(),
+        Value::Date(d) => time::date_iso(*d),
+        Value::Month(m) => format!(
+            "{} {}",
+            time::month_name(time::month_of_year(*m)),
+            time::month_year(*m)
+        ),
+        Value::Year(y) => y.to_string(),
+    }
+}
+
+fn position(v: &Value) -> Option<f64> {
+    match v {
+        Value::Number(n) => Some(*n),
+        Value::Date(d) | Value::Month(d) | Value::Year(d) => Some(f64::from(*d)),
+        _ => None,
+    }
+}
+
+/// Turn an identifier like `riders_per_trip` into "Riders per trip".
+fn humanize(name: &str) -> String {
+    let s = name.replace('_', " ");
+    let mut c = s.chars();
+    match c.next() {
+        Some(f) => f.to_uppercase().collect::<String>() + c.as_str(),
+        None => s,
+    }
+}
+
+/// File-name-safe slug of a headline: `[a-z0-9-]`, at most 48 characters.
+pub fn slug(headline: &str) -> String {
+    let mut out = String::new();
+    for c in headline.chars().flat_map(char::to_lowercase) {
+        if c.is_ascii_alphanumeric() {
+            out.push(c);
+        } else if !out.ends_with('-') && !out.is_empty() {
+            out.push('-');
+        }
+    }
+    let mut out = out.trim_end_matches('-').to_string();
+    if out.len() > 48 {
+        out.truncate(48);
+        if let Some(i) = out.rfind('-').filter(|&i| i >= 24) {
+            out.truncate(i);
+        }
+        out = out.trim_end_matches('-').to_string();
+    }
+    if out.is_empty() {
+        "frame".to_string()
+    } else {
+        out
+    }
+}
+
+impl<'a> Planner<'a> {
+    fn new(src: &'a Arc<Source>, dir: &'a Path, diags: &'a mut Vec<Diagnostic>) -> Self {
+        Planner {
+            src,
+            dir,
+            diags,
+            tables: Tables::default(),
+        }
+    }
+
+    fn error(
+        &mut self,
+        code: &'static str,
+        msg: impl Into<String>,
+        span: ast::Span,
+        label: &str,
+    ) -> &mut Diagnostic {
+        self.diags
+            .push(Diagnostic::error(code, msg).at(self.src, span, label.to_string()));
+        let last = self.diags.len() - 1;
+        &mut self.diags[last]
+    }
+
+    fn set_once<T: Clone>(&mut self, slot: &mut Option<T>, value: T, span: &ast::Span, what: &str) {
+        if slot.is_some() {
+            self.error(
+                "duplicate",
+                format!("the story sets its {what} twice"),
+                span.clone(),
+                "second one here",
+            )
+            .help = Some("keep one".into());
+        } else {
+            *slot = Some(value);
+        }
+    }
+
+    fn run(mut self, story: &ast::StoryAst) -> Option<DeckPlan> {
+        let mut h = Header::default();
+        let mut frames = Vec::new();
+        for item in &story.items {
+            match item {
+                Item::Title(t) => {
+                    self.set_once(&mut h.title, t.text.clone(), &t.span, "title (`story`)")
+                }
+                Item::Byline(t) => self.set_once(&mut h.byline, t.text.clone(), &t.span, "byline"),
+                Item::Source(t) => {
+                    self.set_once(&mut h.source, t.text.clone(), &t.span, "source note")
+                }
+                Item::Conclusion(t) => {
+                    self.set_once(&mut h.conclusion, t.text.clone(), &t.span, "conclusion")
+                }
+                Item::Theme { name, span } => {
+                    self.set_once(&mut h.theme, name.clone(), span, "theme")
+                }
+                Item::Compare(c) => {
+                    self.set_once(&mut h.compare, c.clone(), &c.span, "comparison (`compare`)")
+                }
+                Item::Focus { names, span } => {
+                    self.set_once(&mut h.focus, names.clone(), span, "focus")
+                }
+                Item::Data(d) => {
+                    if self.check_unique_table(&d.name) {
+                        match resolve::load_data(self.src, self.dir, d, self.diags) {
+                            Some(table) => {
+                                self.tables.by_name.insert(
+                                    d.name.name.clone(),
+                                    Named {
+                                        table,
+                                        decl: d.span.clone(),
+                                        is_data: true,
+                                        rest: None,
+                                        root: d.name.name.clone(),
+                                    },
+                                );
+                            }
+                            None => self.tables.broken.push(d.name.name.clone()),
+                        }
+                    }
+                }
+                Item::View(v) => {
+                    if self.check_unique_table(&v.name) {
+                        let built = match self.tables.get(self.src, &v.input, self.diags) {
+                            Some(input) => {
+                                resolve::build_view(self.src, v, &self.tables, input, self.diags)
+                                    .map(|(t, r)| (t, r, input.root.clone()))
+                            }
+                            None => None,
+                        };
+                        match built {
+                            Some((table, rest, root)) => {
+                                self.tables.by_name.insert(
+                                    v.name.name.clone(),
+                                    Named {
+                                        table,
+                                        decl: v.span.clone(),
+                                        is_data: false,
+                                        rest,
+                                        root,
+                                    },
+                                );
+                            }
+                            None => self.tables.broken.push(v.name.name.clone()),
+                        }
+                    }
+                }
+                Item::Frame(f) => frames.push(f),
+            }
+        }
+        let title = match &h.title {
+            Some(t) => t.value.clone(),
+            None => {
+                self.diags.push(
+                    Diagnostic::error("missing-title", "the story has no title")
+                        .at(self.src, 0..0, "expected `story \"...\"` in this file")
+                        .help(
+                            "add a line like `story \"Riders grew fastest on the Harbour Loop\"`",
+                        ),
+                );
+                String::new()
+            }
+        };
+        let theme = match &h.theme {
+            None => THEMES[0].to_string(),
+            Some(t) if THEMES.contains(&t.name.as_str()) => t.name.clone(),
+            Some(t) => {
+                let s = closest(&t.name, THEMES.iter().copied());
+                let d = self.error(
+                    "unknown-theme",
+                    format!("unknown theme `{}`", t.name),
+                    t.span.clone(),
+                    "not a built-in theme",
+                );
+                d.notes
+                    .push(format!("built-in themes: {}", THEMES.join(", ")));
+                if let Some(s) = s {
+                    d.help = Some(format!("did you mean `{s}`?"));
+                }
+                String::new()
+            }
+        };
+        if frames.is_empty() {
+            self.diags.push(
+                Diagnostic::error("no-frames", "the story has no frames")
+                    .at(
+                        self.src,
+                        self.src.text.len()..self.src.text.len(),
+                        "the story ends here",
+                    )
+                    .help("add `frame \"Headline\" { line VIEW: x COLUMN, y COLUMN }`"),
+            );
+        }
+        let source = h.source.as_ref().map(|s| s.value.clone());
+        let mut planned = Vec::new();
+        let mut state: Option<SeqState> = None;
+        let mut sequence = 0;
+        for (i, f) in frames.iter().enumerate() {
+            if let Some(fp) = self.frame(&h, f, i + 1, &mut state, &mut sequence, &source) {
+                planned.push(fp);
+            }
+        }
+        Some(DeckPlan {
+            title,
+            byline: h.byline.map(|b| b.value),
+            source,
+            theme,
+            conclusion: h.conclusion.map(|c| c.value),
+            frames: planned,
+        })
+    }
+
+    fn check_unique_table(&mut self, name: &Ident) -> bool {
+        if let Some(prev) = self.tables.by_name.get(&name.name) {
+            let prev = prev.decl.clone();
+            let kind = if self.tables.by_name[&name.name].is_data {
+                "data"
+            } else {
+                "view"
+            };
+            self.diags.push(
+                Diagnostic::error(
+                    "duplicate-name",
+                    format!("`{}` is already defined", name.name),
+                )
+                .at(self.src, name.span.clone(), "defined again here")
+                .also(self.src, prev, format!("first defined here as {kind}")),
+            );
+            return false;
+        }
+        true
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn frame(
+        &mut self,
+        h: &Header,
+        f: &ast::FrameDecl,
+        number: usize,
+        state: &mut Option<SeqState>,
+        sequence: &mut usize,
+        source: &Option<String>,
+    ) -> Option<FramePlan> {
+        let mut takeaway: Option<String> = None;
+        let mut notes: Option<String> = None;
+        let before = self.diags.len();
+        for (k, stmt) in f.stmts.iter().enumerate() {
+            match stmt {
+                FrameStmt::Chart(c) => {
+                    if k > 0 {
+                        self.error(
+                            "chart-order",
+                            "the chart statement must come first in its frame",
+                            c.span.clone(),
+                            "move this to the top of the frame",
+                        )
+                        .help = Some("the other statements of a frame apply to its chart".into());
+                        return None;
+                    }
+                    let spec = self.chart_spec(h, c)?;
+                    *state = Some(self.new_sequence(spec, c)?);
+                    *sequence += 1;
+                }
+                other => {
+                    let Some(st) = state.as_mut() else {
+                        self.error(
+                            "no-chart",
+                            "this frame has no chart to apply its statements to",
+                            f.headline.span.clone(),
+                            "first frame without a chart",
+                        )
+                        .help = Some(
+                            "start the first frame with `line VIEW: ...` or `bars VIEW: ...`"
+                                .into(),
+                        );
+                        return None;
+                    };
+                    match other {
+                        FrameStmt::AxisTitle { axis, text, .. } => match axis {
+                            AxisName::X => st.x_title = Some(text.value.clone()),
+                            AxisName::Y => st.y_title = Some(text.value.clone()),
+                        },
+                        FrameStmt::Takeaway { text, span } => {
+                            if takeaway.replace(text.value.clone()).is_some() {
+                                self.error(
+                                    "duplicate",
+                                    "this frame has two takeaways",
+                                    span.clone(),
+                                    "second takeaway",
+                                );
+                            }
+                        }
+                        FrameStmt::Notes { text, span } => {
+                            if notes.replace(text.value.clone()).is_some() {
+                                self.error(
+                                    "duplicate",
+                                    "this frame has two notes",
+                                    span.clone(),
+                                    "second notes",
+                                );
+                            }
+                        }
+                        FrameStmt::Show { targets, span } => {
+                            let names = self.targets(h, st, targets, span, "show")?;
+                            for n in names {
+                                st.hidden.remove(&n);
+                            }
+                        }
+                        FrameStmt::Hide { targets, span } => {
+                            let names = self.targets(h, st, targets, span, "hide")?;
+                            for n in names {
+                                st.spotlight.remove(&n);
+                                st.hidden.insert(n);
+                            }
+                        }
+                        FrameStmt::Spotlight { targets, span } => {
+                            if let Targets::All(s) = targets {
+                                self.error(
+                                    "spotlight-all",
+                                    "a spotlight on everything highlights nothing",
+                                    s.clone(),
+                                    "",
+                                )
+                                .help = Some("use `spotlight none` to remove the spotlight".into());
+                                return None;
+                            }
+                            let names = self.targets(h, st, targets, span, "spotlight")?;
+                            // A spotlight shows what it lights.
+                            for n in &names {
+                                st.hidden.remove(n);
+                            }
+                            st.spotlight = names.into_iter().collect();
+                        }
+                        FrameStmt::Chart(_) => {}
+                    }
+                }
+            }
+        }
+        if self.diags.len() > before {
+            return None;
+        }
+        let Some(st) = state.as_ref() else {
+            self.error(
+                "no-chart",
+                "this frame has no chart",
+                f.headline.span.clone(),
+                "first frame without a chart",
+            )
+            .help = Some("start the first frame with `line VIEW: ...` or `bars VIEW: ...`".into());
+            return None;
+        };
+        Some(FramePlan {
+            number,
+            slug: slug(&f.headline.value),
+            sequence: *sequence,
+            headline: f.headline.value.clone(),
+            takeaway,
+            notes,
+            source: source.clone(),
+            chart: apply_state(st),
+        })
+    }
+
+    /// Resolve the names of a show/hide/spotlight statement.
+    fn targets(
+        &mut self,
+        h: &Header,
+        st: &SeqState,
+        targets: &Targets,
+        span: &ast::Span,
+        verb: &str,
+    ) -> Option<Vec<String>> {
+        let what = if matches!(st.chart, Chart::Bars(_)) {
+            "bar"
+        } else {
+            "series"
+        };
+        let wanted: Vec<Str> = match targets {
+            Targets::All(_) => return Some(st.names.clone()),
+            Targets::None(s) => {
+                if verb == "spotlight" {
+                    return Some(Vec::new());
+                }
+                self.error(
+                    "targets",
+                    format!("`{verb} none` does nothing"),
+                    s.clone(),
+                    "",
+                )
+                .help = Some(format!("name the {what} to {verb}, or write `{verb} all`"));
+                return None;
+            }
+            Targets::Focus(s) => match &h.focus {
+                Some(f) => f.clone(),
+                None => {
+                    self.error(
+                        "no-focus",
+                        "the story has no focus to refer to",
+                        s.clone(),
+                        "`focus` used here",
+                    )
+                    .help = Some("add a top-level line like `focus \"Harbour Loop\"`, or name the series here".into());
+                    return None;
+                }
+            },
+            Targets::Names(n) => n.clone(),
+        };
+        let mut out = Vec::new();
+        let mut ok = true;
+        for w in &wanted {
+            if st.names.contains(&w.value) {
+                out.push(w.value.clone());
+            } else {
+                ok = false;
+                let mut d = Diagnostic::error(
+                    "unknown-series",
+                    format!(
+                        "no {what} named \"{}\" in this chart (`{}` by `{}`)",
+                        w.value, st.view_name, st.key_name
+                    ),
+                )
+                .at(
+                    self.src,
+                    w.span.clone(),
+                    format!("not a {what} of this chart"),
+                )
+                .also(self.src, span.clone(), format!("in this `{verb}`"));
+                if let Some(s) = closest(&w.value, st.names.iter().map(String::as_str)) {
+                    d = d.help(format!("did you mean \"{s}\"?"));
+                } else {
+                    let shown: Vec<String> = st
+                        .names
+                        .iter()
+                        .take(12)
+                        .map(|n| format!("\"{n}\""))
+                        .collect();
+                    d = d.note(format!("the chart has: {}", shown.join(", ")));
+                }
+                self.diags.push(d);
+            }
+        }
+        ok.then_some(out)
+    }
+
+    fn chart_spec(&mut self, h: &Header, c: &ChartStmt) -> Option<ChartSpec> {
+        let named = self.tables.get(self.src, &c.view, self.diags)?;
+        let (table, rest) = (named.table.clone(), named.rest.clone());
+        let schema = schema_of(&table);
+        let view = c.view.name.clone();
+        let (allowed, form_name): (&[OptName], &str) = match c.form {
+            ChartForm::Line => (&[OptName::X, OptName::Y, OptName::Series], "line"),
+            ChartForm::Bars => (
+                &[OptName::Category, OptName::Value, OptName::Ordered],
+                "bars",
+            ),
+        };
+        let mut chosen: Vec<(OptName, Option<&Ident>)> = Vec::new();
+        let mut ok = true;
+        for o in &c.opts {
+            if !allowed.contains(&o.name) {
+                let names: Vec<&str> = allowed.iter().map(|a| a.keyword()).collect();
+                self.error(
+                    "chart-option",
+                    format!("`{}` is not an option of {form_name}", o.name.keyword()),
+                    o.span.clone(),
+                    "not allowed here",
+                )
+                .notes
+                .push(format!("{form_name} takes: {}", names.join(", ")));
+                ok = false;
+                continue;
+            }
+            if chosen.iter().any(|(n, _)| *n == o.name) {
+                self.error(
+                    "chart-option",
+                    format!("`{}` is given twice", o.name.keyword()),
+                    o.span.clone(),
+                    "again here",
+                );
+                ok = false;
+                continue;
+            }
+            let needs_column = o.name != OptName::Ordered;
+            match (&o.column, needs_column) {
+                (None, true) => {
+                    self.error(
+                        "chart-option",
+                        format!("`{}` needs a column name", o.name.keyword()),
+                        o.span.clone(),
+                        "which column?",
+                    );
+                    ok = false;
+                }
+                (Some(col), false) => {
+                    self.error(
+                        "chart-option",
+                        "`ordered` takes no column",
+                        col.span.clone(),
+                        "remove this",
+                    );
+                    ok = false;
+                }
+                _ => chosen.push((o.name, o.column.as_ref())),
+            }
+        }
+        if !ok {
+            return None;
+        }
+        let given = |n: OptName| chosen.iter().find(|(k, _)| *k == n).and_then(|(_, c)| *c);
+        let compare_key = h.compare.as_ref().map(|c| &c.key);
+        let compare_measure = h.compare.as_ref().map(|c| &c.measure);
+        let has = |id: &Ident| schema.iter().any(|(n, _)| *n == id.name);
+        let in_view = format!("in `{view}`");
+        let lookup =
+            |me: &mut Self, id: &Ident| resolve::column(me.src, &schema, &in_view, id, me.diags);
+        match c.form {
+            ChartForm::Line => {
+                let x = match given(OptName::X) {
+                    Some(id) => lookup(self, id)?,
+                    None => {
+                        let times: Vec<usize> = schema
+                            .iter()
+                            .enumerate()
+                            .filter(|(_, (_, t))| t.is_time())
+                            .map(|(i, _)| i)
+                            .collect();
+                        if times.len() != 1 {
+                            self.error(
+                                "chart-option",
+                                "which column runs along x?",
+                                c.span.clone(),
+                                "no `x` given",
+                            )
+                            .help = Some(format!("write `line {view}: x COLUMN, ...`"));
+                            return None;
+                        }
+                        (times[0], schema[times[0]].1)
+                    }
+                };
+                if !(x.1.is_time() || x.1 == ColType::Number) {
+                    let span = given(OptName::X).map_or(c.span.clone(), |i| i.span.clone());
+                    let d = self.error(
+                        "chart-type",
+                        format!(
+                            "a line runs over time or numbers, but `{}` is {}",
+                            schema[x.0].0,
+                            x.1.name()
+                        ),
+                        span,
+                        "not ordered",
+                    );
+                    d.help = Some("use `bars` to compare categories".into());
+                    return None;
+                }
+                let y = match given(OptName::Y).or(compare_measure.filter(|m| has(m))) {
+                    Some(id) => lookup(self, id)?,
+                    None => {
+                        self.error(
+                            "chart-option",
+                            "which column is the measure?",
+                            c.span.clone(),
+                            "no `y` given",
+                        )
+                        .help = Some(format!(
+                            "write `line {view}: y COLUMN`, or declare `compare KEY by MEASURE`"
+                        ));
+                        return None;
+                    }
+                };
+                if y.1 != ColType::Number {
+                    let span = given(OptName::Y).map_or(c.span.clone(), |i| i.span.clone());
+                    let why = self.tables.why_text(&view, &schema[y.0].0);
+                    let d = self.error(
+                        "chart-type",
+                        format!(
+                            "the measure must be a number column, but `{}` is {}",
+                            schema[y.0].0,
+                            y.1.name()
+                        ),
+                        span,
+                        "not a number",
+                    );
+                    d.notes.extend(why);
+                    return None;
+                }
+                let series = match given(OptName::Series).or(compare_key.filter(|k| has(k))) {
+                    Some(id) => Some(lookup(self, id)?.0),
+                    None => None,
+                };
+                Some(ChartSpec {
+                    form: c.form,
+                    table_name: view,
+                    table,
+                    x: x.0,
+                    y: y.0,
+                    series,
+                    ordered: true,
+                    rest,
+                })
+            }
+            ChartForm::Bars => {
+                let cat = match given(OptName::Category).or(compare_key.filter(|k| has(k))) {
+                    Some(id) => lookup(self, id)?,
+                    None => {
+                        self.error(
+                            "chart-option",
+                            "which column holds the categories?",
+                            c.span.clone(),
+                            "no `category` given",
+                        )
+                        .help = Some(format!(
+                            "write `bars {view}: category COLUMN, value COLUMN`"
+                        ));
+                        return None;
+                    }
+                };
+                let val = match given(OptName::Value).or(compare_measure.filter(|m| has(m))) {
+                    Some(id) => lookup(self, id)?,
+                    None => {
+                        self.error(
+                            "chart-option",
+                            "which column holds the values?",
+                            c.span.clone(),
+                            "no `value` given",
+                        )
+                        .help = Some(format!(
+                            "write `bars {view}: category COLUMN, value COLUMN`"
+                        ));
+                        return None;
+                    }
+                };
+                if val.1 != ColType::Number {
+                    let span = given(OptName::Value).map_or(c.span.clone(), |i| i.span.clone());
+                    let why = self.tables.why_text(&view, &schema[val.0].0);
+                    let d = self.error(
+                        "chart-type",
+                        format!(
+                            "bar values must be a number column, but `{}` is {}",
+                            schema[val.0].0,
+                            val.1.name()
+                        ),
+                        span,
+                        "not a number",
+                    );
+                    d.notes.extend(why);
+                    return None;
+                }
+                let ordinal = cat.1.is_time() || cat.1 == ColType::Number;
+                Some(ChartSpec {
+                    form: c.form,
+                    table_name: view,
+                    table,
+                    x: cat.0,
+                    y: val.0,
+                    series: None,
+                    rest,
+                    ordered: ordinal || chosen.iter().any(|(n, _)| *n == OptName::Ordered),
+                })
+            }
+        }
+    }
+
+    /// Build the chart (all series, all roles context) for a new sequence.
+    fn new_sequence(&mut self, spec: ChartSpec, c: &ChartStmt) -> Option<SeqState> {
+        let t = &spec.table;
+        let xcol = &t.columns[spec.x];
+        let ycol = &t.columns[spec.y];
+        if t.columns.first().is_none_or(|c| c.values.is_empty()) {
+            self.error(
+                "empty-view",
+                format!("`{}` has no rows to draw", spec.table_name),
+                c.view.span.clone(),
+                "empty",
+            )
+            .help = Some("check the view's `keep` conditions against the data".into());
+            return None;
+        }
+        match spec.form {
+            ChartForm::Line => {
+                let mut names: Vec<String> = Vec::new();
+                let mut series: Vec<Series> = Vec::new();
+                let mut seen: BTreeSet<(String, i64)> = BTreeSet::new();
+                let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
+                let (mut ylo, mut yhi) = (f64::INFINITY, f64::NEG_INFINITY);
+                for r in 0..xcol.values.len() {
+                    let name = match spec.series {
+                        Some(s) => display(&t.columns[s].values[r]),
+                        None => humanize(&ycol.name),
+                    };
+                    let Some(x) = position(&xcol.values[r]) else {
+                        continue;
+                    };
+                    let y = match &ycol.values[r] {
+                        Value::Number(v) => Some(*v),
+                        _ => None,
+                    };
+                    if !seen.insert((name.clone(), (x * 1e6).round() as i64)) {
+                        self.error(
+                            "duplicate-point",
+                            format!(
+                                "a line needs one value per x and series, but `{}` has several rows for \"{}\" at {}",
+                                spec.table_name,
+                                name,
+                                display(&xcol.values[r])
+                            ),
+                            c.span.clone(),
+                            "in this chart",
+                        )
+                        .help = Some(format!(
+                            "group the view first, e.g. `| by {}{}: ...`",
+                            xcol.name,
+                            spec.series.map_or(String::new(), |s| format!(", {}", t.columns[s].name))
+                        ));
+                        return None;
+                    }
+                    lo = lo.min(x);
+                    hi = hi.max(x);
+                    if let Some(y) = y {
+                        ylo = ylo.min(y);
+                        yhi = yhi.max(y);
+                    }
+                    let idx = match names.iter().position(|n| *n == name) {
+                        Some(i) => i,
+                        None => {
+                            names.push(name.clone());
+                            series.push(Series {
+                                label: name.clone(),
+                                name,
+                                role: Role::Context,
+                                points: Vec::new(),
+                            });
+                            names.len() - 1
+                        }
+                    };
+                    series[idx].points.push(Point { x, y });
+                }
+                if !ylo.is_finite() {
+                    self.error(
+                        "empty-view",
+                        format!(
+                            "`{}` has no values of `{}` to draw",
+                            spec.table_name, ycol.name
+                        ),
+                        c.span.clone(),
+                        "nothing to draw",
+                    );
+                    return None;
+                }
+                for s in &mut series {
+                    s.points.sort_by(|a, b| a.x.total_cmp(&b.x));
+                }
+                let scale_kind = match xcol.ty {
+                    ColType::Month => ScaleKind::Months,
+                    ColType::Date => ScaleKind::Days,
+                    ColType::Year => ScaleKind::Years,
+                    _ => ScaleKind::Linear,
+                };
+                let x = match scale_kind {
+                    ScaleKind::Linear => scale::linear_axis(lo, hi, false, None),
+                    k => scale::time_axis(k, lo, hi, None),
+                };
+                let y = scale::linear_axis(ylo, yhi, false, Some(humanize(&ycol.name)));
+                Some(SeqState {
+                    chart: Chart::Line(LineChart { x, y, series }),
+                    names,
+                    hidden: BTreeSet::new(),
+                    spotlight: BTreeSet::new(),
+                    x_title: None,
+                    y_title: None,
+                    view_name: spec.table_name.clone(),
+                    key_name: spec
+                        .series
+                        .map_or(ycol.name.clone(), |s| t.columns[s].name.clone()),
+                })
+            }
+            ChartForm::Bars => {
+                let mut rows: Vec<(String, Option<f64>, usize)> = Vec::new();
+                for r in 0..xcol.values.len() {
+                    let label = display(&xcol.values[r]);
+                    if rows.iter().any(|(l, _, _)| *l == label) {
+                        self.error(
+                            "duplicate-point",
+                            format!(
+                                "bars need one row per category, but `{}` has several rows for \"{}\"",
+                                spec.table_name, label
+                            ),
+                            c.span.clone(),
+                            "in this chart",
+                        )
+                        .help = Some(format!("group the view first, e.g. `| by {}: ...`", xcol.name));
+                        return None;
+                    }
+                    let v = match &ycol.values[r] {
+                        Value::Number(v) => Some(*v),
+                        _ => None,
+                    };
+                    rows.push((label, v, r));
+                }
+                if spec.ordered {
+                    if xcol.ty.is_time() || xcol.ty == ColType::Number {
+                        rows.sort_by(|a, b| {
+                            let pa = position(&xcol.values[a.2]).unwrap_or(f64::INFINITY);
+                            let pb = position(&xcol.values[b.2]).unwrap_or(f64::INFINITY);
+                            pa.total_cmp(&pb)
+                        });
+                    }
+                } else {
+                    // Largest first; missing values last; ties keep data order.
+                    rows.sort_by(|a, b| match (a.1, b.1) {
+                        (Some(x), Some(y)) => y.total_cmp(&x),
+                        (Some(_), None) => std::cmp::Ordering::Less,
+                        (None, Some(_)) => std::cmp::Ordering::Greater,
+                        (None, None) => std::cmp::Ordering::Equal,
+                    });
+                    // The folded "other" row is not a category to rank.
+                    if let Some(rest) = &spec.rest {
+                        if let Some(i) = rows.iter().position(|r| r.0 == *rest) {
+                            let r = rows.remove(i);
+                            rows.push(r);
+                        }
+                    }
+                }
+                let vals: Vec<f64> = rows.iter().filter_map(|r| r.1).collect();
+                if vals.is_empty() {
+                    self.error(
+                        "empty-view",
+                        format!(
+                            "`{}` has no values of `{}` to draw",
+                            spec.table_name, ycol.name
+                        ),
+                        c.span.clone(),
+                        "nothing to draw",
+                    );
+                    return None;
+                }
+                let lo = vals.iter().copied().fold(f64::INFINITY, f64::min);
+                let hi = vals.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+                let value =
+                    scale::linear_axis(lo.min(0.0), hi.max(0.0), true, Some(humanize(&ycol.name)));
+                let longest = rows.iter().map(|r| r.0.chars().count()).max().unwrap_or(0);
+                let orientation = if !xcol.ty.is_time() && (longest > 10 || rows.len() > 12) {
+                    Orientation::Horizontal
+                } else {
+                    Orientation::Vertical
+                };
+                let step = value
+                    .ticks
+                    .get(1)
+                    .zip(value.ticks.first())
+                    .map_or(1.0, |(b, a)| b.value - a.value);
+                let decimals = decimals_for(step);
+                let bars = rows
+                    .iter()
+                    .map(|(label, v, _)| Bar {
+                        label: label.clone(),
+                        value: *v,
+                        value_label: v.map_or_else(
+                            || "no data".to_string(),
+                            |v| format::number(round_to(v, decimals), None),
+                        ),
+                        role: Role::Context,
+                    })
+                    .collect();
+                Some(SeqState {
+                    names: rows.iter().map(|r| r.0.clone()).collect(),
+                    chart: Chart::Bars(BarChart {
+                        orientation,
+                        category_title: None,
+                        value,
+                        bars,
+                    }),
+                    hidden: BTreeSet::new(),
+                    spotlight: BTreeSet::new(),
+                    x_title: None,
+                    y_title: None,
+                    view_name: spec.table_name.clone(),
+                    key_name: xcol.name.clone(),
+                })
+            }
+        }
+    }
+}
+
+/// Decimals needed to show multiples of `step` exactly (0.25 → 2).
+fn decimals_for(step: f64) -> usize {
+    let mut d = 0;
+    let mut s = step.abs();
+    while d < 6 && (s - s.round()).abs() > 1e-9 * s.max(1.0) {
+        s *= 10.0;
+        d += 1;
+    }
+    d
+}
+
+fn round_to(v: f64, decimals: usize) -> f64 {
+    let p = 10f64.powi(decimals as i32);
+    (v * p).round() / p
+}
+
+/// The chart of the current frame: roles from the visibility and spotlight.
+fn apply_state(st: &SeqState) -> Chart {
+    let visible = st.names.iter().filter(|n| !st.hidden.contains(*n)).count();
+    let role = |name: &str| {
+        if st.hidden.contains(name) {
+            Role::Hidden
+        } else if st.spotlight.contains(name)
+            || (st.spotlight.is_empty() && st.names.len() == 1 && visible == 1)
+        {
+            Role::Focus
+        } else {
+            Role::Context
+        }
+    };
+    match &st.chart {
+        Chart::Line(l) => {
+            let mut l = l.clone();
+            if st.x_title.is_some() {
+                l.x.title = st.x_title.clone();
+            }
+            if st.y_title.is_some() {
+                l.y.title = st.y_title.clone();
+            }
+            for s in &mut l.series {
+                s.role = role(&s.name);
+            }
+            Chart::Line(l)
+        }
+        Chart::Bars(b) => {
+            let mut b = b.clone();
+            if st.x_title.is_some() {
+                b.category_title = st.x_title.clone();
+            }
+            if st.y_title.is_some() {
+                b.value.title = st.y_title.clone();
+            }
+            for bar in &mut b.bars {
+                bar.role = role(&bar.label);
+            }
+            Chart::Bars(b)
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn slugs_are_file_safe_and_bounded() {
+        assert_eq!(
+            slug("Riders on three routes since 2019"),
+            "riders-on-three-routes-since-2019"
+        );
+        assert_eq!(slug("  Ünïcode & «quotes» — 2.3×!  "), "n-code-quotes-2-3");
+        assert_eq!(slug("???"), "frame");
+        let long = slug(
+            "The Harbour Loop now carries more than twice the riders of the Bay Line every month",
+        );
+        assert!(long.len() <= 48, "{long}");
+        assert!(!long.ends_with('-'));
+    }
+
+    #[test]
+    fn humanize_names() {
+        assert_eq!(humanize("riders_per_trip"), "Riders per trip");
+    }
+
+    #[test]
+    fn decimals_of_steps() {
+        assert_eq!(decimals_for(0.25), 2);
+        assert_eq!(decimals_for(50.0), 0);
+        assert_eq!(decimals_for(0.1), 1);
+    }
+}

@@ -1,0 +1,774 @@
+//! Name resolution and type checking of the data and view items: turns the
+//! syntax tree's `data` and `view` items into loaded tables.
+
+use std::collections::BTreeMap;
+use std::path::Path;
+use std::sync::Arc;
+
+use crescendo_data::{
+    self as data, AggFn, Aggregate, ArithOp, CmpOp, ColType, CsvSpec, LoadError, Step, Table, Value,
+};
+use crescendo_diag::{closest, Diagnostic, Source};
+use crescendo_lang::ast::{self, BinOp, Expr, Ident, StepAst};
+
+/// A table known by name, with where it was declared.
+pub struct Named {
+    pub table: Table,
+    pub decl: ast::Span,
+    /// `true` for data items, `false` for views.
+    pub is_data: bool,
+    /// The label of the folded "other" row when the view ends with `top`.
+    pub rest: Option<String>,
+    /// The data item this table derives from (itself for data items).
+    pub root: String,
+}
+
+/// Every data and view table of a story, by name.
+#[derive(Default)]
+pub struct Tables {
+    pub by_name: BTreeMap<String, Named>,
+    /// Names whose item failed; uses of them are not reported again.
+    pub broken: Vec<String>,
+}
+
+impl Tables {
+    /// Why a column is text rather than number: the first cell of the same
+    /// column in the table's data that is not a number, as a note such as
+    /// "`riders` was read as text: data row 14 of `trips` holds `n/a`".
+    pub fn why_text(&self, table: &str, column: &str) -> Option<String> {
+        let root = &self.by_name.get(table)?.root;
+        let data = &self.by_name.get(root)?.table;
+        let col = data.columns.iter().find(|c| c.name == column)?;
+        if col.ty != ColType::Text {
+            return None;
+        }
+        col.values.iter().enumerate().find_map(|(i, v)| match v {
+            Value::Text(t) if data::load::parse_number(t).is_none() => Some(format!(
+                "`{column}` was read as text because data row {} of `{root}` holds `{t}`",
+                i + 1
+            )),
+            _ => None,
+        })
+    }
+
+    /// Look up a table used at `id`; reports unknown names with a suggestion.
+    pub fn get<'a>(
+        &'a self,
+        src: &Arc<Source>,
+        id: &Ident,
+        diags: &mut Vec<Diagnostic>,
+    ) -> Option<&'a Named> {
+        if let Some(n) = self.by_name.get(&id.name) {
+            return Some(n);
+        }
+        if !self.broken.contains(&id.name) {
+            let mut d = Diagnostic::error(
+                "unknown-name",
+                format!("no data or view named `{}`", id.name),
+            )
+            .at(src, id.span.clone(), "not defined before this point");
+            if let Some(s) = closest(&id.name, self.by_name.keys().map(String::as_str)) {
+                d = d.help(format!("did you mean `{s}`?"));
+            } else if !self.by_name.is_empty() {
+                let names: Vec<&str> = self.by_name.keys().map(String::as_str).collect();
+                d = d.note(format!("known tables: {}", names.join(", ")));
+            }
+            diags.push(d);
+        }
+        None
+    }
+}
+
+/// A column name and type.
+pub type Schema = Vec<(String, ColType)>;
+
+pub fn schema_of(t: &Table) -> Schema {
+    t.columns.iter().map(|c| (c.name.clone(), c.ty)).collect()
+}
+
+/// Find a column; reports unknown names with a suggestion. `table_name` says
+/// where the column was looked for ("in `monthly`", "at this step of
+/// `monthly`").
+pub fn column(
+    src: &Arc<Source>,
+    schema: &Schema,
+    table_name: &str,
+    id: &Ident,
+    diags: &mut Vec<Diagnostic>,
+) -> Option<(usize, ColType)> {
+    if let Some(i) = schema.iter().position(|(n, _)| *n == id.name) {
+        return Some((i, schema[i].1));
+    }
+    let mut d = Diagnostic::error(
+        "unknown-column",
+        format!("no column named `{}` {table_name}", id.name),
+    )
+    .at(src, id.span.clone(), "unknown column");
+    if let Some(s) = closest(&id.name, schema.iter().map(|(n, _)| n.as_str())) {
+        d = d.help(format!("did you mean `{s}`?"));
+    }
+    let names: Vec<&str> = schema.iter().map(|(n, _)| n.as_str()).collect();
+    diags.push(d.note(format!("columns here: {}", names.join(", "))));
+    None
+}
+
+fn col_type(src: &Arc<Source>, id: &Ident, diags: &mut Vec<Diagnostic>) -> Option<ColType> {
+    Some(match id.name.as_str() {
+        "text" => ColType::Text,
+        "number" => ColType::Number,
+        "date" => ColType::Date,
+        "month" => ColType::Month,
+        "year" => ColType::Year,
+        other => {
+            let mut d = Diagnostic::error("unknown-type", format!("unknown column type `{other}`"))
+                .at(src, id.span.clone(), "not a type")
+                .note("column types are text, number, date (YYYY-MM-DD), month (YYYY-MM) and year (YYYY)");
+            if let Some(s) = closest(other, ["text", "number", "date", "month", "year"]) {
+                d = d.help(format!("did you mean `{s}`?"));
+            }
+            diags.push(d);
+            return None;
+        }
+    })
+}
+
+/// Load one `data` item.
+pub fn load_data(
+    src: &Arc<Source>,
+    story_dir: &Path,
+    decl: &ast::DataDecl,
+    diags: &mut Vec<Diagnostic>,
+) -> Option<Table> {
+    let mut declared = Vec::new();
+    let mut ok = true;
+    for c in &decl.columns {
+        if declared
+            .iter()
+            .any(|(n, _): &(String, ColType)| *n == c.name.name)
+        {
+            diags.push(
+                Diagnostic::error(
+                    "duplicate-name",
+                    format!("column `{}` is declared twice", c.name.name),
+                )
+                .at(src, c.name.span.clone(), "declared again here"),
+            );
+            ok = false;
+            continue;
+        }
+        match col_type(src, &c.ty, diags) {
+            Some(t) => declared.push((c.name.name.clone(), t)),
+            None => ok = false,
+        }
+    }
+    if !ok {
+        return None;
+    }
+    let path = story_dir.join(&decl.file.value);
+    let spec = CsvSpec {
+        display_name: path.display().to_string(),
+        path,
+        declared,
+        missing: match &decl.missing {
+            Some(m) => m.iter().map(|s| s.value.clone()).collect(),
+            None => vec![String::new(), "NA".to_string()],
+        },
+    };
+    match data::load_csv(&spec) {
+        Ok(t) => Some(t),
+        Err(LoadError::Csv(d)) => {
+            diags.push(d.also(
+                src,
+                decl.file.span.clone(),
+                format!("while loading `{}`", decl.name.name),
+            ));
+            None
+        }
+        Err(LoadError::Story {
+            code,
+            message,
+            help,
+            declared,
+        }) => {
+            let span = match declared {
+                Some(i) => decl
+                    .columns
+                    .get(i)
+                    .map_or(decl.file.span.clone(), |c| c.name.span.clone()),
+                None => decl.file.span.clone(),
+            };
+            let mut d = Diagnostic::error(code, message).at(src, span, "");
+            d.help = help;
+            diags.push(d);
+            None
+        }
+    }
+}
+
+/// The type of an expression while checking it.
+#[derive(Clone, Debug, PartialEq)]
+enum Ty {
+    Col(ColType),
+    Bool,
+    /// A string literal: text, or a date/month/year when compared to one.
+    TextLit(String),
+}
+
+impl Ty {
+    fn describe(&self) -> String {
+        match self {
+            Ty::Col(c) => c.name().to_string(),
+            Ty::Bool => "true/false".to_string(),
+            Ty::TextLit(_) => "text".to_string(),
+        }
+    }
+}
+
+struct Checker<'a> {
+    src: &'a Arc<Source>,
+    schema: &'a Schema,
+    table: &'a str,
+    diags: &'a mut Vec<Diagnostic>,
+    why: &'a dyn Fn(&str) -> Option<String>,
+}
+
+impl Checker<'_> {
+    fn err(&mut self, span: ast::Span, message: String, label: &str) {
+        self.diags
+            .push(Diagnostic::error("type", message).at(self.src, span, label.to_string()));
+    }
+
+    /// A literal coerced to `ty`, or an error at `span`.
+    fn literal_as(&mut self, lit: &Expr, ty: ColType) -> Option<Value> {
+        let span = lit.span();
+        match (lit, ty) {
+            (Expr::Number { value, .. }, ColType::Number) => Some(Value::Number(*value)),
+            (Expr::Number { value, .. }, ColType::Year) if value.fract() == 0.0 => {
+                Some(Value::Year(*value as i32))
+            }
+            (Expr::Text(s), ColType::Text) => Some(Value::Text(s.value.clone())),
+            (Expr::Text(s), ColType::Month) => match data::time::parse_month(&s.value) {
+                Some(m) => Some(Value::Month(m)),
+                None => {
+                    self.err(
+                        span,
+                        format!("\"{}\" is not a month (write YYYY-MM)", s.value),
+                        "not a month",
+                    );
+                    None
+                }
+            },
+            (Expr::Text(s), ColType::Date) => match data::time::parse_date(&s.value) {
+                Some(d) => Some(Value::Date(d)),
+                None => {
+                    self.err(
+                        span,
+                        format!("\"{}\" is not a date (write YYYY-MM-DD)", s.value),
+                        "not a date",
+                    );
+                    None
+                }
+            },
+            (Expr::Text(s), ColType::Year) => match data::time::parse_year(&s.value) {
+                Some(y) => Some(Value::Year(y)),
+                None => {
+                    self.err(
+                        span,
+                        format!("\"{}\" is not a year (write YYYY)", s.value),
+                        "not a year",
+                    );
+                    None
+                }
+            },
+            (_, ty) => {
+                self.err(
+                    span,
+                    format!("this value cannot be compared with a {} column", ty.name()),
+                    "wrong type",
+                );
+                None
+            }
+        }
+    }
+
+    fn check(&mut self, e: &Expr) -> Option<(data::Expr, Ty)> {
+        match e {
+            Expr::Column(id) => {
+                let (i, t) = column(self.src, self.schema, self.table, id, self.diags)?;
+                Some((data::Expr::Col(i), Ty::Col(t)))
+            }
+            Expr::Number { value, .. } => Some((
+                data::Expr::Lit(Value::Number(*value)),
+                Ty::Col(ColType::Number),
+            )),
+            Expr::Text(s) => Some((
+                data::Expr::Lit(Value::Text(s.value.clone())),
+                Ty::TextLit(s.value.clone()),
+            )),
+            Expr::Neg { expr, span } => {
+                let (x, t) = self.check(expr)?;
+                if t != Ty::Col(ColType::Number) {
+                    self.err(
+                        span.clone(),
+                        format!("`-` needs a number, not {}", t.describe()),
+                        "not a number",
+                    );
+                    return None;
+                }
+                Some((data::Expr::Neg(Box::new(x)), t))
+            }
+            Expr::Not { expr, span } => {
+                let (x, t) = self.check(expr)?;
+                if t != Ty::Bool {
+                    self.err(
+                        span.clone(),
+                        format!("`not` needs a condition, not {}", t.describe()),
+                        "not a condition",
+                    );
+                    return None;
+                }
+                Some((data::Expr::Not(Box::new(x)), Ty::Bool))
+            }
+            Expr::In {
+                expr,
+                list,
+                negated,
+                span,
+            } => {
+                let (x, t) = self.check(expr)?;
+                let ty = match t {
+                    Ty::Col(c) => c,
+                    _ => {
+                        self.err(
+                            span.clone(),
+                            "`in` needs a column on its left".into(),
+                            "not a column",
+                        );
+                        return None;
+                    }
+                };
+                let mut values = Vec::new();
+                for l in list {
+                    values.push(self.literal_as(l, ty)?);
+                }
+                let inn = data::Expr::In(Box::new(x), values);
+                Some((
+                    if *negated {
+                        data::Expr::Not(Box::new(inn))
+                    } else {
+                        inn
+                    },
+                    Ty::Bool,
+                ))
+            }
+            Expr::Binary {
+                op,
+                left,
+                right,
+                span,
+            } => {
+                let (op, left, right) = (*op, left.as_ref(), right.as_ref());
+                match op {
+                    BinOp::And | BinOp::Or => {
+                        let (l, lt) = self.check(left)?;
+                        let (r, rt) = self.check(right)?;
+                        for (t, side) in [(&lt, left), (&rt, right)] {
+                            if *t != Ty::Bool {
+                                self.err(
+                                    side.span(),
+                                    format!(
+                                        "`{}` joins conditions, but this is {}",
+                                        op.symbol(),
+                                        t.describe()
+                                    ),
+                                    "not a condition",
+                                );
+                                return None;
+                            }
+                        }
+                        let (l, r) = (Box::new(l), Box::new(r));
+                        Some((
+                            if op == BinOp::And {
+                                data::Expr::And(l, r)
+                            } else {
+                                data::Expr::Or(l, r)
+                            },
+                            Ty::Bool,
+                        ))
+                    }
+                    BinOp::Add | BinOp::Sub | BinOp::Mul | BinOp::Div => {
+                        let (l, lt) = self.check(left)?;
+                        let (r, rt) = self.check(right)?;
+                        for (t, side) in [(&lt, left), (&rt, right)] {
+                            if *t != Ty::Col(ColType::Number) {
+                                self.err(
+                                    side.span(),
+                                    format!(
+                                        "`{}` needs numbers, but this is {}",
+                                        op.symbol(),
+                                        t.describe()
+                                    ),
+                                    "not a number",
+                                );
+                                if let Expr::Column(id) = side {
+                                    if let Some(n) = (self.why)(&id.name) {
+                                        if let Some(d) = self.diags.last_mut() {
+                                            d.notes.push(n);
+                                        }
+                                    }
+                                }
+                                return None;
+                            }
+                        }
+                        let aop = match op {
+                            BinOp::Add => ArithOp::Add,
+                            BinOp::Sub => ArithOp::Sub,
+                            BinOp::Mul => ArithOp::Mul,
+                            _ => ArithOp::Div,
+                        };
+                        Some((
+                            data::Expr::Arith(aop, Box::new(l), Box::new(r)),
+                            Ty::Col(ColType::Number),
+                        ))
+                    }
+                    _ => {
+                        let cop = match op {
+                            BinOp::Eq => CmpOp::Eq,
+                            BinOp::Ne => CmpOp::Ne,
+                            BinOp::Lt => CmpOp::Lt,
+                            BinOp::Le => CmpOp::Le,
+                            BinOp::Gt => CmpOp::Gt,
+                            _ => CmpOp::Ge,
+                        };
+                        let (l, lt) = self.check(left)?;
+                        let (r, rt) = self.check(right)?;
+                        let (l, r) = match (&lt, &rt) {
+                            (Ty::Col(a), Ty::Col(b)) if a == b => (l, r),
+                            (Ty::Col(c), Ty::Col(ColType::Number)) if *c == ColType::Year => {
+                                (l, data::Expr::Lit(self.literal_as(right, ColType::Year)?))
+                            }
+                            (Ty::Col(c), Ty::TextLit(_)) => {
+                                (l, data::Expr::Lit(self.literal_as(right, *c)?))
+                            }
+                            (Ty::TextLit(_), Ty::Col(c)) => {
+                                (data::Expr::Lit(self.literal_as(left, *c)?), r)
+                            }
+                            (Ty::TextLit(_), Ty::TextLit(_)) => (l, r),
+                            _ => {
+                                self.err(
+                                    span.clone(),
+                                    format!(
+                                        "cannot compare {} with {}",
+                                        lt.describe(),
+                                        rt.describe()
+                                    ),
+                                    "mismatched types",
+                                );
+                                return None;
+                            }
+                        };
+                        Some((data::Expr::Cmp(cop, Box::new(l), Box::new(r)), Ty::Bool))
+                    }
+                }
+            }
+        }
+    }
+}
+
+fn agg_fn(src: &Arc<Source>, id: &Ident, diags: &mut Vec<Diagnostic>) -> Option<AggFn> {
+    const NAMES: [&str; 8] = [
+        "sum", "mean", "median", "min", "max", "count", "first", "last",
+    ];
+    Some(match id.name.as_str() {
+        "sum" => AggFn::Sum,
+        "mean" => AggFn::Mean,
+        "median" => AggFn::Median,
+        "min" => AggFn::Min,
+        "max" => AggFn::Max,
+        "count" => AggFn::Count,
+        "first" => AggFn::First,
+        "last" => AggFn::Last,
+        other => {
+            let mut d = Diagnostic::error("unknown-name", format!("unknown aggregate `{other}`"))
+                .at(src, id.span.clone(), "not an aggregate")
+                .note(format!("aggregates are {}", NAMES.join(", ")));
+            if let Some(s) = closest(other, NAMES) {
+                d = d.help(format!("did you mean `{s}`?"));
+            }
+            diags.push(d);
+            return None;
+        }
+    })
+}
+
+fn check_new_name(
+    src: &Arc<Source>,
+    schema: &Schema,
+    id: &Ident,
+    diags: &mut Vec<Diagnostic>,
+) -> bool {
+    if schema.iter().any(|(n, _)| *n == id.name) {
+        diags.push(
+            Diagnostic::error(
+                "duplicate-name",
+                format!("a column named `{}` already exists here", id.name),
+            )
+            .at(src, id.span.clone(), "name taken")
+            .help("choose another name"),
+        );
+        return false;
+    }
+    true
+}
+
+/// Type-check one view's steps against its input and run them. Returns the
+/// table and the label of its folded "other" row (see [`Named::rest`]).
+pub fn build_view(
+    src: &Arc<Source>,
+    decl: &ast::ViewDecl,
+    tables: &Tables,
+    input: &Named,
+    diags: &mut Vec<Diagnostic>,
+) -> Option<(Table, Option<String>)> {
+    let why = |col: &str| tables.why_text(&decl.input.name, col);
+    let mut table = input.table.clone();
+    let mut rest_label = input.rest.clone();
+    for step in &decl.steps {
+        let schema = schema_of(&table);
+        let before = diags.len();
+        let at_step = format!("at this step of `{}`", decl.name.name);
+        let name = at_step.as_str();
+        let resolved = match step {
+            StepAst::Keep { expr, .. } => {
+                let mut ck = Checker {
+                    src,
+                    schema: &schema,
+                    table: name,
+                    diags,
+                    why: &why,
+                };
+                match ck.check(expr) {
+                    Some((e, Ty::Bool)) => Some(Step::Keep(e)),
+                    Some((_, t)) => {
+                        ck.err(
+                            expr.span(),
+                            format!("`keep` needs a condition, but this is {}", t.describe()),
+                            "not a condition",
+                        );
+                        None
+                    }
+                    None => None,
+                }
+            }
+            StepAst::Add {
+                name: new, expr, ..
+            } => {
+                if !check_new_name(src, &schema, new, diags) {
+                    None
+                } else {
+                    let mut ck = Checker {
+                        src,
+                        schema: &schema,
+                        table: name,
+                        diags,
+                        why: &why,
+                    };
+                    match ck.check(expr) {
+                        Some((e, Ty::Col(ColType::Number))) => Some(Step::Derive {
+                            name: new.name.clone(),
+                            expr: e,
+                        }),
+                        Some((_, t)) => {
+                            ck.err(
+                                expr.span(),
+                                format!("`add` computes a number, but this is {}", t.describe()),
+                                "not a number",
+                            );
+                            None
+                        }
+                        None => None,
+                    }
+                }
+            }
+            StepAst::By {
+                keys, aggregates, ..
+            } => {
+                let mut key_idx = Vec::new();
+                let mut out: Schema = Vec::new();
+                for k in keys {
+                    if let Some((i, t)) = column(src, &schema, name, k, diags) {
+                        if key_idx.contains(&i) {
+                            diags.push(
+                                Diagnostic::error(
+                                    "duplicate-name",
+                                    format!("`{}` is already a key", k.name),
+                                )
+                                .at(
+                                    src,
+                                    k.span.clone(),
+                                    "repeated key",
+                                ),
+                            );
+                        }
+                        key_idx.push(i);
+                        out.push((k.name.clone(), t));
+                    }
+                }
+                let mut aggs = Vec::new();
+                for a in aggregates {
+                    if !check_new_name(src, &out, &a.name, diags) {
+                        continue;
+                    }
+                    let Some(func) = agg_fn(src, &a.func, diags) else {
+                        continue;
+                    };
+                    let col = match &a.column {
+                        None if func == AggFn::Count => None,
+                        None => {
+                            diags.push(
+                                Diagnostic::error(
+                                    "type",
+                                    format!("`{}` needs a column", a.func.name),
+                                )
+                                .at(src, a.span.clone(), "no column given")
+                                .help(format!("write `{} = {}(COLUMN)`", a.name.name, a.func.name)),
+                            );
+                            continue;
+                        }
+                        Some(c) => {
+                            let Some((i, t)) = column(src, &schema, name, c, diags) else {
+                                continue;
+                            };
+                            let numeric = matches!(func, AggFn::Sum | AggFn::Mean | AggFn::Median);
+                            if numeric && t != ColType::Number {
+                                diags.push(
+                                    Diagnostic::error(
+                                        "type",
+                                        format!(
+                                            "`{}` needs a number column, but `{}` is {}",
+                                            a.func.name,
+                                            c.name,
+                                            t.name()
+                                        ),
+                                    )
+                                    .at(
+                                        src,
+                                        c.span.clone(),
+                                        "not a number column",
+                                    ),
+                                );
+                                if let (Some(n), Some(d)) = (why(&c.name), diags.last_mut()) {
+                                    d.notes.push(n);
+                                }
+                                continue;
+                            }
+                            Some(i)
+                        }
+                    };
+                    let ty = match (func, col) {
+                        (AggFn::Count | AggFn::Sum | AggFn::Mean | AggFn::Median, _) => {
+                            ColType::Number
+                        }
+                        (_, Some(i)) => schema[i].1,
+                        (_, None) => ColType::Number,
+                    };
+                    out.push((a.name.name.clone(), ty));
+                    aggs.push(Aggregate {
+                        name: a.name.name.clone(),
+                        func,
+                        column: col,
+                    });
+                }
+                Some(Step::Group {
+                    keys: key_idx,
+                    aggregates: aggs,
+                })
+            }
+            StepAst::Sort { keys, .. } => {
+                let mut out = Vec::new();
+                for k in keys {
+                    if let Some((i, _)) = column(src, &schema, name, &k.column, diags) {
+                        out.push((i, k.descending));
+                    }
+                }
+                Some(Step::Sort { keys: out })
+            }
+            StepAst::Top {
+                n,
+                n_span,
+                key,
+                by,
+                rest,
+                ..
+            } => {
+                let k = column(src, &schema, name, key, diags);
+                let b = column(src, &schema, name, by, diags);
+                if *n == 0 {
+                    diags.push(Diagnostic::error("type", "`top 0` would keep nothing").at(
+                        src,
+                        n_span.clone(),
+                        "must be 1 or more",
+                    ));
+                }
+                match (k, b) {
+                    (Some((ki, kt)), Some((bi, bt))) => {
+                        if kt != ColType::Text {
+                            diags.push(
+                                Diagnostic::error(
+                                    "type",
+                                    format!(
+                                        "`top` folds text categories, but `{}` is {}",
+                                        key.name,
+                                        kt.name()
+                                    ),
+                                )
+                                .at(
+                                    src,
+                                    key.span.clone(),
+                                    "not a text column",
+                                ),
+                            );
+                        }
+                        if bt != ColType::Number {
+                            diags.push(
+                                Diagnostic::error(
+                                    "type",
+                                    format!(
+                                        "`top` ranks by a number column, but `{}` is {}",
+                                        by.name,
+                                        bt.name()
+                                    ),
+                                )
+                                .at(
+                                    src,
+                                    by.span.clone(),
+                                    "not a number column",
+                                ),
+                            );
+                        }
+                        Some(Step::Top {
+                            key: ki,
+                            by: bi,
+                            n: usize::try_from(*n).unwrap_or(usize::MAX),
+                            rest: rest
+                                .as_ref()
+                                .map_or_else(|| "Other".to_string(), |r| r.value.clone()),
+                        })
+                    }
+                    _ => None,
+                }
+            }
+        };
+        if diags.len() > before {
+            return None;
+        }
+        let step = resolved?;
+        match &step {
+            Step::Top { rest, .. } => rest_label = Some(rest.clone()),
+            Step::Group { keys, .. } if keys.is_empty() => rest_label = None,
+            _ => {}
+        }
+        table = data::run_view(&table, std::slice::from_ref(&step));
+    }
+    Some((table, rest_label))
+}

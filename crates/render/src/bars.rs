@@ -1,0 +1,349 @@
+//! Bar charts from zero, vertical or horizontal. Category labels are never
+//! rotated: vertical bars wrap them onto two lines under the bar, horizontal
+//! bars right-align them in a column at the left. Focus bars carry their
+//! value at the bar end; hidden bars leave their slot empty.
+
+use crate::canvas::{Align, Canvas, Label, WIDTH};
+use crate::layout::{self, fit_label, label_step, map, max_width, Region, LABEL_SIZE};
+use crate::metrics::{line_height, text_width};
+use crate::theme::Theme;
+use crate::RenderError;
+use crescendo_plan::{Bar, BarChart, Orientation, Role};
+
+/// Space between a label column and the plot.
+const PAD: f64 = 12.0;
+/// Space between a bar end and its value label.
+const VALUE_GAP: f64 = 6.0;
+/// Share of a category band filled by the bar.
+const BAR_SHARE: f64 = 0.62;
+/// Widest category column of horizontal bars, as a share of the canvas.
+const MAX_CATEGORY_SHARE: f64 = 0.3;
+
+fn bar_color(theme: &Theme, bar: &Bar) -> Option<crate::theme::Rgb> {
+    match bar.role {
+        Role::Focus => Some(theme.accent),
+        Role::Context => Some(theme.context),
+        Role::Hidden => None,
+    }
+}
+
+/// The value axis domain, widened to include zero (bars start at zero).
+fn value_domain(chart: &BarChart) -> [f64; 2] {
+    let [a, b] = chart.value.domain;
+    [a.min(b).min(0.0), a.max(b).max(0.0)]
+}
+
+fn muted_label<'a>(theme: &Theme, text: &'a str, x: f64, top: f64, align: Align) -> Label<'a> {
+    Label {
+        text,
+        x,
+        top,
+        size: LABEL_SIZE,
+        bold: false,
+        color: theme.muted,
+        align,
+    }
+}
+
+pub(crate) fn draw(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &BarChart,
+    region: Region,
+) -> Result<(), RenderError> {
+    layout::check_axis(&chart.value, "value")?;
+    match chart.orientation {
+        Orientation::Vertical => vertical(canvas, theme, chart, region),
+        Orientation::Horizontal => horizontal(canvas, theme, chart, region),
+    }
+}
+
+fn vertical(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &BarChart,
+    region: Region,
+) -> Result<(), RenderError> {
+    let lh = line_height(LABEL_SIZE);
+    let step = label_step();
+    let domain = value_domain(chart);
+    let ticks = layout::visible_ticks(&chart.value);
+    let tick_w = max_width(ticks.iter().map(|(_, l)| l.as_str()), LABEL_SIZE, false);
+    let plot_left = if tick_w > 0.0 {
+        region.left + tick_w + PAD
+    } else {
+        region.left
+    };
+    let plot_right = region.right;
+    let n = chart.bars.len().max(1);
+    let band = (plot_right - plot_left) / n as f64;
+    let cat_w = band - 8.0;
+    let two_lines = chart
+        .bars
+        .iter()
+        .any(|b| text_width(&crate::metrics::normalize(&b.label), LABEL_SIZE, false) > cat_w);
+    let cat_lines = if two_lines { 2 } else { 1 };
+
+    let mut top = region.top;
+    if let Some(title) = chart.value.title.as_deref() {
+        let text = fit_label(title, region.right - region.left, 1, false).join(" ");
+        canvas.text(&muted_label(theme, &text, region.left, top, Align::Start))?;
+        top += lh + 8.0;
+    }
+    let mut bottom = region.bottom;
+    if let Some(title) = chart.category_title.as_deref() {
+        bottom -= lh;
+        let text = fit_label(title, plot_right - plot_left, 1, false).join(" ");
+        canvas.text(&muted_label(
+            theme,
+            &text,
+            (plot_left + plot_right) / 2.0,
+            bottom,
+            Align::Middle,
+        ))?;
+        bottom -= 6.0;
+    }
+    let cat_top = bottom - (cat_lines - 1) as f64 * step - lh;
+    // Room for value labels above positive and below negative bars.
+    let value_top = top + lh + VALUE_GAP;
+    let mut value_bottom = cat_top - 10.0;
+    if domain[0] < 0.0 {
+        value_bottom -= lh + VALUE_GAP;
+    }
+    let vmap = |v: f64| map(v, domain, value_bottom, value_top);
+
+    let spans: Vec<(f64, f64)> = ticks
+        .iter()
+        .map(|(v, _)| (vmap(*v) - lh / 2.0, vmap(*v) + lh / 2.0))
+        .collect();
+    for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
+        if keep {
+            canvas.text(&muted_label(
+                theme,
+                text,
+                region.left + tick_w,
+                vmap(*v) - lh / 2.0,
+                Align::End,
+            ))?;
+        }
+    }
+
+    let zero = vmap(0.0);
+    let bar_w = (band * BAR_SHARE).min(160.0);
+    for (i, bar) in chart.bars.iter().enumerate() {
+        let centre = plot_left + (i as f64 + 0.5) * band;
+        for (k, line) in fit_label(&bar.label, cat_w, cat_lines, false)
+            .iter()
+            .enumerate()
+        {
+            canvas.text(&muted_label(
+                theme,
+                line,
+                centre,
+                cat_top + k as f64 * step,
+                Align::Middle,
+            ))?;
+        }
+        let (Some(color), Some(value)) =
+            (bar_color(theme, bar), bar.value.filter(|v| v.is_finite()))
+        else {
+            continue;
+        };
+        let end = vmap(value);
+        canvas.rect(
+            (centre - bar_w / 2.0, zero),
+            (centre + bar_w / 2.0, end),
+            color,
+        )?;
+        if bar.role == Role::Focus {
+            let label_top = if value >= 0.0 {
+                end - VALUE_GAP - lh
+            } else {
+                end + VALUE_GAP
+            };
+            canvas.text(&Label {
+                text: &crate::metrics::normalize(&bar.value_label),
+                x: centre,
+                top: label_top,
+                size: LABEL_SIZE,
+                bold: true,
+                color: theme.accent,
+                align: Align::Middle,
+            })?;
+        }
+    }
+    canvas.line(
+        (plot_left, zero),
+        (plot_right, zero),
+        theme.baseline,
+        theme.baseline_stroke,
+    )
+}
+
+fn horizontal(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &BarChart,
+    region: Region,
+) -> Result<(), RenderError> {
+    let lh = line_height(LABEL_SIZE);
+    let step = label_step();
+    let domain = value_domain(chart);
+    let ticks = layout::visible_ticks(&chart.value);
+
+    let mut top = region.top;
+    if let Some(title) = chart.category_title.as_deref() {
+        let text = fit_label(title, region.right - region.left, 1, false).join(" ");
+        canvas.text(&muted_label(theme, &text, region.left, top, Align::Start))?;
+        top += lh + 8.0;
+    }
+    let plot_top = top;
+    let mut bottom = region.bottom;
+    let value_title_top = chart.value.title.as_ref().map(|_| {
+        bottom -= lh;
+        let t = bottom;
+        bottom -= 4.0;
+        t
+    });
+    let tick_top = bottom - lh;
+    let plot_bottom = tick_top - 8.0;
+
+    let n = chart.bars.len().max(1);
+    let band = (plot_bottom - plot_top) / n as f64;
+    let cap = WIDTH as f64 * MAX_CATEGORY_SHARE;
+    let widest = max_width(
+        chart.bars.iter().map(|b| b.label.as_str()),
+        LABEL_SIZE,
+        false,
+    );
+    let col_w = widest.min(cap);
+    let cat_lines = if widest > cap && band >= 2.0 * step {
+        2
+    } else {
+        1
+    };
+    let col_right = region.left + col_w;
+    let plot_left = col_right + PAD;
+    let plot_right = region.right;
+
+    // Room for value labels beyond the ends of the bars.
+    let value_w = max_width(
+        chart.bars.iter().map(|b| b.value_label.as_str()),
+        LABEL_SIZE,
+        true,
+    );
+    let right_pad = if domain[1] > 0.0 {
+        value_w + VALUE_GAP
+    } else {
+        0.0
+    };
+    let left_pad = if domain[0] < 0.0 {
+        value_w + VALUE_GAP
+    } else {
+        0.0
+    };
+    let (value_left, value_right) = (plot_left + left_pad, plot_right - right_pad);
+    let vmap = |v: f64| map(v, domain, value_left, value_right);
+
+    if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
+        let text = fit_label(title, plot_right - plot_left, 1, false).join(" ");
+        canvas.text(&muted_label(
+            theme,
+            &text,
+            (value_left + value_right) / 2.0,
+            t,
+            Align::Middle,
+        ))?;
+    }
+    let placed: Vec<(f64, String)> = ticks
+        .iter()
+        .map(|(v, text)| {
+            let w = text_width(text, LABEL_SIZE, false);
+            (
+                vmap(*v)
+                    .max(region.left + w / 2.0)
+                    .min(plot_right - w / 2.0),
+                text.clone(),
+            )
+        })
+        .collect();
+    let spans: Vec<(f64, f64)> = placed
+        .iter()
+        .map(|(c, t)| {
+            let w = text_width(t, LABEL_SIZE, false);
+            (c - w / 2.0, c + w / 2.0)
+        })
+        .collect();
+    for ((centre, text), keep) in placed.iter().zip(layout::thin(&spans, 12.0)) {
+        if keep {
+            canvas.text(&muted_label(theme, text, *centre, tick_top, Align::Middle))?;
+        }
+    }
+
+    let zero = vmap(0.0);
+    let bar_h = (band * BAR_SHARE).min(56.0);
+    let labels: Vec<(f64, Vec<String>)> = chart
+        .bars
+        .iter()
+        .enumerate()
+        .map(|(i, bar)| {
+            let centre = plot_top + (i as f64 + 0.5) * band;
+            let lines = fit_label(&bar.label, col_w, cat_lines, false);
+            let first_top = centre - ((lines.len().max(1) - 1) as f64 * step + lh) / 2.0;
+            (first_top, lines)
+        })
+        .collect();
+    // Safety net for more categories than rows: never let labels collide.
+    let spans: Vec<(f64, f64)> = labels
+        .iter()
+        .map(|(t, lines)| (*t, t + (lines.len().max(1) - 1) as f64 * step + lh))
+        .collect();
+    let keep = layout::thin(&spans, 0.0);
+    for (i, bar) in chart.bars.iter().enumerate() {
+        let centre = plot_top + (i as f64 + 0.5) * band;
+        let (first_top, lines) = &labels[i];
+        let lines: &[String] = if keep[i] { lines } else { &[] };
+        for (k, line) in lines.iter().enumerate() {
+            canvas.text(&muted_label(
+                theme,
+                line,
+                col_right,
+                first_top + k as f64 * step,
+                Align::End,
+            ))?;
+        }
+        let (Some(color), Some(value)) =
+            (bar_color(theme, bar), bar.value.filter(|v| v.is_finite()))
+        else {
+            continue;
+        };
+        let end = vmap(value);
+        canvas.rect(
+            (zero, centre - bar_h / 2.0),
+            (end, centre + bar_h / 2.0),
+            color,
+        )?;
+        if bar.role == Role::Focus {
+            let (x, align) = if value >= 0.0 {
+                (end + VALUE_GAP, Align::Start)
+            } else {
+                (end - VALUE_GAP, Align::End)
+            };
+            canvas.text(&Label {
+                text: &crate::metrics::normalize(&bar.value_label),
+                x,
+                top: centre - lh / 2.0,
+                size: LABEL_SIZE,
+                bold: true,
+                color: theme.accent,
+                align,
+            })?;
+        }
+    }
+    canvas.line(
+        (zero, plot_top),
+        (zero, plot_bottom),
+        theme.baseline,
+        theme.baseline_stroke,
+    )
+}

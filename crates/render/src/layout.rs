@@ -1,0 +1,369 @@
+//! Frame-level layout shared by every chart form: type sizes, margins, the
+//! headline block at the top left, the source note at the bottom left, and
+//! the rectangle left for the chart.
+//!
+//! Everything that decides where the chart goes is computed over the whole
+//! build-up sequence the frame belongs to, so the axes of consecutive frames
+//! of one sequence coincide exactly even when their headlines wrap
+//! differently.
+
+use crate::canvas::{Align, Canvas, Label, HEIGHT, WIDTH};
+use crate::metrics::{self, line_height, text_width};
+use crate::theme::Theme;
+use crate::RenderError;
+use crescendo_plan::{Axis, DeckPlan, FramePlan};
+
+/// Headline size in px (bold). (30 cannot be written exactly through
+/// plotters' `size / 1.24`; 32 can.)
+pub const HEADLINE_SIZE: f64 = 32.0;
+/// Takeaway size in px.
+pub const TAKEAWAY_SIZE: f64 = 20.0;
+/// Tick labels, axis titles, category labels and direct labels, in px.
+pub const LABEL_SIZE: f64 = 16.0;
+/// Source note size in px; the smallest text drawn.
+pub const SOURCE_SIZE: f64 = 14.0;
+
+/// Left and right page margin.
+pub const MARGIN_X: f64 = 56.0;
+/// Top page margin (to the top of the headline box).
+pub const MARGIN_TOP: f64 = 36.0;
+/// Bottom page margin (below the source note box).
+pub const MARGIN_BOTTOM: f64 = 26.0;
+
+const HEADLINE_STEP: f64 = 40.0;
+const TAKEAWAY_STEP: f64 = 25.0;
+const HEADLINE_GAP: f64 = 8.0;
+const HEADER_TO_CHART: f64 = 26.0;
+const CHART_TO_SOURCE: f64 = 18.0;
+/// At most this many lines of headline and of takeaway.
+const MAX_TEXT_LINES: usize = 2;
+
+/// Vertical distance between two rows of 16 px labels.
+pub fn label_step() -> f64 {
+    line_height(LABEL_SIZE) + 2.0
+}
+
+/// Width available to full-width text.
+pub fn text_column() -> f64 {
+    WIDTH as f64 - 2.0 * MARGIN_X
+}
+
+/// The area left for the chart (titles, ticks and marks), in px.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Region {
+    /// Left edge.
+    pub left: f64,
+    /// Top edge.
+    pub top: f64,
+    /// Right edge.
+    pub right: f64,
+    /// Bottom edge.
+    pub bottom: f64,
+}
+
+struct Header {
+    headline: Vec<String>,
+    takeaway: Vec<String>,
+}
+
+impl Header {
+    fn of(frame: &FramePlan) -> Self {
+        let headline = metrics::wrap(
+            &frame.headline,
+            HEADLINE_SIZE,
+            true,
+            text_column(),
+            MAX_TEXT_LINES,
+        );
+        let takeaway = frame
+            .takeaway
+            .as_deref()
+            .map(|t| metrics::wrap(t, TAKEAWAY_SIZE, false, text_column(), MAX_TEXT_LINES))
+            .unwrap_or_default();
+        Self { headline, takeaway }
+    }
+
+    fn takeaway_top(&self) -> f64 {
+        match self.headline.len() {
+            0 => MARGIN_TOP,
+            n => {
+                MARGIN_TOP
+                    + (n - 1) as f64 * HEADLINE_STEP
+                    + line_height(HEADLINE_SIZE)
+                    + HEADLINE_GAP
+            }
+        }
+    }
+
+    /// Bottom of the last text box of the block.
+    fn bottom(&self) -> f64 {
+        match (self.headline.len(), self.takeaway.len()) {
+            (0, 0) => MARGIN_TOP,
+            (_, 0) => self.takeaway_top() - HEADLINE_GAP,
+            (_, t) => {
+                self.takeaway_top() + (t - 1) as f64 * TAKEAWAY_STEP + line_height(TAKEAWAY_SIZE)
+            }
+        }
+    }
+}
+
+/// The frames of `frame`'s build-up sequence (always including `frame`).
+fn sequence<'a>(deck: &'a DeckPlan, frame: &'a FramePlan) -> Vec<&'a FramePlan> {
+    let mut frames: Vec<&FramePlan> = deck
+        .frames
+        .iter()
+        .filter(|f| f.sequence == frame.sequence)
+        .collect();
+    if !frames.contains(&frame) {
+        frames.push(frame);
+    }
+    frames
+}
+
+fn source_of<'a>(deck: &'a DeckPlan, frame: &'a FramePlan) -> Option<String> {
+    frame
+        .source
+        .as_deref()
+        .or(deck.source.as_deref())
+        .map(metrics::normalize)
+        .filter(|s| !s.is_empty())
+}
+
+fn source_top() -> f64 {
+    HEIGHT as f64 - MARGIN_BOTTOM - line_height(SOURCE_SIZE)
+}
+
+/// Draws the headline, takeaway and source note of `frame` and returns the
+/// region left for the chart, which depends only on the frame's sequence.
+pub fn draw_page(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    deck: &DeckPlan,
+    frame: &FramePlan,
+) -> Result<Region, RenderError> {
+    let header = Header::of(frame);
+    for (i, line) in header.headline.iter().enumerate() {
+        canvas.text(&Label {
+            text: line,
+            x: MARGIN_X,
+            top: MARGIN_TOP + i as f64 * HEADLINE_STEP,
+            size: HEADLINE_SIZE,
+            bold: true,
+            color: theme.headline,
+            align: Align::Start,
+        })?;
+    }
+    let takeaway_top = header.takeaway_top();
+    for (i, line) in header.takeaway.iter().enumerate() {
+        canvas.text(&Label {
+            text: line,
+            x: MARGIN_X,
+            top: takeaway_top + i as f64 * TAKEAWAY_STEP,
+            size: TAKEAWAY_SIZE,
+            bold: false,
+            color: theme.takeaway,
+            align: Align::Start,
+        })?;
+    }
+    if let Some(source) = source_of(deck, frame) {
+        let text = metrics::ellipsize(&source, SOURCE_SIZE, false, text_column());
+        canvas.text(&Label {
+            text: &text,
+            x: MARGIN_X,
+            top: source_top(),
+            size: SOURCE_SIZE,
+            bold: false,
+            color: theme.muted,
+            align: Align::Start,
+        })?;
+    }
+
+    let frames = sequence(deck, frame);
+    let header_bottom = frames
+        .iter()
+        .map(|f| Header::of(f).bottom())
+        .fold(MARGIN_TOP, f64::max);
+    let any_source = frames.iter().any(|f| source_of(deck, f).is_some());
+    let bottom = if any_source {
+        source_top() - CHART_TO_SOURCE
+    } else {
+        HEIGHT as f64 - MARGIN_BOTTOM
+    };
+    Ok(Region {
+        left: MARGIN_X,
+        top: header_bottom + HEADER_TO_CHART,
+        right: WIDTH as f64 - MARGIN_X,
+        bottom,
+    })
+}
+
+/// Maps `v` from `domain` linearly onto `a..b` (the middle if the domain is
+/// empty).
+pub fn map(v: f64, domain: [f64; 2], a: f64, b: f64) -> f64 {
+    let span = domain[1] - domain[0];
+    if span == 0.0 || !span.is_finite() {
+        return (a + b) / 2.0;
+    }
+    a + (v - domain[0]) / span * (b - a)
+}
+
+/// Ticks of `axis` that lie inside its domain, with normalized labels.
+pub fn visible_ticks(axis: &Axis) -> Vec<(f64, String)> {
+    let (lo, hi) = (
+        axis.domain[0].min(axis.domain[1]),
+        axis.domain[0].max(axis.domain[1]),
+    );
+    let slack = (hi - lo).abs() * 1e-9;
+    axis.ticks
+        .iter()
+        .filter(|t| t.value.is_finite() && t.value >= lo - slack && t.value <= hi + slack)
+        .map(|t| (t.value, metrics::normalize(&t.label)))
+        .collect()
+}
+
+/// Checks that an axis can be drawn.
+pub fn check_axis(axis: &Axis, what: &str) -> Result<(), RenderError> {
+    if !axis.domain[0].is_finite() || !axis.domain[1].is_finite() {
+        return Err(RenderError::new(format!(
+            "the {what} axis has a non-finite domain {:?}",
+            axis.domain
+        )));
+    }
+    Ok(())
+}
+
+/// Widest of `texts` at `size` (0 for none).
+pub fn max_width<'a>(texts: impl IntoIterator<Item = &'a str>, size: f64, bold: bool) -> f64 {
+    texts
+        .into_iter()
+        .map(|t| text_width(t, size, bold))
+        .fold(0.0, f64::max)
+}
+
+/// Chooses which of a run of labels along one axis to keep so that none
+/// overlap: every one if possible, else every 2nd, 3rd, … counted from the
+/// first. `spans` are the labels' extents along the axis, in order.
+pub fn thin(spans: &[(f64, f64)], min_gap: f64) -> Vec<bool> {
+    let n = spans.len();
+    for stride in 1..=n.max(1) {
+        let kept: Vec<usize> = (0..n).step_by(stride).collect();
+        let clear = kept.windows(2).all(|w| {
+            let (a, b) = (spans[w[0]], spans[w[1]]);
+            let (a0, a1) = (a.0.min(a.1), a.0.max(a.1));
+            let (b0, b1) = (b.0.min(b.1), b.0.max(b.1));
+            a1 + min_gap <= b0 || b1 + min_gap <= a0
+        });
+        if clear {
+            return (0..n).map(|i| i % stride == 0).collect();
+        }
+    }
+    (0..n).map(|i| i == 0).collect()
+}
+
+/// Places label centres as close as possible to where they are wanted
+/// (least squares), at least `gap` apart and inside `lo..=hi`. `wanted` must
+/// be sorted ascending. Neighbours that collide form a block centred on the
+/// mean of their wishes, so a crowd of labels spreads both ways instead of
+/// being pushed all to one side.
+pub fn spread(wanted: &[f64], gap: f64, lo: f64, hi: f64) -> Vec<f64> {
+    let n = wanted.len();
+    if n == 0 {
+        return Vec::new();
+    }
+    if (n - 1) as f64 * gap > hi - lo {
+        // They cannot all fit: space them evenly over the range.
+        let step = if n > 1 {
+            (hi - lo) / (n - 1) as f64
+        } else {
+            0.0
+        };
+        return (0..n).map(|i| lo + i as f64 * step).collect();
+    }
+    // Each block: (members, sum over members j of wanted_j - j·gap).
+    struct Block {
+        count: usize,
+        sum: f64,
+    }
+    let start = |b: &Block| {
+        let last = hi - (b.count - 1) as f64 * gap;
+        (b.sum / b.count as f64).clamp(lo, last)
+    };
+    let mut blocks: Vec<Block> = Vec::new();
+    for &w in wanted {
+        blocks.push(Block { count: 1, sum: w });
+        while blocks.len() >= 2 {
+            let b = &blocks[blocks.len() - 1];
+            let a = &blocks[blocks.len() - 2];
+            if start(a) + a.count as f64 * gap <= start(b) {
+                break;
+            }
+            let merged = Block {
+                count: a.count + b.count,
+                sum: a.sum + b.sum - (a.count * b.count) as f64 * gap,
+            };
+            blocks.pop();
+            blocks.pop();
+            blocks.push(merged);
+        }
+    }
+    let mut out = Vec::with_capacity(n);
+    for b in &blocks {
+        let s = start(b);
+        out.extend((0..b.count).map(|j| s + j as f64 * gap));
+    }
+    out
+}
+
+/// Text of a category or series label fitted into `width`, on at most
+/// `lines` lines.
+pub fn fit_label(text: &str, width: f64, lines: usize, bold: bool) -> Vec<String> {
+    if lines <= 1 {
+        let t = metrics::ellipsize(&metrics::normalize(text), LABEL_SIZE, bold, width);
+        if t.is_empty() {
+            Vec::new()
+        } else {
+            vec![t]
+        }
+    } else {
+        metrics::wrap(text, LABEL_SIZE, bold, width, lines)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn spread_keeps_order_gap_and_range() {
+        let p = spread(&[100.0, 101.0, 102.0, 300.0], 20.0, 90.0, 400.0);
+        // Mean wish of the block is 81, clamped to the top of the range.
+        assert_eq!(p, vec![90.0, 110.0, 130.0, 300.0]);
+        let p = spread(&[200.0, 201.0, 202.0], 20.0, 0.0, 400.0);
+        assert_eq!(p, vec![181.0, 201.0, 221.0]);
+        let p = spread(&[395.0, 399.0, 400.0], 20.0, 90.0, 400.0);
+        assert_eq!(p, vec![360.0, 380.0, 400.0]);
+        let p = spread(&[0.0, 0.0, 0.0], 20.0, 0.0, 10.0);
+        assert_eq!(p, vec![0.0, 5.0, 10.0]);
+        assert!(spread(&[], 1.0, 0.0, 1.0).is_empty());
+    }
+
+    #[test]
+    fn thin_drops_every_other_when_crowded() {
+        let spans: Vec<(f64, f64)> = (0..5)
+            .map(|i| (i as f64 * 10.0, i as f64 * 10.0 + 15.0))
+            .collect();
+        assert_eq!(thin(&spans, 2.0), vec![true, false, true, false, true]);
+        let roomy: Vec<(f64, f64)> = (0..3)
+            .map(|i| (i as f64 * 100.0, i as f64 * 100.0 + 15.0))
+            .collect();
+        assert_eq!(thin(&roomy, 2.0), vec![true; 3]);
+    }
+
+    #[test]
+    fn map_is_linear_and_safe() {
+        assert_eq!(map(5.0, [0.0, 10.0], 100.0, 200.0), 150.0);
+        assert_eq!(map(5.0, [0.0, 10.0], 200.0, 100.0), 150.0);
+        assert_eq!(map(0.0, [0.0, 10.0], 200.0, 100.0), 200.0);
+        assert_eq!(map(3.0, [2.0, 2.0], 0.0, 10.0), 5.0);
+    }
+}

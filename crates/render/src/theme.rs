@@ -1,0 +1,159 @@
+//! Themes: the palette and stroke weights that map semantic roles to ink.
+//!
+//! A theme never decides geometry; it only says which colour and weight each
+//! role gets. Only `clear` exists for now; more can be added to [`THEMES`]
+//! without touching the layout code.
+
+use crate::RenderError;
+
+/// An sRGB colour without alpha.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Rgb(pub u8, pub u8, pub u8);
+
+impl Rgb {
+    /// `#RRGGBB`, upper-case hex, as plotters writes colours.
+    pub fn hex(self) -> String {
+        format!("#{:02X}{:02X}{:02X}", self.0, self.1, self.2)
+    }
+
+    /// Relative luminance as defined by WCAG 2.1 ("relative luminance").
+    pub fn relative_luminance(self) -> f64 {
+        fn channel(c: u8) -> f64 {
+            let c = f64::from(c) / 255.0;
+            if c <= 0.04045 {
+                c / 12.92
+            } else {
+                ((c + 0.055) / 1.055).powf(2.4)
+            }
+        }
+        0.2126 * channel(self.0) + 0.7152 * channel(self.1) + 0.0722 * channel(self.2)
+    }
+
+    /// WCAG 2.1 contrast ratio between two colours, `(L1 + 0.05) / (L2 + 0.05)`.
+    pub fn contrast(self, other: Rgb) -> f64 {
+        let a = self.relative_luminance();
+        let b = other.relative_luminance();
+        let (hi, lo) = if a >= b { (a, b) } else { (b, a) };
+        (hi + 0.05) / (lo + 0.05)
+    }
+}
+
+/// Palette and weights of one theme.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Theme {
+    /// Name as written in the story (`theme clear`).
+    pub name: &'static str,
+    /// Page colour the contrast checks assume; never painted (the SVG has no
+    /// background fill).
+    pub page: Rgb,
+    /// Headline text.
+    pub headline: Rgb,
+    /// Takeaway text.
+    pub takeaway: Rgb,
+    /// Tick labels, axis titles, category labels and the source note.
+    pub muted: Rgb,
+    /// Context marks (lines and bars).
+    pub context: Rgb,
+    /// Direct labels of context series: close to [`Theme::context`] but dark
+    /// enough to pass the 4.5:1 text contrast.
+    pub context_text: Rgb,
+    /// Baselines.
+    pub baseline: Rgb,
+    /// The one emphasis colour: focus marks and their labels.
+    pub accent: Rgb,
+    /// Stroke width of context lines, in px.
+    pub context_stroke: u32,
+    /// Stroke width of focus lines, in px.
+    pub focus_stroke: u32,
+    /// Stroke width of baselines, in px.
+    pub baseline_stroke: u32,
+}
+
+/// The `clear` theme: transparent page, near-black text, grey context and a
+/// burnt-orange accent ("ember", #B4400A, 5.7:1 on white).
+pub const CLEAR: Theme = Theme {
+    name: "clear",
+    page: Rgb(0xFF, 0xFF, 0xFF),
+    headline: Rgb(0x1F, 0x1F, 0x1F),
+    takeaway: Rgb(0x3D, 0x3D, 0x3D),
+    muted: Rgb(0x5A, 0x5A, 0x5A),
+    context: Rgb(0x8C, 0x8C, 0x8C),
+    context_text: Rgb(0x70, 0x70, 0x70),
+    baseline: Rgb(0xC8, 0xC8, 0xC8),
+    accent: Rgb(0xB4, 0x40, 0x0A),
+    context_stroke: 2,
+    focus_stroke: 4,
+    baseline_stroke: 1,
+};
+
+/// Every built-in theme, in the order of `crescendo_plan::THEMES`.
+pub const THEMES: &[&Theme] = &[&CLEAR];
+
+/// Looks a theme up by name.
+pub fn theme(name: &str) -> Result<&'static Theme, RenderError> {
+    THEMES
+        .iter()
+        .copied()
+        .find(|t| t.name == name)
+        .ok_or_else(|| {
+            let known: Vec<&str> = THEMES.iter().map(|t| t.name).collect();
+            RenderError::new(format!(
+                "unknown theme `{name}` (known themes: {})",
+                known.join(", ")
+            ))
+        })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_planned_theme_exists() {
+        for name in crescendo_plan::THEMES {
+            assert!(theme(name).is_ok(), "{name}");
+        }
+        assert!(theme("neon").is_err());
+    }
+
+    // Contrast thresholds: WCAG 2.1 SC 1.4.3 (text, 4.5:1) and SC 1.4.11
+    // (graphical objects, 3:1); formula from the WCAG 2.1 definitions of
+    // "relative luminance" and "contrast ratio".
+    #[test]
+    fn clear_contrast_meets_wcag() {
+        let t = &CLEAR;
+        for (what, c) in [
+            ("headline", t.headline),
+            ("takeaway", t.takeaway),
+            ("muted", t.muted),
+            ("context_text", t.context_text),
+            ("accent", t.accent),
+        ] {
+            assert!(t.page.contrast(c) >= 4.5, "{what}: {}", t.page.contrast(c));
+        }
+        assert!(t.page.contrast(t.context) >= 3.0);
+        assert!(
+            t.accent.contrast(t.context) > 1.5,
+            "accent must differ from grey in lightness too"
+        );
+    }
+
+    #[test]
+    fn contrast_reference_values() {
+        // Black on white is 21:1 by definition (WCAG 2.1).
+        let black = Rgb(0, 0, 0);
+        let white = Rgb(255, 255, 255);
+        assert!((black.contrast(white) - 21.0).abs() < 1e-9);
+        assert!((white.contrast(white) - 1.0).abs() < 1e-9);
+        assert_eq!(CLEAR.accent.hex(), "#B4400A");
+    }
+
+    #[test]
+    fn accent_is_not_a_common_library_default() {
+        for taken in [
+            "#1F77B4", "#4C72B0", "#FF7F0E", "#636EFA", "#3366CC", "#4E79A7",
+        ] {
+            assert_ne!(CLEAR.accent.hex(), taken);
+        }
+    }
+}

@@ -1,0 +1,213 @@
+//! Writing a deck: render every frame, then write all files into a fresh
+//! folder and swap it into place, so a failed build never leaves a
+//! half-written or destroyed deck.
+
+use std::fs;
+use std::path::{Path, PathBuf};
+
+use crescendo_diag::Diagnostic;
+use crescendo_plan::DeckPlan;
+use serde_json::json;
+use sha2::{Digest, Sha256};
+
+/// Name of the manifest; its presence marks a folder as a crescendo deck.
+pub const MANIFEST: &str = "deck.json";
+
+/// File name of a frame: `01-<slug>.svg`.
+pub fn frame_file(number: usize, slug: &str, count: usize) -> String {
+    let width = count.to_string().len().max(2);
+    format!("{number:0width$}-{slug}.svg")
+}
+
+fn hex(bytes: &[u8]) -> String {
+    bytes.iter().map(|b| format!("{b:02x}")).collect()
+}
+
+/// All files of a deck, in memory: (file name, contents).
+pub fn render_files(plan: &DeckPlan) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
+    let mut files = Vec::new();
+    let mut svgs = Vec::new();
+    for f in &plan.frames {
+        let svg = crescendo_render::render_frame(plan, f).map_err(|e| {
+            Diagnostic::error(
+                "render",
+                format!("cannot draw frame {} (\"{}\"): {e}", f.number, f.headline),
+            )
+        })?;
+        svgs.push(svg);
+    }
+    let mut entries = Vec::new();
+    for (f, svg) in plan.frames.iter().zip(&svgs) {
+        let name = frame_file(f.number, &f.slug, plan.frames.len());
+        entries.push(json!({
+            "number": f.number,
+            "file": name,
+            "headline": f.headline,
+            "takeaway": f.takeaway,
+            "notes": f.notes,
+            "sequence": f.sequence,
+            "sha256": hex(&Sha256::digest(svg.as_bytes())),
+        }));
+        files.push((name, svg.clone().into_bytes()));
+    }
+    let pairs: Vec<(&crescendo_plan::FramePlan, &str)> = plan
+        .frames
+        .iter()
+        .zip(svgs.iter().map(String::as_str))
+        .collect();
+    let html = crescendo_render::render_deck_html(plan, &pairs);
+    let manifest = json!({
+        "title": plan.title,
+        "byline": plan.byline,
+        "source": plan.source,
+        "conclusion": plan.conclusion,
+        "theme": plan.theme,
+        "frames": entries,
+        "html": "index.html",
+    });
+    let mut manifest = serde_json::to_string_pretty(&manifest)
+        .map_err(|e| Diagnostic::error("output", format!("cannot write the manifest: {e}")))?;
+    manifest.push('\n');
+    files.push(("index.html".to_string(), html.into_bytes()));
+    files.push((MANIFEST.to_string(), manifest.into_bytes()));
+    Ok(files)
+}
+
+fn io_err(what: &str, path: &Path, e: std::io::Error) -> Diagnostic {
+    Diagnostic::error("output", format!("cannot {what} `{}`: {e}", path.display()))
+}
+
+/// Render and write the deck into `out`, replacing a previous deck only
+/// when everything succeeded. Returns the number of frames.
+pub fn build(plan: &DeckPlan, out: &Path) -> Result<usize, Diagnostic> {
+    let files = render_files(plan)?;
+    write_atomically(out, &files)?;
+    Ok(plan.frames.len())
+}
+
+/// Refuse to replace a folder that is not a deck (so `--out ~` cannot wipe
+/// a home folder).
+fn check_replaceable(out: &Path) -> Result<(), Diagnostic> {
+    if !out.exists() {
+        return Ok(());
+    }
+    if !out.is_dir() {
+        return Err(Diagnostic::error(
+            "output",
+            format!("`{}` exists and is not a folder", out.display()),
+        ));
+    }
+    let mut entries = fs::read_dir(out).map_err(|e| io_err("read", out, e))?;
+    let empty = entries.next().is_none();
+    if !empty && !out.join(MANIFEST).is_file() {
+        return Err(Diagnostic::error(
+            "output",
+            format!(
+                "`{}` is not empty and holds no {MANIFEST}, so it is not a deck crescendo may replace",
+                out.display()
+            ),
+        )
+        .help("choose an empty or new folder with --out"));
+    }
+    Ok(())
+}
+
+/// Write `files` into a sibling temporary folder, then swap it with `out`.
+pub fn write_atomically(out: &Path, files: &[(String, Vec<u8>)]) -> Result<(), Diagnostic> {
+    check_replaceable(out)?;
+    let parent = match out.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    fs::create_dir_all(&parent).map_err(|e| io_err("create", &parent, e))?;
+    let base = out
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "deck".into());
+    let tmp = parent.join(format!(".{base}.building-{}", std::process::id()));
+    let old = parent.join(format!(".{base}.previous-{}", std::process::id()));
+    let _ = fs::remove_dir_all(&tmp);
+    let result = (|| {
+        fs::create_dir(&tmp).map_err(|e| io_err("create", &tmp, e))?;
+        for (name, bytes) in files {
+            let p = tmp.join(name);
+            fs::write(&p, bytes).map_err(|e| io_err("write", &p, e))?;
+        }
+        let had_old = out.exists();
+        if had_old {
+            fs::rename(out, &old).map_err(|e| io_err("move aside", out, e))?;
+        }
+        if let Err(e) = fs::rename(&tmp, out) {
+            if had_old {
+                let _ = fs::rename(&old, out);
+            }
+            return Err(io_err("move into place", out, e));
+        }
+        if had_old {
+            let _ = fs::remove_dir_all(&old);
+        }
+        Ok(())
+    })();
+    if result.is_err() {
+        let _ = fs::remove_dir_all(&tmp);
+    }
+    result
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn tempdir(name: &str) -> PathBuf {
+        let d =
+            std::env::temp_dir().join(format!("crescendo-deck-test-{}-{name}", std::process::id()));
+        let _ = fs::remove_dir_all(&d);
+        fs::create_dir_all(&d).unwrap();
+        d
+    }
+
+    #[test]
+    fn frame_files_are_numbered_in_order() {
+        assert_eq!(frame_file(3, "a-b", 7), "03-a-b.svg");
+        assert_eq!(frame_file(3, "a", 120), "003-a.svg");
+    }
+
+    #[test]
+    fn replaces_a_previous_deck_whole() {
+        let d = tempdir("replace");
+        let out = d.join("deck");
+        write_atomically(
+            &out,
+            &[
+                ("a.svg".into(), b"1".to_vec()),
+                (MANIFEST.into(), b"{}".to_vec()),
+            ],
+        )
+        .unwrap();
+        write_atomically(
+            &out,
+            &[
+                ("b.svg".into(), b"2".to_vec()),
+                (MANIFEST.into(), b"{}".to_vec()),
+            ],
+        )
+        .unwrap();
+        assert!(!out.join("a.svg").exists());
+        assert_eq!(fs::read(out.join("b.svg")).unwrap(), b"2");
+        // no temporary folders left behind
+        let names: Vec<_> = fs::read_dir(&d)
+            .unwrap()
+            .map(|e| e.unwrap().file_name())
+            .collect();
+        assert_eq!(names.len(), 1, "{names:?}");
+    }
+
+    #[test]
+    fn refuses_to_replace_a_folder_that_is_not_a_deck() {
+        let d = tempdir("refuse");
+        fs::write(d.join("precious.txt"), b"keep me").unwrap();
+        let err = write_atomically(&d, &[(MANIFEST.into(), b"{}".to_vec())]).unwrap_err();
+        assert!(err.message.contains("not a deck"), "{}", err.message);
+        assert_eq!(fs::read(d.join("precious.txt")).unwrap(), b"keep me");
+    }
+}

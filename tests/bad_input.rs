@@ -1,0 +1,216 @@
+//! Every user mistake gets a located message, a non-zero exit status, no
+//! panic, and leaves the previous deck exactly as it was.
+
+mod common;
+
+use std::fs;
+
+use common::{crescendo, read_dir_files, scratch};
+
+const GOOD_STORY: &str = r#"story "Loans by branch"
+source "Invented demo data"
+
+data loans from "loans.csv"
+
+view by_branch = loans
+  | by month, branch: loans = sum(loans)
+
+frame "Loans per month" {
+  line by_branch: x month, y loans, series branch
+  spotlight "Quarry Street"
+}
+"#;
+
+const GOOD_CSV: &str = "month,branch,loans\n2024-01,Quarry Street,120\n2024-01,Elm Row,80\n2024-02,Quarry Street,130\n2024-02,Elm Row,85\n";
+
+/// Build a good deck in a fresh folder, then replace the story and/or CSV
+/// with broken versions and build again. Returns the second run's stderr and
+/// checks that it failed with status 1 and left the deck untouched.
+fn run_broken(name: &str, story: &str, csv: Option<&str>) -> String {
+    let dir = scratch(name);
+    fs::write(dir.join("story.cresc"), GOOD_STORY).unwrap();
+    fs::write(dir.join("loans.csv"), GOOD_CSV).unwrap();
+    let first = crescendo(&dir, &["build", "story.cresc"]);
+    assert!(
+        first.status.success(),
+        "{}",
+        String::from_utf8_lossy(&first.stderr)
+    );
+    let before = read_dir_files(&dir.join("deck"));
+
+    fs::write(dir.join("story.cresc"), story).unwrap();
+    match csv {
+        Some(c) => fs::write(dir.join("loans.csv"), c).unwrap(),
+        None => fs::remove_file(dir.join("loans.csv")).unwrap(),
+    }
+    let out = crescendo(&dir, &["build", "story.cresc"]);
+    let stderr = String::from_utf8_lossy(&out.stderr).into_owned();
+    assert_eq!(
+        out.status.code(),
+        Some(1),
+        "expected a story error:\n{stderr}"
+    );
+    assert!(!stderr.contains("panicked"), "{stderr}");
+    assert_eq!(
+        read_dir_files(&dir.join("deck")),
+        before,
+        "the previous deck changed"
+    );
+    // nothing half-written next to it
+    let leftovers: Vec<_> = fs::read_dir(&dir)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n.starts_with('.'))
+        .collect();
+    assert!(leftovers.is_empty(), "{leftovers:?}");
+    stderr
+}
+
+/// Assert the message names `file:line:col` and draws a caret.
+fn assert_located(stderr: &str, location: &str) {
+    assert!(
+        stderr.contains(location),
+        "expected {location} in:\n{stderr}"
+    );
+    assert!(stderr.contains('^'), "expected a caret in:\n{stderr}");
+}
+
+#[test]
+fn syntax_error() {
+    let story = GOOD_STORY.replace("view by_branch = loans", "view by_branch loans");
+    let err = run_broken("syntax", &story, Some(GOOD_CSV));
+    assert_located(&err, "story.cresc:6:16");
+    insta::assert_snapshot!(err);
+}
+
+#[test]
+fn unknown_keyword_suggests_the_closest() {
+    let story = GOOD_STORY.replace("  spotlight \"Quarry", "  spotlite \"Quarry");
+    let err = run_broken("keyword", &story, Some(GOOD_CSV));
+    assert_located(&err, "story.cresc:11:3");
+    assert!(err.contains("did you mean `spotlight`?"), "{err}");
+    insta::assert_snapshot!(err);
+}
+
+#[test]
+fn unknown_view_name_suggests_the_closest() {
+    let story = GOOD_STORY.replace("line by_branch:", "line by_brnach:");
+    let err = run_broken("view-name", &story, Some(GOOD_CSV));
+    assert_located(&err, "story.cresc:10:8");
+    assert!(err.contains("did you mean `by_branch`?"), "{err}");
+    insta::assert_snapshot!(err);
+}
+
+#[test]
+fn unknown_data_name_suggests_the_closest() {
+    let story = GOOD_STORY.replace("view by_branch = loans", "view by_branch = laons");
+    let err = run_broken("data-name", &story, Some(GOOD_CSV));
+    assert_located(&err, "story.cresc:6:18");
+    assert!(err.contains("did you mean `loans`?"), "{err}");
+}
+
+#[test]
+fn unknown_column_suggests_the_closest() {
+    let story = GOOD_STORY.replace("by month, branch:", "by month, brnch:");
+    let err = run_broken("column", &story, Some(GOOD_CSV));
+    assert_located(&err, "story.cresc:7:15");
+    assert!(err.contains("did you mean `branch`?"), "{err}");
+    insta::assert_snapshot!(err);
+}
+
+#[test]
+fn text_used_as_a_number_names_the_first_offending_row() {
+    let csv = GOOD_CSV.replace("2024-02,Quarry Street,130", "2024-02,Quarry Street,n/a");
+    let err = run_broken("text-number", GOOD_STORY, Some(&csv));
+    assert_located(&err, "story.cresc:7:35");
+    assert!(err.contains("data row 3 of `loans` holds `n/a`"), "{err}");
+    insta::assert_snapshot!(err);
+}
+
+#[test]
+fn declared_number_holding_text_points_into_the_csv() {
+    let story = GOOD_STORY.replace(
+        "data loans from \"loans.csv\"",
+        "data loans from \"loans.csv\" { loans: number }",
+    );
+    let csv = GOOD_CSV.replace("2024-02,Elm Row,85", "2024-02,Elm Row,eighty");
+    let err = run_broken("declared-number", &story, Some(&csv));
+    assert_located(&err, "loans.csv:5:17");
+    assert!(err.contains("row 4"), "{err}");
+    insta::assert_snapshot!(err);
+}
+
+#[test]
+fn missing_csv_file() {
+    let err = run_broken("missing-csv", GOOD_STORY, None);
+    assert_located(&err, "story.cresc:4:17");
+    assert!(err.contains("cannot read data file"), "{err}");
+    insta::assert_snapshot!(err);
+}
+
+#[test]
+fn empty_csv_file() {
+    let err = run_broken("empty-csv", GOOD_STORY, Some(""));
+    assert_located(&err, "story.cresc:4:17");
+    insta::assert_snapshot!(err);
+}
+
+#[test]
+fn ragged_csv_row() {
+    let csv = GOOD_CSV.replace("2024-01,Elm Row,80", "2024-01,Elm Row,80,extra");
+    let err = run_broken("ragged", GOOD_STORY, Some(&csv));
+    assert_located(&err, "loans.csv:3:");
+    insta::assert_snapshot!(err);
+}
+
+#[test]
+fn frame_refers_to_a_series_that_does_not_exist() {
+    let story = GOOD_STORY.replace("  spotlight \"Quarry Street\"", "  hide \"Elm Road\"");
+    let err = run_broken("no-series", &story, Some(GOOD_CSV));
+    assert_located(&err, "story.cresc:11:8");
+    assert!(err.contains("did you mean \"Elm Row\"?"), "{err}");
+    insta::assert_snapshot!(err);
+}
+
+#[test]
+fn spotlight_on_a_missing_series() {
+    let story = GOOD_STORY.replace("spotlight \"Quarry Street\"", "spotlight \"Harbour\"");
+    let err = run_broken("no-spotlight", &story, Some(GOOD_CSV));
+    assert_located(&err, "story.cresc:11:13");
+    assert!(err.contains("no series named \"Harbour\""), "{err}");
+    insta::assert_snapshot!(err);
+}
+
+#[test]
+fn every_error_in_a_file_is_reported() {
+    let story = GOOD_STORY
+        .replace("view by_branch = loans", "view by_branch = loans\n  | keep")
+        .replace("  spotlight \"Quarry", "  spotlite \"Quarry");
+    let err = run_broken("many", &story, Some(GOOD_CSV));
+    assert!(err.contains("story.cresc:7:9"), "{err}");
+    assert!(err.contains("story.cresc:12:3"), "{err}");
+    assert!(err.contains("2 errors"), "{err}");
+}
+
+#[test]
+fn out_folder_that_is_not_a_deck_is_refused() {
+    let dir = scratch("refuse-out");
+    fs::write(dir.join("story.cresc"), GOOD_STORY).unwrap();
+    fs::write(dir.join("loans.csv"), GOOD_CSV).unwrap();
+    fs::create_dir(dir.join("mine")).unwrap();
+    fs::write(dir.join("mine/notes.txt"), "precious").unwrap();
+    let out = crescendo(&dir, &["build", "story.cresc", "--out", "mine"]);
+    assert_eq!(out.status.code(), Some(4));
+    assert_eq!(
+        fs::read_to_string(dir.join("mine/notes.txt")).unwrap(),
+        "precious"
+    );
+}
+
+#[test]
+fn missing_story_file() {
+    let dir = scratch("no-story");
+    let out = crescendo(&dir, &["build", "nothing.cresc"]);
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("cannot read story file `nothing.cresc`"));
+}

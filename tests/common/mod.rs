@@ -1,0 +1,65 @@
+//! Helpers shared by the end-to-end tests.
+#![allow(dead_code)]
+
+use std::fs;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+/// The repository root.
+pub fn root() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+/// A fresh, empty temporary folder for one test.
+pub fn scratch(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("crescendo-e2e-{}-{name}", std::process::id()));
+    let _ = fs::remove_dir_all(&d);
+    fs::create_dir_all(&d).expect("create scratch folder");
+    d
+}
+
+/// Run the `crescendo` binary in `dir`.
+pub fn crescendo(dir: &Path, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_crescendo"))
+        .args(args)
+        .current_dir(dir)
+        .env("NO_COLOR", "1")
+        .output()
+        .expect("run crescendo")
+}
+
+/// Every story in `stories/`, as (name, path), sorted.
+pub fn stories() -> Vec<(String, PathBuf)> {
+    let mut out = Vec::new();
+    for e in fs::read_dir(root().join("stories")).expect("stories folder") {
+        let dir = e.expect("entry").path();
+        if !dir.is_dir() {
+            continue;
+        }
+        for f in fs::read_dir(&dir).expect("story folder") {
+            let p = f.expect("entry").path();
+            if p.extension().is_some_and(|x| x == "cresc") {
+                let name = p.file_stem().unwrap().to_string_lossy().into_owned();
+                out.push((name, p));
+            }
+        }
+    }
+    out.sort();
+    out
+}
+
+/// All files of a folder as (name, bytes), sorted by name.
+pub fn read_dir_files(dir: &Path) -> Vec<(String, Vec<u8>)> {
+    let mut v: Vec<(String, Vec<u8>)> = fs::read_dir(dir)
+        .expect("read deck")
+        .map(|e| {
+            let p = e.expect("entry").path();
+            (
+                p.file_name().unwrap().to_string_lossy().into_owned(),
+                fs::read(&p).expect("read file"),
+            )
+        })
+        .collect();
+    v.sort();
+    v
+}
