@@ -943,7 +943,12 @@ impl<'a> Planner<'a> {
                 let value =
                     scale::linear_axis(lo.min(0.0), hi.max(0.0), true, Some(humanize(&ycol.name)));
                 let longest = rows.iter().map(|r| r.0.chars().count()).max().unwrap_or(0);
-                let orientation = if !xcol.ty.is_time() && (longest > 10 || rows.len() > 12) {
+                // Long names, or many of them, read better down the side
+                // than squeezed under narrow bars (common practice); time
+                // keeps running left to right.
+                let orientation = if !xcol.ty.is_time()
+                    && (longest * rows.len() > 110 || longest > 24 || rows.len() > 12)
+                {
                     Orientation::Horizontal
                 } else {
                     Orientation::Vertical

@@ -1,0 +1,315 @@
+//! End-to-end tests over every story in `stories/`: they all build, their
+//! plans and frames are snapshot-tested, builds are byte-for-byte
+//! reproducible, and every SVG is well-formed with no text outside the
+//! canvas and no two text boxes overlapping.
+
+mod common;
+
+use std::path::Path;
+use std::sync::Arc;
+
+use common::{crescendo, read_dir_files, root, scratch, stories};
+use crescendo_diag::Source;
+use crescendo_plan::DeckPlan;
+use serde_json::Value;
+
+fn plan_of(path: &Path) -> DeckPlan {
+    let text = std::fs::read_to_string(path).expect("read story");
+    let rel = path.strip_prefix(root()).unwrap_or(path);
+    let src: Arc<Source> = Source::file(rel.display().to_string(), text);
+    match crescendo_plan::plan_story(&src, path.parent().unwrap()) {
+        Ok((plan, _warnings)) => plan,
+        Err(diags) => panic!("{}", crescendo_diag::render(&diags, false)),
+    }
+}
+
+/// Pretty JSON that keeps short arrays and objects on one line, so plan
+/// snapshots stay readable (one point per line).
+fn compact_json(v: &Value, indent: usize, out: &mut String) {
+    let inline = serde_json::to_string(v).unwrap_or_default();
+    if inline.len() <= 96 || !(v.is_array() || v.is_object()) {
+        out.push_str(&inline);
+        return;
+    }
+    let pad = "  ".repeat(indent + 1);
+    match v {
+        Value::Array(items) => {
+            out.push_str("[\n");
+            for (i, item) in items.iter().enumerate() {
+                out.push_str(&pad);
+                compact_json(item, indent + 1, out);
+                out.push_str(if i + 1 < items.len() { ",\n" } else { "\n" });
+            }
+            out.push_str(&"  ".repeat(indent));
+            out.push(']');
+        }
+        Value::Object(map) => {
+            out.push_str("{\n");
+            for (i, (k, item)) in map.iter().enumerate() {
+                out.push_str(&pad);
+                out.push_str(&serde_json::to_string(k).unwrap_or_default());
+                out.push_str(": ");
+                compact_json(item, indent + 1, out);
+                out.push_str(if i + 1 < map.len() { ",\n" } else { "\n" });
+            }
+            out.push_str(&"  ".repeat(indent));
+            out.push('}');
+        }
+        _ => unreachable!(),
+    }
+}
+
+#[test]
+fn there_are_demo_stories() {
+    let names: Vec<String> = stories().into_iter().map(|(n, _)| n).collect();
+    assert!(names.len() >= 2, "{names:?}");
+}
+
+#[test]
+fn plans_of_every_story_match_their_snapshots() {
+    for (name, path) in stories() {
+        let plan = plan_of(&path);
+        assert!(!plan.frames.is_empty(), "{name} has no frames");
+        let mut out = String::new();
+        compact_json(&serde_json::to_value(&plan).unwrap(), 0, &mut out);
+        insta::assert_snapshot!(format!("plan_{name}"), out);
+    }
+}
+
+#[test]
+fn frames_of_the_pools_story_match_their_svg_snapshots() {
+    let path = root().join("stories/pools/pools.cresc");
+    let plan = plan_of(&path);
+    for f in &plan.frames {
+        let svg = crescendo_render::render_frame(&plan, f).expect("render");
+        insta::assert_snapshot!(format!("svg_pools_{:02}_{}", f.number, f.slug), svg);
+    }
+}
+
+#[test]
+fn every_story_builds_with_the_command() {
+    for (name, path) in stories() {
+        let out = scratch(&format!("build-{name}"));
+        let run = crescendo(
+            &root(),
+            &[
+                "build",
+                path.to_str().unwrap(),
+                "--out",
+                out.join("deck").to_str().unwrap(),
+            ],
+        );
+        assert!(
+            run.status.success(),
+            "{name}: {}",
+            String::from_utf8_lossy(&run.stderr)
+        );
+        let files = read_dir_files(&out.join("deck"));
+        let plan = plan_of(&path);
+        // one SVG per frame, in order, plus the manifest and the HTML deck
+        let svgs: Vec<&String> = files
+            .iter()
+            .map(|(n, _)| n)
+            .filter(|n| n.ends_with(".svg"))
+            .collect();
+        assert_eq!(svgs.len(), plan.frames.len(), "{name}");
+        for (i, f) in svgs.iter().enumerate() {
+            assert!(f.starts_with(&format!("{:02}-", i + 1)), "{f}");
+        }
+        let manifest: Value = serde_json::from_slice(
+            &files
+                .iter()
+                .find(|(n, _)| n == "deck.json")
+                .expect("deck.json")
+                .1,
+        )
+        .unwrap();
+        assert_eq!(manifest["title"], plan.title.as_str());
+        let frames = manifest["frames"].as_array().unwrap();
+        assert_eq!(frames.len(), plan.frames.len());
+        for (entry, f) in frames.iter().zip(&plan.frames) {
+            assert_eq!(entry["headline"], f.headline.as_str());
+            let file = entry["file"].as_str().unwrap();
+            let bytes = &files.iter().find(|(n, _)| n == file).expect("frame file").1;
+            // the manifest's checksum is the SHA-256 of the file as written
+            // (checked against the coreutils-compatible hex digest format)
+            use sha2::Digest;
+            let digest: String = sha2::Sha256::digest(bytes)
+                .iter()
+                .map(|b| format!("{b:02x}"))
+                .collect();
+            assert_eq!(entry["sha256"], digest.as_str());
+        }
+        let html = String::from_utf8(
+            files
+                .iter()
+                .find(|(n, _)| n == "index.html")
+                .unwrap()
+                .1
+                .clone(),
+        )
+        .unwrap();
+        assert!(html.contains("<svg"), "{name}: SVGs are inline");
+        for remote in ["src=\"http", "href=\"http", "url(http", "@import", "fetch("] {
+            assert!(
+                !html.contains(remote),
+                "{name}: the HTML deck loads `{remote}`"
+            );
+        }
+        assert!(!html.contains("<script src"), "no external scripts");
+        assert!(!html.contains("<link"), "no external stylesheets");
+    }
+}
+
+#[test]
+fn builds_are_byte_identical() {
+    for (name, path) in stories() {
+        let a = scratch(&format!("det-a-{name}")).join("deck");
+        let b = scratch(&format!("det-b-{name}")).join("deck");
+        for out in [&a, &b] {
+            let run = crescendo(
+                &root(),
+                &[
+                    "build",
+                    path.to_str().unwrap(),
+                    "--out",
+                    out.to_str().unwrap(),
+                ],
+            );
+            assert!(
+                run.status.success(),
+                "{}",
+                String::from_utf8_lossy(&run.stderr)
+            );
+        }
+        assert_eq!(
+            read_dir_files(&a),
+            read_dir_files(&b),
+            "{name}: two builds differ"
+        );
+    }
+}
+
+#[test]
+fn rebuilding_over_a_deck_replaces_it_whole() {
+    let (_, path) = stories().into_iter().next().unwrap();
+    let out = scratch("rebuild").join("deck");
+    for _ in 0..2 {
+        let run = crescendo(
+            &root(),
+            &[
+                "build",
+                path.to_str().unwrap(),
+                "--out",
+                out.to_str().unwrap(),
+            ],
+        );
+        assert!(run.status.success());
+    }
+    let parent = out.parent().unwrap();
+    let names: Vec<String> = std::fs::read_dir(parent)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    assert_eq!(names, vec!["deck".to_string()], "no temporary folders left");
+}
+
+#[test]
+fn every_demo_frame_is_well_formed_and_has_no_overlapping_text() {
+    for (name, path) in stories() {
+        let plan = plan_of(&path);
+        for f in &plan.frames {
+            let svg = crescendo_render::render_frame(&plan, f).expect("render");
+            // a general-purpose XML parser accepts it
+            let doc = roxmltree::Document::parse(&svg)
+                .unwrap_or_else(|e| panic!("{name} frame {}: {e}", f.number));
+            assert_eq!(doc.root_element().tag_name().name(), "svg");
+            let texts: Vec<String> = doc
+                .descendants()
+                .filter(|n| n.has_tag_name("text"))
+                .map(|n| n.text().unwrap_or("").trim().to_string())
+                .collect();
+            assert!(
+                texts.iter().any(|t| *t == f.headline),
+                "{name} frame {}: headline drawn",
+                f.number
+            );
+            let (w, h) = crescendo_render::inspect::canvas_size(&svg).unwrap();
+            let boxes = crescendo_render::inspect::text_boxes(&svg).unwrap();
+            assert_eq!(boxes.len(), texts.len());
+            for b in &boxes {
+                assert!(
+                    b.x0 >= 0.0 && b.y0 >= 0.0 && b.x1 <= w && b.y1 <= h,
+                    "{name} frame {}: \"{}\" leaves the canvas: {:?}",
+                    f.number,
+                    b.text,
+                    (b.x0, b.y0, b.x1, b.y1)
+                );
+            }
+            for (i, a) in boxes.iter().enumerate() {
+                for b in &boxes[i + 1..] {
+                    let overlap = a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1;
+                    assert!(
+                        !overlap,
+                        "{name} frame {}: \"{}\" overlaps \"{}\"",
+                        f.number, a.text, b.text
+                    );
+                }
+            }
+        }
+    }
+}
+
+#[test]
+fn axes_stay_fixed_within_a_build_up_sequence() {
+    for (name, path) in stories() {
+        let plan = plan_of(&path);
+        for pair in plan.frames.windows(2) {
+            let (a, b) = (&pair[0], &pair[1]);
+            if a.sequence != b.sequence {
+                continue;
+            }
+            match (&a.chart, &b.chart) {
+                (crescendo_plan::Chart::Line(x), crescendo_plan::Chart::Line(y)) => {
+                    assert_eq!(x.x.domain, y.x.domain, "{name}");
+                    assert_eq!(x.y.domain, y.y.domain, "{name}");
+                    assert_eq!(x.y.ticks, y.y.ticks, "{name}");
+                }
+                (crescendo_plan::Chart::Bars(x), crescendo_plan::Chart::Bars(y)) => {
+                    assert_eq!(x.value.domain, y.value.domain, "{name}");
+                    let lx: Vec<&str> = x.bars.iter().map(|b| b.label.as_str()).collect();
+                    let ly: Vec<&str> = y.bars.iter().map(|b| b.label.as_str()).collect();
+                    assert_eq!(lx, ly, "{name}: bar slots move");
+                }
+                _ => panic!("{name}: a sequence changed chart form"),
+            }
+        }
+    }
+}
+
+#[test]
+fn readme_picture_is_the_current_frame() {
+    let plan = plan_of(&root().join("stories/pools/pools.cresc"));
+    let svg = crescendo_render::render_frame(&plan, &plan.frames[2]).expect("render");
+    let committed =
+        std::fs::read_to_string(root().join("stories/pools/preview.svg")).expect("preview.svg");
+    assert!(
+        committed == svg,
+        "stories/pools/preview.svg is stale: copy stories/pools/deck/03-*.svg over it after a build"
+    );
+}
+
+#[test]
+fn readme_story_example_parses() {
+    let readme = std::fs::read_to_string(root().join("README.md")).unwrap();
+    let after = readme.split("## A story file").nth(1).expect("section");
+    let block = after.split("```").nth(1).expect("code block");
+    let src = Source::file("README.md example", block.to_string());
+    let (ast, diags) = crescendo_lang::parse(&src);
+    assert!(
+        diags.is_empty(),
+        "{}",
+        crescendo_diag::render(&diags, false)
+    );
+    assert!(ast.items.len() >= 10);
+}
