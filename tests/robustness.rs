@@ -15,9 +15,9 @@ use crescendo_diag::{Diagnostic, Located, Source};
 use crescendo_plan::{plan_story, Chart, DeckPlan};
 
 /// Story mutations per story.
-const STORY_CASES: usize = 300;
+const STORY_CASES: usize = 20000;
 /// CSV mutations per story (each writes a temporary copy of the data).
-const CSV_CASES: usize = 60;
+const CSV_CASES: usize = 1500;
 
 /// xorshift64 (G. Marsaglia, "Xorshift RNGs", Journal of Statistical
 /// Software 8(14), 2003; shifts 13, 7, 17).

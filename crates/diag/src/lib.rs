@@ -366,7 +366,7 @@ mod tests {
     fn excerpt_keeps_real_line_numbers() {
         let s = Source::excerpt("data.csv", "x,oops,3\n", 41);
         let d = Diagnostic::error("bad-number", "not a number").at(&s, 2..6, "here");
-        let out = render(&[d.clone()], false);
+        let out = render(std::slice::from_ref(&d), false);
         assert!(out.contains("data.csv:41:3"), "{out}");
         assert!(out.contains("^^^^"), "{out}");
         assert_eq!(d.location(), Some(("data.csv".into(), 41, 3)));
