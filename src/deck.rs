@@ -46,6 +46,9 @@ pub fn render_files(plan: &DeckPlan) -> Result<Vec<(String, Vec<u8>)>, Diagnosti
             "takeaway": f.takeaway,
             "notes": f.notes,
             "sequence": f.sequence,
+            "quoted": f.quoted,
+            "templates": f.templates,
+            "notices": f.notices,
             "sha256": hex(&Sha256::digest(svg.as_bytes())),
         }));
         files.push((name, svg.clone().into_bytes()));
@@ -62,6 +65,8 @@ pub fn render_files(plan: &DeckPlan) -> Result<Vec<(String, Vec<u8>)>, Diagnosti
         "source": plan.source,
         "conclusion": plan.conclusion,
         "theme": plan.theme,
+        "values": plan.values,
+        "claims": plan.claims,
         "frames": entries,
         "html": "index.html",
     });

@@ -4,19 +4,23 @@
 // A `Diagnostic` is large, but it is only built on the cold error path.
 #![allow(clippy::result_large_err)]
 
+use std::collections::BTreeMap;
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::sync::Arc;
 
-use clap::{Parser, Subcommand};
-use crescendo_diag::{render, Diagnostic, Source};
-use crescendo_plan::DeckPlan;
+use clap::{Parser, Subcommand, ValueEnum};
+use crescendo_diag::{render, Diagnostic, Severity, Source};
+use crescendo_plan::{Options, Planned};
 
 mod deck;
+mod diff;
 
 /// Exit status when the story or its data has errors.
 const EXIT_STORY: u8 = 1;
+/// Exit status when a claim does not hold.
+const EXIT_CLAIM: u8 = 3;
 /// Exit status when the deck could not be written.
 const EXIT_OUTPUT: u8 = 4;
 
@@ -31,6 +35,29 @@ struct Cli {
     command: Command,
 }
 
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum Format {
+    Human,
+    Json,
+}
+
+#[derive(clap::Args)]
+struct DataArgs {
+    /// Read data item NAME from FILE instead of the file the story names
+    /// (repeatable), e.g. `--data trips=exports/2024-12.csv`.
+    #[arg(long = "data", value_name = "NAME=FILE", value_parser = parse_data_arg)]
+    data: Vec<(String, PathBuf)>,
+}
+
+fn parse_data_arg(s: &str) -> Result<(String, PathBuf), String> {
+    match s.split_once('=') {
+        Some((name, file)) if !name.is_empty() && !file.is_empty() => {
+            Ok((name.to_string(), PathBuf::from(file)))
+        }
+        _ => Err(format!("expected NAME=FILE, got `{s}`")),
+    }
+}
+
 #[derive(Subcommand)]
 enum Command {
     /// Build the deck: numbered SVG frames, deck.json and index.html.
@@ -38,46 +65,59 @@ enum Command {
         /// The story file (.cresc).
         story: PathBuf,
         /// Output folder (default: `deck/` beside the story). It is replaced
-        /// only when the whole build succeeds.
+        /// only when the whole build succeeded.
         #[arg(long)]
         out: Option<PathBuf>,
+        /// Build even when claims fail, marking every frame whose text
+        /// depends on a failed claim.
+        #[arg(long)]
+        draft: bool,
+        #[command(flatten)]
+        data: DataArgs,
+    },
+    /// Parse, compute every value and check every claim, without drawing.
+    Check {
+        /// The story file (.cresc).
+        story: PathBuf,
+        /// `human` (default) or `json` for CI.
+        #[arg(long, value_enum, default_value = "human")]
+        format: Format,
+        #[command(flatten)]
+        data: DataArgs,
     },
     /// Print the frame plan (the renderer's input) as JSON.
     Plan {
         /// The story file (.cresc).
         story: PathBuf,
+        #[command(flatten)]
+        data: DataArgs,
+    },
+    /// Compare two decks: which frames changed and which quoted numbers moved.
+    Diff {
+        /// The older deck folder.
+        old: PathBuf,
+        /// The newer deck folder.
+        new: PathBuf,
     },
 }
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
-    let color = std::io::stderr().is_terminal();
+    let color = std::io::stderr().is_terminal() && std::env::var_os("NO_COLOR").is_none();
     match cli.command {
-        Command::Build { story, out } => {
-            let plan = match load_plan(&story, color) {
-                Ok(p) => p,
-                Err(code) => return code,
-            };
-            let out = out.unwrap_or_else(|| story.parent().unwrap_or(Path::new(".")).join("deck"));
-            match deck::build(&plan, &out) {
-                Ok(files) => {
-                    eprintln!(
-                        "built {} frame{} into {}",
-                        files,
-                        if files == 1 { "" } else { "s" },
-                        out.display()
-                    );
-                    ExitCode::SUCCESS
-                }
-                Err(e) => {
-                    eprint!("{}", render(&[e], color));
-                    eprintln!("the previous deck in {} was left as it was", out.display());
-                    ExitCode::from(EXIT_OUTPUT)
-                }
-            }
-        }
-        Command::Plan { story } => match load_plan(&story, color) {
-            Ok(p) => match serde_json::to_string_pretty(&p) {
+        Command::Build {
+            story,
+            out,
+            draft,
+            data,
+        } => build(&story, out, draft, &data, color),
+        Command::Check {
+            story,
+            format,
+            data,
+        } => check(&story, format, &data, color),
+        Command::Plan { story, data } => match load_plan(&story, &data, color) {
+            Ok(p) => match serde_json::to_string_pretty(&p.plan) {
                 Ok(s) => {
                     println!("{s}");
                     ExitCode::SUCCESS
@@ -89,30 +129,208 @@ fn main() -> ExitCode {
             },
             Err(code) => code,
         },
+        Command::Diff { old, new } => match diff::diff_folders(&old, &new) {
+            Ok(lines) => {
+                for l in lines {
+                    println!("{l}");
+                }
+                ExitCode::SUCCESS
+            }
+            Err(d) => {
+                eprint!("{}", render(&[d], color));
+                ExitCode::from(EXIT_STORY)
+            }
+        },
     }
 }
 
-/// Read, parse and plan a story; print diagnostics; exit status on failure.
-fn load_plan(story: &Path, color: bool) -> Result<DeckPlan, ExitCode> {
-    let text = match std::fs::read_to_string(story) {
-        Ok(t) => t,
-        Err(e) => {
-            let d = Diagnostic::error(
-                "story-file",
-                format!("cannot read story file `{}`: {e}", story.display()),
-            );
-            eprint!("{}", render(&[d], color));
-            return Err(ExitCode::from(EXIT_STORY));
-        }
+fn build(
+    story: &Path,
+    out: Option<PathBuf>,
+    draft: bool,
+    data: &DataArgs,
+    color: bool,
+) -> ExitCode {
+    let planned = match load_plan(story, data, color) {
+        Ok(p) => p,
+        Err(code) => return code,
     };
+    let out = out.unwrap_or_else(|| story.parent().unwrap_or(Path::new(".")).join("deck"));
+    if !planned.failed_claims.is_empty() {
+        if draft {
+            let as_warnings: Vec<Diagnostic> = planned
+                .failed_claims
+                .iter()
+                .cloned()
+                .map(|mut d| {
+                    d.severity = Severity::Warning;
+                    d
+                })
+                .collect();
+            eprint!("{}", render(&as_warnings, color));
+        } else {
+            eprint!("{}", render(&planned.failed_claims, color));
+            let n = planned.failed_claims.len();
+            eprintln!(
+                "{n} claim{} of {} not supported by the data; no deck written (the previous deck in {} is kept)",
+                if n == 1 { "" } else { "s" },
+                story.display(),
+                out.display()
+            );
+            return ExitCode::from(EXIT_CLAIM);
+        }
+    }
+    let previous = diff::read_manifest(&out).ok();
+    match deck::build(&planned.plan, &out) {
+        Ok(files) => {
+            eprintln!(
+                "built {} frame{} into {}{}",
+                files,
+                if files == 1 { "" } else { "s" },
+                out.display(),
+                if draft && !planned.failed_claims.is_empty() {
+                    " (draft: claims fail)"
+                } else {
+                    ""
+                }
+            );
+            if let (Some(old), Ok(new)) = (previous, diff::read_manifest(&out)) {
+                for line in diff::diff(&old, &new) {
+                    eprintln!("  {line}");
+                }
+            }
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprint!("{}", render(&[e], color));
+            eprintln!("the previous deck in {} was left as it was", out.display());
+            ExitCode::from(EXIT_OUTPUT)
+        }
+    }
+}
+
+fn diag_json(d: &Diagnostic) -> serde_json::Value {
+    let (file, line, column) = match d.location() {
+        Some((f, l, c)) => (Some(f), Some(l), Some(c)),
+        None => (None, None, None),
+    };
+    serde_json::json!({
+        "severity": d.severity,
+        "code": d.code,
+        "message": d.message,
+        "file": file,
+        "line": line,
+        "column": column,
+        "notes": d.notes,
+        "help": d.help,
+    })
+}
+
+fn check(story: &Path, format: Format, data: &DataArgs, color: bool) -> ExitCode {
+    let result = plan_quietly(story, data);
+    let (planned, errors) = match result {
+        Ok(p) => (Some(p), Vec::new()),
+        Err(d) => (None, d),
+    };
+    let failed = planned.as_ref().map_or(0, |p| p.failed_claims.len());
+    let status = if !errors.is_empty() {
+        EXIT_STORY
+    } else if failed > 0 {
+        EXIT_CLAIM
+    } else {
+        0
+    };
+    match format {
+        Format::Json => {
+            let mut problems: Vec<serde_json::Value> = errors.iter().map(diag_json).collect();
+            if let Some(p) = &planned {
+                problems.extend(p.warnings.iter().map(diag_json));
+                problems.extend(p.failed_claims.iter().map(diag_json));
+            }
+            let report = serde_json::json!({
+                "story": story.display().to_string(),
+                "ok": status == 0,
+                "status": status,
+                "diagnostics": problems,
+                "frames": planned.as_ref().map(|p| p.plan.frames.len()),
+                "values": planned.as_ref().map(|p| p.plan.values.clone()),
+                "claims": planned.as_ref().map(|p| p.plan.claims.clone()),
+            });
+            match serde_json::to_string_pretty(&report) {
+                Ok(s) => println!("{s}"),
+                Err(e) => eprintln!("error: {e}"),
+            }
+        }
+        Format::Human => {
+            if !errors.is_empty() {
+                eprint!("{}", render(&errors, color));
+            }
+            if let Some(p) = &planned {
+                if !p.warnings.is_empty() {
+                    eprint!("{}", render(&p.warnings, color));
+                }
+                if !p.failed_claims.is_empty() {
+                    eprint!("{}", render(&p.failed_claims, color));
+                }
+                let plan = &p.plan;
+                println!(
+                    "{}: {} frame{}, {} value{}, {} claim{}",
+                    story.display(),
+                    plan.frames.len(),
+                    if plan.frames.len() == 1 { "" } else { "s" },
+                    plan.values.len(),
+                    if plan.values.len() == 1 { "" } else { "s" },
+                    plan.claims.len(),
+                    if plan.claims.len() == 1 { "" } else { "s" }
+                );
+                for (name, figure) in &plan.values {
+                    println!("  value {name} = {figure}");
+                }
+                for c in &plan.claims {
+                    println!(
+                        "  claim {}: \"{}\" ({})",
+                        if c.holds { "holds" } else { "FAILS" },
+                        c.sentence,
+                        c.detail.join("; ")
+                    );
+                }
+            } else {
+                let n = errors.iter().filter(|d| d.is_error()).count();
+                eprintln!(
+                    "{n} error{} in {}",
+                    if n == 1 { "" } else { "s" },
+                    story.display()
+                );
+            }
+        }
+    }
+    ExitCode::from(status)
+}
+
+/// Read, parse and plan a story without printing anything.
+fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic>> {
+    let text = std::fs::read_to_string(story).map_err(|e| {
+        vec![Diagnostic::error(
+            "story-file",
+            format!("cannot read story file `{}`: {e}", story.display()),
+        )]
+    })?;
     let src: Arc<Source> = Source::file(story.display().to_string(), text);
     let dir = story.parent().unwrap_or(Path::new("."));
-    match crescendo_plan::plan_story(&src, dir) {
-        Ok((plan, warnings)) => {
-            if !warnings.is_empty() {
-                eprint!("{}", render(&warnings, color));
+    let options = Options {
+        data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
+    };
+    crescendo_plan::plan_story(&src, dir, &options)
+}
+
+/// Read, parse and plan a story; print diagnostics; exit status on failure.
+fn load_plan(story: &Path, data: &DataArgs, color: bool) -> Result<Planned, ExitCode> {
+    match plan_quietly(story, data) {
+        Ok(p) => {
+            if !p.warnings.is_empty() {
+                eprint!("{}", render(&p.warnings, color));
             }
-            Ok(plan)
+            Ok(p)
         }
         Err(diags) => {
             eprint!("{}", render(&diags, color));

@@ -12,12 +12,12 @@ use std::panic::{self, AssertUnwindSafe};
 use std::path::{Path, PathBuf};
 
 use crescendo_diag::{Diagnostic, Located, Source};
-use crescendo_plan::{plan_story, Chart, DeckPlan};
+use crescendo_plan::{plan_story, Chart, DeckPlan, Options, PlanResult, Planned};
 
 /// Story mutations per story.
-const STORY_CASES: usize = 20000;
+const STORY_CASES: usize = 800;
 /// CSV mutations per story (each writes a temporary copy of the data).
-const CSV_CASES: usize = 1500;
+const CSV_CASES: usize = 150;
 
 /// xorshift64 (G. Marsaglia, "Xorshift RNGs", Journal of Statistical
 /// Software 8(14), 2003; shifts 13, 7, 17).
@@ -89,6 +89,13 @@ const WORDS: &[&str] = &[
     "none",
     "takeaway",
     "notes",
+    "claim",
+    "about",
+    "within",
+    "where",
+    "5%",
+    "{",
+    "}",
     "count()",
     "sum(",
     "clear",
@@ -110,6 +117,123 @@ const PUNCT: &[&str] = &[
     "{", "}", "(", ")", ":", ",", "|", "=", "==", "<", ">=", "\"", "#", ";", "\\", "-", "*", "/",
     "\n", "\r\n", "\r", "\t", "é", "→", "\u{feff}", "\0",
 ];
+
+/// A story of our own that uses every feature of the language the demo
+/// stories leave out (dates, years, `missing`, `add`, `in`, `not`, `or`,
+/// `sort`, `top ... rest`, single-series lines, ordered bars, `;`), so
+/// that mutations reach those paths of the planner too.
+const RICH_STORY: &str = r#"# Invented test data: grants paid by region.
+story "Grants to the north grew fastest"
+byline "Test team"
+source "Invented test data"
+theme clear
+
+data grants from "data/grants.csv" missing "NA", "-" {
+  day: date
+  year: year, region: text
+  amount: number
+}
+
+view per_year = grants
+  | keep year >= 2020 and not (region in ("Nowhere", "Test"))
+  | add thousands = amount / 1000 + 0 * -1
+  | by year, region: total = sum(thousands), n = count(), first_day = first(day),
+      top_amount = max(amount), low = min(amount), last_day = last(day)
+
+view per_year_north = per_year
+  | keep region = "North" or total > 100000
+
+view per_day = grants
+  | keep day >= "2020-01-01" and region != "Test"
+  | by day: amount = sum(amount)
+  | sort day ascending
+
+view regions = grants
+  | by region: amount = sum(amount), median_amount = median(amount), mean_amount = mean(amount)
+  | top 3 region by amount rest "Other regions"
+  | sort amount descending, region
+
+compare region by total
+focus "North", "East"
+conclusion "Fund more work in the north."
+
+frame "Spending per year" {
+  line per_year: x year, y total, series region
+  x title "Year"
+  y title "Thousand per year"
+  hide all; show "North"
+}
+
+frame "All regions" { show all; spotlight focus }
+
+frame "Day by day" {
+  line per_day: x day, y amount
+  takeaway "Payments come in bursts."
+  notes "Mention the audit."
+}
+
+frame "The three largest regions" {
+  bars regions: category region, value amount
+  spotlight "North"
+  hide "Other regions"
+}
+
+frame "North year by year" {
+  bars per_year_north: category year, value total, ordered
+  y title "Thousand"
+  spotlight none
+}
+"#;
+
+/// The data of [`RICH_STORY`], generated from a fixed seed.
+fn rich_csv() -> String {
+    let mut rng = Rng::new(0x6A_4A17);
+    let regions = ["North", "East", "South", "West", "Central", "Test"];
+    let mut out = String::from("day,year,region,amount,note\n");
+    for year in 2019..2025 {
+        for month in [2, 7, 11] {
+            for r in regions {
+                if rng.below(7) == 0 {
+                    continue;
+                }
+                let amount = if rng.below(20) == 0 {
+                    "NA".to_string()
+                } else {
+                    // North leads, so the story's spotlight stays valid
+                    let lead = if r == "North" { 1000 } else { 5 };
+                    format!("{}.{}", lead + rng.below(900), rng.below(10))
+                };
+                let day = 1 + rng.below(28);
+                out.push_str(&format!(
+                    "{year}-{month:02}-{day:02},{year},{r},{amount},\"{}, {year}\"\n",
+                    r.to_lowercase()
+                ));
+            }
+        }
+    }
+    out
+}
+
+/// Every story to mutate, as (name, text, folder): the demo stories, and
+/// [`RICH_STORY`] written with its data into a scratch folder of its own
+/// for each `test` (the tests run in parallel).
+fn corpus(test: &str) -> Vec<(String, String, PathBuf)> {
+    let mut out: Vec<(String, String, PathBuf)> = common::stories()
+        .into_iter()
+        .map(|(name, path)| {
+            let text = fs::read_to_string(&path).expect("read story");
+            let dir = path.parent().expect("story folder").to_path_buf();
+            (name, text, dir)
+        })
+        .collect();
+    assert!(!out.is_empty(), "no demo stories found");
+    let dir = common::scratch(&format!("robustness-{test}-rich"));
+    fs::create_dir_all(dir.join("data")).expect("create data folder");
+    fs::write(dir.join("data/grants.csv"), rich_csv()).expect("write rich data");
+    fs::write(dir.join("rich.cresc"), RICH_STORY).expect("write rich story");
+    out.push(("rich".to_string(), RICH_STORY.to_string(), dir));
+    out
+}
 
 /// Byte offset of a random char boundary of `s` (0..=len).
 fn boundary(rng: &mut Rng, s: &str) -> usize {
@@ -259,6 +383,9 @@ fn mutate_story(rng: &mut Rng, text: &str) -> String {
         // delete, move or swap whole lines (keeps most of the syntax valid)
         7 | 8 => {
             let mut lines: Vec<String> = s.split_inclusive('\n').map(str::to_string).collect();
+            if lines.is_empty() {
+                return s;
+            }
             let i = rng.below(lines.len());
             let j = rng.below(lines.len());
             match rng.below(3) {
@@ -546,8 +673,12 @@ fn check_plan(p: &DeckPlan) -> Vec<String> {
 /// Plan `text` against `dir`; returns the problems found (empty when fine).
 fn plan_problems(name: &str, text: &str, dir: &Path) -> Vec<String> {
     let src = Source::file(name, text);
-    let result = panic::catch_unwind(AssertUnwindSafe(|| plan_story(&src, dir)));
-    match result {
+    problems_of(|| plan_story(&src, dir, &Options::default()))
+}
+
+/// Run a planning step, catching panics; returns the problems found.
+fn problems_of(run: impl FnOnce() -> PlanResult) -> Vec<String> {
+    match panic::catch_unwind(AssertUnwindSafe(run)) {
         Err(e) => {
             let msg = e
                 .downcast_ref::<String>()
@@ -563,8 +694,16 @@ fn plan_problems(name: &str, text: &str, dir: &Path) -> Vec<String> {
             }
             out
         }
-        Ok(Ok((plan, warnings))) => {
-            let mut out: Vec<String> = warnings.iter().flat_map(check_diag).collect();
+        Ok(Ok(Planned {
+            plan,
+            warnings,
+            failed_claims,
+        })) => {
+            let mut out: Vec<String> = warnings
+                .iter()
+                .chain(&failed_claims)
+                .flat_map(check_diag)
+                .collect();
             out.extend(check_plan(&plan));
             out
         }
@@ -620,28 +759,26 @@ fn files_under(dir: &Path) -> Vec<PathBuf> {
 }
 
 #[test]
-fn demo_stories_plan_cleanly() {
-    // The baseline: unmutated stories plan, so mutations test something.
-    for (name, path) in common::stories() {
-        let text = fs::read_to_string(&path).expect("read story");
-        let dir = path.parent().expect("story folder");
+fn unmutated_stories_plan_cleanly() {
+    // The baseline: every story of the corpus plans, so the mutations below
+    // start from valid input and test something.
+    for (name, text, dir) in corpus("plain") {
         let src = Source::file(format!("{name}.cresc"), text);
-        let result = plan_story(&src, dir);
-        assert!(result.is_ok(), "{name} does not plan: {result:?}");
+        let result = plan_story(&src, &dir, &Options::default());
+        match result {
+            Ok(p) => assert!(p.failed_claims.is_empty(), "{name}: {:?}", p.failed_claims),
+            Err(d) => panic!("{name} does not plan: {d:?}"),
+        }
     }
 }
 
 #[test]
 fn mutated_stories_never_panic_and_errors_are_located() {
-    let stories = common::stories();
-    assert!(!stories.is_empty(), "no demo stories found");
     let mut failures = Vec::new();
-    for (si, (name, path)) in stories.iter().enumerate() {
-        let text = fs::read_to_string(path).expect("read story");
-        let dir = path.parent().expect("story folder");
+    for (si, (name, text, dir)) in corpus("story").iter().enumerate() {
         let mut rng = Rng::new(0x5EED_0001 + si as u64);
         for case in 0..STORY_CASES {
-            let mut mutated = mutate_story(&mut rng, &text);
+            let mut mutated = mutate_story(&mut rng, text);
             // Now and then stack a second and third edit.
             for _ in 0..rng.below(3) {
                 mutated = mutate_story(&mut rng, &mutated);
@@ -661,11 +798,9 @@ fn mutated_stories_never_panic_and_errors_are_located() {
 
 #[test]
 fn mutated_data_never_panics_and_errors_are_located() {
-    let stories = common::stories();
     let mut failures = Vec::new();
-    for (si, (name, path)) in stories.iter().enumerate() {
-        let text = fs::read_to_string(path).expect("read story");
-        let dir = path.parent().expect("story folder");
+    for (si, (name, text, dir)) in corpus("data").iter().enumerate() {
+        let dir = dir.as_path();
         let csvs: Vec<PathBuf> = files_under(dir)
             .into_iter()
             .filter(|p| p.extension().is_some_and(|x| x == "csv"))
@@ -686,7 +821,7 @@ fn mutated_data_never_panics_and_errors_are_located() {
                 mutated = mutate_csv(&mut rng, &mutated);
             }
             fs::write(scratch.join(&rel), &mutated).expect("write csv");
-            let problems = plan_problems(&format!("{name}.cresc"), &text, &scratch);
+            let problems = plan_problems(&format!("{name}.cresc"), text, &scratch);
             if !problems.is_empty() {
                 failures.push(format!(
                     "story `{name}`, data `{}`, case {case}: {}\n--- data ---\n{}",
@@ -715,6 +850,11 @@ fn the_checks_can_fail() {
     assert!(!check_diag(&split_char).is_empty());
     let fine = Diagnostic::error("x", "ok").at(&src, 1..3, "here");
     assert!(check_diag(&fine).is_empty());
+    // A panic is caught and reported, and so is a failure without an error.
+    let panicked = problems_of(|| panic!("boom"));
+    assert_eq!(panicked, ["panic: boom"]);
+    let silent = problems_of(|| Err(vec![Diagnostic::warning("x", "only a warning")]));
+    assert!(!silent.is_empty());
     // and a missing story folder is an error, not a panic
     assert!(
         plan_problems("t.cresc", "story \"x\"\n", Path::new("/nonexistent")).is_empty(),

@@ -17,8 +17,15 @@ fn plan_of(path: &Path) -> DeckPlan {
     let text = std::fs::read_to_string(path).expect("read story");
     let rel = path.strip_prefix(root()).unwrap_or(path);
     let src: Arc<Source> = Source::file(rel.display().to_string(), text);
-    match crescendo_plan::plan_story(&src, path.parent().unwrap()) {
-        Ok((plan, _warnings)) => plan,
+    match crescendo_plan::plan_story(&src, path.parent().unwrap(), &Default::default()) {
+        Ok(p) => {
+            assert!(
+                p.failed_claims.is_empty(),
+                "{}",
+                crescendo_diag::render(&p.failed_claims, false)
+            );
+            p.plan
+        }
         Err(diags) => panic!("{}", crescendo_diag::render(&diags, false)),
     }
 }

@@ -71,6 +71,46 @@ def volunteers():
         w.writerows(rows)
 
 
+def clinics():
+    """Monthly follow-up appointments by channel at three invented clinics.
+
+    Two exports of the same data: `followups-2024-11.csv` (through November)
+    and `followups-2024-12.csv` (one more month, and revised figures after a
+    booking-system fix moved many "video" bookings to "phone"). The story's
+    claim that video is over a third of follow-ups holds on the first and
+    fails on the second.
+    """
+    rng = random.Random(42)
+    clinics = {"Northgate": 1.0, "Riverside": 0.8, "Hillcrest": 0.6}
+    def rows(last_month, revised):
+        out = []
+        for year in (2023, 2024):
+            for month in range(1, 13):
+                if (year, month) > last_month:
+                    break
+                t = (year - 2023) * 12 + (month - 1)
+                for clinic, size in clinics.items():
+                    total = 900 * size * (1 + 0.01 * t) * rng.uniform(0.97, 1.03)
+                    video_share = (0.22 + 0.006 * t) * rng.uniform(0.95, 1.05)
+                    if revised:
+                        video_share *= 0.7
+                    phone_share = 0.18
+                    video = round(total * video_share)
+                    phone = round(total * phone_share) + (round(total * 0.3 * video_share / 0.7) if revised else 0)
+                    in_person = round(total) - video - phone
+                    for channel, n in (("In person", in_person), ("Video", video), ("Phone", phone)):
+                        out.append([f"{year}-{month:02d}", clinic, channel, str(n)])
+        return out
+    for name, last, revised in (("followups-2024-11.csv", (2024, 11), False), ("followups-2024-12.csv", (2024, 12), True)):
+        rng.seed(42)
+        path = os.path.join(ROOT, "stories", "clinics", "data", name)
+        with open(path, "w", newline="") as f:
+            w = csv.writer(f, lineterminator="\n")
+            w.writerow(["month", "clinic", "channel", "appointments"])
+            w.writerows(rows(last, revised))
+
+
 if __name__ == "__main__":
     pools()
     volunteers()
+    clinics()

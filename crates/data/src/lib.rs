@@ -4,6 +4,7 @@
 pub mod format;
 pub mod load;
 pub mod model;
+pub mod stats;
 pub mod time;
 pub mod view;
 

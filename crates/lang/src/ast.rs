@@ -38,6 +38,8 @@ pub enum Item {
     Compare(CompareDecl),
     Focus { names: Vec<Str>, span: Span },
     Conclusion(TextItem),
+    Value(ValueDecl),
+    Claim(ClaimDecl),
     Frame(FrameDecl),
 }
 
@@ -51,6 +53,8 @@ impl Item {
             Item::View(v) => &v.span,
             Item::Compare(c) => &c.span,
             Item::Frame(f) => &f.span,
+            Item::Value(v) => &v.span,
+            Item::Claim(c) => &c.span,
         }
     }
 }
@@ -340,4 +344,184 @@ pub enum FrameStmt {
         text: Str,
         span: Span,
     },
+}
+
+/// `value NAME = EXPRESSION`
+#[derive(Clone, Debug, PartialEq)]
+pub struct ValueDecl {
+    pub name: Ident,
+    pub expr: VExpr,
+    pub span: Span,
+}
+
+/// `claim CONDITION "sentence"`
+#[derive(Clone, Debug, PartialEq)]
+pub struct ClaimDecl {
+    pub condition: VCond,
+    pub sentence: Str,
+    pub span: Span,
+}
+
+/// An expression over values (not rows): numbers, value names, functions of
+/// selections, arithmetic.
+#[derive(Clone, Debug, PartialEq)]
+pub enum VExpr {
+    Number {
+        value: f64,
+        span: Span,
+    },
+    Name(Ident),
+    Neg {
+        expr: Box<VExpr>,
+        span: Span,
+    },
+    /// `op` is one of `Add`, `Sub`, `Mul`, `Div`.
+    Binary {
+        op: BinOp,
+        left: Box<VExpr>,
+        right: Box<VExpr>,
+        span: Span,
+    },
+    Call {
+        func: Ident,
+        args: Vec<CallArg>,
+        span: Span,
+    },
+}
+
+impl VExpr {
+    pub fn span(&self) -> Span {
+        match self {
+            VExpr::Name(i) => i.span.clone(),
+            VExpr::Number { span, .. }
+            | VExpr::Neg { span, .. }
+            | VExpr::Binary { span, .. }
+            | VExpr::Call { span, .. } => span.clone(),
+        }
+    }
+}
+
+/// An argument of a value function.
+#[derive(Clone, Debug, PartialEq)]
+pub enum CallArg {
+    Selection(Selection),
+    Value(VExpr),
+}
+
+impl CallArg {
+    pub fn span(&self) -> Span {
+        match self {
+            CallArg::Selection(s) => s.span.clone(),
+            CallArg::Value(v) => v.span(),
+        }
+    }
+}
+
+/// `VIEW.COLUMN [by COLUMN] [where CONDITION]` or `VIEW where CONDITION`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Selection {
+    pub view: Ident,
+    pub column: Option<Ident>,
+    pub by: Option<Ident>,
+    pub filter: Option<Expr>,
+    pub span: Span,
+}
+
+/// A tolerance of `about ... within ...`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Tolerance {
+    pub amount: f64,
+    /// `true` for a percentage of the right-hand side.
+    pub relative: bool,
+    pub span: Span,
+}
+
+/// A condition over values.
+#[derive(Clone, Debug, PartialEq)]
+pub enum VCond {
+    /// `op` is a comparison (`Eq` .. `Ge`).
+    Compare {
+        op: BinOp,
+        left: VExpr,
+        right: VExpr,
+        span: Span,
+    },
+    About {
+        left: VExpr,
+        right: VExpr,
+        tolerance: Tolerance,
+        span: Span,
+    },
+    And {
+        left: Box<VCond>,
+        right: Box<VCond>,
+        span: Span,
+    },
+    Or {
+        left: Box<VCond>,
+        right: Box<VCond>,
+        span: Span,
+    },
+    Not {
+        cond: Box<VCond>,
+        span: Span,
+    },
+}
+
+impl VCond {
+    pub fn span(&self) -> Span {
+        match self {
+            VCond::Compare { span, .. }
+            | VCond::About { span, .. }
+            | VCond::And { span, .. }
+            | VCond::Or { span, .. }
+            | VCond::Not { span, .. } => span.clone(),
+        }
+    }
+}
+
+/// How a quoted value is printed: `{name:+.1%}`.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct FormatSpec {
+    /// `+`: always print a sign (+12%, -3%).
+    pub sign: bool,
+    /// `.N`: exactly N decimals (trailing zeros kept). `None`: a few
+    /// decimals, trailing zeros dropped.
+    pub decimals: Option<usize>,
+    pub style: NumberStyle,
+}
+
+/// The style part of a [`FormatSpec`].
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum NumberStyle {
+    #[default]
+    Plain,
+    /// `%`: a fraction shown as a percentage (0.123 → 12.3%).
+    Percent,
+    /// `k`: compact (12.3k, 4.5M).
+    Compact,
+}
+
+/// One piece of a text that may quote values.
+#[derive(Clone, Debug, PartialEq)]
+pub enum TextPart {
+    Literal(String),
+    Quote {
+        expr: VExpr,
+        format: FormatSpec,
+        span: Span,
+    },
+}
+
+/// A text with its quoted values, e.g. `"now {multiple:.1}× as many"`.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Template {
+    pub parts: Vec<TextPart>,
+}
+
+impl Template {
+    /// True when the text quotes no values.
+    pub fn is_plain(&self) -> bool {
+        self.parts.iter().all(|p| matches!(p, TextPart::Literal(_)))
+    }
 }

@@ -27,6 +27,8 @@ pub const TOP_KEYWORDS: &[&str] = &[
     "compare",
     "focus",
     "conclusion",
+    "value",
+    "claim",
     "frame",
 ];
 
@@ -167,6 +169,17 @@ fn describe(rule: Rule) -> Option<String> {
             Rule::cmp_op => "a comparison",
             Rule::add_op | Rule::mul_op => "an operator",
             Rule::EOI => "the end of the file",
+            Rule::dot => "`.`",
+            Rule::vexpr | Rule::vterm | Rule::vunary | Rule::call => "a value expression",
+            Rule::vcond
+            | Rule::vor
+            | Rule::vand
+            | Rule::vnot
+            | Rule::vnegation
+            | Rule::vcompare => "a condition over values",
+            Rule::vcmp_tail | Rule::about_tail => "a comparison (`>`, `<`, `=`, ... or `about`)",
+            Rule::tolerance => "a tolerance such as `5%` or `0.1`",
+            Rule::format_spec => "a format such as `.1`, `%`, `+.0%` or `k`",
             Rule::eq => "`=`",
             Rule::colon => "`:`",
             Rule::open_brace => "`{`",
@@ -449,6 +462,22 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
                 .collect(),
             span,
         },
+        Rule::value_item => {
+            let mut it = inner.into_iter().skip(1);
+            let name = ident(it.next().ok_or_else(|| internal(&span))?, base);
+            let expr = convert_vexpr(it.next().ok_or_else(|| internal(&span))?, base)?;
+            Item::Value(ValueDecl { name, expr, span })
+        }
+        Rule::claim_item => {
+            let mut it = inner.into_iter().skip(1);
+            let condition = convert_vcond(it.next().ok_or_else(|| internal(&span))?, base)?;
+            let sentence = string(it.next().ok_or_else(|| internal(&span))?, base);
+            Item::Claim(ClaimDecl {
+                condition,
+                sentence,
+                span,
+            })
+        }
         Rule::frame_item => {
             let mut it = inner.into_iter().skip(1);
             let headline = string(it.next().ok_or_else(|| internal(&span))?, base);
@@ -687,6 +716,183 @@ fn convert_expr(pair: Pair<Rule>, base: usize) -> Res<Expr> {
         }
         Rule::string => Ok(Expr::Text(string(pair, base))),
         Rule::ident => Ok(Expr::Column(ident(pair, base))),
+        _ => Err(internal(&span)),
+    }
+}
+
+/// Convert a value expression (`vexpr` and below).
+fn convert_vexpr(pair: Pair<Rule>, base: usize) -> Res<VExpr> {
+    let span = span_of(&pair, base);
+    match pair.as_rule() {
+        Rule::vexpr | Rule::vterm => {
+            let mut it = children(pair);
+            let mut left = convert_vexpr(it.next().ok_or_else(|| internal(&span))?, base)?;
+            while let (Some(op), Some(r)) = (it.next(), it.next()) {
+                let op = match op.as_str() {
+                    "+" => BinOp::Add,
+                    "-" => BinOp::Sub,
+                    "*" => BinOp::Mul,
+                    _ => BinOp::Div,
+                };
+                let right = convert_vexpr(r, base)?;
+                let s = left.span().start..right.span().end;
+                left = VExpr::Binary {
+                    op,
+                    left: Box::new(left),
+                    right: Box::new(right),
+                    span: s,
+                };
+            }
+            Ok(left)
+        }
+        Rule::vunary => {
+            let parts: Vec<Pair<Rule>> = children(pair).collect();
+            let negs = parts
+                .iter()
+                .filter(|p| p.as_rule() == Rule::neg_sign)
+                .count();
+            let atom = parts.into_iter().last().ok_or_else(|| internal(&span))?;
+            let mut e = convert_vexpr(atom, base)?;
+            for _ in 0..negs {
+                e = VExpr::Neg {
+                    expr: Box::new(e),
+                    span: span.clone(),
+                };
+            }
+            Ok(e)
+        }
+        Rule::number => match convert_expr(pair, base)? {
+            Expr::Number { value, span } => Ok(VExpr::Number { value, span }),
+            _ => Err(internal(&span)),
+        },
+        Rule::ident => Ok(VExpr::Name(ident(pair, base))),
+        Rule::call => {
+            let mut it = children(pair);
+            let func = ident(it.next().ok_or_else(|| internal(&span))?, base);
+            let mut args = Vec::new();
+            for a in it {
+                if a.as_rule() == Rule::selection {
+                    let sspan = span_of(&a, base);
+                    let mut si = children(a);
+                    let view = ident(si.next().ok_or_else(|| internal(&sspan))?, base);
+                    let mut sel = Selection {
+                        view,
+                        column: None,
+                        by: None,
+                        filter: None,
+                        span: sspan.clone(),
+                    };
+                    for part in si {
+                        match part.as_rule() {
+                            Rule::ident => sel.column = Some(ident(part, base)),
+                            Rule::by_part => {
+                                sel.by = children(part).nth(1).map(|p| ident(p, base));
+                            }
+                            Rule::where_part => {
+                                let e = children(part).nth(1).ok_or_else(|| internal(&sspan))?;
+                                sel.filter = Some(convert_expr(e, base)?);
+                            }
+                            _ => {}
+                        }
+                    }
+                    args.push(CallArg::Selection(sel));
+                } else {
+                    args.push(CallArg::Value(convert_vexpr(a, base)?));
+                }
+            }
+            Ok(VExpr::Call { func, args, span })
+        }
+        _ => Err(internal(&span)),
+    }
+}
+
+/// Convert a condition over values (`vcond` and below).
+fn convert_vcond(pair: Pair<Rule>, base: usize) -> Res<VCond> {
+    let span = span_of(&pair, base);
+    match pair.as_rule() {
+        Rule::vcond | Rule::vnot => {
+            convert_vcond(children(pair).next().ok_or_else(|| internal(&span))?, base)
+        }
+        Rule::vor | Rule::vand => {
+            let is_or = pair.as_rule() == Rule::vor;
+            let mut it =
+                children(pair).filter(|p| !matches!(p.as_rule(), Rule::kw_and | Rule::kw_or));
+            let mut left = convert_vcond(it.next().ok_or_else(|| internal(&span))?, base)?;
+            for p in it {
+                let right = convert_vcond(p, base)?;
+                let s = left.span().start..right.span().end;
+                let (l, r) = (Box::new(left), Box::new(right));
+                left = if is_or {
+                    VCond::Or {
+                        left: l,
+                        right: r,
+                        span: s,
+                    }
+                } else {
+                    VCond::And {
+                        left: l,
+                        right: r,
+                        span: s,
+                    }
+                };
+            }
+            Ok(left)
+        }
+        Rule::vnegation => {
+            let operand = children(pair).nth(1).ok_or_else(|| internal(&span))?;
+            Ok(VCond::Not {
+                cond: Box::new(convert_vcond(operand, base)?),
+                span,
+            })
+        }
+        Rule::vcompare => {
+            let mut it = children(pair);
+            let left = convert_vexpr(it.next().ok_or_else(|| internal(&span))?, base)?;
+            let tail = it.next().ok_or_else(|| internal(&span))?;
+            let is_about = tail.as_rule() == Rule::about_tail;
+            let parts: Vec<Pair<Rule>> = children(tail).collect();
+            if is_about {
+                // [about, vexpr, within, tolerance]
+                let right =
+                    convert_vexpr(parts.get(1).cloned().ok_or_else(|| internal(&span))?, base)?;
+                let tol = parts.get(3).cloned().ok_or_else(|| internal(&span))?;
+                let tspan = span_of(&tol, base);
+                let mut ti = children(tol);
+                let amount = match ti.next().map(|n| convert_expr(n, base)).transpose()? {
+                    Some(Expr::Number { value, .. }) => value,
+                    _ => return Err(internal(&tspan)),
+                };
+                let relative = ti.next().is_some();
+                Ok(VCond::About {
+                    left,
+                    right,
+                    tolerance: Tolerance {
+                        amount: if relative { amount / 100.0 } else { amount },
+                        relative,
+                        span: tspan,
+                    },
+                    span,
+                })
+            } else {
+                let op = match parts.first().map(|p| p.as_str()) {
+                    Some("=") | Some("==") => BinOp::Eq,
+                    Some("!=") => BinOp::Ne,
+                    Some("<") => BinOp::Lt,
+                    Some("<=") => BinOp::Le,
+                    Some(">") => BinOp::Gt,
+                    Some(">=") => BinOp::Ge,
+                    _ => return Err(internal(&span)),
+                };
+                let right =
+                    convert_vexpr(parts.get(1).cloned().ok_or_else(|| internal(&span))?, base)?;
+                Ok(VCond::Compare {
+                    op,
+                    left,
+                    right,
+                    span,
+                })
+            }
+        }
         _ => Err(internal(&span)),
     }
 }
@@ -981,5 +1187,305 @@ frame "Bars" { bars monthly: category route, value riders, ordered }
                 let _ = parse_str(&GOOD[..cut]);
             }
         }
+    }
+}
+
+/// Split a string literal of the story into literal text and quoted values
+/// (`{EXPRESSION}` or `{EXPRESSION:FORMAT}`); `{{` and `}}` are literal
+/// braces. Spans point into the story source. Strings whose span does not
+/// cover a literal in `source` (e.g. made up by tests) are taken literally.
+pub fn parse_template(source: &Arc<Source>, s: &Str) -> Result<Template, Vec<Diagnostic>> {
+    let text = source.text.as_str();
+    let inner_ok = s.span.end >= s.span.start + 2
+        && s.span.end <= text.len()
+        && text.is_char_boundary(s.span.start + 1)
+        && text.is_char_boundary(s.span.end - 1)
+        && text[s.span.start..].starts_with('"');
+    if !inner_ok {
+        return Ok(Template {
+            parts: vec![TextPart::Literal(s.value.clone())],
+        });
+    }
+    let start = s.span.start + 1;
+    let raw = &text[start..s.span.end - 1];
+    let mut parts = Vec::new();
+    let mut diags = Vec::new();
+    let mut lit = String::new();
+    let mut chars = raw.char_indices().peekable();
+    while let Some((i, c)) = chars.next() {
+        match c {
+            '\\' => match chars.next() {
+                Some((_, 'n')) => lit.push('\n'),
+                Some((_, 't')) => lit.push('\t'),
+                Some((_, other)) => lit.push(other),
+                None => {}
+            },
+            '{' if chars.peek().is_some_and(|(_, n)| *n == '{') => {
+                chars.next();
+                lit.push('{');
+            }
+            '}' if chars.peek().is_some_and(|(_, n)| *n == '}') => {
+                chars.next();
+                lit.push('}');
+            }
+            '}' => diags.push(
+                Diagnostic::error("template", "a `}` without its `{`")
+                    .at(source, start + i..start + i + 1, "unmatched")
+                    .help("write `}}` for a literal brace"),
+            ),
+            '{' => {
+                let Some(close) = raw[i + 1..].find('}').map(|o| i + 1 + o) else {
+                    diags.push(
+                        Diagnostic::error("template", "a `{` without its `}`")
+                            .at(source, start + i..start + i + 1, "unmatched")
+                            .help("close the quoted value with `}`, or write `{{` for a literal brace"),
+                    );
+                    break;
+                };
+                let body = &raw[i + 1..close];
+                let body_start = start + i + 1;
+                // skip to after the closing brace
+                while chars.peek().is_some_and(|(j, _)| *j <= close) {
+                    chars.next();
+                }
+                if body.contains('\\') || body.contains('"') {
+                    diags.push(
+                        Diagnostic::error(
+                            "template",
+                            "quoted strings cannot appear inside `{...}`",
+                        )
+                        .at(
+                            source,
+                            body_start..body_start + body.len(),
+                            "in this quoted value",
+                        )
+                        .help("define a `value` with the selection and quote its name"),
+                    );
+                    continue;
+                }
+                match StoryParser::parse(Rule::quote, body) {
+                    Ok(mut pairs) => {
+                        let Some(q) = pairs.next() else { continue };
+                        let mut expr = None;
+                        let mut format = FormatSpec::default();
+                        for p in children(q) {
+                            match p.as_rule() {
+                                Rule::vexpr => match convert_vexpr(p, body_start) {
+                                    Ok(e) => expr = Some(e),
+                                    Err(e) => diags.push(e.into_diag(source)),
+                                },
+                                Rule::format_spec => format = format_spec(p.as_str()),
+                                _ => {}
+                            }
+                        }
+                        if let Some(expr) = expr {
+                            if !lit.is_empty() {
+                                parts.push(TextPart::Literal(std::mem::take(&mut lit)));
+                            }
+                            parts.push(TextPart::Quote {
+                                expr,
+                                format,
+                                span: start + i..start + close + 1,
+                            });
+                        }
+                    }
+                    Err(err) => {
+                        let at = match err.location {
+                            InputLocation::Pos(p) => p,
+                            InputLocation::Span((s, _)) => s,
+                        };
+                        let shifted = Source::file(source.name.clone(), source.text.clone());
+                        let mut d = syntax_error(&shifted, body_start, at, &err.variant);
+                        d.message = format!("in a quoted value: {}", d.message);
+                        if let Some(p) = d.primary.as_mut() {
+                            p.source = Arc::clone(source);
+                        }
+                        diags.push(d.note("inside braces write a value name, arithmetic, and an optional format such as `:.1` or `:+.0%`"));
+                    }
+                }
+            }
+            _ => lit.push(c),
+        }
+    }
+    if !lit.is_empty() {
+        parts.push(TextPart::Literal(lit));
+    }
+    if diags.is_empty() {
+        Ok(Template { parts })
+    } else {
+        Err(diags)
+    }
+}
+
+fn format_spec(spec: &str) -> FormatSpec {
+    let mut f = FormatSpec {
+        sign: spec.starts_with('+'),
+        ..FormatSpec::default()
+    };
+    let rest = spec.trim_start_matches('+');
+    let (digits, style) = match rest.strip_suffix('%') {
+        Some(d) => (d, NumberStyle::Percent),
+        None => match rest.strip_suffix('k') {
+            Some(d) => (d, NumberStyle::Compact),
+            None => (rest, NumberStyle::Plain),
+        },
+    };
+    f.style = style;
+    f.decimals = digits
+        .strip_prefix('.')
+        .and_then(|d| d.parse().ok())
+        .map(|d: usize| d.min(12));
+    f
+}
+
+#[cfg(test)]
+mod value_tests {
+    use super::*;
+
+    fn parse_str(text: &str) -> (StoryAst, Vec<Diagnostic>) {
+        parse(&Source::file("v.cresc", text))
+    }
+
+    #[test]
+    fn values_and_claims_parse() {
+        let text = r#"value loop_now = last(monthly.riders where route = "Harbour Loop")
+value multiple = loop_now / bay_now
+value trend = slope(monthly.riders by month where route = "Loop" and month >= "2023-01")
+value n = count(monthly where riders > 0)
+value r = ratio(a + 1, b)
+claim multiple > 2 and not (n < 3 or trend <= 0) "over twice as many"
+claim share about 0.5 within 5% "about half"
+claim gap about 10 within 0.5 "about ten"
+"#;
+        let (ast, diags) = parse_str(text);
+        assert!(
+            diags.is_empty(),
+            "{}",
+            crescendo_diag::render(&diags, false)
+        );
+        assert_eq!(ast.items.len(), 8);
+        let Item::Value(v) = &ast.items[0] else {
+            panic!()
+        };
+        let VExpr::Call { func, args, .. } = &v.expr else {
+            panic!()
+        };
+        assert_eq!(func.name, "last");
+        let CallArg::Selection(sel) = &args[0] else {
+            panic!()
+        };
+        assert_eq!(sel.view.name, "monthly");
+        assert_eq!(sel.column.as_ref().unwrap().name, "riders");
+        assert!(sel.filter.is_some());
+        let Item::Value(t) = &ast.items[2] else {
+            panic!()
+        };
+        let VExpr::Call { args, .. } = &t.expr else {
+            panic!()
+        };
+        let CallArg::Selection(sel) = &args[0] else {
+            panic!()
+        };
+        assert_eq!(sel.by.as_ref().unwrap().name, "month");
+        let Item::Value(c) = &ast.items[3] else {
+            panic!()
+        };
+        let VExpr::Call { args, .. } = &c.expr else {
+            panic!()
+        };
+        let CallArg::Selection(sel) = &args[0] else {
+            panic!()
+        };
+        assert!(sel.column.is_none() && sel.filter.is_some());
+        let Item::Value(r) = &ast.items[4] else {
+            panic!()
+        };
+        let VExpr::Call { args, .. } = &r.expr else {
+            panic!()
+        };
+        assert!(matches!(args[0], CallArg::Value(VExpr::Binary { .. })));
+        let Item::Claim(cl) = &ast.items[5] else {
+            panic!()
+        };
+        assert!(matches!(cl.condition, VCond::And { .. }));
+        assert_eq!(cl.sentence.value, "over twice as many");
+        let Item::Claim(about) = &ast.items[6] else {
+            panic!()
+        };
+        let VCond::About { tolerance, .. } = &about.condition else {
+            panic!()
+        };
+        assert!(tolerance.relative && (tolerance.amount - 0.05).abs() < 1e-12);
+        let Item::Claim(abs) = &ast.items[7] else {
+            panic!()
+        };
+        let VCond::About { tolerance, .. } = &abs.condition else {
+            panic!()
+        };
+        assert!(!tolerance.relative && (tolerance.amount - 0.5).abs() < 1e-12);
+    }
+
+    #[test]
+    fn a_claim_needs_a_comparison_and_a_sentence() {
+        let (_, d) = parse_str("claim multiple \"x\"\n");
+        assert_eq!(d.len(), 1);
+        let (_, d) = parse_str("claim multiple > 2\n");
+        assert_eq!(d.len(), 1);
+        assert!(d[0].message.contains("quoted string"), "{}", d[0].message);
+    }
+
+    fn template_of(text: &str) -> Result<Template, Vec<Diagnostic>> {
+        let src = Source::file("t.cresc", text);
+        let (ast, d) = parse(&src);
+        assert!(d.is_empty(), "{d:?}");
+        let Item::Title(t) = &ast.items[0] else {
+            panic!()
+        };
+        parse_template(&src, &t.text)
+    }
+
+    #[test]
+    fn templates_split_text_and_quotes() {
+        let text = r#"story "Now {multiple:.1}× the riders ({share:+.0%}), {{braces}} \"q\" {n}""#;
+        let t = template_of(text).unwrap();
+        assert_eq!(t.parts.len(), 6, "{t:#?}");
+        assert_eq!(t.parts[0], TextPart::Literal("Now ".into()));
+        let TextPart::Quote { format, span, .. } = &t.parts[1] else {
+            panic!()
+        };
+        assert_eq!(format.decimals, Some(1));
+        assert_eq!(&text[span.clone()], "{multiple:.1}");
+        let TextPart::Quote { format, .. } = &t.parts[3] else {
+            panic!()
+        };
+        assert_eq!(
+            *format,
+            FormatSpec {
+                sign: true,
+                decimals: Some(0),
+                style: NumberStyle::Percent
+            }
+        );
+        assert_eq!(t.parts[4], TextPart::Literal("), {braces} \"q\" ".into()));
+        assert!(!t.is_plain());
+        assert!(template_of(r#"story "plain""#).unwrap().is_plain());
+    }
+
+    #[test]
+    fn template_errors_are_located() {
+        let errs = template_of(r#"story "a {b + } c""#).unwrap_err();
+        assert_eq!(errs.len(), 1);
+        let (_, line, col) = errs[0].location().unwrap();
+        assert_eq!((line, col), (1, 15));
+        let errs = template_of(r#"story "x } y""#).unwrap_err();
+        assert_eq!(errs[0].location().unwrap().2, 10);
+        let errs = template_of(r#"story "x { y""#).unwrap_err();
+        assert!(errs[0].message.contains("without its `}`"));
+        let errs = template_of(r#"story "{x:q}""#).unwrap_err();
+        assert!(
+            errs[0].message.contains("quoted value"),
+            "{}",
+            errs[0].message
+        );
     }
 }

@@ -1,8 +1,8 @@
 //! From a parsed story to a [`DeckPlan`]: header, data, views, then the
 //! frames with their build-up state.
 
-use std::collections::BTreeSet;
-use std::path::Path;
+use std::collections::{BTreeMap, BTreeSet};
+use std::path::{Path, PathBuf};
 use std::sync::Arc;
 
 use crescendo_data::{format, time, ColType, Table, Value};
@@ -14,23 +14,46 @@ use crescendo_lang::ast::{
 use crate::model::*;
 use crate::resolve::{self, schema_of, Named, Tables};
 use crate::scale;
+use crate::values::{self, Evaluator, Values};
+
+/// How to plan a story.
+#[derive(Clone, Debug, Default)]
+pub struct Options {
+    /// `--data NAME=FILE`: read data item NAME from FILE instead of the file
+    /// the story names (this month's export, without editing the story).
+    pub data: BTreeMap<String, PathBuf>,
+}
+
+/// A successful plan: the deck, its warnings, and one error per claim that
+/// does not hold. A build stops on failed claims unless it is a draft; the
+/// frames whose texts depend on a failed claim carry a notice.
+pub struct Planned {
+    pub plan: DeckPlan,
+    pub warnings: Vec<Diagnostic>,
+    pub failed_claims: Vec<Diagnostic>,
+}
 
 /// The result of planning: the plan, or every error found.
-pub type PlanResult = Result<(DeckPlan, Vec<Diagnostic>), Vec<Diagnostic>>;
+pub type PlanResult = Result<Planned, Vec<Diagnostic>>;
 
 /// Parse, resolve, load and plan a story. `story_dir` is the folder data
 /// paths are relative to. Returns the plan and its warnings, or all errors.
-pub fn plan_story(src: &Arc<Source>, story_dir: &Path) -> PlanResult {
+pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> PlanResult {
     let (story, mut diags) = crescendo_lang::parse(src);
     if has_errors(&diags) {
         return Err(diags);
     }
-    let plan = Planner::new(src, story_dir, &mut diags).run(&story);
+    let mut failed_claims = Vec::new();
+    let plan = Planner::new(src, story_dir, options, &mut diags, &mut failed_claims).run(&story);
     if has_errors(&diags) {
         Err(diags)
     } else {
         match plan {
-            Some(p) => Ok((p, diags)),
+            Some(plan) => Ok(Planned {
+                plan,
+                warnings: diags,
+                failed_claims,
+            }),
             None => Err(vec![Diagnostic::error(
                 "internal",
                 "the story produced no plan",
@@ -42,8 +65,35 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path) -> PlanResult {
 struct Planner<'a> {
     src: &'a Arc<Source>,
     dir: &'a Path,
+    options: &'a Options,
     diags: &'a mut Vec<Diagnostic>,
+    failed_claims: &'a mut Vec<Diagnostic>,
     tables: Tables,
+    values: Values,
+    /// The current sequence has no chart because its chart statement failed
+    /// (or the deck starts without one) and that was reported: the frames
+    /// that build on it are skipped without blaming each of them again.
+    chart_failed: bool,
+}
+
+/// A frame's resolved texts and what they depend on.
+#[derive(Default)]
+struct FrameTexts {
+    quoted: BTreeMap<String, String>,
+    templates: BTreeMap<String, String>,
+    depends: BTreeSet<String>,
+}
+
+impl FrameTexts {
+    fn add(&mut self, field: &str, r: &values::Resolved) {
+        for (k, v) in &r.quoted {
+            self.quoted.entry(k.clone()).or_insert_with(|| v.clone());
+        }
+        if let Some(t) = &r.template {
+            self.templates.insert(field.to_string(), t.clone());
+        }
+        self.depends.extend(r.depends.iter().cloned());
+    }
 }
 
 /// Header values with where they were set (to report duplicates).
@@ -80,8 +130,8 @@ struct SeqState {
     names: Vec<String>,
     hidden: BTreeSet<String>,
     spotlight: BTreeSet<String>,
-    x_title: Option<String>,
-    y_title: Option<String>,
+    x_title: Option<values::Resolved>,
+    y_title: Option<values::Resolved>,
     view_name: String,
     key_name: String,
 }
@@ -145,13 +195,144 @@ pub fn slug(headline: &str) -> String {
 }
 
 impl<'a> Planner<'a> {
-    fn new(src: &'a Arc<Source>, dir: &'a Path, diags: &'a mut Vec<Diagnostic>) -> Self {
+    fn new(
+        src: &'a Arc<Source>,
+        dir: &'a Path,
+        options: &'a Options,
+        diags: &'a mut Vec<Diagnostic>,
+        failed_claims: &'a mut Vec<Diagnostic>,
+    ) -> Self {
         Planner {
             src,
             dir,
+            options,
             diags,
+            failed_claims,
             tables: Tables::default(),
+            values: Values::default(),
+            chart_failed: false,
         }
+    }
+
+    /// Resolve the quoted values of a text.
+    fn text(&mut self, s: &Str) -> values::Resolved {
+        let ev = Evaluator {
+            src: self.src,
+            tables: &self.tables,
+            values: &self.values,
+        };
+        let mut d = Vec::new();
+        let r = values::resolve_text(&ev, s, &mut d);
+        self.diags.extend(d);
+        r
+    }
+
+    fn value(&mut self, v: &ast::ValueDecl, later: &BTreeSet<String>) {
+        let name = &v.name.name;
+        if self.values.spans.contains_key(name) || name == "conclusion" {
+            let d = Diagnostic::error(
+                "duplicate-name",
+                format!("a value named `{name}` is already defined"),
+            )
+            .at(self.src, v.name.span.clone(), "defined again here");
+            let d = match self.values.spans.get(name) {
+                Some(prev) => d.also(self.src, prev.clone(), "first defined here"),
+                None => d.note("`conclusion` always quotes the story's conclusion"),
+            };
+            self.diags.push(d);
+            return;
+        }
+        let mut deps = BTreeSet::new();
+        values::names_in(&v.expr, &mut deps);
+        let result = Evaluator {
+            src: self.src,
+            tables: &self.tables,
+            values: &self.values,
+        }
+        .eval(&v.expr);
+        self.values.spans.insert(name.clone(), v.name.span.clone());
+        self.values.deps.insert(name.clone(), deps);
+        match result {
+            Ok(q) => {
+                self.values.by_name.insert(name.clone(), q);
+            }
+            Err(mut ds) => {
+                for d in &mut ds {
+                    let missing = d
+                        .message
+                        .strip_prefix("no value named `")
+                        .and_then(|m| m.strip_suffix('`'))
+                        .map(str::to_string);
+                    if let Some(missing) = missing.filter(|m| later.contains(m)) {
+                        d.help = Some(format!(
+                            "`{missing}` is defined further down: move this value below it"
+                        ));
+                    }
+                }
+                self.diags.extend(ds);
+                self.values.broken.insert(name.clone());
+            }
+        }
+    }
+
+    fn claim(&mut self, c: &ast::ClaimDecl) -> Option<(ClaimPlan, BTreeSet<String>)> {
+        let ev = Evaluator {
+            src: self.src,
+            tables: &self.tables,
+            values: &self.values,
+        };
+        let mut shown = Vec::new();
+        let holds = match ev.condition(&c.condition, &mut shown) {
+            Ok(h) => h,
+            Err(d) => {
+                self.diags.extend(d);
+                return None;
+            }
+        };
+        let condition = self
+            .src
+            .text
+            .get(c.condition.span())
+            .unwrap_or("")
+            .trim()
+            .to_string();
+        let mut names = BTreeSet::new();
+        values::names_in_cond(&c.condition, &mut names);
+        let depends = self.values.closure(&names);
+        if !holds {
+            let mut d = Diagnostic::error(
+                "claim-false",
+                format!("the data no longer supports: \"{}\"", c.sentence.value),
+            )
+            .at(self.src, c.condition.span(), "this is false")
+            .also(
+                self.src,
+                c.sentence.span.clone(),
+                "the sentence it protects",
+            );
+            for line in &shown {
+                d = d.note(line.clone());
+            }
+            for n in &depends {
+                if let Some(q) = self.values.by_name.get(n) {
+                    d = d.note(format!("{n} = {}", q.figure()));
+                }
+            }
+            self.failed_claims.push(d.help(
+                "change the sentence, or check the new data; `--draft` builds anyway and marks the frames that depend on it",
+            ));
+        }
+        // A frame rests on the claim when its texts use a value the claim
+        // names (directly or through other values).
+        Some((
+            ClaimPlan {
+                sentence: c.sentence.value.clone(),
+                condition,
+                holds,
+                detail: shown,
+            },
+            names,
+        ))
     }
 
     fn error(
@@ -184,6 +365,16 @@ impl<'a> Planner<'a> {
     fn run(mut self, story: &ast::StoryAst) -> Option<DeckPlan> {
         let mut h = Header::default();
         let mut frames = Vec::new();
+        let mut claims = Vec::new();
+        // Value names not defined yet, to explain uses before definitions.
+        let mut later_values: BTreeSet<String> = story
+            .items
+            .iter()
+            .filter_map(|i| match i {
+                Item::Value(v) => Some(v.name.name.clone()),
+                _ => None,
+            })
+            .collect();
         for item in &story.items {
             match item {
                 Item::Title(t) => {
@@ -207,7 +398,8 @@ impl<'a> Planner<'a> {
                 }
                 Item::Data(d) => {
                     if self.check_unique_table(&d.name) {
-                        match resolve::load_data(self.src, self.dir, d, self.diags) {
+                        let replacement = self.options.data.get(&d.name.name).map(PathBuf::as_path);
+                        match resolve::load_data(self.src, self.dir, d, replacement, self.diags) {
                             Some(table) => {
                                 self.tables.by_name.insert(
                                     d.name.name.clone(),
@@ -250,11 +442,62 @@ impl<'a> Planner<'a> {
                         }
                     }
                 }
+                Item::Value(v) => {
+                    later_values.remove(&v.name.name);
+                    self.value(v, &later_values);
+                }
+                Item::Claim(c) => claims.push(c),
                 Item::Frame(f) => frames.push(f),
             }
         }
-        let title = match &h.title {
-            Some(t) => t.value.clone(),
+        for name in self.options.data.keys() {
+            let known = story
+                .items
+                .iter()
+                .any(|i| matches!(i, Item::Data(d) if d.name.name == *name));
+            if !known {
+                let names: Vec<&str> = story
+                    .items
+                    .iter()
+                    .filter_map(|i| match i {
+                        Item::Data(d) => Some(d.name.name.as_str()),
+                        _ => None,
+                    })
+                    .collect();
+                let mut d = Diagnostic::error(
+                    "unknown-name",
+                    format!("`--data {name}=...` names no data item of this story"),
+                )
+                .at(self.src, 0..0, "in this story")
+                .note(format!("data items: {}", names.join(", ")));
+                if let Some(s) = closest(name, names.iter().copied()) {
+                    d = d.help(format!("did you mean `{s}`?"));
+                }
+                self.diags.push(d);
+            }
+        }
+        if let Some(c) = &h.compare {
+            // Columns of a failed item are unknown: do not guess.
+            if self.tables.broken.is_empty() {
+                self.check_compare_column(&c.key);
+                self.check_compare_column(&c.measure);
+            }
+        }
+        // Header texts may quote values; the conclusion can be quoted as
+        // `{conclusion}` everywhere.
+        let conclusion = h.conclusion.clone().map(|c| self.text(&c));
+        if let Some(c) = &conclusion {
+            self.values
+                .by_name
+                .insert("conclusion".into(), values::Quantity::Text(c.text.clone()));
+            self.values
+                .deps
+                .insert("conclusion".into(), c.depends.clone());
+        }
+        let source_text = h.source.clone().map(|s| self.text(&s));
+        let byline = h.byline.clone().map(|b| self.text(&b).text);
+        let title = match h.title.clone() {
+            Some(t) => self.text(&t).text,
             None => {
                 self.diags.push(
                     Diagnostic::error("missing-title", "the story has no title")
@@ -296,21 +539,53 @@ impl<'a> Planner<'a> {
                     .help("add `frame \"Headline\" { line VIEW: x COLUMN, y COLUMN }`"),
             );
         }
-        let source = h.source.as_ref().map(|s| s.value.clone());
+        let mut claim_plans = Vec::new();
+        let mut failed: Vec<(String, BTreeSet<String>)> = Vec::new();
+        for c in claims {
+            if let Some((cp, deps)) = self.claim(c) {
+                if !cp.holds {
+                    failed.push((cp.sentence.clone(), deps));
+                }
+                claim_plans.push(cp);
+            }
+        }
+        let source = source_text.as_ref().map(|s| s.text.clone());
         let mut planned = Vec::new();
         let mut state: Option<SeqState> = None;
         let mut sequence = 0;
         for (i, f) in frames.iter().enumerate() {
-            if let Some(fp) = self.frame(&h, f, i + 1, &mut state, &mut sequence, &source) {
+            let mut texts = FrameTexts::default();
+            if let Some(s) = &source_text {
+                texts.add("source", s);
+            }
+            if let Some(mut fp) =
+                self.frame(&h, f, i + 1, &mut state, &mut sequence, &source, &mut texts)
+            {
+                for (sentence, deps) in &failed {
+                    if deps.iter().any(|d| texts.depends.contains(d)) {
+                        fp.notices
+                            .push(format!("Draft: the data does not support \"{sentence}\""));
+                    }
+                }
+                fp.quoted = texts.quoted;
+                fp.templates = texts.templates;
                 planned.push(fp);
             }
         }
         Some(DeckPlan {
             title,
-            byline: h.byline.map(|b| b.value),
+            byline,
             source,
             theme,
-            conclusion: h.conclusion.map(|c| c.value),
+            conclusion: conclusion.map(|c| c.text),
+            values: self
+                .values
+                .by_name
+                .iter()
+                .filter(|(k, _)| k.as_str() != "conclusion")
+                .map(|(k, v)| (k.clone(), v.figure()))
+                .collect(),
+            claims: claim_plans,
             frames: planned,
         })
     }
@@ -336,6 +611,32 @@ impl<'a> Planner<'a> {
         true
     }
 
+    /// Charts fall back to the columns `compare` names, and skip them where
+    /// a view lacks them; a name no table has at all is a typo that would
+    /// otherwise be ignored without a word.
+    fn check_compare_column(&mut self, id: &Ident) {
+        let columns: BTreeSet<&str> = self
+            .tables
+            .by_name
+            .values()
+            .flat_map(|n| n.table.columns.iter().map(|c| c.name.as_str()))
+            .collect();
+        if columns.contains(id.name.as_str()) {
+            return;
+        }
+        let help =
+            closest(&id.name, columns.iter().copied()).map(|s| format!("did you mean `{s}`?"));
+        let d = self.error(
+            "unknown-column",
+            format!("no data or view has a column named `{}`", id.name),
+            id.span.clone(),
+            "unknown column",
+        );
+        d.notes
+            .push("`compare KEY by MEASURE` names columns of the views the frames draw".into());
+        d.help = help;
+    }
+
     #[allow(clippy::too_many_arguments)]
     fn frame(
         &mut self,
@@ -345,6 +646,7 @@ impl<'a> Planner<'a> {
         state: &mut Option<SeqState>,
         sequence: &mut usize,
         source: &Option<String>,
+        texts: &mut FrameTexts,
     ) -> Option<FramePlan> {
         let mut takeaway: Option<String> = None;
         let mut notes: Option<String> = None;
@@ -360,33 +662,53 @@ impl<'a> Planner<'a> {
                             "move this to the top of the frame",
                         )
                         .help = Some("the other statements of a frame apply to its chart".into());
+                        *state = None;
+                        self.chart_failed = true;
                         return None;
                     }
-                    let spec = self.chart_spec(h, c)?;
-                    *state = Some(self.new_sequence(spec, c)?);
+                    let Some(new) = self
+                        .chart_spec(h, c)
+                        .and_then(|spec| self.new_sequence(spec, c))
+                    else {
+                        // The frames after this one build on this chart, not
+                        // on the previous sequence's.
+                        *state = None;
+                        self.chart_failed = true;
+                        return None;
+                    };
+                    *state = Some(new);
+                    self.chart_failed = false;
                     *sequence += 1;
                 }
                 other => {
                     let Some(st) = state.as_mut() else {
-                        self.error(
-                            "no-chart",
-                            "this frame has no chart to apply its statements to",
-                            f.headline.span.clone(),
-                            "first frame without a chart",
-                        )
-                        .help = Some(
-                            "start the first frame with `line VIEW: ...` or `bars VIEW: ...`"
-                                .into(),
-                        );
+                        if !self.chart_failed {
+                            self.error(
+                                "no-chart",
+                                "this frame has no chart to apply its statements to",
+                                f.headline.span.clone(),
+                                "first frame without a chart",
+                            )
+                            .help = Some(
+                                "start the first frame with `line VIEW: ...` or `bars VIEW: ...`"
+                                    .into(),
+                            );
+                            self.chart_failed = true;
+                        }
                         return None;
                     };
                     match other {
-                        FrameStmt::AxisTitle { axis, text, .. } => match axis {
-                            AxisName::X => st.x_title = Some(text.value.clone()),
-                            AxisName::Y => st.y_title = Some(text.value.clone()),
-                        },
+                        FrameStmt::AxisTitle { axis, text, .. } => {
+                            let r = self.text(text);
+                            match axis {
+                                AxisName::X => st.x_title = Some(r),
+                                AxisName::Y => st.y_title = Some(r),
+                            }
+                        }
                         FrameStmt::Takeaway { text, span } => {
-                            if takeaway.replace(text.value.clone()).is_some() {
+                            let r = self.text(text);
+                            texts.add("takeaway", &r);
+                            if takeaway.replace(r.text).is_some() {
                                 self.error(
                                     "duplicate",
                                     "this frame has two takeaways",
@@ -396,7 +718,9 @@ impl<'a> Planner<'a> {
                             }
                         }
                         FrameStmt::Notes { text, span } => {
-                            if notes.replace(text.value.clone()).is_some() {
+                            let r = self.text(text);
+                            texts.add("notes", &r);
+                            if notes.replace(r.text).is_some() {
                                 self.error(
                                     "duplicate",
                                     "this frame has two notes",
@@ -445,23 +769,40 @@ impl<'a> Planner<'a> {
             return None;
         }
         let Some(st) = state.as_ref() else {
-            self.error(
-                "no-chart",
-                "this frame has no chart",
-                f.headline.span.clone(),
-                "first frame without a chart",
-            )
-            .help = Some("start the first frame with `line VIEW: ...` or `bars VIEW: ...`".into());
+            if !self.chart_failed {
+                self.error(
+                    "no-chart",
+                    "this frame has no chart",
+                    f.headline.span.clone(),
+                    "first frame without a chart",
+                )
+                .help =
+                    Some("start the first frame with `line VIEW: ...` or `bars VIEW: ...`".into());
+                self.chart_failed = true;
+            }
             return None;
         };
+        if let Some(t) = &st.x_title {
+            texts.add("x_title", t);
+        }
+        if let Some(t) = &st.y_title {
+            texts.add("y_title", t);
+        }
+        let headline = self.text(&f.headline);
+        texts.add("headline", &headline);
+        // The slug comes from the headline as written, so file names stay
+        // the same when the quoted numbers change.
         Some(FramePlan {
             number,
             slug: slug(&f.headline.value),
             sequence: *sequence,
-            headline: f.headline.value.clone(),
+            headline: headline.text,
             takeaway,
             notes,
             source: source.clone(),
+            quoted: BTreeMap::new(),
+            templates: BTreeMap::new(),
+            notices: Vec::new(),
             chart: apply_state(st),
         })
     }
@@ -784,7 +1125,9 @@ impl<'a> Planner<'a> {
             ChartForm::Line => {
                 let mut names: Vec<String> = Vec::new();
                 let mut series: Vec<Series> = Vec::new();
-                let mut seen: BTreeSet<(String, i64)> = BTreeSet::new();
+                // Exact x values (`-0.0` counted as `0.0`): rounding them to a
+                // grid would merge distinct points or overflow for large x.
+                let mut seen: BTreeSet<(String, u64)> = BTreeSet::new();
                 let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
                 let (mut ylo, mut yhi) = (f64::INFINITY, f64::NEG_INFINITY);
                 for r in 0..xcol.values.len() {
@@ -799,7 +1142,7 @@ impl<'a> Planner<'a> {
                         Value::Number(v) => Some(*v),
                         _ => None,
                     };
-                    if !seen.insert((name.clone(), (x * 1e6).round() as i64)) {
+                    if !seen.insert((name.clone(), (x + 0.0).to_bits())) {
                         self.error(
                             "duplicate-point",
                             format!(
@@ -1024,11 +1367,11 @@ fn apply_state(st: &SeqState) -> Chart {
     match &st.chart {
         Chart::Line(l) => {
             let mut l = l.clone();
-            if st.x_title.is_some() {
-                l.x.title = st.x_title.clone();
+            if let Some(t) = &st.x_title {
+                l.x.title = Some(t.text.clone());
             }
-            if st.y_title.is_some() {
-                l.y.title = st.y_title.clone();
+            if let Some(t) = &st.y_title {
+                l.y.title = Some(t.text.clone());
             }
             for s in &mut l.series {
                 s.role = role(&s.name);
@@ -1037,11 +1380,11 @@ fn apply_state(st: &SeqState) -> Chart {
         }
         Chart::Bars(b) => {
             let mut b = b.clone();
-            if st.x_title.is_some() {
-                b.category_title = st.x_title.clone();
+            if let Some(t) = &st.x_title {
+                b.category_title = Some(t.text.clone());
             }
-            if st.y_title.is_some() {
-                b.value.title = st.y_title.clone();
+            if let Some(t) = &st.y_title {
+                b.value.title = Some(t.text.clone());
             }
             for bar in &mut b.bars {
                 bar.role = role(&bar.label);
@@ -1073,6 +1416,95 @@ mod tests {
     #[test]
     fn humanize_names() {
         assert_eq!(humanize("riders_per_trip"), "Riders per trip");
+    }
+
+    /// Plan `story` against a fresh folder holding `data.csv`.
+    fn plan_with(tag: &str, story: &str, csv: &str) -> PlanResult {
+        let dir = std::env::temp_dir().join(format!("crescendo-plan-{}-{tag}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        std::fs::write(dir.join("data.csv"), csv).unwrap();
+        let out = plan_story(&Source::file("t.cresc", story), &dir, &Options::default());
+        let _ = std::fs::remove_dir_all(&dir);
+        out
+    }
+
+    fn errors(result: PlanResult) -> Vec<Diagnostic> {
+        match result {
+            Ok(_) => Vec::new(),
+            Err(d) => d.into_iter().filter(Diagnostic::is_error).collect(),
+        }
+    }
+
+    const SALES: &str = "month,shop,sales\n2024-01,North,5\n2024-01,South,3\n\
+                         2024-02,North,6\n2024-02,South,4\n";
+
+    #[test]
+    fn a_broken_chart_is_reported_once_not_in_every_frame_after_it() {
+        // The chart names an unknown view: one error, and the frames that
+        // build on it are not blamed for having no chart.
+        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                     frame \"a\" {\n  line sals: x month, y sales, series shop\n}\n\
+                     frame \"b\" {\n  spotlight \"North\"\n}\n\
+                     frame \"c\" {\n  hide \"South\"\n}\n";
+        let errs = errors(plan_with("broken-chart", story, SALES));
+        let codes: Vec<&str> = errs.iter().map(|d| d.code).collect();
+        assert_eq!(codes, ["unknown-name"], "{errs:#?}");
+    }
+
+    #[test]
+    fn frames_after_a_broken_chart_are_not_checked_against_the_chart_before() {
+        // Frame "c" builds on the failed bars chart of frame "b"; checking it
+        // against the line chart of frame "a" would report a bogus error.
+        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                     view totals = sales\n  | by shop: sales = sum(sales)\n\
+                     frame \"a\" {\n  line sales: x month, y sales, series shop\n}\n\
+                     frame \"b\" {\n  bars totals: category shop, value sale\n}\n\
+                     frame \"c\" {\n  spotlight \"Sales\"\n}\n";
+        let errs = errors(plan_with("stale-chart", story, SALES));
+        let codes: Vec<&str> = errs.iter().map(|d| d.code).collect();
+        assert_eq!(codes, ["unknown-column"], "{errs:#?}");
+    }
+
+    #[test]
+    fn a_frame_without_a_chart_is_reported_once() {
+        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                     frame \"a\" {\n  hide \"South\"\n}\n\
+                     frame \"b\" {\n  show all\n}\n";
+        let errs = errors(plan_with("no-chart", story, SALES));
+        assert_eq!(errs.len(), 1, "{errs:#?}");
+        assert_eq!(errs[0].code, "no-chart");
+        assert_eq!(errs[0].location().map(|l| l.1), Some(3));
+    }
+
+    #[test]
+    fn distinct_large_or_close_x_values_are_not_duplicates() {
+        // x values beyond i64::MAX / 1e6 and values closer than 1e-6 are
+        // still distinct points.
+        let story = "story \"s\"\ndata d from \"data.csv\"\n\
+                     frame \"a\" {\n  line d: x at, y v\n}\n";
+        for csv in [
+            "at,v\n1e13,1\n2e13,2\n3e13,3\n",
+            "at,v\n0.0000001,1\n0.0000002,2\n0.0000003,3\n",
+        ] {
+            let result = plan_with("big-x", story, csv);
+            assert!(result.is_ok(), "{csv}: {:#?}", result.err());
+        }
+        // and a true duplicate is still found
+        let errs = errors(plan_with("dup-x", story, "at,v\n1,1\n1,2\n"));
+        assert_eq!(errs.len(), 1, "{errs:#?}");
+        assert_eq!(errs[0].code, "duplicate-point");
+    }
+
+    #[test]
+    fn a_misspelt_comparison_is_reported() {
+        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                     compare shops by sales\n\
+                     frame \"a\" {\n  line sales: x month, y sales, series shop\n}\n";
+        let errs = errors(plan_with("compare-typo", story, SALES));
+        assert_eq!(errs.len(), 1, "{errs:#?}");
+        assert_eq!(errs[0].code, "unknown-column");
+        assert_eq!(errs[0].help.as_deref(), Some("did you mean `shop`?"));
+        assert_eq!(errs[0].location(), Some(("t.cresc".into(), 3, 9)));
     }
 
     #[test]

@@ -7,6 +7,7 @@ mod build;
 pub mod model;
 mod resolve;
 pub mod scale;
+pub mod values;
 
-pub use build::{plan_story, slug, PlanResult};
+pub use build::{plan_story, slug, Options, PlanResult, Planned};
 pub use model::*;

@@ -2,6 +2,8 @@
 //! drawn. Pure data (serde), semantic rather than pixels: the renderer decides
 //! geometry (text measurement, label placement, margins).
 
+use std::collections::BTreeMap;
+
 use serde::{Deserialize, Serialize};
 
 /// Built-in theme names the renderer must support.
@@ -18,7 +20,25 @@ pub struct DeckPlan {
     pub theme: String,
     /// The sentence the story builds to.
     pub conclusion: Option<String>,
+    /// Every named value, formatted plainly (name → figure).
+    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+    pub values: BTreeMap<String, String>,
+    /// Every claim and whether it held on this build.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub claims: Vec<ClaimPlan>,
     pub frames: Vec<FramePlan>,
+}
+
+/// A checked claim.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct ClaimPlan {
+    /// The sentence the claim protects.
+    pub sentence: String,
+    /// The condition as written.
+    pub condition: String,
+    pub holds: bool,
+    /// Each comparison with its operands' values.
+    pub detail: Vec<String>,
 }
 
 /// One frame (slide).
@@ -37,6 +57,16 @@ pub struct FramePlan {
     /// Speaker notes (not drawn in the SVG; carried to the deck).
     pub notes: Option<String>,
     pub source: Option<String>,
+    /// Values this frame's texts quote, with the figure as printed.
+    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+    pub quoted: BTreeMap<String, String>,
+    /// The texts as written, for the fields that quote values
+    /// (`headline`, `takeaway`, `notes`, `x_title`, `y_title`, `source`).
+    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+    pub templates: BTreeMap<String, String>,
+    /// Warnings drawn on the frame (a draft build with a failed claim).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub notices: Vec<String>,
     pub chart: Chart,
 }
 

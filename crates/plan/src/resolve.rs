@@ -137,6 +137,7 @@ pub fn load_data(
     src: &Arc<Source>,
     story_dir: &Path,
     decl: &ast::DataDecl,
+    replacement: Option<&Path>,
     diags: &mut Vec<Diagnostic>,
 ) -> Option<Table> {
     let mut declared = Vec::new();
@@ -164,7 +165,11 @@ pub fn load_data(
     if !ok {
         return None;
     }
-    let path = story_dir.join(&decl.file.value);
+    // `--data NAME=FILE` replaces the file (relative to the working folder).
+    let path = match replacement {
+        Some(p) => p.to_path_buf(),
+        None => story_dir.join(&decl.file.value),
+    };
     let spec = CsvSpec {
         display_name: path.display().to_string(),
         path,
@@ -288,6 +293,16 @@ impl Checker<'_> {
                 );
                 None
             }
+        }
+    }
+
+    /// The number side of a comparison with a year: a literal becomes a
+    /// year (or an error when it is not a whole number); any other number
+    /// expression is compared as it is.
+    fn year_operand(&mut self, e: &Expr, checked: data::Expr) -> Option<data::Expr> {
+        match e {
+            Expr::Number { .. } => Some(data::Expr::Lit(self.literal_as(e, ColType::Year)?)),
+            _ => Some(checked),
         }
     }
 
@@ -444,8 +459,13 @@ impl Checker<'_> {
                         let (r, rt) = self.check(right)?;
                         let (l, r) = match (&lt, &rt) {
                             (Ty::Col(a), Ty::Col(b)) if a == b => (l, r),
-                            (Ty::Col(c), Ty::Col(ColType::Number)) if *c == ColType::Year => {
-                                (l, data::Expr::Lit(self.literal_as(right, ColType::Year)?))
+                            // Years compare with numbers (the engine does
+                            // this); a number literal must be a whole year.
+                            (Ty::Col(ColType::Year), Ty::Col(ColType::Number)) => {
+                                (l, self.year_operand(right, r)?)
+                            }
+                            (Ty::Col(ColType::Number), Ty::Col(ColType::Year)) => {
+                                (self.year_operand(left, l)?, r)
                             }
                             (Ty::Col(c), Ty::TextLit(_)) => {
                                 (l, data::Expr::Lit(self.literal_as(right, *c)?))
@@ -771,4 +791,104 @@ pub fn build_view(
         table = data::run_view(&table, std::slice::from_ref(&step));
     }
     Some((table, rest_label))
+}
+
+/// Type-check a row condition (a `where` of a value selection) against a
+/// schema; `place` says where the columns were looked for.
+pub fn check_condition(
+    src: &Arc<Source>,
+    schema: &Schema,
+    place: &str,
+    expr: &Expr,
+    diags: &mut Vec<Diagnostic>,
+) -> Option<data::Expr> {
+    let no_why = |_: &str| None;
+    let mut ck = Checker {
+        src,
+        schema,
+        table: place,
+        diags,
+        why: &no_why,
+    };
+    match ck.check(expr)? {
+        (e, Ty::Bool) => Some(e),
+        (_, t) => {
+            ck.err(
+                expr.span(),
+                format!("`where` needs a condition, but this is {}", t.describe()),
+                "not a condition",
+            );
+            None
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crescendo_data::Column;
+    use crescendo_lang::ast::Item;
+
+    /// Run the first view of `story` over a table `d` with a year column `y`
+    /// (2019..=2022) and a number column `n` (equal to the year).
+    fn run(story: &str) -> (Option<Table>, Vec<Diagnostic>) {
+        let src = Source::file("t.cresc", story);
+        let (ast, parse_diags) = crescendo_lang::parse(&src);
+        assert!(parse_diags.is_empty(), "{parse_diags:#?}");
+        let Some(Item::View(view)) = ast.items.first() else {
+            panic!("no view in {story}");
+        };
+        let years = [2019, 2020, 2021, 2022];
+        let table = Table {
+            columns: vec![
+                Column {
+                    name: "y".into(),
+                    ty: ColType::Year,
+                    values: years.iter().map(|&y| Value::Year(y)).collect(),
+                },
+                Column {
+                    name: "n".into(),
+                    ty: ColType::Number,
+                    values: years.iter().map(|&y| Value::Number(f64::from(y))).collect(),
+                },
+            ],
+        };
+        let mut tables = Tables::default();
+        tables.by_name.insert(
+            "d".into(),
+            Named {
+                table,
+                decl: 0..0,
+                is_data: true,
+                rest: None,
+                root: "d".into(),
+            },
+        );
+        let mut diags = Vec::new();
+        let out = build_view(&src, view, &tables, &tables.by_name["d"], &mut diags).map(|(t, _)| t);
+        (out, diags)
+    }
+
+    fn rows(t: &Option<Table>) -> usize {
+        t.as_ref().map_or(0, |t| t.columns[0].values.len())
+    }
+
+    #[test]
+    fn years_compare_with_numbers_on_either_side() {
+        for keep in [
+            "y >= 2021",
+            "2021 <= y",
+            "y >= n - 1 and n >= 2021",
+            "n >= y and 2021 <= y",
+        ] {
+            let (t, diags) = run(&format!("view v = d\n  | keep {keep}\n"));
+            assert!(diags.is_empty(), "{keep}: {diags:#?}");
+            assert_eq!(rows(&t), 2, "{keep}");
+        }
+        // a year is a whole number
+        let (t, diags) = run("view v = d\n  | keep 2020.5 < y\n");
+        assert!(t.is_none());
+        assert_eq!(diags.len(), 1, "{diags:#?}");
+        assert_eq!(diags[0].location(), Some(("t.cresc".into(), 2, 10)));
+    }
 }

@@ -165,8 +165,27 @@ pub fn draw_page(
             align: Align::Start,
         })?;
     }
+    // A draft build marks frames whose texts rest on a claim the data no
+    // longer supports: bold, in the accent colour, at the bottom right.
+    let notice = frame.notices.join("  ·  ");
+    let source_width = if notice.is_empty() {
+        text_column()
+    } else {
+        let half = text_column() / 2.0 - 12.0;
+        let text = metrics::ellipsize(&notice, SOURCE_SIZE, true, half);
+        canvas.text(&Label {
+            text: &text,
+            x: WIDTH as f64 - MARGIN_X,
+            top: source_top(),
+            size: SOURCE_SIZE,
+            bold: true,
+            color: theme.accent,
+            align: Align::End,
+        })?;
+        half
+    };
     if let Some(source) = source_of(deck, frame) {
-        let text = metrics::ellipsize(&source, SOURCE_SIZE, false, text_column());
+        let text = metrics::ellipsize(&source, SOURCE_SIZE, false, source_width);
         canvas.text(&Label {
             text: &text,
             x: MARGIN_X,
@@ -183,7 +202,9 @@ pub fn draw_page(
         .iter()
         .map(|f| Header::of(f).bottom())
         .fold(MARGIN_TOP, f64::max);
-    let any_source = frames.iter().any(|f| source_of(deck, f).is_some());
+    let any_source = frames
+        .iter()
+        .any(|f| source_of(deck, f).is_some() || !f.notices.is_empty());
     let bottom = if any_source {
         source_top() - CHART_TO_SOURCE
     } else {

@@ -80,6 +80,9 @@ fn frame(
         takeaway: takeaway.map(str::to_string),
         notes: Some("Pause here & ask: <who> saw this coming?".to_string()),
         source: Some("Source: invented survey of 4,000 households, 2015–2024".to_string()),
+        quoted: Default::default(),
+        templates: Default::default(),
+        notices: Vec::new(),
         chart,
     }
 }
@@ -91,6 +94,8 @@ fn deck(frames: Vec<FramePlan>) -> DeckPlan {
         source: None,
         theme: "clear".to_string(),
         conclusion: None,
+        values: Default::default(),
+        claims: Vec::new(),
         frames,
     }
 }

@@ -1,0 +1,197 @@
+//! Values, quoted numbers and claims, end to end: a claim that the new data
+//! breaks stops the build (exit 3) and keeps the previous deck byte for
+//! byte; `--draft` builds anyway and marks the frames that rest on it;
+//! `check` reports in human and JSON form; rebuilding and `diff` say which
+//! quoted numbers moved.
+
+mod common;
+
+use std::fs;
+
+use common::{crescendo, read_dir_files, root, scratch};
+use serde_json::Value;
+
+/// Copy the clinics story (both data versions) into a scratch folder.
+fn clinics(name: &str) -> std::path::PathBuf {
+    let dir = scratch(name);
+    fs::create_dir_all(dir.join("data")).unwrap();
+    let src = root().join("stories/clinics");
+    fs::copy(src.join("clinics.cresc"), dir.join("clinics.cresc")).unwrap();
+    for f in ["followups-2024-11.csv", "followups-2024-12.csv"] {
+        fs::copy(src.join("data").join(f), dir.join("data").join(f)).unwrap();
+    }
+    dir
+}
+
+const NEW_DATA: &str = "followups=data/followups-2024-12.csv";
+
+#[test]
+fn a_broken_claim_stops_the_build_and_keeps_the_deck() {
+    let dir = clinics("claim-stop");
+    let first = crescendo(&dir, &["build", "clinics.cresc"]);
+    assert!(
+        first.status.success(),
+        "{}",
+        String::from_utf8_lossy(&first.stderr)
+    );
+    let before = read_dir_files(&dir.join("deck"));
+
+    let second = crescendo(&dir, &["build", "clinics.cresc", "--data", NEW_DATA]);
+    let err = String::from_utf8_lossy(&second.stderr);
+    assert_eq!(second.status.code(), Some(3), "{err}");
+    assert!(
+        err.contains("the data no longer supports: \"Video is now over a third of follow-ups\""),
+        "{err}"
+    );
+    assert!(err.contains("clinics.cresc:42:7"), "{err}");
+    // the expression, each operand's value and the sentence
+    assert!(
+        err.contains("video_share_now > 1 / 3: 0.25 > 0.33 is false"),
+        "{err}"
+    );
+    assert!(err.contains("video_now = 664"), "{err}");
+    assert!(err.contains("the sentence it protects"), "{err}");
+    assert_eq!(
+        read_dir_files(&dir.join("deck")),
+        before,
+        "the previous deck changed"
+    );
+}
+
+#[test]
+fn a_draft_marks_the_frames_that_rest_on_the_failed_claim() {
+    let dir = clinics("claim-draft");
+    let run = crescendo(
+        &dir,
+        &["build", "clinics.cresc", "--data", NEW_DATA, "--draft"],
+    );
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert!(run.status.success(), "{err}");
+    assert!(err.contains("warning[claim-false]"), "{err}");
+    let manifest: Value =
+        serde_json::from_slice(&fs::read(dir.join("deck/deck.json")).unwrap()).unwrap();
+    let notices: Vec<usize> = manifest["frames"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| f["notices"].as_array().map_or(0, Vec::len))
+        .collect();
+    // only the frame that quotes video_share_now rests on the claim
+    assert_eq!(notices, vec![0, 0, 0, 1]);
+    let claims = manifest["claims"].as_array().unwrap();
+    assert_eq!(claims.iter().filter(|c| c["holds"] == false).count(), 1);
+    let svg = fs::read_to_string(
+        fs::read_dir(dir.join("deck"))
+            .unwrap()
+            .map(|e| e.unwrap().path())
+            .find(|p| p.file_name().unwrap().to_string_lossy().starts_with("04-"))
+            .unwrap(),
+    )
+    .unwrap();
+    assert!(
+        svg.contains("Draft: the data does not support"),
+        "the notice is drawn"
+    );
+}
+
+#[test]
+fn check_reports_values_and_claims() {
+    let dir = clinics("check");
+    let ok = crescendo(&dir, &["check", "clinics.cresc"]);
+    let out = String::from_utf8_lossy(&ok.stdout);
+    assert!(
+        ok.status.success(),
+        "{}",
+        String::from_utf8_lossy(&ok.stderr)
+    );
+    assert!(out.contains("4 frames, 10 values, 3 claims"), "{out}");
+    assert!(out.contains("value busiest = Northgate"), "{out}");
+    assert!(
+        out.contains("claim holds: \"Northgate is the busiest clinic\""),
+        "{out}"
+    );
+    assert!(!dir.join("deck").exists(), "check draws nothing");
+
+    let bad = crescendo(
+        &dir,
+        &[
+            "check",
+            "clinics.cresc",
+            "--format",
+            "json",
+            "--data",
+            NEW_DATA,
+        ],
+    );
+    assert_eq!(bad.status.code(), Some(3));
+    let report: Value = serde_json::from_slice(&bad.stdout).unwrap();
+    assert_eq!(report["ok"], false);
+    assert_eq!(report["status"], 3);
+    let d = &report["diagnostics"][0];
+    assert_eq!(d["code"], "claim-false");
+    assert_eq!(
+        (d["line"].as_u64(), d["column"].as_u64()),
+        (Some(42), Some(7))
+    );
+    assert_eq!(report["values"]["video_share_now"], "0.25");
+}
+
+#[test]
+fn unknown_data_override_is_an_error() {
+    let dir = clinics("bad-override");
+    let run = crescendo(
+        &dir,
+        &["check", "clinics.cresc", "--data", "folowups=data/x.csv"],
+    );
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert_eq!(run.status.code(), Some(1), "{err}");
+    assert!(err.contains("did you mean `followups`?"), "{err}");
+    let run = crescendo(&dir, &["check", "clinics.cresc", "--data", "followups"]);
+    assert_eq!(
+        run.status.code(),
+        Some(2),
+        "a malformed option is a usage error"
+    );
+}
+
+#[test]
+fn rebuilds_and_diff_name_the_numbers_that_moved() {
+    let dir = clinics("diff");
+    assert!(crescendo(&dir, &["build", "clinics.cresc", "--out", "nov"])
+        .status
+        .success());
+    // The December export with the November claim relaxed, so it builds.
+    let story = fs::read_to_string(dir.join("clinics.cresc"))
+        .unwrap()
+        .replace(
+            "claim video_share_now > 1 / 3",
+            "claim video_share_now > 1 / 5",
+        );
+    fs::write(dir.join("clinics.cresc"), story).unwrap();
+    let run = crescendo(
+        &dir,
+        &["build", "clinics.cresc", "--out", "nov", "--data", NEW_DATA],
+    );
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert!(run.status.success(), "{err}");
+    assert!(
+        err.contains("frame 4 \"Video is now 24.9% of follow-ups: plan rooms for it\""),
+        "{err}"
+    );
+    assert!(err.contains("video_share_now 36.1% → 24.9%"), "{err}");
+    assert!(err.contains("last_month Nov 2024 → Dec 2024"), "{err}");
+
+    assert!(crescendo(
+        &dir,
+        &["build", "clinics.cresc", "--out", "dec", "--data", NEW_DATA]
+    )
+    .status
+    .success());
+    let same = crescendo(&dir, &["diff", "nov", "dec"]);
+    assert_eq!(
+        String::from_utf8_lossy(&same.stdout),
+        "frames 1, 2, 3, 4 unchanged\n"
+    );
+    let missing = crescendo(&dir, &["diff", "nov", "nowhere"]);
+    assert_eq!(missing.status.code(), Some(1));
+}
