@@ -14,10 +14,14 @@ use std::path::{Path, PathBuf};
 use crescendo_diag::{Diagnostic, Located, Source};
 use crescendo_plan::{plan_story, Chart, DeckPlan, Options, PlanResult, Planned};
 
-/// Story mutations per story.
-const STORY_CASES: usize = 800;
-/// CSV mutations per story (each writes a temporary copy of the data).
-const CSV_CASES: usize = 150;
+/// Story mutations in all, shared among the stories (so the test's time
+/// stays bounded as stories are added), but at least [`MIN_STORY_CASES`] each.
+const STORY_CASES: usize = 2400;
+const MIN_STORY_CASES: usize = 200;
+/// CSV mutations in all (each writes a temporary copy of the data), and at
+/// least per story.
+const CSV_CASES: usize = 480;
+const MIN_CSV_CASES: usize = 40;
 
 /// xorshift64 (G. Marsaglia, "Xorshift RNGs", Journal of Statistical
 /// Software 8(14), 2003; shifts 13, 7, 17).
@@ -698,6 +702,7 @@ fn problems_of(run: impl FnOnce() -> PlanResult) -> Vec<String> {
             plan,
             warnings,
             failed_claims,
+            ..
         })) => {
             let mut out: Vec<String> = warnings
                 .iter()
@@ -775,9 +780,11 @@ fn unmutated_stories_plan_cleanly() {
 #[test]
 fn mutated_stories_never_panic_and_errors_are_located() {
     let mut failures = Vec::new();
-    for (si, (name, text, dir)) in corpus("story").iter().enumerate() {
+    let stories = corpus("story");
+    let cases = (STORY_CASES / stories.len()).max(MIN_STORY_CASES);
+    for (si, (name, text, dir)) in stories.iter().enumerate() {
         let mut rng = Rng::new(0x5EED_0001 + si as u64);
-        for case in 0..STORY_CASES {
+        for case in 0..cases {
             let mut mutated = mutate_story(&mut rng, text);
             // Now and then stack a second and third edit.
             for _ in 0..rng.below(3) {
@@ -799,7 +806,9 @@ fn mutated_stories_never_panic_and_errors_are_located() {
 #[test]
 fn mutated_data_never_panics_and_errors_are_located() {
     let mut failures = Vec::new();
-    for (si, (name, text, dir)) in corpus("data").iter().enumerate() {
+    let stories = corpus("data");
+    let cases = (CSV_CASES / stories.len()).max(MIN_CSV_CASES);
+    for (si, (name, text, dir)) in stories.iter().enumerate() {
         let dir = dir.as_path();
         let csvs: Vec<PathBuf> = files_under(dir)
             .into_iter()
@@ -813,7 +822,7 @@ fn mutated_data_never_panics_and_errors_are_located() {
             fs::copy(dir.join(&rel), &to).expect("copy story file");
         }
         let mut rng = Rng::new(0xC5F_0001 + si as u64);
-        for case in 0..CSV_CASES {
+        for case in 0..cases {
             let rel = rng.pick(&csvs).clone();
             let original = fs::read(dir.join(&rel)).expect("read csv");
             let mut mutated = mutate_csv(&mut rng, &original);

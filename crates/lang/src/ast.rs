@@ -40,7 +40,17 @@ pub enum Item {
     Conclusion(TextItem),
     Value(ValueDecl),
     Claim(ClaimDecl),
+    Allow(AllowDecl),
+    Accent(TextItem),
     Frame(FrameDecl),
+}
+
+/// `allow RULE "reason"` (top level or in a frame).
+#[derive(Clone, Debug, PartialEq)]
+pub struct AllowDecl {
+    pub rule: Ident,
+    pub reason: Str,
+    pub span: Span,
 }
 
 impl Item {
@@ -54,6 +64,8 @@ impl Item {
             Item::Compare(c) => &c.span,
             Item::Frame(f) => &f.span,
             Item::Value(v) => &v.span,
+            Item::Allow(a) => &a.span,
+            Item::Accent(t) => &t.span,
             Item::Claim(c) => &c.span,
         }
     }
@@ -267,6 +279,8 @@ pub enum OptName {
     Category,
     Value,
     Ordered,
+    Horizontal,
+    Vertical,
 }
 
 impl OptName {
@@ -278,6 +292,8 @@ impl OptName {
             OptName::Category => "category",
             OptName::Value => "value",
             OptName::Ordered => "ordered",
+            OptName::Horizontal => "horizontal",
+            OptName::Vertical => "vertical",
         }
     }
 }
@@ -344,6 +360,13 @@ pub enum FrameStmt {
         text: Str,
         span: Span,
     },
+    Range {
+        axis: AxisName,
+        from: f64,
+        to: f64,
+        span: Span,
+    },
+    Allow(AllowDecl),
 }
 
 /// `value NAME = EXPRESSION`

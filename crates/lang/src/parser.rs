@@ -29,6 +29,8 @@ pub const TOP_KEYWORDS: &[&str] = &[
     "conclusion",
     "value",
     "claim",
+    "allow",
+    "accent",
     "frame",
 ];
 
@@ -161,7 +163,8 @@ fn describe(rule: Rule) -> Option<String> {
             | Rule::unary
             | Rule::neg_sign => "an expression",
             Rule::chart_form => "a chart (`line` or `bars`)",
-            Rule::axis_name => "an axis title (`x title` or `y title`)",
+            Rule::axis_name => "an axis statement (`y title \"...\"` or `y range 0 to 100`)",
+            Rule::rule_name => "a lint rule name",
             Rule::direction => "`ascending` or `descending`",
             Rule::keep_step | Rule::by_step | Rule::add_step | Rule::sort_step | Rule::top_step => {
                 "a view step (`| keep`, `| by`, `| add`, `| sort`, `| top`)"
@@ -202,7 +205,16 @@ fn keywords_of(rule: Rule) -> Vec<String> {
         Rule::chart_form => &["line", "bars"],
         Rule::axis_name => &["x", "y"],
         Rule::direction => &["ascending", "descending"],
-        Rule::opt_name | Rule::chart_opt => &["x", "y", "series", "category", "value", "ordered"],
+        Rule::opt_name | Rule::chart_opt => &[
+            "x",
+            "y",
+            "series",
+            "category",
+            "value",
+            "ordered",
+            "horizontal",
+            "vertical",
+        ],
         Rule::targets => &["all", "none", "focus"],
         _ => {
             return format!("{rule:?}")
@@ -391,6 +403,8 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
         Rule::byline_item => Item::Byline(text_item(&mut inner, span)),
         Rule::source_item => Item::Source(text_item(&mut inner, span)),
         Rule::conclusion_item => Item::Conclusion(text_item(&mut inner, span)),
+        Rule::accent_item => Item::Accent(text_item(&mut inner, span)),
+        Rule::allow_item => Item::Allow(allow_decl(inner, span, base)?),
         Rule::theme_item => Item::Theme {
             name: ident(inner.remove(1), base),
             span,
@@ -897,6 +911,13 @@ fn convert_vcond(pair: Pair<Rule>, base: usize) -> Res<VCond> {
     }
 }
 
+fn allow_decl(inner: Vec<Pair<Rule>>, span: Span, base: usize) -> Res<AllowDecl> {
+    let mut it = inner.into_iter().skip(1);
+    let rule = ident(it.next().ok_or_else(|| internal(&span))?, base);
+    let reason = string(it.next().ok_or_else(|| internal(&span))?, base);
+    Ok(AllowDecl { rule, reason, span })
+}
+
 fn targets(pair: Pair<Rule>, base: usize) -> Targets {
     let span = span_of(&pair, base);
     let first = children(pair.clone()).next();
@@ -940,6 +961,8 @@ fn convert_frame_stmt(pair: Pair<Rule>, base: usize) -> Res<FrameStmt> {
                     Some("category") => OptName::Category,
                     Some("value") => OptName::Value,
                     Some("ordered") => OptName::Ordered,
+                    Some("horizontal") => OptName::Horizontal,
+                    Some("vertical") => OptName::Vertical,
                     _ => return Err(internal(&ospan)),
                 };
                 opts.push(ChartOpt {
@@ -970,6 +993,32 @@ fn convert_frame_stmt(pair: Pair<Rule>, base: usize) -> Res<FrameStmt> {
                 Rule::show_stmt => FrameStmt::Show { targets: t, span },
                 Rule::hide_stmt => FrameStmt::Hide { targets: t, span },
                 _ => FrameStmt::Spotlight { targets: t, span },
+            }
+        }
+        Rule::frame_allow => FrameStmt::Allow(allow_decl(inner, span, base)?),
+        Rule::range_stmt => {
+            let axis = if inner[0].as_str() == "x" {
+                AxisName::X
+            } else {
+                AxisName::Y
+            };
+            let num = |p: &Pair<Rule>| -> Res<f64> {
+                p.as_str()
+                    .parse::<f64>()
+                    .ok()
+                    .filter(|v| v.is_finite())
+                    .ok_or_else(|| ConvertError {
+                        span: span_of(p, base),
+                        message: format!("`{}` is not a number", p.as_str()),
+                    })
+            };
+            let from = num(inner.get(2).ok_or_else(|| internal(&span))?)?;
+            let to = num(inner.get(4).ok_or_else(|| internal(&span))?)?;
+            FrameStmt::Range {
+                axis,
+                from,
+                to,
+                span,
             }
         }
         Rule::takeaway_stmt => FrameStmt::Takeaway {

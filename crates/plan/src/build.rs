@@ -11,6 +11,7 @@ use crescendo_lang::ast::{
     self, AxisName, ChartForm, ChartStmt, FrameStmt, Ident, Item, OptName, Str, Targets,
 };
 
+use crate::anchors::{Allowance, Anchors, FrameAnchors};
 use crate::model::*;
 use crate::resolve::{self, schema_of, Named, Tables};
 use crate::scale;
@@ -29,6 +30,8 @@ pub struct Options {
 /// frames whose texts depend on a failed claim carry a notice.
 pub struct Planned {
     pub plan: DeckPlan,
+    /// Where each part of the plan was said in the story.
+    pub anchors: Anchors,
     pub warnings: Vec<Diagnostic>,
     pub failed_claims: Vec<Diagnostic>,
 }
@@ -44,13 +47,19 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> Pla
         return Err(diags);
     }
     let mut failed_claims = Vec::new();
-    let plan = Planner::new(src, story_dir, options, &mut diags, &mut failed_claims).run(&story);
+    let mut anchors = Anchors {
+        end: src.text.len()..src.text.len(),
+        ..Anchors::default()
+    };
+    let plan = Planner::new(src, story_dir, options, &mut diags, &mut failed_claims)
+        .run(&story, &mut anchors);
     if has_errors(&diags) {
         Err(diags)
     } else {
         match plan {
             Some(plan) => Ok(Planned {
                 plan,
+                anchors,
                 warnings: diags,
                 failed_claims,
             }),
@@ -106,6 +115,12 @@ struct Header {
     conclusion: Option<Str>,
     compare: Option<ast::CompareDecl>,
     focus: Option<Vec<Str>>,
+    accent: Option<String>,
+}
+
+/// `#RRGGBB`.
+fn is_hex_colour(s: &str) -> bool {
+    s.len() == 7 && s.starts_with('#') && s[1..].chars().all(|c| c.is_ascii_hexdigit())
 }
 
 /// A resolved chart statement: the table and the columns playing each role.
@@ -121,6 +136,10 @@ struct ChartSpec {
     ordered: bool,
     /// Label of a folded "other" row, drawn last among sorted bars.
     rest: Option<String>,
+    /// `horizontal` or `vertical` given explicitly.
+    orientation: Option<Orientation>,
+    /// The measure is a count of rows (for the small-counts rule).
+    measure_is_count: bool,
 }
 
 /// The build-up state carried from frame to frame within a sequence.
@@ -134,6 +153,8 @@ struct SeqState {
     y_title: Option<values::Resolved>,
     view_name: String,
     key_name: String,
+    /// Where things were said, for the lint.
+    anchors: FrameAnchors,
 }
 
 fn display(v: &Value) -> String {
@@ -362,7 +383,7 @@ impl<'a> Planner<'a> {
         }
     }
 
-    fn run(mut self, story: &ast::StoryAst) -> Option<DeckPlan> {
+    fn run(mut self, story: &ast::StoryAst, anchors: &mut Anchors) -> Option<DeckPlan> {
         let mut h = Header::default();
         let mut frames = Vec::new();
         let mut claims = Vec::new();
@@ -409,6 +430,7 @@ impl<'a> Planner<'a> {
                                         is_data: true,
                                         rest: None,
                                         root: d.name.name.clone(),
+                                        counts: BTreeSet::new(),
                                     },
                                 );
                             }
@@ -421,12 +443,12 @@ impl<'a> Planner<'a> {
                         let built = match self.tables.get(self.src, &v.input, self.diags) {
                             Some(input) => {
                                 resolve::build_view(self.src, v, &self.tables, input, self.diags)
-                                    .map(|(t, r)| (t, r, input.root.clone()))
+                                    .map(|(t, r, c)| (t, r, c, input.root.clone()))
                             }
                             None => None,
                         };
                         match built {
-                            Some((table, rest, root)) => {
+                            Some((table, rest, counts, root)) => {
                                 self.tables.by_name.insert(
                                     v.name.name.clone(),
                                     Named {
@@ -435,6 +457,7 @@ impl<'a> Planner<'a> {
                                         is_data: false,
                                         rest,
                                         root,
+                                        counts,
                                     },
                                 );
                             }
@@ -447,6 +470,34 @@ impl<'a> Planner<'a> {
                     self.value(v, &later_values);
                 }
                 Item::Claim(c) => claims.push(c),
+                Item::Allow(a) => anchors.allows.push(Allowance {
+                    rule: a.rule.name.clone(),
+                    rule_span: a.rule.span.clone(),
+                    reason: a.reason.value.clone(),
+                }),
+                Item::Accent(t) => {
+                    if h.accent.is_some() {
+                        self.error(
+                            "duplicate",
+                            "the story sets its accent twice",
+                            t.span.clone(),
+                            "second one here",
+                        );
+                    } else if !is_hex_colour(&t.text.value) {
+                        self.error(
+                            "bad-colour",
+                            format!("`{}` is not a colour", t.text.value),
+                            t.text.span.clone(),
+                            "expected #RRGGBB",
+                        )
+                        .help = Some(
+                            "write the colour as six hex digits, e.g. `accent \"#1D5FA8\"`".into(),
+                        );
+                    } else {
+                        h.accent = Some(t.text.value.to_ascii_uppercase());
+                        anchors.accent = Some(t.text.span.clone());
+                    }
+                }
                 Item::Frame(f) => frames.push(f),
             }
         }
@@ -549,6 +600,9 @@ impl<'a> Planner<'a> {
                 claim_plans.push(cp);
             }
         }
+        anchors.title = h.title.as_ref().map(|t| t.span.clone());
+        anchors.conclusion = h.conclusion.as_ref().map(|t| t.span.clone());
+        anchors.source = h.source.as_ref().map(|t| t.span.clone());
         let source = source_text.as_ref().map(|s| s.text.clone());
         let mut planned = Vec::new();
         let mut state: Option<SeqState> = None;
@@ -558,9 +612,18 @@ impl<'a> Planner<'a> {
             if let Some(s) = &source_text {
                 texts.add("source", s);
             }
-            if let Some(mut fp) =
-                self.frame(&h, f, i + 1, &mut state, &mut sequence, &source, &mut texts)
-            {
+            let mut fa = FrameAnchors::default();
+            if let Some(mut fp) = self.frame(
+                &h,
+                f,
+                i + 1,
+                &mut state,
+                &mut sequence,
+                &source,
+                &mut texts,
+                &mut fa,
+            ) {
+                anchors.frames.push(fa);
                 for (sentence, deps) in &failed {
                     if deps.iter().any(|d| texts.depends.contains(d)) {
                         fp.notices
@@ -578,6 +641,7 @@ impl<'a> Planner<'a> {
             source,
             theme,
             conclusion: conclusion.map(|c| c.text),
+            accent: h.accent.clone(),
             values: self
                 .values
                 .by_name
@@ -647,6 +711,7 @@ impl<'a> Planner<'a> {
         sequence: &mut usize,
         source: &Option<String>,
         texts: &mut FrameTexts,
+        fa: &mut FrameAnchors,
     ) -> Option<FramePlan> {
         let mut takeaway: Option<String> = None;
         let mut notes: Option<String> = None;
@@ -698,14 +763,47 @@ impl<'a> Planner<'a> {
                         return None;
                     };
                     match other {
-                        FrameStmt::AxisTitle { axis, text, .. } => {
+                        FrameStmt::AxisTitle { axis, text, span } => {
                             let r = self.text(text);
                             match axis {
-                                AxisName::X => st.x_title = Some(r),
-                                AxisName::Y => st.y_title = Some(r),
+                                AxisName::X => {
+                                    st.x_title = Some(r);
+                                    st.anchors.x_title = Some(span.clone());
+                                }
+                                AxisName::Y => {
+                                    st.y_title = Some(r);
+                                    st.anchors.y_title = Some(span.clone());
+                                }
                             }
                         }
+                        FrameStmt::Allow(a) => fa.allows.push(Allowance {
+                            rule: a.rule.name.clone(),
+                            rule_span: a.rule.span.clone(),
+                            reason: a.reason.value.clone(),
+                        }),
+                        FrameStmt::Range {
+                            axis,
+                            from,
+                            to,
+                            span,
+                        } => {
+                            if *axis == AxisName::X {
+                                self.error(
+                                    "axis-range",
+                                    "only the measure's axis can be given a range",
+                                    span.clone(),
+                                    "x range",
+                                )
+                                .help = Some(
+                                    "write `y range FROM to TO`; x axes always span the data"
+                                        .into(),
+                                );
+                                return None;
+                            }
+                            set_range(self, st, *from, *to, span)?;
+                        }
                         FrameStmt::Takeaway { text, span } => {
+                            fa.takeaway = Some(span.clone());
                             let r = self.text(text);
                             texts.add("takeaway", &r);
                             if takeaway.replace(r.text).is_some() {
@@ -718,6 +816,7 @@ impl<'a> Planner<'a> {
                             }
                         }
                         FrameStmt::Notes { text, span } => {
+                            fa.notes = Some(span.clone());
                             let r = self.text(text);
                             texts.add("notes", &r);
                             if notes.replace(r.text).is_some() {
@@ -743,6 +842,7 @@ impl<'a> Planner<'a> {
                             }
                         }
                         FrameStmt::Spotlight { targets, span } => {
+                            st.anchors.spotlight = Some(span.clone());
                             if let Targets::All(s) = targets {
                                 self.error(
                                     "spotlight-all",
@@ -790,6 +890,17 @@ impl<'a> Planner<'a> {
         }
         let headline = self.text(&f.headline);
         texts.add("headline", &headline);
+        let per_frame = std::mem::take(fa);
+        *fa = FrameAnchors {
+            frame: f.span.clone(),
+            headline: f.headline.span.clone(),
+            takeaway: per_frame.takeaway,
+            notes: per_frame.notes,
+            allows: per_frame.allows,
+            ..st.anchors.clone()
+        };
+        let chart = apply_state(st);
+        let description = describe(&chart, &st.key_name, takeaway.as_deref());
         // The slug comes from the headline as written, so file names stay
         // the same when the quoted numbers change.
         Some(FramePlan {
@@ -800,10 +911,11 @@ impl<'a> Planner<'a> {
             takeaway,
             notes,
             source: source.clone(),
+            description,
             quoted: BTreeMap::new(),
             templates: BTreeMap::new(),
             notices: Vec::new(),
-            chart: apply_state(st),
+            chart,
         })
     }
 
@@ -890,13 +1002,23 @@ impl<'a> Planner<'a> {
 
     fn chart_spec(&mut self, h: &Header, c: &ChartStmt) -> Option<ChartSpec> {
         let named = self.tables.get(self.src, &c.view, self.diags)?;
-        let (table, rest) = (named.table.clone(), named.rest.clone());
+        let (table, rest, counts) = (
+            named.table.clone(),
+            named.rest.clone(),
+            named.counts.clone(),
+        );
         let schema = schema_of(&table);
         let view = c.view.name.clone();
         let (allowed, form_name): (&[OptName], &str) = match c.form {
             ChartForm::Line => (&[OptName::X, OptName::Y, OptName::Series], "line"),
             ChartForm::Bars => (
-                &[OptName::Category, OptName::Value, OptName::Ordered],
+                &[
+                    OptName::Category,
+                    OptName::Value,
+                    OptName::Ordered,
+                    OptName::Horizontal,
+                    OptName::Vertical,
+                ],
                 "bars",
             ),
         };
@@ -926,7 +1048,10 @@ impl<'a> Planner<'a> {
                 ok = false;
                 continue;
             }
-            let needs_column = o.name != OptName::Ordered;
+            let needs_column = !matches!(
+                o.name,
+                OptName::Ordered | OptName::Horizontal | OptName::Vertical
+            );
             match (&o.column, needs_column) {
                 (None, true) => {
                     self.error(
@@ -940,7 +1065,7 @@ impl<'a> Planner<'a> {
                 (Some(col), false) => {
                     self.error(
                         "chart-option",
-                        "`ordered` takes no column",
+                        format!("`{}` takes no column", o.name.keyword()),
                         col.span.clone(),
                         "remove this",
                     );
@@ -983,21 +1108,8 @@ impl<'a> Planner<'a> {
                         (times[0], schema[times[0]].1)
                     }
                 };
-                if !(x.1.is_time() || x.1 == ColType::Number) {
-                    let span = given(OptName::X).map_or(c.span.clone(), |i| i.span.clone());
-                    let d = self.error(
-                        "chart-type",
-                        format!(
-                            "a line runs over time or numbers, but `{}` is {}",
-                            schema[x.0].0,
-                            x.1.name()
-                        ),
-                        span,
-                        "not ordered",
-                    );
-                    d.help = Some("use `bars` to compare categories".into());
-                    return None;
-                }
+                // A line over text categories is allowed but linted
+                // (`line-over-categories`): the line implies an order.
                 let y = match given(OptName::Y).or(compare_measure.filter(|m| has(m))) {
                     Some(id) => lookup(self, id)?,
                     None => {
@@ -1042,6 +1154,8 @@ impl<'a> Planner<'a> {
                     series,
                     ordered: true,
                     rest,
+                    orientation: None,
+                    measure_is_count: counts.contains(&schema[y.0].0),
                 })
             }
             ChartForm::Bars => {
@@ -1101,6 +1215,12 @@ impl<'a> Planner<'a> {
                     series: None,
                     rest,
                     ordered: ordinal || chosen.iter().any(|(n, _)| *n == OptName::Ordered),
+                    orientation: chosen.iter().rev().find_map(|(n, _)| match n {
+                        OptName::Horizontal => Some(Orientation::Horizontal),
+                        OptName::Vertical => Some(Orientation::Vertical),
+                        _ => None,
+                    }),
+                    measure_is_count: counts.contains(&schema[val.0].0),
                 })
             }
         }
@@ -1128,6 +1248,7 @@ impl<'a> Planner<'a> {
                 // Exact x values (`-0.0` counted as `0.0`): rounding them to a
                 // grid would merge distinct points or overflow for large x.
                 let mut seen: BTreeSet<(String, u64)> = BTreeSet::new();
+                let mut categories: Vec<String> = Vec::new();
                 let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
                 let (mut ylo, mut yhi) = (f64::INFINITY, f64::NEG_INFINITY);
                 for r in 0..xcol.values.len() {
@@ -1135,8 +1256,22 @@ impl<'a> Planner<'a> {
                         Some(s) => display(&t.columns[s].values[r]),
                         None => humanize(&ycol.name),
                     };
-                    let Some(x) = position(&xcol.values[r]) else {
-                        continue;
+                    let x = if xcol.ty == ColType::Text {
+                        // Text categories sit at 0, 1, 2, ... in order of
+                        // first appearance.
+                        let label = display(&xcol.values[r]);
+                        match categories.iter().position(|c| *c == label) {
+                            Some(i) => i as f64,
+                            None => {
+                                categories.push(label);
+                                (categories.len() - 1) as f64
+                            }
+                        }
+                    } else {
+                        match position(&xcol.values[r]) {
+                            Some(x) => x,
+                            None => continue,
+                        }
                     };
                     let y = match &ycol.values[r] {
                         Value::Number(v) => Some(*v),
@@ -1201,10 +1336,24 @@ impl<'a> Planner<'a> {
                     ColType::Month => ScaleKind::Months,
                     ColType::Date => ScaleKind::Days,
                     ColType::Year => ScaleKind::Years,
-                    _ => ScaleKind::Linear,
+                    ColType::Text => ScaleKind::Categories,
+                    ColType::Number => ScaleKind::Linear,
                 };
                 let x = match scale_kind {
                     ScaleKind::Linear => scale::linear_axis(lo, hi, false, None),
+                    ScaleKind::Categories => Axis {
+                        title: None,
+                        scale: ScaleKind::Categories,
+                        domain: [0.0, (categories.len().max(2) - 1) as f64],
+                        ticks: categories
+                            .iter()
+                            .enumerate()
+                            .map(|(i, c)| Tick {
+                                value: i as f64,
+                                label: c.clone(),
+                            })
+                            .collect(),
+                    },
                     k => scale::time_axis(k, lo, hi, None),
                 };
                 let y = scale::linear_axis(ylo, yhi, false, Some(humanize(&ycol.name)));
@@ -1219,6 +1368,13 @@ impl<'a> Planner<'a> {
                     key_name: spec
                         .series
                         .map_or(ycol.name.clone(), |s| t.columns[s].name.clone()),
+                    anchors: FrameAnchors {
+                        chart: c.span.clone(),
+                        view: spec.table_name.clone(),
+                        measure_is_count: spec.measure_is_count,
+                        x_is_text: xcol.ty == ColType::Text,
+                        ..FrameAnchors::default()
+                    },
                 })
             }
             ChartForm::Bars => {
@@ -1289,12 +1445,14 @@ impl<'a> Planner<'a> {
                 // Long names, or many of them, read better down the side
                 // than squeezed under narrow bars (common practice); time
                 // keeps running left to right.
-                let orientation = if !xcol.ty.is_time()
-                    && (longest * rows.len() > 110 || longest > 24 || rows.len() > 12)
-                {
-                    Orientation::Horizontal
-                } else {
-                    Orientation::Vertical
+                let orientation = match spec.orientation {
+                    Some(o) => o,
+                    None if !xcol.ty.is_time()
+                        && (longest * rows.len() > 110 || longest > 24 || rows.len() > 12) =>
+                    {
+                        Orientation::Horizontal
+                    }
+                    None => Orientation::Vertical,
                 };
                 let step = value
                     .ticks
@@ -1328,10 +1486,201 @@ impl<'a> Planner<'a> {
                     y_title: None,
                     view_name: spec.table_name.clone(),
                     key_name: xcol.name.clone(),
+                    anchors: FrameAnchors {
+                        chart: c.span.clone(),
+                        view: spec.table_name.clone(),
+                        measure_is_count: spec.measure_is_count,
+                        ordered: c
+                            .opts
+                            .iter()
+                            .find(|o| o.name == OptName::Ordered)
+                            .map(|o| o.span.clone()),
+                        orientation: c
+                            .opts
+                            .iter()
+                            .rev()
+                            .find(|o| matches!(o.name, OptName::Horizontal | OptName::Vertical))
+                            .map(|o| o.span.clone()),
+                        ..FrameAnchors::default()
+                    },
                 })
             }
         }
     }
+}
+
+/// `y range FROM to TO`: fix the measure's axis for the rest of the
+/// sequence. The data must fit inside it; ticks are chosen within it.
+fn set_range(
+    p: &mut Planner,
+    st: &mut SeqState,
+    from: f64,
+    to: f64,
+    span: &ast::Span,
+) -> Option<()> {
+    if from >= to {
+        p.error(
+            "axis-range",
+            format!(
+                "the range must rise: {} to {}",
+                format::number(from, None),
+                format::number(to, None)
+            ),
+            span.clone(),
+            "empty range",
+        );
+        return None;
+    }
+    let (axis, values): (&mut Axis, Vec<f64>) = match &mut st.chart {
+        Chart::Line(l) => {
+            let v = l
+                .series
+                .iter()
+                .flat_map(|s| s.points.iter().filter_map(|p| p.y))
+                .collect();
+            (&mut l.y, v)
+        }
+        Chart::Bars(b) => {
+            let v = b.bars.iter().filter_map(|b| b.value).collect();
+            (&mut b.value, v)
+        }
+    };
+    let lo = values.iter().copied().fold(f64::INFINITY, f64::min);
+    let hi = values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    if lo < from || hi > to {
+        p.error(
+            "axis-range",
+            format!(
+                "the range {} to {} would cut off data: the values run from {} to {}",
+                format::number(from, None),
+                format::number(to, None),
+                format::number(lo, None),
+                format::number(hi, None)
+            ),
+            span.clone(),
+            "data outside this range",
+        )
+        .help = Some("widen the range, or leave it out to fit the axis to the data".into());
+        return None;
+    }
+    let fitted = scale::linear_axis(from, to, false, axis.title.clone());
+    axis.ticks = fitted
+        .ticks
+        .into_iter()
+        .filter(|t| t.value >= from - 1e-9 * (to - from) && t.value <= to + 1e-9 * (to - from))
+        .collect();
+    axis.domain = [from, to];
+    st.anchors.range = Some(span.clone());
+    Some(())
+}
+
+/// A text alternative for a frame, generated from the data: the chart form,
+/// what the axes show, the series, the range and direction of the
+/// spotlighted series, and the takeaway.
+fn describe(chart: &Chart, key: &str, takeaway: Option<&str>) -> String {
+    let tick_label = |axis: &Axis, v: f64| -> String {
+        match axis.scale {
+            ScaleKind::Months => {
+                let m = v.round() as i32;
+                format!(
+                    "{} {}",
+                    time::month_name(time::month_of_year(m)),
+                    time::month_year(m)
+                )
+            }
+            ScaleKind::Days => time::date_iso(v.round() as i32),
+            ScaleKind::Years => format!("{}", v.round() as i64),
+            ScaleKind::Categories => axis
+                .ticks
+                .iter()
+                .find(|t| (t.value - v).abs() < 1e-9)
+                .map_or_else(String::new, |t| t.label.clone()),
+            ScaleKind::Linear => format::number(v, None),
+        }
+    };
+    let fig = |v: f64| format::number(round_to(v, 2), None);
+    let mut out = String::new();
+    match chart {
+        Chart::Line(l) => {
+            let measure = l.y.title.clone().unwrap_or_else(|| "the measure".into());
+            let shown: Vec<&Series> = l.series.iter().filter(|s| s.role != Role::Hidden).collect();
+            out.push_str(&format!(
+                "Line chart of {} from {} to {}",
+                measure.to_lowercase(),
+                tick_label(&l.x, l.x.domain[0]),
+                tick_label(&l.x, l.x.domain[1])
+            ));
+            if l.series.len() > 1 {
+                let names: Vec<&str> = shown.iter().map(|s| s.name.as_str()).collect();
+                out.push_str(&format!(", one line per {key}: {}", names.join(", ")));
+            }
+            out.push('.');
+            for s in shown.iter().filter(|s| s.role == Role::Focus) {
+                let pts: Vec<(f64, f64)> = s
+                    .points
+                    .iter()
+                    .filter_map(|p| p.y.map(|y| (p.x, y)))
+                    .collect();
+                if let (Some(first), Some(last)) = (pts.first(), pts.last()) {
+                    let peak = pts
+                        .iter()
+                        .copied()
+                        .fold(*first, |a, b| if b.1 > a.1 { b } else { a });
+                    let direction = if last.1 > first.1 {
+                        "rose"
+                    } else if last.1 < first.1 {
+                        "fell"
+                    } else {
+                        "ended level"
+                    };
+                    out.push_str(&format!(
+                        " Highlighted: {} {direction} from {} in {} to {} in {}, with a high of {} in {}.",
+                        s.name,
+                        fig(first.1),
+                        tick_label(&l.x, first.0),
+                        fig(last.1),
+                        tick_label(&l.x, last.0),
+                        fig(peak.1),
+                        tick_label(&l.x, peak.0)
+                    ));
+                }
+            }
+        }
+        Chart::Bars(b) => {
+            let measure = b
+                .value
+                .title
+                .clone()
+                .unwrap_or_else(|| "the measure".into());
+            let shown: Vec<String> = b
+                .bars
+                .iter()
+                .filter(|x| x.role != Role::Hidden)
+                .map(|x| {
+                    format!(
+                        "{} {}{}",
+                        x.label,
+                        x.value_label,
+                        if x.role == Role::Focus {
+                            " (highlighted)"
+                        } else {
+                            ""
+                        }
+                    )
+                })
+                .collect();
+            out.push_str(&format!(
+                "Bar chart of {} by {key}, {} bars: {}.",
+                measure.to_lowercase(),
+                shown.len(),
+                shown.join("; ")
+            ));
+        }
+    }
+    if let Some(t) = takeaway {
+        out.push_str(&format!(" Takeaway: {t}"));
+    }
+    out
 }
 
 /// Decimals needed to show multiples of `step` exactly (0.25 → 2).

@@ -3,6 +3,7 @@
 //! scale domains and ticks. Its output, [`DeckPlan`], is the renderer's only
 //! input.
 
+pub mod anchors;
 mod build;
 pub mod model;
 mod resolve;

@@ -20,6 +20,9 @@ pub struct DeckPlan {
     pub theme: String,
     /// The sentence the story builds to.
     pub conclusion: Option<String>,
+    /// `#RRGGBB` replacing the theme's accent (the story's house colour).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub accent: Option<String>,
     /// Every named value, formatted plainly (name → figure).
     #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
     pub values: BTreeMap<String, String>,
@@ -57,6 +60,8 @@ pub struct FramePlan {
     /// Speaker notes (not drawn in the SVG; carried to the deck).
     pub notes: Option<String>,
     pub source: Option<String>,
+    /// A text alternative generated from the data, for screen readers.
+    pub description: String,
     /// Values this frame's texts quote, with the figure as printed.
     #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
     pub quoted: BTreeMap<String, String>,
@@ -102,6 +107,8 @@ pub enum ScaleKind {
     Months,
     /// Calendar years.
     Years,
+    /// Text categories at 0, 1, 2, ...; each tick labels one category.
+    Categories,
 }
 
 /// A positioned axis: domain and ticks are final; the renderer maps

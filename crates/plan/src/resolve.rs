@@ -21,6 +21,9 @@ pub struct Named {
     pub rest: Option<String>,
     /// The data item this table derives from (itself for data items).
     pub root: String,
+    /// Columns that count rows (from `count` aggregates), for the
+    /// small-counts rule.
+    pub counts: std::collections::BTreeSet<String>,
 }
 
 /// Every data and view table of a story, by name.
@@ -549,10 +552,11 @@ pub fn build_view(
     tables: &Tables,
     input: &Named,
     diags: &mut Vec<Diagnostic>,
-) -> Option<(Table, Option<String>)> {
+) -> Option<(Table, Option<String>, std::collections::BTreeSet<String>)> {
     let why = |col: &str| tables.why_text(&decl.input.name, col);
     let mut table = input.table.clone();
     let mut rest_label = input.rest.clone();
+    let mut counts = input.counts.clone();
     for step in &decl.steps {
         let schema = schema_of(&table);
         let before = diags.len();
@@ -783,6 +787,13 @@ pub fn build_view(
             return None;
         }
         let step = resolved?;
+        if let Step::Group { aggregates, .. } = &step {
+            counts = aggregates
+                .iter()
+                .filter(|a| a.func == AggFn::Count)
+                .map(|a| a.name.clone())
+                .collect();
+        }
         match &step {
             Step::Top { rest, .. } => rest_label = Some(rest.clone()),
             Step::Group { keys, .. } if keys.is_empty() => rest_label = None,
@@ -790,7 +801,7 @@ pub fn build_view(
         }
         table = data::run_view(&table, std::slice::from_ref(&step));
     }
-    Some((table, rest_label))
+    Some((table, rest_label, counts))
 }
 
 /// Type-check a row condition (a `where` of a value selection) against a
@@ -862,10 +873,12 @@ mod tests {
                 is_data: true,
                 rest: None,
                 root: "d".into(),
+                counts: Default::default(),
             },
         );
         let mut diags = Vec::new();
-        let out = build_view(&src, view, &tables, &tables.by_name["d"], &mut diags).map(|(t, _)| t);
+        let out =
+            build_view(&src, view, &tables, &tables.by_name["d"], &mut diags).map(|(t, _, _)| t);
         (out, diags)
     }
 

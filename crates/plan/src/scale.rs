@@ -419,7 +419,8 @@ pub fn time_axis(scale: ScaleKind, lo: f64, hi: f64, title: Option<String>) -> A
     let (lo, hi) = sanitize(lo, hi);
     let (lo, hi) = if lo <= hi { (lo, hi) } else { (hi, lo) };
     let ticks = match scale {
-        ScaleKind::Linear => return linear_axis(lo, hi, false, title),
+        // Categories carry their own labels; callers build that axis.
+        ScaleKind::Linear | ScaleKind::Categories => return linear_axis(lo, hi, false, title),
         ScaleKind::Months => month_ticks(lo, hi),
         ScaleKind::Days => day_ticks(lo, hi),
         ScaleKind::Years => year_ticks(lo, hi),

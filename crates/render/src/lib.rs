@@ -56,7 +56,7 @@ impl std::error::Error for RenderError {}
 /// of `frame`'s build-up sequence (so the layout is shared across it).
 /// Identical input gives identical bytes.
 pub fn render_frame(deck: &DeckPlan, frame: &FramePlan) -> Result<String, RenderError> {
-    let theme = theme::theme(&deck.theme)?;
+    let theme = &theme::effective(deck)?;
     let mut buf = String::new();
     {
         let canvas = canvas::Canvas::new(&mut buf)?;
@@ -67,7 +67,29 @@ pub fn render_frame(deck: &DeckPlan, frame: &FramePlan) -> Result<String, Render
         }
         canvas.finish()?;
     }
-    Ok(buf)
+    Ok(with_text_alternative(&buf, frame))
+}
+
+/// Give the SVG a title (the headline) and a description (the frame's text
+/// alternative generated from the data), exposed to screen readers as an
+/// image with a name and a description.
+fn with_text_alternative(svg: &str, frame: &FramePlan) -> String {
+    let Some(start) = svg.find("<svg") else {
+        return svg.to_string();
+    };
+    let Some(close) = svg[start..].find('>').map(|i| start + i) else {
+        return svg.to_string();
+    };
+    let n = frame.number;
+    let mut out = String::with_capacity(svg.len() + frame.description.len() + 256);
+    out.push_str(&svg[..close]);
+    out.push_str(&format!(
+        " role=\"img\" aria-labelledby=\"frame-{n}-title\" aria-describedby=\"frame-{n}-desc\">\n<title id=\"frame-{n}-title\">{}</title>\n<desc id=\"frame-{n}-desc\">{}</desc>",
+        html::escape(&frame.headline),
+        html::escape(&frame.description)
+    ));
+    out.push_str(&svg[close + 1..]);
+    out
 }
 
 #[cfg(test)]

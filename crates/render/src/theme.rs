@@ -89,6 +89,29 @@ pub const CLEAR: Theme = Theme {
 /// Every built-in theme, in the order of `crescendo_plan::THEMES`.
 pub const THEMES: &[&Theme] = &[&CLEAR];
 
+/// The theme a deck is drawn with: its named theme, with the story's
+/// accent colour (`accent "#RRGGBB"`) in place of the theme's own.
+pub fn effective(deck: &crescendo_plan::DeckPlan) -> Result<Theme, RenderError> {
+    let mut t = theme(&deck.theme)?.clone();
+    if let Some(hex) = &deck.accent {
+        t.accent = Rgb::from_hex(hex)
+            .ok_or_else(|| RenderError::new(format!("`{hex}` is not a colour")))?;
+    }
+    Ok(t)
+}
+
+impl Rgb {
+    /// Parse `#RRGGBB`.
+    pub fn from_hex(s: &str) -> Option<Rgb> {
+        let h = s.strip_prefix('#')?;
+        if h.len() != 6 || !h.chars().all(|c| c.is_ascii_hexdigit()) {
+            return None;
+        }
+        let byte = |i: usize| u8::from_str_radix(&h[i..i + 2], 16).ok();
+        Some(Rgb(byte(0)?, byte(2)?, byte(4)?))
+    }
+}
+
 /// Looks a theme up by name.
 pub fn theme(name: &str) -> Result<&'static Theme, RenderError> {
     THEMES
