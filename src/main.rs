@@ -17,6 +17,27 @@ use crescendo_plan::{Options, Planned};
 mod deck;
 mod diff;
 
+/// Print a line to standard output; a closed pipe (`crescendo check | head`)
+/// ends the program quietly instead of panicking.
+macro_rules! say {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        if writeln!(std::io::stdout(), $($arg)*).is_err() {
+            std::process::exit(0);
+        }
+    }};
+}
+
+/// Like [`say!`] without the line break.
+macro_rules! say_raw {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        if write!(std::io::stdout(), $($arg)*).is_err() {
+            std::process::exit(0);
+        }
+    }};
+}
+
 /// Exit status when the story or its data has errors.
 const EXIT_STORY: u8 = 1;
 /// Exit status when a claim does not hold.
@@ -39,6 +60,23 @@ struct Cli {
 enum Format {
     Human,
     Json,
+}
+
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum Deny {
+    /// Treat lint warnings as errors (for CI).
+    Warnings,
+}
+
+#[derive(clap::Args)]
+struct LintArgs {
+    /// `--deny warnings` turns lint warnings into errors.
+    #[arg(long, value_enum)]
+    deny: Option<Deny>,
+    /// Counts of rows below N are flagged as possibly identifying people
+    /// (follow your organisation's disclosure rules).
+    #[arg(long, value_name = "N", default_value_t = 5.0)]
+    small_counts: f64,
 }
 
 #[derive(clap::Args)]
@@ -74,6 +112,8 @@ enum Command {
         draft: bool,
         #[command(flatten)]
         data: DataArgs,
+        #[command(flatten)]
+        lint: LintArgs,
     },
     /// Parse, compute every value and check every claim, without drawing.
     Check {
@@ -84,6 +124,14 @@ enum Command {
         format: Format,
         #[command(flatten)]
         data: DataArgs,
+        #[command(flatten)]
+        lint: LintArgs,
+    },
+    /// Explain a lint rule (what it flags, why, an example, what to do
+    /// instead); without a rule, list them all.
+    Explain {
+        /// The rule's name, e.g. `bars-off-zero`.
+        rule: Option<String>,
     },
     /// Print the frame plan (the renderer's input) as JSON.
     Plan {
@@ -110,16 +158,19 @@ fn main() -> ExitCode {
             out,
             draft,
             data,
-        } => build(&story, out, draft, &data, color),
+            lint,
+        } => build(&story, out, draft, &data, &lint, color),
         Command::Check {
             story,
             format,
             data,
-        } => check(&story, format, &data, color),
+            lint,
+        } => check(&story, format, &data, &lint, color),
+        Command::Explain { rule } => explain(rule.as_deref(), color),
         Command::Plan { story, data } => match load_plan(&story, &data, color) {
             Ok(p) => match serde_json::to_string_pretty(&p.plan) {
                 Ok(s) => {
-                    println!("{s}");
+                    say!("{s}");
                     ExitCode::SUCCESS
                 }
                 Err(e) => {
@@ -132,7 +183,7 @@ fn main() -> ExitCode {
         Command::Diff { old, new } => match diff::diff_folders(&old, &new) {
             Ok(lines) => {
                 for l in lines {
-                    println!("{l}");
+                    say!("{l}");
                 }
                 ExitCode::SUCCESS
             }
@@ -144,17 +195,80 @@ fn main() -> ExitCode {
     }
 }
 
+fn explain(rule: Option<&str>, color: bool) -> ExitCode {
+    match rule {
+        None => {
+            say_raw!("{}", crescendo_lint::list());
+            ExitCode::SUCCESS
+        }
+        Some(name) => match crescendo_lint::explain(name) {
+            Some(text) => {
+                say_raw!("{text}");
+                ExitCode::SUCCESS
+            }
+            None => {
+                let names = crescendo_lint::RULES.iter().map(|r| r.name);
+                let mut d = Diagnostic::error(
+                    "unknown-rule",
+                    format!("there is no lint rule named `{name}`"),
+                )
+                .note("`crescendo explain` lists the rules");
+                if let Some(s) = crescendo_diag::closest(name, names) {
+                    d = d.help(format!("did you mean `{s}`?"));
+                }
+                eprint!("{}", render(&[d], color));
+                ExitCode::from(EXIT_STORY)
+            }
+        },
+    }
+}
+
+/// Lint a plan with the theme it will be drawn with.
+fn run_lint(planned: &Planned, args: &LintArgs) -> Vec<Diagnostic> {
+    let theme = match crescendo_render::theme::effective(&planned.plan) {
+        Ok(t) => t,
+        Err(e) => return vec![Diagnostic::error("theme", e.message)],
+    };
+    let input = crescendo_lint::Input {
+        src: &planned.source,
+        plan: &planned.plan,
+        anchors: &planned.anchors,
+        theme: &theme,
+        small_counts: args.small_counts,
+    };
+    crescendo_lint::lint(
+        &input,
+        &crescendo_lint::Options {
+            deny_warnings: args.deny == Some(Deny::Warnings),
+        },
+    )
+}
+
 fn build(
     story: &Path,
     out: Option<PathBuf>,
     draft: bool,
     data: &DataArgs,
+    lint: &LintArgs,
     color: bool,
 ) -> ExitCode {
     let planned = match load_plan(story, data, color) {
         Ok(p) => p,
         Err(code) => return code,
     };
+    let findings = run_lint(&planned, lint);
+    if !findings.is_empty() {
+        eprint!("{}", render(&findings, color));
+    }
+    let lint_errors = findings.iter().filter(|d| d.is_error()).count();
+    if lint_errors > 0 {
+        eprintln!(
+            "{lint_errors} lint error{} in {}; no deck written",
+            if lint_errors == 1 { "" } else { "s" },
+            story.display()
+        );
+        return ExitCode::from(EXIT_STORY);
+    }
     let out = out.unwrap_or_else(|| story.parent().unwrap_or(Path::new(".")).join("deck"));
     if !planned.failed_claims.is_empty() {
         if draft {
@@ -226,12 +340,19 @@ fn diag_json(d: &Diagnostic) -> serde_json::Value {
     })
 }
 
-fn check(story: &Path, format: Format, data: &DataArgs, color: bool) -> ExitCode {
+fn check(story: &Path, format: Format, data: &DataArgs, lint: &LintArgs, color: bool) -> ExitCode {
     let result = plan_quietly(story, data);
-    let (planned, errors) = match result {
+    let (planned, mut errors) = match result {
         Ok(p) => (Some(p), Vec::new()),
         Err(d) => (None, d),
     };
+    let findings = planned
+        .as_ref()
+        .map(|p| run_lint(p, lint))
+        .unwrap_or_default();
+    let (lint_errors, lint_rest): (Vec<Diagnostic>, Vec<Diagnostic>) =
+        findings.into_iter().partition(Diagnostic::is_error);
+    errors.extend(lint_errors);
     let failed = planned.as_ref().map_or(0, |p| p.failed_claims.len());
     let status = if !errors.is_empty() {
         EXIT_STORY
@@ -244,8 +365,11 @@ fn check(story: &Path, format: Format, data: &DataArgs, color: bool) -> ExitCode
         Format::Json => {
             let mut problems: Vec<serde_json::Value> = errors.iter().map(diag_json).collect();
             if let Some(p) = &planned {
-                problems.extend(p.warnings.iter().map(diag_json));
                 problems.extend(p.failed_claims.iter().map(diag_json));
+            }
+            problems.extend(lint_rest.iter().map(diag_json));
+            if let Some(p) = &planned {
+                problems.extend(p.warnings.iter().map(diag_json));
             }
             let report = serde_json::json!({
                 "story": story.display().to_string(),
@@ -257,7 +381,7 @@ fn check(story: &Path, format: Format, data: &DataArgs, color: bool) -> ExitCode
                 "claims": planned.as_ref().map(|p| p.plan.claims.clone()),
             });
             match serde_json::to_string_pretty(&report) {
-                Ok(s) => println!("{s}"),
+                Ok(s) => say!("{s}"),
                 Err(e) => eprintln!("error: {e}"),
             }
         }
@@ -265,7 +389,10 @@ fn check(story: &Path, format: Format, data: &DataArgs, color: bool) -> ExitCode
             if !errors.is_empty() {
                 eprint!("{}", render(&errors, color));
             }
-            if let Some(p) = &planned {
+            if !lint_rest.is_empty() {
+                eprint!("{}", render(&lint_rest, color));
+            }
+            if let Some(p) = planned.as_ref().filter(|_| errors.is_empty()) {
                 if !p.warnings.is_empty() {
                     eprint!("{}", render(&p.warnings, color));
                 }
@@ -273,7 +400,7 @@ fn check(story: &Path, format: Format, data: &DataArgs, color: bool) -> ExitCode
                     eprint!("{}", render(&p.failed_claims, color));
                 }
                 let plan = &p.plan;
-                println!(
+                say!(
                     "{}: {} frame{}, {} value{}, {} claim{}",
                     story.display(),
                     plan.frames.len(),
@@ -284,10 +411,10 @@ fn check(story: &Path, format: Format, data: &DataArgs, color: bool) -> ExitCode
                     if plan.claims.len() == 1 { "" } else { "s" }
                 );
                 for (name, figure) in &plan.values {
-                    println!("  value {name} = {figure}");
+                    say!("  value {name} = {figure}");
                 }
                 for c in &plan.claims {
-                    println!(
+                    say!(
                         "  claim {}: \"{}\" ({})",
                         if c.holds { "holds" } else { "FAILS" },
                         c.sentence,

@@ -320,3 +320,36 @@ fn readme_story_example_parses() {
     );
     assert!(ast.items.len() >= 10);
 }
+
+#[test]
+fn frames_carry_a_text_alternative_generated_from_the_data() {
+    let plan = plan_of(&root().join("stories/pools/pools.cresc"));
+    let f = &plan.frames[2];
+    assert_eq!(
+        f.description,
+        "Line chart of visits per month from Jan 2021 to Dec 2024, one line per pool: \
+         Alder Park, Westbrook, Millrace, Harrow Lane. Highlighted: Westbrook rose from 3,510 \
+         in Jan 2021 to 7,835 in Dec 2024, with a high of 12,589 in Aug 2024. Takeaway: \
+         Monthly visits at Westbrook are now well above any other pool."
+    );
+    let svg = crescendo_render::render_frame(&plan, f).unwrap();
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    let root_el = doc.root_element();
+    assert_eq!(root_el.attribute("role"), Some("img"));
+    let desc_id = root_el.attribute("aria-describedby").unwrap();
+    let desc = doc
+        .descendants()
+        .find(|n| n.attribute("id") == Some(desc_id))
+        .unwrap();
+    assert_eq!(desc.tag_name().name(), "desc");
+    assert_eq!(desc.text(), Some(f.description.as_str()));
+    let title_id = root_el.attribute("aria-labelledby").unwrap();
+    let title = doc
+        .descendants()
+        .find(|n| n.attribute("id") == Some(title_id))
+        .unwrap();
+    assert_eq!(title.text(), Some(f.headline.as_str()));
+    // bars name every visible bar and mark the spotlight
+    let bars = &plan.frames[3];
+    assert!(bars.description.starts_with("Bar chart of visits in 2024 by pool, 4 bars: Westbrook 114,161 (highlighted); Alder Park"), "{}", bars.description);
+}

@@ -278,7 +278,7 @@ pub fn render(diags: &[Diagnostic], color: bool) -> String {
         let mut cd = match d.severity {
             Severity::Error => cs::Diagnostic::error(),
             Severity::Warning => cs::Diagnostic::warning(),
-            Severity::Advice => cs::Diagnostic::help(),
+            Severity::Advice => cs::Diagnostic::note(),
         }
         .with_message(&d.message)
         .with_code(d.code);

@@ -1,1 +1,288 @@
+//! The clarity lint: checks a finished plan (every frame, the theme and the
+//! story's texts) for clutter, distortion, contrast and colour-vision
+//! safety, and reports located diagnostics with a suggested fix.
+//!
+//! One rule per file in `rules/`. Every rule carries its documentation in
+//! fixed parts (what it flags, why it matters, an example, what to do
+//! instead); `crescendo explain RULE` prints exactly that text.
+
 pub mod colour;
+mod rules;
+
+use std::sync::Arc;
+
+use crescendo_diag::{closest, Diagnostic, Severity, Source};
+use crescendo_plan::anchors::{Allowance, Anchors, Span};
+use crescendo_plan::DeckPlan;
+use crescendo_render::Theme;
+
+pub use rules::{CONFUSABLE_THRESHOLD, RULES};
+
+/// The fixed parts of a rule's documentation.
+pub struct Doc {
+    /// What the rule flags.
+    pub flags: &'static str,
+    /// Why it matters: the perception research or common practice behind it.
+    pub why: &'static str,
+    /// A story fragment that triggers it.
+    pub example: &'static str,
+    /// What to do instead.
+    pub instead: &'static str,
+}
+
+/// One lint rule.
+pub struct Rule {
+    /// Short, our own, describes the flagged pattern.
+    pub name: &'static str,
+    pub severity: Severity,
+    /// One line.
+    pub summary: &'static str,
+    pub doc: Doc,
+    pub check: fn(&Input, &mut Vec<Finding>),
+}
+
+/// What the rules look at.
+pub struct Input<'a> {
+    pub src: &'a Arc<Source>,
+    pub plan: &'a DeckPlan,
+    pub anchors: &'a Anchors,
+    /// The theme the deck is drawn with (accent override applied).
+    pub theme: &'a Theme,
+    /// Counts of rows below this are flagged by `small-counts` (default 5).
+    pub small_counts: f64,
+}
+
+/// One problem a rule found.
+pub struct Finding {
+    /// Index into `plan.frames`, or `None` for the whole story.
+    pub frame: Option<usize>,
+    pub span: Span,
+    pub label: String,
+    pub message: String,
+    /// The suggested fix.
+    pub fix: String,
+}
+
+/// How to lint.
+#[derive(Clone, Copy, Debug, Default)]
+pub struct Options {
+    /// `--deny warnings`: report warnings as errors (for CI).
+    pub deny_warnings: bool,
+}
+
+/// Look a rule up by name.
+pub fn rule(name: &str) -> Option<&'static Rule> {
+    RULES.iter().copied().find(|r| r.name == name)
+}
+
+fn severity_name(s: Severity) -> &'static str {
+    match s {
+        Severity::Error => "error",
+        Severity::Warning => "warning",
+        Severity::Advice => "advice",
+    }
+}
+
+/// The documentation of a rule, as `crescendo explain` prints it.
+pub fn explain(name: &str) -> Option<String> {
+    let r = rule(name)?;
+    Some(format!(
+        "{} ({})\n{}\n\nWhat it flags\n{}\n\nWhy it matters\n{}\n\nExample\n{}\n\nInstead\n{}\n",
+        r.name,
+        severity_name(r.severity),
+        r.summary,
+        indent(r.doc.flags),
+        indent(r.doc.why),
+        indent(r.doc.example),
+        indent(r.doc.instead)
+    ))
+}
+
+/// One line per rule: name, severity, summary.
+pub fn list() -> String {
+    let width = RULES.iter().map(|r| r.name.len()).max().unwrap_or(0);
+    RULES
+        .iter()
+        .map(|r| {
+            format!(
+                "{:width$}  {:8}  {}\n",
+                r.name,
+                severity_name(r.severity),
+                r.summary
+            )
+        })
+        .collect()
+}
+
+fn indent(text: &str) -> String {
+    text.lines()
+        .map(|l| format!("  {l}"))
+        .collect::<Vec<_>>()
+        .join("\n")
+}
+
+/// Run every rule, apply the story's and the frames' allowances, and turn
+/// the findings into diagnostics.
+pub fn lint(input: &Input, options: &Options) -> Vec<Diagnostic> {
+    let mut out = Vec::new();
+    let names: Vec<&str> = RULES.iter().map(|r| r.name).collect();
+    let mut used: Vec<(Option<usize>, usize)> = Vec::new();
+    let check_allow = |a: &Allowance, out: &mut Vec<Diagnostic>| -> bool {
+        if rule(&a.rule).is_none() {
+            let mut d = Diagnostic::error(
+                "unknown-rule",
+                format!("there is no lint rule named `{}`", a.rule),
+            )
+            .at(input.src, a.rule_span.clone(), "unknown rule")
+            .note("`crescendo explain` lists the rules");
+            if let Some(s) = closest(&a.rule, names.iter().copied()) {
+                d = d.help(format!("did you mean `{s}`?"));
+            }
+            out.push(d);
+            return false;
+        }
+        if a.reason.trim().is_empty() {
+            out.push(
+                Diagnostic::error("allow-without-reason", format!("allowing `{}` needs a reason", a.rule))
+                    .at(input.src, a.rule_span.clone(), "say why this is acceptable here")
+                    .help("write the reason a reviewer would need, e.g. `allow bars-off-zero \"index values, 100 = 2019\"`"),
+            );
+            return false;
+        }
+        true
+    };
+    let story_allows: Vec<bool> = input
+        .anchors
+        .allows
+        .iter()
+        .map(|a| check_allow(a, &mut out))
+        .collect();
+    let frame_allows: Vec<Vec<bool>> = input
+        .anchors
+        .frames
+        .iter()
+        .map(|f| f.allows.iter().map(|a| check_allow(a, &mut out)).collect())
+        .collect();
+
+    for r in RULES {
+        let mut findings = Vec::new();
+        (r.check)(input, &mut findings);
+        for f in findings {
+            // a frame's own allowance first, then the story's
+            let frame_allow = f.frame.and_then(|i| {
+                let fa = input.anchors.frames.get(i)?;
+                fa.allows
+                    .iter()
+                    .enumerate()
+                    .position(|(k, a)| a.rule == r.name && frame_allows[i][k])
+                    .map(|k| (Some(i), k))
+            });
+            let story_allow = || {
+                input
+                    .anchors
+                    .allows
+                    .iter()
+                    .enumerate()
+                    .position(|(k, a)| a.rule == r.name && story_allows[k])
+                    .map(|k| (None, k))
+            };
+            if let Some(key) = frame_allow.or_else(story_allow) {
+                if !used.contains(&key) {
+                    used.push(key);
+                }
+                continue;
+            }
+            let severity = match r.severity {
+                Severity::Warning if options.deny_warnings => Severity::Error,
+                s => s,
+            };
+            let mut d = Diagnostic::error(r.name, f.message).at(input.src, f.span, f.label);
+            d.severity = severity;
+            if let Some(i) = f.frame {
+                if let Some(fp) = input.plan.frames.get(i) {
+                    d = d.note(format!("in frame {} \"{}\"", fp.number, fp.headline));
+                }
+            }
+            d = d
+                .note(format!(
+                    "`crescendo explain {}` says why; `allow {} \"reason\"` accepts it",
+                    r.name, r.name
+                ))
+                .help(f.fix);
+            out.push(d);
+        }
+    }
+    // allowances that allowed nothing
+    for (k, a) in input.anchors.allows.iter().enumerate() {
+        if story_allows[k] && !used.contains(&(None, k)) {
+            out.push(
+                Diagnostic::warning(
+                    "unused-allow",
+                    format!("`{}` finds nothing to allow in this story", a.rule),
+                )
+                .at(input.src, a.rule_span.clone(), "nothing to allow")
+                .help("remove the allowance"),
+            );
+        }
+    }
+    for (i, fa) in input.anchors.frames.iter().enumerate() {
+        for (k, a) in fa.allows.iter().enumerate() {
+            if frame_allows[i][k] && !used.contains(&(Some(i), k)) {
+                out.push(
+                    Diagnostic::warning(
+                        "unused-allow",
+                        format!("`{}` finds nothing to allow in this frame", a.rule),
+                    )
+                    .at(input.src, a.rule_span.clone(), "nothing to allow")
+                    .help("remove the allowance"),
+                );
+            }
+        }
+    }
+    if options.deny_warnings {
+        for d in &mut out {
+            if d.severity == Severity::Warning {
+                d.severity = Severity::Error;
+            }
+        }
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::collections::BTreeSet;
+
+    #[test]
+    fn at_least_fifteen_rules_with_unique_names() {
+        assert!(RULES.len() >= 15, "{}", RULES.len());
+        let names: BTreeSet<&str> = RULES.iter().map(|r| r.name).collect();
+        assert_eq!(names.len(), RULES.len(), "rule names are unique");
+    }
+
+    #[test]
+    fn every_rule_is_documented() {
+        for r in RULES {
+            assert!(
+                r.name.chars().all(|c| c.is_ascii_lowercase() || c == '-') && r.name.len() <= 24,
+                "{}: short lowercase name",
+                r.name
+            );
+            for (part, text) in [
+                ("summary", r.summary),
+                ("flags", r.doc.flags),
+                ("why", r.doc.why),
+                ("example", r.doc.example),
+                ("instead", r.doc.instead),
+            ] {
+                assert!(text.trim().len() >= 20, "{}: `{part}` is too thin", r.name);
+            }
+            let text = explain(r.name).unwrap();
+            for heading in ["What it flags", "Why it matters", "Example", "Instead"] {
+                assert!(text.contains(heading), "{}", r.name);
+            }
+        }
+        assert!(explain("no-such-rule").is_none());
+    }
+}

@@ -30,6 +30,8 @@ pub struct Options {
 /// frames whose texts depend on a failed claim carry a notice.
 pub struct Planned {
     pub plan: DeckPlan,
+    /// The story source the anchors point into.
+    pub source: Arc<Source>,
     /// Where each part of the plan was said in the story.
     pub anchors: Anchors,
     pub warnings: Vec<Diagnostic>,
@@ -59,6 +61,7 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> Pla
         match plan {
             Some(plan) => Ok(Planned {
                 plan,
+                source: Arc::clone(src),
                 anchors,
                 warnings: diags,
                 failed_claims,
@@ -1490,6 +1493,7 @@ impl<'a> Planner<'a> {
                         chart: c.span.clone(),
                         view: spec.table_name.clone(),
                         measure_is_count: spec.measure_is_count,
+                        x_is_text: xcol.ty == ColType::Text,
                         ordered: c
                             .opts
                             .iter()

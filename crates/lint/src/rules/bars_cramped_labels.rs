@@ -1,0 +1,54 @@
+//! `bars-cramped-labels`: vertical bars with long category names.
+
+use crescendo_diag::Severity;
+use crescendo_plan::{Chart, Orientation};
+
+use super::util::frames;
+use crate::{Doc, Finding, Input, Rule};
+
+pub static RULE: Rule = Rule {
+    name: "bars-cramped-labels",
+    severity: Severity::Warning,
+    summary: "vertical bars with category names too long to sit under them",
+    doc: Doc {
+        flags: "Bars forced `vertical` when their category names are long or many, so the\n\
+                names must wrap, shrink or be cut under narrow bars.",
+        why: "Long names under narrow bars get broken over lines or cut, and readers tilt\n\
+              their heads to match names to bars. Horizontal bars give every name a line of\n\
+              its own, left-aligned and level (common practice; crescendo never rotates text).",
+        example: "bars by_programme: category programme, value budget, vertical",
+        instead: "Remove `vertical` (crescendo turns such bars horizontal by itself), or shorten\n\
+                  the category names in the view.",
+    },
+    check,
+};
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    for (i, f, a) in frames(input) {
+        let (Chart::Bars(b), Some(span)) = (&f.chart, &a.orientation) else {
+            continue;
+        };
+        if b.orientation != Orientation::Vertical {
+            continue;
+        }
+        let longest = b
+            .bars
+            .iter()
+            .map(|b| b.label.chars().count())
+            .max()
+            .unwrap_or(0);
+        // The planner's own rule for choosing horizontal bars.
+        if longest * b.bars.len() > 110 || longest > 24 {
+            out.push(Finding {
+                frame: Some(i),
+                span: span.clone(),
+                label: "forced vertical".into(),
+                message: format!(
+                    "{} vertical bars with names up to {longest} characters long will not fit their labels",
+                    b.bars.len()
+                ),
+                fix: "remove `vertical` and let the bars run horizontally".into(),
+            });
+        }
+    }
+}

@@ -1,0 +1,39 @@
+//! `bars-crowded`: too many bars to compare.
+
+use crescendo_diag::Severity;
+use crescendo_plan::Chart;
+
+use super::util::{frames, visible};
+use crate::{Doc, Finding, Input, Rule};
+
+const MAX_BARS: usize = 15;
+
+pub static RULE: Rule = Rule {
+    name: "bars-crowded",
+    severity: Severity::Advice,
+    summary: "more bars than the audience can compare",
+    doc: Doc {
+        flags: "A bar chart showing more than 15 bars.",
+        why: "Past a dozen or so bars the audience cannot take in the ranking, labels shrink,\n\
+              and the one comparison that matters is lost among the rest (common practice).",
+        example: "bars by_product: category product, value sales   # 40 products",
+        instead: "Keep the largest with `| top 10 product by sales rest \"Other products\"`, or\n\
+                  split the story into a few frames.",
+    },
+    check,
+};
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    for (i, f, a) in frames(input) {
+        let n = visible(f);
+        if matches!(f.chart, Chart::Bars(_)) && n > MAX_BARS {
+            out.push(Finding {
+                frame: Some(i),
+                span: a.chart.clone(),
+                label: format!("{n} bars"),
+                message: format!("{n} bars are more than an audience can compare"),
+                fix: "keep the largest with `| top 10 ... rest \"Other\"`".into(),
+            });
+        }
+    }
+}

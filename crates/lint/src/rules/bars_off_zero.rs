@@ -1,0 +1,45 @@
+//! `bars-off-zero`: a bar axis that does not start at zero.
+
+use crescendo_diag::Severity;
+use crescendo_plan::Chart;
+
+use super::util::frames;
+use crate::{Doc, Finding, Input, Rule};
+
+pub static RULE: Rule = Rule {
+    name: "bars-off-zero",
+    severity: Severity::Error,
+    summary: "a bar chart's value axis does not start at zero",
+    doc: Doc {
+        flags: "Bars whose value axis leaves out zero, for example after `y range 50 to 100`.",
+        why: "A bar encodes its value by its length. Cut the axis and the lengths no longer\n\
+              compare: a bar for 60 next to one for 90 looks four times shorter instead of a\n\
+              third shorter. Length is judged accurately only from a common baseline\n\
+              (Cleveland & McGill 1984, position and length judgements), and a truncated bar\n\
+              axis is one of the best-documented ways a chart misleads (common practice).",
+        example: "frame \"Scores\" {\n  bars results: category school, value score\n  y range 50 to 100\n}",
+        instead: "Drop the range so the bars start at zero, or show the differences as a dot plot\n\
+                  or a line, whose positions do not need a zero baseline.",
+    },
+    check,
+};
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    for (i, f, a) in frames(input) {
+        if let Chart::Bars(b) = &f.chart {
+            let [lo, hi] = b.value.domain;
+            if lo > 0.0 || hi < 0.0 {
+                out.push(Finding {
+                    frame: Some(i),
+                    span: a.range.clone().unwrap_or(a.chart.clone()),
+                    label: "the bars' axis starts here, not at zero".into(),
+                    message: "bars on an axis that does not start at zero exaggerate differences"
+                        .into(),
+                    fix:
+                        "remove `y range`, or draw a dot plot or line for differences near the top"
+                            .into(),
+                });
+            }
+        }
+    }
+}

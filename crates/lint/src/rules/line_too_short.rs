@@ -1,0 +1,43 @@
+//! `line-too-short`: a line with only one or two points.
+
+use crescendo_diag::Severity;
+use crescendo_plan::{Chart, Role};
+
+use super::util::frames;
+use crate::{Doc, Finding, Input, Rule};
+
+pub static RULE: Rule = Rule {
+    name: "line-too-short",
+    severity: Severity::Advice,
+    summary: "a line chart with fewer than three points per line",
+    doc: Doc {
+        flags: "A line chart in which every visible line has fewer than three values.",
+        why: "A line of two points is a single slope: it hides what happened in between and\n\
+              invites reading a trend into two observations. Two values compare more honestly\n\
+              side by side (common practice).",
+        example: "line yearly: x year, y budget   # only 2023 and 2024",
+        instead: "Use bars for two or three periods, or add the periods in between.",
+    },
+    check,
+};
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    for (i, f, a) in frames(input) {
+        let Chart::Line(l) = &f.chart else { continue };
+        let lengths: Vec<usize> = l
+            .series
+            .iter()
+            .filter(|s| s.role != Role::Hidden)
+            .map(|s| s.points.iter().filter(|p| p.y.is_some()).count())
+            .collect();
+        if !lengths.is_empty() && lengths.iter().all(|&n| n < 3) {
+            out.push(Finding {
+                frame: Some(i),
+                span: a.chart.clone(),
+                label: "two points or fewer per line".into(),
+                message: "a line through two points shows a single slope, not a trend".into(),
+                fix: "draw bars for a comparison of two periods".into(),
+            });
+        }
+    }
+}

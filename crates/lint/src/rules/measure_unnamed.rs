@@ -1,0 +1,39 @@
+//! `measure-unnamed`: the measure's axis is titled only by a column name.
+
+use crescendo_diag::Severity;
+
+use super::util::frames;
+use crate::{Doc, Finding, Input, Rule};
+
+pub static RULE: Rule = Rule {
+    name: "measure-unnamed",
+    severity: Severity::Advice,
+    summary: "the measure's axis is titled only by its column name",
+    doc: Doc {
+        flags: "A chart sequence without `y title`, so its measure axis shows the column name\n\
+                (`riders` becomes \"Riders\").",
+        why: "Column names are written for the data, not the audience: they rarely say what\n\
+              was counted, over what period, or in what unit (\"Riders\" per day? per month?\n\
+              thousands?). The axis title is where that goes (common practice).",
+        example: "frame \"Ridership\" {\n  line monthly: x month, y riders\n}",
+        instead: "Add `y title \"Riders per month\"` (what, per what, in what unit).",
+    },
+    check,
+};
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    let mut seen_chart = Vec::new();
+    for (i, _, a) in frames(input) {
+        // once per sequence: the first frame of the chart
+        if a.y_title.is_none() && !seen_chart.contains(&a.chart) {
+            seen_chart.push(a.chart.clone());
+            out.push(Finding {
+                frame: Some(i),
+                span: a.chart.clone(),
+                label: "no `y title` for this chart".into(),
+                message: "the measure is titled only by its column name".into(),
+                fix: "add `y title \"...\"` saying what is measured, per what, in what unit".into(),
+            });
+        }
+    }
+}

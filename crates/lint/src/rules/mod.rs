@@ -1,0 +1,53 @@
+//! The rules, one per file.
+
+mod axes_shift;
+mod axis_untitled;
+mod bars_cramped_labels;
+mod bars_crowded;
+mod bars_off_zero;
+mod bars_unsorted;
+mod focus_confusable;
+mod frame_empty;
+mod headline_cut;
+mod line_over_categories;
+mod line_too_short;
+mod lines_tangle;
+mod marks_contrast;
+mod measure_unnamed;
+mod no_conclusion;
+mod small_counts;
+mod source_missing;
+mod spotlight_crowd;
+mod text_contrast;
+mod ticks_crowded;
+mod trailing_zeros;
+mod util;
+
+use crate::Rule;
+
+pub use focus_confusable::THRESHOLD as CONFUSABLE_THRESHOLD;
+
+/// Every rule, in the order `crescendo explain` lists them.
+pub static RULES: &[&Rule] = &[
+    &bars_off_zero::RULE,
+    &line_over_categories::RULE,
+    &bars_unsorted::RULE,
+    &bars_cramped_labels::RULE,
+    &bars_crowded::RULE,
+    &lines_tangle::RULE,
+    &line_too_short::RULE,
+    &axis_untitled::RULE,
+    &measure_unnamed::RULE,
+    &ticks_crowded::RULE,
+    &trailing_zeros::RULE,
+    &axes_shift::RULE,
+    &headline_cut::RULE,
+    &text_contrast::RULE,
+    &marks_contrast::RULE,
+    &focus_confusable::RULE,
+    &spotlight_crowd::RULE,
+    &frame_empty::RULE,
+    &small_counts::RULE,
+    &source_missing::RULE,
+    &no_conclusion::RULE,
+];

@@ -1,0 +1,66 @@
+//! `small-counts`: counts small enough to identify people.
+
+use crescendo_diag::Severity;
+use crescendo_plan::{Chart, Role};
+
+use super::util::frames;
+use crate::{Doc, Finding, Input, Rule};
+
+pub static RULE: Rule = Rule {
+    name: "small-counts",
+    severity: Severity::Warning,
+    summary: "a chart shows counts small enough to identify individuals",
+    doc: Doc {
+        flags: "A chart whose measure counts rows (`count` in its view) and shows a value\n\
+                greater than zero but below the threshold (5 unless `--small-counts N`).",
+        why: "In a published chart, a cell of 1, 2 or 3 people can identify them, especially\n\
+              next to other public facts. Official statistics suppress or merge cells below a\n\
+              small threshold, often 5 or 10 (common practice); follow your organisation's\n\
+              own disclosure rules, which may be stricter.",
+        example: "view cases = visits | by clinic: patients = count()\nframe \"Patients\" { bars cases: category clinic, value patients }",
+        instead: "Merge small categories (`top N ... rest`), widen the groups (a longer period, a\n\
+                  larger area), or show a rate instead of a count.",
+    },
+    check,
+};
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    let threshold = input.small_counts;
+    for (i, f, a) in frames(input) {
+        if !a.measure_is_count {
+            continue;
+        }
+        let small: Vec<String> = match &f.chart {
+            Chart::Bars(b) => b
+                .bars
+                .iter()
+                .filter(|b| b.role != Role::Hidden)
+                .filter(|b| b.value.is_some_and(|v| v > 0.0 && v < threshold))
+                .map(|b| format!("{} ({})", b.label, b.value_label))
+                .collect(),
+            Chart::Line(l) => l
+                .series
+                .iter()
+                .filter(|s| s.role != Role::Hidden)
+                .filter(|s| {
+                    s.points
+                        .iter()
+                        .any(|p| p.y.is_some_and(|v| v > 0.0 && v < threshold))
+                })
+                .map(|s| s.name.clone())
+                .collect(),
+        };
+        if !small.is_empty() {
+            out.push(Finding {
+                frame: Some(i),
+                span: a.chart.clone(),
+                label: format!("counts below {threshold}"),
+                message: format!(
+                    "counts below {threshold} could identify individuals: {}",
+                    small.join(", ")
+                ),
+                fix: "merge small groups (`top N ... rest`) or follow your disclosure rules".into(),
+            });
+        }
+    }
+}

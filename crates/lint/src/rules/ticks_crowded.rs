@@ -1,0 +1,53 @@
+//! `ticks-crowded`: tick labels too many or too long for their axis.
+
+use crescendo_diag::Severity;
+use crescendo_plan::Chart;
+use crescendo_render::{layout, metrics};
+
+use super::util::frames;
+use crate::{Doc, Finding, Input, Rule};
+
+pub static RULE: Rule = Rule {
+    name: "ticks-crowded",
+    severity: Severity::Warning,
+    summary: "an axis has more tick labels than fit side by side",
+    doc: Doc {
+        flags: "An x axis whose tick labels, laid side by side, are wider than the plot, so\n\
+                some would overlap and are dropped (crescendo never rotates them).",
+        why: "Overlapping or rotated tick labels are slow to read and easy to misread;\n\
+              silently dropped labels hide categories. Few ticks at nice values read best\n\
+              (common practice; Talbot, Lin & Hanrahan 2010 weigh legibility and density).",
+        example: "frame \"Every branch\" {\n  line by_branch: x branch, y loans\n}",
+        instead: "Use horizontal bars for many named categories, fewer categories (`top N`),\n\
+                  or shorter category names.",
+    },
+    check,
+};
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    // The room a plot has at most: the text column less a tick-label column.
+    let room = layout::text_column() * 0.8;
+    for (i, f, a) in frames(input) {
+        let Chart::Line(l) = &f.chart else { continue };
+        let gap = layout::LABEL_SIZE;
+        let width: f64 =
+            l.x.ticks
+                .iter()
+                .map(|t| metrics::text_width(&t.label, layout::LABEL_SIZE, false) + gap)
+                .sum();
+        if width > room {
+            out.push(Finding {
+                frame: Some(i),
+                span: a.chart.clone(),
+                label: format!("{} labels along x", l.x.ticks.len()),
+                message: format!(
+                    "{} x labels need about {:.0}px side by side, more than the plot's {:.0}px",
+                    l.x.ticks.len(),
+                    width,
+                    room
+                ),
+                fix: "use horizontal bars for many categories, or show fewer of them".into(),
+            });
+        }
+    }
+}

@@ -1,0 +1,66 @@
+//! `trailing-zeros`: figures printed with zeros that carry no information.
+
+use crescendo_diag::Severity;
+
+use super::util::{frames, quoting_span};
+use crate::{Doc, Finding, Input, Rule};
+
+pub static RULE: Rule = Rule {
+    name: "trailing-zeros",
+    severity: Severity::Advice,
+    summary: "a figure or tick label ends in zeros after the decimal point",
+    doc: Doc {
+        flags: "A quoted figure such as `{share:.1%}` printing \"20.0%\", or a tick label\n\
+                like \"2.50\".",
+        why: "Trailing zeros add ink and reading time without adding information: \"20%\" says\n\
+              what \"20.0%\" says. They also suggest a precision the number may not have\n\
+              (common practice: no trailing zeros unless a column of figures must line up).",
+        example: "takeaway \"Video is now {share:.1%} of follow-ups\"",
+        instead: "Drop the fixed decimals (`{share:%}`): crescendo prints no trailing zeros by\n\
+                  default.",
+    },
+    check,
+};
+
+/// "20.0", "2.50%", "1.0k": a decimal point followed by digits ending in 0.
+fn has_trailing_zero(figure: &str) -> bool {
+    let core = figure.trim_end_matches(['%', 'k', 'M', 'B', 'T']);
+    match core.split_once('.') {
+        Some((_, frac)) => frac.chars().all(|c| c.is_ascii_digit()) && frac.ends_with('0'),
+        None => false,
+    }
+}
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    for (i, f, a) in frames(input) {
+        for (name, figure) in &f.quoted {
+            if has_trailing_zero(figure) {
+                out.push(Finding {
+                    frame: Some(i),
+                    span: quoting_span(f, a, name),
+                    label: format!("`{name}` prints as {figure}"),
+                    message: format!("\"{figure}\" ends in a zero that says nothing"),
+                    fix: format!("quote it without fixed decimals, e.g. `{{{name}}}`"),
+                });
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn trailing_zero_figures() {
+        for (s, want) in [
+            ("20.0%", true),
+            ("2.50", true),
+            ("1.0k", true),
+            ("20%", false),
+            ("2.5", false),
+            ("100", false),
+            ("Jul 2024", false),
+        ] {
+            assert_eq!(super::has_trailing_zero(s), want, "{s}");
+        }
+    }
+}

@@ -1,0 +1,214 @@
+//! The clarity lint end to end: for every rule a story where it fires (its
+//! diagnostics snapshot-tested) and one where it stays quiet; the demo
+//! stories pass under every built-in theme; allowances, `--deny warnings`
+//! and `crescendo explain`.
+
+mod common;
+
+use std::fs;
+use std::path::Path;
+
+use common::{crescendo, root, scratch, stories};
+use crescendo_diag::{render, Diagnostic, Source};
+
+fn lint_story(path: &Path, theme: Option<&str>) -> Vec<Diagnostic> {
+    let text = fs::read_to_string(path).unwrap();
+    // stories outside the repository (scratch folders) go by file name, so
+    // snapshots do not depend on where the temporary folder is
+    let rel = path
+        .strip_prefix(root())
+        .unwrap_or_else(|_| Path::new(path.file_name().unwrap()));
+    let src = Source::file(rel.display().to_string(), text);
+    let mut planned =
+        match crescendo_plan::plan_story(&src, path.parent().unwrap(), &Default::default()) {
+            Ok(p) => p,
+            Err(d) => panic!("{}", render(&d, false)),
+        };
+    if let Some(t) = theme {
+        planned.plan.theme = t.to_string();
+    }
+    let theme = crescendo_render::theme::effective(&planned.plan).unwrap();
+    crescendo_lint::lint(
+        &crescendo_lint::Input {
+            src: &planned.source,
+            plan: &planned.plan,
+            anchors: &planned.anchors,
+            theme: &theme,
+            small_counts: 5.0,
+        },
+        &Default::default(),
+    )
+}
+
+#[test]
+fn every_rule_fires_on_its_story_and_not_on_its_counterpart() {
+    let dir = root().join("tests/lint");
+    for rule in crescendo_lint::RULES {
+        let case = dir.join(rule.name);
+        assert!(case.is_dir(), "tests/lint/{} is missing", rule.name);
+        let fired: Vec<Diagnostic> = lint_story(&case.join("fires.cresc"), None)
+            .into_iter()
+            .filter(|d| d.code == rule.name)
+            .collect();
+        assert!(
+            !fired.is_empty(),
+            "`{}` did not fire on fires.cresc",
+            rule.name
+        );
+        for d in &fired {
+            assert_eq!(d.severity, rule.severity, "{}", rule.name);
+            assert!(d.location().is_some(), "{}: located", rule.name);
+            assert!(d.help.is_some(), "{}: a suggested fix", rule.name);
+        }
+        insta::assert_snapshot!(format!("lint_{}", rule.name), render(&fired, false));
+        let quiet: Vec<Diagnostic> = lint_story(&case.join("passes.cresc"), None)
+            .into_iter()
+            .filter(|d| d.code == rule.name)
+            .collect();
+        assert!(
+            quiet.is_empty(),
+            "`{}` fired on passes.cresc:\n{}",
+            rule.name,
+            render(&quiet, false)
+        );
+    }
+    // and no stray case folders
+    for e in fs::read_dir(&dir).unwrap() {
+        let name = e.unwrap().file_name().to_string_lossy().into_owned();
+        assert!(
+            name == "data" || crescendo_lint::rule(&name).is_some(),
+            "tests/lint/{name} names no rule"
+        );
+    }
+}
+
+#[test]
+fn demo_stories_pass_the_lint_under_every_theme() {
+    for theme in crescendo_plan::THEMES {
+        for (name, path) in stories() {
+            let found = lint_story(&path, Some(theme));
+            assert!(
+                found.is_empty(),
+                "{name} under {theme}:\n{}",
+                render(&found, false)
+            );
+        }
+    }
+}
+
+const FIRES: &str = "story \"Lint\"\nsource \"Invented\"\nconclusion \"Act.\"\ndata t from \"teams.csv\"\n\
+frame \"Tickets\" {\n  bars t: category team, value tickets\n  y title \"Open tickets\"\n  spotlight \"A\", \"B\"\n  takeaway \"Act.\"\n}\n";
+
+fn scratch_story(name: &str, story: &str) -> std::path::PathBuf {
+    let dir = scratch(name);
+    fs::write(dir.join("teams.csv"), "team,tickets\nA,40\nB,30\nC,20\n").unwrap();
+    fs::write(dir.join("s.cresc"), story).unwrap();
+    dir
+}
+
+#[test]
+fn allowances_need_a_known_rule_and_a_reason() {
+    let spotlight = |d: &Vec<Diagnostic>| d.iter().filter(|d| d.code == "spotlight-crowd").count();
+    let dir = scratch_story("allow", FIRES);
+    assert_eq!(spotlight(&lint_story(&dir.join("s.cresc"), None)), 1);
+
+    // allowed for the frame, with a reason
+    let story = FIRES.replace(
+        "  takeaway",
+        "  allow spotlight-crowd \"A and B are the pair we compare\"\n  takeaway",
+    );
+    fs::write(dir.join("s.cresc"), &story).unwrap();
+    assert!(lint_story(&dir.join("s.cresc"), None).is_empty());
+
+    // allowed for the whole story
+    let story = format!("allow spotlight-crowd \"pairs throughout\"\n{FIRES}");
+    fs::write(dir.join("s.cresc"), &story).unwrap();
+    assert!(lint_story(&dir.join("s.cresc"), None).is_empty());
+
+    // an unknown rule, an empty reason, and an allowance that allows nothing
+    let story = format!(
+        "allow spotlight-crowed \"typo\"\nallow bars-off-zero \"not needed\"\n{}",
+        FIRES.replace("  takeaway", "  allow spotlight-crowd \" \"\n  takeaway")
+    );
+    fs::write(dir.join("s.cresc"), &story).unwrap();
+    let found = lint_story(&dir.join("s.cresc"), None);
+    let text = render(&found, false);
+    assert!(
+        text.contains("there is no lint rule named `spotlight-crowed`"),
+        "{text}"
+    );
+    assert!(text.contains("did you mean `spotlight-crowd`?"), "{text}");
+    assert!(
+        text.contains("allowing `spotlight-crowd` needs a reason"),
+        "{text}"
+    );
+    assert!(
+        text.contains("`bars-off-zero` finds nothing to allow"),
+        "{text}"
+    );
+    insta::assert_snapshot!("lint_allowances", text);
+}
+
+#[test]
+fn deny_warnings_stops_the_build() {
+    let story = FIRES
+        .replace("  spotlight \"A\", \"B\"\n", "")
+        .replace("source \"Invented\"\n", "");
+    let dir = scratch_story("deny", &story);
+    let ok = crescendo(&dir, &["build", "s.cresc"]);
+    let err = String::from_utf8_lossy(&ok.stderr);
+    assert!(ok.status.success(), "{err}");
+    assert!(err.contains("warning[source-missing]"), "{err}");
+    let denied = crescendo(
+        &dir,
+        &["build", "s.cresc", "--out", "strict", "--deny", "warnings"],
+    );
+    let err = String::from_utf8_lossy(&denied.stderr);
+    assert_eq!(denied.status.code(), Some(1), "{err}");
+    assert!(err.contains("error[source-missing]"), "{err}");
+    assert!(!dir.join("strict").exists(), "nothing written");
+    let check = crescendo(
+        &dir,
+        &["check", "s.cresc", "--deny", "warnings", "--format", "json"],
+    );
+    assert_eq!(check.status.code(), Some(1));
+    let report: serde_json::Value = serde_json::from_slice(&check.stdout).unwrap();
+    assert_eq!(report["diagnostics"][0]["code"], "source-missing");
+}
+
+#[test]
+fn lint_errors_stop_the_build() {
+    let story = FIRES.replace(
+        "  y title \"Open tickets\"\n",
+        "  y title \"Open tickets\"\n  y range 10 to 50\n",
+    );
+    let dir = scratch_story("lint-error", &story);
+    let run = crescendo(&dir, &["build", "s.cresc"]);
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert_eq!(run.status.code(), Some(1), "{err}");
+    assert!(err.contains("error[bars-off-zero]"), "{err}");
+    assert!(err.contains("s.cresc:8:3"), "{err}");
+    assert!(err.contains("in frame 1 \"Tickets\""), "{err}");
+    assert!(!dir.join("deck").exists());
+}
+
+#[test]
+fn explain_prints_each_rule_and_lists_them_all() {
+    let dir = root();
+    for rule in crescendo_lint::RULES {
+        let out = crescendo(&dir, &["explain", rule.name]);
+        assert!(out.status.success());
+        assert_eq!(
+            String::from_utf8_lossy(&out.stdout),
+            crescendo_lint::explain(rule.name).unwrap()
+        );
+    }
+    let all = crescendo(&dir, &["explain"]);
+    assert_eq!(
+        String::from_utf8_lossy(&all.stdout).lines().count(),
+        crescendo_lint::RULES.len()
+    );
+    let bad = crescendo(&dir, &["explain", "bars-of-zero"]);
+    assert_eq!(bad.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&bad.stderr).contains("did you mean `bars-off-zero`?"));
+}
