@@ -32,16 +32,24 @@ pub enum Item {
     Title(TextItem),
     Byline(TextItem),
     Source(TextItem),
-    Theme { name: Ident, span: Span },
+    Theme {
+        name: Ident,
+        span: Span,
+    },
     Data(DataDecl),
     View(ViewDecl),
     Compare(CompareDecl),
-    Focus { names: Vec<Str>, span: Span },
+    Focus {
+        names: Vec<Str>,
+        span: Span,
+    },
     Conclusion(TextItem),
     Value(ValueDecl),
     Claim(ClaimDecl),
     Allow(AllowDecl),
     Accent(TextItem),
+    /// `style "house.toml"`
+    Style(TextItem),
     Frame(FrameDecl),
 }
 
@@ -65,7 +73,7 @@ impl Item {
             Item::Frame(f) => &f.span,
             Item::Value(v) => &v.span,
             Item::Allow(a) => &a.span,
-            Item::Accent(t) => &t.span,
+            Item::Accent(t) | Item::Style(t) => &t.span,
             Item::Claim(c) => &c.span,
         }
     }

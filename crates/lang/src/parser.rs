@@ -31,6 +31,7 @@ pub const TOP_KEYWORDS: &[&str] = &[
     "claim",
     "allow",
     "accent",
+    "style",
     "frame",
 ];
 
@@ -404,6 +405,7 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
         Rule::source_item => Item::Source(text_item(&mut inner, span)),
         Rule::conclusion_item => Item::Conclusion(text_item(&mut inner, span)),
         Rule::accent_item => Item::Accent(text_item(&mut inner, span)),
+        Rule::style_item => Item::Style(text_item(&mut inner, span)),
         Rule::allow_item => Item::Allow(allow_decl(inner, span, base)?),
         Rule::theme_item => Item::Theme {
             name: ident(inner.remove(1), base),

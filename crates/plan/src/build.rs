@@ -119,6 +119,7 @@ struct Header {
     compare: Option<ast::CompareDecl>,
     focus: Option<Vec<Str>>,
     accent: Option<String>,
+    style: Option<Str>,
 }
 
 /// `#RRGGBB`.
@@ -473,6 +474,10 @@ impl<'a> Planner<'a> {
                     self.value(v, &later_values);
                 }
                 Item::Claim(c) => claims.push(c),
+                Item::Style(t) => {
+                    let text = t.text.clone();
+                    self.set_once(&mut h.style, text, &t.span, "house style (`style`)")
+                }
                 Item::Allow(a) => anchors.allows.push(Allowance {
                     rule: a.rule.name.clone(),
                     rule_span: a.rule.span.clone(),
@@ -645,6 +650,10 @@ impl<'a> Planner<'a> {
             theme,
             conclusion: conclusion.map(|c| c.text),
             accent: h.accent.clone(),
+            style: h
+                .style
+                .as_ref()
+                .and_then(|s| crate::style::load(self.src, self.dir, s, self.diags)),
             values: self
                 .values
                 .by_name

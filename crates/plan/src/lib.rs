@@ -8,6 +8,7 @@ mod build;
 pub mod model;
 mod resolve;
 pub mod scale;
+pub mod style;
 pub mod values;
 
 pub use build::{plan_story, slug, Options, PlanResult, Planned};

@@ -23,6 +23,9 @@ pub struct DeckPlan {
     /// `#RRGGBB` replacing the theme's accent (the story's house colour).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub accent: Option<String>,
+    /// The house style named by `style "file.toml"`, validated.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub style: Option<crate::style::HouseStyle>,
     /// Every named value, formatted plainly (name → figure).
     #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
     pub values: BTreeMap<String, String>,

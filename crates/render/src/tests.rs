@@ -96,6 +96,7 @@ fn deck(frames: Vec<FramePlan>) -> DeckPlan {
         theme: "clear".to_string(),
         conclusion: None,
         accent: None,
+        style: None,
         values: Default::default(),
         claims: Vec::new(),
         frames,
