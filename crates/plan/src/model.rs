@@ -6,8 +6,9 @@ use std::collections::BTreeMap;
 
 use serde::{Deserialize, Serialize};
 
-/// Built-in theme names the renderer must support.
-pub const THEMES: &[&str] = &["clear"];
+/// Built-in theme names the renderer must support: `clear` (light, the
+/// default), `evening` (dark, for projection in dark rooms) and `print`.
+pub const THEMES: &[&str] = &["clear", "evening", "print"];
 
 /// The whole deck, in frame order.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -84,6 +85,17 @@ pub struct FramePlan {
 pub enum Chart {
     Line(LineChart),
     Bars(BarChart),
+    /// Stacked or grouped bars: several parts per category.
+    Parts(PartsChart),
+    /// A dot plot: dots on one common scale, one row per category.
+    Dots(DotChart),
+    Scatter(ScatterChart),
+    /// One or two large figures with captions.
+    Figures(FigureChart),
+    Table(TableChart),
+    Pie(PieChart),
+    /// Small multiples: one panel per value of a key.
+    Panels(PanelChart),
 }
 
 /// Emphasis role of a series or bar; the theme maps it to colour and weight.
@@ -137,6 +149,191 @@ pub struct LineChart {
     pub y: Axis,
     /// In a stable order (first appearance in the view).
     pub series: Vec<Series>,
+    /// Callouts, bands and reference lines, in story order.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub annotations: Vec<Annotation>,
+    /// `label ends`: value labels at the first and last point of every
+    /// focus series (and of every visible series when nothing is in focus).
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub end_labels: bool,
+}
+
+/// A note drawn on a chart, in data coordinates.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "kind", rename_all = "snake_case")]
+pub enum Annotation {
+    /// A short text at a data point with a leader line to it.
+    Callout { x: f64, y: f64, text: String },
+    /// A light shaded band over an x range, with an optional label at its top.
+    Band {
+        from: f64,
+        to: f64,
+        text: Option<String>,
+    },
+    /// A line across the plot at a value of the measure, with its label.
+    Reference { value: f64, text: String },
+}
+
+/// Stacked parts share one bar; grouped parts stand side by side.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum PartsMode {
+    Stacked,
+    Grouped,
+}
+
+/// Bars split into parts (segments of one bar, or bars side by side).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct PartsChart {
+    pub mode: PartsMode,
+    pub orientation: Orientation,
+    pub category_title: Option<String>,
+    /// Starts at zero; for stacked bars it spans the largest total.
+    pub value: Axis,
+    /// The parts in stacking order (first = on the baseline), with roles.
+    pub parts: Vec<Part>,
+    /// Categories in display order; `values[i]` belongs to `parts[i]`.
+    pub categories: Vec<PartCategory>,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Part {
+    pub name: String,
+    pub role: Role,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct PartCategory {
+    pub label: String,
+    pub values: Vec<Option<f64>>,
+    /// Formatted total (stacked) for a label at the end of the bar.
+    pub total_label: String,
+    pub role: Role,
+}
+
+/// A dot plot: categories down the side, dots along one value axis.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct DotChart {
+    pub category_title: Option<String>,
+    pub value: Axis,
+    /// The series of dots (one when the view has no series column).
+    pub series: Vec<Part>,
+    /// Rows in display order; `values[i]` belongs to `series[i]`.
+    pub rows: Vec<DotRow>,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct DotRow {
+    pub label: String,
+    pub values: Vec<Option<f64>>,
+    pub role: Role,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct ScatterChart {
+    pub x: Axis,
+    pub y: Axis,
+    pub points: Vec<ScatterPoint>,
+    /// The least-squares line `y = intercept + slope * x`, drawn over the
+    /// x domain of the points, when asked for with `fit`.
+    pub fit: Option<Fit>,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct ScatterPoint {
+    pub x: f64,
+    pub y: f64,
+    /// Direct label (drawn for focus points).
+    pub label: String,
+    pub role: Role,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Fit {
+    pub slope: f64,
+    pub intercept: f64,
+    /// Pearson correlation of the points, for the fit's label.
+    pub r: Option<f64>,
+}
+
+/// One or two figures as large text: when a single number is the message.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct FigureChart {
+    pub figures: Vec<Figure>,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Figure {
+    /// The figure as printed (quoted values resolved), e.g. "2.3×".
+    pub text: String,
+    pub caption: String,
+    pub role: Role,
+}
+
+/// A table for looking up values.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct TableChart {
+    pub columns: Vec<TableColumn>,
+    pub rows: Vec<TableRow>,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct TableColumn {
+    pub title: String,
+    /// Numbers are right-aligned.
+    pub numeric: bool,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct TableRow {
+    /// Formatted cells, one per column.
+    pub cells: Vec<String>,
+    pub role: Role,
+    /// The cell (column index) in focus, for a spotlight on one cell.
+    pub focus_cell: Option<usize>,
+    /// Light shading that groups rows (alternate groups of rows).
+    pub shaded: bool,
+}
+
+/// A pie: allowed, but linted (angles and areas compare poorly).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct PieChart {
+    /// Slices clockwise from twelve o'clock, largest first.
+    pub slices: Vec<Slice>,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Slice {
+    pub label: String,
+    pub value: f64,
+    /// Fraction of the total.
+    pub share: f64,
+    /// The share formatted as a percentage.
+    pub share_label: String,
+    pub role: Role,
+}
+
+/// Small multiples: the same chart once per value of a key.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct PanelChart {
+    /// The key the panels split by.
+    pub key: String,
+    /// One common scale in every panel (same units per pixel, ticks lined
+    /// up). `false` only with `free`, which the lint flags.
+    pub common_scale: bool,
+    /// `trim`: each panel cut to its own extent, keeping the same units per
+    /// pixel (panel heights then differ).
+    pub trimmed: bool,
+    /// Panels in display order (left to right, then down).
+    pub panels: Vec<Panel>,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Panel {
+    pub title: String,
+    pub role: Role,
+    /// A line or bar chart; its axes carry the panel's (common) scale.
+    pub chart: Chart,
 }
 
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]

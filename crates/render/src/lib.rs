@@ -64,6 +64,7 @@ pub fn render_frame(deck: &DeckPlan, frame: &FramePlan) -> Result<String, Render
         match &frame.chart {
             Chart::Line(chart) => line::draw(&canvas, theme, chart, region)?,
             Chart::Bars(chart) => bars::draw(&canvas, theme, chart, region)?,
+            _ => return Err(RenderError::new("this chart form cannot be drawn yet")),
         }
         canvas.finish()?;
     }

@@ -1,8 +1,13 @@
 //! Themes: the palette and stroke weights that map semantic roles to ink.
 //!
-//! A theme never decides geometry; it only says which colour and weight each
-//! role gets. Only `clear` exists for now; more can be added to [`THEMES`]
-//! without touching the layout code.
+//! A theme says which colour and weight each role gets, which type sizes and
+//! margins the page uses and which font stack the SVG names. Three themes are
+//! built in ([`THEMES`]): `clear` (light, the default), `evening` (dark, for
+//! projection in dark rooms) and `print` (for paper). A story's house style
+//! (`style "house.toml"`) and its `accent` are applied over the theme by
+//! [`effective`].
+
+use std::borrow::Cow;
 
 use crate::RenderError;
 
@@ -43,9 +48,12 @@ impl Rgb {
 pub struct Theme {
     /// Name as written in the story (`theme clear`).
     pub name: &'static str,
-    /// Page colour the contrast checks assume; never painted (the SVG has no
-    /// background fill).
+    /// Page colour the contrast checks assume. Painted only when
+    /// [`Theme::background`] says so.
     pub page: Rgb,
+    /// A full-canvas background painted under everything, or `None` for a
+    /// transparent page (the light theme: the SVG has no background fill).
+    pub background: Option<Rgb>,
     /// Headline text.
     pub headline: Rgb,
     /// Takeaway text.
@@ -67,6 +75,35 @@ pub struct Theme {
     pub focus_stroke: u32,
     /// Stroke width of baselines, in px.
     pub baseline_stroke: u32,
+    /// The font stack written into the SVG (`font-family`). Text is always
+    /// measured with the bundled DejaVu Sans.
+    pub font_family: Cow<'static, str>,
+    /// Headline size in px (bold).
+    pub headline_size: f64,
+    /// Takeaway size in px.
+    pub takeaway_size: f64,
+    /// Tick labels, axis titles, category and direct labels, in px.
+    pub label_size: f64,
+    /// Source note size in px.
+    pub source_size: f64,
+    /// Left and right page margin, in px.
+    pub margin_x: f64,
+    /// Top page margin, in px.
+    pub margin_top: f64,
+    /// Bottom page margin, in px.
+    pub margin_bottom: f64,
+}
+
+impl Theme {
+    /// Width available to full-width text.
+    pub fn text_column(&self) -> f64 {
+        f64::from(crate::canvas::WIDTH) - 2.0 * self.margin_x
+    }
+
+    /// Vertical distance between two rows of labels.
+    pub fn label_step(&self) -> f64 {
+        crate::metrics::line_height(self.label_size) + 2.0
+    }
 }
 
 /// The `clear` theme: transparent page, near-black text, grey context and a
@@ -74,6 +111,7 @@ pub struct Theme {
 pub const CLEAR: Theme = Theme {
     name: "clear",
     page: Rgb(0xFF, 0xFF, 0xFF),
+    background: None,
     headline: Rgb(0x1F, 0x1F, 0x1F),
     takeaway: Rgb(0x3D, 0x3D, 0x3D),
     muted: Rgb(0x5A, 0x5A, 0x5A),
@@ -84,10 +122,74 @@ pub const CLEAR: Theme = Theme {
     context_stroke: 2,
     focus_stroke: 4,
     baseline_stroke: 1,
+    font_family: Cow::Borrowed(crate::canvas::FONT_FAMILY),
+    headline_size: crate::layout::HEADLINE_SIZE,
+    takeaway_size: crate::layout::TAKEAWAY_SIZE,
+    label_size: crate::layout::LABEL_SIZE,
+    source_size: crate::layout::SOURCE_SIZE,
+    margin_x: crate::layout::MARGIN_X,
+    margin_top: crate::layout::MARGIN_TOP,
+    margin_bottom: crate::layout::MARGIN_BOTTOM,
+};
+
+/// The `evening` theme, for projection in a dark room: a near-black blue-grey
+/// page (painted), light text, mid-grey context and an amber accent
+/// (#F0A04B, 8.2:1 on the page). Light text on a dark page glares less in a
+/// darkened room (common practice for projection).
+pub const EVENING: Theme = Theme {
+    name: "evening",
+    page: Rgb(0x17, 0x1A, 0x1F),
+    background: Some(Rgb(0x17, 0x1A, 0x1F)),
+    headline: Rgb(0xF2, 0xF2, 0xF2),
+    takeaway: Rgb(0xD9, 0xD9, 0xD9),
+    muted: Rgb(0xB0, 0xB0, 0xB0),
+    context: Rgb(0x78, 0x78, 0x78),
+    context_text: Rgb(0x9E, 0x9E, 0x9E),
+    baseline: Rgb(0x4A, 0x4D, 0x52),
+    accent: Rgb(0xF0, 0xA0, 0x4B),
+    context_stroke: 2,
+    focus_stroke: 4,
+    baseline_stroke: 1,
+    font_family: Cow::Borrowed(crate::canvas::FONT_FAMILY),
+    headline_size: crate::layout::HEADLINE_SIZE,
+    takeaway_size: crate::layout::TAKEAWAY_SIZE,
+    label_size: crate::layout::LABEL_SIZE,
+    source_size: crate::layout::SOURCE_SIZE,
+    margin_x: crate::layout::MARGIN_X,
+    margin_top: crate::layout::MARGIN_TOP,
+    margin_bottom: crate::layout::MARGIN_BOTTOM,
+};
+
+/// The `print` theme, for paper: black text, greys dark enough to survive
+/// toner and a deep blue accent (#1B4F8A) that stays darker than the grey
+/// when printed in black and white; context lines are a little heavier
+/// because printers lighten thin lines (common practice).
+pub const PRINT: Theme = Theme {
+    name: "print",
+    page: Rgb(0xFF, 0xFF, 0xFF),
+    background: None,
+    headline: Rgb(0x00, 0x00, 0x00),
+    takeaway: Rgb(0x26, 0x26, 0x26),
+    muted: Rgb(0x4A, 0x4A, 0x4A),
+    context: Rgb(0x8A, 0x8A, 0x8A),
+    context_text: Rgb(0x66, 0x66, 0x66),
+    baseline: Rgb(0x9A, 0x9A, 0x9A),
+    accent: Rgb(0x1B, 0x4F, 0x8A),
+    context_stroke: 3,
+    focus_stroke: 5,
+    baseline_stroke: 1,
+    font_family: Cow::Borrowed(crate::canvas::FONT_FAMILY),
+    headline_size: crate::layout::HEADLINE_SIZE,
+    takeaway_size: crate::layout::TAKEAWAY_SIZE,
+    label_size: crate::layout::LABEL_SIZE,
+    source_size: crate::layout::SOURCE_SIZE,
+    margin_x: crate::layout::MARGIN_X,
+    margin_top: crate::layout::MARGIN_TOP,
+    margin_bottom: crate::layout::MARGIN_BOTTOM,
 };
 
 /// Every built-in theme, in the order of `crescendo_plan::THEMES`.
-pub const THEMES: &[&Theme] = &[&CLEAR];
+pub const THEMES: &[&Theme] = &[&CLEAR, &EVENING, &PRINT];
 
 /// The theme a deck is drawn with: its named theme, with the story's
 /// accent colour (`accent "#RRGGBB"`) in place of the theme's own.

@@ -24,10 +24,16 @@ pub static RULE: Rule = Rule {
     check,
 };
 
-fn value_axis(chart: &Chart) -> &Axis {
+/// The measure's axis of a chart, if it has one.
+fn value_axis(chart: &Chart) -> Option<&Axis> {
     match chart {
-        Chart::Line(l) => &l.y,
-        Chart::Bars(b) => &b.value,
+        Chart::Line(l) => Some(&l.y),
+        Chart::Bars(b) => Some(&b.value),
+        Chart::Parts(p) => Some(&p.value),
+        Chart::Dots(d) => Some(&d.value),
+        Chart::Scatter(s) => Some(&s.y),
+        Chart::Panels(p) => p.panels.first().and_then(|x| value_axis(&x.chart)),
+        Chart::Figures(_) | Chart::Table(_) | Chart::Pie(_) => None,
     }
 }
 
@@ -38,7 +44,9 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
         if prev.sequence != f.sequence {
             continue;
         }
-        let (pa, na) = (value_axis(&prev.chart), value_axis(&f.chart));
+        let (Some(pa), Some(na)) = (value_axis(&prev.chart), value_axis(&f.chart)) else {
+            continue;
+        };
         if pa.domain != na.domain {
             out.push(Finding {
                 frame: Some(i),

@@ -49,6 +49,53 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
                 })
                 .map(|s| s.name.clone())
                 .collect(),
+            Chart::Parts(p) => p
+                .categories
+                .iter()
+                .filter(|c| c.role != Role::Hidden)
+                .filter(|c| {
+                    c.values
+                        .iter()
+                        .any(|v| v.is_some_and(|v| v > 0.0 && v < threshold))
+                })
+                .map(|c| c.label.clone())
+                .collect(),
+            Chart::Dots(d) => d
+                .rows
+                .iter()
+                .filter(|r| r.role != Role::Hidden)
+                .filter(|r| {
+                    r.values
+                        .iter()
+                        .any(|v| v.is_some_and(|v| v > 0.0 && v < threshold))
+                })
+                .map(|r| r.label.clone())
+                .collect(),
+            Chart::Pie(p) => p
+                .slices
+                .iter()
+                .filter(|s| s.role != Role::Hidden && s.value > 0.0 && s.value < threshold)
+                .map(|s| s.label.clone())
+                .collect(),
+            Chart::Panels(p) => p
+                .panels
+                .iter()
+                .filter(|x| x.role != Role::Hidden)
+                .filter(|x| match &x.chart {
+                    Chart::Line(l) => l.series.iter().any(|s| {
+                        s.points
+                            .iter()
+                            .any(|p| p.y.is_some_and(|v| v > 0.0 && v < threshold))
+                    }),
+                    Chart::Bars(b) => b
+                        .bars
+                        .iter()
+                        .any(|b| b.value.is_some_and(|v| v > 0.0 && v < threshold)),
+                    _ => false,
+                })
+                .map(|x| x.title.clone())
+                .collect(),
+            Chart::Scatter(_) | Chart::Figures(_) | Chart::Table(_) => Vec::new(),
         };
         if !small.is_empty() {
             out.push(Finding {

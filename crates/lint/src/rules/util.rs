@@ -19,30 +19,69 @@ pub fn frames<'a>(
         .map(|(i, (f, a))| (i, f, a))
 }
 
-/// Visible (not hidden) series or bars of a frame.
-pub fn visible(frame: &FramePlan) -> usize {
-    match &frame.chart {
-        Chart::Line(l) => l.series.iter().filter(|s| s.role != Role::Hidden).count(),
-        Chart::Bars(b) => b.bars.iter().filter(|b| b.role != Role::Hidden).count(),
+/// The named things of a frame's chart with their roles: series, bars,
+/// parts, rows, points, slices or panels.
+pub fn roles(chart: &Chart) -> Vec<(&str, Role)> {
+    match chart {
+        Chart::Line(l) => l.series.iter().map(|s| (s.name.as_str(), s.role)).collect(),
+        Chart::Bars(b) => b.bars.iter().map(|b| (b.label.as_str(), b.role)).collect(),
+        Chart::Parts(p) => p.parts.iter().map(|s| (s.name.as_str(), s.role)).collect(),
+        Chart::Dots(d) if d.series.len() > 1 => {
+            d.series.iter().map(|s| (s.name.as_str(), s.role)).collect()
+        }
+        Chart::Dots(d) => d.rows.iter().map(|r| (r.label.as_str(), r.role)).collect(),
+        Chart::Scatter(s) => s
+            .points
+            .iter()
+            .map(|p| (p.label.as_str(), p.role))
+            .collect(),
+        Chart::Figures(f) => f
+            .figures
+            .iter()
+            .map(|x| (x.caption.as_str(), x.role))
+            .collect(),
+        Chart::Table(t) => t
+            .rows
+            .iter()
+            .map(|r| (r.cells.first().map_or("", String::as_str), r.role))
+            .collect(),
+        Chart::Pie(p) => p
+            .slices
+            .iter()
+            .map(|s| (s.label.as_str(), s.role))
+            .collect(),
+        Chart::Panels(p) => p
+            .panels
+            .iter()
+            .map(|x| (x.title.as_str(), x.role))
+            .collect(),
     }
 }
 
-/// Focus series or bars of a frame.
+/// Visible (not hidden) series, bars, parts, rows, slices or panels.
+pub fn visible(frame: &FramePlan) -> usize {
+    roles(&frame.chart)
+        .iter()
+        .filter(|(_, r)| *r != Role::Hidden)
+        .count()
+}
+
+/// The things in focus in a frame.
 pub fn focused(frame: &FramePlan) -> Vec<&str> {
-    match &frame.chart {
-        Chart::Line(l) => l
-            .series
-            .iter()
-            .filter(|s| s.role == Role::Focus)
-            .map(|s| s.name.as_str())
-            .collect(),
-        Chart::Bars(b) => b
-            .bars
-            .iter()
-            .filter(|b| b.role == Role::Focus)
-            .map(|b| b.label.as_str())
-            .collect(),
+    let mut out: Vec<&str> = roles(&frame.chart)
+        .into_iter()
+        .filter(|(_, r)| *r == Role::Focus)
+        .map(|(n, _)| n)
+        .collect();
+    if let Chart::Table(t) = &frame.chart {
+        out.extend(
+            t.rows
+                .iter()
+                .filter(|r| r.focus_cell.is_some() && r.role != Role::Focus)
+                .map(|r| r.cells.first().map_or("", String::as_str)),
+        );
     }
+    out
 }
 
 /// The story-wide place for a finding about the deck's look: the accent
