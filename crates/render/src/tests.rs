@@ -106,6 +106,8 @@ fn deck(frames: Vec<FramePlan>) -> DeckPlan {
 fn line_chart() -> Chart {
     let f = |v: f64| Some(v);
     Chart::Line(LineChart {
+        annotations: Vec::new(),
+        end_labels: false,
         x: year_axis(),
         y: pct_axis(),
         series: vec![
@@ -471,6 +473,8 @@ fn many_series_with_close_ends_do_not_collide() {
         })
         .collect();
     let chart = Chart::Line(LineChart {
+        annotations: Vec::new(),
+        end_labels: false,
         x: year_axis(),
         y: pct_axis(),
         series,
@@ -490,6 +494,8 @@ fn many_series_with_close_ends_do_not_collide() {
 fn labels_at_the_extremes_stay_in_the_plot() {
     let f = |v: f64| Some(v);
     let chart = Chart::Line(LineChart {
+        annotations: Vec::new(),
+        end_labels: false,
         x: year_axis(),
         y: pct_axis(),
         series: vec![
@@ -622,6 +628,8 @@ fn positive_domain_still_starts_at_zero() {
 #[test]
 fn bare_frames_render() {
     let empty_line = Chart::Line(LineChart {
+        annotations: Vec::new(),
+        end_labels: false,
         x: axis(None, ScaleKind::Linear, [0.0, 1.0], &[]),
         y: axis(None, ScaleKind::Linear, [0.0, 0.0], &[]),
         series: vec![],
