@@ -23,12 +23,46 @@ fn hex(bytes: &[u8]) -> String {
     bytes.iter().map(|b| format!("{b:02x}")).collect()
 }
 
+/// What a build writes besides `deck.json`.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Exports {
+    /// `01-<slug>.svg`, … (one per frame).
+    pub svg: bool,
+    /// `index.html`, the self-contained deck.
+    pub html: bool,
+    /// `deck.pdf`, one page per frame.
+    pub pdf: bool,
+    /// `01-<slug>.png`, … (one per frame).
+    pub png: bool,
+    /// PNG pixels per SVG px (1280·scale × 720·scale).
+    pub scale: u32,
+}
+
+impl Default for Exports {
+    /// SVG frames and the HTML deck.
+    fn default() -> Self {
+        Self {
+            svg: true,
+            html: true,
+            pdf: false,
+            png: false,
+            scale: 2,
+        }
+    }
+}
+
+/// File name of the PDF export.
+pub const PDF: &str = "deck.pdf";
+
 /// All files of a deck, in memory: (file name, contents).
-pub fn render_files(plan: &DeckPlan) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
+pub fn render_files(
+    plan: &DeckPlan,
+    exports: &Exports,
+) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
     let mut files = Vec::new();
     let mut svgs = Vec::new();
     for f in &plan.frames {
-        let svg = crescendo_render::render_frame(plan, f).map_err(|e| {
+        let svg = crate::incremental::render_frame(plan, f).map_err(|e| {
             Diagnostic::error(
                 "render",
                 format!("cannot draw frame {} (\"{}\"): {e}", f.number, f.headline),
@@ -36,12 +70,19 @@ pub fn render_files(plan: &DeckPlan) -> Result<Vec<(String, Vec<u8>)>, Diagnosti
         })?;
         svgs.push(svg);
     }
+    let export_err = |what: &str, e: String| {
+        Diagnostic::error("export", format!("cannot write the {what}: {e}"))
+    };
+    let page = crescendo_render::theme::effective(plan)
+        .map_err(|e| export_err("deck", e.message))?
+        .page;
     let mut entries = Vec::new();
     for (f, svg) in plan.frames.iter().zip(&svgs) {
         let name = frame_file(f.number, &f.slug, plan.frames.len());
-        entries.push(json!({
+        let png_name = name.trim_end_matches(".svg").to_string() + ".png";
+        let mut entry = json!({
             "number": f.number,
-            "file": name,
+            "file": exports.svg.then_some(&name),
             "headline": f.headline,
             "takeaway": f.takeaway,
             "notes": f.notes,
@@ -50,16 +91,26 @@ pub fn render_files(plan: &DeckPlan) -> Result<Vec<(String, Vec<u8>)>, Diagnosti
             "templates": f.templates,
             "notices": f.notices,
             "sha256": hex(&Sha256::digest(svg.as_bytes())),
-        }));
-        files.push((name, svg.clone().into_bytes()));
+        });
+        if exports.png {
+            entry["png"] = json!(png_name);
+        }
+        entries.push(entry);
+        if exports.svg {
+            files.push((name, svg.clone().into_bytes()));
+        }
+        if exports.png {
+            let bytes = crate::export::png(svg, exports.scale, page)
+                .map_err(|e| export_err(&format!("PNG of frame {}", f.number), e))?;
+            files.push((png_name, bytes));
+        }
     }
-    let pairs: Vec<(&crescendo_plan::FramePlan, &str)> = plan
-        .frames
-        .iter()
-        .zip(svgs.iter().map(String::as_str))
-        .collect();
-    let html = crescendo_render::render_deck_html(plan, &pairs);
-    let manifest = json!({
+    if exports.pdf {
+        let pages: Vec<&str> = svgs.iter().map(String::as_str).collect();
+        let bytes = crate::export::pdf(&plan.title, &pages).map_err(|e| export_err("PDF", e))?;
+        files.push((PDF.to_string(), bytes));
+    }
+    let mut manifest = json!({
         "title": plan.title,
         "byline": plan.byline,
         "source": plan.source,
@@ -68,12 +119,23 @@ pub fn render_files(plan: &DeckPlan) -> Result<Vec<(String, Vec<u8>)>, Diagnosti
         "values": plan.values,
         "claims": plan.claims,
         "frames": entries,
-        "html": "index.html",
+        "html": exports.html.then_some("index.html"),
     });
+    if exports.pdf {
+        manifest["pdf"] = json!(PDF);
+    }
     let mut manifest = serde_json::to_string_pretty(&manifest)
         .map_err(|e| Diagnostic::error("output", format!("cannot write the manifest: {e}")))?;
     manifest.push('\n');
-    files.push(("index.html".to_string(), html.into_bytes()));
+    if exports.html {
+        let pairs: Vec<(&crescendo_plan::FramePlan, &str)> = plan
+            .frames
+            .iter()
+            .zip(svgs.iter().map(String::as_str))
+            .collect();
+        let html = crescendo_render::render_deck_html(plan, &pairs);
+        files.push(("index.html".to_string(), html.into_bytes()));
+    }
     files.push((MANIFEST.to_string(), manifest.into_bytes()));
     Ok(files)
 }
@@ -84,8 +146,8 @@ fn io_err(what: &str, path: &Path, e: std::io::Error) -> Diagnostic {
 
 /// Render and write the deck into `out`, replacing a previous deck only
 /// when everything succeeded. Returns the number of frames.
-pub fn build(plan: &DeckPlan, out: &Path) -> Result<usize, Diagnostic> {
-    let files = render_files(plan)?;
+pub fn build(plan: &DeckPlan, out: &Path, exports: &Exports) -> Result<usize, Diagnostic> {
+    let files = render_files(plan, exports)?;
     write_atomically(out, &files)?;
     Ok(plan.frames.len())
 }

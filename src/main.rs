@@ -16,6 +16,10 @@ use crescendo_plan::{Options, Planned};
 
 mod deck;
 mod diff;
+mod export;
+mod incremental;
+mod progress;
+mod watch;
 
 /// Print a line to standard output; a closed pipe (`crescendo check | head`)
 /// ends the program quietly instead of panicking.
@@ -60,6 +64,19 @@ struct Cli {
 enum Format {
     Human,
     Json,
+}
+
+/// A kind of file `build` writes.
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum Export {
+    /// Numbered SVG frames.
+    Svg,
+    /// The self-contained HTML deck (index.html).
+    Html,
+    /// deck.pdf, one page per frame, vector with real text.
+    Pdf,
+    /// Numbered PNG frames (see --scale).
+    Png,
 }
 
 #[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -110,6 +127,47 @@ enum Command {
         /// depends on a failed claim.
         #[arg(long)]
         draft: bool,
+        /// Compute every view and draw every frame, without reading or
+        /// writing the cache beside the deck.
+        #[arg(long)]
+        no_cache: bool,
+        /// What to write, comma-separated: svg, html, pdf, png
+        /// (deck.json is always written).
+        #[arg(
+            long,
+            value_enum,
+            value_delimiter = ',',
+            default_value = "svg,html",
+            value_name = "FORMATS"
+        )]
+        format: Vec<Export>,
+        /// PNG pixels per SVG pixel: 2 gives 2560×1440 images.
+        #[arg(long, value_name = "N", default_value_t = 2,
+              value_parser = clap::value_parser!(u32).range(1..=4))]
+        scale: u32,
+        #[command(flatten)]
+        data: DataArgs,
+        #[command(flatten)]
+        lint: LintArgs,
+    },
+    /// Rebuild the deck whenever the story, its data, its style file or a
+    /// plugin changes; errors are printed and the last good deck stays.
+    Watch {
+        /// The story file (.cresc).
+        story: PathBuf,
+        /// Output folder (default: `deck/` beside the story).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Build even when claims fail (see `build --draft`).
+        #[arg(long)]
+        draft: bool,
+        /// Serve the deck on 127.0.0.1 and reload the browser after each
+        /// rebuild.
+        #[arg(long)]
+        serve: bool,
+        /// Port for `--serve` (0 picks a free one).
+        #[arg(long, default_value_t = 8765, requires = "serve")]
+        port: u16,
         #[command(flatten)]
         data: DataArgs,
         #[command(flatten)]
@@ -151,15 +209,45 @@ enum Command {
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
+    progress::install();
     let color = std::io::stderr().is_terminal() && std::env::var_os("NO_COLOR").is_none();
     match cli.command {
         Command::Build {
             story,
             out,
             draft,
+            no_cache,
+            format,
+            scale,
             data,
             lint,
-        } => build(&story, out, draft, &data, &lint, color),
+        } => {
+            incremental::disable(no_cache);
+            let exports = deck::Exports {
+                svg: format.contains(&Export::Svg),
+                html: format.contains(&Export::Html),
+                pdf: format.contains(&Export::Pdf),
+                png: format.contains(&Export::Png),
+                scale,
+            };
+            build(&story, out, draft, &exports, &data, &lint, color)
+        }
+        Command::Watch {
+            story,
+            out,
+            draft,
+            serve,
+            port,
+            data,
+            lint,
+        } => {
+            let deck_dir = out.clone().unwrap_or_else(|| default_out(&story));
+            let exports = deck::Exports::default();
+            watch::run(&story, &deck_dir, &data.data, serve.then_some(port), || {
+                build(&story, out.clone(), draft, &exports, &data, &lint, color)
+                    == ExitCode::SUCCESS
+            })
+        }
         Command::Check {
             story,
             format,
@@ -248,10 +336,13 @@ fn build(
     story: &Path,
     out: Option<PathBuf>,
     draft: bool,
+    exports: &deck::Exports,
     data: &DataArgs,
     lint: &LintArgs,
     color: bool,
 ) -> ExitCode {
+    // caches beside the deck (see incremental.rs)
+    incremental::configure_for(&out.clone().unwrap_or_else(|| default_out(story)));
     let planned = match load_plan(story, data, color) {
         Ok(p) => p,
         Err(code) => return code,
@@ -269,7 +360,7 @@ fn build(
         );
         return ExitCode::from(EXIT_STORY);
     }
-    let out = out.unwrap_or_else(|| story.parent().unwrap_or(Path::new(".")).join("deck"));
+    let out = out.unwrap_or_else(|| default_out(story));
     if !planned.failed_claims.is_empty() {
         if draft {
             let as_warnings: Vec<Diagnostic> = planned
@@ -295,7 +386,7 @@ fn build(
         }
     }
     let previous = diff::read_manifest(&out).ok();
-    match deck::build(&planned.plan, &out) {
+    match deck::build(&planned.plan, &out, exports) {
         Ok(files) => {
             eprintln!(
                 "built {} frame{} into {}{}",
@@ -312,6 +403,9 @@ fn build(
                 for line in diff::diff(&old, &new) {
                     eprintln!("  {line}");
                 }
+            }
+            for line in incremental::summary() {
+                eprintln!("  {line}");
             }
             ExitCode::SUCCESS
         }
@@ -434,6 +528,11 @@ fn check(story: &Path, format: Format, data: &DataArgs, lint: &LintArgs, color: 
     ExitCode::from(status)
 }
 
+/// The default deck folder: `deck/` beside the story.
+fn default_out(story: &Path) -> PathBuf {
+    story.parent().unwrap_or(Path::new(".")).join("deck")
+}
+
 /// Read, parse and plan a story without printing anything.
 fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic>> {
     let text = std::fs::read_to_string(story).map_err(|e| {
@@ -446,6 +545,7 @@ fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic
     let dir = story.parent().unwrap_or(Path::new("."));
     let options = Options {
         data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
+        cache: incremental::planner_cache(),
     };
     crescendo_plan::plan_story(&src, dir, &options)
 }

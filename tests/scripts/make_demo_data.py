@@ -110,7 +110,49 @@ def clinics():
             w.writerows(rows(last, revised))
 
 
+def libraries():
+    """Monthly loans by branch and format at an invented city library
+    service, 2023-01 .. 2024-12, and one row of facts per branch.
+
+    E-book loans grow steadily; Central closed for renovation in 2023-02 and
+    2023-03 (missing months, not zeros); a summer reading challenge lifts
+    July loans.
+    """
+    rng = random.Random(1789)
+    branches = {"Central": 1.0, "Quarry Street": 0.55, "Elm Row": 0.45, "Harbourside": 0.4, "Mill Lane": 0.3}
+    hours = {"Central": 60, "Quarry Street": 44, "Elm Row": 38, "Harbourside": 36, "Mill Lane": 28}
+    rows = []
+    for year in (2023, 2024):
+        for month in range(1, 13):
+            t = (year - 2023) * 12 + month - 1
+            summer = 1.25 if month == 7 else 1.0
+            for branch, size in branches.items():
+                closed = branch == "Central" and (year, month) in ((2023, 2), (2023, 3))
+                base = 4000 * size * summer
+                shares = {
+                    "Print": 0.62 - 0.009 * t,
+                    "E-book": 0.23 + 0.008 * t + (0.02 if branch == "Quarry Street" else 0.0),
+                    "Audio": 0.15 + 0.001 * t,
+                }
+                for fmt, share in shares.items():
+                    n = "" if closed else str(round(base * share * rng.uniform(0.95, 1.05)))
+                    rows.append([f"{year}-{month:02d}", year, branch, fmt, n])
+    path = os.path.join(ROOT, "stories", "libraries", "data", "loans.csv")
+    with open(path, "w", newline="") as f:
+        w = csv.writer(f, lineterminator="\n")
+        w.writerow(["month", "year", "branch", "format", "loans"])
+        w.writerows(rows)
+    path = os.path.join(ROOT, "stories", "libraries", "data", "branches.csv")
+    with open(path, "w", newline="") as f:
+        w = csv.writer(f, lineterminator="\n")
+        w.writerow(["branch", "weekly_hours", "visits", "staff"])
+        for branch, size in branches.items():
+            visits = round(hours[branch] * 1150 * (0.8 + size * 0.4) * rng.uniform(0.95, 1.05))
+            w.writerow([branch, hours[branch], visits, round(4 + 14 * size)])
+
+
 if __name__ == "__main__":
     pools()
     volunteers()
     clinics()
+    libraries()

@@ -4,10 +4,13 @@
 pub mod format;
 pub mod load;
 pub mod model;
+pub mod progress;
 pub mod stats;
+pub mod store;
+pub mod stream;
 pub mod time;
 pub mod view;
 
-pub use load::{load_csv, CsvSpec, LoadError};
+pub use load::{load_csv, load_csv_columns, probe, Columns, CsvSpec, LoadError, Probe};
 pub use model::*;
 pub use view::run_view;

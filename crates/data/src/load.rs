@@ -33,6 +33,7 @@
 // specifies; the error happens at most once per load, so its size is harmless.
 #![allow(clippy::result_large_err)]
 
+use std::collections::BTreeSet;
 use std::fmt;
 use std::fs::File;
 use std::io::{self, Read};
@@ -114,23 +115,95 @@ impl std::error::Error for LoadError {}
 /// The file is streamed: only the columns and the current record's raw text
 /// (for diagnostics) are held in memory.
 pub fn load_csv(spec: &CsvSpec) -> Result<Table, LoadError> {
+    load_csv_columns(spec, &Columns::All)
+}
+
+/// Which columns a load keeps the values of.
+#[derive(Clone, Debug, Default, PartialEq, Eq)]
+pub enum Columns {
+    /// Every column (what [`load_csv`] does).
+    #[default]
+    All,
+    /// Only the named columns. The others stay in the table (same names, so
+    /// messages can list them) as all-missing columns of their declared type,
+    /// or `text`; they are not inferred. Every declared column is still
+    /// checked, so a load reports exactly the errors [`load_csv`] reports.
+    Only(BTreeSet<String>),
+}
+
+impl Columns {
+    /// Does the load keep the values of column `name`?
+    pub fn keeps(&self, name: &str) -> bool {
+        match self {
+            Columns::All => true,
+            Columns::Only(names) => names.contains(name),
+        }
+    }
+}
+
+/// [`load_csv`], keeping the values of the selected columns only.
+pub fn load_csv_columns(spec: &CsvSpec, columns: &Columns) -> Result<Table, LoadError> {
+    let total = std::fs::metadata(&spec.path).map(|m| m.len()).unwrap_or(0);
+    let _task = crate::progress::Task::begin(&spec.display_name, total);
+    let (loader, _) = read(spec, columns, None)?;
+    loader.finish()
+}
+
+/// The header and the column types a file's first records suggest: what the
+/// streaming reader needs before it splits the file.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Probe {
+    /// Header names in file order.
+    pub names: Vec<String>,
+    /// Per column: the declared type, or the type inferred over the sample
+    /// for kept columns (`None` when the sample held no value of it), or
+    /// `None` for columns that are not kept.
+    pub types: Vec<Option<ColType>>,
+    /// File offset just after the header record.
+    pub data_start: u64,
+    /// Data rows read (at most the sample size).
+    pub rows: usize,
+}
+
+/// Read the header and up to `rows` records. Errors in that part of the file
+/// are reported as [`load_csv`] reports them.
+pub fn probe(spec: &CsvSpec, columns: &Columns, rows: usize) -> Result<Probe, LoadError> {
+    let (loader, data_start) = read(spec, columns, Some(rows))?;
+    let types = loader
+        .columns
+        .iter()
+        .map(|b| match b.declared {
+            Some(t) => Some(t),
+            None if !b.keep || !b.infer.any => None,
+            None => Some(b.infer.ty()),
+        })
+        .collect();
+    Ok(Probe {
+        names: loader.columns.iter().map(|b| b.name.clone()).collect(),
+        types,
+        data_start,
+        rows: loader.rows,
+    })
+}
+
+/// The records of a file through the loader; stops after `limit` data rows.
+/// Returns the loader and the file offset where the data rows start.
+fn read<'s>(
+    spec: &'s CsvSpec,
+    columns: &'s Columns,
+    limit: Option<usize>,
+) -> Result<(Loader<'s>, u64), LoadError> {
     let file = File::open(&spec.path).map_err(|e| io_error(spec, &e))?;
-    let input = skip_bom(file).map_err(|e| io_error(spec, &e))?;
-    let mut rdr = csv::ReaderBuilder::new()
-        .has_headers(false)
-        .flexible(true)
-        .delimiter(b',')
-        .quote(b'"')
-        .double_quote(true)
-        .escape(None)
-        .quoting(true)
-        .trim(csv::Trim::None)
-        .comment(None)
-        .from_reader(Tee::new(input));
-    let mut loader = Loader::new(spec);
+    let (input, bom) = skip_bom(file).map_err(|e| io_error(spec, &e))?;
+    let mut rdr = reader_builder().from_reader(Tee::new(input));
+    let mut loader = Loader::new(spec, columns);
     let mut record = csv::ByteRecord::new();
     let mut index = 0usize;
+    let mut data_start = bom;
     loop {
+        if limit.is_some_and(|l| index > l) {
+            break;
+        }
         match rdr.read_byte_record(&mut record) {
             Ok(true) => {}
             Ok(false) => break,
@@ -153,9 +226,27 @@ pub fn load_csv(spec: &CsvSpec) -> Result<Table, LoadError> {
         let raw = RawRecord::new(tee.window(start, end), line);
         loader.record(index, &record, &raw)?;
         tee.consumed(end);
+        if index == 0 {
+            data_start = bom + end;
+        }
         index += 1;
     }
-    loader.finish()
+    Ok((loader, data_start))
+}
+
+/// The CSV dialect of every reader here (RFC 4180, see the module docs).
+pub(crate) fn reader_builder() -> csv::ReaderBuilder {
+    let mut b = csv::ReaderBuilder::new();
+    b.has_headers(false)
+        .flexible(true)
+        .delimiter(b',')
+        .quote(b'"')
+        .double_quote(true)
+        .escape(None)
+        .quoting(true)
+        .trim(csv::Trim::None)
+        .comment(None);
+    b
 }
 
 /// Parse a plain decimal number: an optional sign, digits with an optional
@@ -245,7 +336,7 @@ fn io_error(spec: &CsvSpec, e: &io::Error) -> LoadError {
 const BOM: &[u8] = b"\xEF\xBB\xBF";
 
 /// Read the first bytes and drop a UTF-8 byte order mark if present.
-fn skip_bom(mut file: File) -> io::Result<io::Chain<io::Cursor<Vec<u8>>, File>> {
+fn skip_bom(mut file: File) -> io::Result<(io::Chain<io::Cursor<Vec<u8>>, File>, u64)> {
     let mut head = Vec::with_capacity(3);
     let mut buf = [0u8; 3];
     while head.len() < 3 {
@@ -259,16 +350,21 @@ fn skip_bom(mut file: File) -> io::Result<io::Chain<io::Cursor<Vec<u8>>, File>> 
         }
         head.extend_from_slice(&buf[..n]);
     }
-    if head == BOM {
+    let bom = if head == BOM {
         head.clear();
-    }
-    Ok(io::Cursor::new(head).chain(file))
+        BOM.len() as u64
+    } else {
+        0
+    };
+    Ok((io::Cursor::new(head).chain(file), bom))
 }
 
 /// A reader that keeps the bytes it passed on since the start of the current
 /// record, so a record's raw text is available for validation and excerpts.
-struct Tee<R> {
+pub(crate) struct Tee<R> {
     inner: R,
+    /// Bytes read but not yet reported to the progress display.
+    unreported: u64,
     /// Raw bytes from offset `base` onwards.
     buf: Vec<u8>,
     base: u64,
@@ -278,23 +374,24 @@ struct Tee<R> {
 const DRAIN_AT: usize = 64 * 1024;
 
 impl<R: Read> Tee<R> {
-    fn new(inner: R) -> Self {
+    pub(crate) fn new(inner: R) -> Self {
         Tee {
             inner,
+            unreported: 0,
             buf: Vec::new(),
             base: 0,
         }
     }
 
     /// The raw bytes between two stream offsets (empty if out of range).
-    fn window(&self, start: u64, end: u64) -> &[u8] {
+    pub(crate) fn window(&self, start: u64, end: u64) -> &[u8] {
         let a = start.saturating_sub(self.base) as usize;
         let b = end.saturating_sub(self.base) as usize;
         self.buf.get(a..b.min(self.buf.len())).unwrap_or(&[])
     }
 
     /// Everything before stream offset `end` will not be asked for again.
-    fn consumed(&mut self, end: u64) {
+    pub(crate) fn consumed(&mut self, end: u64) {
         let cut = (end.saturating_sub(self.base) as usize).min(self.buf.len());
         if cut >= DRAIN_AT {
             self.buf.drain(..cut);
@@ -307,19 +404,24 @@ impl<R: Read> Read for Tee<R> {
     fn read(&mut self, out: &mut [u8]) -> io::Result<usize> {
         let n = self.inner.read(out)?;
         self.buf.extend_from_slice(&out[..n]);
+        self.unreported += n as u64;
+        if self.unreported >= crate::progress::STEP || n == 0 {
+            crate::progress::advance(self.unreported);
+            self.unreported = 0;
+        }
         Ok(n)
     }
 }
 
 /// The raw text of one record without surrounding line breaks, and the
 /// 1-based file line it starts on.
-struct RawRecord<'a> {
-    bytes: &'a [u8],
+pub(crate) struct RawRecord<'a> {
+    pub(crate) bytes: &'a [u8],
     line: usize,
 }
 
 impl<'a> RawRecord<'a> {
-    fn new(window: &'a [u8], line_at_start: u64) -> Self {
+    pub(crate) fn new(window: &'a [u8], line_at_start: u64) -> Self {
         // Blank lines skipped before the record belong to its window.
         let lead = window
             .iter()
@@ -340,7 +442,7 @@ impl<'a> RawRecord<'a> {
 }
 
 /// A problem found while scanning a record's raw text.
-enum ScanError {
+pub(crate) enum ScanError {
     /// Text follows the closing quote of field `field`; `at` is its offset.
     AfterQuote { field: usize, at: usize },
     /// Field `field` opens a quote at `at` that is never closed.
@@ -349,7 +451,7 @@ enum ScanError {
 
 /// Split a record's raw text into field spans (quotes included), checking the
 /// RFC 4180 quoting rules chosen in the module docs.
-fn scan_fields(raw: &[u8]) -> Result<Vec<Range<usize>>, ScanError> {
+pub(crate) fn scan_fields(raw: &[u8]) -> Result<Vec<Range<usize>>, ScanError> {
     let mut fields = Vec::new();
     let mut i = 0;
     let n = raw.len();
@@ -450,8 +552,23 @@ struct Infer {
     any: bool,
 }
 
+impl Infer {
+    /// The type the cells seen so far suggest (`text` when none was seen).
+    fn ty(&self) -> ColType {
+        match self {
+            Infer { any: false, .. } => ColType::Text,
+            Infer { month: true, .. } => ColType::Month,
+            Infer { date: true, .. } => ColType::Date,
+            Infer { number: true, .. } => ColType::Number,
+            _ => ColType::Text,
+        }
+    }
+}
+
 struct Builder {
     name: String,
+    /// Whether the column's values are kept (see [`Columns`]).
+    keep: bool,
     declared: Option<ColType>,
     infer: Infer,
     values: Vec<Value>,
@@ -459,14 +576,19 @@ struct Builder {
 
 struct Loader<'s> {
     spec: &'s CsvSpec,
+    keep: &'s Columns,
     columns: Vec<Builder>,
+    /// Data rows read.
+    rows: usize,
 }
 
 impl<'s> Loader<'s> {
-    fn new(spec: &'s CsvSpec) -> Self {
+    fn new(spec: &'s CsvSpec, keep: &'s Columns) -> Self {
         Loader {
             spec,
+            keep,
             columns: Vec::new(),
+            rows: 0,
         }
     }
 
@@ -615,6 +737,10 @@ impl<'s> Loader<'s> {
                     ));
                 }
             };
+            let col = &self.columns[j];
+            if !col.keep && col.declared.is_none() {
+                continue;
+            }
             let value = if self.spec.missing.iter().any(|m| m == text) {
                 Value::Missing
             } else {
@@ -634,8 +760,11 @@ impl<'s> Loader<'s> {
                     }
                 }
             };
-            self.columns[j].values.push(value);
+            if self.columns[j].keep {
+                self.columns[j].values.push(value);
+            }
         }
+        self.rows += 1;
         Ok(())
     }
 
@@ -751,6 +880,7 @@ impl<'s> Loader<'s> {
                     .find(|(n, _)| *n == name)
                     .map(|(_, t)| *t);
                 Builder {
+                    keep: self.keep.keeps(&name),
                     name,
                     declared,
                     infer: Infer {
@@ -776,7 +906,7 @@ impl<'s> Loader<'s> {
                 declared: None,
             });
         }
-        if self.columns[0].values.is_empty() {
+        if self.rows == 0 {
             return Err(LoadError::Story {
                 code: "empty-data",
                 message: format!("data file `{name}` has a header but no data rows"),
@@ -784,18 +914,23 @@ impl<'s> Loader<'s> {
                 declared: None,
             });
         }
+        let rows = self.rows;
         let columns = self
             .columns
             .into_iter()
             .map(|b| {
                 let ty = match b.declared {
                     Some(t) => t,
-                    None if !b.infer.any => ColType::Text,
-                    None if b.infer.month => ColType::Month,
-                    None if b.infer.date => ColType::Date,
-                    None if b.infer.number => ColType::Number,
-                    None => ColType::Text,
+                    None if !b.keep => ColType::Text,
+                    None => b.infer.ty(),
                 };
+                if !b.keep {
+                    return Column {
+                        name: b.name,
+                        ty,
+                        values: vec![Value::Missing; rows],
+                    };
+                }
                 let values = if b.declared.is_none() && ty != ColType::Text {
                     b.values
                         .into_iter()

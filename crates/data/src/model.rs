@@ -1,9 +1,9 @@
 //! Typed tables and the view-step IR that the planner produces.
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 /// A column's type, declared in the story or inferred from the CSV.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
 pub enum ColType {
     Text,
@@ -45,6 +45,46 @@ pub enum Value {
     /// `year * 12 + (month - 1)`.
     Month(i32),
     Year(i32),
+}
+
+/// A borrowed cell: what the view engine evaluates expressions on, both over
+/// a [`Table`] and over a CSV record while it streams (no text is copied).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Cell<'a> {
+    Missing,
+    Number(f64),
+    Text(&'a str),
+    Date(i32),
+    Month(i32),
+    Year(i32),
+}
+
+impl Value {
+    /// This value as a borrowed [`Cell`].
+    pub fn cell(&self) -> Cell<'_> {
+        match self {
+            Value::Missing => Cell::Missing,
+            Value::Number(x) => Cell::Number(*x),
+            Value::Text(s) => Cell::Text(s),
+            Value::Date(d) => Cell::Date(*d),
+            Value::Month(m) => Cell::Month(*m),
+            Value::Year(y) => Cell::Year(*y),
+        }
+    }
+}
+
+impl Cell<'_> {
+    /// An owned copy of this cell.
+    pub fn to_value(self) -> Value {
+        match self {
+            Cell::Missing => Value::Missing,
+            Cell::Number(x) => Value::Number(x),
+            Cell::Text(s) => Value::Text(s.to_owned()),
+            Cell::Date(d) => Value::Date(d),
+            Cell::Month(m) => Value::Month(m),
+            Cell::Year(y) => Value::Year(y),
+        }
+    }
 }
 
 #[derive(Clone, Debug, PartialEq, Serialize)]

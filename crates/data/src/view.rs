@@ -28,7 +28,9 @@
 use std::cmp::Ordering;
 use std::collections::HashMap;
 
-use crate::model::{AggFn, Aggregate, ArithOp, CmpOp, ColType, Column, Expr, Step, Table, Value};
+use crate::model::{
+    AggFn, Aggregate, ArithOp, Cell, CmpOp, ColType, Column, Expr, Step, Table, Value,
+};
 
 /// Run `steps` in order over `input` and return the resulting table.
 ///
@@ -91,9 +93,14 @@ fn take_rows(t: &Table, rows: &[usize]) -> Table {
 
 /// The numeric value of a number (or year) cell.
 fn as_number(v: &Value) -> Option<f64> {
-    match v {
-        Value::Number(x) => Some(*x),
-        Value::Year(y) => Some(f64::from(*y)),
+    num_of(v.cell())
+}
+
+/// The numeric value of a number (or year) cell.
+fn num_of(c: Cell<'_>) -> Option<f64> {
+    match c {
+        Cell::Number(x) => Some(x),
+        Cell::Year(y) => Some(f64::from(y)),
         _ => None,
     }
 }
@@ -106,55 +113,68 @@ fn finite(x: f64) -> Value {
     }
 }
 
-/// Evaluate a value expression on one row. A boolean expression used as a
-/// value (which type-checking rules out) gives `Missing`.
-fn eval(t: &Table, row: usize, e: &Expr) -> Value {
+fn finite_cell<'a>(x: f64) -> Cell<'a> {
+    if x.is_finite() {
+        Cell::Number(x)
+    } else {
+        Cell::Missing
+    }
+}
+
+/// Evaluate a value expression on one row, whose cells `row` gives by
+/// column index. A boolean expression used as a value (which type-checking
+/// rules out) gives `Missing`.
+pub(crate) fn eval<'a, R: Fn(usize) -> Cell<'a>>(row: &R, e: &'a Expr) -> Cell<'a> {
     match e {
-        Expr::Col(c) => cell(t, *c, row).clone(),
-        Expr::Lit(v) => v.clone(),
-        Expr::Neg(a) => match as_number(&eval(t, row, a)) {
-            Some(x) => finite(-x),
-            None => Value::Missing,
+        Expr::Col(c) => row(*c),
+        Expr::Lit(v) => v.cell(),
+        Expr::Neg(a) => match num_of(eval(row, a)) {
+            Some(x) => finite_cell(-x),
+            None => Cell::Missing,
         },
         Expr::Arith(op, a, b) => {
-            let (Some(x), Some(y)) = (as_number(&eval(t, row, a)), as_number(&eval(t, row, b)))
-            else {
-                return Value::Missing;
+            let (Some(x), Some(y)) = (num_of(eval(row, a)), num_of(eval(row, b))) else {
+                return Cell::Missing;
             };
             match op {
-                ArithOp::Add => finite(x + y),
-                ArithOp::Sub => finite(x - y),
-                ArithOp::Mul => finite(x * y),
-                ArithOp::Div if y == 0.0 => Value::Missing,
-                ArithOp::Div => finite(x / y),
+                ArithOp::Add => finite_cell(x + y),
+                ArithOp::Sub => finite_cell(x - y),
+                ArithOp::Mul => finite_cell(x * y),
+                ArithOp::Div if y == 0.0 => Cell::Missing,
+                ArithOp::Div => finite_cell(x / y),
             }
         }
         Expr::Cmp(..) | Expr::And(..) | Expr::Or(..) | Expr::Not(..) | Expr::In(..) => {
-            Value::Missing
+            Cell::Missing
         }
     }
 }
 
 /// Order of two non-missing values of comparable kinds; `None` otherwise.
 fn compare(a: &Value, b: &Value) -> Option<Ordering> {
+    compare_cells(a.cell(), b.cell())
+}
+
+/// Order of two non-missing cells of comparable kinds; `None` otherwise.
+pub(crate) fn compare_cells(a: Cell<'_>, b: Cell<'_>) -> Option<Ordering> {
     match (a, b) {
-        (Value::Number(x), Value::Number(y)) => Some(x.total_cmp(y)),
-        (Value::Text(x), Value::Text(y)) => Some(x.as_bytes().cmp(y.as_bytes())),
-        (Value::Date(x), Value::Date(y))
-        | (Value::Month(x), Value::Month(y))
-        | (Value::Year(x), Value::Year(y)) => Some(x.cmp(y)),
-        (Value::Year(x), Value::Number(y)) => Some(f64::from(*x).total_cmp(y)),
-        (Value::Number(x), Value::Year(y)) => Some(x.total_cmp(&f64::from(*y))),
+        (Cell::Number(x), Cell::Number(y)) => Some(x.total_cmp(&y)),
+        (Cell::Text(x), Cell::Text(y)) => Some(x.as_bytes().cmp(y.as_bytes())),
+        (Cell::Date(x), Cell::Date(y))
+        | (Cell::Month(x), Cell::Month(y))
+        | (Cell::Year(x), Cell::Year(y)) => Some(x.cmp(&y)),
+        (Cell::Year(x), Cell::Number(y)) => Some(f64::from(x).total_cmp(&y)),
+        (Cell::Number(x), Cell::Year(y)) => Some(x.total_cmp(&f64::from(y))),
         _ => None,
     }
 }
 
 /// `a op b` with the module's rules: missing gives false.
-fn compare_op(op: CmpOp, a: &Value, b: &Value) -> bool {
-    if matches!(a, Value::Missing) || matches!(b, Value::Missing) {
+fn compare_op(op: CmpOp, a: Cell<'_>, b: Cell<'_>) -> bool {
+    if matches!(a, Cell::Missing) || matches!(b, Cell::Missing) {
         return false;
     }
-    match compare(a, b) {
+    match compare_cells(a, b) {
         Some(o) => match op {
             CmpOp::Eq => o == Ordering::Equal,
             CmpOp::Ne => o != Ordering::Equal,
@@ -167,34 +187,42 @@ fn compare_op(op: CmpOp, a: &Value, b: &Value) -> bool {
     }
 }
 
-/// Evaluate a predicate on one row. A value expression used as a predicate
-/// (which type-checking rules out) is false.
-fn truth(t: &Table, row: usize, e: &Expr) -> bool {
+/// Evaluate a predicate on one row (see [`eval`]). A value expression used
+/// as a predicate (which type-checking rules out) is false.
+pub(crate) fn truth<'a, R: Fn(usize) -> Cell<'a>>(row: &R, e: &'a Expr) -> bool {
     match e {
-        Expr::Cmp(op, a, b) => compare_op(*op, &eval(t, row, a), &eval(t, row, b)),
-        Expr::And(a, b) => truth(t, row, a) && truth(t, row, b),
-        Expr::Or(a, b) => truth(t, row, a) || truth(t, row, b),
-        Expr::Not(a) => !truth(t, row, a),
+        Expr::Cmp(op, a, b) => compare_op(*op, eval(row, a), eval(row, b)),
+        Expr::And(a, b) => truth(row, a) && truth(row, b),
+        Expr::Or(a, b) => truth(row, a) || truth(row, b),
+        Expr::Not(a) => !truth(row, a),
         Expr::In(a, list) => {
-            let v = eval(t, row, a);
-            list.iter().any(|item| compare_op(CmpOp::Eq, &v, item))
+            let v = eval(row, a);
+            list.iter()
+                .any(|item| compare_op(CmpOp::Eq, v, item.cell()))
         }
         Expr::Col(_) | Expr::Lit(_) | Expr::Neg(_) | Expr::Arith(..) => false,
     }
+}
+
+/// The cells of row `row` of `t`, for [`eval`] and [`truth`].
+fn row_of<'a>(t: &'a Table, row: usize) -> impl Fn(usize) -> Cell<'a> + 'a {
+    move |c| cell(t, c, row).cell()
 }
 
 // ---------------------------------------------------------------------- steps
 
 /// Keep the rows where `pred` is true, in order.
 fn keep(t: &Table, pred: &Expr) -> Table {
-    let rows: Vec<usize> = (0..row_count(t)).filter(|&r| truth(t, r, pred)).collect();
+    let rows: Vec<usize> = (0..row_count(t))
+        .filter(|&r| truth(&row_of(t, r), pred))
+        .collect();
     take_rows(t, &rows)
 }
 
 /// Append a number column holding `expr` for each row.
 fn derive(mut t: Table, name: &str, expr: &Expr) -> Table {
     let values = (0..row_count(&t))
-        .map(|r| match as_number(&eval(&t, r, expr)) {
+        .map(|r| match num_of(eval(&row_of(&t, r), expr)) {
             Some(x) => Value::Number(x),
             None => Value::Missing,
         })
@@ -207,31 +235,90 @@ fn derive(mut t: Table, name: &str, expr: &Expr) -> Table {
     t
 }
 
-/// Neumaier's compensated sum (an improved Kahan summation; common practice
-/// for accurate floating-point totals). The result does not depend on how
-/// the terms are split, up to the final rounding, and is exact for sums of
-/// integers below 2^53.
-#[derive(Clone, Copy, Debug, Default)]
-struct Sum {
-    sum: f64,
-    comp: f64,
+/// An exact floating-point sum: Shewchuk's non-overlapping partials
+/// (J. R. Shewchuk, "Adaptive Precision Floating-Point Arithmetic and Fast
+/// Robust Geometric Predicates", 1997), rounded once at the end to the
+/// nearest double, ties to even, as Python's `math.fsum` does. The result is
+/// the correctly rounded sum of the terms, so it does not depend on their
+/// order or on how they are split into parts and merged: the streaming
+/// reader sums file chunks in parallel and gets the same bits as one pass.
+/// (Sums whose partial totals overflow past ±1.8e308 come out missing.)
+#[derive(Clone, Debug, Default, PartialEq)]
+pub(crate) struct Sum {
+    partials: Vec<f64>,
     n: usize,
 }
 
 impl Sum {
-    fn add(&mut self, x: f64) {
-        let t = self.sum + x;
-        if self.sum.abs() >= x.abs() {
-            self.comp += (self.sum - t) + x;
-        } else {
-            self.comp += (x - t) + self.sum;
-        }
-        self.sum = t;
+    pub(crate) fn add(&mut self, x: f64) {
         self.n += 1;
+        self.push(x);
     }
 
-    fn total(&self) -> Option<f64> {
-        (self.n > 0).then_some(self.sum + self.comp)
+    fn push(&mut self, mut x: f64) {
+        let mut i = 0;
+        for j in 0..self.partials.len() {
+            let mut y = self.partials[j];
+            if x.abs() < y.abs() {
+                std::mem::swap(&mut x, &mut y);
+            }
+            let hi = x + y;
+            let lo = y - (hi - x);
+            if lo != 0.0 {
+                self.partials[i] = lo;
+                i += 1;
+            }
+            x = hi;
+        }
+        self.partials.truncate(i);
+        self.partials.push(x);
+    }
+
+    /// Add every term of `other` (exactly).
+    pub(crate) fn merge(&mut self, other: &Sum) {
+        for &p in &other.partials {
+            self.push(p);
+        }
+        self.n += other.n;
+    }
+
+    /// Number of terms added.
+    pub(crate) fn count(&self) -> usize {
+        self.n
+    }
+
+    pub(crate) fn total(&self) -> Option<f64> {
+        if self.n == 0 {
+            return None;
+        }
+        let p = &self.partials;
+        let Some(mut k) = p.len().checked_sub(1) else {
+            return Some(0.0);
+        };
+        let mut hi = p[k];
+        let mut lo = 0.0;
+        while k > 0 {
+            let x = hi;
+            k -= 1;
+            let y = p[k];
+            hi = x + y;
+            let yr = hi - x;
+            lo = y - yr;
+            if lo != 0.0 {
+                break;
+            }
+        }
+        // Round half to even across several partials (as `math.fsum`).
+        if k > 0 && ((lo < 0.0 && p[k - 1] < 0.0) || (lo > 0.0 && p[k - 1] > 0.0)) {
+            let y = lo * 2.0;
+            let x = hi + y;
+            let yr = x - hi;
+            if y == yr {
+                hi = x;
+            }
+        }
+        // A sum of zeros is +0, never -0.
+        Some(hi + 0.0)
     }
 }
 
@@ -505,6 +592,16 @@ fn top(t: &Table, key: usize, by: usize, n: usize, rest: &str) -> Table {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// [`super::eval`] on a table row, as an owned value.
+    fn eval(t: &Table, row: usize, e: &Expr) -> Value {
+        super::eval(&row_of(t, row), e).to_value()
+    }
+
+    /// [`super::truth`] on a table row.
+    fn truth(t: &Table, row: usize, e: &Expr) -> bool {
+        super::truth(&row_of(t, row), e)
+    }
 
     fn num(x: f64) -> Value {
         Value::Number(x)

@@ -142,6 +142,11 @@ pub enum StepAst {
         rest: Option<Str>,
         span: Span,
     },
+    /// `columns a, b, c`
+    Columns {
+        names: Vec<Ident>,
+        span: Span,
+    },
 }
 
 impl StepAst {
@@ -151,7 +156,8 @@ impl StepAst {
             | StepAst::By { span, .. }
             | StepAst::Add { span, .. }
             | StepAst::Sort { span, .. }
-            | StepAst::Top { span, .. } => span,
+            | StepAst::Top { span, .. }
+            | StepAst::Columns { span, .. } => span,
         }
     }
 }
@@ -276,6 +282,23 @@ pub struct FrameDecl {
 pub enum ChartForm {
     Line,
     Bars,
+    Dots,
+    Scatter,
+    Pie,
+    Table,
+}
+
+impl ChartForm {
+    pub fn keyword(self) -> &'static str {
+        match self {
+            ChartForm::Line => "line",
+            ChartForm::Bars => "bars",
+            ChartForm::Dots => "dots",
+            ChartForm::Scatter => "scatter",
+            ChartForm::Pie => "pie",
+            ChartForm::Table => "table",
+        }
+    }
 }
 
 /// Options of a chart statement.
@@ -289,6 +312,10 @@ pub enum OptName {
     Ordered,
     Horizontal,
     Vertical,
+    Stack,
+    Group,
+    Label,
+    Fit,
 }
 
 impl OptName {
@@ -302,6 +329,10 @@ impl OptName {
             OptName::Ordered => "ordered",
             OptName::Horizontal => "horizontal",
             OptName::Vertical => "vertical",
+            OptName::Stack => "stack",
+            OptName::Group => "group",
+            OptName::Label => "label",
+            OptName::Fit => "fit",
         }
     }
 }
@@ -337,6 +368,8 @@ pub enum Targets {
     None(Span),
     Focus(Span),
     Names(Vec<Str>),
+    /// `"Row" in column, ...`: cells of a table.
+    Cells(Vec<(Str, Ident)>),
 }
 
 /// A statement inside a frame.
@@ -375,6 +408,68 @@ pub enum FrameStmt {
         span: Span,
     },
     Allow(AllowDecl),
+    /// `figure "text" "caption"`
+    Figure {
+        text: Str,
+        caption: Str,
+        span: Span,
+    },
+    Split(SplitStmt),
+    /// `reveal` or `reveal "A", "B"`.
+    Reveal {
+        order: Vec<Str>,
+        span: Span,
+    },
+    Callout {
+        at: Position,
+        on: Option<Str>,
+        text: Str,
+        span: Span,
+    },
+    Band {
+        from: Position,
+        to: Position,
+        text: Option<Str>,
+        span: Span,
+    },
+    Reference {
+        value: f64,
+        text: Str,
+        span: Span,
+    },
+    /// `label ends`
+    LabelEnds {
+        span: Span,
+    },
+}
+
+/// A position along x as written: a quoted time or a number.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Position {
+    Text(Str),
+    Number { value: f64, span: Span },
+}
+
+impl Position {
+    pub fn span(&self) -> Span {
+        match self {
+            Position::Text(s) => s.span.clone(),
+            Position::Number { span, .. } => span.clone(),
+        }
+    }
+}
+
+/// `split KEY [ascending|descending] [by MEASURE] [order "A", ...] [trim] [free]`
+#[derive(Clone, Debug, PartialEq)]
+pub struct SplitStmt {
+    pub key: Ident,
+    /// `Some(true)` descending, `Some(false)` ascending, `None` first appearance.
+    pub descending: Option<bool>,
+    pub by: Option<Ident>,
+    pub order: Vec<Str>,
+    pub trim: bool,
+    pub free: bool,
+    pub span: Span,
 }
 
 /// `value NAME = EXPRESSION`

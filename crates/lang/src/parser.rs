@@ -163,12 +163,17 @@ fn describe(rule: Rule) -> Option<String> {
             | Rule::product
             | Rule::unary
             | Rule::neg_sign => "an expression",
-            Rule::chart_form => "a chart (`line` or `bars`)",
+            Rule::chart_form => "a chart (`line`, `bars`, `dots`, `scatter`, `pie`, `table`)",
             Rule::axis_name => "an axis statement (`y title \"...\"` or `y range 0 to 100`)",
             Rule::rule_name => "a lint rule name",
             Rule::direction => "`ascending` or `descending`",
-            Rule::keep_step | Rule::by_step | Rule::add_step | Rule::sort_step | Rule::top_step => {
-                "a view step (`| keep`, `| by`, `| add`, `| sort`, `| top`)"
+            Rule::keep_step
+            | Rule::by_step
+            | Rule::add_step
+            | Rule::sort_step
+            | Rule::top_step
+            | Rule::columns_step => {
+                "a view step (`| keep`, `| by`, `| add`, `| sort`, `| top`, `| columns`)"
             }
             Rule::cmp_op => "a comparison",
             Rule::add_op | Rule::mul_op => "an operator",
@@ -203,7 +208,7 @@ fn describe(rule: Rule) -> Option<String> {
 /// The keywords a rule can start with (for "did you mean" suggestions).
 fn keywords_of(rule: Rule) -> Vec<String> {
     let words: &[&str] = match rule {
-        Rule::chart_form => &["line", "bars"],
+        Rule::chart_form => &["line", "bars", "dots", "scatter", "pie", "table"],
         Rule::axis_name => &["x", "y"],
         Rule::direction => &["ascending", "descending"],
         Rule::opt_name | Rule::chart_opt => &[
@@ -215,6 +220,10 @@ fn keywords_of(rule: Rule) -> Vec<String> {
             "ordered",
             "horizontal",
             "vertical",
+            "stack",
+            "group",
+            "label",
+            "fit",
         ],
         Rule::targets => &["all", "none", "focus"],
         _ => {
@@ -581,6 +590,10 @@ fn convert_step(pair: Pair<Rule>, base: usize) -> Res<StepAst> {
                 .collect::<Res<Vec<_>>>()?,
             span,
         },
+        Rule::columns_step => StepAst::Columns {
+            names: inner.into_iter().skip(1).map(|p| ident(p, base)).collect(),
+            span,
+        },
         Rule::top_step => {
             let n_pair = &inner[1];
             let n_span = span_of(n_pair, base);
@@ -913,6 +926,27 @@ fn convert_vcond(pair: Pair<Rule>, base: usize) -> Res<VCond> {
     }
 }
 
+/// A position along x: a quoted time or a number.
+fn position(pair: Pair<Rule>, base: usize) -> Res<Position> {
+    let span = span_of(&pair, base);
+    let p = children(pair).next().ok_or_else(|| internal(&span))?;
+    match p.as_rule() {
+        Rule::string => Ok(Position::Text(string(p, base))),
+        _ => {
+            let value = p
+                .as_str()
+                .parse::<f64>()
+                .ok()
+                .filter(|x| x.is_finite())
+                .ok_or_else(|| ConvertError {
+                    span: span.clone(),
+                    message: format!("`{}` is not a number", p.as_str()),
+                })?;
+            Ok(Position::Number { value, span })
+        }
+    }
+}
+
 fn allow_decl(inner: Vec<Pair<Rule>>, span: Span, base: usize) -> Res<AllowDecl> {
     let mut it = inner.into_iter().skip(1);
     let rule = ident(it.next().ok_or_else(|| internal(&span))?, base);
@@ -927,7 +961,33 @@ fn targets(pair: Pair<Rule>, base: usize) -> Targets {
         Some(Rule::kw_all) => Targets::All(span),
         Some(Rule::kw_none) => Targets::None(span),
         Some(Rule::kw_focus) => Targets::Focus(span),
-        _ => Targets::Names(children(pair).map(|p| string(p, base)).collect()),
+        _ => {
+            let items: Vec<(Str, Option<Ident>)> = children(pair)
+                .map(|item| {
+                    let mut it = children(item);
+                    let name = it.next().map(|p| string(p, base));
+                    let column = it.nth(1).map(|p| ident(p, base));
+                    (name, column)
+                })
+                .filter_map(|(n, c)| n.map(|n| (n, c)))
+                .collect();
+            if items.iter().any(|(_, c)| c.is_some()) {
+                Targets::Cells(
+                    items
+                        .into_iter()
+                        .map(|(n, c)| {
+                            let col = c.unwrap_or_else(|| Ident {
+                                name: String::new(),
+                                span: n.span.clone(),
+                            });
+                            (n, col)
+                        })
+                        .collect(),
+                )
+            } else {
+                Targets::Names(items.into_iter().map(|(n, _)| n).collect())
+            }
+        }
     }
 }
 
@@ -946,10 +1006,13 @@ fn convert_frame_stmt(pair: Pair<Rule>, base: usize) -> Res<FrameStmt> {
     };
     Ok(match rule {
         Rule::chart_stmt => {
-            let form = if inner[0].as_str() == "line" {
-                ChartForm::Line
-            } else {
-                ChartForm::Bars
+            let form = match inner[0].as_str() {
+                "line" => ChartForm::Line,
+                "bars" => ChartForm::Bars,
+                "dots" => ChartForm::Dots,
+                "scatter" => ChartForm::Scatter,
+                "pie" => ChartForm::Pie,
+                _ => ChartForm::Table,
             };
             let view = ident(inner[1].clone(), base);
             let mut opts = Vec::new();
@@ -965,6 +1028,10 @@ fn convert_frame_stmt(pair: Pair<Rule>, base: usize) -> Res<FrameStmt> {
                     Some("ordered") => OptName::Ordered,
                     Some("horizontal") => OptName::Horizontal,
                     Some("vertical") => OptName::Vertical,
+                    Some("stack") => OptName::Stack,
+                    Some("group") => OptName::Group,
+                    Some("label") => OptName::Label,
+                    Some("fit") => OptName::Fit,
                     _ => return Err(internal(&ospan)),
                 };
                 opts.push(ChartOpt {
@@ -998,6 +1065,96 @@ fn convert_frame_stmt(pair: Pair<Rule>, base: usize) -> Res<FrameStmt> {
             }
         }
         Rule::frame_allow => FrameStmt::Allow(allow_decl(inner, span, base)?),
+        Rule::figure_stmt => {
+            let strings: Vec<Str> = inner.into_iter().skip(1).map(|p| string(p, base)).collect();
+            let [text, caption] = <[Str; 2]>::try_from(strings).map_err(|_| internal(&span))?;
+            FrameStmt::Figure {
+                text,
+                caption,
+                span,
+            }
+        }
+        Rule::split_stmt => {
+            let mut it = inner.into_iter().skip(1);
+            let key = ident(it.next().ok_or_else(|| internal(&span))?, base);
+            let mut split = SplitStmt {
+                key,
+                descending: None,
+                by: None,
+                order: Vec::new(),
+                trim: false,
+                free: false,
+                span: span.clone(),
+            };
+            for opt in it {
+                let parts: Vec<Pair<Rule>> = children(opt).collect();
+                match parts.first().map(|p| p.as_rule()) {
+                    Some(Rule::direction) => {
+                        split.descending = Some(parts[0].as_str() == "descending")
+                    }
+                    Some(Rule::kw_by) => split.by = parts.get(1).cloned().map(|p| ident(p, base)),
+                    Some(Rule::kw_order) => {
+                        split.order = parts.into_iter().skip(1).map(|p| string(p, base)).collect()
+                    }
+                    Some(Rule::kw_trim) => split.trim = true,
+                    Some(Rule::kw_free) => split.free = true,
+                    _ => {}
+                }
+            }
+            FrameStmt::Split(split)
+        }
+        Rule::reveal_stmt => FrameStmt::Reveal {
+            order: inner.into_iter().skip(1).map(|p| string(p, base)).collect(),
+            span,
+        },
+        Rule::callout_stmt => {
+            let mut it = inner.into_iter().skip(1);
+            let at = position(it.next().ok_or_else(|| internal(&span))?, base)?;
+            let rest: Vec<Pair<Rule>> = it.collect();
+            let text = rest
+                .iter()
+                .rev()
+                .find(|p| p.as_rule() == Rule::string)
+                .cloned()
+                .map(|p| string(p, base))
+                .ok_or_else(|| internal(&span))?;
+            let on = if rest.iter().any(|p| p.as_rule() == Rule::kw_on) {
+                rest.iter()
+                    .find(|p| p.as_rule() == Rule::string)
+                    .cloned()
+                    .map(|p| string(p, base))
+            } else {
+                None
+            };
+            FrameStmt::Callout { at, on, text, span }
+        }
+        Rule::band_stmt => {
+            let parts: Vec<Pair<Rule>> = inner.into_iter().skip(1).collect();
+            let from = position(parts.first().cloned().ok_or_else(|| internal(&span))?, base)?;
+            let to = position(parts.get(2).cloned().ok_or_else(|| internal(&span))?, base)?;
+            let text = parts.get(3).cloned().map(|p| string(p, base));
+            FrameStmt::Band {
+                from,
+                to,
+                text,
+                span,
+            }
+        }
+        Rule::reference_stmt => {
+            let v = inner.get(1).ok_or_else(|| internal(&span))?;
+            let value = v
+                .as_str()
+                .parse::<f64>()
+                .ok()
+                .filter(|x| x.is_finite())
+                .ok_or_else(|| ConvertError {
+                    span: span_of(v, base),
+                    message: format!("`{}` is not a number", v.as_str()),
+                })?;
+            let text = string(inner.get(2).cloned().ok_or_else(|| internal(&span))?, base);
+            FrameStmt::Reference { value, text, span }
+        }
+        Rule::label_ends_stmt => FrameStmt::LabelEnds { span },
         Rule::range_stmt => {
             let axis = if inner[0].as_str() == "x" {
                 AxisName::X

@@ -35,6 +35,8 @@ pub struct FrameAnchors {
     pub y_title: Option<Span>,
     /// The `y range` statement in effect.
     pub range: Option<Span>,
+    /// The `split` statement in effect.
+    pub split: Option<Span>,
     pub takeaway: Option<Span>,
     pub notes: Option<Span>,
     /// Allowances written inside this frame.

@@ -23,6 +23,8 @@ pub struct Options {
     /// `--data NAME=FILE`: read data item NAME from FILE instead of the file
     /// the story names (this month's export, without editing the story).
     pub data: BTreeMap<String, PathBuf>,
+    /// Folder of the view cache (see `loading.rs`); `None`: no cache.
+    pub cache: Option<PathBuf>,
 }
 
 /// A successful plan: the deck, its warnings, and one error per claim that
@@ -74,18 +76,18 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> Pla
     }
 }
 
-struct Planner<'a> {
-    src: &'a Arc<Source>,
-    dir: &'a Path,
-    options: &'a Options,
-    diags: &'a mut Vec<Diagnostic>,
-    failed_claims: &'a mut Vec<Diagnostic>,
-    tables: Tables,
-    values: Values,
+pub(crate) struct Planner<'a> {
+    pub(crate) src: &'a Arc<Source>,
+    pub(crate) dir: &'a Path,
+    pub(crate) options: &'a Options,
+    pub(crate) diags: &'a mut Vec<Diagnostic>,
+    pub(crate) failed_claims: &'a mut Vec<Diagnostic>,
+    pub(crate) tables: Tables,
+    pub(crate) values: Values,
     /// The current sequence has no chart because its chart statement failed
     /// (or the deck starts without one) and that was reported: the frames
     /// that build on it are skipped without blaming each of them again.
-    chart_failed: bool,
+    pub(crate) chart_failed: bool,
 }
 
 /// A frame's resolved texts and what they depend on.
@@ -128,42 +130,50 @@ fn is_hex_colour(s: &str) -> bool {
 }
 
 /// A resolved chart statement: the table and the columns playing each role.
-struct ChartSpec {
-    form: ChartForm,
-    table_name: String,
-    table: Table,
+pub(crate) struct ChartSpec {
+    pub(crate) form: ChartForm,
+    pub(crate) table_name: String,
+    pub(crate) table: Table,
     /// Line: x; bars: category.
-    x: usize,
+    pub(crate) x: usize,
     /// Line: y; bars: value.
-    y: usize,
-    series: Option<usize>,
-    ordered: bool,
+    pub(crate) y: usize,
+    pub(crate) series: Option<usize>,
+    pub(crate) ordered: bool,
     /// Label of a folded "other" row, drawn last among sorted bars.
-    rest: Option<String>,
+    pub(crate) rest: Option<String>,
     /// `horizontal` or `vertical` given explicitly.
-    orientation: Option<Orientation>,
+    pub(crate) orientation: Option<Orientation>,
     /// The measure is a count of rows (for the small-counts rule).
-    measure_is_count: bool,
+    pub(crate) measure_is_count: bool,
+    /// Parts of bars (`stack`/`group`), series of dots, labels of points.
+    pub(crate) extra: Option<usize>,
+    /// `stack COL` or `group COL`.
+    pub(crate) parts_mode: Option<PartsMode>,
+    /// `fit` on a scatter.
+    pub(crate) fit: bool,
 }
 
 /// The build-up state carried from frame to frame within a sequence.
-struct SeqState {
-    chart: Chart,
+pub(crate) struct SeqState {
+    pub(crate) chart: Chart,
     /// Every series or bar name in the chart, in display order.
-    names: Vec<String>,
-    hidden: BTreeSet<String>,
-    spotlight: BTreeSet<String>,
-    x_title: Option<values::Resolved>,
-    y_title: Option<values::Resolved>,
-    view_name: String,
-    key_name: String,
+    pub(crate) names: Vec<String>,
+    pub(crate) hidden: BTreeSet<String>,
+    pub(crate) spotlight: BTreeSet<String>,
+    pub(crate) x_title: Option<values::Resolved>,
+    pub(crate) y_title: Option<values::Resolved>,
+    pub(crate) view_name: String,
+    pub(crate) key_name: String,
     /// Spotlighted table cells: (row key, column title).
-    cells: BTreeSet<(String, String)>,
+    pub(crate) cells: BTreeSet<(String, String)>,
+    /// The measure column's name (`split ... by` must name it).
+    pub(crate) measure_name: String,
     /// Where things were said, for the lint.
-    anchors: FrameAnchors,
+    pub(crate) anchors: FrameAnchors,
 }
 
-fn display(v: &Value) -> String {
+pub(crate) fn display(v: &Value) -> String {
     match v {
         Value::Missing => "(missing)".to_string(),
         Value::Number(n) => format::number(*n, None),
@@ -178,7 +188,7 @@ fn display(v: &Value) -> String {
     }
 }
 
-fn position(v: &Value) -> Option<f64> {
+pub(crate) fn position(v: &Value) -> Option<f64> {
     match v {
         Value::Number(n) => Some(*n),
         Value::Date(d) | Value::Month(d) | Value::Year(d) => Some(f64::from(*d)),
@@ -187,7 +197,7 @@ fn position(v: &Value) -> Option<f64> {
 }
 
 /// Turn an identifier like `riders_per_trip` into "Riders per trip".
-fn humanize(name: &str) -> String {
+pub(crate) fn humanize(name: &str) -> String {
     let s = name.replace('_', " ");
     let mut c = s.chars();
     match c.next() {
@@ -242,7 +252,7 @@ impl<'a> Planner<'a> {
     }
 
     /// Resolve the quoted values of a text.
-    fn text(&mut self, s: &Str) -> values::Resolved {
+    pub(crate) fn text(&mut self, s: &Str) -> values::Resolved {
         let ev = Evaluator {
             src: self.src,
             tables: &self.tables,
@@ -362,7 +372,7 @@ impl<'a> Planner<'a> {
         ))
     }
 
-    fn error(
+    pub(crate) fn error(
         &mut self,
         code: &'static str,
         msg: impl Into<String>,
@@ -390,6 +400,7 @@ impl<'a> Planner<'a> {
     }
 
     fn run(mut self, story: &ast::StoryAst, anchors: &mut Anchors) -> Option<DeckPlan> {
+        self.tables.prepare(story, self.options.cache.as_deref()); // streaming + cache
         let mut h = Header::default();
         let mut frames = Vec::new();
         let mut claims = Vec::new();
@@ -426,7 +437,10 @@ impl<'a> Planner<'a> {
                 Item::Data(d) => {
                     if self.check_unique_table(&d.name) {
                         let replacement = self.options.data.get(&d.name.name).map(PathBuf::as_path);
-                        match resolve::load_data(self.src, self.dir, d, replacement, self.diags) {
+                        match self
+                            .tables
+                            .load(self.src, self.dir, d, replacement, self.diags)
+                        {
                             Some(table) => {
                                 self.tables.by_name.insert(
                                     d.name.name.clone(),
@@ -623,25 +637,30 @@ impl<'a> Planner<'a> {
                 texts.add("source", s);
             }
             let mut fa = FrameAnchors::default();
-            if let Some(mut fp) = self.frame(
-                &h,
-                f,
-                i + 1,
-                &mut state,
-                &mut sequence,
-                &source,
-                &mut texts,
-                &mut fa,
-            ) {
-                anchors.frames.push(fa);
+            let number = planned.len() + 1;
+            let _ = i;
+            for mut fp in self
+                .frame(
+                    &h,
+                    f,
+                    number,
+                    &mut state,
+                    &mut sequence,
+                    &source,
+                    &mut texts,
+                    &mut fa,
+                )
+                .unwrap_or_default()
+            {
+                anchors.frames.push(fa.clone());
                 for (sentence, deps) in &failed {
                     if deps.iter().any(|d| texts.depends.contains(d)) {
                         fp.notices
                             .push(format!("Draft: the data does not support \"{sentence}\""));
                     }
                 }
-                fp.quoted = texts.quoted;
-                fp.templates = texts.templates;
+                fp.quoted = texts.quoted.clone();
+                fp.templates = texts.templates.clone();
                 planned.push(fp);
             }
         }
@@ -726,9 +745,10 @@ impl<'a> Planner<'a> {
         source: &Option<String>,
         texts: &mut FrameTexts,
         fa: &mut FrameAnchors,
-    ) -> Option<FramePlan> {
+    ) -> Option<Vec<FramePlan>> {
         let mut takeaway: Option<String> = None;
         let mut notes: Option<String> = None;
+        let mut reveal: Option<(Vec<Str>, ast::Span)> = None;
         let before = self.diags.len();
         for (k, stmt) in f.stmts.iter().enumerate() {
             match stmt {
@@ -758,6 +778,75 @@ impl<'a> Planner<'a> {
                     *state = Some(new);
                     self.chart_failed = false;
                     *sequence += 1;
+                }
+                FrameStmt::Figure {
+                    text,
+                    caption,
+                    span,
+                } => {
+                    let first = !f.stmts[..k]
+                        .iter()
+                        .any(|s| matches!(s, FrameStmt::Figure { .. }));
+                    if first {
+                        if k > 0 {
+                            self.error(
+                                "chart-order",
+                                "figures must come first in their frame",
+                                span.clone(),
+                                "move this to the top of the frame",
+                            );
+                            *state = None;
+                            self.chart_failed = true;
+                            return None;
+                        }
+                        *state = Some(SeqState {
+                            chart: Chart::Figures(FigureChart {
+                                figures: Vec::new(),
+                            }),
+                            names: Vec::new(),
+                            hidden: BTreeSet::new(),
+                            spotlight: BTreeSet::new(),
+                            x_title: None,
+                            y_title: None,
+                            view_name: String::new(),
+                            key_name: "figure".into(),
+                            cells: BTreeSet::new(),
+                            measure_name: String::new(),
+                            anchors: FrameAnchors {
+                                chart: span.clone(),
+                                ..FrameAnchors::default()
+                            },
+                        });
+                        *sequence += 1;
+                        self.chart_failed = false;
+                    }
+                    let figure = self.text(text);
+                    let label = self.text(caption);
+                    texts.add("figure", &figure);
+                    texts.add("caption", &label);
+                    let Some(SeqState {
+                        chart: Chart::Figures(fc),
+                        ..
+                    }) = state.as_mut()
+                    else {
+                        return None;
+                    };
+                    if fc.figures.len() == 2 {
+                        self.error(
+                            "figures",
+                            "a frame holds at most two figures",
+                            span.clone(),
+                            "a third figure",
+                        )
+                        .help =
+                            Some("one figure is the message; a second may compare with it".into());
+                        return None;
+                    }
+                    fc.figures.push(Figure {
+                        text: figure.text,
+                        caption: label.text,
+                        role: Role::Focus,
+                    });
                 }
                 other => {
                     let Some(st) = state.as_mut() else {
@@ -867,6 +956,11 @@ impl<'a> Planner<'a> {
                                 .help = Some("use `spotlight none` to remove the spotlight".into());
                                 return None;
                             }
+                            if let Targets::Cells(cells) = targets {
+                                st.cells = self.table_cells(st, cells)?;
+                                st.spotlight.clear();
+                                continue;
+                            }
                             let names = self.targets(h, st, targets, span, "spotlight")?;
                             // A spotlight shows what it lights.
                             for n in &names {
@@ -874,7 +968,35 @@ impl<'a> Planner<'a> {
                             }
                             st.spotlight = names.into_iter().collect();
                         }
-                        FrameStmt::Chart(_) => {}
+                        FrameStmt::Split(sp) => {
+                            self.split(st, sp)?;
+                            st.anchors.split = Some(sp.span.clone());
+                        }
+                        FrameStmt::Callout { at, on, text, span } => {
+                            self.callout(st, at, on, text, span)?
+                        }
+                        FrameStmt::Band {
+                            from,
+                            to,
+                            text,
+                            span,
+                        } => self.band(st, from, to, text, span)?,
+                        FrameStmt::Reference { value, text, span } => {
+                            self.reference(st, *value, text, span)?
+                        }
+                        FrameStmt::LabelEnds { span } => self.label_ends(st, span)?,
+                        FrameStmt::Reveal { order, span } => {
+                            if reveal.replace((order.clone(), span.clone())).is_some() {
+                                self.error(
+                                    "duplicate",
+                                    "this frame reveals twice",
+                                    span.clone(),
+                                    "second reveal",
+                                );
+                                return None;
+                            }
+                        }
+                        FrameStmt::Chart(_) | FrameStmt::Figure { .. } => {}
                     }
                 }
             }
@@ -913,24 +1035,129 @@ impl<'a> Planner<'a> {
             allows: per_frame.allows,
             ..st.anchors.clone()
         };
-        let chart = apply_state(st);
-        let description = describe(&chart, &st.key_name, takeaway.as_deref());
-        // The slug comes from the headline as written, so file names stay
-        // the same when the quoted numbers change.
-        Some(FramePlan {
-            number,
-            slug: slug(&f.headline.value),
-            sequence: *sequence,
-            headline: headline.text,
-            takeaway,
-            notes,
-            source: source.clone(),
-            description,
-            quoted: BTreeMap::new(),
-            templates: BTreeMap::new(),
-            notices: Vec::new(),
-            chart,
-        })
+        // `reveal`: one frame per hidden item, each showing one more.
+        let steps: Vec<Vec<String>> = match &reveal {
+            None => vec![Vec::new()],
+            Some((order, span)) => {
+                let items: Vec<String> = if order.is_empty() {
+                    st.names
+                        .iter()
+                        .filter(|n| st.hidden.contains(*n))
+                        .cloned()
+                        .collect()
+                } else {
+                    let mut items = Vec::new();
+                    for o in order {
+                        if !st.names.contains(&o.value) {
+                            let d = self.error(
+                                "unknown-series",
+                                format!("nothing named \"{}\" to reveal in this chart", o.value),
+                                o.span.clone(),
+                                "not in this chart",
+                            );
+                            if let Some(c) = closest(&o.value, st.names.iter().map(String::as_str))
+                            {
+                                d.help = Some(format!("did you mean \"{c}\"?"));
+                            }
+                            return None;
+                        }
+                        items.push(o.value.clone());
+                    }
+                    items
+                };
+                if items.is_empty() {
+                    self.error(
+                        "reveal",
+                        "nothing is hidden, so there is nothing to reveal",
+                        span.clone(),
+                        "nothing to reveal",
+                    )
+                    .help = Some("hide the series first (`hide all`), then reveal them".into());
+                    return None;
+                }
+                (1..=items.len()).map(|k| items[..k].to_vec()).collect()
+            }
+        };
+        let st = state.as_mut()?;
+        let mut out = Vec::new();
+        for shown in steps {
+            for n in &shown {
+                st.hidden.remove(n);
+            }
+            let chart = apply_state(st);
+            let description = describe(&chart, &st.key_name, takeaway.as_deref());
+            // The slug comes from the headline as written, so file names stay
+            // the same when the quoted numbers change.
+            out.push(FramePlan {
+                number: number + out.len(),
+                slug: slug(&f.headline.value),
+                sequence: *sequence,
+                headline: headline.text.clone(),
+                takeaway: takeaway.clone(),
+                notes: notes.clone(),
+                source: source.clone(),
+                description,
+                quoted: BTreeMap::new(),
+                templates: BTreeMap::new(),
+                notices: Vec::new(),
+                chart,
+            });
+        }
+        Some(out)
+    }
+
+    /// Resolve `spotlight "Row" in column, ...` against a table.
+    fn table_cells(
+        &mut self,
+        st: &SeqState,
+        cells: &[(Str, Ident)],
+    ) -> Option<BTreeSet<(String, String)>> {
+        let Chart::Table(t) = &st.chart else {
+            let span = cells.first().map_or(0..0, |c| c.1.span.clone());
+            self.error(
+                "targets",
+                "single cells can only be spotlighted in a table",
+                span,
+                "not a table",
+            );
+            return None;
+        };
+        let mut out = BTreeSet::new();
+        for (row, col) in cells {
+            if col.name.is_empty() {
+                self.error(
+                    "targets",
+                    "spotlight either rows or cells, not both in one statement",
+                    row.span.clone(),
+                    "a whole row",
+                );
+                return None;
+            }
+            if !st.names.contains(&row.value) {
+                let d = self.error(
+                    "unknown-series",
+                    format!("no row \"{}\" in this table", row.value),
+                    row.span.clone(),
+                    "not a row of this table",
+                );
+                if let Some(c) = closest(&row.value, st.names.iter().map(String::as_str)) {
+                    d.help = Some(format!("did you mean \"{c}\"?"));
+                }
+                return None;
+            }
+            let title = humanize(&col.name);
+            if !t.columns.iter().any(|c| c.title == title) {
+                self.error(
+                    "unknown-column",
+                    format!("this table has no column `{}`", col.name),
+                    col.span.clone(),
+                    "not a column of this table",
+                );
+                return None;
+            }
+            out.insert((row.value.clone(), title));
+        }
+        Some(out)
     }
 
     /// Resolve the names of a show/hide/spotlight statement.
@@ -948,6 +1175,16 @@ impl<'a> Planner<'a> {
             "series"
         };
         let wanted: Vec<Str> = match targets {
+            Targets::Cells(cells) => {
+                let span = cells.first().map_or(span.clone(), |c| c.1.span.clone());
+                self.error(
+                    "targets",
+                    format!("`{verb}` takes whole {what}s; single cells can only be spotlighted in a table"),
+                    span,
+                    "a cell",
+                );
+                return None;
+            }
             Targets::All(_) => return Some(st.names.clone()),
             Targets::None(s) => {
                 if verb == "spotlight" {
@@ -1023,18 +1260,27 @@ impl<'a> Planner<'a> {
         );
         let schema = schema_of(&table);
         let view = c.view.name.clone();
-        let (allowed, form_name): (&[OptName], &str) = match c.form {
-            ChartForm::Line => (&[OptName::X, OptName::Y, OptName::Series], "line"),
-            ChartForm::Bars => (
-                &[
-                    OptName::Category,
-                    OptName::Value,
-                    OptName::Ordered,
-                    OptName::Horizontal,
-                    OptName::Vertical,
-                ],
-                "bars",
-            ),
+        let form_name = c.form.keyword();
+        let allowed: &[OptName] = match c.form {
+            ChartForm::Line => &[OptName::X, OptName::Y, OptName::Series],
+            ChartForm::Bars => &[
+                OptName::Category,
+                OptName::Value,
+                OptName::Ordered,
+                OptName::Horizontal,
+                OptName::Vertical,
+                OptName::Stack,
+                OptName::Group,
+            ],
+            ChartForm::Dots => &[
+                OptName::Category,
+                OptName::Value,
+                OptName::Series,
+                OptName::Ordered,
+            ],
+            ChartForm::Scatter => &[OptName::X, OptName::Y, OptName::Label, OptName::Fit],
+            ChartForm::Pie => &[OptName::Category, OptName::Value],
+            ChartForm::Table => &[],
         };
         let mut chosen: Vec<(OptName, Option<&Ident>)> = Vec::new();
         let mut ok = true;
@@ -1064,7 +1310,7 @@ impl<'a> Planner<'a> {
             }
             let needs_column = !matches!(
                 o.name,
-                OptName::Ordered | OptName::Horizontal | OptName::Vertical
+                OptName::Ordered | OptName::Horizontal | OptName::Vertical | OptName::Fit
             );
             match (&o.column, needs_column) {
                 (None, true) => {
@@ -1170,9 +1416,83 @@ impl<'a> Planner<'a> {
                     rest,
                     orientation: None,
                     measure_is_count: counts.contains(&schema[y.0].0),
+                    extra: None,
+                    parts_mode: None,
+                    fit: false,
                 })
             }
-            ChartForm::Bars => {
+            ChartForm::Table => Some(ChartSpec {
+                form: c.form,
+                table_name: view,
+                table,
+                x: 0,
+                y: 0,
+                series: None,
+                ordered: true,
+                rest,
+                orientation: None,
+                measure_is_count: false,
+                extra: None,
+                parts_mode: None,
+                fit: false,
+            }),
+            ChartForm::Scatter => {
+                let pick = |me: &mut Self, n: OptName, what: &str| -> Option<(usize, ColType)> {
+                    match given(n) {
+                        Some(id) => lookup(me, id),
+                        None => {
+                            me.error(
+                                "chart-option",
+                                format!("which column runs along {what}?"),
+                                c.span.clone(),
+                                "",
+                            )
+                            .help = Some(format!("write `scatter {view}: x COLUMN, y COLUMN`"));
+                            None
+                        }
+                    }
+                };
+                let x = pick(self, OptName::X, "x")?;
+                let y = pick(self, OptName::Y, "y")?;
+                for (col, opt) in [(x, OptName::X), (y, OptName::Y)] {
+                    if !(col.1 == ColType::Number || col.1.is_time()) {
+                        let span = given(opt).map_or(c.span.clone(), |i| i.span.clone());
+                        let why = self.tables.why_text(&view, &schema[col.0].0);
+                        let d = self.error(
+                            "chart-type",
+                            format!(
+                                "a scatter places numbers, but `{}` is {}",
+                                schema[col.0].0,
+                                col.1.name()
+                            ),
+                            span,
+                            "not a number",
+                        );
+                        d.notes.extend(why);
+                        return None;
+                    }
+                }
+                let label = match given(OptName::Label) {
+                    Some(id) => Some(lookup(self, id)?.0),
+                    None => None,
+                };
+                Some(ChartSpec {
+                    form: c.form,
+                    table_name: view,
+                    table,
+                    x: x.0,
+                    y: y.0,
+                    series: None,
+                    ordered: true,
+                    rest,
+                    orientation: None,
+                    measure_is_count: false,
+                    extra: label,
+                    parts_mode: None,
+                    fit: chosen.iter().any(|(n, _)| *n == OptName::Fit),
+                })
+            }
+            ChartForm::Bars | ChartForm::Dots | ChartForm::Pie => {
                 let cat = match given(OptName::Category).or(compare_key.filter(|k| has(k))) {
                     Some(id) => lookup(self, id)?,
                     None => {
@@ -1183,7 +1503,7 @@ impl<'a> Planner<'a> {
                             "no `category` given",
                         )
                         .help = Some(format!(
-                            "write `bars {view}: category COLUMN, value COLUMN`"
+                            "write `{form_name} {view}: category COLUMN, value COLUMN`"
                         ));
                         return None;
                     }
@@ -1198,7 +1518,7 @@ impl<'a> Planner<'a> {
                             "no `value` given",
                         )
                         .help = Some(format!(
-                            "write `bars {view}: category COLUMN, value COLUMN`"
+                            "write `{form_name} {view}: category COLUMN, value COLUMN`"
                         ));
                         return None;
                     }
@@ -1235,6 +1555,21 @@ impl<'a> Planner<'a> {
                         _ => None,
                     }),
                     measure_is_count: counts.contains(&schema[val.0].0),
+                    extra: match given(OptName::Stack)
+                        .or(given(OptName::Group))
+                        .or(given(OptName::Series))
+                    {
+                        Some(id) => Some(lookup(self, id)?.0),
+                        None => None,
+                    },
+                    parts_mode: if given(OptName::Stack).is_some() {
+                        Some(PartsMode::Stacked)
+                    } else if given(OptName::Group).is_some() {
+                        Some(PartsMode::Grouped)
+                    } else {
+                        None
+                    },
+                    fit: false,
                 })
             }
         }
@@ -1242,6 +1577,10 @@ impl<'a> Planner<'a> {
 
     /// Build the chart (all series, all roles context) for a new sequence.
     fn new_sequence(&mut self, spec: ChartSpec, c: &ChartStmt) -> Option<SeqState> {
+        let is_plain_bars = c.form == ChartForm::Bars && spec.parts_mode.is_none();
+        if !(c.form == ChartForm::Line || is_plain_bars) {
+            return self.new_form(spec, c);
+        }
         let t = &spec.table;
         let xcol = &t.columns[spec.x];
         let ycol = &t.columns[spec.y];
@@ -1385,6 +1724,7 @@ impl<'a> Planner<'a> {
                     x_title: None,
                     y_title: None,
                     cells: BTreeSet::new(),
+                    measure_name: ycol.name.clone(),
                     view_name: spec.table_name.clone(),
                     key_name: spec
                         .series
@@ -1398,7 +1738,7 @@ impl<'a> Planner<'a> {
                     },
                 })
             }
-            ChartForm::Bars => {
+            _ => {
                 let mut rows: Vec<(String, Option<f64>, usize)> = Vec::new();
                 for r in 0..xcol.values.len() {
                     let label = display(&xcol.values[r]);
@@ -1506,6 +1846,7 @@ impl<'a> Planner<'a> {
                     x_title: None,
                     y_title: None,
                     cells: BTreeSet::new(),
+                    measure_name: ycol.name.clone(),
                     view_name: spec.table_name.clone(),
                     key_name: xcol.name.clone(),
                     anchors: FrameAnchors {
@@ -1717,7 +2058,7 @@ fn describe(chart: &Chart, key: &str, takeaway: Option<&str>) -> String {
 }
 
 /// Decimals needed to show multiples of `step` exactly (0.25 → 2).
-fn decimals_for(step: f64) -> usize {
+pub(crate) fn decimals_for(step: f64) -> usize {
     let mut d = 0;
     let mut s = step.abs();
     while d < 6 && (s - s.round()).abs() > 1e-9 * s.max(1.0) {
@@ -1727,7 +2068,7 @@ fn decimals_for(step: f64) -> usize {
     d
 }
 
-fn round_to(v: f64, decimals: usize) -> f64 {
+pub(crate) fn round_to(v: f64, decimals: usize) -> f64 {
     let p = 10f64.powi(decimals as i32);
     (v * p).round() / p
 }
@@ -1974,8 +2315,151 @@ mod tests {
 
 /// Text alternatives of the other chart forms.
 fn describe_more(chart: &Chart, key: &str) -> String {
-    let _ = key;
+    let lit = |r: Role| {
+        if r == Role::Focus {
+            " (highlighted)"
+        } else {
+            ""
+        }
+    };
+    let measure = |a: &Axis| {
+        a.title
+            .clone()
+            .unwrap_or_else(|| "the measure".into())
+            .to_lowercase()
+    };
     match chart {
-        _ => String::new(),
+        Chart::Line(_) | Chart::Bars(_) => String::new(),
+        Chart::Parts(p) => {
+            let kind = match p.mode {
+                PartsMode::Stacked => "Stacked bar chart",
+                PartsMode::Grouped => "Grouped bar chart",
+            };
+            let parts: Vec<String> = p
+                .parts
+                .iter()
+                .filter(|x| x.role != Role::Hidden)
+                .map(|x| format!("{}{}", x.name, lit(x.role)))
+                .collect();
+            let cats: Vec<String> = p
+                .categories
+                .iter()
+                .map(|c| format!("{} {}", c.label, c.total_label))
+                .collect();
+            format!(
+                "{kind} of {}, {} categories split by {key} into {}. Totals: {}.",
+                measure(&p.value),
+                p.categories.len(),
+                parts.join(", "),
+                cats.join("; ")
+            )
+        }
+        Chart::Dots(d) => {
+            let rows: Vec<String> = d
+                .rows
+                .iter()
+                .filter(|r| r.role != Role::Hidden)
+                .map(|r| {
+                    let vs: Vec<String> = r
+                        .values
+                        .iter()
+                        .map(|v| {
+                            v.map_or_else(
+                                || "no data".into(),
+                                |v| format::number(round_to(v, 2), None),
+                            )
+                        })
+                        .collect();
+                    format!("{} {}{}", r.label, vs.join(" / "), lit(r.role))
+                })
+                .collect();
+            format!("Dot plot of {}: {}.", measure(&d.value), rows.join("; "))
+        }
+        Chart::Scatter(s) => {
+            let mut out = format!(
+                "Scatter of {} against {}, {} points",
+                measure(&s.y),
+                measure(&s.x),
+                s.points.len()
+            );
+            if let Some(f) = &s.fit {
+                out.push_str(&format!(
+                    "; fitted line rises {} per unit{}",
+                    format::number(round_to(f.slope, 3), None),
+                    f.r.map_or(String::new(), |r| format!(
+                        ", correlation {}",
+                        format::number(round_to(r, 2), None)
+                    ))
+                ));
+            }
+            let focus: Vec<&str> = s
+                .points
+                .iter()
+                .filter(|p| p.role == Role::Focus)
+                .map(|p| p.label.as_str())
+                .collect();
+            if !focus.is_empty() {
+                out.push_str(&format!("; highlighted: {}", focus.join(", ")));
+            }
+            out.push('.');
+            out
+        }
+        Chart::Figures(f) => {
+            let figs: Vec<String> = f
+                .figures
+                .iter()
+                .map(|x| format!("{}: {}", x.text, x.caption))
+                .collect();
+            format!(
+                "Key figure{}: {}.",
+                if figs.len() == 1 { "" } else { "s" },
+                figs.join("; ")
+            )
+        }
+        Chart::Table(t) => {
+            let cols: Vec<&str> = t.columns.iter().map(|c| c.title.as_str()).collect();
+            let focus: Vec<&str> = t
+                .rows
+                .iter()
+                .filter(|r| r.role == Role::Focus || r.focus_cell.is_some())
+                .filter_map(|r| r.cells.first().map(String::as_str))
+                .collect();
+            let mut out = format!(
+                "Table of {} rows with columns {}",
+                t.rows.len(),
+                cols.join(", ")
+            );
+            if !focus.is_empty() {
+                out.push_str(&format!("; highlighted: {}", focus.join(", ")));
+            }
+            out.push('.');
+            out
+        }
+        Chart::Pie(p) => {
+            let slices: Vec<String> = p
+                .slices
+                .iter()
+                .filter(|s| s.role != Role::Hidden)
+                .map(|s| format!("{} {}{}", s.label, s.share_label, lit(s.role)))
+                .collect();
+            format!("Pie chart of shares by {key}: {}.", slices.join("; "))
+        }
+        Chart::Panels(pc) => {
+            let panels: Vec<String> = pc
+                .panels
+                .iter()
+                .filter(|p| p.role != Role::Hidden)
+                .map(|p| format!("{}{}", p.title, lit(p.role)))
+                .collect();
+            format!(
+                "Small multiples, one panel per {key} on {}: {}.",
+                if pc.common_scale {
+                    "one common scale"
+                } else {
+                    "separate scales"
+                },
+                panels.join(", ")
+            )
+        }
     }
 }

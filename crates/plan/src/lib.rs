@@ -5,11 +5,16 @@
 
 pub mod anchors;
 mod build;
+pub mod cache;
+mod forms;
+mod loading;
 pub mod model;
 mod resolve;
 pub mod scale;
+mod steps;
 pub mod style;
 pub mod values;
 
 pub use build::{plan_story, slug, Options, PlanResult, Planned};
 pub use model::*;
+pub use resolve::LoadReport;

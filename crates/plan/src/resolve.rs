@@ -1,9 +1,12 @@
 //! Name resolution and type checking of the data and view items: turns the
 //! syntax tree's `data` and `view` items into loaded tables.
 
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, BTreeSet};
 use std::path::Path;
 use std::sync::Arc;
+
+use crate::cache::Cache;
+use crescendo_data::Columns;
 
 use crescendo_data::{
     self as data, AggFn, Aggregate, ArithOp, CmpOp, ColType, CsvSpec, LoadError, Step, Table, Value,
@@ -32,6 +35,55 @@ pub struct Tables {
     pub by_name: BTreeMap<String, Named>,
     /// Names whose item failed; uses of them are not reported again.
     pub broken: Vec<String>,
+    /// What [`Tables::prepare`] learnt from the whole story.
+    pub(crate) story: StoryFacts,
+    /// Prefixes of views computed while their data item was streamed, by
+    /// view name.
+    pub(crate) streamed: BTreeMap<String, Streamed>,
+    /// For streamed data items, (data item, column) → the first data row
+    /// (0-based) and text of a text column's cell that is not a number.
+    pub(crate) first_text: BTreeMap<(String, String), (usize, String)>,
+    /// Where views are cached between builds.
+    pub(crate) cache: Option<Cache>,
+    /// What the loads did, for the command to report.
+    pub report: LoadReport,
+}
+
+/// How the data items of one plan were read (also stored in the cache
+/// folder as `report/last.json`).
+#[derive(Clone, Debug, Default, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub struct LoadReport {
+    /// Data items read in one streaming pass.
+    pub streamed: Vec<String>,
+    /// Data items loaded whole (the used columns).
+    pub loaded: Vec<String>,
+    /// Views whose streamed prefix came from the cache.
+    pub cached_views: Vec<String>,
+    /// Views whose streamed prefix was computed by this build.
+    pub computed_views: Vec<String>,
+}
+
+/// A streamed view prefix: the steps it resolved to and its table.
+pub struct Streamed {
+    /// Number of the view's steps (as written) the prefix covers.
+    pub(crate) ast_steps: usize,
+    pub(crate) steps: Vec<Step>,
+    pub(crate) table: Table,
+}
+
+/// Facts about the whole story that decide how data is read.
+#[derive(Default)]
+pub(crate) struct StoryFacts {
+    /// Every name used as an identifier anywhere in the story: a superset
+    /// of the columns anything reads.
+    pub(crate) idents: BTreeSet<String>,
+    /// Some step may see every column of a data item (a `top` before any
+    /// `by` folds by all text columns; a `table` chart may list them all).
+    pub(crate) all_columns: bool,
+    /// Data item name → its views (in story order) when the item can be
+    /// streamed: nothing but views reads it, and every view over it starts
+    /// with `keep` or `by`.
+    pub(crate) streamable: BTreeMap<String, Vec<ast::ViewDecl>>,
 }
 
 impl Tables {
@@ -40,6 +92,12 @@ impl Tables {
     /// "`riders` was read as text: data row 14 of `trips` holds `n/a`".
     pub fn why_text(&self, table: &str, column: &str) -> Option<String> {
         let root = &self.by_name.get(table)?.root;
+        if let Some((i, t)) = self.first_text.get(&(root.clone(), column.to_string())) {
+            return Some(format!(
+                "`{column}` was read as text because data row {} of `{root}` holds `{t}`",
+                i + 1
+            ));
+        }
         let data = &self.by_name.get(root)?.table;
         let col = data.columns.iter().find(|c| c.name == column)?;
         if col.ty != ColType::Text {
@@ -135,14 +193,14 @@ fn col_type(src: &Arc<Source>, id: &Ident, diags: &mut Vec<Diagnostic>) -> Optio
     })
 }
 
-/// Load one `data` item.
-pub fn load_data(
+/// The CSV spec of a `data` item; reports bad column declarations.
+pub(crate) fn data_spec(
     src: &Arc<Source>,
     story_dir: &Path,
     decl: &ast::DataDecl,
     replacement: Option<&Path>,
     diags: &mut Vec<Diagnostic>,
-) -> Option<Table> {
+) -> Option<CsvSpec> {
     let mut declared = Vec::new();
     let mut ok = true;
     for c in &decl.columns {
@@ -182,7 +240,28 @@ pub fn load_data(
             None => vec![String::new(), "NA".to_string()],
         },
     };
-    match data::load_csv(&spec) {
+    Some(spec)
+}
+
+/// Load (the selected columns of) a data file; reports its errors.
+pub(crate) fn load_reported(
+    src: &Arc<Source>,
+    decl: &ast::DataDecl,
+    spec: &CsvSpec,
+    columns: &Columns,
+    diags: &mut Vec<Diagnostic>,
+) -> Option<Table> {
+    let result = data::load_csv_columns(spec, columns);
+    report_load(src, decl, result, diags)
+}
+
+pub(crate) fn report_load<T>(
+    src: &Arc<Source>,
+    decl: &ast::DataDecl,
+    result: Result<T, LoadError>,
+    diags: &mut Vec<Diagnostic>,
+) -> Option<T> {
+    match result {
         Ok(t) => Some(t),
         Err(LoadError::Csv(d)) => {
             diags.push(d.also(
@@ -553,16 +632,64 @@ pub fn build_view(
     input: &Named,
     diags: &mut Vec<Diagnostic>,
 ) -> Option<(Table, Option<String>, std::collections::BTreeSet<String>)> {
+    // A view over a streamed data item: its prefix was computed while the
+    // file was read (see `Tables::load`).
+    let prefix = if input.is_data && input.root == decl.input.name {
+        tables.streamed.get(&decl.name.name)
+    } else {
+        None
+    };
+    build_view_inner(src, decl, tables, input, diags, prefix, &mut Vec::new())
+}
+
+/// [`build_view`], with the table of a streamed prefix to use in place of
+/// running it, and the resolved steps in `resolved_steps`.
+pub(crate) fn build_view_inner(
+    src: &Arc<Source>,
+    decl: &ast::ViewDecl,
+    tables: &Tables,
+    input: &Named,
+    diags: &mut Vec<Diagnostic>,
+    prefix: Option<&Streamed>,
+    resolved_steps: &mut Vec<Step>,
+) -> Option<(Table, Option<String>, std::collections::BTreeSet<String>)> {
     let why = |col: &str| tables.why_text(&decl.input.name, col);
     let mut table = input.table.clone();
     let mut rest_label = input.rest.clone();
     let mut counts = input.counts.clone();
-    for step in &decl.steps {
+    for (index, step) in decl.steps.iter().enumerate() {
         let schema = schema_of(&table);
         let before = diags.len();
         let at_step = format!("at this step of `{}`", decl.name.name);
         let name = at_step.as_str();
+        // `columns a, b, c`: keep only these columns, in this order.
+        if let StepAst::Columns { names, .. } = step {
+            let mut picked: Vec<usize> = Vec::new();
+            for n in names {
+                if let Some((i, _)) = column(src, &schema, name, n, diags) {
+                    if picked.contains(&i) {
+                        diags.push(
+                            Diagnostic::error(
+                                "duplicate-name",
+                                format!("`{}` is listed twice", n.name),
+                            )
+                            .at(src, n.span.clone(), "again here"),
+                        );
+                    }
+                    picked.push(i);
+                }
+            }
+            if diags.len() > before {
+                return None;
+            }
+            table = Table {
+                columns: picked.iter().map(|&i| table.columns[i].clone()).collect(),
+            };
+            counts.retain(|c| table.columns.iter().any(|t| t.name == *c));
+            continue;
+        }
         let resolved = match step {
+            StepAst::Columns { .. } => None,
             StepAst::Keep { expr, .. } => {
                 let mut ck = Checker {
                     src,
@@ -799,7 +926,23 @@ pub fn build_view(
             Step::Group { keys, .. } if keys.is_empty() => rest_label = None,
             _ => {}
         }
-        table = data::run_view(&table, std::slice::from_ref(&step));
+        resolved_steps.push(step.clone());
+        table = match prefix {
+            Some(p) if index + 1 == p.ast_steps => {
+                if *resolved_steps != p.steps {
+                    diags.push(Diagnostic::error(
+                        "internal",
+                        format!(
+                            "view `{}` resolved differently while its data was streamed",
+                            decl.name.name
+                        ),
+                    ));
+                    return None;
+                }
+                p.table.clone()
+            }
+            _ => data::run_view(&table, std::slice::from_ref(&step)),
+        };
     }
     Some((table, rest_label, counts))
 }

@@ -4,7 +4,7 @@
 //! value at the bar end; hidden bars leave their slot empty.
 
 use crate::canvas::{Align, Canvas, Label, WIDTH};
-use crate::layout::{self, fit_label, label_step, map, max_width, Region, LABEL_SIZE};
+use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
@@ -38,7 +38,7 @@ fn muted_label<'a>(theme: &Theme, text: &'a str, x: f64, top: f64, align: Align)
         text,
         x,
         top,
-        size: LABEL_SIZE,
+        size: theme.label_size,
         bold: false,
         color: theme.muted,
         align,
@@ -64,11 +64,15 @@ fn vertical(
     chart: &BarChart,
     region: Region,
 ) -> Result<(), RenderError> {
-    let lh = line_height(LABEL_SIZE);
-    let step = label_step();
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
     let domain = value_domain(chart);
     let ticks = layout::visible_ticks(&chart.value);
-    let tick_w = max_width(ticks.iter().map(|(_, l)| l.as_str()), LABEL_SIZE, false);
+    let tick_w = max_width(
+        ticks.iter().map(|(_, l)| l.as_str()),
+        theme.label_size,
+        false,
+    );
     let plot_left = if tick_w > 0.0 {
         region.left + tick_w + PAD
     } else {
@@ -78,22 +82,33 @@ fn vertical(
     let n = chart.bars.len().max(1);
     let band = (plot_right - plot_left) / n as f64;
     let cat_w = band - 8.0;
-    let two_lines = chart
-        .bars
-        .iter()
-        .any(|b| text_width(&crate::metrics::normalize(&b.label), LABEL_SIZE, false) > cat_w);
+    let two_lines = chart.bars.iter().any(|b| {
+        text_width(
+            &crate::metrics::normalize(&b.label),
+            theme.label_size,
+            false,
+        ) > cat_w
+    });
     let cat_lines = if two_lines { 2 } else { 1 };
 
     let mut top = region.top;
     if let Some(title) = chart.value.title.as_deref() {
-        let text = fit_label(title, region.right - region.left, 1, false).join(" ");
+        let text = layout::fit_label_at(
+            theme.label_size,
+            title,
+            region.right - region.left,
+            1,
+            false,
+        )
+        .join(" ");
         canvas.text(&muted_label(theme, &text, region.left, top, Align::Start))?;
         top += lh + 8.0;
     }
     let mut bottom = region.bottom;
     if let Some(title) = chart.category_title.as_deref() {
         bottom -= lh;
-        let text = fit_label(title, plot_right - plot_left, 1, false).join(" ");
+        let text = layout::fit_label_at(theme.label_size, title, plot_right - plot_left, 1, false)
+            .join(" ");
         canvas.text(&muted_label(
             theme,
             &text,
@@ -132,7 +147,7 @@ fn vertical(
     let bar_w = (band * BAR_SHARE).min(160.0);
     for (i, bar) in chart.bars.iter().enumerate() {
         let centre = plot_left + (i as f64 + 0.5) * band;
-        for (k, line) in fit_label(&bar.label, cat_w, cat_lines, false)
+        for (k, line) in layout::fit_label_at(theme.label_size, &bar.label, cat_w, cat_lines, false)
             .iter()
             .enumerate()
         {
@@ -165,7 +180,7 @@ fn vertical(
                 text: &crate::metrics::normalize(&bar.value_label),
                 x: centre,
                 top: label_top,
-                size: LABEL_SIZE,
+                size: theme.label_size,
                 bold: true,
                 color: theme.accent,
                 align: Align::Middle,
@@ -186,14 +201,21 @@ fn horizontal(
     chart: &BarChart,
     region: Region,
 ) -> Result<(), RenderError> {
-    let lh = line_height(LABEL_SIZE);
-    let step = label_step();
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
     let domain = value_domain(chart);
     let ticks = layout::visible_ticks(&chart.value);
 
     let mut top = region.top;
     if let Some(title) = chart.category_title.as_deref() {
-        let text = fit_label(title, region.right - region.left, 1, false).join(" ");
+        let text = layout::fit_label_at(
+            theme.label_size,
+            title,
+            region.right - region.left,
+            1,
+            false,
+        )
+        .join(" ");
         canvas.text(&muted_label(theme, &text, region.left, top, Align::Start))?;
         top += lh + 8.0;
     }
@@ -213,7 +235,7 @@ fn horizontal(
     let cap = WIDTH as f64 * MAX_CATEGORY_SHARE;
     let widest = max_width(
         chart.bars.iter().map(|b| b.label.as_str()),
-        LABEL_SIZE,
+        theme.label_size,
         false,
     );
     let col_w = widest.min(cap);
@@ -229,7 +251,7 @@ fn horizontal(
     // Room for value labels beyond the ends of the bars.
     let value_w = max_width(
         chart.bars.iter().map(|b| b.value_label.as_str()),
-        LABEL_SIZE,
+        theme.label_size,
         true,
     );
     let right_pad = if domain[1] > 0.0 {
@@ -246,7 +268,8 @@ fn horizontal(
     let vmap = |v: f64| map(v, domain, value_left, value_right);
 
     if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
-        let text = fit_label(title, plot_right - plot_left, 1, false).join(" ");
+        let text = layout::fit_label_at(theme.label_size, title, plot_right - plot_left, 1, false)
+            .join(" ");
         canvas.text(&muted_label(
             theme,
             &text,
@@ -258,7 +281,7 @@ fn horizontal(
     let placed: Vec<(f64, String)> = ticks
         .iter()
         .map(|(v, text)| {
-            let w = text_width(text, LABEL_SIZE, false);
+            let w = text_width(text, theme.label_size, false);
             (
                 vmap(*v)
                     .max(region.left + w / 2.0)
@@ -270,7 +293,7 @@ fn horizontal(
     let spans: Vec<(f64, f64)> = placed
         .iter()
         .map(|(c, t)| {
-            let w = text_width(t, LABEL_SIZE, false);
+            let w = text_width(t, theme.label_size, false);
             (c - w / 2.0, c + w / 2.0)
         })
         .collect();
@@ -288,7 +311,7 @@ fn horizontal(
         .enumerate()
         .map(|(i, bar)| {
             let centre = plot_top + (i as f64 + 0.5) * band;
-            let lines = fit_label(&bar.label, col_w, cat_lines, false);
+            let lines = layout::fit_label_at(theme.label_size, &bar.label, col_w, cat_lines, false);
             let first_top = centre - ((lines.len().max(1) - 1) as f64 * step + lh) / 2.0;
             (first_top, lines)
         })
@@ -333,7 +356,7 @@ fn horizontal(
                 text: &crate::metrics::normalize(&bar.value_label),
                 x,
                 top: centre - lh / 2.0,
-                size: LABEL_SIZE,
+                size: theme.label_size,
                 bold: true,
                 color: theme.accent,
                 align,

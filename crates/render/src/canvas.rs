@@ -12,7 +12,7 @@ use crate::RenderError;
 use plotters::backend::SVGBackend;
 use plotters::coord::Shift;
 use plotters::drawing::{DrawingArea, IntoDrawingArea};
-use plotters::element::{Circle, PathElement, Rectangle};
+use plotters::element::{Circle, PathElement, Polygon, Rectangle};
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 use plotters::style::{FontDesc, FontFamily, FontStyle, RGBColor, ShapeStyle, TextStyle};
 use std::sync::OnceLock;
@@ -215,6 +215,20 @@ impl<'b> Canvas<'b> {
         self.area
             .draw(&Rectangle::new([(x0, y0), (x1, y1)], style))
             .map_err(err)
+    }
+
+    /// A filled polygon without outline (pie slices).
+    pub fn polygon(&self, points: &[(f64, f64)], color: Rgb) -> Result<(), RenderError> {
+        if points.len() < 3 {
+            return Ok(());
+        }
+        let pts: Vec<(i32, i32)> = points.iter().map(|&(x, y)| (px(x), px(y))).collect();
+        let style = ShapeStyle {
+            color: rgb(color).into(),
+            filled: true,
+            stroke_width: 0,
+        };
+        self.area.draw(&Polygon::new(pts, style)).map_err(err)
     }
 
     /// Closes the document.

@@ -2,6 +2,7 @@
 //! keyboard, click and URL-hash navigation, a frame counter and speaker notes.
 //! No network access: no external scripts, styles, fonts or images.
 
+use crate::theme::{self, Rgb, Theme};
 use crescendo_plan::{DeckPlan, FramePlan};
 use std::fmt::Write;
 
@@ -21,22 +22,57 @@ pub(crate) fn escape(text: &str) -> String {
     out
 }
 
-const STYLE: &str = "\
-*{box-sizing:border-box}
-html,body{margin:0;height:100%;background:#FFFFFF;color:#1F1F1F;font-family:\"DejaVu Sans\",Helvetica,Arial,sans-serif}
-body{overflow:hidden}
-.frame{position:fixed;inset:0;display:none;align-items:center;justify-content:center;padding:2vmin}
-.frame.current{display:flex}
-.frame svg{display:block;width:100%;height:100%}
-.count{position:fixed;right:1.2em;bottom:0.8em;font-size:13px;color:#5A5A5A;user-select:none}
-.notes{display:none;position:fixed;left:0;right:0;bottom:0;max-height:40vh;overflow:auto;margin:0;padding:1em 1.5em;background:#F4F4F4;border-top:1px solid #C8C8C8;font-size:18px;line-height:1.45;color:#1F1F1F;white-space:pre-wrap}
-body.show-notes .frame.current .notes{display:block}
-";
+/// The deck's stylesheet, coloured by the effective theme: `page` and
+/// `text` colour the page, `muted` the counter and the notes button,
+/// `panel` and `rule` the notes panel. `@media print` lays out one frame
+/// per page, without the counter and the button; speaker notes print below
+/// their frame only when they were shown (`n`) before printing.
+fn style(theme: &Theme) -> String {
+    let page = theme.page.hex();
+    let text = theme.headline.hex();
+    let muted = theme.muted.hex();
+    let panel = mix(theme.page, theme.headline, 0.05).hex();
+    let rule = theme.baseline.hex();
+    format!(
+        "\
+*{{box-sizing:border-box}}
+html,body{{margin:0;height:100%;background:{page};color:{text};font-family:\"DejaVu Sans\",Helvetica,Arial,sans-serif}}
+body{{overflow:hidden}}
+.frame{{position:fixed;inset:0;display:none;align-items:center;justify-content:center;padding:2vmin}}
+.frame.current{{display:flex}}
+.frame svg{{display:block;width:100%;height:100%}}
+.count{{position:fixed;right:1.2em;bottom:0.8em;font-size:13px;color:{muted};user-select:none}}
+.notes-toggle{{position:fixed;right:1.2em;top:0.6em;z-index:2;font:inherit;font-size:13px;color:{muted};background:{page};border:1px solid {rule};border-radius:4px;padding:0.25em 0.7em;cursor:pointer}}
+.notes-toggle:focus-visible{{outline:2px solid {text};outline-offset:2px}}
+.notes{{display:none;position:fixed;left:0;right:0;bottom:0;max-height:40vh;overflow:auto;margin:0;padding:1em 1.5em;background:{panel};border-top:1px solid {rule};font-size:18px;line-height:1.45;color:{text};white-space:pre-wrap}}
+body.show-notes .frame.current .notes{{display:block}}
+@media print{{
+@page{{size:landscape;margin:8mm}}
+html,body{{height:auto;overflow:visible}}
+.frame,.frame.current{{position:static;display:block;padding:0;break-after:page;page-break-after:always;break-inside:avoid}}
+.frame:last-child{{break-after:auto;page-break-after:auto}}
+.frame svg{{width:100%;height:auto;max-height:100vh}}
+.count,.notes-toggle{{display:none}}
+.notes,body.show-notes .frame.current .notes{{display:none}}
+body.show-notes .frame .notes{{display:block;position:static;max-height:none;border:0;padding:0.5em 0;background:none;font-size:12pt}}
+}}
+"
+    )
+}
+
+/// `a` moved `share` of the way towards `b`, per channel.
+fn mix(a: Rgb, b: Rgb, share: f64) -> Rgb {
+    let ch = |x: u8, y: u8| (f64::from(x) + (f64::from(y) - f64::from(x)) * share).round() as u8;
+    Rgb(ch(a.0, b.0), ch(a.1, b.1), ch(a.2, b.2))
+}
 
 const SCRIPT: &str = "\
 (function(){
 var frames=document.querySelectorAll('.frame');
 var count=document.getElementById('count');
+var toggle=document.getElementById('notes-toggle');
+function notes(){var on=document.body.classList.toggle('show-notes');if(toggle){toggle.setAttribute('aria-pressed',on?'true':'false');}}
+if(toggle){toggle.addEventListener('click',function(e){e.stopPropagation();notes();});}
 var n=frames.length,cur=0;
 function show(i,push){
 if(n===0)return;
@@ -48,17 +84,18 @@ if(push!==false&&location.hash!=='#'+(cur+1)){history.replaceState(null,'','#'+(
 function fromHash(){var m=/^#(\\d+)$/.exec(location.hash);return m?parseInt(m[1],10)-1:0;}
 document.addEventListener('keydown',function(e){
 if(e.altKey||e.ctrlKey||e.metaKey)return;
+if(e.target===toggle&&(e.key===' '||e.key==='Enter'))return;
 switch(e.key){
 case 'ArrowRight':case 'PageDown':case ' ':show(cur+1);break;
 case 'ArrowLeft':case 'PageUp':show(cur-1);break;
 case 'Home':show(0);break;
 case 'End':show(n-1);break;
-case 'n':case 'N':document.body.classList.toggle('show-notes');break;
+case 'n':case 'N':notes();break;
 default:return;}
 e.preventDefault();
 });
 document.addEventListener('click',function(e){
-if(e.target.closest&&e.target.closest('.notes'))return;
+if(e.target.closest&&e.target.closest('.notes,.notes-toggle'))return;
 show(e.clientX>=window.innerWidth/2?cur+1:cur-1);
 });
 window.addEventListener('hashchange',function(){show(fromHash(),false);});
@@ -73,14 +110,18 @@ show(fromHash(),false);
 /// Keys: ArrowRight, PageDown and Space go forward; ArrowLeft and PageUp go
 /// back; Home and End jump to the first and last frame; `n` toggles the
 /// speaker notes. A click on the right half goes forward, on the left half
-/// back. The URL hash (`#3`) follows the current frame. The SVG strings are
-/// trusted output of [`crate::render_frame`]; every other text is escaped.
+/// back. The URL hash (`#3`) follows the current frame. A button (when any
+/// frame has notes) toggles the notes without the keyboard. Colours follow
+/// the deck's effective theme; a print stylesheet puts one frame on each
+/// page. The SVG strings are trusted output of [`crate::render_frame`];
+/// every other text is escaped.
 pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> String {
     let mut out = String::new();
     out.push_str("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n");
     out.push_str("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n");
     let _ = writeln!(out, "<title>{}</title>", escape(&deck.title));
-    let _ = write!(out, "<style>\n{STYLE}</style>\n</head>\n<body>\n");
+    let theme = theme::effective(deck).unwrap_or_else(|_| theme::CLEAR.clone());
+    let _ = write!(out, "<style>\n{}</style>\n</head>\n<body>\n", style(&theme));
     let _ = writeln!(
         out,
         "<main aria-roledescription=\"slide deck\" aria-label=\"{}\">",
@@ -108,6 +149,14 @@ pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> Strin
         out.push_str("</section>\n");
     }
     out.push_str("</main>\n");
+    let any_notes = frames
+        .iter()
+        .any(|(f, _)| f.notes.as_deref().is_some_and(|n| !n.trim().is_empty()));
+    if any_notes {
+        out.push_str(
+            "<button type=\"button\" class=\"notes-toggle\" id=\"notes-toggle\" aria-pressed=\"false\" title=\"Show or hide the speaker notes (key n)\">Notes</button>\n",
+        );
+    }
     let _ = writeln!(
         out,
         "<div class=\"count\" id=\"count\" aria-live=\"polite\">{} / {}</div>",

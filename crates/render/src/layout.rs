@@ -30,20 +30,23 @@ pub const MARGIN_TOP: f64 = 36.0;
 /// Bottom page margin (below the source note box).
 pub const MARGIN_BOTTOM: f64 = 26.0;
 
-const HEADLINE_STEP: f64 = 40.0;
-const TAKEAWAY_STEP: f64 = 25.0;
+/// Line pitch of wrapped headlines and takeaways, as a multiple of the size
+/// (40 px for the 32 px headline, 25 px for the 20 px takeaway).
+const LINE_PITCH: f64 = 1.25;
 const HEADLINE_GAP: f64 = 8.0;
 const HEADER_TO_CHART: f64 = 26.0;
 const CHART_TO_SOURCE: f64 = 18.0;
 /// At most this many lines of headline and of takeaway.
 const MAX_TEXT_LINES: usize = 2;
 
-/// Vertical distance between two rows of 16 px labels.
+/// Vertical distance between two rows of 16 px labels (the default theme;
+/// [`Theme::label_step`] follows a house style).
 pub fn label_step() -> f64 {
     line_height(LABEL_SIZE) + 2.0
 }
 
-/// Width available to full-width text.
+/// Width available to full-width text with the default margins
+/// ([`Theme::text_column`] follows a house style).
 pub fn text_column() -> f64 {
     WIDTH as f64 - 2.0 * MARGIN_X
 }
@@ -61,35 +64,49 @@ pub struct Region {
     pub bottom: f64,
 }
 
-struct Header {
+struct Header<'t> {
+    theme: &'t Theme,
     headline: Vec<String>,
     takeaway: Vec<String>,
 }
 
-impl Header {
-    fn of(frame: &FramePlan) -> Self {
+impl<'t> Header<'t> {
+    fn of(frame: &FramePlan, theme: &'t Theme) -> Self {
         let headline = metrics::wrap(
             &frame.headline,
-            HEADLINE_SIZE,
+            theme.headline_size,
             true,
-            text_column(),
+            theme.text_column(),
             MAX_TEXT_LINES,
         );
         let takeaway = frame
             .takeaway
             .as_deref()
-            .map(|t| metrics::wrap(t, TAKEAWAY_SIZE, false, text_column(), MAX_TEXT_LINES))
+            .map(|t| {
+                metrics::wrap(
+                    t,
+                    theme.takeaway_size,
+                    false,
+                    theme.text_column(),
+                    MAX_TEXT_LINES,
+                )
+            })
             .unwrap_or_default();
-        Self { headline, takeaway }
+        Self {
+            theme,
+            headline,
+            takeaway,
+        }
     }
 
     fn takeaway_top(&self) -> f64 {
+        let t = self.theme;
         match self.headline.len() {
-            0 => MARGIN_TOP,
+            0 => t.margin_top,
             n => {
-                MARGIN_TOP
-                    + (n - 1) as f64 * HEADLINE_STEP
-                    + line_height(HEADLINE_SIZE)
+                t.margin_top
+                    + (n - 1) as f64 * t.headline_size * LINE_PITCH
+                    + line_height(t.headline_size)
                     + HEADLINE_GAP
             }
         }
@@ -97,11 +114,14 @@ impl Header {
 
     /// Bottom of the last text box of the block.
     fn bottom(&self) -> f64 {
+        let th = self.theme;
         match (self.headline.len(), self.takeaway.len()) {
-            (0, 0) => MARGIN_TOP,
+            (0, 0) => th.margin_top,
             (_, 0) => self.takeaway_top() - HEADLINE_GAP,
             (_, t) => {
-                self.takeaway_top() + (t - 1) as f64 * TAKEAWAY_STEP + line_height(TAKEAWAY_SIZE)
+                self.takeaway_top()
+                    + (t - 1) as f64 * th.takeaway_size * LINE_PITCH
+                    + line_height(th.takeaway_size)
             }
         }
     }
@@ -129,8 +149,8 @@ fn source_of<'a>(deck: &'a DeckPlan, frame: &'a FramePlan) -> Option<String> {
         .filter(|s| !s.is_empty())
 }
 
-fn source_top() -> f64 {
-    HEIGHT as f64 - MARGIN_BOTTOM - line_height(SOURCE_SIZE)
+fn source_top(theme: &Theme) -> f64 {
+    HEIGHT as f64 - theme.margin_bottom - line_height(theme.source_size)
 }
 
 /// Draws the headline, takeaway and source note of `frame` and returns the
@@ -141,13 +161,14 @@ pub fn draw_page(
     deck: &DeckPlan,
     frame: &FramePlan,
 ) -> Result<Region, RenderError> {
-    let header = Header::of(frame);
+    let header = Header::of(frame, theme);
+    let margin_x = theme.margin_x;
     for (i, line) in header.headline.iter().enumerate() {
         canvas.text(&Label {
             text: line,
-            x: MARGIN_X,
-            top: MARGIN_TOP + i as f64 * HEADLINE_STEP,
-            size: HEADLINE_SIZE,
+            x: margin_x,
+            top: theme.margin_top + i as f64 * theme.headline_size * LINE_PITCH,
+            size: theme.headline_size,
             bold: true,
             color: theme.headline,
             align: Align::Start,
@@ -157,9 +178,9 @@ pub fn draw_page(
     for (i, line) in header.takeaway.iter().enumerate() {
         canvas.text(&Label {
             text: line,
-            x: MARGIN_X,
-            top: takeaway_top + i as f64 * TAKEAWAY_STEP,
-            size: TAKEAWAY_SIZE,
+            x: margin_x,
+            top: takeaway_top + i as f64 * theme.takeaway_size * LINE_PITCH,
+            size: theme.takeaway_size,
             bold: false,
             color: theme.takeaway,
             align: Align::Start,
@@ -169,15 +190,15 @@ pub fn draw_page(
     // longer supports: bold, in the accent colour, at the bottom right.
     let notice = frame.notices.join("  ·  ");
     let source_width = if notice.is_empty() {
-        text_column()
+        theme.text_column()
     } else {
-        let half = text_column() / 2.0 - 12.0;
-        let text = metrics::ellipsize(&notice, SOURCE_SIZE, true, half);
+        let half = theme.text_column() / 2.0 - 12.0;
+        let text = metrics::ellipsize(&notice, theme.source_size, true, half);
         canvas.text(&Label {
             text: &text,
-            x: WIDTH as f64 - MARGIN_X,
-            top: source_top(),
-            size: SOURCE_SIZE,
+            x: WIDTH as f64 - margin_x,
+            top: source_top(theme),
+            size: theme.source_size,
             bold: true,
             color: theme.accent,
             align: Align::End,
@@ -185,12 +206,12 @@ pub fn draw_page(
         half
     };
     if let Some(source) = source_of(deck, frame) {
-        let text = metrics::ellipsize(&source, SOURCE_SIZE, false, source_width);
+        let text = metrics::ellipsize(&source, theme.source_size, false, source_width);
         canvas.text(&Label {
             text: &text,
-            x: MARGIN_X,
-            top: source_top(),
-            size: SOURCE_SIZE,
+            x: margin_x,
+            top: source_top(theme),
+            size: theme.source_size,
             bold: false,
             color: theme.muted,
             align: Align::Start,
@@ -200,20 +221,20 @@ pub fn draw_page(
     let frames = sequence(deck, frame);
     let header_bottom = frames
         .iter()
-        .map(|f| Header::of(f).bottom())
-        .fold(MARGIN_TOP, f64::max);
+        .map(|f| Header::of(f, theme).bottom())
+        .fold(theme.margin_top, f64::max);
     let any_source = frames
         .iter()
         .any(|f| source_of(deck, f).is_some() || !f.notices.is_empty());
     let bottom = if any_source {
-        source_top() - CHART_TO_SOURCE
+        source_top(theme) - CHART_TO_SOURCE
     } else {
-        HEIGHT as f64 - MARGIN_BOTTOM
+        HEIGHT as f64 - theme.margin_bottom
     };
     Ok(Region {
-        left: MARGIN_X,
+        left: margin_x,
         top: header_bottom + HEADER_TO_CHART,
-        right: WIDTH as f64 - MARGIN_X,
+        right: WIDTH as f64 - margin_x,
         bottom,
     })
 }
@@ -336,17 +357,22 @@ pub fn spread(wanted: &[f64], gap: f64, lo: f64, hi: f64) -> Vec<f64> {
 }
 
 /// Text of a category or series label fitted into `width`, on at most
-/// `lines` lines.
+/// `lines` lines, at the default label size.
 pub fn fit_label(text: &str, width: f64, lines: usize, bold: bool) -> Vec<String> {
+    fit_label_at(LABEL_SIZE, text, width, lines, bold)
+}
+
+/// [`fit_label`] at `size` px (a theme's [`Theme::label_size`]).
+pub fn fit_label_at(size: f64, text: &str, width: f64, lines: usize, bold: bool) -> Vec<String> {
     if lines <= 1 {
-        let t = metrics::ellipsize(&metrics::normalize(text), LABEL_SIZE, bold, width);
+        let t = metrics::ellipsize(&metrics::normalize(text), size, bold, width);
         if t.is_empty() {
             Vec::new()
         } else {
             vec![t]
         }
     } else {
-        metrics::wrap(text, LABEL_SIZE, bold, width, lines)
+        metrics::wrap(text, size, bold, width, lines)
     }
 }
 

@@ -11,19 +11,30 @@
 
 #![warn(missing_docs)]
 
+mod annotate;
 mod bars;
 pub mod canvas;
+mod dots;
+mod figures;
 mod html;
 pub mod inspect;
+mod kit;
 pub mod layout;
 mod line;
+pub mod lttb;
 pub mod metrics;
+mod panels;
+mod parts;
+mod pie;
+mod scatter;
+mod table;
 pub mod theme;
 
 use crescendo_plan::{Chart, DeckPlan, FramePlan};
 use std::fmt;
 
 pub use html::render_deck_html;
+pub use lttb::lttb;
 pub use theme::{Rgb, Theme};
 
 /// Why a frame could not be drawn.
@@ -60,13 +71,43 @@ pub fn render_frame(deck: &DeckPlan, frame: &FramePlan) -> Result<String, Render
     let mut buf = String::new();
     {
         let canvas = canvas::Canvas::new(&mut buf)?;
+        if let Some(page) = theme.background {
+            // A dark theme or a house style with a page colour paints the
+            // whole canvas first.
+            canvas.rect(
+                (0.0, 0.0),
+                (f64::from(canvas::WIDTH), f64::from(canvas::HEIGHT)),
+                page,
+            )?;
+        }
         let region = layout::draw_page(&canvas, theme, deck, frame)?;
         match &frame.chart {
             Chart::Line(chart) => line::draw(&canvas, theme, chart, region)?,
             Chart::Bars(chart) => bars::draw(&canvas, theme, chart, region)?,
-            _ => return Err(RenderError::new("this chart form cannot be drawn yet")),
+            Chart::Parts(chart) => parts::draw(&canvas, theme, chart, region)?,
+            Chart::Dots(chart) => dots::draw(&canvas, theme, chart, region)?,
+            Chart::Scatter(chart) => scatter::draw(&canvas, theme, chart, region)?,
+            Chart::Figures(chart) => figures::draw(&canvas, theme, chart, region)?,
+            Chart::Table(chart) => table::draw(&canvas, theme, chart, region)?,
+            Chart::Pie(chart) => pie::draw(&canvas, theme, chart, region)?,
+            Chart::Panels(chart) => panels::draw(&canvas, theme, chart, region)?,
         }
         canvas.finish()?;
+    }
+    if theme.font_family != canvas::FONT_FAMILY {
+        // Text is measured and registered with plotters as the bundled font;
+        // the SVG names the house style's stack instead.
+        buf = buf.replace(
+            &format!("font-family=\"{}\"", canvas::FONT_FAMILY),
+            &format!(
+                "font-family=\"{}\"",
+                theme
+                    .font_family
+                    .replace('&', "&amp;")
+                    .replace('<', "&lt;")
+                    .replace('"', "&quot;")
+            ),
+        );
     }
     Ok(with_text_alternative(&buf, frame))
 }
@@ -93,5 +134,7 @@ fn with_text_alternative(svg: &str, frame: &FramePlan) -> String {
     out
 }
 
+#[cfg(test)]
+mod forms_tests;
 #[cfg(test)]
 mod tests;

@@ -1,13 +1,18 @@
 //! Line charts: y ticks at the left without an axis line, a light baseline,
 //! x ticks centred under their positions, grey context lines under a heavier
 //! accent focus line, and direct labels at the right instead of a legend.
+//! Bands and reference lines go under the data; their names, end values and
+//! callouts go over it ([`crate::annotate`]). Lines with more than about two
+//! points per pixel of plot width are thinned with LTTB ([`crate::lttb`]).
 
-use crate::canvas::{Align, Canvas, Label, WIDTH};
-use crate::layout::{self, fit_label, label_step, map, max_width, Region, LABEL_SIZE, MARGIN_X};
+use crate::annotate;
+use crate::canvas::{Align, Canvas, Label};
+use crate::kit::{self, Obstacles};
+use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{LineChart, Role};
+use crescendo_plan::{LineChart, Role, Series};
 
 /// Widest direct-label column, in px; longer labels are cut with an ellipsis.
 const MAX_LABEL_COLUMN: f64 = 280.0;
@@ -31,8 +36,8 @@ pub(crate) struct LineLayout {
     pub x_tick_top: f64,
 }
 
-pub(crate) fn layout(chart: &LineChart, region: Region) -> LineLayout {
-    let lh = line_height(LABEL_SIZE);
+pub(crate) fn layout(chart: &LineChart, region: Region, theme: &Theme) -> LineLayout {
+    let lh = line_height(theme.label_size);
     let mut top = region.top;
     let y_title_top = chart.y.title.as_ref().map(|_| {
         let t = top;
@@ -52,7 +57,11 @@ pub(crate) fn layout(chart: &LineChart, region: Region) -> LineLayout {
     let plot_bottom = x_tick_top - 8.0;
 
     let y_ticks = layout::visible_ticks(&chart.y);
-    let tick_w = max_width(y_ticks.iter().map(|(_, l)| l.as_str()), LABEL_SIZE, false);
+    let tick_w = max_width(
+        y_ticks.iter().map(|(_, l)| l.as_str()),
+        theme.label_size,
+        false,
+    );
     let tick_column_left = region.left;
     let tick_column_right = region.left + tick_w;
     let plot_left = if tick_w > 0.0 {
@@ -63,7 +72,7 @@ pub(crate) fn layout(chart: &LineChart, region: Region) -> LineLayout {
 
     let label_w = max_width(
         chart.series.iter().map(|s| s.label.as_str()),
-        LABEL_SIZE,
+        theme.label_size,
         true,
     )
     .min(MAX_LABEL_COLUMN);
@@ -95,36 +104,52 @@ pub(crate) fn draw(
 ) -> Result<(), RenderError> {
     layout::check_axis(&chart.x, "x")?;
     layout::check_axis(&chart.y, "y")?;
-    let l = layout(chart, region);
-    let lh = line_height(LABEL_SIZE);
-    let full = WIDTH as f64 - 2.0 * MARGIN_X;
+    let l = layout(chart, region, theme);
+    let lh = line_height(theme.label_size);
+    let full = theme.text_column();
     let xmap = |x: f64| map(x, chart.x.domain, l.plot_left, l.plot_right);
     let ymap = |y: f64| map(y, chart.y.domain, l.plot_bottom, l.plot_top);
+    let mut obstacles = Obstacles::default();
 
     // Axis titles.
     if let (Some(top), Some(title)) = (l.y_title_top, chart.y.title.as_deref()) {
-        let text = fit_label(title, full, 1, false).join(" ");
-        canvas.text(&Label {
-            text: &text,
-            x: l.tick_column_left,
-            top,
-            size: LABEL_SIZE,
-            bold: false,
-            color: theme.muted,
-            align: Align::Start,
-        })?;
+        let text = layout::fit_label_at(theme.label_size, title, full, 1, false).join(" ");
+        kit::put(
+            canvas,
+            &mut obstacles,
+            &Label {
+                text: &text,
+                x: l.tick_column_left,
+                top,
+                size: theme.label_size,
+                bold: false,
+                color: theme.muted,
+                align: Align::Start,
+            },
+        )?;
     }
     if let (Some(top), Some(title)) = (l.x_title_top, chart.x.title.as_deref()) {
-        let text = fit_label(title, l.plot_right - l.plot_left, 1, false).join(" ");
-        canvas.text(&Label {
-            text: &text,
-            x: (l.plot_left + l.plot_right) / 2.0,
-            top,
-            size: LABEL_SIZE,
-            bold: false,
-            color: theme.muted,
-            align: Align::Middle,
-        })?;
+        let text = layout::fit_label_at(
+            theme.label_size,
+            title,
+            l.plot_right - l.plot_left,
+            1,
+            false,
+        )
+        .join(" ");
+        kit::put(
+            canvas,
+            &mut obstacles,
+            &Label {
+                text: &text,
+                x: (l.plot_left + l.plot_right) / 2.0,
+                top,
+                size: theme.label_size,
+                bold: false,
+                color: theme.muted,
+                align: Align::Middle,
+            },
+        )?;
     }
 
     // Y ticks, right-aligned in their column, thinned if crowded.
@@ -135,15 +160,19 @@ pub(crate) fn draw(
         .collect();
     for ((v, text), keep) in y_ticks.iter().zip(layout::thin(&spans, 2.0)) {
         if keep {
-            canvas.text(&Label {
-                text,
-                x: l.tick_column_right,
-                top: ymap(*v) - lh / 2.0,
-                size: LABEL_SIZE,
-                bold: false,
-                color: theme.muted,
-                align: Align::End,
-            })?;
+            kit::put(
+                canvas,
+                &mut obstacles,
+                &Label {
+                    text,
+                    x: l.tick_column_right,
+                    top: ymap(*v) - lh / 2.0,
+                    size: theme.label_size,
+                    bold: false,
+                    color: theme.muted,
+                    align: Align::End,
+                },
+            )?;
         }
     }
 
@@ -151,7 +180,7 @@ pub(crate) fn draw(
     let x_ticks: Vec<(f64, f64, String)> = layout::visible_ticks(&chart.x)
         .into_iter()
         .map(|(v, text)| {
-            let w = text_width(&text, LABEL_SIZE, false).min(l.plot_right - l.plot_left);
+            let w = text_width(&text, theme.label_size, false).min(l.plot_right - l.plot_left);
             let centre = xmap(v)
                 .max(l.plot_left + w / 2.0)
                 .min(l.plot_right - w / 2.0);
@@ -164,15 +193,19 @@ pub(crate) fn draw(
         .collect();
     for ((centre, _, text), keep) in x_ticks.iter().zip(layout::thin(&spans, 12.0)) {
         if keep {
-            canvas.text(&Label {
-                text,
-                x: *centre,
-                top: l.x_tick_top,
-                size: LABEL_SIZE,
-                bold: false,
-                color: theme.muted,
-                align: Align::Middle,
-            })?;
+            kit::put(
+                canvas,
+                &mut obstacles,
+                &Label {
+                    text,
+                    x: *centre,
+                    top: l.x_tick_top,
+                    size: theme.label_size,
+                    bold: false,
+                    color: theme.muted,
+                    align: Align::Middle,
+                },
+            )?;
         }
     }
 
@@ -184,29 +217,19 @@ pub(crate) fn draw(
         theme.baseline_stroke,
     )?;
 
+    annotate::draw_under(canvas, theme, chart, &l)?;
+
     // Lines: context first, focus on top; a missing value breaks the line.
+    let target = (2.0 * (l.plot_right - l.plot_left)).max(3.0) as usize;
     for pass in [Role::Context, Role::Focus] {
         for series in chart.series.iter().filter(|s| s.role == pass) {
             let (color, width) = match pass {
                 Role::Focus => (theme.accent, theme.focus_stroke),
                 _ => (theme.context, theme.context_stroke),
             };
-            let mut run: Vec<(f64, f64)> = Vec::new();
-            let mut runs: Vec<Vec<(f64, f64)>> = Vec::new();
-            for p in &series.points {
-                match p.y.filter(|y| y.is_finite()) {
-                    Some(y) if p.x.is_finite() => run.push((xmap(p.x), ymap(y))),
-                    _ => runs.push(std::mem::take(&mut run)),
-                }
-            }
-            runs.push(run);
-            for run in runs.iter().filter(|r| !r.is_empty()) {
-                if run.len() == 1 {
-                    // An isolated value would otherwise vanish.
-                    canvas.dot(run[0], width, color)?;
-                } else {
-                    canvas.polyline(run, color, width)?;
-                }
+            let drawn = draw_runs(canvas, &runs(series, &xmap, &ymap), target, color, width)?;
+            for run in &drawn {
+                obstacles.add_polyline(run);
             }
         }
     }
@@ -227,7 +250,7 @@ pub(crate) fn draw(
         .collect();
     ends.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
     let wanted: Vec<f64> = ends.iter().map(|e| e.0).collect();
-    let placed = layout::spread(&wanted, label_step(), l.plot_top, l.plot_bottom);
+    let placed = layout::spread(&wanted, theme.label_step(), l.plot_top, l.plot_bottom);
     for ((_, i), centre) in ends.iter().zip(placed) {
         let series = &chart.series[*i];
         let (color, bold) = match series.role {
@@ -236,16 +259,67 @@ pub(crate) fn draw(
             Role::Context => (theme.context_text, false),
         };
         // Fitted at bold width so the text is the same in every role.
-        let text = fit_label(&series.label, l.label_column_width, 1, true).join(" ");
-        canvas.text(&Label {
-            text: &text,
-            x: l.label_column_left,
-            top: centre - lh / 2.0,
-            size: LABEL_SIZE,
-            bold,
-            color,
-            align: Align::Start,
-        })?;
+        let text = layout::fit_label_at(
+            theme.label_size,
+            &series.label,
+            l.label_column_width,
+            1,
+            true,
+        )
+        .join(" ");
+        kit::put(
+            canvas,
+            &mut obstacles,
+            &Label {
+                text: &text,
+                x: l.label_column_left,
+                top: centre - lh / 2.0,
+                size: theme.label_size,
+                bold,
+                color,
+                align: Align::Start,
+            },
+        )?;
     }
-    Ok(())
+    annotate::draw_over(canvas, theme, chart, &l, &mut obstacles)
+}
+
+/// The runs of a series in px: a missing (or non-finite) value ends a run.
+pub(crate) fn runs(
+    series: &Series,
+    xmap: &impl Fn(f64) -> f64,
+    ymap: &impl Fn(f64) -> f64,
+) -> Vec<Vec<(f64, f64)>> {
+    let mut run: Vec<(f64, f64)> = Vec::new();
+    let mut out: Vec<Vec<(f64, f64)>> = Vec::new();
+    for p in &series.points {
+        match p.y.filter(|y| y.is_finite()) {
+            Some(y) if p.x.is_finite() => run.push((xmap(p.x), ymap(y))),
+            _ => out.push(std::mem::take(&mut run)),
+        }
+    }
+    out.push(run);
+    out.retain(|r| !r.is_empty());
+    out
+}
+
+/// Draws the runs of one line, thinned with LTTB to about `target` points
+/// when it has more; a run of one point becomes a dot so it does not
+/// vanish. Returns the runs as drawn.
+pub(crate) fn draw_runs(
+    canvas: &Canvas<'_>,
+    runs: &[Vec<(f64, f64)>],
+    target: usize,
+    color: crate::theme::Rgb,
+    width: u32,
+) -> Result<Vec<Vec<(f64, f64)>>, RenderError> {
+    let runs = crate::lttb::downsample_runs(runs, target);
+    for run in &runs {
+        if run.len() == 1 {
+            canvas.dot(run[0], width, color)?;
+        } else {
+            canvas.polyline(run, color, width)?;
+        }
+    }
+    Ok(runs)
 }

@@ -191,13 +191,56 @@ pub const PRINT: Theme = Theme {
 /// Every built-in theme, in the order of `crescendo_plan::THEMES`.
 pub const THEMES: &[&Theme] = &[&CLEAR, &EVENING, &PRINT];
 
-/// The theme a deck is drawn with: its named theme, with the story's
-/// accent colour (`accent "#RRGGBB"`) in place of the theme's own.
+/// The theme a deck is drawn with: its named theme, then the house style
+/// (`style "house.toml"`: fonts, sizes, colours, margins), then the story's
+/// own accent colour (`accent "#RRGGBB"`), each replacing what it sets.
+/// A house style that sets the page colour paints it behind every frame.
 pub fn effective(deck: &crescendo_plan::DeckPlan) -> Result<Theme, RenderError> {
     let mut t = theme(&deck.theme)?.clone();
+    let colour = |hex: &str| {
+        Rgb::from_hex(hex).ok_or_else(|| RenderError::new(format!("`{hex}` is not a colour")))
+    };
+    if let Some(style) = &deck.style {
+        let set = |slot: &mut Rgb, value: &Option<String>| -> Result<(), RenderError> {
+            if let Some(hex) = value {
+                *slot = colour(hex)?;
+            }
+            Ok(())
+        };
+        set(&mut t.accent, &style.accent)?;
+        set(&mut t.headline, &style.headline)?;
+        set(&mut t.takeaway, &style.takeaway)?;
+        set(&mut t.muted, &style.small_text)?;
+        set(&mut t.context, &style.context)?;
+        set(&mut t.context_text, &style.context_labels)?;
+        set(&mut t.baseline, &style.baseline)?;
+        if let Some(hex) = &style.page {
+            t.page = colour(hex)?;
+            t.background = Some(t.page);
+        }
+        if let Some(f) = &style.font_family {
+            t.font_family = Cow::Owned(f.clone());
+        }
+        let size = |slot: &mut f64, value: Option<f64>| {
+            if let Some(v) = value.filter(|v| v.is_finite() && *v >= crate::layout::SOURCE_SIZE) {
+                *slot = v;
+            }
+        };
+        size(&mut t.headline_size, style.headline_size);
+        size(&mut t.takeaway_size, style.takeaway_size);
+        size(&mut t.label_size, style.label_size);
+        size(&mut t.source_size, style.source_size);
+        let margin = |slot: &mut f64, value: Option<f64>| {
+            if let Some(v) = value.filter(|v| v.is_finite() && *v >= 0.0 && *v <= 200.0) {
+                *slot = v;
+            }
+        };
+        margin(&mut t.margin_x, style.margin_sides);
+        margin(&mut t.margin_top, style.margin_top);
+        margin(&mut t.margin_bottom, style.margin_bottom);
+    }
     if let Some(hex) = &deck.accent {
-        t.accent = Rgb::from_hex(hex)
-            .ok_or_else(|| RenderError::new(format!("`{hex}` is not a colour")))?;
+        t.accent = colour(hex)?;
     }
     Ok(t)
 }
@@ -261,6 +304,93 @@ mod tests {
             t.accent.contrast(t.context) > 1.5,
             "accent must differ from grey in lightness too"
         );
+    }
+
+    // The same thresholds for every built-in theme; the lint
+    // (crates/lint, `text-contrast`, `marks-contrast`, `focus-confusable`)
+    // checks the effective theme of every demo story too.
+    #[test]
+    fn every_theme_meets_wcag_contrast() {
+        for t in THEMES {
+            for (what, c, min) in [
+                ("headline", t.headline, 3.0),
+                ("takeaway", t.takeaway, 4.5),
+                ("muted", t.muted, 4.5),
+                ("context_text", t.context_text, 4.5),
+                ("accent", t.accent, 4.5),
+                ("context", t.context, 3.0),
+            ] {
+                let r = t.page.contrast(c);
+                assert!(r >= min, "{}: {what} {r:.2}", t.name);
+            }
+            assert!(t.accent.contrast(t.context) > 1.5, "{}", t.name);
+            if let Some(bg) = t.background {
+                assert_eq!(
+                    bg, t.page,
+                    "{}: the painted page is the checked page",
+                    t.name
+                );
+            }
+        }
+        // the dark theme paints its page; the light ones stay transparent
+        assert!(EVENING.background.is_some());
+        assert!(CLEAR.background.is_none() && PRINT.background.is_none());
+        assert!(EVENING.page.relative_luminance() < 0.05);
+    }
+
+    fn deck_with(style: Option<crescendo_plan::style::HouseStyle>) -> crescendo_plan::DeckPlan {
+        crescendo_plan::DeckPlan {
+            title: "t".into(),
+            byline: None,
+            source: None,
+            theme: "clear".into(),
+            conclusion: None,
+            accent: None,
+            style,
+            values: Default::default(),
+            claims: Vec::new(),
+            frames: Vec::new(),
+        }
+    }
+
+    #[test]
+    fn a_house_style_applies_over_the_theme_and_the_accent_over_both() {
+        assert_eq!(effective(&deck_with(None)).unwrap(), CLEAR);
+        let style = crescendo_plan::style::HouseStyle {
+            font_family: Some("'Atkinson Hyperlegible', sans-serif".into()),
+            headline_size: Some(36.0),
+            label_size: Some(18.0),
+            accent: Some("#0E6B50".into()),
+            page: Some("#FBFAF7".into()),
+            context: Some("#858585".into()),
+            margin_sides: Some(64.0),
+            ..Default::default()
+        };
+        let mut deck = deck_with(Some(style));
+        let t = effective(&deck).unwrap();
+        assert_eq!(t.accent, Rgb(0x0E, 0x6B, 0x50));
+        assert_eq!(t.background, Some(Rgb(0xFB, 0xFA, 0xF7)));
+        assert_eq!(t.page, Rgb(0xFB, 0xFA, 0xF7));
+        assert_eq!(t.context, Rgb(0x85, 0x85, 0x85));
+        assert_eq!(t.context_text, CLEAR.context_text);
+        assert_eq!(
+            (t.headline_size, t.label_size, t.source_size),
+            (36.0, 18.0, 14.0)
+        );
+        assert_eq!(t.text_column(), 1280.0 - 128.0);
+        assert_eq!(t.font_family, "'Atkinson Hyperlegible', sans-serif");
+        deck.accent = Some("#7A1F5C".into());
+        assert_eq!(effective(&deck).unwrap().accent, Rgb(0x7A, 0x1F, 0x5C));
+    }
+
+    #[test]
+    fn every_size_a_style_may_set_is_written_exactly() {
+        // plotters writes `font-size` as the requested size / 1.24; every
+        // whole size from 14 to 72 px must come out as written.
+        for px in 14..=72 {
+            let s = crate::canvas::requested_size(f64::from(px));
+            assert_eq!(format!("{}", s / 1.24), px.to_string());
+        }
     }
 
     #[test]

@@ -1,7 +1,7 @@
 //! `headline-cut`: a headline too long for its two lines.
 
 use crescendo_diag::Severity;
-use crescendo_render::{layout, metrics};
+use crescendo_render::metrics;
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};
@@ -23,9 +23,11 @@ pub static RULE: Rule = Rule {
 };
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
-    let width = layout::text_column();
+    // The effective theme: a house style may change the size and margins.
+    let width = input.theme.text_column();
+    let size = input.theme.headline_size;
     for (i, f, a) in frames(input) {
-        let lines = metrics::wrap(&f.headline, layout::HEADLINE_SIZE, true, width, usize::MAX);
+        let lines = metrics::wrap(&f.headline, size, true, width, usize::MAX);
         if lines.len() > 2 {
             out.push(Finding {
                 frame: Some(i),

@@ -2,6 +2,8 @@
 
 use crescendo_diag::Severity;
 
+use crescendo_plan::Chart;
+
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};
 
@@ -23,9 +25,11 @@ pub static RULE: Rule = Rule {
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     let mut seen_chart = Vec::new();
-    for (i, _, a) in frames(input) {
+    for (i, f, a) in frames(input) {
+        // forms without a measure axis need no title
+        let has_axis = !matches!(f.chart, Chart::Figures(_) | Chart::Table(_) | Chart::Pie(_));
         // once per sequence: the first frame of the chart
-        if a.y_title.is_none() && !seen_chart.contains(&a.chart) {
+        if has_axis && a.y_title.is_none() && !seen_chart.contains(&a.chart) {
             seen_chart.push(a.chart.clone());
             out.push(Finding {
                 frame: Some(i),

@@ -15,9 +15,12 @@ mod lines_tangle;
 mod marks_contrast;
 mod measure_unnamed;
 mod no_conclusion;
+mod panels_own_scales;
+mod pie_crowded;
 mod small_counts;
 mod source_missing;
 mod spotlight_crowd;
+mod stack_middle;
 mod text_contrast;
 mod ticks_crowded;
 mod trailing_zeros;
@@ -46,6 +49,9 @@ pub static RULES: &[&Rule] = &[
     &marks_contrast::RULE,
     &focus_confusable::RULE,
     &spotlight_crowd::RULE,
+    &pie_crowded::RULE,
+    &stack_middle::RULE,
+    &panels_own_scales::RULE,
     &frame_empty::RULE,
     &small_counts::RULE,
     &source_missing::RULE,

@@ -2,7 +2,7 @@
 
 use crescendo_diag::Severity;
 use crescendo_plan::Chart;
-use crescendo_render::{layout, metrics};
+use crescendo_render::metrics;
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};
@@ -26,14 +26,15 @@ pub static RULE: Rule = Rule {
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     // The room a plot has at most: the text column less a tick-label column.
-    let room = layout::text_column() * 0.8;
+    let room = input.theme.text_column() * 0.8;
+    let size = input.theme.label_size;
     for (i, f, a) in frames(input) {
         let Chart::Line(l) = &f.chart else { continue };
-        let gap = layout::LABEL_SIZE;
+        let gap = size;
         let width: f64 =
             l.x.ticks
                 .iter()
-                .map(|t| metrics::text_width(&t.label, layout::LABEL_SIZE, false) + gap)
+                .map(|t| metrics::text_width(&t.label, size, false) + gap)
                 .sum();
         if width > room {
             out.push(Finding {

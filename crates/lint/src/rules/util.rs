@@ -35,11 +35,8 @@ pub fn roles(chart: &Chart) -> Vec<(&str, Role)> {
             .iter()
             .map(|p| (p.label.as_str(), p.role))
             .collect(),
-        Chart::Figures(f) => f
-            .figures
-            .iter()
-            .map(|x| (x.caption.as_str(), x.role))
-            .collect(),
+        // Figures are the message themselves: nothing competes among them.
+        Chart::Figures(_) => Vec::new(),
         Chart::Table(t) => t
             .rows
             .iter()

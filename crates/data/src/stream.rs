@@ -1,0 +1,791 @@
+//! Streaming views: the leading `keep` and `by` steps of views over one CSV
+//! file, evaluated record by record while the file is read, so memory grows
+//! with the number of groups (and the rows a `keep`-only view keeps), not
+//! with the file.
+//!
+//! # What streams
+//!
+//! A [`StreamView`] is the prefix of a view that the reader can evaluate on
+//! one record at a time: any number of `keep` predicates, then at most one
+//! group step. Each group holds accumulators: an exact sum ([`Sum`]) and a
+//! count for `sum`/`mean`, counts, the first strictly smaller or larger cell
+//! for `min`/`max`, the first and last non-missing cell. `median` keeps the
+//! group's numbers (so its memory grows with the group's size: the one
+//! aggregate that is not bounded by the number of groups). The planner runs
+//! the view's remaining steps on the small table this produces.
+//!
+//! # Two cores, same result
+//!
+//! The file is cut into chunks at nominal offsets; each chunk starts after
+//! the first line break at or after its offset. Such a line break may sit
+//! inside a quoted field, so every chunk boundary is *verified* by the
+//! worker of the chunk before it: that worker reads on past its nominal end
+//! until a record ends exactly at the boundary (or only line breaks lie
+//! between the record's end and the boundary). If a record spans the
+//! boundary instead, the guess was wrong: the worker absorbs the next chunk
+//! and verifies the boundary after it, and the next chunk's own result is
+//! discarded. Results are merged in chunk order (groups in order of first
+//! appearance, first before last), and sums are exact, so the merged result
+//! is bit-for-bit the one-pass result, whatever the chunking.
+//!
+//! # Errors
+//!
+//! Any problem in the file — a ragged row, a quoting error, invalid UTF-8, a
+//! declared column's cell that does not parse, or a cell that contradicts the
+//! type the first records suggested for an undeclared column — makes the
+//! scan return [`ScanFailure::Fallback`]. The caller then loads the file with
+//! [`crate::load_csv_columns`], which reports the located diagnostic (with
+//! the CSV's own line number) or, for a wrong type guess, gives the table
+//! with the right types.
+
+use std::collections::HashMap;
+use std::fs::File;
+use std::hash::{BuildHasherDefault, Hasher};
+use std::io::{Read, Seek, SeekFrom};
+use std::sync::atomic::{AtomicUsize, Ordering as AtomicOrdering};
+use std::sync::Mutex;
+
+use crate::load::{parse_number, reader_builder, scan_fields, CsvSpec, LoadError, RawRecord, Tee};
+use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Value};
+use crate::time::{parse_date, parse_month, parse_year};
+use crate::view::{compare_cells, truth, Sum};
+
+/// The streamable prefix of one view.
+#[derive(Clone, Debug, PartialEq)]
+pub struct StreamView {
+    /// Leading `keep` predicates, in order.
+    pub keeps: Vec<Expr>,
+    /// The group step after them: keys and aggregates (column indices into
+    /// the file's columns).
+    pub group: Option<(Vec<usize>, Vec<Aggregate>)>,
+}
+
+/// What to scan.
+#[derive(Clone, Debug)]
+pub struct ScanInput<'a> {
+    pub spec: &'a CsvSpec,
+    /// Every header column in file order, with the type its cells are read
+    /// as (for columns that are not parsed, any type: their cells are not
+    /// read).
+    pub schema: &'a [(String, ColType)],
+    /// Per column: parse and check its cells (the declared columns and the
+    /// columns the views read).
+    pub parse: &'a [bool],
+    /// Per column: keep its values in the rows of `keep`-only views (the
+    /// other columns are all-missing there).
+    pub keep_values: &'a [bool],
+    /// File offset of the first data record (see [`crate::Probe`]).
+    pub data_start: u64,
+    pub views: &'a [StreamView],
+}
+
+/// How to cut the file.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum Chunks {
+    /// One chunk per available core (at most 8), one chunk for small files.
+    Auto,
+    /// Nominal cut offsets (file offsets, any order; out-of-range ones are
+    /// ignored) and the number of threads. For tests.
+    At(Vec<u64>, usize),
+}
+
+/// The result of a scan.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ScanOutput {
+    /// One table per view: the group step's output, or the kept rows.
+    pub tables: Vec<Table>,
+    /// Data rows in the file.
+    pub rows: usize,
+    /// Per column that is parsed as text: the first cell (0-based data row
+    /// and text) that is not a number, to explain why it is text.
+    pub first_text: Vec<Option<(usize, String)>>,
+    /// How many chunk guesses turned out to be inside a quoted field.
+    pub absorbed: usize,
+}
+
+/// Why a scan gave no result.
+#[derive(Debug)]
+pub enum ScanFailure {
+    /// The file has a problem, or a type guess was wrong: load it with
+    /// [`crate::load_csv_columns`] instead, which reports or resolves it.
+    Fallback,
+    /// The file could not be read.
+    Io(LoadError),
+}
+
+/// Scan the file once and evaluate every view's streamable prefix.
+pub fn scan(input: &ScanInput<'_>, chunks: &Chunks) -> Result<ScanOutput, ScanFailure> {
+    let len = std::fs::metadata(&input.spec.path)
+        .map_err(|e| ScanFailure::Io(io_failure(input.spec, &e)))?
+        .len();
+    let (offsets, threads) = match chunks {
+        Chunks::Auto => {
+            let threads = std::thread::available_parallelism()
+                .map_or(1, |n| n.get())
+                .min(8);
+            let data = len.saturating_sub(input.data_start);
+            let n = if data < (4 << 20) { 1 } else { threads as u64 };
+            let offsets = (1..n).map(|k| input.data_start + data * k / n).collect();
+            (offsets, threads)
+        }
+        Chunks::At(o, t) => (o.clone(), (*t).max(1)),
+    };
+    let starts = chunk_starts(input, len, offsets)?;
+    let _task = crate::progress::Task::begin(&input.spec.display_name, len);
+    let results: Mutex<Vec<Option<ChunkOut>>> = Mutex::new(vec![None; starts.len()]);
+    let next = AtomicUsize::new(0);
+    let workers = threads.min(starts.len()).max(1);
+    let work = || loop {
+        let k = next.fetch_add(1, AtomicOrdering::SeqCst);
+        if k >= starts.len() {
+            break;
+        }
+        let out = run_chunk(input, starts[k], &starts[k + 1..]);
+        if let Ok(mut r) = results.lock() {
+            r[k] = Some(out);
+        }
+    };
+    if workers == 1 {
+        work();
+    } else {
+        std::thread::scope(|s| {
+            for _ in 0..workers {
+                s.spawn(work);
+            }
+        });
+    }
+    let results = results.into_inner().map_err(|_| ScanFailure::Fallback)?;
+    merge(input, results)
+}
+
+fn io_failure(spec: &CsvSpec, e: &std::io::Error) -> LoadError {
+    LoadError::Story {
+        code: "data-file",
+        message: format!("cannot read data file `{}`: {e}", spec.display_name),
+        help: None,
+        declared: None,
+    }
+}
+
+/// The first chunk starts at the data; each other chunk just after the first
+/// line break at or after its nominal offset.
+fn chunk_starts(
+    input: &ScanInput<'_>,
+    len: u64,
+    mut offsets: Vec<u64>,
+) -> Result<Vec<u64>, ScanFailure> {
+    offsets.sort_unstable();
+    let mut starts = vec![input.data_start];
+    let mut file =
+        File::open(&input.spec.path).map_err(|e| ScanFailure::Io(io_failure(input.spec, &e)))?;
+    let mut buf = vec![0u8; 64 * 1024];
+    for o in offsets {
+        let from = o.max(input.data_start + 1) - 1;
+        let Some(&last) = starts.last() else { break };
+        if from < last || from >= len {
+            continue;
+        }
+        file.seek(SeekFrom::Start(from))
+            .map_err(|e| ScanFailure::Io(io_failure(input.spec, &e)))?;
+        let mut at = from;
+        let found = loop {
+            let n = file
+                .read(&mut buf)
+                .map_err(|e| ScanFailure::Io(io_failure(input.spec, &e)))?;
+            if n == 0 {
+                break None;
+            }
+            if let Some(p) = buf[..n].iter().position(|&b| b == b'\n') {
+                break Some(at + p as u64 + 1);
+            }
+            at += n as u64;
+        };
+        if let Some(s) = found.filter(|&s| s < len && s > last) {
+            starts.push(s);
+        }
+    }
+    Ok(starts)
+}
+
+/// Where a chunk's worker stopped.
+#[derive(Clone, Debug)]
+enum End {
+    /// At the end of the file.
+    Eof,
+    /// At the verified start of chunk `k + 1 + i`, where `k` is its own
+    /// index (`i` counts the chunks it absorbed).
+    Boundary(usize),
+    /// A problem in the file (or a wrong type guess) in this chunk.
+    Failed,
+}
+
+#[derive(Clone, Debug)]
+struct ChunkOut {
+    end: End,
+    rows: usize,
+    views: Vec<ViewState>,
+    first_text: Vec<Option<(usize, String)>>,
+}
+
+/// Per view: groups, or kept rows.
+#[derive(Clone, Debug)]
+enum ViewState {
+    Groups(Groups),
+    Rows(Vec<Vec<Value>>),
+}
+
+/// A fast hash for group keys (the multiply-rotate of the Fx hash used in
+/// rustc). Keys come from the user's own file, so hash flooding is no
+/// concern; iteration order never reaches the output (groups are kept in a
+/// vector in order of first appearance).
+#[derive(Default, Clone, Copy)]
+struct Fx(u64);
+
+impl Hasher for Fx {
+    fn write(&mut self, bytes: &[u8]) {
+        const K: u64 = 0x51_7c_c1_b7_27_22_0a_95;
+        let mut chunks = bytes.chunks_exact(8);
+        for c in &mut chunks {
+            let mut w = [0u8; 8];
+            w.copy_from_slice(c);
+            self.0 = (self.0.rotate_left(5) ^ u64::from_le_bytes(w)).wrapping_mul(K);
+        }
+        for &b in chunks.remainder() {
+            self.0 = (self.0.rotate_left(5) ^ u64::from(b)).wrapping_mul(K);
+        }
+    }
+
+    fn finish(&self) -> u64 {
+        self.0
+    }
+}
+
+type FxMap<K, V> = HashMap<K, V, BuildHasherDefault<Fx>>;
+
+#[derive(Clone, Debug, Default)]
+struct Groups {
+    index: FxMap<Box<[u8]>, usize>,
+    keys: Vec<Vec<Value>>,
+    accs: Vec<Vec<Acc>>,
+}
+
+/// One aggregate's state in one group.
+#[derive(Clone, Debug)]
+enum Acc {
+    /// `count()` of rows.
+    Rows(u64),
+    /// `count(col)`: non-missing cells.
+    Count(u64),
+    Sum(Sum),
+    Mean(Sum),
+    Median(Vec<f64>),
+    Min(Option<Value>),
+    Max(Option<Value>),
+    First(Option<Value>),
+    Last(Option<Value>),
+    /// An aggregate without a column that is not `count` (the type check
+    /// rules it out): always missing, as in the table engine.
+    Nothing,
+}
+
+impl Acc {
+    fn new(a: &Aggregate) -> Acc {
+        match (a.func, a.column) {
+            (AggFn::Count, None) => Acc::Rows(0),
+            (_, None) => Acc::Nothing,
+            (AggFn::Count, Some(_)) => Acc::Count(0),
+            (AggFn::Sum, _) => Acc::Sum(Sum::default()),
+            (AggFn::Mean, _) => Acc::Mean(Sum::default()),
+            (AggFn::Median, _) => Acc::Median(Vec::new()),
+            (AggFn::Min, _) => Acc::Min(None),
+            (AggFn::Max, _) => Acc::Max(None),
+            (AggFn::First, _) => Acc::First(None),
+            (AggFn::Last, _) => Acc::Last(None),
+        }
+    }
+
+    /// Add one row whose aggregate column holds `c`.
+    fn add(&mut self, c: Cell<'_>) {
+        if let Acc::Rows(n) = self {
+            *n += 1;
+            return;
+        }
+        if matches!(c, Cell::Missing) {
+            return;
+        }
+        let num = match c {
+            Cell::Number(x) => Some(x),
+            Cell::Year(y) => Some(f64::from(y)),
+            _ => None,
+        };
+        match self {
+            Acc::Rows(_) | Acc::Nothing => {}
+            Acc::Count(n) => *n += 1,
+            Acc::Sum(s) | Acc::Mean(s) => {
+                if let Some(x) = num {
+                    s.add(x);
+                }
+            }
+            Acc::Median(xs) => xs.extend(num),
+            Acc::Min(best) => extreme(best, c, std::cmp::Ordering::Less),
+            Acc::Max(best) => extreme(best, c, std::cmp::Ordering::Greater),
+            Acc::First(v) => {
+                if v.is_none() {
+                    *v = Some(c.to_value());
+                }
+            }
+            Acc::Last(v) => match v {
+                // Skip the copy when the cell is the same (bit for bit).
+                Some(old) if same(old.cell(), c) => {}
+                _ => *v = Some(c.to_value()),
+            },
+        }
+    }
+
+    /// Fold in the state of the same group over the rows that follow.
+    fn merge(&mut self, later: Acc) {
+        match (self, later) {
+            (Acc::Rows(a), Acc::Rows(b)) | (Acc::Count(a), Acc::Count(b)) => *a += b,
+            (Acc::Sum(a), Acc::Sum(b)) | (Acc::Mean(a), Acc::Mean(b)) => a.merge(&b),
+            (Acc::Median(a), Acc::Median(b)) => a.extend(b),
+            (Acc::Min(a), Acc::Min(Some(b))) => extreme(a, b.cell(), std::cmp::Ordering::Less),
+            (Acc::Max(a), Acc::Max(Some(b))) => extreme(a, b.cell(), std::cmp::Ordering::Greater),
+            (Acc::First(a), Acc::First(b)) => {
+                if a.is_none() {
+                    *a = b;
+                }
+            }
+            (Acc::Last(a), Acc::Last(b)) => {
+                if b.is_some() {
+                    *a = b;
+                }
+            }
+            _ => {}
+        }
+    }
+
+    fn finish(self) -> Value {
+        let number = |x: Option<f64>| match x {
+            Some(x) if x.is_finite() => Value::Number(x),
+            _ => Value::Missing,
+        };
+        match self {
+            Acc::Rows(n) | Acc::Count(n) => Value::Number(n as f64),
+            Acc::Sum(s) => number(s.total()),
+            Acc::Mean(s) => number(s.total().map(|x| x / s.count() as f64)),
+            Acc::Median(mut xs) => {
+                xs.sort_by(f64::total_cmp);
+                let m = xs.len();
+                number(match m {
+                    0 => None,
+                    _ if m % 2 == 1 => Some(xs[m / 2]),
+                    _ => Some(xs[m / 2 - 1] / 2.0 + xs[m / 2] / 2.0),
+                })
+            }
+            Acc::Min(v) | Acc::Max(v) | Acc::First(v) | Acc::Last(v) => v.unwrap_or(Value::Missing),
+            Acc::Nothing => Value::Missing,
+        }
+    }
+}
+
+/// Identical cells (numbers bit for bit, so `-0` differs from `0`).
+fn same(a: Cell<'_>, b: Cell<'_>) -> bool {
+    match (a, b) {
+        (Cell::Number(x), Cell::Number(y)) => x.to_bits() == y.to_bits(),
+        _ => a == b,
+    }
+}
+
+/// Replace `best` when `c` is strictly more `want` (the first of equal
+/// extremes wins, as in the table engine).
+fn extreme(best: &mut Option<Value>, c: Cell<'_>, want: std::cmp::Ordering) {
+    let replace = match best {
+        None => true,
+        Some(b) => compare_cells(c, b.cell()) == Some(want),
+    };
+    if replace {
+        *best = Some(c.to_value());
+    }
+}
+
+/// Append a key cell to `buf` so that two rows get equal bytes exactly when
+/// the table engine puts them in one group (`-0` and `0` are one key).
+fn encode_key(buf: &mut Vec<u8>, c: Cell<'_>) {
+    match c {
+        Cell::Missing => buf.push(0),
+        Cell::Number(x) => {
+            buf.push(1);
+            let bits = if x == 0.0 { 0 } else { x.to_bits() };
+            buf.extend_from_slice(&bits.to_le_bytes());
+        }
+        Cell::Text(s) => {
+            buf.push(2);
+            buf.extend_from_slice(&(s.len() as u64).to_le_bytes());
+            buf.extend_from_slice(s.as_bytes());
+        }
+        Cell::Date(d) => {
+            buf.push(3);
+            buf.extend_from_slice(&d.to_le_bytes());
+        }
+        Cell::Month(m) => {
+            buf.push(4);
+            buf.extend_from_slice(&m.to_le_bytes());
+        }
+        Cell::Year(y) => {
+            buf.push(5);
+            buf.extend_from_slice(&y.to_le_bytes());
+        }
+    }
+}
+
+impl Groups {
+    fn new(keys: &[usize], aggs: &[Aggregate]) -> Groups {
+        let mut g = Groups::default();
+        if keys.is_empty() {
+            // Without keys the whole file is one group, even when empty.
+            g.index.insert(Box::default(), 0);
+            g.keys.push(Vec::new());
+            g.accs.push(aggs.iter().map(Acc::new).collect());
+        }
+        g
+    }
+
+    /// The group of a key, created (with `key`'s values) when new.
+    fn slot(&mut self, buf: &[u8], key: impl FnOnce() -> Vec<Value>, aggs: &[Aggregate]) -> usize {
+        if let Some(&g) = self.index.get(buf) {
+            return g;
+        }
+        let g = self.keys.len();
+        self.index.insert(buf.into(), g);
+        self.keys.push(key());
+        self.accs.push(aggs.iter().map(Acc::new).collect());
+        g
+    }
+
+    /// Fold in the groups of the following chunk, in their order.
+    fn merge(&mut self, later: Groups) {
+        let mut order: Vec<(Box<[u8]>, usize)> = later.index.into_iter().collect();
+        order.sort_by_key(|(_, g)| *g);
+        let mut accs: Vec<Option<Vec<Acc>>> = later.accs.into_iter().map(Some).collect();
+        let mut keys: Vec<Option<Vec<Value>>> = later.keys.into_iter().map(Some).collect();
+        for (k, g) in order {
+            let (Some(a), Some(key)) = (accs[g].take(), keys[g].take()) else {
+                continue;
+            };
+            match self.index.get(&k) {
+                Some(&mine) => {
+                    for (x, y) in self.accs[mine].iter_mut().zip(a) {
+                        x.merge(y);
+                    }
+                }
+                None => {
+                    let mine = self.keys.len();
+                    self.index.insert(k, mine);
+                    self.keys.push(key);
+                    self.accs.push(a);
+                }
+            }
+        }
+    }
+}
+
+/// Reusable per-record storage for cells borrowed from the current record.
+fn recycle<'a>(mut v: Vec<Cell<'_>>) -> Vec<Cell<'a>> {
+    v.clear();
+    v.into_iter().map(|_| Cell::Missing).collect()
+}
+
+/// Read one chunk: records from `start` until a verified boundary among
+/// `next` (the starts of the chunks after it) or the end of the file.
+fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
+    let ncols = input.schema.len();
+    let mut out = ChunkOut {
+        end: End::Failed,
+        rows: 0,
+        views: input
+            .views
+            .iter()
+            .map(|v| match &v.group {
+                Some((keys, aggs)) => ViewState::Groups(Groups::new(keys, aggs)),
+                None => ViewState::Rows(vec![Vec::new(); ncols]),
+            })
+            .collect(),
+        first_text: vec![None; ncols],
+    };
+    let Ok(mut file) = File::open(&input.spec.path) else {
+        return out;
+    };
+    if file.seek(SeekFrom::Start(start)).is_err() {
+        return out;
+    }
+    let mut rdr = reader_builder()
+        .buffer_capacity(256 * 1024)
+        .from_reader(Tee::new(file));
+    let mut record = csv::ByteRecord::new();
+    let mut target = 0usize;
+    let mut scratch: Vec<Cell<'static>> = Vec::with_capacity(ncols);
+    let mut keybuf: Vec<u8> = Vec::with_capacity(64);
+    let missing: Vec<&[u8]> = input.spec.missing.iter().map(|m| m.as_bytes()).collect();
+    let parsed: Vec<(usize, ColType)> = (0..ncols)
+        .filter(|&j| input.parse.get(j).copied().unwrap_or(false))
+        .map(|j| (j, input.schema[j].1))
+        .collect();
+    let mut text_done: Vec<bool> = (0..ncols)
+        .map(|j| input.schema[j].1 != ColType::Text)
+        .collect();
+    loop {
+        match rdr.read_byte_record(&mut record) {
+            Ok(true) => {}
+            Ok(false) => {
+                // A chunk that runs into the end of the file has verified
+                // nothing after it; that is right only for the last one.
+                out.end = End::Eof;
+                return out;
+            }
+            Err(_) => return out,
+        }
+        let rec_start = record.position().map_or(0, |p| p.byte());
+        let rec_end = rdr.position().byte();
+        {
+            let tee = rdr.get_mut();
+            let window = tee.window(rec_start, rec_end);
+            let raw = RawRecord::new(window, 1);
+            if raw.bytes.contains(&b'"') && scan_fields(raw.bytes).is_err() {
+                return out;
+            }
+        }
+        if record.len() != ncols {
+            return out;
+        }
+        // UTF-8: the whole record at once, then no field may start in the
+        // middle of a character.
+        if std::str::from_utf8(record.as_slice()).is_err()
+            || record
+                .iter()
+                .any(|f| f.first().is_some_and(|&b| (0x80..0xC0).contains(&b)))
+        {
+            return out;
+        }
+        let mut cells = recycle(std::mem::take(&mut scratch));
+        cells.resize(ncols, Cell::Missing);
+        for &(j, ty) in &parsed {
+            let Some(f) = record.get(j) else {
+                return out;
+            };
+            if missing.contains(&f) {
+                continue;
+            }
+            let Ok(text) = std::str::from_utf8(f) else {
+                return out;
+            };
+            let c = match ty {
+                ColType::Text => Some(Cell::Text(text)),
+                ColType::Number => parse_number(text).map(Cell::Number),
+                ColType::Date => parse_date(text).map(Cell::Date),
+                ColType::Month => parse_month(text).map(Cell::Month),
+                ColType::Year => parse_year(text).map(Cell::Year),
+            };
+            let Some(c) = c else {
+                return out;
+            };
+            if !text_done[j] && parse_number(text).is_none() {
+                text_done[j] = true;
+                out.first_text[j] = Some((out.rows, text.to_owned()));
+            }
+            cells[j] = c;
+        }
+        {
+            let row = |c: usize| cells.get(c).copied().unwrap_or(Cell::Missing);
+            for (view, state) in input.views.iter().zip(&mut out.views) {
+                if !view.keeps.iter().all(|k| truth(&row, k)) {
+                    continue;
+                }
+                match (state, &view.group) {
+                    (ViewState::Groups(g), Some((keys, aggs))) => {
+                        keybuf.clear();
+                        for &k in keys {
+                            encode_key(&mut keybuf, row(k));
+                        }
+                        let slot = g.slot(
+                            &keybuf,
+                            || keys.iter().map(|&k| row(k).to_value()).collect(),
+                            aggs,
+                        );
+                        for (acc, a) in g.accs[slot].iter_mut().zip(aggs) {
+                            acc.add(a.column.map_or(Cell::Missing, row));
+                        }
+                    }
+                    (ViewState::Rows(cols), _) => {
+                        for (j, col) in cols.iter_mut().enumerate() {
+                            let keep = input.keep_values.get(j).copied().unwrap_or(false);
+                            col.push(if keep {
+                                row(j).to_value()
+                            } else {
+                                Value::Missing
+                            });
+                        }
+                    }
+                    _ => return out,
+                }
+            }
+        }
+        scratch = recycle(cells);
+        out.rows += 1;
+        rdr.get_mut().consumed(rec_end);
+        // Verify the next boundary once this record reaches it.
+        let p = start + rec_end;
+        while let Some(&s) = next.get(target) {
+            if p > s {
+                // The record spans the guessed boundary: that chunk's start
+                // was inside a quoted field. Absorb it.
+                target += 1;
+                continue;
+            }
+            let gap = (s - p) as usize;
+            let after = rdr.get_mut().window(rec_end, rec_end + gap as u64);
+            if after.len() == gap && after.iter().all(|&b| b == b'\n' || b == b'\r') {
+                out.end = End::Boundary(target);
+                return out;
+            }
+            break;
+        }
+    }
+}
+
+/// Chain the chunks from the first: each verified boundary names the next
+/// chunk whose result counts.
+fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOutput, ScanFailure> {
+    let ncols = input.schema.len();
+    let mut results: Vec<Option<ChunkOut>> = results;
+    let mut k = 0usize;
+    let mut absorbed = 0usize;
+    let mut acc: Option<ChunkOut> = None;
+    loop {
+        let chunk = results
+            .get_mut(k)
+            .and_then(Option::take)
+            .ok_or(ScanFailure::Fallback)?;
+        let end = chunk.end.clone();
+        acc = Some(match acc {
+            None => chunk,
+            Some(mut a) => {
+                for (j, t) in chunk.first_text.into_iter().enumerate() {
+                    if a.first_text[j].is_none() {
+                        a.first_text[j] = t.map(|(r, s)| (r + a.rows, s));
+                    }
+                }
+                a.rows += chunk.rows;
+                for (mine, later) in a.views.iter_mut().zip(chunk.views) {
+                    match (mine, later) {
+                        (ViewState::Groups(x), ViewState::Groups(y)) => x.merge(y),
+                        (ViewState::Rows(x), ViewState::Rows(y)) => {
+                            for (cx, cy) in x.iter_mut().zip(y) {
+                                cx.extend(cy);
+                            }
+                        }
+                        _ => return Err(ScanFailure::Fallback),
+                    }
+                }
+                a
+            }
+        });
+        match end {
+            End::Failed => return Err(ScanFailure::Fallback),
+            End::Eof => {
+                if k + 1 < results.len() && results[k + 1..].iter().any(Option::is_some) {
+                    // Chunks after one that ran to the end were all absorbed.
+                    absorbed += results.len() - k - 1;
+                }
+                break;
+            }
+            End::Boundary(i) => {
+                absorbed += i;
+                k = k + 1 + i;
+            }
+        }
+    }
+    let out = acc.ok_or(ScanFailure::Fallback)?;
+    let tables = input
+        .views
+        .iter()
+        .zip(out.views)
+        .map(|(v, state)| finish(input, v, state))
+        .collect();
+    let first_text = (0..ncols)
+        .map(|j| {
+            let text =
+                input.parse.get(j).copied().unwrap_or(false) && input.schema[j].1 == ColType::Text;
+            if text {
+                out.first_text[j].clone()
+            } else {
+                None
+            }
+        })
+        .collect();
+    Ok(ScanOutput {
+        tables,
+        rows: out.rows,
+        first_text,
+        absorbed,
+    })
+}
+
+/// The table of one view's prefix: as the table engine's group step would
+/// give it, or the kept rows with every header column.
+fn finish(input: &ScanInput<'_>, view: &StreamView, state: ViewState) -> Table {
+    let schema = input.schema;
+    match (state, &view.group) {
+        (ViewState::Groups(g), Some((keys, aggs))) => {
+            let mut columns: Vec<Column> = keys
+                .iter()
+                .map(|&k| Column {
+                    name: schema.get(k).map_or(String::new(), |c| c.0.clone()),
+                    ty: schema.get(k).map_or(ColType::Text, |c| c.1),
+                    values: Vec::with_capacity(g.keys.len()),
+                })
+                .collect();
+            for key in &g.keys {
+                for (c, v) in columns.iter_mut().zip(key) {
+                    c.values.push(v.clone());
+                }
+            }
+            let mut agg_cols: Vec<Column> = aggs
+                .iter()
+                .map(|a| {
+                    let in_ty = a
+                        .column
+                        .and_then(|c| schema.get(c))
+                        .map_or(ColType::Number, |c| c.1);
+                    let ty = match a.func {
+                        AggFn::Min | AggFn::Max | AggFn::First | AggFn::Last => in_ty,
+                        _ => ColType::Number,
+                    };
+                    Column {
+                        name: a.name.clone(),
+                        ty,
+                        values: Vec::with_capacity(g.accs.len()),
+                    }
+                })
+                .collect();
+            for accs in g.accs {
+                for (c, a) in agg_cols.iter_mut().zip(accs) {
+                    c.values.push(a.finish());
+                }
+            }
+            columns.extend(agg_cols);
+            Table { columns }
+        }
+        (ViewState::Rows(cols), _) => Table {
+            columns: schema
+                .iter()
+                .zip(cols)
+                .map(|((name, ty), values)| Column {
+                    name: name.clone(),
+                    ty: *ty,
+                    values,
+                })
+                .collect(),
+        },
+        (ViewState::Groups(_), None) => Table::default(),
+    }
+}

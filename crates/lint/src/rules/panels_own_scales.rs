@@ -1,0 +1,40 @@
+//! `panels-own-scales`: small multiples compared on different scales.
+
+use crescendo_diag::Severity;
+use crescendo_plan::Chart;
+
+use super::util::frames;
+use crate::{Doc, Finding, Input, Rule};
+
+pub static RULE: Rule = Rule {
+    name: "panels-own-scales",
+    severity: Severity::Warning,
+    summary: "small multiples drawn on different scales",
+    doc: Doc {
+        flags: "Panels of a `split ... free`, each on its own scale.",
+        why: "Small multiples invite the eye to compare panels side by side. With different\n\
+              scales, equal heights mean different amounts, so a small series looks as large\n\
+              as a big one and the comparison the layout offers is false (common practice:\n\
+              one common scale for compared panels).",
+        example: "split district free   # each panel fitted to its own data",
+        instead: "Drop `free` to keep one common scale, and `trim` to cut each panel to its own\n\
+                  extent while keeping the same units per pixel.",
+    },
+    check,
+};
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    for (i, f, a) in frames(input) {
+        if let Chart::Panels(p) = &f.chart {
+            if !p.common_scale {
+                out.push(Finding {
+                    frame: Some(i),
+                    span: a.split.clone().unwrap_or(a.chart.clone()),
+                    label: "each panel on its own scale".into(),
+                    message: "panels on different scales look comparable but are not".into(),
+                    fix: "remove `free`; use `trim` to let each panel keep its own extent".into(),
+                });
+            }
+        }
+    }
+}

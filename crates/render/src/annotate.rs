@@ -1,0 +1,376 @@
+//! Notes on line charts: light bands over an x range (drawn under the data,
+//! named at their top left), reference lines across the plot at a value
+//! (named at their right end), value labels at the ends of the focus lines,
+//! and callouts: a short text near a data point with a leader line, put
+//! where it covers the fewest other labels and lines.
+
+use crate::canvas::{Align, Canvas, Label};
+use crate::kit::{self, faint_fill, number, tick_style, Obstacles, Rect};
+use crate::layout::map;
+use crate::line::LineLayout;
+use crate::metrics::{self, line_height, text_width};
+use crate::theme::Theme;
+use crate::RenderError;
+use crescendo_plan::{Annotation, LineChart, Role};
+
+/// Widest a callout's text may be before it wraps.
+const CALLOUT_WIDTH: f64 = 260.0;
+/// Most lines a callout may take.
+const CALLOUT_LINES: usize = 3;
+
+fn xmap(chart: &LineChart, l: &LineLayout) -> impl Fn(f64) -> f64 {
+    let d = chart.x.domain;
+    let (a, b) = (l.plot_left, l.plot_right);
+    move |x| map(x, d, a, b)
+}
+
+fn ymap(chart: &LineChart, l: &LineLayout) -> impl Fn(f64) -> f64 {
+    let d = chart.y.domain;
+    let (a, b) = (l.plot_bottom, l.plot_top);
+    move |y| map(y, d, a, b)
+}
+
+/// Where labels may go: the plot, with half a line of room at the top.
+fn bounds(theme: &Theme, l: &LineLayout) -> Rect {
+    Rect {
+        x0: l.plot_left,
+        y0: l.plot_top - line_height(theme.label_size) / 2.0,
+        x1: l.plot_right,
+        y1: l.plot_bottom - 2.0,
+    }
+}
+
+/// Draws the bands and reference lines, under the data.
+pub(crate) fn draw_under(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &LineChart,
+    l: &LineLayout,
+) -> Result<(), RenderError> {
+    let (xm, ym) = (xmap(chart, l), ymap(chart, l));
+    for a in &chart.annotations {
+        match a {
+            Annotation::Band { from, to, .. } if from.is_finite() && to.is_finite() => {
+                let x0 = xm(from.min(*to)).clamp(l.plot_left, l.plot_right);
+                let x1 = xm(from.max(*to)).clamp(l.plot_left, l.plot_right);
+                canvas.rect((x0, l.plot_top), (x1, l.plot_bottom), faint_fill(theme))?;
+            }
+            Annotation::Reference { value, .. } if value.is_finite() => {
+                let y = ym(*value);
+                if y >= l.plot_top - 0.5 && y <= l.plot_bottom + 0.5 {
+                    canvas.line((l.plot_left, y), (l.plot_right, y), theme.context, 1)?;
+                }
+            }
+            _ => {}
+        }
+    }
+    Ok(())
+}
+
+/// The first candidate clear of text, else the best-scoring one clear of
+/// text, inside `bounds` (candidates are slid sideways into it first).
+fn choose(cands: &[Rect], obstacles: &Obstacles, bounds: &Rect, first_clear: bool) -> Option<Rect> {
+    let mut best: Option<(f64, Rect)> = None;
+    for (k, c) in cands.iter().enumerate() {
+        let w = c.x1 - c.x0;
+        let x0 = c.x0.max(bounds.x0).min(bounds.x1 - w);
+        let c = Rect {
+            x0,
+            x1: x0 + w,
+            ..*c
+        };
+        if !c.inside(bounds) || !obstacles.clear_of_text(&c) {
+            continue;
+        }
+        if first_clear {
+            return Some(c);
+        }
+        let s = obstacles.score(&c) + k as f64 * 0.5;
+        if best.is_none_or(|(b, _)| s < b) {
+            best = Some((s, c));
+        }
+    }
+    best.map(|(_, r)| r)
+}
+
+/// Draws the texts of the notes: band names, reference names, end values
+/// and callouts, avoiding every text already in `obstacles` and, as far as
+/// possible, the line segments in it.
+pub(crate) fn draw_over(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &LineChart,
+    l: &LineLayout,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let (xm, ym) = (xmap(chart, l), ymap(chart, l));
+    let lh = line_height(theme.label_size);
+    let area = bounds(theme, l);
+    let plot_w = l.plot_right - l.plot_left;
+
+    // Band names at the top left inside the band, a row lower if taken.
+    for a in &chart.annotations {
+        let Annotation::Band {
+            from,
+            to,
+            text: Some(text),
+        } = a
+        else {
+            continue;
+        };
+        if !from.is_finite() || !to.is_finite() {
+            continue;
+        }
+        let x0 = xm(from.min(*to)).clamp(l.plot_left, l.plot_right);
+        let x1 = xm(from.max(*to)).clamp(l.plot_left, l.plot_right);
+        let room = (x1 - x0 - 12.0).max(120.0).min(plot_w);
+        let text = metrics::ellipsize(&metrics::normalize(text), theme.label_size, false, room);
+        let w = text_width(&text, theme.label_size, false);
+        let cands: Vec<Rect> = (0..4)
+            .map(|k| {
+                let top = l.plot_top + 6.0 + k as f64 * theme.label_step();
+                Rect {
+                    x0: x0 + 6.0,
+                    y0: top,
+                    x1: x0 + 6.0 + w,
+                    y1: top + lh,
+                }
+            })
+            .collect();
+        if let Some(r) = choose(&cands, obstacles, &area, true) {
+            kit::put(canvas, obstacles, &plain(theme, &text, r))?;
+        }
+    }
+
+    // Reference names at the right end, above the line (else below, else
+    // at the left end).
+    for a in &chart.annotations {
+        let Annotation::Reference { value, text } = a else {
+            continue;
+        };
+        if !value.is_finite() {
+            continue;
+        }
+        let y = ym(*value);
+        if y < l.plot_top - 0.5 || y > l.plot_bottom + 0.5 {
+            continue;
+        }
+        obstacles
+            .segments
+            .push(((l.plot_left, y), (l.plot_right, y)));
+        let text = metrics::ellipsize(
+            &metrics::normalize(text),
+            theme.label_size,
+            false,
+            plot_w / 2.0,
+        );
+        let w = text_width(&text, theme.label_size, false);
+        let above = y - 4.0 - lh;
+        let below = y + 4.0;
+        let cands = [
+            Rect {
+                x0: l.plot_right - w,
+                y0: above,
+                x1: l.plot_right,
+                y1: above + lh,
+            },
+            Rect {
+                x0: l.plot_right - w,
+                y0: below,
+                x1: l.plot_right,
+                y1: below + lh,
+            },
+            Rect {
+                x0: l.plot_left,
+                y0: above,
+                x1: l.plot_left + w,
+                y1: above + lh,
+            },
+            Rect {
+                x0: l.plot_left,
+                y0: below,
+                x1: l.plot_left + w,
+                y1: below + lh,
+            },
+        ];
+        if let Some(r) = choose(&cands, obstacles, &area, true) {
+            kit::put(canvas, obstacles, &plain(theme, &text, r))?;
+        }
+    }
+
+    // Values at the first and last point of the focus lines (of every
+    // visible line when none is in focus), formatted like the y ticks.
+    if chart.end_labels {
+        let any_focus = chart.series.iter().any(|s| s.role == Role::Focus);
+        let (decimals, commas) = tick_style(&chart.y);
+        for s in &chart.series {
+            let wanted = match s.role {
+                Role::Focus => true,
+                Role::Context => !any_focus,
+                Role::Hidden => false,
+            };
+            if !wanted {
+                continue;
+            }
+            let finite = || {
+                s.points.iter().filter_map(|p| {
+                    p.y.filter(|y| y.is_finite() && p.x.is_finite())
+                        .map(|y| (p.x, y))
+                })
+            };
+            let ends = [finite().next(), finite().next_back()];
+            let (color, bold) = if s.role == Role::Focus {
+                (theme.accent, true)
+            } else {
+                (theme.context_text, false)
+            };
+            for (k, end) in ends.iter().enumerate() {
+                let Some((x, y)) = *end else { continue };
+                if k == 1 && ends[0] == ends[1] {
+                    continue;
+                }
+                let text = number(y, decimals, commas);
+                let w = text_width(&text, theme.label_size, bold);
+                let p = (xm(x), ym(y));
+                let d = 8.0;
+                let side = if k == 0 { p.0 + d } else { p.0 - d - w };
+                let cands = [
+                    Rect {
+                        x0: p.0 - w / 2.0,
+                        y0: p.1 - d - lh,
+                        x1: p.0 + w / 2.0,
+                        y1: p.1 - d,
+                    },
+                    Rect {
+                        x0: p.0 - w / 2.0,
+                        y0: p.1 + d,
+                        x1: p.0 + w / 2.0,
+                        y1: p.1 + d + lh,
+                    },
+                    Rect {
+                        x0: side,
+                        y0: p.1 - d - lh,
+                        x1: side + w,
+                        y1: p.1 - d,
+                    },
+                    Rect {
+                        x0: side,
+                        y0: p.1 + d,
+                        x1: side + w,
+                        y1: p.1 + d + lh,
+                    },
+                    Rect {
+                        x0: side,
+                        y0: p.1 - lh / 2.0,
+                        x1: side + w,
+                        y1: p.1 + lh / 2.0,
+                    },
+                ];
+                if let Some(r) = choose(&cands, obstacles, &area, false) {
+                    kit::put(
+                        canvas,
+                        obstacles,
+                        &Label {
+                            text: &text,
+                            x: r.x0,
+                            top: r.y0,
+                            size: theme.label_size,
+                            bold,
+                            color,
+                            align: Align::Start,
+                        },
+                    )?;
+                }
+            }
+        }
+    }
+
+    // Callouts last: they have the most freedom.
+    for a in &chart.annotations {
+        let Annotation::Callout { x, y, text } = a else {
+            continue;
+        };
+        if !x.is_finite() || !y.is_finite() {
+            continue;
+        }
+        let lines = metrics::wrap(
+            text,
+            theme.label_size,
+            false,
+            CALLOUT_WIDTH.min(plot_w),
+            CALLOUT_LINES,
+        );
+        if lines.is_empty() {
+            continue;
+        }
+        let step = theme.label_step();
+        let w = lines
+            .iter()
+            .map(|t| text_width(t, theme.label_size, false))
+            .fold(0.0, f64::max);
+        let h = (lines.len() - 1) as f64 * step + lh;
+        let p = (xm(*x), ym(*y));
+        let mut cands = Vec::new();
+        for dist in [22.0, 44.0, 76.0, 120.0] {
+            let diag = dist * 0.7;
+            for (x0, y0) in [
+                (p.0 + diag, p.1 - diag - h),
+                (p.0 - diag - w, p.1 - diag - h),
+                (p.0 + diag, p.1 + diag),
+                (p.0 - diag - w, p.1 + diag),
+                (p.0 - w / 2.0, p.1 - dist - h),
+                (p.0 - w / 2.0, p.1 + dist),
+                (p.0 + dist, p.1 - h / 2.0),
+                (p.0 - dist - w, p.1 - h / 2.0),
+            ] {
+                cands.push(Rect {
+                    x0,
+                    y0,
+                    x1: x0 + w,
+                    y1: y0 + h,
+                });
+            }
+        }
+        let Some(r) = choose(&cands, obstacles, &area, false) else {
+            continue;
+        };
+        // Leader from near the point to the nearest edge of the text block.
+        let g = r.grow(4.0);
+        let to = (p.0.clamp(g.x0, g.x1), p.1.clamp(g.y0, g.y1));
+        let (dx, dy) = (to.0 - p.0, to.1 - p.1);
+        let len = (dx * dx + dy * dy).sqrt();
+        if len > 8.0 {
+            let from = (p.0 + dx / len * 4.0, p.1 + dy / len * 4.0);
+            canvas.line(from, to, theme.muted, 1)?;
+            obstacles.segments.push((from, to));
+        }
+        for (k, line) in lines.iter().enumerate() {
+            kit::put(
+                canvas,
+                obstacles,
+                &Label {
+                    text: line,
+                    x: r.x0,
+                    top: r.y0 + k as f64 * step,
+                    size: theme.label_size,
+                    bold: false,
+                    color: theme.takeaway,
+                    align: Align::Start,
+                },
+            )?;
+        }
+    }
+    Ok(())
+}
+
+fn plain<'a>(theme: &Theme, text: &'a str, r: Rect) -> Label<'a> {
+    Label {
+        text,
+        x: r.x0,
+        top: r.y0,
+        size: theme.label_size,
+        bold: false,
+        color: theme.muted,
+        align: Align::Start,
+    }
+}

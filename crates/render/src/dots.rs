@@ -1,0 +1,240 @@
+//! Dot plots: one row per category down the left, dots along one value axis
+//! at the bottom, nothing joining a dot to the axis (so a dot never reads as
+//! a bar). With several series the dots of a row are joined by a thin grey
+//! line that shows their range, and the series are named directly above the
+//! top row. Focus dots are in the accent, context dots grey; hidden rows and
+//! series keep their place empty.
+
+use crate::canvas::{Align, Canvas, Label};
+use crate::kit::{self, mix, muted_label, spread_widths, Obstacles};
+use crate::layout::{self, fit_label_at, map, max_width, Region};
+use crate::metrics::{self, line_height, text_width};
+use crate::theme::Theme;
+use crate::RenderError;
+use crescendo_plan::{DotChart, Role};
+
+/// Dot radius in px (smaller when rows are tight).
+const DOT: f64 = 6.0;
+/// Space between the category column and the plot.
+const PAD: f64 = 12.0;
+/// Widest category column, as a share of the region.
+const MAX_CATEGORY_SHARE: f64 = 0.32;
+
+pub(crate) fn draw(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &DotChart,
+    region: Region,
+) -> Result<(), RenderError> {
+    layout::check_axis(&chart.value, "value")?;
+    let lh = line_height(theme.label_size);
+    let mut obstacles = Obstacles::default();
+    let mut top = region.top;
+    if let Some(title) = chart.category_title.as_deref() {
+        let text = fit_label_at(
+            theme.label_size,
+            title,
+            region.right - region.left,
+            1,
+            false,
+        )
+        .join(" ");
+        kit::put(
+            canvas,
+            &mut obstacles,
+            &muted_label(
+                theme,
+                theme.label_size,
+                &text,
+                region.left,
+                top,
+                Align::Start,
+            ),
+        )?;
+        top += lh + 8.0;
+    }
+    let several = chart.series.len() > 1;
+    let series_row_top = top;
+    if several {
+        top += lh + 6.0;
+    }
+    let plot_top = top;
+    let mut bottom = region.bottom;
+    let value_title_top = chart.value.title.as_ref().map(|_| {
+        bottom -= lh;
+        let t = bottom;
+        bottom -= 4.0;
+        t
+    });
+    let tick_top = bottom - lh;
+    let plot_bottom = tick_top - 8.0;
+
+    let widest = max_width(
+        chart.rows.iter().map(|r| r.label.as_str()),
+        theme.label_size,
+        true,
+    );
+    let col_w = widest.min((region.right - region.left) * MAX_CATEGORY_SHARE);
+    let col_right = region.left + col_w;
+    let n = chart.rows.len().max(1);
+    let band = (plot_bottom - plot_top) / n as f64;
+    let radius = DOT.min(band * 0.35).max(2.0);
+    let value_left = col_right + PAD + DOT;
+    let value_right = region.right - DOT;
+    let vmap = |v: f64| map(v, chart.value.domain, value_left, value_right);
+
+    if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
+        let text =
+            fit_label_at(theme.label_size, title, value_right - value_left, 1, false).join(" ");
+        kit::put(
+            canvas,
+            &mut obstacles,
+            &muted_label(
+                theme,
+                theme.label_size,
+                &text,
+                (value_left + value_right) / 2.0,
+                t,
+                Align::Middle,
+            ),
+        )?;
+    }
+    let ticks: Vec<(f64, f64, String)> = layout::visible_ticks(&chart.value)
+        .into_iter()
+        .map(|(v, text)| {
+            let w = text_width(&text, theme.label_size, false);
+            (
+                vmap(v)
+                    .max(col_right + PAD + w / 2.0)
+                    .min(region.right - w / 2.0),
+                w,
+                text,
+            )
+        })
+        .collect();
+    let spans: Vec<(f64, f64)> = ticks
+        .iter()
+        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
+        .collect();
+    for ((c, _, text), keep) in ticks.iter().zip(layout::thin(&spans, 12.0)) {
+        if keep {
+            kit::put(
+                canvas,
+                &mut obstacles,
+                &muted_label(theme, theme.label_size, text, *c, tick_top, Align::Middle),
+            )?;
+        }
+    }
+    canvas.line(
+        (col_right + PAD, plot_bottom),
+        (region.right, plot_bottom),
+        theme.baseline,
+        theme.baseline_stroke,
+    )?;
+
+    // Category labels, thinned if rows are tighter than a line of text.
+    let centre = |i: usize| plot_top + (i as f64 + 0.5) * band;
+    let spans: Vec<(f64, f64)> = (0..chart.rows.len())
+        .map(|i| (centre(i) - lh / 2.0, centre(i) + lh / 2.0))
+        .collect();
+    let keep = layout::thin(&spans, 0.0);
+    let any_focus_series = chart.series.iter().any(|s| s.role == Role::Focus);
+    let range_color = mix(theme.context, theme.page, 0.45);
+    for (i, row) in chart.rows.iter().enumerate() {
+        let y = centre(i);
+        if keep.get(i).copied().unwrap_or(false) && row.role != Role::Hidden {
+            // Fitted at bold width so the text is the same in every role.
+            let text = fit_label_at(theme.label_size, &row.label, col_w, 1, true).join(" ");
+            let focus = row.role == Role::Focus;
+            kit::put(
+                canvas,
+                &mut obstacles,
+                &Label {
+                    text: &text,
+                    x: col_right,
+                    top: y - lh / 2.0,
+                    size: theme.label_size,
+                    bold: focus,
+                    color: if focus { theme.accent } else { theme.muted },
+                    align: Align::End,
+                },
+            )?;
+        }
+        if row.role == Role::Hidden {
+            continue;
+        }
+        let visible: Vec<(f64, Role)> = chart
+            .series
+            .iter()
+            .zip(&row.values)
+            .filter(|(s, _)| s.role != Role::Hidden)
+            .filter_map(|(s, v)| v.filter(|v| v.is_finite()).map(|v| (vmap(v), s.role)))
+            .collect();
+        if visible.len() > 1 {
+            let lo = visible.iter().map(|v| v.0).fold(f64::INFINITY, f64::min);
+            let hi = visible
+                .iter()
+                .map(|v| v.0)
+                .fold(f64::NEG_INFINITY, f64::max);
+            canvas.line((lo, y), (hi, y), range_color, 2)?;
+        }
+        // Context dots first, focus dots on top.
+        for pass in [false, true] {
+            for &(x, role) in &visible {
+                let focus = role == Role::Focus || (!any_focus_series && row.role == Role::Focus);
+                if focus == pass {
+                    let color = if focus { theme.accent } else { theme.context };
+                    canvas.dot((x, y), radius.round() as u32, color)?;
+                }
+            }
+        }
+    }
+
+    // Series names above the top row, over each series' first dot.
+    if several {
+        let mut wanted: Vec<(f64, f64, usize, String)> = chart
+            .series
+            .iter()
+            .enumerate()
+            .filter_map(|(k, s)| {
+                let x = chart
+                    .rows
+                    .iter()
+                    .find_map(|r| r.values.get(k).copied().flatten().filter(|v| v.is_finite()))
+                    .map(vmap)?;
+                let text =
+                    metrics::ellipsize(&metrics::normalize(&s.name), theme.label_size, true, 240.0);
+                Some((x, text_width(&text, theme.label_size, true), k, text))
+            })
+            .collect();
+        wanted.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.2.cmp(&b.2)));
+        let centres = spread_widths(
+            &wanted.iter().map(|w| w.0).collect::<Vec<_>>(),
+            &wanted.iter().map(|w| w.1).collect::<Vec<_>>(),
+            14.0,
+            col_right + PAD,
+            region.right,
+        );
+        for ((_, _, k, text), c) in wanted.iter().zip(centres) {
+            let (color, bold) = match chart.series[*k].role {
+                Role::Hidden => continue,
+                Role::Focus => (theme.accent, true),
+                Role::Context => (theme.context_text, false),
+            };
+            kit::put(
+                canvas,
+                &mut obstacles,
+                &Label {
+                    text,
+                    x: c,
+                    top: series_row_top,
+                    size: theme.label_size,
+                    bold,
+                    color,
+                    align: Align::Middle,
+                },
+            )?;
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,104 @@
+//! Figures: one or two numbers set very large, each with a caption under it,
+//! left-aligned in the chart region and side by side when there are two. A
+//! focus figure is in the accent, a context figure in the headline ink; a
+//! hidden figure keeps its column empty.
+
+use crate::canvas::{Align, Canvas, Label};
+use crate::layout::Region;
+use crate::metrics::{self, line_height, text_width};
+use crate::theme::Theme;
+use crate::RenderError;
+use crescendo_plan::{FigureChart, Role};
+
+/// Size of a figure when it fits its column, in px (bold). (120 cannot be
+/// written exactly through plotters' `size / 1.24`; 118 can.)
+pub(crate) const FIGURE_SIZE: f64 = 118.0;
+/// Smallest size a long figure is shrunk to before it is cut.
+const MIN_FIGURE_SIZE: f64 = 48.0;
+/// Caption size in px.
+pub(crate) const CAPTION_SIZE: f64 = 22.0;
+const CAPTION_STEP: f64 = 28.0;
+const CAPTION_LINES: usize = 3;
+/// Space between the two columns.
+const COLUMN_GAP: f64 = 72.0;
+/// Space between a figure and its caption.
+const FIGURE_TO_CAPTION: f64 = 10.0;
+
+pub(crate) fn draw(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &FigureChart,
+    region: Region,
+) -> Result<(), RenderError> {
+    let n = chart.figures.len();
+    if n == 0 {
+        return Ok(());
+    }
+    let width = region.right - region.left;
+    let column = ((width - (n - 1) as f64 * COLUMN_GAP) / n as f64).max(1.0);
+    // One size for every figure (the widest decides), in whole px so the
+    // SVG states it exactly; it depends on the texts only, never on roles.
+    let widest = chart
+        .figures
+        .iter()
+        .map(|f| text_width(&metrics::normalize(&f.text), 1.0, true))
+        .fold(0.0, f64::max);
+    let mut size = if widest > 0.0 {
+        (column / widest)
+            .floor()
+            .clamp(MIN_FIGURE_SIZE, FIGURE_SIZE)
+    } else {
+        FIGURE_SIZE
+    };
+    // The largest whole size at most that which the SVG states exactly.
+    while size > MIN_FIGURE_SIZE && crate::canvas::requested_size(size) / 1.24 != size {
+        size -= 1.0;
+    }
+    let captions: Vec<Vec<String>> = chart
+        .figures
+        .iter()
+        .map(|f| metrics::wrap(&f.caption, CAPTION_SIZE, false, column, CAPTION_LINES))
+        .collect();
+    let caption_lines = captions.iter().map(Vec::len).max().unwrap_or(0);
+    let block = line_height(size)
+        + if caption_lines > 0 {
+            FIGURE_TO_CAPTION
+                + (caption_lines - 1) as f64 * CAPTION_STEP
+                + line_height(CAPTION_SIZE)
+        } else {
+            0.0
+        };
+    // A little above the middle of the region.
+    let top = region.top + ((region.bottom - region.top - block) * 0.35).max(0.0);
+    for (i, (figure, caption)) in chart.figures.iter().zip(&captions).enumerate() {
+        let color = match figure.role {
+            Role::Hidden => continue,
+            Role::Focus => theme.accent,
+            Role::Context => theme.headline,
+        };
+        let left = region.left + i as f64 * (column + COLUMN_GAP);
+        let text = metrics::ellipsize(&metrics::normalize(&figure.text), size, true, column);
+        canvas.text(&Label {
+            text: &text,
+            x: left,
+            top,
+            size,
+            bold: true,
+            color,
+            align: Align::Start,
+        })?;
+        let caption_top = top + line_height(size) + FIGURE_TO_CAPTION;
+        for (k, line) in caption.iter().enumerate() {
+            canvas.text(&Label {
+                text: line,
+                x: left,
+                top: caption_top + k as f64 * CAPTION_STEP,
+                size: CAPTION_SIZE,
+                bold: false,
+                color: theme.takeaway,
+                align: Align::Start,
+            })?;
+        }
+    }
+    Ok(())
+}

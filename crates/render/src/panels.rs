@@ -1,0 +1,527 @@
+//! Small multiples: a grid of panels, at most four to a row, each with its
+//! bold title over a small line or bar chart. With a common scale every
+//! panel has the same units per pixel and the same tick positions, and the
+//! value labels are written once at the start of each row. Trimmed panels
+//! keep the units per pixel but stop at their own extent, so their plots
+//! differ in height (or length) with their bottoms (or starts) aligned. The
+//! focus panel's marks are in the accent, the others grey; a hidden panel
+//! keeps its cell empty.
+//!
+//! Panels name no series of their own: the panel title is the label.
+
+use crate::canvas::{Align, Canvas, Label};
+use crate::kit::{self, muted_label, Obstacles};
+use crate::layout::{self, map, max_width, Region};
+use crate::line;
+use crate::metrics::{self, line_height, text_width};
+use crate::theme::{Rgb, Theme};
+use crate::RenderError;
+use crescendo_plan::{Axis, Chart, Orientation, PanelChart, Role};
+
+/// Panels per row at most.
+const MAX_COLUMNS: usize = 4;
+/// Space between panels across and down.
+const GAP_X: f64 = 36.0;
+const GAP_Y: f64 = 18.0;
+
+/// Space between tick labels and the plot.
+const PAD: f64 = 8.0;
+
+/// What every panel of a grid draws along its measure.
+fn value_axis(chart: &Chart) -> Option<&Axis> {
+    match chart {
+        Chart::Line(l) => Some(&l.y),
+        Chart::Bars(b) => Some(&b.value),
+        _ => None,
+    }
+}
+
+fn value_domain(chart: &Chart) -> [f64; 2] {
+    match chart {
+        Chart::Bars(b) => {
+            let [a, c] = b.value.domain;
+            [a.min(c).min(0.0), a.max(c).max(0.0)]
+        }
+        Chart::Line(l) => l.y.domain,
+        _ => [0.0, 1.0],
+    }
+}
+
+fn horizontal(chart: &Chart) -> bool {
+    matches!(chart, Chart::Bars(b) if b.orientation == Orientation::Horizontal)
+}
+
+fn mark_colour(theme: &Theme, panel: Role, own: Role) -> Option<Rgb> {
+    match (panel, own) {
+        (Role::Hidden, _) | (_, Role::Hidden) => None,
+        (Role::Focus, _) | (_, Role::Focus) => Some(theme.accent),
+        _ => Some(theme.context),
+    }
+}
+
+pub(crate) fn draw(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &PanelChart,
+    region: Region,
+) -> Result<(), RenderError> {
+    let n = chart.panels.len();
+    if n == 0 {
+        return Ok(());
+    }
+    for p in &chart.panels {
+        let axis = value_axis(&p.chart)
+            .ok_or_else(|| RenderError::new("a panel holds a line or bar chart only"))?;
+        layout::check_axis(axis, "panel value")?;
+        if let Chart::Line(l) = &p.chart {
+            layout::check_axis(&l.x, "panel x")?;
+        }
+    }
+    let first = &chart.panels[0].chart;
+    let across_bars = horizontal(first);
+    let lh = line_height(theme.label_size);
+    let slh = line_height(theme.source_size);
+    let mut obstacles = Obstacles::default();
+    let cols = n.min(MAX_COLUMNS);
+    let rows = n.div_ceil(cols);
+
+    // Axis titles once for the grid: the measure's at the top left, the
+    // other axis' centred at the bottom.
+    let (measure_title, other_title) = match first {
+        Chart::Line(l) => (l.y.title.clone(), l.x.title.clone()),
+        Chart::Bars(b) if across_bars => (b.category_title.clone(), b.value.title.clone()),
+        Chart::Bars(b) => (b.value.title.clone(), b.category_title.clone()),
+        _ => (None, None),
+    };
+    let mut top = region.top;
+    if let Some(title) = measure_title.as_deref() {
+        let text = kit::fit_one(title, region.right - region.left, theme.label_size);
+        kit::put(
+            canvas,
+            &mut obstacles,
+            &muted_label(
+                theme,
+                theme.label_size,
+                &text,
+                region.left,
+                top,
+                Align::Start,
+            ),
+        )?;
+        top += lh + 8.0;
+    }
+    let mut bottom = region.bottom;
+    let other_top = other_title.as_ref().map(|_| {
+        bottom -= lh;
+        let t = bottom;
+        bottom -= 6.0;
+        t
+    });
+
+    // The lead column left of each plot: y ticks (lines, vertical bars) or
+    // category names (horizontal bars). With one common, untrimmed scale
+    // the ticks are written only in the first column.
+    let lead_w = if across_bars {
+        let widest = chart
+            .panels
+            .iter()
+            .filter_map(|p| match &p.chart {
+                Chart::Bars(b) => Some(max_width(
+                    b.bars.iter().map(|b| b.label.as_str()),
+                    theme.source_size,
+                    false,
+                )),
+                _ => None,
+            })
+            .fold(0.0, f64::max);
+        widest.min((region.right - region.left) / cols as f64 * 0.4)
+    } else {
+        chart
+            .panels
+            .iter()
+            .filter_map(|p| value_axis(&p.chart))
+            .map(|a| {
+                max_width(
+                    layout::visible_ticks(a).iter().map(|(_, l)| l.as_str()),
+                    theme.source_size,
+                    false,
+                )
+            })
+            .fold(0.0, f64::max)
+    };
+    let lead = if lead_w > 0.0 { lead_w + PAD } else { 0.0 };
+    let shared_ticks = chart.common_scale && !chart.trimmed && !across_bars;
+    let width = region.right - region.left;
+    let plot_w = if shared_ticks {
+        (width - lead - (cols - 1) as f64 * GAP_X) / cols as f64
+    } else {
+        (width - cols as f64 * lead - (cols - 1) as f64 * GAP_X) / cols as f64
+    }
+    .max(1.0);
+    let plot_left = |col: usize| {
+        if shared_ticks {
+            region.left + lead + col as f64 * (plot_w + GAP_X)
+        } else {
+            region.left + col as f64 * (lead + plot_w + GAP_X) + lead
+        }
+    };
+    let row_h = ((bottom - top - (rows - 1) as f64 * GAP_Y) / rows as f64).max(1.0);
+    // Trimmed panels: the same units per pixel, each cut to its extent.
+    let max_span = chart
+        .panels
+        .iter()
+        .map(|p| {
+            let d = value_domain(&p.chart);
+            (d[1] - d[0]).abs()
+        })
+        .fold(0.0, f64::max);
+
+    for (i, panel) in chart.panels.iter().enumerate() {
+        let (row, col) = (i / cols, i % cols);
+        let cell_top = top + row as f64 * (row_h + GAP_Y);
+        let cell_bottom = cell_top + row_h;
+        let left = plot_left(col);
+        let right = left + plot_w;
+        if panel.role != Role::Hidden {
+            let x = left - if shared_ticks && col > 0 { 0.0 } else { lead };
+            let text = metrics::ellipsize(
+                &metrics::normalize(&panel.title),
+                theme.label_size,
+                true,
+                right - x,
+            );
+            let focus = panel.role == Role::Focus;
+            kit::put(
+                canvas,
+                &mut obstacles,
+                &Label {
+                    text: &text,
+                    x,
+                    top: cell_top,
+                    size: theme.label_size,
+                    bold: true,
+                    color: if focus { theme.accent } else { theme.takeaway },
+                    align: Align::Start,
+                },
+            )?;
+        }
+        let plot_top = cell_top + lh + 8.0 + slh / 2.0;
+        let tick_top = cell_bottom - slh;
+        let plot_bottom = tick_top - 6.0;
+        let dom = value_domain(&panel.chart);
+        let share = if chart.trimmed && max_span > 0.0 {
+            ((dom[1] - dom[0]).abs() / max_span).clamp(0.0, 1.0)
+        } else {
+            1.0
+        };
+        let ticks_here = !shared_ticks || col == 0;
+        let g = Geom {
+            left,
+            right: if across_bars {
+                left + plot_w * share
+            } else {
+                right
+            },
+            top: if across_bars {
+                plot_top
+            } else {
+                plot_bottom - (plot_bottom - plot_top) * share
+            },
+            bottom: plot_bottom,
+            tick_top,
+            lead_right: left - PAD,
+            lead_w,
+        };
+        match &panel.chart {
+            Chart::Line(l) => {
+                value_ticks(canvas, theme, &l.y, dom, &g, ticks_here, &mut obstacles)?;
+                x_ticks(canvas, theme, &l.x, &g, &mut obstacles)?;
+                baseline(canvas, theme, &g, false)?;
+                let xmap = |x: f64| map(x, l.x.domain, g.left, g.right);
+                let ymap = |y: f64| map(y, dom, g.bottom, g.top);
+                let target = (2.0 * (g.right - g.left)).max(3.0) as usize;
+                for pass in [Role::Context, Role::Focus] {
+                    for s in &l.series {
+                        let Some(color) = mark_colour(theme, panel.role, s.role) else {
+                            continue;
+                        };
+                        let is_focus = color == theme.accent;
+                        if is_focus != (pass == Role::Focus) {
+                            continue;
+                        }
+                        let w = if is_focus {
+                            theme.focus_stroke.min(3)
+                        } else {
+                            theme.context_stroke
+                        };
+                        line::draw_runs(canvas, &line::runs(s, &xmap, &ymap), target, color, w)?;
+                    }
+                }
+            }
+            Chart::Bars(b) if across_bars => {
+                let vmap = |v: f64| map(v, dom, g.left, g.right);
+                // Value ticks along the bottom of every panel.
+                let mut placed = Vec::new();
+                for (v, text) in layout::visible_ticks(&b.value) {
+                    let w = text_width(&text, theme.source_size, false);
+                    placed.push((
+                        vmap(v)
+                            .max(g.left + w / 2.0)
+                            .min(g.right.max(g.left + w) - w / 2.0),
+                        w,
+                        text,
+                    ));
+                }
+                let spans: Vec<(f64, f64)> = placed
+                    .iter()
+                    .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
+                    .collect();
+                for ((c, _, text), keep) in placed.iter().zip(layout::thin(&spans, 8.0)) {
+                    if keep {
+                        kit::put(
+                            canvas,
+                            &mut obstacles,
+                            &muted_label(
+                                theme,
+                                theme.source_size,
+                                text,
+                                *c,
+                                g.tick_top,
+                                Align::Middle,
+                            ),
+                        )?;
+                    }
+                }
+                let nb = b.bars.len().max(1);
+                let band = (g.bottom - g.top) / nb as f64;
+                let spans: Vec<(f64, f64)> = (0..b.bars.len())
+                    .map(|k| {
+                        let c = g.top + (k as f64 + 0.5) * band;
+                        (c - slh / 2.0, c + slh / 2.0)
+                    })
+                    .collect();
+                let keep = layout::thin(&spans, 0.0);
+                for (k, bar) in b.bars.iter().enumerate() {
+                    let c = g.top + (k as f64 + 0.5) * band;
+                    if keep.get(k).copied().unwrap_or(false) {
+                        let text = metrics::ellipsize(
+                            &metrics::normalize(&bar.label),
+                            theme.source_size,
+                            false,
+                            g.lead_w,
+                        );
+                        kit::put(
+                            canvas,
+                            &mut obstacles,
+                            &muted_label(
+                                theme,
+                                theme.source_size,
+                                &text,
+                                g.lead_right,
+                                c - slh / 2.0,
+                                Align::End,
+                            ),
+                        )?;
+                    }
+                    let (Some(color), Some(v)) = (
+                        mark_colour(theme, panel.role, bar.role),
+                        bar.value.filter(|v| v.is_finite()),
+                    ) else {
+                        continue;
+                    };
+                    let h = (band * 0.62).min(40.0);
+                    canvas.rect((vmap(0.0), c - h / 2.0), (vmap(v), c + h / 2.0), color)?;
+                }
+                let z = vmap(0.0);
+                canvas.line(
+                    (z, g.top),
+                    (z, g.bottom),
+                    theme.baseline,
+                    theme.baseline_stroke,
+                )?;
+            }
+            Chart::Bars(b) => {
+                value_ticks(canvas, theme, &b.value, dom, &g, ticks_here, &mut obstacles)?;
+                let vmap = |v: f64| map(v, dom, g.bottom, g.top);
+                let nb = b.bars.len().max(1);
+                let band = (g.right - g.left) / nb as f64;
+                let spans: Vec<(f64, f64)> = b
+                    .bars
+                    .iter()
+                    .enumerate()
+                    .map(|(k, bar)| {
+                        let c = g.left + (k as f64 + 0.5) * band;
+                        let w = text_width(
+                            &metrics::ellipsize(
+                                &metrics::normalize(&bar.label),
+                                theme.source_size,
+                                false,
+                                band - 4.0,
+                            ),
+                            theme.source_size,
+                            false,
+                        );
+                        (c - w / 2.0, c + w / 2.0)
+                    })
+                    .collect();
+                let keep = layout::thin(&spans, 6.0);
+                for (k, bar) in b.bars.iter().enumerate() {
+                    let c = g.left + (k as f64 + 0.5) * band;
+                    if keep.get(k).copied().unwrap_or(false) {
+                        let text = metrics::ellipsize(
+                            &metrics::normalize(&bar.label),
+                            theme.source_size,
+                            false,
+                            band - 4.0,
+                        );
+                        kit::put(
+                            canvas,
+                            &mut obstacles,
+                            &muted_label(
+                                theme,
+                                theme.source_size,
+                                &text,
+                                c,
+                                g.tick_top,
+                                Align::Middle,
+                            ),
+                        )?;
+                    }
+                    let (Some(color), Some(v)) = (
+                        mark_colour(theme, panel.role, bar.role),
+                        bar.value.filter(|v| v.is_finite()),
+                    ) else {
+                        continue;
+                    };
+                    let w = (band * 0.62).min(60.0);
+                    canvas.rect((c - w / 2.0, vmap(0.0)), (c + w / 2.0, vmap(v)), color)?;
+                }
+                let z = vmap(0.0);
+                canvas.line(
+                    (g.left, z),
+                    (g.right, z),
+                    theme.baseline,
+                    theme.baseline_stroke,
+                )?;
+            }
+            _ => {}
+        }
+    }
+    if let (Some(t), Some(title)) = (other_top, other_title.as_deref()) {
+        let text = kit::fit_one(title, width, theme.label_size);
+        kit::put(
+            canvas,
+            &mut obstacles,
+            &muted_label(
+                theme,
+                theme.label_size,
+                &text,
+                (region.left + region.right) / 2.0,
+                t,
+                Align::Middle,
+            ),
+        )?;
+    }
+    Ok(())
+}
+
+/// One panel's plot rectangle and where its labels go.
+struct Geom {
+    left: f64,
+    right: f64,
+    top: f64,
+    bottom: f64,
+    tick_top: f64,
+    lead_right: f64,
+    lead_w: f64,
+}
+
+fn baseline(canvas: &Canvas<'_>, theme: &Theme, g: &Geom, _: bool) -> Result<(), RenderError> {
+    canvas.line(
+        (g.left, g.bottom),
+        (g.right, g.bottom),
+        theme.baseline,
+        theme.baseline_stroke,
+    )
+}
+
+/// Value ticks right-aligned in the lead column (only where `show`).
+fn value_ticks(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    axis: &Axis,
+    dom: [f64; 2],
+    g: &Geom,
+    show: bool,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    if !show {
+        return Ok(());
+    }
+    let slh = line_height(theme.source_size);
+    let ymap = |v: f64| map(v, dom, g.bottom, g.top);
+    let ticks = layout::visible_ticks(axis);
+    let spans: Vec<(f64, f64)> = ticks
+        .iter()
+        .map(|(v, _)| (ymap(*v) - slh / 2.0, ymap(*v) + slh / 2.0))
+        .collect();
+    for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
+        if keep {
+            kit::put(
+                canvas,
+                obstacles,
+                &muted_label(
+                    theme,
+                    theme.source_size,
+                    text,
+                    g.lead_right,
+                    ymap(*v) - slh / 2.0,
+                    Align::End,
+                ),
+            )?;
+        }
+    }
+    Ok(())
+}
+
+/// X ticks centred under their positions, thinned to fit the panel.
+fn x_ticks(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    axis: &Axis,
+    g: &Geom,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let placed: Vec<(f64, f64, String)> = layout::visible_ticks(axis)
+        .into_iter()
+        .map(|(v, text)| {
+            let text = metrics::ellipsize(&text, theme.source_size, false, g.right - g.left);
+            let w = text_width(&text, theme.source_size, false);
+            let c = map(v, axis.domain, g.left, g.right)
+                .max(g.left + w / 2.0)
+                .min(g.right - w / 2.0);
+            (c, w, text)
+        })
+        .collect();
+    let spans: Vec<(f64, f64)> = placed
+        .iter()
+        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
+        .collect();
+    for ((c, _, text), keep) in placed.iter().zip(layout::thin(&spans, 10.0)) {
+        if keep {
+            kit::put(
+                canvas,
+                obstacles,
+                &muted_label(
+                    theme,
+                    theme.source_size,
+                    text,
+                    *c,
+                    g.tick_top,
+                    Align::Middle,
+                ),
+            )?;
+        }
+    }
+    Ok(())
+}

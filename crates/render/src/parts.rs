@@ -1,0 +1,783 @@
+//! Bars split into parts: stacked (segments of one bar, from the baseline in
+//! the plan's part order) or grouped (bars side by side in each category
+//! slot), vertical or horizontal. Context parts get distinct greys derived
+//! from the theme's context grey (darker first), the focus part the accent.
+//! Parts are named directly, never in a legend: stacked parts beside the
+//! last bar (vertical) or above the first bar (horizontal), grouped parts
+//! over the group with the most room, with short leader lines. Stacked bars
+//! may carry their totals at their ends. Hidden parts and categories leave
+//! their space empty; nothing else moves.
+
+use crate::canvas::{Align, Canvas, Label};
+use crate::kit::{self, context_greys, muted_label, spread_widths, Obstacles};
+use crate::layout::{self, fit_label_at, map, max_width, Region};
+use crate::metrics::{self, line_height, text_width};
+use crate::theme::{Rgb, Theme};
+use crate::RenderError;
+use crescendo_plan::{Orientation, PartsChart, PartsMode, Role};
+
+/// Space between a label column and the plot.
+const PAD: f64 = 12.0;
+/// Space between a bar end and its total.
+const VALUE_GAP: f64 = 6.0;
+/// Share of a category band filled by its bar (stacked) or group.
+const BAR_SHARE: f64 = 0.62;
+const GROUP_SHARE: f64 = 0.8;
+/// Widest a part name may be.
+const MAX_PART_LABEL: f64 = 240.0;
+/// Widest category column of horizontal bars, as a share of the region.
+const MAX_CATEGORY_SHARE: f64 = 0.3;
+
+/// The value domain widened to include zero (bars start at zero).
+fn domain(chart: &PartsChart) -> [f64; 2] {
+    let [a, b] = chart.value.domain;
+    [a.min(b).min(0.0), a.max(b).max(0.0)]
+}
+
+/// Extent of every part of category `c` along the value axis, in data
+/// units: stacked parts pile up from zero (negative ones downwards),
+/// grouped ones each start at zero. `None` for a missing value.
+fn extents(chart: &PartsChart, c: usize) -> Vec<Option<(f64, f64)>> {
+    let values = chart
+        .categories
+        .get(c)
+        .map(|c| c.values.as_slice())
+        .unwrap_or(&[]);
+    let (mut pos, mut neg) = (0.0, 0.0);
+    (0..chart.parts.len())
+        .map(|j| {
+            let v = values.get(j).copied().flatten().filter(|v| v.is_finite())?;
+            Some(match chart.mode {
+                PartsMode::Grouped => (0.0, v),
+                PartsMode::Stacked if v >= 0.0 => {
+                    pos += v;
+                    (pos - v, pos)
+                }
+                PartsMode::Stacked => {
+                    neg += v;
+                    (neg - v, neg)
+                }
+            })
+        })
+        .collect()
+}
+
+/// Colour of each part (None when hidden).
+fn colours(theme: &Theme, chart: &PartsChart) -> Vec<Option<Rgb>> {
+    let greys = context_greys(theme, chart.parts.len());
+    chart
+        .parts
+        .iter()
+        .enumerate()
+        .map(|(j, p)| match p.role {
+            Role::Hidden => None,
+            Role::Focus => Some(theme.accent),
+            Role::Context => greys.get(j).copied(),
+        })
+        .collect()
+}
+
+fn part_text(theme: &Theme, name: &str) -> String {
+    metrics::ellipsize(
+        &metrics::normalize(name),
+        theme.label_size,
+        true,
+        MAX_PART_LABEL,
+    )
+}
+
+fn part_label<'a>(
+    theme: &Theme,
+    role: Role,
+    text: &'a str,
+    x: f64,
+    top: f64,
+    align: Align,
+) -> Option<Label<'a>> {
+    let (color, bold) = match role {
+        Role::Hidden => return None,
+        Role::Focus => (theme.accent, true),
+        Role::Context => (theme.context_text, false),
+    };
+    Some(Label {
+        text,
+        x,
+        top,
+        size: theme.label_size,
+        bold,
+        color,
+        align,
+    })
+}
+
+/// The category whose tallest part is lowest: where grouped labels have
+/// the most room.
+fn roomiest(chart: &PartsChart) -> usize {
+    let mut best = (0, f64::INFINITY);
+    for c in 0..chart.categories.len() {
+        let top = extents(chart, c)
+            .iter()
+            .flatten()
+            .map(|e| e.1.max(e.0))
+            .fold(0.0, f64::max);
+        if top < best.1 {
+            best = (c, top);
+        }
+    }
+    best.0
+}
+
+pub(crate) fn draw(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &PartsChart,
+    region: Region,
+) -> Result<(), RenderError> {
+    layout::check_axis(&chart.value, "value")?;
+    match chart.orientation {
+        Orientation::Vertical => vertical(canvas, theme, chart, region),
+        Orientation::Horizontal => horizontal(canvas, theme, chart, region),
+    }
+}
+
+fn total_label<'a>(
+    theme: &Theme,
+    role: Role,
+    text: &'a str,
+    x: f64,
+    top: f64,
+    align: Align,
+) -> Label<'a> {
+    let focus = role == Role::Focus;
+    Label {
+        text,
+        x,
+        top,
+        size: theme.label_size,
+        bold: focus,
+        color: if focus { theme.accent } else { theme.muted },
+        align,
+    }
+}
+
+fn vertical(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &PartsChart,
+    region: Region,
+) -> Result<(), RenderError> {
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
+    let dom = domain(chart);
+    let stacked = chart.mode == PartsMode::Stacked;
+    let mut obstacles = Obstacles::default();
+    let names: Vec<String> = chart
+        .parts
+        .iter()
+        .map(|p| part_text(theme, &p.name))
+        .collect();
+    let ticks = layout::visible_ticks(&chart.value);
+    let tick_w = max_width(
+        ticks.iter().map(|(_, l)| l.as_str()),
+        theme.label_size,
+        false,
+    );
+    let plot_left = if tick_w > 0.0 {
+        region.left + tick_w + PAD
+    } else {
+        region.left
+    };
+    let label_col = if stacked {
+        max_width(names.iter().map(String::as_str), theme.label_size, true)
+    } else {
+        0.0
+    };
+    let plot_right = if label_col > 0.0 {
+        region.right - label_col - PAD - 8.0
+    } else {
+        region.right
+    };
+    let n = chart.categories.len().max(1);
+    let band = (plot_right - plot_left) / n as f64;
+    let cat_w = band - 8.0;
+    let two_lines = chart
+        .categories
+        .iter()
+        .any(|c| text_width(&metrics::normalize(&c.label), theme.label_size, false) > cat_w);
+    let cat_lines = if two_lines { 2 } else { 1 };
+
+    let mut top = region.top;
+    if let Some(title) = chart.value.title.as_deref() {
+        let text = fit_label_at(
+            theme.label_size,
+            title,
+            region.right - region.left,
+            1,
+            false,
+        )
+        .join(" ");
+        kit::put(
+            canvas,
+            &mut obstacles,
+            &muted_label(
+                theme,
+                theme.label_size,
+                &text,
+                region.left,
+                top,
+                Align::Start,
+            ),
+        )?;
+        top += lh + 8.0;
+    }
+    let mut bottom = region.bottom;
+    if let Some(title) = chart.category_title.as_deref() {
+        bottom -= lh;
+        let text =
+            fit_label_at(theme.label_size, title, plot_right - plot_left, 1, false).join(" ");
+        kit::put(
+            canvas,
+            &mut obstacles,
+            &muted_label(
+                theme,
+                theme.label_size,
+                &text,
+                (plot_left + plot_right) / 2.0,
+                bottom,
+                Align::Middle,
+            ),
+        )?;
+        bottom -= 6.0;
+    }
+    let cat_top = bottom - (cat_lines - 1) as f64 * step - lh;
+    let mut value_bottom = cat_top - 10.0;
+    if dom[0] < 0.0 && stacked {
+        value_bottom -= lh + VALUE_GAP;
+    }
+    // Totals need a line above the bars; grouped labels need rows above the
+    // roomiest group, found by moving the top of the scale down until they fit.
+    let mut value_top = if stacked {
+        top + lh + VALUE_GAP
+    } else {
+        top + lh / 2.0 + 2.0
+    };
+    let g = roomiest(chart);
+    let k = chart.parts.len();
+    if !stacked && k > 0 {
+        let g_top = extents(chart, g)
+            .iter()
+            .flatten()
+            .map(|e| e.1.max(0.0))
+            .fold(0.0, f64::max);
+        for _ in 0..32 {
+            let y = map(g_top, dom, value_bottom, value_top);
+            let need = top - (y - 6.0 - k as f64 * step);
+            if need <= 0.5 {
+                break;
+            }
+            value_top += need;
+        }
+    }
+    let vmap = |v: f64| map(v, dom, value_bottom, value_top);
+
+    let spans: Vec<(f64, f64)> = ticks
+        .iter()
+        .map(|(v, _)| (vmap(*v) - lh / 2.0, vmap(*v) + lh / 2.0))
+        .collect();
+    for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
+        if keep {
+            kit::put(
+                canvas,
+                &mut obstacles,
+                &muted_label(
+                    theme,
+                    theme.label_size,
+                    text,
+                    region.left + tick_w,
+                    vmap(*v) - lh / 2.0,
+                    Align::End,
+                ),
+            )?;
+        }
+    }
+
+    let colors = colours(theme, chart);
+    let bar_w = if stacked {
+        (band * BAR_SHARE).min(140.0)
+    } else {
+        (band * GROUP_SHARE).min(60.0 * k.max(1) as f64)
+    };
+    let slot_w = if stacked {
+        bar_w
+    } else {
+        bar_w / k.max(1) as f64
+    };
+    // Where part j of category c sits across the category axis.
+    let across = |c: usize, j: usize| -> (f64, f64) {
+        let centre = plot_left + (c as f64 + 0.5) * band;
+        if stacked {
+            (centre - bar_w / 2.0, centre + bar_w / 2.0)
+        } else {
+            let left = centre - bar_w / 2.0 + j as f64 * slot_w;
+            (left + 1.0, left + slot_w - 1.0)
+        }
+    };
+    for (c, cat) in chart.categories.iter().enumerate() {
+        let centre = plot_left + (c as f64 + 0.5) * band;
+        let focus = cat.role == Role::Focus;
+        for (i, line) in fit_label_at(theme.label_size, &cat.label, cat_w, cat_lines, true)
+            .iter()
+            .enumerate()
+        {
+            kit::put(
+                canvas,
+                &mut obstacles,
+                &Label {
+                    text: line,
+                    x: centre,
+                    top: cat_top + i as f64 * step,
+                    size: theme.label_size,
+                    bold: focus,
+                    color: if focus { theme.accent } else { theme.muted },
+                    align: Align::Middle,
+                },
+            )?;
+        }
+        if cat.role == Role::Hidden {
+            continue;
+        }
+        let ext = extents(chart, c);
+        for (j, e) in ext.iter().enumerate() {
+            let (Some((a, b)), Some(color)) = (e, colors[j]) else {
+                continue;
+            };
+            let (x0, x1) = across(c, j);
+            canvas.rect((x0, vmap(*a)), (x1, vmap(*b)), color)?;
+        }
+        if stacked {
+            // Page-coloured cuts between neighbouring segments.
+            for (a, _) in ext.iter().flatten().skip(1) {
+                if *a != 0.0 {
+                    let (x0, x1) = across(c, 0);
+                    canvas.line((x0, vmap(*a)), (x1, vmap(*a)), theme.page, 1)?;
+                }
+            }
+            let text = metrics::normalize(&cat.total_label);
+            let high = ext.iter().flatten().map(|e| e.1).fold(0.0, f64::max);
+            if !text.is_empty() {
+                kit::put(
+                    canvas,
+                    &mut obstacles,
+                    &total_label(
+                        theme,
+                        cat.role,
+                        &text,
+                        centre,
+                        vmap(high) - VALUE_GAP - lh,
+                        Align::Middle,
+                    ),
+                )?;
+            }
+        }
+    }
+    let zero = vmap(0.0);
+    canvas.line(
+        (plot_left, zero),
+        (plot_right, zero),
+        theme.baseline,
+        theme.baseline_stroke,
+    )?;
+
+    if stacked {
+        // Beside the last category with a value for each part.
+        let mut wanted: Vec<(f64, usize, f64)> = Vec::new();
+        for j in 0..k {
+            let found = (0..chart.categories.len())
+                .rev()
+                .find_map(|c| extents(chart, c)[j].map(|e| (c, e)));
+            if let Some((c, (a, b))) = found {
+                wanted.push((vmap((a + b) / 2.0), j, across(c, j).1));
+            }
+        }
+        wanted.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+        let ys: Vec<f64> = wanted.iter().map(|w| w.0).collect();
+        let placed = layout::spread(&ys, step, value_top.min(top + lh / 2.0), value_bottom);
+        let x = plot_right + PAD + 8.0;
+        for (&(y0, j, bar_right), y) in wanted.iter().zip(placed) {
+            let Some(label) = part_label(
+                theme,
+                chart.parts[j].role,
+                &names[j],
+                x,
+                y - lh / 2.0,
+                Align::Start,
+            ) else {
+                continue;
+            };
+            canvas.polyline(&[(bar_right + 3.0, y0), (x - 4.0, y)], theme.baseline, 1)?;
+            kit::put(canvas, &mut obstacles, &label)?;
+        }
+    } else if k > 0 {
+        // Rows above the roomiest group: the rightmost bar's name lowest, so
+        // leaders never cross a name.
+        let ext = extents(chart, g);
+        let g_top = ext
+            .iter()
+            .flatten()
+            .map(|e| vmap(e.1.max(0.0)))
+            .fold(zero, f64::min);
+        for j in 0..k {
+            let row = k - 1 - j;
+            let label_top = g_top - 6.0 - (row as f64 + 1.0) * step + 2.0;
+            let (x0, x1) = across(g, j);
+            let cx = (x0 + x1) / 2.0;
+            let w = text_width(&names[j], theme.label_size, true);
+            let x = (cx - 2.0).min(region.right - w).max(region.left);
+            let Some(label) = part_label(
+                theme,
+                chart.parts[j].role,
+                &names[j],
+                x,
+                label_top,
+                Align::Start,
+            ) else {
+                continue;
+            };
+            let bar_top = ext[j].map(|e| vmap(e.1.max(0.0))).unwrap_or(zero);
+            canvas.line(
+                (cx, label_top + lh + 1.0),
+                (cx, bar_top - 2.0),
+                theme.baseline,
+                1,
+            )?;
+            kit::put(canvas, &mut obstacles, &label)?;
+        }
+    }
+    Ok(())
+}
+
+fn horizontal(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &PartsChart,
+    region: Region,
+) -> Result<(), RenderError> {
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
+    let dom = domain(chart);
+    let stacked = chart.mode == PartsMode::Stacked;
+    let mut obstacles = Obstacles::default();
+    let names: Vec<String> = chart
+        .parts
+        .iter()
+        .map(|p| part_text(theme, &p.name))
+        .collect();
+    let k = chart.parts.len();
+
+    let mut top = region.top;
+    if let Some(title) = chart.category_title.as_deref() {
+        let text = fit_label_at(
+            theme.label_size,
+            title,
+            region.right - region.left,
+            1,
+            false,
+        )
+        .join(" ");
+        kit::put(
+            canvas,
+            &mut obstacles,
+            &muted_label(
+                theme,
+                theme.label_size,
+                &text,
+                region.left,
+                top,
+                Align::Start,
+            ),
+        )?;
+        top += lh + 8.0;
+    }
+    let names_row_top = top;
+    if stacked {
+        top += lh + 12.0;
+    }
+    let plot_top = top;
+    let mut bottom = region.bottom;
+    let value_title_top = chart.value.title.as_ref().map(|_| {
+        bottom -= lh;
+        let t = bottom;
+        bottom -= 4.0;
+        t
+    });
+    let tick_top = bottom - lh;
+    let plot_bottom = tick_top - 8.0;
+
+    let n = chart.categories.len().max(1);
+    let band = (plot_bottom - plot_top) / n as f64;
+    let cap = (region.right - region.left) * MAX_CATEGORY_SHARE;
+    let widest = max_width(
+        chart.categories.iter().map(|c| c.label.as_str()),
+        theme.label_size,
+        true,
+    );
+    let col_w = widest.min(cap);
+    let cat_lines = if widest > cap && band >= 2.0 * step {
+        2
+    } else {
+        1
+    };
+    let col_right = region.left + col_w;
+    let plot_left = col_right + PAD;
+    let plot_right = region.right;
+
+    let total_w = if stacked {
+        max_width(
+            chart.categories.iter().map(|c| c.total_label.as_str()),
+            theme.label_size,
+            true,
+        )
+    } else {
+        0.0
+    };
+    let right_pad = if total_w > 0.0 && dom[1] > 0.0 {
+        total_w + VALUE_GAP
+    } else {
+        0.0
+    };
+    let left_pad = if total_w > 0.0 && dom[0] < 0.0 {
+        total_w + VALUE_GAP
+    } else {
+        0.0
+    };
+    let value_left = plot_left + left_pad;
+    let mut value_right = plot_right - right_pad;
+    // Grouped names go right of the roomiest group: pull the end of the
+    // scale in until they fit.
+    let g = roomiest(chart);
+    let names_w = max_width(names.iter().map(String::as_str), theme.label_size, true);
+    if !stacked && k > 0 {
+        let g_end = extents(chart, g)
+            .iter()
+            .flatten()
+            .map(|e| e.1.max(0.0))
+            .fold(0.0, f64::max);
+        for _ in 0..32 {
+            let x = map(g_end, dom, value_left, value_right);
+            let need = x + 8.0 + names_w - region.right;
+            if need <= 0.5 {
+                break;
+            }
+            value_right -= need;
+        }
+    }
+    let vmap = |v: f64| map(v, dom, value_left, value_right);
+
+    if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
+        let text =
+            fit_label_at(theme.label_size, title, plot_right - plot_left, 1, false).join(" ");
+        kit::put(
+            canvas,
+            &mut obstacles,
+            &muted_label(
+                theme,
+                theme.label_size,
+                &text,
+                (value_left + value_right) / 2.0,
+                t,
+                Align::Middle,
+            ),
+        )?;
+    }
+    let ticks: Vec<(f64, f64, String)> = layout::visible_ticks(&chart.value)
+        .into_iter()
+        .map(|(v, text)| {
+            let w = text_width(&text, theme.label_size, false);
+            (
+                vmap(v).max(region.left + w / 2.0).min(plot_right - w / 2.0),
+                w,
+                text,
+            )
+        })
+        .collect();
+    let spans: Vec<(f64, f64)> = ticks
+        .iter()
+        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
+        .collect();
+    for ((c, _, text), keep) in ticks.iter().zip(layout::thin(&spans, 12.0)) {
+        if keep {
+            kit::put(
+                canvas,
+                &mut obstacles,
+                &muted_label(theme, theme.label_size, text, *c, tick_top, Align::Middle),
+            )?;
+        }
+    }
+
+    let colors = colours(theme, chart);
+    let bar_h = if stacked {
+        (band * BAR_SHARE).min(56.0)
+    } else {
+        (band * GROUP_SHARE).min(28.0 * k.max(1) as f64)
+    };
+    let slot_h = if stacked {
+        bar_h
+    } else {
+        bar_h / k.max(1) as f64
+    };
+    let across = |c: usize, j: usize| -> (f64, f64) {
+        let centre = plot_top + (c as f64 + 0.5) * band;
+        if stacked {
+            (centre - bar_h / 2.0, centre + bar_h / 2.0)
+        } else {
+            let t = centre - bar_h / 2.0 + j as f64 * slot_h;
+            (t + 1.0, t + slot_h - 1.0)
+        }
+    };
+    let label_spans: Vec<(f64, f64)> = (0..chart.categories.len())
+        .map(|c| {
+            let centre = plot_top + (c as f64 + 0.5) * band;
+            let h = (cat_lines - 1) as f64 * step + lh;
+            (centre - h / 2.0, centre + h / 2.0)
+        })
+        .collect();
+    let keep = layout::thin(&label_spans, 0.0);
+    for (c, cat) in chart.categories.iter().enumerate() {
+        let focus = cat.role == Role::Focus;
+        if keep.get(c).copied().unwrap_or(false) {
+            for (i, line) in fit_label_at(theme.label_size, &cat.label, col_w, cat_lines, true)
+                .iter()
+                .enumerate()
+            {
+                kit::put(
+                    canvas,
+                    &mut obstacles,
+                    &Label {
+                        text: line,
+                        x: col_right,
+                        top: label_spans[c].0 + i as f64 * step,
+                        size: theme.label_size,
+                        bold: focus,
+                        color: if focus { theme.accent } else { theme.muted },
+                        align: Align::End,
+                    },
+                )?;
+            }
+        }
+        if cat.role == Role::Hidden {
+            continue;
+        }
+        let ext = extents(chart, c);
+        for (j, e) in ext.iter().enumerate() {
+            let (Some((a, b)), Some(color)) = (e, colors[j]) else {
+                continue;
+            };
+            let (y0, y1) = across(c, j);
+            canvas.rect((vmap(*a), y0), (vmap(*b), y1), color)?;
+        }
+        if stacked {
+            for (a, _) in ext.iter().flatten().skip(1) {
+                if *a != 0.0 {
+                    let (y0, y1) = across(c, 0);
+                    canvas.line((vmap(*a), y0), (vmap(*a), y1), theme.page, 1)?;
+                }
+            }
+            let text = metrics::normalize(&cat.total_label);
+            let high = ext.iter().flatten().map(|e| e.1).fold(0.0, f64::max);
+            if !text.is_empty() {
+                let centre = plot_top + (c as f64 + 0.5) * band;
+                kit::put(
+                    canvas,
+                    &mut obstacles,
+                    &total_label(
+                        theme,
+                        cat.role,
+                        &text,
+                        vmap(high) + VALUE_GAP,
+                        centre - lh / 2.0,
+                        Align::Start,
+                    ),
+                )?;
+            }
+        }
+    }
+    let zero = vmap(0.0);
+    canvas.line(
+        (zero, plot_top),
+        (zero, plot_bottom),
+        theme.baseline,
+        theme.baseline_stroke,
+    )?;
+
+    if stacked {
+        // A row of names above the first bar, each over its segment.
+        let mut wanted: Vec<(f64, usize, f64)> = Vec::new();
+        for j in 0..k {
+            let found =
+                (0..chart.categories.len()).find_map(|c| extents(chart, c)[j].map(|e| (c, e)));
+            if let Some((c, (a, b))) = found {
+                wanted.push((vmap((a + b) / 2.0), j, across(c, j).0));
+            }
+        }
+        wanted.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+        let widths: Vec<f64> = wanted
+            .iter()
+            .map(|w| text_width(&names[w.1], theme.label_size, true))
+            .collect();
+        let xs: Vec<f64> = wanted.iter().map(|w| w.0).collect();
+        let centres = spread_widths(&xs, &widths, 14.0, plot_left, region.right);
+        for (&(x0, j, bar_top), x) in wanted.iter().zip(centres) {
+            let Some(label) = part_label(
+                theme,
+                chart.parts[j].role,
+                &names[j],
+                x,
+                names_row_top,
+                Align::Middle,
+            ) else {
+                continue;
+            };
+            canvas.polyline(
+                &[(x, names_row_top + lh + 2.0), (x0, bar_top - 2.0)],
+                theme.baseline,
+                1,
+            )?;
+            kit::put(canvas, &mut obstacles, &label)?;
+        }
+    } else if k > 0 {
+        // Names right of the roomiest group, one per bar, spread apart.
+        let ext = extents(chart, g);
+        let x = ext
+            .iter()
+            .flatten()
+            .map(|e| vmap(e.1.max(0.0)))
+            .fold(zero, f64::max)
+            + 8.0;
+        let wanted: Vec<f64> = (0..k)
+            .map(|j| {
+                let (y0, y1) = across(g, j);
+                (y0 + y1) / 2.0
+            })
+            .collect();
+        let placed = layout::spread(&wanted, step, plot_top + lh / 2.0, plot_bottom - lh / 2.0);
+        let moved = placed.iter().zip(&wanted).any(|(p, w)| (p - w).abs() > 0.5);
+        for (j, y) in placed.into_iter().enumerate() {
+            // Beside its own bar when the names fit the bars' rows; else
+            // all past the longest bar of the group.
+            let own = ext[j].map(|e| vmap(e.1.max(0.0)) + 8.0).unwrap_or(x);
+            let x = if moved { x } else { own };
+            let Some(label) = part_label(
+                theme,
+                chart.parts[j].role,
+                &names[j],
+                x,
+                y - lh / 2.0,
+                Align::Start,
+            ) else {
+                continue;
+            };
+            kit::put(canvas, &mut obstacles, &label)?;
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,241 @@
+//! Scatter plots: small grey dots, focus dots larger in the accent with
+//! their names beside them (placed where they cover the fewest other
+//! labels and dots), axes as in line charts, and an optional least-squares
+//! line over the x range of the points in a dark grey with its correlation.
+
+use crate::canvas::{Align, Canvas, Label};
+use crate::kit::{self, number, Obstacles, Rect};
+use crate::layout::{self, map, Region};
+use crate::metrics::{self, line_height};
+use crate::theme::Theme;
+use crate::RenderError;
+use crescendo_plan::{Role, ScatterChart};
+
+/// Radius of a context dot, in px.
+const DOT: u32 = 4;
+/// Radius of a focus dot, in px.
+const FOCUS_DOT: u32 = 6;
+/// Widest a point label may be.
+const MAX_LABEL: f64 = 220.0;
+
+/// The fit's label: `fit: r = 0.82` (r to two decimals, no trailing zeros).
+pub(crate) fn fit_text(r: Option<f64>) -> String {
+    match r.filter(|r| r.is_finite()) {
+        Some(r) => format!("fit: r = {}", number(r, 2, false)),
+        None => "fit".to_string(),
+    }
+}
+
+/// Candidate spots for a label of size `w`×`h` beside a dot at `p` with
+/// radius `r`: right, left, above, below, the four diagonals, then the
+/// same a little farther out.
+pub(crate) fn candidates(p: (f64, f64), r: f64, w: f64, h: f64) -> Vec<Rect> {
+    let mut out = Vec::new();
+    for far in [0.0, 14.0] {
+        let d = r + 5.0 + far;
+        let spots = [
+            (p.0 + d, p.1 - h / 2.0),
+            (p.0 - d - w, p.1 - h / 2.0),
+            (p.0 - w / 2.0, p.1 - d - h),
+            (p.0 - w / 2.0, p.1 + d),
+            (p.0 + d * 0.7, p.1 - d * 0.7 - h),
+            (p.0 - d * 0.7 - w, p.1 - d * 0.7 - h),
+            (p.0 + d * 0.7, p.1 + d * 0.7),
+            (p.0 - d * 0.7 - w, p.1 + d * 0.7),
+        ];
+        out.extend(spots.iter().map(|&(x0, y0)| Rect {
+            x0,
+            y0,
+            x1: x0 + w,
+            y1: y0 + h,
+        }));
+    }
+    out
+}
+
+/// The candidate with the lowest penalty that lies inside `bounds` and is
+/// clear of text, if any.
+pub(crate) fn best_spot(cands: &[Rect], obstacles: &Obstacles, bounds: &Rect) -> Option<Rect> {
+    let mut best: Option<(f64, Rect)> = None;
+    for (k, c) in cands.iter().enumerate() {
+        if !c.inside(bounds) || !obstacles.clear_of_text(c) {
+            continue;
+        }
+        // Earlier candidates are nearer and preferred on ties.
+        let s = obstacles.score(c) + k as f64 * 0.5;
+        if best.is_none_or(|(b, _)| s < b) {
+            best = Some((s, *c));
+        }
+    }
+    best.map(|(_, r)| r)
+}
+
+pub(crate) fn draw(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &ScatterChart,
+    region: Region,
+) -> Result<(), RenderError> {
+    layout::check_axis(&chart.x, "x")?;
+    layout::check_axis(&chart.y, "y")?;
+    let lh = line_height(theme.label_size);
+    let l = kit::xy_layout(&chart.x, &chart.y, region, 0.0, theme.label_size, true);
+    let mut obstacles = Obstacles::default();
+    kit::draw_xy_axes(canvas, theme, &chart.x, &chart.y, &l, true, &mut obstacles)?;
+    let xmap = |x: f64| map(x, chart.x.domain, l.plot_left, l.plot_right);
+    let ymap = |y: f64| map(y, chart.y.domain, l.plot_bottom, l.plot_top);
+    let finite: Vec<_> = chart
+        .points
+        .iter()
+        .filter(|p| p.x.is_finite() && p.y.is_finite())
+        .collect();
+
+    // The fit goes under the dots, over the x range of every point (hidden
+    // ones too, so it does not move), clipped to the plot.
+    let mut fit_segment = None;
+    if let Some(fit) = &chart.fit {
+        let xs = finite.iter().map(|p| p.x);
+        let (lo, hi) = (
+            xs.clone().fold(f64::INFINITY, f64::min),
+            xs.fold(f64::NEG_INFINITY, f64::max),
+        );
+        if lo < hi && fit.slope.is_finite() && fit.intercept.is_finite() {
+            let a = (xmap(lo), ymap(fit.intercept + fit.slope * lo));
+            let b = (xmap(hi), ymap(fit.intercept + fit.slope * hi));
+            if let Some((a, b)) = clip(a, b, l.plot_top, l.plot_bottom) {
+                canvas.line(a, b, theme.muted, 2)?;
+                obstacles.segments.push((a, b));
+                fit_segment = Some((a, b));
+            }
+        }
+    }
+
+    for pass in [Role::Context, Role::Focus] {
+        for p in finite.iter().filter(|p| p.role == pass) {
+            let (r, color) = match pass {
+                Role::Focus => (FOCUS_DOT, theme.accent),
+                _ => (DOT, theme.context),
+            };
+            let c = (xmap(p.x), ymap(p.y));
+            canvas.dot(c, r, color)?;
+            let r = f64::from(r);
+            obstacles.segments.push(((c.0 - r, c.1), (c.0 + r, c.1)));
+            obstacles.segments.push(((c.0, c.1 - r), (c.0, c.1 + r)));
+        }
+    }
+
+    // Focus labels beside their dots; a label with no free spot is left out
+    // rather than drawn over another text.
+    let bounds = Rect {
+        x0: l.plot_left,
+        y0: l.plot_top - lh / 2.0,
+        x1: l.plot_right,
+        y1: l.plot_bottom - 2.0,
+    };
+    for p in finite.iter().filter(|p| p.role == Role::Focus) {
+        let text = metrics::ellipsize(
+            &metrics::normalize(&p.label),
+            theme.label_size,
+            true,
+            MAX_LABEL,
+        );
+        if text.is_empty() {
+            continue;
+        }
+        let w = metrics::text_width(&text, theme.label_size, true);
+        let c = (xmap(p.x), ymap(p.y));
+        let cands = candidates(c, f64::from(FOCUS_DOT), w, lh);
+        if let Some(spot) = best_spot(&cands, &obstacles, &bounds) {
+            kit::put(
+                canvas,
+                &mut obstacles,
+                &Label {
+                    text: &text,
+                    x: spot.x0,
+                    top: spot.y0,
+                    size: theme.label_size,
+                    bold: true,
+                    color: theme.accent,
+                    align: Align::Start,
+                },
+            )?;
+        }
+    }
+
+    if let (Some(fit), Some((a, b))) = (&chart.fit, fit_segment) {
+        let text = fit_text(fit.r);
+        let w = metrics::text_width(&text, theme.label_size, false);
+        // Near the upper end of the line first, then along it.
+        let (hi_end, lo_end) = if a.1 < b.1 { (a, b) } else { (b, a) };
+        let mut cands = Vec::new();
+        for t in [0.0, 0.15, 0.3, 0.5, 0.7, 1.0] {
+            let p = (
+                hi_end.0 + (lo_end.0 - hi_end.0) * t,
+                hi_end.1 + (lo_end.1 - hi_end.1) * t,
+            );
+            cands.extend(candidates(p, 2.0, w, lh));
+        }
+        if let Some(spot) = best_spot(&cands, &obstacles, &bounds) {
+            kit::put(
+                canvas,
+                &mut obstacles,
+                &Label {
+                    text: &text,
+                    x: spot.x0,
+                    top: spot.y0,
+                    size: theme.label_size,
+                    bold: false,
+                    color: theme.muted,
+                    align: Align::Start,
+                },
+            )?;
+        }
+    }
+    Ok(())
+}
+
+/// The part of segment `a`–`b` between the horizontal lines `top` and
+/// `bottom`, if any.
+fn clip(a: (f64, f64), b: (f64, f64), top: f64, bottom: f64) -> Option<((f64, f64), (f64, f64))> {
+    let at = |y: f64| {
+        if (b.1 - a.1).abs() < 1e-12 {
+            a.0
+        } else {
+            a.0 + (y - a.1) / (b.1 - a.1) * (b.0 - a.0)
+        }
+    };
+    let clamp = |p: (f64, f64)| {
+        if p.1 < top {
+            (at(top), top)
+        } else if p.1 > bottom {
+            (at(bottom), bottom)
+        } else {
+            p
+        }
+    };
+    if (a.1 < top && b.1 < top) || (a.1 > bottom && b.1 > bottom) {
+        return None;
+    }
+    Some((clamp(a), clamp(b)))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn fit_label_trims_zeros() {
+        assert_eq!(fit_text(Some(0.8234)), "fit: r = 0.82");
+        assert_eq!(fit_text(Some(0.8)), "fit: r = 0.8");
+        assert_eq!(fit_text(Some(-0.456)), "fit: r = -0.46");
+        assert_eq!(fit_text(Some(1.0)), "fit: r = 1");
+        assert_eq!(fit_text(None), "fit");
+    }
+
+    #[test]
+    fn clip_keeps_the_part_inside() {
+        let c = clip((0.0, -10.0), (10.0, 10.0), 0.0, 100.0).unwrap();
+        assert_eq!(c, ((5.0, 0.0), (10.0, 10.0)));
+        assert!(clip((0.0, -10.0), (10.0, -5.0), 0.0, 100.0).is_none());
+    }
+}

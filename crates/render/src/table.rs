@@ -1,0 +1,168 @@
+//! Tables for looking values up: column titles over a single thin rule,
+//! numbers right-aligned and text left-aligned, no other lines. Shaded rows
+//! sit on a very light band; a focus row is bold in the accent, and so is a
+//! focus cell. Hidden rows keep their place empty.
+//!
+//! Columns are as wide as their widest text (measured bold, so a spotlight
+//! never changes the layout), shrunk together when the table is wider than
+//! the region, with cells cut by an ellipsis. Rows are capped to what fits
+//! the region: when some are left out, the last row that fits says how
+//! many more there are.
+
+use crate::canvas::{Align, Canvas, Label};
+use crate::kit::faint_fill;
+use crate::layout::Region;
+use crate::metrics::{self, line_height, text_width};
+use crate::theme::Theme;
+use crate::RenderError;
+use crescendo_plan::{Role, TableChart};
+
+/// Space between columns.
+const COLUMN_GAP: f64 = 36.0;
+/// Padding above and below the text of a row.
+const ROW_PAD: f64 = 6.0;
+/// Shading reaches this far beyond the first and last column.
+const BAND_OVERHANG: f64 = 10.0;
+
+fn row_height(theme: &Theme) -> f64 {
+    line_height(theme.label_size) + 2.0 * ROW_PAD
+}
+
+pub(crate) fn draw(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &TableChart,
+    region: Region,
+) -> Result<(), RenderError> {
+    let ncol = chart.columns.len();
+    if ncol == 0 {
+        return Ok(());
+    }
+    let lh = line_height(theme.label_size);
+    let mut widths: Vec<f64> = chart
+        .columns
+        .iter()
+        .enumerate()
+        .map(|(c, col)| {
+            chart
+                .rows
+                .iter()
+                .filter_map(|r| r.cells.get(c))
+                .map(|t| text_width(&metrics::normalize(t), theme.label_size, true))
+                .fold(
+                    text_width(&metrics::normalize(&col.title), theme.label_size, true),
+                    f64::max,
+                )
+        })
+        .collect();
+    let inner = region.right - region.left - 2.0 * BAND_OVERHANG;
+    let gaps = (ncol - 1) as f64 * COLUMN_GAP;
+    let natural: f64 = widths.iter().sum();
+    if natural + gaps > inner && natural > 0.0 {
+        let k = ((inner - gaps) / natural).max(0.0);
+        for w in &mut widths {
+            *w *= k;
+        }
+    }
+    let table_left = region.left + BAND_OVERHANG;
+    let mut lefts = Vec::with_capacity(ncol);
+    let mut x = table_left;
+    for w in &widths {
+        lefts.push(x);
+        x += w + COLUMN_GAP;
+    }
+    let table_right = x - COLUMN_GAP;
+    let anchor = |c: usize| -> (f64, Align) {
+        if chart.columns[c].numeric {
+            (lefts[c] + widths[c], Align::End)
+        } else {
+            (lefts[c], Align::Start)
+        }
+    };
+
+    // Header and the one rule under it.
+    for (c, col) in chart.columns.iter().enumerate() {
+        let text = metrics::ellipsize(
+            &metrics::normalize(&col.title),
+            theme.label_size,
+            true,
+            widths[c],
+        );
+        let (x, align) = anchor(c);
+        canvas.text(&Label {
+            text: &text,
+            x,
+            top: region.top,
+            size: theme.label_size,
+            bold: true,
+            color: theme.muted,
+            align,
+        })?;
+    }
+    let rule_y = region.top + lh + 6.0;
+    canvas.line(
+        (table_left - BAND_OVERHANG, rule_y),
+        (table_right + BAND_OVERHANG, rule_y),
+        theme.baseline,
+        theme.baseline_stroke,
+    )?;
+
+    // Rows: as many as fit; if some do not, the last slot counts them.
+    let rows_top = rule_y + 4.0;
+    let step = row_height(theme);
+    let fit = ((region.bottom - rows_top) / step).floor().max(0.0) as usize;
+    let total = chart.rows.len();
+    let shown = if total > fit {
+        fit.saturating_sub(1)
+    } else {
+        total
+    };
+    let fill = faint_fill(theme);
+    for (i, row) in chart.rows.iter().take(shown).enumerate() {
+        if row.role == Role::Hidden {
+            continue;
+        }
+        let top = rows_top + i as f64 * step;
+        if row.shaded {
+            canvas.rect(
+                (table_left - BAND_OVERHANG, top),
+                (table_right + BAND_OVERHANG, top + step),
+                fill,
+            )?;
+        }
+        for (c, &width) in widths.iter().enumerate() {
+            let cell = row
+                .cells
+                .get(c)
+                .map(|s| metrics::normalize(s))
+                .unwrap_or_default();
+            let focus = row.role == Role::Focus || row.focus_cell == Some(c);
+            let text = metrics::ellipsize(&cell, theme.label_size, true, width);
+            let (x, align) = anchor(c);
+            canvas.text(&Label {
+                text: &text,
+                x,
+                top: top + ROW_PAD,
+                size: theme.label_size,
+                bold: focus,
+                color: if focus { theme.accent } else { theme.takeaway },
+                align,
+            })?;
+        }
+    }
+    if shown < total {
+        let more = total - shown;
+        let note = format!("… {more} more row{}", if more == 1 { "" } else { "s" });
+        let text = metrics::ellipsize(&note, theme.label_size, false, region.right - table_left);
+        canvas.text(&Label {
+            text: &text,
+            x: table_left,
+            top: rows_top + shown as f64 * step + ROW_PAD,
+            size: theme.label_size,
+            bold: false,
+            color: theme.muted,
+            align: Align::Start,
+        })?;
+    }
+    Ok(())
+}

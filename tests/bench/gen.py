@@ -1,0 +1,48 @@
+#!/usr/bin/env python3
+"""Deterministic synthetic sales data for the benchmark (tests/bench/run).
+
+Usage: gen.py ROWS OUT.csv
+
+Columns: day (YYYY-MM-DD), month (YYYY-MM), region (50 values), product
+(200 values), amount (number, two decimals), units (whole number).
+A 64-bit linear congruential generator (Knuth's MMIX constants) makes the
+file identical on every machine and Python version.
+"""
+import sys
+
+A = 6364136223846793005
+C = 1442695040888963407
+M = (1 << 64) - 1
+
+
+def main():
+    rows = int(sys.argv[1])
+    out = sys.argv[2]
+    regions = [f"region-{i:02d}" for i in range(1, 51)]
+    products = [f"product-{i:03d}" for i in range(1, 201)]
+    days = []
+    for y in range(2021, 2025):
+        for m in range(1, 13):
+            for d in range(1, 29):
+                days.append((f"{y}-{m:02d}-{d:02d}", f"{y}-{m:02d}"))
+    state = 42
+    with open(out, "w", newline="") as f:
+        f.write("day,month,region,product,amount,units\n")
+        batch = []
+        for i in range(rows):
+            state = (state * A + C) & M
+            r = state >> 11
+            day, month = days[(i * len(days)) // rows]
+            region = regions[r % 50]
+            product = products[(r >> 6) % 200]
+            cents = (r >> 14) % 100000
+            units = 1 + (r >> 31) % 20
+            batch.append(f"{day},{month},{region},{product},{cents // 100}.{cents % 100:02d},{units}\n")
+            if len(batch) == 100000:
+                f.write("".join(batch))
+                batch.clear()
+        f.write("".join(batch))
+
+
+if __name__ == "__main__":
+    main()

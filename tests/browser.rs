@@ -1,0 +1,396 @@
+//! The HTML deck in a real browser: builds the pools deck, opens it in
+//! headless Chromium and drives it over the DevTools protocol (a WebSocket
+//! on 127.0.0.1): keys move between frames with exactly one frame visible,
+//! the notes button works without the keyboard, every frame keeps its text
+//! alternative, nothing is logged as an error, and a screenshot shows ink.
+//!
+//! CI installs Debian's `chromium` (`.ci/run`). Without /usr/bin/chromium
+//! the test fails, unless CRESCENDO_SKIP_BROWSER=1 (for developers only).
+
+mod common;
+
+use std::io::{Read, Write};
+use std::net::{TcpListener, TcpStream};
+use std::path::{Path, PathBuf};
+use std::process::{Child, Command, Stdio};
+use std::time::{Duration, Instant};
+
+use common::{crescendo, root, scratch};
+use serde_json::{json, Value};
+use tungstenite::{Message, WebSocket};
+
+const CHROMIUM: &str = "/usr/bin/chromium";
+/// Longest wait for any one step (start, page load, a reply).
+const STEP: Duration = Duration::from_secs(30);
+
+/// Kills the browser however the test ends.
+struct Browser {
+    child: Child,
+}
+
+impl Drop for Browser {
+    fn drop(&mut self) {
+        let _ = self.child.kill();
+        let _ = self.child.wait();
+    }
+}
+
+fn free_port() -> u16 {
+    TcpListener::bind("127.0.0.1:0")
+        .and_then(|l| l.local_addr())
+        .expect("a free local port")
+        .port()
+}
+
+fn launch(profile: &Path, port: u16) -> Browser {
+    let child = Command::new(CHROMIUM)
+        .args([
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--disable-quic",
+            "--no-first-run",
+            "--disable-background-networking",
+            "--disable-component-update",
+            "--disable-sync",
+            "--window-size=1280,720",
+            "--remote-debugging-address=127.0.0.1",
+        ])
+        .arg(format!("--user-data-dir={}", profile.display()))
+        .arg(format!("--remote-debugging-port={port}"))
+        .arg("about:blank")
+        .stdin(Stdio::null())
+        .stdout(Stdio::null())
+        .stderr(Stdio::null())
+        .spawn()
+        .expect("start chromium");
+    Browser { child }
+}
+
+/// GET a path from the DevTools HTTP endpoint (reads exactly the
+/// announced Content-Length; the connection may stay open).
+fn http_get(port: u16, path: &str) -> Option<String> {
+    let mut s = TcpStream::connect(("127.0.0.1", port)).ok()?;
+    s.set_read_timeout(Some(Duration::from_secs(5))).ok()?;
+    write!(
+        s,
+        "GET {path} HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\nConnection: close\r\n\r\n"
+    )
+    .ok()?;
+    let mut buf = Vec::new();
+    let mut chunk = [0u8; 4096];
+    loop {
+        let got = s.read(&mut chunk).ok()?;
+        if got == 0 {
+            break;
+        }
+        buf.extend_from_slice(&chunk[..got]);
+        let text = String::from_utf8_lossy(&buf);
+        if let Some((head, body)) = text.split_once("\r\n\r\n") {
+            let length = head.lines().find_map(|l| {
+                let (k, v) = l.split_once(':')?;
+                k.eq_ignore_ascii_case("content-length")
+                    .then(|| v.trim().parse::<usize>().ok())?
+            });
+            if length.is_some_and(|n| body.len() >= n) {
+                return Some(body.to_string());
+            }
+        }
+    }
+    let text = String::from_utf8_lossy(&buf);
+    text.split_once("\r\n\r\n").map(|(_, b)| b.to_string())
+}
+
+/// The WebSocket address of the first page target.
+fn page_socket(port: u16, browser: &mut Browser) -> String {
+    let start = Instant::now();
+    loop {
+        if let Ok(Some(status)) = browser.child.try_wait() {
+            panic!("chromium exited early: {status}");
+        }
+        if let Some(list) = http_get(port, "/json/list") {
+            if let Ok(Value::Array(targets)) = serde_json::from_str::<Value>(&list) {
+                if let Some(url) = targets
+                    .iter()
+                    .find(|t| t["type"] == "page")
+                    .and_then(|t| t["webSocketDebuggerUrl"].as_str())
+                {
+                    return url.to_string();
+                }
+            }
+        }
+        assert!(
+            start.elapsed() < STEP,
+            "chromium's DevTools did not come up"
+        );
+        std::thread::sleep(Duration::from_millis(100));
+    }
+}
+
+/// A DevTools session: commands with ids, and the events seen meanwhile.
+struct Session {
+    ws: WebSocket<TcpStream>,
+    next: u64,
+    events: Vec<Value>,
+}
+
+impl Session {
+    fn connect(url: &str) -> Self {
+        let rest = url.strip_prefix("ws://").expect("a ws:// address");
+        let host = rest.split('/').next().unwrap();
+        assert!(host.starts_with("127.0.0.1:"), "only local: {url}");
+        let stream = TcpStream::connect(host).expect("connect to DevTools");
+        stream.set_read_timeout(Some(STEP)).unwrap();
+        stream.set_write_timeout(Some(STEP)).unwrap();
+        let (ws, _) = tungstenite::client(url, stream).expect("WebSocket handshake");
+        Session {
+            ws,
+            next: 1,
+            events: Vec::new(),
+        }
+    }
+
+    fn read(&mut self) -> Value {
+        loop {
+            match self.ws.read().expect("a DevTools message in time") {
+                Message::Text(t) => return serde_json::from_str(t.as_str()).expect("JSON"),
+                Message::Close(_) => panic!("DevTools closed the connection"),
+                _ => {}
+            }
+        }
+    }
+
+    fn call(&mut self, method: &str, params: Value) -> Value {
+        let id = self.next;
+        self.next += 1;
+        let msg = json!({"id": id, "method": method, "params": params});
+        self.ws
+            .send(Message::text(msg.to_string()))
+            .expect("send a DevTools command");
+        let start = Instant::now();
+        loop {
+            let v = self.read();
+            if v["id"] == id {
+                assert!(v.get("error").is_none(), "{method} failed: {}", v["error"]);
+                return v["result"].clone();
+            }
+            self.events.push(v);
+            assert!(start.elapsed() < STEP, "no reply to {method}");
+        }
+    }
+
+    fn wait_for(&mut self, event: &str) {
+        if self.events.iter().any(|e| e["method"] == event) {
+            return;
+        }
+        let start = Instant::now();
+        loop {
+            let v = self.read();
+            let done = v["method"] == event;
+            self.events.push(v);
+            if done {
+                return;
+            }
+            assert!(start.elapsed() < STEP, "no {event}");
+        }
+    }
+
+    fn eval(&mut self, expression: &str) -> Value {
+        let r = self.call(
+            "Runtime.evaluate",
+            json!({"expression": expression, "returnByValue": true}),
+        );
+        assert!(
+            r.get("exceptionDetails").is_none(),
+            "{expression}: {}",
+            r["exceptionDetails"]
+        );
+        r["result"]["value"].clone()
+    }
+
+    fn press(&mut self, key: &str, code: u32) {
+        for kind in ["keyDown", "keyUp"] {
+            self.call(
+                "Input.dispatchKeyEvent",
+                json!({"type": kind, "key": key, "code": key,
+                       "windowsVirtualKeyCode": code, "nativeVirtualKeyCode": code}),
+            );
+        }
+    }
+
+    /// Errors logged by the page: console errors, uncaught exceptions and
+    /// browser log entries of level error.
+    fn errors(&self) -> Vec<String> {
+        self.events
+            .iter()
+            .filter(|e| {
+                (e["method"] == "Runtime.consoleAPICalled" && e["params"]["type"] == "error")
+                    || e["method"] == "Runtime.exceptionThrown"
+                    || (e["method"] == "Log.entryAdded" && e["params"]["entry"]["level"] == "error")
+            })
+            .map(|e| e.to_string())
+            .collect()
+    }
+}
+
+const VISIBLE: &str = "JSON.stringify(Array.from(document.querySelectorAll('section.frame'))\
+    .filter(function(s){return getComputedStyle(s).display!=='none'})\
+    .map(function(s){return s.id}))";
+
+fn visible(s: &mut Session) -> Vec<String> {
+    let v = s.eval(VISIBLE);
+    serde_json::from_str(v.as_str().unwrap()).unwrap()
+}
+
+fn base64(text: &str) -> Vec<u8> {
+    // RFC 4648 base64, as DevTools returns screenshots.
+    let value = |c: u8| match c {
+        b'A'..=b'Z' => Some(c - b'A'),
+        b'a'..=b'z' => Some(c - b'a' + 26),
+        b'0'..=b'9' => Some(c - b'0' + 52),
+        b'+' => Some(62),
+        b'/' => Some(63),
+        _ => None,
+    };
+    let mut out = Vec::new();
+    let (mut acc, mut bits) = (0u32, 0);
+    for v in text.bytes().filter_map(value) {
+        acc = (acc << 6) | u32::from(v);
+        bits += 6;
+        if bits >= 8 {
+            bits -= 8;
+            out.push((acc >> bits) as u8);
+        }
+    }
+    out
+}
+
+#[test]
+fn the_deck_works_in_a_real_browser() {
+    if !Path::new(CHROMIUM).exists() {
+        if std::env::var("CRESCENDO_SKIP_BROWSER").as_deref() == Ok("1") {
+            eprintln!("CRESCENDO_SKIP_BROWSER=1: browser test skipped");
+            return;
+        }
+        panic!(
+            "{CHROMIUM} is missing: install Debian's chromium (`apt-get install chromium`, \
+             as .ci/run does) or set CRESCENDO_SKIP_BROWSER=1 to skip this test locally"
+        );
+    }
+    let dir = scratch("browser");
+    let deck = dir.join("deck");
+    let story = root().join("stories/pools/pools.cresc");
+    let o = crescendo(
+        &root(),
+        &[
+            "build",
+            story.to_str().unwrap(),
+            "--out",
+            deck.to_str().unwrap(),
+        ],
+    );
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let manifest: Value =
+        serde_json::from_slice(&std::fs::read(deck.join("deck.json")).unwrap()).unwrap();
+    let n = manifest["frames"].as_array().unwrap().len();
+    assert!(n >= 3);
+    let index: PathBuf = deck.join("index.html").canonicalize().unwrap();
+
+    let profile = dir.join("profile");
+    std::fs::create_dir_all(&profile).unwrap();
+    let port = free_port();
+    let mut browser = launch(&profile, port);
+    let url = page_socket(port, &mut browser);
+    let mut s = Session::connect(&url);
+    s.call("Runtime.enable", json!({}));
+    s.call("Log.enable", json!({}));
+    s.call("Page.enable", json!({}));
+    s.call(
+        "Emulation.setDeviceMetricsOverride",
+        json!({"width": 1280, "height": 720, "deviceScaleFactor": 1, "mobile": false}),
+    );
+    s.call(
+        "Page.navigate",
+        json!({"url": format!("file://{}", index.display())}),
+    );
+    s.wait_for("Page.loadEventFired");
+    assert_eq!(s.eval("document.readyState"), "complete");
+
+    // Keys move between frames; exactly one frame shows, the expected one.
+    assert_eq!(visible(&mut s), ["frame-1"]);
+    let steps: [(&str, u32, usize); 6] = [
+        ("ArrowRight", 39, 2),
+        ("ArrowRight", 39, 3),
+        ("ArrowLeft", 37, 2),
+        ("End", 35, n),
+        ("ArrowRight", 39, n), // stays on the last frame
+        ("Home", 36, 1),
+    ];
+    for (key, code, expected) in steps {
+        s.press(key, code);
+        assert_eq!(
+            visible(&mut s),
+            [format!("frame-{expected}")],
+            "after {key}"
+        );
+        assert_eq!(
+            s.eval("location.hash"),
+            format!("#{expected}"),
+            "after {key}"
+        );
+        assert_eq!(
+            s.eval("document.getElementById('count').textContent"),
+            format!("{expected} / {n}")
+        );
+    }
+
+    // The notes button works without the keyboard and does not move on.
+    s.eval("document.getElementById('notes-toggle').click()");
+    assert_eq!(
+        s.eval("document.body.classList.contains('show-notes')"),
+        true
+    );
+    assert_eq!(
+        s.eval("document.getElementById('notes-toggle').getAttribute('aria-pressed')"),
+        "true"
+    );
+    assert_eq!(
+        s.eval("getComputedStyle(document.querySelector('#frame-1 .notes')).display"),
+        "block"
+    );
+    assert_eq!(visible(&mut s), ["frame-1"]);
+    s.eval("document.getElementById('notes-toggle').click()");
+    assert_eq!(
+        s.eval("document.body.classList.contains('show-notes')"),
+        false
+    );
+
+    // Every frame keeps its text alternative for screen readers.
+    let named = s.eval(
+        "Array.from(document.querySelectorAll('section.frame svg')).filter(function(v){\
+           var t=document.getElementById(v.getAttribute('aria-labelledby'));\
+           var d=document.getElementById(v.getAttribute('aria-describedby'));\
+           return v.getAttribute('role')==='img'&&t&&t.textContent.length>0&&d&&d.textContent.length>0;\
+         }).length",
+    );
+    assert_eq!(named, json!(n));
+
+    // A screenshot shows the frame: a PNG with ink on it.
+    let shot = s.call("Page.captureScreenshot", json!({"format": "png"}));
+    let png = base64(shot["data"].as_str().expect("screenshot data"));
+    let file = dir.join("screenshot.png");
+    std::fs::write(&file, &png).unwrap();
+    let img = resvg::tiny_skia::Pixmap::decode_png(&png).expect("the screenshot is a PNG");
+    assert!(img.width() >= 640 && img.height() >= 360);
+    let ink = img
+        .pixels()
+        .iter()
+        .filter(|p| p.red() < 200 || p.green() < 200 || p.blue() < 200)
+        .count();
+    assert!(ink > 1000, "the screenshot is blank ({ink} dark pixels)");
+
+    let errors = s.errors();
+    assert!(errors.is_empty(), "the page logged errors: {errors:#?}");
+    drop(s);
+    drop(browser);
+}

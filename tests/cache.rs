@@ -1,0 +1,327 @@
+//! The caches beside a deck (views and frames), streamed data items, and
+//! `crescendo watch` with and without `--serve`, end to end.
+
+mod common;
+
+use std::fs;
+use std::io::{BufRead, BufReader, Read, Write};
+use std::net::TcpStream;
+use std::path::{Path, PathBuf};
+use std::process::{Child, Command, Stdio};
+use std::sync::mpsc;
+use std::time::{Duration, Instant};
+
+use common::{crescendo, read_dir_files, root, scratch, stories};
+
+/// Two data items, each read only by views (so both are streamed), and a
+/// third that a chart reads directly (so it is loaded).
+const STORY: &str = r#"story "Streams and caches"
+source "Invented test data"
+
+data trips from "trips.csv" {
+  month: month
+}
+data fares from "fares.csv"
+data direct from "direct.csv"
+
+view by_route = trips
+  | by month, route: riders = sum(riders)
+view busiest = trips
+  | keep riders > 10
+  | by route: riders = sum(riders), n = count(), best = max(riders), typical = median(riders)
+  | sort riders descending
+view fare_mean = fares
+  | by route: fare = mean(fare)
+
+frame "Riders by month" {
+  line by_route: x month, y riders, series route
+  y title "Riders"
+  takeaway "Two routes."
+}
+frame "Busiest routes" {
+  bars busiest: category route, value riders
+  y title "Riders"
+}
+frame "Mean fare" {
+  bars fare_mean: category route, value fare
+  y title "Fare"
+}
+frame "Direct" {
+  bars direct: category route, value riders
+  y title "Riders"
+}
+"#;
+
+fn write_story(dir: &Path, riders_bump: u32) {
+    fs::write(dir.join("story.cresc"), STORY).unwrap();
+    let mut trips = String::from("month,route,riders\n");
+    for m in 1..=12 {
+        for (route, base) in [("Harbour", 20u32), ("Bay", 9)] {
+            // a quoted line break in a text nobody reads
+            trips.push_str(&format!("2024-{m:02},{route},{}\n", base + m + riders_bump));
+        }
+    }
+    fs::write(dir.join("trips.csv"), trips).unwrap();
+    fs::write(
+        dir.join("fares.csv"),
+        "route,fare,note\nHarbour,2.5,\"a\nb\"\nBay,1.75,x\nHarbour,3,y\n",
+    )
+    .unwrap();
+    fs::write(dir.join("direct.csv"), "route,riders\nHarbour,5\nBay,7\n").unwrap();
+}
+
+fn build(dir: &Path, out: &str, extra: &[&str]) -> String {
+    let mut args = vec!["build", "story.cresc", "--out", out];
+    args.extend_from_slice(extra);
+    let run = crescendo(dir, &args);
+    let stderr = String::from_utf8_lossy(&run.stderr).into_owned();
+    assert!(run.status.success(), "{stderr}");
+    stderr
+}
+
+fn report(dir: &Path, deck: &str) -> serde_json::Value {
+    let p = dir.join(".crescendo-cache").join(deck).join("report/last.json");
+    let v: serde_json::Value = serde_json::from_slice(&fs::read(&p).unwrap()).unwrap();
+    v["value"].clone()
+}
+
+fn names(v: &serde_json::Value) -> Vec<String> {
+    v.as_array()
+        .unwrap()
+        .iter()
+        .map(|x| x.as_str().unwrap().to_string())
+        .collect()
+}
+
+fn rebuilt(dir: &Path, deck: &str) -> Vec<u64> {
+    let p = dir.join(".crescendo-cache").join(deck).join("last-build.json");
+    let v: serde_json::Value = serde_json::from_slice(&fs::read(&p).unwrap()).unwrap();
+    v["frames"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|f| f["rebuilt"] == true)
+        .map(|f| f["number"].as_u64().unwrap())
+        .collect()
+}
+
+#[test]
+fn cached_and_uncached_builds_are_byte_identical() {
+    let dir = scratch("cache-identical");
+    write_story(&dir, 0);
+    build(&dir, "plain", &["--no-cache"]);
+    assert!(!dir.join(".crescendo-cache").exists(), "--no-cache wrote a cache");
+    build(&dir, "cached", &[]);
+    let r = report(&dir, "cached");
+    assert_eq!(names(&r["streamed"]), ["trips", "fares"]);
+    assert_eq!(names(&r["loaded"]), ["direct"]);
+    let second = build(&dir, "cached", &[]);
+    assert!(second.contains("all 4 reused"), "{second}");
+    let r = report(&dir, "cached");
+    assert_eq!(names(&r["cached_views"]), ["by_route", "busiest", "fare_mean"]);
+    assert!(names(&r["computed_views"]).is_empty());
+    assert_eq!(read_dir_files(&dir.join("plain")), read_dir_files(&dir.join("cached")));
+    // the demo stories too, including their `--data` variants
+    for (name, path) in stories() {
+        let out = scratch(&format!("cache-{name}"));
+        let p = path.to_str().unwrap();
+        for (deck, extra) in [("a", &["--no-cache"][..]), ("b", &[]), ("b", &[])] {
+            let d = out.join(deck);
+            let mut args = vec!["build", p, "--draft", "--out", d.to_str().unwrap()];
+            args.extend_from_slice(extra);
+            let run = crescendo(&root(), &args);
+            assert!(run.status.success(), "{name}: {}", String::from_utf8_lossy(&run.stderr));
+        }
+        assert_eq!(
+            read_dir_files(&out.join("a")),
+            read_dir_files(&out.join("b")),
+            "{name}"
+        );
+    }
+}
+
+#[test]
+fn a_data_change_recomputes_exactly_its_views() {
+    let dir = scratch("cache-invalidate");
+    write_story(&dir, 0);
+    build(&dir, "deck", &[]);
+    // change fares only: its one view is recomputed, trips' two come from
+    // the cache, and the deck is what a build without cache gives
+    fs::write(
+        dir.join("fares.csv"),
+        "route,fare,note\nHarbour,2.5,\"a\nb\"\nBay,1.5,x\nHarbour,3,y\n",
+    )
+    .unwrap();
+    let out = build(&dir, "deck", &[]);
+    let r = report(&dir, "deck");
+    assert_eq!(names(&r["computed_views"]), ["fare_mean"], "{out}");
+    assert_eq!(names(&r["cached_views"]), ["by_route", "busiest"]);
+    // only the frame drawn from that view is drawn again
+    assert_eq!(rebuilt(&dir, "deck"), [3]);
+    build(&dir, "fresh", &["--no-cache"]);
+    assert_eq!(read_dir_files(&dir.join("deck")), read_dir_files(&dir.join("fresh")));
+    // now trips: both of its views, not fares'
+    write_story(&dir, 1);
+    fs::write(
+        dir.join("fares.csv"),
+        "route,fare,note\nHarbour,2.5,\"a\nb\"\nBay,1.5,x\nHarbour,3,y\n",
+    )
+    .unwrap();
+    build(&dir, "deck", &[]);
+    let r = report(&dir, "deck");
+    assert_eq!(names(&r["computed_views"]), ["by_route", "busiest"]);
+    assert_eq!(names(&r["cached_views"]), ["fare_mean"]);
+    // a corrupt cache entry is ignored and rewritten, never an error
+    for e in fs::read_dir(dir.join(".crescendo-cache/deck/views")).unwrap() {
+        fs::write(e.unwrap().path(), b"{ not json").unwrap();
+    }
+    for e in fs::read_dir(dir.join(".crescendo-cache/deck/frames")).unwrap() {
+        fs::write(e.unwrap().path(), b"\x00").unwrap();
+    }
+    build(&dir, "deck", &[]);
+    build(&dir, "fresh", &["--no-cache"]);
+    assert_eq!(read_dir_files(&dir.join("deck")), read_dir_files(&dir.join("fresh")));
+}
+
+#[test]
+fn editing_one_frame_redraws_only_it() {
+    let dir = scratch("cache-frames");
+    write_story(&dir, 0);
+    build(&dir, "deck", &[]);
+    assert_eq!(rebuilt(&dir, "deck"), [1, 2, 3, 4]);
+    build(&dir, "deck", &[]);
+    assert!(rebuilt(&dir, "deck").is_empty());
+    let story = STORY.replace("y title \"Fare\"", "y title \"Mean fare\"");
+    fs::write(dir.join("story.cresc"), story).unwrap();
+    build(&dir, "deck", &[]);
+    assert_eq!(rebuilt(&dir, "deck"), [3]);
+    // speaker notes are not drawn: no frame is redrawn for them
+    let story = STORY
+        .replace("y title \"Fare\"", "y title \"Mean fare\"")
+        .replace("takeaway \"Two routes.\"", "takeaway \"Two routes.\"\n  notes \"Say it.\"");
+    fs::write(dir.join("story.cresc"), story).unwrap();
+    build(&dir, "deck", &[]);
+    assert!(rebuilt(&dir, "deck").is_empty());
+}
+
+/// A running `crescendo watch` whose standard error is read line by line.
+struct Watch {
+    child: Child,
+    lines: mpsc::Receiver<String>,
+}
+
+impl Watch {
+    fn start(dir: &Path, args: &[&str]) -> Watch {
+        let mut child = Command::new(env!("CARGO_BIN_EXE_crescendo"))
+            .arg("watch")
+            .args(args)
+            .current_dir(dir)
+            .env("NO_COLOR", "1")
+            .stdin(Stdio::null())
+            .stdout(Stdio::null())
+            .stderr(Stdio::piped())
+            .spawn()
+            .expect("start watch");
+        let stderr = child.stderr.take().expect("stderr");
+        let (tx, lines) = mpsc::channel();
+        std::thread::spawn(move || {
+            for line in BufReader::new(stderr).lines().map_while(Result::ok) {
+                if tx.send(line).is_err() {
+                    break;
+                }
+            }
+        });
+        Watch { child, lines }
+    }
+
+    /// Wait (at most 60 s) for a line containing `text`; returns it.
+    fn wait_for(&self, text: &str) -> String {
+        let deadline = Instant::now() + Duration::from_secs(60);
+        let mut seen = Vec::new();
+        while Instant::now() < deadline {
+            if let Ok(line) = self.lines.recv_timeout(Duration::from_millis(200)) {
+                if line.contains(text) {
+                    return line;
+                }
+                seen.push(line);
+            }
+        }
+        panic!("no line with {text:?} within 60 s; saw:\n{}", seen.join("\n"));
+    }
+}
+
+impl Drop for Watch {
+    fn drop(&mut self) {
+        let _ = self.child.kill();
+        let _ = self.child.wait();
+    }
+}
+
+fn manifest(deck: &Path) -> String {
+    fs::read_to_string(deck.join("deck.json")).unwrap_or_default()
+}
+
+#[test]
+fn watch_rebuilds_after_an_edit_and_keeps_the_last_good_deck() {
+    let dir = scratch("watch");
+    write_story(&dir, 0);
+    let w = Watch::start(&dir, &["story.cresc"]);
+    w.wait_for("watching");
+    let deck = dir.join("deck");
+    assert!(manifest(&deck).contains("Busiest routes"));
+    // a broken edit: errors are printed, the deck stays, the watch goes on
+    fs::write(dir.join("story.cresc"), STORY.replace("| by route: fare", "| by rout: fare")).unwrap();
+    w.wait_for("no deck written");
+    assert!(manifest(&deck).contains("Busiest routes"));
+    // a good edit: rebuilt
+    fs::write(dir.join("story.cresc"), STORY.replace("Busiest routes", "Routes by riders")).unwrap();
+    w.wait_for("built 4 frames");
+    assert!(manifest(&deck).contains("Routes by riders"));
+    // a data change is seen too
+    fs::write(dir.join("direct.csv"), "route,riders\nHarbour,5\nBay,70\n").unwrap();
+    w.wait_for("built 4 frames");
+    assert!(manifest(&deck).contains("Routes by riders"));
+}
+
+fn get(addr: &str, path: &str) -> (String, String) {
+    let mut s = TcpStream::connect(addr).expect("connect");
+    s.set_read_timeout(Some(Duration::from_secs(10))).unwrap();
+    write!(s, "GET {path} HTTP/1.1\r\nHost: {addr}\r\n\r\n").unwrap();
+    let mut text = String::new();
+    s.read_to_string(&mut text).unwrap();
+    let (head, body) = text.split_once("\r\n\r\n").unwrap_or((&text, ""));
+    (head.lines().next().unwrap_or("").to_string(), body.to_string())
+}
+
+#[test]
+fn serve_shows_the_deck_on_loopback_and_signals_rebuilds() {
+    let dir = scratch("serve");
+    write_story(&dir, 0);
+    let w = Watch::start(&dir, &["story.cresc", "--serve", "--port", "0"]);
+    let line = w.wait_for("serving");
+    let addr = line
+        .split("http://")
+        .nth(1)
+        .and_then(|r| r.split('/').next())
+        .expect("address")
+        .to_string();
+    assert!(addr.starts_with("127.0.0.1:"), "{addr}");
+    w.wait_for("watching");
+    let (status, body) = get(&addr, "/");
+    assert!(status.contains("200"), "{status}");
+    assert!(body.contains("/__version"), "reload script served");
+    // the file on disk has no reload script and stays as built
+    let on_disk = fs::read_to_string(dir.join("deck/index.html")).unwrap();
+    assert!(!on_disk.contains("__version"));
+    let (status, version) = get(&addr, "/__version");
+    assert!(status.contains("200"));
+    assert_eq!(version, "1");
+    assert!(get(&addr, "/deck.json").0.contains("200"));
+    for bad in ["/../story.cresc", "/%2e%2e/story.cresc", "/..%2fstory.cresc", "/.x"] {
+        assert!(get(&addr, bad).0.contains("404"), "{bad}");
+    }
+    fs::write(dir.join("story.cresc"), STORY.replace("Mean fare", "Fares")).unwrap();
+    w.wait_for("built 4 frames");
+    assert_eq!(get(&addr, "/__version").1, "2");
+    let _: PathBuf = dir;
+}
