@@ -388,3 +388,103 @@ fn frames_carry_a_text_alternative_generated_from_the_data() {
     let bars = &plan.frames[3];
     assert!(bars.description.starts_with("Bar chart of visits in 2024 by pool, 4 bars: Westbrook 114,161 (highlighted); Alder Park"), "{}", bars.description);
 }
+
+/// Data lines of an SVG frame: polylines drawn 2px or heavier, as segments.
+fn data_segments(svg: &str) -> Vec<((f64, f64), (f64, f64))> {
+    let doc = roxmltree::Document::parse(svg).unwrap();
+    let mut out = Vec::new();
+    for n in doc.descendants().filter(|n| n.has_tag_name("polyline")) {
+        let width: f64 = n
+            .attribute("stroke-width")
+            .and_then(|w| w.parse().ok())
+            .unwrap_or(1.0);
+        if width < 2.0 {
+            continue;
+        }
+        let pts: Vec<(f64, f64)> = n
+            .attribute("points")
+            .unwrap_or("")
+            .split_whitespace()
+            .filter_map(|p| {
+                let (x, y) = p.split_once(',')?;
+                Some((x.parse().ok()?, y.parse().ok()?))
+            })
+            .collect();
+        out.extend(pts.windows(2).map(|w| (w[0], w[1])));
+    }
+    out
+}
+
+/// Does the segment cross the box (Liang–Barsky clipping, common practice)?
+fn crosses(seg: ((f64, f64), (f64, f64)), b: &crescendo_render::inspect::TextBox) -> bool {
+    let ((x0, y0), (x1, y1)) = seg;
+    let (dx, dy) = (x1 - x0, y1 - y0);
+    let (mut t0, mut t1) = (0.0f64, 1.0f64);
+    for (p, q) in [
+        (-dx, x0 - b.x0),
+        (dx, b.x1 - x0),
+        (-dy, y0 - b.y0),
+        (dy, b.y1 - y0),
+    ] {
+        if p == 0.0 {
+            if q < 0.0 {
+                return false;
+            }
+        } else {
+            let r = q / p;
+            if p < 0.0 {
+                t0 = t0.max(r);
+            } else {
+                t1 = t1.min(r);
+            }
+        }
+    }
+    t0 < t1
+}
+
+#[test]
+fn labels_stay_off_the_data_lines_in_every_demo_frame() {
+    // the measure itself can fail
+    let b = crescendo_render::inspect::TextBox {
+        text: "x".into(),
+        x0: 10.0,
+        y0: 10.0,
+        x1: 20.0,
+        y1: 20.0,
+    };
+    assert!(crosses(((0.0, 15.0), (30.0, 15.0)), &b));
+    assert!(!crosses(((0.0, 25.0), (30.0, 25.0)), &b));
+    assert!(!crosses(((0.0, 0.0), (5.0, 30.0)), &b));
+    let mut crossings = Vec::new();
+    let mut labels = 0;
+    for (name, path) in stories() {
+        let plan = plan_of(&path);
+        for f in &plan.frames {
+            let svg = crescendo_render::render_frame(&plan, f).unwrap();
+            let segs = data_segments(&svg);
+            for b in crescendo_render::inspect::text_boxes(&svg).unwrap() {
+                labels += 1;
+                // shrink by a pixel: touching is not crossing
+                let inner = crescendo_render::inspect::TextBox {
+                    text: b.text.clone(),
+                    x0: b.x0 + 1.0,
+                    y0: b.y0 + 1.0,
+                    x1: b.x1 - 1.0,
+                    y1: b.y1 - 1.0,
+                };
+                if segs.iter().any(|s| crosses(*s, &inner)) {
+                    crossings.push(format!("{name} frame {}: \"{}\"", f.number, b.text));
+                }
+            }
+        }
+    }
+    println!(
+        "{} of {labels} text boxes cross a data line",
+        crossings.len()
+    );
+    assert!(
+        crossings.is_empty(),
+        "text over data lines:\n{}",
+        crossings.join("\n")
+    );
+}
