@@ -80,7 +80,10 @@ fn build(dir: &Path, out: &str, extra: &[&str]) -> String {
 }
 
 fn report(dir: &Path, deck: &str) -> serde_json::Value {
-    let p = dir.join(".crescendo-cache").join(deck).join("report/last.json");
+    let p = dir
+        .join(".crescendo-cache")
+        .join(deck)
+        .join("report/last.json");
     let v: serde_json::Value = serde_json::from_slice(&fs::read(&p).unwrap()).unwrap();
     v["value"].clone()
 }
@@ -94,7 +97,10 @@ fn names(v: &serde_json::Value) -> Vec<String> {
 }
 
 fn rebuilt(dir: &Path, deck: &str) -> Vec<u64> {
-    let p = dir.join(".crescendo-cache").join(deck).join("last-build.json");
+    let p = dir
+        .join(".crescendo-cache")
+        .join(deck)
+        .join("last-build.json");
     let v: serde_json::Value = serde_json::from_slice(&fs::read(&p).unwrap()).unwrap();
     v["frames"]
         .as_array()
@@ -110,7 +116,10 @@ fn cached_and_uncached_builds_are_byte_identical() {
     let dir = scratch("cache-identical");
     write_story(&dir, 0);
     build(&dir, "plain", &["--no-cache"]);
-    assert!(!dir.join(".crescendo-cache").exists(), "--no-cache wrote a cache");
+    assert!(
+        !dir.join(".crescendo-cache").exists(),
+        "--no-cache wrote a cache"
+    );
     build(&dir, "cached", &[]);
     let r = report(&dir, "cached");
     assert_eq!(names(&r["streamed"]), ["trips", "fares"]);
@@ -118,9 +127,15 @@ fn cached_and_uncached_builds_are_byte_identical() {
     let second = build(&dir, "cached", &[]);
     assert!(second.contains("all 4 reused"), "{second}");
     let r = report(&dir, "cached");
-    assert_eq!(names(&r["cached_views"]), ["by_route", "busiest", "fare_mean"]);
+    assert_eq!(
+        names(&r["cached_views"]),
+        ["by_route", "busiest", "fare_mean"]
+    );
     assert!(names(&r["computed_views"]).is_empty());
-    assert_eq!(read_dir_files(&dir.join("plain")), read_dir_files(&dir.join("cached")));
+    assert_eq!(
+        read_dir_files(&dir.join("plain")),
+        read_dir_files(&dir.join("cached"))
+    );
     // the demo stories too, including their `--data` variants
     for (name, path) in stories() {
         let out = scratch(&format!("cache-{name}"));
@@ -130,7 +145,11 @@ fn cached_and_uncached_builds_are_byte_identical() {
             let mut args = vec!["build", p, "--draft", "--out", d.to_str().unwrap()];
             args.extend_from_slice(extra);
             let run = crescendo(&root(), &args);
-            assert!(run.status.success(), "{name}: {}", String::from_utf8_lossy(&run.stderr));
+            assert!(
+                run.status.success(),
+                "{name}: {}",
+                String::from_utf8_lossy(&run.stderr)
+            );
         }
         assert_eq!(
             read_dir_files(&out.join("a")),
@@ -159,7 +178,10 @@ fn a_data_change_recomputes_exactly_its_views() {
     // only the frame drawn from that view is drawn again
     assert_eq!(rebuilt(&dir, "deck"), [3]);
     build(&dir, "fresh", &["--no-cache"]);
-    assert_eq!(read_dir_files(&dir.join("deck")), read_dir_files(&dir.join("fresh")));
+    assert_eq!(
+        read_dir_files(&dir.join("deck")),
+        read_dir_files(&dir.join("fresh"))
+    );
     // now trips: both of its views, not fares'
     write_story(&dir, 1);
     fs::write(
@@ -180,7 +202,10 @@ fn a_data_change_recomputes_exactly_its_views() {
     }
     build(&dir, "deck", &[]);
     build(&dir, "fresh", &["--no-cache"]);
-    assert_eq!(read_dir_files(&dir.join("deck")), read_dir_files(&dir.join("fresh")));
+    assert_eq!(
+        read_dir_files(&dir.join("deck")),
+        read_dir_files(&dir.join("fresh"))
+    );
 }
 
 #[test]
@@ -198,7 +223,10 @@ fn editing_one_frame_redraws_only_it() {
     // speaker notes are not drawn: no frame is redrawn for them
     let story = STORY
         .replace("y title \"Fare\"", "y title \"Mean fare\"")
-        .replace("takeaway \"Two routes.\"", "takeaway \"Two routes.\"\n  notes \"Say it.\"");
+        .replace(
+            "takeaway \"Two routes.\"",
+            "takeaway \"Two routes.\"\n  notes \"Say it.\"",
+        );
     fs::write(dir.join("story.cresc"), story).unwrap();
     build(&dir, "deck", &[]);
     assert!(rebuilt(&dir, "deck").is_empty());
@@ -246,7 +274,10 @@ impl Watch {
                 seen.push(line);
             }
         }
-        panic!("no line with {text:?} within 60 s; saw:\n{}", seen.join("\n"));
+        panic!(
+            "no line with {text:?} within 60 s; saw:\n{}",
+            seen.join("\n")
+        );
     }
 }
 
@@ -270,11 +301,19 @@ fn watch_rebuilds_after_an_edit_and_keeps_the_last_good_deck() {
     let deck = dir.join("deck");
     assert!(manifest(&deck).contains("Busiest routes"));
     // a broken edit: errors are printed, the deck stays, the watch goes on
-    fs::write(dir.join("story.cresc"), STORY.replace("| by route: fare", "| by rout: fare")).unwrap();
+    fs::write(
+        dir.join("story.cresc"),
+        STORY.replace("| by route: fare", "| by rout: fare"),
+    )
+    .unwrap();
     w.wait_for("no deck written");
     assert!(manifest(&deck).contains("Busiest routes"));
     // a good edit: rebuilt
-    fs::write(dir.join("story.cresc"), STORY.replace("Busiest routes", "Routes by riders")).unwrap();
+    fs::write(
+        dir.join("story.cresc"),
+        STORY.replace("Busiest routes", "Routes by riders"),
+    )
+    .unwrap();
     w.wait_for("built 4 frames");
     assert!(manifest(&deck).contains("Routes by riders"));
     // a data change is seen too
@@ -290,7 +329,10 @@ fn get(addr: &str, path: &str) -> (String, String) {
     let mut text = String::new();
     s.read_to_string(&mut text).unwrap();
     let (head, body) = text.split_once("\r\n\r\n").unwrap_or((&text, ""));
-    (head.lines().next().unwrap_or("").to_string(), body.to_string())
+    (
+        head.lines().next().unwrap_or("").to_string(),
+        body.to_string(),
+    )
 }
 
 #[test]
@@ -317,7 +359,12 @@ fn serve_shows_the_deck_on_loopback_and_signals_rebuilds() {
     assert!(status.contains("200"));
     assert_eq!(version, "1");
     assert!(get(&addr, "/deck.json").0.contains("200"));
-    for bad in ["/../story.cresc", "/%2e%2e/story.cresc", "/..%2fstory.cresc", "/.x"] {
+    for bad in [
+        "/../story.cresc",
+        "/%2e%2e/story.cresc",
+        "/..%2fstory.cresc",
+        "/.x",
+    ] {
         assert!(get(&addr, bad).0.contains("404"), "{bad}");
     }
     fs::write(dir.join("story.cresc"), STORY.replace("Mean fare", "Fares")).unwrap();

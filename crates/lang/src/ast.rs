@@ -50,7 +50,27 @@ pub enum Item {
     Accent(TextItem),
     /// `style "house.toml"`
     Style(TextItem),
+    Plugin(PluginDecl),
     Frame(FrameDecl),
+}
+
+/// `use plugin "path" as NAME [sha256 "hex"]`
+#[derive(Clone, Debug, PartialEq)]
+pub struct PluginDecl {
+    pub path: Str,
+    pub alias: Ident,
+    pub pin: Option<Str>,
+    pub span: Span,
+}
+
+/// `draw PLUGIN[.FORM] VIEW: option COLUMN, ...`
+#[derive(Clone, Debug, PartialEq)]
+pub struct DrawStmt {
+    pub plugin: Ident,
+    pub form: Option<Ident>,
+    pub view: Ident,
+    pub opts: Vec<(Ident, Ident)>,
+    pub span: Span,
 }
 
 /// `allow RULE "reason"` (top level or in a frame).
@@ -74,6 +94,7 @@ impl Item {
             Item::Value(v) => &v.span,
             Item::Allow(a) => &a.span,
             Item::Accent(t) | Item::Style(t) => &t.span,
+            Item::Plugin(p) => &p.span,
             Item::Claim(c) => &c.span,
         }
     }
@@ -441,6 +462,7 @@ pub enum FrameStmt {
     LabelEnds {
         span: Span,
     },
+    Draw(DrawStmt),
 }
 
 /// A position along x as written: a quoted time or a number.

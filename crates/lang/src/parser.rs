@@ -32,6 +32,7 @@ pub const TOP_KEYWORDS: &[&str] = &[
     "allow",
     "accent",
     "style",
+    "use",
     "frame",
 ];
 
@@ -415,6 +416,19 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
         Rule::conclusion_item => Item::Conclusion(text_item(&mut inner, span)),
         Rule::accent_item => Item::Accent(text_item(&mut inner, span)),
         Rule::style_item => Item::Style(text_item(&mut inner, span)),
+        Rule::plugin_item => {
+            let mut it = inner.into_iter().skip(2);
+            let path = string(it.next().ok_or_else(|| internal(&span))?, base);
+            let _as = it.next();
+            let alias = ident(it.next().ok_or_else(|| internal(&span))?, base);
+            let pin = it.nth(1).map(|p| string(p, base));
+            Item::Plugin(PluginDecl {
+                path,
+                alias,
+                pin,
+                span,
+            })
+        }
         Rule::allow_item => Item::Allow(allow_decl(inner, span, base)?),
         Rule::theme_item => Item::Theme {
             name: ident(inner.remove(1), base),
@@ -1065,6 +1079,34 @@ fn convert_frame_stmt(pair: Pair<Rule>, base: usize) -> Res<FrameStmt> {
             }
         }
         Rule::frame_allow => FrameStmt::Allow(allow_decl(inner, span, base)?),
+        Rule::draw_stmt => {
+            let mut names: Vec<Ident> = Vec::new();
+            let mut opts = Vec::new();
+            for p in inner.into_iter().skip(1) {
+                match p.as_rule() {
+                    Rule::ident => names.push(ident(p, base)),
+                    Rule::draw_opt => {
+                        let mut o = children(p);
+                        if let (Some(k), Some(v)) = (o.next(), o.next()) {
+                            opts.push((ident(k, base), ident(v, base)));
+                        }
+                    }
+                    _ => {}
+                }
+            }
+            let (plugin, form, view) = match names.len() {
+                2 => (names.remove(0), None, names.remove(0)),
+                3 => (names.remove(0), Some(names.remove(0)), names.remove(0)),
+                _ => return Err(internal(&span)),
+            };
+            FrameStmt::Draw(DrawStmt {
+                plugin,
+                form,
+                view,
+                opts,
+                span,
+            })
+        }
         Rule::figure_stmt => {
             let strings: Vec<Str> = inner.into_iter().skip(1).map(|p| string(p, base)).collect();
             let [text, caption] = <[Str; 2]>::try_from(strings).map_err(|_| internal(&span))?;

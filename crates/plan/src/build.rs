@@ -23,6 +23,8 @@ pub struct Options {
     /// `--data NAME=FILE`: read data item NAME from FILE instead of the file
     /// the story names (this month's export, without editing the story).
     pub data: BTreeMap<String, PathBuf>,
+    /// `--no-plugins`: refuse every `use plugin`.
+    pub no_plugins: bool,
     /// Folder of the view cache (see `loading.rs`); `None`: no cache.
     pub cache: Option<PathBuf>,
 }
@@ -38,6 +40,8 @@ pub struct Planned {
     pub anchors: Anchors,
     pub warnings: Vec<Diagnostic>,
     pub failed_claims: Vec<Diagnostic>,
+    /// The plugins the story loaded, by the name it gave them.
+    pub plugins: crate::plugins::Plugins,
 }
 
 /// The result of planning: the plan, or every error found.
@@ -55,13 +59,18 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> Pla
         end: src.text.len()..src.text.len(),
         ..Anchors::default()
     };
-    let plan = Planner::new(src, story_dir, options, &mut diags, &mut failed_claims)
-        .run(&story, &mut anchors);
+    let mut plugins = crate::plugins::Plugins::new();
+    let plan = Planner::new(src, story_dir, options, &mut diags, &mut failed_claims).run(
+        &story,
+        &mut anchors,
+        &mut plugins,
+    );
     if has_errors(&diags) {
         Err(diags)
     } else {
         match plan {
             Some(plan) => Ok(Planned {
+                plugins: std::mem::take(&mut plugins),
                 plan,
                 source: Arc::clone(src),
                 anchors,
@@ -84,6 +93,8 @@ pub(crate) struct Planner<'a> {
     pub(crate) failed_claims: &'a mut Vec<Diagnostic>,
     pub(crate) tables: Tables,
     pub(crate) values: Values,
+    /// Plugins loaded so far (`use plugin`).
+    pub(crate) plugins: crate::plugins::Plugins,
     /// The current sequence has no chart because its chart statement failed
     /// (or the deck starts without one) and that was reported: the frames
     /// that build on it are skipped without blaming each of them again.
@@ -247,6 +258,7 @@ impl<'a> Planner<'a> {
             failed_claims,
             tables: Tables::default(),
             values: Values::default(),
+            plugins: crate::plugins::Plugins::new(),
             chart_failed: false,
         }
     }
@@ -399,7 +411,12 @@ impl<'a> Planner<'a> {
         }
     }
 
-    fn run(mut self, story: &ast::StoryAst, anchors: &mut Anchors) -> Option<DeckPlan> {
+    fn run(
+        mut self,
+        story: &ast::StoryAst,
+        anchors: &mut Anchors,
+        plugins: &mut crate::plugins::Plugins,
+    ) -> Option<DeckPlan> {
         self.tables.prepare(story, self.options.cache.as_deref()); // streaming + cache
         let mut h = Header::default();
         let mut frames = Vec::new();
@@ -490,6 +507,11 @@ impl<'a> Planner<'a> {
                     self.value(v, &later_values);
                 }
                 Item::Claim(c) => claims.push(c),
+                Item::Plugin(d) => {
+                    let mut loaded = std::mem::take(&mut self.plugins);
+                    self.use_plugin(d, self.dir, self.options.no_plugins, &mut loaded);
+                    self.plugins = loaded;
+                }
                 Item::Style(t) => {
                     let text = t.text.clone();
                     self.set_once(&mut h.style, text, &t.span, "house style (`style`)")
@@ -664,6 +686,7 @@ impl<'a> Planner<'a> {
                 planned.push(fp);
             }
         }
+        *plugins = std::mem::take(&mut self.plugins);
         Some(DeckPlan {
             title,
             byline,
@@ -771,6 +794,30 @@ impl<'a> Planner<'a> {
                     else {
                         // The frames after this one build on this chart, not
                         // on the previous sequence's.
+                        *state = None;
+                        self.chart_failed = true;
+                        return None;
+                    };
+                    *state = Some(new);
+                    self.chart_failed = false;
+                    *sequence += 1;
+                }
+                FrameStmt::Draw(d) => {
+                    if k > 0 {
+                        self.error(
+                            "chart-order",
+                            "the chart statement must come first in its frame",
+                            d.span.clone(),
+                            "move this to the top of the frame",
+                        );
+                        *state = None;
+                        self.chart_failed = true;
+                        return None;
+                    }
+                    let loaded = std::mem::take(&mut self.plugins);
+                    let new = self.draw(d, &loaded);
+                    self.plugins = loaded;
+                    let Some(new) = new else {
                         *state = None;
                         self.chart_failed = true;
                         return None;
@@ -996,7 +1043,7 @@ impl<'a> Planner<'a> {
                                 return None;
                             }
                         }
-                        FrameStmt::Chart(_) | FrameStmt::Figure { .. } => {}
+                        FrameStmt::Chart(_) | FrameStmt::Figure { .. } | FrameStmt::Draw(_) => {}
                     }
                 }
             }
@@ -2089,7 +2136,29 @@ fn apply_state(st: &SeqState) -> Chart {
     };
     let x_title = st.x_title.as_ref().map(|t| t.text.clone());
     let y_title = st.y_title.as_ref().map(|t| t.text.clone());
-    apply_roles(&st.chart, &role, &x_title, &y_title, &st.cells)
+    let mut chart = apply_roles(&st.chart, &role, &x_title, &y_title, &st.cells);
+    if let Chart::Plugin(p) = &mut chart {
+        // A plugin gets the role of every item it may draw.
+        p.request.roles = st
+            .names
+            .iter()
+            .filter_map(|n| {
+                let r = match role(n) {
+                    Role::Focus => crescendo_plugin::Role::Focus,
+                    Role::Context => crescendo_plugin::Role::Context,
+                    Role::Hidden => return None,
+                };
+                Some((n.clone(), r))
+            })
+            .collect();
+        p.request.hidden = st
+            .names
+            .iter()
+            .filter(|n| st.hidden.contains(*n))
+            .cloned()
+            .collect();
+    }
+    chart
 }
 
 /// Set roles (by series, bar, part, row, slice or panel name) and axis
@@ -2159,6 +2228,12 @@ fn apply_roles(
             Chart::Scatter(sc)
         }
         Chart::Figures(f) => Chart::Figures(f.clone()),
+        Chart::Plugin(p) => {
+            let mut p = p.clone();
+            p.request.texts.x_title = x_title.clone();
+            p.request.texts.y_title = y_title.clone();
+            Chart::Plugin(p)
+        }
         Chart::Table(t) => {
             let mut t = t.clone();
             for row in &mut t.rows {
@@ -2444,6 +2519,10 @@ fn describe_more(chart: &Chart, key: &str) -> String {
                 .collect();
             format!("Pie chart of shares by {key}: {}.", slices.join("; "))
         }
+        Chart::Plugin(p) => format!(
+            "Chart drawn by the plugin {} {} (form {}).",
+            p.plugin_name, p.plugin_version, p.form
+        ),
         Chart::Panels(pc) => {
             let panels: Vec<String> = pc
                 .panels

@@ -96,6 +96,22 @@ pub enum Chart {
     Pie(PieChart),
     /// Small multiples: one panel per value of a key.
     Panels(PanelChart),
+    /// A form drawn by a plugin named with `use plugin`.
+    Plugin(PluginChart),
+}
+
+/// A chart a plugin draws: everything it needs except the plot area, which
+/// the renderer fills in.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct PluginChart {
+    /// The name the story gave the plugin (`use plugin ... as NAME`).
+    pub plugin: String,
+    /// The plugin's name for itself, and its version.
+    pub plugin_name: String,
+    pub plugin_version: String,
+    pub form: String,
+    /// The request (its `area` is filled in by the renderer).
+    pub request: crescendo_plugin::Request,
 }
 
 /// Emphasis role of a series or bar; the theme maps it to colour and weight.

@@ -26,6 +26,7 @@ pub mod metrics;
 mod panels;
 mod parts;
 mod pie;
+pub mod plugin;
 mod scatter;
 mod table;
 pub mod theme;
@@ -67,7 +68,17 @@ impl std::error::Error for RenderError {}
 /// of `frame`'s build-up sequence (so the layout is shared across it).
 /// Identical input gives identical bytes.
 pub fn render_frame(deck: &DeckPlan, frame: &FramePlan) -> Result<String, RenderError> {
+    render_frame_with(deck, frame, None)
+}
+
+/// [`render_frame`] for decks with plugin charts: `plugins` draws them.
+pub fn render_frame_with(
+    deck: &DeckPlan,
+    frame: &FramePlan,
+    plugins: Option<&dyn plugin::PluginDrawer>,
+) -> Result<String, RenderError> {
     let theme = &theme::effective(deck)?;
+    let mut plugin_description = None;
     let mut buf = String::new();
     {
         let canvas = canvas::Canvas::new(&mut buf)?;
@@ -91,6 +102,9 @@ pub fn render_frame(deck: &DeckPlan, frame: &FramePlan) -> Result<String, Render
             Chart::Table(chart) => table::draw(&canvas, theme, chart, region)?,
             Chart::Pie(chart) => pie::draw(&canvas, theme, chart, region)?,
             Chart::Panels(chart) => panels::draw(&canvas, theme, chart, region)?,
+            Chart::Plugin(chart) => {
+                plugin_description = plugin::draw(&canvas, theme, chart, region, plugins)?;
+            }
         }
         canvas.finish()?;
     }
@@ -109,7 +123,19 @@ pub fn render_frame(deck: &DeckPlan, frame: &FramePlan) -> Result<String, Render
             ),
         );
     }
-    Ok(with_text_alternative(&buf, frame))
+    match plugin_description {
+        // A plugin's own description of its panel says more than the
+        // planner's generic one.
+        Some(d) => {
+            let mut f = frame.clone();
+            f.description = match &frame.takeaway {
+                Some(t) => format!("{d} Takeaway: {t}"),
+                None => d,
+            };
+            Ok(with_text_alternative(&buf, &f))
+        }
+        None => Ok(with_text_alternative(&buf, frame)),
+    }
 }
 
 /// Give the SVG a title (the headline) and a description (the frame's text

@@ -1,0 +1,1 @@
+//! The SDK for plugin authors (being written).

@@ -1,0 +1,126 @@
+//! Charts drawn by plugins: the renderer asks the plugin host for a drawing
+//! of the plot area and styles every primitive by its role with the theme,
+//! like built-in output.
+
+use crescendo_plan::PluginChart;
+use crescendo_plugin::host::Validated;
+use crescendo_plugin::{Anchor, Area, Primitive, Pt, Role};
+
+use crate::canvas::{Align, Canvas, Label};
+use crate::layout::Region;
+use crate::theme::{Rgb, Theme};
+use crate::RenderError;
+
+/// Something that can ask a loaded plugin (by the story's name for it) to
+/// draw a request, returning a validated drawing in plot pixels.
+pub trait PluginDrawer {
+    /// Draw `request` with the plugin the story named `plugin`.
+    fn draw(&self, plugin: &str, request: &crescendo_plugin::Request) -> Result<Validated, String>;
+}
+
+fn ink(theme: &Theme, role: Role) -> (Rgb, u32) {
+    match role {
+        Role::Focus => (theme.accent, theme.focus_stroke),
+        Role::Context => (theme.context, theme.context_stroke),
+        Role::Annotation => (theme.muted, 1),
+        Role::Axis => (theme.baseline, theme.baseline_stroke),
+    }
+}
+
+fn text_ink(theme: &Theme, role: Role) -> Rgb {
+    match role {
+        Role::Focus => theme.accent,
+        Role::Context => theme.context_text,
+        Role::Annotation | Role::Axis => theme.muted,
+    }
+}
+
+/// Draw a plugin chart into `region`. Returns the plugin's description of
+/// the panel, if it gave one.
+pub fn draw(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    chart: &PluginChart,
+    region: Region,
+    plugins: Option<&dyn PluginDrawer>,
+) -> Result<Option<String>, RenderError> {
+    let Some(host) = plugins else {
+        return Err(RenderError::new(format!(
+            "frame needs plugin `{}`, which is not loaded here",
+            chart.plugin
+        )));
+    };
+    let mut request = chart.request.clone();
+    request.area = Area {
+        width: region.right - region.left,
+        height: region.bottom - region.top,
+    };
+    let drawing = host.draw(&chart.plugin, &request).map_err(|e| {
+        RenderError::new(format!(
+            "plugin `{}` ({} {}): {e}",
+            chart.plugin, chart.plugin_name, chart.plugin_version
+        ))
+    })?;
+    let at = |p: &Pt| (region.left + p.x, region.top + p.y);
+    // Areas and rectangles first, lines over them, text on top.
+    let order = |p: &Primitive| match p {
+        Primitive::Area { .. } | Primitive::Rect { .. } => 0,
+        Primitive::Line { .. } | Primitive::Polyline { .. } | Primitive::Circle { .. } => 1,
+        Primitive::Text { .. } => 2,
+    };
+    let mut prims: Vec<&Primitive> = drawing.primitives.iter().collect();
+    prims.sort_by_key(|p| order(p));
+    for p in prims {
+        match p {
+            Primitive::Line { from, to, role } => {
+                let (c, w) = ink(theme, *role);
+                canvas.line(at(from), at(to), c, w)?;
+            }
+            Primitive::Polyline { points, role } => {
+                let (c, w) = ink(theme, *role);
+                let pts: Vec<(f64, f64)> = points.iter().map(at).collect();
+                canvas.polyline(&pts, c, w)?;
+            }
+            Primitive::Area { points, role } => {
+                let (c, _) = ink(theme, *role);
+                let pts: Vec<(f64, f64)> = points.iter().map(at).collect();
+                canvas.polygon(&pts, c)?;
+            }
+            Primitive::Rect { from, to, role } => {
+                let (c, _) = ink(theme, *role);
+                canvas.rect(at(from), at(to), c)?;
+            }
+            Primitive::Circle {
+                center,
+                radius,
+                role,
+            } => {
+                let (c, _) = ink(theme, *role);
+                canvas.dot(at(center), radius.round().max(1.0) as u32, c)?;
+            }
+            Primitive::Text {
+                at: p,
+                text,
+                anchor,
+                bold,
+                role,
+            } => {
+                let (x, y) = at(p);
+                canvas.text(&Label {
+                    text,
+                    x,
+                    top: y,
+                    size: theme.label_size,
+                    bold: *bold || *role == Role::Focus,
+                    color: text_ink(theme, *role),
+                    align: match anchor {
+                        Anchor::Start => Align::Start,
+                        Anchor::Middle => Align::Middle,
+                        Anchor::End => Align::End,
+                    },
+                })?;
+            }
+        }
+    }
+    Ok(drawing.description)
+}
