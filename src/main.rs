@@ -102,6 +102,10 @@ struct DataArgs {
     /// (repeatable), e.g. `--data trips=exports/2024-12.csv`.
     #[arg(long = "data", value_name = "NAME=FILE", value_parser = parse_data_arg)]
     data: Vec<(String, PathBuf)>,
+    /// Refuse every plugin the story names (plugins are native code that
+    /// runs with your rights).
+    #[arg(long)]
+    no_plugins: bool,
 }
 
 fn parse_data_arg(s: &str) -> Result<(String, PathBuf), String> {
@@ -546,6 +550,7 @@ fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic
     let options = Options {
         data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
         cache: incremental::planner_cache(),
+        no_plugins: data.no_plugins,
     };
     crescendo_plan::plan_story(&src, dir, &options)
 }

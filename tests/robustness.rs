@@ -677,7 +677,7 @@ fn chart_ok(c: &Chart) -> bool {
             .iter()
             .all(|s| s.value.is_finite() && s.share.is_finite()),
         Chart::Panels(p) => p.panels.iter().all(|x| chart_ok(&x.chart)),
-        Chart::Figures(_) | Chart::Table(_) => true,
+        Chart::Figures(_) | Chart::Table(_) | Chart::Plugin(_) => true,
     }
 }
 

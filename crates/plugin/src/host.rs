@@ -1,9 +1,21 @@
 //! The host side: load a plugin explicitly by path, check it, call it, and
-//! validate everything it returns. (Being written.)
+//! validate everything it returns.
+//!
+//! Nothing a plugin returns is trusted: the descriptor is read field by
+//! field with bounds, the reply is size-limited, parsed strictly, and every
+//! number and point is checked before a [`Validated`] drawing is handed to
+//! the renderer. The host never panics on anything a plugin does that it can
+//! detect; what it cannot detect (a crash, an endless loop) is the price of
+//! native plugins, which is why they are loaded only explicitly.
 
+use std::ffi::c_void;
+use std::os::raw::c_char;
 use std::path::{Path, PathBuf};
 
-use crate::message::{Primitive, Request};
+use sha2::{Digest, Sha256};
+
+use crate::abi::{Descriptor, OutBuffer, ABI_VERSION, ENTRY_SYMBOL};
+use crate::message::{Area, DataDomain, Drawing, Primitive, Pt, Reply, Request, Space};
 
 /// What a loaded plugin says about itself.
 #[derive(Clone, Debug, PartialEq)]
@@ -73,16 +85,112 @@ pub struct Validated {
     pub description: Option<String>,
 }
 
-/// A loaded plugin.
+/// A loaded plugin. The library stays loaded as long as this value lives:
+/// the function pointers below point into it.
 pub struct Plugin {
     info: PluginInfo,
+    render_fn: RenderFn,
+    free_fn: FreeFn,
+    /// Declared last so it is dropped (unloaded) after everything else.
+    _library: libloading::Library,
 }
+
+impl std::fmt::Debug for Plugin {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Plugin")
+            .field("info", &self.info)
+            .finish_non_exhaustive()
+    }
+}
+
+type EntryFn = extern "C" fn() -> *const Descriptor;
+type RenderFn = extern "C" fn(*const u8, usize, *mut OutBuffer) -> i32;
+type FreeFn = extern "C" fn(OutBuffer);
+
+/// The most forms one plugin may declare.
+pub const MAX_FORMS: usize = 64;
+/// The longest name, version or form name, in bytes.
+pub const MAX_NAME_BYTES: usize = 200;
+/// The largest reply, in bytes.
+pub const MAX_REPLY_BYTES: usize = 8 * 1024 * 1024;
+/// The most primitives in one drawing.
+pub const MAX_PRIMITIVES: usize = 50_000;
+/// The most points, over all primitives of one drawing.
+pub const MAX_POINTS: usize = 200_000;
+/// The longest text primitive, in characters.
+pub const MAX_TEXT_CHARS: usize = 300;
+/// The longest description, in characters.
+pub const MAX_DESCRIPTION_CHARS: usize = 2_000;
+/// The longest error message passed on to the user, in characters.
+const MAX_ERROR_CHARS: usize = 2_000;
+/// How far outside the plot area a point may lie (rounding), in pixels.
+const SLACK: f64 = 0.5;
 
 impl Plugin {
     /// Load the library at `path`; `pin` is an expected SHA-256 (hex).
+    ///
+    /// The file is hashed before anything is loaded, so a pinned plugin that
+    /// changed is refused without running any of its code. Loading a library
+    /// runs its initialisers: only load plugins you would run as programs.
     pub fn load(path: &Path, pin: Option<&str>) -> Result<Plugin, PluginError> {
-        let _ = (path, pin);
-        Err(PluginError::NoEntry)
+        let bytes = std::fs::read(path)
+            .map_err(|e| PluginError::Unreadable(format!("{}: {e}", path.display())))?;
+        let sha256 = hex(&Sha256::digest(&bytes));
+        drop(bytes);
+        if let Some(pin) = pin {
+            let expected = pin.trim().to_ascii_lowercase();
+            if expected != sha256 {
+                return Err(PluginError::ChecksumMismatch {
+                    expected,
+                    actual: sha256,
+                });
+            }
+        }
+
+        // SAFETY: loading a shared library runs its initialisers, which is
+        // arbitrary native code; Rust cannot check it. That is the documented
+        // trust model of plugins: the story names the file explicitly (and may
+        // pin its hash, checked above), and the user trusts it like a
+        // program. The file could change between hashing and loading; a pin
+        // protects against accidents, not against an attacker who can write
+        // the plugin's folder.
+        let library = unsafe { libloading::Library::new(path) }
+            .map_err(|e| PluginError::NotALibrary(e.to_string()))?;
+
+        // SAFETY: we ask for the symbol as a plain data pointer, which is
+        // sound for any symbol: we only read its address, and check it for
+        // null before treating it as a function.
+        let entry_addr: *const c_void = match unsafe { library.get::<*const c_void>(ENTRY_SYMBOL) }
+        {
+            Ok(symbol) => *symbol,
+            Err(_) => return Err(PluginError::NoEntry),
+        };
+        if entry_addr.is_null() {
+            return Err(PluginError::NoEntry);
+        }
+        // SAFETY: the entry symbol's contract is `extern "C" fn() -> *const
+        // Descriptor`; the address is non-null and points into the loaded
+        // library, which `library` keeps loaded for as long as we use it.
+        let entry = unsafe { std::mem::transmute::<*const c_void, EntryFn>(entry_addr) };
+        let descriptor = entry();
+
+        // SAFETY: `descriptor` is checked for null and alignment inside, and
+        // only read while `library` is loaded.
+        let read = unsafe { read_descriptor(descriptor) }?;
+        let info = PluginInfo {
+            name: read.name,
+            version: read.version,
+            abi_version: ABI_VERSION,
+            forms: read.forms,
+            path: path.to_path_buf(),
+            sha256,
+        };
+        Ok(Plugin {
+            info,
+            render_fn: read.render,
+            free_fn: read.free,
+            _library: library,
+        })
     }
 
     pub fn info(&self) -> &PluginInfo {
@@ -91,7 +199,483 @@ impl Plugin {
 
     /// Ask the plugin to draw, then validate the answer.
     pub fn render(&self, request: &Request) -> Result<Validated, PluginError> {
-        let _ = request;
-        Err(PluginError::Failed("not loaded".into()))
+        if !self.info.forms.iter().any(|f| *f == request.form) {
+            return Err(PluginError::Failed(format!(
+                "plugin `{}` has no form `{}` (its forms: {})",
+                self.info.name,
+                clip(&request.form, MAX_NAME_BYTES),
+                self.info.forms.join(", ")
+            )));
+        }
+        check_area(request.area)?;
+        let encoded = if request.abi_version == ABI_VERSION {
+            serde_json::to_vec(request)
+        } else {
+            let mut fixed = request.clone();
+            fixed.abi_version = ABI_VERSION;
+            serde_json::to_vec(&fixed)
+        }
+        .map_err(|e| PluginError::Failed(format!("cannot encode the request: {e}")))?;
+
+        let mut out = OutBuffer {
+            ptr: std::ptr::null_mut(),
+            len: 0,
+            cap: 0,
+        };
+        let code = (self.render_fn)(encoded.as_ptr(), encoded.len(), &mut out);
+        if code != 0 {
+            // The plugin promises nothing about `out` in this case; leaking a
+            // buffer it may have written is safer than freeing garbage.
+            return Err(PluginError::Panicked(format!(
+                "its render function gave up with code {code} (it could not even write an answer)"
+            )));
+        }
+        let bytes = self.take(out)?;
+        check_reply(&bytes, request.area)
+    }
+
+    /// Copy the plugin's answer out of its buffer, then hand the buffer back
+    /// to the plugin's `free`.
+    fn take(&self, out: OutBuffer) -> Result<Vec<u8>, PluginError> {
+        if out.ptr.is_null() {
+            return Err(PluginError::Malformed(
+                "the plugin returned no answer (a null buffer)".into(),
+            ));
+        }
+        if out.len > out.cap {
+            // Not a buffer `free` could rebuild: leak it rather than risk it.
+            return Err(PluginError::Malformed(format!(
+                "the plugin returned a buffer of {} bytes with a capacity of {}",
+                out.len, out.cap
+            )));
+        }
+        let result = if out.len > MAX_REPLY_BYTES {
+            Err(PluginError::Invalid(format!(
+                "the answer is {} bytes; at most {MAX_REPLY_BYTES} are accepted",
+                out.len
+            )))
+        } else {
+            // SAFETY: the plugin handed over `len` initialised bytes at `ptr`
+            // (non-null, u8 needs no alignment, `len` is at most 8 MiB so it
+            // fits in isize); the buffer stays valid until we call `free`,
+            // which happens only after this copy.
+            Ok(unsafe { std::slice::from_raw_parts(out.ptr, out.len) }.to_vec())
+        };
+        (self.free_fn)(out);
+        result
+    }
+}
+
+/// What `read_descriptor` copies out of a descriptor.
+struct ReadDescriptor {
+    name: String,
+    version: String,
+    forms: Vec<String>,
+    render: RenderFn,
+    free: FreeFn,
+}
+
+/// Read a descriptor defensively: the ABI version first (nothing else is
+/// read when it differs, since another version may lay the struct out
+/// differently), then every pointer checked for null, every string bounded.
+///
+/// # Safety
+/// `descriptor`, when non-null and aligned, must point to memory readable as
+/// a `u32` and, when that `u32` is [`ABI_VERSION`], as a [`Descriptor`] whose
+/// non-null string pointers point to readable bytes, each NUL-terminated or at
+/// least [`MAX_NAME_BYTES`] + 1 long, and whose non-null `forms` points to
+/// `form_count` readable pointers when `form_count` is at most [`MAX_FORMS`].
+unsafe fn read_descriptor(descriptor: *const Descriptor) -> Result<ReadDescriptor, PluginError> {
+    if descriptor.is_null() {
+        return Err(PluginError::BadDescriptor(
+            "the entry point returned a null descriptor".into(),
+        ));
+    }
+    if !descriptor.is_aligned() {
+        return Err(PluginError::BadDescriptor(
+            "the descriptor is not aligned".into(),
+        ));
+    }
+    // SAFETY (for every read below): see the function's contract; we read
+    // fields through raw pointers without forming a reference to the whole
+    // struct, and read the version alone first.
+    let found = unsafe { std::ptr::addr_of!((*descriptor).abi_version).read() };
+    if found != ABI_VERSION {
+        return Err(PluginError::WrongAbi {
+            found,
+            expected: ABI_VERSION,
+        });
+    }
+    let name = unsafe { read_name(std::ptr::addr_of!((*descriptor).name).read(), "name") }?;
+    let version =
+        unsafe { read_name(std::ptr::addr_of!((*descriptor).version).read(), "version") }?;
+    let forms_ptr = unsafe { std::ptr::addr_of!((*descriptor).forms).read() };
+    let count = unsafe { std::ptr::addr_of!((*descriptor).form_count).read() };
+    if count == 0 {
+        return Err(PluginError::BadDescriptor("it declares no forms".into()));
+    }
+    if count > MAX_FORMS {
+        return Err(PluginError::BadDescriptor(format!(
+            "it declares {count} forms; at most {MAX_FORMS} are allowed"
+        )));
+    }
+    if forms_ptr.is_null() {
+        return Err(PluginError::BadDescriptor(
+            "its list of forms is a null pointer".into(),
+        ));
+    }
+    if !forms_ptr.is_aligned() {
+        return Err(PluginError::BadDescriptor(
+            "its list of forms is not aligned".into(),
+        ));
+    }
+    let mut forms = Vec::with_capacity(count);
+    for i in 0..count {
+        let p = unsafe { forms_ptr.add(i).read() };
+        let form = unsafe { read_name(p, "form name") }?;
+        if form.trim().is_empty() {
+            return Err(PluginError::BadDescriptor(format!(
+                "form {} has an empty name",
+                i + 1
+            )));
+        }
+        if forms.contains(&form) {
+            return Err(PluginError::BadDescriptor(format!(
+                "form `{form}` is declared twice"
+            )));
+        }
+        forms.push(form);
+    }
+    // Read the function pointers as `Option`s: a null one (possible in a
+    // descriptor not built by the SDK) becomes `None` instead of an invalid
+    // function pointer. `Option<extern "C" fn>` has the layout of the
+    // function pointer, with null as `None`.
+    let render =
+        unsafe { (std::ptr::addr_of!((*descriptor).render) as *const Option<RenderFn>).read() };
+    let free = unsafe { (std::ptr::addr_of!((*descriptor).free) as *const Option<FreeFn>).read() };
+    let (Some(render), Some(free)) = (render, free) else {
+        return Err(PluginError::BadDescriptor(
+            "its render or free function is a null pointer".into(),
+        ));
+    };
+    Ok(ReadDescriptor {
+        name,
+        version,
+        forms,
+        render,
+        free,
+    })
+}
+
+/// Read a NUL-terminated UTF-8 string of at most [`MAX_NAME_BYTES`] bytes,
+/// never reading past the byte after that limit.
+///
+/// # Safety
+/// `p`, when non-null, must point to bytes readable up to its NUL or to
+/// [`MAX_NAME_BYTES`] + 1 bytes, whichever comes first.
+unsafe fn read_name(p: *const c_char, what: &str) -> Result<String, PluginError> {
+    if p.is_null() {
+        return Err(PluginError::BadDescriptor(format!(
+            "its {what} is a null pointer"
+        )));
+    }
+    let p = p.cast::<u8>();
+    let mut bytes = Vec::new();
+    loop {
+        // SAFETY: see the contract; we stop at the NUL or one byte past the limit.
+        let b = unsafe { p.add(bytes.len()).read() };
+        if b == 0 {
+            break;
+        }
+        if bytes.len() == MAX_NAME_BYTES {
+            return Err(PluginError::BadDescriptor(format!(
+                "its {what} is longer than {MAX_NAME_BYTES} bytes"
+            )));
+        }
+        bytes.push(b);
+    }
+    let s = String::from_utf8(bytes)
+        .map_err(|_| PluginError::BadDescriptor(format!("its {what} is not UTF-8")))?;
+    if s.chars().any(char::is_control) {
+        return Err(PluginError::BadDescriptor(format!(
+            "its {what} contains control characters"
+        )));
+    }
+    if what != "form name" && s.trim().is_empty() {
+        return Err(PluginError::BadDescriptor(format!("its {what} is empty")));
+    }
+    Ok(s)
+}
+
+fn hex(bytes: &[u8]) -> String {
+    let mut s = String::with_capacity(bytes.len() * 2);
+    for b in bytes {
+        s.push_str(&format!("{b:02x}"));
+    }
+    s
+}
+
+/// At most `max` characters of `s`, with an ellipsis when cut.
+fn clip(s: &str, max: usize) -> String {
+    match s.char_indices().nth(max) {
+        Some((i, _)) => format!("{}…", &s[..i]),
+        None => s.to_string(),
+    }
+}
+
+fn check_area(area: Area) -> Result<(), PluginError> {
+    let ok = |v: f64| v.is_finite() && v > 0.0;
+    if ok(area.width) && ok(area.height) {
+        Ok(())
+    } else {
+        Err(PluginError::Invalid(format!(
+            "the plot area {} × {} is not a positive size",
+            area.width, area.height
+        )))
+    }
+}
+
+/// Parse and validate the bytes of a reply for a plot area.
+pub(crate) fn check_reply(bytes: &[u8], area: Area) -> Result<Validated, PluginError> {
+    let text = std::str::from_utf8(bytes)
+        .map_err(|e| PluginError::Malformed(format!("the answer is not UTF-8 text: {e}")))?;
+    let reply: Reply =
+        serde_json::from_str(text).map_err(|e| PluginError::Malformed(e.to_string()))?;
+    match reply {
+        Reply::Error(message) => Err(PluginError::Failed(clip(message.trim(), MAX_ERROR_CHARS))),
+        Reply::Drawing(drawing) => validate(drawing, area),
+    }
+}
+
+/// Check a drawing against the limits and the plot area, and map every point
+/// into plot pixels.
+pub fn validate(drawing: Drawing, area: Area) -> Result<Validated, PluginError> {
+    let invalid = |m: String| Err(PluginError::Invalid(m));
+    check_area(area)?;
+    if drawing.primitives.len() > MAX_PRIMITIVES {
+        return invalid(format!(
+            "it has {} primitives; at most {MAX_PRIMITIVES} are allowed",
+            drawing.primitives.len()
+        ));
+    }
+    let points: usize = drawing.primitives.iter().map(point_count).sum();
+    if points > MAX_POINTS {
+        return invalid(format!(
+            "it has {points} points; at most {MAX_POINTS} are allowed"
+        ));
+    }
+    let uses_data = drawing
+        .primitives
+        .iter()
+        .any(|p| points_of(p).iter().any(|pt| pt.space == Space::Data));
+    let mapper = Mapper::new(area, drawing.data_domain, uses_data)?;
+
+    let mut primitives = Vec::with_capacity(drawing.primitives.len());
+    for (i, p) in drawing.primitives.into_iter().enumerate() {
+        let at =
+            |m: String| PluginError::Invalid(format!("primitive {} ({}): {m}", i + 1, kind_of(&p)));
+        let mapped = match &p {
+            Primitive::Line { from, to, role } => Primitive::Line {
+                from: mapper.map(*from).map_err(at)?,
+                to: mapper.map(*to).map_err(at)?,
+                role: *role,
+            },
+            Primitive::Rect { from, to, role } => Primitive::Rect {
+                from: mapper.map(*from).map_err(at)?,
+                to: mapper.map(*to).map_err(at)?,
+                role: *role,
+            },
+            Primitive::Polyline { points, role } => {
+                if points.len() < 2 {
+                    return Err(at(format!(
+                        "a polyline needs at least 2 points, not {}",
+                        points.len()
+                    )));
+                }
+                Primitive::Polyline {
+                    points: mapper.map_all(points).map_err(at)?,
+                    role: *role,
+                }
+            }
+            Primitive::Area { points, role } => {
+                if points.len() < 3 {
+                    return Err(at(format!(
+                        "an area needs at least 3 points, not {}",
+                        points.len()
+                    )));
+                }
+                Primitive::Area {
+                    points: mapper.map_all(points).map_err(at)?,
+                    role: *role,
+                }
+            }
+            Primitive::Circle {
+                center,
+                radius,
+                role,
+            } => {
+                let largest = area.width.max(area.height);
+                if !radius.is_finite() || *radius <= 0.0 || *radius > largest {
+                    return Err(at(format!(
+                        "the radius {radius} is not between 0 and {largest}"
+                    )));
+                }
+                Primitive::Circle {
+                    center: mapper.map(*center).map_err(at)?,
+                    radius: *radius,
+                    role: *role,
+                }
+            }
+            Primitive::Text {
+                at: pos,
+                text,
+                anchor,
+                bold,
+                role,
+            } => {
+                if text.trim().is_empty() {
+                    return Err(at("the text is empty".into()));
+                }
+                let chars = text.chars().count();
+                if chars > MAX_TEXT_CHARS {
+                    return Err(at(format!(
+                        "the text has {chars} characters; at most {MAX_TEXT_CHARS} are allowed"
+                    )));
+                }
+                if text.chars().any(char::is_control) {
+                    return Err(at("the text contains control characters".into()));
+                }
+                Primitive::Text {
+                    at: mapper.map(*pos).map_err(at)?,
+                    text: text.clone(),
+                    anchor: *anchor,
+                    bold: *bold,
+                    role: *role,
+                }
+            }
+        };
+        primitives.push(mapped);
+    }
+
+    let description = match drawing.description {
+        Some(d) if d.trim().is_empty() => None,
+        Some(d) => {
+            let chars = d.chars().count();
+            if chars > MAX_DESCRIPTION_CHARS {
+                return invalid(format!(
+                    "the description has {chars} characters; at most {MAX_DESCRIPTION_CHARS} are allowed"
+                ));
+            }
+            if d.chars().any(|c| c.is_control() && c != '\n') {
+                return invalid("the description contains control characters".into());
+            }
+            Some(d)
+        }
+        None => None,
+    };
+    Ok(Validated {
+        primitives,
+        description,
+    })
+}
+
+fn kind_of(p: &Primitive) -> &'static str {
+    match p {
+        Primitive::Line { .. } => "line",
+        Primitive::Polyline { .. } => "polyline",
+        Primitive::Area { .. } => "area",
+        Primitive::Rect { .. } => "rect",
+        Primitive::Circle { .. } => "circle",
+        Primitive::Text { .. } => "text",
+    }
+}
+
+fn point_count(p: &Primitive) -> usize {
+    match p {
+        Primitive::Line { .. } | Primitive::Rect { .. } => 2,
+        Primitive::Polyline { points, .. } | Primitive::Area { points, .. } => points.len(),
+        Primitive::Circle { .. } | Primitive::Text { .. } => 1,
+    }
+}
+
+fn points_of(p: &Primitive) -> Vec<Pt> {
+    match p {
+        Primitive::Line { from, to, .. } | Primitive::Rect { from, to, .. } => vec![*from, *to],
+        Primitive::Polyline { points, .. } | Primitive::Area { points, .. } => points.clone(),
+        Primitive::Circle { center, .. } => vec![*center],
+        Primitive::Text { at, .. } => vec![*at],
+    }
+}
+
+/// Maps points into plot pixels and checks them.
+struct Mapper {
+    area: Area,
+    /// Origin and span of x and y, when data points are allowed.
+    data: Option<([f64; 2], [f64; 2])>,
+}
+
+impl Mapper {
+    fn new(area: Area, domain: Option<DataDomain>, needed: bool) -> Result<Mapper, PluginError> {
+        let Some(domain) = domain else {
+            if needed {
+                return Err(PluginError::Invalid(
+                    "it has points in data coordinates but no data_domain".into(),
+                ));
+            }
+            return Ok(Mapper { area, data: None });
+        };
+        let axis = |name: &str, [a, b]: [f64; 2]| {
+            let span = b - a;
+            if !(a.is_finite() && b.is_finite() && span.is_finite()) || span == 0.0 {
+                Err(PluginError::Invalid(format!(
+                    "the data_domain's {name} extent [{a}, {b}] is not a finite, non-empty span"
+                )))
+            } else {
+                Ok([a, span])
+            }
+        };
+        let x = axis("x", domain.x)?;
+        let y = axis("y", domain.y)?;
+        Ok(Mapper {
+            area,
+            data: Some((x, y)),
+        })
+    }
+
+    fn map(&self, p: Pt) -> Result<Pt, String> {
+        if !p.x.is_finite() || !p.y.is_finite() {
+            return Err(format!("the point ({}, {}) is not finite", p.x, p.y));
+        }
+        let (x, y) = match (p.space, self.data) {
+            (Space::Plot, _) => (p.x, p.y),
+            (Space::Data, Some(([x0, xs], [y0, ys]))) => (
+                (p.x - x0) / xs * self.area.width,
+                self.area.height - (p.y - y0) / ys * self.area.height,
+            ),
+            (Space::Data, None) => {
+                return Err("a point in data coordinates without a data_domain".into())
+            }
+        };
+        let (w, h) = (self.area.width, self.area.height);
+        let inside = |v: f64, max: f64| v.is_finite() && v >= -SLACK && v <= max + SLACK;
+        if !inside(x, w) || !inside(y, h) {
+            let note = if p.space == Space::Data {
+                format!(" (data ({}, {}))", p.x, p.y)
+            } else {
+                String::new()
+            };
+            return Err(format!(
+                "the point ({x}, {y}){note} lies outside the plot area {w} × {h}"
+            ));
+        }
+        Ok(Pt {
+            x: x.clamp(0.0, w),
+            y: y.clamp(0.0, h),
+            space: Space::Plot,
+        })
+    }
+
+    fn map_all(&self, points: &[Pt]) -> Result<Vec<Pt>, String> {
+        points.iter().map(|p| self.map(*p)).collect()
     }
 }

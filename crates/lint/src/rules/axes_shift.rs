@@ -33,7 +33,7 @@ fn value_axis(chart: &Chart) -> Option<&Axis> {
         Chart::Dots(d) => Some(&d.value),
         Chart::Scatter(s) => Some(&s.y),
         Chart::Panels(p) => p.panels.first().and_then(|x| value_axis(&x.chart)),
-        Chart::Figures(_) | Chart::Table(_) | Chart::Pie(_) => None,
+        Chart::Figures(_) | Chart::Table(_) | Chart::Pie(_) | Chart::Plugin(_) => None,
     }
 }
 

@@ -95,7 +95,9 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
                 })
                 .map(|x| x.title.clone())
                 .collect(),
-            Chart::Scatter(_) | Chart::Figures(_) | Chart::Table(_) => Vec::new(),
+            Chart::Scatter(_) | Chart::Figures(_) | Chart::Table(_) | Chart::Plugin(_) => {
+                Vec::new()
+            }
         };
         if !small.is_empty() {
             out.push(Finding {

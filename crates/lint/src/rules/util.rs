@@ -52,6 +52,19 @@ pub fn roles(chart: &Chart) -> Vec<(&str, Role)> {
             .iter()
             .map(|x| (x.title.as_str(), x.role))
             .collect(),
+        Chart::Plugin(p) => p
+            .request
+            .roles
+            .iter()
+            .map(|(n, r)| {
+                let role = match r {
+                    crescendo_plugin::Role::Focus => Role::Focus,
+                    _ => Role::Context,
+                };
+                (n.as_str(), role)
+            })
+            .chain(p.request.hidden.iter().map(|n| (n.as_str(), Role::Hidden)))
+            .collect(),
     }
 }
 
