@@ -51,6 +51,32 @@ impl Default for Exports {
     }
 }
 
+/// What drawing a deck may need besides the plan: the plugins the story
+/// loaded, and where frames were written in the story (to locate errors).
+#[derive(Default)]
+pub struct Context<'a> {
+    pub plugins: Option<&'a dyn crescendo_render::plugin::PluginDrawer>,
+    pub source: Option<&'a std::sync::Arc<crescendo_diag::Source>>,
+    pub anchors: Option<&'a crescendo_plan::anchors::Anchors>,
+}
+
+/// The plugins a story loaded, as the renderer's drawer.
+pub struct Host<'a>(pub &'a crescendo_plan::plugins::Plugins);
+
+impl crescendo_render::plugin::PluginDrawer for Host<'_> {
+    fn draw(
+        &self,
+        plugin: &str,
+        request: &crescendo_plugin::Request,
+    ) -> Result<crescendo_plugin::host::Validated, String> {
+        let p = self
+            .0
+            .get(plugin)
+            .ok_or_else(|| format!("plugin `{plugin}` is not loaded"))?;
+        p.render(request).map_err(|e| e.to_string())
+    }
+}
+
 /// File name of the PDF export.
 pub const PDF: &str = "deck.pdf";
 
@@ -58,15 +84,25 @@ pub const PDF: &str = "deck.pdf";
 pub fn render_files(
     plan: &DeckPlan,
     exports: &Exports,
+    ctx: &Context,
 ) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
     let mut files = Vec::new();
     let mut svgs = Vec::new();
-    for f in &plan.frames {
-        let svg = crate::incremental::render_frame(plan, f).map_err(|e| {
-            Diagnostic::error(
+    for (i, f) in plan.frames.iter().enumerate() {
+        let svg = crate::incremental::render_frame(plan, f, ctx.plugins).map_err(|e| {
+            let mut d = Diagnostic::error(
                 "render",
                 format!("cannot draw frame {} (\"{}\"): {e}", f.number, f.headline),
-            )
+            );
+            // point at the chart statement of the frame that failed
+            if let (Some(src), Some(a)) = (ctx.source, ctx.anchors.and_then(|a| a.frames.get(i))) {
+                d = d.at(
+                    src,
+                    a.chart.clone(),
+                    format!("frame {} is drawn from here", f.number),
+                );
+            }
+            d
         })?;
         svgs.push(svg);
     }
@@ -146,8 +182,13 @@ fn io_err(what: &str, path: &Path, e: std::io::Error) -> Diagnostic {
 
 /// Render and write the deck into `out`, replacing a previous deck only
 /// when everything succeeded. Returns the number of frames.
-pub fn build(plan: &DeckPlan, out: &Path, exports: &Exports) -> Result<usize, Diagnostic> {
-    let files = render_files(plan, exports)?;
+pub fn build(
+    plan: &DeckPlan,
+    out: &Path,
+    exports: &Exports,
+    ctx: &Context,
+) -> Result<usize, Diagnostic> {
+    let files = render_files(plan, exports, ctx)?;
     write_atomically(out, &files)?;
     Ok(plan.frames.len())
 }

@@ -213,11 +213,18 @@ fn frame_key(plan: &DeckPlan, frame: &FramePlan) -> String {
 }
 
 /// Draw a frame, or reuse its picture from the cache.
-pub fn render_frame(plan: &DeckPlan, frame: &FramePlan) -> Result<String, RenderError> {
+pub fn render_frame(
+    plan: &DeckPlan,
+    frame: &FramePlan,
+    plugins: Option<&dyn crescendo_render::plugin::PluginDrawer>,
+) -> Result<String, RenderError> {
+    // A plugin frame depends on the plugin's library too, which the plan
+    // does not capture: draw it every time.
     let cache = STORE
         .lock()
         .ok()
-        .and_then(|s| s.as_ref().and_then(|s| s.cache.clone()));
+        .and_then(|s| s.as_ref().and_then(|s| s.cache.clone()))
+        .filter(|_| !matches!(frame.chart, crescendo_plan::Chart::Plugin(_)));
     let key = cache.as_ref().map(|_| frame_key(plan, frame));
     let reused = match (&cache, &key) {
         (Some(c), Some(k)) => c.get::<String>("frames", k),
@@ -227,7 +234,7 @@ pub fn render_frame(plan: &DeckPlan, frame: &FramePlan) -> Result<String, Render
     let svg = match reused {
         Some(svg) => svg,
         None => {
-            let svg = crescendo_render::render_frame(plan, frame)?;
+            let svg = crescendo_render::render_frame_with(plan, frame, plugins)?;
             if let (Some(c), Some(k)) = (&cache, &key) {
                 c.put("frames", k, &svg);
             }

@@ -189,6 +189,11 @@ enum Command {
         #[command(flatten)]
         lint: LintArgs,
     },
+    /// List the plugins a story loads: their forms, versions and ABI version.
+    Plugins {
+        /// The story file (.cresc).
+        story: PathBuf,
+    },
     /// Explain a lint rule (what it flags, why, an example, what to do
     /// instead); without a rule, list them all.
     Explain {
@@ -259,6 +264,33 @@ fn main() -> ExitCode {
             lint,
         } => check(&story, format, &data, &lint, color),
         Command::Explain { rule } => explain(rule.as_deref(), color),
+        Command::Plugins { story } => {
+            let none = DataArgs {
+                data: Vec::new(),
+                no_plugins: false,
+            };
+            match load_plan(&story, &none, color) {
+                Ok(p) => {
+                    if p.plugins.is_empty() {
+                        say!("{} loads no plugins", story.display());
+                    }
+                    for (alias, plugin) in &p.plugins {
+                        let i = plugin.info();
+                        say!(
+                            "{alias}: {} {} (plugin ABI {}), forms: {}\n  {}\n  sha256 {}",
+                            i.name,
+                            i.version,
+                            i.abi_version,
+                            i.forms.join(", "),
+                            i.path.display(),
+                            i.sha256
+                        );
+                    }
+                    ExitCode::SUCCESS
+                }
+                Err(code) => code,
+            }
+        }
         Command::Plan { story, data } => match load_plan(&story, &data, color) {
             Ok(p) => match serde_json::to_string_pretty(&p.plan) {
                 Ok(s) => {
@@ -390,7 +422,13 @@ fn build(
         }
     }
     let previous = diff::read_manifest(&out).ok();
-    match deck::build(&planned.plan, &out, exports) {
+    let host = deck::Host(&planned.plugins);
+    let ctx = deck::Context {
+        plugins: Some(&host),
+        source: Some(&planned.source),
+        anchors: Some(&planned.anchors),
+    };
+    match deck::build(&planned.plan, &out, exports, &ctx) {
         Ok(files) => {
             eprintln!(
                 "built {} frame{} into {}{}",
@@ -414,9 +452,15 @@ fn build(
             ExitCode::SUCCESS
         }
         Err(e) => {
-            eprint!("{}", render(&[e], color));
+            eprint!("{}", render(&[e.clone()], color));
             eprintln!("the previous deck in {} was left as it was", out.display());
-            ExitCode::from(EXIT_OUTPUT)
+            // a frame that cannot be drawn (a failing plugin) is the story's
+            // problem; anything else is the output folder's
+            ExitCode::from(if e.code == "render" {
+                EXIT_STORY
+            } else {
+                EXIT_OUTPUT
+            })
         }
     }
 }

@@ -14,6 +14,39 @@ use crescendo_plan::DeckPlan;
 use serde_json::Value;
 
 fn plan_of(path: &Path) -> DeckPlan {
+    planned_of(path).plan
+}
+
+/// Draw the plugin charts of demo stories with the plugins they loaded.
+struct Drawer(crescendo_plan::plugins::Plugins);
+
+impl crescendo_render::plugin::PluginDrawer for Drawer {
+    fn draw(
+        &self,
+        plugin: &str,
+        request: &crescendo_plugin::Request,
+    ) -> Result<crescendo_plugin::host::Validated, String> {
+        let p = self.0.get(plugin).ok_or("not loaded")?;
+        p.render(request).map_err(|e| e.to_string())
+    }
+}
+
+/// Every frame of a story drawn, plugin charts included.
+fn frames_of(path: &Path) -> (DeckPlan, Vec<String>) {
+    let planned = planned_of(path);
+    let drawer = Drawer(planned.plugins);
+    let svgs = planned
+        .plan
+        .frames
+        .iter()
+        .map(|f| {
+            crescendo_render::render_frame_with(&planned.plan, f, Some(&drawer)).expect("render")
+        })
+        .collect();
+    (planned.plan, svgs)
+}
+
+fn planned_of(path: &Path) -> crescendo_plan::Planned {
     let text = std::fs::read_to_string(path).expect("read story");
     let rel = path.strip_prefix(root()).unwrap_or(path);
     let src: Arc<Source> = Source::file(rel.display().to_string(), text);
@@ -24,7 +57,7 @@ fn plan_of(path: &Path) -> DeckPlan {
                 "{}",
                 crescendo_diag::render(&p.failed_claims, false)
             );
-            p.plan
+            p
         }
         Err(diags) => panic!("{}", crescendo_diag::render(&diags, false)),
     }
@@ -230,9 +263,8 @@ fn rebuilding_over_a_deck_replaces_it_whole() {
 #[test]
 fn every_demo_frame_is_well_formed_and_has_no_overlapping_text() {
     for (name, path) in stories() {
-        let plan = plan_of(&path);
-        for f in &plan.frames {
-            let svg = crescendo_render::render_frame(&plan, f).expect("render");
+        let (plan, svgs) = frames_of(&path);
+        for (f, svg) in plan.frames.iter().zip(svgs) {
             // a general-purpose XML parser accepts it
             let doc = roxmltree::Document::parse(&svg)
                 .unwrap_or_else(|e| panic!("{name} frame {}: {e}", f.number));
@@ -458,9 +490,8 @@ fn labels_stay_off_the_data_lines_in_every_demo_frame() {
     let mut crossings = Vec::new();
     let mut labels = 0;
     for (name, path) in stories() {
-        let plan = plan_of(&path);
-        for f in &plan.frames {
-            let svg = crescendo_render::render_frame(&plan, f).unwrap();
+        let (plan, svgs) = frames_of(&path);
+        for (f, svg) in plan.frames.iter().zip(svgs) {
             let segs = data_segments(&svg);
             for b in crescendo_render::inspect::text_boxes(&svg).unwrap() {
                 labels += 1;

@@ -28,8 +28,10 @@ pub fn crescendo(dir: &Path, args: &[&str]) -> Output {
         .expect("run crescendo")
 }
 
-/// Every story in `stories/`, as (name, path), sorted.
+/// Every story in `stories/`, as (name, path), sorted. The plugins some of
+/// them load are built first.
 pub fn stories() -> Vec<(String, PathBuf)> {
+    ensure_plugins();
     let mut out = Vec::new();
     for e in fs::read_dir(root().join("stories")).expect("stories folder") {
         let dir = e.expect("entry").path();
@@ -62,4 +64,36 @@ pub fn read_dir_files(dir: &Path) -> Vec<(String, Vec<u8>)> {
         .collect();
     v.sort();
     v
+}
+
+/// Build the plugin crates (once per test binary) into the workspace's own
+/// `target/debug`, where the demo stories and the plugin tests load them.
+pub fn ensure_plugins() -> &'static Path {
+    use std::sync::OnceLock;
+    static BUILT: OnceLock<PathBuf> = OnceLock::new();
+    BUILT.get_or_init(|| {
+        let target = root().join("target");
+        let status = Command::new(env!("CARGO"))
+            .current_dir(root())
+            .args([
+                "build",
+                "--quiet",
+                "--target-dir",
+                target.to_str().expect("utf-8 path"),
+                "-p",
+                "crescendo-slope",
+                "-p",
+                "crescendo-waterfall",
+                "-p",
+                "crescendo-fault-plugin",
+                "-p",
+                "crescendo-fault-oldabi",
+                "-p",
+                "crescendo-fault-noentry",
+            ])
+            .status()
+            .expect("run cargo build for the plugins");
+        assert!(status.success(), "building the plugin crates failed");
+        target.join("debug")
+    })
 }

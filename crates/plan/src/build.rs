@@ -2267,127 +2267,6 @@ fn apply_roles(
     }
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn slugs_are_file_safe_and_bounded() {
-        assert_eq!(
-            slug("Riders on three routes since 2019"),
-            "riders-on-three-routes-since-2019"
-        );
-        assert_eq!(slug("  Ünïcode & «quotes» — 2.3×!  "), "n-code-quotes-2-3");
-        assert_eq!(slug("???"), "frame");
-        let long = slug(
-            "The Harbour Loop now carries more than twice the riders of the Bay Line every month",
-        );
-        assert!(long.len() <= 48, "{long}");
-        assert!(!long.ends_with('-'));
-    }
-
-    #[test]
-    fn humanize_names() {
-        assert_eq!(humanize("riders_per_trip"), "Riders per trip");
-    }
-
-    /// Plan `story` against a fresh folder holding `data.csv`.
-    fn plan_with(tag: &str, story: &str, csv: &str) -> PlanResult {
-        let dir = std::env::temp_dir().join(format!("crescendo-plan-{}-{tag}", std::process::id()));
-        std::fs::create_dir_all(&dir).unwrap();
-        std::fs::write(dir.join("data.csv"), csv).unwrap();
-        let out = plan_story(&Source::file("t.cresc", story), &dir, &Options::default());
-        let _ = std::fs::remove_dir_all(&dir);
-        out
-    }
-
-    fn errors(result: PlanResult) -> Vec<Diagnostic> {
-        match result {
-            Ok(_) => Vec::new(),
-            Err(d) => d.into_iter().filter(Diagnostic::is_error).collect(),
-        }
-    }
-
-    const SALES: &str = "month,shop,sales\n2024-01,North,5\n2024-01,South,3\n\
-                         2024-02,North,6\n2024-02,South,4\n";
-
-    #[test]
-    fn a_broken_chart_is_reported_once_not_in_every_frame_after_it() {
-        // The chart names an unknown view: one error, and the frames that
-        // build on it are not blamed for having no chart.
-        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
-                     frame \"a\" {\n  line sals: x month, y sales, series shop\n}\n\
-                     frame \"b\" {\n  spotlight \"North\"\n}\n\
-                     frame \"c\" {\n  hide \"South\"\n}\n";
-        let errs = errors(plan_with("broken-chart", story, SALES));
-        let codes: Vec<&str> = errs.iter().map(|d| d.code).collect();
-        assert_eq!(codes, ["unknown-name"], "{errs:#?}");
-    }
-
-    #[test]
-    fn frames_after_a_broken_chart_are_not_checked_against_the_chart_before() {
-        // Frame "c" builds on the failed bars chart of frame "b"; checking it
-        // against the line chart of frame "a" would report a bogus error.
-        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
-                     view totals = sales\n  | by shop: sales = sum(sales)\n\
-                     frame \"a\" {\n  line sales: x month, y sales, series shop\n}\n\
-                     frame \"b\" {\n  bars totals: category shop, value sale\n}\n\
-                     frame \"c\" {\n  spotlight \"Sales\"\n}\n";
-        let errs = errors(plan_with("stale-chart", story, SALES));
-        let codes: Vec<&str> = errs.iter().map(|d| d.code).collect();
-        assert_eq!(codes, ["unknown-column"], "{errs:#?}");
-    }
-
-    #[test]
-    fn a_frame_without_a_chart_is_reported_once() {
-        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
-                     frame \"a\" {\n  hide \"South\"\n}\n\
-                     frame \"b\" {\n  show all\n}\n";
-        let errs = errors(plan_with("no-chart", story, SALES));
-        assert_eq!(errs.len(), 1, "{errs:#?}");
-        assert_eq!(errs[0].code, "no-chart");
-        assert_eq!(errs[0].location().map(|l| l.1), Some(3));
-    }
-
-    #[test]
-    fn distinct_large_or_close_x_values_are_not_duplicates() {
-        // x values beyond i64::MAX / 1e6 and values closer than 1e-6 are
-        // still distinct points.
-        let story = "story \"s\"\ndata d from \"data.csv\"\n\
-                     frame \"a\" {\n  line d: x at, y v\n}\n";
-        for csv in [
-            "at,v\n1e13,1\n2e13,2\n3e13,3\n",
-            "at,v\n0.0000001,1\n0.0000002,2\n0.0000003,3\n",
-        ] {
-            let result = plan_with("big-x", story, csv);
-            assert!(result.is_ok(), "{csv}: {:#?}", result.err());
-        }
-        // and a true duplicate is still found
-        let errs = errors(plan_with("dup-x", story, "at,v\n1,1\n1,2\n"));
-        assert_eq!(errs.len(), 1, "{errs:#?}");
-        assert_eq!(errs[0].code, "duplicate-point");
-    }
-
-    #[test]
-    fn a_misspelt_comparison_is_reported() {
-        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
-                     compare shops by sales\n\
-                     frame \"a\" {\n  line sales: x month, y sales, series shop\n}\n";
-        let errs = errors(plan_with("compare-typo", story, SALES));
-        assert_eq!(errs.len(), 1, "{errs:#?}");
-        assert_eq!(errs[0].code, "unknown-column");
-        assert_eq!(errs[0].help.as_deref(), Some("did you mean `shop`?"));
-        assert_eq!(errs[0].location(), Some(("t.cresc".into(), 3, 9)));
-    }
-
-    #[test]
-    fn decimals_of_steps() {
-        assert_eq!(decimals_for(0.25), 2);
-        assert_eq!(decimals_for(50.0), 0);
-        assert_eq!(decimals_for(0.1), 1);
-    }
-}
-
 /// Text alternatives of the other chart forms.
 fn describe_more(chart: &Chart, key: &str) -> String {
     let lit = |r: Role| {
@@ -2540,5 +2419,126 @@ fn describe_more(chart: &Chart, key: &str) -> String {
                 panels.join(", ")
             )
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn slugs_are_file_safe_and_bounded() {
+        assert_eq!(
+            slug("Riders on three routes since 2019"),
+            "riders-on-three-routes-since-2019"
+        );
+        assert_eq!(slug("  Ünïcode & «quotes» — 2.3×!  "), "n-code-quotes-2-3");
+        assert_eq!(slug("???"), "frame");
+        let long = slug(
+            "The Harbour Loop now carries more than twice the riders of the Bay Line every month",
+        );
+        assert!(long.len() <= 48, "{long}");
+        assert!(!long.ends_with('-'));
+    }
+
+    #[test]
+    fn humanize_names() {
+        assert_eq!(humanize("riders_per_trip"), "Riders per trip");
+    }
+
+    /// Plan `story` against a fresh folder holding `data.csv`.
+    fn plan_with(tag: &str, story: &str, csv: &str) -> PlanResult {
+        let dir = std::env::temp_dir().join(format!("crescendo-plan-{}-{tag}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        std::fs::write(dir.join("data.csv"), csv).unwrap();
+        let out = plan_story(&Source::file("t.cresc", story), &dir, &Options::default());
+        let _ = std::fs::remove_dir_all(&dir);
+        out
+    }
+
+    fn errors(result: PlanResult) -> Vec<Diagnostic> {
+        match result {
+            Ok(_) => Vec::new(),
+            Err(d) => d.into_iter().filter(Diagnostic::is_error).collect(),
+        }
+    }
+
+    const SALES: &str = "month,shop,sales\n2024-01,North,5\n2024-01,South,3\n\
+                         2024-02,North,6\n2024-02,South,4\n";
+
+    #[test]
+    fn a_broken_chart_is_reported_once_not_in_every_frame_after_it() {
+        // The chart names an unknown view: one error, and the frames that
+        // build on it are not blamed for having no chart.
+        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                     frame \"a\" {\n  line sals: x month, y sales, series shop\n}\n\
+                     frame \"b\" {\n  spotlight \"North\"\n}\n\
+                     frame \"c\" {\n  hide \"South\"\n}\n";
+        let errs = errors(plan_with("broken-chart", story, SALES));
+        let codes: Vec<&str> = errs.iter().map(|d| d.code).collect();
+        assert_eq!(codes, ["unknown-name"], "{errs:#?}");
+    }
+
+    #[test]
+    fn frames_after_a_broken_chart_are_not_checked_against_the_chart_before() {
+        // Frame "c" builds on the failed bars chart of frame "b"; checking it
+        // against the line chart of frame "a" would report a bogus error.
+        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                     view totals = sales\n  | by shop: sales = sum(sales)\n\
+                     frame \"a\" {\n  line sales: x month, y sales, series shop\n}\n\
+                     frame \"b\" {\n  bars totals: category shop, value sale\n}\n\
+                     frame \"c\" {\n  spotlight \"Sales\"\n}\n";
+        let errs = errors(plan_with("stale-chart", story, SALES));
+        let codes: Vec<&str> = errs.iter().map(|d| d.code).collect();
+        assert_eq!(codes, ["unknown-column"], "{errs:#?}");
+    }
+
+    #[test]
+    fn a_frame_without_a_chart_is_reported_once() {
+        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                     frame \"a\" {\n  hide \"South\"\n}\n\
+                     frame \"b\" {\n  show all\n}\n";
+        let errs = errors(plan_with("no-chart", story, SALES));
+        assert_eq!(errs.len(), 1, "{errs:#?}");
+        assert_eq!(errs[0].code, "no-chart");
+        assert_eq!(errs[0].location().map(|l| l.1), Some(3));
+    }
+
+    #[test]
+    fn distinct_large_or_close_x_values_are_not_duplicates() {
+        // x values beyond i64::MAX / 1e6 and values closer than 1e-6 are
+        // still distinct points.
+        let story = "story \"s\"\ndata d from \"data.csv\"\n\
+                     frame \"a\" {\n  line d: x at, y v\n}\n";
+        for csv in [
+            "at,v\n1e13,1\n2e13,2\n3e13,3\n",
+            "at,v\n0.0000001,1\n0.0000002,2\n0.0000003,3\n",
+        ] {
+            let result = plan_with("big-x", story, csv);
+            assert!(result.is_ok(), "{csv}: {:#?}", result.err());
+        }
+        // and a true duplicate is still found
+        let errs = errors(plan_with("dup-x", story, "at,v\n1,1\n1,2\n"));
+        assert_eq!(errs.len(), 1, "{errs:#?}");
+        assert_eq!(errs[0].code, "duplicate-point");
+    }
+
+    #[test]
+    fn a_misspelt_comparison_is_reported() {
+        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                     compare shops by sales\n\
+                     frame \"a\" {\n  line sales: x month, y sales, series shop\n}\n";
+        let errs = errors(plan_with("compare-typo", story, SALES));
+        assert_eq!(errs.len(), 1, "{errs:#?}");
+        assert_eq!(errs[0].code, "unknown-column");
+        assert_eq!(errs[0].help.as_deref(), Some("did you mean `shop`?"));
+        assert_eq!(errs[0].location(), Some(("t.cresc".into(), 3, 9)));
+    }
+
+    #[test]
+    fn decimals_of_steps() {
+        assert_eq!(decimals_for(0.25), 2);
+        assert_eq!(decimals_for(50.0), 0);
+        assert_eq!(decimals_for(0.1), 1);
     }
 }

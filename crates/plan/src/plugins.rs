@@ -226,6 +226,7 @@ impl Planner<'_> {
                         width: 0.0,
                         height: 0.0,
                     },
+                    label_size: 16.0,
                 },
             }),
             names,

@@ -136,6 +136,7 @@ impl Plugin {
         let bytes = std::fs::read(path)
             .map_err(|e| PluginError::Unreadable(format!("{}: {e}", path.display())))?;
         let sha256 = hex(&Sha256::digest(&bytes));
+        let elf = check_elf(&bytes);
         drop(bytes);
         if let Some(pin) = pin {
             let expected = pin.trim().to_ascii_lowercase();
@@ -146,6 +147,11 @@ impl Plugin {
                 });
             }
         }
+
+        // A truncated ELF file makes the system loader map pages past the end
+        // of the file, and touching them kills the process (SIGBUS): refuse
+        // such files before the loader sees them.
+        elf.map_err(PluginError::NotALibrary)?;
 
         // SAFETY: loading a shared library runs its initialisers, which is
         // arbitrary native code; Rust cannot check it. That is the documented
@@ -199,7 +205,7 @@ impl Plugin {
 
     /// Ask the plugin to draw, then validate the answer.
     pub fn render(&self, request: &Request) -> Result<Validated, PluginError> {
-        if !self.info.forms.iter().any(|f| *f == request.form) {
+        if !self.info.forms.contains(&request.form) {
             return Err(PluginError::Failed(format!(
                 "plugin `{}` has no form `{}` (its forms: {})",
                 self.info.name,
@@ -405,6 +411,82 @@ unsafe fn read_name(p: *const c_char, what: &str) -> Result<String, PluginError>
         return Err(PluginError::BadDescriptor(format!("its {what} is empty")));
     }
     Ok(s)
+}
+
+/// Check that an ELF file's header, program headers, the file ranges of its
+/// segments and its section header table all lie within the file. Files that
+/// are not ELF are left to the system loader (which refuses them cleanly).
+fn check_elf(bytes: &[u8]) -> Result<(), String> {
+    if bytes.get(..4) != Some(b"\x7fELF".as_slice()) {
+        return Ok(());
+    }
+    let short = || "the file is truncated (it ends inside its ELF headers)".to_string();
+    let wide = match bytes.get(4) {
+        Some(1) => false,
+        Some(2) => true,
+        _ => return Err("the ELF file has an unknown class".into()),
+    };
+    let big = match bytes.get(5) {
+        Some(1) => false,
+        Some(2) => true,
+        _ => return Err("the ELF file has an unknown byte order".into()),
+    };
+    let uint = |at: usize, size: usize| -> Option<u64> {
+        let b = bytes.get(at..at.checked_add(size)?)?;
+        let mut v: u64 = 0;
+        for k in 0..size {
+            let byte = if big { b[k] } else { b[size - 1 - k] };
+            v = (v << 8) | u64::from(byte);
+        }
+        Some(v)
+    };
+    // Offsets of e_phoff, e_shoff, e_phentsize, e_phnum, e_shentsize,
+    // e_shnum; the width of an address; the smallest program header; and the
+    // offsets of p_offset and p_filesz in a program header.
+    let (phoff, shoff, phentsize, phnum, shentsize, shnum, addr, ph_min, p_offset, p_filesz) =
+        if wide {
+            (0x20, 0x28, 0x36, 0x38, 0x3a, 0x3c, 8, 56, 0x08, 0x20)
+        } else {
+            (0x1c, 0x20, 0x2a, 0x2c, 0x2e, 0x30, 4, 32, 0x04, 0x10)
+        };
+    let field = |at: usize, size: usize| uint(at, size).ok_or_else(short);
+    let len = bytes.len() as u64;
+    let table_fits = |off: u64, entsize: u64, num: u64| {
+        entsize
+            .checked_mul(num)
+            .and_then(|size| off.checked_add(size))
+            .is_some_and(|end| end <= len)
+    };
+    let (ph_off, ph_size, ph_num) = (field(phoff, addr)?, field(phentsize, 2)?, field(phnum, 2)?);
+    if ph_num > 0 && ph_size < ph_min {
+        return Err("the ELF file's program headers are too small".into());
+    }
+    if !table_fits(ph_off, ph_size, ph_num) {
+        return Err(short());
+    }
+    for i in 0..ph_num {
+        let base = ph_off + i * ph_size;
+        let at = |rel: usize| {
+            usize::try_from(base)
+                .ok()
+                .and_then(|b| b.checked_add(rel))
+                .ok_or_else(short)
+        };
+        let (offset, size) = (field(at(p_offset)?, addr)?, field(at(p_filesz)?, addr)?);
+        if offset.checked_add(size).is_none_or(|end| end > len) {
+            return Err(format!(
+                "the file is truncated: a segment needs {} bytes at offset {offset}, but the file has {len}",
+                size
+            ));
+        }
+    }
+    let (sh_off, sh_size, sh_num) = (field(shoff, addr)?, field(shentsize, 2)?, field(shnum, 2)?);
+    if sh_off != 0 && !table_fits(sh_off, sh_size, sh_num) {
+        return Err(format!(
+            "the file is truncated: its section table ends past its {len} bytes"
+        ));
+    }
+    Ok(())
 }
 
 fn hex(bytes: &[u8]) -> String {
@@ -677,5 +759,255 @@ impl Mapper {
 
     fn map_all(&self, points: &[Pt]) -> Result<Vec<Pt>, String> {
         points.iter().map(|p| self.map(*p)).collect()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::message::{Anchor, Role};
+
+    const AREA: Area = Area {
+        width: 200.0,
+        height: 100.0,
+    };
+
+    fn plot(x: f64, y: f64) -> Pt {
+        Pt {
+            x,
+            y,
+            space: Space::Plot,
+        }
+    }
+
+    fn data(x: f64, y: f64) -> Pt {
+        Pt {
+            x,
+            y,
+            space: Space::Data,
+        }
+    }
+
+    fn line(from: Pt, to: Pt) -> Primitive {
+        Primitive::Line {
+            from,
+            to,
+            role: Role::Context,
+        }
+    }
+
+    fn text(s: &str) -> Primitive {
+        Primitive::Text {
+            at: plot(1.0, 1.0),
+            text: s.into(),
+            anchor: Anchor::Start,
+            bold: false,
+            role: Role::Axis,
+        }
+    }
+
+    fn drawing(primitives: Vec<Primitive>) -> Drawing {
+        Drawing {
+            primitives,
+            data_domain: None,
+            description: None,
+        }
+    }
+
+    fn invalid(r: Result<Validated, PluginError>) -> String {
+        match r {
+            Err(PluginError::Invalid(m)) => m,
+            other => panic!("expected Invalid, got {other:?}"),
+        }
+    }
+
+    #[test]
+    fn data_points_map_onto_plot_pixels() {
+        let mut d = drawing(vec![
+            line(data(0.0, 0.0), data(10.0, 50.0)),
+            line(data(5.0, 25.0), plot(3.0, 4.0)),
+        ]);
+        d.data_domain = Some(DataDomain {
+            x: [0.0, 10.0],
+            y: [0.0, 50.0],
+        });
+        let v = validate(d, AREA).unwrap();
+        assert_eq!(v.primitives[0], line(plot(0.0, 100.0), plot(200.0, 0.0)));
+        assert_eq!(v.primitives[1], line(plot(100.0, 50.0), plot(3.0, 4.0)));
+        // A reversed domain maps the other way round.
+        let mut d = drawing(vec![line(data(10.0, 0.0), data(0.0, 50.0))]);
+        d.data_domain = Some(DataDomain {
+            x: [10.0, 0.0],
+            y: [50.0, 0.0],
+        });
+        assert_eq!(
+            validate(d, AREA).unwrap().primitives[0],
+            line(plot(0.0, 0.0), plot(200.0, 100.0))
+        );
+    }
+
+    #[test]
+    fn data_points_need_a_usable_domain() {
+        let m = invalid(validate(
+            drawing(vec![line(data(0.0, 0.0), data(1.0, 1.0))]),
+            AREA,
+        ));
+        assert!(m.contains("no data_domain"), "{m}");
+        for (x, y) in [
+            ([1.0, 1.0], [0.0, 1.0]),
+            ([0.0, f64::INFINITY], [0.0, 1.0]),
+            ([0.0, 1.0], [f64::NAN, 1.0]),
+        ] {
+            let mut d = drawing(vec![line(data(0.0, 0.0), data(1.0, 1.0))]);
+            d.data_domain = Some(DataDomain { x, y });
+            let m = invalid(validate(d, AREA));
+            assert!(m.contains("not a finite, non-empty span"), "{m}");
+        }
+    }
+
+    #[test]
+    fn points_must_be_finite_and_inside_with_half_a_pixel_of_slack() {
+        let m = invalid(validate(
+            drawing(vec![line(plot(f64::NAN, 0.0), plot(1.0, 1.0))]),
+            AREA,
+        ));
+        assert!(
+            m.contains("primitive 1 (line)") && m.contains("not finite"),
+            "{m}"
+        );
+        let m = invalid(validate(
+            drawing(vec![line(plot(0.0, 0.0), plot(201.0, 1.0))]),
+            AREA,
+        ));
+        assert!(m.contains("outside the plot area"), "{m}");
+        let m = invalid(validate(
+            drawing(vec![text("a"), line(plot(0.0, -0.6), plot(1.0, 1.0))]),
+            AREA,
+        ));
+        assert!(m.contains("primitive 2"), "{m}");
+        // Within the slack: accepted and clamped into the area.
+        let v = validate(
+            drawing(vec![line(plot(-0.4, 100.4), plot(200.5, 0.0))]),
+            AREA,
+        )
+        .unwrap();
+        assert_eq!(v.primitives[0], line(plot(0.0, 100.0), plot(200.0, 0.0)));
+        // Data points mapped outside are refused too.
+        let mut d = drawing(vec![line(data(0.0, 0.0), data(11.0, 1.0))]);
+        d.data_domain = Some(DataDomain {
+            x: [0.0, 10.0],
+            y: [0.0, 1.0],
+        });
+        assert!(invalid(validate(d, AREA)).contains("data (11, 1)"));
+    }
+
+    #[test]
+    fn circles_texts_and_descriptions_are_bounded() {
+        let circle = |radius| Primitive::Circle {
+            center: plot(5.0, 5.0),
+            radius,
+            role: Role::Focus,
+        };
+        assert!(validate(drawing(vec![circle(3.0)]), AREA).is_ok());
+        assert!(validate(drawing(vec![circle(200.0)]), AREA).is_ok());
+        for r in [0.0, -1.0, 200.1, f64::INFINITY, f64::NAN] {
+            assert!(
+                invalid(validate(drawing(vec![circle(r)]), AREA)).contains("radius"),
+                "{r}"
+            );
+        }
+        assert!(validate(drawing(vec![text(&"x".repeat(300))]), AREA).is_ok());
+        assert!(
+            invalid(validate(drawing(vec![text(&"é".repeat(301))]), AREA))
+                .contains("301 characters")
+        );
+        assert!(invalid(validate(drawing(vec![text("  ")]), AREA)).contains("empty"));
+        assert!(invalid(validate(drawing(vec![text("a\u{0}b")]), AREA)).contains("control"));
+        let mut d = drawing(vec![]);
+        d.description = Some("d".repeat(2_000));
+        assert!(validate(d.clone(), AREA).is_ok());
+        d.description = Some("d".repeat(2_001));
+        assert!(invalid(validate(d, AREA)).contains("description"));
+    }
+
+    #[test]
+    fn counts_are_limited() {
+        let many = vec![line(plot(0.0, 0.0), plot(1.0, 1.0)); MAX_PRIMITIVES];
+        assert!(validate(drawing(many.clone()), AREA).is_ok());
+        let mut too_many = many;
+        too_many.push(text("one more"));
+        assert!(invalid(validate(drawing(too_many), AREA)).contains("50001 primitives"));
+        let poly = |n| Primitive::Polyline {
+            points: vec![plot(1.0, 1.0); n],
+            role: Role::Context,
+        };
+        assert!(validate(drawing(vec![poly(100_000), poly(100_000)]), AREA).is_ok());
+        assert!(
+            invalid(validate(drawing(vec![poly(100_000), poly(100_001)]), AREA))
+                .contains("200001 points")
+        );
+        assert!(invalid(validate(drawing(vec![poly(1)]), AREA)).contains("at least 2"));
+        let area = Primitive::Area {
+            points: vec![plot(1.0, 1.0); 2],
+            role: Role::Context,
+        };
+        assert!(invalid(validate(drawing(vec![area]), AREA)).contains("at least 3"));
+    }
+
+    #[test]
+    fn replies_are_parsed_strictly() {
+        let ok = br#"{"drawing":{"primitives":[{"kind":"line","from":{"x":1,"y":2},"to":{"x":3,"y":4,"space":"plot"},"role":"focus"}],"data_domain":null,"description":"Two points."}}"#;
+        let v = check_reply(ok, AREA).unwrap();
+        assert_eq!(
+            v.primitives,
+            vec![Primitive::Line {
+                from: plot(1.0, 2.0),
+                to: plot(3.0, 4.0),
+                role: Role::Focus
+            }]
+        );
+        assert_eq!(v.description.as_deref(), Some("Two points."));
+
+        let malformed = |bytes: &[u8]| match check_reply(bytes, AREA) {
+            Err(PluginError::Malformed(m)) => m,
+            other => panic!("expected Malformed, got {other:?}"),
+        };
+        assert!(malformed(&[0xff, 0xfe, b'{']).contains("not UTF-8"));
+        assert!(malformed(b"").contains("EOF"));
+        assert!(malformed(br#"{"drawing":{"primitives":[{"kind":"line","from":{"x":1,"y":2},"to":{"x":3,"y":4},"role":"sparkle"}]}}"#).contains("sparkle"));
+        assert!(malformed(
+            br#"{"drawing":{"primitives":[{"kind":"star","at":{"x":1,"y":2},"role":"focus"}]}}"#
+        )
+        .contains("star"));
+        assert!(malformed(br#"{"drawing":{"primitives":[{"kind":"circle","center":{"x":1,"y":2},"radius":1,"role":"focus","fill":"red"}]}}"#).contains("fill"));
+        assert!(malformed(br#"{"drawing":{"primitives":[{"kind":"circle","center":{"x":null,"y":2},"radius":1,"role":"focus"}]}}"#).contains("null"));
+        assert!(malformed(br#"{"drawing":{"primitives":[{"kind":"circle","center":{"x":1e999,"y":2},"radius":1,"role":"focus"}]}}"#).contains("out of range"));
+        assert!(malformed(br#"{"shrug":1}"#).contains("shrug"));
+
+        assert_eq!(
+            check_reply(br#"{"error":"no column `year`"}"#, AREA),
+            Err(PluginError::Failed("no column `year`".into()))
+        );
+        let long = format!(r#"{{"error":"{}"}}"#, "e".repeat(5_000));
+        let Err(PluginError::Failed(m)) = check_reply(long.as_bytes(), AREA) else {
+            panic!()
+        };
+        assert_eq!(m.chars().count(), MAX_ERROR_CHARS + 1);
+    }
+
+    #[test]
+    fn hex_and_clip() {
+        assert_eq!(hex(&[0, 1, 0xab, 0xff]), "0001abff");
+        assert_eq!(clip("abcdef", 3), "abc…");
+        assert_eq!(clip("abc", 3), "abc");
+    }
+
+    #[test]
+    fn missing_files_are_unreadable() {
+        let r = Plugin::load(Path::new("/nonexistent/libnothing.so"), None);
+        assert!(
+            matches!(r, Err(PluginError::Unreadable(ref m)) if m.contains("libnothing.so")),
+            "{r:?}"
+        );
     }
 }

@@ -72,6 +72,14 @@ pub struct Request {
     pub hidden: Vec<String>,
     pub texts: Texts,
     pub area: Area,
+    /// The host's label text size in pixels (its line height is about 1.25
+    /// times this): lay labels out for it so they do not collide.
+    #[serde(default = "default_label_size")]
+    pub label_size: f64,
+}
+
+fn default_label_size() -> f64 {
+    16.0
 }
 
 /// Which coordinates a point is in.

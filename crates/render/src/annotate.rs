@@ -13,7 +13,8 @@ use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_plan::{Annotation, LineChart, Role};
 
-/// Widest a callout's text may be before it wraps.
+/// Widest a callout's text may be before it wraps (at 16 px labels;
+/// [`Theme::label_scaled`]).
 const CALLOUT_WIDTH: f64 = 260.0;
 /// Most lines a callout may take.
 const CALLOUT_LINES: usize = 3;
@@ -297,7 +298,7 @@ pub(crate) fn draw_over(
             text,
             theme.label_size,
             false,
-            CALLOUT_WIDTH.min(plot_w),
+            theme.label_scaled(CALLOUT_WIDTH).min(plot_w),
             CALLOUT_LINES,
         );
         if lines.is_empty() {

@@ -17,6 +17,8 @@ use crescendo_plan::{DotChart, Role};
 const DOT: f64 = 6.0;
 /// Space between the category column and the plot.
 const PAD: f64 = 12.0;
+/// Widest a series name may be (at 16 px labels; [`Theme::label_scaled`]).
+const MAX_SERIES_LABEL: f64 = 240.0;
 /// Widest category column, as a share of the region.
 const MAX_CATEGORY_SHARE: f64 = 0.32;
 
@@ -202,8 +204,12 @@ pub(crate) fn draw(
                     .iter()
                     .find_map(|r| r.values.get(k).copied().flatten().filter(|v| v.is_finite()))
                     .map(vmap)?;
-                let text =
-                    metrics::ellipsize(&metrics::normalize(&s.name), theme.label_size, true, 240.0);
+                let text = metrics::ellipsize(
+                    &metrics::normalize(&s.name),
+                    theme.label_size,
+                    true,
+                    theme.label_scaled(MAX_SERIES_LABEL),
+                );
                 Some((x, text_width(&text, theme.label_size, true), k, text))
             })
             .collect();

@@ -15,14 +15,27 @@ use crescendo_plan::{FigureChart, Role};
 pub(crate) const FIGURE_SIZE: f64 = 118.0;
 /// Smallest size a long figure is shrunk to before it is cut.
 const MIN_FIGURE_SIZE: f64 = 48.0;
-/// Caption size in px.
+/// Caption size in px with the default 20 px takeaway: captions are set
+/// this much larger than the theme's takeaway ([`caption_size`]).
 pub(crate) const CAPTION_SIZE: f64 = 22.0;
-const CAPTION_STEP: f64 = 28.0;
+/// Line pitch of a caption beyond its size (28 px for 22 px captions).
+const CAPTION_LEADING: f64 = 6.0;
 const CAPTION_LINES: usize = 3;
 /// Space between the two columns.
 const COLUMN_GAP: f64 = 72.0;
 /// Space between a figure and its caption.
 const FIGURE_TO_CAPTION: f64 = 10.0;
+
+/// The caption size for `theme`: 2 px over its takeaway size, lowered to
+/// the nearest whole size the SVG states exactly (never below the
+/// takeaway, which the SVG always states exactly).
+fn caption_size(theme: &Theme) -> f64 {
+    let mut size = theme.takeaway_size + (CAPTION_SIZE - crate::layout::TAKEAWAY_SIZE);
+    while size > theme.takeaway_size && crate::canvas::requested_size(size) / 1.24 != size {
+        size -= 1.0;
+    }
+    size.max(theme.takeaway_size)
+}
 
 pub(crate) fn draw(
     canvas: &Canvas<'_>,
@@ -54,17 +67,19 @@ pub(crate) fn draw(
     while size > MIN_FIGURE_SIZE && crate::canvas::requested_size(size) / 1.24 != size {
         size -= 1.0;
     }
+    let caption_size = caption_size(theme);
+    let caption_step = caption_size + CAPTION_LEADING;
     let captions: Vec<Vec<String>> = chart
         .figures
         .iter()
-        .map(|f| metrics::wrap(&f.caption, CAPTION_SIZE, false, column, CAPTION_LINES))
+        .map(|f| metrics::wrap(&f.caption, caption_size, false, column, CAPTION_LINES))
         .collect();
     let caption_lines = captions.iter().map(Vec::len).max().unwrap_or(0);
     let block = line_height(size)
         + if caption_lines > 0 {
             FIGURE_TO_CAPTION
-                + (caption_lines - 1) as f64 * CAPTION_STEP
-                + line_height(CAPTION_SIZE)
+                + (caption_lines - 1) as f64 * caption_step
+                + line_height(caption_size)
         } else {
             0.0
         };
@@ -92,8 +107,8 @@ pub(crate) fn draw(
             canvas.text(&Label {
                 text: line,
                 x: left,
-                top: caption_top + k as f64 * CAPTION_STEP,
-                size: CAPTION_SIZE,
+                top: caption_top + k as f64 * caption_step,
+                size: caption_size,
                 bold: false,
                 color: theme.takeaway,
                 align: Align::Start,

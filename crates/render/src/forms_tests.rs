@@ -823,3 +823,168 @@ fn long_lines_are_downsampled() {
         "about two points per pixel: {total}"
     );
 }
+
+/// A house style with larger text and wider margins than the default theme:
+/// 18 px labels, a 22 px takeaway (so figure captions are 24 px), a 15 px
+/// source (which plotters alone would write as 15.000000000000002) and
+/// 80 px side margins.
+fn large_style() -> style::HouseStyle {
+    style::HouseStyle {
+        label_size: Some(18.0),
+        takeaway_size: Some(22.0),
+        source_size: Some(15.0),
+        margin_sides: Some(80.0),
+        margin_top: Some(44.0),
+        margin_bottom: Some(32.0),
+        ..Default::default()
+    }
+}
+
+fn render_styled(chart: Chart, style: &style::HouseStyle) -> String {
+    let f = frame("A headline for the form", chart);
+    let d = DeckPlan {
+        title: "t".to_string(),
+        byline: None,
+        source: None,
+        theme: "clear".to_string(),
+        conclusion: None,
+        accent: None,
+        style: Some(style.clone()),
+        values: Default::default(),
+        claims: Vec::new(),
+        frames: vec![f.clone()],
+    };
+    render_frame(&d, &f).unwrap()
+}
+
+/// The `font-size` attribute of every `<text>`, by its collapsed content.
+fn font_sizes(svg: &str) -> Vec<(String, String)> {
+    let doc = roxmltree::Document::parse(svg).unwrap();
+    doc.descendants()
+        .filter(|n| n.has_tag_name("text"))
+        .map(|n| {
+            let content: String = n
+                .descendants()
+                .filter(|n| n.is_text())
+                .filter_map(|n| n.text())
+                .collect();
+            (
+                crate::metrics::normalize(&content),
+                n.attribute("font-size").unwrap_or("").to_string(),
+            )
+        })
+        .collect()
+}
+
+#[test]
+fn every_form_takes_sizes_and_margins_from_the_house_style() {
+    let style = large_style();
+    // (name, chart, texts that are labels and must be 18 px)
+    let forms: Vec<(&str, Chart, &[&str])> = vec![
+        (
+            "parts stacked vertical",
+            parts_chart(PartsMode::Stacked, Orientation::Vertical, false),
+            &["Walk-in", "Booked online", "North", "25", "Region"],
+        ),
+        (
+            "parts grouped vertical",
+            parts_chart(PartsMode::Grouped, Orientation::Vertical, false),
+            &["Booked online", "East", "Visits (thousands)"],
+        ),
+        (
+            "parts stacked horizontal",
+            parts_chart(PartsMode::Stacked, Orientation::Horizontal, false),
+            &["Walk-in", "West", "Visits (thousands)"],
+        ),
+        (
+            "parts grouped horizontal",
+            parts_chart(PartsMode::Grouped, Orientation::Horizontal, false),
+            &["Referred", "South"],
+        ),
+        (
+            "dots",
+            dots_chart(false),
+            &["2019", "2024", "Events held", "Per 1,000 residents", "60"],
+        ),
+        (
+            "scatter",
+            scatter_chart(false),
+            &["Dunmore", "fit: r = 0.82", "Median rent (index)", "75"],
+        ),
+        ("figures", figures_chart(false), &[]),
+        (
+            "table",
+            table_chart(5, false),
+            &["Pool", "Visits", "Alder Park", "6,170"],
+        ),
+        (
+            "table, capped",
+            table_chart(60, false),
+            &["Pool", "Alder Park"],
+        ),
+        (
+            "pie",
+            pie_chart(false),
+            &["Westbrook 38%", "Other pools 5%"],
+        ),
+        (
+            "panels",
+            panels_chart(true, false, false),
+            &["Coast", "Fen", "Share of homes (%)"],
+        ),
+        (
+            "trimmed panels",
+            panels_chart(true, true, false),
+            &["Uplands", "Islands"],
+        ),
+        (
+            "line notes",
+            annotated(true),
+            &["Grant scheme", "National target", "Uplands", "34"],
+        ),
+    ];
+    for (name, chart, labels) in forms {
+        let svg = render_styled(chart, &style);
+        dump(&format!("styled {name}"), &svg);
+        let boxes = check(&svg);
+        // Every text inside the style's margins (1 px for rounding).
+        for b in &boxes {
+            assert!(
+                b.x0 >= 80.0 - 1.0
+                    && b.x1 <= 1280.0 - 80.0 + 1.0
+                    && b.y0 >= 44.0 - 1.0
+                    && b.y1 <= 720.0 - 32.0 + 1.0,
+                "{name}: outside the margins: {b:?}"
+            );
+        }
+        let sizes = font_sizes(&svg);
+        for label in labels {
+            let (_, size) = sizes
+                .iter()
+                .find(|(t, _)| t == label)
+                .unwrap_or_else(|| panic!("{name}: no text {label}"));
+            assert_eq!(size, "18", "{name}: {label}");
+        }
+        // Nothing is left at a default size: every text is at one of the
+        // style's sizes, written exactly (figures add their own two).
+        for (text, size) in &sizes {
+            let allowed = match size.as_str() {
+                "32" | "22" | "18" | "15" => true,
+                "24" | "118" => name == "figures",
+                _ => false,
+            };
+            assert!(allowed, "{name}: `{text}` at font-size {size}");
+        }
+        // Panels write their small ticks at the source size.
+        if name == "panels" {
+            assert!(sizes.iter().any(|(t, s)| t == "40" && s == "15"));
+        }
+        if name == "figures" {
+            let caption = "of all visits came after 6 pm";
+            assert!(
+                sizes.iter().any(|(t, s)| t == caption && s == "24"),
+                "captions 2 px over the 22 px takeaway"
+            );
+        }
+    }
+}

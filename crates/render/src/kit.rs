@@ -4,7 +4,7 @@
 //! de-overlapping of labels of different widths, and plain x/y axes.
 
 use crate::canvas::{Align, Canvas, Label};
-use crate::layout::{self, fit_label, map, max_width, Region};
+use crate::layout::{self, fit_label_at, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::{Rgb, Theme};
 use crate::RenderError;
@@ -452,10 +452,7 @@ pub(crate) fn draw_xy_axes(
 
 /// One line of text fitted into `width` at `size`.
 pub(crate) fn fit_one(text: &str, width: f64, size: f64) -> String {
-    if (size - layout::LABEL_SIZE).abs() < f64::EPSILON {
-        return fit_label(text, width, 1, false).join(" ");
-    }
-    metrics::ellipsize(&metrics::normalize(text), size, false, width.max(0.0))
+    fit_label_at(size, text, width.max(0.0), 1, false).join(" ")
 }
 
 /// A muted (tick, title, category) label.

@@ -108,21 +108,8 @@ pub fn render_frame_with(
         }
         canvas.finish()?;
     }
-    if theme.font_family != canvas::FONT_FAMILY {
-        // Text is measured and registered with plotters as the bundled font;
-        // the SVG names the house style's stack instead.
-        buf = buf.replace(
-            &format!("font-family=\"{}\"", canvas::FONT_FAMILY),
-            &format!(
-                "font-family=\"{}\"",
-                theme
-                    .font_family
-                    .replace('&', "&amp;")
-                    .replace('<', "&lt;")
-                    .replace('"', "&quot;")
-            ),
-        );
-    }
+    // A house style's font stack and sizes, written as the style says.
+    let buf = theme::restyle_svg(buf, theme);
     match plugin_description {
         // A plugin's own description of its panel says more than the
         // planner's generic one.

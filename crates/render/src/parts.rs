@@ -23,7 +23,7 @@ const VALUE_GAP: f64 = 6.0;
 /// Share of a category band filled by its bar (stacked) or group.
 const BAR_SHARE: f64 = 0.62;
 const GROUP_SHARE: f64 = 0.8;
-/// Widest a part name may be.
+/// Widest a part name may be (at 16 px labels; [`Theme::label_scaled`]).
 const MAX_PART_LABEL: f64 = 240.0;
 /// Widest category column of horizontal bars, as a share of the region.
 const MAX_CATEGORY_SHARE: f64 = 0.3;
@@ -82,7 +82,7 @@ fn part_text(theme: &Theme, name: &str) -> String {
         &metrics::normalize(name),
         theme.label_size,
         true,
-        MAX_PART_LABEL,
+        theme.label_scaled(MAX_PART_LABEL),
     )
 }
 

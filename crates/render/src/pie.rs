@@ -19,7 +19,8 @@ const MAX_RADIUS: f64 = 230.0;
 /// Leader: from the rim out to the elbow, then across to the label.
 const ELBOW: f64 = 16.0;
 const LABEL_OUT: f64 = 34.0;
-/// Room kept for labels on each side of the circle.
+/// Room kept for labels on each side of the circle (at 16 px labels;
+/// [`Theme::label_scaled`]).
 const MIN_LABEL_ROOM: f64 = 180.0;
 
 /// The point at `angle` (radians, clockwise from twelve o'clock).
@@ -50,7 +51,7 @@ pub(crate) fn draw(
     let width = region.right - region.left;
     let height = region.bottom - region.top;
     let radius = (height / 2.0 - 6.0)
-        .min(width / 2.0 - MIN_LABEL_ROOM - LABEL_OUT)
+        .min(width / 2.0 - theme.label_scaled(MIN_LABEL_ROOM) - LABEL_OUT)
         .clamp(10.0, MAX_RADIUS);
     let c = (region.left + width / 2.0, region.top + height / 2.0);
 

@@ -55,6 +55,7 @@ pub fn draw(
         width: region.right - region.left,
         height: region.bottom - region.top,
     };
+    request.label_size = theme.label_size;
     let drawing = host.draw(&chart.plugin, &request).map_err(|e| {
         RenderError::new(format!(
             "plugin `{}` ({} {}): {e}",

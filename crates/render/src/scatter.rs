@@ -15,7 +15,7 @@ use crescendo_plan::{Role, ScatterChart};
 const DOT: u32 = 4;
 /// Radius of a focus dot, in px.
 const FOCUS_DOT: u32 = 6;
-/// Widest a point label may be.
+/// Widest a point label may be (at 16 px labels; [`Theme::label_scaled`]).
 const MAX_LABEL: f64 = 220.0;
 
 /// The fit's label: `fit: r = 0.82` (r to two decimals, no trailing zeros).
@@ -137,7 +137,7 @@ pub(crate) fn draw(
             &metrics::normalize(&p.label),
             theme.label_size,
             true,
-            MAX_LABEL,
+            theme.label_scaled(MAX_LABEL),
         );
         if text.is_empty() {
             continue;

@@ -27,7 +27,10 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
     let mut seen_chart = Vec::new();
     for (i, f, a) in frames(input) {
         // forms without a measure axis need no title
-        let has_axis = !matches!(f.chart, Chart::Figures(_) | Chart::Table(_) | Chart::Pie(_));
+        let has_axis = !matches!(
+            f.chart,
+            Chart::Figures(_) | Chart::Table(_) | Chart::Pie(_) | Chart::Plugin(_)
+        );
         // once per sequence: the first frame of the chart
         if has_axis && a.y_title.is_none() && !seen_chart.contains(&a.chart) {
             seen_chart.push(a.chart.clone());

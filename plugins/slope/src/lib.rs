@@ -1,0 +1,567 @@
+//! A crescendo chart-form plugin: the slope chart.
+//!
+//! Two periods, one line per category from its value in the first period
+//! (left) to its value in the second (right). Options: `category COL`,
+//! `value COL`, `period COL` (the column holding the time or period label;
+//! it must hold exactly two distinct periods).
+//!
+//! The vertical scale spans the data, not zero: a slope chart encodes values
+//! by position and change by angle, not by length (common practice).
+
+use std::collections::BTreeMap;
+
+use crescendo_plugin::sdk::{
+    cell_number, cell_text, column, decimals_needed, extent, format_number, shown, spread,
+    text_width, Form, Linear, Shown,
+};
+use crescendo_plugin::{Anchor, Drawing, Primitive, Pt, Request, Role, Space};
+
+/// The slope chart form.
+pub struct SlopeChart;
+
+impl Form for SlopeChart {
+    fn render(&self, request: &Request) -> Result<Drawing, String> {
+        slope(request)
+    }
+}
+
+crescendo_plugin::export_plugin! {
+    name: "slope",
+    version: "0.1.0",
+    forms: { "slope" => SlopeChart },
+}
+
+/// Space between a line end and its label.
+const PAD: f64 = 6.0;
+/// The most items named in the description.
+const MENTIONS: usize = 3;
+
+struct Item {
+    name: String,
+    values: [f64; 2],
+    shown: Shown,
+}
+
+fn slope(r: &Request) -> Result<Drawing, String> {
+    // Lay labels out for the host's text size.
+    let font = r.label_size.clamp(8.0, 72.0);
+    let line = (font * 1.25).ceil();
+    let head = line + 10.0;
+
+    let cat = column(r, "category")?;
+    let val = column(r, "value")?;
+    let per = column(r, "period")?;
+    if val.kind != "number" {
+        return Err(format!(
+            "option `value` needs a column of numbers; `{}` holds {}",
+            val.name, val.kind
+        ));
+    }
+    let rows = cat.cells.len();
+    if val.cells.len() != rows || per.cells.len() != rows {
+        return Err("the view's columns have different lengths".into());
+    }
+
+    // The periods, in time order for time columns, numeric order for
+    // numbers, order of appearance for text.
+    let mut periods: Vec<(String, Option<f64>)> = Vec::new();
+    for cell in &per.cells {
+        if let Some(label) = cell_text(cell) {
+            if !periods.iter().any(|(p, _)| *p == label) {
+                periods.push((label, cell_number(cell)));
+            }
+        }
+    }
+    match per.kind.as_str() {
+        "date" | "month" | "year" => periods.sort_by(|a, b| a.0.cmp(&b.0)),
+        "number" => {
+            periods.sort_by(|a, b| a.1.unwrap_or(f64::NAN).total_cmp(&b.1.unwrap_or(f64::NAN)))
+        }
+        _ => {}
+    }
+    if periods.len() != 2 {
+        let mut found: Vec<&str> = periods.iter().take(6).map(|(p, _)| p.as_str()).collect();
+        if periods.len() > 6 {
+            found.push("…");
+        }
+        let listed = if found.is_empty() {
+            String::new()
+        } else {
+            format!(": {}", found.join(", "))
+        };
+        return Err(format!(
+            "a slope chart needs exactly two periods in column `{}`, but it holds {}{listed}",
+            per.name,
+            periods.len()
+        ));
+    }
+    let labels = [periods[0].0.clone(), periods[1].0.clone()];
+
+    // Values per category, in order of appearance.
+    let mut order: Vec<String> = Vec::new();
+    let mut values: BTreeMap<String, [Option<f64>; 2]> = BTreeMap::new();
+    for i in 0..rows {
+        let (Some(name), Some(period)) = (cell_text(&cat.cells[i]), cell_text(&per.cells[i]))
+        else {
+            continue;
+        };
+        let side = if period == labels[0] { 0 } else { 1 };
+        let slot = values.entry(name.clone()).or_insert_with(|| {
+            order.push(name.clone());
+            [None, None]
+        });
+        let Some(v) = cell_number(&val.cells[i]) else {
+            continue;
+        };
+        if slot[side].is_some() {
+            return Err(format!(
+                "`{name}` has more than one value for {}",
+                labels[side]
+            ));
+        }
+        slot[side] = Some(v);
+    }
+    let mut items = Vec::new();
+    let mut left_out = Vec::new();
+    for name in order {
+        match values.get(&name) {
+            Some([Some(a), Some(b)]) => {
+                let shown = shown(r, &name);
+                items.push(Item {
+                    name,
+                    values: [*a, *b],
+                    shown,
+                });
+            }
+            Some([a, _]) => {
+                let missing = if a.is_none() { &labels[0] } else { &labels[1] };
+                left_out.push(format!("{name} (no value for {missing})"));
+            }
+            None => {}
+        }
+    }
+    if items.is_empty() {
+        return Err(format!(
+            "no `{}` has values for both {} and {}",
+            cat.name, labels[0], labels[1]
+        ));
+    }
+
+    let decimals = decimals_needed(items.iter().flat_map(|i| i.values), 2);
+    let fmt = |v: f64| format_number(v, decimals);
+
+    // Layout. Hidden items count here, so nothing moves when they appear.
+    let (w, h) = (r.area.width, r.area.height);
+    let left_texts: Vec<String> = items
+        .iter()
+        .map(|i| format!("{} {}", i.name, fmt(i.values[0])))
+        .collect();
+    let right_texts: Vec<String> = items.iter().map(|i| fmt(i.values[1])).collect();
+    let widest = |texts: &[String]| {
+        texts
+            .iter()
+            .map(|t| text_width(t, font))
+            .fold(0.0, f64::max)
+    };
+    let x_left = (widest(&left_texts) + 2.0 * PAD).min(0.45 * w);
+    let x_right = (w - widest(&right_texts) - 2.0 * PAD)
+        .max(x_left + 0.2 * w)
+        .min(w);
+    let top = (head + line / 2.0).min(h / 2.0);
+    let bottom = (h - line / 2.0).max(top);
+    let [lo, hi] = extent(items.iter().flat_map(|i| i.values)).unwrap_or([0.0, 1.0]);
+    let y = Linear::new([lo, hi], [bottom, top]);
+
+    let ys = |side: usize| -> Vec<f64> { items.iter().map(|i| y.map(i.values[side])).collect() };
+    let (ys_left, ys_right) = (ys(0), ys(1));
+    let label_top = |centres: Vec<f64>| -> Vec<f64> {
+        spread(&centres, line, top, bottom)
+            .into_iter()
+            .map(|c| (c - line / 2.0).clamp(0.0, (h - line).max(0.0)))
+            .collect()
+    };
+    let (at_left, at_right) = (label_top(ys_left.clone()), label_top(ys_right.clone()));
+
+    let pt = |x: f64, y: f64| Pt {
+        x: x.clamp(0.0, w),
+        y: y.clamp(0.0, h),
+        space: Space::Plot,
+    };
+    let mut prims = vec![
+        Primitive::Text {
+            at: pt(x_left, 0.0),
+            text: labels[0].clone(),
+            anchor: Anchor::Middle,
+            bold: false,
+            role: Role::Axis,
+        },
+        Primitive::Text {
+            at: pt(x_right, 0.0),
+            text: labels[1].clone(),
+            anchor: Anchor::Middle,
+            bold: false,
+            role: Role::Axis,
+        },
+        Primitive::Line {
+            from: pt(x_left, top - line / 2.0),
+            to: pt(x_left, bottom),
+            role: Role::Axis,
+        },
+        Primitive::Line {
+            from: pt(x_right, top - line / 2.0),
+            to: pt(x_right, bottom),
+            role: Role::Axis,
+        },
+    ];
+    // Context first, focus last, so the spotlighted lines lie on top.
+    for pass in [Role::Context, Role::Focus] {
+        for (k, item) in items.iter().enumerate() {
+            let role = match item.shown {
+                Shown::Hidden => continue,
+                Shown::As(Role::Focus) => Role::Focus,
+                Shown::As(_) => Role::Context,
+            };
+            if role != pass {
+                continue;
+            }
+            let bold = role == Role::Focus;
+            let radius = if bold { 3.5 } else { 2.5 };
+            let (a, b) = (pt(x_left, ys_left[k]), pt(x_right, ys_right[k]));
+            prims.push(Primitive::Line {
+                from: a,
+                to: b,
+                role,
+            });
+            prims.push(Primitive::Circle {
+                center: a,
+                radius,
+                role,
+            });
+            prims.push(Primitive::Circle {
+                center: b,
+                radius,
+                role,
+            });
+            prims.push(Primitive::Text {
+                at: pt(x_left - PAD, at_left[k]),
+                text: left_texts[k].clone(),
+                anchor: Anchor::End,
+                bold,
+                role,
+            });
+            prims.push(Primitive::Text {
+                at: pt(x_right + PAD, at_right[k]),
+                text: right_texts[k].clone(),
+                anchor: Anchor::Start,
+                bold,
+                role,
+            });
+        }
+    }
+
+    Ok(Drawing {
+        primitives: prims,
+        data_domain: None,
+        description: Some(describe(&items, &labels, &cat.name, &left_out, &fmt)),
+    })
+}
+
+/// "Slope chart of route from 2019 to 2024, 5 items: Harbour Loop rose from
+/// 4,100 to 9,350. 3 rose, 2 fell."
+fn describe(
+    items: &[Item],
+    labels: &[String; 2],
+    category: &str,
+    left_out: &[String],
+    fmt: &dyn Fn(f64) -> String,
+) -> String {
+    let visible: Vec<&Item> = items.iter().filter(|i| i.shown != Shown::Hidden).collect();
+    let mut text = format!(
+        "Slope chart of {category} from {} to {}, {} {}",
+        labels[0],
+        labels[1],
+        visible.len(),
+        if visible.len() == 1 { "item" } else { "items" }
+    );
+    let focus: Vec<&Item> = visible
+        .iter()
+        .copied()
+        .filter(|i| i.shown == Shown::As(Role::Focus))
+        .collect();
+    let mentioned: Vec<&Item> = if focus.is_empty() {
+        // The largest change (first one on ties).
+        let mut best: Option<&Item> = None;
+        for i in &visible {
+            let change = (i.values[1] - i.values[0]).abs();
+            if best.is_none_or(|b| change > (b.values[1] - b.values[0]).abs()) {
+                best = Some(i);
+            }
+        }
+        best.into_iter().collect()
+    } else {
+        focus.into_iter().take(MENTIONS).collect()
+    };
+    let phrases: Vec<String> = mentioned
+        .iter()
+        .map(|i| {
+            let [a, b] = i.values;
+            let verb = if b > a {
+                "rose"
+            } else if b < a {
+                "fell"
+            } else {
+                "stayed"
+            };
+            if verb == "stayed" {
+                format!("{} stayed at {}", i.name, fmt(a))
+            } else {
+                format!("{} {verb} from {} to {}", i.name, fmt(a), fmt(b))
+            }
+        })
+        .collect();
+    if !phrases.is_empty() {
+        text.push_str(": ");
+        text.push_str(&phrases.join("; "));
+    }
+    text.push('.');
+    let rose = visible.iter().filter(|i| i.values[1] > i.values[0]).count();
+    let fell = visible.iter().filter(|i| i.values[1] < i.values[0]).count();
+    text.push_str(&format!(" {rose} rose, {fell} fell."));
+    if !left_out.is_empty() {
+        let shown: Vec<&str> = left_out.iter().take(MENTIONS).map(String::as_str).collect();
+        let more = if left_out.len() > MENTIONS {
+            format!(" and {} more", left_out.len() - MENTIONS)
+        } else {
+            String::new()
+        };
+        text.push_str(&format!(" Left out: {}{more}.", shown.join(", ")));
+    }
+    text
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crescendo_plugin::{Area, Cell, Column, Texts, ABI_VERSION};
+
+    fn text_col(name: &str, kind: &str, cells: &[&str]) -> Column {
+        Column {
+            name: name.into(),
+            kind: kind.into(),
+            cells: cells.iter().map(|c| Cell::Text(c.to_string())).collect(),
+        }
+    }
+
+    fn request(periods: &[&str], names: &[&str], values: &[f64]) -> Request {
+        let options = [
+            ("category", "route"),
+            ("value", "riders"),
+            ("period", "year"),
+        ]
+        .iter()
+        .map(|(k, v)| (k.to_string(), v.to_string()))
+        .collect();
+        Request {
+            abi_version: ABI_VERSION,
+            form: "slope".into(),
+            options,
+            columns: vec![
+                text_col("route", "text", names),
+                Column {
+                    name: "riders".into(),
+                    kind: "number".into(),
+                    cells: values.iter().map(|v| Cell::Number(*v)).collect(),
+                },
+                text_col("year", "year", periods),
+            ],
+            roles: BTreeMap::new(),
+            hidden: vec![],
+            texts: Texts::default(),
+            area: Area {
+                width: 600.0,
+                height: 400.0,
+            },
+            label_size: 16.0,
+        }
+    }
+
+    fn sample() -> Request {
+        request(
+            &["2024", "2019", "2019", "2024", "2019", "2024"],
+            &[
+                "Harbour Loop",
+                "Harbour Loop",
+                "Hill Line",
+                "Hill Line",
+                "Canal",
+                "Canal",
+            ],
+            &[9350.0, 4100.0, 2000.0, 1800.0, 3000.0, 3050.5],
+        )
+    }
+
+    fn texts(d: &Drawing) -> Vec<(String, Role)> {
+        d.primitives
+            .iter()
+            .filter_map(|p| match p {
+                Primitive::Text { text, role, .. } => Some((text.clone(), *role)),
+                _ => None,
+            })
+            .collect()
+    }
+
+    #[test]
+    fn draws_lines_labels_and_periods() {
+        let mut r = sample();
+        r.roles.insert("Harbour Loop".into(), Role::Focus);
+        let d = slope(&r).unwrap();
+        let t = texts(&d);
+        assert!(
+            t.contains(&("2019".into(), Role::Axis)) && t.contains(&("2024".into(), Role::Axis)),
+            "{t:?}"
+        );
+        assert!(
+            t.contains(&("Harbour Loop 4,100".into(), Role::Focus)),
+            "{t:?}"
+        );
+        assert!(t.contains(&("9,350".into(), Role::Focus)), "{t:?}");
+        assert!(t.contains(&("Canal 3,000".into(), Role::Context)), "{t:?}");
+        assert!(t.contains(&("3,050.5".into(), Role::Context)), "{t:?}");
+        let lines: Vec<Role> = d
+            .primitives
+            .iter()
+            .filter_map(|p| match p {
+                Primitive::Line { role, .. } if *role != Role::Axis => Some(*role),
+                _ => None,
+            })
+            .collect();
+        assert_eq!(lines, vec![Role::Context, Role::Context, Role::Focus]);
+        assert_eq!(
+            d.description.as_deref(),
+            Some("Slope chart of route from 2019 to 2024, 3 items: Harbour Loop rose from 4,100 to 9,350. 2 rose, 1 fell.")
+        );
+    }
+
+    #[test]
+    fn the_higher_value_is_drawn_higher_and_inside_the_area() {
+        let d = slope(&sample()).unwrap();
+        for p in &d.primitives {
+            if let Primitive::Line {
+                from,
+                to,
+                role: Role::Context,
+            } = p
+            {
+                for q in [from, to] {
+                    assert!(
+                        (0.0..=600.0).contains(&q.x) && (0.0..=400.0).contains(&q.y),
+                        "{q:?}"
+                    );
+                }
+            }
+        }
+        // Harbour Loop rose most: its right end (9,350) is the top one.
+        let ends: Vec<f64> = d
+            .primitives
+            .iter()
+            .filter_map(|p| match p {
+                Primitive::Line {
+                    to,
+                    role: Role::Context,
+                    ..
+                } => Some(to.y),
+                _ => None,
+            })
+            .collect();
+        assert!(ends[0] < ends[1] && ends[0] < ends[2], "{ends:?}");
+    }
+
+    #[test]
+    fn hidden_items_keep_the_layout() {
+        let all = slope(&sample()).unwrap();
+        let mut r = sample();
+        r.hidden.push("Hill Line".into());
+        let some = slope(&r).unwrap();
+        assert!(!texts(&some).iter().any(|(t, _)| t.starts_with("Hill Line")));
+        // Every primitive of the smaller drawing is in the full one, unmoved.
+        for p in &some.primitives {
+            assert!(all.primitives.contains(p), "{p:?} moved");
+        }
+        assert!(some.description.unwrap().contains("2 items"));
+    }
+
+    #[test]
+    fn labels_do_not_overlap() {
+        let d = slope(&request(
+            &["2019", "2024", "2019", "2024", "2019", "2024"],
+            &["A", "A", "B", "B", "C", "C"],
+            &[100.0, 200.0, 100.5, 200.5, 101.0, 201.0],
+        ))
+        .unwrap();
+        let mut left: Vec<f64> = d
+            .primitives
+            .iter()
+            .filter_map(|p| match p {
+                Primitive::Text {
+                    at,
+                    anchor: Anchor::End,
+                    ..
+                } => Some(at.y),
+                _ => None,
+            })
+            .collect();
+        left.sort_by(f64::total_cmp);
+        assert_eq!(left.len(), 3);
+        assert!(
+            left.windows(2)
+                .all(|w| w[1] - w[0] >= (16.0f64 * 1.25).ceil() - 1e-9),
+            "{left:?}"
+        );
+    }
+
+    #[test]
+    fn refuses_other_than_two_periods() {
+        let r = request(
+            &["2019", "2020", "2024"],
+            &["A", "A", "A"],
+            &[1.0, 2.0, 3.0],
+        );
+        assert_eq!(
+            slope(&r).unwrap_err(),
+            "a slope chart needs exactly two periods in column `year`, but it holds 3: 2019, 2020, 2024"
+        );
+        let r = request(&["2019", "2019"], &["A", "B"], &[1.0, 2.0]);
+        assert!(slope(&r).unwrap_err().contains("holds 1: 2019"));
+        let mut r = sample();
+        r.options.remove("period");
+        assert!(slope(&r).unwrap_err().contains("needs the option `period`"));
+    }
+
+    #[test]
+    fn incomplete_items_are_left_out_and_named() {
+        let r = request(
+            &["2019", "2024", "2019"],
+            &["A", "A", "B"],
+            &[1.0, 2.0, 3.0],
+        );
+        let d = slope(&r).unwrap();
+        assert!(d
+            .description
+            .unwrap()
+            .ends_with("Left out: B (no value for 2024)."));
+        let r = request(
+            &["2019", "2019", "2024"],
+            &["A", "A", "A"],
+            &[1.0, 2.0, 3.0],
+        );
+        assert_eq!(
+            slope(&r).unwrap_err(),
+            "`A` has more than one value for 2019"
+        );
+    }
+
+    #[test]
+    fn output_is_deterministic() {
+        assert_eq!(slope(&sample()).unwrap(), slope(&sample()).unwrap());
+    }
+}

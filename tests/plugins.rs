@@ -1,0 +1,259 @@
+//! Chart-form plugins end to end: a story loads the two plugins in
+//! `plugins/` by path and draws with them; every way a plugin can fail is a
+//! located error naming the plugin (and the frame), never a crash, and the
+//! previous deck is kept.
+
+mod common;
+
+use std::fs;
+use std::path::{Path, PathBuf};
+
+use common::{crescendo, ensure_plugins, read_dir_files, root, scratch};
+
+fn lib(name: &str) -> PathBuf {
+    ensure_plugins().join(format!(
+        "{}{name}{}",
+        std::env::consts::DLL_PREFIX,
+        std::env::consts::DLL_SUFFIX
+    ))
+}
+
+const DATA: &str = "route,year,riders\nLoop,2019,100\nLoop,2024,250\nBay,2019,90\nBay,2024,95\n";
+
+/// A story in a scratch folder using the library at `plugin` with `form`.
+fn story_with(name: &str, plugin: &Path, form: &str, pin: Option<&str>) -> PathBuf {
+    let dir = scratch(name);
+    fs::write(dir.join("riders.csv"), DATA).unwrap();
+    let pin = pin.map_or(String::new(), |p| format!(" sha256 \"{p}\""));
+    fs::write(
+        dir.join("s.cresc"),
+        format!(
+            "story \"Plugins\"\nsource \"Invented\"\nconclusion \"Act.\"\n\
+             use plugin \"{}\" as p{pin}\n\
+             data riders from \"riders.csv\" {{ year: year }}\n\
+             frame \"Riders\" {{\n  draw p.{form} riders: category route, value riders, period year\n  takeaway \"Act.\"\n}}\n",
+            plugin.display()
+        ),
+    )
+    .unwrap();
+    dir
+}
+
+fn sha256(path: &Path) -> String {
+    use sha2::Digest;
+    sha2::Sha256::digest(fs::read(path).unwrap())
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect()
+}
+
+#[test]
+fn the_demo_story_draws_with_both_plugins() {
+    ensure_plugins();
+    let out = scratch("routes").join("deck");
+    let run = crescendo(
+        &root(),
+        &[
+            "build",
+            "stories/routes/routes.cresc",
+            "--out",
+            out.to_str().unwrap(),
+        ],
+    );
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    let files = read_dir_files(&out);
+    let svg = String::from_utf8(
+        files
+            .iter()
+            .find(|(n, _)| n.starts_with("02-"))
+            .unwrap()
+            .1
+            .clone(),
+    )
+    .unwrap();
+    // the slope chart's spotlighted line is drawn in the theme's accent
+    assert!(svg.contains("#B4400A"), "focus role styled by the theme");
+    assert!(svg.contains("Harbour Loop"));
+    let listing = crescendo(&root(), &["plugins", "stories/routes/routes.cresc"]);
+    let text = String::from_utf8_lossy(&listing.stdout);
+    assert!(
+        text.contains("slope: slope 0.1.0 (plugin ABI 1), forms: slope"),
+        "{text}"
+    );
+    assert!(
+        text.contains("bridge: waterfall 0.1.0 (plugin ABI 1), forms: waterfall"),
+        "{text}"
+    );
+}
+
+#[test]
+fn a_plugin_frame_matches_its_svg_snapshot() {
+    ensure_plugins();
+    let dir = story_with("snapshot", &lib("crescendo_slope"), "slope", None);
+    let run = crescendo(&dir, &["build", "s.cresc"]);
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    let svg = fs::read_to_string(dir.join("deck/01-riders.svg")).unwrap();
+    insta::assert_snapshot!("plugin_slope_frame", svg);
+}
+
+#[test]
+fn a_pinned_checksum_must_match() {
+    let path = lib("crescendo_slope");
+    let good = story_with("pin-good", &path, "slope", Some(&sha256(&path)));
+    assert!(crescendo(&good, &["check", "s.cresc"]).status.success());
+    let bad = story_with("pin-bad", &path, "slope", Some(&"0".repeat(64)));
+    let run = crescendo(&bad, &["check", "s.cresc"]);
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert_eq!(run.status.code(), Some(1), "{err}");
+    assert!(err.contains("cannot use plugin `p`"), "{err}");
+    assert!(err.contains("but the story pins 0000"), "{err}");
+    assert!(err.contains("s.cresc:4:"), "{err}");
+}
+
+/// Build a good deck, then break the plugin; the build fails with a located
+/// message naming the plugin and keeps the previous deck.
+fn fails_with(name: &str, plugin: &Path, form: &str, expected: &str, location: &str) {
+    let dir = story_with(name, &lib("crescendo_slope"), "slope", None);
+    let first = crescendo(&dir, &["build", "s.cresc"]);
+    assert!(
+        first.status.success(),
+        "{}",
+        String::from_utf8_lossy(&first.stderr)
+    );
+    let before = read_dir_files(&dir.join("deck"));
+    let broken = story_with(&format!("{name}-b"), plugin, form, None);
+    fs::copy(broken.join("s.cresc"), dir.join("s.cresc")).unwrap();
+    let run = crescendo(&dir, &["build", "s.cresc"]);
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert_eq!(run.status.code(), Some(1), "{err}");
+    assert!(
+        !err.contains("panicked at"),
+        "the host must not crash:\n{err}"
+    );
+    assert!(err.contains(expected), "expected `{expected}` in:\n{err}");
+    assert!(err.contains(location), "expected {location} in:\n{err}");
+    assert_eq!(
+        read_dir_files(&dir.join("deck")),
+        before,
+        "the previous deck changed"
+    );
+}
+
+#[test]
+fn a_plugin_built_for_another_abi_is_refused() {
+    fails_with(
+        "old-abi",
+        &lib("crescendo_fault_oldabi"),
+        "old",
+        "plugin ABI version 0",
+        "s.cresc:4:12",
+    );
+}
+
+#[test]
+fn a_library_without_the_entry_symbol_is_refused() {
+    fails_with(
+        "no-entry",
+        &lib("crescendo_fault_noentry"),
+        "x",
+        "exports no crescendo plugin entry point",
+        "s.cresc:4:12",
+    );
+}
+
+#[test]
+fn a_file_that_is_not_a_shared_library_is_refused() {
+    let fake = scratch("fake-lib").join("libfake.so");
+    fs::write(&fake, "this is not a library\n").unwrap();
+    fails_with(
+        "not-a-lib",
+        &fake,
+        "x",
+        "not a shared library",
+        "s.cresc:4:12",
+    );
+}
+
+#[test]
+fn a_missing_plugin_file_is_reported() {
+    fails_with(
+        "missing-lib",
+        Path::new("/nonexistent/libnothing.so"),
+        "x",
+        "cannot read the plugin file",
+        "s.cresc:4:12",
+    );
+}
+
+#[test]
+fn a_plugin_that_panics_is_a_located_error() {
+    fails_with(
+        "panics",
+        &lib("crescendo_fault_plugin"),
+        "panic",
+        "plugin `p`",
+        "s.cresc:7:3",
+    );
+}
+
+#[test]
+fn malformed_messages_are_refused() {
+    fails_with(
+        "garbage",
+        &lib("crescendo_fault_plugin"),
+        "garbage",
+        "not a valid message",
+        "s.cresc:7:3",
+    );
+}
+
+#[test]
+fn nan_coordinates_are_refused() {
+    fails_with(
+        "nan",
+        &lib("crescendo_fault_plugin"),
+        "nan",
+        "finite",
+        "s.cresc:7:3",
+    );
+}
+
+#[test]
+fn coordinates_outside_the_plot_are_refused() {
+    fails_with(
+        "outside",
+        &lib("crescendo_fault_plugin"),
+        "outside",
+        "drawing is invalid",
+        "s.cresc:7:3",
+    );
+}
+
+#[test]
+fn an_unknown_role_is_refused() {
+    fails_with(
+        "badrole",
+        &lib("crescendo_fault_plugin"),
+        "badrole",
+        "not a valid message",
+        "s.cresc:7:3",
+    );
+}
+
+#[test]
+fn no_plugins_refuses_every_plugin() {
+    let dir = story_with("no-plugins", &lib("crescendo_slope"), "slope", None);
+    let run = crescendo(&dir, &["build", "s.cresc", "--no-plugins"]);
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert_eq!(run.status.code(), Some(1), "{err}");
+    assert!(err.contains("plugins are refused (--no-plugins)"), "{err}");
+    assert!(!dir.join("deck").exists());
+}
