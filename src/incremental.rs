@@ -1,7 +1,7 @@
 //! Incremental frames: a frame is drawn again only when something it is
 //! drawn from changed.
 //!
-//! A frame's key is the SHA-256 of: this cache's format, the renderer's
+//! A frame's key is a hash (xxh3-128) of: this cache's format, the renderer's
 //! identity (the running executable's path, size and modification time, so
 //! a new build of crescendo never reuses pictures an older one drew), the deck-level fields of the
 //! plan (everything but the frames, the values and the claims: title,
@@ -22,15 +22,16 @@ use std::collections::BTreeSet;
 use std::path::{Path, PathBuf};
 use std::sync::{Mutex, OnceLock};
 
-use crescendo_plan::cache::Cache;
+use crescendo_plan::cache::{hash_hex, Cache};
 use crescendo_plan::{DeckPlan, FramePlan};
 use crescendo_render::RenderError;
-use sha2::{Digest, Sha256};
 
 const FORMAT: u32 = 1;
 
 struct Store {
     cache: Option<Cache>,
+    /// The digests of the plan being drawn, with the plan's address.
+    digests: Option<(usize, Digests)>,
     used: BTreeSet<String>,
     /// (frame number, drawn again)
     frames: Vec<(usize, bool)>,
@@ -97,6 +98,7 @@ pub fn configure(cache: Option<&Path>) {
     if let Ok(mut s) = STORE.lock() {
         *s = Some(Store {
             cache: cache.map(Cache::new),
+            digests: None,
             used: BTreeSet::new(),
             frames: Vec::new(),
         });
@@ -185,31 +187,63 @@ fn without_notes(f: &FramePlan) -> FramePlan {
     f
 }
 
-/// The key of a frame (see the module docs).
-fn frame_key(plan: &DeckPlan, frame: &FramePlan) -> String {
-    let mut header = plan.clone();
-    header.frames.clear();
-    header.values.clear();
-    header.claims.clear();
-    let siblings: Vec<FramePlan> = plan
+/// Digests of a plan's parts: the deck-level fields, then each frame
+/// (without its notes), in deck order.
+type Digests = (String, Vec<(usize, usize, String)>);
+
+/// The digests of `plan`, computed once per deck (not once per frame: a
+/// frame's key names its siblings, and serialising them for every frame
+/// would make a deck's keys quadratic in its length).
+fn digests(plan: &DeckPlan) -> Digests {
+    let address = plan as *const DeckPlan as usize;
+    if let Ok(s) = STORE.lock() {
+        if let Some((a, d)) = s.as_ref().and_then(|s| s.digests.as_ref()) {
+            if *a == address {
+                return d.clone();
+            }
+        }
+    }
+    let mut header = serde_json::to_value(plan).unwrap_or_default();
+    if let Some(o) = header.as_object_mut() {
+        for k in ["frames", "values", "claims"] {
+            o.remove(k);
+        }
+    }
+    let header = hash_hex(&[&serde_json::to_vec(&header).unwrap_or_default()]);
+    let frames = plan
         .frames
         .iter()
-        .filter(|f| f.sequence == frame.sequence && f.number != frame.number)
-        .map(without_notes)
+        .map(|f| {
+            let bytes = serde_json::to_vec(&without_notes(f)).unwrap_or_default();
+            (f.number, f.sequence, hash_hex(&[&bytes]))
+        })
         .collect();
-    let mut h = Sha256::new();
-    h.update(FORMAT.to_le_bytes());
-    h.update(renderer_identity().as_bytes());
-    for part in [
-        serde_json::to_vec(&header),
-        serde_json::to_vec(&without_notes(frame)),
-        serde_json::to_vec(&siblings),
-    ] {
-        let bytes = part.unwrap_or_default();
-        h.update((bytes.len() as u64).to_le_bytes());
-        h.update(&bytes);
+    let d = (header, frames);
+    if let Ok(mut s) = STORE.lock() {
+        if let Some(s) = s.as_mut() {
+            s.digests = Some((address, d.clone()));
+        }
     }
-    h.finalize().iter().map(|b| format!("{b:02x}")).collect()
+    d
+}
+
+/// The key of a frame (see the module docs).
+fn frame_key(plan: &DeckPlan, frame: &FramePlan) -> String {
+    let (header, frames) = digests(plan);
+    let own = serde_json::to_vec(&without_notes(frame)).unwrap_or_default();
+    let mut parts: Vec<Vec<u8>> = vec![
+        FORMAT.to_le_bytes().to_vec(),
+        renderer_identity().as_bytes().to_vec(),
+        header.into_bytes(),
+        hash_hex(&[&own]).into_bytes(),
+    ];
+    for (number, sequence, digest) in frames {
+        if sequence == frame.sequence && number != frame.number {
+            parts.push(digest.into_bytes());
+        }
+    }
+    let refs: Vec<&[u8]> = parts.iter().map(Vec::as_slice).collect();
+    hash_hex(&refs)
 }
 
 /// Draw a frame, or reuse its picture from the cache.

@@ -452,7 +452,7 @@ fn build(
             ExitCode::SUCCESS
         }
         Err(e) => {
-            eprint!("{}", render(&[e.clone()], color));
+            eprint!("{}", render(std::slice::from_ref(&e), color));
             eprintln!("the previous deck in {} was left as it was", out.display());
             // a frame that cannot be drawn (a failing plugin) is the story's
             // problem; anything else is the output folder's

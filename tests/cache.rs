@@ -369,6 +369,11 @@ fn serve_shows_the_deck_on_loopback_and_signals_rebuilds() {
     }
     fs::write(dir.join("story.cresc"), STORY.replace("Mean fare", "Fares")).unwrap();
     w.wait_for("built 4 frames");
-    assert_eq!(get(&addr, "/__version").1, "2");
+    // the counter moves just after the build prints its summary
+    let deadline = Instant::now() + Duration::from_secs(30);
+    while get(&addr, "/__version").1 != "2" {
+        assert!(Instant::now() < deadline, "the version never moved to 2");
+        std::thread::sleep(Duration::from_millis(50));
+    }
     let _: PathBuf = dir;
 }

@@ -336,7 +336,10 @@ fn io_error(spec: &CsvSpec, e: &io::Error) -> LoadError {
 const BOM: &[u8] = b"\xEF\xBB\xBF";
 
 /// Read the first bytes and drop a UTF-8 byte order mark if present.
-fn skip_bom(mut file: File) -> io::Result<(io::Chain<io::Cursor<Vec<u8>>, File>, u64)> {
+/// A file with its byte order mark (if any) removed.
+type WithoutBom = io::Chain<io::Cursor<Vec<u8>>, File>;
+
+fn skip_bom(mut file: File) -> io::Result<(WithoutBom, u64)> {
     let mut head = Vec::with_capacity(3);
     let mut buf = [0u8; 3];
     while head.len() < 3 {

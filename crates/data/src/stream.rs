@@ -110,13 +110,13 @@ pub enum ScanFailure {
     /// [`crate::load_csv_columns`] instead, which reports or resolves it.
     Fallback,
     /// The file could not be read.
-    Io(LoadError),
+    Io(Box<LoadError>),
 }
 
 /// Scan the file once and evaluate every view's streamable prefix.
 pub fn scan(input: &ScanInput<'_>, chunks: &Chunks) -> Result<ScanOutput, ScanFailure> {
     let len = std::fs::metadata(&input.spec.path)
-        .map_err(|e| ScanFailure::Io(io_failure(input.spec, &e)))?
+        .map_err(|e| ScanFailure::Io(Box::new(io_failure(input.spec, &e))))?
         .len();
     let (offsets, threads) = match chunks {
         Chunks::Auto => {
@@ -176,8 +176,8 @@ fn chunk_starts(
 ) -> Result<Vec<u64>, ScanFailure> {
     offsets.sort_unstable();
     let mut starts = vec![input.data_start];
-    let mut file =
-        File::open(&input.spec.path).map_err(|e| ScanFailure::Io(io_failure(input.spec, &e)))?;
+    let mut file = File::open(&input.spec.path)
+        .map_err(|e| ScanFailure::Io(Box::new(io_failure(input.spec, &e))))?;
     let mut buf = vec![0u8; 64 * 1024];
     for o in offsets {
         let from = o.max(input.data_start + 1) - 1;
@@ -186,12 +186,12 @@ fn chunk_starts(
             continue;
         }
         file.seek(SeekFrom::Start(from))
-            .map_err(|e| ScanFailure::Io(io_failure(input.spec, &e)))?;
+            .map_err(|e| ScanFailure::Io(Box::new(io_failure(input.spec, &e))))?;
         let mut at = from;
         let found = loop {
             let n = file
                 .read(&mut buf)
-                .map_err(|e| ScanFailure::Io(io_failure(input.spec, &e)))?;
+                .map_err(|e| ScanFailure::Io(Box::new(io_failure(input.spec, &e))))?;
             if n == 0 {
                 break None;
             }
@@ -350,16 +350,8 @@ impl Acc {
             (Acc::Median(a), Acc::Median(b)) => a.extend(b),
             (Acc::Min(a), Acc::Min(Some(b))) => extreme(a, b.cell(), std::cmp::Ordering::Less),
             (Acc::Max(a), Acc::Max(Some(b))) => extreme(a, b.cell(), std::cmp::Ordering::Greater),
-            (Acc::First(a), Acc::First(b)) => {
-                if a.is_none() {
-                    *a = b;
-                }
-            }
-            (Acc::Last(a), Acc::Last(b)) => {
-                if b.is_some() {
-                    *a = b;
-                }
-            }
+            (Acc::First(a), Acc::First(b)) if a.is_none() => *a = b,
+            (Acc::Last(a), Acc::Last(b)) if b.is_some() => *a = b,
             _ => {}
         }
     }

@@ -85,7 +85,7 @@ fn scan_all(
             parse: &all,
             keep_values: &all,
             data_start: p.data_start,
-            views: views,
+            views,
         },
         chunks,
     )

@@ -384,7 +384,7 @@ impl Tables {
                 }
                 Err(ScanFailure::Fallback) => return None,
                 Err(ScanFailure::Io(e)) => {
-                    return Some(report_load::<Table>(src, decl, Err(e), diags));
+                    return Some(report_load::<Table>(src, decl, Err(*e), diags));
                 }
             }
         }
