@@ -60,7 +60,7 @@ fn absolute(p: &Path) -> PathBuf {
 }
 
 /// The story, its data files (or their `--data` replacements), its style
-/// file and the plugins folder beside it.
+/// file, the plugin libraries it names and the plugins folder beside it.
 fn targets(story: &Path, replacements: &[(String, PathBuf)]) -> Targets {
     let mut t = Targets::default();
     t.files.insert(absolute(story));
@@ -83,8 +83,12 @@ fn targets(story: &Path, replacements: &[(String, PathBuf)]) -> Targets {
                     .map_or_else(|| dir.join(&d.file.value), |(_, p)| p.clone());
                 t.files.insert(absolute(&file));
             }
-            Item::Style(s) => {
+                        Item::Style(s) => {
                 t.files.insert(absolute(&dir.join(&s.text.value)));
+            }
+            // the plugin libraries the story names, wherever they are
+            Item::Plugin(p) => {
+                t.files.insert(absolute(&dir.join(&p.path.value)));
             }
             _ => {}
         }
