@@ -83,7 +83,7 @@ fn targets(story: &Path, replacements: &[(String, PathBuf)]) -> Targets {
                     .map_or_else(|| dir.join(&d.file.value), |(_, p)| p.clone());
                 t.files.insert(absolute(&file));
             }
-                        Item::Style(s) => {
+            Item::Style(s) => {
                 t.files.insert(absolute(&dir.join(&s.text.value)));
             }
             // the plugin libraries the story names, wherever they are

@@ -54,6 +54,8 @@ pub struct Anchors {
     pub conclusion: Option<Span>,
     pub source: Option<Span>,
     pub accent: Option<Span>,
+    /// The `style "file"` statement.
+    pub style: Option<Span>,
     /// Story-wide allowances.
     pub allows: Vec<Allowance>,
     /// One entry per planned frame, in order.

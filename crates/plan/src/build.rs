@@ -513,6 +513,7 @@ impl<'a> Planner<'a> {
                     self.plugins = loaded;
                 }
                 Item::Style(t) => {
+                    anchors.style = Some(t.text.span.clone());
                     let text = t.text.clone();
                     self.set_once(&mut h.style, text, &t.span, "house style (`style`)")
                 }

@@ -8,7 +8,7 @@
 //! ```toml
 //! fonts = ["DejaVu Sans", "Verdana", "sans-serif"]   # the SVG's font stack
 //!
-//! [sizes]            # 14 px at least, whole px
+//! [sizes]            # whole px, 10 to 72 (the lint warns below 14)
 //! headline = 34
 //! takeaway = 20
 //! labels = 16
@@ -41,9 +41,10 @@ use crescendo_lang::ast::Str;
 use serde::{Deserialize, Serialize};
 use toml::Spanned;
 
-/// The smallest text size a style may set: the source note's default size,
-/// the smallest text crescendo draws (legible when projected; common practice).
-pub const MIN_TEXT_SIZE: f64 = 14.0;
+/// The smallest text size a style may set. Below 14 px text is hard to read
+/// when projected; the lint's `text-small` rule says so (a print deck may
+/// allow it with a reason).
+pub const MIN_TEXT_SIZE: f64 = 10.0;
 /// The largest text size a style may set.
 pub const MAX_TEXT_SIZE: f64 = 72.0;
 
@@ -191,12 +192,12 @@ impl Checker {
                 &self.src,
                 span,
                 if px < MIN_TEXT_SIZE {
-                    "smaller than 14 px"
+                    "too small to read"
                 } else {
                     "not allowed here"
                 },
             )
-            .note("text below 14 px is hard to read when projected, so crescendo never draws it");
+            .note("text below 14 px is hard to read when projected; the lint warns below that");
             self.diags.push(d);
             return None;
         }
@@ -445,10 +446,12 @@ mod tests {
     }
 
     #[test]
-    fn sizes_below_14_px_are_refused() {
-        let d = check("[sizes]\nsource = 12\n").unwrap_err();
+    fn sizes_below_10_px_are_refused() {
+        // 10 to 13 px are accepted here and flagged by the lint (`text-small`)
+        let d = check("[sizes]\nsource = 9\n").unwrap_err();
         assert_eq!(d[0].code, "style-size");
         assert_eq!(d[0].location(), Some(("house.toml".into(), 2, 10)));
+        assert!(check("[sizes]\nsource = 12\n").is_ok());
         assert!(check("[sizes]\nsource = 14\n").is_ok());
         assert!(check("[sizes]\nlabels = 16.5\n").is_err());
         assert!(check("[margins]\nsides = 2\n").is_err());

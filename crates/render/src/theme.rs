@@ -230,7 +230,9 @@ pub fn effective(deck: &crescendo_plan::DeckPlan) -> Result<Theme, RenderError> 
             t.font_family = Cow::Owned(f.clone());
         }
         let size = |slot: &mut f64, value: Option<f64>| {
-            if let Some(v) = value.filter(|v| v.is_finite() && *v >= crate::layout::SOURCE_SIZE) {
+            if let Some(v) =
+                value.filter(|v| v.is_finite() && *v >= crescendo_plan::style::MIN_TEXT_SIZE)
+            {
                 *slot = v;
             }
         };
@@ -431,9 +433,9 @@ mod tests {
     fn every_size_a_style_may_set_is_written_exactly() {
         // plotters writes `font-size` as the requested size / 1.24, which
         // misses a few whole sizes (15 px comes out as 15.000000000000002);
-        // restyle_svg writes every size from 14 to 72 px as the style says.
+        // restyle_svg writes every size from 10 to 72 px as the style says.
         let mut missed = 0;
-        for px in 14..=72 {
+        for px in 10..=72 {
             let size = f64::from(px);
             let written = format!("{}", crate::canvas::requested_size(size) / 1.24);
             missed += usize::from(written != px.to_string());

@@ -17,11 +17,13 @@ mod measure_unnamed;
 mod no_conclusion;
 mod panels_own_scales;
 mod pie_crowded;
+mod shades_crowded;
 mod small_counts;
 mod source_missing;
 mod spotlight_crowd;
 mod stack_middle;
 mod text_contrast;
+mod text_small;
 mod ticks_crowded;
 mod trailing_zeros;
 mod util;
@@ -45,11 +47,13 @@ pub static RULES: &[&Rule] = &[
     &trailing_zeros::RULE,
     &axes_shift::RULE,
     &headline_cut::RULE,
+    &text_small::RULE,
     &text_contrast::RULE,
     &marks_contrast::RULE,
     &focus_confusable::RULE,
     &spotlight_crowd::RULE,
     &pie_crowded::RULE,
+    &shades_crowded::RULE,
     &stack_middle::RULE,
     &panels_own_scales::RULE,
     &frame_empty::RULE,

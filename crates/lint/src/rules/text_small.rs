@@ -1,0 +1,53 @@
+//! `text-small`: text too small to read when projected.
+
+use crescendo_diag::Severity;
+
+use crate::{Doc, Finding, Input, Rule};
+
+/// Common practice for projected slides: nothing under 14 px on a 720 px
+/// high frame (about a 24 pt minimum on a 1280 × 720 slide, from memory of
+/// presentation guidance).
+const MIN: f64 = 14.0;
+
+pub static RULE: Rule = Rule {
+    name: "text-small",
+    severity: Severity::Warning,
+    summary: "text is too small to read when the deck is projected",
+    doc: Doc {
+        flags: "A house style that sets a text size (headline, takeaway, labels or the\n\
+                source note) below 14 px on the 1280 × 720 frame.",
+        why: "A projected frame is read from across a room: small labels, tick values and\n\
+              source notes become unreadable at the back, and the audience stops reading\n\
+              the chart to squint at it (common practice: keep every text large enough for\n\
+              the last row).",
+        example: "[sizes]\nlabels = 12   # in house.toml",
+        instead: "Raise the size to 14 px or more; for a deck meant only for print, allow the\n\
+                  rule with that reason.",
+    },
+    check,
+};
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    let t = input.theme;
+    for (what, size) in [
+        ("headline", t.headline_size),
+        ("takeaway", t.takeaway_size),
+        ("label", t.label_size),
+        ("source note", t.source_size),
+    ] {
+        if size < MIN {
+            out.push(Finding {
+                frame: None,
+                span: input
+                    .anchors
+                    .style
+                    .clone()
+                    .or_else(|| input.anchors.title.clone())
+                    .unwrap_or(0..0),
+                label: format!("{what} text at {size} px"),
+                message: format!("{what} text at {size} px is too small to read when projected"),
+                fix: "use 14 px or more, or allow this for a print-only deck".into(),
+            });
+        }
+    }
+}
