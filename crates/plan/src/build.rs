@@ -1154,6 +1154,34 @@ impl<'a> Planner<'a> {
         Some(out)
     }
 
+    /// A chart's measure must be a number column; otherwise report it, with
+    /// the data row that made the column text when there is one.
+    fn number_column(
+        &mut self,
+        view: &str,
+        schema: &resolve::Schema,
+        col: (usize, ColType),
+        span: ast::Span,
+        what: &str,
+    ) -> Option<()> {
+        if col.1 == ColType::Number {
+            return Some(());
+        }
+        let why = self.tables.why_text(view, &schema[col.0].0);
+        let d = self.error(
+            "chart-type",
+            format!(
+                "{what} must be a number column, but `{}` is {}",
+                schema[col.0].0,
+                col.1.name()
+            ),
+            span,
+            "not a number",
+        );
+        d.notes.extend(why);
+        None
+    }
+
     /// Resolve `spotlight "Row" in column, ...` against a table.
     fn table_cells(
         &mut self,
@@ -1433,22 +1461,8 @@ impl<'a> Planner<'a> {
                         return None;
                     }
                 };
-                if y.1 != ColType::Number {
-                    let span = given(OptName::Y).map_or(c.span.clone(), |i| i.span.clone());
-                    let why = self.tables.why_text(&view, &schema[y.0].0);
-                    let d = self.error(
-                        "chart-type",
-                        format!(
-                            "the measure must be a number column, but `{}` is {}",
-                            schema[y.0].0,
-                            y.1.name()
-                        ),
-                        span,
-                        "not a number",
-                    );
-                    d.notes.extend(why);
-                    return None;
-                }
+                let span = given(OptName::Y).map_or(c.span.clone(), |i| i.span.clone());
+                self.number_column(&view, &schema, y, span, "the measure")?;
                 let series = match given(OptName::Series).or(compare_key.filter(|k| has(k))) {
                     Some(id) => Some(lookup(self, id)?.0),
                     None => None,
@@ -1571,22 +1585,8 @@ impl<'a> Planner<'a> {
                         return None;
                     }
                 };
-                if val.1 != ColType::Number {
-                    let span = given(OptName::Value).map_or(c.span.clone(), |i| i.span.clone());
-                    let why = self.tables.why_text(&view, &schema[val.0].0);
-                    let d = self.error(
-                        "chart-type",
-                        format!(
-                            "bar values must be a number column, but `{}` is {}",
-                            schema[val.0].0,
-                            val.1.name()
-                        ),
-                        span,
-                        "not a number",
-                    );
-                    d.notes.extend(why);
-                    return None;
-                }
+                let span = given(OptName::Value).map_or(c.span.clone(), |i| i.span.clone());
+                self.number_column(&view, &schema, val, span, "bar values")?;
                 let ordinal = cat.1.is_time() || cat.1 == ColType::Number;
                 Some(ChartSpec {
                     form: c.form,
