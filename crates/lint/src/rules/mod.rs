@@ -6,6 +6,7 @@ mod bars_cramped_labels;
 mod bars_crowded;
 mod bars_off_zero;
 mod bars_unsorted;
+mod colour_key_text;
 mod focus_confusable;
 mod frame_empty;
 mod headline_cut;
@@ -52,6 +53,7 @@ pub static RULES: &[&Rule] = &[
     &marks_contrast::RULE,
     &focus_confusable::RULE,
     &spotlight_crowd::RULE,
+    &colour_key_text::RULE,
     &pie_crowded::RULE,
     &shades_crowded::RULE,
     &stack_middle::RULE,

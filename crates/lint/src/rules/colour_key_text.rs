@@ -1,0 +1,91 @@
+//! `colour-key-text`: words that point at marks by their colour.
+
+use crescendo_diag::Severity;
+
+use super::util::frames;
+use crate::{Doc, Finding, Input, Rule};
+
+const COLOURS: &[&str] = &[
+    "red", "orange", "amber", "yellow", "green", "teal", "blue", "purple", "violet", "pink",
+    "brown", "grey", "gray", "black",
+];
+const MARKS: &[&str] = &[
+    "line", "lines", "bar", "bars", "dot", "dots", "slice", "slices", "segment", "segments",
+    "series", "area", "panel",
+];
+
+/// The first "COLOUR MARK" or "in COLOUR" phrase of a text, if any.
+fn colour_phrase(text: &str) -> Option<String> {
+    let words: Vec<String> = text
+        .split(|c: char| !c.is_alphanumeric())
+        .filter(|w| !w.is_empty())
+        .map(str::to_lowercase)
+        .collect();
+    for w in words.windows(2) {
+        let (a, b) = (w[0].as_str(), w[1].as_str());
+        if (COLOURS.contains(&a) && MARKS.contains(&b)) || (a == "in" && COLOURS.contains(&b)) {
+            return Some(format!("{a} {b}"));
+        }
+    }
+    None
+}
+
+pub static RULE: Rule = Rule {
+    name: "colour-key-text",
+    severity: Severity::Warning,
+    summary: "a text tells the audience which colour means what",
+    doc: Doc {
+        flags: "A headline, takeaway or note that identifies data by colour, such as \"the\n\
+                orange line\" or \"shown in blue\": a colour key written into the words.",
+        why: "A colour key makes the audience look back and forth between the key and the\n\
+              marks; labels beside the data remove that search (common practice: direct\n\
+              labels instead of legends). Colour words also break: the accent changes with\n\
+              the theme (light, dark and print themes differ) and with a house style, and\n\
+              readers with a colour-vision deficiency may not see the colour named.",
+        example: "takeaway \"The orange line pulled away after April\"",
+        instead: "Name the series instead (\"Westbrook pulled away after April\"); its direct\n\
+                  label and the spotlight already tie the words to the line.",
+    },
+    check,
+};
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    for (i, f, a) in frames(input) {
+        let texts = [
+            (Some(f.headline.as_str()), Some(a.headline.clone())),
+            (f.takeaway.as_deref(), a.takeaway.clone()),
+            (f.notes.as_deref(), a.notes.clone()),
+        ];
+        for (text, span) in texts {
+            let (Some(text), Some(span)) = (text, span) else {
+                continue;
+            };
+            if let Some(phrase) = colour_phrase(text) {
+                out.push(Finding {
+                    frame: Some(i),
+                    span,
+                    label: format!("\"{phrase}\""),
+                    message: format!("\"{phrase}\" tells the audience which colour means what"),
+                    fix: "name the series or category instead of its colour".into(),
+                });
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn colour_phrases() {
+        assert_eq!(
+            super::colour_phrase("The orange line pulled away").as_deref(),
+            Some("orange line")
+        );
+        assert_eq!(
+            super::colour_phrase("shown in Blue.").as_deref(),
+            Some("in blue")
+        );
+        assert_eq!(super::colour_phrase("Greyhound buses rose"), None);
+        assert_eq!(super::colour_phrase("Green Park leads"), None);
+    }
+}
