@@ -117,6 +117,46 @@ fn the_lint_checks_the_colours_a_style_sets() {
 }
 
 #[test]
+fn a_house_style_sets_the_grid_grey_for_frames_with_gridlines() {
+    let dir = scratch("style-grid");
+    story_with(&dir, "[greys]\ngrid = \"#e2e2de\"\n");
+    let svg_path = dir.join("deck/01-team-a-has-the-most-open-tickets.svg");
+    // without `gridlines` the grid grey is never drawn
+    let o = crescendo(&dir, &["build", "s.cresc"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(!fs::read_to_string(&svg_path).unwrap().contains("#E2E2DE"));
+    // with it, light lines in the style's grid grey, and the lint is quiet
+    fs::write(
+        dir.join("s.cresc"),
+        STORY.replace("  spotlight", "  gridlines\n  spotlight"),
+    )
+    .unwrap();
+    let o = crescendo(&dir, &["build", "s.cresc"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(!stderr(&o).contains("grid-heavy"), "{}", stderr(&o));
+    let svg = fs::read_to_string(&svg_path).unwrap();
+    assert!(
+        svg.contains("stroke=\"#E2E2DE\" stroke-width=\"1\""),
+        "{svg}"
+    );
+    let plan = crescendo(&dir, &["plan", "s.cresc"]);
+    let plan: serde_json::Value = serde_json::from_slice(&plan.stdout).unwrap();
+    assert_eq!(plan["style"]["grid"], "#E2E2DE");
+    assert_eq!(plan["frames"][0]["chart"]["value"]["grid"], true);
+    // a grid as dark as the data is flagged
+    story_with(&dir, "[greys]\ngrid = \"#777777\"\n");
+    fs::write(
+        dir.join("s.cresc"),
+        STORY.replace("  spotlight", "  gridlines\n  spotlight"),
+    )
+    .unwrap();
+    let o = crescendo(&dir, &["check", "s.cresc"]);
+    let e = stderr(&o);
+    assert!(e.contains("warning[grid-heavy]"), "{e}");
+    assert!(e.contains("s.cresc:9:3"), "{e}");
+}
+
+#[test]
 fn the_demo_house_style_is_valid() {
     let text = fs::read_to_string(root().join("stories/volunteers/house.toml")).unwrap();
     let src = crescendo_diag::Source::file("house.toml", text);

@@ -462,6 +462,11 @@ pub enum FrameStmt {
     LabelEnds {
         span: Span,
     },
+    /// `gridlines` (`on: true`) or `gridlines off` (`on: false`).
+    Gridlines {
+        on: bool,
+        span: Span,
+    },
     Draw(DrawStmt),
 }
 

@@ -1197,6 +1197,10 @@ fn convert_frame_stmt(pair: Pair<Rule>, base: usize) -> Res<FrameStmt> {
             FrameStmt::Reference { value, text, span }
         }
         Rule::label_ends_stmt => FrameStmt::LabelEnds { span },
+        Rule::gridlines_stmt => FrameStmt::Gridlines {
+            on: !inner.iter().any(|p| p.as_rule() == Rule::kw_off),
+            span,
+        },
         Rule::range_stmt => {
             let axis = if inner[0].as_str() == "x" {
                 AxisName::X
@@ -1398,6 +1402,57 @@ frame "Bars" { bars monthly: category route, value riders, ordered }
             "{rendered}"
         );
         assert!(rendered.contains("did you mean `spotlight`?"), "{rendered}");
+    }
+
+    #[test]
+    fn gridlines_turn_on_and_off() {
+        let text = "frame \"a\" {\n  gridlines\n}\nframe \"b\" { gridlines off; gridlines }\n";
+        let (ast, diags) = parse_str(text);
+        assert!(diags.is_empty(), "{diags:?}");
+        let Item::Frame(a) = &ast.items[0] else {
+            panic!()
+        };
+        let FrameStmt::Gridlines { on, span } = &a.stmts[0] else {
+            panic!("{:?}", a.stmts)
+        };
+        assert!(*on);
+        assert_eq!(&text[span.clone()], "gridlines");
+        let Item::Frame(b) = &ast.items[1] else {
+            panic!()
+        };
+        let ons: Vec<bool> = b
+            .stmts
+            .iter()
+            .map(|s| match s {
+                FrameStmt::Gridlines { on, .. } => *on,
+                other => panic!("{other:?}"),
+            })
+            .collect();
+        assert_eq!(ons, [false, true]);
+        let FrameStmt::Gridlines { span, .. } = &b.stmts[0] else {
+            panic!()
+        };
+        assert_eq!(&text[span.clone()], "gridlines off");
+    }
+
+    #[test]
+    fn gridlines_take_only_off() {
+        // anything after `gridlines` but `off` is located on its line
+        let (_, diags) = parse_str("frame \"a\" {\n  gridlines on\n}\n");
+        assert_eq!(diags.len(), 1, "{diags:#?}");
+        assert_eq!(diags[0].location().map(|l| l.1), Some(2));
+        // `gridlinesoff` is no keyword, and a misspelling gets a suggestion
+        let (_, diags) = parse_str("frame \"a\" { gridline }\n");
+        assert_eq!(diags.len(), 1, "{diags:#?}");
+        assert_eq!(diags[0].code, "unknown-keyword");
+        assert_eq!(
+            diags[0].help.as_deref(),
+            Some("did you mean `gridlines`?"),
+            "{diags:#?}"
+        );
+        // `off` is still a name elsewhere
+        let (_, diags) = parse_str("view off = d\n");
+        assert!(diags.is_empty(), "{diags:?}");
     }
 
     #[test]

@@ -37,6 +37,8 @@ pub struct FrameAnchors {
     pub range: Option<Span>,
     /// The `split` statement in effect.
     pub split: Option<Span>,
+    /// The `gridlines` statement in effect (none after `gridlines off`).
+    pub gridlines: Option<Span>,
     pub takeaway: Option<Span>,
     pub notes: Option<Span>,
     /// Allowances written inside this frame.

@@ -1033,6 +1033,7 @@ impl<'a> Planner<'a> {
                             self.reference(st, *value, text, span)?
                         }
                         FrameStmt::LabelEnds { span } => self.label_ends(st, span)?,
+                        FrameStmt::Gridlines { on, span } => self.gridlines(st, *on, span)?,
                         FrameStmt::Reveal { order, span } => {
                             if reveal.replace((order.clone(), span.clone())).is_some() {
                                 self.error(
@@ -1754,6 +1755,7 @@ impl<'a> Planner<'a> {
                                 label: c.clone(),
                             })
                             .collect(),
+                        grid: false,
                     },
                     k => scale::time_axis(k, lo, hi, None),
                 };
@@ -2534,6 +2536,80 @@ mod tests {
         assert_eq!(errs[0].code, "unknown-column");
         assert_eq!(errs[0].help.as_deref(), Some("did you mean `shop`?"));
         assert_eq!(errs[0].location(), Some(("t.cresc".into(), 3, 9)));
+    }
+
+    /// The `grid` flag of each frame's measure axis (of every panel's, for
+    /// small multiples).
+    fn grids(plan: &DeckPlan) -> Vec<Vec<bool>> {
+        fn measure(chart: &Chart) -> Vec<bool> {
+            match chart {
+                Chart::Line(l) => vec![l.y.grid],
+                Chart::Bars(b) => vec![b.value.grid],
+                Chart::Parts(p) => vec![p.value.grid],
+                Chart::Dots(d) => vec![d.value.grid],
+                Chart::Scatter(s) => vec![s.y.grid],
+                Chart::Panels(p) => p.panels.iter().flat_map(|x| measure(&x.chart)).collect(),
+                _ => Vec::new(),
+            }
+        }
+        plan.frames.iter().map(|f| measure(&f.chart)).collect()
+    }
+
+    #[test]
+    fn gridlines_persist_through_the_sequence_until_turned_off() {
+        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                     view totals = sales\n  | by shop: sales = sum(sales)\n\
+                     frame \"a\" {\n  line sales: x month, y sales, series shop\n}\n\
+                     frame \"b\" {\n  gridlines\n}\n\
+                     frame \"c\" {\n  spotlight \"North\"\n}\n\
+                     frame \"d\" {\n  split shop\n}\n\
+                     frame \"e\" {\n  gridlines off\n}\n\
+                     frame \"f\" {\n  bars totals: category shop, value sales\n  gridlines\n}\n\
+                     frame \"g\" {\n  dots totals: category shop, value sales\n}\n";
+        let planned = plan_with("gridlines", story, SALES).unwrap_or_else(|d| panic!("{d:#?}"));
+        assert_eq!(
+            grids(&planned.plan),
+            [
+                vec![false],
+                vec![true],
+                vec![true],
+                vec![true, true],
+                vec![false, false],
+                vec![true],
+                vec![false],
+            ]
+        );
+        // the lint finds the statement in effect
+        let spans: Vec<Option<usize>> = planned
+            .anchors
+            .frames
+            .iter()
+            .map(|a| a.gridlines.as_ref().map(|s| s.start))
+            .collect();
+        let at = story.find("gridlines\n").unwrap();
+        assert_eq!(spans[1..4], [Some(at), Some(at), Some(at)]);
+        assert_eq!(spans[4], None);
+        assert!(spans[5].is_some() && spans[6].is_none());
+        // without gridlines the plan says nothing about them
+        let json = serde_json::to_string(&planned.plan.frames[0]).unwrap();
+        assert!(!json.contains("grid"), "{json}");
+        let json = serde_json::to_string(&planned.plan.frames[1]).unwrap();
+        assert!(json.contains("\"grid\":true"), "{json}");
+    }
+
+    #[test]
+    fn gridlines_need_a_measure_axis() {
+        let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                     view totals = sales\n  | by shop: sales = sum(sales)\n\
+                     frame \"a\" {\n  table totals\n  gridlines\n}\n\
+                     frame \"b\" {\n  pie totals: category shop, value sales\n  gridlines off\n}\n";
+        let errs = errors(plan_with("gridlines-table", story, SALES));
+        let codes: Vec<&str> = errs.iter().map(|d| d.code).collect();
+        assert_eq!(codes, ["gridlines", "gridlines"], "{errs:#?}");
+        assert_eq!(errs[0].location(), Some(("t.cresc".into(), 7, 3)));
+        assert!(errs[0].message.contains("a table"), "{}", errs[0].message);
+        assert!(errs[1].message.contains("a pie"), "{}", errs[1].message);
+        assert!(errs[0].help.is_some());
     }
 
     #[test]

@@ -150,6 +150,10 @@ pub struct Axis {
     pub scale: ScaleKind,
     pub domain: [f64; 2],
     pub ticks: Vec<Tick>,
+    /// `gridlines`: light lines across the plot at this axis's ticks (only
+    /// ever set on the measure's axis; off by default).
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub grid: bool,
 }
 
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]

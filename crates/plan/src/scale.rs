@@ -388,6 +388,7 @@ pub fn linear_axis(dmin: f64, dmax: f64, include_zero: bool, title: Option<Strin
         scale: ScaleKind::Linear,
         domain,
         ticks,
+        grid: false,
     }
 }
 
@@ -430,6 +431,7 @@ pub fn time_axis(scale: ScaleKind, lo: f64, hi: f64, title: Option<String>) -> A
         scale,
         domain: nonzero_domain(lo, hi),
         ticks,
+        grid: false,
     }
 }
 

@@ -1,6 +1,6 @@
 //! Build-up steps beyond show, hide and spotlight: small multiples
 //! (`split`), annotations (`callout`, `band`, `reference`, `label ends`),
-//! and the frames a `reveal` expands into.
+//! light gridlines (`gridlines`), and the frames a `reveal` expands into.
 
 use crescendo_data::{format, time};
 use crescendo_lang::ast::{Position, SplitStmt, Str};
@@ -8,6 +8,27 @@ use crescendo_lang::ast::{Position, SplitStmt, Str};
 use crate::build::{Planner, SeqState};
 use crate::model::*;
 use crate::scale;
+
+/// Set `grid` on the measure's axis of a chart (of every panel's chart);
+/// `false` when the chart has no measure's axis.
+fn set_grid(chart: &mut Chart, on: bool) -> bool {
+    match chart {
+        Chart::Line(l) => l.y.grid = on,
+        Chart::Bars(b) => b.value.grid = on,
+        Chart::Parts(p) => p.value.grid = on,
+        Chart::Dots(d) => d.value.grid = on,
+        Chart::Scatter(s) => s.y.grid = on,
+        Chart::Panels(p) => {
+            let mut all = !p.panels.is_empty();
+            for panel in &mut p.panels {
+                all &= set_grid(&mut panel.chart, on);
+            }
+            return all;
+        }
+        Chart::Figures(_) | Chart::Table(_) | Chart::Pie(_) | Chart::Plugin(_) => return false,
+    }
+    true
+}
 
 /// What a frame statement needs from a line chart.
 fn line_of<'s>(
@@ -243,6 +264,41 @@ impl Planner<'_> {
         Some(())
     }
 
+    /// `gridlines` or `gridlines off`: light lines at the ticks of the
+    /// measure's axis (`y` of a line or a scatter, `value` of bars, parts and
+    /// dots, the inner charts' measure in panels). Kept in the sequence's
+    /// chart, so they persist until `gridlines off` or a new chart.
+    pub(crate) fn gridlines(
+        &mut self,
+        st: &mut SeqState,
+        on: bool,
+        span: &std::ops::Range<usize>,
+    ) -> Option<()> {
+        if !set_grid(&mut st.chart, on) {
+            let form = match &st.chart {
+                Chart::Figures(_) => "figures",
+                Chart::Table(_) => "a table",
+                Chart::Pie(_) => "a pie",
+                Chart::Plugin(_) => "a plugin's chart",
+                _ => "this chart",
+            };
+            self.error(
+                "gridlines",
+                format!("`gridlines` needs a measure's axis, and {form} has none"),
+                span.clone(),
+                "no axis to draw gridlines along",
+            )
+            .help = Some(
+                "use gridlines with line, bars, dots or scatter charts (or their panels), \
+                 or remove the statement"
+                    .into(),
+            );
+            return None;
+        }
+        st.anchors.gridlines = on.then(|| span.clone());
+        Some(())
+    }
+
     /// `split KEY ...`: turn the current chart into small multiples, one
     /// panel per series (line charts) or per part (stacked or grouped bars),
     /// on the chart's own, common scale.
@@ -404,14 +460,18 @@ impl Planner<'_> {
                         let lo = ys.iter().copied().fold(f64::INFINITY, f64::min);
                         let hi = ys.iter().copied().fold(f64::NEG_INFINITY, f64::max);
                         if lo.is_finite() {
+                            let grid = l.y.grid;
                             l.y = scale::linear_axis(lo, hi, false, l.y.title.clone());
+                            l.y.grid = grid;
                         }
                     }
                     Chart::Bars(b) => {
                         let vs: Vec<f64> = b.bars.iter().filter_map(|b| b.value).collect();
                         let lo = vs.iter().copied().fold(0.0, f64::min);
                         let hi = vs.iter().copied().fold(0.0, f64::max);
+                        let grid = b.value.grid;
                         b.value = scale::linear_axis(lo, hi, true, b.value.title.clone());
+                        b.value.grid = grid;
                     }
                     _ => {}
                 }

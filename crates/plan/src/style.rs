@@ -25,6 +25,7 @@
 //! context = "#8A8A8A"         # context lines and bars
 //! context-labels = "#6A6A6A"  # their direct labels
 //! baseline = "#C4C4C4"
+//! grid = "#ECECEC"            # gridlines, when a frame asks for them
 //!
 //! [margins]
 //! sides = 64
@@ -82,6 +83,9 @@ pub struct HouseStyle {
     pub context_labels: Option<String>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub baseline: Option<String>,
+    /// Gridlines (`gridlines`), `#RRGGBB`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub grid: Option<String>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub margin_sides: Option<f64>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -127,6 +131,7 @@ struct RawGreys {
     context: Option<Spanned<String>>,
     context_labels: Option<Spanned<String>>,
     baseline: Option<Spanned<String>>,
+    grid: Option<Spanned<String>>,
 }
 
 #[derive(Deserialize)]
@@ -337,6 +342,7 @@ pub fn parse(src: &Arc<Source>, name: &str) -> Result<HouseStyle, Vec<Diagnostic
         style.context = c.colour("context", s.context);
         style.context_labels = c.colour("context-labels", s.context_labels);
         style.baseline = c.colour("baseline", s.baseline);
+        style.grid = c.colour("grid", s.grid);
     }
     if let Some(m) = raw.margins {
         style.margin_sides = c.margin("sides", m.sides, [16.0, 160.0]);
@@ -401,7 +407,7 @@ mod tests {
             "fonts = [\"DejaVu Sans\", \"Source Sans 3\", \"sans-serif\"]\n\
              [sizes]\nheadline = 34\nlabels = 17.0\n\
              [colours]\naccent = \"#0e6b50\"\npage = \"#FBFAF7\"\nsmall-text = \"#505050\"\n\
-             [greys]\ncontext-labels = \"#6A6A6A\"\n\
+             [greys]\ncontext-labels = \"#6A6A6A\"\ngrid = \"#e8e8e8\"\n\
              [margins]\nsides = 64\n",
         )
         .unwrap();
@@ -415,6 +421,7 @@ mod tests {
         assert_eq!(s.accent.as_deref(), Some("#0E6B50"));
         assert_eq!(s.small_text.as_deref(), Some("#505050"));
         assert_eq!(s.context_labels.as_deref(), Some("#6A6A6A"));
+        assert_eq!(s.grid.as_deref(), Some("#E8E8E8"));
         assert_eq!(s.margin_sides, Some(64.0));
         assert_eq!(check("").unwrap().file, "house.toml");
     }
@@ -441,6 +448,11 @@ mod tests {
         assert_eq!(d[0].location(), Some(("house.toml".into(), 2, 10)));
         assert_eq!(d[1].location(), Some(("house.toml".into(), 3, 8)));
         assert!(d[0].message.contains("#RRGGBB"));
+        // the grid grey is checked like the others
+        let d = check("[greys]\ngrid = \"light\"\n").unwrap_err();
+        assert_eq!(d[0].code, "style-colour");
+        assert_eq!(d[0].location(), Some(("house.toml".into(), 2, 8)));
+        assert!(d[0].message.contains("`grid`"), "{}", d[0].message);
         // a TOML syntax error
         assert_eq!(located("[sizes\n").0, "house.toml");
     }

@@ -4,6 +4,7 @@
 //! value at the bar end; hidden bars leave their slot empty.
 
 use crate::canvas::{Align, Canvas, Label, WIDTH};
+use crate::kit;
 use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{line_height, text_width};
 use crate::theme::Theme;
@@ -144,6 +145,16 @@ fn vertical(
     }
 
     let zero = vmap(0.0);
+    kit::gridlines(
+        canvas,
+        theme,
+        &chart.value,
+        vmap,
+        plot_left,
+        plot_right,
+        kit::Across::Rows,
+        Some(zero),
+    )?;
     let bar_w = (band * BAR_SHARE).min(160.0);
     for (i, bar) in chart.bars.iter().enumerate() {
         let centre = plot_left + (i as f64 + 0.5) * band;
@@ -304,6 +315,16 @@ fn horizontal(
     }
 
     let zero = vmap(0.0);
+    kit::gridlines(
+        canvas,
+        theme,
+        &chart.value,
+        vmap,
+        plot_top,
+        plot_bottom,
+        kit::Across::Columns,
+        Some(zero),
+    )?;
     let bar_h = (band * BAR_SHARE).min(56.0);
     let labels: Vec<(f64, Vec<String>)> = chart
         .bars

@@ -127,6 +127,16 @@ pub(crate) fn draw(
             )?;
         }
     }
+    kit::gridlines(
+        canvas,
+        theme,
+        &chart.value,
+        vmap,
+        plot_top,
+        plot_bottom,
+        kit::Across::Columns,
+        None,
+    )?;
     canvas.line(
         (col_right + PAD, plot_bottom),
         (region.right, plot_bottom),

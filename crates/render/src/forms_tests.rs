@@ -22,6 +22,7 @@ fn axis(title: Option<&str>, domain: [f64; 2], ticks: &[f64]) -> Axis {
                 label: crate::kit::number(*v, 1, true),
             })
             .collect(),
+        grid: false,
     }
 }
 
@@ -582,6 +583,7 @@ fn small_line(peak: f64, role: Role, domain: [f64; 2]) -> Chart {
                     label: format!("{v}"),
                 })
                 .collect(),
+            grid: false,
         },
         y: axis(Some("Share of homes (%)"), domain, &[0.0, 20.0, 40.0]),
         series: vec![Series {
@@ -986,5 +988,151 @@ fn every_form_takes_sizes_and_margins_from_the_house_style() {
                 "captions 2 px over the 22 px takeaway"
             );
         }
+    }
+}
+
+/// The same chart with gridlines asked for on its measure's axis.
+fn with_grid(chart: &Chart) -> Chart {
+    let mut c = chart.clone();
+    match &mut c {
+        Chart::Line(l) => l.y.grid = true,
+        Chart::Bars(b) => b.value.grid = true,
+        Chart::Parts(p) => p.value.grid = true,
+        Chart::Dots(d) => d.value.grid = true,
+        Chart::Scatter(s) => s.y.grid = true,
+        Chart::Panels(p) => {
+            for panel in &mut p.panels {
+                panel.chart = with_grid(&panel.chart);
+            }
+        }
+        _ => panic!("no measure's axis"),
+    }
+    c
+}
+
+fn plain_bars(orientation: Orientation) -> Chart {
+    Chart::Bars(BarChart {
+        orientation,
+        category_title: None,
+        value: axis(Some("Loans"), [0.0, 60.0], &[0.0, 20.0, 40.0, 60.0]),
+        bars: ["Books", "E-books", "Audio", "Film"]
+            .iter()
+            .zip([52.0, 38.0, 21.0, 9.0])
+            .enumerate()
+            .map(|(i, (l, v))| Bar {
+                label: l.to_string(),
+                value: Some(v),
+                value_label: format!("{v}"),
+                role: if i == 1 { Role::Focus } else { Role::Context },
+            })
+            .collect(),
+    })
+}
+
+#[test]
+fn gridlines_are_light_under_the_data_and_only_on_request() {
+    const GRID: &str = "#ECECEC";
+    let forms: Vec<(&str, Chart, usize)> = vec![
+        // (name, chart, gridlines expected: ticks off the baseline)
+        ("line", small_line(30.0, Role::Focus, [0.0, 40.0]), 2),
+        ("bars", plain_bars(Orientation::Vertical), 3),
+        ("bars-horizontal", plain_bars(Orientation::Horizontal), 3),
+        (
+            "stacked",
+            parts_chart(PartsMode::Stacked, Orientation::Vertical, false),
+            3,
+        ),
+        (
+            "grouped-horizontal",
+            parts_chart(PartsMode::Grouped, Orientation::Horizontal, false),
+            3,
+        ),
+        // dots have no bar baseline to skip: every tick gets one
+        ("dots", dots_chart(false), 4),
+        ("scatter", scatter_chart(false), 0),
+        // six panels, five drawn (one hidden still draws its axes)
+        ("panels", panels_chart(true, false, false), 12),
+    ];
+    for (name, chart, expected) in forms {
+        let plain = render(chart.clone());
+        assert_eq!(
+            count(&plain, "polyline", "stroke", GRID),
+            0,
+            "{name}: no gridlines unless asked"
+        );
+        let gridded = render(with_grid(&chart));
+        check(&gridded);
+        let lines = count(&gridded, "polyline", "stroke", GRID);
+        if expected > 0 {
+            assert_eq!(lines, expected, "{name}");
+        } else {
+            assert!(lines >= 2, "{name}: {lines}");
+        }
+        // Gridlines only add: everything else is drawn exactly as before.
+        hidden_changes_nothing_else(&plain, &gridded);
+        // 1 px, and drawn before every mark they cross, so they stay under
+        // the data (panels draw one panel after the other).
+        let doc = roxmltree::Document::parse(&gridded).unwrap();
+        let shapes: Vec<(bool, [f64; 4])> = doc
+            .descendants()
+            .filter_map(|n| {
+                let colour = [n.attribute("stroke"), n.attribute("fill")]
+                    .into_iter()
+                    .flatten()
+                    .find(|c| *c != "none");
+                let grid = colour == Some(GRID);
+                if grid {
+                    assert_eq!(n.attribute("stroke-width"), Some("1"), "{name}");
+                } else if ![Some(ACCENT), Some("#8C8C8C")].contains(&colour) {
+                    return None;
+                }
+                Some((grid, bounds(&n)?))
+            })
+            .collect();
+        assert!(shapes.iter().any(|s| !s.0), "{name}: marks found");
+        for (i, (grid, g)) in shapes.iter().enumerate() {
+            if !grid {
+                continue;
+            }
+            for (_, m) in shapes[..i].iter().filter(|s| !s.0) {
+                let apart = m[2] < g[0] || g[2] < m[0] || m[3] < g[1] || g[3] < m[1];
+                assert!(apart, "{name}: a gridline {g:?} drawn over a mark {m:?}");
+            }
+        }
+        dump(&format!("grid-{name}"), &gridded);
+    }
+}
+
+/// The box of a polyline, rect or circle: `[x0, y0, x1, y1]`.
+fn bounds(n: &roxmltree::Node) -> Option<[f64; 4]> {
+    let num = |a: &str| n.attribute(a).and_then(|v| v.parse::<f64>().ok());
+    match n.tag_name().name() {
+        "polyline" | "polygon" => {
+            let pts: Vec<(f64, f64)> = n
+                .attribute("points")?
+                .split_whitespace()
+                .filter_map(|p| {
+                    let (x, y) = p.split_once(',')?;
+                    Some((x.parse().ok()?, y.parse().ok()?))
+                })
+                .collect();
+            let xs = pts.iter().map(|p| p.0);
+            let ys = pts.iter().map(|p| p.1);
+            Some([
+                xs.clone().fold(f64::INFINITY, f64::min),
+                ys.clone().fold(f64::INFINITY, f64::min),
+                xs.fold(f64::NEG_INFINITY, f64::max),
+                ys.fold(f64::NEG_INFINITY, f64::max),
+            ])
+        }
+        "rect" => {
+            let (x, y) = (num("x")?, num("y")?);
+            Some([x, y, x + num("width")?, y + num("height")?])
+        }
+        "circle" => {
+            let (x, y, r) = (num("cx")?, num("cy")?, num("r")?);
+            Some([x - r, y - r, x + r, y + r])
+        }
+        _ => None,
     }
 }

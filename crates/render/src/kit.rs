@@ -345,8 +345,51 @@ pub(crate) fn xy_layout(
     }
 }
 
-/// Draws the titles, tick labels and baseline of an x/y plot; records the
-/// text boxes in `obstacles`. `y_ticks` false leaves the y labels out (the
+/// Which way gridlines run across the plot.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) enum Across {
+    /// Horizontal lines at the measure's ticks on a vertical axis.
+    Rows,
+    /// Vertical lines at the measure's ticks on a horizontal axis.
+    Columns,
+}
+
+/// Light gridlines (`gridlines`) at each visible tick of the measure's
+/// axis: 1 px in the theme's grid colour, from `from` to `to` across the
+/// plot, where `at` maps a value to its position along the axis. Drawn
+/// before the data so they stay under it; a tick on the baseline (`skip`,
+/// the baseline's position) gets none, since the baseline is drawn there.
+/// Nothing is drawn when the axis does not ask for gridlines.
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn gridlines(
+    canvas: &Canvas<'_>,
+    theme: &Theme,
+    axis: &Axis,
+    at: impl Fn(f64) -> f64,
+    from: f64,
+    to: f64,
+    across: Across,
+    skip: Option<f64>,
+) -> Result<(), RenderError> {
+    if !axis.grid {
+        return Ok(());
+    }
+    for (v, _) in layout::visible_ticks(axis) {
+        let p = at(v);
+        if !p.is_finite() || skip.is_some_and(|s| (s - p).abs() < 0.5) {
+            continue;
+        }
+        let (a, b) = match across {
+            Across::Rows => ((from, p), (to, p)),
+            Across::Columns => ((p, from), (p, to)),
+        };
+        canvas.line(a, b, theme.grid, 1)?;
+    }
+    Ok(())
+}
+
+/// Draws the titles, tick labels, gridlines (when the y axis asks for
+/// them) and baseline of an x/y plot; records the text boxes in `obstacles`. `y_ticks` false leaves the y labels out (the
 /// plot keeps its place).
 pub(crate) fn draw_xy_axes(
     canvas: &Canvas<'_>,
@@ -442,6 +485,16 @@ pub(crate) fn draw_xy_axes(
             )?;
         }
     }
+    gridlines(
+        canvas,
+        theme,
+        y,
+        ymap,
+        l.plot_left,
+        l.plot_right,
+        Across::Rows,
+        Some(l.plot_bottom),
+    )?;
     canvas.line(
         (l.plot_left, l.plot_bottom),
         (l.plot_right, l.plot_bottom),

@@ -1,4 +1,5 @@
-//! Line charts: y ticks at the left without an axis line, a light baseline,
+//! Line charts: y ticks at the left without an axis line, a light baseline
+//! (and light gridlines at the y ticks when the frame asks for them),
 //! x ticks centred under their positions, grey context lines under a heavier
 //! accent focus line, and direct labels at the right instead of a legend.
 //! Bands and reference lines go under the data; their names, end values and
@@ -208,6 +209,18 @@ pub(crate) fn draw(
             )?;
         }
     }
+
+    // Gridlines, when asked for, under everything else in the plot.
+    kit::gridlines(
+        canvas,
+        theme,
+        &chart.y,
+        ymap,
+        l.plot_left,
+        l.plot_right,
+        kit::Across::Rows,
+        Some(l.plot_bottom),
+    )?;
 
     // Baseline along the bottom of the plot.
     canvas.line(

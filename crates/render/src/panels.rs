@@ -236,9 +236,19 @@ pub(crate) fn draw(
             Chart::Line(l) => {
                 value_ticks(canvas, theme, &l.y, dom, &g, ticks_here, &mut obstacles)?;
                 x_ticks(canvas, theme, &l.x, &g, &mut obstacles)?;
-                baseline(canvas, theme, &g, false)?;
                 let xmap = |x: f64| map(x, l.x.domain, g.left, g.right);
                 let ymap = |y: f64| map(y, dom, g.bottom, g.top);
+                kit::gridlines(
+                    canvas,
+                    theme,
+                    &l.y,
+                    ymap,
+                    g.left,
+                    g.right,
+                    kit::Across::Rows,
+                    Some(g.bottom),
+                )?;
+                baseline(canvas, theme, &g, false)?;
                 let target = (2.0 * (g.right - g.left)).max(3.0) as usize;
                 for pass in [Role::Context, Role::Focus] {
                     for s in &l.series {
@@ -260,6 +270,16 @@ pub(crate) fn draw(
             }
             Chart::Bars(b) if across_bars => {
                 let vmap = |v: f64| map(v, dom, g.left, g.right);
+                kit::gridlines(
+                    canvas,
+                    theme,
+                    &b.value,
+                    vmap,
+                    g.top,
+                    g.bottom,
+                    kit::Across::Columns,
+                    Some(vmap(0.0)),
+                )?;
                 // Value ticks along the bottom of every panel.
                 let mut placed = Vec::new();
                 for (v, text) in layout::visible_ticks(&b.value) {
@@ -343,6 +363,16 @@ pub(crate) fn draw(
             Chart::Bars(b) => {
                 value_ticks(canvas, theme, &b.value, dom, &g, ticks_here, &mut obstacles)?;
                 let vmap = |v: f64| map(v, dom, g.bottom, g.top);
+                kit::gridlines(
+                    canvas,
+                    theme,
+                    &b.value,
+                    vmap,
+                    g.left,
+                    g.right,
+                    kit::Across::Rows,
+                    Some(vmap(0.0)),
+                )?;
                 let nb = b.bars.len().max(1);
                 let band = (g.right - g.left) / nb as f64;
                 let spans: Vec<(f64, f64)> = b

@@ -301,6 +301,16 @@ fn vertical(
         }
     }
 
+    kit::gridlines(
+        canvas,
+        theme,
+        &chart.value,
+        vmap,
+        plot_left,
+        plot_right,
+        kit::Across::Rows,
+        Some(vmap(0.0)),
+    )?;
     let colors = colours(theme, chart);
     let bar_w = if stacked {
         (band * BAR_SHARE).min(140.0)
@@ -614,6 +624,16 @@ fn horizontal(
         }
     }
 
+    kit::gridlines(
+        canvas,
+        theme,
+        &chart.value,
+        vmap,
+        plot_top,
+        plot_bottom,
+        kit::Across::Columns,
+        Some(vmap(0.0)),
+    )?;
     let colors = colours(theme, chart);
     let bar_h = if stacked {
         (band * BAR_SHARE).min(56.0)

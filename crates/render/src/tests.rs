@@ -17,6 +17,7 @@ fn axis(title: Option<&str>, scale: ScaleKind, domain: [f64; 2], ticks: &[(f64, 
                 label: l.to_string(),
             })
             .collect(),
+        grid: false,
     }
 }
 

@@ -67,6 +67,9 @@ pub struct Theme {
     pub context_text: Rgb,
     /// Baselines.
     pub baseline: Rgb,
+    /// Gridlines (`gridlines`): lighter than the baseline and far lighter
+    /// than the context grey, so they recede behind the data.
+    pub grid: Rgb,
     /// The one emphasis colour: focus marks and their labels.
     pub accent: Rgb,
     /// Stroke width of context lines, in px.
@@ -126,6 +129,7 @@ pub const CLEAR: Theme = Theme {
     context: Rgb(0x8C, 0x8C, 0x8C),
     context_text: Rgb(0x70, 0x70, 0x70),
     baseline: Rgb(0xC8, 0xC8, 0xC8),
+    grid: Rgb(0xEC, 0xEC, 0xEC),
     accent: Rgb(0xB4, 0x40, 0x0A),
     context_stroke: 2,
     focus_stroke: 4,
@@ -154,6 +158,7 @@ pub const EVENING: Theme = Theme {
     context: Rgb(0x78, 0x78, 0x78),
     context_text: Rgb(0x9E, 0x9E, 0x9E),
     baseline: Rgb(0x4A, 0x4D, 0x52),
+    grid: Rgb(0x2B, 0x2F, 0x35),
     accent: Rgb(0xF0, 0xA0, 0x4B),
     context_stroke: 2,
     focus_stroke: 4,
@@ -182,6 +187,7 @@ pub const PRINT: Theme = Theme {
     context: Rgb(0x8A, 0x8A, 0x8A),
     context_text: Rgb(0x66, 0x66, 0x66),
     baseline: Rgb(0x9A, 0x9A, 0x9A),
+    grid: Rgb(0xDD, 0xDD, 0xDD),
     accent: Rgb(0x1B, 0x4F, 0x8A),
     context_stroke: 3,
     focus_stroke: 5,
@@ -222,6 +228,7 @@ pub fn effective(deck: &crescendo_plan::DeckPlan) -> Result<Theme, RenderError> 
         set(&mut t.context, &style.context)?;
         set(&mut t.context_text, &style.context_labels)?;
         set(&mut t.baseline, &style.baseline)?;
+        set(&mut t.grid, &style.grid)?;
         if let Some(hex) = &style.page {
             t.page = colour(hex)?;
             t.background = Some(t.page);
@@ -378,6 +385,23 @@ mod tests {
                 );
             }
         }
+        // gridlines recede: lighter against the page than the baseline,
+        // which is lighter than the context grey
+        for t in THEMES {
+            let grid = t.page.contrast(t.grid);
+            let baseline = t.page.contrast(t.baseline);
+            assert!(
+                grid > 1.05,
+                "{}: gridlines must still show ({grid:.2})",
+                t.name
+            );
+            assert!(
+                grid < baseline,
+                "{}: grid {grid:.2} vs baseline {baseline:.2}",
+                t.name
+            );
+            assert!(baseline < t.page.contrast(t.context), "{}", t.name);
+        }
         // the dark theme paints its page; the light ones stay transparent
         assert!(EVENING.background.is_some());
         assert!(CLEAR.background.is_none() && PRINT.background.is_none());
@@ -409,6 +433,7 @@ mod tests {
             accent: Some("#0E6B50".into()),
             page: Some("#FBFAF7".into()),
             context: Some("#858585".into()),
+            grid: Some("#E4E4E4".into()),
             margin_sides: Some(64.0),
             ..Default::default()
         };
@@ -419,6 +444,8 @@ mod tests {
         assert_eq!(t.page, Rgb(0xFB, 0xFA, 0xF7));
         assert_eq!(t.context, Rgb(0x85, 0x85, 0x85));
         assert_eq!(t.context_text, CLEAR.context_text);
+        assert_eq!(t.grid, Rgb(0xE4, 0xE4, 0xE4));
+        assert_eq!(t.baseline, CLEAR.baseline);
         assert_eq!(
             (t.headline_size, t.label_size, t.source_size),
             (36.0, 18.0, 14.0)

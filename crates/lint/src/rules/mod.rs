@@ -9,6 +9,7 @@ mod bars_unsorted;
 mod colour_key_text;
 mod focus_confusable;
 mod frame_empty;
+mod grid_heavy;
 mod headline_cut;
 mod line_over_categories;
 mod line_too_short;
@@ -51,6 +52,7 @@ pub static RULES: &[&Rule] = &[
     &text_small::RULE,
     &text_contrast::RULE,
     &marks_contrast::RULE,
+    &grid_heavy::RULE,
     &focus_confusable::RULE,
     &spotlight_crowd::RULE,
     &colour_key_text::RULE,

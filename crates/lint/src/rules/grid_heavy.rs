@@ -1,0 +1,78 @@
+//! `grid-heavy`: gridlines drawn as strongly as the data.
+
+use crescendo_diag::Severity;
+use crescendo_plan::Chart;
+
+use super::util::{frames, rgb8};
+use crate::colour::contrast_ratio;
+use crate::{Doc, Finding, Input, Rule};
+
+pub static RULE: Rule = Rule {
+    name: "grid-heavy",
+    severity: Severity::Warning,
+    summary: "gridlines as strong as the data they support",
+    doc: Doc {
+        flags: "A frame with `gridlines` drawn in a grid colour whose contrast against the\n\
+                page is at least that of the context grey: the gridlines are as heavy as the\n\
+                grey lines and bars of the data.",
+        why: "Gridlines are supporting lines: they help the eye read values off the axis and\n\
+              must recede behind the data (common practice: no gridlines by default, light\n\
+              ones on request). Drawn as dark as the context grey, they compete with the\n\
+              marks, add clutter and blur which lines are data and which are scaffolding.",
+        example:
+            "style \"house.toml\"   # its [greys] set grid = \"#8A8A8A\", as dark as the data\n\
+                  gridlines            # in a frame of that story",
+        instead: "Give the house style a light grid grey (the built-in themes use about #ECECEC\n\
+                  on a white page), or leave `gridlines` out and label the values that matter.",
+    },
+    check,
+};
+
+/// Whether a chart draws gridlines along its measure's axis.
+fn has_grid(chart: &Chart) -> bool {
+    match chart {
+        Chart::Line(l) => l.y.grid,
+        Chart::Bars(b) => b.value.grid,
+        Chart::Parts(p) => p.value.grid,
+        Chart::Dots(d) => d.value.grid,
+        Chart::Scatter(s) => s.y.grid,
+        Chart::Panels(p) => p.panels.iter().any(|x| has_grid(&x.chart)),
+        Chart::Figures(_) | Chart::Table(_) | Chart::Pie(_) | Chart::Plugin(_) => false,
+    }
+}
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    let t = input.theme;
+    let page = rgb8(t.page);
+    let grid = contrast_ratio(rgb8(t.grid), page);
+    let context = contrast_ratio(rgb8(t.context), page);
+    if grid < context {
+        return;
+    }
+    // One finding per `gridlines` statement, in the frame that says it.
+    let mut reported = Vec::new();
+    for (i, f, a) in frames(input) {
+        if !has_grid(&f.chart) {
+            continue;
+        }
+        let span = a.gridlines.clone().unwrap_or(a.chart.clone());
+        if reported.contains(&span) {
+            continue;
+        }
+        reported.push(span.clone());
+        out.push(Finding {
+            frame: Some(i),
+            span,
+            label: format!(
+                "grid {} is {grid:.2}:1 on {}, context grey {} is {context:.2}:1",
+                t.grid.hex(),
+                t.page.hex(),
+                t.context.hex()
+            ),
+            message: "gridlines are drawn as strongly as the data".into(),
+            fix: "set a light `grid` grey in the house style's [greys] (about #ECECEC on white), \
+                  or remove `gridlines`"
+                .into(),
+        });
+    }
+}
