@@ -436,8 +436,8 @@ pub enum FrameStmt {
         span: Span,
     },
     Split(SplitStmt),
-    /// `reveal` or `reveal "A", "B"`.
-    Reveal {
+    /// `unfold` or `unfold "A", "B"`.
+    Unfold {
         order: Vec<Str>,
         span: Span,
     },

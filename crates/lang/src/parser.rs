@@ -1145,7 +1145,7 @@ fn convert_frame_stmt(pair: Pair<Rule>, base: usize) -> Res<FrameStmt> {
             }
             FrameStmt::Split(split)
         }
-        Rule::reveal_stmt => FrameStmt::Reveal {
+        Rule::unfold_stmt => FrameStmt::Unfold {
             order: inner.into_iter().skip(1).map(|p| string(p, base)).collect(),
             span,
         },

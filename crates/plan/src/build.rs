@@ -772,7 +772,7 @@ impl<'a> Planner<'a> {
     ) -> Option<Vec<FramePlan>> {
         let mut takeaway: Option<String> = None;
         let mut notes: Option<String> = None;
-        let mut reveal: Option<(Vec<Str>, ast::Span)> = None;
+        let mut unfold: Option<(Vec<Str>, ast::Span)> = None;
         let before = self.diags.len();
         for (k, stmt) in f.stmts.iter().enumerate() {
             match stmt {
@@ -1034,13 +1034,13 @@ impl<'a> Planner<'a> {
                         }
                         FrameStmt::LabelEnds { span } => self.label_ends(st, span)?,
                         FrameStmt::Gridlines { on, span } => self.gridlines(st, *on, span)?,
-                        FrameStmt::Reveal { order, span } => {
-                            if reveal.replace((order.clone(), span.clone())).is_some() {
+                        FrameStmt::Unfold { order, span } => {
+                            if unfold.replace((order.clone(), span.clone())).is_some() {
                                 self.error(
                                     "duplicate",
-                                    "this frame reveals twice",
+                                    "this frame unfolds twice",
                                     span.clone(),
-                                    "second reveal",
+                                    "second unfold",
                                 );
                                 return None;
                             }
@@ -1084,8 +1084,8 @@ impl<'a> Planner<'a> {
             allows: per_frame.allows,
             ..st.anchors.clone()
         };
-        // `reveal`: one frame per hidden item, each showing one more.
-        let steps: Vec<Vec<String>> = match &reveal {
+        // `unfold`: one frame per hidden item, each showing one more.
+        let steps: Vec<Vec<String>> = match &unfold {
             None => vec![Vec::new()],
             Some((order, span)) => {
                 let items: Vec<String> = if order.is_empty() {
@@ -1100,7 +1100,7 @@ impl<'a> Planner<'a> {
                         if !st.names.contains(&o.value) {
                             let d = self.error(
                                 "unknown-series",
-                                format!("nothing named \"{}\" to reveal in this chart", o.value),
+                                format!("nothing named \"{}\" to unfold in this chart", o.value),
                                 o.span.clone(),
                                 "not in this chart",
                             );
@@ -1116,12 +1116,12 @@ impl<'a> Planner<'a> {
                 };
                 if items.is_empty() {
                     self.error(
-                        "reveal",
-                        "nothing is hidden, so there is nothing to reveal",
+                        "unfold",
+                        "nothing is hidden, so there is nothing to unfold",
                         span.clone(),
-                        "nothing to reveal",
+                        "nothing to unfold",
                     )
-                    .help = Some("hide the series first (`hide all`), then reveal them".into());
+                    .help = Some("hide the series first (`hide all`), then unfold them".into());
                     return None;
                 }
                 (1..=items.len()).map(|k| items[..k].to_vec()).collect()

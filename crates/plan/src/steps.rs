@@ -1,6 +1,6 @@
 //! Build-up steps beyond show, hide and spotlight: small multiples
 //! (`split`), annotations (`callout`, `band`, `reference`, `label ends`),
-//! light gridlines (`gridlines`), and the frames a `reveal` expands into.
+//! light gridlines (`gridlines`), and the frames a `unfold` expands into.
 
 use crescendo_data::{format, time};
 use crescendo_lang::ast::{Position, SplitStmt, Str};
