@@ -363,13 +363,17 @@ fn axes_stay_fixed_within_a_build_up_sequence() {
 
 #[test]
 fn readme_picture_is_the_current_frame() {
+    // The README shows frame 3 from the tutorial's pictures, which
+    // tests/docs.rs keeps identical to what the build draws.
+    let readme = std::fs::read_to_string(root().join("README.md")).unwrap();
     let plan = plan_of(&root().join("stories/pools/pools.cresc"));
     let svg = crescendo_render::render_frame(&plan, &plan.frames[2]).expect("render");
-    let committed =
-        std::fs::read_to_string(root().join("stories/pools/preview.svg")).expect("preview.svg");
+    let path = "stories/pools/tutorial/03-westbrook-pulled-away-after-evening-swims-began.svg";
+    assert!(readme.contains(&format!("]({path})")), "README's picture");
+    let committed = std::fs::read_to_string(root().join(path)).expect("picture");
     assert!(
         committed == svg,
-        "stories/pools/preview.svg is stale: copy stories/pools/deck/03-*.svg over it after a build"
+        "{path} is stale: UPDATE_DOCS=1 cargo test --test docs"
     );
 }
 

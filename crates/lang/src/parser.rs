@@ -298,6 +298,15 @@ fn syntax_error(
             ("syntax", format!("expected {expected_text}, found {found}"))
         };
     let start = base + at;
+    if rest_of_line.starts_with('"') && !closes_on_line(&rest_of_line[1..]) {
+        return Diagnostic::error("unclosed-string", "this string is not closed on its line")
+            .at(
+                source,
+                start..start + rest_of_line.trim_end().len(),
+                "the string starts here",
+            )
+            .help("end it with `\"` on the same line; write `\\n` for a line break inside a text, and `\\\"` for a quote");
+    }
     let at_line_end = found == "the end of the line" || found == "the end of the file";
     let end = if at_line_end {
         start
@@ -314,6 +323,21 @@ fn syntax_error(
         }
     }
     d
+}
+
+/// True when `rest` (what follows an opening quote) holds the closing quote
+/// of the string, skipping `\\` escapes.
+fn closes_on_line(rest: &str) -> bool {
+    let mut escaped = false;
+    for c in rest.chars() {
+        match c {
+            _ if escaped => escaped = false,
+            '\\' => escaped = true,
+            '"' => return true,
+            _ => {}
+        }
+    }
+    false
 }
 
 /// Length of the blank space and comments at the start of `text`.
@@ -1737,6 +1761,20 @@ claim gap about 10 within 0.5 "about ten"
         let (_, d) = parse_str("claim multiple > 2\n");
         assert_eq!(d.len(), 1);
         assert!(d[0].message.contains("quoted string"), "{}", d[0].message);
+    }
+
+    #[test]
+    fn a_string_left_open_is_named_as_such() {
+        let (_, d) = parse_str("story \"ok\"\nframe \"Open {\n  takeaway \"x\"\n}\n");
+        assert_eq!(d[0].code, "unclosed-string", "{d:#?}");
+        let (_, d) = parse_str("byline \"a \\\" quote\n");
+        assert_eq!(
+            d[0].code, "unclosed-string",
+            "an escaped quote does not close: {d:#?}"
+        );
+        // a closed string in the wrong place is an ordinary syntax error
+        let (_, d) = parse_str("theme \"clear\"\n");
+        assert_ne!(d[0].code, "unclosed-string", "{d:#?}");
     }
 
     fn template_of(text: &str) -> Result<Template, Vec<Diagnostic>> {

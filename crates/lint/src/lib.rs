@@ -98,6 +98,55 @@ pub fn explain(name: &str) -> Option<String> {
     ))
 }
 
+/// The rule reference as Markdown (`crates/lint/RULES.md` is this text; a
+/// test keeps the file in step with the rules' own documentation).
+pub fn reference_markdown() -> String {
+    let mut out = String::from(
+        "# Lint rules\n\n\
+         <!-- Generated from the rules' own documentation (crates/lint/src/rules/*.rs) by\n\
+         `UPDATE_DOCS=1 cargo test --test docs`; do not edit by hand. -->\n\n\
+         `crescendo build` and `crescendo check` run every rule on every frame. Errors stop the\n\
+         build; warnings and advice are printed (`--deny warnings` turns warnings into errors,\n\
+         for CI). Accept a finding by saying why: `allow RULE \"reason\"` for the whole story,\n\
+         or the same line inside one frame. `crescendo explain RULE` prints one rule.\n\n\
+         Some chart forms mislead decisions, and the rules say so plainly: bars cut off from\n\
+         zero exaggerate differences (`bars-off-zero`, an error); small multiples on unequal\n\
+         scales make a small panel look as large as a big one (`panels-own-scales`); an axis\n\
+         that moves between frames of a build-up fakes a change (`axes-shift`). crescendo has\n\
+         no chart form with two value axes at all: with two scales on one plot, the author\n\
+         decides where the lines cross.\n\n\
+         | Rule | Severity | Flags |\n|---|---|---|\n",
+    );
+    for r in RULES.iter() {
+        out.push_str(&format!(
+            "| [`{}`](#{}) | {} | {} |\n",
+            r.name,
+            r.name,
+            severity_name(r.severity),
+            r.summary
+        ));
+    }
+    for r in RULES.iter() {
+        out.push_str(&format!(
+            "\n## {}\n\n*{}* — {}.\n\n**What it flags.** {}\n\n**Why it matters.** {}\n\n\
+             **Example.**\n\n```cresc\n{}\n```\n\n**Instead.** {}\n",
+            r.name,
+            severity_name(r.severity),
+            r.summary,
+            one_paragraph(r.doc.flags),
+            one_paragraph(r.doc.why),
+            r.doc.example,
+            one_paragraph(r.doc.instead)
+        ));
+    }
+    out
+}
+
+/// Join hard-wrapped doc lines into one Markdown paragraph.
+fn one_paragraph(text: &str) -> String {
+    text.split_whitespace().collect::<Vec<_>>().join(" ")
+}
+
 /// One line per rule: name, severity, summary.
 pub fn list() -> String {
     let width = RULES.iter().map(|r| r.name.len()).max().unwrap_or(0);
