@@ -34,6 +34,8 @@ pub const TOP_KEYWORDS: &[&str] = &[
     "style",
     "use",
     "frame",
+    "locale",
+    "fiscal",
 ];
 
 /// Parse a story file. Returns the items that parsed and one diagnostic per
@@ -416,6 +418,14 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
         Rule::conclusion_item => Item::Conclusion(text_item(&mut inner, span)),
         Rule::accent_item => Item::Accent(text_item(&mut inner, span)),
         Rule::style_item => Item::Style(text_item(&mut inner, span)),
+        Rule::locale_item => Item::Locale(text_item(&mut inner, span)),
+        Rule::fiscal_item => {
+            let month = inner.pop().ok_or_else(|| internal(&span))?;
+            Item::Fiscal {
+                month: ident(month, base),
+                span,
+            }
+        }
         Rule::plugin_item => {
             let mut it = inner.into_iter().skip(2);
             let path = string(it.next().ok_or_else(|| internal(&span))?, base);

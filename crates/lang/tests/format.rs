@@ -1,0 +1,92 @@
+//! The canonical layout (`crescendo fmt`): idempotent on every demo story,
+//! same tree after formatting, comments kept, a messy story snapshot.
+
+use crescendo_diag::Source;
+use crescendo_lang::format::{comments, same_shape};
+use crescendo_lang::{format_story, parse};
+
+fn demo_stories() -> Vec<(String, String)> {
+    let root = concat!(env!("CARGO_MANIFEST_DIR"), "/../../stories");
+    let mut out = Vec::new();
+    let mut dirs: Vec<_> = std::fs::read_dir(root)
+        .expect("stories folder")
+        .map(|e| e.expect("entry").path())
+        .collect();
+    dirs.sort();
+    for d in dirs {
+        let Ok(entries) = std::fs::read_dir(&d) else {
+            continue;
+        };
+        let mut files: Vec<_> = entries.map(|e| e.expect("entry").path()).collect();
+        files.sort();
+        for f in files {
+            if f.extension().is_some_and(|e| e == "cresc") {
+                let text = std::fs::read_to_string(&f).expect("story");
+                out.push((f.display().to_string(), text));
+            }
+        }
+    }
+    assert!(out.len() >= 5, "expected the demo stories, found {}", out.len());
+    out
+}
+
+fn tree(text: &str) -> crescendo_lang::ast::StoryAst {
+    let (ast, diags) = parse(&Source::file("s", text));
+    assert!(diags.is_empty(), "{diags:?}");
+    ast
+}
+
+#[test]
+fn every_demo_story_is_a_fixed_point_after_one_pass() {
+    for (name, text) in demo_stories() {
+        let once = format_story(&text).unwrap_or_else(|d| panic!("{name}: {d:?}"));
+        let twice = format_story(&once).unwrap_or_else(|d| panic!("{name}: {d:?}"));
+        assert_eq!(once, twice, "{name}: the second pass changed the story");
+        assert!(same_shape(&tree(&text), &tree(&once)), "{name}");
+        let kept: Vec<&str> = comments(&once).into_iter().map(|r| &once[r]).collect();
+        let had: Vec<&str> = comments(&text).into_iter().map(|r| &text[r]).collect();
+        assert_eq!(kept, had, "{name}: comments");
+    }
+}
+
+#[test]
+fn messy_layout_becomes_canonical() {
+    let messy = include_str!("fixtures/messy.cresc");
+    let once = format_story(messy).expect("formats");
+    insta::assert_snapshot!(once);
+    assert_eq!(format_story(&once).expect("formats again"), once);
+    assert!(same_shape(&tree(messy), &tree(&once)));
+}
+
+#[test]
+fn syntax_errors_are_reported_with_a_location_and_nothing_is_formatted() {
+    let err = format_story("story \"A\"\nframe \"B\" {\n  line v: x\n  show \"A\",\n}\n")
+        .expect_err("does not parse");
+    assert!(!err.is_empty());
+    let (file, line, _col) = err[0].location().expect("located");
+    assert_eq!(file, "<story>");
+    assert_eq!(line, 5, "{err:?}");
+}
+
+#[test]
+fn trailing_and_leading_comments_stay_where_they_were() {
+    let text = "# head\n\nstory \"A\"   # after the title\n\n\n# before the frame\nframe \"F\" {\n  # inside\n  show all # shown\n}\n";
+    let out = format_story(text).expect("formats");
+    assert_eq!(
+        out,
+        "# head\n\nstory \"A\"  # after the title\n\n# before the frame\nframe \"F\" {\n  # inside\n  show all  # shown\n}\n"
+    );
+}
+
+#[test]
+fn redundant_parentheses_go_and_needed_ones_stay() {
+    let out = format_story("value a = ((1 + 2)) * 3\nvalue b = 1 - (2 - 3)\nvalue c = (1 - 2) - 3\n")
+        .expect("formats");
+    assert_eq!(out, "value a = (1 + 2) * 3\nvalue b = 1 - (2 - 3)\nvalue c = 1 - 2 - 3\n");
+}
+
+#[test]
+fn an_empty_story_stays_empty_and_a_comment_only_story_keeps_its_comment() {
+    assert_eq!(format_story("").expect("formats"), "");
+    assert_eq!(format_story("  # just a note  \n\n").expect("formats"), "# just a note\n");
+}
