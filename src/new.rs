@@ -339,11 +339,12 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
         });
     }
     if let Some(cat) = category {
+        // the parts: the text column with the fewest values (two to four);
+        // the bars: another text column
         let part = texts
             .iter()
-            .filter(|c| c.name != cat.name && (2..=4).contains(&c.distinct))
+            .filter(|c| (2..=4).contains(&c.distinct) && c.distinct < p.rows)
             .min_by_key(|c| c.distinct);
-        // the bars: the other text column, when the parts are the smaller one
         if let Some(part) = part {
             let bars = texts
                 .iter()

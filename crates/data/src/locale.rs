@@ -126,11 +126,21 @@ impl Locale {
             .unwrap_or_default()
     }
 
-    /// A month of a year ("Jan 2024", "janv. 2024").
+    /// A month of a year ("Jan 2024", "févr. 2024"): CLDR's medium
+    /// year-month pattern when it spells the month; where that pattern is
+    /// numeric (German: "02/2024"), the abbreviated month name and the year
+    /// ("Feb. 2024" style), so that axis labels name their months.
     pub fn month_year(&self, year: i32, month: u32) -> String {
-        Self::date(year, month.clamp(1, 12), 1)
-            .map(|d| self.month_year.format(&d).to_string())
-            .unwrap_or_else(|| format!("{year}-{month:02}"))
+        let month = month.clamp(1, 12);
+        let Some(d) = Self::date(year, month, 1) else {
+            return format!("{year}-{month:02}");
+        };
+        let cldr = self.month_year.format(&d).to_string();
+        if cldr.chars().any(char::is_alphabetic) {
+            cldr
+        } else {
+            format!("{} {year}", self.month_name(month))
+        }
     }
 
     /// A day, with or without its year ("4 Mar", "04.03.2024").
@@ -304,7 +314,8 @@ mod tests {
     #[test]
     fn months_and_days_follow_cldr() {
         let de = Locale::new("de-DE").expect("de");
-        assert_eq!(de.month_name(3), "März");
+        // CLDR 49 German stand-alone abbreviated month names: "Jan", "Feb", "Mär"…
+        assert_eq!(de.month_name(3), "Mär");
         let fr = Locale::new("fr-FR").expect("fr");
         assert_eq!(fr.month_name(1), "janv.");
         assert_eq!(fr.month_year(2024, 2), "févr. 2024");
@@ -312,6 +323,9 @@ mod tests {
         assert_eq!(en.month_year(2024, 1), "Jan 2024");
         assert_eq!(en.day(2024, 3, 4, true), "Mar 4, 2024");
         assert_eq!(de.day(2024, 3, 4, true), "04.03.2024");
+        // CLDR's German medium year-month is numeric ("03/2024"): the
+        // month's name is used instead
+        assert_eq!(de.month_year(2024, 3), "Mär 2024");
     }
 
     #[test]

@@ -1804,3 +1804,17 @@ claim gap about 10 within 0.5 "about ten"
         );
     }
 }
+
+/// The byte ranges of every keyword (`kw_*` rule) the parser matches in a
+/// story that parses, in order; empty when it does not parse. For tools
+/// that check an editor's highlighting against the grammar.
+pub fn keyword_spans(text: &str) -> Vec<std::ops::Range<usize>> {
+    match StoryParser::parse(Rule::file, text) {
+        Ok(pairs) => pairs
+            .flatten()
+            .filter(|p| format!("{:?}", p.as_rule()).starts_with("kw_"))
+            .map(|p| p.as_span().start()..p.as_span().end())
+            .collect(),
+        Err(_) => Vec::new(),
+    }
+}
