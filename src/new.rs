@@ -726,10 +726,13 @@ fn trend(s: &mut String, table: &Table, time: &str, measure: &str, series: Optio
         let _ = writeln!(s, "  takeaway \"TODO: how far it moved\"");
         let _ = writeln!(s, "}}");
         let _ = writeln!(s);
-        let _ = writeln!(s, "# 3. Spotlight: the line in the accent colour.");
+        let _ = writeln!(s, "# 3. Spotlight: a note at the highest point.");
         let _ = writeln!(s, "frame \"The highest point\" {{");
-        let _ = writeln!(s, "  spotlight all");
-        let _ = writeln!(s, "  takeaway \"Its highest value: {{highest}}.\"");
+        if let Some(peak) = largest(&totals(table, time, measure)) {
+            let at = if peak.contains('-') { quote(&peak) } else { peak };
+            let _ = writeln!(s, "  callout {at} \"Highest: {{highest}}\"");
+        }
+        let _ = writeln!(s, "  takeaway \"TODO: why it peaked there\"");
         let _ = writeln!(s, "}}");
     }
     let _ = writeln!(s);
@@ -830,9 +833,8 @@ fn relationship(s: &mut String, table: &Table, x: &str, y: &str, label: Option<&
         Some(f) => {
             let _ = writeln!(s, "  spotlight {}", quote(f));
         }
-        None => {
-            let _ = writeln!(s, "  spotlight all");
-        }
+        // no names to point at: the takeaway carries the point
+        None => {}
     }
     let _ = writeln!(s, "  takeaway \"The highest {}: {{highest}}.\"", words(y));
     let _ = writeln!(s, "}}");

@@ -662,6 +662,12 @@ pub enum NumberStyle {
     Percent,
     /// `k`: compact (12.3k, 4.5M).
     Compact,
+    /// `quarter`: the quarter of a month or date ("2024 Q4"; in a fiscal
+    /// year "FY2025 Q2").
+    Quarter,
+    /// `year`: the year of a month or date ("2024"; in a fiscal year
+    /// "FY2025").
+    Year,
 }
 
 /// One piece of a text that may quote values.

@@ -1637,6 +1637,14 @@ fn format_spec(spec: &str) -> FormatSpec {
         sign: spec.starts_with('+'),
         ..FormatSpec::default()
     };
+    match spec {
+        "quarter" => f.style = NumberStyle::Quarter,
+        "year" => f.style = NumberStyle::Year,
+        _ => {}
+    }
+    if f.style != NumberStyle::Plain {
+        return f;
+    }
     let rest = spec.trim_start_matches('+');
     let (digits, style) = match rest.strip_suffix('%') {
         Some(d) => (d, NumberStyle::Percent),

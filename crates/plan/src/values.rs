@@ -892,6 +892,24 @@ fn strip_zeros(s: String) -> String {
 pub fn format_quantity(q: &Quantity, spec: &FormatSpec) -> String {
     match q {
         Quantity::Text(t) => t.clone(),
+        Quantity::Time(ColType::Month | ColType::Date, t)
+            if matches!(spec.style, NumberStyle::Quarter | NumberStyle::Year) =>
+        {
+            // the period of a month or a day, in the story's year
+            let (y, m) = match q {
+                Quantity::Time(ColType::Month, m) => (time::month_year(*t), time::month_of_year(*m)),
+                _ => {
+                    let (y, m, _) = time::civil_from_days(*t);
+                    (y, m)
+                }
+            };
+            let fiscal = crescendo_data::locale::current().fiscal;
+            if spec.style == NumberStyle::Quarter {
+                fiscal.quarter_label(y, m)
+            } else {
+                fiscal.year_label(y, m)
+            }
+        }
         Quantity::Time(ColType::Month, m) => time::month_label(*m),
         Quantity::Time(ColType::Date, d) => time::date_iso(*d),
         Quantity::Time(_, y) => y.to_string(),
