@@ -18,8 +18,8 @@ mod deck;
 mod diff;
 mod export;
 mod fmt;
-mod new;
 mod incremental;
+mod new;
 mod progress;
 mod watch;
 
@@ -401,14 +401,19 @@ fn manual() -> ExitCode {
     let mut roff = String::from_utf8_lossy(&buf).into_owned();
     for sub in cmd.get_subcommands() {
         let mut page = Vec::new();
-        let sub = sub.clone().bin_name(format!("crescendo {}", sub.get_name()));
+        let sub = sub
+            .clone()
+            .bin_name(format!("crescendo {}", sub.get_name()));
         if clap_mangen::Man::new(sub.clone())
             .render_options_section(&mut page)
             .is_err()
         {
             continue;
         }
-        roff.push_str(&format!(".SH \"COMMAND: {}\"\n", sub.get_name().to_uppercase()));
+        roff.push_str(&format!(
+            ".SH \"COMMAND: {}\"\n",
+            sub.get_name().to_uppercase()
+        ));
         let mut usage = Vec::new();
         let _ = clap_mangen::Man::new(sub.clone()).render_synopsis_section(&mut usage);
         let usage = String::from_utf8_lossy(&usage).replacen(".SH SYNOPSIS\n", "", 1);

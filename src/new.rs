@@ -155,7 +155,12 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
     };
     let mut table = load_csv(&spec).map_err(|e| match e {
         LoadError::Csv(d) => d,
-        LoadError::Story { code, message, help, .. } => {
+        LoadError::Story {
+            code,
+            message,
+            help,
+            ..
+        } => {
             let mut d = Diagnostic::error(code, message);
             d.help = help;
             d
@@ -231,7 +236,8 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
 
 fn looks_like_year(name: &str, values: &[Value]) -> bool {
     let n = name.to_ascii_lowercase();
-    let named = n == "year" || n == "yr" || n == "fy" || n.ends_with("_year") || n.starts_with("year_");
+    let named =
+        n == "year" || n == "yr" || n == "fy" || n.ends_with("_year") || n.starts_with("year_");
     named
         && values.iter().any(|v| !matches!(v, Value::Missing))
         && values.iter().all(|v| match v {
@@ -333,9 +339,7 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
         return Ok(Shape::Relationship {
             x: measures[0].name.clone(),
             y: measures[1].name.clone(),
-            label: names
-                .filter(|n| n.distinct <= 30)
-                .map(|n| n.name.clone()),
+            label: names.filter(|n| n.distinct <= 30).map(|n| n.name.clone()),
         });
     }
     if let Some(cat) = category {
@@ -429,7 +433,11 @@ pub fn summary(p: &Profile, shape: Option<&Shape>) -> String {
             None if c.ty == ColType::Text => format!("names up to {} characters", c.longest),
             None => String::new(),
         };
-        let note = if c.nameable { "" } else { "  (not a plain name: left out)" };
+        let note = if c.nameable {
+            ""
+        } else {
+            "  (not a plain name: left out)"
+        };
         let _ = writeln!(
             s,
             "  {:width$}  {:6}  {:>8}  {:>7}  {range}{note}",
@@ -579,15 +587,27 @@ fn capital(s: &str) -> String {
 pub fn write_story(table: &Table, p: &Profile, shape: &Shape, data_path: &str) -> String {
     let mut s = String::new();
     let stem = p.file.trim_end_matches(".csv").trim_end_matches(".CSV");
-    let _ = writeln!(s, "# Starter story written by `crescendo new` from {}.", p.file);
+    let _ = writeln!(
+        s,
+        "# Starter story written by `crescendo new` from {}.",
+        p.file
+    );
     let _ = writeln!(
         s,
         "# Replace every TODO; `crescendo build` checks the claim and lints each frame."
     );
     let _ = writeln!(s);
-    let _ = writeln!(s, "story {}", quote(&format!("TODO: the headline of {}", words(stem))));
+    let _ = writeln!(
+        s,
+        "story {}",
+        quote(&format!("TODO: the headline of {}", words(stem)))
+    );
     let _ = writeln!(s, "byline \"TODO: your team\"");
-    let _ = writeln!(s, "source {}", quote(&format!("{} (TODO: say where it comes from)", p.file)));
+    let _ = writeln!(
+        s,
+        "source {}",
+        quote(&format!("{} (TODO: say where it comes from)", p.file))
+    );
     let _ = writeln!(s);
     let years: Vec<&ColumnProfile> = p.columns.iter().filter(|c| c.ty == ColType::Year).collect();
     let data = data_name(stem);
@@ -596,28 +616,44 @@ pub fn write_story(table: &Table, p: &Profile, shape: &Shape, data_path: &str) -
     } else {
         let _ = writeln!(s, "# whole numbers named like a year are read as years");
         let decls: Vec<String> = years.iter().map(|c| format!("{}: year", c.name)).collect();
-        let _ = writeln!(s, "data {data} from {} {{ {} }}", quote(data_path), decls.join(", "));
+        let _ = writeln!(
+            s,
+            "data {data} from {} {{ {} }}",
+            quote(data_path),
+            decls.join(", ")
+        );
     }
     let s_before = s.len();
     let _ = writeln!(s);
     match shape {
-        Shape::Trend { time, measure, series } => {
-            trend(&mut s, table, time, measure, series.as_deref())
-        }
-        Shape::Periods { period, category, measure } => {
-            periods(&mut s, table, period, category, measure)
-        }
+        Shape::Trend {
+            time,
+            measure,
+            series,
+        } => trend(&mut s, table, time, measure, series.as_deref()),
+        Shape::Periods {
+            period,
+            category,
+            measure,
+        } => periods(&mut s, table, period, category, measure),
         Shape::Relationship { x, y, label } => relationship(&mut s, table, x, y, label.as_deref()),
-        Shape::PartOfWhole { category, part, measure } => {
-            part_of_whole(&mut s, table, category, part, measure)
-        }
+        Shape::PartOfWhole {
+            category,
+            part,
+            measure,
+        } => part_of_whole(&mut s, table, category, part, measure),
         Shape::Distribution { name, measure } => distribution(&mut s, table, name, measure),
-        Shape::Comparison { category, measure, horizontal, top } => {
-            comparison(&mut s, table, category, measure, *horizontal, *top)
-        }
+        Shape::Comparison {
+            category,
+            measure,
+            horizontal,
+            top,
+        } => comparison(&mut s, table, category, measure, *horizontal, *top),
     }
     // the forms write `= table`; the data item is named after the file
-    let body = s.split_off(s_before).replace(" = table\n", &format!(" = {data}\n"));
+    let body = s
+        .split_off(s_before)
+        .replace(" = table\n", &format!(" = {data}\n"));
     s.push_str(&body);
     s
 }
@@ -627,7 +663,13 @@ pub fn write_story(table: &Table, p: &Profile, shape: &Shape, data_path: &str) -
 fn data_name(stem: &str) -> String {
     let mut n: String = stem
         .chars()
-        .map(|c| if c.is_ascii_alphanumeric() { c.to_ascii_lowercase() } else { '_' })
+        .map(|c| {
+            if c.is_ascii_alphanumeric() {
+                c.to_ascii_lowercase()
+            } else {
+                '_'
+            }
+        })
         .collect();
     if n.starts_with(|c: char| c.is_ascii_digit()) {
         n.insert(0, '_');
@@ -661,7 +703,10 @@ fn value_and_claim(s: &mut String, view: &str, measure: &str) {
 }
 
 fn conclusion_frame(s: &mut String) {
-    let _ = writeln!(s, "# 4. Conclusion (placeholder): say what the audience should do.");
+    let _ = writeln!(
+        s,
+        "# 4. Conclusion (placeholder): say what the audience should do."
+    );
     let _ = writeln!(s, "frame \"TODO: what to do about it\" {{");
     let _ = writeln!(s, "  takeaway \"{{conclusion}}\"");
     let _ = writeln!(s, "}}");
@@ -676,7 +721,10 @@ fn trend(s: &mut String, table: &Table, time: &str, measure: &str, series: Optio
     );
     match series {
         Some(cat) => {
-            let _ = writeln!(s, "# A few {cat} values: one line each (more would tangle).");
+            let _ = writeln!(
+                s,
+                "# A few {cat} values: one line each (more would tangle)."
+            );
             let _ = writeln!(s, "view over_time = table");
             let _ = writeln!(s, "  | by {time}, {cat}: {measure} = sum({measure})");
         }
@@ -692,8 +740,15 @@ fn trend(s: &mut String, table: &Table, time: &str, measure: &str, series: Optio
         let _ = writeln!(s, "compare {cat} by {measure}");
         let _ = writeln!(s, "focus {}", quote(focus));
         let _ = writeln!(s);
-        let _ = writeln!(s, "# 1. Context: one line first, so the pattern over time is clear.");
-        let _ = writeln!(s, "frame {} {{", quote(&format!("{} over time", capital(&m))));
+        let _ = writeln!(
+            s,
+            "# 1. Context: one line first, so the pattern over time is clear."
+        );
+        let _ = writeln!(
+            s,
+            "frame {} {{",
+            quote(&format!("{} over time", capital(&m)))
+        );
         let _ = writeln!(s, "  line over_time: x {time}, y {measure}, series {cat}");
         let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
         let _ = writeln!(s, "  hide all");
@@ -702,7 +757,11 @@ fn trend(s: &mut String, table: &Table, time: &str, measure: &str, series: Optio
         let _ = writeln!(s, "}}");
         let _ = writeln!(s);
         let _ = writeln!(s, "# 2. Comparison: every line, on the same axes.");
-        let _ = writeln!(s, "frame {} {{", quote(&format!("Every {} compared", words(cat))));
+        let _ = writeln!(
+            s,
+            "frame {} {{",
+            quote(&format!("Every {} compared", words(cat)))
+        );
         let _ = writeln!(s, "  show all");
         let _ = writeln!(s, "  takeaway \"TODO: how the lines differ\"");
         let _ = writeln!(s, "}}");
@@ -714,13 +773,20 @@ fn trend(s: &mut String, table: &Table, time: &str, measure: &str, series: Optio
         let _ = writeln!(s, "}}");
     } else {
         let _ = writeln!(s, "# 1. Context: the whole series.");
-        let _ = writeln!(s, "frame {} {{", quote(&format!("{} over time", capital(&m))));
+        let _ = writeln!(
+            s,
+            "frame {} {{",
+            quote(&format!("{} over time", capital(&m)))
+        );
         let _ = writeln!(s, "  line over_time: x {time}, y {measure}");
         let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
         let _ = writeln!(s, "  takeaway \"TODO: what the line shows\"");
         let _ = writeln!(s, "}}");
         let _ = writeln!(s);
-        let _ = writeln!(s, "# 2. Comparison: the first and the last value, labelled.");
+        let _ = writeln!(
+            s,
+            "# 2. Comparison: the first and the last value, labelled."
+        );
         let _ = writeln!(s, "frame \"From the first period to the last\" {{");
         let _ = writeln!(s, "  label ends");
         let _ = writeln!(s, "  takeaway \"TODO: how far it moved\"");
@@ -729,7 +795,11 @@ fn trend(s: &mut String, table: &Table, time: &str, measure: &str, series: Optio
         let _ = writeln!(s, "# 3. Spotlight: a note at the highest point.");
         let _ = writeln!(s, "frame \"The highest point\" {{");
         if let Some(peak) = largest(&totals(table, time, measure)) {
-            let at = if peak.contains('-') { quote(&peak) } else { peak };
+            let at = if peak.contains('-') {
+                quote(&peak)
+            } else {
+                peak
+            };
             let _ = writeln!(s, "  callout {at} \"Highest: {{highest}}\"");
         }
         let _ = writeln!(s, "  takeaway \"TODO: why it peaked there\"");
@@ -761,8 +831,15 @@ fn periods(s: &mut String, table: &Table, period: &str, category: &str, measure:
     let _ = writeln!(s, "focus {}", quote(&focus));
     let _ = writeln!(s);
     let _ = writeln!(s, "# 1. Context: every {category} in both periods.");
-    let _ = writeln!(s, "frame {} {{", quote(&format!("{} by {}", capital(&m), words(category))));
-    let _ = writeln!(s, "  bars by_period: category {category}, value {measure}, group {period}");
+    let _ = writeln!(
+        s,
+        "frame {} {{",
+        quote(&format!("{} by {}", capital(&m), words(category)))
+    );
+    let _ = writeln!(
+        s,
+        "  bars by_period: category {category}, value {measure}, group {period}"
+    );
     let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
     let _ = writeln!(s, "  takeaway \"TODO: what the bars show\"");
     let _ = writeln!(s, "}}");
@@ -857,26 +934,47 @@ fn part_of_whole(s: &mut String, table: &Table, category: &str, part: &str, meas
     let _ = writeln!(s, "compare {part} by {measure}");
     let _ = writeln!(s, "focus {}", quote(&focus));
     let _ = writeln!(s);
-    let _ = writeln!(s, "# 1. Context: the whole of each {category}, split into its parts.");
+    let _ = writeln!(
+        s,
+        "# 1. Context: the whole of each {category}, split into its parts."
+    );
     let _ = writeln!(
         s,
         "frame {} {{",
-        quote(&format!("{} by {} and {}", capital(&m), words(category), words(part)))
+        quote(&format!(
+            "{} by {} and {}",
+            capital(&m),
+            words(category),
+            words(part)
+        ))
     );
-    let _ = writeln!(s, "  bars parts: category {category}, value {measure}, stack {part}");
+    let _ = writeln!(
+        s,
+        "  bars parts: category {category}, value {measure}, stack {part}"
+    );
     let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
     let _ = writeln!(s, "  takeaway \"TODO: what the totals show\"");
     let _ = writeln!(s, "}}");
     let _ = writeln!(s);
-    let _ = writeln!(s, "# 2. Comparison: the parts side by side instead of stacked.");
+    let _ = writeln!(
+        s,
+        "# 2. Comparison: the parts side by side instead of stacked."
+    );
     let _ = writeln!(s, "frame \"The parts side by side\" {{");
-    let _ = writeln!(s, "  bars parts: category {category}, value {measure}, group {part}");
+    let _ = writeln!(
+        s,
+        "  bars parts: category {category}, value {measure}, group {part}"
+    );
     let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
     let _ = writeln!(s, "  takeaway \"TODO: which part leads where\"");
     let _ = writeln!(s, "}}");
     let _ = writeln!(s);
     let _ = writeln!(s, "# 3. Spotlight: the largest part in colour.");
-    let _ = writeln!(s, "frame {} {{", quote(&format!("{focus} is the largest part")));
+    let _ = writeln!(
+        s,
+        "frame {} {{",
+        quote(&format!("{focus} is the largest part"))
+    );
     let _ = writeln!(s, "  spotlight focus");
     let _ = writeln!(s, "  takeaway \"Its highest value: {{highest}}.\"");
     let _ = writeln!(s, "}}");
@@ -943,7 +1041,10 @@ fn comparison(
     let _ = writeln!(s, "view ranked = table");
     let _ = writeln!(s, "  | by {category}: {measure} = sum({measure})");
     if let Some(n) = top {
-        let _ = writeln!(s, "  # many {category} values: the largest ones, the rest together");
+        let _ = writeln!(
+            s,
+            "  # many {category} values: the largest ones, the rest together"
+        );
         let _ = writeln!(s, "  | top {n} {category} by {measure} rest \"Others\"");
     }
     let _ = writeln!(s, "  | sort {measure} descending");
@@ -955,8 +1056,15 @@ fn comparison(
     let _ = writeln!(s);
     let orient = if horizontal { ", horizontal" } else { "" };
     let _ = writeln!(s, "# 1. Context: every {category}, largest first.");
-    let _ = writeln!(s, "frame {} {{", quote(&format!("{} by {}", capital(&m), words(category))));
-    let _ = writeln!(s, "  bars ranked: category {category}, value {measure}{orient}");
+    let _ = writeln!(
+        s,
+        "frame {} {{",
+        quote(&format!("{} by {}", capital(&m), words(category)))
+    );
+    let _ = writeln!(
+        s,
+        "  bars ranked: category {category}, value {measure}{orient}"
+    );
     let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
     let _ = writeln!(s, "  takeaway \"TODO: what the ranking shows\"");
     let _ = writeln!(s, "}}");

@@ -26,9 +26,15 @@ fn new_story_builds_clean(dir: &Path, csv: &str) -> (String, String) {
     assert!(out.status.success(), "new {csv}: {stdout}\n{stderr}");
     let story = csv.trim_end_matches(".csv").to_string() + ".cresc";
     let deck = format!("deck-{story}");
-    let built = crescendo(dir, &["build", &story, "--deny", "warnings", "--out", &deck]);
+    let built = crescendo(
+        dir,
+        &["build", &story, "--deny", "warnings", "--out", &deck],
+    );
     let (bout, berr) = text(&built);
-    assert!(built.status.success(), "{story} does not build:\n{bout}\n{berr}");
+    assert!(
+        built.status.success(),
+        "{story} does not build:\n{bout}\n{berr}"
+    );
     assert!(
         !berr.contains("warning") && !berr.contains("advice") && !berr.contains("error"),
         "{story} has lint findings:\n{berr}"
@@ -95,19 +101,39 @@ fn synthetic() -> Vec<(&'static str, String, &'static str)> {
     }
     let mut pairs = String::from("shop,floor_area,turnover\n");
     for i in 0..12 {
-        pairs += &format!("Shop {i},{},{}\n", 80 + 15 * i, 1000 + 140 * i + (i * 53) % 90);
+        pairs += &format!(
+            "Shop {i},{},{}\n",
+            80 + 15 * i,
+            1000 + 140 * i + (i * 53) % 90
+        );
     }
     let mut missing = String::from("week,visits\n");
     for d in 1..=20 {
-        let v = if d % 6 == 0 { "NA".to_string() } else { (40 + d * 3).to_string() };
+        let v = if d % 6 == 0 {
+            "NA".to_string()
+        } else {
+            (40 + d * 3).to_string()
+        };
         missing += &format!("2024-03-{d:02},{v}\n");
     }
     vec![
-        ("time_series.csv", series, "line of sales over month, one line per region"),
-        ("long_names.csv", long, "horizontal bars of spend by department"),
+        (
+            "time_series.csv",
+            series,
+            "line of sales over month, one line per region",
+        ),
+        (
+            "long_names.csv",
+            long,
+            "horizontal bars of spend by department",
+        ),
         ("few_parts.csv", parts, "stacked by fuel (part of a whole"),
         ("distribution.csv", spread, "dot plot of minutes"),
-        ("two_measures.csv", pairs, "scatter of turnover against floor_area"),
+        (
+            "two_measures.csv",
+            pairs,
+            "scatter of turnover against floor_area",
+        ),
         ("with_gaps.csv", missing, "line of visits over week"),
     ]
 }
@@ -118,7 +144,10 @@ fn new_chooses_the_form_from_the_shape_and_the_story_builds_clean() {
     for (name, csv, form) in synthetic() {
         fs::write(dir.join(name), csv).expect("write csv");
         let (story, summary) = new_story_builds_clean(&dir, name);
-        assert!(summary.contains(form), "{name}: expected `{form}` in\n{summary}");
+        assert!(
+            summary.contains(form),
+            "{name}: expected `{form}` in\n{summary}"
+        );
         // a value, a claim, and four frames that build up
         assert!(story.contains("\nvalue highest = "), "{story}");
         assert!(story.contains("\nclaim "), "{story}");
@@ -146,7 +175,10 @@ fn new_refuses_to_replace_a_story_unless_forced() {
     let out = crescendo(&dir, &["new", name]);
     assert_eq!(out.status.code(), Some(1));
     assert!(text(&out).1.contains("exists"), "{:?}", text(&out));
-    assert_eq!(fs::read_to_string(dir.join("long_names.cresc")).unwrap(), "# mine\n");
+    assert_eq!(
+        fs::read_to_string(dir.join("long_names.cresc")).unwrap(),
+        "# mine\n"
+    );
     let forced = crescendo(&dir, &["new", name, "--force"]);
     assert!(forced.status.success());
     // --out writes elsewhere, with the data path relative to the story
@@ -155,7 +187,10 @@ fn new_refuses_to_replace_a_story_unless_forced() {
     assert!(out.status.success(), "{:?}", text(&out));
     let story = fs::read_to_string(dir.join("stories/spend.cresc")).unwrap();
     assert!(story.contains("from \"../long_names.csv\""), "{story}");
-    let built = crescendo(&dir, &["build", "stories/spend.cresc", "--deny", "warnings"]);
+    let built = crescendo(
+        &dir,
+        &["build", "stories/spend.cresc", "--deny", "warnings"],
+    );
     assert!(built.status.success(), "{:?}", text(&built));
 }
 
@@ -165,7 +200,11 @@ fn new_reports_a_file_it_cannot_start_from() {
     fs::write(dir.join("words.csv"), "a,b\nx,y\nz,w\n").unwrap();
     let out = crescendo(&dir, &["new", "words.csv"]);
     assert_eq!(out.status.code(), Some(1));
-    assert!(text(&out).1.contains("no column of numbers"), "{:?}", text(&out));
+    assert!(
+        text(&out).1.contains("no column of numbers"),
+        "{:?}",
+        text(&out)
+    );
     assert!(!dir.join("words.cresc").exists());
     let out = crescendo(&dir, &["new", "missing.csv"]);
     assert_eq!(out.status.code(), Some(1));
@@ -185,26 +224,54 @@ fn formatting_a_demo_story_gives_a_byte_identical_deck() {
         fs::write(&copy, &formatted).expect("write copy");
         let out = scratch(&format!("fmt-deck-{name}"));
         let (a, b) = (out.join("a"), out.join("b"));
-        let one = crescendo(&root(), &["build", path.to_str().unwrap(), "--no-cache", "--out", a.to_str().unwrap()]);
-        let two = crescendo(&root(), &["build", copy.to_str().unwrap(), "--no-cache", "--out", b.to_str().unwrap()]);
+        let one = crescendo(
+            &root(),
+            &[
+                "build",
+                path.to_str().unwrap(),
+                "--no-cache",
+                "--out",
+                a.to_str().unwrap(),
+            ],
+        );
+        let two = crescendo(
+            &root(),
+            &[
+                "build",
+                copy.to_str().unwrap(),
+                "--no-cache",
+                "--out",
+                b.to_str().unwrap(),
+            ],
+        );
         let _ = fs::remove_file(&copy);
         assert!(one.status.success(), "{name}: {:?}", text(&one));
         assert!(two.status.success(), "{name}: {:?}", text(&two));
-        assert_eq!(read_dir_files(&a), read_dir_files(&b), "{name}: decks differ");
+        assert_eq!(
+            read_dir_files(&a),
+            read_dir_files(&b),
+            "{name}: decks differ"
+        );
     }
 }
 
 #[test]
 fn fmt_check_lists_files_and_fmt_rewrites_them_once() {
     let dir = scratch("fmt-cli");
-    fs::write(dir.join("a.cresc"), "story   \"A\"\nframe \"F\" { show all;hide all }\n").unwrap();
+    fs::write(
+        dir.join("a.cresc"),
+        "story   \"A\"\nframe \"F\" { show all;hide all }\n",
+    )
+    .unwrap();
     fs::write(dir.join("b.cresc"), "story \"B\"\n").unwrap();
     let check = crescendo(&dir, &["fmt", "--check", "a.cresc", "b.cresc"]);
     assert_eq!(check.status.code(), Some(1));
     let (out, _) = text(&check);
     assert!(out.contains("a.cresc") && !out.contains("b.cresc"), "{out}");
     // --check changed nothing
-    assert!(fs::read_to_string(dir.join("a.cresc")).unwrap().contains(";hide"));
+    assert!(fs::read_to_string(dir.join("a.cresc"))
+        .unwrap()
+        .contains(";hide"));
     let run = crescendo(&dir, &["fmt", "a.cresc", "b.cresc"]);
     assert!(run.status.success(), "{:?}", text(&run));
     assert_eq!(
@@ -231,7 +298,10 @@ fn fmt_leaves_a_story_with_syntax_errors_untouched_and_says_where() {
     assert!(err.contains("bad.cresc was not formatted"), "{err}");
     assert_eq!(fs::read_to_string(dir.join("bad.cresc")).unwrap(), broken);
     // the other file was still formatted
-    assert_eq!(fs::read_to_string(dir.join("good.cresc")).unwrap(), "story \"B\"\n");
+    assert_eq!(
+        fs::read_to_string(dir.join("good.cresc")).unwrap(),
+        "story \"B\"\n"
+    );
 }
 
 // ------------------------------------------------------------------ shell
@@ -239,8 +309,17 @@ fn fmt_leaves_a_story_with_syntax_errors_untouched_and_says_where() {
 #[test]
 fn completions_and_manual_mention_every_subcommand() {
     let subcommands = [
-        "build", "watch", "check", "plugins", "explain", "plan", "diff", "new", "fmt",
-        "completions", "manual",
+        "build",
+        "watch",
+        "check",
+        "plugins",
+        "explain",
+        "plan",
+        "diff",
+        "new",
+        "fmt",
+        "completions",
+        "manual",
     ];
     for shell in ["bash", "zsh", "fish"] {
         let out = crescendo(&root(), &["completions", shell]);
@@ -254,7 +333,11 @@ fn completions_and_manual_mention_every_subcommand() {
     let out = crescendo(&root(), &["manual"]);
     assert!(out.status.success());
     let (page, _) = text(&out);
-    assert!(page.starts_with(".ie") || page.contains(".TH crescendo"), "{}", &page[..200.min(page.len())]);
+    assert!(
+        page.starts_with(".ie") || page.contains(".TH crescendo"),
+        "{}",
+        &page[..200.min(page.len())]
+    );
     for sub in subcommands {
         assert!(
             page.contains(&format!("COMMAND: {}", sub.to_uppercase())),
@@ -278,7 +361,7 @@ fn conventions_story(dir: &Path, header: &str) -> String {
         "story \"Sales\"\nsource \"Invented\"\n{header}\ndata sales from \"sales.csv\"\n\
          value total = sum(sales.sales)\nvalue latest = last(sales.month)\n\
          conclusion \"Keep going.\"\n\
-         frame \"Total {{total:.2}} up to {{latest}}\" {{\n  line sales: x month, y sales\n  y title \"Sales\"\n}}\n"
+         frame \"Total {{total:.2}} up to {{latest}} ({{latest:quarter}})\" {{\n  line sales: x month, y sales\n  y title \"Sales\"\n}}\n"
     );
     fs::write(dir.join("sales.cresc"), story).unwrap();
     let out = crescendo(dir, &["plan", "sales.cresc"]);
@@ -291,7 +374,10 @@ fn a_locale_and_a_fiscal_year_change_numbers_dates_and_ticks() {
     let dir = scratch("conventions");
     let plain = conventions_story(&dir, "");
     // default: today's conventions
-    assert!(plain.contains("Total 39,093.00 up to Jun 2025"), "{plain}");
+    assert!(
+        plain.contains("Total 39,093.00 up to Jun 2025 (2025 Q2)"),
+        "{plain}"
+    );
     assert!(plain.contains("\"label\": \"Jul 2023\""), "{plain}");
     assert!(plain.contains("\"label\": \"1,200\""), "{plain}");
     // CLDR 49 (ICU4X 2.4 compiled data): German groups with `.` and uses a
@@ -302,12 +388,17 @@ fn a_locale_and_a_fiscal_year_change_numbers_dates_and_ticks() {
     // French: decimal comma, U+202F NARROW NO-BREAK SPACE between groups,
     // abbreviated month names with a full stop ("juil." for July).
     let fr = conventions_story(&dir, "locale \"fr-FR\"");
-    assert!(fr.contains("Total 39\u{202f}093,00 up to juin 2025"), "{fr}");
+    assert!(
+        fr.contains("Total 39\u{202f}093,00 up to juin 2025"),
+        "{fr}"
+    );
     assert!(fr.contains("\"label\": \"juil. 2023\""), "{fr}");
     // A fiscal year from July: July 2023 to June 2024 is FY2024 (named by
     // the calendar year it ends in), so the quarter ticks read FY2024 Q1
     // (Jul 2023), Q2 (Oct), Q3 (Jan 2024), Q4 (Apr), FY2025 Q1 (Jul 2024).
     let fy = conventions_story(&dir, "fiscal year starts July");
+    // June 2025 is the last month of FY2025 (July 2024 to June 2025)
+    assert!(fy.contains("up to Jun 2025 (FY2025 Q4)"), "{fy}");
     assert!(fy.contains("\"label\": \"FY2024 Q1\""), "{fy}");
     assert!(fy.contains("\"label\": \"Q3\""), "{fy}");
     assert!(fy.contains("\"label\": \"FY2025 Q1\""), "{fy}");
@@ -334,6 +425,9 @@ fn unknown_locales_and_months_are_located_errors() {
         let out = crescendo(&dir, &["check", "s.cresc"]);
         assert_eq!(out.status.code(), Some(1), "{line}");
         let (_, err) = text(&out);
-        assert!(err.contains(expect) && err.contains("s.cresc:2:"), "{line}: {err}");
+        assert!(
+            err.contains(expect) && err.contains("s.cresc:2:"),
+            "{line}: {err}"
+        );
     }
 }

@@ -69,7 +69,14 @@ fn keyword_lists_are_equal() {
         "missing from the editor grammar: {missing:?}; not keywords in pest: {extra:?}"
     );
     // every pattern compiles without Oniguruma-only syntax
-    for name in ["comment", "rule-name", "keyword", "number", "operator", "name"] {
+    for name in [
+        "comment",
+        "rule-name",
+        "keyword",
+        "number",
+        "operator",
+        "name",
+    ] {
         Regex::new(&pattern(&g, name)).unwrap_or_else(|e| panic!("{name}: {e}"));
     }
 }
@@ -78,7 +85,11 @@ fn keyword_lists_are_equal() {
 fn highlighted_keywords(g: &Value, text: &str) -> Vec<Range<usize>> {
     let string = format!(
         "{}(?:[^\"\\\\\\n]|\\\\.)*(?:\"|$)",
-        regex::escape(g["repository"]["string"]["begin"].as_str().expect("string begin"))
+        regex::escape(
+            g["repository"]["string"]["begin"]
+                .as_str()
+                .expect("string begin")
+        )
     );
     // in the grammar's order
     let pats: Vec<(&str, Regex)> = [
@@ -97,7 +108,12 @@ fn highlighted_keywords(g: &Value, text: &str) -> Vec<Range<usize>> {
         .as_array()
         .expect("patterns")
         .iter()
-        .map(|p| p["include"].as_str().expect("include").trim_start_matches('#'))
+        .map(|p| {
+            p["include"]
+                .as_str()
+                .expect("include")
+                .trim_start_matches('#')
+        })
         .collect();
     assert_eq!(order, pats.iter().map(|(n, _)| *n).collect::<Vec<_>>());
     let mut out = Vec::new();

@@ -62,13 +62,14 @@ impl Locale {
                 "no number and date conventions for the language of `{tag}`"
             ));
         }
-        let fail = |what: &str, e: &dyn std::fmt::Debug| format!("no {what} data for `{tag}`: {e:?}");
+        let fail =
+            |what: &str, e: &dyn std::fmt::Debug| format!("no {what} data for `{tag}`: {e:?}");
         let decimal = DecimalFormatter::try_new((&parsed).into(), Default::default())
             .map_err(|e| fail("number", &e))?;
         let mut options = icu_decimal::options::DecimalFormatterOptions::default();
         options.grouping_strategy = Some(icu_decimal::options::GroupingStrategy::Never);
-        let ungrouped = DecimalFormatter::try_new((&parsed).into(), options)
-            .map_err(|e| fail("number", &e))?;
+        let ungrouped =
+            DecimalFormatter::try_new((&parsed).into(), options).map_err(|e| fail("number", &e))?;
         let month = FixedCalendarDateTimeFormatter::try_new((&parsed).into(), M::medium())
             .map_err(|e| fail("month", &e))?;
         let month_year = FixedCalendarDateTimeFormatter::try_new((&parsed).into(), YM::medium())
@@ -103,7 +104,12 @@ impl Locale {
         let plain: String = body.chars().filter(|&c| c != ',').collect();
         // A number of a thousand or more written without groups (a count
         // in a sentence, a year) stays without groups.
-        let int_digits = plain.split('.').next().unwrap_or("").trim_start_matches('-').len();
+        let int_digits = plain
+            .split('.')
+            .next()
+            .unwrap_or("")
+            .trim_start_matches('-')
+            .len();
         let formatter = if int_digits >= 4 && !body.contains(',') {
             &self.ungrouped
         } else {
@@ -224,7 +230,11 @@ impl Fiscal {
 
     /// "FY2025 Q3" (fiscal) or "2025 Q3" (calendar).
     pub fn quarter_label(self, year: i32, month: u32) -> String {
-        format!("{} Q{}", self.year_label(year, month), self.quarter_of(month))
+        format!(
+            "{} Q{}",
+            self.year_label(year, month),
+            self.quarter_of(month)
+        )
     }
 }
 

@@ -83,8 +83,18 @@ const MONTHS: [&str; 12] = [
 /// abbreviation, in any case: `July`, `jul` → 7.
 pub fn month_from_name(name: &str) -> Option<u32> {
     const FULL: [&str; 12] = [
-        "january", "february", "march", "april", "may", "june", "july", "august", "september",
-        "october", "november", "december",
+        "january",
+        "february",
+        "march",
+        "april",
+        "may",
+        "june",
+        "july",
+        "august",
+        "september",
+        "october",
+        "november",
+        "december",
     ];
     let lower = name.to_ascii_lowercase();
     FULL.iter()

@@ -93,9 +93,7 @@ impl Item {
     pub fn span(&self) -> &Span {
         match self {
             Item::Title(t) | Item::Byline(t) | Item::Source(t) | Item::Conclusion(t) => &t.span,
-            Item::Theme { span, .. } | Item::Focus { span, .. } | Item::Fiscal { span, .. } => {
-                span
-            }
+            Item::Theme { span, .. } | Item::Focus { span, .. } | Item::Fiscal { span, .. } => span,
             Item::Data(d) => &d.span,
             Item::View(v) => &v.span,
             Item::Compare(c) => &c.span,

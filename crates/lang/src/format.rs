@@ -966,7 +966,10 @@ impl<'a> Printer<'a> {
 /// line breaks.
 fn has_empty_line(gap: &str) -> bool {
     let parts: Vec<&str> = gap.split('\n').collect();
-    parts.len() >= 3 && parts[1..parts.len() - 1].iter().any(|l| l.trim().is_empty())
+    parts.len() >= 3
+        && parts[1..parts.len() - 1]
+            .iter()
+            .any(|l| l.trim().is_empty())
 }
 
 fn axis_kw(a: AxisName) -> &'static str {

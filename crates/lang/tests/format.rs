@@ -26,7 +26,11 @@ fn demo_stories() -> Vec<(String, String)> {
             }
         }
     }
-    assert!(out.len() >= 5, "expected the demo stories, found {}", out.len());
+    assert!(
+        out.len() >= 5,
+        "expected the demo stories, found {}",
+        out.len()
+    );
     out
 }
 
@@ -80,13 +84,63 @@ fn trailing_and_leading_comments_stay_where_they_were() {
 
 #[test]
 fn redundant_parentheses_go_and_needed_ones_stay() {
-    let out = format_story("value a = ((1 + 2)) * 3\nvalue b = 1 - (2 - 3)\nvalue c = (1 - 2) - 3\n")
-        .expect("formats");
-    assert_eq!(out, "value a = (1 + 2) * 3\nvalue b = 1 - (2 - 3)\nvalue c = 1 - 2 - 3\n");
+    let out =
+        format_story("value a = ((1 + 2)) * 3\nvalue b = 1 - (2 - 3)\nvalue c = (1 - 2) - 3\n")
+            .expect("formats");
+    assert_eq!(
+        out,
+        "value a = (1 + 2) * 3\nvalue b = 1 - (2 - 3)\nvalue c = 1 - 2 - 3\n"
+    );
 }
 
 #[test]
 fn an_empty_story_stays_empty_and_a_comment_only_story_keeps_its_comment() {
     assert_eq!(format_story("").expect("formats"), "");
-    assert_eq!(format_story("  # just a note  \n\n").expect("formats"), "# just a note\n");
+    assert_eq!(
+        format_story("  # just a note  \n\n").expect("formats"),
+        "# just a note\n"
+    );
+}
+
+#[test]
+fn locale_and_fiscal_statements_parse_and_format() {
+    let text = "story \"S\"\nlocale   \"de-DE\"\nfiscal  year   starts July  # budget year\nframe \"F {m:quarter} {m:year}\" {}\n";
+    let (ast, diags) = parse(&Source::file("s", text));
+    assert!(diags.is_empty(), "{diags:?}");
+    use crescendo_lang::ast::Item;
+    assert!(matches!(&ast.items[1], Item::Locale(t) if t.text.value == "de-DE"));
+    assert!(matches!(&ast.items[2], Item::Fiscal { month, .. } if month.name == "July"));
+    assert_eq!(
+        format_story(text).expect("formats"),
+        "story \"S\"\nlocale \"de-DE\"\nfiscal year starts July  # budget year\nframe \"F {m:quarter} {m:year}\" {}\n"
+    );
+    // the statement needs all three words and a month
+    let (_, diags) = parse(&Source::file("s", "fiscal starts July\n"));
+    assert_eq!(diags.len(), 1);
+    let (_, diags) = parse(&Source::file("s", "fiscal year starts\n"));
+    assert_eq!(diags.len(), 1);
+    // quoted periods: `quarter` and `year` formats
+    let lit = "\"{m:quarter} {m:year} {x:.1%}\"";
+    let s = crescendo_lang::ast::Str {
+        value: lit.trim_matches('"').into(),
+        span: 0..lit.len(),
+    };
+    let t = crescendo_lang::parser::parse_template(&Source::file("s", lit), &s).expect("template");
+    let styles: Vec<_> = t
+        .parts
+        .iter()
+        .filter_map(|p| match p {
+            crescendo_lang::ast::TextPart::Quote { format, .. } => Some(format.style),
+            _ => None,
+        })
+        .collect();
+    use crescendo_lang::ast::NumberStyle;
+    assert_eq!(
+        styles,
+        [
+            NumberStyle::Quarter,
+            NumberStyle::Year,
+            NumberStyle::Percent
+        ]
+    );
 }

@@ -2068,9 +2068,7 @@ fn set_range(
 fn describe(chart: &Chart, key: &str, takeaway: Option<&str>) -> String {
     let tick_label = |axis: &Axis, v: f64| -> String {
         match axis.scale {
-            ScaleKind::Months => {
-                time::month_label(v.round() as i32)
-            }
+            ScaleKind::Months => time::month_label(v.round() as i32),
             ScaleKind::Days => time::date_iso(v.round() as i32),
             ScaleKind::Years => format!("{}", v.round() as i64),
             ScaleKind::Categories => axis

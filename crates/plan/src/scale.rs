@@ -469,9 +469,15 @@ fn month_ticks(lo: f64, hi: f64) -> Vec<Tick> {
         return Vec::new();
     };
     // A fiscal year moves the alignment of quarters, halves and years to
-    // its first month (offset 0 for the calendar year).
+    // its first month (offset 0 for the calendar year). Fiscal year N
+    // starts at month index (N - 1) * 12 + offset, hence the `- 12`: year
+    // ticks every five years fall on FY2000, FY2005…
     let fiscal = crescendo_data::locale::current().fiscal;
-    let offset = fiscal.offset();
+    let offset = if fiscal.is_fiscal() {
+        fiscal.offset() - 12
+    } else {
+        0
+    };
     let steps = [1, 2, 3, 6].into_iter().chain(year_steps().map(|y| 12 * y));
     for step in steps {
         let count = (last - offset).div_euclid(step) - ceil_to(first - offset, step) / step + 1;
@@ -933,6 +939,62 @@ mod tests {
         assert_eq!(labels(&a), ["Jan 2024", "Mar", "May", "Jul", "Sep", "Nov"]);
         let a = time_axis(ScaleKind::Months, month(2024, 3), month(2024, 8), None);
         assert_eq!(labels(&a), ["Mar 2024", "Apr", "May", "Jun", "Jul", "Aug"]);
+    }
+
+    /// Ticks in a fiscal year that starts in July (see
+    /// `crescendo_data::locale`): July 2024 to June 2025 is FY2025.
+    fn fiscal_july<R>(f: impl FnOnce() -> R) -> R {
+        crescendo_data::locale::scoped(crescendo_data::locale::Conventions::of(None, Some(7)), f)
+    }
+
+    #[test]
+    fn fiscal_quarters_halves_and_years() {
+        // Worked example: 2023-07 .. 2024-12 by quarters. July 2023 starts
+        // FY2024 (July 2023 to June 2024, named by the year it ends in), so
+        // Jul-Sep 2023 is FY2024 Q1, Oct-Dec Q2, Jan-Mar 2024 Q3, Apr-Jun
+        // Q4; July 2024 starts FY2025.
+        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2023, 7), month(2024, 12), None));
+        assert_eq!(
+            labels(&a),
+            ["FY2024 Q1", "Q2", "Q3", "Q4", "FY2025 Q1", "Q2"]
+        );
+        assert_eq!(a.ticks[0].value, month(2023, 7));
+        // Starting mid-quarter: the first tick names its fiscal year.
+        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2023, 9), month(2025, 2), None));
+        assert_eq!(
+            labels(&a),
+            ["FY2024 Q2", "Q3", "Q4", "FY2025 Q1", "Q2", "Q3"]
+        );
+        // Three years: half-years from July.
+        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2022, 1), month(2024, 12), None));
+        assert_eq!(
+            labels(&a),
+            [
+                "FY2022 H2",
+                "FY2023 H1",
+                "H2",
+                "FY2024 H1",
+                "H2",
+                "FY2025 H1"
+            ]
+        );
+        // Twenty-five years: fiscal years, each tick at a July.
+        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(1999, 6), month(2024, 6), None));
+        assert_eq!(
+            labels(&a),
+            ["FY2000", "FY2005", "FY2010", "FY2015", "FY2020"]
+        );
+        assert_eq!(a.ticks[0].value, month(1999, 7));
+        // Months stay months.
+        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2024, 1), month(2024, 6), None));
+        assert_eq!(labels(&a), ["Jan 2024", "Feb", "Mar", "Apr", "May", "Jun"]);
+        // Days over a year and a half: fiscal quarters on the 1st.
+        let a =
+            fiscal_july(|| time_axis(ScaleKind::Days, day(2023, 7, 1), day(2024, 12, 31), None));
+        assert_eq!(
+            labels(&a),
+            ["FY2024 Q1", "Q2", "Q3", "Q4", "FY2025 Q1", "Q2"]
+        );
     }
 
     #[test]

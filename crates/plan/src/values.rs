@@ -897,7 +897,9 @@ pub fn format_quantity(q: &Quantity, spec: &FormatSpec) -> String {
         {
             // the period of a month or a day, in the story's year
             let (y, m) = match q {
-                Quantity::Time(ColType::Month, m) => (time::month_year(*t), time::month_of_year(*m)),
+                Quantity::Time(ColType::Month, m) => {
+                    (time::month_year(*t), time::month_of_year(*m))
+                }
                 _ => {
                     let (y, m, _) = time::civil_from_days(*t);
                     (y, m)
