@@ -366,7 +366,7 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
             .iter()
             .filter(|c| c.distinct >= 2 && c.distinct < p.rows)
             .max_by_key(|c| c.distinct)
-            .unwrap_or(&cat);
+            .unwrap_or(cat);
         return Ok(Shape::Comparison {
             category: cat_full.name.clone(),
             measure: m,
@@ -906,12 +906,9 @@ fn relationship(s: &mut String, table: &Table, x: &str, y: &str, label: Option<&
     let _ = writeln!(s);
     let _ = writeln!(s, "# 3. Spotlight: the point with the largest {y}.");
     let _ = writeln!(s, "frame \"TODO: the point that matters\" {{");
-    match &focus {
-        Some(f) => {
-            let _ = writeln!(s, "  spotlight {}", quote(f));
-        }
-        // no names to point at: the takeaway carries the point
-        None => {}
+    // without names to point at, the takeaway carries the point
+    if let Some(f) = &focus {
+        let _ = writeln!(s, "  spotlight {}", quote(f));
     }
     let _ = writeln!(s, "  takeaway \"The highest {}: {{highest}}.\"", words(y));
     let _ = writeln!(s, "}}");

@@ -423,25 +423,33 @@ impl<'a> Printer<'a> {
     }
 
     fn data(&mut self, d: &DataDecl) {
+        // destructured in full: a new part of the statement does not
+        // compile until it has a layout here
+        let DataDecl {
+            name,
+            file,
+            missing,
+            columns,
+            span: _,
+        } = d;
         self.s("data ");
-        self.raw(&d.name.span);
+        self.raw(&name.span);
         self.s(" from ");
-        self.raw(&d.file.span);
-        if let Some(missing) = &d.missing {
+        self.raw(&file.span);
+        if let Some(missing) = missing {
             self.s(" missing ");
             self.strs(missing);
         }
-        if d.columns.is_empty() {
+        let (Some(first), Some(last)) = (columns.first(), columns.last()) else {
             return;
-        }
-        let first = d.columns[0].span.start;
-        let last = d.columns[d.columns.len() - 1].span.end;
+        };
+        let (first, last) = (first.span.start, last.span.end);
         let open = self.src[..first].rfind('{').unwrap_or(first);
         let close = self.src[last..].find('}').map_or(last, |o| last + o);
         let multiline = self.src[open..close].contains('\n');
         if !multiline {
             self.s(" { ");
-            for (i, c) in d.columns.iter().enumerate() {
+            for (i, c) in columns.iter().enumerate() {
                 if i > 0 {
                     self.s(", ");
                 }
@@ -454,7 +462,7 @@ impl<'a> Printer<'a> {
         self.trailing(open + 1);
         self.newline();
         self.level += 1;
-        for c in &d.columns {
+        for c in columns {
             self.leading(c.span.start, true);
             self.indent();
             self.column(c);
