@@ -121,6 +121,15 @@ impl Locale {
         }
     }
 
+    /// The decimal separator ("," for de-DE and fr-FR, "." for en-IN).
+    pub fn decimal_separator(&self) -> String {
+        let one_and_half = self.number("1.5");
+        one_and_half
+            .trim_start_matches('1')
+            .trim_end_matches('5')
+            .to_string()
+    }
+
     fn date(y: i32, m: u32, d: u32) -> Option<Date<Gregorian>> {
         Date::try_new_gregorian(y, u8::try_from(m).ok()?, u8::try_from(d).ok()?).ok()
     }
@@ -319,6 +328,8 @@ mod tests {
         assert_eq!(de.number("12.3k"), "12,3k");
         let en = Locale::new("en-US").expect("en");
         assert_eq!(en.number("-12,345.67"), "-12,345.67");
+        assert_eq!(de.decimal_separator(), ",");
+        assert_eq!(en_in.decimal_separator(), ".");
     }
 
     #[test]
