@@ -144,3 +144,45 @@ fn locale_and_fiscal_statements_parse_and_format() {
         ]
     );
 }
+
+/// Every `.cresc` file under `path` (recursively), skipping build output.
+fn story_files(path: &std::path::Path, out: &mut Vec<std::path::PathBuf>) {
+    let Ok(entries) = std::fs::read_dir(path) else {
+        return;
+    };
+    for e in entries.flatten() {
+        let p = e.path();
+        let name = p.file_name().map(|n| n.to_string_lossy().into_owned());
+        if p.is_dir() && !matches!(name.as_deref(), Some("target" | ".git" | "deck")) {
+            story_files(&p, out);
+        } else if p.extension().is_some_and(|x| x == "cresc") {
+            out.push(p);
+        }
+    }
+}
+
+#[test]
+fn every_story_in_the_repository_that_parses_formats_to_a_fixed_point() {
+    let root = std::path::Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/../.."));
+    let mut files = Vec::new();
+    for dir in ["stories", "tests", "crates", "plugins"] {
+        story_files(&root.join(dir), &mut files);
+    }
+    files.sort();
+    let mut formatted = 0;
+    for f in &files {
+        let text = std::fs::read_to_string(f).expect("read");
+        let (_, diags) = parse(&Source::file("s", text.as_str()));
+        if !diags.is_empty() {
+            // a fixture with syntax errors: fmt reports them and stops
+            assert!(format_story(&text).is_err(), "{}", f.display());
+            continue;
+        }
+        let once = format_story(&text).unwrap_or_else(|d| panic!("{}: {d:?}", f.display()));
+        let twice = format_story(&once).unwrap_or_else(|d| panic!("{}: {d:?}", f.display()));
+        assert_eq!(once, twice, "{}", f.display());
+        assert!(same_shape(&tree(&text), &tree(&once)), "{}", f.display());
+        formatted += 1;
+    }
+    assert!(formatted >= 40, "only {formatted} stories parsed");
+}
