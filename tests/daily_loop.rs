@@ -406,6 +406,16 @@ fn a_locale_and_a_fiscal_year_change_numbers_dates_and_ticks() {
     conventions_story(&dir, "locale \"fr-FR\"\nfiscal year starts Jul");
     let built = crescendo(&dir, &["build", "sales.cresc"]);
     assert!(built.status.success(), "{:?}", text(&built));
+    let html = fs::read_to_string(dir.join("deck/index.html")).expect("deck");
+    assert!(html.contains("<html lang=\"fr-FR\">"), "the deck's language");
+    let (_, svg) = read_dir_files(&dir.join("deck"))
+        .into_iter()
+        .find(|(n, _)| n.ends_with(".svg"))
+        .expect("the one frame");
+    let svg = String::from_utf8_lossy(&svg);
+    // the frame draws French figures and fiscal quarters
+    assert!(svg.contains("39\u{202f}093,00"), "{svg}");
+    assert!(svg.contains("FY2024 Q1"), "{svg}");
 }
 
 #[test]
