@@ -16,7 +16,7 @@ pub const EXIT_ERROR: u8 = 2;
 pub fn run(files: &[PathBuf], check: bool, color: bool) -> ExitCode {
     let mut errors = 0;
     let mut changed = Vec::new();
-    for path in files {
+    for path in &expand(files) {
         match format_file(path) {
             Ok(None) => {}
             Ok(Some(formatted)) => {
@@ -56,6 +56,40 @@ pub fn run(files: &[PathBuf], check: bool, color: bool) -> ExitCode {
     } else {
         ExitCode::SUCCESS
     }
+}
+
+/// The files to format: each file named, and the `.cresc` files under each
+/// folder named (sorted; hidden folders and `deck` output folders skipped).
+fn expand(paths: &[PathBuf]) -> Vec<PathBuf> {
+    fn walk(dir: &Path, out: &mut Vec<PathBuf>) {
+        let Ok(entries) = std::fs::read_dir(dir) else {
+            return;
+        };
+        let mut entries: Vec<PathBuf> = entries.flatten().map(|e| e.path()).collect();
+        entries.sort();
+        for p in entries {
+            let name = p.file_name().map(|n| n.to_string_lossy().into_owned());
+            let skip = name
+                .as_deref()
+                .is_some_and(|n| n.starts_with('.') || n == "deck" || n == "target");
+            if p.is_dir() {
+                if !skip {
+                    walk(&p, out);
+                }
+            } else if p.extension().is_some_and(|x| x == "cresc") {
+                out.push(p);
+            }
+        }
+    }
+    let mut out = Vec::new();
+    for p in paths {
+        if p.is_dir() {
+            walk(p, &mut out);
+        } else {
+            out.push(p.clone());
+        }
+    }
+    out
 }
 
 /// The formatted text when it differs from the file, `None` when the file

@@ -235,7 +235,7 @@ enum Command {
         /// status 1 if there are any (for CI).
         #[arg(long)]
         check: bool,
-        /// The story files (.cresc).
+        /// The story files (.cresc), or folders to search for them.
         #[arg(required = true)]
         files: Vec<PathBuf>,
     },

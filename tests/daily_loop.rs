@@ -283,6 +283,14 @@ fn fmt_check_lists_files_and_fmt_rewrites_them_once() {
     // no temporary file is left behind
     let names: Vec<String> = read_dir_files(&dir).into_iter().map(|(n, _)| n).collect();
     assert_eq!(names, ["a.cresc", "b.cresc"]);
+    // a folder stands for the stories in it
+    fs::create_dir_all(dir.join("more")).unwrap();
+    fs::write(dir.join("more/c.cresc"), "story  \"C\"\n").unwrap();
+    let folder = crescendo(&dir, &["fmt", "--check", "."]);
+    assert_eq!(folder.status.code(), Some(1));
+    assert!(text(&folder).0.contains("c.cresc"), "{:?}", text(&folder));
+    assert!(crescendo(&dir, &["fmt", "."]).status.success());
+    assert_eq!(fs::read_to_string(dir.join("more/c.cresc")).unwrap(), "story \"C\"\n");
 }
 
 #[test]
@@ -321,14 +329,23 @@ fn completions_and_manual_mention_every_subcommand() {
         "completions",
         "manual",
     ];
+    // how each shell's script names a subcommand (clap_complete's forms)
+    let marker = |shell: &str, sub: &str| match shell {
+        "bash" => format!("crescendo,{sub})"),
+        "zsh" => format!("'{sub}:"),
+        _ => format!("-f -a \"{sub}\""),
+    };
     for shell in ["bash", "zsh", "fish"] {
         let out = crescendo(&root(), &["completions", shell]);
         assert!(out.status.success(), "{shell}");
         let (script, _) = text(&out);
         for sub in subcommands {
-            assert!(script.contains(sub), "{shell} completion lacks `{sub}`");
+            assert!(
+                script.contains(&marker(shell, sub)),
+                "{shell} completion lacks `{sub}`"
+            );
         }
-        assert!(script.contains("--deny"), "{shell}: options too");
+        assert!(script.contains("deny"), "{shell}: options too");
     }
     let out = crescendo(&root(), &["manual"]);
     assert!(out.status.success());
