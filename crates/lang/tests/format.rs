@@ -186,3 +186,14 @@ fn every_story_in_the_repository_that_parses_formats_to_a_fixed_point() {
     }
     assert!(formatted >= 40, "only {formatted} stories parsed");
 }
+
+#[test]
+fn the_demo_stories_are_kept_in_the_canonical_layout() {
+    for (name, text) in demo_stories() {
+        let formatted = format_story(&text).unwrap_or_else(|d| panic!("{name}: {d:?}"));
+        assert!(
+            formatted == text,
+            "{name} is not in the canonical layout: run `crescendo fmt stories`"
+        );
+    }
+}
