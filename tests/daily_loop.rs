@@ -290,7 +290,10 @@ fn fmt_check_lists_files_and_fmt_rewrites_them_once() {
     assert_eq!(folder.status.code(), Some(1));
     assert!(text(&folder).0.contains("c.cresc"), "{:?}", text(&folder));
     assert!(crescendo(&dir, &["fmt", "."]).status.success());
-    assert_eq!(fs::read_to_string(dir.join("more/c.cresc")).unwrap(), "story \"C\"\n");
+    assert_eq!(
+        fs::read_to_string(dir.join("more/c.cresc")).unwrap(),
+        "story \"C\"\n"
+    );
 }
 
 #[test]
@@ -424,7 +427,10 @@ fn a_locale_and_a_fiscal_year_change_numbers_dates_and_ticks() {
     let built = crescendo(&dir, &["build", "sales.cresc"]);
     assert!(built.status.success(), "{:?}", text(&built));
     let html = fs::read_to_string(dir.join("deck/index.html")).expect("deck");
-    assert!(html.contains("<html lang=\"fr-FR\">"), "the deck's language");
+    assert!(
+        html.contains("<html lang=\"fr-FR\">"),
+        "the deck's language"
+    );
     let (_, svg) = read_dir_files(&dir.join("deck"))
         .into_iter()
         .find(|(n, _)| n.ends_with(".svg"))

@@ -510,20 +510,21 @@ fn month_ticks(lo: f64, hi: f64) -> Vec<Tick> {
 
 /// The label of a fiscal tick every `step` months (3 or more) at `month`
 /// of `year`: "FY2025" for years; "FY2025 Q1" at the start of a fiscal
-/// year or on the first tick, then "Q2", "Q3", "Q4"; likewise "FY2025 H1",
-/// "H2" for halves.
+/// year, then "Q2", "Q3", "Q4"; likewise "FY2025 H1", "H2" for halves. The
+/// first tick names its fiscal year too, unless the next tick starts one
+/// (two long labels side by side would crowd each other out).
 fn fiscal_label(fiscal: Fiscal, step: i64, year: i32, month: u32, first: bool) -> String {
     let quarter = fiscal.quarter_of(month);
     if step >= 12 {
         fiscal.year_label(year, month)
     } else if step == 6 {
         let half = if quarter <= 2 { 1 } else { 2 };
-        if half == 1 || first {
+        if half == 1 {
             format!("{} H{half}", fiscal.year_label(year, month))
         } else {
             format!("H{half}")
         }
-    } else if quarter == 1 || first {
+    } else if quarter == 1 || (first && quarter < 4) {
         fiscal.quarter_label(year, month)
     } else {
         format!("Q{quarter}")
@@ -965,18 +966,18 @@ mod tests {
             labels(&a),
             ["FY2024 Q2", "Q3", "Q4", "FY2025 Q1", "Q2", "Q3"]
         );
-        // Three years: half-years from July.
+        // ...unless the next tick starts one (Q4 of FY2023, then FY2024).
+        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2023, 4), month(2024, 9), None));
+        assert_eq!(
+            labels(&a),
+            ["Q4", "FY2024 Q1", "Q2", "Q3", "Q4", "FY2025 Q1"]
+        );
+        // Three years: half-years from July. The first tick is the second
+        // half of FY2022 and the next starts FY2023, so it says only "H2".
         let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2022, 1), month(2024, 12), None));
         assert_eq!(
             labels(&a),
-            [
-                "FY2022 H2",
-                "FY2023 H1",
-                "H2",
-                "FY2024 H1",
-                "H2",
-                "FY2025 H1"
-            ]
+            ["H2", "FY2023 H1", "H2", "FY2024 H1", "H2", "FY2025 H1"]
         );
         // Twenty-five years: fiscal years, each tick at a July.
         let a = fiscal_july(|| time_axis(ScaleKind::Months, month(1999, 6), month(2024, 6), None));
