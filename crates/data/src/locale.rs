@@ -52,16 +52,11 @@ impl std::fmt::Debug for Locale {
 impl Locale {
     /// The formatters for a BCP 47 tag such as `de-DE`, `fr-FR`, `en-IN`.
     /// A tag that is not well-formed is an error (the message says why); a
-    /// well-formed tag whose language CLDR does not cover is an error too,
-    /// rather than a silent fallback to another language's conventions.
+    /// well-formed tag whose language the CLDR data does not cover is an
+    /// error too, rather than a silent fallback to the root conventions.
     pub fn new(tag: &str) -> Result<Locale, String> {
         let parsed = icu_locale_core::Locale::try_from_str(tag)
             .map_err(|e| format!("`{tag}` is not a locale tag ({e:?}); write e.g. \"de-DE\""))?;
-        if !known_language(parsed.id.language.as_str()) {
-            return Err(format!(
-                "no number and date conventions for the language of `{tag}`"
-            ));
-        }
         let fail =
             |what: &str, e: &dyn std::fmt::Debug| format!("no {what} data for `{tag}`: {e:?}");
         let decimal = DecimalFormatter::try_new((&parsed).into(), Default::default())
@@ -78,7 +73,7 @@ impl Locale {
             .map_err(|e| fail("date", &e))?;
         let day_year = FixedCalendarDateTimeFormatter::try_new((&parsed).into(), YMD::medium())
             .map_err(|e| fail("date", &e))?;
-        Ok(Locale {
+        let locale = Locale {
             tag: parsed.to_string(),
             decimal,
             ungrouped,
@@ -86,7 +81,16 @@ impl Locale {
             month_year,
             day,
             day_year,
-        })
+        };
+        // ICU4X falls back silently to CLDR's root locale for a language it
+        // has no data for; root names the months "M01" … "M12". We would
+        // rather say so than write German numbers with root month names.
+        if locale.month_name(1) == "M01" {
+            return Err(format!(
+                "CLDR (as shipped with crescendo) has no date and number conventions for `{tag}`"
+            ));
+        }
+        Ok(locale)
     }
 
     /// The tag as ICU4X normalises it (`de-DE`).
@@ -166,25 +170,6 @@ impl Locale {
             None => format!("{year}-{month:02}-{day:02}"),
         }
     }
-}
-
-/// Languages with number and date data in ICU4X's compiled CLDR data (the
-/// "modern" and "moderate" coverage levels; from the CLDR coverage list as
-/// ICU4X ships it). A tag outside it would fall back to the root locale.
-fn known_language(lang: &str) -> bool {
-    // ICU4X falls back silently (to the root locale's conventions) for a
-    // language it has no data for; we would rather say so. The list is
-    // CLDR's languages at "modern" coverage, written from memory of the
-    // CLDR coverage table; the tests check a few of them against the data.
-    const LANGS: &[&str] = &[
-        "af", "am", "ar", "as", "az", "be", "bg", "bn", "bs", "ca", "cs", "cy", "da", "de", "el",
-        "en", "es", "et", "eu", "fa", "fi", "fil", "fr", "ga", "gd", "gl", "gu", "he", "hi", "hr",
-        "hu", "hy", "id", "is", "it", "ja", "ka", "kk", "km", "kn", "ko", "ky", "lo", "lt", "lv",
-        "mk", "ml", "mn", "mr", "ms", "my", "nb", "ne", "nl", "nn", "no", "or", "pa", "pl", "ps",
-        "pt", "ro", "ru", "si", "sk", "sl", "so", "sq", "sr", "sv", "sw", "ta", "te", "th", "tk",
-        "tr", "uk", "ur", "uz", "vi", "yue", "zh", "zu",
-    ];
-    LANGS.contains(&lang)
 }
 
 /// When the year starts: `1` is the calendar year; `7` a fiscal year from
@@ -353,6 +338,18 @@ mod tests {
     fn bad_tags_are_errors() {
         assert!(Locale::new("de_DE!").is_err());
         assert!(Locale::new("zz-ZZ").is_err());
+        assert!(Locale::new("qaa").is_err());
+        // a language with data in a region CLDR does not list still works
+        // (fallback within the language)
+        assert_eq!(
+            Locale::new("de-JP").expect("de-JP").number("1,234.5"),
+            "1.234,5"
+        );
+        for tag in [
+            "ja-JP", "hi-IN", "pt-BR", "sv-SE", "pl-PL", "ar-EG", "zh-CN",
+        ] {
+            assert!(Locale::new(tag).is_ok(), "{tag}");
+        }
     }
 
     #[test]
