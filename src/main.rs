@@ -17,7 +17,9 @@ use crescendo_plan::{Options, Planned};
 mod deck;
 mod diff;
 mod export;
+mod fmt;
 mod incremental;
+mod new;
 mod progress;
 mod watch;
 
@@ -214,6 +216,48 @@ enum Command {
         /// The newer deck folder.
         new: PathBuf,
     },
+    /// Profile a CSV file and write a starter story for it that builds and
+    /// passes the lint.
+    New {
+        /// The CSV file to start from.
+        data: PathBuf,
+        /// Where to write the story (default: the CSV's name with .cresc,
+        /// beside it). An existing file is not replaced without --force.
+        #[arg(long, value_name = "STORY")]
+        out: Option<PathBuf>,
+        /// Replace the story file if it exists.
+        #[arg(long)]
+        force: bool,
+    },
+    /// Rewrite stories in the canonical layout (comments are kept).
+    Fmt {
+        /// Change nothing; list the files that would change and exit with
+        /// status 1 if there are any (for CI).
+        #[arg(long)]
+        check: bool,
+        /// The story files (.cresc), or folders to search for them.
+        #[arg(required = true)]
+        files: Vec<PathBuf>,
+    },
+    /// Print a shell completion script: `crescendo completions bash >
+    /// /etc/bash_completion.d/crescendo`.
+    Completions {
+        /// The shell.
+        #[arg(value_enum)]
+        shell: Shell,
+    },
+    /// Print the manual page (roff) of crescendo: `crescendo manual | man -l -`.
+    Manual,
+}
+
+/// Shells `completions` writes scripts for.
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum Shell {
+    Bash,
+    Zsh,
+    Fish,
+    Elvish,
+    Powershell,
 }
 
 fn main() -> ExitCode {
@@ -304,6 +348,10 @@ fn main() -> ExitCode {
             },
             Err(code) => code,
         },
+        Command::New { data, out, force } => new::run(&data, out.as_deref(), force, color),
+        Command::Fmt { check, files } => fmt::run(&files, check, color),
+        Command::Completions { shell } => completions(shell),
+        Command::Manual => manual(),
         Command::Diff { old, new } => match diff::diff_folders(&old, &new) {
             Ok(lines) => {
                 for l in lines {
@@ -316,6 +364,77 @@ fn main() -> ExitCode {
                 ExitCode::from(EXIT_STORY)
             }
         },
+    }
+}
+
+/// The completion script for `shell`, generated from the command definitions.
+fn completions(shell: Shell) -> ExitCode {
+    use clap::CommandFactory as _;
+    use clap_complete::Shell as S;
+    let shell = match shell {
+        Shell::Bash => S::Bash,
+        Shell::Zsh => S::Zsh,
+        Shell::Fish => S::Fish,
+        Shell::Elvish => S::Elvish,
+        Shell::Powershell => S::PowerShell,
+    };
+    let mut cmd = Cli::command();
+    let mut buf = Vec::new();
+    clap_complete::generate(shell, &mut cmd, "crescendo", &mut buf);
+    say_raw!("{}", String::from_utf8_lossy(&buf));
+    ExitCode::SUCCESS
+}
+
+/// The manual page, generated from the command definitions: the main page
+/// followed by a section per subcommand.
+fn manual() -> ExitCode {
+    use clap::CommandFactory as _;
+    let cmd = Cli::command();
+    let mut buf = Vec::new();
+    let man = clap_mangen::Man::new(cmd.clone());
+    if let Err(e) = man.render(&mut buf) {
+        eprintln!("error: cannot write the manual page: {e}");
+        return ExitCode::from(EXIT_OUTPUT);
+    }
+    // clap_mangen lists the subcommands by name; give each its own
+    // section with its options.
+    let mut roff = String::from_utf8_lossy(&buf).into_owned();
+    for sub in cmd.get_subcommands() {
+        let mut page = Vec::new();
+        let sub = sub
+            .clone()
+            .bin_name(format!("crescendo {}", sub.get_name()));
+        if clap_mangen::Man::new(sub.clone())
+            .render_options_section(&mut page)
+            .is_err()
+        {
+            continue;
+        }
+        roff.push_str(&format!(
+            ".SH \"COMMAND: {}\"\n",
+            sub.get_name().to_uppercase()
+        ));
+        let mut usage = Vec::new();
+        let _ = clap_mangen::Man::new(sub.clone()).render_synopsis_section(&mut usage);
+        let usage = String::from_utf8_lossy(&usage).replacen(".SH SYNOPSIS\n", "", 1);
+        roff.push_str(&usage);
+        if let Some(about) = sub.get_long_about().or(sub.get_about()) {
+            roff.push_str(&format!(".PP\n{}\n", roff_escape(&about.to_string())));
+        }
+        let opts = String::from_utf8_lossy(&page).replacen(".SH OPTIONS\n", ".PP\n", 1);
+        roff.push_str(&opts);
+    }
+    say_raw!("{roff}");
+    ExitCode::SUCCESS
+}
+
+/// Escape text for roff: backslashes, and a leading `.` or `'`.
+fn roff_escape(text: &str) -> String {
+    let t = text.replace('\\', "\\e");
+    if t.starts_with('.') || t.starts_with('\'') {
+        format!("\\&{t}")
+    } else {
+        t
     }
 }
 

@@ -181,6 +181,12 @@ fn with_sign(negative: bool, d: &Decimal, body: String) -> String {
 /// Rounding is half away from zero on the decimal digits (see the module
 /// docs). Never prints `-0`; NaN and infinities print as `"n/a"`.
 pub fn number(v: f64, decimals: Option<usize>) -> String {
+    crate::locale::localize_number(number_ascii(v, decimals))
+}
+
+/// [`number`] in the crescendo convention whatever the story's locale
+/// (comma groups, `.` for decimals): for text that is parsed again.
+pub fn number_ascii(v: f64, decimals: Option<usize>) -> String {
     if !v.is_finite() {
         return NOT_A_NUMBER.to_string();
     }
@@ -220,6 +226,14 @@ fn step_decimals(step: f64) -> Option<usize> {
 /// `0.25`, `0.5`, `0.75`, `1`). Thousands are grouped with commas. If the
 /// step is zero or not finite, each value is formatted with [`number`].
 pub fn tick_labels(values: &[f64], step: f64) -> Vec<String> {
+    tick_labels_ascii(values, step)
+        .into_iter()
+        .map(crate::locale::localize_number)
+        .collect()
+}
+
+/// [`tick_labels`] in the crescendo convention whatever the locale.
+pub fn tick_labels_ascii(values: &[f64], step: f64) -> Vec<String> {
     let places = step_decimals(step);
     values
         .iter()
@@ -228,7 +242,7 @@ pub fn tick_labels(values: &[f64], step: f64) -> Vec<String> {
                 return NOT_A_NUMBER.to_string();
             }
             match places {
-                None => number(v, None),
+                None => number_ascii(v, None),
                 Some(places) => {
                     let mut d = Decimal::of(v);
                     d.round_decimals(places);
@@ -256,6 +270,11 @@ pub const COMPACT_SIGNIFICANT: usize = 3;
 /// with a grouped mantissa (`2e15` → `"2,000T"`). Trailing zeros are
 /// stripped; NaN and infinities print as `"n/a"`.
 pub fn compact(v: f64) -> String {
+    crate::locale::localize_number(compact_ascii(v))
+}
+
+/// [`compact`] in the crescendo convention whatever the locale.
+pub fn compact_ascii(v: f64) -> String {
     if !v.is_finite() {
         return NOT_A_NUMBER.to_string();
     }

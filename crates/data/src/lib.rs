@@ -3,6 +3,7 @@
 
 pub mod format;
 pub mod load;
+pub mod locale;
 pub mod model;
 pub mod progress;
 pub mod stats;

@@ -79,6 +79,29 @@ const MONTHS: [&str; 12] = [
     "Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec",
 ];
 
+/// The 1-based number of an English month name or its three-letter
+/// abbreviation, in any case: `July`, `jul` → 7.
+pub fn month_from_name(name: &str) -> Option<u32> {
+    const FULL: [&str; 12] = [
+        "january",
+        "february",
+        "march",
+        "april",
+        "may",
+        "june",
+        "july",
+        "august",
+        "september",
+        "october",
+        "november",
+        "december",
+    ];
+    let lower = name.to_ascii_lowercase();
+    FULL.iter()
+        .position(|f| *f == lower || (lower.len() == 3 && f.starts_with(&lower)))
+        .map(|i| i as u32 + 1)
+}
+
 /// Year of a month index.
 pub fn month_year(m: i32) -> i32 {
     m.div_euclid(12)
@@ -89,9 +112,33 @@ pub fn month_of_year(m: i32) -> u32 {
     (m.rem_euclid(12) + 1) as u32
 }
 
-/// Short English month name ("Jan") of a 1-based month number.
-pub fn month_name(month: u32) -> &'static str {
-    MONTHS[(month.clamp(1, 12) - 1) as usize]
+/// Short month name ("Jan") of a 1-based month number, in the story's
+/// locale when it names one (`crate::locale`), else in English.
+pub fn month_name(month: u32) -> std::borrow::Cow<'static, str> {
+    match &crate::locale::current().locale {
+        Some(l) => l.month_name(month).into(),
+        None => MONTHS[(month.clamp(1, 12) - 1) as usize].into(),
+    }
+}
+
+/// A month of a year as people read it: "Jan 2024" (or the story's
+/// locale: "janv. 2024").
+pub fn month_label(m: i32) -> String {
+    let (y, mo) = (month_year(m), month_of_year(m));
+    match &crate::locale::current().locale {
+        Some(l) => l.month_year(y, mo),
+        None => format!("{} {y}", MONTHS[(mo - 1) as usize]),
+    }
+}
+
+/// A day as people read it: "Mar 4" or "Mar 4, 2024" (or the story's
+/// locale: "04.03.2024").
+pub fn day_label(y: i32, m: u32, d: u32, with_year: bool) -> String {
+    match &crate::locale::current().locale {
+        Some(l) => l.day(y, m, d, with_year),
+        None if with_year => format!("{} {d}, {y}", MONTHS[(m.clamp(1, 12) - 1) as usize]),
+        None => format!("{} {d}", MONTHS[(m.clamp(1, 12) - 1) as usize]),
+    }
 }
 
 /// `YYYY-MM` text of a month index (as written in stories and CSVs).

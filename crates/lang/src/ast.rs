@@ -52,6 +52,13 @@ pub enum Item {
     Style(TextItem),
     Plugin(PluginDecl),
     Frame(FrameDecl),
+    /// `locale "de-DE"`
+    Locale(TextItem),
+    /// `fiscal year starts July`: `month` is the month's name as written.
+    Fiscal {
+        month: Ident,
+        span: Span,
+    },
 }
 
 /// `use plugin "path" as NAME [sha256 "hex"]`
@@ -86,14 +93,14 @@ impl Item {
     pub fn span(&self) -> &Span {
         match self {
             Item::Title(t) | Item::Byline(t) | Item::Source(t) | Item::Conclusion(t) => &t.span,
-            Item::Theme { span, .. } | Item::Focus { span, .. } => span,
+            Item::Theme { span, .. } | Item::Focus { span, .. } | Item::Fiscal { span, .. } => span,
             Item::Data(d) => &d.span,
             Item::View(v) => &v.span,
             Item::Compare(c) => &c.span,
             Item::Frame(f) => &f.span,
             Item::Value(v) => &v.span,
             Item::Allow(a) => &a.span,
-            Item::Accent(t) | Item::Style(t) => &t.span,
+            Item::Accent(t) | Item::Style(t) | Item::Locale(t) => &t.span,
             Item::Plugin(p) => &p.span,
             Item::Claim(c) => &c.span,
         }
@@ -653,6 +660,12 @@ pub enum NumberStyle {
     Percent,
     /// `k`: compact (12.3k, 4.5M).
     Compact,
+    /// `quarter`: the quarter of a month or date ("2024 Q4"; in a fiscal
+    /// year "FY2025 Q2").
+    Quarter,
+    /// `year`: the year of a month or date ("2024"; in a fiscal year
+    /// "FY2025").
+    Year,
 }
 
 /// One piece of a text that may quote values.

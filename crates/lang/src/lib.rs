@@ -3,6 +3,8 @@
 //! syntax error of a file ([`parse`]).
 
 pub mod ast;
+pub mod format;
 pub mod parser;
 
+pub use format::{format_source, format_story};
 pub use parser::{parse, TOP_KEYWORDS};

@@ -34,6 +34,8 @@ pub const TOP_KEYWORDS: &[&str] = &[
     "style",
     "use",
     "frame",
+    "locale",
+    "fiscal",
 ];
 
 /// Parse a story file. Returns the items that parsed and one diagnostic per
@@ -440,6 +442,14 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
         Rule::conclusion_item => Item::Conclusion(text_item(&mut inner, span)),
         Rule::accent_item => Item::Accent(text_item(&mut inner, span)),
         Rule::style_item => Item::Style(text_item(&mut inner, span)),
+        Rule::locale_item => Item::Locale(text_item(&mut inner, span)),
+        Rule::fiscal_item => {
+            let month = inner.pop().ok_or_else(|| internal(&span))?;
+            Item::Fiscal {
+                month: ident(month, base),
+                span,
+            }
+        }
         Rule::plugin_item => {
             let mut it = inner.into_iter().skip(2);
             let path = string(it.next().ok_or_else(|| internal(&span))?, base);
@@ -1651,6 +1661,14 @@ fn format_spec(spec: &str) -> FormatSpec {
         sign: spec.starts_with('+'),
         ..FormatSpec::default()
     };
+    match spec {
+        "quarter" => f.style = NumberStyle::Quarter,
+        "year" => f.style = NumberStyle::Year,
+        _ => {}
+    }
+    if f.style != NumberStyle::Plain {
+        return f;
+    }
     let rest = spec.trim_start_matches('+');
     let (digits, style) = match rest.strip_suffix('%') {
         Some(d) => (d, NumberStyle::Percent),
@@ -1830,5 +1848,19 @@ claim gap about 10 within 0.5 "about ten"
             "{}",
             errs[0].message
         );
+    }
+}
+
+/// The byte ranges of every keyword (`kw_*` rule) the parser matches in a
+/// story that parses, in order; empty when it does not parse. For tools
+/// that check an editor's highlighting against the grammar.
+pub fn keyword_spans(text: &str) -> Vec<std::ops::Range<usize>> {
+    match StoryParser::parse(Rule::file, text) {
+        Ok(pairs) => pairs
+            .flatten()
+            .filter(|p| format!("{:?}", p.as_rule()).starts_with("kw_"))
+            .map(|p| p.as_span().start()..p.as_span().end())
+            .collect(),
+        Err(_) => Vec::new(),
     }
 }

@@ -60,11 +60,20 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> Pla
         ..Anchors::default()
     };
     let mut plugins = crate::plugins::Plugins::new();
-    let plan = Planner::new(src, story_dir, options, &mut diags, &mut failed_claims).run(
-        &story,
-        &mut anchors,
-        &mut plugins,
-    );
+    let (locale, fiscal_start) = read_conventions(src, &story, &mut diags);
+    let conventions = crescendo_data::locale::Conventions::of(locale.as_deref(), fiscal_start);
+    let plan = crescendo_data::locale::scoped(conventions, || {
+        Planner::new(src, story_dir, options, &mut diags, &mut failed_claims).run(
+            &story,
+            &mut anchors,
+            &mut plugins,
+        )
+    })
+    .map(|mut plan| {
+        plan.locale = locale;
+        plan.fiscal_start = fiscal_start;
+        plan
+    });
     if has_errors(&diags) {
         Err(diags)
     } else {
@@ -83,6 +92,62 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> Pla
             )]),
         }
     }
+}
+
+/// The story's `locale` and `fiscal year starts` statements, checked: an
+/// unknown locale or month, or a statement given twice, is an error.
+fn read_conventions(
+    src: &Arc<Source>,
+    story: &ast::StoryAst,
+    diags: &mut Vec<Diagnostic>,
+) -> (Option<String>, Option<u32>) {
+    let mut locale: Option<(String, ast::Span)> = None;
+    let mut fiscal: Option<(u32, ast::Span)> = None;
+    for item in &story.items {
+        match item {
+            Item::Locale(t) => {
+                if let Some((_, first)) = &locale {
+                    diags.push(
+                        Diagnostic::error("duplicate", "the story sets its locale twice")
+                            .at(src, t.span.clone(), "second one here")
+                            .also(src, first.clone(), "first one here"),
+                    );
+                    continue;
+                }
+                match crescendo_data::locale::Locale::new(&t.text.value) {
+                    Ok(l) => locale = Some((l.tag().to_string(), t.span.clone())),
+                    Err(message) => diags.push(
+                        Diagnostic::error("bad-locale", message)
+                            .at(src, t.text.span.clone(), "not a locale crescendo knows")
+                            .help("write a language and region tag, e.g. `locale \"de-DE\"`, `locale \"fr-FR\"` or `locale \"en-IN\"`"),
+                    ),
+                }
+            }
+            Item::Fiscal { month, span } => {
+                if let Some((_, first)) = &fiscal {
+                    diags.push(
+                        Diagnostic::error("duplicate", "the story says twice when its year starts")
+                            .at(src, span.clone(), "second one here")
+                            .also(src, first.clone(), "first one here"),
+                    );
+                    continue;
+                }
+                match time::month_from_name(&month.name) {
+                    Some(m) => fiscal = Some((m, span.clone())),
+                    None => diags.push(
+                        Diagnostic::error("bad-month", format!("`{}` is not a month", month.name))
+                            .at(src, month.span.clone(), "expected a month's name")
+                            .help("write the month in English, e.g. `fiscal year starts July` or `fiscal year starts Apr`"),
+                    ),
+                }
+            }
+            _ => {}
+        }
+    }
+    (
+        locale.map(|(l, _)| l),
+        fiscal.map(|(m, _)| m).filter(|&m| m != 1),
+    )
 }
 
 pub(crate) struct Planner<'a> {
@@ -190,11 +255,7 @@ pub(crate) fn display(v: &Value) -> String {
         Value::Number(n) => format::number(*n, None),
         Value::Text(t) => t.clone(),
         Value::Date(d) => time::date_iso(*d),
-        Value::Month(m) => format!(
-            "{} {}",
-            time::month_name(time::month_of_year(*m)),
-            time::month_year(*m)
-        ),
+        Value::Month(m) => time::month_label(*m),
         Value::Year(y) => y.to_string(),
     }
 }
@@ -546,6 +607,8 @@ impl<'a> Planner<'a> {
                     }
                 }
                 Item::Frame(f) => frames.push(f),
+                // read before planning (`read_conventions`)
+                Item::Locale(_) | Item::Fiscal { .. } => {}
             }
         }
         for name in self.options.data.keys() {
@@ -708,6 +771,8 @@ impl<'a> Planner<'a> {
                 .collect(),
             claims: claim_plans,
             frames: planned,
+            locale: None,
+            fiscal_start: None,
         })
     }
 
@@ -2003,14 +2068,7 @@ fn set_range(
 fn describe(chart: &Chart, key: &str, takeaway: Option<&str>) -> String {
     let tick_label = |axis: &Axis, v: f64| -> String {
         match axis.scale {
-            ScaleKind::Months => {
-                let m = v.round() as i32;
-                format!(
-                    "{} {}",
-                    time::month_name(time::month_of_year(m)),
-                    time::month_year(m)
-                )
-            }
+            ScaleKind::Months => time::month_label(v.round() as i32),
             ScaleKind::Days => time::date_iso(v.round() as i32),
             ScaleKind::Years => format!("{}", v.round() as i64),
             ScaleKind::Categories => axis

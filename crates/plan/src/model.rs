@@ -34,6 +34,21 @@ pub struct DeckPlan {
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub claims: Vec<ClaimPlan>,
     pub frames: Vec<FramePlan>,
+    /// The audience's locale (`locale "de-DE"`): the renderer writes the
+    /// numbers it formats itself (data labels) in it.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub locale: Option<String>,
+    /// The first month of the fiscal year (`fiscal year starts July`: 7).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fiscal_start: Option<u32>,
+}
+
+impl DeckPlan {
+    /// The conventions this deck is written in (see
+    /// `crescendo_data::locale`).
+    pub fn conventions(&self) -> std::rc::Rc<crescendo_data::locale::Conventions> {
+        crescendo_data::locale::Conventions::of(self.locale.as_deref(), self.fiscal_start)
+    }
 }
 
 /// A checked claim.

@@ -14,7 +14,8 @@
 
 use crate::model::{Axis, ScaleKind, Tick};
 use crescendo_data::format::tick_labels;
-use crescendo_data::time::{civil_from_days, days_from_civil, month_name};
+use crescendo_data::locale::Fiscal;
+use crescendo_data::time::{civil_from_days, day_label, days_from_civil, month_label, month_name};
 
 /// Nice step bases in order of preference (`labeling::extended` default,
 /// published in its documentation; see `shared/refs` §4.1).
@@ -467,19 +468,31 @@ fn month_ticks(lo: f64, hi: f64) -> Vec<Tick> {
     let Some((first, last)) = int_bounds(lo, hi, MONTH_LIMIT) else {
         return Vec::new();
     };
+    // A fiscal year moves the alignment of quarters, halves and years to
+    // its first month (offset 0 for the calendar year). Fiscal year N
+    // starts at month index (N - 1) * 12 + offset, hence the `- 12`: year
+    // ticks every five years fall on FY2000, FY2005…
+    let fiscal = crescendo_data::locale::current().fiscal;
+    let offset = if fiscal.is_fiscal() {
+        fiscal.offset() - 12
+    } else {
+        0
+    };
     let steps = [1, 2, 3, 6].into_iter().chain(year_steps().map(|y| 12 * y));
     for step in steps {
-        let count = last.div_euclid(step) - ceil_to(first, step) / step + 1;
+        let count = (last - offset).div_euclid(step) - ceil_to(first - offset, step) / step + 1;
         if count as usize <= MAX_TIME_TICKS || step >= MONTH_LIMIT {
             let mut ticks = Vec::new();
-            let mut idx = ceil_to(first, step);
+            let mut idx = ceil_to(first - offset, step) + offset;
             while idx <= last && ticks.len() < MAX_TIME_TICKS {
                 let year = idx.div_euclid(12);
                 let month = (idx.rem_euclid(12) + 1) as u32;
-                let label = if step >= 12 {
+                let label = if fiscal.is_fiscal() && step >= 3 {
+                    fiscal_label(fiscal, step, year as i32, month, ticks.is_empty())
+                } else if step >= 12 {
                     year.to_string()
                 } else if month == 1 || ticks.is_empty() {
-                    format!("{} {year}", month_name(month))
+                    month_label(idx as i32)
                 } else {
                     month_name(month).to_string()
                 };
@@ -493,6 +506,29 @@ fn month_ticks(lo: f64, hi: f64) -> Vec<Tick> {
         }
     }
     Vec::new()
+}
+
+/// The label of a fiscal tick every `step` months (3 or more) at `month`
+/// of `year`: "FY2025" for years; "FY2025 Q1" at the start of a fiscal
+/// year, then "Q2", "Q3", "Q4"; likewise "FY2025 H1", "H2" for halves. The
+/// first tick names its fiscal year too, unless the next tick starts one
+/// (two long labels side by side would crowd each other out).
+fn fiscal_label(fiscal: Fiscal, step: i64, year: i32, month: u32, first: bool) -> String {
+    let quarter = fiscal.quarter_of(month);
+    if step >= 12 {
+        fiscal.year_label(year, month)
+    } else if step == 6 {
+        let half = if quarter <= 2 { 1 } else { 2 };
+        if half == 1 {
+            format!("{} H{half}", fiscal.year_label(year, month))
+        } else {
+            format!("H{half}")
+        }
+    } else if quarter == 1 || (first && quarter < 4) {
+        fiscal.quarter_label(year, month)
+    } else {
+        format!("Q{quarter}")
+    }
 }
 
 /// Spacings for day axes, finest first.
@@ -541,7 +577,8 @@ fn day_candidates(step: DayStep, first: i64, last: i64) -> Vec<i64> {
             if day > 1 {
                 idx += 1;
             }
-            idx = ceil_to(idx, n);
+            let offset = crescendo_data::locale::current().fiscal.offset();
+            idx = ceil_to(idx - offset, n) + offset;
             loop {
                 let (y, m) = (idx.div_euclid(12), (idx.rem_euclid(12) + 1) as u32);
                 let d = days_from_civil(y as i32, m, 1) as i64;
@@ -599,17 +636,18 @@ fn day_ticks(lo: f64, hi: f64) -> Vec<Tick> {
         }
         let mut ticks: Vec<Tick> = Vec::new();
         let mut previous_year = None;
+        let fiscal = crescendo_data::locale::current().fiscal;
         for d in days {
             let (y, m, day) = civil_from_days(d as i32);
             let new_year = previous_year != Some(y);
             previous_year = Some(y);
             let label = match step {
-                DayStep::Days(_) | DayStep::Weeks(_) if new_year => {
-                    format!("{} {day}, {y}", month_name(m))
+                DayStep::Days(_) | DayStep::Weeks(_) => day_label(y, m, day, new_year),
+                DayStep::Months(n) if fiscal.is_fiscal() && n >= 3 => {
+                    fiscal_label(fiscal, n, y, m, ticks.is_empty())
                 }
-                DayStep::Days(_) | DayStep::Weeks(_) => format!("{} {day}", month_name(m)),
                 DayStep::Months(_) if m == 1 || ticks.is_empty() => {
-                    format!("{} {y}", month_name(m))
+                    month_label(y * 12 + m as i32 - 1)
                 }
                 DayStep::Months(_) => month_name(m).to_string(),
                 DayStep::Years(_) => y.to_string(),
@@ -902,6 +940,62 @@ mod tests {
         assert_eq!(labels(&a), ["Jan 2024", "Mar", "May", "Jul", "Sep", "Nov"]);
         let a = time_axis(ScaleKind::Months, month(2024, 3), month(2024, 8), None);
         assert_eq!(labels(&a), ["Mar 2024", "Apr", "May", "Jun", "Jul", "Aug"]);
+    }
+
+    /// Ticks in a fiscal year that starts in July (see
+    /// `crescendo_data::locale`): July 2024 to June 2025 is FY2025.
+    fn fiscal_july<R>(f: impl FnOnce() -> R) -> R {
+        crescendo_data::locale::scoped(crescendo_data::locale::Conventions::of(None, Some(7)), f)
+    }
+
+    #[test]
+    fn fiscal_quarters_halves_and_years() {
+        // Worked example: 2023-07 .. 2024-12 by quarters. July 2023 starts
+        // FY2024 (July 2023 to June 2024, named by the year it ends in), so
+        // Jul-Sep 2023 is FY2024 Q1, Oct-Dec Q2, Jan-Mar 2024 Q3, Apr-Jun
+        // Q4; July 2024 starts FY2025.
+        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2023, 7), month(2024, 12), None));
+        assert_eq!(
+            labels(&a),
+            ["FY2024 Q1", "Q2", "Q3", "Q4", "FY2025 Q1", "Q2"]
+        );
+        assert_eq!(a.ticks[0].value, month(2023, 7));
+        // Starting mid-quarter: the first tick names its fiscal year.
+        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2023, 9), month(2025, 2), None));
+        assert_eq!(
+            labels(&a),
+            ["FY2024 Q2", "Q3", "Q4", "FY2025 Q1", "Q2", "Q3"]
+        );
+        // ...unless the next tick starts one (Q4 of FY2023, then FY2024).
+        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2023, 4), month(2024, 9), None));
+        assert_eq!(
+            labels(&a),
+            ["Q4", "FY2024 Q1", "Q2", "Q3", "Q4", "FY2025 Q1"]
+        );
+        // Three years: half-years from July. The first tick is the second
+        // half of FY2022 and the next starts FY2023, so it says only "H2".
+        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2022, 1), month(2024, 12), None));
+        assert_eq!(
+            labels(&a),
+            ["H2", "FY2023 H1", "H2", "FY2024 H1", "H2", "FY2025 H1"]
+        );
+        // Twenty-five years: fiscal years, each tick at a July.
+        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(1999, 6), month(2024, 6), None));
+        assert_eq!(
+            labels(&a),
+            ["FY2000", "FY2005", "FY2010", "FY2015", "FY2020"]
+        );
+        assert_eq!(a.ticks[0].value, month(1999, 7));
+        // Months stay months.
+        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2024, 1), month(2024, 6), None));
+        assert_eq!(labels(&a), ["Jan 2024", "Feb", "Mar", "Apr", "May", "Jun"]);
+        // Days over a year and a half: fiscal quarters on the 1st.
+        let a =
+            fiscal_july(|| time_axis(ScaleKind::Days, day(2023, 7, 1), day(2024, 12, 31), None));
+        assert_eq!(
+            labels(&a),
+            ["FY2024 Q1", "Q2", "Q3", "Q4", "FY2025 Q1", "Q2"]
+        );
     }
 
     #[test]

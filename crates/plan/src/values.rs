@@ -892,13 +892,27 @@ fn strip_zeros(s: String) -> String {
 pub fn format_quantity(q: &Quantity, spec: &FormatSpec) -> String {
     match q {
         Quantity::Text(t) => t.clone(),
-        Quantity::Time(ColType::Month, m) => {
-            format!(
-                "{} {}",
-                time::month_name(time::month_of_year(*m)),
-                time::month_year(*m)
-            )
+        Quantity::Time(ColType::Month | ColType::Date, t)
+            if matches!(spec.style, NumberStyle::Quarter | NumberStyle::Year) =>
+        {
+            // the period of a month or a day, in the story's year
+            let (y, m) = match q {
+                Quantity::Time(ColType::Month, m) => {
+                    (time::month_year(*t), time::month_of_year(*m))
+                }
+                _ => {
+                    let (y, m, _) = time::civil_from_days(*t);
+                    (y, m)
+                }
+            };
+            let fiscal = crescendo_data::locale::current().fiscal;
+            if spec.style == NumberStyle::Quarter {
+                fiscal.quarter_label(y, m)
+            } else {
+                fiscal.year_label(y, m)
+            }
         }
+        Quantity::Time(ColType::Month, m) => time::month_label(*m),
         Quantity::Time(ColType::Date, d) => time::date_iso(*d),
         Quantity::Time(_, y) => y.to_string(),
         Quantity::Number(v) => {
@@ -907,7 +921,7 @@ pub fn format_quantity(q: &Quantity, spec: &FormatSpec) -> String {
                 _ => (*v, ""),
             };
             let body = if spec.style == NumberStyle::Compact && spec.decimals.is_none() {
-                crescendo_data::format::compact(scaled.abs())
+                crescendo_data::format::compact_ascii(scaled.abs())
             } else if spec.style == NumberStyle::Compact {
                 let (div, unit) = match scaled.abs() {
                     a if a >= 1e9 => (1e9, "B"),
@@ -917,12 +931,12 @@ pub fn format_quantity(q: &Quantity, spec: &FormatSpec) -> String {
                 };
                 format!(
                     "{}{unit}",
-                    crescendo_data::format::number(scaled.abs() / div, spec.decimals)
+                    crescendo_data::format::number_ascii(scaled.abs() / div, spec.decimals)
                 )
             } else {
                 match spec.decimals {
-                    Some(d) => crescendo_data::format::number(scaled.abs(), Some(d)),
-                    None => strip_zeros(crescendo_data::format::number(
+                    Some(d) => crescendo_data::format::number_ascii(scaled.abs(), Some(d)),
+                    None => strip_zeros(crescendo_data::format::number_ascii(
                         scaled.abs(),
                         Some(default_decimals(scaled)),
                     )),
@@ -931,6 +945,8 @@ pub fn format_quantity(q: &Quantity, spec: &FormatSpec) -> String {
             let is_zero = body
                 .chars()
                 .all(|c| matches!(c, '0' | '.' | ',' | 'k' | 'M' | 'B' | 'T'));
+            // the locale's symbols and groups, after the digits are chosen
+            let body = crescendo_data::locale::localize_number(body);
             let sign = if scaled < 0.0 && !is_zero {
                 "-"
             } else if spec.sign && scaled > 0.0 && !is_zero {

@@ -56,6 +56,8 @@ fn render(chart: Chart) -> String {
         values: Default::default(),
         claims: Vec::new(),
         frames: vec![f.clone()],
+        locale: None,
+        fiscal_start: None,
     };
     render_frame(&d, &f).unwrap()
 }
@@ -855,6 +857,8 @@ fn render_styled(chart: Chart, style: &style::HouseStyle) -> String {
         values: Default::default(),
         claims: Vec::new(),
         frames: vec![f.clone()],
+        locale: None,
+        fiscal_start: None,
     };
     render_frame(&d, &f).unwrap()
 }

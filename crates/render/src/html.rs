@@ -117,7 +117,13 @@ show(fromHash(),false);
 /// every other text is escaped.
 pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> String {
     let mut out = String::new();
-    out.push_str("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n");
+    // the audience's language: the story's locale, else English
+    let lang = deck.locale.as_deref().unwrap_or("en");
+    let _ = write!(
+        out,
+        "<!DOCTYPE html>\n<html lang=\"{}\">\n<head>\n<meta charset=\"utf-8\">\n",
+        escape(lang)
+    );
     out.push_str("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n");
     let _ = writeln!(out, "<title>{}</title>", escape(&deck.title));
     let theme = theme::effective(deck).unwrap_or_else(|_| theme::CLEAR.clone());

@@ -182,24 +182,40 @@ pub(crate) fn put(
 /// Digits after the decimal point in the axis' tick labels (the most of
 /// any tick), and whether they group thousands with commas.
 pub(crate) fn tick_style(axis: &Axis) -> (usize, bool) {
-    let decimals = axis
-        .ticks
+    // With a story locale the labels use its symbols; read the style from
+    // the same labels written the crescendo way.
+    let ascii: Vec<String> = if crescendo_data::locale::current().locale.is_some() {
+        let values: Vec<f64> = axis.ticks.iter().map(|t| t.value).collect();
+        let step = match values.as_slice() {
+            [a, b, ..] => b - a,
+            _ => 0.0,
+        };
+        crescendo_data::format::tick_labels_ascii(&values, step)
+    } else {
+        axis.ticks.iter().map(|t| t.label.clone()).collect()
+    };
+    let decimals = ascii
         .iter()
-        .map(|t| {
-            t.label
+        .map(|label| {
+            label
                 .split_once('.')
                 .map(|(_, f)| f.chars().take_while(char::is_ascii_digit).count())
                 .unwrap_or(0)
         })
         .max()
         .unwrap_or(0);
-    let commas = axis.ticks.iter().any(|t| t.label.contains(','));
+    let commas = ascii.iter().any(|label| label.contains(','));
     (decimals, commas)
 }
 
 /// `v` with `decimals` digits, trailing zeros (and a bare point) removed,
 /// thousands grouped when `commas`, and the ASCII minus the project uses.
 pub(crate) fn number(v: f64, decimals: usize, commas: bool) -> String {
+    crescendo_data::locale::localize_number(number_ascii(v, decimals, commas))
+}
+
+/// [`number`] in the crescendo convention whatever the story's locale.
+fn number_ascii(v: f64, decimals: usize, commas: bool) -> String {
     if !v.is_finite() {
         return String::new();
     }

@@ -77,6 +77,15 @@ pub fn render_frame_with(
     frame: &FramePlan,
     plugins: Option<&dyn plugin::PluginDrawer>,
 ) -> Result<String, RenderError> {
+    // numbers the renderer formats itself follow the deck's locale
+    crescendo_data::locale::scoped(deck.conventions(), || draw_frame(deck, frame, plugins))
+}
+
+fn draw_frame(
+    deck: &DeckPlan,
+    frame: &FramePlan,
+    plugins: Option<&dyn plugin::PluginDrawer>,
+) -> Result<String, RenderError> {
     let theme = &theme::effective(deck)?;
     let mut plugin_description = None;
     let mut buf = String::new();

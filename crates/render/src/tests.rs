@@ -101,6 +101,8 @@ fn deck(frames: Vec<FramePlan>) -> DeckPlan {
         values: Default::default(),
         claims: Vec::new(),
         frames,
+        locale: None,
+        fiscal_start: None,
     }
 }
 

@@ -420,6 +420,8 @@ mod tests {
             values: Default::default(),
             claims: Vec::new(),
             frames: Vec::new(),
+            locale: None,
+            fiscal_start: None,
         }
     }
 

@@ -23,18 +23,28 @@ pub static RULE: Rule = Rule {
 };
 
 /// "20.0", "2.50%", "1.0k": a decimal point followed by digits ending in 0.
-fn has_trailing_zero(figure: &str) -> bool {
-    let core = figure.trim_end_matches(['%', 'k', 'M', 'B', 'T']);
-    match core.split_once('.') {
+/// `separator` is the deck's decimal separator ("," in a `locale "de-DE"`
+/// story, where "1.000" is a thousand).
+fn has_trailing_zero(figure: &str, separator: &str) -> bool {
+    let core = figure
+        .trim_end_matches(['%', 'k', 'M', 'B', 'T'])
+        .trim_end();
+    match core.split_once(separator) {
         Some((_, frac)) => frac.chars().all(|c| c.is_ascii_digit()) && frac.ends_with('0'),
         None => false,
     }
 }
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
+    let separator = input
+        .plan
+        .conventions()
+        .locale
+        .as_ref()
+        .map_or_else(|| ".".to_string(), |l| l.decimal_separator());
     for (i, f, a) in frames(input) {
         for (name, figure) in &f.quoted {
-            if has_trailing_zero(figure) {
+            if has_trailing_zero(figure, &separator) {
                 out.push(Finding {
                     frame: Some(i),
                     span: quoting_span(f, a, name),
@@ -60,7 +70,10 @@ mod tests {
             ("100", false),
             ("Jul 2024", false),
         ] {
-            assert_eq!(super::has_trailing_zero(s), want, "{s}");
+            assert_eq!(super::has_trailing_zero(s, "."), want, "{s}");
         }
+        // a decimal comma: "12.300" is twelve thousand three hundred
+        assert!(!super::has_trailing_zero("12.300", ","));
+        assert!(super::has_trailing_zero("20,0 %", ","));
     }
 }

@@ -1,0 +1,1099 @@
+//! `crescendo new DATA.csv`: profile a CSV file and write a starter story.
+//!
+//! The profile uses the data crate's loader and its type inference (the
+//! same types a story would get), plus a year guess: a whole-number column
+//! named like a year (`year`, `fy`…) with values from 1000 to 2999 is
+//! declared `year`, which the loader never infers.
+//!
+//! The chart form follows the data's shape and the question it most likely
+//! answers (common practice of chart choice):
+//! - a time column and a measure: change over time, a line (one line per
+//!   category when there are a few categories); with fewer than three
+//!   periods, bars grouped by period (two points make a slope, not a trend);
+//! - two measures and no time: their relationship, a scatter plot;
+//! - a measure, a category and a second category of two to four values:
+//!   part of a whole with few parts, stacked bars;
+//! - a measure and a name per row, many rows: a distribution, a dot plot;
+//! - otherwise a comparison of categories: bars sorted by size, horizontal
+//!   when the names are long.
+//!
+//! The story builds up in four frames (context, comparison, spotlight,
+//! conclusion placeholder), quotes a value and states a placeholder claim
+//! that holds by construction, so it builds and passes the lint with
+//! `--deny warnings` before the analyst edits it.
+
+use std::collections::BTreeMap;
+use std::fmt::Write as _;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use crescendo_data::load::{load_csv, CsvSpec, LoadError};
+use crescendo_data::{ColType, Table, Value};
+use crescendo_diag::{render, Diagnostic};
+
+/// What one column holds.
+#[derive(Clone, Debug)]
+pub struct ColumnProfile {
+    pub name: String,
+    pub ty: ColType,
+    pub distinct: usize,
+    pub missing: usize,
+    /// Smallest and largest value as printed (numbers and times).
+    pub range: Option<(String, String)>,
+    /// Longest text value, in characters.
+    pub longest: usize,
+    /// Usable as a name in a story.
+    pub nameable: bool,
+}
+
+/// The profile of a file.
+#[derive(Clone, Debug)]
+pub struct Profile {
+    pub file: String,
+    pub rows: usize,
+    pub columns: Vec<ColumnProfile>,
+}
+
+/// The chart form chosen, with the roles of the columns.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Shape {
+    /// `time`, `measure`, optional `series`.
+    Trend {
+        time: String,
+        measure: String,
+        series: Option<String>,
+    },
+    /// Few periods: bars of `category` grouped by `period`.
+    Periods {
+        period: String,
+        category: String,
+        measure: String,
+    },
+    Relationship {
+        x: String,
+        y: String,
+        label: Option<String>,
+    },
+    PartOfWhole {
+        category: String,
+        part: String,
+        measure: String,
+    },
+    Distribution {
+        name: String,
+        measure: String,
+    },
+    Comparison {
+        category: String,
+        measure: String,
+        horizontal: bool,
+        top: Option<usize>,
+    },
+}
+
+/// Most bars the lint accepts in one chart (`bars-crowded`) and most lines
+/// (`lines-tangle`), less a margin.
+const MAX_BARS: usize = 12;
+const MAX_LINES: usize = 6;
+/// Names longer than this go on a horizontal bar chart (common practice:
+/// long labels read badly under vertical bars).
+const LONG_NAME: usize = 12;
+/// Fewer rows than this, one per name, are ranked rather than shown as a
+/// spread.
+const MIN_SPREAD: usize = 20;
+
+pub fn run(data: &Path, out: Option<&Path>, force: bool, color: bool) -> ExitCode {
+    let story_path = out
+        .map(Path::to_path_buf)
+        .unwrap_or_else(|| data.with_extension("cresc"));
+    if story_path.exists() && !force {
+        let d = Diagnostic::error(
+            "exists",
+            format!("{} exists; it was left as it is", story_path.display()),
+        )
+        .help("choose another file with `--out STORY`, or replace it with `--force`");
+        eprint!("{}", render(&[d], color));
+        return ExitCode::from(1);
+    }
+    let (table, profile) = match profile_file(data) {
+        Ok(p) => p,
+        Err(d) => {
+            eprint!("{}", render(&[d], color));
+            return ExitCode::from(1);
+        }
+    };
+    let shape = match choose_shape(&profile) {
+        Ok(s) => s,
+        Err(message) => {
+            print!("{}", summary(&profile, None));
+            let d = Diagnostic::error("no-starter", message)
+                .help("a starter story needs a column of numbers with a plain name (letters, digits, `_`)");
+            eprint!("{}", render(&[d], color));
+            return ExitCode::from(1);
+        }
+    };
+    let data_rel = relative_data_path(data, &story_path);
+    let story = write_story(&table, &profile, &shape, &data_rel);
+    print!("{}", summary(&profile, Some(&shape)));
+    if let Err(e) = std::fs::write(&story_path, story) {
+        eprintln!("error: cannot write {}: {e}", story_path.display());
+        return ExitCode::from(4);
+    }
+    println!("wrote {}", story_path.display());
+    println!("next: crescendo build {}", story_path.display());
+    ExitCode::SUCCESS
+}
+
+/// Load and profile a CSV file.
+pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
+    let display = data.display().to_string();
+    let spec = CsvSpec {
+        path: data.to_path_buf(),
+        display_name: display.clone(),
+        declared: Vec::new(),
+        missing: vec![String::new(), "NA".into()],
+    };
+    let mut table = load_csv(&spec).map_err(|e| match e {
+        LoadError::Csv(d) => d,
+        LoadError::Story {
+            code,
+            message,
+            help,
+            ..
+        } => {
+            let mut d = Diagnostic::error(code, message);
+            d.help = help;
+            d
+        }
+    })?;
+    // The loader never infers years: a whole-number column named like a
+    // year becomes one.
+    for c in &mut table.columns {
+        if c.ty == ColType::Number && looks_like_year(c.name.as_str(), &c.values) {
+            c.ty = ColType::Year;
+            for v in &mut c.values {
+                if let Value::Number(x) = v {
+                    *v = Value::Year(*x as i32);
+                }
+            }
+        }
+    }
+    let rows = table.columns.first().map_or(0, |c| c.values.len());
+    let columns = table
+        .columns
+        .iter()
+        .map(|c| {
+            let mut seen = std::collections::BTreeSet::new();
+            let mut missing = 0;
+            let mut longest = 0;
+            let mut lo: Option<f64> = None;
+            let mut hi: Option<f64> = None;
+            for v in &c.values {
+                let key = match v {
+                    Value::Missing => {
+                        missing += 1;
+                        continue;
+                    }
+                    Value::Text(t) => {
+                        longest = longest.max(t.chars().count());
+                        t.clone()
+                    }
+                    other => {
+                        let x = order_key(other);
+                        lo = Some(lo.map_or(x, |l: f64| l.min(x)));
+                        hi = Some(hi.map_or(x, |h: f64| h.max(x)));
+                        format!("{x:?}")
+                    }
+                };
+                seen.insert(key);
+            }
+            let range = match (lo, hi) {
+                (Some(l), Some(h)) => Some((show(c.ty, l), show(c.ty, h))),
+                _ => None,
+            };
+            ColumnProfile {
+                name: c.name.clone(),
+                ty: c.ty,
+                distinct: seen.len(),
+                missing,
+                range,
+                longest,
+                nameable: is_name(&c.name),
+            }
+        })
+        .collect();
+    Ok((
+        table,
+        Profile {
+            file: data
+                .file_name()
+                .map_or(display, |n| n.to_string_lossy().into_owned()),
+            rows,
+            columns,
+        },
+    ))
+}
+
+fn looks_like_year(name: &str, values: &[Value]) -> bool {
+    let n = name.to_ascii_lowercase();
+    let named =
+        n == "year" || n == "yr" || n == "fy" || n.ends_with("_year") || n.starts_with("year_");
+    named
+        && values.iter().any(|v| !matches!(v, Value::Missing))
+        && values.iter().all(|v| match v {
+            Value::Number(x) => x.fract() == 0.0 && (1000.0..3000.0).contains(x),
+            Value::Missing => true,
+            _ => false,
+        })
+}
+
+fn order_key(v: &Value) -> f64 {
+    match v {
+        Value::Number(x) => *x,
+        Value::Date(d) => f64::from(*d),
+        Value::Month(m) => f64::from(*m),
+        Value::Year(y) => f64::from(*y),
+        Value::Missing | Value::Text(_) => 0.0,
+    }
+}
+
+fn show(ty: ColType, x: f64) -> String {
+    use crescendo_data::time;
+    match ty {
+        ColType::Month => time::month_iso(x as i32),
+        ColType::Date => time::date_iso(x as i32),
+        ColType::Year => format!("{}", x as i64),
+        _ => crescendo_data::format::number(x, None),
+    }
+}
+
+/// A name the story language accepts (and not a reserved word).
+fn is_name(s: &str) -> bool {
+    let mut chars = s.chars();
+    let first_ok = chars
+        .next()
+        .is_some_and(|c| c.is_ascii_alphabetic() || c == '_');
+    first_ok
+        && s.chars().all(|c| c.is_ascii_alphanumeric() || c == '_')
+        && !matches!(s, "and" | "or" | "not" | "in")
+}
+
+/// Choose the chart form from the data's shape (see the module docs).
+pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
+    let usable = |c: &&ColumnProfile| c.nameable && c.distinct > 0;
+    let measures: Vec<&ColumnProfile> = p
+        .columns
+        .iter()
+        .filter(usable)
+        .filter(|c| c.ty == ColType::Number)
+        .collect();
+    let times: Vec<&ColumnProfile> = p
+        .columns
+        .iter()
+        .filter(usable)
+        .filter(|c| c.ty.is_time())
+        .collect();
+    let texts: Vec<&ColumnProfile> = p
+        .columns
+        .iter()
+        .filter(usable)
+        .filter(|c| c.ty == ColType::Text)
+        .collect();
+    let Some(measure) = measures.first() else {
+        return Err(format!("{} has no column of numbers to chart", p.file));
+    };
+    let m = measure.name.clone();
+    // a category: some repetition, not a name per row
+    let category = texts
+        .iter()
+        .filter(|c| c.distinct >= 2 && c.distinct < p.rows)
+        .min_by_key(|c| c.distinct);
+    if let Some(time) = times
+        .iter()
+        .find(|t| t.ty != ColType::Year || t.distinct >= 3)
+        .or(times.first())
+    {
+        if time.distinct < 3 {
+            if let Some(cat) = category {
+                return Ok(Shape::Periods {
+                    period: time.name.clone(),
+                    category: cat.name.clone(),
+                    measure: m,
+                });
+            }
+        } else {
+            let series = texts
+                .iter()
+                .filter(|c| c.distinct >= 2 && c.distinct <= MAX_LINES && c.distinct < p.rows)
+                .max_by_key(|c| c.distinct)
+                .map(|c| c.name.clone());
+            return Ok(Shape::Trend {
+                time: time.name.clone(),
+                measure: m,
+                series,
+            });
+        }
+    }
+    let names = texts.iter().find(|c| c.distinct == p.rows && p.rows > 1);
+    if measures.len() >= 2 && category.is_none() {
+        return Ok(Shape::Relationship {
+            x: measures[0].name.clone(),
+            y: measures[1].name.clone(),
+            label: names.filter(|n| n.distinct <= 30).map(|n| n.name.clone()),
+        });
+    }
+    if let Some(cat) = category {
+        // the parts: the text column with the fewest values (two to four);
+        // the bars: another text column
+        let part = texts
+            .iter()
+            .filter(|c| (2..=4).contains(&c.distinct) && c.distinct < p.rows)
+            .min_by_key(|c| c.distinct);
+        if let Some(part) = part {
+            let bars = texts
+                .iter()
+                .filter(|c| c.name != part.name && c.distinct >= 2 && c.distinct <= MAX_BARS)
+                .max_by_key(|c| c.distinct);
+            if let Some(bars) = bars {
+                return Ok(Shape::PartOfWhole {
+                    category: bars.name.clone(),
+                    part: part.name.clone(),
+                    measure: m,
+                });
+            }
+        }
+        let cat_full = texts
+            .iter()
+            .filter(|c| c.distinct >= 2 && c.distinct < p.rows)
+            .max_by_key(|c| c.distinct)
+            .unwrap_or(cat);
+        return Ok(Shape::Comparison {
+            category: cat_full.name.clone(),
+            measure: m,
+            horizontal: cat_full.longest > LONG_NAME,
+            top: (cat_full.distinct > MAX_BARS).then_some(MAX_BARS - 2),
+        });
+    }
+    if let Some(n) = names {
+        // many rows, one value each: a spread; a few: a ranking
+        return Ok(if p.rows >= MIN_SPREAD {
+            Shape::Distribution {
+                name: n.name.clone(),
+                measure: m,
+            }
+        } else {
+            Shape::Comparison {
+                category: n.name.clone(),
+                measure: m,
+                horizontal: n.longest > LONG_NAME,
+                top: None,
+            }
+        });
+    }
+    if measures.len() >= 2 {
+        return Ok(Shape::Relationship {
+            x: measures[0].name.clone(),
+            y: measures[1].name.clone(),
+            label: None,
+        });
+    }
+    Err(format!(
+        "{} has numbers but no column that names or groups its rows",
+        p.file
+    ))
+}
+
+/// The summary printed on the terminal.
+pub fn summary(p: &Profile, shape: Option<&Shape>) -> String {
+    let mut s = String::new();
+    let _ = writeln!(
+        s,
+        "{}: {} row{}, {} column{}",
+        p.file,
+        p.rows,
+        if p.rows == 1 { "" } else { "s" },
+        p.columns.len(),
+        if p.columns.len() == 1 { "" } else { "s" }
+    );
+    let width = p
+        .columns
+        .iter()
+        .map(|c| c.name.chars().count())
+        .max()
+        .unwrap_or(6)
+        .max(6);
+    let _ = writeln!(
+        s,
+        "  {:width$}  {:6}  {:>8}  {:>7}  range",
+        "column", "type", "distinct", "missing"
+    );
+    for c in &p.columns {
+        let range = match &c.range {
+            Some((lo, hi)) => format!("{lo} to {hi}"),
+            None if c.ty == ColType::Text => format!("names up to {} characters", c.longest),
+            None => String::new(),
+        };
+        let note = if c.nameable {
+            ""
+        } else {
+            "  (not a plain name: left out)"
+        };
+        let _ = writeln!(
+            s,
+            "  {:width$}  {:6}  {:>8}  {:>7}  {range}{note}",
+            c.name,
+            c.ty.name(),
+            c.distinct,
+            c.missing
+        );
+    }
+    let list = |ty: &dyn Fn(ColType) -> bool| {
+        let v: Vec<&str> = p
+            .columns
+            .iter()
+            .filter(|c| ty(c.ty))
+            .map(|c| c.name.as_str())
+            .collect();
+        if v.is_empty() {
+            "none".to_string()
+        } else {
+            v.join(", ")
+        }
+    };
+    let _ = writeln!(s, "time columns: {}", list(&|t: ColType| t.is_time()));
+    let _ = writeln!(s, "measures: {}", list(&|t| t == ColType::Number));
+    let _ = writeln!(s, "categories: {}", list(&|t| t == ColType::Text));
+    if let Some(shape) = shape {
+        let _ = writeln!(s, "chart: {}", why(shape));
+    }
+    s
+}
+
+/// Why the form was chosen, in one line.
+fn why(shape: &Shape) -> String {
+    match shape {
+        Shape::Trend { time, measure, series } => format!(
+            "line of {measure} over {time}{} (change over time)",
+            series
+                .as_ref()
+                .map_or(String::new(), |s| format!(", one line per {s}"))
+        ),
+        Shape::Periods { period, category, measure } => format!(
+            "bars of {measure} by {category}, grouped by {period} (fewer than three periods: too few for a line)"
+        ),
+        Shape::Relationship { x, y, .. } => {
+            format!("scatter of {y} against {x} (relationship of two measures)")
+        }
+        Shape::PartOfWhole { category, part, measure } => format!(
+            "bars of {measure} by {category}, stacked by {part} (part of a whole with few parts)"
+        ),
+        Shape::Distribution { name, measure } => {
+            format!("dot plot of {measure}, one dot per {name} (distribution)")
+        }
+        Shape::Comparison { category, measure, horizontal, .. } => format!(
+            "{} bars of {measure} by {category}, sorted (comparison of categories{})",
+            if *horizontal { "horizontal" } else { "vertical" },
+            if *horizontal { "; long names" } else { "" }
+        ),
+    }
+}
+
+/// The CSV path as the story should name it (relative to the story's folder
+/// when the CSV sits in it or below it).
+fn relative_data_path(data: &Path, story: &Path) -> String {
+    let story_dir = story
+        .parent()
+        .filter(|d| !d.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let abs = |p: &Path| std::fs::canonicalize(p).unwrap_or_else(|_| p.to_path_buf());
+    let (d, s) = (abs(data), abs(story_dir));
+    // up from the story's folder to the common ancestor, then down
+    let common = d
+        .components()
+        .zip(s.components())
+        .take_while(|(a, b)| a == b)
+        .count();
+    let mut rel = PathBuf::new();
+    for _ in s.components().skip(common) {
+        rel.push("..");
+    }
+    for c in d.components().skip(common) {
+        rel.push(c);
+    }
+    rel.to_string_lossy().replace('\\', "/")
+}
+
+/// A story string literal.
+fn quote(s: &str) -> String {
+    let mut out = String::from("\"");
+    for c in s.chars() {
+        match c {
+            '"' => out.push_str("\\\""),
+            '\\' => out.push_str("\\\\"),
+            '\n' => out.push_str("\\n"),
+            '{' | '}' => out.push('\u{2009}'),
+            c => out.push(c),
+        }
+    }
+    out.push('"');
+    out
+}
+
+/// Totals of `measure` per value of `key` (as text), ignoring missing cells.
+fn totals(table: &Table, key: &str, measure: &str) -> BTreeMap<String, f64> {
+    let mut out = BTreeMap::new();
+    let (Some(k), Some(m)) = (
+        table.columns.iter().find(|c| c.name == key),
+        table.columns.iter().find(|c| c.name == measure),
+    ) else {
+        return out;
+    };
+    for (kv, mv) in k.values.iter().zip(&m.values) {
+        let key = match kv {
+            Value::Text(t) => t.clone(),
+            Value::Year(y) => y.to_string(),
+            Value::Month(x) => crescendo_data::time::month_iso(*x),
+            Value::Date(x) => crescendo_data::time::date_iso(*x),
+            _ => continue,
+        };
+        if let Value::Number(x) = mv {
+            *out.entry(key).or_insert(0.0) += x;
+        }
+    }
+    out
+}
+
+/// The key with the largest total.
+fn largest(t: &BTreeMap<String, f64>) -> Option<String> {
+    t.iter()
+        .max_by(|a, b| a.1.total_cmp(b.1))
+        .map(|(k, _)| k.clone())
+}
+
+/// Words from a column name: `weekly_hours` → "weekly hours".
+fn words(name: &str) -> String {
+    name.replace('_', " ")
+}
+
+fn capital(s: &str) -> String {
+    let mut c = s.chars();
+    match c.next() {
+        Some(f) => f.to_uppercase().collect::<String>() + c.as_str(),
+        None => String::new(),
+    }
+}
+
+/// The starter story.
+pub fn write_story(table: &Table, p: &Profile, shape: &Shape, data_path: &str) -> String {
+    let mut s = String::new();
+    let stem = p.file.trim_end_matches(".csv").trim_end_matches(".CSV");
+    let _ = writeln!(
+        s,
+        "# Starter story written by `crescendo new` from {}.",
+        p.file
+    );
+    let _ = writeln!(
+        s,
+        "# Replace every TODO; `crescendo build` checks the claim and lints each frame."
+    );
+    let _ = writeln!(s);
+    let _ = writeln!(
+        s,
+        "story {}",
+        quote(&format!("TODO: the headline of {}", words(stem)))
+    );
+    let _ = writeln!(s, "byline \"TODO: your team\"");
+    let _ = writeln!(
+        s,
+        "source {}",
+        quote(&format!("{} (TODO: say where it comes from)", p.file))
+    );
+    let _ = writeln!(s);
+    let years: Vec<&ColumnProfile> = p.columns.iter().filter(|c| c.ty == ColType::Year).collect();
+    let data = data_name(stem);
+    if years.is_empty() {
+        let _ = writeln!(s, "data {data} from {}", quote(data_path));
+    } else {
+        let _ = writeln!(s, "# whole numbers named like a year are read as years");
+        let decls: Vec<String> = years.iter().map(|c| format!("{}: year", c.name)).collect();
+        let _ = writeln!(
+            s,
+            "data {data} from {} {{ {} }}",
+            quote(data_path),
+            decls.join(", ")
+        );
+    }
+    let s_before = s.len();
+    let _ = writeln!(s);
+    match shape {
+        Shape::Trend {
+            time,
+            measure,
+            series,
+        } => trend(&mut s, table, time, measure, series.as_deref()),
+        Shape::Periods {
+            period,
+            category,
+            measure,
+        } => periods(&mut s, table, period, category, measure),
+        Shape::Relationship { x, y, label } => relationship(&mut s, table, x, y, label.as_deref()),
+        Shape::PartOfWhole {
+            category,
+            part,
+            measure,
+        } => part_of_whole(&mut s, table, category, part, measure),
+        Shape::Distribution { name, measure } => distribution(&mut s, table, name, measure),
+        Shape::Comparison {
+            category,
+            measure,
+            horizontal,
+            top,
+        } => comparison(&mut s, table, category, measure, *horizontal, *top),
+    }
+    // the forms write `= table`; the data item is named after the file
+    let body = s
+        .split_off(s_before)
+        .replace(" = table\n", &format!(" = {data}\n"));
+    s.push_str(&body);
+    s
+}
+
+/// A name for the data item: the file's name as a story name (`hours`,
+/// `followups_2024_11`), or `rows`.
+fn data_name(stem: &str) -> String {
+    let mut n: String = stem
+        .chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() {
+                c.to_ascii_lowercase()
+            } else {
+                '_'
+            }
+        })
+        .collect();
+    if n.starts_with(|c: char| c.is_ascii_digit()) {
+        n.insert(0, '_');
+    }
+    if is_name(&n) && !n.is_empty() {
+        n
+    } else {
+        "rows".into()
+    }
+}
+
+/// The value, the claim placeholder and the conclusion, shared by every form.
+fn value_and_claim(s: &mut String, view: &str, measure: &str) {
+    let _ = writeln!(s, "value highest = max({view}.{measure})");
+    let _ = writeln!(s, "value lowest = min({view}.{measure})");
+    let _ = writeln!(
+        s,
+        "# A placeholder claim that holds by construction: replace it with the\n\
+         # comparison your headline states, e.g. `claim highest > 2 * lowest \"...\"`."
+    );
+    let _ = writeln!(
+        s,
+        "claim highest >= lowest \"TODO: the sentence this claim protects\""
+    );
+    let _ = writeln!(s);
+    let _ = writeln!(
+        s,
+        "conclusion \"TODO: the one sentence the story builds to\""
+    );
+    let _ = writeln!(s);
+}
+
+fn conclusion_frame(s: &mut String) {
+    let _ = writeln!(
+        s,
+        "# 4. Conclusion (placeholder): say what the audience should do."
+    );
+    let _ = writeln!(s, "frame \"TODO: what to do about it\" {{");
+    let _ = writeln!(s, "  takeaway \"{{conclusion}}\"");
+    let _ = writeln!(s, "}}");
+}
+
+fn trend(s: &mut String, table: &Table, time: &str, measure: &str, series: Option<&str>) {
+    let m = words(measure);
+    let _ = writeln!(
+        s,
+        "# Change over time: a line, {time} along x ({measure} summed per {time}{}).",
+        series.map_or(String::new(), |c| format!(" and {c}"))
+    );
+    match series {
+        Some(cat) => {
+            let _ = writeln!(
+                s,
+                "# A few {cat} values: one line each (more would tangle)."
+            );
+            let _ = writeln!(s, "view over_time = table");
+            let _ = writeln!(s, "  | by {time}, {cat}: {measure} = sum({measure})");
+        }
+        None => {
+            let _ = writeln!(s, "view over_time = table");
+            let _ = writeln!(s, "  | by {time}: {measure} = sum({measure})");
+        }
+    }
+    let _ = writeln!(s);
+    value_and_claim(s, "over_time", measure);
+    let focus = series.and_then(|c| largest(&totals(table, c, measure)));
+    if let (Some(cat), Some(focus)) = (series, &focus) {
+        let _ = writeln!(s, "compare {cat} by {measure}");
+        let _ = writeln!(s, "focus {}", quote(focus));
+        let _ = writeln!(s);
+        let _ = writeln!(
+            s,
+            "# 1. Context: one line first, so the pattern over time is clear."
+        );
+        let _ = writeln!(
+            s,
+            "frame {} {{",
+            quote(&format!("{} over time", capital(&m)))
+        );
+        let _ = writeln!(s, "  line over_time: x {time}, y {measure}, series {cat}");
+        let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
+        let _ = writeln!(s, "  hide all");
+        let _ = writeln!(s, "  show {}", quote(focus));
+        let _ = writeln!(s, "  takeaway \"TODO: what the first line shows\"");
+        let _ = writeln!(s, "}}");
+        let _ = writeln!(s);
+        let _ = writeln!(s, "# 2. Comparison: every line, on the same axes.");
+        let _ = writeln!(
+            s,
+            "frame {} {{",
+            quote(&format!("Every {} compared", words(cat)))
+        );
+        let _ = writeln!(s, "  show all");
+        let _ = writeln!(s, "  takeaway \"TODO: how the lines differ\"");
+        let _ = writeln!(s, "}}");
+        let _ = writeln!(s);
+        let _ = writeln!(s, "# 3. Spotlight: the focus in colour, the rest in grey.");
+        let _ = writeln!(s, "frame {} {{", quote(&format!("{focus} stands out")));
+        let _ = writeln!(s, "  spotlight focus");
+        let _ = writeln!(s, "  takeaway \"Its highest value: {{highest}}.\"");
+        let _ = writeln!(s, "}}");
+    } else {
+        let _ = writeln!(s, "# 1. Context: the whole series.");
+        let _ = writeln!(
+            s,
+            "frame {} {{",
+            quote(&format!("{} over time", capital(&m)))
+        );
+        let _ = writeln!(s, "  line over_time: x {time}, y {measure}");
+        let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
+        let _ = writeln!(s, "  takeaway \"TODO: what the line shows\"");
+        let _ = writeln!(s, "}}");
+        let _ = writeln!(s);
+        let _ = writeln!(
+            s,
+            "# 2. Comparison: the first and the last value, labelled."
+        );
+        let _ = writeln!(s, "frame \"From the first period to the last\" {{");
+        let _ = writeln!(s, "  label ends");
+        let _ = writeln!(s, "  takeaway \"TODO: how far it moved\"");
+        let _ = writeln!(s, "}}");
+        let _ = writeln!(s);
+        let _ = writeln!(s, "# 3. Spotlight: a note at the highest point.");
+        let _ = writeln!(s, "frame \"The highest point\" {{");
+        if let Some(peak) = largest(&totals(table, time, measure)) {
+            let at = if peak.contains('-') {
+                quote(&peak)
+            } else {
+                peak
+            };
+            let _ = writeln!(s, "  callout {at} \"Highest: {{highest}}\"");
+        }
+        let _ = writeln!(s, "  takeaway \"TODO: why it peaked there\"");
+        let _ = writeln!(s, "}}");
+    }
+    let _ = writeln!(s);
+    conclusion_frame(s);
+}
+
+fn periods(s: &mut String, table: &Table, period: &str, category: &str, measure: &str) {
+    let m = words(measure);
+    let _ = writeln!(
+        s,
+        "# Only two periods of {period}: bars grouped by {period} compare them\n\
+         # honestly (a line through two points is one slope, not a trend)."
+    );
+    let _ = writeln!(s, "view by_period = table");
+    let _ = writeln!(s, "  | by {category}, {period}: {measure} = sum({measure})");
+    let _ = writeln!(s, "  | sort {measure} descending");
+    let _ = writeln!(s);
+    value_and_claim(s, "by_period", measure);
+    // the bars' colours are the periods: the latest one is the focus
+    let focus = totals(table, period, measure)
+        .keys()
+        .next_back()
+        .cloned()
+        .unwrap_or_default();
+    let _ = writeln!(s, "compare {period} by {measure}");
+    let _ = writeln!(s, "focus {}", quote(&focus));
+    let _ = writeln!(s);
+    let _ = writeln!(s, "# 1. Context: every {category} in both periods.");
+    let _ = writeln!(
+        s,
+        "frame {} {{",
+        quote(&format!("{} by {}", capital(&m), words(category)))
+    );
+    let _ = writeln!(
+        s,
+        "  bars by_period: category {category}, value {measure}, group {period}"
+    );
+    let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
+    let _ = writeln!(s, "  takeaway \"TODO: what the bars show\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    let _ = writeln!(s, "# 2. Comparison: how each changed between the periods.");
+    let _ = writeln!(s, "frame \"TODO: which changed most\" {{");
+    let _ = writeln!(s, "  takeaway \"TODO: the change that matters\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    let _ = writeln!(s, "# 3. Spotlight: the focus in colour, the rest in grey.");
+    let _ = writeln!(s, "frame {} {{", quote(&format!("{focus} stands out")));
+    let _ = writeln!(s, "  spotlight focus");
+    let _ = writeln!(s, "  takeaway \"Its highest value: {{highest}}.\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    conclusion_frame(s);
+}
+
+fn relationship(s: &mut String, table: &Table, x: &str, y: &str, label: Option<&str>) {
+    let _ = writeln!(
+        s,
+        "# Two measures and no time: their relationship, a scatter plot with a\n\
+         # fitted line (check the correlation before you claim one)."
+    );
+    let _ = writeln!(s, "view points = table");
+    let _ = writeln!(s, "  | sort {y} descending");
+    let _ = writeln!(s);
+    let _ = writeln!(s, "value fit = correlation(points.{y} by {x})");
+    value_and_claim(s, "points", y);
+    let focus = label.and_then(|l| largest(&totals(table, l, y)));
+    let _ = writeln!(s, "# 1. Context: every row as a point.");
+    let _ = writeln!(
+        s,
+        "frame {} {{",
+        quote(&format!("{} against {}", capital(&words(y)), words(x)))
+    );
+    match label {
+        Some(l) => {
+            let _ = writeln!(s, "  scatter points: x {x}, y {y}, label {l}");
+        }
+        None => {
+            let _ = writeln!(s, "  scatter points: x {x}, y {y}");
+        }
+    }
+    let _ = writeln!(s, "  x title {}", quote(&capital(&words(x))));
+    let _ = writeln!(s, "  y title {}", quote(&capital(&words(y))));
+    let _ = writeln!(s, "  takeaway \"TODO: what the cloud of points shows\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    let _ = writeln!(s, "# 2. Comparison: the fitted line and its correlation.");
+    let _ = writeln!(s, "frame \"How closely they move together\" {{");
+    match label {
+        Some(l) => {
+            let _ = writeln!(s, "  scatter points: x {x}, y {y}, label {l}, fit");
+        }
+        None => {
+            let _ = writeln!(s, "  scatter points: x {x}, y {y}, fit");
+        }
+    }
+    let _ = writeln!(s, "  x title {}", quote(&capital(&words(x))));
+    let _ = writeln!(s, "  y title {}", quote(&capital(&words(y))));
+    let _ = writeln!(s, "  takeaway \"Correlation r = {{fit:.2}}.\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    let _ = writeln!(s, "# 3. Spotlight: the point with the largest {y}.");
+    let _ = writeln!(s, "frame \"TODO: the point that matters\" {{");
+    // without names to point at, the takeaway carries the point
+    if let Some(f) = &focus {
+        let _ = writeln!(s, "  spotlight {}", quote(f));
+    }
+    let _ = writeln!(s, "  takeaway \"The highest {}: {{highest}}.\"", words(y));
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    conclusion_frame(s);
+}
+
+fn part_of_whole(s: &mut String, table: &Table, category: &str, part: &str, measure: &str) {
+    let m = words(measure);
+    let _ = writeln!(
+        s,
+        "# Part of a whole with few parts: bars of {category} stacked by {part}\n\
+         # (a handful of parts stays readable; more would need a chart per part)."
+    );
+    let _ = writeln!(s, "view parts = table");
+    let _ = writeln!(s, "  | by {category}, {part}: {measure} = sum({measure})");
+    let _ = writeln!(s);
+    value_and_claim(s, "parts", measure);
+    let focus = largest(&totals(table, part, measure)).unwrap_or_default();
+    let _ = writeln!(s, "compare {part} by {measure}");
+    let _ = writeln!(s, "focus {}", quote(&focus));
+    let _ = writeln!(s);
+    let _ = writeln!(
+        s,
+        "# 1. Context: the whole of each {category}, split into its parts."
+    );
+    let _ = writeln!(
+        s,
+        "frame {} {{",
+        quote(&format!(
+            "{} by {} and {}",
+            capital(&m),
+            words(category),
+            words(part)
+        ))
+    );
+    let _ = writeln!(
+        s,
+        "  bars parts: category {category}, value {measure}, stack {part}"
+    );
+    let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
+    let _ = writeln!(s, "  takeaway \"TODO: what the totals show\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    let _ = writeln!(
+        s,
+        "# 2. Comparison: the parts side by side instead of stacked."
+    );
+    let _ = writeln!(s, "frame \"The parts side by side\" {{");
+    let _ = writeln!(
+        s,
+        "  bars parts: category {category}, value {measure}, group {part}"
+    );
+    let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
+    let _ = writeln!(s, "  takeaway \"TODO: which part leads where\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    let _ = writeln!(s, "# 3. Spotlight: the largest part in colour.");
+    let _ = writeln!(
+        s,
+        "frame {} {{",
+        quote(&format!("{focus} is the largest part"))
+    );
+    let _ = writeln!(s, "  spotlight focus");
+    let _ = writeln!(s, "  takeaway \"Its highest value: {{highest}}.\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    conclusion_frame(s);
+}
+
+fn distribution(s: &mut String, table: &Table, name: &str, measure: &str) {
+    let m = words(measure);
+    let _ = writeln!(
+        s,
+        "# One {measure} per {name}: how the values are spread, a dot plot\n\
+         # sorted by value (dots keep every value visible; bars would not start\n\
+         # anywhere meaningful for a spread)."
+    );
+    let _ = writeln!(s, "view spread = table");
+    let _ = writeln!(s, "  | sort {measure} descending");
+    let _ = writeln!(s);
+    value_and_claim(s, "spread", measure);
+    let focus = largest(&totals(table, name, measure)).unwrap_or_default();
+    let _ = writeln!(s, "compare {name} by {measure}");
+    let _ = writeln!(s, "focus {}", quote(&focus));
+    let _ = writeln!(s);
+    let _ = writeln!(s, "# 1. Context: every value as a dot.");
+    let _ = writeln!(s, "frame {} {{", quote(&format!("How {m} is spread")));
+    let _ = writeln!(s, "  dots spread: category {name}, value {measure}");
+    let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
+    let _ = writeln!(s, "  takeaway \"TODO: where most values lie\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    let _ = writeln!(s, "# 2. Comparison: the highest against the rest.");
+    let _ = writeln!(s, "frame \"From the highest to the lowest\" {{");
+    let _ = writeln!(s, "  takeaway \"From {{highest}} down to {{lowest}}.\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    let _ = writeln!(s, "# 3. Spotlight: the highest value.");
+    let _ = writeln!(s, "frame {} {{", quote(&format!("{focus} is the highest")));
+    let _ = writeln!(s, "  spotlight focus");
+    let _ = writeln!(s, "  takeaway \"TODO: why it matters\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    conclusion_frame(s);
+}
+
+fn comparison(
+    s: &mut String,
+    table: &Table,
+    category: &str,
+    measure: &str,
+    horizontal: bool,
+    top: Option<usize>,
+) {
+    let m = words(measure);
+    let _ = writeln!(
+        s,
+        "# A comparison of {category} values: bars sorted by size, so the order\n\
+         # reads at a glance{}.",
+        if horizontal {
+            "; horizontal because the names are long"
+        } else {
+            ""
+        }
+    );
+    let _ = writeln!(s, "view ranked = table");
+    let _ = writeln!(s, "  | by {category}: {measure} = sum({measure})");
+    if let Some(n) = top {
+        let _ = writeln!(
+            s,
+            "  # many {category} values: the largest ones, the rest together"
+        );
+        let _ = writeln!(s, "  | top {n} {category} by {measure} rest \"Others\"");
+    }
+    let _ = writeln!(s, "  | sort {measure} descending");
+    let _ = writeln!(s);
+    value_and_claim(s, "ranked", measure);
+    let focus = largest(&totals(table, category, measure)).unwrap_or_default();
+    let _ = writeln!(s, "compare {category} by {measure}");
+    let _ = writeln!(s, "focus {}", quote(&focus));
+    let _ = writeln!(s);
+    let orient = if horizontal { ", horizontal" } else { "" };
+    let _ = writeln!(s, "# 1. Context: every {category}, largest first.");
+    let _ = writeln!(
+        s,
+        "frame {} {{",
+        quote(&format!("{} by {}", capital(&m), words(category)))
+    );
+    let _ = writeln!(
+        s,
+        "  bars ranked: category {category}, value {measure}{orient}"
+    );
+    let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
+    let _ = writeln!(s, "  takeaway \"TODO: what the ranking shows\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    let _ = writeln!(s, "# 2. Comparison: the largest against the smallest.");
+    let _ = writeln!(s, "frame \"From the largest to the smallest\" {{");
+    let _ = writeln!(s, "  takeaway \"From {{highest}} down to {{lowest}}.\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    let _ = writeln!(s, "# 3. Spotlight: the focus in colour, the rest in grey.");
+    let _ = writeln!(s, "frame {} {{", quote(&format!("{focus} leads")));
+    let _ = writeln!(s, "  spotlight focus");
+    let _ = writeln!(s, "  takeaway \"TODO: why it leads\"");
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+    conclusion_frame(s);
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn names_the_language_accepts() {
+        assert!(is_name("weekly_hours"));
+        assert!(!is_name("weekly hours"));
+        assert!(!is_name("2024"));
+        assert!(!is_name("in"));
+    }
+
+    #[test]
+    fn quoting_escapes() {
+        assert_eq!(quote("a \"b\" \\"), "\"a \\\"b\\\" \\\\\"");
+    }
+}
