@@ -366,6 +366,65 @@ fn children(pair: Pair<Rule>) -> impl Iterator<Item = Pair<Rule>> {
     pair.into_inner().filter(|p| !is_punct(p.as_rule()))
 }
 
+/// A `db_source`: the string that names the table or holds the query (for
+/// messages), and the source itself.
+fn db_source(pair: Pair<Rule>, base: usize) -> Option<(Str, Option<DatabaseSource>)> {
+    let span = span_of(&pair, base);
+    let mut it = children(pair);
+    let what = it.next()?;
+    let (file, from) = match what.as_rule() {
+        Rule::db_table => {
+            let strings: Vec<Str> = children(what)
+                .filter(|p| p.as_rule() == Rule::string)
+                .map(|p| string(p, base))
+                .collect();
+            match strings.as_slice() {
+                [name] => (
+                    name.clone(),
+                    DbFrom::Table {
+                        schema: None,
+                        name: name.clone(),
+                    },
+                ),
+                [schema, name] => (
+                    name.clone(),
+                    DbFrom::Table {
+                        schema: Some(schema.clone()),
+                        name: name.clone(),
+                    },
+                ),
+                _ => return None,
+            }
+        }
+        _ => {
+            let q = string(children(what).find(|p| p.as_rule() == Rule::string)?, base);
+            (q.clone(), DbFrom::Query(q))
+        }
+    };
+    let mut env = None;
+    let mut order = Vec::new();
+    for p in it {
+        match p.as_rule() {
+            Rule::ident => env = Some(ident(p, base)),
+            Rule::db_order => order.extend(
+                children(p)
+                    .filter(|q| q.as_rule() == Rule::ident)
+                    .map(|q| ident(q, base)),
+            ),
+            _ => {}
+        }
+    }
+    Some((
+        file,
+        Some(DatabaseSource {
+            from,
+            env: env?,
+            order,
+            span,
+        }),
+    ))
+}
+
 fn span_of(pair: &Pair<Rule>, base: usize) -> Span {
     let s = pair.as_span();
     base + s.start()..base + s.end()
@@ -438,7 +497,12 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
             let mut it = inner.into_iter().skip(1);
             let name = ident(it.next().ok_or_else(|| internal(&span))?, base);
             let _from = it.next();
-            let file = string(it.next().ok_or_else(|| internal(&span))?, base);
+            let source = it.next().ok_or_else(|| internal(&span))?;
+            let (file, database) = if source.as_rule() == Rule::db_source {
+                db_source(source, base).ok_or_else(|| internal(&span))?
+            } else {
+                (string(source, base), None)
+            };
             let mut missing = None;
             let mut columns = Vec::new();
             for p in it {
@@ -474,6 +538,7 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
                 missing,
                 columns,
                 span,
+                database,
             })
         }
         Rule::view_item => {

@@ -27,6 +27,9 @@ pub struct Options {
     pub no_plugins: bool,
     /// Folder of the view cache (see `loading.rs`); `None`: no cache.
     pub cache: Option<PathBuf>,
+    /// How database sources are reached (`--connection`, the statement
+    /// timeout).
+    pub database: crate::database::DbOptions,
 }
 
 /// A successful plan: the deck, its warnings, and one error per claim that
@@ -42,6 +45,8 @@ pub struct Planned {
     pub failed_claims: Vec<Diagnostic>,
     /// The plugins the story loaded, by the name it gave them.
     pub plugins: crate::plugins::Plugins,
+    /// The SQL the database sources ran, with rows and bytes received.
+    pub sql: Vec<crescendo_sql::Explained>,
 }
 
 /// The result of planning: the plan, or every error found.
@@ -60,11 +65,10 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> Pla
         ..Anchors::default()
     };
     let mut plugins = crate::plugins::Plugins::new();
-    let plan = Planner::new(src, story_dir, options, &mut diags, &mut failed_claims).run(
-        &story,
-        &mut anchors,
-        &mut plugins,
-    );
+    let planner = Planner::new(src, story_dir, options, &mut diags, &mut failed_claims);
+    let sql = Arc::clone(&planner.tables.sql);
+    let plan = planner.run(&story, &mut anchors, &mut plugins);
+    let sql = sql.lock().map(|mut s| std::mem::take(&mut *s)).unwrap_or_default();
     if has_errors(&diags) {
         Err(diags)
     } else {
@@ -76,6 +80,7 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> Pla
                 anchors,
                 warnings: diags,
                 failed_claims,
+                sql,
             }),
             None => Err(vec![Diagnostic::error(
                 "internal",
@@ -417,6 +422,7 @@ impl<'a> Planner<'a> {
         anchors: &mut Anchors,
         plugins: &mut crate::plugins::Plugins,
     ) -> Option<DeckPlan> {
+        self.tables.db = self.options.database.clone();
         self.tables.prepare(story, self.options.cache.as_deref()); // streaming + cache
         let mut h = Header::default();
         let mut frames = Vec::new();

@@ -5,6 +5,7 @@
 
 pub mod anchors;
 mod build;
+mod database;
 pub mod cache;
 mod forms;
 mod loading;
@@ -17,5 +18,6 @@ pub mod style;
 pub mod values;
 
 pub use build::{plan_story, slug, Options, PlanResult, Planned};
+pub use database::DbOptions;
 pub use model::*;
 pub use resolve::LoadReport;

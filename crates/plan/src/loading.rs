@@ -110,6 +110,23 @@ impl Tables {
     pub fn prepare(&mut self, story: &StoryAst, cache: Option<&Path>) {
         self.cache = cache.map(Cache::new);
         let idents = idents_of(story);
+        let idents_outside_order = story
+            .items
+            .iter()
+            .map(|item| match item {
+                Item::Data(d) => {
+                    let mut d = d.clone();
+                    if let Some(db) = &mut d.database {
+                        db.order.clear();
+                    }
+                    idents_of(&d)
+                }
+                other => idents_of(other),
+            })
+            .fold(BTreeSet::new(), |mut all, s| {
+                all.extend(s);
+                all
+            });
         let views: Vec<&ast::ViewDecl> = story
             .items
             .iter()
@@ -167,6 +184,7 @@ impl Tables {
         }
         self.story = StoryFacts {
             idents,
+            idents_outside_order,
             all_columns,
             streamable,
         };
@@ -182,6 +200,11 @@ impl Tables {
         replacement: Option<&Path>,
         diags: &mut Vec<Diagnostic>,
     ) -> Option<Table> {
+        if let Some(db) = &decl.database {
+            if replacement.is_none() {
+                return self.load_database(src, decl, db, diags);
+            }
+        }
         let spec = data_spec(src, story_dir, decl, replacement, diags)?;
         let keep = if self.story.all_columns {
             Columns::All
