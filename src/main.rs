@@ -109,21 +109,32 @@ struct DataArgs {
     /// Read the connection string of database data item NAME from the
     /// environment variable ENVVAR instead of the one the story names
     /// (repeatable), e.g. `--connection visits=STAGING_DB`.
-    #[arg(long = "connection", value_name = "NAME=ENVVAR", value_parser = parse_connection_arg)]
-    connections: Vec<(String, String)>,
+    /// (Checked after parsing, so that a connection string given here by
+    /// mistake is never echoed.)
+    #[arg(long = "connection", value_name = "NAME=ENVVAR")]
+    connections: Vec<String>,
     /// Cancel any database query that runs longer than this many seconds.
     #[arg(long, value_name = "SECONDS", default_value_t = 60.0)]
     statement_timeout: f64,
 }
 
-fn parse_connection_arg(s: &str) -> Result<(String, String), String> {
+/// `--connection NAME=ENVVAR`; the error never repeats the argument (it
+/// may be a connection string given by mistake).
+fn parse_connection_arg(s: &str) -> Result<(String, String), Diagnostic> {
+    let ok_var = |v: &str| {
+        !v.is_empty()
+            && v.chars().all(|c| c.is_ascii_alphanumeric() || c == '_')
+            && !v.starts_with(|c: char| c.is_ascii_digit())
+    };
     match s.split_once('=') {
-        Some((name, var)) if !name.is_empty() && !var.is_empty() && !var.contains('=') => {
+        Some((name, var)) if !name.is_empty() && ok_var(var) => {
             Ok((name.to_string(), var.to_string()))
         }
-        _ => Err(format!(
-            "expected NAME=ENVVAR (the name of an environment variable, not a connection string), got `{}`",
-            if s.contains("://") || s.contains("password") { "<hidden>" } else { s }
+        _ => Err(Diagnostic::error(
+            "connection-option",
+            "`--connection` expects NAME=ENVVAR: a data item and the name of the environment \
+             variable that holds its connection string (the value given is not repeated here, \
+             in case it holds a password)",
         )),
     }
 }
@@ -652,7 +663,12 @@ fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic
         cache: incremental::planner_cache(),
         no_plugins: data.no_plugins,
         database: crescendo_plan::DbOptions {
-            connections: data.connections.iter().cloned().collect(),
+            connections: data
+                .connections
+                .iter()
+                .map(|c| parse_connection_arg(c))
+                .collect::<Result<_, _>>()
+                .map_err(|d| vec![d])?,
             timeout: std::time::Duration::from_secs_f64(
                 if data.statement_timeout.is_finite() && data.statement_timeout > 0.0 {
                     data.statement_timeout.min(86_400.0)

@@ -104,7 +104,22 @@ fn start() -> Result<Cluster, String> {
     let bin = find_bin()?;
     let uid = Command::new("id").arg("-u").output().map_err(|e| e.to_string())?;
     let as_postgres = String::from_utf8_lossy(&uid.stdout).trim() == "0";
-    let base = root().join("target").join("pgtest");
+    let mut base = root().join("target").join("pgtest");
+    if as_postgres {
+        // The postgres user must reach the folder; a checkout under a
+        // private home folder (say /root) is out of its reach, so the
+        // cluster then lives in the temporary folder instead.
+        let _ = std::fs::create_dir_all(&base);
+        let reach = Command::new("runuser")
+            .args(["-u", "postgres", "--", "test", "-x"])
+            .arg(&base)
+            .status()
+            .map_err(|e| format!("runuser: {e}"))?;
+        if !reach.success() {
+            base = std::env::temp_dir().join("crescendo-pgtest");
+            println!("note: the postgres user cannot reach target/; the cluster lives in {}", base.display());
+        }
+    }
     let data = base.join("data");
     // A cluster left by an interrupted run: stop it, start afresh.
     if data.join("postmaster.pid").exists() {
@@ -586,6 +601,28 @@ fn faults(cluster: &Cluster) {
         &[],
         "does not exist",
     );
+    // TLS demanded from a server without it.
+    check(
+        "TLS required",
+        &good,
+        &format!("{conn} sslmode=require"),
+        &[],
+        "TLS",
+    );
+    // A column whose database type the story cannot read.
+    client
+        .batch_execute(
+            "DROP TABLE IF EXISTS typed_t; CREATE TABLE typed_t (line integer, k text, flag boolean, v numeric);",
+        )
+        .expect("typed fixture");
+    let t = check(
+        "unsupported type",
+        &story("table \"typed_t\" via CRESCENDO_TEST_DB { k: text, flag: text }"),
+        &conn,
+        &[],
+        "column `flag` cannot be read",
+    );
+    assert!(t.contains("`boolean`"), "{t}");
     // Statement timeout: a huge cross join in a read-only query.
     let started = Instant::now();
     check(
@@ -687,4 +724,42 @@ frame "Totals" {
     assert!(all < 50 * 64, "{all} bytes for 50 groups");
     // Every group holds 200,000 of the 10 million rows.
     assert_eq!(report["values"]["rows_per_group"], "200,000", "{report}");
+}
+
+/// A missing environment variable is a located error (no server needed).
+#[test]
+fn an_unset_connection_variable_is_a_located_error() {
+    let dir = common::scratch("db-unset-var");
+    std::fs::write(
+        dir.join("story.cresc"),
+        "story \"x\"\ndata d from table \"t\" via CRESCENDO_SURELY_UNSET_DB\nview v = d\n  | by k: n = count()\nframe \"f\" {\n  bars v: category k, value n\n}\n",
+    )
+    .expect("write");
+    let out = run(&dir, &["check", "story.cresc"], &[]);
+    let t = text(&out);
+    assert_eq!(out.status.code(), Some(1), "{t}");
+    assert!(
+        t.contains("the environment variable `CRESCENDO_SURELY_UNSET_DB` is not set"),
+        "{t}"
+    );
+    assert!(t.contains("story.cresc:2:27"), "{t}");
+    // `--connection d=OTHER` names another variable, and the message says so.
+    let out = run(
+        &dir,
+        &["check", "story.cresc", "--connection", "d=CRESCENDO_OTHER_UNSET_DB"],
+        &[],
+    );
+    let t = text(&out);
+    assert!(t.contains("`CRESCENDO_OTHER_UNSET_DB` is not set"), "{t}");
+    assert!(t.contains("--connection d=CRESCENDO_OTHER_UNSET_DB"), "{t}");
+    // A connection string where a variable name belongs is refused without
+    // being echoed.
+    let out = run(
+        &dir,
+        &["check", "story.cresc", "--connection", "d=postgresql://u:pw=secret@h/db"],
+        &[],
+    );
+    let t = text(&out);
+    assert!(!out.status.success());
+    assert!(!t.contains("secret"), "{t}");
 }

@@ -1400,6 +1400,47 @@ frame "Bars" { bars monthly: category route, value riders, ordered }
     }
 
     #[test]
+    fn database_sources() {
+        let text = "data a from table \"sales\".\"by \\\"day\\\"\" via SALES_DB in order of day, line { day: date }\n\
+                    data b from query \"select 1 as n\" via OTHER_DB\n\
+                    data c from \"c.csv\"\n";
+        let (ast, diags) = parse_str(text);
+        assert!(diags.is_empty(), "{diags:?}");
+        let Item::Data(a) = &ast.items[0] else {
+            panic!()
+        };
+        let db = a.database.as_ref().expect("a database source");
+        assert_eq!(
+            db.from,
+            DbFrom::Table {
+                schema: Some(Str {
+                    value: "sales".into(),
+                    span: 18..25
+                }),
+                name: a.file.clone()
+            }
+        );
+        assert_eq!(a.file.value, "by \"day\"");
+        assert_eq!(db.env.name, "SALES_DB");
+        let order: Vec<&str> = db.order.iter().map(|o| o.name.as_str()).collect();
+        assert_eq!(order, ["day", "line"]);
+        assert_eq!(a.columns.len(), 1);
+        let Item::Data(b) = &ast.items[1] else {
+            panic!()
+        };
+        let db = b.database.as_ref().expect("a database source");
+        assert!(matches!(&db.from, DbFrom::Query(q) if q.value == "select 1 as n"));
+        assert!(db.order.is_empty());
+        let Item::Data(c) = &ast.items[2] else {
+            panic!()
+        };
+        assert!(c.database.is_none());
+        // The variable is required.
+        let (_, diags) = parse_str("data d from table \"t\"\n");
+        assert!(!diags.is_empty());
+    }
+
+    #[test]
     fn expression_precedence_and_spans() {
         let (ast, diags) = parse_str("view v = d | add z = 1 + 2 * 3 - -x");
         assert!(diags.is_empty(), "{diags:?}");

@@ -213,7 +213,7 @@ impl Tables {
                         diags,
                         span,
                         format!("column `{n}` cannot be read: {why}"),
-                        "in this source",
+                        "this column",
                     );
                     ok = false;
                 }
