@@ -46,7 +46,8 @@ impl Cluster {
     }
 
     fn client(&self) -> postgres::Client {
-        postgres::Client::connect(&self.conn(), postgres::NoTls).expect("connect to the test cluster")
+        postgres::Client::connect(&self.conn(), postgres::NoTls)
+            .expect("connect to the test cluster")
     }
 
     fn pg_ctl(&self, args: &[&str]) -> Output {
@@ -102,7 +103,10 @@ fn free_port() -> u16 {
 
 fn start() -> Result<Cluster, String> {
     let bin = find_bin()?;
-    let uid = Command::new("id").arg("-u").output().map_err(|e| e.to_string())?;
+    let uid = Command::new("id")
+        .arg("-u")
+        .output()
+        .map_err(|e| e.to_string())?;
     let as_postgres = String::from_utf8_lossy(&uid.stdout).trim() == "0";
     let mut base = root().join("target").join("pgtest");
     if as_postgres {
@@ -117,7 +121,10 @@ fn start() -> Result<Cluster, String> {
             .map_err(|e| format!("runuser: {e}"))?;
         if !reach.success() {
             base = std::env::temp_dir().join("crescendo-pgtest");
-            println!("note: the postgres user cannot reach target/; the cluster lives in {}", base.display());
+            println!(
+                "note: the postgres user cannot reach target/; the cluster lives in {}",
+                base.display()
+            );
         }
     }
     let data = base.join("data");
@@ -126,7 +133,14 @@ fn start() -> Result<Cluster, String> {
         let _ = pg_command(
             &bin.join("pg_ctl"),
             as_postgres,
-            &["-D", data.to_str().unwrap_or(""), "-m", "immediate", "-w", "stop"],
+            &[
+                "-D",
+                data.to_str().unwrap_or(""),
+                "-m",
+                "immediate",
+                "-w",
+                "stop",
+            ],
         );
     }
     let _ = std::fs::remove_dir_all(&base);
@@ -161,7 +175,10 @@ fn start() -> Result<Cluster, String> {
         ],
     );
     if !out.status.success() {
-        return Err(format!("initdb failed: {}", String::from_utf8_lossy(&out.stderr)));
+        return Err(format!(
+            "initdb failed: {}",
+            String::from_utf8_lossy(&out.stderr)
+        ));
     }
     let port = free_port();
     let cluster = Cluster {
@@ -286,7 +303,8 @@ fn load_csv(
         ))
         .expect("copy in");
     use std::io::Write;
-    w.write_all(&std::fs::read(csv).expect("read csv")).expect("copy");
+    w.write_all(&std::fs::read(csv).expect("read csv"))
+        .expect("copy");
     w.finish().expect("copy finished");
 }
 
@@ -346,23 +364,42 @@ fn equivalence(cluster: &Cluster) {
         let db_deck = work.join(format!("{name}-db"));
         let a = run(
             dir,
-            &["build", path.to_str().unwrap(), "--no-cache", "--out", csv_deck.to_str().unwrap()],
+            &[
+                "build",
+                path.to_str().unwrap(),
+                "--no-cache",
+                "--out",
+                csv_deck.to_str().unwrap(),
+            ],
             &[],
         );
         assert!(a.status.success(), "{name} from CSV: {}", text_of(&a));
         let env = [("CRESCENDO_TEST_DB", conn.as_str())];
         let b = run(
             &copy,
-            &["build", story_file.to_str().unwrap(), "--no-cache", "--out", db_deck.to_str().unwrap()],
+            &[
+                "build",
+                story_file.to_str().unwrap(),
+                "--no-cache",
+                "--out",
+                db_deck.to_str().unwrap(),
+            ],
             &env,
         );
-        assert!(b.status.success(), "{name} from PostgreSQL: {}", text_of(&b));
+        assert!(
+            b.status.success(),
+            "{name} from PostgreSQL: {}",
+            text_of(&b)
+        );
         let (fa, fb) = (read_dir_files(&csv_deck), read_dir_files(&db_deck));
         let names_a: Vec<&String> = fa.iter().map(|(n, _)| n).collect();
         let names_b: Vec<&String> = fb.iter().map(|(n, _)| n).collect();
         assert_eq!(names_a, names_b, "{name}: the decks hold different files");
         for ((n, x), (_, y)) in fa.iter().zip(&fb) {
-            assert!(x == y, "{name}: `{n}` differs between the CSV and the PostgreSQL deck");
+            assert!(
+                x == y,
+                "{name}: `{n}` differs between the CSV and the PostgreSQL deck"
+            );
         }
         let explain = run(
             &copy,
@@ -394,8 +431,26 @@ fn aggregates(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
     let visits = root().join("stories/pools/data/visits.csv");
     std::fs::copy(&hours, dir.join("hours.csv")).expect("copy");
     std::fs::copy(&visits, dir.join("visits.csv")).expect("copy");
-    load_csv(client, "agg_hours", &hours, &[("task".into(), ColType::Text), ("quarter".into(), ColType::Text), ("hours".into(), ColType::Number)]);
-    load_csv(client, "agg_visits", &visits, &[("month".into(), ColType::Month), ("pool".into(), ColType::Text), ("visits".into(), ColType::Number)]);
+    load_csv(
+        client,
+        "agg_hours",
+        &hours,
+        &[
+            ("task".into(), ColType::Text),
+            ("quarter".into(), ColType::Text),
+            ("hours".into(), ColType::Number),
+        ],
+    );
+    load_csv(
+        client,
+        "agg_visits",
+        &visits,
+        &[
+            ("month".into(), ColType::Month),
+            ("pool".into(), ColType::Text),
+            ("visits".into(), ColType::Number),
+        ],
+    );
     let measures = ["total", "avg", "mid", "lo", "hi", "one", "final", "n", "nh"];
     let mut story = String::from(
         "story \"Aggregates\"\n\
@@ -413,8 +468,12 @@ fn aggregates(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
          \x20 | by pool: first_month = min(month), last_month = max(month), total = sum(visits)\n",
     );
     for m in measures {
-        story.push_str(&format!("frame \"{m} by task\" {{\n  bars by_task: category task, value {m}\n}}\n"));
-        story.push_str(&format!("frame \"{m} by pool\" {{\n  bars per_pool: category pool, value {m}\n}}\n"));
+        story.push_str(&format!(
+            "frame \"{m} by task\" {{\n  bars by_task: category task, value {m}\n}}\n"
+        ));
+        story.push_str(&format!(
+            "frame \"{m} by pool\" {{\n  bars per_pool: category pool, value {m}\n}}\n"
+        ));
     }
     story.push_str("frame \"Westbrook\" {\n  line by_pool: x month, y avg, series pool\n}\n");
     story.push_str("value first_month = first(months.first_month)\nvalue last_month = last(months.last_month)\n");
@@ -422,8 +481,14 @@ fn aggregates(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
         .replace("SOURCE_H", "\"hours.csv\"")
         .replace("SOURCE_V", "\"visits.csv\"");
     let db = story
-        .replace("SOURCE_H", "table \"agg_hours\" via CRESCENDO_TEST_DB in order of line")
-        .replace("SOURCE_V", "table \"agg_visits\" via CRESCENDO_TEST_DB in order of line");
+        .replace(
+            "SOURCE_H",
+            "table \"agg_hours\" via CRESCENDO_TEST_DB in order of line",
+        )
+        .replace(
+            "SOURCE_V",
+            "table \"agg_visits\" via CRESCENDO_TEST_DB in order of line",
+        );
     std::fs::write(dir.join("csv.cresc"), csv).expect("write");
     std::fs::write(dir.join("db.cresc"), db).expect("write");
     let conn = cluster.conn();
@@ -432,7 +497,10 @@ fn aggregates(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
     assert!(a.status.success(), "{}", text(&a));
     let b = run(&dir, &["plan", "db.cresc"], &env);
     assert!(b.status.success(), "{}", text(&b));
-    let (pa, pb) = (String::from_utf8_lossy(&a.stdout), String::from_utf8_lossy(&b.stdout));
+    let (pa, pb) = (
+        String::from_utf8_lossy(&a.stdout),
+        String::from_utf8_lossy(&b.stdout),
+    );
     assert!(pa.len() > 1000);
     for (la, lb) in pa.lines().zip(pb.lines()) {
         assert_eq!(la, lb, "the plans differ");
@@ -520,14 +588,21 @@ frame "Totals by category" {
     assert!(t.contains("value first_cat = '); DROP TABLE x; --"), "{t}");
     // The hostile category went as a bound value, never as SQL text.
     assert!(t.contains(r#"$1 = "'); DROP TABLE x; --""#), "{t}");
-    assert!(!t.lines().any(|l| l.starts_with("SELECT") && l.contains("DROP")), "{t}");
+    assert!(
+        !t.lines()
+            .any(|l| l.starts_with("SELECT") && l.contains("DROP")),
+        "{t}"
+    );
     let n: i64 = client
         .query_one("SELECT count(*) FROM x", &[])
         .expect("x is still there")
         .get(0);
     assert_eq!(n, 3);
     let n: i64 = client
-        .query_one(r#"SELECT count(*) FROM "sch;ema ü"."we""ird; tab'le ü""#, &[])
+        .query_one(
+            r#"SELECT count(*) FROM "sch;ema ü"."we""ird; tab'le ü""#,
+            &[],
+        )
         .expect("the hostile table is still there")
         .get(0);
     assert_eq!(n, 4);
@@ -574,10 +649,20 @@ fn faults(cluster: &Cluster) {
         let t = text(&out);
         assert!(!out.status.success(), "{what}: the build should fail\n{t}");
         assert!(t.contains("cannot read data `f`"), "{what}: {t}");
-        assert!(t.contains("story.cresc:3:"), "{what}: not located on the data line\n{t}");
+        assert!(
+            t.contains("story.cresc:3:"),
+            "{what}: not located on the data line\n{t}"
+        );
         assert!(t.contains(label), "{what}: {t}");
-        assert!(!t.contains(PASSWORD) && !t.contains("Wr0ng-pa55"), "{what}: a password leaked\n{t}");
-        assert_eq!(read_dir_files(&deck), before, "{what}: the previous deck was not kept");
+        assert!(
+            !t.contains(PASSWORD) && !t.contains("Wr0ng-pa55"),
+            "{what}: a password leaked\n{t}"
+        );
+        assert_eq!(
+            read_dir_files(&deck),
+            before,
+            "{what}: the previous deck was not kept"
+        );
         println!("{what}:\n{t}");
         t
     };
@@ -592,7 +677,13 @@ fn faults(cluster: &Cluster) {
         "host=127.0.0.1 port={} user=postgres password=Wr0ng-pa55 dbname=postgres",
         cluster.port
     );
-    check("wrong password", &good, &wrong, &[], "password authentication failed");
+    check(
+        "wrong password",
+        &good,
+        &wrong,
+        &[],
+        "password authentication failed",
+    );
     // Missing table.
     check(
         "missing table",
@@ -637,7 +728,8 @@ fn faults(cluster: &Cluster) {
     let killer = {
         let conn = conn.clone();
         std::thread::spawn(move || {
-            let mut c = postgres::Client::connect(&conn, postgres::NoTls).expect("second connection");
+            let mut c =
+                postgres::Client::connect(&conn, postgres::NoTls).expect("second connection");
             let until = Instant::now() + Duration::from_secs(60);
             while Instant::now() < until {
                 let rows = c
@@ -663,7 +755,10 @@ fn faults(cluster: &Cluster) {
         &["--statement-timeout", "120"],
         "connection",
     );
-    assert!(killer.join().expect("killer thread"), "the query was never seen running");
+    assert!(
+        killer.join().expect("killer thread"),
+        "the query was never seen running"
+    );
     std::fs::write(dir.join("story.cresc"), &good).expect("write");
 }
 
@@ -746,7 +841,12 @@ fn an_unset_connection_variable_is_a_located_error() {
     // `--connection d=OTHER` names another variable, and the message says so.
     let out = run(
         &dir,
-        &["check", "story.cresc", "--connection", "d=CRESCENDO_OTHER_UNSET_DB"],
+        &[
+            "check",
+            "story.cresc",
+            "--connection",
+            "d=CRESCENDO_OTHER_UNSET_DB",
+        ],
         &[],
     );
     let t = text(&out);
@@ -756,7 +856,12 @@ fn an_unset_connection_variable_is_a_located_error() {
     // being echoed.
     let out = run(
         &dir,
-        &["check", "story.cresc", "--connection", "d=postgresql://u:pw=secret@h/db"],
+        &[
+            "check",
+            "story.cresc",
+            "--connection",
+            "d=postgresql://u:pw=secret@h/db",
+        ],
         &[],
     );
     let t = text(&out);

@@ -68,7 +68,10 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> Pla
     let planner = Planner::new(src, story_dir, options, &mut diags, &mut failed_claims);
     let sql = Arc::clone(&planner.tables.sql);
     let plan = planner.run(&story, &mut anchors, &mut plugins);
-    let sql = sql.lock().map(|mut s| std::mem::take(&mut *s)).unwrap_or_default();
+    let sql = sql
+        .lock()
+        .map(|mut s| std::mem::take(&mut *s))
+        .unwrap_or_default();
     if has_errors(&diags) {
         Err(diags)
     } else {

@@ -25,6 +25,7 @@ use crescendo_lang::ast::{self, DbFrom};
 use crescendo_sql::print::{self, RowOrder};
 use crescendo_sql::{types, Explained, Session, SrcColumn};
 
+use crate::loading::prefix_len;
 use crate::resolve::{build_view_inner, data_spec, Named, Streamed, Tables};
 
 /// How database sources are reached.
@@ -46,18 +47,9 @@ impl Default for DbOptions {
     }
 }
 
-/// Number of leading steps of a view that run in the database: `keep`s,
-/// then one `by`.
-fn prefix_len(steps: &[ast::StepAst]) -> usize {
-    let keeps = steps
-        .iter()
-        .take_while(|s| matches!(s, ast::StepAst::Keep { .. }))
-        .count();
-    match steps.get(keeps) {
-        Some(ast::StepAst::By { .. }) => keeps + 1,
-        _ => keeps,
-    }
-}
+/// A view's prefix query: the view, the number of its steps (as written)
+/// the prefix covers, the resolved prefix steps and the query.
+type PrefixQuery = (String, usize, Vec<Step>, print::Query);
 
 impl Tables {
     /// Load a database `data` item (see the module docs).
@@ -302,10 +294,15 @@ impl Tables {
                             )
                             .at(src, decl.file.span.clone(), "read whole")
                             .note(
-                                "a chart or value reads this data item itself, or a view over it \
+                                "a chart or value reads this data item itself (its name appears \
+                                 outside views, perhaps as a column name), or a view over it \
                                  does not start with `keep` or `by`; views that start with them \
                                  are computed in the database",
-                            ),
+                            )
+                            .help(format!(
+                                "if only views read it, give `{name}` a name no column or \
+                                 value uses"
+                            )),
                         );
                         self.report.loaded.push(name.clone());
                         table
@@ -348,7 +345,7 @@ impl Tables {
         cols: &[SrcColumn],
         shell: &Table,
         views: &[ast::ViewDecl],
-    ) -> Option<Vec<(String, usize, Vec<Step>, print::Query)>> {
+    ) -> Option<Vec<PrefixQuery>> {
         let named = Named {
             table: shell.clone(),
             decl: decl.span.clone(),

@@ -5,8 +5,8 @@
 
 pub mod anchors;
 mod build;
-mod database;
 pub mod cache;
+mod database;
 mod forms;
 mod loading;
 pub mod model;

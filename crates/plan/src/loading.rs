@@ -92,7 +92,7 @@ fn idents_of(x: &(impl Debug + ?Sized)) -> BTreeSet<String> {
 }
 
 /// Number of leading steps of a view that stream: `keep`s, then one `by`.
-fn prefix_len(steps: &[StepAst]) -> usize {
+pub(crate) fn prefix_len(steps: &[StepAst]) -> usize {
     let keeps = steps
         .iter()
         .take_while(|s| matches!(s, StepAst::Keep { .. }))

@@ -62,6 +62,9 @@ pub fn redact(msg: &str, conn: &str) -> String {
     out
 }
 
+/// One received row: its cells as text (`None` for NULL).
+pub type Row = Vec<Option<String>>;
+
 /// An open connection inside a read-only transaction.
 pub struct Session {
     client: Client,
@@ -88,10 +91,7 @@ fn describe(e: &postgres::Error, conn: &str, timeout: Duration) -> SessionError 
                 db.message()
             )
         } else {
-            source_problem = matches!(
-                code.code().get(..2),
-                Some("42") | Some("22") | Some("25")
-            );
+            source_problem = matches!(code.code().get(..2), Some("42") | Some("22") | Some("25"));
             format!("the database says: {}", db.message())
         }
     } else if e.is_closed() {
@@ -183,7 +183,7 @@ impl Session {
         sql: &str,
         params: &[String],
         timeout: Duration,
-    ) -> Result<(Vec<Vec<Option<String>>>, u64), SessionError> {
+    ) -> Result<(Vec<Row>, u64), SessionError> {
         let refs: Vec<&(dyn ToSql + Sync)> =
             params.iter().map(|p| p as &(dyn ToSql + Sync)).collect();
         let rows = self
@@ -195,8 +195,9 @@ impl Session {
         for row in &rows {
             let mut cells = Vec::with_capacity(row.len());
             for i in 0..row.len() {
-                let cell: Option<String> =
-                    row.try_get(i).map_err(|e| describe(&e, &self.conn, timeout))?;
+                let cell: Option<String> = row
+                    .try_get(i)
+                    .map_err(|e| describe(&e, &self.conn, timeout))?;
                 bytes += cell.as_ref().map_or(0, |c| c.len() as u64);
                 cells.push(cell);
             }

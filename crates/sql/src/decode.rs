@@ -20,7 +20,9 @@ fn number(cell: Option<&str>, name: &str) -> Result<Option<f64>, String> {
         None => Ok(None),
         Some(s) => match s.trim().parse::<f64>() {
             Ok(x) => Ok(Some(x)),
-            Err(_) => Err(format!("column `{name}` holds `{s}`, which is not a number")),
+            Err(_) => Err(format!(
+                "column `{name}` holds `{s}`, which is not a number"
+            )),
         },
     }
 }
@@ -37,8 +39,12 @@ pub fn value(cell: Option<&str>, ty: ColType, name: &str) -> Result<Value, Strin
             Some(x) => finite(x),
             None => Value::Missing,
         },
-        ColType::Date => Value::Date(time::parse_date(s).ok_or_else(|| bad("a date (YYYY-MM-DD)"))?),
-        ColType::Month => Value::Month(time::parse_month(s).ok_or_else(|| bad("a month (YYYY-MM)"))?),
+        ColType::Date => {
+            Value::Date(time::parse_date(s).ok_or_else(|| bad("a date (YYYY-MM-DD)"))?)
+        }
+        ColType::Month => {
+            Value::Month(time::parse_month(s).ok_or_else(|| bad("a month (YYYY-MM)"))?)
+        }
         ColType::Year => Value::Year(time::parse_year(s).ok_or_else(|| bad("a year (YYYY)"))?),
     })
 }
@@ -115,14 +121,31 @@ mod tests {
             },
         ];
         let rows = vec![
-            vec![s("2024-03"), s("10.5"), s("4"), s("1"), s("4"), s("4"), None],
+            vec![
+                s("2024-03"),
+                s("10.5"),
+                s("4"),
+                s("1"),
+                s("4"),
+                s("4"),
+                None,
+            ],
             vec![None, None, s("0"), s("7"), s("7"), s("3"), s("2024")],
         ];
         let t = table(&rows, &outputs).unwrap();
-        assert_eq!(t.columns[0].values, vec![Value::Month(2024 * 12 + 2), Value::Missing]);
-        assert_eq!(t.columns[1].values, vec![Value::Number(2.625), Value::Missing]);
+        assert_eq!(
+            t.columns[0].values,
+            vec![Value::Month(2024 * 12 + 2), Value::Missing]
+        );
+        assert_eq!(
+            t.columns[1].values,
+            vec![Value::Number(2.625), Value::Missing]
+        );
         // Even count: 1/2 + 4/2; odd count: the middle value.
-        assert_eq!(t.columns[2].values, vec![Value::Number(2.5), Value::Number(7.0)]);
+        assert_eq!(
+            t.columns[2].values,
+            vec![Value::Number(2.5), Value::Number(7.0)]
+        );
         assert_eq!(t.columns[3].values, vec![Value::Missing, Value::Year(2024)]);
         let e = table(&[vec![s("2024-3")]], &outputs[..1]).unwrap_err();
         assert!(e.contains("`month`") && e.contains("`2024-3`"), "{e}");

@@ -56,6 +56,9 @@ pub struct Explained {
 /// Where a database `data` item reads from.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub enum From {
-    Table { schema: Option<String>, name: String },
+    Table {
+        schema: Option<String>,
+        name: String,
+    },
     Query(String),
 }

@@ -505,10 +505,31 @@ mod tests {
             )),
         );
         assert_eq!(q.params, vec!["0.5".to_string(), "3.0".to_string()]);
-        assert!(q.sql.contains("(s.c2::double precision / NULLIF(CAST($1::text AS double precision), 0))"), "{}", q.sql);
-        assert!(q.sql.contains("percentile_disc(0.5) WITHIN GROUP (ORDER BY s.c2 DESC)") || q.sql.contains("ORDER BY s.c2::double precision DESC"), "{}", q.sql);
-        assert!(q.sql.contains("FROM (select 1) AS \"crescendo source\""), "{}", q.sql);
-        assert!(q.sql.contains("row_number() OVER (ORDER BY \"month\"::text COLLATE \"C\" NULLS LAST"), "{}", q.sql);
+        assert!(
+            q.sql.contains(
+                "(s.c2::double precision / NULLIF(CAST($1::text AS double precision), 0))"
+            ),
+            "{}",
+            q.sql
+        );
+        assert!(
+            q.sql
+                .contains("percentile_disc(0.5) WITHIN GROUP (ORDER BY s.c2 DESC)")
+                || q.sql.contains("ORDER BY s.c2::double precision DESC"),
+            "{}",
+            q.sql
+        );
+        assert!(
+            q.sql.contains("FROM (select 1) AS \"crescendo source\""),
+            "{}",
+            q.sql
+        );
+        assert!(
+            q.sql
+                .contains("row_number() OVER (ORDER BY \"month\"::text COLLATE \"C\" NULLS LAST"),
+            "{}",
+            q.sql
+        );
         assert!(!q.sql.contains("GROUP BY"));
         assert_eq!(q.outputs, vec![Output::Median { name: "m".into() }]);
     }

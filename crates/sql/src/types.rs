@@ -171,7 +171,10 @@ mod tests {
         let e = map("jsonb", None).unwrap_err();
         assert!(e.contains("`jsonb`"), "{e}");
         let e = map("numeric", Some(ColType::Year)).unwrap_err();
-        assert!(e.contains("declared year") && e.contains("`numeric`"), "{e}");
+        assert!(
+            e.contains("declared year") && e.contains("`numeric`"),
+            "{e}"
+        );
         let e = map("text", Some(ColType::Number)).unwrap_err();
         assert!(e.contains("declared number"), "{e}");
         assert!(map("timestamptz", None)
