@@ -572,6 +572,9 @@ value first_cat = first(totals.cat)
 frame "Totals by category" {
   bars totals: category cat, value total
 }
+frame "Every row" {
+  table odd
+}
 "#;
     std::fs::write(dir.join("story.cresc"), story).expect("write");
     let conn = cluster.conn();
@@ -592,6 +595,20 @@ frame "Totals by category" {
         !t.lines()
             .any(|l| l.starts_with("SELECT") && l.contains("DROP")),
         "{t}"
+    );
+    // A `table` chart reads every column, the hostile one included, quoted.
+    assert!(t.contains(r#""odd ""col""; ü"::text AS c"#), "{t}");
+    assert!(t.contains(r#"FROM "sch;ema ü"."we""ird; tab'le ü""#), "{t}");
+    let built = run(
+        &dir,
+        &["build", "story.cresc", "--no-cache"],
+        &[("CRESCENDO_TEST_DB", conn.as_str())],
+    );
+    assert!(built.status.success(), "{}", text(&built));
+    let svg = std::fs::read_to_string(dir.join("deck").join("02-every-row.svg")).expect("deck");
+    assert!(
+        svg.contains("columns Line, Cat, N, Odd &quot;col&quot;; ü"),
+        "the hostile column is not in the table frame"
     );
     let n: i64 = client
         .query_one("SELECT count(*) FROM x", &[])
