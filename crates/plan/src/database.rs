@@ -294,14 +294,13 @@ impl Tables {
                             )
                             .at(src, decl.file.span.clone(), "read whole")
                             .note(
-                                "a chart or value reads this data item itself (its name appears \
-                                 outside views, perhaps as a column name), or a view over it \
-                                 does not start with `keep` or `by`; views that start with them \
-                                 are computed in the database",
+                                "a chart or value reads this data item itself, or a view over \
+                                 it does not start with `keep` or `by`; views that start with \
+                                 them are computed in the database",
                             )
                             .help(format!(
-                                "if only views read it, give `{name}` a name no column or \
-                                 value uses"
+                                "point charts and values at views over `{name}` that start \
+                                 with `keep` or `by`"
                             )),
                         );
                         self.report.loaded.push(name.clone());

@@ -91,6 +91,22 @@ fn idents_of(x: &(impl Debug + ?Sized)) -> BTreeSet<String> {
     out
 }
 
+/// Every name used as the table of a chart (`line NAME: …`), a plugin
+/// chart (`draw FORM NAME`) or a value selection (`sum(NAME.col …)`) in
+/// `x`: the syntax tree's `view` fields, read from its debug form.
+fn tables_named_in(x: &(impl Debug + ?Sized)) -> BTreeSet<String> {
+    let text = format!("{x:?}");
+    let marker = "view: Ident { name: \"";
+    let mut out = BTreeSet::new();
+    let mut rest = text.as_str();
+    while let Some(i) = rest.find(marker) {
+        rest = &rest[i + marker.len()..];
+        let name: String = rest.chars().take_while(|c| *c != '"').collect();
+        out.insert(name);
+    }
+    out
+}
+
 /// Number of leading steps of a view that stream: `keep`s, then one `by`.
 pub(crate) fn prefix_len(steps: &[StepAst]) -> usize {
     let keeps = steps
@@ -162,7 +178,15 @@ impl Tables {
             let name = &d.name.name;
             let read_elsewhere = story.items.iter().any(|other| {
                 !matches!(other, Item::Data(_) | Item::View(_))
-                    && idents_of(other).contains(name.as_str())
+                    && if d.database.is_some() {
+                        // A database item is read elsewhere only where a
+                        // chart, a plugin chart or a value selection names
+                        // it as its table, so that a column of the same name
+                        // does not bring every row over the network.
+                        tables_named_in(other).contains(name.as_str())
+                    } else {
+                        idents_of(other).contains(name.as_str())
+                    }
             });
             let mine: Vec<ast::ViewDecl> = story.items[i + 1..]
                 .iter()
@@ -440,6 +464,28 @@ impl Tables {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn tables_are_the_view_fields_of_charts_plugins_and_selections() {
+        let src = Source::file(
+            "t.cresc",
+            "data visits from \"d.csv\"\nview monthly = visits\n  | by pool: visits = sum(visits)\n\
+             value top = max(monthly.visits where pool = \"A\")\n\
+             value n = count(raw where visits > 3)\n\
+             compare pool by visits\n\
+             frame \"f\" {\n  bars monthly: category pool, value visits\n}\n\
+             frame \"g\" {\n  draw slope trips: category pool, value visits\n}\n",
+        );
+        let (ast, diags) = crescendo_lang::parse(&src);
+        assert!(diags.is_empty(), "{diags:?}");
+        let found: Vec<String> = ast
+            .items
+            .iter()
+            .filter(|i| !matches!(i, Item::Data(_) | Item::View(_)))
+            .flat_map(tables_named_in)
+            .collect();
+        assert_eq!(found, ["monthly", "raw", "monthly", "trips"]);
+    }
 
     #[test]
     fn idents_are_read_from_any_node() {
