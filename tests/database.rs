@@ -638,6 +638,47 @@ frame "Every row" {
         .expect("the hostile table is still there")
         .get(0);
     assert_eq!(n, 4);
+    // A `query` source runs read-only and as one statement: writing fails,
+    // a second statement cannot ride along, and `x` stays intact.
+    for (what, query, says) in [
+        (
+            "a write",
+            "with d as (delete from x returning keep_me) select keep_me from d",
+            "data-modifying statement",
+        ),
+        (
+            "a second statement",
+            "select 1 as keep_me) as a; drop table x; select (1",
+            "cannot insert multiple commands",
+        ),
+        (
+            "a function that writes",
+            "select keep_me, nextval('s_hostile') as n from x",
+            "read-only transaction",
+        ),
+    ] {
+        client
+            .batch_execute("CREATE SEQUENCE IF NOT EXISTS s_hostile")
+            .expect("sequence");
+        let story = format!(
+            "story \"Writes\"\ndata w from query \"{}\" via CRESCENDO_TEST_DB\nview v = w\n  | by keep_me: n = count()\nframe \"f\" {{\n  bars v: category keep_me, value n\n}}\n",
+            query.replace('"', "\\\"")
+        );
+        std::fs::write(dir.join("writes.cresc"), story).expect("write");
+        let out = run(
+            &dir,
+            &["check", "writes.cresc"],
+            &[("CRESCENDO_TEST_DB", conn.as_str())],
+        );
+        let t = text(&out);
+        assert!(!out.status.success(), "{what}: {t}");
+        assert!(t.contains("cannot read data `w`") && t.contains(says), "{what}: {t}");
+        let n: i64 = client
+            .query_one("SELECT count(*) FROM x", &[])
+            .expect("x is still there")
+            .get(0);
+        assert_eq!(n, 3, "{what}");
+    }
 }
 
 /// Server down, wrong password, missing table, statement timeout and a
