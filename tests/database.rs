@@ -672,7 +672,10 @@ frame "Every row" {
         );
         let t = text(&out);
         assert!(!out.status.success(), "{what}: {t}");
-        assert!(t.contains("cannot read data `w`") && t.contains(says), "{what}: {t}");
+        assert!(
+            t.contains("cannot read data `w`") && t.contains(says),
+            "{what}: {t}"
+        );
         let n: i64 = client
             .query_one("SELECT count(*) FROM x", &[])
             .expect("x is still there")

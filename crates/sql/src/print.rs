@@ -479,6 +479,86 @@ mod tests {
         );
     }
 
+    /// Every aggregate over every kind of column, with a filter using each
+    /// operator: the printed query, read by a person (snapshot).
+    #[test]
+    fn every_aggregate_prints() {
+        let mut cs = cols();
+        cs.push(SrcColumn {
+            name: "year".into(),
+            ty: ColType::Year,
+            read: Read::Year,
+        });
+        cs.push(SrcColumn {
+            name: "amount".into(),
+            ty: ColType::Number,
+            read: Read::Float,
+        });
+        let lit = |v: Value| Box::new(Expr::Lit(v));
+        let col = |i: usize| Box::new(Expr::Col(i));
+        let keeps = vec![
+            Expr::And(
+                Box::new(Expr::Cmp(CmpOp::Ge, col(0), lit(Value::Month(2024 * 12)))),
+                Box::new(Expr::Not(Box::new(Expr::In(
+                    col(1),
+                    vec![Value::Text("A".into()), Value::Text("B".into())],
+                )))),
+            ),
+            Expr::Or(
+                Box::new(Expr::Cmp(CmpOp::Ne, col(3), lit(Value::Year(2020)))),
+                Box::new(Expr::Cmp(
+                    CmpOp::Lt,
+                    Box::new(Expr::Neg(Box::new(Expr::Arith(
+                        ArithOp::Sub,
+                        col(4),
+                        col(2),
+                    )))),
+                    lit(Value::Number(-1.5)),
+                )),
+            ),
+        ];
+        let agg = |name: &str, func, column| Aggregate {
+            name: name.into(),
+            func,
+            column,
+        };
+        let aggs = vec![
+            agg("rows", AggFn::Count, None),
+            agg("n", AggFn::Count, Some(4)),
+            agg("total", AggFn::Sum, Some(4)),
+            agg("visits", AggFn::Sum, Some(2)),
+            agg("avg", AggFn::Mean, Some(2)),
+            agg("mid", AggFn::Median, Some(4)),
+            agg("lo", AggFn::Min, Some(1)),
+            agg("hi", AggFn::Max, Some(0)),
+            agg("one", AggFn::First, Some(1)),
+            agg("end", AggFn::Last, Some(3)),
+        ];
+        let q = prefix(
+            &From::Table {
+                schema: None,
+                name: "visits".into(),
+            },
+            &RowOrder {
+                columns: vec![("day".into(), false), ("gate".into(), true)],
+            },
+            &cs,
+            &keeps,
+            Some((&[1, 3], &aggs)),
+        );
+        let mut shown = q
+            .sql
+            .replace(" FROM (", "\nFROM (")
+            .replace(" WHERE ", "\nWHERE ");
+        shown = shown
+            .replace(" GROUP BY ", "\nGROUP BY ")
+            .replace(", ", ",\n  ");
+        for (i, p) in q.params.iter().enumerate() {
+            shown.push_str(&format!("\n-- ${} = {p:?}", i + 1));
+        }
+        insta::assert_snapshot!(shown);
+    }
+
     #[test]
     fn numbers_divide_safely_and_median_reads_both_middles() {
         let keep = Expr::Cmp(
