@@ -226,7 +226,11 @@ impl Tables {
     ) -> Option<Table> {
         if let Some(db) = &decl.database {
             if replacement.is_none() {
-                return self.load_database(src, decl, db, diags);
+                let table = self.load_database(src, decl, db, diags);
+                if let Some(c) = &self.cache {
+                    c.put("report", "last", &self.report);
+                }
+                return table;
             }
         }
         let spec = data_spec(src, story_dir, decl, replacement, diags)?;
