@@ -479,6 +479,11 @@ fn aggregates(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
          \x20 | by pool, month: total = sum(visits), avg = mean(visits), mid = median(visits), lo = min(visits), hi = max(visits), one = first(visits), final = last(visits), n = count(), nh = count(visits)\n\
          view per_pool = v\n\
          \x20 | by pool: total = sum(visits), avg = mean(visits), mid = median(visits), lo = min(visits), hi = max(visits), one = first(visits), final = last(visits), n = count(), nh = count(visits)\n\
+         view derived = h\n\
+         \x20 | add quarter_share = hours / 4\n\
+         \x20 | keep quarter_share > 20 or hours * 2 < 100\n\
+         \x20 | add twice = quarter_share * 8 - hours\n\
+         \x20 | by task: s = sum(quarter_share), m = median(twice), mx = max(quarter_share), f = first(twice), c = count(twice), a = mean(twice)\n\
          view months = v\n\
          \x20 | by pool: first_month = min(month), last_month = max(month), total = sum(visits)\n",
     );
@@ -491,6 +496,11 @@ fn aggregates(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
         ));
     }
     story.push_str("frame \"Westbrook\" {\n  line by_pool: x month, y avg, series pool\n}\n");
+    for m in ["s", "m", "mx", "f", "c", "a"] {
+        story.push_str(&format!(
+            "frame \"derived {m}\" {{\n  bars derived: category task, value {m}\n}}\n"
+        ));
+    }
     story.push_str("value first_month = first(months.first_month)\nvalue last_month = last(months.last_month)\n");
     let csv = story
         .replace("SOURCE_H", "\"hours.csv\"")
@@ -523,7 +533,8 @@ fn aggregates(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
     assert_eq!(pa, pb);
     let e = run(&dir, &["check", "--explain-sql", "db.cresc"], &env);
     let t = text(&e);
-    assert_eq!(t.matches("-- view ").count(), 4, "{t}");
+    assert_eq!(t.matches("-- view ").count(), 5, "{t}");
+    assert!(t.contains("-- view derived"), "{t}");
 }
 
 fn text_of(o: &Output) -> String {

@@ -3,7 +3,8 @@
 //!
 //! The item is split like a streamed CSV file (see `loading.rs`): when
 //! nothing but views reads it and every view over it starts with `keep` or
-//! `by`, each view's prefix (its leading `keep`s and at most one `by`) is
+//! `by`, each view's prefix (its leading `keep`s and `add`s and at most one
+//! `by`) is
 //! printed as one SQL query by `crescendo_sql::print::prefix` and run in
 //! the database, and only its result comes back; the data item itself has
 //! no rows. Otherwise (a chart or value reads the item itself, or a view
@@ -25,7 +26,7 @@ use crescendo_lang::ast::{self, DbFrom};
 use crescendo_sql::print::{self, RowOrder};
 use crescendo_sql::{types, Explained, Session, SrcColumn};
 
-use crate::loading::prefix_len;
+use crate::loading::database_prefix_len;
 use crate::resolve::{build_view_inner, data_spec, Named, Streamed, Tables};
 
 /// How database sources are reached.
@@ -361,24 +362,15 @@ impl Tables {
             if !scratch.is_empty() {
                 return None;
             }
-            let n = prefix_len(&v.steps);
+            let n = database_prefix_len(&v.steps);
             let prefix: Vec<Step> = steps.get(..n)?.to_vec();
-            let mut keeps = Vec::new();
-            let mut group = None;
-            for s in &prefix {
-                match s {
-                    Step::Keep(e) => keeps.push(e.clone()),
-                    Step::Group { keys, aggregates } => group = Some((keys, aggregates)),
-                    _ => return None,
-                }
+            if prefix
+                .iter()
+                .any(|s| matches!(s, Step::Sort { .. } | Step::Top { .. }))
+            {
+                return None;
             }
-            let q = print::prefix(
-                from,
-                order,
-                cols,
-                &keeps,
-                group.map(|(k, a)| (k.as_slice(), a.as_slice())),
-            );
+            let q = print::prefix_steps(from, order, cols, &prefix);
             out.push((v.name.name.clone(), n, prefix.clone(), q));
         }
         Some(out)

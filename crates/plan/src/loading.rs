@@ -91,6 +91,19 @@ fn idents_of(x: &(impl Debug + ?Sized)) -> BTreeSet<String> {
     out
 }
 
+/// Number of leading steps of a view over a database item that run in the
+/// database: `keep`s and `add`s, then one `by`.
+pub(crate) fn database_prefix_len(steps: &[StepAst]) -> usize {
+    let lead = steps
+        .iter()
+        .take_while(|s| matches!(s, StepAst::Keep { .. } | StepAst::Add { .. }))
+        .count();
+    match steps.get(lead) {
+        Some(StepAst::By { .. }) => lead + 1,
+        _ => lead,
+    }
+}
+
 /// Every name used as the table of a chart (`line NAME: …`), a plugin
 /// chart (`draw FORM NAME`) or a value selection (`sum(NAME.col …)`) in
 /// `x`: the syntax tree's `view` fields, read from its debug form.
@@ -201,7 +214,13 @@ impl Tables {
             if !read_elsewhere
                 && !early
                 && !mine.is_empty()
-                && mine.iter().all(|v| prefix_len(&v.steps) > 0)
+                && mine.iter().all(|v| {
+                    if d.database.is_some() {
+                        database_prefix_len(&v.steps) > 0
+                    } else {
+                        prefix_len(&v.steps) > 0
+                    }
+                })
             {
                 streamable.insert(name.clone(), mine);
             }

@@ -33,7 +33,7 @@
 //! arrive exactly (numeric text, or the shortest text that reads back as
 //! the same double).
 
-use crescendo_data::{AggFn, Aggregate, ArithOp, CmpOp, ColType, Expr, Value};
+use crescendo_data::{AggFn, Aggregate, ArithOp, CmpOp, ColType, Expr, Step, Value};
 
 use crate::types::{Read, SrcColumn};
 use crate::From;
@@ -100,12 +100,22 @@ pub struct RowOrder {
     pub columns: Vec<(String, bool)>,
 }
 
-struct Printer<'a> {
-    cols: &'a [SrcColumn],
+/// A column of the prefix as the outer query sees it: a source column
+/// (`s.c3`) or one computed by `add` (its expression).
+struct Col {
+    sql: String,
+    ty: ColType,
+    /// A binary double (summed through its shortest text).
+    float: bool,
+    name: String,
+}
+
+struct Printer {
+    cols: Vec<Col>,
     params: Vec<String>,
 }
 
-impl Printer<'_> {
+impl Printer {
     fn param(&mut self, v: &Value) -> String {
         let (text, cast) = match v {
             Value::Missing => return "NULL".to_string(),
@@ -147,7 +157,10 @@ impl Printer<'_> {
     fn value(&mut self, e: &Expr) -> String {
         match e {
             Expr::Col(i) => {
-                let c = format!("s.c{i}");
+                let c = self
+                    .cols
+                    .get(*i)
+                    .map_or_else(|| "NULL".to_string(), |c| c.sql.clone());
                 match self.col_ty(*i) {
                     ColType::Number => format!("{c}::double precision"),
                     _ => c,
@@ -231,19 +244,32 @@ impl Printer<'_> {
     }
 }
 
-/// The exact (numeric) form of number column `i` for sums.
-fn exact(cols: &[SrcColumn], i: usize) -> String {
-    match cols.get(i).map(|c| c.read) {
-        Some(Read::Float) => format!("s.c{i}::text::numeric"),
-        _ => format!("s.c{i}::numeric"),
+impl Printer {
+    fn sql(&self, i: usize) -> String {
+        self.cols
+            .get(i)
+            .map_or_else(|| "NULL".to_string(), |c| c.sql.clone())
     }
-}
 
-/// The text form of column `i` in the `C` collation when it is text-like.
-fn sortable(cols: &[SrcColumn], i: usize) -> String {
-    match cols.get(i).map(|c| c.ty) {
-        Some(ColType::Text | ColType::Month | ColType::Date) => format!("s.c{i} COLLATE \"C\""),
-        _ => format!("s.c{i}"),
+    /// The exact (numeric) form of number column `i` for sums: a double
+    /// through its shortest text (which reads back as the same double).
+    fn exact(&self, i: usize) -> String {
+        match self.cols.get(i) {
+            Some(c) if c.float => format!("{}::text::numeric", c.sql),
+            Some(c) => format!("{}::numeric", c.sql),
+            None => "NULL::numeric".to_string(),
+        }
+    }
+
+    /// Column `i` in the `C` collation when it is text-like.
+    fn sortable(&self, i: usize) -> String {
+        match self.cols.get(i) {
+            Some(c) if matches!(c.ty, ColType::Text | ColType::Month | ColType::Date) => {
+                format!("{} COLLATE \"C\"", c.sql)
+            }
+            Some(c) => c.sql.clone(),
+            None => "NULL".to_string(),
+        }
     }
 }
 
@@ -258,8 +284,32 @@ pub fn prefix(
     keeps: &[Expr],
     group: Option<(&[usize], &[Aggregate])>,
 ) -> Query {
+    let mut steps: Vec<Step> = keeps.iter().cloned().map(Step::Keep).collect();
+    if let Some((keys, aggregates)) = group {
+        steps.push(Step::Group {
+            keys: keys.to_vec(),
+            aggregates: aggregates.to_vec(),
+        });
+    }
+    prefix_steps(from, order, cols, &steps)
+}
+
+/// Print a view prefix made of `keep` and `add` steps, then at most one
+/// group (steps after the group, and sorts or top-N anywhere, are not
+/// printed: they run locally). An `add` column is its expression, inlined
+/// where it is used (its parameters are shared, not bound twice).
+pub fn prefix_steps(from: &From, order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Query {
     let mut p = Printer {
-        cols,
+        cols: cols
+            .iter()
+            .enumerate()
+            .map(|(i, c)| Col {
+                sql: format!("s.c{i}"),
+                ty: c.ty,
+                float: c.read == Read::Float,
+                name: c.name.clone(),
+            })
+            .collect(),
         params: Vec::new(),
     };
     let mut inner: Vec<String> = cols
@@ -305,22 +355,42 @@ pub fn prefix(
         }
     };
     inner.push(format!("{row} AS r"));
-    let preds: Vec<String> = keeps.iter().map(|k| p.truth(k)).collect();
+    let mut preds: Vec<String> = Vec::new();
+    let mut group = None;
+    for step in steps {
+        match step {
+            Step::Keep(e) => preds.push(p.truth(e)),
+            Step::Derive { name, expr } => {
+                let sql = format!("({})", p.number(expr));
+                p.cols.push(Col {
+                    sql,
+                    ty: ColType::Number,
+                    float: true,
+                    name: name.clone(),
+                });
+            }
+            Step::Group { keys, aggregates } => {
+                group = Some((keys.as_slice(), aggregates.as_slice()));
+                break;
+            }
+            Step::Sort { .. } | Step::Top { .. } => break,
+        }
+    }
     let mut outputs = Vec::new();
     let mut select = Vec::new();
     let mut tail = String::new();
     match group {
         Some((keys, aggs)) => {
             for &k in keys {
-                select.push(format!("s.c{k}::text"));
+                select.push(format!("{}::text", p.sql(k)));
                 outputs.push(Output::Value {
-                    name: cols.get(k).map_or(String::new(), |c| c.name.clone()),
+                    name: p.cols.get(k).map_or(String::new(), |c| c.name.clone()),
                     ty: p.col_ty(k),
                 });
             }
             for a in aggs {
                 let in_ty = a.column.map_or(ColType::Number, |c| p.col_ty(c));
-                let c = a.column.map(|c| format!("s.c{c}"));
+                let c = a.column.map(|c| p.sql(c));
                 let name = a.name.clone();
                 let value = |ty| Output::Value {
                     name: a.name.clone(),
@@ -341,11 +411,11 @@ pub fn prefix(
                         outputs.push(value(ColType::Number));
                     }
                     (AggFn::Sum, Some(i), Some(_)) => {
-                        select.push(format!("sum({})::text", exact(cols, i)));
+                        select.push(format!("sum({})::text", p.exact(i)));
                         outputs.push(value(ColType::Number));
                     }
                     (AggFn::Mean, Some(i), Some(c)) => {
-                        select.push(format!("sum({})::text", exact(cols, i)));
+                        select.push(format!("sum({})::text", p.exact(i)));
                         select.push(format!("count({c})::text"));
                         outputs.push(Output::Mean { name });
                     }
@@ -361,7 +431,7 @@ pub fn prefix(
                     }
                     (AggFn::Min | AggFn::Max, Some(i), Some(_)) => {
                         let f = if a.func == AggFn::Min { "min" } else { "max" };
-                        select.push(format!("{f}({})::text", sortable(cols, i)));
+                        select.push(format!("{f}({})::text", p.sortable(i)));
                         outputs.push(value(in_ty));
                     }
                     (AggFn::First | AggFn::Last, Some(_), Some(c)) => {
@@ -374,10 +444,10 @@ pub fn prefix(
                 }
             }
             if !keys.is_empty() {
-                let ks: Vec<String> = keys.iter().map(|k| format!("s.c{k}")).collect();
+                let ks: Vec<String> = keys.iter().map(|&k| p.sql(k)).collect();
                 let ties: Vec<String> = keys
                     .iter()
-                    .map(|&k| format!("{} NULLS LAST", sortable(cols, k)))
+                    .map(|&k| format!("{} NULLS LAST", p.sortable(k)))
                     .collect();
                 tail = format!(
                     " GROUP BY {} ORDER BY min(s.r) NULLS LAST, {}",
@@ -387,8 +457,8 @@ pub fn prefix(
             }
         }
         None => {
-            for (i, c) in cols.iter().enumerate() {
-                select.push(format!("s.c{i}::text"));
+            for c in &p.cols {
+                select.push(format!("{}::text", c.sql));
                 outputs.push(Output::Value {
                     name: c.name.clone(),
                     ty: c.ty,
