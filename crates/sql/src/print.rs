@@ -20,6 +20,8 @@
 //! | texts compare by bytes                          | `COLLATE "C"` (UTF-8 byte order)             |
 //! | `x / 0` is missing                              | `x / NULLIF(y, 0)`                           |
 //! | arithmetic in doubles                           | `::double precision`                         |
+//! | `add NAME = EXPR` (a number column)             | the expression, inlined where it is used     |
+//! | number keys are doubles (`-0` is `0`)           | `GROUP BY x::double precision`               |
 //! | groups in order of first appearance             | `ORDER BY min(r)`                            |
 //! | a missing key is a group of its own             | `GROUP BY` puts NULLs in one group           |
 //! | `sum`: exact, rounded once                       | `sum(x::numeric)` (exact), parsed once       |
@@ -32,6 +34,12 @@
 //! Every output is sent as text and parsed by [`crate::decode`], so numbers
 //! arrive exactly (numeric text, or the shortest text that reads back as
 //! the same double).
+//!
+//! Known differences, all outside ordinary data: a sum is the exact sum of
+//! the stored decimals (of the shortest texts, for doubles), where the
+//! local engine sums the nearest doubles exactly — the two can differ in
+//! the last bit; an arithmetic overflow is an error in PostgreSQL where the
+//! engine gives a missing value; `-0` and `0` compare equal in SQL.
 
 use crescendo_data::{AggFn, Aggregate, ArithOp, CmpOp, ColType, Expr, Step, Value};
 
@@ -261,6 +269,17 @@ impl Printer {
         }
     }
 
+    /// Column `i` as a group key: numbers as doubles, so that two decimals
+    /// that read as the same double are one group (as in the engine).
+    fn key(&self, i: usize) -> String {
+        match self.cols.get(i) {
+            Some(c) if c.ty == ColType::Number && !c.float => {
+                format!("{}::double precision", c.sql)
+            }
+            _ => self.sql(i),
+        }
+    }
+
     /// Column `i` in the `C` collation when it is text-like.
     fn sortable(&self, i: usize) -> String {
         match self.cols.get(i) {
@@ -361,7 +380,9 @@ pub fn prefix_steps(from: &From, order: &RowOrder, cols: &[SrcColumn], steps: &[
         match step {
             Step::Keep(e) => preds.push(p.truth(e)),
             Step::Derive { name, expr } => {
-                let sql = format!("({})", p.number(expr));
+                // Arithmetic prints parenthesised; a column or a literal
+                // needs no parentheses.
+                let sql = p.number(expr);
                 p.cols.push(Col {
                     sql,
                     ty: ColType::Number,
@@ -382,7 +403,7 @@ pub fn prefix_steps(from: &From, order: &RowOrder, cols: &[SrcColumn], steps: &[
     match group {
         Some((keys, aggs)) => {
             for &k in keys {
-                select.push(format!("{}::text", p.sql(k)));
+                select.push(format!("{}::text", p.key(k)));
                 outputs.push(Output::Value {
                     name: p.cols.get(k).map_or(String::new(), |c| c.name.clone()),
                     ty: p.col_ty(k),
@@ -444,10 +465,13 @@ pub fn prefix_steps(from: &From, order: &RowOrder, cols: &[SrcColumn], steps: &[
                 }
             }
             if !keys.is_empty() {
-                let ks: Vec<String> = keys.iter().map(|&k| p.sql(k)).collect();
+                let ks: Vec<String> = keys.iter().map(|&k| p.key(k)).collect();
                 let ties: Vec<String> = keys
                     .iter()
-                    .map(|&k| format!("{} NULLS LAST", p.sortable(k)))
+                    .map(|&k| match p.col_ty(k) {
+                        ColType::Number => format!("{} NULLS LAST", p.key(k)),
+                        _ => format!("{} NULLS LAST", p.sortable(k)),
+                    })
                     .collect();
                 tail = format!(
                     " GROUP BY {} ORDER BY min(s.r) NULLS LAST, {}",
@@ -627,6 +651,64 @@ mod tests {
             shown.push_str(&format!("\n-- ${} = {p:?}", i + 1));
         }
         insta::assert_snapshot!(shown);
+    }
+
+    #[test]
+    fn added_columns_are_inlined_and_number_keys_group_as_doubles() {
+        let steps = vec![
+            Step::Derive {
+                name: "half".into(),
+                expr: Expr::Arith(
+                    ArithOp::Div,
+                    Box::new(Expr::Col(2)),
+                    Box::new(Expr::Lit(Value::Number(2.0))),
+                ),
+            },
+            Step::Keep(Expr::Cmp(
+                CmpOp::Gt,
+                Box::new(Expr::Col(3)),
+                Box::new(Expr::Lit(Value::Number(10.0))),
+            )),
+            Step::Group {
+                keys: vec![2],
+                aggregates: vec![Aggregate {
+                    name: "s".into(),
+                    func: AggFn::Sum,
+                    column: Some(3),
+                }],
+            },
+        ];
+        let q = prefix_steps(
+            &From::Table {
+                schema: None,
+                name: "t".into(),
+            },
+            &RowOrder::default(),
+            &cols(),
+            &steps,
+        );
+        let half = "(s.c2::double precision / NULLIF(CAST($1::text AS double precision), 0))";
+        assert!(
+            q.sql.contains(&format!("WHERE COALESCE({half}::double precision > CAST($2::text AS double precision), false)")),
+            "{}",
+            q.sql
+        );
+        assert!(
+            q.sql.contains(&format!("sum({half}::text::numeric)")),
+            "{}",
+            q.sql
+        );
+        assert!(
+            q.sql.starts_with("SELECT s.c2::double precision::text,"),
+            "{}",
+            q.sql
+        );
+        assert!(
+            q.sql.contains("GROUP BY s.c2::double precision ORDER BY"),
+            "{}",
+            q.sql
+        );
+        assert_eq!(q.params, vec!["2.0".to_string(), "10.0".to_string()]);
     }
 
     #[test]
