@@ -939,6 +939,23 @@ fn an_unset_connection_variable_is_a_located_error() {
     let t = text(&out);
     assert!(t.contains("`CRESCENDO_OTHER_UNSET_DB` is not set"), "{t}");
     assert!(t.contains("--connection d=CRESCENDO_OTHER_UNSET_DB"), "{t}");
+    // A name that is no database item of the story.
+    let out = run(
+        &dir,
+        &[
+            "check",
+            "story.cresc",
+            "--connection",
+            "e=CRESCENDO_OTHER_UNSET_DB",
+        ],
+        &[],
+    );
+    let t = text(&out);
+    assert!(
+        t.contains("`--connection e=...` names no database data item of this story"),
+        "{t}"
+    );
+    assert!(t.contains("did you mean `d`?"), "{t}");
     // A connection string where a variable name belongs is refused without
     // being echoed.
     let out = run(

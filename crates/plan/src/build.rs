@@ -583,6 +583,35 @@ impl<'a> Planner<'a> {
                 self.diags.push(d);
             }
         }
+        for name in self.options.database.connections.keys() {
+            let known = story.items.iter().any(
+                |i| matches!(i, Item::Data(d) if d.name.name == *name && d.database.is_some()),
+            );
+            if !known {
+                let names: Vec<&str> = story
+                    .items
+                    .iter()
+                    .filter_map(|i| match i {
+                        Item::Data(d) if d.database.is_some() => Some(d.name.name.as_str()),
+                        _ => None,
+                    })
+                    .collect();
+                let mut d = Diagnostic::error(
+                    "unknown-name",
+                    format!("`--connection {name}=...` names no database data item of this story"),
+                )
+                .at(self.src, 0..0, "in this story");
+                d = if names.is_empty() {
+                    d.note("no data item of this story reads a database")
+                } else {
+                    d.note(format!("database data items: {}", names.join(", ")))
+                };
+                if let Some(s) = closest(name, names.iter().copied()) {
+                    d = d.help(format!("did you mean `{s}`?"));
+                }
+                self.diags.push(d);
+            }
+        }
         if let Some(c) = &h.compare {
             // Columns of a failed item are unknown: do not guess.
             if self.tables.broken.is_empty() {
