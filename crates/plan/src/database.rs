@@ -252,8 +252,23 @@ impl Tables {
         let table = match result {
             Some(prefixes) => {
                 for (view, n, steps, q) in prefixes {
+                    let aggregates = steps.iter().any(|s| matches!(s, Step::Group { .. }));
                     match run(&mut session, &q, &mut explained, Some(view.clone())) {
                         Ok(table) => {
+                            if !aggregates {
+                                let n = table.columns.first().map_or(0, |c| c.values.len());
+                                diags.push(
+                                    Diagnostic::warning(
+                                        "database-rows",
+                                        format!(
+                                            "view `{view}` fetched {n} row{} of `{name}` from the database",
+                                            if n == 1 { "" } else { "s" }
+                                        ),
+                                    )
+                                    .at(src, decl.file.span.clone(), "rows fetched")
+                                    .note("the view does not aggregate (`by`) before its other steps, so its rows cross the network"),
+                                );
+                            }
                             self.report.computed_views.push(view.clone());
                             self.streamed.insert(
                                 view,
