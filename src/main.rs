@@ -108,6 +108,37 @@ struct DataArgs {
     /// runs with your rights).
     #[arg(long)]
     no_plugins: bool,
+    /// Read the connection string of database data item NAME from the
+    /// environment variable ENVVAR instead of the one the story names
+    /// (repeatable), e.g. `--connection visits=STAGING_DB`.
+    /// (Checked after parsing, so that a connection string given here by
+    /// mistake is never echoed.)
+    #[arg(long = "connection", value_name = "NAME=ENVVAR")]
+    connections: Vec<String>,
+    /// Cancel any database query that runs longer than this many seconds.
+    #[arg(long, value_name = "SECONDS", default_value_t = 60.0)]
+    statement_timeout: f64,
+}
+
+/// `--connection NAME=ENVVAR`; the error never repeats the argument (it
+/// may be a connection string given by mistake).
+fn parse_connection_arg(s: &str) -> Result<(String, String), Diagnostic> {
+    let ok_var = |v: &str| {
+        !v.is_empty()
+            && v.chars().all(|c| c.is_ascii_alphanumeric() || c == '_')
+            && !v.starts_with(|c: char| c.is_ascii_digit())
+    };
+    match s.split_once('=') {
+        Some((name, var)) if !name.is_empty() && ok_var(var) => {
+            Ok((name.to_string(), var.to_string()))
+        }
+        _ => Err(Diagnostic::error(
+            "connection-option",
+            "`--connection` expects NAME=ENVVAR: a data item and the name of the environment \
+             variable that holds its connection string (the value given is not repeated here, \
+             in case it holds a password)",
+        )),
+    }
 }
 
 fn parse_data_arg(s: &str) -> Result<(String, PathBuf), String> {
@@ -186,6 +217,10 @@ enum Command {
         /// `human` (default) or `json` for CI.
         #[arg(long, value_enum, default_value = "human")]
         format: Format,
+        /// Print the SQL each view over a database source sends (with its
+        /// bound values listed apart) and the rows and bytes it received.
+        #[arg(long)]
+        explain_sql: bool,
         #[command(flatten)]
         data: DataArgs,
         #[command(flatten)]
@@ -304,14 +339,17 @@ fn main() -> ExitCode {
         Command::Check {
             story,
             format,
+            explain_sql,
             data,
             lint,
-        } => check(&story, format, &data, &lint, color),
+        } => check(&story, format, explain_sql, &data, &lint, color),
         Command::Explain { rule } => explain(rule.as_deref(), color),
         Command::Plugins { story } => {
             let none = DataArgs {
                 data: Vec::new(),
                 no_plugins: false,
+                connections: Vec::new(),
+                statement_timeout: 60.0,
             };
             match load_plan(&story, &none, color) {
                 Ok(p) => {
@@ -601,7 +639,14 @@ fn diag_json(d: &Diagnostic) -> serde_json::Value {
     })
 }
 
-fn check(story: &Path, format: Format, data: &DataArgs, lint: &LintArgs, color: bool) -> ExitCode {
+fn check(
+    story: &Path,
+    format: Format,
+    explain_sql: bool,
+    data: &DataArgs,
+    lint: &LintArgs,
+    color: bool,
+) -> ExitCode {
     let result = plan_quietly(story, data);
     let (planned, mut errors) = match result {
         Ok(p) => (Some(p), Vec::new()),
@@ -640,6 +685,7 @@ fn check(story: &Path, format: Format, data: &DataArgs, lint: &LintArgs, color: 
                 "frames": planned.as_ref().map(|p| p.plan.frames.len()),
                 "values": planned.as_ref().map(|p| p.plan.values.clone()),
                 "claims": planned.as_ref().map(|p| p.plan.claims.clone()),
+                "sql": planned.as_ref().filter(|_| explain_sql).map(|p| p.sql.clone()),
             });
             match serde_json::to_string_pretty(&report) {
                 Ok(s) => say!("{s}"),
@@ -682,6 +728,9 @@ fn check(story: &Path, format: Format, data: &DataArgs, lint: &LintArgs, color: 
                         c.detail.join("; ")
                     );
                 }
+                if explain_sql {
+                    explain_queries(&p.sql);
+                }
             } else {
                 let n = errors.iter().filter(|d| d.is_error()).count();
                 eprintln!(
@@ -693,6 +742,24 @@ fn check(story: &Path, format: Format, data: &DataArgs, lint: &LintArgs, color: 
         }
     }
     ExitCode::from(status)
+}
+
+/// `check --explain-sql`: each query a database source ran.
+fn explain_queries(sql: &[crescendo_sql::Explained]) {
+    if sql.is_empty() {
+        say!("no database queries (the story reads no database source)");
+    }
+    for q in sql {
+        match &q.view {
+            Some(v) => say!("-- view {v} (data {})", q.data),
+            None => say!("-- data {} (all rows)", q.data),
+        }
+        say!("{};", q.sql);
+        for (i, p) in q.params.iter().enumerate() {
+            say!("--   ${} = {p:?}", i + 1);
+        }
+        say!("--   received {} rows, {} bytes", q.rows, q.bytes);
+    }
 }
 
 /// The default deck folder: `deck/` beside the story.
@@ -714,6 +781,21 @@ fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic
         data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
         cache: incremental::planner_cache(),
         no_plugins: data.no_plugins,
+        database: crescendo_plan::DbOptions {
+            connections: data
+                .connections
+                .iter()
+                .map(|c| parse_connection_arg(c))
+                .collect::<Result<_, _>>()
+                .map_err(|d| vec![d])?,
+            timeout: std::time::Duration::from_secs_f64(
+                if data.statement_timeout.is_finite() && data.statement_timeout > 0.0 {
+                    data.statement_timeout.min(86_400.0)
+                } else {
+                    60.0
+                },
+            ),
+        },
     };
     crescendo_plan::plan_story(&src, dir, &options)
 }

@@ -77,10 +77,13 @@ fn targets(story: &Path, replacements: &[(String, PathBuf)]) -> Targets {
     for item in &ast.items {
         match item {
             Item::Data(d) => {
-                let file = replacements
-                    .iter()
-                    .find(|(n, _)| *n == d.name.name)
-                    .map_or_else(|| dir.join(&d.file.value), |(_, p)| p.clone());
+                let replaced = replacements.iter().find(|(n, _)| *n == d.name.name);
+                // A database source has no file to watch (rebuild by
+                // touching the story).
+                if d.database.is_some() && replaced.is_none() {
+                    continue;
+                }
+                let file = replaced.map_or_else(|| dir.join(&d.file.value), |(_, p)| p.clone());
                 t.files.insert(absolute(&file));
             }
             Item::Style(s) => {

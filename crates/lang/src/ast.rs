@@ -118,10 +118,34 @@ pub struct TextItem {
 #[derive(Clone, Debug, PartialEq)]
 pub struct DataDecl {
     pub name: Ident,
+    /// The CSV file; for a database source, the table name or query text
+    /// (so that messages about the source point at it).
     pub file: Str,
     pub missing: Option<Vec<Str>>,
     pub columns: Vec<ColumnDecl>,
     pub span: Span,
+    /// `from table "t" via ENVVAR` / `from query "..." via ENVVAR`: the rows
+    /// come from a PostgreSQL database instead of a file.
+    pub database: Option<DatabaseSource>,
+}
+
+/// Where a database `data` item reads from.
+#[derive(Clone, Debug, PartialEq)]
+pub struct DatabaseSource {
+    /// `table "schema"."name"` (schema optional) or `query "..."`.
+    pub from: DbFrom,
+    /// The environment variable holding the connection string.
+    pub env: Ident,
+    /// `in order of COL, ...`: the row order.
+    pub order: Vec<Ident>,
+    pub span: Span,
+}
+
+/// A table or a query.
+#[derive(Clone, Debug, PartialEq)]
+pub enum DbFrom {
+    Table { schema: Option<Str>, name: Str },
+    Query(Str),
 }
 
 /// `name: type` inside a data block.

@@ -430,12 +430,42 @@ impl<'a> Printer<'a> {
             file,
             missing,
             columns,
+            database,
             span: _,
         } = d;
         self.s("data ");
         self.raw(&name.span);
         self.s(" from ");
-        self.raw(&file.span);
+        match database {
+            None => self.raw(&file.span),
+            Some(DatabaseSource {
+                from,
+                env,
+                order,
+                span: _,
+            }) => {
+                match from {
+                    DbFrom::Table { schema, name } => {
+                        self.s("table ");
+                        if let Some(schema) = schema {
+                            self.raw(&schema.span);
+                            self.s(".");
+                        }
+                        self.raw(&name.span);
+                    }
+                    DbFrom::Query(q) => {
+                        self.s("query ");
+                        self.raw(&q.span);
+                    }
+                }
+                self.s(" via ");
+                self.raw(&env.span);
+                if !order.is_empty() {
+                    self.s(" in order of ");
+                    self.idents(order);
+                }
+            }
+        }
         if let Some(missing) = missing {
             self.s(" missing ");
             self.strs(missing);

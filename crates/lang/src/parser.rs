@@ -392,6 +392,65 @@ fn children(pair: Pair<Rule>) -> impl Iterator<Item = Pair<Rule>> {
     pair.into_inner().filter(|p| !is_punct(p.as_rule()))
 }
 
+/// A `db_source`: the string that names the table or holds the query (for
+/// messages), and the source itself.
+fn db_source(pair: Pair<Rule>, base: usize) -> Option<(Str, Option<DatabaseSource>)> {
+    let span = span_of(&pair, base);
+    let mut it = children(pair);
+    let what = it.next()?;
+    let (file, from) = match what.as_rule() {
+        Rule::db_table => {
+            let strings: Vec<Str> = children(what)
+                .filter(|p| p.as_rule() == Rule::string)
+                .map(|p| string(p, base))
+                .collect();
+            match strings.as_slice() {
+                [name] => (
+                    name.clone(),
+                    DbFrom::Table {
+                        schema: None,
+                        name: name.clone(),
+                    },
+                ),
+                [schema, name] => (
+                    name.clone(),
+                    DbFrom::Table {
+                        schema: Some(schema.clone()),
+                        name: name.clone(),
+                    },
+                ),
+                _ => return None,
+            }
+        }
+        _ => {
+            let q = string(children(what).find(|p| p.as_rule() == Rule::string)?, base);
+            (q.clone(), DbFrom::Query(q))
+        }
+    };
+    let mut env = None;
+    let mut order = Vec::new();
+    for p in it {
+        match p.as_rule() {
+            Rule::ident => env = Some(ident(p, base)),
+            Rule::db_order => order.extend(
+                children(p)
+                    .filter(|q| q.as_rule() == Rule::ident)
+                    .map(|q| ident(q, base)),
+            ),
+            _ => {}
+        }
+    }
+    Some((
+        file,
+        Some(DatabaseSource {
+            from,
+            env: env?,
+            order,
+            span,
+        }),
+    ))
+}
+
 fn span_of(pair: &Pair<Rule>, base: usize) -> Span {
     let s = pair.as_span();
     base + s.start()..base + s.end()
@@ -472,7 +531,12 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
             let mut it = inner.into_iter().skip(1);
             let name = ident(it.next().ok_or_else(|| internal(&span))?, base);
             let _from = it.next();
-            let file = string(it.next().ok_or_else(|| internal(&span))?, base);
+            let source = it.next().ok_or_else(|| internal(&span))?;
+            let (file, database) = if source.as_rule() == Rule::db_source {
+                db_source(source, base).ok_or_else(|| internal(&span))?
+            } else {
+                (string(source, base), None)
+            };
             let mut missing = None;
             let mut columns = Vec::new();
             for p in it {
@@ -508,6 +572,7 @@ fn convert_item(pair: Pair<Rule>, base: usize) -> Res<Item> {
                 missing,
                 columns,
                 span,
+                database,
             })
         }
         Rule::view_item => {
@@ -1366,6 +1431,47 @@ frame "Bars" { bars monthly: category route, value riders, ordered }
         };
         assert_eq!(c3.form, ChartForm::Bars);
         assert_eq!(c3.opts[2].name, OptName::Ordered);
+    }
+
+    #[test]
+    fn database_sources() {
+        let text = "data a from table \"sales\".\"by \\\"day\\\"\" via SALES_DB in order of day, line { day: date }\n\
+                    data b from query \"select 1 as n\" via OTHER_DB\n\
+                    data c from \"c.csv\"\n";
+        let (ast, diags) = parse_str(text);
+        assert!(diags.is_empty(), "{diags:?}");
+        let Item::Data(a) = &ast.items[0] else {
+            panic!()
+        };
+        let db = a.database.as_ref().expect("a database source");
+        assert_eq!(
+            db.from,
+            DbFrom::Table {
+                schema: Some(Str {
+                    value: "sales".into(),
+                    span: 18..25
+                }),
+                name: a.file.clone()
+            }
+        );
+        assert_eq!(a.file.value, "by \"day\"");
+        assert_eq!(db.env.name, "SALES_DB");
+        let order: Vec<&str> = db.order.iter().map(|o| o.name.as_str()).collect();
+        assert_eq!(order, ["day", "line"]);
+        assert_eq!(a.columns.len(), 1);
+        let Item::Data(b) = &ast.items[1] else {
+            panic!()
+        };
+        let db = b.database.as_ref().expect("a database source");
+        assert!(matches!(&db.from, DbFrom::Query(q) if q.value == "select 1 as n"));
+        assert!(db.order.is_empty());
+        let Item::Data(c) = &ast.items[2] else {
+            panic!()
+        };
+        assert!(c.database.is_none());
+        // The variable is required.
+        let (_, diags) = parse_str("data d from table \"t\"\n");
+        assert!(!diags.is_empty());
     }
 
     #[test]

@@ -145,6 +145,18 @@ fn locale_and_fiscal_statements_parse_and_format() {
     );
 }
 
+#[test]
+fn database_sources_keep_their_parts_and_take_the_canonical_spacing() {
+    let text = "data a from table  \"sales\".\"orders\"   via SALES_DB  in order of day ,  shop { day: date }\ndata b from query \"SELECT 1 AS x\" via DB\n";
+    let once = format_story(text).expect("formats");
+    assert_eq!(
+        once,
+        "data a from table \"sales\".\"orders\" via SALES_DB in order of day, shop { day: date }\ndata b from query \"SELECT 1 AS x\" via DB\n"
+    );
+    assert!(same_shape(&tree(text), &tree(&once)));
+    assert_eq!(format_story(&once).expect("formats"), once);
+}
+
 /// Every `.cresc` file under `path` (recursively), skipping build output.
 fn story_files(path: &std::path::Path, out: &mut Vec<std::path::PathBuf>) {
     let Ok(entries) = std::fs::read_dir(path) else {

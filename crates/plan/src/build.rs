@@ -27,6 +27,9 @@ pub struct Options {
     pub no_plugins: bool,
     /// Folder of the view cache (see `loading.rs`); `None`: no cache.
     pub cache: Option<PathBuf>,
+    /// How database sources are reached (`--connection`, the statement
+    /// timeout).
+    pub database: crate::database::DbOptions,
 }
 
 /// A successful plan: the deck, its warnings, and one error per claim that
@@ -42,6 +45,8 @@ pub struct Planned {
     pub failed_claims: Vec<Diagnostic>,
     /// The plugins the story loaded, by the name it gave them.
     pub plugins: crate::plugins::Plugins,
+    /// The SQL the database sources ran, with rows and bytes received.
+    pub sql: Vec<crescendo_sql::Explained>,
 }
 
 /// The result of planning: the plan, or every error found.
@@ -62,18 +67,20 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> Pla
     let mut plugins = crate::plugins::Plugins::new();
     let (locale, fiscal_start) = read_conventions(src, &story, &mut diags);
     let conventions = crescendo_data::locale::Conventions::of(locale.as_deref(), fiscal_start);
+    let planner = Planner::new(src, story_dir, options, &mut diags, &mut failed_claims);
+    let sql = Arc::clone(&planner.tables.sql);
     let plan = crescendo_data::locale::scoped(conventions, || {
-        Planner::new(src, story_dir, options, &mut diags, &mut failed_claims).run(
-            &story,
-            &mut anchors,
-            &mut plugins,
-        )
+        planner.run(&story, &mut anchors, &mut plugins)
     })
     .map(|mut plan| {
         plan.locale = locale;
         plan.fiscal_start = fiscal_start;
         plan
     });
+    let sql = sql
+        .lock()
+        .map(|mut s| std::mem::take(&mut *s))
+        .unwrap_or_default();
     if has_errors(&diags) {
         Err(diags)
     } else {
@@ -85,6 +92,7 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> Pla
                 anchors,
                 warnings: diags,
                 failed_claims,
+                sql,
             }),
             None => Err(vec![Diagnostic::error(
                 "internal",
@@ -478,6 +486,7 @@ impl<'a> Planner<'a> {
         anchors: &mut Anchors,
         plugins: &mut crate::plugins::Plugins,
     ) -> Option<DeckPlan> {
+        self.tables.db = self.options.database.clone();
         self.tables.prepare(story, self.options.cache.as_deref()); // streaming + cache
         let mut h = Header::default();
         let mut frames = Vec::new();
@@ -631,6 +640,35 @@ impl<'a> Planner<'a> {
                 )
                 .at(self.src, 0..0, "in this story")
                 .note(format!("data items: {}", names.join(", ")));
+                if let Some(s) = closest(name, names.iter().copied()) {
+                    d = d.help(format!("did you mean `{s}`?"));
+                }
+                self.diags.push(d);
+            }
+        }
+        for name in self.options.database.connections.keys() {
+            let known = story.items.iter().any(
+                |i| matches!(i, Item::Data(d) if d.name.name == *name && d.database.is_some()),
+            );
+            if !known {
+                let names: Vec<&str> = story
+                    .items
+                    .iter()
+                    .filter_map(|i| match i {
+                        Item::Data(d) if d.database.is_some() => Some(d.name.name.as_str()),
+                        _ => None,
+                    })
+                    .collect();
+                let mut d = Diagnostic::error(
+                    "unknown-name",
+                    format!("`--connection {name}=...` names no database data item of this story"),
+                )
+                .at(self.src, 0..0, "in this story");
+                d = if names.is_empty() {
+                    d.note("no data item of this story reads a database")
+                } else {
+                    d.note(format!("database data items: {}", names.join(", ")))
+                };
                 if let Some(s) = closest(name, names.iter().copied()) {
                     d = d.help(format!("did you mean `{s}`?"));
                 }

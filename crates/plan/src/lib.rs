@@ -6,6 +6,7 @@
 pub mod anchors;
 mod build;
 pub mod cache;
+mod database;
 mod forms;
 mod loading;
 pub mod model;
@@ -17,5 +18,6 @@ pub mod style;
 pub mod values;
 
 pub use build::{plan_story, slug, Options, PlanResult, Planned};
+pub use database::DbOptions;
 pub use model::*;
 pub use resolve::LoadReport;

@@ -91,8 +91,37 @@ fn idents_of(x: &(impl Debug + ?Sized)) -> BTreeSet<String> {
     out
 }
 
+/// Number of leading steps of a view over a database item that run in the
+/// database: `keep`s and `add`s, then one `by`.
+pub(crate) fn database_prefix_len(steps: &[StepAst]) -> usize {
+    let lead = steps
+        .iter()
+        .take_while(|s| matches!(s, StepAst::Keep { .. } | StepAst::Add { .. }))
+        .count();
+    match steps.get(lead) {
+        Some(StepAst::By { .. }) => lead + 1,
+        _ => lead,
+    }
+}
+
+/// Every name used as the table of a chart (`line NAME: …`), a plugin
+/// chart (`draw FORM NAME`) or a value selection (`sum(NAME.col …)`) in
+/// `x`: the syntax tree's `view` fields, read from its debug form.
+fn tables_named_in(x: &(impl Debug + ?Sized)) -> BTreeSet<String> {
+    let text = format!("{x:?}");
+    let marker = "view: Ident { name: \"";
+    let mut out = BTreeSet::new();
+    let mut rest = text.as_str();
+    while let Some(i) = rest.find(marker) {
+        rest = &rest[i + marker.len()..];
+        let name: String = rest.chars().take_while(|c| *c != '"').collect();
+        out.insert(name);
+    }
+    out
+}
+
 /// Number of leading steps of a view that stream: `keep`s, then one `by`.
-fn prefix_len(steps: &[StepAst]) -> usize {
+pub(crate) fn prefix_len(steps: &[StepAst]) -> usize {
     let keeps = steps
         .iter()
         .take_while(|s| matches!(s, StepAst::Keep { .. }))
@@ -110,6 +139,23 @@ impl Tables {
     pub fn prepare(&mut self, story: &StoryAst, cache: Option<&Path>) {
         self.cache = cache.map(Cache::new);
         let idents = idents_of(story);
+        let idents_outside_order = story
+            .items
+            .iter()
+            .map(|item| match item {
+                Item::Data(d) => {
+                    let mut d = d.clone();
+                    if let Some(db) = &mut d.database {
+                        db.order.clear();
+                    }
+                    idents_of(&d)
+                }
+                other => idents_of(other),
+            })
+            .fold(BTreeSet::new(), |mut all, s| {
+                all.extend(s);
+                all
+            });
         let views: Vec<&ast::ViewDecl> = story
             .items
             .iter()
@@ -145,7 +191,15 @@ impl Tables {
             let name = &d.name.name;
             let read_elsewhere = story.items.iter().any(|other| {
                 !matches!(other, Item::Data(_) | Item::View(_))
-                    && idents_of(other).contains(name.as_str())
+                    && if d.database.is_some() {
+                        // A database item is read elsewhere only where a
+                        // chart, a plugin chart or a value selection names
+                        // it as its table, so that a column of the same name
+                        // does not bring every row over the network.
+                        tables_named_in(other).contains(name.as_str())
+                    } else {
+                        idents_of(other).contains(name.as_str())
+                    }
             });
             let mine: Vec<ast::ViewDecl> = story.items[i + 1..]
                 .iter()
@@ -160,13 +214,20 @@ impl Tables {
             if !read_elsewhere
                 && !early
                 && !mine.is_empty()
-                && mine.iter().all(|v| prefix_len(&v.steps) > 0)
+                && mine.iter().all(|v| {
+                    if d.database.is_some() {
+                        database_prefix_len(&v.steps) > 0
+                    } else {
+                        prefix_len(&v.steps) > 0
+                    }
+                })
             {
                 streamable.insert(name.clone(), mine);
             }
         }
         self.story = StoryFacts {
             idents,
+            idents_outside_order,
             all_columns,
             streamable,
         };
@@ -182,6 +243,15 @@ impl Tables {
         replacement: Option<&Path>,
         diags: &mut Vec<Diagnostic>,
     ) -> Option<Table> {
+        if let Some(db) = &decl.database {
+            if replacement.is_none() {
+                let table = self.load_database(src, decl, db, diags);
+                if let Some(c) = &self.cache {
+                    c.put("report", "last", &self.report);
+                }
+                return table;
+            }
+        }
         let spec = data_spec(src, story_dir, decl, replacement, diags)?;
         let keep = if self.story.all_columns {
             Columns::All
@@ -417,6 +487,28 @@ impl Tables {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn tables_are_the_view_fields_of_charts_plugins_and_selections() {
+        let src = Source::file(
+            "t.cresc",
+            "data visits from \"d.csv\"\nview monthly = visits\n  | by pool: visits = sum(visits)\n\
+             value top = max(monthly.visits where pool = \"A\")\n\
+             value n = count(raw where visits > 3)\n\
+             compare pool by visits\n\
+             frame \"f\" {\n  bars monthly: category pool, value visits\n}\n\
+             frame \"g\" {\n  draw slope trips: category pool, value visits\n}\n",
+        );
+        let (ast, diags) = crescendo_lang::parse(&src);
+        assert!(diags.is_empty(), "{diags:?}");
+        let found: Vec<String> = ast
+            .items
+            .iter()
+            .filter(|i| !matches!(i, Item::Data(_) | Item::View(_)))
+            .flat_map(tables_named_in)
+            .collect();
+        assert_eq!(found, ["monthly", "raw", "monthly", "trips"]);
+    }
 
     #[test]
     fn idents_are_read_from_any_node() {

@@ -47,6 +47,10 @@ pub struct Tables {
     pub(crate) cache: Option<Cache>,
     /// What the loads did, for the command to report.
     pub report: LoadReport,
+    /// How database sources are reached.
+    pub(crate) db: crate::database::DbOptions,
+    /// The queries database sources ran (for `check --explain-sql`).
+    pub(crate) sql: Arc<std::sync::Mutex<Vec<crescendo_sql::Explained>>>,
 }
 
 /// How the data items of one plan were read (also stored in the cache
@@ -77,6 +81,9 @@ pub(crate) struct StoryFacts {
     /// Every name used as an identifier anywhere in the story: a superset
     /// of the columns anything reads.
     pub(crate) idents: BTreeSet<String>,
+    /// The same, without the names in `in order of` lists of database
+    /// sources (order columns are read only when used elsewhere).
+    pub(crate) idents_outside_order: BTreeSet<String>,
     /// Some step may see every column of a data item (a `top` before any
     /// `by` folds by all text columns; a `table` chart may list them all).
     pub(crate) all_columns: bool,

@@ -1,0 +1,974 @@
+//! Database sources against a real PostgreSQL server (not a mock).
+//!
+//! The test starts a throwaway cluster itself when PostgreSQL's server
+//! binaries are found (`/usr/lib/postgresql/*/bin`, or the folder named by
+//! `CRESCENDO_PG_BIN`): data folder `target/pgtest`, listening on
+//! 127.0.0.1 on a free port, password authentication (scram-sha-256). As
+//! root, the server runs as the `postgres` system user (initdb refuses
+//! root). A cluster left over by an earlier, interrupted run is stopped and
+//! removed first; this run's cluster is stopped when the test ends.
+//! Without the binaries the test prints `skipped: <reason>` and passes,
+//! unless `CRESCENDO_REQUIRE_DB=1` (set by `.ci/run`), where it fails.
+//!
+//! Everything runs in one test function, one part after another, so that
+//! the one cluster is started and stopped once.
+//!
+//! Outside check: PostgreSQL's own aggregates (`sum` over `numeric`,
+//! `count`, `min`, `percentile_disc`, PostgreSQL 15) are the reference the
+//! local engine is compared with: every demo story's deck built from its
+//! CSV files by the local engine must be byte-identical to the deck built
+//! from the same files loaded into PostgreSQL with COPY.
+
+mod common;
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+use std::sync::Arc;
+use std::time::{Duration, Instant};
+
+use common::{read_dir_files, root, stories};
+
+const PASSWORD: &str = "Tr0ub4dor-and-3";
+
+struct Cluster {
+    bin: PathBuf,
+    data: PathBuf,
+    port: u16,
+    as_postgres: bool,
+}
+
+impl Cluster {
+    fn conn(&self) -> String {
+        format!(
+            "host=127.0.0.1 port={} user=postgres password={PASSWORD} dbname=postgres",
+            self.port
+        )
+    }
+
+    fn client(&self) -> postgres::Client {
+        postgres::Client::connect(&self.conn(), postgres::NoTls)
+            .expect("connect to the test cluster")
+    }
+
+    fn pg_ctl(&self, args: &[&str]) -> Output {
+        pg_command(&self.bin.join("pg_ctl"), self.as_postgres, args)
+    }
+}
+
+impl Drop for Cluster {
+    fn drop(&mut self) {
+        let d = self.data.join("data");
+        let _ = self.pg_ctl(&["-D", d.to_str().unwrap_or(""), "-m", "fast", "-w", "stop"]);
+    }
+}
+
+fn pg_command(program: &Path, as_postgres: bool, args: &[&str]) -> Output {
+    let mut c = if as_postgres {
+        let mut c = Command::new("runuser");
+        c.args(["-u", "postgres", "--"]).arg(program);
+        c
+    } else {
+        Command::new(program)
+    };
+    c.args(args).output().expect("run a PostgreSQL program")
+}
+
+/// The folder with initdb and pg_ctl, or why there is none.
+fn find_bin() -> Result<PathBuf, String> {
+    if let Some(b) = std::env::var_os("CRESCENDO_PG_BIN") {
+        return Ok(PathBuf::from(b));
+    }
+    let mut found: Vec<(u32, PathBuf)> = std::fs::read_dir("/usr/lib/postgresql")
+        .map_err(|_| "no PostgreSQL server binaries (/usr/lib/postgresql is missing; install Debian's `postgresql` package)".to_string())?
+        .filter_map(|e| {
+            let p = e.ok()?.path();
+            let v: u32 = p.file_name()?.to_str()?.parse().ok()?;
+            let bin = p.join("bin");
+            (bin.join("initdb").exists() && bin.join("pg_ctl").exists()).then_some((v, bin))
+        })
+        .collect();
+    found.sort();
+    found
+        .pop()
+        .map(|(_, b)| b)
+        .ok_or_else(|| "no initdb/pg_ctl under /usr/lib/postgresql/*/bin".to_string())
+}
+
+fn free_port() -> u16 {
+    std::net::TcpListener::bind("127.0.0.1:0")
+        .and_then(|l| l.local_addr())
+        .map(|a| a.port())
+        .expect("a free port")
+}
+
+fn start() -> Result<Cluster, String> {
+    let bin = find_bin()?;
+    let uid = Command::new("id")
+        .arg("-u")
+        .output()
+        .map_err(|e| e.to_string())?;
+    let as_postgres = String::from_utf8_lossy(&uid.stdout).trim() == "0";
+    let mut base = root().join("target").join("pgtest");
+    if as_postgres {
+        // The postgres user must reach the folder; a checkout under a
+        // private home folder (say /root) is out of its reach, so the
+        // cluster then lives in the temporary folder instead.
+        let _ = std::fs::create_dir_all(&base);
+        let reach = Command::new("runuser")
+            .args(["-u", "postgres", "--", "test", "-x"])
+            .arg(&base)
+            .status()
+            .map_err(|e| format!("runuser: {e}"))?;
+        if !reach.success() {
+            base = std::env::temp_dir().join("crescendo-pgtest");
+            println!(
+                "note: the postgres user cannot reach target/; the cluster lives in {}",
+                base.display()
+            );
+        }
+    }
+    let data = base.join("data");
+    // A cluster left by an interrupted run: stop it, start afresh.
+    if data.join("postmaster.pid").exists() {
+        let _ = pg_command(
+            &bin.join("pg_ctl"),
+            as_postgres,
+            &[
+                "-D",
+                data.to_str().unwrap_or(""),
+                "-m",
+                "immediate",
+                "-w",
+                "stop",
+            ],
+        );
+    }
+    let _ = std::fs::remove_dir_all(&base);
+    std::fs::create_dir_all(&base).map_err(|e| e.to_string())?;
+    let pwfile = base.join("pw");
+    std::fs::write(&pwfile, PASSWORD).map_err(|e| e.to_string())?;
+    if as_postgres {
+        let s = Command::new("chown")
+            .args(["-R", "postgres:postgres"])
+            .arg(&base)
+            .status()
+            .map_err(|e| e.to_string())?;
+        if !s.success() {
+            return Err("cannot hand target/pgtest to the postgres user".into());
+        }
+    }
+    let out = pg_command(
+        &bin.join("initdb"),
+        as_postgres,
+        &[
+            "-D",
+            data.to_str().unwrap_or(""),
+            "-U",
+            "postgres",
+            "--auth=scram-sha-256",
+            "--pwfile",
+            pwfile.to_str().unwrap_or(""),
+            "-E",
+            "UTF8",
+            "--locale=C",
+            "--no-sync",
+        ],
+    );
+    if !out.status.success() {
+        return Err(format!(
+            "initdb failed: {}",
+            String::from_utf8_lossy(&out.stderr)
+        ));
+    }
+    let port = free_port();
+    let cluster = Cluster {
+        bin,
+        data: base.clone(),
+        port,
+        as_postgres,
+    };
+    let opts = format!(
+        "-p {port} -k {} -c listen_addresses=127.0.0.1 -c fsync=off -c synchronous_commit=off -c full_page_writes=off",
+        data.display()
+    );
+    let log = base.join("log");
+    let out = cluster.pg_ctl(&[
+        "-D",
+        data.to_str().unwrap_or(""),
+        "-o",
+        &opts,
+        "-l",
+        log.to_str().unwrap_or(""),
+        "-w",
+        "start",
+    ]);
+    if !out.status.success() {
+        return Err(format!(
+            "pg_ctl start failed: {}{}",
+            String::from_utf8_lossy(&out.stderr),
+            std::fs::read_to_string(&log).unwrap_or_default()
+        ));
+    }
+    Ok(cluster)
+}
+
+/// Run crescendo with `env` set.
+fn run(dir: &Path, args: &[&str], env: &[(&str, &str)]) -> Output {
+    let mut c = Command::new(env!("CARGO_BIN_EXE_crescendo"));
+    c.args(args).current_dir(dir).env("NO_COLOR", "1");
+    for (k, v) in env {
+        c.env(k, v);
+    }
+    c.output().expect("run crescendo")
+}
+
+fn text(o: &Output) -> String {
+    format!(
+        "{}{}",
+        String::from_utf8_lossy(&o.stdout),
+        String::from_utf8_lossy(&o.stderr)
+    )
+}
+
+#[test]
+fn database_sources_against_a_real_server() {
+    let cluster = match start() {
+        Ok(c) => c,
+        Err(why) => {
+            if std::env::var("CRESCENDO_REQUIRE_DB").as_deref() == Ok("1") {
+                panic!("CRESCENDO_REQUIRE_DB=1 but the test cluster could not start: {why}");
+            }
+            println!("skipped: {why}");
+            return;
+        }
+    };
+    let cluster = Arc::new(cluster);
+    equivalence(&cluster);
+    hostile_names(&cluster);
+    faults(&cluster);
+    scale(&cluster);
+}
+
+/// Create `table` from a CSV file (types from the local loader) with an
+/// identity column `line` in file order, and COPY the file into it.
+fn load_csv(
+    client: &mut postgres::Client,
+    table: &str,
+    csv: &Path,
+    declared: &[(String, crescendo_data::ColType)],
+) {
+    use crescendo_data::ColType;
+    let spec = crescendo_data::CsvSpec {
+        path: csv.to_path_buf(),
+        display_name: csv.display().to_string(),
+        declared: declared.to_vec(),
+        missing: vec![String::new(), "NA".to_string()],
+    };
+    let t = crescendo_data::load_csv(&spec).expect("the demo CSV loads");
+    let q = |s: &str| format!("\"{}\"", s.replace('"', "\"\""));
+    let cols: Vec<String> = t
+        .columns
+        .iter()
+        .map(|c| {
+            let ty = match c.ty {
+                ColType::Text => "text",
+                ColType::Number => "numeric",
+                ColType::Date => "date",
+                ColType::Year => "integer",
+                ColType::Month => {
+                    assert!(
+                        declared.iter().any(|(n, _)| *n == c.name),
+                        "{}: an undeclared month column has no database form here",
+                        c.name
+                    );
+                    "text"
+                }
+            };
+            format!("{} {ty}", q(&c.name))
+        })
+        .collect();
+    client
+        .batch_execute(&format!(
+            "DROP TABLE IF EXISTS {t}; CREATE TABLE {t} (line bigint GENERATED ALWAYS AS IDENTITY, {})",
+            cols.join(", "),
+            t = q(table)
+        ))
+        .expect("create table");
+    let names: Vec<String> = t.columns.iter().map(|c| q(&c.name)).collect();
+    let mut w = client
+        .copy_in(&format!(
+            "COPY {} ({}) FROM STDIN (FORMAT csv, HEADER true)",
+            q(table),
+            names.join(", ")
+        ))
+        .expect("copy in");
+    use std::io::Write;
+    w.write_all(&std::fs::read(csv).expect("read csv"))
+        .expect("copy");
+    w.finish().expect("copy finished");
+}
+
+/// Every demo story from its CSV files and from the same data in
+/// PostgreSQL gives a byte-identical deck.
+fn equivalence(cluster: &Cluster) {
+    let mut client = cluster.client();
+    let conn = cluster.conn();
+    let work = root().join("target").join("pgeq");
+    let _ = std::fs::remove_dir_all(&work);
+    std::fs::create_dir_all(work.join("stories")).expect("work folder");
+    // The demo stories load plugins from `../../target/debug`.
+    #[cfg(unix)]
+    std::os::unix::fs::symlink(root().join("target"), work.join("target")).expect("symlink");
+    let mut pushed = 0;
+    let mut pushed_by = Vec::new();
+    for (name, path) in stories() {
+        let dir = path.parent().expect("story folder");
+        let copy = work.join("stories").join(dir.file_name().expect("name"));
+        copy_dir(dir, &copy);
+        let text = std::fs::read_to_string(&path).expect("story");
+        let src = crescendo_diag::Source::file(path.display().to_string(), text.clone());
+        let (ast, diags) = crescendo_lang::parse(&src);
+        assert!(diags.is_empty(), "{name}: {diags:?}");
+        let mut edits = Vec::new();
+        for item in &ast.items {
+            let crescendo_lang::ast::Item::Data(d) = item else {
+                continue;
+            };
+            let declared: Vec<(String, crescendo_data::ColType)> = d
+                .columns
+                .iter()
+                .map(|c| {
+                    let ty = match c.ty.name.as_str() {
+                        "number" => crescendo_data::ColType::Number,
+                        "date" => crescendo_data::ColType::Date,
+                        "month" => crescendo_data::ColType::Month,
+                        "year" => crescendo_data::ColType::Year,
+                        _ => crescendo_data::ColType::Text,
+                    };
+                    (c.name.name.clone(), ty)
+                })
+                .collect();
+            let table = format!("{name}_{}", d.name.name);
+            load_csv(&mut client, &table, &dir.join(&d.file.value), &declared);
+            edits.push((
+                d.file.span.clone(),
+                format!("table \"{table}\" via CRESCENDO_TEST_DB in order of line"),
+            ));
+        }
+        let mut db_text = text.clone();
+        for (span, with) in edits.into_iter().rev() {
+            db_text.replace_range(span, &with);
+        }
+        let story_file = copy.join(path.file_name().expect("file"));
+        std::fs::write(&story_file, &db_text).expect("write story copy");
+        let csv_deck = work.join(format!("{name}-csv"));
+        let db_deck = work.join(format!("{name}-db"));
+        let a = run(
+            dir,
+            &[
+                "build",
+                path.to_str().unwrap(),
+                "--no-cache",
+                "--out",
+                csv_deck.to_str().unwrap(),
+            ],
+            &[],
+        );
+        assert!(a.status.success(), "{name} from CSV: {}", text_of(&a));
+        let env = [("CRESCENDO_TEST_DB", conn.as_str())];
+        let b = run(
+            &copy,
+            &[
+                "build",
+                story_file.to_str().unwrap(),
+                "--no-cache",
+                "--out",
+                db_deck.to_str().unwrap(),
+            ],
+            &env,
+        );
+        assert!(
+            b.status.success(),
+            "{name} from PostgreSQL: {}",
+            text_of(&b)
+        );
+        let (fa, fb) = (read_dir_files(&csv_deck), read_dir_files(&db_deck));
+        let names_a: Vec<&String> = fa.iter().map(|(n, _)| n).collect();
+        let names_b: Vec<&String> = fb.iter().map(|(n, _)| n).collect();
+        assert_eq!(names_a, names_b, "{name}: the decks hold different files");
+        for ((n, x), (_, y)) in fa.iter().zip(&fb) {
+            assert!(
+                x == y,
+                "{name}: `{n}` differs between the CSV and the PostgreSQL deck"
+            );
+        }
+        let explain = run(
+            &copy,
+            &["check", "--explain-sql", story_file.to_str().unwrap()],
+            &env,
+        );
+        assert!(explain.status.success(), "{}", text_of(&explain));
+        let out = String::from_utf8_lossy(&explain.stdout).to_string();
+        assert!(out.contains("SELECT "), "{name}: {out}");
+        let views = out.matches("-- view ").count();
+        println!("{name}: {views} views computed in the database");
+        pushed_by.push((name.clone(), views));
+        pushed += views;
+        assert!(!out.contains(PASSWORD));
+    }
+    // Views were computed in the database, not only rows fetched: every
+    // view that starts with `keep` or `by` over an item no chart or value
+    // reads directly (routes has none).
+    let expected = [
+        ("clinics", 4),
+        ("libraries", 5),
+        ("pools", 2),
+        ("routes", 0),
+        ("volunteers", 2),
+    ];
+    let got: Vec<(&str, usize)> = pushed_by.iter().map(|(n, v)| (n.as_str(), *v)).collect();
+    assert_eq!(
+        got, expected,
+        "views computed in the database ({pushed} in all)"
+    );
+    aggregates(cluster, &mut client, &work);
+}
+
+/// Every aggregate, filters with arithmetic and missing cells, pushed down
+/// and computed locally: the frame plans (which hold every bar's value at
+/// full precision) are identical. Data: the volunteers' hours (one
+/// decimal) and the pools' visits (with missing cells).
+fn aggregates(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
+    use crescendo_data::ColType;
+    let dir = work.join("aggregates");
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let hours = root().join("stories/volunteers/data/hours.csv");
+    let visits = root().join("stories/pools/data/visits.csv");
+    std::fs::copy(&hours, dir.join("hours.csv")).expect("copy");
+    std::fs::copy(&visits, dir.join("visits.csv")).expect("copy");
+    load_csv(
+        client,
+        "agg_hours",
+        &hours,
+        &[
+            ("task".into(), ColType::Text),
+            ("quarter".into(), ColType::Text),
+            ("hours".into(), ColType::Number),
+        ],
+    );
+    load_csv(
+        client,
+        "agg_visits",
+        &visits,
+        &[
+            ("month".into(), ColType::Month),
+            ("pool".into(), ColType::Text),
+            ("visits".into(), ColType::Number),
+        ],
+    );
+    let measures = ["total", "avg", "mid", "lo", "hi", "one", "final", "n", "nh"];
+    let mut story = String::from(
+        "story \"Aggregates\"\n\
+         data h from SOURCE_H { quarter: text, task: text, hours: number }\n\
+         data v from SOURCE_V { month: month, pool: text, visits: number }\n\
+         view by_task = h\n\
+         \x20 | keep hours * 1.5 > 30 or not (task in (\"Driving\", \"Sorting donated produce\"))\n\
+         \x20 | by task: total = sum(hours), avg = mean(hours), mid = median(hours), lo = min(hours), hi = max(hours), one = first(hours), final = last(hours), n = count(), nh = count(hours)\n\
+         view by_pool = v\n\
+         \x20 | keep month >= \"2022-01\" and visits / 3 < 2000\n\
+         \x20 | by pool, month: total = sum(visits), avg = mean(visits), mid = median(visits), lo = min(visits), hi = max(visits), one = first(visits), final = last(visits), n = count(), nh = count(visits)\n\
+         view per_pool = v\n\
+         \x20 | by pool: total = sum(visits), avg = mean(visits), mid = median(visits), lo = min(visits), hi = max(visits), one = first(visits), final = last(visits), n = count(), nh = count(visits)\n\
+         view derived = h\n\
+         \x20 | add quarter_share = hours / 4\n\
+         \x20 | keep quarter_share > 20 or hours * 2 < 100\n\
+         \x20 | add twice = quarter_share * 8 - hours\n\
+         \x20 | by task: s = sum(quarter_share), m = median(twice), mx = max(quarter_share), f = first(twice), c = count(twice), a = mean(twice)\n\
+         view months = v\n\
+         \x20 | by pool: first_month = min(month), last_month = max(month), total = sum(visits)\n",
+    );
+    for m in measures {
+        story.push_str(&format!(
+            "frame \"{m} by task\" {{\n  bars by_task: category task, value {m}\n}}\n"
+        ));
+        story.push_str(&format!(
+            "frame \"{m} by pool\" {{\n  bars per_pool: category pool, value {m}\n}}\n"
+        ));
+    }
+    story.push_str("frame \"Westbrook\" {\n  line by_pool: x month, y avg, series pool\n}\n");
+    for m in ["s", "m", "mx", "f", "c", "a"] {
+        story.push_str(&format!(
+            "frame \"derived {m}\" {{\n  bars derived: category task, value {m}\n}}\n"
+        ));
+    }
+    story.push_str("value first_month = first(months.first_month)\nvalue last_month = last(months.last_month)\n");
+    let csv = story
+        .replace("SOURCE_H", "\"hours.csv\"")
+        .replace("SOURCE_V", "\"visits.csv\"");
+    let db = story
+        .replace(
+            "SOURCE_H",
+            "table \"agg_hours\" via CRESCENDO_TEST_DB in order of line",
+        )
+        .replace(
+            "SOURCE_V",
+            "table \"agg_visits\" via CRESCENDO_TEST_DB in order of line",
+        );
+    std::fs::write(dir.join("csv.cresc"), csv).expect("write");
+    std::fs::write(dir.join("db.cresc"), db).expect("write");
+    let conn = cluster.conn();
+    let env = [("CRESCENDO_TEST_DB", conn.as_str())];
+    let a = run(&dir, &["plan", "csv.cresc"], &env);
+    assert!(a.status.success(), "{}", text(&a));
+    let b = run(&dir, &["plan", "db.cresc"], &env);
+    assert!(b.status.success(), "{}", text(&b));
+    let (pa, pb) = (
+        String::from_utf8_lossy(&a.stdout),
+        String::from_utf8_lossy(&b.stdout),
+    );
+    assert!(pa.len() > 1000);
+    for (la, lb) in pa.lines().zip(pb.lines()) {
+        assert_eq!(la, lb, "the plans differ");
+    }
+    assert_eq!(pa, pb);
+    let e = run(&dir, &["check", "--explain-sql", "db.cresc"], &env);
+    let t = text(&e);
+    assert_eq!(t.matches("-- view ").count(), 5, "{t}");
+    assert!(t.contains("-- view derived"), "{t}");
+}
+
+fn text_of(o: &Output) -> String {
+    text(o)
+}
+
+fn copy_dir(from: &Path, to: &Path) {
+    std::fs::create_dir_all(to).expect("mkdir");
+    for e in std::fs::read_dir(from).expect("read dir") {
+        let p = e.expect("entry").path();
+        let name = p.file_name().expect("name");
+        if name == "deck" || name == ".crescendo-cache" {
+            continue;
+        }
+        if p.is_dir() {
+            copy_dir(&p, &to.join(name));
+        } else {
+            std::fs::copy(&p, to.join(name)).expect("copy");
+        }
+    }
+}
+
+/// Names with quotes, semicolons and unicode; a category that looks like an
+/// injection survives untouched and the tables are intact afterwards.
+fn hostile_names(cluster: &Cluster) {
+    let mut client = cluster.client();
+    client
+        .batch_execute(
+            r#"
+            DROP SCHEMA IF EXISTS "sch;ema ü" CASCADE;
+            DROP TABLE IF EXISTS x;
+            CREATE TABLE x (keep_me integer);
+            INSERT INTO x VALUES (1), (2), (3);
+            CREATE SCHEMA "sch;ema ü";
+            CREATE TABLE "sch;ema ü"."we""ird; tab'le ü" (
+                line integer, cat text, n numeric, "odd ""col""; ü" text);
+            INSERT INTO "sch;ema ü"."we""ird; tab'le ü" VALUES
+                (1, '''); DROP TABLE x; --', 2, 'a'),
+                (2, 'O''Brien "quoted"', 10, 'b'),
+                (3, '''); DROP TABLE x; --', 3, NULL),
+                (4, 'ünïcødé; ok', 7, 'c');
+            "#,
+        )
+        .expect("hostile fixture");
+    let dir = root().join("target").join("pghostile");
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let story = r#"story "Hostile names"
+data odd from table "sch;ema ü"."we\"ird; tab'le ü" via CRESCENDO_TEST_DB in order of line
+data unordered from table "sch;ema ü"."we\"ird; tab'le ü" via CRESCENDO_TEST_DB
+view totals = odd
+  | keep cat != "nothing" and n > 0
+  | by cat: total = sum(n), first_line = first(line)
+view counted = unordered
+  | keep cat in ("'); DROP TABLE x; --", "O'Brien \"quoted\"")
+  | by cat: rows = count()
+value hostile = sum(totals.total where cat = "'); DROP TABLE x; --")
+value quoted = sum(totals.total where cat = "O'Brien \"quoted\"")
+value hostile_rows = sum(counted.rows where cat = "'); DROP TABLE x; --")
+value first_cat = first(totals.cat)
+frame "Totals by category" {
+  bars totals: category cat, value total
+}
+frame "Every row" {
+  table odd
+}
+"#;
+    std::fs::write(dir.join("story.cresc"), story).expect("write");
+    let conn = cluster.conn();
+    let out = run(
+        &dir,
+        &["check", "--explain-sql", "story.cresc"],
+        &[("CRESCENDO_TEST_DB", conn.as_str())],
+    );
+    let t = text(&out);
+    assert!(out.status.success(), "{t}");
+    assert!(t.contains("value hostile = 5"), "{t}");
+    assert!(t.contains("value quoted = 10"), "{t}");
+    assert!(t.contains("value hostile_rows = 2"), "{t}");
+    assert!(t.contains("value first_cat = '); DROP TABLE x; --"), "{t}");
+    // The hostile category went as a bound value, never as SQL text.
+    assert!(t.contains(r#"$1 = "'); DROP TABLE x; --""#), "{t}");
+    assert!(
+        !t.lines()
+            .any(|l| l.starts_with("SELECT") && l.contains("DROP")),
+        "{t}"
+    );
+    // A `table` chart reads every column, the hostile one included, quoted.
+    assert!(t.contains(r#""odd ""col""; ü"::text AS c"#), "{t}");
+    assert!(t.contains(r#"FROM "sch;ema ü"."we""ird; tab'le ü""#), "{t}");
+    let built = run(
+        &dir,
+        &["build", "story.cresc", "--no-cache"],
+        &[("CRESCENDO_TEST_DB", conn.as_str())],
+    );
+    assert!(built.status.success(), "{}", text(&built));
+    let svg = std::fs::read_to_string(dir.join("deck").join("02-every-row.svg")).expect("deck");
+    assert!(
+        svg.contains("columns Line, Cat, N, Odd &quot;col&quot;; ü"),
+        "the hostile column is not in the table frame"
+    );
+    let n: i64 = client
+        .query_one("SELECT count(*) FROM x", &[])
+        .expect("x is still there")
+        .get(0);
+    assert_eq!(n, 3);
+    let n: i64 = client
+        .query_one(
+            r#"SELECT count(*) FROM "sch;ema ü"."we""ird; tab'le ü""#,
+            &[],
+        )
+        .expect("the hostile table is still there")
+        .get(0);
+    assert_eq!(n, 4);
+    // A `query` source runs read-only and as one statement: writing fails,
+    // a second statement cannot ride along, and `x` stays intact.
+    for (what, query, says) in [
+        (
+            "a write",
+            "with d as (delete from x returning keep_me) select keep_me from d",
+            "data-modifying statement",
+        ),
+        (
+            "a second statement",
+            "select 1 as keep_me) as a; drop table x; select (1",
+            "cannot insert multiple commands",
+        ),
+        (
+            "a function that writes",
+            "select keep_me, nextval('s_hostile') as n from x",
+            "read-only transaction",
+        ),
+    ] {
+        client
+            .batch_execute("CREATE SEQUENCE IF NOT EXISTS s_hostile")
+            .expect("sequence");
+        let story = format!(
+            "story \"Writes\"\ndata w from query \"{}\" via CRESCENDO_TEST_DB\nview v = w\n  | by keep_me: n = count()\nframe \"f\" {{\n  bars v: category keep_me, value n\n}}\n",
+            query.replace('"', "\\\"")
+        );
+        std::fs::write(dir.join("writes.cresc"), story).expect("write");
+        let out = run(
+            &dir,
+            &["check", "writes.cresc"],
+            &[("CRESCENDO_TEST_DB", conn.as_str())],
+        );
+        let t = text(&out);
+        assert!(!out.status.success(), "{what}: {t}");
+        assert!(
+            t.contains("cannot read data `w`") && t.contains(says),
+            "{what}: {t}"
+        );
+        let n: i64 = client
+            .query_one("SELECT count(*) FROM x", &[])
+            .expect("x is still there")
+            .get(0);
+        assert_eq!(n, 3, "{what}");
+    }
+}
+
+/// Server down, wrong password, missing table, statement timeout and a
+/// connection dropped mid-query: each a located error naming the data
+/// statement, a non-zero exit, and the previous deck kept.
+fn faults(cluster: &Cluster) {
+    let mut client = cluster.client();
+    client
+        .batch_execute(
+            "DROP TABLE IF EXISTS faults_t; CREATE TABLE faults_t (line integer, k text, v numeric);
+             INSERT INTO faults_t VALUES (1, 'a', 1), (2, 'b', 2), (3, 'a', 3);",
+        )
+        .expect("faults fixture");
+    let dir = root().join("target").join("pgfaults");
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let story = |source: &str| {
+        format!(
+            "story \"Faults\"\n\ndata f from {source}\nview t = f\n  | by k: v = sum(v)\n\nframe \"Totals\" {{\n  bars t: category k, value v\n}}\n"
+        )
+    };
+    let good = story("table \"faults_t\" via CRESCENDO_TEST_DB in order of line");
+    std::fs::write(dir.join("story.cresc"), &good).expect("write");
+    let conn = cluster.conn();
+    let deck = dir.join("deck");
+    let ok = run(
+        &dir,
+        &["build", "story.cresc", "--no-cache"],
+        &[("CRESCENDO_TEST_DB", conn.as_str())],
+    );
+    assert!(ok.status.success(), "{}", text(&ok));
+    let before = read_dir_files(&deck);
+    assert!(!before.is_empty());
+
+    let heavy = "query \"select (a.n % 3)::text as k, 1 as v from generate_series(1, 200000) a(n), generate_series(1, 200000) b(m)\" via CRESCENDO_TEST_DB";
+    let check = |what: &str, story_text: &str, conn: &str, extra: &[&str], label: &str| -> String {
+        std::fs::write(dir.join("story.cresc"), story_text).expect("write");
+        let mut args = vec!["build", "story.cresc", "--no-cache"];
+        args.extend_from_slice(extra);
+        let out = run(&dir, &args, &[("CRESCENDO_TEST_DB", conn)]);
+        let t = text(&out);
+        assert!(!out.status.success(), "{what}: the build should fail\n{t}");
+        assert!(t.contains("cannot read data `f`"), "{what}: {t}");
+        assert!(
+            t.contains("story.cresc:3:"),
+            "{what}: not located on the data line\n{t}"
+        );
+        assert!(t.contains(label), "{what}: {t}");
+        assert!(
+            !t.contains(PASSWORD) && !t.contains("Wr0ng-pa55"),
+            "{what}: a password leaked\n{t}"
+        );
+        assert_eq!(
+            read_dir_files(&deck),
+            before,
+            "{what}: the previous deck was not kept"
+        );
+        println!("{what}:\n{t}");
+        t
+    };
+    // Server down: a port where nothing listens.
+    let down = format!(
+        "host=127.0.0.1 port={} user=postgres password={PASSWORD} dbname=postgres connect_timeout=5",
+        free_port()
+    );
+    check("server down", &good, &down, &[], "cannot connect");
+    // Wrong password.
+    let wrong = format!(
+        "host=127.0.0.1 port={} user=postgres password=Wr0ng-pa55 dbname=postgres",
+        cluster.port
+    );
+    check(
+        "wrong password",
+        &good,
+        &wrong,
+        &[],
+        "password authentication failed",
+    );
+    // Missing table.
+    check(
+        "missing table",
+        &story("table \"no_such_table\" via CRESCENDO_TEST_DB"),
+        &conn,
+        &[],
+        "does not exist",
+    );
+    // TLS demanded from a server without it.
+    check(
+        "TLS required",
+        &good,
+        &format!("{conn} sslmode=require"),
+        &[],
+        "TLS",
+    );
+    // A column whose database type the story cannot read.
+    client
+        .batch_execute(
+            "DROP TABLE IF EXISTS typed_t; CREATE TABLE typed_t (line integer, k text, flag boolean, v numeric);",
+        )
+        .expect("typed fixture");
+    let t = check(
+        "unsupported type",
+        &story("table \"typed_t\" via CRESCENDO_TEST_DB { k: text, flag: text }"),
+        &conn,
+        &[],
+        "column `flag` cannot be read",
+    );
+    assert!(t.contains("`boolean`"), "{t}");
+    // Statement timeout: a huge cross join in a read-only query.
+    let started = Instant::now();
+    check(
+        "statement timeout",
+        &story(heavy),
+        &conn,
+        &["--statement-timeout", "1"],
+        "statement timeout",
+    );
+    assert!(started.elapsed() < Duration::from_secs(30));
+    // Connection dropped mid-query: a second connection terminates it.
+    let killer = {
+        let conn = conn.clone();
+        std::thread::spawn(move || {
+            let mut c =
+                postgres::Client::connect(&conn, postgres::NoTls).expect("second connection");
+            let until = Instant::now() + Duration::from_secs(60);
+            while Instant::now() < until {
+                let rows = c
+                    .query(
+                        "SELECT pg_terminate_backend(pid) FROM pg_stat_activity \
+                         WHERE application_name = 'crescendo' AND state = 'active' \
+                         AND query LIKE '%generate_series%' AND pid <> pg_backend_pid()",
+                        &[],
+                    )
+                    .expect("terminate");
+                if !rows.is_empty() {
+                    return true;
+                }
+                std::thread::sleep(Duration::from_millis(100));
+            }
+            false
+        })
+    };
+    check(
+        "connection dropped",
+        &story(heavy),
+        &conn,
+        &["--statement-timeout", "120"],
+        "connection",
+    );
+    assert!(
+        killer.join().expect("killer thread"),
+        "the query was never seen running"
+    );
+    std::fs::write(dir.join("story.cresc"), &good).expect("write");
+}
+
+/// Ten million rows generated inside the server aggregate there; the bytes
+/// received follow the number of groups, not of rows.
+fn scale(cluster: &Cluster) {
+    let mut client = cluster.client();
+    let t0 = Instant::now();
+    client
+        .batch_execute(
+            "DROP TABLE IF EXISTS big; CREATE UNLOGGED TABLE big (line bigint, grp text, amount numeric);
+             INSERT INTO big SELECT g, 'group ' || (g % 50), (g % 1000) / 10.0 FROM generate_series(1, 10000000) g;
+             ANALYZE big;",
+        )
+        .expect("generate 10 million rows");
+    let generated = t0.elapsed();
+    let dir = root().join("target").join("pgscale");
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let story = r#"story "Ten million rows"
+data ledger from table "big" via CRESCENDO_TEST_DB in order of line
+view all_rows = ledger
+  | by grp: amount = sum(amount), n = count()
+view tenth = ledger
+  | keep line <= 1000000
+  | by grp: amount = sum(amount), n = count()
+value rows_per_group = first(all_rows.n)
+frame "Totals" {
+  bars all_rows: category grp, value amount
+}
+"#;
+    std::fs::write(dir.join("story.cresc"), story).expect("write");
+    let conn = cluster.conn();
+    let t1 = Instant::now();
+    let out = run(
+        &dir,
+        &["check", "--explain-sql", "--format", "json", "story.cresc"],
+        &[("CRESCENDO_TEST_DB", conn.as_str())],
+    );
+    let took = t1.elapsed();
+    assert!(out.status.success(), "{}", text(&out));
+    let report: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json report");
+    let sql = report["sql"].as_array().expect("sql list");
+    assert_eq!(sql.len(), 2, "{report}");
+    let figure = |i: usize, k: &str| sql[i][k].as_u64().expect("number");
+    assert_eq!(figure(0, "rows"), 50);
+    assert_eq!(figure(1, "rows"), 50);
+    let (all, tenth) = (figure(0, "bytes"), figure(1, "bytes"));
+    println!(
+        "scale: 10,000,000 rows generated in {:.1} s; both views computed in {:.1} s; \
+         received {all} bytes for 10,000,000 rows and {tenth} bytes for 1,000,000 rows (50 groups each)",
+        generated.as_secs_f64(),
+        took.as_secs_f64()
+    );
+    // Ten times the rows, the same groups: about the same bytes (a few more
+    // digits per sum and count), and far below one byte per row.
+    assert!(all < 2 * tenth, "{all} vs {tenth}");
+    assert!(all < 50 * 64, "{all} bytes for 50 groups");
+    // Every group holds 200,000 of the 10 million rows.
+    assert_eq!(report["values"]["rows_per_group"], "200,000", "{report}");
+}
+
+/// A missing environment variable is a located error (no server needed).
+#[test]
+fn an_unset_connection_variable_is_a_located_error() {
+    let dir = common::scratch("db-unset-var");
+    std::fs::write(
+        dir.join("story.cresc"),
+        "story \"x\"\ndata d from table \"t\" via CRESCENDO_SURELY_UNSET_DB\nview v = d\n  | by k: n = count()\nframe \"f\" {\n  bars v: category k, value n\n}\n",
+    )
+    .expect("write");
+    let out = run(&dir, &["check", "story.cresc"], &[]);
+    let t = text(&out);
+    assert_eq!(out.status.code(), Some(1), "{t}");
+    assert!(
+        t.contains("the environment variable `CRESCENDO_SURELY_UNSET_DB` is not set"),
+        "{t}"
+    );
+    assert!(t.contains("story.cresc:2:27"), "{t}");
+    // `--connection d=OTHER` names another variable, and the message says so.
+    let out = run(
+        &dir,
+        &[
+            "check",
+            "story.cresc",
+            "--connection",
+            "d=CRESCENDO_OTHER_UNSET_DB",
+        ],
+        &[],
+    );
+    let t = text(&out);
+    assert!(t.contains("`CRESCENDO_OTHER_UNSET_DB` is not set"), "{t}");
+    assert!(t.contains("--connection d=CRESCENDO_OTHER_UNSET_DB"), "{t}");
+    // A name that is no database item of the story.
+    let out = run(
+        &dir,
+        &[
+            "check",
+            "story.cresc",
+            "--connection",
+            "e=CRESCENDO_OTHER_UNSET_DB",
+        ],
+        &[],
+    );
+    let t = text(&out);
+    assert!(
+        t.contains("`--connection e=...` names no database data item of this story"),
+        "{t}"
+    );
+    assert!(t.contains("did you mean `d`?"), "{t}");
+    // A connection string where a variable name belongs is refused without
+    // being echoed.
+    let out = run(
+        &dir,
+        &[
+            "check",
+            "story.cresc",
+            "--connection",
+            "d=postgresql://u:pw=secret@h/db",
+        ],
+        &[],
+    );
+    let t = text(&out);
+    assert!(!out.status.success());
+    assert!(!t.contains("secret"), "{t}");
+}
