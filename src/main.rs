@@ -106,6 +106,11 @@ struct DataArgs {
     /// runs with your rights).
     #[arg(long)]
     no_plugins: bool,
+    /// Let the story read data, house styles and plugins from DIR too
+    /// (repeatable). Without it a story may read only files in its own
+    /// folder and below.
+    #[arg(long = "allow-path", value_name = "DIR")]
+    allow_paths: Vec<PathBuf>,
 }
 
 fn parse_data_arg(s: &str) -> Result<(String, PathBuf), String> {
@@ -193,6 +198,9 @@ enum Command {
     Plugins {
         /// The story file (.cresc).
         story: PathBuf,
+        /// Let the story load plugins from DIR too (repeatable).
+        #[arg(long = "allow-path", value_name = "DIR")]
+        allow_paths: Vec<PathBuf>,
     },
     /// Explain a lint rule (what it flags, why, an example, what to do
     /// instead); without a rule, list them all.
@@ -264,10 +272,11 @@ fn main() -> ExitCode {
             lint,
         } => check(&story, format, &data, &lint, color),
         Command::Explain { rule } => explain(rule.as_deref(), color),
-        Command::Plugins { story } => {
+        Command::Plugins { story, allow_paths } => {
             let none = DataArgs {
                 data: Vec::new(),
                 no_plugins: false,
+                allow_paths,
             };
             match load_plan(&story, &none, color) {
                 Ok(p) => {
@@ -595,6 +604,7 @@ fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic
         data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
         cache: incremental::planner_cache(),
         no_plugins: data.no_plugins,
+        allow_paths: data.allow_paths.clone(),
     };
     crescendo_plan::plan_story(&src, dir, &options)
 }

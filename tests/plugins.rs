@@ -8,7 +8,7 @@ mod common;
 use std::fs;
 use std::path::{Path, PathBuf};
 
-use common::{crescendo, ensure_plugins, read_dir_files, root, scratch};
+use common::{crescendo_with_plugins as crescendo, ensure_plugins, read_dir_files, root, scratch};
 
 fn lib(name: &str) -> PathBuf {
     ensure_plugins().join(format!(

@@ -28,6 +28,16 @@ pub fn crescendo(dir: &Path, args: &[&str]) -> Output {
         .expect("run crescendo")
 }
 
+/// Run the `crescendo` binary in `dir`, allowing the story to load the
+/// plugins built into `target/debug` (`--allow-path`), as the routes demo
+/// story does.
+pub fn crescendo_with_plugins(dir: &Path, args: &[&str]) -> Output {
+    let plugins = ensure_plugins().to_str().expect("utf-8 path").to_string();
+    let mut all: Vec<&str> = args.to_vec();
+    all.extend(["--allow-path", &plugins]);
+    crescendo(dir, &all)
+}
+
 /// Every story in `stories/`, as (name, path), sorted. The plugins some of
 /// them load are built first.
 pub fn stories() -> Vec<(String, PathBuf)> {

@@ -27,6 +27,9 @@ pub struct Options {
     pub no_plugins: bool,
     /// Folder of the view cache (see `loading.rs`); `None`: no cache.
     pub cache: Option<PathBuf>,
+    /// `--allow-path DIR`: folders outside the story's own folder tree that
+    /// the story may read data, house styles and plugins from.
+    pub allow_paths: Vec<PathBuf>,
 }
 
 /// A successful plan: the deck, its warnings, and one error per claim that
@@ -397,6 +400,30 @@ impl<'a> Planner<'a> {
         &mut self.diags[last]
     }
 
+    /// May the story read `file` (a path it wrote)? Reports a located
+    /// error when the path leaves the story's folder tree (see `paths.rs`).
+    fn confined(&mut self, file: &ast::Str, what: &str) -> bool {
+        match crate::paths::confine(self.dir, &file.value, &self.options.allow_paths) {
+            Ok(_) => true,
+            Err(why) => {
+                let d = self.error(
+                    "path-outside",
+                    format!("the {what} may not be read: {why}"),
+                    file.span.clone(),
+                    "outside the story's folder",
+                );
+                d.notes.push(
+                    "a story reads only files in its own folder and below, so a story from someone else cannot read your files into a deck".into(),
+                );
+                d.help = Some(
+                    "move the file next to the story, or allow its folder with --allow-path DIR"
+                        .into(),
+                );
+                false
+            }
+        }
+    }
+
     fn set_once<T: Clone>(&mut self, slot: &mut Option<T>, value: T, span: &ast::Span, what: &str) {
         if slot.is_some() {
             self.error(
@@ -454,10 +481,15 @@ impl<'a> Planner<'a> {
                 Item::Data(d) => {
                     if self.check_unique_table(&d.name) {
                         let replacement = self.options.data.get(&d.name.name).map(PathBuf::as_path);
-                        match self
-                            .tables
-                            .load(self.src, self.dir, d, replacement, self.diags)
-                        {
+                        // `--data` names a file on purpose; the story may not
+                        let allowed = replacement.is_some() || self.confined(&d.file, "data file");
+                        let loaded = if allowed {
+                            self.tables
+                                .load(self.src, self.dir, d, replacement, self.diags)
+                        } else {
+                            None
+                        };
+                        match loaded {
                             Some(table) => {
                                 self.tables.by_name.insert(
                                     d.name.name.clone(),
@@ -507,6 +539,7 @@ impl<'a> Planner<'a> {
                     self.value(v, &later_values);
                 }
                 Item::Claim(c) => claims.push(c),
+                Item::Plugin(d) if !self.confined(&d.path, "plugin") => {}
                 Item::Plugin(d) => {
                     let mut loaded = std::mem::take(&mut self.plugins);
                     self.use_plugin(d, self.dir, self.options.no_plugins, &mut loaded);
@@ -698,6 +731,7 @@ impl<'a> Planner<'a> {
             style: h
                 .style
                 .as_ref()
+                .filter(|s| self.confined(s, "house style"))
                 .and_then(|s| crate::style::load(self.src, self.dir, s, self.diags)),
             values: self
                 .values
