@@ -111,6 +111,37 @@ struct DataArgs {
     /// folder and below.
     #[arg(long = "allow-path", value_name = "DIR")]
     allow_paths: Vec<PathBuf>,
+    #[command(flatten)]
+    limits: LimitArgs,
+}
+
+/// Limits on what one build reads and makes; a story or data file over a
+/// limit stops the build with a located error.
+#[derive(clap::Args, Clone)]
+struct LimitArgs {
+    /// Largest story or data file, in bytes.
+    #[arg(long, value_name = "BYTES", default_value_t = crescendo_plan::limits::Limits::default().input_bytes)]
+    max_input_bytes: u64,
+    /// Most rows of a data file held in memory.
+    #[arg(long, value_name = "N", default_value_t = crescendo_plan::limits::Limits::default().rows)]
+    max_rows: usize,
+    /// Most frames in a deck.
+    #[arg(long, value_name = "N", default_value_t = crescendo_plan::limits::Limits::default().frames)]
+    max_frames: usize,
+    /// Longest text (a story string or a data cell), in characters.
+    #[arg(long, value_name = "N", default_value_t = crescendo_plan::limits::Limits::default().text)]
+    max_text: usize,
+}
+
+impl LimitArgs {
+    fn limits(&self) -> crescendo_plan::limits::Limits {
+        crescendo_plan::limits::Limits {
+            input_bytes: self.max_input_bytes,
+            rows: self.max_rows,
+            frames: self.max_frames,
+            text: self.max_text,
+        }
+    }
 }
 
 fn parse_data_arg(s: &str) -> Result<(String, PathBuf), String> {
@@ -277,6 +308,12 @@ fn main() -> ExitCode {
                 data: Vec::new(),
                 no_plugins: false,
                 allow_paths,
+                limits: LimitArgs {
+                    max_input_bytes: crescendo_plan::limits::Limits::default().input_bytes,
+                    max_rows: crescendo_plan::limits::Limits::default().rows,
+                    max_frames: crescendo_plan::limits::Limits::default().frames,
+                    max_text: crescendo_plan::limits::Limits::default().text,
+                },
             };
             match load_plan(&story, &none, color) {
                 Ok(p) => {
@@ -592,6 +629,8 @@ fn default_out(story: &Path) -> PathBuf {
 
 /// Read, parse and plan a story without printing anything.
 fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic>> {
+    crescendo_plan::limits::file_size(story, &data.limits.limits())
+        .map_err(|e| vec![Diagnostic::error("limit", e)])?;
     let text = std::fs::read_to_string(story).map_err(|e| {
         vec![Diagnostic::error(
             "story-file",
@@ -605,6 +644,7 @@ fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic
         cache: incremental::planner_cache(),
         no_plugins: data.no_plugins,
         allow_paths: data.allow_paths.clone(),
+        limits: data.limits.limits(),
     };
     crescendo_plan::plan_story(&src, dir, &options)
 }

@@ -30,6 +30,8 @@ pub struct Options {
     /// `--allow-path DIR`: folders outside the story's own folder tree that
     /// the story may read data, house styles and plugins from.
     pub allow_paths: Vec<PathBuf>,
+    /// Input, row, frame and text limits (see `limits.rs`).
+    pub limits: crate::limits::Limits,
 }
 
 /// A successful plan: the deck, its warnings, and one error per claim that
@@ -54,6 +56,7 @@ pub type PlanResult = Result<Planned, Vec<Diagnostic>>;
 /// paths are relative to. Returns the plan and its warnings, or all errors.
 pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> PlanResult {
     let (story, mut diags) = crescendo_lang::parse(src);
+    diags.extend(crate::limits::story(src, &story, &options.limits));
     if has_errors(&diags) {
         return Err(diags);
     }
@@ -424,6 +427,21 @@ impl<'a> Planner<'a> {
         }
     }
 
+    /// Is the data file of `d` within the size limit? Reports it if not.
+    fn within_limits(&mut self, d: &ast::DataDecl, replacement: Option<&Path>) -> bool {
+        let path = match replacement {
+            Some(p) => p.to_path_buf(),
+            None => self.dir.join(&d.file.value),
+        };
+        match crate::limits::file_size(&path, &self.options.limits) {
+            Ok(()) => true,
+            Err(why) => {
+                self.error("limit", why, d.file.span.clone(), "this file");
+                false
+            }
+        }
+    }
+
     fn set_once<T: Clone>(&mut self, slot: &mut Option<T>, value: T, span: &ast::Span, what: &str) {
         if slot.is_some() {
             self.error(
@@ -483,12 +501,20 @@ impl<'a> Planner<'a> {
                         let replacement = self.options.data.get(&d.name.name).map(PathBuf::as_path);
                         // `--data` names a file on purpose; the story may not
                         let allowed = replacement.is_some() || self.confined(&d.file, "data file");
+                        let allowed = allowed && self.within_limits(d, replacement);
                         let loaded = if allowed {
                             self.tables
                                 .load(self.src, self.dir, d, replacement, self.diags)
                         } else {
                             None
                         };
+                        let loaded = loaded.filter(|t| {
+                            let checked = crate::limits::table(t, &self.options.limits);
+                            if let Err(why) = &checked {
+                                self.error("limit", why.clone(), d.file.span.clone(), "this file");
+                            }
+                            checked.is_ok()
+                        });
                         match loaded {
                             Some(table) => {
                                 self.tables.by_name.insert(

@@ -9,6 +9,7 @@ pub mod cache;
 mod forms;
 mod loading;
 pub mod model;
+pub mod limits;
 pub mod paths;
 pub mod plugins;
 mod resolve;
