@@ -438,28 +438,41 @@ fn script_in_story_or_data_never_runs_in_the_deck() {
     );
     s.wait_for("Page.loadEventFired");
     // the deck's own script ran (it set the counter) ...
-    assert_eq!(s.eval("document.getElementById('count').textContent"), "1 / 1");
+    assert_eq!(
+        s.eval("document.getElementById('count').textContent"),
+        "1 / 1"
+    );
     // ... and nothing from the data or the story did
     assert_eq!(s.eval("typeof window.__pwned"), "undefined");
     assert_eq!(
         s.eval("document.title"),
         "<script>document.title='pwned'</script> loans"
     );
-    assert_eq!(s.eval("document.querySelectorAll('script').length"), json!(1));
-    assert_eq!(s.eval("document.querySelectorAll('img, iframe, foreignObject').length"), json!(0));
+    assert_eq!(
+        s.eval("document.querySelectorAll('script').length"),
+        json!(1)
+    );
+    assert_eq!(
+        s.eval("document.querySelectorAll('img, iframe, foreignObject').length"),
+        json!(0)
+    );
     // the payloads are on the page as text
     let text = s.eval("document.body.textContent");
     assert!(
-        text.as_str().unwrap().contains("<script>window.__pwned='csv'</script>"),
+        text.as_str()
+            .unwrap()
+            .contains("<script>window.__pwned='csv'</script>"),
         "{text}"
     );
     // the policy is in force: even markup injected after escaping (as a
     // bug would) cannot run an inline handler or a new inline script
-    let policy = s.eval(
-        "document.querySelector('meta[http-equiv=\"Content-Security-Policy\"]').content",
-    );
+    let policy =
+        s.eval("document.querySelector('meta[http-equiv=\"Content-Security-Policy\"]').content");
     let policy = policy.as_str().unwrap();
-    assert!(policy.starts_with("default-src 'none'; script-src 'sha256-"), "{policy}");
+    assert!(
+        policy.starts_with("default-src 'none'; script-src 'sha256-"),
+        "{policy}"
+    );
     s.eval(
         "document.body.insertAdjacentHTML('beforeend', '<img src=\"data:,x\" onerror=\"window.__late=1\" onload=\"window.__late=1\">');\
          var el=document.createElement('script');el.textContent='window.__late=2';document.body.appendChild(el);",

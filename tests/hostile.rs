@@ -174,7 +174,12 @@ fn an_extremely_long_line_of_columns_builds() {
     let n = 20_000;
     let header: Vec<String> = (0..n).map(|i| format!("col{i}")).collect();
     let row: Vec<String> = (0..n).map(|i| i.to_string()).collect();
-    let csv = format!("c,{}\nA,{}\nB,{}\n", header.join(","), row.join(","), row.join(","));
+    let csv = format!(
+        "c,{}\nA,{}\nB,{}\n",
+        header.join(","),
+        row.join(","),
+        row.join(",")
+    );
     let story = format!("{STORY}frame \"Wide\" {{\n  bars t: category c, value col7\n}}\n");
     let (code, stderr, _) = build_made("long-line", &story, csv.as_bytes());
     assert_eq!(code, Some(0), "{stderr}");

@@ -785,7 +785,10 @@ fn sha256_source(text: &str) -> String {
     use base64::Engine as _;
     use sha2::Digest as _;
     let d = sha2::Sha256::digest(text.as_bytes());
-    format!("'sha256-{}'", base64::engine::general_purpose::STANDARD.encode(d))
+    format!(
+        "'sha256-{}'",
+        base64::engine::general_purpose::STANDARD.encode(d)
+    )
 }
 
 #[test]
