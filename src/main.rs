@@ -133,6 +133,18 @@ struct LimitArgs {
     max_text: usize,
 }
 
+impl Default for LimitArgs {
+    fn default() -> Self {
+        let l = crescendo_plan::limits::Limits::default();
+        Self {
+            max_input_bytes: l.input_bytes,
+            max_rows: l.rows,
+            max_frames: l.frames,
+            max_text: l.text,
+        }
+    }
+}
+
 impl LimitArgs {
     fn limits(&self) -> crescendo_plan::limits::Limits {
         crescendo_plan::limits::Limits {
@@ -308,12 +320,7 @@ fn main() -> ExitCode {
                 data: Vec::new(),
                 no_plugins: false,
                 allow_paths,
-                limits: LimitArgs {
-                    max_input_bytes: crescendo_plan::limits::Limits::default().input_bytes,
-                    max_rows: crescendo_plan::limits::Limits::default().rows,
-                    max_frames: crescendo_plan::limits::Limits::default().frames,
-                    max_text: crescendo_plan::limits::Limits::default().text,
-                },
+                limits: LimitArgs::default(),
             };
             match load_plan(&story, &none, color) {
                 Ok(p) => {

@@ -201,3 +201,63 @@ fn a_million_distinct_categories_build_in_bounded_time() {
     // would take hours (tests/bench/hostile prints the real scaling)
     assert!(took < Duration::from_secs(300), "{took:?}");
 }
+
+#[test]
+fn every_limit_is_an_option_with_a_located_error() {
+    let dir = scratch("limits");
+    fs::write(
+        dir.join("story.cresc"),
+        format!(
+            "{STORY}frame \"One\" {{\n  bars t: category c, value n\n}}\n\
+             frame \"Two\" {{\n  bars t: category c, value n\n  takeaway \"A longer text\"\n}}\n"
+        ),
+    )
+    .unwrap();
+    // 70-character names make the data file larger than the story
+    let csv: String = ["A", "B", "C"]
+        .iter()
+        .enumerate()
+        .map(|(i, c)| format!("{}\n", format_args!("{:-<70},{}", c, i + 1)))
+        .collect();
+    fs::write(dir.join("t.csv"), format!("c,n\n{csv}")).unwrap();
+    for (option, value, message, at) in [
+        (
+            "--max-rows",
+            "2",
+            "3 rows, more than the limit of 2",
+            "story.cresc:4:",
+        ),
+        (
+            "--max-input-bytes",
+            "210",
+            "more than the limit of 210",
+            "story.cresc:4:",
+        ),
+        (
+            "--max-frames",
+            "1",
+            "2 frames, more than the limit of 1",
+            "story.cresc:8:1",
+        ),
+        (
+            "--max-text",
+            "10",
+            "18 characters, more than the limit of 10",
+            "story.cresc:2:8",
+        ),
+    ] {
+        let run = crescendo(&dir, &["check", "story.cresc", option, value]);
+        let err = String::from_utf8_lossy(&run.stderr);
+        assert_eq!(run.status.code(), Some(1), "{option}: {err}");
+        assert!(
+            err.contains("error[limit]") && err.contains(message),
+            "{option}: {err}"
+        );
+        assert!(err.contains(at), "{option}: {err}");
+    }
+    // the story file itself is bounded too
+    let run = crescendo(&dir, &["check", "story.cresc", "--max-input-bytes", "100"]);
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert!(err.contains("story.cresc` has"), "{err}");
+    assert!(crescendo(&dir, &["check", "story.cresc"]).status.success());
+}

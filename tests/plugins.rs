@@ -190,7 +190,10 @@ fn a_plugin_outside_the_story_folder_needs_allow_path() {
     let run = common::crescendo(&dir, &["build", "s.cresc"]);
     let err = String::from_utf8_lossy(&run.stderr);
     assert_eq!(run.status.code(), Some(1), "{err}");
-    assert!(err.contains("error[path-outside]: the plugin may not be read"), "{err}");
+    assert!(
+        err.contains("error[path-outside]: the plugin may not be read"),
+        "{err}"
+    );
     assert!(err.contains("s.cresc:4:12"), "{err}");
     assert!(err.contains("--allow-path DIR"), "{err}");
     assert!(!dir.join("deck").exists());
