@@ -52,11 +52,7 @@ fn planned_of(path: &Path) -> crescendo_plan::Planned {
     let text = std::fs::read_to_string(path).expect("read story");
     let rel = path.strip_prefix(root()).unwrap_or(path);
     let src: Arc<Source> = Source::file(rel.display().to_string(), text);
-    let options = crescendo_plan::Options {
-        allow_paths: vec![ensure_plugins().to_path_buf()],
-        ..Default::default()
-    };
-    match crescendo_plan::plan_story(&src, path.parent().unwrap(), &options) {
+    match crescendo_plan::plan_story(&src, path.parent().unwrap(), &common::plan_options()) {
         Ok(p) => {
             assert!(
                 p.failed_claims.is_empty(),

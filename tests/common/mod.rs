@@ -38,6 +38,15 @@ pub fn crescendo_with_plugins(dir: &Path, args: &[&str]) -> Output {
     crescendo(dir, &all)
 }
 
+/// Planner options for the demo stories: the routes story loads the
+/// plugins built into `target/debug`, outside its folder (`--allow-path`).
+pub fn plan_options() -> crescendo_plan::Options {
+    crescendo_plan::Options {
+        allow_paths: vec![ensure_plugins().to_path_buf()],
+        ..Default::default()
+    }
+}
+
 /// Every story in `stories/`, as (name, path), sorted. The plugins some of
 /// them load are built first.
 pub fn stories() -> Vec<(String, PathBuf)> {
