@@ -8,9 +8,7 @@ mod common;
 use std::path::Path;
 use std::sync::Arc;
 
-use common::{
-    crescendo_with_plugins as crescendo, ensure_plugins, read_dir_files, root, scratch, stories,
-};
+use common::{crescendo_with_plugins as crescendo, read_dir_files, root, scratch, stories};
 use crescendo_diag::Source;
 use crescendo_plan::DeckPlan;
 use serde_json::Value;
