@@ -220,18 +220,217 @@ fn check_replaceable(out: &Path) -> Result<(), Diagnostic> {
     Ok(())
 }
 
+/// The names of the files a deck's manifest says crescendo wrote (the
+/// manifest itself included). Anything else in a deck folder was put there
+/// by someone else and is carried over to the next deck.
+fn written_by_us(deck: &Path) -> Option<std::collections::BTreeSet<String>> {
+    let text = fs::read_to_string(deck.join(MANIFEST)).ok()?;
+    let m: serde_json::Value = serde_json::from_str(&text).ok()?;
+    let mut names = std::collections::BTreeSet::new();
+    names.insert(MANIFEST.to_string());
+    for key in ["html", "pdf"] {
+        if let Some(s) = m.get(key).and_then(|v| v.as_str()) {
+            names.insert(s.to_string());
+        }
+    }
+    for f in m
+        .get("frames")
+        .and_then(|v| v.as_array())
+        .into_iter()
+        .flatten()
+    {
+        for key in ["file", "png"] {
+            if let Some(s) = f.get(key).and_then(|v| v.as_str()) {
+                names.insert(s.to_string());
+            }
+        }
+    }
+    Some(names)
+}
+
+/// Copy a file or a folder tree (symbolic links are recreated, not followed).
+fn copy_tree(from: &Path, to: &Path) -> std::io::Result<()> {
+    let meta = fs::symlink_metadata(from)?;
+    if meta.file_type().is_symlink() {
+        #[cfg(unix)]
+        {
+            std::os::unix::fs::symlink(fs::read_link(from)?, to)?;
+        }
+        return Ok(());
+    }
+    if meta.is_dir() {
+        fs::create_dir(to)?;
+        for e in fs::read_dir(from)? {
+            let e = e?;
+            copy_tree(&e.path(), &to.join(e.file_name()))?;
+        }
+        return sync_dir(to);
+    }
+    fs::copy(from, to)?;
+    fs::File::open(to)?.sync_all()
+}
+
+/// Flush a folder's entries to disk (a no-op where folders cannot be opened).
+fn sync_dir(dir: &Path) -> std::io::Result<()> {
+    #[cfg(unix)]
+    {
+        fs::File::open(dir)?.sync_all()?;
+    }
+    #[cfg(not(unix))]
+    {
+        let _ = dir;
+    }
+    Ok(())
+}
+
+/// Write one file and flush it to disk.
+fn write_synced(path: &Path, bytes: &[u8]) -> std::io::Result<()> {
+    use std::io::Write as _;
+    let mut f = fs::File::create(path)?;
+    f.write_all(bytes)?;
+    f.sync_all()?;
+    slow_down_for_tests();
+    Ok(())
+}
+
+/// Debug builds only: `CRESCENDO_TEST_SLOW_WRITE_MS=N` sleeps N ms after
+/// each file of a deck, so the crash test can kill a build mid-write.
+fn slow_down_for_tests() {
+    #[cfg(debug_assertions)]
+    if let Some(ms) = std::env::var("CRESCENDO_TEST_SLOW_WRITE_MS")
+        .ok()
+        .and_then(|v| v.parse::<u64>().ok())
+    {
+        std::thread::sleep(std::time::Duration::from_millis(ms));
+    }
+}
+
+/// Is process `pid` still running? (Unknown counts as running, so its
+/// folders are left alone.)
+fn alive(pid: u32) -> bool {
+    #[cfg(unix)]
+    {
+        if pid == std::process::id() {
+            return true;
+        }
+        let Ok(pid) = libc::pid_t::try_from(pid) else {
+            return true;
+        };
+        // SAFETY: signal 0 only checks that the process exists.
+        let r = unsafe { libc::kill(pid, 0) };
+        r == 0 || std::io::Error::last_os_error().raw_os_error() != Some(libc::ESRCH)
+    }
+    #[cfg(not(unix))]
+    {
+        let _ = pid;
+        true
+    }
+}
+
+/// The temporary folders of deck `base` in `parent` left by builds that are
+/// no longer running, as (path, kind) with kind `building` or `previous`.
+fn leftovers(parent: &Path, base: &str) -> Vec<(PathBuf, &'static str)> {
+    let mut found = Vec::new();
+    let Ok(entries) = fs::read_dir(parent) else {
+        return found;
+    };
+    for e in entries.flatten() {
+        let name = e.file_name().to_string_lossy().into_owned();
+        for kind in ["building", "previous"] {
+            let prefix = format!(".{base}.{kind}-");
+            let Some(pid) = name.strip_prefix(&prefix) else {
+                continue;
+            };
+            let Ok(pid) = pid.parse::<u32>() else {
+                continue;
+            };
+            let is_dir = e.file_type().is_ok_and(|t| t.is_dir());
+            if is_dir && (pid == std::process::id() || !alive(pid)) {
+                found.push((e.path(), kind));
+            }
+        }
+    }
+    found.sort();
+    found
+}
+
+/// Clean up after builds that died: a `previous` folder with no deck at
+/// `out` is the old deck of a build killed between its two renames (the
+/// fallback swap), so it is put back; every other leftover is removed.
+fn recover(parent: &Path, base: &str, out: &Path) {
+    for (path, kind) in leftovers(parent, base) {
+        if kind == "previous" && !out.exists() && fs::rename(&path, out).is_ok() {
+            let _ = sync_dir(parent);
+            continue;
+        }
+        let _ = fs::remove_dir_all(&path);
+    }
+}
+
+/// Swap two folders in one atomic step (Linux `renameat2` with
+/// `RENAME_EXCHANGE`). `Ok(false)` when the file system or the system
+/// cannot do it.
+fn exchange(a: &Path, b: &Path) -> std::io::Result<bool> {
+    #[cfg(target_os = "linux")]
+    {
+        use std::ffi::CString;
+        use std::os::unix::ffi::OsStrExt;
+        let ca = CString::new(a.as_os_str().as_bytes())
+            .map_err(|e| std::io::Error::new(std::io::ErrorKind::InvalidInput, e))?;
+        let cb = CString::new(b.as_os_str().as_bytes())
+            .map_err(|e| std::io::Error::new(std::io::ErrorKind::InvalidInput, e))?;
+        // SAFETY: both are valid NUL-terminated paths; renameat2 has no
+        // other preconditions.
+        let r = unsafe {
+            libc::syscall(
+                libc::SYS_renameat2,
+                libc::AT_FDCWD,
+                ca.as_ptr(),
+                libc::AT_FDCWD,
+                cb.as_ptr(),
+                libc::RENAME_EXCHANGE,
+            )
+        };
+        if r == 0 {
+            return Ok(true);
+        }
+        let e = std::io::Error::last_os_error();
+        match e.raw_os_error() {
+            Some(libc::EINVAL) | Some(libc::ENOSYS) | Some(libc::EOPNOTSUPP) => Ok(false),
+            _ => Err(e),
+        }
+    }
+    #[cfg(not(target_os = "linux"))]
+    {
+        let _ = (a, b);
+        Ok(false)
+    }
+}
+
 /// Write `files` into a sibling temporary folder, then swap it with `out`.
+///
+/// Crash safety: every file and folder is flushed before the swap; on Linux
+/// the swap is one `renameat2(RENAME_EXCHANGE)`, so `out` is at every
+/// instant either the whole previous deck or the whole new one. Elsewhere
+/// (or on file systems without it) the previous deck is first moved aside
+/// to `.NAME.previous-PID`; a build killed between the two renames leaves
+/// it there, and the next build puts it back. Leftover temporary folders of
+/// dead builds are removed by the next build. Files someone else added to
+/// the deck folder (not listed in its manifest) are carried over.
 pub fn write_atomically(out: &Path, files: &[(String, Vec<u8>)]) -> Result<(), Diagnostic> {
-    check_replaceable(out)?;
     let parent = match out.parent() {
         Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
         _ => PathBuf::from("."),
     };
-    fs::create_dir_all(&parent).map_err(|e| io_err("create", &parent, e))?;
     let base = out
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_else(|| "deck".into());
+    if parent.is_dir() {
+        recover(&parent, &base, out);
+    }
+    check_replaceable(out)?;
+    fs::create_dir_all(&parent).map_err(|e| io_err("create", &parent, e))?;
     let tmp = parent.join(format!(".{base}.building-{}", std::process::id()));
     let old = parent.join(format!(".{base}.previous-{}", std::process::id()));
     let _ = fs::remove_dir_all(&tmp);
@@ -239,10 +438,31 @@ pub fn write_atomically(out: &Path, files: &[(String, Vec<u8>)]) -> Result<(), D
         fs::create_dir(&tmp).map_err(|e| io_err("create", &tmp, e))?;
         for (name, bytes) in files {
             let p = tmp.join(name);
-            fs::write(&p, bytes).map_err(|e| io_err("write", &p, e))?;
+            write_synced(&p, bytes).map_err(|e| io_err("write", &p, e))?;
         }
         let had_old = out.exists();
         if had_old {
+            // carry over what someone else put into the deck folder
+            if let Some(ours) = written_by_us(out) {
+                let entries = fs::read_dir(out).map_err(|e| io_err("read", out, e))?;
+                for e in entries.flatten() {
+                    let name = e.file_name().to_string_lossy().into_owned();
+                    if ours.contains(&name) || files.iter().any(|(n, _)| *n == name) {
+                        continue;
+                    }
+                    let to = tmp.join(e.file_name());
+                    copy_tree(&e.path(), &to).map_err(|err| io_err("keep", &e.path(), err))?;
+                }
+            }
+        }
+        sync_dir(&tmp).map_err(|e| io_err("flush", &tmp, e))?;
+        if had_old {
+            if exchange(&tmp, out).map_err(|e| io_err("swap in", out, e))? {
+                // `tmp` now holds the previous deck
+                sync_dir(&parent).map_err(|e| io_err("flush", &parent, e))?;
+                let _ = fs::remove_dir_all(&tmp);
+                return Ok(());
+            }
             fs::rename(out, &old).map_err(|e| io_err("move aside", out, e))?;
         }
         if let Err(e) = fs::rename(&tmp, out) {
@@ -251,6 +471,7 @@ pub fn write_atomically(out: &Path, files: &[(String, Vec<u8>)]) -> Result<(), D
             }
             return Err(io_err("move into place", out, e));
         }
+        sync_dir(&parent).map_err(|e| io_err("flush", &parent, e))?;
         if had_old {
             let _ = fs::remove_dir_all(&old);
         }
@@ -288,7 +509,10 @@ mod tests {
             &out,
             &[
                 ("a.svg".into(), b"1".to_vec()),
-                (MANIFEST.into(), b"{}".to_vec()),
+                (
+                    MANIFEST.into(),
+                    br#"{"frames":[{"file":"a.svg"}]}"#.to_vec(),
+                ),
             ],
         )
         .unwrap();
@@ -317,5 +541,69 @@ mod tests {
         let err = write_atomically(&d, &[(MANIFEST.into(), b"{}".to_vec())]).unwrap_err();
         assert!(err.message.contains("not a deck"), "{}", err.message);
         assert_eq!(fs::read(d.join("precious.txt")).unwrap(), b"keep me");
+    }
+    /// The process id of a process that has ended.
+    fn dead_pid() -> u32 {
+        let mut c = std::process::Command::new("true").spawn().unwrap();
+        let pid = c.id();
+        c.wait().unwrap();
+        pid
+    }
+
+    fn manifest(files: &[&str]) -> Vec<u8> {
+        let frames: Vec<_> = files.iter().map(|f| json!({ "file": f })).collect();
+        serde_json::to_vec(&json!({ "frames": frames })).unwrap()
+    }
+
+    #[test]
+    fn keeps_files_someone_else_added() {
+        let d = tempdir("keep");
+        let out = d.join("deck");
+        let v1 = [
+            ("01-a.svg".to_string(), b"1".to_vec()),
+            (MANIFEST.to_string(), manifest(&["01-a.svg"])),
+        ];
+        write_atomically(&out, &v1).unwrap();
+        fs::write(out.join("README.txt"), b"mine").unwrap();
+        fs::create_dir(out.join("extra")).unwrap();
+        fs::write(out.join("extra/x.txt"), b"x").unwrap();
+        let v2 = [
+            ("01-b.svg".to_string(), b"2".to_vec()),
+            (MANIFEST.to_string(), manifest(&["01-b.svg"])),
+        ];
+        write_atomically(&out, &v2).unwrap();
+        assert!(!out.join("01-a.svg").exists(), "the old frame is gone");
+        assert_eq!(fs::read(out.join("01-b.svg")).unwrap(), b"2");
+        assert_eq!(fs::read(out.join("README.txt")).unwrap(), b"mine");
+        assert_eq!(fs::read(out.join("extra/x.txt")).unwrap(), b"x");
+    }
+
+    #[test]
+    fn puts_back_a_deck_left_aside_by_a_killed_build() {
+        let d = tempdir("recover");
+        let out = d.join("deck");
+        // a build killed between "move aside" and "move into place"
+        let pid = dead_pid();
+        let aside = d.join(format!(".deck.previous-{pid}"));
+        fs::create_dir(&aside).unwrap();
+        fs::write(aside.join(MANIFEST), manifest(&["01-a.svg"])).unwrap();
+        fs::write(aside.join("01-a.svg"), b"old").unwrap();
+        let half = d.join(format!(".deck.building-{pid}"));
+        fs::create_dir(&half).unwrap();
+        fs::write(half.join("01-a.svg"), b"half").unwrap();
+        recover(&d, "deck", &out);
+        assert_eq!(fs::read(out.join("01-a.svg")).unwrap(), b"old");
+        assert!(!aside.exists());
+        assert!(!half.exists(), "the half-written folder is removed");
+    }
+
+    #[test]
+    fn leaves_the_folders_of_running_builds_alone() {
+        let d = tempdir("running");
+        // pid 1 is always running
+        let other = d.join(".deck.building-1");
+        fs::create_dir(&other).unwrap();
+        write_atomically(&d.join("deck"), &[(MANIFEST.into(), manifest(&[]))]).unwrap();
+        assert!(other.exists());
     }
 }

@@ -118,6 +118,13 @@ struct DataArgs {
     /// Cancel any database query that runs longer than this many seconds.
     #[arg(long, value_name = "SECONDS", default_value_t = 60.0)]
     statement_timeout: f64,
+    /// Let the story read data, house styles and plugins from DIR too
+    /// (repeatable). Without it a story may read only files in its own
+    /// folder and below.
+    #[arg(long = "allow-path", value_name = "DIR")]
+    allow_paths: Vec<PathBuf>,
+    #[command(flatten)]
+    limits: LimitArgs,
 }
 
 /// `--connection NAME=ENVVAR`; the error never repeats the argument (it
@@ -138,6 +145,47 @@ fn parse_connection_arg(s: &str) -> Result<(String, String), Diagnostic> {
              variable that holds its connection string (the value given is not repeated here, \
              in case it holds a password)",
         )),
+    }
+}
+
+/// Limits on what one build reads and makes; a story or data file over a
+/// limit stops the build with a located error.
+#[derive(clap::Args, Clone)]
+struct LimitArgs {
+    /// Largest story or data file, in bytes.
+    #[arg(long, value_name = "BYTES", default_value_t = crescendo_plan::limits::Limits::default().input_bytes)]
+    max_input_bytes: u64,
+    /// Most rows of a data file held in memory.
+    #[arg(long, value_name = "N", default_value_t = crescendo_plan::limits::Limits::default().rows)]
+    max_rows: usize,
+    /// Most frames in a deck.
+    #[arg(long, value_name = "N", default_value_t = crescendo_plan::limits::Limits::default().frames)]
+    max_frames: usize,
+    /// Longest text (a story string or a data cell), in characters.
+    #[arg(long, value_name = "N", default_value_t = crescendo_plan::limits::Limits::default().text)]
+    max_text: usize,
+}
+
+impl Default for LimitArgs {
+    fn default() -> Self {
+        let l = crescendo_plan::limits::Limits::default();
+        Self {
+            max_input_bytes: l.input_bytes,
+            max_rows: l.rows,
+            max_frames: l.frames,
+            max_text: l.text,
+        }
+    }
+}
+
+impl LimitArgs {
+    fn limits(&self) -> crescendo_plan::limits::Limits {
+        crescendo_plan::limits::Limits {
+            input_bytes: self.max_input_bytes,
+            rows: self.max_rows,
+            frames: self.max_frames,
+            text: self.max_text,
+        }
     }
 }
 
@@ -230,6 +278,9 @@ enum Command {
     Plugins {
         /// The story file (.cresc).
         story: PathBuf,
+        /// Let the story load plugins from DIR too (repeatable).
+        #[arg(long = "allow-path", value_name = "DIR")]
+        allow_paths: Vec<PathBuf>,
     },
     /// Explain a lint rule (what it flags, why, an example, what to do
     /// instead); without a rule, list them all.
@@ -344,12 +395,14 @@ fn main() -> ExitCode {
             lint,
         } => check(&story, format, explain_sql, &data, &lint, color),
         Command::Explain { rule } => explain(rule.as_deref(), color),
-        Command::Plugins { story } => {
+        Command::Plugins { story, allow_paths } => {
             let none = DataArgs {
                 data: Vec::new(),
                 no_plugins: false,
                 connections: Vec::new(),
                 statement_timeout: 60.0,
+                allow_paths,
+                limits: LimitArgs::default(),
             };
             match load_plan(&story, &none, color) {
                 Ok(p) => {
@@ -769,6 +822,8 @@ fn default_out(story: &Path) -> PathBuf {
 
 /// Read, parse and plan a story without printing anything.
 fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic>> {
+    crescendo_plan::limits::file_size(story, &data.limits.limits())
+        .map_err(|e| vec![Diagnostic::error("limit", e)])?;
     let text = std::fs::read_to_string(story).map_err(|e| {
         vec![Diagnostic::error(
             "story-file",
@@ -796,6 +851,8 @@ fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic
                 },
             ),
         },
+        allow_paths: data.allow_paths.clone(),
+        limits: data.limits.limits(),
     };
     crescendo_plan::plan_story(&src, dir, &options)
 }

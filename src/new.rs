@@ -140,7 +140,23 @@ pub fn run(data: &Path, out: Option<&Path>, force: bool, color: bool) -> ExitCod
         return ExitCode::from(4);
     }
     println!("wrote {}", story_path.display());
-    println!("next: crescendo build {}", story_path.display());
+    if data_rel.starts_with("../") || Path::new(&data_rel).is_absolute() {
+        // a story reads only files in its own folder tree unless allowed
+        let folder = data
+            .parent()
+            .filter(|d| !d.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        println!(
+            "note: the data is outside the story's folder; move it next to the story, or allow its folder:"
+        );
+        println!(
+            "next: crescendo build {} --allow-path {}",
+            story_path.display(),
+            folder.display()
+        );
+    } else {
+        println!("next: crescendo build {}", story_path.display());
+    }
     ExitCode::SUCCESS
 }
 

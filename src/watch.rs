@@ -217,9 +217,9 @@ fn serve_loop(listener: TcpListener, deck: &Path, version: &AtomicU64) {
 /// counter and reload when it moves (the address keeps the frame number).
 fn reload_script(version: u64) -> String {
     format!(
-        "<script>/* added by crescendo watch --serve */\n(function(){{var v=\"{version}\";\
+        "/* added by crescendo watch --serve */\n(function(){{var v=\"{version}\";\
 setInterval(function(){{fetch(\"/__version\",{{cache:\"no-store\"}}).then(function(r){{return r.text()}})\
-.then(function(t){{if(t!==v){{location.reload()}}}}).catch(function(){{}})}},700)}})();</script>\n"
+.then(function(t){{if(t!==v){{location.reload()}}}}).catch(function(){{}})}},700)}})();"
     )
 }
 
@@ -339,12 +339,10 @@ fn handle(mut stream: TcpStream, deck: &Path, version: &AtomicU64) -> std::io::R
     };
     if file.file_name().is_some_and(|n| n == "index.html") {
         let script = reload_script(version.load(Ordering::SeqCst));
-        let text = String::from_utf8_lossy(&body).into_owned();
-        let text = match text.rfind("</body>") {
-            Some(i) => format!("{}{script}{}", &text[..i], &text[i..]),
-            None => text + &script,
-        };
-        body = text.into_bytes();
+        let text = String::from_utf8_lossy(&body);
+        // the deck's content security policy is extended by this script's
+        // hash (and a request to its own server)
+        body = crescendo_render::with_extra_script(&text, &script).into_bytes();
     }
     respond(&mut stream, "200 OK", content_type(&file), &body, head)
 }

@@ -394,3 +394,91 @@ fn the_deck_works_in_a_real_browser() {
     drop(s);
     drop(browser);
 }
+
+/// Skip (or fail) when chromium is missing, as the test above does.
+fn chromium_missing() -> bool {
+    if Path::new(CHROMIUM).exists() {
+        return false;
+    }
+    if std::env::var("CRESCENDO_SKIP_BROWSER").as_deref() == Ok("1") {
+        eprintln!("CRESCENDO_SKIP_BROWSER=1: browser test skipped");
+        return true;
+    }
+    panic!("{CHROMIUM} is missing: install Debian's chromium or set CRESCENDO_SKIP_BROWSER=1");
+}
+
+#[test]
+fn script_in_story_or_data_never_runs_in_the_deck() {
+    if chromium_missing() {
+        return;
+    }
+    // categories, titles, texts and notes full of script payloads that
+    // would set window.__pwned or document.title if any of them ran
+    let case = root().join("tests/hostile/markup-in-text");
+    let dir = scratch("browser-hostile");
+    let deck = dir.join("deck");
+    let o = crescendo(
+        &case,
+        &["build", "story.cresc", "--out", deck.to_str().unwrap()],
+    );
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let index: PathBuf = deck.join("index.html").canonicalize().unwrap();
+
+    let profile = dir.join("profile");
+    std::fs::create_dir_all(&profile).unwrap();
+    let port = free_port();
+    let mut browser = launch(&profile, port);
+    let url = page_socket(port, &mut browser);
+    let mut s = Session::connect(&url);
+    s.call("Runtime.enable", json!({}));
+    s.call("Page.enable", json!({}));
+    s.call(
+        "Page.navigate",
+        json!({"url": format!("file://{}", index.display())}),
+    );
+    s.wait_for("Page.loadEventFired");
+    // the deck's own script ran (it set the counter) ...
+    assert_eq!(
+        s.eval("document.getElementById('count').textContent"),
+        "1 / 1"
+    );
+    // ... and nothing from the data or the story did
+    assert_eq!(s.eval("typeof window.__pwned"), "undefined");
+    assert_eq!(
+        s.eval("document.title"),
+        "<script>document.title='pwned'</script> loans"
+    );
+    assert_eq!(
+        s.eval("document.querySelectorAll('script').length"),
+        json!(1)
+    );
+    assert_eq!(
+        s.eval("document.querySelectorAll('img, iframe, foreignObject').length"),
+        json!(0)
+    );
+    // the payloads are on the page as text
+    let text = s.eval("document.body.textContent");
+    assert!(
+        text.as_str()
+            .unwrap()
+            .contains("<script>window.__pwned='csv'</script>"),
+        "{text}"
+    );
+    // the policy is in force: even markup injected after escaping (as a
+    // bug would) cannot run an inline handler or a new inline script
+    let policy =
+        s.eval("document.querySelector('meta[http-equiv=\"Content-Security-Policy\"]').content");
+    let policy = policy.as_str().unwrap();
+    assert!(
+        policy.starts_with("default-src 'none'; script-src 'sha256-"),
+        "{policy}"
+    );
+    s.eval(
+        "document.body.insertAdjacentHTML('beforeend', '<img src=\"data:,x\" onerror=\"window.__late=1\" onload=\"window.__late=1\">');\
+         var el=document.createElement('script');el.textContent='window.__late=2';document.body.appendChild(el);",
+    );
+    std::thread::sleep(Duration::from_millis(500));
+    assert_eq!(s.eval("typeof window.__late"), "undefined");
+    drop(s);
+    drop(browser);
+}

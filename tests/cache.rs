@@ -144,7 +144,7 @@ fn cached_and_uncached_builds_are_byte_identical() {
             let d = out.join(deck);
             let mut args = vec!["build", p, "--draft", "--out", d.to_str().unwrap()];
             args.extend_from_slice(extra);
-            let run = crescendo(&root(), &args);
+            let run = common::crescendo_with_plugins(&root(), &args);
             assert!(
                 run.status.success(),
                 "{name}: {}",

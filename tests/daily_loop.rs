@@ -8,7 +8,7 @@ mod common;
 use std::fs;
 use std::path::Path;
 
-use common::{crescendo, read_dir_files, root, scratch, stories};
+use common::{crescendo, crescendo_with_plugins, read_dir_files, root, scratch, stories};
 
 fn text(out: &std::process::Output) -> (String, String) {
     (
@@ -187,9 +187,24 @@ fn new_refuses_to_replace_a_story_unless_forced() {
     assert!(out.status.success(), "{:?}", text(&out));
     let story = fs::read_to_string(dir.join("stories/spend.cresc")).unwrap();
     assert!(story.contains("from \"../long_names.csv\""), "{story}");
+    // the data sits outside the story's folder: `new` says how to build it
+    assert!(
+        text(&out)
+            .0
+            .contains("next: crescendo build stories/spend.cresc --allow-path ."),
+        "{:?}",
+        text(&out)
+    );
     let built = crescendo(
         &dir,
-        &["build", "stories/spend.cresc", "--deny", "warnings"],
+        &[
+            "build",
+            "stories/spend.cresc",
+            "--deny",
+            "warnings",
+            "--allow-path",
+            ".",
+        ],
     );
     assert!(built.status.success(), "{:?}", text(&built));
 }
@@ -224,7 +239,7 @@ fn formatting_a_demo_story_gives_a_byte_identical_deck() {
         fs::write(&copy, &formatted).expect("write copy");
         let out = scratch(&format!("fmt-deck-{name}"));
         let (a, b) = (out.join("a"), out.join("b"));
-        let one = crescendo(
+        let one = crescendo_with_plugins(
             &root(),
             &[
                 "build",
@@ -234,7 +249,7 @@ fn formatting_a_demo_story_gives_a_byte_identical_deck() {
                 a.to_str().unwrap(),
             ],
         );
-        let two = crescendo(
+        let two = crescendo_with_plugins(
             &root(),
             &[
                 "build",

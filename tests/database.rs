@@ -361,6 +361,8 @@ fn equivalence(cluster: &Cluster) {
         }
         let story_file = copy.join(path.file_name().expect("file"));
         std::fs::write(&story_file, &db_text).expect("write story copy");
+        // the routes story loads plugins built into target/debug
+        let plugins = common::ensure_plugins().to_str().expect("utf-8 path");
         let csv_deck = work.join(format!("{name}-csv"));
         let db_deck = work.join(format!("{name}-db"));
         let a = run(
@@ -369,6 +371,8 @@ fn equivalence(cluster: &Cluster) {
                 "build",
                 path.to_str().unwrap(),
                 "--no-cache",
+                "--allow-path",
+                plugins,
                 "--out",
                 csv_deck.to_str().unwrap(),
             ],
@@ -382,6 +386,8 @@ fn equivalence(cluster: &Cluster) {
                 "build",
                 story_file.to_str().unwrap(),
                 "--no-cache",
+                "--allow-path",
+                plugins,
                 "--out",
                 db_deck.to_str().unwrap(),
             ],
@@ -404,7 +410,13 @@ fn equivalence(cluster: &Cluster) {
         }
         let explain = run(
             &copy,
-            &["check", "--explain-sql", story_file.to_str().unwrap()],
+            &[
+                "check",
+                "--explain-sql",
+                story_file.to_str().unwrap(),
+                "--allow-path",
+                plugins,
+            ],
             &env,
         );
         assert!(explain.status.success(), "{}", text_of(&explain));

@@ -19,11 +19,13 @@ fn lint_story(path: &Path, theme: Option<&str>) -> Vec<Diagnostic> {
         .strip_prefix(root())
         .unwrap_or_else(|_| Path::new(path.file_name().unwrap()));
     let src = Source::file(rel.display().to_string(), text);
-    let mut planned =
-        match crescendo_plan::plan_story(&src, path.parent().unwrap(), &Default::default()) {
-            Ok(p) => p,
-            Err(d) => panic!("{}", render(&d, false)),
-        };
+    // the rule stories share the data in tests/lint/data, beside their folders
+    let mut options = common::plan_options();
+    options.allow_paths.push(root().join("tests/lint/data"));
+    let mut planned = match crescendo_plan::plan_story(&src, path.parent().unwrap(), &options) {
+        Ok(p) => p,
+        Err(d) => panic!("{}", render(&d, false)),
+    };
     if let Some(t) = theme {
         planned.plan.theme = t.to_string();
     }

@@ -8,7 +8,7 @@ mod common;
 use std::fs;
 use std::path::{Path, PathBuf};
 
-use common::{crescendo, ensure_plugins, read_dir_files, root, scratch};
+use common::{crescendo_with_plugins as crescendo, ensure_plugins, read_dir_files, root, scratch};
 
 fn lib(name: &str) -> PathBuf {
     ensure_plugins().join(format!(
@@ -171,7 +171,8 @@ fn a_library_without_the_entry_symbol_is_refused() {
 
 #[test]
 fn a_file_that_is_not_a_shared_library_is_refused() {
-    let fake = scratch("fake-lib").join("libfake.so");
+    // in the plugins' folder, which the tests allow (`--allow-path`)
+    let fake = ensure_plugins().join(format!("libfake-{}.so", std::process::id()));
     fs::write(&fake, "this is not a library\n").unwrap();
     fails_with(
         "not-a-lib",
@@ -180,13 +181,29 @@ fn a_file_that_is_not_a_shared_library_is_refused() {
         "not a shared library",
         "s.cresc:4:12",
     );
+    let _ = fs::remove_file(&fake);
+}
+
+#[test]
+fn a_plugin_outside_the_story_folder_needs_allow_path() {
+    let dir = story_with("outside", &lib("crescendo_slope"), "slope", None);
+    let run = common::crescendo(&dir, &["build", "s.cresc"]);
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert_eq!(run.status.code(), Some(1), "{err}");
+    assert!(
+        err.contains("error[path-outside]: the plugin may not be read"),
+        "{err}"
+    );
+    assert!(err.contains("s.cresc:4:12"), "{err}");
+    assert!(err.contains("--allow-path DIR"), "{err}");
+    assert!(!dir.join("deck").exists());
 }
 
 #[test]
 fn a_missing_plugin_file_is_reported() {
     fails_with(
         "missing-lib",
-        Path::new("/nonexistent/libnothing.so"),
+        &ensure_plugins().join("libnothing-such.so"),
         "x",
         "cannot read the plugin file",
         "s.cresc:4:12",

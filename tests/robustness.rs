@@ -12,7 +12,7 @@ use std::panic::{self, AssertUnwindSafe};
 use std::path::{Path, PathBuf};
 
 use crescendo_diag::{Diagnostic, Located, Source};
-use crescendo_plan::{plan_story, Chart, DeckPlan, Options, PlanResult, Planned};
+use crescendo_plan::{plan_story, Chart, DeckPlan, PlanResult, Planned};
 
 /// Story mutations in all, shared among the stories (so the test's time
 /// stays bounded as stories are added), but at least [`MIN_STORY_CASES`] each.
@@ -695,7 +695,7 @@ fn check_plan(p: &DeckPlan) -> Vec<String> {
 /// Plan `text` against `dir`; returns the problems found (empty when fine).
 fn plan_problems(name: &str, text: &str, dir: &Path) -> Vec<String> {
     let src = Source::file(name, text);
-    problems_of(|| plan_story(&src, dir, &Options::default()))
+    problems_of(|| plan_story(&src, dir, &common::plan_options()))
 }
 
 /// Run a planning step, catching panics; returns the problems found.
@@ -787,7 +787,7 @@ fn unmutated_stories_plan_cleanly() {
     // start from valid input and test something.
     for (name, text, dir) in corpus("plain") {
         let src = Source::file(format!("{name}.cresc"), text);
-        let result = plan_story(&src, &dir, &Options::default());
+        let result = plan_story(&src, &dir, &common::plan_options());
         match result {
             Ok(p) => assert!(p.failed_claims.is_empty(), "{name}: {:?}", p.failed_claims),
             Err(d) => panic!("{name} does not plan: {d:?}"),

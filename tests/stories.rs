@@ -8,7 +8,7 @@ mod common;
 use std::path::Path;
 use std::sync::Arc;
 
-use common::{crescendo, read_dir_files, root, scratch, stories};
+use common::{crescendo_with_plugins as crescendo, read_dir_files, root, scratch, stories};
 use crescendo_diag::Source;
 use crescendo_plan::DeckPlan;
 use serde_json::Value;
@@ -50,7 +50,7 @@ fn planned_of(path: &Path) -> crescendo_plan::Planned {
     let text = std::fs::read_to_string(path).expect("read story");
     let rel = path.strip_prefix(root()).unwrap_or(path);
     let src: Arc<Source> = Source::file(rel.display().to_string(), text);
-    match crescendo_plan::plan_story(&src, path.parent().unwrap(), &Default::default()) {
+    match crescendo_plan::plan_story(&src, path.parent().unwrap(), &common::plan_options()) {
         Ok(p) => {
             assert!(
                 p.failed_claims.is_empty(),

@@ -28,6 +28,25 @@ pub fn crescendo(dir: &Path, args: &[&str]) -> Output {
         .expect("run crescendo")
 }
 
+/// Run the `crescendo` binary in `dir`, allowing the story to load the
+/// plugins built into `target/debug` (`--allow-path`), as the routes demo
+/// story does.
+pub fn crescendo_with_plugins(dir: &Path, args: &[&str]) -> Output {
+    let plugins = ensure_plugins().to_str().expect("utf-8 path").to_string();
+    let mut all: Vec<&str> = args.to_vec();
+    all.extend(["--allow-path", &plugins]);
+    crescendo(dir, &all)
+}
+
+/// Planner options for the demo stories: the routes story loads the
+/// plugins built into `target/debug`, outside its folder (`--allow-path`).
+pub fn plan_options() -> crescendo_plan::Options {
+    crescendo_plan::Options {
+        allow_paths: vec![ensure_plugins().to_path_buf()],
+        ..Default::default()
+    }
+}
+
 /// Every story in `stories/`, as (name, path), sorted. The plugins some of
 /// them load are built first.
 pub fn stories() -> Vec<(String, PathBuf)> {
@@ -96,4 +115,64 @@ pub fn ensure_plugins() -> &'static Path {
         assert!(status.success(), "building the plugin crates failed");
         target.join("debug")
     })
+}
+
+/// Every file under `dir` (recursively), as (path, bytes).
+fn all_files(dir: &Path) -> Vec<(PathBuf, Vec<u8>)> {
+    let mut out = Vec::new();
+    let mut stack = vec![dir.to_path_buf()];
+    while let Some(d) = stack.pop() {
+        let Ok(entries) = fs::read_dir(&d) else {
+            continue;
+        };
+        for e in entries.flatten() {
+            let p = e.path();
+            match e.file_type() {
+                Ok(t) if t.is_dir() => stack.push(p),
+                Ok(t) if t.is_file() => {
+                    if let Ok(b) = fs::read(&p) {
+                        out.push((p, b));
+                    }
+                }
+                _ => {}
+            }
+        }
+    }
+    out.sort();
+    out
+}
+
+/// Run `crescendo ARGS` in `dir` with the extra environment `env`, expect
+/// it to fail, and assert that `secret` appears nowhere in what it printed
+/// (stdout, stderr) or in any file it wrote or changed under `dir` (deck,
+/// manifest, caches, logs). Returns the run's output for further checks.
+pub fn assert_secret_never_leaks(
+    dir: &Path,
+    args: &[&str],
+    env: &[(&str, &str)],
+    secret: &str,
+) -> Output {
+    assert!(!secret.is_empty());
+    let before = all_files(dir);
+    let out = Command::new(env!("CARGO_BIN_EXE_crescendo"))
+        .args(args)
+        .current_dir(dir)
+        .env("NO_COLOR", "1")
+        .envs(env.iter().copied())
+        .output()
+        .expect("run crescendo");
+    assert!(!out.status.success(), "the run was expected to fail");
+    let needle = secret.as_bytes();
+    let contains = |hay: &[u8]| hay.windows(needle.len()).any(|w| w == needle);
+    assert!(!contains(&out.stdout), "the secret is in stdout");
+    assert!(!contains(&out.stderr), "the secret is in stderr");
+    for (path, bytes) in all_files(dir) {
+        let unchanged = before.iter().any(|(p, b)| *p == path && *b == bytes);
+        assert!(
+            unchanged || !contains(&bytes),
+            "the secret is in {}",
+            path.display()
+        );
+    }
+    out
 }

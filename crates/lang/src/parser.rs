@@ -42,6 +42,18 @@ pub const TOP_KEYWORDS: &[&str] = &[
 /// syntax error (at most one per top-level item).
 pub fn parse(source: &Arc<Source>) -> (StoryAst, Vec<Diagnostic>) {
     let text = source.text.as_str();
+    if let Some(at) = too_deep(text) {
+        // the grammar, the syntax tree and everything that walks it recurse
+        // once per level: refuse before any of them can run out of stack
+        let end = text[at..].chars().next().map_or(at, |c| at + c.len_utf8());
+        let d = Diagnostic::error(
+            "too-deep",
+            format!("expressions nest more than {MAX_NESTING} levels deep here"),
+        )
+        .at(source, at..end, "too deep")
+        .help("split the expression into named views or values");
+        return (StoryAst { items: Vec::new() }, vec![d]);
+    }
     let mut items = Vec::new();
     let mut diags = Vec::new();
     let mut pos = 0;
@@ -86,6 +98,71 @@ pub fn parse(source: &Arc<Source>) -> (StoryAst, Vec<Diagnostic>) {
         }
     }
     (StoryAst { items }, diags)
+}
+
+/// Deepest nesting of parentheses, brackets, braces and unary operators
+/// (`-`, `not`) a story may use; no real story comes near it.
+pub const MAX_NESTING: usize = 48;
+
+/// The byte offset where the nesting of `text` first goes deeper than
+/// [`MAX_NESTING`], counting open brackets plus the current run of unary
+/// operators (`- - x`, `not not x`); strings and comments are skipped.
+fn too_deep(text: &str) -> Option<usize> {
+    let bytes = text.as_bytes();
+    let word = |c: Option<&u8>| c.is_some_and(|c| c.is_ascii_alphanumeric() || *c == b'_');
+    let mut depth = 0usize;
+    let mut run = 0usize;
+    let mut i = 0;
+    while let Some(&b) = bytes.get(i) {
+        match b {
+            b'"' => {
+                // to the closing quote (or the end of the line)
+                i += 1;
+                while let Some(&c) = bytes.get(i) {
+                    match c {
+                        b'\\' => i += 1,
+                        b'"' | b'\n' => break,
+                        _ => {}
+                    }
+                    i += 1;
+                }
+                run = 0;
+            }
+            b'#' => {
+                while bytes.get(i).is_some_and(|&c| c != b'\n') {
+                    i += 1;
+                }
+                continue;
+            }
+            b'(' | b'[' | b'{' => {
+                depth += 1;
+                run = 0;
+            }
+            b')' | b']' | b'}' => {
+                depth = depth.saturating_sub(1);
+                run = 0;
+            }
+            b'-' => run += 1,
+            b' ' | b'\t' | b'\r' | b'\n' => {}
+            b'n' if bytes.get(i..i + 3) == Some(b"not")
+                && !word(bytes.get(i + 3))
+                && !(i > 0 && word(bytes.get(i - 1))) =>
+            {
+                run += 1;
+                if depth + run > MAX_NESTING {
+                    return Some(i);
+                }
+                i += 3;
+                continue;
+            }
+            _ => run = 0,
+        }
+        if depth + run > MAX_NESTING {
+            return Some(i);
+        }
+        i += 1;
+    }
+    None
 }
 
 /// Where to resume after a syntax error at `error` in the item that starts
@@ -1954,6 +2031,51 @@ claim gap about 10 within 0.5 "about ten"
             "{}",
             errs[0].message
         );
+    }
+
+    #[test]
+    fn deep_nesting_is_a_located_error_not_a_stack_overflow() {
+        // 1,000 parentheses overflowed the stack of an 8 MB main thread
+        // (release build) before the nesting cap; 100,000 failed otherwise
+        let n = 100_000;
+        for (deep, column) in [
+            (
+                format!(
+                    "view v = t\n  | keep {}a{}\n",
+                    "(".repeat(1000),
+                    ")".repeat(1000)
+                ),
+                10 + MAX_NESTING,
+            ),
+            (
+                format!("view v = t\n  | keep {}a{}\n", "(".repeat(n), ")".repeat(n)),
+                10 + MAX_NESTING,
+            ),
+            (
+                format!("view v = t\n  | add b = {}1\n", "- ".repeat(n)),
+                13 + 2 * MAX_NESTING,
+            ),
+            (
+                format!("view v = t\n  | keep {}a = 1\n", "not ".repeat(n)),
+                10 + 4 * MAX_NESTING,
+            ),
+        ] {
+            let src = Source::file("deep.cresc", deep);
+            let (ast, diags) = parse(&src);
+            assert!(ast.items.is_empty());
+            assert_eq!(diags.len(), 1);
+            assert_eq!(diags[0].code, "too-deep");
+            let (_, line, col) = diags[0].location().unwrap();
+            assert_eq!((line, col), (2, column), "{}", diags[0].message);
+        }
+        // strings and comments do not count, and ordinary nesting is fine
+        let ok = format!(
+            "# {}\nstory \"{}\"\nview v = t\n  | keep ((((a > -(-1)))))\n",
+            "(".repeat(500),
+            "(".repeat(500)
+        );
+        let (_, diags) = parse(&Source::file("ok.cresc", ok));
+        assert!(diags.iter().all(|d| d.code != "too-deep"), "{diags:?}");
     }
 }
 

@@ -30,6 +30,11 @@ pub struct Options {
     /// How database sources are reached (`--connection`, the statement
     /// timeout).
     pub database: crate::database::DbOptions,
+    /// `--allow-path DIR`: folders outside the story's own folder tree that
+    /// the story may read data, house styles and plugins from.
+    pub allow_paths: Vec<PathBuf>,
+    /// Input, row, frame and text limits (see `limits.rs`).
+    pub limits: crate::limits::Limits,
 }
 
 /// A successful plan: the deck, its warnings, and one error per claim that
@@ -56,6 +61,7 @@ pub type PlanResult = Result<Planned, Vec<Diagnostic>>;
 /// paths are relative to. Returns the plan and its warnings, or all errors.
 pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> PlanResult {
     let (story, mut diags) = crescendo_lang::parse(src);
+    diags.extend(crate::limits::story(src, &story, &options.limits));
     if has_errors(&diags) {
         return Err(diags);
     }
@@ -466,6 +472,45 @@ impl<'a> Planner<'a> {
         &mut self.diags[last]
     }
 
+    /// May the story read `file` (a path it wrote)? Reports a located
+    /// error when the path leaves the story's folder tree (see `paths.rs`).
+    fn confined(&mut self, file: &ast::Str, what: &str) -> bool {
+        match crate::paths::confine(self.dir, &file.value, &self.options.allow_paths) {
+            Ok(_) => true,
+            Err(why) => {
+                let d = self.error(
+                    "path-outside",
+                    format!("the {what} may not be read: {why}"),
+                    file.span.clone(),
+                    "outside the story's folder",
+                );
+                d.notes.push(
+                    "a story reads only files in its own folder and below, so a story from someone else cannot read your files into a deck".into(),
+                );
+                d.help = Some(
+                    "move the file next to the story, or allow its folder with --allow-path DIR"
+                        .into(),
+                );
+                false
+            }
+        }
+    }
+
+    /// Is the data file of `d` within the size limit? Reports it if not.
+    fn within_limits(&mut self, d: &ast::DataDecl, replacement: Option<&Path>) -> bool {
+        let path = match replacement {
+            Some(p) => p.to_path_buf(),
+            None => self.dir.join(&d.file.value),
+        };
+        match crate::limits::file_size(&path, &self.options.limits) {
+            Ok(()) => true,
+            Err(why) => {
+                self.error("limit", why, d.file.span.clone(), "this file");
+                false
+            }
+        }
+    }
+
     fn set_once<T: Clone>(&mut self, slot: &mut Option<T>, value: T, span: &ast::Span, what: &str) {
         if slot.is_some() {
             self.error(
@@ -524,10 +569,23 @@ impl<'a> Planner<'a> {
                 Item::Data(d) => {
                     if self.check_unique_table(&d.name) {
                         let replacement = self.options.data.get(&d.name.name).map(PathBuf::as_path);
-                        match self
-                            .tables
-                            .load(self.src, self.dir, d, replacement, self.diags)
-                        {
+                        // `--data` names a file on purpose; the story may not
+                        let allowed = replacement.is_some() || self.confined(&d.file, "data file");
+                        let allowed = allowed && self.within_limits(d, replacement);
+                        let loaded = if allowed {
+                            self.tables
+                                .load(self.src, self.dir, d, replacement, self.diags)
+                        } else {
+                            None
+                        };
+                        let loaded = loaded.filter(|t| {
+                            let checked = crate::limits::table(t, &self.options.limits);
+                            if let Err(why) = &checked {
+                                self.error("limit", why.clone(), d.file.span.clone(), "this file");
+                            }
+                            checked.is_ok()
+                        });
+                        match loaded {
                             Some(table) => {
                                 self.tables.by_name.insert(
                                     d.name.name.clone(),
@@ -577,6 +635,7 @@ impl<'a> Planner<'a> {
                     self.value(v, &later_values);
                 }
                 Item::Claim(c) => claims.push(c),
+                Item::Plugin(d) if !self.confined(&d.path, "plugin") => {}
                 Item::Plugin(d) => {
                     let mut loaded = std::mem::take(&mut self.plugins);
                     self.use_plugin(d, self.dir, self.options.no_plugins, &mut loaded);
@@ -799,6 +858,7 @@ impl<'a> Planner<'a> {
             style: h
                 .style
                 .as_ref()
+                .filter(|s| self.confined(s, "house style"))
                 .and_then(|s| crate::style::load(self.src, self.dir, s, self.diags)),
             values: self
                 .values

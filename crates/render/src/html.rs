@@ -127,7 +127,14 @@ pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> Strin
     out.push_str("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n");
     let _ = writeln!(out, "<title>{}</title>", escape(&deck.title));
     let theme = theme::effective(deck).unwrap_or_else(|_| theme::CLEAR.clone());
-    let _ = write!(out, "<style>\n{}</style>\n</head>\n<body>\n", style(&theme));
+    let css = format!("\n{}", style(&theme));
+    let script = format!("\n{SCRIPT}");
+    let _ = writeln!(
+        out,
+        "<meta http-equiv=\"Content-Security-Policy\" content=\"{}\">",
+        policy(&[&script], &css)
+    );
+    let _ = write!(out, "<style>{css}</style>\n</head>\n<body>\n");
     let _ = writeln!(
         out,
         "<main aria-roledescription=\"slide deck\" aria-label=\"{}\">",
@@ -169,8 +176,55 @@ pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> Strin
         total.min(1),
         total
     );
-    let _ = write!(out, "<script>\n{SCRIPT}</script>\n</body>\n</html>\n");
+    let _ = write!(out, "<script>{script}</script>\n</body>\n</html>\n");
     out
+}
+
+/// A CSP source expression for an inline element's text:
+/// `'sha256-<base64 of its SHA-256>'`.
+fn hash_source(text: &str) -> String {
+    use base64::Engine as _;
+    use sha2::Digest as _;
+    let digest = sha2::Sha256::digest(text.as_bytes());
+    format!(
+        "'sha256-{}'",
+        base64::engine::general_purpose::STANDARD.encode(digest)
+    )
+}
+
+/// The deck's Content-Security-Policy: nothing may be loaded from anywhere
+/// (`default-src 'none'`), only the deck's own inline script and stylesheet
+/// run (by hash), images only from `data:` URLs; no forms, no `<base>`.
+/// So text from a story or its data that slipped past escaping still could
+/// neither run nor call out.
+fn policy(scripts: &[&str], style: &str) -> String {
+    let scripts: Vec<String> = scripts.iter().map(|s| hash_source(s)).collect();
+    format!(
+        "default-src 'none'; script-src {}; style-src {}; img-src data:; font-src data:; base-uri 'none'; form-action 'none'",
+        scripts.join(" "),
+        hash_source(style)
+    )
+}
+
+/// `html` (a deck from [`render_deck_html`]) with one more inline script
+/// before `</body>`, allowed by adding its hash to the policy, and with
+/// `connect-src 'self'` so it may ask its own server (for `watch --serve`).
+pub fn with_extra_script(html: &str, script: &str) -> String {
+    let allowed = html.replacen(
+        "script-src ",
+        &format!("script-src {} ", hash_source(script)),
+        1,
+    );
+    let allowed = allowed.replacen(
+        "; base-uri 'none'",
+        "; connect-src 'self'; base-uri 'none'",
+        1,
+    );
+    let tag = format!("<script>{script}</script>\n");
+    match allowed.rfind("</body>") {
+        Some(i) => format!("{}{tag}{}", &allowed[..i], &allowed[i..]),
+        None => allowed + &tag,
+    }
 }
 
 /// Drops an `<?xml …?>` declaration, which is not allowed inside HTML.

@@ -34,7 +34,7 @@ pub mod theme;
 use crescendo_plan::{Chart, DeckPlan, FramePlan};
 use std::fmt;
 
-pub use html::render_deck_html;
+pub use html::{render_deck_html, with_extra_script};
 pub use lttb::lttb;
 pub use theme::{Rgb, Theme};
 

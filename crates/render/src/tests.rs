@@ -773,6 +773,56 @@ fn deck_html_is_self_contained_and_navigable() {
     }
 }
 
+/// The text between `<tag>` and `</tag>` (the first such element).
+fn inline(html: &str, tag: &str) -> String {
+    let open = format!("<{tag}>");
+    let start = html.find(&open).unwrap() + open.len();
+    let end = html[start..].find(&format!("</{tag}>")).unwrap();
+    html[start..start + end].to_string()
+}
+
+/// `'sha256-…'` of a text, computed here independently with the `sha2`
+/// and `base64` crates (CSP Level 2 hash sources, W3C).
+fn sha256_source(text: &str) -> String {
+    use base64::Engine as _;
+    use sha2::Digest as _;
+    let d = sha2::Sha256::digest(text.as_bytes());
+    format!(
+        "'sha256-{}'",
+        base64::engine::general_purpose::STANDARD.encode(d)
+    )
+}
+
+#[test]
+fn deck_html_allows_only_its_own_script_and_style() {
+    let f1 = frame(1, 1, "First", None, line_chart());
+    let d = deck(vec![f1.clone()]);
+    let s1 = render_frame(&d, &f1).unwrap();
+    let html = render_deck_html(&d, &[(&f1, &s1)]);
+    let meta = "<meta http-equiv=\"Content-Security-Policy\" content=\"";
+    let start = html.find(meta).unwrap() + meta.len();
+    let policy = &html[start..start + html[start..].find('"').unwrap()];
+    assert_eq!(
+        policy,
+        format!(
+            "default-src 'none'; script-src {}; style-src {}; img-src data:; font-src data:; base-uri 'none'; form-action 'none'",
+            sha256_source(&inline(&html, "script")),
+            sha256_source(&inline(&html, "style"))
+        )
+    );
+    // the policy comes before anything it governs
+    assert!(start < html.find("<style>").unwrap());
+    // a served deck adds its reload script and may call its own server
+    let served = crate::with_extra_script(&html, "reload()");
+    assert!(served.contains(&format!(
+        "script-src {} {}",
+        sha256_source("reload()"),
+        sha256_source(&inline(&html, "script"))
+    )));
+    assert!(served.contains("connect-src 'self'"));
+    assert!(served.ends_with("<script>reload()</script>\n</body>\n</html>\n"));
+}
+
 #[test]
 fn empty_deck_html() {
     let d = deck(vec![]);

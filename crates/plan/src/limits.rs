@@ -1,0 +1,219 @@
+//! Limits on what one build may read and make, so that a hostile or broken
+//! input stops with a clear, located error instead of exhausting memory or
+//! time. Each is a command-line option (`--max-input-bytes`, `--max-rows`,
+//! `--max-frames`, `--max-text`); the defaults are far above any real deck.
+
+use std::path::Path;
+use std::sync::Arc;
+
+use crescendo_data::{Table, Value};
+use crescendo_diag::{Diagnostic, Source};
+use crescendo_lang::ast::{Item, StoryAst};
+
+/// The limits of one build.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Limits {
+    /// Largest story or data file, in bytes.
+    pub input_bytes: u64,
+    /// Most rows of a data file loaded into memory (streamed files are
+    /// bounded by `input_bytes`).
+    pub rows: usize,
+    /// Most frames in a deck.
+    pub frames: usize,
+    /// Longest text, in characters: a string in the story, or a text cell.
+    pub text: usize,
+}
+
+impl Default for Limits {
+    fn default() -> Self {
+        Self {
+            input_bytes: 4 << 30,
+            rows: 50_000_000,
+            frames: 500,
+            text: 10_000,
+        }
+    }
+}
+
+/// Is the file at `path` within the size limit? (A file that cannot be
+/// read is left to the reader's own error.)
+pub fn file_size(path: &Path, limits: &Limits) -> Result<(), String> {
+    match std::fs::metadata(path) {
+        Ok(m) if m.len() > limits.input_bytes => Err(format!(
+            "`{}` has {} bytes, more than the limit of {} (--max-input-bytes)",
+            path.display(),
+            m.len(),
+            limits.input_bytes
+        )),
+        _ => Ok(()),
+    }
+}
+
+/// Is a loaded table within the row and text limits?
+pub fn table(t: &Table, limits: &Limits) -> Result<(), String> {
+    let rows = t.columns.first().map_or(0, |c| c.values.len());
+    if rows > limits.rows {
+        return Err(format!(
+            "the file has {rows} rows, more than the limit of {} (--max-rows)",
+            limits.rows
+        ));
+    }
+    for c in &t.columns {
+        for (i, v) in c.values.iter().enumerate() {
+            if let Value::Text(s) = v {
+                if s.len() > limits.text && s.chars().count() > limits.text {
+                    return Err(format!(
+                        "a text in column `{}` (row {}) has {} characters, more than the limit of {} (--max-text)",
+                        c.name,
+                        i + 1,
+                        s.chars().count(),
+                        limits.text
+                    ));
+                }
+            }
+        }
+    }
+    Ok(())
+}
+
+/// The byte ranges of the string literals of a story (comments skipped).
+fn literals(text: &str) -> Vec<std::ops::Range<usize>> {
+    let bytes = text.as_bytes();
+    let mut out = Vec::new();
+    let mut i = 0;
+    while let Some(&b) = bytes.get(i) {
+        match b {
+            b'"' => {
+                let start = i;
+                i += 1;
+                while let Some(&c) = bytes.get(i) {
+                    match c {
+                        b'\\' => i += 1,
+                        b'"' | b'\n' => break,
+                        _ => {}
+                    }
+                    i += 1;
+                }
+                let end = (i + 1).min(text.len());
+                out.push(start..end);
+            }
+            b'#' => {
+                while bytes.get(i).is_some_and(|&c| c != b'\n') {
+                    i += 1;
+                }
+            }
+            _ => {}
+        }
+        i += 1;
+    }
+    out
+}
+
+/// Errors for a story over the text or frame limits.
+pub fn story(src: &Arc<Source>, ast: &StoryAst, limits: &Limits) -> Vec<Diagnostic> {
+    let mut diags = Vec::new();
+    let text = src.text.as_str();
+    for r in literals(text) {
+        let Some(s) = text.get(r.clone()) else {
+            continue;
+        };
+        if s.len() > limits.text && s.chars().count() > limits.text + 2 {
+            diags.push(
+                Diagnostic::error(
+                    "limit",
+                    format!(
+                        "this text has {} characters, more than the limit of {} (--max-text)",
+                        s.chars().count() - 2,
+                        limits.text
+                    ),
+                )
+                .at(src, r.start..r.start + 1, "this text is too long"),
+            );
+        }
+    }
+    let frames: Vec<_> = ast
+        .items
+        .iter()
+        .filter_map(|i| match i {
+            Item::Frame(f) => Some(f.span.clone()),
+            _ => None,
+        })
+        .collect();
+    if let Some(first_over) = frames.get(limits.frames) {
+        diags.push(
+            Diagnostic::error(
+                "limit",
+                format!(
+                    "the story has {} frames, more than the limit of {} (--max-frames)",
+                    frames.len(),
+                    limits.frames
+                ),
+            )
+            .at(
+                src,
+                first_over.start..first_over.start + 5,
+                "the first frame over the limit",
+            ),
+        );
+    }
+    diags
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crescendo_data::{ColType, Column};
+
+    fn limits() -> Limits {
+        Limits {
+            input_bytes: 10,
+            rows: 2,
+            frames: 1,
+            text: 5,
+        }
+    }
+
+    #[test]
+    fn long_story_texts_and_too_many_frames_are_located() {
+        let text = "story \"short\" # \"a comment is not a text at all\"\n\
+                    frame \"sixsix\" {\n}\nframe \"b\" {\n}\n";
+        let src = Source::file("s.cresc", text.to_string());
+        let (ast, _) = crescendo_lang::parse(&src);
+        let d = story(&src, &ast, &limits());
+        assert_eq!(d.len(), 2, "{d:?}");
+        assert!(d[0].message.contains("6 characters"), "{}", d[0].message);
+        assert_eq!(d[0].location().unwrap().1, 2);
+        assert!(d[1].message.contains("2 frames"), "{}", d[1].message);
+        assert_eq!(d[1].location().unwrap().1, 4);
+        assert!(story(&src, &ast, &Limits::default()).is_empty());
+    }
+
+    #[test]
+    fn rows_and_text_cells_are_counted() {
+        let col = |values: Vec<Value>| Table {
+            columns: vec![Column {
+                name: "c".into(),
+                ty: ColType::Text,
+                values,
+            }],
+        };
+        let t = |s: &str| Value::Text(s.into());
+        assert!(table(&col(vec![t("a"), t("b")]), &limits()).is_ok());
+        let e = table(&col(vec![t("a"), t("b"), t("c")]), &limits()).unwrap_err();
+        assert!(e.contains("3 rows"), "{e}");
+        let e = table(&col(vec![t("abcdef")]), &limits()).unwrap_err();
+        assert!(e.contains("6 characters"), "{e}");
+        // characters, not bytes
+        assert!(table(&col(vec![t("ééééé")]), &limits()).is_ok());
+    }
+
+    #[test]
+    fn file_sizes_are_checked() {
+        let p = std::env::temp_dir().join(format!("crescendo-limit-{}", std::process::id()));
+        std::fs::write(&p, "0123456789").unwrap();
+        assert!(file_size(&p, &limits()).is_ok());
+        std::fs::write(&p, "0123456789a").unwrap();
+        assert!(file_size(&p, &limits()).unwrap_err().contains("11 bytes"));
+        assert!(file_size(&p.with_extension("none"), &limits()).is_ok());
+    }
+}

@@ -1,0 +1,134 @@
+//! Where a story may read from. Paths in a story (data files, the house
+//! style, plugins) are relative to the story, and may not leave the story's
+//! folder tree (`..`, an absolute path, or a symbolic link that points out)
+//! unless the user allowed a folder with `--allow-path DIR`. So a story
+//! from someone else cannot read private files into a deck.
+
+use std::path::{Component, Path, PathBuf};
+
+/// `path` with `.` and `..` taken out, without touching the file system.
+fn normalise(path: &Path) -> PathBuf {
+    let mut out = PathBuf::new();
+    for c in path.components() {
+        match c {
+            Component::CurDir => {}
+            Component::ParentDir => {
+                out.pop();
+            }
+            other => out.push(other),
+        }
+    }
+    out
+}
+
+/// An absolute, resolved form of `p` when it exists (symbolic links
+/// followed), else its absolute, normalised form.
+fn resolved(p: &Path) -> PathBuf {
+    if let Ok(c) = p.canonicalize() {
+        return c;
+    }
+    let abs = if p.is_absolute() {
+        p.to_path_buf()
+    } else {
+        std::env::current_dir().unwrap_or_default().join(p)
+    };
+    // resolve the deepest existing ancestor, keep the rest as written
+    let abs = normalise(&abs);
+    let mut base = abs.clone();
+    let mut rest = Vec::new();
+    while !base.exists() {
+        match (base.file_name().map(|n| n.to_os_string()), base.parent()) {
+            (Some(name), Some(parent)) => {
+                rest.push(name);
+                base = parent.to_path_buf();
+            }
+            _ => return abs,
+        }
+    }
+    let mut out = base.canonicalize().unwrap_or(base);
+    for name in rest.into_iter().rev() {
+        out.push(name);
+    }
+    out
+}
+
+/// The file `written` (as the story wrote it) relative to `story_dir`, or
+/// why it may not be read: it lies outside the story's folder and every
+/// folder in `allowed`.
+pub fn confine(story_dir: &Path, written: &str, allowed: &[PathBuf]) -> Result<PathBuf, String> {
+    let path = story_dir.join(written);
+    let target = resolved(&path);
+    let home = resolved(story_dir);
+    if target.starts_with(&home) || allowed.iter().any(|a| target.starts_with(resolved(a))) {
+        return Ok(path);
+    }
+    Err(format!(
+        "`{written}` is outside the story's folder ({})",
+        target.display()
+    ))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::fs;
+
+    fn tree(name: &str) -> PathBuf {
+        let d = std::env::temp_dir().join(format!("crescendo-paths-{}-{name}", std::process::id()));
+        let _ = fs::remove_dir_all(&d);
+        fs::create_dir_all(d.join("story/data")).unwrap();
+        fs::create_dir_all(d.join("private")).unwrap();
+        fs::write(d.join("story/data/a.csv"), "x\n1\n").unwrap();
+        fs::write(d.join("private/secret.csv"), "x\n1\n").unwrap();
+        d
+    }
+
+    #[test]
+    fn inside_the_story_folder_is_fine() {
+        let d = tree("inside");
+        let s = d.join("story");
+        assert_eq!(confine(&s, "data/a.csv", &[]), Ok(s.join("data/a.csv")));
+        assert!(confine(&s, "./data/../data/a.csv", &[]).is_ok());
+        // missing files are left to the loader's own error
+        assert!(confine(&s, "data/missing.csv", &[]).is_ok());
+    }
+
+    #[test]
+    fn leaving_the_story_folder_is_refused() {
+        let d = tree("outside");
+        let s = d.join("story");
+        for p in [
+            "../private/secret.csv",
+            "data/../../private/secret.csv",
+            "../private/missing.csv",
+            "/etc/passwd",
+        ] {
+            let e = confine(&s, p, &[]).unwrap_err();
+            assert!(e.contains("outside the story's folder"), "{p}: {e}");
+        }
+        // the story's folder is not a prefix of its sibling's name
+        fs::create_dir_all(d.join("story2")).unwrap();
+        fs::write(d.join("story2/b.csv"), "x\n").unwrap();
+        assert!(confine(&s, "../story2/b.csv", &[]).is_err());
+    }
+
+    #[test]
+    fn symbolic_links_out_are_refused() {
+        let d = tree("links");
+        let s = d.join("story");
+        std::os::unix::fs::symlink(d.join("private/secret.csv"), s.join("data/link.csv")).unwrap();
+        std::os::unix::fs::symlink(d.join("private"), s.join("data/dir")).unwrap();
+        assert!(confine(&s, "data/link.csv", &[]).is_err());
+        assert!(confine(&s, "data/dir/secret.csv", &[]).is_err());
+        assert!(confine(&s, "data/dir/missing.csv", &[]).is_err());
+    }
+
+    #[test]
+    fn an_allowed_folder_may_be_read() {
+        let d = tree("allowed");
+        let s = d.join("story");
+        let allow = [d.join("private")];
+        assert!(confine(&s, "../private/secret.csv", &allow).is_ok());
+        assert!(confine(&s, "/etc/passwd", &allow).is_err());
+    }
+}

@@ -1,0 +1,57 @@
+//! Properties of the number-axis ticks (`scale.rs`), over random data
+//! ranges: ticks cover the data, rise strictly, are evenly spaced, and
+//! stay within the requested count. The count `m` is the target of the
+//! density term of Talbot, Lin & Hanrahan (2010), not a hard cap: the
+//! search may trade a tick or two more for simpler steps (m = 2 over
+//! [-0.049, -0.039] gives three ticks), so the property is "at most 2m";
+//! the axes the renderer draws (m = 5) never get more than ten.
+
+use crescendo_plan::scale::{extended, linear_axis};
+use proptest::prelude::*;
+
+/// Data bounds as analysts meet them: magnitudes from 1e-6 to 1e12, of
+/// either sign, possibly equal.
+fn bounds() -> impl Strategy<Value = (f64, f64)> {
+    (-12i32..12, -1e6f64..1e6, 0f64..1e6).prop_map(|(e, a, w)| {
+        let s = 10f64.powi(e) / 1e6;
+        (a * s, (a + w) * s)
+    })
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(400))]
+
+    #[test]
+    fn loose_ticks_cover_the_data_within_the_count((lo, hi) in bounds(), m in 2usize..12) {
+        if let Some(t) = extended(lo, hi, m, true) {
+            prop_assert!(t.len() >= 2, "{t:?}");
+            prop_assert!(t.len() <= 2 * m, "{} ticks for m = {m}: {t:?}", t.len());
+            let (first, last) = (t[0], t[t.len() - 1]);
+            prop_assert!(first <= lo && last >= hi, "{t:?} does not cover [{lo}, {hi}]");
+            for w in t.windows(2) {
+                prop_assert!(w[1] > w[0], "{t:?}");
+            }
+            let step = t[1] - t[0];
+            for w in t.windows(2) {
+                prop_assert!(((w[1] - w[0]) - step).abs() <= step * 1e-9, "{t:?}");
+            }
+        }
+    }
+
+    #[test]
+    fn an_axis_domain_holds_the_data_and_its_ticks((lo, hi) in bounds(), zero in any::<bool>()) {
+        let a = linear_axis(lo, hi, zero, None);
+        let [d0, d1] = a.domain;
+        prop_assert!(d0 < d1);
+        prop_assert!(d0 <= lo && d1 >= hi, "{:?} vs [{lo}, {hi}]", a.domain);
+        if zero {
+            prop_assert!(d0 <= 0.0 && d1 >= 0.0);
+        }
+        prop_assert!(!a.ticks.is_empty());
+        prop_assert!(a.ticks.len() <= 10, "{} ticks", a.ticks.len());
+        for t in &a.ticks {
+            prop_assert!(t.value >= d0 && t.value <= d1, "tick {} outside {:?}", t.value, a.domain);
+            prop_assert!(!t.label.is_empty());
+        }
+    }
+}

@@ -1,0 +1,85 @@
+//! Secrets never leak: a failing build prints and writes nothing of a
+//! password in its environment, nor of a private file a story tried to
+//! read from outside its folder (directly, or through a symbolic link).
+//! The helper (`tests/common`, `assert_secret_never_leaks`) greps stdout,
+//! stderr and every file the run wrote.
+
+mod common;
+
+use std::fs;
+
+use common::{assert_secret_never_leaks, crescendo, scratch};
+
+const SECRET: &str = "s3cr3t-Pa55w0rd-9f8e7d";
+
+const STORY: &str = "story \"Loans\"\nsource \"Invented\"\nconclusion \"Done.\"\n\
+data loans from \"DATA\"\n\
+value total = sum(loans.loans)\n\
+claim total > 1000000 \"Loans passed a million\"\n\
+frame \"Loans per branch\" {\n  bars loans: category branch, value loans\n}\n";
+
+fn story_dir(name: &str, data: &str) -> std::path::PathBuf {
+    let root = scratch(name);
+    let dir = root.join("story");
+    fs::create_dir_all(&dir).unwrap();
+    fs::create_dir_all(root.join("private")).unwrap();
+    fs::write(
+        root.join("private/secret.csv"),
+        format!("branch,loans\n{SECRET},1\n"),
+    )
+    .unwrap();
+    fs::write(dir.join("loans.csv"), "branch,loans\nElm,120\nQuarry,80\n").unwrap();
+    fs::write(dir.join("story.cresc"), STORY.replace("DATA", data)).unwrap();
+    dir
+}
+
+#[test]
+fn a_password_in_the_environment_never_leaks() {
+    let dir = story_dir("secret-env", "loans.csv");
+    // first a good deck, so that the failing build has a deck to keep
+    let ok = STORY.replace("DATA", "loans.csv").replace("1000000", "10");
+    fs::write(dir.join("story.cresc"), &ok).unwrap();
+    assert!(crescendo(&dir, &["build", "story.cresc"]).status.success());
+    fs::write(dir.join("story.cresc"), STORY.replace("DATA", "loans.csv")).unwrap();
+    let out = assert_secret_never_leaks(
+        &dir,
+        &["build", "story.cresc"],
+        &[("CRESCENDO_DB_PASSWORD", SECRET), ("PGPASSWORD", SECRET)],
+        SECRET,
+    );
+    assert_eq!(out.status.code(), Some(3), "a failing claim");
+}
+
+#[test]
+fn a_private_file_outside_the_story_never_leaks() {
+    let dir = story_dir("secret-file", "../private/secret.csv");
+    let out = assert_secret_never_leaks(&dir, &["build", "story.cresc"], &[], SECRET);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("error[path-outside]"), "{err}");
+    // the same through `check` and `plan`
+    for cmd in ["check", "plan"] {
+        assert_secret_never_leaks(&dir, &[cmd, "story.cresc"], &[], SECRET);
+    }
+}
+
+#[test]
+fn a_symbolic_link_to_a_private_file_never_leaks() {
+    let dir = story_dir("secret-link", "link.csv");
+    std::os::unix::fs::symlink(dir.join("../private/secret.csv"), dir.join("link.csv")).unwrap();
+    let out = assert_secret_never_leaks(&dir, &["build", "story.cresc"], &[], SECRET);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("error[path-outside]"), "{err}");
+}
+
+/// The helper itself finds a leak: a claim sentence that quotes the secret
+/// is printed when the claim fails.
+#[test]
+#[should_panic(expected = "the secret is in stderr")]
+fn the_helper_catches_a_leak() {
+    let dir = story_dir("secret-helper", "loans.csv");
+    let leaky = STORY
+        .replace("DATA", "loans.csv")
+        .replace("Loans passed a million", SECRET);
+    fs::write(dir.join("story.cresc"), leaky).unwrap();
+    assert_secret_never_leaks(&dir, &["build", "story.cresc"], &[], SECRET);
+}
