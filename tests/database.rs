@@ -399,6 +399,14 @@ fn equivalence(cluster: &Cluster) {
             text_of(&b)
         );
         let (fa, fb) = (read_dir_files(&csv_deck), read_dir_files(&db_deck));
+        // the deck and its manifest carry no part of the connection string
+        for (n, bytes) in &fb {
+            let t = String::from_utf8_lossy(bytes);
+            assert!(
+                !t.contains(PASSWORD) && !t.contains("CRESCENDO_TEST_DB="),
+                "{name}: `{n}` holds the connection string"
+            );
+        }
         let names_a: Vec<&String> = fa.iter().map(|(n, _)| n).collect();
         let names_b: Vec<&String> = fb.iter().map(|(n, _)| n).collect();
         assert_eq!(names_a, names_b, "{name}: the decks hold different files");
