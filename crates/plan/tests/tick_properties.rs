@@ -3,8 +3,9 @@
 //! stay within the requested count. The count `m` is the target of the
 //! density term of Talbot, Lin & Hanrahan (2010), not a hard cap: the
 //! search may trade a tick or two more for simpler steps (m = 2 over
-//! [-0.049, -0.039] gives three ticks), so the property is "at most 2m";
-//! the axes the renderer draws (m = 5) never get more than ten.
+//! [-0.049, -0.039] gives three ticks). `extended` promises at most 2m
+//! (its search bound), so the property is "at most 2m"; the axes the
+//! renderer draws (m = 5) never get more than ten.
 
 use crescendo_plan::scale::{extended, linear_axis};
 use proptest::prelude::*;
@@ -23,7 +24,9 @@ proptest! {
 
     #[test]
     fn loose_ticks_cover_the_data_within_the_count((lo, hi) in bounds(), m in 2usize..12) {
-        if let Some(t) = extended(lo, hi, m, true) {
+        let found = extended(lo, hi, m, true);
+        prop_assert!(found.is_some(), "no labelling for [{lo}, {hi}], m = {m}");
+        if let Some(t) = found {
             prop_assert!(t.len() >= 2, "{t:?}");
             prop_assert!(t.len() <= 2 * m, "{} ticks for m = {m}: {t:?}", t.len());
             let (first, last) = (t[0], t[t.len() - 1]);
