@@ -718,6 +718,35 @@ fn value_and_claim(s: &mut String, view: &str, measure: &str) {
     let _ = writeln!(s);
 }
 
+/// One frame of a starter story: the comment that says what it is for, the
+/// headline (already quoted), its statements, and a blank line after it.
+fn frame(s: &mut String, comment: &str, headline: &str, lines: &[String]) {
+    let _ = writeln!(s, "# {comment}");
+    let _ = writeln!(s, "frame {headline} {{");
+    for l in lines {
+        let _ = writeln!(s, "  {l}");
+    }
+    let _ = writeln!(s, "}}");
+    let _ = writeln!(s);
+}
+
+/// `compare KEY by MEASURE` and `focus "NAME"`, then a blank line.
+fn compare_focus(s: &mut String, key: &str, measure: &str, focus: &str) {
+    let _ = writeln!(s, "compare {key} by {measure}");
+    let _ = writeln!(s, "focus {}", quote(focus));
+    let _ = writeln!(s);
+}
+
+/// The view: a comment on the form, `view NAME = table`, its steps.
+fn view(s: &mut String, comment: &str, name: &str, steps: &[String]) {
+    let _ = writeln!(s, "{comment}");
+    let _ = writeln!(s, "view {name} = table");
+    for st in steps {
+        let _ = writeln!(s, "  {st}");
+    }
+    let _ = writeln!(s);
+}
+
 fn conclusion_frame(s: &mut String) {
     let _ = writeln!(
         s,
@@ -728,114 +757,124 @@ fn conclusion_frame(s: &mut String) {
     let _ = writeln!(s, "}}");
 }
 
+/// The spotlight frame most forms end their build-up with.
+fn spotlight_frame(s: &mut String, comment: &str, headline: String, takeaway: &str) {
+    frame(
+        s,
+        comment,
+        &quote(&headline),
+        &["spotlight focus".into(), format!("takeaway \"{takeaway}\"")],
+    );
+}
+
 fn trend(s: &mut String, table: &Table, time: &str, measure: &str, series: Option<&str>) {
     let m = words(measure);
-    let _ = writeln!(
-        s,
+    let mut comment = format!(
         "# Change over time: a line, {time} along x ({measure} summed per {time}{}).",
         series.map_or(String::new(), |c| format!(" and {c}"))
     );
-    match series {
+    let keys = match series {
         Some(cat) => {
-            let _ = writeln!(
-                s,
-                "# A few {cat} values: one line each (more would tangle)."
-            );
-            let _ = writeln!(s, "view over_time = table");
-            let _ = writeln!(s, "  | by {time}, {cat}: {measure} = sum({measure})");
+            comment.push_str(&format!(
+                "\n# A few {cat} values: one line each (more would tangle)."
+            ));
+            format!("{time}, {cat}")
         }
-        None => {
-            let _ = writeln!(s, "view over_time = table");
-            let _ = writeln!(s, "  | by {time}: {measure} = sum({measure})");
-        }
-    }
-    let _ = writeln!(s);
+        None => time.to_string(),
+    };
+    view(
+        s,
+        &comment,
+        "over_time",
+        &[format!("| by {keys}: {measure} = sum({measure})")],
+    );
     value_and_claim(s, "over_time", measure);
+    let headline = quote(&format!("{} over time", capital(&m)));
+    let y_title = format!("y title {}", quote(&capital(&m)));
     let focus = series.and_then(|c| largest(&totals(table, c, measure)));
     if let (Some(cat), Some(focus)) = (series, &focus) {
-        let _ = writeln!(s, "compare {cat} by {measure}");
-        let _ = writeln!(s, "focus {}", quote(focus));
-        let _ = writeln!(s);
-        let _ = writeln!(
+        compare_focus(s, cat, measure, focus);
+        frame(
             s,
-            "# 1. Context: one line first, so the pattern over time is clear."
+            "1. Context: one line first, so the pattern over time is clear.",
+            &headline,
+            &[
+                format!("line over_time: x {time}, y {measure}, series {cat}"),
+                y_title,
+                "hide all".into(),
+                format!("show {}", quote(focus)),
+                "takeaway \"TODO: what the first line shows\"".into(),
+            ],
         );
-        let _ = writeln!(
+        frame(
             s,
-            "frame {} {{",
-            quote(&format!("{} over time", capital(&m)))
+            "2. Comparison: every line, on the same axes.",
+            &quote(&format!("Every {} compared", words(cat))),
+            &[
+                "show all".into(),
+                "takeaway \"TODO: how the lines differ\"".into(),
+            ],
         );
-        let _ = writeln!(s, "  line over_time: x {time}, y {measure}, series {cat}");
-        let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
-        let _ = writeln!(s, "  hide all");
-        let _ = writeln!(s, "  show {}", quote(focus));
-        let _ = writeln!(s, "  takeaway \"TODO: what the first line shows\"");
-        let _ = writeln!(s, "}}");
-        let _ = writeln!(s);
-        let _ = writeln!(s, "# 2. Comparison: every line, on the same axes.");
-        let _ = writeln!(
+        spotlight_frame(
             s,
-            "frame {} {{",
-            quote(&format!("Every {} compared", words(cat)))
+            "3. Spotlight: the focus in colour, the rest in grey.",
+            format!("{focus} stands out"),
+            "Its highest value: {highest}.",
         );
-        let _ = writeln!(s, "  show all");
-        let _ = writeln!(s, "  takeaway \"TODO: how the lines differ\"");
-        let _ = writeln!(s, "}}");
-        let _ = writeln!(s);
-        let _ = writeln!(s, "# 3. Spotlight: the focus in colour, the rest in grey.");
-        let _ = writeln!(s, "frame {} {{", quote(&format!("{focus} stands out")));
-        let _ = writeln!(s, "  spotlight focus");
-        let _ = writeln!(s, "  takeaway \"Its highest value: {{highest}}.\"");
-        let _ = writeln!(s, "}}");
     } else {
-        let _ = writeln!(s, "# 1. Context: the whole series.");
-        let _ = writeln!(
+        frame(
             s,
-            "frame {} {{",
-            quote(&format!("{} over time", capital(&m)))
+            "1. Context: the whole series.",
+            &headline,
+            &[
+                format!("line over_time: x {time}, y {measure}"),
+                y_title,
+                "takeaway \"TODO: what the line shows\"".into(),
+            ],
         );
-        let _ = writeln!(s, "  line over_time: x {time}, y {measure}");
-        let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
-        let _ = writeln!(s, "  takeaway \"TODO: what the line shows\"");
-        let _ = writeln!(s, "}}");
-        let _ = writeln!(s);
-        let _ = writeln!(
+        frame(
             s,
-            "# 2. Comparison: the first and the last value, labelled."
+            "2. Comparison: the first and the last value, labelled.",
+            "\"From the first period to the last\"",
+            &[
+                "label ends".into(),
+                "takeaway \"TODO: how far it moved\"".into(),
+            ],
         );
-        let _ = writeln!(s, "frame \"From the first period to the last\" {{");
-        let _ = writeln!(s, "  label ends");
-        let _ = writeln!(s, "  takeaway \"TODO: how far it moved\"");
-        let _ = writeln!(s, "}}");
-        let _ = writeln!(s);
-        let _ = writeln!(s, "# 3. Spotlight: a note at the highest point.");
-        let _ = writeln!(s, "frame \"The highest point\" {{");
+        let mut lines = Vec::new();
         if let Some(peak) = largest(&totals(table, time, measure)) {
             let at = if peak.contains('-') {
                 quote(&peak)
             } else {
                 peak
             };
-            let _ = writeln!(s, "  callout {at} \"Highest: {{highest}}\"");
+            lines.push(format!("callout {at} \"Highest: {{highest}}\""));
         }
-        let _ = writeln!(s, "  takeaway \"TODO: why it peaked there\"");
-        let _ = writeln!(s, "}}");
+        lines.push("takeaway \"TODO: why it peaked there\"".into());
+        frame(
+            s,
+            "3. Spotlight: a note at the highest point.",
+            "\"The highest point\"",
+            &lines,
+        );
     }
-    let _ = writeln!(s);
     conclusion_frame(s);
 }
 
 fn periods(s: &mut String, table: &Table, period: &str, category: &str, measure: &str) {
     let m = words(measure);
-    let _ = writeln!(
+    view(
         s,
-        "# Only two periods of {period}: bars grouped by {period} compare them\n\
-         # honestly (a line through two points is one slope, not a trend)."
+        &format!(
+            "# Only two periods of {period}: bars grouped by {period} compare them\n\
+             # honestly (a line through two points is one slope, not a trend)."
+        ),
+        "by_period",
+        &[
+            format!("| by {category}, {period}: {measure} = sum({measure})"),
+            format!("| sort {measure} descending"),
+        ],
     );
-    let _ = writeln!(s, "view by_period = table");
-    let _ = writeln!(s, "  | by {category}, {period}: {measure} = sum({measure})");
-    let _ = writeln!(s, "  | sort {measure} descending");
-    let _ = writeln!(s);
     value_and_claim(s, "by_period", measure);
     // the bars' colours are the periods: the latest one is the focus
     let focus = totals(table, period, measure)
@@ -843,192 +882,179 @@ fn periods(s: &mut String, table: &Table, period: &str, category: &str, measure:
         .next_back()
         .cloned()
         .unwrap_or_default();
-    let _ = writeln!(s, "compare {period} by {measure}");
-    let _ = writeln!(s, "focus {}", quote(&focus));
-    let _ = writeln!(s);
-    let _ = writeln!(s, "# 1. Context: every {category} in both periods.");
-    let _ = writeln!(
+    compare_focus(s, period, measure, &focus);
+    frame(
         s,
-        "frame {} {{",
-        quote(&format!("{} by {}", capital(&m), words(category)))
+        &format!("1. Context: every {category} in both periods."),
+        &quote(&format!("{} by {}", capital(&m), words(category))),
+        &[
+            format!("bars by_period: category {category}, value {measure}, group {period}"),
+            format!("y title {}", quote(&capital(&m))),
+            "takeaway \"TODO: what the bars show\"".into(),
+        ],
     );
-    let _ = writeln!(
+    frame(
         s,
-        "  bars by_period: category {category}, value {measure}, group {period}"
+        "2. Comparison: how each changed between the periods.",
+        "\"TODO: which changed most\"",
+        &["takeaway \"TODO: the change that matters\"".into()],
     );
-    let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
-    let _ = writeln!(s, "  takeaway \"TODO: what the bars show\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
-    let _ = writeln!(s, "# 2. Comparison: how each changed between the periods.");
-    let _ = writeln!(s, "frame \"TODO: which changed most\" {{");
-    let _ = writeln!(s, "  takeaway \"TODO: the change that matters\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
-    let _ = writeln!(s, "# 3. Spotlight: the focus in colour, the rest in grey.");
-    let _ = writeln!(s, "frame {} {{", quote(&format!("{focus} stands out")));
-    let _ = writeln!(s, "  spotlight focus");
-    let _ = writeln!(s, "  takeaway \"Its highest value: {{highest}}.\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
+    spotlight_frame(
+        s,
+        "3. Spotlight: the focus in colour, the rest in grey.",
+        format!("{focus} stands out"),
+        "Its highest value: {highest}.",
+    );
     conclusion_frame(s);
 }
 
 fn relationship(s: &mut String, table: &Table, x: &str, y: &str, label: Option<&str>) {
-    let _ = writeln!(
+    view(
         s,
         "# Two measures and no time: their relationship, a scatter plot with a\n\
-         # fitted line (check the correlation before you claim one)."
+         # fitted line (check the correlation before you claim one).",
+        "points",
+        &[format!("| sort {y} descending")],
     );
-    let _ = writeln!(s, "view points = table");
-    let _ = writeln!(s, "  | sort {y} descending");
-    let _ = writeln!(s);
     let _ = writeln!(s, "value fit = correlation(points.{y} by {x})");
     value_and_claim(s, "points", y);
     let focus = label.and_then(|l| largest(&totals(table, l, y)));
-    let _ = writeln!(s, "# 1. Context: every row as a point.");
-    let _ = writeln!(
-        s,
-        "frame {} {{",
-        quote(&format!("{} against {}", capital(&words(y)), words(x)))
+    let chart = format!(
+        "scatter points: x {x}, y {y}{}",
+        label.map_or(String::new(), |l| format!(", label {l}"))
     );
-    match label {
-        Some(l) => {
-            let _ = writeln!(s, "  scatter points: x {x}, y {y}, label {l}");
-        }
-        None => {
-            let _ = writeln!(s, "  scatter points: x {x}, y {y}");
-        }
-    }
-    let _ = writeln!(s, "  x title {}", quote(&capital(&words(x))));
-    let _ = writeln!(s, "  y title {}", quote(&capital(&words(y))));
-    let _ = writeln!(s, "  takeaway \"TODO: what the cloud of points shows\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
-    let _ = writeln!(s, "# 2. Comparison: the fitted line and its correlation.");
-    let _ = writeln!(s, "frame \"How closely they move together\" {{");
-    match label {
-        Some(l) => {
-            let _ = writeln!(s, "  scatter points: x {x}, y {y}, label {l}, fit");
-        }
-        None => {
-            let _ = writeln!(s, "  scatter points: x {x}, y {y}, fit");
-        }
-    }
-    let _ = writeln!(s, "  x title {}", quote(&capital(&words(x))));
-    let _ = writeln!(s, "  y title {}", quote(&capital(&words(y))));
-    let _ = writeln!(s, "  takeaway \"Correlation r = {{fit:.2}}.\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
-    let _ = writeln!(s, "# 3. Spotlight: the point with the largest {y}.");
-    let _ = writeln!(s, "frame \"TODO: the point that matters\" {{");
+    let titles = [
+        format!("x title {}", quote(&capital(&words(x)))),
+        format!("y title {}", quote(&capital(&words(y)))),
+    ];
+    frame(
+        s,
+        "1. Context: every row as a point.",
+        &quote(&format!("{} against {}", capital(&words(y)), words(x))),
+        &[
+            chart.clone(),
+            titles[0].clone(),
+            titles[1].clone(),
+            "takeaway \"TODO: what the cloud of points shows\"".into(),
+        ],
+    );
+    frame(
+        s,
+        "2. Comparison: the fitted line and its correlation.",
+        "\"How closely they move together\"",
+        &[
+            format!("{chart}, fit"),
+            titles[0].clone(),
+            titles[1].clone(),
+            "takeaway \"Correlation r = {fit:.2}.\"".into(),
+        ],
+    );
     // without names to point at, the takeaway carries the point
-    if let Some(f) = &focus {
-        let _ = writeln!(s, "  spotlight {}", quote(f));
-    }
-    let _ = writeln!(s, "  takeaway \"The highest {}: {{highest}}.\"", words(y));
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
+    let mut lines: Vec<String> = focus
+        .iter()
+        .map(|f| format!("spotlight {}", quote(f)))
+        .collect();
+    lines.push(format!(
+        "takeaway \"The highest {}: {{highest}}.\"",
+        words(y)
+    ));
+    frame(
+        s,
+        &format!("3. Spotlight: the point with the largest {y}."),
+        "\"TODO: the point that matters\"",
+        &lines,
+    );
     conclusion_frame(s);
 }
 
 fn part_of_whole(s: &mut String, table: &Table, category: &str, part: &str, measure: &str) {
     let m = words(measure);
-    let _ = writeln!(
+    view(
         s,
-        "# Part of a whole with few parts: bars of {category} stacked by {part}\n\
-         # (a handful of parts stays readable; more would need a chart per part)."
+        &format!(
+            "# Part of a whole with few parts: bars of {category} stacked by {part}\n\
+             # (a handful of parts stays readable; more would need a chart per part)."
+        ),
+        "parts",
+        &[format!(
+            "| by {category}, {part}: {measure} = sum({measure})"
+        )],
     );
-    let _ = writeln!(s, "view parts = table");
-    let _ = writeln!(s, "  | by {category}, {part}: {measure} = sum({measure})");
-    let _ = writeln!(s);
     value_and_claim(s, "parts", measure);
     let focus = largest(&totals(table, part, measure)).unwrap_or_default();
-    let _ = writeln!(s, "compare {part} by {measure}");
-    let _ = writeln!(s, "focus {}", quote(&focus));
-    let _ = writeln!(s);
-    let _ = writeln!(
+    compare_focus(s, part, measure, &focus);
+    let y_title = format!("y title {}", quote(&capital(&m)));
+    frame(
         s,
-        "# 1. Context: the whole of each {category}, split into its parts."
-    );
-    let _ = writeln!(
-        s,
-        "frame {} {{",
-        quote(&format!(
+        &format!("1. Context: the whole of each {category}, split into its parts."),
+        &quote(&format!(
             "{} by {} and {}",
             capital(&m),
             words(category),
             words(part)
-        ))
+        )),
+        &[
+            format!("bars parts: category {category}, value {measure}, stack {part}"),
+            y_title.clone(),
+            "takeaway \"TODO: what the totals show\"".into(),
+        ],
     );
-    let _ = writeln!(
+    frame(
         s,
-        "  bars parts: category {category}, value {measure}, stack {part}"
+        "2. Comparison: the parts side by side instead of stacked.",
+        "\"The parts side by side\"",
+        &[
+            format!("bars parts: category {category}, value {measure}, group {part}"),
+            y_title,
+            "takeaway \"TODO: which part leads where\"".into(),
+        ],
     );
-    let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
-    let _ = writeln!(s, "  takeaway \"TODO: what the totals show\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
-    let _ = writeln!(
+    spotlight_frame(
         s,
-        "# 2. Comparison: the parts side by side instead of stacked."
+        "3. Spotlight: the largest part in colour.",
+        format!("{focus} is the largest part"),
+        "Its highest value: {highest}.",
     );
-    let _ = writeln!(s, "frame \"The parts side by side\" {{");
-    let _ = writeln!(
-        s,
-        "  bars parts: category {category}, value {measure}, group {part}"
-    );
-    let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
-    let _ = writeln!(s, "  takeaway \"TODO: which part leads where\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
-    let _ = writeln!(s, "# 3. Spotlight: the largest part in colour.");
-    let _ = writeln!(
-        s,
-        "frame {} {{",
-        quote(&format!("{focus} is the largest part"))
-    );
-    let _ = writeln!(s, "  spotlight focus");
-    let _ = writeln!(s, "  takeaway \"Its highest value: {{highest}}.\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
     conclusion_frame(s);
 }
 
 fn distribution(s: &mut String, table: &Table, name: &str, measure: &str) {
     let m = words(measure);
-    let _ = writeln!(
+    view(
         s,
-        "# One {measure} per {name}: how the values are spread, a dot plot\n\
-         # sorted by value (dots keep every value visible; bars would not start\n\
-         # anywhere meaningful for a spread)."
+        &format!(
+            "# One {measure} per {name}: how the values are spread, a dot plot\n\
+             # sorted by value (dots keep every value visible; bars would not start\n\
+             # anywhere meaningful for a spread)."
+        ),
+        "spread",
+        &[format!("| sort {measure} descending")],
     );
-    let _ = writeln!(s, "view spread = table");
-    let _ = writeln!(s, "  | sort {measure} descending");
-    let _ = writeln!(s);
     value_and_claim(s, "spread", measure);
     let focus = largest(&totals(table, name, measure)).unwrap_or_default();
-    let _ = writeln!(s, "compare {name} by {measure}");
-    let _ = writeln!(s, "focus {}", quote(&focus));
-    let _ = writeln!(s);
-    let _ = writeln!(s, "# 1. Context: every value as a dot.");
-    let _ = writeln!(s, "frame {} {{", quote(&format!("How {m} is spread")));
-    let _ = writeln!(s, "  dots spread: category {name}, value {measure}");
-    let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
-    let _ = writeln!(s, "  takeaway \"TODO: where most values lie\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
-    let _ = writeln!(s, "# 2. Comparison: the highest against the rest.");
-    let _ = writeln!(s, "frame \"From the highest to the lowest\" {{");
-    let _ = writeln!(s, "  takeaway \"From {{highest}} down to {{lowest}}.\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
-    let _ = writeln!(s, "# 3. Spotlight: the highest value.");
-    let _ = writeln!(s, "frame {} {{", quote(&format!("{focus} is the highest")));
-    let _ = writeln!(s, "  spotlight focus");
-    let _ = writeln!(s, "  takeaway \"TODO: why it matters\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
+    compare_focus(s, name, measure, &focus);
+    frame(
+        s,
+        "1. Context: every value as a dot.",
+        &quote(&format!("How {m} is spread")),
+        &[
+            format!("dots spread: category {name}, value {measure}"),
+            format!("y title {}", quote(&capital(&m))),
+            "takeaway \"TODO: where most values lie\"".into(),
+        ],
+    );
+    frame(
+        s,
+        "2. Comparison: the highest against the rest.",
+        "\"From the highest to the lowest\"",
+        &["takeaway \"From {highest} down to {lowest}.\"".into()],
+    );
+    spotlight_frame(
+        s,
+        "3. Spotlight: the highest value.",
+        format!("{focus} is the highest"),
+        "TODO: why it matters",
+    );
     conclusion_frame(s);
 }
 
@@ -1041,58 +1067,54 @@ fn comparison(
     top: Option<usize>,
 ) {
     let m = words(measure);
-    let _ = writeln!(
-        s,
-        "# A comparison of {category} values: bars sorted by size, so the order\n\
-         # reads at a glance{}.",
-        if horizontal {
-            "; horizontal because the names are long"
-        } else {
-            ""
-        }
-    );
-    let _ = writeln!(s, "view ranked = table");
-    let _ = writeln!(s, "  | by {category}: {measure} = sum({measure})");
+    let mut steps = vec![format!("| by {category}: {measure} = sum({measure})")];
     if let Some(n) = top {
-        let _ = writeln!(
-            s,
-            "  # many {category} values: the largest ones, the rest together"
-        );
-        let _ = writeln!(s, "  | top {n} {category} by {measure} rest \"Others\"");
+        steps.push(format!(
+            "# many {category} values: the largest ones, the rest together"
+        ));
+        steps.push(format!("| top {n} {category} by {measure} rest \"Others\""));
     }
-    let _ = writeln!(s, "  | sort {measure} descending");
-    let _ = writeln!(s);
+    steps.push(format!("| sort {measure} descending"));
+    view(
+        s,
+        &format!(
+            "# A comparison of {category} values: bars sorted by size, so the order\n\
+             # reads at a glance{}.",
+            if horizontal {
+                "; horizontal because the names are long"
+            } else {
+                ""
+            }
+        ),
+        "ranked",
+        &steps,
+    );
     value_and_claim(s, "ranked", measure);
     let focus = largest(&totals(table, category, measure)).unwrap_or_default();
-    let _ = writeln!(s, "compare {category} by {measure}");
-    let _ = writeln!(s, "focus {}", quote(&focus));
-    let _ = writeln!(s);
+    compare_focus(s, category, measure, &focus);
     let orient = if horizontal { ", horizontal" } else { "" };
-    let _ = writeln!(s, "# 1. Context: every {category}, largest first.");
-    let _ = writeln!(
+    frame(
         s,
-        "frame {} {{",
-        quote(&format!("{} by {}", capital(&m), words(category)))
+        &format!("1. Context: every {category}, largest first."),
+        &quote(&format!("{} by {}", capital(&m), words(category))),
+        &[
+            format!("bars ranked: category {category}, value {measure}{orient}"),
+            format!("y title {}", quote(&capital(&m))),
+            "takeaway \"TODO: what the ranking shows\"".into(),
+        ],
     );
-    let _ = writeln!(
+    frame(
         s,
-        "  bars ranked: category {category}, value {measure}{orient}"
+        "2. Comparison: the largest against the smallest.",
+        "\"From the largest to the smallest\"",
+        &["takeaway \"From {highest} down to {lowest}.\"".into()],
     );
-    let _ = writeln!(s, "  y title {}", quote(&capital(&m)));
-    let _ = writeln!(s, "  takeaway \"TODO: what the ranking shows\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
-    let _ = writeln!(s, "# 2. Comparison: the largest against the smallest.");
-    let _ = writeln!(s, "frame \"From the largest to the smallest\" {{");
-    let _ = writeln!(s, "  takeaway \"From {{highest}} down to {{lowest}}.\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
-    let _ = writeln!(s, "# 3. Spotlight: the focus in colour, the rest in grey.");
-    let _ = writeln!(s, "frame {} {{", quote(&format!("{focus} leads")));
-    let _ = writeln!(s, "  spotlight focus");
-    let _ = writeln!(s, "  takeaway \"TODO: why it leads\"");
-    let _ = writeln!(s, "}}");
-    let _ = writeln!(s);
+    spotlight_frame(
+        s,
+        "3. Spotlight: the focus in colour, the rest in grey.",
+        format!("{focus} leads"),
+        "TODO: why it leads",
+    );
     conclusion_frame(s);
 }
 
