@@ -1,5 +1,6 @@
 //! The SQL printer: a view prefix (filters, then at most one group with its
-//! aggregates) as one PostgreSQL query that reproduces the local engine.
+//! aggregates, then filters, derived columns, sorts and projections; see
+//! [`pipeline`]) as one PostgreSQL query that reproduces the local engine.
 //!
 //! The query reads the source through an inner select that names every
 //! column `c0`, `c1`, … (in the order of the data item's columns) and adds
@@ -30,6 +31,9 @@
 //! | `min`/`max` (texts by bytes)                     | `min`/`max` (`COLLATE "C"`)                  |
 //! | `first`/`last`: first/last non-missing in row order | `array_agg(… ORDER BY r) FILTER (WHERE … IS NOT NULL)` |
 //! | `count()`, `count(x)`                           | `count(*)`, `count(x)`                       |
+//! | `sort`: stable, missing last both ways          | `row_number() OVER (ORDER BY k … NULLS LAST, r)` |
+//! | `columns`                                       | the outer select list                        |
+//! | `top`, a second `by` (exact sums of doubles)    | not printed: run locally                     |
 //!
 //! Every output is sent as text and parsed by [`crate::decode`], so numbers
 //! arrive exactly (numeric text, or the shortest text that reads back as
@@ -39,7 +43,10 @@
 //! the stored decimals (of the shortest texts, for doubles), where the
 //! local engine sums the nearest doubles exactly — the two can differ in
 //! the last bit; an arithmetic overflow is an error in PostgreSQL where the
-//! engine gives a missing value; `-0` and `0` compare equal in SQL.
+//! engine gives a missing value (so is an underflow of a mean or a median
+//! after a group); `-0` and `0` compare equal in SQL (a sort tells them
+//! apart as the engine does); dates and months compare as their ISO text,
+//! which is their order for years 0 to 9999.
 
 use crescendo_data::{AggFn, Aggregate, ArithOp, CmpOp, ColType, Expr, Step, Value};
 
