@@ -452,6 +452,7 @@ fn equivalence(cluster: &Cluster) {
         "views computed in the database ({pushed} in all)"
     );
     aggregates(cluster, &mut client, &work);
+    pipelines(cluster, &mut client, &work);
 }
 
 /// Every aggregate, filters with arithmetic and missing cells, pushed down
@@ -555,6 +556,188 @@ fn aggregates(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
     let t = text(&e);
     assert_eq!(t.matches("-- view ").count(), 5, "{t}");
     assert!(t.contains("-- view derived"), "{t}");
+}
+
+/// The steps after the first `by` (and row-level `sort` and `columns`)
+/// pushed down: sorts in both directions with missing values and ties,
+/// `columns`, `keep` and `add` after the group, and a `top` with a rest
+/// label equal to an existing category (run locally after the pushed
+/// prefix). The plans (every value at full precision) and the decks are
+/// identical to the ones built from the CSV file; the SQL holds the sorts;
+/// each view receives exactly its final rows (or, for the view with `top`,
+/// the rows `top` reads).
+fn pipelines(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
+    use crescendo_data::ColType;
+    let dir = work.join("pipelines");
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    // North and West tie at 10 (North first), East and Central at 5 (East
+    // first); Islands has no amount; one row has no region; `Other` is
+    // already a region.
+    let csv = "region,shop,amount,units\n\
+               North,a,10,1\n\
+               South,b,,2\n\
+               East,c,5,3\n\
+               West,d,10,4\n\
+               Other,e,3,5\n\
+               North,f,,6\n\
+               Central,g,5,\n\
+               South,h,2.5,8\n\
+               ,i,1,9\n\
+               East,j,0,10\n\
+               West,k,0,11\n\
+               Islands,l,,12\n";
+    std::fs::write(dir.join("sales.csv"), csv).expect("write");
+    load_csv(
+        client,
+        "pipe_sales",
+        &dir.join("sales.csv"),
+        &[
+            ("region".into(), ColType::Text),
+            ("shop".into(), ColType::Text),
+            ("amount".into(), ColType::Number),
+            ("units".into(), ColType::Number),
+        ],
+    );
+    let story = "story \"Pipelines\"\n\
+         data d from SOURCE { region: text, shop: text, amount: number, units: number }\n\
+         view falling = d\n\
+         \x20 | by region: total = sum(amount), n = count(), avg = mean(amount), mid = median(amount), one = first(shop)\n\
+         \x20 | sort total descending\n\
+         \x20 | add share = total / 4\n\
+         \x20 | keep n > 0\n\
+         \x20 | columns region, total, share, n, avg, mid, one\n\
+         view rising = d\n\
+         \x20 | by region: total = sum(units), low = min(amount)\n\
+         \x20 | sort low, total descending\n\
+         view shops = d\n\
+         \x20 | by region, shop: spent = sum(amount)\n\
+         \x20 | keep spent > 1\n\
+         \x20 | add twice = spent * 2 - 1\n\
+         \x20 | sort twice descending, region\n\
+         \x20 | columns region, twice\n\
+         view topped = d\n\
+         \x20 | by region: total = sum(amount), units = sum(units)\n\
+         \x20 | sort region\n\
+         \x20 | top 3 region by total rest \"Other\"\n\
+         view rows = d\n\
+         \x20 | sort region descending, amount\n\
+         \x20 | keep units > 2\n\
+         \x20 | columns shop, region, amount\n\
+         view narrow = d\n\
+         \x20 | columns region, amount\n\
+         \x20 | by region: s = sum(amount)\n\
+         frame \"Falling\" {\n  table falling\n}\n\
+         frame \"Rising\" {\n  table rising\n}\n\
+         frame \"Shops\" {\n  table shops\n}\n\
+         frame \"Topped\" {\n  table topped\n}\n\
+         frame \"Rows\" {\n  table rows\n}\n\
+         frame \"Narrow\" {\n  table narrow\n}\n";
+    std::fs::write(
+        dir.join("csv.cresc"),
+        story.replace("SOURCE", "\"sales.csv\""),
+    )
+    .expect("write");
+    std::fs::write(
+        dir.join("db.cresc"),
+        story.replace(
+            "SOURCE",
+            "table \"pipe_sales\" via CRESCENDO_TEST_DB in order of line",
+        ),
+    )
+    .expect("write");
+    let conn = cluster.conn();
+    let env = [("CRESCENDO_TEST_DB", conn.as_str())];
+    let a = run(&dir, &["plan", "csv.cresc"], &env);
+    assert!(a.status.success(), "{}", text(&a));
+    let b = run(&dir, &["plan", "db.cresc"], &env);
+    assert!(b.status.success(), "{}", text(&b));
+    let (pa, pb) = (
+        String::from_utf8_lossy(&a.stdout),
+        String::from_utf8_lossy(&b.stdout),
+    );
+    for (la, lb) in pa.lines().zip(pb.lines()) {
+        assert_eq!(la, lb, "the plans differ");
+    }
+    assert_eq!(pa, pb);
+    // The local engine's order, read in the plan: North before West (a tie
+    // at 10, first appearance), East before Central (a tie at 5), the
+    // missing total last although the sort is descending.
+    let at = |s: &str| pa.find(s).unwrap_or_else(|| panic!("`{s}` in {pa}"));
+    assert!(at("North") < at("West") && at("East") < at("Central"));
+    for deck in ["csv", "db"] {
+        let o = run(
+            &dir,
+            &[
+                "build",
+                &format!("{deck}.cresc"),
+                "--no-cache",
+                "--out",
+                &format!("deck-{deck}"),
+            ],
+            &env,
+        );
+        assert!(o.status.success(), "{}", text(&o));
+    }
+    let (fa, fb) = (
+        read_dir_files(&dir.join("deck-csv")),
+        read_dir_files(&dir.join("deck-db")),
+    );
+    assert!(!fa.is_empty());
+    assert_eq!(fa.len(), fb.len());
+    for ((n, x), (m, y)) in fa.iter().zip(&fb) {
+        assert_eq!(n, m);
+        assert!(
+            x == y,
+            "`{n}` differs between the CSV and the PostgreSQL deck"
+        );
+    }
+    let e = run(&dir, &["check", "--explain-sql", "db.cresc"], &env);
+    assert!(e.status.success(), "{}", text(&e));
+    let t = String::from_utf8_lossy(&e.stdout).to_string();
+    // One query per view, each with its sort and its final order.
+    let mut received = std::collections::BTreeMap::new();
+    for part in t.split("-- view ").skip(1) {
+        let view = part.split_whitespace().next().expect("a view name");
+        let rows: u64 = part
+            .split("--   received ")
+            .nth(1)
+            .and_then(|r| r.split(' ').next())
+            .and_then(|n| n.parse().ok())
+            .unwrap_or_else(|| panic!("rows received in {part}"));
+        received.insert(view.to_string(), (rows, part.to_string()));
+    }
+    let sql = |v: &str| received.get(v).map(|(_, s)| s.as_str()).unwrap_or("");
+    let rows = |v: &str| received.get(v).map_or(u64::MAX, |(r, _)| *r);
+    assert_eq!(received.len(), 6, "{t}");
+    assert!(
+        sql("falling")
+            .contains("row_number() OVER (ORDER BY t0.v1::double precision DESC NULLS LAST"),
+        "{t}"
+    );
+    assert!(sql("falling").contains(" WHERE COALESCE("), "{t}");
+    assert!(
+        sql("rising").contains("ASC NULLS LAST") && sql("rising").contains("DESC NULLS LAST"),
+        "{t}"
+    );
+    assert!(
+        sql("rows").contains("COLLATE \"C\") DESC NULLS LAST"),
+        "{t}"
+    );
+    for v in ["falling", "rising", "shops", "topped", "rows"] {
+        assert!(sql(v).contains(" ORDER BY t"), "{v}: {t}");
+    }
+    // Rows received are the view's final rows: 8 regions (the missing
+    // region included) in `falling` and `rising`; shops with more than 1
+    // spent: a, c, d, e, g, h (10, 5, 10, 3, 5, 2.5); rows with units > 2: 9; the
+    // 8 regions `top` folds locally; `narrow` fetches every row (its
+    // prefix is `columns` alone, then `by` runs locally).
+    assert_eq!(rows("falling"), 8, "{t}");
+    assert_eq!(rows("rising"), 8, "{t}");
+    assert_eq!(rows("shops"), 6, "{t}");
+    assert_eq!(rows("topped"), 8, "{t}");
+    assert_eq!(rows("rows"), 9, "{t}");
+    assert_eq!(rows("narrow"), 12, "{t}");
+    assert!(t.contains("received"), "{t}");
 }
 
 fn text_of(o: &Output) -> String {

@@ -2,14 +2,15 @@
 //! items read from PostgreSQL.
 //!
 //! The item is split like a streamed CSV file (see `loading.rs`): when
-//! nothing but views reads it and every view over it starts with `keep` or
-//! `by`, each view's prefix (its leading `keep`s and `add`s and at most one
-//! `by`) is
-//! printed as one SQL query by `crescendo_sql::print::prefix` and run in
+//! nothing but views reads it and every view over it starts with `keep`,
+//! `add`, `by`, `sort` or `columns`, each view's prefix (its leading `keep`s
+//! and `add`s, at most one `by`, then `keep`, `add`, `sort` and `columns`
+//! steps up to a `top` or a second `by`; see `database_prefix_len`) is
+//! printed as one SQL query by `crescendo_sql::print::pipeline` and run in
 //! the database, and only its result comes back; the data item itself has
 //! no rows. Otherwise (a chart or value reads the item itself, or a view
-//! starts with another step) the item's rows are fetched whole, in row
-//! order, and a warning says how many.
+//! starts with `top`) the item's rows are fetched whole, in row order, and
+//! a warning says how many.
 //!
 //! Everything runs in one read-only transaction per data item, with the
 //! statement timeout of [`DbOptions::timeout`]. Every failure is a located
@@ -311,12 +312,12 @@ impl Tables {
                             .at(src, decl.file.span.clone(), "read whole")
                             .note(
                                 "a chart or value reads this data item itself, or a view over \
-                                 it does not start with `keep` or `by`; views that start with \
-                                 them are computed in the database",
+                                 it starts with `top`; views that start with another step are \
+                                 computed in the database",
                             )
                             .help(format!(
-                                "point charts and values at views over `{name}` that start \
-                                 with `keep` or `by`"
+                                "point charts and values at views over `{name}`, and aggregate \
+                                 (`by`) before `top`"
                             )),
                         );
                         self.report.loaded.push(name.clone());
@@ -378,15 +379,46 @@ impl Tables {
                 return None;
             }
             let n = database_prefix_len(&v.steps);
-            let prefix: Vec<Step> = steps.get(..n)?.to_vec();
-            if prefix
-                .iter()
-                .any(|s| matches!(s, Step::Sort { .. } | Step::Top { .. }))
-            {
+            // The prefix as printed pieces: `columns` steps are not resolved
+            // steps, so their picks are found by name in the schema the
+            // steps before them give (run over the empty shell).
+            let mut pieces = Vec::new();
+            let mut resolved = steps.iter();
+            let mut schema = shell.clone();
+            for s in v.steps.get(..n)? {
+                match s {
+                    ast::StepAst::Columns { names, .. } => {
+                        let picked = names
+                            .iter()
+                            .map(|c| schema.columns.iter().position(|t| t.name == c.name))
+                            .collect::<Option<Vec<usize>>>()?;
+                        schema = Table {
+                            columns: picked
+                                .iter()
+                                .filter_map(|&i| schema.columns.get(i).cloned())
+                                .collect(),
+                        };
+                        pieces.push(print::Piece::Columns(picked));
+                    }
+                    _ => {
+                        let step = resolved.next()?.clone();
+                        schema = crescendo_data::run_view(&schema, std::slice::from_ref(&step));
+                        pieces.push(print::Piece::Step(step));
+                    }
+                }
+            }
+            if !print::pushable(&pieces) {
                 return None;
             }
-            let q = print::prefix_steps(from, order, cols, &prefix);
-            out.push((v.name.name.clone(), n, prefix.clone(), q));
+            let prefix: Vec<Step> = pieces
+                .iter()
+                .filter_map(|p| match p {
+                    print::Piece::Step(s) => Some(s.clone()),
+                    print::Piece::Columns(_) => None,
+                })
+                .collect();
+            let q = print::pipeline(from, order, cols, &pieces);
+            out.push((v.name.name.clone(), n, prefix, q));
         }
         Some(out)
     }

@@ -92,16 +92,23 @@ fn idents_of(x: &(impl Debug + ?Sized)) -> BTreeSet<String> {
 }
 
 /// Number of leading steps of a view over a database item that run in the
-/// database: `keep`s and `add`s, then one `by`.
+/// database: `keep`s and `add`s, at most one `by`, then `keep`, `add`,
+/// `sort` and `columns` steps (a `top` or a second `by` ends it).
 pub(crate) fn database_prefix_len(steps: &[StepAst]) -> usize {
-    let lead = steps
-        .iter()
-        .take_while(|s| matches!(s, StepAst::Keep { .. } | StepAst::Add { .. }))
-        .count();
-    match steps.get(lead) {
-        Some(StepAst::By { .. }) => lead + 1,
-        _ => lead,
+    // After the group (or a row-level `sort` or `columns`), only `keep`,
+    // `add`, `sort` and `columns` are printed: see `crescendo_sql::print::pushable`.
+    let mut after = false;
+    let mut n = 0;
+    for s in steps {
+        match s {
+            StepAst::Keep { .. } | StepAst::Add { .. } => {}
+            StepAst::By { .. } if !after => after = true,
+            StepAst::Sort { .. } | StepAst::Columns { .. } => after = true,
+            _ => break,
+        }
+        n += 1;
     }
+    n
 }
 
 /// Every name used as the table of a chart (`line NAME: …`), a plugin

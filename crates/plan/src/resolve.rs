@@ -693,6 +693,20 @@ pub(crate) fn build_view_inner(
                 columns: picked.iter().map(|&i| table.columns[i].clone()).collect(),
             };
             counts.retain(|c| table.columns.iter().any(|t| t.name == *c));
+            // A prefix computed in the database may end with `columns`.
+            if let Some(p) = prefix.filter(|p| index + 1 == p.ast_steps) {
+                if *resolved_steps != p.steps {
+                    diags.push(Diagnostic::error(
+                        "internal",
+                        format!(
+                            "view `{}` resolved differently while its data was streamed",
+                            decl.name.name
+                        ),
+                    ));
+                    return None;
+                }
+                table = p.table.clone();
+            }
             continue;
         }
         let resolved = match step {

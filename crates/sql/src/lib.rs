@@ -3,14 +3,15 @@
 //! A `data` item may read a table or a read-only query of a PostgreSQL
 //! database (or any engine that speaks its protocol) instead of a CSV file.
 //! The views over it are split as the streaming reader splits them (see
-//! `crates/plan/src/loading.rs`): each view's leading `keep` steps and at
-//! most one `by` step form its *prefix*, a small relational plan (scan,
-//! filter, group/aggregate, ordered by first appearance) that has two
-//! executors: the local engine (`crescendo_data::stream`/`view`) and
-//! [`print::prefix`], which prints it as one SQL query. Only the prefix's
-//! result (one row per group) crosses the network; the view's later steps
-//! (`add`, `sort`, `columns`, `top`) run locally on it, as they do for a
-//! streamed CSV file.
+//! `crates/plan/src/loading.rs`): each view's leading `keep` and `add`
+//! steps and at most one `by` step, then its `keep`, `add`, `sort` and
+//! `columns` steps, form its *prefix*, a small relational plan (scan,
+//! filter, derive, group/aggregate, sort, project, ordered by first
+//! appearance) that has two executors: the local engine
+//! (`crescendo_data::stream`/`view`) and [`print::pipeline`], which prints
+//! it as one SQL query. Only the prefix's result crosses the network; the
+//! view's later steps (`top`, a second `by` and what follows them) run
+//! locally on it, as they do for a streamed CSV file.
 //!
 //! * [`types`]: database column types → the story's types.
 //! * [`print`]: the SQL printer. Values from the story are bound parameters

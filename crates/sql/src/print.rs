@@ -1,5 +1,6 @@
 //! The SQL printer: a view prefix (filters, then at most one group with its
-//! aggregates) as one PostgreSQL query that reproduces the local engine.
+//! aggregates, then filters, derived columns, sorts and projections; see
+//! [`pipeline`]) as one PostgreSQL query that reproduces the local engine.
 //!
 //! The query reads the source through an inner select that names every
 //! column `c0`, `c1`, … (in the order of the data item's columns) and adds
@@ -30,6 +31,9 @@
 //! | `min`/`max` (texts by bytes)                     | `min`/`max` (`COLLATE "C"`)                  |
 //! | `first`/`last`: first/last non-missing in row order | `array_agg(… ORDER BY r) FILTER (WHERE … IS NOT NULL)` |
 //! | `count()`, `count(x)`                           | `count(*)`, `count(x)`                       |
+//! | `sort`: stable, missing last both ways          | `row_number() OVER (ORDER BY k … NULLS LAST, r)` |
+//! | `columns`                                       | the outer select list                        |
+//! | `top`, a second `by` (exact sums of doubles)    | not printed: run locally                     |
 //!
 //! Every output is sent as text and parsed by [`crate::decode`], so numbers
 //! arrive exactly (numeric text, or the shortest text that reads back as
@@ -39,7 +43,10 @@
 //! the stored decimals (of the shortest texts, for doubles), where the
 //! local engine sums the nearest doubles exactly — the two can differ in
 //! the last bit; an arithmetic overflow is an error in PostgreSQL where the
-//! engine gives a missing value; `-0` and `0` compare equal in SQL.
+//! engine gives a missing value (so is an underflow of a mean or a median
+//! after a group); `-0` and `0` compare equal in SQL (a sort tells them
+//! apart as the engine does); dates and months compare as their ISO text,
+//! which is their order for years 0 to 9999.
 
 use crescendo_data::{AggFn, Aggregate, ArithOp, CmpOp, ColType, Expr, Step, Value};
 
@@ -313,11 +320,17 @@ pub fn prefix(
     prefix_steps(from, order, cols, &steps)
 }
 
-/// Print a view prefix made of `keep` and `add` steps, then at most one
-/// group (steps after the group, and sorts or top-N anywhere, are not
-/// printed: they run locally). An `add` column is its expression, inlined
-/// where it is used (its parameters are shared, not bound twice).
-pub fn prefix_steps(from: &From, order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Query {
+/// The start of every query: the printer over the source's columns, the
+/// inner select list (`c0`, `c1`, …, `r`), the leading `keep`s (as
+/// predicates; `add` columns are inlined) and the first group, if any.
+type Start = (
+    Printer,
+    Vec<String>,
+    Vec<String>,
+    Option<(Vec<usize>, Vec<Aggregate>)>,
+);
+
+fn start(order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Start {
     let mut p = Printer {
         cols: cols
             .iter()
@@ -391,12 +404,22 @@ pub fn prefix_steps(from: &From, order: &RowOrder, cols: &[SrcColumn], steps: &[
                 });
             }
             Step::Group { keys, aggregates } => {
-                group = Some((keys.as_slice(), aggregates.as_slice()));
+                group = Some((keys.clone(), aggregates.clone()));
                 break;
             }
             Step::Sort { .. } | Step::Top { .. } => break,
         }
     }
+    (p, inner, preds, group)
+}
+
+/// Print a view prefix made of `keep` and `add` steps, then at most one
+/// group (later steps are not printed here: see [`pipeline`]). An `add`
+/// column is its expression, inlined where it is used (its parameters are
+/// shared, not bound twice).
+pub fn prefix_steps(from: &From, order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Query {
+    let (p, inner, preds, group) = start(order, cols, steps);
+    let group = group.as_ref().map(|(k, a)| (k.as_slice(), a.as_slice()));
     let mut outputs = Vec::new();
     let mut select = Vec::new();
     let mut tail = String::new();
@@ -510,6 +533,331 @@ pub fn prefix_steps(from: &From, order: &RowOrder, cols: &[SrcColumn], steps: &[
         params: p.params,
         outputs,
     }
+}
+
+/// A step of a pushed pipeline: a resolved step, or `columns` (the picked
+/// columns, by position).
+#[derive(Clone, Debug, PartialEq)]
+pub enum Piece {
+    Step(Step),
+    Columns(Vec<usize>),
+}
+
+/// Whether [`pipeline`] prints `pieces` whole: leading `keep`s and `add`s,
+/// at most one group, and after it (or after a row-level `sort` or
+/// `columns`) only `keep`, `add`, `sort` and `columns`. A `top` and a
+/// second group are never printed (see the module docs).
+pub fn pushable(pieces: &[Piece]) -> bool {
+    let mut grouped_or_reordered = false;
+    pieces.iter().all(|piece| match piece {
+        Piece::Step(Step::Keep(_) | Step::Derive { .. }) => true,
+        Piece::Step(Step::Group { .. }) if !grouped_or_reordered => {
+            grouped_or_reordered = true;
+            true
+        }
+        Piece::Step(Step::Sort { .. }) | Piece::Columns(_) => {
+            grouped_or_reordered = true;
+            true
+        }
+        Piece::Step(Step::Group { .. } | Step::Top { .. }) => false,
+    })
+}
+
+impl Printer {
+    /// Column `i` as an `ORDER BY` term of a stable sort: missing last in
+    /// both directions; texts by bytes; `-0` before `0` ascending (as
+    /// `f64::total_cmp`, which SQL's float order does not tell apart).
+    fn sort_terms(&self, i: usize, desc: bool) -> Vec<String> {
+        let dir = if desc { "DESC" } else { "ASC" };
+        match self.cols.get(i) {
+            Some(c) => match c.ty {
+                ColType::Number => {
+                    let x = format!("{}::double precision", c.sql);
+                    let neg_first = if desc { "ASC" } else { "DESC" };
+                    vec![
+                        format!("{x} {dir} NULLS LAST"),
+                        format!("({x} = 0 AND {x}::text LIKE '-%') {neg_first} NULLS LAST"),
+                    ]
+                }
+                ColType::Year => vec![format!("{} {dir} NULLS LAST", c.sql)],
+                ColType::Text | ColType::Month | ColType::Date => {
+                    vec![format!("({} COLLATE \"C\") {dir} NULLS LAST", c.sql)]
+                }
+            },
+            None => Vec::new(),
+        }
+    }
+
+    /// The typed value of aggregate `a` of a group (numbers as doubles,
+    /// equal to what [`crate::decode`] makes of the prefix query's cells).
+    fn aggregate_value(&self, a: &Aggregate) -> (String, ColType) {
+        let in_ty = a.column.map_or(ColType::Number, |c| self.col_ty(c));
+        let c = a.column.map(|c| self.sql(c));
+        let typed = |text: String, ty: ColType| match ty {
+            ColType::Number => format!("({text})::double precision"),
+            ColType::Year => format!("({text})::integer"),
+            _ => text,
+        };
+        match (a.func, a.column, c) {
+            (AggFn::Count, None, _) => ("count(*)::double precision".into(), ColType::Number),
+            (_, None, _) | (_, _, None) => ("NULL::double precision".into(), ColType::Number),
+            (AggFn::Count, Some(_), Some(c)) => {
+                (format!("count({c})::double precision"), ColType::Number)
+            }
+            (AggFn::Sum, Some(i), Some(_)) => (
+                format!("sum({})::double precision", self.exact(i)),
+                ColType::Number,
+            ),
+            (AggFn::Mean, Some(i), Some(c)) => (
+                format!(
+                    "(sum({})::double precision / NULLIF(count({c}), 0)::double precision)",
+                    self.exact(i)
+                ),
+                ColType::Number,
+            ),
+            (AggFn::Median, Some(_), Some(c)) => {
+                let lo =
+                    format!("(percentile_disc(0.5) WITHIN GROUP (ORDER BY {c}::double precision))");
+                let hi = format!(
+                    "(percentile_disc(0.5) WITHIN GROUP (ORDER BY {c}::double precision DESC))"
+                );
+                (
+                    format!(
+                        "(CASE WHEN count({c}) % 2 = 1 THEN {lo} ELSE {lo} / 2 + {hi} / 2 END)"
+                    ),
+                    ColType::Number,
+                )
+            }
+            (AggFn::Min | AggFn::Max, Some(i), Some(_)) => {
+                let f = if a.func == AggFn::Min { "min" } else { "max" };
+                (typed(format!("{f}({})", self.sortable(i)), in_ty), in_ty)
+            }
+            (AggFn::First | AggFn::Last, Some(_), Some(c)) => {
+                let dir = if a.func == AggFn::First { "" } else { " DESC" };
+                (
+                    typed(
+                        format!(
+                            "(array_agg({c}::text ORDER BY s.r{dir}) FILTER (WHERE {c} IS NOT NULL))[1]"
+                        ),
+                        in_ty,
+                    ),
+                    in_ty,
+                )
+            }
+        }
+    }
+
+    /// The groups' order: first appearance, ties (rows without a position)
+    /// by the keys.
+    fn group_order(&self, keys: &[usize]) -> String {
+        let ties: Vec<String> = keys
+            .iter()
+            .map(|&k| match self.col_ty(k) {
+                ColType::Number => format!("{} NULLS LAST", self.key(k)),
+                _ => format!("{} NULLS LAST", self.sortable(k)),
+            })
+            .collect();
+        let mut all = vec!["min(s.r) NULLS LAST".to_string()];
+        all.extend(ties);
+        all.join(", ")
+    }
+
+    /// Select the current columns as `v0`, `v1`, … and `r` from `rel`
+    /// (aliased `t{k}`), with an optional filter; the columns then read the
+    /// new relation `t{k+1}`.
+    fn wrap(&mut self, rel: &str, k: usize, r: &str, filter: Option<String>) -> String {
+        let mut select: Vec<String> = self
+            .cols
+            .iter()
+            .enumerate()
+            .map(|(i, c)| format!("{} AS v{i}", c.sql))
+            .collect();
+        select.push(format!("{r} AS r"));
+        let filter = filter.map_or_else(String::new, |f| format!(" WHERE {f}"));
+        for (i, c) in self.cols.iter_mut().enumerate() {
+            c.sql = format!("t{}.v{i}", k + 1);
+        }
+        format!(
+            "(SELECT {} FROM {rel}{filter}) AS t{}",
+            select.join(", "),
+            k + 1
+        )
+    }
+}
+
+/// Print a whole view pipeline (see [`pushable`]) as one query. Without
+/// steps after the leading `keep`s, `add`s and group, this is
+/// [`prefix_steps`]. Otherwise the group (or the filtered rows) becomes a
+/// relation of typed values (numbers as doubles, exactly the values the
+/// local engine computes) with a row position `r` (the groups' order of
+/// first appearance); each later step reads the previous one: `keep` is a
+/// `WHERE`, `add` an inlined expression, `columns` a projection, and `sort`
+/// renumbers `r` by `row_number() OVER (ORDER BY keys…, r)` (stable, missing
+/// last in both directions, texts by bytes). The query ends with
+/// `ORDER BY r`, so the rows arrive in the view's order and are decoded
+/// as they are.
+pub fn pipeline(from: &From, order: &RowOrder, cols: &[SrcColumn], pieces: &[Piece]) -> Query {
+    let mut head: Vec<Step> = Vec::new();
+    for piece in pieces {
+        match piece {
+            Piece::Step(s @ (Step::Keep(_) | Step::Derive { .. })) => head.push(s.clone()),
+            Piece::Step(s @ Step::Group { .. }) => {
+                head.push(s.clone());
+                break;
+            }
+            _ => break,
+        }
+    }
+    let later = pieces.get(head.len()..).unwrap_or_default();
+    if later.is_empty() {
+        return prefix_steps(from, order, cols, &head);
+    }
+    let (mut p, inner, preds, group) = start(order, cols, &head);
+    let filter = if preds.is_empty() {
+        String::new()
+    } else {
+        format!(" WHERE {}", preds.join(" AND "))
+    };
+    let source = format!(
+        "(SELECT {} FROM {}) AS s",
+        inner.join(", "),
+        from_clause(from)
+    );
+    // The first relation `t0`: the groups, or the filtered rows.
+    let mut select: Vec<String> = Vec::new();
+    let mut typed: Vec<Col> = Vec::new();
+    let base = match &group {
+        Some((keys, aggs)) => {
+            for &k in keys {
+                select.push(p.key(k));
+                typed.push(Col {
+                    sql: String::new(),
+                    ty: p.col_ty(k),
+                    float: true,
+                    name: p.cols.get(k).map_or(String::new(), |c| c.name.clone()),
+                });
+            }
+            for a in aggs {
+                let (sql, ty) = p.aggregate_value(a);
+                select.push(sql);
+                typed.push(Col {
+                    sql: String::new(),
+                    ty,
+                    float: true,
+                    name: a.name.clone(),
+                });
+            }
+            if keys.is_empty() {
+                select.push("1 AS r".to_string());
+                format!("SELECT {} FROM {source}{filter}", select_list(&select))
+            } else {
+                let ks: Vec<String> = keys.iter().map(|&k| p.key(k)).collect();
+                select.push(format!(
+                    "row_number() OVER (ORDER BY {}) AS r",
+                    p.group_order(keys)
+                ));
+                format!(
+                    "SELECT {} FROM {source}{filter} GROUP BY {}",
+                    select_list(&select),
+                    ks.join(", ")
+                )
+            }
+        }
+        None => {
+            for i in 0..p.cols.len() {
+                select.push(p.value(&Expr::Col(i)));
+                typed.push(Col {
+                    sql: String::new(),
+                    ty: p.col_ty(i),
+                    float: true,
+                    name: p.cols.get(i).map_or(String::new(), |c| c.name.clone()),
+                });
+            }
+            select.push("row_number() OVER (ORDER BY s.r NULLS LAST) AS r".to_string());
+            format!("SELECT {} FROM {source}{filter}", select_list(&select))
+        }
+    };
+    for (i, c) in typed.iter_mut().enumerate() {
+        c.sql = format!("t0.v{i}");
+    }
+    p.cols = typed;
+    let mut rel = format!("({base}) AS t0");
+    let mut k = 0;
+    for piece in later {
+        match piece {
+            Piece::Step(Step::Keep(e)) => {
+                let pred = p.truth(e);
+                rel = p.wrap(&rel, k, &format!("t{k}.r"), Some(pred));
+                k += 1;
+            }
+            Piece::Step(Step::Derive { name, expr }) => {
+                let sql = p.number(expr);
+                p.cols.push(Col {
+                    sql,
+                    ty: ColType::Number,
+                    float: true,
+                    name: name.clone(),
+                });
+            }
+            Piece::Columns(picked) => {
+                p.cols = picked
+                    .iter()
+                    .filter_map(|&i| p.cols.get(i))
+                    .map(|c| Col {
+                        sql: c.sql.clone(),
+                        ty: c.ty,
+                        float: c.float,
+                        name: c.name.clone(),
+                    })
+                    .collect();
+            }
+            Piece::Step(Step::Sort { keys }) => {
+                let mut terms: Vec<String> = keys
+                    .iter()
+                    .flat_map(|&(i, desc)| p.sort_terms(i, desc))
+                    .collect();
+                terms.push(format!("t{k}.r"));
+                let r = format!("row_number() OVER (ORDER BY {})", terms.join(", "));
+                rel = p.wrap(&rel, k, &r, None);
+                k += 1;
+            }
+            // Not printed (see `pushable`); the caller runs them locally.
+            Piece::Step(Step::Group { .. } | Step::Top { .. }) => break,
+        }
+    }
+    let mut outputs = Vec::new();
+    let mut select = Vec::new();
+    for c in &p.cols {
+        select.push(format!("{}::text", c.sql));
+        outputs.push(Output::Value {
+            name: c.name.clone(),
+            ty: c.ty,
+        });
+    }
+    if select.is_empty() {
+        select.push("NULL::text".to_string());
+    }
+    Query {
+        sql: format!("SELECT {} FROM {rel} ORDER BY t{k}.r", select.join(", ")),
+        params: p.params,
+        outputs,
+    }
+}
+
+/// `select` as `e0 AS v0, e1 AS v1, …` (an `… AS r` item kept as is).
+fn select_list(select: &[String]) -> String {
+    select
+        .iter()
+        .enumerate()
+        .map(|(i, e)| {
+            if e.ends_with(" AS r") {
+                e.clone()
+            } else {
+                format!("{e} AS v{i}")
+            }
+        })
+        .collect::<Vec<_>>()
+        .join(", ")
 }
 
 #[cfg(test)]
@@ -764,5 +1112,118 @@ mod tests {
         );
         assert!(!q.sql.contains("GROUP BY"));
         assert_eq!(q.outputs, vec![Output::Median { name: "m".into() }]);
+    }
+
+    /// A group followed by `sort` (both directions), `add`, `keep` and
+    /// `columns`: one query whose relations carry the row position `r`
+    /// and which ends with `ORDER BY` it (snapshot, read by a person).
+    #[test]
+    fn later_steps_print_over_typed_groups() {
+        let agg = |name: &str, func, column| Aggregate {
+            name: name.into(),
+            func,
+            column,
+        };
+        let pieces = vec![
+            Piece::Step(Step::Group {
+                keys: vec![1],
+                aggregates: vec![
+                    agg("total", AggFn::Sum, Some(2)),
+                    agg("avg", AggFn::Mean, Some(2)),
+                    agg("mid", AggFn::Median, Some(2)),
+                    agg("since", AggFn::Min, Some(0)),
+                    agg("n", AggFn::Count, None),
+                ],
+            }),
+            Piece::Step(Step::Sort {
+                keys: vec![(2, true), (1, false)],
+            }),
+            Piece::Step(Step::Derive {
+                name: "share".into(),
+                expr: Expr::Arith(
+                    ArithOp::Div,
+                    Box::new(Expr::Col(1)),
+                    Box::new(Expr::Lit(Value::Number(4.0))),
+                ),
+            }),
+            Piece::Step(Step::Keep(Expr::Cmp(
+                CmpOp::Gt,
+                Box::new(Expr::Col(6)),
+                Box::new(Expr::Lit(Value::Number(1.0))),
+            ))),
+            Piece::Columns(vec![0, 6, 4]),
+        ];
+        assert!(pushable(&pieces));
+        let q = pipeline(
+            &From::Table {
+                schema: None,
+                name: "t".into(),
+            },
+            &RowOrder {
+                columns: vec![("line".into(), false)],
+            },
+            &cols(),
+            &pieces,
+        );
+        assert!(q.sql.ends_with(" ORDER BY t2.r"), "{}", q.sql);
+        assert_eq!(q.params, vec!["4.0".to_string(), "1.0".to_string()]);
+        assert_eq!(
+            q.outputs,
+            vec![
+                Output::Value {
+                    name: "po\"ol; x".into(),
+                    ty: ColType::Text
+                },
+                Output::Value {
+                    name: "share".into(),
+                    ty: ColType::Number
+                },
+                Output::Value {
+                    name: "since".into(),
+                    ty: ColType::Month
+                },
+            ]
+        );
+        let shown = q
+            .sql
+            .replace(" FROM ", "\nFROM ")
+            .replace(" WHERE ", "\nWHERE ")
+            .replace(" GROUP BY ", "\nGROUP BY ")
+            .replace(" ORDER BY t", "\nORDER BY t");
+        insta::assert_snapshot!(shown);
+    }
+
+    #[test]
+    fn only_exact_steps_are_pushable_and_a_bare_prefix_prints_as_before() {
+        let group = Piece::Step(Step::Group {
+            keys: vec![0],
+            aggregates: Vec::new(),
+        });
+        let top = Piece::Step(Step::Top {
+            key: 0,
+            by: 1,
+            n: 3,
+            rest: "Other".into(),
+        });
+        let sort = Piece::Step(Step::Sort {
+            keys: vec![(0, false)],
+        });
+        assert!(pushable(&[sort.clone(), Piece::Columns(vec![0])]));
+        assert!(pushable(&[group.clone(), sort.clone()]));
+        assert!(!pushable(&[group.clone(), sort.clone(), group.clone()]));
+        assert!(!pushable(&[sort.clone(), group.clone()]));
+        assert!(!pushable(&[group.clone(), top.clone()]));
+        assert!(!pushable(&[top]));
+        let from = From::Table {
+            schema: None,
+            name: "t".into(),
+        };
+        let Piece::Step(g) = group.clone() else {
+            unreachable!()
+        };
+        assert_eq!(
+            pipeline(&from, &RowOrder::default(), &cols(), &[group]),
+            prefix_steps(&from, &RowOrder::default(), &cols(), &[g])
+        );
     }
 }
