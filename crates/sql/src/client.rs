@@ -3,8 +3,8 @@
 //!
 //! The connection string comes from an environment variable; it and its
 //! password never appear in a message ([`redact`]). TLS: `sslmode=require`
-//! in the connection string connects over TLS (native-tls, the system's
-//! OpenSSL, certificates verified against the system's roots);
+//! in the connection string connects over TLS (rustls with the ring
+//! provider, certificates verified against the system's roots);
 //! `sslmode=disable` and `sslmode=prefer` (the default) connect without it.
 
 use std::time::Duration;
@@ -131,11 +131,11 @@ impl Session {
         }
         let client = match cfg.get_ssl_mode() {
             SslMode::Require => {
-                let tls = native_tls::TlsConnector::new().map_err(|e| SessionError {
+                let tls = tls_config().map_err(|e| SessionError {
                     message: redact(&format!("TLS is not available: {e}"), conn),
                     source_problem: false,
                 })?;
-                cfg.connect(postgres_native_tls::MakeTlsConnector::new(tls))
+                cfg.connect(tokio_postgres_rustls::MakeRustlsConnect::new(tls))
             }
             _ => cfg.connect(NoTls),
         }
@@ -210,6 +210,27 @@ impl Session {
     pub fn close(mut self) {
         let _ = self.client.batch_execute("ROLLBACK");
     }
+}
+
+/// TLS for `sslmode=require`: rustls (with the ring provider) verifying the
+/// server's certificate against the system's root certificates. Pure Rust
+/// apart from ring's own C, so building crescendo needs no system OpenSSL.
+fn tls_config() -> Result<rustls::ClientConfig, String> {
+    let mut roots = rustls::RootCertStore::empty();
+    let found = rustls_native_certs::load_native_certs();
+    for cert in found.certs {
+        // a certificate the store cannot parse is skipped, as browsers do
+        let _ = roots.add(cert);
+    }
+    if roots.is_empty() {
+        return Err("no root certificates were found on this system".into());
+    }
+    let provider = std::sync::Arc::new(rustls::crypto::ring::default_provider());
+    Ok(rustls::ClientConfig::builder_with_provider(provider)
+        .with_safe_default_protocol_versions()
+        .map_err(|e| e.to_string())?
+        .with_root_certificates(roots)
+        .with_no_client_auth())
 }
 
 #[cfg(test)]
