@@ -35,6 +35,9 @@ struct Cluster {
     data: PathBuf,
     port: u16,
     as_postgres: bool,
+    /// The certificate of the test CA that signed the server's certificate
+    /// (the server speaks TLS; `tls_reader` may connect only over it).
+    ca: PathBuf,
 }
 
 impl Cluster {
@@ -180,15 +183,18 @@ fn start() -> Result<Cluster, String> {
             String::from_utf8_lossy(&out.stderr)
         ));
     }
+    let ca = serve_tls(&base, &data, as_postgres)?;
     let port = free_port();
     let cluster = Cluster {
         bin,
         data: base.clone(),
         port,
         as_postgres,
+        ca,
     };
     let opts = format!(
-        "-p {port} -k {} -c listen_addresses=127.0.0.1 -c fsync=off -c synchronous_commit=off -c full_page_writes=off",
+        "-p {port} -k {} -c listen_addresses=127.0.0.1 -c fsync=off -c synchronous_commit=off -c full_page_writes=off \
+         -c ssl=on -c ssl_cert_file=server.crt -c ssl_key_file=server.key",
         data.display()
     );
     let log = base.join("log");
@@ -210,6 +216,60 @@ fn start() -> Result<Cluster, String> {
         ));
     }
     Ok(cluster)
+}
+
+/// Give the cluster a certificate for 127.0.0.1 signed by a test CA made
+/// here (rcgen), and let the role `tls_reader` in only over TLS (pg_hba:
+/// `hostnossl … reject` before `hostssl`). Returns the CA certificate's
+/// path, for `SSL_CERT_FILE`.
+fn serve_tls(base: &Path, data: &Path, as_postgres: bool) -> Result<PathBuf, String> {
+    let err = |e: rcgen::Error| format!("test certificates: {e}");
+    let mut ca_params = rcgen::CertificateParams::new(Vec::<String>::new()).map_err(err)?;
+    ca_params.is_ca = rcgen::IsCa::Ca(rcgen::BasicConstraints::Unconstrained);
+    ca_params
+        .distinguished_name
+        .push(rcgen::DnType::CommonName, "crescendo test CA");
+    let ca_key = rcgen::KeyPair::generate().map_err(err)?;
+    let ca_cert = ca_params.self_signed(&ca_key).map_err(err)?;
+    let issuer = rcgen::Issuer::new(ca_params, ca_key);
+    let params = rcgen::CertificateParams::new(vec!["127.0.0.1".to_string()]).map_err(err)?;
+    let key = rcgen::KeyPair::generate().map_err(err)?;
+    let cert = params.signed_by(&key, &issuer).map_err(err)?;
+    let io = |e: std::io::Error| e.to_string();
+    std::fs::write(data.join("server.crt"), cert.pem()).map_err(io)?;
+    std::fs::write(data.join("server.key"), key.serialize_pem()).map_err(io)?;
+    let ca = base.join("ca.crt");
+    std::fs::write(&ca, ca_cert.pem()).map_err(io)?;
+    {
+        use std::os::unix::fs::PermissionsExt;
+        std::fs::set_permissions(
+            data.join("server.key"),
+            std::fs::Permissions::from_mode(0o600),
+        )
+        .map_err(io)?;
+    }
+    let hba = data.join("pg_hba.conf");
+    let rest = std::fs::read_to_string(&hba).map_err(io)?;
+    std::fs::write(
+        &hba,
+        format!(
+            "hostnossl all tls_reader 127.0.0.1/32 reject\n\
+             hostssl all tls_reader 127.0.0.1/32 scram-sha-256\n{rest}"
+        ),
+    )
+    .map_err(io)?;
+    if as_postgres {
+        let s = Command::new("chown")
+            .arg("postgres:postgres")
+            .arg(data.join("server.crt"))
+            .arg(data.join("server.key"))
+            .status()
+            .map_err(io)?;
+        if !s.success() {
+            return Err("cannot hand the server's key to the postgres user".into());
+        }
+    }
+    Ok(ca)
 }
 
 /// Run crescendo with `env` set.
@@ -906,9 +966,15 @@ fn faults(cluster: &Cluster) {
     client
         .batch_execute(
             "DROP TABLE IF EXISTS faults_t; CREATE TABLE faults_t (line integer, k text, v numeric);
-             INSERT INTO faults_t VALUES (1, 'a', 1), (2, 'b', 2), (3, 'a', 3);",
+             INSERT INTO faults_t VALUES (1, 'a', 1), (2, 'b', 2), (3, 'a', 3);
+             DROP ROLE IF EXISTS tls_reader;",
         )
         .expect("faults fixture");
+    client
+        .batch_execute(&format!(
+            "CREATE ROLE tls_reader LOGIN PASSWORD '{PASSWORD}'; GRANT SELECT ON faults_t TO tls_reader;"
+        ))
+        .expect("tls role");
     let dir = root().join("target").join("pgfaults");
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).expect("mkdir");
@@ -982,13 +1048,44 @@ fn faults(cluster: &Cluster) {
         &[],
         "does not exist",
     );
-    // TLS demanded from a server without it.
+    // TLS to a server whose certificate no trusted root signed: refused
+    // (the test CA is not among the system's roots).
+    let tls_conn = format!(
+        "host=127.0.0.1 port={} user=tls_reader password={PASSWORD} dbname=postgres sslmode=require",
+        cluster.port
+    );
     check(
-        "TLS required",
+        "TLS with an untrusted certificate",
         &good,
-        &format!("{conn} sslmode=require"),
+        &tls_conn,
         &[],
-        "TLS",
+        "certificate",
+    );
+    // The same with the test CA trusted (rustls-native-certs reads
+    // SSL_CERT_FILE): the build succeeds over TLS, and gives the same deck.
+    // `tls_reader` is refused without TLS, so this build did use it.
+    let ca = cluster.ca.to_str().expect("utf-8 path");
+    let over_tls = run(
+        &dir,
+        &["build", "story.cresc", "--no-cache"],
+        &[
+            ("CRESCENDO_TEST_DB", tls_conn.as_str()),
+            ("SSL_CERT_FILE", ca),
+        ],
+    );
+    assert!(over_tls.status.success(), "over TLS: {}", text(&over_tls));
+    assert_eq!(
+        read_dir_files(&deck),
+        before,
+        "the deck built over TLS differs"
+    );
+    let plain = tls_conn.replace("sslmode=require", "sslmode=disable");
+    check(
+        "TLS refused by the role",
+        &good,
+        &plain,
+        &[],
+        "no encryption",
     );
     // A column whose database type the story cannot read.
     client

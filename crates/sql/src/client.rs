@@ -107,6 +107,12 @@ fn describe(e: &postgres::Error, conn: &str, timeout: Duration) -> SessionError 
             }
             cause = c.source();
         }
+        if m.contains("invalid peer certificate") {
+            m.push_str(
+                " (the server's certificate is not signed by a root certificate this machine \
+                 trusts; set SSL_CERT_FILE to the file of your organisation's CA)",
+            );
+        }
         m
     };
     SessionError {
