@@ -105,8 +105,35 @@ pub fn configure(cache: Option<&Path>) {
     }
 }
 
+/// Delete the view and data entries of the planner's cache that the build
+/// just finished did not use (stale after a data refresh or an edited
+/// view). Runs only after a good build; an unreadable report prunes
+/// nothing.
+fn prune_planner_cache() {
+    let Some(dir) = planner_cache() else { return };
+    let Some(r) = Cache::new(&dir).get::<crescendo_plan::LoadReport>("report", "last") else {
+        return;
+    };
+    let used: BTreeSet<&str> = r.cache_keys.iter().map(String::as_str).collect();
+    for kind in ["views", "data"] {
+        let Ok(entries) = std::fs::read_dir(dir.join(kind)) else {
+            continue;
+        };
+        for e in entries.flatten() {
+            let name = e.file_name().to_string_lossy().into_owned();
+            let Some(key) = name.strip_suffix(".json") else {
+                continue;
+            };
+            if !used.contains(format!("{kind}/{key}").as_str()) {
+                let _ = std::fs::remove_file(e.path());
+            }
+        }
+    }
+}
+
 /// End a build: lines saying what was recomputed and redrawn.
 pub fn summary() -> Vec<String> {
+    prune_planner_cache();
     let views = views_line();
     let frames = finish();
     let mut out = Vec::new();

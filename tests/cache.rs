@@ -208,6 +208,43 @@ fn a_data_change_recomputes_exactly_its_views() {
     );
 }
 
+fn entries(dir: &Path, kind: &str) -> usize {
+    fs::read_dir(dir.join(".crescendo-cache/deck").join(kind))
+        .map(|d| d.count())
+        .unwrap_or(0)
+}
+
+#[test]
+fn stale_view_entries_are_pruned_after_a_good_build() {
+    let dir = scratch("cache-prune");
+    write_story(&dir, 0);
+    build(&dir, "deck", &[]);
+    let (views, data) = (entries(&dir, "views"), entries(&dir, "data"));
+    // three streamed views (two over trips, one over fares), two files
+    assert_eq!((views, data), (3, 2));
+    // five monthly refreshes of trips: the cache keeps only what the last
+    // build used instead of growing by two views and a file each time
+    for bump in 1..=5 {
+        write_story(&dir, bump);
+        build(&dir, "deck", &[]);
+        assert_eq!(
+            (entries(&dir, "views"), entries(&dir, "data")),
+            (3, 2),
+            "after refresh {bump}"
+        );
+    }
+    // and what is left is what the next build reads
+    build(&dir, "deck", &[]);
+    let r = report(&dir, "deck");
+    assert_eq!(names(&r["computed_views"]), Vec::<String>::new());
+    assert_eq!(names(&r["cached_views"]).len(), 3);
+    // a failed build prunes nothing
+    fs::write(dir.join("story.cresc"), "story \"Broken\"\nframe {\n").unwrap();
+    let run = crescendo(&dir, &["build", "story.cresc", "--out", "deck"]);
+    assert!(!run.status.success());
+    assert_eq!((entries(&dir, "views"), entries(&dir, "data")), (3, 2));
+}
+
 #[test]
 fn editing_one_frame_redraws_only_it() {
     let dir = scratch("cache-frames");

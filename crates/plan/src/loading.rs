@@ -471,8 +471,14 @@ impl Tables {
                     .insert((name.clone(), col.clone()), (*row, text.clone()));
             }
         }
-        for (i, ((view, n, steps, _, _), table)) in prefixes.into_iter().zip(tables).enumerate() {
+        if let Some(k) = &data_key {
+            self.report.cache_keys.push(format!("data/{k}"));
+        }
+        for (i, ((view, n, steps, _, key), table)) in prefixes.into_iter().zip(tables).enumerate() {
             let table = table?;
+            if let Some(k) = key {
+                self.report.cache_keys.push(format!("views/{k}"));
+            }
             if missing.contains(&i) {
                 self.report.computed_views.push(view.clone());
             } else {

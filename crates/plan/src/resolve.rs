@@ -65,6 +65,11 @@ pub struct LoadReport {
     pub cached_views: Vec<String>,
     /// Views whose streamed prefix was computed by this build.
     pub computed_views: Vec<String>,
+    /// The cache entries this build read or wrote (`views/KEY`,
+    /// `data/KEY`); the command deletes the others after a good build, so
+    /// the cache does not grow with every data refresh.
+    #[serde(default)]
+    pub cache_keys: Vec<String>,
 }
 
 /// A streamed view prefix: the steps it resolved to and its table.
