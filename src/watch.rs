@@ -20,7 +20,7 @@
 use std::collections::BTreeSet;
 use std::io::{BufRead, BufReader, Read, Write};
 use std::net::{TcpListener, TcpStream};
-use std::path::{Component, Path, PathBuf};
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::sync::atomic::{AtomicU64, Ordering};
 use std::sync::{mpsc, Arc};
@@ -45,18 +45,8 @@ fn absolute(p: &Path) -> PathBuf {
     } else {
         std::env::current_dir().unwrap_or_default().join(p)
     };
-    // Normalise `.` and `..` without requiring the file to exist.
-    let mut out = PathBuf::new();
-    for c in p.components() {
-        match c {
-            Component::CurDir => {}
-            Component::ParentDir => {
-                out.pop();
-            }
-            other => out.push(other),
-        }
-    }
-    out
+    // `.` and `..` taken out, without requiring the file to exist
+    crescendo_plan::paths::normalise(&p)
 }
 
 /// The story, its data files (or their `--data` replacements), its style

@@ -268,20 +268,26 @@ impl<'a> Printer<'a> {
             if !inside && !follows {
                 break;
             }
-            if !first {
-                // a second comment inside the node: its own line
-                self.newline();
-                self.indent();
-                self.s(CONTINUE);
-            } else {
-                self.s("  ");
-            }
-            let text = self.src[c.clone()].trim_end().to_string();
-            self.s(&text);
-            self.next += 1;
+            // a second comment inside the node goes on its own line
+            self.comment(&c, first);
             first = false;
         }
         self.last_end = self.last_end.max(end);
+    }
+
+    /// Write the next comment, `c`: after two spaces on the current line
+    /// when it is the `first` there, else on a line of its own.
+    fn comment(&mut self, c: &std::ops::Range<usize>, first: bool) {
+        if first {
+            self.s("  ");
+        } else {
+            self.newline();
+            self.indent();
+            self.s(CONTINUE);
+        }
+        let text = self.src[c.clone()].trim_end().to_string();
+        self.s(&text);
+        self.next += 1;
     }
 
     /// Between two elements of a list: `sep` (e.g. `,`), then a line break
@@ -308,16 +314,7 @@ impl<'a> Printer<'a> {
             if c.start >= pos {
                 break;
             }
-            if !first {
-                self.newline();
-                self.indent();
-                self.s(CONTINUE);
-            } else {
-                self.s("  ");
-            }
-            let text = self.src[c.clone()].trim_end().to_string();
-            self.s(&text);
-            self.next += 1;
+            self.comment(&c, first);
             first = false;
         }
     }

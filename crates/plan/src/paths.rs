@@ -7,7 +7,7 @@
 use std::path::{Component, Path, PathBuf};
 
 /// `path` with `.` and `..` taken out, without touching the file system.
-fn normalise(path: &Path) -> PathBuf {
+pub fn normalise(path: &Path) -> PathBuf {
     let mut out = PathBuf::new();
     for c in path.components() {
         match c {
