@@ -2,11 +2,29 @@
 //! numbers moved ("frame 4: multiple 2.3 → 1.9").
 
 use std::path::Path;
+use std::process::ExitCode;
 
-use crescendo_diag::Diagnostic;
+use crescendo_diag::{render, Diagnostic};
 use serde_json::Value;
 
 use crate::deck::MANIFEST;
+use crate::EXIT_STORY;
+
+/// `crescendo diff OLD NEW`: print what changed between two decks.
+pub fn run(old: &Path, new: &Path, color: bool) -> ExitCode {
+    match diff_folders(old, new) {
+        Ok(lines) => {
+            for l in lines {
+                say!("{l}");
+            }
+            ExitCode::SUCCESS
+        }
+        Err(d) => {
+            eprint!("{}", render(&[d], color));
+            ExitCode::from(EXIT_STORY)
+        }
+    }
+}
 
 /// Read a deck's manifest.
 pub fn read_manifest(deck: &Path) -> Result<Value, Diagnostic> {

@@ -29,6 +29,11 @@ use std::time::Duration;
 use crescendo_lang::ast::Item;
 use notify::{RecursiveMode, Watcher};
 
+use crate::build::build;
+use crate::cli::{DataArgs, LintArgs};
+use crate::deck;
+use crate::planning::default_out;
+
 /// Events closer together than this make one rebuild.
 const QUIET: Duration = Duration::from_millis(200);
 
@@ -108,9 +113,28 @@ impl Targets {
     }
 }
 
+/// `crescendo watch`: build, then rebuild on every change until interrupted.
+#[allow(clippy::too_many_arguments)]
+pub fn run(
+    story: &Path,
+    out: Option<PathBuf>,
+    draft: bool,
+    serve: bool,
+    port: u16,
+    data: &DataArgs,
+    lint: &LintArgs,
+    color: bool,
+) -> ExitCode {
+    let deck_dir = out.clone().unwrap_or_else(|| default_out(story));
+    let exports = deck::Exports::default();
+    rebuild_loop(story, &deck_dir, &data.data, serve.then_some(port), || {
+        build(story, out.clone(), draft, &exports, data, lint, color) == ExitCode::SUCCESS
+    })
+}
+
 /// Run the watch loop until interrupted. `build` builds once and says
 /// whether it succeeded.
-pub fn run(
+fn rebuild_loop(
     story: &Path,
     deck: &Path,
     replacements: &[(String, PathBuf)],

@@ -1,0 +1,131 @@
+//! `crescendo build`: plan, lint and check the story, then write the deck.
+
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use crescendo_diag::{render, Diagnostic, Severity};
+
+use crate::cli::{DataArgs, Export, LintArgs};
+use crate::planning::{default_out, load_plan, run_lint};
+use crate::{deck, diff, incremental, EXIT_CLAIM, EXIT_OUTPUT, EXIT_STORY};
+
+/// `build` as the command line gives it: which files to write, then [`build`].
+#[allow(clippy::too_many_arguments)]
+pub fn run(
+    story: &Path,
+    out: Option<PathBuf>,
+    draft: bool,
+    no_cache: bool,
+    format: &[Export],
+    scale: u32,
+    data: &DataArgs,
+    lint: &LintArgs,
+    color: bool,
+) -> ExitCode {
+    incremental::disable(no_cache);
+    let exports = deck::Exports {
+        svg: format.contains(&Export::Svg),
+        html: format.contains(&Export::Html),
+        pdf: format.contains(&Export::Pdf),
+        png: format.contains(&Export::Png),
+        scale,
+    };
+    build(story, out, draft, &exports, data, lint, color)
+}
+
+pub fn build(
+    story: &Path,
+    out: Option<PathBuf>,
+    draft: bool,
+    exports: &deck::Exports,
+    data: &DataArgs,
+    lint: &LintArgs,
+    color: bool,
+) -> ExitCode {
+    // caches beside the deck (see incremental.rs)
+    incremental::configure_for(&out.clone().unwrap_or_else(|| default_out(story)));
+    let planned = match load_plan(story, data, color) {
+        Ok(p) => p,
+        Err(code) => return code,
+    };
+    let findings = run_lint(&planned, lint);
+    if !findings.is_empty() {
+        eprint!("{}", render(&findings, color));
+    }
+    let lint_errors = findings.iter().filter(|d| d.is_error()).count();
+    if lint_errors > 0 {
+        eprintln!(
+            "{lint_errors} lint error{} in {}; no deck written",
+            if lint_errors == 1 { "" } else { "s" },
+            story.display()
+        );
+        return ExitCode::from(EXIT_STORY);
+    }
+    let out = out.unwrap_or_else(|| default_out(story));
+    if !planned.failed_claims.is_empty() {
+        if draft {
+            let as_warnings: Vec<Diagnostic> = planned
+                .failed_claims
+                .iter()
+                .cloned()
+                .map(|mut d| {
+                    d.severity = Severity::Warning;
+                    d
+                })
+                .collect();
+            eprint!("{}", render(&as_warnings, color));
+        } else {
+            eprint!("{}", render(&planned.failed_claims, color));
+            let n = planned.failed_claims.len();
+            eprintln!(
+                "{n} claim{} of {} not supported by the data; no deck written (the previous deck in {} is kept)",
+                if n == 1 { "" } else { "s" },
+                story.display(),
+                out.display()
+            );
+            return ExitCode::from(EXIT_CLAIM);
+        }
+    }
+    let previous = diff::read_manifest(&out).ok();
+    let host = deck::Host(&planned.plugins);
+    let ctx = deck::Context {
+        plugins: Some(&host),
+        source: Some(&planned.source),
+        anchors: Some(&planned.anchors),
+    };
+    match deck::build(&planned.plan, &out, exports, &ctx) {
+        Ok(files) => {
+            eprintln!(
+                "built {} frame{} into {}{}",
+                files,
+                if files == 1 { "" } else { "s" },
+                out.display(),
+                if draft && !planned.failed_claims.is_empty() {
+                    " (draft: claims fail)"
+                } else {
+                    ""
+                }
+            );
+            if let (Some(old), Ok(new)) = (previous, diff::read_manifest(&out)) {
+                for line in diff::diff(&old, &new) {
+                    eprintln!("  {line}");
+                }
+            }
+            for line in incremental::summary() {
+                eprintln!("  {line}");
+            }
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprint!("{}", render(std::slice::from_ref(&e), color));
+            eprintln!("the previous deck in {} was left as it was", out.display());
+            // a frame that cannot be drawn (a failing plugin) is the story's
+            // problem; anything else is the output folder's
+            ExitCode::from(if e.code == "render" {
+                EXIT_STORY
+            } else {
+                EXIT_OUTPUT
+            })
+        }
+    }
+}

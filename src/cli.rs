@@ -1,0 +1,302 @@
+//! The command line: every subcommand, flag and argument (clap), and the
+//! parsing of the flags that take `NAME=VALUE` pairs.
+
+use std::path::PathBuf;
+
+use clap::{Parser, Subcommand, ValueEnum};
+use crescendo_diag::Diagnostic;
+
+#[derive(Parser)]
+#[command(
+    name = "crescendo",
+    version,
+    about = "Compile a story file and its data into a checked deck of clean charts"
+)]
+pub struct Cli {
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    Human,
+    Json,
+}
+
+/// A kind of file `build` writes.
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Export {
+    /// Numbered SVG frames.
+    Svg,
+    /// The self-contained HTML deck (index.html).
+    Html,
+    /// deck.pdf, one page per frame, vector with real text.
+    Pdf,
+    /// Numbered PNG frames (see --scale).
+    Png,
+}
+
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Deny {
+    /// Treat lint warnings as errors (for CI).
+    Warnings,
+}
+
+#[derive(clap::Args)]
+pub struct LintArgs {
+    /// `--deny warnings` turns lint warnings into errors.
+    #[arg(long, value_enum)]
+    pub deny: Option<Deny>,
+    /// Counts of rows below N are flagged as possibly identifying people
+    /// (follow your organisation's disclosure rules).
+    #[arg(long, value_name = "N", default_value_t = 5.0)]
+    pub small_counts: f64,
+}
+
+#[derive(clap::Args)]
+pub struct DataArgs {
+    /// Read data item NAME from FILE instead of the file the story names
+    /// (repeatable), e.g. `--data trips=exports/2024-12.csv`.
+    #[arg(long = "data", value_name = "NAME=FILE", value_parser = parse_data_arg)]
+    pub data: Vec<(String, PathBuf)>,
+    /// Refuse every plugin the story names (plugins are native code that
+    /// runs with your rights).
+    #[arg(long)]
+    pub no_plugins: bool,
+    /// Read the connection string of database data item NAME from the
+    /// environment variable ENVVAR instead of the one the story names
+    /// (repeatable), e.g. `--connection visits=STAGING_DB`.
+    /// (Checked after parsing, so that a connection string given here by
+    /// mistake is never echoed.)
+    #[arg(long = "connection", value_name = "NAME=ENVVAR")]
+    pub connections: Vec<String>,
+    /// Cancel any database query that runs longer than this many seconds.
+    #[arg(long, value_name = "SECONDS", default_value_t = 60.0)]
+    pub statement_timeout: f64,
+    /// Let the story read data, house styles and plugins from DIR too
+    /// (repeatable). Without it a story may read only files in its own
+    /// folder and below.
+    #[arg(long = "allow-path", value_name = "DIR")]
+    pub allow_paths: Vec<PathBuf>,
+    #[command(flatten)]
+    pub limits: LimitArgs,
+}
+
+/// `--connection NAME=ENVVAR`; the error never repeats the argument (it
+/// may be a connection string given by mistake).
+pub fn parse_connection_arg(s: &str) -> Result<(String, String), Diagnostic> {
+    let ok_var = |v: &str| {
+        !v.is_empty()
+            && v.chars().all(|c| c.is_ascii_alphanumeric() || c == '_')
+            && !v.starts_with(|c: char| c.is_ascii_digit())
+    };
+    match s.split_once('=') {
+        Some((name, var)) if !name.is_empty() && ok_var(var) => {
+            Ok((name.to_string(), var.to_string()))
+        }
+        _ => Err(Diagnostic::error(
+            "connection-option",
+            "`--connection` expects NAME=ENVVAR: a data item and the name of the environment \
+             variable that holds its connection string (the value given is not repeated here, \
+             in case it holds a password)",
+        )),
+    }
+}
+
+/// Limits on what one build reads and makes; a story or data file over a
+/// limit stops the build with a located error.
+#[derive(clap::Args, Clone)]
+pub struct LimitArgs {
+    /// Largest story or data file, in bytes.
+    #[arg(long, value_name = "BYTES", default_value_t = crescendo_plan::limits::Limits::default().input_bytes)]
+    pub max_input_bytes: u64,
+    /// Most rows of a data file held in memory.
+    #[arg(long, value_name = "N", default_value_t = crescendo_plan::limits::Limits::default().rows)]
+    pub max_rows: usize,
+    /// Most frames in a deck.
+    #[arg(long, value_name = "N", default_value_t = crescendo_plan::limits::Limits::default().frames)]
+    pub max_frames: usize,
+    /// Longest text (a story string or a data cell), in characters.
+    #[arg(long, value_name = "N", default_value_t = crescendo_plan::limits::Limits::default().text)]
+    pub max_text: usize,
+}
+
+impl Default for LimitArgs {
+    fn default() -> Self {
+        let l = crescendo_plan::limits::Limits::default();
+        Self {
+            max_input_bytes: l.input_bytes,
+            max_rows: l.rows,
+            max_frames: l.frames,
+            max_text: l.text,
+        }
+    }
+}
+
+impl LimitArgs {
+    pub fn limits(&self) -> crescendo_plan::limits::Limits {
+        crescendo_plan::limits::Limits {
+            input_bytes: self.max_input_bytes,
+            rows: self.max_rows,
+            frames: self.max_frames,
+            text: self.max_text,
+        }
+    }
+}
+
+fn parse_data_arg(s: &str) -> Result<(String, PathBuf), String> {
+    match s.split_once('=') {
+        Some((name, file)) if !name.is_empty() && !file.is_empty() => {
+            Ok((name.to_string(), PathBuf::from(file)))
+        }
+        _ => Err(format!("expected NAME=FILE, got `{s}`")),
+    }
+}
+
+#[derive(Subcommand)]
+pub enum Command {
+    /// Build the deck: numbered SVG frames, deck.json and index.html.
+    Build {
+        /// The story file (.cresc).
+        story: PathBuf,
+        /// Output folder (default: `deck/` beside the story). It is replaced
+        /// only when the whole build succeeded.
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Build even when claims fail, marking every frame whose text
+        /// depends on a failed claim.
+        #[arg(long)]
+        draft: bool,
+        /// Compute every view and draw every frame, without reading or
+        /// writing the cache beside the deck.
+        #[arg(long)]
+        no_cache: bool,
+        /// What to write, comma-separated: svg, html, pdf, png
+        /// (deck.json is always written).
+        #[arg(
+            long,
+            value_enum,
+            value_delimiter = ',',
+            default_value = "svg,html",
+            value_name = "FORMATS"
+        )]
+        format: Vec<Export>,
+        /// PNG pixels per SVG pixel: 2 gives 2560×1440 images.
+        #[arg(long, value_name = "N", default_value_t = 2,
+              value_parser = clap::value_parser!(u32).range(1..=4))]
+        scale: u32,
+        #[command(flatten)]
+        data: DataArgs,
+        #[command(flatten)]
+        lint: LintArgs,
+    },
+    /// Rebuild the deck whenever the story, its data, its style file or a
+    /// plugin changes; errors are printed and the last good deck stays.
+    Watch {
+        /// The story file (.cresc).
+        story: PathBuf,
+        /// Output folder (default: `deck/` beside the story).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Build even when claims fail (see `build --draft`).
+        #[arg(long)]
+        draft: bool,
+        /// Serve the deck on 127.0.0.1 and reload the browser after each
+        /// rebuild.
+        #[arg(long)]
+        serve: bool,
+        /// Port for `--serve` (0 picks a free one).
+        #[arg(long, default_value_t = 8765, requires = "serve")]
+        port: u16,
+        #[command(flatten)]
+        data: DataArgs,
+        #[command(flatten)]
+        lint: LintArgs,
+    },
+    /// Parse, compute every value and check every claim, without drawing.
+    Check {
+        /// The story file (.cresc).
+        story: PathBuf,
+        /// `human` (default) or `json` for CI.
+        #[arg(long, value_enum, default_value = "human")]
+        format: Format,
+        /// Print the SQL each view over a database source sends (with its
+        /// bound values listed apart) and the rows and bytes it received.
+        #[arg(long)]
+        explain_sql: bool,
+        #[command(flatten)]
+        data: DataArgs,
+        #[command(flatten)]
+        lint: LintArgs,
+    },
+    /// List the plugins a story loads: their forms, versions and ABI version.
+    Plugins {
+        /// The story file (.cresc).
+        story: PathBuf,
+        /// Let the story load plugins from DIR too (repeatable).
+        #[arg(long = "allow-path", value_name = "DIR")]
+        allow_paths: Vec<PathBuf>,
+    },
+    /// Explain a lint rule (what it flags, why, an example, what to do
+    /// instead); without a rule, list them all.
+    Explain {
+        /// The rule's name, e.g. `bars-off-zero`.
+        rule: Option<String>,
+    },
+    /// Print the frame plan (the renderer's input) as JSON.
+    Plan {
+        /// The story file (.cresc).
+        story: PathBuf,
+        #[command(flatten)]
+        data: DataArgs,
+    },
+    /// Compare two decks: which frames changed and which quoted numbers moved.
+    Diff {
+        /// The older deck folder.
+        old: PathBuf,
+        /// The newer deck folder.
+        new: PathBuf,
+    },
+    /// Profile a CSV file and write a starter story for it that builds and
+    /// passes the lint.
+    New {
+        /// The CSV file to start from.
+        data: PathBuf,
+        /// Where to write the story (default: the CSV's name with .cresc,
+        /// beside it). An existing file is not replaced without --force.
+        #[arg(long, value_name = "STORY")]
+        out: Option<PathBuf>,
+        /// Replace the story file if it exists.
+        #[arg(long)]
+        force: bool,
+    },
+    /// Rewrite stories in the canonical layout (comments are kept).
+    Fmt {
+        /// Change nothing; list the files that would change and exit with
+        /// status 1 if there are any (for CI).
+        #[arg(long)]
+        check: bool,
+        /// The story files (.cresc), or folders to search for them.
+        #[arg(required = true)]
+        files: Vec<PathBuf>,
+    },
+    /// Print a shell completion script: `crescendo completions bash >
+    /// /etc/bash_completion.d/crescendo`.
+    Completions {
+        /// The shell.
+        #[arg(value_enum)]
+        shell: Shell,
+    },
+    /// Print the manual page (roff) of crescendo: `crescendo manual | man -l -`.
+    Manual,
+}
+
+/// Shells `completions` writes scripts for.
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Shell {
+    Bash,
+    Zsh,
+    Fish,
+    Elvish,
+    Powershell,
+}

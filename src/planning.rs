@@ -1,0 +1,98 @@
+//! Reading, parsing, planning and linting a story: what `build`, `check`,
+//! `plan`, `plugins` and `watch` share.
+
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use std::sync::Arc;
+
+use crescendo_diag::{render, Diagnostic, Source};
+use crescendo_plan::{Options, Planned};
+
+use crate::cli::{parse_connection_arg, DataArgs, Deny, LintArgs};
+use crate::{incremental, EXIT_STORY};
+
+/// Lint a plan with the theme it will be drawn with.
+pub fn run_lint(planned: &Planned, args: &LintArgs) -> Vec<Diagnostic> {
+    let theme = match crescendo_render::theme::effective(&planned.plan) {
+        Ok(t) => t,
+        Err(e) => return vec![Diagnostic::error("theme", e.message)],
+    };
+    let input = crescendo_lint::Input {
+        src: &planned.source,
+        plan: &planned.plan,
+        anchors: &planned.anchors,
+        theme: &theme,
+        small_counts: args.small_counts,
+    };
+    crescendo_lint::lint(
+        &input,
+        &crescendo_lint::Options {
+            deny_warnings: args.deny == Some(Deny::Warnings),
+        },
+    )
+}
+
+/// The default deck folder: `deck/` beside the story.
+pub fn default_out(story: &Path) -> PathBuf {
+    story.parent().unwrap_or(Path::new(".")).join("deck")
+}
+
+/// Read, parse and plan a story without printing anything.
+pub fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic>> {
+    crescendo_plan::limits::file_size(story, &data.limits.limits())
+        .map_err(|e| vec![Diagnostic::error("limit", e)])?;
+    let text = std::fs::read_to_string(story).map_err(|e| {
+        vec![Diagnostic::error(
+            "story-file",
+            format!("cannot read story file `{}`: {e}", story.display()),
+        )]
+    })?;
+    let src: Arc<Source> = Source::file(story.display().to_string(), text);
+    let dir = story.parent().unwrap_or(Path::new("."));
+    let options = Options {
+        data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
+        cache: incremental::planner_cache(),
+        no_plugins: data.no_plugins,
+        database: crescendo_plan::DbOptions {
+            connections: data
+                .connections
+                .iter()
+                .map(|c| parse_connection_arg(c))
+                .collect::<Result<_, _>>()
+                .map_err(|d| vec![d])?,
+            timeout: std::time::Duration::from_secs_f64(
+                if data.statement_timeout.is_finite() && data.statement_timeout > 0.0 {
+                    data.statement_timeout.min(86_400.0)
+                } else {
+                    60.0
+                },
+            ),
+        },
+        allow_paths: data.allow_paths.clone(),
+        limits: data.limits.limits(),
+    };
+    crescendo_plan::plan_story(&src, dir, &options)
+}
+
+/// Read, parse and plan a story; print diagnostics; exit status on failure.
+pub fn load_plan(story: &Path, data: &DataArgs, color: bool) -> Result<Planned, ExitCode> {
+    match plan_quietly(story, data) {
+        Ok(p) => {
+            if !p.warnings.is_empty() {
+                eprint!("{}", render(&p.warnings, color));
+            }
+            Ok(p)
+        }
+        Err(diags) => {
+            eprint!("{}", render(&diags, color));
+            let n = diags.iter().filter(|d| d.is_error()).count();
+            eprintln!(
+                "{n} error{} in {}; no deck written",
+                if n == 1 { "" } else { "s" },
+                story.display()
+            );
+            Err(ExitCode::from(EXIT_STORY))
+        }
+    }
+}
