@@ -20,6 +20,18 @@ pub struct Str {
     pub span: Span,
 }
 
+/// A string literal that is shown to the audience and may quote values
+/// (`"now {multiple:.1}× as many"`): headlines, takeaways, notes, titles,
+/// captions and labels. The parser splits it into parts once.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Text {
+    /// The text as written, escapes resolved (quotes not expanded).
+    pub value: String,
+    pub span: Span,
+    /// The literal pieces and the quoted values.
+    pub template: Template,
+}
+
 /// A parsed story: its items in source order.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct StoryAst {
@@ -47,13 +59,13 @@ pub enum Item {
     Value(ValueDecl),
     Claim(ClaimDecl),
     Allow(AllowDecl),
-    Accent(TextItem),
+    Accent(StrItem),
     /// `style "house.toml"`
-    Style(TextItem),
+    Style(StrItem),
     Plugin(PluginDecl),
     Frame(FrameDecl),
     /// `locale "de-DE"`
-    Locale(TextItem),
+    Locale(StrItem),
     /// `fiscal year starts July`: `month` is the month's name as written.
     Fiscal {
         month: Ident,
@@ -107,9 +119,18 @@ impl Item {
     }
 }
 
-/// A keyword followed by one string.
+/// A keyword followed by one text (`story`, `byline`, `source`,
+/// `conclusion`).
 #[derive(Clone, Debug, PartialEq)]
 pub struct TextItem {
+    pub text: Text,
+    pub span: Span,
+}
+
+/// A keyword followed by one string that is not shown as text (`accent`,
+/// `style`, `locale`).
+#[derive(Clone, Debug, PartialEq)]
+pub struct StrItem {
     pub text: Str,
     pub span: Span,
 }
@@ -267,15 +288,27 @@ impl BinOp {
     }
 }
 
-/// A row expression.
+/// An expression, wherever it is written: in a view's `keep` and `add` and
+/// a selection's `where` (over the cells of a row), in a `value` or a quoted
+/// value (over values), in a `claim` (a condition over values). One tree
+/// for all of them; which names, functions and operators each place allows
+/// is checked by the planner.
+///
+/// Operators of one precedence level written one after the other form one
+/// [`Expr::Chain`] (`a + b - c`), so the depth of a tree grows with the
+/// nesting of parentheses and signs (capped by the parser), never with the
+/// length of a chain.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Expr {
-    Column(Ident),
+    /// A name: a column in a row expression; a value (or a table, where a
+    /// function takes one) in a value expression.
+    Name(Ident),
     Number {
         value: f64,
         span: Span,
     },
     Text(Str),
+    /// `-x`: one node per sign, each with the span of the whole operand.
     Neg {
         expr: Box<Expr>,
         span: Span,
@@ -284,7 +317,16 @@ pub enum Expr {
         expr: Box<Expr>,
         span: Span,
     },
-    Binary {
+    /// Operators of one level applied left to right: `a + b - c`
+    /// (`Add`, `Sub`), `a * b / c` (`Mul`, `Div`), `a and b and c`,
+    /// `a or b`. `rest` is never empty.
+    Chain {
+        first: Box<Expr>,
+        rest: Vec<Link>,
+        span: Span,
+    },
+    /// `a < b`: `op` is one of `Eq` .. `Ge` (comparisons do not chain).
+    Compare {
         op: BinOp,
         left: Box<Expr>,
         right: Box<Expr>,
@@ -297,20 +339,61 @@ pub enum Expr {
         negated: bool,
         span: Span,
     },
+    /// `a about b within 5%`
+    About {
+        left: Box<Expr>,
+        right: Box<Expr>,
+        tolerance: Tolerance,
+        span: Span,
+    },
+    /// `FUNCTION(ARGUMENT, ...)`
+    Call {
+        func: Ident,
+        args: Vec<CallArg>,
+        span: Span,
+    },
+}
+
+/// One operator of a [`Expr::Chain`] and its right operand.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Link {
+    pub op: BinOp,
+    pub operand: Expr,
 }
 
 impl Expr {
     pub fn span(&self) -> Span {
         match self {
-            Expr::Column(i) => i.span.clone(),
+            Expr::Name(i) => i.span.clone(),
             Expr::Text(s) => s.span.clone(),
             Expr::Number { span, .. }
             | Expr::Neg { span, .. }
             | Expr::Not { span, .. }
-            | Expr::Binary { span, .. }
-            | Expr::In { span, .. } => span.clone(),
+            | Expr::Chain { span, .. }
+            | Expr::Compare { span, .. }
+            | Expr::In { span, .. }
+            | Expr::About { span, .. }
+            | Expr::Call { span, .. } => span.clone(),
         }
     }
+
+    /// True for the operators of conditions: comparisons, `in`, `about`,
+    /// `not`, `and` and `or`.
+    pub fn is_condition(&self) -> bool {
+        match self {
+            Expr::Not { .. } | Expr::Compare { .. } | Expr::In { .. } | Expr::About { .. } => true,
+            Expr::Chain { rest, .. } => rest
+                .first()
+                .is_some_and(|l| matches!(l.op, BinOp::And | BinOp::Or)),
+            _ => false,
+        }
+    }
+}
+
+/// The span of `first` up to the end of `upto`: the part of a chain that
+/// an operator applies to (`a + b` in `a + b + c`).
+pub fn span_from(first: &Expr, upto: &Expr) -> Span {
+    first.span().start..upto.span().end
 }
 
 /// `compare KEY by MEASURE`
@@ -324,7 +407,7 @@ pub struct CompareDecl {
 /// `frame "Headline" { ... }`
 #[derive(Clone, Debug, PartialEq)]
 pub struct FrameDecl {
-    pub headline: Str,
+    pub headline: Text,
     pub stmts: Vec<FrameStmt>,
     pub span: Span,
 }
@@ -430,7 +513,7 @@ pub enum FrameStmt {
     Chart(ChartStmt),
     AxisTitle {
         axis: AxisName,
-        text: Str,
+        text: Text,
         span: Span,
     },
     Show {
@@ -446,11 +529,11 @@ pub enum FrameStmt {
         span: Span,
     },
     Takeaway {
-        text: Str,
+        text: Text,
         span: Span,
     },
     Notes {
-        text: Str,
+        text: Text,
         span: Span,
     },
     Range {
@@ -462,8 +545,8 @@ pub enum FrameStmt {
     Allow(AllowDecl),
     /// `figure "text" "caption"`
     Figure {
-        text: Str,
-        caption: Str,
+        text: Text,
+        caption: Text,
         span: Span,
     },
     Split(SplitStmt),
@@ -475,18 +558,18 @@ pub enum FrameStmt {
     Callout {
         at: Position,
         on: Option<Str>,
-        text: Str,
+        text: Text,
         span: Span,
     },
     Band {
         from: Position,
         to: Position,
-        text: Option<Str>,
+        text: Option<Text>,
         span: Span,
     },
     Reference {
         value: f64,
-        text: Str,
+        text: Text,
         span: Span,
     },
     /// `label ends`
@@ -499,6 +582,32 @@ pub enum FrameStmt {
         span: Span,
     },
     Draw(DrawStmt),
+}
+
+impl FrameStmt {
+    /// The whole statement's span.
+    pub fn span(&self) -> Span {
+        match self {
+            FrameStmt::Chart(c) => c.span.clone(),
+            FrameStmt::Draw(d) => d.span.clone(),
+            FrameStmt::Split(s) => s.span.clone(),
+            FrameStmt::Allow(a) => a.span.clone(),
+            FrameStmt::AxisTitle { span, .. }
+            | FrameStmt::Show { span, .. }
+            | FrameStmt::Hide { span, .. }
+            | FrameStmt::Spotlight { span, .. }
+            | FrameStmt::Takeaway { span, .. }
+            | FrameStmt::Notes { span, .. }
+            | FrameStmt::Range { span, .. }
+            | FrameStmt::Figure { span, .. }
+            | FrameStmt::Unfold { span, .. }
+            | FrameStmt::Callout { span, .. }
+            | FrameStmt::Band { span, .. }
+            | FrameStmt::Reference { span, .. }
+            | FrameStmt::LabelEnds { span }
+            | FrameStmt::Gridlines { span, .. } => span.clone(),
+        }
+    }
 }
 
 /// A position along x as written: a quoted time or a number.
@@ -534,62 +643,23 @@ pub struct SplitStmt {
 #[derive(Clone, Debug, PartialEq)]
 pub struct ValueDecl {
     pub name: Ident,
-    pub expr: VExpr,
+    pub expr: Expr,
     pub span: Span,
 }
 
 /// `claim CONDITION "sentence"`
 #[derive(Clone, Debug, PartialEq)]
 pub struct ClaimDecl {
-    pub condition: VCond,
+    pub condition: Expr,
     pub sentence: Str,
     pub span: Span,
-}
-
-/// An expression over values (not rows): numbers, value names, functions of
-/// selections, arithmetic.
-#[derive(Clone, Debug, PartialEq)]
-pub enum VExpr {
-    Number {
-        value: f64,
-        span: Span,
-    },
-    Name(Ident),
-    Neg {
-        expr: Box<VExpr>,
-        span: Span,
-    },
-    /// `op` is one of `Add`, `Sub`, `Mul`, `Div`.
-    Binary {
-        op: BinOp,
-        left: Box<VExpr>,
-        right: Box<VExpr>,
-        span: Span,
-    },
-    Call {
-        func: Ident,
-        args: Vec<CallArg>,
-        span: Span,
-    },
-}
-
-impl VExpr {
-    pub fn span(&self) -> Span {
-        match self {
-            VExpr::Name(i) => i.span.clone(),
-            VExpr::Number { span, .. }
-            | VExpr::Neg { span, .. }
-            | VExpr::Binary { span, .. }
-            | VExpr::Call { span, .. } => span.clone(),
-        }
-    }
 }
 
 /// An argument of a value function.
 #[derive(Clone, Debug, PartialEq)]
 pub enum CallArg {
     Selection(Selection),
-    Value(VExpr),
+    Value(Expr),
 }
 
 impl CallArg {
@@ -618,50 +688,6 @@ pub struct Tolerance {
     /// `true` for a percentage of the right-hand side.
     pub relative: bool,
     pub span: Span,
-}
-
-/// A condition over values.
-#[derive(Clone, Debug, PartialEq)]
-pub enum VCond {
-    /// `op` is a comparison (`Eq` .. `Ge`).
-    Compare {
-        op: BinOp,
-        left: VExpr,
-        right: VExpr,
-        span: Span,
-    },
-    About {
-        left: VExpr,
-        right: VExpr,
-        tolerance: Tolerance,
-        span: Span,
-    },
-    And {
-        left: Box<VCond>,
-        right: Box<VCond>,
-        span: Span,
-    },
-    Or {
-        left: Box<VCond>,
-        right: Box<VCond>,
-        span: Span,
-    },
-    Not {
-        cond: Box<VCond>,
-        span: Span,
-    },
-}
-
-impl VCond {
-    pub fn span(&self) -> Span {
-        match self {
-            VCond::Compare { span, .. }
-            | VCond::About { span, .. }
-            | VCond::And { span, .. }
-            | VCond::Or { span, .. }
-            | VCond::Not { span, .. } => span.clone(),
-        }
-    }
 }
 
 /// How a quoted value is printed: `{name:+.1%}`.
@@ -696,8 +722,9 @@ pub enum NumberStyle {
 #[derive(Clone, Debug, PartialEq)]
 pub enum TextPart {
     Literal(String),
+    /// `{EXPRESSION:FORMAT}`; `span` covers the braces.
     Quote {
-        expr: VExpr,
+        expr: Expr,
         format: FormatSpec,
         span: Span,
     },

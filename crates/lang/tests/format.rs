@@ -120,13 +120,14 @@ fn locale_and_fiscal_statements_parse_and_format() {
     let (_, diags) = parse(&Source::file("s", "fiscal year starts\n"));
     assert_eq!(diags.len(), 1);
     // quoted periods: `quarter` and `year` formats
-    let lit = "\"{m:quarter} {m:year} {x:.1%}\"";
-    let s = crescendo_lang::ast::Str {
-        value: lit.trim_matches('"').into(),
-        span: 0..lit.len(),
+    let (ast, diags) = parse(&Source::file("s", "story \"{m:quarter} {m:year} {x:.1%}\""));
+    assert!(diags.is_empty(), "{diags:?}");
+    let Item::Title(t) = &ast.items[0] else {
+        panic!()
     };
-    let t = crescendo_lang::parser::parse_template(&Source::file("s", lit), &s).expect("template");
     let styles: Vec<_> = t
+        .text
+        .template
         .parts
         .iter()
         .filter_map(|p| match p {

@@ -8,7 +8,7 @@ use std::sync::Arc;
 use crescendo_data::{format, time, ColType, Table, Value};
 use crescendo_diag::{closest, has_errors, Diagnostic, Source};
 use crescendo_lang::ast::{
-    self, AxisName, ChartForm, ChartStmt, FrameStmt, Ident, Item, OptName, Str, Targets,
+    self, AxisName, ChartForm, ChartStmt, FrameStmt, Ident, Item, OptName, Str, Targets, Text,
 };
 
 use crate::anchors::{Allowance, Anchors, FrameAnchors};
@@ -203,11 +203,11 @@ impl FrameTexts {
 /// Header values with where they were set (to report duplicates).
 #[derive(Default)]
 struct Header {
-    title: Option<Str>,
-    byline: Option<Str>,
-    source: Option<Str>,
+    title: Option<Text>,
+    byline: Option<Text>,
+    source: Option<Text>,
     theme: Option<Ident>,
-    conclusion: Option<Str>,
+    conclusion: Option<Text>,
     compare: Option<ast::CompareDecl>,
     focus: Option<Vec<Str>>,
     accent: Option<String>,
@@ -339,7 +339,7 @@ impl<'a> Planner<'a> {
     }
 
     /// Resolve the quoted values of a text.
-    pub(crate) fn text(&mut self, s: &Str) -> values::Resolved {
+    pub(crate) fn text(&mut self, s: &Text) -> values::Resolved {
         let ev = Evaluator {
             src: self.src,
             tables: &self.tables,
@@ -421,7 +421,7 @@ impl<'a> Planner<'a> {
             .trim()
             .to_string();
         let mut names = BTreeSet::new();
-        values::names_in_cond(&c.condition, &mut names);
+        values::names_in(&c.condition, &mut names);
         let depends = self.values.closure(&names);
         if !holds {
             let mut d = Diagnostic::error(

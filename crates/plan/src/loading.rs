@@ -37,7 +37,6 @@
 //! byte-identical.
 
 use std::collections::BTreeSet;
-use std::fmt::Debug;
 use std::path::Path;
 use std::sync::Arc;
 
@@ -46,6 +45,7 @@ use crescendo_data::stream::{self, Chunks, ScanFailure, ScanInput, StreamView};
 use crescendo_data::{probe, ColType, Column, Columns, CsvSpec, Step, Table};
 use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::{self, Item, StepAst, StoryAst};
+use crescendo_lang::visit::{walk_database, walk_selection, walk_story, Visit};
 use serde::{Deserialize, Serialize};
 
 use crate::cache::{hash_hex, Cache, FORMAT};
@@ -64,31 +64,76 @@ struct DataEntry {
     first_text: Vec<Option<(usize, String)>>,
 }
 
-/// Every name written as an identifier in `x` (read from its debug form,
-/// which names every `Ident` of the syntax tree, whatever node holds it).
-fn idents_of(x: &(impl Debug + ?Sized)) -> BTreeSet<String> {
-    let text = format!("{x:?}");
-    let mut out = BTreeSet::new();
-    let marker = "Ident { name: \"";
-    let mut rest = text.as_str();
-    while let Some(i) = rest.find(marker) {
-        rest = &rest[i + marker.len()..];
-        let mut name = String::new();
-        let mut chars = rest.chars();
-        while let Some(c) = chars.next() {
-            match c {
-                '\\' => {
-                    if let Some(n) = chars.next() {
-                        name.push(n);
-                    }
-                }
-                '"' => break,
-                c => name.push(c),
-            }
-        }
-        out.insert(name);
+/// Collects every name written as an identifier (an `Ident` of the syntax
+/// tree, whatever node holds it), quoted values included; with
+/// `skip_order`, not the `in order of` columns of a database source.
+#[derive(Default)]
+struct Names {
+    names: BTreeSet<String>,
+    skip_order: bool,
+}
+
+impl<'a> Visit<'a> for Names {
+    fn visit_ident(&mut self, ident: &'a ast::Ident) {
+        self.names.insert(ident.name.clone());
     }
-    out
+
+    fn visit_database(&mut self, db: &'a ast::DatabaseSource) {
+        if self.skip_order {
+            self.visit_ident(&db.env);
+        } else {
+            walk_database(self, db);
+        }
+    }
+}
+
+/// Every name written as an identifier in an item.
+fn names_in_item(item: &Item, skip_order: bool) -> BTreeSet<String> {
+    let mut v = Names {
+        skip_order,
+        ..Names::default()
+    };
+    v.visit_item(item);
+    v.names
+}
+
+/// Every name written as an identifier in some view steps.
+fn names_in_steps(steps: &[StepAst]) -> BTreeSet<String> {
+    let mut v = Names::default();
+    steps.iter().for_each(|s| v.visit_step(s));
+    v.names
+}
+
+/// Collects the names used as the table of a chart (`line NAME: …`), a
+/// plugin chart (`draw FORM NAME`) or a value selection (`sum(NAME.col …)`),
+/// and whether a `table` chart is drawn.
+#[derive(Default)]
+struct TablesNamed {
+    named: BTreeSet<String>,
+    table_chart: bool,
+}
+
+impl<'a> Visit<'a> for TablesNamed {
+    fn visit_chart(&mut self, chart: &'a ast::ChartStmt) {
+        self.named.insert(chart.view.name.clone());
+        self.table_chart |= chart.form == ast::ChartForm::Table;
+    }
+
+    fn visit_draw(&mut self, draw: &'a ast::DrawStmt) {
+        self.named.insert(draw.view.name.clone());
+    }
+
+    fn visit_selection(&mut self, selection: &'a ast::Selection) {
+        self.named.insert(selection.view.name.clone());
+        walk_selection(self, selection);
+    }
+}
+
+/// The tables an item names (see [`TablesNamed`]).
+fn tables_named_in(item: &Item) -> BTreeSet<String> {
+    let mut v = TablesNamed::default();
+    v.visit_item(item);
+    v.named
 }
 
 /// Number of leading steps of a view over a database item that run in the
@@ -111,22 +156,6 @@ pub(crate) fn database_prefix_len(steps: &[StepAst]) -> usize {
     n
 }
 
-/// Every name used as the table of a chart (`line NAME: …`), a plugin
-/// chart (`draw FORM NAME`) or a value selection (`sum(NAME.col …)`) in
-/// `x`: the syntax tree's `view` fields, read from its debug form.
-fn tables_named_in(x: &(impl Debug + ?Sized)) -> BTreeSet<String> {
-    let text = format!("{x:?}");
-    let marker = "view: Ident { name: \"";
-    let mut out = BTreeSet::new();
-    let mut rest = text.as_str();
-    while let Some(i) = rest.find(marker) {
-        rest = &rest[i + marker.len()..];
-        let name: String = rest.chars().take_while(|c| *c != '"').collect();
-        out.insert(name);
-    }
-    out
-}
-
 /// Number of leading steps of a view that stream: `keep`s, then one `by`.
 pub(crate) fn prefix_len(steps: &[StepAst]) -> usize {
     let keeps = steps
@@ -145,24 +174,12 @@ impl Tables {
     /// for the view cache (none: no caching).
     pub fn prepare(&mut self, story: &StoryAst, cache: Option<&Path>) {
         self.cache = cache.map(Cache::new);
-        let idents = idents_of(story);
-        let idents_outside_order = story
-            .items
-            .iter()
-            .map(|item| match item {
-                Item::Data(d) => {
-                    let mut d = d.clone();
-                    if let Some(db) = &mut d.database {
-                        db.order.clear();
-                    }
-                    idents_of(&d)
-                }
-                other => idents_of(other),
-            })
-            .fold(BTreeSet::new(), |mut all, s| {
-                all.extend(s);
-                all
-            });
+        let mut idents = BTreeSet::new();
+        let mut idents_outside_order = BTreeSet::new();
+        for item in &story.items {
+            idents.extend(names_in_item(item, false));
+            idents_outside_order.extend(names_in_item(item, true));
+        }
         let views: Vec<&ast::ViewDecl> = story
             .items
             .iter()
@@ -179,7 +196,9 @@ impl Tables {
                 .position(|s| matches!(s, StepAst::Top { .. }));
             matches!((top, by), (Some(t), b) if b.is_none_or(|b| t < b))
         });
-        let all_columns = top_before_by || format!("{story:?}").contains("form: Table");
+        let mut charts = TablesNamed::default();
+        walk_story(&mut charts, story);
+        let all_columns = top_before_by || charts.table_chart;
         let mut names = BTreeSet::new();
         let mut duplicate = false;
         for item in &story.items {
@@ -205,7 +224,7 @@ impl Tables {
                         // does not bring every row over the network.
                         tables_named_in(other).contains(name.as_str())
                     } else {
-                        idents_of(other).contains(name.as_str())
+                        names_in_item(other, false).contains(name.as_str())
                     }
             });
             let mine: Vec<ast::ViewDecl> = story.items[i + 1..]
@@ -305,7 +324,7 @@ impl Tables {
         let mut keep_only = false;
         for v in views {
             let n = prefix_len(&v.steps);
-            parse_names.extend(idents_of(&v.steps[..n]));
+            parse_names.extend(names_in_steps(&v.steps[..n]));
             keep_only |= !v.steps[..n].iter().any(|s| matches!(s, StepAst::By { .. }));
         }
         let cache = self.cache.clone();
@@ -531,7 +550,11 @@ mod tests {
         );
         let (ast, diags) = crescendo_lang::parse(&src);
         assert!(diags.is_empty());
-        let ids = idents_of(&ast);
+        let ids: BTreeSet<String> = ast
+            .items
+            .iter()
+            .flat_map(|i| names_in_item(i, false))
+            .collect();
         for n in ["d", "v", "a", "b", "s", "sum", "c"] {
             assert!(ids.contains(n), "{n}: {ids:?}");
         }

@@ -3,7 +3,7 @@
 //! light gridlines (`gridlines`), and the frames a `unfold` expands into.
 
 use crescendo_data::{format, time};
-use crescendo_lang::ast::{Position, SplitStmt, Str};
+use crescendo_lang::ast::{Position, SplitStmt, Str, Text};
 
 use crate::build::{Planner, SeqState};
 use crate::model::*;
@@ -108,7 +108,7 @@ impl Planner<'_> {
         st: &mut SeqState,
         at: &Position,
         on: &Option<Str>,
-        text: &Str,
+        text: &Text,
         span: &std::ops::Range<usize>,
     ) -> Option<()> {
         let resolved = self.text(text).text;
@@ -190,7 +190,7 @@ impl Planner<'_> {
         st: &mut SeqState,
         from: &Position,
         to: &Position,
-        text: &Option<Str>,
+        text: &Option<Text>,
         span: &std::ops::Range<usize>,
     ) -> Option<()> {
         let x_axis = match &st.chart {
@@ -229,7 +229,7 @@ impl Planner<'_> {
         &mut self,
         st: &mut SeqState,
         value: f64,
-        text: &Str,
+        text: &Text,
         span: &std::ops::Range<usize>,
     ) -> Option<()> {
         let label = self.text(text).text;

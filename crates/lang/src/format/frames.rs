@@ -1,0 +1,223 @@
+//! The layout of frames and their statements.
+
+use super::Printer;
+use crate::ast::*;
+
+impl Printer<'_> {
+    pub(super) fn frame(&mut self, f: &FrameDecl) {
+        self.s("frame ");
+        self.raw(&f.headline.span);
+        let open = self.src[f.headline.span.end..]
+            .find('{')
+            .map_or(f.headline.span.end, |o| f.headline.span.end + o);
+        let close = f.span.end.saturating_sub(1);
+        let has_comment = self
+            .comments
+            .get(self.next)
+            .is_some_and(|c| c.start < close);
+        if f.stmts.is_empty() && !has_comment {
+            self.s(" {}");
+            self.last_end = f.span.end;
+            return;
+        }
+        self.s(" {");
+        self.trailing(open + 1);
+        self.newline();
+        self.level += 1;
+        let mut first = true;
+        for st in &f.stmts {
+            let sp = st.span();
+            self.leading(sp.start, !first);
+            first = false;
+            self.indent();
+            self.frame_stmt(st);
+            self.trailing(sp.end);
+            self.newline();
+        }
+        self.leading(close, false);
+        self.level -= 1;
+        self.indent();
+        self.s("}");
+        self.last_end = f.span.end;
+    }
+
+    fn targets(&mut self, t: &Targets) {
+        match t {
+            Targets::All(_) => self.s("all"),
+            Targets::None(_) => self.s("none"),
+            Targets::Focus(_) => self.s("focus"),
+            Targets::Names(names) => self.strs(names),
+            Targets::Cells(cells) => {
+                for (i, (name, col)) in cells.iter().enumerate() {
+                    if i > 0 {
+                        self.gap(",", cells[i - 1].1.span.end, name.span.start, true);
+                    }
+                    self.raw(&name.span);
+                    self.s(" in ");
+                    self.raw(&col.span);
+                }
+            }
+        }
+    }
+
+    /// The source word `index` (0-based, split at blank space) of a
+    /// one-line statement: numbers the tree keeps only as values.
+    fn word(&mut self, span: &Span, index: usize) {
+        let text = self.src.get(span.clone()).unwrap_or("");
+        let w = text.split_whitespace().nth(index).unwrap_or("");
+        let w = w.to_string();
+        self.s(&w);
+    }
+
+    fn position(&mut self, p: &Position) {
+        self.raw(&p.span());
+    }
+
+    fn frame_stmt(&mut self, st: &FrameStmt) {
+        match st {
+            FrameStmt::Chart(c) => {
+                self.s(c.form.keyword());
+                self.s(" ");
+                self.raw(&c.view.span);
+                for (i, o) in c.opts.iter().enumerate() {
+                    if i == 0 {
+                        self.s(": ");
+                    } else {
+                        self.gap(",", c.opts[i - 1].span.end, o.span.start, true);
+                    }
+                    self.s(o.name.keyword());
+                    if let Some(col) = &o.column {
+                        self.s(" ");
+                        self.raw(&col.span);
+                    }
+                }
+            }
+            FrameStmt::Draw(d) => {
+                self.s("draw ");
+                self.raw(&d.plugin.span);
+                if let Some(form) = &d.form {
+                    self.s(".");
+                    self.raw(&form.span);
+                }
+                self.s(" ");
+                self.raw(&d.view.span);
+                for (i, (opt, col)) in d.opts.iter().enumerate() {
+                    if i == 0 {
+                        self.s(": ");
+                    } else {
+                        self.gap(",", d.opts[i - 1].1.span.end, opt.span.start, true);
+                    }
+                    self.raw(&opt.span);
+                    self.s(" ");
+                    self.raw(&col.span);
+                }
+            }
+            FrameStmt::AxisTitle { axis, text, .. } => {
+                self.s(axis_kw(*axis));
+                self.s(" title ");
+                self.raw(&text.span);
+            }
+            FrameStmt::Show { targets, .. } => {
+                self.s("show ");
+                self.targets(targets);
+            }
+            FrameStmt::Hide { targets, .. } => {
+                self.s("hide ");
+                self.targets(targets);
+            }
+            FrameStmt::Spotlight { targets, .. } => {
+                self.s("spotlight ");
+                self.targets(targets);
+            }
+            FrameStmt::Takeaway { text, .. } => {
+                self.s("takeaway ");
+                self.raw(&text.span);
+            }
+            FrameStmt::Notes { text, .. } => {
+                self.s("notes ");
+                self.raw(&text.span);
+            }
+            FrameStmt::Range { axis, span, .. } => {
+                self.s(axis_kw(*axis));
+                self.s(" range ");
+                self.word(span, 2);
+                self.s(" to ");
+                self.word(span, 4);
+            }
+            FrameStmt::Allow(a) => self.allow(a),
+            FrameStmt::Figure { text, caption, .. } => {
+                self.s("figure ");
+                self.raw(&text.span);
+                self.s(" ");
+                self.raw(&caption.span);
+            }
+            FrameStmt::Split(s) => {
+                self.s("split ");
+                self.raw(&s.key.span);
+                match s.descending {
+                    Some(true) => self.s(" descending"),
+                    Some(false) => self.s(" ascending"),
+                    None => {}
+                }
+                if let Some(by) = &s.by {
+                    self.s(" by ");
+                    self.raw(&by.span);
+                }
+                if !s.order.is_empty() {
+                    self.s(" order ");
+                    self.strs(&s.order);
+                }
+                if s.trim {
+                    self.s(" trim");
+                }
+                if s.free {
+                    self.s(" free");
+                }
+            }
+            FrameStmt::Unfold { order, .. } => {
+                self.s("unfold");
+                if !order.is_empty() {
+                    self.s(" ");
+                    self.strs(order);
+                }
+            }
+            FrameStmt::Callout { at, on, text, .. } => {
+                self.s("callout ");
+                self.position(at);
+                if let Some(on) = on {
+                    self.s(" on ");
+                    self.raw(&on.span);
+                }
+                self.s(" ");
+                self.raw(&text.span);
+            }
+            FrameStmt::Band { from, to, text, .. } => {
+                self.s("band ");
+                self.position(from);
+                self.s(" to ");
+                self.position(to);
+                if let Some(t) = text {
+                    self.s(" ");
+                    self.raw(&t.span);
+                }
+            }
+            FrameStmt::Reference { text, span, .. } => {
+                self.s("reference ");
+                self.word(span, 1);
+                self.s(" ");
+                self.raw(&text.span);
+            }
+            FrameStmt::LabelEnds { .. } => self.s("label ends"),
+            FrameStmt::Gridlines { on, .. } => {
+                self.s(if *on { "gridlines" } else { "gridlines off" })
+            }
+        }
+    }
+}
+
+fn axis_kw(a: AxisName) -> &'static str {
+    match a {
+        AxisName::X => "x",
+        AxisName::Y => "y",
+    }
+}

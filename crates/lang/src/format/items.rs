@@ -1,0 +1,296 @@
+//! The layout of items, data sources and view steps.
+
+use super::Printer;
+use crate::ast::*;
+
+impl Printer<'_> {
+    pub(super) fn story(&mut self, ast: &StoryAst) {
+        for item in &ast.items {
+            let span = item.span().clone();
+            self.leading(span.start, true);
+            self.item(item);
+            self.trailing(span.end);
+            self.newline();
+        }
+    }
+
+    /// A keyword and the string after it.
+    fn text_item(&mut self, keyword: &str, string: &Span) {
+        self.s(keyword);
+        self.s(" ");
+        self.raw(string);
+    }
+
+    fn item(&mut self, item: &Item) {
+        match item {
+            Item::Title(t) => self.text_item("story", &t.text.span),
+            Item::Byline(t) => self.text_item("byline", &t.text.span),
+            Item::Source(t) => self.text_item("source", &t.text.span),
+            Item::Conclusion(t) => self.text_item("conclusion", &t.text.span),
+            Item::Accent(t) => self.text_item("accent", &t.text.span),
+            Item::Style(t) => self.text_item("style", &t.text.span),
+            Item::Locale(t) => self.text_item("locale", &t.text.span),
+            Item::Fiscal { month, .. } => {
+                self.s("fiscal year starts ");
+                self.raw(&month.span);
+            }
+            Item::Theme { name, .. } => {
+                self.s("theme ");
+                self.raw(&name.span);
+            }
+            Item::Data(d) => self.data(d),
+            Item::View(v) => self.view(v),
+            Item::Compare(c) => {
+                self.s("compare ");
+                self.raw(&c.key.span);
+                self.s(" by ");
+                self.raw(&c.measure.span);
+            }
+            Item::Focus { names, .. } => {
+                self.s("focus ");
+                self.strs(names);
+            }
+            Item::Value(v) => {
+                self.s("value ");
+                self.raw(&v.name.span);
+                self.s(" = ");
+                self.top_expr(&v.expr);
+            }
+            Item::Claim(c) => {
+                self.s("claim ");
+                self.top_expr(&c.condition);
+                self.s(" ");
+                self.raw(&c.sentence.span);
+            }
+            Item::Allow(a) => self.allow(a),
+            Item::Plugin(p) => {
+                self.s("use plugin ");
+                self.raw(&p.path.span);
+                self.s(" as ");
+                self.raw(&p.alias.span);
+                if let Some(pin) = &p.pin {
+                    self.s(" sha256 ");
+                    self.raw(&pin.span);
+                }
+            }
+            Item::Frame(f) => self.frame(f),
+        }
+    }
+
+    pub(super) fn allow(&mut self, a: &AllowDecl) {
+        self.s("allow ");
+        self.raw(&a.rule.span);
+        self.s(" ");
+        self.raw(&a.reason.span);
+    }
+
+    /// `"A", "B", ...` keeping the author's line breaks.
+    pub(super) fn strs(&mut self, names: &[Str]) {
+        for (i, n) in names.iter().enumerate() {
+            if i > 0 {
+                self.gap(",", names[i - 1].span.end, n.span.start, true);
+            }
+            self.raw(&n.span);
+        }
+    }
+
+    fn idents(&mut self, names: &[Ident]) {
+        for (i, n) in names.iter().enumerate() {
+            if i > 0 {
+                self.gap(",", names[i - 1].span.end, n.span.start, true);
+            }
+            self.raw(&n.span);
+        }
+    }
+
+    fn data(&mut self, d: &DataDecl) {
+        // destructured in full: a new part of the statement does not
+        // compile until it has a layout here
+        let DataDecl {
+            name,
+            file,
+            missing,
+            columns,
+            database,
+            span: _,
+        } = d;
+        self.s("data ");
+        self.raw(&name.span);
+        self.s(" from ");
+        match database {
+            None => self.raw(&file.span),
+            Some(DatabaseSource {
+                from,
+                env,
+                order,
+                span: _,
+            }) => {
+                match from {
+                    DbFrom::Table { schema, name } => {
+                        self.s("table ");
+                        if let Some(schema) = schema {
+                            self.raw(&schema.span);
+                            self.s(".");
+                        }
+                        self.raw(&name.span);
+                    }
+                    DbFrom::Query(q) => {
+                        self.s("query ");
+                        self.raw(&q.span);
+                    }
+                }
+                self.s(" via ");
+                self.raw(&env.span);
+                if !order.is_empty() {
+                    self.s(" in order of ");
+                    self.idents(order);
+                }
+            }
+        }
+        if let Some(missing) = missing {
+            self.s(" missing ");
+            self.strs(missing);
+        }
+        let (Some(first), Some(last)) = (columns.first(), columns.last()) else {
+            return;
+        };
+        let (first, last) = (first.span.start, last.span.end);
+        let open = self.src[..first].rfind('{').unwrap_or(first);
+        let close = self.src[last..].find('}').map_or(last, |o| last + o);
+        let multiline = self.src[open..close].contains('\n');
+        if !multiline {
+            self.s(" { ");
+            for (i, c) in columns.iter().enumerate() {
+                if i > 0 {
+                    self.s(", ");
+                }
+                self.column(c);
+            }
+            self.s(" }");
+            return;
+        }
+        self.s(" {");
+        self.trailing(open + 1);
+        self.newline();
+        self.level += 1;
+        for c in columns {
+            self.leading(c.span.start, true);
+            self.indent();
+            self.column(c);
+            // a comma after the declaration is dropped: line breaks separate
+            let end = c.span.end;
+            let after = self.src[end..].trim_start_matches([' ', '\t']);
+            let end = if after.starts_with(',') {
+                end + (self.src.len() - end - after.len()) + 1
+            } else {
+                end
+            };
+            self.trailing(end);
+            self.newline();
+        }
+        self.leading(close, false);
+        self.level -= 1;
+        self.indent();
+        self.s("}");
+        self.last_end = close + 1;
+    }
+
+    fn column(&mut self, c: &ColumnDecl) {
+        self.raw(&c.name.span);
+        self.s(": ");
+        self.raw(&c.ty.span);
+    }
+
+    fn view(&mut self, v: &ViewDecl) {
+        self.s("view ");
+        self.raw(&v.name.span);
+        self.s(" = ");
+        self.raw(&v.input.span);
+        self.last_end = v.input.span.end;
+        self.level += 1;
+        for step in &v.steps {
+            let sp = step.span().clone();
+            // the step's span starts after `|`
+            let bar = self.src[..sp.start].rfind('|').unwrap_or(sp.start);
+            self.trailing(self.last_end);
+            self.newline();
+            self.leading(bar, false);
+            self.indent();
+            self.s("| ");
+            self.step(step);
+            self.last_end = sp.end;
+        }
+        self.level -= 1;
+    }
+
+    fn step(&mut self, step: &StepAst) {
+        match step {
+            StepAst::Keep { expr, .. } => {
+                self.s("keep ");
+                self.top_expr(expr);
+            }
+            StepAst::By {
+                keys, aggregates, ..
+            } => {
+                self.s("by ");
+                self.idents(keys);
+                let last_key = keys.last().map_or(0, |k| k.span.end);
+                for (i, a) in aggregates.iter().enumerate() {
+                    if i == 0 {
+                        self.gap(":", last_key, a.span.start, true);
+                    } else {
+                        self.gap(",", aggregates[i - 1].span.end, a.span.start, true);
+                    }
+                    self.raw(&a.name.span);
+                    self.s(" = ");
+                    self.raw(&a.func.span);
+                    self.s("(");
+                    if let Some(c) = &a.column {
+                        self.raw(&c.span);
+                    }
+                    self.s(")");
+                }
+            }
+            StepAst::Add { name, expr, .. } => {
+                self.s("add ");
+                self.raw(&name.span);
+                self.s(" = ");
+                self.top_expr(expr);
+            }
+            StepAst::Sort { keys, .. } => {
+                self.s("sort ");
+                for (i, k) in keys.iter().enumerate() {
+                    if i > 0 {
+                        self.gap(",", keys[i - 1].span.end, k.span.start, true);
+                    }
+                    self.raw(&k.column.span);
+                    if k.descending {
+                        self.s(" descending");
+                    }
+                }
+            }
+            StepAst::Top {
+                n_span,
+                key,
+                by,
+                rest,
+                ..
+            } => {
+                self.s("top ");
+                self.raw(n_span);
+                self.s(" ");
+                self.raw(&key.span);
+                self.s(" by ");
+                self.raw(&by.span);
+                if let Some(r) = rest {
+                    self.s(" rest ");
+                    self.raw(&r.span);
+                }
+            }
+            StepAst::Columns { names, .. } => {
+                self.s("columns ");
+                self.idents(names);
+            }
+        }
+    }
+}

@@ -1,0 +1,380 @@
+//! Row expressions: the expressions of a view's `keep` and `add` steps and
+//! of a selection's `where`, checked against a table's columns and turned
+//! into the engine's expressions. Names are columns; the functions of
+//! values and `about` belong to values and claims and are refused here.
+
+use std::sync::Arc;
+
+use crescendo_data::{self as data, ArithOp, CmpOp, ColType, Table, Value};
+use crescendo_diag::{closest, Diagnostic, Source};
+use crescendo_lang::ast::{self, BinOp, Expr, Ident, Link};
+
+/// A column name and type.
+pub type Schema = Vec<(String, ColType)>;
+
+pub fn schema_of(t: &Table) -> Schema {
+    t.columns.iter().map(|c| (c.name.clone(), c.ty)).collect()
+}
+
+/// Find a column; reports unknown names with a suggestion. `table_name` says
+/// where the column was looked for ("in `monthly`", "at this step of
+/// `monthly`").
+pub fn column(
+    src: &Arc<Source>,
+    schema: &Schema,
+    table_name: &str,
+    id: &Ident,
+    diags: &mut Vec<Diagnostic>,
+) -> Option<(usize, ColType)> {
+    if let Some(i) = schema.iter().position(|(n, _)| *n == id.name) {
+        return Some((i, schema[i].1));
+    }
+    let mut d = Diagnostic::error(
+        "unknown-column",
+        format!("no column named `{}` {table_name}", id.name),
+    )
+    .at(src, id.span.clone(), "unknown column");
+    if let Some(s) = closest(&id.name, schema.iter().map(|(n, _)| n.as_str())) {
+        d = d.help(format!("did you mean `{s}`?"));
+    }
+    let names: Vec<&str> = schema.iter().map(|(n, _)| n.as_str()).collect();
+    diags.push(d.note(format!("columns here: {}", names.join(", "))));
+    None
+}
+
+/// The type of an expression while checking it.
+#[derive(Clone, Debug, PartialEq)]
+pub(crate) enum Ty {
+    Col(ColType),
+    Bool,
+    /// A string literal: text, or a date/month/year when compared to one.
+    TextLit(String),
+}
+
+impl Ty {
+    pub(crate) fn describe(&self) -> String {
+        match self {
+            Ty::Col(c) => c.name().to_string(),
+            Ty::Bool => "true/false".to_string(),
+            Ty::TextLit(_) => "text".to_string(),
+        }
+    }
+}
+
+/// Checks row expressions against one table's columns.
+pub(crate) struct Checker<'a> {
+    pub(crate) src: &'a Arc<Source>,
+    pub(crate) schema: &'a Schema,
+    /// Where the columns are looked for, for messages.
+    pub(crate) table: &'a str,
+    pub(crate) diags: &'a mut Vec<Diagnostic>,
+    /// Why a column is text (a note for type errors).
+    pub(crate) why: &'a dyn Fn(&str) -> Option<String>,
+}
+
+impl Checker<'_> {
+    pub(crate) fn err(&mut self, span: ast::Span, message: String, label: &str) {
+        self.diags
+            .push(Diagnostic::error("type", message).at(self.src, span, label.to_string()));
+    }
+
+    /// A literal coerced to `ty`, or an error at `span`.
+    fn literal_as(&mut self, lit: &Expr, ty: ColType) -> Option<Value> {
+        let span = lit.span();
+        let parsed = |what: &str, write: &str, value: Option<Value>| match value {
+            Some(v) => Ok(v),
+            None => Err((
+                format!("is not a {what} (write {write})"),
+                format!("not a {what}"),
+            )),
+        };
+        let result = match (lit, ty) {
+            (Expr::Number { value, .. }, ColType::Number) => Ok(Value::Number(*value)),
+            (Expr::Number { value, .. }, ColType::Year) if value.fract() == 0.0 => {
+                Ok(Value::Year(*value as i32))
+            }
+            (Expr::Text(s), ColType::Text) => Ok(Value::Text(s.value.clone())),
+            (Expr::Text(s), ColType::Month) => parsed(
+                "month",
+                "YYYY-MM",
+                data::time::parse_month(&s.value).map(Value::Month),
+            ),
+            (Expr::Text(s), ColType::Date) => parsed(
+                "date",
+                "YYYY-MM-DD",
+                data::time::parse_date(&s.value).map(Value::Date),
+            ),
+            (Expr::Text(s), ColType::Year) => parsed(
+                "year",
+                "YYYY",
+                data::time::parse_year(&s.value).map(Value::Year),
+            ),
+            (_, ty) => {
+                self.err(
+                    span,
+                    format!("this value cannot be compared with a {} column", ty.name()),
+                    "wrong type",
+                );
+                return None;
+            }
+        };
+        match (result, lit) {
+            (Ok(v), _) => Some(v),
+            (Err((message, label)), Expr::Text(s)) => {
+                self.err(span, format!("\"{}\" {message}", s.value), &label);
+                None
+            }
+            (Err(_), _) => None,
+        }
+    }
+
+    /// The number side of a comparison with a year: a literal becomes a
+    /// year (or an error when it is not a whole number); any other number
+    /// expression is compared as it is.
+    fn year_operand(&mut self, e: &Expr, checked: data::Expr) -> Option<data::Expr> {
+        match e {
+            Expr::Number { .. } => Some(data::Expr::Lit(self.literal_as(e, ColType::Year)?)),
+            _ => Some(checked),
+        }
+    }
+
+    /// Check `e` and turn it into the engine's expression, with its type;
+    /// `None` once the problem is reported.
+    pub(crate) fn check(&mut self, e: &Expr) -> Option<(data::Expr, Ty)> {
+        match e {
+            Expr::Name(id) => {
+                let (i, t) = column(self.src, self.schema, self.table, id, self.diags)?;
+                Some((data::Expr::Col(i), Ty::Col(t)))
+            }
+            Expr::Number { value, .. } => Some((
+                data::Expr::Lit(Value::Number(*value)),
+                Ty::Col(ColType::Number),
+            )),
+            Expr::Text(s) => Some((
+                data::Expr::Lit(Value::Text(s.value.clone())),
+                Ty::TextLit(s.value.clone()),
+            )),
+            Expr::Neg { expr, span } => {
+                let (x, t) = self.check(expr)?;
+                if t != Ty::Col(ColType::Number) {
+                    self.err(
+                        span.clone(),
+                        format!("`-` needs a number, not {}", t.describe()),
+                        "not a number",
+                    );
+                    return None;
+                }
+                Some((data::Expr::Neg(Box::new(x)), t))
+            }
+            Expr::Not { expr, span } => {
+                let (x, t) = self.check(expr)?;
+                if t != Ty::Bool {
+                    self.err(
+                        span.clone(),
+                        format!("`not` needs a condition, not {}", t.describe()),
+                        "not a condition",
+                    );
+                    return None;
+                }
+                Some((data::Expr::Not(Box::new(x)), Ty::Bool))
+            }
+            Expr::In {
+                expr,
+                list,
+                negated,
+                span,
+            } => self.membership(expr, list, *negated, span),
+            Expr::Chain { first, rest, .. } => self.chain(first, rest),
+            Expr::Compare {
+                op,
+                left,
+                right,
+                span,
+            } => self.compare(*op, left, right, span),
+            Expr::Call { func, span, .. } => {
+                self.not_in_a_row(
+                    span.clone(),
+                    format!("`{}(...)` is a function of values, not of a row's cells", func.name),
+                    "a value function",
+                    "compute it in a `value`, or per group with `| by KEY: NAME = FUNCTION(COLUMN)`",
+                );
+                None
+            }
+            Expr::About { span, .. } => {
+                self.not_in_a_row(
+                    span.clone(),
+                    "`about ... within` compares values in a claim, not a row's cells".into(),
+                    "only in a claim",
+                    "compare the cells with `>=` and `<=`",
+                );
+                None
+            }
+        }
+    }
+
+    fn not_in_a_row(&mut self, span: ast::Span, message: String, label: &str, help: &str) {
+        self.diags.push(
+            Diagnostic::error("syntax", message)
+                .at(self.src, span, label.to_string())
+                .help(help.to_string()),
+        );
+    }
+
+    /// `expr [not] in (literals)`.
+    fn membership(
+        &mut self,
+        expr: &Expr,
+        list: &[Expr],
+        negated: bool,
+        span: &ast::Span,
+    ) -> Option<(data::Expr, Ty)> {
+        let (x, t) = self.check(expr)?;
+        let Ty::Col(ty) = t else {
+            self.err(
+                span.clone(),
+                "`in` needs a column on its left".into(),
+                "not a column",
+            );
+            return None;
+        };
+        let mut values = Vec::new();
+        for l in list {
+            values.push(self.literal_as(l, ty)?);
+        }
+        let inn = data::Expr::In(Box::new(x), values);
+        let e = if negated {
+            data::Expr::Not(Box::new(inn))
+        } else {
+            inn
+        };
+        Some((e, Ty::Bool))
+    }
+
+    /// Operators of one level, applied left to right: the operands are
+    /// checked in order, and each operator checks the operands it joins.
+    fn chain(&mut self, first: &Expr, rest: &[Link]) -> Option<(data::Expr, Ty)> {
+        let (mut acc, first_ty) = self.check(first)?;
+        let mut ty = first_ty.clone();
+        for (k, link) in rest.iter().enumerate() {
+            let (r, rt) = self.check(&link.operand)?;
+            if k == 0 {
+                self.operand(link.op, &first_ty, first)?;
+            }
+            self.operand(link.op, &rt, &link.operand)?;
+            let (l, r) = (Box::new(acc), Box::new(r));
+            (acc, ty) = match link.op {
+                BinOp::And => (data::Expr::And(l, r), Ty::Bool),
+                BinOp::Or => (data::Expr::Or(l, r), Ty::Bool),
+                op => (
+                    data::Expr::Arith(arith_op(op), l, r),
+                    Ty::Col(ColType::Number),
+                ),
+            };
+        }
+        Some((acc, ty))
+    }
+
+    /// Check that `side`, of type `t`, fits operator `op` of a chain.
+    fn operand(&mut self, op: BinOp, t: &Ty, side: &Expr) -> Option<()> {
+        let logic = matches!(op, BinOp::And | BinOp::Or);
+        let (wanted, message, label) = if logic {
+            (Ty::Bool, "joins conditions", "not a condition")
+        } else {
+            (Ty::Col(ColType::Number), "needs numbers", "not a number")
+        };
+        if *t == wanted {
+            return Some(());
+        }
+        self.err(
+            side.span(),
+            format!("`{}` {message}, but this is {}", op.symbol(), t.describe()),
+            label,
+        );
+        if let (false, Expr::Name(id)) = (logic, side) {
+            if let Some(n) = (self.why)(&id.name) {
+                if let Some(d) = self.diags.last_mut() {
+                    d.notes.push(n);
+                }
+            }
+        }
+        None
+    }
+
+    /// `a op b` for a comparison operator.
+    fn compare(
+        &mut self,
+        op: BinOp,
+        left: &Expr,
+        right: &Expr,
+        span: &ast::Span,
+    ) -> Option<(data::Expr, Ty)> {
+        let cop = match op {
+            BinOp::Eq => CmpOp::Eq,
+            BinOp::Ne => CmpOp::Ne,
+            BinOp::Lt => CmpOp::Lt,
+            BinOp::Le => CmpOp::Le,
+            BinOp::Gt => CmpOp::Gt,
+            _ => CmpOp::Ge,
+        };
+        let (l, lt) = self.check(left)?;
+        let (r, rt) = self.check(right)?;
+        let (l, r) = match (&lt, &rt) {
+            (Ty::Col(a), Ty::Col(b)) if a == b => (l, r),
+            // Years compare with numbers (the engine does this); a number
+            // literal must be a whole year.
+            (Ty::Col(ColType::Year), Ty::Col(ColType::Number)) => (l, self.year_operand(right, r)?),
+            (Ty::Col(ColType::Number), Ty::Col(ColType::Year)) => (self.year_operand(left, l)?, r),
+            (Ty::Col(c), Ty::TextLit(_)) => (l, data::Expr::Lit(self.literal_as(right, *c)?)),
+            (Ty::TextLit(_), Ty::Col(c)) => (data::Expr::Lit(self.literal_as(left, *c)?), r),
+            (Ty::TextLit(_), Ty::TextLit(_)) => (l, r),
+            _ => {
+                self.err(
+                    span.clone(),
+                    format!("cannot compare {} with {}", lt.describe(), rt.describe()),
+                    "mismatched types",
+                );
+                return None;
+            }
+        };
+        Some((data::Expr::Cmp(cop, Box::new(l), Box::new(r)), Ty::Bool))
+    }
+}
+
+fn arith_op(op: BinOp) -> ArithOp {
+    match op {
+        BinOp::Add => ArithOp::Add,
+        BinOp::Sub => ArithOp::Sub,
+        BinOp::Mul => ArithOp::Mul,
+        _ => ArithOp::Div,
+    }
+}
+
+/// Type-check a row condition (a `where` of a value selection) against a
+/// schema; `place` says where the columns were looked for.
+pub fn check_condition(
+    src: &Arc<Source>,
+    schema: &Schema,
+    place: &str,
+    expr: &Expr,
+    diags: &mut Vec<Diagnostic>,
+) -> Option<data::Expr> {
+    let no_why = |_: &str| None;
+    let mut ck = Checker {
+        src,
+        schema,
+        table: place,
+        diags,
+        why: &no_why,
+    };
+    match ck.check(expr)? {
+        (e, Ty::Bool) => Some(e),
+        (_, t) => {
+            ck.err(
+                expr.span(),
+                format!("`where` needs a condition, but this is {}", t.describe()),
+                "not a condition",
+            );
+            None
+        }
+    }
+}
