@@ -4,6 +4,8 @@
 
 use std::ops::Range;
 
+use crate::model::Orientation;
+
 /// A byte range in the story source.
 pub type Span = Range<usize>;
 
@@ -29,6 +31,9 @@ pub struct FrameAnchors {
     pub ordered: Option<Span>,
     /// `horizontal` or `vertical`, when given.
     pub orientation: Option<Span>,
+    /// For bars: the orientation the planner's rule picks for their
+    /// category names when neither `horizontal` nor `vertical` is given.
+    pub orientation_by_rule: Option<Orientation>,
     /// The spotlight statement in effect.
     pub spotlight: Option<Span>,
     pub x_title: Option<Span>,

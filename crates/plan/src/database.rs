@@ -13,13 +13,12 @@
 //! a warning says how many.
 //!
 //! Everything runs in one read-only transaction per data item, with the
-//! statement timeout of [`DbOptions::timeout`]. Every failure is a located
+//! statement timeout of `DbOptions::timeout`. Every failure is a located
 //! error that names the data item; the connection string and password
 //! never appear in it.
 
 use std::collections::BTreeSet;
 use std::sync::Arc;
-use std::time::Duration;
 
 use crescendo_data::{Column, Step, Table};
 use crescendo_diag::{Diagnostic, Source};
@@ -29,25 +28,6 @@ use crescendo_sql::{types, Explained, Session, SrcColumn};
 
 use crate::loading::database_prefix_len;
 use crate::resolve::{build_view_inner, data_spec, Named, Streamed, Tables};
-
-/// How database sources are reached.
-#[derive(Clone, Debug)]
-pub struct DbOptions {
-    /// `--connection NAME=ENVVAR`: data item → the environment variable that
-    /// holds its connection string (over the one the story names).
-    pub connections: std::collections::BTreeMap<String, String>,
-    /// The statement timeout of every query.
-    pub timeout: Duration,
-}
-
-impl Default for DbOptions {
-    fn default() -> Self {
-        DbOptions {
-            connections: Default::default(),
-            timeout: Duration::from_secs(60),
-        }
-    }
-}
 
 /// A view's prefix query: the view, the number of its steps (as written)
 /// the prefix covers, the resolved prefix steps and the query.
@@ -342,10 +322,8 @@ impl Tables {
         Some(table)
     }
 
-    fn push_explained(&self, e: Vec<Explained>) {
-        if let Ok(mut all) = self.sql.lock() {
-            all.extend(e);
-        }
+    fn push_explained(&mut self, e: Vec<Explained>) {
+        self.sql.extend(e);
     }
 
     /// The prefix query of every view over a database item, or `None` when

@@ -51,9 +51,9 @@ pub struct Tables {
     /// What the loads did, for the command to report.
     pub report: LoadReport,
     /// How database sources are reached.
-    pub(crate) db: crate::database::DbOptions,
+    pub(crate) db: crate::options::DbOptions,
     /// The queries database sources ran (for `check --explain-sql`).
-    pub(crate) sql: Arc<std::sync::Mutex<Vec<crescendo_sql::Explained>>>,
+    pub(crate) sql: Vec<crescendo_sql::Explained>,
 }
 
 /// How the data items of one plan were read (also stored in the cache

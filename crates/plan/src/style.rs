@@ -34,11 +34,9 @@
 //! ```
 
 use std::ops::Range;
-use std::path::Path;
 use std::sync::Arc;
 
 use crescendo_diag::{Diagnostic, Source};
-use crescendo_lang::ast::Str;
 use serde::{Deserialize, Serialize};
 use toml::Spanned;
 
@@ -353,38 +351,6 @@ pub fn parse(src: &Arc<Source>, name: &str) -> Result<HouseStyle, Vec<Diagnostic
         Ok(style)
     } else {
         Err(c.diags)
-    }
-}
-
-/// Load and validate the style file `file` (relative to `dir`).
-pub fn load(
-    src: &Arc<Source>,
-    dir: &Path,
-    file: &Str,
-    diags: &mut Vec<Diagnostic>,
-) -> Option<HouseStyle> {
-    let path = dir.join(&file.value);
-    let text = match std::fs::read_to_string(&path) {
-        Ok(t) => t,
-        Err(e) => {
-            diags.push(
-                Diagnostic::error(
-                    "style-file",
-                    format!("cannot read the house style `{}`: {e}", path.display()),
-                )
-                .at(src, file.span.clone(), "named here")
-                .help("the path is relative to the story file"),
-            );
-            return None;
-        }
-    };
-    let style_src = Source::file(path.display().to_string(), text);
-    match parse(&style_src, &file.value) {
-        Ok(s) => Some(s),
-        Err(mut d) => {
-            diags.append(&mut d);
-            None
-        }
     }
 }
 

@@ -28,17 +28,16 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
         let (Chart::Bars(b), Some(span)) = (&f.chart, &a.orientation) else {
             continue;
         };
-        if b.orientation != Orientation::Vertical {
-            continue;
-        }
-        let longest = b
-            .bars
-            .iter()
-            .map(|b| b.label.chars().count())
-            .max()
-            .unwrap_or(0);
-        // The planner's own rule for choosing horizontal bars.
-        if longest * b.bars.len() > 110 || longest > 24 {
+        // Forced vertical where the planner's own rule turns them.
+        if b.orientation == Orientation::Vertical
+            && a.orientation_by_rule == Some(Orientation::Horizontal)
+        {
+            let longest = b
+                .bars
+                .iter()
+                .map(|b| b.label.chars().count())
+                .max()
+                .unwrap_or(0);
             out.push(Finding {
                 frame: Some(i),
                 span: span.clone(),

@@ -1,0 +1,187 @@
+//! Everything planning reads from outside the story text goes through one
+//! interface, [`Io`], passed into [`crate::plan_story_with`]: the files a
+//! story names (confined to its folder tree), plugin libraries, database
+//! sessions and the view cache. Planning itself writes no file; what it
+//! learnt about its loads comes back with the plan ([`crate::Planned`]).
+//!
+//! [`Disk`] is the plain implementation: it reads the story's files and
+//! plugins and connects to databases, and keeps no cache. The command wraps
+//! it with the cache folder beside the deck.
+
+use std::path::{Path, PathBuf};
+use std::time::Duration;
+
+use crescendo_data::stream::{Chunks, ScanFailure, ScanInput, ScanOutput};
+use crescendo_data::{Columns, CsvSpec, LoadError, Probe, Table};
+use crescendo_plugin::host::{Plugin, PluginError};
+use crescendo_sql::client::Row;
+use crescendo_sql::{Session, SessionError};
+
+use crate::options::Options;
+
+/// Where planning reads from.
+// `LoadError` is the data crate's, returned as it comes.
+#[allow(clippy::result_large_err)]
+pub trait Io {
+    /// The file the story wrote as `written`, relative to the story's
+    /// folder `dir`, or why the story may not read it (it lies outside the
+    /// folders it may read; see `paths.rs`).
+    fn confine(&self, dir: &Path, written: &str) -> Result<PathBuf, String>;
+
+    /// The size of a file in bytes; `None` when it cannot be read (its
+    /// reader then reports why).
+    fn file_len(&self, path: &Path) -> Option<u64>;
+
+    /// A whole text file (a house style).
+    fn read_text(&self, path: &Path) -> std::io::Result<String>;
+
+    /// The columns `columns` of a CSV file, whole.
+    fn load_csv(&self, spec: &CsvSpec, columns: &Columns) -> Result<Table, LoadError>;
+
+    /// The header and the first `sample` records of a CSV file.
+    fn probe_csv(
+        &self,
+        spec: &CsvSpec,
+        columns: &Columns,
+        sample: usize,
+    ) -> Result<Probe, LoadError>;
+
+    /// One streaming pass over a CSV file (see `crescendo_data::stream`).
+    fn scan_csv(&self, input: &ScanInput) -> Result<ScanOutput, ScanFailure>;
+
+    /// Load a plugin library, checking its pin.
+    fn load_plugin(&mut self, path: &Path, pin: Option<&str>) -> Result<Plugin, PluginError>;
+
+    /// An environment variable (a database connection string).
+    fn env_var(&self, name: &str) -> Option<String>;
+
+    /// Open a read-only database session.
+    fn connect(
+        &mut self,
+        connection: &str,
+        timeout: Duration,
+    ) -> Result<Box<dyn Database>, SessionError>;
+
+    /// The view cache, when the build keeps one.
+    fn cache(&mut self) -> Option<&mut dyn ViewCache>;
+}
+
+/// A read-only database session (see `crescendo_sql::Session`).
+pub trait Database {
+    /// The columns of `sql` (prepared, not run): names and type names.
+    fn columns(
+        &mut self,
+        sql: &str,
+        timeout: Duration,
+    ) -> Result<Vec<(String, String)>, SessionError>;
+
+    /// Run `sql`; the rows and the bytes of cell text received.
+    fn rows(
+        &mut self,
+        sql: &str,
+        params: &[String],
+        timeout: Duration,
+    ) -> Result<(Vec<Row>, u64), SessionError>;
+
+    /// End the session (nothing was written).
+    fn close(self: Box<Self>);
+}
+
+impl Database for Session {
+    fn columns(
+        &mut self,
+        sql: &str,
+        timeout: Duration,
+    ) -> Result<Vec<(String, String)>, SessionError> {
+        Session::columns(self, sql, timeout)
+    }
+
+    fn rows(
+        &mut self,
+        sql: &str,
+        params: &[String],
+        timeout: Duration,
+    ) -> Result<(Vec<Row>, u64), SessionError> {
+        Session::rows(self, sql, params, timeout)
+    }
+
+    fn close(self: Box<Self>) {
+        Session::close(*self)
+    }
+}
+
+/// Entries kept between builds, by kind and key (see `loading.rs`). Values
+/// are JSON; an entry that does not parse is treated as missing.
+pub trait ViewCache {
+    /// The content hash of a data file (xxh3-128, hex).
+    fn content_hash(&mut self, path: &Path) -> std::io::Result<String>;
+    fn get(&self, kind: &str, key: &str) -> Option<Vec<u8>>;
+    fn put(&mut self, kind: &str, key: &str, json: Vec<u8>);
+}
+
+/// Reads the story's files, plugins and databases; keeps no cache.
+#[derive(Clone, Debug, Default)]
+pub struct Disk {
+    /// Folders outside the story's own that it may read (`--allow-path`).
+    allowed: Vec<PathBuf>,
+}
+
+impl Disk {
+    pub fn new(options: &Options) -> Disk {
+        Disk {
+            allowed: options.allow_paths.clone(),
+        }
+    }
+}
+
+#[allow(clippy::result_large_err)]
+impl Io for Disk {
+    fn confine(&self, dir: &Path, written: &str) -> Result<PathBuf, String> {
+        crate::paths::confine(dir, written, &self.allowed)
+    }
+
+    fn file_len(&self, path: &Path) -> Option<u64> {
+        std::fs::metadata(path).ok().map(|m| m.len())
+    }
+
+    fn read_text(&self, path: &Path) -> std::io::Result<String> {
+        std::fs::read_to_string(path)
+    }
+
+    fn load_csv(&self, spec: &CsvSpec, columns: &Columns) -> Result<Table, LoadError> {
+        crescendo_data::load_csv_columns(spec, columns)
+    }
+
+    fn probe_csv(
+        &self,
+        spec: &CsvSpec,
+        columns: &Columns,
+        sample: usize,
+    ) -> Result<Probe, LoadError> {
+        crescendo_data::probe(spec, columns, sample)
+    }
+
+    fn scan_csv(&self, input: &ScanInput) -> Result<ScanOutput, ScanFailure> {
+        crescendo_data::stream::scan(input, &Chunks::Auto)
+    }
+
+    fn load_plugin(&mut self, path: &Path, pin: Option<&str>) -> Result<Plugin, PluginError> {
+        Plugin::load(path, pin)
+    }
+
+    fn env_var(&self, name: &str) -> Option<String> {
+        std::env::var(name).ok()
+    }
+
+    fn connect(
+        &mut self,
+        connection: &str,
+        timeout: Duration,
+    ) -> Result<Box<dyn Database>, SessionError> {
+        Ok(Box::new(Session::open(connection, timeout)?))
+    }
+
+    fn cache(&mut self) -> Option<&mut dyn ViewCache> {
+        None
+    }
+}
