@@ -521,6 +521,26 @@ fn table() {
         .any(|b| b.text.starts_with('…') && b.text.ends_with("more rows")));
 }
 
+#[test]
+fn a_spotlighted_row_beyond_the_visible_rows_is_drawn() {
+    let mut chart = table_chart(60, false);
+    if let Chart::Table(t) = &mut chart {
+        t.rows[55].role = Role::Focus;
+    }
+    let svg = render(chart);
+    let boxes = check(&svg);
+    // row 55 ("+165%" in its last column) is drawn, in the accent, after
+    // the count of the rows left out
+    let lit = find(&boxes, "+165%");
+    let note = boxes
+        .iter()
+        .find(|b| b.text.starts_with('…') && b.text.ends_with("more rows"))
+        .expect("a count of the rows left out");
+    assert!(lit.y0 > note.y0, "{lit:?} {note:?}");
+    assert!(!has(&boxes, "+162%"), "row 54 is not drawn");
+    assert_eq!(count(&svg, "text", "fill", ACCENT), 3 + 1 + 3);
+}
+
 fn pie_chart(hide: bool) -> Chart {
     let slices = [
         ("Westbrook", 0.38),
