@@ -543,24 +543,56 @@ pub enum Piece {
     Columns(Vec<usize>),
 }
 
-/// Whether [`pipeline`] prints `pieces` whole: leading `keep`s and `add`s,
-/// at most one group, and after it (or after a row-level `sort` or
-/// `columns`) only `keep`, `add`, `sort` and `columns`. A `top` and a
-/// second group are never printed (see the module docs).
-pub fn pushable(pieces: &[Piece]) -> bool {
+/// What kind of step a piece (or a step as written) is, as far as printing
+/// it as SQL goes.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum StepKind {
+    Keep,
+    /// `add`.
+    Derive,
+    /// `by`.
+    Group,
+    Sort,
+    Columns,
+    Top,
+}
+
+impl Piece {
+    pub fn kind(&self) -> StepKind {
+        match self {
+            Piece::Step(Step::Keep(_)) => StepKind::Keep,
+            Piece::Step(Step::Derive { .. }) => StepKind::Derive,
+            Piece::Step(Step::Group { .. }) => StepKind::Group,
+            Piece::Step(Step::Sort { .. }) => StepKind::Sort,
+            Piece::Step(Step::Top { .. }) => StepKind::Top,
+            Piece::Columns(_) => StepKind::Columns,
+        }
+    }
+}
+
+/// How many leading steps of a pipeline one query prints (the one rule of
+/// what goes to SQL): `keep`s and `add`s, at most one group, and after it
+/// (or after a row-level `sort` or `columns`) only `keep`, `add`, `sort`
+/// and `columns`. A `top` and a second group are never printed (see the
+/// module docs); they and everything after run locally.
+pub fn pushable_len(kinds: impl IntoIterator<Item = StepKind>) -> usize {
     let mut grouped_or_reordered = false;
-    pieces.iter().all(|piece| match piece {
-        Piece::Step(Step::Keep(_) | Step::Derive { .. }) => true,
-        Piece::Step(Step::Group { .. }) if !grouped_or_reordered => {
-            grouped_or_reordered = true;
-            true
+    let mut n = 0;
+    for kind in kinds {
+        match kind {
+            StepKind::Keep | StepKind::Derive => {}
+            StepKind::Group if !grouped_or_reordered => grouped_or_reordered = true,
+            StepKind::Sort | StepKind::Columns => grouped_or_reordered = true,
+            StepKind::Group | StepKind::Top => break,
         }
-        Piece::Step(Step::Sort { .. }) | Piece::Columns(_) => {
-            grouped_or_reordered = true;
-            true
-        }
-        Piece::Step(Step::Group { .. } | Step::Top { .. }) => false,
-    })
+        n += 1;
+    }
+    n
+}
+
+/// Whether [`pipeline`] prints `pieces` whole (see [`pushable_len`]).
+pub fn pushable(pieces: &[Piece]) -> bool {
+    pushable_len(pieces.iter().map(Piece::kind)) == pieces.len()
 }
 
 impl Printer {
@@ -882,6 +914,30 @@ mod tests {
                 read: Read::Exact,
             },
         ]
+    }
+
+    #[test]
+    fn what_goes_to_sql() {
+        use StepKind::*;
+        assert_eq!(pushable_len([Keep, Derive, Group, Keep, Sort, Columns]), 6);
+        // a second group, or a `top`, ends what the query prints
+        assert_eq!(pushable_len([Keep, Group, Derive, Group, Keep]), 3);
+        assert_eq!(pushable_len([Keep, Top, Keep]), 1);
+        assert_eq!(pushable_len([Top]), 0);
+        // a group after a row-level sort or `columns` runs locally
+        assert_eq!(pushable_len([Sort, Group]), 1);
+        assert_eq!(pushable_len([Columns, Keep, Group]), 2);
+        let group = Piece::Step(Step::Group {
+            keys: vec![0],
+            aggregates: Vec::new(),
+        });
+        assert!(pushable(&[
+            Piece::Columns(vec![0]),
+            Piece::Step(Step::Sort {
+                keys: vec![(0, false)]
+            })
+        ]));
+        assert!(!pushable(&[group.clone(), group]));
     }
 
     #[test]
