@@ -8,7 +8,7 @@ use crate::planning::load_plan;
 use crate::EXIT_OUTPUT;
 
 pub fn run(story: &Path, data: &DataArgs, color: bool) -> ExitCode {
-    match load_plan(story, data, color) {
+    match load_plan(story, data, None, color) {
         Ok(p) => match serde_json::to_string_pretty(&p.plan) {
             Ok(s) => {
                 say!("{s}");

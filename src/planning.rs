@@ -10,7 +10,7 @@ use crescendo_diag::{render, Diagnostic, Source};
 use crescendo_plan::{Options, Planned};
 
 use crate::cli::{parse_connection_arg, DataArgs, Deny, LintArgs};
-use crate::{incremental, EXIT_STORY};
+use crate::EXIT_STORY;
 
 /// Lint a plan with the theme it will be drawn with.
 pub fn run_lint(planned: &Planned, args: &LintArgs) -> Vec<Diagnostic> {
@@ -38,8 +38,13 @@ pub fn default_out(story: &Path) -> PathBuf {
     story.parent().unwrap_or(Path::new(".")).join("deck")
 }
 
-/// Read, parse and plan a story without printing anything.
-pub fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic>> {
+/// Read, parse and plan a story without printing anything; `cache`: the
+/// folder of the planner's view cache (none: no cache).
+pub fn plan_quietly(
+    story: &Path,
+    data: &DataArgs,
+    cache: Option<PathBuf>,
+) -> Result<Planned, Vec<Diagnostic>> {
     crescendo_plan::limits::file_size(story, &data.limits.limits())
         .map_err(|e| vec![Diagnostic::error("limit", e)])?;
     let text = std::fs::read_to_string(story).map_err(|e| {
@@ -52,7 +57,7 @@ pub fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagno
     let dir = story.parent().unwrap_or(Path::new("."));
     let options = Options {
         data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
-        cache: incremental::planner_cache(),
+        cache,
         no_plugins: data.no_plugins,
         database: crescendo_plan::DbOptions {
             connections: data
@@ -76,8 +81,13 @@ pub fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagno
 }
 
 /// Read, parse and plan a story; print diagnostics; exit status on failure.
-pub fn load_plan(story: &Path, data: &DataArgs, color: bool) -> Result<Planned, ExitCode> {
-    match plan_quietly(story, data) {
+pub fn load_plan(
+    story: &Path,
+    data: &DataArgs,
+    cache: Option<PathBuf>,
+    color: bool,
+) -> Result<Planned, ExitCode> {
+    match plan_quietly(story, data, cache) {
         Ok(p) => {
             if !p.warnings.is_empty() {
                 eprint!("{}", render(&p.warnings, color));
