@@ -114,6 +114,13 @@ impl<'a> Ctx<'a> {
     ) -> Outcome<T> {
         let mut ds = Vec::new();
         let out = stage(&mut ds);
+        self.absorb(ds, out)
+    }
+
+    /// Take what a stage that reports into a list of diagnostics gave:
+    /// its diagnostics, and its answer (`None` after a failure, see
+    /// [`Ctx::collect`]).
+    pub(crate) fn absorb<T>(&mut self, ds: Vec<Diagnostic>, out: Option<T>) -> Outcome<T> {
         let reported = self.extend(ds);
         match out {
             Some(t) => Ok(t),

@@ -267,11 +267,12 @@ impl Tables {
         story_dir: &Path,
         decl: &ast::DataDecl,
         replacement: Option<&Path>,
+        io: &mut dyn crate::io::Io,
         diags: &mut Vec<Diagnostic>,
     ) -> Option<Table> {
         if let Some(db) = &decl.database {
             if replacement.is_none() {
-                let table = self.load_database(src, decl, db, diags);
+                let table = crate::database::load(self, io, src, (decl, db), diags);
                 if let Some(c) = &self.cache {
                     c.put("report", "last", &self.report);
                 }

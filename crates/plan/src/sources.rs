@@ -71,7 +71,9 @@ fn read(cx: &mut Ctx, tables: &mut Tables, d: &ast::DataDecl) -> Outcome<crescen
         return Err(cx.error("limit", why, d.file.span.clone(), "this file"));
     }
     let (src, dir) = (cx.src, cx.dir);
-    let table = cx.collect(|diags| tables.load(src, dir, d, replacement.as_deref(), diags))?;
+    let mut diags = Vec::new();
+    let loaded = tables.load(src, dir, d, replacement.as_deref(), cx.io, &mut diags);
+    let table = cx.absorb(diags, loaded)?;
     if let Err(why) = crate::limits::table(&table, &options.limits) {
         return Err(cx.error("limit", why, d.file.span.clone(), "this file"));
     }

@@ -168,12 +168,15 @@ pub(crate) fn draw(
     Ok(())
 }
 
+/// The slot of the "… N more rows" line, and N.
+type MoreRows = (usize, usize);
+
 /// Which rows a table of `lit.len()` rows draws in `fit` row slots: (slot,
 /// row) pairs, and the slot of the "… N more rows" line with N. When not
 /// every row fits, the first rows fill the slots before that line; a lit
 /// row (spotlighted, or with a spotlighted cell) that would fall beyond
 /// them follows the line instead, in place of the last rows before it.
-fn rows_to_draw(lit: &[bool], fit: usize) -> (Vec<(usize, usize)>, Option<(usize, usize)>) {
+fn rows_to_draw(lit: &[bool], fit: usize) -> (Vec<(usize, usize)>, Option<MoreRows>) {
     let total = lit.len();
     if total <= fit {
         return ((0..total).map(|r| (r, r)).collect(), None);
