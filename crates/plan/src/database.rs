@@ -24,16 +24,29 @@ use std::time::Duration;
 use crescendo_data::{Column, CsvSpec, Step, Table};
 use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::{self, DbFrom};
-use crescendo_sql::print::{self, RowOrder};
+use crescendo_sql::print::{self, RowOrder, StepKind};
 use crescendo_sql::{types, Explained, SrcColumn};
 
 use crate::io::{Database, Io};
-use crate::loading::database_prefix_len;
 use crate::resolve::{build_view_inner, data_spec, Named, Streamed, Tables};
 
 /// A view's prefix query: the view, the number of its steps (as written)
 /// the prefix covers, the resolved prefix steps and the query.
 type PrefixQuery = (String, usize, Vec<Step>, print::Query);
+
+/// Number of leading steps of a view over a database item that run in the
+/// database: the rule of `crescendo_sql::print::pushable_len`, over the
+/// steps as written.
+pub(crate) fn database_prefix_len(steps: &[ast::StepAst]) -> usize {
+    print::pushable_len(steps.iter().map(|s| match s {
+        ast::StepAst::Keep { .. } => StepKind::Keep,
+        ast::StepAst::Add { .. } => StepKind::Derive,
+        ast::StepAst::By { .. } => StepKind::Group,
+        ast::StepAst::Sort { .. } => StepKind::Sort,
+        ast::StepAst::Columns { .. } => StepKind::Columns,
+        ast::StepAst::Top { .. } => StepKind::Top,
+    }))
+}
 
 /// The database data item being read.
 struct Item<'a> {

@@ -49,6 +49,7 @@ use crescendo_lang::visit::{walk_database, walk_selection, walk_story, Visit};
 use serde::{Deserialize, Serialize};
 
 use crate::cache::{hash_hex, Cache, FORMAT};
+use crate::database::database_prefix_len;
 use crate::resolve::{
     build_view_inner, data_spec, load_reported, report_load, Named, StoryFacts, Streamed, Tables,
 };
@@ -134,26 +135,6 @@ fn tables_named_in(item: &Item) -> BTreeSet<String> {
     let mut v = TablesNamed::default();
     v.visit_item(item);
     v.named
-}
-
-/// Number of leading steps of a view over a database item that run in the
-/// database: `keep`s and `add`s, at most one `by`, then `keep`, `add`,
-/// `sort` and `columns` steps (a `top` or a second `by` ends it).
-pub(crate) fn database_prefix_len(steps: &[StepAst]) -> usize {
-    // After the group (or a row-level `sort` or `columns`), only `keep`,
-    // `add`, `sort` and `columns` are printed: see `crescendo_sql::print::pushable`.
-    let mut after = false;
-    let mut n = 0;
-    for s in steps {
-        match s {
-            StepAst::Keep { .. } | StepAst::Add { .. } => {}
-            StepAst::By { .. } if !after => after = true,
-            StepAst::Sort { .. } | StepAst::Columns { .. } => after = true,
-            _ => break,
-        }
-        n += 1;
-    }
-    n
 }
 
 /// Number of leading steps of a view that stream: `keep`s, then one `by`.

@@ -7,8 +7,8 @@ use crescendo_lang::ast::{ChartStmt, OptName};
 use crate::context::{Ctx, Outcome};
 use crate::forms::form::FormPlanner;
 use crate::forms::options::{column, flag, Opt};
-use crate::forms::spec::{self, ChartSpec, SpecInput};
-use crate::forms::{grid, orientation, parts};
+use crate::forms::spec::{self, ChartSpec};
+use crate::forms::{orientation, parts};
 use crate::labels::{display, humanize, position};
 use crate::model::*;
 use crate::scale;
@@ -16,7 +16,7 @@ use crate::sequence::SeqState;
 
 pub(crate) struct Bars;
 
-const OPTIONS: &[Opt] = &[
+pub(crate) const OPTIONS: &[Opt] = &[
     column(OptName::Category),
     column(OptName::Value),
     flag(OptName::Ordered),
@@ -27,14 +27,6 @@ const OPTIONS: &[Opt] = &[
 ];
 
 impl FormPlanner for Bars {
-    fn options(&self) -> &'static [Opt] {
-        OPTIONS
-    }
-
-    fn spec(&self, cx: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
-        grid::spec(cx, input)
-    }
-
     fn chart(&self, cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<SeqState> {
         if spec.parts_mode.is_some() {
             return parts::chart(cx, spec, c);

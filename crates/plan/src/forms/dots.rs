@@ -8,7 +8,7 @@ use crate::context::{Ctx, Outcome};
 use crate::forms::form::FormPlanner;
 use crate::forms::grid;
 use crate::forms::options::{column, flag, Opt};
-use crate::forms::spec::{self, ChartSpec, SpecInput};
+use crate::forms::spec::{self, ChartSpec};
 use crate::labels::humanize;
 use crate::model::*;
 use crate::scale;
@@ -16,7 +16,7 @@ use crate::sequence::SeqState;
 
 pub(crate) struct Dots;
 
-const OPTIONS: &[Opt] = &[
+pub(crate) const OPTIONS: &[Opt] = &[
     column(OptName::Category),
     column(OptName::Value),
     column(OptName::Series),
@@ -24,14 +24,6 @@ const OPTIONS: &[Opt] = &[
 ];
 
 impl FormPlanner for Dots {
-    fn options(&self) -> &'static [Opt] {
-        OPTIONS
-    }
-
-    fn spec(&self, cx: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
-        grid::spec(cx, input)
-    }
-
     fn chart(&self, cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<SeqState> {
         let grid = grid::cells(cx, spec, c)?;
         let order = grid::order(spec, &grid);
@@ -72,14 +64,7 @@ impl FormPlanner for Dots {
         let chart = Chart::Dots(DotChart {
             category_title: None,
             value,
-            series: grid
-                .keys
-                .iter()
-                .map(|k| Part {
-                    name: k.clone(),
-                    role: Role::Context,
-                })
-                .collect(),
+            series: grid.parts(),
             rows,
         });
         let mut anchors = spec::anchors(c, spec);

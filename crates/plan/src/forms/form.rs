@@ -5,17 +5,18 @@
 use crescendo_lang::ast::ChartStmt;
 
 use crate::context::{Ctx, Outcome};
-use crate::forms::options::Opt;
+use crate::forms::grid;
 use crate::forms::spec::{ChartSpec, SpecInput};
 use crate::sequence::SeqState;
 
 /// The planner of one chart form.
+/// (Its table of options is beside it, see `forms/mod.rs`.)
 pub(crate) trait FormPlanner: Sync {
-    /// The options the form accepts, in the order messages list them.
-    fn options(&self) -> &'static [Opt];
-
-    /// Resolve the columns playing each role.
-    fn spec(&self, cx: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec>;
+    /// Resolve the columns playing each role; by default a category, a
+    /// value and an optional part or series (bars, dots, pies).
+    fn spec(&self, cx: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
+        grid::spec(cx, input)
+    }
 
     /// The chart of a new sequence, every item in context. The view has
     /// rows.

@@ -9,7 +9,7 @@ use crescendo_lang::ast::{ChartStmt, OptName};
 use crate::context::{Ctx, Outcome};
 use crate::forms::spec::{ChartSpec, SpecInput};
 use crate::labels::{display, humanize, number, position};
-use crate::model::{Orientation, PartsMode};
+use crate::model::{Orientation, Part, PartsMode, Role};
 
 /// Resolve `category`, `value` and the optional part or series column of
 /// a bars, dots or pie statement.
@@ -73,6 +73,17 @@ pub(crate) struct Grid {
 }
 
 impl Grid {
+    /// The parts, each in context.
+    pub(crate) fn parts(&self) -> Vec<Part> {
+        self.keys
+            .iter()
+            .map(|k| Part {
+                name: k.clone(),
+                role: Role::Context,
+            })
+            .collect()
+    }
+
     /// Every value present.
     pub(crate) fn present(&self) -> Vec<f64> {
         self.values.iter().flatten().flatten().copied().collect()

@@ -17,17 +17,13 @@ use crate::sequence::SeqState;
 
 pub(crate) struct Line;
 
-const OPTIONS: &[Opt] = &[
+pub(crate) const OPTIONS: &[Opt] = &[
     column(OptName::X),
     column(OptName::Y),
     column(OptName::Series),
 ];
 
 impl FormPlanner for Line {
-    fn options(&self) -> &'static [Opt] {
-        OPTIONS
-    }
-
     fn spec(&self, cx: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
         let (c, view) = (input.c, &input.view);
         let x = match input.given(OptName::X) {

@@ -22,19 +22,21 @@ use crate::context::{Ctx, Outcome};
 use crate::resolve::{schema_of, Tables};
 use crate::sequence::SeqState;
 use form::FormPlanner;
+use options::Opt;
 use spec::SpecInput;
 
 pub(crate) use plugin::draw;
 
-/// The planner of a built-in chart form.
-fn planner(form: ChartForm) -> &'static dyn FormPlanner {
+/// The table of options of a built-in chart form (in the order messages
+/// list them), and its planner.
+fn form(form: ChartForm) -> (&'static [Opt], &'static dyn FormPlanner) {
     match form {
-        ChartForm::Line => &line::Line,
-        ChartForm::Bars => &bars::Bars,
-        ChartForm::Dots => &dots::Dots,
-        ChartForm::Scatter => &scatter::Scatter,
-        ChartForm::Pie => &pie::Pie,
-        ChartForm::Table => &table::Table,
+        ChartForm::Line => (line::OPTIONS, &line::Line),
+        ChartForm::Bars => (bars::OPTIONS, &bars::Bars),
+        ChartForm::Dots => (dots::OPTIONS, &dots::Dots),
+        ChartForm::Scatter => (scatter::OPTIONS, &scatter::Scatter),
+        ChartForm::Pie => (pie::OPTIONS, &pie::Pie),
+        ChartForm::Table => (table::OPTIONS, &table::Table),
     }
 }
 
@@ -49,8 +51,8 @@ pub(crate) fn start(
 ) -> Outcome<SeqState> {
     let src = cx.src;
     let named = cx.collect(|diags| tables.get(src, &c.view, diags))?;
-    let planner = planner(c.form);
-    let chosen = options::choose(cx, c.form.keyword(), planner.options(), &c.opts)?;
+    let (accepted, planner) = form(c.form);
+    let chosen = options::choose(cx, c.form.keyword(), accepted, &c.opts)?;
     let input = SpecInput {
         c,
         view: c.view.name.clone(),
@@ -95,7 +97,7 @@ mod tests {
         ];
         let mut seen = Vec::new();
         for f in forms {
-            let table = planner(f).options();
+            let table = form(f).0;
             for (i, o) in table.iter().enumerate() {
                 assert!(
                     !table[..i].iter().any(|p| p.name == o.name),

@@ -65,14 +65,7 @@ pub(crate) fn chart(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Se
         orientation: spec.orientation.unwrap_or(by_rule),
         category_title: None,
         value,
-        parts: grid
-            .keys
-            .iter()
-            .map(|k| Part {
-                name: k.clone(),
-                role: Role::Context,
-            })
-            .collect(),
+        parts: grid.parts(),
         categories,
     });
     let mut anchors = spec::anchors(c, spec);

@@ -7,24 +7,16 @@ use crate::context::{Ctx, Outcome};
 use crate::forms::form::FormPlanner;
 use crate::forms::grid;
 use crate::forms::options::{column, Opt};
-use crate::forms::spec::{self, ChartSpec, SpecInput};
+use crate::forms::spec::{self, ChartSpec};
 use crate::model::*;
 use crate::scale::round_to;
 use crate::sequence::SeqState;
 
 pub(crate) struct Pie;
 
-const OPTIONS: &[Opt] = &[column(OptName::Category), column(OptName::Value)];
+pub(crate) const OPTIONS: &[Opt] = &[column(OptName::Category), column(OptName::Value)];
 
 impl FormPlanner for Pie {
-    fn options(&self) -> &'static [Opt] {
-        OPTIONS
-    }
-
-    fn spec(&self, cx: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
-        grid::spec(cx, input)
-    }
-
     fn chart(&self, cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<SeqState> {
         let grid = grid::cells(cx, spec, c)?;
         let mut slices: Vec<(String, f64)> = Vec::new();

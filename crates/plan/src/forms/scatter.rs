@@ -17,7 +17,7 @@ use crate::sequence::SeqState;
 
 pub(crate) struct Scatter;
 
-const OPTIONS: &[Opt] = &[
+pub(crate) const OPTIONS: &[Opt] = &[
     column(OptName::X),
     column(OptName::Y),
     column(OptName::Label),
@@ -25,10 +25,6 @@ const OPTIONS: &[Opt] = &[
 ];
 
 impl FormPlanner for Scatter {
-    fn options(&self) -> &'static [Opt] {
-        OPTIONS
-    }
-
     fn spec(&self, cx: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
         let pick = |cx: &mut Ctx, n: OptName, what: &str| -> Outcome<(usize, ColType)> {
             match input.given(n) {

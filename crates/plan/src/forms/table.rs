@@ -16,11 +16,10 @@ use crate::sequence::SeqState;
 
 pub(crate) struct Table;
 
-impl FormPlanner for Table {
-    fn options(&self) -> &'static [Opt] {
-        &[]
-    }
+/// A table takes no options.
+pub(crate) const OPTIONS: &[Opt] = &[];
 
+impl FormPlanner for Table {
     fn spec(&self, _: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
         Ok(input.spec(0, 0))
     }
