@@ -12,7 +12,8 @@
 //! stored in the cache folder under that key; an unchanged key reuses it.
 //!
 //! Which frames were drawn again is printed and written to
-//! `<cache>/last-build.json`, never into the deck: `deck.json` stays
+//! `<cache>/last-build.json`, and what the planner's loads did to
+//! `<cache>/report/last.json`, never into the deck: `deck.json` stays
 //! byte-identical between a cached and an uncached build.
 //!
 //! The cache is a value: the build command makes a [`FrameCache`] for the
@@ -23,9 +24,11 @@ use std::collections::BTreeSet;
 use std::path::{Path, PathBuf};
 use std::sync::OnceLock;
 
-use crescendo_plan::cache::{hash_hex, Cache};
+use crescendo_plan::cache::hash_hex;
 use crescendo_plan::{DeckPlan, FramePlan, LoadReport};
 use crescendo_render::RenderError;
+
+use crate::store::Cache;
 
 const FORMAT: u32 = 1;
 
@@ -164,6 +167,7 @@ impl FrameCache {
         if let Some(c) = &self.store {
             prune(c.dir(), report);
             self.record(c);
+            c.put("report", "last", report);
             out.extend(views_line(report));
         }
         out

@@ -52,6 +52,7 @@ mod plan;
 mod planning;
 mod plugins;
 mod progress;
+mod store;
 mod watch;
 
 /// Exit status when the story or its data has errors.

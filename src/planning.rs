@@ -57,7 +57,6 @@ pub fn plan_quietly(
     let dir = story.parent().unwrap_or(Path::new("."));
     let options = Options {
         data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
-        cache,
         no_plugins: data.no_plugins,
         database: crescendo_plan::DbOptions {
             connections: data
@@ -77,7 +76,8 @@ pub fn plan_quietly(
         allow_paths: data.allow_paths.clone(),
         limits: data.limits.limits(),
     };
-    crescendo_plan::plan_story(&src, dir, &options)
+    let mut io = crate::store::Reading::new(&options, cache.as_deref());
+    crescendo_plan::plan_story_with(&src, dir, &options, &mut io)
 }
 
 /// Read, parse and plan a story; print diagnostics; exit status on failure.

@@ -93,6 +93,11 @@ impl<'a> Ctx<'a> {
         }
     }
 
+    /// Add a warning.
+    pub(crate) fn warn(&mut self, d: Diagnostic) {
+        self.diags.push(d);
+    }
+
     /// Add diagnostics from a stage that collects its own; `Err` when one
     /// of them is an error.
     pub(crate) fn extend(&mut self, ds: Vec<Diagnostic>) -> Outcome<()> {

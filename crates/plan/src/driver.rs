@@ -13,10 +13,10 @@ use crate::anchors::Anchors;
 use crate::context::Ctx;
 use crate::header::{self, Header};
 use crate::io::{Disk, Io};
+use crate::loading::{LoadReport, Loader};
 use crate::model::*;
 use crate::options::Options;
 use crate::plugins::{self, Plugins};
-use crate::resolve::LoadReport;
 use crate::scope::Scope;
 use crate::{claims, frames, sources};
 
@@ -83,10 +83,10 @@ fn run(cx: &mut Ctx, story: &ast::StoryAst) -> Planned {
         ..Anchors::default()
     };
     let mut scope = Scope::default();
-    scope.tables.db = cx.options.database.clone();
-    scope.tables.prepare(story, cx.options.cache.as_deref()); // streaming + cache
+    let mut loader = Loader::prepare(story); // what streams, what is read
     let mut h = Header::default();
-    let (frame_items, claim_items) = items(cx, story, &mut scope, &mut h, &mut anchors);
+    let (frame_items, claim_items) =
+        items(cx, story, (&mut scope, &mut loader), &mut h, &mut anchors);
     sources::check_named(cx, story);
     h.check_compare(cx, &scope.tables);
     let texts = h.texts(cx, &mut scope);
@@ -146,8 +146,8 @@ fn run(cx: &mut Ctx, story: &ast::StoryAst) -> Planned {
         warnings: Vec::new(),
         failed_claims,
         plugins: std::mem::take(&mut scope.plugins),
-        sql: std::mem::take(&mut scope.tables.sql),
-        report: std::mem::take(&mut scope.tables.report),
+        sql: loader.sql,
+        report: loader.report,
     }
 }
 
@@ -157,7 +157,7 @@ fn run(cx: &mut Ctx, story: &ast::StoryAst) -> Planned {
 fn items<'s>(
     cx: &mut Ctx,
     story: &'s ast::StoryAst,
-    scope: &mut Scope,
+    (scope, loader): (&mut Scope, &mut Loader),
     h: &mut Header,
     anchors: &mut Anchors,
 ) -> (Vec<&'s ast::FrameDecl>, Vec<&'s ast::ClaimDecl>) {
@@ -177,7 +177,7 @@ fn items<'s>(
             continue;
         }
         match item {
-            Item::Data(d) => sources::data_item(cx, &mut scope.tables, d),
+            Item::Data(d) => sources::data_item(cx, loader, &mut scope.tables, d),
             Item::View(v) => sources::view_item(cx, &mut scope.tables, v),
             Item::Value(v) => {
                 later_values.remove(&v.name.name);

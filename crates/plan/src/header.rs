@@ -12,8 +12,8 @@ use crescendo_lang::ast::{self, Ident, Item, Str, Text};
 use crate::anchors::{Allowance, Anchors};
 use crate::context::Ctx;
 use crate::model::THEMES;
-use crate::resolve::Tables;
 use crate::scope::Scope;
+use crate::tables::Tables;
 use crate::values::{Quantity, Resolved};
 
 /// Header values with where they were set (to report duplicates).

@@ -4,8 +4,8 @@
 //! input.
 //!
 //! Planning runs in phases (see `driver.rs`): the header (`header.rs`),
-//! data loading (`sources.rs`, `loading.rs`, `database.rs`), view checking
-//! (`resolve.rs`), values and claims (`values.rs`, `claims.rs`), the
+//! data loading (`sources.rs`, `loading/`), the tables (`tables.rs`), view
+//! checking (`views/`, row expressions in `rows.rs`), values and claims (`values.rs`, `functions.rs`, `claims.rs`), the
 //! frames (`frames/`: sequences, targets, roles, split and unfold) with one
 //! planner per chart form (`forms/`), scales (`scale.rs`) and descriptions
 //! (`describe.rs`). Every step reports into one context (`context.rs`) and
@@ -15,7 +15,6 @@ pub mod anchors;
 pub mod cache;
 mod claims;
 mod context;
-mod database;
 mod describe;
 mod driver;
 mod forms;
@@ -30,17 +29,18 @@ pub mod model;
 mod options;
 pub mod paths;
 pub mod plugins;
-mod resolve;
 mod rows;
 pub mod scale;
 mod scope;
 mod sequence;
 mod sources;
 pub mod style;
+mod tables;
 pub mod values;
+mod views;
 
 pub use driver::{plan_story, plan_story_with, PlanResult, Planned};
 pub use labels::slug;
+pub use loading::LoadReport;
 pub use model::*;
 pub use options::{DbOptions, Options};
-pub use resolve::LoadReport;

@@ -12,8 +12,6 @@ pub struct Options {
     pub data: BTreeMap<String, PathBuf>,
     /// `--no-plugins`: refuse every `use plugin`.
     pub no_plugins: bool,
-    /// Folder of the view cache (see `loading.rs`); `None`: no cache.
-    pub cache: Option<PathBuf>,
     /// How database sources are reached (`--connection`, the statement
     /// timeout).
     pub database: DbOptions,

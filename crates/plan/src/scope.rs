@@ -8,7 +8,7 @@ use crescendo_lang::ast::Text;
 
 use crate::context::Ctx;
 use crate::plugins::Plugins;
-use crate::resolve::Tables;
+use crate::tables::Tables;
 use crate::values::{self, Evaluator, Resolved, Values};
 
 /// Every table, value and plugin of a story.

@@ -10,7 +10,9 @@ use crescendo_diag::{closest, Diagnostic};
 use crescendo_lang::ast::{self, Ident, Item};
 
 use crate::context::{Ctx, Outcome};
-use crate::resolve::{self, Named, Tables};
+use crate::loading::Loader;
+use crate::tables::{Named, Tables};
+use crate::views::build_view;
 
 /// A data or view name must be new.
 fn unique(cx: &mut Ctx, tables: &Tables, name: &Ident) -> Outcome<()> {
@@ -34,11 +36,11 @@ fn unique(cx: &mut Ctx, tables: &Tables, name: &Ident) -> Outcome<()> {
 }
 
 /// Read a `data` item into `tables` (or mark its name broken).
-pub(crate) fn data_item(cx: &mut Ctx, tables: &mut Tables, d: &ast::DataDecl) {
+pub(crate) fn data_item(cx: &mut Ctx, loader: &mut Loader, tables: &mut Tables, d: &ast::DataDecl) {
     if unique(cx, tables, &d.name).is_err() {
         return;
     }
-    match read(cx, tables, d) {
+    match read(cx, loader, tables, d) {
         Ok(table) => {
             tables.by_name.insert(
                 d.name.name.clone(),
@@ -52,11 +54,18 @@ pub(crate) fn data_item(cx: &mut Ctx, tables: &mut Tables, d: &ast::DataDecl) {
                 },
             );
         }
-        Err(_) => tables.broken.push(d.name.name.clone()),
+        Err(r) => {
+            tables.broken.insert(d.name.name.clone(), r);
+        }
     }
 }
 
-fn read(cx: &mut Ctx, tables: &mut Tables, d: &ast::DataDecl) -> Outcome<crescendo_data::Table> {
+fn read(
+    cx: &mut Ctx,
+    loader: &mut Loader,
+    tables: &mut Tables,
+    d: &ast::DataDecl,
+) -> Outcome<crescendo_data::Table> {
     let options = cx.options;
     let replacement: Option<PathBuf> = options.data.get(&d.name.name).cloned();
     let path = match &replacement {
@@ -70,10 +79,7 @@ fn read(cx: &mut Ctx, tables: &mut Tables, d: &ast::DataDecl) -> Outcome<crescen
     if let Err(why) = crate::limits::size(&path, cx.io.file_len(&path), &options.limits) {
         return Err(cx.error("limit", why, d.file.span.clone(), "this file"));
     }
-    let (src, dir) = (cx.src, cx.dir);
-    let mut diags = Vec::new();
-    let loaded = tables.load(src, dir, d, replacement.as_deref(), cx.io, &mut diags);
-    let table = cx.absorb(diags, loaded)?;
+    let table = loader.load(cx, tables, d, replacement.as_deref())?;
     if let Err(why) = crate::limits::table(&table, &options.limits) {
         return Err(cx.error("limit", why, d.file.span.clone(), "this file"));
     }
@@ -85,27 +91,28 @@ pub(crate) fn view_item(cx: &mut Ctx, tables: &mut Tables, v: &ast::ViewDecl) {
     if unique(cx, tables, &v.name).is_err() {
         return;
     }
-    let src = cx.src;
-    let built = cx.collect(|diags| {
-        let input = tables.get(src, &v.input, diags)?;
-        resolve::build_view(src, v, tables, input, diags)
-            .map(|(t, r, c)| (t, r, c, input.root.clone()))
+    let built = tables.named(cx, &v.input).and_then(|input| {
+        let src = cx.src;
+        let built = cx.collect(|diags| build_view(src, v, tables, input, diags))?;
+        Ok((built, input.root.clone()))
     });
     match built {
-        Ok((table, rest, counts, root)) => {
+        Ok((built, root)) => {
             tables.by_name.insert(
                 v.name.name.clone(),
                 Named {
-                    table,
+                    table: built.table,
                     decl: v.span.clone(),
                     is_data: false,
-                    rest,
+                    rest: built.rest,
                     root,
-                    counts,
+                    counts: built.counts,
                 },
             );
         }
-        Err(_) => tables.broken.push(v.name.name.clone()),
+        Err(r) => {
+            tables.broken.insert(v.name.name.clone(), r);
+        }
     }
 }
 

@@ -19,8 +19,9 @@ mod table;
 use crescendo_lang::ast::{ChartForm, ChartStmt, CompareDecl};
 
 use crate::context::{Ctx, Outcome};
-use crate::resolve::{schema_of, Tables};
+use crate::rows::schema_of;
 use crate::sequence::SeqState;
+use crate::tables::Tables;
 use form::FormPlanner;
 use options::Opt;
 use spec::SpecInput;
@@ -49,8 +50,7 @@ pub(crate) fn start(
     compare: Option<&CompareDecl>,
     c: &ChartStmt,
 ) -> Outcome<SeqState> {
-    let src = cx.src;
-    let named = cx.collect(|diags| tables.get(src, &c.view, diags))?;
+    let named = tables.named(cx, &c.view)?;
     let (accepted, planner) = form(c.form);
     let chosen = options::choose(cx, c.form.keyword(), accepted, &c.opts)?;
     let input = SpecInput {

@@ -15,8 +15,9 @@ use crate::context::{Ctx, Outcome};
 use crate::labels::display;
 use crate::model::*;
 use crate::plugins::Plugins;
-use crate::resolve::{self, schema_of, Tables};
+use crate::rows::{self, schema_of};
 use crate::sequence::SeqState;
+use crate::tables::Tables;
 
 /// `draw NAME[.FORM] VIEW: ...`: the state of a new sequence.
 pub(crate) fn draw(
@@ -43,8 +44,7 @@ pub(crate) fn draw(
     };
     let info = plugin.info().clone();
     let form = form(cx, &info, d)?;
-    let src = cx.src;
-    let named = cx.collect(|diags| tables.get(src, &d.view, diags))?;
+    let named = tables.named(cx, &d.view)?;
     let table = &named.table;
     let options = options(cx, table, d)?;
     if table.columns.first().map_or(0, |c| c.values.len()) == 0 {
@@ -156,7 +156,7 @@ fn options(cx: &mut Ctx, table: &Table, d: &DrawStmt) -> Outcome<BTreeMap<String
     let src = cx.src;
     let mut options = BTreeMap::new();
     for (k, v) in &d.opts {
-        cx.collect(|diags| resolve::column(src, &schema, &place, v, diags))?;
+        cx.collect(|diags| rows::column(src, &schema, &place, v, diags))?;
         if options.insert(k.name.clone(), v.name.clone()).is_some() {
             return Err(cx.error(
                 "chart-option",

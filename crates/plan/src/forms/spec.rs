@@ -10,7 +10,8 @@ use crate::anchors::FrameAnchors;
 use crate::context::{Ctx, Outcome};
 use crate::forms::options::Chosen;
 use crate::model::{Orientation, PartsMode};
-use crate::resolve::{self, Schema, Tables};
+use crate::rows::{self, Schema};
+use crate::tables::Tables;
 
 /// A resolved chart statement: the table and the columns playing each role.
 pub(crate) struct ChartSpec {
@@ -92,7 +93,7 @@ impl SpecInput<'_> {
     pub(crate) fn lookup(&self, cx: &mut Ctx, id: &Ident) -> Outcome<(usize, ColType)> {
         let place = format!("in `{}`", self.view);
         let src = cx.src;
-        cx.collect(|diags| resolve::column(src, &self.schema, &place, id, diags))
+        cx.collect(|diags| rows::column(src, &self.schema, &place, id, diags))
     }
 
     /// The column of option `name`, looked up when given.

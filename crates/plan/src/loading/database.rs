@@ -1,7 +1,7 @@
 //! `data NAME from table "t" via ENVVAR` (or `from query "..."`): data
 //! items read from PostgreSQL.
 //!
-//! The item is split like a streamed CSV file (see `loading.rs`): when
+//! The item is split like a streamed CSV file (see the module docs of `loading`): when
 //! nothing but views reads it and every view over it starts with `keep`,
 //! `add`, `by`, `sort` or `columns`, each view's prefix (its leading `keep`s
 //! and `add`s, at most one `by`, then `keep`, `add`, `sort` and `columns`
@@ -18,39 +18,28 @@
 //! never appear in it.
 
 use std::collections::BTreeSet;
-use std::sync::Arc;
 use std::time::Duration;
 
 use crescendo_data::{Column, CsvSpec, Step, Table};
-use crescendo_diag::{Diagnostic, Source};
+use crescendo_diag::Diagnostic;
 use crescendo_lang::ast::{self, DbFrom};
-use crescendo_sql::print::{self, RowOrder, StepKind};
+use crescendo_sql::print::{self, RowOrder};
 use crescendo_sql::{types, Explained, SrcColumn};
 
-use crate::io::{Database, Io};
-use crate::resolve::{build_view_inner, data_spec, Named, Streamed, Tables};
+use crate::context::{Ctx, Outcome};
+use crate::io::Database;
+use crate::loading::facts::database_prefix_len;
+use crate::loading::files::data_spec;
+use crate::loading::state::Loader;
+use crate::tables::{Named, Streamed, Tables};
+use crate::views::build_view_with;
 
 /// A view's prefix query: the view, the number of its steps (as written)
 /// the prefix covers, the resolved prefix steps and the query.
 type PrefixQuery = (String, usize, Vec<Step>, print::Query);
 
-/// Number of leading steps of a view over a database item that run in the
-/// database: the rule of `crescendo_sql::print::pushable_len`, over the
-/// steps as written.
-pub(crate) fn database_prefix_len(steps: &[ast::StepAst]) -> usize {
-    print::pushable_len(steps.iter().map(|s| match s {
-        ast::StepAst::Keep { .. } => StepKind::Keep,
-        ast::StepAst::Add { .. } => StepKind::Derive,
-        ast::StepAst::By { .. } => StepKind::Group,
-        ast::StepAst::Sort { .. } => StepKind::Sort,
-        ast::StepAst::Columns { .. } => StepKind::Columns,
-        ast::StepAst::Top { .. } => StepKind::Top,
-    }))
-}
-
 /// The database data item being read.
 struct Item<'a> {
-    src: &'a Arc<Source>,
     decl: &'a ast::DataDecl,
     db: &'a ast::DatabaseSource,
     from: crescendo_sql::From,
@@ -63,12 +52,13 @@ impl Item<'_> {
     }
 
     /// "cannot read data `NAME`: ..." at `span`.
-    fn fail(&self, span: ast::Span, msg: String, label: &str) -> Diagnostic {
-        Diagnostic::error(
+    fn fail(&self, cx: &Ctx, span: ast::Span, msg: String, label: &str) -> Diagnostic {
+        cx.at(
             "database",
             format!("cannot read data `{}`: {msg}", self.name()),
+            span,
+            label,
         )
-        .at(self.src, span, label.to_string())
     }
 }
 
@@ -82,28 +72,26 @@ struct Described {
 
 /// Load a database `data` item (see the module docs).
 pub(crate) fn load(
+    cx: &mut Ctx,
+    loader: &mut Loader,
     tables: &mut Tables,
-    io: &mut dyn Io,
-    src: &Arc<Source>,
     (decl, db): (&ast::DataDecl, &ast::DatabaseSource),
-    diags: &mut Vec<Diagnostic>,
-) -> Option<Table> {
-    let name = &decl.name.name;
+) -> Outcome<Table> {
     if let Some(m) = decl.missing.as_ref().and_then(|m| m.first()) {
-        diags.push(
-            Diagnostic::error(
-                "database",
-                format!("data `{name}` reads a database, where NULL is the missing value"),
-            )
-            .at(src, m.span.clone(), "`missing` applies to files only"),
-        );
-        return None;
+        return Err(cx.error(
+            "database",
+            format!(
+                "data `{}` reads a database, where NULL is the missing value",
+                decl.name.name
+            ),
+            m.span.clone(),
+            "`missing` applies to files only",
+        ));
     }
     // Declared types (the path of the spec is unused).
-    let spec = data_spec(src, std::path::Path::new("."), decl, None, diags)?;
-    let conn = connection(tables, io, src, (decl, db), diags)?;
+    let spec = data_spec(cx, decl, None)?;
+    let conn = connection(cx, (decl, db))?;
     let item = Item {
-        src,
         decl,
         db,
         from: match &db.from {
@@ -113,96 +101,90 @@ pub(crate) fn load(
             },
             DbFrom::Query(q) => crescendo_sql::From::Query(q.value.clone()),
         },
-        timeout: tables.db.timeout,
+        timeout: cx.options.database.timeout,
     };
-    let mut session = match io.connect(&conn, item.timeout) {
+    let mut session = match cx.io.connect(&conn, item.timeout) {
         Ok(s) => s,
         Err(e) => {
-            diags.push(item.fail(db.env.span.clone(), e.message, "while connecting"));
-            return None;
+            let d = item.fail(cx, db.env.span.clone(), e.message, "while connecting");
+            return Err(cx.report(d));
         }
     };
     let mut explained = Vec::new();
     let table = read(
+        cx,
+        loader,
         tables,
         &item,
         &spec,
-        session.as_mut(),
-        &mut explained,
-        diags,
+        (session.as_mut(), &mut explained),
     );
     session.close();
-    tables.sql.extend(explained);
+    loader.sql.extend(explained);
     table
 }
 
 /// The connection string, from the variable the story (or `--connection`)
 /// names.
-fn connection(
-    tables: &Tables,
-    io: &dyn Io,
-    src: &Arc<Source>,
-    (decl, db): (&ast::DataDecl, &ast::DatabaseSource),
-    diags: &mut Vec<Diagnostic>,
-) -> Option<String> {
+fn connection(cx: &mut Ctx, (decl, db): (&ast::DataDecl, &ast::DatabaseSource)) -> Outcome<String> {
     let name = &decl.name.name;
-    let overridden = tables.db.connections.get(name).cloned();
+    let overridden = cx.options.database.connections.get(name).cloned();
     let var = overridden.clone().unwrap_or_else(|| db.env.name.clone());
-    if let Some(c) = io.env_var(&var).filter(|c| !c.trim().is_empty()) {
-        return Some(c);
+    if let Some(c) = cx.io.env_var(&var).filter(|c| !c.trim().is_empty()) {
+        return Ok(c);
     }
-    let mut d = Diagnostic::error(
-        "database",
-        format!("cannot read data `{name}`: the environment variable `{var}` is not set"),
-    )
-    .at(
-        src,
-        db.env.span.clone(),
-        "this variable should hold the connection string",
-    )
-    .help(format!(
-        "set it, e.g. `export {var}='postgresql://user@host/database'`"
-    ));
+    let mut d = cx
+        .at(
+            "database",
+            format!("cannot read data `{name}`: the environment variable `{var}` is not set"),
+            db.env.span.clone(),
+            "this variable should hold the connection string",
+        )
+        .help(format!(
+            "set it, e.g. `export {var}='postgresql://user@host/database'`"
+        ));
     if overridden.is_some() {
         d = d.note(format!("`--connection {name}={var}` names this variable"));
     }
-    diags.push(d);
-    None
+    Err(cx.report(d))
 }
+
+/// An open session, and the log of the queries it ran.
+type Session<'s> = (&'s mut dyn Database, &'s mut Vec<Explained>);
 
 /// Read the item in an open session: its views' prefixes when they all go
 /// to SQL, else its rows whole.
 fn read(
+    cx: &mut Ctx,
+    loader: &mut Loader,
     tables: &mut Tables,
     item: &Item,
     spec: &CsvSpec,
-    session: &mut dyn Database,
-    explained: &mut Vec<Explained>,
-    diags: &mut Vec<Diagnostic>,
-) -> Option<Table> {
+    (session, explained): Session,
+) -> Outcome<Table> {
     let described = match session.columns(&print::describe(&item.from), item.timeout) {
         Ok(c) => c,
         Err(e) => {
             let span = item.decl.file.span.clone();
-            diags.push(item.fail(span, e.message, "while reading this source"));
-            return None;
+            let d = item.fail(cx, span, e.message, "while reading this source");
+            return Err(cx.report(d));
         }
     };
-    let source = describe(tables, item, spec, &described, diags)?;
-    let prefixes = match tables.story.streamable.get(item.name()).cloned() {
-        Some(views) => prefix_queries(tables, item, &source, &views),
+    let source = describe(cx, &loader.facts, item, spec, &described)?;
+    let prefixes = match loader.facts.streamable.get(item.name()) {
+        Some(views) => prefix_queries(cx, tables, item, &source, views),
         None => None,
     };
     match prefixes {
         Some(prefixes) => {
-            fetch_views(tables, item, session, prefixes, explained, diags)?;
-            tables.report.streamed.push(item.name().to_string());
-            Some(source.shell)
+            fetch_views(cx, loader, tables, item, (session, explained), prefixes)?;
+            loader.report.streamed.push(item.name().to_string());
+            Ok(source.shell)
         }
         None => {
-            let table = fetch_whole(item, session, &source, explained, diags)?;
-            tables.report.loaded.push(item.name().to_string());
-            Some(table)
+            let table = fetch_whole(cx, item, (session, explained), &source)?;
+            loader.report.loaded.push(item.name().to_string());
+            Ok(table)
         }
     }
 }
@@ -210,12 +192,12 @@ fn read(
 /// The row order and the columns the story reads, checked against the
 /// source's columns.
 fn describe(
-    tables: &Tables,
+    cx: &mut Ctx,
+    facts: &crate::loading::facts::StoryFacts,
     item: &Item,
     spec: &CsvSpec,
     described: &[(String, String)],
-    diags: &mut Vec<Diagnostic>,
-) -> Option<Described> {
+) -> Outcome<Described> {
     let (decl, db) = (item.decl, item.db);
     let mut order = RowOrder::default();
     for o in &db.order {
@@ -224,27 +206,25 @@ fn describe(
             None => {
                 let names: Vec<&str> = described.iter().map(|(n, _)| n.as_str()).collect();
                 let msg = format!("its source has no column `{}`", o.name);
-                diags.push(
-                    item.fail(o.span.clone(), msg, "not a column of the source")
-                        .note(format!("columns: {}", names.join(", "))),
-                );
-                return None;
+                let d = item
+                    .fail(cx, o.span.clone(), msg, "not a column of the source")
+                    .note(format!("columns: {}", names.join(", ")));
+                return Err(cx.report(d));
             }
         }
     }
+    let cp = cx.checkpoint();
     // Declared columns must exist.
-    let mut ok = true;
     for c in &decl.columns {
         if !described.iter().any(|(n, _)| *n == c.name.name) {
             let msg = format!("its source has no column `{}`", c.name.name);
-            diags.push(item.fail(c.name.span.clone(), msg, "declared here"));
-            ok = false;
+            let d = item.fail(cx, c.name.span.clone(), msg, "declared here");
+            cx.report(d);
         }
     }
     // The columns the story can read: declared, or used as a name
     // anywhere but in an `in order of` list (order columns only give the
     // row order unless they are declared or used elsewhere).
-    let facts = &tables.story;
     let mut cols: Vec<SrcColumn> = Vec::new();
     let mut seen = BTreeSet::new();
     for (n, t) in described {
@@ -268,14 +248,12 @@ fn describe(
                     .find(|c| c.name.name == *n)
                     .map_or(decl.file.span.clone(), |c| c.name.span.clone());
                 let msg = format!("column `{n}` cannot be read: {why}");
-                diags.push(item.fail(span, msg, "this column"));
-                ok = false;
+                let d = item.fail(cx, span, msg, "this column");
+                cx.report(d);
             }
         }
     }
-    if !ok {
-        return None;
-    }
+    cx.errors_since(cp)?;
     let shell = Table {
         columns: cols
             .iter()
@@ -286,15 +264,14 @@ fn describe(
             })
             .collect(),
     };
-    Some(Described { order, cols, shell })
+    Ok(Described { order, cols, shell })
 }
 
-/// Run one query and decode its rows; the query is logged in `explained`.
+/// Run one query and decode its rows; the query is logged.
 fn run(
     item: &Item,
-    session: &mut dyn Database,
+    (session, explained): Session,
     q: &print::Query,
-    explained: &mut Vec<Explained>,
     view: Option<String>,
 ) -> Result<Table, String> {
     let (rows, bytes) = session
@@ -321,26 +298,31 @@ fn plural(n: usize) -> &'static str {
 
 /// Run each view's prefix query; the results stand in for the prefixes.
 fn fetch_views(
+    cx: &mut Ctx,
+    loader: &mut Loader,
     tables: &mut Tables,
     item: &Item,
-    session: &mut dyn Database,
+    (session, explained): Session,
     prefixes: Vec<PrefixQuery>,
-    explained: &mut Vec<Explained>,
-    diags: &mut Vec<Diagnostic>,
-) -> Option<()> {
+) -> Outcome<()> {
     let span = item.decl.file.span.clone();
     for (view, n, steps, q) in prefixes {
-        let table = match run(item, session, &q, explained, Some(view.clone())) {
+        let table = match run(
+            item,
+            (&mut *session, &mut *explained),
+            &q,
+            Some(view.clone()),
+        ) {
             Ok(t) => t,
             Err(m) => {
                 let msg = format!("{m} (running view `{view}`)");
-                diags.push(item.fail(span, msg, "while reading this source"));
-                return None;
+                let d = item.fail(cx, span, msg, "while reading this source");
+                return Err(cx.report(d));
             }
         };
         if !steps.iter().any(|s| matches!(s, Step::Group { .. })) {
             let rows = table.columns.first().map_or(0, |c| c.values.len());
-            diags.push(
+            cx.warn(
                 Diagnostic::warning(
                     "database-rows",
                     format!(
@@ -349,11 +331,11 @@ fn fetch_views(
                         item.name()
                     ),
                 )
-                .at(item.src, span.clone(), "rows fetched")
+                .at(cx.src, span.clone(), "rows fetched")
                 .note("the view does not aggregate (`by`) before its other steps, so its rows cross the network"),
             );
         }
-        tables.report.computed_views.push(view.clone());
+        loader.report.computed_views.push(view.clone());
         tables.streamed.insert(
             view,
             Streamed {
@@ -363,29 +345,23 @@ fn fetch_views(
             },
         );
     }
-    Some(())
+    Ok(())
 }
 
 /// Fetch every row of the item, in row order.
-fn fetch_whole(
-    item: &Item,
-    session: &mut dyn Database,
-    source: &Described,
-    explained: &mut Vec<Explained>,
-    diags: &mut Vec<Diagnostic>,
-) -> Option<Table> {
+fn fetch_whole(cx: &mut Ctx, item: &Item, session: Session, source: &Described) -> Outcome<Table> {
     let span = item.decl.file.span.clone();
     let q = print::prefix(&item.from, &source.order, &source.cols, &[], None);
-    let table = match run(item, session, &q, explained, None) {
+    let table = match run(item, session, &q, None) {
         Ok(t) => t,
         Err(m) => {
-            diags.push(item.fail(span, m, "while reading this source"));
-            return None;
+            let d = item.fail(cx, span, m, "while reading this source");
+            return Err(cx.report(d));
         }
     };
     let rows = table.columns.first().map_or(0, |c| c.values.len());
     let name = item.name();
-    diags.push(
+    cx.warn(
         Diagnostic::warning(
             "database-rows",
             format!(
@@ -393,7 +369,7 @@ fn fetch_whole(
                 plural(rows)
             ),
         )
-        .at(item.src, span, "read whole")
+        .at(cx.src, span, "read whole")
         .note(
             "a chart or value reads this data item itself, or a view over \
              it starts with `top`; views that start with another step are \
@@ -404,19 +380,20 @@ fn fetch_whole(
              (`by`) before `top`"
         )),
     );
-    Some(table)
+    Ok(table)
 }
 
 /// The prefix query of every view over a database item, or `None` when
 /// one does not resolve (the item is then fetched whole, and the
 /// regular pass reports the view's errors).
 fn prefix_queries(
+    cx: &Ctx,
     tables: &Tables,
     item: &Item,
     source: &Described,
     views: &[ast::ViewDecl],
 ) -> Option<Vec<PrefixQuery>> {
-    let (src, decl, from) = (item.src, item.decl, &item.from);
+    let (src, decl, from) = (cx.src, item.decl, &item.from);
     let (order, cols, shell) = (&source.order, &source.cols, &source.shell);
     let named = Named {
         table: shell.clone(),
@@ -430,7 +407,7 @@ fn prefix_queries(
     for v in views {
         let mut scratch = Vec::new();
         let mut steps = Vec::new();
-        build_view_inner(src, v, tables, &named, &mut scratch, None, &mut steps)?;
+        build_view_with(src, v, tables, &named, &mut scratch, None, &mut steps)?;
         if !scratch.is_empty() {
             return None;
         }
