@@ -3,7 +3,7 @@
 
 use std::collections::BTreeSet;
 
-use crescendo_data::ColType;
+use crescendo_data::{stats, ColType};
 use crescendo_lang::ast::{ChartStmt, OptName};
 
 use crate::context::{Ctx, Outcome};
@@ -162,7 +162,7 @@ pub(crate) fn order(spec: &ChartSpec, grid: &Grid) -> Vec<usize> {
             });
         }
     } else {
-        let total = |i: usize| grid.values[i].iter().flatten().sum::<f64>();
+        let total = |i: usize| stats::total(grid.values[i].iter().flatten().copied());
         order.sort_by(|a, b| total(*b).total_cmp(&total(*a)));
         if let Some(rest) = &spec.rest {
             if let Some(k) = order.iter().position(|&i| grid.cats[i].0 == *rest) {

@@ -1,6 +1,6 @@
 //! Stacked and grouped bars: each category's bar split into parts.
 
-use crescendo_data::ColType;
+use crescendo_data::{stats, ColType};
 use crescendo_lang::ast::ChartStmt;
 
 use crate::context::{Ctx, Outcome};
@@ -31,11 +31,11 @@ pub(crate) fn chart(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Se
             let ups = grid
                 .values
                 .iter()
-                .map(|r| r.iter().flatten().filter(|v| **v > 0.0).sum::<f64>());
+                .map(|r| stats::total(r.iter().flatten().copied().filter(|v| *v > 0.0)));
             let downs = grid
                 .values
                 .iter()
-                .map(|r| r.iter().flatten().filter(|v| **v < 0.0).sum::<f64>());
+                .map(|r| stats::total(r.iter().flatten().copied().filter(|v| *v < 0.0)));
             (downs.fold(0.0, f64::min), ups.fold(0.0, f64::max))
         }
         PartsMode::Grouped => (
@@ -53,7 +53,10 @@ pub(crate) fn chart(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Se
         .map(|&i| PartCategory {
             label: grid.cats[i].0.clone(),
             values: grid.values[i].clone(),
-            total_label: scale::value_label(grid.values[i].iter().flatten().sum(), &value),
+            total_label: scale::value_label(
+                stats::total(grid.values[i].iter().flatten().copied()),
+                &value,
+            ),
             role: Role::Context,
         })
         .collect();

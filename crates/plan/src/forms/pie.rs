@@ -1,6 +1,6 @@
 //! Pies: shares of a whole, largest slice first.
 
-use crescendo_data::format;
+use crescendo_data::{format, stats};
 use crescendo_lang::ast::{ChartStmt, OptName};
 
 use crate::context::{Ctx, Outcome};
@@ -37,7 +37,7 @@ impl FormPlanner for Pie {
                 None => {}
             }
         }
-        let total: f64 = slices.iter().map(|s| s.1).sum();
+        let total = stats::total(slices.iter().map(|s| s.1));
         if total <= 0.0 {
             return Err(cx.error(
                 "empty-view",

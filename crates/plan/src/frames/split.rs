@@ -3,7 +3,7 @@
 //! (`trim` cuts each panel to its extent on the common step; `free` gives
 //! each panel its own scale, which the lint flags).
 
-use crescendo_data::format;
+use crescendo_data::{format, stats};
 use crescendo_lang::ast::SplitStmt;
 
 use crate::context::{Ctx, Outcome};
@@ -108,7 +108,7 @@ fn part_panel(p: &PartsChart, i: usize) -> PanelDraft {
             }
         })
         .collect::<Vec<_>>();
-    let total = bars.iter().filter_map(|b| b.value).sum();
+    let total = stats::total(bars.iter().filter_map(|b| b.value));
     let chart = Chart::Bars(BarChart {
         orientation: p.orientation,
         category_title: p.category_title.clone(),
