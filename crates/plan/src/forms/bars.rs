@@ -36,15 +36,7 @@ impl FormPlanner for Bars {
         let rows = rows(cx, spec, c)?;
         let vals: Vec<f64> = rows.iter().filter_map(|r| r.1).collect();
         if vals.is_empty() {
-            return Err(cx.error(
-                "empty-view",
-                format!(
-                    "`{}` has no values of `{}` to draw",
-                    spec.table_name, ycol.name
-                ),
-                c.span.clone(),
-                "nothing to draw",
-            ));
+            return Err(spec.no_values(cx, c));
         }
         let lo = vals.iter().copied().fold(f64::INFINITY, f64::min);
         let hi = vals.iter().copied().fold(f64::NEG_INFINITY, f64::max);

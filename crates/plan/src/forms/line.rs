@@ -80,15 +80,7 @@ impl FormPlanner for Line {
         let (xcol, ycol) = (&t.columns[spec.x], &t.columns[spec.y]);
         let lines = collect(cx, spec, c)?;
         if !lines.y.0.is_finite() {
-            return Err(cx.error(
-                "empty-view",
-                format!(
-                    "`{}` has no values of `{}` to draw",
-                    spec.table_name, ycol.name
-                ),
-                c.span.clone(),
-                "nothing to draw",
-            ));
+            return Err(spec.no_values(cx, c));
         }
         let Lines {
             names,

@@ -7,7 +7,7 @@ use crescendo_data::{ColType, Table};
 use crescendo_lang::ast::{ChartStmt, CompareDecl, Ident, OptName, Span};
 
 use crate::anchors::FrameAnchors;
-use crate::context::{Ctx, Outcome};
+use crate::context::{Ctx, Outcome, Reported};
 use crate::forms::options::Chosen;
 use crate::model::{Orientation, PartsMode};
 use crate::rows::{self, Schema};
@@ -38,6 +38,19 @@ pub(crate) struct ChartSpec {
 }
 
 impl ChartSpec {
+    /// The error for a view without a value of the measure.
+    pub(crate) fn no_values(&self, cx: &mut Ctx, c: &ChartStmt) -> Reported {
+        cx.error(
+            "empty-view",
+            format!(
+                "`{}` has no values of `{}` to draw",
+                self.table_name, self.table.columns[self.y].name
+            ),
+            c.span.clone(),
+            "nothing to draw",
+        )
+    }
+
     /// The number of rows of the view.
     pub(crate) fn rows(&self) -> usize {
         self.table.columns.first().map_or(0, |c| c.values.len())

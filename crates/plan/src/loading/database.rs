@@ -31,8 +31,8 @@ use crate::io::Database;
 use crate::loading::facts::database_prefix_len;
 use crate::loading::files::data_spec;
 use crate::loading::state::Loader;
-use crate::tables::{Named, Streamed, Tables};
-use crate::views::build_view_with;
+use crate::tables::{Streamed, Tables};
+use crate::views::resolved_quietly;
 
 /// A view's prefix query: the view, the number of its steps (as written)
 /// the prefix covers, the resolved prefix steps and the query.
@@ -395,22 +395,9 @@ fn prefix_queries(
 ) -> Option<Vec<PrefixQuery>> {
     let (src, decl, from) = (cx.src, item.decl, &item.from);
     let (order, cols, shell) = (&source.order, &source.cols, &source.shell);
-    let named = Named {
-        table: shell.clone(),
-        decl: decl.span.clone(),
-        is_data: true,
-        rest: None,
-        root: decl.name.name.clone(),
-        counts: BTreeSet::new(),
-    };
     let mut out = Vec::new();
     for v in views {
-        let mut scratch = Vec::new();
-        let mut steps = Vec::new();
-        build_view_with(src, v, tables, &named, &mut scratch, None, &mut steps)?;
-        if !scratch.is_empty() {
-            return None;
-        }
+        let steps = resolved_quietly(src, tables, decl, shell, v)?;
         let n = database_prefix_len(&v.steps);
         // The prefix as printed pieces: `columns` steps are not resolved
         // steps, so their picks are found by name in the schema the

@@ -17,8 +17,8 @@ use crate::io::ViewCache;
 use crate::loading::facts::{names_in_steps, prefix_len};
 use crate::loading::files;
 use crate::loading::state::Loader;
-use crate::tables::{Named, Streamed, Tables};
-use crate::views::build_view_with;
+use crate::tables::{Streamed, Tables};
+use crate::views::resolved_quietly;
 
 /// Records read to guess the types of undeclared columns.
 const SAMPLE: usize = 1000;
@@ -117,22 +117,9 @@ fn prefixes(
     views: &[ast::ViewDecl],
     data_key: Option<&str>,
 ) -> Option<Vec<Prefix>> {
-    let named = Named {
-        table: shell.clone(),
-        decl: decl.span.clone(),
-        is_data: true,
-        rest: None,
-        root: decl.name.name.clone(),
-        counts: BTreeSet::new(),
-    };
     let mut out = Vec::new();
     for v in views {
-        let mut scratch = Vec::new();
-        let mut steps = Vec::new();
-        build_view_with(cx.src, v, tables, &named, &mut scratch, None, &mut steps)?;
-        if !scratch.is_empty() {
-            return None;
-        }
+        let steps = resolved_quietly(cx.src, tables, decl, shell, v)?;
         let n = prefix_len(&v.steps);
         let prefix: Vec<Step> = steps.get(..n)?.to_vec();
         let mut keeps = Vec::new();

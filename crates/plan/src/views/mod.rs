@@ -107,6 +107,30 @@ pub(crate) fn build_view_with(
     Some(built)
 }
 
+/// The resolved steps of view `v` over data item `decl`, read so far only
+/// as `shell` (its columns, no rows), checked quietly (the regular pass
+/// reports); `None` when it does not check.
+pub(crate) fn resolved_quietly(
+    src: &Arc<Source>,
+    tables: &Tables,
+    decl: &ast::DataDecl,
+    shell: &Table,
+    v: &ast::ViewDecl,
+) -> Option<Vec<Step>> {
+    let named = Named {
+        table: shell.clone(),
+        decl: decl.span.clone(),
+        is_data: true,
+        rest: None,
+        root: decl.name.name.clone(),
+        counts: BTreeSet::new(),
+    };
+    let mut scratch = Vec::new();
+    let mut steps = Vec::new();
+    build_view_with(src, v, tables, &named, &mut scratch, None, &mut steps)?;
+    scratch.is_empty().then_some(steps)
+}
+
 /// What a step changes besides the table: the columns that count rows,
 /// and the label of a folded "other" row.
 fn note(built: &mut Built, step: &Step) {
