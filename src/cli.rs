@@ -83,16 +83,37 @@ pub struct DataArgs {
 }
 
 /// `--connection NAME=ENVVAR`; the error never repeats the argument (it
-/// may be a connection string given by mistake).
+/// may be a connection string given by mistake). The variable's name is
+/// quoted in later messages ("`X` is not set"), so a value that does not
+/// look like a variable name (upper-case letters, digits and `_`, the
+/// convention for environment variables) is accepted only when a variable
+/// of that name is set: a bare password pasted here is refused, unechoed.
 pub fn parse_connection_arg(s: &str) -> Result<(String, String), Diagnostic> {
-    let ok_var = |v: &str| {
+    let valid = |v: &str| {
         !v.is_empty()
             && v.chars().all(|c| c.is_ascii_alphanumeric() || c == '_')
             && !v.starts_with(|c: char| c.is_ascii_digit())
     };
+    let looks_like_a_name = |v: &str| {
+        v.chars()
+            .all(|c| c.is_ascii_uppercase() || c.is_ascii_digit() || c == '_')
+    };
+    let is_set = |v: &str| std::env::var_os(v).is_some_and(|x| !x.is_empty());
     match s.split_once('=') {
-        Some((name, var)) if !name.is_empty() && ok_var(var) => {
-            Ok((name.to_string(), var.to_string()))
+        Some((name, var)) if !name.is_empty() && valid(var) => {
+            if looks_like_a_name(var) || is_set(var) {
+                return Ok((name.to_string(), var.to_string()));
+            }
+            Err(Diagnostic::error(
+                "connection-option",
+                "`--connection NAME=ENVVAR` names no environment variable that is set, and the \
+                 value does not look like a variable name (it is not repeated here, in case it \
+                 is a password)",
+            )
+            .help(
+                "give the name of the variable that holds the connection string, e.g. \
+                 `--connection trips=STAGING_DB`",
+            ))
         }
         _ => Err(Diagnostic::error(
             "connection-option",
