@@ -54,7 +54,7 @@ pub fn build(
     }
     let lint_errors = findings.iter().filter(|d| d.is_error()).count();
     if lint_errors > 0 {
-        eprintln!(
+        tell!(
             "{lint_errors} lint error{} in {}; no deck written",
             if lint_errors == 1 { "" } else { "s" },
             story.display()
@@ -77,7 +77,7 @@ pub fn build(
         } else {
             eprint!("{}", render(&planned.failed_claims, color));
             let n = planned.failed_claims.len();
-            eprintln!(
+            tell!(
                 "{n} claim{} of {} not supported by the data; no deck written (the previous deck in {} is kept)",
                 if n == 1 { "" } else { "s" },
                 story.display(),
@@ -95,7 +95,7 @@ pub fn build(
     };
     match deck::build(&planned.plan, &out, exports, &ctx) {
         Ok(files) => {
-            eprintln!(
+            tell!(
                 "built {} frame{} into {}{}",
                 files,
                 if files == 1 { "" } else { "s" },
@@ -108,17 +108,17 @@ pub fn build(
             );
             if let (Some(old), Ok(new)) = (previous, diff::read_manifest(&out)) {
                 for line in diff::diff(&old, &new) {
-                    eprintln!("  {line}");
+                    tell!("  {line}");
                 }
             }
             for line in incremental::summary() {
-                eprintln!("  {line}");
+                tell!("  {line}");
             }
             ExitCode::SUCCESS
         }
         Err(e) => {
             eprint!("{}", render(std::slice::from_ref(&e), color));
-            eprintln!("the previous deck in {} was left as it was", out.display());
+            tell!("the previous deck in {} was left as it was", out.display());
             // a frame that cannot be drawn (a failing plugin) is the story's
             // problem; anything else is the output folder's
             ExitCode::from(if e.code == "render" {

@@ -77,8 +77,8 @@ pub fn run(
                 "sql": planned.as_ref().filter(|_| explain_sql).map(|p| p.sql.clone()),
             });
             match serde_json::to_string_pretty(&report) {
-                Ok(s) => say!("{s}"),
-                Err(e) => eprintln!("error: {e}"),
+                Ok(s) => say!("{}", crate::output::json(&s)),
+                Err(e) => tell!("error: {e}"),
             }
         }
         Format::Human => {
@@ -122,7 +122,7 @@ pub fn run(
                 }
             } else {
                 let n = errors.iter().filter(|d| d.is_error()).count();
-                eprintln!(
+                tell!(
                     "{n} error{} in {}",
                     if n == 1 { "" } else { "s" },
                     story.display()

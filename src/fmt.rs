@@ -31,22 +31,22 @@ pub fn run(files: &[PathBuf], check: bool, color: bool) -> ExitCode {
             }
             Err(diags) => {
                 eprint!("{}", render(&diags, color));
-                eprintln!("{} was not formatted", path.display());
+                tell!("{} was not formatted", path.display());
                 errors += 1;
             }
         }
     }
     for p in &changed {
         if check {
-            println!("would reformat {}", p.display());
+            say!("would reformat {}", p.display());
         } else {
-            println!("formatted {}", p.display());
+            say!("formatted {}", p.display());
         }
     }
     if errors > 0 {
         ExitCode::from(EXIT_ERROR)
     } else if check && !changed.is_empty() {
-        eprintln!(
+        tell!(
             "{} file{} not in the canonical layout; run `crescendo fmt` on {}",
             changed.len(),
             if changed.len() == 1 { " is" } else { "s are" },

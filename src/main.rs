@@ -15,26 +15,8 @@ use clap::Parser;
 
 use cli::{Cli, Command};
 
-/// Print a line to standard output; a closed pipe (`crescendo check | head`)
-/// ends the program quietly instead of panicking.
-macro_rules! say {
-    ($($arg:tt)*) => {{
-        use std::io::Write as _;
-        if writeln!(std::io::stdout(), $($arg)*).is_err() {
-            std::process::exit(0);
-        }
-    }};
-}
-
-/// Like [`say!`] without the line break.
-macro_rules! say_raw {
-    ($($arg:tt)*) => {{
-        use std::io::Write as _;
-        if write!(std::io::stdout(), $($arg)*).is_err() {
-            std::process::exit(0);
-        }
-    }};
-}
+#[macro_use]
+mod output;
 
 mod build;
 mod check;

@@ -11,11 +11,11 @@ pub fn run(story: &Path, data: &DataArgs, color: bool) -> ExitCode {
     match load_plan(story, data, color) {
         Ok(p) => match serde_json::to_string_pretty(&p.plan) {
             Ok(s) => {
-                say!("{s}");
+                say!("{}", crate::output::json(&s));
                 ExitCode::SUCCESS
             }
             Err(e) => {
-                eprintln!("error: cannot print the plan: {e}");
+                tell!("error: cannot print the plan: {e}");
                 ExitCode::from(EXIT_OUTPUT)
             }
         },

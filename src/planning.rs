@@ -87,7 +87,7 @@ pub fn load_plan(story: &Path, data: &DataArgs, color: bool) -> Result<Planned, 
         Err(diags) => {
             eprint!("{}", render(&diags, color));
             let n = diags.iter().filter(|d| d.is_error()).count();
-            eprintln!(
+            tell!(
                 "{n} error{} in {}; no deck written",
                 if n == 1 { "" } else { "s" },
                 story.display()

@@ -151,13 +151,13 @@ fn rebuild_loop(
                 let addr = listener
                     .local_addr()
                     .map_or_else(|_| format!("127.0.0.1:{port}"), |a| a.to_string());
-                eprintln!("serving {} at http://{addr}/", deck.display());
+                tell!("serving {} at http://{addr}/", deck.display());
                 let deck = deck.to_path_buf();
                 let version = Arc::clone(&version);
                 std::thread::spawn(move || serve_loop(listener, &deck, &version));
             }
             Err(e) => {
-                eprintln!("error: cannot listen on 127.0.0.1:{port}: {e}");
+                tell!("error: cannot listen on 127.0.0.1:{port}: {e}");
                 return ExitCode::from(2);
             }
         }
@@ -170,7 +170,7 @@ fn rebuild_loop(
     }) {
         Ok(w) => w,
         Err(e) => {
-            eprintln!("error: cannot watch files: {e}");
+            tell!("error: cannot watch files: {e}");
             return ExitCode::from(1);
         }
     };
@@ -189,11 +189,11 @@ fn rebuild_loop(
                 RecursiveMode::NonRecursive
             };
             if let Err(e) = watcher.watch(dir, mode) {
-                eprintln!("warning: cannot watch {}: {e}", dir.display());
+                tell!("warning: cannot watch {}: {e}", dir.display());
             }
         }
         watched = want;
-        eprintln!(
+        tell!(
             "watching {} file{} for changes (Ctrl-C stops)",
             t.files.len(),
             if t.files.len() == 1 { "" } else { "s" }
@@ -210,7 +210,7 @@ fn rebuild_loop(
             let _ = more;
         }
         if let Some(p) = changed {
-            eprintln!("changed: {}; rebuilding", p.display());
+            tell!("changed: {}; rebuilding", p.display());
         }
         if build() {
             version.fetch_add(1, Ordering::SeqCst);
