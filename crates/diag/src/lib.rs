@@ -492,7 +492,7 @@ mod tests {
     #[test]
     fn escape_sequences_in_sources_and_messages_are_not_rendered_raw() {
         let cell = "\u{1b}]0;owned\u{7}\u{1b}[2J";
-        let s = Source::excerpt(format!("d\u{1b}[31m.csv"), format!("{cell},oops,3\n"), 7);
+        let s = Source::excerpt("d\u{1b}[31m.csv", format!("{cell},oops,3\n"), 7);
         let start = cell.len() + 1;
         let d = Diagnostic::error("bad-number", format!("`{cell}` is not a number"))
             .at(&s, start..start + 4, format!("in {cell}"))
