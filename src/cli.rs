@@ -63,6 +63,10 @@ pub struct DataArgs {
     /// runs with your rights).
     #[arg(long)]
     pub no_plugins: bool,
+    /// Check plugins (path, file, pin) without loading them (`plan` and
+    /// `plugins` unless asked to load): no plugin code runs.
+    #[arg(skip)]
+    pub inspect_plugins: bool,
     /// Read the connection string of database data item NAME from the
     /// environment variable ENVVAR instead of the one the story names
     /// (repeatable), e.g. `--connection visits=STAGING_DB`.
@@ -250,13 +254,19 @@ pub enum Command {
         #[command(flatten)]
         lint: LintArgs,
     },
-    /// List the plugins a story loads: their forms, versions and ABI version.
+    /// List the plugins a story names: path, SHA-256 and pin, without
+    /// running any of their code; with --load-plugins, also their forms,
+    /// versions and ABI version.
     Plugins {
         /// The story file (.cresc).
         story: PathBuf,
         /// Let the story load plugins from DIR too (repeatable).
         #[arg(long = "allow-path", value_name = "DIR")]
         allow_paths: Vec<PathBuf>,
+        /// Load each plugin (its code runs, with your rights) to ask it for
+        /// its name, version and forms.
+        #[arg(long)]
+        load_plugins: bool,
     },
     /// Explain a lint rule (what it flags, why, an example, what to do
     /// instead); without a rule, list them all.
@@ -264,10 +274,16 @@ pub enum Command {
         /// The rule's name, e.g. `bars-off-zero`.
         rule: Option<String>,
     },
-    /// Print the frame plan (the renderer's input) as JSON.
+    /// Print the frame plan (the renderer's input) as JSON. Plugins are
+    /// checked but not loaded unless --load-plugins is given.
     Plan {
         /// The story file (.cresc).
         story: PathBuf,
+        /// Load the story's plugins (their code runs, with your rights), so
+        /// frames they draw are planned with their names, versions and
+        /// checked forms.
+        #[arg(long, conflicts_with = "no_plugins")]
+        load_plugins: bool,
         #[command(flatten)]
         data: DataArgs,
     },

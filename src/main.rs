@@ -77,8 +77,16 @@ fn main() -> ExitCode {
             lint,
         } => check::run(&story, format, explain_sql, &data, &lint, color),
         Command::Explain { rule } => explain::run(rule.as_deref(), color),
-        Command::Plugins { story, allow_paths } => plugins::run(&story, allow_paths, color),
-        Command::Plan { story, data } => plan::run(&story, &data, color),
+        Command::Plugins {
+            story,
+            allow_paths,
+            load_plugins,
+        } => plugins::run(&story, allow_paths, load_plugins, color),
+        Command::Plan {
+            story,
+            load_plugins,
+            data,
+        } => plan::run(&story, data, load_plugins, color),
         Command::New { data, out, force } => new::run(&data, out.as_deref(), force, color),
         Command::Fmt { check, files } => fmt::run(&files, check, color),
         Command::Completions { shell } => completions::run(shell),

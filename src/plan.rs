@@ -7,8 +7,11 @@ use crate::cli::DataArgs;
 use crate::planning::load_plan;
 use crate::EXIT_OUTPUT;
 
-pub fn run(story: &Path, data: &DataArgs, color: bool) -> ExitCode {
-    match load_plan(story, data, color) {
+/// `load_plugins`: load the story's plugins (their code runs); without it
+/// they are only checked.
+pub fn run(story: &Path, mut data: DataArgs, load_plugins: bool, color: bool) -> ExitCode {
+    data.inspect_plugins = !load_plugins;
+    match load_plan(story, &data, color) {
         Ok(p) => match serde_json::to_string_pretty(&p.plan) {
             Ok(s) => {
                 say!("{}", crate::output::json(&s));

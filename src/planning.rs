@@ -54,6 +54,7 @@ pub fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagno
         data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
         cache: incremental::planner_cache(),
         no_plugins: data.no_plugins,
+        inspect_plugins: data.inspect_plugins,
         database: crescendo_plan::DbOptions {
             connections: data
                 .connections

@@ -109,6 +109,8 @@ pub fn ensure_plugins() -> &'static Path {
                 "crescendo-fault-oldabi",
                 "-p",
                 "crescendo-fault-noentry",
+                "-p",
+                "crescendo-fault-marker",
             ])
             .status()
             .expect("run cargo build for the plugins");

@@ -9,7 +9,7 @@ use std::sync::Arc;
 use crescendo_data::{time, ColType, Value};
 use crescendo_diag::{closest, Diagnostic};
 use crescendo_lang::ast::{DrawStmt, PluginDecl};
-use crescendo_plugin::host::Plugin;
+use crescendo_plugin::host::{Plugin, Verified, NOT_LOADED};
 use crescendo_plugin::{Area, Cell, Column, Request, Texts, ABI_VERSION};
 
 use crate::anchors::FrameAnchors;
@@ -51,8 +51,23 @@ impl Planner<'_> {
             .help = Some("build without --no-plugins if you trust this plugin".into());
             return;
         }
+        // Open the file once and check where it really lies, what it holds
+        // and its pin; then load exactly those bytes, or (when only
+        // inspecting) nothing at all.
         let path = dir.join(&d.path.value);
-        match Plugin::load(&path, d.pin.as_ref().map(|p| p.value.as_str())) {
+        let allow = self.options.allow_paths.clone();
+        let inside =
+            |real: &Path| crate::paths::confine(dir, &real.to_string_lossy(), &allow).is_ok();
+        let pin = d.pin.as_ref().map(|p| p.value.as_str());
+        let inspect = self.options.inspect_plugins;
+        let plugin = Verified::read(&path, pin, &inside).and_then(|v| {
+            if inspect {
+                Ok(Plugin::inspected(v))
+            } else {
+                Plugin::load_verified(v)
+            }
+        });
+        match plugin {
             Ok(p) => {
                 plugins.insert(d.alias.name.clone(), Arc::new(p));
             }
@@ -106,6 +121,10 @@ impl Planner<'_> {
         };
         let info = plugin.info().clone();
         let form = match &d.form {
+            // an inspected plugin's forms are unknown: take the story's word
+            _ if !plugin.is_loaded() => {
+                d.form.as_ref().map_or_else(String::new, |f| f.name.clone())
+            }
             Some(f) if info.forms.contains(&f.name) => f.name.clone(),
             Some(f) => {
                 let mut diag = Diagnostic::error(
@@ -138,6 +157,12 @@ impl Planner<'_> {
                 ));
                 return None;
             }
+        };
+        // an inspected plugin is named by the story, its version unknown
+        let (plugin_name, plugin_version) = if plugin.is_loaded() {
+            (info.name.clone(), info.version.clone())
+        } else {
+            (d.plugin.name.clone(), NOT_LOADED.to_string())
         };
         let named = self.tables.get(self.src, &d.view, self.diags)?;
         let table = named.table.clone();
@@ -211,8 +236,8 @@ impl Planner<'_> {
         Some(SeqState {
             chart: Chart::Plugin(PluginChart {
                 plugin: d.plugin.name.clone(),
-                plugin_name: info.name.clone(),
-                plugin_version: info.version.clone(),
+                plugin_name,
+                plugin_version,
                 form: form.clone(),
                 request: Request {
                     abi_version: ABI_VERSION,
