@@ -3,7 +3,7 @@
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
-use crescendo_diag::{render, Diagnostic, Severity};
+use crescendo_diag::{Diagnostic, Severity};
 
 use crate::cli::{DataArgs, Export, LintArgs};
 use crate::planning::{default_out, load_plan, run_lint};
@@ -50,7 +50,7 @@ pub fn build(
     };
     let findings = run_lint(&planned, lint);
     if !findings.is_empty() {
-        eprint!("{}", render(&findings, color));
+        crate::output::diagnostics(&findings, color);
     }
     let lint_errors = findings.iter().filter(|d| d.is_error()).count();
     if lint_errors > 0 {
@@ -73,9 +73,9 @@ pub fn build(
                     d
                 })
                 .collect();
-            eprint!("{}", render(&as_warnings, color));
+            crate::output::diagnostics(&as_warnings, color);
         } else {
-            eprint!("{}", render(&planned.failed_claims, color));
+            crate::output::diagnostics(&planned.failed_claims, color);
             let n = planned.failed_claims.len();
             tell!(
                 "{n} claim{} of {} not supported by the data; no deck written (the previous deck in {} is kept)",
@@ -117,7 +117,7 @@ pub fn build(
             ExitCode::SUCCESS
         }
         Err(e) => {
-            eprint!("{}", render(std::slice::from_ref(&e), color));
+            crate::output::diagnostics(std::slice::from_ref(&e), color);
             tell!("the previous deck in {} was left as it was", out.display());
             // a frame that cannot be drawn (a failing plugin) is the story's
             // problem; anything else is the output folder's

@@ -34,6 +34,7 @@ mod plan;
 mod planning;
 mod plugins;
 mod progress;
+mod serve;
 mod watch;
 
 /// Exit status when the story or its data has errors.

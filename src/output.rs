@@ -5,6 +5,9 @@
 //! JSON keeps its values exact instead (see [`json`]).
 
 use std::borrow::Cow;
+use std::cell::RefCell;
+
+use crescendo_diag::{render, Diagnostic};
 
 /// Print a line to standard output; a closed pipe (`crescendo check | head`)
 /// ends the program quietly instead of panicking.
@@ -29,12 +32,54 @@ macro_rules! say_raw {
     }};
 }
 
-/// Print a line to standard error (messages that are not diagnostics).
+/// Print a line to standard error (messages that are not diagnostics),
+/// and record it in the transcript being captured (see [`capture`]).
 macro_rules! tell {
     ($($arg:tt)*) => {{
         let text = format!($($arg)*);
-        eprintln!("{}", crescendo_diag::terminal_safe(&text));
+        let safe = crescendo_diag::terminal_safe(&text);
+        eprintln!("{safe}");
+        $crate::output::record(&safe);
     }};
+}
+
+thread_local! {
+    /// What this thread printed on standard error since [`capture`] began.
+    static TRANSCRIPT: RefCell<Option<String>> = const { RefCell::new(None) };
+}
+
+/// Add a line to the transcript being captured, if any.
+pub fn record(line: &str) {
+    TRANSCRIPT.with(|t| {
+        if let Some(s) = t.borrow_mut().as_mut() {
+            s.push_str(line);
+            s.push('\n');
+        }
+    });
+}
+
+/// Print diagnostics on standard error (in colour when `color`), and record
+/// them, without colour, in the transcript being captured.
+pub fn diagnostics(diags: &[Diagnostic], color: bool) {
+    if diags.is_empty() {
+        return;
+    }
+    eprint!("{}", render(diags, color));
+    TRANSCRIPT.with(|t| {
+        if let Some(s) = t.borrow_mut().as_mut() {
+            s.push_str(&render(diags, false));
+        }
+    });
+}
+
+/// Run `f`, and return with its result the plain text of everything it
+/// printed on standard error through [`diagnostics`] and `tell!` (what
+/// `watch --serve` shows on the page after a failed build).
+pub fn capture<T>(f: impl FnOnce() -> T) -> (T, String) {
+    let before = TRANSCRIPT.with(|t| t.borrow_mut().replace(String::new()));
+    let result = f();
+    let text = TRANSCRIPT.with(|t| std::mem::replace(&mut *t.borrow_mut(), before));
+    (result, text.unwrap_or_default())
 }
 
 /// JSON text safe for a terminal with its values unchanged: `serde_json`
@@ -59,6 +104,20 @@ pub fn json(text: &str) -> Cow<'_, str> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn capture_records_diagnostics_and_lines_plainly() {
+        let d = Diagnostic::error("x", "bad \u{1b}[2J thing");
+        let ((), text) = capture(|| {
+            diagnostics(std::slice::from_ref(&d), true);
+            tell!("then {}", "this");
+        });
+        assert_eq!(text, format!("{}then this\n", render(&[d], false)));
+        assert!(!text.contains('\u{1b}'), "{text:?}");
+        // outside a capture nothing is kept
+        record("lost");
+        assert_eq!(capture(|| ()).1, "");
+    }
 
     #[test]
     fn json_stays_the_same_value_without_raw_controls() {

@@ -6,7 +6,7 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::sync::Arc;
 
-use crescendo_diag::{render, Diagnostic, Source};
+use crescendo_diag::{Diagnostic, Source};
 use crescendo_plan::{Options, Planned};
 
 use crate::cli::{parse_connection_arg, DataArgs, Deny, LintArgs};
@@ -81,12 +81,12 @@ pub fn load_plan(story: &Path, data: &DataArgs, color: bool) -> Result<Planned, 
     match plan_quietly(story, data) {
         Ok(p) => {
             if !p.warnings.is_empty() {
-                eprint!("{}", render(&p.warnings, color));
+                crate::output::diagnostics(&p.warnings, color);
             }
             Ok(p)
         }
         Err(diags) => {
-            eprint!("{}", render(&diags, color));
+            crate::output::diagnostics(&diags, color);
             let n = diags.iter().filter(|d| d.is_error()).count();
             tell!(
                 "{n} error{} in {}; no deck written",

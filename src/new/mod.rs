@@ -29,7 +29,7 @@ mod story;
 use std::path::Path;
 use std::process::ExitCode;
 
-use crescendo_diag::{render, Diagnostic};
+use crescendo_diag::Diagnostic;
 
 use profile::{profile_file, summary};
 use shape::choose_shape;
@@ -45,13 +45,13 @@ pub fn run(data: &Path, out: Option<&Path>, force: bool, color: bool) -> ExitCod
             format!("{} exists; it was left as it is", story_path.display()),
         )
         .help("choose another file with `--out STORY`, or replace it with `--force`");
-        eprint!("{}", render(&[d], color));
+        crate::output::diagnostics(&[d], color);
         return ExitCode::from(1);
     }
     let (table, profile) = match profile_file(data) {
         Ok(p) => p,
         Err(d) => {
-            eprint!("{}", render(&[d], color));
+            crate::output::diagnostics(&[d], color);
             return ExitCode::from(1);
         }
     };
@@ -61,7 +61,7 @@ pub fn run(data: &Path, out: Option<&Path>, force: bool, color: bool) -> ExitCod
             say_raw!("{}", summary(&profile, None));
             let d = Diagnostic::error("no-starter", message)
                 .help("a starter story needs a column of numbers with a plain name (letters, digits, `_`)");
-            eprint!("{}", render(&[d], color));
+            crate::output::diagnostics(&[d], color);
             return ExitCode::from(1);
         }
     };
