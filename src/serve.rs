@@ -205,46 +205,35 @@ fn handle(mut stream: TcpStream, deck: &Path, port: u16, state: &State) -> std::
     let builds = state.builds.load(Ordering::SeqCst);
     let error = state.error();
     let script = |lead: &str| page_script(builds, error.as_deref().map(|e| (lead, e)));
-    match (body, index) {
-        // the deck, with the reload script (and the last build's errors)
-        (Some(body), true) => {
-            let text = String::from_utf8_lossy(&body);
-            // the deck's content security policy is extended by this
-            // script's hash (and a request to its own server)
-            let lead = "The last build failed; this is the deck it kept.";
-            let page = crescendo_render::with_extra_script(&text, &script(lead));
-            respond(
-                &mut stream,
-                "200 OK",
-                "text/html; charset=utf-8",
-                page.as_bytes(),
-                is_head,
-            )
-        }
+    let page = match (body, index) {
+        // the deck, with the reload script (and the last build's errors):
+        // the deck's content security policy is extended by this script's
+        // hash (and a request to its own server)
+        (Some(body), true) => crescendo_render::with_extra_script(
+            &String::from_utf8_lossy(&body),
+            &script("The last build failed; this is the deck it kept."),
+        ),
+        // no deck yet: a page of its own for the errors, reloading too
+        (None, true) => crescendo_render::with_extra_script(
+            NO_DECK,
+            &script("The build failed; there is no deck yet."),
+        ),
         (Some(body), false) => {
             let ctype = content_type(file.as_deref().unwrap_or(Path::new("")));
-            respond(&mut stream, "200 OK", ctype, &body, is_head)
+            return respond(&mut stream, "200 OK", ctype, &body, is_head);
         }
-        // no deck yet: a page of its own for the errors, reloading too
-        (None, true) => {
-            let lead = "The build failed; there is no deck yet.";
-            let page = crescendo_render::with_extra_script(NO_DECK, &script(lead));
-            respond(
+        (None, false) => {
+            return respond(
                 &mut stream,
-                "200 OK",
-                "text/html; charset=utf-8",
-                page.as_bytes(),
+                "404 Not Found",
+                "text/plain",
+                b"not found\n",
                 is_head,
             )
         }
-        (None, false) => respond(
-            &mut stream,
-            "404 Not Found",
-            "text/plain",
-            b"not found\n",
-            is_head,
-        ),
-    }
+    };
+    let html = "text/html; charset=utf-8";
+    respond(&mut stream, "200 OK", html, page.as_bytes(), is_head)
 }
 
 /// The page served for `/` while there is no deck (the first build failed).

@@ -6,88 +6,32 @@
 
 mod common;
 
-use std::io::{BufRead, BufReader, Read, Write};
+use std::io::{Read, Write};
 use std::net::TcpStream;
 use std::path::Path;
-use std::process::{Child, Command, Stdio};
-use std::sync::{Arc, Mutex};
 use std::time::{Duration, Instant};
 
-use common::scratch;
+use common::{scratch, Watch};
 
 const STORY: &str = "story \"Loans\"\nsource \"Invented\"\nconclusion \"Elm leads.\"\n\
 data loans from \"loans.csv\"\n\
 frame \"Loans per branch\" {\n  bars loans: category branch, value loans\n}\n";
 const CSV: &str = "branch,loans\nElm,120\nQuarry,80\n";
 
-/// A running `crescendo watch` and everything it has printed on stderr;
-/// the process is ended when this is dropped.
-struct Watch {
-    child: Child,
-    stderr: Arc<Mutex<String>>,
-}
-
-impl Watch {
-    fn start(dir: &Path, args: &[&str]) -> Watch {
-        let mut child = Command::new(env!("CARGO_BIN_EXE_crescendo"))
-            .arg("watch")
-            .args(args)
-            .current_dir(dir)
-            .env("NO_COLOR", "1")
-            .stdout(Stdio::null())
-            .stderr(Stdio::piped())
-            .spawn()
-            .expect("start crescendo watch");
-        let stderr = Arc::new(Mutex::new(String::new()));
-        let pipe = child.stderr.take().unwrap();
-        let sink = Arc::clone(&stderr);
-        std::thread::spawn(move || {
-            for line in BufReader::new(pipe).lines().map_while(Result::ok) {
-                let mut s = sink.lock().unwrap();
-                s.push_str(&line);
-                s.push('\n');
-            }
-        });
-        let w = Watch { child, stderr };
-        w.wait_for("watching", 1);
-        w
-    }
-
-    fn text(&self) -> String {
-        self.stderr.lock().unwrap().clone()
-    }
-
-    fn count(&self, needle: &str) -> usize {
-        self.text().matches(needle).count()
-    }
-
-    /// Wait (up to 60 s) until `needle` has been printed `n` times.
-    fn wait_for(&self, needle: &str, n: usize) {
-        let start = Instant::now();
-        while self.count(needle) < n {
-            assert!(
-                start.elapsed() < Duration::from_secs(60),
-                "no {n}× {needle:?} in:\n{}",
-                self.text()
-            );
-            std::thread::sleep(Duration::from_millis(50));
-        }
-    }
-
-    /// The port from "serving … at http://127.0.0.1:PORT/".
-    fn port(&self) -> u16 {
-        self.wait_for("serving ", 1);
-        let text = self.text();
-        let at = text.find("http://127.0.0.1:").unwrap() + "http://127.0.0.1:".len();
-        text[at..].split('/').next().unwrap().parse().unwrap()
-    }
-}
-
-impl Drop for Watch {
-    fn drop(&mut self) {
-        let _ = self.child.kill();
-        let _ = self.child.wait();
-    }
+/// Start `crescendo watch ARGS` in `dir` and wait for its first build;
+/// with `--serve`, also return its port (from "serving … at
+/// http://127.0.0.1:PORT/").
+fn start(dir: &Path, args: &[&str]) -> (Watch, u16) {
+    let w = Watch::start(dir, args);
+    let port = if args.contains(&"--serve") {
+        let line = w.wait_for("serving ");
+        let at = line.find("http://127.0.0.1:").unwrap() + "http://127.0.0.1:".len();
+        line[at..].split('/').next().unwrap().parse().unwrap()
+    } else {
+        0
+    };
+    w.wait_for("watching");
+    (w, port)
 }
 
 fn story_dir(name: &str) -> std::path::PathBuf {
@@ -139,17 +83,24 @@ fn next_version(port: u16, from: &str) -> String {
 #[test]
 fn one_edit_makes_one_rebuild() {
     let dir = story_dir("watch-once");
-    let w = Watch::start(&dir, &["s.cresc"]);
-    std::fs::write(dir.join("s.cresc"), format!("{STORY}# an edit\n")).unwrap();
-    w.wait_for("rebuilding", 1);
-    std::thread::sleep(Duration::from_secs(3));
-    assert_eq!(w.count("rebuilding"), 1, "{}", w.text());
-    // an edit of the data is one more
-    std::fs::write(dir.join("loans.csv"), format!("{CSV}Mill,60\n")).unwrap();
-    w.wait_for("rebuilding", 2);
-    std::thread::sleep(Duration::from_secs(3));
-    assert_eq!(w.count("rebuilding"), 2, "{}", w.text());
-    assert_eq!(w.count("built 1 frame"), 3, "{}", w.text());
+    let (w, _) = start(&dir, &["s.cresc"]);
+    // an edit of the story, then one of the data: one rebuild each
+    for (file, text) in [
+        ("s.cresc", format!("{STORY}# an edit\n")),
+        ("loans.csv", format!("{CSV}Mill,60\n")),
+    ] {
+        std::fs::write(dir.join(file), text).unwrap();
+        w.wait_for("rebuilding");
+        w.wait_for("built 1 frame");
+        let after = w.lines_during(Duration::from_secs(3));
+        let again = after.iter().filter(|l| l.contains("rebuilding")).count();
+        assert_eq!(
+            again,
+            0,
+            "{file}: more rebuilds after one edit:\n{}",
+            after.join("\n")
+        );
+    }
 }
 
 /// Issue 15, item 8: after a failed build the served page kept showing
@@ -158,8 +109,7 @@ fn one_edit_makes_one_rebuild() {
 #[test]
 fn the_served_page_shows_the_last_build_error() {
     let dir = story_dir("watch-error-page");
-    let w = Watch::start(&dir, &["s.cresc", "--serve", "--port", "0"]);
-    let port = w.port();
+    let (_w, port) = start(&dir, &["s.cresc", "--serve", "--port", "0"]);
     let (status, page, _) = get(port, Some(&local(port)), "/");
     assert_eq!(status, 200);
     assert!(page.contains("var v=\"1\",e=null"), "{page}");
@@ -194,8 +144,7 @@ fn without_a_deck_the_errors_have_a_page_of_their_own() {
         STORY.replace("value loans", "value lons"),
     )
     .unwrap();
-    let w = Watch::start(&dir, &["s.cresc", "--serve", "--port", "0"]);
-    let port = w.port();
+    let (_w, port) = start(&dir, &["s.cresc", "--serve", "--port", "0"]);
     let (status, page, _) = get(port, Some(&local(port)), "/");
     assert_eq!(status, 200, "{page}");
     assert!(
@@ -211,8 +160,7 @@ fn without_a_deck_the_errors_have_a_page_of_their_own() {
 #[test]
 fn the_preview_server_answers_only_to_its_own_names() {
     let dir = story_dir("watch-hosts");
-    let w = Watch::start(&dir, &["s.cresc", "--serve", "--port", "0"]);
-    let port = w.port();
+    let (_w, port) = start(&dir, &["s.cresc", "--serve", "--port", "0"]);
     for (host, expected) in [
         (Some(local(port)), 200),
         (Some(format!("localhost:{port}")), 200),
@@ -239,8 +187,7 @@ fn the_preview_server_answers_only_to_its_own_names() {
 #[test]
 fn idle_and_slow_clients_hold_up_nobody() {
     let dir = story_dir("watch-slow");
-    let w = Watch::start(&dir, &["s.cresc", "--serve", "--port", "0"]);
-    let port = w.port();
+    let (_w, port) = start(&dir, &["s.cresc", "--serve", "--port", "0"]);
     // idle clients: connected, sending nothing
     let idle: Vec<TcpStream> = (0..3)
         .map(|_| TcpStream::connect(("127.0.0.1", port)).unwrap())
