@@ -503,90 +503,6 @@ unsafe fn read_name(p: *const c_char, what: &str) -> Result<String, PluginError>
     Ok(s)
 }
 
-/// Check that an ELF file's header, program headers, the file ranges of its
-/// segments and its section header table all lie within the file. Files that
-/// are not ELF are left to the system loader (which refuses them cleanly).
-pub(crate) fn check_elf(bytes: &[u8]) -> Result<(), String> {
-    if bytes.get(..4) != Some(b"\x7fELF".as_slice()) {
-        return Ok(());
-    }
-    let short = || "the file is truncated (it ends inside its ELF headers)".to_string();
-    let wide = match bytes.get(4) {
-        Some(1) => false,
-        Some(2) => true,
-        _ => return Err("the ELF file has an unknown class".into()),
-    };
-    let big = match bytes.get(5) {
-        Some(1) => false,
-        Some(2) => true,
-        _ => return Err("the ELF file has an unknown byte order".into()),
-    };
-    let uint = |at: usize, size: usize| -> Option<u64> {
-        let b = bytes.get(at..at.checked_add(size)?)?;
-        let mut v: u64 = 0;
-        for k in 0..size {
-            let byte = if big { b[k] } else { b[size - 1 - k] };
-            v = (v << 8) | u64::from(byte);
-        }
-        Some(v)
-    };
-    // Offsets of e_phoff, e_shoff, e_phentsize, e_phnum, e_shentsize,
-    // e_shnum; the width of an address; the smallest program header; and the
-    // offsets of p_offset and p_filesz in a program header.
-    let (phoff, shoff, phentsize, phnum, shentsize, shnum, addr, ph_min, p_offset, p_filesz) =
-        if wide {
-            (0x20, 0x28, 0x36, 0x38, 0x3a, 0x3c, 8, 56, 0x08, 0x20)
-        } else {
-            (0x1c, 0x20, 0x2a, 0x2c, 0x2e, 0x30, 4, 32, 0x04, 0x10)
-        };
-    let field = |at: usize, size: usize| uint(at, size).ok_or_else(short);
-    let len = bytes.len() as u64;
-    let table_fits = |off: u64, entsize: u64, num: u64| {
-        entsize
-            .checked_mul(num)
-            .and_then(|size| off.checked_add(size))
-            .is_some_and(|end| end <= len)
-    };
-    let (ph_off, ph_size, ph_num) = (field(phoff, addr)?, field(phentsize, 2)?, field(phnum, 2)?);
-    if ph_num > 0 && ph_size < ph_min {
-        return Err("the ELF file's program headers are too small".into());
-    }
-    if !table_fits(ph_off, ph_size, ph_num) {
-        return Err(short());
-    }
-    for i in 0..ph_num {
-        let base = ph_off + i * ph_size;
-        let at = |rel: usize| {
-            usize::try_from(base)
-                .ok()
-                .and_then(|b| b.checked_add(rel))
-                .ok_or_else(short)
-        };
-        let (offset, size) = (field(at(p_offset)?, addr)?, field(at(p_filesz)?, addr)?);
-        if offset.checked_add(size).is_none_or(|end| end > len) {
-            return Err(format!(
-                "the file is truncated: a segment needs {} bytes at offset {offset}, but the file has {len}",
-                size
-            ));
-        }
-    }
-    let (sh_off, sh_size, sh_num) = (field(shoff, addr)?, field(shentsize, 2)?, field(shnum, 2)?);
-    if sh_off != 0 && !table_fits(sh_off, sh_size, sh_num) {
-        return Err(format!(
-            "the file is truncated: its section table ends past its {len} bytes"
-        ));
-    }
-    Ok(())
-}
-
-pub(crate) fn hex(bytes: &[u8]) -> String {
-    let mut s = String::with_capacity(bytes.len() * 2);
-    for b in bytes {
-        s.push_str(&format!("{b:02x}"));
-    }
-    s
-}
-
 /// At most `max` characters of `s`, with an ellipsis when cut.
 fn clip(s: &str, max: usize) -> String {
     match s.char_indices().nth(max) {
@@ -1086,8 +1002,7 @@ mod tests {
     }
 
     #[test]
-    fn hex_and_clip() {
-        assert_eq!(hex(&[0, 1, 0xab, 0xff]), "0001abff");
+    fn clip_cuts_with_an_ellipsis() {
         assert_eq!(clip("abcdef", 3), "abc…");
         assert_eq!(clip("abc", 3), "abc");
     }
