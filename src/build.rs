@@ -3,7 +3,7 @@
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
-use crescendo_diag::{render, Diagnostic, Severity};
+use crescendo_diag::{Diagnostic, Severity};
 
 use crate::cli::{DataArgs, Export, LintArgs};
 use crate::planning::{default_out, load_plan, run_lint};
@@ -67,11 +67,11 @@ pub fn build_with(
     };
     let findings = run_lint(&planned, lint);
     if !findings.is_empty() {
-        eprint!("{}", render(&findings, color));
+        crate::output::diagnostics(&findings, color);
     }
     let lint_errors = findings.iter().filter(|d| d.is_error()).count();
     if lint_errors > 0 {
-        eprintln!(
+        tell!(
             "{lint_errors} lint error{} in {}; no deck written",
             if lint_errors == 1 { "" } else { "s" },
             story.display()
@@ -90,11 +90,11 @@ pub fn build_with(
                     d
                 })
                 .collect();
-            eprint!("{}", render(&as_warnings, color));
+            crate::output::diagnostics(&as_warnings, color);
         } else {
-            eprint!("{}", render(&planned.failed_claims, color));
+            crate::output::diagnostics(&planned.failed_claims, color);
             let n = planned.failed_claims.len();
-            eprintln!(
+            tell!(
                 "{n} claim{} of {} not supported by the data; no deck written (the previous deck in {} is kept)",
                 if n == 1 { "" } else { "s" },
                 story.display(),
@@ -113,7 +113,7 @@ pub fn build_with(
     let mut frames = incremental::FrameCache::new(cache.as_deref(), &planned.plan);
     match deck::build(&planned.plan, &out, exports, &ctx, &mut frames) {
         Ok(files) => {
-            eprintln!(
+            tell!(
                 "built {} frame{} into {}{}",
                 files,
                 if files == 1 { "" } else { "s" },
@@ -126,17 +126,17 @@ pub fn build_with(
             );
             if let (Some(old), Ok(new)) = (previous, diff::read_manifest(&out)) {
                 for line in diff::diff(&old, &new) {
-                    eprintln!("  {line}");
+                    tell!("  {line}");
                 }
             }
             for line in frames.finish(&planned.report) {
-                eprintln!("  {line}");
+                tell!("  {line}");
             }
             ExitCode::SUCCESS
         }
         Err(e) => {
-            eprint!("{}", render(std::slice::from_ref(&e), color));
-            eprintln!("the previous deck in {} was left as it was", out.display());
+            crate::output::diagnostics(std::slice::from_ref(&e), color);
+            tell!("the previous deck in {} was left as it was", out.display());
             // a frame that cannot be drawn (a failing plugin) is the story's
             // problem; anything else is the output folder's
             ExitCode::from(if e.code == "render" {

@@ -5,7 +5,7 @@
 use std::path::Path;
 use std::process::ExitCode;
 
-use crescendo_diag::{render, Diagnostic};
+use crescendo_diag::Diagnostic;
 
 use crate::cli::{DataArgs, Format, LintArgs};
 use crate::planning::{plan_quietly, run_lint};
@@ -77,23 +77,23 @@ pub fn run(
                 "sql": planned.as_ref().filter(|_| explain_sql).map(|p| p.sql.clone()),
             });
             match serde_json::to_string_pretty(&report) {
-                Ok(s) => say!("{s}"),
-                Err(e) => eprintln!("error: {e}"),
+                Ok(s) => say!("{}", crate::output::json(&s)),
+                Err(e) => tell!("error: {e}"),
             }
         }
         Format::Human => {
             if !errors.is_empty() {
-                eprint!("{}", render(&errors, color));
+                crate::output::diagnostics(&errors, color);
             }
             if !lint_rest.is_empty() {
-                eprint!("{}", render(&lint_rest, color));
+                crate::output::diagnostics(&lint_rest, color);
             }
             if let Some(p) = planned.as_ref().filter(|_| errors.is_empty()) {
                 if !p.warnings.is_empty() {
-                    eprint!("{}", render(&p.warnings, color));
+                    crate::output::diagnostics(&p.warnings, color);
                 }
                 if !p.failed_claims.is_empty() {
-                    eprint!("{}", render(&p.failed_claims, color));
+                    crate::output::diagnostics(&p.failed_claims, color);
                 }
                 let plan = &p.plan;
                 say!(
@@ -122,7 +122,7 @@ pub fn run(
                 }
             } else {
                 let n = errors.iter().filter(|d| d.is_error()).count();
-                eprintln!(
+                tell!(
                     "{n} error{} in {}",
                     if n == 1 { "" } else { "s" },
                     story.display()

@@ -63,6 +63,10 @@ pub struct DataArgs {
     /// runs with your rights).
     #[arg(long)]
     pub no_plugins: bool,
+    /// Check plugins (path, file, pin) without loading them (`plan` and
+    /// `plugins` unless asked to load): no plugin code runs.
+    #[arg(skip)]
+    pub inspect_plugins: bool,
     /// Read the connection string of database data item NAME from the
     /// environment variable ENVVAR instead of the one the story names
     /// (repeatable), e.g. `--connection visits=STAGING_DB`.
@@ -83,16 +87,37 @@ pub struct DataArgs {
 }
 
 /// `--connection NAME=ENVVAR`; the error never repeats the argument (it
-/// may be a connection string given by mistake).
+/// may be a connection string given by mistake). The variable's name is
+/// quoted in later messages ("`X` is not set"), so a value that does not
+/// look like a variable name (upper-case letters, digits and `_`, the
+/// convention for environment variables) is accepted only when a variable
+/// of that name is set: a bare password pasted here is refused, unechoed.
 pub fn parse_connection_arg(s: &str) -> Result<(String, String), Diagnostic> {
-    let ok_var = |v: &str| {
+    let valid = |v: &str| {
         !v.is_empty()
             && v.chars().all(|c| c.is_ascii_alphanumeric() || c == '_')
             && !v.starts_with(|c: char| c.is_ascii_digit())
     };
+    let looks_like_a_name = |v: &str| {
+        v.chars()
+            .all(|c| c.is_ascii_uppercase() || c.is_ascii_digit() || c == '_')
+    };
+    let is_set = |v: &str| std::env::var_os(v).is_some_and(|x| !x.is_empty());
     match s.split_once('=') {
-        Some((name, var)) if !name.is_empty() && ok_var(var) => {
-            Ok((name.to_string(), var.to_string()))
+        Some((name, var)) if !name.is_empty() && valid(var) => {
+            if looks_like_a_name(var) || is_set(var) {
+                return Ok((name.to_string(), var.to_string()));
+            }
+            Err(Diagnostic::error(
+                "connection-option",
+                "`--connection NAME=ENVVAR` names no environment variable that is set, and the \
+                 value does not look like a variable name (it is not repeated here, in case it \
+                 is a password)",
+            )
+            .help(
+                "give the name of the variable that holds the connection string, e.g. \
+                 `--connection trips=STAGING_DB`",
+            ))
         }
         _ => Err(Diagnostic::error(
             "connection-option",
@@ -229,13 +254,19 @@ pub enum Command {
         #[command(flatten)]
         lint: LintArgs,
     },
-    /// List the plugins a story loads: their forms, versions and ABI version.
+    /// List the plugins a story names: path, SHA-256 and pin, without
+    /// running any of their code; with --load-plugins, also their forms,
+    /// versions and ABI version.
     Plugins {
         /// The story file (.cresc).
         story: PathBuf,
         /// Let the story load plugins from DIR too (repeatable).
         #[arg(long = "allow-path", value_name = "DIR")]
         allow_paths: Vec<PathBuf>,
+        /// Load each plugin (its code runs, with your rights) to ask it for
+        /// its name, version and forms.
+        #[arg(long)]
+        load_plugins: bool,
     },
     /// Explain a lint rule (what it flags, why, an example, what to do
     /// instead); without a rule, list them all.
@@ -243,10 +274,16 @@ pub enum Command {
         /// The rule's name, e.g. `bars-off-zero`.
         rule: Option<String>,
     },
-    /// Print the frame plan (the renderer's input) as JSON.
+    /// Print the frame plan (the renderer's input) as JSON. Plugins are
+    /// checked but not loaded unless --load-plugins is given.
     Plan {
         /// The story file (.cresc).
         story: PathBuf,
+        /// Load the story's plugins (their code runs, with your rights), so
+        /// frames they draw are planned with their names, versions and
+        /// checked forms.
+        #[arg(long, conflicts_with = "no_plugins")]
+        load_plugins: bool,
         #[command(flatten)]
         data: DataArgs,
     },

@@ -2,6 +2,7 @@
 //! folder and swap it into place, so a failed build never leaves a
 //! half-written or destroyed deck.
 
+use std::collections::BTreeSet;
 use std::fs;
 use std::path::{Path, PathBuf};
 
@@ -199,10 +200,15 @@ pub fn build(
 }
 
 /// Refuse to replace a folder that is not a deck (so `--out ~` cannot wipe
-/// a home folder).
-fn check_replaceable(out: &Path) -> Result<(), Diagnostic> {
+/// a home folder). A folder is a deck when it is empty or holds a
+/// `deck.json` that reads as a manifest; a folder whose manifest is empty,
+/// not JSON or unreadable is not one (its other files would otherwise be
+/// taken for crescendo's and dropped). Returns the names the manifest says
+/// crescendo wrote (see [`written_by_us`]); everything else in the folder
+/// is carried over to the new deck.
+fn check_replaceable(out: &Path) -> Result<BTreeSet<String>, Diagnostic> {
     if !out.exists() {
-        return Ok(());
+        return Ok(BTreeSet::new());
     }
     if !out.is_dir() {
         return Err(Diagnostic::error(
@@ -211,8 +217,10 @@ fn check_replaceable(out: &Path) -> Result<(), Diagnostic> {
         ));
     }
     let mut entries = fs::read_dir(out).map_err(|e| io_err("read", out, e))?;
-    let empty = entries.next().is_none();
-    if !empty && !out.join(MANIFEST).is_file() {
+    if entries.next().is_none() {
+        return Ok(BTreeSet::new());
+    }
+    if !out.join(MANIFEST).is_file() {
         return Err(Diagnostic::error(
             "output",
             format!(
@@ -222,16 +230,31 @@ fn check_replaceable(out: &Path) -> Result<(), Diagnostic> {
         )
         .help("choose an empty or new folder with --out"));
     }
-    Ok(())
+    written_by_us(out).map_err(|why| {
+        Diagnostic::error(
+            "output",
+            format!(
+                "`{}` holds a {MANIFEST} that is not a deck manifest ({why}), so it is not a deck crescendo may replace; nothing was changed",
+                out.display()
+            ),
+        )
+        .help(format!(
+            "choose another folder with --out, or, if it is a deck you no longer need, delete its {MANIFEST} after moving away the files you keep"
+        ))
+    })
 }
 
 /// The names of the files a deck's manifest says crescendo wrote (the
-/// manifest itself included). Anything else in a deck folder was put there
-/// by someone else and is carried over to the next deck.
-fn written_by_us(deck: &Path) -> Option<std::collections::BTreeSet<String>> {
-    let text = fs::read_to_string(deck.join(MANIFEST)).ok()?;
-    let m: serde_json::Value = serde_json::from_str(&text).ok()?;
-    let mut names = std::collections::BTreeSet::new();
+/// manifest itself included), or why the manifest cannot be read. Anything
+/// else in a deck folder was put there by someone else and is carried over
+/// to the next deck.
+fn written_by_us(deck: &Path) -> Result<BTreeSet<String>, String> {
+    let text = fs::read_to_string(deck.join(MANIFEST)).map_err(|e| e.to_string())?;
+    let m: serde_json::Value = serde_json::from_str(&text).map_err(|e| e.to_string())?;
+    if !m.is_object() {
+        return Err("it is not a JSON object".into());
+    }
+    let mut names = BTreeSet::new();
     names.insert(MANIFEST.to_string());
     for key in ["html", "pdf"] {
         if let Some(s) = m.get(key).and_then(|v| v.as_str()) {
@@ -250,7 +273,7 @@ fn written_by_us(deck: &Path) -> Option<std::collections::BTreeSet<String>> {
             }
         }
     }
-    Some(names)
+    Ok(names)
 }
 
 /// Copy a file or a folder tree (symbolic links are recreated, not followed).
@@ -434,7 +457,7 @@ pub fn write_atomically(out: &Path, files: &[(String, Vec<u8>)]) -> Result<(), D
     if parent.is_dir() {
         recover(&parent, &base, out);
     }
-    check_replaceable(out)?;
+    let ours = check_replaceable(out)?;
     fs::create_dir_all(&parent).map_err(|e| io_err("create", &parent, e))?;
     let tmp = parent.join(format!(".{base}.building-{}", std::process::id()));
     let old = parent.join(format!(".{base}.previous-{}", std::process::id()));
@@ -448,16 +471,14 @@ pub fn write_atomically(out: &Path, files: &[(String, Vec<u8>)]) -> Result<(), D
         let had_old = out.exists();
         if had_old {
             // carry over what someone else put into the deck folder
-            if let Some(ours) = written_by_us(out) {
-                let entries = fs::read_dir(out).map_err(|e| io_err("read", out, e))?;
-                for e in entries.flatten() {
-                    let name = e.file_name().to_string_lossy().into_owned();
-                    if ours.contains(&name) || files.iter().any(|(n, _)| *n == name) {
-                        continue;
-                    }
-                    let to = tmp.join(e.file_name());
-                    copy_tree(&e.path(), &to).map_err(|err| io_err("keep", &e.path(), err))?;
+            let entries = fs::read_dir(out).map_err(|e| io_err("read", out, e))?;
+            for e in entries.flatten() {
+                let name = e.file_name().to_string_lossy().into_owned();
+                if ours.contains(&name) || files.iter().any(|(n, _)| *n == name) {
+                    continue;
                 }
+                let to = tmp.join(e.file_name());
+                copy_tree(&e.path(), &to).map_err(|err| io_err("keep", &e.path(), err))?;
             }
         }
         sync_dir(&tmp).map_err(|e| io_err("flush", &tmp, e))?;
@@ -547,6 +568,32 @@ mod tests {
         assert!(err.message.contains("not a deck"), "{}", err.message);
         assert_eq!(fs::read(d.join("precious.txt")).unwrap(), b"keep me");
     }
+    #[test]
+    fn refuses_a_folder_whose_manifest_does_not_read() {
+        for (case, manifest) in [
+            ("empty", &b""[..]),
+            ("text", b"not json\n"),
+            ("array", b"[1, 2]"),
+            ("half", b"{\"frames\": ["),
+            ("binary", b"\xff\xfe\x00"),
+        ] {
+            let d = tempdir(&format!("bad-manifest-{case}"));
+            fs::write(d.join(MANIFEST), manifest).unwrap();
+            fs::write(d.join("important.txt"), b"keep me").unwrap();
+            fs::create_dir(d.join("sub")).unwrap();
+            fs::write(d.join("sub/x.txt"), b"x").unwrap();
+            let err = write_atomically(&d, &[(MANIFEST.into(), b"{}".to_vec())]).unwrap_err();
+            assert!(
+                err.message.contains("not a deck"),
+                "{case}: {}",
+                err.message
+            );
+            assert_eq!(fs::read(d.join("important.txt")).unwrap(), b"keep me");
+            assert_eq!(fs::read(d.join("sub/x.txt")).unwrap(), b"x");
+            assert_eq!(fs::read(d.join(MANIFEST)).unwrap(), manifest, "{case}");
+        }
+    }
+
     /// The process id of a process that has ended.
     fn dead_pid() -> u32 {
         let mut c = std::process::Command::new("true").spawn().unwrap();

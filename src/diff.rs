@@ -4,7 +4,7 @@
 use std::path::Path;
 use std::process::ExitCode;
 
-use crescendo_diag::{render, Diagnostic};
+use crescendo_diag::Diagnostic;
 use serde_json::Value;
 
 use crate::deck::MANIFEST;
@@ -20,7 +20,7 @@ pub fn run(old: &Path, new: &Path, color: bool) -> ExitCode {
             ExitCode::SUCCESS
         }
         Err(d) => {
-            eprint!("{}", render(&[d], color));
+            crate::output::diagnostics(&[d], color);
             ExitCode::from(EXIT_STORY)
         }
     }

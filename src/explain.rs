@@ -2,7 +2,7 @@
 
 use std::process::ExitCode;
 
-use crescendo_diag::{render, Diagnostic};
+use crescendo_diag::Diagnostic;
 
 use crate::EXIT_STORY;
 
@@ -27,7 +27,7 @@ pub fn run(rule: Option<&str>, color: bool) -> ExitCode {
                 if let Some(s) = crescendo_diag::closest(name, names) {
                     d = d.help(format!("did you mean `{s}`?"));
                 }
-                eprint!("{}", render(&[d], color));
+                crate::output::diagnostics(&[d], color);
                 ExitCode::from(EXIT_STORY)
             }
         },

@@ -4,7 +4,7 @@
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
-use crescendo_diag::{render, Diagnostic, Source};
+use crescendo_diag::{Diagnostic, Source};
 
 /// Exit status of `fmt --check` when a file would change.
 pub const EXIT_WOULD_CHANGE: u8 = 1;
@@ -23,30 +23,30 @@ pub fn run(files: &[PathBuf], check: bool, color: bool) -> ExitCode {
                 if check {
                     changed.push(path.clone());
                 } else if let Err(d) = write_atomically(path, &formatted) {
-                    eprint!("{}", render(&[d], color));
+                    crate::output::diagnostics(&[d], color);
                     errors += 1;
                 } else {
                     changed.push(path.clone());
                 }
             }
             Err(diags) => {
-                eprint!("{}", render(&diags, color));
-                eprintln!("{} was not formatted", path.display());
+                crate::output::diagnostics(&diags, color);
+                tell!("{} was not formatted", path.display());
                 errors += 1;
             }
         }
     }
     for p in &changed {
         if check {
-            println!("would reformat {}", p.display());
+            say!("would reformat {}", p.display());
         } else {
-            println!("formatted {}", p.display());
+            say!("formatted {}", p.display());
         }
     }
     if errors > 0 {
         ExitCode::from(EXIT_ERROR)
     } else if check && !changed.is_empty() {
-        eprintln!(
+        tell!(
             "{} file{} not in the canonical layout; run `crescendo fmt` on {}",
             changed.len(),
             if changed.len() == 1 { " is" } else { "s are" },

@@ -15,26 +15,8 @@ use clap::Parser;
 
 use cli::{Cli, Command};
 
-/// Print a line to standard output; a closed pipe (`crescendo check | head`)
-/// ends the program quietly instead of panicking.
-macro_rules! say {
-    ($($arg:tt)*) => {{
-        use std::io::Write as _;
-        if writeln!(std::io::stdout(), $($arg)*).is_err() {
-            std::process::exit(0);
-        }
-    }};
-}
-
-/// Like [`say!`] without the line break.
-macro_rules! say_raw {
-    ($($arg:tt)*) => {{
-        use std::io::Write as _;
-        if write!(std::io::stdout(), $($arg)*).is_err() {
-            std::process::exit(0);
-        }
-    }};
-}
+#[macro_use]
+mod output;
 
 mod build;
 mod check;
@@ -52,6 +34,7 @@ mod plan;
 mod planning;
 mod plugins;
 mod progress;
+mod serve;
 mod store;
 mod watch;
 
@@ -96,8 +79,16 @@ fn main() -> ExitCode {
             lint,
         } => check::run(&story, format, explain_sql, &data, &lint, color),
         Command::Explain { rule } => explain::run(rule.as_deref(), color),
-        Command::Plugins { story, allow_paths } => plugins::run(&story, allow_paths, color),
-        Command::Plan { story, data } => plan::run(&story, &data, color),
+        Command::Plugins {
+            story,
+            allow_paths,
+            load_plugins,
+        } => plugins::run(&story, allow_paths, load_plugins, color),
+        Command::Plan {
+            story,
+            load_plugins,
+            data,
+        } => plan::run(&story, data, load_plugins, color),
         Command::New { data, out, force } => new::run(&data, out.as_deref(), force, color),
         Command::Fmt { check, files } => fmt::run(&files, check, color),
         Command::Completions { shell } => completions::run(shell),

@@ -14,7 +14,7 @@ pub fn run() -> ExitCode {
     let mut buf = Vec::new();
     let man = clap_mangen::Man::new(cmd.clone());
     if let Err(e) = man.render(&mut buf) {
-        eprintln!("error: cannot write the manual page: {e}");
+        tell!("error: cannot write the manual page: {e}");
         return ExitCode::from(EXIT_OUTPUT);
     }
     // clap_mangen lists the subcommands by name; give each its own

@@ -6,7 +6,7 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::sync::Arc;
 
-use crescendo_diag::{render, Diagnostic, Source};
+use crescendo_diag::{Diagnostic, Source};
 use crescendo_plan::{Options, Planned};
 
 use crate::cli::{parse_connection_arg, DataArgs, Deny, LintArgs};
@@ -58,6 +58,7 @@ pub fn plan_quietly(
     let options = Options {
         data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
         no_plugins: data.no_plugins,
+        inspect_plugins: data.inspect_plugins,
         database: crescendo_plan::DbOptions {
             connections: data
                 .connections
@@ -90,14 +91,14 @@ pub fn load_plan(
     match plan_quietly(story, data, cache) {
         Ok(p) => {
             if !p.warnings.is_empty() {
-                eprint!("{}", render(&p.warnings, color));
+                crate::output::diagnostics(&p.warnings, color);
             }
             Ok(p)
         }
         Err(diags) => {
-            eprint!("{}", render(&diags, color));
+            crate::output::diagnostics(&diags, color);
             let n = diags.iter().filter(|d| d.is_error()).count();
-            eprintln!(
+            tell!(
                 "{n} error{} in {}; no deck written",
                 if n == 1 { "" } else { "s" },
                 story.display()

@@ -30,7 +30,7 @@ pub fn install() {
                 .unwrap_or_else(|_| ProgressStyle::default_bar());
                 let b = ProgressBar::with_draw_target(Some(total), ProgressDrawTarget::stderr())
                     .with_style(style)
-                    .with_message(format!("reading {name}"));
+                    .with_message(format!("reading {}", crescendo_diag::terminal_safe(name)));
                 b.enable_steady_tick(Duration::from_millis(200));
                 *slot = Some(b);
             }

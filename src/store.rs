@@ -13,7 +13,7 @@ use std::path::{Path, PathBuf};
 use std::time::{Duration, SystemTime, UNIX_EPOCH};
 
 use crescendo_plan::cache::{hash_file, hash_hex, FORMAT};
-use crescendo_plan::io::{Database, Disk, Io, ViewCache};
+use crescendo_plan::io::{Database, Disk, Io, PluginFile, ViewCache};
 use serde::de::DeserializeOwned;
 use serde::{Deserialize, Serialize};
 
@@ -207,10 +207,9 @@ impl Io for Reading {
 
     fn load_plugin(
         &mut self,
-        path: &Path,
-        pin: Option<&str>,
+        file: &PluginFile,
     ) -> Result<crescendo_plugin::host::Plugin, crescendo_plugin::host::PluginError> {
-        self.disk.load_plugin(path, pin)
+        self.disk.load_plugin(file)
     }
 
     fn env_var(&self, name: &str) -> Option<String> {

@@ -5,34 +5,28 @@
 //! Changes are noticed with the `notify` crate (inotify on Linux) on the
 //! folders that hold the watched files, so editors that save by writing a
 //! new file and renaming it are seen too; events within [`QUIET`] of each
-//! other make one rebuild. A failed build prints its diagnostics and leaves
-//! the last good deck in place (the deck writer only replaces a deck after
-//! a whole successful build).
-//!
-//! The server is a few lines of `std::net`: it binds 127.0.0.1 only,
-//! answers GET and HEAD for files inside the deck folder (no `..`, no
-//! hidden files, and the resolved path must stay inside the folder),
-//! `/__version` with a counter of successful builds, and adds a small
-//! polling script to `index.html` *as it serves it*. The `index.html` on
-//! disk is never changed: it stays self-contained and byte-identical to a
-//! plain build.
+//! other make one rebuild. Only events that change a file count (see
+//! [`changes`]): reading one, as every build does with the story and its
+//! data, is no change, so one edit makes one rebuild. A failed build prints
+//! its diagnostics and leaves the last good deck in place (the deck writer
+//! only replaces a deck after a whole successful build); with `--serve`,
+//! the served page shows them (see `serve.rs`).
 
 use std::collections::BTreeSet;
-use std::io::{BufRead, BufReader, Read, Write};
-use std::net::{TcpListener, TcpStream};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
-use std::sync::atomic::{AtomicU64, Ordering};
 use std::sync::{mpsc, Arc};
 use std::time::Duration;
 
 use crescendo_lang::ast::Item;
-use notify::{RecursiveMode, Watcher};
+use notify::event::{AccessKind, AccessMode};
+use notify::{EventKind, RecursiveMode, Watcher};
 
 use crate::build::build;
 use crate::cli::{DataArgs, LintArgs};
 use crate::deck;
 use crate::planning::default_out;
+use crate::serve;
 
 /// Events closer together than this make one rebuild.
 const QUIET: Duration = Duration::from_millis(200);
@@ -132,6 +126,18 @@ pub fn run(
     })
 }
 
+/// Does an event of this kind change a file? Creating, writing (and
+/// closing after writing), renaming, removing and changing metadata (`touch`)
+/// do; opening, reading and closing after reading do not.
+fn changes(kind: &EventKind) -> bool {
+    match kind {
+        EventKind::Access(AccessKind::Close(AccessMode::Write)) => true,
+        EventKind::Access(_) => false,
+        EventKind::Create(_) | EventKind::Modify(_) | EventKind::Remove(_) => true,
+        EventKind::Any | EventKind::Other => true,
+    }
+}
+
 /// Run the watch loop until interrupted. `build` builds once and says
 /// whether it succeeded.
 fn rebuild_loop(
@@ -141,23 +147,18 @@ fn rebuild_loop(
     serve: Option<u16>,
     build: impl Fn() -> bool,
 ) -> ExitCode {
-    let version = Arc::new(AtomicU64::new(0));
-    if build() {
-        version.fetch_add(1, Ordering::SeqCst);
-    }
+    let state = Arc::new(serve::State::default());
+    // a build, and what it printed when it failed
+    let build_once = || {
+        let (ok, printed) = crate::output::capture(&build);
+        state.finished((!ok).then_some(printed));
+    };
+    build_once();
     if let Some(port) = serve {
-        match TcpListener::bind(("127.0.0.1", port)) {
-            Ok(listener) => {
-                let addr = listener
-                    .local_addr()
-                    .map_or_else(|_| format!("127.0.0.1:{port}"), |a| a.to_string());
-                eprintln!("serving {} at http://{addr}/", deck.display());
-                let deck = deck.to_path_buf();
-                let version = Arc::clone(&version);
-                std::thread::spawn(move || serve_loop(listener, &deck, &version));
-            }
+        match serve::start(deck, port, Arc::clone(&state)) {
+            Ok(addr) => tell!("serving {} at http://{addr}/", deck.display()),
             Err(e) => {
-                eprintln!("error: cannot listen on 127.0.0.1:{port}: {e}");
+                tell!("error: cannot listen on 127.0.0.1:{port}: {e}");
                 return ExitCode::from(2);
             }
         }
@@ -165,12 +166,14 @@ fn rebuild_loop(
     let (tx, rx) = mpsc::channel();
     let mut watcher = match notify::recommended_watcher(move |ev: notify::Result<notify::Event>| {
         if let Ok(ev) = ev {
-            let _ = tx.send(ev.paths);
+            if changes(&ev.kind) {
+                let _ = tx.send(ev.paths);
+            }
         }
     }) {
         Ok(w) => w,
         Err(e) => {
-            eprintln!("error: cannot watch files: {e}");
+            tell!("error: cannot watch files: {e}");
             return ExitCode::from(1);
         }
     };
@@ -178,9 +181,8 @@ fn rebuild_loop(
     let mut t = targets(story, replacements);
     loop {
         let want = t.folders();
-        for (dir, recursive) in watched.difference(&want) {
+        for (dir, _) in watched.difference(&want) {
             let _ = watcher.unwatch(dir);
-            let _ = recursive;
         }
         for (dir, recursive) in want.difference(&watched) {
             let mode = if *recursive {
@@ -189,16 +191,16 @@ fn rebuild_loop(
                 RecursiveMode::NonRecursive
             };
             if let Err(e) = watcher.watch(dir, mode) {
-                eprintln!("warning: cannot watch {}: {e}", dir.display());
+                tell!("warning: cannot watch {}: {e}", dir.display());
             }
         }
         watched = want;
-        eprintln!(
+        tell!(
             "watching {} file{} for changes (Ctrl-C stops)",
             t.files.len(),
             if t.files.len() == 1 { "" } else { "s" }
         );
-        // Wait for a relevant change, then for quiet.
+        // Wait for a change to a watched file, then for quiet.
         let mut changed: Option<PathBuf> = None;
         while changed.is_none() {
             let Ok(paths) = rx.recv() else {
@@ -206,189 +208,41 @@ fn rebuild_loop(
             };
             changed = paths.into_iter().find(|p| t.matches(p));
         }
-        while let Ok(more) = rx.recv_timeout(QUIET) {
-            let _ = more;
-        }
+        while rx.recv_timeout(QUIET).is_ok() {}
         if let Some(p) = changed {
-            eprintln!("changed: {}; rebuilding", p.display());
+            tell!("changed: {}; rebuilding", p.display());
         }
-        if build() {
-            version.fetch_add(1, Ordering::SeqCst);
-        }
+        build_once();
         t = targets(story, replacements);
     }
-}
-
-fn serve_loop(listener: TcpListener, deck: &Path, version: &AtomicU64) {
-    for stream in listener.incoming().flatten() {
-        let _ = stream.set_read_timeout(Some(Duration::from_secs(5)));
-        let _ = stream.set_write_timeout(Some(Duration::from_secs(5)));
-        let _ = handle(stream, deck, version);
-    }
-}
-
-/// The script added to `index.html` when it is served: poll the build
-/// counter and reload when it moves (the address keeps the frame number).
-fn reload_script(version: u64) -> String {
-    format!(
-        "/* added by crescendo watch --serve */\n(function(){{var v=\"{version}\";\
-setInterval(function(){{fetch(\"/__version\",{{cache:\"no-store\"}}).then(function(r){{return r.text()}})\
-.then(function(t){{if(t!==v){{location.reload()}}}}).catch(function(){{}})}},700)}})();"
-    )
-}
-
-fn percent_decode(s: &str) -> Option<String> {
-    let b = s.as_bytes();
-    let mut out = Vec::with_capacity(b.len());
-    let mut i = 0;
-    while i < b.len() {
-        if b[i] == b'%' {
-            let hex = std::str::from_utf8(b.get(i + 1..i + 3)?).ok()?;
-            out.push(u8::from_str_radix(hex, 16).ok()?);
-            i += 3;
-        } else {
-            out.push(b[i]);
-            i += 1;
-        }
-    }
-    String::from_utf8(out).ok()
-}
-
-/// The file a request path names inside `deck`, or `None` when it names
-/// anything else (a parent folder, a hidden file, an absolute path).
-pub fn resolve(deck: &Path, target: &str) -> Option<PathBuf> {
-    let path = target.split(['?', '#']).next().unwrap_or("");
-    let path = percent_decode(path)?;
-    if !path.starts_with('/') {
-        return None;
-    }
-    let mut rel = PathBuf::new();
-    for seg in path.split('/').filter(|s| !s.is_empty()) {
-        if seg.starts_with('.') || seg.contains(['\\', '\0', ':']) {
-            return None;
-        }
-        rel.push(seg);
-    }
-    if rel.as_os_str().is_empty() {
-        rel.push("index.html");
-    }
-    let root = std::fs::canonicalize(deck).ok()?;
-    let full = std::fs::canonicalize(root.join(&rel)).ok()?;
-    (full.starts_with(&root) && full.is_file()).then_some(full)
-}
-
-fn content_type(p: &Path) -> &'static str {
-    match p.extension().and_then(|e| e.to_str()) {
-        Some("html") => "text/html; charset=utf-8",
-        Some("svg") => "image/svg+xml",
-        Some("json") => "application/json",
-        Some("png") => "image/png",
-        Some("pdf") => "application/pdf",
-        _ => "application/octet-stream",
-    }
-}
-
-fn respond(
-    stream: &mut TcpStream,
-    status: &str,
-    ctype: &str,
-    body: &[u8],
-    head: bool,
-) -> std::io::Result<()> {
-    write!(
-        stream,
-        "HTTP/1.1 {status}\r\nContent-Type: {ctype}\r\nContent-Length: {}\r\nCache-Control: no-store\r\nConnection: close\r\n\r\n",
-        body.len()
-    )?;
-    if !head {
-        stream.write_all(body)?;
-    }
-    stream.flush()
-}
-
-fn handle(mut stream: TcpStream, deck: &Path, version: &AtomicU64) -> std::io::Result<()> {
-    let mut reader = BufReader::new(stream.try_clone()?).take(16 * 1024);
-    let mut line = String::new();
-    reader.read_line(&mut line)?;
-    // Drain the headers.
-    loop {
-        let mut h = String::new();
-        if reader.read_line(&mut h)? == 0 || h == "\r\n" || h == "\n" {
-            break;
-        }
-    }
-    let mut parts = line.split_whitespace();
-    let (method, target) = (parts.next().unwrap_or(""), parts.next().unwrap_or(""));
-    let head = method == "HEAD";
-    if method != "GET" && !head {
-        return respond(
-            &mut stream,
-            "405 Method Not Allowed",
-            "text/plain",
-            b"GET only\n",
-            false,
-        );
-    }
-    if target.split('?').next() == Some("/__version") {
-        let v = version.load(Ordering::SeqCst).to_string();
-        return respond(&mut stream, "200 OK", "text/plain", v.as_bytes(), head);
-    }
-    let Some(file) = resolve(deck, target) else {
-        return respond(
-            &mut stream,
-            "404 Not Found",
-            "text/plain",
-            b"not found\n",
-            head,
-        );
-    };
-    let Ok(mut body) = std::fs::read(&file) else {
-        return respond(
-            &mut stream,
-            "404 Not Found",
-            "text/plain",
-            b"not found\n",
-            head,
-        );
-    };
-    if file.file_name().is_some_and(|n| n == "index.html") {
-        let script = reload_script(version.load(Ordering::SeqCst));
-        let text = String::from_utf8_lossy(&body);
-        // the deck's content security policy is extended by this script's
-        // hash (and a request to its own server)
-        body = crescendo_render::with_extra_script(&text, &script).into_bytes();
-    }
-    respond(&mut stream, "200 OK", content_type(&file), &body, head)
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use notify::event::{CreateKind, DataChange, MetadataKind, ModifyKind, RemoveKind, RenameMode};
 
+    /// Reads (what every build does to the story and its data) are no
+    /// change; anything that alters a file is.
     #[test]
-    fn requests_stay_inside_the_deck() {
-        let root = std::env::temp_dir().join(format!("crescendo-serve-{}", std::process::id()));
-        let deck = root.join("deck");
-        std::fs::create_dir_all(deck.join("sub")).unwrap();
-        std::fs::write(deck.join("index.html"), "x").unwrap();
-        std::fs::write(deck.join("sub/a.svg"), "x").unwrap();
-        std::fs::write(root.join("secret.txt"), "x").unwrap();
-        assert!(resolve(&deck, "/").is_some());
-        assert!(resolve(&deck, "/index.html?x=1").is_some());
-        assert!(resolve(&deck, "/sub/a.svg").is_some());
-        for bad in [
-            "/../secret.txt",
-            "/%2e%2e/secret.txt",
-            "/sub/../../secret.txt",
-            "/..%2fsecret.txt",
-            "//etc/passwd",
-            "/.hidden",
-            "x",
-            "/sub",
-            "/nope.svg",
+    fn only_events_that_alter_a_file_count() {
+        for read in [
+            EventKind::Access(AccessKind::Open(AccessMode::Any)),
+            EventKind::Access(AccessKind::Read),
+            EventKind::Access(AccessKind::Close(AccessMode::Read)),
+            EventKind::Access(AccessKind::Any),
         ] {
-            assert_eq!(resolve(&deck, bad), None, "{bad}");
+            assert!(!changes(&read), "{read:?}");
         }
-        let _ = std::fs::remove_dir_all(&root);
+        for change in [
+            EventKind::Access(AccessKind::Close(AccessMode::Write)),
+            EventKind::Create(CreateKind::File),
+            EventKind::Modify(ModifyKind::Data(DataChange::Any)),
+            EventKind::Modify(ModifyKind::Name(RenameMode::To)),
+            EventKind::Modify(ModifyKind::Metadata(MetadataKind::Any)),
+            EventKind::Remove(RemoveKind::File),
+        ] {
+            assert!(changes(&change), "{change:?}");
+        }
     }
 }

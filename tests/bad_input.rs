@@ -207,6 +207,35 @@ fn out_folder_that_is_not_a_deck_is_refused() {
     );
 }
 
+/// A folder whose deck.json is empty or not JSON is not a deck: the build
+/// refuses it and touches nothing (it used to delete every other file).
+#[test]
+fn out_folder_with_an_unreadable_manifest_is_refused() {
+    for (case, manifest) in [("empty", ""), ("text", "not json\n"), ("array", "[]")] {
+        let dir = scratch(&format!("refuse-bad-manifest-{case}"));
+        fs::write(dir.join("story.cresc"), GOOD_STORY).unwrap();
+        fs::write(dir.join("loans.csv"), GOOD_CSV).unwrap();
+        fs::create_dir_all(dir.join("v/sub")).unwrap();
+        fs::write(dir.join("v/deck.json"), manifest).unwrap();
+        fs::write(dir.join("v/important.txt"), "x").unwrap();
+        fs::write(dir.join("v/sub/more.txt"), "y").unwrap();
+        let out = crescendo(&dir, &["build", "story.cresc", "--out", "v"]);
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(4), "{case}: {err}");
+        assert!(err.contains("not a deck manifest"), "{case}: {err}");
+        assert_eq!(
+            fs::read_to_string(dir.join("v/deck.json")).unwrap(),
+            manifest
+        );
+        assert_eq!(
+            fs::read_to_string(dir.join("v/important.txt")).unwrap(),
+            "x"
+        );
+        assert_eq!(fs::read_to_string(dir.join("v/sub/more.txt")).unwrap(), "y");
+        assert_eq!(fs::read_dir(dir.join("v")).unwrap().count(), 3, "{case}");
+    }
+}
+
 #[test]
 fn missing_story_file() {
     let dir = scratch("no-story");

@@ -4,14 +4,12 @@
 mod common;
 
 use std::fs;
-use std::io::{BufRead, BufReader, Read, Write};
+use std::io::{Read, Write};
 use std::net::TcpStream;
 use std::path::{Path, PathBuf};
-use std::process::{Child, Command, Stdio};
-use std::sync::mpsc;
 use std::time::{Duration, Instant};
 
-use common::{crescendo, read_dir_files, root, scratch, stories};
+use common::{crescendo, read_dir_files, root, scratch, stories, Watch};
 
 /// Two data items, each read only by views (so both are streamed), and a
 /// third that a chart reads directly (so it is loaded).
@@ -267,62 +265,6 @@ fn editing_one_frame_redraws_only_it() {
     fs::write(dir.join("story.cresc"), story).unwrap();
     build(&dir, "deck", &[]);
     assert!(rebuilt(&dir, "deck").is_empty());
-}
-
-/// A running `crescendo watch` whose standard error is read line by line.
-struct Watch {
-    child: Child,
-    lines: mpsc::Receiver<String>,
-}
-
-impl Watch {
-    fn start(dir: &Path, args: &[&str]) -> Watch {
-        let mut child = Command::new(env!("CARGO_BIN_EXE_crescendo"))
-            .arg("watch")
-            .args(args)
-            .current_dir(dir)
-            .env("NO_COLOR", "1")
-            .stdin(Stdio::null())
-            .stdout(Stdio::null())
-            .stderr(Stdio::piped())
-            .spawn()
-            .expect("start watch");
-        let stderr = child.stderr.take().expect("stderr");
-        let (tx, lines) = mpsc::channel();
-        std::thread::spawn(move || {
-            for line in BufReader::new(stderr).lines().map_while(Result::ok) {
-                if tx.send(line).is_err() {
-                    break;
-                }
-            }
-        });
-        Watch { child, lines }
-    }
-
-    /// Wait (at most 60 s) for a line containing `text`; returns it.
-    fn wait_for(&self, text: &str) -> String {
-        let deadline = Instant::now() + Duration::from_secs(60);
-        let mut seen = Vec::new();
-        while Instant::now() < deadline {
-            if let Ok(line) = self.lines.recv_timeout(Duration::from_millis(200)) {
-                if line.contains(text) {
-                    return line;
-                }
-                seen.push(line);
-            }
-        }
-        panic!(
-            "no line with {text:?} within 60 s; saw:\n{}",
-            seen.join("\n")
-        );
-    }
-}
-
-impl Drop for Watch {
-    fn drop(&mut self) {
-        let _ = self.child.kill();
-        let _ = self.child.wait();
-    }
 }
 
 fn manifest(deck: &Path) -> String {

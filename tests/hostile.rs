@@ -111,7 +111,7 @@ fn every_hostile_case_has_its_declared_outcome() {
         .filter(|p| p.is_dir())
         .collect();
     cases.sort();
-    assert!(cases.len() >= 9, "{cases:?}");
+    assert!(cases.len() >= 10, "{cases:?}");
     for dir in cases {
         let case = dir.file_name().unwrap().to_string_lossy().into_owned();
         let (expect, shows) = expectation(&dir);
@@ -122,6 +122,16 @@ fn every_hostile_case_has_its_declared_outcome() {
         );
         let stderr = String::from_utf8_lossy(&run.stderr).into_owned();
         assert!(!stderr.contains("panicked"), "{case}: {stderr}");
+        // nothing from the story or its data reaches the terminal as a
+        // control character (escape sequences, a lone carriage return)
+        let raw: Vec<char> = stderr
+            .chars()
+            .filter(|&c| c.is_control() && c != '\n' && c != '\t')
+            .collect();
+        assert!(
+            raw.is_empty(),
+            "{case}: control characters {raw:?} in {stderr:?}"
+        );
         match expect.as_str() {
             "deck" => {
                 assert!(run.status.success(), "{case}: {stderr}");
@@ -260,4 +270,29 @@ fn every_limit_is_an_option_with_a_located_error() {
     let err = String::from_utf8_lossy(&run.stderr);
     assert!(err.contains("story.cresc` has"), "{err}");
     assert!(crescendo(&dir, &["check", "story.cresc"]).status.success());
+}
+
+/// `crescendo new` prints a profile of a CSV whose header and cells hold
+/// terminal escape sequences: it shows them, it does not send them.
+#[test]
+fn new_prints_no_terminal_escapes_from_the_data() {
+    let dir = scratch("new-escapes");
+    fs::write(
+        dir.join("t.csv"),
+        "branch\u{1b}]0;pwned\u{7},loans,note\u{1b}[2J\n\u{1b}[8mElm\u{9b}1m,120,x\n\"Quarry\r\",80,y\n",
+    )
+    .unwrap();
+    let run = crescendo(&dir, &["new", "t.csv"]);
+    let out = format!(
+        "{}{}",
+        String::from_utf8_lossy(&run.stdout),
+        String::from_utf8_lossy(&run.stderr)
+    );
+    let raw: Vec<char> = out
+        .chars()
+        .filter(|&c| c.is_control() && c != '\n')
+        .collect();
+    assert!(raw.is_empty(), "control characters {raw:?} in {out:?}");
+    assert!(out.contains("note\u{241b}[2J"), "{out}");
+    assert!(out.contains("branch\u{241b}]0;pwned\u{2407}"), "{out}");
 }

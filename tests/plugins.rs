@@ -7,6 +7,9 @@ mod common;
 
 use std::fs;
 use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::Arc;
 
 use common::{crescendo_with_plugins as crescendo, ensure_plugins, read_dir_files, root, scratch};
 
@@ -78,7 +81,10 @@ fn the_demo_story_draws_with_both_plugins() {
     // the slope chart's spotlighted line is drawn in the theme's accent
     assert!(svg.contains("#B4400A"), "focus role styled by the theme");
     assert!(svg.contains("Harbour Loop"));
-    let listing = crescendo(&root(), &["plugins", "stories/routes/routes.cresc"]);
+    let listing = crescendo(
+        &root(),
+        &["plugins", "stories/routes/routes.cresc", "--load-plugins"],
+    );
     let text = String::from_utf8_lossy(&listing.stdout);
     assert!(
         text.contains("slope: slope 0.1.0 (plugin ABI 1), forms: slope"),
@@ -273,4 +279,202 @@ fn no_plugins_refuses_every_plugin() {
     assert_eq!(run.status.code(), Some(1), "{err}");
     assert!(err.contains("plugins are refused (--no-plugins)"), "{err}");
     assert!(!dir.join("deck").exists());
+}
+
+/// Run crescendo in `dir` with extra environment variables (the marker
+/// library's `CRESCENDO_FAULT_MARKER`, a library search path).
+fn crescendo_env(dir: &Path, args: &[&str], env: &[(&str, &Path)]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_crescendo"))
+        .args(args)
+        .current_dir(dir)
+        .env("NO_COLOR", "1")
+        .envs(env.iter().map(|(k, v)| (*k, v.as_os_str())))
+        .output()
+        .expect("run crescendo")
+}
+
+/// Issue 15, item 1: the pin was checked on the file's bytes, then the
+/// library was loaded again by its path, so a library swapped in between
+/// ran unverified (70 of 300 runs). Another thread keeps renaming a good
+/// (pinned) and an evil library into place while `check` runs; the evil
+/// one's initialiser writes a marker file. Every run must either load the
+/// good library or refuse the evil one; the marker must never appear.
+#[test]
+fn a_pinned_plugin_swapped_while_it_loads_never_runs_other_code() {
+    let good = lib("crescendo_slope");
+    let evil = lib("crescendo_fault_marker");
+    let dir = story_with(
+        "pin-race",
+        Path::new("libp.so"),
+        "slope",
+        Some(&sha256(&good)),
+    );
+    fs::copy(&good, dir.join("good.so")).unwrap();
+    fs::copy(&evil, dir.join("evil.so")).unwrap();
+    fs::copy(&good, dir.join("libp.so")).unwrap();
+    let marker = dir.join("marker");
+    let stop = Arc::new(AtomicBool::new(false));
+    let swapper = {
+        let (dir, stop) = (dir.clone(), Arc::clone(&stop));
+        std::thread::spawn(move || {
+            let mut swaps = 0u64;
+            while !stop.load(Ordering::Relaxed) {
+                for (from, tmp) in [("evil.so", "tmp-evil"), ("good.so", "tmp-good")] {
+                    let _ = fs::remove_file(dir.join(tmp));
+                    fs::hard_link(dir.join(from), dir.join(tmp)).unwrap();
+                    fs::rename(dir.join(tmp), dir.join("libp.so")).unwrap();
+                    swaps += 1;
+                }
+            }
+            swaps
+        })
+    };
+    // the story named by its absolute path: the plugin's path has a `/`, so
+    // it is never searched for (item 4, below)
+    let story = dir.join("s.cresc");
+    let story = story.to_str().unwrap();
+    let (mut loaded, mut refused, mut ran) = (0, 0, 0);
+    for _ in 0..150 {
+        let run = crescendo_env(
+            &dir,
+            &["check", story],
+            &[("CRESCENDO_FAULT_MARKER", &marker)],
+        );
+        let err = String::from_utf8_lossy(&run.stderr);
+        assert!(!err.contains("panicked"), "{err}");
+        if err.contains("the plugin file's sha256 is") {
+            refused += 1;
+        } else {
+            loaded += 1;
+        }
+        if fs::remove_file(&marker).is_ok() {
+            ran += 1;
+        }
+    }
+    stop.store(true, Ordering::Relaxed);
+    let swaps = swapper.join().unwrap();
+    assert_eq!(
+        ran, 0,
+        "the unverified library ran in {ran} of 150 runs ({loaded} loaded, {refused} refused, {swaps} swaps)"
+    );
+    // the race was real: both libraries were met
+    assert!(
+        loaded > 0 && refused > 0,
+        "{loaded} loaded, {refused} refused"
+    );
+}
+
+/// Issue 15, item 4: `use plugin "libp.so"` beside a story was looked up on
+/// the system's library search path (the path had no `/`): it failed
+/// without one, and with `LD_LIBRARY_PATH` pointing elsewhere another
+/// library of that name ran while the pin, checked on the file beside the
+/// story, passed.
+#[test]
+fn a_plain_plugin_name_is_the_file_beside_the_story_never_a_search_path() {
+    let good = lib("crescendo_slope");
+    let dir = story_with(
+        "plain-name",
+        Path::new("libp.so"),
+        "slope",
+        Some(&sha256(&good)),
+    );
+    fs::copy(&good, dir.join("libp.so")).unwrap();
+    fs::create_dir(dir.join("elsewhere")).unwrap();
+    fs::copy(lib("crescendo_fault_marker"), dir.join("elsewhere/libp.so")).unwrap();
+    let marker = dir.join("marker");
+    let elsewhere = dir.join("elsewhere");
+    for args in [
+        &["check", "s.cresc"][..],
+        &["build", "s.cresc"],
+        &["plugins", "s.cresc", "--load-plugins"],
+    ] {
+        let run = crescendo_env(
+            &dir,
+            args,
+            &[
+                ("CRESCENDO_FAULT_MARKER", &marker),
+                ("LD_LIBRARY_PATH", &elsewhere),
+            ],
+        );
+        let (out, err) = (
+            String::from_utf8_lossy(&run.stdout),
+            String::from_utf8_lossy(&run.stderr),
+        );
+        assert!(
+            !marker.exists(),
+            "{args:?}: the library on LD_LIBRARY_PATH ran"
+        );
+        assert!(run.status.success(), "{args:?}: {err}");
+        if args[0] == "plugins" {
+            assert!(
+                out.contains("p: slope 0.1.0 (plugin ABI 1), forms: slope"),
+                "{out}"
+            );
+        }
+    }
+    // and without a search path, the plain name is found all the same
+    let run = crescendo(&dir, &["check", "s.cresc"]);
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+}
+
+/// `plugins` and `plan` only inspect a story: they check each plugin's
+/// path, file and pin without loading it (no plugin code runs), unless
+/// asked with `--load-plugins`; `check` loads (it validates the forms).
+#[test]
+fn listing_and_planning_run_no_plugin_code_unless_asked() {
+    let evil = lib("crescendo_fault_marker");
+    let dir = story_with("inspect", Path::new("evil.so"), "slope", None);
+    fs::copy(&evil, dir.join("evil.so")).unwrap();
+    let marker = dir.join("marker");
+    let env = [("CRESCENDO_FAULT_MARKER", marker.as_path())];
+    let story = dir.join("s.cresc");
+    let story = story.to_str().unwrap();
+    let run = crescendo_env(&dir, &["plugins", story], &env);
+    let out = String::from_utf8_lossy(&run.stdout);
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    assert!(!marker.exists(), "`plugins` ran the plugin's code");
+    assert!(out.contains("p: not loaded"), "{out}");
+    assert!(
+        out.contains(&format!("sha256 {} (not pinned)", sha256(&evil))),
+        "{out}"
+    );
+    let run = crescendo_env(&dir, &["plan", story], &env);
+    let plan = String::from_utf8_lossy(&run.stdout);
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    assert!(!marker.exists(), "`plan` ran the plugin's code");
+    assert!(
+        plan.contains("\"plugin_version\": \"(not loaded)\""),
+        "{plan}"
+    );
+    assert!(plan.contains("\"form\": \"slope\""), "{plan}");
+    for args in [
+        &["plugins", "s.cresc", "--load-plugins"][..],
+        &["plan", "s.cresc", "--load-plugins"],
+        &["check", "s.cresc"],
+    ] {
+        let run = crescendo_env(&dir, args, &env);
+        assert!(
+            fs::remove_file(&marker).is_ok(),
+            "{args:?} did not load the plugin"
+        );
+        // the marker library is no plugin: a located error, not a crash
+        let err = String::from_utf8_lossy(&run.stderr);
+        assert_eq!(run.status.code(), Some(1), "{args:?}: {err}");
+        assert!(
+            err.contains("no crescendo plugin entry point"),
+            "{args:?}: {err}"
+        );
+    }
 }

@@ -140,3 +140,41 @@ fn a_connection_string_given_as_an_option_is_not_echoed() {
     );
     assert!(String::from_utf8_lossy(&out.stderr).contains("--connection"));
 }
+
+/// A bare secret (a password or token, no `=` or `:` in it) given as the
+/// variable of `--connection` is not echoed as "the environment variable
+/// `…` is not set": a value that does not look like a variable name is
+/// refused without being repeated, by every command that takes the option.
+#[test]
+fn a_bare_secret_given_as_a_connection_variable_is_not_echoed() {
+    const BARE: &str = "S3cr3tPa55w0rd9f8e7d";
+    let dir = story_dir("secret-db-bare", "loans.csv");
+    let db_story = STORY.replace(
+        "data loans from \"DATA\"",
+        "data loans from table \"loans\" via LOANS_DB",
+    );
+    fs::write(dir.join("story.cresc"), db_story).unwrap();
+    let pasted = format!("loans={BARE}");
+    for command in ["build", "check", "plan"] {
+        let out = assert_secret_never_leaks(
+            &dir,
+            &[command, "story.cresc", "--connection", &pasted],
+            &[],
+            BARE,
+        );
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert!(err.contains("--connection"), "{command}: {err}");
+    }
+    // a name that looks like a variable is still named, so the user knows
+    // which one to set
+    let out = common::crescendo(
+        &dir,
+        &[
+            "check",
+            "story.cresc",
+            "--connection",
+            "loans=STAGING_LOANS_DB",
+        ],
+    );
+    assert!(String::from_utf8_lossy(&out.stderr).contains("`STAGING_LOANS_DB` is not set"));
+}

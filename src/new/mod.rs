@@ -29,7 +29,7 @@ mod story;
 use std::path::Path;
 use std::process::ExitCode;
 
-use crescendo_diag::{render, Diagnostic};
+use crescendo_diag::Diagnostic;
 
 use profile::{profile_file, summary};
 use shape::choose_shape;
@@ -45,50 +45,50 @@ pub fn run(data: &Path, out: Option<&Path>, force: bool, color: bool) -> ExitCod
             format!("{} exists; it was left as it is", story_path.display()),
         )
         .help("choose another file with `--out STORY`, or replace it with `--force`");
-        eprint!("{}", render(&[d], color));
+        crate::output::diagnostics(&[d], color);
         return ExitCode::from(1);
     }
     let (table, profile) = match profile_file(data) {
         Ok(p) => p,
         Err(d) => {
-            eprint!("{}", render(&[d], color));
+            crate::output::diagnostics(&[d], color);
             return ExitCode::from(1);
         }
     };
     let shape = match choose_shape(&profile) {
         Ok(s) => s,
         Err(message) => {
-            print!("{}", summary(&profile, None));
+            say_raw!("{}", summary(&profile, None));
             let d = Diagnostic::error("no-starter", message)
                 .help("a starter story needs a column of numbers with a plain name (letters, digits, `_`)");
-            eprint!("{}", render(&[d], color));
+            crate::output::diagnostics(&[d], color);
             return ExitCode::from(1);
         }
     };
     let data_rel = relative_data_path(data, &story_path);
     let story = write_story(&table, &profile, &shape, &data_rel);
-    print!("{}", summary(&profile, Some(&shape)));
+    say_raw!("{}", summary(&profile, Some(&shape)));
     if let Err(e) = std::fs::write(&story_path, story) {
-        eprintln!("error: cannot write {}: {e}", story_path.display());
+        tell!("error: cannot write {}: {e}", story_path.display());
         return ExitCode::from(4);
     }
-    println!("wrote {}", story_path.display());
+    say!("wrote {}", story_path.display());
     if data_rel.starts_with("../") || Path::new(&data_rel).is_absolute() {
         // a story reads only files in its own folder tree unless allowed
         let folder = data
             .parent()
             .filter(|d| !d.as_os_str().is_empty())
             .unwrap_or(Path::new("."));
-        println!(
+        say!(
             "note: the data is outside the story's folder; move it next to the story, or allow its folder:"
         );
-        println!(
+        say!(
             "next: crescendo build {} --allow-path {}",
             story_path.display(),
             folder.display()
         );
     } else {
-        println!("next: crescendo build {}", story_path.display());
+        say!("next: crescendo build {}", story_path.display());
     }
     ExitCode::SUCCESS
 }

@@ -2,8 +2,11 @@
 #![allow(dead_code)]
 
 use std::fs;
+use std::io::{BufRead, BufReader};
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+use std::process::{Child, Command, Output, Stdio};
+use std::sync::mpsc;
+use std::time::{Duration, Instant};
 
 /// The repository root.
 pub fn root() -> PathBuf {
@@ -109,6 +112,8 @@ pub fn ensure_plugins() -> &'static Path {
                 "crescendo-fault-oldabi",
                 "-p",
                 "crescendo-fault-noentry",
+                "-p",
+                "crescendo-fault-marker",
             ])
             .status()
             .expect("run cargo build for the plugins");
@@ -175,4 +180,74 @@ pub fn assert_secret_never_leaks(
         );
     }
     out
+}
+
+/// A running `crescendo watch` whose standard error is read line by line.
+pub struct Watch {
+    child: Child,
+    lines: mpsc::Receiver<String>,
+}
+
+impl Watch {
+    pub fn start(dir: &Path, args: &[&str]) -> Watch {
+        let mut child = Command::new(env!("CARGO_BIN_EXE_crescendo"))
+            .arg("watch")
+            .args(args)
+            .current_dir(dir)
+            .env("NO_COLOR", "1")
+            .stdin(Stdio::null())
+            .stdout(Stdio::null())
+            .stderr(Stdio::piped())
+            .spawn()
+            .expect("start watch");
+        let stderr = child.stderr.take().expect("stderr");
+        let (tx, lines) = mpsc::channel();
+        std::thread::spawn(move || {
+            for line in BufReader::new(stderr).lines().map_while(Result::ok) {
+                if tx.send(line).is_err() {
+                    break;
+                }
+            }
+        });
+        Watch { child, lines }
+    }
+
+    /// Wait (at most 60 s) for a line containing `text`; returns it.
+    pub fn wait_for(&self, text: &str) -> String {
+        let deadline = Instant::now() + Duration::from_secs(60);
+        let mut seen = Vec::new();
+        while Instant::now() < deadline {
+            if let Ok(line) = self.lines.recv_timeout(Duration::from_millis(200)) {
+                if line.contains(text) {
+                    return line;
+                }
+                seen.push(line);
+            }
+        }
+        panic!(
+            "no line with {text:?} within 60 s; saw:\n{}",
+            seen.join("\n")
+        );
+    }
+}
+
+impl Watch {
+    /// The lines printed during the next `time` (after those already read).
+    pub fn lines_during(&self, time: Duration) -> Vec<String> {
+        let deadline = Instant::now() + time;
+        let mut seen = Vec::new();
+        while let Some(left) = deadline.checked_duration_since(Instant::now()) {
+            if let Ok(line) = self.lines.recv_timeout(left) {
+                seen.push(line);
+            }
+        }
+        seen
+    }
+}
+
+impl Drop for Watch {
+    fn drop(&mut self) {
+        let _ = self.child.kill();
+        let _ = self.child.wait();
+    }
 }

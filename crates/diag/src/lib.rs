@@ -5,6 +5,7 @@
 //! `codespan-reporting`, which prints `file:line:column`, the offending line
 //! and a caret under the span.
 
+use std::borrow::Cow;
 use std::fmt;
 use std::ops::Range;
 use std::sync::Arc;
@@ -87,6 +88,84 @@ fn floor_char_boundary(s: &str, mut i: usize) -> usize {
         i -= 1;
     }
     i
+}
+
+/// The character a terminal would act on instead of showing, as one
+/// visible character: C0 controls and DEL become their Unicode Control
+/// Pictures (ESC is `␛`), C1 controls U+FFFD. Tab and line feed are kept,
+/// and so is a carriage return right before a line feed; a lone carriage
+/// return (which lets text overwrite its own line) is replaced too.
+fn visible(c: char, next: Option<char>) -> Option<char> {
+    match c {
+        '\t' | '\n' => None,
+        '\r' if next == Some('\n') => None,
+        '\u{0}'..='\u{1f}' => char::from_u32(0x2400 + c as u32),
+        '\u{7f}' => Some('\u{2421}'),
+        '\u{80}'..='\u{9f}' => Some('\u{fffd}'),
+        _ => None,
+    }
+}
+
+/// `text` made safe to print on a terminal: no escape sequence in a story,
+/// its data or a plugin's answer can move the cursor, retitle the window or
+/// clear the screen. Each control character becomes one visible character
+/// (see [`visible`]), so columns and carets stay where they were. Every
+/// diagnostic is rendered through it, and the command passes everything
+/// else it prints through it too.
+pub fn terminal_safe(text: &str) -> Cow<'_, str> {
+    let mut chars = text.chars().peekable();
+    let mut out: Option<String> = None;
+    let mut at = 0;
+    while let Some(c) = chars.next() {
+        match visible(c, chars.peek().copied()) {
+            Some(v) => out.get_or_insert_with(|| text[..at].to_string()).push(v),
+            None => {
+                if let Some(o) = out.as_mut() {
+                    o.push(c);
+                }
+            }
+        }
+        at += c.len_utf8();
+    }
+    out.map_or(Cow::Borrowed(text), Cow::Owned)
+}
+
+/// A source as it is shown on a terminal ([`terminal_safe`]), with what
+/// maps byte offsets of the original text to offsets in the shown one.
+struct Shown {
+    text: String,
+    /// (byte offset of a replaced character in the original, total bytes
+    /// added by replacements up to and including it), in order.
+    shifts: Vec<(usize, usize)>,
+}
+
+impl Shown {
+    fn of(text: &str) -> Shown {
+        let mut shown = String::with_capacity(text.len());
+        let mut shifts = Vec::new();
+        let mut added = 0;
+        let mut chars = text.char_indices().peekable();
+        while let Some((i, c)) = chars.next() {
+            match visible(c, chars.peek().map(|&(_, n)| n)) {
+                Some(v) => {
+                    shown.push(v);
+                    added += v.len_utf8() - c.len_utf8();
+                    shifts.push((i, added));
+                }
+                None => shown.push(c),
+            }
+        }
+        Shown {
+            text: shown,
+            shifts,
+        }
+    }
+
+    /// The offset in the shown text of byte `offset` of the original.
+    fn offset(&self, offset: usize) -> usize {
+        let before = self.shifts.partition_point(|&(at, _)| at < offset);
+        offset + before.checked_sub(1).map_or(0, |i| self.shifts[i].1)
+    }
 }
 
 /// A span in a source, with a short label printed under the caret.
@@ -198,6 +277,8 @@ pub fn has_errors(diags: &[Diagnostic]) -> bool {
 /// The sources of one render call, indexed by position.
 struct SourceSet {
     sources: Vec<Arc<Source>>,
+    /// Each source's text as shown ([`terminal_safe`]), and its line starts.
+    shown: Vec<Shown>,
     starts: Vec<Vec<usize>>,
 }
 
@@ -210,26 +291,39 @@ impl SourceSet {
         {
             return i;
         }
-        self.starts.push(s.line_starts());
+        let shown = Shown::of(&s.text);
+        self.starts.push(
+            std::iter::once(0)
+                .chain(shown.text.match_indices('\n').map(|(i, _)| i + 1))
+                .collect(),
+        );
+        self.shown.push(shown);
         self.sources.push(Arc::clone(s));
         self.sources.len() - 1
+    }
+
+    /// `span` of source `id`, clamped to its text, in shown offsets.
+    fn span(&self, id: usize, span: &Range<usize>) -> Range<usize> {
+        let clamped = clamp_span(&self.sources[id], span);
+        let shown = &self.shown[id];
+        shown.offset(clamped.start)..shown.offset(clamped.end)
     }
 }
 
 impl<'a> Files<'a> for SourceSet {
     type FileId = usize;
-    type Name = &'a str;
+    type Name = Cow<'a, str>;
     type Source = &'a str;
 
-    fn name(&'a self, id: usize) -> Result<&'a str, FilesError> {
+    fn name(&'a self, id: usize) -> Result<Cow<'a, str>, FilesError> {
         self.sources
             .get(id)
-            .map(|s| s.name.as_str())
+            .map(|s| terminal_safe(&s.name))
             .ok_or(FilesError::FileMissing)
     }
 
     fn source(&'a self, id: usize) -> Result<&'a str, FilesError> {
-        self.sources
+        self.shown
             .get(id)
             .map(|s| s.text.as_str())
             .ok_or(FilesError::FileMissing)
@@ -249,7 +343,7 @@ impl<'a> Files<'a> for SourceSet {
     }
 
     fn line_range(&'a self, id: usize, line_index: usize) -> Result<Range<usize>, FilesError> {
-        let s = self.sources.get(id).ok_or(FilesError::FileMissing)?;
+        let s = self.shown.get(id).ok_or(FilesError::FileMissing)?;
         let starts = &self.starts[id];
         let start = *starts.get(line_index).ok_or(FilesError::LineTooLarge {
             given: line_index,
@@ -271,8 +365,10 @@ fn clamp_span(source: &Source, span: &Range<usize>) -> Range<usize> {
 pub fn render(diags: &[Diagnostic], color: bool) -> String {
     let mut set = SourceSet {
         sources: Vec::new(),
+        shown: Vec::new(),
         starts: Vec::new(),
     };
+    let safe = |t: &str| terminal_safe(t).into_owned();
     let mut converted = Vec::with_capacity(diags.len());
     for d in diags {
         let mut cd = match d.severity {
@@ -280,24 +376,21 @@ pub fn render(diags: &[Diagnostic], color: bool) -> String {
             Severity::Warning => cs::Diagnostic::warning(),
             Severity::Advice => cs::Diagnostic::note(),
         }
-        .with_message(&d.message)
+        .with_message(safe(&d.message))
         .with_code(d.code);
         let mut labels = Vec::new();
         if let Some(p) = &d.primary {
             let id = set.id_of(&p.source);
-            labels.push(
-                cs::Label::primary(id, clamp_span(&p.source, &p.span)).with_message(&p.label),
-            );
+            labels.push(cs::Label::primary(id, set.span(id, &p.span)).with_message(safe(&p.label)));
         }
         for s in &d.secondary {
             let id = set.id_of(&s.source);
-            labels.push(
-                cs::Label::secondary(id, clamp_span(&s.source, &s.span)).with_message(&s.label),
-            );
+            labels
+                .push(cs::Label::secondary(id, set.span(id, &s.span)).with_message(safe(&s.label)));
         }
-        let mut notes = d.notes.clone();
+        let mut notes: Vec<String> = d.notes.iter().map(|n| safe(n)).collect();
         if let Some(h) = &d.help {
-            notes.push(format!("help: {h}"));
+            notes.push(format!("help: {}", safe(h)));
         }
         cd = cd.with_labels(labels).with_notes(notes);
         converted.push(cd);
@@ -378,6 +471,56 @@ mod tests {
         assert_eq!(closest("spotlite", words), Some("spotlight"));
         assert_eq!(closest("shwo", words), Some("show"));
         assert_eq!(closest("banana", words), None);
+    }
+
+    #[test]
+    fn terminal_safe_shows_control_characters_one_for_one() {
+        assert_eq!(
+            terminal_safe("plain, é, \t and\r\n"),
+            "plain, é, \t and\r\n"
+        );
+        assert!(matches!(terminal_safe("plain"), Cow::Borrowed(_)));
+        assert_eq!(
+            terminal_safe("\u{1b}]0;pwned\u{7}\u{1b}[2J\u{9b}31m\u{7f}a\rb\u{0}"),
+            "\u{241b}]0;pwned\u{2407}\u{241b}[2J\u{fffd}31m\u{2421}a\u{240d}b\u{2400}"
+        );
+    }
+
+    /// A CSV header cell that retitles the terminal and clears the screen
+    /// (issue 15, item 14): the rendered error holds no control character,
+    /// and the caret still sits under the offending cell.
+    #[test]
+    fn escape_sequences_in_sources_and_messages_are_not_rendered_raw() {
+        let cell = "\u{1b}]0;owned\u{7}\u{1b}[2J";
+        let s = Source::excerpt("d\u{1b}[31m.csv", format!("{cell},oops,3\n"), 7);
+        let start = cell.len() + 1;
+        let d = Diagnostic::error("bad-number", format!("`{cell}` is not a number"))
+            .at(&s, start..start + 4, format!("in {cell}"))
+            .note(format!("note {cell}"))
+            .help(format!("help {cell}"));
+        for color in [false, true] {
+            let out = render(std::slice::from_ref(&d), color);
+            let controls: Vec<char> = out
+                .chars()
+                .filter(|&c| c.is_control() && c != '\n' && !(color && c == '\u{1b}'))
+                .collect();
+            assert!(controls.is_empty(), "{controls:?} in {out:?}");
+            if !color {
+                assert!(!out.contains('\u{1b}'), "{out:?}");
+                assert!(out.contains("d\u{241b}[31m.csv:7:"), "{out}");
+                assert!(
+                    out.contains("\u{241b}]0;owned\u{2407}\u{241b}[2J,oops,3"),
+                    "{out}"
+                );
+                // the caret is under `oops`: same column as in the line
+                let line = out.lines().find(|l| l.contains(",oops,")).unwrap();
+                let caret = out.lines().find(|l| l.contains("^^^^")).unwrap();
+                let oops = line.find(",oops").map(|b| line[..b].chars().count() + 1);
+                assert_eq!(oops, caret.chars().position(|c| c == '^'), "{out}");
+                assert!(out.contains(".csv:7:16"), "{out}");
+            }
+        }
+        assert_eq!(d.location(), Some((s.name.clone(), 7, 16)));
     }
 
     #[test]

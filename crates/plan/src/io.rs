@@ -13,7 +13,7 @@ use std::time::Duration;
 
 use crescendo_data::stream::{Chunks, ScanFailure, ScanInput, ScanOutput};
 use crescendo_data::{Columns, CsvSpec, LoadError, Probe, Table};
-use crescendo_plugin::host::{Plugin, PluginError};
+use crescendo_plugin::host::{Plugin, PluginError, Verified};
 use crescendo_sql::client::Row;
 use crescendo_sql::{Session, SessionError};
 
@@ -49,8 +49,11 @@ pub trait Io {
     /// One streaming pass over a CSV file (see `crescendo_data::stream`).
     fn scan_csv(&self, input: &ScanInput) -> Result<ScanOutput, ScanFailure>;
 
-    /// Load a plugin library, checking its pin.
-    fn load_plugin(&mut self, path: &Path, pin: Option<&str>) -> Result<Plugin, PluginError>;
+    /// A plugin library the story names: opened once, the opened file's
+    /// real path confined like the story's other files, its bytes hashed
+    /// and checked against the pin; then exactly those bytes are loaded, or
+    /// (when only inspecting) nothing is, so no plugin code runs.
+    fn load_plugin(&mut self, file: &PluginFile) -> Result<Plugin, PluginError>;
 
     /// An environment variable (a database connection string).
     fn env_var(&self, name: &str) -> Option<String>;
@@ -64,6 +67,21 @@ pub trait Io {
 
     /// The view cache, when the build keeps one.
     fn cache(&mut self) -> Option<&mut dyn ViewCache>;
+}
+
+/// A plugin library a story names, and how far to go with it.
+#[derive(Clone, Copy, Debug)]
+pub struct PluginFile<'a> {
+    /// The story's folder: the opened file must really lie where a story
+    /// there may read (see `paths.rs`).
+    pub dir: &'a Path,
+    /// The path the story wrote, joined to its folder.
+    pub path: &'a Path,
+    /// The story's pin (SHA-256, hex), if any.
+    pub pin: Option<&'a str>,
+    /// Check the file and its pin but load nothing
+    /// (`Options::inspect_plugins`).
+    pub inspect: bool,
 }
 
 /// A read-only database session (see `crescendo_sql::Session`).
@@ -165,8 +183,14 @@ impl Io for Disk {
         crescendo_data::stream::scan(input, &Chunks::Auto)
     }
 
-    fn load_plugin(&mut self, path: &Path, pin: Option<&str>) -> Result<Plugin, PluginError> {
-        Plugin::load(path, pin)
+    fn load_plugin(&mut self, file: &PluginFile) -> Result<Plugin, PluginError> {
+        let inside = |real: &Path| self.confine(file.dir, &real.to_string_lossy()).is_ok();
+        let verified = Verified::read(file.path, file.pin, &inside)?;
+        if file.inspect {
+            Ok(Plugin::inspected(verified))
+        } else {
+            Plugin::load_verified(verified)
+        }
     }
 
     fn env_var(&self, name: &str) -> Option<String> {

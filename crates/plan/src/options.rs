@@ -12,6 +12,11 @@ pub struct Options {
     pub data: BTreeMap<String, PathBuf>,
     /// `--no-plugins`: refuse every `use plugin`.
     pub no_plugins: bool,
+    /// Check each plugin's path, file and pin, but load none, so no plugin
+    /// code runs (`plan` and `plugins` without `--load-plugins`). A frame a
+    /// plugin draws is planned with the form the story names (if any), the
+    /// story's name for the plugin and the version `(not loaded)`.
+    pub inspect_plugins: bool,
     /// How database sources are reached (`--connection`, the statement
     /// timeout).
     pub database: DbOptions,

@@ -9,6 +9,7 @@ use crescendo_lang::ast::PluginDecl;
 use crescendo_plugin::host::{Plugin, PluginError};
 
 use crate::context::{Ctx, Outcome};
+use crate::io::PluginFile;
 
 /// The plugins a story loaded, by the name the story gave them.
 pub type Plugins = BTreeMap<String, Arc<Plugin>>;
@@ -38,10 +39,13 @@ pub(crate) fn use_plugin(cx: &mut Ctx, plugins: &mut Plugins, d: &PluginDecl) ->
             .help("build without --no-plugins if you trust this plugin");
         return Err(cx.report(r));
     }
-    match cx
-        .io
-        .load_plugin(&path, d.pin.as_ref().map(|p| p.value.as_str()))
-    {
+    let file = PluginFile {
+        dir: cx.dir,
+        path: &path,
+        pin: d.pin.as_ref().map(|p| p.value.as_str()),
+        inspect: cx.options.inspect_plugins,
+    };
+    match cx.io.load_plugin(&file) {
         Ok(p) => {
             plugins.insert(d.alias.name.clone(), Arc::new(p));
             Ok(())

@@ -9,7 +9,7 @@ use std::time::Duration;
 use crescendo_data::stream::{ScanFailure, ScanInput, ScanOutput};
 use crescendo_data::{Columns, CsvSpec, LoadError, Probe, Table};
 use crescendo_diag::Source;
-use crescendo_plan::io::{Database, Disk, Io, ViewCache};
+use crescendo_plan::io::{Database, Disk, Io, PluginFile, ViewCache};
 use crescendo_plan::{plan_story_with, Options};
 use crescendo_plugin::host::{Plugin, PluginError};
 use crescendo_sql::SessionError;
@@ -55,7 +55,7 @@ impl Io for Memory {
     fn scan_csv(&self, input: &ScanInput) -> Result<ScanOutput, ScanFailure> {
         self.disk.scan_csv(input)
     }
-    fn load_plugin(&mut self, _: &Path, _: Option<&str>) -> Result<Plugin, PluginError> {
+    fn load_plugin(&mut self, _: &PluginFile) -> Result<Plugin, PluginError> {
         Err(PluginError::Unreadable("no plugins here".into()))
     }
     fn env_var(&self, _: &str) -> Option<String> {

@@ -12,9 +12,8 @@ use std::ffi::c_void;
 use std::os::raw::c_char;
 use std::path::{Path, PathBuf};
 
-use sha2::{Digest, Sha256};
-
 use crate::abi::{Descriptor, OutBuffer, ABI_VERSION, ENTRY_SYMBOL};
+pub use crate::file::{Private, Verified};
 use crate::message::{Area, DataDomain, Drawing, Primitive, Pt, Reply, Request, Space};
 
 /// What a loaded plugin says about itself.
@@ -35,6 +34,9 @@ pub struct PluginInfo {
 pub enum PluginError {
     /// The file is missing or unreadable.
     Unreadable(String),
+    /// The opened file lies outside the folders plugins may be loaded from
+    /// (its real path).
+    Outside(String),
     /// The file's SHA-256 differs from the pin in the story.
     ChecksumMismatch { expected: String, actual: String },
     /// The file is not a loadable shared library.
@@ -60,6 +62,10 @@ impl std::fmt::Display for PluginError {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
             PluginError::Unreadable(e) => write!(f, "cannot read the plugin file: {e}"),
+            PluginError::Outside(p) => write!(
+                f,
+                "the opened file is `{p}`, outside the folders the story may load plugins from"
+            ),
             PluginError::ChecksumMismatch { expected, actual } => {
                 write!(f, "the plugin file's sha256 is {actual}, but the story pins {expected}")
             }
@@ -89,10 +95,50 @@ pub struct Validated {
 /// the function pointers below point into it.
 pub struct Plugin {
     info: PluginInfo,
-    render_fn: RenderFn,
-    free_fn: FreeFn,
+    /// Where the library file really lies (absolute, links resolved).
+    real_path: PathBuf,
+    /// Whether the story pinned its SHA-256 (the pin matched).
+    pinned: bool,
+    /// The render and free functions; `None` for a plugin only inspected.
+    calls: Option<(RenderFn, FreeFn)>,
     /// Declared last so it is dropped (unloaded) after everything else.
-    _library: libloading::Library,
+    _loaded: Option<Loaded>,
+}
+
+/// A library loaded from a private copy of its verified bytes.
+struct Loaded {
+    library: Option<libloading::Library>,
+    copy: Option<Private>,
+}
+
+impl Drop for Loaded {
+    /// Unload the library, then drop its private copy, unless the library
+    /// stayed mapped (a library that registered thread-local destructors
+    /// cannot be unloaded): then the copy is kept open for the life of the
+    /// process, so its path and file are never reused by another copy,
+    /// which the system loader would take for the library already loaded.
+    fn drop(&mut self) {
+        drop(self.library.take());
+        if let Some(copy) = self.copy.take() {
+            if still_mapped(copy.path()) {
+                std::mem::forget(copy);
+            }
+        }
+    }
+}
+
+/// Is the library loaded from `path` still mapped in this process?
+fn still_mapped(path: &Path) -> bool {
+    // SAFETY: with RTLD_NOLOAD nothing is loaded and no initialiser runs;
+    // the handle, if any, only raises the reference count of a library that
+    // is already mapped, and dropping it lowers it again.
+    unsafe {
+        libloading::os::unix::Library::open(
+            Some(path),
+            libloading::os::unix::RTLD_LAZY | libc::RTLD_NOLOAD,
+        )
+    }
+    .is_ok()
 }
 
 impl std::fmt::Debug for Plugin {
@@ -121,47 +167,84 @@ pub const MAX_POINTS: usize = 200_000;
 pub const MAX_TEXT_CHARS: usize = 300;
 /// The longest description, in characters.
 pub const MAX_DESCRIPTION_CHARS: usize = 2_000;
+/// The name an inspected, unloaded plugin reports.
+pub const NOT_LOADED: &str = "(not loaded)";
 /// The longest error message passed on to the user, in characters.
 const MAX_ERROR_CHARS: usize = 2_000;
 /// How far outside the plot area a point may lie (rounding), in pixels.
 const SLACK: f64 = 0.5;
 
 impl Plugin {
-    /// Load the library at `path`; `pin` is an expected SHA-256 (hex).
-    ///
-    /// The file is hashed before anything is loaded, so a pinned plugin that
-    /// changed is refused without running any of its code. Loading a library
-    /// runs its initialisers: only load plugins you would run as programs.
+    /// Load the library at `path`; `pin` is an expected SHA-256 (hex). See
+    /// [`Plugin::load_verified`]; callers that confine plugins to some
+    /// folders read the file with [`Verified::read`] first.
     pub fn load(path: &Path, pin: Option<&str>) -> Result<Plugin, PluginError> {
-        let bytes = std::fs::read(path)
-            .map_err(|e| PluginError::Unreadable(format!("{}: {e}", path.display())))?;
-        let sha256 = hex(&Sha256::digest(&bytes));
-        let elf = check_elf(&bytes);
-        drop(bytes);
-        if let Some(pin) = pin {
-            let expected = pin.trim().to_ascii_lowercase();
-            if expected != sha256 {
-                return Err(PluginError::ChecksumMismatch {
-                    expected,
-                    actual: sha256,
-                });
-            }
+        Plugin::load_verified(Verified::read(path, pin, &|_| true)?)
+    }
+
+    /// A plugin that was read and checked (path, pin, ELF headers) but not
+    /// loaded, so none of its code ran: what listing and planning commands
+    /// use unless asked to load. Its name, version and forms are unknown
+    /// (the name reads `(not loaded)`); it cannot draw.
+    pub fn inspected(verified: Verified) -> Plugin {
+        Plugin {
+            info: PluginInfo {
+                name: NOT_LOADED.into(),
+                version: String::new(),
+                abi_version: ABI_VERSION,
+                forms: Vec::new(),
+                path: verified.path,
+                sha256: verified.sha256,
+            },
+            real_path: verified.real_path,
+            pinned: verified.pin.is_some(),
+            calls: None,
+            _loaded: None,
         }
+    }
 
-        // A truncated ELF file makes the system loader map pages past the end
-        // of the file, and touching them kills the process (SIGBUS): refuse
-        // such files before the loader sees them.
-        elf.map_err(PluginError::NotALibrary)?;
+    /// Whether the library was loaded (its code ran), or only inspected.
+    pub fn is_loaded(&self) -> bool {
+        self.calls.is_some()
+    }
 
+    /// Where the library file really lies (absolute, links resolved).
+    pub fn real_path(&self) -> &Path {
+        &self.real_path
+    }
+
+    /// Whether the story pinned the library's SHA-256 (and the pin matched).
+    pub fn pinned(&self) -> bool {
+        self.pinned
+    }
+
+    /// Load exactly the bytes that were read and hashed (pin checked) by
+    /// [`Verified::read`], from a private copy nobody can change: what runs
+    /// is what was hashed, and no library search path takes part.
+    ///
+    /// Loading a library runs its initialisers: only load plugins you would
+    /// run as programs.
+    pub fn load_verified(verified: Verified) -> Result<Plugin, PluginError> {
+        let copy = Private::of(&verified).map_err(|e| {
+            PluginError::NotALibrary(format!("cannot make a private copy to load: {e}"))
+        })?;
+
+        let shown = copy.path().display().to_string();
+        let given = verified.path.display().to_string();
+        let mut loaded = Loaded {
+            library: None,
+            copy: Some(copy),
+        };
         // SAFETY: loading a shared library runs its initialisers, which is
         // arbitrary native code; Rust cannot check it. That is the documented
         // trust model of plugins: the story names the file explicitly (and may
-        // pin its hash, checked above), and the user trusts it like a
-        // program. The file could change between hashing and loading; a pin
-        // protects against accidents, not against an attacker who can write
-        // the plugin's folder.
-        let library = unsafe { libloading::Library::new(path) }
-            .map_err(|e| PluginError::NotALibrary(e.to_string()))?;
+        // pin its hash, checked on the very bytes loaded here), and the user
+        // trusts it like a program. The path is absolute and names our
+        // private, unchangeable copy. From here on, dropping `loaded`
+        // unloads the library before its copy.
+        let library = unsafe { libloading::Library::new(&shown) }
+            .map_err(|e| PluginError::NotALibrary(e.to_string().replace(&shown, &given)))?;
+        let library = loaded.library.insert(library);
 
         // SAFETY: we ask for the symbol as a plain data pointer, which is
         // sound for any symbol: we only read its address, and check it for
@@ -188,14 +271,15 @@ impl Plugin {
             version: read.version,
             abi_version: ABI_VERSION,
             forms: read.forms,
-            path: path.to_path_buf(),
-            sha256,
+            path: verified.path,
+            sha256: verified.sha256,
         };
         Ok(Plugin {
             info,
-            render_fn: read.render,
-            free_fn: read.free,
-            _library: library,
+            real_path: verified.real_path,
+            pinned: verified.pin.is_some(),
+            calls: Some((read.render, read.free)),
+            _loaded: Some(loaded),
         })
     }
 
@@ -228,7 +312,13 @@ impl Plugin {
             len: 0,
             cap: 0,
         };
-        let code = (self.render_fn)(encoded.as_ptr(), encoded.len(), &mut out);
+        let Some((render_fn, free_fn)) = self.calls else {
+            return Err(PluginError::Failed(format!(
+                "plugin `{}` was only inspected, not loaded",
+                self.info.path.display()
+            )));
+        };
+        let code = render_fn(encoded.as_ptr(), encoded.len(), &mut out);
         if code != 0 {
             // The plugin promises nothing about `out` in this case; leaking a
             // buffer it may have written is safer than freeing garbage.
@@ -236,40 +326,40 @@ impl Plugin {
                 "its render function gave up with code {code} (it could not even write an answer)"
             )));
         }
-        let bytes = self.take(out)?;
+        let bytes = take(out, free_fn)?;
         check_reply(&bytes, request.area)
     }
+}
 
-    /// Copy the plugin's answer out of its buffer, then hand the buffer back
-    /// to the plugin's `free`.
-    fn take(&self, out: OutBuffer) -> Result<Vec<u8>, PluginError> {
-        if out.ptr.is_null() {
-            return Err(PluginError::Malformed(
-                "the plugin returned no answer (a null buffer)".into(),
-            ));
-        }
-        if out.len > out.cap {
-            // Not a buffer `free` could rebuild: leak it rather than risk it.
-            return Err(PluginError::Malformed(format!(
-                "the plugin returned a buffer of {} bytes with a capacity of {}",
-                out.len, out.cap
-            )));
-        }
-        let result = if out.len > MAX_REPLY_BYTES {
-            Err(PluginError::Invalid(format!(
-                "the answer is {} bytes; at most {MAX_REPLY_BYTES} are accepted",
-                out.len
-            )))
-        } else {
-            // SAFETY: the plugin handed over `len` initialised bytes at `ptr`
-            // (non-null, u8 needs no alignment, `len` is at most 8 MiB so it
-            // fits in isize); the buffer stays valid until we call `free`,
-            // which happens only after this copy.
-            Ok(unsafe { std::slice::from_raw_parts(out.ptr, out.len) }.to_vec())
-        };
-        (self.free_fn)(out);
-        result
+/// Copy the plugin's answer out of its buffer, then hand the buffer back to
+/// the plugin's `free`.
+fn take(out: OutBuffer, free_fn: FreeFn) -> Result<Vec<u8>, PluginError> {
+    if out.ptr.is_null() {
+        return Err(PluginError::Malformed(
+            "the plugin returned no answer (a null buffer)".into(),
+        ));
     }
+    if out.len > out.cap {
+        // Not a buffer `free` could rebuild: leak it rather than risk it.
+        return Err(PluginError::Malformed(format!(
+            "the plugin returned a buffer of {} bytes with a capacity of {}",
+            out.len, out.cap
+        )));
+    }
+    let result = if out.len > MAX_REPLY_BYTES {
+        Err(PluginError::Invalid(format!(
+            "the answer is {} bytes; at most {MAX_REPLY_BYTES} are accepted",
+            out.len
+        )))
+    } else {
+        // SAFETY: the plugin handed over `len` initialised bytes at `ptr`
+        // (non-null, u8 needs no alignment, `len` is at most 8 MiB so it
+        // fits in isize); the buffer stays valid until we call `free`,
+        // which happens only after this copy.
+        Ok(unsafe { std::slice::from_raw_parts(out.ptr, out.len) }.to_vec())
+    };
+    free_fn(out);
+    result
 }
 
 /// What `read_descriptor` copies out of a descriptor.
@@ -411,90 +501,6 @@ unsafe fn read_name(p: *const c_char, what: &str) -> Result<String, PluginError>
         return Err(PluginError::BadDescriptor(format!("its {what} is empty")));
     }
     Ok(s)
-}
-
-/// Check that an ELF file's header, program headers, the file ranges of its
-/// segments and its section header table all lie within the file. Files that
-/// are not ELF are left to the system loader (which refuses them cleanly).
-fn check_elf(bytes: &[u8]) -> Result<(), String> {
-    if bytes.get(..4) != Some(b"\x7fELF".as_slice()) {
-        return Ok(());
-    }
-    let short = || "the file is truncated (it ends inside its ELF headers)".to_string();
-    let wide = match bytes.get(4) {
-        Some(1) => false,
-        Some(2) => true,
-        _ => return Err("the ELF file has an unknown class".into()),
-    };
-    let big = match bytes.get(5) {
-        Some(1) => false,
-        Some(2) => true,
-        _ => return Err("the ELF file has an unknown byte order".into()),
-    };
-    let uint = |at: usize, size: usize| -> Option<u64> {
-        let b = bytes.get(at..at.checked_add(size)?)?;
-        let mut v: u64 = 0;
-        for k in 0..size {
-            let byte = if big { b[k] } else { b[size - 1 - k] };
-            v = (v << 8) | u64::from(byte);
-        }
-        Some(v)
-    };
-    // Offsets of e_phoff, e_shoff, e_phentsize, e_phnum, e_shentsize,
-    // e_shnum; the width of an address; the smallest program header; and the
-    // offsets of p_offset and p_filesz in a program header.
-    let (phoff, shoff, phentsize, phnum, shentsize, shnum, addr, ph_min, p_offset, p_filesz) =
-        if wide {
-            (0x20, 0x28, 0x36, 0x38, 0x3a, 0x3c, 8, 56, 0x08, 0x20)
-        } else {
-            (0x1c, 0x20, 0x2a, 0x2c, 0x2e, 0x30, 4, 32, 0x04, 0x10)
-        };
-    let field = |at: usize, size: usize| uint(at, size).ok_or_else(short);
-    let len = bytes.len() as u64;
-    let table_fits = |off: u64, entsize: u64, num: u64| {
-        entsize
-            .checked_mul(num)
-            .and_then(|size| off.checked_add(size))
-            .is_some_and(|end| end <= len)
-    };
-    let (ph_off, ph_size, ph_num) = (field(phoff, addr)?, field(phentsize, 2)?, field(phnum, 2)?);
-    if ph_num > 0 && ph_size < ph_min {
-        return Err("the ELF file's program headers are too small".into());
-    }
-    if !table_fits(ph_off, ph_size, ph_num) {
-        return Err(short());
-    }
-    for i in 0..ph_num {
-        let base = ph_off + i * ph_size;
-        let at = |rel: usize| {
-            usize::try_from(base)
-                .ok()
-                .and_then(|b| b.checked_add(rel))
-                .ok_or_else(short)
-        };
-        let (offset, size) = (field(at(p_offset)?, addr)?, field(at(p_filesz)?, addr)?);
-        if offset.checked_add(size).is_none_or(|end| end > len) {
-            return Err(format!(
-                "the file is truncated: a segment needs {} bytes at offset {offset}, but the file has {len}",
-                size
-            ));
-        }
-    }
-    let (sh_off, sh_size, sh_num) = (field(shoff, addr)?, field(shentsize, 2)?, field(shnum, 2)?);
-    if sh_off != 0 && !table_fits(sh_off, sh_size, sh_num) {
-        return Err(format!(
-            "the file is truncated: its section table ends past its {len} bytes"
-        ));
-    }
-    Ok(())
-}
-
-fn hex(bytes: &[u8]) -> String {
-    let mut s = String::with_capacity(bytes.len() * 2);
-    for b in bytes {
-        s.push_str(&format!("{b:02x}"));
-    }
-    s
 }
 
 /// At most `max` characters of `s`, with an ellipsis when cut.
@@ -996,10 +1002,44 @@ mod tests {
     }
 
     #[test]
-    fn hex_and_clip() {
-        assert_eq!(hex(&[0, 1, 0xab, 0xff]), "0001abff");
+    fn clip_cuts_with_an_ellipsis() {
         assert_eq!(clip("abcdef", 3), "abc…");
         assert_eq!(clip("abc", 3), "abc");
+    }
+
+    /// A library that stays mapped after its plugin is dropped keeps its
+    /// private copy open, so its `/proc/self/fd/N` name and its file are
+    /// never reused for another library (which the system loader would take
+    /// for this one); a library that was unloaded lets its copy go. libm
+    /// stands in for a plugin (any shared library does; its initialisers
+    /// are harmless); a second handle keeps it mapped.
+    #[cfg(target_os = "linux")]
+    #[test]
+    fn a_library_that_stays_mapped_keeps_its_private_copy() {
+        use std::os::unix::fs::MetadataExt as _;
+        let maps = std::fs::read_to_string("/proc/self/maps").unwrap();
+        let libc = maps
+            .lines()
+            .filter_map(|l| l.split_whitespace().nth(5))
+            .find(|p| p.contains("/libc.so"))
+            .expect("libc is mapped");
+        let libm = Path::new(libc).with_file_name("libm.so.6");
+        let v = Verified::read(&libm, None, &|_| true).unwrap();
+        for keep in [false, true] {
+            let copy = Private::of(&v).unwrap();
+            let path = copy.path().to_path_buf();
+            let inode = std::fs::metadata(&path).unwrap().ino();
+            // SAFETY: libm's initialisers only set up its own state.
+            let library = unsafe { libloading::Library::new(&path) }.unwrap();
+            let extra = keep.then(|| unsafe { libloading::Library::new(&path) }.unwrap());
+            drop(Loaded {
+                library: Some(library),
+                copy: Some(copy),
+            });
+            let same = std::fs::metadata(&path).is_ok_and(|m| m.ino() == inode);
+            assert_eq!(same, keep, "keep = {keep}");
+            drop(extra);
+        }
     }
 
     #[test]

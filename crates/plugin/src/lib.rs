@@ -13,6 +13,7 @@
 //! the deck: load only plugins you would run as programs.
 
 pub mod abi;
+pub mod file;
 pub mod host;
 pub mod message;
 pub mod sdk;

@@ -511,3 +511,24 @@ fn a_library_stays_loaded_while_any_plugin_uses_it() {
     });
     assert_eq!(results, vec![true, true]);
 }
+
+/// Each load maps a private copy named `/proc/self/fd/N`; the system loader
+/// takes a name it has seen for the library already loaded. So after a
+/// plugin is dropped (as `watch` does on every rebuild), another library
+/// loaded under a reused descriptor number must still be that library, and
+/// the one dropped must still draw if it stayed mapped.
+#[test]
+fn plugins_loaded_one_after_another_are_each_their_own_library() {
+    for _ in 0..4 {
+        let a = load("crescendo-slope");
+        assert_eq!(a.info().name, "slope");
+        drop(a);
+        let b = load("crescendo-waterfall");
+        assert_eq!(b.info().name, "waterfall");
+        let req = waterfall_request(&["Start", "Step"], &[10.0, 5.0]);
+        assert!(b.render(&req).is_ok());
+        drop(b);
+        let c = load("crescendo-fault-plugin");
+        assert_eq!(c.info().name, "faults");
+    }
+}

@@ -7,7 +7,7 @@ use std::collections::{BTreeMap, BTreeSet};
 use crescendo_data::{time, ColType, Table, Value};
 use crescendo_diag::closest;
 use crescendo_lang::ast::DrawStmt;
-use crescendo_plugin::host::PluginInfo;
+use crescendo_plugin::host::{Plugin, NOT_LOADED};
 use crescendo_plugin::{Area, Cell, Column, Request, Texts, ABI_VERSION};
 
 use crate::anchors::FrameAnchors;
@@ -43,7 +43,13 @@ pub(crate) fn draw(
         return Err(cx.report(diag));
     };
     let info = plugin.info().clone();
-    let form = form(cx, &info, d)?;
+    let form = form(cx, plugin, d)?;
+    // an inspected plugin is named by the story, its version unknown
+    let (plugin_name, plugin_version) = if plugin.is_loaded() {
+        (info.name.clone(), info.version.clone())
+    } else {
+        (d.plugin.name.clone(), NOT_LOADED.to_string())
+    };
     let named = tables.named(cx, &d.view)?;
     let table = &named.table;
     let options = options(cx, table, d)?;
@@ -78,8 +84,8 @@ pub(crate) fn draw(
         .unwrap_or_default();
     let chart = Chart::Plugin(PluginChart {
         plugin: d.plugin.name.clone(),
-        plugin_name: info.name.clone(),
-        plugin_version: info.version.clone(),
+        plugin_name,
+        plugin_version,
         form: form.clone(),
         request: Request {
             abi_version: ABI_VERSION,
@@ -109,9 +115,14 @@ pub(crate) fn draw(
     })
 }
 
-/// The plugin's form the statement names (or its only one).
-fn form(cx: &mut Ctx, info: &PluginInfo, d: &DrawStmt) -> Outcome<String> {
+/// The plugin's form the statement names (or its only one). An inspected
+/// plugin's forms are unknown: the story's word is taken.
+fn form(cx: &mut Ctx, plugin: &Plugin, d: &DrawStmt) -> Outcome<String> {
+    let info = plugin.info();
     match &d.form {
+        _ if !plugin.is_loaded() => {
+            Ok(d.form.as_ref().map_or_else(String::new, |f| f.name.clone()))
+        }
         Some(f) if info.forms.contains(&f.name) => Ok(f.name.clone()),
         Some(f) => {
             let mut diag = cx
