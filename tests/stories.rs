@@ -25,7 +25,7 @@ impl crescendo_render::plugin::PluginDrawer for Drawer {
         &self,
         plugin: &str,
         request: &crescendo_plugin::Request,
-    ) -> Result<crescendo_plugin::host::Validated, String> {
+    ) -> Result<crescendo_plugin::validate::Validated, String> {
         let p = self.0.get(plugin).ok_or("not loaded")?;
         p.render(request).map_err(|e| e.to_string())
     }

@@ -76,7 +76,9 @@ pub fn plan_story(src: &Arc<Source>, story_dir: &Path, options: &Options) -> Pla
     let planner = Planner::new(src, story_dir, options, &mut diags, &mut failed_claims);
     let sql = Arc::clone(&planner.tables.sql);
     let plan = crescendo_data::locale::scoped(conventions, || {
-        planner.run(&story, &mut anchors, &mut plugins)
+        planner
+            .run(&story, &mut anchors, &mut plugins)
+            .map(crate::drawn::write_drawn_strings)
     })
     .map(|mut plan| {
         plan.locale = locale;
@@ -1876,6 +1878,7 @@ impl<'a> Planner<'a> {
                                 name,
                                 role: Role::Context,
                                 points: Vec::new(),
+                                end_values: Vec::new(), // written by `drawn`
                             });
                             names.len() - 1
                         }

@@ -413,6 +413,7 @@ impl Planner<'_> {
                     slope: f.slope,
                     intercept: f.intercept,
                     r: f.r,
+                    label: String::new(), // written by `drawn`
                 }),
                 Err(e) => {
                     self.error(

@@ -7,6 +7,7 @@ pub mod anchors;
 mod build;
 pub mod cache;
 mod database;
+mod drawn;
 mod forms;
 mod functions;
 pub mod limits;

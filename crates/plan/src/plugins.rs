@@ -9,8 +9,8 @@ use std::sync::Arc;
 use crescendo_data::{time, ColType, Value};
 use crescendo_diag::{closest, Diagnostic};
 use crescendo_lang::ast::{DrawStmt, PluginDecl};
-use crescendo_plugin::host::Plugin;
 use crescendo_plugin::{Area, Cell, Column, Request, Texts, ABI_VERSION};
+use crescendo_plugin_host::Plugin;
 
 use crate::anchors::FrameAnchors;
 use crate::build::{display, Planner, SeqState};
@@ -58,7 +58,7 @@ impl Planner<'_> {
             }
             Err(e) => {
                 let span = match (&e, &d.pin) {
-                    (crescendo_plugin::host::PluginError::ChecksumMismatch { .. }, Some(pin)) => {
+                    (crescendo_plugin_host::PluginError::ChecksumMismatch { .. }, Some(pin)) => {
                         pin.span.clone()
                     }
                     _ => d.path.span.clone(),

@@ -5,13 +5,13 @@
 //! where it covers the fewest other labels and lines.
 
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, faint_fill, number, tick_style, Obstacles, Rect};
+use crate::kit::{self, faint_fill, Obstacles, Rect};
 use crate::layout::map;
 use crate::line::LineLayout;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{Annotation, LineChart, Role};
+use crescendo_frame::{Annotation, LineChart, Role};
 
 /// Widest a callout's text may be before it wraps (at 16 px labels;
 /// [`Theme::label_scaled`]).
@@ -43,7 +43,7 @@ fn bounds(theme: &Theme, l: &LineLayout) -> Rect {
 
 /// Draws the bands and reference lines, under the data.
 pub(crate) fn draw_under(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &LineChart,
     l: &LineLayout,
@@ -98,7 +98,7 @@ fn choose(cands: &[Rect], obstacles: &Obstacles, bounds: &Rect, first_clear: boo
 /// and callouts, avoiding every text already in `obstacles` and, as far as
 /// possible, the line segments in it.
 pub(crate) fn draw_over(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &LineChart,
     l: &LineLayout,
@@ -200,17 +200,10 @@ pub(crate) fn draw_over(
     }
 
     // Values at the first and last point of the focus lines (of every
-    // visible line when none is in focus), formatted like the y ticks.
+    // visible line when none is in focus), as the plan wrote them.
     if chart.end_labels {
-        let any_focus = chart.series.iter().any(|s| s.role == Role::Focus);
-        let (decimals, commas) = tick_style(&chart.y);
         for s in &chart.series {
-            let wanted = match s.role {
-                Role::Focus => true,
-                Role::Context => !any_focus,
-                Role::Hidden => false,
-            };
-            if !wanted {
+            if s.end_values.is_empty() {
                 continue;
             }
             let finite = || {
@@ -230,8 +223,10 @@ pub(crate) fn draw_over(
                 if k == 1 && ends[0] == ends[1] {
                     continue;
                 }
-                let text = number(y, decimals, commas);
-                let w = text_width(&text, theme.label_size, bold);
+                let Some(text) = s.end_values.get(k) else {
+                    continue;
+                };
+                let w = text_width(text, theme.label_size, bold);
                 let p = (xm(x), ym(y));
                 let d = 8.0;
                 let side = if k == 0 { p.0 + d } else { p.0 - d - w };
@@ -272,7 +267,7 @@ pub(crate) fn draw_over(
                         canvas,
                         obstacles,
                         &Label {
-                            text: &text,
+                            text,
                             x: r.x0,
                             top: r.y0,
                             size: theme.label_size,

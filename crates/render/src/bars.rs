@@ -9,7 +9,7 @@ use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{Bar, BarChart, Orientation, Role};
+use crescendo_frame::{Bar, BarChart, Orientation, Role};
 
 /// Space between a label column and the plot.
 const PAD: f64 = 12.0;
@@ -47,7 +47,7 @@ fn muted_label<'a>(theme: &Theme, text: &'a str, x: f64, top: f64, align: Align)
 }
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &BarChart,
     region: Region,
@@ -60,7 +60,7 @@ pub(crate) fn draw(
 }
 
 fn vertical(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &BarChart,
     region: Region,
@@ -207,7 +207,7 @@ fn vertical(
 }
 
 fn horizontal(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &BarChart,
     region: Region,

@@ -11,7 +11,7 @@ use crate::layout::{self, fit_label_at, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{DotChart, Role};
+use crescendo_frame::{DotChart, Role};
 
 /// Dot radius in px (smaller when rows are tight).
 const DOT: f64 = 6.0;
@@ -23,7 +23,7 @@ const MAX_SERIES_LABEL: f64 = 240.0;
 const MAX_CATEGORY_SHARE: f64 = 0.32;
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &DotChart,
     region: Region,

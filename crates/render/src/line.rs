@@ -13,7 +13,8 @@ use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{LineChart, Role, Series};
+use crescendo_frame::{LineChart, Role, Series};
+use crescendo_look::display::Part;
 
 /// Widest direct-label column, in px; longer labels are cut with an ellipsis.
 const MAX_LABEL_COLUMN: f64 = 280.0;
@@ -98,7 +99,7 @@ pub(crate) fn layout(chart: &LineChart, region: Region, theme: &Theme) -> LineLa
 }
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &LineChart,
     region: Region,
@@ -192,23 +193,29 @@ pub(crate) fn draw(
         .iter()
         .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
         .collect();
-    for ((centre, _, text), keep) in x_ticks.iter().zip(layout::thin(&spans, 12.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text,
-                    x: *centre,
-                    top: l.x_tick_top,
-                    size: theme.label_size,
-                    bold: false,
-                    color: theme.muted,
-                    align: Align::Middle,
-                },
-            )?;
+    let wanted = (x_ticks.iter())
+        .map(|(_, _, text)| text_width(text, theme.label_size, false))
+        .collect();
+    canvas.group(Part::XTicks { wanted }, || {
+        for ((centre, _, text), keep) in x_ticks.iter().zip(layout::thin(&spans, 12.0)) {
+            if keep {
+                kit::put(
+                    canvas,
+                    &mut obstacles,
+                    &Label {
+                        text,
+                        x: *centre,
+                        top: l.x_tick_top,
+                        size: theme.label_size,
+                        bold: false,
+                        color: theme.muted,
+                        align: Align::Middle,
+                    },
+                )?;
+            }
         }
-    }
+        Ok(())
+    })?;
 
     // Gridlines, when asked for, under everything else in the plot.
     kit::gridlines(
@@ -320,7 +327,7 @@ pub(crate) fn runs(
 /// when it has more; a run of one point becomes a dot so it does not
 /// vanish. Returns the runs as drawn.
 pub(crate) fn draw_runs(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     runs: &[Vec<(f64, f64)>],
     target: usize,
     color: crate::theme::Rgb,

@@ -16,7 +16,7 @@ use crate::line;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::{Rgb, Theme};
 use crate::RenderError;
-use crescendo_plan::{Axis, Chart, Orientation, PanelChart, Role};
+use crescendo_frame::{Axis, Chart, Orientation, PanelChart, Role};
 
 /// Panels per row at most.
 const MAX_COLUMNS: usize = 4;
@@ -60,7 +60,7 @@ fn mark_colour(theme: &Theme, panel: Role, own: Role) -> Option<Rgb> {
 }
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &PanelChart,
     region: Region,
@@ -466,7 +466,7 @@ struct Geom {
     lead_w: f64,
 }
 
-fn baseline(canvas: &Canvas<'_>, theme: &Theme, g: &Geom, _: bool) -> Result<(), RenderError> {
+fn baseline(canvas: &Canvas, theme: &Theme, g: &Geom, _: bool) -> Result<(), RenderError> {
     canvas.line(
         (g.left, g.bottom),
         (g.right, g.bottom),
@@ -477,7 +477,7 @@ fn baseline(canvas: &Canvas<'_>, theme: &Theme, g: &Geom, _: bool) -> Result<(),
 
 /// Value ticks right-aligned in the lead column (only where `show`).
 fn value_ticks(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     axis: &Axis,
     dom: [f64; 2],
@@ -516,7 +516,7 @@ fn value_ticks(
 
 /// X ticks centred under their positions, thinned to fit the panel.
 fn x_ticks(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     axis: &Axis,
     g: &Geom,

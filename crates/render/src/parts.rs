@@ -14,7 +14,7 @@ use crate::layout::{self, fit_label_at, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::{Rgb, Theme};
 use crate::RenderError;
-use crescendo_plan::{Orientation, PartsChart, PartsMode, Role};
+use crescendo_frame::{Orientation, PartsChart, PartsMode, Role};
 
 /// Space between a label column and the plot.
 const PAD: f64 = 12.0;
@@ -128,7 +128,7 @@ fn roomiest(chart: &PartsChart) -> usize {
 }
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &PartsChart,
     region: Region,
@@ -161,7 +161,7 @@ fn total_label<'a>(
 }
 
 fn vertical(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &PartsChart,
     region: Region,
@@ -467,7 +467,7 @@ fn vertical(
 }
 
 fn horizontal(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &PartsChart,
     region: Region,

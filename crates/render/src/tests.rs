@@ -3,7 +3,7 @@
 
 use crate::inspect::{canvas_size, text_boxes, TextBox};
 use crate::{render_deck_html, render_frame};
-use crescendo_plan::*;
+use crescendo_frame::*;
 
 fn axis(title: Option<&str>, scale: ScaleKind, domain: [f64; 2], ticks: &[(f64, &str)]) -> Axis {
     Axis {
@@ -34,6 +34,7 @@ fn series(name: &str, role: Role, ys: &[Option<f64>]) -> Series {
                 y: *y,
             })
             .collect(),
+        end_values: Vec::new(),
     }
 }
 
