@@ -7,7 +7,7 @@
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, faint_fill, Obstacles, Rect};
 use crate::layout::map;
-use crate::line::LineLayout;
+use crate::line_layout::LineLayout;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;

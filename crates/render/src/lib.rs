@@ -24,6 +24,7 @@ pub mod inspect;
 mod kit;
 pub mod layout;
 mod line;
+mod line_layout;
 pub mod lttb;
 mod panels;
 mod parts;
