@@ -3,8 +3,9 @@
 //! bars right-align them in a column at the left. Focus bars carry their
 //! value at the bar end; hidden bars leave their slot empty.
 
+use crate::axis;
 use crate::canvas::{Align, Canvas, Label, WIDTH};
-use crate::kit;
+use crate::kit::Obstacles;
 use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{line_height, text_width};
 use crate::theme::Theme;
@@ -128,31 +129,27 @@ fn vertical(
     }
     let vmap = |v: f64| map(v, domain, value_bottom, value_top);
 
-    let spans: Vec<(f64, f64)> = ticks
-        .iter()
-        .map(|(v, _)| (vmap(*v) - lh / 2.0, vmap(*v) + lh / 2.0))
-        .collect();
-    for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
-        if keep {
-            canvas.text(&muted_label(
-                theme,
-                text,
-                region.left + tick_w,
-                vmap(*v) - lh / 2.0,
-                Align::End,
-            ))?;
-        }
-    }
+    let mut obstacles = Obstacles::default();
+    let (size, right) = (theme.label_size, region.left + tick_w);
+    axis::column(
+        canvas,
+        &mut obstacles,
+        theme,
+        size,
+        &chart.value,
+        vmap,
+        right,
+    )?;
 
     let zero = vmap(0.0);
-    kit::gridlines(
+    axis::gridlines(
         canvas,
         theme,
         &chart.value,
         vmap,
         plot_left,
         plot_right,
-        kit::Across::Rows,
+        axis::Across::Rows,
         Some(zero),
     )?;
     let bar_w = (band * BAR_SHARE).min(160.0);
@@ -215,7 +212,7 @@ fn horizontal(
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let domain = value_domain(chart);
-    let ticks = layout::visible_ticks(&chart.value);
+    let _ticks = layout::visible_ticks(&chart.value);
 
     let mut top = region.top;
     if let Some(title) = chart.category_title.as_deref() {
@@ -289,40 +286,34 @@ fn horizontal(
             Align::Middle,
         ))?;
     }
-    let placed: Vec<(f64, String)> = ticks
-        .iter()
-        .map(|(v, text)| {
-            let w = text_width(text, theme.label_size, false);
-            (
-                vmap(*v)
-                    .max(region.left + w / 2.0)
-                    .min(plot_right - w / 2.0),
-                text.clone(),
-            )
-        })
-        .collect();
-    let spans: Vec<(f64, f64)> = placed
-        .iter()
-        .map(|(c, t)| {
-            let w = text_width(t, theme.label_size, false);
-            (c - w / 2.0, c + w / 2.0)
-        })
-        .collect();
-    for ((centre, text), keep) in placed.iter().zip(layout::thin(&spans, 12.0)) {
-        if keep {
-            canvas.text(&muted_label(theme, text, *centre, tick_top, Align::Middle))?;
-        }
-    }
+    let row = axis::Row {
+        top: tick_top,
+        lo: region.left,
+        hi: plot_right,
+        gap: 12.0,
+        fit: axis::Fit::AsWritten,
+        keep_left: false,
+    };
+    let mut obstacles = Obstacles::default();
+    axis::row(
+        canvas,
+        &mut obstacles,
+        theme,
+        theme.label_size,
+        &chart.value,
+        vmap,
+        row,
+    )?;
 
     let zero = vmap(0.0);
-    kit::gridlines(
+    axis::gridlines(
         canvas,
         theme,
         &chart.value,
         vmap,
         plot_top,
         plot_bottom,
-        kit::Across::Columns,
+        axis::Across::Columns,
         Some(zero),
     )?;
     let bar_h = (band * BAR_SHARE).min(56.0);

@@ -5,6 +5,7 @@
 //! top row. Focus dots are in the accent, context dots grey; hidden rows and
 //! series keep their place empty.
 
+use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, mix, muted_label, spread_widths, Obstacles};
 use crate::layout::{self, fit_label_at, map, max_width, Region};
@@ -101,40 +102,31 @@ pub(crate) fn draw(
             ),
         )?;
     }
-    let ticks: Vec<(f64, f64, String)> = layout::visible_ticks(&chart.value)
-        .into_iter()
-        .map(|(v, text)| {
-            let w = text_width(&text, theme.label_size, false);
-            (
-                vmap(v)
-                    .max(col_right + PAD + w / 2.0)
-                    .min(region.right - w / 2.0),
-                w,
-                text,
-            )
-        })
-        .collect();
-    let spans: Vec<(f64, f64)> = ticks
-        .iter()
-        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
-        .collect();
-    for ((c, _, text), keep) in ticks.iter().zip(layout::thin(&spans, 12.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &muted_label(theme, theme.label_size, text, *c, tick_top, Align::Middle),
-            )?;
-        }
-    }
-    kit::gridlines(
+    let row = axis::Row {
+        top: tick_top,
+        lo: col_right + PAD,
+        hi: region.right,
+        gap: 12.0,
+        fit: axis::Fit::AsWritten,
+        keep_left: false,
+    };
+    axis::row(
+        canvas,
+        &mut obstacles,
+        theme,
+        theme.label_size,
+        &chart.value,
+        vmap,
+        row,
+    )?;
+    axis::gridlines(
         canvas,
         theme,
         &chart.value,
         vmap,
         plot_top,
         plot_bottom,
-        kit::Across::Columns,
+        axis::Across::Columns,
         None,
     )?;
     canvas.line(

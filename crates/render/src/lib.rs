@@ -15,6 +15,7 @@
 #![warn(missing_docs)]
 
 mod annotate;
+mod axis;
 mod bars;
 pub mod canvas;
 mod dots;

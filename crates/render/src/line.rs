@@ -7,15 +7,15 @@
 //! points per pixel of plot width are thinned with LTTB ([`crate::lttb`]).
 
 use crate::annotate;
+use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, Obstacles};
 use crate::layout::{self, map, Region};
 use crate::line_layout::layout;
-use crate::metrics::{line_height, text_width};
+use crate::metrics::line_height;
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{LineChart, Role, Series};
-use crescendo_look::display::Part;
 
 pub(crate) fn draw(
     canvas: &Canvas,
@@ -74,77 +74,30 @@ pub(crate) fn draw(
     }
 
     // Y ticks, right-aligned in their column, thinned if crowded.
-    let y_ticks = layout::visible_ticks(&chart.y);
-    let spans: Vec<(f64, f64)> = y_ticks
-        .iter()
-        .map(|(v, _)| (ymap(*v) - lh / 2.0, ymap(*v) + lh / 2.0))
-        .collect();
-    for ((v, text), keep) in y_ticks.iter().zip(layout::thin(&spans, 2.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text,
-                    x: l.tick_column_right,
-                    top: ymap(*v) - lh / 2.0,
-                    size: theme.label_size,
-                    bold: false,
-                    color: theme.muted,
-                    align: Align::End,
-                },
-            )?;
-        }
-    }
+    let size = theme.label_size;
+    let right = l.tick_column_right;
+    axis::column(canvas, &mut obstacles, theme, size, &chart.y, ymap, right)?;
 
     // X ticks, centred, the outermost clamped inside the plot.
-    let x_ticks: Vec<(f64, f64, String)> = layout::visible_ticks(&chart.x)
-        .into_iter()
-        .map(|(v, text)| {
-            let w = text_width(&text, theme.label_size, false).min(l.plot_right - l.plot_left);
-            let centre = xmap(v)
-                .max(l.plot_left + w / 2.0)
-                .min(l.plot_right - w / 2.0);
-            (centre, w, text)
-        })
-        .collect();
-    let spans: Vec<(f64, f64)> = x_ticks
-        .iter()
-        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
-        .collect();
-    let wanted = (x_ticks.iter())
-        .map(|(_, _, text)| text_width(text, theme.label_size, false))
-        .collect();
-    canvas.group(Part::XTicks { wanted }, || {
-        for ((centre, _, text), keep) in x_ticks.iter().zip(layout::thin(&spans, 12.0)) {
-            if keep {
-                kit::put(
-                    canvas,
-                    &mut obstacles,
-                    &Label {
-                        text,
-                        x: *centre,
-                        top: l.x_tick_top,
-                        size: theme.label_size,
-                        bold: false,
-                        color: theme.muted,
-                        align: Align::Middle,
-                    },
-                )?;
-            }
-        }
-        Ok(())
-    })?;
+    let row = axis::Row {
+        top: l.x_tick_top,
+        lo: l.plot_left,
+        hi: l.plot_right,
+        gap: 12.0,
+        fit: axis::Fit::Capped(l.plot_right - l.plot_left),
+        keep_left: false,
+    };
+    axis::row(canvas, &mut obstacles, theme, size, &chart.x, xmap, row)?;
 
     // Gridlines, when asked for, under everything else in the plot.
-    kit::gridlines(
+    axis::gridlines(
         canvas,
         theme,
         &chart.y,
         ymap,
         l.plot_left,
         l.plot_right,
-        kit::Across::Rows,
+        axis::Across::Rows,
         Some(l.plot_bottom),
     )?;
 

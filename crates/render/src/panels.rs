@@ -9,6 +9,7 @@
 //!
 //! Panels name no series of their own: the panel title is the label.
 
+use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, muted_label, Obstacles};
 use crate::layout::{self, map, max_width, Region};
@@ -95,7 +96,7 @@ pub(crate) fn draw(
     };
     let mut top = region.top;
     if let Some(title) = measure_title.as_deref() {
-        let text = kit::fit_one(title, region.right - region.left, theme.label_size);
+        let text = axis::fit_one(title, region.right - region.left, theme.label_size);
         kit::put(
             canvas,
             &mut obstacles,
@@ -238,14 +239,14 @@ pub(crate) fn draw(
                 x_ticks(canvas, theme, &l.x, &g, &mut obstacles)?;
                 let xmap = |x: f64| map(x, l.x.domain, g.left, g.right);
                 let ymap = |y: f64| map(y, dom, g.bottom, g.top);
-                kit::gridlines(
+                axis::gridlines(
                     canvas,
                     theme,
                     &l.y,
                     ymap,
                     g.left,
                     g.right,
-                    kit::Across::Rows,
+                    axis::Across::Rows,
                     Some(g.bottom),
                 )?;
                 baseline(canvas, theme, &g, false)?;
@@ -270,48 +271,27 @@ pub(crate) fn draw(
             }
             Chart::Bars(b) if across_bars => {
                 let vmap = |v: f64| map(v, dom, g.left, g.right);
-                kit::gridlines(
+                axis::gridlines(
                     canvas,
                     theme,
                     &b.value,
                     vmap,
                     g.top,
                     g.bottom,
-                    kit::Across::Columns,
+                    axis::Across::Columns,
                     Some(vmap(0.0)),
                 )?;
                 // Value ticks along the bottom of every panel.
-                let mut placed = Vec::new();
-                for (v, text) in layout::visible_ticks(&b.value) {
-                    let w = text_width(&text, theme.source_size, false);
-                    placed.push((
-                        vmap(v)
-                            .max(g.left + w / 2.0)
-                            .min(g.right.max(g.left + w) - w / 2.0),
-                        w,
-                        text,
-                    ));
-                }
-                let spans: Vec<(f64, f64)> = placed
-                    .iter()
-                    .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
-                    .collect();
-                for ((c, _, text), keep) in placed.iter().zip(layout::thin(&spans, 8.0)) {
-                    if keep {
-                        kit::put(
-                            canvas,
-                            &mut obstacles,
-                            &muted_label(
-                                theme,
-                                theme.source_size,
-                                text,
-                                *c,
-                                g.tick_top,
-                                Align::Middle,
-                            ),
-                        )?;
-                    }
-                }
+                let row = axis::Row {
+                    top: g.tick_top,
+                    lo: g.left,
+                    hi: g.right,
+                    gap: 8.0,
+                    fit: axis::Fit::AsWritten,
+                    keep_left: true,
+                };
+                let size = theme.source_size;
+                axis::row(canvas, &mut obstacles, theme, size, &b.value, vmap, row)?;
                 let nb = b.bars.len().max(1);
                 let band = (g.bottom - g.top) / nb as f64;
                 let spans: Vec<(f64, f64)> = (0..b.bars.len())
@@ -363,14 +343,14 @@ pub(crate) fn draw(
             Chart::Bars(b) => {
                 value_ticks(canvas, theme, &b.value, dom, &g, ticks_here, &mut obstacles)?;
                 let vmap = |v: f64| map(v, dom, g.bottom, g.top);
-                kit::gridlines(
+                axis::gridlines(
                     canvas,
                     theme,
                     &b.value,
                     vmap,
                     g.left,
                     g.right,
-                    kit::Across::Rows,
+                    axis::Across::Rows,
                     Some(vmap(0.0)),
                 )?;
                 let nb = b.bars.len().max(1);
@@ -438,7 +418,7 @@ pub(crate) fn draw(
         }
     }
     if let (Some(t), Some(title)) = (other_top, other_title.as_deref()) {
-        let text = kit::fit_one(title, width, theme.label_size);
+        let text = axis::fit_one(title, width, theme.label_size);
         kit::put(
             canvas,
             &mut obstacles,
@@ -488,30 +468,16 @@ fn value_ticks(
     if !show {
         return Ok(());
     }
-    let slh = line_height(theme.source_size);
     let ymap = |v: f64| map(v, dom, g.bottom, g.top);
-    let ticks = layout::visible_ticks(axis);
-    let spans: Vec<(f64, f64)> = ticks
-        .iter()
-        .map(|(v, _)| (ymap(*v) - slh / 2.0, ymap(*v) + slh / 2.0))
-        .collect();
-    for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                obstacles,
-                &muted_label(
-                    theme,
-                    theme.source_size,
-                    text,
-                    g.lead_right,
-                    ymap(*v) - slh / 2.0,
-                    Align::End,
-                ),
-            )?;
-        }
-    }
-    Ok(())
+    axis::column(
+        canvas,
+        obstacles,
+        theme,
+        theme.source_size,
+        axis,
+        ymap,
+        g.lead_right,
+    )
 }
 
 /// X ticks centred under their positions, thinned to fit the panel.
@@ -522,36 +488,14 @@ fn x_ticks(
     g: &Geom,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let placed: Vec<(f64, f64, String)> = layout::visible_ticks(axis)
-        .into_iter()
-        .map(|(v, text)| {
-            let text = metrics::ellipsize(&text, theme.source_size, false, g.right - g.left);
-            let w = text_width(&text, theme.source_size, false);
-            let c = map(v, axis.domain, g.left, g.right)
-                .max(g.left + w / 2.0)
-                .min(g.right - w / 2.0);
-            (c, w, text)
-        })
-        .collect();
-    let spans: Vec<(f64, f64)> = placed
-        .iter()
-        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
-        .collect();
-    for ((c, _, text), keep) in placed.iter().zip(layout::thin(&spans, 10.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                obstacles,
-                &muted_label(
-                    theme,
-                    theme.source_size,
-                    text,
-                    *c,
-                    g.tick_top,
-                    Align::Middle,
-                ),
-            )?;
-        }
-    }
-    Ok(())
+    let row = axis::Row {
+        top: g.tick_top,
+        lo: g.left,
+        hi: g.right,
+        gap: 10.0,
+        fit: axis::Fit::Ellipsize(g.right - g.left),
+        keep_left: false,
+    };
+    let xmap = |v: f64| map(v, axis.domain, g.left, g.right);
+    axis::row(canvas, obstacles, theme, theme.source_size, axis, xmap, row)
 }

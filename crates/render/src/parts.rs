@@ -8,6 +8,7 @@
 //! may carry their totals at their ends. Hidden parts and categories leave
 //! their space empty; nothing else moves.
 
+use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, context_greys, muted_label, spread_widths, Obstacles};
 use crate::layout::{self, fit_label_at, map, max_width, Region};
@@ -280,35 +281,25 @@ fn vertical(
     }
     let vmap = |v: f64| map(v, dom, value_bottom, value_top);
 
-    let spans: Vec<(f64, f64)> = ticks
-        .iter()
-        .map(|(v, _)| (vmap(*v) - lh / 2.0, vmap(*v) + lh / 2.0))
-        .collect();
-    for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &muted_label(
-                    theme,
-                    theme.label_size,
-                    text,
-                    region.left + tick_w,
-                    vmap(*v) - lh / 2.0,
-                    Align::End,
-                ),
-            )?;
-        }
-    }
+    let (size, right) = (theme.label_size, region.left + tick_w);
+    axis::column(
+        canvas,
+        &mut obstacles,
+        theme,
+        size,
+        &chart.value,
+        vmap,
+        right,
+    )?;
 
-    kit::gridlines(
+    axis::gridlines(
         canvas,
         theme,
         &chart.value,
         vmap,
         plot_left,
         plot_right,
-        kit::Across::Rows,
+        axis::Across::Rows,
         Some(vmap(0.0)),
     )?;
     let colors = colours(theme, chart);
@@ -599,39 +590,32 @@ fn horizontal(
             ),
         )?;
     }
-    let ticks: Vec<(f64, f64, String)> = layout::visible_ticks(&chart.value)
-        .into_iter()
-        .map(|(v, text)| {
-            let w = text_width(&text, theme.label_size, false);
-            (
-                vmap(v).max(region.left + w / 2.0).min(plot_right - w / 2.0),
-                w,
-                text,
-            )
-        })
-        .collect();
-    let spans: Vec<(f64, f64)> = ticks
-        .iter()
-        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
-        .collect();
-    for ((c, _, text), keep) in ticks.iter().zip(layout::thin(&spans, 12.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &muted_label(theme, theme.label_size, text, *c, tick_top, Align::Middle),
-            )?;
-        }
-    }
+    let row = axis::Row {
+        top: tick_top,
+        lo: region.left,
+        hi: plot_right,
+        gap: 12.0,
+        fit: axis::Fit::AsWritten,
+        keep_left: false,
+    };
+    axis::row(
+        canvas,
+        &mut obstacles,
+        theme,
+        theme.label_size,
+        &chart.value,
+        vmap,
+        row,
+    )?;
 
-    kit::gridlines(
+    axis::gridlines(
         canvas,
         theme,
         &chart.value,
         vmap,
         plot_top,
         plot_bottom,
-        kit::Across::Columns,
+        axis::Across::Columns,
         Some(vmap(0.0)),
     )?;
     let colors = colours(theme, chart);

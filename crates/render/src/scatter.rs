@@ -3,6 +3,7 @@
 //! labels and dots), axes as in line charts, and an optional least-squares
 //! line over the x range of the points in a dark grey with its correlation.
 
+use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, Obstacles, Rect};
 use crate::layout::{self, map, Region};
@@ -71,9 +72,9 @@ pub(crate) fn draw(
     layout::check_axis(&chart.x, "x")?;
     layout::check_axis(&chart.y, "y")?;
     let lh = line_height(theme.label_size);
-    let l = kit::xy_layout(&chart.x, &chart.y, region, 0.0, theme.label_size, true);
+    let l = axis::xy_layout(&chart.x, &chart.y, region, 0.0, theme.label_size, true);
     let mut obstacles = Obstacles::default();
-    kit::draw_xy_axes(canvas, theme, &chart.x, &chart.y, &l, true, &mut obstacles)?;
+    axis::draw_xy_axes(canvas, theme, &chart.x, &chart.y, &l, true, &mut obstacles)?;
     let xmap = |x: f64| map(x, chart.x.domain, l.plot_left, l.plot_right);
     let ymap = |y: f64| map(y, chart.y.domain, l.plot_bottom, l.plot_top);
     let finite: Vec<_> = chart
