@@ -4,6 +4,7 @@
 //! value at the bar end; hidden bars leave their slot empty.
 
 use crate::axis;
+use crate::band::{self, Band, VALUE_GAP};
 use crate::canvas::{Align, Canvas, Label, WIDTH};
 use crate::kit::Obstacles;
 use crate::layout::{self, map, max_width, Region};
@@ -14,8 +15,6 @@ use crescendo_frame::{Bar, BarChart, Orientation, Role};
 
 /// Space between a label column and the plot.
 const PAD: f64 = 12.0;
-/// Space between a bar end and its value label.
-const VALUE_GAP: f64 = 6.0;
 /// Share of a category band filled by the bar.
 const BAR_SHARE: f64 = 0.62;
 /// Widest category column of horizontal bars, as a share of the canvas.
@@ -153,8 +152,13 @@ fn vertical(
         Some(zero),
     )?;
     let bar_w = (band * BAR_SHARE).min(160.0);
+    let bands = Band {
+        orientation: Orientation::Vertical,
+        start: plot_left,
+        size: band,
+    };
     for (i, bar) in chart.bars.iter().enumerate() {
-        let centre = plot_left + (i as f64 + 0.5) * band;
+        let centre = bands.centre(i);
         for (k, line) in layout::fit_label_at(theme.label_size, &bar.label, cat_w, cat_lines, false)
             .iter()
             .enumerate()
@@ -172,34 +176,51 @@ fn vertical(
         else {
             continue;
         };
-        let end = vmap(value);
-        canvas.rect(
-            (centre - bar_w / 2.0, zero),
-            (centre + bar_w / 2.0, end),
+        marks(
+            canvas,
+            theme,
+            &bands,
+            i,
+            bar_w,
+            (zero, vmap(value)),
+            bar,
             color,
         )?;
-        if bar.role == Role::Focus {
-            let label_top = if value >= 0.0 {
-                end - VALUE_GAP - lh
-            } else {
-                end + VALUE_GAP
-            };
-            canvas.text(&Label {
-                text: &crate::metrics::normalize(&bar.value_label),
-                x: centre,
-                top: label_top,
-                size: theme.label_size,
-                bold: true,
-                color: theme.accent,
-                align: Align::Middle,
-            })?;
-        }
     }
-    canvas.line(
-        (plot_left, zero),
-        (plot_right, zero),
-        theme.baseline,
-        theme.baseline_stroke,
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    bands.rule(
+        canvas,
+        (plot_left, plot_right),
+        zero,
+        baseline.0,
+        baseline.1,
+    )
+}
+
+/// Bar `i`'s mark from `zero` to `end` and, in focus, its value.
+#[allow(clippy::too_many_arguments)]
+fn marks(
+    canvas: &Canvas,
+    theme: &Theme,
+    bands: &Band,
+    i: usize,
+    thickness: f64,
+    (zero, end): (f64, f64),
+    bar: &Bar,
+    color: crate::theme::Rgb,
+) -> Result<(), RenderError> {
+    let positive = bar.value.is_some_and(|v| v >= 0.0);
+    let label = (bar.role == Role::Focus).then_some(bar.value_label.as_str());
+    band::bar(
+        canvas,
+        theme,
+        bands,
+        i,
+        thickness,
+        (zero, end),
+        positive,
+        color,
+        label,
     )
 }
 
@@ -334,8 +355,12 @@ fn horizontal(
         .map(|(t, lines)| (*t, t + (lines.len().max(1) - 1) as f64 * step + lh))
         .collect();
     let keep = layout::thin(&spans, 0.0);
+    let bands = Band {
+        orientation: Orientation::Horizontal,
+        start: plot_top,
+        size: band,
+    };
     for (i, bar) in chart.bars.iter().enumerate() {
-        let centre = plot_top + (i as f64 + 0.5) * band;
         let (first_top, lines) = &labels[i];
         let lines: &[String] = if keep[i] { lines } else { &[] };
         for (k, line) in lines.iter().enumerate() {
@@ -352,33 +377,23 @@ fn horizontal(
         else {
             continue;
         };
-        let end = vmap(value);
-        canvas.rect(
-            (zero, centre - bar_h / 2.0),
-            (end, centre + bar_h / 2.0),
+        marks(
+            canvas,
+            theme,
+            &bands,
+            i,
+            bar_h,
+            (zero, vmap(value)),
+            bar,
             color,
         )?;
-        if bar.role == Role::Focus {
-            let (x, align) = if value >= 0.0 {
-                (end + VALUE_GAP, Align::Start)
-            } else {
-                (end - VALUE_GAP, Align::End)
-            };
-            canvas.text(&Label {
-                text: &crate::metrics::normalize(&bar.value_label),
-                x,
-                top: centre - lh / 2.0,
-                size: theme.label_size,
-                bold: true,
-                color: theme.accent,
-                align,
-            })?;
-        }
     }
-    canvas.line(
-        (zero, plot_top),
-        (zero, plot_bottom),
-        theme.baseline,
-        theme.baseline_stroke,
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    bands.rule(
+        canvas,
+        (plot_top, plot_bottom),
+        zero,
+        baseline.0,
+        baseline.1,
     )
 }

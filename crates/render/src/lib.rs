@@ -16,6 +16,7 @@
 
 mod annotate;
 mod axis;
+mod band;
 mod bars;
 pub mod canvas;
 mod dots;

@@ -9,6 +9,7 @@
 //! their space empty; nothing else moves.
 
 use crate::axis;
+use crate::band::{self, Band, VALUE_GAP};
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, context_greys, muted_label, spread_widths, Obstacles};
 use crate::layout::{self, fit_label_at, map, max_width, Region};
@@ -19,8 +20,6 @@ use crescendo_frame::{Orientation, PartsChart, PartsMode, Role};
 
 /// Space between a label column and the plot.
 const PAD: f64 = 12.0;
-/// Space between a bar end and its total.
-const VALUE_GAP: f64 = 6.0;
 /// Share of a category band filled by its bar (stacked) or group.
 const BAR_SHARE: f64 = 0.62;
 const GROUP_SHARE: f64 = 0.8;
@@ -138,26 +137,6 @@ pub(crate) fn draw(
     match chart.orientation {
         Orientation::Vertical => vertical(canvas, theme, chart, region),
         Orientation::Horizontal => horizontal(canvas, theme, chart, region),
-    }
-}
-
-fn total_label<'a>(
-    theme: &Theme,
-    role: Role,
-    text: &'a str,
-    x: f64,
-    top: f64,
-    align: Align,
-) -> Label<'a> {
-    let focus = role == Role::Focus;
-    Label {
-        text,
-        x,
-        top,
-        size: theme.label_size,
-        bold: focus,
-        color: if focus { theme.accent } else { theme.muted },
-        align,
     }
 }
 
@@ -323,8 +302,13 @@ fn vertical(
             (left + 1.0, left + slot_w - 1.0)
         }
     };
+    let bands = Band {
+        orientation: Orientation::Vertical,
+        start: plot_left,
+        size: band,
+    };
     for (c, cat) in chart.categories.iter().enumerate() {
-        let centre = plot_left + (c as f64 + 0.5) * band;
+        let centre = bands.centre(c);
         let focus = cat.role == Role::Focus;
         for (i, line) in fit_label_at(theme.label_size, &cat.label, cat_w, cat_lines, true)
             .iter()
@@ -347,46 +331,30 @@ fn vertical(
         if cat.role == Role::Hidden {
             continue;
         }
+        let total = stacked.then_some((cat.total_label.as_str(), cat.role));
         let ext = extents(chart, c);
-        for (j, e) in ext.iter().enumerate() {
-            let (Some((a, b)), Some(color)) = (e, colors[j]) else {
-                continue;
-            };
-            let (x0, x1) = across(c, j);
-            canvas.rect((x0, vmap(*a)), (x1, vmap(*b)), color)?;
-        }
-        if stacked {
-            // Page-coloured cuts between neighbouring segments.
-            for (a, _) in ext.iter().flatten().skip(1) {
-                if *a != 0.0 {
-                    let (x0, x1) = across(c, 0);
-                    canvas.line((x0, vmap(*a)), (x1, vmap(*a)), theme.page, 1)?;
-                }
-            }
-            let text = metrics::normalize(&cat.total_label);
-            let high = ext.iter().flatten().map(|e| e.1).fold(0.0, f64::max);
-            if !text.is_empty() {
-                kit::put(
-                    canvas,
-                    &mut obstacles,
-                    &total_label(
-                        theme,
-                        cat.role,
-                        &text,
-                        centre,
-                        vmap(high) - VALUE_GAP - lh,
-                        Align::Middle,
-                    ),
-                )?;
-            }
-        }
+        let across = |j| across(c, j);
+        band::parts(
+            canvas,
+            theme,
+            &bands,
+            c,
+            &ext,
+            &colors,
+            across,
+            vmap,
+            total,
+            &mut obstacles,
+        )?;
     }
     let zero = vmap(0.0);
-    canvas.line(
-        (plot_left, zero),
-        (plot_right, zero),
-        theme.baseline,
-        theme.baseline_stroke,
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    bands.rule(
+        canvas,
+        (plot_left, plot_right),
+        zero,
+        baseline.0,
+        baseline.1,
     )?;
 
     if stacked {
@@ -646,6 +614,11 @@ fn horizontal(
         })
         .collect();
     let keep = layout::thin(&label_spans, 0.0);
+    let bands = Band {
+        orientation: Orientation::Horizontal,
+        start: plot_top,
+        size: band,
+    };
     for (c, cat) in chart.categories.iter().enumerate() {
         let focus = cat.role == Role::Focus;
         if keep.get(c).copied().unwrap_or(false) {
@@ -671,46 +644,30 @@ fn horizontal(
         if cat.role == Role::Hidden {
             continue;
         }
+        let total = stacked.then_some((cat.total_label.as_str(), cat.role));
         let ext = extents(chart, c);
-        for (j, e) in ext.iter().enumerate() {
-            let (Some((a, b)), Some(color)) = (e, colors[j]) else {
-                continue;
-            };
-            let (y0, y1) = across(c, j);
-            canvas.rect((vmap(*a), y0), (vmap(*b), y1), color)?;
-        }
-        if stacked {
-            for (a, _) in ext.iter().flatten().skip(1) {
-                if *a != 0.0 {
-                    let (y0, y1) = across(c, 0);
-                    canvas.line((vmap(*a), y0), (vmap(*a), y1), theme.page, 1)?;
-                }
-            }
-            let text = metrics::normalize(&cat.total_label);
-            let high = ext.iter().flatten().map(|e| e.1).fold(0.0, f64::max);
-            if !text.is_empty() {
-                let centre = plot_top + (c as f64 + 0.5) * band;
-                kit::put(
-                    canvas,
-                    &mut obstacles,
-                    &total_label(
-                        theme,
-                        cat.role,
-                        &text,
-                        vmap(high) + VALUE_GAP,
-                        centre - lh / 2.0,
-                        Align::Start,
-                    ),
-                )?;
-            }
-        }
+        let across = |j| across(c, j);
+        band::parts(
+            canvas,
+            theme,
+            &bands,
+            c,
+            &ext,
+            &colors,
+            across,
+            vmap,
+            total,
+            &mut obstacles,
+        )?;
     }
     let zero = vmap(0.0);
-    canvas.line(
-        (zero, plot_top),
-        (zero, plot_bottom),
-        theme.baseline,
-        theme.baseline_stroke,
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    bands.rule(
+        canvas,
+        (plot_top, plot_bottom),
+        zero,
+        baseline.0,
+        baseline.1,
     )?;
 
     if stacked {
