@@ -140,6 +140,136 @@ pub(crate) fn draw(
     }
 }
 
+/// Where the parts go: the category bands, the value mapping, and each
+/// part's place across its band.
+struct Slots {
+    bands: Band,
+    dom: [f64; 2],
+    /// Positions of the ends of the value domain.
+    ends: (f64, f64),
+    /// Width of a stacked bar or of a whole group.
+    thickness: f64,
+    /// Width of one bar of a group.
+    slot: f64,
+    stacked: bool,
+}
+
+impl Slots {
+    fn new(
+        bands: Band,
+        dom: [f64; 2],
+        ends: (f64, f64),
+        thickness: f64,
+        k: usize,
+        stacked: bool,
+    ) -> Slots {
+        let slot = if stacked {
+            thickness
+        } else {
+            thickness / k.max(1) as f64
+        };
+        Slots {
+            bands,
+            dom,
+            ends,
+            thickness,
+            slot,
+            stacked,
+        }
+    }
+
+    fn vmap(&self, v: f64) -> f64 {
+        map(v, self.dom, self.ends.0, self.ends.1)
+    }
+
+    /// Where part `j` of category `c` sits across the category axis.
+    fn across(&self, c: usize, j: usize) -> (f64, f64) {
+        let centre = self.bands.centre(c);
+        if self.stacked {
+            (centre - self.thickness / 2.0, centre + self.thickness / 2.0)
+        } else {
+            let start = centre - self.thickness / 2.0 + j as f64 * self.slot;
+            (start + 1.0, start + self.slot - 1.0)
+        }
+    }
+}
+
+/// How category names are set: at most `lines` lines `width` wide, from
+/// `start` (the top of the names under vertical bars, the right edge of the
+/// name column of horizontal ones).
+#[derive(Clone, Copy)]
+struct Categories {
+    width: f64,
+    lines: usize,
+    start: f64,
+}
+
+/// Every category's name and, unless hidden, its parts.
+fn categories(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &PartsChart,
+    s: &Slots,
+    cats: Categories,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
+    let colors = colours(theme, chart);
+    let horizontal = s.bands.orientation == Orientation::Horizontal;
+    // Names beside horizontal bars are centred on their band; a safety net
+    // for more categories than rows keeps them apart.
+    let spans: Vec<(f64, f64)> = (0..chart.categories.len())
+        .map(|c| {
+            let h = (cats.lines - 1) as f64 * step + lh;
+            (s.bands.centre(c) - h / 2.0, s.bands.centre(c) + h / 2.0)
+        })
+        .collect();
+    let keep = layout::thin(&spans, 0.0);
+    for (c, cat) in chart.categories.iter().enumerate() {
+        let focus = cat.role == Role::Focus;
+        let (x, first, align, shown) = if horizontal {
+            let shown = keep.get(c).copied().unwrap_or(false);
+            (cats.start, spans[c].0, Align::End, shown)
+        } else {
+            (s.bands.centre(c), cats.start, Align::Middle, true)
+        };
+        let lines = fit_label_at(theme.label_size, &cat.label, cats.width, cats.lines, true);
+        for (i, line) in lines.iter().enumerate().filter(|_| shown) {
+            let label = Label {
+                text: line,
+                x,
+                top: first + i as f64 * step,
+                size: theme.label_size,
+                bold: focus,
+                color: if focus { theme.accent } else { theme.muted },
+                align,
+            };
+            kit::put(canvas, obstacles, &label)?;
+        }
+        if cat.role == Role::Hidden {
+            continue;
+        }
+        let total = s.stacked.then_some((cat.total_label.as_str(), cat.role));
+        let ext = extents(chart, c);
+        let across = |j| s.across(c, j);
+        let vmap = |v| s.vmap(v);
+        band::parts(
+            canvas, theme, &s.bands, c, &ext, &colors, across, vmap, total, obstacles,
+        )?;
+    }
+    Ok(())
+}
+
+/// The part names as drawn (bold width, cut to the widest a name may be).
+fn names(theme: &Theme, chart: &PartsChart) -> Vec<String> {
+    chart
+        .parts
+        .iter()
+        .map(|p| part_text(theme, &p.name))
+        .collect()
+}
+
 fn vertical(
     canvas: &Canvas,
     theme: &Theme,
@@ -281,73 +411,24 @@ fn vertical(
         axis::Across::Rows,
         Some(vmap(0.0)),
     )?;
-    let colors = colours(theme, chart);
-    let bar_w = if stacked {
-        (band * BAR_SHARE).min(140.0)
-    } else {
-        (band * GROUP_SHARE).min(60.0 * k.max(1) as f64)
-    };
-    let slot_w = if stacked {
-        bar_w
-    } else {
-        bar_w / k.max(1) as f64
-    };
-    // Where part j of category c sits across the category axis.
-    let across = |c: usize, j: usize| -> (f64, f64) {
-        let centre = plot_left + (c as f64 + 0.5) * band;
-        if stacked {
-            (centre - bar_w / 2.0, centre + bar_w / 2.0)
-        } else {
-            let left = centre - bar_w / 2.0 + j as f64 * slot_w;
-            (left + 1.0, left + slot_w - 1.0)
-        }
-    };
     let bands = Band {
         orientation: Orientation::Vertical,
         start: plot_left,
         size: band,
     };
-    for (c, cat) in chart.categories.iter().enumerate() {
-        let centre = bands.centre(c);
-        let focus = cat.role == Role::Focus;
-        for (i, line) in fit_label_at(theme.label_size, &cat.label, cat_w, cat_lines, true)
-            .iter()
-            .enumerate()
-        {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text: line,
-                    x: centre,
-                    top: cat_top + i as f64 * step,
-                    size: theme.label_size,
-                    bold: focus,
-                    color: if focus { theme.accent } else { theme.muted },
-                    align: Align::Middle,
-                },
-            )?;
-        }
-        if cat.role == Role::Hidden {
-            continue;
-        }
-        let total = stacked.then_some((cat.total_label.as_str(), cat.role));
-        let ext = extents(chart, c);
-        let across = |j| across(c, j);
-        band::parts(
-            canvas,
-            theme,
-            &bands,
-            c,
-            &ext,
-            &colors,
-            across,
-            vmap,
-            total,
-            &mut obstacles,
-        )?;
-    }
-    let zero = vmap(0.0);
+    let bar_w = if stacked {
+        (band * BAR_SHARE).min(140.0)
+    } else {
+        (band * GROUP_SHARE).min(60.0 * k.max(1) as f64)
+    };
+    let s = Slots::new(bands, dom, (value_bottom, value_top), bar_w, k, stacked);
+    let cats = Categories {
+        width: cat_w,
+        lines: cat_lines,
+        start: cat_top,
+    };
+    categories(canvas, theme, chart, &s, cats, &mut obstacles)?;
+    let zero = s.vmap(0.0);
     let baseline = (theme.baseline, theme.baseline_stroke);
     bands.rule(
         canvas,
@@ -356,8 +437,37 @@ fn vertical(
         baseline.0,
         baseline.1,
     )?;
+    let rows = (value_top.min(top + lh / 2.0), value_bottom);
+    name_parts_vertical(
+        canvas,
+        theme,
+        chart,
+        &s,
+        rows,
+        (plot_right, region),
+        &mut obstacles,
+    )
+}
 
-    if stacked {
+/// Names of the parts of vertical bars: stacked ones beside the last
+/// category with a value for each part, grouped ones in rows above the
+/// roomiest group.
+fn name_parts_vertical(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &PartsChart,
+    s: &Slots,
+    (rows_top, value_bottom): (f64, f64),
+    (plot_right, region): (f64, Region),
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
+    let names = names(theme, chart);
+    let k = chart.parts.len();
+    let g = roomiest(chart);
+    let zero = s.vmap(0.0);
+    if s.stacked {
         // Beside the last category with a value for each part.
         let mut wanted: Vec<(f64, usize, f64)> = Vec::new();
         for j in 0..k {
@@ -365,12 +475,12 @@ fn vertical(
                 .rev()
                 .find_map(|c| extents(chart, c)[j].map(|e| (c, e)));
             if let Some((c, (a, b))) = found {
-                wanted.push((vmap((a + b) / 2.0), j, across(c, j).1));
+                wanted.push((s.vmap((a + b) / 2.0), j, s.across(c, j).1));
             }
         }
         wanted.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
         let ys: Vec<f64> = wanted.iter().map(|w| w.0).collect();
-        let placed = layout::spread(&ys, step, value_top.min(top + lh / 2.0), value_bottom);
+        let placed = layout::spread(&ys, step, rows_top, value_bottom);
         let x = plot_right + PAD + 8.0;
         for (&(y0, j, bar_right), y) in wanted.iter().zip(placed) {
             let Some(label) = part_label(
@@ -384,7 +494,7 @@ fn vertical(
                 continue;
             };
             canvas.polyline(&[(bar_right + 3.0, y0), (x - 4.0, y)], theme.baseline, 1)?;
-            kit::put(canvas, &mut obstacles, &label)?;
+            kit::put(canvas, obstacles, &label)?;
         }
     } else if k > 0 {
         // Rows above the roomiest group: the rightmost bar's name lowest, so
@@ -393,12 +503,12 @@ fn vertical(
         let g_top = ext
             .iter()
             .flatten()
-            .map(|e| vmap(e.1.max(0.0)))
+            .map(|e| s.vmap(e.1.max(0.0)))
             .fold(zero, f64::min);
         for j in 0..k {
             let row = k - 1 - j;
             let label_top = g_top - 6.0 - (row as f64 + 1.0) * step + 2.0;
-            let (x0, x1) = across(g, j);
+            let (x0, x1) = s.across(g, j);
             let cx = (x0 + x1) / 2.0;
             let w = text_width(&names[j], theme.label_size, true);
             let x = (cx - 2.0).min(region.right - w).max(region.left);
@@ -412,19 +522,18 @@ fn vertical(
             ) else {
                 continue;
             };
-            let bar_top = ext[j].map(|e| vmap(e.1.max(0.0))).unwrap_or(zero);
+            let bar_top = ext[j].map(|e| s.vmap(e.1.max(0.0))).unwrap_or(zero);
             canvas.line(
                 (cx, label_top + lh + 1.0),
                 (cx, bar_top - 2.0),
                 theme.baseline,
                 1,
             )?;
-            kit::put(canvas, &mut obstacles, &label)?;
+            kit::put(canvas, obstacles, &label)?;
         }
     }
     Ok(())
 }
-
 fn horizontal(
     canvas: &Canvas,
     theme: &Theme,
@@ -586,81 +695,24 @@ fn horizontal(
         axis::Across::Columns,
         Some(vmap(0.0)),
     )?;
-    let colors = colours(theme, chart);
-    let bar_h = if stacked {
-        (band * BAR_SHARE).min(56.0)
-    } else {
-        (band * GROUP_SHARE).min(28.0 * k.max(1) as f64)
-    };
-    let slot_h = if stacked {
-        bar_h
-    } else {
-        bar_h / k.max(1) as f64
-    };
-    let across = |c: usize, j: usize| -> (f64, f64) {
-        let centre = plot_top + (c as f64 + 0.5) * band;
-        if stacked {
-            (centre - bar_h / 2.0, centre + bar_h / 2.0)
-        } else {
-            let t = centre - bar_h / 2.0 + j as f64 * slot_h;
-            (t + 1.0, t + slot_h - 1.0)
-        }
-    };
-    let label_spans: Vec<(f64, f64)> = (0..chart.categories.len())
-        .map(|c| {
-            let centre = plot_top + (c as f64 + 0.5) * band;
-            let h = (cat_lines - 1) as f64 * step + lh;
-            (centre - h / 2.0, centre + h / 2.0)
-        })
-        .collect();
-    let keep = layout::thin(&label_spans, 0.0);
     let bands = Band {
         orientation: Orientation::Horizontal,
         start: plot_top,
         size: band,
     };
-    for (c, cat) in chart.categories.iter().enumerate() {
-        let focus = cat.role == Role::Focus;
-        if keep.get(c).copied().unwrap_or(false) {
-            for (i, line) in fit_label_at(theme.label_size, &cat.label, col_w, cat_lines, true)
-                .iter()
-                .enumerate()
-            {
-                kit::put(
-                    canvas,
-                    &mut obstacles,
-                    &Label {
-                        text: line,
-                        x: col_right,
-                        top: label_spans[c].0 + i as f64 * step,
-                        size: theme.label_size,
-                        bold: focus,
-                        color: if focus { theme.accent } else { theme.muted },
-                        align: Align::End,
-                    },
-                )?;
-            }
-        }
-        if cat.role == Role::Hidden {
-            continue;
-        }
-        let total = stacked.then_some((cat.total_label.as_str(), cat.role));
-        let ext = extents(chart, c);
-        let across = |j| across(c, j);
-        band::parts(
-            canvas,
-            theme,
-            &bands,
-            c,
-            &ext,
-            &colors,
-            across,
-            vmap,
-            total,
-            &mut obstacles,
-        )?;
-    }
-    let zero = vmap(0.0);
+    let bar_h = if stacked {
+        (band * BAR_SHARE).min(56.0)
+    } else {
+        (band * GROUP_SHARE).min(28.0 * k.max(1) as f64)
+    };
+    let s = Slots::new(bands, dom, (value_left, value_right), bar_h, k, stacked);
+    let cats = Categories {
+        width: col_w,
+        lines: cat_lines,
+        start: col_right,
+    };
+    categories(canvas, theme, chart, &s, cats, &mut obstacles)?;
+    let zero = s.vmap(0.0);
     let baseline = (theme.baseline, theme.baseline_stroke);
     bands.rule(
         canvas,
@@ -669,15 +721,47 @@ fn horizontal(
         baseline.0,
         baseline.1,
     )?;
+    let across = (plot_left, plot_top, plot_bottom);
+    name_parts_horizontal(
+        canvas,
+        theme,
+        chart,
+        &s,
+        names_row_top,
+        across,
+        region,
+        &mut obstacles,
+    )
+}
 
-    if stacked {
+/// Names of the parts of horizontal bars: stacked ones in a row above the
+/// first bar, each over its segment; grouped ones right of the roomiest
+/// group, one per bar.
+#[allow(clippy::too_many_arguments)]
+fn name_parts_horizontal(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &PartsChart,
+    s: &Slots,
+    names_row_top: f64,
+    (plot_left, plot_top, plot_bottom): (f64, f64, f64),
+    region: Region,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
+    let names = names(theme, chart);
+    let k = chart.parts.len();
+    let g = roomiest(chart);
+    let zero = s.vmap(0.0);
+    if s.stacked {
         // A row of names above the first bar, each over its segment.
         let mut wanted: Vec<(f64, usize, f64)> = Vec::new();
         for j in 0..k {
             let found =
                 (0..chart.categories.len()).find_map(|c| extents(chart, c)[j].map(|e| (c, e)));
             if let Some((c, (a, b))) = found {
-                wanted.push((vmap((a + b) / 2.0), j, across(c, j).0));
+                wanted.push((s.vmap((a + b) / 2.0), j, s.across(c, j).0));
             }
         }
         wanted.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
@@ -703,7 +787,7 @@ fn horizontal(
                 theme.baseline,
                 1,
             )?;
-            kit::put(canvas, &mut obstacles, &label)?;
+            kit::put(canvas, obstacles, &label)?;
         }
     } else if k > 0 {
         // Names right of the roomiest group, one per bar, spread apart.
@@ -711,12 +795,12 @@ fn horizontal(
         let x = ext
             .iter()
             .flatten()
-            .map(|e| vmap(e.1.max(0.0)))
+            .map(|e| s.vmap(e.1.max(0.0)))
             .fold(zero, f64::max)
             + 8.0;
         let wanted: Vec<f64> = (0..k)
             .map(|j| {
-                let (y0, y1) = across(g, j);
+                let (y0, y1) = s.across(g, j);
                 (y0 + y1) / 2.0
             })
             .collect();
@@ -725,7 +809,7 @@ fn horizontal(
         for (j, y) in placed.into_iter().enumerate() {
             // Beside its own bar when the names fit the bars' rows; else
             // all past the longest bar of the group.
-            let own = ext[j].map(|e| vmap(e.1.max(0.0)) + 8.0).unwrap_or(x);
+            let own = ext[j].map(|e| s.vmap(e.1.max(0.0)) + 8.0).unwrap_or(x);
             let x = if moved { x } else { own };
             let Some(label) = part_label(
                 theme,
@@ -737,7 +821,7 @@ fn horizontal(
             ) else {
                 continue;
             };
-            kit::put(canvas, &mut obstacles, &label)?;
+            kit::put(canvas, obstacles, &label)?;
         }
     }
     Ok(())
