@@ -309,6 +309,23 @@ pub(crate) fn draw_xy_axes(
     )
 }
 
+/// An axis title: one muted line at the label size, fitted into `width`,
+/// placed at `(x, top)` by `align`.
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn title(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    theme: &Theme,
+    title: &str,
+    width: f64,
+    (x, top): (f64, f64),
+    align: Align,
+) -> Result<(), RenderError> {
+    let text = fit_one(title, width, theme.label_size);
+    let label = muted_label(theme, theme.label_size, &text, x, top, align);
+    put(canvas, obstacles, &label)
+}
+
 /// One line of text fitted into `width` at `size`.
 pub(crate) fn fit_one(text: &str, width: f64, size: f64) -> String {
     fit_label_at(size, text, width.max(0.0), 1, false).join(" ")

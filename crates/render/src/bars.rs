@@ -68,6 +68,8 @@ fn vertical(
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let domain = value_domain(chart);
+    // bar charts place nothing around their labels
+    let mut obstacles = Obstacles::default();
     let ticks = layout::visible_ticks(&chart.value);
     let tick_w = max_width(
         ticks.iter().map(|(_, l)| l.as_str()),
@@ -94,29 +96,29 @@ fn vertical(
 
     let mut top = region.top;
     if let Some(title) = chart.value.title.as_deref() {
-        let text = layout::fit_label_at(
-            theme.label_size,
+        axis::title(
+            canvas,
+            &mut obstacles,
+            theme,
             title,
             region.right - region.left,
-            1,
-            false,
-        )
-        .join(" ");
-        canvas.text(&muted_label(theme, &text, region.left, top, Align::Start))?;
+            (region.left, top),
+            Align::Start,
+        )?;
         top += lh + 8.0;
     }
     let mut bottom = region.bottom;
     if let Some(title) = chart.category_title.as_deref() {
         bottom -= lh;
-        let text = layout::fit_label_at(theme.label_size, title, plot_right - plot_left, 1, false)
-            .join(" ");
-        canvas.text(&muted_label(
+        axis::title(
+            canvas,
+            &mut obstacles,
             theme,
-            &text,
-            (plot_left + plot_right) / 2.0,
-            bottom,
+            title,
+            plot_right - plot_left,
+            ((plot_left + plot_right) / 2.0, bottom),
             Align::Middle,
-        ))?;
+        )?;
         bottom -= 6.0;
     }
     let cat_top = bottom - (cat_lines - 1) as f64 * step - lh;
@@ -128,7 +130,6 @@ fn vertical(
     }
     let vmap = |v: f64| map(v, domain, value_bottom, value_top);
 
-    let mut obstacles = Obstacles::default();
     let (size, right) = (theme.label_size, region.left + tick_w);
     axis::column(
         canvas,
@@ -233,19 +234,21 @@ fn horizontal(
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let domain = value_domain(chart);
+    // bar charts place nothing around their labels
+    let mut obstacles = Obstacles::default();
     let _ticks = layout::visible_ticks(&chart.value);
 
     let mut top = region.top;
     if let Some(title) = chart.category_title.as_deref() {
-        let text = layout::fit_label_at(
-            theme.label_size,
+        axis::title(
+            canvas,
+            &mut obstacles,
+            theme,
             title,
             region.right - region.left,
-            1,
-            false,
-        )
-        .join(" ");
-        canvas.text(&muted_label(theme, &text, region.left, top, Align::Start))?;
+            (region.left, top),
+            Align::Start,
+        )?;
         top += lh + 8.0;
     }
     let plot_top = top;
@@ -297,15 +300,15 @@ fn horizontal(
     let vmap = |v: f64| map(v, domain, value_left, value_right);
 
     if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
-        let text = layout::fit_label_at(theme.label_size, title, plot_right - plot_left, 1, false)
-            .join(" ");
-        canvas.text(&muted_label(
+        axis::title(
+            canvas,
+            &mut obstacles,
             theme,
-            &text,
-            (value_left + value_right) / 2.0,
-            t,
+            title,
+            plot_right - plot_left,
+            ((value_left + value_right) / 2.0, t),
             Align::Middle,
-        ))?;
+        )?;
     }
     let row = axis::Row {
         top: tick_top,
@@ -315,7 +318,6 @@ fn horizontal(
         fit: axis::Fit::AsWritten,
         keep_left: false,
     };
-    let mut obstacles = Obstacles::default();
     axis::row(
         canvas,
         &mut obstacles,

@@ -7,7 +7,7 @@
 
 use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, mix, muted_label, spread_widths, Obstacles};
+use crate::kit::{self, mix, spread_widths, Obstacles};
 use crate::layout::{self, fit_label_at, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
@@ -34,25 +34,14 @@ pub(crate) fn draw(
     let mut obstacles = Obstacles::default();
     let mut top = region.top;
     if let Some(title) = chart.category_title.as_deref() {
-        let text = fit_label_at(
-            theme.label_size,
-            title,
-            region.right - region.left,
-            1,
-            false,
-        )
-        .join(" ");
-        kit::put(
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                region.left,
-                top,
-                Align::Start,
-            ),
+            theme,
+            title,
+            region.right - region.left,
+            (region.left, top),
+            Align::Start,
         )?;
         top += lh + 8.0;
     }
@@ -87,19 +76,14 @@ pub(crate) fn draw(
     let vmap = |v: f64| map(v, chart.value.domain, value_left, value_right);
 
     if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
-        let text =
-            fit_label_at(theme.label_size, title, value_right - value_left, 1, false).join(" ");
-        kit::put(
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                (value_left + value_right) / 2.0,
-                t,
-                Align::Middle,
-            ),
+            theme,
+            title,
+            value_right - value_left,
+            ((value_left + value_right) / 2.0, t),
+            Align::Middle,
         )?;
     }
     let row = axis::Row {

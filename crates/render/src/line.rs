@@ -34,42 +34,22 @@ pub(crate) fn draw(
 
     // Axis titles.
     if let (Some(top), Some(title)) = (l.y_title_top, chart.y.title.as_deref()) {
-        let text = layout::fit_label_at(theme.label_size, title, full, 1, false).join(" ");
-        kit::put(
-            canvas,
-            &mut obstacles,
-            &Label {
-                text: &text,
-                x: l.tick_column_left,
-                top,
-                size: theme.label_size,
-                bold: false,
-                color: theme.muted,
-                align: Align::Start,
-            },
-        )?;
+        let at = (l.tick_column_left, top);
+        axis::title(canvas, &mut obstacles, theme, title, full, at, Align::Start)?;
     }
     if let (Some(top), Some(title)) = (l.x_title_top, chart.x.title.as_deref()) {
-        let text = layout::fit_label_at(
-            theme.label_size,
-            title,
+        let (width, centre) = (
             l.plot_right - l.plot_left,
-            1,
-            false,
-        )
-        .join(" ");
-        kit::put(
+            (l.plot_left + l.plot_right) / 2.0,
+        );
+        axis::title(
             canvas,
             &mut obstacles,
-            &Label {
-                text: &text,
-                x: (l.plot_left + l.plot_right) / 2.0,
-                top,
-                size: theme.label_size,
-                bold: false,
-                color: theme.muted,
-                align: Align::Middle,
-            },
+            theme,
+            title,
+            width,
+            (centre, top),
+            Align::Middle,
         )?;
     }
 

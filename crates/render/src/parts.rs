@@ -11,7 +11,7 @@
 use crate::axis;
 use crate::band::{self, Band, VALUE_GAP};
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, context_greys, muted_label, spread_widths, Obstacles};
+use crate::kit::{self, context_greys, spread_widths, Obstacles};
 use crate::layout::{self, fit_label_at, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::{Rgb, Theme};
@@ -318,44 +318,28 @@ fn vertical(
 
     let mut top = region.top;
     if let Some(title) = chart.value.title.as_deref() {
-        let text = fit_label_at(
-            theme.label_size,
-            title,
-            region.right - region.left,
-            1,
-            false,
-        )
-        .join(" ");
-        kit::put(
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                region.left,
-                top,
-                Align::Start,
-            ),
+            theme,
+            title,
+            region.right - region.left,
+            (region.left, top),
+            Align::Start,
         )?;
         top += lh + 8.0;
     }
     let mut bottom = region.bottom;
     if let Some(title) = chart.category_title.as_deref() {
         bottom -= lh;
-        let text =
-            fit_label_at(theme.label_size, title, plot_right - plot_left, 1, false).join(" ");
-        kit::put(
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                (plot_left + plot_right) / 2.0,
-                bottom,
-                Align::Middle,
-            ),
+            theme,
+            title,
+            plot_right - plot_left,
+            ((plot_left + plot_right) / 2.0, bottom),
+            Align::Middle,
         )?;
         bottom -= 6.0;
     }
@@ -554,25 +538,14 @@ fn horizontal(
 
     let mut top = region.top;
     if let Some(title) = chart.category_title.as_deref() {
-        let text = fit_label_at(
-            theme.label_size,
-            title,
-            region.right - region.left,
-            1,
-            false,
-        )
-        .join(" ");
-        kit::put(
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                region.left,
-                top,
-                Align::Start,
-            ),
+            theme,
+            title,
+            region.right - region.left,
+            (region.left, top),
+            Align::Start,
         )?;
         top += lh + 8.0;
     }
@@ -652,19 +625,14 @@ fn horizontal(
     let vmap = |v: f64| map(v, dom, value_left, value_right);
 
     if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
-        let text =
-            fit_label_at(theme.label_size, title, plot_right - plot_left, 1, false).join(" ");
-        kit::put(
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                (value_left + value_right) / 2.0,
-                t,
-                Align::Middle,
-            ),
+            theme,
+            title,
+            plot_right - plot_left,
+            ((value_left + value_right) / 2.0, t),
+            Align::Middle,
         )?;
     }
     let row = axis::Row {
