@@ -164,14 +164,7 @@ pub(crate) fn xy_layout(
         top += lh + 8.0;
         t
     });
-    let mut bottom = region.bottom;
-    let x_title_top = x.title.as_ref().map(|_| {
-        bottom -= lh;
-        let t = bottom;
-        bottom -= 4.0;
-        t
-    });
-    let x_tick_top = bottom - lh;
+    let (x_title_top, x_tick_top, plot_bottom) = bottom_rows(region.bottom, lh, x.title.is_some());
     let ticks = layout::visible_ticks(y);
     let tick_w = if y_ticks {
         max_width(ticks.iter().map(|(_, l)| l.as_str()), size, false)
@@ -190,7 +183,7 @@ pub(crate) fn xy_layout(
         },
         plot_right: region.right - right_reserve,
         plot_top: top + lh / 2.0,
-        plot_bottom: x_tick_top - 8.0,
+        plot_bottom,
         x_tick_top,
         size,
     }
@@ -324,6 +317,21 @@ pub(crate) fn title(
     let text = fit_one(title, width, theme.label_size);
     let label = muted_label(theme, theme.label_size, &text, x, top, align);
     put(canvas, obstacles, &label)
+}
+
+/// The rows under a plot, from the `bottom` of the region up: an axis
+/// title when `titled`, then the tick labels. Returns the title's top, the
+/// ticks' top and the plot's bottom.
+pub(crate) fn bottom_rows(bottom: f64, lh: f64, titled: bool) -> (Option<f64>, f64, f64) {
+    let mut bottom = bottom;
+    let title_top = titled.then(|| {
+        bottom -= lh;
+        let t = bottom;
+        bottom -= 4.0;
+        t
+    });
+    let tick_top = bottom - lh;
+    (title_top, tick_top, tick_top - 8.0)
 }
 
 /// One line of text fitted into `width` at `size`.

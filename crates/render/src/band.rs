@@ -76,6 +76,18 @@ impl Band {
     }
 }
 
+/// The column of category names beside horizontal bars: as wide as the
+/// widest name up to `cap`, and two lines when a name is wider than that
+/// and a band has room for two. Returns the width and the line count.
+pub(crate) fn name_column(widest: f64, cap: f64, band: f64, step: f64) -> (f64, usize) {
+    let lines = if widest > cap && band >= 2.0 * step {
+        2
+    } else {
+        1
+    };
+    (widest.min(cap), lines)
+}
+
 /// One bar of a bar chart: its mark from `zero` to `end` and, in focus, its
 /// value at the end.
 #[allow(clippy::too_many_arguments)]

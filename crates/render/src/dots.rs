@@ -51,15 +51,8 @@ pub(crate) fn draw(
         top += lh + 6.0;
     }
     let plot_top = top;
-    let mut bottom = region.bottom;
-    let value_title_top = chart.value.title.as_ref().map(|_| {
-        bottom -= lh;
-        let t = bottom;
-        bottom -= 4.0;
-        t
-    });
-    let tick_top = bottom - lh;
-    let plot_bottom = tick_top - 8.0;
+    let titled = chart.value.title.is_some();
+    let (value_title_top, tick_top, plot_bottom) = axis::bottom_rows(region.bottom, lh, titled);
 
     let widest = max_width(
         chart.rows.iter().map(|r| r.label.as_str()),

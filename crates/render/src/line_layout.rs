@@ -38,15 +38,9 @@ pub(crate) fn layout(chart: &LineChart, region: Region, theme: &Theme) -> LineLa
     });
     let plot_top = top + lh / 2.0;
 
-    let mut bottom = region.bottom;
-    let x_title_top = chart.x.title.as_ref().map(|_| {
-        bottom -= lh;
-        let t = bottom;
-        bottom -= 4.0;
-        t
-    });
-    let x_tick_top = bottom - lh;
-    let plot_bottom = x_tick_top - 8.0;
+    let titled = chart.x.title.is_some();
+    let (x_title_top, x_tick_top, plot_bottom) =
+        crate::axis::bottom_rows(region.bottom, lh, titled);
 
     let y_ticks = layout::visible_ticks(&chart.y);
     let tick_w = max_width(

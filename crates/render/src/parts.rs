@@ -554,15 +554,8 @@ fn horizontal(
         top += lh + 12.0;
     }
     let plot_top = top;
-    let mut bottom = region.bottom;
-    let value_title_top = chart.value.title.as_ref().map(|_| {
-        bottom -= lh;
-        let t = bottom;
-        bottom -= 4.0;
-        t
-    });
-    let tick_top = bottom - lh;
-    let plot_bottom = tick_top - 8.0;
+    let titled = chart.value.title.is_some();
+    let (value_title_top, tick_top, plot_bottom) = axis::bottom_rows(region.bottom, lh, titled);
 
     let n = chart.categories.len().max(1);
     let band = (plot_bottom - plot_top) / n as f64;
@@ -572,12 +565,7 @@ fn horizontal(
         theme.label_size,
         true,
     );
-    let col_w = widest.min(cap);
-    let cat_lines = if widest > cap && band >= 2.0 * step {
-        2
-    } else {
-        1
-    };
+    let (col_w, cat_lines) = band::name_column(widest, cap, band, step);
     let col_right = region.left + col_w;
     let plot_left = col_right + PAD;
     let plot_right = region.right;
