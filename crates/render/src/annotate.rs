@@ -104,12 +104,24 @@ pub(crate) fn draw_over(
     l: &LineLayout,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let (xm, ym) = (xmap(chart, l), ymap(chart, l));
+    band_names(canvas, theme, chart, l, obstacles)?;
+    reference_names(canvas, theme, chart, l, obstacles)?;
+    end_values(canvas, theme, chart, l, obstacles)?;
+    callouts(canvas, theme, chart, l, obstacles)
+}
+
+/// Band names at the top left inside the band, a row lower if taken.
+fn band_names(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &LineChart,
+    l: &LineLayout,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let xm = xmap(chart, l);
     let lh = line_height(theme.label_size);
     let area = bounds(theme, l);
     let plot_w = l.plot_right - l.plot_left;
-
-    // Band names at the top left inside the band, a row lower if taken.
     for a in &chart.annotations {
         let Annotation::Band {
             from,
@@ -142,9 +154,22 @@ pub(crate) fn draw_over(
             kit::put(canvas, obstacles, &plain(theme, &text, r))?;
         }
     }
+    Ok(())
+}
 
-    // Reference names at the right end, above the line (else below, else
-    // at the left end).
+/// Reference names at the right end, above the line (else below, else at
+/// the left end).
+fn reference_names(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &LineChart,
+    l: &LineLayout,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let ym = ymap(chart, l);
+    let lh = line_height(theme.label_size);
+    let area = bounds(theme, l);
+    let plot_w = l.plot_right - l.plot_left;
     for a in &chart.annotations {
         let Annotation::Reference { value, text } = a else {
             continue;
@@ -198,9 +223,21 @@ pub(crate) fn draw_over(
             kit::put(canvas, obstacles, &plain(theme, &text, r))?;
         }
     }
+    Ok(())
+}
 
-    // Values at the first and last point of the focus lines (of every
-    // visible line when none is in focus), as the plan wrote them.
+/// Values at the first and last point of the focus lines (of every
+/// visible line when none is in focus), as the plan wrote them.
+fn end_values(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &LineChart,
+    l: &LineLayout,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let (xm, ym) = (xmap(chart, l), ymap(chart, l));
+    let lh = line_height(theme.label_size);
+    let area = bounds(theme, l);
     if chart.end_labels {
         for s in &chart.series {
             if s.end_values.is_empty() {
@@ -280,8 +317,21 @@ pub(crate) fn draw_over(
             }
         }
     }
+    Ok(())
+}
 
-    // Callouts last: they have the most freedom.
+/// Callouts, last: they have the most freedom.
+fn callouts(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &LineChart,
+    l: &LineLayout,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let (xm, ym) = (xmap(chart, l), ymap(chart, l));
+    let lh = line_height(theme.label_size);
+    let area = bounds(theme, l);
+    let plot_w = l.plot_right - l.plot_left;
     for a in &chart.annotations {
         let Annotation::Callout { x, y, text } = a else {
             continue;
