@@ -17,7 +17,7 @@ use crate::line;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::{Rgb, Theme};
 use crate::RenderError;
-use crescendo_frame::{Axis, Chart, Orientation, PanelChart, Role};
+use crescendo_frame::{Axis, BarChart, Chart, LineChart, Orientation, PanelChart, Role};
 
 /// Panels per row at most.
 const MAX_COLUMNS: usize = 4;
@@ -235,184 +235,15 @@ pub(crate) fn draw(
         };
         match &panel.chart {
             Chart::Line(l) => {
-                value_ticks(canvas, theme, &l.y, dom, &g, ticks_here, &mut obstacles)?;
-                x_ticks(canvas, theme, &l.x, &g, &mut obstacles)?;
-                let xmap = |x: f64| map(x, l.x.domain, g.left, g.right);
-                let ymap = |y: f64| map(y, dom, g.bottom, g.top);
-                axis::gridlines(
-                    canvas,
-                    theme,
-                    &l.y,
-                    ymap,
-                    g.left,
-                    g.right,
-                    axis::Across::Rows,
-                    Some(g.bottom),
-                )?;
-                baseline(canvas, theme, &g, false)?;
-                let target = (2.0 * (g.right - g.left)).max(3.0) as usize;
-                for pass in [Role::Context, Role::Focus] {
-                    for s in &l.series {
-                        let Some(color) = mark_colour(theme, panel.role, s.role) else {
-                            continue;
-                        };
-                        let is_focus = color == theme.accent;
-                        if is_focus != (pass == Role::Focus) {
-                            continue;
-                        }
-                        let w = if is_focus {
-                            theme.focus_stroke.min(3)
-                        } else {
-                            theme.context_stroke
-                        };
-                        line::draw_runs(canvas, &line::runs(s, &xmap, &ymap), target, color, w)?;
-                    }
-                }
+                let at = (dom, ticks_here);
+                line_panel(canvas, theme, l, panel.role, at, &g, &mut obstacles)?;
             }
             Chart::Bars(b) if across_bars => {
-                let vmap = |v: f64| map(v, dom, g.left, g.right);
-                axis::gridlines(
-                    canvas,
-                    theme,
-                    &b.value,
-                    vmap,
-                    g.top,
-                    g.bottom,
-                    axis::Across::Columns,
-                    Some(vmap(0.0)),
-                )?;
-                // Value ticks along the bottom of every panel.
-                let row = axis::Row {
-                    top: g.tick_top,
-                    lo: g.left,
-                    hi: g.right,
-                    gap: 8.0,
-                    fit: axis::Fit::AsWritten,
-                    keep_left: true,
-                };
-                let size = theme.source_size;
-                axis::row(canvas, &mut obstacles, theme, size, &b.value, vmap, row)?;
-                let nb = b.bars.len().max(1);
-                let band = (g.bottom - g.top) / nb as f64;
-                let spans: Vec<(f64, f64)> = (0..b.bars.len())
-                    .map(|k| {
-                        let c = g.top + (k as f64 + 0.5) * band;
-                        (c - slh / 2.0, c + slh / 2.0)
-                    })
-                    .collect();
-                let keep = layout::thin(&spans, 0.0);
-                for (k, bar) in b.bars.iter().enumerate() {
-                    let c = g.top + (k as f64 + 0.5) * band;
-                    if keep.get(k).copied().unwrap_or(false) {
-                        let text = metrics::ellipsize(
-                            &metrics::normalize(&bar.label),
-                            theme.source_size,
-                            false,
-                            g.lead_w,
-                        );
-                        kit::put(
-                            canvas,
-                            &mut obstacles,
-                            &muted_label(
-                                theme,
-                                theme.source_size,
-                                &text,
-                                g.lead_right,
-                                c - slh / 2.0,
-                                Align::End,
-                            ),
-                        )?;
-                    }
-                    let (Some(color), Some(v)) = (
-                        mark_colour(theme, panel.role, bar.role),
-                        bar.value.filter(|v| v.is_finite()),
-                    ) else {
-                        continue;
-                    };
-                    let h = (band * 0.62).min(40.0);
-                    canvas.rect((vmap(0.0), c - h / 2.0), (vmap(v), c + h / 2.0), color)?;
-                }
-                let z = vmap(0.0);
-                canvas.line(
-                    (z, g.top),
-                    (z, g.bottom),
-                    theme.baseline,
-                    theme.baseline_stroke,
-                )?;
+                bars_across(canvas, theme, b, panel.role, dom, &g, &mut obstacles)?;
             }
             Chart::Bars(b) => {
-                value_ticks(canvas, theme, &b.value, dom, &g, ticks_here, &mut obstacles)?;
-                let vmap = |v: f64| map(v, dom, g.bottom, g.top);
-                axis::gridlines(
-                    canvas,
-                    theme,
-                    &b.value,
-                    vmap,
-                    g.left,
-                    g.right,
-                    axis::Across::Rows,
-                    Some(vmap(0.0)),
-                )?;
-                let nb = b.bars.len().max(1);
-                let band = (g.right - g.left) / nb as f64;
-                let spans: Vec<(f64, f64)> = b
-                    .bars
-                    .iter()
-                    .enumerate()
-                    .map(|(k, bar)| {
-                        let c = g.left + (k as f64 + 0.5) * band;
-                        let w = text_width(
-                            &metrics::ellipsize(
-                                &metrics::normalize(&bar.label),
-                                theme.source_size,
-                                false,
-                                band - 4.0,
-                            ),
-                            theme.source_size,
-                            false,
-                        );
-                        (c - w / 2.0, c + w / 2.0)
-                    })
-                    .collect();
-                let keep = layout::thin(&spans, 6.0);
-                for (k, bar) in b.bars.iter().enumerate() {
-                    let c = g.left + (k as f64 + 0.5) * band;
-                    if keep.get(k).copied().unwrap_or(false) {
-                        let text = metrics::ellipsize(
-                            &metrics::normalize(&bar.label),
-                            theme.source_size,
-                            false,
-                            band - 4.0,
-                        );
-                        kit::put(
-                            canvas,
-                            &mut obstacles,
-                            &muted_label(
-                                theme,
-                                theme.source_size,
-                                &text,
-                                c,
-                                g.tick_top,
-                                Align::Middle,
-                            ),
-                        )?;
-                    }
-                    let (Some(color), Some(v)) = (
-                        mark_colour(theme, panel.role, bar.role),
-                        bar.value.filter(|v| v.is_finite()),
-                    ) else {
-                        continue;
-                    };
-                    let w = (band * 0.62).min(60.0);
-                    canvas.rect((c - w / 2.0, vmap(0.0)), (c + w / 2.0, vmap(v)), color)?;
-                }
-                let z = vmap(0.0);
-                canvas.line(
-                    (g.left, z),
-                    (g.right, z),
-                    theme.baseline,
-                    theme.baseline_stroke,
-                )?;
+                let at = (dom, ticks_here);
+                bars_up(canvas, theme, b, panel.role, at, &g, &mut obstacles)?;
             }
             _ => {}
         }
@@ -432,6 +263,223 @@ pub(crate) fn draw(
             ),
         )?;
     }
+    Ok(())
+}
+
+/// A line chart in one panel: its ticks, gridlines, baseline and lines
+/// (context first, focus on top).
+fn line_panel(
+    canvas: &Canvas,
+    theme: &Theme,
+    l: &LineChart,
+    role: Role,
+    (dom, ticks_here): ([f64; 2], bool),
+    g: &Geom,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    value_ticks(canvas, theme, &l.y, dom, g, ticks_here, obstacles)?;
+    x_ticks(canvas, theme, &l.x, g, obstacles)?;
+    let xmap = |x: f64| map(x, l.x.domain, g.left, g.right);
+    let ymap = |y: f64| map(y, dom, g.bottom, g.top);
+    axis::gridlines(
+        canvas,
+        theme,
+        &l.y,
+        ymap,
+        g.left,
+        g.right,
+        axis::Across::Rows,
+        Some(g.bottom),
+    )?;
+    baseline(canvas, theme, g, false)?;
+    let target = (2.0 * (g.right - g.left)).max(3.0) as usize;
+    for pass in [Role::Context, Role::Focus] {
+        for s in &l.series {
+            let Some(color) = mark_colour(theme, role, s.role) else {
+                continue;
+            };
+            let is_focus = color == theme.accent;
+            if is_focus != (pass == Role::Focus) {
+                continue;
+            }
+            let w = if is_focus {
+                theme.focus_stroke.min(3)
+            } else {
+                theme.context_stroke
+            };
+            line::draw_runs(canvas, &line::runs(s, &xmap, &ymap), target, color, w)?;
+        }
+    }
+    Ok(())
+}
+
+/// Horizontal bars in one panel: value ticks along the bottom, category
+/// names in the lead column, bars rightwards from zero.
+fn bars_across(
+    canvas: &Canvas,
+    theme: &Theme,
+    b: &BarChart,
+    role: Role,
+    dom: [f64; 2],
+    g: &Geom,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let slh = line_height(theme.source_size);
+    let vmap = |v: f64| map(v, dom, g.left, g.right);
+    axis::gridlines(
+        canvas,
+        theme,
+        &b.value,
+        vmap,
+        g.top,
+        g.bottom,
+        axis::Across::Columns,
+        Some(vmap(0.0)),
+    )?;
+    // Value ticks along the bottom of every panel.
+    let row = axis::Row {
+        top: g.tick_top,
+        lo: g.left,
+        hi: g.right,
+        gap: 8.0,
+        fit: axis::Fit::AsWritten,
+        keep_left: true,
+    };
+    let size = theme.source_size;
+    axis::row(canvas, obstacles, theme, size, &b.value, vmap, row)?;
+    let nb = b.bars.len().max(1);
+    let band = (g.bottom - g.top) / nb as f64;
+    let spans: Vec<(f64, f64)> = (0..b.bars.len())
+        .map(|k| {
+            let c = g.top + (k as f64 + 0.5) * band;
+            (c - slh / 2.0, c + slh / 2.0)
+        })
+        .collect();
+    let keep = layout::thin(&spans, 0.0);
+    for (k, bar) in b.bars.iter().enumerate() {
+        let c = g.top + (k as f64 + 0.5) * band;
+        if keep.get(k).copied().unwrap_or(false) {
+            let text = metrics::ellipsize(
+                &metrics::normalize(&bar.label),
+                theme.source_size,
+                false,
+                g.lead_w,
+            );
+            kit::put(
+                canvas,
+                obstacles,
+                &muted_label(
+                    theme,
+                    theme.source_size,
+                    &text,
+                    g.lead_right,
+                    c - slh / 2.0,
+                    Align::End,
+                ),
+            )?;
+        }
+        let (Some(color), Some(v)) = (
+            mark_colour(theme, role, bar.role),
+            bar.value.filter(|v| v.is_finite()),
+        ) else {
+            continue;
+        };
+        let h = (band * 0.62).min(40.0);
+        canvas.rect((vmap(0.0), c - h / 2.0), (vmap(v), c + h / 2.0), color)?;
+    }
+    let z = vmap(0.0);
+    canvas.line(
+        (z, g.top),
+        (z, g.bottom),
+        theme.baseline,
+        theme.baseline_stroke,
+    )?;
+    Ok(())
+}
+
+/// Vertical bars in one panel: value ticks in the lead column, category
+/// names under the bars, bars upwards from zero.
+fn bars_up(
+    canvas: &Canvas,
+    theme: &Theme,
+    b: &BarChart,
+    role: Role,
+    (dom, ticks_here): ([f64; 2], bool),
+    g: &Geom,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    value_ticks(canvas, theme, &b.value, dom, g, ticks_here, obstacles)?;
+    let vmap = |v: f64| map(v, dom, g.bottom, g.top);
+    axis::gridlines(
+        canvas,
+        theme,
+        &b.value,
+        vmap,
+        g.left,
+        g.right,
+        axis::Across::Rows,
+        Some(vmap(0.0)),
+    )?;
+    let nb = b.bars.len().max(1);
+    let band = (g.right - g.left) / nb as f64;
+    let spans: Vec<(f64, f64)> = b
+        .bars
+        .iter()
+        .enumerate()
+        .map(|(k, bar)| {
+            let c = g.left + (k as f64 + 0.5) * band;
+            let w = text_width(
+                &metrics::ellipsize(
+                    &metrics::normalize(&bar.label),
+                    theme.source_size,
+                    false,
+                    band - 4.0,
+                ),
+                theme.source_size,
+                false,
+            );
+            (c - w / 2.0, c + w / 2.0)
+        })
+        .collect();
+    let keep = layout::thin(&spans, 6.0);
+    for (k, bar) in b.bars.iter().enumerate() {
+        let c = g.left + (k as f64 + 0.5) * band;
+        if keep.get(k).copied().unwrap_or(false) {
+            let text = metrics::ellipsize(
+                &metrics::normalize(&bar.label),
+                theme.source_size,
+                false,
+                band - 4.0,
+            );
+            kit::put(
+                canvas,
+                obstacles,
+                &muted_label(
+                    theme,
+                    theme.source_size,
+                    &text,
+                    c,
+                    g.tick_top,
+                    Align::Middle,
+                ),
+            )?;
+        }
+        let (Some(color), Some(v)) = (
+            mark_colour(theme, role, bar.role),
+            bar.value.filter(|v| v.is_finite()),
+        ) else {
+            continue;
+        };
+        let w = (band * 0.62).min(60.0);
+        canvas.rect((c - w / 2.0, vmap(0.0)), (c + w / 2.0, vmap(v)), color)?;
+    }
+    let z = vmap(0.0);
+    canvas.line(
+        (g.left, z),
+        (g.right, z),
+        theme.baseline,
+        theme.baseline_stroke,
+    )?;
     Ok(())
 }
 
