@@ -96,18 +96,15 @@ pub(crate) fn draw(
     };
     let mut top = region.top;
     if let Some(title) = measure_title.as_deref() {
-        let text = axis::fit_one(title, region.right - region.left, theme.label_size);
-        kit::put(
+        let (width, at) = (region.right - region.left, (region.left, top));
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                region.left,
-                top,
-                Align::Start,
-            ),
+            theme,
+            title,
+            width,
+            at,
+            Align::Start,
         )?;
         top += lh + 8.0;
     }
@@ -122,34 +119,7 @@ pub(crate) fn draw(
     // The lead column left of each plot: y ticks (lines, vertical bars) or
     // category names (horizontal bars). With one common, untrimmed scale
     // the ticks are written only in the first column.
-    let lead_w = if across_bars {
-        let widest = chart
-            .panels
-            .iter()
-            .filter_map(|p| match &p.chart {
-                Chart::Bars(b) => Some(max_width(
-                    b.bars.iter().map(|b| b.label.as_str()),
-                    theme.source_size,
-                    false,
-                )),
-                _ => None,
-            })
-            .fold(0.0, f64::max);
-        widest.min((region.right - region.left) / cols as f64 * 0.4)
-    } else {
-        chart
-            .panels
-            .iter()
-            .filter_map(|p| value_axis(&p.chart))
-            .map(|a| {
-                max_width(
-                    layout::visible_ticks(a).iter().map(|(_, l)| l.as_str()),
-                    theme.source_size,
-                    false,
-                )
-            })
-            .fold(0.0, f64::max)
-    };
+    let lead_w = lead_width(theme, chart, across_bars, region, cols);
     let lead = if lead_w > 0.0 { lead_w + PAD } else { 0.0 };
     let shared_ticks = chart.common_scale && !chart.trimmed && !across_bars;
     let width = region.right - region.left;
@@ -249,18 +219,15 @@ pub(crate) fn draw(
         }
     }
     if let (Some(t), Some(title)) = (other_top, other_title.as_deref()) {
-        let text = axis::fit_one(title, width, theme.label_size);
-        kit::put(
+        let at = ((region.left + region.right) / 2.0, t);
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                (region.left + region.right) / 2.0,
-                t,
-                Align::Middle,
-            ),
+            theme,
+            title,
+            width,
+            at,
+            Align::Middle,
         )?;
     }
     Ok(())
@@ -481,6 +448,46 @@ fn bars_up(
         theme.baseline_stroke,
     )?;
     Ok(())
+}
+
+/// The width of the lead column left of each plot: the widest category
+/// name of horizontal bars (at most 40% of a column), else the widest tick
+/// label of any panel's value axis.
+fn lead_width(
+    theme: &Theme,
+    chart: &PanelChart,
+    across_bars: bool,
+    region: Region,
+    cols: usize,
+) -> f64 {
+    if across_bars {
+        let widest = chart
+            .panels
+            .iter()
+            .filter_map(|p| match &p.chart {
+                Chart::Bars(b) => Some(max_width(
+                    b.bars.iter().map(|b| b.label.as_str()),
+                    theme.source_size,
+                    false,
+                )),
+                _ => None,
+            })
+            .fold(0.0, f64::max);
+        widest.min((region.right - region.left) / cols as f64 * 0.4)
+    } else {
+        chart
+            .panels
+            .iter()
+            .filter_map(|p| value_axis(&p.chart))
+            .map(|a| {
+                max_width(
+                    layout::visible_ticks(a).iter().map(|(_, l)| l.as_str()),
+                    theme.source_size,
+                    false,
+                )
+            })
+            .fold(0.0, f64::max)
+    }
 }
 
 /// One panel's plot rectangle and where its labels go.

@@ -110,6 +110,36 @@ fn part_label<'a>(
     })
 }
 
+/// Grouped bars name their parts beside the roomiest group: moves the
+/// position `end` of the top of the value domain (`start` is its bottom) by
+/// `sign` × the room `need(position of that group's end)` asks for, until it
+/// asks for none (at most 32 times). Stacked bars keep `end`.
+fn fit_scale(
+    chart: &PartsChart,
+    dom: [f64; 2],
+    start: f64,
+    mut end: f64,
+    sign: f64,
+    need: impl Fn(f64) -> f64,
+) -> f64 {
+    if chart.mode == PartsMode::Stacked || chart.parts.is_empty() {
+        return end;
+    }
+    let g_end = extents(chart, roomiest(chart))
+        .iter()
+        .flatten()
+        .map(|e| e.1.max(0.0))
+        .fold(0.0, f64::max);
+    for _ in 0..32 {
+        let more = need(map(g_end, dom, start, end));
+        if more <= 0.5 {
+            break;
+        }
+        end += sign * more;
+    }
+    end
+}
+
 /// The category whose tallest part is lowest: where grouped labels have
 /// the most room.
 fn roomiest(chart: &PartsChart) -> usize {
@@ -350,28 +380,16 @@ fn vertical(
     }
     // Totals need a line above the bars; grouped labels need rows above the
     // roomiest group, found by moving the top of the scale down until they fit.
-    let mut value_top = if stacked {
+    let value_top = if stacked {
         top + lh + VALUE_GAP
     } else {
         top + lh / 2.0 + 2.0
     };
-    let g = roomiest(chart);
     let k = chart.parts.len();
-    if !stacked && k > 0 {
-        let g_top = extents(chart, g)
-            .iter()
-            .flatten()
-            .map(|e| e.1.max(0.0))
-            .fold(0.0, f64::max);
-        for _ in 0..32 {
-            let y = map(g_top, dom, value_bottom, value_top);
-            let need = top - (y - 6.0 - k as f64 * step);
-            if need <= 0.5 {
-                break;
-            }
-            value_top += need;
-        }
-    }
+    let rows = k as f64 * step;
+    let value_top = fit_scale(chart, dom, value_bottom, value_top, 1.0, |y| {
+        top - (y - 6.0 - rows)
+    });
     let vmap = |v: f64| map(v, dom, value_bottom, value_top);
 
     let (size, right) = (theme.label_size, region.left + tick_w);
@@ -590,26 +608,11 @@ fn horizontal(
         0.0
     };
     let value_left = plot_left + left_pad;
-    let mut value_right = plot_right - right_pad;
     // Grouped names go right of the roomiest group: pull the end of the
     // scale in until they fit.
-    let g = roomiest(chart);
     let names_w = max_width(names.iter().map(String::as_str), theme.label_size, true);
-    if !stacked && k > 0 {
-        let g_end = extents(chart, g)
-            .iter()
-            .flatten()
-            .map(|e| e.1.max(0.0))
-            .fold(0.0, f64::max);
-        for _ in 0..32 {
-            let x = map(g_end, dom, value_left, value_right);
-            let need = x + 8.0 + names_w - region.right;
-            if need <= 0.5 {
-                break;
-            }
-            value_right -= need;
-        }
-    }
+    let over = |x: f64| x + 8.0 + names_w - region.right;
+    let value_right = fit_scale(chart, dom, value_left, plot_right - right_pad, -1.0, over);
     let vmap = |v: f64| map(v, dom, value_left, value_right);
 
     if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
