@@ -12,7 +12,7 @@ use crate::layout::{self, fit_label_at, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_frame::{DotChart, Role};
+use crescendo_frame::{DotChart, DotRow, Role};
 
 /// Dot radius in px (smaller when rows are tight).
 const DOT: f64 = 6.0;
@@ -120,7 +120,6 @@ pub(crate) fn draw(
         .collect();
     let keep = layout::thin(&spans, 0.0);
     let any_focus_series = chart.series.iter().any(|s| s.role == Role::Focus);
-    let range_color = mix(theme.context, theme.page, 0.45);
     for (i, row) in chart.rows.iter().enumerate() {
         let y = centre(i);
         if keep.get(i).copied().unwrap_or(false) && row.role != Role::Hidden {
@@ -144,81 +143,123 @@ pub(crate) fn draw(
         if row.role == Role::Hidden {
             continue;
         }
-        let visible: Vec<(f64, Role)> = chart
-            .series
-            .iter()
-            .zip(&row.values)
-            .filter(|(s, _)| s.role != Role::Hidden)
-            .filter_map(|(s, v)| v.filter(|v| v.is_finite()).map(|v| (vmap(v), s.role)))
-            .collect();
-        if visible.len() > 1 {
-            let lo = visible.iter().map(|v| v.0).fold(f64::INFINITY, f64::min);
-            let hi = visible
-                .iter()
-                .map(|v| v.0)
-                .fold(f64::NEG_INFINITY, f64::max);
-            canvas.line((lo, y), (hi, y), range_color, 2)?;
-        }
-        // Context dots first, focus dots on top.
-        for pass in [false, true] {
-            for &(x, role) in &visible {
-                let focus = role == Role::Focus || (!any_focus_series && row.role == Role::Focus);
-                if focus == pass {
-                    let color = if focus { theme.accent } else { theme.context };
-                    canvas.dot((x, y), radius.round() as u32, color)?;
-                }
-            }
-        }
+        let focus_row = !any_focus_series && row.role == Role::Focus;
+        row_marks(canvas, theme, chart, row, (y, radius), vmap, focus_row)?;
     }
 
     // Series names above the top row, over each series' first dot.
     if several {
-        let mut wanted: Vec<(f64, f64, usize, String)> = chart
-            .series
+        let span = (col_right + PAD, region.right);
+        name_series(
+            canvas,
+            theme,
+            chart,
+            vmap,
+            span,
+            series_row_top,
+            &mut obstacles,
+        )?;
+    }
+    Ok(())
+}
+
+/// The names of several series in a row at `top`, each over its first dot,
+/// spread apart inside `lo..hi`.
+fn name_series(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &DotChart,
+    vmap: impl Fn(f64) -> f64,
+    (lo, hi): (f64, f64),
+    series_row_top: f64,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let mut wanted: Vec<(f64, f64, usize, String)> = chart
+        .series
+        .iter()
+        .enumerate()
+        .filter_map(|(k, s)| {
+            let x = chart
+                .rows
+                .iter()
+                .find_map(|r| r.values.get(k).copied().flatten().filter(|v| v.is_finite()))
+                .map(&vmap)?;
+            let text = metrics::ellipsize(
+                &metrics::normalize(&s.name),
+                theme.label_size,
+                true,
+                theme.label_scaled(MAX_SERIES_LABEL),
+            );
+            Some((x, text_width(&text, theme.label_size, true), k, text))
+        })
+        .collect();
+    wanted.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.2.cmp(&b.2)));
+    let centres = spread_widths(
+        &wanted.iter().map(|w| w.0).collect::<Vec<_>>(),
+        &wanted.iter().map(|w| w.1).collect::<Vec<_>>(),
+        14.0,
+        lo,
+        hi,
+    );
+    for ((_, _, k, text), c) in wanted.iter().zip(centres) {
+        let (color, bold) = match chart.series[*k].role {
+            Role::Hidden => continue,
+            Role::Focus => (theme.accent, true),
+            Role::Context => (theme.context_text, false),
+        };
+        kit::put(
+            canvas,
+            obstacles,
+            &Label {
+                text,
+                x: c,
+                top: series_row_top,
+                size: theme.label_size,
+                bold,
+                color,
+                align: Align::Middle,
+            },
+        )?;
+    }
+    Ok(())
+}
+
+/// One row's marks: a light line over the range of its visible values
+/// when it has several, then its dots, context first, focus on top
+/// (`focus_row`: every dot of the row is in focus).
+fn row_marks(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &DotChart,
+    row: &DotRow,
+    (y, radius): (f64, f64),
+    vmap: impl Fn(f64) -> f64,
+    focus_row: bool,
+) -> Result<(), RenderError> {
+    let range_color = mix(theme.context, theme.page, 0.45);
+    let visible: Vec<(f64, Role)> = chart
+        .series
+        .iter()
+        .zip(&row.values)
+        .filter(|(s, _)| s.role != Role::Hidden)
+        .filter_map(|(s, v)| v.filter(|v| v.is_finite()).map(|v| (vmap(v), s.role)))
+        .collect();
+    if visible.len() > 1 {
+        let lo = visible.iter().map(|v| v.0).fold(f64::INFINITY, f64::min);
+        let hi = visible
             .iter()
-            .enumerate()
-            .filter_map(|(k, s)| {
-                let x = chart
-                    .rows
-                    .iter()
-                    .find_map(|r| r.values.get(k).copied().flatten().filter(|v| v.is_finite()))
-                    .map(vmap)?;
-                let text = metrics::ellipsize(
-                    &metrics::normalize(&s.name),
-                    theme.label_size,
-                    true,
-                    theme.label_scaled(MAX_SERIES_LABEL),
-                );
-                Some((x, text_width(&text, theme.label_size, true), k, text))
-            })
-            .collect();
-        wanted.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.2.cmp(&b.2)));
-        let centres = spread_widths(
-            &wanted.iter().map(|w| w.0).collect::<Vec<_>>(),
-            &wanted.iter().map(|w| w.1).collect::<Vec<_>>(),
-            14.0,
-            col_right + PAD,
-            region.right,
-        );
-        for ((_, _, k, text), c) in wanted.iter().zip(centres) {
-            let (color, bold) = match chart.series[*k].role {
-                Role::Hidden => continue,
-                Role::Focus => (theme.accent, true),
-                Role::Context => (theme.context_text, false),
-            };
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text,
-                    x: c,
-                    top: series_row_top,
-                    size: theme.label_size,
-                    bold,
-                    color,
-                    align: Align::Middle,
-                },
-            )?;
+            .map(|v| v.0)
+            .fold(f64::NEG_INFINITY, f64::max);
+        canvas.line((lo, y), (hi, y), range_color, 2)?;
+    }
+    // Context dots first, focus dots on top.
+    for pass in [false, true] {
+        for &(x, role) in &visible {
+            let focus = role == Role::Focus || focus_row;
+            if focus == pass {
+                let color = if focus { theme.accent } else { theme.context };
+                canvas.dot((x, y), radius.round() as u32, color)?;
+            }
         }
     }
     Ok(())
