@@ -88,6 +88,20 @@ pub(crate) fn name_column(widest: f64, cap: f64, band: f64, step: f64) -> (f64, 
     (widest.min(cap), lines)
 }
 
+/// Room past the ends of the marks for labels `width` wide (when
+/// `labelled`): below zero when the domain has negative values, above it
+/// when it has positive ones. Returns (below, above).
+pub(crate) fn end_room(dom: [f64; 2], width: f64, labelled: bool) -> (f64, f64) {
+    let room = |needed: bool| {
+        if labelled && needed {
+            width + VALUE_GAP
+        } else {
+            0.0
+        }
+    };
+    (room(dom[0] < 0.0), room(dom[1] > 0.0))
+}
+
 /// One bar of a bar chart: its mark from `zero` to `end` and, in focus, its
 /// value at the end.
 #[allow(clippy::too_many_arguments)]

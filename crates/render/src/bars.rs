@@ -273,16 +273,7 @@ fn horizontal(
         theme.label_size,
         true,
     );
-    let right_pad = if domain[1] > 0.0 {
-        value_w + VALUE_GAP
-    } else {
-        0.0
-    };
-    let left_pad = if domain[0] < 0.0 {
-        value_w + VALUE_GAP
-    } else {
-        0.0
-    };
+    let (left_pad, right_pad) = band::end_room(domain, value_w, true);
     let (value_left, value_right) = (plot_left + left_pad, plot_right - right_pad);
     let vmap = |v: f64| map(v, domain, value_left, value_right);
 
@@ -327,31 +318,14 @@ fn horizontal(
         Some(zero),
     )?;
     let bar_h = (band * BAR_SHARE).min(56.0);
-    let labels: Vec<(f64, Vec<String>)> = chart
-        .bars
-        .iter()
-        .enumerate()
-        .map(|(i, bar)| {
-            let centre = plot_top + (i as f64 + 0.5) * band;
-            let lines = layout::fit_label_at(theme.label_size, &bar.label, col_w, cat_lines, false);
-            let first_top = centre - ((lines.len().max(1) - 1) as f64 * step + lh) / 2.0;
-            (first_top, lines)
-        })
-        .collect();
-    // Safety net for more categories than rows: never let labels collide.
-    let spans: Vec<(f64, f64)> = labels
-        .iter()
-        .map(|(t, lines)| (*t, t + (lines.len().max(1) - 1) as f64 * step + lh))
-        .collect();
-    let keep = layout::thin(&spans, 0.0);
     let bands = Band {
         orientation: Orientation::Horizontal,
         start: plot_top,
         size: band,
     };
+    let labels = name_rows(theme, chart, &bands, col_w, cat_lines);
     for (i, bar) in chart.bars.iter().enumerate() {
         let (first_top, lines) = &labels[i];
-        let lines: &[String] = if keep[i] { lines } else { &[] };
         for (k, line) in lines.iter().enumerate() {
             canvas.text(&muted_label(
                 theme,
@@ -385,4 +359,39 @@ fn horizontal(
         baseline.0,
         baseline.1,
     )
+}
+
+/// The names of horizontal bars, centred on their bands in a column
+/// `col_w` wide: each name's first top and lines, no lines for a name
+/// dropped so that none collide (a safety net for more bars than rows).
+fn name_rows(
+    theme: &Theme,
+    chart: &BarChart,
+    bands: &Band,
+    col_w: f64,
+    cat_lines: usize,
+) -> Vec<(f64, Vec<String>)> {
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
+    let labels: Vec<(f64, Vec<String>)> = chart
+        .bars
+        .iter()
+        .enumerate()
+        .map(|(i, bar)| {
+            let centre = bands.centre(i);
+            let lines = layout::fit_label_at(theme.label_size, &bar.label, col_w, cat_lines, false);
+            let first_top = centre - ((lines.len().max(1) - 1) as f64 * step + lh) / 2.0;
+            (first_top, lines)
+        })
+        .collect();
+    let spans: Vec<(f64, f64)> = labels
+        .iter()
+        .map(|(t, lines)| (*t, t + (lines.len().max(1) - 1) as f64 * step + lh))
+        .collect();
+    let keep = layout::thin(&spans, 0.0);
+    labels
+        .into_iter()
+        .zip(keep)
+        .map(|((top, lines), keep)| (top, if keep { lines } else { Vec::new() }))
+        .collect()
 }

@@ -597,16 +597,7 @@ fn horizontal(
     } else {
         0.0
     };
-    let right_pad = if total_w > 0.0 && dom[1] > 0.0 {
-        total_w + VALUE_GAP
-    } else {
-        0.0
-    };
-    let left_pad = if total_w > 0.0 && dom[0] < 0.0 {
-        total_w + VALUE_GAP
-    } else {
-        0.0
-    };
+    let (left_pad, right_pad) = band::end_room(dom, total_w, total_w > 0.0);
     let value_left = plot_left + left_pad;
     // Grouped names go right of the roomiest group: pull the end of the
     // scale in until they fit.
