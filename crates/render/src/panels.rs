@@ -17,7 +17,7 @@ use crate::line;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::{Rgb, Theme};
 use crate::RenderError;
-use crescendo_frame::{Axis, BarChart, Chart, LineChart, Orientation, PanelChart, Role};
+use crescendo_frame::{Axis, BarChart, Chart, LineChart, Orientation, Panel, PanelChart, Role};
 
 /// Panels per row at most.
 const MAX_COLUMNS: usize = 4;
@@ -138,14 +138,7 @@ pub(crate) fn draw(
     };
     let row_h = ((bottom - top - (rows - 1) as f64 * GAP_Y) / rows as f64).max(1.0);
     // Trimmed panels: the same units per pixel, each cut to its extent.
-    let max_span = chart
-        .panels
-        .iter()
-        .map(|p| {
-            let d = value_domain(&p.chart);
-            (d[1] - d[0]).abs()
-        })
-        .fold(0.0, f64::max);
+    let max_span = widest_span(chart);
 
     for (i, panel) in chart.panels.iter().enumerate() {
         let (row, col) = (i / cols, i % cols);
@@ -155,26 +148,7 @@ pub(crate) fn draw(
         let right = left + plot_w;
         if panel.role != Role::Hidden {
             let x = left - if shared_ticks && col > 0 { 0.0 } else { lead };
-            let text = metrics::ellipsize(
-                &metrics::normalize(&panel.title),
-                theme.label_size,
-                true,
-                right - x,
-            );
-            let focus = panel.role == Role::Focus;
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text: &text,
-                    x,
-                    top: cell_top,
-                    size: theme.label_size,
-                    bold: true,
-                    color: if focus { theme.accent } else { theme.takeaway },
-                    align: Align::Start,
-                },
-            )?;
+            panel_title(canvas, theme, panel, (x, right), cell_top, &mut obstacles)?;
         }
         let plot_top = cell_top + lh + 8.0 + slh / 2.0;
         let tick_top = cell_bottom - slh;
@@ -488,6 +462,48 @@ fn lead_width(
             })
             .fold(0.0, f64::max)
     }
+}
+
+/// A panel's title at the top of its cell, bold, in the accent when the
+/// panel is in focus, cut to fit `x..right`.
+fn panel_title(
+    canvas: &Canvas,
+    theme: &Theme,
+    panel: &Panel,
+    (x, right): (f64, f64),
+    top: f64,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let text = metrics::ellipsize(
+        &metrics::normalize(&panel.title),
+        theme.label_size,
+        true,
+        right - x,
+    );
+    let focus = panel.role == Role::Focus;
+    let label = Label {
+        text: &text,
+        x,
+        top,
+        size: theme.label_size,
+        bold: true,
+        color: if focus { theme.accent } else { theme.takeaway },
+        align: Align::Start,
+    };
+    kit::put(canvas, obstacles, &label)
+}
+
+/// The widest value domain of any panel (trimmed panels keep its units
+/// per pixel).
+fn widest_span(chart: &PanelChart) -> f64 {
+    chart
+        .panels
+        .iter()
+        .map(|p| {
+            let d = value_domain(&p.chart);
+            (d[1] - d[0]).abs()
+        })
+        .fold(0.0, f64::max)
 }
 
 /// One panel's plot rectangle and where its labels go.
