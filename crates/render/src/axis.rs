@@ -319,6 +319,55 @@ pub(crate) fn title(
     put(canvas, obstacles, &label)
 }
 
+/// A value axis under horizontal bands (bars, parts, dots).
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Under {
+    /// Where the axis title goes, when there is one: its top, the width it
+    /// may take and the centre it is set on.
+    pub title: Option<(f64, f64, f64)>,
+    /// The tick labels.
+    pub row: Row,
+    /// The gridlines' extent across the bands.
+    pub across: (f64, f64),
+    /// No gridline at zero (the baseline is drawn there).
+    pub skip_zero: bool,
+}
+
+/// Draws a value axis under horizontal bands: its title, its tick labels in
+/// a row and, when asked for, gridlines across the bands.
+pub(crate) fn under(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    theme: &Theme,
+    axis: &Axis,
+    vmap: impl Fn(f64) -> f64 + Copy,
+    u: Under,
+) -> Result<(), RenderError> {
+    if let (Some((top, width, centre)), Some(text)) = (u.title, axis.title.as_deref()) {
+        title(
+            canvas,
+            obstacles,
+            theme,
+            text,
+            width,
+            (centre, top),
+            Align::Middle,
+        )?;
+    }
+    row(
+        canvas,
+        obstacles,
+        theme,
+        theme.label_size,
+        axis,
+        vmap,
+        u.row,
+    )?;
+    let skip = u.skip_zero.then(|| vmap(0.0));
+    let (from, to) = u.across;
+    gridlines(canvas, theme, axis, vmap, from, to, Across::Columns, skip)
+}
+
 /// The rows under a plot, from the `bottom` of the region up: an axis
 /// title when `titled`, then the tick labels. Returns the title's top, the
 /// ticks' top and the plot's bottom.

@@ -277,17 +277,6 @@ fn horizontal(
     let (value_left, value_right) = (plot_left + left_pad, plot_right - right_pad);
     let vmap = |v: f64| map(v, domain, value_left, value_right);
 
-    if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            plot_right - plot_left,
-            ((value_left + value_right) / 2.0, t),
-            Align::Middle,
-        )?;
-    }
     let row = axis::Row {
         top: tick_top,
         lo: region.left,
@@ -296,27 +285,15 @@ fn horizontal(
         fit: axis::Fit::AsWritten,
         keep_left: false,
     };
-    axis::row(
-        canvas,
-        &mut obstacles,
-        theme,
-        theme.label_size,
-        &chart.value,
-        vmap,
+    let under = axis::Under {
+        title: value_title_top
+            .map(|t| (t, plot_right - plot_left, (value_left + value_right) / 2.0)),
         row,
-    )?;
-
+        across: (plot_top, plot_bottom),
+        skip_zero: true,
+    };
+    axis::under(canvas, &mut obstacles, theme, &chart.value, vmap, under)?;
     let zero = vmap(0.0);
-    axis::gridlines(
-        canvas,
-        theme,
-        &chart.value,
-        vmap,
-        plot_top,
-        plot_bottom,
-        axis::Across::Columns,
-        Some(zero),
-    )?;
     let bar_h = (band * BAR_SHARE).min(56.0);
     let bands = Band {
         orientation: Orientation::Horizontal,

@@ -68,17 +68,6 @@ pub(crate) fn draw(
     let value_right = region.right - DOT;
     let vmap = |v: f64| map(v, chart.value.domain, value_left, value_right);
 
-    if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            value_right - value_left,
-            ((value_left + value_right) / 2.0, t),
-            Align::Middle,
-        )?;
-    }
     let row = axis::Row {
         top: tick_top,
         lo: col_right + PAD,
@@ -87,25 +76,19 @@ pub(crate) fn draw(
         fit: axis::Fit::AsWritten,
         keep_left: false,
     };
-    axis::row(
-        canvas,
-        &mut obstacles,
-        theme,
-        theme.label_size,
-        &chart.value,
-        vmap,
+    let under = axis::Under {
+        title: value_title_top.map(|t| {
+            (
+                t,
+                value_right - value_left,
+                (value_left + value_right) / 2.0,
+            )
+        }),
         row,
-    )?;
-    axis::gridlines(
-        canvas,
-        theme,
-        &chart.value,
-        vmap,
-        plot_top,
-        plot_bottom,
-        axis::Across::Columns,
-        None,
-    )?;
+        across: (plot_top, plot_bottom),
+        skip_zero: false,
+    };
+    axis::under(canvas, &mut obstacles, theme, &chart.value, vmap, under)?;
     canvas.line(
         (col_right + PAD, plot_bottom),
         (region.right, plot_bottom),

@@ -606,17 +606,6 @@ fn horizontal(
     let value_right = fit_scale(chart, dom, value_left, plot_right - right_pad, -1.0, over);
     let vmap = |v: f64| map(v, dom, value_left, value_right);
 
-    if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            plot_right - plot_left,
-            ((value_left + value_right) / 2.0, t),
-            Align::Middle,
-        )?;
-    }
     let row = axis::Row {
         top: tick_top,
         lo: region.left,
@@ -625,26 +614,14 @@ fn horizontal(
         fit: axis::Fit::AsWritten,
         keep_left: false,
     };
-    axis::row(
-        canvas,
-        &mut obstacles,
-        theme,
-        theme.label_size,
-        &chart.value,
-        vmap,
+    let under = axis::Under {
+        title: value_title_top
+            .map(|t| (t, plot_right - plot_left, (value_left + value_right) / 2.0)),
         row,
-    )?;
-
-    axis::gridlines(
-        canvas,
-        theme,
-        &chart.value,
-        vmap,
-        plot_top,
-        plot_bottom,
-        axis::Across::Columns,
-        Some(vmap(0.0)),
-    )?;
+        across: (plot_top, plot_bottom),
+        skip_zero: true,
+    };
+    axis::under(canvas, &mut obstacles, theme, &chart.value, vmap, under)?;
     let bands = Band {
         orientation: Orientation::Horizontal,
         start: plot_top,
