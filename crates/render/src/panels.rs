@@ -10,6 +10,7 @@
 //! Panels name no series of their own: the panel title is the label.
 
 use crate::axis;
+use crate::band::Band;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, muted_label, Obstacles};
 use crate::layout::{self, map, max_width, Region};
@@ -297,8 +298,13 @@ fn bars_across(
         })
         .collect();
     let keep = layout::thin(&spans, 0.0);
+    let bands = Band {
+        orientation: Orientation::Horizontal,
+        start: g.top,
+        size: band,
+    };
     for (k, bar) in b.bars.iter().enumerate() {
-        let c = g.top + (k as f64 + 0.5) * band;
+        let c = bands.centre(k);
         if keep.get(k).copied().unwrap_or(false) {
             let text = metrics::ellipsize(
                 &metrics::normalize(&bar.label),
@@ -326,16 +332,15 @@ fn bars_across(
             continue;
         };
         let h = (band * 0.62).min(40.0);
-        canvas.rect((vmap(0.0), c - h / 2.0), (vmap(v), c + h / 2.0), color)?;
+        bands.mark(
+            canvas,
+            (c - h / 2.0, c + h / 2.0),
+            (vmap(0.0), vmap(v)),
+            color,
+        )?;
     }
-    let z = vmap(0.0);
-    canvas.line(
-        (z, g.top),
-        (z, g.bottom),
-        theme.baseline,
-        theme.baseline_stroke,
-    )?;
-    Ok(())
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    bands.rule(canvas, (g.top, g.bottom), vmap(0.0), baseline.0, baseline.1)
 }
 
 /// Vertical bars in one panel: value ticks in the lead column, category
@@ -383,8 +388,13 @@ fn bars_up(
         })
         .collect();
     let keep = layout::thin(&spans, 6.0);
+    let bands = Band {
+        orientation: Orientation::Vertical,
+        start: g.left,
+        size: band,
+    };
     for (k, bar) in b.bars.iter().enumerate() {
-        let c = g.left + (k as f64 + 0.5) * band;
+        let c = bands.centre(k);
         if keep.get(k).copied().unwrap_or(false) {
             let text = metrics::ellipsize(
                 &metrics::normalize(&bar.label),
@@ -412,16 +422,15 @@ fn bars_up(
             continue;
         };
         let w = (band * 0.62).min(60.0);
-        canvas.rect((c - w / 2.0, vmap(0.0)), (c + w / 2.0, vmap(v)), color)?;
+        bands.mark(
+            canvas,
+            (c - w / 2.0, c + w / 2.0),
+            (vmap(0.0), vmap(v)),
+            color,
+        )?;
     }
-    let z = vmap(0.0);
-    canvas.line(
-        (g.left, z),
-        (g.right, z),
-        theme.baseline,
-        theme.baseline_stroke,
-    )?;
-    Ok(())
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    bands.rule(canvas, (g.left, g.right), vmap(0.0), baseline.0, baseline.1)
 }
 
 /// The width of the lead column left of each plot: the widest category
