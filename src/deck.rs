@@ -71,7 +71,7 @@ impl crescendo_render::plugin::PluginDrawer for Host<'_> {
         &self,
         plugin: &str,
         request: &crescendo_plugin::Request,
-    ) -> Result<crescendo_plugin::host::Validated, String> {
+    ) -> Result<crescendo_plugin::validate::Validated, String> {
         let p = self
             .0
             .get(plugin)

@@ -18,11 +18,18 @@ pub fn run_lint(planned: &Planned, args: &LintArgs) -> Vec<Diagnostic> {
         Ok(t) => t,
         Err(e) => return vec![Diagnostic::error("theme", e.message)],
     };
+    // the frames laid out (no SVG written, no plugin code run) for the
+    // rules about geometry
+    let skip = crescendo_render::plugin::SkipPlugins;
+    let displays: Vec<_> = (planned.plan.frames.iter())
+        .map(|f| crescendo_render::display_list(&planned.plan, f, Some(&skip)).unwrap_or_default())
+        .collect();
     let input = crescendo_lint::Input {
         src: &planned.source,
         plan: &planned.plan,
         anchors: &planned.anchors,
         theme: &theme,
+        displays: &displays,
         small_counts: args.small_counts,
     };
     crescendo_lint::lint(

@@ -208,7 +208,7 @@ impl Io for Reading {
     fn load_plugin(
         &mut self,
         file: &PluginFile,
-    ) -> Result<crescendo_plugin::host::Plugin, crescendo_plugin::host::PluginError> {
+    ) -> Result<crescendo_plugin_host::Plugin, crescendo_plugin_host::PluginError> {
         self.disk.load_plugin(file)
     }
 

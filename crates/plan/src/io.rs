@@ -13,7 +13,7 @@ use std::time::Duration;
 
 use crescendo_data::stream::{Chunks, ScanFailure, ScanInput, ScanOutput};
 use crescendo_data::{Columns, CsvSpec, LoadError, Probe, Table};
-use crescendo_plugin::host::{Plugin, PluginError, Verified};
+use crescendo_plugin_host::{Plugin, PluginError, Verified};
 use crescendo_sql::client::Row;
 use crescendo_sql::{Session, SessionError};
 
@@ -128,7 +128,7 @@ impl Database for Session {
     }
 }
 
-/// Entries kept between builds, by kind and key (see `loading.rs`). Values
+/// Entries kept between builds, by kind and key (see `loading/stream.rs`). Values
 /// are JSON; an entry that does not parse is treated as missing.
 pub trait ViewCache {
     /// The content hash of a data file (xxh3-128, hex).

@@ -16,6 +16,7 @@ pub mod cache;
 mod claims;
 mod context;
 mod describe;
+mod drawn;
 mod driver;
 mod forms;
 mod frames;

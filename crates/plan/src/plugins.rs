@@ -6,7 +6,7 @@ use std::collections::BTreeMap;
 use std::sync::Arc;
 
 use crescendo_lang::ast::PluginDecl;
-use crescendo_plugin::host::{Plugin, PluginError};
+use crescendo_plugin_host::{Plugin, PluginError};
 
 use crate::context::{Ctx, Outcome};
 use crate::io::PluginFile;

@@ -11,7 +11,7 @@ use crescendo_data::{Columns, CsvSpec, LoadError, Probe, Table};
 use crescendo_diag::Source;
 use crescendo_plan::io::{Database, Disk, Io, PluginFile, ViewCache};
 use crescendo_plan::{plan_story_with, Options};
-use crescendo_plugin::host::{Plugin, PluginError};
+use crescendo_plugin_host::{Plugin, PluginError};
 use crescendo_sql::SessionError;
 
 /// A view cache in memory; no plugins, no databases.

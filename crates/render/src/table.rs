@@ -17,7 +17,7 @@ use crate::layout::Region;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{Role, TableChart};
+use crescendo_frame::{Role, TableChart};
 
 /// Space between columns.
 const COLUMN_GAP: f64 = 36.0;
@@ -31,7 +31,7 @@ fn row_height(theme: &Theme) -> f64 {
 }
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &TableChart,
     region: Region,

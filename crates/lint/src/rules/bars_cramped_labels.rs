@@ -1,7 +1,7 @@
 //! `bars-cramped-labels`: vertical bars with long category names.
 
 use crescendo_diag::Severity;
-use crescendo_plan::{Chart, Orientation};
+use crescendo_frame::{Chart, Orientation};
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};

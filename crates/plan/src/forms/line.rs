@@ -187,6 +187,7 @@ fn collect(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Lines> {
                     name,
                     role: Role::Context,
                     points: Vec::new(),
+                    end_values: Vec::new(), // written by `drawn`
                 });
                 out.names.len() - 1
             }

@@ -7,8 +7,8 @@ use std::collections::{BTreeMap, BTreeSet};
 use crescendo_data::{time, ColType, Table, Value};
 use crescendo_diag::closest;
 use crescendo_lang::ast::DrawStmt;
-use crescendo_plugin::host::{Plugin, NOT_LOADED};
 use crescendo_plugin::{Area, Cell, Column, Request, Texts, ABI_VERSION};
+use crescendo_plugin_host::{Plugin, NOT_LOADED};
 
 use crate::anchors::FrameAnchors;
 use crate::context::{Ctx, Outcome};

@@ -96,6 +96,7 @@ impl FormPlanner for Scatter {
                     slope: f.slope,
                     intercept: f.intercept,
                     r: f.r,
+                    label: String::new(), // written by `drawn`
                 }),
                 Err(e) => {
                     return Err(cx.error(

@@ -1,4 +1,4 @@
-//! Colour arithmetic for the clarity lints.
+//! Colour science for the themes and the clarity lint.
 //!
 //! * WCAG 2.x relative luminance and contrast ratio ([`relative_luminance`],
 //!   [`contrast_ratio`]).

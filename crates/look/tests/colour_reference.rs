@@ -1,8 +1,8 @@
-//! Reference values for `crescendo_lint::colour`, taken from
+//! Reference values for `crescendo_look::colour`, taken from
 //! shared/refs/reference-values.md §1–§3. Each table names its source and the
 //! provenance tag the file gives it. The colours are test inputs only.
 
-use crescendo_lint::colour::{
+use crescendo_look::colour::{
     contrast_ratio, delta_e_2000, distinguishable, machado_matrix, relative_luminance, simulate,
     to_lab, Deficiency, Rgb8,
 };

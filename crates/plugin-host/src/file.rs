@@ -20,7 +20,7 @@ use std::path::{Path, PathBuf};
 
 use sha2::{Digest, Sha256};
 
-use crate::host::PluginError;
+use crate::PluginError;
 
 /// The largest plugin library read, in bytes.
 pub const MAX_LIBRARY_BYTES: u64 = 1 << 30;

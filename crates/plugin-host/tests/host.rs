@@ -7,10 +7,10 @@ use std::path::{Path, PathBuf};
 use std::process::Command;
 use std::sync::OnceLock;
 
-use crescendo_plugin::host::{Plugin, PluginError, Validated};
 use crescendo_plugin::{
     Area, Cell, Column, Primitive, Pt, Request, Role, Space, Texts, ABI_VERSION,
 };
+use crescendo_plugin_host::{Plugin, PluginError, Validated};
 
 const PACKAGES: [&str; 5] = [
     "crescendo-slope",
