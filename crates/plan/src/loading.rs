@@ -327,6 +327,13 @@ impl Tables {
             parse_names.extend(names_in_steps(&v.steps[..n]));
             keep_only |= !v.steps[..n].iter().any(|s| matches!(s, StepAst::By { .. }));
         }
+        // The rows of a `keep`-only prefix carry the cells of every kept
+        // column, which are only read when parsed.
+        match (keep_only, keep) {
+            (true, Columns::Only(k)) => parse_names.extend(k.iter().cloned()),
+            (true, Columns::All) => return None,
+            (false, _) => {}
+        }
         let cache = self.cache.clone();
         let content = match &cache {
             Some(c) => match c.file_hash(&spec.path) {

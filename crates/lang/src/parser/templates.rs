@@ -9,7 +9,7 @@ use crescendo_diag::{Diagnostic, Source};
 use pest::Parser;
 
 use super::errors::{syntax_error, Context};
-use super::{children, location, Conv, Rule, StoryParser};
+use super::{children, location, nesting, Conv, Rule, StoryParser};
 use crate::ast::*;
 
 /// Read the characters `raw` of a string literal at `span` (quotes
@@ -114,6 +114,11 @@ fn quote(
                 )
                 .help("define a `value` with the selection and quote its name"),
         );
+        return None;
+    }
+    // the same cap as for the rest of the story (whose check skips strings)
+    if let Some(d) = nesting::check(source, body_start..body_start + body.len()) {
+        diags.push(d);
         return None;
     }
     let q = match StoryParser::parse(Rule::quote, body) {

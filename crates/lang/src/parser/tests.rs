@@ -534,3 +534,79 @@ fn deep_nesting_is_a_located_error_not_a_stack_overflow() {
     let (_, diags) = parse(&Source::file("ok.cresc", ok));
     assert!(diags.iter().all(|d| d.code != "too-deep"), "{diags:?}");
 }
+
+/// Flat chains of operators are read, walked and printed in loops: 13,000
+/// terms parse and format on a test thread's 2 MB stack (12,700 overflowed
+/// the 8 MB main thread's stack when every operator was a level of the
+/// tree).
+#[test]
+fn long_chains_take_no_stack_in_proportion_to_their_length() {
+    let n = 13_000;
+    let sum = vec!["1"; n].join(" + ");
+    let and = vec!["riders > 0"; n].join(" and ");
+    let or = vec!["x > 1"; n].join(" or ");
+    let text = format!(
+        "value v = {sum}\nview w = d\n  | keep {and}\nclaim {or} \"s\"\nframe \"{{{sum}}}\" {{}}\n"
+    );
+    let (ast, diags) = parse_str(&text);
+    assert!(diags.is_empty(), "{diags:?}");
+    let Item::Value(v) = &ast.items[0] else {
+        panic!()
+    };
+    let Expr::Chain { rest, span, .. } = &v.expr else {
+        panic!()
+    };
+    assert_eq!(rest.len(), n - 1);
+    assert_eq!(&text[span.clone()], sum);
+    let Item::Frame(f) = &ast.items[3] else {
+        panic!()
+    };
+    assert!(
+        matches!(&f.headline.template.parts[..], [TextPart::Quote { expr: Expr::Chain { rest, .. }, .. }] if rest.len() == n - 1)
+    );
+    let formatted = crate::format_story(&text).expect("formats");
+    assert_eq!(formatted, text);
+}
+
+/// Run `f` on a thread with the stack of a program's main thread (8 MB),
+/// where the command parses stories: the parser recurses once per level
+/// of nesting (up to [`MAX_NESTING`]), which a debug build's frames make
+/// deeper than a test thread's 2 MB.
+fn with_main_stack(f: impl FnOnce() + Send + 'static) {
+    std::thread::Builder::new()
+        .stack_size(8 << 20)
+        .spawn(f)
+        .expect("a thread")
+        .join()
+        .expect("no panic");
+}
+
+/// The nesting cap applies inside quoted values too: 1,000 parentheses in
+/// `{...}` were accepted (and about 1,840 overflowed the stack).
+#[test]
+fn quoted_values_nest_no_deeper_than_the_rest() {
+    with_main_stack(quoted_values_nest);
+}
+
+fn quoted_values_nest() {
+    for depth in [MAX_NESTING + 1, 1000, 100_000] {
+        let text = format!(
+            "story \"{{{}x{}}}\"\n",
+            "(".repeat(depth),
+            ")".repeat(depth)
+        );
+        let (_, diags) = parse_str(&text);
+        assert_eq!(diags.len(), 1, "{diags:?}");
+        assert_eq!(diags[0].code, "too-deep");
+        // at the parenthesis that goes one level too deep
+        let (_, line, col) = diags[0].location().unwrap();
+        assert_eq!((line, col), (1, 9 + MAX_NESTING));
+    }
+    let ok = format!(
+        "story \"{{{}x{}}}\"\n",
+        "(".repeat(MAX_NESTING),
+        ")".repeat(MAX_NESTING)
+    );
+    let (_, diags) = parse_str(&ok);
+    assert!(diags.is_empty(), "{diags:?}");
+}
