@@ -610,3 +610,36 @@ fn quoted_values_nest() {
     let (_, diags) = parse_str(&ok);
     assert!(diags.is_empty(), "{diags:?}");
 }
+
+/// `{x:.N}` with N above 12 was silently capped at 12, and an N too large
+/// to read silently fell back to the default format: both are errors at
+/// the digits.
+#[test]
+fn quoted_values_ask_for_at_most_twelve_decimals() {
+    let t = template_of(r#"story "{x:.12} {x:+.0%} {x:.3k}""#).unwrap();
+    let decimals: Vec<Option<usize>> = t
+        .parts
+        .iter()
+        .filter_map(|p| match p {
+            TextPart::Quote { format, .. } => Some(format.decimals),
+            _ => None,
+        })
+        .collect();
+    assert_eq!(decimals, [Some(12), Some(0), Some(3)]);
+    for (text, digits) in [
+        (r#"story "a {x:.13}""#, "13"),
+        (r#"story "a {x:+.99999999999999999999999%}""#, "99999999999999999999999"),
+    ] {
+        let errs = template_of(text).unwrap_err();
+        assert_eq!(errs.len(), 1, "{errs:?}");
+        assert_eq!(errs[0].code, "format");
+        assert_eq!(
+            errs[0].message,
+            format!("a quoted value shows at most 12 decimals, not {digits}")
+        );
+        let at = text.find(digits).unwrap();
+        assert_eq!(errs[0].location().unwrap().2, at + 1);
+        let shown = crescendo_diag::render(&errs, false);
+        assert!(shown.contains(&"^".repeat(digits.len())), "{shown}");
+    }
+}
