@@ -272,3 +272,17 @@ fn invalid_utf8_in_the_story_is_located() {
     assert_eq!(fmt.status.code(), Some(2), "{err}");
     assert!(err.contains("story.cresc:2:19"), "{err}");
 }
+
+/// A control character in a story string is refused at the character (it
+/// went into the SVG unescaped: not XML, while the build exited 0).
+#[test]
+fn control_characters_in_the_story_are_located() {
+    let story = GOOD_STORY.replace(
+        "spotlight",
+        "callout \"2024-02\" \"Bell\u{7}\"\n  spotlight",
+    );
+    let stderr = run_broken("control-character", &story, Some(GOOD_CSV));
+    assert_located(&stderr, "story.cresc:11:26");
+    assert!(stderr.contains("error[control-character]"), "{stderr}");
+    assert!(stderr.contains("U+0007"), "{stderr}");
+}

@@ -628,7 +628,10 @@ fn quoted_values_ask_for_at_most_twelve_decimals() {
     assert_eq!(decimals, [Some(12), Some(0), Some(3)]);
     for (text, digits) in [
         (r#"story "a {x:.13}""#, "13"),
-        (r#"story "a {x:+.99999999999999999999999%}""#, "99999999999999999999999"),
+        (
+            r#"story "a {x:+.99999999999999999999999%}""#,
+            "99999999999999999999999",
+        ),
     ] {
         let errs = template_of(text).unwrap_err();
         assert_eq!(errs.len(), 1, "{errs:?}");
@@ -641,5 +644,44 @@ fn quoted_values_ask_for_at_most_twelve_decimals() {
         assert_eq!(errs[0].location().unwrap().2, at + 1);
         let shown = crescendo_diag::render(&errs, false);
         assert!(shown.contains(&"^".repeat(digits.len())), "{shown}");
+    }
+}
+
+/// XML 1.0 cannot carry the C0 controls (but tab, line feed, carriage
+/// return), U+FFFE and U+FFFF: a story string holding one made an SVG that
+/// is not XML while the build exited 0. Each line holding one is an error
+/// at the character; comments may hold anything.
+#[test]
+fn control_characters_are_refused_at_the_character() {
+    let text = "story \"A\u{7}B\"\n# a comment may hold \u{1} anything\nbyline \"tab\tand \\\u{b} \u{ffff}\"\nsource \"x\" \u{0}\r\n";
+    let (ast, diags) = parse_str(text);
+    assert!(ast.items.is_empty());
+    let found: Vec<(String, usize, usize)> = diags
+        .iter()
+        .map(|d| {
+            let (_, line, col) = d.location().unwrap();
+            (d.message.clone(), line, col)
+        })
+        .collect();
+    let message = |code: &str| {
+        format!("the story holds the control character U+{code}, which no text of a deck can carry")
+    };
+    assert_eq!(
+        found,
+        [
+            (message("0007"), 1, 9),
+            (message("000B"), 3, 18),
+            (message("0000"), 4, 12),
+        ]
+    );
+    assert!(diags.iter().all(|d| d.code == "control-character"));
+    // tabs, carriage returns and line breaks are fine
+    let (_, diags) = parse_str("story \"a\tb\"\r\nbyline \"c\"\r\n");
+    assert!(diags.is_empty(), "{diags:?}");
+    for c in ['\u{1}', '\u{8}', '\u{c}', '\u{e}', '\u{1f}', '\u{fffe}'] {
+        assert!(controls::is_forbidden(c), "{c:?}");
+    }
+    for c in ['\t', '\n', '\r', ' ', '\u{7f}', '\u{fffd}'] {
+        assert!(!controls::is_forbidden(c), "{c:?}");
     }
 }
