@@ -392,3 +392,38 @@ fn a_streamed_keep_only_view_keeps_every_column_it_shows() {
     assert!(out.contains("\"B\"") && out.contains("\"C\""), "{out}");
     assert!(!out.contains("\"A\""), "{out}");
 }
+
+/// A text within `--max-text` as written can quote values that make it
+/// longer: the text with its values filled in is held to the limit too
+/// (ten `{conclusion}`s in a takeaway went past it unchecked).
+#[test]
+fn quoted_values_count_against_the_text_limit() {
+    let dir = scratch("expanded-text");
+    let conclusion = "Evening swims pay off in a year.";
+    let story = format!(
+        "story \"Made here\"\nsource \"Invented test data\"\nconclusion \"{conclusion}\"\n\
+         data t from \"t.csv\"\nframe \"All\" {{\n  bars t: category c, value n\n  \
+         takeaway \"{{conclusion}} {{conclusion}} {{conclusion}}\"\n}}\n"
+    );
+    fs::write(dir.join("story.cresc"), story).unwrap();
+    fs::write(dir.join("t.csv"), "c,n\nA,1\nB,2\n").unwrap();
+    let run = crescendo(&dir, &["check", "story.cresc", "--max-text", "80"]);
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert_eq!(run.status.code(), Some(1), "{err}");
+    let filled = 3 * conclusion.len() + 2;
+    assert!(
+        err.contains(&format!(
+            "this text has {filled} characters with its quoted values filled in, more than the limit of 80 (--max-text)"
+        )),
+        "{err}"
+    );
+    assert!(err.contains("story.cresc:7:12"), "{err}");
+    // within the limit with its values, the same story checks
+    let run = crescendo(&dir, &["check", "story.cresc", "--max-text", "200"]);
+    assert_eq!(
+        run.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+}

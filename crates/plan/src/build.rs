@@ -353,6 +353,20 @@ impl<'a> Planner<'a> {
         let mut d = Vec::new();
         let r = values::resolve_text(&ev, s, &mut d);
         self.diags.extend(d);
+        if r.template.is_some() {
+            let over =
+                crate::limits::expanded_text(self.src, &s.span, &r.text, &self.options.limits);
+            // a text planned again (a carried title, an unfolded frame) is
+            // reported once
+            if let Some(e) = over.filter(|e| {
+                !self
+                    .diags
+                    .iter()
+                    .any(|x| x.message == e.message && x.location() == e.location())
+            }) {
+                self.diags.push(e);
+            }
+        }
         r
     }
 
