@@ -101,8 +101,7 @@ fn format_file(path: &Path) -> Result<Option<String>, Vec<Diagnostic>> {
             format!("cannot read {}: {e}", path.display()),
         )]
     })?;
-    let source =
-        crescendo_lang::source::decode(&path.display().to_string(), bytes).map_err(|d| vec![d])?;
+    let source = crescendo_lang::source::decode(&path.display().to_string(), bytes)?;
     let formatted = crescendo_lang::format_source(&source)?;
     Ok((formatted != source.text).then_some(formatted))
 }

@@ -48,8 +48,7 @@ pub fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagno
             format!("cannot read story file `{}`: {e}", story.display()),
         )]
     })?;
-    let src: Arc<Source> =
-        crescendo_lang::source::decode(&story.display().to_string(), bytes).map_err(|d| vec![d])?;
+    let src: Arc<Source> = crescendo_lang::source::decode(&story.display().to_string(), bytes)?;
     let dir = story.parent().unwrap_or(Path::new("."));
     let options = Options {
         data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),

@@ -5,10 +5,10 @@ use std::sync::Arc;
 use crescendo_diag::{Diagnostic, Source};
 
 /// The story file `name` whose content is `bytes`, or, when the bytes are
-/// not UTF-8, an error at the first bad byte: its line, its column (in
+/// not UTF-8, the error at the first bad byte: its line, its column (in
 /// characters, counting the bad bytes as one) and its byte offset in the
 /// file, with that line as the excerpt (bad bytes shown as `�`).
-pub fn decode(name: &str, bytes: Vec<u8>) -> Result<Arc<Source>, Diagnostic> {
+pub fn decode(name: &str, bytes: Vec<u8>) -> Result<Arc<Source>, Vec<Diagnostic>> {
     let err = match String::from_utf8(bytes) {
         Ok(text) => return Ok(Source::file(name, text)),
         Err(e) => e,
@@ -40,12 +40,12 @@ pub fn decode(name: &str, bytes: Vec<u8>) -> Result<Arc<Source>, Diagnostic> {
         1 => "the byte".to_string(),
         n => format!("the {n} bytes"),
     };
-    Err(Diagnostic::error(
+    Err(vec![Diagnostic::error(
         "bad-encoding",
         format!("the story is not valid UTF-8: {what} at offset {at} cannot be read as text"),
     )
     .at(&source, start..end, "invalid UTF-8")
-    .help("save the story as UTF-8"))
+    .help("save the story as UTF-8")])
 }
 
 #[cfg(test)]
@@ -64,14 +64,16 @@ mod tests {
     fn invalid_utf8_is_located() {
         let mut bytes = b"story \"T\"\nbyline \"\xc3\xa9t\xe9\"\n".to_vec();
         bytes.extend(b"source \"x\"\n");
-        let d = decode("s.cresc", bytes).unwrap_err();
+        let d = decode("s.cresc", bytes).unwrap_err().remove(0);
         assert_eq!(d.code, "bad-encoding");
         assert_eq!(d.location(), Some(("s.cresc".into(), 2, 11)));
         assert!(d.message.contains("the byte at offset 21"), "{}", d.message);
-        let shown = crescendo_diag::render(&[d], false);
+        let shown = crescendo_diag::render(std::slice::from_ref(&d), false);
         assert!(shown.contains("byline \"ét�\""), "{shown}");
         // a truncated sequence at the very end
-        let d = decode("s.cresc", b"story \"\xe2\x82".to_vec()).unwrap_err();
+        let d = decode("s.cresc", b"story \"\xe2\x82".to_vec())
+            .unwrap_err()
+            .remove(0);
         assert_eq!(d.location(), Some(("s.cresc".into(), 1, 8)));
         assert!(
             d.message.contains("the 2 bytes at offset 7"),
