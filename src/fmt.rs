@@ -4,7 +4,7 @@
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
-use crescendo_diag::{Diagnostic, Source};
+use crescendo_diag::Diagnostic;
 
 /// Exit status of `fmt --check` when a file would change.
 pub const EXIT_WOULD_CHANGE: u8 = 1;
@@ -95,13 +95,13 @@ fn expand(paths: &[PathBuf]) -> Vec<PathBuf> {
 /// The formatted text when it differs from the file, `None` when the file
 /// is already formatted.
 fn format_file(path: &Path) -> Result<Option<String>, Vec<Diagnostic>> {
-    let text = std::fs::read_to_string(path).map_err(|e| {
+    let bytes = std::fs::read(path).map_err(|e| {
         vec![Diagnostic::error(
             "io",
             format!("cannot read {}: {e}", path.display()),
         )]
     })?;
-    let source = Source::file(path.display().to_string(), text);
+    let source = crescendo_lang::source::decode(&path.display().to_string(), bytes)?;
     let formatted = crescendo_lang::format_source(&source)?;
     Ok((formatted != source.text).then_some(formatted))
 }

@@ -54,13 +54,13 @@ pub fn plan_quietly(
 ) -> Result<Planned, Vec<Diagnostic>> {
     crescendo_plan::limits::file_size(story, &data.limits.limits())
         .map_err(|e| vec![Diagnostic::error("limit", e)])?;
-    let text = std::fs::read_to_string(story).map_err(|e| {
+    let bytes = std::fs::read(story).map_err(|e| {
         vec![Diagnostic::error(
             "story-file",
             format!("cannot read story file `{}`: {e}", story.display()),
         )]
     })?;
-    let src: Arc<Source> = Source::file(story.display().to_string(), text);
+    let src: Arc<Source> = crescendo_lang::source::decode(&story.display().to_string(), bytes)?;
     let dir = story.parent().unwrap_or(Path::new("."));
     let options = Options {
         data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),

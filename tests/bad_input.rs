@@ -26,7 +26,7 @@ const GOOD_CSV: &str = "month,branch,loans\n2024-01,Quarry Street,120\n2024-01,E
 /// Build a good deck in a fresh folder, then replace the story and/or CSV
 /// with broken versions and build again. Returns the second run's stderr and
 /// checks that it failed with status 1 and left the deck untouched.
-fn run_broken(name: &str, story: &str, csv: Option<&str>) -> String {
+fn run_broken(name: &str, story: impl AsRef<[u8]>, csv: Option<&str>) -> String {
     let dir = scratch(name);
     fs::write(dir.join("story.cresc"), GOOD_STORY).unwrap();
     fs::write(dir.join("loans.csv"), GOOD_CSV).unwrap();
@@ -242,4 +242,47 @@ fn missing_story_file() {
     let out = crescendo(&dir, &["build", "nothing.cresc"]);
     assert_eq!(out.status.code(), Some(1));
     assert!(String::from_utf8_lossy(&out.stderr).contains("cannot read story file `nothing.cresc`"));
+}
+
+/// A story that is not UTF-8 is located like a CSV with a bad byte: line,
+/// column, byte offset and the line as an excerpt (it gave only "stream did
+/// not contain valid UTF-8"). `fmt` says the same.
+#[test]
+fn invalid_utf8_in_the_story_is_located() {
+    let story = GOOD_STORY.replace("Invented demo data", "Invented d\u{e9}mo data");
+    let at = story.find('\u{e9}').unwrap();
+    let mut bytes = story.into_bytes();
+    // é in Latin-1: one byte that UTF-8 cannot read
+    bytes.splice(at..at + 2, [0xe9]);
+    let stderr = run_broken("bad-utf8", &bytes, Some(GOOD_CSV));
+    let dir = scratch("bad-utf8-fmt");
+    fs::write(dir.join("story.cresc"), &bytes).unwrap();
+    assert_located(&stderr, "story.cresc:2:19");
+    assert!(stderr.contains("error[bad-encoding]"), "{stderr}");
+    assert!(
+        stderr.contains(&format!("the byte at offset {at}")),
+        "{stderr}"
+    );
+    assert!(
+        stderr.contains("source \"Invented d\u{fffd}mo data\""),
+        "{stderr}"
+    );
+    let fmt = crescendo(&dir, &["fmt", "--check", "story.cresc"]);
+    let err = String::from_utf8_lossy(&fmt.stderr);
+    assert_eq!(fmt.status.code(), Some(2), "{err}");
+    assert!(err.contains("story.cresc:2:19"), "{err}");
+}
+
+/// A control character in a story string is refused at the character (it
+/// went into the SVG unescaped: not XML, while the build exited 0).
+#[test]
+fn control_characters_in_the_story_are_located() {
+    let story = GOOD_STORY.replace(
+        "spotlight",
+        "callout \"2024-02\" \"Bell\u{7}\"\n  spotlight",
+    );
+    let stderr = run_broken("control-character", &story, Some(GOOD_CSV));
+    assert_located(&stderr, "story.cresc:11:26");
+    assert!(stderr.contains("error[control-character]"), "{stderr}");
+    assert!(stderr.contains("U+0007"), "{stderr}");
 }

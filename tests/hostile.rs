@@ -296,3 +296,134 @@ fn new_prints_no_terminal_escapes_from_the_data() {
     assert!(out.contains("note\u{241b}[2J"), "{out}");
     assert!(out.contains("branch\u{241b}]0;pwned\u{2407}"), "{out}");
 }
+
+/// Long flat chains of operators in every place an expression is written:
+/// `check`, `build` and `fmt` of the command as built for the tests (a
+/// debug build, whose stack frames are larger than a release build's)
+/// finish without a stack overflow. 12,700 terms overflowed `check` and
+/// `build`, 50,000 overflowed `fmt`, when every operator was a level of the
+/// syntax tree.
+#[test]
+fn long_chains_of_operators_build_and_format() {
+    let dir = scratch("long-chains");
+    let csv = "c,n\nA,1\nB,2\nC,3\n";
+    fs::write(dir.join("t.csv"), csv).unwrap();
+    let chain = |term: &str, op: &str, n: usize| vec![term; n].join(op);
+    let n = 12_700;
+    let stories = [
+        ("sum", format!("value v = {}\n", chain("1", " + ", n)), ""),
+        (
+            "keep-and",
+            String::new(),
+            &*format!("  | keep {}\n", chain("n > 0", " and ", n)),
+        ),
+        (
+            "keep-or",
+            String::new(),
+            &*format!("  | keep {}\n", chain("n > 0", " or ", n)),
+        ),
+        (
+            "add",
+            String::new(),
+            &*format!("  | add z = {}\n", chain("n", " - ", n)),
+        ),
+        (
+            "claim-and",
+            format!("claim {} \"holds\"\n", chain("1 > 0", " and ", n)),
+            "",
+        ),
+        (
+            "claim-or",
+            format!(
+                "claim {} \"holds\"\n",
+                chain("1 < 0", " or ", n) + " or 1 > 0"
+            ),
+            "",
+        ),
+        (
+            "fmt-50000",
+            format!("value v = {}\n", chain("1", " + ", 50_000)),
+            "",
+        ),
+    ];
+    for (name, item, step) in stories {
+        let story = format!(
+            "{STORY}view w = t\n{step}value total = sum(w.n)\n{item}\
+             frame \"All\" {{\n  bars w: category c, value n\n  takeaway \"{{total}} in all\"\n}}\n"
+        );
+        fs::write(dir.join(format!("{name}.cresc")), &story).unwrap();
+        let file = format!("{name}.cresc");
+        let out = format!("deck-{name}");
+        for args in [
+            vec!["check", file.as_str()],
+            vec!["build", file.as_str(), "--out", out.as_str()],
+            vec!["fmt", "--check", file.as_str()],
+        ] {
+            let run = crescendo(&dir, &args);
+            let stderr = String::from_utf8_lossy(&run.stderr);
+            assert!(!stderr.contains("overflow"), "{name} {args:?}: {stderr}");
+            // `fmt --check` says 1 when the layout would change: the chain
+            // is one long line, which the formatter keeps
+            assert_eq!(run.status.code(), Some(0), "{name} {args:?}: {stderr}");
+        }
+        assert!(dir.join(&out).join("deck.json").exists(), "{name}");
+    }
+}
+
+/// A view that only keeps rows, over a data item read in one streaming
+/// pass, keeps the cells of the columns its chart reads (they came out
+/// missing when the column was neither declared nor named by the `keep`).
+#[test]
+fn a_streamed_keep_only_view_keeps_every_column_it_shows() {
+    let story = format!(
+        "{STORY}view w = t\n  | keep n > 1\nframe \"Kept\" {{\n  bars w: category c, value n\n}}\n"
+    );
+    let dir = scratch("keep-only");
+    fs::write(dir.join("story.cresc"), story).unwrap();
+    fs::write(dir.join("t.csv"), "c,n\nA,1\nB,2\nC,3\n").unwrap();
+    let run = crescendo(&dir, &["plan", "story.cresc"]);
+    let out = String::from_utf8_lossy(&run.stdout);
+    assert_eq!(
+        run.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    assert!(out.contains("\"B\"") && out.contains("\"C\""), "{out}");
+    assert!(!out.contains("\"A\""), "{out}");
+}
+
+/// A text within `--max-text` as written can quote values that make it
+/// longer: the text with its values filled in is held to the limit too
+/// (ten `{conclusion}`s in a takeaway went past it unchecked).
+#[test]
+fn quoted_values_count_against_the_text_limit() {
+    let dir = scratch("expanded-text");
+    let conclusion = "Evening swims pay off in a year.";
+    let story = format!(
+        "story \"Made here\"\nsource \"Invented test data\"\nconclusion \"{conclusion}\"\n\
+         data t from \"t.csv\"\nframe \"All\" {{\n  bars t: category c, value n\n  \
+         takeaway \"{{conclusion}} {{conclusion}} {{conclusion}}\"\n}}\n"
+    );
+    fs::write(dir.join("story.cresc"), story).unwrap();
+    fs::write(dir.join("t.csv"), "c,n\nA,1\nB,2\n").unwrap();
+    let run = crescendo(&dir, &["check", "story.cresc", "--max-text", "80"]);
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert_eq!(run.status.code(), Some(1), "{err}");
+    let filled = 3 * conclusion.len() + 2;
+    assert!(
+        err.contains(&format!(
+            "this text has {filled} characters with its quoted values filled in, more than the limit of 80 (--max-text)"
+        )),
+        "{err}"
+    );
+    assert!(err.contains("story.cresc:7:12"), "{err}");
+    // within the limit with its values, the same story checks
+    let run = crescendo(&dir, &["check", "story.cresc", "--max-text", "200"]);
+    assert_eq!(
+        run.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+}

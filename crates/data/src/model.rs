@@ -121,19 +121,31 @@ pub enum ArithOp {
 }
 
 /// A resolved, type-checked expression over one row. Column references are
-/// indices into the input table of the step.
+/// indices into the input table of the step. A chain of operators
+/// (`a + b - c`, `a and b and c`) is one node evaluated in a loop, so no
+/// walk over an expression takes stack in proportion to a chain's length.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Expr {
     Col(usize),
     Lit(Value),
     Neg(Box<Expr>),
-    Arith(ArithOp, Box<Expr>, Box<Expr>),
+    /// `a op b op c ...`, applied left to right.
+    Arith(Box<Expr>, Vec<(ArithOp, Expr)>),
     Cmp(CmpOp, Box<Expr>, Box<Expr>),
-    And(Box<Expr>, Box<Expr>),
-    Or(Box<Expr>, Box<Expr>),
+    /// True when every part is (left to right, stopping at a false one).
+    And(Vec<Expr>),
+    /// True when some part is (left to right, stopping at a true one).
+    Or(Vec<Expr>),
     Not(Box<Expr>),
     /// `expr in (v1, v2, ...)`.
     In(Box<Expr>, Vec<Value>),
+}
+
+impl Expr {
+    /// `a op b`.
+    pub fn arith(op: ArithOp, a: Expr, b: Expr) -> Expr {
+        Expr::Arith(Box::new(a), vec![(op, b)])
+    }
 }
 
 /// Aggregate functions of a group step.

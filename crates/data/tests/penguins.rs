@@ -238,10 +238,10 @@ fn missing_is_handled_per_column_not_per_row() {
         ))
     };
     // x = x is false exactly when x is missing.
-    let complete = Expr::And(
-        present("sex"),
-        Box::new(Expr::And(present("bill_length_mm"), present("body_mass_g"))),
-    );
+    let complete = Expr::And(vec![
+        *present("sex"),
+        Expr::And(vec![*present("bill_length_mm"), *present("body_mass_g")]),
+    ]);
     let out = run_view(
         &t,
         &[

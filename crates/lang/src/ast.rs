@@ -690,13 +690,16 @@ pub struct Tolerance {
     pub span: Span,
 }
 
+/// The most decimals a quoted value may ask for (`{x:.12}`).
+pub const MAX_DECIMALS: usize = 12;
+
 /// How a quoted value is printed: `{name:+.1%}`.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub struct FormatSpec {
     /// `+`: always print a sign (+12%, -3%).
     pub sign: bool,
-    /// `.N`: exactly N decimals (trailing zeros kept). `None`: a few
-    /// decimals, trailing zeros dropped.
+    /// `.N`: exactly N decimals (trailing zeros kept), at most
+    /// [`MAX_DECIMALS`]. `None`: a few decimals, trailing zeros dropped.
     pub decimals: Option<usize>,
     pub style: NumberStyle,
 }

@@ -6,6 +6,7 @@
 pub mod ast;
 pub mod format;
 pub mod parser;
+pub mod source;
 pub mod visit;
 
 pub use format::{format_source, format_story};

@@ -93,6 +93,21 @@ impl<'a> Ctx<'a> {
         }
     }
 
+    /// Report an error unless the same error (message and place) was
+    /// reported already: a text planned again (a carried title, an
+    /// unfolded frame) is reported once.
+    pub(crate) fn report_once(&mut self, d: Diagnostic) -> Reported {
+        let seen = self
+            .diags
+            .iter()
+            .any(|x| x.message == d.message && x.location() == d.location());
+        if seen {
+            self.already_reported()
+        } else {
+            self.report(d)
+        }
+    }
+
     /// Add a warning.
     pub(crate) fn warn(&mut self, d: Diagnostic) {
         self.diags.push(d);

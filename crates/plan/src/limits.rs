@@ -113,6 +113,32 @@ fn literals(text: &str) -> Vec<std::ops::Range<usize>> {
     out
 }
 
+/// The error for a text that quotes values (`text`, at `span` in the
+/// story) and, with them filled in, is longer than the text limit: ten
+/// `{conclusion}`s in a takeaway make a text ten conclusions long.
+pub fn expanded_text(
+    src: &Arc<Source>,
+    span: &std::ops::Range<usize>,
+    text: &str,
+    limits: &Limits,
+) -> Option<Diagnostic> {
+    if text.len() <= limits.text {
+        return None;
+    }
+    let n = text.chars().count();
+    (n > limits.text).then(|| {
+        Diagnostic::error(
+            "limit",
+            format!(
+                "this text has {n} characters with its quoted values filled in, more than the limit of {} (--max-text)",
+                limits.text
+            ),
+        )
+        .at(src, span.start..span.start + 1, "this text is too long")
+        .help("quote fewer or shorter values, or raise the limit")
+    })
+}
+
 /// Errors for a story over the text or frame limits.
 pub fn story(src: &Arc<Source>, ast: &StoryAst, limits: &Limits) -> Vec<Diagnostic> {
     let mut diags = Vec::new();

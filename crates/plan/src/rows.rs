@@ -252,26 +252,33 @@ impl Checker<'_> {
 
     /// Operators of one level, applied left to right: the operands are
     /// checked in order, and each operator checks the operands it joins.
+    /// The engine's expression is one node for the whole chain.
     fn chain(&mut self, first: &Expr, rest: &[Link]) -> Option<(data::Expr, Ty)> {
-        let (mut acc, first_ty) = self.check(first)?;
-        let mut ty = first_ty.clone();
+        let (head, first_ty) = self.check(first)?;
+        let mut operands = Vec::with_capacity(rest.len());
         for (k, link) in rest.iter().enumerate() {
             let (r, rt) = self.check(&link.operand)?;
             if k == 0 {
                 self.operand(link.op, &first_ty, first)?;
             }
             self.operand(link.op, &rt, &link.operand)?;
-            let (l, r) = (Box::new(acc), Box::new(r));
-            (acc, ty) = match link.op {
-                BinOp::And => (data::Expr::And(l, r), Ty::Bool),
-                BinOp::Or => (data::Expr::Or(l, r), Ty::Bool),
-                op => (
-                    data::Expr::Arith(arith_op(op), l, r),
-                    Ty::Col(ColType::Number),
-                ),
-            };
+            operands.push((link.op, r));
         }
-        Some((acc, ty))
+        Some(match rest.first().map(|l| l.op) {
+            Some(BinOp::And) => (data::Expr::And(all(head, operands)), Ty::Bool),
+            Some(BinOp::Or) => (data::Expr::Or(all(head, operands)), Ty::Bool),
+            Some(_) => (
+                data::Expr::Arith(
+                    Box::new(head),
+                    operands
+                        .into_iter()
+                        .map(|(op, e)| (arith_op(op), e))
+                        .collect(),
+                ),
+                Ty::Col(ColType::Number),
+            ),
+            None => (head, first_ty),
+        })
     }
 
     /// Check that `side`, of type `t`, fits operator `op` of a chain.
@@ -338,6 +345,13 @@ impl Checker<'_> {
         };
         Some((data::Expr::Cmp(cop, Box::new(l), Box::new(r)), Ty::Bool))
     }
+}
+
+/// The first expression and the operands after it, in order.
+fn all(first: data::Expr, rest: Vec<(BinOp, data::Expr)>) -> Vec<data::Expr> {
+    std::iter::once(first)
+        .chain(rest.into_iter().map(|(_, e)| e))
+        .collect()
 }
 
 fn arith_op(op: BinOp) -> ArithOp {

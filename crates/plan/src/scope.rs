@@ -37,6 +37,13 @@ impl Scope {
         // a text that does not resolve fails its frame or item, which
         // checks for errors itself
         let _ = cx.extend(d);
+        if r.template.is_some() {
+            // with its quoted values filled in, a text may pass the limit
+            let limits = &cx.options.limits;
+            if let Some(e) = crate::limits::expanded_text(cx.src, &s.span, &r.text, limits) {
+                cx.report_once(e);
+            }
+        }
         r
     }
 }

@@ -183,14 +183,21 @@ impl Printer {
             }
             Expr::Lit(v) => self.param(v),
             Expr::Neg(a) => format!("(-{})", self.number(a)),
-            Expr::Arith(op, a, b) => {
-                let (x, y) = (self.number(a), self.number(b));
-                match op {
-                    ArithOp::Add => format!("({x} + {y})"),
-                    ArithOp::Sub => format!("({x} - {y})"),
-                    ArithOp::Mul => format!("({x} * {y})"),
-                    ArithOp::Div => format!("({x} / NULLIF({y}, 0))"),
+            Expr::Arith(first, rest) => {
+                // `((a + b) - c)`: one parenthesis per operator, written in
+                // a loop
+                let mut out = "(".repeat(rest.len());
+                out.push_str(&self.number(first));
+                for (op, b) in rest {
+                    let y = self.number(b);
+                    out.push_str(&match op {
+                        ArithOp::Add => format!(" + {y})"),
+                        ArithOp::Sub => format!(" - {y})"),
+                        ArithOp::Mul => format!(" * {y})"),
+                        ArithOp::Div => format!(" / NULLIF({y}, 0))"),
+                    });
                 }
+                out
             }
             // A predicate used as a value is missing (as in the engine).
             _ => "NULL".to_string(),
@@ -220,6 +227,21 @@ impl Printer {
         }
     }
 
+    /// Predicates joined by `word`, `((a AND b) AND c)`, in a loop;
+    /// `empty` when there are none.
+    fn joined(&mut self, parts: &[Expr], word: &str, empty: &str) -> String {
+        let Some((first, rest)) = parts.split_first() else {
+            return empty.to_string();
+        };
+        let mut out = "(".repeat(rest.len());
+        out.push_str(&self.truth(first));
+        for p in rest {
+            let t = self.truth(p);
+            out.push_str(&format!(" {word} {t})"));
+        }
+        out
+    }
+
     /// A predicate, never NULL.
     fn truth(&mut self, e: &Expr) -> String {
         match e {
@@ -235,8 +257,8 @@ impl Printer {
                 };
                 format!("COALESCE({x} {op} {y}, false)")
             }
-            Expr::And(a, b) => format!("({} AND {})", self.truth(a), self.truth(b)),
-            Expr::Or(a, b) => format!("({} OR {})", self.truth(a), self.truth(b)),
+            Expr::And(parts) => self.joined(parts, "AND", "true"),
+            Expr::Or(parts) => self.joined(parts, "OR", "false"),
             Expr::Not(a) => format!("(NOT {})", self.truth(a)),
             Expr::In(a, list) => {
                 if list.is_empty() {
@@ -995,25 +1017,25 @@ mod tests {
         let lit = |v: Value| Box::new(Expr::Lit(v));
         let col = |i: usize| Box::new(Expr::Col(i));
         let keeps = vec![
-            Expr::And(
-                Box::new(Expr::Cmp(CmpOp::Ge, col(0), lit(Value::Month(2024 * 12)))),
-                Box::new(Expr::Not(Box::new(Expr::In(
+            Expr::And(vec![
+                Expr::Cmp(CmpOp::Ge, col(0), lit(Value::Month(2024 * 12))),
+                Expr::Not(Box::new(Expr::In(
                     col(1),
                     vec![Value::Text("A".into()), Value::Text("B".into())],
-                )))),
-            ),
-            Expr::Or(
-                Box::new(Expr::Cmp(CmpOp::Ne, col(3), lit(Value::Year(2020)))),
-                Box::new(Expr::Cmp(
+                ))),
+            ]),
+            Expr::Or(vec![
+                Expr::Cmp(CmpOp::Ne, col(3), lit(Value::Year(2020))),
+                Expr::Cmp(
                     CmpOp::Lt,
-                    Box::new(Expr::Neg(Box::new(Expr::Arith(
+                    Box::new(Expr::Neg(Box::new(Expr::arith(
                         ArithOp::Sub,
-                        col(4),
-                        col(2),
+                        *col(4),
+                        *col(2),
                     )))),
                     lit(Value::Number(-1.5)),
-                )),
-            ),
+                ),
+            ]),
         ];
         let agg = |name: &str, func, column| Aggregate {
             name: name.into(),
@@ -1062,11 +1084,7 @@ mod tests {
         let steps = vec![
             Step::Derive {
                 name: "half".into(),
-                expr: Expr::Arith(
-                    ArithOp::Div,
-                    Box::new(Expr::Col(2)),
-                    Box::new(Expr::Lit(Value::Number(2.0))),
-                ),
+                expr: Expr::arith(ArithOp::Div, Expr::Col(2), Expr::Lit(Value::Number(2.0))),
             },
             Step::Keep(Expr::Cmp(
                 CmpOp::Gt,
@@ -1115,14 +1133,58 @@ mod tests {
         assert_eq!(q.params, vec!["2.0".to_string(), "10.0".to_string()]);
     }
 
+    /// A chain of operators prints as nested parentheses, one per
+    /// operator, written in a loop: 100,000 `and`ed comparisons print on a
+    /// test thread's stack, in time linear in their number.
+    #[test]
+    fn chains_print_nested_in_a_loop() {
+        let gt = |v: f64| {
+            Expr::Cmp(
+                CmpOp::Gt,
+                Box::new(Expr::Col(2)),
+                Box::new(Expr::Lit(Value::Number(v))),
+            )
+        };
+        let keep = |e: Expr| {
+            prefix(
+                &From::Query("select 1;".into()),
+                &RowOrder::default(),
+                &cols(),
+                &[e],
+                None,
+            )
+        };
+        let sum = Expr::Arith(
+            Box::new(Expr::Col(2)),
+            vec![(ArithOp::Add, Expr::Col(2)), (ArithOp::Sub, Expr::Col(2))],
+        );
+        let q = keep(Expr::Cmp(
+            CmpOp::Gt,
+            Box::new(sum),
+            Box::new(Expr::Lit(Value::Number(1.0))),
+        ));
+        let c = "s.c2::double precision";
+        assert!(q.sql.contains(&format!("(({c} + {c}) - {c})")), "{}", q.sql);
+        let q = keep(Expr::Or(vec![gt(1.0), gt(2.0), gt(3.0)]));
+        assert!(
+            q.sql.contains("((COALESCE(") && q.sql.contains(", false) OR COALESCE("),
+            "{}",
+            q.sql
+        );
+        let n = 100_000;
+        let q = keep(Expr::And((0..n).map(|i| gt(i as f64)).collect()));
+        assert_eq!(q.params.len(), n);
+        assert_eq!(q.sql.matches(" AND ").count(), n - 1);
+    }
+
     #[test]
     fn numbers_divide_safely_and_median_reads_both_middles() {
         let keep = Expr::Cmp(
             CmpOp::Gt,
-            Box::new(Expr::Arith(
+            Box::new(Expr::arith(
                 ArithOp::Div,
-                Box::new(Expr::Col(2)),
-                Box::new(Expr::Lit(Value::Number(0.5))),
+                Expr::Col(2),
+                Expr::Lit(Value::Number(0.5)),
             )),
             Box::new(Expr::Lit(Value::Number(3.0))),
         );
@@ -1196,11 +1258,7 @@ mod tests {
             }),
             Piece::Step(Step::Derive {
                 name: "share".into(),
-                expr: Expr::Arith(
-                    ArithOp::Div,
-                    Box::new(Expr::Col(1)),
-                    Box::new(Expr::Lit(Value::Number(4.0))),
-                ),
+                expr: Expr::arith(ArithOp::Div, Expr::Col(1), Expr::Lit(Value::Number(4.0))),
             }),
             Piece::Step(Step::Keep(Expr::Cmp(
                 CmpOp::Gt,

@@ -6,8 +6,10 @@
 //! and data sources (`items.rs`), view steps (`views.rs`), frame statements
 //! (`frames.rs`), expressions (`values.rs`) and the texts that quote values
 //! (`templates.rs`); `errors.rs` words syntax errors, `nesting.rs` refuses
-//! input nested too deep before anything recursive runs.
+//! input nested too deep before anything recursive runs, `controls.rs`
+//! characters no text of a deck can carry.
 
+pub mod controls;
 mod errors;
 mod frames;
 mod items;
@@ -64,6 +66,10 @@ pub fn parse(source: &Arc<Source>) -> (StoryAst, Vec<Diagnostic>) {
     let text = source.text.as_str();
     if let Some(d) = nesting::check(source, 0..text.len()) {
         return (StoryAst { items: Vec::new() }, vec![d]);
+    }
+    let controls = controls::check(source);
+    if !controls.is_empty() {
+        return (StoryAst { items: Vec::new() }, controls);
     }
     let mut items = Vec::new();
     let mut diags = Vec::new();

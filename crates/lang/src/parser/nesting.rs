@@ -1,7 +1,9 @@
 //! The one nesting cap. The grammar, the syntax tree and everything that
 //! walks it recurse once per level of parentheses and signs (a chain of
 //! operators is read and walked in a loop), so input nested deeper than
-//! [`MAX_NESTING`] is refused before any of them can run out of stack.
+//! [`MAX_NESTING`] is refused before any of them can run out of stack: the
+//! whole story first (strings skipped), then each quoted value of a text
+//! (`{...}`) before it is parsed.
 
 use std::sync::Arc;
 

@@ -9,7 +9,7 @@ use crescendo_diag::{Diagnostic, Source};
 use pest::Parser;
 
 use super::errors::{syntax_error, Context};
-use super::{children, location, Conv, Rule, StoryParser};
+use super::{children, location, nesting, Conv, Rule, StoryParser};
 use crate::ast::*;
 
 /// Read the characters `raw` of a string literal at `span` (quotes
@@ -116,6 +116,11 @@ fn quote(
         );
         return None;
     }
+    // the same cap as for the rest of the story (whose check skips strings)
+    if let Some(d) = nesting::check(source, body_start..body_start + body.len()) {
+        diags.push(d);
+        return None;
+    }
     let q = match StoryParser::parse(Rule::quote, body) {
         Ok(mut pairs) => pairs.next()?,
         Err(err) => {
@@ -137,7 +142,17 @@ fn quote(
                 Ok(e) => expr = Some(e),
                 Err(e) => diags.push(e.into_diag(source)),
             },
-            Rule::format_spec => format = format_spec(p.as_str()),
+            Rule::format_spec => {
+                let at = body_start + p.as_span().start();
+                match format_spec(p.as_str()) {
+                    Ok(f) => format = f,
+                    Err(digits) => {
+                        let start = at + digits.start;
+                        diags.push(too_many_decimals(source, start..at + digits.end));
+                        return None;
+                    }
+                }
+            }
             _ => {}
         }
     }
@@ -145,8 +160,22 @@ fn quote(
     Some((expr?, format))
 }
 
-/// A format as written after the `:` of a quoted value.
-fn format_spec(spec: &str) -> FormatSpec {
+/// The error for a `.N` asking for more than [`MAX_DECIMALS`] decimals
+/// (its digits at `span`).
+fn too_many_decimals(source: &Arc<Source>, span: Span) -> Diagnostic {
+    let digits = source.text.get(span.clone()).unwrap_or("");
+    Diagnostic::error(
+        "format",
+        format!("a quoted value shows at most {MAX_DECIMALS} decimals, not {digits}"),
+    )
+    .at(source, span, "too many decimals")
+    .help(format!("write `.{MAX_DECIMALS}` or fewer"))
+}
+
+/// A format as written after the `:` of a quoted value; `Err` with the
+/// byte range of the digits of a `.N` above [`MAX_DECIMALS`] (or too large
+/// to read).
+fn format_spec(spec: &str) -> Result<FormatSpec, std::ops::Range<usize>> {
     let mut f = FormatSpec {
         sign: spec.starts_with('+'),
         ..FormatSpec::default()
@@ -157,7 +186,7 @@ fn format_spec(spec: &str) -> FormatSpec {
         _ => {}
     }
     if f.style != NumberStyle::Plain {
-        return f;
+        return Ok(f);
     }
     let rest = spec.trim_start_matches('+');
     let (digits, style) = match rest.strip_suffix('%') {
@@ -168,9 +197,12 @@ fn format_spec(spec: &str) -> FormatSpec {
         },
     };
     f.style = style;
-    f.decimals = digits
-        .strip_prefix('.')
-        .and_then(|d| d.parse().ok())
-        .map(|d: usize| d.min(12));
-    f
+    if let Some(d) = digits.strip_prefix('.') {
+        let start = spec.len() - rest.len() + 1;
+        match d.parse::<usize>() {
+            Ok(n) if n <= MAX_DECIMALS => f.decimals = Some(n),
+            _ => return Err(start..start + d.len()),
+        }
+    }
+    Ok(f)
 }

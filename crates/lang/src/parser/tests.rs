@@ -534,3 +534,154 @@ fn deep_nesting_is_a_located_error_not_a_stack_overflow() {
     let (_, diags) = parse(&Source::file("ok.cresc", ok));
     assert!(diags.iter().all(|d| d.code != "too-deep"), "{diags:?}");
 }
+
+/// Flat chains of operators are read, walked and printed in loops: 13,000
+/// terms parse and format on a test thread's 2 MB stack (12,700 overflowed
+/// the 8 MB main thread's stack when every operator was a level of the
+/// tree).
+#[test]
+fn long_chains_take_no_stack_in_proportion_to_their_length() {
+    let n = 13_000;
+    let sum = vec!["1"; n].join(" + ");
+    let and = vec!["riders > 0"; n].join(" and ");
+    let or = vec!["x > 1"; n].join(" or ");
+    let text = format!(
+        "value v = {sum}\nview w = d\n  | keep {and}\nclaim {or} \"s\"\nframe \"{{{sum}}}\" {{}}\n"
+    );
+    let (ast, diags) = parse_str(&text);
+    assert!(diags.is_empty(), "{diags:?}");
+    let Item::Value(v) = &ast.items[0] else {
+        panic!()
+    };
+    let Expr::Chain { rest, span, .. } = &v.expr else {
+        panic!()
+    };
+    assert_eq!(rest.len(), n - 1);
+    assert_eq!(&text[span.clone()], sum);
+    let Item::Frame(f) = &ast.items[3] else {
+        panic!()
+    };
+    assert!(
+        matches!(&f.headline.template.parts[..], [TextPart::Quote { expr: Expr::Chain { rest, .. }, .. }] if rest.len() == n - 1)
+    );
+    let formatted = crate::format_story(&text).expect("formats");
+    assert_eq!(formatted, text);
+}
+
+/// Run `f` on a thread with the stack of a program's main thread (8 MB),
+/// where the command parses stories: the parser recurses once per level
+/// of nesting (up to [`MAX_NESTING`]), which a debug build's frames make
+/// deeper than a test thread's 2 MB.
+fn with_main_stack(f: impl FnOnce() + Send + 'static) {
+    std::thread::Builder::new()
+        .stack_size(8 << 20)
+        .spawn(f)
+        .expect("a thread")
+        .join()
+        .expect("no panic");
+}
+
+/// The nesting cap applies inside quoted values too: 1,000 parentheses in
+/// `{...}` were accepted (and about 1,840 overflowed the stack).
+#[test]
+fn quoted_values_nest_no_deeper_than_the_rest() {
+    with_main_stack(quoted_values_nest);
+}
+
+fn quoted_values_nest() {
+    for depth in [MAX_NESTING + 1, 1000, 100_000] {
+        let text = format!(
+            "story \"{{{}x{}}}\"\n",
+            "(".repeat(depth),
+            ")".repeat(depth)
+        );
+        let (_, diags) = parse_str(&text);
+        assert_eq!(diags.len(), 1, "{diags:?}");
+        assert_eq!(diags[0].code, "too-deep");
+        // at the parenthesis that goes one level too deep
+        let (_, line, col) = diags[0].location().unwrap();
+        assert_eq!((line, col), (1, 9 + MAX_NESTING));
+    }
+    let ok = format!(
+        "story \"{{{}x{}}}\"\n",
+        "(".repeat(MAX_NESTING),
+        ")".repeat(MAX_NESTING)
+    );
+    let (_, diags) = parse_str(&ok);
+    assert!(diags.is_empty(), "{diags:?}");
+}
+
+/// `{x:.N}` with N above 12 was silently capped at 12, and an N too large
+/// to read silently fell back to the default format: both are errors at
+/// the digits.
+#[test]
+fn quoted_values_ask_for_at_most_twelve_decimals() {
+    let t = template_of(r#"story "{x:.12} {x:+.0%} {x:.3k}""#).unwrap();
+    let decimals: Vec<Option<usize>> = t
+        .parts
+        .iter()
+        .filter_map(|p| match p {
+            TextPart::Quote { format, .. } => Some(format.decimals),
+            _ => None,
+        })
+        .collect();
+    assert_eq!(decimals, [Some(12), Some(0), Some(3)]);
+    for (text, digits) in [
+        (r#"story "a {x:.13}""#, "13"),
+        (
+            r#"story "a {x:+.99999999999999999999999%}""#,
+            "99999999999999999999999",
+        ),
+    ] {
+        let errs = template_of(text).unwrap_err();
+        assert_eq!(errs.len(), 1, "{errs:?}");
+        assert_eq!(errs[0].code, "format");
+        assert_eq!(
+            errs[0].message,
+            format!("a quoted value shows at most 12 decimals, not {digits}")
+        );
+        let at = text.find(digits).unwrap();
+        assert_eq!(errs[0].location().unwrap().2, at + 1);
+        let shown = crescendo_diag::render(&errs, false);
+        assert!(shown.contains(&"^".repeat(digits.len())), "{shown}");
+    }
+}
+
+/// XML 1.0 cannot carry the C0 controls (but tab, line feed, carriage
+/// return), U+FFFE and U+FFFF: a story string holding one made an SVG that
+/// is not XML while the build exited 0. Each line holding one is an error
+/// at the character; comments may hold anything.
+#[test]
+fn control_characters_are_refused_at_the_character() {
+    let text = "story \"A\u{7}B\"\n# a comment may hold \u{1} anything\nbyline \"tab\tand \\\u{b} \u{ffff}\"\nsource \"x\" \u{0}\r\n";
+    let (ast, diags) = parse_str(text);
+    assert!(ast.items.is_empty());
+    let found: Vec<(String, usize, usize)> = diags
+        .iter()
+        .map(|d| {
+            let (_, line, col) = d.location().unwrap();
+            (d.message.clone(), line, col)
+        })
+        .collect();
+    let message = |code: &str| {
+        format!("the story holds the control character U+{code}, which no text of a deck can carry")
+    };
+    assert_eq!(
+        found,
+        [
+            (message("0007"), 1, 9),
+            (message("000B"), 3, 18),
+            (message("0000"), 4, 12),
+        ]
+    );
+    assert!(diags.iter().all(|d| d.code == "control-character"));
+    // tabs, carriage returns and line breaks are fine
+    let (_, diags) = parse_str("story \"a\tb\"\r\nbyline \"c\"\r\n");
+    assert!(diags.is_empty(), "{diags:?}");
+    for c in ['\u{1}', '\u{8}', '\u{c}', '\u{e}', '\u{1f}', '\u{fffe}'] {
+        assert!(controls::is_forbidden(c), "{c:?}");
+    }
+    for c in ['\t', '\n', '\r', ' ', '\u{7f}', '\u{fffd}'] {
+        assert!(!controls::is_forbidden(c), "{c:?}");
+    }
+}

@@ -45,8 +45,13 @@ fn put<T: Serialize>(cache: Option<&mut dyn ViewCache>, kind: &str, key: &str, v
 
 /// The columns a stream parses: declared, read by a prefix, or kept by a
 /// `keep`-only prefix; and the part of the data key that says which
-/// values are kept.
-fn parsed(spec: &CsvSpec, views: &[ast::ViewDecl], keep: &Columns) -> (BTreeSet<String>, String) {
+/// values are kept. `None`: a `keep`-only prefix keeps every column, so
+/// the file is loaded whole instead.
+fn parsed(
+    spec: &CsvSpec,
+    views: &[ast::ViewDecl],
+    keep: &Columns,
+) -> Option<(BTreeSet<String>, String)> {
     let mut names: BTreeSet<String> = spec.declared.iter().map(|(n, _)| n.clone()).collect();
     let mut keep_only = false;
     for v in views {
@@ -54,12 +59,17 @@ fn parsed(spec: &CsvSpec, views: &[ast::ViewDecl], keep: &Columns) -> (BTreeSet<
         names.extend(names_in_steps(&v.steps[..n]));
         keep_only |= !v.steps[..n].iter().any(|s| matches!(s, StepAst::By { .. }));
     }
+    // The rows of a `keep`-only prefix carry the cells of every kept
+    // column, which are only read when parsed.
     let keep_key = match (keep_only, keep) {
         (false, _) => "-".to_string(),
-        (true, Columns::All) => "*".to_string(),
-        (true, Columns::Only(k)) => format!("{k:?}"),
+        (true, Columns::All) => return None,
+        (true, Columns::Only(k)) => {
+            names.extend(k.iter().cloned());
+            format!("{k:?}")
+        }
     };
-    (names, keep_key)
+    Some((names, keep_key))
 }
 
 /// The file's schema and where its records start: from the cache, or from
@@ -156,7 +166,7 @@ pub(crate) fn stream(
     views: &[ast::ViewDecl],
     keep: &Columns,
 ) -> Option<Outcome<Table>> {
-    let (parse, keep_key) = parsed(spec, views, keep);
+    let (parse, keep_key) = parsed(spec, views, keep)?;
     let data_key = match cx.io.cache() {
         Some(c) => {
             // an unreadable file: let the load report it
