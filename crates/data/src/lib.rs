@@ -1,7 +1,10 @@
 //! Data for crescendo: CSV loading into typed columns, the view engine that
 //! runs resolved view steps, and number/date formatting.
 
+pub mod column;
+pub mod files;
 pub mod format;
+mod hash;
 pub mod load;
 pub mod locale;
 pub mod model;

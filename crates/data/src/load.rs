@@ -28,6 +28,13 @@
 //!
 //! Row numbers in messages count data records (row 1 is the first record after
 //! the header); the diagnostic's location shows the real line of the file.
+//!
+//! Cells the story reads (kept and declared columns) and header names may
+//! not hold a control character XML cannot carry (U+0000–U+0008, U+000B,
+//! U+000C, U+000E–U+001F, U+FFFE, U+FFFF): such a cell is a located
+//! `bad-character` error, as invalid UTF-8 is. Tab, line feed and carriage
+//! return are kept. [`ReadLimits`] bounds the length of those cells and the
+//! rows held in memory.
 
 // `LoadError::Csv` holds a full `Diagnostic` by value, as the crate's API
 // specifies; the error happens at most once per load, so its size is harmless.
@@ -43,7 +50,8 @@ use std::sync::Arc;
 
 use crescendo_diag::{closest, Diagnostic, Source};
 
-use crate::model::{ColType, Column, Table, Value};
+use crate::files::ReadAt;
+use crate::model::{Cell, ColType, Column, Table, Value, Values};
 use crate::time::{parse_date, parse_month, parse_year};
 
 /// What to load and how to read it.
@@ -57,6 +65,36 @@ pub struct CsvSpec {
     pub declared: Vec<(String, ColType)>,
     /// Exact cell texts that mean "missing"; callers pass `["", "NA"]` by default.
     pub missing: Vec<String>,
+}
+
+/// Limits on one read, so that a hostile or broken file stops with a clear
+/// error instead of exhausting memory or time.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct ReadLimits {
+    /// Longest text, in characters, of a cell the story reads.
+    pub text: usize,
+    /// Most data rows held in memory (`--max-rows`); `None`: as many as fit
+    /// in `memory` bytes.
+    pub rows: Option<usize>,
+    /// Bytes the held rows may take when `rows` is `None`.
+    pub memory: u64,
+}
+
+impl ReadLimits {
+    /// No limits (what [`load_csv`] uses).
+    pub fn none() -> ReadLimits {
+        ReadLimits {
+            text: usize::MAX,
+            rows: None,
+            memory: u64::MAX,
+        }
+    }
+}
+
+impl Default for ReadLimits {
+    fn default() -> Self {
+        ReadLimits::none()
+    }
 }
 
 /// Why a CSV file could not be loaded.
@@ -143,9 +181,22 @@ impl Columns {
 
 /// [`load_csv`], keeping the values of the selected columns only.
 pub fn load_csv_columns(spec: &CsvSpec, columns: &Columns) -> Result<Table, LoadError> {
-    let total = std::fs::metadata(&spec.path).map(|m| m.len()).unwrap_or(0);
+    let file = File::open(&spec.path).map_err(|e| io_error(spec, &e))?;
+    load_file(spec, &file, columns, &ReadLimits::none())
+}
+
+/// [`load_csv_columns`] from a file already opened (and checked, see
+/// [`crate::files`]) for `spec.path`, within `limits`. Every byte is read
+/// through `file`.
+pub fn load_file(
+    spec: &CsvSpec,
+    file: &File,
+    columns: &Columns,
+    limits: &ReadLimits,
+) -> Result<Table, LoadError> {
+    let total = file.metadata().map(|m| m.len()).unwrap_or(0);
     let _task = crate::progress::Task::begin(&spec.display_name, total);
-    let (loader, _) = read(spec, columns, None)?;
+    let (loader, _) = read(spec, file, columns, None, limits)?;
     loader.finish()
 }
 
@@ -168,7 +219,19 @@ pub struct Probe {
 /// Read the header and up to `rows` records. Errors in that part of the file
 /// are reported as [`load_csv`] reports them.
 pub fn probe(spec: &CsvSpec, columns: &Columns, rows: usize) -> Result<Probe, LoadError> {
-    let (loader, data_start) = read(spec, columns, Some(rows))?;
+    let file = File::open(&spec.path).map_err(|e| io_error(spec, &e))?;
+    probe_file(spec, &file, columns, rows, &ReadLimits::none())
+}
+
+/// [`probe`] from a file already opened for `spec.path`, within `limits`.
+pub fn probe_file(
+    spec: &CsvSpec,
+    file: &File,
+    columns: &Columns,
+    rows: usize,
+    limits: &ReadLimits,
+) -> Result<Probe, LoadError> {
+    let (loader, data_start) = read(spec, file, columns, Some(rows), limits)?;
     let types = loader
         .columns
         .iter()
@@ -190,13 +253,14 @@ pub fn probe(spec: &CsvSpec, columns: &Columns, rows: usize) -> Result<Probe, Lo
 /// Returns the loader and the file offset where the data rows start.
 fn read<'s>(
     spec: &'s CsvSpec,
+    file: &File,
     columns: &'s Columns,
     limit: Option<usize>,
+    limits: &'s ReadLimits,
 ) -> Result<(Loader<'s>, u64), LoadError> {
-    let file = File::open(&spec.path).map_err(|e| io_error(spec, &e))?;
-    let (input, bom) = skip_bom(file).map_err(|e| io_error(spec, &e))?;
+    let (input, bom) = skip_bom(ReadAt::new(file, 0)).map_err(|e| io_error(spec, &e))?;
     let mut rdr = reader_builder().from_reader(Tee::new(input));
-    let mut loader = Loader::new(spec, columns);
+    let mut loader = Loader::new(spec, columns, limits);
     let mut record = csv::ByteRecord::new();
     let mut index = 0usize;
     let mut data_start = bom;
@@ -294,6 +358,27 @@ pub fn parse_number(s: &str) -> Option<f64> {
     s.parse::<f64>().ok().filter(|v| v.is_finite())
 }
 
+/// The first character of `s` that XML 1.0 cannot carry (see the module
+/// docs), with its byte offset.
+pub(crate) fn forbidden_char(s: &str) -> Option<(usize, char)> {
+    // fast path: only bytes below 0x20 and the lead byte of U+FFFE/U+FFFF
+    if !s.bytes().any(|b| b < 0x20 || b == 0xEF) {
+        return None;
+    }
+    s.char_indices().find(|&(_, c)| {
+        matches!(c, '\u{0}'..='\u{8}' | '\u{b}' | '\u{c}' | '\u{e}'..='\u{1f}' | '\u{fffe}' | '\u{ffff}')
+    })
+}
+
+/// The number of characters of `s` when it has more than `limit`.
+pub(crate) fn too_long(s: &str, limit: usize) -> Option<usize> {
+    if s.len() <= limit {
+        return None;
+    }
+    let n = s.chars().count();
+    (n > limit).then_some(n)
+}
+
 /// Parse one cell as `ty`; `None` when it does not parse.
 fn parse_as(ty: ColType, s: &str) -> Option<Value> {
     match ty {
@@ -337,9 +422,9 @@ const BOM: &[u8] = b"\xEF\xBB\xBF";
 
 /// Read the first bytes and drop a UTF-8 byte order mark if present.
 /// A file with its byte order mark (if any) removed.
-type WithoutBom = io::Chain<io::Cursor<Vec<u8>>, File>;
+type WithoutBom<R> = io::Chain<io::Cursor<Vec<u8>>, R>;
 
-fn skip_bom(mut file: File) -> io::Result<(WithoutBom, u64)> {
+fn skip_bom<R: Read>(mut file: R) -> io::Result<(WithoutBom<R>, u64)> {
     let mut head = Vec::with_capacity(3);
     let mut buf = [0u8; 3];
     while head.len() < 3 {
@@ -509,6 +594,8 @@ fn field_span(raw: &[u8], field: usize) -> Range<usize> {
 
 /// Keep excerpts of huge records (an unclosed quote, say) readable.
 const MAX_EXCERPT: usize = 8 * 1024;
+/// Bytes shown after the span of a line longer than [`MAX_EXCERPT`].
+const EXCERPT_AFTER: usize = 60;
 
 /// A cell's text for a message: control characters escaped, long text cut.
 fn show(s: &str) -> String {
@@ -526,6 +613,14 @@ fn show(s: &str) -> String {
     }
     out
 }
+
+/// Why a control character in data is refused, and what to do.
+pub(crate) const CHAR_NOTE: &str = "a frame is SVG, an XML format, and XML cannot carry control \
+characters (other than tab and line breaks) or U+FFFE and U+FFFF; browsers refuse such a frame";
+pub(crate) const CHAR_HELP: &str =
+    "remove the character from the data file (it is often a stray byte from the program that wrote it)";
+const ROWS_HELP: &str = "a data file read only by views that start with `keep` or `by` is streamed \
+instead of held in memory; or set the most rows to hold with --max-rows N";
 
 /// "1 field", "2 fields".
 fn count(n: usize, noun: &str) -> String {
@@ -574,22 +669,55 @@ struct Builder {
     keep: bool,
     declared: Option<ColType>,
     infer: Infer,
-    values: Vec<Value>,
+    /// Declared columns hold typed cells; undeclared ones hold their texts
+    /// (each distinct text once) until [`Loader::finish`] knows their type.
+    values: Values,
 }
 
 struct Loader<'s> {
     spec: &'s CsvSpec,
     keep: &'s Columns,
+    limits: &'s ReadLimits,
     columns: Vec<Builder>,
     /// Data rows read.
     rows: usize,
 }
 
+/// How often (in rows) the memory the rows take is measured.
+const MEASURE_EVERY: usize = 8192;
+
+/// Bytes for people: "512 kB", "1.2 GB" (decimal units).
+fn bytes(n: u64) -> String {
+    let n = n as f64;
+    match n {
+        _ if n >= 1e9 => format!("{:.1} GB", n / 1e9),
+        _ if n >= 1e6 => format!("{:.1} MB", n / 1e6),
+        _ => format!("{:.0} kB", (n / 1e3).ceil()),
+    }
+}
+
+/// The text of an excerpt: invalid UTF-8 replaced, and characters that
+/// must not reach a terminal or XML shown as their visible pictures
+/// (U+2400 to U+241F for C0 controls, U+FFFD for U+FFFE and U+FFFF). Tab and
+/// line breaks stay.
+fn excerpt_text(bytes: &[u8]) -> String {
+    String::from_utf8_lossy(bytes)
+        .chars()
+        .map(|c| match c {
+            '\t' | '\n' | '\r' => c,
+            '\u{0}'..='\u{1f}' => char::from_u32(0x2400 + c as u32).unwrap_or('\u{fffd}'),
+            '\u{fffe}' | '\u{ffff}' => '\u{fffd}',
+            c => c,
+        })
+        .collect()
+}
+
 impl<'s> Loader<'s> {
-    fn new(spec: &'s CsvSpec, keep: &'s Columns) -> Self {
+    fn new(spec: &'s CsvSpec, keep: &'s Columns, limits: &'s ReadLimits) -> Self {
         Loader {
             spec,
             keep,
+            limits,
             columns: Vec::new(),
             rows: 0,
         }
@@ -606,23 +734,25 @@ impl<'s> Loader<'s> {
     ) -> Diagnostic {
         let bytes = if raw.bytes.len() > MAX_EXCERPT {
             let from = span.end.min(raw.bytes.len());
-            let cut = raw.bytes[from..]
+            let mut cut = raw.bytes[from..]
                 .iter()
                 .position(|&b| b == b'\n' || b == b'\r')
                 .map_or(raw.bytes.len(), |p| from + p);
+            if cut > MAX_EXCERPT {
+                // a single line that long (one huge field, say): show the
+                // text around the span only
+                cut = cut.min(from.max(span.start + 1) + EXCERPT_AFTER);
+            }
             &raw.bytes[..cut]
         } else {
             raw.bytes
         };
-        let (text, span) = match std::str::from_utf8(bytes) {
-            Ok(t) => (t.to_owned(), span),
-            Err(_) => {
-                let at = |o: usize| String::from_utf8_lossy(&bytes[..o.min(bytes.len())]).len();
-                (
-                    String::from_utf8_lossy(bytes).into_owned(),
-                    at(span.start)..at(span.end),
-                )
-            }
+        let text = excerpt_text(bytes);
+        let span = if text.as_bytes() == bytes {
+            span
+        } else {
+            let at = |o: usize| excerpt_text(&bytes[..o.min(bytes.len())]).len();
+            at(span.start)..at(span.end)
         };
         let source: Arc<Source> = Source::excerpt(&self.spec.display_name, text, raw.line);
         Diagnostic::error(code, message).at(&source, span, label)
@@ -686,6 +816,9 @@ impl<'s> Loader<'s> {
         record: &csv::ByteRecord,
         raw: &RawRecord<'_>,
     ) -> Result<(), LoadError> {
+        if index > 0 {
+            self.check_rows(index)?;
+        }
         self.check_quotes(index, raw)?;
         if index == 0 {
             return self.header(record, raw);
@@ -744,30 +877,123 @@ impl<'s> Loader<'s> {
             if !col.keep && col.declared.is_none() {
                 continue;
             }
-            let value = if self.spec.missing.iter().any(|m| m == text) {
-                Value::Missing
-            } else {
-                let col = &mut self.columns[j];
-                match col.declared {
-                    Some(ty) => match parse_as(ty, text) {
-                        Some(v) => v,
-                        None => return Err(self.bad_value(index, j, ty, text, raw)),
-                    },
-                    None => {
-                        let inf = &mut col.infer;
-                        inf.any = true;
-                        inf.month = inf.month && parse_month(text).is_some();
-                        inf.date = inf.date && parse_date(text).is_some();
-                        inf.number = inf.number && parse_number(text).is_some();
-                        Value::Text(text.to_owned())
+            self.check_text(index, j, text, raw)?;
+            if self.spec.missing.iter().any(|m| m == text) {
+                if self.columns[j].keep {
+                    self.columns[j].values.push_cell(Cell::Missing);
+                }
+                continue;
+            }
+            let col = &mut self.columns[j];
+            let value = match col.declared {
+                Some(ty) => match parse_as(ty, text) {
+                    Some(v) => v,
+                    None => return Err(self.bad_value(index, j, ty, text, raw)),
+                },
+                None => {
+                    let inf = &mut col.infer;
+                    inf.any = true;
+                    inf.month = inf.month && parse_month(text).is_some();
+                    inf.date = inf.date && parse_date(text).is_some();
+                    inf.number = inf.number && parse_number(text).is_some();
+                    if col.keep {
+                        col.values.push_cell(Cell::Text(text));
                     }
+                    continue;
                 }
             };
-            if self.columns[j].keep {
-                self.columns[j].values.push(value);
+            if col.keep {
+                col.values.push(value);
             }
         }
         self.rows += 1;
+        Ok(())
+    }
+
+    /// May row `index` be read? Within the row limit, or (without one)
+    /// while the rows read so far fit in the memory allowed.
+    fn check_rows(&self, index: usize) -> Result<(), LoadError> {
+        let name = &self.spec.display_name;
+        match self.limits.rows {
+            Some(max) if index > max => Err(LoadError::Story {
+                code: "limit",
+                message: format!(
+                    "data file `{name}` has more than {max} rows, more than the limit of {max} (--max-rows)"
+                ),
+                help: Some(ROWS_HELP.into()),
+                declared: None,
+            }),
+            None if index % MEASURE_EVERY == 0 => {
+                let held: usize = self.columns.iter().map(|b| b.values.heap_bytes()).sum();
+                if held as u64 <= self.limits.memory {
+                    return Ok(());
+                }
+                Err(LoadError::Story {
+                    code: "limit",
+                    message: format!(
+                        "data file `{name}` has more rows than fit in memory: its first {} rows \
+                         take {}, more than the {} allowed (half of the memory available; \
+                         the default of --max-rows)",
+                        index - 1,
+                        bytes(held as u64),
+                        bytes(self.limits.memory)
+                    ),
+                    help: Some(ROWS_HELP.into()),
+                    declared: None,
+                })
+            }
+            _ => Ok(()),
+        }
+    }
+
+    /// A cell the story reads: no character XML cannot carry, and within
+    /// the text limit.
+    fn check_text(
+        &self,
+        index: usize,
+        j: usize,
+        text: &str,
+        raw: &RawRecord<'_>,
+    ) -> Result<(), LoadError> {
+        let name = &self.columns[j].name;
+        let field = field_span(raw.bytes, j);
+        if let Some((_, c)) = forbidden_char(text) {
+            let mut utf8 = [0u8; 4];
+            let needle = c.encode_utf8(&mut utf8).as_bytes();
+            let at = raw.bytes[field.clone()]
+                .windows(needle.len())
+                .position(|w| w == needle)
+                .map_or(field.start, |p| field.start + p);
+            return Err(LoadError::Csv(
+                self.located(
+                    "bad-character",
+                    format!(
+                        "row {index}, column `{name}` holds the control character U+{:04X}",
+                        c as u32
+                    ),
+                    raw,
+                    at..at + needle.len(),
+                    "this character",
+                )
+                .note(CHAR_NOTE)
+                .help(CHAR_HELP),
+            ));
+        }
+        if let Some(n) = too_long(text, self.limits.text) {
+            return Err(LoadError::Csv(
+                self.located(
+                    "limit",
+                    format!(
+                        "row {index}, column `{name}` has {n} characters, more than the limit of {} (--max-text)",
+                        self.limits.text
+                    ),
+                    raw,
+                    field.start..field.start + 1,
+                    "this text is too long",
+                )
+                .help("shorten the text in the data file, or raise the limit with --max-text N"),
+            ));
+        }
         Ok(())
     }
 
@@ -821,6 +1047,23 @@ impl<'s> Loader<'s> {
                     .help("save the data file as UTF-8"),
                 ));
             };
+            if let Some((_, c)) = forbidden_char(name) {
+                return Err(LoadError::Csv(
+                    self.located(
+                        "bad-character",
+                        format!(
+                            "header field {} holds the control character U+{:04X}",
+                            j + 1,
+                            c as u32
+                        ),
+                        raw,
+                        field_span(raw.bytes, j),
+                        "this column name",
+                    )
+                    .note(CHAR_NOTE)
+                    .help(CHAR_HELP),
+                ));
+            }
             if name.is_empty() {
                 return Err(LoadError::Csv(
                     self.located(
@@ -892,7 +1135,7 @@ impl<'s> Loader<'s> {
                         number: true,
                         any: false,
                     },
-                    values: Vec::new(),
+                    values: Values::new(),
                 }
             })
             .collect();
@@ -931,19 +1174,16 @@ impl<'s> Loader<'s> {
                     return Column {
                         name: b.name,
                         ty,
-                        values: vec![Value::Missing; rows],
+                        values: Values::missing(rows),
                     };
                 }
                 let values = if b.declared.is_none() && ty != ColType::Text {
-                    b.values
-                        .into_iter()
-                        .map(|v| match v {
-                            Value::Text(s) => parse_as(ty, &s).unwrap_or(Value::Missing),
-                            other => other,
-                        })
-                        .collect()
+                    // each distinct text is parsed once
+                    b.values.map_texts(|s| parse_as(ty, s))
                 } else {
-                    b.values
+                    let mut v = b.values;
+                    v.shrink_to_fit();
+                    v
                 };
                 Column {
                     name: b.name,

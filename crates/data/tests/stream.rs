@@ -12,6 +12,7 @@ use crescendo_data::{
     load_csv, probe, run_view, AggFn, Aggregate, CmpOp, ColType, Columns, CsvSpec, Expr, Step,
     Table, Value,
 };
+use crescendo_data::load::ReadLimits;
 
 fn penguins_spec() -> CsvSpec {
     CsvSpec {
@@ -78,9 +79,12 @@ fn scan_all(
         .map(|(n, t)| (n.clone(), t.unwrap_or(ColType::Text)))
         .collect();
     let all = vec![true; schema.len()];
+    let file = std::fs::File::open(&spec.path).expect("open");
     scan(
         &ScanInput {
             spec,
+            file: &file,
+            limits: &ReadLimits::none(),
             schema: &schema,
             parse: &all,
             keep_values: &all,
