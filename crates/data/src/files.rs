@@ -16,11 +16,19 @@ use std::fs::File;
 use std::io::{self, Read};
 use std::path::{Path, PathBuf};
 
-/// Where files may be opened from.
-#[derive(Clone, Debug, Default, PartialEq, Eq)]
+/// Where files may be opened from (by default: nowhere).
+#[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Within {
     /// Resolved folders (links followed); `None`: anywhere.
     roots: Option<Vec<PathBuf>>,
+}
+
+impl Default for Within {
+    fn default() -> Self {
+        Within {
+            roots: Some(Vec::new()),
+        }
+    }
 }
 
 /// Why a file was not opened.

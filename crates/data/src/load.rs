@@ -399,7 +399,8 @@ fn story(code: &'static str, message: String) -> LoadError {
     }
 }
 
-fn io_error(spec: &CsvSpec, e: &io::Error) -> LoadError {
+/// Why a data file could not be opened or read, as a [`LoadError`].
+pub fn io_error(spec: &CsvSpec, e: &io::Error) -> LoadError {
     let reason = match e.kind() {
         io::ErrorKind::NotFound => "no such file".to_owned(),
         io::ErrorKind::PermissionDenied => "permission denied".to_owned(),

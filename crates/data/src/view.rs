@@ -1171,6 +1171,63 @@ mod tests {
     }
 
     #[test]
+    fn sums_too_large_are_infinite_and_means_are_not() {
+        // two cells of 1.7e308: the sum (3.4e308) is beyond the largest
+        // double (about 1.798e308, IEEE 754 binary64), their mean is not
+        let t = Table {
+            columns: vec![
+                col("k", ColType::Text, ["a", "a", "b", "c", "c", "c"].map(text).to_vec()),
+                col(
+                    "x",
+                    ColType::Number,
+                    [1.7e308, 1.7e308, 1.0, 1.7e308, 1.7e308, -1.7e308]
+                        .map(num)
+                        .to_vec(),
+                ),
+            ],
+        };
+        let out = run_view(
+            &t,
+            &[Step::Group {
+                keys: vec![0],
+                aggregates: vec![agg("s", AggFn::Sum, Some(1)), agg("m", AggFn::Mean, Some(1))],
+            }],
+        );
+        assert_eq!(
+            values(&out, 1),
+            vec![num(f64::INFINITY), num(1.0), num(1.7e308)]
+        );
+        // (1.7e308 + 1.7e308 - 1.7e308) / 3, rounded once more
+        assert_eq!(values(&out, 2)[..2], [num(1.7e308), num(1.0)]);
+        assert!((values(&out, 2)[2] == num(1.7e308 / 3.0)));
+        assert_eq!(
+            overflow(&out),
+            Some(Overflow {
+                column: 1,
+                row: 0,
+                sign: 1.0
+            })
+        );
+        assert_eq!(overflow(&t), None);
+        // a sum merged from parts, scaled or not, is the one-pass sum
+        let xs = [1e300, 1.7e308, -3.0, 1.7e308, -1.7e308, 2.5, -1e300];
+        let mut one = Sum::default();
+        xs.iter().for_each(|&x| one.add(x));
+        for cut in 0..=xs.len() {
+            let (mut a, mut b) = (Sum::default(), Sum::default());
+            xs[..cut].iter().for_each(|&x| a.add(x));
+            xs[cut..].iter().for_each(|&x| b.add(x));
+            a.merge(&b);
+            assert_eq!(a.total(), one.total(), "{cut}");
+        }
+        assert_eq!(one.total(), Some(1.7e308 - 0.5));
+        // small sums are untouched by the scaling
+        let mut small = Sum::default();
+        [0.1, 0.2, 0.3].iter().for_each(|&x| small.add(x));
+        assert_eq!(small.total(), Some(0.6));
+    }
+
+    #[test]
     fn sort_is_stable_with_missing_last_both_ways() {
         let t = sample();
         let asc = run_view(

@@ -497,19 +497,8 @@ impl<'a> Planner<'a> {
         match crate::paths::confine(self.dir, &file.value, &self.options.allow_paths) {
             Ok(_) => true,
             Err(why) => {
-                let d = self.error(
-                    "path-outside",
-                    format!("the {what} may not be read: {why}"),
-                    file.span.clone(),
-                    "outside the story's folder",
-                );
-                d.notes.push(
-                    "a story reads only files in its own folder and below, so a story from someone else cannot read your files into a deck".into(),
-                );
-                d.help = Some(
-                    "move the file next to the story, or allow its folder with --allow-path DIR"
-                        .into(),
-                );
+                let d = crate::paths::outside(self.src, file.span.clone(), what, &why);
+                self.diags.push(d);
                 false
             }
         }
@@ -551,6 +540,8 @@ impl<'a> Planner<'a> {
         plugins: &mut crate::plugins::Plugins,
     ) -> Option<DeckPlan> {
         self.tables.db = self.options.database.clone();
+        self.tables.within = crate::paths::within(self.dir, &self.options.allow_paths);
+        self.tables.limits = crate::limits::read_limits(&self.options.limits);
         self.tables.prepare(story, self.options.cache.as_deref()); // streaming + cache
         let mut h = Header::default();
         let mut frames = Vec::new();
@@ -878,7 +869,9 @@ impl<'a> Planner<'a> {
                 .style
                 .as_ref()
                 .filter(|s| self.confined(s, "house style"))
-                .and_then(|s| crate::style::load(self.src, self.dir, s, self.diags)),
+                .and_then(|s| {
+                    crate::style::load(self.src, self.dir, s, &self.tables.within, self.diags)
+                }),
             values: self
                 .values
                 .by_name
@@ -1837,13 +1830,13 @@ impl<'a> Planner<'a> {
                 let (mut ylo, mut yhi) = (f64::INFINITY, f64::NEG_INFINITY);
                 for r in 0..xcol.values.len() {
                     let name = match spec.series {
-                        Some(s) => display(&t.columns[s].values[r]),
+                        Some(s) => display(&t.columns[s].values.value(r)),
                         None => humanize(&ycol.name),
                     };
                     let x = if xcol.ty == ColType::Text {
                         // Text categories sit at 0, 1, 2, ... in order of
                         // first appearance.
-                        let label = display(&xcol.values[r]);
+                        let label = display(&xcol.values.value(r));
                         match categories.iter().position(|c| *c == label) {
                             Some(i) => i as f64,
                             None => {
@@ -1852,12 +1845,12 @@ impl<'a> Planner<'a> {
                             }
                         }
                     } else {
-                        match position(&xcol.values[r]) {
+                        match position(&xcol.values.value(r)) {
                             Some(x) => x,
                             None => continue,
                         }
                     };
-                    let y = match &ycol.values[r] {
+                    let y = match &ycol.values.value(r) {
                         Value::Number(v) => Some(*v),
                         _ => None,
                     };
@@ -1868,7 +1861,7 @@ impl<'a> Planner<'a> {
                                 "a line needs one value per x and series, but `{}` has several rows for \"{}\" at {}",
                                 spec.table_name,
                                 name,
-                                display(&xcol.values[r])
+                                display(&xcol.values.value(r))
                             ),
                             c.span.clone(),
                             "in this chart",
@@ -1973,7 +1966,7 @@ impl<'a> Planner<'a> {
             _ => {
                 let mut rows: Vec<(String, Option<f64>, usize)> = Vec::new();
                 for r in 0..xcol.values.len() {
-                    let label = display(&xcol.values[r]);
+                    let label = display(&xcol.values.value(r));
                     if rows.iter().any(|(l, _, _)| *l == label) {
                         self.error(
                             "duplicate-point",
@@ -1987,7 +1980,7 @@ impl<'a> Planner<'a> {
                         .help = Some(format!("group the view first, e.g. `| by {}: ...`", xcol.name));
                         return None;
                     }
-                    let v = match &ycol.values[r] {
+                    let v = match &ycol.values.value(r) {
                         Value::Number(v) => Some(*v),
                         _ => None,
                     };
@@ -1996,8 +1989,8 @@ impl<'a> Planner<'a> {
                 if spec.ordered {
                     if xcol.ty.is_time() || xcol.ty == ColType::Number {
                         rows.sort_by(|a, b| {
-                            let pa = position(&xcol.values[a.2]).unwrap_or(f64::INFINITY);
-                            let pb = position(&xcol.values[b.2]).unwrap_or(f64::INFINITY);
+                            let pa = position(&xcol.values.value(a.2)).unwrap_or(f64::INFINITY);
+                            let pb = position(&xcol.values.value(b.2)).unwrap_or(f64::INFINITY);
                             pa.total_cmp(&pb)
                         });
                     }

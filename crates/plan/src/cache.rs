@@ -111,8 +111,9 @@ impl Cache {
     /// used; otherwise the bytes are hashed again. So a changed file is
     /// always noticed by its content, and an unchanged 600 MB file is not
     /// read again on a rebuild.
-    pub fn file_hash(&self, path: &Path) -> std::io::Result<String> {
-        let meta = fs::metadata(path)?;
+    /// `file` is the open file, `path` only names it in the memo.
+    pub fn file_hash(&self, path: &Path, file: &fs::File) -> std::io::Result<String> {
+        let meta = file.metadata()?;
         let modified_ns = meta
             .modified()
             .ok()
@@ -129,7 +130,7 @@ impl Cache {
             }
         }
         let hashed_ns = now_ns();
-        let hash = hash_file(path)?;
+        let hash = hash_reader(crescendo_data::files::ReadAt::new(file, 0))?;
         self.put(
             "files",
             &memo_key,
@@ -146,7 +147,11 @@ impl Cache {
 
 /// xxh3-128 of a file's bytes.
 pub fn hash_file(path: &Path) -> std::io::Result<String> {
-    let mut f = fs::File::open(path)?;
+    hash_reader(fs::File::open(path)?)
+}
+
+/// xxh3-128 of the bytes of a reader.
+fn hash_reader(mut f: impl Read) -> std::io::Result<String> {
     let mut h = xxhash_rust::xxh3::Xxh3::new();
     let mut buf = vec![0u8; 1 << 20];
     loop {
@@ -180,10 +185,10 @@ mod tests {
         // content hash: same bytes, same hash; other bytes, other hash
         let f = dir.join("f.csv");
         fs::write(&f, b"a\n1\n").unwrap();
-        let h1 = c.file_hash(&f).unwrap();
+        let h1 = c.file_hash(&f, &fs::File::open(&f).unwrap()).unwrap();
         assert_eq!(h1, hash_file(&f).unwrap());
         fs::write(&f, b"a\n2\n").unwrap();
-        assert_ne!(c.file_hash(&f).unwrap(), h1);
+        assert_ne!(c.file_hash(&f, &fs::File::open(&f).unwrap()).unwrap(), h1);
         let _ = fs::remove_dir_all(&dir);
     }
 }

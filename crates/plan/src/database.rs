@@ -223,7 +223,7 @@ impl Tables {
                 .map(|c| Column {
                     name: c.name.clone(),
                     ty: c.ty,
-                    values: Vec::new(),
+                    values: Default::default(),
                 })
                 .collect(),
         };

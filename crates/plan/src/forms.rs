@@ -116,7 +116,7 @@ impl Planner<'_> {
         let mut grid: Vec<Vec<Option<f64>>> = Vec::new();
         let mut seen: BTreeSet<(usize, usize)> = BTreeSet::new();
         for r in 0..cat.values.len() {
-            let label = display(&cat.values[r]);
+            let label = display(&cat.values.value(r));
             let ci = match cats.iter().position(|(l, _)| *l == label) {
                 Some(i) => i,
                 None => {
@@ -125,7 +125,7 @@ impl Planner<'_> {
                     cats.len() - 1
                 }
             };
-            let key = extra.map_or_else(|| humanize(&val.name), |e| display(&e.values[r]));
+            let key = extra.map_or_else(|| humanize(&val.name), |e| display(&e.values.value(r)));
             let ki = match keys.iter().position(|k| *k == key) {
                 Some(i) => i,
                 None => {
@@ -154,7 +154,7 @@ impl Planner<'_> {
                 ));
                 return None;
             }
-            grid[ci][ki] = number(&val.values[r]);
+            grid[ci][ki] = number(&val.values.value(r));
         }
         Some((cats, keys, grid))
     }
@@ -173,8 +173,8 @@ impl Planner<'_> {
         if spec.ordered {
             if cat.ty.is_time() || cat.ty == ColType::Number {
                 order.sort_by(|a, b| {
-                    let pa = position(&cat.values[cats[*a].1]).unwrap_or(f64::INFINITY);
-                    let pb = position(&cat.values[cats[*b].1]).unwrap_or(f64::INFINITY);
+                    let pa = position(&cat.values.value(cats[*a].1)).unwrap_or(f64::INFINITY);
+                    let pb = position(&cat.values.value(cats[*b].1)).unwrap_or(f64::INFINITY);
                     pa.total_cmp(&pb)
                 });
             }
@@ -380,15 +380,15 @@ impl Planner<'_> {
         let mut points = Vec::new();
         for r in 0..xc.values.len() {
             let (Some(x), Some(y)) = (
-                position(&xc.values[r]),
-                number(&yc.values[r]).or(position(&yc.values[r])),
+                position(&xc.values.value(r)),
+                number(&yc.values.value(r)).or(position(&yc.values.value(r))),
             ) else {
                 continue;
             };
             points.push(ScatterPoint {
                 x,
                 y,
-                label: labels.map_or_else(String::new, |l| display(&l.values[r])),
+                label: labels.map_or_else(String::new, |l| display(&l.values.value(r))),
                 role: Role::Context,
             });
         }
@@ -473,7 +473,7 @@ impl Planner<'_> {
             .map(|c| {
                 c.values
                     .iter()
-                    .filter_map(number)
+                    .filter_map(|v| number(&v))
                     .map(|v| decimals_for(round_to(v, 2)).min(2))
                     .max()
                     .unwrap_or(0)
@@ -486,7 +486,7 @@ impl Planner<'_> {
             // Rows sharing their first cell with the row above form a group;
             // alternate groups are lightly shaded (otherwise alternate rows).
             if r > 0 {
-                let same = first.is_some_and(|c| c.values[r] == c.values[r - 1]);
+                let same = first.is_some_and(|c| c.values.value(r) == c.values.value(r - 1));
                 if !same {
                     group += 1;
                 }
@@ -495,7 +495,7 @@ impl Planner<'_> {
                 .columns
                 .iter()
                 .zip(&decimals)
-                .map(|(c, d)| match &c.values[r] {
+                .map(|(c, d)| match &c.values.value(r) {
                     Value::Number(v) => format::number(*v, Some(*d)),
                     Value::Missing => "–".to_string(),
                     other => display(other),

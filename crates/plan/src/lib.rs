@@ -12,6 +12,7 @@ mod functions;
 pub mod limits;
 mod loading;
 pub mod model;
+mod overflow;
 pub mod paths;
 pub mod plugins;
 mod resolve;

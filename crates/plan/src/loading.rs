@@ -35,14 +35,25 @@
 //! hashed again, when its size and time are unchanged). Entries hold their
 //! tables losslessly (numbers as bits), so cached and uncached builds are
 //! byte-identical.
+//!
+//! # One open file
+//!
+//! A data file is opened once, and the open file is checked to lie in the
+//! story's folder (or an allowed one, `crescendo_data::files`); the cache's
+//! content hash, the type probe, the streaming threads and the whole load
+//! all read that one descriptor, never the path again.
 
 use std::collections::BTreeSet;
 use std::path::Path;
 use std::sync::Arc;
 
+use std::fs::File;
+
+use crescendo_data::files::{OpenError, Within};
+use crescendo_data::load::{io_error, probe_file};
 use crescendo_data::store::StoredTable;
 use crescendo_data::stream::{self, Chunks, ScanFailure, ScanInput, StreamView};
-use crescendo_data::{probe, ColType, Column, Columns, CsvSpec, Step, Table};
+use crescendo_data::{ColType, Column, Columns, CsvSpec, Step, Table, Values};
 use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::{self, Item, StepAst, StoryAst};
 use crescendo_lang::visit::{walk_database, walk_selection, walk_story, Visit};
@@ -279,6 +290,26 @@ impl Tables {
             }
         }
         let spec = data_spec(src, story_dir, decl, replacement, diags)?;
+        // `--data` names a file on the user's own command line
+        let within = match replacement {
+            Some(_) => Within::anywhere(),
+            None => self.within.clone(),
+        };
+        let file = match within.open(&spec.path) {
+            Ok(f) => f,
+            Err(OpenError::Outside { real }) => {
+                let why = format!(
+                    "`{}` is outside the story's folder ({})",
+                    decl.file.value,
+                    real.display()
+                );
+                diags.push(crate::paths::outside(src, decl.file.span.clone(), "data file", &why));
+                return None;
+            }
+            Err(OpenError::Io(e)) => {
+                return report_load(src, decl, Err(io_error(&spec, &e)), diags);
+            }
+        };
         let keep = if self.story.all_columns {
             Columns::All
         } else {
@@ -287,7 +318,7 @@ impl Tables {
         let name = decl.name.name.clone();
         let mut result = None;
         if let Some(views) = self.story.streamable.get(&name).cloned() {
-            result = self.stream(src, decl, &spec, &views, &keep, diags);
+            result = self.stream(src, decl, (&spec, &file), &views, &keep, diags);
         }
         let table = match result {
             Some(r) => {
@@ -296,7 +327,7 @@ impl Tables {
             }
             None => {
                 self.report.loaded.push(name);
-                load_reported(src, decl, &spec, &keep, diags)
+                load_reported(src, decl, (&spec, &file), &keep, &self.limits, diags)
             }
         };
         if let Some(c) = &self.cache {
@@ -311,7 +342,7 @@ impl Tables {
         &mut self,
         src: &Arc<Source>,
         decl: &ast::DataDecl,
-        spec: &CsvSpec,
+        (spec, file): (&CsvSpec, &File),
         views: &[ast::ViewDecl],
         keep: &Columns,
         diags: &mut Vec<Diagnostic>,
@@ -336,7 +367,7 @@ impl Tables {
         }
         let cache = self.cache.clone();
         let content = match &cache {
-            Some(c) => match c.file_hash(&spec.path) {
+            Some(c) => match c.file_hash(&spec.path, file) {
                 Ok(h) => Some(h),
                 // Let the load report the unreadable file.
                 Err(_) => return None,
@@ -366,7 +397,8 @@ impl Tables {
         let entry = match cached_data {
             Some(e) => e,
             None => {
-                let p = match probe(spec, &Columns::Only(parse_names.clone()), SAMPLE) {
+                let only = Columns::Only(parse_names.clone());
+                let p = match probe_file(spec, file, &only, SAMPLE, &self.limits) {
                     Ok(p) => p,
                     Err(_) => return None,
                 };
@@ -397,7 +429,7 @@ impl Tables {
                 .map(|(n, t)| Column {
                     name: n.clone(),
                     ty: *t,
-                    values: Vec::new(),
+                    values: Values::new(),
                 })
                 .collect(),
         };
@@ -460,6 +492,8 @@ impl Tables {
                 missing.iter().map(|&i| prefixes[i].3.clone()).collect();
             let input = ScanInput {
                 spec,
+                file,
+                limits: &self.limits,
                 schema,
                 parse: &parse,
                 keep_values: &keep_values,

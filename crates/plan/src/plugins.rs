@@ -202,10 +202,10 @@ impl Planner<'_> {
                     .iter()
                     .map(|v| match v {
                         Value::Missing => Cell::Missing,
-                        Value::Number(n) => Cell::Number(*n),
-                        Value::Text(t) => Cell::Text(t.clone()),
-                        Value::Month(m) => Cell::Text(time::month_iso(*m)),
-                        Value::Date(x) => Cell::Text(time::date_iso(*x)),
+                        Value::Number(n) => Cell::Number(n),
+                        Value::Text(t) => Cell::Text(t),
+                        Value::Month(m) => Cell::Text(time::month_iso(m)),
+                        Value::Date(x) => Cell::Text(time::date_iso(x)),
                         Value::Year(y) => Cell::Text(y.to_string()),
                     })
                     .collect(),
@@ -227,7 +227,7 @@ impl Planner<'_> {
         {
             let mut seen = BTreeSet::new();
             for v in &col.values {
-                let n = display(v);
+                let n = display(&v);
                 if seen.insert(n.clone()) {
                     names.push(n);
                 }

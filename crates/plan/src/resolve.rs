@@ -54,6 +54,10 @@ pub struct Tables {
     pub(crate) db: crate::database::DbOptions,
     /// The queries database sources ran (for `check --explain-sql`).
     pub(crate) sql: Arc<std::sync::Mutex<Vec<crescendo_sql::Explained>>>,
+    /// Where the story's data files may be opened from.
+    pub(crate) within: crescendo_data::files::Within,
+    /// The text and row limits of a read.
+    pub(crate) limits: crescendo_data::load::ReadLimits,
 }
 
 /// How the data items of one plan were read (also stored in the cache
@@ -119,7 +123,7 @@ impl Tables {
             return None;
         }
         col.values.iter().enumerate().find_map(|(i, v)| match v {
-            Value::Text(t) if data::load::parse_number(t).is_none() => Some(format!(
+            Value::Text(t) if data::load::parse_number(&t).is_none() => Some(format!(
                 "`{column}` was read as text because data row {} of `{root}` holds `{t}`",
                 i + 1
             )),
@@ -229,11 +233,12 @@ pub(crate) fn data_spec(
 pub(crate) fn load_reported(
     src: &Arc<Source>,
     decl: &ast::DataDecl,
-    spec: &CsvSpec,
+    (spec, file): (&CsvSpec, &std::fs::File),
     columns: &Columns,
+    limits: &data::load::ReadLimits,
     diags: &mut Vec<Diagnostic>,
 ) -> Option<Table> {
-    let result = data::load_csv_columns(spec, columns);
+    let result = data::load::load_file(spec, file, columns, limits);
     report_load(src, decl, result, diags)
 }
 
@@ -654,6 +659,10 @@ pub(crate) fn build_view_inner(
             }
             _ => data::run_view(&table, std::slice::from_ref(&step)),
         };
+        if let Some(d) = crate::overflow::check(src, &decl.steps[index], &step, &table) {
+            diags.push(d);
+            return None;
+        }
     }
     Some((table, rest_label, counts))
 }

@@ -33,10 +33,12 @@
 //! bottom = 28
 //! ```
 
+use std::io::Read;
 use std::ops::Range;
 use std::path::Path;
 use std::sync::Arc;
 
+use crescendo_data::files::{OpenError, Within};
 use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::Str;
 use serde::{Deserialize, Serialize};
@@ -356,17 +358,34 @@ pub fn parse(src: &Arc<Source>, name: &str) -> Result<HouseStyle, Vec<Diagnostic
     }
 }
 
-/// Load and validate the style file `file` (relative to `dir`).
+/// Load and validate the style file `file` (relative to `dir`), opened
+/// only `within` the story's folders (the open file is checked, see
+/// `crescendo_data::files`).
 pub fn load(
     src: &Arc<Source>,
     dir: &Path,
     file: &Str,
+    within: &Within,
     diags: &mut Vec<Diagnostic>,
 ) -> Option<HouseStyle> {
     let path = dir.join(&file.value);
-    let text = match std::fs::read_to_string(&path) {
+    let read = within.open(&path).and_then(|mut f| {
+        let mut text = String::new();
+        f.read_to_string(&mut text).map_err(OpenError::Io)?;
+        Ok(text)
+    });
+    let text = match read {
         Ok(t) => t,
-        Err(e) => {
+        Err(OpenError::Outside { real }) => {
+            let why = format!(
+                "`{}` is outside the story's folder ({})",
+                file.value,
+                real.display()
+            );
+            diags.push(crate::paths::outside(src, file.span.clone(), "house style", &why));
+            return None;
+        }
+        Err(OpenError::Io(e)) => {
             diags.push(
                 Diagnostic::error(
                     "style-file",

@@ -6,7 +6,8 @@
 //! the fallbacks (Helvetica, Arial) are narrower, so measuring with DejaVu
 //! errs on the safe side.
 
-use ab_glyph::{Font, FontRef};
+use ab_glyph::{Font, FontRef, GlyphId};
+use std::collections::HashMap;
 use std::sync::OnceLock;
 
 /// Vertical metrics of the bundled font as fractions of the em.
@@ -58,17 +59,81 @@ pub fn text_width(text: &str, size_px: f64, bold: bool) -> f64 {
         return text.chars().count() as f64 * 0.62 * size_px;
     };
     let upem = f64::from(font.units_per_em().unwrap_or(2048.0));
-    let mut units = 0.0f64;
-    let mut prev = None;
-    for c in text.chars() {
-        let id = font.glyph_id(c);
-        units += f64::from(font.h_advance_unscaled(id));
-        if let Some(p) = prev {
-            units += f64::from(font.kern_unscaled(p, id));
+    let units = if text.len() > LONG {
+        let chars: Vec<char> = text.chars().collect();
+        Glyphs::new(font).prefix_units(&chars).last().copied().unwrap_or(0.0)
+    } else {
+        let mut units = 0.0f64;
+        let mut prev = None;
+        for c in text.chars() {
+            let id = font.glyph_id(c);
+            units += f64::from(font.h_advance_unscaled(id));
+            if let Some(p) = prev {
+                units += f64::from(font.kern_unscaled(p, id));
+            }
+            prev = Some(id);
         }
-        prev = Some(id);
-    }
+        units
+    };
     units / upem * size_px
+}
+
+/// Texts longer than this (in bytes) are measured through [`Glyphs`].
+const LONG: usize = 256;
+
+/// A font's glyph lookups, remembered: a long text repeats few characters
+/// and few pairs, and each lookup searches the font's tables.
+struct Glyphs<'f> {
+    font: &'f FontRef<'static>,
+    glyphs: HashMap<char, (GlyphId, f64)>,
+    kerns: HashMap<(GlyphId, GlyphId), f64>,
+}
+
+impl<'f> Glyphs<'f> {
+    fn new(font: &'f FontRef<'static>) -> Self {
+        Glyphs {
+            font,
+            glyphs: HashMap::new(),
+            kerns: HashMap::new(),
+        }
+    }
+
+    /// The glyph of `c` and its advance, in font units.
+    fn glyph(&mut self, c: char) -> (GlyphId, f64) {
+        let font = self.font;
+        *self.glyphs.entry(c).or_insert_with(|| {
+            let id = font.glyph_id(c);
+            (id, f64::from(font.h_advance_unscaled(id)))
+        })
+    }
+
+    fn kern(&mut self, a: GlyphId, b: GlyphId) -> f64 {
+        let font = self.font;
+        *self
+            .kerns
+            .entry((a, b))
+            .or_insert_with(|| f64::from(font.kern_unscaled(a, b)))
+    }
+
+    /// Widths in font units of every prefix of `chars` (`chars.len() + 1`
+    /// of them), each added up in the order [`text_width`] adds, so each is
+    /// exactly the width `text_width` gives that prefix.
+    fn prefix_units(&mut self, chars: &[char]) -> Vec<f64> {
+        let mut out = Vec::with_capacity(chars.len() + 1);
+        out.push(0.0f64);
+        let mut units = 0.0f64;
+        let mut prev = None;
+        for &c in chars {
+            let (id, advance) = self.glyph(c);
+            units += advance;
+            if let Some(p) = prev {
+                units += self.kern(p, id);
+            }
+            prev = Some(id);
+            out.push(units);
+        }
+        out
+    }
 }
 
 /// Height of one line of text: ascent plus descent of the font (about
@@ -98,18 +163,47 @@ const ELLIPSIS: char = '\u{2026}';
 
 /// Shortens `text` to fit `max_width`, ending it with an ellipsis when
 /// anything was cut. Returns an empty string if not even the ellipsis fits.
+///
+/// The longest prefix that fits is found in one pass over the prefix widths
+/// (each is the previous one plus a glyph and its kerning, added in the
+/// order [`text_width`] adds them, so every width is the one `text_width`
+/// gives): linear in the length of the text.
 pub fn ellipsize(text: &str, size_px: f64, bold: bool, max_width: f64) -> String {
     if text_width(text, size_px, bold) <= max_width {
         return text.to_string();
     }
     let chars: Vec<char> = text.chars().collect();
-    let mut n = chars.len();
+    let picked = chars.clone();
+    // the width of `chars[..m]` followed by an ellipsis
+    let mut with_ellipsis: Box<dyn FnMut(usize) -> f64> =
+        match if bold { bold_font() } else { regular() } {
+            None => Box::new(|m: usize| (m + 1) as f64 * 0.62 * size_px),
+            Some(font) => {
+                let upem = f64::from(font.units_per_em().unwrap_or(2048.0));
+                let mut glyphs = Glyphs::new(font);
+                let prefix = glyphs.prefix_units(&chars);
+                let (dots, dots_advance) = glyphs.glyph(ELLIPSIS);
+                Box::new(move |m: usize| {
+                    let mut u = prefix[m] + dots_advance;
+                    if let Some(&c) = m.checked_sub(1).and_then(|k| chars.get(k)) {
+                        let (p, _) = glyphs.glyph(c);
+                        u += glyphs.kern(p, dots);
+                    }
+                    u / upem * size_px
+                })
+            }
+        };
+    let mut n = picked.len();
     while n > 0 {
         n -= 1;
-        let mut s: String = chars[..n].iter().collect();
-        s = s.trim_end().to_string();
-        s.push(ELLIPSIS);
-        if text_width(&s, size_px, bold) <= max_width {
+        // `trim_end` of the prefix: drop its trailing whitespace
+        let mut m = n;
+        while m > 0 && picked[m - 1].is_whitespace() {
+            m -= 1;
+        }
+        if with_ellipsis(m) <= max_width {
+            let mut s: String = picked[..m].iter().collect();
+            s.push(ELLIPSIS);
             return s;
         }
     }
@@ -184,6 +278,61 @@ mod tests {
         assert!((m - 1767.0).abs() < 1e-6, "{m}");
         assert!((line_height(2048.0) - 2384.0).abs() < 1e-6);
         assert!((ascent(2048.0) - 1901.0).abs() < 1e-6);
+    }
+
+    /// The cut the former character-by-character search made.
+    fn ellipsize_by_search(text: &str, size_px: f64, bold: bool, max_width: f64) -> String {
+        if text_width(text, size_px, bold) <= max_width {
+            return text.to_string();
+        }
+        let chars: Vec<char> = text.chars().collect();
+        let mut n = chars.len();
+        while n > 0 {
+            n -= 1;
+            let mut s: String = chars[..n].iter().collect();
+            s = s.trim_end().to_string();
+            s.push(ELLIPSIS);
+            if text_width(&s, size_px, bold) <= max_width {
+                return s;
+            }
+        }
+        String::new()
+    }
+
+    #[test]
+    fn ellipsize_cuts_where_the_search_did() {
+        for text in [
+            "AVAVAVAV To Ty Wa",
+            "Westbrook   pulled away after evening swims began",
+            "   ",
+            "",
+            "ff fi x\u{301}y",
+            "Q",
+            // long enough to be measured through `Glyphs`
+            &"AVA To Wa, yes. ".repeat(20),
+        ] {
+            for width in [0.0, 5.0, 11.0, 30.0, 47.5, 80.0, 900.0, 1e4] {
+                for bold in [false, true] {
+                    assert_eq!(
+                        ellipsize(text, 13.0, bold, width),
+                        ellipsize_by_search(text, 13.0, bold, width),
+                        "{text:?} {width} {bold}"
+                    );
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn a_very_long_word_is_cut_in_linear_time() {
+        // a million characters took hours when each shorter prefix was
+        // measured again from its start
+        let word = "x".repeat(1_000_000);
+        let start = std::time::Instant::now();
+        let cut = ellipsize(&word, 12.0, false, 100.0);
+        assert!(cut.ends_with(ELLIPSIS) && cut.chars().count() < 30, "{cut}");
+        assert_eq!(wrap(&word, 12.0, false, 100.0, 2), vec![cut]);
+        assert!(start.elapsed() < std::time::Duration::from_secs(20));
     }
 
     #[test]
