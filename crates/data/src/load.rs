@@ -919,7 +919,7 @@ impl<'s> Loader<'s> {
             Some(max) if index > max => Err(LoadError::Story {
                 code: "limit",
                 message: format!(
-                    "data file `{name}` has more than {max} rows, more than the limit of {max} (--max-rows)"
+                    "data file `{name}` has more rows than the limit of {max} (--max-rows)"
                 ),
                 help: Some(ROWS_HELP.into()),
                 declared: None,

@@ -450,11 +450,11 @@ fn cells_allowed(limits: &ReadLimits, record: &csv::ByteRecord, check: &[usize])
     })
 }
 
-/// Do `rows` kept rows held in `cols` fit the row limit (or, without one,
-/// the memory allowed)?
-fn rows_fit(limits: &ReadLimits, rows: usize, cols: &[Values]) -> bool {
+/// Do the kept rows held in `cols` fit the row limit (or, without one, the
+/// memory allowed)?
+fn rows_fit(limits: &ReadLimits, cols: &[Values]) -> bool {
     match limits.rows {
-        Some(max) => rows <= max,
+        Some(max) => cols.first().map_or(0, Values::len) <= max,
         None => cols.iter().map(Values::heap_bytes).sum::<usize>() as u64 <= limits.memory,
     }
 }
@@ -596,7 +596,8 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
                             col.push_cell(if keep { row(j) } else { Cell::Missing });
                         }
                         kept[vi] += 1;
-                        if kept[vi] % 8192 == 0 && !rows_fit(input.limits, kept[vi], cols) {
+                        let over_limit = input.limits.rows.is_some_and(|m| kept[vi] > m);
+                        if over_limit || (kept[vi] % 8192 == 0 && !rows_fit(input.limits, cols)) {
                             return out;
                         }
                     }
@@ -657,10 +658,6 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
                             for (cx, cy) in x.iter_mut().zip(y) {
                                 cx.extend_from(&cy);
                             }
-                            let rows = x.first().map_or(0, Values::len);
-                            if !rows_fit(input.limits, rows, x) {
-                                return Err(ScanFailure::Fallback);
-                            }
                         }
                         _ => return Err(ScanFailure::Fallback),
                     }
@@ -684,6 +681,14 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
         }
     }
     let out = acc.ok_or(ScanFailure::Fallback)?;
+    // the kept rows of all chunks together
+    for state in &out.views {
+        if let ViewState::Rows(cols) = state {
+            if !rows_fit(input.limits, cols) {
+                return Err(ScanFailure::Fallback);
+            }
+        }
+    }
     let tables = input
         .views
         .iter()
