@@ -449,12 +449,19 @@ fn both_paths(name: &str, csv: &[u8], extra: &[&str]) -> (String, String) {
         stderr
     };
     // the first story does stream its file (a clean one), the second not
-    for (story, mode) in [(&streamed, "\"streamed\":[\"t\"]"), (&loaded, "\"loaded\":[\"t\"]")] {
+    for (story, mode) in [
+        (&streamed, "\"streamed\":[\"t\"]"),
+        (&loaded, "\"loaded\":[\"t\"]"),
+    ] {
         let dir = scratch(&format!("{name}-clean"));
         fs::write(dir.join("story.cresc"), story).unwrap();
         fs::write(dir.join("t.csv"), "c,n\nElm,1\n").unwrap();
         let out = crescendo(&dir, &["build", "story.cresc"]);
-        assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
         let report = fs::read_to_string(dir.join(".crescendo-cache/deck/report/last.json"))
             .unwrap_or_default();
         assert!(report.contains(mode), "{mode}: {report}");
@@ -551,7 +558,11 @@ fn a_data_file_swapped_for_a_link_out_is_never_read() {
     .unwrap();
     let stop = Arc::new(AtomicBool::new(false));
     let racer = {
-        let (stop, dir, secret) = (Arc::clone(&stop), story_dir.clone(), private.join("secret.csv"));
+        let (stop, dir, secret) = (
+            Arc::clone(&stop),
+            story_dir.clone(),
+            private.join("secret.csv"),
+        );
         std::thread::spawn(move || {
             let (link, copy, target) = (dir.join(".link"), dir.join(".copy"), dir.join("t.csv"));
             while !stop.load(Ordering::Relaxed) {
@@ -571,20 +582,36 @@ fn a_data_file_swapped_for_a_link_out_is_never_read() {
         let out = base.join(format!("deck{i}"));
         let run = crescendo(
             &story_dir,
-            &["build", "story.cresc", "--no-cache", "--out", out.to_str().unwrap()],
+            &[
+                "build",
+                "story.cresc",
+                "--no-cache",
+                "--out",
+                out.to_str().unwrap(),
+            ],
         );
         let stderr = String::from_utf8_lossy(&run.stderr).into_owned();
         assert!(!stderr.contains("panicked"), "{stderr}");
         assert!(!stderr.contains("PRIVATE-ROW"), "build {i}: {stderr}");
-        let files = if out.exists() { read_dir_files(&out) } else { Vec::new() };
+        let files = if out.exists() {
+            read_dir_files(&out)
+        } else {
+            Vec::new()
+        };
         for (name, bytes) in files {
             let text = String::from_utf8_lossy(&bytes);
-            assert!(!text.contains("PRIVATE-ROW"), "build {i}: {name} holds a private row");
+            assert!(
+                !text.contains("PRIVATE-ROW"),
+                "build {i}: {name} holds a private row"
+            );
         }
         match run.status.code() {
             Some(0) => decks += 1,
             _ => {
-                assert!(stderr.contains("error[path-outside]"), "build {i}: {stderr}");
+                assert!(
+                    stderr.contains("error[path-outside]"),
+                    "build {i}: {stderr}"
+                );
                 assert!(stderr.contains("story.cresc:4:"), "build {i}: {stderr}");
                 refused += 1;
             }

@@ -562,9 +562,21 @@ mod tests {
         let months: Values = (0..n).map(|i| Value::Month(i % 48)).collect();
         let names: Values = (0..n).map(|i| text(&format!("r{}", i % 50))).collect();
         // doubling growth leaves at most twice the cells reserved
-        assert!(numbers.heap_bytes() <= 16 * n as usize, "{}", numbers.heap_bytes());
-        assert!(months.heap_bytes() <= 8 * n as usize, "{}", months.heap_bytes());
-        assert!(names.heap_bytes() <= 8 * n as usize + 4096, "{}", names.heap_bytes());
+        assert!(
+            numbers.heap_bytes() <= 16 * n as usize,
+            "{}",
+            numbers.heap_bytes()
+        );
+        assert!(
+            months.heap_bytes() <= 8 * n as usize,
+            "{}",
+            months.heap_bytes()
+        );
+        assert!(
+            names.heap_bytes() <= 8 * n as usize + 4096,
+            "{}",
+            names.heap_bytes()
+        );
         assert_eq!(Values::missing(n as usize).heap_bytes(), 0);
     }
 

@@ -162,7 +162,11 @@ mod tests {
         std::os::unix::fs::symlink(d.join("private/secret.csv"), d.join("story/data/l.csv"))
             .unwrap();
         std::os::unix::fs::symlink(d.join("private"), d.join("story/data/dir")).unwrap();
-        for p in ["story/data/l.csv", "story/data/dir/secret.csv", "story/../private/secret.csv"] {
+        for p in [
+            "story/data/l.csv",
+            "story/data/dir/secret.csv",
+            "story/../private/secret.csv",
+        ] {
             match within.open(&d.join(p)) {
                 Err(OpenError::Outside { real }) => {
                     assert!(real.ends_with("private/secret.csv"), "{p}: {real:?}")

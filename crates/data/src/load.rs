@@ -620,7 +620,8 @@ pub(crate) const CHAR_NOTE: &str = "a frame is SVG, an XML format, and XML canno
 characters (other than tab and line breaks) or U+FFFE and U+FFFF; browsers refuse such a frame";
 pub(crate) const CHAR_HELP: &str =
     "remove the character from the data file (it is often a stray byte from the program that wrote it)";
-const ROWS_HELP: &str = "a data file read only by views that start with `keep` or `by` is streamed \
+const ROWS_HELP: &str =
+    "a data file read only by views that start with `keep` or `by` is streamed \
 instead of held in memory; or set the most rows to hold with --max-rows N";
 
 /// "1 field", "2 fields".
@@ -924,7 +925,7 @@ impl<'s> Loader<'s> {
                 help: Some(ROWS_HELP.into()),
                 declared: None,
             }),
-            None if index % MEASURE_EVERY == 0 => {
+            None if index.is_multiple_of(MEASURE_EVERY) => {
                 let held: usize = self.columns.iter().map(|b| b.values.heap_bytes()).sum();
                 if held as u64 <= self.limits.memory {
                     return Ok(());

@@ -597,7 +597,9 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
                         }
                         kept[vi] += 1;
                         let over_limit = input.limits.rows.is_some_and(|m| kept[vi] > m);
-                        if over_limit || (kept[vi] % 8192 == 0 && !rows_fit(input.limits, cols)) {
+                        if over_limit
+                            || (kept[vi].is_multiple_of(8192) && !rows_fit(input.limits, cols))
+                        {
                             return out;
                         }
                     }

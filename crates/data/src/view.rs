@@ -310,16 +310,18 @@ impl Sum {
     /// Add `x` (already scaled by 2^-64 when `x_scaled`).
     fn push(&mut self, x: f64, x_scaled: bool) {
         if !self.scaled
-            && (x_scaled
-                || x.abs() >= BIG
-                || self.partials.last().is_some_and(|p| p.abs() >= BIG))
+            && (x_scaled || x.abs() >= BIG || self.partials.last().is_some_and(|p| p.abs() >= BIG))
         {
             for p in &mut self.partials {
                 *p *= DOWN;
             }
             self.scaled = true;
         }
-        let mut x = if self.scaled && !x_scaled { x * DOWN } else { x };
+        let mut x = if self.scaled && !x_scaled {
+            x * DOWN
+        } else {
+            x
+        };
         let mut i = 0;
         for j in 0..self.partials.len() {
             let mut y = self.partials[j];
@@ -1176,7 +1178,11 @@ mod tests {
         // double (about 1.798e308, IEEE 754 binary64), their mean is not
         let t = Table {
             columns: vec![
-                col("k", ColType::Text, ["a", "a", "b", "c", "c", "c"].map(text).to_vec()),
+                col(
+                    "k",
+                    ColType::Text,
+                    ["a", "a", "b", "c", "c", "c"].map(text).to_vec(),
+                ),
                 col(
                     "x",
                     ColType::Number,
@@ -1190,7 +1196,10 @@ mod tests {
             &t,
             &[Step::Group {
                 keys: vec![0],
-                aggregates: vec![agg("s", AggFn::Sum, Some(1)), agg("m", AggFn::Mean, Some(1))],
+                aggregates: vec![
+                    agg("s", AggFn::Sum, Some(1)),
+                    agg("m", AggFn::Mean, Some(1)),
+                ],
             }],
         );
         assert_eq!(

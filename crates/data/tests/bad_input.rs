@@ -258,6 +258,7 @@ fn hostile_inputs_fail_cleanly_or_load() {
 }
 
 /// Load with limits through an opened file, as the planner does.
+#[allow(clippy::result_large_err)] // LoadError holds a Diagnostic, as the crate specifies
 fn load_limited(name: &str, bytes: &[u8], limits: &ReadLimits) -> Result<Table, LoadError> {
     let spec = spec_for(name, bytes);
     let file = std::fs::File::open(&spec.path).expect("open");
@@ -290,8 +291,12 @@ fn control_characters_in_cells_are_located_and_shown_as_pictures() {
         );
     }
     // tab, line breaks in quotes, and DEL (allowed in XML) are data
-    let t = load_limited("ok.csv", b"name,n\n\"a\tb\nc\",1\nd\x7f,2\n", &ReadLimits::none())
-        .expect("loads");
+    let t = load_limited(
+        "ok.csv",
+        b"name,n\n\"a\tb\nc\",1\nd\x7f,2\n",
+        &ReadLimits::none(),
+    )
+    .expect("loads");
     assert_eq!(t.columns[0].values.value(0), common::text("a\tb\nc"));
 }
 
@@ -308,7 +313,9 @@ fn text_over_the_limit_is_located_on_its_cell() {
     assert_eq!(err.code(), "limit");
     let text = describe(&err);
     assert!(
-        text.contains("row 2, column `name` has 20000 characters, more than the limit of 5 (--max-text)"),
+        text.contains(
+            "row 2, column `name` has 20000 characters, more than the limit of 5 (--max-text)"
+        ),
         "{text}"
     );
     assert!(text.contains("long.csv:3:1"), "{text}");
@@ -348,9 +355,15 @@ fn rows_beyond_the_limit_or_the_memory_allowed_stop_the_load() {
     };
     let err = load_limited("mem.csv", &bytes, &memory).expect_err("too large");
     let message = err.to_string();
-    assert!(message.contains("more rows than fit in memory"), "{message}");
+    assert!(
+        message.contains("more rows than fit in memory"),
+        "{message}"
+    );
     assert!(message.contains("--max-rows"), "{message}");
-    let LoadError::Story { help: Some(help), .. } = &err else {
+    let LoadError::Story {
+        help: Some(help), ..
+    } = &err
+    else {
         panic!("{err:?}")
     };
     assert!(help.contains("--max-rows N"), "{help}");

@@ -82,9 +82,7 @@ fn check_against_json(out: &Table, groups: &Json, nkeys: usize) {
     let mut checked = 0;
     for (r, g) in groups.iter().enumerate() {
         // Same groups in the same order (first appearance).
-        let key: Vec<Value> = (0..nkeys)
-            .map(|k| out.columns[k].values.value(r))
-            .collect();
+        let key: Vec<Value> = (0..nkeys).map(|k| out.columns[k].values.value(r)).collect();
         let want: Vec<Value> = g["key"]
             .as_array()
             .expect("key")
@@ -153,8 +151,14 @@ fn loads_with_expected_shape_and_types() {
     }
     assert_eq!(expected()["missing_sex"].as_u64(), Some(11));
     // shared/refs §8: data row 4 is missing every measurement.
-    assert_eq!(t.columns[col(&t, "body_mass_g")].values.value(3), Value::Missing);
-    assert_eq!(t.columns[col(&t, "year")].values.value(3), Value::Number(2007.0));
+    assert_eq!(
+        t.columns[col(&t, "body_mass_g")].values.value(3),
+        Value::Missing
+    );
+    assert_eq!(
+        t.columns[col(&t, "year")].values.value(3),
+        Value::Number(2007.0)
+    );
 }
 
 #[test]

@@ -7,12 +7,12 @@ mod common;
 
 use std::path::PathBuf;
 
+use crescendo_data::load::ReadLimits;
 use crescendo_data::stream::{scan, Chunks, ScanFailure, ScanInput, ScanOutput, StreamView};
 use crescendo_data::{
     load_csv, probe, run_view, AggFn, Aggregate, CmpOp, ColType, Columns, CsvSpec, Expr, Step,
     Table, Value,
 };
-use crescendo_data::load::ReadLimits;
 
 fn penguins_spec() -> CsvSpec {
     CsvSpec {
@@ -376,7 +376,12 @@ fn cells_the_loader_refuses_fall_back_to_it_whatever_the_chunks() {
         bytes.extend_from_slice(b"a,b,1,2024-02\n");
         let spec = common::spec_for("cells.csv", &bytes);
         let len = bytes.len() as u64;
-        for cuts in [vec![], vec![len / 2], vec![len - 40], vec![len / 3, len - 10]] {
+        for cuts in [
+            vec![],
+            vec![len / 2],
+            vec![len - 40],
+            vec![len / 3, len - 10],
+        ] {
             assert!(matches!(
                 scan_limited(&spec, &views, cuts, &limits),
                 Err(ScanFailure::Fallback)
@@ -469,7 +474,10 @@ fn every_thread_reads_the_opened_file_not_the_path() {
     // and the whole load too
     let t = crescendo_data::load::load_file(&spec, &file, &Columns::All, &ReadLimits::none())
         .expect("loads");
-    assert_eq!(t.columns[0].values.value(1999), Value::Text("opened".into()));
+    assert_eq!(
+        t.columns[0].values.value(1999),
+        Value::Text("opened".into())
+    );
 }
 
 #[test]
@@ -492,6 +500,10 @@ fn an_overflowing_sum_streams_as_it_loads() {
     let len = bytes.len() as u64;
     for cuts in [vec![], vec![len / 2], vec![len / 5, len / 3, len * 4 / 5]] {
         let out = scan_all(&spec, &views, &Chunks::At(cuts.clone(), 2)).expect("scan");
-        assert!(same(&out.tables[0], &want), "{cuts:?}\n{:?}\n{want:?}", out.tables[0]);
+        assert!(
+            same(&out.tables[0], &want),
+            "{cuts:?}\n{:?}\n{want:?}",
+            out.tables[0]
+        );
     }
 }

@@ -303,7 +303,12 @@ impl Tables {
                     decl.file.value,
                     real.display()
                 );
-                diags.push(crate::paths::outside(src, decl.file.span.clone(), "data file", &why));
+                diags.push(crate::paths::outside(
+                    src,
+                    decl.file.span.clone(),
+                    "data file",
+                    &why,
+                ));
                 return None;
             }
             Err(OpenError::Io(e)) => {

@@ -27,7 +27,11 @@ pub(crate) fn check(
     }
     let o = overflow(out)?;
     let column = out.columns.get(o.column).map_or("", |c| c.name.as_str());
-    let direction = if o.sign < 0.0 { "below the lowest" } else { "beyond the largest" };
+    let direction = if o.sign < 0.0 {
+        "below the lowest"
+    } else {
+        "beyond the largest"
+    };
     let (message, span, label) = match (step, ast) {
         (Step::Group { keys, .. }, StepAst::By { aggregates, .. }) => {
             let group: Vec<String> = out

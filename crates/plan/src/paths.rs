@@ -85,7 +85,12 @@ pub fn within(story_dir: &Path, allowed: &[PathBuf]) -> Within {
 
 /// The error for a file the story may not read (`what`: "data file", ...;
 /// `why` from [`confine`] or the check of the opened file).
-pub fn outside(src: &Arc<Source>, span: std::ops::Range<usize>, what: &str, why: &str) -> Diagnostic {
+pub fn outside(
+    src: &Arc<Source>,
+    span: std::ops::Range<usize>,
+    what: &str,
+    why: &str,
+) -> Diagnostic {
     Diagnostic::error("path-outside", format!("the {what} may not be read: {why}"))
         .at(src, span, "outside the story's folder")
         .note(

@@ -382,7 +382,12 @@ pub fn load(
                 file.value,
                 real.display()
             );
-            diags.push(crate::paths::outside(src, file.span.clone(), "house style", &why));
+            diags.push(crate::paths::outside(
+                src,
+                file.span.clone(),
+                "house style",
+                &why,
+            ));
             return None;
         }
         Err(OpenError::Io(e)) => {
@@ -418,6 +423,35 @@ mod tests {
     fn located(text: &str) -> (String, usize, usize) {
         let d = check(text).unwrap_err();
         d[0].location().expect("located")
+    }
+
+    #[test]
+    fn the_opened_style_file_is_checked_not_its_path() {
+        // a style file that is (or became, after the path was checked) a
+        // link to a file outside the story's folder is not read
+        let d = std::env::temp_dir().join(format!("crescendo-style-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&d);
+        std::fs::create_dir_all(d.join("story")).unwrap();
+        std::fs::create_dir_all(d.join("private")).unwrap();
+        std::fs::write(d.join("private/secret.toml"), "fonts = [\"Secret\"]\n").unwrap();
+        std::fs::write(d.join("story/own.toml"), "[sizes]\nheadline = 30\n").unwrap();
+        std::os::unix::fs::symlink(d.join("private/secret.toml"), d.join("story/house.toml"))
+            .unwrap();
+        let src = Source::file("s.cresc", "style \"house.toml\"\n".to_string());
+        let within = crate::paths::within(&d.join("story"), &[]);
+        let named = |value: &str| Str {
+            value: value.to_string(),
+            span: 6..18,
+        };
+        let mut diags = Vec::new();
+        let story = d.join("story");
+        assert!(load(&src, &story, &named("house.toml"), &within, &mut diags).is_none());
+        assert_eq!(diags.len(), 1, "{diags:?}");
+        assert_eq!(diags[0].code, "path-outside");
+        assert!(!format!("{diags:?}").contains("Secret"));
+        let own = load(&src, &story, &named("own.toml"), &within, &mut Vec::new());
+        assert_eq!(own.and_then(|s| s.headline_size), Some(30.0));
+        let _ = std::fs::remove_dir_all(&d);
     }
 
     #[test]

@@ -61,7 +61,11 @@ pub fn text_width(text: &str, size_px: f64, bold: bool) -> f64 {
     let upem = f64::from(font.units_per_em().unwrap_or(2048.0));
     let units = if text.len() > LONG {
         let chars: Vec<char> = text.chars().collect();
-        Glyphs::new(font).prefix_units(&chars).last().copied().unwrap_or(0.0)
+        Glyphs::new(font)
+            .prefix_units(&chars)
+            .last()
+            .copied()
+            .unwrap_or(0.0)
     } else {
         let mut units = 0.0f64;
         let mut prev = None;
