@@ -54,11 +54,9 @@ use std::sync::atomic::{AtomicUsize, Ordering as AtomicOrdering};
 use std::sync::Mutex;
 
 use crate::files::ReadAt;
-use crate::load::{
-    forbidden_char, parse_number, reader_builder, scan_fields, too_long, CsvSpec, LoadError,
-    RawRecord, ReadLimits, Tee,
-};
+use crate::load::{parse_number, CsvSpec, LoadError, ReadLimits};
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Value, Values};
+use crate::record::{forbidden_char, reader_builder, scan_fields, too_long, RawRecord, Tee};
 use crate::time::{parse_date, parse_month, parse_year};
 use crate::view::{compare_cells, encode_key, sum_value, truth, FxMap, Sum};
 
@@ -439,6 +437,56 @@ impl Groups {
     }
 }
 
+/// Add one record (its cells by column) to the state of every view whose
+/// `keep`s it passes; `false` when a view then holds more kept rows than
+/// the limits allow, or its state does not fit its step.
+fn add_record(
+    input: &ScanInput<'_>,
+    cells: &[Cell<'_>],
+    states: &mut [ViewState],
+    kept: &mut [usize],
+    keybuf: &mut Vec<u8>,
+) -> bool {
+    let row = |c: usize| cells.get(c).copied().unwrap_or(Cell::Missing);
+    for (vi, (view, state)) in input.views.iter().zip(states).enumerate() {
+        if !view.keeps.iter().all(|k| truth(&row, k)) {
+            continue;
+        }
+        match (state, &view.group) {
+            (ViewState::Groups(g), Some((keys, aggs))) => {
+                keybuf.clear();
+                for &k in keys {
+                    encode_key(keybuf, row(k));
+                }
+                let slot = g.slot(
+                    keybuf,
+                    || keys.iter().map(|&k| row(k).to_value()).collect(),
+                    aggs,
+                );
+                for (acc, a) in g.accs[slot].iter_mut().zip(aggs) {
+                    acc.add(a.column.map_or(Cell::Missing, row));
+                }
+            }
+            (ViewState::Rows(cols), _) => {
+                for (j, col) in cols.iter_mut().enumerate() {
+                    let keep = input.keep_values.get(j).copied().unwrap_or(false);
+                    col.push_cell(if keep { row(j) } else { Cell::Missing });
+                }
+                let n = kept.get_mut(vi).map_or(0, |n| {
+                    *n += 1;
+                    *n
+                });
+                let over_limit = input.limits.rows.is_some_and(|m| n > m);
+                if over_limit || (n.is_multiple_of(8192) && !rows_fit(input.limits, cols)) {
+                    return false;
+                }
+            }
+            _ => return false,
+        }
+    }
+    true
+}
+
 /// Do the cells the loader checks (`check`) hold no character XML cannot
 /// carry, and none over the text limit?
 fn cells_allowed(limits: &ReadLimits, record: &csv::ByteRecord, check: &[usize]) -> bool {
@@ -569,43 +617,8 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
             }
             cells[j] = c;
         }
-        {
-            let row = |c: usize| cells.get(c).copied().unwrap_or(Cell::Missing);
-            for (vi, (view, state)) in input.views.iter().zip(&mut out.views).enumerate() {
-                if !view.keeps.iter().all(|k| truth(&row, k)) {
-                    continue;
-                }
-                match (state, &view.group) {
-                    (ViewState::Groups(g), Some((keys, aggs))) => {
-                        keybuf.clear();
-                        for &k in keys {
-                            encode_key(&mut keybuf, row(k));
-                        }
-                        let slot = g.slot(
-                            &keybuf,
-                            || keys.iter().map(|&k| row(k).to_value()).collect(),
-                            aggs,
-                        );
-                        for (acc, a) in g.accs[slot].iter_mut().zip(aggs) {
-                            acc.add(a.column.map_or(Cell::Missing, row));
-                        }
-                    }
-                    (ViewState::Rows(cols), _) => {
-                        for (j, col) in cols.iter_mut().enumerate() {
-                            let keep = input.keep_values.get(j).copied().unwrap_or(false);
-                            col.push_cell(if keep { row(j) } else { Cell::Missing });
-                        }
-                        kept[vi] += 1;
-                        let over_limit = input.limits.rows.is_some_and(|m| kept[vi] > m);
-                        if over_limit
-                            || (kept[vi].is_multiple_of(8192) && !rows_fit(input.limits, cols))
-                        {
-                            return out;
-                        }
-                    }
-                    _ => return out,
-                }
-            }
+        if !add_record(input, &cells, &mut out.views, &mut kept, &mut keybuf) {
+            return out;
         }
         scratch = recycle(cells);
         out.rows += 1;
