@@ -336,8 +336,8 @@ impl<'s> Loader<'s> {
         raw: &RawRecord<'_>,
     ) -> Result<(), LoadError> {
         let name = &self.columns[j].name;
-        let field = field_span(raw.bytes, j);
         if let Some((_, c)) = forbidden_char(text) {
+            let field = field_span(raw.bytes, j);
             let mut utf8 = [0u8; 4];
             let needle = c.encode_utf8(&mut utf8).as_bytes();
             let at = raw.bytes[field.clone()]
@@ -360,6 +360,7 @@ impl<'s> Loader<'s> {
             ));
         }
         if let Some(n) = too_long(text, self.limits.text) {
+            let field = field_span(raw.bytes, j);
             return Err(LoadError::Csv(
                 self.located(
                     "limit",
