@@ -200,28 +200,12 @@ const MAX_EXCERPT: usize = 8 * 1024;
 /// Bytes shown after the span of a line longer than [`MAX_EXCERPT`].
 const EXCERPT_AFTER: usize = 60;
 
-/// The text of an excerpt: invalid UTF-8 replaced, and characters that
-/// must not reach a terminal or XML shown as their visible pictures
-/// (U+2400 to U+241F for C0 controls, U+FFFD for U+FFFE and U+FFFF). Tab and
-/// line breaks stay.
-pub(crate) fn excerpt_text(bytes: &[u8]) -> String {
-    String::from_utf8_lossy(bytes)
-        .chars()
-        .map(|c| match c {
-            '\t' | '\n' | '\r' => c,
-            '\u{0}'..='\u{1f}' => char::from_u32(0x2400 + c as u32).unwrap_or('\u{fffd}'),
-            '\u{fffe}' | '\u{ffff}' => '\u{fffd}',
-            c => c,
-        })
-        .collect()
-}
-
 impl RawRecord<'_> {
     /// The text shown for this record in a diagnostic, and `span` within
-    /// it: invalid UTF-8 replaced, control characters shown as pictures
-    /// ([`excerpt_text`]), and a record longer than [`MAX_EXCERPT`] cut
-    /// after the line of the span (or, for one line that long, a little
-    /// after the span).
+    /// it: invalid UTF-8 replaced, and a record longer than [`MAX_EXCERPT`]
+    /// cut after the line of the span (or, for one line that long, a little
+    /// after the span). Control characters stay: the diagnostic renderer
+    /// shows them as visible characters (`crescendo_diag::terminal_safe`).
     pub(crate) fn excerpt(&self, span: Range<usize>) -> (String, Range<usize>) {
         let raw = self;
         let bytes = if raw.bytes.len() > MAX_EXCERPT {
@@ -239,18 +223,21 @@ impl RawRecord<'_> {
         } else {
             raw.bytes
         };
-        let text = excerpt_text(bytes);
-        let span = if text.as_bytes() == bytes {
-            span
-        } else {
-            let at = |o: usize| excerpt_text(&bytes[..o.min(bytes.len())]).len();
-            at(span.start)..at(span.end)
-        };
-        (text, span)
+        match std::str::from_utf8(bytes) {
+            Ok(t) => (t.to_owned(), span),
+            Err(_) => {
+                let at = |o: usize| String::from_utf8_lossy(&bytes[..o.min(bytes.len())]).len();
+                (
+                    String::from_utf8_lossy(bytes).into_owned(),
+                    at(span.start)..at(span.end),
+                )
+            }
+        }
     }
 }
 
-/// The first character of `s` that XML 1.0 cannot carry (see [`crate::load`]), with its byte offset.
+/// The first character of `s` that XML 1.0 cannot carry (see
+/// [`crate::load`]), with its byte offset.
 pub(crate) fn forbidden_char(s: &str) -> Option<(usize, char)> {
     // fast path: only bytes below 0x20 and the lead byte of U+FFFE/U+FFFF
     if !s.bytes().any(|b| b < 0x20 || b == 0xEF) {
