@@ -71,28 +71,7 @@ fn scan_all(
     views: &[StreamView],
     chunks: &Chunks,
 ) -> Result<ScanOutput, ScanFailure> {
-    let p = probe(spec, &Columns::All, 1000).expect("probe");
-    let schema: Vec<(String, ColType)> = p
-        .names
-        .iter()
-        .zip(&p.types)
-        .map(|(n, t)| (n.clone(), t.unwrap_or(ColType::Text)))
-        .collect();
-    let all = vec![true; schema.len()];
-    let file = std::fs::File::open(&spec.path).expect("open");
-    scan(
-        &ScanInput {
-            spec,
-            file: &file,
-            limits: &ReadLimits::none(),
-            schema: &schema,
-            parse: &all,
-            keep_values: &all,
-            data_start: p.data_start,
-            views,
-        },
-        chunks,
-    )
+    scan_limited(spec, views, chunks, &ReadLimits::none())
 }
 
 /// Debug text compares `-0` and `0` (and every float) exactly.
@@ -329,7 +308,7 @@ fn problems_fall_back_to_the_loader() {
 fn scan_limited(
     spec: &CsvSpec,
     views: &[StreamView],
-    cuts: Vec<u64>,
+    chunks: &Chunks,
     limits: &ReadLimits,
 ) -> Result<ScanOutput, ScanFailure> {
     let p = probe(spec, &Columns::All, 1000).expect("probe");
@@ -352,7 +331,7 @@ fn scan_limited(
             data_start: p.data_start,
             views,
         },
-        &Chunks::At(cuts, 2),
+        chunks,
     )
 }
 
@@ -383,7 +362,7 @@ fn cells_the_loader_refuses_fall_back_to_it_whatever_the_chunks() {
             vec![len / 3, len - 10],
         ] {
             assert!(matches!(
-                scan_limited(&spec, &views, cuts, &limits),
+                scan_limited(&spec, &views, &Chunks::At(cuts, 2), &limits),
                 Err(ScanFailure::Fallback)
             ));
         }
@@ -396,7 +375,7 @@ fn cells_the_loader_refuses_fall_back_to_it_whatever_the_chunks() {
         text: 51,
         ..ReadLimits::none()
     };
-    assert!(scan_limited(&spec, &views, vec![], &fits).is_ok());
+    assert!(scan_limited(&spec, &views, &Chunks::At(vec![], 2), &fits).is_ok());
 }
 
 #[test]
@@ -419,10 +398,16 @@ fn kept_rows_over_the_row_limit_fall_back() {
     };
     for cuts in [vec![], vec![len / 2]] {
         assert!(matches!(
-            scan_limited(&spec, &keep_only, cuts.clone(), &limit(2999)),
+            scan_limited(
+                &spec,
+                &keep_only,
+                &Chunks::At(cuts.clone(), 2),
+                &limit(2999)
+            ),
             Err(ScanFailure::Fallback)
         ));
-        let out = scan_limited(&spec, &keep_only, cuts, &limit(3000)).expect("fits");
+        let out =
+            scan_limited(&spec, &keep_only, &Chunks::At(cuts, 2), &limit(3000)).expect("fits");
         assert_eq!(out.tables[0].columns[0].values.len(), 3000);
     }
 }
