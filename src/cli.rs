@@ -135,9 +135,10 @@ pub struct LimitArgs {
     /// Largest story or data file, in bytes.
     #[arg(long, value_name = "BYTES", default_value_t = crescendo_plan::limits::Limits::default().input_bytes)]
     pub max_input_bytes: u64,
-    /// Most rows of a data file held in memory.
-    #[arg(long, value_name = "N", default_value_t = crescendo_plan::limits::Limits::default().rows)]
-    pub max_rows: usize,
+    /// Most rows of a data file held in memory [default: as many as fit in
+    /// half the memory available].
+    #[arg(long, value_name = "N")]
+    pub max_rows: Option<usize>,
     /// Most frames in a deck.
     #[arg(long, value_name = "N", default_value_t = crescendo_plan::limits::Limits::default().frames)]
     pub max_frames: usize,

@@ -8,11 +8,13 @@
 //! key is ignored (and rewritten), never an error. Writes go to a temporary
 //! file that is renamed into place, so a reader never sees half an entry.
 
-use std::fs;
+use std::fs::{self, File};
 use std::path::{Path, PathBuf};
 use std::time::{Duration, SystemTime, UNIX_EPOCH};
 
-use crescendo_plan::cache::{hash_file, hash_hex, FORMAT};
+use crescendo_data::files::{OpenError, ReadAt};
+use crescendo_data::load::ReadLimits;
+use crescendo_plan::cache::{hash_hex, hash_reader, FORMAT};
 use crescendo_plan::io::{Database, Disk, Io, PluginFile, ViewCache};
 use serde::de::DeserializeOwned;
 use serde::{Deserialize, Serialize};
@@ -98,9 +100,10 @@ impl Cache {
     /// not modified within [`RACY_NS`] of being hashed, the recorded hash is
     /// used; otherwise the bytes are hashed again. So a changed file is
     /// always noticed by its content, and an unchanged 600 MB file is not
-    /// read again on a rebuild.
-    pub fn file_hash(&self, path: &Path) -> std::io::Result<String> {
-        let meta = fs::metadata(path)?;
+    /// read again on a rebuild. `file` is the open file (whose bytes are
+    /// hashed), `path` only names it in the memo.
+    pub fn file_hash(&self, path: &Path, file: &File) -> std::io::Result<String> {
+        let meta = file.metadata()?;
         let modified_ns = meta
             .modified()
             .ok()
@@ -117,7 +120,7 @@ impl Cache {
             }
         }
         let hashed_ns = now_ns();
-        let hash = hash_file(path)?;
+        let hash = hash_reader(ReadAt::new(file, 0))?;
         self.put(
             "files",
             &memo_key,
@@ -133,8 +136,8 @@ impl Cache {
 }
 
 impl ViewCache for Cache {
-    fn content_hash(&mut self, path: &Path) -> std::io::Result<String> {
-        self.file_hash(path)
+    fn content_hash(&mut self, path: &Path, file: &File) -> std::io::Result<String> {
+        self.file_hash(path, file)
     }
 
     fn get(&self, kind: &str, key: &str) -> Option<Vec<u8>> {
@@ -177,25 +180,28 @@ impl Io for Reading {
         self.disk.file_len(path)
     }
 
-    fn read_text(&self, path: &Path) -> std::io::Result<String> {
-        self.disk.read_text(path)
+    fn open(&self, dir: Option<&Path>, path: &Path) -> Result<File, OpenError> {
+        self.disk.open(dir, path)
     }
 
     fn load_csv(
         &self,
         spec: &crescendo_data::CsvSpec,
+        file: &File,
         columns: &crescendo_data::Columns,
+        limits: &ReadLimits,
     ) -> Result<crescendo_data::Table, crescendo_data::LoadError> {
-        self.disk.load_csv(spec, columns)
+        self.disk.load_csv(spec, file, columns, limits)
     }
 
     fn probe_csv(
         &self,
-        spec: &crescendo_data::CsvSpec,
+        read: (&crescendo_data::CsvSpec, &File),
         columns: &crescendo_data::Columns,
         sample: usize,
+        limits: &ReadLimits,
     ) -> Result<crescendo_data::Probe, crescendo_data::LoadError> {
-        self.disk.probe_csv(spec, columns, sample)
+        self.disk.probe_csv(read, columns, sample, limits)
     }
 
     fn scan_csv(
@@ -250,10 +256,48 @@ mod tests {
         // content hash: same bytes, same hash; other bytes, other hash
         let f = dir.join("f.csv");
         fs::write(&f, b"a\n1\n").unwrap();
-        let h1 = c.file_hash(&f).unwrap();
-        assert_eq!(h1, hash_file(&f).unwrap());
+        let h1 = c.file_hash(&f, &File::open(&f).unwrap()).unwrap();
+        assert_eq!(h1, crescendo_plan::cache::hash_file(&f).unwrap());
         fs::write(&f, b"a\n2\n").unwrap();
-        assert_ne!(c.file_hash(&f).unwrap(), h1);
+        assert_ne!(c.file_hash(&f, &File::open(&f).unwrap()).unwrap(), h1);
         let _ = fs::remove_dir_all(&dir);
+    }
+}
+
+#[cfg(test)]
+mod opening {
+    use super::*;
+
+    #[test]
+    fn reading_checks_the_opened_file_and_hashes_it() {
+        let d = std::env::temp_dir().join(format!("crescendo-reading-{}", std::process::id()));
+        let _ = fs::remove_dir_all(&d);
+        fs::create_dir_all(d.join("story")).unwrap();
+        fs::create_dir_all(d.join("private")).unwrap();
+        fs::write(d.join("private/secret.csv"), "a\nsecret\n").unwrap();
+        std::os::unix::fs::symlink(d.join("private/secret.csv"), d.join("story/t.csv")).unwrap();
+        let story = d.join("story");
+        let reading = Reading::new(&crescendo_plan::Options::default(), Some(&d.join("cache")));
+        // a data file or house style that links out is refused when opened
+        assert!(matches!(
+            reading.open(Some(&story), &story.join("t.csv")),
+            Err(OpenError::Outside { .. })
+        ));
+        assert!(matches!(
+            reading.read_text(&story, &story.join("t.csv")),
+            Err(OpenError::Outside { .. })
+        ));
+        // the content hash is the open file's: a file put in place of the
+        // path after it was opened is not what is hashed
+        fs::remove_file(story.join("t.csv")).unwrap();
+        fs::write(story.join("t.csv"), "a\n1\n").unwrap();
+        let opened = reading.open(Some(&story), &story.join("t.csv")).unwrap();
+        fs::remove_file(story.join("t.csv")).unwrap();
+        fs::write(story.join("t.csv"), "a\n2\n").unwrap();
+        let mut reading = reading;
+        let cache = reading.cache().expect("a view cache");
+        let hash = cache.content_hash(&story.join("t.csv"), &opened).unwrap();
+        assert_eq!(hash, hash_reader(&b"a\n1\n"[..]).unwrap());
+        let _ = fs::remove_dir_all(&d);
     }
 }

@@ -234,7 +234,7 @@ fn every_limit_is_an_option_with_a_located_error() {
         (
             "--max-rows",
             "2",
-            "3 rows, more than the limit of 2",
+            "more rows than the limit of 2 (--max-rows)",
             "story.cresc:4:",
         ),
         (
@@ -426,4 +426,200 @@ fn quoted_values_count_against_the_text_limit() {
         "{}",
         String::from_utf8_lossy(&run.stderr)
     );
+}
+
+/// The errors `check` prints for a story whose view over `t.csv` streams
+/// the file (it starts with `by`), and for the same story with a value that
+/// reads the data item directly (so the file is loaded whole).
+fn both_paths(name: &str, csv: &[u8], extra: &[&str]) -> (String, String) {
+    let view = "view v = t\n  | by c: n = sum(n)\n";
+    let frame = "frame \"Rows\" {\n  bars v: category c, value n\n}\n";
+    let streamed = format!("{STORY}{view}{frame}");
+    let loaded = format!("{STORY}{view}value rows = count(t.n)\n{frame}");
+    let run = |story: &str, tag: &str| {
+        let dir = scratch(&format!("{name}-{tag}"));
+        fs::write(dir.join("story.cresc"), story).unwrap();
+        fs::write(dir.join("t.csv"), csv).unwrap();
+        let mut args = vec!["check", "story.cresc"];
+        args.extend_from_slice(extra);
+        let out = crescendo(&dir, &args);
+        let stderr = String::from_utf8_lossy(&out.stderr).into_owned();
+        assert_eq!(out.status.code(), Some(1), "{name} {tag}: {stderr}");
+        assert!(!stderr.contains("panicked"), "{name} {tag}: {stderr}");
+        stderr
+    };
+    // the first story does stream its file (a clean one), the second not
+    for (story, mode) in [
+        (&streamed, "\"streamed\":[\"t\"]"),
+        (&loaded, "\"loaded\":[\"t\"]"),
+    ] {
+        let dir = scratch(&format!("{name}-clean"));
+        fs::write(dir.join("story.cresc"), story).unwrap();
+        fs::write(dir.join("t.csv"), "c,n\nElm,1\n").unwrap();
+        let out = crescendo(&dir, &["build", "story.cresc"]);
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let report = fs::read_to_string(dir.join(".crescendo-cache/deck/report/last.json"))
+            .unwrap_or_default();
+        assert!(report.contains(mode), "{mode}: {report}");
+    }
+    (run(&streamed, "streamed"), run(&loaded, "loaded"))
+}
+
+#[test]
+fn streamed_and_loaded_files_give_the_same_located_error() {
+    let mut long = b"c,n\nElm,1\n".to_vec();
+    long.extend(std::iter::repeat_n(b'x', 300));
+    long.extend(b",2\nAsh,3\n");
+    for (name, csv, extra, message, at) in [
+        (
+            "limit-text",
+            long,
+            &["--max-text", "100"][..],
+            "error[limit]: row 2, column `c` has 300 characters, more than the limit of 100 (--max-text)",
+            "t.csv:3:1",
+        ),
+        (
+            "control-character",
+            b"c,n\nElm,1\nO\x0cak,2\n".to_vec(),
+            &[][..],
+            "error[bad-character]: row 2, column `c` holds the control character U+000C",
+            "t.csv:3:2",
+        ),
+        (
+            "overflow",
+            b"c,n\nElm,1.7e308\nAsh,2\nElm,1.7e308\n".to_vec(),
+            &[][..],
+            "error[overflow]: the sum `n` for `c` = \"Elm\" is beyond the largest number",
+            "story.cresc:6:11",
+        ),
+    ] {
+        let (streamed, loaded) = both_paths(name, &csv, extra);
+        for (tag, stderr) in [("streamed", &streamed), ("loaded", &loaded)] {
+            assert!(stderr.contains(message), "{name} {tag}: {stderr}");
+            assert!(stderr.contains(at), "{name} {tag}: {stderr}");
+        }
+        // the same first error, word for word and at the same place
+        let first = |s: &str| s.split("\n\n").next().unwrap_or_default().to_string();
+        assert_eq!(first(&streamed), first(&loaded), "{name}");
+    }
+}
+
+#[test]
+fn a_very_long_category_is_drawn_in_bounded_time() {
+    // a 200,000-character category under a raised --max-text: cutting it
+    // to fit its label measured every shorter prefix again (hours)
+    let mut csv = b"c,n\nElm,1\n".to_vec();
+    csv.extend(std::iter::repeat_n(b'y', 200_000));
+    csv.extend(b",2\n");
+    let story = format!(
+        "{STORY}view v = t\n  | by c: n = sum(n)\n\
+         frame \"Rows\" {{\n  bars v: category c, value n\n}}\n"
+    );
+    let dir = scratch("very-long-category");
+    fs::write(dir.join("story.cresc"), story).unwrap();
+    fs::write(dir.join("t.csv"), csv).unwrap();
+    let start = Instant::now();
+    let run = crescendo(&dir, &["build", "story.cresc", "--max-text", "300000"]);
+    let took = start.elapsed();
+    let stderr = String::from_utf8_lossy(&run.stderr);
+    assert_eq!(run.status.code(), Some(0), "{stderr}");
+    // generous for a debug build on a busy machine
+    assert!(took < Duration::from_secs(120), "{took:?}");
+}
+
+#[test]
+fn a_data_file_swapped_for_a_link_out_is_never_read() {
+    // Another process keeps replacing the data file by a symbolic link to a
+    // private file outside the story's folder, and back. The path check and
+    // the open used to be two looks at the path; a build that read the
+    // link put the private rows into the deck (8 of 100 debug builds). The
+    // opened file is checked now: every build draws the story's own rows or
+    // stops with a located `path-outside` error.
+    use std::sync::atomic::{AtomicBool, Ordering};
+    use std::sync::Arc;
+    let base = scratch("symlink-race");
+    let (story_dir, private) = (base.join("story"), base.join("private"));
+    fs::create_dir_all(&story_dir).unwrap();
+    fs::create_dir_all(&private).unwrap();
+    fs::write(story_dir.join("real.csv"), "c,n\ninside,1\n").unwrap();
+    fs::write(private.join("secret.csv"), "c,n\nPRIVATE-ROW,2\n").unwrap();
+    fs::copy(story_dir.join("real.csv"), story_dir.join("t.csv")).unwrap();
+    fs::write(
+        story_dir.join("story.cresc"),
+        format!(
+            "{STORY}view v = t\n  | by c: n = sum(n)\n\
+             frame \"Rows\" {{\n  bars v: category c, value n\n}}\n"
+        ),
+    )
+    .unwrap();
+    let stop = Arc::new(AtomicBool::new(false));
+    let racer = {
+        let (stop, dir, secret) = (
+            Arc::clone(&stop),
+            story_dir.clone(),
+            private.join("secret.csv"),
+        );
+        std::thread::spawn(move || {
+            let (link, copy, target) = (dir.join(".link"), dir.join(".copy"), dir.join("t.csv"));
+            while !stop.load(Ordering::Relaxed) {
+                let _ = fs::remove_file(&link);
+                let _ = fs::remove_file(&copy);
+                if std::os::unix::fs::symlink(&secret, &link).is_ok() {
+                    let _ = fs::rename(&link, &target);
+                }
+                if fs::hard_link(dir.join("real.csv"), &copy).is_ok() {
+                    let _ = fs::rename(&copy, &target);
+                }
+            }
+        })
+    };
+    let (mut decks, mut refused) = (0, 0);
+    for i in 0..100 {
+        let out = base.join(format!("deck{i}"));
+        let run = crescendo(
+            &story_dir,
+            &[
+                "build",
+                "story.cresc",
+                "--no-cache",
+                "--out",
+                out.to_str().unwrap(),
+            ],
+        );
+        let stderr = String::from_utf8_lossy(&run.stderr).into_owned();
+        assert!(!stderr.contains("panicked"), "{stderr}");
+        assert!(!stderr.contains("PRIVATE-ROW"), "build {i}: {stderr}");
+        let files = if out.exists() {
+            read_dir_files(&out)
+        } else {
+            Vec::new()
+        };
+        for (name, bytes) in files {
+            let text = String::from_utf8_lossy(&bytes);
+            assert!(
+                !text.contains("PRIVATE-ROW"),
+                "build {i}: {name} holds a private row"
+            );
+        }
+        match run.status.code() {
+            Some(0) => decks += 1,
+            _ => {
+                assert!(
+                    stderr.contains("error[path-outside]"),
+                    "build {i}: {stderr}"
+                );
+                assert!(stderr.contains("story.cresc:4:"), "build {i}: {stderr}");
+                refused += 1;
+            }
+        }
+        let _ = fs::remove_dir_all(&out);
+    }
+    stop.store(true, Ordering::Relaxed);
+    racer.join().unwrap();
+    // both outcomes happen: the race really ran
+    assert!(decks > 0 && refused > 0, "{decks} decks, {refused} refused");
 }

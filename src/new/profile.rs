@@ -58,13 +58,16 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
     // The loader never infers years: a whole-number column named like a
     // year becomes one.
     for c in &mut table.columns {
-        if c.ty == ColType::Number && looks_like_year(c.name.as_str(), &c.values) {
+        if c.ty == ColType::Number && looks_like_year(c.name.as_str(), &c.values.to_vec()) {
             c.ty = ColType::Year;
-            for v in &mut c.values {
-                if let Value::Number(x) = v {
-                    *v = Value::Year(*x as i32);
-                }
-            }
+            c.values = c
+                .values
+                .iter()
+                .map(|v| match v {
+                    Value::Number(x) => Value::Year(x as i32),
+                    other => other,
+                })
+                .collect();
         }
     }
     let rows = table.columns.first().map_or(0, |c| c.values.len());
@@ -88,7 +91,7 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
                         t.clone()
                     }
                     other => {
-                        let x = order_key(other);
+                        let x = order_key(&other);
                         lo = Some(lo.map_or(x, |l: f64| l.min(x)));
                         hi = Some(hi.map_or(x, |h: f64| h.max(x)));
                         format!("{x:?}")

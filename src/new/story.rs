@@ -64,8 +64,8 @@ fn totals(table: &Table, key: &str, measure: &str) -> BTreeMap<String, f64> {
         let key = match kv {
             Value::Text(t) => t.clone(),
             Value::Year(y) => y.to_string(),
-            Value::Month(x) => crescendo_data::time::month_iso(*x),
-            Value::Date(x) => crescendo_data::time::date_iso(*x),
+            Value::Month(x) => crescendo_data::time::month_iso(x),
+            Value::Date(x) => crescendo_data::time::date_iso(x),
             _ => continue,
         };
         if let Value::Number(x) = mv {

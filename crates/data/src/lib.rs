@@ -1,11 +1,16 @@
 //! Data for crescendo: CSV loading into typed columns, the view engine that
 //! runs resolved view steps, and number/date formatting.
 
+pub mod column;
+pub mod files;
 pub mod format;
+mod hash;
 pub mod load;
+mod loader;
 pub mod locale;
 pub mod model;
 pub mod progress;
+mod record;
 pub mod stats;
 pub mod store;
 pub mod stream;

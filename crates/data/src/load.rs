@@ -28,6 +28,13 @@
 //!
 //! Row numbers in messages count data records (row 1 is the first record after
 //! the header); the diagnostic's location shows the real line of the file.
+//!
+//! Cells the story reads (kept and declared columns) and header names may
+//! not hold a control character XML cannot carry (U+0000–U+0008, U+000B,
+//! U+000C, U+000E–U+001F, U+FFFE, U+FFFF): such a cell is a located
+//! `bad-character` error, as invalid UTF-8 is. Tab, line feed and carriage
+//! return are kept. [`ReadLimits`] bounds the length of those cells and the
+//! rows held in memory.
 
 // `LoadError::Csv` holds a full `Diagnostic` by value, as the crate's API
 // specifies; the error happens at most once per load, so its size is harmless.
@@ -36,14 +43,15 @@
 use std::collections::BTreeSet;
 use std::fmt;
 use std::fs::File;
-use std::io::{self, Read};
-use std::ops::Range;
+use std::io;
 use std::path::PathBuf;
-use std::sync::Arc;
 
-use crescendo_diag::{closest, Diagnostic, Source};
+use crescendo_diag::Diagnostic;
 
-use crate::model::{ColType, Column, Table, Value};
+use crate::files::ReadAt;
+use crate::loader::Loader;
+use crate::model::{ColType, Table, Value};
+use crate::record::{reader_builder, skip_bom, RawRecord, Tee};
 use crate::time::{parse_date, parse_month, parse_year};
 
 /// What to load and how to read it.
@@ -57,6 +65,36 @@ pub struct CsvSpec {
     pub declared: Vec<(String, ColType)>,
     /// Exact cell texts that mean "missing"; callers pass `["", "NA"]` by default.
     pub missing: Vec<String>,
+}
+
+/// Limits on one read, so that a hostile or broken file stops with a clear
+/// error instead of exhausting memory or time.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct ReadLimits {
+    /// Longest text, in characters, of a cell the story reads.
+    pub text: usize,
+    /// Most data rows held in memory (`--max-rows`); `None`: as many as fit
+    /// in `memory` bytes.
+    pub rows: Option<usize>,
+    /// Bytes the held rows may take when `rows` is `None`.
+    pub memory: u64,
+}
+
+impl ReadLimits {
+    /// No limits (what [`load_csv`] uses).
+    pub fn none() -> ReadLimits {
+        ReadLimits {
+            text: usize::MAX,
+            rows: None,
+            memory: u64::MAX,
+        }
+    }
+}
+
+impl Default for ReadLimits {
+    fn default() -> Self {
+        ReadLimits::none()
+    }
 }
 
 /// Why a CSV file could not be loaded.
@@ -143,9 +181,22 @@ impl Columns {
 
 /// [`load_csv`], keeping the values of the selected columns only.
 pub fn load_csv_columns(spec: &CsvSpec, columns: &Columns) -> Result<Table, LoadError> {
-    let total = std::fs::metadata(&spec.path).map(|m| m.len()).unwrap_or(0);
+    let file = File::open(&spec.path).map_err(|e| io_error(spec, &e))?;
+    load_file(spec, &file, columns, &ReadLimits::none())
+}
+
+/// [`load_csv_columns`] from a file already opened (and checked, see
+/// [`crate::files`]) for `spec.path`, within `limits`. Every byte is read
+/// through `file`.
+pub fn load_file(
+    spec: &CsvSpec,
+    file: &File,
+    columns: &Columns,
+    limits: &ReadLimits,
+) -> Result<Table, LoadError> {
+    let total = file.metadata().map(|m| m.len()).unwrap_or(0);
     let _task = crate::progress::Task::begin(&spec.display_name, total);
-    let (loader, _) = read(spec, columns, None)?;
+    let (loader, _) = read(spec, file, columns, None, limits)?;
     loader.finish()
 }
 
@@ -168,7 +219,19 @@ pub struct Probe {
 /// Read the header and up to `rows` records. Errors in that part of the file
 /// are reported as [`load_csv`] reports them.
 pub fn probe(spec: &CsvSpec, columns: &Columns, rows: usize) -> Result<Probe, LoadError> {
-    let (loader, data_start) = read(spec, columns, Some(rows))?;
+    let file = File::open(&spec.path).map_err(|e| io_error(spec, &e))?;
+    probe_file(spec, &file, columns, rows, &ReadLimits::none())
+}
+
+/// [`probe`] from a file already opened for `spec.path`, within `limits`.
+pub fn probe_file(
+    spec: &CsvSpec,
+    file: &File,
+    columns: &Columns,
+    rows: usize,
+    limits: &ReadLimits,
+) -> Result<Probe, LoadError> {
+    let (loader, data_start) = read(spec, file, columns, Some(rows), limits)?;
     let types = loader
         .columns
         .iter()
@@ -190,13 +253,14 @@ pub fn probe(spec: &CsvSpec, columns: &Columns, rows: usize) -> Result<Probe, Lo
 /// Returns the loader and the file offset where the data rows start.
 fn read<'s>(
     spec: &'s CsvSpec,
+    file: &File,
     columns: &'s Columns,
     limit: Option<usize>,
+    limits: &'s ReadLimits,
 ) -> Result<(Loader<'s>, u64), LoadError> {
-    let file = File::open(&spec.path).map_err(|e| io_error(spec, &e))?;
-    let (input, bom) = skip_bom(file).map_err(|e| io_error(spec, &e))?;
+    let (input, bom) = skip_bom(ReadAt::new(file, 0)).map_err(|e| io_error(spec, &e))?;
     let mut rdr = reader_builder().from_reader(Tee::new(input));
-    let mut loader = Loader::new(spec, columns);
+    let mut loader = Loader::new(spec, columns, limits);
     let mut record = csv::ByteRecord::new();
     let mut index = 0usize;
     let mut data_start = bom;
@@ -232,21 +296,6 @@ fn read<'s>(
         index += 1;
     }
     Ok((loader, data_start))
-}
-
-/// The CSV dialect of every reader here (RFC 4180, see the module docs).
-pub(crate) fn reader_builder() -> csv::ReaderBuilder {
-    let mut b = csv::ReaderBuilder::new();
-    b.has_headers(false)
-        .flexible(true)
-        .delimiter(b',')
-        .quote(b'"')
-        .double_quote(true)
-        .escape(None)
-        .quoting(true)
-        .trim(csv::Trim::None)
-        .comment(None);
-    b
 }
 
 /// Parse a plain decimal number: an optional sign, digits with an optional
@@ -295,7 +344,7 @@ pub fn parse_number(s: &str) -> Option<f64> {
 }
 
 /// Parse one cell as `ty`; `None` when it does not parse.
-fn parse_as(ty: ColType, s: &str) -> Option<Value> {
+pub(crate) fn parse_as(ty: ColType, s: &str) -> Option<Value> {
     match ty {
         ColType::Text => Some(Value::Text(s.to_owned())),
         ColType::Number => parse_number(s).map(Value::Number),
@@ -314,7 +363,8 @@ fn story(code: &'static str, message: String) -> LoadError {
     }
 }
 
-fn io_error(spec: &CsvSpec, e: &io::Error) -> LoadError {
+/// Why a data file could not be opened or read, as a [`LoadError`].
+pub fn io_error(spec: &CsvSpec, e: &io::Error) -> LoadError {
     let reason = match e.kind() {
         io::ErrorKind::NotFound => "no such file".to_owned(),
         io::ErrorKind::PermissionDenied => "permission denied".to_owned(),
@@ -333,629 +383,6 @@ fn io_error(spec: &CsvSpec, e: &io::Error) -> LoadError {
     )
 }
 
-const BOM: &[u8] = b"\xEF\xBB\xBF";
-
-/// Read the first bytes and drop a UTF-8 byte order mark if present.
-/// A file with its byte order mark (if any) removed.
-type WithoutBom = io::Chain<io::Cursor<Vec<u8>>, File>;
-
-fn skip_bom(mut file: File) -> io::Result<(WithoutBom, u64)> {
-    let mut head = Vec::with_capacity(3);
-    let mut buf = [0u8; 3];
-    while head.len() < 3 {
-        let n = match file.read(&mut buf[..3 - head.len()]) {
-            Ok(n) => n,
-            Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
-            Err(e) => return Err(e),
-        };
-        if n == 0 {
-            break;
-        }
-        head.extend_from_slice(&buf[..n]);
-    }
-    let bom = if head == BOM {
-        head.clear();
-        BOM.len() as u64
-    } else {
-        0
-    };
-    Ok((io::Cursor::new(head).chain(file), bom))
-}
-
-/// A reader that keeps the bytes it passed on since the start of the current
-/// record, so a record's raw text is available for validation and excerpts.
-pub(crate) struct Tee<R> {
-    inner: R,
-    /// Bytes read but not yet reported to the progress display.
-    unreported: u64,
-    /// Raw bytes from offset `base` onwards.
-    buf: Vec<u8>,
-    base: u64,
-}
-
-/// Drop consumed bytes once this many have accumulated (amortised O(1)).
-const DRAIN_AT: usize = 64 * 1024;
-
-impl<R: Read> Tee<R> {
-    pub(crate) fn new(inner: R) -> Self {
-        Tee {
-            inner,
-            unreported: 0,
-            buf: Vec::new(),
-            base: 0,
-        }
-    }
-
-    /// The raw bytes between two stream offsets (empty if out of range).
-    pub(crate) fn window(&self, start: u64, end: u64) -> &[u8] {
-        let a = start.saturating_sub(self.base) as usize;
-        let b = end.saturating_sub(self.base) as usize;
-        self.buf.get(a..b.min(self.buf.len())).unwrap_or(&[])
-    }
-
-    /// Everything before stream offset `end` will not be asked for again.
-    pub(crate) fn consumed(&mut self, end: u64) {
-        let cut = (end.saturating_sub(self.base) as usize).min(self.buf.len());
-        if cut >= DRAIN_AT {
-            self.buf.drain(..cut);
-            self.base += cut as u64;
-        }
-    }
-}
-
-impl<R: Read> Read for Tee<R> {
-    fn read(&mut self, out: &mut [u8]) -> io::Result<usize> {
-        let n = self.inner.read(out)?;
-        self.buf.extend_from_slice(&out[..n]);
-        self.unreported += n as u64;
-        if self.unreported >= crate::progress::STEP || n == 0 {
-            crate::progress::advance(self.unreported);
-            self.unreported = 0;
-        }
-        Ok(n)
-    }
-}
-
-/// The raw text of one record without surrounding line breaks, and the
-/// 1-based file line it starts on.
-pub(crate) struct RawRecord<'a> {
-    pub(crate) bytes: &'a [u8],
-    line: usize,
-}
-
-impl<'a> RawRecord<'a> {
-    pub(crate) fn new(window: &'a [u8], line_at_start: u64) -> Self {
-        // Blank lines skipped before the record belong to its window.
-        let lead = window
-            .iter()
-            .position(|&b| b != b'\r' && b != b'\n')
-            .unwrap_or(window.len());
-        let skipped_lines = window[..lead].iter().filter(|&&b| b == b'\n').count();
-        let mut bytes = &window[lead..];
-        while let [rest @ .., b'\r' | b'\n'] = bytes {
-            bytes = rest;
-        }
-        RawRecord {
-            bytes,
-            line: (line_at_start as usize)
-                .saturating_add(skipped_lines)
-                .max(1),
-        }
-    }
-}
-
-/// A problem found while scanning a record's raw text.
-pub(crate) enum ScanError {
-    /// Text follows the closing quote of field `field`; `at` is its offset.
-    AfterQuote { field: usize, at: usize },
-    /// Field `field` opens a quote at `at` that is never closed.
-    Unterminated { field: usize, at: usize },
-}
-
-/// Split a record's raw text into field spans (quotes included), checking the
-/// RFC 4180 quoting rules chosen in the module docs.
-pub(crate) fn scan_fields(raw: &[u8]) -> Result<Vec<Range<usize>>, ScanError> {
-    let mut fields = Vec::new();
-    let mut i = 0;
-    let n = raw.len();
-    loop {
-        let start = i;
-        if i < n && raw[i] == b'"' {
-            i += 1;
-            loop {
-                match raw[i..].iter().position(|&b| b == b'"') {
-                    None => {
-                        return Err(ScanError::Unterminated {
-                            field: fields.len(),
-                            at: start,
-                        })
-                    }
-                    Some(p) => {
-                        i += p + 1;
-                        if i < n && raw[i] == b'"' {
-                            i += 1;
-                        } else {
-                            break;
-                        }
-                    }
-                }
-            }
-            if i < n && raw[i] != b',' {
-                return Err(ScanError::AfterQuote {
-                    field: fields.len(),
-                    at: i,
-                });
-            }
-        } else {
-            while i < n && raw[i] != b',' {
-                i += 1;
-            }
-        }
-        fields.push(start..i);
-        if i >= n {
-            return Ok(fields);
-        }
-        i += 1;
-    }
-}
-
-/// Span of field `field` in a raw record, or the whole record.
-fn field_span(raw: &[u8], field: usize) -> Range<usize> {
-    match scan_fields(raw) {
-        Ok(spans) => spans.get(field).cloned().unwrap_or(0..raw.len()),
-        Err(_) => 0..raw.len(),
-    }
-}
-
-/// Keep excerpts of huge records (an unclosed quote, say) readable.
-const MAX_EXCERPT: usize = 8 * 1024;
-
-/// A cell's text for a message: control characters escaped, long text cut.
-fn show(s: &str) -> String {
-    let mut out = String::new();
-    for (i, c) in s.chars().enumerate() {
-        if i == 40 {
-            out.push('…');
-            break;
-        }
-        if c.is_control() {
-            out.extend(c.escape_default());
-        } else {
-            out.push(c);
-        }
-    }
-    out
-}
-
-/// "1 field", "2 fields".
-fn count(n: usize, noun: &str) -> String {
-    if n == 1 {
-        format!("1 {noun}")
-    } else {
-        format!("{n} {noun}s")
-    }
-}
-
-/// How a declared type is described under the caret.
-fn expected(ty: ColType) -> &'static str {
-    match ty {
-        ColType::Text => "text",
-        ColType::Number => "not a number",
-        ColType::Date => "not a date (YYYY-MM-DD)",
-        ColType::Month => "not a month (YYYY-MM)",
-        ColType::Year => "not a year (YYYY)",
-    }
-}
-
-/// Inference state of an undeclared column.
-struct Infer {
-    month: bool,
-    date: bool,
-    number: bool,
-    any: bool,
-}
-
-impl Infer {
-    /// The type the cells seen so far suggest (`text` when none was seen).
-    fn ty(&self) -> ColType {
-        match self {
-            Infer { any: false, .. } => ColType::Text,
-            Infer { month: true, .. } => ColType::Month,
-            Infer { date: true, .. } => ColType::Date,
-            Infer { number: true, .. } => ColType::Number,
-            _ => ColType::Text,
-        }
-    }
-}
-
-struct Builder {
-    name: String,
-    /// Whether the column's values are kept (see [`Columns`]).
-    keep: bool,
-    declared: Option<ColType>,
-    infer: Infer,
-    values: Vec<Value>,
-}
-
-struct Loader<'s> {
-    spec: &'s CsvSpec,
-    keep: &'s Columns,
-    columns: Vec<Builder>,
-    /// Data rows read.
-    rows: usize,
-}
-
-impl<'s> Loader<'s> {
-    fn new(spec: &'s CsvSpec, keep: &'s Columns) -> Self {
-        Loader {
-            spec,
-            keep,
-            columns: Vec::new(),
-            rows: 0,
-        }
-    }
-
-    /// A diagnostic located on `span` of a raw record.
-    fn located(
-        &self,
-        code: &'static str,
-        message: String,
-        raw: &RawRecord<'_>,
-        span: Range<usize>,
-        label: &str,
-    ) -> Diagnostic {
-        let bytes = if raw.bytes.len() > MAX_EXCERPT {
-            let from = span.end.min(raw.bytes.len());
-            let cut = raw.bytes[from..]
-                .iter()
-                .position(|&b| b == b'\n' || b == b'\r')
-                .map_or(raw.bytes.len(), |p| from + p);
-            &raw.bytes[..cut]
-        } else {
-            raw.bytes
-        };
-        let (text, span) = match std::str::from_utf8(bytes) {
-            Ok(t) => (t.to_owned(), span),
-            Err(_) => {
-                let at = |o: usize| String::from_utf8_lossy(&bytes[..o.min(bytes.len())]).len();
-                (
-                    String::from_utf8_lossy(bytes).into_owned(),
-                    at(span.start)..at(span.end),
-                )
-            }
-        };
-        let source: Arc<Source> = Source::excerpt(&self.spec.display_name, text, raw.line);
-        Diagnostic::error(code, message).at(&source, span, label)
-    }
-
-    fn check_quotes(&self, index: usize, raw: &RawRecord<'_>) -> Result<(), LoadError> {
-        if !raw.bytes.contains(&b'"') {
-            return Ok(());
-        }
-        let what = if index == 0 {
-            "the header".to_owned()
-        } else {
-            format!("row {index}")
-        };
-        match scan_fields(raw.bytes) {
-            Ok(_) => Ok(()),
-            Err(ScanError::AfterQuote { field, at }) => {
-                let end = raw.bytes[at..]
-                    .iter()
-                    .position(|&b| b == b',')
-                    .map_or(raw.bytes.len(), |p| at + p);
-                Err(LoadError::Csv(
-                    self.located(
-                        "bad-quote",
-                        format!(
-                            "{what}, field {}: text after the closing quote of a quoted field",
-                            field + 1
-                        ),
-                        raw,
-                        at..end,
-                        "expected a comma or the end of the line here",
-                    )
-                    .help(
-                        "quote the whole field and double any quote inside it, \
-                         e.g. `\"abc\"\"d\"` for the text abc\"d",
-                    ),
-                ))
-            }
-            Err(ScanError::Unterminated { field, at }) => Err(LoadError::Csv(
-                self.located(
-                    "bad-quote",
-                    format!(
-                        "{what}, field {}: this quoted field is never closed",
-                        field + 1
-                    ),
-                    raw,
-                    at..at + 1,
-                    "opening quote without a closing quote",
-                )
-                .note("the quoted field runs to the end of the file")
-                .help(
-                    "add the closing quote, or double the quote (`\"\"`) if it is part of the text",
-                ),
-            )),
-        }
-    }
-
-    fn record(
-        &mut self,
-        index: usize,
-        record: &csv::ByteRecord,
-        raw: &RawRecord<'_>,
-    ) -> Result<(), LoadError> {
-        self.check_quotes(index, raw)?;
-        if index == 0 {
-            return self.header(record, raw);
-        }
-        let n = self.columns.len();
-        if record.len() != n {
-            let m = record.len();
-            let spans = scan_fields(raw.bytes).unwrap_or_default();
-            let (span, label) = if m > n {
-                let start = spans.get(n).map_or(0, |s| s.start);
-                (
-                    start..raw.bytes.len(),
-                    format!("{} extra", count(m - n, "field")),
-                )
-            } else {
-                let end = raw.bytes.len();
-                (end..end, format!("expected {n} fields, found {m}"))
-            };
-            let mut d = self.located(
-                "ragged-row",
-                format!(
-                    "row {index} has {}, but the header has {n}",
-                    count(m, "field")
-                ),
-                raw,
-                span,
-                &label,
-            );
-            d = if m > n && raw.bytes.ends_with(b",") {
-                d.help("a comma at the end of a line adds an empty field; remove it")
-            } else {
-                d.help(
-                    "every row needs one field per header column; quote fields that contain commas",
-                )
-            };
-            return Err(LoadError::Csv(d));
-        }
-        for (j, cell) in record.iter().enumerate() {
-            let text = match std::str::from_utf8(cell) {
-                Ok(t) => t,
-                Err(_) => {
-                    let name = &self.columns[j].name;
-                    return Err(LoadError::Csv(
-                        self.located(
-                            "bad-encoding",
-                            format!("row {index}, column `{name}` is not valid UTF-8 text"),
-                            raw,
-                            field_span(raw.bytes, j),
-                            "invalid UTF-8",
-                        )
-                        .help("save the data file as UTF-8"),
-                    ));
-                }
-            };
-            let col = &self.columns[j];
-            if !col.keep && col.declared.is_none() {
-                continue;
-            }
-            let value = if self.spec.missing.iter().any(|m| m == text) {
-                Value::Missing
-            } else {
-                let col = &mut self.columns[j];
-                match col.declared {
-                    Some(ty) => match parse_as(ty, text) {
-                        Some(v) => v,
-                        None => return Err(self.bad_value(index, j, ty, text, raw)),
-                    },
-                    None => {
-                        let inf = &mut col.infer;
-                        inf.any = true;
-                        inf.month = inf.month && parse_month(text).is_some();
-                        inf.date = inf.date && parse_date(text).is_some();
-                        inf.number = inf.number && parse_number(text).is_some();
-                        Value::Text(text.to_owned())
-                    }
-                }
-            };
-            if self.columns[j].keep {
-                self.columns[j].values.push(value);
-            }
-        }
-        self.rows += 1;
-        Ok(())
-    }
-
-    fn bad_value(
-        &self,
-        index: usize,
-        j: usize,
-        ty: ColType,
-        text: &str,
-        raw: &RawRecord<'_>,
-    ) -> LoadError {
-        let name = &self.columns[j].name;
-        let mut d = self.located(
-            "bad-value",
-            format!(
-                "column `{name}` is declared {}, but row {index} holds `{}`",
-                ty.name(),
-                show(text)
-            ),
-            raw,
-            field_span(raw.bytes, j),
-            expected(ty),
-        );
-        d = if text.trim() != text && parse_as(ty, text.trim()).is_some() {
-            d.note("spaces are part of a CSV field, so the value is not read as trimmed")
-                .help(format!(
-                    "remove the spaces around `{}` in the data file",
-                    show(text.trim())
-                ))
-        } else {
-            d.help(format!(
-                "declare `{name}` as text, or add `{}` to the missing-value tokens",
-                show(text)
-            ))
-        };
-        LoadError::Csv(d)
-    }
-
-    fn header(&mut self, record: &csv::ByteRecord, raw: &RawRecord<'_>) -> Result<(), LoadError> {
-        let mut names: Vec<String> = Vec::with_capacity(record.len());
-        for (j, cell) in record.iter().enumerate() {
-            let Ok(name) = std::str::from_utf8(cell) else {
-                return Err(LoadError::Csv(
-                    self.located(
-                        "bad-encoding",
-                        format!("header field {} is not valid UTF-8 text", j + 1),
-                        raw,
-                        field_span(raw.bytes, j),
-                        "invalid UTF-8",
-                    )
-                    .help("save the data file as UTF-8"),
-                ));
-            };
-            if name.is_empty() {
-                return Err(LoadError::Csv(
-                    self.located(
-                        "bad-header",
-                        format!("header field {} has no name", j + 1),
-                        raw,
-                        field_span(raw.bytes, j),
-                        "empty column name",
-                    )
-                    .help("give every column a name in the first line of the file"),
-                ));
-            }
-            if let Some(first) = names.iter().position(|n| n == name) {
-                let d = self.located(
-                    "bad-header",
-                    format!("column `{name}` appears twice in the header"),
-                    raw,
-                    field_span(raw.bytes, j),
-                    "second column with this name",
-                );
-                let first_span = field_span(raw.bytes, first);
-                let src = d.primary.as_ref().map(|p| Arc::clone(&p.source));
-                let d = match src {
-                    Some(s) => d.also(&s, first_span, "first column with this name"),
-                    None => d,
-                };
-                return Err(LoadError::Csv(
-                    d.help("rename one of the columns so every header name is unique"),
-                ));
-            }
-            names.push(name.to_owned());
-        }
-        for (i, (want, _)) in self.spec.declared.iter().enumerate() {
-            if !names.iter().any(|n| n == want) {
-                let help = closest(want, names.iter().map(String::as_str))
-                    .map(|c| format!("did you mean `{c}`?"));
-                return Err(LoadError::Story {
-                    code: "unknown-column",
-                    message: format!(
-                        "column `{want}` is not in the header of `{}` (columns: {})",
-                        self.spec.display_name,
-                        names
-                            .iter()
-                            .map(|n| format!("`{n}`"))
-                            .collect::<Vec<_>>()
-                            .join(", ")
-                    ),
-                    help,
-                    declared: Some(i),
-                });
-            }
-        }
-        self.columns = names
-            .into_iter()
-            .map(|name| {
-                let declared = self
-                    .spec
-                    .declared
-                    .iter()
-                    .find(|(n, _)| *n == name)
-                    .map(|(_, t)| *t);
-                Builder {
-                    keep: self.keep.keeps(&name),
-                    name,
-                    declared,
-                    infer: Infer {
-                        month: true,
-                        date: true,
-                        number: true,
-                        any: false,
-                    },
-                    values: Vec::new(),
-                }
-            })
-            .collect();
-        Ok(())
-    }
-
-    fn finish(self) -> Result<Table, LoadError> {
-        let name = &self.spec.display_name;
-        if self.columns.is_empty() {
-            return Err(LoadError::Story {
-                code: "empty-data",
-                message: format!("data file `{name}` is empty"),
-                help: Some("the first line must be a header naming the columns".into()),
-                declared: None,
-            });
-        }
-        if self.rows == 0 {
-            return Err(LoadError::Story {
-                code: "empty-data",
-                message: format!("data file `{name}` has a header but no data rows"),
-                help: None,
-                declared: None,
-            });
-        }
-        let rows = self.rows;
-        let columns = self
-            .columns
-            .into_iter()
-            .map(|b| {
-                let ty = match b.declared {
-                    Some(t) => t,
-                    None if !b.keep => ColType::Text,
-                    None => b.infer.ty(),
-                };
-                if !b.keep {
-                    return Column {
-                        name: b.name,
-                        ty,
-                        values: vec![Value::Missing; rows],
-                    };
-                }
-                let values = if b.declared.is_none() && ty != ColType::Text {
-                    b.values
-                        .into_iter()
-                        .map(|v| match v {
-                            Value::Text(s) => parse_as(ty, &s).unwrap_or(Value::Missing),
-                            other => other,
-                        })
-                        .collect()
-                } else {
-                    b.values
-                };
-                Column {
-                    name: b.name,
-                    ty,
-                    values,
-                }
-            })
-            .collect();
-        Ok(Table { columns })
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -972,36 +399,5 @@ mod tests {
         ] {
             assert_eq!(parse_number(bad), None, "{bad}");
         }
-    }
-
-    #[test]
-    fn scanner_spans_and_quote_rules() {
-        let spans = scan_fields(b"a,\"b,\"\"c\",,d").ok().unwrap_or_default();
-        assert_eq!(spans, vec![0..1, 2..9, 10..10, 11..12]);
-        assert!(matches!(
-            scan_fields(b"x,\"abc\"d,e"),
-            Err(ScanError::AfterQuote { field: 1, at: 7 })
-        ));
-        assert!(matches!(
-            scan_fields(b"x,\"abc"),
-            Err(ScanError::Unterminated { field: 1, at: 2 })
-        ));
-        // A bare quote inside an unquoted field is data (documented choice).
-        assert_eq!(scan_fields(b"aa\"a,b").ok().map(|s| s.len()), Some(2));
-        let empty = scan_fields(b"").ok().unwrap_or_default();
-        assert_eq!((empty.len(), empty.first()), (1, Some(&(0..0))));
-    }
-
-    #[test]
-    fn raw_record_skips_blank_lines_and_terminators() {
-        let r = RawRecord::new(b"\r\n\nabc,d\r\n", 4);
-        assert_eq!(r.bytes, b"abc,d");
-        assert_eq!(r.line, 6);
-    }
-
-    #[test]
-    fn show_escapes_and_cuts() {
-        assert_eq!(show("a\nb"), "a\\nb");
-        assert_eq!(show(&"x".repeat(50)).chars().count(), 41);
     }
 }

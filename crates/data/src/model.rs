@@ -2,6 +2,8 @@
 
 use serde::{Deserialize, Serialize};
 
+pub use crate::column::{Cells, Values};
+
 /// A column's type, declared in the story or inferred from the CSV.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
@@ -91,10 +93,12 @@ impl Cell<'_> {
 pub struct Column {
     pub name: String,
     pub ty: ColType,
-    pub values: Vec<Value>,
+    /// The cells, held by kind (see [`crate::column`]).
+    pub values: Values,
 }
 
-/// A table: columns of equal length, rows in a stable order.
+/// A table: columns of equal length, rows in a stable order. Cloning a
+/// table does not copy its cells (see [`crate::column`]).
 #[derive(Clone, Debug, Default, PartialEq, Serialize)]
 pub struct Table {
     pub columns: Vec<Column>,

@@ -45,6 +45,8 @@ pub enum StatError {
     /// An input or the result is infinite or not a number (overflow), or an
     /// intermediate sum of squares underflowed to zero.
     NotFinite,
+    /// The exact sum is beyond the largest number (about ±1.8 × 10^308).
+    Overflow,
     /// The value to rank is not among the values it is ranked in.
     NotAmong,
     /// A line fit or correlation was given different numbers of x and y
@@ -76,6 +78,9 @@ impl StatError {
             StatError::BadPeriod => "a growth rate needs a period longer than zero".to_owned(),
             StatError::NotFinite => {
                 "the numbers are too large or too small to compute with".to_owned()
+            }
+            StatError::Overflow => {
+                "the sum is beyond the largest number (about ±1.8 × 10^308)".to_owned()
             }
             StatError::NotAmong => "the value is not among the values it is ranked in".to_owned(),
             StatError::LengthMismatch { xs, ys } => {
@@ -135,8 +140,18 @@ pub fn total(xs: impl IntoIterator<Item = f64>) -> f64 {
 ///
 /// An empty list is `Err(Empty)`, not 0 (see the module notes: a claim over
 /// no rows must not pass silently).
+///
+/// The sum is exact, so a total that is a number again after a running
+/// sum would have overflowed (`1.7e308 + 1.7e308 - 1.7e308`) is given, and
+/// one beyond the largest number is `Err(Overflow)`, as a view's `sum`
+/// reports it.
 pub fn sum(xs: &[f64]) -> Result<f64, StatError> {
-    finite(exact_sum(checked(xs)?.iter().copied()))
+    let total = exact_sum(checked(xs)?.iter().copied());
+    if total.is_finite() {
+        Ok(total)
+    } else {
+        Err(StatError::Overflow)
+    }
 }
 
 /// Arithmetic mean x̄ = (Σ xᵢ) / n.
@@ -492,7 +507,10 @@ mod tests {
         // 0.1 ten times: naive gives 0.9999999999999999.
         assert_eq!(sum(&[0.1; 10]), Ok(1.0));
         assert_eq!(sum(&[]), Err(StatError::Empty));
-        assert_eq!(sum(&[f64::MAX, f64::MAX]), Err(StatError::NotFinite));
+        assert_eq!(sum(&[f64::MAX, f64::MAX]), Err(StatError::Overflow));
+        assert_eq!(sum(&[-f64::MAX, -1e308]), Err(StatError::Overflow));
+        // the running sum overflows, the total does not (exact: 1.7e308)
+        assert_eq!(sum(&[1.7e308, 1.7e308, -1.7e308]), Ok(1.7e308));
         assert_eq!(sum(&[1.0, f64::NAN]), Err(StatError::NotFinite));
         assert_eq!(sum(&[f64::INFINITY]), Err(StatError::NotFinite));
     }

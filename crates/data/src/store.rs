@@ -4,7 +4,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::model::{ColType, Column, Table, Value};
+use crate::model::{Cell, ColType, Column, Table, Value};
 
 /// One cell.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -41,14 +41,14 @@ impl From<&Table> for StoredTable {
                     ty: c.ty,
                     values: c
                         .values
-                        .iter()
+                        .cells()
                         .map(|v| match v {
-                            Value::Missing => Stored::M,
-                            Value::Number(x) => Stored::N(x.to_bits()),
-                            Value::Text(s) => Stored::T(s.clone()),
-                            Value::Date(d) => Stored::D(*d),
-                            Value::Month(m) => Stored::Mo(*m),
-                            Value::Year(y) => Stored::Y(*y),
+                            Cell::Missing => Stored::M,
+                            Cell::Number(x) => Stored::N(x.to_bits()),
+                            Cell::Text(s) => Stored::T(s.to_owned()),
+                            Cell::Date(d) => Stored::D(d),
+                            Cell::Month(m) => Stored::Mo(m),
+                            Cell::Year(y) => Stored::Y(y),
                         })
                         .collect(),
                 })
@@ -102,7 +102,8 @@ mod tests {
                     Value::Month(24_300),
                     Value::Date(-3),
                     Value::Year(2020),
-                ],
+                ]
+                .into(),
             }],
         };
         let json = serde_json::to_string(&StoredTable::from(&t)).unwrap();

@@ -31,24 +31,34 @@
 //! # Errors
 //!
 //! Any problem in the file — a ragged row, a quoting error, invalid UTF-8, a
-//! declared column's cell that does not parse, or a cell that contradicts the
+//! declared column's cell that does not parse, a cell the story reads that
+//! holds a control character or is longer than the text limit, more kept
+//! rows than the row limit allows, or a cell that contradicts the
 //! type the first records suggested for an undeclared column — makes the
 //! scan return [`ScanFailure::Fallback`]. The caller then loads the file with
 //! [`crate::load_csv_columns`], which reports the located diagnostic (with
 //! the CSV's own line number) or, for a wrong type guess, gives the table
-//! with the right types.
+//! with the right types. The reader checks the same cells as the loader
+//! (those of the kept and the declared columns), so both report the same
+//! first problem.
+//!
+//! # One descriptor
+//!
+//! Every thread reads the one file descriptor the caller opened and checked
+//! (see [`crate::files`]), with positional reads; the path is never opened
+//! again.
 
-use std::collections::HashMap;
 use std::fs::File;
-use std::hash::{BuildHasherDefault, Hasher};
-use std::io::{Read, Seek, SeekFrom};
+use std::io::Read;
 use std::sync::atomic::{AtomicUsize, Ordering as AtomicOrdering};
 use std::sync::Mutex;
 
-use crate::load::{parse_number, reader_builder, scan_fields, CsvSpec, LoadError, RawRecord, Tee};
-use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Value};
+use crate::files::ReadAt;
+use crate::load::{parse_number, CsvSpec, LoadError, ReadLimits};
+use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Value, Values};
+use crate::record::{forbidden_char, reader_builder, scan_fields, too_long, RawRecord, Tee};
 use crate::time::{parse_date, parse_month, parse_year};
-use crate::view::{compare_cells, truth, Sum};
+use crate::view::{compare_cells, encode_key, sum_value, truth, FxMap, Sum};
 
 /// The streamable prefix of one view.
 #[derive(Clone, Debug, PartialEq)]
@@ -64,6 +74,11 @@ pub struct StreamView {
 #[derive(Clone, Debug)]
 pub struct ScanInput<'a> {
     pub spec: &'a CsvSpec,
+    /// The file, opened (and checked) by the caller: every thread reads it
+    /// through this descriptor.
+    pub file: &'a File,
+    /// The text and row limits (the same as the loader's).
+    pub limits: &'a ReadLimits,
     /// Every header column in file order, with the type its cells are read
     /// as (for columns that are not parsed, any type: their cells are not
     /// read).
@@ -115,7 +130,9 @@ pub enum ScanFailure {
 
 /// Scan the file once and evaluate every view's streamable prefix.
 pub fn scan(input: &ScanInput<'_>, chunks: &Chunks) -> Result<ScanOutput, ScanFailure> {
-    let len = std::fs::metadata(&input.spec.path)
+    let len = input
+        .file
+        .metadata()
         .map_err(|e| ScanFailure::Io(Box::new(io_failure(input.spec, &e))))?
         .len();
     let (offsets, threads) = match chunks {
@@ -176,8 +193,6 @@ fn chunk_starts(
 ) -> Result<Vec<u64>, ScanFailure> {
     offsets.sort_unstable();
     let mut starts = vec![input.data_start];
-    let mut file = File::open(&input.spec.path)
-        .map_err(|e| ScanFailure::Io(Box::new(io_failure(input.spec, &e))))?;
     let mut buf = vec![0u8; 64 * 1024];
     for o in offsets {
         let from = o.max(input.data_start + 1) - 1;
@@ -185,8 +200,7 @@ fn chunk_starts(
         if from < last || from >= len {
             continue;
         }
-        file.seek(SeekFrom::Start(from))
-            .map_err(|e| ScanFailure::Io(Box::new(io_failure(input.spec, &e))))?;
+        let mut file = ReadAt::new(input.file, from);
         let mut at = from;
         let found = loop {
             let n = file
@@ -231,54 +245,8 @@ struct ChunkOut {
 #[derive(Clone, Debug)]
 enum ViewState {
     Groups(Groups),
-    Rows(Vec<Vec<Value>>),
+    Rows(Vec<Values>),
 }
-
-/// A fast hash for group keys (the multiply-rotate of the Fx hash used in
-/// rustc). Keys come from the user's own file, so hash flooding is no
-/// concern; iteration order never reaches the output (groups are kept in a
-/// vector in order of first appearance).
-#[derive(Default, Clone, Copy)]
-struct Fx(u64);
-
-impl Hasher for Fx {
-    fn write(&mut self, bytes: &[u8]) {
-        const K: u64 = 0x51_7c_c1_b7_27_22_0a_95;
-        let mut chunks = bytes.chunks_exact(8);
-        for c in &mut chunks {
-            let mut w = [0u8; 8];
-            w.copy_from_slice(c);
-            self.0 = (self.0.rotate_left(5) ^ u64::from_le_bytes(w)).wrapping_mul(K);
-        }
-        // the last 1 to 7 bytes as one word (with their count in the top
-        // byte), not byte by byte: byte-wise rounds let keys that differ
-        // only in their last digits collide outright
-        let tail = chunks.remainder();
-        if !tail.is_empty() {
-            let mut w = [0u8; 8];
-            w[..tail.len()].copy_from_slice(tail);
-            w[7] = tail.len() as u8;
-            self.0 = (self.0.rotate_left(5) ^ u64::from_le_bytes(w)).wrapping_mul(K);
-        }
-    }
-
-    /// The multiply leaves the low bits depending only on the low bits of
-    /// the input, and the table picks buckets by the low bits: keys that
-    /// differ in a few digits (`cat0000001`, `cat0000002`, …) piled into few
-    /// buckets. The final mix (the 64-bit finaliser of MurmurHash3,
-    /// Appleby) spreads every input bit over every output bit.
-    fn finish(&self) -> u64 {
-        let mut h = self.0;
-        h ^= h >> 33;
-        h = h.wrapping_mul(0xff51_afd7_ed55_8ccd);
-        h ^= h >> 33;
-        h = h.wrapping_mul(0xc4ce_b9fe_1a85_ec53);
-        h ^= h >> 33;
-        h
-    }
-}
-
-type FxMap<K, V> = HashMap<K, V, BuildHasherDefault<Fx>>;
 
 #[derive(Clone, Debug, Default)]
 struct Groups {
@@ -381,8 +349,8 @@ impl Acc {
         };
         match self {
             Acc::Rows(n) | Acc::Count(n) => Value::Number(n as f64),
-            Acc::Sum(s) => number(s.total()),
-            Acc::Mean(s) => number(s.total().map(|x| x / s.count() as f64)),
+            Acc::Sum(s) => sum_value(s.total()),
+            Acc::Mean(s) => number(s.mean()),
             Acc::Median(mut xs) => {
                 xs.sort_by(f64::total_cmp);
                 let m = xs.len();
@@ -415,36 +383,6 @@ fn extreme(best: &mut Option<Value>, c: Cell<'_>, want: std::cmp::Ordering) {
     };
     if replace {
         *best = Some(c.to_value());
-    }
-}
-
-/// Append a key cell to `buf` so that two rows get equal bytes exactly when
-/// the table engine puts them in one group (`-0` and `0` are one key).
-fn encode_key(buf: &mut Vec<u8>, c: Cell<'_>) {
-    match c {
-        Cell::Missing => buf.push(0),
-        Cell::Number(x) => {
-            buf.push(1);
-            let bits = if x == 0.0 { 0 } else { x.to_bits() };
-            buf.extend_from_slice(&bits.to_le_bytes());
-        }
-        Cell::Text(s) => {
-            buf.push(2);
-            buf.extend_from_slice(&(s.len() as u64).to_le_bytes());
-            buf.extend_from_slice(s.as_bytes());
-        }
-        Cell::Date(d) => {
-            buf.push(3);
-            buf.extend_from_slice(&d.to_le_bytes());
-        }
-        Cell::Month(m) => {
-            buf.push(4);
-            buf.extend_from_slice(&m.to_le_bytes());
-        }
-        Cell::Year(y) => {
-            buf.push(5);
-            buf.extend_from_slice(&y.to_le_bytes());
-        }
     }
 }
 
@@ -499,6 +437,76 @@ impl Groups {
     }
 }
 
+/// Add one record (its cells by column) to the state of every view whose
+/// `keep`s it passes; `false` when a view then holds more kept rows than
+/// the limits allow, or its state does not fit its step.
+fn add_record(
+    input: &ScanInput<'_>,
+    cells: &[Cell<'_>],
+    states: &mut [ViewState],
+    kept: &mut [usize],
+    keybuf: &mut Vec<u8>,
+) -> bool {
+    let row = |c: usize| cells.get(c).copied().unwrap_or(Cell::Missing);
+    for (vi, (view, state)) in input.views.iter().zip(states).enumerate() {
+        if !view.keeps.iter().all(|k| truth(&row, k)) {
+            continue;
+        }
+        match (state, &view.group) {
+            (ViewState::Groups(g), Some((keys, aggs))) => {
+                keybuf.clear();
+                for &k in keys {
+                    encode_key(keybuf, row(k));
+                }
+                let slot = g.slot(
+                    keybuf,
+                    || keys.iter().map(|&k| row(k).to_value()).collect(),
+                    aggs,
+                );
+                for (acc, a) in g.accs[slot].iter_mut().zip(aggs) {
+                    acc.add(a.column.map_or(Cell::Missing, row));
+                }
+            }
+            (ViewState::Rows(cols), _) => {
+                for (j, col) in cols.iter_mut().enumerate() {
+                    let keep = input.keep_values.get(j).copied().unwrap_or(false);
+                    col.push_cell(if keep { row(j) } else { Cell::Missing });
+                }
+                let n = kept.get_mut(vi).map_or(0, |n| {
+                    *n += 1;
+                    *n
+                });
+                let over_limit = input.limits.rows.is_some_and(|m| n > m);
+                if over_limit || (n.is_multiple_of(8192) && !rows_fit(input.limits, cols)) {
+                    return false;
+                }
+            }
+            _ => return false,
+        }
+    }
+    true
+}
+
+/// Do the cells the loader checks (`check`) hold no character XML cannot
+/// carry, and none over the text limit?
+fn cells_allowed(limits: &ReadLimits, record: &csv::ByteRecord, check: &[usize]) -> bool {
+    check.iter().all(|&j| {
+        let Some(Ok(text)) = record.get(j).map(std::str::from_utf8) else {
+            return true;
+        };
+        forbidden_char(text).is_none() && too_long(text, limits.text).is_none()
+    })
+}
+
+/// Do the kept rows held in `cols` fit the row limit (or, without one, the
+/// memory allowed)?
+fn rows_fit(limits: &ReadLimits, cols: &[Values]) -> bool {
+    match limits.rows {
+        Some(max) => cols.first().map_or(0, Values::len) <= max,
+        None => cols.iter().map(Values::heap_bytes).sum::<usize>() as u64 <= limits.memory,
+    }
+}
+
 /// Reusable per-record storage for cells borrowed from the current record.
 fn recycle<'a>(mut v: Vec<Cell<'_>>) -> Vec<Cell<'a>> {
     v.clear();
@@ -517,20 +525,22 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
             .iter()
             .map(|v| match &v.group {
                 Some((keys, aggs)) => ViewState::Groups(Groups::new(keys, aggs)),
-                None => ViewState::Rows(vec![Vec::new(); ncols]),
+                None => ViewState::Rows(vec![Values::new(); ncols]),
             })
             .collect(),
         first_text: vec![None; ncols],
     };
-    let Ok(mut file) = File::open(&input.spec.path) else {
-        return out;
-    };
-    if file.seek(SeekFrom::Start(start)).is_err() {
-        return out;
-    }
     let mut rdr = reader_builder()
         .buffer_capacity(256 * 1024)
-        .from_reader(Tee::new(file));
+        .from_reader(Tee::new(ReadAt::new(input.file, start)));
+    // the cells the loader checks: those of kept and declared columns
+    let check: Vec<usize> = (0..ncols)
+        .filter(|&j| {
+            input.parse.get(j).copied().unwrap_or(false)
+                || input.keep_values.get(j).copied().unwrap_or(false)
+        })
+        .collect();
+    let mut kept = vec![0usize; input.views.len()];
     let mut record = csv::ByteRecord::new();
     let mut target = 0usize;
     let mut scratch: Vec<Cell<'static>> = Vec::with_capacity(ncols);
@@ -576,6 +586,9 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
         {
             return out;
         }
+        if !cells_allowed(input.limits, &record, &check) {
+            return out;
+        }
         let mut cells = recycle(std::mem::take(&mut scratch));
         cells.resize(ncols, Cell::Missing);
         for &(j, ty) in &parsed {
@@ -604,40 +617,8 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
             }
             cells[j] = c;
         }
-        {
-            let row = |c: usize| cells.get(c).copied().unwrap_or(Cell::Missing);
-            for (view, state) in input.views.iter().zip(&mut out.views) {
-                if !view.keeps.iter().all(|k| truth(&row, k)) {
-                    continue;
-                }
-                match (state, &view.group) {
-                    (ViewState::Groups(g), Some((keys, aggs))) => {
-                        keybuf.clear();
-                        for &k in keys {
-                            encode_key(&mut keybuf, row(k));
-                        }
-                        let slot = g.slot(
-                            &keybuf,
-                            || keys.iter().map(|&k| row(k).to_value()).collect(),
-                            aggs,
-                        );
-                        for (acc, a) in g.accs[slot].iter_mut().zip(aggs) {
-                            acc.add(a.column.map_or(Cell::Missing, row));
-                        }
-                    }
-                    (ViewState::Rows(cols), _) => {
-                        for (j, col) in cols.iter_mut().enumerate() {
-                            let keep = input.keep_values.get(j).copied().unwrap_or(false);
-                            col.push(if keep {
-                                row(j).to_value()
-                            } else {
-                                Value::Missing
-                            });
-                        }
-                    }
-                    _ => return out,
-                }
-            }
+        if !add_record(input, &cells, &mut out.views, &mut kept, &mut keybuf) {
+            return out;
         }
         scratch = recycle(cells);
         out.rows += 1;
@@ -690,7 +671,7 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
                         (ViewState::Groups(x), ViewState::Groups(y)) => x.merge(y),
                         (ViewState::Rows(x), ViewState::Rows(y)) => {
                             for (cx, cy) in x.iter_mut().zip(y) {
-                                cx.extend(cy);
+                                cx.extend_from(&cy);
                             }
                         }
                         _ => return Err(ScanFailure::Fallback),
@@ -715,6 +696,14 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
         }
     }
     let out = acc.ok_or(ScanFailure::Fallback)?;
+    // the kept rows of all chunks together
+    for state in &out.views {
+        if let ViewState::Rows(cols) = state {
+            if !rows_fit(input.limits, cols) {
+                return Err(ScanFailure::Fallback);
+            }
+        }
+    }
     let tables = input
         .views
         .iter()
@@ -751,7 +740,7 @@ fn finish(input: &ScanInput<'_>, view: &StreamView, state: ViewState) -> Table {
                 .map(|&k| Column {
                     name: schema.get(k).map_or(String::new(), |c| c.0.clone()),
                     ty: schema.get(k).map_or(ColType::Text, |c| c.1),
-                    values: Vec::with_capacity(g.keys.len()),
+                    values: Values::new(),
                 })
                 .collect();
             for key in &g.keys {
@@ -773,7 +762,7 @@ fn finish(input: &ScanInput<'_>, view: &StreamView, state: ViewState) -> Table {
                     Column {
                         name: a.name.clone(),
                         ty,
-                        values: Vec::with_capacity(g.accs.len()),
+                        values: Values::new(),
                     }
                 })
                 .collect();
@@ -797,30 +786,5 @@ fn finish(input: &ScanInput<'_>, view: &StreamView, state: ViewState) -> Table {
                 .collect(),
         },
         (ViewState::Groups(_), None) => Table::default(),
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn group_key_hashes_spread_over_the_low_bits() {
-        use std::hash::Hasher as _;
-        // 4,096 keys that differ only in their last digits: no two hashes
-        // are equal (byte-wise rounds gave only 3,118 distinct hashes), and
-        // the low 12 bits fill about 1 - 1/e of 4,096 buckets (2,589 for a
-        // random function; without the final mix they filled 1,024)
-        let hashes: Vec<u64> = (0..4096)
-            .map(|i| {
-                let mut h = Fx::default();
-                h.write(format!("cat{i:07}").as_bytes());
-                h.finish()
-            })
-            .collect();
-        let distinct: std::collections::BTreeSet<u64> = hashes.iter().copied().collect();
-        assert_eq!(distinct.len(), 4096);
-        let buckets: std::collections::BTreeSet<u64> = hashes.iter().map(|h| h & 4095).collect();
-        assert!(buckets.len() > 2450, "{} buckets", buckets.len());
     }
 }

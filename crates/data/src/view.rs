@@ -21,15 +21,25 @@
 //! * `v in (a, b, ...)` is true when `v` equals one of the values (the same
 //!   equality as `=`); a missing `v` is never in the list.
 //!
+//! # Sums too large for a number
+//!
+//! A sum whose exact total is beyond the largest double (±1.8e308) is
+//! written as an infinite number, the one place the engine makes one, so
+//! the planner can report it where the sum was asked for ([`overflow`]);
+//! a mean is always within its values' range and is computed without
+//! overflowing (see [`Sum`]).
+//!
 //! # Steps
 //!
 //! See [`run_view`] and the doc of each step's function.
 
 use std::cmp::Ordering;
 use std::collections::HashMap;
+use std::hash::BuildHasherDefault;
 
+use crate::hash::Fx;
 use crate::model::{
-    AggFn, Aggregate, ArithOp, Cell, CmpOp, ColType, Column, Expr, Step, Table, Value,
+    AggFn, Aggregate, ArithOp, Cell, CmpOp, ColType, Column, Expr, Step, Table, Value, Values,
 };
 
 /// Run `steps` in order over `input` and return the resulting table.
@@ -43,6 +53,7 @@ use crate::model::{
 /// * `Sort { keys }`: stable sort; see [`sort`].
 /// * `Top { key, by, n, rest }`: see [`top`].
 pub fn run_view(input: &Table, steps: &[Step]) -> Table {
+    // a clone shares the cells (see `crate::column`)
     let mut table = input.clone();
     for step in steps {
         table = match step {
@@ -56,19 +67,46 @@ pub fn run_view(input: &Table, steps: &[Step]) -> Table {
     table
 }
 
+/// A number too large for a double that a step wrote (a sum, see the module
+/// docs): the first one, row by row.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Overflow {
+    /// Index of the output column that holds it.
+    pub column: usize,
+    /// Its row in the output.
+    pub row: usize,
+    /// `+1.0` or `-1.0`: the direction of the overflow.
+    pub sign: f64,
+}
+
+/// The first sum in `t` that was too large for a number, if any.
+pub fn overflow(t: &Table) -> Option<Overflow> {
+    for row in 0..row_count(t) {
+        for (column, c) in t.columns.iter().enumerate() {
+            if let Cell::Number(x) = c.values.cell(row) {
+                if x.is_infinite() {
+                    return Some(Overflow {
+                        column,
+                        row,
+                        sign: x.signum(),
+                    });
+                }
+            }
+        }
+    }
+    None
+}
+
 /// Number of rows of a table (the length of its first column).
 fn row_count(t: &Table) -> usize {
     t.columns.first().map_or(0, |c| c.values.len())
 }
 
-static MISSING: Value = Value::Missing;
-
 /// The cell at `(col, row)`, or `Missing` when out of range.
-fn cell(t: &Table, col: usize, row: usize) -> &Value {
+fn cell(t: &Table, col: usize, row: usize) -> Cell<'_> {
     t.columns
         .get(col)
-        .and_then(|c| c.values.get(row))
-        .unwrap_or(&MISSING)
+        .map_or(Cell::Missing, |c| c.values.cell(row))
 }
 
 /// A table with the same columns holding the given rows, in that order.
@@ -80,21 +118,13 @@ fn take_rows(t: &Table, rows: &[usize]) -> Table {
             .map(|c| Column {
                 name: c.name.clone(),
                 ty: c.ty,
-                values: rows
-                    .iter()
-                    .map(|&r| c.values.get(r).cloned().unwrap_or(Value::Missing))
-                    .collect(),
+                values: c.values.gather(rows),
             })
             .collect(),
     }
 }
 
 // ---------------------------------------------------------------- expressions
-
-/// The numeric value of a number (or year) cell.
-fn as_number(v: &Value) -> Option<f64> {
-    num_of(v.cell())
-}
 
 /// The numeric value of a number (or year) cell.
 fn num_of(c: Cell<'_>) -> Option<f64> {
@@ -162,11 +192,6 @@ pub(crate) fn eval<'a, R: Fn(usize) -> Cell<'a>>(row: &R, e: &'a Expr) -> Cell<'
     }
 }
 
-/// Order of two non-missing values of comparable kinds; `None` otherwise.
-fn compare(a: &Value, b: &Value) -> Option<Ordering> {
-    compare_cells(a.cell(), b.cell())
-}
-
 /// Order of two non-missing cells of comparable kinds; `None` otherwise.
 pub(crate) fn compare_cells(a: Cell<'_>, b: Cell<'_>) -> Option<Ordering> {
     match (a, b) {
@@ -218,7 +243,7 @@ pub(crate) fn truth<'a, R: Fn(usize) -> Cell<'a>>(row: &R, e: &'a Expr) -> bool 
 
 /// The cells of row `row` of `t`, for [`eval`] and [`truth`].
 fn row_of<'a>(t: &'a Table, row: usize) -> impl Fn(usize) -> Cell<'a> + 'a {
-    move |c| cell(t, c, row).cell()
+    move |c| cell(t, c, row)
 }
 
 // ---------------------------------------------------------------------- steps
@@ -235,8 +260,8 @@ fn keep(t: &Table, pred: &Expr) -> Table {
 fn derive(mut t: Table, name: &str, expr: &Expr) -> Table {
     let values = (0..row_count(&t))
         .map(|r| match num_of(eval(&row_of(&t, r), expr)) {
-            Some(x) => Value::Number(x),
-            None => Value::Missing,
+            Some(x) => Cell::Number(x),
+            None => Cell::Missing,
         })
         .collect();
     t.columns.push(Column {
@@ -247,6 +272,12 @@ fn derive(mut t: Table, name: &str, expr: &Expr) -> Table {
     t
 }
 
+/// 2^1020: below it, two terms and a partial cannot overflow when added.
+const BIG: f64 = 1.123_558_209_288_947_4e307;
+/// 2^-64 and 2^64: the scale of a sum kept scaled.
+const DOWN: f64 = 5.421_010_862_427_522e-20;
+const UP: f64 = 18_446_744_073_709_551_616.0;
+
 /// An exact floating-point sum: Shewchuk's non-overlapping partials
 /// (J. R. Shewchuk, "Adaptive Precision Floating-Point Arithmetic and Fast
 /// Robust Geometric Predicates", 1997), rounded once at the end to the
@@ -254,20 +285,43 @@ fn derive(mut t: Table, name: &str, expr: &Expr) -> Table {
 /// the correctly rounded sum of the terms, so it does not depend on their
 /// order or on how they are split into parts and merged: the streaming
 /// reader sums file chunks in parallel and gets the same bits as one pass.
-/// (Sums whose partial totals overflow past ±1.8e308 come out missing.)
+///
+/// Partials could overflow on the way to a total that is a number again
+/// (`1.7e308 + 1.7e308 - 1.7e308`), and a mean of huge values is a number
+/// although their sum is not. So once a term or a partial reaches 2^1020,
+/// the sum goes on scaled by 2^-64 (exact: a power of two; only terms
+/// below about 1e-300 lose their lowest bits then, far below the rounding
+/// of a total that large). [`Sum::total`] is then infinite only when the
+/// total really is beyond the largest double, and [`Sum::mean`] never is.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub(crate) struct Sum {
     partials: Vec<f64>,
     n: usize,
+    /// The partials hold the sum times 2^-64.
+    scaled: bool,
 }
 
 impl Sum {
     pub(crate) fn add(&mut self, x: f64) {
         self.n += 1;
-        self.push(x);
+        self.push(x, false);
     }
 
-    fn push(&mut self, mut x: f64) {
+    /// Add `x` (already scaled by 2^-64 when `x_scaled`).
+    fn push(&mut self, x: f64, x_scaled: bool) {
+        if !self.scaled
+            && (x_scaled || x.abs() >= BIG || self.partials.last().is_some_and(|p| p.abs() >= BIG))
+        {
+            for p in &mut self.partials {
+                *p *= DOWN;
+            }
+            self.scaled = true;
+        }
+        let mut x = if self.scaled && !x_scaled {
+            x * DOWN
+        } else {
+            x
+        };
         let mut i = 0;
         for j in 0..self.partials.len() {
             let mut y = self.partials[j];
@@ -289,23 +343,16 @@ impl Sum {
     /// Add every term of `other` (exactly).
     pub(crate) fn merge(&mut self, other: &Sum) {
         for &p in &other.partials {
-            self.push(p);
+            self.push(p, other.scaled);
         }
         self.n += other.n;
     }
 
-    /// Number of terms added.
-    pub(crate) fn count(&self) -> usize {
-        self.n
-    }
-
-    pub(crate) fn total(&self) -> Option<f64> {
-        if self.n == 0 {
-            return None;
-        }
+    /// The partials rounded once to the nearest double (as `math.fsum`).
+    fn rounded(&self) -> f64 {
         let p = &self.partials;
         let Some(mut k) = p.len().checked_sub(1) else {
-            return Some(0.0);
+            return 0.0;
         };
         let mut hi = p[k];
         let mut lo = 0.0;
@@ -330,42 +377,89 @@ impl Sum {
             }
         }
         // A sum of zeros is +0, never -0.
-        Some(hi + 0.0)
+        hi + 0.0
+    }
+
+    /// The sum; infinite when it is beyond the largest double; `None`
+    /// without terms.
+    pub(crate) fn total(&self) -> Option<f64> {
+        if self.n == 0 {
+            return None;
+        }
+        let t = self.rounded();
+        Some(if self.scaled { t * UP } else { t })
+    }
+
+    /// The mean of the terms; `None` without terms.
+    pub(crate) fn mean(&self) -> Option<f64> {
+        if self.n == 0 {
+            return None;
+        }
+        let m = self.rounded() / self.n as f64;
+        Some(if self.scaled { m * UP } else { m })
     }
 }
 
-/// A hashable form of a cell, for grouping. `-0.0` and `0.0` are one key.
-#[derive(Clone, Debug, PartialEq, Eq, Hash)]
-enum Key {
-    Missing,
-    Number(u64),
-    Text(String),
-    Date(i32),
-    Month(i32),
-    Year(i32),
-}
-
-fn key_of(v: &Value) -> Key {
-    match v {
-        Value::Missing => Key::Missing,
-        Value::Number(x) => Key::Number(if *x == 0.0 { 0 } else { x.to_bits() }),
-        Value::Text(s) => Key::Text(s.clone()),
-        Value::Date(d) => Key::Date(*d),
-        Value::Month(m) => Key::Month(*m),
-        Value::Year(y) => Key::Year(*y),
+/// A sum as a cell value: missing without terms; an infinite number when
+/// too large (see the module docs).
+pub(crate) fn sum_value(total: Option<f64>) -> Value {
+    match total {
+        None => Value::Missing,
+        Some(x) if x.is_nan() => Value::Number(f64::INFINITY),
+        Some(x) => Value::Number(x),
     }
 }
+
+/// Append a key cell to `buf` so that two rows get equal bytes exactly when
+/// they belong to one group (`-0` and `0` are one key).
+pub(crate) fn encode_key(buf: &mut Vec<u8>, c: Cell<'_>) {
+    match c {
+        Cell::Missing => buf.push(0),
+        Cell::Number(x) => {
+            buf.push(1);
+            let bits = if x == 0.0 { 0 } else { x.to_bits() };
+            buf.extend_from_slice(&bits.to_le_bytes());
+        }
+        Cell::Text(s) => {
+            buf.push(2);
+            buf.extend_from_slice(&(s.len() as u64).to_le_bytes());
+            buf.extend_from_slice(s.as_bytes());
+        }
+        Cell::Date(d) => {
+            buf.push(3);
+            buf.extend_from_slice(&d.to_le_bytes());
+        }
+        Cell::Month(m) => {
+            buf.push(4);
+            buf.extend_from_slice(&m.to_le_bytes());
+        }
+        Cell::Year(y) => {
+            buf.push(5);
+            buf.extend_from_slice(&y.to_le_bytes());
+        }
+    }
+}
+
+pub(crate) type FxMap<K, V> = HashMap<K, V, BuildHasherDefault<Fx>>;
 
 /// Partition `rows` by the cells of `cols`, in order of first appearance.
 fn partition(t: &Table, cols: &[usize], rows: impl Iterator<Item = usize>) -> Vec<Vec<usize>> {
-    let mut index: HashMap<Vec<Key>, usize> = HashMap::new();
+    let mut index: FxMap<Box<[u8]>, usize> = FxMap::default();
     let mut groups: Vec<Vec<usize>> = Vec::new();
+    let mut key = Vec::new();
     for r in rows {
-        let k: Vec<Key> = cols.iter().map(|&c| key_of(cell(t, c, r))).collect();
-        let g = *index.entry(k).or_insert_with(|| {
-            groups.push(Vec::new());
-            groups.len() - 1
-        });
+        key.clear();
+        for &c in cols {
+            encode_key(&mut key, cell(t, c, r));
+        }
+        let g = match index.get(key.as_slice()) {
+            Some(&g) => g,
+            None => {
+                index.insert(key.as_slice().into(), groups.len());
+                groups.push(Vec::new());
+                groups.len() - 1
+            }
+        };
         groups[g].push(r);
     }
     groups
@@ -384,8 +478,9 @@ fn partition(t: &Table, cols: &[usize], rows: impl Iterator<Item = usize>) -> Ve
 ///   row) and give `Missing` when the group has no non-missing cell.
 /// * `count` of a column counts its non-missing cells; `count` of rows counts
 ///   rows. Both are numbers and never missing.
-/// * `sum` uses compensated summation; `mean` is that sum over the count;
-///   `median` of an even count is the mean of the two middle values.
+/// * `sum` is exact (see [`Sum`]; infinite when too large for a number);
+///   `mean` is that sum over the count; `median` of an even count is the
+///   mean of the two middle values.
 /// * `min`/`max`/`first`/`last` keep the input column's type and work on any
 ///   type (texts by byte order, times by date).
 fn group(t: &Table, keys: &[usize], aggregates: &[Aggregate]) -> Table {
@@ -396,22 +491,23 @@ fn group(t: &Table, keys: &[usize], aggregates: &[Aggregate]) -> Table {
         partition(t, keys, 0..n)
     };
     let firsts: Vec<usize> = groups.iter().filter_map(|g| g.first().copied()).collect();
-    let mut out = take_rows(
-        &Table {
-            columns: keys
-                .iter()
-                .map(|&k| match t.columns.get(k) {
-                    Some(c) => c.clone(),
-                    None => Column {
-                        name: String::new(),
-                        ty: ColType::Text,
-                        values: Vec::new(),
-                    },
-                })
-                .collect(),
-        },
-        &firsts,
-    );
+    let mut out = Table {
+        columns: keys
+            .iter()
+            .map(|&k| match t.columns.get(k) {
+                Some(c) => Column {
+                    name: c.name.clone(),
+                    ty: c.ty,
+                    values: c.values.gather(&firsts),
+                },
+                None => Column {
+                    name: String::new(),
+                    ty: ColType::Text,
+                    values: Values::missing(firsts.len()),
+                },
+            })
+            .collect(),
+    };
     for agg in aggregates {
         let in_ty = agg
             .column
@@ -446,17 +542,14 @@ fn aggregate(t: &Table, func: AggFn, column: Option<usize>, rows: &[usize]) -> V
     let cells = rows
         .iter()
         .map(|&r| cell(t, col, r))
-        .filter(|v| !matches!(v, Value::Missing));
+        .filter(|v| !matches!(v, Cell::Missing));
     let number = |x: Option<f64>| x.map_or(Value::Missing, finite);
     match func {
         AggFn::Count => Value::Number(cells.count() as f64),
-        AggFn::Sum => number(sum_of(cells).total()),
-        AggFn::Mean => {
-            let s = sum_of(cells);
-            number(s.total().map(|x| x / s.n as f64))
-        }
+        AggFn::Sum => sum_value(sum_of(cells).total()),
+        AggFn::Mean => number(sum_of(cells).mean()),
         AggFn::Median => {
-            let mut xs: Vec<f64> = cells.filter_map(as_number).collect();
+            let mut xs: Vec<f64> = cells.filter_map(num_of).collect();
             xs.sort_by(f64::total_cmp);
             let m = xs.len();
             number(match m {
@@ -469,18 +562,18 @@ fn aggregate(t: &Table, func: AggFn, column: Option<usize>, rows: &[usize]) -> V
         AggFn::Max => extreme(cells, Ordering::Greater),
         AggFn::First => {
             let mut cells = cells;
-            cells.next().cloned().unwrap_or(Value::Missing)
+            cells.next().map_or(Value::Missing, Cell::to_value)
         }
         AggFn::Last => {
             let mut cells = cells;
-            cells.next_back().cloned().unwrap_or(Value::Missing)
+            cells.next_back().map_or(Value::Missing, Cell::to_value)
         }
     }
 }
 
-fn sum_of<'a>(cells: impl Iterator<Item = &'a Value>) -> Sum {
+fn sum_of<'a>(cells: impl Iterator<Item = Cell<'a>>) -> Sum {
     let mut s = Sum::default();
-    for x in cells.filter_map(as_number) {
+    for x in cells.filter_map(num_of) {
         s.add(x);
     }
     s
@@ -488,15 +581,15 @@ fn sum_of<'a>(cells: impl Iterator<Item = &'a Value>) -> Sum {
 
 /// The first value that is strictly more `want` than every other (the first
 /// of equal extremes wins).
-fn extreme<'a>(cells: impl Iterator<Item = &'a Value>, want: Ordering) -> Value {
-    let mut best: Option<&Value> = None;
+fn extreme<'a>(cells: impl Iterator<Item = Cell<'a>>, want: Ordering) -> Value {
+    let mut best: Option<Cell<'a>> = None;
     for v in cells {
         best = match best {
-            Some(b) if compare(v, b) != Some(want) => Some(b),
+            Some(b) if compare_cells(v, b) != Some(want) => Some(b),
             _ => Some(v),
         };
     }
-    best.cloned().unwrap_or(Value::Missing)
+    best.map_or(Value::Missing, Cell::to_value)
 }
 
 /// Stable sort by `keys` in order (`true` = descending).
@@ -510,11 +603,11 @@ fn sort(t: &Table, keys: &[(usize, bool)]) -> Table {
         for &(col, desc) in keys {
             let (x, y) = (cell(t, col, a), cell(t, col, b));
             let o = match (x, y) {
-                (Value::Missing, Value::Missing) => Ordering::Equal,
-                (Value::Missing, _) => Ordering::Greater,
-                (_, Value::Missing) => Ordering::Less,
+                (Cell::Missing, Cell::Missing) => Ordering::Equal,
+                (Cell::Missing, _) => Ordering::Greater,
+                (_, Cell::Missing) => Ordering::Less,
                 _ => {
-                    let o = compare(x, y).unwrap_or(Ordering::Equal);
+                    let o = compare_cells(x, y).unwrap_or(Ordering::Equal);
                     if desc {
                         o.reverse()
                     } else {
@@ -534,7 +627,7 @@ fn sort(t: &Table, keys: &[(usize, bool)]) -> Table {
 /// Keep the `n` largest categories of column `key`, folding the rest.
 ///
 /// * Categories are the distinct cells of `key` (a missing cell is a category
-///   of its own), ranked by the total of column `by` over their rows (compensated
+///   of its own), ranked by the total of column `by` over their rows (exact
 ///   sum, missing cells skipped; a category whose `by` cells are all missing
 ///   ranks below every other). Ties are broken by first appearance.
 /// * A category whose text already equals `rest` is never kept: it is part of
@@ -544,11 +637,12 @@ fn sort(t: &Table, keys: &[(usize, bool)]) -> Table {
 ///   other row gets `key = rest` (a text), and those rows are folded into one
 ///   row per combination of the table's non-number columns (`key` included),
 ///   in order of first appearance of the combination, summing every number
-///   column (`Missing` when all its cells in the combination are missing).
+///   column (`Missing` when all its cells in the combination are missing;
+///   infinite when too large, as a group's sum).
 ///   The folded rows follow the kept rows.
 fn top(t: &Table, key: usize, by: usize, n: usize, rest: &str) -> Table {
     let rows = row_count(t);
-    let is_rest = |v: &Value| matches!(v, Value::Text(s) if s == rest);
+    let is_rest = |v: Cell<'_>| matches!(v, Cell::Text(s) if s == rest);
     let cats = partition(t, &[key], (0..rows).filter(|&r| !is_rest(cell(t, key, r))));
     if cats.len() <= n {
         return t.clone();
@@ -576,24 +670,21 @@ fn top(t: &Table, key: usize, by: usize, n: usize, rest: &str) -> Table {
 
     // Fold the rest: relabel, then group by every non-number column.
     let mut relabeled = take_rows(t, &(0..rows).filter(|&r| !kept_row[r]).collect::<Vec<_>>());
+    let folded = row_count(&relabeled);
     if let Some(c) = relabeled.columns.get_mut(key) {
-        for v in &mut c.values {
-            *v = Value::Text(rest.to_owned());
-        }
+        c.values = (0..folded).map(|_| Cell::Text(rest)).collect();
     }
     let dims: Vec<usize> = (0..relabeled.columns.len())
         .filter(|&c| c == key || relabeled.columns[c].ty != ColType::Number)
         .collect();
-    let folds = partition(&relabeled, &dims, 0..row_count(&relabeled));
+    let folds = partition(&relabeled, &dims, 0..folded);
     for rs in &folds {
         for (c, col) in out.columns.iter_mut().enumerate() {
             let v = if dims.contains(&c) {
                 rs.first()
-                    .map_or(Value::Missing, |&r| cell(&relabeled, c, r).clone())
+                    .map_or(Value::Missing, |&r| cell(&relabeled, c, r).to_value())
             } else {
-                sum_of(rs.iter().map(|&r| cell(&relabeled, c, r)))
-                    .total()
-                    .map_or(Value::Missing, finite)
+                sum_value(sum_of(rs.iter().map(|&r| cell(&relabeled, c, r))).total())
             };
             col.values.push(v);
         }
@@ -625,7 +716,7 @@ mod tests {
         Column {
             name: name.to_owned(),
             ty,
-            values,
+            values: values.into(),
         }
     }
     fn c(i: usize) -> Box<Expr> {
@@ -635,7 +726,7 @@ mod tests {
         Box::new(Expr::Lit(v))
     }
     fn values(t: &Table, i: usize) -> Vec<Value> {
-        t.columns[i].values.clone()
+        t.columns[i].values.to_vec()
     }
 
     /// region, month, riders (with a missing rider count), fare
@@ -928,7 +1019,7 @@ mod tests {
         assert_eq!(
             out.columns
                 .iter()
-                .map(|c| c.values[0].clone())
+                .map(|c| c.values.value(0))
                 .collect::<Vec<_>>(),
             vec![text("a"), M, M, M, M, num(0.0)]
         );
@@ -1082,6 +1173,70 @@ mod tests {
     }
 
     #[test]
+    fn sums_too_large_are_infinite_and_means_are_not() {
+        // two cells of 1.7e308: the sum (3.4e308) is beyond the largest
+        // double (about 1.798e308, IEEE 754 binary64), their mean is not
+        let t = Table {
+            columns: vec![
+                col(
+                    "k",
+                    ColType::Text,
+                    ["a", "a", "b", "c", "c", "c"].map(text).to_vec(),
+                ),
+                col(
+                    "x",
+                    ColType::Number,
+                    [1.7e308, 1.7e308, 1.0, 1.7e308, 1.7e308, -1.7e308]
+                        .map(num)
+                        .to_vec(),
+                ),
+            ],
+        };
+        let out = run_view(
+            &t,
+            &[Step::Group {
+                keys: vec![0],
+                aggregates: vec![
+                    agg("s", AggFn::Sum, Some(1)),
+                    agg("m", AggFn::Mean, Some(1)),
+                ],
+            }],
+        );
+        assert_eq!(
+            values(&out, 1),
+            vec![num(f64::INFINITY), num(1.0), num(1.7e308)]
+        );
+        // (1.7e308 + 1.7e308 - 1.7e308) / 3, rounded once more
+        assert_eq!(values(&out, 2)[..2], [num(1.7e308), num(1.0)]);
+        assert!((values(&out, 2)[2] == num(1.7e308 / 3.0)));
+        assert_eq!(
+            overflow(&out),
+            Some(Overflow {
+                column: 1,
+                row: 0,
+                sign: 1.0
+            })
+        );
+        assert_eq!(overflow(&t), None);
+        // a sum merged from parts, scaled or not, is the one-pass sum
+        let xs = [1e300, 1.7e308, -3.0, 1.7e308, -1.7e308, 2.5, -1e300];
+        let mut one = Sum::default();
+        xs.iter().for_each(|&x| one.add(x));
+        for cut in 0..=xs.len() {
+            let (mut a, mut b) = (Sum::default(), Sum::default());
+            xs[..cut].iter().for_each(|&x| a.add(x));
+            xs[cut..].iter().for_each(|&x| b.add(x));
+            a.merge(&b);
+            assert_eq!(a.total(), one.total(), "{cut}");
+        }
+        assert_eq!(one.total(), Some(1.7e308 - 0.5));
+        // small sums are untouched by the scaling
+        let mut small = Sum::default();
+        [0.1, 0.2, 0.3].iter().for_each(|&x| small.add(x));
+        assert_eq!(small.total(), Some(0.6));
+    }
+
+    #[test]
     fn sort_is_stable_with_missing_last_both_ways() {
         let t = sample();
         let asc = run_view(
@@ -1194,7 +1349,9 @@ mod tests {
         // With W in the other month, the rest folds into one row per month,
         // in order of first appearance of the combination.
         let mut t = sample();
-        t.columns[1].values[5] = Value::Month(24_288);
+        let mut months = t.columns[1].values.to_vec();
+        months[5] = Value::Month(24_288);
+        t.columns[1].values = months.into();
         let out = run_view(
             &t,
             &[Step::Top {

@@ -4,7 +4,8 @@
 mod common;
 
 use common::{describe, load_err, spec_for};
-use crescendo_data::{load_csv, ColType, CsvSpec, LoadError};
+use crescendo_data::load::{load_file, ReadLimits};
+use crescendo_data::{load_csv, ColType, Columns, CsvSpec, LoadError, Table};
 
 #[test]
 fn missing_file_is_a_story_error_naming_the_file() {
@@ -254,4 +255,121 @@ fn hostile_inputs_fail_cleanly_or_load() {
     // The quoted header name keeps its quote and line break.
     let t = load_csv(&spec_for("h.csv", b"\"a\"\"\nb\",c\n1,2")).expect("loads");
     assert_eq!(t.columns[0].name, "a\"\nb");
+}
+
+/// Load with limits through an opened file, as the planner does.
+#[allow(clippy::result_large_err)] // LoadError holds a Diagnostic, as the crate specifies
+fn load_limited(name: &str, bytes: &[u8], limits: &ReadLimits) -> Result<Table, LoadError> {
+    let spec = spec_for(name, bytes);
+    let file = std::fs::File::open(&spec.path).expect("open");
+    load_file(&spec, &file, &Columns::All, limits)
+}
+
+#[test]
+fn control_characters_in_cells_are_located_and_shown_as_pictures() {
+    // XML 1.0 (W3C, fifth edition, section 2.2 "Characters"): Char is #x9,
+    // #xA, #xD, #x20-#xD7FF, #xE000-#xFFFD, #x10000-#x10FFFF; an SVG holding
+    // anything else is not XML.
+    for (bytes, code_point, line) in [
+        (&b"name,n\nA\x01B,1\n"[..], "U+0001", 2),
+        (&b"name,n\nok,1\n\"x\x0b\",2\n"[..], "U+000B", 3),
+        (&b"name,n\nok,1\nnull\x00,2\n"[..], "U+0000", 3),
+        (&b"name,n\n\x1b[2J,1\n"[..], "U+001B", 2),
+        ("name,n\nA\u{FFFE},1\n".as_bytes(), "U+FFFE", 2),
+        ("name,n\nA\u{FFFF},1\n".as_bytes(), "U+FFFF", 2),
+        (&b"na\x07me,n\nA,1\n"[..], "U+0007", 1),
+    ] {
+        let err = load_limited("ctl.csv", bytes, &ReadLimits::none()).expect_err("refused");
+        assert_eq!(err.code(), "bad-character", "{err}");
+        let text = describe(&err);
+        assert!(text.contains(code_point), "{text}");
+        assert!(text.contains(&format!("ctl.csv:{line}:")), "{text}");
+        // the excerpt shows a picture of the character, never the raw byte
+        assert!(
+            !text.chars().any(|c| c.is_control() && c != '\n'),
+            "{text:?}"
+        );
+    }
+    // tab, line breaks in quotes, and DEL (allowed in XML) are data
+    let t = load_limited(
+        "ok.csv",
+        b"name,n\n\"a\tb\nc\",1\nd\x7f,2\n",
+        &ReadLimits::none(),
+    )
+    .expect("loads");
+    assert_eq!(t.columns[0].values.value(0), common::text("a\tb\nc"));
+}
+
+#[test]
+fn text_over_the_limit_is_located_on_its_cell() {
+    let limits = ReadLimits {
+        text: 5,
+        ..ReadLimits::none()
+    };
+    let mut bytes = b"name,n\nshort,1\n".to_vec();
+    bytes.extend(std::iter::repeat_n(b'y', 20_000));
+    bytes.extend(b",2\n");
+    let err = load_limited("long.csv", &bytes, &limits).expect_err("too long");
+    assert_eq!(err.code(), "limit");
+    let text = describe(&err);
+    assert!(
+        text.contains(
+            "row 2, column `name` has 20000 characters, more than the limit of 5 (--max-text)"
+        ),
+        "{text}"
+    );
+    assert!(text.contains("long.csv:3:1"), "{text}");
+    // the excerpt of a 20,000-character line is cut
+    assert!(text.len() < 2_000, "{} bytes", text.len());
+    // characters, not bytes
+    assert!(load_limited("e.csv", "name\néééée\n".as_bytes(), &limits).is_ok());
+}
+
+#[test]
+fn rows_beyond_the_limit_or_the_memory_allowed_stop_the_load() {
+    let mut bytes = b"name,n\n".to_vec();
+    for i in 0..20_000 {
+        bytes.extend(format!("r{i},{i}\n").as_bytes());
+    }
+    let rows = ReadLimits {
+        rows: Some(19_999),
+        ..ReadLimits::none()
+    };
+    let err = load_limited("rows.csv", &bytes, &rows).expect_err("too many rows");
+    assert_eq!(err.code(), "limit");
+    assert!(
+        err.to_string()
+            .contains("has more rows than the limit of 19999 (--max-rows)"),
+        "{err}"
+    );
+    let exact = ReadLimits {
+        rows: Some(20_000),
+        ..ReadLimits::none()
+    };
+    assert!(load_limited("rows.csv", &bytes, &exact).is_ok());
+    // without a row limit, the rows may take the memory allowed: 20,000
+    // rows of a text and a number column take about 300 kB
+    let memory = ReadLimits {
+        memory: 100_000,
+        ..ReadLimits::none()
+    };
+    let err = load_limited("mem.csv", &bytes, &memory).expect_err("too large");
+    let message = err.to_string();
+    assert!(
+        message.contains("more rows than fit in memory"),
+        "{message}"
+    );
+    assert!(message.contains("--max-rows"), "{message}");
+    let LoadError::Story {
+        help: Some(help), ..
+    } = &err
+    else {
+        panic!("{err:?}")
+    };
+    assert!(help.contains("--max-rows N"), "{help}");
+    let roomy = ReadLimits {
+        memory: 10_000_000,
+        ..ReadLimits::none()
+    };
+    assert!(load_limited("mem.csv", &bytes, &roomy).is_ok());
 }

@@ -82,9 +82,7 @@ fn check_against_json(out: &Table, groups: &Json, nkeys: usize) {
     let mut checked = 0;
     for (r, g) in groups.iter().enumerate() {
         // Same groups in the same order (first appearance).
-        let key: Vec<Value> = (0..nkeys)
-            .map(|k| out.columns[k].values[r].clone())
-            .collect();
+        let key: Vec<Value> = (0..nkeys).map(|k| out.columns[k].values.value(r)).collect();
         let want: Vec<Value> = g["key"]
             .as_array()
             .expect("key")
@@ -92,11 +90,11 @@ fn check_against_json(out: &Table, groups: &Json, nkeys: usize) {
             .map(|k| Value::Text(k.as_str().expect("text key").to_owned()))
             .collect();
         assert_eq!(key, want);
-        let rows = &out.columns[col(out, "rows")].values[r];
+        let rows = &out.columns[col(out, "rows")].values.value(r);
         assert_eq!(*rows, Value::Number(g["rows"].as_f64().expect("rows")));
         for m in MEASURES {
             for (s, _) in STATS {
-                let got = &out.columns[col(out, &format!("{m}.{s}"))].values[r];
+                let got = &out.columns[col(out, &format!("{m}.{s}"))].values.value(r);
                 let want = g[m][s].as_f64().expect("number in json");
                 match got {
                     Value::Number(x) => {
@@ -139,7 +137,7 @@ fn loads_with_expected_shape_and_types() {
         t.columns[col(&t, name)]
             .values
             .iter()
-            .filter(|v| **v == Value::Missing)
+            .filter(|v| *v == Value::Missing)
             .count()
     };
     assert_eq!(missing("sex"), 11);
@@ -153,8 +151,14 @@ fn loads_with_expected_shape_and_types() {
     }
     assert_eq!(expected()["missing_sex"].as_u64(), Some(11));
     // shared/refs §8: data row 4 is missing every measurement.
-    assert_eq!(t.columns[col(&t, "body_mass_g")].values[3], Value::Missing);
-    assert_eq!(t.columns[col(&t, "year")].values[3], Value::Number(2007.0));
+    assert_eq!(
+        t.columns[col(&t, "body_mass_g")].values.value(3),
+        Value::Missing
+    );
+    assert_eq!(
+        t.columns[col(&t, "year")].values.value(3),
+        Value::Number(2007.0)
+    );
 }
 
 #[test]
@@ -168,9 +172,9 @@ fn group_by_species_matches_python_statistics() {
         let r = out.columns[0]
             .values
             .iter()
-            .position(|v| *v == Value::Text(species.into()))
+            .position(|v| v == Value::Text(species.into()))
             .expect("species present");
-        match out.columns[col(&out, column)].values[r] {
+        match out.columns[col(&out, column)].values.value(r) {
             Value::Number(x) => x,
             ref other => panic!("{other:?}"),
         }
@@ -199,11 +203,11 @@ fn group_by_species_and_island_matches_python_statistics() {
     // Adelie–Torgersen 52, Chinstrap–Dream 68, Gentoo–Biscoe 124.
     let mut counts: Vec<(String, String, f64)> = (0..out.columns[0].values.len())
         .map(|r| {
-            let s = |c: usize| match &out.columns[c].values[r] {
+            let s = |c: usize| match &out.columns[c].values.value(r) {
                 Value::Text(s) => s.clone(),
                 other => panic!("{other:?}"),
             };
-            let Value::Number(n) = out.columns[2].values[r] else {
+            let Value::Number(n) = out.columns[2].values.value(r) else {
                 panic!("rows is a number")
             };
             (s(0), s(1), n)
@@ -269,7 +273,7 @@ fn missing_is_handled_per_column_not_per_row() {
         ],
     );
     assert_eq!(out.columns[0].values, vec![Value::Number(146.0)]);
-    let Value::Number(mean) = out.columns[1].values[0] else {
+    let Value::Number(mean) = out.columns[1].values.value(0) else {
         panic!("mean is a number")
     };
     assert!((mean - 3706.164384).abs() < 1e-6, "{mean}");
@@ -324,7 +328,7 @@ fn keep_top_sort_on_penguins() {
     for (r, w) in want.iter().enumerate() {
         let text = |i: usize| Value::Text(w[i].as_str().expect("text").to_owned());
         let num = |i: usize| Value::Number(w[i].as_f64().expect("number"));
-        let got: Vec<Value> = out.columns.iter().map(|c| c.values[r].clone()).collect();
+        let got: Vec<Value> = out.columns.iter().map(|c| c.values.value(r)).collect();
         assert_eq!(got, vec![text(0), text(1), num(2), num(3)], "row {r}");
     }
     // The JSON is not trivially shaped: two islands folded, one NA skipped.

@@ -7,6 +7,7 @@ mod common;
 
 use std::path::PathBuf;
 
+use crescendo_data::load::ReadLimits;
 use crescendo_data::stream::{scan, Chunks, ScanFailure, ScanInput, ScanOutput, StreamView};
 use crescendo_data::{
     load_csv, probe, run_view, AggFn, Aggregate, CmpOp, ColType, Columns, CsvSpec, Expr, Step,
@@ -70,25 +71,7 @@ fn scan_all(
     views: &[StreamView],
     chunks: &Chunks,
 ) -> Result<ScanOutput, ScanFailure> {
-    let p = probe(spec, &Columns::All, 1000).expect("probe");
-    let schema: Vec<(String, ColType)> = p
-        .names
-        .iter()
-        .zip(&p.types)
-        .map(|(n, t)| (n.clone(), t.unwrap_or(ColType::Text)))
-        .collect();
-    let all = vec![true; schema.len()];
-    scan(
-        &ScanInput {
-            spec,
-            schema: &schema,
-            parse: &all,
-            keep_values: &all,
-            data_start: p.data_start,
-            views,
-        },
-        chunks,
-    )
+    scan_limited(spec, views, chunks, &ReadLimits::none())
 }
 
 /// Debug text compares `-0` and `0` (and every float) exactly.
@@ -319,4 +302,193 @@ fn problems_fall_back_to_the_loader() {
         scan_all(&spec, &views, &Chunks::At(vec![9000], 2)),
         Err(ScanFailure::Fallback)
     ));
+}
+
+/// [`scan_all`] within `limits`.
+fn scan_limited(
+    spec: &CsvSpec,
+    views: &[StreamView],
+    chunks: &Chunks,
+    limits: &ReadLimits,
+) -> Result<ScanOutput, ScanFailure> {
+    let p = probe(spec, &Columns::All, 1000).expect("probe");
+    let schema: Vec<(String, ColType)> = p
+        .names
+        .iter()
+        .zip(&p.types)
+        .map(|(n, t)| (n.clone(), t.unwrap_or(ColType::Text)))
+        .collect();
+    let all = vec![true; schema.len()];
+    let file = std::fs::File::open(&spec.path).expect("open");
+    scan(
+        &ScanInput {
+            spec,
+            file: &file,
+            limits,
+            schema: &schema,
+            parse: &all,
+            keep_values: &all,
+            data_start: p.data_start,
+            views,
+        },
+        chunks,
+    )
+}
+
+#[test]
+fn cells_the_loader_refuses_fall_back_to_it_whatever_the_chunks() {
+    // a control character, and a text over the limit, after the probed
+    // records: the scan gives up, so the loader reports the located error
+    let views = random_views();
+    let mut good = b"key,note,x,when\n".to_vec();
+    for i in 0..1200 {
+        good.extend_from_slice(format!("a,b,{i},2024-01\n").as_bytes());
+    }
+    let limits = ReadLimits {
+        text: 50,
+        ..ReadLimits::none()
+    };
+    let long = format!("a,{},1,2024-01\n", "z".repeat(51));
+    for bad in [&b"a,b\x01c,1,2024-01\n"[..], long.as_bytes()] {
+        let mut bytes = good.clone();
+        bytes.extend_from_slice(bad);
+        bytes.extend_from_slice(b"a,b,1,2024-02\n");
+        let spec = common::spec_for("cells.csv", &bytes);
+        let len = bytes.len() as u64;
+        for cuts in [
+            vec![],
+            vec![len / 2],
+            vec![len - 40],
+            vec![len / 3, len - 10],
+        ] {
+            assert!(matches!(
+                scan_limited(&spec, &views, &Chunks::At(cuts, 2), &limits),
+                Err(ScanFailure::Fallback)
+            ));
+        }
+    }
+    // 51 characters pass a limit of 51
+    let mut bytes = good.clone();
+    bytes.extend_from_slice(long.as_bytes());
+    let spec = common::spec_for("fits.csv", &bytes);
+    let fits = ReadLimits {
+        text: 51,
+        ..ReadLimits::none()
+    };
+    assert!(scan_limited(&spec, &views, &Chunks::At(vec![], 2), &fits).is_ok());
+}
+
+#[test]
+fn kept_rows_over_the_row_limit_fall_back() {
+    // a `keep`-only view holds its rows: more than the limit, over all
+    // chunks together, gives up (the loader then names --max-rows)
+    let keep_only = vec![StreamView {
+        keeps: vec![],
+        group: None,
+    }];
+    let mut bytes = b"key,x\n".to_vec();
+    for i in 0..3000 {
+        bytes.extend_from_slice(format!("k{i},{i}\n").as_bytes());
+    }
+    let spec = common::spec_for("kept.csv", &bytes);
+    let len = bytes.len() as u64;
+    let limit = |rows| ReadLimits {
+        rows: Some(rows),
+        ..ReadLimits::none()
+    };
+    for cuts in [vec![], vec![len / 2]] {
+        assert!(matches!(
+            scan_limited(
+                &spec,
+                &keep_only,
+                &Chunks::At(cuts.clone(), 2),
+                &limit(2999)
+            ),
+            Err(ScanFailure::Fallback)
+        ));
+        let out =
+            scan_limited(&spec, &keep_only, &Chunks::At(cuts, 2), &limit(3000)).expect("fits");
+        assert_eq!(out.tables[0].columns[0].values.len(), 3000);
+    }
+}
+
+#[test]
+fn every_thread_reads_the_opened_file_not_the_path() {
+    // open a file, then put another file at its path: the scan (two
+    // threads, several chunks) still reads the file that was opened
+    let mut first = b"key,x\n".to_vec();
+    let mut second = b"key,x\n".to_vec();
+    for i in 0..2000 {
+        first.extend_from_slice(format!("opened,{i}\n").as_bytes());
+        second.extend_from_slice(format!("swapped,{i}\n").as_bytes());
+    }
+    let spec = common::spec_for("opened.csv", &first);
+    let p = probe(&spec, &Columns::All, 1000).expect("probe");
+    let file = std::fs::File::open(&spec.path).expect("open");
+    let other = spec.path.with_extension("other");
+    std::fs::write(&other, &second).expect("write");
+    std::fs::rename(&other, &spec.path).expect("swap");
+    let schema = vec![
+        ("key".to_string(), ColType::Text),
+        ("x".to_string(), ColType::Number),
+    ];
+    let views = vec![StreamView {
+        keeps: vec![],
+        group: Some((vec![0], every_aggregate(&[1]))),
+    }];
+    let len = first.len() as u64;
+    let out = scan(
+        &ScanInput {
+            spec: &spec,
+            file: &file,
+            limits: &ReadLimits::none(),
+            schema: &schema,
+            parse: &[true, true],
+            keep_values: &[true, true],
+            data_start: p.data_start,
+            views: &views,
+        },
+        &Chunks::At(vec![len / 4, len / 2, len * 3 / 4], 2),
+    )
+    .expect("scan");
+    assert_eq!(out.rows, 2000);
+    assert_eq!(
+        out.tables[0].columns[0].values.to_vec(),
+        vec![Value::Text("opened".into())]
+    );
+    // and the whole load too
+    let t = crescendo_data::load::load_file(&spec, &file, &Columns::All, &ReadLimits::none())
+        .expect("loads");
+    assert_eq!(
+        t.columns[0].values.value(1999),
+        Value::Text("opened".into())
+    );
+}
+
+#[test]
+fn an_overflowing_sum_streams_as_it_loads() {
+    // the same infinite sum (too large for a number) and the same finite
+    // mean from the scan, whatever the chunks, and from the table engine
+    let mut bytes = b"key,x\n".to_vec();
+    for i in 0..1500 {
+        let x = if i % 500 == 7 { "1.7e308" } else { "1.5" };
+        bytes.extend_from_slice(format!("k{},{x}\n", i % 2).as_bytes());
+    }
+    let spec = common::spec_for("huge.csv", &bytes);
+    let table = load_csv(&spec).expect("loads");
+    let views = vec![StreamView {
+        keeps: vec![],
+        group: Some((vec![0], every_aggregate(&[1]))),
+    }];
+    let want = run_view(&table, &steps(&views[0]));
+    assert!(crescendo_data::view::overflow(&want).is_some());
+    let len = bytes.len() as u64;
+    for cuts in [vec![], vec![len / 2], vec![len / 5, len / 3, len * 4 / 5]] {
+        let out = scan_all(&spec, &views, &Chunks::At(cuts.clone(), 2)).expect("scan");
+        assert!(
+            same(&out.tables[0], &want),
+            "{cuts:?}\n{:?}\n{want:?}",
+            out.tables[0]
+        );
+    }
 }

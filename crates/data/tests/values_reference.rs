@@ -313,12 +313,13 @@ fn expected() -> Json {
 }
 
 /// The cells of column `name`.
-fn column<'a>(t: &'a Table, name: &str) -> &'a [Value] {
-    &t.columns
+fn column(t: &Table, name: &str) -> Vec<Value> {
+    t.columns
         .iter()
         .find(|c| c.name == name)
         .unwrap_or_else(|| panic!("no column {name}"))
         .values
+        .to_vec()
 }
 
 fn number(v: &Value) -> Option<f64> {

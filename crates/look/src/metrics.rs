@@ -273,25 +273,54 @@ mod tests {
 
     #[test]
     fn ellipsize_gives_what_measuring_every_candidate_gives() {
+        let long = "AVA To Wa, yes. ".repeat(20);
         let texts = [
             "Quarterly revenue grew in every region",
             "AV To Wa Ty  kerning   pairs  \u{2026} and   spaces",
+            "AVAVAVAV To Ty Wa",
+            "Westbrook   pulled away after evening swims began",
             "one",
+            "Q",
             "",
             "   ",
+            "ff fi x\u{301}y",
             "Ünïcödé wörds, çà et là: 12,345.6 — ok",
+            // long, with kerning pairs repeated
+            &long,
         ];
         for text in texts {
             for bold in [false, true] {
-                for max in [0.0, 5.0, 20.0, 33.3, 60.0, 100.0, 150.0, 400.0] {
-                    assert_eq!(
-                        ellipsize(text, 16.0, bold, max),
-                        ellipsize_measuring(text, 16.0, bold, max),
-                        "{text:?} bold={bold} max={max}"
-                    );
+                for max in [
+                    0.0, 5.0, 11.0, 20.0, 30.0, 33.3, 47.5, 60.0, 80.0, 100.0, 150.0, 400.0, 900.0,
+                    1e4,
+                ] {
+                    for size in [13.0, 16.0] {
+                        assert_eq!(
+                            ellipsize(text, size, bold, max),
+                            ellipsize_measuring(text, size, bold, max),
+                            "{text:?} size={size} bold={bold} max={max}"
+                        );
+                    }
                 }
             }
         }
+    }
+
+    #[test]
+    fn a_very_long_word_is_cut_in_linear_time() {
+        // a million characters took hours when each shorter prefix was
+        // measured again from its start; a long run of spaces must not
+        // make each candidate trim the run again
+        let word = "x".repeat(1_000_000);
+        let start = std::time::Instant::now();
+        let cut = ellipsize(&word, 12.0, false, 100.0);
+        assert!(cut.ends_with(ELLIPSIS) && cut.chars().count() < 30, "{cut}");
+        assert_eq!(wrap(&word, 12.0, false, 100.0, 2), vec![cut]);
+        let spaced = format!("abcdefghij{}k", " ".repeat(1_000_000));
+        let short = ellipsize("abcdefghij", 12.0, false, 40.0);
+        assert!(short.ends_with(ELLIPSIS) && short.len() > ELLIPSIS.len_utf8());
+        assert_eq!(ellipsize(&spaced, 12.0, false, 40.0), short);
+        assert!(start.elapsed() < std::time::Duration::from_secs(20));
     }
 
     #[test]

@@ -21,7 +21,12 @@ pub fn hash_hex(parts: &[&[u8]]) -> String {
 
 /// xxh3-128 of a file's bytes.
 pub fn hash_file(path: &Path) -> std::io::Result<String> {
-    let mut f = std::fs::File::open(path)?;
+    hash_reader(std::fs::File::open(path)?)
+}
+
+/// xxh3-128 of the bytes of a reader (an open file: see
+/// `crescendo_data::files::ReadAt`).
+pub fn hash_reader(mut f: impl Read) -> std::io::Result<String> {
     let mut h = xxhash_rust::xxh3::Xxh3::new();
     let mut buf = vec![0u8; 1 << 20];
     loop {

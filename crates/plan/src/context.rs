@@ -168,15 +168,7 @@ impl<'a> Ctx<'a> {
         match self.io.confine(self.dir, &file.value) {
             Ok(path) => Ok(path),
             Err(why) => {
-                let d = self
-                    .at(
-                        "path-outside",
-                        format!("the {what} may not be read: {why}"),
-                        file.span.clone(),
-                        "outside the story's folder",
-                    )
-                    .note("a story reads only files in its own folder and below, so a story from someone else cannot read your files into a deck")
-                    .help("move the file next to the story, or allow its folder with --allow-path DIR");
+                let d = crate::paths::outside(self.src, file.span.clone(), what, &why);
                 Err(self.report(d))
             }
         }

@@ -6,6 +6,7 @@ use std::collections::BTreeSet;
 use std::path::Path;
 use std::sync::Arc;
 
+use crescendo_data::files::OpenError;
 use crescendo_diag::{has_errors, Diagnostic, Source};
 use crescendo_lang::ast::{self, Item};
 
@@ -88,7 +89,8 @@ fn run(cx: &mut Ctx, story: &ast::StoryAst) -> Planned {
         ..Anchors::default()
     };
     let mut scope = Scope::default();
-    let mut loader = Loader::prepare(story); // what streams, what is read
+    // what streams, what is read, and within which limits
+    let mut loader = Loader::prepare(story, crate::limits::read_limits(&cx.options.limits));
     let mut h = Header::default();
     let (frame_items, claim_items) =
         items(cx, story, (&mut scope, &mut loader), &mut h, &mut anchors);
@@ -202,9 +204,19 @@ fn items<'s>(
 /// `style "house.toml"`: the house style, read and checked.
 fn house_style(cx: &mut Ctx, file: &ast::Str) -> Option<crate::style::HouseStyle> {
     let path = cx.confined(file, "house style").ok()?;
-    let text = match cx.io.read_text(&path) {
+    let text = match cx.io.read_text(cx.dir, &path) {
         Ok(t) => t,
-        Err(e) => {
+        Err(OpenError::Outside { real }) => {
+            let why = format!(
+                "`{}` is outside the story's folder ({})",
+                file.value,
+                real.display()
+            );
+            let d = crate::paths::outside(cx.src, file.span.clone(), "house style", &why);
+            cx.report(d);
+            return None;
+        }
+        Err(OpenError::Io(e)) => {
             let d = cx
                 .at(
                     "style-file",

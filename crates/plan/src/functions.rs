@@ -185,7 +185,7 @@ impl Evaluator<'_> {
                     .map(|c| {
                         c.values
                             .iter()
-                            .filter_map(num)
+                            .filter_map(|v| num(&v))
                             .map(|x| x as usize)
                             .collect()
                     })
@@ -196,8 +196,8 @@ impl Evaluator<'_> {
         if let Some((bi, _)) = by {
             let col = &table.columns[bi].values;
             order.sort_by(|a, b| {
-                let pa = position(&col[*a]).unwrap_or(f64::INFINITY);
-                let pb = position(&col[*b]).unwrap_or(f64::INFINITY);
+                let pa = position(&col.value(*a)).unwrap_or(f64::INFINITY);
+                let pb = position(&col.value(*b)).unwrap_or(f64::INFINITY);
                 pa.total_cmp(&pb)
             });
         }
@@ -213,7 +213,7 @@ impl Evaluator<'_> {
             cells: column.map_or_else(Vec::new, |(ci, _)| {
                 order
                     .iter()
-                    .map(|r| table.columns[ci].values[*r].clone())
+                    .map(|r| table.columns[ci].values.value(*r))
                     .collect()
             }),
             by: by.map(|(bi, bt)| {
@@ -221,11 +221,11 @@ impl Evaluator<'_> {
                     bt,
                     order
                         .iter()
-                        .map(|r| table.columns[bi].values[*r].clone())
+                        .map(|r| table.columns[bi].values.value(*r))
                         .collect(),
                 )
             }),
-            all: column.map_or_else(Vec::new, |(ci, _)| table.columns[ci].values.clone()),
+            all: column.map_or_else(Vec::new, |(ci, _)| table.columns[ci].values.to_vec()),
             rows: rows.len(),
             column_type: column.map(|(_, t)| t),
             describe,

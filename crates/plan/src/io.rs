@@ -4,13 +4,25 @@
 //! sessions and the view cache. Planning itself writes no file; what it
 //! learnt about its loads comes back with the plan ([`crate::Planned`]).
 //!
+//! A file the story names is opened once, by [`Io::open`], and the *opened*
+//! file is checked to lie where the story may read (its real path, as the
+//! kernel names the descriptor: see `crescendo_data::files`), so a file
+//! swapped for a link after its path was checked is still refused. Every
+//! read of that file (the type probe, the cache's content hash, each
+//! streaming thread, the whole load, the house style's text) goes through
+//! the one open file, never through the path again.
+//!
 //! [`Disk`] is the plain implementation: it reads the story's files and
 //! plugins and connects to databases, and keeps no cache. The command wraps
 //! it with the cache folder beside the deck.
 
+use std::fs::File;
+use std::io::Read;
 use std::path::{Path, PathBuf};
 use std::time::Duration;
 
+use crescendo_data::files::{OpenError, Within};
+use crescendo_data::load::{load_file, probe_file, ReadLimits};
 use crescendo_data::stream::{Chunks, ScanFailure, ScanInput, ScanOutput};
 use crescendo_data::{Columns, CsvSpec, LoadError, Probe, Table};
 use crescendo_plugin_host::{Plugin, PluginError, Verified};
@@ -32,21 +44,45 @@ pub trait Io {
     /// reader then reports why).
     fn file_len(&self, path: &Path) -> Option<u64>;
 
-    /// A whole text file (a house style).
-    fn read_text(&self, path: &Path) -> std::io::Result<String>;
+    /// Open the file at `path` for reading, once, and check where the
+    /// opened file really is: inside the folder tree of the story's folder
+    /// `dir` or a folder the story may read (see `paths::within`). `dir`
+    /// `None`: a file the user named on the command line (`--data`), which
+    /// may be anywhere.
+    fn open(&self, dir: Option<&Path>, path: &Path) -> Result<File, OpenError>;
 
-    /// The columns `columns` of a CSV file, whole.
-    fn load_csv(&self, spec: &CsvSpec, columns: &Columns) -> Result<Table, LoadError>;
+    /// A whole text file (a house style) of the story in `dir`, read
+    /// through [`Io::open`].
+    fn read_text(&self, dir: &Path, path: &Path) -> Result<String, OpenError> {
+        let mut text = String::new();
+        self.open(Some(dir), path)?
+            .read_to_string(&mut text)
+            .map_err(OpenError::Io)?;
+        Ok(text)
+    }
 
-    /// The header and the first `sample` records of a CSV file.
-    fn probe_csv(
+    /// The columns `columns` of a CSV file, whole, read through `file`
+    /// (opened by [`Io::open`] for `spec.path`) within `limits`.
+    fn load_csv(
         &self,
         spec: &CsvSpec,
+        file: &File,
+        columns: &Columns,
+        limits: &ReadLimits,
+    ) -> Result<Table, LoadError>;
+
+    /// The header and the first `sample` records of a CSV file, read
+    /// through `file`.
+    fn probe_csv(
+        &self,
+        read: (&CsvSpec, &File),
         columns: &Columns,
         sample: usize,
+        limits: &ReadLimits,
     ) -> Result<Probe, LoadError>;
 
-    /// One streaming pass over a CSV file (see `crescendo_data::stream`).
+    /// One streaming pass over a CSV file (see `crescendo_data::stream`),
+    /// every thread reading the open file `input.file`.
     fn scan_csv(&self, input: &ScanInput) -> Result<ScanOutput, ScanFailure>;
 
     /// A plugin library the story names: opened once, the opened file's
@@ -131,8 +167,9 @@ impl Database for Session {
 /// Entries kept between builds, by kind and key (see `loading/stream.rs`). Values
 /// are JSON; an entry that does not parse is treated as missing.
 pub trait ViewCache {
-    /// The content hash of a data file (xxh3-128, hex).
-    fn content_hash(&mut self, path: &Path) -> std::io::Result<String>;
+    /// The content hash (xxh3-128, hex) of a data file: the bytes of the
+    /// open `file`; `path` only names it.
+    fn content_hash(&mut self, path: &Path, file: &File) -> std::io::Result<String>;
     fn get(&self, kind: &str, key: &str) -> Option<Vec<u8>>;
     fn put(&mut self, kind: &str, key: &str, json: Vec<u8>);
 }
@@ -162,21 +199,31 @@ impl Io for Disk {
         std::fs::metadata(path).ok().map(|m| m.len())
     }
 
-    fn read_text(&self, path: &Path) -> std::io::Result<String> {
-        std::fs::read_to_string(path)
+    fn open(&self, dir: Option<&Path>, path: &Path) -> Result<File, OpenError> {
+        match dir {
+            Some(dir) => crate::paths::within(dir, &self.allowed).open(path),
+            None => Within::anywhere().open(path),
+        }
     }
 
-    fn load_csv(&self, spec: &CsvSpec, columns: &Columns) -> Result<Table, LoadError> {
-        crescendo_data::load_csv_columns(spec, columns)
+    fn load_csv(
+        &self,
+        spec: &CsvSpec,
+        file: &File,
+        columns: &Columns,
+        limits: &ReadLimits,
+    ) -> Result<Table, LoadError> {
+        load_file(spec, file, columns, limits)
     }
 
     fn probe_csv(
         &self,
-        spec: &CsvSpec,
+        (spec, file): (&CsvSpec, &File),
         columns: &Columns,
         sample: usize,
+        limits: &ReadLimits,
     ) -> Result<Probe, LoadError> {
-        crescendo_data::probe(spec, columns, sample)
+        probe_file(spec, file, columns, sample, limits)
     }
 
     fn scan_csv(&self, input: &ScanInput) -> Result<ScanOutput, ScanFailure> {
@@ -207,5 +254,54 @@ impl Io for Disk {
 
     fn cache(&mut self) -> Option<&mut dyn ViewCache> {
         None
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A story folder with its own style file, a private folder beside
+    /// it, and `house.toml` in the story folder linking to the private
+    /// style file.
+    fn linked_tree(name: &str) -> PathBuf {
+        let d = std::env::temp_dir().join(format!("crescendo-io-{}-{name}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&d);
+        std::fs::create_dir_all(d.join("story")).unwrap();
+        std::fs::create_dir_all(d.join("private")).unwrap();
+        std::fs::write(d.join("private/secret.toml"), "fonts = [\"Secret\"]\n").unwrap();
+        std::fs::write(d.join("story/own.toml"), "[sizes]\nheadline = 30\n").unwrap();
+        std::os::unix::fs::symlink(d.join("private/secret.toml"), d.join("story/house.toml"))
+            .unwrap();
+        d
+    }
+
+    #[test]
+    fn the_opened_file_is_checked_not_its_path() {
+        // a file that is (or became, after its path was checked) a link
+        // out of the story's folder is not read
+        let d = linked_tree("disk");
+        let (story, io) = (d.join("story"), Disk::default());
+        match io.read_text(&story, &story.join("house.toml")) {
+            Err(OpenError::Outside { real }) => assert!(real.ends_with("private/secret.toml")),
+            other => panic!("{other:?}"),
+        }
+        assert!(matches!(
+            io.open(Some(&story), &story.join("house.toml")),
+            Err(OpenError::Outside { .. })
+        ));
+        let own = io.read_text(&story, &story.join("own.toml")).unwrap();
+        assert_eq!(own, "[sizes]\nheadline = 30\n");
+        // a folder the user allowed, and a file named on the command line
+        let allowed = Disk {
+            allowed: vec![d.join("private")],
+        };
+        assert!(allowed.read_text(&story, &story.join("house.toml")).is_ok());
+        assert!(io.open(None, &story.join("house.toml")).is_ok());
+        assert!(matches!(
+            io.open(Some(&story), &story.join("none.toml")),
+            Err(OpenError::Io(_))
+        ));
+        let _ = std::fs::remove_dir_all(&d);
     }
 }

@@ -2,11 +2,18 @@
 //! input stops with a clear, located error instead of exhausting memory or
 //! time. Each is a command-line option (`--max-input-bytes`, `--max-rows`,
 //! `--max-frames`, `--max-text`); the defaults are far above any real deck.
+//!
+//! The row limit applies to rows held in memory (a data file loaded whole,
+//! the kept rows of a streamed view) and is checked while the file is read.
+//! By default it follows the machine: rows may be held while they take at
+//! most half of the memory available when the build starts (`MemAvailable`
+//! of `/proc/meminfo`; where that is unknown, there is no default limit).
 
 use std::path::Path;
 use std::sync::Arc;
 
-use crescendo_data::{Table, Value};
+use crescendo_data::load::ReadLimits;
+use crescendo_data::{Cell, Table};
 use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::{Item, StoryAst};
 
@@ -15,9 +22,9 @@ use crescendo_lang::ast::{Item, StoryAst};
 pub struct Limits {
     /// Largest story or data file, in bytes.
     pub input_bytes: u64,
-    /// Most rows of a data file loaded into memory (streamed files are
-    /// bounded by `input_bytes`).
-    pub rows: usize,
+    /// Most rows of a data file held in memory; `None`: as many as fit in
+    /// half the available memory (see the module docs).
+    pub rows: Option<usize>,
     /// Most frames in a deck.
     pub frames: usize,
     /// Longest text, in characters: a string in the story, or a text cell.
@@ -28,7 +35,7 @@ impl Default for Limits {
     fn default() -> Self {
         Self {
             input_bytes: 4 << 30,
-            rows: 50_000_000,
+            rows: None,
             frames: 500,
             text: 10_000,
         }
@@ -53,18 +60,37 @@ pub fn size(path: &Path, len: Option<u64>, limits: &Limits) -> Result<(), String
     }
 }
 
-/// Is a loaded table within the row and text limits?
+/// Memory available to this process now, in bytes (`MemAvailable` of
+/// `/proc/meminfo`), if known.
+pub fn available_memory() -> Option<u64> {
+    let info = std::fs::read_to_string("/proc/meminfo").ok()?;
+    let line = info.lines().find(|l| l.starts_with("MemAvailable:"))?;
+    let kb: u64 = line.split_whitespace().nth(1)?.parse().ok()?;
+    kb.checked_mul(1024)
+}
+
+/// The limits the data reader applies (text, rows, and the memory the
+/// rows may take without a row limit).
+pub fn read_limits(limits: &Limits) -> ReadLimits {
+    ReadLimits {
+        text: limits.text,
+        rows: limits.rows,
+        memory: available_memory().map_or(u64::MAX, |m| m / 2),
+    }
+}
+
+/// Is a loaded table within the row and text limits? (The CSV reader
+/// checks them while it reads; this is for tables from a database.)
 pub fn table(t: &Table, limits: &Limits) -> Result<(), String> {
     let rows = t.columns.first().map_or(0, |c| c.values.len());
-    if rows > limits.rows {
+    if let Some(max) = limits.rows.filter(|&m| rows > m) {
         return Err(format!(
-            "the file has {rows} rows, more than the limit of {} (--max-rows)",
-            limits.rows
+            "the file has {rows} rows, more than the limit of {max} (--max-rows)"
         ));
     }
     for c in &t.columns {
-        for (i, v) in c.values.iter().enumerate() {
-            if let Value::Text(s) = v {
+        for (i, v) in c.values.cells().enumerate() {
+            if let Cell::Text(s) = v {
                 if s.len() > limits.text && s.chars().count() > limits.text {
                     return Err(format!(
                         "a text in column `{}` (row {}) has {} characters, more than the limit of {} (--max-text)",
@@ -192,12 +218,12 @@ pub fn story(src: &Arc<Source>, ast: &StoryAst, limits: &Limits) -> Vec<Diagnost
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crescendo_data::{ColType, Column};
+    use crescendo_data::{ColType, Column, Value};
 
     fn limits() -> Limits {
         Limits {
             input_bytes: 10,
-            rows: 2,
+            rows: Some(2),
             frames: 1,
             text: 5,
         }
@@ -224,7 +250,7 @@ mod tests {
             columns: vec![Column {
                 name: "c".into(),
                 ty: ColType::Text,
-                values,
+                values: values.into(),
             }],
         };
         let t = |s: &str| Value::Text(s.into());

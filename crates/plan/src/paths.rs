@@ -3,8 +3,17 @@
 //! folder tree (`..`, an absolute path, or a symbolic link that points out)
 //! unless the user allowed a folder with `--allow-path DIR`. So a story
 //! from someone else cannot read private files into a deck.
+//!
+//! [`confine`] checks a path as the story wrote it, for a clear error before
+//! anything is read; [`within`] gives the folders that the *opened* file is
+//! checked against ([`crescendo_data::files`]), so that a file swapped for
+//! a link between the check and the read is still refused.
 
 use std::path::{Component, Path, PathBuf};
+use std::sync::Arc;
+
+use crescendo_data::files::Within;
+use crescendo_diag::{Diagnostic, Source};
 
 /// `path` with `.` and `..` taken out, without touching the file system.
 pub fn normalise(path: &Path) -> PathBuf {
@@ -66,6 +75,29 @@ pub fn confine(story_dir: &Path, written: &str, allowed: &[PathBuf]) -> Result<P
         "`{written}` is outside the story's folder ({})",
         target.display()
     ))
+}
+
+/// The folders a story's files may be opened from: its own folder and
+/// every folder the user allowed.
+pub fn within(story_dir: &Path, allowed: &[PathBuf]) -> Within {
+    Within::folders(std::iter::once(resolved(story_dir)).chain(allowed.iter().map(|a| resolved(a))))
+}
+
+/// The error for a file the story may not read (`what`: "data file", ...;
+/// `why` from [`confine`] or the check of the opened file).
+pub fn outside(
+    src: &Arc<Source>,
+    span: std::ops::Range<usize>,
+    what: &str,
+    why: &str,
+) -> Diagnostic {
+    Diagnostic::error("path-outside", format!("the {what} may not be read: {why}"))
+        .at(src, span, "outside the story's folder")
+        .note(
+            "a story reads only files in its own folder and below, so a story from someone else \
+             cannot read your files into a deck",
+        )
+        .help("move the file next to the story, or allow its folder with --allow-path DIR")
 }
 
 #[cfg(test)]

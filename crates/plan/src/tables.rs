@@ -67,7 +67,7 @@ impl Tables {
             return None;
         }
         col.values.iter().enumerate().find_map(|(i, v)| match v {
-            Value::Text(t) if data::load::parse_number(t).is_none() => Some(format!(
+            Value::Text(t) if data::load::parse_number(&t).is_none() => Some(format!(
                 "`{column}` was read as text because data row {} of `{root}` holds `{t}`",
                 i + 1
             )),

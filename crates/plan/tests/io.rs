@@ -3,9 +3,12 @@
 //! comes back with the plan, and planning writes no file.
 
 use std::collections::BTreeMap;
+use std::fs::File;
 use std::path::{Path, PathBuf};
 use std::time::Duration;
 
+use crescendo_data::files::{OpenError, ReadAt};
+use crescendo_data::load::ReadLimits;
 use crescendo_data::stream::{ScanFailure, ScanInput, ScanOutput};
 use crescendo_data::{Columns, CsvSpec, LoadError, Probe, Table};
 use crescendo_diag::Source;
@@ -22,8 +25,8 @@ struct Memory {
 }
 
 impl ViewCache for Memory {
-    fn content_hash(&mut self, path: &Path) -> std::io::Result<String> {
-        crescendo_plan::cache::hash_file(path)
+    fn content_hash(&mut self, _: &Path, file: &File) -> std::io::Result<String> {
+        crescendo_plan::cache::hash_reader(ReadAt::new(file, 0))
     }
 
     fn get(&self, kind: &str, key: &str) -> Option<Vec<u8>> {
@@ -43,14 +46,26 @@ impl Io for Memory {
     fn file_len(&self, path: &Path) -> Option<u64> {
         self.disk.file_len(path)
     }
-    fn read_text(&self, path: &Path) -> std::io::Result<String> {
-        self.disk.read_text(path)
+    fn open(&self, dir: Option<&Path>, path: &Path) -> Result<File, OpenError> {
+        self.disk.open(dir, path)
     }
-    fn load_csv(&self, spec: &CsvSpec, columns: &Columns) -> Result<Table, LoadError> {
-        self.disk.load_csv(spec, columns)
+    fn load_csv(
+        &self,
+        spec: &CsvSpec,
+        file: &File,
+        columns: &Columns,
+        limits: &ReadLimits,
+    ) -> Result<Table, LoadError> {
+        self.disk.load_csv(spec, file, columns, limits)
     }
-    fn probe_csv(&self, spec: &CsvSpec, c: &Columns, n: usize) -> Result<Probe, LoadError> {
-        self.disk.probe_csv(spec, c, n)
+    fn probe_csv(
+        &self,
+        read: (&CsvSpec, &File),
+        c: &Columns,
+        n: usize,
+        limits: &ReadLimits,
+    ) -> Result<Probe, LoadError> {
+        self.disk.probe_csv(read, c, n, limits)
     }
     fn scan_csv(&self, input: &ScanInput) -> Result<ScanOutput, ScanFailure> {
         self.disk.scan_csv(input)

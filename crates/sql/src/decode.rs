@@ -57,12 +57,12 @@ pub fn table(rows: &[Vec<Option<String>>], outputs: &[Output]) -> Result<Table, 
             Output::Value { name, ty } => Column {
                 name: name.clone(),
                 ty: *ty,
-                values: Vec::with_capacity(rows.len()),
+                values: crescendo_data::Values::new(),
             },
             Output::Mean { name } | Output::Median { name } => Column {
                 name: name.clone(),
                 ty: ColType::Number,
-                values: Vec::with_capacity(rows.len()),
+                values: crescendo_data::Values::new(),
             },
         })
         .collect();

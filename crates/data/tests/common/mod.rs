@@ -72,7 +72,7 @@ pub fn describe(e: &LoadError) -> String {
 pub fn rows(t: &Table) -> Vec<Vec<Value>> {
     let n = t.columns.first().map_or(0, |c| c.values.len());
     (0..n)
-        .map(|r| t.columns.iter().map(|c| c.values[r].clone()).collect())
+        .map(|r| t.columns.iter().map(|c| c.values.value(r)).collect())
         .collect()
 }
 

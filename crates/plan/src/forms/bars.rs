@@ -92,7 +92,7 @@ fn rows(
     let (xcol, ycol) = (&t.columns[spec.x], &t.columns[spec.y]);
     let mut rows: Vec<(String, Option<f64>, usize)> = Vec::new();
     for r in 0..xcol.values.len() {
-        let label = display(&xcol.values[r]);
+        let label = display(&xcol.values.value(r));
         if rows.iter().any(|(l, _, _)| *l == label) {
             let d = cx
                 .at(
@@ -110,7 +110,7 @@ fn rows(
                 ));
             return Err(cx.report(d));
         }
-        let v = match &ycol.values[r] {
+        let v = match &ycol.values.value(r) {
             Value::Number(v) => Some(*v),
             _ => None,
         };
@@ -119,8 +119,8 @@ fn rows(
     if spec.ordered {
         if xcol.ty.is_time() || xcol.ty == ColType::Number {
             rows.sort_by(|a, b| {
-                let pa = position(&xcol.values[a.2]).unwrap_or(f64::INFINITY);
-                let pb = position(&xcol.values[b.2]).unwrap_or(f64::INFINITY);
+                let pa = position(&xcol.values.value(a.2)).unwrap_or(f64::INFINITY);
+                let pb = position(&xcol.values.value(b.2)).unwrap_or(f64::INFINITY);
                 pa.total_cmp(&pb)
             });
         }

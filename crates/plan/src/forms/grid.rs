@@ -103,7 +103,7 @@ pub(crate) fn cells(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Gr
     };
     let mut seen: BTreeSet<(usize, usize)> = BTreeSet::new();
     for r in 0..cat.values.len() {
-        let label = display(&cat.values[r]);
+        let label = display(&cat.values.value(r));
         let ci = match grid.cats.iter().position(|(l, _)| *l == label) {
             Some(i) => i,
             None => {
@@ -112,7 +112,7 @@ pub(crate) fn cells(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Gr
                 grid.cats.len() - 1
             }
         };
-        let key = extra.map_or_else(|| humanize(&val.name), |e| display(&e.values[r]));
+        let key = extra.map_or_else(|| humanize(&val.name), |e| display(&e.values.value(r)));
         let ki = match grid.keys.iter().position(|k| *k == key) {
             Some(i) => i,
             None => {
@@ -142,7 +142,7 @@ pub(crate) fn cells(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Gr
                 ));
             return Err(cx.report(d));
         }
-        grid.values[ci][ki] = number(&val.values[r]);
+        grid.values[ci][ki] = number(&val.values.value(r));
     }
     Ok(grid)
 }
@@ -156,8 +156,8 @@ pub(crate) fn order(spec: &ChartSpec, grid: &Grid) -> Vec<usize> {
     if spec.ordered {
         if cat.ty.is_time() || cat.ty == ColType::Number {
             order.sort_by(|a, b| {
-                let pa = position(&cat.values[grid.cats[*a].1]).unwrap_or(f64::INFINITY);
-                let pb = position(&cat.values[grid.cats[*b].1]).unwrap_or(f64::INFINITY);
+                let pa = position(&cat.values.value(grid.cats[*a].1)).unwrap_or(f64::INFINITY);
+                let pb = position(&cat.values.value(grid.cats[*b].1)).unwrap_or(f64::INFINITY);
                 pa.total_cmp(&pb)
             });
         }

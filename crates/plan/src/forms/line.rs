@@ -143,13 +143,13 @@ fn collect(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Lines> {
     let mut seen: BTreeSet<(String, u64)> = BTreeSet::new();
     for r in 0..xcol.values.len() {
         let name = match spec.series {
-            Some(s) => display(&t.columns[s].values[r]),
+            Some(s) => display(&t.columns[s].values.value(r)),
             None => humanize(&ycol.name),
         };
         let Some(x) = x_of(xcol, r, &mut out.categories) else {
             continue;
         };
-        let y = match &ycol.values[r] {
+        let y = match &ycol.values.value(r) {
             Value::Number(v) => Some(*v),
             _ => None,
         };
@@ -161,7 +161,7 @@ fn collect(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Lines> {
                         "a line needs one value per x and series, but `{}` has several rows for \"{}\" at {}",
                         spec.table_name,
                         name,
-                        display(&xcol.values[r])
+                        display(&xcol.values.value(r))
                     ),
                     c.span.clone(),
                     "in this chart",
@@ -201,9 +201,9 @@ fn collect(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Lines> {
 /// first appearance; numbers and times at their value.
 fn x_of(xcol: &Column, r: usize, categories: &mut Vec<String>) -> Option<f64> {
     if xcol.ty != ColType::Text {
-        return position(&xcol.values[r]);
+        return position(&xcol.values.value(r));
     }
-    let label = display(&xcol.values[r]);
+    let label = display(&xcol.values.value(r));
     Some(match categories.iter().position(|c| *c == label) {
         Some(i) => i as f64,
         None => {

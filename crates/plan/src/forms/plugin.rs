@@ -77,7 +77,7 @@ pub(crate) fn draw(
             let mut seen = BTreeSet::new();
             col.values
                 .iter()
-                .map(display)
+                .map(|v| display(&v))
                 .filter(|n| seen.insert(n.clone()))
                 .collect()
         })
@@ -193,10 +193,10 @@ fn columns(table: &Table) -> Vec<Column> {
                 .iter()
                 .map(|v| match v {
                     Value::Missing => Cell::Missing,
-                    Value::Number(n) => Cell::Number(*n),
-                    Value::Text(t) => Cell::Text(t.clone()),
-                    Value::Month(m) => Cell::Text(time::month_iso(*m)),
-                    Value::Date(x) => Cell::Text(time::date_iso(*x)),
+                    Value::Number(n) => Cell::Number(n),
+                    Value::Text(t) => Cell::Text(t),
+                    Value::Month(m) => Cell::Text(time::month_iso(m)),
+                    Value::Date(x) => Cell::Text(time::date_iso(x)),
                     Value::Year(y) => Cell::Text(y.to_string()),
                 })
                 .collect(),

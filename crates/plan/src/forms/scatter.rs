@@ -137,15 +137,15 @@ fn points(spec: &ChartSpec) -> Vec<ScatterPoint> {
     let mut points = Vec::new();
     for r in 0..xc.values.len() {
         let (Some(x), Some(y)) = (
-            position(&xc.values[r]),
-            number(&yc.values[r]).or(position(&yc.values[r])),
+            position(&xc.values.value(r)),
+            number(&yc.values.value(r)).or(position(&yc.values.value(r))),
         ) else {
             continue;
         };
         points.push(ScatterPoint {
             x,
             y,
-            label: labels.map_or_else(String::new, |l| display(&l.values[r])),
+            label: labels.map_or_else(String::new, |l| display(&l.values.value(r))),
             role: Role::Context,
         });
     }

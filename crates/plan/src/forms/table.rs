@@ -42,7 +42,7 @@ impl FormPlanner for Table {
             .map(|c| {
                 c.values
                     .iter()
-                    .filter_map(number)
+                    .filter_map(|v| number(&v))
                     .map(|v| decimals_for(round_to(v, 2)).min(2))
                     .max()
                     .unwrap_or(0)
@@ -55,7 +55,7 @@ impl FormPlanner for Table {
             // Rows sharing their first cell with the row above form a group;
             // alternate groups are lightly shaded (otherwise alternate rows).
             if r > 0 {
-                let same = first.is_some_and(|c| c.values[r] == c.values[r - 1]);
+                let same = first.is_some_and(|c| c.values.value(r) == c.values.value(r - 1));
                 if !same {
                     group += 1;
                 }
@@ -64,7 +64,7 @@ impl FormPlanner for Table {
                 .columns
                 .iter()
                 .zip(&decimals)
-                .map(|(c, d)| match &c.values[r] {
+                .map(|(c, d)| match &c.values.value(r) {
                     Value::Number(v) => format::number(*v, Some(*d)),
                     Value::Missing => "–".to_string(),
                     other => display(other),

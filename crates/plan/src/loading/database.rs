@@ -260,7 +260,7 @@ fn describe(
             .map(|c| Column {
                 name: c.name.clone(),
                 ty: c.ty,
-                values: Vec::new(),
+                values: Default::default(),
             })
             .collect(),
     };

@@ -37,7 +37,15 @@
 //! hashed again, when its size and time are unchanged). Entries hold their
 //! tables losslessly (numbers as bits), so cached and uncached builds are
 //! byte-identical.
-
+//!
+//! # One open file
+//!
+//! A data file is opened once, through the planner's I/O ([`Io::open`]),
+//! and the open file is checked to lie in the story's folder (or an
+//! allowed one); the cache's content hash, the type probe, the streaming
+//! threads and the whole load all read that one descriptor, never the path
+//! again. The reads stop at the text and row limits (`--max-text`,
+//! `--max-rows`, see `limits.rs`) on both paths.
 //!
 //! Database sources are read in `database.rs`; what the loads did comes
 //! back with the plan ([`LoadReport`], the SQL log).
@@ -48,12 +56,17 @@ mod files;
 mod state;
 mod stream;
 
+use std::fs::File;
 use std::path::Path;
 
-use crescendo_data::{Columns, Table};
+use crescendo_data::files::OpenError;
+use crescendo_data::load::io_error;
+use crescendo_data::{Columns, CsvSpec, Table};
 use crescendo_lang::ast;
 
 use crate::context::{Ctx, Outcome};
+#[cfg(doc)]
+use crate::io::Io;
 use crate::tables::Tables;
 
 pub use state::LoadReport;
@@ -74,6 +87,7 @@ impl Loader {
             return database::load(cx, self, tables, (decl, db));
         }
         let spec = files::data_spec(cx, decl, replacement)?;
+        let file = open(cx, decl, &spec, replacement.is_some())?;
         let keep = if self.facts.all_columns {
             Columns::All
         } else {
@@ -81,14 +95,35 @@ impl Loader {
         };
         let name = decl.name.name.clone();
         if let Some(views) = self.facts.streamable.get(&name).cloned() {
-            let streamed = stream::stream(cx, self, tables, (decl, &spec), &views, &keep);
+            let read = (decl, &spec, &file);
+            let streamed = stream::stream(cx, self, tables, read, &views, &keep);
             if let Some(table) = streamed {
                 self.report.streamed.push(name);
                 return table;
             }
         }
         self.report.loaded.push(name);
-        let read = cx.io.load_csv(&spec, &keep);
+        let read = cx.io.load_csv(&spec, &file, &keep, &self.limits);
         files::reported(cx, decl, read)
+    }
+}
+
+/// The data file of `decl`, opened once and checked where it really is
+/// (`--data` names a file on the user's own command line, which may be
+/// anywhere).
+fn open(cx: &mut Ctx, decl: &ast::DataDecl, spec: &CsvSpec, named: bool) -> Outcome<File> {
+    let dir = if named { None } else { Some(cx.dir) };
+    match cx.io.open(dir, &spec.path) {
+        Ok(f) => Ok(f),
+        Err(OpenError::Outside { real }) => {
+            let why = format!(
+                "`{}` is outside the story's folder ({})",
+                decl.file.value,
+                real.display()
+            );
+            let d = crate::paths::outside(cx.src, decl.file.span.clone(), "data file", &why);
+            Err(cx.report(d))
+        }
+        Err(OpenError::Io(e)) => files::reported(cx, decl, Err(io_error(spec, &e))),
     }
 }

@@ -1,6 +1,7 @@
 //! What a story's loads share: the facts learnt from the whole story, and
 //! what the reads did (the load report and the SQL log).
 
+use crescendo_data::load::ReadLimits;
 use crescendo_lang::ast;
 
 use crate::loading::facts::StoryFacts;
@@ -31,13 +32,17 @@ pub(crate) struct Loader {
     pub(crate) report: LoadReport,
     /// The queries database sources ran (for `check --explain-sql`).
     pub(crate) sql: Vec<crescendo_sql::Explained>,
+    /// The text and row limits of every file read (see `limits.rs`).
+    pub(crate) limits: ReadLimits,
 }
 
 impl Loader {
-    /// A loader for `story` (see [`StoryFacts`]).
-    pub(crate) fn prepare(story: &ast::StoryAst) -> Loader {
+    /// A loader for `story` (see [`StoryFacts`]) that reads within
+    /// `limits`.
+    pub(crate) fn prepare(story: &ast::StoryAst, limits: ReadLimits) -> Loader {
         Loader {
             facts: StoryFacts::of(story),
+            limits,
             ..Loader::default()
         }
     }

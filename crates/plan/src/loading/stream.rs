@@ -3,10 +3,12 @@
 //! cache (see the module docs of `loading`).
 
 use std::collections::BTreeSet;
+use std::fs::File;
 
+use crescendo_data::load::ReadLimits;
 use crescendo_data::store::StoredTable;
 use crescendo_data::stream::{ScanFailure, ScanInput, StreamView};
-use crescendo_data::{ColType, Column, Columns, CsvSpec, Step, Table};
+use crescendo_data::{ColType, Column, Columns, CsvSpec, Step, Table, Values};
 use crescendo_lang::ast::{self, StepAst};
 use serde::de::DeserializeOwned;
 use serde::{Deserialize, Serialize};
@@ -77,17 +79,15 @@ fn parsed(
 /// (its type is unknown), or the file does not probe: load it whole.
 fn data_entry(
     cx: &mut Ctx,
-    spec: &CsvSpec,
+    (spec, file, limits): (&CsvSpec, &File, &ReadLimits),
     parse: &BTreeSet<String>,
     key: Option<&str>,
 ) -> Option<(DataEntry, bool)> {
     if let Some(e) = key.and_then(|k| get::<DataEntry>(cx.io.cache(), "data", k)) {
         return Some((e, true));
     }
-    let p = cx
-        .io
-        .probe_csv(spec, &Columns::Only(parse.clone()), SAMPLE)
-        .ok()?;
+    let only = Columns::Only(parse.clone());
+    let p = cx.io.probe_csv((spec, file), &only, SAMPLE, limits).ok()?;
     let mut schema = Vec::new();
     for (n, t) in p.names.iter().zip(&p.types) {
         let ty = match t {
@@ -162,7 +162,7 @@ pub(crate) fn stream(
     cx: &mut Ctx,
     loader: &mut Loader,
     tables: &mut Tables,
-    (decl, spec): (&ast::DataDecl, &CsvSpec),
+    (decl, spec, file): (&ast::DataDecl, &CsvSpec, &File),
     views: &[ast::ViewDecl],
     keep: &Columns,
 ) -> Option<Outcome<Table>> {
@@ -170,7 +170,7 @@ pub(crate) fn stream(
     let data_key = match cx.io.cache() {
         Some(c) => {
             // an unreadable file: let the load report it
-            let content = c.content_hash(&spec.path).ok()?;
+            let content = c.content_hash(&spec.path, file).ok()?;
             Some(hash_hex(&[
                 &FORMAT.to_le_bytes(),
                 content.as_bytes(),
@@ -182,7 +182,8 @@ pub(crate) fn stream(
         }
         None => None,
     };
-    let (entry, known) = data_entry(cx, spec, &parse, data_key.as_deref())?;
+    let read = (spec, file, &loader.limits);
+    let (entry, known) = data_entry(cx, read, &parse, data_key.as_deref())?;
     let shell = Table {
         columns: entry
             .schema
@@ -190,7 +191,7 @@ pub(crate) fn stream(
             .map(|(n, t)| Column {
                 name: n.clone(),
                 ty: *t,
-                values: Vec::new(),
+                values: Values::new(),
             })
             .collect(),
     };
@@ -205,7 +206,7 @@ pub(crate) fn stream(
     let missing: Vec<usize> = (0..found.len()).filter(|&i| found[i].is_none()).collect();
     let mut first_text = entry.first_text.clone();
     if !missing.is_empty() {
-        let scanned = scan(cx, spec, &entry, (&parse, keep), &prefixes, &missing);
+        let scanned = scan(cx, read, &entry, (&parse, keep), &prefixes, &missing);
         let tables_read = match scanned {
             Ok(Some(t)) => t,
             Ok(None) => return None,
@@ -246,7 +247,7 @@ type Scanned = (Vec<Option<(usize, String)>>, Vec<Table>);
 /// one pass over the file. `Ok(None)`: fall back to the whole load.
 fn scan(
     cx: &Ctx,
-    spec: &CsvSpec,
+    (spec, file, limits): (&CsvSpec, &File, &ReadLimits),
     entry: &DataEntry,
     (parse, keep): (&BTreeSet<String>, &Columns),
     prefixes: &[Prefix],
@@ -258,6 +259,8 @@ fn scan(
     let views: Vec<StreamView> = missing.iter().map(|&i| prefixes[i].run.clone()).collect();
     let input = ScanInput {
         spec,
+        file,
+        limits,
         schema,
         parse: &parse,
         keep_values: &keep_values,

@@ -62,7 +62,7 @@ pub(crate) fn build_view_with(
         rest: input.rest.clone(),
         counts: input.counts.clone(),
     };
-    for (index, step) in decl.steps.iter().enumerate() {
+    for (index, step_ast) in decl.steps.iter().enumerate() {
         let schema = schema_of(&built.table);
         let before = diags.len();
         let at = At {
@@ -71,7 +71,7 @@ pub(crate) fn build_view_with(
             place: &place,
             why: &why,
         };
-        let checked = steps::check(&at, step, diags);
+        let checked = steps::check(&at, step_ast, diags);
         if diags.len() > before {
             return None;
         }
@@ -101,6 +101,11 @@ pub(crate) fn build_view_with(
                     Some(p) => prefix_table(decl, p, resolved, diags)?,
                     None => data::run_view(&built.table, std::slice::from_ref(&step)),
                 };
+                // a sum too large for a number, streamed or computed here
+                if let Some(d) = crate::overflow::check(src, step_ast, &step, &built.table) {
+                    diags.push(d);
+                    return None;
+                }
             }
         }
     }
