@@ -22,7 +22,6 @@ pub fn run(
     lint: &LintArgs,
     color: bool,
 ) -> ExitCode {
-    incremental::disable(no_cache);
     let exports = deck::Exports {
         svg: format.contains(&Export::Svg),
         html: format.contains(&Export::Html),
@@ -30,9 +29,10 @@ pub fn run(
         png: format.contains(&Export::Png),
         scale,
     };
-    build(story, out, draft, &exports, data, lint, color)
+    build_with(story, out, draft, !no_cache, &exports, data, lint, color)
 }
 
+/// Build a deck, with its caches (see [`build_with`]).
 pub fn build(
     story: &Path,
     out: Option<PathBuf>,
@@ -42,9 +42,26 @@ pub fn build(
     lint: &LintArgs,
     color: bool,
 ) -> ExitCode {
-    // caches beside the deck (see incremental.rs)
-    incremental::configure_for(&out.clone().unwrap_or_else(|| default_out(story)));
-    let planned = match load_plan(story, data, color) {
+    build_with(story, out, draft, true, exports, data, lint, color)
+}
+
+/// Plan, lint and check the story, then write the deck; with `cache`, the
+/// planner's views and the frames are reused from the cache folder beside
+/// the deck (see `incremental.rs`).
+#[allow(clippy::too_many_arguments)]
+pub fn build_with(
+    story: &Path,
+    out: Option<PathBuf>,
+    draft: bool,
+    cache: bool,
+    exports: &deck::Exports,
+    data: &DataArgs,
+    lint: &LintArgs,
+    color: bool,
+) -> ExitCode {
+    let cache =
+        cache.then(|| incremental::cache_dir(&out.clone().unwrap_or_else(|| default_out(story))));
+    let planned = match load_plan(story, data, cache.clone(), color) {
         Ok(p) => p,
         Err(code) => return code,
     };
@@ -93,7 +110,8 @@ pub fn build(
         source: Some(&planned.source),
         anchors: Some(&planned.anchors),
     };
-    match deck::build(&planned.plan, &out, exports, &ctx) {
+    let mut frames = incremental::FrameCache::new(cache.as_deref(), &planned.plan);
+    match deck::build(&planned.plan, &out, exports, &ctx, &mut frames) {
         Ok(files) => {
             tell!(
                 "built {} frame{} into {}{}",
@@ -111,7 +129,7 @@ pub fn build(
                     tell!("  {line}");
                 }
             }
-            for line in incremental::summary() {
+            for line in frames.finish(&planned.report) {
                 tell!("  {line}");
             }
             ExitCode::SUCCESS

@@ -36,7 +36,7 @@ pub fn run(
     lint: &LintArgs,
     color: bool,
 ) -> ExitCode {
-    let result = plan_quietly(story, data);
+    let result = plan_quietly(story, data, None);
     let (planned, mut errors) = match result {
         Ok(p) => (Some(p), Vec::new()),
         Err(d) => (None, d),

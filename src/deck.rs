@@ -11,6 +11,8 @@ use crescendo_plan::DeckPlan;
 use serde_json::json;
 use sha2::{Digest, Sha256};
 
+use crate::incremental::FrameCache;
+
 /// Name of the manifest; its presence marks a folder as a crescendo deck.
 pub const MANIFEST: &str = "deck.json";
 
@@ -69,7 +71,7 @@ impl crescendo_render::plugin::PluginDrawer for Host<'_> {
         &self,
         plugin: &str,
         request: &crescendo_plugin::Request,
-    ) -> Result<crescendo_plugin::host::Validated, String> {
+    ) -> Result<crescendo_plugin::validate::Validated, String> {
         let p = self
             .0
             .get(plugin)
@@ -86,11 +88,12 @@ pub fn render_files(
     plan: &DeckPlan,
     exports: &Exports,
     ctx: &Context,
+    frames: &mut FrameCache,
 ) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
     let mut files = Vec::new();
     let mut svgs = Vec::new();
     for (i, f) in plan.frames.iter().enumerate() {
-        let svg = crate::incremental::render_frame(plan, f, ctx.plugins).map_err(|e| {
+        let svg = frames.render(plan, f, ctx.plugins).map_err(|e| {
             let mut d = Diagnostic::error(
                 "render",
                 format!("cannot draw frame {} (\"{}\"): {e}", f.number, f.headline),
@@ -182,14 +185,16 @@ fn io_err(what: &str, path: &Path, e: std::io::Error) -> Diagnostic {
 }
 
 /// Render and write the deck into `out`, replacing a previous deck only
-/// when everything succeeded. Returns the number of frames.
+/// when everything succeeded; frames come from `frames` where they are
+/// unchanged. Returns the number of frames.
 pub fn build(
     plan: &DeckPlan,
     out: &Path,
     exports: &Exports,
     ctx: &Context,
+    frames: &mut FrameCache,
 ) -> Result<usize, Diagnostic> {
-    let files = render_files(plan, exports, ctx)?;
+    let files = render_files(plan, exports, ctx, frames)?;
     write_atomically(out, &files)?;
     Ok(plan.frames.len())
 }

@@ -35,6 +35,7 @@ mod planning;
 mod plugins;
 mod progress;
 mod serve;
+mod store;
 mod watch;
 
 /// Exit status when the story or its data has errors.

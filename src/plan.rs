@@ -11,7 +11,7 @@ use crate::EXIT_OUTPUT;
 /// they are only checked.
 pub fn run(story: &Path, mut data: DataArgs, load_plugins: bool, color: bool) -> ExitCode {
     data.inspect_plugins = !load_plugins;
-    match load_plan(story, &data, color) {
+    match load_plan(story, &data, None, color) {
         Ok(p) => match serde_json::to_string_pretty(&p.plan) {
             Ok(s) => {
                 say!("{}", crate::output::json(&s));

@@ -10,7 +10,7 @@ use crescendo_diag::{Diagnostic, Source};
 use crescendo_plan::{Options, Planned};
 
 use crate::cli::{parse_connection_arg, DataArgs, Deny, LintArgs};
-use crate::{incremental, EXIT_STORY};
+use crate::EXIT_STORY;
 
 /// Lint a plan with the theme it will be drawn with.
 pub fn run_lint(planned: &Planned, args: &LintArgs) -> Vec<Diagnostic> {
@@ -18,11 +18,18 @@ pub fn run_lint(planned: &Planned, args: &LintArgs) -> Vec<Diagnostic> {
         Ok(t) => t,
         Err(e) => return vec![Diagnostic::error("theme", e.message)],
     };
+    // the frames laid out (no SVG written, no plugin code run) for the
+    // rules about geometry
+    let skip = crescendo_render::plugin::SkipPlugins;
+    let displays: Vec<_> = (planned.plan.frames.iter())
+        .map(|f| crescendo_render::display_list(&planned.plan, f, Some(&skip)).unwrap_or_default())
+        .collect();
     let input = crescendo_lint::Input {
         src: &planned.source,
         plan: &planned.plan,
         anchors: &planned.anchors,
         theme: &theme,
+        displays: &displays,
         small_counts: args.small_counts,
     };
     crescendo_lint::lint(
@@ -38,8 +45,13 @@ pub fn default_out(story: &Path) -> PathBuf {
     story.parent().unwrap_or(Path::new(".")).join("deck")
 }
 
-/// Read, parse and plan a story without printing anything.
-pub fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagnostic>> {
+/// Read, parse and plan a story without printing anything; `cache`: the
+/// folder of the planner's view cache (none: no cache).
+pub fn plan_quietly(
+    story: &Path,
+    data: &DataArgs,
+    cache: Option<PathBuf>,
+) -> Result<Planned, Vec<Diagnostic>> {
     crescendo_plan::limits::file_size(story, &data.limits.limits())
         .map_err(|e| vec![Diagnostic::error("limit", e)])?;
     let bytes = std::fs::read(story).map_err(|e| {
@@ -52,7 +64,6 @@ pub fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagno
     let dir = story.parent().unwrap_or(Path::new("."));
     let options = Options {
         data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
-        cache: incremental::planner_cache(),
         no_plugins: data.no_plugins,
         inspect_plugins: data.inspect_plugins,
         database: crescendo_plan::DbOptions {
@@ -73,12 +84,18 @@ pub fn plan_quietly(story: &Path, data: &DataArgs) -> Result<Planned, Vec<Diagno
         allow_paths: data.allow_paths.clone(),
         limits: data.limits.limits(),
     };
-    crescendo_plan::plan_story(&src, dir, &options)
+    let mut io = crate::store::Reading::new(&options, cache.as_deref());
+    crescendo_plan::plan_story_with(&src, dir, &options, &mut io)
 }
 
 /// Read, parse and plan a story; print diagnostics; exit status on failure.
-pub fn load_plan(story: &Path, data: &DataArgs, color: bool) -> Result<Planned, ExitCode> {
-    match plan_quietly(story, data) {
+pub fn load_plan(
+    story: &Path,
+    data: &DataArgs,
+    cache: Option<PathBuf>,
+    color: bool,
+) -> Result<Planned, ExitCode> {
+    match plan_quietly(story, data, cache) {
         Ok(p) => {
             if !p.warnings.is_empty() {
                 crate::output::diagnostics(&p.warnings, color);

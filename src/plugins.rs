@@ -20,7 +20,7 @@ pub fn run(story: &Path, allow_paths: Vec<PathBuf>, load_plugins: bool, color: b
         allow_paths,
         limits: LimitArgs::default(),
     };
-    match load_plan(story, &none, color) {
+    match load_plan(story, &none, None, color) {
         Ok(p) => {
             if p.plugins.is_empty() {
                 say!("{} loads no plugins", story.display());

@@ -30,12 +30,17 @@ fn lint_story(path: &Path, theme: Option<&str>) -> Vec<Diagnostic> {
         planned.plan.theme = t.to_string();
     }
     let theme = crescendo_render::theme::effective(&planned.plan).unwrap();
+    let skip = crescendo_render::plugin::SkipPlugins;
+    let displays: Vec<_> = (planned.plan.frames.iter())
+        .map(|f| crescendo_render::display_list(&planned.plan, f, Some(&skip)).unwrap())
+        .collect();
     crescendo_lint::lint(
         &crescendo_lint::Input {
             src: &planned.source,
             plan: &planned.plan,
             anchors: &planned.anchors,
             theme: &theme,
+            displays: &displays,
             small_counts: 5.0,
         },
         &Default::default(),

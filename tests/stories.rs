@@ -25,7 +25,7 @@ impl crescendo_render::plugin::PluginDrawer for Drawer {
         &self,
         plugin: &str,
         request: &crescendo_plugin::Request,
-    ) -> Result<crescendo_plugin::host::Validated, String> {
+    ) -> Result<crescendo_plugin::validate::Validated, String> {
         let p = self.0.get(plugin).ok_or("not loaded")?;
         p.render(request).map_err(|e| e.to_string())
     }
@@ -44,6 +44,16 @@ fn frames_of(path: &Path) -> (DeckPlan, Vec<String>) {
         })
         .collect();
     (planned.plan, svgs)
+}
+
+/// The plan of a story and the display list of every frame.
+fn layouts_of(path: &Path) -> (DeckPlan, Vec<crescendo_render::DisplayList>) {
+    let planned = planned_of(path);
+    let drawer = Drawer(planned.plugins);
+    let lists = (planned.plan.frames.iter())
+        .map(|f| crescendo_render::display_list(&planned.plan, f, Some(&drawer)).expect("layout"))
+        .collect();
+    (planned.plan, lists)
 }
 
 fn planned_of(path: &Path) -> crescendo_plan::Planned {
@@ -264,6 +274,7 @@ fn rebuilding_over_a_deck_replaces_it_whole() {
 fn every_demo_frame_is_well_formed_and_has_no_overlapping_text() {
     for (name, path) in stories() {
         let (plan, svgs) = frames_of(&path);
+        let (_, lists) = layouts_of(&path);
         for (f, svg) in plan.frames.iter().zip(svgs) {
             // a general-purpose XML parser accepts it
             let doc = roxmltree::Document::parse(&svg)
@@ -280,24 +291,37 @@ fn every_demo_frame_is_well_formed_and_has_no_overlapping_text() {
                 f.number
             );
             let (w, h) = crescendo_render::inspect::canvas_size(&svg).unwrap();
+            assert_eq!((w, h), (1280.0, 720.0));
+            // the SVG shows the texts of the display list where it put them
+            let list = &lists[f.number - 1];
+            let texts = list.texts();
             let boxes = crescendo_render::inspect::text_boxes(&svg).unwrap();
             assert_eq!(boxes.len(), texts.len());
-            for b in &boxes {
+            for (t, b) in texts.iter().zip(&boxes) {
+                let r = &t.bounds;
+                let close = [(r.x0, b.x0), (r.y0, b.y0), (r.x1, b.x1), (r.y1, b.y1)]
+                    .iter()
+                    .all(|(a, b)| (a - b).abs() <= 1.0);
+                assert!(close, "{name} frame {}: {t:?} is drawn at {b:?}", f.number);
+            }
+            for t in &texts {
+                let b = &t.bounds;
                 assert!(
                     b.x0 >= 0.0 && b.y0 >= 0.0 && b.x1 <= w && b.y1 <= h,
                     "{name} frame {}: \"{}\" leaves the canvas: {:?}",
                     f.number,
-                    b.text,
+                    t.text,
                     (b.x0, b.y0, b.x1, b.y1)
                 );
             }
-            for (i, a) in boxes.iter().enumerate() {
-                for b in &boxes[i + 1..] {
-                    let overlap = a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1;
+            for (i, a) in texts.iter().enumerate() {
+                for b in &texts[i + 1..] {
                     assert!(
-                        !overlap,
+                        !a.bounds.overlaps(&b.bounds, 0.0),
                         "{name} frame {}: \"{}\" overlaps \"{}\"",
-                        f.number, a.text, b.text
+                        f.number,
+                        a.text,
+                        b.text
                     );
                 }
             }
@@ -425,34 +449,21 @@ fn frames_carry_a_text_alternative_generated_from_the_data() {
     assert!(bars.description.starts_with("Bar chart of visits in 2024 by pool, 4 bars: Westbrook 114,161 (highlighted); Alder Park"), "{}", bars.description);
 }
 
-/// Data lines of an SVG frame: polylines drawn 2px or heavier, as segments.
-fn data_segments(svg: &str) -> Vec<((f64, f64), (f64, f64))> {
-    let doc = roxmltree::Document::parse(svg).unwrap();
+/// Data lines of a laid-out frame: polylines drawn 2px or heavier, as segments.
+fn data_segments(list: &crescendo_render::DisplayList) -> Vec<((f64, f64), (f64, f64))> {
     let mut out = Vec::new();
-    for n in doc.descendants().filter(|n| n.has_tag_name("polyline")) {
-        let width: f64 = n
-            .attribute("stroke-width")
-            .and_then(|w| w.parse().ok())
-            .unwrap_or(1.0);
-        if width < 2.0 {
-            continue;
+    for item in list.flat() {
+        if let crescendo_look::Item::Polyline { points, width, .. } = item {
+            if *width >= 2 {
+                out.extend(points.windows(2).map(|w| (w[0], w[1])));
+            }
         }
-        let pts: Vec<(f64, f64)> = n
-            .attribute("points")
-            .unwrap_or("")
-            .split_whitespace()
-            .filter_map(|p| {
-                let (x, y) = p.split_once(',')?;
-                Some((x.parse().ok()?, y.parse().ok()?))
-            })
-            .collect();
-        out.extend(pts.windows(2).map(|w| (w[0], w[1])));
     }
     out
 }
 
 /// Does the segment cross the box (Liang–Barsky clipping, common practice)?
-fn crosses(seg: ((f64, f64), (f64, f64)), b: &crescendo_render::inspect::TextBox) -> bool {
+fn crosses(seg: ((f64, f64), (f64, f64)), b: &crescendo_look::Rect) -> bool {
     let ((x0, y0), (x1, y1)) = seg;
     let (dx, dy) = (x1 - x0, y1 - y0);
     let (mut t0, mut t1) = (0.0f64, 1.0f64);
@@ -481,8 +492,7 @@ fn crosses(seg: ((f64, f64), (f64, f64)), b: &crescendo_render::inspect::TextBox
 #[test]
 fn labels_stay_off_the_data_lines_in_every_demo_frame() {
     // the measure itself can fail
-    let b = crescendo_render::inspect::TextBox {
-        text: "x".into(),
+    let b = crescendo_look::Rect {
         x0: 10.0,
         y0: 10.0,
         x1: 20.0,
@@ -494,21 +504,15 @@ fn labels_stay_off_the_data_lines_in_every_demo_frame() {
     let mut crossings = Vec::new();
     let mut labels = 0;
     for (name, path) in stories() {
-        let (plan, svgs) = frames_of(&path);
-        for (f, svg) in plan.frames.iter().zip(svgs) {
-            let segs = data_segments(&svg);
-            for b in crescendo_render::inspect::text_boxes(&svg).unwrap() {
+        let (plan, lists) = layouts_of(&path);
+        for (f, list) in plan.frames.iter().zip(lists) {
+            let segs = data_segments(&list);
+            for t in list.texts() {
                 labels += 1;
                 // shrink by a pixel: touching is not crossing
-                let inner = crescendo_render::inspect::TextBox {
-                    text: b.text.clone(),
-                    x0: b.x0 + 1.0,
-                    y0: b.y0 + 1.0,
-                    x1: b.x1 - 1.0,
-                    y1: b.y1 - 1.0,
-                };
+                let inner = t.bounds.grow(-1.0);
                 if segs.iter().any(|s| crosses(*s, &inner)) {
-                    crossings.push(format!("{name} frame {}: \"{}\"", f.number, b.text));
+                    crossings.push(format!("{name} frame {}: \"{}\"", f.number, t.text));
                 }
             }
         }

@@ -18,7 +18,7 @@
 //!   view engine, where `sum` of a group with no values is a missing cell.
 //! * **`Empty` means nothing was selected; `TooFew` means something was, but
 //!   not enough** (variance, fit and correlation need two points).
-//! * Sums use Neumaier's compensated summation (common practice), and the
+//! * Sums are exact, rounded once (the view engine's sum), and the
 //!   variance and line fit use two-pass centred sums (common practice for
 //!   accuracy: the textbook one-pass formula Σx² − (Σx)²/n cancels badly).
 
@@ -118,62 +118,55 @@ fn checked(xs: &[f64]) -> Result<&[f64], StatError> {
     }
 }
 
-/// Neumaier's compensated sum of the terms (an improved Kahan summation;
-/// common practice). The error does not grow with the number of terms, and
-/// sums of integers below 2^53 are exact. May be non-finite on overflow.
-fn compensated(terms: impl Iterator<Item = f64>) -> f64 {
-    let mut sum = 0.0_f64;
-    let mut comp = 0.0_f64;
+/// The sum of the terms, exact and rounded once: the view engine's
+/// [`crate::view::Sum`] (Shewchuk's partials, as Python's `math.fsum`), so
+/// a value and a view summing the same cells give the same bits, whatever
+/// their order. May be non-finite on overflow.
+fn exact_sum(terms: impl Iterator<Item = f64>) -> f64 {
+    let mut sum = crate::view::Sum::default();
     for x in terms {
-        let t = sum + x;
-        if sum.abs() >= x.abs() {
-            comp += (sum - t) + x;
-        } else {
-            comp += (x - t) + sum;
-        }
-        sum = t;
+        sum.add(x);
     }
-    sum + comp
+    sum.total().unwrap_or(0.0)
 }
 
-/// Σ xᵢ, with Neumaier's compensated summation.
+/// Σ xᵢ, exact (see [`exact_sum`]); 0 for no terms. What charts total
+/// (stacks, pies, orders by total) with.
+pub fn total(xs: impl IntoIterator<Item = f64>) -> f64 {
+    exact_sum(xs.into_iter())
+}
+
+/// Σ xᵢ, exact (see [`exact_sum`]).
 ///
 /// An empty list is `Err(Empty)`, not 0 (see the module notes: a claim over
 /// no rows must not pass silently).
 ///
-/// When the running sum overflows, the exact sum of the view engine
-/// decides: a total that is a number again (`1.7e308 + 1.7e308 - 1.7e308`)
-/// is given, and one beyond the largest number is `Err(Overflow)`, as a
-/// view's `sum` reports it.
+/// The sum is exact, so a total that is a number again after a running
+/// sum would have overflowed (`1.7e308 + 1.7e308 - 1.7e308`) is given, and
+/// one beyond the largest number is `Err(Overflow)`, as a view's `sum`
+/// reports it.
 pub fn sum(xs: &[f64]) -> Result<f64, StatError> {
-    let xs = checked(xs)?;
-    let total = compensated(xs.iter().copied());
+    let total = exact_sum(checked(xs)?.iter().copied());
     if total.is_finite() {
-        return Ok(total);
-    }
-    let mut exact = crate::view::Sum::default();
-    for &x in xs {
-        exact.add(x);
-    }
-    match exact.total() {
-        Some(t) if t.is_finite() => Ok(t),
-        _ => Err(StatError::Overflow),
+        Ok(total)
+    } else {
+        Err(StatError::Overflow)
     }
 }
 
 /// Arithmetic mean x̄ = (Σ xᵢ) / n.
 ///
-/// The sum is compensated; if it would overflow, the terms are divided by n
+/// The sum is exact; if it would overflow, the terms are divided by n
 /// first. The result is kept within [min, max], so the mean of equal values
 /// is exactly that value.
 pub fn mean(xs: &[f64]) -> Result<f64, StatError> {
     let xs = checked(xs)?;
     let n = xs.len() as f64;
-    let total = compensated(xs.iter().copied());
+    let total = exact_sum(xs.iter().copied());
     let m = if total.is_finite() {
         total / n
     } else {
-        compensated(xs.iter().map(|x| x / n))
+        exact_sum(xs.iter().map(|x| x / n))
     };
     let m = finite(m)?;
     Ok(m.clamp(min(xs)?, max(xs)?))
@@ -227,11 +220,11 @@ pub fn variance(xs: &[f64]) -> Result<f64, StatError> {
     Ok(finite(ss / (xs.len() - 1) as f64)?.max(0.0))
 }
 
-/// Σ (xᵢ − m)² − (Σ (xᵢ − m))² / n, both sums compensated.
+/// Σ (xᵢ − m)² − (Σ (xᵢ − m))² / n, both sums exact.
 fn centred_ss(xs: &[f64], m: f64) -> f64 {
     let n = xs.len() as f64;
-    let d = compensated(xs.iter().map(|x| x - m));
-    compensated(xs.iter().map(|x| (x - m) * (x - m))) - d * d / n
+    let d = exact_sum(xs.iter().map(|x| x - m));
+    exact_sum(xs.iter().map(|x| (x - m) * (x - m))) - d * d / n
 }
 
 /// The share of `part` in `total` as a fraction: part / total (0.25 is a
@@ -357,7 +350,7 @@ fn centred(xs: &[f64], ys: &[f64]) -> Result<Centred, StatError> {
         });
     }
     let (x_mean, y_mean) = (mean(xs)?, mean(ys)?);
-    let sxy = compensated(xs.iter().zip(ys).map(|(x, y)| (x - x_mean) * (y - y_mean)));
+    let sxy = exact_sum(xs.iter().zip(ys).map(|(x, y)| (x - x_mean) * (y - y_mean)));
     let constant = |v: &[f64]| v.iter().all(|&a| Some(&a) == v.first());
     Ok(Centred {
         x_mean,
@@ -505,10 +498,10 @@ mod tests {
     }
 
     #[test]
-    fn sum_is_compensated_and_empty_is_an_error() {
+    fn sum_is_exact_and_empty_is_an_error() {
         assert_eq!(sum(&[1.0, 2.0, 3.5]), Ok(6.5));
         assert_eq!(sum(&[-2.0]), Ok(-2.0));
-        // Naive left-to-right summation gives 0 and 2 here; Neumaier is exact.
+        // Naive left-to-right summation gives 0 and 2 here.
         assert_eq!(sum(&[1.0, 1e100, 1.0, -1e100]), Ok(2.0));
         assert_eq!(sum(&[1e16, 1.0, -1e16]), Ok(1.0));
         // 0.1 ten times: naive gives 0.9999999999999999.

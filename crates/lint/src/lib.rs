@@ -6,15 +6,17 @@
 //! fixed parts (what it flags, why it matters, an example, what to do
 //! instead); `crescendo explain RULE` prints exactly that text.
 
-pub mod colour;
 mod rules;
+
+/// The colour science the rules use (moved to `crescendo-look`).
+pub use crescendo_look::colour;
 
 use std::sync::Arc;
 
 use crescendo_diag::{closest, Diagnostic, Severity, Source};
-use crescendo_plan::anchors::{Allowance, Anchors, Span};
-use crescendo_plan::DeckPlan;
-use crescendo_render::Theme;
+use crescendo_frame::anchors::{Allowance, Anchors, Span};
+use crescendo_frame::DeckPlan;
+use crescendo_look::{DisplayList, Theme};
 
 pub use rules::{CONFUSABLE_THRESHOLD, RULES};
 
@@ -48,6 +50,10 @@ pub struct Input<'a> {
     pub anchors: &'a Anchors,
     /// The theme the deck is drawn with (accent override applied).
     pub theme: &'a Theme,
+    /// The laid-out frames, one per frame of `plan` in order (the
+    /// renderer's display lists), for the rules about geometry. A frame
+    /// without one (empty, or a shorter list) is skipped by those rules.
+    pub displays: &'a [DisplayList],
     /// Counts of rows below this are flagged by `small-counts` (default 5).
     pub small_counts: f64,
 }

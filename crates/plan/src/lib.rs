@@ -2,27 +2,47 @@
 //! runs the views, applies the build-up steps frame by frame and computes
 //! scale domains and ticks. Its output, [`DeckPlan`], is the renderer's only
 //! input.
+//!
+//! Planning runs in phases (see `driver.rs`): the header (`header.rs`),
+//! data loading (`sources.rs`, `loading/`), the tables (`tables.rs`), view
+//! checking (`views/`, row expressions in `rows.rs`), values and claims (`values.rs`, `functions.rs`, `claims.rs`), the
+//! frames (`frames/`: sequences, targets, roles, split and unfold) with one
+//! planner per chart form (`forms/`), scales (`scale.rs`) and descriptions
+//! (`describe.rs`). Every step reports into one context (`context.rs`) and
+//! reads through one I/O interface (`io.rs`).
 
 pub mod anchors;
-mod build;
 pub mod cache;
-mod database;
+mod claims;
+mod context;
+mod describe;
+mod drawn;
+mod driver;
 mod forms;
+mod frames;
 mod functions;
+mod header;
+pub mod io;
+mod labels;
 pub mod limits;
 mod loading;
 pub mod model;
+mod options;
 mod overflow;
 pub mod paths;
 pub mod plugins;
-mod resolve;
 mod rows;
 pub mod scale;
-mod steps;
+mod scope;
+mod sequence;
+mod sources;
 pub mod style;
+mod tables;
 pub mod values;
+mod views;
 
-pub use build::{plan_story, slug, Options, PlanResult, Planned};
-pub use database::DbOptions;
+pub use driver::{plan_story, plan_story_with, PlanResult, Planned};
+pub use labels::slug;
+pub use loading::LoadReport;
 pub use model::*;
-pub use resolve::LoadReport;
+pub use options::{DbOptions, Options};

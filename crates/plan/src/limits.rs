@@ -45,11 +45,15 @@ impl Default for Limits {
 /// Is the file at `path` within the size limit? (A file that cannot be
 /// read is left to the reader's own error.)
 pub fn file_size(path: &Path, limits: &Limits) -> Result<(), String> {
-    match std::fs::metadata(path) {
-        Ok(m) if m.len() > limits.input_bytes => Err(format!(
-            "`{}` has {} bytes, more than the limit of {} (--max-input-bytes)",
+    size(path, std::fs::metadata(path).ok().map(|m| m.len()), limits)
+}
+
+/// Is a file of `len` bytes (`None`: unreadable) within the size limit?
+pub fn size(path: &Path, len: Option<u64>, limits: &Limits) -> Result<(), String> {
+    match len {
+        Some(len) if len > limits.input_bytes => Err(format!(
+            "`{}` has {len} bytes, more than the limit of {} (--max-input-bytes)",
             path.display(),
-            m.len(),
             limits.input_bytes
         )),
         _ => Ok(()),

@@ -12,7 +12,7 @@ use crescendo_data::{Step, Table};
 use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::StepAst;
 
-use crate::build::display;
+use crate::labels::display;
 
 /// The error for the first sum too large for a number in `out`, the table
 /// `step` (written as `ast`) made; `None` when there is none.

@@ -694,6 +694,36 @@ fn year_ticks(lo: f64, hi: f64) -> Vec<Tick> {
         .collect()
 }
 
+/// Decimals needed to show multiples of `step` exactly (0.25 → 2).
+pub(crate) fn decimals_for(step: f64) -> usize {
+    let mut d = 0;
+    let mut s = step.abs();
+    while d < 6 && (s - s.round()).abs() > 1e-9 * s.max(1.0) {
+        s *= 10.0;
+        d += 1;
+    }
+    d
+}
+
+/// `v` rounded to `decimals` decimals.
+pub(crate) fn round_to(v: f64, decimals: usize) -> f64 {
+    let p = 10f64.powi(decimals as i32);
+    (v * p).round() / p
+}
+
+/// The step between an axis's first two ticks (1 with fewer ticks).
+pub(crate) fn tick_step(axis: &Axis) -> f64 {
+    axis.ticks
+        .get(1)
+        .zip(axis.ticks.first())
+        .map_or(1.0, |(b, a)| b.value - a.value)
+}
+
+/// A value label with the precision the axis's ticks suggest.
+pub(crate) fn value_label(v: f64, axis: &Axis) -> String {
+    crescendo_data::format::number(round_to(v, decimals_for(tick_step(axis))), None)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -1113,5 +1143,12 @@ mod tests {
         let a = time_axis(ScaleKind::Years, 2024.0, 2024.0, None);
         assert_eq!(labels(&a), ["2024"]);
         assert!(a.domain[0] < a.domain[1]);
+    }
+
+    #[test]
+    fn decimals_of_steps() {
+        assert_eq!(decimals_for(0.25), 2);
+        assert_eq!(decimals_for(50.0), 0);
+        assert_eq!(decimals_for(0.1), 1);
     }
 }

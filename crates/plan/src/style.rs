@@ -33,68 +33,14 @@
 //! bottom = 28
 //! ```
 
-use std::io::Read;
 use std::ops::Range;
-use std::path::Path;
 use std::sync::Arc;
 
-use crescendo_data::files::{OpenError, Within};
 use crescendo_diag::{Diagnostic, Source};
-use crescendo_lang::ast::Str;
-use serde::{Deserialize, Serialize};
+use serde::Deserialize;
 use toml::Spanned;
 
-/// The smallest text size a style may set. Below 14 px text is hard to read
-/// when projected; the lint's `text-small` rule says so (a print deck may
-/// allow it with a reason).
-pub const MIN_TEXT_SIZE: f64 = 10.0;
-/// The largest text size a style may set.
-pub const MAX_TEXT_SIZE: f64 = 72.0;
-
-/// The validated contents of a house-style file. Colours are `#RRGGBB`
-/// (upper-case); sizes and margins are px.
-#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
-pub struct HouseStyle {
-    /// The style file as named (relative to the story).
-    pub file: String,
-    /// The CSS font stack for the SVG text, ready to write
-    /// (`'DejaVu Sans', Verdana, sans-serif`).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub font_family: Option<String>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub headline_size: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub takeaway_size: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub label_size: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub source_size: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub accent: Option<String>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub page: Option<String>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub headline: Option<String>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub takeaway: Option<String>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub small_text: Option<String>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub context: Option<String>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub context_labels: Option<String>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub baseline: Option<String>,
-    /// Gridlines (`gridlines`), `#RRGGBB`.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub grid: Option<String>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub margin_sides: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub margin_top: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub margin_bottom: Option<f64>,
-}
+pub use crescendo_frame::style::{HouseStyle, MAX_TEXT_SIZE, MIN_TEXT_SIZE};
 
 // The file as written: every key spanned, unknown keys refused.
 
@@ -358,60 +304,6 @@ pub fn parse(src: &Arc<Source>, name: &str) -> Result<HouseStyle, Vec<Diagnostic
     }
 }
 
-/// Load and validate the style file `file` (relative to `dir`), opened
-/// only `within` the story's folders (the open file is checked, see
-/// `crescendo_data::files`).
-pub fn load(
-    src: &Arc<Source>,
-    dir: &Path,
-    file: &Str,
-    within: &Within,
-    diags: &mut Vec<Diagnostic>,
-) -> Option<HouseStyle> {
-    let path = dir.join(&file.value);
-    let read = within.open(&path).and_then(|mut f| {
-        let mut text = String::new();
-        f.read_to_string(&mut text).map_err(OpenError::Io)?;
-        Ok(text)
-    });
-    let text = match read {
-        Ok(t) => t,
-        Err(OpenError::Outside { real }) => {
-            let why = format!(
-                "`{}` is outside the story's folder ({})",
-                file.value,
-                real.display()
-            );
-            diags.push(crate::paths::outside(
-                src,
-                file.span.clone(),
-                "house style",
-                &why,
-            ));
-            return None;
-        }
-        Err(OpenError::Io(e)) => {
-            diags.push(
-                Diagnostic::error(
-                    "style-file",
-                    format!("cannot read the house style `{}`: {e}", path.display()),
-                )
-                .at(src, file.span.clone(), "named here")
-                .help("the path is relative to the story file"),
-            );
-            return None;
-        }
-    };
-    let style_src = Source::file(path.display().to_string(), text);
-    match parse(&style_src, &file.value) {
-        Ok(s) => Some(s),
-        Err(mut d) => {
-            diags.append(&mut d);
-            None
-        }
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -423,35 +315,6 @@ mod tests {
     fn located(text: &str) -> (String, usize, usize) {
         let d = check(text).unwrap_err();
         d[0].location().expect("located")
-    }
-
-    #[test]
-    fn the_opened_style_file_is_checked_not_its_path() {
-        // a style file that is (or became, after the path was checked) a
-        // link to a file outside the story's folder is not read
-        let d = std::env::temp_dir().join(format!("crescendo-style-{}", std::process::id()));
-        let _ = std::fs::remove_dir_all(&d);
-        std::fs::create_dir_all(d.join("story")).unwrap();
-        std::fs::create_dir_all(d.join("private")).unwrap();
-        std::fs::write(d.join("private/secret.toml"), "fonts = [\"Secret\"]\n").unwrap();
-        std::fs::write(d.join("story/own.toml"), "[sizes]\nheadline = 30\n").unwrap();
-        std::os::unix::fs::symlink(d.join("private/secret.toml"), d.join("story/house.toml"))
-            .unwrap();
-        let src = Source::file("s.cresc", "style \"house.toml\"\n".to_string());
-        let within = crate::paths::within(&d.join("story"), &[]);
-        let named = |value: &str| Str {
-            value: value.to_string(),
-            span: 6..18,
-        };
-        let mut diags = Vec::new();
-        let story = d.join("story");
-        assert!(load(&src, &story, &named("house.toml"), &within, &mut diags).is_none());
-        assert_eq!(diags.len(), 1, "{diags:?}");
-        assert_eq!(diags[0].code, "path-outside");
-        assert!(!format!("{diags:?}").contains("Secret"));
-        let own = load(&src, &story, &named("own.toml"), &within, &mut Vec::new());
-        assert_eq!(own.and_then(|s| s.headline_size), Some(30.0));
-        let _ = std::fs::remove_dir_all(&d);
     }
 
     #[test]

@@ -22,7 +22,7 @@ use crescendo_lang::ast::{
 };
 use crescendo_lang::visit::{walk_expr, Visit};
 
-use crate::resolve::Tables;
+use crate::tables::Tables;
 
 /// The result of a value: a number, a point in time, or a text.
 #[derive(Clone, Debug, PartialEq)]

@@ -10,13 +10,15 @@
 //! styles plugin output like built-in output and the lint can see it.
 //!
 //! Plugins are native code that runs with the rights of the user who builds
-//! the deck: load only plugins you would run as programs.
+//! the deck: load only plugins you would run as programs. This crate holds
+//! no loader (no `libloading`, no hashing): the drawing model, the renderer
+//! and plugin authors need only the messages, their validation and the SDK;
+//! `crescendo-plugin-host` loads and calls libraries.
 
 pub mod abi;
-pub mod file;
-pub mod host;
 pub mod message;
 pub mod sdk;
+pub mod validate;
 
 pub use abi::{Descriptor, OutBuffer, ABI_VERSION, ENTRY_SYMBOL};
 pub use message::*;

@@ -5,13 +5,13 @@
 //! where it covers the fewest other labels and lines.
 
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, faint_fill, number, tick_style, Obstacles, Rect};
+use crate::kit::{self, faint_fill, Obstacles, Rect};
 use crate::layout::map;
-use crate::line::LineLayout;
+use crate::line_layout::LineLayout;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{Annotation, LineChart, Role};
+use crescendo_frame::{Annotation, LineChart, Role};
 
 /// Widest a callout's text may be before it wraps (at 16 px labels;
 /// [`Theme::label_scaled`]).
@@ -43,7 +43,7 @@ fn bounds(theme: &Theme, l: &LineLayout) -> Rect {
 
 /// Draws the bands and reference lines, under the data.
 pub(crate) fn draw_under(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &LineChart,
     l: &LineLayout,
@@ -98,18 +98,30 @@ fn choose(cands: &[Rect], obstacles: &Obstacles, bounds: &Rect, first_clear: boo
 /// and callouts, avoiding every text already in `obstacles` and, as far as
 /// possible, the line segments in it.
 pub(crate) fn draw_over(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &LineChart,
     l: &LineLayout,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let (xm, ym) = (xmap(chart, l), ymap(chart, l));
+    band_names(canvas, theme, chart, l, obstacles)?;
+    reference_names(canvas, theme, chart, l, obstacles)?;
+    end_values(canvas, theme, chart, l, obstacles)?;
+    callouts(canvas, theme, chart, l, obstacles)
+}
+
+/// Band names at the top left inside the band, a row lower if taken.
+fn band_names(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &LineChart,
+    l: &LineLayout,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let xm = xmap(chart, l);
     let lh = line_height(theme.label_size);
     let area = bounds(theme, l);
     let plot_w = l.plot_right - l.plot_left;
-
-    // Band names at the top left inside the band, a row lower if taken.
     for a in &chart.annotations {
         let Annotation::Band {
             from,
@@ -142,9 +154,22 @@ pub(crate) fn draw_over(
             kit::put(canvas, obstacles, &plain(theme, &text, r))?;
         }
     }
+    Ok(())
+}
 
-    // Reference names at the right end, above the line (else below, else
-    // at the left end).
+/// Reference names at the right end, above the line (else below, else at
+/// the left end).
+fn reference_names(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &LineChart,
+    l: &LineLayout,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let ym = ymap(chart, l);
+    let lh = line_height(theme.label_size);
+    let area = bounds(theme, l);
+    let plot_w = l.plot_right - l.plot_left;
     for a in &chart.annotations {
         let Annotation::Reference { value, text } = a else {
             continue;
@@ -198,19 +223,24 @@ pub(crate) fn draw_over(
             kit::put(canvas, obstacles, &plain(theme, &text, r))?;
         }
     }
+    Ok(())
+}
 
-    // Values at the first and last point of the focus lines (of every
-    // visible line when none is in focus), formatted like the y ticks.
+/// Values at the first and last point of the focus lines (of every
+/// visible line when none is in focus), as the plan wrote them.
+fn end_values(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &LineChart,
+    l: &LineLayout,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let (xm, ym) = (xmap(chart, l), ymap(chart, l));
+    let lh = line_height(theme.label_size);
+    let area = bounds(theme, l);
     if chart.end_labels {
-        let any_focus = chart.series.iter().any(|s| s.role == Role::Focus);
-        let (decimals, commas) = tick_style(&chart.y);
         for s in &chart.series {
-            let wanted = match s.role {
-                Role::Focus => true,
-                Role::Context => !any_focus,
-                Role::Hidden => false,
-            };
-            if !wanted {
+            if s.end_values.is_empty() {
                 continue;
             }
             let finite = || {
@@ -230,8 +260,10 @@ pub(crate) fn draw_over(
                 if k == 1 && ends[0] == ends[1] {
                     continue;
                 }
-                let text = number(y, decimals, commas);
-                let w = text_width(&text, theme.label_size, bold);
+                let Some(text) = s.end_values.get(k) else {
+                    continue;
+                };
+                let w = text_width(text, theme.label_size, bold);
                 let p = (xm(x), ym(y));
                 let d = 8.0;
                 let side = if k == 0 { p.0 + d } else { p.0 - d - w };
@@ -272,7 +304,7 @@ pub(crate) fn draw_over(
                         canvas,
                         obstacles,
                         &Label {
-                            text: &text,
+                            text,
                             x: r.x0,
                             top: r.y0,
                             size: theme.label_size,
@@ -285,8 +317,21 @@ pub(crate) fn draw_over(
             }
         }
     }
+    Ok(())
+}
 
-    // Callouts last: they have the most freedom.
+/// Callouts, last: they have the most freedom.
+fn callouts(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &LineChart,
+    l: &LineLayout,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let (xm, ym) = (xmap(chart, l), ymap(chart, l));
+    let lh = line_height(theme.label_size);
+    let area = bounds(theme, l);
+    let plot_w = l.plot_right - l.plot_left;
     for a in &chart.annotations {
         let Annotation::Callout { x, y, text } = a else {
             continue;

@@ -3,18 +3,18 @@
 //! bars right-align them in a column at the left. Focus bars carry their
 //! value at the bar end; hidden bars leave their slot empty.
 
+use crate::axis;
+use crate::band::{self, Band, VALUE_GAP};
 use crate::canvas::{Align, Canvas, Label, WIDTH};
-use crate::kit;
+use crate::kit::Obstacles;
 use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{Bar, BarChart, Orientation, Role};
+use crescendo_frame::{Bar, BarChart, Orientation, Role};
 
 /// Space between a label column and the plot.
 const PAD: f64 = 12.0;
-/// Space between a bar end and its value label.
-const VALUE_GAP: f64 = 6.0;
 /// Share of a category band filled by the bar.
 const BAR_SHARE: f64 = 0.62;
 /// Widest category column of horizontal bars, as a share of the canvas.
@@ -47,7 +47,7 @@ fn muted_label<'a>(theme: &Theme, text: &'a str, x: f64, top: f64, align: Align)
 }
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &BarChart,
     region: Region,
@@ -60,7 +60,7 @@ pub(crate) fn draw(
 }
 
 fn vertical(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &BarChart,
     region: Region,
@@ -68,6 +68,8 @@ fn vertical(
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let domain = value_domain(chart);
+    // bar charts place nothing around their labels
+    let mut obstacles = Obstacles::default();
     let ticks = layout::visible_ticks(&chart.value);
     let tick_w = max_width(
         ticks.iter().map(|(_, l)| l.as_str()),
@@ -94,29 +96,29 @@ fn vertical(
 
     let mut top = region.top;
     if let Some(title) = chart.value.title.as_deref() {
-        let text = layout::fit_label_at(
-            theme.label_size,
+        axis::title(
+            canvas,
+            &mut obstacles,
+            theme,
             title,
             region.right - region.left,
-            1,
-            false,
-        )
-        .join(" ");
-        canvas.text(&muted_label(theme, &text, region.left, top, Align::Start))?;
+            (region.left, top),
+            Align::Start,
+        )?;
         top += lh + 8.0;
     }
     let mut bottom = region.bottom;
     if let Some(title) = chart.category_title.as_deref() {
         bottom -= lh;
-        let text = layout::fit_label_at(theme.label_size, title, plot_right - plot_left, 1, false)
-            .join(" ");
-        canvas.text(&muted_label(
+        axis::title(
+            canvas,
+            &mut obstacles,
             theme,
-            &text,
-            (plot_left + plot_right) / 2.0,
-            bottom,
+            title,
+            plot_right - plot_left,
+            ((plot_left + plot_right) / 2.0, bottom),
             Align::Middle,
-        ))?;
+        )?;
         bottom -= 6.0;
     }
     let cat_top = bottom - (cat_lines - 1) as f64 * step - lh;
@@ -128,36 +130,36 @@ fn vertical(
     }
     let vmap = |v: f64| map(v, domain, value_bottom, value_top);
 
-    let spans: Vec<(f64, f64)> = ticks
-        .iter()
-        .map(|(v, _)| (vmap(*v) - lh / 2.0, vmap(*v) + lh / 2.0))
-        .collect();
-    for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
-        if keep {
-            canvas.text(&muted_label(
-                theme,
-                text,
-                region.left + tick_w,
-                vmap(*v) - lh / 2.0,
-                Align::End,
-            ))?;
-        }
-    }
+    let (size, right) = (theme.label_size, region.left + tick_w);
+    axis::column(
+        canvas,
+        &mut obstacles,
+        theme,
+        size,
+        &chart.value,
+        vmap,
+        right,
+    )?;
 
     let zero = vmap(0.0);
-    kit::gridlines(
+    axis::gridlines(
         canvas,
         theme,
         &chart.value,
         vmap,
         plot_left,
         plot_right,
-        kit::Across::Rows,
+        axis::Across::Rows,
         Some(zero),
     )?;
     let bar_w = (band * BAR_SHARE).min(160.0);
+    let bands = Band {
+        orientation: Orientation::Vertical,
+        start: plot_left,
+        size: band,
+    };
     for (i, bar) in chart.bars.iter().enumerate() {
-        let centre = plot_left + (i as f64 + 0.5) * band;
+        let centre = bands.centre(i);
         for (k, line) in layout::fit_label_at(theme.label_size, &bar.label, cat_w, cat_lines, false)
             .iter()
             .enumerate()
@@ -175,39 +177,56 @@ fn vertical(
         else {
             continue;
         };
-        let end = vmap(value);
-        canvas.rect(
-            (centre - bar_w / 2.0, zero),
-            (centre + bar_w / 2.0, end),
+        marks(
+            canvas,
+            theme,
+            &bands,
+            i,
+            bar_w,
+            (zero, vmap(value)),
+            bar,
             color,
         )?;
-        if bar.role == Role::Focus {
-            let label_top = if value >= 0.0 {
-                end - VALUE_GAP - lh
-            } else {
-                end + VALUE_GAP
-            };
-            canvas.text(&Label {
-                text: &crate::metrics::normalize(&bar.value_label),
-                x: centre,
-                top: label_top,
-                size: theme.label_size,
-                bold: true,
-                color: theme.accent,
-                align: Align::Middle,
-            })?;
-        }
     }
-    canvas.line(
-        (plot_left, zero),
-        (plot_right, zero),
-        theme.baseline,
-        theme.baseline_stroke,
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    bands.rule(
+        canvas,
+        (plot_left, plot_right),
+        zero,
+        baseline.0,
+        baseline.1,
+    )
+}
+
+/// Bar `i`'s mark from `zero` to `end` and, in focus, its value.
+#[allow(clippy::too_many_arguments)]
+fn marks(
+    canvas: &Canvas,
+    theme: &Theme,
+    bands: &Band,
+    i: usize,
+    thickness: f64,
+    (zero, end): (f64, f64),
+    bar: &Bar,
+    color: crate::theme::Rgb,
+) -> Result<(), RenderError> {
+    let positive = bar.value.is_some_and(|v| v >= 0.0);
+    let label = (bar.role == Role::Focus).then_some(bar.value_label.as_str());
+    band::bar(
+        canvas,
+        theme,
+        bands,
+        i,
+        thickness,
+        (zero, end),
+        positive,
+        color,
+        label,
     )
 }
 
 fn horizontal(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &BarChart,
     region: Region,
@@ -215,31 +234,25 @@ fn horizontal(
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let domain = value_domain(chart);
-    let ticks = layout::visible_ticks(&chart.value);
+    // bar charts place nothing around their labels
+    let mut obstacles = Obstacles::default();
 
     let mut top = region.top;
     if let Some(title) = chart.category_title.as_deref() {
-        let text = layout::fit_label_at(
-            theme.label_size,
+        axis::title(
+            canvas,
+            &mut obstacles,
+            theme,
             title,
             region.right - region.left,
-            1,
-            false,
-        )
-        .join(" ");
-        canvas.text(&muted_label(theme, &text, region.left, top, Align::Start))?;
+            (region.left, top),
+            Align::Start,
+        )?;
         top += lh + 8.0;
     }
     let plot_top = top;
-    let mut bottom = region.bottom;
-    let value_title_top = chart.value.title.as_ref().map(|_| {
-        bottom -= lh;
-        let t = bottom;
-        bottom -= 4.0;
-        t
-    });
-    let tick_top = bottom - lh;
-    let plot_bottom = tick_top - 8.0;
+    let titled = chart.value.title.is_some();
+    let (value_title_top, tick_top, plot_bottom) = axis::bottom_rows(region.bottom, lh, titled);
 
     let n = chart.bars.len().max(1);
     let band = (plot_bottom - plot_top) / n as f64;
@@ -249,12 +262,7 @@ fn horizontal(
         theme.label_size,
         false,
     );
-    let col_w = widest.min(cap);
-    let cat_lines = if widest > cap && band >= 2.0 * step {
-        2
-    } else {
-        1
-    };
+    let (col_w, cat_lines) = band::name_column(widest, cap, band, step);
     let col_right = region.left + col_w;
     let plot_left = col_right + PAD;
     let plot_right = region.right;
@@ -265,88 +273,36 @@ fn horizontal(
         theme.label_size,
         true,
     );
-    let right_pad = if domain[1] > 0.0 {
-        value_w + VALUE_GAP
-    } else {
-        0.0
-    };
-    let left_pad = if domain[0] < 0.0 {
-        value_w + VALUE_GAP
-    } else {
-        0.0
-    };
+    let (left_pad, right_pad) = band::end_room(domain, value_w, true);
     let (value_left, value_right) = (plot_left + left_pad, plot_right - right_pad);
     let vmap = |v: f64| map(v, domain, value_left, value_right);
 
-    if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
-        let text = layout::fit_label_at(theme.label_size, title, plot_right - plot_left, 1, false)
-            .join(" ");
-        canvas.text(&muted_label(
-            theme,
-            &text,
-            (value_left + value_right) / 2.0,
-            t,
-            Align::Middle,
-        ))?;
-    }
-    let placed: Vec<(f64, String)> = ticks
-        .iter()
-        .map(|(v, text)| {
-            let w = text_width(text, theme.label_size, false);
-            (
-                vmap(*v)
-                    .max(region.left + w / 2.0)
-                    .min(plot_right - w / 2.0),
-                text.clone(),
-            )
-        })
-        .collect();
-    let spans: Vec<(f64, f64)> = placed
-        .iter()
-        .map(|(c, t)| {
-            let w = text_width(t, theme.label_size, false);
-            (c - w / 2.0, c + w / 2.0)
-        })
-        .collect();
-    for ((centre, text), keep) in placed.iter().zip(layout::thin(&spans, 12.0)) {
-        if keep {
-            canvas.text(&muted_label(theme, text, *centre, tick_top, Align::Middle))?;
-        }
-    }
-
+    let row = axis::Row {
+        top: tick_top,
+        lo: region.left,
+        hi: plot_right,
+        gap: 12.0,
+        fit: axis::Fit::AsWritten,
+        keep_left: false,
+    };
+    let under = axis::Under {
+        title: value_title_top
+            .map(|t| (t, plot_right - plot_left, (value_left + value_right) / 2.0)),
+        row,
+        across: (plot_top, plot_bottom),
+        skip_zero: true,
+    };
+    axis::under(canvas, &mut obstacles, theme, &chart.value, vmap, under)?;
     let zero = vmap(0.0);
-    kit::gridlines(
-        canvas,
-        theme,
-        &chart.value,
-        vmap,
-        plot_top,
-        plot_bottom,
-        kit::Across::Columns,
-        Some(zero),
-    )?;
     let bar_h = (band * BAR_SHARE).min(56.0);
-    let labels: Vec<(f64, Vec<String>)> = chart
-        .bars
-        .iter()
-        .enumerate()
-        .map(|(i, bar)| {
-            let centre = plot_top + (i as f64 + 0.5) * band;
-            let lines = layout::fit_label_at(theme.label_size, &bar.label, col_w, cat_lines, false);
-            let first_top = centre - ((lines.len().max(1) - 1) as f64 * step + lh) / 2.0;
-            (first_top, lines)
-        })
-        .collect();
-    // Safety net for more categories than rows: never let labels collide.
-    let spans: Vec<(f64, f64)> = labels
-        .iter()
-        .map(|(t, lines)| (*t, t + (lines.len().max(1) - 1) as f64 * step + lh))
-        .collect();
-    let keep = layout::thin(&spans, 0.0);
+    let bands = Band {
+        orientation: Orientation::Horizontal,
+        start: plot_top,
+        size: band,
+    };
+    let labels = name_rows(theme, chart, &bands, col_w, cat_lines);
     for (i, bar) in chart.bars.iter().enumerate() {
-        let centre = plot_top + (i as f64 + 0.5) * band;
         let (first_top, lines) = &labels[i];
-        let lines: &[String] = if keep[i] { lines } else { &[] };
         for (k, line) in lines.iter().enumerate() {
             canvas.text(&muted_label(
                 theme,
@@ -361,33 +317,58 @@ fn horizontal(
         else {
             continue;
         };
-        let end = vmap(value);
-        canvas.rect(
-            (zero, centre - bar_h / 2.0),
-            (end, centre + bar_h / 2.0),
+        marks(
+            canvas,
+            theme,
+            &bands,
+            i,
+            bar_h,
+            (zero, vmap(value)),
+            bar,
             color,
         )?;
-        if bar.role == Role::Focus {
-            let (x, align) = if value >= 0.0 {
-                (end + VALUE_GAP, Align::Start)
-            } else {
-                (end - VALUE_GAP, Align::End)
-            };
-            canvas.text(&Label {
-                text: &crate::metrics::normalize(&bar.value_label),
-                x,
-                top: centre - lh / 2.0,
-                size: theme.label_size,
-                bold: true,
-                color: theme.accent,
-                align,
-            })?;
-        }
     }
-    canvas.line(
-        (zero, plot_top),
-        (zero, plot_bottom),
-        theme.baseline,
-        theme.baseline_stroke,
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    bands.rule(
+        canvas,
+        (plot_top, plot_bottom),
+        zero,
+        baseline.0,
+        baseline.1,
     )
+}
+
+/// The names of horizontal bars, centred on their bands in a column
+/// `col_w` wide: each name's first top and lines, no lines for a name
+/// dropped so that none collide (a safety net for more bars than rows).
+fn name_rows(
+    theme: &Theme,
+    chart: &BarChart,
+    bands: &Band,
+    col_w: f64,
+    cat_lines: usize,
+) -> Vec<(f64, Vec<String>)> {
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
+    let labels: Vec<(f64, Vec<String>)> = chart
+        .bars
+        .iter()
+        .enumerate()
+        .map(|(i, bar)| {
+            let centre = bands.centre(i);
+            let lines = layout::fit_label_at(theme.label_size, &bar.label, col_w, cat_lines, false);
+            let first_top = centre - ((lines.len().max(1) - 1) as f64 * step + lh) / 2.0;
+            (first_top, lines)
+        })
+        .collect();
+    let spans: Vec<(f64, f64)> = labels
+        .iter()
+        .map(|(t, lines)| (*t, t + (lines.len().max(1) - 1) as f64 * step + lh))
+        .collect();
+    let keep = layout::thin(&spans, 0.0);
+    labels
+        .into_iter()
+        .zip(keep)
+        .map(|((top, lines), keep)| (top, if keep { lines } else { Vec::new() }))
+        .collect()
 }

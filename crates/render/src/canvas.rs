@@ -1,90 +1,26 @@
-//! A thin drawing surface over plotters' SVG backend in our own terms: text
-//! positioned by the top of its box, lines, polylines and filled rectangles.
-//!
-//! Every text is written with plotters' top anchor (`dy="0.76em"`), so the
-//! box of a text whose `y` attribute is `y` spans
-//! `y + 0.76·size − ascent .. y + 0.76·size + descent` ([`crate::inspect`]
-//! computes exactly this).
+//! The drawing surface layout draws on, in our own terms: text positioned
+//! by the top of its box, lines, polylines, filled rectangles, dots and
+//! polygons. It draws nothing itself: every call appends an item to a
+//! display list ([`crescendo_look::display`]), which [`crate::svg`] writes
+//! as SVG through plotters.
 
-use crate::metrics;
+use std::cell::RefCell;
+
+pub use crescendo_look::display::Align;
+use crescendo_look::display::{text_box, Item, Part, Text};
+pub use crescendo_look::theme::{FONT_FAMILY, HEIGHT, WIDTH};
+
 use crate::theme::Rgb;
 use crate::RenderError;
-use plotters::backend::SVGBackend;
-use plotters::coord::Shift;
-use plotters::drawing::{DrawingArea, IntoDrawingArea};
-use plotters::element::{Circle, PathElement, Polygon, Rectangle};
-use plotters::style::text_anchor::{HPos, Pos, VPos};
-use plotters::style::{FontDesc, FontFamily, FontStyle, RGBColor, ShapeStyle, TextStyle};
-use std::sync::OnceLock;
-
-/// Canvas width in px.
-pub const WIDTH: u32 = 1280;
-/// Canvas height in px.
-pub const HEIGHT: u32 = 720;
-
-/// The font family string written into the SVG; the bundled DejaVu Sans is
-/// registered with plotters under this same name.
-pub const FONT_FAMILY: &str = "DejaVu Sans, Helvetica, Arial, sans-serif";
-
-/// plotters' SVG backend writes `font-size` as the requested size / 1.24.
-const PLOTTERS_SIZE_DIVISOR: f64 = 1.24;
-
-/// The `dy` plotters writes for [`VPos::Top`], in em.
-pub(crate) const TOP_DY_EM: f64 = 0.76;
-
-/// Registers DejaVu Sans regular and bold with plotters (once per process).
-pub(crate) fn register_fonts() -> Result<(), RenderError> {
-    static DONE: OnceLock<Result<(), String>> = OnceLock::new();
-    DONE.get_or_init(|| {
-        plotters::style::register_font(FONT_FAMILY, FontStyle::Normal, dejavu::sans::regular())
-            .map_err(|_| "cannot load the bundled DejaVu Sans regular font".to_string())?;
-        plotters::style::register_font(FONT_FAMILY, FontStyle::Bold, dejavu::sans::bold())
-            .map_err(|_| "cannot load the bundled DejaVu Sans bold font".to_string())
-    })
-    .clone()
-    .map_err(RenderError::new)
-}
-
-/// The size to request from plotters so that the SVG says exactly
-/// `font-size="{target}"`: the smallest float `s` near `target · 1.24` with
-/// `s / 1.24 == target`.
-pub(crate) fn requested_size(target: f64) -> f64 {
-    let base = target * PLOTTERS_SIZE_DIVISOR;
-    if base / PLOTTERS_SIZE_DIVISOR == target {
-        return base;
-    }
-    for k in 1..64u64 {
-        for candidate in [
-            f64::from_bits(base.to_bits() + k),
-            f64::from_bits(base.to_bits() - k),
-        ] {
-            if candidate / PLOTTERS_SIZE_DIVISOR == target {
-                return candidate;
-            }
-        }
-    }
-    base
-}
-
-/// Horizontal alignment of a text relative to its `x`.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Align {
-    /// `x` is the left edge.
-    Start,
-    /// `x` is the centre.
-    Middle,
-    /// `x` is the right edge.
-    End,
-}
 
 /// One piece of text to draw.
 #[derive(Clone, Debug)]
 pub struct Label<'a> {
-    /// The text, already fitted (plotters escapes it).
+    /// The text, already fitted (the writer escapes it).
     pub text: &'a str,
     /// Anchor position along x (see [`Label::align`]).
     pub x: f64,
-    /// Top of the text box (see [`metrics::line_height`]).
+    /// Top of the text box (see [`crate::metrics::line_height`]).
     pub top: f64,
     /// Font size in px, as it will appear in the SVG.
     pub size: f64,
@@ -96,66 +32,72 @@ pub struct Label<'a> {
     pub align: Align,
 }
 
-fn rgb(c: Rgb) -> RGBColor {
-    RGBColor(c.0, c.1, c.2)
+/// Records what layout draws, in order, into a display list. Groups
+/// ([`Canvas::group`]) nest.
+#[derive(Default)]
+pub struct Canvas {
+    /// The open groups, innermost last; the first is the whole list.
+    open: RefCell<Vec<(Option<Part>, Vec<Item>)>>,
 }
 
-fn px(v: f64) -> i32 {
-    if v.is_finite() {
-        v.round().clamp(-1.0e6, 1.0e6) as i32
-    } else {
-        0
-    }
-}
-
-fn err<E: std::fmt::Display>(e: E) -> RenderError {
-    RenderError::new(format!("drawing failed: {e}"))
-}
-
-/// Draws onto an SVG string held by the caller.
-pub struct Canvas<'b> {
-    area: DrawingArea<SVGBackend<'b>, Shift>,
-}
-
-impl<'b> Canvas<'b> {
-    /// Starts a 1280×720 SVG document in `buf`. Nothing is painted: the
-    /// background stays transparent.
-    pub fn new(buf: &'b mut String) -> Result<Self, RenderError> {
-        register_fonts()?;
-        Ok(Self {
-            area: SVGBackend::with_string(buf, (WIDTH, HEIGHT)).into_drawing_area(),
-        })
+impl Canvas {
+    /// An empty 1280×720 canvas. Nothing is painted: the background stays
+    /// transparent.
+    pub fn new() -> Self {
+        Self {
+            open: RefCell::new(vec![(None, Vec::new())]),
+        }
     }
 
-    /// Draws one line of text (the caller has measured and fitted it).
+    fn push(&self, item: Item) -> Result<(), RenderError> {
+        let mut open = self.open.borrow_mut();
+        match open.last_mut() {
+            Some((_, items)) => {
+                items.push(item);
+                Ok(())
+            }
+            None => Err(RenderError::new("drawing failed: the canvas is closed")),
+        }
+    }
+
+    /// Runs `draw` with everything it draws collected into one group that
+    /// says what it is.
+    pub fn group<T>(
+        &self,
+        part: Part,
+        draw: impl FnOnce() -> Result<T, RenderError>,
+    ) -> Result<T, RenderError> {
+        self.open.borrow_mut().push((Some(part), Vec::new()));
+        let result = draw();
+        let closed = self.open.borrow_mut().pop();
+        if let Some((Some(part), items)) = closed {
+            self.push(Item::Group { part, items })?;
+        }
+        result
+    }
+
+    /// One line of text (the caller has measured and fitted it).
     pub fn text(&self, label: &Label<'_>) -> Result<(), RenderError> {
         if label.text.is_empty() {
             return Ok(());
         }
-        let style = if label.bold {
-            FontStyle::Bold
-        } else {
-            FontStyle::Normal
-        };
-        let font = FontDesc::new(
-            FontFamily::Name(FONT_FAMILY),
-            requested_size(label.size),
-            style,
-        );
-        let color = rgb(label.color);
-        let h = match label.align {
-            Align::Start => HPos::Left,
-            Align::Middle => HPos::Center,
-            Align::End => HPos::Right,
-        };
-        let text_style = TextStyle::from(font)
-            .color(&color)
-            .pos(Pos::new(h, VPos::Top));
-        // Baseline sits at y + 0.76 em; the box top is baseline − ascent.
-        let y = label.top + metrics::ascent(label.size) - TOP_DY_EM * label.size;
-        self.area
-            .draw_text(label.text, &text_style, (px(label.x), px(y)))
-            .map_err(err)
+        self.push(Item::Text(Text {
+            text: label.text.to_string(),
+            x: label.x,
+            top: label.top,
+            size: label.size,
+            bold: label.bold,
+            color: label.color,
+            align: label.align,
+            bounds: text_box(
+                label.text,
+                label.x,
+                label.top,
+                label.size,
+                label.bold,
+                label.align,
+            ),
+        }))
     }
 
     /// A straight line.
@@ -179,42 +121,21 @@ impl<'b> Canvas<'b> {
         if points.len() < 2 {
             return Ok(());
         }
-        let pts: Vec<(i32, i32)> = points.iter().map(|&(x, y)| (px(x), px(y))).collect();
-        let style = ShapeStyle {
-            color: rgb(color).into(),
-            filled: false,
-            stroke_width: width,
-        };
-        self.area.draw(&PathElement::new(pts, style)).map_err(err)
+        self.push(Item::Polyline {
+            points: points.to_vec(),
+            color,
+            width,
+        })
     }
 
     /// A filled dot, used only for a data point with no neighbour to join.
     pub fn dot(&self, at: (f64, f64), radius: u32, color: Rgb) -> Result<(), RenderError> {
-        let style = ShapeStyle {
-            color: rgb(color).into(),
-            filled: true,
-            stroke_width: 0,
-        };
-        self.area
-            .draw(&Circle::new((px(at.0), px(at.1)), radius, style))
-            .map_err(err)
+        self.push(Item::Dot { at, radius, color })
     }
 
     /// A filled rectangle between two corners (any order).
     pub fn rect(&self, a: (f64, f64), b: (f64, f64), color: Rgb) -> Result<(), RenderError> {
-        let (x0, x1) = (px(a.0.min(b.0)), px(a.0.max(b.0)));
-        let (y0, y1) = (px(a.1.min(b.1)), px(a.1.max(b.1)));
-        if x1 <= x0 || y1 <= y0 {
-            return Ok(());
-        }
-        let style = ShapeStyle {
-            color: rgb(color).into(),
-            filled: true,
-            stroke_width: 0,
-        };
-        self.area
-            .draw(&Rectangle::new([(x0, y0), (x1, y1)], style))
-            .map_err(err)
+        self.push(Item::Rect { a, b, color })
     }
 
     /// A filled polygon without outline (pie slices).
@@ -222,18 +143,17 @@ impl<'b> Canvas<'b> {
         if points.len() < 3 {
             return Ok(());
         }
-        let pts: Vec<(i32, i32)> = points.iter().map(|&(x, y)| (px(x), px(y))).collect();
-        let style = ShapeStyle {
-            color: rgb(color).into(),
-            filled: true,
-            stroke_width: 0,
-        };
-        self.area.draw(&Polygon::new(pts, style)).map_err(err)
+        self.push(Item::Polygon {
+            points: points.to_vec(),
+            color,
+        })
     }
 
-    /// Closes the document.
-    pub fn finish(self) -> Result<(), RenderError> {
-        self.area.present().map_err(err)
+    /// The items drawn, in order.
+    pub fn finish(self) -> Vec<Item> {
+        let mut open = self.open.into_inner();
+        open.truncate(1);
+        open.pop().map(|(_, items)| items).unwrap_or_default()
     }
 }
 
@@ -242,43 +162,36 @@ mod tests {
     use super::*;
 
     #[test]
-    fn requested_sizes_come_out_exact() {
-        use crate::layout::*;
-        for target in [
-            SOURCE_SIZE,
-            LABEL_SIZE,
-            TAKEAWAY_SIZE,
-            HEADLINE_SIZE,
-            18.0,
-            24.0,
-        ] {
-            let s = requested_size(target);
-            assert_eq!(format!("{}", s / 1.24), format!("{target}"));
-        }
-    }
-
-    #[test]
-    fn font_size_attribute_is_the_intended_size() {
-        let mut buf = String::new();
-        {
-            let c = Canvas::new(&mut buf).unwrap();
-            c.text(&Label {
-                text: "Hi",
-                x: 10.0,
-                top: 10.0,
-                size: 32.0,
-                bold: true,
-                color: Rgb(0, 0, 0),
-                align: Align::Start,
-            })
-            .unwrap();
-            c.finish().unwrap();
-        }
-        assert!(buf.contains("font-size=\"32\""), "{buf}");
-        assert!(
-            buf.contains(&format!("font-family=\"{FONT_FAMILY}\"")),
-            "{buf}"
-        );
-        assert!(buf.contains("font-weight=\"bold\""));
+    fn groups_nest_in_drawing_order() {
+        let c = Canvas::new();
+        c.line((0.0, 0.0), (1.0, 1.0), Rgb(0, 0, 0), 1).unwrap();
+        c.group(Part::Source, || {
+            c.rect((0.0, 0.0), (2.0, 2.0), Rgb(1, 1, 1))?;
+            c.group(Part::Chart, || c.dot((1.0, 1.0), 2, Rgb(2, 2, 2)))
+        })
+        .unwrap();
+        c.text(&Label {
+            text: "",
+            x: 0.0,
+            top: 0.0,
+            size: 16.0,
+            bold: false,
+            color: Rgb(0, 0, 0),
+            align: Align::Start,
+        })
+        .unwrap();
+        let items = c.finish();
+        assert_eq!(items.len(), 2, "empty text is not recorded");
+        let Item::Group { part, items } = &items[1] else {
+            panic!("{items:?}")
+        };
+        assert_eq!(*part, Part::Source);
+        assert!(matches!(
+            items[1],
+            Item::Group {
+                part: Part::Chart,
+                ..
+            }
+        ));
     }
 }

@@ -5,13 +5,14 @@
 //! top row. Focus dots are in the accent, context dots grey; hidden rows and
 //! series keep their place empty.
 
+use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, mix, muted_label, spread_widths, Obstacles};
+use crate::kit::{self, mix, spread_widths, Obstacles};
 use crate::layout::{self, fit_label_at, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{DotChart, Role};
+use crescendo_frame::{DotChart, DotRow, Role};
 
 /// Dot radius in px (smaller when rows are tight).
 const DOT: f64 = 6.0;
@@ -23,7 +24,7 @@ const MAX_SERIES_LABEL: f64 = 240.0;
 const MAX_CATEGORY_SHARE: f64 = 0.32;
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &DotChart,
     region: Region,
@@ -33,25 +34,14 @@ pub(crate) fn draw(
     let mut obstacles = Obstacles::default();
     let mut top = region.top;
     if let Some(title) = chart.category_title.as_deref() {
-        let text = fit_label_at(
-            theme.label_size,
-            title,
-            region.right - region.left,
-            1,
-            false,
-        )
-        .join(" ");
-        kit::put(
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                region.left,
-                top,
-                Align::Start,
-            ),
+            theme,
+            title,
+            region.right - region.left,
+            (region.left, top),
+            Align::Start,
         )?;
         top += lh + 8.0;
     }
@@ -61,15 +51,8 @@ pub(crate) fn draw(
         top += lh + 6.0;
     }
     let plot_top = top;
-    let mut bottom = region.bottom;
-    let value_title_top = chart.value.title.as_ref().map(|_| {
-        bottom -= lh;
-        let t = bottom;
-        bottom -= 4.0;
-        t
-    });
-    let tick_top = bottom - lh;
-    let plot_bottom = tick_top - 8.0;
+    let titled = chart.value.title.is_some();
+    let (value_title_top, tick_top, plot_bottom) = axis::bottom_rows(region.bottom, lh, titled);
 
     let widest = max_width(
         chart.rows.iter().map(|r| r.label.as_str()),
@@ -85,58 +68,27 @@ pub(crate) fn draw(
     let value_right = region.right - DOT;
     let vmap = |v: f64| map(v, chart.value.domain, value_left, value_right);
 
-    if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
-        let text =
-            fit_label_at(theme.label_size, title, value_right - value_left, 1, false).join(" ");
-        kit::put(
-            canvas,
-            &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                (value_left + value_right) / 2.0,
-                t,
-                Align::Middle,
-            ),
-        )?;
-    }
-    let ticks: Vec<(f64, f64, String)> = layout::visible_ticks(&chart.value)
-        .into_iter()
-        .map(|(v, text)| {
-            let w = text_width(&text, theme.label_size, false);
+    let row = axis::Row {
+        top: tick_top,
+        lo: col_right + PAD,
+        hi: region.right,
+        gap: 12.0,
+        fit: axis::Fit::AsWritten,
+        keep_left: false,
+    };
+    let under = axis::Under {
+        title: value_title_top.map(|t| {
             (
-                vmap(v)
-                    .max(col_right + PAD + w / 2.0)
-                    .min(region.right - w / 2.0),
-                w,
-                text,
+                t,
+                value_right - value_left,
+                (value_left + value_right) / 2.0,
             )
-        })
-        .collect();
-    let spans: Vec<(f64, f64)> = ticks
-        .iter()
-        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
-        .collect();
-    for ((c, _, text), keep) in ticks.iter().zip(layout::thin(&spans, 12.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &muted_label(theme, theme.label_size, text, *c, tick_top, Align::Middle),
-            )?;
-        }
-    }
-    kit::gridlines(
-        canvas,
-        theme,
-        &chart.value,
-        vmap,
-        plot_top,
-        plot_bottom,
-        kit::Across::Columns,
-        None,
-    )?;
+        }),
+        row,
+        across: (plot_top, plot_bottom),
+        skip_zero: false,
+    };
+    axis::under(canvas, &mut obstacles, theme, &chart.value, vmap, under)?;
     canvas.line(
         (col_right + PAD, plot_bottom),
         (region.right, plot_bottom),
@@ -151,7 +103,6 @@ pub(crate) fn draw(
         .collect();
     let keep = layout::thin(&spans, 0.0);
     let any_focus_series = chart.series.iter().any(|s| s.role == Role::Focus);
-    let range_color = mix(theme.context, theme.page, 0.45);
     for (i, row) in chart.rows.iter().enumerate() {
         let y = centre(i);
         if keep.get(i).copied().unwrap_or(false) && row.role != Role::Hidden {
@@ -175,81 +126,123 @@ pub(crate) fn draw(
         if row.role == Role::Hidden {
             continue;
         }
-        let visible: Vec<(f64, Role)> = chart
-            .series
-            .iter()
-            .zip(&row.values)
-            .filter(|(s, _)| s.role != Role::Hidden)
-            .filter_map(|(s, v)| v.filter(|v| v.is_finite()).map(|v| (vmap(v), s.role)))
-            .collect();
-        if visible.len() > 1 {
-            let lo = visible.iter().map(|v| v.0).fold(f64::INFINITY, f64::min);
-            let hi = visible
-                .iter()
-                .map(|v| v.0)
-                .fold(f64::NEG_INFINITY, f64::max);
-            canvas.line((lo, y), (hi, y), range_color, 2)?;
-        }
-        // Context dots first, focus dots on top.
-        for pass in [false, true] {
-            for &(x, role) in &visible {
-                let focus = role == Role::Focus || (!any_focus_series && row.role == Role::Focus);
-                if focus == pass {
-                    let color = if focus { theme.accent } else { theme.context };
-                    canvas.dot((x, y), radius.round() as u32, color)?;
-                }
-            }
-        }
+        let focus_row = !any_focus_series && row.role == Role::Focus;
+        row_marks(canvas, theme, chart, row, (y, radius), vmap, focus_row)?;
     }
 
     // Series names above the top row, over each series' first dot.
     if several {
-        let mut wanted: Vec<(f64, f64, usize, String)> = chart
-            .series
+        let span = (col_right + PAD, region.right);
+        name_series(
+            canvas,
+            theme,
+            chart,
+            vmap,
+            span,
+            series_row_top,
+            &mut obstacles,
+        )?;
+    }
+    Ok(())
+}
+
+/// The names of several series in a row at `top`, each over its first dot,
+/// spread apart inside `lo..hi`.
+fn name_series(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &DotChart,
+    vmap: impl Fn(f64) -> f64,
+    (lo, hi): (f64, f64),
+    series_row_top: f64,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let mut wanted: Vec<(f64, f64, usize, String)> = chart
+        .series
+        .iter()
+        .enumerate()
+        .filter_map(|(k, s)| {
+            let x = chart
+                .rows
+                .iter()
+                .find_map(|r| r.values.get(k).copied().flatten().filter(|v| v.is_finite()))
+                .map(&vmap)?;
+            let text = metrics::ellipsize(
+                &metrics::normalize(&s.name),
+                theme.label_size,
+                true,
+                theme.label_scaled(MAX_SERIES_LABEL),
+            );
+            Some((x, text_width(&text, theme.label_size, true), k, text))
+        })
+        .collect();
+    wanted.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.2.cmp(&b.2)));
+    let centres = spread_widths(
+        &wanted.iter().map(|w| w.0).collect::<Vec<_>>(),
+        &wanted.iter().map(|w| w.1).collect::<Vec<_>>(),
+        14.0,
+        lo,
+        hi,
+    );
+    for ((_, _, k, text), c) in wanted.iter().zip(centres) {
+        let (color, bold) = match chart.series[*k].role {
+            Role::Hidden => continue,
+            Role::Focus => (theme.accent, true),
+            Role::Context => (theme.context_text, false),
+        };
+        kit::put(
+            canvas,
+            obstacles,
+            &Label {
+                text,
+                x: c,
+                top: series_row_top,
+                size: theme.label_size,
+                bold,
+                color,
+                align: Align::Middle,
+            },
+        )?;
+    }
+    Ok(())
+}
+
+/// One row's marks: a light line over the range of its visible values
+/// when it has several, then its dots, context first, focus on top
+/// (`focus_row`: every dot of the row is in focus).
+fn row_marks(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &DotChart,
+    row: &DotRow,
+    (y, radius): (f64, f64),
+    vmap: impl Fn(f64) -> f64,
+    focus_row: bool,
+) -> Result<(), RenderError> {
+    let range_color = mix(theme.context, theme.page, 0.45);
+    let visible: Vec<(f64, Role)> = chart
+        .series
+        .iter()
+        .zip(&row.values)
+        .filter(|(s, _)| s.role != Role::Hidden)
+        .filter_map(|(s, v)| v.filter(|v| v.is_finite()).map(|v| (vmap(v), s.role)))
+        .collect();
+    if visible.len() > 1 {
+        let lo = visible.iter().map(|v| v.0).fold(f64::INFINITY, f64::min);
+        let hi = visible
             .iter()
-            .enumerate()
-            .filter_map(|(k, s)| {
-                let x = chart
-                    .rows
-                    .iter()
-                    .find_map(|r| r.values.get(k).copied().flatten().filter(|v| v.is_finite()))
-                    .map(vmap)?;
-                let text = metrics::ellipsize(
-                    &metrics::normalize(&s.name),
-                    theme.label_size,
-                    true,
-                    theme.label_scaled(MAX_SERIES_LABEL),
-                );
-                Some((x, text_width(&text, theme.label_size, true), k, text))
-            })
-            .collect();
-        wanted.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.2.cmp(&b.2)));
-        let centres = spread_widths(
-            &wanted.iter().map(|w| w.0).collect::<Vec<_>>(),
-            &wanted.iter().map(|w| w.1).collect::<Vec<_>>(),
-            14.0,
-            col_right + PAD,
-            region.right,
-        );
-        for ((_, _, k, text), c) in wanted.iter().zip(centres) {
-            let (color, bold) = match chart.series[*k].role {
-                Role::Hidden => continue,
-                Role::Focus => (theme.accent, true),
-                Role::Context => (theme.context_text, false),
-            };
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text,
-                    x: c,
-                    top: series_row_top,
-                    size: theme.label_size,
-                    bold,
-                    color,
-                    align: Align::Middle,
-                },
-            )?;
+            .map(|v| v.0)
+            .fold(f64::NEG_INFINITY, f64::max);
+        canvas.line((lo, y), (hi, y), range_color, 2)?;
+    }
+    // Context dots first, focus dots on top.
+    for pass in [false, true] {
+        for &(x, role) in &visible {
+            let focus = role == Role::Focus || focus_row;
+            if focus == pass {
+                let color = if focus { theme.accent } else { theme.context };
+                canvas.dot((x, y), radius.round() as u32, color)?;
+            }
         }
     }
     Ok(())

@@ -8,7 +8,7 @@ use crate::layout::Region;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{FigureChart, Role};
+use crescendo_frame::{FigureChart, Role};
 
 /// Size of a figure when it fits its column, in px (bold). (120 cannot be
 /// written exactly through plotters' `size / 1.24`; 118 can.)
@@ -31,14 +31,14 @@ const FIGURE_TO_CAPTION: f64 = 10.0;
 /// takeaway, which the SVG always states exactly).
 fn caption_size(theme: &Theme) -> f64 {
     let mut size = theme.takeaway_size + (CAPTION_SIZE - crate::layout::TAKEAWAY_SIZE);
-    while size > theme.takeaway_size && crate::canvas::requested_size(size) / 1.24 != size {
+    while size > theme.takeaway_size && crate::svg::requested_size(size) / 1.24 != size {
         size -= 1.0;
     }
     size.max(theme.takeaway_size)
 }
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &FigureChart,
     region: Region,
@@ -64,7 +64,7 @@ pub(crate) fn draw(
         FIGURE_SIZE
     };
     // The largest whole size at most that which the SVG states exactly.
-    while size > MIN_FIGURE_SIZE && crate::canvas::requested_size(size) / 1.24 != size {
+    while size > MIN_FIGURE_SIZE && crate::svg::requested_size(size) / 1.24 != size {
         size -= 1.0;
     }
     let caption_size = caption_size(theme);

@@ -6,9 +6,44 @@
 
 use crate::inspect::{canvas_size, text_boxes, TextBox};
 use crate::render_frame;
-use crescendo_plan::*;
+use crescendo_frame::*;
 
 const ACCENT: &str = "#B4400A";
+
+/// A tick label as the planner writes one: at most one decimal, no
+/// trailing zeros, thousands grouped.
+fn tick_label(v: f64) -> String {
+    let s = format!("{:.1}", v.abs());
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    let (int, frac) = s.split_once('.').unwrap_or((s, ""));
+    let body = grouped_digits(int)
+        + &if frac.is_empty() {
+            String::new()
+        } else {
+            format!(".{frac}")
+        };
+    if v < 0.0 && body.chars().any(|c| c.is_ascii_digit() && c != '0') {
+        format!("-{body}")
+    } else {
+        body
+    }
+}
+
+/// A whole number with thousands separators, as the planner writes one.
+fn grouped(n: usize) -> String {
+    grouped_digits(&n.to_string())
+}
+
+fn grouped_digits(digits: &str) -> String {
+    let mut out = String::new();
+    for (i, c) in digits.chars().enumerate() {
+        if i > 0 && (digits.len() - i).is_multiple_of(3) {
+            out.push(',');
+        }
+        out.push(c);
+    }
+    out
+}
 
 fn axis(title: Option<&str>, domain: [f64; 2], ticks: &[f64]) -> Axis {
     Axis {
@@ -19,7 +54,7 @@ fn axis(title: Option<&str>, domain: [f64; 2], ticks: &[f64]) -> Axis {
             .iter()
             .map(|v| Tick {
                 value: *v,
-                label: crate::kit::number(*v, 1, true),
+                label: tick_label(*v),
             })
             .collect(),
         grid: false,
@@ -377,6 +412,7 @@ fn scatter_chart(hide: bool) -> Chart {
             slope: 0.6,
             intercept: 9.0,
             r: Some(0.8204),
+            label: "fit: r = 0.82".to_string(),
         }),
     })
 }
@@ -473,7 +509,7 @@ fn table_chart(rows: usize, hide: bool) -> Chart {
             .map(|i| TableRow {
                 cells: vec![
                     names[i % names.len()].to_string(),
-                    crate::kit::number(1234.0 * (i + 1) as f64, 0, true),
+                    grouped(1234 * (i + 1)),
                     format!("+{}%", i * 3),
                 ],
                 role: match i {
@@ -519,6 +555,26 @@ fn table() {
     assert!(boxes
         .iter()
         .any(|b| b.text.starts_with('…') && b.text.ends_with("more rows")));
+}
+
+#[test]
+fn a_spotlighted_row_beyond_the_visible_rows_is_drawn() {
+    let mut chart = table_chart(60, false);
+    if let Chart::Table(t) = &mut chart {
+        t.rows[55].role = Role::Focus;
+    }
+    let svg = render(chart);
+    let boxes = check(&svg);
+    // row 55 ("+165%" in its last column) is drawn, in the accent, after
+    // the count of the rows left out
+    let lit = find(&boxes, "+165%");
+    let note = boxes
+        .iter()
+        .find(|b| b.text.starts_with('…') && b.text.ends_with("more rows"))
+        .expect("a count of the rows left out");
+    assert!(lit.y0 > note.y0, "{lit:?} {note:?}");
+    assert!(!has(&boxes, "+162%"), "row 54 is not drawn");
+    assert_eq!(count(&svg, "text", "fill", ACCENT), 3 + 1 + 3);
 }
 
 fn pie_chart(hide: bool) -> Chart {
@@ -598,6 +654,7 @@ fn small_line(peak: f64, role: Role, domain: [f64; 2]) -> Chart {
                     y: Some(domain[0] + (peak - domain[0]) * i as f64 / 9.0),
                 })
                 .collect(),
+            end_values: Vec::new(),
         }],
         annotations: Vec::new(),
         end_labels: false,
@@ -716,6 +773,7 @@ fn annotated(end_labels: bool) -> Chart {
                     y: Some(4.0 + i as f64 * 1.3),
                 })
                 .collect(),
+            end_values: Vec::new(),
         });
         l.annotations = vec![
             Annotation::Band {
@@ -734,6 +792,10 @@ fn annotated(end_labels: bool) -> Chart {
             },
         ];
         l.end_labels = end_labels;
+        if end_labels {
+            // the values at the ends of the focus line, as the plan writes them
+            l.series[0].end_values = vec!["0".to_string(), "34".to_string()];
+        }
     }
     chart
 }
@@ -808,6 +870,7 @@ fn long_lines_are_downsampled() {
                     },
                 })
                 .collect(),
+            end_values: Vec::new(),
         }],
         annotations: Vec::new(),
         end_labels: false,

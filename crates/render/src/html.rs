@@ -3,7 +3,7 @@
 //! No network access: no external scripts, styles, fonts or images.
 
 use crate::theme::{self, Rgb, Theme};
-use crescendo_plan::{DeckPlan, FramePlan};
+use crescendo_frame::{DeckPlan, FramePlan};
 use std::fmt::Write;
 
 /// Escapes text for HTML element content and attribute values.

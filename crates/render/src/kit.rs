@@ -1,14 +1,10 @@
 //! Small shared pieces for the chart forms: colour steps derived from the
-//! theme, text boxes and obstacle scoring for label placement, number
-//! formatting for labels the plan does not format, horizontal
-//! de-overlapping of labels of different widths, and plain x/y axes.
+//! theme, text boxes and obstacle scoring for label placement, and
+//! horizontal de-overlapping of labels of different widths.
 
 use crate::canvas::{Align, Canvas, Label};
-use crate::layout::{self, fit_label_at, map, max_width, Region};
-use crate::metrics::{self, line_height, text_width};
 use crate::theme::{Rgb, Theme};
 use crate::RenderError;
-use crescendo_plan::Axis;
 
 /// Linear blend from `a` (t = 0) to `b` (t = 1) in sRGB, rounded.
 pub(crate) fn mix(a: Rgb, b: Rgb, t: f64) -> Rgb {
@@ -43,85 +39,11 @@ pub(crate) fn faint_fill(theme: &Theme) -> Rgb {
     mix(theme.page, theme.context, 0.14)
 }
 
-/// An axis-aligned rectangle in px.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub(crate) struct Rect {
-    pub x0: f64,
-    pub y0: f64,
-    pub x1: f64,
-    pub y1: f64,
-}
+pub(crate) use crescendo_look::display::Rect;
 
-impl Rect {
-    /// Area shared with `other` (0 when apart or touching).
-    pub fn overlap(&self, other: &Rect) -> f64 {
-        let dx = self.x1.min(other.x1) - self.x0.max(other.x0);
-        let dy = self.y1.min(other.y1) - self.y0.max(other.y0);
-        if dx > 0.0 && dy > 0.0 {
-            dx * dy
-        } else {
-            0.0
-        }
-    }
-
-    /// The rectangle grown by `m` on every side.
-    pub fn grow(&self, m: f64) -> Rect {
-        Rect {
-            x0: self.x0 - m,
-            y0: self.y0 - m,
-            x1: self.x1 + m,
-            y1: self.y1 + m,
-        }
-    }
-
-    /// True if `self` lies inside `outer`.
-    pub fn inside(&self, outer: &Rect) -> bool {
-        self.x0 >= outer.x0 && self.y0 >= outer.y0 && self.x1 <= outer.x1 && self.y1 <= outer.y1
-    }
-
-    /// Whether the segment `a`–`b` passes through the rectangle
-    /// (Liang–Barsky clipping).
-    pub fn hit_by(&self, a: (f64, f64), b: (f64, f64)) -> bool {
-        let (dx, dy) = (b.0 - a.0, b.1 - a.1);
-        let mut t0: f64 = 0.0;
-        let mut t1: f64 = 1.0;
-        for (p, q) in [
-            (-dx, a.0 - self.x0),
-            (dx, self.x1 - a.0),
-            (-dy, a.1 - self.y0),
-            (dy, self.y1 - a.1),
-        ] {
-            if p == 0.0 {
-                if q < 0.0 {
-                    return false;
-                }
-            } else {
-                let r = q / p;
-                if p < 0.0 {
-                    t0 = t0.max(r);
-                } else {
-                    t1 = t1.min(r);
-                }
-            }
-        }
-        t0 <= t1
-    }
-}
-
-/// The box of one line of text as [`crate::inspect`] will measure it.
+/// The box of one line of text as the display list measures it.
 pub(crate) fn text_rect(text: &str, x: f64, top: f64, size: f64, bold: bool, align: Align) -> Rect {
-    let w = text_width(text, size, bold);
-    let x0 = match align {
-        Align::Start => x,
-        Align::Middle => x - w / 2.0,
-        Align::End => x - w,
-    };
-    Rect {
-        x0,
-        y0: top,
-        x1: x0 + w,
-        y1: top + line_height(size),
-    }
+    crescendo_look::display::text_box(text, x, top, size, bold, align)
 }
 
 /// The box a [`Label`] occupies.
@@ -168,7 +90,7 @@ impl Obstacles {
 
 /// Draws `label` and records its box.
 pub(crate) fn put(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     obstacles: &mut Obstacles,
     label: &Label<'_>,
 ) -> Result<(), RenderError> {
@@ -177,76 +99,6 @@ pub(crate) fn put(
     }
     obstacles.boxes.push(label_rect(label));
     canvas.text(label)
-}
-
-/// Digits after the decimal point in the axis' tick labels (the most of
-/// any tick), and whether they group thousands with commas.
-pub(crate) fn tick_style(axis: &Axis) -> (usize, bool) {
-    // With a story locale the labels use its symbols; read the style from
-    // the same labels written the crescendo way.
-    let ascii: Vec<String> = if crescendo_data::locale::current().locale.is_some() {
-        let values: Vec<f64> = axis.ticks.iter().map(|t| t.value).collect();
-        let step = match values.as_slice() {
-            [a, b, ..] => b - a,
-            _ => 0.0,
-        };
-        crescendo_data::format::tick_labels_ascii(&values, step)
-    } else {
-        axis.ticks.iter().map(|t| t.label.clone()).collect()
-    };
-    let decimals = ascii
-        .iter()
-        .map(|label| {
-            label
-                .split_once('.')
-                .map(|(_, f)| f.chars().take_while(char::is_ascii_digit).count())
-                .unwrap_or(0)
-        })
-        .max()
-        .unwrap_or(0);
-    let commas = ascii.iter().any(|label| label.contains(','));
-    (decimals, commas)
-}
-
-/// `v` with `decimals` digits, trailing zeros (and a bare point) removed,
-/// thousands grouped when `commas`, and the ASCII minus the project uses.
-pub(crate) fn number(v: f64, decimals: usize, commas: bool) -> String {
-    crescendo_data::locale::localize_number(number_ascii(v, decimals, commas))
-}
-
-/// [`number`] in the crescendo convention whatever the story's locale.
-fn number_ascii(v: f64, decimals: usize, commas: bool) -> String {
-    if !v.is_finite() {
-        return String::new();
-    }
-    let mut s = format!("{:.*}", decimals, v.abs());
-    if s.contains('.') {
-        s = s.trim_end_matches('0').trim_end_matches('.').to_string();
-    }
-    let (int, frac) = match s.split_once('.') {
-        Some((i, f)) => (i.to_string(), format!(".{f}")),
-        None => (s.clone(), String::new()),
-    };
-    let int = if commas && int.len() > 3 {
-        let digits: Vec<char> = int.chars().collect();
-        let mut out = String::new();
-        for (i, c) in digits.iter().enumerate() {
-            if i > 0 && (digits.len() - i).is_multiple_of(3) {
-                out.push(',');
-            }
-            out.push(*c);
-        }
-        out
-    } else {
-        int
-    };
-    let body = format!("{int}{frac}");
-    let zero = body.chars().all(|c| c == '0' || c == '.' || c == ',');
-    if v < 0.0 && !zero {
-        format!("-{body}")
-    } else {
-        body
-    }
 }
 
 /// Places labels of different widths along one line as close as possible
@@ -291,239 +143,6 @@ pub(crate) fn spread_widths(
     c
 }
 
-/// Geometry of a plain x/y plot: y ticks right-aligned at the left, an
-/// optional y title above them, x ticks and an optional x title below.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub(crate) struct XyLayout {
-    /// Left edge of the region (where the y title starts).
-    pub left: f64,
-    pub y_title_top: Option<f64>,
-    pub x_title_top: Option<f64>,
-    pub tick_right: f64,
-    pub plot_left: f64,
-    pub plot_right: f64,
-    pub plot_top: f64,
-    pub plot_bottom: f64,
-    pub x_tick_top: f64,
-    /// Tick label size.
-    pub size: f64,
-}
-
-/// Space between tick labels and the plot.
-pub(crate) const PAD: f64 = 12.0;
-
-/// Lays out an x/y plot in `region`, leaving `right_reserve` px free at the
-/// right; `y_ticks` false drops the tick column (small multiples).
-pub(crate) fn xy_layout(
-    x: &Axis,
-    y: &Axis,
-    region: Region,
-    right_reserve: f64,
-    size: f64,
-    y_ticks: bool,
-) -> XyLayout {
-    let lh = line_height(size);
-    let mut top = region.top;
-    let y_title_top = y.title.as_ref().map(|_| {
-        let t = top;
-        top += lh + 8.0;
-        t
-    });
-    let mut bottom = region.bottom;
-    let x_title_top = x.title.as_ref().map(|_| {
-        bottom -= lh;
-        let t = bottom;
-        bottom -= 4.0;
-        t
-    });
-    let x_tick_top = bottom - lh;
-    let ticks = layout::visible_ticks(y);
-    let tick_w = if y_ticks {
-        max_width(ticks.iter().map(|(_, l)| l.as_str()), size, false)
-    } else {
-        0.0
-    };
-    XyLayout {
-        left: region.left,
-        y_title_top,
-        x_title_top,
-        tick_right: region.left + tick_w,
-        plot_left: if tick_w > 0.0 {
-            region.left + tick_w + PAD
-        } else {
-            region.left
-        },
-        plot_right: region.right - right_reserve,
-        plot_top: top + lh / 2.0,
-        plot_bottom: x_tick_top - 8.0,
-        x_tick_top,
-        size,
-    }
-}
-
-/// Which way gridlines run across the plot.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub(crate) enum Across {
-    /// Horizontal lines at the measure's ticks on a vertical axis.
-    Rows,
-    /// Vertical lines at the measure's ticks on a horizontal axis.
-    Columns,
-}
-
-/// Light gridlines (`gridlines`) at each visible tick of the measure's
-/// axis: 1 px in the theme's grid colour, from `from` to `to` across the
-/// plot, where `at` maps a value to its position along the axis. Drawn
-/// before the data so they stay under it; a tick on the baseline (`skip`,
-/// the baseline's position) gets none, since the baseline is drawn there.
-/// Nothing is drawn when the axis does not ask for gridlines.
-#[allow(clippy::too_many_arguments)]
-pub(crate) fn gridlines(
-    canvas: &Canvas<'_>,
-    theme: &Theme,
-    axis: &Axis,
-    at: impl Fn(f64) -> f64,
-    from: f64,
-    to: f64,
-    across: Across,
-    skip: Option<f64>,
-) -> Result<(), RenderError> {
-    if !axis.grid {
-        return Ok(());
-    }
-    for (v, _) in layout::visible_ticks(axis) {
-        let p = at(v);
-        if !p.is_finite() || skip.is_some_and(|s| (s - p).abs() < 0.5) {
-            continue;
-        }
-        let (a, b) = match across {
-            Across::Rows => ((from, p), (to, p)),
-            Across::Columns => ((p, from), (p, to)),
-        };
-        canvas.line(a, b, theme.grid, 1)?;
-    }
-    Ok(())
-}
-
-/// Draws the titles, tick labels, gridlines (when the y axis asks for
-/// them) and baseline of an x/y plot; records the text boxes in `obstacles`. `y_ticks` false leaves the y labels out (the
-/// plot keeps its place).
-pub(crate) fn draw_xy_axes(
-    canvas: &Canvas<'_>,
-    theme: &Theme,
-    x: &Axis,
-    y: &Axis,
-    l: &XyLayout,
-    y_ticks: bool,
-    obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
-    let lh = line_height(l.size);
-    let size = l.size;
-    fn muted<'a>(
-        theme: &Theme,
-        size: f64,
-        text: &'a str,
-        x: f64,
-        top: f64,
-        align: Align,
-    ) -> Label<'a> {
-        muted_label(theme, size, text, x, top, align)
-    }
-    if let (Some(top), Some(title)) = (l.y_title_top, y.title.as_deref()) {
-        let text = fit_one(title, l.plot_right - l.left, l.size);
-        put(
-            canvas,
-            obstacles,
-            &muted(theme, size, &text, l.left, top, Align::Start),
-        )?;
-    }
-    if let (Some(top), Some(title)) = (l.x_title_top, x.title.as_deref()) {
-        let text = fit_one(title, l.plot_right - l.plot_left, l.size);
-        put(
-            canvas,
-            obstacles,
-            &muted(
-                theme,
-                size,
-                &text,
-                (l.plot_left + l.plot_right) / 2.0,
-                top,
-                Align::Middle,
-            ),
-        )?;
-    }
-    let ymap = |v: f64| map(v, y.domain, l.plot_bottom, l.plot_top);
-    let xmap = |v: f64| map(v, x.domain, l.plot_left, l.plot_right);
-    if y_ticks {
-        let ticks = layout::visible_ticks(y);
-        let spans: Vec<(f64, f64)> = ticks
-            .iter()
-            .map(|(v, _)| (ymap(*v) - lh / 2.0, ymap(*v) + lh / 2.0))
-            .collect();
-        for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
-            if keep {
-                put(
-                    canvas,
-                    obstacles,
-                    &muted(
-                        theme,
-                        size,
-                        text,
-                        l.tick_right,
-                        ymap(*v) - lh / 2.0,
-                        Align::End,
-                    ),
-                )?;
-            }
-        }
-    }
-    let width = l.plot_right - l.plot_left;
-    let x_ticks: Vec<(f64, f64, String)> = layout::visible_ticks(x)
-        .into_iter()
-        .map(|(v, text)| {
-            let text = metrics::ellipsize(&text, l.size, false, width.max(0.0));
-            let w = text_width(&text, l.size, false);
-            let centre = xmap(v)
-                .max(l.plot_left + w / 2.0)
-                .min(l.plot_right - w / 2.0);
-            (centre, w, text)
-        })
-        .collect();
-    let spans: Vec<(f64, f64)> = x_ticks
-        .iter()
-        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
-        .collect();
-    for ((centre, _, text), keep) in x_ticks.iter().zip(layout::thin(&spans, 12.0)) {
-        if keep {
-            put(
-                canvas,
-                obstacles,
-                &muted(theme, size, text, *centre, l.x_tick_top, Align::Middle),
-            )?;
-        }
-    }
-    gridlines(
-        canvas,
-        theme,
-        y,
-        ymap,
-        l.plot_left,
-        l.plot_right,
-        Across::Rows,
-        Some(l.plot_bottom),
-    )?;
-    canvas.line(
-        (l.plot_left, l.plot_bottom),
-        (l.plot_right, l.plot_bottom),
-        theme.baseline,
-        theme.baseline_stroke,
-    )
-}
-
-/// One line of text fitted into `width` at `size`.
-pub(crate) fn fit_one(text: &str, width: f64, size: f64) -> String {
-    fit_label_at(size, text, width.max(0.0), 1, false).join(" ")
-}
-
 /// A muted (tick, title, category) label.
 pub(crate) fn muted_label<'a>(
     theme: &Theme,
@@ -549,18 +168,6 @@ mod tests {
     use super::*;
 
     #[test]
-    fn numbers_trim_and_group() {
-        assert_eq!(number(34.0, 0, false), "34");
-        assert_eq!(number(0.8200, 2, false), "0.82");
-        assert_eq!(number(0.80, 2, false), "0.8");
-        assert_eq!(number(1.0, 2, false), "1");
-        assert_eq!(number(-0.004, 2, false), "0");
-        assert_eq!(number(-12.5, 1, false), "-12.5");
-        assert_eq!(number(1234567.0, 0, true), "1,234,567");
-        assert_eq!(number(f64::NAN, 0, true), "");
-    }
-
-    #[test]
     fn greys_run_dark_to_light_and_differ() {
         let g = context_greys(&crate::theme::CLEAR, 4);
         assert_eq!(g.len(), 4);
@@ -571,20 +178,6 @@ mod tests {
             context_greys(&crate::theme::CLEAR, 1),
             vec![crate::theme::CLEAR.context]
         );
-    }
-
-    #[test]
-    fn segments_hit_rectangles() {
-        let r = Rect {
-            x0: 0.0,
-            y0: 0.0,
-            x1: 10.0,
-            y1: 10.0,
-        };
-        assert!(r.hit_by((-5.0, 5.0), (15.0, 5.0)));
-        assert!(!r.hit_by((-5.0, 15.0), (15.0, 15.0)));
-        assert!(r.hit_by((5.0, 5.0), (6.0, 6.0)));
-        assert!(!r.hit_by((11.0, -1.0), (20.0, 5.0)));
     }
 
     #[test]

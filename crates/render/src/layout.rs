@@ -11,24 +11,12 @@ use crate::canvas::{Align, Canvas, Label, HEIGHT, WIDTH};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{Axis, DeckPlan, FramePlan};
+use crescendo_frame::{Axis, DeckPlan, FramePlan};
+use crescendo_look::display::Part;
 
-/// Headline size in px (bold). (30 cannot be written exactly through
-/// plotters' `size / 1.24`; 32 can.)
-pub const HEADLINE_SIZE: f64 = 32.0;
-/// Takeaway size in px.
-pub const TAKEAWAY_SIZE: f64 = 20.0;
-/// Tick labels, axis titles, category labels and direct labels, in px.
-pub const LABEL_SIZE: f64 = 16.0;
-/// Source note size in px; the smallest text drawn.
-pub const SOURCE_SIZE: f64 = 14.0;
-
-/// Left and right page margin.
-pub const MARGIN_X: f64 = 56.0;
-/// Top page margin (to the top of the headline box).
-pub const MARGIN_TOP: f64 = 36.0;
-/// Bottom page margin (below the source note box).
-pub const MARGIN_BOTTOM: f64 = 26.0;
+pub use crescendo_look::theme::{
+    HEADLINE_SIZE, LABEL_SIZE, MARGIN_BOTTOM, MARGIN_TOP, MARGIN_X, SOURCE_SIZE, TAKEAWAY_SIZE,
+};
 
 /// Line pitch of wrapped headlines and takeaways, as a multiple of the size
 /// (40 px for the 32 px headline, 25 px for the 20 px takeaway).
@@ -156,36 +144,50 @@ fn source_top(theme: &Theme) -> f64 {
 /// Draws the headline, takeaway and source note of `frame` and returns the
 /// region left for the chart, which depends only on the frame's sequence.
 pub fn draw_page(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     deck: &DeckPlan,
     frame: &FramePlan,
 ) -> Result<Region, RenderError> {
     let header = Header::of(frame, theme);
     let margin_x = theme.margin_x;
-    for (i, line) in header.headline.iter().enumerate() {
-        canvas.text(&Label {
-            text: line,
-            x: margin_x,
-            top: theme.margin_top + i as f64 * theme.headline_size * LINE_PITCH,
-            size: theme.headline_size,
-            bold: true,
-            color: theme.headline,
-            align: Align::Start,
-        })?;
-    }
+    let needed = metrics::wrap(
+        &frame.headline,
+        theme.headline_size,
+        true,
+        theme.text_column(),
+        usize::MAX,
+    )
+    .len();
+    canvas.group(Part::Headline { needed }, || {
+        for (i, line) in header.headline.iter().enumerate() {
+            canvas.text(&Label {
+                text: line,
+                x: margin_x,
+                top: theme.margin_top + i as f64 * theme.headline_size * LINE_PITCH,
+                size: theme.headline_size,
+                bold: true,
+                color: theme.headline,
+                align: Align::Start,
+            })?;
+        }
+        Ok(())
+    })?;
     let takeaway_top = header.takeaway_top();
-    for (i, line) in header.takeaway.iter().enumerate() {
-        canvas.text(&Label {
-            text: line,
-            x: margin_x,
-            top: takeaway_top + i as f64 * theme.takeaway_size * LINE_PITCH,
-            size: theme.takeaway_size,
-            bold: false,
-            color: theme.takeaway,
-            align: Align::Start,
-        })?;
-    }
+    canvas.group(Part::Takeaway, || {
+        for (i, line) in header.takeaway.iter().enumerate() {
+            canvas.text(&Label {
+                text: line,
+                x: margin_x,
+                top: takeaway_top + i as f64 * theme.takeaway_size * LINE_PITCH,
+                size: theme.takeaway_size,
+                bold: false,
+                color: theme.takeaway,
+                align: Align::Start,
+            })?;
+        }
+        Ok(())
+    })?;
     // A draft build marks frames whose texts rest on a claim the data no
     // longer supports: bold, in the accent colour, at the bottom right.
     let notice = frame.notices.join("  ·  ");
@@ -194,27 +196,31 @@ pub fn draw_page(
     } else {
         let half = theme.text_column() / 2.0 - 12.0;
         let text = metrics::ellipsize(&notice, theme.source_size, true, half);
-        canvas.text(&Label {
-            text: &text,
-            x: WIDTH as f64 - margin_x,
-            top: source_top(theme),
-            size: theme.source_size,
-            bold: true,
-            color: theme.accent,
-            align: Align::End,
+        canvas.group(Part::Notices, || {
+            canvas.text(&Label {
+                text: &text,
+                x: WIDTH as f64 - margin_x,
+                top: source_top(theme),
+                size: theme.source_size,
+                bold: true,
+                color: theme.accent,
+                align: Align::End,
+            })
         })?;
         half
     };
     if let Some(source) = source_of(deck, frame) {
         let text = metrics::ellipsize(&source, theme.source_size, false, source_width);
-        canvas.text(&Label {
-            text: &text,
-            x: margin_x,
-            top: source_top(theme),
-            size: theme.source_size,
-            bold: false,
-            color: theme.muted,
-            align: Align::Start,
+        canvas.group(Part::Source, || {
+            canvas.text(&Label {
+                text: &text,
+                x: margin_x,
+                top: source_top(theme),
+                size: theme.source_size,
+                bold: false,
+                color: theme.muted,
+                align: Align::Start,
+            })
         })?;
     }
 

@@ -1,9 +1,12 @@
-//! crescendo-render: draws [`FramePlan`]s as clean SVG with plotters and
-//! assembles the self-contained HTML deck.
+//! crescendo-render: lays [`FramePlan`]s out as display lists, writes them
+//! as clean SVG with plotters, and assembles the self-contained HTML deck.
 //!
 //! The renderer owns all geometry: text measurement with the bundled DejaVu
-//! Sans ([`metrics`]), margins, label placement and de-overlapping. It never
-//! reads the story and never writes files; callers get strings back.
+//! Sans ([`metrics`]), margins, label placement and de-overlapping. Layout
+//! draws on a [`canvas::Canvas`] that records a [`DisplayList`]; [`svg`]
+//! writes it. The renderer formats nothing (every drawn string is in the
+//! plan), never reads the story and never writes files; callers get values
+//! back.
 //!
 //! Layout that positions the chart depends only on what every frame of a
 //! build-up sequence shares (axes, all series and bar names, the tallest
@@ -12,6 +15,8 @@
 #![warn(missing_docs)]
 
 mod annotate;
+mod axis;
+mod band;
 mod bars;
 pub mod canvas;
 mod dots;
@@ -21,19 +26,23 @@ pub mod inspect;
 mod kit;
 pub mod layout;
 mod line;
+mod line_layout;
 pub mod lttb;
-pub mod metrics;
 mod panels;
 mod parts;
 mod pie;
 pub mod plugin;
 mod scatter;
+pub mod svg;
 mod table;
 pub mod theme;
 
-use crescendo_plan::{Chart, DeckPlan, FramePlan};
+use crescendo_frame::{Chart, DeckPlan, FramePlan};
+use crescendo_look::display::Part;
 use std::fmt;
 
+pub use crescendo_look::display::DisplayList;
+pub use crescendo_look::metrics;
 pub use html::{render_deck_html, with_extra_script};
 pub use lttb::lttb;
 pub use theme::{Rgb, Theme};
@@ -77,30 +86,44 @@ pub fn render_frame_with(
     frame: &FramePlan,
     plugins: Option<&dyn plugin::PluginDrawer>,
 ) -> Result<String, RenderError> {
-    // numbers the renderer formats itself follow the deck's locale
-    crescendo_data::locale::scoped(deck.conventions(), || draw_frame(deck, frame, plugins))
+    let theme = theme::effective(deck)?;
+    let list = lay_out(deck, frame, &theme, plugins)?;
+    let description = list.description.as_deref().unwrap_or(&frame.description);
+    svg::write(&list, &theme, frame.number, &frame.headline, description)
 }
 
-fn draw_frame(
+/// Lays one frame out without writing SVG: every item it draws, positioned,
+/// with its role ([`DisplayList`]). [`render_frame_with`] writes exactly
+/// this list as SVG.
+pub fn display_list(
     deck: &DeckPlan,
     frame: &FramePlan,
     plugins: Option<&dyn plugin::PluginDrawer>,
-) -> Result<String, RenderError> {
-    let theme = &theme::effective(deck)?;
+) -> Result<DisplayList, RenderError> {
+    lay_out(deck, frame, &theme::effective(deck)?, plugins)
+}
+
+fn lay_out(
+    deck: &DeckPlan,
+    frame: &FramePlan,
+    theme: &Theme,
+    plugins: Option<&dyn plugin::PluginDrawer>,
+) -> Result<DisplayList, RenderError> {
     let mut plugin_description = None;
-    let mut buf = String::new();
-    {
-        let canvas = canvas::Canvas::new(&mut buf)?;
-        if let Some(page) = theme.background {
-            // A dark theme or a house style with a page colour paints the
-            // whole canvas first.
+    let canvas = canvas::Canvas::new();
+    if let Some(page) = theme.background {
+        // A dark theme or a house style with a page colour paints the
+        // whole canvas first.
+        canvas.group(Part::Page, || {
             canvas.rect(
                 (0.0, 0.0),
                 (f64::from(canvas::WIDTH), f64::from(canvas::HEIGHT)),
                 page,
-            )?;
-        }
-        let region = layout::draw_page(&canvas, theme, deck, frame)?;
+            )
+        })?;
+    }
+    let region = layout::draw_page(&canvas, theme, deck, frame)?;
+    canvas.group(Part::Chart, || {
         match &frame.chart {
             Chart::Line(chart) => line::draw(&canvas, theme, chart, region)?,
             Chart::Bars(chart) => bars::draw(&canvas, theme, chart, region)?,
@@ -115,45 +138,18 @@ fn draw_frame(
                 plugin_description = plugin::draw(&canvas, theme, chart, region, plugins)?;
             }
         }
-        canvas.finish()?;
-    }
-    // A house style's font stack and sizes, written as the style says.
-    let buf = theme::restyle_svg(buf, theme);
-    match plugin_description {
-        // A plugin's own description of its panel says more than the
-        // planner's generic one.
-        Some(d) => {
-            let mut f = frame.clone();
-            f.description = match &frame.takeaway {
-                Some(t) => format!("{d} Takeaway: {t}"),
-                None => d,
-            };
-            Ok(with_text_alternative(&buf, &f))
-        }
-        None => Ok(with_text_alternative(&buf, frame)),
-    }
-}
-
-/// Give the SVG a title (the headline) and a description (the frame's text
-/// alternative generated from the data), exposed to screen readers as an
-/// image with a name and a description.
-fn with_text_alternative(svg: &str, frame: &FramePlan) -> String {
-    let Some(start) = svg.find("<svg") else {
-        return svg.to_string();
-    };
-    let Some(close) = svg[start..].find('>').map(|i| start + i) else {
-        return svg.to_string();
-    };
-    let n = frame.number;
-    let mut out = String::with_capacity(svg.len() + frame.description.len() + 256);
-    out.push_str(&svg[..close]);
-    out.push_str(&format!(
-        " role=\"img\" aria-labelledby=\"frame-{n}-title\" aria-describedby=\"frame-{n}-desc\">\n<title id=\"frame-{n}-title\">{}</title>\n<desc id=\"frame-{n}-desc\">{}</desc>",
-        html::escape(&frame.headline),
-        html::escape(&frame.description)
-    ));
-    out.push_str(&svg[close + 1..]);
-    out
+        Ok(())
+    })?;
+    // A plugin's own description of its panel says more than the planner's
+    // generic one.
+    let description = plugin_description.map(|d| match &frame.takeaway {
+        Some(t) => format!("{d} Takeaway: {t}"),
+        None => d,
+    });
+    Ok(DisplayList {
+        items: canvas.finish(),
+        description,
+    })
 }
 
 #[cfg(test)]

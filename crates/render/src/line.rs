@@ -7,98 +7,18 @@
 //! points per pixel of plot width are thinned with LTTB ([`crate::lttb`]).
 
 use crate::annotate;
+use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, Obstacles};
-use crate::layout::{self, map, max_width, Region};
-use crate::metrics::{line_height, text_width};
+use crate::layout::{self, map, Region};
+use crate::line_layout::layout;
+use crate::metrics::line_height;
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{LineChart, Role, Series};
-
-/// Widest direct-label column, in px; longer labels are cut with an ellipsis.
-const MAX_LABEL_COLUMN: f64 = 280.0;
-/// Space between tick labels or direct labels and the plot.
-const PAD: f64 = 12.0;
-
-/// Plot geometry of a line chart. Depends only on the axes and the names of
-/// all series (hidden ones included), never on roles.
-#[derive(Clone, Debug, PartialEq)]
-pub(crate) struct LineLayout {
-    pub y_title_top: Option<f64>,
-    pub x_title_top: Option<f64>,
-    pub tick_column_left: f64,
-    pub tick_column_right: f64,
-    pub label_column_left: f64,
-    pub label_column_width: f64,
-    pub plot_left: f64,
-    pub plot_right: f64,
-    pub plot_top: f64,
-    pub plot_bottom: f64,
-    pub x_tick_top: f64,
-}
-
-pub(crate) fn layout(chart: &LineChart, region: Region, theme: &Theme) -> LineLayout {
-    let lh = line_height(theme.label_size);
-    let mut top = region.top;
-    let y_title_top = chart.y.title.as_ref().map(|_| {
-        let t = top;
-        top += lh + 8.0;
-        t
-    });
-    let plot_top = top + lh / 2.0;
-
-    let mut bottom = region.bottom;
-    let x_title_top = chart.x.title.as_ref().map(|_| {
-        bottom -= lh;
-        let t = bottom;
-        bottom -= 4.0;
-        t
-    });
-    let x_tick_top = bottom - lh;
-    let plot_bottom = x_tick_top - 8.0;
-
-    let y_ticks = layout::visible_ticks(&chart.y);
-    let tick_w = max_width(
-        y_ticks.iter().map(|(_, l)| l.as_str()),
-        theme.label_size,
-        false,
-    );
-    let tick_column_left = region.left;
-    let tick_column_right = region.left + tick_w;
-    let plot_left = if tick_w > 0.0 {
-        tick_column_right + PAD
-    } else {
-        region.left
-    };
-
-    let label_w = max_width(
-        chart.series.iter().map(|s| s.label.as_str()),
-        theme.label_size,
-        true,
-    )
-    .min(MAX_LABEL_COLUMN);
-    let plot_right = if label_w > 0.0 {
-        region.right - label_w - PAD
-    } else {
-        region.right
-    };
-    LineLayout {
-        y_title_top,
-        x_title_top,
-        tick_column_left,
-        tick_column_right,
-        label_column_left: plot_right + PAD,
-        label_column_width: label_w,
-        plot_left,
-        plot_right,
-        plot_top,
-        plot_bottom,
-        x_tick_top,
-    }
-}
+use crescendo_frame::{LineChart, Role, Series};
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &LineChart,
     region: Region,
@@ -114,111 +34,50 @@ pub(crate) fn draw(
 
     // Axis titles.
     if let (Some(top), Some(title)) = (l.y_title_top, chart.y.title.as_deref()) {
-        let text = layout::fit_label_at(theme.label_size, title, full, 1, false).join(" ");
-        kit::put(
-            canvas,
-            &mut obstacles,
-            &Label {
-                text: &text,
-                x: l.tick_column_left,
-                top,
-                size: theme.label_size,
-                bold: false,
-                color: theme.muted,
-                align: Align::Start,
-            },
-        )?;
+        let at = (l.tick_column_left, top);
+        axis::title(canvas, &mut obstacles, theme, title, full, at, Align::Start)?;
     }
     if let (Some(top), Some(title)) = (l.x_title_top, chart.x.title.as_deref()) {
-        let text = layout::fit_label_at(
-            theme.label_size,
-            title,
+        let (width, centre) = (
             l.plot_right - l.plot_left,
-            1,
-            false,
-        )
-        .join(" ");
-        kit::put(
+            (l.plot_left + l.plot_right) / 2.0,
+        );
+        axis::title(
             canvas,
             &mut obstacles,
-            &Label {
-                text: &text,
-                x: (l.plot_left + l.plot_right) / 2.0,
-                top,
-                size: theme.label_size,
-                bold: false,
-                color: theme.muted,
-                align: Align::Middle,
-            },
+            theme,
+            title,
+            width,
+            (centre, top),
+            Align::Middle,
         )?;
     }
 
     // Y ticks, right-aligned in their column, thinned if crowded.
-    let y_ticks = layout::visible_ticks(&chart.y);
-    let spans: Vec<(f64, f64)> = y_ticks
-        .iter()
-        .map(|(v, _)| (ymap(*v) - lh / 2.0, ymap(*v) + lh / 2.0))
-        .collect();
-    for ((v, text), keep) in y_ticks.iter().zip(layout::thin(&spans, 2.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text,
-                    x: l.tick_column_right,
-                    top: ymap(*v) - lh / 2.0,
-                    size: theme.label_size,
-                    bold: false,
-                    color: theme.muted,
-                    align: Align::End,
-                },
-            )?;
-        }
-    }
+    let size = theme.label_size;
+    let right = l.tick_column_right;
+    axis::column(canvas, &mut obstacles, theme, size, &chart.y, ymap, right)?;
 
     // X ticks, centred, the outermost clamped inside the plot.
-    let x_ticks: Vec<(f64, f64, String)> = layout::visible_ticks(&chart.x)
-        .into_iter()
-        .map(|(v, text)| {
-            let w = text_width(&text, theme.label_size, false).min(l.plot_right - l.plot_left);
-            let centre = xmap(v)
-                .max(l.plot_left + w / 2.0)
-                .min(l.plot_right - w / 2.0);
-            (centre, w, text)
-        })
-        .collect();
-    let spans: Vec<(f64, f64)> = x_ticks
-        .iter()
-        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
-        .collect();
-    for ((centre, _, text), keep) in x_ticks.iter().zip(layout::thin(&spans, 12.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text,
-                    x: *centre,
-                    top: l.x_tick_top,
-                    size: theme.label_size,
-                    bold: false,
-                    color: theme.muted,
-                    align: Align::Middle,
-                },
-            )?;
-        }
-    }
+    let row = axis::Row {
+        top: l.x_tick_top,
+        lo: l.plot_left,
+        hi: l.plot_right,
+        gap: 12.0,
+        fit: axis::Fit::Capped(l.plot_right - l.plot_left),
+        keep_left: false,
+    };
+    axis::row(canvas, &mut obstacles, theme, size, &chart.x, xmap, row)?;
 
     // Gridlines, when asked for, under everything else in the plot.
-    kit::gridlines(
+    axis::gridlines(
         canvas,
         theme,
         &chart.y,
         ymap,
         l.plot_left,
         l.plot_right,
-        kit::Across::Rows,
+        axis::Across::Rows,
         Some(l.plot_bottom),
     )?;
 
@@ -320,7 +179,7 @@ pub(crate) fn runs(
 /// when it has more; a run of one point becomes a dot so it does not
 /// vanish. Returns the runs as drawn.
 pub(crate) fn draw_runs(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     runs: &[Vec<(f64, f64)>],
     target: usize,
     color: crate::theme::Rgb,

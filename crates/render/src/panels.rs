@@ -9,6 +9,8 @@
 //!
 //! Panels name no series of their own: the panel title is the label.
 
+use crate::axis;
+use crate::band::Band;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, muted_label, Obstacles};
 use crate::layout::{self, map, max_width, Region};
@@ -16,7 +18,7 @@ use crate::line;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::{Rgb, Theme};
 use crate::RenderError;
-use crescendo_plan::{Axis, Chart, Orientation, PanelChart, Role};
+use crescendo_frame::{Axis, BarChart, Chart, LineChart, Orientation, Panel, PanelChart, Role};
 
 /// Panels per row at most.
 const MAX_COLUMNS: usize = 4;
@@ -60,7 +62,7 @@ fn mark_colour(theme: &Theme, panel: Role, own: Role) -> Option<Rgb> {
 }
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &PanelChart,
     region: Region,
@@ -95,18 +97,15 @@ pub(crate) fn draw(
     };
     let mut top = region.top;
     if let Some(title) = measure_title.as_deref() {
-        let text = kit::fit_one(title, region.right - region.left, theme.label_size);
-        kit::put(
+        let (width, at) = (region.right - region.left, (region.left, top));
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                region.left,
-                top,
-                Align::Start,
-            ),
+            theme,
+            title,
+            width,
+            at,
+            Align::Start,
         )?;
         top += lh + 8.0;
     }
@@ -121,34 +120,7 @@ pub(crate) fn draw(
     // The lead column left of each plot: y ticks (lines, vertical bars) or
     // category names (horizontal bars). With one common, untrimmed scale
     // the ticks are written only in the first column.
-    let lead_w = if across_bars {
-        let widest = chart
-            .panels
-            .iter()
-            .filter_map(|p| match &p.chart {
-                Chart::Bars(b) => Some(max_width(
-                    b.bars.iter().map(|b| b.label.as_str()),
-                    theme.source_size,
-                    false,
-                )),
-                _ => None,
-            })
-            .fold(0.0, f64::max);
-        widest.min((region.right - region.left) / cols as f64 * 0.4)
-    } else {
-        chart
-            .panels
-            .iter()
-            .filter_map(|p| value_axis(&p.chart))
-            .map(|a| {
-                max_width(
-                    layout::visible_ticks(a).iter().map(|(_, l)| l.as_str()),
-                    theme.source_size,
-                    false,
-                )
-            })
-            .fold(0.0, f64::max)
-    };
+    let lead_w = lead_width(theme, chart, across_bars, region, cols);
     let lead = if lead_w > 0.0 { lead_w + PAD } else { 0.0 };
     let shared_ticks = chart.common_scale && !chart.trimmed && !across_bars;
     let width = region.right - region.left;
@@ -167,14 +139,7 @@ pub(crate) fn draw(
     };
     let row_h = ((bottom - top - (rows - 1) as f64 * GAP_Y) / rows as f64).max(1.0);
     // Trimmed panels: the same units per pixel, each cut to its extent.
-    let max_span = chart
-        .panels
-        .iter()
-        .map(|p| {
-            let d = value_domain(&p.chart);
-            (d[1] - d[0]).abs()
-        })
-        .fold(0.0, f64::max);
+    let max_span = widest_span(chart);
 
     for (i, panel) in chart.panels.iter().enumerate() {
         let (row, col) = (i / cols, i % cols);
@@ -184,26 +149,7 @@ pub(crate) fn draw(
         let right = left + plot_w;
         if panel.role != Role::Hidden {
             let x = left - if shared_ticks && col > 0 { 0.0 } else { lead };
-            let text = metrics::ellipsize(
-                &metrics::normalize(&panel.title),
-                theme.label_size,
-                true,
-                right - x,
-            );
-            let focus = panel.role == Role::Focus;
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text: &text,
-                    x,
-                    top: cell_top,
-                    size: theme.label_size,
-                    bold: true,
-                    color: if focus { theme.accent } else { theme.takeaway },
-                    align: Align::Start,
-                },
-            )?;
+            panel_title(canvas, theme, panel, (x, right), cell_top, &mut obstacles)?;
         }
         let plot_top = cell_top + lh + 8.0 + slh / 2.0;
         let tick_top = cell_bottom - slh;
@@ -234,225 +180,339 @@ pub(crate) fn draw(
         };
         match &panel.chart {
             Chart::Line(l) => {
-                value_ticks(canvas, theme, &l.y, dom, &g, ticks_here, &mut obstacles)?;
-                x_ticks(canvas, theme, &l.x, &g, &mut obstacles)?;
-                let xmap = |x: f64| map(x, l.x.domain, g.left, g.right);
-                let ymap = |y: f64| map(y, dom, g.bottom, g.top);
-                kit::gridlines(
-                    canvas,
-                    theme,
-                    &l.y,
-                    ymap,
-                    g.left,
-                    g.right,
-                    kit::Across::Rows,
-                    Some(g.bottom),
-                )?;
-                baseline(canvas, theme, &g, false)?;
-                let target = (2.0 * (g.right - g.left)).max(3.0) as usize;
-                for pass in [Role::Context, Role::Focus] {
-                    for s in &l.series {
-                        let Some(color) = mark_colour(theme, panel.role, s.role) else {
-                            continue;
-                        };
-                        let is_focus = color == theme.accent;
-                        if is_focus != (pass == Role::Focus) {
-                            continue;
-                        }
-                        let w = if is_focus {
-                            theme.focus_stroke.min(3)
-                        } else {
-                            theme.context_stroke
-                        };
-                        line::draw_runs(canvas, &line::runs(s, &xmap, &ymap), target, color, w)?;
-                    }
-                }
+                let at = (dom, ticks_here);
+                line_panel(canvas, theme, l, panel.role, at, &g, &mut obstacles)?;
             }
             Chart::Bars(b) if across_bars => {
-                let vmap = |v: f64| map(v, dom, g.left, g.right);
-                kit::gridlines(
-                    canvas,
-                    theme,
-                    &b.value,
-                    vmap,
-                    g.top,
-                    g.bottom,
-                    kit::Across::Columns,
-                    Some(vmap(0.0)),
-                )?;
-                // Value ticks along the bottom of every panel.
-                let mut placed = Vec::new();
-                for (v, text) in layout::visible_ticks(&b.value) {
-                    let w = text_width(&text, theme.source_size, false);
-                    placed.push((
-                        vmap(v)
-                            .max(g.left + w / 2.0)
-                            .min(g.right.max(g.left + w) - w / 2.0),
-                        w,
-                        text,
-                    ));
-                }
-                let spans: Vec<(f64, f64)> = placed
-                    .iter()
-                    .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
-                    .collect();
-                for ((c, _, text), keep) in placed.iter().zip(layout::thin(&spans, 8.0)) {
-                    if keep {
-                        kit::put(
-                            canvas,
-                            &mut obstacles,
-                            &muted_label(
-                                theme,
-                                theme.source_size,
-                                text,
-                                *c,
-                                g.tick_top,
-                                Align::Middle,
-                            ),
-                        )?;
-                    }
-                }
-                let nb = b.bars.len().max(1);
-                let band = (g.bottom - g.top) / nb as f64;
-                let spans: Vec<(f64, f64)> = (0..b.bars.len())
-                    .map(|k| {
-                        let c = g.top + (k as f64 + 0.5) * band;
-                        (c - slh / 2.0, c + slh / 2.0)
-                    })
-                    .collect();
-                let keep = layout::thin(&spans, 0.0);
-                for (k, bar) in b.bars.iter().enumerate() {
-                    let c = g.top + (k as f64 + 0.5) * band;
-                    if keep.get(k).copied().unwrap_or(false) {
-                        let text = metrics::ellipsize(
-                            &metrics::normalize(&bar.label),
-                            theme.source_size,
-                            false,
-                            g.lead_w,
-                        );
-                        kit::put(
-                            canvas,
-                            &mut obstacles,
-                            &muted_label(
-                                theme,
-                                theme.source_size,
-                                &text,
-                                g.lead_right,
-                                c - slh / 2.0,
-                                Align::End,
-                            ),
-                        )?;
-                    }
-                    let (Some(color), Some(v)) = (
-                        mark_colour(theme, panel.role, bar.role),
-                        bar.value.filter(|v| v.is_finite()),
-                    ) else {
-                        continue;
-                    };
-                    let h = (band * 0.62).min(40.0);
-                    canvas.rect((vmap(0.0), c - h / 2.0), (vmap(v), c + h / 2.0), color)?;
-                }
-                let z = vmap(0.0);
-                canvas.line(
-                    (z, g.top),
-                    (z, g.bottom),
-                    theme.baseline,
-                    theme.baseline_stroke,
-                )?;
+                bars_across(canvas, theme, b, panel.role, dom, &g, &mut obstacles)?;
             }
             Chart::Bars(b) => {
-                value_ticks(canvas, theme, &b.value, dom, &g, ticks_here, &mut obstacles)?;
-                let vmap = |v: f64| map(v, dom, g.bottom, g.top);
-                kit::gridlines(
-                    canvas,
-                    theme,
-                    &b.value,
-                    vmap,
-                    g.left,
-                    g.right,
-                    kit::Across::Rows,
-                    Some(vmap(0.0)),
-                )?;
-                let nb = b.bars.len().max(1);
-                let band = (g.right - g.left) / nb as f64;
-                let spans: Vec<(f64, f64)> = b
-                    .bars
-                    .iter()
-                    .enumerate()
-                    .map(|(k, bar)| {
-                        let c = g.left + (k as f64 + 0.5) * band;
-                        let w = text_width(
-                            &metrics::ellipsize(
-                                &metrics::normalize(&bar.label),
-                                theme.source_size,
-                                false,
-                                band - 4.0,
-                            ),
-                            theme.source_size,
-                            false,
-                        );
-                        (c - w / 2.0, c + w / 2.0)
-                    })
-                    .collect();
-                let keep = layout::thin(&spans, 6.0);
-                for (k, bar) in b.bars.iter().enumerate() {
-                    let c = g.left + (k as f64 + 0.5) * band;
-                    if keep.get(k).copied().unwrap_or(false) {
-                        let text = metrics::ellipsize(
-                            &metrics::normalize(&bar.label),
-                            theme.source_size,
-                            false,
-                            band - 4.0,
-                        );
-                        kit::put(
-                            canvas,
-                            &mut obstacles,
-                            &muted_label(
-                                theme,
-                                theme.source_size,
-                                &text,
-                                c,
-                                g.tick_top,
-                                Align::Middle,
-                            ),
-                        )?;
-                    }
-                    let (Some(color), Some(v)) = (
-                        mark_colour(theme, panel.role, bar.role),
-                        bar.value.filter(|v| v.is_finite()),
-                    ) else {
-                        continue;
-                    };
-                    let w = (band * 0.62).min(60.0);
-                    canvas.rect((c - w / 2.0, vmap(0.0)), (c + w / 2.0, vmap(v)), color)?;
-                }
-                let z = vmap(0.0);
-                canvas.line(
-                    (g.left, z),
-                    (g.right, z),
-                    theme.baseline,
-                    theme.baseline_stroke,
-                )?;
+                let at = (dom, ticks_here);
+                bars_up(canvas, theme, b, panel.role, at, &g, &mut obstacles)?;
             }
             _ => {}
         }
     }
     if let (Some(t), Some(title)) = (other_top, other_title.as_deref()) {
-        let text = kit::fit_one(title, width, theme.label_size);
-        kit::put(
+        let at = ((region.left + region.right) / 2.0, t);
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                (region.left + region.right) / 2.0,
-                t,
-                Align::Middle,
-            ),
+            theme,
+            title,
+            width,
+            at,
+            Align::Middle,
         )?;
     }
     Ok(())
+}
+
+/// A line chart in one panel: its ticks, gridlines, baseline and lines
+/// (context first, focus on top).
+fn line_panel(
+    canvas: &Canvas,
+    theme: &Theme,
+    l: &LineChart,
+    role: Role,
+    (dom, ticks_here): ([f64; 2], bool),
+    g: &Geom,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    value_ticks(canvas, theme, &l.y, dom, g, ticks_here, obstacles)?;
+    x_ticks(canvas, theme, &l.x, g, obstacles)?;
+    let xmap = |x: f64| map(x, l.x.domain, g.left, g.right);
+    let ymap = |y: f64| map(y, dom, g.bottom, g.top);
+    axis::gridlines(
+        canvas,
+        theme,
+        &l.y,
+        ymap,
+        g.left,
+        g.right,
+        axis::Across::Rows,
+        Some(g.bottom),
+    )?;
+    baseline(canvas, theme, g, false)?;
+    let target = (2.0 * (g.right - g.left)).max(3.0) as usize;
+    for pass in [Role::Context, Role::Focus] {
+        for s in &l.series {
+            let Some(color) = mark_colour(theme, role, s.role) else {
+                continue;
+            };
+            let is_focus = color == theme.accent;
+            if is_focus != (pass == Role::Focus) {
+                continue;
+            }
+            let w = if is_focus {
+                theme.focus_stroke.min(3)
+            } else {
+                theme.context_stroke
+            };
+            line::draw_runs(canvas, &line::runs(s, &xmap, &ymap), target, color, w)?;
+        }
+    }
+    Ok(())
+}
+
+/// Horizontal bars in one panel: value ticks along the bottom, category
+/// names in the lead column, bars rightwards from zero.
+fn bars_across(
+    canvas: &Canvas,
+    theme: &Theme,
+    b: &BarChart,
+    role: Role,
+    dom: [f64; 2],
+    g: &Geom,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let slh = line_height(theme.source_size);
+    let vmap = |v: f64| map(v, dom, g.left, g.right);
+    axis::gridlines(
+        canvas,
+        theme,
+        &b.value,
+        vmap,
+        g.top,
+        g.bottom,
+        axis::Across::Columns,
+        Some(vmap(0.0)),
+    )?;
+    // Value ticks along the bottom of every panel.
+    let row = axis::Row {
+        top: g.tick_top,
+        lo: g.left,
+        hi: g.right,
+        gap: 8.0,
+        fit: axis::Fit::AsWritten,
+        keep_left: true,
+    };
+    let size = theme.source_size;
+    axis::row(canvas, obstacles, theme, size, &b.value, vmap, row)?;
+    let nb = b.bars.len().max(1);
+    let band = (g.bottom - g.top) / nb as f64;
+    let spans: Vec<(f64, f64)> = (0..b.bars.len())
+        .map(|k| {
+            let c = g.top + (k as f64 + 0.5) * band;
+            (c - slh / 2.0, c + slh / 2.0)
+        })
+        .collect();
+    let keep = layout::thin(&spans, 0.0);
+    let bands = Band {
+        orientation: Orientation::Horizontal,
+        start: g.top,
+        size: band,
+    };
+    for (k, bar) in b.bars.iter().enumerate() {
+        let c = bands.centre(k);
+        if keep.get(k).copied().unwrap_or(false) {
+            let text = metrics::ellipsize(
+                &metrics::normalize(&bar.label),
+                theme.source_size,
+                false,
+                g.lead_w,
+            );
+            kit::put(
+                canvas,
+                obstacles,
+                &muted_label(
+                    theme,
+                    theme.source_size,
+                    &text,
+                    g.lead_right,
+                    c - slh / 2.0,
+                    Align::End,
+                ),
+            )?;
+        }
+        let (Some(color), Some(v)) = (
+            mark_colour(theme, role, bar.role),
+            bar.value.filter(|v| v.is_finite()),
+        ) else {
+            continue;
+        };
+        let h = (band * 0.62).min(40.0);
+        bands.mark(
+            canvas,
+            (c - h / 2.0, c + h / 2.0),
+            (vmap(0.0), vmap(v)),
+            color,
+        )?;
+    }
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    bands.rule(canvas, (g.top, g.bottom), vmap(0.0), baseline.0, baseline.1)
+}
+
+/// Vertical bars in one panel: value ticks in the lead column, category
+/// names under the bars, bars upwards from zero.
+fn bars_up(
+    canvas: &Canvas,
+    theme: &Theme,
+    b: &BarChart,
+    role: Role,
+    (dom, ticks_here): ([f64; 2], bool),
+    g: &Geom,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    value_ticks(canvas, theme, &b.value, dom, g, ticks_here, obstacles)?;
+    let vmap = |v: f64| map(v, dom, g.bottom, g.top);
+    axis::gridlines(
+        canvas,
+        theme,
+        &b.value,
+        vmap,
+        g.left,
+        g.right,
+        axis::Across::Rows,
+        Some(vmap(0.0)),
+    )?;
+    let nb = b.bars.len().max(1);
+    let band = (g.right - g.left) / nb as f64;
+    let spans: Vec<(f64, f64)> = b
+        .bars
+        .iter()
+        .enumerate()
+        .map(|(k, bar)| {
+            let c = g.left + (k as f64 + 0.5) * band;
+            let w = text_width(
+                &metrics::ellipsize(
+                    &metrics::normalize(&bar.label),
+                    theme.source_size,
+                    false,
+                    band - 4.0,
+                ),
+                theme.source_size,
+                false,
+            );
+            (c - w / 2.0, c + w / 2.0)
+        })
+        .collect();
+    let keep = layout::thin(&spans, 6.0);
+    let bands = Band {
+        orientation: Orientation::Vertical,
+        start: g.left,
+        size: band,
+    };
+    for (k, bar) in b.bars.iter().enumerate() {
+        let c = bands.centre(k);
+        if keep.get(k).copied().unwrap_or(false) {
+            let text = metrics::ellipsize(
+                &metrics::normalize(&bar.label),
+                theme.source_size,
+                false,
+                band - 4.0,
+            );
+            kit::put(
+                canvas,
+                obstacles,
+                &muted_label(
+                    theme,
+                    theme.source_size,
+                    &text,
+                    c,
+                    g.tick_top,
+                    Align::Middle,
+                ),
+            )?;
+        }
+        let (Some(color), Some(v)) = (
+            mark_colour(theme, role, bar.role),
+            bar.value.filter(|v| v.is_finite()),
+        ) else {
+            continue;
+        };
+        let w = (band * 0.62).min(60.0);
+        bands.mark(
+            canvas,
+            (c - w / 2.0, c + w / 2.0),
+            (vmap(0.0), vmap(v)),
+            color,
+        )?;
+    }
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    bands.rule(canvas, (g.left, g.right), vmap(0.0), baseline.0, baseline.1)
+}
+
+/// The width of the lead column left of each plot: the widest category
+/// name of horizontal bars (at most 40% of a column), else the widest tick
+/// label of any panel's value axis.
+fn lead_width(
+    theme: &Theme,
+    chart: &PanelChart,
+    across_bars: bool,
+    region: Region,
+    cols: usize,
+) -> f64 {
+    if across_bars {
+        let widest = chart
+            .panels
+            .iter()
+            .filter_map(|p| match &p.chart {
+                Chart::Bars(b) => Some(max_width(
+                    b.bars.iter().map(|b| b.label.as_str()),
+                    theme.source_size,
+                    false,
+                )),
+                _ => None,
+            })
+            .fold(0.0, f64::max);
+        widest.min((region.right - region.left) / cols as f64 * 0.4)
+    } else {
+        chart
+            .panels
+            .iter()
+            .filter_map(|p| value_axis(&p.chart))
+            .map(|a| {
+                max_width(
+                    layout::visible_ticks(a).iter().map(|(_, l)| l.as_str()),
+                    theme.source_size,
+                    false,
+                )
+            })
+            .fold(0.0, f64::max)
+    }
+}
+
+/// A panel's title at the top of its cell, bold, in the accent when the
+/// panel is in focus, cut to fit `x..right`.
+fn panel_title(
+    canvas: &Canvas,
+    theme: &Theme,
+    panel: &Panel,
+    (x, right): (f64, f64),
+    top: f64,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let text = metrics::ellipsize(
+        &metrics::normalize(&panel.title),
+        theme.label_size,
+        true,
+        right - x,
+    );
+    let focus = panel.role == Role::Focus;
+    let label = Label {
+        text: &text,
+        x,
+        top,
+        size: theme.label_size,
+        bold: true,
+        color: if focus { theme.accent } else { theme.takeaway },
+        align: Align::Start,
+    };
+    kit::put(canvas, obstacles, &label)
+}
+
+/// The widest value domain of any panel (trimmed panels keep its units
+/// per pixel).
+fn widest_span(chart: &PanelChart) -> f64 {
+    chart
+        .panels
+        .iter()
+        .map(|p| {
+            let d = value_domain(&p.chart);
+            (d[1] - d[0]).abs()
+        })
+        .fold(0.0, f64::max)
 }
 
 /// One panel's plot rectangle and where its labels go.
@@ -466,7 +526,7 @@ struct Geom {
     lead_w: f64,
 }
 
-fn baseline(canvas: &Canvas<'_>, theme: &Theme, g: &Geom, _: bool) -> Result<(), RenderError> {
+fn baseline(canvas: &Canvas, theme: &Theme, g: &Geom, _: bool) -> Result<(), RenderError> {
     canvas.line(
         (g.left, g.bottom),
         (g.right, g.bottom),
@@ -477,7 +537,7 @@ fn baseline(canvas: &Canvas<'_>, theme: &Theme, g: &Geom, _: bool) -> Result<(),
 
 /// Value ticks right-aligned in the lead column (only where `show`).
 fn value_ticks(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     axis: &Axis,
     dom: [f64; 2],
@@ -488,70 +548,34 @@ fn value_ticks(
     if !show {
         return Ok(());
     }
-    let slh = line_height(theme.source_size);
     let ymap = |v: f64| map(v, dom, g.bottom, g.top);
-    let ticks = layout::visible_ticks(axis);
-    let spans: Vec<(f64, f64)> = ticks
-        .iter()
-        .map(|(v, _)| (ymap(*v) - slh / 2.0, ymap(*v) + slh / 2.0))
-        .collect();
-    for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                obstacles,
-                &muted_label(
-                    theme,
-                    theme.source_size,
-                    text,
-                    g.lead_right,
-                    ymap(*v) - slh / 2.0,
-                    Align::End,
-                ),
-            )?;
-        }
-    }
-    Ok(())
+    axis::column(
+        canvas,
+        obstacles,
+        theme,
+        theme.source_size,
+        axis,
+        ymap,
+        g.lead_right,
+    )
 }
 
 /// X ticks centred under their positions, thinned to fit the panel.
 fn x_ticks(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     axis: &Axis,
     g: &Geom,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let placed: Vec<(f64, f64, String)> = layout::visible_ticks(axis)
-        .into_iter()
-        .map(|(v, text)| {
-            let text = metrics::ellipsize(&text, theme.source_size, false, g.right - g.left);
-            let w = text_width(&text, theme.source_size, false);
-            let c = map(v, axis.domain, g.left, g.right)
-                .max(g.left + w / 2.0)
-                .min(g.right - w / 2.0);
-            (c, w, text)
-        })
-        .collect();
-    let spans: Vec<(f64, f64)> = placed
-        .iter()
-        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
-        .collect();
-    for ((c, _, text), keep) in placed.iter().zip(layout::thin(&spans, 10.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                obstacles,
-                &muted_label(
-                    theme,
-                    theme.source_size,
-                    text,
-                    *c,
-                    g.tick_top,
-                    Align::Middle,
-                ),
-            )?;
-        }
-    }
-    Ok(())
+    let row = axis::Row {
+        top: g.tick_top,
+        lo: g.left,
+        hi: g.right,
+        gap: 10.0,
+        fit: axis::Fit::Ellipsize(g.right - g.left),
+        keep_left: false,
+    };
+    let xmap = |v: f64| map(v, axis.domain, g.left, g.right);
+    axis::row(canvas, obstacles, theme, theme.source_size, axis, xmap, row)
 }

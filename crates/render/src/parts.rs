@@ -8,18 +8,18 @@
 //! may carry their totals at their ends. Hidden parts and categories leave
 //! their space empty; nothing else moves.
 
+use crate::axis;
+use crate::band::{self, Band, VALUE_GAP};
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, context_greys, muted_label, spread_widths, Obstacles};
+use crate::kit::{self, context_greys, spread_widths, Obstacles};
 use crate::layout::{self, fit_label_at, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::{Rgb, Theme};
 use crate::RenderError;
-use crescendo_plan::{Orientation, PartsChart, PartsMode, Role};
+use crescendo_frame::{Orientation, PartsChart, PartsMode, Role};
 
 /// Space between a label column and the plot.
 const PAD: f64 = 12.0;
-/// Space between a bar end and its total.
-const VALUE_GAP: f64 = 6.0;
 /// Share of a category band filled by its bar (stacked) or group.
 const BAR_SHARE: f64 = 0.62;
 const GROUP_SHARE: f64 = 0.8;
@@ -110,6 +110,36 @@ fn part_label<'a>(
     })
 }
 
+/// Grouped bars name their parts beside the roomiest group: moves the
+/// position `end` of the top of the value domain (`start` is its bottom) by
+/// `sign` × the room `need(position of that group's end)` asks for, until it
+/// asks for none (at most 32 times). Stacked bars keep `end`.
+fn fit_scale(
+    chart: &PartsChart,
+    dom: [f64; 2],
+    start: f64,
+    mut end: f64,
+    sign: f64,
+    need: impl Fn(f64) -> f64,
+) -> f64 {
+    if chart.mode == PartsMode::Stacked || chart.parts.is_empty() {
+        return end;
+    }
+    let g_end = extents(chart, roomiest(chart))
+        .iter()
+        .flatten()
+        .map(|e| e.1.max(0.0))
+        .fold(0.0, f64::max);
+    for _ in 0..32 {
+        let more = need(map(g_end, dom, start, end));
+        if more <= 0.5 {
+            break;
+        }
+        end += sign * more;
+    }
+    end
+}
+
 /// The category whose tallest part is lowest: where grouped labels have
 /// the most room.
 fn roomiest(chart: &PartsChart) -> usize {
@@ -128,7 +158,7 @@ fn roomiest(chart: &PartsChart) -> usize {
 }
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &PartsChart,
     region: Region,
@@ -140,28 +170,138 @@ pub(crate) fn draw(
     }
 }
 
-fn total_label<'a>(
-    theme: &Theme,
-    role: Role,
-    text: &'a str,
-    x: f64,
-    top: f64,
-    align: Align,
-) -> Label<'a> {
-    let focus = role == Role::Focus;
-    Label {
-        text,
-        x,
-        top,
-        size: theme.label_size,
-        bold: focus,
-        color: if focus { theme.accent } else { theme.muted },
-        align,
+/// Where the parts go: the category bands, the value mapping, and each
+/// part's place across its band.
+struct Slots {
+    bands: Band,
+    dom: [f64; 2],
+    /// Positions of the ends of the value domain.
+    ends: (f64, f64),
+    /// Width of a stacked bar or of a whole group.
+    thickness: f64,
+    /// Width of one bar of a group.
+    slot: f64,
+    stacked: bool,
+}
+
+impl Slots {
+    fn new(
+        bands: Band,
+        dom: [f64; 2],
+        ends: (f64, f64),
+        thickness: f64,
+        k: usize,
+        stacked: bool,
+    ) -> Slots {
+        let slot = if stacked {
+            thickness
+        } else {
+            thickness / k.max(1) as f64
+        };
+        Slots {
+            bands,
+            dom,
+            ends,
+            thickness,
+            slot,
+            stacked,
+        }
+    }
+
+    fn vmap(&self, v: f64) -> f64 {
+        map(v, self.dom, self.ends.0, self.ends.1)
+    }
+
+    /// Where part `j` of category `c` sits across the category axis.
+    fn across(&self, c: usize, j: usize) -> (f64, f64) {
+        let centre = self.bands.centre(c);
+        if self.stacked {
+            (centre - self.thickness / 2.0, centre + self.thickness / 2.0)
+        } else {
+            let start = centre - self.thickness / 2.0 + j as f64 * self.slot;
+            (start + 1.0, start + self.slot - 1.0)
+        }
     }
 }
 
+/// How category names are set: at most `lines` lines `width` wide, from
+/// `start` (the top of the names under vertical bars, the right edge of the
+/// name column of horizontal ones).
+#[derive(Clone, Copy)]
+struct Categories {
+    width: f64,
+    lines: usize,
+    start: f64,
+}
+
+/// Every category's name and, unless hidden, its parts.
+fn categories(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &PartsChart,
+    s: &Slots,
+    cats: Categories,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
+    let colors = colours(theme, chart);
+    let horizontal = s.bands.orientation == Orientation::Horizontal;
+    // Names beside horizontal bars are centred on their band; a safety net
+    // for more categories than rows keeps them apart.
+    let spans: Vec<(f64, f64)> = (0..chart.categories.len())
+        .map(|c| {
+            let h = (cats.lines - 1) as f64 * step + lh;
+            (s.bands.centre(c) - h / 2.0, s.bands.centre(c) + h / 2.0)
+        })
+        .collect();
+    let keep = layout::thin(&spans, 0.0);
+    for (c, cat) in chart.categories.iter().enumerate() {
+        let focus = cat.role == Role::Focus;
+        let (x, first, align, shown) = if horizontal {
+            let shown = keep.get(c).copied().unwrap_or(false);
+            (cats.start, spans[c].0, Align::End, shown)
+        } else {
+            (s.bands.centre(c), cats.start, Align::Middle, true)
+        };
+        let lines = fit_label_at(theme.label_size, &cat.label, cats.width, cats.lines, true);
+        for (i, line) in lines.iter().enumerate().filter(|_| shown) {
+            let label = Label {
+                text: line,
+                x,
+                top: first + i as f64 * step,
+                size: theme.label_size,
+                bold: focus,
+                color: if focus { theme.accent } else { theme.muted },
+                align,
+            };
+            kit::put(canvas, obstacles, &label)?;
+        }
+        if cat.role == Role::Hidden {
+            continue;
+        }
+        let total = s.stacked.then_some((cat.total_label.as_str(), cat.role));
+        let ext = extents(chart, c);
+        let across = |j| s.across(c, j);
+        let vmap = |v| s.vmap(v);
+        band::parts(
+            canvas, theme, &s.bands, c, &ext, &colors, across, vmap, total, obstacles,
+        )?;
+    }
+    Ok(())
+}
+
+/// The part names as drawn (bold width, cut to the widest a name may be).
+fn names(theme: &Theme, chart: &PartsChart) -> Vec<String> {
+    chart
+        .parts
+        .iter()
+        .map(|p| part_text(theme, &p.name))
+        .collect()
+}
+
 fn vertical(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &PartsChart,
     region: Region,
@@ -208,44 +348,28 @@ fn vertical(
 
     let mut top = region.top;
     if let Some(title) = chart.value.title.as_deref() {
-        let text = fit_label_at(
-            theme.label_size,
-            title,
-            region.right - region.left,
-            1,
-            false,
-        )
-        .join(" ");
-        kit::put(
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                region.left,
-                top,
-                Align::Start,
-            ),
+            theme,
+            title,
+            region.right - region.left,
+            (region.left, top),
+            Align::Start,
         )?;
         top += lh + 8.0;
     }
     let mut bottom = region.bottom;
     if let Some(title) = chart.category_title.as_deref() {
         bottom -= lh;
-        let text =
-            fit_label_at(theme.label_size, title, plot_right - plot_left, 1, false).join(" ");
-        kit::put(
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                (plot_left + plot_right) / 2.0,
-                bottom,
-                Align::Middle,
-            ),
+            theme,
+            title,
+            plot_right - plot_left,
+            ((plot_left + plot_right) / 2.0, bottom),
+            Align::Middle,
         )?;
         bottom -= 6.0;
     }
@@ -256,149 +380,96 @@ fn vertical(
     }
     // Totals need a line above the bars; grouped labels need rows above the
     // roomiest group, found by moving the top of the scale down until they fit.
-    let mut value_top = if stacked {
+    let value_top = if stacked {
         top + lh + VALUE_GAP
     } else {
         top + lh / 2.0 + 2.0
     };
-    let g = roomiest(chart);
     let k = chart.parts.len();
-    if !stacked && k > 0 {
-        let g_top = extents(chart, g)
-            .iter()
-            .flatten()
-            .map(|e| e.1.max(0.0))
-            .fold(0.0, f64::max);
-        for _ in 0..32 {
-            let y = map(g_top, dom, value_bottom, value_top);
-            let need = top - (y - 6.0 - k as f64 * step);
-            if need <= 0.5 {
-                break;
-            }
-            value_top += need;
-        }
-    }
+    let rows = k as f64 * step;
+    let value_top = fit_scale(chart, dom, value_bottom, value_top, 1.0, |y| {
+        top - (y - 6.0 - rows)
+    });
     let vmap = |v: f64| map(v, dom, value_bottom, value_top);
 
-    let spans: Vec<(f64, f64)> = ticks
-        .iter()
-        .map(|(v, _)| (vmap(*v) - lh / 2.0, vmap(*v) + lh / 2.0))
-        .collect();
-    for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &muted_label(
-                    theme,
-                    theme.label_size,
-                    text,
-                    region.left + tick_w,
-                    vmap(*v) - lh / 2.0,
-                    Align::End,
-                ),
-            )?;
-        }
-    }
+    let (size, right) = (theme.label_size, region.left + tick_w);
+    axis::column(
+        canvas,
+        &mut obstacles,
+        theme,
+        size,
+        &chart.value,
+        vmap,
+        right,
+    )?;
 
-    kit::gridlines(
+    axis::gridlines(
         canvas,
         theme,
         &chart.value,
         vmap,
         plot_left,
         plot_right,
-        kit::Across::Rows,
+        axis::Across::Rows,
         Some(vmap(0.0)),
     )?;
-    let colors = colours(theme, chart);
+    let bands = Band {
+        orientation: Orientation::Vertical,
+        start: plot_left,
+        size: band,
+    };
     let bar_w = if stacked {
         (band * BAR_SHARE).min(140.0)
     } else {
         (band * GROUP_SHARE).min(60.0 * k.max(1) as f64)
     };
-    let slot_w = if stacked {
-        bar_w
-    } else {
-        bar_w / k.max(1) as f64
+    let s = Slots::new(bands, dom, (value_bottom, value_top), bar_w, k, stacked);
+    let cats = Categories {
+        width: cat_w,
+        lines: cat_lines,
+        start: cat_top,
     };
-    // Where part j of category c sits across the category axis.
-    let across = |c: usize, j: usize| -> (f64, f64) {
-        let centre = plot_left + (c as f64 + 0.5) * band;
-        if stacked {
-            (centre - bar_w / 2.0, centre + bar_w / 2.0)
-        } else {
-            let left = centre - bar_w / 2.0 + j as f64 * slot_w;
-            (left + 1.0, left + slot_w - 1.0)
-        }
-    };
-    for (c, cat) in chart.categories.iter().enumerate() {
-        let centre = plot_left + (c as f64 + 0.5) * band;
-        let focus = cat.role == Role::Focus;
-        for (i, line) in fit_label_at(theme.label_size, &cat.label, cat_w, cat_lines, true)
-            .iter()
-            .enumerate()
-        {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text: line,
-                    x: centre,
-                    top: cat_top + i as f64 * step,
-                    size: theme.label_size,
-                    bold: focus,
-                    color: if focus { theme.accent } else { theme.muted },
-                    align: Align::Middle,
-                },
-            )?;
-        }
-        if cat.role == Role::Hidden {
-            continue;
-        }
-        let ext = extents(chart, c);
-        for (j, e) in ext.iter().enumerate() {
-            let (Some((a, b)), Some(color)) = (e, colors[j]) else {
-                continue;
-            };
-            let (x0, x1) = across(c, j);
-            canvas.rect((x0, vmap(*a)), (x1, vmap(*b)), color)?;
-        }
-        if stacked {
-            // Page-coloured cuts between neighbouring segments.
-            for (a, _) in ext.iter().flatten().skip(1) {
-                if *a != 0.0 {
-                    let (x0, x1) = across(c, 0);
-                    canvas.line((x0, vmap(*a)), (x1, vmap(*a)), theme.page, 1)?;
-                }
-            }
-            let text = metrics::normalize(&cat.total_label);
-            let high = ext.iter().flatten().map(|e| e.1).fold(0.0, f64::max);
-            if !text.is_empty() {
-                kit::put(
-                    canvas,
-                    &mut obstacles,
-                    &total_label(
-                        theme,
-                        cat.role,
-                        &text,
-                        centre,
-                        vmap(high) - VALUE_GAP - lh,
-                        Align::Middle,
-                    ),
-                )?;
-            }
-        }
-    }
-    let zero = vmap(0.0);
-    canvas.line(
-        (plot_left, zero),
-        (plot_right, zero),
-        theme.baseline,
-        theme.baseline_stroke,
+    categories(canvas, theme, chart, &s, cats, &mut obstacles)?;
+    let zero = s.vmap(0.0);
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    bands.rule(
+        canvas,
+        (plot_left, plot_right),
+        zero,
+        baseline.0,
+        baseline.1,
     )?;
+    let rows = (value_top.min(top + lh / 2.0), value_bottom);
+    name_parts_vertical(
+        canvas,
+        theme,
+        chart,
+        &s,
+        rows,
+        (plot_right, region),
+        &mut obstacles,
+    )
+}
 
-    if stacked {
+/// Names of the parts of vertical bars: stacked ones beside the last
+/// category with a value for each part, grouped ones in rows above the
+/// roomiest group.
+fn name_parts_vertical(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &PartsChart,
+    s: &Slots,
+    (rows_top, value_bottom): (f64, f64),
+    (plot_right, region): (f64, Region),
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
+    let names = names(theme, chart);
+    let k = chart.parts.len();
+    let g = roomiest(chart);
+    let zero = s.vmap(0.0);
+    if s.stacked {
         // Beside the last category with a value for each part.
         let mut wanted: Vec<(f64, usize, f64)> = Vec::new();
         for j in 0..k {
@@ -406,12 +477,12 @@ fn vertical(
                 .rev()
                 .find_map(|c| extents(chart, c)[j].map(|e| (c, e)));
             if let Some((c, (a, b))) = found {
-                wanted.push((vmap((a + b) / 2.0), j, across(c, j).1));
+                wanted.push((s.vmap((a + b) / 2.0), j, s.across(c, j).1));
             }
         }
         wanted.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
         let ys: Vec<f64> = wanted.iter().map(|w| w.0).collect();
-        let placed = layout::spread(&ys, step, value_top.min(top + lh / 2.0), value_bottom);
+        let placed = layout::spread(&ys, step, rows_top, value_bottom);
         let x = plot_right + PAD + 8.0;
         for (&(y0, j, bar_right), y) in wanted.iter().zip(placed) {
             let Some(label) = part_label(
@@ -425,7 +496,7 @@ fn vertical(
                 continue;
             };
             canvas.polyline(&[(bar_right + 3.0, y0), (x - 4.0, y)], theme.baseline, 1)?;
-            kit::put(canvas, &mut obstacles, &label)?;
+            kit::put(canvas, obstacles, &label)?;
         }
     } else if k > 0 {
         // Rows above the roomiest group: the rightmost bar's name lowest, so
@@ -434,12 +505,12 @@ fn vertical(
         let g_top = ext
             .iter()
             .flatten()
-            .map(|e| vmap(e.1.max(0.0)))
+            .map(|e| s.vmap(e.1.max(0.0)))
             .fold(zero, f64::min);
         for j in 0..k {
             let row = k - 1 - j;
             let label_top = g_top - 6.0 - (row as f64 + 1.0) * step + 2.0;
-            let (x0, x1) = across(g, j);
+            let (x0, x1) = s.across(g, j);
             let cx = (x0 + x1) / 2.0;
             let w = text_width(&names[j], theme.label_size, true);
             let x = (cx - 2.0).min(region.right - w).max(region.left);
@@ -453,21 +524,20 @@ fn vertical(
             ) else {
                 continue;
             };
-            let bar_top = ext[j].map(|e| vmap(e.1.max(0.0))).unwrap_or(zero);
+            let bar_top = ext[j].map(|e| s.vmap(e.1.max(0.0))).unwrap_or(zero);
             canvas.line(
                 (cx, label_top + lh + 1.0),
                 (cx, bar_top - 2.0),
                 theme.baseline,
                 1,
             )?;
-            kit::put(canvas, &mut obstacles, &label)?;
+            kit::put(canvas, obstacles, &label)?;
         }
     }
     Ok(())
 }
-
 fn horizontal(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &PartsChart,
     region: Region,
@@ -486,25 +556,14 @@ fn horizontal(
 
     let mut top = region.top;
     if let Some(title) = chart.category_title.as_deref() {
-        let text = fit_label_at(
-            theme.label_size,
-            title,
-            region.right - region.left,
-            1,
-            false,
-        )
-        .join(" ");
-        kit::put(
+        axis::title(
             canvas,
             &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                region.left,
-                top,
-                Align::Start,
-            ),
+            theme,
+            title,
+            region.right - region.left,
+            (region.left, top),
+            Align::Start,
         )?;
         top += lh + 8.0;
     }
@@ -513,15 +572,8 @@ fn horizontal(
         top += lh + 12.0;
     }
     let plot_top = top;
-    let mut bottom = region.bottom;
-    let value_title_top = chart.value.title.as_ref().map(|_| {
-        bottom -= lh;
-        let t = bottom;
-        bottom -= 4.0;
-        t
-    });
-    let tick_top = bottom - lh;
-    let plot_bottom = tick_top - 8.0;
+    let titled = chart.value.title.is_some();
+    let (value_title_top, tick_top, plot_bottom) = axis::bottom_rows(region.bottom, lh, titled);
 
     let n = chart.categories.len().max(1);
     let band = (plot_bottom - plot_top) / n as f64;
@@ -531,12 +583,7 @@ fn horizontal(
         theme.label_size,
         true,
     );
-    let col_w = widest.min(cap);
-    let cat_lines = if widest > cap && band >= 2.0 * step {
-        2
-    } else {
-        1
-    };
+    let (col_w, cat_lines) = band::name_column(widest, cap, band, step);
     let col_right = region.left + col_w;
     let plot_left = col_right + PAD;
     let plot_right = region.right;
@@ -550,193 +597,98 @@ fn horizontal(
     } else {
         0.0
     };
-    let right_pad = if total_w > 0.0 && dom[1] > 0.0 {
-        total_w + VALUE_GAP
-    } else {
-        0.0
-    };
-    let left_pad = if total_w > 0.0 && dom[0] < 0.0 {
-        total_w + VALUE_GAP
-    } else {
-        0.0
-    };
+    let (left_pad, right_pad) = band::end_room(dom, total_w, total_w > 0.0);
     let value_left = plot_left + left_pad;
-    let mut value_right = plot_right - right_pad;
     // Grouped names go right of the roomiest group: pull the end of the
     // scale in until they fit.
-    let g = roomiest(chart);
     let names_w = max_width(names.iter().map(String::as_str), theme.label_size, true);
-    if !stacked && k > 0 {
-        let g_end = extents(chart, g)
-            .iter()
-            .flatten()
-            .map(|e| e.1.max(0.0))
-            .fold(0.0, f64::max);
-        for _ in 0..32 {
-            let x = map(g_end, dom, value_left, value_right);
-            let need = x + 8.0 + names_w - region.right;
-            if need <= 0.5 {
-                break;
-            }
-            value_right -= need;
-        }
-    }
+    let over = |x: f64| x + 8.0 + names_w - region.right;
+    let value_right = fit_scale(chart, dom, value_left, plot_right - right_pad, -1.0, over);
     let vmap = |v: f64| map(v, dom, value_left, value_right);
 
-    if let (Some(t), Some(title)) = (value_title_top, chart.value.title.as_deref()) {
-        let text =
-            fit_label_at(theme.label_size, title, plot_right - plot_left, 1, false).join(" ");
-        kit::put(
-            canvas,
-            &mut obstacles,
-            &muted_label(
-                theme,
-                theme.label_size,
-                &text,
-                (value_left + value_right) / 2.0,
-                t,
-                Align::Middle,
-            ),
-        )?;
-    }
-    let ticks: Vec<(f64, f64, String)> = layout::visible_ticks(&chart.value)
-        .into_iter()
-        .map(|(v, text)| {
-            let w = text_width(&text, theme.label_size, false);
-            (
-                vmap(v).max(region.left + w / 2.0).min(plot_right - w / 2.0),
-                w,
-                text,
-            )
-        })
-        .collect();
-    let spans: Vec<(f64, f64)> = ticks
-        .iter()
-        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
-        .collect();
-    for ((c, _, text), keep) in ticks.iter().zip(layout::thin(&spans, 12.0)) {
-        if keep {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &muted_label(theme, theme.label_size, text, *c, tick_top, Align::Middle),
-            )?;
-        }
-    }
-
-    kit::gridlines(
-        canvas,
-        theme,
-        &chart.value,
-        vmap,
-        plot_top,
-        plot_bottom,
-        kit::Across::Columns,
-        Some(vmap(0.0)),
-    )?;
-    let colors = colours(theme, chart);
+    let row = axis::Row {
+        top: tick_top,
+        lo: region.left,
+        hi: plot_right,
+        gap: 12.0,
+        fit: axis::Fit::AsWritten,
+        keep_left: false,
+    };
+    let under = axis::Under {
+        title: value_title_top
+            .map(|t| (t, plot_right - plot_left, (value_left + value_right) / 2.0)),
+        row,
+        across: (plot_top, plot_bottom),
+        skip_zero: true,
+    };
+    axis::under(canvas, &mut obstacles, theme, &chart.value, vmap, under)?;
+    let bands = Band {
+        orientation: Orientation::Horizontal,
+        start: plot_top,
+        size: band,
+    };
     let bar_h = if stacked {
         (band * BAR_SHARE).min(56.0)
     } else {
         (band * GROUP_SHARE).min(28.0 * k.max(1) as f64)
     };
-    let slot_h = if stacked {
-        bar_h
-    } else {
-        bar_h / k.max(1) as f64
+    let s = Slots::new(bands, dom, (value_left, value_right), bar_h, k, stacked);
+    let cats = Categories {
+        width: col_w,
+        lines: cat_lines,
+        start: col_right,
     };
-    let across = |c: usize, j: usize| -> (f64, f64) {
-        let centre = plot_top + (c as f64 + 0.5) * band;
-        if stacked {
-            (centre - bar_h / 2.0, centre + bar_h / 2.0)
-        } else {
-            let t = centre - bar_h / 2.0 + j as f64 * slot_h;
-            (t + 1.0, t + slot_h - 1.0)
-        }
-    };
-    let label_spans: Vec<(f64, f64)> = (0..chart.categories.len())
-        .map(|c| {
-            let centre = plot_top + (c as f64 + 0.5) * band;
-            let h = (cat_lines - 1) as f64 * step + lh;
-            (centre - h / 2.0, centre + h / 2.0)
-        })
-        .collect();
-    let keep = layout::thin(&label_spans, 0.0);
-    for (c, cat) in chart.categories.iter().enumerate() {
-        let focus = cat.role == Role::Focus;
-        if keep.get(c).copied().unwrap_or(false) {
-            for (i, line) in fit_label_at(theme.label_size, &cat.label, col_w, cat_lines, true)
-                .iter()
-                .enumerate()
-            {
-                kit::put(
-                    canvas,
-                    &mut obstacles,
-                    &Label {
-                        text: line,
-                        x: col_right,
-                        top: label_spans[c].0 + i as f64 * step,
-                        size: theme.label_size,
-                        bold: focus,
-                        color: if focus { theme.accent } else { theme.muted },
-                        align: Align::End,
-                    },
-                )?;
-            }
-        }
-        if cat.role == Role::Hidden {
-            continue;
-        }
-        let ext = extents(chart, c);
-        for (j, e) in ext.iter().enumerate() {
-            let (Some((a, b)), Some(color)) = (e, colors[j]) else {
-                continue;
-            };
-            let (y0, y1) = across(c, j);
-            canvas.rect((vmap(*a), y0), (vmap(*b), y1), color)?;
-        }
-        if stacked {
-            for (a, _) in ext.iter().flatten().skip(1) {
-                if *a != 0.0 {
-                    let (y0, y1) = across(c, 0);
-                    canvas.line((vmap(*a), y0), (vmap(*a), y1), theme.page, 1)?;
-                }
-            }
-            let text = metrics::normalize(&cat.total_label);
-            let high = ext.iter().flatten().map(|e| e.1).fold(0.0, f64::max);
-            if !text.is_empty() {
-                let centre = plot_top + (c as f64 + 0.5) * band;
-                kit::put(
-                    canvas,
-                    &mut obstacles,
-                    &total_label(
-                        theme,
-                        cat.role,
-                        &text,
-                        vmap(high) + VALUE_GAP,
-                        centre - lh / 2.0,
-                        Align::Start,
-                    ),
-                )?;
-            }
-        }
-    }
-    let zero = vmap(0.0);
-    canvas.line(
-        (zero, plot_top),
-        (zero, plot_bottom),
-        theme.baseline,
-        theme.baseline_stroke,
+    categories(canvas, theme, chart, &s, cats, &mut obstacles)?;
+    let zero = s.vmap(0.0);
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    bands.rule(
+        canvas,
+        (plot_top, plot_bottom),
+        zero,
+        baseline.0,
+        baseline.1,
     )?;
+    let across = (plot_left, plot_top, plot_bottom);
+    name_parts_horizontal(
+        canvas,
+        theme,
+        chart,
+        &s,
+        names_row_top,
+        across,
+        region,
+        &mut obstacles,
+    )
+}
 
-    if stacked {
+/// Names of the parts of horizontal bars: stacked ones in a row above the
+/// first bar, each over its segment; grouped ones right of the roomiest
+/// group, one per bar.
+#[allow(clippy::too_many_arguments)]
+fn name_parts_horizontal(
+    canvas: &Canvas,
+    theme: &Theme,
+    chart: &PartsChart,
+    s: &Slots,
+    names_row_top: f64,
+    (plot_left, plot_top, plot_bottom): (f64, f64, f64),
+    region: Region,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
+    let names = names(theme, chart);
+    let k = chart.parts.len();
+    let g = roomiest(chart);
+    let zero = s.vmap(0.0);
+    if s.stacked {
         // A row of names above the first bar, each over its segment.
         let mut wanted: Vec<(f64, usize, f64)> = Vec::new();
         for j in 0..k {
             let found =
                 (0..chart.categories.len()).find_map(|c| extents(chart, c)[j].map(|e| (c, e)));
             if let Some((c, (a, b))) = found {
-                wanted.push((vmap((a + b) / 2.0), j, across(c, j).0));
+                wanted.push((s.vmap((a + b) / 2.0), j, s.across(c, j).0));
             }
         }
         wanted.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
@@ -762,7 +714,7 @@ fn horizontal(
                 theme.baseline,
                 1,
             )?;
-            kit::put(canvas, &mut obstacles, &label)?;
+            kit::put(canvas, obstacles, &label)?;
         }
     } else if k > 0 {
         // Names right of the roomiest group, one per bar, spread apart.
@@ -770,12 +722,12 @@ fn horizontal(
         let x = ext
             .iter()
             .flatten()
-            .map(|e| vmap(e.1.max(0.0)))
+            .map(|e| s.vmap(e.1.max(0.0)))
             .fold(zero, f64::max)
             + 8.0;
         let wanted: Vec<f64> = (0..k)
             .map(|j| {
-                let (y0, y1) = across(g, j);
+                let (y0, y1) = s.across(g, j);
                 (y0 + y1) / 2.0
             })
             .collect();
@@ -784,7 +736,7 @@ fn horizontal(
         for (j, y) in placed.into_iter().enumerate() {
             // Beside its own bar when the names fit the bars' rows; else
             // all past the longest bar of the group.
-            let own = ext[j].map(|e| vmap(e.1.max(0.0)) + 8.0).unwrap_or(x);
+            let own = ext[j].map(|e| s.vmap(e.1.max(0.0)) + 8.0).unwrap_or(x);
             let x = if moved { x } else { own };
             let Some(label) = part_label(
                 theme,
@@ -796,7 +748,7 @@ fn horizontal(
             ) else {
                 continue;
             };
-            kit::put(canvas, &mut obstacles, &label)?;
+            kit::put(canvas, obstacles, &label)?;
         }
     }
     Ok(())

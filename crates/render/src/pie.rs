@@ -11,7 +11,7 @@ use crate::layout::{self, Region};
 use crate::metrics::{self, line_height};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{PieChart, Role};
+use crescendo_frame::{PieChart, Role};
 use std::f64::consts::TAU;
 
 /// Largest radius, in px.
@@ -29,7 +29,7 @@ fn at(c: (f64, f64), r: f64, angle: f64) -> (f64, f64) {
 }
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &PieChart,
     region: Region,

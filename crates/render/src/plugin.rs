@@ -2,8 +2,8 @@
 //! of the plot area and styles every primitive by its role with the theme,
 //! like built-in output.
 
-use crescendo_plan::PluginChart;
-use crescendo_plugin::host::Validated;
+use crescendo_frame::PluginChart;
+use crescendo_plugin::validate::Validated;
 use crescendo_plugin::{Anchor, Area, Primitive, Pt, Role};
 
 use crate::canvas::{Align, Canvas, Label};
@@ -16,6 +16,17 @@ use crate::RenderError;
 pub trait PluginDrawer {
     /// Draw `request` with the plugin the story named `plugin`.
     fn draw(&self, plugin: &str, request: &crescendo_plugin::Request) -> Result<Validated, String>;
+}
+
+/// Lays plugin charts out as empty plot areas without running any plugin
+/// code, for readers of a frame's layout that need only the page around the
+/// chart (the lint's `check`).
+pub struct SkipPlugins;
+
+impl PluginDrawer for SkipPlugins {
+    fn draw(&self, _: &str, _: &crescendo_plugin::Request) -> Result<Validated, String> {
+        Ok(Validated::default())
+    }
 }
 
 fn ink(theme: &Theme, role: Role) -> (Rgb, u32) {
@@ -38,7 +49,7 @@ fn text_ink(theme: &Theme, role: Role) -> Rgb {
 /// Draw a plugin chart into `region`. Returns the plugin's description of
 /// the panel, if it gave one.
 pub fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &PluginChart,
     region: Region,

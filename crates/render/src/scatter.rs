@@ -3,13 +3,14 @@
 //! labels and dots), axes as in line charts, and an optional least-squares
 //! line over the x range of the points in a dark grey with its correlation.
 
+use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, number, Obstacles, Rect};
+use crate::kit::{self, Obstacles, Rect};
 use crate::layout::{self, map, Region};
 use crate::metrics::{self, line_height};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{Role, ScatterChart};
+use crescendo_frame::{Role, ScatterChart};
 
 /// Radius of a context dot, in px.
 const DOT: u32 = 4;
@@ -17,14 +18,6 @@ const DOT: u32 = 4;
 const FOCUS_DOT: u32 = 6;
 /// Widest a point label may be (at 16 px labels; [`Theme::label_scaled`]).
 const MAX_LABEL: f64 = 220.0;
-
-/// The fit's label: `fit: r = 0.82` (r to two decimals, no trailing zeros).
-pub(crate) fn fit_text(r: Option<f64>) -> String {
-    match r.filter(|r| r.is_finite()) {
-        Some(r) => format!("fit: r = {}", number(r, 2, false)),
-        None => "fit".to_string(),
-    }
-}
 
 /// Candidate spots for a label of size `w`×`h` beside a dot at `p` with
 /// radius `r`: right, left, above, below, the four diagonals, then the
@@ -71,7 +64,7 @@ pub(crate) fn best_spot(cands: &[Rect], obstacles: &Obstacles, bounds: &Rect) ->
 }
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &ScatterChart,
     region: Region,
@@ -79,9 +72,9 @@ pub(crate) fn draw(
     layout::check_axis(&chart.x, "x")?;
     layout::check_axis(&chart.y, "y")?;
     let lh = line_height(theme.label_size);
-    let l = kit::xy_layout(&chart.x, &chart.y, region, 0.0, theme.label_size, true);
+    let l = axis::xy_layout(&chart.x, &chart.y, region, 0.0, theme.label_size, true);
     let mut obstacles = Obstacles::default();
-    kit::draw_xy_axes(canvas, theme, &chart.x, &chart.y, &l, true, &mut obstacles)?;
+    axis::draw_xy_axes(canvas, theme, &chart.x, &chart.y, &l, true, &mut obstacles)?;
     let xmap = |x: f64| map(x, chart.x.domain, l.plot_left, l.plot_right);
     let ymap = |y: f64| map(y, chart.y.domain, l.plot_bottom, l.plot_top);
     let finite: Vec<_> = chart
@@ -163,7 +156,7 @@ pub(crate) fn draw(
     }
 
     if let (Some(fit), Some((a, b))) = (&chart.fit, fit_segment) {
-        let text = fit_text(fit.r);
+        let text = fit.label.clone();
         let w = metrics::text_width(&text, theme.label_size, false);
         // Near the upper end of the line first, then along it.
         let (hi_end, lo_end) = if a.1 < b.1 { (a, b) } else { (b, a) };
@@ -222,15 +215,6 @@ fn clip(a: (f64, f64), b: (f64, f64), top: f64, bottom: f64) -> Option<((f64, f6
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn fit_label_trims_zeros() {
-        assert_eq!(fit_text(Some(0.8234)), "fit: r = 0.82");
-        assert_eq!(fit_text(Some(0.8)), "fit: r = 0.8");
-        assert_eq!(fit_text(Some(-0.456)), "fit: r = -0.46");
-        assert_eq!(fit_text(Some(1.0)), "fit: r = 1");
-        assert_eq!(fit_text(None), "fit");
-    }
 
     #[test]
     fn clip_keeps_the_part_inside() {

@@ -6,8 +6,10 @@
 //! Columns are as wide as their widest text (measured bold, so a spotlight
 //! never changes the layout), shrunk together when the table is wider than
 //! the region, with cells cut by an ellipsis. Rows are capped to what fits
-//! the region: when some are left out, the last row that fits says how
-//! many more there are.
+//! the region: when some are left out, a line says how many more there
+//! are. Spotlighted rows (and rows with a spotlighted cell) are always
+//! drawn: when they lie beyond the rows that fit, they follow that line,
+//! in place of the last rows before it.
 
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::faint_fill;
@@ -15,7 +17,7 @@ use crate::layout::Region;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_plan::{Role, TableChart};
+use crescendo_frame::{Role, TableChart};
 
 /// Space between columns.
 const COLUMN_GAP: f64 = 36.0;
@@ -29,7 +31,7 @@ fn row_height(theme: &Theme) -> f64 {
 }
 
 pub(crate) fn draw(
-    canvas: &Canvas<'_>,
+    canvas: &Canvas,
     theme: &Theme,
     chart: &TableChart,
     region: Region,
@@ -107,18 +109,18 @@ pub(crate) fn draw(
         theme.baseline_stroke,
     )?;
 
-    // Rows: as many as fit; if some do not, the last slot counts them.
+    // Rows: as many as fit; if some do not, one slot counts them.
     let rows_top = rule_y + 4.0;
     let step = row_height(theme);
     let fit = ((region.bottom - rows_top) / step).floor().max(0.0) as usize;
-    let total = chart.rows.len();
-    let shown = if total > fit {
-        fit.saturating_sub(1)
-    } else {
-        total
-    };
+    let lit: Vec<bool> = chart
+        .rows
+        .iter()
+        .map(|r| r.role == Role::Focus || r.focus_cell.is_some())
+        .collect();
+    let (drawn, more) = rows_to_draw(&lit, fit);
     let fill = faint_fill(theme);
-    for (i, row) in chart.rows.iter().take(shown).enumerate() {
+    for (i, row) in drawn.iter().map(|&(slot, r)| (slot, &chart.rows[r])) {
         if row.role == Role::Hidden {
             continue;
         }
@@ -150,14 +152,13 @@ pub(crate) fn draw(
             })?;
         }
     }
-    if shown < total {
-        let more = total - shown;
+    if let Some((slot, more)) = more {
         let note = format!("… {more} more row{}", if more == 1 { "" } else { "s" });
         let text = metrics::ellipsize(&note, theme.label_size, false, region.right - table_left);
         canvas.text(&Label {
             text: &text,
             x: table_left,
-            top: rows_top + shown as f64 * step + ROW_PAD,
+            top: rows_top + slot as f64 * step + ROW_PAD,
             size: theme.label_size,
             bold: false,
             color: theme.muted,
@@ -165,4 +166,75 @@ pub(crate) fn draw(
         })?;
     }
     Ok(())
+}
+
+/// The slot of the "… N more rows" line, and N.
+type MoreRows = (usize, usize);
+
+/// Which rows a table of `lit.len()` rows draws in `fit` row slots: (slot,
+/// row) pairs, and the slot of the "… N more rows" line with N. When not
+/// every row fits, the first rows fill the slots before that line; a lit
+/// row (spotlighted, or with a spotlighted cell) that would fall beyond
+/// them follows the line instead, in place of the last rows before it.
+fn rows_to_draw(lit: &[bool], fit: usize) -> (Vec<(usize, usize)>, Option<MoreRows>) {
+    let total = lit.len();
+    if total <= fit {
+        return ((0..total).map(|r| (r, r)).collect(), None);
+    }
+    let slots = fit.saturating_sub(1);
+    // The most leading rows that leave room for the lit rows after them.
+    let lit_from = |k: usize| lit[k..].iter().filter(|l| **l).count();
+    let lead = (0..=slots)
+        .rev()
+        .find(|&k| k + lit_from(k) <= slots)
+        .unwrap_or(0);
+    let mut drawn: Vec<(usize, usize)> = (0..lead).map(|r| (r, r)).collect();
+    let late = (lead..total).filter(|&r| lit[r]).take(slots - lead);
+    drawn.extend(late.enumerate().map(|(i, r)| (lead + 1 + i, r)));
+    let more = total - drawn.len();
+    (drawn, Some((lead, more)))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::rows_to_draw;
+
+    fn rows(lit: &[usize], total: usize) -> Vec<bool> {
+        (0..total).map(|r| lit.contains(&r)).collect()
+    }
+
+    #[test]
+    fn rows_that_fit_are_all_drawn() {
+        let (drawn, more) = rows_to_draw(&rows(&[], 4), 4);
+        assert_eq!(drawn, [(0, 0), (1, 1), (2, 2), (3, 3)]);
+        assert_eq!(more, None);
+    }
+
+    #[test]
+    fn too_many_rows_end_with_a_count() {
+        // 5 slots: 4 rows, then "… 6 more rows"
+        let (drawn, more) = rows_to_draw(&rows(&[2], 10), 5);
+        assert_eq!(drawn, [(0, 0), (1, 1), (2, 2), (3, 3)]);
+        assert_eq!(more, Some((4, 6)));
+    }
+
+    #[test]
+    fn a_spotlighted_row_beyond_the_fold_is_drawn_after_the_count() {
+        // row 8 is lit: rows 0..3, "… 6 more rows", row 8
+        let (drawn, more) = rows_to_draw(&rows(&[8], 10), 5);
+        assert_eq!(drawn, [(0, 0), (1, 1), (2, 2), (4, 8)]);
+        assert_eq!(more, Some((3, 6)));
+        // two lit rows, one before and one after the fold
+        let (drawn, more) = rows_to_draw(&rows(&[1, 9], 10), 5);
+        assert_eq!(drawn, [(0, 0), (1, 1), (2, 2), (4, 9)]);
+        assert_eq!(more, Some((3, 6)));
+        // more lit rows than slots: as many as fit, after the count
+        let (drawn, more) = rows_to_draw(&rows(&[5, 6, 7, 8, 9], 10), 3);
+        assert_eq!(drawn, [(1, 5), (2, 6)]);
+        assert_eq!(more, Some((0, 8)));
+        // no room at all
+        let (drawn, more) = rows_to_draw(&rows(&[5], 10), 0);
+        assert!(drawn.is_empty());
+        assert_eq!(more, Some((0, 10)));
+    }
 }

@@ -3,7 +3,7 @@
 
 use crate::inspect::{canvas_size, text_boxes, TextBox};
 use crate::{render_deck_html, render_frame};
-use crescendo_plan::*;
+use crescendo_frame::*;
 
 fn axis(title: Option<&str>, scale: ScaleKind, domain: [f64; 2], ticks: &[(f64, &str)]) -> Axis {
     Axis {
@@ -34,6 +34,7 @@ fn series(name: &str, role: Role, ys: &[Option<f64>]) -> Series {
                 y: *y,
             })
             .collect(),
+        end_values: Vec::new(),
     }
 }
 
@@ -414,6 +415,38 @@ fn plan_text_is_escaped() {
     );
     let boxes = check(&svg);
     assert_eq!(boxes[0].text, headline);
+}
+
+// XML 1.0 (Fifth Edition) §2.2 `Char`: C0 controls other than tab, line
+// feed and carriage return, U+FFFE and U+FFFF cannot appear in a document.
+#[test]
+fn characters_xml_cannot_carry_never_reach_the_svg() {
+    let bad = "\u{0}\u{1}\u{8}\u{B}\u{C}\u{E}\u{1B}\u{1F}\u{FFFE}\u{FFFF}";
+    let mut chart = bar_chart(Orientation::Horizontal);
+    if let Chart::Bars(b) = &mut chart {
+        b.bars[0].label = format!("Harbour{bad}side");
+        b.bars[0].value_label = format!("52{bad}");
+    }
+    let mut f = frame(
+        1,
+        1,
+        &format!("Sales{bad} rose"),
+        Some(&format!("Up{bad}")),
+        chart,
+    );
+    f.description = format!("Bars{bad}");
+    f.source = Some(format!("Survey{bad}"));
+    let d = deck(vec![f.clone()]);
+    let svg = render_frame(&d, &f).unwrap();
+    roxmltree::Document::parse(&svg).expect("a well-formed SVG");
+    assert!(!svg.chars().any(|c| !crate::svg::xml_char(c)));
+    assert!(svg.contains("Harbour\u{FFFD}"), "{svg}");
+    // the display list keeps the text as planned; only the writer substitutes
+    let list = crate::display_list(&d, &f, None).unwrap();
+    assert!(list
+        .texts()
+        .iter()
+        .any(|t| t.text.starts_with("Sales\u{0}")));
 }
 
 #[test]

@@ -3,7 +3,7 @@
 //! A `data` item may read a table or a read-only query of a PostgreSQL
 //! database (or any engine that speaks its protocol) instead of a CSV file.
 //! The views over it are split as the streaming reader splits them (see
-//! `crates/plan/src/loading.rs`): each view's leading `keep` and `add`
+//! `crates/plan/src/loading/`): each view's leading `keep` and `add`
 //! steps and at most one `by` step, then its `keep`, `add`, `sort` and
 //! `columns` steps, form its *prefix*, a small relational plan (scan,
 //! filter, derive, group/aggregate, sort, project, ordered by first

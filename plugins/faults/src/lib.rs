@@ -1,5 +1,5 @@
 //! TEST FIXTURE, not a real plugin: each form misbehaves on purpose so the
-//! host's fault tests (`crates/plugin/tests/host.rs`) can check that every
+//! host's fault tests (`crates/plugin-host/tests/host.rs`) can check that every
 //! misbehaviour becomes the right `PluginError` and never a crash.
 //!
 //! Most forms go through the SDK (so its panic catching and NaN check are

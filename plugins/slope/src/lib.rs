@@ -14,7 +14,7 @@ use crescendo_plugin::sdk::{
     cell_number, cell_text, column, decimals_needed, extent, format_number, shown, spread,
     text_width, Form, Linear, Shown,
 };
-use crescendo_plugin::{Anchor, Drawing, Primitive, Pt, Request, Role, Space};
+use crescendo_plugin::{Anchor, Column, Drawing, Primitive, Pt, Request, Role, Space};
 
 /// The slope chart form.
 pub struct SlopeChart;
@@ -43,11 +43,6 @@ struct Item {
 }
 
 fn slope(r: &Request) -> Result<Drawing, String> {
-    // Lay labels out for the host's text size.
-    let font = r.label_size.clamp(8.0, 72.0);
-    let line = (font * 1.25).ceil();
-    let head = line + 10.0;
-
     let cat = column(r, "category")?;
     let val = column(r, "value")?;
     let per = column(r, "period")?;
@@ -61,9 +56,22 @@ fn slope(r: &Request) -> Result<Drawing, String> {
     if val.cells.len() != rows || per.cells.len() != rows {
         return Err("the view's columns have different lengths".into());
     }
+    let labels = two_periods(per)?;
+    let (items, left_out) = items_of(r, [cat, val, per], &labels)?;
 
-    // The periods, in time order for time columns, numeric order for
-    // numbers, order of appearance for text.
+    let decimals = decimals_needed(items.iter().flat_map(|i| i.values), 2);
+    let fmt = |v: f64| format_number(v, decimals);
+    Ok(Drawing {
+        primitives: draw(r, &items, &labels, &fmt),
+        data_domain: None,
+        description: Some(describe(&items, &labels, &cat.name, &left_out, &fmt)),
+    })
+}
+
+/// The two periods of column `per`, in time order for time columns,
+/// numeric order for numbers, order of appearance for text; an error
+/// naming what it holds when there are not exactly two.
+fn two_periods(per: &Column) -> Result<[String; 2], String> {
     let mut periods: Vec<(String, Option<f64>)> = Vec::new();
     for cell in &per.cells {
         if let Some(label) = cell_text(cell) {
@@ -95,12 +103,19 @@ fn slope(r: &Request) -> Result<Drawing, String> {
             periods.len()
         ));
     }
-    let labels = [periods[0].0.clone(), periods[1].0.clone()];
+    Ok([periods[0].0.clone(), periods[1].0.clone()])
+}
 
-    // Values per category, in order of appearance.
+/// The categories with a value for both periods, in order of appearance,
+/// and the ones left out (with the period they lack).
+fn items_of(
+    r: &Request,
+    [cat, val, per]: [&Column; 3],
+    labels: &[String; 2],
+) -> Result<(Vec<Item>, Vec<String>), String> {
     let mut order: Vec<String> = Vec::new();
     let mut values: BTreeMap<String, [Option<f64>; 2]> = BTreeMap::new();
-    for i in 0..rows {
+    for i in 0..cat.cells.len() {
         let (Some(name), Some(period)) = (cell_text(&cat.cells[i]), cell_text(&per.cells[i]))
         else {
             continue;
@@ -146,11 +161,44 @@ fn slope(r: &Request) -> Result<Drawing, String> {
             cat.name, labels[0], labels[1]
         ));
     }
+    Ok((items, left_out))
+}
 
-    let decimals = decimals_needed(items.iter().flat_map(|i| i.values), 2);
-    let fmt = |v: f64| format_number(v, decimals);
+/// Where the two period axes and the labels go. Hidden items count here,
+/// so nothing moves when they appear.
+struct Layout {
+    w: f64,
+    h: f64,
+    line: f64,
+    x_left: f64,
+    x_right: f64,
+    top: f64,
+    bottom: f64,
+}
 
-    // Layout. Hidden items count here, so nothing moves when they appear.
+impl Layout {
+    fn pt(&self, x: f64, y: f64) -> Pt {
+        Pt {
+            x: x.clamp(0.0, self.w),
+            y: y.clamp(0.0, self.h),
+            space: Space::Plot,
+        }
+    }
+}
+
+/// The chart's primitives: the period titles and axes, then one line with
+/// its end points and labels per shown item, context first and focus last
+/// so the spotlighted lines lie on top.
+fn draw(
+    r: &Request,
+    items: &[Item],
+    labels: &[String; 2],
+    fmt: &dyn Fn(f64) -> String,
+) -> Vec<Primitive> {
+    // Lay labels out for the host's text size.
+    let font = r.label_size.clamp(8.0, 72.0);
+    let line = (font * 1.25).ceil();
+    let head = line + 10.0;
     let (w, h) = (r.area.width, r.area.height);
     let left_texts: Vec<String> = items
         .iter()
@@ -169,9 +217,57 @@ fn slope(r: &Request) -> Result<Drawing, String> {
         .min(w);
     let top = (head + line / 2.0).min(h / 2.0);
     let bottom = (h - line / 2.0).max(top);
+    let at = Layout {
+        w,
+        h,
+        line,
+        x_left,
+        x_right,
+        top,
+        bottom,
+    };
+    let mut prims = axes(&at, labels);
+    lines(&at, items, [&left_texts, &right_texts], &mut prims);
+    prims
+}
+
+/// The period titles above the two axes, and the axes.
+fn axes(at: &Layout, labels: &[String; 2]) -> Vec<Primitive> {
+    let (line, top, bottom) = (at.line, at.top, at.bottom);
+    vec![
+        Primitive::Text {
+            at: at.pt(at.x_left, 0.0),
+            text: labels[0].clone(),
+            anchor: Anchor::Middle,
+            bold: false,
+            role: Role::Axis,
+        },
+        Primitive::Text {
+            at: at.pt(at.x_right, 0.0),
+            text: labels[1].clone(),
+            anchor: Anchor::Middle,
+            bold: false,
+            role: Role::Axis,
+        },
+        Primitive::Line {
+            from: at.pt(at.x_left, top - line / 2.0),
+            to: at.pt(at.x_left, bottom),
+            role: Role::Axis,
+        },
+        Primitive::Line {
+            from: at.pt(at.x_right, top - line / 2.0),
+            to: at.pt(at.x_right, bottom),
+            role: Role::Axis,
+        },
+    ]
+}
+
+/// One line per shown item from its first value to its second, its end
+/// points, and its labels (spread so they do not overlap).
+fn lines(at: &Layout, items: &[Item], [left, right]: [&[String]; 2], prims: &mut Vec<Primitive>) {
+    let (line, top, bottom, h) = (at.line, at.top, at.bottom, at.h);
     let [lo, hi] = extent(items.iter().flat_map(|i| i.values)).unwrap_or([0.0, 1.0]);
     let y = Linear::new([lo, hi], [bottom, top]);
-
     let ys = |side: usize| -> Vec<f64> { items.iter().map(|i| y.map(i.values[side])).collect() };
     let (ys_left, ys_right) = (ys(0), ys(1));
     let label_top = |centres: Vec<f64>| -> Vec<f64> {
@@ -181,39 +277,6 @@ fn slope(r: &Request) -> Result<Drawing, String> {
             .collect()
     };
     let (at_left, at_right) = (label_top(ys_left.clone()), label_top(ys_right.clone()));
-
-    let pt = |x: f64, y: f64| Pt {
-        x: x.clamp(0.0, w),
-        y: y.clamp(0.0, h),
-        space: Space::Plot,
-    };
-    let mut prims = vec![
-        Primitive::Text {
-            at: pt(x_left, 0.0),
-            text: labels[0].clone(),
-            anchor: Anchor::Middle,
-            bold: false,
-            role: Role::Axis,
-        },
-        Primitive::Text {
-            at: pt(x_right, 0.0),
-            text: labels[1].clone(),
-            anchor: Anchor::Middle,
-            bold: false,
-            role: Role::Axis,
-        },
-        Primitive::Line {
-            from: pt(x_left, top - line / 2.0),
-            to: pt(x_left, bottom),
-            role: Role::Axis,
-        },
-        Primitive::Line {
-            from: pt(x_right, top - line / 2.0),
-            to: pt(x_right, bottom),
-            role: Role::Axis,
-        },
-    ];
-    // Context first, focus last, so the spotlighted lines lie on top.
     for pass in [Role::Context, Role::Focus] {
         for (k, item) in items.iter().enumerate() {
             let role = match item.shown {
@@ -226,7 +289,7 @@ fn slope(r: &Request) -> Result<Drawing, String> {
             }
             let bold = role == Role::Focus;
             let radius = if bold { 3.5 } else { 2.5 };
-            let (a, b) = (pt(x_left, ys_left[k]), pt(x_right, ys_right[k]));
+            let (a, b) = (at.pt(at.x_left, ys_left[k]), at.pt(at.x_right, ys_right[k]));
             prims.push(Primitive::Line {
                 from: a,
                 to: b,
@@ -243,27 +306,21 @@ fn slope(r: &Request) -> Result<Drawing, String> {
                 role,
             });
             prims.push(Primitive::Text {
-                at: pt(x_left - PAD, at_left[k]),
-                text: left_texts[k].clone(),
+                at: at.pt(at.x_left - PAD, at_left[k]),
+                text: left[k].clone(),
                 anchor: Anchor::End,
                 bold,
                 role,
             });
             prims.push(Primitive::Text {
-                at: pt(x_right + PAD, at_right[k]),
-                text: right_texts[k].clone(),
+                at: at.pt(at.x_right + PAD, at_right[k]),
+                text: right[k].clone(),
                 anchor: Anchor::Start,
                 bold,
                 role,
             });
         }
     }
-
-    Ok(Drawing {
-        primitives: prims,
-        data_domain: None,
-        description: Some(describe(&items, &labels, &cat.name, &left_out, &fmt)),
-    })
 }
 
 /// "Slope chart of route from 2019 to 2024, 5 items: Harbour Loop rose from

@@ -11,7 +11,7 @@ use crescendo_plugin::sdk::{
     cell_number, cell_text, column, decimals_needed, extent, format_number, format_signed, shown,
     Form, Linear, Shown,
 };
-use crescendo_plugin::{Anchor, Drawing, Primitive, Pt, Request, Role, Space};
+use crescendo_plugin::{Anchor, Column, Drawing, Primitive, Pt, Request, Role, Space};
 
 /// The waterfall form.
 pub struct Waterfall;
@@ -62,10 +62,6 @@ fn is_total_label(s: &str) -> bool {
 }
 
 fn waterfall(r: &Request) -> Result<Drawing, String> {
-    // Lay labels out for the host's text size.
-    let font = r.label_size.clamp(8.0, 72.0);
-    let line = (font * 1.25).ceil();
-
     let cat = column(r, "category")?;
     let val = column(r, "value")?;
     if val.kind != "number" {
@@ -77,7 +73,23 @@ fn waterfall(r: &Request) -> Result<Drawing, String> {
     if val.cells.len() != cat.cells.len() {
         return Err("the view's columns have different lengths".into());
     }
-    let mut rows: Vec<(String, f64)> = Vec::with_capacity(cat.cells.len());
+    let (rows, claimed) = rows_of(cat, val)?;
+    let bars = bars_of(r, &rows, claimed)?;
+    let decimals = decimals_needed(bars.iter().map(Bar::value), 2);
+    Ok(Drawing {
+        primitives: draw(r, &bars, decimals),
+        data_domain: None,
+        description: Some(describe(&bars, decimals)),
+    })
+}
+
+/// A category and its value.
+type Row = (String, f64);
+
+/// The start and step rows, and the total the data claims in its last
+/// row (`End` or `Total`), if it does.
+fn rows_of(cat: &Column, val: &Column) -> Result<(Vec<Row>, Option<Row>), String> {
+    let mut rows: Vec<Row> = Vec::with_capacity(cat.cells.len());
     for (i, (c, v)) in cat.cells.iter().zip(&val.cells).enumerate() {
         let name = cell_text(c).ok_or_else(|| format!("row {} has no `{}`", i + 1, cat.name))?;
         let value = cell_number(v)
@@ -107,8 +119,12 @@ fn waterfall(r: &Request) -> Result<Drawing, String> {
             if rows.len() == 1 { "" } else { "s" }
         ));
     }
+    Ok((rows, claimed))
+}
 
-    // Running totals, and the check against the data's total.
+/// The bars: the start, one per step on the running total, and the end
+/// total, checked against the data's claimed total.
+fn bars_of(r: &Request, rows: &[Row], claimed: Option<Row>) -> Result<Vec<Bar>, String> {
     let mut bars = Vec::with_capacity(rows.len() + 1);
     let (start_name, start) = rows[0].clone();
     bars.push(Bar {
@@ -155,14 +171,20 @@ fn waterfall(r: &Request) -> Result<Drawing, String> {
         from: 0.0,
         to: total,
     });
+    Ok(bars)
+}
 
-    let decimals = decimals_needed(bars.iter().map(Bar::value), 2);
+/// The chart's primitives: one slot per bar, with connectors between
+/// shown bars and the zero line; value labels above, categories below,
+/// drawn last.
+fn draw(r: &Request, bars: &[Bar], decimals: usize) -> Vec<Primitive> {
+    // Lay labels out for the host's text size.
+    let font = r.label_size.clamp(8.0, 72.0);
+    let line = (font * 1.25).ceil();
     let label_of = |b: &Bar| match b.kind {
         Kind::Step => format_signed(b.value(), decimals),
         _ => format_number(b.value(), decimals),
     };
-
-    // Layout: one slot per bar; value labels above, categories below.
     let (w, h) = (r.area.width, r.area.height);
     let slot = w / bars.len() as f64;
     let bar_w = slot * FILL;
@@ -230,12 +252,7 @@ fn waterfall(r: &Request) -> Result<Drawing, String> {
         role: Role::Axis,
     });
     prims.extend(labels);
-
-    Ok(Drawing {
-        primitives: prims,
-        data_domain: None,
-        description: Some(describe(&bars, decimals)),
-    })
+    prims
 }
 
 /// `name` cut to `max` characters with an ellipsis.

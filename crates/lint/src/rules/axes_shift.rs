@@ -1,7 +1,7 @@
 //! `axes-shift`: an axis that changes within a build-up sequence.
 
 use crescendo_diag::Severity;
-use crescendo_plan::{Axis, Chart};
+use crescendo_frame::{Axis, Chart};
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};

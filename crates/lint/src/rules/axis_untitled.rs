@@ -1,7 +1,7 @@
 //! `axis-untitled`: an axis of numbers with no title.
 
 use crescendo_diag::Severity;
-use crescendo_plan::{Chart, ScaleKind};
+use crescendo_frame::{Chart, ScaleKind};
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};

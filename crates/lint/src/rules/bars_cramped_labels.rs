@@ -1,7 +1,7 @@
 //! `bars-cramped-labels`: vertical bars with long category names.
 
 use crescendo_diag::Severity;
-use crescendo_plan::{Chart, Orientation};
+use crescendo_frame::{Chart, Orientation};
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};
@@ -28,17 +28,16 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
         let (Chart::Bars(b), Some(span)) = (&f.chart, &a.orientation) else {
             continue;
         };
-        if b.orientation != Orientation::Vertical {
-            continue;
-        }
-        let longest = b
-            .bars
-            .iter()
-            .map(|b| b.label.chars().count())
-            .max()
-            .unwrap_or(0);
-        // The planner's own rule for choosing horizontal bars.
-        if longest * b.bars.len() > 110 || longest > 24 {
+        // Forced vertical where the planner's own rule turns them.
+        if b.orientation == Orientation::Vertical
+            && a.orientation_by_rule == Some(Orientation::Horizontal)
+        {
+            let longest = b
+                .bars
+                .iter()
+                .map(|b| b.label.chars().count())
+                .max()
+                .unwrap_or(0);
             out.push(Finding {
                 frame: Some(i),
                 span: span.clone(),

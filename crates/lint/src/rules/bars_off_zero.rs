@@ -1,7 +1,7 @@
 //! `bars-off-zero`: a bar axis that does not start at zero.
 
 use crescendo_diag::Severity;
-use crescendo_plan::Chart;
+use crescendo_frame::Chart;
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};

@@ -1,7 +1,7 @@
 //! `bars-unsorted`: nominal categories left in data order.
 
 use crescendo_diag::Severity;
-use crescendo_plan::Chart;
+use crescendo_frame::Chart;
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};

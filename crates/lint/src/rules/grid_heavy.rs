@@ -1,7 +1,7 @@
 //! `grid-heavy`: gridlines drawn as strongly as the data.
 
 use crescendo_diag::Severity;
-use crescendo_plan::Chart;
+use crescendo_frame::Chart;
 
 use super::util::{frames, rgb8};
 use crate::colour::contrast_ratio;

@@ -1,7 +1,7 @@
 //! `headline-cut`: a headline too long for its two lines.
 
 use crescendo_diag::Severity;
-use crescendo_render::metrics;
+use crescendo_look::Part;
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};
@@ -23,16 +23,21 @@ pub static RULE: Rule = Rule {
 };
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
-    // The effective theme: a house style may change the size and margins.
-    let width = input.theme.text_column();
-    let size = input.theme.headline_size;
-    for (i, f, a) in frames(input) {
-        let lines = metrics::wrap(&f.headline, size, true, width, usize::MAX);
-        if lines.len() > 2 {
+    // The headline as laid out with the effective theme (a house style may
+    // change the size and margins): how many lines it needs.
+    for (i, _, a) in frames(input) {
+        let Some(list) = input.displays.get(i) else {
+            continue;
+        };
+        let headline = list.groups(|p| matches!(p, Part::Headline { .. }));
+        let Some((Part::Headline { needed }, _)) = headline.first() else {
+            continue;
+        };
+        if *needed > 2 {
             out.push(Finding {
                 frame: Some(i),
                 span: a.headline.clone(),
-                label: format!("needs {} lines", lines.len()),
+                label: format!("needs {needed} lines"),
                 message: "this headline is too long for two lines and will be cut off".into(),
                 fix: "shorten it to the point and move the detail into `takeaway`".into(),
             });

@@ -25,7 +25,7 @@ pub static RULE: Rule = Rule {
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     for (i, f, a) in frames(input) {
-        if a.x_is_text && matches!(f.chart, crescendo_plan::Chart::Line(_)) {
+        if a.x_is_text && matches!(f.chart, crescendo_frame::Chart::Line(_)) {
             out.push(Finding {
                 frame: Some(i),
                 span: a.chart.clone(),

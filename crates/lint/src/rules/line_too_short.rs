@@ -1,7 +1,7 @@
 //! `line-too-short`: a line with only one or two points.
 
 use crescendo_diag::Severity;
-use crescendo_plan::{Chart, Role};
+use crescendo_frame::{Chart, Role};
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};

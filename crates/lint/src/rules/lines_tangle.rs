@@ -1,7 +1,7 @@
 //! `lines-tangle`: more lines than a reader can follow.
 
 use crescendo_diag::Severity;
-use crescendo_plan::Chart;
+use crescendo_frame::Chart;
 
 use super::util::{frames, visible};
 use crate::{Doc, Finding, Input, Rule};

@@ -2,7 +2,7 @@
 
 use crescendo_diag::Severity;
 
-use crescendo_plan::Chart;
+use crescendo_frame::Chart;
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};

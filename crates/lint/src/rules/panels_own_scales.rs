@@ -1,7 +1,7 @@
 //! `panels-own-scales`: small multiples compared on different scales.
 
 use crescendo_diag::Severity;
-use crescendo_plan::Chart;
+use crescendo_frame::Chart;
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};

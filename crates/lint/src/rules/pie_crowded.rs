@@ -1,7 +1,7 @@
 //! `pie-crowded`: a pie with too many slices, or slices too close to tell apart.
 
 use crescendo_diag::Severity;
-use crescendo_plan::{Chart, Role};
+use crescendo_frame::{Chart, Role};
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};

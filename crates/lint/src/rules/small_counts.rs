@@ -1,7 +1,7 @@
 //! `small-counts`: counts small enough to identify people.
 
 use crescendo_diag::Severity;
-use crescendo_plan::{Chart, Role};
+use crescendo_frame::{Chart, Role};
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};

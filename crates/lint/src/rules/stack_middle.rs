@@ -1,7 +1,7 @@
 //! `stack-middle`: a stacked segment that is not on the baseline is the point.
 
 use crescendo_diag::Severity;
-use crescendo_plan::{Chart, PartsMode, Role};
+use crescendo_frame::{Chart, PartsMode, Role};
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};

@@ -1,8 +1,8 @@
 //! `ticks-crowded`: tick labels too many or too long for their axis.
 
 use crescendo_diag::Severity;
-use crescendo_plan::Chart;
-use crescendo_render::metrics;
+use crescendo_frame::Chart;
+use crescendo_look::Part;
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};
@@ -27,23 +27,26 @@ pub static RULE: Rule = Rule {
 fn check(input: &Input, out: &mut Vec<Finding>) {
     // The room a plot has at most: the text column less a tick-label column.
     let room = input.theme.text_column() * 0.8;
-    let size = input.theme.label_size;
+    let gap = input.theme.label_size;
     for (i, f, a) in frames(input) {
-        let Chart::Line(l) = &f.chart else { continue };
-        let gap = size;
-        let width: f64 =
-            l.x.ticks
-                .iter()
-                .map(|t| metrics::text_width(&t.label, size, false) + gap)
-                .sum();
+        let Chart::Line(_) = &f.chart else { continue };
+        // The x tick labels the layout was asked to place, measured.
+        let Some(list) = input.displays.get(i) else {
+            continue;
+        };
+        let ticks = list.groups(|p| matches!(p, Part::XTicks { .. }));
+        let Some((Part::XTicks { wanted }, _)) = ticks.first() else {
+            continue;
+        };
+        let width: f64 = wanted.iter().map(|w| w + gap).sum();
         if width > room {
             out.push(Finding {
                 frame: Some(i),
                 span: a.chart.clone(),
-                label: format!("{} labels along x", l.x.ticks.len()),
+                label: format!("{} labels along x", wanted.len()),
                 message: format!(
                     "{} x labels need about {:.0}px side by side, more than the plot's {:.0}px",
-                    l.x.ticks.len(),
+                    wanted.len(),
                     width,
                     room
                 ),

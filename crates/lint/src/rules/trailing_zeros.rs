@@ -36,12 +36,12 @@ fn has_trailing_zero(figure: &str, separator: &str) -> bool {
 }
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
-    let separator = input
-        .plan
-        .conventions()
-        .locale
-        .as_ref()
-        .map_or_else(|| ".".to_string(), |l| l.decimal_separator());
+    let plan = input.plan;
+    let separator =
+        crescendo_data::locale::Conventions::of(plan.locale.as_deref(), plan.fiscal_start)
+            .locale
+            .as_ref()
+            .map_or_else(|| ".".to_string(), |l| l.decimal_separator());
     for (i, f, a) in frames(input) {
         for (name, figure) in &f.quoted {
             if has_trailing_zero(figure, &separator) {

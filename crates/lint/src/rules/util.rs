@@ -1,7 +1,7 @@
 //! Helpers shared by the rules (not a rule).
 
-use crescendo_plan::anchors::{FrameAnchors, Span};
-use crescendo_plan::{Chart, FramePlan, Role};
+use crescendo_frame::anchors::{FrameAnchors, Span};
+use crescendo_frame::{Chart, FramePlan, Role};
 
 use crate::colour::Rgb8;
 use crate::Input;
@@ -106,7 +106,7 @@ pub fn look_span(input: &Input) -> Span {
 }
 
 /// A theme colour as an 8-bit colour for the colour science.
-pub fn rgb8(c: crescendo_render::Rgb) -> Rgb8 {
+pub fn rgb8(c: crescendo_look::Rgb) -> Rgb8 {
     Rgb8 {
         r: c.0,
         g: c.1,

@@ -1,0 +1,363 @@
+//! The display list: what layout decided to draw, positioned on the 1280×720
+//! canvas, before any SVG is written. The renderer's writer replays it into
+//! SVG; tests and lint rules read geometry from it (text boxes are measured
+//! with [`crate::metrics`] as the items are made, the way the SVG will show
+//! them).
+
+use crate::metrics::{line_height, text_width};
+use crate::theme::Rgb;
+
+/// Horizontal alignment of a text relative to its `x`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Align {
+    /// `x` is the left edge.
+    Start,
+    /// `x` is the centre.
+    Middle,
+    /// `x` is the right edge.
+    End,
+}
+
+/// An axis-aligned rectangle in px.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Rect {
+    /// Left edge.
+    pub x0: f64,
+    /// Top edge.
+    pub y0: f64,
+    /// Right edge.
+    pub x1: f64,
+    /// Bottom edge.
+    pub y1: f64,
+}
+
+impl Rect {
+    /// Area shared with `other` (0 when apart or touching).
+    pub fn overlap(&self, other: &Rect) -> f64 {
+        let dx = self.x1.min(other.x1) - self.x0.max(other.x0);
+        let dy = self.y1.min(other.y1) - self.y0.max(other.y0);
+        if dx > 0.0 && dy > 0.0 {
+            dx * dy
+        } else {
+            0.0
+        }
+    }
+
+    /// True if the two rectangles share more than `tolerance` px in both
+    /// directions.
+    pub fn overlaps(&self, other: &Rect, tolerance: f64) -> bool {
+        let dx = self.x1.min(other.x1) - self.x0.max(other.x0);
+        let dy = self.y1.min(other.y1) - self.y0.max(other.y0);
+        dx > tolerance && dy > tolerance
+    }
+
+    /// The rectangle grown by `m` on every side.
+    pub fn grow(&self, m: f64) -> Rect {
+        Rect {
+            x0: self.x0 - m,
+            y0: self.y0 - m,
+            x1: self.x1 + m,
+            y1: self.y1 + m,
+        }
+    }
+
+    /// True if `self` lies inside `outer`.
+    pub fn inside(&self, outer: &Rect) -> bool {
+        self.x0 >= outer.x0 && self.y0 >= outer.y0 && self.x1 <= outer.x1 && self.y1 <= outer.y1
+    }
+
+    /// Whether the segment `a`–`b` passes through the rectangle
+    /// (Liang–Barsky clipping).
+    pub fn hit_by(&self, a: (f64, f64), b: (f64, f64)) -> bool {
+        let (dx, dy) = (b.0 - a.0, b.1 - a.1);
+        let mut t0: f64 = 0.0;
+        let mut t1: f64 = 1.0;
+        for (p, q) in [
+            (-dx, a.0 - self.x0),
+            (dx, self.x1 - a.0),
+            (-dy, a.1 - self.y0),
+            (dy, self.y1 - a.1),
+        ] {
+            if p == 0.0 {
+                if q < 0.0 {
+                    return false;
+                }
+            } else {
+                let r = q / p;
+                if p < 0.0 {
+                    t0 = t0.max(r);
+                } else {
+                    t1 = t1.min(r);
+                }
+            }
+        }
+        t0 <= t1
+    }
+}
+
+/// The box of one line of text: `text_width` wide, one line height tall
+/// from `top`, placed by `align` around `x`.
+pub fn text_box(text: &str, x: f64, top: f64, size: f64, bold: bool, align: Align) -> Rect {
+    let w = text_width(text, size, bold);
+    let x0 = match align {
+        Align::Start => x,
+        Align::Middle => x - w / 2.0,
+        Align::End => x - w,
+    };
+    Rect {
+        x0,
+        y0: top,
+        x1: x0 + w,
+        y1: top + line_height(size),
+    }
+}
+
+/// One line of text, positioned by the top of its box.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Text {
+    /// The text as drawn (already fitted).
+    pub text: String,
+    /// Anchor position along x (see [`Text::align`]).
+    pub x: f64,
+    /// Top of the text box.
+    pub top: f64,
+    /// Font size in px, as it appears in the SVG.
+    pub size: f64,
+    /// Bold weight.
+    pub bold: bool,
+    /// Fill colour.
+    pub color: Rgb,
+    /// What `x` refers to.
+    pub align: Align,
+    /// The measured box ([`text_box`]).
+    pub bounds: Rect,
+}
+
+/// What a group of items is, for readers of the display list.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Part {
+    /// The painted page behind everything.
+    Page,
+    /// The headline lines; `needed` is how many lines the whole headline
+    /// needs at its size and width (more than are drawn when it is cut).
+    Headline {
+        /// Lines the whole headline needs.
+        needed: usize,
+    },
+    /// The takeaway lines.
+    Takeaway,
+    /// Notices drawn on a draft frame.
+    Notices,
+    /// The source note.
+    Source,
+    /// The tick labels along a horizontal axis. `wanted` holds the width of
+    /// every label the axis asked for, measured before any was dropped for
+    /// lack of room.
+    XTicks {
+        /// Measured widths of every tick label, in axis order.
+        wanted: Vec<f64>,
+    },
+    /// Everything the chart form drew in its region.
+    Chart,
+}
+
+/// One thing to draw. Coordinates are canvas px; the writer rounds them to
+/// whole pixels.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Item {
+    /// One line of text.
+    Text(Text),
+    /// An open polyline (a line when it has two points).
+    Polyline {
+        /// The points in order.
+        points: Vec<(f64, f64)>,
+        /// Stroke colour.
+        color: Rgb,
+        /// Stroke width in px.
+        width: u32,
+    },
+    /// A filled rectangle between two corners (any order).
+    Rect {
+        /// One corner.
+        a: (f64, f64),
+        /// The opposite corner.
+        b: (f64, f64),
+        /// Fill colour.
+        color: Rgb,
+    },
+    /// A filled dot.
+    Dot {
+        /// Centre.
+        at: (f64, f64),
+        /// Radius in px.
+        radius: u32,
+        /// Fill colour.
+        color: Rgb,
+    },
+    /// A filled polygon without outline.
+    Polygon {
+        /// The corners in order.
+        points: Vec<(f64, f64)>,
+        /// Fill colour.
+        color: Rgb,
+    },
+    /// Items that belong together, with what they are.
+    Group {
+        /// What the group is.
+        part: Part,
+        /// Its items, in drawing order.
+        items: Vec<Item>,
+    },
+}
+
+/// A frame's drawing: every item in drawing order, and the text alternative
+/// the SVG carries for screen readers.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct DisplayList {
+    /// The items, in drawing order (later items are drawn over earlier ones).
+    pub items: Vec<Item>,
+    /// A description that replaces the frame's own (a plugin's description
+    /// of what it drew), when there is one.
+    pub description: Option<String>,
+}
+
+impl DisplayList {
+    /// Every item in drawing order, groups opened (a group itself is not
+    /// listed, only its items).
+    pub fn flat(&self) -> Vec<&Item> {
+        fn walk<'a>(items: &'a [Item], out: &mut Vec<&'a Item>) {
+            for item in items {
+                match item {
+                    Item::Group { items, .. } => walk(items, out),
+                    other => out.push(other),
+                }
+            }
+        }
+        let mut out = Vec::new();
+        walk(&self.items, &mut out);
+        out
+    }
+
+    /// Every text in drawing order.
+    pub fn texts(&self) -> Vec<&Text> {
+        self.flat()
+            .into_iter()
+            .filter_map(|i| match i {
+                Item::Text(t) => Some(t),
+                _ => None,
+            })
+            .collect()
+    }
+
+    /// The groups whose part satisfies `which`, outermost first, in
+    /// drawing order.
+    pub fn groups(&self, which: impl Fn(&Part) -> bool) -> Vec<(&Part, &[Item])> {
+        fn walk<'a>(
+            items: &'a [Item],
+            which: &dyn Fn(&Part) -> bool,
+            out: &mut Vec<(&'a Part, &'a [Item])>,
+        ) {
+            for item in items {
+                if let Item::Group { part, items } = item {
+                    if which(part) {
+                        out.push((part, items));
+                    }
+                    walk(items, which, out);
+                }
+            }
+        }
+        let mut out = Vec::new();
+        walk(&self.items, &which, &mut out);
+        out
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn overlap_is_strict() {
+        let a = Rect {
+            x0: 0.0,
+            y0: 0.0,
+            x1: 10.0,
+            y1: 10.0,
+        };
+        let b = Rect { x0: 10.0, ..a };
+        let c = Rect {
+            x0: 5.0,
+            y0: 5.0,
+            x1: 20.0,
+            y1: 20.0,
+        };
+        assert!(!a.overlaps(&b, 0.0));
+        assert_eq!(a.overlap(&b), 0.0);
+        assert!(a.overlaps(&c, 0.0));
+        assert_eq!(a.overlap(&c), 25.0);
+        assert!(!a.overlaps(&c, 6.0));
+    }
+
+    #[test]
+    fn segments_hit_rectangles() {
+        let r = Rect {
+            x0: 0.0,
+            y0: 0.0,
+            x1: 10.0,
+            y1: 10.0,
+        };
+        assert!(r.hit_by((-5.0, 5.0), (15.0, 5.0)));
+        assert!(!r.hit_by((-5.0, 15.0), (15.0, 15.0)));
+        assert!(r.hit_by((5.0, 5.0), (6.0, 6.0)));
+        assert!(!r.hit_by((11.0, -1.0), (20.0, 5.0)));
+    }
+
+    #[test]
+    fn text_boxes_follow_the_alignment() {
+        let w = text_width("Pools", 16.0, false);
+        let s = text_box("Pools", 100.0, 10.0, 16.0, false, Align::Start);
+        let m = text_box("Pools", 100.0, 10.0, 16.0, false, Align::Middle);
+        let e = text_box("Pools", 100.0, 10.0, 16.0, false, Align::End);
+        assert_eq!((s.x0, s.x1), (100.0, 100.0 + w));
+        assert_eq!((m.x0, m.x1), (100.0 - w / 2.0, 100.0 + w / 2.0));
+        assert_eq!((e.x0, e.x1), (100.0 - w, 100.0));
+        assert_eq!(s.y1 - s.y0, line_height(16.0));
+    }
+
+    #[test]
+    fn groups_are_found_and_flattened() {
+        let text = |t: &str| {
+            Item::Text(Text {
+                text: t.into(),
+                x: 0.0,
+                top: 0.0,
+                size: 16.0,
+                bold: false,
+                color: Rgb(0, 0, 0),
+                align: Align::Start,
+                bounds: text_box(t, 0.0, 0.0, 16.0, false, Align::Start),
+            })
+        };
+        let list = DisplayList {
+            items: vec![
+                Item::Group {
+                    part: Part::Headline { needed: 3 },
+                    items: vec![text("a"), text("b")],
+                },
+                Item::Group {
+                    part: Part::Chart,
+                    items: vec![Item::Group {
+                        part: Part::XTicks { wanted: vec![1.0] },
+                        items: vec![text("c")],
+                    }],
+                },
+            ],
+            description: None,
+        };
+        let texts: Vec<&str> = list.texts().iter().map(|t| t.text.as_str()).collect();
+        assert_eq!(texts, ["a", "b", "c"]);
+        assert_eq!(list.groups(|p| matches!(p, Part::XTicks { .. })).len(), 1);
+        assert_eq!(list.groups(|p| *p == Part::Headline { needed: 3 }).len(), 1);
+        assert_eq!(list.groups(|p| *p == Part::Source).len(), 0);
+    }
+}

@@ -1,0 +1,129 @@
+//! `value NAME = ...` and `claim "sentence": CONDITION` items: values are
+//! computed as they are defined; every claim is checked on every build.
+
+use std::collections::BTreeSet;
+
+use crescendo_diag::Diagnostic;
+use crescendo_lang::ast;
+
+use crate::context::{Ctx, Outcome};
+use crate::model::ClaimPlan;
+use crate::scope::Scope;
+use crate::values;
+
+/// Compute a value item. `later`: the value names defined further down (to
+/// explain a use before the definition).
+pub(crate) fn define_value(
+    cx: &mut Ctx,
+    scope: &mut Scope,
+    v: &ast::ValueDecl,
+    later: &BTreeSet<String>,
+) {
+    let name = &v.name.name;
+    if scope.values.spans.contains_key(name) || name == "conclusion" {
+        let d = cx.at(
+            "duplicate-name",
+            format!("a value named `{name}` is already defined"),
+            v.name.span.clone(),
+            "defined again here",
+        );
+        let d = match scope.values.spans.get(name) {
+            Some(prev) => d.also(cx.src, prev.clone(), "first defined here"),
+            None => d.note("`conclusion` always quotes the story's conclusion"),
+        };
+        cx.report(d);
+        return;
+    }
+    let mut deps = BTreeSet::new();
+    values::names_in(&v.expr, &mut deps);
+    let result = scope.evaluator(cx.src).eval(&v.expr);
+    let values = &mut scope.values;
+    values.spans.insert(name.clone(), v.name.span.clone());
+    values.deps.insert(name.clone(), deps);
+    match result {
+        Ok(q) => {
+            values.by_name.insert(name.clone(), q);
+        }
+        Err(mut ds) => {
+            for d in &mut ds {
+                explain_later(d, later);
+            }
+            let _ = cx.extend(ds);
+            values.broken.insert(name.clone());
+        }
+    }
+}
+
+/// "no value named `x`" for a value defined further down: say so.
+fn explain_later(d: &mut Diagnostic, later: &BTreeSet<String>) {
+    let missing = d
+        .message
+        .strip_prefix("no value named `")
+        .and_then(|m| m.strip_suffix('`'))
+        .map(str::to_string);
+    if let Some(missing) = missing.filter(|m| later.contains(m)) {
+        d.help = Some(format!(
+            "`{missing}` is defined further down: move this value below it"
+        ));
+    }
+}
+
+/// Check a claim. A claim that does not hold adds its error to
+/// `failed_claims`; the plan keeps it with the value names it rests on.
+pub(crate) fn check_claim(
+    cx: &mut Ctx,
+    scope: &Scope,
+    c: &ast::ClaimDecl,
+    failed_claims: &mut Vec<Diagnostic>,
+) -> Outcome<(ClaimPlan, BTreeSet<String>)> {
+    let mut shown = Vec::new();
+    let holds = match scope.evaluator(cx.src).condition(&c.condition, &mut shown) {
+        Ok(h) => h,
+        Err(d) => {
+            cx.extend(d)?;
+            return Err(cx.already_reported());
+        }
+    };
+    let condition = cx
+        .src
+        .text
+        .get(c.condition.span())
+        .unwrap_or("")
+        .trim()
+        .to_string();
+    let mut names = BTreeSet::new();
+    values::names_in(&c.condition, &mut names);
+    let depends = scope.values.closure(&names);
+    if !holds {
+        let mut d = cx
+            .at(
+                "claim-false",
+                format!("the data no longer supports: \"{}\"", c.sentence.value),
+                c.condition.span(),
+                "this is false",
+            )
+            .also(cx.src, c.sentence.span.clone(), "the sentence it protects");
+        for line in &shown {
+            d = d.note(line.clone());
+        }
+        for n in &depends {
+            if let Some(q) = scope.values.by_name.get(n) {
+                d = d.note(format!("{n} = {}", q.figure()));
+            }
+        }
+        failed_claims.push(d.help(
+            "change the sentence, or check the new data; `--draft` builds anyway and marks the frames that depend on it",
+        ));
+    }
+    // A frame rests on the claim when its texts use a value the claim
+    // names (directly or through other values).
+    Ok((
+        ClaimPlan {
+            sentence: c.sentence.value.clone(),
+            condition,
+            holds,
+            detail: shown,
+        },
+        names,
+    ))
+}

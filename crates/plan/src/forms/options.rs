@@ -1,0 +1,116 @@
+//! The options of a chart statement, checked against the table of options
+//! its form accepts: an option the form does not take, one given twice, a
+//! column missing or one too many are reported from the table, not from
+//! code written per form.
+
+use crescendo_lang::ast::{ChartOpt, Ident, OptName};
+
+use crate::context::{Ctx, Outcome};
+
+/// An option a form accepts, and whether it names a column (`x month`) or
+/// stands alone (`ordered`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) struct Opt {
+    pub(crate) name: OptName,
+    pub(crate) column: bool,
+}
+
+/// An option that names a column.
+pub(crate) const fn column(name: OptName) -> Opt {
+    Opt { name, column: true }
+}
+
+/// An option that stands alone.
+pub(crate) const fn flag(name: OptName) -> Opt {
+    Opt {
+        name,
+        column: false,
+    }
+}
+
+/// The options a chart statement gave, each once, each allowed.
+#[derive(Debug, Default)]
+pub(crate) struct Chosen<'c> {
+    given: Vec<(OptName, Option<&'c Ident>)>,
+}
+
+impl<'c> Chosen<'c> {
+    /// The column given for option `name`.
+    pub(crate) fn column(&self, name: OptName) -> Option<&'c Ident> {
+        self.given
+            .iter()
+            .find(|(k, _)| *k == name)
+            .and_then(|(_, c)| *c)
+    }
+
+    /// Was the option given?
+    pub(crate) fn has(&self, name: OptName) -> bool {
+        self.given.iter().any(|(k, _)| *k == name)
+    }
+
+    /// Of the options `names`, the one given last.
+    pub(crate) fn last_of(&self, names: &[OptName]) -> Option<OptName> {
+        self.given
+            .iter()
+            .rev()
+            .map(|(k, _)| *k)
+            .find(|k| names.contains(k))
+    }
+}
+
+/// Check the options of a chart statement of form `form` against the
+/// form's table `accepted`; reports every problem, then fails.
+pub(crate) fn choose<'c>(
+    cx: &mut Ctx,
+    form: &str,
+    accepted: &[Opt],
+    opts: &'c [ChartOpt],
+) -> Outcome<Chosen<'c>> {
+    let cp = cx.checkpoint();
+    let mut chosen = Chosen::default();
+    for o in opts {
+        let Some(rule) = accepted.iter().find(|a| a.name == o.name) else {
+            let names: Vec<&str> = accepted.iter().map(|a| a.name.keyword()).collect();
+            let d = cx
+                .at(
+                    "chart-option",
+                    format!("`{}` is not an option of {form}", o.name.keyword()),
+                    o.span.clone(),
+                    "not allowed here",
+                )
+                .note(format!("{form} takes: {}", names.join(", ")));
+            cx.report(d);
+            continue;
+        };
+        if chosen.has(o.name) {
+            cx.error(
+                "chart-option",
+                format!("`{}` is given twice", o.name.keyword()),
+                o.span.clone(),
+                "again here",
+            );
+            continue;
+        }
+        match (&o.column, rule.column) {
+            (None, true) => {
+                cx.error(
+                    "chart-option",
+                    format!("`{}` needs a column name", o.name.keyword()),
+                    o.span.clone(),
+                    "which column?",
+                );
+            }
+            (Some(col), false) => {
+                cx.error(
+                    "chart-option",
+                    format!("`{}` takes no column", o.name.keyword()),
+                    col.span.clone(),
+                    "remove this",
+                );
+            }
+            _ => chosen.given.push((o.name, o.column.as_ref())),
+        }
+    }
+    cx.errors_since(cp)?;
+    Ok(chosen)
+}

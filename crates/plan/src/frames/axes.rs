@@ -1,0 +1,146 @@
+//! Statements about the measure's axis: `y range FROM to TO` and
+//! `gridlines` / `gridlines off`. Both hold for the rest of the sequence.
+
+use crescendo_data::format;
+use crescendo_lang::ast::{AxisName, Span};
+
+use crate::context::{Ctx, Outcome};
+use crate::model::*;
+use crate::scale;
+use crate::sequence::SeqState;
+
+/// `y range FROM to TO`: fix the measure's axis for the rest of the
+/// sequence. The data must fit inside it; ticks are chosen within it.
+pub(crate) fn range(
+    cx: &mut Ctx,
+    st: &mut SeqState,
+    axis: AxisName,
+    from: f64,
+    to: f64,
+    span: &Span,
+) -> Outcome<()> {
+    if axis == AxisName::X {
+        let d = cx
+            .at(
+                "axis-range",
+                "only the measure's axis can be given a range",
+                span.clone(),
+                "x range",
+            )
+            .help("write `y range FROM to TO`; x axes always span the data");
+        return Err(cx.report(d));
+    }
+    if from >= to {
+        return Err(cx.error(
+            "axis-range",
+            format!(
+                "the range must rise: {} to {}",
+                format::number(from, None),
+                format::number(to, None)
+            ),
+            span.clone(),
+            "empty range",
+        ));
+    }
+    let (axis, values): (&mut Axis, Vec<f64>) = match &mut st.chart {
+        Chart::Line(l) => {
+            let v = l
+                .series
+                .iter()
+                .flat_map(|s| s.points.iter().filter_map(|p| p.y))
+                .collect();
+            (&mut l.y, v)
+        }
+        Chart::Bars(b) => {
+            let v = b.bars.iter().filter_map(|b| b.value).collect();
+            (&mut b.value, v)
+        }
+        _ => {
+            return Err(cx.error(
+                "axis-range",
+                "only line and bar charts take `y range`",
+                span.clone(),
+                "not for this chart",
+            ));
+        }
+    };
+    let lo = values.iter().copied().fold(f64::INFINITY, f64::min);
+    let hi = values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    if lo < from || hi > to {
+        let d = cx
+            .at(
+                "axis-range",
+                format!(
+                    "the range {} to {} would cut off data: the values run from {} to {}",
+                    format::number(from, None),
+                    format::number(to, None),
+                    format::number(lo, None),
+                    format::number(hi, None)
+                ),
+                span.clone(),
+                "data outside this range",
+            )
+            .help("widen the range, or leave it out to fit the axis to the data");
+        return Err(cx.report(d));
+    }
+    let fitted = scale::linear_axis(from, to, false, axis.title.clone());
+    axis.ticks = fitted
+        .ticks
+        .into_iter()
+        .filter(|t| t.value >= from - 1e-9 * (to - from) && t.value <= to + 1e-9 * (to - from))
+        .collect();
+    axis.domain = [from, to];
+    st.anchors.range = Some(span.clone());
+    Ok(())
+}
+
+/// Set `grid` on the measure's axis of a chart (of every panel's chart);
+/// `false` when the chart has no measure's axis.
+fn set_grid(chart: &mut Chart, on: bool) -> bool {
+    match chart {
+        Chart::Line(l) => l.y.grid = on,
+        Chart::Bars(b) => b.value.grid = on,
+        Chart::Parts(p) => p.value.grid = on,
+        Chart::Dots(d) => d.value.grid = on,
+        Chart::Scatter(s) => s.y.grid = on,
+        Chart::Panels(p) => {
+            let mut all = !p.panels.is_empty();
+            for panel in &mut p.panels {
+                all &= set_grid(&mut panel.chart, on);
+            }
+            return all;
+        }
+        Chart::Figures(_) | Chart::Table(_) | Chart::Pie(_) | Chart::Plugin(_) => return false,
+    }
+    true
+}
+
+/// `gridlines` or `gridlines off`: light lines at the ticks of the
+/// measure's axis (`y` of a line or a scatter, `value` of bars, parts and
+/// dots, the inner charts' measure in panels). Kept in the sequence's
+/// chart, so they persist until `gridlines off` or a new chart.
+pub(crate) fn gridlines(cx: &mut Ctx, st: &mut SeqState, on: bool, span: &Span) -> Outcome<()> {
+    if !set_grid(&mut st.chart, on) {
+        let form = match &st.chart {
+            Chart::Figures(_) => "figures",
+            Chart::Table(_) => "a table",
+            Chart::Pie(_) => "a pie",
+            Chart::Plugin(_) => "a plugin's chart",
+            _ => "this chart",
+        };
+        let d = cx
+            .at(
+                "gridlines",
+                format!("`gridlines` needs a measure's axis, and {form} has none"),
+                span.clone(),
+                "no axis to draw gridlines along",
+            )
+            .help(
+                "use gridlines with line, bars, dots or scatter charts (or their panels), \
+                 or remove the statement",
+            );
+        return Err(cx.report(d));
+    }
+    st.anchors.gridlines = on.then(|| span.clone());
+    Ok(())
+}

@@ -1,0 +1,73 @@
+//! The frames: each frame item planned in turn, carrying the build-up
+//! state of its sequence (visible series, spotlight, axis titles,
+//! annotations) from frame to frame and turning it into roles.
+
+mod annotations;
+mod axes;
+mod frame;
+mod roles;
+mod split;
+mod targets;
+mod texts;
+mod unfold;
+
+use std::collections::BTreeSet;
+
+use crescendo_lang::ast;
+
+use crate::anchors::Anchors;
+use crate::context::Ctx;
+use crate::header::Header;
+use crate::model::FramePlan;
+use crate::scope::Scope;
+use crate::sequence::Sequence;
+use crate::values::Resolved;
+use frame::Deck;
+use unfold::Budget;
+
+/// A claim that does not hold: its sentence and the value names it rests
+/// on. A frame whose texts use one of them carries a draft notice.
+pub(crate) type FailedClaim = (String, BTreeSet<String>);
+
+/// Plan every frame item, in order. Frames that fail are left out (their
+/// errors are reported); `anchors` gets one entry per planned frame.
+pub(crate) fn plan_frames(
+    cx: &mut Ctx,
+    scope: &Scope,
+    header: &Header,
+    items: &[&ast::FrameDecl],
+    (source, failed): (Option<&Resolved>, &[FailedClaim]),
+    anchors: &mut Anchors,
+) -> Vec<FramePlan> {
+    let mut deck = Deck {
+        scope,
+        header,
+        source,
+        seq: Sequence::NotStarted,
+        sequence: 0,
+    };
+    let mut planned = Vec::new();
+    for (i, f) in items.iter().enumerate() {
+        let budget = Budget {
+            before: planned.len(),
+            after: items.len() - i - 1,
+            limit: cx.options.limits.frames,
+        };
+        let Ok(made) = frame::plan(cx, &mut deck, f, budget) else {
+            continue;
+        };
+        for mut fp in made.frames {
+            anchors.frames.push(made.anchors.clone());
+            for (sentence, deps) in failed {
+                if deps.iter().any(|d| made.texts.depends.contains(d)) {
+                    fp.notices
+                        .push(format!("Draft: the data does not support \"{sentence}\""));
+                }
+            }
+            fp.quoted = made.texts.quoted.clone();
+            fp.templates = made.texts.templates.clone();
+            planned.push(fp);
+        }
+    }
+    planned
+}

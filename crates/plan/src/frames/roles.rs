@@ -1,0 +1,148 @@
+//! The chart of one frame: the sequence's chart with the roles (focus,
+//! context, hidden) its build-up state gives each item, and its axis
+//! titles.
+
+use std::collections::BTreeSet;
+
+use crate::model::*;
+use crate::sequence::SeqState;
+
+/// The chart of the current frame: roles from the visibility and spotlight.
+pub(crate) fn apply_state(st: &SeqState) -> Chart {
+    let visible = st.names.iter().filter(|n| !st.hidden.contains(*n)).count();
+    let role = |name: &str| {
+        if st.hidden.contains(name) {
+            Role::Hidden
+        } else if st.spotlight.contains(name)
+            || (st.spotlight.is_empty() && st.names.len() == 1 && visible == 1)
+        {
+            Role::Focus
+        } else {
+            Role::Context
+        }
+    };
+    let titles = Titles {
+        x: st.x_title.as_ref().map(|t| t.text.clone()),
+        y: st.y_title.as_ref().map(|t| t.text.clone()),
+    };
+    let mut chart = apply_roles(&st.chart, &role, &titles, &st.cells);
+    if let Chart::Plugin(p) = &mut chart {
+        // A plugin gets the role of every item it may draw.
+        p.request.roles = st
+            .names
+            .iter()
+            .filter_map(|n| {
+                let r = match role(n) {
+                    Role::Focus => crescendo_plugin::Role::Focus,
+                    Role::Context => crescendo_plugin::Role::Context,
+                    Role::Hidden => return None,
+                };
+                Some((n.clone(), r))
+            })
+            .collect();
+        p.request.hidden = st
+            .names
+            .iter()
+            .filter(|n| st.hidden.contains(*n))
+            .cloned()
+            .collect();
+    }
+    chart
+}
+
+/// The axis titles a frame sets (`x title`, `y title`).
+struct Titles {
+    x: Option<String>,
+    y: Option<String>,
+}
+
+/// Replace `slot` by the title `t`, when one is set.
+fn set(slot: &mut Option<String>, t: &Option<String>) {
+    if t.is_some() {
+        *slot = t.clone();
+    }
+}
+
+/// Set roles (by series, bar, part, row, slice or panel name) and axis
+/// titles on a chart.
+fn apply_roles(
+    chart: &Chart,
+    role: &dyn Fn(&str) -> Role,
+    titles: &Titles,
+    cells: &BTreeSet<(String, String)>,
+) -> Chart {
+    let mut chart = chart.clone();
+    match &mut chart {
+        Chart::Line(l) => {
+            set(&mut l.x.title, &titles.x);
+            set(&mut l.y.title, &titles.y);
+            for s in &mut l.series {
+                s.role = role(&s.name);
+            }
+        }
+        Chart::Bars(b) => {
+            set(&mut b.category_title, &titles.x);
+            set(&mut b.value.title, &titles.y);
+            for bar in &mut b.bars {
+                bar.role = role(&bar.label);
+            }
+        }
+        Chart::Parts(p) => {
+            set(&mut p.category_title, &titles.x);
+            set(&mut p.value.title, &titles.y);
+            for part in &mut p.parts {
+                part.role = role(&part.name);
+            }
+        }
+        Chart::Dots(d) => {
+            set(&mut d.category_title, &titles.x);
+            set(&mut d.value.title, &titles.y);
+            if d.series.len() > 1 {
+                for s in &mut d.series {
+                    s.role = role(&s.name);
+                }
+            } else {
+                for r in &mut d.rows {
+                    r.role = role(&r.label);
+                }
+            }
+        }
+        Chart::Scatter(sc) => {
+            set(&mut sc.x.title, &titles.x);
+            set(&mut sc.y.title, &titles.y);
+            for p in &mut sc.points {
+                p.role = role(&p.label);
+            }
+        }
+        Chart::Figures(_) => {}
+        Chart::Plugin(p) => {
+            p.request.texts.x_title = titles.x.clone();
+            p.request.texts.y_title = titles.y.clone();
+        }
+        Chart::Table(t) => {
+            for row in &mut t.rows {
+                let key = row.cells.first().cloned().unwrap_or_default();
+                row.role = role(&key);
+                row.focus_cell = t
+                    .columns
+                    .iter()
+                    .position(|c| cells.contains(&(key.clone(), c.title.clone())));
+            }
+        }
+        Chart::Pie(p) => {
+            for s in &mut p.slices {
+                s.role = role(&s.label);
+            }
+        }
+        Chart::Panels(pc) => {
+            for panel in &mut pc.panels {
+                let r = role(&panel.title);
+                panel.role = r;
+                // inside a panel, its own series takes the panel's role
+                let inner = |_: &str| r;
+                panel.chart = apply_roles(&panel.chart, &inner, titles, cells);
+            }
+        }
+    }
+    chart
+}

@@ -1,0 +1,110 @@
+//! Data files: the CSV spec of a `data` item (its declared column types,
+//! its file, its missing-value tokens), and the located errors of a read.
+
+use std::path::Path;
+
+use crescendo_data::{ColType, CsvSpec, LoadError};
+use crescendo_diag::{closest, Diagnostic};
+use crescendo_lang::ast::{self, Ident};
+
+use crate::context::{Ctx, Outcome};
+
+/// A declared column type.
+fn col_type(cx: &mut Ctx, id: &Ident) -> Outcome<ColType> {
+    Ok(match id.name.as_str() {
+        "text" => ColType::Text,
+        "number" => ColType::Number,
+        "date" => ColType::Date,
+        "month" => ColType::Month,
+        "year" => ColType::Year,
+        other => {
+            let mut d = cx
+                .at(
+                    "unknown-type",
+                    format!("unknown column type `{other}`"),
+                    id.span.clone(),
+                    "not a type",
+                )
+                .note("column types are text, number, date (YYYY-MM-DD), month (YYYY-MM) and year (YYYY)");
+            if let Some(s) = closest(other, ["text", "number", "date", "month", "year"]) {
+                d = d.help(format!("did you mean `{s}`?"));
+            }
+            return Err(cx.report(d));
+        }
+    })
+}
+
+/// The CSV spec of a `data` item; reports bad column declarations.
+/// `replacement`: the file `--data` names (relative to the working
+/// folder) instead of the story's.
+pub(crate) fn data_spec(
+    cx: &mut Ctx,
+    decl: &ast::DataDecl,
+    replacement: Option<&Path>,
+) -> Outcome<CsvSpec> {
+    let cp = cx.checkpoint();
+    let mut declared: Vec<(String, ColType)> = Vec::new();
+    for c in &decl.columns {
+        if declared.iter().any(|(n, _)| *n == c.name.name) {
+            cx.error(
+                "duplicate-name",
+                format!("column `{}` is declared twice", c.name.name),
+                c.name.span.clone(),
+                "declared again here",
+            );
+            continue;
+        }
+        if let Ok(t) = col_type(cx, &c.ty) {
+            declared.push((c.name.name.clone(), t));
+        }
+    }
+    cx.errors_since(cp)?;
+    let path = match replacement {
+        Some(p) => p.to_path_buf(),
+        None => cx.dir.join(&decl.file.value),
+    };
+    Ok(CsvSpec {
+        display_name: path.display().to_string(),
+        path,
+        declared,
+        missing: match &decl.missing {
+            Some(m) => m.iter().map(|s| s.value.clone()).collect(),
+            None => vec![String::new(), "NA".to_string()],
+        },
+    })
+}
+
+/// The result of reading a data file, its error located in the story (and
+/// in the file, with an excerpt of the record).
+pub(crate) fn reported<T>(
+    cx: &mut Ctx,
+    decl: &ast::DataDecl,
+    result: Result<T, LoadError>,
+) -> Outcome<T> {
+    let d = match result {
+        Ok(t) => return Ok(t),
+        Err(LoadError::Csv(d)) => d.also(
+            cx.src,
+            decl.file.span.clone(),
+            format!("while loading `{}`", decl.name.name),
+        ),
+        Err(LoadError::Story {
+            code,
+            message,
+            help,
+            declared,
+        }) => {
+            let span = match declared {
+                Some(i) => decl
+                    .columns
+                    .get(i)
+                    .map_or(decl.file.span.clone(), |c| c.name.span.clone()),
+                None => decl.file.span.clone(),
+            };
+            let mut d = Diagnostic::error(code, message).at(cx.src, span, "");
+            d.help = help;
+            d
+        }
+    };
+    Err(cx.report(d))
+}

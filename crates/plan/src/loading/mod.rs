@@ -1,0 +1,129 @@
+//! How data items are read: streamed when only views read them, loaded
+//! (the used columns only) otherwise, and views cached between builds.
+//!
+//! # Streaming
+//!
+//! Before any item is resolved, [`Loader::prepare`] looks at the whole story
+//! (`facts.rs`).
+//! A data item is *streamed* when nothing but views reads it (no chart, value
+//! or other item names it) and every view over it starts with `keep` or `by`.
+//! Its file is then read once: the prefix of each view (its leading `keep`
+//! steps and at most one `by`) is evaluated record by record on both cores
+//! (`crescendo_data::stream`), and the data item itself keeps only its
+//! column names and types (no rows). The views' remaining steps run on the
+//! small prefix tables as usual. The column types come from the first 1000
+//! records; a later cell that contradicts them, or any problem in the file,
+//! falls back to the whole load, which reports located diagnostics exactly
+//! as before.
+//!
+//! # Columns
+//!
+//! Only the columns the story can read are parsed: the declared ones (so
+//! their cells are still checked) and the names used as identifiers anywhere
+//! in the story (a superset of the columns any step, chart or value reads).
+//! Every column when a `top` step may see a data item's raw rows (it folds by
+//! all text columns) or a `table` chart is present.
+//!
+//! # The view cache
+//!
+//! When the build keeps a cache (the planner's I/O offers one, see
+//! `io.rs`), a streamed view's prefix table is stored under a key
+//! made of: the cache format, the data file's content hash (xxh3-128 of its
+//! bytes; the build command's cache keeps a size-and-time shortcut), the
+//! declared types, the missing-value tokens, the parsed columns, and the
+//! resolved prefix steps. The file's final column types are stored under the
+//! same key without the steps. An unchanged view is then not recomputed, and
+//! when every view of a data item is cached its file is not read at all (nor
+//! hashed again, when its size and time are unchanged). Entries hold their
+//! tables losslessly (numbers as bits), so cached and uncached builds are
+//! byte-identical.
+//!
+//! # One open file
+//!
+//! A data file is opened once, through the planner's I/O ([`Io::open`]),
+//! and the open file is checked to lie in the story's folder (or an
+//! allowed one); the cache's content hash, the type probe, the streaming
+//! threads and the whole load all read that one descriptor, never the path
+//! again. The reads stop at the text and row limits (`--max-text`,
+//! `--max-rows`, see `limits.rs`) on both paths.
+//!
+//! Database sources are read in `database.rs`; what the loads did comes
+//! back with the plan ([`LoadReport`], the SQL log).
+
+mod database;
+mod facts;
+mod files;
+mod state;
+mod stream;
+
+use std::fs::File;
+use std::path::Path;
+
+use crescendo_data::files::OpenError;
+use crescendo_data::load::io_error;
+use crescendo_data::{Columns, CsvSpec, Table};
+use crescendo_lang::ast;
+
+use crate::context::{Ctx, Outcome};
+#[cfg(doc)]
+use crate::io::Io;
+use crate::tables::Tables;
+
+pub use state::LoadReport;
+pub(crate) use state::Loader;
+
+impl Loader {
+    /// Load one `data` item: streamed (its views' prefixes computed, the
+    /// item itself without rows), loaded with the used columns, or read
+    /// from its database. `replacement`: the file `--data` names instead.
+    pub(crate) fn load(
+        &mut self,
+        cx: &mut Ctx,
+        tables: &mut Tables,
+        decl: &ast::DataDecl,
+        replacement: Option<&Path>,
+    ) -> Outcome<Table> {
+        if let Some(db) = decl.database.as_ref().filter(|_| replacement.is_none()) {
+            return database::load(cx, self, tables, (decl, db));
+        }
+        let spec = files::data_spec(cx, decl, replacement)?;
+        let file = open(cx, decl, &spec, replacement.is_some())?;
+        let keep = if self.facts.all_columns {
+            Columns::All
+        } else {
+            Columns::Only(self.facts.idents.clone())
+        };
+        let name = decl.name.name.clone();
+        if let Some(views) = self.facts.streamable.get(&name).cloned() {
+            let read = (decl, &spec, &file);
+            let streamed = stream::stream(cx, self, tables, read, &views, &keep);
+            if let Some(table) = streamed {
+                self.report.streamed.push(name);
+                return table;
+            }
+        }
+        self.report.loaded.push(name);
+        let read = cx.io.load_csv(&spec, &file, &keep, &self.limits);
+        files::reported(cx, decl, read)
+    }
+}
+
+/// The data file of `decl`, opened once and checked where it really is
+/// (`--data` names a file on the user's own command line, which may be
+/// anywhere).
+fn open(cx: &mut Ctx, decl: &ast::DataDecl, spec: &CsvSpec, named: bool) -> Outcome<File> {
+    let dir = if named { None } else { Some(cx.dir) };
+    match cx.io.open(dir, &spec.path) {
+        Ok(f) => Ok(f),
+        Err(OpenError::Outside { real }) => {
+            let why = format!(
+                "`{}` is outside the story's folder ({})",
+                decl.file.value,
+                real.display()
+            );
+            let d = crate::paths::outside(cx.src, decl.file.span.clone(), "data file", &why);
+            Err(cx.report(d))
+        }
+        Err(OpenError::Io(e)) => files::reported(cx, decl, Err(io_error(spec, &e))),
+    }
+}

@@ -1,0 +1,58 @@
+//! The build-up state carried from frame to frame within a sequence (the
+//! frames that share one chart statement).
+
+use std::collections::BTreeSet;
+
+use crate::anchors::FrameAnchors;
+use crate::context::Reported;
+use crate::model::Chart;
+use crate::values::Resolved;
+
+/// The build-up state of the current sequence.
+pub(crate) struct SeqState {
+    pub(crate) chart: Chart,
+    /// Every series or bar name in the chart, in display order.
+    pub(crate) names: Vec<String>,
+    pub(crate) hidden: BTreeSet<String>,
+    pub(crate) spotlight: BTreeSet<String>,
+    pub(crate) x_title: Option<Resolved>,
+    pub(crate) y_title: Option<Resolved>,
+    pub(crate) view_name: String,
+    pub(crate) key_name: String,
+    /// Spotlighted table cells: (row key, column title).
+    pub(crate) cells: BTreeSet<(String, String)>,
+    /// The measure column's name (`split ... by` must name it).
+    pub(crate) measure_name: String,
+    /// Where things were said, for the lint.
+    pub(crate) anchors: FrameAnchors,
+}
+
+impl SeqState {
+    /// A new sequence over `chart`: nothing hidden or spotlighted yet.
+    pub(crate) fn new(chart: Chart) -> SeqState {
+        SeqState {
+            chart,
+            names: Vec::new(),
+            hidden: BTreeSet::new(),
+            spotlight: BTreeSet::new(),
+            x_title: None,
+            y_title: None,
+            view_name: String::new(),
+            key_name: String::new(),
+            cells: BTreeSet::new(),
+            measure_name: String::new(),
+            anchors: FrameAnchors::default(),
+        }
+    }
+}
+
+/// Where the build-up stands before a frame.
+pub(crate) enum Sequence {
+    /// No chart has been started yet.
+    NotStarted,
+    /// The last chart statement failed, and that was reported: the frames
+    /// that build on it are skipped without blaming each of them again.
+    Broken(Reported),
+    /// A chart, with its build-up state.
+    Open(Box<SeqState>),
+}

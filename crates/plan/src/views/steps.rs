@@ -1,0 +1,317 @@
+//! Each step of a view checked against the columns before it: `columns`,
+//! `keep`, `add`, `by` with its aggregates, `sort` and `top`. A step that
+//! checks becomes a step of the view engine (`crescendo_data::Step`).
+
+use std::sync::Arc;
+
+use crescendo_data::{AggFn, Aggregate, ColType, Step};
+use crescendo_diag::{closest, Diagnostic, Source};
+use crescendo_lang::ast::{self, Expr, Ident, StepAst};
+
+use crate::rows::{column, Checker, Schema, Ty};
+
+/// A step checked: the columns a `columns` step keeps, or an engine step.
+pub(crate) enum Checked {
+    Columns(Vec<usize>),
+    Step(Step),
+}
+
+/// What a step is checked against: the columns before it, where that is
+/// ("at this step of `v`"), and why a column is text (for notes).
+pub(crate) struct At<'a> {
+    pub(crate) src: &'a Arc<Source>,
+    pub(crate) schema: &'a Schema,
+    pub(crate) place: &'a str,
+    pub(crate) why: &'a dyn Fn(&str) -> Option<String>,
+}
+
+impl At<'_> {
+    fn column(&self, id: &Ident, diags: &mut Vec<Diagnostic>) -> Option<(usize, ColType)> {
+        column(self.src, self.schema, self.place, id, diags)
+    }
+
+    fn checker<'d>(&'d self, diags: &'d mut Vec<Diagnostic>) -> Checker<'d> {
+        Checker {
+            src: self.src,
+            schema: self.schema,
+            table: self.place,
+            diags,
+            why: self.why,
+        }
+    }
+}
+
+/// Check one step; `None` after an error (the caller also looks for
+/// errors reported while a step still came out).
+pub(crate) fn check(at: &At, step: &StepAst, diags: &mut Vec<Diagnostic>) -> Option<Checked> {
+    let step = match step {
+        StepAst::Columns { names, .. } => return Some(Checked::Columns(columns(at, names, diags))),
+        StepAst::Keep { expr, .. } => keep(at, expr, diags),
+        StepAst::Add {
+            name: new, expr, ..
+        } => add(at, new, expr, diags),
+        StepAst::By {
+            keys, aggregates, ..
+        } => by(at, keys, aggregates, diags),
+        StepAst::Sort { keys, .. } => {
+            let keys = keys
+                .iter()
+                .filter_map(|k| Some((at.column(&k.column, diags)?.0, k.descending)))
+                .collect();
+            Some(Step::Sort { keys })
+        }
+        StepAst::Top {
+            n,
+            n_span,
+            key,
+            by,
+            rest,
+            ..
+        } => top(at, (*n, n_span), key, by, rest, diags),
+    };
+    step.map(Checked::Step)
+}
+
+/// `columns a, b, c`: keep only these columns, in this order.
+fn columns(at: &At, names: &[Ident], diags: &mut Vec<Diagnostic>) -> Vec<usize> {
+    let mut picked: Vec<usize> = Vec::new();
+    for n in names {
+        if let Some((i, _)) = at.column(n, diags) {
+            if picked.contains(&i) {
+                diags.push(
+                    Diagnostic::error("duplicate-name", format!("`{}` is listed twice", n.name))
+                        .at(at.src, n.span.clone(), "again here"),
+                );
+            }
+            picked.push(i);
+        }
+    }
+    picked
+}
+
+fn keep(at: &At, expr: &Expr, diags: &mut Vec<Diagnostic>) -> Option<Step> {
+    let mut ck = at.checker(diags);
+    match ck.check(expr) {
+        Some((e, Ty::Bool)) => Some(Step::Keep(e)),
+        Some((_, t)) => {
+            ck.err(
+                expr.span(),
+                format!("`keep` needs a condition, but this is {}", t.describe()),
+                "not a condition",
+            );
+            None
+        }
+        None => None,
+    }
+}
+
+fn add(at: &At, new: &Ident, expr: &Expr, diags: &mut Vec<Diagnostic>) -> Option<Step> {
+    if !check_new_name(at.src, at.schema, new, diags) {
+        return None;
+    }
+    let mut ck = at.checker(diags);
+    match ck.check(expr) {
+        Some((e, Ty::Col(ColType::Number))) => Some(Step::Derive {
+            name: new.name.clone(),
+            expr: e,
+        }),
+        Some((_, t)) => {
+            ck.err(
+                expr.span(),
+                format!("`add` computes a number, but this is {}", t.describe()),
+                "not a number",
+            );
+            None
+        }
+        None => None,
+    }
+}
+
+/// `by KEYS: name = aggregate(column), ...`.
+fn by(
+    at: &At,
+    keys: &[Ident],
+    aggregates: &[ast::AggregateAst],
+    diags: &mut Vec<Diagnostic>,
+) -> Option<Step> {
+    let mut key_idx = Vec::new();
+    let mut out: Schema = Vec::new();
+    for k in keys {
+        if let Some((i, t)) = at.column(k, diags) {
+            if key_idx.contains(&i) {
+                diags.push(
+                    Diagnostic::error("duplicate-name", format!("`{}` is already a key", k.name))
+                        .at(at.src, k.span.clone(), "repeated key"),
+                );
+            }
+            key_idx.push(i);
+            out.push((k.name.clone(), t));
+        }
+    }
+    let mut aggs = Vec::new();
+    for a in aggregates {
+        if !check_new_name(at.src, &out, &a.name, diags) {
+            continue;
+        }
+        if let Some((agg, ty)) = aggregate(at, a, diags) {
+            out.push((a.name.name.clone(), ty));
+            aggs.push(agg);
+        }
+    }
+    Some(Step::Group {
+        keys: key_idx,
+        aggregates: aggs,
+    })
+}
+
+/// One aggregate of a `by` step, with the type of its result.
+fn aggregate(
+    at: &At,
+    a: &ast::AggregateAst,
+    diags: &mut Vec<Diagnostic>,
+) -> Option<(Aggregate, ColType)> {
+    let func = agg_fn(at.src, &a.func, diags)?;
+    let col = match &a.column {
+        None if func == AggFn::Count => None,
+        None => {
+            diags.push(
+                Diagnostic::error("type", format!("`{}` needs a column", a.func.name))
+                    .at(at.src, a.span.clone(), "no column given")
+                    .help(format!("write `{} = {}(COLUMN)`", a.name.name, a.func.name)),
+            );
+            return None;
+        }
+        Some(c) => {
+            let (i, t) = at.column(c, diags)?;
+            let numeric = matches!(func, AggFn::Sum | AggFn::Mean | AggFn::Median);
+            if numeric && t != ColType::Number {
+                let mut d = Diagnostic::error(
+                    "type",
+                    format!(
+                        "`{}` needs a number column, but `{}` is {}",
+                        a.func.name,
+                        c.name,
+                        t.name()
+                    ),
+                )
+                .at(at.src, c.span.clone(), "not a number column");
+                d.notes.extend((at.why)(&c.name));
+                diags.push(d);
+                return None;
+            }
+            Some(i)
+        }
+    };
+    let ty = match (func, col) {
+        (AggFn::Count | AggFn::Sum | AggFn::Mean | AggFn::Median, _) => ColType::Number,
+        (_, Some(i)) => at.schema[i].1,
+        (_, None) => ColType::Number,
+    };
+    let agg = Aggregate {
+        name: a.name.name.clone(),
+        func,
+        column: col,
+    };
+    Some((agg, ty))
+}
+
+/// `top N KEY by MEASURE [rest "Other"]`.
+fn top(
+    at: &At,
+    (n, n_span): (u64, &ast::Span),
+    key: &Ident,
+    by: &Ident,
+    rest: &Option<ast::Str>,
+    diags: &mut Vec<Diagnostic>,
+) -> Option<Step> {
+    let k = at.column(key, diags);
+    let b = at.column(by, diags);
+    if n == 0 {
+        diags.push(Diagnostic::error("type", "`top 0` would keep nothing").at(
+            at.src,
+            n_span.clone(),
+            "must be 1 or more",
+        ));
+    }
+    let ((ki, kt), (bi, bt)) = (k?, b?);
+    if kt != ColType::Text {
+        diags.push(
+            Diagnostic::error(
+                "type",
+                format!(
+                    "`top` folds text categories, but `{}` is {}",
+                    key.name,
+                    kt.name()
+                ),
+            )
+            .at(at.src, key.span.clone(), "not a text column"),
+        );
+    }
+    if bt != ColType::Number {
+        diags.push(
+            Diagnostic::error(
+                "type",
+                format!(
+                    "`top` ranks by a number column, but `{}` is {}",
+                    by.name,
+                    bt.name()
+                ),
+            )
+            .at(at.src, by.span.clone(), "not a number column"),
+        );
+    }
+    Some(Step::Top {
+        key: ki,
+        by: bi,
+        n: usize::try_from(n).unwrap_or(usize::MAX),
+        rest: rest
+            .as_ref()
+            .map_or_else(|| "Other".to_string(), |r| r.value.clone()),
+    })
+}
+
+fn agg_fn(src: &Arc<Source>, id: &Ident, diags: &mut Vec<Diagnostic>) -> Option<AggFn> {
+    const NAMES: [&str; 8] = [
+        "sum", "mean", "median", "min", "max", "count", "first", "last",
+    ];
+    Some(match id.name.as_str() {
+        "sum" => AggFn::Sum,
+        "mean" => AggFn::Mean,
+        "median" => AggFn::Median,
+        "min" => AggFn::Min,
+        "max" => AggFn::Max,
+        "count" => AggFn::Count,
+        "first" => AggFn::First,
+        "last" => AggFn::Last,
+        other => {
+            let mut d = Diagnostic::error("unknown-name", format!("unknown aggregate `{other}`"))
+                .at(src, id.span.clone(), "not an aggregate")
+                .note(format!("aggregates are {}", NAMES.join(", ")));
+            if let Some(s) = closest(other, NAMES) {
+                d = d.help(format!("did you mean `{s}`?"));
+            }
+            diags.push(d);
+            return None;
+        }
+    })
+}
+
+fn check_new_name(
+    src: &Arc<Source>,
+    schema: &Schema,
+    id: &Ident,
+    diags: &mut Vec<Diagnostic>,
+) -> bool {
+    if schema.iter().any(|(n, _)| *n == id.name) {
+        diags.push(
+            Diagnostic::error(
+                "duplicate-name",
+                format!("a column named `{}` already exists here", id.name),
+            )
+            .at(src, id.span.clone(), "name taken")
+            .help("choose another name"),
+        );
+        return false;
+    }
+    true
+}

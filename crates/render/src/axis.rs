@@ -1,0 +1,389 @@
+//! The one axis component: tick labels of an axis, in a column beside the
+//! plot (right-aligned) or in a row under it (centred under their
+//! positions), thinned so no two touch. Every chart form and every panel
+//! draws its ticks through it.
+
+use crate::canvas::{Align, Canvas};
+use crate::kit::{self, muted_label, put, Obstacles};
+use crate::layout::{self, fit_label_at, map, max_width, Region};
+use crate::metrics::{self, line_height, text_width};
+use crate::theme::Theme;
+use crate::RenderError;
+use crescendo_frame::Axis;
+use crescendo_look::display::Part;
+
+/// How a tick label is fitted into the row.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) enum Fit {
+    /// As written.
+    AsWritten,
+    /// Cut with an ellipsis to this width.
+    Ellipsize(f64),
+    /// As written, but counted at most this wide when placing it.
+    Capped(f64),
+}
+
+/// Where a row of tick labels goes.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) struct Row {
+    /// Top of the labels.
+    pub top: f64,
+    /// The leftmost and rightmost a label may reach.
+    pub lo: f64,
+    pub hi: f64,
+    /// Least space between two labels kept.
+    pub gap: f64,
+    pub fit: Fit,
+    /// A label wider than `lo..hi` keeps its left edge at `lo` (else its
+    /// right edge at `hi`).
+    pub keep_left: bool,
+}
+
+/// The tick labels of `axis` in a column, right-aligned at `right`, each
+/// centred on its position `at(value)`, thinned 2 px apart.
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn column(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    theme: &Theme,
+    size: f64,
+    axis: &Axis,
+    at: impl Fn(f64) -> f64,
+    right: f64,
+) -> Result<(), RenderError> {
+    let lh = line_height(size);
+    let ticks = layout::visible_ticks(axis);
+    let spans: Vec<(f64, f64)> = ticks
+        .iter()
+        .map(|(v, _)| (at(*v) - lh / 2.0, at(*v) + lh / 2.0))
+        .collect();
+    for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
+        if keep {
+            let label = muted_label(theme, size, text, right, at(*v) - lh / 2.0, Align::End);
+            kit::put(canvas, obstacles, &label)?;
+        }
+    }
+    Ok(())
+}
+
+/// The tick labels of `axis` in a row, centred under their positions
+/// `at(value)`, the outermost moved inside `row.lo..row.hi`, thinned
+/// `row.gap` apart. The group records the width of every label the axis
+/// asked for.
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn row(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    theme: &Theme,
+    size: f64,
+    axis: &Axis,
+    at: impl Fn(f64) -> f64,
+    row: Row,
+) -> Result<(), RenderError> {
+    let ticks = layout::visible_ticks(axis);
+    let wanted = (ticks.iter())
+        .map(|(_, text)| text_width(text, size, false))
+        .collect();
+    let placed: Vec<(f64, f64, String)> = ticks
+        .into_iter()
+        .map(|(v, text)| {
+            let (text, w) = match row.fit {
+                Fit::AsWritten => {
+                    let w = text_width(&text, size, false);
+                    (text, w)
+                }
+                Fit::Ellipsize(width) => {
+                    let text = metrics::ellipsize(&text, size, false, width);
+                    let w = text_width(&text, size, false);
+                    (text, w)
+                }
+                Fit::Capped(width) => {
+                    let w = text_width(&text, size, false).min(width);
+                    (text, w)
+                }
+            };
+            let hi = if row.keep_left {
+                row.hi.max(row.lo + w)
+            } else {
+                row.hi
+            };
+            let centre = at(v).max(row.lo + w / 2.0).min(hi - w / 2.0);
+            (centre, w, text)
+        })
+        .collect();
+    let spans: Vec<(f64, f64)> = placed
+        .iter()
+        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
+        .collect();
+    canvas.group(Part::XTicks { wanted }, || {
+        for ((c, _, text), keep) in placed.iter().zip(layout::thin(&spans, row.gap)) {
+            if keep {
+                let label = muted_label(theme, size, text, *c, row.top, Align::Middle);
+                kit::put(canvas, obstacles, &label)?;
+            }
+        }
+        Ok(())
+    })
+}
+
+/// Geometry of a plain x/y plot: y ticks right-aligned at the left, an
+/// optional y title above them, x ticks and an optional x title below.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) struct XyLayout {
+    /// Left edge of the region (where the y title starts).
+    pub left: f64,
+    pub y_title_top: Option<f64>,
+    pub x_title_top: Option<f64>,
+    pub tick_right: f64,
+    pub plot_left: f64,
+    pub plot_right: f64,
+    pub plot_top: f64,
+    pub plot_bottom: f64,
+    pub x_tick_top: f64,
+    /// Tick label size.
+    pub size: f64,
+}
+
+/// Space between tick labels and the plot.
+pub(crate) const PAD: f64 = 12.0;
+
+/// Lays out an x/y plot in `region`, leaving `right_reserve` px free at the
+/// right; `y_ticks` false drops the tick column (small multiples).
+pub(crate) fn xy_layout(
+    x: &Axis,
+    y: &Axis,
+    region: Region,
+    right_reserve: f64,
+    size: f64,
+    y_ticks: bool,
+) -> XyLayout {
+    let lh = line_height(size);
+    let mut top = region.top;
+    let y_title_top = y.title.as_ref().map(|_| {
+        let t = top;
+        top += lh + 8.0;
+        t
+    });
+    let (x_title_top, x_tick_top, plot_bottom) = bottom_rows(region.bottom, lh, x.title.is_some());
+    let ticks = layout::visible_ticks(y);
+    let tick_w = if y_ticks {
+        max_width(ticks.iter().map(|(_, l)| l.as_str()), size, false)
+    } else {
+        0.0
+    };
+    XyLayout {
+        left: region.left,
+        y_title_top,
+        x_title_top,
+        tick_right: region.left + tick_w,
+        plot_left: if tick_w > 0.0 {
+            region.left + tick_w + PAD
+        } else {
+            region.left
+        },
+        plot_right: region.right - right_reserve,
+        plot_top: top + lh / 2.0,
+        plot_bottom,
+        x_tick_top,
+        size,
+    }
+}
+
+/// Which way gridlines run across the plot.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) enum Across {
+    /// Horizontal lines at the measure's ticks on a vertical axis.
+    Rows,
+    /// Vertical lines at the measure's ticks on a horizontal axis.
+    Columns,
+}
+
+/// Light gridlines (`gridlines`) at each visible tick of the measure's
+/// axis: 1 px in the theme's grid colour, from `from` to `to` across the
+/// plot, where `at` maps a value to its position along the axis. Drawn
+/// before the data so they stay under it; a tick on the baseline (`skip`,
+/// the baseline's position) gets none, since the baseline is drawn there.
+/// Nothing is drawn when the axis does not ask for gridlines.
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn gridlines(
+    canvas: &Canvas,
+    theme: &Theme,
+    axis: &Axis,
+    at: impl Fn(f64) -> f64,
+    from: f64,
+    to: f64,
+    across: Across,
+    skip: Option<f64>,
+) -> Result<(), RenderError> {
+    if !axis.grid {
+        return Ok(());
+    }
+    for (v, _) in layout::visible_ticks(axis) {
+        let p = at(v);
+        if !p.is_finite() || skip.is_some_and(|s| (s - p).abs() < 0.5) {
+            continue;
+        }
+        let (a, b) = match across {
+            Across::Rows => ((from, p), (to, p)),
+            Across::Columns => ((p, from), (p, to)),
+        };
+        canvas.line(a, b, theme.grid, 1)?;
+    }
+    Ok(())
+}
+
+/// Draws the titles, tick labels, gridlines (when the y axis asks for
+/// them) and baseline of an x/y plot; records the text boxes in `obstacles`. `y_ticks` false leaves the y labels out (the
+/// plot keeps its place).
+pub(crate) fn draw_xy_axes(
+    canvas: &Canvas,
+    theme: &Theme,
+    x: &Axis,
+    y: &Axis,
+    l: &XyLayout,
+    y_ticks: bool,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    let size = l.size;
+    let muted = muted_label;
+    if let (Some(top), Some(title)) = (l.y_title_top, y.title.as_deref()) {
+        let text = fit_one(title, l.plot_right - l.left, l.size);
+        put(
+            canvas,
+            obstacles,
+            &muted(theme, size, &text, l.left, top, Align::Start),
+        )?;
+    }
+    if let (Some(top), Some(title)) = (l.x_title_top, x.title.as_deref()) {
+        let text = fit_one(title, l.plot_right - l.plot_left, l.size);
+        put(
+            canvas,
+            obstacles,
+            &muted(
+                theme,
+                size,
+                &text,
+                (l.plot_left + l.plot_right) / 2.0,
+                top,
+                Align::Middle,
+            ),
+        )?;
+    }
+    let ymap = |v: f64| map(v, y.domain, l.plot_bottom, l.plot_top);
+    let xmap = |v: f64| map(v, x.domain, l.plot_left, l.plot_right);
+    if y_ticks {
+        column(canvas, obstacles, theme, size, y, ymap, l.tick_right)?;
+    }
+    let width = l.plot_right - l.plot_left;
+    let x_row = Row {
+        top: l.x_tick_top,
+        lo: l.plot_left,
+        hi: l.plot_right,
+        gap: 12.0,
+        fit: Fit::Ellipsize(width.max(0.0)),
+        keep_left: false,
+    };
+    row(canvas, obstacles, theme, size, x, xmap, x_row)?;
+    gridlines(
+        canvas,
+        theme,
+        y,
+        ymap,
+        l.plot_left,
+        l.plot_right,
+        Across::Rows,
+        Some(l.plot_bottom),
+    )?;
+    canvas.line(
+        (l.plot_left, l.plot_bottom),
+        (l.plot_right, l.plot_bottom),
+        theme.baseline,
+        theme.baseline_stroke,
+    )
+}
+
+/// An axis title: one muted line at the label size, fitted into `width`,
+/// placed at `(x, top)` by `align`.
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn title(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    theme: &Theme,
+    title: &str,
+    width: f64,
+    (x, top): (f64, f64),
+    align: Align,
+) -> Result<(), RenderError> {
+    let text = fit_one(title, width, theme.label_size);
+    let label = muted_label(theme, theme.label_size, &text, x, top, align);
+    put(canvas, obstacles, &label)
+}
+
+/// A value axis under horizontal bands (bars, parts, dots).
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Under {
+    /// Where the axis title goes, when there is one: its top, the width it
+    /// may take and the centre it is set on.
+    pub title: Option<(f64, f64, f64)>,
+    /// The tick labels.
+    pub row: Row,
+    /// The gridlines' extent across the bands.
+    pub across: (f64, f64),
+    /// No gridline at zero (the baseline is drawn there).
+    pub skip_zero: bool,
+}
+
+/// Draws a value axis under horizontal bands: its title, its tick labels in
+/// a row and, when asked for, gridlines across the bands.
+pub(crate) fn under(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    theme: &Theme,
+    axis: &Axis,
+    vmap: impl Fn(f64) -> f64 + Copy,
+    u: Under,
+) -> Result<(), RenderError> {
+    if let (Some((top, width, centre)), Some(text)) = (u.title, axis.title.as_deref()) {
+        title(
+            canvas,
+            obstacles,
+            theme,
+            text,
+            width,
+            (centre, top),
+            Align::Middle,
+        )?;
+    }
+    row(
+        canvas,
+        obstacles,
+        theme,
+        theme.label_size,
+        axis,
+        vmap,
+        u.row,
+    )?;
+    let skip = u.skip_zero.then(|| vmap(0.0));
+    let (from, to) = u.across;
+    gridlines(canvas, theme, axis, vmap, from, to, Across::Columns, skip)
+}
+
+/// The rows under a plot, from the `bottom` of the region up: an axis
+/// title when `titled`, then the tick labels. Returns the title's top, the
+/// ticks' top and the plot's bottom.
+pub(crate) fn bottom_rows(bottom: f64, lh: f64, titled: bool) -> (Option<f64>, f64, f64) {
+    let mut bottom = bottom;
+    let title_top = titled.then(|| {
+        bottom -= lh;
+        let t = bottom;
+        bottom -= 4.0;
+        t
+    });
+    let tick_top = bottom - lh;
+    (title_top, tick_top, tick_top - 8.0)
+}
+
+/// One line of text fitted into `width` at `size`.
+pub(crate) fn fit_one(text: &str, width: f64, size: f64) -> String {
+    fit_label_at(size, text, width.max(0.0), 1, false).join(" ")
+}

@@ -1,0 +1,187 @@
+//! The band-chart drawer shared by bars, stacked and grouped bars and dot
+//! plots: categories sit in equal bands across the plot, values run along
+//! it. One orientation transform maps (across, along) to canvas points, so
+//! the marks, their value labels and the baseline are drawn by the same
+//! code whichever way the bars run.
+
+use crate::canvas::{Align, Canvas, Label};
+use crate::kit::{self, Obstacles};
+use crate::metrics::{self, line_height};
+use crate::theme::{Rgb, Theme};
+use crate::RenderError;
+use crescendo_frame::{Orientation, Role};
+
+/// Space between a bar end and its value label.
+pub(crate) const VALUE_GAP: f64 = 6.0;
+
+/// Where the category bands lie and which way the values run.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) struct Band {
+    /// `Vertical`: bands left to right, values upwards; `Horizontal`: bands
+    /// top to bottom, values rightwards.
+    pub orientation: Orientation,
+    /// Where the first band starts (plot left or plot top).
+    pub start: f64,
+    /// The size of one band across the plot.
+    pub size: f64,
+}
+
+impl Band {
+    /// The centre of band `i`.
+    pub fn centre(&self, i: usize) -> f64 {
+        self.start + (i as f64 + 0.5) * self.size
+    }
+
+    /// The canvas point `across` the bands and `along` the values.
+    pub fn point(&self, across: f64, along: f64) -> (f64, f64) {
+        match self.orientation {
+            Orientation::Vertical => (across, along),
+            Orientation::Horizontal => (along, across),
+        }
+    }
+
+    /// A filled mark from `a` to `b` along the values, `from..to` across.
+    pub fn mark(
+        &self,
+        canvas: &Canvas,
+        (from, to): (f64, f64),
+        (a, b): (f64, f64),
+        color: Rgb,
+    ) -> Result<(), RenderError> {
+        canvas.rect(self.point(from, a), self.point(to, b), color)
+    }
+
+    /// A line across the marks at `along`, from `from` to `to` across.
+    pub fn rule(
+        &self,
+        canvas: &Canvas,
+        (from, to): (f64, f64),
+        along: f64,
+        color: Rgb,
+        width: u32,
+    ) -> Result<(), RenderError> {
+        canvas.line(self.point(from, along), self.point(to, along), color, width)
+    }
+
+    /// Where a label goes beyond the end of a mark at `end` in band centre
+    /// `centre`: past the end in the direction the mark grows (`outward`
+    /// for a positive value), the text's box one gap away.
+    pub fn end_label(&self, end: f64, centre: f64, lh: f64, outward: bool) -> (f64, f64, Align) {
+        match (self.orientation, outward) {
+            (Orientation::Vertical, true) => (centre, end - VALUE_GAP - lh, Align::Middle),
+            (Orientation::Vertical, false) => (centre, end + VALUE_GAP, Align::Middle),
+            (Orientation::Horizontal, true) => (end + VALUE_GAP, centre - lh / 2.0, Align::Start),
+            (Orientation::Horizontal, false) => (end - VALUE_GAP, centre - lh / 2.0, Align::End),
+        }
+    }
+}
+
+/// The column of category names beside horizontal bars: as wide as the
+/// widest name up to `cap`, and two lines when a name is wider than that
+/// and a band has room for two. Returns the width and the line count.
+pub(crate) fn name_column(widest: f64, cap: f64, band: f64, step: f64) -> (f64, usize) {
+    let lines = if widest > cap && band >= 2.0 * step {
+        2
+    } else {
+        1
+    };
+    (widest.min(cap), lines)
+}
+
+/// Room past the ends of the marks for labels `width` wide (when
+/// `labelled`): below zero when the domain has negative values, above it
+/// when it has positive ones. Returns (below, above).
+pub(crate) fn end_room(dom: [f64; 2], width: f64, labelled: bool) -> (f64, f64) {
+    let room = |needed: bool| {
+        if labelled && needed {
+            width + VALUE_GAP
+        } else {
+            0.0
+        }
+    };
+    (room(dom[0] < 0.0), room(dom[1] > 0.0))
+}
+
+/// One bar of a bar chart: its mark from `zero` to `end` and, in focus, its
+/// value at the end.
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn bar(
+    canvas: &Canvas,
+    theme: &Theme,
+    band: &Band,
+    i: usize,
+    thickness: f64,
+    (zero, end): (f64, f64),
+    positive: bool,
+    color: Rgb,
+    focus_label: Option<&str>,
+) -> Result<(), RenderError> {
+    let centre = band.centre(i);
+    let across = (centre - thickness / 2.0, centre + thickness / 2.0);
+    band.mark(canvas, across, (zero, end), color)?;
+    if let Some(text) = focus_label {
+        let lh = line_height(theme.label_size);
+        let (x, top, align) = band.end_label(end, centre, lh, positive);
+        canvas.text(&Label {
+            text: &metrics::normalize(text),
+            x,
+            top,
+            size: theme.label_size,
+            bold: true,
+            color: theme.accent,
+            align,
+        })?;
+    }
+    Ok(())
+}
+
+/// The parts of one category of stacked or grouped bars: each part's mark
+/// (`across(j)` gives its place across the band, `vmap` the value's
+/// position), page-coloured cuts between stacked segments, and the total at
+/// the end of a stacked bar.
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn parts(
+    canvas: &Canvas,
+    theme: &Theme,
+    band: &Band,
+    c: usize,
+    extents: &[Option<(f64, f64)>],
+    colors: &[Option<Rgb>],
+    across: impl Fn(usize) -> (f64, f64),
+    vmap: impl Fn(f64) -> f64,
+    total: Option<(&str, Role)>,
+    obstacles: &mut Obstacles,
+) -> Result<(), RenderError> {
+    for (j, e) in extents.iter().enumerate() {
+        let (Some((a, b)), Some(Some(color))) = (e, colors.get(j)) else {
+            continue;
+        };
+        band.mark(canvas, across(j), (vmap(*a), vmap(*b)), *color)?;
+    }
+    let Some((total, role)) = total else {
+        return Ok(());
+    };
+    for (a, _) in extents.iter().flatten().skip(1) {
+        if *a != 0.0 {
+            band.rule(canvas, across(0), vmap(*a), theme.page, 1)?;
+        }
+    }
+    let text = metrics::normalize(total);
+    let high = extents.iter().flatten().map(|e| e.1).fold(0.0, f64::max);
+    if !text.is_empty() {
+        let lh = line_height(theme.label_size);
+        let (x, top, align) = band.end_label(vmap(high), band.centre(c), lh, true);
+        let focus = role == Role::Focus;
+        let label = Label {
+            text: &text,
+            x,
+            top,
+            size: theme.label_size,
+            bold: focus,
+            color: if focus { theme.accent } else { theme.muted },
+            align,
+        };
+        kit::put(canvas, obstacles, &label)?;
+    }
+    Ok(())
+}

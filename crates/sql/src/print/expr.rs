@@ -1,0 +1,198 @@
+//! Expressions and columns as SQL: values as bound parameters, numbers as
+//! double precision, texts compared in the `C` collation, predicates never
+//! NULL (see the table in the module docs of `print`).
+
+use crescendo_data::{ArithOp, CmpOp, ColType, Expr, Value};
+
+use super::Printer;
+
+impl Printer {
+    pub(super) fn param(&mut self, v: &Value) -> String {
+        let (text, cast) = match v {
+            Value::Missing => return "NULL".to_string(),
+            Value::Number(x) => (format!("{x:?}"), "double precision"),
+            Value::Text(s) => (s.clone(), ""),
+            Value::Date(d) => (crescendo_data::time::date_iso(*d), ""),
+            Value::Month(m) => (crescendo_data::time::month_iso(*m), ""),
+            Value::Year(y) => (y.to_string(), "integer"),
+        };
+        self.params.push(text);
+        let p = format!("${}::text", self.params.len());
+        if cast.is_empty() {
+            p
+        } else {
+            format!("CAST({p} AS {cast})")
+        }
+    }
+
+    pub(super) fn col_ty(&self, i: usize) -> ColType {
+        self.cols.get(i).map_or(ColType::Text, |c| c.ty)
+    }
+
+    /// The story type an expression has (numbers for arithmetic).
+    pub(super) fn ty_of(&self, e: &Expr) -> ColType {
+        match e {
+            Expr::Col(i) => self.col_ty(*i),
+            Expr::Lit(v) => match v {
+                Value::Text(_) | Value::Missing => ColType::Text,
+                Value::Number(_) => ColType::Number,
+                Value::Date(_) => ColType::Date,
+                Value::Month(_) => ColType::Month,
+                Value::Year(_) => ColType::Year,
+            },
+            _ => ColType::Number,
+        }
+    }
+
+    /// A value expression; numbers as double precision.
+    pub(super) fn value(&mut self, e: &Expr) -> String {
+        match e {
+            Expr::Col(i) => {
+                let c = self
+                    .cols
+                    .get(*i)
+                    .map_or_else(|| "NULL".to_string(), |c| c.sql.clone());
+                match self.col_ty(*i) {
+                    ColType::Number => format!("{c}::double precision"),
+                    _ => c,
+                }
+            }
+            Expr::Lit(v) => self.param(v),
+            Expr::Neg(a) => format!("(-{})", self.number(a)),
+            Expr::Arith(first, rest) => {
+                // `((a + b) - c)`: one parenthesis per operator, written in
+                // a loop
+                let mut out = "(".repeat(rest.len());
+                out.push_str(&self.number(first));
+                for (op, b) in rest {
+                    let y = self.number(b);
+                    out.push_str(&match op {
+                        ArithOp::Add => format!(" + {y})"),
+                        ArithOp::Sub => format!(" - {y})"),
+                        ArithOp::Mul => format!(" * {y})"),
+                        ArithOp::Div => format!(" / NULLIF({y}, 0))"),
+                    });
+                }
+                out
+            }
+            // A predicate used as a value is missing (as in the engine).
+            _ => "NULL".to_string(),
+        }
+    }
+
+    /// A value expression as a number (years count as their number).
+    pub(super) fn number(&mut self, e: &Expr) -> String {
+        let v = self.value(e);
+        if self.ty_of(e) == ColType::Year {
+            format!("{v}::double precision")
+        } else {
+            v
+        }
+    }
+
+    /// A comparison operand: texts in the `C` collation, a year compared
+    /// with a number as a number.
+    pub(super) fn operand(&mut self, e: &Expr, other: &Expr) -> String {
+        let (t, o) = (self.ty_of(e), self.ty_of(other));
+        match t {
+            ColType::Text | ColType::Month | ColType::Date => {
+                format!("({} COLLATE \"C\")", self.value(e))
+            }
+            ColType::Year if o == ColType::Number => self.number(e),
+            _ => self.value(e),
+        }
+    }
+
+    /// Predicates joined by `word`, `((a AND b) AND c)`, in a loop;
+    /// `empty` when there are none.
+    pub(super) fn joined(&mut self, parts: &[Expr], word: &str, empty: &str) -> String {
+        let Some((first, rest)) = parts.split_first() else {
+            return empty.to_string();
+        };
+        let mut out = "(".repeat(rest.len());
+        out.push_str(&self.truth(first));
+        for p in rest {
+            let t = self.truth(p);
+            out.push_str(&format!(" {word} {t})"));
+        }
+        out
+    }
+
+    /// A predicate, never NULL.
+    pub(super) fn truth(&mut self, e: &Expr) -> String {
+        match e {
+            Expr::Cmp(op, a, b) => {
+                let (x, y) = (self.operand(a, b), self.operand(b, a));
+                let op = match op {
+                    CmpOp::Eq => "=",
+                    CmpOp::Ne => "<>",
+                    CmpOp::Lt => "<",
+                    CmpOp::Le => "<=",
+                    CmpOp::Gt => ">",
+                    CmpOp::Ge => ">=",
+                };
+                format!("COALESCE({x} {op} {y}, false)")
+            }
+            Expr::And(parts) => self.joined(parts, "AND", "true"),
+            Expr::Or(parts) => self.joined(parts, "OR", "false"),
+            Expr::Not(a) => format!("(NOT {})", self.truth(a)),
+            Expr::In(a, list) => {
+                if list.is_empty() {
+                    return "false".to_string();
+                }
+                let first = Expr::Lit(list[0].clone());
+                let x = self.operand(a, &first);
+                let items: Vec<String> = list
+                    .iter()
+                    .map(|v| {
+                        let lit = Expr::Lit(v.clone());
+                        self.operand(&lit, a)
+                    })
+                    .collect();
+                format!("COALESCE({x} IN ({}), false)", items.join(", "))
+            }
+            // A value used as a predicate is false (as in the engine).
+            _ => "false".to_string(),
+        }
+    }
+}
+
+impl Printer {
+    pub(super) fn sql(&self, i: usize) -> String {
+        self.cols
+            .get(i)
+            .map_or_else(|| "NULL".to_string(), |c| c.sql.clone())
+    }
+
+    /// The exact (numeric) form of number column `i` for sums: a double
+    /// through its shortest text (which reads back as the same double).
+    pub(super) fn exact(&self, i: usize) -> String {
+        match self.cols.get(i) {
+            Some(c) if c.float => format!("{}::text::numeric", c.sql),
+            Some(c) => format!("{}::numeric", c.sql),
+            None => "NULL::numeric".to_string(),
+        }
+    }
+
+    /// Column `i` as a group key: numbers as doubles, so that two decimals
+    /// that read as the same double are one group (as in the engine).
+    pub(super) fn key(&self, i: usize) -> String {
+        match self.cols.get(i) {
+            Some(c) if c.ty == ColType::Number && !c.float => {
+                format!("{}::double precision", c.sql)
+            }
+            _ => self.sql(i),
+        }
+    }
+
+    /// Column `i` in the `C` collation when it is text-like.
+    pub(super) fn sortable(&self, i: usize) -> String {
+        match self.cols.get(i) {
+            Some(c) if matches!(c.ty, ColType::Text | ColType::Month | ColType::Date) => {
+                format!("{} COLLATE \"C\"", c.sql)
+            }
+            Some(c) => c.sql.clone(),
+            None => "NULL".to_string(),
+        }
+    }
+}
