@@ -36,17 +36,16 @@ pub enum Export {
     Png,
 }
 
-#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub enum Deny {
-    /// Treat lint warnings as errors (for CI).
-    Warnings,
-}
-
 #[derive(clap::Args)]
 pub struct LintArgs {
-    /// `--deny warnings` turns lint warnings into errors.
-    #[arg(long, value_enum)]
-    pub deny: Option<Deny>,
+    /// Let lint warnings stop the build too, as errors do (for CI); advice
+    /// never stops it.
+    #[arg(long)]
+    pub strict: bool,
+    /// Not an option of crescendo: read only to name the one to write
+    /// (`--strict`).
+    #[arg(long, hide = true, value_name = "WHAT", value_parser = no_deny_option)]
+    pub deny: Option<String>,
     /// Counts of rows below N are flagged as possibly identifying people
     /// (follow your organisation's disclosure rules).
     #[arg(long, value_name = "N", default_value_t = 5.0)]
@@ -84,6 +83,11 @@ pub struct DataArgs {
     pub allow_paths: Vec<PathBuf>,
     #[command(flatten)]
     pub limits: LimitArgs,
+}
+
+/// `--deny ...`: always refused, with the option to write instead.
+fn no_deny_option(_: &str) -> Result<String, String> {
+    Err("crescendo has no `--deny` option: write `--strict` to let lint warnings stop the build".into())
 }
 
 /// `--connection NAME=ENVVAR`; the error never repeats the argument (it

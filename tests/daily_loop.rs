@@ -396,7 +396,7 @@ fn conventions_story(dir: &Path, header: &str) -> String {
         "story \"Sales\"\nsource \"Invented\"\n{header}\ndata sales from \"sales.csv\"\n\
          value total = sum(sales.sales)\nvalue latest = last(sales.month)\n\
          conclusion \"Keep going.\"\n\
-         frame \"Total {{total:.2}} up to {{latest}} ({{latest:quarter}})\" {{\n  line sales: x month, y sales\n  y title \"Sales\"\n}}\n"
+         frame \"Total {{total to 2 decimals}} up to {{latest}} ({{latest as quarter}})\" {{\n  line sales: x month, y sales\n  y title \"Sales\"\n}}\n"
     );
     fs::write(dir.join("sales.cresc"), story).unwrap();
     let out = crescendo(dir, &["plan", "sales.cresc"]);

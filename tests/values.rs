@@ -76,7 +76,7 @@ fn anscombe_quartet_values_and_claims() {
         writeln!(story, "value a{s} = intercept({w})").unwrap();
         writeln!(story, "value r{s} = correlation({w})").unwrap();
         notes.push(format!(
-            "{{mx{s}:.1}}|{{my{s}:.2}}|{{b{s}:.3}}|{{a{s}:.2}}|{{r{s}:.3}}"
+            "{{mx{s} to 1 decimal}}|{{my{s} to 2 decimals}}|{{b{s} to 3 decimals}}|{{a{s} to 2 decimals}}|{{r{s} to 3 decimals}}"
         ));
     }
     story.push_str(
@@ -158,13 +158,13 @@ fn penguin_group_values_match_python_statistics() {
                     "value {name} = {stat}(p.{col} where species = \"{sp}\")"
                 )
                 .unwrap();
-                notes.push(format!("{{{name}:.10}}"));
+                notes.push(format!("{{{name} to 10 decimals}}"));
                 want.push((name, group[col][stat].as_f64().unwrap()));
             }
         }
         let name = format!("rows_{}", sp.to_lowercase());
         writeln!(story, "value {name} = count(p where species = \"{sp}\")").unwrap();
-        notes.push(format!("{{{name}:.10}}"));
+        notes.push(format!("{{{name} to 10 decimals}}"));
         want.push((name, group["rows"].as_f64().unwrap()));
     }
     writeln!(
@@ -198,7 +198,7 @@ fn compound_growth_worked_example() {
         value rate = growth(g.visits by year)\nvalue up = percent_change(g.visits by year)\n\
         value best = max(g.year)\nvalue trend = slope(g.visits by year)\n\
         claim rate about 0.1 within 0.000001 \"ten percent a year\"\n\
-        frame \"f\" {\n  line g: x year, y visits\n  notes \"{rate:.4%}|{up:+.1%}|{best}|{rate:%}\"\n}\n";
+        frame \"f\" {\n  line g: x year, y visits\n  notes \"{rate as percent to 4 decimals}|{up as signed percent to 1 decimal}|{best}|{rate as percent}\"\n}\n";
     let (figs, planned) = quoted(&dir, story);
     assert!(planned.failed_claims.is_empty());
     assert_eq!(figs, vec!["10.0000%", "+33.1%", "2024", "10%"]);

@@ -539,18 +539,18 @@ pub fn resolve_text(ev: &Evaluator, s: &Text, diags: &mut Vec<Diagnostic>) -> Re
     for part in &template.parts {
         match part {
             TextPart::Literal(l) => text.push_str(l),
-            TextPart::Quote { expr, format, span } => {
+            TextPart::Quote {
+                expr,
+                format,
+                written,
+                ..
+            } => {
                 names_in(expr, &mut names);
                 match ev.eval(expr) {
                     Ok(q) => {
                         let fig = format_quantity(&q, format);
-                        let key = ev
-                            .src
-                            .text
-                            .get(span.start + 1..span.end - 1)
-                            .unwrap_or("")
-                            .to_string();
-                        let key = key.split(':').next().unwrap_or("").trim().to_string();
+                        // the expression as written, without its format
+                        let key = ev.src.text.get(written.clone()).unwrap_or("").to_string();
                         quoted.push((key, fig.clone()));
                         text.push_str(&fig);
                     }
