@@ -42,10 +42,6 @@ pub struct LintArgs {
     /// never stops it.
     #[arg(long)]
     pub strict: bool,
-    /// Not an option of crescendo: read only to name the one to write
-    /// (`--strict`).
-    #[arg(long, hide = true, value_name = "WHAT", value_parser = no_deny_option)]
-    pub deny: Option<String>,
     /// Counts of rows below N are flagged as possibly identifying people
     /// (follow your organisation's disclosure rules).
     #[arg(long, value_name = "N", default_value_t = 5.0)]
@@ -85,9 +81,25 @@ pub struct DataArgs {
     pub limits: LimitArgs,
 }
 
-/// `--deny ...`: always refused, with the option to write instead.
-fn no_deny_option(_: &str) -> Result<String, String> {
-    Err("crescendo has no `--deny` option: write `--strict` to let lint warnings stop the build".into())
+/// Read the command line; a wrong one is printed with its usage and ends
+/// the program with status 2. `--deny` (no option of ours) gets a tip
+/// naming the option to write instead.
+pub fn parse() -> Cli {
+    use clap::error::{ContextKind, ContextValue, ErrorKind};
+    Cli::try_parse().unwrap_or_else(|mut e| {
+        let deny = e.kind() == ErrorKind::UnknownArgument
+            && matches!(e.get(ContextKind::InvalidArg),
+                Some(ContextValue::String(a)) if a == "--deny" || a.starts_with("--deny="));
+        if deny {
+            e.insert(
+                ContextKind::Suggested,
+                ContextValue::StyledStrs(vec![
+                    "write `--strict` to let lint warnings stop the build".into()
+                ]),
+            );
+        }
+        e.exit()
+    })
 }
 
 /// `--connection NAME=ENVVAR`; the error never repeats the argument (it

@@ -18,7 +18,7 @@ fn text(out: &std::process::Output) -> (String, String) {
 }
 
 /// `crescendo new` writes a story for `csv` (in `dir`) that builds with no
-/// lint finding at all under `--deny warnings`; returns the story text and
+/// lint finding at all under `--strict`; returns the story text and
 /// the profile summary.
 fn new_story_builds_clean(dir: &Path, csv: &str) -> (String, String) {
     let out = crescendo(dir, &["new", csv]);
@@ -28,7 +28,7 @@ fn new_story_builds_clean(dir: &Path, csv: &str) -> (String, String) {
     let deck = format!("deck-{story}");
     let built = crescendo(
         dir,
-        &["build", &story, "--deny", "warnings", "--out", &deck],
+        &["build", &story, "--strict", "--out", &deck],
     );
     let (bout, berr) = text(&built);
     assert!(
@@ -200,8 +200,7 @@ fn new_refuses_to_replace_a_story_unless_forced() {
         &[
             "build",
             "stories/spend.cresc",
-            "--deny",
-            "warnings",
+            "--strict",
             "--allow-path",
             ".",
         ],
@@ -363,7 +362,8 @@ fn completions_and_manual_mention_every_subcommand() {
                 "{shell} completion lacks `{sub}`"
             );
         }
-        assert!(script.contains("deny"), "{shell}: options too");
+        assert!(script.contains("strict"), "{shell}: options too");
+        assert!(!script.contains("deny"), "{shell}: no hidden option offered");
     }
     let out = crescendo(&root(), &["manual"]);
     assert!(out.status.success());
@@ -380,6 +380,8 @@ fn completions_and_manual_mention_every_subcommand() {
         );
     }
     assert!(page.contains("\\-\\-check"), "the fmt options are listed");
+    assert!(page.contains("\\-\\-strict"), "the lint options are listed");
+    assert!(!page.contains("deny"), "no hidden option is listed");
 }
 
 // ------------------------------------------------------------------ locale and fiscal year

@@ -148,7 +148,12 @@ fn quote(
         Err(err) => {
             let at = location(&err.location);
             let mut d = syntax_error(source, body_start, at, &err.variant, Context::Value);
-            d.message = format!("in a quoted value: {}", d.message);
+            // inside braces the end of the text read is the closing brace
+            let message = d
+                .message
+                .replacen("unknown keyword", "unknown format word", 1)
+                .replace("the end of the file", "`}`");
+            d.message = format!("in a quoted value: {message}");
             diags.push(d.note(
                 "inside braces write a value name or arithmetic, then a format in words if \
                  you want one (`as percent`, `to 1 decimal`); `\\{` writes a literal brace",

@@ -545,7 +545,9 @@ fn template_errors_are_located() {
     let errs = template_of(r#"story "{x as percentage}""#).unwrap_err();
     assert_eq!(errs.len(), 1, "{errs:?}");
     assert!(
-        errs[0].message.starts_with("in a quoted value:"),
+        errs[0]
+            .message
+            .starts_with("in a quoted value: unknown format word `percentage`"),
         "{}",
         errs[0].message
     );
