@@ -94,7 +94,7 @@ pub fn parse() -> Cli {
             e.insert(
                 ContextKind::Suggested,
                 ContextValue::StyledStrs(vec![
-                    "write `--strict` to let lint warnings stop the build".into()
+                    "write `--strict` to let lint warnings stop the build".into(),
                 ]),
             );
         }

@@ -26,10 +26,7 @@ fn new_story_builds_clean(dir: &Path, csv: &str) -> (String, String) {
     assert!(out.status.success(), "new {csv}: {stdout}\n{stderr}");
     let story = csv.trim_end_matches(".csv").to_string() + ".cresc";
     let deck = format!("deck-{story}");
-    let built = crescendo(
-        dir,
-        &["build", &story, "--strict", "--out", &deck],
-    );
+    let built = crescendo(dir, &["build", &story, "--strict", "--out", &deck]);
     let (bout, berr) = text(&built);
     assert!(
         built.status.success(),
@@ -363,7 +360,10 @@ fn completions_and_manual_mention_every_subcommand() {
             );
         }
         assert!(script.contains("strict"), "{shell}: options too");
-        assert!(!script.contains("deny"), "{shell}: no hidden option offered");
+        assert!(
+            !script.contains("deny"),
+            "{shell}: no hidden option offered"
+        );
     }
     let out = crescendo(&root(), &["manual"]);
     assert!(out.status.success());

@@ -340,7 +340,11 @@ fn the_format_table_shows_the_figures_printed() {
     let at = text.find(head).expect("the format table");
     let mut notes = Vec::new();
     let mut want = Vec::new();
-    for line in text[at..].lines().skip(2).take_while(|l| l.starts_with('|')) {
+    for line in text[at..]
+        .lines()
+        .skip(2)
+        .take_while(|l| l.starts_with('|'))
+    {
         let cells: Vec<&str> = line.split('|').map(str::trim).collect();
         let figures: Vec<&str> = cells[2..5]
             .iter()

@@ -223,7 +223,10 @@ fn format_words_are_the_grammars_and_coloured_inside_braces() {
         .iter()
         .filter_map(|p| p["include"].as_str())
         .collect();
-    assert!(!top.contains(&"#format-word"), "format words are no keywords");
+    assert!(
+        !top.contains(&"#format-word"),
+        "format words are no keywords"
+    );
     // in the demo stories: each quoted value's words from its first `as`
     // or `to` on are format words, the expression's words before are not
     let word = Regex::new(&format!("^(?:{})$", pattern(&g, "format-word"))).unwrap();
@@ -231,7 +234,10 @@ fn format_words_are_the_grammars_and_coloured_inside_braces() {
     let braces = Regex::new(r#"\{([^{}"\\]*)\}"#).unwrap();
     let mut seen = BTreeSet::new();
     for e in std::fs::read_dir(root().join("stories")).expect("stories") {
-        for f in std::fs::read_dir(e.expect("entry").path()).into_iter().flatten() {
+        for f in std::fs::read_dir(e.expect("entry").path())
+            .into_iter()
+            .flatten()
+        {
             let p = f.expect("entry").path();
             if p.extension().is_none_or(|x| x != "cresc") {
                 continue;
@@ -256,5 +262,8 @@ fn format_words_are_the_grammars_and_coloured_inside_braces() {
             }
         }
     }
-    assert!(seen.len() >= 6, "the demo stories use the format words: {seen:?}");
+    assert!(
+        seen.len() >= 6,
+        "the demo stories use the format words: {seen:?}"
+    );
 }

@@ -215,18 +215,12 @@ fn strict_lets_warnings_stop_the_build() {
     let err = String::from_utf8_lossy(&ok.stderr);
     assert!(ok.status.success(), "{err}");
     assert!(err.contains("warning[source-missing]"), "{err}");
-    let denied = crescendo(
-        &dir,
-        &["build", "s.cresc", "--out", "strict", "--strict"],
-    );
+    let denied = crescendo(&dir, &["build", "s.cresc", "--out", "strict", "--strict"]);
     let err = String::from_utf8_lossy(&denied.stderr);
     assert_eq!(denied.status.code(), Some(1), "{err}");
     assert!(err.contains("error[source-missing]"), "{err}");
     assert!(!dir.join("strict").exists(), "nothing written");
-    let check = crescendo(
-        &dir,
-        &["check", "s.cresc", "--strict", "--format", "json"],
-    );
+    let check = crescendo(&dir, &["check", "s.cresc", "--strict", "--format", "json"]);
     assert_eq!(check.status.code(), Some(1));
     let report: serde_json::Value = serde_json::from_slice(&check.stdout).unwrap();
     assert_eq!(report["diagnostics"][0]["code"], "source-missing");

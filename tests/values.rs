@@ -263,3 +263,56 @@ fn value_errors_are_located_never_nan() {
         assert!(!text.contains("NaN"));
     }
 }
+
+/// A format that cannot print its value is a located error at the quoted
+/// value: a period needs a month or a date, a number format a number.
+#[test]
+fn a_format_fits_its_value_or_is_a_located_error() {
+    let dir = scratch("format-fit");
+    fs::write(dir.join("d.csv"), "k,m,v\na,2024-03,1\nb,2024-04,2\n").unwrap();
+    let ok = [
+        ("{last(d.m) as quarter}", "2024 Q2"),
+        ("{last(d.m) as year}", "2024"),
+        ("{last(d.m) as number}", "Apr 2024"),
+        ("{last(d.k)}", "b"),
+        ("{sum(d.v) as signed number}", "+3"),
+    ];
+    let bad = [
+        (
+            "{sum(d.v) as quarter}",
+            "`as quarter` needs a month or a date, and this value is a number",
+        ),
+        (
+            "{last(d.k) as year}",
+            "`as year` needs a month or a date, and this value is a text",
+        ),
+        (
+            "{last(d.m) as percent}",
+            "this value is a month, and only a number takes a number format",
+        ),
+        (
+            "{last(d.k) to 1 decimal}",
+            "this value is a text, and only a number takes a number format",
+        ),
+    ];
+    let story = |note: &str| {
+        format!(
+            "story \"E\"\ndata d from \"d.csv\" {{ m: month }}\nframe \"f\" {{\n  bars d: category k, value v\n  notes \"{note}\"\n}}\n"
+        )
+    };
+    for (quote, want) in ok {
+        let (figs, _) = quoted(&dir, &story(quote));
+        assert_eq!(figs, [want], "{quote}");
+    }
+    for (quote, message) in bad {
+        let src = Source::file("e.cresc", story(quote));
+        let errs = match crescendo_plan::plan_story(&src, &dir, &Default::default()) {
+            Ok(p) => panic!("{quote}: no error, notes {:?}", p.plan.frames[0].notes),
+            Err(d) => d,
+        };
+        assert_eq!(errs.len(), 1, "{quote}");
+        assert_eq!(errs[0].message, message, "{quote}");
+        // at the quoted value's opening brace, on the notes line
+        assert_eq!(errs[0].location().map(|(_, l, c)| (l, c)), Some((5, 10)));
+    }
+}

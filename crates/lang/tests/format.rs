@@ -120,7 +120,10 @@ fn locale_and_fiscal_statements_parse_and_format() {
     let (_, diags) = parse(&Source::file("s", "fiscal year starts\n"));
     assert_eq!(diags.len(), 1);
     // quoted periods: the `quarter` and `year` formats
-    let (ast, diags) = parse(&Source::file("s", "story \"{m as quarter} {m as year} {x as percent to 1 decimal}\""));
+    let (ast, diags) = parse(&Source::file(
+        "s",
+        "story \"{m as quarter} {m as year} {x as percent to 1 decimal}\"",
+    ));
     assert!(diags.is_empty(), "{diags:?}");
     let Item::Title(t) = &ast.items[0] else {
         panic!()

@@ -369,7 +369,10 @@ mod tests {
             assert!(rule(old).is_none(), "{old}");
             assert!(rule(now).is_some(), "{now}");
             let d = unknown_rule(old);
-            assert_eq!(d.help.as_deref(), Some(&*format!("the rule is named `{now}`")));
+            assert_eq!(
+                d.help.as_deref(),
+                Some(&*format!("the rule is named `{now}`"))
+            );
         }
         let d = unknown_rule("bars-of-zero");
         assert_eq!(d.help.as_deref(), Some("did you mean `bars-off-zero`?"));

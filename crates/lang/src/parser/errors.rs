@@ -130,7 +130,10 @@ impl Context {
 /// What a rule looks like to a reader of an error message, in `context`.
 fn describe(rule: Rule, context: Context) -> Option<String> {
     let name = format!("{rule:?}");
-    if let Some(kw) = name.strip_prefix("kw_").or_else(|| name.strip_prefix("fw_")) {
+    if let Some(kw) = name
+        .strip_prefix("kw_")
+        .or_else(|| name.strip_prefix("fw_"))
+    {
         return Some(format!("`{kw}`"));
     }
     let logic = matches!(

@@ -108,9 +108,12 @@ pub(super) fn text(
 
 /// The error for `{{` or `}}` at `at` (`brace` is the doubled character).
 fn doubled_brace(source: &Arc<Source>, at: usize, brace: char) -> Diagnostic {
-    Diagnostic::error("template", format!("`{brace}{brace}` is not a literal brace"))
-        .at(source, at..at + 2, "a doubled brace")
-        .help(format!("write `\\{brace}` for a literal `{brace}`"))
+    Diagnostic::error(
+        "template",
+        format!("`{brace}{brace}` is not a literal brace"),
+    )
+    .at(source, at..at + 2, "a doubled brace")
+    .help(format!("write `\\{brace}` for a literal `{brace}`"))
 }
 
 /// The expression, format and expression span of a quoted value whose text
@@ -280,8 +283,11 @@ fn colon_format(source: &Arc<Source>, body: &str, body_start: usize, colon: usiz
     let expr = body[..colon].trim();
     let spec = body[colon + 1..].trim();
     let end = body_start + body.trim_end().len();
-    let d = Diagnostic::error("format", "a quoted value's format is written in words")
-        .at(source, body_start + colon..end, "not a format");
+    let d = Diagnostic::error("format", "a quoted value's format is written in words").at(
+        source,
+        body_start + colon..end,
+        "not a format",
+    );
     match symbols(spec) {
         Some(f) => d.help(format!("write `{{{expr}{}}}`", f.words())),
         None => d.help(format!(

@@ -500,7 +500,10 @@ fn formats_in_words() {
         ("{x to 1 decimals}", spec(false, Some(1), Plain)),
         ("{x as number}", spec(false, None, Plain)),
         ("{x as percent}", spec(false, None, Percent)),
-        ("{x as percent to 0 decimals}", spec(false, Some(0), Percent)),
+        (
+            "{x as percent to 0 decimals}",
+            spec(false, Some(0), Percent),
+        ),
         ("{x as signed percent}", spec(true, None, Percent)),
         ("{x as signed number}", spec(true, None, Plain)),
         ("{x as signed}", spec(true, None, Plain)),
@@ -538,7 +541,10 @@ fn template_errors_are_located() {
     assert_eq!((line, col), (1, 15));
     let errs = template_of(r#"story "x } y""#).unwrap_err();
     assert_eq!(errs[0].location().unwrap().2, 10);
-    assert_eq!(errs[0].help.as_deref(), Some("write `\\}` for a literal brace"));
+    assert_eq!(
+        errs[0].help.as_deref(),
+        Some("write `\\}` for a literal brace")
+    );
     let errs = template_of(r#"story "x { y""#).unwrap_err();
     assert!(errs[0].message.contains("without its `}`"));
     assert!(errs[0].help.as_deref().unwrap().contains("`\\{`"));
@@ -608,9 +614,17 @@ fn symbol_formats_and_doubled_braces_say_what_to_write() {
             "write `{change as signed percent to 0 decimals}`",
         ),
         (r#"story "{visits:k}""#, ":k", "write `{visits as compact}`"),
-        (r#"story "{m:quarter}""#, ":quarter", "write `{m as quarter}`"),
+        (
+            r#"story "{m:quarter}""#,
+            ":quarter",
+            "write `{m as quarter}`",
+        ),
         (r#"story "{m:year}""#, ":year", "write `{m as year}`"),
-        (r#"story "{a / b:+}""#, ":+", "write `{a / b as signed number}`"),
+        (
+            r#"story "{a / b:+}""#,
+            ":+",
+            "write `{a / b as signed number}`",
+        ),
         (r#"story "{x : .2 }""#, ": .2", "write `{x to 2 decimals}`"),
         (r#"story "a {{ b""#, "{{", "write `\\{` for a literal `{`"),
         (r#"story "a }} b""#, "}}", "write `\\}` for a literal `}`"),
@@ -626,9 +640,16 @@ fn symbol_formats_and_doubled_braces_say_what_to_write() {
     }
     // characters that mean no format still get the words to write
     let errs = template_of(r#"story "{x:q}""#).unwrap_err();
-    assert_eq!(errs[0].message, "a quoted value's format is written in words");
+    assert_eq!(
+        errs[0].message,
+        "a quoted value's format is written in words"
+    );
     assert!(
-        errs[0].help.as_deref().unwrap().contains("`{x as percent}`"),
+        errs[0]
+            .help
+            .as_deref()
+            .unwrap()
+            .contains("`{x as percent}`"),
         "{:?}",
         errs[0].help
     );

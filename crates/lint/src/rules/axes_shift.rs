@@ -24,7 +24,8 @@ pub static RULE: Rule = Rule {
             "  y range 0 to 300   # in the frame that starts the sequence\n",
             "}",
         ),
-        why: "Across a build-up the audience compares each frame with the one before. If the scale\n\
+        why:
+            "Across a build-up the audience compares each frame with the one before. If the scale\n\
               moves part-way through, unchanged data appears to jump, and real changes are hidden\n\
               by the rescaling (common practice: fix the axes over the whole sequence; crescendo\n\
               computes them over all of its frames for that reason). To show a new scale, start a\n\

@@ -18,7 +18,8 @@ pub static RULE: Rule = Rule {
             "view top10 = p | top 10 product by sales rest \"Other products\"\n",
             "bars top10: category product, value sales",
         ),
-        why: "Past a dozen or so bars the audience cannot take in the ranking, labels shrink, and\n\
+        why:
+            "Past a dozen or so bars the audience cannot take in the ranking, labels shrink, and\n\
               the one comparison that matters is lost among the rest (common practice). Keep the\n\
               largest and fold the rest into one bar, or spread the categories over a few frames.",
     },

@@ -16,8 +16,10 @@ pub static RULE: Rule = Rule {
     summary: "the spotlight colour is hard to tell from the grey under colour-vision deficiency",
     doc: Doc {
         before: "accent \"#9A7A9A\"   # a dusty mauve: close to the grey for deuteranopes",
-        after: "accent \"#1D5FA8\"   # a deep blue: apart from the grey in lightness as well as hue",
-        why: "Emphasis works only if every viewer sees the focus pop out. About 1 in 12 men and 1\n\
+        after:
+            "accent \"#1D5FA8\"   # a deep blue: apart from the grey in lightness as well as hue",
+        why:
+            "Emphasis works only if every viewer sees the focus pop out. About 1 in 12 men and 1\n\
               in 200 women have a red-green colour-vision deficiency (common practice, from\n\
               memory). The rule simulates protanopia, deuteranopia and tritanopia with Machado,\n\
               Oliveira & Fernandes (2009) at full severity on linear RGB and compares the accent\n\

@@ -10,16 +10,14 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "a frame hides every series or bar",
     doc: Doc {
-        before: concat!(
-            "line by_area: x month, y cases, series area\n",
-            "hide all",
-        ),
+        before: "line by_area: x month, y cases, series area\nhide all",
         after: concat!(
             "line by_area: x month, y cases, series area\n",
             "hide all\n",
             "show \"North\"   # or allow the rule, saying the empty axes are meant",
         ),
-        why: "An empty plot with axes but no data puzzles the audience: it looks like a fault. If\n\
+        why:
+            "An empty plot with axes but no data puzzles the audience: it looks like a fault. If\n\
               the frame sets up the axes before the data arrives, say so; otherwise it is a slip\n\
               in the build-up (common practice: every frame adds something to look at).",
     },

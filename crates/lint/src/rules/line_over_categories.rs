@@ -11,7 +11,8 @@ pub static RULE: Rule = Rule {
     summary: "a line joins categories that have no order",
     doc: Doc {
         before: "line t: x team, y tickets   # teams have no order",
-        after: "bars t: category team, value tickets   # lines stay for time and other ordered values",
+        after:
+            "bars t: category team, value tickets   # lines stay for time and other ordered values",
         why: "A line says \"from here to there\": readers see its slope as change between\n\
               neighbours. Between text categories (regions, products, teams) that slope means\n\
               nothing, and reordering the categories would draw a different line from the same\n\

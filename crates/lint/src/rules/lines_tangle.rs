@@ -19,7 +19,8 @@ pub static RULE: Rule = Rule {
             "line d: x month, y cases, series district\n",
             "hide \"District 1\", \"District 2\"   # or build the lines up over frames",
         ),
-        why: "Each extra line crosses the others; past a handful, readers can no longer follow one\n\
+        why:
+            "Each extra line crosses the others; past a handful, readers can no longer follow one\n\
               line from start to end or match it to its label, and the direct labels at the right\n\
               crowd together (common practice; the limit of 7 echoes the usual advice to keep\n\
               distinct series few). Hide or grey the lines that are not the point, or group the\n\

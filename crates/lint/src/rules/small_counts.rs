@@ -16,7 +16,8 @@ pub static RULE: Rule = Rule {
             "view c = v | by clinic: patients = count() | keep patients >= 5\n",
             "# or merge small clinics (`top N ... rest`), widen the period, or show a rate",
         ),
-        why: "In a published chart, a cell of 1, 2 or 3 people can identify them, especially next\n\
+        why:
+            "In a published chart, a cell of 1, 2 or 3 people can identify them, especially next\n\
               to other public facts. The rule flags a chart whose measure counts rows (`count` in\n\
               its view) and shows a value above zero but below the threshold (5 unless\n\
               `--small-counts N`). Official statistics suppress or merge cells below a small\n\

@@ -14,7 +14,8 @@ pub static RULE: Rule = Rule {
             "story \"Cases by area in 2024\"\n",
             "source \"Case register, three areas, 2024 (invented)\"   # it may quote values too",
         ),
-        why: "A chart without its source cannot be checked or trusted, and a deck shown again next\n\
+        why:
+            "A chart without its source cannot be checked or trusted, and a deck shown again next\n\
               quarter must say which export it was built from (common practice: a source note at\n\
               the bottom of every chart).",
     },

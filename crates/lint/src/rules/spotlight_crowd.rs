@@ -15,7 +15,8 @@ pub static RULE: Rule = Rule {
             "spotlight \"North\"   # and \"South\" in the next frame\n",
             "# or, when the pair is the point, allow the rule and say so",
         ),
-        why: "Colour and weight pop out pre-attentively only when one thing differs from the rest;\n\
+        why:
+            "Colour and weight pop out pre-attentively only when one thing differs from the rest;\n\
               with several accented marks the eye has to search again, and none of them reads as\n\
               the point (common practice: one emphasis per frame).",
     },

@@ -20,7 +20,8 @@ pub static RULE: Rule = Rule {
             "spotlight \"North\"   # the bottom segment, on the baseline\n",
             "# or `group area` instead of `stack area`, or `split area`",
         ),
-        why: "Only the bottom segments of stacked bars share a baseline. The segments above start\n\
+        why:
+            "Only the bottom segments of stacked bars share a baseline. The segments above start\n\
               at different heights, so comparing one across bars is a judgement of lengths on\n\
               unaligned scales, much less accurate than positions on a common scale (Cleveland &\n\
               McGill 1984). A spotlight on such a segment points at the very comparison the form\n\
