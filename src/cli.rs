@@ -285,8 +285,8 @@ pub enum Command {
         #[arg(long)]
         load_plugins: bool,
     },
-    /// Explain a lint rule (what it flags, why, an example, what to do
-    /// instead); without a rule, list them all.
+    /// Explain a lint rule (a story excerpt it flags, the same excerpt
+    /// fixed, and why); without a rule, list them all.
     Explain {
         /// The rule's name, e.g. `bars-off-zero`.
         rule: Option<String>,

@@ -226,3 +226,18 @@ fn the_demo_stories_are_kept_in_the_canonical_layout() {
         );
     }
 }
+
+/// The formatter prints `own scales` and keeps quoted values and their
+/// formats as written; a symbol format is refused with the parser's
+/// located error (nothing is formatted).
+#[test]
+fn own_scales_and_formats_in_words_are_printed_as_written() {
+    let text = "frame \"Up {lead  to 1 decimal}, \\{sic\\}\" {\n  line v: x m, y n, series s\n  split   s    own   scales\n}\n";
+    assert_eq!(
+        format_story(text).expect("formats"),
+        "frame \"Up {lead  to 1 decimal}, \\{sic\\}\" {\n  line v: x m, y n, series s\n  split s own scales\n}\n"
+    );
+    let err = format_story("frame \"{lead:.1}\" {}\n").unwrap_err();
+    assert_eq!(err.len(), 1);
+    assert_eq!(err[0].help.as_deref(), Some("write `{lead to 1 decimal}`"));
+}

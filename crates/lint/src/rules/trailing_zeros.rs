@@ -49,7 +49,7 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
                     span: quoting_span(f, a, name),
                     label: format!("`{name}` prints as {figure}"),
                     message: format!("\"{figure}\" ends in a zero that says nothing"),
-                    fix: format!("quote it without fixed decimals, e.g. `{{{name}}}`"),
+                    fix: format!("quote `{name}` without `to N decimals`"),
                 });
             }
         }
