@@ -36,17 +36,12 @@ pub enum Export {
     Png,
 }
 
-#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub enum Deny {
-    /// Treat lint warnings as errors (for CI).
-    Warnings,
-}
-
 #[derive(clap::Args)]
 pub struct LintArgs {
-    /// `--deny warnings` turns lint warnings into errors.
-    #[arg(long, value_enum)]
-    pub deny: Option<Deny>,
+    /// Let lint warnings stop the build too, as errors do (for CI); advice
+    /// never stops it.
+    #[arg(long)]
+    pub strict: bool,
     /// Counts of rows below N are flagged as possibly identifying people
     /// (follow your organisation's disclosure rules).
     #[arg(long, value_name = "N", default_value_t = 5.0)]
@@ -84,6 +79,27 @@ pub struct DataArgs {
     pub allow_paths: Vec<PathBuf>,
     #[command(flatten)]
     pub limits: LimitArgs,
+}
+
+/// Read the command line; a wrong one is printed with its usage and ends
+/// the program with status 2. `--deny` (no option of ours) gets a tip
+/// naming the option to write instead.
+pub fn parse() -> Cli {
+    use clap::error::{ContextKind, ContextValue, ErrorKind};
+    Cli::try_parse().unwrap_or_else(|mut e| {
+        let deny = e.kind() == ErrorKind::UnknownArgument
+            && matches!(e.get(ContextKind::InvalidArg),
+                Some(ContextValue::String(a)) if a == "--deny" || a.starts_with("--deny="));
+        if deny {
+            e.insert(
+                ContextKind::Suggested,
+                ContextValue::StyledStrs(vec![
+                    "write `--strict` to let lint warnings stop the build".into(),
+                ]),
+            );
+        }
+        e.exit()
+    })
 }
 
 /// `--connection NAME=ENVVAR`; the error never repeats the argument (it
@@ -269,8 +285,8 @@ pub enum Command {
         #[arg(long)]
         load_plugins: bool,
     },
-    /// Explain a lint rule (what it flags, why, an example, what to do
-    /// instead); without a rule, list them all.
+    /// Explain a lint rule (a story excerpt it flags, the same excerpt
+    /// fixed, and why); without a rule, list them all.
     Explain {
         /// The rule's name, e.g. `bars-off-zero`.
         rule: Option<String>,

@@ -2,8 +2,6 @@
 
 use std::process::ExitCode;
 
-use crescendo_diag::Diagnostic;
-
 use crate::EXIT_STORY;
 
 pub fn run(rule: Option<&str>, color: bool) -> ExitCode {
@@ -18,15 +16,7 @@ pub fn run(rule: Option<&str>, color: bool) -> ExitCode {
                 ExitCode::SUCCESS
             }
             None => {
-                let names = crescendo_lint::RULES.iter().map(|r| r.name);
-                let mut d = Diagnostic::error(
-                    "unknown-rule",
-                    format!("there is no lint rule named `{name}`"),
-                )
-                .note("`crescendo explain` lists the rules");
-                if let Some(s) = crescendo_diag::closest(name, names) {
-                    d = d.help(format!("did you mean `{s}`?"));
-                }
+                let d = crescendo_lint::unknown_rule(name);
                 crate::output::diagnostics(&[d], color);
                 ExitCode::from(EXIT_STORY)
             }

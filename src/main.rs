@@ -11,9 +11,7 @@
 use std::io::IsTerminal;
 use std::process::ExitCode;
 
-use clap::Parser;
-
-use cli::{Cli, Command};
+use cli::Command;
 
 #[macro_use]
 mod output;
@@ -46,7 +44,7 @@ const EXIT_CLAIM: u8 = 3;
 const EXIT_OUTPUT: u8 = 4;
 
 fn main() -> ExitCode {
-    let cli = Cli::parse();
+    let cli = cli::parse();
     progress::install();
     let color = std::io::stderr().is_terminal() && std::env::var_os("NO_COLOR").is_none();
     match cli.command {

@@ -9,7 +9,7 @@ use std::sync::Arc;
 use crescendo_diag::{Diagnostic, Source};
 use crescendo_plan::{Options, Planned};
 
-use crate::cli::{parse_connection_arg, DataArgs, Deny, LintArgs};
+use crate::cli::{parse_connection_arg, DataArgs, LintArgs};
 use crate::EXIT_STORY;
 
 /// Lint a plan with the theme it will be drawn with.
@@ -35,7 +35,7 @@ pub fn run_lint(planned: &Planned, args: &LintArgs) -> Vec<Diagnostic> {
     crescendo_lint::lint(
         &input,
         &crescendo_lint::Options {
-            deny_warnings: args.deny == Some(Deny::Warnings),
+            strict: args.strict,
         },
     )
 }

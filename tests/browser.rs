@@ -339,29 +339,29 @@ fn the_deck_works_in_a_real_browser() {
             "after {key}"
         );
         assert_eq!(
-            s.eval("document.getElementById('count').textContent"),
+            s.eval("document.getElementById('where').textContent"),
             format!("{expected} / {n}")
         );
     }
 
     // The notes button works without the keyboard and does not move on.
-    s.eval("document.getElementById('notes-toggle').click()");
+    s.eval("document.getElementById('talk-switch').click()");
     assert_eq!(
-        s.eval("document.body.classList.contains('show-notes')"),
+        s.eval("document.body.classList.contains('talk-shown')"),
         true
     );
     assert_eq!(
-        s.eval("document.getElementById('notes-toggle').getAttribute('aria-pressed')"),
+        s.eval("document.getElementById('talk-switch').getAttribute('aria-pressed')"),
         "true"
     );
     assert_eq!(
-        s.eval("getComputedStyle(document.querySelector('#frame-1 .notes')).display"),
+        s.eval("getComputedStyle(document.querySelector('#frame-1 .talk')).display"),
         "block"
     );
     assert_eq!(visible(&mut s), ["frame-1"]);
-    s.eval("document.getElementById('notes-toggle').click()");
+    s.eval("document.getElementById('talk-switch').click()");
     assert_eq!(
-        s.eval("document.body.classList.contains('show-notes')"),
+        s.eval("document.body.classList.contains('talk-shown')"),
         false
     );
 
@@ -439,7 +439,7 @@ fn script_in_story_or_data_never_runs_in_the_deck() {
     s.wait_for("Page.loadEventFired");
     // the deck's own script ran (it set the counter) ...
     assert_eq!(
-        s.eval("document.getElementById('count').textContent"),
+        s.eval("document.getElementById('where').textContent"),
         "1 / 1"
     );
     // ... and nothing from the data or the story did

@@ -18,7 +18,7 @@ fn text(out: &std::process::Output) -> (String, String) {
 }
 
 /// `crescendo new` writes a story for `csv` (in `dir`) that builds with no
-/// lint finding at all under `--deny warnings`; returns the story text and
+/// lint finding at all under `--strict`; returns the story text and
 /// the profile summary.
 fn new_story_builds_clean(dir: &Path, csv: &str) -> (String, String) {
     let out = crescendo(dir, &["new", csv]);
@@ -26,10 +26,7 @@ fn new_story_builds_clean(dir: &Path, csv: &str) -> (String, String) {
     assert!(out.status.success(), "new {csv}: {stdout}\n{stderr}");
     let story = csv.trim_end_matches(".csv").to_string() + ".cresc";
     let deck = format!("deck-{story}");
-    let built = crescendo(
-        dir,
-        &["build", &story, "--deny", "warnings", "--out", &deck],
-    );
+    let built = crescendo(dir, &["build", &story, "--strict", "--out", &deck]);
     let (bout, berr) = text(&built);
     assert!(
         built.status.success(),
@@ -200,8 +197,7 @@ fn new_refuses_to_replace_a_story_unless_forced() {
         &[
             "build",
             "stories/spend.cresc",
-            "--deny",
-            "warnings",
+            "--strict",
             "--allow-path",
             ".",
         ],
@@ -363,7 +359,11 @@ fn completions_and_manual_mention_every_subcommand() {
                 "{shell} completion lacks `{sub}`"
             );
         }
-        assert!(script.contains("deny"), "{shell}: options too");
+        assert!(script.contains("strict"), "{shell}: options too");
+        assert!(
+            !script.contains("deny"),
+            "{shell}: no hidden option offered"
+        );
     }
     let out = crescendo(&root(), &["manual"]);
     assert!(out.status.success());
@@ -380,6 +380,8 @@ fn completions_and_manual_mention_every_subcommand() {
         );
     }
     assert!(page.contains("\\-\\-check"), "the fmt options are listed");
+    assert!(page.contains("\\-\\-strict"), "the lint options are listed");
+    assert!(!page.contains("deny"), "no hidden option is listed");
 }
 
 // ------------------------------------------------------------------ locale and fiscal year
@@ -396,7 +398,7 @@ fn conventions_story(dir: &Path, header: &str) -> String {
         "story \"Sales\"\nsource \"Invented\"\n{header}\ndata sales from \"sales.csv\"\n\
          value total = sum(sales.sales)\nvalue latest = last(sales.month)\n\
          conclusion \"Keep going.\"\n\
-         frame \"Total {{total:.2}} up to {{latest}} ({{latest:quarter}})\" {{\n  line sales: x month, y sales\n  y title \"Sales\"\n}}\n"
+         frame \"Total {{total to 2 decimals}} up to {{latest}} ({{latest as quarter}})\" {{\n  line sales: x month, y sales\n  y title \"Sales\"\n}}\n"
     );
     fs::write(dir.join("sales.cresc"), story).unwrap();
     let out = crescendo(dir, &["plan", "sales.cresc"]);

@@ -329,3 +329,56 @@ fn readme_links_every_page() {
         assert!(root().join(page).exists());
     }
 }
+
+/// The reference's table of quoted-value formats prints what crescendo
+/// prints: each row's format is quoted over the three values of the
+/// table's head, and the figures compared.
+#[test]
+fn the_format_table_shows_the_figures_printed() {
+    let text = fs::read_to_string(root().join("grammar/REFERENCE.md")).unwrap();
+    let head = "| Written | 0.1234 | 12345.6 | -0.05 | |";
+    let at = text.find(head).expect("the format table");
+    let mut notes = Vec::new();
+    let mut want = Vec::new();
+    for line in text[at..]
+        .lines()
+        .skip(2)
+        .take_while(|l| l.starts_with('|'))
+    {
+        let cells: Vec<&str> = line.split('|').map(str::trim).collect();
+        let figures: Vec<&str> = cells[2..5]
+            .iter()
+            .filter_map(|c| c.strip_prefix('`')?.strip_suffix('`'))
+            .collect();
+        if figures.is_empty() {
+            continue;
+        }
+        assert_eq!(figures.len(), 3, "{line}");
+        let written = cells[1]
+            .strip_prefix("`{x")
+            .and_then(|c| c.strip_suffix("}`"))
+            .unwrap_or_else(|| panic!("{line}"));
+        for (name, figure) in ["a", "b", "c"].iter().zip(figures) {
+            notes.push(format!("{{{name}{written}}}"));
+            want.push(figure.to_string());
+        }
+    }
+    assert!(want.len() >= 27, "{want:?}");
+    let dir = scratch("format-table");
+    fs::write(dir.join("t.csv"), "k,v\nA,1\n").unwrap();
+    let story = format!(
+        "story \"Formats\"\nsource \"s\"\ndata t from \"t.csv\"\n\
+         value a = 0.1234\nvalue b = 12345.6\nvalue c = -0.05\n\
+         frame \"F\" {{\n  bars t: category k, value v\n  notes \"{}\"\n}}\n",
+        notes.join("|")
+    );
+    let src = crescendo_diag::Source::file("formats.cresc", story);
+    let planned = crescendo_plan::plan_story(&src, &dir, &Default::default())
+        .unwrap_or_else(|d| panic!("{}", crescendo_diag::render(&d, false)));
+    let printed = planned.plan.frames[0].notes.clone().unwrap_or_default();
+    let got: Vec<&str> = printed.split('|').collect();
+    for ((n, w), g) in notes.iter().zip(&want).zip(&got) {
+        assert_eq!(g, w, "{n}");
+    }
+    assert_eq!(got.len(), want.len());
+}

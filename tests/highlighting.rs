@@ -33,28 +33,37 @@ fn pattern(g: &Value, name: &str) -> String {
         .to_string()
 }
 
-/// The words of the `kw_*` rules in `grammar/story.pest`.
-fn pest_keywords() -> BTreeSet<String> {
+/// The words of the `PREFIX*` rules in `grammar/story.pest` (`kw_`:
+/// keywords, `fw_`: the format words of quoted values).
+fn pest_words(prefix: &str) -> BTreeSet<String> {
     let pest = std::fs::read_to_string(root().join("grammar/story.pest")).expect("pest grammar");
-    let rule = Regex::new(r#"(?m)^kw_(\w+)\s*=\s*@\{\s*"([^"]+)""#).unwrap();
-    let words: BTreeSet<String> = rule
-        .captures_iter(&pest)
+    let rule = Regex::new(&format!(r#"(?m)^{prefix}(\w+)\s*=\s*@\{{\s*"([^"]+)""#)).unwrap();
+    rule.captures_iter(&pest)
         .map(|c| {
-            assert_eq!(&c[1], &c[2], "kw_ rules are named after their word");
+            assert_eq!(&c[1], &c[2], "{prefix} rules are named after their word");
             c[2].to_string()
         })
-        .collect();
+        .collect()
+}
+
+fn pest_keywords() -> BTreeSet<String> {
+    let words = pest_words("kw_");
     assert!(words.len() > 50, "{words:?}");
     words
 }
 
-fn editor_keywords(g: &Value) -> BTreeSet<String> {
-    let m = pattern(g, "keyword");
+/// The words of a `\b(?:a|b|...)\b` pattern of the editor grammar.
+fn editor_words(g: &Value, name: &str) -> BTreeSet<String> {
+    let m = pattern(g, name);
     let inner = m
         .strip_prefix(r"\b(?:")
         .and_then(|s| s.strip_suffix(r")\b"))
-        .expect("keyword pattern is \\b(?:a|b|...)\\b");
+        .unwrap_or_else(|| panic!("{name} pattern is \\b(?:a|b|...)\\b"));
     inner.split('|').map(str::to_string).collect()
+}
+
+fn editor_keywords(g: &Value) -> BTreeSet<String> {
+    editor_words(g, "keyword")
 }
 
 #[test]
@@ -189,4 +198,72 @@ fn strings_and_comments_hide_keywords() {
     let lit = highlighted_keywords(&g, text);
     let words: Vec<&str> = lit.iter().map(|r| &text[r.clone()]).collect();
     assert_eq!(words, ["story", "allow"]);
+}
+
+/// The format words of quoted values (`{share as signed percent to 1
+/// decimal}`) are the grammar's `fw_*` words; the editor colours them inside
+/// a string's braces only, and every format word the demo stories write
+/// is one of them.
+#[test]
+fn format_words_are_the_grammars_and_coloured_inside_braces() {
+    let g = grammar();
+    let pest = pest_words("fw_");
+    assert!(pest.len() >= 10, "{pest:?}");
+    assert_eq!(pest, editor_words(&g, "format-word"));
+    let quote = &g["repository"]["string"]["patterns"][1];
+    assert_eq!(quote["begin"], "\\{");
+    assert!(quote["patterns"]
+        .as_array()
+        .expect("quote patterns")
+        .iter()
+        .any(|p| p["include"] == "#format-word"));
+    let top: Vec<&str> = g["patterns"]
+        .as_array()
+        .expect("patterns")
+        .iter()
+        .filter_map(|p| p["include"].as_str())
+        .collect();
+    assert!(
+        !top.contains(&"#format-word"),
+        "format words are no keywords"
+    );
+    // in the demo stories: each quoted value's words from its first `as`
+    // or `to` on are format words, the expression's words before are not
+    let word = Regex::new(&format!("^(?:{})$", pattern(&g, "format-word"))).unwrap();
+    let string = Regex::new(r#""(?:[^"\\\n]|\\.)*""#).unwrap();
+    let braces = Regex::new(r#"\{([^{}"\\]*)\}"#).unwrap();
+    let mut seen = BTreeSet::new();
+    for e in std::fs::read_dir(root().join("stories")).expect("stories") {
+        for f in std::fs::read_dir(e.expect("entry").path())
+            .into_iter()
+            .flatten()
+        {
+            let p = f.expect("entry").path();
+            if p.extension().is_none_or(|x| x != "cresc") {
+                continue;
+            }
+            let text = std::fs::read_to_string(&p).expect("story");
+            let strings: Vec<&str> = string.find_iter(&text).map(|m| m.as_str()).collect();
+            for c in strings.iter().flat_map(|s| braces.captures_iter(s)) {
+                let words: Vec<&str> = c[1].split_whitespace().collect();
+                let at = words
+                    .iter()
+                    .position(|w| *w == "as" || *w == "to")
+                    .unwrap_or(words.len());
+                for (i, w) in words.iter().enumerate() {
+                    let format = w.parse::<u32>().is_err() && word.is_match(w);
+                    if i >= at && w.parse::<u32>().is_err() {
+                        assert!(format, "{}: `{w}` in {{{}}}", p.display(), &c[1]);
+                        seen.insert(w.to_string());
+                    } else if i < at {
+                        assert!(!format, "{}: `{w}` in {{{}}}", p.display(), &c[1]);
+                    }
+                }
+            }
+        }
+    }
+    assert!(
+        seen.len() >= 6,
+        "the demo stories use the format words: {seen:?}"
+    );
 }

@@ -1,7 +1,8 @@
 //! The clarity lint end to end: for every rule a story where it fires (its
 //! diagnostics snapshot-tested) and one where it stays quiet; the demo
-//! stories pass under every built-in theme; allowances, `--deny warnings`
-//! and `crescendo explain`.
+//! stories pass under every built-in theme; every rule's documented
+//! excerpts are quoted from those stories; allowances, `--strict` and
+//! `crescendo explain`.
 
 mod common;
 
@@ -89,6 +90,49 @@ fn every_rule_fires_on_its_story_and_not_on_its_counterpart() {
     }
 }
 
+/// The lines of a story or excerpt that carry code, comments removed and
+/// blank space trimmed; `...` (lines left out) dropped.
+fn code_lines(text: &str) -> Vec<String> {
+    let comments = crescendo_lang::format::comments(text);
+    let mut code = String::new();
+    let mut at = 0;
+    for c in comments {
+        code.push_str(&text[at..c.start]);
+        at = c.end;
+    }
+    code.push_str(&text[at..]);
+    code.lines()
+        .map(|l| l.trim().to_string())
+        .filter(|l| !l.is_empty() && l != "...")
+        .collect()
+}
+
+/// Every rule's documented "before" is an excerpt of the story it fires
+/// on, and its "after" one of the story it stays quiet on: their lines
+/// appear there, in order. So the documentation shows what the tests
+/// prove.
+#[test]
+fn every_rule_document_quotes_its_own_cases() {
+    let dir = root().join("tests/lint");
+    for rule in crescendo_lint::RULES {
+        for (excerpt, file) in [
+            (rule.doc.before, "fires.cresc"),
+            (rule.doc.after, "passes.cresc"),
+        ] {
+            let story = code_lines(&fs::read_to_string(dir.join(rule.name).join(file)).unwrap());
+            let mut rest = story.iter();
+            for line in code_lines(excerpt) {
+                assert!(
+                    rest.any(|l| *l == line),
+                    "{}: `{line}` is not the next line of tests/lint/{}/{file}",
+                    rule.name,
+                    rule.name
+                );
+            }
+        }
+    }
+}
+
 #[test]
 fn demo_stories_pass_the_lint_under_every_theme() {
     for theme in crescendo_plan::THEMES {
@@ -132,9 +176,10 @@ fn allowances_need_a_known_rule_and_a_reason() {
     fs::write(dir.join("s.cresc"), &story).unwrap();
     assert!(lint_story(&dir.join("s.cresc"), None).is_empty());
 
-    // an unknown rule, an empty reason, and an allowance that allows nothing
+    // an unknown rule, a rule's former name, an empty reason, and an
+    // allowance that allows nothing
     let story = format!(
-        "allow spotlight-crowed \"typo\"\nallow bars-off-zero \"not needed\"\n{}",
+        "allow spotlight-crowed \"typo\"\nallow stack-middle \"old name\"\nallow bars-off-zero \"not needed\"\n{}",
         FIRES.replace("  takeaway", "  allow spotlight-crowd \" \"\n  takeaway")
     );
     fs::write(dir.join("s.cresc"), &story).unwrap();
@@ -145,6 +190,10 @@ fn allowances_need_a_known_rule_and_a_reason() {
         "{text}"
     );
     assert!(text.contains("did you mean `spotlight-crowd`?"), "{text}");
+    assert!(
+        text.contains("the rule is named `stack-spotlight-floats`"),
+        "{text}"
+    );
     assert!(
         text.contains("allowing `spotlight-crowd` needs a reason"),
         "{text}"
@@ -157,30 +206,29 @@ fn allowances_need_a_known_rule_and_a_reason() {
 }
 
 #[test]
-fn deny_warnings_stops_the_build() {
+fn strict_lets_warnings_stop_the_build() {
     let story = FIRES
         .replace("  spotlight \"A\", \"B\"\n", "")
         .replace("source \"Invented\"\n", "");
-    let dir = scratch_story("deny", &story);
+    let dir = scratch_story("strict", &story);
     let ok = crescendo(&dir, &["build", "s.cresc"]);
     let err = String::from_utf8_lossy(&ok.stderr);
     assert!(ok.status.success(), "{err}");
     assert!(err.contains("warning[source-missing]"), "{err}");
-    let denied = crescendo(
-        &dir,
-        &["build", "s.cresc", "--out", "strict", "--deny", "warnings"],
-    );
+    let denied = crescendo(&dir, &["build", "s.cresc", "--out", "strict", "--strict"]);
     let err = String::from_utf8_lossy(&denied.stderr);
     assert_eq!(denied.status.code(), Some(1), "{err}");
     assert!(err.contains("error[source-missing]"), "{err}");
     assert!(!dir.join("strict").exists(), "nothing written");
-    let check = crescendo(
-        &dir,
-        &["check", "s.cresc", "--deny", "warnings", "--format", "json"],
-    );
+    let check = crescendo(&dir, &["check", "s.cresc", "--strict", "--format", "json"]);
     assert_eq!(check.status.code(), Some(1));
     let report: serde_json::Value = serde_json::from_slice(&check.stdout).unwrap();
     assert_eq!(report["diagnostics"][0]["code"], "source-missing");
+    // `--deny` is refused, naming the option to write
+    let old = crescendo(&dir, &["check", "s.cresc", "--deny", "warnings"]);
+    let err = String::from_utf8_lossy(&old.stderr);
+    assert_eq!(old.status.code(), Some(2), "{err}");
+    assert!(err.contains("write `--strict`"), "{err}");
 }
 
 #[test]
@@ -218,4 +266,8 @@ fn explain_prints_each_rule_and_lists_them_all() {
     let bad = crescendo(&dir, &["explain", "bars-of-zero"]);
     assert_eq!(bad.status.code(), Some(1));
     assert!(String::from_utf8_lossy(&bad.stderr).contains("did you mean `bars-off-zero`?"));
+    // a name a rule once had names the rule
+    let old = crescendo(&dir, &["explain", "no-conclusion"]);
+    assert_eq!(old.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&old.stderr).contains("the rule is named `conclusion-missing`"));
 }

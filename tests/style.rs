@@ -112,7 +112,7 @@ fn the_lint_checks_the_colours_a_style_sets() {
     let o = crescendo(&dir, &["check", "s.cresc"]);
     assert_eq!(o.status.code(), Some(1));
     let e = stderr(&o);
-    assert!(e.contains("text-contrast"), "{e}");
+    assert!(e.contains("text-faint"), "{e}");
     assert!(e.contains("#DDDDDD"), "{e}");
 }
 

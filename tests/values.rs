@@ -76,7 +76,7 @@ fn anscombe_quartet_values_and_claims() {
         writeln!(story, "value a{s} = intercept({w})").unwrap();
         writeln!(story, "value r{s} = correlation({w})").unwrap();
         notes.push(format!(
-            "{{mx{s}:.1}}|{{my{s}:.2}}|{{b{s}:.3}}|{{a{s}:.2}}|{{r{s}:.3}}"
+            "{{mx{s} to 1 decimal}}|{{my{s} to 2 decimals}}|{{b{s} to 3 decimals}}|{{a{s} to 2 decimals}}|{{r{s} to 3 decimals}}"
         ));
     }
     story.push_str(
@@ -158,13 +158,13 @@ fn penguin_group_values_match_python_statistics() {
                     "value {name} = {stat}(p.{col} where species = \"{sp}\")"
                 )
                 .unwrap();
-                notes.push(format!("{{{name}:.10}}"));
+                notes.push(format!("{{{name} to 10 decimals}}"));
                 want.push((name, group[col][stat].as_f64().unwrap()));
             }
         }
         let name = format!("rows_{}", sp.to_lowercase());
         writeln!(story, "value {name} = count(p where species = \"{sp}\")").unwrap();
-        notes.push(format!("{{{name}:.10}}"));
+        notes.push(format!("{{{name} to 10 decimals}}"));
         want.push((name, group["rows"].as_f64().unwrap()));
     }
     writeln!(
@@ -198,7 +198,7 @@ fn compound_growth_worked_example() {
         value rate = growth(g.visits by year)\nvalue up = percent_change(g.visits by year)\n\
         value best = max(g.year)\nvalue trend = slope(g.visits by year)\n\
         claim rate about 0.1 within 0.000001 \"ten percent a year\"\n\
-        frame \"f\" {\n  line g: x year, y visits\n  notes \"{rate:.4%}|{up:+.1%}|{best}|{rate:%}\"\n}\n";
+        frame \"f\" {\n  line g: x year, y visits\n  notes \"{rate as percent to 4 decimals}|{up as signed percent to 1 decimal}|{best}|{rate as percent}\"\n}\n";
     let (figs, planned) = quoted(&dir, story);
     assert!(planned.failed_claims.is_empty());
     assert_eq!(figs, vec!["10.0000%", "+33.1%", "2024", "10%"]);
@@ -261,5 +261,58 @@ fn value_errors_are_located_never_nan() {
             "{value}:\n{text}"
         );
         assert!(!text.contains("NaN"));
+    }
+}
+
+/// A format that cannot print its value is a located error at the quoted
+/// value: a period needs a month or a date, a number format a number.
+#[test]
+fn a_format_fits_its_value_or_is_a_located_error() {
+    let dir = scratch("format-fit");
+    fs::write(dir.join("d.csv"), "k,m,v\na,2024-03,1\nb,2024-04,2\n").unwrap();
+    let ok = [
+        ("{last(d.m) as quarter}", "2024 Q2"),
+        ("{last(d.m) as year}", "2024"),
+        ("{last(d.m) as number}", "Apr 2024"),
+        ("{last(d.k)}", "b"),
+        ("{sum(d.v) as signed number}", "+3"),
+    ];
+    let bad = [
+        (
+            "{sum(d.v) as quarter}",
+            "`as quarter` needs a month or a date, and this value is a number",
+        ),
+        (
+            "{last(d.k) as year}",
+            "`as year` needs a month or a date, and this value is a text",
+        ),
+        (
+            "{last(d.m) as percent}",
+            "this value is a month, and only a number takes a number format",
+        ),
+        (
+            "{last(d.k) to 1 decimal}",
+            "this value is a text, and only a number takes a number format",
+        ),
+    ];
+    let story = |note: &str| {
+        format!(
+            "story \"E\"\ndata d from \"d.csv\" {{ m: month }}\nframe \"f\" {{\n  bars d: category k, value v\n  notes \"{note}\"\n}}\n"
+        )
+    };
+    for (quote, want) in ok {
+        let (figs, _) = quoted(&dir, &story(quote));
+        assert_eq!(figs, [want], "{quote}");
+    }
+    for (quote, message) in bad {
+        let src = Source::file("e.cresc", story(quote));
+        let errs = match crescendo_plan::plan_story(&src, &dir, &Default::default()) {
+            Ok(p) => panic!("{quote}: no error, notes {:?}", p.plan.frames[0].notes),
+            Err(d) => d,
+        };
+        assert_eq!(errs.len(), 1, "{quote}");
+        assert_eq!(errs[0].message, message, "{quote}");
+        // at the quoted value's opening brace, on the notes line
+        assert_eq!(errs[0].location().map(|(_, l, c)| (l, c)), Some((5, 10)));
     }
 }

@@ -20,7 +20,7 @@
 //! The story builds up in four frames (context, comparison, spotlight,
 //! conclusion placeholder), quotes a value and states a placeholder claim
 //! that holds by construction, so it builds and passes the lint with
-//! `--deny warnings` before the analyst edits it.
+//! `--strict` before the analyst edits it.
 
 mod profile;
 mod shape;

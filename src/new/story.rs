@@ -442,7 +442,7 @@ fn relationship(s: &mut String, table: &Table, x: &str, y: &str, label: Option<&
             format!("{chart}, fit"),
             titles[0].clone(),
             titles[1].clone(),
-            "takeaway \"Correlation r = {fit:.2}.\"".into(),
+            "takeaway \"Correlation r = {fit}.\"".into(),
         ],
     );
     // without names to point at, the takeaway carries the point

@@ -401,15 +401,24 @@ pub fn render(diags: &[Diagnostic], color: bool) -> String {
     } else {
         termcolor::Buffer::no_color()
     };
-    for cd in &converted {
+    let mut out = String::new();
+    for (cd, d) in converted.iter().zip(diags) {
         // Writing into an in-memory buffer only fails on a bad span, which
         // `clamp_span` rules out; fall back to the bare message regardless.
+        buf.clear();
         if term::emit_to_write_style(&mut buf, &config, &set, cd).is_err() {
             let _ =
                 std::io::Write::write_all(&mut buf, format!("error: {}\n", cd.message).as_bytes());
         }
+        let text = String::from_utf8_lossy(buf.as_slice());
+        match d.severity {
+            // the reporting library's lowest severity is called a note; ours
+            // is advice, as in the JSON output (its header's first word)
+            Severity::Advice => out.push_str(&text.replacen("note", "advice", 1)),
+            _ => out.push_str(&text),
+        }
     }
-    String::from_utf8_lossy(buf.as_slice()).into_owned()
+    out
 }
 
 /// The closest candidate to `name` by edit distance, if it is close enough to
@@ -453,6 +462,24 @@ mod tests {
         assert_eq!(s.line_col(3), (2, 1));
         // 'f' comes after "cdé " (é is two bytes) -> column 5
         assert_eq!(s.line_col(8), (2, 5));
+    }
+
+    /// Terminal output names the severity as the JSON output does:
+    /// `advice[...]`, and only the header changes.
+    #[test]
+    fn advice_is_printed_as_advice() {
+        let s = Source::file("s.cresc", "note notes\n");
+        let mut d = Diagnostic::warning("bars-crowded", "a note on notes").at(&s, 0..4, "note");
+        d.severity = Severity::Advice;
+        for color in [false, true] {
+            let out = render(std::slice::from_ref(&d), color);
+            let plain = out.replace("\u{1b}", "");
+            assert!(plain.contains("advice[bars-crowded]"), "{out}");
+            assert!(!plain.contains("note[bars-crowded]"), "{out}");
+            assert_eq!(out.matches("note").count(), 5, "{out}");
+        }
+        let warn = render(&[Diagnostic::warning("w", "x")], false);
+        assert!(warn.starts_with("warning[w]: x"), "{warn}");
     }
 
     #[test]

@@ -344,7 +344,7 @@ pub struct PanelChart {
     /// The key the panels split by.
     pub key: String,
     /// One common scale in every panel (same units per pixel, ticks lined
-    /// up). `false` only with `free`, which the lint flags.
+    /// up). `false` only with `own scales`, which the lint flags.
     pub common_scale: bool,
     /// `trim`: each panel cut to its own extent, keeping the same units per
     /// pixel (panel heights then differ).

@@ -21,7 +21,7 @@ pub struct Str {
 }
 
 /// A string literal that is shown to the audience and may quote values
-/// (`"now {multiple:.1}× as many"`): headlines, takeaways, notes, titles,
+/// (`"now {multiple to 1 decimal}× as many"`): headlines, takeaways, notes, titles,
 /// captions and labels. The parser splits it into parts once.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Text {
@@ -626,7 +626,7 @@ impl Position {
     }
 }
 
-/// `split KEY [ascending|descending] [by MEASURE] [order "A", ...] [trim] [free]`
+/// `split KEY [ascending|descending] [by MEASURE] [order "A", ...] [trim] [own scales]`
 #[derive(Clone, Debug, PartialEq)]
 pub struct SplitStmt {
     pub key: Ident,
@@ -635,7 +635,8 @@ pub struct SplitStmt {
     pub by: Option<Ident>,
     pub order: Vec<Str>,
     pub trim: bool,
-    pub free: bool,
+    /// `own scales`: each panel on a scale of its own.
+    pub own_scales: bool,
     pub span: Span,
 }
 
@@ -690,28 +691,29 @@ pub struct Tolerance {
     pub span: Span,
 }
 
-/// The most decimals a quoted value may ask for (`{x:.12}`).
+/// The most decimals a quoted value may ask for (`{x to 12 decimals}`).
 pub const MAX_DECIMALS: usize = 12;
 
-/// How a quoted value is printed: `{name:+.1%}`.
+/// How a quoted value is printed: `{change as signed percent to 1 decimal}`.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub struct FormatSpec {
-    /// `+`: always print a sign (+12%, -3%).
+    /// `signed`: always print a sign (+12%, -3%).
     pub sign: bool,
-    /// `.N`: exactly N decimals (trailing zeros kept), at most
+    /// `to N decimals`: exactly N decimals (trailing zeros kept), at most
     /// [`MAX_DECIMALS`]. `None`: a few decimals, trailing zeros dropped.
     pub decimals: Option<usize>,
     pub style: NumberStyle,
 }
 
-/// The style part of a [`FormatSpec`].
+/// The style of a [`FormatSpec`]: the word after `as`.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub enum NumberStyle {
+    /// `number`, or no `as`.
     #[default]
     Plain,
-    /// `%`: a fraction shown as a percentage (0.123 → 12.3%).
+    /// `percent`: a fraction shown as a percentage (0.123 → 12.3%).
     Percent,
-    /// `k`: compact (12.3k, 4.5M).
+    /// `compact`: 12.3k, 4.5M.
     Compact,
     /// `quarter`: the quarter of a month or date ("2024 Q4"; in a fiscal
     /// year "FY2025 Q2").
@@ -721,19 +723,48 @@ pub enum NumberStyle {
     Year,
 }
 
+impl FormatSpec {
+    /// The format as it is written after a quoted value's expression
+    /// (` as signed percent to 1 decimal`, with its leading space), empty
+    /// for the default.
+    pub fn words(&self) -> String {
+        let style = match self.style {
+            NumberStyle::Plain => "",
+            NumberStyle::Percent => "percent",
+            NumberStyle::Compact => "compact",
+            NumberStyle::Quarter => "quarter",
+            NumberStyle::Year => "year",
+        };
+        let mut out = String::new();
+        match (self.sign, style) {
+            (false, "") => {}
+            (true, "") => out.push_str(" as signed number"),
+            (true, s) => out.push_str(&format!(" as signed {s}")),
+            (false, s) => out.push_str(&format!(" as {s}")),
+        }
+        if let Some(n) = self.decimals {
+            let unit = if n == 1 { "decimal" } else { "decimals" };
+            out.push_str(&format!(" to {n} {unit}"));
+        }
+        out
+    }
+}
+
 /// One piece of a text that may quote values.
 #[derive(Clone, Debug, PartialEq)]
 pub enum TextPart {
     Literal(String),
-    /// `{EXPRESSION:FORMAT}`; `span` covers the braces.
+    /// `{EXPRESSION as STYLE to N decimals}`; `span` covers the braces,
+    /// `written` the expression as written (parentheses included).
     Quote {
         expr: Expr,
         format: FormatSpec,
         span: Span,
+        written: Span,
     },
 }
 
-/// A text with its quoted values, e.g. `"now {multiple:.1}× as many"`.
+/// A text with its quoted values, e.g. `"now {multiple to 1 decimal}× as many"`.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Template {
     pub parts: Vec<TextPart>,

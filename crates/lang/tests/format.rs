@@ -104,7 +104,7 @@ fn an_empty_story_stays_empty_and_a_comment_only_story_keeps_its_comment() {
 
 #[test]
 fn locale_and_fiscal_statements_parse_and_format() {
-    let text = "story \"S\"\nlocale   \"de-DE\"\nfiscal  year   starts July  # budget year\nframe \"F {m:quarter} {m:year}\" {}\n";
+    let text = "story \"S\"\nlocale   \"de-DE\"\nfiscal  year   starts July  # budget year\nframe \"F {m as quarter} {m as year}\" {}\n";
     let (ast, diags) = parse(&Source::file("s", text));
     assert!(diags.is_empty(), "{diags:?}");
     use crescendo_lang::ast::Item;
@@ -112,15 +112,18 @@ fn locale_and_fiscal_statements_parse_and_format() {
     assert!(matches!(&ast.items[2], Item::Fiscal { month, .. } if month.name == "July"));
     assert_eq!(
         format_story(text).expect("formats"),
-        "story \"S\"\nlocale \"de-DE\"\nfiscal year starts July  # budget year\nframe \"F {m:quarter} {m:year}\" {}\n"
+        "story \"S\"\nlocale \"de-DE\"\nfiscal year starts July  # budget year\nframe \"F {m as quarter} {m as year}\" {}\n"
     );
     // the statement needs all three words and a month
     let (_, diags) = parse(&Source::file("s", "fiscal starts July\n"));
     assert_eq!(diags.len(), 1);
     let (_, diags) = parse(&Source::file("s", "fiscal year starts\n"));
     assert_eq!(diags.len(), 1);
-    // quoted periods: `quarter` and `year` formats
-    let (ast, diags) = parse(&Source::file("s", "story \"{m:quarter} {m:year} {x:.1%}\""));
+    // quoted periods: the `quarter` and `year` formats
+    let (ast, diags) = parse(&Source::file(
+        "s",
+        "story \"{m as quarter} {m as year} {x as percent to 1 decimal}\"",
+    ));
     assert!(diags.is_empty(), "{diags:?}");
     let Item::Title(t) = &ast.items[0] else {
         panic!()
@@ -222,4 +225,19 @@ fn the_demo_stories_are_kept_in_the_canonical_layout() {
             "{name} is not in the canonical layout: run `crescendo fmt stories`"
         );
     }
+}
+
+/// The formatter prints `own scales` and keeps quoted values and their
+/// formats as written; a symbol format is refused with the parser's
+/// located error (nothing is formatted).
+#[test]
+fn own_scales_and_formats_in_words_are_printed_as_written() {
+    let text = "frame \"Up {lead  to 1 decimal}, \\{sic\\}\" {\n  line v: x m, y n, series s\n  split   s    own   scales\n}\n";
+    assert_eq!(
+        format_story(text).expect("formats"),
+        "frame \"Up {lead  to 1 decimal}, \\{sic\\}\" {\n  line v: x m, y n, series s\n  split s own scales\n}\n"
+    );
+    let err = format_story("frame \"{lead:.1}\" {}\n").unwrap_err();
+    assert_eq!(err.len(), 1);
+    assert_eq!(err[0].help.as_deref(), Some("write `{lead to 1 decimal}`"));
 }

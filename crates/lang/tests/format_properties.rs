@@ -21,10 +21,10 @@ fn text() -> impl Strategy<Value = String> {
     prop::sample::select(
         &[
             "\"Plain\"",
-            "\"Up {lead:.1}×\"",
-            "\"{share:+.0%} of {total:k}\"",
+            "\"Up {lead to 1 decimal}×\"",
+            "\"{share as signed percent to 0 decimals} of {total as compact}\"",
             "\"Quote \\\" and \\\\ inside\"",
-            "\"Period {m:quarter}\"",
+            "\"Period {m as quarter}, \\{literal\\}\"",
             "\"\"",
             "\"# not a comment\"",
         ][..],
@@ -129,6 +129,7 @@ fn frame_stmt() -> impl Strategy<Value = String> {
         Just("spotlight focus".to_string()),
         Just("spotlight \"Row\" in visits".to_string()),
         Just("split pool descending by visits order \"A\", \"B\" trim".to_string()),
+        Just("split pool own scales".to_string()),
         Just("unfold \"A\", \"B\"".to_string()),
         Just("unfold".to_string()),
         text().prop_map(|t| format!("callout \"2024-01\" on \"A\" {t}")),

@@ -2,9 +2,10 @@
 //! story's texts) for clutter, distortion, contrast and colour-vision
 //! safety, and reports located diagnostics with a suggested fix.
 //!
-//! One rule per file in `rules/`. Every rule carries its documentation in
-//! fixed parts (what it flags, why it matters, an example, what to do
-//! instead); `crescendo explain RULE` prints exactly that text.
+//! One rule per file in `rules/`. Every rule carries its documentation: a
+//! one-line summary, a story excerpt the rule flags (before), the same
+//! excerpt fixed (after), and why (what the audience misreads, with its
+//! source); `crescendo explain RULE` prints exactly that text.
 
 mod rules;
 
@@ -20,16 +21,17 @@ use crescendo_look::{DisplayList, Theme};
 
 pub use rules::{CONFUSABLE_THRESHOLD, RULES};
 
-/// The fixed parts of a rule's documentation.
+/// The parts of a rule's documentation after its summary.
 pub struct Doc {
-    /// What the rule flags.
-    pub flags: &'static str,
-    /// Why it matters: the perception research or common practice behind it.
+    /// A story excerpt the rule flags: lines of `tests/lint/RULE/fires.cresc`
+    /// in order (a test holds this), with comments of its own; `...`
+    /// stands for lines left out.
+    pub before: &'static str,
+    /// The same excerpt fixed: lines of `tests/lint/RULE/passes.cresc`.
+    pub after: &'static str,
+    /// What the audience misreads, and the perception research or common
+    /// practice behind it.
     pub why: &'static str,
-    /// A story fragment that triggers it.
-    pub example: &'static str,
-    /// What to do instead.
-    pub instead: &'static str,
 }
 
 /// One lint rule.
@@ -72,13 +74,39 @@ pub struct Finding {
 /// How to lint.
 #[derive(Clone, Copy, Debug, Default)]
 pub struct Options {
-    /// `--deny warnings`: report warnings as errors (for CI).
-    pub deny_warnings: bool,
+    /// `--strict`: report warnings as errors (for CI); advice stays advice.
+    pub strict: bool,
 }
 
 /// Look a rule up by name.
 pub fn rule(name: &str) -> Option<&'static Rule> {
     RULES.iter().copied().find(|r| r.name == name)
+}
+
+/// Names rules once had, with the rule's name now: `allow` and `explain`
+/// refuse them and name the new one.
+pub static RENAMED: &[(&str, &str)] = &[
+    ("no-conclusion", "conclusion-missing"),
+    ("text-contrast", "text-faint"),
+    ("marks-contrast", "marks-faint"),
+    ("stack-middle", "stack-spotlight-floats"),
+];
+
+/// The diagnostic for a rule name no rule has (`explain` and `allow`):
+/// the rule a renamed name stands for, or the closest name.
+pub fn unknown_rule(name: &str) -> Diagnostic {
+    let d = Diagnostic::error(
+        "unknown-rule",
+        format!("there is no lint rule named `{name}`"),
+    )
+    .note("`crescendo explain` lists the rules");
+    if let Some((_, now)) = RENAMED.iter().find(|(old, _)| *old == name) {
+        return d.help(format!("the rule is named `{now}`"));
+    }
+    match closest(name, RULES.iter().map(|r| r.name)) {
+        Some(s) => d.help(format!("did you mean `{s}`?")),
+        None => d,
+    }
 }
 
 fn severity_name(s: Severity) -> &'static str {
@@ -93,14 +121,13 @@ fn severity_name(s: Severity) -> &'static str {
 pub fn explain(name: &str) -> Option<String> {
     let r = rule(name)?;
     Some(format!(
-        "{} ({})\n{}\n\nWhat it flags\n{}\n\nWhy it matters\n{}\n\nExample\n{}\n\nInstead\n{}\n",
+        "{} ({})\n{}\n\nBefore\n{}\n\nAfter\n{}\n\nWhy\n{}\n",
         r.name,
         severity_name(r.severity),
         r.summary,
-        indent(r.doc.flags),
+        indent(r.doc.before),
+        indent(r.doc.after),
         indent(r.doc.why),
-        indent(r.doc.example),
-        indent(r.doc.instead)
     ))
 }
 
@@ -112,9 +139,11 @@ pub fn reference_markdown() -> String {
          <!-- Generated from the rules' own documentation (crates/lint/src/rules/*.rs) by\n\
          `UPDATE_DOCS=1 cargo test --test docs`; do not edit by hand. -->\n\n\
          `crescendo build` and `crescendo check` run every rule on every frame. Errors stop the\n\
-         build; warnings and advice are printed (`--deny warnings` turns warnings into errors,\n\
-         for CI). Accept a finding by saying why: `allow RULE \"reason\"` for the whole story,\n\
+         build; warnings and advice are printed (`--strict` lets warnings stop it too, for\n\
+         CI). Accept a finding by saying why: `allow RULE \"reason\"` for the whole story,\n\
          or the same line inside one frame. `crescendo explain RULE` prints one rule.\n\n\
+         Each rule below shows a story excerpt it flags (before), the same excerpt fixed\n\
+         (after), and why it matters: what the audience misreads, and the source.\n\n\
          Some chart forms mislead decisions, and the rules say so plainly: bars cut off from\n\
          zero exaggerate differences (`bars-off-zero`, an error); small multiples on unequal\n\
          scales make a small panel look as large as a big one (`panels-own-scales`); an axis\n\
@@ -134,15 +163,14 @@ pub fn reference_markdown() -> String {
     }
     for r in RULES.iter() {
         out.push_str(&format!(
-            "\n## {}\n\n*{}* — {}.\n\n**What it flags.** {}\n\n**Why it matters.** {}\n\n\
-             **Example.**\n\n```cresc\n{}\n```\n\n**Instead.** {}\n",
+            "\n## {}\n\n*{}* — {}.\n\n**Before**\n\n```text\n{}\n```\n\n\
+             **After**\n\n```text\n{}\n```\n\n**Why.** {}\n",
             r.name,
             severity_name(r.severity),
             r.summary,
-            one_paragraph(r.doc.flags),
+            r.doc.before,
+            r.doc.after,
             one_paragraph(r.doc.why),
-            r.doc.example,
-            one_paragraph(r.doc.instead)
         ));
     }
     out
@@ -180,20 +208,10 @@ fn indent(text: &str) -> String {
 /// the findings into diagnostics.
 pub fn lint(input: &Input, options: &Options) -> Vec<Diagnostic> {
     let mut out = Vec::new();
-    let names: Vec<&str> = RULES.iter().map(|r| r.name).collect();
     let mut used: Vec<(Option<usize>, usize)> = Vec::new();
     let check_allow = |a: &Allowance, out: &mut Vec<Diagnostic>| -> bool {
         if rule(&a.rule).is_none() {
-            let mut d = Diagnostic::error(
-                "unknown-rule",
-                format!("there is no lint rule named `{}`", a.rule),
-            )
-            .at(input.src, a.rule_span.clone(), "unknown rule")
-            .note("`crescendo explain` lists the rules");
-            if let Some(s) = closest(&a.rule, names.iter().copied()) {
-                d = d.help(format!("did you mean `{s}`?"));
-            }
-            out.push(d);
+            out.push(unknown_rule(&a.rule).at(input.src, a.rule_span.clone(), "unknown rule"));
             return false;
         }
         if a.reason.trim().is_empty() {
@@ -248,7 +266,7 @@ pub fn lint(input: &Input, options: &Options) -> Vec<Diagnostic> {
                 continue;
             }
             let severity = match r.severity {
-                Severity::Warning if options.deny_warnings => Severity::Error,
+                Severity::Warning if options.strict => Severity::Error,
                 s => s,
             };
             let mut d = Diagnostic::error(r.name, f.message).at(input.src, f.span, f.label);
@@ -294,7 +312,7 @@ pub fn lint(input: &Input, options: &Options) -> Vec<Diagnostic> {
             }
         }
     }
-    if options.deny_warnings {
+    if options.strict {
         for d in &mut out {
             if d.severity == Severity::Warning {
                 d.severity = Severity::Error;
@@ -326,18 +344,37 @@ mod tests {
             );
             for (part, text) in [
                 ("summary", r.summary),
-                ("flags", r.doc.flags),
+                ("before", r.doc.before),
+                ("after", r.doc.after),
                 ("why", r.doc.why),
-                ("example", r.doc.example),
-                ("instead", r.doc.instead),
             ] {
-                assert!(text.trim().len() >= 20, "{}: `{part}` is too thin", r.name);
+                assert!(text.trim().len() >= 10, "{}: `{part}` is too thin", r.name);
             }
+            assert!(!r.summary.contains('\n'), "{}: one line", r.name);
+            assert_ne!(r.doc.before, r.doc.after, "{}", r.name);
             let text = explain(r.name).unwrap();
-            for heading in ["What it flags", "Why it matters", "Example", "Instead"] {
-                assert!(text.contains(heading), "{}", r.name);
-            }
+            let at = |h: &str| text.find(&format!("\n\n{h}\n"));
+            assert!(
+                at("Before") < at("After") && at("After") < at("Why") && at("Before").is_some(),
+                "{}: {text}",
+                r.name
+            );
         }
         assert!(explain("no-such-rule").is_none());
+    }
+
+    #[test]
+    fn renamed_rules_name_the_rule_now() {
+        for (old, now) in RENAMED {
+            assert!(rule(old).is_none(), "{old}");
+            assert!(rule(now).is_some(), "{now}");
+            let d = unknown_rule(old);
+            assert_eq!(
+                d.help.as_deref(),
+                Some(&*format!("the rule is named `{now}`"))
+            );
+        }
+        let d = unknown_rule("bars-of-zero");
+        assert_eq!(d.help.as_deref(), Some("did you mean `bars-off-zero`?"));
     }
 }

@@ -369,7 +369,7 @@ mod tests {
     }
 
     // The same thresholds for every built-in theme; the lint
-    // (crates/lint, `text-contrast`, `marks-contrast`, `focus-confusable`)
+    // (crates/lint, `text-faint`, `marks-faint`, `focus-confusable`)
     // checks the effective theme of every demo story too.
     #[test]
     fn every_theme_meets_wcag_contrast() {

@@ -4,7 +4,7 @@
 //! `growth`, `slope`, ...; see `functions.rs`) or from other values by
 //! arithmetic. A claim is a condition over values with the sentence it
 //! protects; every build checks every claim. Texts quote values in braces:
-//! `"{multiple:.1}× as many"`.
+//! `"{multiple to 1 decimal}× as many"`.
 //!
 //! Values, claims and quoted values are written in the one expression
 //! grammar; what a value may not hold (quoted text, conditions) and what a
@@ -511,6 +511,38 @@ pub fn format_quantity(q: &Quantity, spec: &FormatSpec) -> String {
     }
 }
 
+/// Why `format` cannot print `q` (the message and the help), or `None`:
+/// `as quarter` and `as year` need a month or a date; a sign, decimals,
+/// `as percent` and `as compact` need a number.
+fn format_misfit(q: &Quantity, format: &FormatSpec) -> Option<(String, String)> {
+    let period = match format.style {
+        NumberStyle::Quarter => Some("quarter"),
+        NumberStyle::Year => Some("year"),
+        _ => None,
+    };
+    let numeric = format.sign
+        || format.decimals.is_some()
+        || matches!(format.style, NumberStyle::Percent | NumberStyle::Compact);
+    let kind = match q {
+        Quantity::Number(_) => "a number".to_string(),
+        Quantity::Time(t, _) => format!("a {}", t.name()),
+        Quantity::Text(_) => "a text".to_string(),
+    };
+    match (q, period) {
+        (Quantity::Time(ColType::Month | ColType::Date, _), Some(_)) => None,
+        (_, Some(word)) => Some((
+            format!("`as {word}` needs a month or a date, and this value is {kind}"),
+            format!("drop `as {word}`"),
+        )),
+        (Quantity::Number(_), None) => None,
+        (_, None) if numeric => Some((
+            format!("this value is {kind}, and only a number takes a number format"),
+            "quote it without a format".to_string(),
+        )),
+        _ => None,
+    }
+}
+
 /// A text with its quotes resolved.
 pub struct Resolved {
     pub text: String,
@@ -539,18 +571,27 @@ pub fn resolve_text(ev: &Evaluator, s: &Text, diags: &mut Vec<Diagnostic>) -> Re
     for part in &template.parts {
         match part {
             TextPart::Literal(l) => text.push_str(l),
-            TextPart::Quote { expr, format, span } => {
+            TextPart::Quote {
+                expr,
+                format,
+                written,
+                span,
+            } => {
                 names_in(expr, &mut names);
                 match ev.eval(expr) {
                     Ok(q) => {
+                        if let Some((message, help)) = format_misfit(&q, format) {
+                            diags.push(
+                                Diagnostic::error("format", message)
+                                    .at(ev.src, span.clone(), "this format")
+                                    .help(help),
+                            );
+                            text.push('?');
+                            continue;
+                        }
                         let fig = format_quantity(&q, format);
-                        let key = ev
-                            .src
-                            .text
-                            .get(span.start + 1..span.end - 1)
-                            .unwrap_or("")
-                            .to_string();
-                        let key = key.split(':').next().unwrap_or("").trim().to_string();
+                        // the expression as written, without its format
+                        let key = ev.src.text.get(written.clone()).unwrap_or("").to_string();
                         quoted.push((key, fig.clone()));
                         text.push_str(&fig);
                     }

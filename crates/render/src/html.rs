@@ -41,20 +41,20 @@ body{{overflow:hidden}}
 .frame{{position:fixed;inset:0;display:none;align-items:center;justify-content:center;padding:2vmin}}
 .frame.current{{display:flex}}
 .frame svg{{display:block;width:100%;height:100%}}
-.count{{position:fixed;right:1.2em;bottom:0.8em;font-size:13px;color:{muted};user-select:none}}
-.notes-toggle{{position:fixed;right:1.2em;top:0.6em;z-index:2;font:inherit;font-size:13px;color:{muted};background:{page};border:1px solid {rule};border-radius:4px;padding:0.25em 0.7em;cursor:pointer}}
-.notes-toggle:focus-visible{{outline:2px solid {text};outline-offset:2px}}
-.notes{{display:none;position:fixed;left:0;right:0;bottom:0;max-height:40vh;overflow:auto;margin:0;padding:1em 1.5em;background:{panel};border-top:1px solid {rule};font-size:18px;line-height:1.45;color:{text};white-space:pre-wrap}}
-body.show-notes .frame.current .notes{{display:block}}
+.where{{position:fixed;right:1.2em;bottom:0.8em;font-size:13px;color:{muted};user-select:none}}
+.talk-switch{{position:fixed;right:1.2em;top:0.6em;z-index:2;font:inherit;font-size:13px;color:{muted};background:{page};border:1px solid {rule};border-radius:4px;padding:0.25em 0.7em;cursor:pointer}}
+.talk-switch:focus-visible{{outline:2px solid {text};outline-offset:2px}}
+.talk{{display:none;position:fixed;left:0;right:0;bottom:0;max-height:40vh;overflow:auto;margin:0;padding:1em 1.5em;background:{panel};border-top:1px solid {rule};font-size:18px;line-height:1.45;color:{text};white-space:pre-wrap}}
+body.talk-shown .frame.current .talk{{display:block}}
 @media print{{
 @page{{size:landscape;margin:8mm}}
 html,body{{height:auto;overflow:visible}}
 .frame,.frame.current{{position:static;display:block;padding:0;break-after:page;page-break-after:always;break-inside:avoid}}
 .frame:last-child{{break-after:auto;page-break-after:auto}}
 .frame svg{{width:100%;height:auto;max-height:100vh}}
-.count,.notes-toggle{{display:none}}
-.notes,body.show-notes .frame.current .notes{{display:none}}
-body.show-notes .frame .notes{{display:block;position:static;max-height:none;border:0;padding:0.5em 0;background:none;font-size:12pt}}
+.where,.talk-switch{{display:none}}
+.talk,body.talk-shown .frame.current .talk{{display:none}}
+body.talk-shown .frame .talk{{display:block;position:static;max-height:none;border:0;padding:0.5em 0;background:none;font-size:12pt}}
 }}
 "
     )
@@ -69,9 +69,9 @@ fn mix(a: Rgb, b: Rgb, share: f64) -> Rgb {
 const SCRIPT: &str = "\
 (function(){
 var frames=document.querySelectorAll('.frame');
-var count=document.getElementById('count');
-var toggle=document.getElementById('notes-toggle');
-function notes(){var on=document.body.classList.toggle('show-notes');if(toggle){toggle.setAttribute('aria-pressed',on?'true':'false');}}
+var count=document.getElementById('where');
+var toggle=document.getElementById('talk-switch');
+function notes(){var on=document.body.classList.toggle('talk-shown');if(toggle){toggle.setAttribute('aria-pressed',on?'true':'false');}}
 if(toggle){toggle.addEventListener('click',function(e){e.stopPropagation();notes();});}
 var n=frames.length,cur=0;
 function show(i,push){
@@ -95,7 +95,7 @@ default:return;}
 e.preventDefault();
 });
 document.addEventListener('click',function(e){
-if(e.target.closest&&e.target.closest('.notes,.notes-toggle'))return;
+if(e.target.closest&&e.target.closest('.talk,.talk-switch'))return;
 show(e.clientX>=window.innerWidth/2?cur+1:cur-1);
 });
 window.addEventListener('hashchange',function(){show(fromHash(),false);});
@@ -155,7 +155,7 @@ pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> Strin
         if let Some(notes) = frame.notes.as_deref().filter(|n| !n.trim().is_empty()) {
             let _ = writeln!(
                 out,
-                "<aside class=\"notes\" aria-label=\"Speaker notes\">{}</aside>",
+                "<aside class=\"talk\" aria-label=\"Speaker notes\">{}</aside>",
                 escape(notes.trim())
             );
         }
@@ -167,12 +167,12 @@ pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> Strin
         .any(|(f, _)| f.notes.as_deref().is_some_and(|n| !n.trim().is_empty()));
     if any_notes {
         out.push_str(
-            "<button type=\"button\" class=\"notes-toggle\" id=\"notes-toggle\" aria-pressed=\"false\" title=\"Show or hide the speaker notes (key n)\">Notes</button>\n",
+            "<button type=\"button\" class=\"talk-switch\" id=\"talk-switch\" aria-pressed=\"false\" title=\"Show or hide the speaker notes (key n)\">Notes</button>\n",
         );
     }
     let _ = writeln!(
         out,
-        "<div class=\"count\" id=\"count\" aria-live=\"polite\">{} / {}</div>",
+        "<div class=\"where\" id=\"where\" aria-live=\"polite\">{} / {}</div>",
         total.min(1),
         total
     );

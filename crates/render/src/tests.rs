@@ -776,7 +776,11 @@ fn deck_html_is_self_contained_and_navigable() {
     assert!(html.contains("class=\"frame current\" id=\"frame-1\""));
     assert!(html.contains("class=\"frame\" id=\"frame-2\""));
     assert!(html.contains("Pause here &amp; ask: &lt;who&gt; saw this coming?"));
-    assert_eq!(html.matches("class=\"notes\"").count(), 1);
+    assert_eq!(html.matches("<aside class=\"talk\"").count(), 1);
+    // the notes' switch, its state and the counter have names of our own
+    for ours in ["class=\"talk-switch\"", "'talk-shown'", "class=\"where\""] {
+        assert!(html.contains(ours), "{ours}");
+    }
     assert!(html.contains(">1 / 2</div>"));
     for key in [
         "ArrowRight",

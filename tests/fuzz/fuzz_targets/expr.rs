@@ -43,7 +43,7 @@ fuzz_target!(|data: &[u8]| {
          view v = t\n  | keep {expr}\n  | add z = {expr}\n\
          view w = t\n  | by c: a = sum(a)\n\
          value q = {expr}\nvalue r = sum(w.a where c = \"North\")\n\
-         frame \"{quote}\" {{\n  bars w: category c, value a\n  takeaway \"{{r:.1%}} {quote}\"\n}}\n"
+         frame \"{quote}\" {{\n  bars w: category c, value a\n  takeaway \"{{r as percent to 1 decimal}} {quote}\"\n}}\n"
     );
     let src = Source::file("fuzz.cresc", story);
     let options = crescendo_plan::Options::default();

@@ -170,8 +170,8 @@ impl Printer<'_> {
                 if s.trim {
                     self.s(" trim");
                 }
-                if s.free {
-                    self.s(" free");
+                if s.own_scales {
+                    self.s(" own scales");
                 }
             }
             FrameStmt::Unfold { order, .. } => {

@@ -130,7 +130,10 @@ impl Context {
 /// What a rule looks like to a reader of an error message, in `context`.
 fn describe(rule: Rule, context: Context) -> Option<String> {
     let name = format!("{rule:?}");
-    if let Some(kw) = name.strip_prefix("kw_") {
+    if let Some(kw) = name
+        .strip_prefix("kw_")
+        .or_else(|| name.strip_prefix("fw_"))
+    {
         return Some(format!("`{kw}`"));
     }
     let logic = matches!(
@@ -181,7 +184,8 @@ fn describe(rule: Rule, context: Context) -> Option<String> {
                 "a comparison (`>`, `<`, `=`, ... or `about`)"
             }
             Rule::tolerance => "a tolerance such as `5%` or `0.1`",
-            Rule::format_spec => "a format such as `.1`, `%`, `+.0%` or `k`",
+            Rule::quote_style => "a format such as `as percent`",
+            Rule::quote_digits => "`to N decimals`",
             Rule::eq => "`=`",
             Rule::colon => "`:`",
             Rule::open_brace => "`{`",
@@ -220,10 +224,12 @@ fn keywords_of(rule: Rule) -> Vec<String> {
         ],
         Rule::targets => &["all", "none", "focus"],
         _ => {
-            return format!("{rule:?}")
+            let name = format!("{rule:?}");
+            return name
                 .strip_prefix("kw_")
+                .or_else(|| name.strip_prefix("fw_"))
                 .map(|k| vec![k.to_string()])
-                .unwrap_or_default()
+                .unwrap_or_default();
         }
     };
     words.iter().map(|w| w.to_string()).collect()

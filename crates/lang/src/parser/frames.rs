@@ -2,6 +2,8 @@
 
 use pest::iterators::Pair;
 
+use crescendo_diag::Diagnostic;
+
 use super::{children, internal, Conv, ConvertError, Res, Rule};
 use crate::ast::*;
 
@@ -177,7 +179,7 @@ impl Conv<'_> {
             by: None,
             order: Vec::new(),
             trim: false,
-            free: false,
+            own_scales: false,
             span,
         };
         for opt in it {
@@ -189,7 +191,16 @@ impl Conv<'_> {
                     split.order = parts.into_iter().skip(1).map(|p| self.string(p)).collect()
                 }
                 Some(Rule::kw_trim) => split.trim = true,
-                Some(Rule::kw_free) => split.free = true,
+                Some(Rule::own_scales) => split.own_scales = true,
+                Some(Rule::split_free) => {
+                    let at = self.span_of(&parts[0]);
+                    self.diags.push(
+                        Diagnostic::error("syntax", "`free` is not an option of `split`")
+                            .at(self.source, at, "not an option")
+                            .help("write `own scales` to give each panel a scale of its own (the lint warns: panels on different scales look alike when they are not)"),
+                    );
+                    split.own_scales = true;
+                }
                 _ => {}
             }
         }

@@ -1,11 +1,13 @@
-//! Texts that quote values: `"now {multiple:.1}× as many"`. A text is read
-//! once, at parse time, into its value (escapes resolved) and its parts:
-//! literal pieces and quoted values (`{EXPRESSION}` or
-//! `{EXPRESSION:FORMAT}`); `{{` and `}}` are literal braces.
+//! Texts that quote values: `"now {multiple to 1 decimal}× as many"`. A
+//! text is read once, at parse time, into its value (escapes resolved) and
+//! its parts: literal pieces and quoted values (`{EXPRESSION}`, with an
+//! optional format in words: `as STYLE`, `to N decimals`); `\{` and `\}`
+//! are literal braces.
 
 use std::sync::Arc;
 
 use crescendo_diag::{Diagnostic, Source};
+use pest::iterators::Pair;
 use pest::Parser;
 
 use super::errors::{syntax_error, Context};
@@ -39,16 +41,17 @@ pub(super) fn text(
                 value.push(decoded);
             }
             '{' | '}' if chars.peek().is_some_and(|(_, n)| *n == c) => {
+                // a doubled brace is no escape here: say which one is
                 chars.next();
+                diags.push(doubled_brace(source, start + i, c));
                 lit.push(c);
-                value.push(c);
                 value.push(c);
             }
             '}' => {
                 diags.push(
                     Diagnostic::error("template", "a `}` without its `{`")
                         .at(source, start + i..start + i + 1, "unmatched")
-                        .help("write `}}` for a literal brace"),
+                        .help("write `\\}` for a literal brace"),
                 );
                 value.push(c);
             }
@@ -57,7 +60,7 @@ pub(super) fn text(
                     diags.push(
                         Diagnostic::error("template", "a `{` without its `}`")
                             .at(source, start + i..start + i + 1, "unmatched")
-                            .help("close the quoted value with `}`, or write `{{` for a literal brace"),
+                            .help("close the quoted value with `}`, or write `\\{` for a literal brace"),
                     );
                     value.push_str(&super::unescape(&raw[i..]));
                     break;
@@ -66,18 +69,26 @@ pub(super) fn text(
                 while chars.peek().is_some_and(|(j, _)| *j <= close) {
                     chars.next();
                 }
-                value.push_str(&raw[i..=close]);
                 let body = &raw[i + 1..close];
-                if let Some((expr, format)) = quote(source, body, start + i + 1, diags) {
-                    if !lit.is_empty() {
-                        parts.push(TextPart::Literal(std::mem::take(&mut lit)));
-                    }
-                    parts.push(TextPart::Quote {
-                        expr,
-                        format,
-                        span: start + i..start + close + 1,
-                    });
+                let Some((expr, format, written)) = quote(source, body, start + i + 1, diags)
+                else {
+                    value.push_str(&raw[i..=close]);
+                    continue;
+                };
+                // the value keeps what is quoted, not how it is formatted
+                // (a frame's file name is made from its headline's value)
+                value.push('{');
+                value.push_str(source.text.get(written.clone()).unwrap_or(""));
+                value.push('}');
+                if !lit.is_empty() {
+                    parts.push(TextPart::Literal(std::mem::take(&mut lit)));
                 }
+                parts.push(TextPart::Quote {
+                    expr,
+                    format,
+                    span: start + i..start + close + 1,
+                    written,
+                });
             }
             _ => {
                 lit.push(c);
@@ -95,15 +106,25 @@ pub(super) fn text(
     }
 }
 
-/// The expression and format of a quoted value whose text between the
-/// braces is `body`, at `body_start` in the story; `None` after reporting
-/// what is wrong with it.
+/// The error for `{{` or `}}` at `at` (`brace` is the doubled character).
+fn doubled_brace(source: &Arc<Source>, at: usize, brace: char) -> Diagnostic {
+    Diagnostic::error(
+        "template",
+        format!("`{brace}{brace}` is not a literal brace"),
+    )
+    .at(source, at..at + 2, "a doubled brace")
+    .help(format!("write `\\{brace}` for a literal `{brace}`"))
+}
+
+/// The expression, format and expression span of a quoted value whose text
+/// between the braces is `body`, at `body_start` in the story; `None`
+/// after reporting what is wrong with it.
 fn quote(
     source: &Arc<Source>,
     body: &str,
     body_start: usize,
     diags: &mut Vec<Diagnostic>,
-) -> Option<(Expr, FormatSpec)> {
+) -> Option<(Expr, FormatSpec, Span)> {
     if body.contains('\\') || body.contains('"') {
         diags.push(
             Diagnostic::error("template", "quoted strings cannot appear inside `{...}`")
@@ -116,6 +137,10 @@ fn quote(
         );
         return None;
     }
+    if let Some(colon) = body.find(':') {
+        diags.push(colon_format(source, body, body_start, colon));
+        return None;
+    }
     // the same cap as for the rest of the story (whose check skips strings)
     if let Some(d) = nesting::check(source, body_start..body_start + body.len()) {
         diags.push(d);
@@ -126,83 +151,179 @@ fn quote(
         Err(err) => {
             let at = location(&err.location);
             let mut d = syntax_error(source, body_start, at, &err.variant, Context::Value);
-            d.message = format!("in a quoted value: {}", d.message);
+            // inside braces the end of the text read is the closing brace
+            let message = d
+                .message
+                .replacen("unknown keyword", "unknown format word", 1)
+                .replace("the end of the file", "`}`");
+            d.message = format!("in a quoted value: {message}");
             diags.push(d.note(
-                "inside braces write a value name, arithmetic, and an optional format such as `:.1` or `:+.0%`",
+                "inside braces write a value name or arithmetic, then a format in words if \
+                 you want one (`as percent`, `to 1 decimal`); `\\{` writes a literal brace",
             ));
             return None;
         }
     };
     let mut conv = Conv::new(source, body_start);
     let mut expr = None;
+    let mut written = body_start..body_start;
     let mut format = FormatSpec::default();
+    let mut digits_at = 0..0;
+    let mut ok = true;
     for p in children(q) {
         match p.as_rule() {
-            Rule::expr => match conv.expr(p) {
-                Ok(e) => expr = Some(e),
-                Err(e) => diags.push(e.into_diag(source)),
-            },
-            Rule::format_spec => {
-                let at = body_start + p.as_span().start();
-                match format_spec(p.as_str()) {
-                    Ok(f) => format = f,
-                    Err(digits) => {
-                        let start = at + digits.start;
-                        diags.push(too_many_decimals(source, start..at + digits.end));
-                        return None;
-                    }
+            Rule::expr => {
+                // without the blank space pest counts into the rule
+                let start = conv.span_of(&p).start;
+                written = start..start + p.as_str().trim_end().len();
+                match conv.expr(p) {
+                    Ok(e) => expr = Some(e),
+                    Err(e) => diags.push(e.into_diag(source)),
                 }
+            }
+            Rule::quote_style => ok &= style(&conv, p, &mut format, diags),
+            Rule::quote_digits => {
+                let start = conv.span_of(&p).start;
+                digits_at = start..start + p.as_str().trim_end().len();
+                ok &= digits(&conv, p, &mut format, diags);
             }
             _ => {}
         }
     }
     diags.append(&mut conv.diags);
-    Some((expr?, format))
+    if ok && format.decimals.is_some() && is_period(format.style) {
+        diags.push(
+            Diagnostic::error("format", "a quarter or a year has no decimals")
+                .at(source, digits_at, "no decimals here")
+                .help("drop `to ... decimals`"),
+        );
+        return None;
+    }
+    Some((expr?, format, written)).filter(|_| ok)
 }
 
-/// The error for a `.N` asking for more than [`MAX_DECIMALS`] decimals
-/// (its digits at `span`).
-fn too_many_decimals(source: &Arc<Source>, span: Span) -> Diagnostic {
-    let digits = source.text.get(span.clone()).unwrap_or("");
-    Diagnostic::error(
-        "format",
-        format!("a quoted value shows at most {MAX_DECIMALS} decimals, not {digits}"),
-    )
-    .at(source, span, "too many decimals")
-    .help(format!("write `.{MAX_DECIMALS}` or fewer"))
+fn is_period(style: NumberStyle) -> bool {
+    matches!(style, NumberStyle::Quarter | NumberStyle::Year)
 }
 
-/// A format as written after the `:` of a quoted value; `Err` with the
-/// byte range of the digits of a `.N` above [`MAX_DECIMALS`] (or too large
-/// to read).
-fn format_spec(spec: &str) -> Result<FormatSpec, std::ops::Range<usize>> {
-    let mut f = FormatSpec {
-        sign: spec.starts_with('+'),
-        ..FormatSpec::default()
+/// Read `as STYLE` into `format`; false after reporting `signed` on a
+/// quarter or a year.
+fn style(
+    conv: &Conv,
+    pair: Pair<Rule>,
+    format: &mut FormatSpec,
+    diags: &mut Vec<Diagnostic>,
+) -> bool {
+    let mut signed = None;
+    for w in children(pair) {
+        match w.as_rule() {
+            Rule::fw_signed => signed = Some(conv.span_of(&w)),
+            Rule::fw_percent => format.style = NumberStyle::Percent,
+            Rule::fw_compact => format.style = NumberStyle::Compact,
+            Rule::fw_quarter => format.style = NumberStyle::Quarter,
+            Rule::fw_year => format.style = NumberStyle::Year,
+            _ => {}
+        }
+    }
+    format.sign = signed.is_some();
+    match signed {
+        Some(at) if is_period(format.style) => {
+            let word = if format.style == NumberStyle::Quarter {
+                "quarter"
+            } else {
+                "year"
+            };
+            diags.push(
+                Diagnostic::error("format", format!("a {word} has no sign"))
+                    .at(conv.source, at, "no sign for a period")
+                    .help(format!("write `as {word}`")),
+            );
+            false
+        }
+        _ => true,
+    }
+}
+
+/// Read `to N decimals` into `format`; false after reporting too many.
+fn digits(
+    conv: &Conv,
+    pair: Pair<Rule>,
+    format: &mut FormatSpec,
+    diags: &mut Vec<Diagnostic>,
+) -> bool {
+    let Some(n) = children(pair).find(|p| p.as_rule() == Rule::integer) else {
+        return false;
     };
+    match n.as_str().parse::<usize>() {
+        Ok(d) if d <= MAX_DECIMALS => {
+            format.decimals = Some(d);
+            true
+        }
+        _ => {
+            diags.push(
+                Diagnostic::error(
+                    "format",
+                    format!(
+                        "a quoted value shows at most {MAX_DECIMALS} decimals, not {}",
+                        n.as_str()
+                    ),
+                )
+                .at(conv.source, conv.span_of(&n), "too many decimals")
+                .help(format!("write `to {MAX_DECIMALS} decimals` or fewer")),
+            );
+            false
+        }
+    }
+}
+
+/// The error for a format written after a colon (`{share:.1%}`), caret on
+/// the colon and what follows it; its help spells the same format in words
+/// when the characters read as one.
+fn colon_format(source: &Arc<Source>, body: &str, body_start: usize, colon: usize) -> Diagnostic {
+    let expr = body[..colon].trim();
+    let spec = body[colon + 1..].trim();
+    let end = body_start + body.trim_end().len();
+    let d = Diagnostic::error("format", "a quoted value's format is written in words").at(
+        source,
+        body_start + colon..end,
+        "not a format",
+    );
+    match symbols(spec) {
+        Some(f) => d.help(format!("write `{{{expr}{}}}`", f.words())),
+        None => d.help(format!(
+            "write the format after the value: `{{{expr} as percent}}`, `{{{expr} to 1 decimal}}`, \
+             `{{{expr} as signed percent to 0 decimals}}`, `{{{expr} as compact}}`, `{{{expr} as quarter}}`"
+        )),
+    }
+}
+
+/// The format meant by characters after a colon (`+.1%`, `.0`, `k`,
+/// `quarter`), to suggest the same format in words; `None` when they mean
+/// none.
+fn symbols(spec: &str) -> Option<FormatSpec> {
+    let mut f = FormatSpec::default();
     match spec {
         "quarter" => f.style = NumberStyle::Quarter,
         "year" => f.style = NumberStyle::Year,
-        _ => {}
-    }
-    if f.style != NumberStyle::Plain {
-        return Ok(f);
-    }
-    let rest = spec.trim_start_matches('+');
-    let (digits, style) = match rest.strip_suffix('%') {
-        Some(d) => (d, NumberStyle::Percent),
-        None => match rest.strip_suffix('k') {
-            Some(d) => (d, NumberStyle::Compact),
-            None => (rest, NumberStyle::Plain),
-        },
-    };
-    f.style = style;
-    if let Some(d) = digits.strip_prefix('.') {
-        let start = spec.len() - rest.len() + 1;
-        match d.parse::<usize>() {
-            Ok(n) if n <= MAX_DECIMALS => f.decimals = Some(n),
-            _ => return Err(start..start + d.len()),
+        _ => {
+            let rest = spec.strip_prefix('+').unwrap_or(spec);
+            f.sign = rest.len() < spec.len();
+            let (digits, style) = match rest.strip_suffix('%') {
+                Some(d) => (d, NumberStyle::Percent),
+                None => match rest.strip_suffix('k') {
+                    Some(d) => (d, NumberStyle::Compact),
+                    None => (rest, NumberStyle::Plain),
+                },
+            };
+            f.style = style;
+            if !digits.is_empty() {
+                let n = digits.strip_prefix('.')?;
+                if n.is_empty() || !n.bytes().all(|b| b.is_ascii_digit()) {
+                    return None;
+                }
+                f.decimals = Some(n.parse().ok()?);
+            }
         }
     }
-    Ok(f)
+    Some(f)
 }

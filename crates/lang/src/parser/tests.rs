@@ -447,15 +447,22 @@ fn template_of(text: &str) -> Result<Template, Vec<Diagnostic>> {
 
 #[test]
 fn templates_split_text_and_quotes() {
-    let text = r#"story "Now {multiple:.1}× the riders ({share:+.0%}), {{braces}} \"q\" {n}""#;
+    let text = r#"story "Now {multiple to 1 decimal}× the riders ({share as signed percent to 0 decimals}), \{braces\} \"q\" {n}""#;
     let t = template_of(text).unwrap();
     assert_eq!(t.parts.len(), 6, "{t:#?}");
     assert_eq!(t.parts[0], TextPart::Literal("Now ".into()));
-    let TextPart::Quote { format, span, .. } = &t.parts[1] else {
+    let TextPart::Quote {
+        format,
+        span,
+        written,
+        ..
+    } = &t.parts[1]
+    else {
         panic!()
     };
     assert_eq!(format.decimals, Some(1));
-    assert_eq!(&text[span.clone()], "{multiple:.1}");
+    assert_eq!(&text[span.clone()], "{multiple to 1 decimal}");
+    assert_eq!(&text[written.clone()], "multiple");
     let TextPart::Quote { format, .. } = &t.parts[3] else {
         panic!()
     };
@@ -470,6 +477,60 @@ fn templates_split_text_and_quotes() {
     assert_eq!(t.parts[4], TextPart::Literal("), {braces} \"q\" ".into()));
     assert!(!t.is_plain());
     assert!(template_of(r#"story "plain""#).unwrap().is_plain());
+    assert!(template_of(r#"story "a \{literal\} pair""#)
+        .unwrap()
+        .is_plain());
+}
+
+/// Every format in words, and what it reads as (the table of the language
+/// reference).
+#[test]
+fn formats_in_words() {
+    use NumberStyle::*;
+    let spec = |sign, decimals, style| FormatSpec {
+        sign,
+        decimals,
+        style,
+    };
+    for (written, want) in [
+        ("{x}", spec(false, None, Plain)),
+        ("{x to 1 decimal}", spec(false, Some(1), Plain)),
+        ("{x to 2 decimals}", spec(false, Some(2), Plain)),
+        ("{x to 0 decimals}", spec(false, Some(0), Plain)),
+        ("{x to 1 decimals}", spec(false, Some(1), Plain)),
+        ("{x as number}", spec(false, None, Plain)),
+        ("{x as percent}", spec(false, None, Percent)),
+        (
+            "{x as percent to 0 decimals}",
+            spec(false, Some(0), Percent),
+        ),
+        ("{x as signed percent}", spec(true, None, Percent)),
+        ("{x as signed number}", spec(true, None, Plain)),
+        ("{x as signed}", spec(true, None, Plain)),
+        ("{x as signed to 2 decimals}", spec(true, Some(2), Plain)),
+        ("{x as compact}", spec(false, None, Compact)),
+        ("{x as compact to 1 decimal}", spec(false, Some(1), Compact)),
+        ("{x as signed compact}", spec(true, None, Compact)),
+        ("{x as quarter}", spec(false, None, Quarter)),
+        ("{x as year}", spec(false, None, Year)),
+        ("{ (a + b) / 2   as  percent }", spec(false, None, Percent)),
+    ] {
+        let text = format!("story \"{written}\"");
+        let t = template_of(&text).unwrap_or_else(|e| panic!("{written}: {e:?}"));
+        let [TextPart::Quote { format, .. }] = &t.parts[..] else {
+            panic!("{written}: {t:#?}")
+        };
+        assert_eq!(*format, want, "{written}");
+        // and the words the format prints back are read as the same format
+        if !written.starts_with("{ ") {
+            let again = format!("story \"{{x{}}}\"", format.words());
+            let t = template_of(&again).unwrap();
+            let [TextPart::Quote { format: f2, .. }] = &t.parts[..] else {
+                panic!()
+            };
+            assert_eq!(f2, format, "{again}");
+        }
+    }
 }
 
 #[test]
@@ -480,13 +541,117 @@ fn template_errors_are_located() {
     assert_eq!((line, col), (1, 15));
     let errs = template_of(r#"story "x } y""#).unwrap_err();
     assert_eq!(errs[0].location().unwrap().2, 10);
+    assert_eq!(
+        errs[0].help.as_deref(),
+        Some("write `\\}` for a literal brace")
+    );
     let errs = template_of(r#"story "x { y""#).unwrap_err();
     assert!(errs[0].message.contains("without its `}`"));
-    let errs = template_of(r#"story "{x:q}""#).unwrap_err();
+    assert!(errs[0].help.as_deref().unwrap().contains("`\\{`"));
+    let errs = template_of(r#"story "{x as percentage}""#).unwrap_err();
+    assert_eq!(errs.len(), 1, "{errs:?}");
     assert!(
-        errs[0].message.contains("quoted value"),
+        errs[0]
+            .message
+            .starts_with("in a quoted value: unknown format word `percentage`"),
         "{}",
         errs[0].message
+    );
+    assert_eq!(errs[0].location().unwrap().2, 14);
+    assert_eq!(errs[0].help.as_deref(), Some("did you mean `percent`?"));
+}
+
+/// Formats that read but mean nothing: a sign or decimals on a period.
+#[test]
+fn periods_take_neither_sign_nor_decimals() {
+    for (text, at, message, help) in [
+        (
+            r#"story "{m as signed quarter}""#,
+            "signed",
+            "a quarter has no sign",
+            "write `as quarter`",
+        ),
+        (
+            r#"story "{m as signed year}""#,
+            "signed",
+            "a year has no sign",
+            "write `as year`",
+        ),
+        (
+            r#"story "{m as year to 1 decimal}""#,
+            "to 1 decimal",
+            "a quarter or a year has no decimals",
+            "drop `to ... decimals`",
+        ),
+    ] {
+        let errs = template_of(text).unwrap_err();
+        assert_eq!(errs.len(), 1, "{errs:?}");
+        assert_eq!(errs[0].message, message);
+        assert_eq!(errs[0].help.as_deref(), Some(help));
+        let start = text.find(at).unwrap();
+        let Some(crescendo_diag::Located { span, .. }) = &errs[0].primary else {
+            panic!("{:?}", errs[0])
+        };
+        assert_eq!(span.clone(), start..start + at.len(), "{text}");
+    }
+}
+
+/// A format written with symbols after a colon, and doubled braces, are
+/// errors at the characters, whose help spells the same thing in words.
+#[test]
+fn symbol_formats_and_doubled_braces_say_what_to_write() {
+    for (text, at, help) in [
+        (r#"story "{lead:.1}""#, ":.1", "write `{lead to 1 decimal}`"),
+        (r#"story "{share:%}""#, ":%", "write `{share as percent}`"),
+        (
+            r#"story "{change:+.1%}""#,
+            ":+.1%",
+            "write `{change as signed percent to 1 decimal}`",
+        ),
+        (
+            r#"story "{change:+.0%}""#,
+            ":+.0%",
+            "write `{change as signed percent to 0 decimals}`",
+        ),
+        (r#"story "{visits:k}""#, ":k", "write `{visits as compact}`"),
+        (
+            r#"story "{m:quarter}""#,
+            ":quarter",
+            "write `{m as quarter}`",
+        ),
+        (r#"story "{m:year}""#, ":year", "write `{m as year}`"),
+        (
+            r#"story "{a / b:+}""#,
+            ":+",
+            "write `{a / b as signed number}`",
+        ),
+        (r#"story "{x : .2 }""#, ": .2", "write `{x to 2 decimals}`"),
+        (r#"story "a {{ b""#, "{{", "write `\\{` for a literal `{`"),
+        (r#"story "a }} b""#, "}}", "write `\\}` for a literal `}`"),
+    ] {
+        let errs = template_of(text).unwrap_err();
+        assert_eq!(errs.len(), 1, "{text}: {errs:?}");
+        assert_eq!(errs[0].help.as_deref(), Some(help), "{text}");
+        let start = text.find(at).unwrap();
+        let Some(crescendo_diag::Located { span, .. }) = &errs[0].primary else {
+            panic!("{:?}", errs[0])
+        };
+        assert_eq!(span.clone(), start..start + at.len(), "{text}");
+    }
+    // characters that mean no format still get the words to write
+    let errs = template_of(r#"story "{x:q}""#).unwrap_err();
+    assert_eq!(
+        errs[0].message,
+        "a quoted value's format is written in words"
+    );
+    assert!(
+        errs[0]
+            .help
+            .as_deref()
+            .unwrap()
+            .contains("`{x as percent}`"),
+        "{:?}",
+        errs[0].help
     );
 }
 
@@ -611,12 +776,14 @@ fn quoted_values_nest() {
     assert!(diags.is_empty(), "{diags:?}");
 }
 
-/// `{x:.N}` with N above 12 was silently capped at 12, and an N too large
-/// to read silently fell back to the default format: both are errors at
-/// the digits.
+/// `to N decimals` with N above 12, or too large to read, is an error at
+/// the digits (N above 12 was once silently capped).
 #[test]
 fn quoted_values_ask_for_at_most_twelve_decimals() {
-    let t = template_of(r#"story "{x:.12} {x:+.0%} {x:.3k}""#).unwrap();
+    let t = template_of(
+        r#"story "{x to 12 decimals} {x as signed percent to 0 decimals} {x as compact to 3 decimals}""#,
+    )
+    .unwrap();
     let decimals: Vec<Option<usize>> = t
         .parts
         .iter()
@@ -627,9 +794,9 @@ fn quoted_values_ask_for_at_most_twelve_decimals() {
         .collect();
     assert_eq!(decimals, [Some(12), Some(0), Some(3)]);
     for (text, digits) in [
-        (r#"story "a {x:.13}""#, "13"),
+        (r#"story "a {x to 13 decimals}""#, "13"),
         (
-            r#"story "a {x:+.99999999999999999999999%}""#,
+            r#"story "a {x as signed percent to 99999999999999999999999 decimals}""#,
             "99999999999999999999999",
         ),
     ] {

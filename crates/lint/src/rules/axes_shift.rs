@@ -11,15 +11,25 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "an axis moves between frames of one build-up sequence",
     doc: Doc {
-        flags: "A `y range` given part-way through a sequence of frames, so the measure's axis\n\
-                rescales from one frame to the next while the chart stays the same.",
-        why: "Across a build-up the audience compares each frame with the one before. If the\n\
-              scale moves, unchanged data appears to jump, and real changes are hidden by the\n\
-              rescaling (common practice: fix the axes over the whole sequence; crescendo\n\
-              computes them over all of its frames for that reason).",
-        example: "frame \"Context\" { line monthly: x month, y riders }\nframe \"Zoom in\" { y range 4000 to 6000 }",
-        instead: "Give the range in the frame that starts the sequence, or start a new sequence\n\
-                  with its own chart statement, so the change of scale is visible as a new chart.",
+        before: concat!(
+            "frame \"Context\" {\n",
+            "  line by_area: x month, y cases, series area\n",
+            "}\n",
+            "frame \"Zoomed\" {\n",
+            "  y range 0 to 300   # the same chart, a new scale",
+        ),
+        after: concat!(
+            "frame \"Context\" {\n",
+            "  line by_area: x month, y cases, series area\n",
+            "  y range 0 to 300   # in the frame that starts the sequence\n",
+            "}",
+        ),
+        why:
+            "Across a build-up the audience compares each frame with the one before. If the scale\n\
+              moves part-way through, unchanged data appears to jump, and real changes are hidden\n\
+              by the rescaling (common practice: fix the axes over the whole sequence; crescendo\n\
+              computes them over all of its frames for that reason). To show a new scale, start a\n\
+              new sequence with its own chart statement, so the change is visible as a new chart.",
     },
     check,
 };

@@ -11,14 +11,19 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "an axis of plain numbers has no title",
     doc: Doc {
-        flags: "A line chart whose x axis runs over plain numbers (not dates, months or years)\n\
-                and has no `x title`.",
-        why: "Dates explain themselves; a row of bare numbers does not. Without a title the\n\
-              audience cannot tell whether 10, 20, 30 are ages, kilometres or percent, and\n\
-              the presenter ends up explaining the axis instead of the point (common\n\
-              practice: title every axis that is not self-evident).",
-        example: "frame \"Cost rises with distance\" {\n  line by_distance: x km, y cost\n}",
-        instead: "Add `x title \"Distance from depot (km)\"`, naming the quantity and its unit.",
+        before: concat!(
+            "line d: x km, y cost   # x runs over bare numbers\n",
+            "y title \"Cost per delivery\"",
+        ),
+        after: concat!(
+            "line d: x km, y cost\n",
+            "y title \"Cost per delivery\"\n",
+            "x title \"Distance from the depot (km)\"   # the quantity and its unit",
+        ),
+        why: "Dates, months and years explain themselves; a row of bare numbers does not. Without\n\
+              a title the audience cannot tell whether 10, 20, 30 are ages, kilometres or percent,\n\
+              and the presenter ends up explaining the axis instead of the point (common practice:\n\
+              title every axis that is not self-evident).",
     },
     check,
 };

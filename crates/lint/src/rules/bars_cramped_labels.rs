@@ -11,14 +11,15 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "vertical bars with category names too long to sit under them",
     doc: Doc {
-        flags: "Bars forced `vertical` when their category names are long or many, so the\n\
-                names must wrap, shrink or be cut under narrow bars.",
-        why: "Long names under narrow bars get broken over lines or cut, and readers tilt\n\
-              their heads to match names to bars. Horizontal bars give every name a line of\n\
-              its own, left-aligned and level (common practice; crescendo never rotates text).",
-        example: "bars by_programme: category programme, value budget, vertical",
-        instead: "Remove `vertical` (crescendo turns such bars horizontal by itself), or shorten\n\
-                  the category names in the view.",
+        before: "bars t: category team, value tickets, vertical   # long team names",
+        after: concat!(
+            "bars t: category team, value tickets, horizontal\n",
+            "# (without either word such bars turn horizontal by themselves)",
+        ),
+        why: "Long or many names under narrow vertical bars get broken over lines or cut, and\n\
+              readers tilt their heads to match names to bars. Horizontal bars give every name a\n\
+              line of its own, left-aligned and level (common practice; crescendo never rotates\n\
+              text).",
     },
     check,
 };

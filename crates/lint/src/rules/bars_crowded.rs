@@ -11,14 +11,17 @@ const MAX_BARS: usize = 15;
 pub static RULE: Rule = Rule {
     name: "bars-crowded",
     severity: Severity::Advice,
-    summary: "more bars than the audience can compare",
+    summary: "more than 15 bars, more than the audience can compare",
     doc: Doc {
-        flags: "A bar chart showing more than 15 bars.",
-        why: "Past a dozen or so bars the audience cannot take in the ranking, labels shrink,\n\
-              and the one comparison that matters is lost among the rest (common practice).",
-        example: "bars by_product: category product, value sales   # 40 products",
-        instead: "Keep the largest with `| top 10 product by sales rest \"Other products\"`, or\n\
-                  split the story into a few frames.",
+        before: "bars p: category product, value sales   # 20 products",
+        after: concat!(
+            "view top10 = p | top 10 product by sales rest \"Other products\"\n",
+            "bars top10: category product, value sales",
+        ),
+        why:
+            "Past a dozen or so bars the audience cannot take in the ranking, labels shrink, and\n\
+              the one comparison that matters is lost among the rest (common practice). Keep the\n\
+              largest and fold the rest into one bar, or spread the categories over a few frames.",
     },
     check,
 };

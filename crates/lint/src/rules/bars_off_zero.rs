@@ -11,15 +11,22 @@ pub static RULE: Rule = Rule {
     severity: Severity::Error,
     summary: "a bar chart's value axis does not start at zero",
     doc: Doc {
-        flags: "Bars whose value axis leaves out zero, for example after `y range 50 to 100`.",
+        before: concat!(
+            "bars t: category team, value tickets\n",
+            "y title \"Open tickets\"\n",
+            "y range 50 to 600",
+        ),
+        after: concat!(
+            "bars t: category team, value tickets\n",
+            "y title \"Open tickets\"\n",
+            "# no range: the bars start at zero (or show the gaps as `dots`, which need no zero)",
+        ),
         why: "A bar encodes its value by its length. Cut the axis and the lengths no longer\n\
-              compare: a bar for 60 next to one for 90 looks four times shorter instead of a\n\
-              third shorter. Length is judged accurately only from a common baseline\n\
-              (Cleveland & McGill 1984, position and length judgements), and a truncated bar\n\
-              axis is one of the best-documented ways a chart misleads (common practice).",
-        example: "frame \"Scores\" {\n  bars results: category school, value score\n  y range 50 to 100\n}",
-        instead: "Drop the range so the bars start at zero, or show the differences as a dot plot\n\
-                  or a line, whose positions do not need a zero baseline.",
+              compare: with the axis starting at 50, a bar for 60 next to one for 90 looks four\n\
+              times shorter instead of a third shorter. Length is judged accurately only from a\n\
+              common baseline (Cleveland & McGill 1984, position and length judgements), and a\n\
+              truncated bar axis is one of the best-documented ways a chart misleads (common\n\
+              practice).",
     },
     check,
 };

@@ -11,16 +11,16 @@ pub static RULE: Rule = Rule {
     severity: Severity::Advice,
     summary: "bars over unordered categories are not sorted by value",
     doc: Doc {
-        flags: "Bars over text categories drawn in the data's order (`ordered`) when that\n\
-                order is not by value.",
-        why: "With categories that have no natural order, sorting by value turns a search\n\
-              into a glance: the ranking, the largest and the smallest are read off\n\
-              directly, and neighbours are the ones worth comparing (common practice).\n\
-              Keep the data order only when it means something (a scale, a sequence).",
-        example: "bars by_team: category team, value tickets, ordered",
-        instead:
-            "Drop `ordered` so the bars are sorted largest first, or allow the rule with the\n\
-                  reason the order matters.",
+        before: "bars t: category team, value tickets, ordered   # kept in the file's order",
+        after: concat!(
+            "bars t: category team, value tickets   # largest first\n",
+            "# or keep `ordered` and allow the rule, saying why that order matters",
+        ),
+        why: "With categories that have no natural order, sorting by value turns a search into a\n\
+              glance: the ranking, the largest and the smallest are read off directly, and\n\
+              neighbours are the ones worth comparing (common practice). Bars drawn in the data's\n\
+              order make the audience hunt for the ranking; keep that order only when it means\n\
+              something (a scale, a sequence).",
     },
     check,
 };

@@ -35,16 +35,14 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "a text tells the audience which colour means what",
     doc: Doc {
-        flags: "A headline, takeaway or note that identifies data by colour, such as \"the\n\
-                orange line\" or \"shown in blue\": a colour key written into the words.",
-        why: "A colour key makes the audience look back and forth between the key and the\n\
-              marks; labels beside the data remove that search (common practice: direct\n\
-              labels instead of legends). Colour words also break: the accent changes with\n\
-              the theme (light, dark and print themes differ) and with a house style, and\n\
-              readers with a colour-vision deficiency may not see the colour named.",
-        example: "takeaway \"The orange line pulled away after April\"",
-        instead: "Name the series instead (\"Westbrook pulled away after April\"); its direct\n\
-                  label and the spotlight already tie the words to the line.",
+        before: "notes \"The orange line pulled away; grey lines are the other areas.\"",
+        after: "notes \"North pulled away from South and East.\"   # its label and spotlight tie it to the line",
+        why: "A headline, takeaway or note that identifies data by colour (\"the orange line\",\n\
+              \"shown in blue\") is a colour key written into the words: the audience looks back and\n\
+              forth between words and marks, where labels beside the data remove that search\n\
+              (common practice: direct labels instead of legends). Colour words also break: the\n\
+              accent changes with the theme (light, dark and print themes differ) and with a house\n\
+              style, and readers with a colour-vision deficiency may not see the colour named.",
     },
     check,
 };

@@ -15,20 +15,19 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "the spotlight colour is hard to tell from the grey under colour-vision deficiency",
     doc: Doc {
-        flags: "An accent colour whose difference from the context grey falls below\n\
-                CIEDE2000 12 for normal vision or under simulated protanopia, deuteranopia\n\
-                or tritanopia.",
-        why: "Emphasis works only if every viewer sees the focus pop out. About 1 in 12 men\n\
-              and 1 in 200 women have a red-green colour-vision deficiency (common\n\
-              practice, from memory). The check simulates dichromacy with Machado, Oliveira\n\
-              & Fernandes (2009) at full severity on linear RGB and compares colours with\n\
-              CIEDE2000 (Sharma, Wu & Dalal 2005). A difference of about 1 is just\n\
-              noticeable for large patches side by side; thin lines and small marks need\n\
-              several times more (Szafir 2018 found size-dependent thresholds, from memory),\n\
-              so 12 is chosen to keep the focus obvious, not merely noticeable.",
-        example: "accent \"#9A7A9A\"   # a dusty mauve: close to the grey for deuteranopes",
-        instead: "Pick an accent that differs from grey in lightness as well as hue (a dark\n\
-                  blue or a deep orange), so it stands out without relying on red-green.",
+        before: "accent \"#9A7A9A\"   # a dusty mauve: close to the grey for deuteranopes",
+        after:
+            "accent \"#1D5FA8\"   # a deep blue: apart from the grey in lightness as well as hue",
+        why:
+            "Emphasis works only if every viewer sees the focus pop out. About 1 in 12 men and 1\n\
+              in 200 women have a red-green colour-vision deficiency (common practice, from\n\
+              memory). The rule simulates protanopia, deuteranopia and tritanopia with Machado,\n\
+              Oliveira & Fernandes (2009) at full severity on linear RGB and compares the accent\n\
+              with the context grey by CIEDE2000 (Sharma, Wu & Dalal 2005), flagging a difference\n\
+              below 12 under normal vision or any of the three. A difference of about 1 is just\n\
+              noticeable for large patches side by side; thin lines and small marks need several\n\
+              times more (Szafir 2018 found size-dependent thresholds, from memory), so 12 is\n\
+              chosen to keep the focus obvious, not merely noticeable.",
     },
     check,
 };

@@ -10,15 +10,16 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "a frame hides every series or bar",
     doc: Doc {
-        flags: "A frame whose chart shows nothing because every series or bar is hidden.",
-        why: "An empty plot with axes but no data puzzles the audience; if the frame sets up\n\
-              the axes before the data arrives, say so, otherwise it is a slip in the\n\
-              build-up (common practice: every frame adds something to look at).",
-        example:
-            "frame \"Riders\" {\n  line monthly: x month, y riders, series route\n  hide all\n}",
-        instead:
-            "Show the first series in this frame (`show \"...\"`), or allow the rule with the\n\
-                  reason the empty axes are intended.",
+        before: "line by_area: x month, y cases, series area\nhide all",
+        after: concat!(
+            "line by_area: x month, y cases, series area\n",
+            "hide all\n",
+            "show \"North\"   # or allow the rule, saying the empty axes are meant",
+        ),
+        why:
+            "An empty plot with axes but no data puzzles the audience: it looks like a fault. If\n\
+              the frame sets up the axes before the data arrives, say so; otherwise it is a slip\n\
+              in the build-up (common practice: every frame adds something to look at).",
     },
     check,
 };

@@ -12,18 +12,17 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "gridlines as strong as the data they support",
     doc: Doc {
-        flags: "A frame with `gridlines` drawn in a grid colour whose contrast against the\n\
-                page is at least that of the context grey: the gridlines are as heavy as the\n\
-                grey lines and bars of the data.",
-        why: "Gridlines are supporting lines: they help the eye read values off the axis and\n\
-              must recede behind the data (common practice: no gridlines by default, light\n\
-              ones on request). Drawn as dark as the context grey, they compete with the\n\
-              marks, add clutter and blur which lines are data and which are scaffolding.",
-        example:
-            "style \"house.toml\"   # its [greys] set grid = \"#8A8A8A\", as dark as the data\n\
-                  gridlines            # in a frame of that story",
-        instead: "Give the house style a light grid grey (the built-in themes use about #ECECEC\n\
-                  on a white page), or leave `gridlines` out and label the values that matter.",
+        before: concat!(
+            "style \"heavy.toml\"   # its [greys] set grid = \"#8A8A8A\", as dark as the data\n",
+            "...\n",
+            "  gridlines",
+        ),
+        after: "  gridlines   # in the theme's light grid grey",
+        why: "Gridlines are supporting lines: they help the eye read values off the axis and must\n\
+              recede behind the data (common practice: no gridlines by default, light ones on\n\
+              request). In a grid colour whose contrast against the page reaches that of the\n\
+              context grey, they compete with the marks, add clutter and blur which lines are data\n\
+              and which are scaffolding. The built-in themes use about #ECECEC on a white page.",
     },
     check,
 };

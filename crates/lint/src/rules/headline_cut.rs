@@ -11,13 +11,12 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "a headline does not fit in two lines and is cut short",
     doc: Doc {
-        flags: "A headline that needs more than two lines at headline size, so the frame shows\n\
-                it cut off with an ellipsis.",
-        why: "The headline is the sentence the audience reads first, often the only one. Cut,\n\
-              it loses its verb or its number; long, it pushes the chart down and competes with\n\
-              it (common practice: one short sentence that states the point).",
-        example: "frame \"In the third quarter of the year the share of follow-up appointments that ... \" { ... }",
-        instead: "Shorten the headline to the point and move the detail into `takeaway`.",
+        before: "frame \"In every month of the year the North area recorded more cases than the South and the East together, and the gap widened in the second half of the year as well\" {",
+        after: "frame \"North had the most cases every month\" {   # the detail goes in `takeaway`",
+        why: "The headline is the sentence the audience reads first, often the only one. One that\n\
+              needs more than two lines at headline size is cut with an ellipsis: it loses its\n\
+              verb or its number; long, it pushes the chart down and competes with it (common\n\
+              practice: one short sentence that states the point).",
     },
     check,
 };

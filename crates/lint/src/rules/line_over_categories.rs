@@ -10,15 +10,13 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "a line joins categories that have no order",
     doc: Doc {
-        flags: "A line chart whose x axis holds text categories (regions, products, teams)\n\
-                rather than time or numbers.",
+        before: "line t: x team, y tickets   # teams have no order",
+        after:
+            "bars t: category team, value tickets   # lines stay for time and other ordered values",
         why: "A line says \"from here to there\": readers see its slope as change between\n\
-              neighbours. Between unordered categories that slope means nothing, and\n\
-              reordering the categories would draw a different line from the same data\n\
-              (common practice: lines for continuous or ordered data, bars for categories).",
-        example: "frame \"Sales by region\" {\n  line by_region: x region, y sales\n}",
-        instead: "Use `bars VIEW: category COLUMN, value COLUMN`; keep the line for time or\n\
-                  other ordered values.",
+              neighbours. Between text categories (regions, products, teams) that slope means\n\
+              nothing, and reordering the categories would draw a different line from the same\n\
+              data (common practice: lines for continuous or ordered data, bars for categories).",
     },
     check,
 };

@@ -11,12 +11,11 @@ pub static RULE: Rule = Rule {
     severity: Severity::Advice,
     summary: "a line chart with fewer than three points per line",
     doc: Doc {
-        flags: "A line chart in which every visible line has fewer than three values.",
+        before: "line y: x year, y budget   # only 2023 and 2024",
+        after: "bars y: category year, value budget   # or add the years in between",
         why: "A line of two points is a single slope: it hides what happened in between and\n\
-              invites reading a trend into two observations. Two values compare more honestly\n\
-              side by side (common practice).",
-        example: "line yearly: x year, y budget   # only 2023 and 2024",
-        instead: "Use bars for two or three periods, or add the periods in between.",
+              invites reading a trend into two observations. Two values compare more honestly side\n\
+              by side (common practice).",
     },
     check,
 };

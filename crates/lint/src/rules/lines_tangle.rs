@@ -12,18 +12,19 @@ const MAX_LINES: usize = 7;
 pub static RULE: Rule = Rule {
     name: "lines-tangle",
     severity: Severity::Warning,
-    summary: "more lines in one frame than a reader can follow",
+    summary: "more than 7 lines in one frame, more than a reader can follow",
     doc: Doc {
-        flags: "A line chart showing more than 7 lines at once.",
-        why: "Each extra line crosses the others; past a handful, readers can no longer follow\n\
-              one line from start to end or match it to its label, and the direct labels at\n\
-              the right crowd together (common practice; the limit of 7 echoes the usual\n\
-              advice to keep distinct series few).",
-        example:
-            "frame \"All 12 districts\" {\n  line monthly: x month, y cases, series district\n}",
-        instead:
-            "Show a few lines and grey the rest with `hide` and `spotlight`, build the frame\n\
-                  up over several frames, or group the small series with `top N ... rest`.",
+        before: "line d: x month, y cases, series district   # 9 districts, all shown",
+        after: concat!(
+            "line d: x month, y cases, series district\n",
+            "hide \"District 1\", \"District 2\"   # or build the lines up over frames",
+        ),
+        why:
+            "Each extra line crosses the others; past a handful, readers can no longer follow one\n\
+              line from start to end or match it to its label, and the direct labels at the right\n\
+              crowd together (common practice; the limit of 7 echoes the usual advice to keep\n\
+              distinct series few). Hide or grey the lines that are not the point, or group the\n\
+              small series with `top N ... rest`.",
     },
     check,
 };

@@ -12,13 +12,15 @@ pub static RULE: Rule = Rule {
     severity: Severity::Advice,
     summary: "the measure's axis is titled only by its column name",
     doc: Doc {
-        flags: "A chart sequence without `y title`, so its measure axis shows the column name\n\
-                (`riders` becomes \"Riders\").",
-        why: "Column names are written for the data, not the audience: they rarely say what\n\
-              was counted, over what period, or in what unit (\"Riders\" per day? per month?\n\
-              thousands?). The axis title is where that goes (common practice).",
-        example: "frame \"Ridership\" {\n  line monthly: x month, y riders\n}",
-        instead: "Add `y title \"Riders per month\"` (what, per what, in what unit).",
+        before: "line by_area: x month, y cases, series area   # the axis says \"Cases\"",
+        after: concat!(
+            "line by_area: x month, y cases, series area\n",
+            "y title \"Cases per month\"   # what, per what, in what unit",
+        ),
+        why: "Column names are written for the data, not the audience: they rarely say what was\n\
+              counted, over what period, or in what unit (\"Cases\" per day? per month? thousands?).\n\
+              Without `y title` the axis shows the column's name; the axis title is where the unit\n\
+              goes (common practice).",
     },
     check,
 };

@@ -7,6 +7,7 @@ mod bars_crowded;
 mod bars_off_zero;
 mod bars_unsorted;
 mod colour_key_text;
+mod conclusion_missing;
 mod focus_confusable;
 mod frame_empty;
 mod grid_heavy;
@@ -14,17 +15,16 @@ mod headline_cut;
 mod line_over_categories;
 mod line_too_short;
 mod lines_tangle;
-mod marks_contrast;
+mod marks_faint;
 mod measure_unnamed;
-mod no_conclusion;
 mod panels_own_scales;
 mod pie_crowded;
 mod shades_crowded;
 mod small_counts;
 mod source_missing;
 mod spotlight_crowd;
-mod stack_middle;
-mod text_contrast;
+mod stack_spotlight_floats;
+mod text_faint;
 mod text_small;
 mod ticks_crowded;
 mod trailing_zeros;
@@ -50,18 +50,18 @@ pub static RULES: &[&Rule] = &[
     &axes_shift::RULE,
     &headline_cut::RULE,
     &text_small::RULE,
-    &text_contrast::RULE,
-    &marks_contrast::RULE,
+    &text_faint::RULE,
+    &marks_faint::RULE,
     &grid_heavy::RULE,
     &focus_confusable::RULE,
     &spotlight_crowd::RULE,
     &colour_key_text::RULE,
     &pie_crowded::RULE,
     &shades_crowded::RULE,
-    &stack_middle::RULE,
+    &stack_spotlight_floats::RULE,
     &panels_own_scales::RULE,
     &frame_empty::RULE,
     &small_counts::RULE,
     &source_missing::RULE,
-    &no_conclusion::RULE,
+    &conclusion_missing::RULE,
 ];

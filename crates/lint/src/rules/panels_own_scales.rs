@@ -11,14 +11,12 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "small multiples drawn on different scales",
     doc: Doc {
-        flags: "Panels of a `split ... free`, each on its own scale.",
-        why: "Small multiples invite the eye to compare panels side by side. With different\n\
-              scales, equal heights mean different amounts, so a small series looks as large\n\
-              as a big one and the comparison the layout offers is false (common practice:\n\
-              one common scale for compared panels).",
-        example: "split district free   # each panel fitted to its own data",
-        instead: "Drop `free` to keep one common scale, and `trim` to cut each panel to its own\n\
-                  extent while keeping the same units per pixel.",
+        before: "split area own scales   # each panel fitted to its own data",
+        after: "split area trim   # one common scale, each panel cut to its own extent",
+        why: "Small multiples invite the eye to compare panels side by side. With `own scales`,\n\
+              equal heights mean different amounts, so a small series looks as large as a big one\n\
+              and the comparison the layout offers is false (common practice: one common scale for\n\
+              compared panels). `trim` keeps the same units per pixel in every panel.",
     },
     check,
 };

@@ -14,17 +14,21 @@ const CLOSE: f64 = 0.03;
 pub static RULE: Rule = Rule {
     name: "pie-crowded",
     severity: Severity::Warning,
-    summary: "a pie with many slices, or slices too close in size to compare",
+    summary: "a pie with more than 5 slices, or slices too close in size to compare",
     doc: Doc {
-        flags: "A pie with more than 5 slices, or with two slices whose shares differ by less\n\
-                than 3 percentage points.",
+        before: concat!(
+            "view top8 = p | top 7 product by sales rest \"Other products\"\n",
+            "pie top8: category product, value sales   # 8 slices",
+        ),
+        after: concat!(
+            "view top8 = p | top 7 product by sales rest \"Other products\"\n",
+            "bars top8: category product, value sales   # or a pie of 2 or 3 clearly different parts",
+        ),
         why: "A pie asks the eye to compare angles and areas, which people judge far less\n\
-              accurately than positions on a common scale (Cleveland & McGill 1984 rank\n\
-              angle and area below position and length). With many slices, or slices of\n\
-              nearly equal size, the ranking the chart is meant to show cannot be read.",
-        example: "pie by_region: category region, value budget   # 8 regions",
-        instead: "Use bars sorted by value (`bars VIEW: category ..., value ...`), or keep the\n\
-                  largest few with `| top 4 ... rest \"Other\"`.",
+              accurately than positions on a common scale (Cleveland & McGill 1984 rank angle and\n\
+              area below position and length). With more than 5 slices, or two slices within 3\n\
+              percentage points of each other, the ranking the chart is meant to show cannot be\n\
+              read.",
     },
     check,
 };

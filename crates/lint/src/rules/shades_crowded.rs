@@ -13,19 +13,18 @@ const MAX_SHADES: usize = 4;
 pub static RULE: Rule = Rule {
     name: "shades-crowded",
     severity: Severity::Warning,
-    summary: "more parts in distinct shades than the eye can tell apart",
+    summary: "more than 4 parts in distinct shades, more than the eye can tell apart",
     doc: Doc {
-        flags: "Stacked or grouped bars, or a pie, with more than 4 visible parts drawn in\n\
-                distinct greys (everything but the spotlight).",
-        why: "Each part gets its own shade so readers can match it to its label. People\n\
-              tell only a few steps of lightness apart reliably, fewer still on a\n\
-              projector, so with many parts the shades blur together and the chart turns\n\
-              into a matching puzzle (common practice: few distinct colours; Cleveland &\n\
-              McGill 1984 rank shading among the least accurate encodings).",
-        example: "bars spending: category year, value amount, stack department   # 7 departments",
-        instead:
-            "Fold the small parts into one with `| top 3 ... rest \"Other\"`, or `split` the\n\
-                  parts into panels, one per part, on a common scale.",
+        before: "bars d: category month, value cases, stack district   # 9 districts, 9 greys",
+        after: concat!(
+            "view top3 = d | top 3 district by cases rest \"Other districts\"\n",
+            "bars top3: category month, value cases, stack district   # or `split district`",
+        ),
+        why: "Stacked or grouped bars and pies give each part its own grey (the spotlight aside)\n\
+              so readers can match it to its label. People tell only a few steps of lightness\n\
+              apart reliably, fewer still on a projector, so with many parts the shades blur\n\
+              together and the chart turns into a matching puzzle (common practice: few distinct\n\
+              colours; Cleveland & McGill 1984 rank shading among the least accurate encodings).",
     },
     check,
 };

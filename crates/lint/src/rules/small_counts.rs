@@ -11,15 +11,18 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "a chart shows counts small enough to identify individuals",
     doc: Doc {
-        flags: "A chart whose measure counts rows (`count` in its view) and shows a value\n\
-                greater than zero but below the threshold (5 unless `--small-counts N`).",
-        why: "In a published chart, a cell of 1, 2 or 3 people can identify them, especially\n\
-              next to other public facts. Official statistics suppress or merge cells below a\n\
-              small threshold, often 5 or 10 (common practice); follow your organisation's\n\
-              own disclosure rules, which may be stricter.",
-        example: "view cases = visits | by clinic: patients = count()\nframe \"Patients\" { bars cases: category clinic, value patients }",
-        instead: "Merge small categories (`top N ... rest`), widen the groups (a longer period, a\n\
-                  larger area), or show a rate instead of a count.",
+        before: "view c = v | by clinic: patients = count()   # one clinic saw 3 patients",
+        after: concat!(
+            "view c = v | by clinic: patients = count() | keep patients >= 5\n",
+            "# or merge small clinics (`top N ... rest`), widen the period, or show a rate",
+        ),
+        why:
+            "In a published chart, a cell of 1, 2 or 3 people can identify them, especially next\n\
+              to other public facts. The rule flags a chart whose measure counts rows (`count` in\n\
+              its view) and shows a value above zero but below the threshold (5 unless\n\
+              `--small-counts N`). Official statistics suppress or merge cells below a small\n\
+              threshold, often 5 or 10 (common practice); follow your organisation's own\n\
+              disclosure rules, which may be stricter.",
     },
     check,
 };

@@ -9,14 +9,15 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "the deck does not say where its numbers come from",
     doc: Doc {
-        flags: "A story without a `source` line.",
-        why: "A chart without its source cannot be checked or trusted, and a deck shown\n\
-              again next quarter must say which export it was built from (common practice:\n\
-              a source note at the bottom of every chart).",
-        example: "story \"Riders grew\"   # no `source \"...\"`",
-        instead:
-            "Add `source \"Ticket scans, Kestrel Bay ferry service, 2019–2024\"`; it may quote\n\
-                  values, e.g. the last month in the data.",
+        before: "story \"Cases by area in 2024\"   # and no `source` line",
+        after: concat!(
+            "story \"Cases by area in 2024\"\n",
+            "source \"Case register, three areas, 2024 (invented)\"   # it may quote values too",
+        ),
+        why:
+            "A chart without its source cannot be checked or trusted, and a deck shown again next\n\
+              quarter must say which export it was built from (common practice: a source note at\n\
+              the bottom of every chart).",
     },
     check,
 };

@@ -10,13 +10,15 @@ pub static RULE: Rule = Rule {
     severity: Severity::Advice,
     summary: "more than one series or bar is spotlighted in a frame",
     doc: Doc {
-        flags: "A frame in which two or more series or bars carry the accent colour.",
-        why: "Colour and weight pop out pre-attentively only when one thing differs from the\n\
-              rest; with several accented marks the eye has to search again, and none of\n\
-              them reads as the point (common practice: one emphasis per frame).",
-        example: "spotlight \"North\", \"South\", \"East\"",
-        instead: "Spotlight one series per frame and move the spotlight across frames; when a\n\
-                  pair is the point, allow the rule and say so.",
+        before: "spotlight \"North\", \"South\"",
+        after: concat!(
+            "spotlight \"North\"   # and \"South\" in the next frame\n",
+            "# or, when the pair is the point, allow the rule and say so",
+        ),
+        why:
+            "Colour and weight pop out pre-attentively only when one thing differs from the rest;\n\
+              with several accented marks the eye has to search again, and none of them reads as\n\
+              the point (common practice: one emphasis per frame).",
     },
     check,
 };

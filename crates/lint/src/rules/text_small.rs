@@ -14,15 +14,13 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "text is too small to read when the deck is projected",
     doc: Doc {
-        flags: "A house style that sets a text size (headline, takeaway, labels or the\n\
-                source note) below 14 px on the 1280 × 720 frame.",
-        why: "A projected frame is read from across a room: small labels, tick values and\n\
-              source notes become unreadable at the back, and the audience stops reading\n\
-              the chart to squint at it (common practice: keep every text large enough for\n\
-              the last row).",
-        example: "[sizes]\nlabels = 12   # in house.toml",
-        instead: "Raise the size to 14 px or more; for a deck meant only for print, allow the\n\
-                  rule with that reason.",
+        before: "style \"small.toml\"   # its [sizes] set labels = 12",
+        after: "style \"fine.toml\"   # labels = 16: 14 px or more for every text",
+        why: "A projected frame is read from across a room: labels, tick values and source notes\n\
+              set below 14 px on the 1280 × 720 frame become unreadable at the back, and the\n\
+              audience stops reading the chart to squint at it (common practice: keep every text\n\
+              large enough for the last row). For a deck meant only for print, allow the rule with\n\
+              that reason.",
     },
     check,
 };

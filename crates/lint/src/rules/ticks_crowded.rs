@@ -12,14 +12,14 @@ pub static RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "an axis has more tick labels than fit side by side",
     doc: Doc {
-        flags: "An x axis whose tick labels, laid side by side, are wider than the plot, so\n\
-                some would overlap and are dropped (crescendo never rotates them).",
-        why: "Overlapping or rotated tick labels are slow to read and easy to misread;\n\
-              silently dropped labels hide categories. Few ticks at nice values read best\n\
-              (common practice; Talbot, Lin & Hanrahan 2010 weigh legibility and density).",
-        example: "frame \"Every branch\" {\n  line by_branch: x branch, y loans\n}",
-        instead: "Use horizontal bars for many named categories, fewer categories (`top N`),\n\
-                  or shorter category names.",
+        before: "line t: x team, y tickets   # six long team names along x",
+        after: "bars t: category team, value tickets   # each name on a line of its own",
+        why: "When an x axis's labels, laid side by side, are wider than the plot, some would\n\
+              overlap and are dropped (crescendo never rotates them). Overlapping or rotated\n\
+              labels are slow to read and easy to misread; silently dropped labels hide\n\
+              categories. Few ticks at nice values read best (common practice; Talbot, Lin &\n\
+              Hanrahan 2010 weigh legibility and density). Use horizontal bars for many named\n\
+              categories, fewer categories (`top N`), or shorter names.",
     },
     check,
 };

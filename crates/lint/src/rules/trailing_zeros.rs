@@ -10,14 +10,13 @@ pub static RULE: Rule = Rule {
     severity: Severity::Advice,
     summary: "a figure or tick label ends in zeros after the decimal point",
     doc: Doc {
-        flags: "A quoted figure such as `{share:.1%}` printing \"20.0%\", or a tick label\n\
-                like \"2.50\".",
-        why: "Trailing zeros add ink and reading time without adding information: \"20%\" says\n\
-              what \"20.0%\" says. They also suggest a precision the number may not have\n\
-              (common practice: no trailing zeros unless a column of figures must line up).",
-        example: "takeaway \"Video is now {share:.1%} of follow-ups\"",
-        instead: "Drop the fixed decimals (`{share:%}`): crescendo prints no trailing zeros by\n\
-                  default.",
+        before: "frame \"The busiest queue has {top to 1 decimal} tickets\" {   # prints 520.0",
+        after: "frame \"The busiest queue has {top} tickets\" {   # prints 520",
+        why: "Trailing zeros add ink and reading time without adding information: \"520\" says what\n\
+              \"520.0\" says, and \"20%\" what \"20.0%\" says. They also suggest a precision the number\n\
+              may not have (common practice: no trailing zeros unless a column of figures must\n\
+              line up). Without `to N decimals` crescendo prints none, in quoted figures and tick\n\
+              labels alike.",
     },
     check,
 };
@@ -50,7 +49,7 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
                     span: quoting_span(f, a, name),
                     label: format!("`{name}` prints as {figure}"),
                     message: format!("\"{figure}\" ends in a zero that says nothing"),
-                    fix: format!("quote it without fixed decimals, e.g. `{{{name}}}`"),
+                    fix: format!("quote `{name}` without `to N decimals`"),
                 });
             }
         }

@@ -1,7 +1,7 @@
 //! `split KEY ...`: small multiples, one panel per series (line charts) or
 //! per part (stacked or grouped bars), on the chart's own common scale
-//! (`trim` cuts each panel to its extent on the common step; `free` gives
-//! each panel its own scale, which the lint flags).
+//! (`trim` cuts each panel to its extent on the common step; `own scales`
+//! gives each panel its own scale, which the lint flags).
 
 use crescendo_data::{format, stats};
 use crescendo_lang::ast::SplitStmt;
@@ -33,20 +33,20 @@ pub(crate) fn split(cx: &mut Ctx, st: &mut SeqState, s: &SplitStmt) -> Outcome<(
     }
     let mut panels = panels(cx, &st.chart, s)?;
     order(cx, st, s, &mut panels)?;
-    if s.trim && !s.free {
+    if s.trim && !s.own_scales {
         for (_, chart, _) in &mut panels {
             trim(chart);
         }
     }
-    if s.free {
+    if s.own_scales {
         for (_, chart, _) in &mut panels {
-            free(chart);
+            own_scale(chart);
         }
     }
     st.names = panels.iter().map(|p| p.0.clone()).collect();
     st.chart = Chart::Panels(PanelChart {
         key: s.key.name.clone(),
-        common_scale: !s.free,
+        common_scale: !s.own_scales,
         trimmed: s.trim,
         panels: panels
             .into_iter()
@@ -197,7 +197,7 @@ fn trim(chart: &mut Chart) {
 }
 
 /// Put a panel on its own scale.
-fn free(chart: &mut Chart) {
+fn own_scale(chart: &mut Chart) {
     match chart {
         Chart::Line(l) => {
             let (lo, hi) = ys(l);

@@ -1,4 +1,4 @@
-//! `stack-middle`: a stacked segment that is not on the baseline is the point.
+//! `stack-spotlight-floats`: a stacked segment that is not on the baseline is the point.
 
 use crescendo_diag::Severity;
 use crescendo_frame::{Chart, PartsMode, Role};
@@ -7,19 +7,25 @@ use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};
 
 pub static RULE: Rule = Rule {
-    name: "stack-middle",
+    name: "stack-spotlight-floats",
     severity: Severity::Warning,
-    summary: "stacked bars spotlight a segment that does not sit on the baseline",
+    summary: "stacked bars spotlight a segment that floats above the baseline",
     doc: Doc {
-        flags: "Stacked bars whose spotlighted part is not the first (bottom) segment.",
-        why: "Only the bottom segments of stacked bars share a baseline. The segments above\n\
-              start at different heights, so comparing them across bars is a judgement of\n\
-              lengths on unaligned scales, much less accurate than positions on a common\n\
-              scale (Cleveland & McGill 1984). The spotlight then points at the very\n\
-              comparison the form makes hardest.",
-        example: "bars by_branch: category branch, value loans, stack format\nspotlight \"Audio\"   # the top segment",
-        instead: "Put the spotlighted part first in the stack (order the view so it comes first),\n\
-                  use `group` instead of `stack`, or `split` the parts into panels.",
+        before: concat!(
+            "bars by_area: category month, value cases, stack area\n",
+            "spotlight \"East\"   # a segment above the bottom one",
+        ),
+        after: concat!(
+            "bars by_area: category month, value cases, stack area\n",
+            "spotlight \"North\"   # the bottom segment, on the baseline\n",
+            "# or `group area` instead of `stack area`, or `split area`",
+        ),
+        why:
+            "Only the bottom segments of stacked bars share a baseline. The segments above start\n\
+              at different heights, so comparing one across bars is a judgement of lengths on\n\
+              unaligned scales, much less accurate than positions on a common scale (Cleveland &\n\
+              McGill 1984). A spotlight on such a segment points at the very comparison the form\n\
+              makes hardest; order the view so the spotlighted part comes first.",
     },
     check,
 };

@@ -1,23 +1,29 @@
-//! `no-conclusion`: a story that never states its conclusion.
+//! `conclusion-missing`: a story that never states its conclusion.
 
 use crescendo_diag::Severity;
 
 use crate::{Doc, Finding, Input, Rule};
 
 pub static RULE: Rule = Rule {
-    name: "no-conclusion",
+    name: "conclusion-missing",
     severity: Severity::Warning,
     summary: "the story never states its conclusion in its last frame",
     doc: Doc {
-        flags: "A story without a `conclusion`, or whose last frame does not state it in its\n\
-                headline or takeaway.",
-        why: "Decision makers act on the finding, not on the charts. A deck that stops at the\n\
-              evidence leaves each reader to infer a different conclusion; stating it in words\n\
-              at the end of the build-up is what turns charts into a recommendation\n\
-              (common practice).",
-        example: "conclusion \"Add a second evening boat.\"\n# ... but the last frame's takeaway says something else",
-        instead: "Write `conclusion \"...\"` and end the last frame with `takeaway \"{conclusion}\"`\n\
-                  (or put the sentence in its headline).",
+        before: concat!(
+            "conclusion \"Act on it.\"\n",
+            "...\n",
+            "  takeaway \"North leads.\"   # the last frame says something else",
+        ),
+        after: concat!(
+            "conclusion \"Act on it.\"\n",
+            "...\n",
+            "  takeaway \"{conclusion}\"   # or the sentence in the last headline",
+        ),
+        why: "Decision makers act on the finding, not on the charts. A story without a\n\
+              `conclusion`, or whose last frame does not state it in its headline or takeaway,\n\
+              stops at the evidence and leaves each reader to infer a different conclusion;\n\
+              stating it in words at the end of the build-up is what turns charts into a\n\
+              recommendation (common practice).",
     },
     check,
 };
