@@ -123,6 +123,7 @@ fn run(cx: &mut Ctx, story: &ast::StoryAst) -> Planned {
     anchors.title = h.title.as_ref().map(|t| t.span.clone());
     anchors.conclusion = h.conclusion.as_ref().map(|t| t.span.clone());
     anchors.source = h.source.as_ref().map(|t| t.span.clone());
+    anchors.byline = h.byline.as_ref().map(|t| t.span.clone());
     let with = (texts.source.as_ref(), failed.as_slice());
     let frames = frames::plan_frames(cx, &scope, &h, &frame_items, with, &mut anchors);
     let style = h.style.as_ref().and_then(|s| house_style(cx, s));
@@ -192,7 +193,9 @@ fn items<'s>(
             }
             Item::Claim(c) => claims.push(c),
             Item::Plugin(d) => {
-                let _ = plugins::use_plugin(cx, &mut scope.plugins, d);
+                if let Err(r) = plugins::use_plugin(cx, &mut scope.plugins, d) {
+                    scope.failed_plugins.insert(d.alias.name.clone(), r);
+                }
             }
             Item::Frame(f) => frames.push(f),
             _ => {}

@@ -14,19 +14,18 @@ use crate::anchors::FrameAnchors;
 use crate::context::{Ctx, Outcome};
 use crate::labels::display;
 use crate::model::*;
-use crate::plugins::Plugins;
 use crate::rows::{self, schema_of};
+use crate::scope::Scope;
 use crate::sequence::SeqState;
-use crate::tables::Tables;
 
 /// `draw NAME[.FORM] VIEW: ...`: the state of a new sequence.
-pub(crate) fn draw(
-    cx: &mut Ctx,
-    tables: &Tables,
-    plugins: &Plugins,
-    d: &DrawStmt,
-) -> Outcome<SeqState> {
+pub(crate) fn draw(cx: &mut Ctx, scope: &Scope, d: &DrawStmt) -> Outcome<SeqState> {
+    let (tables, plugins) = (&scope.tables, &scope.plugins);
     let Some(plugin) = plugins.get(&d.plugin.name) else {
+        if let Some(&reported) = scope.failed_plugins.get(&d.plugin.name) {
+            // its `use plugin` line failed and said why
+            return Err(reported);
+        }
         let mut diag = cx.at(
             "unknown-name",
             format!("no plugin named `{}`", d.plugin.name),
