@@ -122,6 +122,14 @@ fn a_pinned_checksum_must_match() {
     assert!(err.contains("cannot use plugin `p`"), "{err}");
     assert!(err.contains("but the story pins 0000"), "{err}");
     assert!(err.contains("s.cresc:4:"), "{err}");
+    // one error: the `draw` naming the plugin is not reported again as an
+    // unknown plugin
+    assert_eq!(err.matches("error[").count(), 1, "{err}");
+    assert!(!err.contains("no plugin named"), "{err}");
+    // a first build that fails says nothing of a previous deck
+    let run = crescendo(&bad, &["build", "./s.cresc"]);
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert!(!err.contains("previous deck"), "{err}");
 }
 
 /// Build a good deck, then break the plugin; the build fails with a located

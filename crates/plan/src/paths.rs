@@ -179,4 +179,17 @@ mod tests {
         assert!(confine(&s, "../private/secret.csv", &allow).is_ok());
         assert!(confine(&s, "/etc/passwd", &allow).is_err());
     }
+
+    #[test]
+    fn joined_paths_carry_no_dot_parts() {
+        assert_eq!(joined(Path::new("."), "./lib.so"), Path::new("./lib.so"));
+        assert_eq!(joined(Path::new("."), "lib.so"), Path::new("./lib.so"));
+        assert_eq!(joined(Path::new("pm"), "./lib.so"), Path::new("pm/lib.so"));
+        assert_eq!(
+            joined(Path::new("/s/./t"), "./d/./x.csv"),
+            Path::new("/s/t/d/x.csv")
+        );
+        // `..` is kept: it may cross a symbolic link
+        assert_eq!(joined(Path::new("s"), "../x.csv"), Path::new("s/../x.csv"));
+    }
 }
