@@ -11,14 +11,8 @@ use crate::model::ClaimPlan;
 use crate::scope::Scope;
 use crate::values;
 
-/// Compute a value item. `later`: the value names defined further down (to
-/// explain a use before the definition).
-pub(crate) fn define_value(
-    cx: &mut Ctx,
-    scope: &mut Scope,
-    v: &ast::ValueDecl,
-    later: &BTreeSet<String>,
-) {
+/// Compute a value item (after the views and values it uses: `order.rs`).
+pub(crate) fn define_value(cx: &mut Ctx, scope: &mut Scope, v: &ast::ValueDecl) {
     let name = &v.name.name;
     if scope.values.spans.contains_key(name) || name == "conclusion" {
         let d = cx.at(
@@ -44,27 +38,10 @@ pub(crate) fn define_value(
         Ok(q) => {
             values.by_name.insert(name.clone(), q);
         }
-        Err(mut ds) => {
-            for d in &mut ds {
-                explain_later(d, later);
-            }
+        Err(ds) => {
             let _ = cx.extend(ds);
             values.broken.insert(name.clone());
         }
-    }
-}
-
-/// "no value named `x`" for a value defined further down: say so.
-fn explain_later(d: &mut Diagnostic, later: &BTreeSet<String>) {
-    let missing = d
-        .message
-        .strip_prefix("no value named `")
-        .and_then(|m| m.strip_suffix('`'))
-        .map(str::to_string);
-    if let Some(missing) = missing.filter(|m| later.contains(m)) {
-        d.help = Some(format!(
-            "`{missing}` is defined further down: move this value below it"
-        ));
     }
 }
 
