@@ -27,8 +27,9 @@ pub enum Cell {
     Text(String),
 }
 
-/// One column of the panel's data. Times are given as text in ISO form
-/// (`2024-07`, `2024-07-31`, `2024`) and as their position in `positions`.
+/// One column of the panel's data. Times are given as text cells in ISO
+/// form (`2024-07` for a month, `2024-07-31` for a date, `2024` for a
+/// year), in the view's order; `kind` says which.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Column {
     pub name: String,
