@@ -32,6 +32,7 @@ mod plan;
 mod planning;
 mod plugins;
 mod progress;
+mod review;
 mod serve;
 mod store;
 mod watch;
@@ -92,5 +93,27 @@ fn main() -> ExitCode {
         Command::Completions { shell } => completions::run(shell),
         Command::Manual => manual::run(),
         Command::Diff { old, new } => diff::run(&old, &new, color),
+        Command::Review {
+            story,
+            against,
+            format,
+            out,
+            fail_on_change,
+            near_miss,
+            data,
+            lint,
+        } => review::run(
+            &story,
+            &review::Request {
+                against,
+                format,
+                out,
+                fail_on_change,
+                near_miss: near_miss / 100.0,
+            },
+            &data,
+            &lint,
+            color,
+        ),
     }
 }
