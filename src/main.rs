@@ -2,7 +2,7 @@
 //! ordered deck of SVG frames, a manifest and a self-contained HTML deck.
 //!
 //! `cli` defines the flags; each subcommand has a module of its own (`build`,
-//! `check`, `plan`, `diff`, `explain`, `plugins`, `watch`, `new`, `fmt`,
+//! `check`, `plan`, `diff`, `review`, `explain`, `plugins`, `watch`, `new`, `fmt`,
 //! `completions`, `manual`); `planning` is what the story commands share.
 
 // A `Diagnostic` is large, but it is only built on the cold error path.

@@ -9,7 +9,7 @@ mod common;
 use std::fs;
 use std::path::Path;
 
-use common::repo::{git, two_versions, DATA_V1, STORY_V1};
+use common::repo::{git, two_versions, DATA_V1, STORY_V1, STORY_V2};
 use common::{crescendo, scratch};
 use serde_json::Value;
 
@@ -142,8 +142,31 @@ fn exit_statuses_follow_claims_and_changes() {
         ],
     );
     assert_eq!(strict.status.code(), Some(1));
-    // against itself: nothing changed, nothing fails
+    // a frame added at the end, and one taken away
+    let more = format!("{STORY_V2}frame \"West catches up\" {{\n  table loans\n}}\n");
+    fs::write(dir.join("story.cresc"), more).unwrap();
+    let added = crescendo(&dir, &["review", "story.cresc", "--format", "markdown"]);
+    let (out, _) = text(&added);
+    assert!(out.contains("| 4 | West catches up | new frame |"), "{out}");
+    let fewer = STORY_V2.replace("frame \"The numbers\" {\n  table loans\n}\n", "");
+    fs::write(dir.join("story.cresc"), fewer).unwrap();
+    let removed = crescendo(&dir, &["review", "story.cresc", "--format", "markdown"]);
+    let (out, _) = text(&removed);
+    assert!(out.contains("| 1 | The numbers | removed |"), "{out}");
+    assert!(
+        out.contains("0 moved"),
+        "the others kept their order: {out}"
+    );
+    // the first story in the working files: the lint finding is resolved
     fs::write(dir.join("story.cresc"), STORY_V1).unwrap();
+    let resolved = crescendo(&dir, &["review", "story.cresc", "--format", "json"]);
+    let v: Value = serde_json::from_str(&text(&resolved).0).unwrap();
+    assert_eq!(v["lint"]["added"], serde_json::json!([]));
+    assert!(v["lint"]["removed"][0]
+        .as_str()
+        .unwrap()
+        .starts_with("colour-key-text"));
+    // against itself: nothing changed, nothing fails
     let quiet = crescendo(
         &dir,
         &[
@@ -191,6 +214,28 @@ fn the_page_holds_both_versions_and_its_policy() {
     assert_eq!(html.matches("src=\"data:image/svg+xml;base64,").count(), 6);
     assert!(html.contains("<del>1.5</del> → <ins>1.1</ins>"));
     assert!(!dir.join("deck").exists(), "no deck is written");
+    // unchanged frames are folded away
+    assert!(!html.contains("<details"));
+    fs::write(dir.join("story.cresc"), STORY_V1).unwrap();
+    fs::write(dir.join("loans.csv"), DATA_V1).unwrap();
+    let run = crescendo(
+        &dir,
+        &[
+            "review",
+            "story.cresc",
+            "--against",
+            "first",
+            "--out",
+            page.to_str().unwrap(),
+        ],
+    );
+    assert_eq!(run.status.code(), Some(0), "{}", text(&run).1);
+    let html = fs::read_to_string(&page).unwrap();
+    assert!(
+        html.contains("<details class=\"same\"><summary>3 unchanged frames (1, 2, 3)</summary>"),
+        "{html}"
+    );
+    assert!(!html.contains("class=\"frame changed"));
     let _ = fs::remove_dir_all(&dir);
 }
 

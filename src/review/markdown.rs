@@ -38,8 +38,13 @@ pub fn what_changed(f: &FrameReview) -> Vec<String> {
         parts.push(s);
     }
     for t in &f.texts {
+        // a headline that differs only by its quoted figures says no more
         if t.part != "headline" || f.figures.is_empty() {
-            parts.push(format!("{} reworded", t.part));
+            let show = |v: &Option<String>| match v {
+                Some(v) => format!("“{v}”"),
+                None => "(none)".to_string(),
+            };
+            parts.push(format!("{} {} → {}", t.part, show(&t.old), show(&t.new)));
         }
     }
     if f.status == Status::Changed

@@ -22,7 +22,7 @@ h1{font-size:22px;margin:0 0 4px}
 .box{background:#fff;border:1px solid #d5dae0;border-radius:6px;padding:12px 16px;margin:0 0 16px}
 .box h2{font-size:17px;margin:0 0 8px}
 .claim{margin:4px 0}
-.verdict{display:inline-block;min-width:7em;font-weight:bold}
+.verdict{display:inline-block;min-width:8.5em;font-weight:bold}
 .bad .verdict{color:#a4161a}.close .verdict{color:#8a5a00}.good .verdict{color:#1f6f3f}
 code{background:#eef0f3;padding:0 3px;border-radius:3px}
 .frame{background:#fff;border:1px solid #d5dae0;border-left:6px solid #8c96a1;border-radius:6px;padding:12px 16px;margin:0 0 16px}
@@ -191,7 +191,7 @@ pub fn html(r: &Review) -> String {
     let c = &r.counts;
     let _ = writeln!(
         out,
-        "<h1>Review: {}</h1>\n<p class=\"tally\">Now against <code>{}</code> ({}): {} changed, {} added, {} removed, {} moved, {} unchanged; {} claim(s) failing, {} near miss(es).</p>",
+        "<h1>Review: {}</h1>\n<p class=\"tally\">Compared with <code>{}</code> ({}): {} changed, {} added, {} removed, {} moved, {} unchanged; {} claim(s) failing, {} near miss(es).</p>",
         escape(&r.title),
         escape(&r.against),
         escape(&r.commit),
