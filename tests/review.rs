@@ -60,6 +60,9 @@ fn a_review_names_moved_numbers_failed_claims_and_moved_frames() {
     );
     let (out, err) = text(&md);
     assert_eq!(md.status.code(), Some(3), "a claim fails now: {err}");
+    // the rooms, worked by hand: ratio 480/320 = 1.5 over 1.2 leaves
+    // (1.5 − 1.2)/1.2 = 25%, 418/380 = 1.1 leaves (1.1 − 1.2)/1.2 = −8.3%;
+    // total 1048 about 1000 within 5% (50) uses 48, leaving 2/50 = 4%
     insta::assert_snapshot!("review_markdown", without_commit(&out, &dir, "first"));
     // the quoted value moved with its change, the claim fails, the table moved
     assert!(out.contains("`ratio` 1.5 → 1.1 (−0.4)"), "{out}");
@@ -263,6 +266,18 @@ fn errors_are_clear_and_write_nothing() {
     assert!(err.contains("did you mean `first`?"), "{err}");
     let run = crescendo(&repo, &["review", "story.cresc", "--against", "mian"]);
     assert!(text(&run).1.contains("`main`"), "{}", text(&run).1);
+
+    // a story new since the revision: every frame is new
+    fs::copy(repo.join("story.cresc"), repo.join("fresh.cresc")).unwrap();
+    let run = crescendo(&repo, &["review", "fresh.cresc", "--format", "markdown"]);
+    let (out, err) = text(&run);
+    assert_eq!(run.status.code(), Some(3), "{err}");
+    assert!(out.contains("0 changed, 3 added, 0 removed"), "{out}");
+    assert!(
+        out.contains("**new**: \"East lends more than West\""),
+        "{out}"
+    );
+    fs::remove_file(repo.join("fresh.cresc")).unwrap();
 
     // a large-file pointer kept in place of the data
     fs::write(

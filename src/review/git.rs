@@ -155,6 +155,8 @@ fn lexical(path: &Path) -> PathBuf {
 /// What a revision holds at a path, in words for an error.
 enum Blob {
     Data(Vec<u8>),
+    /// No such file in the revision (why, in words).
+    Missing(String),
     Problem(String),
 }
 
@@ -204,7 +206,7 @@ impl Revision {
             .and_then(|t| t.lookup_entry_by_path(&rel).map_err(|e| e.to_string()))
         {
             Ok(Some(e)) => e,
-            Ok(None) => return Blob::Problem(format!("there was no file {at}")),
+            Ok(None) => return Blob::Missing(format!("there was no file {at}")),
             Err(e) => return Blob::Problem(format!("cannot read {at}: {e}")),
         };
         let mode = entry.mode();
@@ -231,9 +233,12 @@ impl Revision {
     }
 
     /// The story file's text at this revision.
-    pub fn story(&self, story: &Path) -> Result<Vec<u8>, Diagnostic> {
+    /// The story file's text at this revision; `None` when the story is
+    /// new since (every frame of it is then new).
+    pub fn story(&self, story: &Path) -> Result<Option<Vec<u8>>, Diagnostic> {
         match self.blob(story) {
-            Blob::Data(d) => Ok(d),
+            Blob::Data(d) => Ok(Some(d)),
+            Blob::Missing(_) => Ok(None),
             Blob::Problem(why) => Err(err(format!("cannot read the story as it was: {why}"))
                 .help("give a revision in which the story exists with `--against REV`")),
         }
@@ -284,7 +289,7 @@ impl Io for AtRevision<'_> {
     fn file_len(&self, path: &Path) -> Option<u64> {
         match self.revision.blob(path) {
             Blob::Data(d) => Some(d.len() as u64),
-            Blob::Problem(_) => None,
+            Blob::Missing(_) | Blob::Problem(_) => None,
         }
     }
 
@@ -301,6 +306,10 @@ impl Io for AtRevision<'_> {
         }
         match self.revision.blob(path) {
             Blob::Data(d) => memory_file(path, &d).map_err(OpenError::Io),
+            Blob::Missing(why) => Err(OpenError::Io(std::io::Error::new(
+                std::io::ErrorKind::NotFound,
+                why,
+            ))),
             Blob::Problem(why) => Err(OpenError::Io(std::io::Error::other(why))),
         }
     }

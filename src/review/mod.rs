@@ -37,19 +37,21 @@ fn stop(diags: &[Diagnostic], color: bool, code: u8) -> ExitCode {
     ExitCode::from(code)
 }
 
-/// Plan the story as it was at the revision.
+/// Plan the story as it was at the revision; `None` when it did not exist.
 fn plan_then(
     story: &Path,
     revision: &git::Revision,
     data: &DataArgs,
-) -> Result<Planned, Vec<Diagnostic>> {
-    let bytes = revision.story(story).map_err(|d| vec![d])?;
+) -> Result<Option<Planned>, Vec<Diagnostic>> {
+    let Some(bytes) = revision.story(story).map_err(|d| vec![d])? else {
+        return Ok(None);
+    };
     let name = format!("{} (at {})", story.display(), revision.name);
     let src = crescendo_lang::source::decode(&name, bytes)?;
     let dir = story.parent().unwrap_or(Path::new("."));
     let options = crate::planning::options(data).map_err(|d| vec![d])?;
     let mut io = git::AtRevision::new(revision, &options);
-    crescendo_plan::plan_story_with(&src, dir, &options, &mut io)
+    crescendo_plan::plan_story_with(&src, dir, &options, &mut io).map(Some)
 }
 
 /// Draw every frame of a plan and lint it, as `build` does.
@@ -102,8 +104,21 @@ fn make(
         (d, EXIT_STORY)
     })?;
     let now = crate::planning::plan_quietly(story, data, None).map_err(|d| (d, EXIT_STORY))?;
-    let old = draw(&then, lint).map_err(|d| (vec![d], EXIT_STORY))?;
     let new = draw(&now, lint).map_err(|d| (vec![d], EXIT_STORY))?;
+    // a story new since the revision: an empty deck before it
+    let empty = crescendo_plan::DeckPlan {
+        frames: Vec::new(),
+        claims: Vec::new(),
+        ..now.plan.clone()
+    };
+    let old = match &then {
+        Some(then) => draw(then, lint).map_err(|d| (vec![d], EXIT_STORY))?,
+        None => Side {
+            plan: &empty,
+            svgs: Vec::new(),
+            lint: Vec::new(),
+        },
+    };
     Ok(compare::review(
         &old,
         &new,
