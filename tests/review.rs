@@ -216,6 +216,7 @@ fn the_page_holds_both_versions_and_its_policy() {
     assert_eq!(html.matches("<section class=\"frame").count(), 3);
     assert_eq!(html.matches("src=\"data:image/svg+xml;base64,").count(), 6);
     assert!(html.contains("<del>1.5</del> → <ins>1.1</ins>"));
+    assert!(html.contains("<li>rests on the claim “East lends more than West”: fails now</li>"));
     assert!(!dir.join("deck").exists(), "no deck is written");
     // unchanged frames are folded away
     assert!(!html.contains("<details"));

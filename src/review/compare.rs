@@ -57,6 +57,9 @@ pub struct FrameReview {
     pub picture_changed: bool,
     pub texts: Vec<TextChange>,
     pub figures: Vec<Figure>,
+    /// Sentences of the reviewed claims that rest on a value this frame
+    /// quotes.
+    pub claims: Vec<String>,
     #[serde(skip)]
     pub old_svg: Option<String>,
     #[serde(skip)]
@@ -316,6 +319,7 @@ pub fn frames(old: &Side, new: &Side) -> Vec<FrameReview> {
                     picture_changed,
                     texts,
                     figures,
+                    claims: Vec::new(),
                     old_svg: old.svgs.get(i).cloned(),
                     new_svg: new.svgs.get(j).cloned(),
                 }
@@ -343,6 +347,7 @@ fn lone(f: &FramePlan, status: Status, svg: Option<&String>) -> FrameReview {
         picture_changed: true,
         texts: Vec::new(),
         figures: Vec::new(),
+        claims: Vec::new(),
         old_svg: old.and(svg.cloned()),
         new_svg: new.and(svg.cloned()),
     }
@@ -406,10 +411,37 @@ pub fn claims(old: &DeckPlan, new: &DeckPlan, near: f64) -> Vec<ClaimReview> {
     out
 }
 
+/// Link each frame to the reviewed claims resting on a value it quotes
+/// (in the new deck; a removed frame in the old).
+fn link(frames: &mut [FrameReview], claims: &[ClaimReview], old: &DeckPlan, new: &DeckPlan) {
+    let rests = |plan: &DeckPlan, sentence: &str, quoted: &BTreeMap<String, String>| {
+        plan.claims
+            .iter()
+            .find(|c| c.sentence == sentence)
+            .is_some_and(|c| c.rests_on.iter().any(|v| quoted.contains_key(v)))
+    };
+    for f in frames.iter_mut() {
+        let (plan, number) = match (f.new, f.old) {
+            (Some(n), _) => (new, n),
+            (None, Some(o)) => (old, o),
+            _ => continue,
+        };
+        let Some(frame) = plan.frames.iter().find(|p| p.number == number) else {
+            continue;
+        };
+        f.claims = claims
+            .iter()
+            .filter(|c| rests(plan, &c.sentence, &frame.quoted))
+            .map(|c| c.sentence.clone())
+            .collect();
+    }
+}
+
 /// The whole review.
 pub fn review(old: &Side, new: &Side, against: (&str, &str), near: f64) -> Review {
-    let frames = frames(old, new);
+    let mut frames = frames(old, new);
     let claims = claims(old.plan, new.plan, near);
+    link(&mut frames, &claims, old.plan, new.plan);
     let lint = Lint {
         added: new
             .lint

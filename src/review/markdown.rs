@@ -47,6 +47,9 @@ pub fn what_changed(f: &FrameReview) -> Vec<String> {
             parts.push(format!("{} {} → {}", t.part, show(&t.old), show(&t.new)));
         }
     }
+    for sentence in &f.claims {
+        parts.push(format!("rests on “{sentence}”"));
+    }
     if f.status == Status::Changed
         && f.picture_changed
         && f.figures.is_empty()

@@ -146,6 +146,14 @@ fn frame(out: &mut String, f: &FrameReview, r: &Review) {
         if f.moved {
             out.push_str("<li>moved to another place in the deck</li>");
         }
+        for c in r.claims.iter().filter(|c| f.claims.contains(&c.sentence)) {
+            let _ = write!(
+                out,
+                "<li>rests on the claim “{}”: {}</li>",
+                escape(&c.sentence),
+                c.verdict
+            );
+        }
         if f.picture_changed && f.figures.is_empty() && f.texts.is_empty() {
             out.push_str("<li>the chart changed</li>");
         }

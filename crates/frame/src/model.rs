@@ -58,6 +58,10 @@ pub struct ClaimPlan {
     /// `crescendo review`; not written to the manifest.
     #[serde(skip)]
     pub margin: Option<f64>,
+    /// The values the claim rests on, directly or through other values
+    /// (for `crescendo review`; not written to the manifest).
+    #[serde(skip)]
+    pub rests_on: Vec<String>,
 }
 
 /// One frame (slide).

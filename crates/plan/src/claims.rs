@@ -126,6 +126,7 @@ pub(crate) fn check_claim(
             holds,
             detail: shown,
             margin,
+            rests_on: depends.iter().cloned().collect(),
         },
         names,
     ))
