@@ -160,6 +160,29 @@ fn exit_statuses_follow_claims_and_changes() {
         out.contains("0 moved"),
         "the others kept their order: {out}"
     );
+    // a file named with --data is today's for both versions: only the
+    // story's changes remain (the claim fails on the new data in both)
+    let v2 = dir.join("v2.csv");
+    fs::write(&v2, common::repo::DATA_V2).unwrap();
+    let data = format!("loans={}", v2.display());
+    let same_data = crescendo(
+        &dir,
+        &[
+            "review",
+            "story.cresc",
+            "--against",
+            "first",
+            "--format",
+            "json",
+            "--data",
+            &data,
+        ],
+    );
+    let (out, err) = text(&same_data);
+    assert_eq!(same_data.status.code(), Some(3), "{err}");
+    let v: Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["claims"][0]["verdict"], "still fails", "{out}");
+    fs::remove_file(&v2).unwrap();
     // the first story in the working files: the lint finding is resolved
     fs::write(dir.join("story.cresc"), STORY_V1).unwrap();
     let resolved = crescendo(&dir, &["review", "story.cresc", "--format", "json"]);

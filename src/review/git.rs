@@ -268,6 +268,8 @@ pub struct AtRevision<'a> {
     pub revision: &'a Revision,
     disk: Disk,
     allowed: Vec<PathBuf>,
+    /// Files named with `--data`, read from today's disk.
+    named: Vec<PathBuf>,
 }
 
 impl<'a> AtRevision<'a> {
@@ -276,6 +278,7 @@ impl<'a> AtRevision<'a> {
             revision,
             disk: Disk::new(options),
             allowed: options.allow_paths.clone(),
+            named: options.data.values().cloned().collect(),
         }
     }
 }
@@ -287,6 +290,9 @@ impl Io for AtRevision<'_> {
     }
 
     fn file_len(&self, path: &Path) -> Option<u64> {
+        if self.named.iter().any(|n| n == path) {
+            return self.disk.file_len(path);
+        }
         match self.revision.blob(path) {
             Blob::Data(d) => Some(d.len() as u64),
             Blob::Missing(_) | Blob::Problem(_) => None,
@@ -294,15 +300,17 @@ impl Io for AtRevision<'_> {
     }
 
     fn open(&self, dir: Option<&Path>, path: &Path) -> Result<File, OpenError> {
+        // a file named on the command line (`--data NAME=FILE`) is not the
+        // story's own: both versions read it as it is today
+        let Some(dir) = dir else {
+            return self.disk.open(None, path);
+        };
         // the same folder rule as today's files, checked on the path as
         // the revision holds it (a link is refused by `blob`)
-        if let Some(dir) = dir {
-            let written = path.to_string_lossy();
-            if self.confine(dir, &written).is_err() {
-                return Err(OpenError::Outside {
-                    real: lexical(&dir.join(path)),
-                });
-            }
+        if self.confine(dir, &path.to_string_lossy()).is_err() {
+            return Err(OpenError::Outside {
+                real: lexical(&dir.join(path)),
+            });
         }
         match self.revision.blob(path) {
             Blob::Data(d) => memory_file(path, &d).map_err(OpenError::Io),
