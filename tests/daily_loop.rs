@@ -362,6 +362,7 @@ fn completions_and_manual_mention_every_subcommand() {
         "explain",
         "plan",
         "diff",
+        "review",
         "new",
         "fmt",
         "completions",

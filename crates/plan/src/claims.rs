@@ -9,7 +9,7 @@ use crescendo_lang::ast;
 use crate::context::{Ctx, Outcome};
 use crate::model::ClaimPlan;
 use crate::scope::Scope;
-use crate::values;
+use crate::values::{self, Evaluator, Quantity};
 
 /// Compute a value item (after the views and values it uses: `order.rs`).
 pub(crate) fn define_value(cx: &mut Ctx, scope: &mut Scope, v: &ast::ValueDecl) {
@@ -54,7 +54,9 @@ pub(crate) fn check_claim(
     failed_claims: &mut Vec<Diagnostic>,
 ) -> Outcome<(ClaimPlan, BTreeSet<String>)> {
     let mut shown = Vec::new();
-    let holds = match scope.evaluator(cx.src).condition(&c.condition, &mut shown) {
+    let evaluator = scope.evaluator(cx.src);
+    let margin = margin(&evaluator, &c.condition);
+    let holds = match evaluator.condition(&c.condition, &mut shown) {
         Ok(h) => h,
         Err(d) => {
             cx.extend(d)?;
@@ -100,7 +102,58 @@ pub(crate) fn check_claim(
             condition,
             holds,
             detail: shown,
+            margin,
+            rests_on: depends.iter().cloned().collect(),
         },
         names,
     ))
+}
+
+/// How much room a claim has before it flips, as a share (see
+/// `ClaimPlan::margin`): the smallest room of its comparisons when it is
+/// one comparison or comparisons joined by `and`; `None` for `or`, `not`,
+/// texts and times, and when a side is zero (no scale to measure against).
+fn margin(ev: &Evaluator, c: &ast::Expr) -> Option<f64> {
+    use ast::{BinOp, Expr};
+    let number = |e: &Expr| match ev.eval(e) {
+        Ok(Quantity::Number(n)) if n.is_finite() => Some(n),
+        _ => None,
+    };
+    match c {
+        Expr::Chain { first, rest, .. } if rest.iter().all(|l| l.op == BinOp::And) => {
+            let mut least = margin(ev, first)?;
+            for link in rest {
+                least = least.min(margin(ev, &link.operand)?);
+            }
+            Some(least)
+        }
+        Expr::Compare {
+            op, left, right, ..
+        } => {
+            let (a, b) = (number(left)?, number(right)?);
+            if b == 0.0 {
+                return None;
+            }
+            match op {
+                BinOp::Gt | BinOp::Ge => Some((a - b) / b.abs()),
+                BinOp::Lt | BinOp::Le => Some((b - a) / b.abs()),
+                _ => None,
+            }
+        }
+        Expr::About {
+            left,
+            right,
+            tolerance,
+            ..
+        } => {
+            let (a, b) = (number(left)?, number(right)?);
+            let allowed = if tolerance.relative {
+                tolerance.amount * b.abs()
+            } else {
+                tolerance.amount
+            };
+            (allowed > 0.0).then(|| (allowed - (a - b).abs()) / allowed)
+        }
+        _ => None,
+    }
 }
