@@ -210,9 +210,20 @@ fn value_errors_are_located_never_nan() {
     fs::write(dir.join("d.csv"), "k,v,t\na,1,x\nb,0,y\n").unwrap();
     let cases = [
         (
-            "value e = mean(d.v where k = \"zz\")",
+            "value e = mean(d.v where v > 5)",
             "no rows were selected",
             (3, 11),
+        ),
+        // a text literal that matches no value of its column: at the literal
+        (
+            "value e = mean(d.v where k = \"zz\")",
+            "no row has `k` = \"zz\"",
+            (3, 30),
+        ),
+        (
+            "value e = count(d where k = \"A\" or t = \"x\")",
+            "did you mean \"a\"?",
+            (3, 29),
         ),
         (
             "value z = sum(d.v where k = \"b\")\nvalue e = 1 / z",

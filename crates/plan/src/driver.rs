@@ -141,6 +141,15 @@ fn run(cx: &mut Ctx, story: &ast::StoryAst) -> Planned {
             .filter(|(k, _)| k.as_str() != "conclusion")
             .map(|(k, v)| (k.clone(), v.figure()))
             .collect(),
+        exact: scope
+            .values
+            .by_name
+            .iter()
+            .filter_map(|(k, v)| match v {
+                crate::values::Quantity::Number(x) if x.is_finite() => Some((k.clone(), *x)),
+                _ => None,
+            })
+            .collect(),
         claims: claim_plans,
         frames,
         locale: None,

@@ -170,6 +170,10 @@ impl Evaluator<'_> {
             Some(f) => {
                 let cond = rows::check_condition(self.src, &schema, &place, f, &mut diags)
                     .ok_or_else(|| diags.clone())?;
+                let unmatched = rows::unmatched_texts(self.src, table, f);
+                if !unmatched.is_empty() {
+                    return Err(unmatched);
+                }
                 // Run the filter through the view engine on a table that
                 // carries the row numbers.
                 let mut t = table.clone();

@@ -27,6 +27,7 @@ mod labels;
 pub mod limits;
 mod loading;
 pub mod model;
+pub mod numbers;
 mod options;
 mod overflow;
 pub mod paths;
