@@ -233,6 +233,17 @@ pub fn significant_ascii(v: f64, shift: i64, sig: usize) -> String {
     with_sign(v < 0.0, &d, d.render(shown))
 }
 
+/// The number of digits before the decimal point of `v`'s first
+/// significant digit (`123.4` → 3, `0.05` → -1, `0` → 0): with `sig`
+/// significant digits a figure needs `sig - point` decimals.
+pub fn decimal_point(v: f64) -> i64 {
+    if v.is_finite() {
+        Decimal::of(v).point
+    } else {
+        0
+    }
+}
+
 /// `v × 10^shift` (the point moved exactly) with exactly `decimals`
 /// decimals: `(0.145, 2, 0)` → `"15"`, where the binary product
 /// `0.145 * 100 = 14.499999999999998` would give 14.

@@ -16,7 +16,6 @@ pub mod cache;
 mod claims;
 mod context;
 mod describe;
-mod drawn;
 mod driver;
 mod forms;
 mod frames;

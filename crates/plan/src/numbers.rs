@@ -116,18 +116,8 @@ pub fn label_with(v: f64, sig: usize) -> String {
 /// same quantity shows, its zeros kept (`{x to 3 decimals}` prints
 /// `8.600`, so its bar reads `8.600`, not `8.6`).
 pub fn label_raised(v: f64, sig: usize) -> String {
-    // never more digits than a figure carries (zeros past them would lie)
-    let sig = sig.min(format::MAX_SIGNIFICANT);
-    let mut s = format::significant_ascii(v, 0, sig);
-    if v.is_finite() && v != 0.0 && format::shown_significant(&s) < sig {
-        if !s.contains('.') {
-            s.push('.');
-        }
-        while format::shown_significant(&s) < sig {
-            s.push('0');
-        }
-    }
-    drawn(localize_number(s))
+    let decimals = (sig as i64 - format::decimal_point(v)).max(0) as usize;
+    drawn(localize_number(format::fixed_ascii(v, 0, decimals)))
 }
 
 /// [`label_with`] the default three significant digits.
@@ -223,10 +213,14 @@ pub fn label_for(v: f64, quoted: &[Quoted]) -> Option<String> {
 /// the two agree ([`label_for`]).
 pub fn write_labels(chart: &mut crate::model::Chart, quoted: &[Quoted]) {
     use crate::model::Chart;
-    if let Chart::Line(l) = chart {
-        if l.end_labels {
-            end_values(l, quoted);
+    match chart {
+        Chart::Line(l) if l.end_labels => end_values(l, quoted),
+        Chart::Scatter(s) => {
+            if let Some(fit) = &mut s.fit {
+                fit.label = fit_label(fit.r, quoted);
+            }
         }
+        _ => {}
     }
     if quoted.is_empty() {
         return;
@@ -267,6 +261,18 @@ pub fn write_labels(chart: &mut crate::model::Chart, quoted: &[Quoted]) {
             }
         }
         _ => {}
+    }
+}
+
+/// The fit's label: `fit: r = 0.823`, r as every label (the quoted figure
+/// when a text of the frame quotes it).
+fn fit_label(r: Option<f64>, quoted: &[Quoted]) -> String {
+    match r.filter(|r| r.is_finite()) {
+        Some(r) => format!(
+            "fit: r = {}",
+            label_for(r, quoted).unwrap_or_else(|| label(r))
+        ),
+        None => "fit".to_string(),
     }
 }
 
@@ -540,6 +546,25 @@ mod tests {
         for (surface, got, want, rule) in cases {
             assert_eq!(got, want, "{surface}: rule {rule}");
         }
+    }
+
+    #[test]
+    fn fit_labels_show_three_significant_digits_or_the_quoted_figure() {
+        // the number policy: three significant digits, half away from zero
+        assert_eq!(fit_label(Some(0.8234), &[]), "fit: r = 0.823");
+        assert_eq!(fit_label(Some(0.8), &[]), "fit: r = 0.8");
+        // the true minus sign in drawn text
+        assert_eq!(fit_label(Some(-0.4565), &[]), "fit: r = \u{2212}0.457");
+        assert_eq!(fit_label(Some(1.0), &[]), "fit: r = 1");
+        assert_eq!(fit_label(None, &[]), "fit");
+        // quoted "r = 0.99" in the takeaway: the fit reads the same
+        let q = Quoted {
+            value: 0.9935,
+            figure: "0.99".into(),
+            style: NumberStyle::Plain,
+            sign: false,
+        };
+        assert_eq!(fit_label(Some(0.9935), &[q]), "fit: r = 0.99");
     }
 
     fn axis() -> Axis {

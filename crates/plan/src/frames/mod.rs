@@ -65,7 +65,6 @@ pub(crate) fn plan_frames(
                 }
             }
             fp.quoted = made.texts.quoted.clone();
-            crate::numbers::write_labels(&mut fp.chart, &made.texts.numbers);
             fp.templates = made.texts.templates.clone();
             planned.push(fp);
         }
