@@ -327,3 +327,39 @@ fn a_format_fits_its_value_or_is_a_located_error() {
         assert_eq!(errs[0].location().map(|(_, l, c)| (l, c)), Some((5, 10)));
     }
 }
+
+/// Claim messages print operands with the digits that show them apart and
+/// the tolerance as written (the number policy, `numbers::apart`); `exact`
+/// carries each value's exact number for machines.
+#[test]
+fn claim_messages_show_the_difference_and_the_tolerance_as_written() {
+    let dir = scratch("claim-digits");
+    fs::write(dir.join("d.csv"), "k,v\na,1\n").unwrap();
+    let story = "story \"C\"\ndata d from \"d.csv\"\n\
+        value r = 0.816521\nvalue near = 0.8175\n\
+        claim r about 0.816 within 0.0005 \"fails by a hair\"\n\
+        claim near about 0.82 within 0.005 \"holds\"\n\
+        claim r > 0.8165 \"holds too\"\n\
+        frame \"f\" {\n  bars d: category k, value v\n  notes \"{r}\"\n}\n";
+    let (figs, planned) = quoted(&dir, story);
+    assert_eq!(figs, ["0.817"]);
+    let details: Vec<&str> = planned
+        .plan
+        .claims
+        .iter()
+        .flat_map(|c| c.detail.iter().map(String::as_str))
+        .collect();
+    assert_eq!(
+        details,
+        [
+            // was "0.82 is not within 0 of 0.82 (difference 0)"
+            "r about 0.816 within 0.0005: 0.817 is not within 0.0005 of 0.816 (difference 0.000521)",
+            // was "within 0.01" for a tolerance written 0.005
+            // three digits tell 0.8175 (0.818) from 0.82 already
+            "near about 0.82 within 0.005: 0.818 is within 0.005 of 0.82 (difference 0.0025)",
+            // 0.8165 > 0.8165 would read false: a fifth digit shows the gap
+            "r > 0.8165: 0.81652 > 0.8165 is true",
+        ]
+    );
+    assert_eq!(planned.plan.exact["r"], 0.816521);
+}

@@ -266,14 +266,23 @@ impl Evaluator<'_> {
         p: &Picked,
         span: &Span,
     ) -> Vec<Diagnostic> {
+        // an overflow is the data's, not the condition's: the same words as
+        // a view's `sum` that overflows (streamed or loaded)
+        let (code, help) = match e {
+            stats::StatError::Overflow => (
+                "overflow",
+                "look in the data for values far too large: a wrong unit, or a placeholder such as 1e308 written for a missing value",
+            ),
+            _ => ("value", "check the `where` condition against the data"),
+        };
         vec![self
             .err(
-                "value",
+                code,
                 format!("`{fname}` cannot be computed: {}", e.message()),
                 span.clone(),
                 &format!("{} selected from {}", plural(p.rows, "row"), p.describe),
             )
-            .help("check the `where` condition against the data")]
+            .help(help)]
     }
 
     /// `ratio(a, b)`.
