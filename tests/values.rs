@@ -363,3 +363,29 @@ fn claim_messages_show_the_difference_and_the_tolerance_as_written() {
     );
     assert_eq!(planned.plan.exact["r"], 0.816521);
 }
+
+/// One rule for rows without a time in the `by` column: every function
+/// skips them (`change` used to take such a row as the last, `growth` to
+/// refuse the column).
+#[test]
+fn rows_without_a_time_are_skipped_by_every_function() {
+    let dir = scratch("missing-time");
+    fs::write(
+        dir.join("m.csv"),
+        "month,v\n2024-01,10\n2024-02,12\n,99\n2024-03,15\n",
+    )
+    .unwrap();
+    let story = "story \"M\"\ndata d from \"m.csv\" { month: month }\n\
+        value c = change(d.v by month)\nvalue l = last(d.v by month)\n\
+        value sl = slope(d.v by month)\nvalue g = growth(d.v by month)\n\
+        frame \"f\" {\n  line d: x month, y v\n  notes \"{c}\"\n}\n";
+    let src = Source::file("m.cresc", story.to_string());
+    let planned = crescendo_plan::plan_story(&src, &dir, &Default::default())
+        .unwrap_or_else(|d| panic!("{}", crescendo_diag::render(&d, false)));
+    let exact = &planned.plan.exact;
+    // 15 - 10, the last dated row, (15 - 10) / 2 months: by hand
+    assert_eq!(exact["c"], 5.0);
+    assert_eq!(exact["l"], 15.0);
+    assert_eq!(exact["sl"], 2.5);
+    assert!(exact["g"] > 0.0);
+}

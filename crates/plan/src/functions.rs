@@ -197,15 +197,20 @@ impl Evaluator<'_> {
             }
         };
         let mut order = rows.clone();
+        // One rule for every function with `by`: a row without a position
+        // (a missing month, year, date or number) is skipped, and said so.
+        let mut skipped = 0;
         if let Some((bi, _)) = by {
             let col = &table.columns[bi].values;
+            order.retain(|r| position(&col.value(*r)).is_some());
+            skipped = rows.len() - order.len();
             order.sort_by(|a, b| {
                 let pa = position(&col.value(*a)).unwrap_or(f64::INFINITY);
                 let pb = position(&col.value(*b)).unwrap_or(f64::INFINITY);
                 pa.total_cmp(&pb)
             });
         }
-        let describe = match &sel.filter {
+        let mut describe = match &sel.filter {
             Some(f) => format!(
                 "`{}` where `{}`",
                 sel.view.name,
@@ -213,6 +218,13 @@ impl Evaluator<'_> {
             ),
             None => format!("`{}`", sel.view.name),
         };
+        if let (Some((bi, _)), true) = (by, skipped > 0) {
+            describe.push_str(&format!(
+                " ({} without a `{}` skipped)",
+                plural(skipped, "row"),
+                table.columns[bi].name
+            ));
+        }
         Ok(Picked {
             cells: column.map_or_else(Vec::new, |(ci, _)| {
                 order
