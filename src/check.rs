@@ -76,6 +76,7 @@ pub fn run(
                 "diagnostics": problems,
                 "frames": planned.as_ref().map(|p| p.plan.frames.len()),
                 "values": planned.as_ref().map(|p| p.plan.values.clone()),
+                "exact": planned.as_ref().map(|p| p.plan.exact.clone()),
                 "claims": planned.as_ref().map(|p| p.plan.claims.clone()),
                 "sql": planned.as_ref().filter(|_| explain_sql).map(|p| p.sql.clone()),
             });
@@ -110,7 +111,15 @@ pub fn run(
                     if plan.claims.len() == 1 { "" } else { "s" }
                 );
                 for (name, figure) in &plan.values {
-                    say!("  value {name} = {figure}");
+                    // the exact number beside the figure when they differ
+                    match plan.exact.get(name) {
+                        Some(x)
+                            if x.to_string().replace('-', "") != figure.replace([',', '-'], "") =>
+                        {
+                            say!("  value {name} = {figure} (exactly {x})")
+                        }
+                        _ => say!("  value {name} = {figure}"),
+                    }
                 }
                 for c in &plan.claims {
                     say!(

@@ -167,6 +167,7 @@ pub fn render_files(
         "conclusion": plan.conclusion,
         "theme": plan.theme,
         "values": plan.values,
+        "exact": plan.exact,
         "claims": plan.claims,
         "frames": entries,
         "html": exports.html.then_some("index.html"),

@@ -59,7 +59,7 @@ impl Digests {
     fn of(plan: &DeckPlan) -> Digests {
         let mut header = serde_json::to_value(plan).unwrap_or_default();
         if let Some(o) = header.as_object_mut() {
-            for k in ["frames", "values", "claims"] {
+            for k in ["frames", "values", "exact", "claims"] {
                 o.remove(k);
             }
         }
@@ -305,6 +305,7 @@ mod tests {
             accent: None,
             style: None,
             values: Default::default(),
+            exact: Default::default(),
             claims: Vec::new(),
             frames,
             locale: None,

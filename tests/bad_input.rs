@@ -140,6 +140,23 @@ fn declared_number_holding_text_points_into_the_csv() {
     insta::assert_snapshot!(err);
 }
 
+/// A number written with a thousands separator is a real value: the help
+/// says how to write it and never suggests reading it as missing (that once
+/// dropped a month's rows from a total without a word).
+#[test]
+fn a_grouped_number_is_never_suggested_as_missing() {
+    let story = GOOD_STORY.replace(
+        "data loans from \"loans.csv\"",
+        "data loans from \"loans.csv\" { loans: number }",
+    );
+    let csv = GOOD_CSV.replace("2024-02,Elm Row,85", "2024-02,Elm Row,\"1,050\"");
+    let err = run_broken("grouped-number", &story, Some(&csv));
+    assert_located(&err, "loans.csv:5:17");
+    assert!(err.contains("without thousands separators"), "{err}");
+    assert!(err.contains("write `1,050` without separators"), "{err}");
+    assert!(!err.contains("missing-value"), "{err}");
+}
+
 #[test]
 fn missing_csv_file() {
     let err = run_broken("missing-csv", GOOD_STORY, None);

@@ -44,9 +44,10 @@ fn a_broken_claim_stops_the_build_and_keeps_the_deck() {
         "{err}"
     );
     assert!(err.contains("clinics.cresc:42:7"), "{err}");
-    // the expression, each operand's value and the sentence
+    // the expression, each operand's value (three significant digits,
+    // the number policy) and the sentence
     assert!(
-        err.contains("video_share_now > 1 / 3: 0.25 > 0.33 is false"),
+        err.contains("video_share_now > 1 / 3: 0.249 > 0.333 is false"),
         "{err}"
     );
     assert!(err.contains("video_now = 664"), "{err}");
@@ -137,7 +138,12 @@ fn check_reports_values_and_claims() {
         (d["line"].as_u64(), d["column"].as_u64()),
         (Some(42), Some(7))
     );
-    assert_eq!(report["values"]["video_share_now"], "0.25");
+    assert_eq!(report["values"]["video_share_now"], "0.249");
+    // the exact number beside the figure (664 / 2,664)
+    let exact = report["exact"]["video_share_now"]
+        .as_f64()
+        .expect("a number");
+    assert_eq!(exact, 664.0 / 2664.0);
 }
 
 #[test]

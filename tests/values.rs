@@ -231,9 +231,20 @@ fn value_errors_are_located_never_nan() {
     fs::write(dir.join("d.csv"), "k,v,t\na,1,x\nb,0,y\n").unwrap();
     let cases = [
         (
-            "value e = mean(d.v where k = \"zz\")",
+            "value e = mean(d.v where v > 5)",
             "no rows were selected",
             (3, 11),
+        ),
+        // a text literal that matches no value of its column: at the literal
+        (
+            "value e = mean(d.v where k = \"zz\")",
+            "no row has `k` = \"zz\"",
+            (3, 30),
+        ),
+        (
+            "value e = count(d where k = \"A\" or t = \"x\")",
+            "did you mean \"a\"?",
+            (3, 29),
         ),
         (
             "value z = sum(d.v where k = \"b\")\nvalue e = 1 / z",
@@ -338,4 +349,66 @@ fn a_format_fits_its_value_or_is_a_located_error() {
         // at the quoted value's opening brace, on the notes line
         assert_eq!(errs[0].location().map(|(_, l, c)| (l, c)), Some((5, 10)));
     }
+}
+
+/// Claim messages print operands with the digits that show them apart and
+/// the tolerance as written (the number policy, `numbers::apart`); `exact`
+/// carries each value's exact number for machines.
+#[test]
+fn claim_messages_show_the_difference_and_the_tolerance_as_written() {
+    let dir = scratch("claim-digits");
+    fs::write(dir.join("d.csv"), "k,v\na,1\n").unwrap();
+    let story = "story \"C\"\ndata d from \"d.csv\"\n\
+        value r = 0.816521\nvalue near = 0.8175\n\
+        claim r about 0.816 within 0.0005 \"fails by a hair\"\n\
+        claim near about 0.82 within 0.005 \"holds\"\n\
+        claim r > 0.8165 \"holds too\"\n\
+        frame \"f\" {\n  bars d: category k, value v\n  notes \"{r}\"\n}\n";
+    let (figs, planned) = quoted(&dir, story);
+    assert_eq!(figs, ["0.817"]);
+    let details: Vec<&str> = planned
+        .plan
+        .claims
+        .iter()
+        .flat_map(|c| c.detail.iter().map(String::as_str))
+        .collect();
+    assert_eq!(
+        details,
+        [
+            // was "0.82 is not within 0 of 0.82 (difference 0)"
+            "r about 0.816 within 0.0005: 0.817 is not within 0.0005 of 0.816 (difference 0.000521)",
+            // was "within 0.01" for a tolerance written 0.005
+            // three digits tell 0.8175 (0.818) from 0.82 already
+            "near about 0.82 within 0.005: 0.818 is within 0.005 of 0.82 (difference 0.0025)",
+            // 0.8165 > 0.8165 would read false: a fifth digit shows the gap
+            "r > 0.8165: 0.81652 > 0.8165 is true",
+        ]
+    );
+    assert_eq!(planned.plan.exact["r"], 0.816521);
+}
+
+/// One rule for rows without a time in the `by` column: every function
+/// skips them (`change` used to take such a row as the last, `growth` to
+/// refuse the column).
+#[test]
+fn rows_without_a_time_are_skipped_by_every_function() {
+    let dir = scratch("missing-time");
+    fs::write(
+        dir.join("m.csv"),
+        "month,v\n2024-01,10\n2024-02,12\n,99\n2024-03,15\n",
+    )
+    .unwrap();
+    let story = "story \"M\"\ndata d from \"m.csv\" { month: month }\n\
+        value c = change(d.v by month)\nvalue l = last(d.v by month)\n\
+        value sl = slope(d.v by month)\nvalue g = growth(d.v by month)\n\
+        frame \"f\" {\n  line d: x month, y v\n  notes \"{c}\"\n}\n";
+    let src = Source::file("m.cresc", story.to_string());
+    let planned = crescendo_plan::plan_story(&src, &dir, &Default::default())
+        .unwrap_or_else(|d| panic!("{}", crescendo_diag::render(&d, false)));
+    let exact = &planned.plan.exact;
+    // 15 - 10, the last dated row, (15 - 10) / 2 months: by hand
+    assert_eq!(exact["c"], 5.0);
+    assert_eq!(exact["l"], 15.0);
+    assert_eq!(exact["sl"], 2.5);
+    assert!(exact["g"] > 0.0);
 }

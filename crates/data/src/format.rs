@@ -205,6 +205,73 @@ pub fn number_ascii(v: f64, decimals: Option<usize>) -> String {
     }
 }
 
+/// Significant digits the default format keeps (the number policy: a
+/// figure without `to N decimals`, a data label, a table cell).
+pub const DEFAULT_SIGNIFICANT: usize = 3;
+
+/// `v × 10^shift` (exact: the decimal point moves, no binary product), at
+/// least `sig` significant digits and never fewer than its whole digits,
+/// without trailing zeros: `(0.001234, 0, 3)` → `"0.00123"`, `(12345.6, 0,
+/// 3)` → `"12,346"`, `(0.145, 2, 3)` → `"14.5"`. A non-zero value never
+/// prints as `0`: its first significant digit is always kept. Rounding is
+/// half away from zero on the decimal digits.
+pub fn significant_ascii(v: f64, shift: i64, sig: usize) -> String {
+    if !v.is_finite() {
+        return NOT_A_NUMBER.to_string();
+    }
+    let mut d = Decimal::of(v);
+    if !d.is_zero() {
+        d.point += shift;
+    }
+    let sig = sig.clamp(1, MAX_SIGNIFICANT) as i64;
+    if d.point >= sig {
+        d.round_decimals(0);
+    } else {
+        d.round_keep(sig);
+    }
+    let shown = d.decimals_needed().min(MAX_DECIMALS);
+    with_sign(v < 0.0, &d, d.render(shown))
+}
+
+/// The number of digits before the decimal point of `v`'s first
+/// significant digit (`123.4` → 3, `0.05` → -1, `0` → 0): with `sig`
+/// significant digits a figure needs `sig - point` decimals.
+pub fn decimal_point(v: f64) -> i64 {
+    if v.is_finite() {
+        Decimal::of(v).point
+    } else {
+        0
+    }
+}
+
+/// `v × 10^shift` (the point moved exactly) with exactly `decimals`
+/// decimals: `(0.145, 2, 0)` → `"15"`, where the binary product
+/// `0.145 * 100 = 14.499999999999998` would give 14.
+pub fn fixed_ascii(v: f64, shift: i64, decimals: usize) -> String {
+    if !v.is_finite() {
+        return NOT_A_NUMBER.to_string();
+    }
+    let mut d = Decimal::of(v);
+    if !d.is_zero() {
+        d.point += shift;
+    }
+    let places = decimals.min(MAX_DECIMALS);
+    d.round_decimals(places);
+    with_sign(v < 0.0, &d, d.render(places))
+}
+
+/// Significant digits a written figure shows: the digits from its first
+/// non-zero digit to its last digit, trailing zeros after a decimal point
+/// included (`"5.40"` → 3, `"0.05"` → 1, `"12,345"` → 5, `"12.3k"` → 3,
+/// `"1,200"` → 4: whole zeros count, they were printed).
+pub fn shown_significant(figure: &str) -> usize {
+    figure
+        .chars()
+        .filter(char::is_ascii_digit)
+        .skip_while(|&c| c == '0')
+        .count()
+}
+
 /// Number of decimals needed to write `step` exactly (after rounding away
 /// float noise at [`MAX_SIGNIFICANT`] digits): `0.25` → 2, `2.5` → 1,
 /// `5` → 0, `0.1 * 3` → 1. Zero, negative steps count by magnitude; NaN and
@@ -271,6 +338,44 @@ pub const COMPACT_SIGNIFICANT: usize = 3;
 /// stripped; NaN and infinities print as `"n/a"`.
 pub fn compact(v: f64) -> String {
     crate::locale::localize_number(compact_ascii(v))
+}
+
+/// [`compact`] with exactly `decimals` decimals in the suffix's unit. The
+/// suffix is chosen after rounding, so a carry moves to the next suffix
+/// (`999_950` to one decimal is `"1.0M"`, not `"1,000.0k"`), and `T` is the
+/// last (`2e12` → `"2.0T"`).
+pub fn compact_fixed_ascii(v: f64, decimals: usize) -> String {
+    if !v.is_finite() {
+        return NOT_A_NUMBER.to_string();
+    }
+    let places = decimals.min(MAX_DECIMALS);
+    let d = Decimal::of(v);
+    let mut power = COMPACT_SUFFIXES
+        .iter()
+        .map(|&(p, _)| p)
+        .find(|&p| !d.is_zero() && d.point > p)
+        .unwrap_or(0);
+    loop {
+        let mut scaled = d.clone();
+        if !scaled.is_zero() {
+            scaled.point -= power;
+        }
+        scaled.round_decimals(places);
+        // the rounding carried to a thousand units: the next suffix
+        if scaled.point > 3 && power < 12 {
+            power += 3;
+            continue;
+        }
+        let suffix = COMPACT_SUFFIXES
+            .iter()
+            .find(|&&(p, _)| p == power)
+            .map_or("", |&(_, s)| s);
+        return with_sign(
+            v < 0.0,
+            &scaled,
+            format!("{}{suffix}", scaled.render(places)),
+        );
+    }
 }
 
 /// [`compact`] in the crescendo convention whatever the locale.

@@ -298,6 +298,13 @@ fn read<'s>(
     Ok((loader, data_start))
 }
 
+/// Whether a cell is a number written with thousands separators
+/// (`1,050`, `1.050,5`, `12 345`), which crescendo does not read as a
+/// number: the help then says so, and never suggests reading it as missing.
+pub fn is_grouped_number(s: &str) -> bool {
+    crate::loader::grouped_number(ColType::Number, s)
+}
+
 /// Parse a plain decimal number: an optional sign, digits with an optional
 /// fraction (`12`, `-3.5`, `.5`, `5.`), and an optional exponent (`1e-3`).
 /// Rejects `inf`, `nan`, hexadecimal, thousands separators, surrounding spaces

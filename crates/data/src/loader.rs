@@ -408,9 +408,22 @@ impl<'s> Loader<'s> {
                     "remove the spaces around `{}` in the data file",
                     show(text.trim())
                 ))
+        } else if grouped_number(ty, text) {
+            // a real value: never suggest reading it as missing
+            d.note("crescendo reads numbers without thousands separators")
+                .help(format!(
+                    "write `{}` without separators in the data file, or declare `{name}` as text",
+                    show(text)
+                ))
+        } else if !looks_missing(text) {
+            // a value in another form ("eighty", "12a"): never suggest
+            // reading it as missing
+            d.help(format!(
+                "correct the cell in the data file, or declare `{name}` as text"
+            ))
         } else {
             d.help(format!(
-                "declare `{name}` as text, or add `{}` to the missing-value tokens",
+                "declare `{name}` as text, or add `{}` to the missing-value tokens if it means no value",
                 show(text)
             ))
         };
@@ -581,8 +594,65 @@ impl<'s> Loader<'s> {
     }
 }
 
+/// Whether a cell reads as a placeholder for "no value" (`n.a.`, `-`,
+/// `null`, `?`): only then does the help suggest the missing-value tokens.
+fn looks_missing(text: &str) -> bool {
+    let t: String = text
+        .trim()
+        .chars()
+        .filter(|c| c.is_alphanumeric())
+        .collect::<String>()
+        .to_lowercase();
+    matches!(
+        t.as_str(),
+        "" | "na" | "nan" | "null" | "nil" | "none" | "missing" | "unknown" | "nd" | "x"
+    )
+}
+
+/// Whether `text` is a number written with thousands separators (`1,050`,
+/// `1.050,5`, `12 345`): digits in groups of three after a separator.
+pub(crate) fn grouped_number(ty: ColType, text: &str) -> bool {
+    if ty != ColType::Number {
+        return false;
+    }
+    let t = text.trim().trim_start_matches(['-', '+']);
+    [',', '.', ' ', '\'', '\u{a0}', '\u{202f}']
+        .iter()
+        .any(|&sep| {
+            let int = match sep {
+                ',' => t.split('.').next().unwrap_or(""),
+                '.' => t.split(',').next().unwrap_or(""),
+                _ => t.split(['.', ',']).next().unwrap_or(""),
+            };
+            let groups: Vec<&str> = int.split(sep).collect();
+            groups.len() > 1
+                && (1..=3).contains(&groups[0].len())
+                && groups.iter().all(|g| g.chars().all(|c| c.is_ascii_digit()))
+                && groups[1..].iter().all(|g| g.len() == 3)
+        })
+}
+
 #[cfg(test)]
 mod tests {
+    #[test]
+    fn grouped_numbers_are_recognised() {
+        use crate::ColType::{Number, Text};
+        for (t, want) in [
+            ("1,050", true),
+            ("12,345,678.5", true),
+            ("1.050,5", true),
+            ("12 345", true),
+            ("-4,625", true),
+            ("1,05", false),
+            ("10,50,000", false),
+            ("n/a", false),
+            ("1050x", false),
+        ] {
+            assert_eq!(super::grouped_number(Number, t), want, "{t}");
+        }
+        assert!(!super::grouped_number(Text, "1,050"));
+    }
+
     use super::*;
 
     #[test]

@@ -161,14 +161,15 @@ pub fn sum(xs: &[f64]) -> Result<f64, StatError> {
 /// is exactly that value.
 pub fn mean(xs: &[f64]) -> Result<f64, StatError> {
     let xs = checked(xs)?;
-    let n = xs.len() as f64;
-    let total = exact_sum(xs.iter().copied());
-    let m = if total.is_finite() {
-        total / n
-    } else {
-        exact_sum(xs.iter().map(|x| x / n))
-    };
-    let m = finite(m)?;
+    // the view engine's mean (one exact summation everywhere: a value's
+    // `mean` and a view's `mean` of the same cells give the same bits; a
+    // total beyond the largest number is carried scaled, so the mean of
+    // huge values is still found)
+    let mut sum = crate::view::Sum::default();
+    for &x in xs {
+        sum.add(x);
+    }
+    let m = finite(sum.mean().unwrap_or(f64::NAN))?;
     Ok(m.clamp(min(xs)?, max(xs)?))
 }
 
@@ -447,6 +448,15 @@ pub fn years_between_months(m0: i32, m1: i32) -> f64 {
 
 #[cfg(test)]
 mod tests {
+    #[test]
+    fn a_mean_of_huge_values_is_found_as_a_view_finds_it() {
+        // the total overflows; the scaled exact sum still gives the mean
+        assert_eq!(mean(&[1.7e308, 1.7e308]), Ok(1.7e308));
+        let m = mean(&[1.7e308, 1.5e308, -1.2e308]).expect("a mean");
+        // (1.7 + 1.5 - 1.2) / 3 × 10^308, worked by hand
+        assert!((m / 6.666_666_666_666_667e307 - 1.0).abs() < 1e-15, "{m}");
+    }
+
     use super::*;
     use crate::time::days_from_civil;
 

@@ -26,6 +26,11 @@ pub struct DeckPlan {
     /// Every named value, formatted plainly (name → figure).
     #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
     pub values: BTreeMap<String, String>,
+    /// Every named number value, exact (the shortest digits that read back
+    /// to the same double), beside its figure in `values`: machine outputs
+    /// carry the exact number.
+    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+    pub exact: BTreeMap<String, f64>,
     /// Every claim and whether it held on this build.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub claims: Vec<ClaimPlan>,

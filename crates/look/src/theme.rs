@@ -427,6 +427,7 @@ mod tests {
             accent: None,
             style,
             values: Default::default(),
+            exact: Default::default(),
             claims: Vec::new(),
             frames: Vec::new(),
             locale: None,

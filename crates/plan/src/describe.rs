@@ -2,10 +2,9 @@
 //! what the axes show, the items, the range and direction of what is
 //! spotlighted, and the takeaway.
 
-use crescendo_data::{format, time};
+use crescendo_data::time;
 
 use crate::model::*;
-use crate::scale::round_to;
 
 /// The text alternative of a frame drawing `chart`; `key` names what its
 /// items are (the chart's key column).
@@ -31,9 +30,9 @@ pub(crate) fn describe(chart: &Chart, key: &str, takeaway: Option<&str>) -> Stri
     out
 }
 
-/// A figure as described: two decimals at most.
+/// A figure as described: as its label (the number policy).
 fn fig(v: f64) -> String {
-    format::number(round_to(v, 2), None)
+    crate::numbers::label(v)
 }
 
 /// " (highlighted)" for an item in focus.
@@ -64,7 +63,7 @@ fn tick_label(axis: &Axis, v: f64) -> String {
             .iter()
             .find(|t| (t.value - v).abs() < 1e-9)
             .map_or_else(String::new, |t| t.label.clone()),
-        ScaleKind::Linear => format::number(v, None),
+        ScaleKind::Linear => fig(v),
     }
 }
 
@@ -182,7 +181,7 @@ fn scatter(s: &ScatterChart) -> String {
     if let Some(f) = &s.fit {
         out.push_str(&format!(
             "; fitted line rises {} per unit{}",
-            format::number(round_to(f.slope, 3), None),
+            fig(f.slope),
             f.r.map_or(String::new(), |r| format!(", correlation {}", fig(r)))
         ));
     }

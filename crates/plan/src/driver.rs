@@ -66,12 +66,8 @@ pub fn plan_story_with(
     let (locale, fiscal_start) = header::read_conventions(src, &story, &mut diags);
     let conventions = crescendo_data::locale::Conventions::of(locale.as_deref(), fiscal_start);
     let mut cx = Ctx::new(src, story_dir, options, io, diags);
-    let mut planned = crescendo_data::locale::scoped(conventions, || {
-        let mut planned = run(&mut cx, &story);
-        // the strings drawn from numbers, in the story's locale
-        planned.plan = crate::drawn::write_drawn_strings(planned.plan);
-        planned
-    });
+    // every drawn string, numbers included, in the story's locale
+    let mut planned = crescendo_data::locale::scoped(conventions, || run(&mut cx, &story));
     planned.plan.locale = locale;
     planned.plan.fiscal_start = fiscal_start;
     let diags = cx.into_diagnostics();
@@ -141,6 +137,15 @@ fn run(cx: &mut Ctx, story: &ast::StoryAst) -> Planned {
             .iter()
             .filter(|(k, _)| k.as_str() != "conclusion")
             .map(|(k, v)| (k.clone(), v.figure()))
+            .collect(),
+        exact: scope
+            .values
+            .by_name
+            .iter()
+            .filter_map(|(k, v)| match v {
+                crate::values::Quantity::Number(x) if x.is_finite() => Some((k.clone(), *x)),
+                _ => None,
+            })
             .collect(),
         claims: claim_plans,
         frames,

@@ -170,6 +170,10 @@ impl Evaluator<'_> {
             Some(f) => {
                 let cond = rows::check_condition(self.src, &schema, &place, f, &mut diags)
                     .ok_or_else(|| diags.clone())?;
+                let unmatched = rows::unmatched_texts(self.src, table, f);
+                if !unmatched.is_empty() {
+                    return Err(unmatched);
+                }
                 // Run the filter through the view engine on a table that
                 // carries the row numbers.
                 let mut t = table.clone();
@@ -193,15 +197,20 @@ impl Evaluator<'_> {
             }
         };
         let mut order = rows.clone();
+        // One rule for every function with `by`: a row without a position
+        // (a missing month, year, date or number) is skipped, and said so.
+        let mut skipped = 0;
         if let Some((bi, _)) = by {
             let col = &table.columns[bi].values;
+            order.retain(|r| position(&col.value(*r)).is_some());
+            skipped = rows.len() - order.len();
             order.sort_by(|a, b| {
                 let pa = position(&col.value(*a)).unwrap_or(f64::INFINITY);
                 let pb = position(&col.value(*b)).unwrap_or(f64::INFINITY);
                 pa.total_cmp(&pb)
             });
         }
-        let describe = match &sel.filter {
+        let mut describe = match &sel.filter {
             Some(f) => format!(
                 "`{}` where `{}`",
                 sel.view.name,
@@ -209,6 +218,13 @@ impl Evaluator<'_> {
             ),
             None => format!("`{}`", sel.view.name),
         };
+        if let (Some((bi, _)), true) = (by, skipped > 0) {
+            describe.push_str(&format!(
+                " ({} without a `{}` skipped)",
+                plural(skipped, "row"),
+                table.columns[bi].name
+            ));
+        }
         Ok(Picked {
             cells: column.map_or_else(Vec::new, |(ci, _)| {
                 order
@@ -262,14 +278,23 @@ impl Evaluator<'_> {
         p: &Picked,
         span: &Span,
     ) -> Vec<Diagnostic> {
+        // an overflow is the data's, not the condition's: the same words as
+        // a view's `sum` that overflows (streamed or loaded)
+        let (code, help) = match e {
+            stats::StatError::Overflow => (
+                "overflow",
+                "look in the data for values far too large: a wrong unit, or a placeholder such as 1e308 written for a missing value",
+            ),
+            _ => ("value", "check the `where` condition against the data"),
+        };
         vec![self
             .err(
-                "value",
+                code,
                 format!("`{fname}` cannot be computed: {}", e.message()),
                 span.clone(),
                 &format!("{} selected from {}", plural(p.rows, "row"), p.describe),
             )
-            .help("check the `where` condition against the data")]
+            .help(help)]
     }
 
     /// `ratio(a, b)`.

@@ -392,3 +392,84 @@ pub fn check_condition(
         }
     }
 }
+
+/// Every equality (`=`, `!=`, `in`) in `expr` between a text column of
+/// `table` and a text literal that matches no value of that column, as a
+/// located error with the closest value as a suggestion: a misspelt
+/// category would otherwise select nothing, silently (and `count` of it is
+/// 0, so a claim on it passes).
+pub fn unmatched_texts(src: &Arc<Source>, table: &Table, expr: &Expr) -> Vec<Diagnostic> {
+    let mut out = Vec::new();
+    unmatched_walk(src, table, expr, &mut out);
+    out
+}
+
+fn unmatched_walk(src: &Arc<Source>, table: &Table, expr: &Expr, out: &mut Vec<Diagnostic>) {
+    let mut check = |col: &Expr, lit: &Expr| {
+        let (Expr::Name(id), Expr::Text(s)) = (col, lit) else {
+            return;
+        };
+        let Some(c) = table
+            .columns
+            .iter()
+            .find(|c| c.name == id.name && c.ty == ColType::Text)
+        else {
+            return;
+        };
+        let mut seen: Vec<String> = Vec::new();
+        for v in c.values.iter() {
+            if let Value::Text(t) = v {
+                if t == s.value {
+                    return;
+                }
+                if !seen.contains(&t) && seen.len() < 10_000 {
+                    seen.push(t);
+                }
+            }
+        }
+        let mut d = Diagnostic::error(
+            "no-match",
+            format!("no row has `{}` = \"{}\"", id.name, s.value),
+        )
+        .at(
+            src,
+            s.span.clone(),
+            "matches no value of this column".to_string(),
+        );
+        d = match closest(&s.value, seen.iter().map(String::as_str)) {
+            Some(c) => d.help(format!("did you mean \"{c}\"?")),
+            None => {
+                let shown: Vec<String> = seen.iter().take(5).map(|t| format!("\"{t}\"")).collect();
+                let more = if seen.len() > 5 { ", …" } else { "" };
+                d.help(format!("`{}` holds {}{more}", id.name, shown.join(", ")))
+            }
+        };
+        out.push(d);
+    };
+    match expr {
+        Expr::Compare {
+            op: BinOp::Eq | BinOp::Ne,
+            left,
+            right,
+            ..
+        } => {
+            check(left, right);
+            check(right, left);
+        }
+        Expr::In {
+            expr: col, list, ..
+        } => {
+            for lit in list {
+                check(col, lit);
+            }
+        }
+        Expr::Not { expr, .. } => unmatched_walk(src, table, expr, out),
+        Expr::Chain { first, rest, .. } => {
+            unmatched_walk(src, table, first, out);
+            for Link { operand, .. } in rest {
+                unmatched_walk(src, table, operand, out);
+            }
+        }
+        _ => {}
+    }
+}

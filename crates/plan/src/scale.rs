@@ -13,7 +13,7 @@
 //! bounded.
 
 use crate::model::{Axis, ScaleKind, Tick};
-use crescendo_data::format::tick_labels;
+// tick labels come from the number policy (`crate::numbers::ticks`)
 use crescendo_data::locale::Fiscal;
 use crescendo_data::time::{civil_from_days, day_label, days_from_civil, month_label, month_name};
 
@@ -360,7 +360,7 @@ fn nonzero_domain(lo: f64, hi: f64) -> [f64; 2] {
 /// range is extended to contain 0; all-zero data then gets the axis
 /// `[0, 1]`, and ticks on the side of zero where there is no data are
 /// dropped (bars of positive values never get a negative tick). Labels come
-/// from [`tick_labels`]. Non-finite bounds are replaced by the other bound,
+/// from the number policy (`crate::numbers::ticks`). Non-finite bounds are replaced by the other bound,
 /// or 0.
 pub fn linear_axis(dmin: f64, dmax: f64, include_zero: bool, title: Option<String>) -> Axis {
     let (lo, hi) = sanitize(dmin, dmax);
@@ -382,7 +382,7 @@ pub fn linear_axis(dmin: f64, dmax: f64, include_zero: bool, title: Option<Strin
         if let (Some(&first), Some(&last)) = (values.first(), values.last()) {
             domain = nonzero_domain(first.min(lo), last.max(hi));
         }
-        let labels = tick_labels(&values, nice.step);
+        let labels = crate::numbers::ticks(&values, nice.step);
         ticks = values
             .into_iter()
             .zip(labels)
@@ -694,34 +694,10 @@ fn year_ticks(lo: f64, hi: f64) -> Vec<Tick> {
         .collect()
 }
 
-/// Decimals needed to show multiples of `step` exactly (0.25 → 2).
-pub(crate) fn decimals_for(step: f64) -> usize {
-    let mut d = 0;
-    let mut s = step.abs();
-    while d < 6 && (s - s.round()).abs() > 1e-9 * s.max(1.0) {
-        s *= 10.0;
-        d += 1;
-    }
-    d
-}
-
-/// `v` rounded to `decimals` decimals.
-pub(crate) fn round_to(v: f64, decimals: usize) -> f64 {
-    let p = 10f64.powi(decimals as i32);
-    (v * p).round() / p
-}
-
-/// The step between an axis's first two ticks (1 with fewer ticks).
-pub(crate) fn tick_step(axis: &Axis) -> f64 {
-    axis.ticks
-        .get(1)
-        .zip(axis.ticks.first())
-        .map_or(1.0, |(b, a)| b.value - a.value)
-}
-
-/// A value label with the precision the axis's ticks suggest.
-pub(crate) fn value_label(v: f64, axis: &Axis) -> String {
-    crescendo_data::format::number(round_to(v, decimals_for(tick_step(axis))), None)
+/// A value label: the number policy's default (three significant digits,
+/// never the axis ticks' coarser precision: a bar of 5.42 reads "5.42").
+pub(crate) fn value_label(v: f64) -> String {
+    crate::numbers::label(v)
 }
 
 #[cfg(test)]
@@ -1143,12 +1119,5 @@ mod tests {
         let a = time_axis(ScaleKind::Years, 2024.0, 2024.0, None);
         assert_eq!(labels(&a), ["2024"]);
         assert!(a.domain[0] < a.domain[1]);
-    }
-
-    #[test]
-    fn decimals_of_steps() {
-        assert_eq!(decimals_for(0.25), 2);
-        assert_eq!(decimals_for(50.0), 0);
-        assert_eq!(decimals_for(0.1), 1);
     }
 }

@@ -49,6 +49,16 @@ pub struct Tables {
     pub(crate) first_text: BTreeMap<(String, String), (usize, String)>,
 }
 
+/// What to say about a cell written with thousands separators (never that
+/// it could be read as missing: it is a real value).
+fn grouped(t: &str) -> &'static str {
+    if data::load::is_grouped_number(t) {
+        ", a number written with thousands separators, which crescendo does not read: write it without them in the data file"
+    } else {
+        ""
+    }
+}
+
 impl Tables {
     /// Why a column is text rather than number: the first cell of the same
     /// column in the table's data that is not a number, as a note such as
@@ -57,8 +67,9 @@ impl Tables {
         let root = &self.by_name.get(table)?.root;
         if let Some((i, t)) = self.first_text.get(&(root.clone(), column.to_string())) {
             return Some(format!(
-                "`{column}` was read as text because data row {} of `{root}` holds `{t}`",
-                i + 1
+                "`{column}` was read as text because data row {} of `{root}` holds `{t}`{}",
+                i + 1,
+                grouped(t)
             ));
         }
         let data = &self.by_name.get(root)?.table;
@@ -68,8 +79,9 @@ impl Tables {
         }
         col.values.iter().enumerate().find_map(|(i, v)| match v {
             Value::Text(t) if data::load::parse_number(&t).is_none() => Some(format!(
-                "`{column}` was read as text because data row {} of `{root}` holds `{t}`",
-                i + 1
+                "`{column}` was read as text because data row {} of `{root}` holds `{t}`{}",
+                i + 1,
+                grouped(&t)
             )),
             _ => None,
         })

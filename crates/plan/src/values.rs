@@ -358,14 +358,17 @@ impl Evaluator<'_> {
             BinOp::Gt => ord == Greater,
             _ => ord != Less,
         };
+        // numbers with the digits that show them apart
+        let (ls, rs) = match (&l, &r) {
+            (Quantity::Number(a), Quantity::Number(b)) => crate::numbers::apart(*a, *b),
+            _ => (l.figure(), r.figure()),
+        };
         shown.push(format!(
-            "{} {} {}: {} {} {} is {}",
+            "{} {} {}: {ls} {} {rs} is {}",
             text(left),
             op.symbol(),
             text(right),
-            l.figure(),
             op.symbol(),
-            r.figure(),
             if holds { "true" } else { "false" }
         ));
         Ok(holds)
@@ -396,47 +399,19 @@ impl Evaluator<'_> {
             tolerance.amount
         };
         let holds = (a - b).abs() <= allowed * (1.0 + 1e-12);
-        let tol = if tolerance.relative {
-            format!(
-                "{}%",
-                crescendo_data::format::number(tolerance.amount * 100.0, None)
-            )
-        } else {
-            Quantity::Number(tolerance.amount).figure()
-        };
+        // the tolerance as written; operands and difference with the
+        // digits that show them apart (the difference from what is allowed)
+        let tol = crate::numbers::tolerance(tolerance.amount, tolerance.relative);
+        let (ls, rs) = crate::numbers::apart(*a, *b);
+        let (diff, _) = crate::numbers::apart((a - b).abs(), allowed);
         shown.push(format!(
-            "{} about {} within {tol}: {} is {} {} (difference {})",
+            "{} about {} within {tol}: {ls} is {} {tol} of {rs} (difference {diff})",
             text(left),
             text(right),
-            l.figure(),
             if holds { "within" } else { "not within" },
-            format_args!("{tol} of {}", r.figure()),
-            Quantity::Number((a - b).abs()).figure()
         ));
         Ok(holds)
     }
-}
-
-/// Default number of decimals for a figure without `.N`: fewer as numbers
-/// grow (common practice: about three significant digits for small values,
-/// whole numbers from 100 up).
-fn default_decimals(v: f64) -> usize {
-    let a = v.abs();
-    if a >= 100.0 {
-        0
-    } else if a >= 10.0 {
-        1
-    } else {
-        2
-    }
-}
-
-fn strip_zeros(s: String) -> String {
-    if !s.contains('.') {
-        return s;
-    }
-    let t = s.trim_end_matches('0').trim_end_matches('.');
-    t.to_string()
 }
 
 /// Format a quantity with a format spec. Rounding is half away from zero on
@@ -467,47 +442,7 @@ pub fn format_quantity(q: &Quantity, spec: &FormatSpec) -> String {
         Quantity::Time(ColType::Month, m) => time::month_label(*m),
         Quantity::Time(ColType::Date, d) => time::date_iso(*d),
         Quantity::Time(_, y) => y.to_string(),
-        Quantity::Number(v) => {
-            let (scaled, suffix) = match spec.style {
-                NumberStyle::Percent => (v * 100.0, "%"),
-                _ => (*v, ""),
-            };
-            let body = if spec.style == NumberStyle::Compact && spec.decimals.is_none() {
-                crescendo_data::format::compact_ascii(scaled.abs())
-            } else if spec.style == NumberStyle::Compact {
-                let (div, unit) = match scaled.abs() {
-                    a if a >= 1e9 => (1e9, "B"),
-                    a if a >= 1e6 => (1e6, "M"),
-                    a if a >= 1e3 => (1e3, "k"),
-                    _ => (1.0, ""),
-                };
-                format!(
-                    "{}{unit}",
-                    crescendo_data::format::number_ascii(scaled.abs() / div, spec.decimals)
-                )
-            } else {
-                match spec.decimals {
-                    Some(d) => crescendo_data::format::number_ascii(scaled.abs(), Some(d)),
-                    None => strip_zeros(crescendo_data::format::number_ascii(
-                        scaled.abs(),
-                        Some(default_decimals(scaled)),
-                    )),
-                }
-            };
-            let is_zero = body
-                .chars()
-                .all(|c| matches!(c, '0' | '.' | ',' | 'k' | 'M' | 'B' | 'T'));
-            // the locale's symbols and groups, after the digits are chosen
-            let body = crescendo_data::locale::localize_number(body);
-            let sign = if scaled < 0.0 && !is_zero {
-                "-"
-            } else if spec.sign && scaled > 0.0 && !is_zero {
-                "+"
-            } else {
-                ""
-            };
-            format!("{sign}{body}{suffix}")
-        }
+        Quantity::Number(v) => crate::numbers::figure(*v, spec),
     }
 }
 
@@ -550,6 +485,9 @@ pub struct Resolved {
     pub template: Option<String>,
     /// Value names quoted, with the figure as printed.
     pub quoted: Vec<(String, String)>,
+    /// Each quoted number with its figure (labels of the same quantity
+    /// print the same way, `numbers::write_labels`).
+    pub numbers: Vec<crate::numbers::Quoted>,
     /// Every value name the text depends on (transitively).
     pub depends: BTreeSet<String>,
 }
@@ -562,11 +500,13 @@ pub fn resolve_text(ev: &Evaluator, s: &Text, diags: &mut Vec<Diagnostic>) -> Re
             text: s.value.clone(),
             template: None,
             quoted: Vec::new(),
+            numbers: Vec::new(),
             depends: BTreeSet::new(),
         };
     }
     let mut text = String::new();
     let mut quoted = Vec::new();
+    let mut numbers = Vec::new();
     let mut names = BTreeSet::new();
     for part in &template.parts {
         match part {
@@ -589,9 +529,17 @@ pub fn resolve_text(ev: &Evaluator, s: &Text, diags: &mut Vec<Diagnostic>) -> Re
                             text.push('?');
                             continue;
                         }
-                        let fig = format_quantity(&q, format);
+                        let fig = crate::numbers::drawn(format_quantity(&q, format));
                         // the expression as written, without its format
                         let key = ev.src.text.get(written.clone()).unwrap_or("").to_string();
+                        if let Quantity::Number(value) = q {
+                            numbers.push(crate::numbers::Quoted {
+                                value,
+                                figure: fig.clone(),
+                                style: format.style,
+                                sign: format.sign,
+                            });
+                        }
                         quoted.push((key, fig.clone()));
                         text.push_str(&fig);
                     }
@@ -613,6 +561,7 @@ pub fn resolve_text(ev: &Evaluator, s: &Text, diags: &mut Vec<Diagnostic>) -> Re
         text,
         template: Some(raw),
         quoted,
+        numbers,
         depends: ev.values.closure(&names),
     }
 }

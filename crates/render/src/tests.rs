@@ -100,6 +100,7 @@ fn deck(frames: Vec<FramePlan>) -> DeckPlan {
         accent: None,
         style: None,
         values: Default::default(),
+        exact: Default::default(),
         claims: Vec::new(),
         frames,
         locale: None,

@@ -20,6 +20,7 @@ mod measure_unnamed;
 mod panels_own_scales;
 mod pie_crowded;
 mod shades_crowded;
+mod sign_doubled;
 mod small_counts;
 mod source_missing;
 mod spotlight_crowd;
@@ -48,6 +49,7 @@ pub static RULES: &[&Rule] = &[
     &measure_unnamed::RULE,
     &ticks_crowded::RULE,
     &trailing_zeros::RULE,
+    &sign_doubled::RULE,
     &axes_shift::RULE,
     &headline_cut::RULE,
     &text_small::RULE,

@@ -48,8 +48,7 @@ impl FormPlanner for Bars {
             .map(|(label, v, _)| Bar {
                 label: label.clone(),
                 value: *v,
-                value_label: v
-                    .map_or_else(|| "no data".to_string(), |v| scale::value_label(v, &value)),
+                value_label: v.map_or_else(|| "no data".to_string(), scale::value_label),
                 role: Role::Context,
             })
             .collect();

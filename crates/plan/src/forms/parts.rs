@@ -53,10 +53,12 @@ pub(crate) fn chart(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Se
         .map(|&i| PartCategory {
             label: grid.cats[i].0.clone(),
             values: grid.values[i].clone(),
-            total_label: scale::value_label(
-                stats::total(grid.values[i].iter().flatten().copied()),
-                &value,
-            ),
+            // a category whose parts are all missing has no total
+            total_label: if grid.values[i].iter().all(Option::is_none) {
+                "no data".to_string()
+            } else {
+                scale::value_label(stats::total(grid.values[i].iter().flatten().copied()))
+            },
             role: Role::Context,
         })
         .collect();

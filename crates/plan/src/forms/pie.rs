@@ -1,6 +1,6 @@
 //! Pies: shares of a whole, largest slice first.
 
-use crescendo_data::{format, stats};
+use crescendo_data::stats;
 use crescendo_lang::ast::{ChartStmt, OptName};
 
 use crate::context::{Ctx, Outcome};
@@ -9,7 +9,6 @@ use crate::forms::grid;
 use crate::forms::options::{column, Opt};
 use crate::forms::spec::{self, ChartSpec};
 use crate::model::*;
-use crate::scale::round_to;
 use crate::sequence::SeqState;
 
 pub(crate) struct Pie;
@@ -64,10 +63,7 @@ impl FormPlanner for Pie {
                         label,
                         value,
                         share,
-                        share_label: format!(
-                            "{}%",
-                            format::number(round_to(share * 100.0, 0), None)
-                        ),
+                        share_label: crate::numbers::share_label(share),
                         role: Role::Context,
                     }
                 })

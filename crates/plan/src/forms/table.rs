@@ -2,7 +2,7 @@
 
 use std::collections::BTreeSet;
 
-use crescendo_data::{format, ColType, Value};
+use crescendo_data::{ColType, Value};
 use crescendo_lang::ast::ChartStmt;
 
 use crate::context::{Ctx, Outcome};
@@ -11,7 +11,6 @@ use crate::forms::options::Opt;
 use crate::forms::spec::{self, ChartSpec, SpecInput};
 use crate::labels::{display, humanize, number};
 use crate::model::*;
-use crate::scale::{decimals_for, round_to};
 use crate::sequence::SeqState;
 
 pub(crate) struct Table;
@@ -35,18 +34,12 @@ impl FormPlanner for Table {
                 numeric: c.ty == ColType::Number,
             })
             .collect();
-        // Per column, decimals enough for its values but no more than 2.
+        // Per column, one number of decimals (the figures line up), enough
+        // for three significant digits of each value (the number policy).
         let decimals: Vec<usize> = t
             .columns
             .iter()
-            .map(|c| {
-                c.values
-                    .iter()
-                    .filter_map(|v| number(&v))
-                    .map(|v| decimals_for(round_to(v, 2)).min(2))
-                    .max()
-                    .unwrap_or(0)
-            })
+            .map(|c| crate::numbers::column_decimals(c.values.iter().filter_map(|v| number(&v))))
             .collect();
         let first = t.columns.first();
         let mut rows = Vec::with_capacity(n);
@@ -65,7 +58,7 @@ impl FormPlanner for Table {
                 .iter()
                 .zip(&decimals)
                 .map(|(c, d)| match &c.values.value(r) {
-                    Value::Number(v) => format::number(*v, Some(*d)),
+                    Value::Number(v) => crate::numbers::cell(*v, *d),
                     Value::Missing => "–".to_string(),
                     other => display(other),
                 })

@@ -361,7 +361,10 @@ fn finish(
         if let Some(n) = &shown {
             st.hidden.remove(n);
         }
-        let chart = roles::apply_state(st);
+        let mut chart = roles::apply_state(st);
+        // labels of quantities the texts quote print as quoted, in the
+        // chart and in its description alike
+        crate::numbers::write_labels(&mut chart, &said.texts.numbers);
         let description = describe(&chart, &st.key_name, said.takeaway.as_deref());
         // The slug comes from the headline as written, so file names stay
         // the same when the quoted numbers change.

@@ -3,7 +3,7 @@
 //! (`trim` cuts each panel to its extent on the common step; `own scales`
 //! gives each panel its own scale, which the lint flags).
 
-use crescendo_data::{format, stats};
+use crescendo_data::stats;
 use crescendo_lang::ast::SplitStmt;
 
 use crate::context::{Ctx, Outcome};
@@ -103,7 +103,7 @@ fn part_panel(p: &PartsChart, i: usize) -> PanelDraft {
             Bar {
                 label: c.label.clone(),
                 value: v,
-                value_label: v.map_or_else(|| "no data".into(), |v| format::number(v, None)),
+                value_label: v.map_or_else(|| "no data".into(), crate::numbers::label),
                 role: Role::Context,
             }
         })

@@ -11,6 +11,8 @@ pub(crate) struct FrameTexts {
     pub(crate) quoted: BTreeMap<String, String>,
     pub(crate) templates: BTreeMap<String, String>,
     pub(crate) depends: BTreeSet<String>,
+    /// Each quoted number with its figure.
+    pub(crate) numbers: Vec<crate::numbers::Quoted>,
 }
 
 impl FrameTexts {
@@ -22,5 +24,6 @@ impl FrameTexts {
             self.templates.insert(field.to_string(), t.clone());
         }
         self.depends.extend(r.depends.iter().cloned());
+        self.numbers.extend(r.numbers.iter().cloned());
     }
 }

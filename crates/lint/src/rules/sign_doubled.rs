@@ -1,0 +1,118 @@
+//! `sign-doubled`: a word of direction before a signed figure ("up +103%").
+
+use crescendo_diag::Severity;
+
+use super::util::{frames, quoting_span};
+use crate::{Doc, Finding, Input, Rule};
+
+pub static RULE: Rule = Rule {
+    name: "sign-doubled",
+    severity: Severity::Advice,
+    summary: "a word of direction stands before a figure that carries its own sign",
+    doc: Doc {
+        before: "frame \"Tickets up {growth as signed percent}\" {   # prints Tickets up +478%",
+        after: "frame \"Tickets up {growth as percent}\" {   # prints Tickets up 478%",
+        why:
+            "\"Up +103%\" says the direction twice, and \"down −4%\" reads as a double negative:\n\
+              down by minus four percent is up. Say the direction once, in the word or in the\n\
+              sign (common practice of editing figures in prose).",
+    },
+    check,
+};
+
+/// Words that already say which way a figure went.
+const DIRECTION: &[&str] = &[
+    "up",
+    "down",
+    "rose",
+    "rise",
+    "rises",
+    "fell",
+    "fall",
+    "falls",
+    "grew",
+    "grow",
+    "grows",
+    "gained",
+    "gain",
+    "gains",
+    "lost",
+    "lose",
+    "loses",
+    "increased",
+    "increase",
+    "decreased",
+    "decrease",
+    "dropped",
+    "drop",
+    "drops",
+    "climbed",
+    "climb",
+    "declined",
+    "decline",
+    "shrank",
+];
+
+/// Whether `text` holds a direction word (optionally followed by "by")
+/// right before `figure`, a figure starting with a sign.
+fn doubled(text: &str, figure: &str) -> bool {
+    if !figure.starts_with(['+', '-', '\u{2212}']) {
+        return false;
+    }
+    text.match_indices(figure).any(|(at, _)| {
+        let before = text.get(..at).unwrap_or("");
+        let mut words = before.split_whitespace().rev().map(|w| {
+            w.trim_start_matches(|c: char| !c.is_alphanumeric())
+                .to_lowercase()
+        });
+        // the figure must follow a space, not stand inside a word
+        if !before.ends_with(char::is_whitespace) {
+            return false;
+        }
+        match words.next() {
+            Some(w) if w == "by" => words
+                .next()
+                .is_some_and(|w| DIRECTION.contains(&w.as_str())),
+            Some(w) => DIRECTION.contains(&w.as_str()),
+            None => false,
+        }
+    })
+}
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    for (i, f, a) in frames(input) {
+        let texts = [Some(&f.headline), f.takeaway.as_ref(), f.notes.as_ref()];
+        for (name, figure) in &f.quoted {
+            if texts.iter().flatten().any(|t| doubled(t, figure)) {
+                out.push(Finding {
+                    frame: Some(i),
+                    span: quoting_span(f, a, name),
+                    label: format!("`{name}` prints as {figure}"),
+                    message: format!("a word of direction already stands before \"{figure}\""),
+                    fix: format!("quote `{name}` without `signed`, or drop the word"),
+                });
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::doubled;
+
+    #[test]
+    fn direction_words_before_signed_figures() {
+        for (text, figure, want) in [
+            ("Loans up +103%", "+103%", true),
+            ("Visits fell by \u{2212}4%", "\u{2212}4%", true),
+            ("Visits Fell, -4", "-4", false), // a comma: not right before
+            ("Visits fell -4", "-4", true),
+            ("Loans +103% on last year", "+103%", false),
+            ("Loans up 103%", "103%", false),
+            ("Setup +3", "+3", false),
+            ("A change of +3", "+3", false),
+        ] {
+            assert_eq!(doubled(text, figure), want, "{text}");
+        }
+    }
+}
