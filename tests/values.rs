@@ -316,3 +316,120 @@ fn a_format_fits_its_value_or_is_a_located_error() {
         assert_eq!(errs[0].location().map(|(_, l, c)| (l, c)), Some((5, 10)));
     }
 }
+
+/// The four spreads against Python's `statistics` module (`variance`,
+/// `pvariance`, `stdev`, `pstdev`: exact rational arithmetic rounded once)
+/// on the Palmer penguins data (CC0; `crates/data/tests/fixtures/README.md`),
+/// per species and for all rows. Reference written by
+/// `tests/fixtures/spread/make_spread_expected.py` into
+/// `spread_expected.json`. The functions themselves must give the same
+/// double as Python, bit for bit (their sums of squares are exact); the
+/// story's values, quoted to 12 decimals, the same figures.
+#[test]
+fn spreads_match_python_statistics() {
+    use crescendo_data::stats;
+    let csv_path = root().join("crates/data/tests/fixtures/penguins.csv");
+    let text = fs::read_to_string(&csv_path).unwrap();
+    let expected: Value = serde_json::from_str(
+        &fs::read_to_string(root().join("tests/fixtures/spread/spread_expected.json")).unwrap(),
+    )
+    .unwrap();
+    let mut lines = text.lines();
+    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let rows: Vec<Vec<&str>> = lines.map(|l| l.split(',').collect()).collect();
+    let col = |name: &str| header.iter().position(|h| *h == name).unwrap();
+    let functions: [(&str, fn(&[f64]) -> Result<f64, stats::StatError>); 4] = [
+        ("sample_variance", stats::sample_variance),
+        ("population_variance", stats::population_variance),
+        (
+            "sample_standard_deviation",
+            stats::sample_standard_deviation,
+        ),
+        (
+            "population_standard_deviation",
+            stats::population_standard_deviation,
+        ),
+    ];
+    let dir = scratch("spreads");
+    fs::copy(&csv_path, dir.join("penguins.csv")).unwrap();
+    let mut story =
+        String::from("story \"Spreads\"\ndata p from \"penguins.csv\" missing \"NA\"\n");
+    let mut notes = Vec::new();
+    let mut wanted = Vec::new();
+    let mut checked = 0;
+    for (group, columns) in expected["groups"].as_object().unwrap() {
+        for (column, figures) in columns.as_object().unwrap() {
+            let c = col(column);
+            let xs: Vec<f64> = rows
+                .iter()
+                .filter(|r| group == "(all)" || r[0] == group)
+                .filter_map(|r| r[c].parse().ok())
+                .collect();
+            assert_eq!(xs.len() as u64, figures["n"].as_u64().unwrap());
+            let filter = if group == "(all)" {
+                String::new()
+            } else {
+                format!(" where species = \"{group}\"")
+            };
+            for (name, f) in functions {
+                let want: f64 = figures[name].as_str().unwrap().parse().unwrap();
+                let got = f(&xs).unwrap();
+                assert_eq!(
+                    got.to_bits(),
+                    want.to_bits(),
+                    "{name} of {column} ({group}): {got:e} against Python's {want:e}"
+                );
+                checked += 1;
+                let v = format!("v{}", notes.len());
+                writeln!(story, "value {v} = {name}(p.{column}{filter})").unwrap();
+                notes.push(format!("{{{v} to 12 decimals}}"));
+                wanted.push(want);
+            }
+        }
+    }
+    assert_eq!(checked, 4 * 4 * 4);
+    writeln!(
+        story,
+        "frame \"f\" {{\n  figure \"1\" \"one\"\n  notes \"{}\"\n}}",
+        notes.join("|")
+    )
+    .unwrap();
+    let (quoted, _) = quoted(&dir, &story);
+    assert_eq!(quoted.len(), wanted.len());
+    for (q, want) in quoted.iter().zip(&wanted) {
+        let got = figure(q);
+        assert!(
+            (got - want).abs() <= 1e-12 * want.abs().max(1.0),
+            "{got} against {want}"
+        );
+    }
+}
+
+/// A bare `variance` or `stdev` is refused with both names and their
+/// divisors, so a story always says which spread it means.
+#[test]
+fn a_spread_must_say_sample_or_population() {
+    let dir = scratch("spread-names");
+    fs::write(dir.join("d.csv"), "x\n1\n2\n4\n").unwrap();
+    for (bare, named) in [
+        ("variance", "sample_variance"),
+        ("stdev", "sample_standard_deviation"),
+        ("sd", "population_standard_deviation"),
+    ] {
+        let story = format!(
+            "story \"s\"\ndata d from \"d.csv\"\nvalue v = {bare}(d.x)\nframe \"f\" {{\n  notes \"{{v}}\"\n}}\n"
+        );
+        let src = Source::file("test.cresc", story);
+        let Err(diags) = crescendo_plan::plan_story(&src, &dir, &Default::default()) else {
+            panic!("`{bare}` was accepted");
+        };
+        let text = crescendo_diag::render(&diags, false);
+        assert!(text.contains("sample or population"), "{text}");
+        assert!(text.contains(named) && text.contains("n − 1"), "{text}");
+    }
+    // With the names spelt out, 1, 2, 4: mean 7/3, squares 14/3.
+    fs::write(dir.join("d.csv"), "x\n1\n2\n4\n").unwrap();
+    let story = "story \"s\"\ndata d from \"d.csv\"\nvalue a = sample_variance(d.x)\nvalue b = population_variance(d.x)\nframe \"f\" {\n  figure \"1\" \"one\"\n  notes \"{a to 6 decimals}|{b to 6 decimals}\"\n}\n";
+    let (q, _) = quoted(&dir, story);
+    assert_eq!(q, ["2.333333", "1.555556"]);
+}
