@@ -3,23 +3,38 @@
 //! label. Everything the renderer draws is in the plan, already written in
 //! the story's locale; the renderer formats nothing.
 
+use crescendo_lang::ast::FormatSpec;
+
 use crate::model::{Axis, Chart, DeckPlan, Fit, LineChart, Role};
 
 /// Fills in the drawn strings of every frame. Must run inside the story's
 /// locale scope (`crescendo_data::locale::scoped`).
 pub(crate) fn write_drawn_strings(mut plan: DeckPlan) -> DeckPlan {
     for frame in &mut plan.frames {
-        match &mut frame.chart {
-            Chart::Line(chart) if chart.end_labels => end_values(chart),
-            Chart::Scatter(chart) => {
-                if let Some(fit) = &mut chart.fit {
-                    fit.label = fit_label(fit);
-                }
-            }
-            _ => {}
-        }
+        drawn_strings(&mut frame.chart);
     }
     plan
+}
+
+fn drawn_strings(chart: &mut Chart) {
+    match chart {
+        Chart::Line(chart) if chart.end_labels => end_values(chart),
+        Chart::Scatter(chart) => {
+            if let Some(fit) = &mut chart.fit {
+                fit.label = fit_label(fit);
+            }
+        }
+        // A scatter's panels each have their own fit (line panels draw no
+        // end values, so they are left as they are).
+        Chart::Panels(p) => {
+            for panel in &mut p.panels {
+                if let Chart::Scatter(_) = panel.chart {
+                    drawn_strings(&mut panel.chart);
+                }
+            }
+        }
+        _ => {}
+    }
 }
 
 /// The values at the first and last point with a value of every series
@@ -56,10 +71,19 @@ fn end_values(chart: &mut LineChart) {
     }
 }
 
-/// The fit's label: `fit: r = 0.82` (r to two decimals, no trailing zeros).
+/// The fit's label: `fit: r = 0.82`, r written as a story's text writes
+/// `{r to 2 decimals}` (the same figure, digits and signs as a headline
+/// that quotes the correlation).
 fn fit_label(fit: &Fit) -> String {
+    let spec = FormatSpec {
+        decimals: Some(2),
+        ..FormatSpec::default()
+    };
     match fit.r.filter(|r| r.is_finite()) {
-        Some(r) => format!("fit: r = {}", number(r, 2, false)),
+        Some(r) => format!(
+            "fit: r = {}",
+            crate::values::format_quantity(&crate::values::Quantity::Number(r), &spec)
+        ),
         None => "fit".to_string(),
     }
 }
@@ -151,6 +175,8 @@ mod tests {
     }
 
     #[test]
+    /// r as a story's text writes `{r to 2 decimals}`: trailing zeros kept,
+    /// so the label and a takeaway that quotes r print the same figure.
     fn fit_labels_round_r_to_two_decimals() {
         let fit = |r| Fit {
             slope: 1.0,
@@ -159,9 +185,9 @@ mod tests {
             label: String::new(),
         };
         assert_eq!(fit_label(&fit(Some(0.8234))), "fit: r = 0.82");
-        assert_eq!(fit_label(&fit(Some(0.8))), "fit: r = 0.8");
+        assert_eq!(fit_label(&fit(Some(0.8))), "fit: r = 0.80");
         assert_eq!(fit_label(&fit(Some(-0.456))), "fit: r = -0.46");
-        assert_eq!(fit_label(&fit(Some(1.0))), "fit: r = 1");
+        assert_eq!(fit_label(&fit(Some(1.0))), "fit: r = 1.00");
         assert_eq!(fit_label(&fit(None)), "fit");
     }
 }

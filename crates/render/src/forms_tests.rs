@@ -388,6 +388,7 @@ fn scatter_chart(hide: bool) -> Chart {
                 x,
                 y: 5.0 + x * 0.6 + ((i * 7) % 5) as f64 * 4.0,
                 label: n.to_string(),
+                series: String::new(),
                 role: match i {
                     3 | 8 => Role::Focus,
                     5 if hide => Role::Hidden,

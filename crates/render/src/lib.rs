@@ -33,6 +33,7 @@ mod parts;
 mod pie;
 pub mod plugin;
 mod scatter;
+mod scatter_grid;
 pub mod svg;
 mod table;
 pub mod theme;

@@ -71,6 +71,9 @@ pub(crate) fn draw(
     if n == 0 {
         return Ok(());
     }
+    if crate::scatter_grid::all_scatters(chart) {
+        return crate::scatter_grid::draw(canvas, theme, chart, region);
+    }
     for p in &chart.panels {
         let axis = value_axis(&p.chart)
             .ok_or_else(|| RenderError::new("a panel holds a line or bar chart only"))?;
@@ -475,7 +478,7 @@ fn lead_width(
 
 /// A panel's title at the top of its cell, bold, in the accent when the
 /// panel is in focus, cut to fit `x..right`.
-fn panel_title(
+pub(crate) fn panel_title(
     canvas: &Canvas,
     theme: &Theme,
     panel: &Panel,
