@@ -153,6 +153,90 @@ fn new_chooses_the_form_from_the_shape_and_the_story_builds_clean() {
     }
 }
 
+/// `crescendo new` on three real open data sets shipped inside the
+/// statsmodels package (public domain; `tests/starters/README.md`, exported
+/// by `tests/starters/export_datasets.py`) and on Anscombe's quartet
+/// (`tests/anscombe/`): each starter builds clean under `--strict`,
+/// proposes the expected forms, sums no code or rate column and adds no two
+/// measures together.
+#[test]
+fn new_makes_sense_of_real_data() {
+    let dir = scratch("new-real");
+    // (file, folder, forms the profile must propose, columns never summed)
+    let cases: [(&str, &str, &[&str], &[&str]); 4] = [
+        (
+            "macrodata.csv",
+            "tests/starters",
+            &[
+                "line of realgdp over year (quarter folded into year)",
+                "averaged per year, never summed",
+                "scatter of cpi against realgdp (two measures, never added)",
+                "codes and identifiers (not measures): none",
+                "parts of a time (folded into the year): quarter",
+                "rates and levels (averaged, never summed): realgdp, cpi, unemp, infl, realint",
+            ],
+            &[
+                "quarter", "realgdp", "cpi", "unemp", "infl", "realint", "year",
+            ],
+        ),
+        (
+            "grunfeld.csv",
+            "tests/starters",
+            &[
+                "line of invest over year (change over time; a rate or level, averaged",
+                "scatter of value against invest",
+            ],
+            &["invest", "value", "capital", "year"],
+        ),
+        (
+            "longley.csv",
+            "tests/starters",
+            &[
+                "line of TOTEMP over YEAR",
+                "codes and identifiers (not measures): Obs",
+                "scatter of GNPDEFL against TOTEMP",
+            ],
+            &["Obs", "GNPDEFL", "UNEMP", "YEAR"],
+        ),
+        (
+            "anscombe.csv",
+            "tests/anscombe",
+            &[
+                "scatter of y against x, one panel per set on one scale",
+                "codes and identifiers (not measures): observation",
+            ],
+            &["x", "y", "observation"],
+        ),
+    ];
+    for (csv, folder, forms, never_summed) in cases {
+        fs::copy(root().join(folder).join(csv), dir.join(csv)).expect("copy");
+        let (story, summary) = new_story_builds_clean(&dir, csv);
+        for form in forms {
+            assert!(summary.contains(form), "{csv}: no `{form}` in\n{summary}");
+        }
+        for col in never_summed {
+            assert!(
+                !story.contains(&format!("sum({col})")),
+                "{csv}: sums {col}:\n{story}"
+            );
+        }
+        // No two measures added: no computed columns, no `+` outside texts.
+        for line in story.lines().filter(|l| !l.trim_start().starts_with('#')) {
+            let code: String = line.split('"').step_by(2).collect();
+            assert!(
+                !code.contains("| add ") && !code.contains('+'),
+                "{csv}: {line}"
+            );
+        }
+        // The first frame's headline states a fact protected by a claim.
+        assert!(
+            story.contains("# The headline below states this"),
+            "{story}"
+        );
+        assert!(!summary.contains("sum of"), "{summary}");
+    }
+}
+
 #[test]
 fn new_snapshots_one_story_and_one_profile() {
     let dir = scratch("new-snapshot");

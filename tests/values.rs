@@ -338,7 +338,8 @@ fn spreads_match_python_statistics() {
     let header: Vec<&str> = lines.next().unwrap().split(',').collect();
     let rows: Vec<Vec<&str>> = lines.map(|l| l.split(',').collect()).collect();
     let col = |name: &str| header.iter().position(|h| *h == name).unwrap();
-    let functions: [(&str, fn(&[f64]) -> Result<f64, stats::StatError>); 4] = [
+    type Spread = fn(&[f64]) -> Result<f64, stats::StatError>;
+    let functions: [(&str, Spread); 4] = [
         ("sample_variance", stats::sample_variance),
         ("population_variance", stats::population_variance),
         (

@@ -8,6 +8,7 @@ use crescendo_data::load::{load_csv, CsvSpec, LoadError};
 use crescendo_data::{ColType, Table, Value};
 use crescendo_diag::Diagnostic;
 
+use super::roles::{role_of, ColumnRole};
 use super::shape::{why, Shape};
 
 /// What one column holds.
@@ -23,6 +24,8 @@ pub struct ColumnProfile {
     pub longest: usize,
     /// Usable as a name in a story.
     pub nameable: bool,
+    /// A measure (amount or rate), a code, a part of a time, or other.
+    pub role: ColumnRole,
 }
 
 /// The profile of a file.
@@ -74,7 +77,8 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
     let columns = table
         .columns
         .iter()
-        .map(|c| {
+        .enumerate()
+        .map(|(i, c)| {
             let mut seen = std::collections::BTreeSet::new();
             let mut missing = 0;
             let mut longest = 0;
@@ -111,6 +115,7 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
                 range,
                 longest,
                 nameable: is_name(&c.name),
+                role: role_of(&table, i),
             }
         })
         .collect();
@@ -228,7 +233,39 @@ pub fn summary(p: &Profile, shape: Option<&Shape>) -> String {
         }
     };
     let _ = writeln!(s, "time columns: {}", list(&|t: ColType| t.is_time()));
-    let _ = writeln!(s, "measures: {}", list(&|t| t == ColType::Number));
+    let roles = |r: &dyn Fn(ColumnRole) -> bool| {
+        let v: Vec<String> = p
+            .columns
+            .iter()
+            .filter(|c| c.ty == ColType::Number && r(c.role))
+            .map(|c| c.name.clone())
+            .collect();
+        if v.is_empty() {
+            "none".to_string()
+        } else {
+            v.join(", ")
+        }
+    };
+    let _ = writeln!(
+        s,
+        "amounts (summed): {}",
+        roles(&|r| r == ColumnRole::Amount)
+    );
+    let _ = writeln!(
+        s,
+        "rates and levels (averaged, never summed): {}",
+        roles(&|r| r == ColumnRole::Rate)
+    );
+    let _ = writeln!(
+        s,
+        "codes and identifiers (not measures): {}",
+        roles(&|r| r == ColumnRole::Code)
+    );
+    let _ = writeln!(
+        s,
+        "parts of a time (folded into the year): {}",
+        roles(&|r| matches!(r, ColumnRole::Quarter | ColumnRole::MonthNumber))
+    );
     let _ = writeln!(s, "categories: {}", list(&|t| t == ColType::Text));
     if let Some(shape) = shape {
         let _ = writeln!(s, "chart: {}", why(shape));
