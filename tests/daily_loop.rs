@@ -113,7 +113,31 @@ fn synthetic() -> Vec<(&'static str, String, &'static str)> {
         };
         missing += &format!("2024-03-{d:02},{v}\n");
     }
+    // A long file of rates: one row per year and indicator, with a decade
+    // column beside; the indicators are different measures.
+    let mut rates = String::from("year,decade,indicator,rate\n");
+    let mut many = String::from("year,indicator,value\n");
+    for y in 1971..=2020 {
+        for (i, ind) in ["unemployment", "inflation", "interest"].iter().enumerate() {
+            let r = 2.0 + i as f64 * 1.5 + ((y * 7 + i * 3) % 11) as f64 / 4.0;
+            rates += &format!("{y},{}0s,{ind},{r}\n", y / 10);
+        }
+        for i in 0..8 {
+            let v = 10.0 + i as f64 + ((y * 5 + i) % 9) as f64 / 2.0;
+            many += &format!("{y},series_{i},{v}\n");
+        }
+    }
     vec![
+        (
+            "long_rates.csv",
+            rates,
+            "line of rate over year, one line per indicator (change over time; a rate or level",
+        ),
+        (
+            "many_indicators.csv",
+            many,
+            "only indicator = series_0 (each indicator is its own series, never averaged together)",
+        ),
         (
             "time_series.csv",
             series,
@@ -240,7 +264,7 @@ fn new_makes_sense_of_real_data() {
 #[test]
 fn new_snapshots_one_story_and_one_profile() {
     let dir = scratch("new-snapshot");
-    let (name, csv, _) = synthetic().remove(0);
+    let (name, csv, _) = synthetic().remove(2);
     fs::write(dir.join(name), csv).expect("write csv");
     let (story, summary) = new_story_builds_clean(&dir, name);
     insta::assert_snapshot!("new_time_series_story", story);
@@ -250,7 +274,7 @@ fn new_snapshots_one_story_and_one_profile() {
 #[test]
 fn new_refuses_to_replace_a_story_unless_forced() {
     let dir = scratch("new-exists");
-    let (name, csv, _) = synthetic().remove(1);
+    let (name, csv, _) = synthetic().remove(3);
     fs::write(dir.join(name), csv).expect("write csv");
     fs::write(dir.join("long_names.cresc"), "# mine\n").expect("write story");
     let out = crescendo(&dir, &["new", name]);

@@ -22,10 +22,15 @@ pub struct ColumnProfile {
     pub range: Option<(String, String)>,
     /// Longest text value, in characters.
     pub longest: usize,
+    /// The first text in the column (empty for other columns).
+    pub first: String,
     /// Usable as a name in a story.
     pub nameable: bool,
     /// A measure (amount or rate), a code, a part of a time, or other.
     pub role: ColumnRole,
+    /// For a text column: the time columns that, with it, name each row
+    /// once (a long file: one row per time and per series or indicator).
+    pub identifies_with: Vec<String>,
 }
 
 /// The profile of a file.
@@ -82,6 +87,7 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
             let mut seen = std::collections::BTreeSet::new();
             let mut missing = 0;
             let mut longest = 0;
+            let mut first: Option<String> = None;
             let mut lo: Option<f64> = None;
             let mut hi: Option<f64> = None;
             for v in &c.values {
@@ -92,6 +98,7 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
                     }
                     Value::Text(t) => {
                         longest = longest.max(t.chars().count());
+                        first.get_or_insert_with(|| t.clone());
                         t.clone()
                     }
                     other => {
@@ -114,8 +121,10 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
                 missing,
                 range,
                 longest,
+                first: first.unwrap_or_default(),
                 nameable: is_name(&c.name),
                 role: role_of(&table, i),
+                identifies_with: identifies_with(&table, i),
             }
         })
         .collect();
@@ -129,6 +138,26 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
             columns,
         },
     ))
+}
+
+/// The time columns that, with text column `i`, name each row once.
+fn identifies_with(table: &Table, i: usize) -> Vec<String> {
+    let Some(c) = table.columns.get(i).filter(|c| c.ty == ColType::Text) else {
+        return Vec::new();
+    };
+    table
+        .columns
+        .iter()
+        .filter(|t| t.ty.is_time())
+        .filter(|t| {
+            let mut seen = std::collections::BTreeSet::new();
+            t.values
+                .iter()
+                .zip(c.values.iter())
+                .all(|(a, b)| seen.insert((format!("{a:?}"), format!("{b:?}"))))
+        })
+        .map(|t| t.name.clone())
+        .collect()
 }
 
 fn looks_like_year(name: &str, values: &[Value]) -> bool {

@@ -22,6 +22,9 @@ pub enum Shape {
         parts: Option<String>,
         other: Option<String>,
         other_agg: &'static str,
+        /// A text column whose values are different measures (a long
+        /// file) with too many of them for one line each: one is kept.
+        only: Option<(String, String)>,
     },
     /// Few periods: bars of `category` grouped by `period`.
     Periods {
@@ -122,13 +125,27 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
                 });
             }
         } else {
-            // One line per value of a text column only when each of its
-            // values is its own line (a few of them); never a sum across it.
-            let series = texts
+            // A text column that names each row with the time holds
+            // different series (in a long file, different measures): one
+            // line each when there are a few, else one of them; never a
+            // sum or a mean across it. Otherwise a text column of a few
+            // values groups the rows into lines.
+            let identifying = texts
                 .iter()
-                .filter(|c| c.distinct >= 2 && c.distinct <= MAX_LINES && c.distinct < p.rows)
-                .max_by_key(|c| c.distinct)
-                .map(|c| c.name.clone());
+                .filter(|c| c.distinct >= 2 && c.identifies_with.contains(&time.name))
+                .min_by_key(|c| c.distinct);
+            let series = match identifying {
+                Some(c) if c.distinct <= MAX_LINES => Some(c.name.clone()),
+                Some(_) => None,
+                None => texts
+                    .iter()
+                    .filter(|c| c.distinct >= 2 && c.distinct <= MAX_LINES && c.distinct < p.rows)
+                    .max_by_key(|c| c.distinct)
+                    .map(|c| c.name.clone()),
+            };
+            let only = identifying
+                .filter(|c| c.distinct > MAX_LINES)
+                .map(|c| (c.name.clone(), c.first.clone()));
             let parts = parts.filter(|_| time.ty == ColType::Year);
             return Ok(Shape::Trend {
                 time: time.name.clone(),
@@ -138,6 +155,7 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
                 parts,
                 other: measures.get(1).map(|c| c.name.clone()),
                 other_agg: measures.get(1).map_or("mean", |c| c.role.aggregate()),
+                only,
             });
         }
     }
@@ -238,6 +256,7 @@ pub(super) fn why(shape: &Shape) -> String {
             series,
             parts,
             other,
+            only,
             ..
         } => format!(
             "line of {measure} over {time}{}{} (change over time; {}){}",
@@ -251,7 +270,9 @@ pub(super) fn why(shape: &Shape) -> String {
             other.as_ref().map_or(String::new(), |o| format!(
                 "; scatter of {o} against {measure} (two measures, never added)"
             ))
-        ),
+        ) + &only.as_ref().map_or(String::new(), |(c, v)| {
+            format!("; only {c} = {v} (each {c} is its own series, never averaged together)")
+        }),
         Shape::Periods {
             period,
             category,

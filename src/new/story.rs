@@ -173,6 +173,7 @@ pub fn write_story(table: &Table, p: &Profile, shape: &Shape, data_path: &str) -
             parts,
             other,
             other_agg,
+            only,
         } => super::trend::trend(
             &mut s,
             table,
@@ -184,6 +185,7 @@ pub fn write_story(table: &Table, p: &Profile, shape: &Shape, data_path: &str) -
                 parts: parts.as_deref(),
                 other: other.as_deref(),
                 other_agg,
+                only: only.as_ref().map(|(c, v)| (c.as_str(), v.as_str())),
             },
         ),
         Shape::Periods {

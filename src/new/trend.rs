@@ -22,6 +22,8 @@ pub(super) struct Trend<'a> {
     pub other: Option<&'a str>,
     /// The aggregate of `other` (by the same rule as the measure's).
     pub other_agg: &'a str,
+    /// (column, value): keep only these rows, one of many series.
+    pub only: Option<(&'a str, &'a str)>,
 }
 
 /// Why the measure is summed or averaged, and how the time is made.
@@ -61,6 +63,13 @@ fn comment(t: &Trend) -> String {
             "\n# A few {cat} values: one line each (more would tangle), never added together."
         );
     }
+    if let Some((col, v)) = t.only {
+        let _ = write!(
+            c,
+            "\n# Each {col} is its own series (a row per {time} and {col}): too many for\n\
+             # one line each, and never averaged together, so one of them, {v}."
+        );
+    }
     c
 }
 
@@ -78,12 +87,13 @@ pub(super) fn trend(s: &mut String, table: &Table, t: &Trend) {
     if let Some(o) = t.other {
         let _ = write!(aggs, ", {o} = {}({o})", t.other_agg);
     }
-    view(
-        s,
-        &comment(t),
-        "over_time",
-        &[format!("| by {keys}: {aggs}"), format!("| sort {time}")],
-    );
+    let mut steps = Vec::new();
+    if let Some((col, v)) = t.only {
+        steps.push(format!("| keep {col} = {}", quote(v)));
+    }
+    steps.push(format!("| by {keys}: {aggs}"));
+    steps.push(format!("| sort {time}"));
+    view(s, &comment(t), "over_time", &steps);
     value_and_claim(s, "over_time", measure);
     // The focus series: the one that reaches the highest value, so that
     // its spotlight's claim holds.
@@ -92,7 +102,7 @@ pub(super) fn trend(s: &mut String, table: &Table, t: &Trend) {
         largest(&peaks)
     });
     let only = series.zip(focus.as_deref());
-    let per_time = aggregates(table, time, measure, agg, only);
+    let per_time = aggregates(table, time, measure, agg, only.or(t.only));
     let (first, last) = (
         per_time.values().next().copied(),
         per_time.values().next_back().copied(),
@@ -219,8 +229,8 @@ fn aggregates_by_pair(
 /// protected by a claim on the correlation.
 fn pair(s: &mut String, table: &Table, t: &Trend, other: &str) {
     let measure = t.measure;
-    let xs = aggregates(table, t.time, measure, t.agg, None);
-    let ys = aggregates(table, t.time, other, t.other_agg, None);
+    let xs = aggregates(table, t.time, measure, t.agg, t.only);
+    let ys = aggregates(table, t.time, other, t.other_agg, t.only);
     let (px, py): (Vec<f64>, Vec<f64>) = xs
         .iter()
         .filter_map(|(k, x)| ys.get(k).map(|y| (*x, *y)))
@@ -232,18 +242,34 @@ fn pair(s: &mut String, table: &Table, t: &Trend, other: &str) {
          # (different measures in different units do not add up).",
         t.time
     );
-    let _ = writeln!(
-        s,
-        "value together = correlation(over_time.{other} by {measure})"
-    );
-    let (claim, says) = match r {
-        Some(r) if r >= 0.3 => ("together >= 0.3", "rise together"),
-        Some(r) if r <= -0.3 => ("together <= -0.3", "move in opposite directions"),
-        Some(_) => ("together about 0 within 0.3", "barely move together"),
-        None => ("highest >= lowest", "are drawn against each other"),
+    // With several lines the points are per period and series, so the
+    // headline stays neutral; otherwise it says which way they go.
+    let neutral = format!("{} against {}", capital(&words(other)), words(measure));
+    let headline = match r {
+        Some(r) => {
+            let _ = writeln!(
+                s,
+                "value together = correlation(over_time.{other} by {measure})"
+            );
+            let direction = match r {
+                r if r >= 0.3 => Some(("together >= 0.3", "rise together")),
+                r if r <= -0.3 => Some(("together <= -0.3", "move in opposite directions")),
+                _ => Some(("together about 0 within 0.3", "barely move together")),
+            };
+            match direction.filter(|_| t.series.is_none()) {
+                Some((claim, says)) => {
+                    let h = format!("{} and {} {says}", capital(&words(other)), words(measure));
+                    fact(s, claim, &h);
+                    h
+                }
+                None => {
+                    let _ = writeln!(s);
+                    neutral
+                }
+            }
+        }
+        None => neutral,
     };
-    let headline = format!("{} and {} {says}", capital(&words(other)), words(measure));
-    fact(s, claim, &headline);
     let mut lines = vec![
         format!("scatter over_time: x {measure}, y {other}, fit"),
         format!("x title {}", quote(&capital(&words(measure)))),
