@@ -71,9 +71,6 @@ pub(crate) fn draw(
     if n == 0 {
         return Ok(());
     }
-    if crate::scatter_grid::all_scatters(chart) {
-        return crate::scatter_grid::draw(canvas, theme, chart, region);
-    }
     for p in &chart.panels {
         let axis = value_axis(&p.chart)
             .ok_or_else(|| RenderError::new("a panel holds a line or bar chart only"))?;
