@@ -578,3 +578,33 @@ fn ranges_for_scatters_and_dots() {
         "{fits:?}"
     );
 }
+
+/// `split` of a scatter without groups, or with more than eight, is a
+/// located error, never an unreadable grid or an empty panel.
+#[test]
+fn scatter_split_needs_a_few_groups() {
+    let dir = scratch("split-groups");
+    let mut csv = String::from("g,a,b\n");
+    for i in 0..27 {
+        csv += &format!("G{},{i},{}\n", i / 3, i * 2 % 7);
+    }
+    fs::write(dir.join("d.csv"), csv).unwrap();
+    for (chart, says) in [
+        ("scatter d: x a, y b\n  split b", "no groups to split"),
+        (
+            "scatter d: x a, y b, series g\n  split g",
+            "at most 8 panels",
+        ),
+    ] {
+        let story = format!("story \"s\"\ndata d from \"d.csv\"\nframe \"f\" {{\n  {chart}\n}}\n");
+        let src = Source::file("test.cresc", story);
+        let Err(d) = crescendo_plan::plan_story(&src, &dir, &Default::default()) else {
+            panic!("accepted: {chart}");
+        };
+        let text = crescendo_diag::render(&d, false);
+        assert!(
+            text.contains(says) && text.contains("test.cresc:5:"),
+            "{text}"
+        );
+    }
+}

@@ -12,6 +12,10 @@ use crate::model::*;
 use crate::scale;
 use crate::sequence::SeqState;
 
+/// Most panels of a split scatter: each is a whole plot with its axes, so
+/// more would leave each too small to read (two rows of four).
+const MAX_SCATTER_PANELS: usize = 8;
+
 /// A panel: its title, its chart, and what orders it (the measure's last
 /// value for lines, the total for bars).
 type PanelDraft = (String, Chart, f64);
@@ -80,7 +84,36 @@ fn panels(cx: &mut Ctx, chart: &Chart, s: &SplitStmt) -> Outcome<Vec<PanelDraft>
             })
             .collect()),
         Chart::Parts(p) => Ok((0..p.parts.len()).map(|i| part_panel(p, i)).collect()),
-        Chart::Scatter(sc) => Ok(scatter_panels(sc)),
+        Chart::Scatter(sc) => {
+            let panels = scatter_panels(sc);
+            if panels.iter().all(|p| p.0.is_empty()) {
+                let d = cx
+                    .at(
+                        "split",
+                        "this scatter has no groups to split into panels",
+                        s.span.clone(),
+                        "no groups",
+                    )
+                    .help("name the column that groups the points: `scatter VIEW: x A, y B, series GROUP`");
+                return Err(cx.report(d));
+            }
+            if panels.len() > MAX_SCATTER_PANELS {
+                let d = cx
+                    .at(
+                        "split",
+                        format!(
+                            "a scatter splits into at most {MAX_SCATTER_PANELS} panels, and `{}` has {} groups",
+                            s.key.name,
+                            panels.len()
+                        ),
+                        s.span.clone(),
+                        "too many panels",
+                    )
+                    .help("keep fewer groups in the view (`keep`), or spotlight one group instead of splitting");
+                return Err(cx.report(d));
+            }
+            Ok(panels)
+        }
         _ => {
             let d = cx
                 .at(
