@@ -125,38 +125,7 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
                 });
             }
         } else {
-            // A text column that names each row with the time holds
-            // different series (in a long file, different measures): one
-            // line each when there are a few, else one of them; never a
-            // sum or a mean across it. Otherwise a text column of a few
-            // values groups the rows into lines.
-            let identifying = texts
-                .iter()
-                .filter(|c| c.distinct >= 2 && c.identifies_with.contains(&time.name))
-                .min_by_key(|c| c.distinct);
-            let series = match identifying {
-                Some(c) if c.distinct <= MAX_LINES => Some(c.name.clone()),
-                Some(_) => None,
-                None => texts
-                    .iter()
-                    .filter(|c| c.distinct >= 2 && c.distinct <= MAX_LINES && c.distinct < p.rows)
-                    .max_by_key(|c| c.distinct)
-                    .map(|c| c.name.clone()),
-            };
-            let only = identifying
-                .filter(|c| c.distinct > MAX_LINES)
-                .map(|c| (c.name.clone(), c.first.clone()));
-            let parts = parts.filter(|_| time.ty == ColType::Year);
-            return Ok(Shape::Trend {
-                time: time.name.clone(),
-                measure: m,
-                agg,
-                series,
-                parts,
-                other: measures.get(1).map(|c| c.name.clone()),
-                other_agg: measures.get(1).map_or("mean", |c| c.role.aggregate()),
-                only,
-            });
+            return Ok(trend_shape(p, time, &texts, &measures, parts));
         }
     }
     let names = texts.iter().find(|c| c.distinct == p.rows && p.rows > 1);
@@ -235,6 +204,47 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
         "{} has numbers but no column that names or groups its rows",
         p.file
     ))
+}
+
+/// The trend of the first measure over `time` (see [`choose_shape`]).
+fn trend_shape(
+    p: &Profile,
+    time: &ColumnProfile,
+    texts: &[&ColumnProfile],
+    measures: &[&ColumnProfile],
+    parts: Option<String>,
+) -> Shape {
+    // A text column that names each row with the time holds different
+    // series (in a long file, different measures): one line each when there
+    // are a few, else one of them; never a sum or a mean across it.
+    // Otherwise a text column of a few values groups the rows into lines.
+    let identifying = texts
+        .iter()
+        .filter(|c| c.distinct >= 2 && c.identifies_with.contains(&time.name))
+        .min_by_key(|c| c.distinct);
+    let series = match identifying {
+        Some(c) if c.distinct <= MAX_LINES => Some(c.name.clone()),
+        Some(_) => None,
+        None => texts
+            .iter()
+            .filter(|c| c.distinct >= 2 && c.distinct <= MAX_LINES && c.distinct < p.rows)
+            .max_by_key(|c| c.distinct)
+            .map(|c| c.name.clone()),
+    };
+    let only = identifying
+        .filter(|c| c.distinct > MAX_LINES)
+        .map(|c| (c.name.clone(), c.first.clone()));
+    let measure = measures.first();
+    Shape::Trend {
+        time: time.name.clone(),
+        measure: measure.map_or(String::new(), |m| m.name.clone()),
+        agg: measure.map_or("mean", |m| m.role.aggregate()),
+        series,
+        parts: parts.filter(|_| time.ty == ColType::Year),
+        other: measures.get(1).map(|c| c.name.clone()),
+        other_agg: measures.get(1).map_or("mean", |c| c.role.aggregate()),
+        only,
+    }
 }
 
 /// How a measure is aggregated, in words.
