@@ -459,7 +459,12 @@ fn relationship(
                  # fitted line, never their sum (check the correlation before you claim one)."
             .to_string(),
     };
-    view(s, &why, "points", &[format!("| sort {y} descending")]);
+    // grouped: the panels in the groups' order; else the largest first
+    let sort = match group {
+        Some(g) => format!("| sort {g}"),
+        None => format!("| sort {y} descending"),
+    };
+    view(s, &why, "points", &[sort]);
     let _ = writeln!(s, "value fit = correlation(points.{y} by {x})");
     value_and_claim(s, "points", y);
     let (headline, claim) = direction(r, y, x);
