@@ -411,4 +411,295 @@ fn rows_without_a_time_are_skipped_by_every_function() {
     assert_eq!(exact["l"], 15.0);
     assert_eq!(exact["sl"], 2.5);
     assert!(exact["g"] > 0.0);
+
+/// The four spreads against Python's `statistics` module (`variance`,
+/// `pvariance`, `stdev`, `pstdev`: exact rational arithmetic rounded once)
+/// on the Palmer penguins data (CC0; `crates/data/tests/fixtures/README.md`),
+/// per species and for all rows. Reference written by
+/// `tests/fixtures/spread/make_spread_expected.py` into
+/// `spread_expected.json`. The functions themselves must give the same
+/// double as Python, bit for bit (their sums of squares are exact); the
+/// story's values, quoted to 12 decimals, the same figures.
+#[test]
+fn spreads_match_python_statistics() {
+    use crescendo_data::stats;
+    let csv_path = root().join("crates/data/tests/fixtures/penguins.csv");
+    let text = fs::read_to_string(&csv_path).unwrap();
+    let expected: Value = serde_json::from_str(
+        &fs::read_to_string(root().join("tests/fixtures/spread/spread_expected.json")).unwrap(),
+    )
+    .unwrap();
+    let mut lines = text.lines();
+    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let rows: Vec<Vec<&str>> = lines.map(|l| l.split(',').collect()).collect();
+    let col = |name: &str| header.iter().position(|h| *h == name).unwrap();
+    type Spread = fn(&[f64]) -> Result<f64, stats::StatError>;
+    let functions: [(&str, Spread); 4] = [
+        ("sample_variance", stats::sample_variance),
+        ("population_variance", stats::population_variance),
+        (
+            "sample_standard_deviation",
+            stats::sample_standard_deviation,
+        ),
+        (
+            "population_standard_deviation",
+            stats::population_standard_deviation,
+        ),
+    ];
+    let dir = scratch("spreads");
+    fs::copy(&csv_path, dir.join("penguins.csv")).unwrap();
+    let mut story =
+        String::from("story \"Spreads\"\ndata p from \"penguins.csv\" missing \"NA\"\n");
+    let mut notes = Vec::new();
+    let mut wanted = Vec::new();
+    let mut checked = 0;
+    for (group, columns) in expected["groups"].as_object().unwrap() {
+        for (column, figures) in columns.as_object().unwrap() {
+            let c = col(column);
+            let xs: Vec<f64> = rows
+                .iter()
+                .filter(|r| group == "(all)" || r[0] == group)
+                .filter_map(|r| r[c].parse().ok())
+                .collect();
+            assert_eq!(xs.len() as u64, figures["n"].as_u64().unwrap());
+            let filter = if group == "(all)" {
+                String::new()
+            } else {
+                format!(" where species = \"{group}\"")
+            };
+            for (name, f) in functions {
+                let want: f64 = figures[name].as_str().unwrap().parse().unwrap();
+                let got = f(&xs).unwrap();
+                assert_eq!(
+                    got.to_bits(),
+                    want.to_bits(),
+                    "{name} of {column} ({group}): {got:e} against Python's {want:e}"
+                );
+                checked += 1;
+                let v = format!("v{}", notes.len());
+                writeln!(story, "value {v} = {name}(p.{column}{filter})").unwrap();
+                notes.push(format!("{{{v} to 12 decimals}}"));
+                wanted.push(want);
+            }
+        }
+    }
+    assert_eq!(checked, 4 * 4 * 4);
+    writeln!(
+        story,
+        "frame \"f\" {{\n  figure \"1\" \"one\"\n  notes \"{}\"\n}}",
+        notes.join("|")
+    )
+    .unwrap();
+    let (quoted, _) = quoted(&dir, &story);
+    assert_eq!(quoted.len(), wanted.len());
+    for (q, want) in quoted.iter().zip(&wanted) {
+        let got = figure(q);
+        assert!(
+            (got - want).abs() <= 1e-12 * want.abs().max(1.0),
+            "{got} against {want}"
+        );
+    }
+}
+
+/// A bare `variance` or `stdev` is refused with both names and their
+/// divisors, so a story always says which spread it means.
+#[test]
+fn a_spread_must_say_sample_or_population() {
+    let dir = scratch("spread-names");
+    fs::write(dir.join("d.csv"), "x\n1\n2\n4\n").unwrap();
+    for (bare, named) in [
+        ("variance", "sample_variance"),
+        ("stdev", "sample_standard_deviation"),
+        ("sd", "population_standard_deviation"),
+    ] {
+        let story = format!(
+            "story \"s\"\ndata d from \"d.csv\"\nvalue v = {bare}(d.x)\nframe \"f\" {{\n  notes \"{{v}}\"\n}}\n"
+        );
+        let src = Source::file("test.cresc", story);
+        let Err(diags) = crescendo_plan::plan_story(&src, &dir, &Default::default()) else {
+            panic!("`{bare}` was accepted");
+        };
+        let text = crescendo_diag::render(&diags, false);
+        assert!(text.contains("sample or population"), "{text}");
+        assert!(text.contains(named) && text.contains("n − 1"), "{text}");
+    }
+    // With the names spelt out, 1, 2, 4: mean 7/3, squares 14/3.
+    fs::write(dir.join("d.csv"), "x\n1\n2\n4\n").unwrap();
+    let story = "story \"s\"\ndata d from \"d.csv\"\nvalue a = sample_variance(d.x)\nvalue b = population_variance(d.x)\nframe \"f\" {\n  figure \"1\" \"one\"\n  notes \"{a to 6 decimals}|{b to 6 decimals}\"\n}\n";
+    let (q, _) = quoted(&dir, story);
+    assert_eq!(q, ["2.333333", "1.555556"]);
+}
+
+/// Anscombe's quartet as a story (`tests/anscombe/`, data and citation in its
+/// README): the four sets on one 2×2 grid on one scale, each panel with its
+/// own least-squares line, and a claim per published figure per set
+/// (Anscombe 1973: means 9.0 and 7.5, variance of x 11.0, r 0.816, the line
+/// y = 3.00 + 0.500 x), every one of them holding. The build writes PNGs and
+/// passes the strict lint.
+#[test]
+fn anscombe_story_builds_its_grid() {
+    let dir = scratch("anscombe-story");
+    for f in ["anscombe.cresc", "anscombe.csv"] {
+        fs::copy(root().join("tests/anscombe").join(f), dir.join(f)).unwrap();
+    }
+    let story = fs::read_to_string(dir.join("anscombe.cresc")).unwrap();
+    let src = Source::file("anscombe.cresc", story);
+    let planned = match crescendo_plan::plan_story(&src, &dir, &Default::default()) {
+        Ok(p) => p,
+        Err(d) => panic!("{}", crescendo_diag::render(&d, false)),
+    };
+    let plan = &planned.plan;
+    assert!(planned.failed_claims.is_empty());
+    assert_eq!(plan.claims.len(), 4 * 7 + 1);
+    assert!(plan.claims.iter().all(|c| c.holds), "{:?}", plan.claims);
+    let crescendo_plan::model::Chart::Panels(grid) = &plan.frames[0].chart else {
+        panic!("not panels: {:?}", plan.frames[0].chart);
+    };
+    let titles: Vec<&str> = grid.panels.iter().map(|p| p.title.as_str()).collect();
+    assert_eq!(titles, ["I", "II", "III", "IV"]);
+    assert!(grid.common_scale);
+    let mut axes = Vec::new();
+    for p in &grid.panels {
+        let crescendo_plan::model::Chart::Scatter(sc) = &p.chart else {
+            panic!("a panel is not a scatter");
+        };
+        assert_eq!(sc.points.len(), 11);
+        // `x range 2 to 20`, `y range 2 to 14` in every panel.
+        assert_eq!(sc.x.domain, [2.0, 20.0]);
+        assert_eq!(sc.y.domain, [2.0, 14.0]);
+        axes.push((sc.x.clone(), sc.y.clone()));
+        let fit = sc.fit.as_ref().expect("each panel has its fit");
+        assert!((fit.slope - 0.5).abs() < 5e-4 && (fit.intercept - 3.0).abs() < 5e-3);
+        assert_eq!(fit.label, "fit: r = 0.82");
+    }
+    assert!(axes.windows(2).all(|w| w[0] == w[1]), "one scale");
+    // The spotlight on set IV is one spotlight, not eleven.
+    let out = common::crescendo(&dir, &["check", "anscombe.cresc", "--strict"]);
+    let text =
+        String::from_utf8_lossy(&out.stdout).to_string() + &String::from_utf8_lossy(&out.stderr);
+    assert!(out.status.success(), "{text}");
+    assert!(!text.contains("spotlights:"), "{text}");
+    let out = common::crescendo(&dir, &["build", "anscombe.cresc", "--format", "svg,png"]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(
+        dir.join("deck/01-four-sets-one-line-r-0-82-in-each.png")
+            .exists()
+            || fs::read_dir(dir.join("deck")).unwrap().any(|e| e
+                .unwrap()
+                .path()
+                .extension()
+                .is_some_and(|x| x == "png"))
+    );
+}
+
+/// `x range` and `y range` on scatters and `y range` on dot plots set the
+/// axes; an `x range` elsewhere, or one that cuts off data, is a located
+/// error; a scatter splits by its `series` into panels on one scale.
+#[test]
+fn ranges_for_scatters_and_dots() {
+    let dir = scratch("ranges");
+    fs::write(
+        dir.join("d.csv"),
+        "g,a,b\nP,1,2\nP,2,3\nP,3,5\nQ,4,4\nQ,5,6\nQ,6,9\n",
+    )
+    .unwrap();
+    let head = "story \"s\"\ndata d from \"d.csv\"\nview v = d | by g: a = mean(a)\n";
+    let plan = |body: &str| {
+        let src = Source::file("test.cresc", format!("{head}{body}"));
+        crescendo_plan::plan_story(&src, &dir, &Default::default())
+    };
+    let ok =
+        plan("frame \"f\" {\n  scatter d: x a, y b\n  x range 0 to 10\n  y range -5 to 10\n}\n")
+            .unwrap_or_else(|d| panic!("{}", crescendo_diag::render(&d, false)));
+    let crescendo_plan::model::Chart::Scatter(sc) = &ok.plan.frames[0].chart else {
+        panic!("not a scatter");
+    };
+    assert_eq!((sc.x.domain, sc.y.domain), ([0.0, 10.0], [-5.0, 10.0]));
+    let ok = plan("frame \"f\" {\n  dots v: category g, value a\n  y range 0 to 10\n}\n")
+        .unwrap_or_else(|d| panic!("{}", crescendo_diag::render(&d, false)));
+    let crescendo_plan::model::Chart::Dots(dc) = &ok.plan.frames[0].chart else {
+        panic!("not dots");
+    };
+    assert_eq!(dc.value.domain, [0.0, 10.0]);
+    for (body, says) in [
+        (
+            "frame \"f\" {\n  scatter d: x a, y b\n  x range 2 to 10\n}\n",
+            "would cut off data",
+        ),
+        (
+            "frame \"f\" {\n  dots v: category g, value a\n  x range 0 to 10\n}\n",
+            "only the measure's axis",
+        ),
+        (
+            "frame \"f\" {\n  pie v: category g, value a\n  y range 0 to 10\n}\n",
+            "only line, bar, dot and scatter charts take a range",
+        ),
+    ] {
+        let Err(d) = plan(body) else {
+            panic!("accepted: {body}")
+        };
+        let text = crescendo_diag::render(&d, false);
+        assert!(
+            text.contains(says) && text.contains("test.cresc:"),
+            "{text}"
+        );
+    }
+    // Split by series: two panels, each its own fit, the common axes.
+    let ok = plan(
+        "frame \"f\" {\n  scatter d: x a, y b, series g, fit\n  split g\n  x range 0 to 7\n}\n",
+    )
+    .unwrap_or_else(|d| panic!("{}", crescendo_diag::render(&d, false)));
+    let crescendo_plan::model::Chart::Panels(p) = &ok.plan.frames[0].chart else {
+        panic!("not panels");
+    };
+    assert_eq!(p.panels.len(), 2);
+    let fits: Vec<f64> = p
+        .panels
+        .iter()
+        .map(|panel| match &panel.chart {
+            crescendo_plan::model::Chart::Scatter(sc) => {
+                assert_eq!(sc.x.domain, [0.0, 7.0]);
+                sc.fit.as_ref().unwrap().slope
+            }
+            _ => panic!("not a scatter panel"),
+        })
+        .collect();
+    assert!(
+        (fits[0] - 1.5).abs() < 1e-12 && (fits[1] - 2.5).abs() < 1e-12,
+        "{fits:?}"
+    );
+}
+
+/// `split` of a scatter without groups, or with more than eight, is a
+/// located error, never an unreadable grid or an empty panel.
+#[test]
+fn scatter_split_needs_a_few_groups() {
+    let dir = scratch("split-groups");
+    let mut csv = String::from("g,a,b\n");
+    for i in 0..27 {
+        csv += &format!("G{},{i},{}\n", i / 3, i * 2 % 7);
+    }
+    fs::write(dir.join("d.csv"), csv).unwrap();
+    for (chart, says) in [
+        ("scatter d: x a, y b\n  split b", "no groups to split"),
+        (
+            "scatter d: x a, y b, series g\n  split g",
+            "at most 8 panels",
+        ),
+    ] {
+        let story = format!("story \"s\"\ndata d from \"d.csv\"\nframe \"f\" {{\n  {chart}\n}}\n");
+        let src = Source::file("test.cresc", story);
+        let Err(d) = crescendo_plan::plan_story(&src, &dir, &Default::default()) else {
+            panic!("accepted: {chart}");
+        };
+        let text = crescendo_diag::render(&d, false);
+        assert!(
+            text.contains(says) && text.contains("test.cresc:5:"),
+            "{text}"
+        );
+    }
 }

@@ -5,26 +5,36 @@
 //! named like a year (`year`, `fy`…) with values from 1000 to 2999 is
 //! declared `year`, which the loader never infers.
 //!
+//! Each number column then gets a role (`roles.rs`): an amount (summed),
+//! a rate or level (averaged, never summed), a code or identifier (never a
+//! measure), or the quarter or month number of a year column (part of the
+//! time, folded into the year).
+//!
 //! The chart form follows the data's shape and the question it most likely
 //! answers (common practice of chart choice):
 //! - a time column and a measure: change over time, a line (one line per
 //!   category when there are a few categories); with fewer than three
 //!   periods, bars grouped by period (two points make a slope, not a trend);
-//! - two measures and no time: their relationship, a scatter plot;
+//!   a second measure is drawn against the first in a scatter, never added;
+//! - two measures and no time: their relationship, a scatter plot (one
+//!   panel per group, on one scale, when the rows fall in a few groups);
 //! - a measure, a category and a second category of two to four values:
-//!   part of a whole with few parts, stacked bars;
+//!   part of a whole with few parts, stacked bars (amounts only);
 //! - a measure and a name per row, many rows: a distribution, a dot plot;
 //! - otherwise a comparison of categories: bars sorted by size, horizontal
 //!   when the names are long.
 //!
 //! The story builds up in four frames (context, comparison, spotlight,
-//! conclusion placeholder), quotes a value and states a placeholder claim
-//! that holds by construction, so it builds and passes the lint with
-//! `--strict` before the analyst edits it.
+//! conclusion placeholder). Its headlines state facts computed from the
+//! data as values, each protected by a claim, and comments say why each
+//! form was chosen, so it builds and passes the lint with `--strict` before
+//! the analyst edits it.
 
 mod profile;
+mod roles;
 mod shape;
 mod story;
+mod trend;
 
 use std::path::Path;
 use std::process::ExitCode;

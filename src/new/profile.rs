@@ -8,6 +8,7 @@ use crescendo_data::load::{load_csv, CsvSpec, LoadError};
 use crescendo_data::{ColType, Table, Value};
 use crescendo_diag::Diagnostic;
 
+use super::roles::{role_of, ColumnRole};
 use super::shape::{why, Shape};
 
 /// What one column holds.
@@ -21,8 +22,15 @@ pub struct ColumnProfile {
     pub range: Option<(String, String)>,
     /// Longest text value, in characters.
     pub longest: usize,
+    /// The first text in the column (empty for other columns).
+    pub first: String,
     /// Usable as a name in a story.
     pub nameable: bool,
+    /// A measure (amount or rate), a code, a part of a time, or other.
+    pub role: ColumnRole,
+    /// For a text column: the time columns that, with it, name each row
+    /// once (a long file: one row per time and per series or indicator).
+    pub identifies_with: Vec<String>,
 }
 
 /// The profile of a file.
@@ -74,10 +82,12 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
     let columns = table
         .columns
         .iter()
-        .map(|c| {
+        .enumerate()
+        .map(|(i, c)| {
             let mut seen = std::collections::BTreeSet::new();
             let mut missing = 0;
             let mut longest = 0;
+            let mut first: Option<String> = None;
             let mut lo: Option<f64> = None;
             let mut hi: Option<f64> = None;
             for v in &c.values {
@@ -88,6 +98,7 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
                     }
                     Value::Text(t) => {
                         longest = longest.max(t.chars().count());
+                        first.get_or_insert_with(|| t.clone());
                         t.clone()
                     }
                     other => {
@@ -110,7 +121,10 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
                 missing,
                 range,
                 longest,
+                first: first.unwrap_or_default(),
                 nameable: is_name(&c.name),
+                role: role_of(&table, i),
+                identifies_with: identifies_with(&table, i),
             }
         })
         .collect();
@@ -124,6 +138,26 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
             columns,
         },
     ))
+}
+
+/// The time columns that, with text column `i`, name each row once.
+fn identifies_with(table: &Table, i: usize) -> Vec<String> {
+    let Some(c) = table.columns.get(i).filter(|c| c.ty == ColType::Text) else {
+        return Vec::new();
+    };
+    table
+        .columns
+        .iter()
+        .filter(|t| t.ty.is_time())
+        .filter(|t| {
+            let mut seen = std::collections::BTreeSet::new();
+            t.values
+                .iter()
+                .zip(c.values.iter())
+                .all(|(a, b)| seen.insert((format!("{a:?}"), format!("{b:?}"))))
+        })
+        .map(|t| t.name.clone())
+        .collect()
 }
 
 fn looks_like_year(name: &str, values: &[Value]) -> bool {
@@ -228,7 +262,39 @@ pub fn summary(p: &Profile, shape: Option<&Shape>) -> String {
         }
     };
     let _ = writeln!(s, "time columns: {}", list(&|t: ColType| t.is_time()));
-    let _ = writeln!(s, "measures: {}", list(&|t| t == ColType::Number));
+    let roles = |r: &dyn Fn(ColumnRole) -> bool| {
+        let v: Vec<String> = p
+            .columns
+            .iter()
+            .filter(|c| c.ty == ColType::Number && r(c.role))
+            .map(|c| c.name.clone())
+            .collect();
+        if v.is_empty() {
+            "none".to_string()
+        } else {
+            v.join(", ")
+        }
+    };
+    let _ = writeln!(
+        s,
+        "amounts (summed): {}",
+        roles(&|r| r == ColumnRole::Amount)
+    );
+    let _ = writeln!(
+        s,
+        "rates and levels (averaged, never summed): {}",
+        roles(&|r| r == ColumnRole::Rate)
+    );
+    let _ = writeln!(
+        s,
+        "codes and identifiers (not measures): {}",
+        roles(&|r| r == ColumnRole::Code)
+    );
+    let _ = writeln!(
+        s,
+        "parts of a time (folded into the year): {}",
+        roles(&|r| matches!(r, ColumnRole::Quarter | ColumnRole::MonthNumber))
+    );
     let _ = writeln!(s, "categories: {}", list(&|t| t == ColType::Text));
     if let Some(shape) = shape {
         let _ = writeln!(s, "chart: {}", why(shape));

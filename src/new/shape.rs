@@ -4,26 +4,42 @@
 use crescendo_data::ColType;
 
 use super::profile::{ColumnProfile, Profile};
+use super::roles::ColumnRole;
 
-/// The chart form chosen, with the roles of the columns.
+/// The chart form chosen, with the roles of the columns. `agg` is the
+/// aggregate a `by` step uses for the measure: `sum` for an amount, `mean`
+/// for a rate or level (see [`super::roles`]).
 #[derive(Clone, Debug, PartialEq)]
 pub enum Shape {
-    /// `time`, `measure`, optional `series`.
+    /// `time`, `measure`, optional `series`; `parts` names the quarter or
+    /// month-number column folded into the year; `other` a second measure,
+    /// drawn against the first in a scatter (never added to it).
     Trend {
         time: String,
         measure: String,
+        agg: &'static str,
         series: Option<String>,
+        parts: Option<String>,
+        other: Option<String>,
+        other_agg: &'static str,
+        /// A text column whose values are different measures (a long
+        /// file) with too many of them for one line each: one is kept.
+        only: Option<(String, String)>,
     },
     /// Few periods: bars of `category` grouped by `period`.
     Periods {
         period: String,
         category: String,
         measure: String,
+        agg: &'static str,
     },
+    /// Two measures against each other; `group`: a text column whose
+    /// values make one panel each (small multiples on one scale).
     Relationship {
         x: String,
         y: String,
         label: Option<String>,
+        group: Option<String>,
     },
     PartOfWhole {
         category: String,
@@ -37,6 +53,7 @@ pub enum Shape {
     Comparison {
         category: String,
         measure: String,
+        agg: &'static str,
         horizontal: bool,
         top: Option<usize>,
     },
@@ -56,11 +73,12 @@ const MIN_SPREAD: usize = 20;
 /// Choose the chart form from the data's shape (see the module docs).
 pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
     let usable = |c: &&ColumnProfile| c.nameable && c.distinct > 0;
+    // Codes, identifiers and the parts of a time are never measures.
     let measures: Vec<&ColumnProfile> = p
         .columns
         .iter()
         .filter(usable)
-        .filter(|c| c.ty == ColType::Number)
+        .filter(|c| c.ty == ColType::Number && c.role.is_measure())
         .collect();
     let times: Vec<&ColumnProfile> = p
         .columns
@@ -75,14 +93,23 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
         .filter(|c| c.ty == ColType::Text)
         .collect();
     let Some(measure) = measures.first() else {
-        return Err(format!("{} has no column of numbers to chart", p.file));
+        return Err(format!(
+            "{} has no column of numbers to chart (codes, identifiers and quarter numbers are not measures)",
+            p.file
+        ));
     };
     let m = measure.name.clone();
+    let agg = measure.role.aggregate();
     // a category: some repetition, not a name per row
     let category = texts
         .iter()
         .filter(|c| c.distinct >= 2 && c.distinct < p.rows)
         .min_by_key(|c| c.distinct);
+    let parts = p
+        .columns
+        .iter()
+        .find(|c| matches!(c.role, ColumnRole::Quarter | ColumnRole::MonthNumber))
+        .map(|c| c.name.clone());
     if let Some(time) = times
         .iter()
         .find(|t| t.ty != ColType::Year || t.distinct >= 3)
@@ -94,36 +121,34 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
                     period: time.name.clone(),
                     category: cat.name.clone(),
                     measure: m,
+                    agg,
                 });
             }
         } else {
-            let series = texts
-                .iter()
-                .filter(|c| c.distinct >= 2 && c.distinct <= MAX_LINES && c.distinct < p.rows)
-                .max_by_key(|c| c.distinct)
-                .map(|c| c.name.clone());
-            return Ok(Shape::Trend {
-                time: time.name.clone(),
-                measure: m,
-                series,
-            });
+            return Ok(trend_shape(p, time, &texts, &measures, parts));
         }
     }
     let names = texts.iter().find(|c| c.distinct == p.rows && p.rows > 1);
-    if measures.len() >= 2 && category.is_none() {
+    // Two measures: their relationship, never their sum; in groups of a
+    // few (up to eight panels), one panel per group.
+    let group = category.filter(|c| c.distinct <= 8);
+    if measures.len() >= 2 && (category.is_none() || group.is_some()) {
         return Ok(Shape::Relationship {
             x: measures[0].name.clone(),
             y: measures[1].name.clone(),
             label: names.filter(|n| n.distinct <= 30).map(|n| n.name.clone()),
+            group: group.map(|g| g.name.clone()),
         });
     }
     if let Some(cat) = category {
         // the parts: the text column with the fewest values (two to four);
-        // the bars: another text column
+        // the bars: another text column. Only amounts stack: a stack of
+        // rates or levels adds what does not add up.
         let part = texts
             .iter()
             .filter(|c| (2..=4).contains(&c.distinct) && c.distinct < p.rows)
-            .min_by_key(|c| c.distinct);
+            .min_by_key(|c| c.distinct)
+            .filter(|_| agg == "sum");
         if let Some(part) = part {
             let bars = texts
                 .iter()
@@ -145,8 +170,9 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
         return Ok(Shape::Comparison {
             category: cat_full.name.clone(),
             measure: m,
+            agg,
             horizontal: cat_full.longest > LONG_NAME,
-            top: (cat_full.distinct > MAX_BARS).then_some(MAX_BARS - 2),
+            top: (cat_full.distinct > MAX_BARS && agg == "sum").then_some(MAX_BARS - 2),
         });
     }
     if let Some(n) = names {
@@ -160,6 +186,7 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
             Shape::Comparison {
                 category: n.name.clone(),
                 measure: m,
+                agg,
                 horizontal: n.longest > LONG_NAME,
                 top: None,
             }
@@ -170,6 +197,7 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
             x: measures[0].name.clone(),
             y: measures[1].name.clone(),
             label: None,
+            group: None,
         });
     }
     Err(format!(
@@ -178,31 +206,119 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
     ))
 }
 
+/// The trend of the first measure over `time` (see [`choose_shape`]).
+fn trend_shape(
+    p: &Profile,
+    time: &ColumnProfile,
+    texts: &[&ColumnProfile],
+    measures: &[&ColumnProfile],
+    parts: Option<String>,
+) -> Shape {
+    // A text column that names each row with the time holds different
+    // series (in a long file, different measures): one line each when there
+    // are a few, else one of them; never a sum or a mean across it.
+    // Otherwise a text column of a few values groups the rows into lines.
+    let identifying = texts
+        .iter()
+        .filter(|c| c.distinct >= 2 && c.identifies_with.contains(&time.name))
+        .min_by_key(|c| c.distinct);
+    let series = match identifying {
+        Some(c) if c.distinct <= MAX_LINES => Some(c.name.clone()),
+        Some(_) => None,
+        None => texts
+            .iter()
+            .filter(|c| c.distinct >= 2 && c.distinct <= MAX_LINES && c.distinct < p.rows)
+            .max_by_key(|c| c.distinct)
+            .map(|c| c.name.clone()),
+    };
+    let only = identifying
+        .filter(|c| c.distinct > MAX_LINES)
+        .map(|c| (c.name.clone(), c.first.clone()));
+    let measure = measures.first();
+    Shape::Trend {
+        time: time.name.clone(),
+        measure: measure.map_or(String::new(), |m| m.name.clone()),
+        agg: measure.map_or("mean", |m| m.role.aggregate()),
+        series,
+        parts: parts.filter(|_| time.ty == ColType::Year),
+        other: measures.get(1).map(|c| c.name.clone()),
+        other_agg: measures.get(1).map_or("mean", |c| c.role.aggregate()),
+        only,
+    }
+}
+
+/// How a measure is aggregated, in words.
+fn aggregated(agg: &str, per: &str) -> String {
+    if agg == "sum" {
+        format!("an amount, summed per {per}")
+    } else {
+        format!("a rate or level, averaged per {per}, never summed")
+    }
+}
+
 /// Why the form was chosen, in one line.
 pub(super) fn why(shape: &Shape) -> String {
     match shape {
-        Shape::Trend { time, measure, series } => format!(
-            "line of {measure} over {time}{} (change over time)",
+        Shape::Trend {
+            time,
+            measure,
+            agg,
+            series,
+            parts,
+            other,
+            only,
+            ..
+        } => format!(
+            "line of {measure} over {time}{}{} (change over time; {}){}",
+            parts
+                .as_ref()
+                .map_or(String::new(), |q| format!(" ({q} folded into {time})")),
             series
                 .as_ref()
-                .map_or(String::new(), |s| format!(", one line per {s}"))
+                .map_or(String::new(), |s| format!(", one line per {s}")),
+            aggregated(agg, time),
+            other.as_ref().map_or(String::new(), |o| format!(
+                "; scatter of {o} against {measure} (two measures, never added)"
+            ))
+        ) + &only.as_ref().map_or(String::new(), |(c, v)| {
+            format!("; only {c} = {v} (each {c} is its own series, never averaged together)")
+        }),
+        Shape::Periods {
+            period,
+            category,
+            measure,
+            agg,
+        } => format!(
+            "bars of {measure} by {category}, grouped by {period} (fewer than three periods: too few for a line; {})",
+            aggregated(agg, category)
         ),
-        Shape::Periods { period, category, measure } => format!(
-            "bars of {measure} by {category}, grouped by {period} (fewer than three periods: too few for a line)"
+        Shape::Relationship { x, y, group, .. } => format!(
+            "scatter of {y} against {x}{} (relationship of two measures, never their sum)",
+            group
+                .as_ref()
+                .map_or(String::new(), |g| format!(", one panel per {g} on one scale"))
         ),
-        Shape::Relationship { x, y, .. } => {
-            format!("scatter of {y} against {x} (relationship of two measures)")
-        }
-        Shape::PartOfWhole { category, part, measure } => format!(
+        Shape::PartOfWhole {
+            category,
+            part,
+            measure,
+        } => format!(
             "bars of {measure} by {category}, stacked by {part} (part of a whole with few parts)"
         ),
         Shape::Distribution { name, measure } => {
             format!("dot plot of {measure}, one dot per {name} (distribution)")
         }
-        Shape::Comparison { category, measure, horizontal, .. } => format!(
-            "{} bars of {measure} by {category}, sorted (comparison of categories{})",
+        Shape::Comparison {
+            category,
+            measure,
+            horizontal,
+            agg,
+            ..
+        } => format!(
+            "{} bars of {measure} by {category}, sorted (comparison of categories{}; {})",
             if *horizontal { "horizontal" } else { "vertical" },
-            if *horizontal { "; long names" } else { "" }
+            if *horizontal { "; long names" } else { "" },
+            aggregated(agg, category)
         ),
     }
 }

@@ -36,7 +36,7 @@ pub(super) fn relative_data_path(data: &Path, story: &Path) -> String {
 }
 
 /// A story string literal.
-fn quote(s: &str) -> String {
+pub(super) fn quote(s: &str) -> String {
     let mut out = String::from("\"");
     for c in s.chars() {
         match c {
@@ -51,43 +51,70 @@ fn quote(s: &str) -> String {
     out
 }
 
-/// Totals of `measure` per value of `key` (as text), ignoring missing cells.
-fn totals(table: &Table, key: &str, measure: &str) -> BTreeMap<String, f64> {
-    let mut out = BTreeMap::new();
-    let (Some(k), Some(m)) = (
-        table.columns.iter().find(|c| c.name == key),
-        table.columns.iter().find(|c| c.name == measure),
-    ) else {
-        return out;
-    };
-    for (kv, mv) in k.values.iter().zip(&m.values) {
-        let key = match kv {
-            Value::Text(t) => t.clone(),
-            Value::Year(y) => y.to_string(),
-            Value::Month(x) => crescendo_data::time::month_iso(x),
-            Value::Date(x) => crescendo_data::time::date_iso(x),
-            _ => continue,
-        };
-        if let Value::Number(x) = mv {
-            *out.entry(key).or_insert(0.0) += x;
-        }
+/// A cell as the text a story writes for it (a name, a year, an ISO month
+/// or date).
+fn key_text(v: &Value) -> Option<String> {
+    match v {
+        Value::Text(t) => Some(t.clone()),
+        Value::Year(y) => Some(y.to_string()),
+        Value::Month(x) => Some(crescendo_data::time::month_iso(*x)),
+        Value::Date(x) => Some(crescendo_data::time::date_iso(*x)),
+        _ => None,
     }
-    out
+}
+
+/// `agg` (`sum` or `mean`) of `measure` per value of `key` (as text),
+/// ignoring missing cells, over the rows where `only` (column, value as
+/// text) holds. Keys sort as the story's times do (ISO texts, years).
+pub(super) fn aggregates(
+    table: &Table,
+    key: &str,
+    measure: &str,
+    agg: &str,
+    only: Option<(&str, &str)>,
+) -> BTreeMap<String, f64> {
+    let mut sums: BTreeMap<String, (f64, usize)> = BTreeMap::new();
+    let col = |n: &str| table.columns.iter().find(|c| c.name == n);
+    let (Some(k), Some(m)) = (col(key), col(measure)) else {
+        return BTreeMap::new();
+    };
+    let filter = only.and_then(|(c, v)| col(c).map(|c| (c, v)));
+    for (r, (kv, mv)) in k.values.iter().zip(m.values.iter()).enumerate() {
+        if let Some((c, want)) = filter {
+            if key_text(&c.values.value(r)).as_deref() != Some(want) {
+                continue;
+            }
+        }
+        let (Some(key), Value::Number(x)) = (key_text(&kv), mv) else {
+            continue;
+        };
+        let e = sums.entry(key).or_insert((0.0, 0));
+        e.0 += x;
+        e.1 += 1;
+    }
+    sums.into_iter()
+        .map(|(k, (t, n))| (k, if agg == "sum" { t } else { t / n as f64 }))
+        .collect()
+}
+
+/// Totals of `measure` per value of `key`.
+fn totals(table: &Table, key: &str, measure: &str) -> BTreeMap<String, f64> {
+    aggregates(table, key, measure, "sum", None)
 }
 
 /// The key with the largest total.
-fn largest(t: &BTreeMap<String, f64>) -> Option<String> {
+pub(super) fn largest(t: &BTreeMap<String, f64>) -> Option<String> {
     t.iter()
         .max_by(|a, b| a.1.total_cmp(b.1))
         .map(|(k, _)| k.clone())
 }
 
 /// Words from a column name: `weekly_hours` → "weekly hours".
-fn words(name: &str) -> String {
+pub(super) fn words(name: &str) -> String {
     name.replace('_', " ")
 }
 
-fn capital(s: &str) -> String {
+pub(super) fn capital(s: &str) -> String {
     let mut c = s.chars();
     match c.next() {
         Some(f) => f.to_uppercase().collect::<String>() + c.as_str(),
@@ -141,14 +168,35 @@ pub fn write_story(table: &Table, p: &Profile, shape: &Shape, data_path: &str) -
         Shape::Trend {
             time,
             measure,
+            agg,
             series,
-        } => trend(&mut s, table, time, measure, series.as_deref()),
+            parts,
+            other,
+            other_agg,
+            only,
+        } => super::trend::trend(
+            &mut s,
+            table,
+            &super::trend::Trend {
+                time,
+                measure,
+                agg,
+                series: series.as_deref(),
+                parts: parts.as_deref(),
+                other: other.as_deref(),
+                other_agg,
+                only: only.as_ref().map(|(c, v)| (c.as_str(), v.as_str())),
+            },
+        ),
         Shape::Periods {
             period,
             category,
             measure,
-        } => periods(&mut s, table, period, category, measure),
-        Shape::Relationship { x, y, label } => relationship(&mut s, table, x, y, label.as_deref()),
+            agg,
+        } => periods(&mut s, table, (period, category), measure, agg),
+        Shape::Relationship { x, y, label, group } => {
+            relationship(&mut s, table, (x, y), label.as_deref(), group.as_deref())
+        }
         Shape::PartOfWhole {
             category,
             part,
@@ -158,9 +206,10 @@ pub fn write_story(table: &Table, p: &Profile, shape: &Shape, data_path: &str) -
         Shape::Comparison {
             category,
             measure,
+            agg,
             horizontal,
             top,
-        } => comparison(&mut s, table, category, measure, *horizontal, *top),
+        } => comparison(&mut s, table, (category, measure, agg), *horizontal, *top),
     }
     // the forms write `= table`; the data item is named after the file
     let body = s
@@ -193,19 +242,12 @@ fn data_name(stem: &str) -> String {
     }
 }
 
-/// The value, the claim placeholder and the conclusion, shared by every form.
-fn value_and_claim(s: &mut String, view: &str, measure: &str) {
+/// The highest and lowest values and the conclusion placeholder, shared
+/// by every form. Each form then states one true fact in a headline,
+/// computed as a value and protected by a claim ([`fact`]).
+pub(super) fn value_and_claim(s: &mut String, view: &str, measure: &str) {
     let _ = writeln!(s, "value highest = max({view}.{measure})");
     let _ = writeln!(s, "value lowest = min({view}.{measure})");
-    let _ = writeln!(
-        s,
-        "# A placeholder claim that holds by construction: replace it with the\n\
-         # comparison your headline states, e.g. `claim highest > 2 * lowest \"...\"`."
-    );
-    let _ = writeln!(
-        s,
-        "claim highest >= lowest \"TODO: the sentence this claim protects\""
-    );
     let _ = writeln!(s);
     let _ = writeln!(
         s,
@@ -214,9 +256,36 @@ fn value_and_claim(s: &mut String, view: &str, measure: &str) {
     let _ = writeln!(s);
 }
 
+/// A claim that protects a headline: the comment saying so, the claim, and
+/// a blank line.
+pub(super) fn fact(s: &mut String, claim: &str, sentence: &str) {
+    let _ = writeln!(
+        s,
+        "# The headline below states this; the build fails if the data stop saying it."
+    );
+    let _ = writeln!(s, "claim {claim} {}", quote(sentence));
+    let _ = writeln!(s);
+}
+
+/// `s` as it may stand inside a story string (quotes and backslashes
+/// escaped, braces of the data kept from opening a quoted value).
+pub(super) fn escape(s: &str) -> String {
+    let q = quote(s);
+    q[1..q.len() - 1].to_string()
+}
+
+/// `"text"` for a text or time key, the bare number for a year.
+pub(super) fn literal(key: &str) -> String {
+    if !key.is_empty() && key.chars().all(|c| c.is_ascii_digit()) {
+        key.to_string()
+    } else {
+        quote(key)
+    }
+}
+
 /// One frame of a starter story: the comment that says what it is for, the
 /// headline (already quoted), its statements, and a blank line after it.
-fn frame(s: &mut String, comment: &str, headline: &str, lines: &[String]) {
+pub(super) fn frame(s: &mut String, comment: &str, headline: &str, lines: &[String]) {
     let _ = writeln!(s, "# {comment}");
     let _ = writeln!(s, "frame {headline} {{");
     for l in lines {
@@ -227,14 +296,14 @@ fn frame(s: &mut String, comment: &str, headline: &str, lines: &[String]) {
 }
 
 /// `compare KEY by MEASURE` and `focus "NAME"`, then a blank line.
-fn compare_focus(s: &mut String, key: &str, measure: &str, focus: &str) {
+pub(super) fn compare_focus(s: &mut String, key: &str, measure: &str, focus: &str) {
     let _ = writeln!(s, "compare {key} by {measure}");
     let _ = writeln!(s, "focus {}", quote(focus));
     let _ = writeln!(s);
 }
 
 /// The view: a comment on the form, `view NAME = table`, its steps.
-fn view(s: &mut String, comment: &str, name: &str, steps: &[String]) {
+pub(super) fn view(s: &mut String, comment: &str, name: &str, steps: &[String]) {
     let _ = writeln!(s, "{comment}");
     let _ = writeln!(s, "view {name} = table");
     for st in steps {
@@ -243,7 +312,7 @@ fn view(s: &mut String, comment: &str, name: &str, steps: &[String]) {
     let _ = writeln!(s);
 }
 
-fn conclusion_frame(s: &mut String) {
+pub(super) fn conclusion_frame(s: &mut String) {
     let _ = writeln!(
         s,
         "# 4. Conclusion (placeholder): say what the audience should do."
@@ -254,7 +323,7 @@ fn conclusion_frame(s: &mut String) {
 }
 
 /// The spotlight frame most forms end their build-up with.
-fn spotlight_frame(s: &mut String, comment: &str, headline: String, takeaway: &str) {
+pub(super) fn spotlight_frame(s: &mut String, comment: &str, headline: String, takeaway: &str) {
     frame(
         s,
         comment,
@@ -263,111 +332,28 @@ fn spotlight_frame(s: &mut String, comment: &str, headline: String, takeaway: &s
     );
 }
 
-fn trend(s: &mut String, table: &Table, time: &str, measure: &str, series: Option<&str>) {
+fn periods(
+    s: &mut String,
+    table: &Table,
+    (period, category): (&str, &str),
+    measure: &str,
+    agg: &str,
+) {
     let m = words(measure);
-    let mut comment = format!(
-        "# Change over time: a line, {time} along x ({measure} summed per {time}{}).",
-        series.map_or(String::new(), |c| format!(" and {c}"))
-    );
-    let keys = match series {
-        Some(cat) => {
-            comment.push_str(&format!(
-                "\n# A few {cat} values: one line each (more would tangle)."
-            ));
-            format!("{time}, {cat}")
-        }
-        None => time.to_string(),
-    };
-    view(
-        s,
-        &comment,
-        "over_time",
-        &[format!("| by {keys}: {measure} = sum({measure})")],
-    );
-    value_and_claim(s, "over_time", measure);
-    let headline = quote(&format!("{} over time", capital(&m)));
-    let y_title = format!("y title {}", quote(&capital(&m)));
-    let focus = series.and_then(|c| largest(&totals(table, c, measure)));
-    if let (Some(cat), Some(focus)) = (series, &focus) {
-        compare_focus(s, cat, measure, focus);
-        frame(
-            s,
-            "1. Context: one line first, so the pattern over time is clear.",
-            &headline,
-            &[
-                format!("line over_time: x {time}, y {measure}, series {cat}"),
-                y_title,
-                "hide all".into(),
-                format!("show {}", quote(focus)),
-                "takeaway \"TODO: what the first line shows\"".into(),
-            ],
-        );
-        frame(
-            s,
-            "2. Comparison: every line, on the same axes.",
-            &quote(&format!("Every {} compared", words(cat))),
-            &[
-                "show all".into(),
-                "takeaway \"TODO: how the lines differ\"".into(),
-            ],
-        );
-        spotlight_frame(
-            s,
-            "3. Spotlight: the focus in colour, the rest in grey.",
-            format!("{focus} stands out"),
-            "Its highest value: {highest}.",
-        );
+    let how = if agg == "sum" {
+        format!("{measure} is an amount: summed per {category} and {period}.")
     } else {
-        frame(
-            s,
-            "1. Context: the whole series.",
-            &headline,
-            &[
-                format!("line over_time: x {time}, y {measure}"),
-                y_title,
-                "takeaway \"TODO: what the line shows\"".into(),
-            ],
-        );
-        frame(
-            s,
-            "2. Comparison: the first and the last value, labelled.",
-            "\"From the first period to the last\"",
-            &[
-                "label ends".into(),
-                "takeaway \"TODO: how far it moved\"".into(),
-            ],
-        );
-        let mut lines = Vec::new();
-        if let Some(peak) = largest(&totals(table, time, measure)) {
-            let at = if peak.contains('-') {
-                quote(&peak)
-            } else {
-                peak
-            };
-            lines.push(format!("callout {at} \"Highest: {{highest}}\""));
-        }
-        lines.push("takeaway \"TODO: why it peaked there\"".into());
-        frame(
-            s,
-            "3. Spotlight: a note at the highest point.",
-            "\"The highest point\"",
-            &lines,
-        );
-    }
-    conclusion_frame(s);
-}
-
-fn periods(s: &mut String, table: &Table, period: &str, category: &str, measure: &str) {
-    let m = words(measure);
+        format!("{measure} is a rate or level: averaged per {category} and {period}, never summed.")
+    };
     view(
         s,
         &format!(
             "# Only two periods of {period}: bars grouped by {period} compare them\n\
-             # honestly (a line through two points is one slope, not a trend)."
+             # honestly (a line through two points is one slope, not a trend).\n# {how}"
         ),
         "by_period",
         &[
-            format!("| by {category}, {period}: {measure} = sum({measure})"),
+            format!("| by {category}, {period}: {measure} = {agg}({measure})"),
             format!("| sort {measure} descending"),
         ],
     );
@@ -378,11 +364,26 @@ fn periods(s: &mut String, table: &Table, period: &str, category: &str, measure:
         .next_back()
         .cloned()
         .unwrap_or_default();
+    let latest = aggregates(table, category, measure, agg, Some((period, &focus)));
+    let leader = largest(&latest).unwrap_or_default();
+    let _ = writeln!(
+        s,
+        "value leader_latest = max(by_period.{measure} where {period} = {})",
+        literal(&focus)
+    );
+    let _ = writeln!(
+        s,
+        "value leader_value = max(by_period.{measure} where {category} = {} and {period} = {})",
+        literal(&leader),
+        literal(&focus)
+    );
+    let headline = format!("{leader} has the highest {m} in {focus}");
+    fact(s, "leader_value = leader_latest", &headline);
     compare_focus(s, period, measure, &focus);
     frame(
         s,
         &format!("1. Context: every {category} in both periods."),
-        &quote(&format!("{} by {}", capital(&m), words(category))),
+        &quote(&headline),
         &[
             format!("bars by_period: category {category}, value {measure}, group {period}"),
             format!("y title {}", quote(&capital(&m))),
@@ -397,57 +398,117 @@ fn periods(s: &mut String, table: &Table, period: &str, category: &str, measure:
     );
     spotlight_frame(
         s,
-        "3. Spotlight: the focus in colour, the rest in grey.",
-        format!("{focus} stands out"),
-        "Its highest value: {highest}.",
+        "3. Spotlight: the latest period in colour, the earlier one in grey.",
+        format!("{focus}: {leader} leads"),
+        "TODO: why it leads",
     );
     conclusion_frame(s);
 }
 
-fn relationship(s: &mut String, table: &Table, x: &str, y: &str, label: Option<&str>) {
-    view(
-        s,
-        "# Two measures and no time: their relationship, a scatter plot with a\n\
-         # fitted line (check the correlation before you claim one).",
-        "points",
-        &[format!("| sort {y} descending")],
-    );
+/// The headline of a correlation `r` between `y` and `x`, and the claim
+/// that protects it (on the value `fit`).
+pub(super) fn direction(r: Option<f64>, y: &str, x: &str) -> (String, &'static str) {
+    let (says, claim) = match r {
+        Some(r) if r >= 0.3 => ("rise together", "fit >= 0.3"),
+        Some(r) if r <= -0.3 => ("move in opposite directions", "fit <= -0.3"),
+        _ => ("barely move together", "fit about 0 within 0.3"),
+    };
+    (
+        format!("{} and {} {says}", capital(&words(y)), words(x)),
+        claim,
+    )
+}
+
+fn relationship(
+    s: &mut String,
+    table: &Table,
+    (x, y): (&str, &str),
+    label: Option<&str>,
+    group: Option<&str>,
+) {
+    let column = |n: &str| -> Vec<Option<f64>> {
+        table
+            .columns
+            .iter()
+            .find(|c| c.name == n)
+            .map(|c| {
+                c.values
+                    .iter()
+                    .map(|v| match v {
+                        Value::Number(x) => Some(x),
+                        _ => None,
+                    })
+                    .collect()
+            })
+            .unwrap_or_default()
+    };
+    let (px, py): (Vec<f64>, Vec<f64>) = column(x)
+        .into_iter()
+        .zip(column(y))
+        .filter_map(|(a, b)| a.zip(b))
+        .unzip();
+    let r = crescendo_data::stats::correlation(&px, &py).ok();
+    let why = match group {
+        Some(g) => format!(
+            "# Two measures: their relationship, a scatter plot with a fitted line,\n\
+             # never their sum. The rows fall in groups of {g}: one panel per group,\n\
+             # all on one scale, each with its own line (totals per group would\n\
+             # add the measures up and hide the shapes)."
+        ),
+        None => "# Two measures and no time: their relationship, a scatter plot with a\n\
+                 # fitted line, never their sum (check the correlation before you claim one)."
+            .to_string(),
+    };
+    // grouped: the panels in the groups' order; else the largest first
+    let sort = match group {
+        Some(g) => format!("| sort {g}"),
+        None => format!("| sort {y} descending"),
+    };
+    view(s, &why, "points", &[sort]);
     let _ = writeln!(s, "value fit = correlation(points.{y} by {x})");
     value_and_claim(s, "points", y);
+    let (headline, claim) = direction(r, y, x);
+    fact(s, claim, &headline);
     let focus = label.and_then(|l| largest(&totals(table, l, y)));
-    let chart = format!(
+    let mut chart = format!(
         "scatter points: x {x}, y {y}{}",
         label.map_or(String::new(), |l| format!(", label {l}"))
     );
+    if let Some(g) = group {
+        let _ = write!(chart, ", series {g}");
+    }
     let titles = [
         format!("x title {}", quote(&capital(&words(x)))),
         format!("y title {}", quote(&capital(&words(y)))),
     ];
+    let mut first = vec![chart.clone()];
+    if let Some(g) = group {
+        first.push(format!("split {g}"));
+    }
+    first.extend(titles.iter().cloned());
+    first.push("takeaway \"TODO: what the cloud of points shows\"".into());
     frame(
         s,
         "1. Context: every row as a point.",
-        &quote(&format!("{} against {}", capital(&words(y)), words(x))),
-        &[
-            chart.clone(),
-            titles[0].clone(),
-            titles[1].clone(),
-            "takeaway \"TODO: what the cloud of points shows\"".into(),
-        ],
+        &quote(&headline),
+        &first,
     );
+    let mut second = vec![format!("{chart}, fit")];
+    if let Some(g) = group {
+        second.push(format!("split {g}"));
+    }
+    second.extend(titles.iter().cloned());
+    second.push("takeaway \"Correlation r = {fit}.\"".into());
     frame(
         s,
         "2. Comparison: the fitted line and its correlation.",
         "\"How closely they move together\"",
-        &[
-            format!("{chart}, fit"),
-            titles[0].clone(),
-            titles[1].clone(),
-            "takeaway \"Correlation r = {fit}.\"".into(),
-        ],
+        &second,
     );
     // without names to point at, the takeaway carries the point
     let mut lines: Vec<String> = focus
         .iter()
+        .filter(|_| group.is_none())
         .map(|f| format!("spotlight {}", quote(f)))
         .collect();
     lines.push(format!(
@@ -476,8 +537,24 @@ fn part_of_whole(s: &mut String, table: &Table, category: &str, part: &str, meas
             "| by {category}, {part}: {measure} = sum({measure})"
         )],
     );
+    view(
+        s,
+        &format!("# The whole of each {part}, for the headline's claim."),
+        "part_totals",
+        &[format!("| by {part}: {measure} = sum({measure})")],
+    );
     value_and_claim(s, "parts", measure);
     let focus = largest(&totals(table, part, measure)).unwrap_or_default();
+    let _ = writeln!(
+        s,
+        "value focus_rank = rank(part_totals.{measure} where {part} = {})",
+        literal(&focus)
+    );
+    fact(
+        s,
+        "focus_rank = 1",
+        &format!("{focus} is the largest {} in total", words(part)),
+    );
     compare_focus(s, part, measure, &focus);
     let y_title = format!("y title {}", quote(&capital(&m)));
     frame(
@@ -508,7 +585,7 @@ fn part_of_whole(s: &mut String, table: &Table, category: &str, part: &str, meas
     spotlight_frame(
         s,
         "3. Spotlight: the largest part in colour.",
-        format!("{focus} is the largest part"),
+        format!("{focus} is the largest {} in total", words(part)),
         "Its highest value: {highest}.",
     );
     conclusion_frame(s);
@@ -528,6 +605,16 @@ fn distribution(s: &mut String, table: &Table, name: &str, measure: &str) {
     );
     value_and_claim(s, "spread", measure);
     let focus = largest(&totals(table, name, measure)).unwrap_or_default();
+    let _ = writeln!(
+        s,
+        "value focus_rank = rank(spread.{measure} where {name} = {})",
+        literal(&focus)
+    );
+    fact(
+        s,
+        "focus_rank = 1",
+        &format!("{focus} has the highest {}", words(measure)),
+    );
     compare_focus(s, name, measure, &focus);
     frame(
         s,
@@ -548,7 +635,7 @@ fn distribution(s: &mut String, table: &Table, name: &str, measure: &str) {
     spotlight_frame(
         s,
         "3. Spotlight: the highest value.",
-        format!("{focus} is the highest"),
+        format!("{focus} has the highest {}", words(measure)),
         "TODO: why it matters",
     );
     conclusion_frame(s);
@@ -557,13 +644,12 @@ fn distribution(s: &mut String, table: &Table, name: &str, measure: &str) {
 fn comparison(
     s: &mut String,
     table: &Table,
-    category: &str,
-    measure: &str,
+    (category, measure, agg): (&str, &str, &str),
     horizontal: bool,
     top: Option<usize>,
 ) {
     let m = words(measure);
-    let mut steps = vec![format!("| by {category}: {measure} = sum({measure})")];
+    let mut steps = vec![format!("| by {category}: {measure} = {agg}({measure})")];
     if let Some(n) = top {
         steps.push(format!(
             "# many {category} values: the largest ones, the rest together"
@@ -575,18 +661,29 @@ fn comparison(
         s,
         &format!(
             "# A comparison of {category} values: bars sorted by size, so the order\n\
-             # reads at a glance{}.",
+             # reads at a glance{}.\n# {}",
             if horizontal {
                 "; horizontal because the names are long"
             } else {
                 ""
+            },
+            if agg == "sum" {
+                format!("{measure} is an amount: summed per {category}.")
+            } else {
+                format!("{measure} is a rate or level: averaged per {category}, never summed.")
             }
         ),
         "ranked",
         &steps,
     );
     value_and_claim(s, "ranked", measure);
-    let focus = largest(&totals(table, category, measure)).unwrap_or_default();
+    let focus = largest(&aggregates(table, category, measure, agg, None)).unwrap_or_default();
+    let _ = writeln!(
+        s,
+        "value focus_rank = rank(ranked.{measure} where {category} = {})",
+        literal(&focus)
+    );
+    fact(s, "focus_rank = 1", &format!("{focus} has the highest {m}"));
     compare_focus(s, category, measure, &focus);
     let orient = if horizontal { ", horizontal" } else { "" };
     frame(
@@ -608,7 +705,7 @@ fn comparison(
     spotlight_frame(
         s,
         "3. Spotlight: the focus in colour, the rest in grey.",
-        format!("{focus} leads"),
+        format!("{focus} has the highest {m}"),
         "TODO: why it leads",
     );
     conclusion_frame(s);

@@ -201,31 +201,148 @@ pub fn max(xs: &[f64]) -> Result<f64, StatError> {
         .fold(f64::NEG_INFINITY, f64::max))
 }
 
-/// Sample variance s² = Σ (xᵢ − x̄)² / (n − 1).
-///
-/// Computed with the corrected two-pass algorithm (common practice; analysed
-/// in Chan, Golub & LeVeque, "Algorithms for computing the sample variance",
-/// The American Statistician, 1983 — citation from memory):
-/// Σ dᵢ² − (Σ dᵢ)²/n with dᵢ = xᵢ − x̄, where the second term removes the
-/// rounding error of x̄. Needs at least two values.
+/// Sample variance s² = Σ (xᵢ − x̄)² / (n − 1): [`sample_variance`].
 pub fn variance(xs: &[f64]) -> Result<f64, StatError> {
-    let xs = checked(xs)?;
-    if xs.len() < 2 {
-        return Err(StatError::TooFew {
-            needed: 2,
-            got: xs.len(),
-        });
-    }
-    let m = mean(xs)?;
-    let ss = centred_ss(xs, m);
-    Ok(finite(ss / (xs.len() - 1) as f64)?.max(0.0))
+    sample_variance(xs)
 }
 
-/// Σ (xᵢ − m)² − (Σ (xᵢ − m))² / n, both sums exact.
+/// Which divisor a spread uses: n − 1 for a sample that stands for a
+/// larger group (Bessel's correction, common practice), n for a whole
+/// population.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Divisor {
+    /// n − 1: the spread of a sample, as an estimate of its population's.
+    Sample,
+    /// n: the spread of exactly these values.
+    Population,
+}
+
+/// Sample variance s² = Σ (xᵢ − x̄)² / (n − 1). Needs at least two values.
+///
+/// The sum of squares is exact (see [`spread`]), so the result is the exact
+/// variance rounded to a double, as Python's `statistics.variance` gives it
+/// (within the last bit in rare ties).
+pub fn sample_variance(xs: &[f64]) -> Result<f64, StatError> {
+    spread(xs, Divisor::Sample).map(|s| s.variance)
+}
+
+/// Population variance σ² = Σ (xᵢ − x̄)² / n (as `statistics.pvariance`).
+pub fn population_variance(xs: &[f64]) -> Result<f64, StatError> {
+    spread(xs, Divisor::Population).map(|s| s.variance)
+}
+
+/// Sample standard deviation s = √(Σ (xᵢ − x̄)² / (n − 1)) (as
+/// `statistics.stdev`). Needs at least two values.
+pub fn sample_standard_deviation(xs: &[f64]) -> Result<f64, StatError> {
+    spread(xs, Divisor::Sample).map(|s| s.deviation)
+}
+
+/// Population standard deviation σ = √(Σ (xᵢ − x̄)² / n) (as
+/// `statistics.pstdev`).
+pub fn population_standard_deviation(xs: &[f64]) -> Result<f64, StatError> {
+    spread(xs, Divisor::Population).map(|s| s.deviation)
+}
+
+/// A variance and its square root.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Spread {
+    pub variance: f64,
+    pub deviation: f64,
+}
+
+/// The variance and standard deviation of `xs` with the given divisor.
+///
+/// Exact where the view engine is exact: with the rounded mean m, each
+/// deviation xᵢ − m is split exactly into two doubles (Knuth's TwoSum) and
+/// squared exactly into products and their errors (a fused multiply-add
+/// gives each product's error exactly, common practice), and all these
+/// terms go into the engine's exact sum. The sum of squares about the true
+/// mean x̄ is then Σ (xᵢ − m)² − D²/n with D = Σ (xᵢ − m) (the identity
+/// Σ (xᵢ − c)² = Σ (xᵢ − x̄)² + n (x̄ − c)², common practice), so the
+/// rounding of m costs nothing. The sum is kept as a pair hi + lo for the
+/// division and the square root, each corrected by one Newton step, so the
+/// results are the exact figures rounded once, but for a rare last bit.
+///
+/// The sample divisor needs two values (`TooFew`); the population divisor
+/// one. A sum of squares beyond the largest double is `NotFinite`.
+pub fn spread(xs: &[f64], divisor: Divisor) -> Result<Spread, StatError> {
+    let xs = checked(xs)?;
+    let n = xs.len();
+    let k = match divisor {
+        Divisor::Sample if n < 2 => return Err(StatError::TooFew { needed: 2, got: n }),
+        Divisor::Sample => (n - 1) as f64,
+        Divisor::Population => n as f64,
+    };
+    let m = mean(xs)?;
+    let (hi, lo) = exact_centred_ss(xs, m)?;
+    if hi <= 0.0 {
+        return Ok(Spread {
+            variance: 0.0,
+            deviation: 0.0,
+        });
+    }
+    // (hi + lo) / k: a quotient, then its remainder divided again.
+    let v = hi / k;
+    let v_lo = ((-v).mul_add(k, hi) + lo) / k;
+    let variance = finite(v + v_lo)?;
+    // √(v + v_lo): the root of the rounded part, then one Newton step
+    // on the remainder (s² taken exactly with a fused multiply-add).
+    let s = v.sqrt();
+    let sq_lo = s.mul_add(s, -(s * s));
+    let rest = ((v - s * s) - sq_lo) + v_lo;
+    let deviation = finite(s + rest / (2.0 * s))?;
+    Ok(Spread {
+        variance: variance.max(0.0),
+        deviation: deviation.max(0.0),
+    })
+}
+
+/// Σ (xᵢ − m)² − (Σ (xᵢ − m))² / n, both sums exact (for the line fit).
 fn centred_ss(xs: &[f64], m: f64) -> f64 {
     let n = xs.len() as f64;
     let d = exact_sum(xs.iter().map(|x| x - m));
     exact_sum(xs.iter().map(|x| (x - m) * (x - m))) - d * d / n
+}
+
+/// a + b as a rounded sum and its exact error (Knuth's TwoSum).
+fn two_sum(a: f64, b: f64) -> (f64, f64) {
+    let s = a + b;
+    let bb = s - a;
+    (s, (a - (s - bb)) + (b - bb))
+}
+
+/// a · b as a rounded product and its exact error (a fused multiply-add).
+fn two_product(a: f64, b: f64) -> (f64, f64) {
+    let p = a * b;
+    (p, a.mul_add(b, -p))
+}
+
+/// Σ (xᵢ − x̄)² about the true mean, exactly, as hi + lo (hi the sum rounded
+/// once, lo the rest rounded once), given the rounded mean `m`.
+fn exact_centred_ss(xs: &[f64], m: f64) -> Result<(f64, f64), StatError> {
+    let mut squares = crate::view::Sum::default();
+    let mut deviations = crate::view::Sum::default();
+    for &x in xs {
+        let (dh, dl) = two_sum(x, -m);
+        deviations.add(dh);
+        deviations.add(dl);
+        let (p1, e1) = two_product(dh, dh);
+        let (p2, e2) = two_product(2.0 * dh, dl);
+        let (p3, e3) = two_product(dl, dl);
+        for t in [p1, e1, p2, e2, p3, e3] {
+            squares.add(t);
+        }
+    }
+    let n = xs.len() as f64;
+    let d = finite(deviations.total().unwrap_or(0.0))?;
+    let (q1, q2) = two_product(d, d);
+    squares.add(-(q1 / n));
+    squares.add(-(q2 / n));
+    let hi = finite(squares.total().unwrap_or(0.0))?;
+    let mut rest = squares.clone();
+    rest.add(-hi);
+    let lo = finite(rest.total().unwrap_or(0.0))?;
+    Ok((hi, lo))
 }
 
 /// The share of `part` in `total` as a fraction: part / total (0.25 is a

@@ -284,8 +284,13 @@ pub struct ScatterChart {
 pub struct ScatterPoint {
     pub x: f64,
     pub y: f64,
-    /// Direct label (drawn for focus points).
+    /// Direct label (drawn for focus points, and for every point when
+    /// there are few).
     pub label: String,
+    /// The group the point belongs to (`series COLUMN`), which `split`
+    /// makes a panel of; empty without one.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub series: String,
     pub role: Role,
 }
 

@@ -185,12 +185,17 @@ fn scatter(s: &ScatterChart) -> String {
             f.r.map_or(String::new(), |r| format!(", correlation {}", fig(r)))
         ));
     }
-    let focus: Vec<&str> = s
-        .points
-        .iter()
-        .filter(|p| p.role == Role::Focus)
-        .map(|p| p.label.as_str())
-        .collect();
+    let mut focus: Vec<&str> = Vec::new();
+    for p in s.points.iter().filter(|p| p.role == Role::Focus) {
+        let name = if p.label.is_empty() {
+            p.series.as_str()
+        } else {
+            p.label.as_str()
+        };
+        if !name.is_empty() && !focus.contains(&name) {
+            focus.push(name);
+        }
+    }
     if !focus.is_empty() {
         out.push_str(&format!("; highlighted: {}", focus.join(", ")));
     }

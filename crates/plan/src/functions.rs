@@ -17,6 +17,10 @@ const FUNCTIONS: &[&str] = &[
     "sum",
     "mean",
     "median",
+    "sample_variance",
+    "population_variance",
+    "sample_standard_deviation",
+    "population_standard_deviation",
     "count",
     "share",
     "change",
@@ -71,12 +75,19 @@ impl Evaluator<'_> {
             "count" => self.count(fname, args, span),
             "first" | "last" | "min" | "max" => self.extreme(fname, args, span),
             "sum" | "mean" | "median" => self.sums(fname, args, span),
+            "sample_variance"
+            | "population_variance"
+            | "sample_standard_deviation"
+            | "population_standard_deviation" => self.spread(fname, args, span),
             "share" => self.share(fname, args, span),
             "change" | "percent_change" => self.change(fname, args, span),
             "growth" => self.growth(fname, args, span),
             "rank" => self.rank(fname, args, span),
             "slope" | "intercept" | "correlation" => self.fit(fname, args, span),
             other => {
+                if let Some(d) = self.ambiguous_spread(other, fspan) {
+                    return Err(vec![d]);
+                }
                 let mut d = self.err(
                     "unknown-name",
                     format!("unknown function `{other}`"),
@@ -424,6 +435,59 @@ impl Evaluator<'_> {
             _ => stats::median(&xs),
         };
         self.wrap(fname, r, &p, span)
+    }
+
+    /// `sample_variance`, `population_variance` and their square roots.
+    fn spread(
+        &self,
+        fname: &str,
+        args: &[CallArg],
+        span: &Span,
+    ) -> Result<Quantity, Vec<Diagnostic>> {
+        let sel = self.selection_arg(fname, args, span)?;
+        let p = self.pick(sel, true)?;
+        let xs = self.numbers(fname, sel, &p)?;
+        let divisor = if fname.starts_with("sample") {
+            stats::Divisor::Sample
+        } else {
+            stats::Divisor::Population
+        };
+        let r = stats::spread(&xs, divisor).map(|s| {
+            if fname.ends_with("variance") {
+                s.variance
+            } else {
+                s.deviation
+            }
+        });
+        self.wrap(fname, r, &p, span)
+    }
+
+    /// A spread named without saying which divisor (`variance`, `stdev`,
+    /// `sd`, …): an error that names both and says how they differ.
+    fn ambiguous_spread(&self, name: &str, fspan: &Span) -> Option<Diagnostic> {
+        let lower = name.to_ascii_lowercase();
+        let (a, b) = match lower.as_str() {
+            "variance" | "var" | "pvariance" | "svariance" => {
+                ("sample_variance", "population_variance")
+            }
+            "stdev" | "std" | "sd" | "stddev" | "pstdev" | "standard_deviation" | "deviation" => {
+                ("sample_standard_deviation", "population_standard_deviation")
+            }
+            _ => return None,
+        };
+        Some(
+            self.err(
+                "unknown-name",
+                format!("unknown function `{name}`: say which spread"),
+                fspan.clone(),
+                "sample or population?",
+            )
+            .note(format!(
+                "`{a}` divides by n − 1 (the values are a sample of a larger group); \
+                 `{b}` divides by n (the values are the whole group)"
+            ))
+            .help(format!("write `{a}(…)` or `{b}(…)`")),
+        )
     }
 
     /// `share`: the selected part of the column's total.

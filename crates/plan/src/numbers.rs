@@ -220,6 +220,15 @@ pub fn write_labels(chart: &mut crate::model::Chart, quoted: &[Quoted]) {
                 fit.label = fit_label(fit.r, quoted);
             }
         }
+        // a scatter's panels each have their own fit (line panels draw no
+        // end values)
+        Chart::Panels(p) => {
+            for panel in &mut p.panels {
+                if let Chart::Scatter(_) = panel.chart {
+                    write_labels(&mut panel.chart, quoted);
+                }
+            }
+        }
         _ => {}
     }
     if quoted.is_empty() {

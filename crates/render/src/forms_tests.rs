@@ -376,19 +376,26 @@ fn dot_plot() {
 }
 
 fn scatter_chart(hide: bool) -> Chart {
+    scatter_of(hide, 10)
+}
+
+/// A scatter of `n` named points (at most 16), two in focus.
+fn scatter_of(hide: bool, count: usize) -> Chart {
     let names = [
         "Ashford", "Brook", "Carrow", "Dunmore", "Ellery", "Fenwick", "Glenby", "Harlow", "Ivel",
-        "Jessop",
+        "Jessop", "Kelso", "Lorne", "Marden", "Nash", "Orwell", "Pelham",
     ];
     let points = names
         .iter()
+        .take(count)
         .enumerate()
         .map(|(i, n)| {
-            let x = 10.0 + i as f64 * 8.0;
+            let x = 10.0 + i as f64 * 80.0 / count as f64;
             ScatterPoint {
                 x,
                 y: 5.0 + x * 0.6 + ((i * 7) % 5) as f64 * 4.0,
                 label: n.to_string(),
+                series: String::new(),
                 role: match i {
                     3 | 8 => Role::Focus,
                     5 if hide => Role::Hidden,
@@ -427,7 +434,10 @@ fn scatter_with_fit() {
         has(&boxes, "Dunmore") && has(&boxes, "Ivel"),
         "focus points named"
     );
-    assert!(!has(&boxes, "Ashford"), "context points are not named");
+    assert!(
+        has(&boxes, "Ashford") && has(&boxes, "Jessop"),
+        "with up to 12 points every point is named"
+    );
     assert_eq!(count(&svg, "circle", "fill", ACCENT), 2);
     assert_eq!(count(&svg, "circle", "fill", "#8C8C8C"), 8);
     assert_eq!(
@@ -440,6 +450,14 @@ fn scatter_with_fit() {
     hidden_changes_nothing_else(&hidden, &svg);
     dump("scatter", &svg);
     insta::assert_snapshot!("scatter", svg);
+}
+
+#[test]
+fn scatter_names_only_focus_points_when_many() {
+    let svg = render(scatter_of(false, 14));
+    let boxes = check(&svg);
+    assert!(has(&boxes, "Dunmore") && has(&boxes, "Ivel"));
+    assert!(!has(&boxes, "Ashford"), "context points are not named");
 }
 
 fn figures_chart(hide: bool) -> Chart {

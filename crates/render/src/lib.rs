@@ -33,6 +33,7 @@ mod parts;
 mod pie;
 pub mod plugin;
 mod scatter;
+mod scatter_grid;
 pub mod svg;
 mod table;
 pub mod theme;
@@ -133,6 +134,9 @@ fn lay_out(
             Chart::Figures(chart) => figures::draw(&canvas, theme, chart, region)?,
             Chart::Table(chart) => table::draw(&canvas, theme, chart, region)?,
             Chart::Pie(chart) => pie::draw(&canvas, theme, chart, region)?,
+            Chart::Panels(chart) if scatter_grid::all_scatters(chart) => {
+                scatter_grid::draw(&canvas, theme, chart, region)?
+            }
             Chart::Panels(chart) => panels::draw(&canvas, theme, chart, region)?,
             Chart::Plugin(chart) => {
                 plugin_description = plugin::draw(&canvas, theme, chart, region, plugins)?;

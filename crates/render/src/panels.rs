@@ -475,7 +475,7 @@ fn lead_width(
 
 /// A panel's title at the top of its cell, bold, in the accent when the
 /// panel is in focus, cut to fit `x..right`.
-fn panel_title(
+pub(crate) fn panel_title(
     canvas: &Canvas,
     theme: &Theme,
     panel: &Panel,

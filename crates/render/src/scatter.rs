@@ -1,5 +1,5 @@
 //! Scatter plots: small grey dots, focus dots larger in the accent with
-//! their names beside them (placed where they cover the fewest other
+//! their names beside them (every dot named when there are few) (placed where they cover the fewest other
 //! labels and dots), axes as in line charts, and an optional least-squares
 //! line over the x range of the points in a dark grey with its correlation.
 
@@ -18,6 +18,10 @@ const DOT: u32 = 4;
 const FOCUS_DOT: u32 = 6;
 /// Widest a point label may be (at 16 px labels; [`Theme::label_scaled`]).
 const MAX_LABEL: f64 = 220.0;
+/// Up to this many labelled points, every point is labelled (a few names
+/// read at a glance; more would crowd the plot, so then only the focus
+/// points are).
+const LABEL_ALL: usize = 12;
 
 /// Candidate spots for a label of size `w`×`h` beside a dot at `p` with
 /// radius `r`: right, left, above, below, the four diagonals, then the
@@ -95,7 +99,13 @@ pub(crate) fn draw(
         if lo < hi && fit.slope.is_finite() && fit.intercept.is_finite() {
             let a = (xmap(lo), ymap(fit.intercept + fit.slope * lo));
             let b = (xmap(hi), ymap(fit.intercept + fit.slope * hi));
-            if let Some((a, b)) = clip(a, b, l.plot_top, l.plot_bottom) {
+            let plot = Rect {
+                x0: l.plot_left,
+                y0: l.plot_top,
+                x1: l.plot_right,
+                y1: l.plot_bottom,
+            };
+            if let Some((a, b)) = clip_to(a, b, &plot) {
                 canvas.line(a, b, theme.muted, 2)?;
                 obstacles.segments.push((a, b));
                 fit_segment = Some((a, b));
@@ -117,27 +127,42 @@ pub(crate) fn draw(
         }
     }
 
-    // Focus labels beside their dots; a label with no free spot is left out
-    // rather than drawn over another text.
+    // Labels beside their dots, focus points first: every point's when there
+    // are few, else the focus points'. A label with no free spot is left
+    // out rather than drawn over another text. (Kept small and local: the
+    // candidates and the scoring are the whole placer.)
     let bounds = Rect {
         x0: l.plot_left,
         y0: l.plot_top - lh / 2.0,
         x1: l.plot_right,
         y1: l.plot_bottom - 2.0,
     };
-    for p in finite.iter().filter(|p| p.role == Role::Focus) {
+    let labelled = finite
+        .iter()
+        .filter(|p| p.role != Role::Hidden && !p.label.is_empty())
+        .count();
+    let focus_first = finite
+        .iter()
+        .filter(|p| p.role == Role::Focus)
+        .chain(finite.iter().filter(|p| p.role == Role::Context));
+    for p in focus_first {
+        let focus = p.role == Role::Focus;
+        if !focus && labelled > LABEL_ALL {
+            continue;
+        }
         let text = metrics::ellipsize(
             &metrics::normalize(&p.label),
             theme.label_size,
-            true,
+            focus,
             theme.label_scaled(MAX_LABEL),
         );
         if text.is_empty() {
             continue;
         }
-        let w = metrics::text_width(&text, theme.label_size, true);
+        let w = metrics::text_width(&text, theme.label_size, focus);
         let c = (xmap(p.x), ymap(p.y));
-        let cands = candidates(c, f64::from(FOCUS_DOT), w, lh);
+        let r = f64::from(if focus { FOCUS_DOT } else { DOT });
+        let cands = candidates(c, r, w, lh);
         if let Some(spot) = best_spot(&cands, &obstacles, &bounds) {
             kit::put(
                 canvas,
@@ -147,8 +172,8 @@ pub(crate) fn draw(
                     x: spot.x0,
                     top: spot.y0,
                     size: theme.label_size,
-                    bold: true,
-                    color: theme.accent,
+                    bold: focus,
+                    color: if focus { theme.accent } else { theme.muted },
                     align: Align::Start,
                 },
             )?;
@@ -187,29 +212,35 @@ pub(crate) fn draw(
     Ok(())
 }
 
-/// The part of segment `a`–`b` between the horizontal lines `top` and
-/// `bottom`, if any.
-fn clip(a: (f64, f64), b: (f64, f64), top: f64, bottom: f64) -> Option<((f64, f64), (f64, f64))> {
-    let at = |y: f64| {
-        if (b.1 - a.1).abs() < 1e-12 {
-            a.0
-        } else {
-            a.0 + (y - a.1) / (b.1 - a.1) * (b.0 - a.0)
+/// The part of segment `a`–`b` inside `plot` (Liang–Barsky clipping, a
+/// published method: Liang & Barsky 1984), if any.
+fn clip_to(a: (f64, f64), b: (f64, f64), plot: &Rect) -> Option<((f64, f64), (f64, f64))> {
+    let (dx, dy) = (b.0 - a.0, b.1 - a.1);
+    let (mut t0, mut t1) = (0.0_f64, 1.0_f64);
+    for (p, q) in [
+        (-dx, a.0 - plot.x0),
+        (dx, plot.x1 - a.0),
+        (-dy, a.1 - plot.y0),
+        (dy, plot.y1 - a.1),
+    ] {
+        if p == 0.0 {
+            if q < 0.0 {
+                return None;
+            }
+            continue;
         }
-    };
-    let clamp = |p: (f64, f64)| {
-        if p.1 < top {
-            (at(top), top)
-        } else if p.1 > bottom {
-            (at(bottom), bottom)
+        let t = q / p;
+        if p < 0.0 {
+            t0 = t0.max(t);
         } else {
-            p
+            t1 = t1.min(t);
         }
-    };
-    if (a.1 < top && b.1 < top) || (a.1 > bottom && b.1 > bottom) {
-        return None;
+        if t0 > t1 {
+            return None;
+        }
     }
-    Some((clamp(a), clamp(b)))
+    let at = |t: f64| (a.0 + t * dx, a.1 + t * dy);
+    Some((at(t0), at(t1)))
 }
 
 #[cfg(test)]
@@ -218,8 +249,18 @@ mod tests {
 
     #[test]
     fn clip_keeps_the_part_inside() {
-        let c = clip((0.0, -10.0), (10.0, 10.0), 0.0, 100.0).unwrap();
+        let plot = Rect {
+            x0: 0.0,
+            y0: 0.0,
+            x1: 100.0,
+            y1: 100.0,
+        };
+        let c = clip_to((0.0, -10.0), (10.0, 10.0), &plot).unwrap();
         assert_eq!(c, ((5.0, 0.0), (10.0, 10.0)));
-        assert!(clip((0.0, -10.0), (10.0, -5.0), 0.0, 100.0).is_none());
+        assert!(clip_to((0.0, -10.0), (10.0, -5.0), &plot).is_none());
+        // Cut at the right edge too (an `x range` narrower than the data).
+        let c = clip_to((50.0, 50.0), (150.0, 60.0), &plot).unwrap();
+        assert_eq!(c, ((50.0, 50.0), (100.0, 55.0)));
+        assert!(clip_to((110.0, 10.0), (120.0, 20.0), &plot).is_none());
     }
 }

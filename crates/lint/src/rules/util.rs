@@ -91,6 +91,9 @@ pub fn focused(frame: &FramePlan) -> Vec<&str> {
                 .map(|r| r.cells.first().map_or("", String::as_str)),
         );
     }
+    // Points that share a label (a scatter's set name) are one spotlight.
+    let mut seen = std::collections::BTreeSet::new();
+    out.retain(|n| seen.insert(*n));
     out
 }
 

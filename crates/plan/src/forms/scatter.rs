@@ -21,6 +21,7 @@ pub(crate) const OPTIONS: &[Opt] = &[
     column(OptName::X),
     column(OptName::Y),
     column(OptName::Label),
+    column(OptName::Series),
     flag(OptName::Fit),
 ];
 
@@ -63,8 +64,10 @@ impl FormPlanner for Scatter {
                 return Err(cx.report(d));
             }
         }
+        let series = input.optional(cx, input.given(OptName::Series))?;
         Ok(ChartSpec {
             extra: input.optional(cx, input.given(OptName::Label))?,
+            series,
             fit: input.chosen.has(OptName::Fit),
             ..input.spec(x.0, y.0)
         })
@@ -111,13 +114,20 @@ impl FormPlanner for Scatter {
         let (x, y) = (axis_of(xc, &xs), axis_of(yc, &ys));
         let names: Vec<String> = {
             let mut seen = BTreeSet::new();
-            points
-                .iter()
-                .filter(|p| !p.label.is_empty() && seen.insert(p.label.clone()))
-                .map(|p| p.label.clone())
+            // Groups first, then the points' own labels, each once.
+            let groups = points.iter().map(|p| &p.series);
+            groups
+                .chain(points.iter().map(|p| &p.label))
+                .filter(|n| !n.is_empty() && seen.insert((*n).clone()))
+                .cloned()
                 .collect()
         };
-        let key_name = labels.map_or_else(|| yc.name.clone(), |l| l.name.clone());
+        // `split` makes a panel of each group: of the `series` column when
+        // there is one, else of each label.
+        let groups = spec.series.map(|g| &t.columns[g]);
+        let key_name = groups
+            .or(labels)
+            .map_or_else(|| yc.name.clone(), |l| l.name.clone());
         Ok(SeqState {
             names,
             measure_name: yc.name.clone(),
@@ -134,6 +144,7 @@ fn points(spec: &ChartSpec) -> Vec<ScatterPoint> {
     let t = &spec.table;
     let (xc, yc) = (&t.columns[spec.x], &t.columns[spec.y]);
     let labels = spec.extra.map(|e| &t.columns[e]);
+    let groups = spec.series.map(|g| &t.columns[g]);
     let mut points = Vec::new();
     for r in 0..xc.values.len() {
         let (Some(x), Some(y)) = (
@@ -146,6 +157,7 @@ fn points(spec: &ChartSpec) -> Vec<ScatterPoint> {
             x,
             y,
             label: labels.map_or_else(String::new, |l| display(&l.values.value(r))),
+            series: groups.map_or_else(String::new, |g| display(&g.values.value(r))),
             role: Role::Context,
         });
     }

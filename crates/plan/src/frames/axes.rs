@@ -1,4 +1,5 @@
-//! Statements about the measure's axis: `y range FROM to TO` and
+//! Statements about the axes: `y range FROM to TO` (`x range` too for
+//! scatters) and
 //! `gridlines` / `gridlines off`. Both hold for the rest of the sequence.
 
 use crescendo_data::format;
@@ -9,8 +10,10 @@ use crate::model::*;
 use crate::scale;
 use crate::sequence::SeqState;
 
-/// `y range FROM to TO`: fix the measure's axis for the rest of the
-/// sequence. The data must fit inside it; ticks are chosen within it.
+/// `y range FROM to TO` (and `x range` for scatters): fix an axis for the
+/// rest of the sequence. The data must fit inside it; ticks are chosen
+/// within it. Small multiples take it in every panel, so they keep one
+/// scale.
 pub(crate) fn range(
     cx: &mut Ctx,
     st: &mut SeqState,
@@ -19,17 +22,6 @@ pub(crate) fn range(
     to: f64,
     span: &Span,
 ) -> Outcome<()> {
-    if axis == AxisName::X {
-        let d = cx
-            .at(
-                "axis-range",
-                "only the measure's axis can be given a range",
-                span.clone(),
-                "x range",
-            )
-            .help("write `y range FROM to TO`; x axes always span the data");
-        return Err(cx.report(d));
-    }
     if from >= to {
         return Err(cx.error(
             "axis-range",
@@ -42,28 +34,18 @@ pub(crate) fn range(
             "empty range",
         ));
     }
-    let (axis, values): (&mut Axis, Vec<f64>) = match &mut st.chart {
-        Chart::Line(l) => {
-            let v = l
-                .series
-                .iter()
-                .flat_map(|s| s.points.iter().filter_map(|p| p.y))
-                .collect();
-            (&mut l.y, v)
-        }
-        Chart::Bars(b) => {
-            let v = b.bars.iter().filter_map(|b| b.value).collect();
-            (&mut b.value, v)
-        }
-        _ => {
-            return Err(cx.error(
-                "axis-range",
-                "only line and bar charts take `y range`",
-                span.clone(),
-                "not for this chart",
-            ));
-        }
-    };
+    let mut targets = Vec::new();
+    if let Err(why) = ranged_axes(&mut st.chart, axis, &mut targets) {
+        let (message, help) = why;
+        let d = cx
+            .at("axis-range", message, span.clone(), "not for this chart")
+            .help(help);
+        return Err(cx.report(d));
+    }
+    let values: Vec<f64> = targets
+        .iter()
+        .flat_map(|(_, v)| v.iter().copied())
+        .collect();
     let lo = values.iter().copied().fold(f64::INFINITY, f64::min);
     let hi = values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
     if lo < from || hi > to {
@@ -83,14 +65,88 @@ pub(crate) fn range(
             .help("widen the range, or leave it out to fit the axis to the data");
         return Err(cx.report(d));
     }
-    let fitted = scale::linear_axis(from, to, false, axis.title.clone());
-    axis.ticks = fitted
-        .ticks
-        .into_iter()
-        .filter(|t| t.value >= from - 1e-9 * (to - from) && t.value <= to + 1e-9 * (to - from))
-        .collect();
-    axis.domain = [from, to];
+    for (axis, _) in targets {
+        let fitted = scale::linear_axis(from, to, false, axis.title.clone());
+        axis.ticks = fitted
+            .ticks
+            .into_iter()
+            .filter(|t| t.value >= from - 1e-9 * (to - from) && t.value <= to + 1e-9 * (to - from))
+            .collect();
+        axis.domain = [from, to];
+    }
     st.anchors.range = Some(span.clone());
+    Ok(())
+}
+
+/// A refusal: the message and its help.
+type Refusal = (String, String);
+
+/// The axes `x range` or `y range` sets in `chart` (every panel's), each
+/// with the values it must hold.
+fn ranged_axes<'c>(
+    chart: &'c mut Chart,
+    name: AxisName,
+    out: &mut Vec<(&'c mut Axis, Vec<f64>)>,
+) -> Result<(), Refusal> {
+    let x = name == AxisName::X;
+    match chart {
+        Chart::Line(l) if !x => {
+            let v = l
+                .series
+                .iter()
+                .flat_map(|s| s.points.iter().filter_map(|p| p.y))
+                .collect();
+            out.push((&mut l.y, v));
+        }
+        Chart::Bars(b) if !x => {
+            let v = b.bars.iter().filter_map(|b| b.value).collect();
+            out.push((&mut b.value, v));
+        }
+        Chart::Dots(d) if !x => {
+            let v = d
+                .rows
+                .iter()
+                .flat_map(|r| r.values.iter().flatten().copied())
+                .collect();
+            out.push((&mut d.value, v));
+        }
+        Chart::Scatter(s) => {
+            let (axis, v): (&mut Axis, Vec<f64>) = if x {
+                (&mut s.x, s.points.iter().map(|p| p.x).collect())
+            } else {
+                (&mut s.y, s.points.iter().map(|p| p.y).collect())
+            };
+            if axis.scale != ScaleKind::Linear {
+                return Err((
+                    format!(
+                        "the scatter's {} axis is a time axis, and a range takes numbers",
+                        if x { "x" } else { "y" }
+                    ),
+                    "leave the range out: a time axis spans its data".into(),
+                ));
+            }
+            out.push((axis, v));
+        }
+        Chart::Panels(p) => {
+            for panel in &mut p.panels {
+                ranged_axes(&mut panel.chart, name, out)?;
+            }
+        }
+        Chart::Line(_) | Chart::Bars(_) | Chart::Dots(_) => {
+            return Err((
+                "only the measure's axis can be given a range here".into(),
+                "write `y range FROM to TO`; the other axis spans the data \
+                 (scatters take `x range` too)"
+                    .into(),
+            ))
+        }
+        _ => {
+            return Err((
+                "only line, bar, dot and scatter charts take a range".into(),
+                "remove the range, or draw the data as one of those charts".into(),
+            ))
+        }
+    }
     Ok(())
 }
 

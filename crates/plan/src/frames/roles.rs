@@ -63,6 +63,15 @@ fn set(slot: &mut Option<String>, t: &Option<String>) {
     }
 }
 
+/// A point's role: its group's when the group is hidden or spotlighted,
+/// else its label's.
+fn scatter_role(role: &dyn Fn(&str) -> Role, p: &ScatterPoint) -> Role {
+    match (p.series.is_empty(), role(&p.series)) {
+        (false, r @ (Role::Hidden | Role::Focus)) => r,
+        _ => role(&p.label),
+    }
+}
+
 /// Set roles (by series, bar, part, row, slice or panel name) and axis
 /// titles on a chart.
 fn apply_roles(
@@ -111,7 +120,7 @@ fn apply_roles(
             set(&mut sc.x.title, &titles.x);
             set(&mut sc.y.title, &titles.y);
             for p in &mut sc.points {
-                p.role = role(&p.label);
+                p.role = scatter_role(role, p);
             }
         }
         Chart::Figures(_) => {}

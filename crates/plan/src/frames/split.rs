@@ -1,5 +1,6 @@
 //! `split KEY ...`: small multiples, one panel per series (line charts) or
-//! per part (stacked or grouped bars), on the chart's own common scale
+//! per part (stacked or grouped bars), per group of points (scatters, each
+//! panel with its own fit), on the chart's own common scale
 //! (`trim` cuts each panel to its extent on the common step; `own scales`
 //! gives each panel its own scale, which the lint flags).
 
@@ -10,6 +11,10 @@ use crate::context::{Ctx, Outcome};
 use crate::model::*;
 use crate::scale;
 use crate::sequence::SeqState;
+
+/// Most panels of a split scatter: each is a whole plot with its axes, so
+/// more would leave each too small to read (two rows of four).
+const MAX_SCATTER_PANELS: usize = 8;
 
 /// A panel: its title, its chart, and what orders it (the measure's last
 /// value for lines, the total for bars).
@@ -79,18 +84,102 @@ fn panels(cx: &mut Ctx, chart: &Chart, s: &SplitStmt) -> Outcome<Vec<PanelDraft>
             })
             .collect()),
         Chart::Parts(p) => Ok((0..p.parts.len()).map(|i| part_panel(p, i)).collect()),
+        Chart::Scatter(sc) => {
+            let panels = scatter_panels(sc);
+            if panels.iter().all(|p| p.0.is_empty()) {
+                let d = cx
+                    .at(
+                        "split",
+                        "this scatter has no groups to split into panels",
+                        s.span.clone(),
+                        "no groups",
+                    )
+                    .help("name the column that groups the points: `scatter VIEW: x A, y B, series GROUP`");
+                return Err(cx.report(d));
+            }
+            if panels.len() > MAX_SCATTER_PANELS {
+                let d = cx
+                    .at(
+                        "split",
+                        format!(
+                            "a scatter splits into at most {MAX_SCATTER_PANELS} panels, and `{}` has {} groups",
+                            s.key.name,
+                            panels.len()
+                        ),
+                        s.span.clone(),
+                        "too many panels",
+                    )
+                    .help("keep fewer groups in the view (`keep`), or spotlight one group instead of splitting");
+                return Err(cx.report(d));
+            }
+            Ok(panels)
+        }
         _ => {
             let d = cx
                 .at(
                     "split",
-                    "only line charts and stacked or grouped bars split into panels",
+                    "only line charts, scatters and stacked or grouped bars split into panels",
                     s.span.clone(),
                     "cannot split this chart",
                 )
-                .help("split a line chart by its series, or bars by their `stack`/`group` column");
+                .help(
+                    "split a line chart by its series, a scatter by its `series` column, \
+                     or bars by their `stack`/`group` column",
+                );
             Err(cx.report(d))
         }
     }
+}
+
+/// A scatter's panels: one per group (per label without a `series`
+/// column), in order of first appearance, each on the whole chart's axes
+/// and with its own fit when the chart has one. A panel whose fit cannot
+/// be computed (one point, all x equal) is drawn without it. Ordered by
+/// the mean of y.
+fn scatter_panels(sc: &ScatterChart) -> Vec<PanelDraft> {
+    let group = |p: &ScatterPoint| {
+        if p.series.is_empty() {
+            p.label.clone()
+        } else {
+            p.series.clone()
+        }
+    };
+    let mut names: Vec<String> = Vec::new();
+    for p in &sc.points {
+        let g = group(p);
+        if !names.contains(&g) {
+            names.push(g);
+        }
+    }
+    names
+        .into_iter()
+        .map(|name| {
+            let points: Vec<ScatterPoint> = sc
+                .points
+                .iter()
+                .filter(|p| group(p) == name)
+                .cloned()
+                .collect();
+            let xs: Vec<f64> = points.iter().map(|p| p.x).collect();
+            let ys: Vec<f64> = points.iter().map(|p| p.y).collect();
+            let fit = sc.fit.as_ref().and_then(|_| {
+                stats::linear_fit(&xs, &ys).ok().map(|f| Fit {
+                    slope: f.slope,
+                    intercept: f.intercept,
+                    r: f.r,
+                    label: String::new(),
+                })
+            });
+            let mean_y = stats::mean(&ys).unwrap_or(f64::NEG_INFINITY);
+            let chart = Chart::Scatter(ScatterChart {
+                x: sc.x.clone(),
+                y: sc.y.clone(),
+                points,
+                fit,
+            });
+            (name, chart, mean_y)
+        })
+        .collect()
 }
 
 /// The panel of part `i` of stacked or grouped bars: plain bars.
@@ -214,6 +303,19 @@ fn own_scale(chart: &mut Chart) {
             let grid = b.value.grid;
             b.value = scale::linear_axis(lo, hi, true, b.value.title.clone());
             b.value.grid = grid;
+        }
+        Chart::Scatter(sc) => {
+            let xs: Vec<f64> = sc.points.iter().map(|p| p.x).collect();
+            let ys: Vec<f64> = sc.points.iter().map(|p| p.y).collect();
+            for (axis, vs) in [(&mut sc.x, xs), (&mut sc.y, ys)] {
+                let lo = vs.iter().copied().fold(f64::INFINITY, f64::min);
+                let hi = vs.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+                if lo.is_finite() && axis.scale == ScaleKind::Linear {
+                    let grid = axis.grid;
+                    *axis = scale::linear_axis(lo, hi, false, axis.title.clone());
+                    axis.grid = grid;
+                }
+            }
         }
         _ => {}
     }
