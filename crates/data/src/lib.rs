@@ -1,6 +1,7 @@
 //! Data for crescendo: CSV loading into typed columns, the view engine that
 //! runs resolved view steps, and number/date formatting.
 
+pub mod bucket;
 pub mod column;
 pub mod files;
 pub mod format;

@@ -236,11 +236,16 @@ pub fn pipeline(from: &From, order: &RowOrder, cols: &[SrcColumn], pieces: &[Pie
                 k += 1;
             }
             Piece::Step(Step::Derive { name, expr }) => {
-                let sql = p.number(expr);
+                let ty = expr.value_type();
+                let sql = if ty == ColType::Number {
+                    p.number(expr)
+                } else {
+                    p.value(expr)
+                };
                 p.cols.push(Col {
                     sql,
-                    ty: ColType::Number,
-                    float: true,
+                    ty,
+                    float: ty == ColType::Number,
                     name: name.clone(),
                 });
             }

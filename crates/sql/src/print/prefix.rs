@@ -104,11 +104,16 @@ pub(super) fn start(order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Sta
             Step::Derive { name, expr } => {
                 // Arithmetic prints parenthesised; a column or a literal
                 // needs no parentheses.
-                let sql = p.number(expr);
+                let ty = expr.value_type();
+                let sql = if ty == ColType::Number {
+                    p.number(expr)
+                } else {
+                    p.value(expr)
+                };
                 p.cols.push(Col {
                     sql,
-                    ty: ColType::Number,
-                    float: true,
+                    ty,
+                    float: ty == ColType::Number,
                     name: name.clone(),
                 });
             }
