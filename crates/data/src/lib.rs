@@ -16,7 +16,9 @@ pub mod stats;
 pub mod store;
 pub mod stream;
 pub mod time;
+pub mod typed;
 pub mod view;
+pub mod workbook;
 
 pub use load::{load_csv, load_csv_columns, probe, Columns, CsvSpec, LoadError, Probe};
 pub use model::*;

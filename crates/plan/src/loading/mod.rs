@@ -94,6 +94,10 @@ impl Loader {
             Columns::Only(self.facts.idents.clone())
         };
         let name = decl.name.name.clone();
+        if let Some(read) = other_format(decl, &spec, &file, &keep, &self.limits) {
+            self.report.loaded.push(name);
+            return files::reported(cx, decl, read);
+        }
         if let Some(views) = self.facts.streamable.get(&name).cloned() {
             let read = (decl, &spec, &file);
             let streamed = stream::stream(cx, self, tables, read, &views, &keep);
@@ -106,6 +110,41 @@ impl Loader {
         let read = cx.io.load_csv(&spec, &file, &keep, &self.limits);
         files::reported(cx, decl, read)
     }
+}
+
+/// A workbook (see `crescendo_data::workbook`) read whole: `None` for a
+/// CSV file. A `sheet` or `cells` clause on a story's CSV file is an error.
+fn other_format(
+    decl: &ast::DataDecl,
+    spec: &CsvSpec,
+    file: &File,
+    keep: &Columns,
+    limits: &crescendo_data::load::ReadLimits,
+) -> Option<Result<Table, crescendo_data::LoadError>> {
+    use crescendo_data::workbook::{is_workbook, load_workbook, SheetSpec};
+    if is_workbook(&spec.path) {
+        let sheet = SheetSpec {
+            sheet: decl.sheet.as_ref().map(|s| s.value.clone()),
+            cells: decl.cells.as_ref().map(|s| s.value.clone()),
+        };
+        return Some(load_workbook(spec, file, &sheet, keep, limits));
+    }
+    decl.sheet.as_ref().or(decl.cells.as_ref())?;
+    if spec.path.ends_with(&decl.file.value) {
+        return Some(Err(crescendo_data::LoadError::Story {
+            code: "data-file",
+            message: format!(
+                "`{}` is not a workbook, so it has no sheets or cells to choose",
+                decl.file.value
+            ),
+            help: Some(
+                "`sheet` and `cells` go with a `.xlsx` or `.ods` file; remove them for a CSV file"
+                    .into(),
+            ),
+            declared: None,
+        }));
+    }
+    None
 }
 
 /// The data file of `decl`, opened once and checked where it really is

@@ -202,6 +202,22 @@ fn fiscal_year(year: &str, month: &str, start: u32) -> String {
 }
 
 impl Printer {
+    /// The column an `add` step appends: a number, or a time bucket.
+    pub(super) fn derived(&mut self, name: &str, expr: &Expr) {
+        let ty = expr.value_type();
+        let sql = if ty == ColType::Number {
+            self.number(expr)
+        } else {
+            self.value(expr)
+        };
+        self.cols.push(super::Col {
+            sql,
+            ty,
+            float: ty == ColType::Number,
+            name: name.to_owned(),
+        });
+    }
+
     pub(super) fn sql(&self, i: usize) -> String {
         self.cols
             .get(i)

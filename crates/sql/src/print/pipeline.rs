@@ -236,18 +236,7 @@ pub fn pipeline(from: &From, order: &RowOrder, cols: &[SrcColumn], pieces: &[Pie
                 k += 1;
             }
             Piece::Step(Step::Derive { name, expr }) => {
-                let ty = expr.value_type();
-                let sql = if ty == ColType::Number {
-                    p.number(expr)
-                } else {
-                    p.value(expr)
-                };
-                p.cols.push(Col {
-                    sql,
-                    ty,
-                    float: ty == ColType::Number,
-                    name: name.clone(),
-                });
+                p.derived(name, expr);
             }
             Piece::Columns(picked) => {
                 p.cols = picked

@@ -104,18 +104,7 @@ pub(super) fn start(order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Sta
             Step::Derive { name, expr } => {
                 // Arithmetic prints parenthesised; a column or a literal
                 // needs no parentheses.
-                let ty = expr.value_type();
-                let sql = if ty == ColType::Number {
-                    p.number(expr)
-                } else {
-                    p.value(expr)
-                };
-                p.cols.push(Col {
-                    sql,
-                    ty,
-                    float: ty == ColType::Number,
-                    name: name.clone(),
-                });
+                p.derived(name, expr);
             }
             Step::Group { keys, aggregates } => {
                 group = Some((keys.clone(), aggregates.clone()));
