@@ -1,9 +1,10 @@
 //! One deck whatever the data file's format: the same daily ledger as CSV,
-//! as workbooks (`.xlsx` in the 1900 and the 1904 date systems, `.ods`)
-//! builds byte-identical decks through `--data NAME=FILE`; broken
-//! workbooks are located errors that leave the previous deck as it was.
-//! Fixtures: `tests/formats/make_fixtures.py` (openpyxl, odfpy,
-//! msoffcrypto-tool).
+//! as workbooks (`.xlsx` in the 1900 and the 1904 date systems, `.ods`) and
+//! as Parquet (dates, strings and doubles in row groups of 50; decimals
+//! and UTC timestamps) builds byte-identical decks through `--data
+//! NAME=FILE`; broken files are located errors that leave the previous
+//! deck as it was. Fixtures: `tests/formats/make_fixtures.py` (openpyxl,
+//! odfpy, msoffcrypto-tool, pyarrow).
 
 mod common;
 
@@ -92,7 +93,13 @@ fn the_same_rows_in_every_format_build_the_same_deck() {
     assert!(plan.status.success(), "{}", text(&plan));
     let p = String::from_utf8_lossy(&plan.stdout);
     assert!(p.contains("2024-02-29") && p.contains("2024-03-01"), "{p}");
-    for file in ["ledger.xlsx", "ledger-1904.xlsx", "ledger.ods"] {
+    for file in [
+        "ledger.xlsx",
+        "ledger-1904.xlsx",
+        "ledger.ods",
+        "ledger.parquet",
+        "ledger-decimal.parquet",
+    ] {
         let out = format!("deck-{file}");
         let o = build(&dir, file, &out);
         assert!(o.status.success(), "{file}: {}", text(&o));
@@ -113,7 +120,13 @@ fn broken_workbooks_are_located_and_keep_the_previous_deck() {
     let good = build(&dir, "ledger.xlsx", "deck");
     assert!(good.status.success(), "{}", text(&good));
     let before = read_dir_files(&dir.join("deck"));
-    let cases: [(&str, &str, &[&str]); 4] = [
+    let cases: [(&str, &str, &[&str]); 6] = [
+        (
+            "nested.parquet",
+            "",
+            &["column `branch`", "nested group", "Parquet"],
+        ),
+        ("truncated.parquet", "", &["damaged, cut short"]),
         ("encrypted.xlsx", "", &["encrypted", "password"]),
         ("truncated.xlsx", "", &["damaged, cut short"]),
         (

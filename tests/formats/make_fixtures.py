@@ -20,6 +20,9 @@ import os
 import zipfile
 
 import msoffcrypto
+import pyarrow as pa
+import pyarrow.parquet as pq
+from decimal import Decimal
 from msoffcrypto.format.ooxml import OOXMLFile
 import openpyxl
 from openpyxl.utils.datetime import CALENDAR_MAC_1904, to_excel
@@ -128,6 +131,32 @@ def write_ods(path, data):
     normalise_zip(path)
 
 
+def write_parquet(data):
+    """The ledger as Parquet: dates, strings, doubles in row groups of 50
+    rows (Snappy); the same with decimal amounts and timestamps; a file
+    with a nested column; a cut-short copy."""
+    days = pa.array([d for d, _, _ in data], type=pa.date32())
+    branches = pa.array([b for _, b, _ in data], type=pa.string())
+    amounts = pa.array([a for _, _, a in data], type=pa.float64())
+    table = pa.table({"day": days, "branch": branches, "amount": amounts})
+    pq.write_table(table, os.path.join(HERE, "ledger.parquet"), row_group_size=50,
+                   compression="snappy")
+    decimals = pa.array([None if a is None else Decimal(repr_number(a)) for _, _, a in data],
+                        type=pa.decimal128(9, 2))
+    stamps = pa.array([dt.datetime(d.year, d.month, d.day, 13, 30) for d, _, _ in data],
+                      type=pa.timestamp("ms", tz="UTC"))
+    pq.write_table(pa.table({"day": stamps, "branch": branches, "amount": decimals}),
+                   os.path.join(HERE, "ledger-decimal.parquet"), row_group_size=64,
+                   compression="none")
+    nested = pa.array([{"name": b, "code": i} for i, (_, b, _) in enumerate(data)])
+    pq.write_table(pa.table({"day": days, "branch": nested, "amount": amounts}),
+                   os.path.join(HERE, "nested.parquet"))
+    with open(os.path.join(HERE, "ledger.parquet"), "rb") as f:
+        whole = f.read()
+    with open(os.path.join(HERE, "truncated.parquet"), "wb") as f:
+        f.write(whole[: len(whole) * 2 // 3])
+
+
 def main():
     # encrypted.xlsx differs on each run (the encryption's random salt)
     data = rows()
@@ -147,6 +176,8 @@ def main():
             day = dt.datetime(d.year, d.month, d.day)
             s1904 = to_excel(day, epoch=CALENDAR_MAC_1904) if d >= dt.date(1904, 1, 1) else ""
             w.writerow([d.isoformat(), repr_number(to_excel(day)), repr_number(s1904) if s1904 != "" else ""])
+
+    write_parquet(data)
 
     # broken workbooks
     def text_in_date(wb, ws):

@@ -10,6 +10,7 @@ pub mod load;
 mod loader;
 pub mod locale;
 pub mod model;
+pub mod parquet;
 pub mod progress;
 mod record;
 pub mod stats;

@@ -112,8 +112,8 @@ impl Loader {
     }
 }
 
-/// A workbook (see `crescendo_data::workbook`) read whole: `None` for a
-/// CSV file. A `sheet` or `cells` clause on a story's CSV file is an error.
+/// A workbook (see `crescendo_data::workbook`) or a Parquet file
+/// (`crescendo_data::parquet`) read whole: `None` for a CSV file. A `sheet` or `cells` clause on a story's CSV file is an error.
 fn other_format(
     decl: &ast::DataDecl,
     spec: &CsvSpec,
@@ -129,8 +129,8 @@ fn other_format(
         };
         return Some(load_workbook(spec, file, &sheet, keep, limits));
     }
-    decl.sheet.as_ref().or(decl.cells.as_ref())?;
-    if spec.path.ends_with(&decl.file.value) {
+    let clause = decl.sheet.is_some() || decl.cells.is_some();
+    if clause && spec.path.ends_with(&decl.file.value) {
         return Some(Err(crescendo_data::LoadError::Story {
             code: "data-file",
             message: format!(
@@ -138,11 +138,16 @@ fn other_format(
                 decl.file.value
             ),
             help: Some(
-                "`sheet` and `cells` go with a `.xlsx` or `.ods` file; remove them for a CSV file"
+                "`sheet` and `cells` go with a `.xlsx` or `.ods` file; remove them for a CSV or Parquet file"
                     .into(),
             ),
             declared: None,
         }));
+    }
+    if crescendo_data::parquet::is_parquet(&spec.path) {
+        return Some(crescendo_data::parquet::load_parquet(
+            spec, file, keep, limits,
+        ));
     }
     None
 }
