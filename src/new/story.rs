@@ -263,12 +263,54 @@ fn spotlight_frame(s: &mut String, comment: &str, headline: String, takeaway: &s
     );
 }
 
+/// A time bucket for a daily column with more days than a line can show
+/// apart: `(function, new column)`, weeks for up to half a year of days,
+/// months beyond.
+fn daily_bucket(table: &Table, time: &str) -> Option<(&'static str, &'static str)> {
+    let col = table.columns.iter().find(|c| c.name == time)?;
+    if col.ty != crescendo_data::ColType::Date {
+        return None;
+    }
+    let days: std::collections::BTreeSet<i32> = col
+        .values
+        .iter()
+        .filter_map(|v| match v {
+            Value::Date(d) => Some(d),
+            _ => None,
+        })
+        .collect();
+    let (first, last) = (*days.first()?, *days.last()?);
+    match (days.len(), last - first) {
+        (..=120, _) => None,
+        (_, ..=183) => Some(("week_start", "week")),
+        _ => Some(("month", "month")),
+    }
+}
+
 fn trend(s: &mut String, table: &Table, time: &str, measure: &str, series: Option<&str>) {
     let m = words(measure);
+    // daily rows: summed per week or month first (a line of hundreds of
+    // days is noise, see the lint rule `line-crowded`)
+    let bucket =
+        daily_bucket(table, time).filter(|(_, n)| table.columns.iter().all(|c| c.name != *n));
+    let mut steps = Vec::new();
+    let day_column = time;
+    let time = match bucket {
+        Some((func, name)) => {
+            steps.push(format!("| add {name} = {func}({day_column})"));
+            name
+        }
+        None => time,
+    };
     let mut comment = format!(
         "# Change over time: a line, {time} along x ({measure} summed per {time}{}).",
         series.map_or(String::new(), |c| format!(" and {c}"))
     );
+    if bucket.is_some() {
+        comment.push_str(&format!(
+            "\n# `{day_column}` holds many days: summed per {time}, as a daily line would be noise."
+        ));
+    }
     let keys = match series {
         Some(cat) => {
             comment.push_str(&format!(
@@ -278,12 +320,8 @@ fn trend(s: &mut String, table: &Table, time: &str, measure: &str, series: Optio
         }
         None => time.to_string(),
     };
-    view(
-        s,
-        &comment,
-        "over_time",
-        &[format!("| by {keys}: {measure} = sum({measure})")],
-    );
+    steps.push(format!("| by {keys}: {measure} = sum({measure})"));
+    view(s, &comment, "over_time", &steps);
     value_and_claim(s, "over_time", measure);
     let headline = quote(&format!("{} over time", capital(&m)));
     let y_title = format!("y title {}", quote(&capital(&m)));
@@ -338,7 +376,11 @@ fn trend(s: &mut String, table: &Table, time: &str, measure: &str, series: Optio
             ],
         );
         let mut lines = Vec::new();
-        if let Some(peak) = largest(&totals(table, time, measure)) {
+        let peak = match bucket {
+            Some(_) => None,
+            None => largest(&totals(table, time, measure)),
+        };
+        if let Some(peak) = peak {
             let at = if peak.contains('-') {
                 quote(&peak)
             } else {
