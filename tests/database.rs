@@ -514,6 +514,86 @@ fn equivalence(cluster: &Cluster) {
     aggregates(cluster, &mut client, &work);
     pipelines(cluster, &mut client, &work);
     buckets(cluster, &mut client, &work);
+    formats(cluster, &mut client, &work);
+}
+
+/// The ledger of `tests/formats.rs` (CSV, workbooks, Parquet) in
+/// PostgreSQL builds the same deck, byte for byte, as its CSV file.
+fn formats(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
+    use crescendo_data::ColType;
+    let dir = work.join("formats");
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let csv = dir.join("ledger.csv");
+    std::fs::copy(root().join("tests/formats/ledger.csv"), &csv).expect("copy");
+    load_csv(
+        client,
+        "formats_ledger",
+        &csv,
+        &[
+            ("day".into(), ColType::Date),
+            ("branch".into(), ColType::Text),
+            ("amount".into(), ColType::Number),
+        ],
+    );
+    let story = "story \"Takings at three branches\"\n\
+         source \"Invented ledger of three branches\"\n\
+         data ledger from SOURCE { day: date, branch: text, amount: number }\n\
+         view monthly = ledger\n\
+         \x20 | add month = month(day)\n\
+         \x20 | by month, branch: amount = sum(amount), days = count(amount)\n\
+         view weekly = ledger\n\
+         \x20 | add week = week_start(day)\n\
+         \x20 | by week: amount = sum(amount)\n\
+         frame \"Takings by month\" {\n  line monthly: x month, y amount, series branch\n  y title \"Takings per month\"\n}\n\
+         frame \"Takings by week\" {\n  bars weekly: category week, value amount\n  y title \"Takings per week\"\n}\n";
+    std::fs::write(
+        dir.join("csv.cresc"),
+        story.replace("SOURCE", "\"ledger.csv\""),
+    )
+    .expect("write");
+    std::fs::write(
+        dir.join("db.cresc"),
+        story.replace(
+            "SOURCE",
+            "table \"formats_ledger\" via CRESCENDO_TEST_DB in order of line",
+        ),
+    )
+    .expect("write");
+    let conn = cluster.conn();
+    let env = [("CRESCENDO_TEST_DB", conn.as_str())];
+    for deck in ["csv", "db"] {
+        let o = run(
+            &dir,
+            &[
+                "build",
+                &format!("{deck}.cresc"),
+                "--no-cache",
+                "--out",
+                &format!("deck-{deck}"),
+            ],
+            &env,
+        );
+        assert!(o.status.success(), "{}", text(&o));
+    }
+    let (fa, fb) = (
+        read_dir_files(&dir.join("deck-csv")),
+        read_dir_files(&dir.join("deck-db")),
+    );
+    assert!(fa.len() > 2);
+    assert_eq!(fa.len(), fb.len());
+    for ((n, x), (m, y)) in fa.iter().zip(&fb) {
+        assert_eq!(n, m);
+        assert!(
+            x == y,
+            "`{n}` differs between the CSV and the PostgreSQL deck"
+        );
+    }
+    // both views ran in the database, buckets included
+    let e = run(&dir, &["check", "--explain-sql", "db.cresc"], &env);
+    assert!(e.status.success(), "{}", text(&e));
+    let t = String::from_utf8_lossy(&e.stdout).to_string();
+    assert_eq!(t.matches("-- view ").count(), 2, "{t}");
+    assert!(t.contains("substr(") && t.contains("isodow"), "{t}");
 }
 
 /// Time buckets computed in the database and locally give the same plan:
