@@ -195,3 +195,85 @@ fn broken_workbooks_are_located_and_keep_the_previous_deck() {
     assert!(p.contains("2024-02-29") && !p.contains("2024-03-01"), "{p}");
     let _ = fs::remove_dir_all(&dir);
 }
+
+/// Views that all start with `keep`: the Parquet row groups (50 rows each,
+/// in date order) that no view can keep are not decoded, and the deck is
+/// still the CSV one.
+#[test]
+fn parquet_row_groups_are_skipped_by_their_statistics() {
+    let dir = setup("formats-skip");
+    let story = r#"story "Late winter takings"
+source "Invented ledger of three branches"
+conclusion "Late winter takings"
+data ledger from "ledger.csv" { day: date, branch: text, amount: number }
+view late = ledger
+  | keep day >= "2024-02-20" and amount > 100
+  | add week = week_start(day)
+  | by week: amount = sum(amount)
+view north = ledger
+  | keep branch = "North" and day >= "2024-02-25"
+  | by branch: amount = sum(amount)
+frame "Late winter" {
+  bars late: category week, value amount
+  y title "Takings per week"
+}
+frame "North" {
+  bars north: category branch, value amount
+  y title "Takings"
+}
+"#;
+    fs::write(dir.join("story.cresc"), story).expect("story");
+    let a = build(&dir, "ledger.csv", "deck-csv");
+    assert!(a.status.success(), "{}", text(&a));
+    let b = crescendo(
+        &dir,
+        &[
+            "build",
+            "story.cresc",
+            "--data",
+            "ledger=ledger.parquet",
+            "--out",
+            "deck-pq",
+        ],
+    );
+    assert!(b.status.success(), "{}", text(&b));
+    // 240 rows from 2023-12-20, 3 a day: the first 3 groups end before
+    // 2024-02-09
+    assert!(
+        text(&b).contains("row groups skipped by their statistics: ledger: 3"),
+        "{}",
+        text(&b)
+    );
+    assert_eq!(
+        read_dir_files(&dir.join("deck-csv")),
+        read_dir_files(&dir.join("deck-pq"))
+    );
+    // a view that does not start with `keep` reads every group
+    fs::write(
+        dir.join("story.cresc"),
+        story
+            .replace(
+                "view north = ledger\n  | keep branch = \"North\" and",
+                "view north = ledger\n  | by branch: amount = sum(amount)\n  | keep amount > 0 and",
+            )
+            .replace(
+                "and day >= \"2024-02-25\"\n  | by branch: amount = sum(amount)",
+                "",
+            ),
+    )
+    .expect("story");
+    let c = crescendo(
+        &dir,
+        &[
+            "build",
+            "story.cresc",
+            "--data",
+            "ledger=ledger.parquet",
+            "--out",
+            "deck-all",
+        ],
+    );
+    assert!(c.status.success(), "{}", text(&c));
+    assert!(!text(&c).contains("row groups skipped"), "{}", text(&c));
+    let _ = fs::remove_dir_all(&dir);
+}

@@ -19,6 +19,18 @@
 //! is an error naming the column; a damaged or cut-short file is an error.
 //! Files are read with Snappy compression or none (the `snap` feature);
 //! another codec is an error that says which.
+//!
+//! # Row groups skipped by their statistics
+//!
+//! When every view over the data item starts with `keep`, the caller
+//! passes those first conditions ([`load_parquet_skipping`]); a row group
+//! whose statistics (each column's least and greatest value) show that no
+//! row can pass any of them is not decoded. The conditions are resolved
+//! against the file's columns in file order. Only comparisons of number,
+//! date and timestamp columns with literals, and `and`, `or`, `in` over
+//! them, are decided; anything else counts as "may pass". The caller
+//! skips only when every text column it reads has a declared type, since
+//! an undeclared text column's type is inferred from the rows read.
 
 #![allow(clippy::result_large_err)]
 
@@ -32,7 +44,7 @@ use parquet::record::Field;
 use parquet::schema::types::Type;
 
 use crate::load::{parse_number, Columns, CsvSpec, LoadError, ReadLimits};
-use crate::model::Table;
+use crate::model::{CmpOp, Expr, Table, Value};
 use crate::typed::{finish, Typed, TypedColumn};
 
 /// Files read here, by name.
@@ -133,6 +145,98 @@ fn typed(f: &Field) -> Option<Typed> {
     })
 }
 
+/// The least and greatest value of a column in a row group.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Bounds {
+    Number(f64, f64),
+    /// Days since 1970-01-01.
+    Date(i32, i32),
+}
+
+/// A column's bounds from its chunk statistics (`None` when unknown).
+fn bounds(t: &Type, stats: Option<&parquet::file::statistics::Statistics>) -> Option<Bounds> {
+    use parquet::file::statistics::Statistics as S;
+    let logical = t.get_basic_info().logical_type_ref();
+    let both = |a: Option<f64>, b: Option<f64>| Some((a?, b?));
+    match (stats?, logical) {
+        (S::Int32(v), Some(LogicalType::Date)) => Some(Bounds::Date(*v.min_opt()?, *v.max_opt()?)),
+        (S::Int64(v), Some(LogicalType::Timestamp(ts))) => {
+            let per_day = match ts.unit {
+                TimeUnit::MILLIS => DAY_MS,
+                TimeUnit::MICROS => DAY_MS * 1000,
+                TimeUnit::NANOS => return None,
+            };
+            Some(Bounds::Date(
+                day(*v.min_opt()?, per_day)?,
+                day(*v.max_opt()?, per_day)?,
+            ))
+        }
+        (S::Int32(v), Some(LogicalType::Integer(_)) | None) => both(
+            v.min_opt().map(|x| f64::from(*x)),
+            v.max_opt().map(|x| f64::from(*x)),
+        )
+        .map(|(a, b)| Bounds::Number(a, b)),
+        (S::Int64(v), Some(LogicalType::Integer(_)) | None) => both(
+            v.min_opt().map(|x| *x as f64),
+            v.max_opt().map(|x| *x as f64),
+        )
+        .map(|(a, b)| Bounds::Number(a, b)),
+        (S::Double(v), None) => both(v.min_opt().copied(), v.max_opt().copied())
+            .filter(|(a, b)| !a.is_nan() && !b.is_nan())
+            .map(|(a, b)| Bounds::Number(a, b)),
+        _ => None,
+    }
+}
+
+/// May some row whose columns lie within `spans` make `e` true? (See the
+/// module docs; `true` when undecided.)
+pub fn may_hold(e: &Expr, spans: &[Option<Bounds>]) -> bool {
+    match e {
+        Expr::And(parts) => parts.iter().all(|p| may_hold(p, spans)),
+        Expr::Or(parts) => parts.iter().any(|p| may_hold(p, spans)),
+        Expr::In(a, list) => list.iter().any(|v| {
+            may_hold(
+                &Expr::Cmp(CmpOp::Eq, a.clone(), Box::new(Expr::Lit(v.clone()))),
+                spans,
+            )
+        }),
+        Expr::Cmp(op, a, b) => match (a.as_ref(), b.as_ref()) {
+            (Expr::Col(i), Expr::Lit(v)) => compare(*op, spans.get(*i).copied().flatten(), v),
+            (Expr::Lit(v), Expr::Col(i)) => {
+                let flipped = match op {
+                    CmpOp::Lt => CmpOp::Gt,
+                    CmpOp::Le => CmpOp::Ge,
+                    CmpOp::Gt => CmpOp::Lt,
+                    CmpOp::Ge => CmpOp::Le,
+                    other => *other,
+                };
+                compare(flipped, spans.get(*i).copied().flatten(), v)
+            }
+            _ => true,
+        },
+        _ => true,
+    }
+}
+
+/// May `column op v` hold for a column within `b`?
+fn compare(op: CmpOp, b: Option<Bounds>, v: &Value) -> bool {
+    let (lo, hi, x) = match (b, v) {
+        (Some(Bounds::Number(lo, hi)), Value::Number(x)) => (lo, hi, *x),
+        (Some(Bounds::Date(lo, hi)), Value::Date(x)) => {
+            (f64::from(lo), f64::from(hi), f64::from(*x))
+        }
+        _ => return true,
+    };
+    match op {
+        CmpOp::Eq => lo <= x && x <= hi,
+        CmpOp::Ne => !(lo == x && hi == x),
+        CmpOp::Lt => lo < x,
+        CmpOp::Le => lo <= x,
+        CmpOp::Gt => hi > x,
+        CmpOp::Ge => hi >= x,
+    }
+}
+
 /// Read a Parquet file already opened (and checked) for `spec.path`.
 pub fn load_parquet(
     spec: &CsvSpec,
@@ -140,6 +244,53 @@ pub fn load_parquet(
     columns: &Columns,
     limits: &ReadLimits,
 ) -> Result<Table, LoadError> {
+    load_parquet_skipping(spec, file, columns, limits, &[]).map(|(t, _)| t)
+}
+
+/// The column types the conditions of [`load_parquet_skipping`] are
+/// resolved against, in file order: numbers, dates (and timestamps) and
+/// texts by their Parquet types; `None` for a column of another type.
+pub fn column_types(file: &File) -> Option<Vec<(String, Option<crate::model::ColType>)>> {
+    use crate::model::ColType;
+    let reader = SerializedFileReader::new(file.try_clone().ok()?).ok()?;
+    let schema = reader
+        .metadata()
+        .file_metadata()
+        .schema_descr()
+        .root_schema();
+    Some(
+        schema
+            .get_fields()
+            .iter()
+            .map(|f| {
+                let ty = if unsupported(f).is_some() {
+                    None
+                } else {
+                    match (f.get_physical_type(), f.get_basic_info().logical_type_ref()) {
+                        (_, Some(LogicalType::Date | LogicalType::Timestamp(_))) => {
+                            Some(ColType::Date)
+                        }
+                        (_, Some(LogicalType::String | LogicalType::Enum)) => Some(ColType::Text),
+                        (Physical::BYTE_ARRAY | Physical::BOOLEAN, _) => Some(ColType::Text),
+                        _ => Some(ColType::Number),
+                    }
+                };
+                (f.name().to_string(), ty)
+            })
+            .collect(),
+    )
+}
+
+/// [`load_parquet`], skipping the row groups in which no row can make any
+/// of `keeps` true (see the module docs; no skipping when `keeps` is
+/// empty). Returns the table and the number of row groups skipped.
+pub fn load_parquet_skipping(
+    spec: &CsvSpec,
+    file: &File,
+    columns: &Columns,
+    limits: &ReadLimits,
+    keeps: &[Expr],
+) -> Result<(Table, usize), LoadError> {
     let name = &spec.display_name;
     let damaged = |e: &dyn std::fmt::Display| {
         story(
@@ -179,8 +330,23 @@ pub fn load_parquet(
     let kept: Vec<usize> = (0..cols.len()).filter(|&j| cols[j].keep).collect();
     let mut rows = 0usize;
     let mut places: Vec<(usize, usize)> = Vec::new();
+    let flat = schema.get_fields().iter().all(|f| !f.is_group());
+    let mut skipped = 0;
     for g in 0..reader.num_row_groups() {
         let group = reader.get_row_group(g).map_err(|e| damaged(&e))?;
+        if flat && !keeps.is_empty() {
+            let meta = group.metadata();
+            let spans: Vec<Option<Bounds>> = schema
+                .get_fields()
+                .iter()
+                .enumerate()
+                .map(|(k, f)| bounds(f, meta.column(k).statistics()))
+                .collect();
+            if !keeps.iter().any(|e| may_hold(e, &spans)) {
+                skipped += 1;
+                continue;
+            }
+        }
         let n = usize::try_from(group.metadata().num_rows()).unwrap_or(0);
         if limits.rows.is_some_and(|max| rows + n > max) {
             return Err(story(
@@ -249,12 +415,45 @@ pub fn load_parquet(
             g + 1
         )
     };
-    finish(spec, cols, rows, &locate)
+    finish(spec, cols, rows, &locate).map(|t| (t, skipped))
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn statistics_decide_only_what_they_can() {
+        let spans = [
+            Some(Bounds::Date(100, 200)),
+            Some(Bounds::Number(-5.0, 5.0)),
+            None,
+        ];
+        let col = |i| Box::new(Expr::Col(i));
+        let lit = |v| Box::new(Expr::Lit(v));
+        let date_ge = |d| Expr::Cmp(CmpOp::Ge, col(0), lit(Value::Date(d)));
+        assert!(may_hold(&date_ge(200), &spans));
+        assert!(!may_hold(&date_ge(201), &spans));
+        let n_lt = |x| Expr::Cmp(CmpOp::Lt, col(1), lit(Value::Number(x)));
+        assert!(!may_hold(&n_lt(-5.0), &spans));
+        assert!(may_hold(&n_lt(-4.9), &spans));
+        // a literal on the left: 300 <= day is day >= 300
+        let flipped = Expr::Cmp(CmpOp::Le, lit(Value::Date(300)), col(0));
+        assert!(!may_hold(&flipped, &spans));
+        assert!(!may_hold(
+            &Expr::And(vec![date_ge(150), n_lt(-6.0)]),
+            &spans
+        ));
+        assert!(may_hold(&Expr::Or(vec![date_ge(250), n_lt(0.0)]), &spans));
+        let inn = Expr::In(col(1), vec![Value::Number(9.0), Value::Number(10.0)]);
+        assert!(!may_hold(&inn, &spans));
+        // unknown bounds, text, negation: undecided, so kept
+        assert!(may_hold(
+            &Expr::Cmp(CmpOp::Eq, col(2), lit(Value::Number(1.0))),
+            &spans
+        ));
+        assert!(may_hold(&Expr::Not(Box::new(date_ge(0))), &spans));
+    }
 
     #[test]
     fn decimals_read_as_their_text() {

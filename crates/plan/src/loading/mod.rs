@@ -53,6 +53,7 @@
 mod database;
 mod facts;
 mod files;
+mod skip;
 mod state;
 mod stream;
 
@@ -94,6 +95,23 @@ impl Loader {
             Columns::Only(self.facts.idents.clone())
         };
         let name = decl.name.name.clone();
+        let clause = decl.sheet.is_some() || decl.cells.is_some();
+        if crescendo_data::parquet::is_parquet(&spec.path) && !clause {
+            let views = self.facts.streamable.get(&name);
+            let keeps = skip::first_keeps(cx.src, &spec, &file, &keep, views);
+            let read = crescendo_data::parquet::load_parquet_skipping(
+                &spec,
+                &file,
+                &keep,
+                &self.limits,
+                &keeps,
+            );
+            if let Ok((_, n @ 1..)) = &read {
+                self.report.skipped_groups.push(format!("{name}: {n}"));
+            }
+            self.report.loaded.push(name);
+            return files::reported(cx, decl, read.map(|(t, _)| t));
+        }
         if let Some(read) = other_format(decl, &spec, &file, &keep, &self.limits) {
             self.report.loaded.push(name);
             return files::reported(cx, decl, read);
