@@ -94,11 +94,15 @@ pub fn build_with(
         } else {
             crate::output::diagnostics(&planned.failed_claims, color);
             let n = planned.failed_claims.len();
+            let kept = if diff::read_manifest(&out).is_ok() {
+                format!(" (the previous deck in {} is kept)", out.display())
+            } else {
+                String::new()
+            };
             tell!(
-                "{n} claim{} of {} not supported by the data; no deck written (the previous deck in {} is kept)",
+                "{n} claim{} of {} not supported by the data; no deck written{kept}",
                 if n == 1 { "" } else { "s" },
                 story.display(),
-                out.display()
             );
             return ExitCode::from(EXIT_CLAIM);
         }
@@ -136,7 +140,11 @@ pub fn build_with(
         }
         Err(e) => {
             crate::output::diagnostics(std::slice::from_ref(&e), color);
-            tell!("the previous deck in {} was left as it was", out.display());
+            if previous.is_some() {
+                tell!("the previous deck in {} was left as it was", out.display());
+            } else {
+                tell!("nothing was written to {}", out.display());
+            }
             // a frame that cannot be drawn (a failing plugin) is the story's
             // problem; anything else is the output folder's
             ExitCode::from(if e.code == "render" {

@@ -41,6 +41,9 @@ pub fn run(
         Ok(p) => (Some(p), Vec::new()),
         Err(d) => (None, d),
     };
+    if let Some(p) = &planned {
+        errors.extend(try_plugin_frames(p));
+    }
     let findings = planned
         .as_ref()
         .map(|p| run_lint(p, lint))
@@ -149,4 +152,34 @@ fn explain_queries(sql: &[crescendo_sql::Explained]) {
         }
         say!("--   received {} rows, {} bytes", q.rows, q.bytes);
     }
+}
+
+/// Frames a plugin draws, drawn in memory: the plugin's code runs and its
+/// answer is validated as `build` would, so a plugin that fails or answers
+/// wrongly fails `check` too, at the frame's `draw` line. Nothing is written.
+fn try_plugin_frames(planned: &crescendo_plan::Planned) -> Vec<Diagnostic> {
+    let host = crate::deck::Host(&planned.plugins);
+    let ctx = crate::deck::Context {
+        plugins: Some(&host),
+        source: Some(&planned.source),
+        anchors: Some(&planned.anchors),
+    };
+    let plan = &planned.plan;
+    // one error per `draw` statement, not one per frame of its sequence
+    let mut failed = Vec::new();
+    let mut errors = Vec::new();
+    for (i, f) in plan.frames.iter().enumerate() {
+        if !matches!(f.chart, crescendo_plan::model::Chart::Plugin(_)) {
+            continue;
+        }
+        let chart = planned.anchors.frames.get(i).map(|a| a.chart.clone());
+        if failed.contains(&chart) {
+            continue;
+        }
+        if let Err(e) = crescendo_render::display_list(plan, f, ctx.plugins) {
+            errors.push(crate::deck::frame_error(f, i, &e, &ctx));
+            failed.push(chart);
+        }
+    }
+    errors
 }

@@ -304,12 +304,48 @@ pub enum Command {
         #[command(flatten)]
         data: DataArgs,
     },
-    /// Compare two decks: which frames changed and which quoted numbers moved.
+    /// Compare two decks: which frames changed and which quoted numbers
+    /// moved. Exit status 1 when any frame changed; the claims that fail in
+    /// the newer deck are listed.
     Diff {
         /// The older deck folder.
         old: PathBuf,
         /// The newer deck folder.
         new: PathBuf,
+    },
+    /// Compare the deck a story makes now with the deck it made at a git
+    /// revision (the story, its data and house style read from the
+    /// repository; nothing checked out, no deck written): a side-by-side
+    /// page, or a summary for a pull request. Exit status 3 when a claim
+    /// fails now, 1 with --fail-on-change when any frame changed.
+    Review {
+        /// The story file (.cresc), inside a git repository.
+        story: PathBuf,
+        /// The revision to compare against: a branch, tag, commit id or
+        /// `HEAD~2` (default: the last commit).
+        #[arg(long, value_name = "REV", default_value = "HEAD")]
+        against: String,
+        /// `page` (default: a self-contained HTML page), `markdown` (a
+        /// summary for a pull-request comment) or `json`; the last two are
+        /// printed.
+        #[arg(long, value_enum, default_value = "page")]
+        format: ReviewFormat,
+        /// Where to write the page (default: `review.html` in the current
+        /// folder).
+        #[arg(long, value_name = "FILE")]
+        out: Option<PathBuf>,
+        /// Exit with status 1 when any frame changed, moved, came or went.
+        #[arg(long)]
+        fail_on_change: bool,
+        /// A claim that holds with less room than this is called a near
+        /// miss: for `a > b` the distance over b, for `about … within T`
+        /// the part of T left (a percentage).
+        #[arg(long, value_name = "PERCENT", default_value_t = 5.0)]
+        near_miss: f64,
+        #[command(flatten)]
+        data: DataArgs,
+        #[command(flatten)]
+        lint: LintArgs,
     },
     /// Profile a CSV file and write a starter story for it that builds and
     /// passes the lint.
@@ -343,6 +379,14 @@ pub enum Command {
     },
     /// Print the manual page (roff) of crescendo: `crescendo manual | man -l -`.
     Manual,
+}
+
+/// What `review` writes.
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ReviewFormat {
+    Page,
+    Markdown,
+    Json,
 }
 
 /// Shells `completions` writes scripts for.

@@ -80,6 +80,28 @@ impl crescendo_render::plugin::PluginDrawer for Host<'_> {
     }
 }
 
+/// The error for frame `i` (`f`) that cannot be drawn, pointing at its
+/// chart statement.
+pub fn frame_error(
+    f: &crescendo_plan::model::FramePlan,
+    i: usize,
+    e: &dyn std::fmt::Display,
+    ctx: &Context,
+) -> Diagnostic {
+    let mut d = Diagnostic::error(
+        "render",
+        format!("cannot draw frame {} (\"{}\"): {e}", f.number, f.headline),
+    );
+    if let (Some(src), Some(a)) = (ctx.source, ctx.anchors.and_then(|a| a.frames.get(i))) {
+        d = d.at(
+            src,
+            a.chart.clone(),
+            format!("frame {} is drawn from here", f.number),
+        );
+    }
+    d
+}
+
 /// File name of the PDF export.
 pub const PDF: &str = "deck.pdf";
 
@@ -93,21 +115,9 @@ pub fn render_files(
     let mut files = Vec::new();
     let mut svgs = Vec::new();
     for (i, f) in plan.frames.iter().enumerate() {
-        let svg = frames.render(plan, f, ctx.plugins).map_err(|e| {
-            let mut d = Diagnostic::error(
-                "render",
-                format!("cannot draw frame {} (\"{}\"): {e}", f.number, f.headline),
-            );
-            // point at the chart statement of the frame that failed
-            if let (Some(src), Some(a)) = (ctx.source, ctx.anchors.and_then(|a| a.frames.get(i))) {
-                d = d.at(
-                    src,
-                    a.chart.clone(),
-                    format!("frame {} is drawn from here", f.number),
-                );
-            }
-            d
-        })?;
+        let svg = frames
+            .render(plan, f, ctx.plugins)
+            .map_err(|e| frame_error(f, i, &e, ctx))?;
         svgs.push(svg);
     }
     let export_err = |what: &str, e: String| {

@@ -1,5 +1,7 @@
 //! Deck diff: which frames changed between two builds, and which quoted
-//! numbers moved ("frame 4: multiple 2.3 → 1.9").
+//! numbers moved ("frame 4: multiple 2.3 → 1.9"). Like other diff tools it
+//! exits with status 0 when nothing changed, 1 when something did, and 2
+//! when a deck cannot be read.
 
 use std::path::Path;
 use std::process::ExitCode;
@@ -8,22 +10,62 @@ use crescendo_diag::Diagnostic;
 use serde_json::Value;
 
 use crate::deck::MANIFEST;
-use crate::EXIT_STORY;
+/// Exit status of `diff` when a deck cannot be read (1 means "changed").
+const EXIT_TROUBLE: u8 = 2;
 
-/// `crescendo diff OLD NEW`: print what changed between two decks.
+/// `crescendo diff OLD NEW`: print what changed between two decks and the
+/// claims that fail in the newer one.
 pub fn run(old: &Path, new: &Path, color: bool) -> ExitCode {
-    match diff_folders(old, new) {
-        Ok(lines) => {
-            for l in lines {
-                say!("{l}");
-            }
-            ExitCode::SUCCESS
-        }
-        Err(d) => {
+    let (old, new) = match (read_manifest(old), read_manifest(new)) {
+        (Ok(o), Ok(n)) => (o, n),
+        (Err(d), _) | (_, Err(d)) => {
             crate::output::diagnostics(&[d], color);
-            ExitCode::from(EXIT_STORY)
+            return ExitCode::from(EXIT_TROUBLE);
         }
+    };
+    for l in diff(&old, &new) {
+        say!("{l}");
     }
+    for l in failed_claims(&new) {
+        say!("{l}");
+    }
+    if changed(&old, &new) {
+        ExitCode::from(1)
+    } else {
+        ExitCode::SUCCESS
+    }
+}
+
+/// Whether any frame of `new` differs from `old`'s, or came or went.
+pub fn changed(old: &Value, new: &Value) -> bool {
+    let (o, n) = (frames(old), frames(new));
+    let same = |a: &Value, b: &Value| {
+        [
+            "number", "headline", "takeaway", "notes", "quoted", "sha256",
+        ]
+        .iter()
+        .all(|k| a[k] == b[k])
+    };
+    o.len() != n.len() || o.iter().zip(&n).any(|(a, b)| !same(a, b))
+}
+
+/// A line for each claim that does not hold in the deck `m`.
+pub fn failed_claims(m: &Value) -> Vec<String> {
+    m["claims"]
+        .as_array()
+        .map(|cs| {
+            cs.iter()
+                .filter(|c| c["holds"] == Value::Bool(false))
+                .map(|c| {
+                    format!(
+                        "claim fails: \"{}\" ({})",
+                        text(&c["sentence"]),
+                        text(&c["condition"])
+                    )
+                })
+                .collect()
+        })
+        .unwrap_or_default()
 }
 
 /// Read a deck's manifest.
@@ -39,11 +81,6 @@ pub fn read_manifest(deck: &Path) -> Result<Value, Diagnostic> {
             format!("`{}` is not a deck manifest: {e}", path.display()),
         )
     })
-}
-
-/// Compare the decks in two folders.
-pub fn diff_folders(old: &Path, new: &Path) -> Result<Vec<String>, Diagnostic> {
-    Ok(diff(&read_manifest(old)?, &read_manifest(new)?))
 }
 
 fn frames(m: &Value) -> Vec<&Value> {
@@ -151,5 +188,23 @@ mod tests {
         );
         assert_eq!(diff(&new, &old).last().unwrap(), "frame 1 unchanged");
         assert!(diff(&new, &old).contains(&"frame 4 \"D\": removed".to_string()));
+        assert!(changed(&old, &new) && changed(&new, &old));
+        assert!(!changed(&old, &old));
+        let mut moved = old.clone();
+        moved["frames"][1]["quoted"]["multiple"] = json!("2.4");
+        assert!(changed(&old, &moved));
+    }
+
+    #[test]
+    fn lists_the_claims_that_fail() {
+        let m = json!({"claims": [
+            {"sentence": "Most trips are short", "condition": "short > 0.5", "holds": true},
+            {"sentence": "Visits doubled", "condition": "growth >= 2", "holds": false},
+        ]});
+        assert_eq!(
+            failed_claims(&m),
+            vec!["claim fails: \"Visits doubled\" (growth >= 2)".to_string()]
+        );
+        assert!(failed_claims(&json!({})).is_empty());
     }
 }

@@ -2,7 +2,7 @@
 //! ordered deck of SVG frames, a manifest and a self-contained HTML deck.
 //!
 //! `cli` defines the flags; each subcommand has a module of its own (`build`,
-//! `check`, `plan`, `diff`, `explain`, `plugins`, `watch`, `new`, `fmt`,
+//! `check`, `plan`, `diff`, `review`, `explain`, `plugins`, `watch`, `new`, `fmt`,
 //! `completions`, `manual`); `planning` is what the story commands share.
 
 // A `Diagnostic` is large, but it is only built on the cold error path.
@@ -32,6 +32,7 @@ mod plan;
 mod planning;
 mod plugins;
 mod progress;
+mod review;
 mod serve;
 mod store;
 mod watch;
@@ -92,5 +93,27 @@ fn main() -> ExitCode {
         Command::Completions { shell } => completions::run(shell),
         Command::Manual => manual::run(),
         Command::Diff { old, new } => diff::run(&old, &new, color),
+        Command::Review {
+            story,
+            against,
+            format,
+            out,
+            fail_on_change,
+            near_miss,
+            data,
+            lint,
+        } => review::run(
+            &story,
+            &review::Request {
+                against,
+                format,
+                out,
+                fail_on_change,
+                near_miss: near_miss / 100.0,
+            },
+            &data,
+            &lint,
+            color,
+        ),
     }
 }

@@ -45,6 +45,31 @@ pub fn default_out(story: &Path) -> PathBuf {
     story.parent().unwrap_or(Path::new(".")).join("deck")
 }
 
+/// The planner's options from the command line.
+pub fn options(data: &DataArgs) -> Result<Options, Diagnostic> {
+    Ok(Options {
+        data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
+        no_plugins: data.no_plugins,
+        inspect_plugins: data.inspect_plugins,
+        database: crescendo_plan::DbOptions {
+            connections: data
+                .connections
+                .iter()
+                .map(|c| parse_connection_arg(c))
+                .collect::<Result<_, _>>()?,
+            timeout: std::time::Duration::from_secs_f64(
+                if data.statement_timeout.is_finite() && data.statement_timeout > 0.0 {
+                    data.statement_timeout.min(86_400.0)
+                } else {
+                    60.0
+                },
+            ),
+        },
+        allow_paths: data.allow_paths.clone(),
+        limits: data.limits.limits(),
+    })
+}
+
 /// Read, parse and plan a story without printing anything; `cache`: the
 /// folder of the planner's view cache (none: no cache).
 pub fn plan_quietly(
@@ -62,28 +87,7 @@ pub fn plan_quietly(
     })?;
     let src: Arc<Source> = crescendo_lang::source::decode(&story.display().to_string(), bytes)?;
     let dir = story.parent().unwrap_or(Path::new("."));
-    let options = Options {
-        data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
-        no_plugins: data.no_plugins,
-        inspect_plugins: data.inspect_plugins,
-        database: crescendo_plan::DbOptions {
-            connections: data
-                .connections
-                .iter()
-                .map(|c| parse_connection_arg(c))
-                .collect::<Result<_, _>>()
-                .map_err(|d| vec![d])?,
-            timeout: std::time::Duration::from_secs_f64(
-                if data.statement_timeout.is_finite() && data.statement_timeout > 0.0 {
-                    data.statement_timeout.min(86_400.0)
-                } else {
-                    60.0
-                },
-            ),
-        },
-        allow_paths: data.allow_paths.clone(),
-        limits: data.limits.limits(),
-    };
+    let options = options(data).map_err(|d| vec![d])?;
     let mut io = crate::store::Reading::new(&options, cache.as_deref());
     crescendo_plan::plan_story_with(&src, dir, &options, &mut io)
 }

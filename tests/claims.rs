@@ -196,6 +196,14 @@ fn rebuilds_and_diff_name_the_numbers_that_moved() {
         String::from_utf8_lossy(&same.stdout),
         "frames 1, 2, 3, 4 unchanged\n"
     );
+    assert_eq!(same.status.code(), Some(0), "nothing changed");
+    // as diff tools do: 1 when something changed, 2 when a deck is missing
+    assert!(crescendo(&dir, &["build", "clinics.cresc", "--out", "oct"])
+        .status
+        .success());
+    let moved = crescendo(&dir, &["diff", "oct", "dec"]);
+    assert_eq!(moved.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&moved.stdout).contains("video_share_now 36.1% → 24.9%"));
     let missing = crescendo(&dir, &["diff", "nov", "nowhere"]);
-    assert_eq!(missing.status.code(), Some(1));
+    assert_eq!(missing.status.code(), Some(2));
 }

@@ -271,3 +271,24 @@ fn explain_prints_each_rule_and_lists_them_all() {
     assert_eq!(old.status.code(), Some(1));
     assert!(String::from_utf8_lossy(&old.stderr).contains("the rule is named `conclusion-missing`"));
 }
+
+/// `x` and `y` name roles: on horizontal bars an `x title` titles the
+/// categories, and the lint says so where the author wrote it.
+#[test]
+fn an_x_title_on_horizontal_bars_is_pointed_out() {
+    let path = root().join("tests/lint/measure-unnamed/horizontal.cresc");
+    let found: Vec<Diagnostic> = lint_story(&path, None)
+        .into_iter()
+        .filter(|d| d.code == "measure-unnamed")
+        .collect();
+    assert_eq!(found.len(), 1, "{}", render(&found, false));
+    assert!(
+        found[0]
+            .message
+            .contains("`x title` titles the category axis"),
+        "{}",
+        found[0].message
+    );
+    let (_, line, _) = found[0].location().expect("located");
+    assert_eq!(line, 9, "points at the `x title` line");
+}

@@ -122,6 +122,14 @@ fn a_pinned_checksum_must_match() {
     assert!(err.contains("cannot use plugin `p`"), "{err}");
     assert!(err.contains("but the story pins 0000"), "{err}");
     assert!(err.contains("s.cresc:4:"), "{err}");
+    // one error: the `draw` naming the plugin is not reported again as an
+    // unknown plugin
+    assert_eq!(err.matches("error[").count(), 1, "{err}");
+    assert!(!err.contains("no plugin named"), "{err}");
+    // a first build that fails says nothing of a previous deck
+    let run = crescendo(&bad, &["build", "./s.cresc"]);
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert!(!err.contains("previous deck"), "{err}");
 }
 
 /// Build a good deck, then break the plugin; the build fails with a located
@@ -151,6 +159,55 @@ fn fails_with(name: &str, plugin: &Path, form: &str, expected: &str, location: &
         before,
         "the previous deck changed"
     );
+    // `check` draws plugin frames in memory: the same failure, found
+    // before any build, and nothing written
+    let checked = crescendo(&dir, &["check", "s.cresc"]);
+    let err = String::from_utf8_lossy(&checked.stderr);
+    assert_eq!(checked.status.code(), Some(1), "check: {err}");
+    assert!(
+        err.contains(expected),
+        "check: expected `{expected}` in:\n{err}"
+    );
+    assert!(
+        err.contains(location),
+        "check: expected {location} in:\n{err}"
+    );
+    assert_eq!(read_dir_files(&dir.join("deck")), before, "check wrote");
+}
+
+/// A plugin form declares its options; `check` (without drawing) finds a
+/// misspelt option, a column of the wrong kind and a missing option, each
+/// with a caret where it was written.
+#[test]
+fn declared_options_are_checked_where_the_story_writes_them() {
+    let dir = story_with("options", &lib("crescendo_slope"), "slope", None);
+    let story = fs::read_to_string(dir.join("s.cresc")).unwrap();
+    let run = |text: String| {
+        fs::write(dir.join("s.cresc"), text).unwrap();
+        let o = crescendo(&dir, &["check", "s.cresc"]);
+        (
+            o.status.code(),
+            String::from_utf8_lossy(&o.stderr).to_string(),
+        )
+    };
+    let (code, err) = run(story.replace("category route", "catgory route"));
+    assert_eq!(code, Some(1), "{err}");
+    assert!(err.contains("takes no option `catgory`"), "{err}");
+    assert!(err.contains("did you mean `category`?"), "{err}");
+    assert!(err.contains("s.cresc:7:24"), "{err}");
+    // the required `category` is not reported again: the suggestion names it
+    assert_eq!(err.matches("error[").count(), 1, "{err}");
+    let (code, err) = run(story.replace("value riders", "value route"));
+    assert_eq!(code, Some(1), "{err}");
+    assert!(
+        err.contains("option `value` takes a number column; `route` is a text column"),
+        "{err}"
+    );
+    let (code, err) = run(story.replace(", period year", ""));
+    assert_eq!(code, Some(1), "{err}");
+    assert!(err.contains("needs the option `period`"), "{err}");
+    let (code, err) = run(story);
+    assert_eq!(code, Some(0), "{err}");
 }
 
 #[test]
@@ -223,6 +280,19 @@ fn a_plugin_that_panics_is_a_located_error() {
         &lib("crescendo_fault_plugin"),
         "panic",
         "plugin `p`",
+        "s.cresc:7:3",
+    );
+}
+
+/// A label placed inside the plot that runs past the canvas is measured
+/// with the bundled font, like built-in labels, and refused.
+#[test]
+fn plugin_text_past_the_canvas_is_refused() {
+    fails_with(
+        "longtext",
+        &lib("crescendo_fault_plugin"),
+        "longtext",
+        "runs past the 1280×720 canvas",
         "s.cresc:7:3",
     );
 }

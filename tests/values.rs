@@ -204,6 +204,27 @@ fn compound_growth_worked_example() {
     assert_eq!(figs, vec!["10.0000%", "+33.1%", "2024", "10%"]);
 }
 
+/// One rule for the order of definitions: values, views and claims may use
+/// a view or value defined anywhere in the story (each is computed after
+/// what it uses), as frames always could.
+#[test]
+fn definitions_may_come_in_any_order() {
+    let dir = scratch("order");
+    fs::write(dir.join("g.csv"), "year,visits\n2021,2000\n2024,2662\n").unwrap();
+    let story = "story \"G\"\n\
+        claim share about 0.75 within 0.01 \"the first year is three quarters of the last\"\n\
+        value share = first / last\n\
+        value first = min(recent.visits)\n\
+        value last = max(recent.visits)\n\
+        view recent = g | keep year >= 2021\n\
+        data g from \"g.csv\" { year: year }\n\
+        frame \"f\" {\n  line g: x year, y visits\n  notes \"{share to 3 decimals}|{first}\"\n}\n";
+    let (figs, planned) = quoted(&dir, story);
+    assert!(planned.failed_claims.is_empty());
+    // 2000 / 2662 = 0.75131... (worked by hand)
+    assert_eq!(figs, vec!["0.751", "2,000"]);
+}
+
 #[test]
 fn value_errors_are_located_never_nan() {
     let dir = scratch("value-errors");
@@ -235,10 +256,12 @@ fn value_errors_are_located_never_nan() {
             "`rank` needs exactly one selected row",
             (3, 11),
         ),
+        // a value may use one defined further down (as claims and frames
+        // may), but not itself through others
         (
-            "value e = later + 1\nvalue later = 2",
-            "no value named `later`",
-            (3, 11),
+            "value e = later + 1\nvalue later = e * 2",
+            "`e` is defined in terms of itself: `e` → `later` → `e`",
+            (3, 7),
         ),
     ];
     for (value, message, (line, col)) in cases {

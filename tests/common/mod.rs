@@ -1,6 +1,8 @@
 //! Helpers shared by the end-to-end tests.
 #![allow(dead_code)]
 
+pub mod repo;
+
 use std::fs;
 use std::io::{BufRead, BufReader};
 use std::path::{Path, PathBuf};

@@ -60,6 +60,7 @@ pub struct Anchors {
     pub title: Option<Span>,
     pub conclusion: Option<Span>,
     pub source: Option<Span>,
+    pub byline: Option<Span>,
     pub accent: Option<Span>,
     /// The `style "file"` statement.
     pub style: Option<Span>,

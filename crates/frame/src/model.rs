@@ -49,6 +49,19 @@ pub struct ClaimPlan {
     pub holds: bool,
     /// Each comparison with its operands' values.
     pub detail: Vec<String>,
+    /// The room left before the claim flips, as a share: for `a > b` (and
+    /// `>=`, `<`, `<=`) the distance between the sides over the size of
+    /// the right-hand side; for `a about b within T` the part of the
+    /// tolerance not used. Negative when it fails; the least of
+    /// comparisons joined by `and`; `None` where no share can be given
+    /// (`or`, `not`, `=`, texts, times, a zero right-hand side). Used by
+    /// `crescendo review`; not written to the manifest.
+    #[serde(skip)]
+    pub margin: Option<f64>,
+    /// The values the claim rests on, directly or through other values
+    /// (for `crescendo review`; not written to the manifest).
+    #[serde(skip)]
+    pub rests_on: Vec<String>,
 }
 
 /// One frame (slide).

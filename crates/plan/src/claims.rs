@@ -9,16 +9,10 @@ use crescendo_lang::ast;
 use crate::context::{Ctx, Outcome};
 use crate::model::ClaimPlan;
 use crate::scope::Scope;
-use crate::values;
+use crate::values::{self, Evaluator, Quantity};
 
-/// Compute a value item. `later`: the value names defined further down (to
-/// explain a use before the definition).
-pub(crate) fn define_value(
-    cx: &mut Ctx,
-    scope: &mut Scope,
-    v: &ast::ValueDecl,
-    later: &BTreeSet<String>,
-) {
+/// Compute a value item (after the views and values it uses: `order.rs`).
+pub(crate) fn define_value(cx: &mut Ctx, scope: &mut Scope, v: &ast::ValueDecl) {
     let name = &v.name.name;
     if scope.values.spans.contains_key(name) || name == "conclusion" {
         let d = cx.at(
@@ -44,27 +38,10 @@ pub(crate) fn define_value(
         Ok(q) => {
             values.by_name.insert(name.clone(), q);
         }
-        Err(mut ds) => {
-            for d in &mut ds {
-                explain_later(d, later);
-            }
+        Err(ds) => {
             let _ = cx.extend(ds);
             values.broken.insert(name.clone());
         }
-    }
-}
-
-/// "no value named `x`" for a value defined further down: say so.
-fn explain_later(d: &mut Diagnostic, later: &BTreeSet<String>) {
-    let missing = d
-        .message
-        .strip_prefix("no value named `")
-        .and_then(|m| m.strip_suffix('`'))
-        .map(str::to_string);
-    if let Some(missing) = missing.filter(|m| later.contains(m)) {
-        d.help = Some(format!(
-            "`{missing}` is defined further down: move this value below it"
-        ));
     }
 }
 
@@ -77,7 +54,9 @@ pub(crate) fn check_claim(
     failed_claims: &mut Vec<Diagnostic>,
 ) -> Outcome<(ClaimPlan, BTreeSet<String>)> {
     let mut shown = Vec::new();
-    let holds = match scope.evaluator(cx.src).condition(&c.condition, &mut shown) {
+    let evaluator = scope.evaluator(cx.src);
+    let margin = margin(&evaluator, &c.condition);
+    let holds = match evaluator.condition(&c.condition, &mut shown) {
         Ok(h) => h,
         Err(d) => {
             cx.extend(d)?;
@@ -123,7 +102,58 @@ pub(crate) fn check_claim(
             condition,
             holds,
             detail: shown,
+            margin,
+            rests_on: depends.iter().cloned().collect(),
         },
         names,
     ))
+}
+
+/// How much room a claim has before it flips, as a share (see
+/// `ClaimPlan::margin`): the smallest room of its comparisons when it is
+/// one comparison or comparisons joined by `and`; `None` for `or`, `not`,
+/// texts and times, and when a side is zero (no scale to measure against).
+fn margin(ev: &Evaluator, c: &ast::Expr) -> Option<f64> {
+    use ast::{BinOp, Expr};
+    let number = |e: &Expr| match ev.eval(e) {
+        Ok(Quantity::Number(n)) if n.is_finite() => Some(n),
+        _ => None,
+    };
+    match c {
+        Expr::Chain { first, rest, .. } if rest.iter().all(|l| l.op == BinOp::And) => {
+            let mut least = margin(ev, first)?;
+            for link in rest {
+                least = least.min(margin(ev, &link.operand)?);
+            }
+            Some(least)
+        }
+        Expr::Compare {
+            op, left, right, ..
+        } => {
+            let (a, b) = (number(left)?, number(right)?);
+            if b == 0.0 {
+                return None;
+            }
+            match op {
+                BinOp::Gt | BinOp::Ge => Some((a - b) / b.abs()),
+                BinOp::Lt | BinOp::Le => Some((b - a) / b.abs()),
+                _ => None,
+            }
+        }
+        Expr::About {
+            left,
+            right,
+            tolerance,
+            ..
+        } => {
+            let (a, b) = (number(left)?, number(right)?);
+            let allowed = if tolerance.relative {
+                tolerance.amount * b.abs()
+            } else {
+                tolerance.amount
+            };
+            (allowed > 0.0).then(|| (allowed - (a - b).abs()) / allowed)
+        }
+        _ => None,
+    }
 }

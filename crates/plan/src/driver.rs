@@ -2,7 +2,6 @@
 //! the conventions, the data and view items, values and plugins in story
 //! order; then claims, then the frames; then the house style.
 
-use std::collections::BTreeSet;
 use std::path::Path;
 use std::sync::Arc;
 
@@ -17,6 +16,7 @@ use crate::io::{Disk, Io};
 use crate::loading::{LoadReport, Loader};
 use crate::model::*;
 use crate::options::Options;
+use crate::order::{self, Def};
 use crate::plugins::{self, Plugins};
 use crate::scope::Scope;
 use crate::{claims, frames, sources};
@@ -123,6 +123,7 @@ fn run(cx: &mut Ctx, story: &ast::StoryAst) -> Planned {
     anchors.title = h.title.as_ref().map(|t| t.span.clone());
     anchors.conclusion = h.conclusion.as_ref().map(|t| t.span.clone());
     anchors.source = h.source.as_ref().map(|t| t.span.clone());
+    anchors.byline = h.byline.as_ref().map(|t| t.span.clone());
     let with = (texts.source.as_ref(), failed.as_slice());
     let frames = frames::plan_frames(cx, &scope, &h, &frame_items, with, &mut anchors);
     let style = h.style.as_ref().and_then(|s| house_style(cx, s));
@@ -170,32 +171,42 @@ fn items<'s>(
 ) -> (Vec<&'s ast::FrameDecl>, Vec<&'s ast::ClaimDecl>) {
     let mut frames = Vec::new();
     let mut claims = Vec::new();
-    // Value names not defined yet, to explain uses before definitions.
-    let mut later_values: BTreeSet<String> = story
-        .items
-        .iter()
-        .filter_map(|i| match i {
-            Item::Value(v) => Some(v.name.name.clone()),
-            _ => None,
-        })
-        .collect();
+    let mut defs = Vec::new();
     for item in &story.items {
         if h.take(cx, item, anchors) {
             continue;
         }
         match item {
             Item::Data(d) => sources::data_item(cx, loader, &mut scope.tables, d),
-            Item::View(v) => sources::view_item(cx, &mut scope.tables, v),
-            Item::Value(v) => {
-                later_values.remove(&v.name.name);
-                claims::define_value(cx, scope, v, &later_values);
-            }
+            Item::View(_) | Item::Value(_) => defs.extend(Def::of(item)),
             Item::Claim(c) => claims.push(c),
             Item::Plugin(d) => {
-                let _ = plugins::use_plugin(cx, &mut scope.plugins, d);
+                if let Err(r) = plugins::use_plugin(cx, &mut scope.plugins, d) {
+                    scope.failed_plugins.insert(d.alias.name.clone(), r);
+                }
             }
             Item::Frame(f) => frames.push(f),
             _ => {}
+        }
+    }
+    // views and values once every data item is read, each after what it
+    // uses (`order.rs`: forward references allowed, circles refused)
+    let (ordered, circles) = order::order(cx, &defs);
+    for (name, (def, reported)) in circles {
+        match def {
+            Def::View(_) => {
+                scope.tables.broken.insert(name, reported);
+            }
+            Def::Value(v) => {
+                scope.values.spans.insert(name.clone(), v.name.span.clone());
+                scope.values.broken.insert(name);
+            }
+        }
+    }
+    for def in ordered {
+        match def {
+            Def::View(v) => sources::view_item(cx, &mut scope.tables, v),
+            Def::Value(v) => claims::define_value(cx, scope, v),
         }
     }
     (frames, claims)

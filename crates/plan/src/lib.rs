@@ -28,6 +28,7 @@ pub mod limits;
 mod loading;
 pub mod model;
 mod options;
+mod order;
 mod overflow;
 pub mod paths;
 pub mod plugins;

@@ -65,7 +65,7 @@ fn resolved(p: &Path) -> PathBuf {
 /// why it may not be read: it lies outside the story's folder and every
 /// folder in `allowed`.
 pub fn confine(story_dir: &Path, written: &str, allowed: &[PathBuf]) -> Result<PathBuf, String> {
-    let path = story_dir.join(written);
+    let path = joined(story_dir, written);
     let target = resolved(&path);
     let home = resolved(story_dir);
     if target.starts_with(&home) || allowed.iter().any(|a| target.starts_with(resolved(a))) {
@@ -75,6 +75,22 @@ pub fn confine(story_dir: &Path, written: &str, allowed: &[PathBuf]) -> Result<P
         "`{written}` is outside the story's folder ({})",
         target.display()
     ))
+}
+
+/// `written` under `story_dir`, without the `.` parts either may hold
+/// (`./s.cresc` naming `./lib.so` gives `./lib.so`, not `././lib.so`); a
+/// relative path keeps one leading `./` when it is a bare file name.
+fn joined(story_dir: &Path, written: &str) -> PathBuf {
+    let path: PathBuf = story_dir
+        .join(written)
+        .components()
+        .filter(|c| *c != Component::CurDir)
+        .collect();
+    if path.is_relative() && path.parent().is_none_or(|p| p.as_os_str().is_empty()) {
+        Path::new(".").join(path)
+    } else {
+        path
+    }
 }
 
 /// The folders a story's files may be opened from: its own folder and
@@ -162,5 +178,18 @@ mod tests {
         let allow = [d.join("private")];
         assert!(confine(&s, "../private/secret.csv", &allow).is_ok());
         assert!(confine(&s, "/etc/passwd", &allow).is_err());
+    }
+
+    #[test]
+    fn joined_paths_carry_no_dot_parts() {
+        assert_eq!(joined(Path::new("."), "./lib.so"), Path::new("./lib.so"));
+        assert_eq!(joined(Path::new("."), "lib.so"), Path::new("./lib.so"));
+        assert_eq!(joined(Path::new("pm"), "./lib.so"), Path::new("pm/lib.so"));
+        assert_eq!(
+            joined(Path::new("/s/./t"), "./d/./x.csv"),
+            Path::new("/s/t/d/x.csv")
+        );
+        // `..` is kept: it may cross a symbolic link
+        assert_eq!(joined(Path::new("s"), "../x.csv"), Path::new("s/../x.csv"));
     }
 }

@@ -1,12 +1,13 @@
 //! What the story's items defined, as the frames see it: its tables, its
 //! values and its plugins.
 
+use std::collections::BTreeMap;
 use std::sync::Arc;
 
 use crescendo_diag::Source;
 use crescendo_lang::ast::Text;
 
-use crate::context::Ctx;
+use crate::context::{Ctx, Reported};
 use crate::plugins::Plugins;
 use crate::tables::Tables;
 use crate::values::{self, Evaluator, Resolved, Values};
@@ -17,6 +18,9 @@ pub(crate) struct Scope {
     pub(crate) tables: Tables,
     pub(crate) values: Values,
     pub(crate) plugins: Plugins,
+    /// Plugins whose `use plugin` failed (already reported), so a `draw`
+    /// naming one is not reported again as unknown.
+    pub(crate) failed_plugins: BTreeMap<String, Reported>,
 }
 
 impl Scope {

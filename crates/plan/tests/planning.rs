@@ -219,3 +219,36 @@ fn unfold_counts_against_the_frame_limit() {
     assert_eq!(errs.len(), 1, "{errs:#?}");
     assert_eq!(errs[0].code, "limit");
 }
+
+#[test]
+fn claims_carry_their_room() {
+    // worked by hand: a = 120, b = 100
+    let csv = "k,v\na,120\nb,100\n";
+    let story = r#"story "Room"
+data t from "data.csv"
+value a = sum(t.v where k = "a")
+value b = sum(t.v where k = "b")
+claim a > b "A leads"
+claim b < a and a > 110 "Both"
+claim a about 110 within 10% "Close"
+claim a about 100 within 10 "Too far"
+claim a > b or a < b "Either"
+frame "A and B" {
+  bars t: category k, value v
+}
+"#;
+    let plan = plan_with("room", story, csv).unwrap().plan;
+    let rooms: Vec<Option<f64>> = plan.claims.iter().map(|c| c.margin).collect();
+    let near = |got: Option<f64>, want: f64| {
+        assert!(
+            got.is_some_and(|g| (g - want).abs() < 1e-9),
+            "{got:?} ≠ {want}"
+        )
+    };
+    near(rooms[0], 0.2); // (120 − 100) / 100
+    near(rooms[1], (120.0 - 110.0) / 110.0); // the least of the two
+    near(rooms[2], (11.0 - 10.0) / 11.0); // 10% of 110 = 11, 10 of it used
+    near(rooms[3], (10.0 - 20.0) / 10.0); // fails: twice its tolerance used
+    assert_eq!(rooms[4], None, "no room is given for `or`");
+    assert!(!plan.claims[3].holds);
+}

@@ -19,13 +19,15 @@ use std::ffi::c_void;
 use std::os::raw::c_char;
 use std::path::{Path, PathBuf};
 
-use crescendo_plugin::abi::{Descriptor, OutBuffer, ABI_VERSION, ENTRY_SYMBOL};
+use std::collections::BTreeMap;
+
+use crescendo_plugin::abi::{Descriptor, OutBuffer, ABI_VERSION, ENTRY_SYMBOL, OPTIONS_SYMBOL};
 use crescendo_plugin::validate::{check_area, check_reply, clip};
 pub use crescendo_plugin::validate::{
     validate, PluginError, Validated, MAX_DESCRIPTION_CHARS, MAX_FORMS, MAX_NAME_BYTES, MAX_POINTS,
     MAX_PRIMITIVES, MAX_REPLY_BYTES, MAX_TEXT_CHARS,
 };
-use crescendo_plugin::Request;
+use crescendo_plugin::{FormOptions, OptionDecl, Request};
 
 pub use file::{Private, Verified};
 
@@ -41,6 +43,9 @@ pub struct PluginInfo {
     pub path: PathBuf,
     /// SHA-256 of the library file, lowercase hex.
     pub sha256: String,
+    /// The options each form declares (a form missing here declares none:
+    /// its options are not checked).
+    pub options: BTreeMap<String, Vec<OptionDecl>>,
 }
 
 /// A loaded plugin. The library stays loaded as long as this value lives:
@@ -104,6 +109,80 @@ impl std::fmt::Debug for Plugin {
 type EntryFn = extern "C" fn() -> *const Descriptor;
 type RenderFn = extern "C" fn(*const u8, usize, *mut OutBuffer) -> i32;
 type FreeFn = extern "C" fn(OutBuffer);
+type OptionsFn = extern "C" fn(*mut OutBuffer) -> i32;
+
+/// The most options one form may declare.
+pub const MAX_OPTIONS: usize = 64;
+
+/// Call the plugin's options symbol and check what it declares: forms it
+/// has, bounded names and texts, known column kinds.
+fn read_options(
+    options_fn: OptionsFn,
+    free_fn: FreeFn,
+    forms: &[String],
+) -> Result<BTreeMap<String, Vec<OptionDecl>>, PluginError> {
+    let bad = |why: String| PluginError::BadDescriptor(format!("its declared options: {why}"));
+    let mut out = OutBuffer {
+        ptr: std::ptr::null_mut(),
+        len: 0,
+        cap: 0,
+    };
+    let code = options_fn(&mut out);
+    if code != 0 {
+        return Err(bad(format!(
+            "the options function gave up with code {code}"
+        )));
+    }
+    let bytes = take(out, free_fn)?;
+    let declared: Vec<FormOptions> =
+        serde_json::from_slice(&bytes).map_err(|e| bad(format!("not a list of forms ({e})")))?;
+    let mut by_form = BTreeMap::new();
+    for f in declared {
+        if !forms.contains(&f.form) {
+            return Err(bad(format!("no form `{}`", clip(&f.form, MAX_NAME_BYTES))));
+        }
+        if f.options.len() > MAX_OPTIONS {
+            return Err(bad(format!(
+                "form `{}` declares {} options; at most {MAX_OPTIONS}",
+                f.form,
+                f.options.len()
+            )));
+        }
+        for o in &f.options {
+            if o.name.is_empty()
+                || o.name.len() > MAX_NAME_BYTES
+                || !o
+                    .name
+                    .chars()
+                    .all(|c| c.is_ascii_alphanumeric() || c == '_')
+            {
+                return Err(bad(format!(
+                    "option name `{}` is not a plain word",
+                    clip(&o.name, MAX_NAME_BYTES)
+                )));
+            }
+            if o.about.chars().count() > MAX_TEXT_CHARS {
+                return Err(bad(format!(
+                    "option `{}` has an over-long description",
+                    o.name
+                )));
+            }
+            if let Some(k) = o.kinds.iter().find(|k| !COLUMN_KINDS.contains(&k.as_str())) {
+                return Err(bad(format!(
+                    "option `{}` names the column kind `{}` (kinds: {})",
+                    o.name,
+                    clip(k, MAX_NAME_BYTES),
+                    COLUMN_KINDS.join(", ")
+                )));
+            }
+        }
+        by_form.insert(f.form, f.options);
+    }
+    Ok(by_form)
+}
+
+/// The column kinds a request's columns have.
+pub const COLUMN_KINDS: &[&str] = &["text", "number", "date", "month", "year"];
 
 /// The name an inspected, unloaded plugin reports.
 pub const NOT_LOADED: &str = "(not loaded)";
@@ -129,6 +208,7 @@ impl Plugin {
                 forms: Vec::new(),
                 path: verified.path,
                 sha256: verified.sha256,
+                options: BTreeMap::new(),
             },
             real_path: verified.real_path,
             pinned: verified.pin.is_some(),
@@ -200,6 +280,22 @@ impl Plugin {
         // SAFETY: `descriptor` is checked for null and alignment inside, and
         // only read while `library` is loaded.
         let read = unsafe { read_descriptor(descriptor) }?;
+        // SAFETY: as for the entry symbol: only the address is read, checked
+        // for null, and used while `library` keeps the library loaded.
+        let options_addr: *const c_void =
+            match unsafe { library.get::<*const c_void>(OPTIONS_SYMBOL) } {
+                Ok(symbol) => *symbol,
+                Err(_) => std::ptr::null(),
+            };
+        let options = if options_addr.is_null() {
+            BTreeMap::new()
+        } else {
+            // SAFETY: the options symbol's contract is `extern "C" fn(*mut
+            // OutBuffer) -> i32`; the address is non-null and in the library.
+            let options_fn =
+                unsafe { std::mem::transmute::<*const c_void, OptionsFn>(options_addr) };
+            read_options(options_fn, read.free, &read.forms)?
+        };
         let info = PluginInfo {
             name: read.name,
             version: read.version,
@@ -207,6 +303,7 @@ impl Plugin {
             forms: read.forms,
             path: verified.path,
             sha256: verified.sha256,
+            options,
         };
         Ok(Plugin {
             info,

@@ -450,7 +450,9 @@ fn fault(p: &Plugin, form: &str) -> Result<Validated, PluginError> {
 fn misbehaving_plugins_give_errors_not_crashes() {
     let p = load("crescendo-fault-plugin");
     assert_eq!(p.info().name, "faults");
-    assert_eq!(p.info().forms.len(), 11);
+    assert_eq!(p.info().forms.len(), 12);
+    // it declares no options (no options symbol): nothing is checked
+    assert!(p.info().options.is_empty());
     // The fixture itself works.
     assert_eq!(
         fault(&p, "fine").unwrap().description.as_deref(),
@@ -531,4 +533,20 @@ fn plugins_loaded_one_after_another_are_each_their_own_library() {
         let c = load("crescendo-fault-plugin");
         assert_eq!(c.info().name, "faults");
     }
+}
+
+/// The slope plugin declares its options through the optional symbol; the
+/// host reads and keeps them per form.
+#[test]
+fn declared_options_are_read() {
+    let p = load("crescendo-slope");
+    let slope = p
+        .info()
+        .options
+        .get("slope")
+        .expect("slope declares options");
+    let names: Vec<&str> = slope.iter().map(|o| o.name.as_str()).collect();
+    assert_eq!(names, ["category", "value", "period"]);
+    assert!(slope.iter().all(|o| o.required));
+    assert_eq!(slope[1].kinds, ["number"]);
 }

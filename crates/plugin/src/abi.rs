@@ -9,6 +9,12 @@ pub const ABI_VERSION: u32 = 1;
 /// The one symbol a plugin exports: `extern "C" fn() -> *const Descriptor`.
 pub const ENTRY_SYMBOL: &[u8] = b"crescendo_plugin_entry\0";
 
+/// An optional second symbol: `extern "C" fn(out: *mut OutBuffer) -> i32`
+/// writes the options each form takes as JSON (a list of
+/// [`crate::FormOptions`]) into `out`, freed with the descriptor's `free`.
+/// A plugin without it declares nothing, and the host checks no option.
+pub const OPTIONS_SYMBOL: &[u8] = b"crescendo_plugin_options\0";
+
 /// Bytes handed from the plugin to the host; freed by the plugin's `free`.
 #[repr(C)]
 pub struct OutBuffer {

@@ -27,8 +27,9 @@ pub enum Cell {
     Text(String),
 }
 
-/// One column of the panel's data. Times are given as text in ISO form
-/// (`2024-07`, `2024-07-31`, `2024`) and as their position in `positions`.
+/// One column of the panel's data. Times are given as text cells in ISO
+/// form (`2024-07` for a month, `2024-07-31` for a date, `2024` for a
+/// year), in the view's order; `kind` says which.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Column {
     pub name: String,
@@ -175,4 +176,61 @@ pub struct Drawing {
 pub enum Reply {
     Drawing(Drawing),
     Error(String),
+}
+
+/// The options one form takes, as its plugin declares them: the story's
+/// `draw NAME.FORM VIEW: OPTION COLUMN, ...` is checked against them by
+/// `crescendo check`, with a caret on a wrong option.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct FormOptions {
+    pub form: String,
+    pub options: Vec<OptionDecl>,
+}
+
+/// One option of a form. Every option names a column of the view.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct OptionDecl {
+    pub name: String,
+    /// A story that leaves it out is an error.
+    #[serde(default)]
+    pub required: bool,
+    /// The column kinds it accepts (`text`, `number`, `date`, `month`,
+    /// `year`); empty: any.
+    #[serde(default)]
+    pub kinds: Vec<String>,
+    /// One line for the user: what the column is for.
+    #[serde(default)]
+    pub about: String,
+}
+
+impl OptionDecl {
+    /// An optional option taking a column of any kind.
+    pub fn column(name: &str) -> OptionDecl {
+        OptionDecl {
+            name: name.into(),
+            required: false,
+            kinds: Vec::new(),
+            about: String::new(),
+        }
+    }
+
+    /// The story must give it.
+    pub fn required(mut self) -> OptionDecl {
+        self.required = true;
+        self
+    }
+
+    /// The column kinds it accepts.
+    pub fn of_kinds(mut self, kinds: &[&str]) -> OptionDecl {
+        self.kinds = kinds.iter().map(|k| k.to_string()).collect();
+        self
+    }
+
+    /// What the column is for, in a few words.
+    pub fn about(mut self, about: &str) -> OptionDecl {
+        self.about = about.into();
+        self
+    }
 }

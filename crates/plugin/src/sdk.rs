@@ -39,13 +39,60 @@ use std::os::raw::c_char;
 use std::panic::{catch_unwind, AssertUnwindSafe};
 
 use crate::abi::{Descriptor, OutBuffer, ABI_VERSION};
-use crate::message::{Cell, Column, Drawing, Primitive, Pt, Reply, Request, Role};
+use crate::message::{
+    Cell, Column, Drawing, FormOptions, OptionDecl, Primitive, Pt, Reply, Request, Role,
+};
 
 /// One chart form a plugin draws.
 pub trait Form: Sync {
     /// Draw the panel described by `request`, or say in a sentence for the
     /// user why not (e.g. a missing option or a column of the wrong kind).
     fn render(&self, request: &Request) -> Result<Drawing, String>;
+
+    /// The options the form takes (each names a column of the view). A
+    /// form that declares them has every `draw` statement checked by
+    /// `crescendo check` (unknown, missing and wrong-kind options get a
+    /// caret); one that declares none is given whatever the story writes.
+    fn options(&self) -> Vec<OptionDecl> {
+        Vec::new()
+    }
+}
+
+/// The options of every form, as the options symbol sends them.
+pub fn declared_options(forms: &[(&str, &dyn Form)]) -> Vec<FormOptions> {
+    forms
+        .iter()
+        .map(|(name, form)| FormOptions {
+            form: name.to_string(),
+            options: form.options(),
+        })
+        .collect()
+}
+
+/// The body of the options symbol the macro exports: the declared options
+/// as JSON in `out`; 0, or 1 when it could not write them.
+///
+/// # Safety
+/// `out` must be null or valid for a write of one [`OutBuffer`].
+pub unsafe fn options_entry(forms: &[(&str, &dyn Form)], out: *mut OutBuffer) -> i32 {
+    if out.is_null() {
+        return 1;
+    }
+    let encoded = catch_unwind(AssertUnwindSafe(|| {
+        serde_json::to_vec(&declared_options(forms))
+    }));
+    match encoded {
+        Ok(Ok(json)) => {
+            // SAFETY: `out` is non-null and writable per the contract.
+            unsafe { out.write(hand_over(json)) };
+            0
+        }
+        Ok(Err(_)) => 1,
+        Err(payload) => {
+            std::mem::forget(payload);
+            1
+        }
+    }
 }
 
 /// A descriptor that may live in a `static` (it only holds pointers to other
@@ -268,6 +315,15 @@ macro_rules! export_plugin {
                 // SAFETY: the host passes `request_len` readable bytes and a
                 // writable buffer, per the ABI; `render_entry` never unwinds.
                 unsafe { $crate::sdk::render_entry(forms, request, request_len, out) }
+            }
+
+            /// The options each form declares (see `Form::options`).
+            #[unsafe(no_mangle)]
+            pub extern "C" fn crescendo_plugin_options(out: *mut $crate::abi::OutBuffer) -> i32 {
+                let forms: &[(&str, &dyn $crate::sdk::Form)] = &[$(($form, &$value)),+];
+                // SAFETY: the host passes a writable buffer, per the ABI;
+                // `options_entry` never unwinds.
+                unsafe { $crate::sdk::options_entry(forms, out) }
             }
 
             extern "C" fn __free(buffer: $crate::abi::OutBuffer) {

@@ -206,6 +206,15 @@ fn policy(scripts: &[&str], style: &str) -> String {
     )
 }
 
+/// The same policy for a page without scripts (the review page): only
+/// its inline stylesheet `style` applies, images come from `data:` URLs.
+pub fn policy_without_scripts(style: &str) -> String {
+    format!(
+        "default-src 'none'; script-src 'none'; style-src {}; img-src data:; font-src data:; base-uri 'none'; form-action 'none'",
+        hash_source(style)
+    )
+}
+
 /// `html` (a deck from [`render_deck_html`]) with one more inline script
 /// before `</body>`, allowed by adding its hash to the policy, and with
 /// `connect-src 'self'` so it may ask its own server (for `watch --serve`).

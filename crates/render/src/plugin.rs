@@ -118,18 +118,43 @@ pub fn draw(
                 role,
             } => {
                 let (x, y) = at(p);
+                let align = match anchor {
+                    Anchor::Start => Align::Start,
+                    Anchor::Middle => Align::Middle,
+                    Anchor::End => Align::End,
+                };
+                let bold = *bold || *role == Role::Focus;
+                // the point is inside the plot (validated); the text must
+                // fit on the canvas too, measured with the bundled font
+                let b =
+                    crescendo_look::display::text_box(text, x, y, theme.label_size, bold, align);
+                let (w, h) = (
+                    f64::from(crescendo_look::theme::WIDTH),
+                    f64::from(crescendo_look::theme::HEIGHT),
+                );
+                if b.x0 < 0.0 || b.y0 < 0.0 || b.x1 > w || b.y1 > h {
+                    let shown: String = text.chars().take(40).collect();
+                    return Err(RenderError::new(format!(
+                        "plugin `{}` ({} {}): its text \"{shown}\" runs past the {w}×{h} canvas \
+                         (it spans x {:.0} to {:.0}, y {:.0} to {:.0} at {} px)",
+                        chart.plugin,
+                        chart.plugin_name,
+                        chart.plugin_version,
+                        b.x0,
+                        b.x1,
+                        b.y0,
+                        b.y1,
+                        theme.label_size
+                    )));
+                }
                 canvas.text(&Label {
                     text,
                     x,
                     top: y,
                     size: theme.label_size,
-                    bold: *bold || *role == Role::Focus,
+                    bold,
                     color: text_ink(theme, *role),
-                    align: match anchor {
-                        Anchor::Start => Align::Start,
-                        Anchor::Middle => Align::Middle,
-                        Anchor::End => Align::End,
-                    },
+                    align,
                 })?;
             }
         }

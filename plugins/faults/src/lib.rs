@@ -22,6 +22,7 @@ pub struct Outside;
 pub struct Huge;
 /// Returns an error reply.
 pub struct Errs;
+pub struct LongText;
 
 fn line(from: (f64, f64), to: (f64, f64)) -> Primitive {
     Primitive::Line {
@@ -88,13 +89,34 @@ impl Form for Huge {
     }
 }
 
+/// A label anchored inside the plot, at its right edge, that runs far past
+/// the canvas.
+impl Form for LongText {
+    fn render(&self, r: &Request) -> Result<Drawing, String> {
+        Ok(Drawing {
+            primitives: vec![Primitive::Text {
+                at: Pt {
+                    x: r.area.width - 1.0,
+                    y: 10.0,
+                    space: Space::Plot,
+                },
+                text: "a label far too long to fit anywhere on the frame at all".into(),
+                anchor: crescendo_plugin::Anchor::Start,
+                bold: false,
+                role: Role::Annotation,
+            }],
+            ..Drawing::default()
+        })
+    }
+}
+
 impl Form for Errs {
     fn render(&self, _: &Request) -> Result<Drawing, String> {
         Err("the fixture refuses on purpose".into())
     }
 }
 
-const COUNT: usize = 11;
+const COUNT: usize = 12;
 
 static FORMS: StaticNames<COUNT> = StaticNames([
     c_str("fine\0"),
@@ -108,6 +130,7 @@ static FORMS: StaticNames<COUNT> = StaticNames([
     c_str("nullnum\0"),
     c_str("flood\0"),
     c_str("code\0"),
+    c_str("longtext\0"),
 ]);
 
 static DESCRIPTOR: StaticDescriptor = StaticDescriptor(Descriptor {
@@ -153,6 +176,7 @@ extern "C" fn render(request: *const u8, request_len: usize, out: *mut OutBuffer
                 ("outside", &Outside),
                 ("huge", &Huge),
                 ("error", &Errs),
+                ("longtext", &LongText),
             ];
             // SAFETY: as above; `out` is non-null and writable per the ABI.
             return unsafe { sdk::render_entry(forms, request, request_len, out) };

@@ -14,7 +14,7 @@ use crescendo_plugin::sdk::{
     cell_number, cell_text, column, decimals_needed, extent, format_number, shown, spread,
     text_width, Form, Linear, Shown,
 };
-use crescendo_plugin::{Anchor, Column, Drawing, Primitive, Pt, Request, Role, Space};
+use crescendo_plugin::{Anchor, Column, Drawing, OptionDecl, Primitive, Pt, Request, Role, Space};
 
 /// The slope chart form.
 pub struct SlopeChart;
@@ -22,6 +22,21 @@ pub struct SlopeChart;
 impl Form for SlopeChart {
     fn render(&self, request: &Request) -> Result<Drawing, String> {
         slope(request)
+    }
+
+    fn options(&self) -> Vec<OptionDecl> {
+        vec![
+            OptionDecl::column("category")
+                .required()
+                .about("one line per value"),
+            OptionDecl::column("value")
+                .required()
+                .of_kinds(&["number"])
+                .about("where each line starts and ends"),
+            OptionDecl::column("period")
+                .required()
+                .about("the two periods compared, left and right"),
+        ]
     }
 }
 

@@ -11,7 +11,7 @@ use crescendo_plugin::sdk::{
     cell_number, cell_text, column, decimals_needed, extent, format_number, format_signed, shown,
     Form, Linear, Shown,
 };
-use crescendo_plugin::{Anchor, Column, Drawing, Primitive, Pt, Request, Role, Space};
+use crescendo_plugin::{Anchor, Column, Drawing, OptionDecl, Primitive, Pt, Request, Role, Space};
 
 /// The waterfall form.
 pub struct Waterfall;
@@ -19,6 +19,18 @@ pub struct Waterfall;
 impl Form for Waterfall {
     fn render(&self, request: &Request) -> Result<Drawing, String> {
         waterfall(request)
+    }
+
+    fn options(&self) -> Vec<OptionDecl> {
+        vec![
+            OptionDecl::column("category")
+                .required()
+                .about("the start, each step and the end, in order"),
+            OptionDecl::column("value")
+                .required()
+                .of_kinds(&["number"])
+                .about("the start value, then each signed step"),
+        ]
     }
 }
 

@@ -178,7 +178,9 @@ fn describe(rule: Rule, context: Context) -> Option<String> {
             }
             Rule::cmp_op => "a comparison",
             Rule::add_op | Rule::mul_op => "an operator",
-            Rule::EOI => "the end of the file",
+            // items are parsed one at a time: the end of the input is the
+            // end of the statement, not of the file
+            Rule::EOI => "the end of the statement",
             Rule::dot => "`.`",
             Rule::cmp_tail | Rule::about_tail if context == Context::Condition => {
                 "a comparison (`>`, `<`, `=`, ... or `about`)"
@@ -316,16 +318,25 @@ pub(super) fn syntax_error(
         _ => format!("one of {}, ...", expected[..8].join(", ")),
     };
     let is_unknown_word = !word.is_empty() && !keywords.is_empty() && !keywords.contains(&word);
-    let (code, message) =
-        if is_unknown_word && word.chars().next().is_some_and(|c| c.is_ascii_alphabetic()) {
-            (
-                "unknown-keyword",
-                format!("unknown keyword `{word}`: expected {expected_text}"),
-            )
-        } else {
-            ("syntax", format!("expected {expected_text}, found {found}"))
-        };
     let start = base + at;
+    if found == "`,`" && in_add_step(text, at) {
+        return Diagnostic::error(
+            "syntax",
+            "`add` makes one column per step, found `,`".to_string(),
+        )
+        .at(source, start..start + 1, "a second column here")
+        .help("write each new column as a step of its own: `| add a = ... | add b = ...`");
+    }
+    let (code, message) = if expected.is_empty() {
+        ("syntax", format!("{found} is not expected here"))
+    } else if is_unknown_word && word.chars().next().is_some_and(|c| c.is_ascii_alphabetic()) {
+        (
+            "unknown-keyword",
+            format!("unknown keyword `{word}`: expected {expected_text}"),
+        )
+    } else {
+        ("syntax", format!("expected {expected_text}, found {found}"))
+    };
     if rest_of_line.starts_with('"') && !closes_on_line(&rest_of_line[1..]) {
         return Diagnostic::error("unclosed-string", "this string is not closed on its line")
             .at(
@@ -351,6 +362,26 @@ pub(super) fn syntax_error(
         }
     }
     d
+}
+
+/// Whether byte `at` of `text` lies in a view's `add` step (after the last
+/// `|` before it, outside strings, the step starts with `add`).
+fn in_add_step(text: &str, at: usize) -> bool {
+    let before = &text[..at.min(text.len())];
+    let mut step = None;
+    let mut in_string = false;
+    for (i, c) in before.char_indices() {
+        match c {
+            '"' => in_string = !in_string,
+            '|' if !in_string => step = Some(i + 1),
+            _ => {}
+        }
+    }
+    step.is_some_and(|s| {
+        let rest = before[s..].trim_start();
+        rest.strip_prefix("add")
+            .is_some_and(|r| r.starts_with(char::is_whitespace))
+    })
 }
 
 /// When a claim's last string was read as an operand (where a condition or

@@ -155,6 +155,7 @@ fn quote(
             let message = d
                 .message
                 .replacen("unknown keyword", "unknown format word", 1)
+                .replace("the end of the statement", "`}`")
                 .replace("the end of the file", "`}`");
             d.message = format!("in a quoted value: {message}");
             diags.push(d.note(

@@ -397,11 +397,11 @@ fn expected_expressions_are_named_for_their_place() {
     );
     assert_eq!(
         message("value v = a b\n"),
-        "expected `(`, an operator or the end of the file, found `b`"
+        "expected `(`, an operator or the end of the statement, found `b`"
     );
     assert_eq!(
         message("view v = d | keep a b\n"),
-        "unknown keyword `b`: expected `and`, `or`, a comparison, an operator or the end of the file"
+        "unknown keyword `b`: expected `and`, `or`, a comparison, an operator or the end of the statement"
     );
     // inside a selection's `where`, a row condition; in a function's
     // arguments, a value
@@ -851,4 +851,19 @@ fn control_characters_are_refused_at_the_character() {
     for c in ['\t', '\n', '\r', ' ', '\u{7f}', '\u{fffd}'] {
         assert!(!controls::is_forbidden(c), "{c:?}");
     }
+}
+
+#[test]
+fn a_comma_in_an_add_step_says_one_column_per_step() {
+    let (_, d) = parse_str("view v = d | add c = b * 2, e = b * 3\n");
+    assert_eq!(d.len(), 1, "{d:?}");
+    assert_eq!(d[0].message, "`add` makes one column per step, found `,`");
+    assert!(
+        d[0].help.as_deref().unwrap_or("").contains("| add b = ..."),
+        "{:?}",
+        d[0].help
+    );
+    // a comma elsewhere keeps the general message
+    let (_, d) = parse_str("view v = d | keep a > 1, b\n");
+    assert!(!d[0].message.contains("`add`"), "{}", d[0].message);
 }

@@ -2,7 +2,7 @@
 
 use crescendo_diag::Severity;
 
-use crescendo_frame::Chart;
+use crescendo_frame::{Chart, Orientation};
 
 use super::util::frames;
 use crate::{Doc, Finding, Input, Rule};
@@ -36,6 +36,29 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
         // once per sequence: the first frame of the chart
         if has_axis && a.y_title.is_none() && !seen_chart.contains(&a.chart) {
             seen_chart.push(a.chart.clone());
+            let horizontal = matches!(
+                &f.chart,
+                Chart::Bars(b) if b.orientation == Orientation::Horizontal
+            ) || matches!(
+                &f.chart,
+                Chart::Parts(p) if p.orientation == Orientation::Horizontal
+            );
+            if let (true, Some(x)) = (horizontal, &a.x_title) {
+                // `x` and `y` name roles, not directions: on horizontal
+                // bars the measure runs along the bottom but is `y`
+                out.push(Finding {
+                    frame: Some(i),
+                    span: x.clone(),
+                    label: "this titles the categories".into(),
+                    message: "`x title` titles the category axis, also on horizontal bars; the \
+                              measure along the bottom has no title"
+                        .into(),
+                    fix: "title the measure with `y title \"...\"` (x is the categories, y the \
+                          measure, whichever way the bars point)"
+                        .into(),
+                });
+                continue;
+            }
             out.push(Finding {
                 frame: Some(i),
                 span: a.chart.clone(),

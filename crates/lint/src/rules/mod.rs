@@ -27,6 +27,7 @@ mod spotlight_crowd;
 mod stack_spotlight_floats;
 mod text_faint;
 mod text_small;
+mod text_unfinished;
 mod ticks_crowded;
 mod trailing_zeros;
 mod util;
@@ -66,4 +67,5 @@ pub static RULES: &[&Rule] = &[
     &small_counts::RULE,
     &source_missing::RULE,
     &conclusion_missing::RULE,
+    &text_unfinished::RULE,
 ];

@@ -7,26 +7,25 @@ use std::collections::{BTreeMap, BTreeSet};
 use crescendo_data::{time, ColType, Table, Value};
 use crescendo_diag::closest;
 use crescendo_lang::ast::DrawStmt;
-use crescendo_plugin::{Area, Cell, Column, Request, Texts, ABI_VERSION};
+use crescendo_plugin::{Area, Cell, Column, OptionDecl, Request, Texts, ABI_VERSION};
 use crescendo_plugin_host::{Plugin, NOT_LOADED};
 
 use crate::anchors::FrameAnchors;
 use crate::context::{Ctx, Outcome};
 use crate::labels::display;
 use crate::model::*;
-use crate::plugins::Plugins;
 use crate::rows::{self, schema_of};
+use crate::scope::Scope;
 use crate::sequence::SeqState;
-use crate::tables::Tables;
 
 /// `draw NAME[.FORM] VIEW: ...`: the state of a new sequence.
-pub(crate) fn draw(
-    cx: &mut Ctx,
-    tables: &Tables,
-    plugins: &Plugins,
-    d: &DrawStmt,
-) -> Outcome<SeqState> {
+pub(crate) fn draw(cx: &mut Ctx, scope: &Scope, d: &DrawStmt) -> Outcome<SeqState> {
+    let (tables, plugins) = (&scope.tables, &scope.plugins);
     let Some(plugin) = plugins.get(&d.plugin.name) else {
+        if let Some(&reported) = scope.failed_plugins.get(&d.plugin.name) {
+            // its `use plugin` line failed and said why
+            return Err(reported);
+        }
         let mut diag = cx.at(
             "unknown-name",
             format!("no plugin named `{}`", d.plugin.name),
@@ -53,6 +52,9 @@ pub(crate) fn draw(
     let named = tables.named(cx, &d.view)?;
     let table = &named.table;
     let options = options(cx, table, d)?;
+    if let Some(declared) = plugin.info().options.get(&form) {
+        check_declared(cx, table, d, &form, declared)?;
+    }
     if table.columns.first().map_or(0, |c| c.values.len()) == 0 {
         return Err(cx.error(
             "empty-view",
@@ -178,6 +180,109 @@ fn options(cx: &mut Ctx, table: &Table, d: &DrawStmt) -> Outcome<BTreeMap<String
         }
     }
     Ok(options)
+}
+
+/// The statement's options against the ones the plugin's form declares:
+/// each known, each required one given, each naming a column of a kind it
+/// takes. All problems of the statement are reported at once.
+fn check_declared(
+    cx: &mut Ctx,
+    table: &Table,
+    d: &DrawStmt,
+    form: &str,
+    declared: &[OptionDecl],
+) -> Outcome<()> {
+    let cp = cx.checkpoint();
+    let names: Vec<&str> = declared.iter().map(|o| o.name.as_str()).collect();
+    let listing = declared
+        .iter()
+        .map(|o| {
+            let mut s = format!("`{}`", o.name);
+            if o.required {
+                s.push_str(" (required)");
+            }
+            if !o.about.is_empty() {
+                s.push_str(&format!(": {}", o.about));
+            }
+            s
+        })
+        .collect::<Vec<_>>()
+        .join("; ");
+    // a required option suggested for a misspelt one is not reported again
+    let mut suggested = Vec::new();
+    for (k, v) in &d.opts {
+        let Some(decl) = declared.iter().find(|o| o.name == k.name) else {
+            let mut diag = cx
+                .at(
+                    "chart-option",
+                    format!(
+                        "the `{form}` form of plugin `{}` takes no option `{}`",
+                        d.plugin.name, k.name
+                    ),
+                    k.span.clone(),
+                    "unknown option",
+                )
+                .note(format!("its options: {listing}"));
+            if let Some(s) = closest(&k.name, names.iter().copied()) {
+                diag = diag.help(format!("did you mean `{s}`?"));
+                suggested.push(s.to_string());
+            }
+            cx.report(diag);
+            continue;
+        };
+        let kind = table
+            .columns
+            .iter()
+            .find(|c| c.name == v.name)
+            .map(|c| c.ty.name());
+        if let Some(kind) =
+            kind.filter(|k| !decl.kinds.is_empty() && !decl.kinds.iter().any(|d| d == k))
+        {
+            let diag = cx
+                .at(
+                    "chart-option",
+                    format!(
+                        "option `{}` takes a {} column; `{}` is a {kind} column",
+                        k.name,
+                        decl.kinds.join(" or "),
+                        v.name
+                    ),
+                    v.span.clone(),
+                    format!("a {kind} column"),
+                )
+                .help(format!(
+                    "name a {} column of `{}`",
+                    decl.kinds.join(" or "),
+                    d.view.name
+                ));
+            cx.report(diag);
+        }
+    }
+    for o in declared
+        .iter()
+        .filter(|o| o.required && !suggested.contains(&o.name))
+    {
+        if !d.opts.iter().any(|(k, _)| k.name == o.name) {
+            let about = if o.about.is_empty() {
+                String::new()
+            } else {
+                format!(" ({})", o.about)
+            };
+            let diag = cx
+                .at(
+                    "chart-option",
+                    format!(
+                        "the `{form}` form of plugin `{}` needs the option `{}`{about}",
+                        d.plugin.name, o.name
+                    ),
+                    d.span.clone(),
+                    format!("no `{}` here", o.name),
+                )
+                .help(format!("add `{} COLUMN` after `{}:`", o.name, d.view.name));
+            cx.report(diag);
+        }
+    }
+    cx.errors_since(cp)
 }
 
 /// The view's columns as the plugin gets them.

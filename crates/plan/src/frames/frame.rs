@@ -133,7 +133,7 @@ fn statement(
                 );
                 return Err(broken(deck, r));
             }
-            let started = forms::draw(cx, &deck.scope.tables, &deck.scope.plugins, d);
+            let started = forms::draw(cx, deck.scope, d);
             open(deck, started)
         }
         FrameStmt::Figure {
