@@ -169,6 +169,12 @@ impl FrameCache {
             self.record(c);
             c.put("report", "last", report);
             out.extend(views_line(report));
+            if !report.skipped_groups.is_empty() {
+                out.push(format!(
+                    "row groups skipped by their statistics: {}",
+                    report.skipped_groups.join(", ")
+                ));
+            }
         }
         out
     }

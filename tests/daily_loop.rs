@@ -294,6 +294,35 @@ fn new_makes_sense_of_real_data() {
     }
 }
 
+/// 540 days of 3 branches (1,620 rows): the starter story sums the days
+/// per month before drawing, so it builds clean (no `line-crowded`);
+/// 120 days: per week.
+#[test]
+fn new_on_daily_rows_proposes_months_or_weeks() {
+    let dir = scratch("new-daily");
+    for (name, days, step) in [
+        ("ledger.csv", 540, "month(day)"),
+        ("spring.csv", 150, "week_start(day)"),
+    ] {
+        let mut csv = String::from("day,branch,takings\n");
+        for i in 0..days {
+            let d = crescendo_data::time::date_iso(
+                crescendo_data::time::days_from_civil(2023, 1, 1) + i,
+            );
+            for (j, b) in ["North", "Harbour", "Old Town"].iter().enumerate() {
+                csv.push_str(&format!(
+                    "{d},{b},{}\n",
+                    100 + (i as usize * 37 + j * 53) % 90 + j * 20
+                ));
+            }
+        }
+        fs::write(dir.join(name), csv).expect("write");
+        let (story, _) = new_story_builds_clean(&dir, name);
+        assert!(story.contains(step), "{name}: {story}");
+    }
+    let _ = fs::remove_dir_all(&dir);
+}
+
 #[test]
 fn new_snapshots_one_story_and_one_profile() {
     let dir = scratch("new-snapshot");

@@ -513,6 +513,200 @@ fn equivalence(cluster: &Cluster) {
     );
     aggregates(cluster, &mut client, &work);
     pipelines(cluster, &mut client, &work);
+    buckets(cluster, &mut client, &work);
+    formats(cluster, &mut client, &work);
+}
+
+/// The ledger of `tests/formats.rs` (CSV, workbooks, Parquet) in
+/// PostgreSQL builds the same deck, byte for byte, as its CSV file.
+fn formats(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
+    use crescendo_data::ColType;
+    let dir = work.join("formats");
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let csv = dir.join("ledger.csv");
+    std::fs::copy(root().join("tests/formats/ledger.csv"), &csv).expect("copy");
+    load_csv(
+        client,
+        "formats_ledger",
+        &csv,
+        &[
+            ("day".into(), ColType::Date),
+            ("branch".into(), ColType::Text),
+            ("amount".into(), ColType::Number),
+        ],
+    );
+    let story = "story \"Takings at three branches\"\n\
+         source \"Invented ledger of three branches\"\n\
+         data ledger from SOURCE { day: date, branch: text, amount: number }\n\
+         view monthly = ledger\n\
+         \x20 | add month = month(day)\n\
+         \x20 | by month, branch: amount = sum(amount), days = count(amount)\n\
+         view weekly = ledger\n\
+         \x20 | add week = week_start(day)\n\
+         \x20 | by week: amount = sum(amount)\n\
+         frame \"Takings by month\" {\n  line monthly: x month, y amount, series branch\n  y title \"Takings per month\"\n}\n\
+         frame \"Takings by week\" {\n  bars weekly: category week, value amount\n  y title \"Takings per week\"\n}\n";
+    std::fs::write(
+        dir.join("csv.cresc"),
+        story.replace("SOURCE", "\"ledger.csv\""),
+    )
+    .expect("write");
+    std::fs::write(
+        dir.join("db.cresc"),
+        story.replace(
+            "SOURCE",
+            "table \"formats_ledger\" via CRESCENDO_TEST_DB in order of line",
+        ),
+    )
+    .expect("write");
+    let conn = cluster.conn();
+    let env = [("CRESCENDO_TEST_DB", conn.as_str())];
+    for deck in ["csv", "db"] {
+        let o = run(
+            &dir,
+            &[
+                "build",
+                &format!("{deck}.cresc"),
+                "--no-cache",
+                "--out",
+                &format!("deck-{deck}"),
+            ],
+            &env,
+        );
+        assert!(o.status.success(), "{}", text(&o));
+    }
+    let (fa, fb) = (
+        read_dir_files(&dir.join("deck-csv")),
+        read_dir_files(&dir.join("deck-db")),
+    );
+    assert!(fa.len() > 2);
+    assert_eq!(fa.len(), fb.len());
+    for ((n, x), (m, y)) in fa.iter().zip(&fb) {
+        assert_eq!(n, m);
+        assert!(
+            x == y,
+            "`{n}` differs between the CSV and the PostgreSQL deck"
+        );
+    }
+    // both views ran in the database, buckets included
+    let e = run(&dir, &["check", "--explain-sql", "db.cresc"], &env);
+    assert!(e.status.success(), "{}", text(&e));
+    let t = String::from_utf8_lossy(&e.stdout).to_string();
+    assert_eq!(t.matches("-- view ").count(), 2, "{t}");
+    assert!(t.contains("substr(") && t.contains("isodow"), "{t}");
+}
+
+/// Time buckets computed in the database and locally give the same plan:
+/// a daily ledger across year ends (2020-W53, 2025-W01), a leap day and a
+/// missing day, grouped by month, quarter, fiscal year and quarter, ISO
+/// week, week start and weekday, and filtered by year.
+fn buckets(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
+    use crescendo_data::ColType;
+    let dir = work.join("buckets");
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let mut csv = String::from("day,branch,amount\n");
+    let days = [
+        "2020-06-30",
+        "2020-07-01",
+        "2020-12-31",
+        "2021-01-03",
+        "2021-01-04",
+        "2024-02-29",
+        "2024-03-31",
+        "2024-04-01",
+        "2024-06-30",
+        "2024-12-29",
+        "2024-12-30",
+        "2025-01-05",
+    ];
+    for (i, d) in days.iter().enumerate() {
+        csv.push_str(&format!("{d},North,{}\n", i * 3 + 1));
+        csv.push_str(&format!("{d},South,{}.5\n", i));
+    }
+    csv.push_str(",North,7\n");
+    std::fs::write(dir.join("ledger.csv"), &csv).expect("write");
+    load_csv(
+        client,
+        "ledger",
+        &dir.join("ledger.csv"),
+        &[
+            ("day".into(), ColType::Date),
+            ("branch".into(), ColType::Text),
+            ("amount".into(), ColType::Number),
+        ],
+    );
+    let story = "story \"Buckets\"\n\
+         fiscal year starts July\n\
+         data d from SOURCE { day: date, branch: text, amount: number }\n\
+         view periods = d\n\
+         \x20 | add m = month(day)\n\
+         \x20 | add q = quarter(day)\n\
+         \x20 | add fy = fiscal_year(day)\n\
+         \x20 | add fq = fiscal_quarter(day)\n\
+         \x20 | add w = week(day)\n\
+         \x20 | add ws = week_start(day)\n\
+         \x20 | add wd = weekday(day)\n\
+         \x20 | add y = year(day)\n\
+         \x20 | add qm = quarter(m)\n\
+         \x20 | add ym = year(m)\n\
+         \x20 | keep year(day) >= 2021 or month(day) = \"2020-07\"\n\
+         view by_fq = d\n\
+         \x20 | add fq = fiscal_quarter(day)\n\
+         \x20 | by fq: total = sum(amount), n = count()\n\
+         view by_week = d\n\
+         \x20 | add ws = week_start(day)\n\
+         \x20 | by ws, branch: total = sum(amount)\n\
+         view by_month = d\n\
+         \x20 | keep year(day) = 2024\n\
+         \x20 | add m = month(day)\n\
+         \x20 | by m: total = sum(amount)\n\
+         frame \"Periods\" {\n  table periods\n}\n\
+         frame \"Fiscal quarters\" {\n  bars by_fq: category fq, value total\n}\n\
+         frame \"Weeks\" {\n  table by_week\n}\n\
+         frame \"Months\" {\n  line by_month: x m, y total\n}\n";
+    std::fs::write(
+        dir.join("csv.cresc"),
+        story.replace("SOURCE", "\"ledger.csv\""),
+    )
+    .expect("write");
+    std::fs::write(
+        dir.join("db.cresc"),
+        story.replace(
+            "SOURCE",
+            "table \"ledger\" via CRESCENDO_TEST_DB in order of line",
+        ),
+    )
+    .expect("write");
+    let conn = cluster.conn();
+    let env = [("CRESCENDO_TEST_DB", conn.as_str())];
+    let a = run(&dir, &["plan", "csv.cresc"], &env);
+    assert!(a.status.success(), "{}", text(&a));
+    let b = run(&dir, &["plan", "db.cresc"], &env);
+    assert!(b.status.success(), "{}", text(&b));
+    let (pa, pb) = (
+        String::from_utf8_lossy(&a.stdout),
+        String::from_utf8_lossy(&b.stdout),
+    );
+    for (la, lb) in pa.lines().zip(pb.lines()) {
+        assert_eq!(la, lb, "the plans differ");
+    }
+    assert_eq!(pa, pb);
+    // ISO 8601 weeks at year ends, fiscal years named by their last year
+    for want in [
+        "2020-W53",
+        "2025-W01",
+        "FY2021 Q1",
+        "FY2025 Q2",
+        "2024 Q1",
+        "Sun",
+    ] {
+        assert!(pa.contains(want), "`{want}` in {pa}");
+    }
+    let e = run(&dir, &["check", "--explain-sql", "db.cresc"], &env);
+    assert!(e.status.success(), "{}", text(&e));
+    let t = String::from_utf8_lossy(&e.stdout).to_string();
+    assert_eq!(t.matches("-- view ").count(), 4, "{t}");
+    assert!(t.contains("'IYYY-\"W\"IW'") && t.contains("isodow"), "{t}");
 }
 
 /// Every aggregate, filters with arithmetic and missing cells, pushed down

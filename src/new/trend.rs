@@ -5,7 +5,7 @@
 
 use std::fmt::Write as _;
 
-use crescendo_data::Table;
+use crescendo_data::{ColType, Table, Value};
 
 use super::story::{
     aggregates, capital, compare_focus, conclusion_frame, escape, fact, frame, largest, literal,
@@ -13,6 +13,7 @@ use super::story::{
 };
 
 /// What a trend starter draws.
+#[derive(Clone, Copy)]
 pub(super) struct Trend<'a> {
     pub time: &'a str,
     pub measure: &'a str,
@@ -73,7 +74,70 @@ fn comment(t: &Trend) -> String {
     c
 }
 
+/// A time bucket for a daily column with more days than a line can show
+/// apart: `(function, new column)`, weeks for up to half a year of days,
+/// months beyond.
+fn daily_bucket(table: &Table, time: &str) -> Option<(&'static str, &'static str)> {
+    let col = table.columns.iter().find(|c| c.name == time)?;
+    if col.ty != ColType::Date || table.columns.iter().any(|c| c.name == "month" || c.name == "week") {
+        return None;
+    }
+    let days: std::collections::BTreeSet<i32> = col
+        .values
+        .iter()
+        .filter_map(|v| match v {
+            Value::Date(d) => Some(d),
+            _ => None,
+        })
+        .collect();
+    let (first, last) = (*days.first()?, *days.last()?);
+    match (days.len(), last - first) {
+        (..=120, _) => None,
+        (_, ..=183) => Some(("week_start", "week")),
+        _ => Some(("month", "month")),
+    }
+}
+
+/// `table` with its daily column `day` replaced by the bucket column the
+/// story's `| add NAME = FUNC(day)` computes, so the figures the starter
+/// states (and protects with claims) are the view's.
+fn bucketed(table: &Table, day: &str, (func, name): (&str, &str)) -> Table {
+    let mut out = table.clone();
+    for c in &mut out.columns {
+        if c.name != day {
+            continue;
+        }
+        let month = func == "month";
+        c.values = c
+            .values
+            .iter()
+            .map(|v| match v {
+                // the Monday of its ISO week (1970-01-01 was a Thursday)
+                Value::Date(d) if !month => Value::Date(d - (d + 3).rem_euclid(7)),
+                Value::Date(d) => Value::Month(crescendo_data::time::month_of_day(d)),
+                other => other,
+            })
+            .collect();
+        c.ty = if month { ColType::Month } else { ColType::Date };
+        c.name = name.to_string();
+    }
+    out
+}
+
 pub(super) fn trend(s: &mut String, table: &Table, t: &Trend) {
+    // daily rows: summed (or averaged) per week or month first; a line of
+    // hundreds of days is noise (the lint rule `line-crowded`)
+    if let Some(b) = daily_bucket(table, t.time) {
+        let day = t.time;
+        let table = bucketed(table, day, b);
+        let t = Trend { time: b.1, ..*t };
+        return trend_of(s, &table, &t, Some((b.0, day)));
+    }
+    trend_of(s, table, t, None)
+}
+
+/// `bucket`: the function and daily column the time was made from.
+fn trend_of(s: &mut String, table: &Table, t: &Trend, bucket: Option<(&str, &str)>) {
     let Trend {
         time,
         measure,
@@ -91,9 +155,17 @@ pub(super) fn trend(s: &mut String, table: &Table, t: &Trend) {
     if let Some((col, v)) = t.only {
         steps.push(format!("| keep {col} = {}", quote(v)));
     }
+    let mut why = comment(t);
+    if let Some((func, day)) = bucket {
+        steps.push(format!("| add {time} = {func}({day})"));
+        let _ = write!(
+            why,
+            "\n# `{day}` holds many days: taken together per {time}, as a daily line would be noise."
+        );
+    }
     steps.push(format!("| by {keys}: {aggs}"));
     steps.push(format!("| sort {time}"));
-    view(s, &comment(t), "over_time", &steps);
+    view(s, &why, "over_time", &steps);
     value_and_claim(s, "over_time", measure);
     // The focus series: the one that reaches the highest value, so that
     // its spotlight's claim holds.

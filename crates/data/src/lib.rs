@@ -1,6 +1,7 @@
 //! Data for crescendo: CSV loading into typed columns, the view engine that
 //! runs resolved view steps, and number/date formatting.
 
+pub mod bucket;
 pub mod column;
 pub mod files;
 pub mod format;
@@ -9,13 +10,16 @@ pub mod load;
 mod loader;
 pub mod locale;
 pub mod model;
+pub mod parquet;
 pub mod progress;
 mod record;
 pub mod stats;
 pub mod store;
 pub mod stream;
 pub mod time;
+pub mod typed;
 pub mod view;
+pub mod workbook;
 
 pub use load::{load_csv, load_csv_columns, probe, Columns, CsvSpec, LoadError, Probe};
 pub use model::*;

@@ -52,7 +52,7 @@ use crate::files::ReadAt;
 use crate::loader::Loader;
 use crate::model::{ColType, Table, Value};
 use crate::record::{reader_builder, skip_bom, RawRecord, Tee};
-use crate::time::{parse_date, parse_month, parse_year};
+use crate::time::{parse_date, parse_month_or_date, parse_year};
 
 /// What to load and how to read it.
 #[derive(Clone, Debug, PartialEq)]
@@ -356,7 +356,7 @@ pub(crate) fn parse_as(ty: ColType, s: &str) -> Option<Value> {
         ColType::Text => Some(Value::Text(s.to_owned())),
         ColType::Number => parse_number(s).map(Value::Number),
         ColType::Date => parse_date(s).map(Value::Date),
-        ColType::Month => parse_month(s).map(Value::Month),
+        ColType::Month => parse_month_or_date(s).map(Value::Month),
         ColType::Year => parse_year(s).map(Value::Year),
     }
 }

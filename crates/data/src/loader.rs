@@ -58,7 +58,7 @@ fn expected(ty: ColType) -> &'static str {
         ColType::Text => "text",
         ColType::Number => "not a number",
         ColType::Date => "not a date (YYYY-MM-DD)",
-        ColType::Month => "not a month (YYYY-MM)",
+        ColType::Month => "not a month (YYYY-MM, or a date YYYY-MM-DD)",
         ColType::Year => "not a year (YYYY)",
     }
 }

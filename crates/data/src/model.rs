@@ -143,9 +143,24 @@ pub enum Expr {
     Not(Box<Expr>),
     /// `expr in (v1, v2, ...)`.
     In(Box<Expr>, Vec<Value>),
+    /// The time bucket of a date or month (`crate::bucket`); `ty` is the
+    /// type it gives.
+    Bucket {
+        bucket: crate::bucket::Bucket,
+        of: Box<Expr>,
+        ty: ColType,
+    },
 }
 
 impl Expr {
+    /// The type of a value expression: a bucket's, else a number.
+    pub fn value_type(&self) -> ColType {
+        match self {
+            Expr::Bucket { ty, .. } => *ty,
+            _ => ColType::Number,
+        }
+    }
+
     /// `a op b`.
     pub fn arith(op: ArithOp, a: Expr, b: Expr) -> Expr {
         Expr::Arith(Box::new(a), vec![(op, b)])

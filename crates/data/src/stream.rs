@@ -57,7 +57,7 @@ use crate::files::ReadAt;
 use crate::load::{parse_number, CsvSpec, LoadError, ReadLimits};
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Value, Values};
 use crate::record::{forbidden_char, reader_builder, scan_fields, too_long, RawRecord, Tee};
-use crate::time::{parse_date, parse_month, parse_year};
+use crate::time::{parse_date, parse_month_or_date, parse_year};
 use crate::view::{compare_cells, encode_key, sum_value, truth, FxMap, Sum};
 
 /// The streamable prefix of one view.
@@ -605,7 +605,7 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
                 ColType::Text => Some(Cell::Text(text)),
                 ColType::Number => parse_number(text).map(Cell::Number),
                 ColType::Date => parse_date(text).map(Cell::Date),
-                ColType::Month => parse_month(text).map(Cell::Month),
+                ColType::Month => parse_month_or_date(text).map(Cell::Month),
                 ColType::Year => parse_year(text).map(Cell::Year),
             };
             let Some(c) = c else {

@@ -64,6 +64,18 @@ pub fn parse_month(s: &str) -> Option<i32> {
     (1..=12).contains(&m).then_some(y * 12 + (m - 1))
 }
 
+/// Parse a month cell: `YYYY-MM`, or a date `YYYY-MM-DD` read as its month
+/// (a `month` column of a daily file).
+pub fn parse_month_or_date(s: &str) -> Option<i32> {
+    parse_month(s).or_else(|| parse_date(s).map(month_of_day))
+}
+
+/// The month index of a day count.
+pub fn month_of_day(d: i32) -> i32 {
+    let (y, m, _) = civil_from_days(d);
+    y * 12 + (m as i32 - 1)
+}
+
 /// Parse `YYYY-MM-DD` into days since 1970-01-01, rejecting impossible dates.
 pub fn parse_date(s: &str) -> Option<i32> {
     if s.len() != 10 || s.as_bytes()[7] != b'-' {
@@ -187,5 +199,9 @@ mod tests {
         assert_eq!(parse_year("19"), None);
         assert_eq!(month_iso(2024 * 12 + 6), "2024-07");
         assert_eq!(date_iso(days_from_civil(2024, 2, 29)), "2024-02-29");
+        // a month column of a daily file reads each date as its month
+        assert_eq!(parse_month_or_date("2024-02-29"), Some(2024 * 12 + 1));
+        assert_eq!(parse_month_or_date("2024-02"), Some(2024 * 12 + 1));
+        assert_eq!(parse_month_or_date("2023-02-29"), None);
     }
 }

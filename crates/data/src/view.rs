@@ -186,6 +186,14 @@ pub(crate) fn eval<'a, R: Fn(usize) -> Cell<'a>>(row: &R, e: &'a Expr) -> Cell<'
             }
             Cell::Number(x)
         }
+        // a bucket that gives text is only ever a whole `add` (see
+        // `derive`); the others are cells again
+        Expr::Bucket { bucket, of, .. } => match bucket.apply(eval(row, of)) {
+            Value::Date(d) => Cell::Date(d),
+            Value::Month(m) => Cell::Month(m),
+            Value::Year(y) => Cell::Year(y),
+            _ => Cell::Missing,
+        },
         Expr::Cmp(..) | Expr::And(..) | Expr::Or(..) | Expr::Not(..) | Expr::In(..) => {
             Cell::Missing
         }
@@ -237,7 +245,7 @@ pub(crate) fn truth<'a, R: Fn(usize) -> Cell<'a>>(row: &R, e: &'a Expr) -> bool 
             list.iter()
                 .any(|item| compare_op(CmpOp::Eq, v, item.cell()))
         }
-        Expr::Col(_) | Expr::Lit(_) | Expr::Neg(_) | Expr::Arith(..) => false,
+        Expr::Col(_) | Expr::Lit(_) | Expr::Neg(_) | Expr::Arith(..) | Expr::Bucket { .. } => false,
     }
 }
 
@@ -256,17 +264,24 @@ fn keep(t: &Table, pred: &Expr) -> Table {
     take_rows(t, &rows)
 }
 
-/// Append a number column holding `expr` for each row.
+/// Append a column holding `expr` for each row: a number column, or the
+/// type of a time bucket ([`Expr::value_type`]).
 fn derive(mut t: Table, name: &str, expr: &Expr) -> Table {
-    let values = (0..row_count(&t))
-        .map(|r| match num_of(eval(&row_of(&t, r), expr)) {
-            Some(x) => Cell::Number(x),
-            None => Cell::Missing,
-        })
-        .collect();
+    let ty = expr.value_type();
+    let values = match expr {
+        Expr::Bucket { bucket, of, .. } => (0..row_count(&t))
+            .map(|r| bucket.apply(eval(&row_of(&t, r), of)))
+            .collect(),
+        _ => (0..row_count(&t))
+            .map(|r| match num_of(eval(&row_of(&t, r), expr)) {
+                Some(x) => Cell::Number(x),
+                None => Cell::Missing,
+            })
+            .collect(),
+    };
     t.columns.push(Column {
         name: name.to_owned(),
-        ty: ColType::Number,
+        ty,
         values,
     });
     t

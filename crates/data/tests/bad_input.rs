@@ -133,7 +133,11 @@ fn declared_number_holding_text_names_the_first_offending_row() {
 fn declared_time_and_year_columns_reject_bad_cells() {
     for (ty, cell, label) in [
         (ColType::Date, "2024-02-30", "not a date (YYYY-MM-DD)"),
-        (ColType::Month, "2024-7", "not a month (YYYY-MM)"),
+        (
+            ColType::Month,
+            "2024-7",
+            "not a month (YYYY-MM, or a date YYYY-MM-DD)",
+        ),
         (ColType::Year, "24", "not a year (YYYY)"),
         (ColType::Number, "1,5", "not a number"),
     ] {

@@ -145,6 +145,10 @@ pub struct DataDecl {
     pub missing: Option<Vec<Str>>,
     pub columns: Vec<ColumnDecl>,
     pub span: Span,
+    /// `sheet "NAME"`: the sheet of a workbook.
+    pub sheet: Option<Box<Str>>,
+    /// `cells "A1:D20"`: the block of a workbook sheet.
+    pub cells: Option<Box<Str>>,
     /// `from table "t" via ENVVAR` / `from query "..." via ENVVAR`: the rows
     /// come from a PostgreSQL database instead of a file.
     pub database: Option<DatabaseSource>,

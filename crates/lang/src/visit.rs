@@ -112,6 +112,9 @@ pub fn walk_data<'a, V: Visit<'a> + ?Sized>(v: &mut V, d: &'a DataDecl) {
         Some(db) => v.visit_database(db),
         None => v.visit_str(&d.file),
     }
+    for s in d.sheet.iter().chain(&d.cells).map(|s| &**s) {
+        v.visit_str(s);
+    }
     for m in d.missing.iter().flatten() {
         v.visit_str(m);
     }

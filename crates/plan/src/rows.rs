@@ -5,6 +5,7 @@
 
 use std::sync::Arc;
 
+use crescendo_data::bucket::Bucket;
 use crescendo_data::{self as data, ArithOp, CmpOp, ColType, Table, Value};
 use crescendo_diag::{closest, Diagnostic, Source};
 use crescendo_lang::ast::{self, BinOp, Expr, Ident, Link};
@@ -191,6 +192,9 @@ impl Checker<'_> {
                 right,
                 span,
             } => self.compare(*op, left, right, span),
+            Expr::Call { func, args, span } if bucket_named(&func.name).is_some() => {
+                self.bucket(func, args, span, false)
+            }
             Expr::Call { func, span, .. } => {
                 self.not_in_a_row(
                     span.clone(),
@@ -210,6 +214,85 @@ impl Checker<'_> {
                 None
             }
         }
+    }
+
+    /// The value of an `add` step: any row expression, and a time bucket
+    /// that gives text (which only a whole `add` may compute).
+    pub(crate) fn check_added(&mut self, e: &Expr) -> Option<(data::Expr, Ty)> {
+        match e {
+            Expr::Call { func, args, span } if bucket_named(&func.name).is_some() => {
+                self.bucket(func, args, span, true)
+            }
+            _ => self.check(e),
+        }
+    }
+
+    /// `month(day)`, `quarter(day)`, … (see [`BUCKETS`]): one date or month.
+    fn bucket(
+        &mut self,
+        func: &Ident,
+        args: &[ast::CallArg],
+        span: &ast::Span,
+        whole_add: bool,
+    ) -> Option<(data::Expr, Ty)> {
+        let (kind, takes) = bucket_named(&func.name)?;
+        let [ast::CallArg::Value(arg)] = args else {
+            self.err(
+                span.clone(),
+                format!("`{}(...)` takes one {takes} column", func.name),
+                "one argument",
+            );
+            return None;
+        };
+        let fiscal = crescendo_data::locale::current().fiscal;
+        let bucket = match kind {
+            Kind::FiscalYear | Kind::FiscalQuarter if !fiscal.is_fiscal() => {
+                self.diags.push(
+                    Diagnostic::error(
+                        "type",
+                        format!("`{}(...)` needs the story's fiscal year", func.name),
+                    )
+                    .at(self.src, func.span.clone(), "no fiscal year")
+                    .help("say when it starts at the top of the story, e.g. `fiscal year starts July`; for calendar periods use `year(...)` or `quarter(...)`"),
+                );
+                return None;
+            }
+            Kind::FiscalYear => Bucket::FiscalYear(fiscal.start_month),
+            Kind::FiscalQuarter => Bucket::FiscalQuarter(fiscal.start_month),
+            Kind::Plain(b) => b,
+        };
+        let (of, t) = self.check(arg)?;
+        let result = match &t {
+            Ty::Col(c) => bucket.result(*c),
+            _ => None,
+        };
+        let Some(ty) = result else {
+            self.err(
+                arg.span(),
+                format!(
+                    "`{}(...)` takes a {takes}, but this is {}",
+                    func.name,
+                    t.describe()
+                ),
+                &format!("not a {takes}"),
+            );
+            return None;
+        };
+        if ty == ColType::Text && !whole_add {
+            self.not_in_a_row(
+                span.clone(),
+                format!("`{}(...)` gives a text label, which only an `add` step can compute", func.name),
+                "only in `add`",
+                &format!("add it as a column first, e.g. `| add period = {}(...)`, then compare or group by `period`", func.name),
+            );
+            return None;
+        }
+        let e = data::Expr::Bucket {
+            bucket,
+            of: Box::new(of),
+            ty,
+        };
+        Some((e, Ty::Col(ty)))
     }
 
     fn not_in_a_row(&mut self, span: ast::Span, message: String, label: &str, help: &str) {
@@ -345,6 +428,35 @@ impl Checker<'_> {
         };
         Some((data::Expr::Cmp(cop, Box::new(l), Box::new(r)), Ty::Bool))
     }
+}
+
+/// What a time-bucket function computes.
+#[derive(Clone, Copy)]
+enum Kind {
+    Plain(Bucket),
+    /// Fiscal buckets take the story's `fiscal year starts` month.
+    FiscalYear,
+    FiscalQuarter,
+}
+
+/// The time-bucket functions of row expressions: name, bucket, what they
+/// take (for messages).
+const BUCKETS: &[(&str, Kind, &str)] = &[
+    ("month", Kind::Plain(Bucket::Month), "date"),
+    ("quarter", Kind::Plain(Bucket::Quarter), "date or month"),
+    ("year", Kind::Plain(Bucket::Year), "date or month"),
+    ("fiscal_quarter", Kind::FiscalQuarter, "date or month"),
+    ("fiscal_year", Kind::FiscalYear, "date or month"),
+    ("week", Kind::Plain(Bucket::Week), "date"),
+    ("week_start", Kind::Plain(Bucket::WeekStart), "date"),
+    ("weekday", Kind::Plain(Bucket::Weekday), "date"),
+];
+
+fn bucket_named(name: &str) -> Option<(Kind, &'static str)> {
+    BUCKETS
+        .iter()
+        .find(|(n, _, _)| *n == name)
+        .map(|(_, k, t)| (*k, *t))
 }
 
 /// The first expression and the operands after it, in order.

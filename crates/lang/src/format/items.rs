@@ -112,6 +112,8 @@ impl Printer<'_> {
             missing,
             columns,
             database,
+            sheet,
+            cells,
             span: _,
         } = d;
         self.s("data ");
@@ -146,6 +148,14 @@ impl Printer<'_> {
                     self.idents(order);
                 }
             }
+        }
+        if let Some(sheet) = sheet {
+            self.s(" sheet ");
+            self.raw(&sheet.span);
+        }
+        if let Some(cells) = cells {
+            self.s(" cells ");
+            self.raw(&cells.span);
         }
         if let Some(missing) = missing {
             self.s(" missing ");

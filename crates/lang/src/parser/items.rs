@@ -136,8 +136,20 @@ impl Conv<'_> {
         };
         let mut missing = None;
         let mut columns = Vec::new();
+        let (mut sheet, mut cells) = (None, None);
         for p in it {
             match p.as_rule() {
+                Rule::sheet_clause | Rule::cells_clause => {
+                    let rule = p.as_rule();
+                    let s = children(p)
+                        .find(|q| q.as_rule() == Rule::string)
+                        .map(|q| Box::new(self.string(q)));
+                    if rule == Rule::sheet_clause {
+                        sheet = s;
+                    } else {
+                        cells = s;
+                    }
+                }
                 Rule::missing_clause => {
                     missing = Some(
                         children(p)
@@ -169,6 +181,8 @@ impl Conv<'_> {
             missing,
             columns,
             span,
+            sheet,
+            cells,
             database,
         })
     }

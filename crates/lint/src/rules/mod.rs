@@ -12,6 +12,7 @@ mod focus_confusable;
 mod frame_empty;
 mod grid_heavy;
 mod headline_cut;
+mod line_crowded;
 mod line_over_categories;
 mod line_too_short;
 mod lines_tangle;
@@ -45,6 +46,7 @@ pub static RULES: &[&Rule] = &[
     &bars_crowded::RULE,
     &lines_tangle::RULE,
     &line_too_short::RULE,
+    &line_crowded::RULE,
     &axis_untitled::RULE,
     &measure_unnamed::RULE,
     &ticks_crowded::RULE,

@@ -94,12 +94,18 @@ pub(crate) fn reported<T>(
             help,
             declared,
         }) => {
-            let span = match declared {
-                Some(i) => decl
+            let clause = match code {
+                "unknown-sheet" => decl.sheet.as_ref(),
+                "bad-cells" => decl.cells.as_ref(),
+                _ => None,
+            };
+            let span = match (declared, clause) {
+                (Some(i), _) => decl
                     .columns
                     .get(i)
                     .map_or(decl.file.span.clone(), |c| c.name.span.clone()),
-                None => decl.file.span.clone(),
+                (None, Some(s)) => s.span.clone(),
+                (None, None) => decl.file.span.clone(),
             };
             let mut d = Diagnostic::error(code, message).at(cx.src, span, "");
             d.help = help;

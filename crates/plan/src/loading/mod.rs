@@ -53,6 +53,7 @@
 mod database;
 mod facts;
 mod files;
+mod skip;
 mod state;
 mod stream;
 
@@ -94,6 +95,27 @@ impl Loader {
             Columns::Only(self.facts.idents.clone())
         };
         let name = decl.name.name.clone();
+        let clause = decl.sheet.is_some() || decl.cells.is_some();
+        if crescendo_data::parquet::is_parquet(&spec.path) && !clause {
+            let views = self.facts.streamable.get(&name);
+            let keeps = skip::first_keeps(cx.src, &spec, &file, &keep, views);
+            let read = crescendo_data::parquet::load_parquet_skipping(
+                &spec,
+                &file,
+                &keep,
+                &self.limits,
+                &keeps,
+            );
+            if let Ok((_, n @ 1..)) = &read {
+                self.report.skipped_groups.push(format!("{name}: {n}"));
+            }
+            self.report.loaded.push(name);
+            return files::reported(cx, decl, read.map(|(t, _)| t));
+        }
+        if let Some(read) = other_format(decl, &spec, &file, &keep, &self.limits) {
+            self.report.loaded.push(name);
+            return files::reported(cx, decl, read);
+        }
         if let Some(views) = self.facts.streamable.get(&name).cloned() {
             let read = (decl, &spec, &file);
             let streamed = stream::stream(cx, self, tables, read, &views, &keep);
@@ -106,6 +128,46 @@ impl Loader {
         let read = cx.io.load_csv(&spec, &file, &keep, &self.limits);
         files::reported(cx, decl, read)
     }
+}
+
+/// A workbook (see `crescendo_data::workbook`) or a Parquet file
+/// (`crescendo_data::parquet`) read whole: `None` for a CSV file. A `sheet` or `cells` clause on a story's CSV file is an error.
+fn other_format(
+    decl: &ast::DataDecl,
+    spec: &CsvSpec,
+    file: &File,
+    keep: &Columns,
+    limits: &crescendo_data::load::ReadLimits,
+) -> Option<Result<Table, crescendo_data::LoadError>> {
+    use crescendo_data::workbook::{is_workbook, load_workbook, SheetSpec};
+    if is_workbook(&spec.path) {
+        let sheet = SheetSpec {
+            sheet: decl.sheet.as_ref().map(|s| s.value.clone()),
+            cells: decl.cells.as_ref().map(|s| s.value.clone()),
+        };
+        return Some(load_workbook(spec, file, &sheet, keep, limits));
+    }
+    let clause = decl.sheet.is_some() || decl.cells.is_some();
+    if clause && spec.path.ends_with(&decl.file.value) {
+        return Some(Err(crescendo_data::LoadError::Story {
+            code: "data-file",
+            message: format!(
+                "`{}` is not a workbook, so it has no sheets or cells to choose",
+                decl.file.value
+            ),
+            help: Some(
+                "`sheet` and `cells` go with a `.xlsx` or `.ods` file; remove them for a CSV or Parquet file"
+                    .into(),
+            ),
+            declared: None,
+        }));
+    }
+    if crescendo_data::parquet::is_parquet(&spec.path) {
+        return Some(crescendo_data::parquet::load_parquet(
+            spec, file, keep, limits,
+        ));
+    }
+    None
 }
 
 /// The data file of `decl`, opened once and checked where it really is

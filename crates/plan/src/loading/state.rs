@@ -22,6 +22,10 @@ pub struct LoadReport {
     /// the cache does not grow with every data refresh.
     #[serde(default)]
     pub cache_keys: Vec<String>,
+    /// Parquet data items whose row groups were skipped by their
+    /// statistics: `NAME: COUNT`.
+    #[serde(default)]
+    pub skipped_groups: Vec<String>,
 }
 
 /// Reads a story's data items: what the whole story says about them, and

@@ -4,7 +4,7 @@
 
 use std::sync::Arc;
 
-use crescendo_data::{AggFn, Aggregate, ColType, Step};
+use crescendo_data::{self as data, AggFn, Aggregate, ColType, Step};
 use crescendo_diag::{closest, Diagnostic, Source};
 use crescendo_lang::ast::{self, Expr, Ident, StepAst};
 
@@ -110,11 +110,13 @@ fn add(at: &At, new: &Ident, expr: &Expr, diags: &mut Vec<Diagnostic>) -> Option
         return None;
     }
     let mut ck = at.checker(diags);
-    match ck.check(expr) {
-        Some((e, Ty::Col(ColType::Number))) => Some(Step::Derive {
-            name: new.name.clone(),
-            expr: e,
-        }),
+    match ck.check_added(expr) {
+        Some((e @ data::Expr::Bucket { .. }, _)) | Some((e, Ty::Col(ColType::Number))) => {
+            Some(Step::Derive {
+                name: new.name.clone(),
+                expr: e,
+            })
+        }
         Some((_, t)) => {
             ck.err(
                 expr.span(),

@@ -2,6 +2,7 @@
 //! double precision, texts compared in the `C` collation, predicates never
 //! NULL (see the table in the module docs of `print`).
 
+use crescendo_data::bucket::Bucket;
 use crescendo_data::{ArithOp, CmpOp, ColType, Expr, Value};
 
 use super::Printer;
@@ -40,6 +41,7 @@ impl Printer {
                 Value::Month(_) => ColType::Month,
                 Value::Year(_) => ColType::Year,
             },
+            Expr::Bucket { ty, .. } => *ty,
             _ => ColType::Number,
         }
     }
@@ -74,6 +76,10 @@ impl Printer {
                     });
                 }
                 out
+            }
+            Expr::Bucket { bucket, of, .. } => {
+                let x = self.value(of);
+                bucket_sql(*bucket, &x)
             }
             // A predicate used as a value is missing (as in the engine).
             _ => "NULL".to_string(),
@@ -157,7 +163,61 @@ impl Printer {
     }
 }
 
+/// A time bucket of `x`, the ISO text of a date (`YYYY-MM-DD`) or a month
+/// (`YYYY-MM`), as `crescendo_data::bucket` computes it: dates and months
+/// as ISO text, years as integers, labels as text. `to_char`'s `Dy`, `IYYY`
+/// and `IW` are English weekday abbreviations and ISO 8601 week fields
+/// whatever the server's locale (without the `TM` prefix).
+pub(super) fn bucket_sql(bucket: Bucket, x: &str) -> String {
+    let year = format!("CAST(substr({x}, 1, 4) AS integer)");
+    let month = format!("CAST(substr({x}, 6, 2) AS integer)");
+    let day = format!("CAST({x} AS date)");
+    match bucket {
+        Bucket::Month => format!("substr({x}, 1, 7)"),
+        Bucket::Year => year,
+        Bucket::Quarter => {
+            format!("(CAST({year} AS text) || ' Q' || CAST(({month} + 2) / 3 AS text))")
+        }
+        Bucket::FiscalYear(s) => format!("('FY' || {})", fiscal_year(&year, &month, s)),
+        Bucket::FiscalQuarter(s) => format!(
+            "('FY' || {} || ' Q' || CAST(({month} + {}) % 12 / 3 + 1 AS text))",
+            fiscal_year(&year, &month, s),
+            12 - s.clamp(1, 12)
+        ),
+        Bucket::WeekStart => format!(
+            "to_char({day} - (CAST(extract(isodow FROM {day}) AS integer) - 1), 'YYYY-MM-DD')"
+        ),
+        Bucket::Week => format!("to_char({day}, 'IYYY-\"W\"IW')"),
+        Bucket::Weekday => format!("to_char({day}, 'Dy')"),
+    }
+}
+
+/// The fiscal year (named by the calendar year it ends in) as text.
+fn fiscal_year(year: &str, month: &str, start: u32) -> String {
+    if start.clamp(1, 12) == 1 {
+        format!("CAST({year} AS text)")
+    } else {
+        format!("CAST({year} + CASE WHEN {month} >= {start} THEN 1 ELSE 0 END AS text)")
+    }
+}
+
 impl Printer {
+    /// The column an `add` step appends: a number, or a time bucket.
+    pub(super) fn derived(&mut self, name: &str, expr: &Expr) {
+        let ty = expr.value_type();
+        let sql = if ty == ColType::Number {
+            self.number(expr)
+        } else {
+            self.value(expr)
+        };
+        self.cols.push(super::Col {
+            sql,
+            ty,
+            float: ty == ColType::Number,
+            name: name.to_owned(),
+        });
+    }
+
     pub(super) fn sql(&self, i: usize) -> String {
         self.cols
             .get(i)

@@ -236,13 +236,7 @@ pub fn pipeline(from: &From, order: &RowOrder, cols: &[SrcColumn], pieces: &[Pie
                 k += 1;
             }
             Piece::Step(Step::Derive { name, expr }) => {
-                let sql = p.number(expr);
-                p.cols.push(Col {
-                    sql,
-                    ty: ColType::Number,
-                    float: true,
-                    name: name.clone(),
-                });
+                p.derived(name, expr);
             }
             Piece::Columns(picked) => {
                 p.cols = picked

@@ -104,13 +104,7 @@ pub(super) fn start(order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Sta
             Step::Derive { name, expr } => {
                 // Arithmetic prints parenthesised; a column or a literal
                 // needs no parentheses.
-                let sql = p.number(expr);
-                p.cols.push(Col {
-                    sql,
-                    ty: ColType::Number,
-                    float: true,
-                    name: name.clone(),
-                });
+                p.derived(name, expr);
             }
             Step::Group { keys, aggregates } => {
                 group = Some((keys.clone(), aggregates.clone()));

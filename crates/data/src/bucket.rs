@@ -1,0 +1,200 @@
+//! Time buckets of row expressions: the month, quarter, year (calendar or
+//! fiscal), week and weekday a date (or a month) falls in.
+//!
+//! | bucket | of | gives |
+//! | --- | --- | --- |
+//! | `Month` | date | its month |
+//! | `Year` | date, month | its calendar year |
+//! | `Quarter` | date, month | text `2025 Q3` |
+//! | `FiscalYear(s)` | date, month | text `FY2025` (named by the calendar year it ends in) |
+//! | `FiscalQuarter(s)` | date, month | text `FY2025 Q1` |
+//! | `WeekStart` | date | the Monday that starts its ISO 8601 week (a date) |
+//! | `Week` | date | text `2025-W07`: its ISO 8601 week-numbering year and week |
+//! | `Weekday` | date | text `Mon` … `Sun` |
+//!
+//! The labels are the ones the axis ticks of quarters and fiscal years use
+//! (`crate::locale::Fiscal`). ISO 8601 weeks start on Monday; week 1 is the
+//! week holding the year's first Thursday (ISO 8601-1:2019, 5.2.4.2), so
+//! 2021-01-03 is in `2020-W53` and 2024-12-30 in `2025-W01`.
+
+use crate::locale::Fiscal;
+use crate::model::{Cell, ColType, Value};
+use crate::time::{civil_from_days, days_from_civil, month_of_year, month_year};
+
+/// A time bucket (see the module docs).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Bucket {
+    Month,
+    Year,
+    Quarter,
+    /// The fiscal year whose first month (1 to 12) is given.
+    FiscalYear(u32),
+    FiscalQuarter(u32),
+    WeekStart,
+    Week,
+    Weekday,
+}
+
+const WEEKDAYS: [&str; 7] = ["Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun"];
+
+impl Bucket {
+    /// The type of the bucket of a value of type `of`; `None` when it takes
+    /// no value of that type.
+    pub fn result(self, of: ColType) -> Option<ColType> {
+        let from_month = matches!(of, ColType::Date | ColType::Month);
+        match self {
+            Bucket::Month if of == ColType::Date => Some(ColType::Month),
+            Bucket::Year if from_month => Some(ColType::Year),
+            Bucket::Quarter | Bucket::FiscalYear(_) | Bucket::FiscalQuarter(_) if from_month => {
+                Some(ColType::Text)
+            }
+            Bucket::WeekStart if of == ColType::Date => Some(ColType::Date),
+            Bucket::Week | Bucket::Weekday if of == ColType::Date => Some(ColType::Text),
+            _ => None,
+        }
+    }
+
+    /// The bucket of a cell; missing for a missing cell or one of a type
+    /// the bucket does not take.
+    pub fn apply(self, c: Cell<'_>) -> Value {
+        let (y, m, day) = match c {
+            Cell::Date(d) => {
+                let (y, m, _) = civil_from_days(d);
+                (y, m, Some(d))
+            }
+            Cell::Month(i) => (month_year(i), month_of_year(i), None),
+            _ => return Value::Missing,
+        };
+        match (self, day) {
+            (Bucket::Month, Some(_)) => Value::Month(y * 12 + m as i32 - 1),
+            (Bucket::Year, _) => Value::Year(y),
+            (Bucket::Quarter, _) => Value::Text(Fiscal::default().quarter_label(y, m)),
+            (Bucket::FiscalYear(s), _) => Value::Text(format!("FY{}", fiscal(s).year_of(y, m))),
+            (Bucket::FiscalQuarter(s), _) => {
+                let f = fiscal(s);
+                Value::Text(format!("FY{} Q{}", f.year_of(y, m), f.quarter_of(m)))
+            }
+            (Bucket::WeekStart, Some(d)) => Value::Date(d - weekday(d)),
+            (Bucket::Week, Some(d)) => {
+                let (wy, w) = iso_week(d);
+                Value::Text(format!("{wy:04}-W{w:02}"))
+            }
+            (Bucket::Weekday, Some(d)) => Value::Text(WEEKDAYS[weekday(d) as usize].to_string()),
+            _ => Value::Missing,
+        }
+    }
+}
+
+fn fiscal(start: u32) -> Fiscal {
+    Fiscal {
+        start_month: start.clamp(1, 12),
+    }
+}
+
+/// 0 for Monday … 6 for Sunday (1970-01-01 was a Thursday).
+pub fn weekday(d: i32) -> i32 {
+    (d + 3).rem_euclid(7)
+}
+
+/// The ISO 8601 week-numbering year and week (1 to 53) of a day: the week
+/// of the Thursday of the day's week, counted from that Thursday's year.
+pub fn iso_week(d: i32) -> (i32, u32) {
+    let thursday = d - weekday(d) + 3;
+    let (y, _, _) = civil_from_days(thursday);
+    let week = (thursday - days_from_civil(y, 1, 1)) / 7 + 1;
+    (y, week as u32)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn day(y: i32, m: u32, d: u32) -> Cell<'static> {
+        Cell::Date(days_from_civil(y, m, d))
+    }
+
+    fn text(s: &str) -> Value {
+        Value::Text(s.to_string())
+    }
+
+    #[test]
+    fn iso_weeks_at_year_ends() {
+        // Worked examples of ISO 8601 week dates (common practice; the
+        // same as Python's `datetime.date.isocalendar()`):
+        // 2021-01-03 is 2020-W53-7, 2024-12-30 is 2025-W01-1,
+        // 2026-01-01 is 2026-W01-4, 2008-12-29 is 2009-W01-1,
+        // 2010-01-03 is 2009-W53-7.
+        let cases = [
+            ((2021, 1, 3), "2020-W53", "Sun"),
+            ((2024, 12, 30), "2025-W01", "Mon"),
+            ((2026, 1, 1), "2026-W01", "Thu"),
+            ((2008, 12, 29), "2009-W01", "Mon"),
+            ((2010, 1, 3), "2009-W53", "Sun"),
+            ((2024, 2, 29), "2024-W09", "Thu"),
+        ];
+        for ((y, m, d), week, wd) in cases {
+            assert_eq!(Bucket::Week.apply(day(y, m, d)), text(week), "{y}-{m}-{d}");
+            assert_eq!(Bucket::Weekday.apply(day(y, m, d)), text(wd), "{y}-{m}-{d}");
+        }
+        // the Monday of 2021-01-03's week is 2020-12-28
+        assert_eq!(
+            Bucket::WeekStart.apply(day(2021, 1, 3)),
+            Value::Date(days_from_civil(2020, 12, 28))
+        );
+        assert_eq!(
+            Bucket::WeekStart.apply(day(2020, 12, 28)),
+            Value::Date(days_from_civil(2020, 12, 28))
+        );
+    }
+
+    #[test]
+    fn calendar_and_fiscal_periods() {
+        let may = day(2024, 5, 17);
+        assert_eq!(Bucket::Month.apply(may), Value::Month(2024 * 12 + 4));
+        assert_eq!(Bucket::Year.apply(may), Value::Year(2024));
+        assert_eq!(Bucket::Quarter.apply(may), text("2024 Q2"));
+        // a year starting in July: July 2024 to June 2025 is FY2025
+        assert_eq!(Bucket::FiscalYear(7).apply(may), text("FY2024"));
+        assert_eq!(Bucket::FiscalQuarter(7).apply(may), text("FY2024 Q4"));
+        let july = Cell::Month(2024 * 12 + 6);
+        assert_eq!(Bucket::FiscalYear(7).apply(july), text("FY2025"));
+        assert_eq!(Bucket::FiscalQuarter(7).apply(july), text("FY2025 Q1"));
+        assert_eq!(Bucket::Quarter.apply(july), text("2024 Q3"));
+        assert_eq!(Bucket::Year.apply(july), Value::Year(2024));
+        // a month has no month, week or weekday bucket
+        assert_eq!(Bucket::Month.apply(july), Value::Missing);
+        assert_eq!(Bucket::Weekday.apply(july), Value::Missing);
+        assert_eq!(Bucket::Year.apply(Cell::Missing), Value::Missing);
+        assert_eq!(Bucket::FiscalYear(1).apply(may), text("FY2024"));
+    }
+
+    #[test]
+    fn result_types() {
+        assert_eq!(Bucket::Month.result(ColType::Date), Some(ColType::Month));
+        assert_eq!(Bucket::Month.result(ColType::Month), None);
+        assert_eq!(Bucket::Quarter.result(ColType::Month), Some(ColType::Text));
+        assert_eq!(Bucket::WeekStart.result(ColType::Date), Some(ColType::Date));
+        assert_eq!(Bucket::Year.result(ColType::Text), None);
+        assert_eq!(Bucket::Weekday.result(ColType::Month), None);
+    }
+
+    #[test]
+    fn iso_week_matches_a_count_over_eight_centuries() {
+        // Week 1 holds 4 January (ISO 8601); every week has 7 days, so
+        // walking day by day the week only changes on Mondays.
+        let mut last = iso_week(days_from_civil(1600, 1, 3));
+        for d in days_from_civil(1600, 1, 4)..days_from_civil(2400, 1, 1) {
+            let w = iso_week(d);
+            if weekday(d) == 0 {
+                assert!(w.1 == last.1 + 1 || (w.1 == 1 && w.0 == last.0 + 1), "{d}");
+            } else {
+                assert_eq!(w, last);
+            }
+            last = w;
+            let (y, m, dd) = civil_from_days(d);
+            if m == 1 && dd == 4 {
+                assert_eq!(w, (y, 1));
+            }
+        }
+    }
+}

@@ -1,0 +1,467 @@
+//! Parquet files read with the Apache `parquet` crate (its record reader;
+//! no Arrow) into a [`Table`].
+//!
+//! Only the columns the story can read are decoded (a projection), row
+//! group by row group. Types, by the column's logical (or converted) type
+//! over its physical one:
+//!
+//! | Parquet | column |
+//! | --- | --- |
+//! | integers (8 to 64 bits, signed or not), float, double | number |
+//! | decimal | number (the decimal's text read as a CSV cell is) |
+//! | string (UTF-8), enum | text |
+//! | date | date |
+//! | timestamp | date: the day of the instant (UTC when the timestamp is adjusted to UTC) |
+//! | boolean | `true` / `false`, as a workbook's |
+//!
+//! Anything else (binary, times of day, intervals, UUIDs, 96-bit
+//! timestamps, nested groups, lists and maps) in a column the story reads
+//! is an error naming the column; a damaged or cut-short file is an error.
+//! Files are read with Snappy compression or none (the `snap` feature);
+//! another codec is an error that says which.
+//!
+//! # Row groups skipped by their statistics
+//!
+//! When every view over the data item starts with `keep`, the caller
+//! passes those first conditions ([`load_parquet_skipping`]); a row group
+//! whose statistics (each column's least and greatest value) show that no
+//! row can pass any of them is not decoded. The conditions are resolved
+//! against the file's columns in file order. Only comparisons of number,
+//! date and timestamp columns with literals, and `and`, `or`, `in` over
+//! them, are decided; anything else counts as "may pass". The caller
+//! skips only when every text column it reads has a declared type, since
+//! an undeclared text column's type is inferred from the rows read.
+
+#![allow(clippy::result_large_err)]
+
+use std::fs::File;
+use std::sync::Arc;
+
+use parquet::basic::{ConvertedType, LogicalType, TimeUnit, Type as Physical};
+use parquet::data_type::Decimal;
+use parquet::file::reader::{FileReader, SerializedFileReader};
+use parquet::record::Field;
+use parquet::schema::types::Type;
+
+use crate::load::{parse_number, Columns, CsvSpec, LoadError, ReadLimits};
+use crate::model::{CmpOp, Expr, Table, Value};
+use crate::typed::{finish, Typed, TypedColumn};
+
+/// Files read here, by name.
+pub fn is_parquet(path: &std::path::Path) -> bool {
+    path.extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("parquet"))
+}
+
+fn story(code: &'static str, message: String, help: Option<&str>) -> LoadError {
+    LoadError::Story {
+        code,
+        message,
+        help: help.map(str::to_owned),
+        declared: None,
+    }
+}
+
+/// Why a leaf column's type is not read, or `None` when it is.
+fn unsupported(t: &Type) -> Option<String> {
+    if t.is_group() {
+        return Some("a nested group (a struct, list or map)".into());
+    }
+    let logical = t.get_basic_info().logical_type_ref();
+    let converted = t.get_basic_info().converted_type();
+    let ok = match (t.get_physical_type(), logical) {
+        (_, Some(LogicalType::Decimal(_))) => true,
+        (_, Some(LogicalType::String | LogicalType::Enum)) => true,
+        (Physical::INT32, Some(LogicalType::Date)) => true,
+        (Physical::INT64, Some(LogicalType::Timestamp(t))) => t.unit != TimeUnit::NANOS,
+        (Physical::INT32 | Physical::INT64, Some(LogicalType::Integer(_)) | None) => true,
+        (Physical::FLOAT | Physical::DOUBLE | Physical::BOOLEAN, None) => true,
+        (Physical::FLOAT, Some(LogicalType::Float16)) => true,
+        (Physical::BYTE_ARRAY, None) => {
+            matches!(converted, ConvertedType::UTF8 | ConvertedType::ENUM)
+        }
+        _ => false,
+    };
+    (!ok).then(|| {
+        let what = match logical {
+            Some(l) => format!("{l:?}"),
+            None => format!("{:?}", t.get_physical_type()),
+        };
+        format!("the Parquet type {what}")
+    })
+}
+
+/// The text of a decimal: its unscaled integer with the point put in.
+fn decimal_text(d: &Decimal) -> Option<String> {
+    let bytes = d.data();
+    if bytes.is_empty() || bytes.len() > 16 {
+        return None;
+    }
+    let negative = bytes[0] & 0x80 != 0;
+    let mut v: i128 = if negative { -1 } else { 0 };
+    for b in bytes {
+        v = (v << 8) | i128::from(*b);
+    }
+    let digits = v.unsigned_abs().to_string();
+    let scale = usize::try_from(d.scale()).ok()?;
+    let padded = format!("{digits:0>width$}", width = scale + 1);
+    let (int, frac) = padded.split_at(padded.len() - scale);
+    let sign = if v < 0 { "-" } else { "" };
+    Some(if scale == 0 {
+        format!("{sign}{int}")
+    } else {
+        format!("{sign}{int}.{frac}")
+    })
+}
+
+const DAY_MS: i64 = 86_400_000;
+
+fn day(x: i64, per_day: i64) -> Option<i32> {
+    i32::try_from(x.div_euclid(per_day)).ok()
+}
+
+/// A cell as a typed cell; `None` when it has no reading.
+fn typed(f: &Field) -> Option<Typed> {
+    Some(match f {
+        Field::Null => Typed::Missing,
+        Field::Bool(b) => Typed::Bool(*b),
+        Field::Byte(x) => Typed::Number(f64::from(*x)),
+        Field::Short(x) => Typed::Number(f64::from(*x)),
+        Field::Int(x) => Typed::Number(f64::from(*x)),
+        Field::Long(x) => Typed::Number(*x as f64),
+        Field::UByte(x) => Typed::Number(f64::from(*x)),
+        Field::UShort(x) => Typed::Number(f64::from(*x)),
+        Field::UInt(x) => Typed::Number(f64::from(*x)),
+        Field::ULong(x) => Typed::Number(*x as f64),
+        Field::Float16(x) => Typed::Number(f64::from(*x)),
+        Field::Float(x) => Typed::Number(f64::from(*x)),
+        Field::Double(x) => Typed::Number(*x),
+        Field::Decimal(d) => Typed::Number(parse_number(&decimal_text(d)?)?),
+        Field::Str(s) => Typed::Text(s.clone()),
+        Field::Date(d) => Typed::Date(*d),
+        Field::TimestampMillis(x) => Typed::Date(day(*x, DAY_MS)?),
+        Field::TimestampMicros(x) => Typed::Date(day(*x, DAY_MS * 1000)?),
+        _ => return None,
+    })
+}
+
+/// The least and greatest value of a column in a row group.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Bounds {
+    Number(f64, f64),
+    /// Days since 1970-01-01.
+    Date(i32, i32),
+}
+
+/// A column's bounds from its chunk statistics (`None` when unknown).
+fn bounds(t: &Type, stats: Option<&parquet::file::statistics::Statistics>) -> Option<Bounds> {
+    use parquet::file::statistics::Statistics as S;
+    let logical = t.get_basic_info().logical_type_ref();
+    let both = |a: Option<f64>, b: Option<f64>| Some((a?, b?));
+    match (stats?, logical) {
+        (S::Int32(v), Some(LogicalType::Date)) => Some(Bounds::Date(*v.min_opt()?, *v.max_opt()?)),
+        (S::Int64(v), Some(LogicalType::Timestamp(ts))) => {
+            let per_day = match ts.unit {
+                TimeUnit::MILLIS => DAY_MS,
+                TimeUnit::MICROS => DAY_MS * 1000,
+                TimeUnit::NANOS => return None,
+            };
+            Some(Bounds::Date(
+                day(*v.min_opt()?, per_day)?,
+                day(*v.max_opt()?, per_day)?,
+            ))
+        }
+        (S::Int32(v), Some(LogicalType::Integer(_)) | None) => both(
+            v.min_opt().map(|x| f64::from(*x)),
+            v.max_opt().map(|x| f64::from(*x)),
+        )
+        .map(|(a, b)| Bounds::Number(a, b)),
+        (S::Int64(v), Some(LogicalType::Integer(_)) | None) => both(
+            v.min_opt().map(|x| *x as f64),
+            v.max_opt().map(|x| *x as f64),
+        )
+        .map(|(a, b)| Bounds::Number(a, b)),
+        (S::Double(v), None) => both(v.min_opt().copied(), v.max_opt().copied())
+            .filter(|(a, b)| !a.is_nan() && !b.is_nan())
+            .map(|(a, b)| Bounds::Number(a, b)),
+        _ => None,
+    }
+}
+
+/// May some row whose columns lie within `spans` make `e` true? (See the
+/// module docs; `true` when undecided.)
+pub fn may_hold(e: &Expr, spans: &[Option<Bounds>]) -> bool {
+    match e {
+        Expr::And(parts) => parts.iter().all(|p| may_hold(p, spans)),
+        Expr::Or(parts) => parts.iter().any(|p| may_hold(p, spans)),
+        Expr::In(a, list) => list.iter().any(|v| {
+            may_hold(
+                &Expr::Cmp(CmpOp::Eq, a.clone(), Box::new(Expr::Lit(v.clone()))),
+                spans,
+            )
+        }),
+        Expr::Cmp(op, a, b) => match (a.as_ref(), b.as_ref()) {
+            (Expr::Col(i), Expr::Lit(v)) => compare(*op, spans.get(*i).copied().flatten(), v),
+            (Expr::Lit(v), Expr::Col(i)) => {
+                let flipped = match op {
+                    CmpOp::Lt => CmpOp::Gt,
+                    CmpOp::Le => CmpOp::Ge,
+                    CmpOp::Gt => CmpOp::Lt,
+                    CmpOp::Ge => CmpOp::Le,
+                    other => *other,
+                };
+                compare(flipped, spans.get(*i).copied().flatten(), v)
+            }
+            _ => true,
+        },
+        _ => true,
+    }
+}
+
+/// May `column op v` hold for a column within `b`?
+fn compare(op: CmpOp, b: Option<Bounds>, v: &Value) -> bool {
+    let (lo, hi, x) = match (b, v) {
+        (Some(Bounds::Number(lo, hi)), Value::Number(x)) => (lo, hi, *x),
+        (Some(Bounds::Date(lo, hi)), Value::Date(x)) => {
+            (f64::from(lo), f64::from(hi), f64::from(*x))
+        }
+        _ => return true,
+    };
+    match op {
+        CmpOp::Eq => lo <= x && x <= hi,
+        CmpOp::Ne => !(lo == x && hi == x),
+        CmpOp::Lt => lo < x,
+        CmpOp::Le => lo <= x,
+        CmpOp::Gt => hi > x,
+        CmpOp::Ge => hi >= x,
+    }
+}
+
+/// Read a Parquet file already opened (and checked) for `spec.path`.
+pub fn load_parquet(
+    spec: &CsvSpec,
+    file: &File,
+    columns: &Columns,
+    limits: &ReadLimits,
+) -> Result<Table, LoadError> {
+    load_parquet_skipping(spec, file, columns, limits, &[]).map(|(t, _)| t)
+}
+
+/// The column types the conditions of [`load_parquet_skipping`] are
+/// resolved against, in file order: numbers, dates (and timestamps) and
+/// texts by their Parquet types; `None` for a column of another type.
+pub fn column_types(file: &File) -> Option<Vec<(String, Option<crate::model::ColType>)>> {
+    use crate::model::ColType;
+    let reader = SerializedFileReader::new(file.try_clone().ok()?).ok()?;
+    let schema = reader
+        .metadata()
+        .file_metadata()
+        .schema_descr()
+        .root_schema();
+    Some(
+        schema
+            .get_fields()
+            .iter()
+            .map(|f| {
+                let ty = if unsupported(f).is_some() {
+                    None
+                } else {
+                    match (f.get_physical_type(), f.get_basic_info().logical_type_ref()) {
+                        (_, Some(LogicalType::Date | LogicalType::Timestamp(_))) => {
+                            Some(ColType::Date)
+                        }
+                        (_, Some(LogicalType::String | LogicalType::Enum)) => Some(ColType::Text),
+                        (Physical::BYTE_ARRAY | Physical::BOOLEAN, _) => Some(ColType::Text),
+                        _ => Some(ColType::Number),
+                    }
+                };
+                (f.name().to_string(), ty)
+            })
+            .collect(),
+    )
+}
+
+/// [`load_parquet`], skipping the row groups in which no row can make any
+/// of `keeps` true (see the module docs; no skipping when `keeps` is
+/// empty). Returns the table and the number of row groups skipped.
+pub fn load_parquet_skipping(
+    spec: &CsvSpec,
+    file: &File,
+    columns: &Columns,
+    limits: &ReadLimits,
+    keeps: &[Expr],
+) -> Result<(Table, usize), LoadError> {
+    let name = &spec.display_name;
+    let damaged = |e: &dyn std::fmt::Display| {
+        story(
+            "data-file",
+            format!("cannot read Parquet file `{name}`: it is damaged, cut short or not a Parquet file ({e})"),
+            Some("write the file again, or export the data as CSV"),
+        )
+    };
+    let handle = file.try_clone().map_err(|e| damaged(&e))?;
+    let reader = SerializedFileReader::new(handle).map_err(|e| damaged(&e))?;
+    let schema = reader
+        .metadata()
+        .file_metadata()
+        .schema_descr()
+        .root_schema();
+    let mut cols: Vec<TypedColumn> = Vec::new();
+    let mut picked: Vec<Arc<Type>> = Vec::new();
+    for field in schema.get_fields() {
+        let title = field.name().to_string();
+        let keep = columns.keeps(&title) || spec.declared.iter().any(|(n, _)| *n == title);
+        if keep {
+            if let Some(why) = unsupported(field) {
+                return Err(story(
+                    "data-file",
+                    format!("column `{title}` of Parquet file `{name}` is {why}, which crescendo does not read"),
+                    Some("columns are read as numbers, texts, dates, timestamps (as their day) and true/false; flatten or convert this column, or leave it unused"),
+                ));
+            }
+            picked.push(Arc::clone(field));
+        }
+        cols.push(TypedColumn {
+            name: title,
+            keep,
+            cells: Vec::new(),
+        });
+    }
+    let kept: Vec<usize> = (0..cols.len()).filter(|&j| cols[j].keep).collect();
+    let mut rows = 0usize;
+    let mut places: Vec<(usize, usize)> = Vec::new();
+    let flat = schema.get_fields().iter().all(|f| !f.is_group());
+    let mut skipped = 0;
+    for g in 0..reader.num_row_groups() {
+        let group = reader.get_row_group(g).map_err(|e| damaged(&e))?;
+        if flat && !keeps.is_empty() {
+            let meta = group.metadata();
+            let spans: Vec<Option<Bounds>> = schema
+                .get_fields()
+                .iter()
+                .enumerate()
+                .map(|(k, f)| bounds(f, meta.column(k).statistics()))
+                .collect();
+            if !keeps.iter().any(|e| may_hold(e, &spans)) {
+                skipped += 1;
+                continue;
+            }
+        }
+        let n = usize::try_from(group.metadata().num_rows()).unwrap_or(0);
+        if limits.rows.is_some_and(|max| rows + n > max) {
+            return Err(story(
+                "too-many-rows",
+                format!(
+                    "Parquet file `{name}` has more than {} rows",
+                    limits.rows.unwrap_or(0)
+                ),
+                Some("raise `--max-rows`"),
+            ));
+        }
+        if kept.is_empty() {
+            // no column is read: the rows are counted, not decoded
+            places.extend((0..n).map(|i| (g, i)));
+            rows += n;
+            continue;
+        }
+        let projection = Type::group_type_builder("schema")
+            .with_fields(picked.clone())
+            .build()
+            .map_err(|e| damaged(&e))?;
+        let iter = group
+            .get_row_iter(Some(projection))
+            .map_err(|e| damaged(&e))?;
+        for (i, row) in iter.enumerate() {
+            let row = row.map_err(|e| damaged(&e))?;
+            for ((_, field), &j) in row.get_column_iter().zip(&kept) {
+                let cell = typed(field).ok_or_else(|| {
+                    story(
+                        "bad-value",
+                        format!(
+                            "column `{}` of Parquet file `{name}` holds a value crescendo cannot read in row group {}, row {}",
+                            cols[j].name,
+                            g + 1,
+                            i + 1
+                        ),
+                        None,
+                    )
+                })?;
+                if let Typed::Text(s) = &cell {
+                    if s.chars().count() > limits.text {
+                        return Err(story(
+                            "too-long",
+                            format!(
+                                "column `{}` of `{name}`: a text is longer than {} characters",
+                                cols[j].name, limits.text
+                            ),
+                            Some("raise `--max-text`"),
+                        ));
+                    }
+                }
+                cols[j].cells.push(cell);
+            }
+            places.push((g, i));
+            rows += 1;
+        }
+    }
+    let names: Vec<String> = cols.iter().map(|c| c.name.clone()).collect();
+    let locate = |j: usize, r: usize| {
+        let (g, i) = places.get(r).copied().unwrap_or((0, r));
+        format!(
+            "Parquet file `{name}`, column `{}`, row {} (row {} of row group {})",
+            names.get(j).map_or("", String::as_str),
+            r + 1,
+            i + 1,
+            g + 1
+        )
+    };
+    finish(spec, cols, rows, &locate).map(|t| (t, skipped))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn statistics_decide_only_what_they_can() {
+        let spans = [
+            Some(Bounds::Date(100, 200)),
+            Some(Bounds::Number(-5.0, 5.0)),
+            None,
+        ];
+        let col = |i| Box::new(Expr::Col(i));
+        let lit = |v| Box::new(Expr::Lit(v));
+        let date_ge = |d| Expr::Cmp(CmpOp::Ge, col(0), lit(Value::Date(d)));
+        assert!(may_hold(&date_ge(200), &spans));
+        assert!(!may_hold(&date_ge(201), &spans));
+        let n_lt = |x| Expr::Cmp(CmpOp::Lt, col(1), lit(Value::Number(x)));
+        assert!(!may_hold(&n_lt(-5.0), &spans));
+        assert!(may_hold(&n_lt(-4.9), &spans));
+        // a literal on the left: 300 <= day is day >= 300
+        let flipped = Expr::Cmp(CmpOp::Le, lit(Value::Date(300)), col(0));
+        assert!(!may_hold(&flipped, &spans));
+        assert!(!may_hold(
+            &Expr::And(vec![date_ge(150), n_lt(-6.0)]),
+            &spans
+        ));
+        assert!(may_hold(&Expr::Or(vec![date_ge(250), n_lt(0.0)]), &spans));
+        let inn = Expr::In(col(1), vec![Value::Number(9.0), Value::Number(10.0)]);
+        assert!(!may_hold(&inn, &spans));
+        // unknown bounds, text, negation: undecided, so kept
+        assert!(may_hold(
+            &Expr::Cmp(CmpOp::Eq, col(2), lit(Value::Number(1.0))),
+            &spans
+        ));
+        assert!(may_hold(&Expr::Not(Box::new(date_ge(0))), &spans));
+    }
+
+    #[test]
+    fn decimals_read_as_their_text() {
+        let d = |v: i32, scale: i32| Decimal::from_i32(v, 9, scale);
+        assert_eq!(decimal_text(&d(12345, 2)).as_deref(), Some("123.45"));
+        assert_eq!(decimal_text(&d(-5, 3)).as_deref(), Some("-0.005"));
+        assert_eq!(decimal_text(&d(7, 0)).as_deref(), Some("7"));
+        assert_eq!(day(-1, DAY_MS), Some(-1));
+        assert_eq!(day(DAY_MS * 3 + 5, DAY_MS), Some(3));
+    }
+}

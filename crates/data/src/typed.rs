@@ -1,0 +1,289 @@
+//! Columns of typed cells (from a workbook or a Parquet file) into a
+//! [`Table`], with the same column types a CSV file of the same rows gets.
+//!
+//! A column of text cells is inferred as a CSV column is (month, date,
+//! number, else text), so a month written as `2024-03` in a workbook is a
+//! month as in the CSV. A column whose cells are all numbers is a number
+//! column, all dates a date column; a mix is text, each cell written as a
+//! CSV cell would be (`12`, `0.5`, `2024-03-01`, `true`). A declared type
+//! converts each cell or names the one that does not fit.
+
+// `LoadError` is the crate's error type for every read (see `load.rs`).
+#![allow(clippy::result_large_err)]
+
+use crescendo_diag::closest;
+
+use crate::load::{parse_as, parse_number, CsvSpec, LoadError};
+use crate::model::{ColType, Column, Table, Value, Values};
+use crate::time::{date_iso, month_of_day, parse_date, parse_month};
+
+/// One cell as the file typed it.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Typed {
+    Missing,
+    Number(f64),
+    Text(String),
+    /// Days since 1970-01-01.
+    Date(i32),
+    Bool(bool),
+}
+
+impl Typed {
+    /// The cell as a CSV file would hold it.
+    pub fn text(&self) -> String {
+        match self {
+            Typed::Missing => String::new(),
+            Typed::Number(x) => format!("{x}"),
+            Typed::Text(s) => s.clone(),
+            Typed::Date(d) => date_iso(*d),
+            Typed::Bool(b) => b.to_string(),
+        }
+    }
+}
+
+/// One column: its header name and cells (empty when not kept).
+pub struct TypedColumn {
+    pub name: String,
+    pub keep: bool,
+    pub cells: Vec<Typed>,
+}
+
+/// Where cell `(column, row)` is, for messages (`sheet "Ledger", cell B7`).
+pub type Locate<'a> = &'a dyn Fn(usize, usize) -> String;
+
+fn located(code: &'static str, message: String, help: Option<String>) -> LoadError {
+    LoadError::Story {
+        code,
+        message,
+        help,
+        declared: None,
+    }
+}
+
+/// Check the declared columns are present, then type every kept or
+/// declared column; `rows` is the number of data rows.
+pub fn finish(
+    spec: &CsvSpec,
+    columns: Vec<TypedColumn>,
+    rows: usize,
+    locate: Locate<'_>,
+) -> Result<Table, LoadError> {
+    let names: Vec<&str> = columns.iter().map(|c| c.name.as_str()).collect();
+    for (i, (want, _)) in spec.declared.iter().enumerate() {
+        if !names.contains(&want.as_str()) {
+            let list: Vec<String> = names.iter().map(|n| format!("`{n}`")).collect();
+            return Err(LoadError::Story {
+                code: "unknown-column",
+                message: format!(
+                    "column `{want}` is not in the header of `{}` (columns: {})",
+                    spec.display_name,
+                    list.join(", ")
+                ),
+                help: closest(want, names.iter().copied()).map(|c| format!("did you mean `{c}`?")),
+                declared: Some(i),
+            });
+        }
+    }
+    if rows == 0 {
+        return Err(located(
+            "empty-data",
+            format!(
+                "data file `{}` has a header but no data rows",
+                spec.display_name
+            ),
+            None,
+        ));
+    }
+    let mut out = Vec::with_capacity(columns.len());
+    for (j, c) in columns.into_iter().enumerate() {
+        let declared = spec
+            .declared
+            .iter()
+            .find(|(n, _)| *n == c.name)
+            .map(|(_, t)| *t);
+        if !c.keep && declared.is_none() {
+            out.push(Column {
+                name: c.name,
+                ty: ColType::Text,
+                values: Values::missing(rows),
+            });
+            continue;
+        }
+        let cells: Vec<Typed> = c
+            .cells
+            .into_iter()
+            .map(|t| match t {
+                Typed::Text(s) if spec.missing.contains(&s) => Typed::Missing,
+                t => t,
+            })
+            .collect();
+        let ty = match declared {
+            Some(t) => t,
+            None => infer(&cells),
+        };
+        let mut values = Vec::with_capacity(rows);
+        for (r, cell) in cells.iter().enumerate() {
+            match convert(cell, ty) {
+                Some(v) => values.push(v),
+                None => {
+                    let what = match cell {
+                        Typed::Text(s) => format!("the text `{s}`"),
+                        Typed::Number(x) => format!("the number {x}"),
+                        Typed::Date(d) => format!("the date {}", date_iso(*d)),
+                        Typed::Bool(b) => format!("`{b}`"),
+                        Typed::Missing => "nothing".to_string(),
+                    };
+                    return Err(located(
+                        "bad-value",
+                        format!(
+                            "column `{}` is declared {}, but {} holds {what}",
+                            c.name,
+                            ty.name(),
+                            locate(j, r)
+                        ),
+                        Some(format!(
+                            "correct that cell, declare `{}` as text, or add its text to the missing-value tokens",
+                            c.name
+                        )),
+                    ));
+                }
+            }
+        }
+        if c.keep {
+            out.push(Column {
+                name: c.name,
+                ty,
+                values: values.into_iter().collect(),
+            });
+        } else {
+            out.push(Column {
+                name: c.name,
+                ty,
+                values: Values::missing(rows),
+            });
+        }
+    }
+    Ok(Table { columns: out })
+}
+
+/// The type of an undeclared column (see the module docs).
+fn infer(cells: &[Typed]) -> ColType {
+    let present = || cells.iter().filter(|c| **c != Typed::Missing);
+    if present().next().is_none() {
+        return ColType::Text;
+    }
+    if present().all(|c| matches!(c, Typed::Number(_))) {
+        return ColType::Number;
+    }
+    if present().all(|c| matches!(c, Typed::Date(_))) {
+        return ColType::Date;
+    }
+    if !present().all(|c| matches!(c, Typed::Text(_))) {
+        return ColType::Text;
+    }
+    let texts = || present().map(|c| c.text());
+    if texts().all(|s| parse_month(&s).is_some()) {
+        ColType::Month
+    } else if texts().all(|s| parse_date(&s).is_some()) {
+        ColType::Date
+    } else if texts().all(|s| parse_number(&s).is_some()) {
+        ColType::Number
+    } else {
+        ColType::Text
+    }
+}
+
+/// A cell as a value of type `ty`; `None` when it is not one.
+fn convert(cell: &Typed, ty: ColType) -> Option<Value> {
+    Some(match (cell, ty) {
+        (Typed::Missing, _) => Value::Missing,
+        (Typed::Text(s), _) => return parse_as(ty, s),
+        (c, ColType::Text) => Value::Text(c.text()),
+        (Typed::Number(x), ColType::Number) => Value::Number(*x),
+        (Typed::Number(x), ColType::Year) if x.fract() == 0.0 && (0.0..=9999.0).contains(x) => {
+            Value::Year(*x as i32)
+        }
+        (Typed::Date(d), ColType::Date) => Value::Date(*d),
+        (Typed::Date(d), ColType::Month) => Value::Month(month_of_day(*d)),
+        _ => return None,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn spec(declared: Vec<(String, ColType)>) -> CsvSpec {
+        CsvSpec {
+            path: "book.xlsx".into(),
+            display_name: "book.xlsx".into(),
+            declared,
+            missing: vec![String::new(), "NA".into()],
+        }
+    }
+
+    fn col(name: &str, cells: Vec<Typed>) -> TypedColumn {
+        TypedColumn {
+            name: name.into(),
+            keep: true,
+            cells,
+        }
+    }
+
+    #[test]
+    fn inference_matches_the_csv_rules() {
+        let t = finish(
+            &spec(vec![]),
+            vec![
+                col("m", vec![Typed::Text("2024-01".into()), Typed::Missing]),
+                col("d", vec![Typed::Date(0), Typed::Date(1)]),
+                col("n", vec![Typed::Number(1.5), Typed::Text("NA".into())]),
+                col("mixed", vec![Typed::Number(12.0), Typed::Text("x".into())]),
+            ],
+            2,
+            &|c, r| format!("{c}:{r}"),
+        )
+        .unwrap();
+        let types: Vec<ColType> = t.columns.iter().map(|c| c.ty).collect();
+        assert_eq!(
+            types,
+            [
+                ColType::Month,
+                ColType::Date,
+                ColType::Number,
+                ColType::Text
+            ]
+        );
+        assert_eq!(t.columns[3].values.value(0), Value::Text("12".into()));
+        assert_eq!(t.columns[2].values.value(1), Value::Missing);
+    }
+
+    #[test]
+    fn a_declared_type_names_the_cell_that_does_not_fit() {
+        let e = finish(
+            &spec(vec![("day".into(), ColType::Date)]),
+            vec![col("day", vec![Typed::Date(3), Typed::Text("soon".into())])],
+            2,
+            &|_, r| format!("sheet `S`, cell A{}", r + 2),
+        )
+        .unwrap_err();
+        let msg = e.to_string();
+        assert!(msg.contains("cell A3") && msg.contains("`soon`"), "{msg}");
+        // a date read as its month, a whole number as a year
+        let t = finish(
+            &spec(vec![
+                ("m".into(), ColType::Month),
+                ("y".into(), ColType::Year),
+            ]),
+            vec![
+                col("m", vec![Typed::Date(31)]),
+                col("y", vec![Typed::Number(2024.0)]),
+            ],
+            1,
+            &|_, _| String::new(),
+        )
+        .unwrap();
+        assert_eq!(t.columns[0].values.value(0), Value::Month(1970 * 12 + 1));
+        assert_eq!(t.columns[1].values.value(0), Value::Year(2024));
+    }
+}
