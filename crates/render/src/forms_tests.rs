@@ -8,7 +8,7 @@ use crate::inspect::{canvas_size, text_boxes, TextBox};
 use crate::render_frame;
 use crescendo_frame::*;
 
-const ACCENT: &str = "#B4400A";
+const ACCENT: &str = "#8E3005";
 
 /// A tick label as the planner writes one: at most one decimal, no
 /// trailing zeros, thousands grouped.
@@ -363,7 +363,7 @@ fn dot_plot() {
         "series named directly"
     );
     assert_eq!(count(&svg, "circle", "fill", ACCENT), 5);
-    assert_eq!(count(&svg, "circle", "fill", "#8C8C8C"), 5);
+    assert_eq!(count(&svg, "circle", "fill", "#848484"), 5);
     // Series names sit above the top row.
     let top_row = find(&boxes, "Library cards issued");
     assert!(find(&boxes, "2024").y1 <= top_row.y0);
@@ -428,7 +428,7 @@ fn scatter_with_fit() {
     );
     assert!(!has(&boxes, "Ashford"), "context points are not named");
     assert_eq!(count(&svg, "circle", "fill", ACCENT), 2);
-    assert_eq!(count(&svg, "circle", "fill", "#8C8C8C"), 8);
+    assert_eq!(count(&svg, "circle", "fill", "#848484"), 8);
     assert_eq!(
         count(&svg, "polyline", "stroke", "#5A5A5A"),
         1,
@@ -697,7 +697,7 @@ fn panels_with_a_common_scale() {
     // Six panels in two rows of four and two; y labels once per row.
     assert_eq!(boxes.iter().filter(|b| b.text == "40").count(), 2);
     assert_eq!(count(&svg, "polyline", "stroke", ACCENT), 1);
-    assert_eq!(count(&svg, "polyline", "stroke", "#8C8C8C"), 5);
+    assert_eq!(count(&svg, "polyline", "stroke", "#848484"), 5);
     // The same units per pixel: every panel's baseline is equally long.
     let doc = roxmltree::Document::parse(&svg).unwrap();
     let bases: Vec<String> = doc
@@ -736,7 +736,7 @@ fn trimmed_panels_keep_units_per_pixel() {
         .descendants()
         .filter(|n| {
             n.has_tag_name("polyline")
-                && matches!(n.attribute("stroke"), Some("#8C8C8C") | Some(ACCENT))
+                && matches!(n.attribute("stroke"), Some("#848484") | Some(ACCENT))
         })
         .enumerate()
     {
@@ -1150,7 +1150,7 @@ fn gridlines_are_light_under_the_data_and_only_on_request() {
                 let grid = colour == Some(GRID);
                 if grid {
                     assert_eq!(n.attribute("stroke-width"), Some("1"), "{name}");
-                } else if ![Some(ACCENT), Some("#8C8C8C")].contains(&colour) {
+                } else if ![Some(ACCENT), Some("#848484")].contains(&colour) {
                     return None;
                 }
                 Some((grid, bounds(&n)?))

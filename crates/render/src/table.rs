@@ -18,6 +18,7 @@ use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{Role, TableChart};
+use crescendo_look::display::Part;
 
 /// Space between columns.
 const COLUMN_GAP: f64 = 36.0;
@@ -126,11 +127,13 @@ pub(crate) fn draw(
         }
         let top = rows_top + i as f64 * step;
         if row.shaded {
-            canvas.rect(
-                (table_left - BAND_OVERHANG, top),
-                (table_right + BAND_OVERHANG, top + step),
-                fill,
-            )?;
+            canvas.group(Part::Tint, || {
+                canvas.rect(
+                    (table_left - BAND_OVERHANG, top),
+                    (table_right + BAND_OVERHANG, top + step),
+                    fill,
+                )
+            })?;
         }
         for (c, &width) in widths.iter().enumerate() {
             let cell = row

@@ -291,11 +291,11 @@ fn line_frame_snapshot_and_look() {
     let lines = elements(&doc, "polyline");
     let grey = lines
         .iter()
-        .filter(|n| n.attribute("stroke") == Some("#8C8C8C"))
+        .filter(|n| n.attribute("stroke") == Some("#848484"))
         .count();
     let accent: Vec<_> = lines
         .iter()
-        .filter(|n| n.attribute("stroke") == Some("#B4400A"))
+        .filter(|n| n.attribute("stroke") == Some("#8E3005"))
         .collect();
     assert_eq!(
         grey, 3,
@@ -310,7 +310,7 @@ fn line_frame_snapshot_and_look() {
         .rev()
         .find(|n| n.attribute("stroke") != Some("#C8C8C8"))
         .unwrap();
-    assert_eq!(last_line.attribute("stroke"), Some("#B4400A"));
+    assert_eq!(last_line.attribute("stroke"), Some("#8E3005"));
     // Sizes on screen are the intended ones.
     let sizes: std::collections::BTreeSet<&str> = elements(&doc, "text")
         .iter()
@@ -352,7 +352,7 @@ fn horizontal_bar_snapshot_and_look() {
     assert_eq!(
         rects
             .iter()
-            .filter(|r| r.attribute("fill") == Some("#B4400A"))
+            .filter(|r| r.attribute("fill") == Some("#8E3005"))
             .count(),
         1
     );

@@ -9,6 +9,7 @@ mod bars_unsorted;
 mod colour_key_text;
 mod conclusion_missing;
 mod focus_confusable;
+mod focus_outshone;
 mod frame_empty;
 mod grid_heavy;
 mod headline_cut;
@@ -54,6 +55,7 @@ pub static RULES: &[&Rule] = &[
     &marks_faint::RULE,
     &grid_heavy::RULE,
     &focus_confusable::RULE,
+    &focus_outshone::RULE,
     &spotlight_crowd::RULE,
     &colour_key_text::RULE,
     &pie_crowded::RULE,
