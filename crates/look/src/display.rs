@@ -144,12 +144,19 @@ pub enum Part {
         /// Lines the whole headline needs.
         needed: usize,
     },
-    /// The takeaway lines.
-    Takeaway,
+    /// The takeaway lines; `needed` is how many lines the whole takeaway
+    /// needs (more than are drawn when it is cut).
+    Takeaway {
+        /// Lines the whole takeaway needs.
+        needed: usize,
+    },
     /// Notices drawn on a draft frame.
     Notices,
-    /// The source note.
-    Source,
+    /// The source note's lines; `needed` as for the takeaway.
+    Source {
+        /// Lines the whole source note needs.
+        needed: usize,
+    },
     /// The tick labels along a horizontal axis. `wanted` holds the width of
     /// every label the axis asked for, measured before any was dropped for
     /// lack of room.
@@ -259,7 +266,9 @@ impl DisplayList {
         fn walk(items: &[Item], in_chart: bool, out: &mut Vec<Mark>) {
             for item in items {
                 let mark = match item {
-                    Item::Group { part: Part::Tint, .. } => None,
+                    Item::Group {
+                        part: Part::Tint, ..
+                    } => None,
                     Item::Group { part, items } => {
                         walk(items, in_chart || *part == Part::Chart, out);
                         None
@@ -408,7 +417,7 @@ mod tests {
         assert_eq!(texts, ["a", "b", "c"]);
         assert_eq!(list.groups(|p| matches!(p, Part::XTicks { .. })).len(), 1);
         assert_eq!(list.groups(|p| *p == Part::Headline { needed: 3 }).len(), 1);
-        assert_eq!(list.groups(|p| *p == Part::Source).len(), 0);
+        assert_eq!(list.groups(|p| matches!(p, Part::Source { .. })).len(), 0);
     }
 
     #[test]

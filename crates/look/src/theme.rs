@@ -24,15 +24,21 @@ pub const HEIGHT: u32 = 720;
 /// registered with plotters under this same name.
 pub const FONT_FAMILY: &str = "DejaVu Sans, Helvetica, Arial, sans-serif";
 
-/// Headline size in px (bold). (30 cannot be written exactly through
-/// plotters' `size / 1.24`; 32 can.)
-pub const HEADLINE_SIZE: f64 = 32.0;
+/// Headline size in px (bold). Type for a room (common practice for
+/// projected slides, from memory): on the 1280 × 720 frame a headline of
+/// 36 px or more, a takeaway of 24, labels and ticks of 20 and a source
+/// note of 16 stay readable from the back row.
+pub const HEADLINE_SIZE: f64 = 36.0;
 /// Takeaway size in px.
-pub const TAKEAWAY_SIZE: f64 = 20.0;
+pub const TAKEAWAY_SIZE: f64 = 24.0;
 /// Tick labels, axis titles, category labels and direct labels, in px.
-pub const LABEL_SIZE: f64 = 16.0;
-/// Source note size in px; the smallest text drawn.
-pub const SOURCE_SIZE: f64 = 14.0;
+pub const LABEL_SIZE: f64 = 20.0;
+/// Source note size in px; the smallest text drawn, and the smallest the
+/// lint's `text-small` accepts.
+pub const SOURCE_SIZE: f64 = 16.0;
+/// The label size the forms' fixed lengths were chosen at
+/// ([`Theme::label_scaled`]).
+pub const LENGTHS_AT: f64 = 16.0;
 
 /// The smallest CIELAB L* difference between the accent and a context
 /// grey, so emphasis reads by lightness alone (in greyscale too): 20 L*
@@ -186,12 +192,11 @@ impl Theme {
         }
     }
 
-    /// A length chosen for the default 16 px labels (the widest a label may
-    /// be, the room kept for a column of labels), scaled to the theme's
-    /// label size so a label keeps about as many characters; exactly `px`
-    /// at the default size.
+    /// A length chosen for 16 px labels ([`LENGTHS_AT`]: the widest a label
+    /// may be, the room kept for a column of labels), scaled to the theme's
+    /// label size so a label keeps about as many characters.
     pub fn label_scaled(&self, px: f64) -> f64 {
-        px * (self.label_size / LABEL_SIZE)
+        px * (self.label_size / LENGTHS_AT)
     }
 }
 
@@ -422,11 +427,19 @@ mod tests {
         for t in ALL {
             for (what, grey) in [("context", t.context), ("context_light", t.context_light)] {
                 let step = t.recession(grey);
-                assert!(step >= LIGHTNESS_STEP, "{}: {what} only {step:.1} L*", t.name);
+                assert!(
+                    step >= LIGHTNESS_STEP,
+                    "{}: {what} only {step:.1} L*",
+                    t.name
+                );
                 let r = t.page.contrast(grey);
                 assert!(r >= 3.0, "{}: {what} {r:.2}:1 on the page", t.name);
             }
-            assert!(lightness(t.context_light) > lightness(t.context) + 4.0, "{}", t.name);
+            assert!(
+                lightness(t.context_light) > lightness(t.context) + 4.0,
+                "{}",
+                t.name
+            );
         }
         assert!(CLEAR.light_page() && PRINT.light_page() && !EVENING.light_page());
     }
@@ -533,7 +546,7 @@ mod tests {
         assert_eq!(t.baseline, CLEAR.baseline);
         assert_eq!(
             (t.headline_size, t.label_size, t.source_size),
-            (36.0, 18.0, 14.0)
+            (36.0, 18.0, 16.0)
         );
         assert_eq!(t.text_column(), 1280.0 - 128.0);
         assert_eq!(t.font_family, "'Atkinson Hyperlegible', sans-serif");

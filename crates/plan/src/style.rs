@@ -8,7 +8,7 @@
 //! ```toml
 //! fonts = ["DejaVu Sans", "Verdana", "sans-serif"]   # the SVG's font stack
 //!
-//! [sizes]            # whole px, 10 to 72 (the lint warns below 14)
+//! [sizes]            # whole px, 10 to 72 (the lint warns below 16)
 //! headline = 34
 //! takeaway = 20
 //! labels = 16
@@ -151,7 +151,7 @@ impl Checker {
                     "not allowed here"
                 },
             )
-            .note("text below 14 px is hard to read when projected; the lint warns below that");
+            .note("text below 16 px is hard to read when projected; the lint warns below that");
             self.diags.push(d);
             return None;
         }

@@ -165,7 +165,7 @@ mod tests {
     fn groups_nest_in_drawing_order() {
         let c = Canvas::new();
         c.line((0.0, 0.0), (1.0, 1.0), Rgb(0, 0, 0), 1).unwrap();
-        c.group(Part::Source, || {
+        c.group(Part::Source { needed: 1 }, || {
             c.rect((0.0, 0.0), (2.0, 2.0), Rgb(1, 1, 1))?;
             c.group(Part::Chart, || c.dot((1.0, 1.0), 2, Rgb(2, 2, 2)))
         })
@@ -185,7 +185,7 @@ mod tests {
         let Item::Group { part, items } = &items[1] else {
             panic!("{items:?}")
         };
-        assert_eq!(*part, Part::Source);
+        assert_eq!(*part, Part::Source { needed: 1 });
         assert!(matches!(
             items[1],
             Item::Group {

@@ -96,7 +96,7 @@ pub(crate) fn draw(
             let a = (xmap(lo), ymap(fit.intercept + fit.slope * lo));
             let b = (xmap(hi), ymap(fit.intercept + fit.slope * hi));
             if let Some((a, b)) = clip(a, b, l.plot_top, l.plot_bottom) {
-                canvas.line(a, b, theme.muted, 2)?;
+                canvas.line(a, b, theme.context, 2)?;
                 obstacles.segments.push((a, b));
                 fit_segment = Some((a, b));
             }

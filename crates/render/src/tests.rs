@@ -318,7 +318,7 @@ fn line_frame_snapshot_and_look() {
         .collect();
     assert_eq!(
         sizes.into_iter().collect::<Vec<_>>(),
-        vec!["14", "16", "20", "32"]
+        vec!["16", "20", "24", "36"]
     );
     // Direct labels sit to the right of every line.
     let uplands = boxes.iter().find(|b| b.text == "Uplands").unwrap();
@@ -477,11 +477,11 @@ fn long_headline_and_takeaway_wrap_and_stay_inside() {
     let doc = roxmltree::Document::parse(&svg).unwrap();
     let big = elements(&doc, "text")
         .iter()
-        .filter(|n| n.attribute("font-size") == Some("32"))
+        .filter(|n| n.attribute("font-size") == Some("36"))
         .count();
     let medium = elements(&doc, "text")
         .iter()
-        .filter(|n| n.attribute("font-size") == Some("20"))
+        .filter(|n| n.attribute("font-size") == Some("24"))
         .count();
     assert_eq!((big, medium), (2, 2));
     assert!(boxes[1].text.ends_with('\u{2026}'));
@@ -745,10 +745,13 @@ fn axes_do_not_move_within_a_sequence() {
             .map(|t| (t.x0, t.y0))
     };
     assert_eq!(pos(&a), pos(&b));
-    // Rendered alone, the short frame would place its plot higher: the
-    // sequence really is what holds it still.
-    let alone = render_frame(&deck(vec![first.clone()]), &first).unwrap();
-    assert_ne!(skeleton(&alone), skeleton(&a));
+    // Rendered alone, the short frame would place its chart higher: the
+    // deck's grid really is what holds it still.
+    let theme = crate::theme::CLEAR;
+    let region = |d: &DeckPlan| {
+        crate::layout::draw_page(&crate::canvas::Canvas::new(), &theme, d, &first).unwrap()
+    };
+    assert!(region(&deck(vec![first.clone()])).top < region(&d).top);
 }
 
 #[test]
@@ -866,4 +869,33 @@ fn empty_deck_html() {
     let html = render_deck_html(&d, &[]);
     assert!(html.contains(">0 / 0</div>"));
     assert!(!html.contains("<section"));
+}
+
+// One grid for the deck: frames of different sequences, one with a
+// two-line headline and a takeaway, one with neither, get the same chart
+// region and the same tick gutter, so the plot does not jump.
+#[test]
+fn one_grid_for_every_frame_of_the_deck() {
+    let d = deck(vec![
+        frame(
+            1,
+            1,
+            "A much longer headline that has to wrap onto a second line at this size, surely",
+            Some("A takeaway under it"),
+            line_chart(),
+        ),
+        frame(2, 2, "Short", None, bar_chart(Orientation::Vertical)),
+    ]);
+    let theme = crate::theme::effective(&d).unwrap();
+    let regions: Vec<crate::layout::Region> = d
+        .frames
+        .iter()
+        .map(|f| crate::layout::draw_page(&crate::canvas::Canvas::new(), &theme, &d, f).unwrap())
+        .collect();
+    assert_eq!(regions[0], regions[1]);
+    // the widest vertical tick label of the deck ("40" of the bars or the
+    // line's labels) sets the gutter of both
+    assert!(regions[0].gutter > 0.0);
+    assert_eq!(regions[0].tick_column(1.0), regions[0].gutter.max(1.0));
+    assert_eq!(regions[0].tick_column(0.0), 0.0);
 }

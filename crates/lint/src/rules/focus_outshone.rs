@@ -42,7 +42,8 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
             continue;
         }
         for mark in marks {
-            if seen.contains(&mark.color) {
+            // page-coloured cuts between segments and slices are gaps
+            if seen.contains(&mark.color) || mark.color == t.page {
                 continue;
             }
             seen.push(mark.color);
@@ -72,11 +73,21 @@ fn outshines(input: &Input, frame: Option<usize>, what: &str, grey: Rgb, out: &m
             t.accent.hex(),
             lightness(t.accent)
         ),
-        message: format!(
-            "the {what} {} is only {step:.1} L* {way} than the spotlight {}; it needs {LIGHTNESS_STEP:.0}",
-            grey.hex(),
-            t.accent.hex()
-        ),
+        message: if step < 0.0 {
+            let other = if t.light_page() { "darker" } else { "brighter" };
+            format!(
+                "the {what} {} is {:.1} L* {other} than the spotlight {}, so it outweighs it; it needs to be {LIGHTNESS_STEP:.0} L* {way}",
+                grey.hex(),
+                -step,
+                t.accent.hex()
+            )
+        } else {
+            format!(
+                "the {what} {} is only {step:.1} L* {way} than the spotlight {}; it needs {LIGHTNESS_STEP:.0}",
+                grey.hex(),
+                t.accent.hex()
+            )
+        },
         fix: format!("make the accent stronger or the grey {way}, {LIGHTNESS_STEP:.0} L* apart"),
     });
 }

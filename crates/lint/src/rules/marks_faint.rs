@@ -42,7 +42,8 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
     }
     for (i, list) in input.displays.iter().enumerate() {
         for mark in list.marks() {
-            if seen.contains(&mark.color) {
+            // page-coloured cuts between segments and slices are gaps
+            if seen.contains(&mark.color) || mark.color == t.page {
                 continue;
             }
             seen.push(mark.color);

@@ -25,6 +25,7 @@ mod small_counts;
 mod source_missing;
 mod spotlight_crowd;
 mod stack_spotlight_floats;
+mod text_cut;
 mod text_faint;
 mod text_small;
 mod ticks_crowded;
@@ -50,6 +51,7 @@ pub static RULES: &[&Rule] = &[
     &trailing_zeros::RULE,
     &axes_shift::RULE,
     &headline_cut::RULE,
+    &text_cut::RULE,
     &text_small::RULE,
     &text_faint::RULE,
     &marks_faint::RULE,
