@@ -39,6 +39,8 @@ pub struct Exports {
     pub png: bool,
     /// PNG pixels per SVG px (1280·scale × 720·scale).
     pub scale: u32,
+    /// PNG frames without the painted page (`--transparent`).
+    pub transparent: bool,
 }
 
 impl Default for Exports {
@@ -50,6 +52,7 @@ impl Default for Exports {
             pdf: false,
             png: false,
             scale: 2,
+            transparent: false,
         }
     }
 }
@@ -140,8 +143,9 @@ pub fn render_files(
             files.push((name, svg.clone().into_bytes()));
         }
         if exports.png {
-            let bytes = crate::export::png(svg, exports.scale, page)
-                .map_err(|e| export_err(&format!("PNG of frame {}", f.number), e))?;
+            let bytes =
+                crate::export::png(svg, exports.scale, (!exports.transparent).then_some(page))
+                    .map_err(|e| export_err(&format!("PNG of frame {}", f.number), e))?;
             files.push((png_name, bytes));
         }
     }

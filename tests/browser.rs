@@ -237,6 +237,13 @@ const VISIBLE: &str = "JSON.stringify(Array.from(document.querySelectorAll('sect
     .filter(function(s){return getComputedStyle(s).display!=='none'})\
     .map(function(s){return s.id}))";
 
+/// A function of two selectors: true when both elements are laid out and
+/// their rectangles do not overlap (a hidden element counts as apart).
+const APART: &str = "(function(a,b){var x=document.querySelector(a),y=document.querySelector(b);\
+if(!x||!y)return true;var r=x.getBoundingClientRect(),q=y.getBoundingClientRect();\
+if(r.width===0||r.height===0||q.width===0||q.height===0)return true;\
+return r.right<=q.left||q.right<=r.left||r.bottom<=q.top||q.bottom<=r.top;})";
+
 fn visible(s: &mut Session) -> Vec<String> {
     let v = s.eval(VISIBLE);
     serde_json::from_str(v.as_str().unwrap()).unwrap()
@@ -363,6 +370,84 @@ fn the_deck_works_in_a_real_browser() {
     assert_eq!(
         s.eval("document.body.classList.contains('talk-shown')"),
         false
+    );
+
+    // Notes and the speaker's desk never cover the frame, at a laptop's
+    // and a projector's window size; the controls grow with the window.
+    for (w, h) in [(1280, 800), (1920, 1080)] {
+        s.call(
+            "Emulation.setDeviceMetricsOverride",
+            json!({"width": w, "height": h, "deviceScaleFactor": 1, "mobile": false}),
+        );
+        let shown = s.eval("document.querySelector('.frame.current').id");
+        assert_eq!(shown, "frame-1", "the first frame has notes");
+        assert_eq!(s.eval("!!document.querySelector('#frame-1 .talk')"), true);
+        assert_eq!(
+            s.eval(&format!(
+                "{APART}('#{} svg','#{} .talk')",
+                shown.as_str().unwrap(),
+                shown.as_str().unwrap()
+            )),
+            json!(true),
+            "{w}x{h}: hidden notes take no room"
+        );
+        s.press("n", 78);
+        let current = format!("#{} svg", shown.as_str().unwrap());
+        let talk = format!("#{} .talk", shown.as_str().unwrap());
+        assert_eq!(
+            s.eval(&format!(
+                "getComputedStyle(document.querySelector('{talk}')).display"
+            )),
+            "block"
+        );
+        assert_eq!(
+            s.eval(&format!("{APART}('{current}','{talk}')")),
+            json!(true),
+            "{w}x{h}: notes over the frame"
+        );
+        s.press("n", 78);
+        s.press("d", 68);
+        assert_eq!(
+            s.eval("document.body.classList.contains('desk-shown')"),
+            true
+        );
+        assert_eq!(
+            s.eval(&format!("{APART}('{current}','{talk}')")),
+            json!(true),
+            "{w}x{h}: desk notes over the frame"
+        );
+        assert_eq!(
+            s.eval(&format!("{APART}('{current}','.frame.coming svg')")),
+            json!(true),
+            "{w}x{h}: next frame over this one"
+        );
+        assert_eq!(
+            s.eval(&format!("{APART}('.frame.coming svg','{talk}')")),
+            json!(true),
+            "{w}x{h}: notes over the next frame"
+        );
+        let clock = s.eval("document.getElementById('clock').textContent");
+        assert!(
+            clock.as_str().is_some_and(|c| c.starts_with("0:0")),
+            "{clock}"
+        );
+        // the keys still move on with the desk open
+        s.press("ArrowRight", 39);
+        assert_ne!(s.eval("document.querySelector('.frame.current').id"), shown);
+        s.press("ArrowLeft", 37);
+        s.press("d", 68);
+        let size =
+            s.eval("parseFloat(getComputedStyle(document.getElementById('where')).fontSize)");
+        let size = size.as_f64().unwrap();
+        assert!(
+            size >= 13.0 && size >= f64::from(h.min(w)) * 0.02,
+            "{w}x{h}: counter at {size} px"
+        );
+        s.press("Home", 36);
+    }
+    s.call(
+        "Emulation.setDeviceMetricsOverride",
+        json!({"width": 1280, "height": 720, "deviceScaleFactor": 1, "mobile": false}),
     );
 
     // Every frame keeps its text alternative for screen readers.
