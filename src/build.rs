@@ -17,7 +17,7 @@ pub fn run(
     draft: bool,
     no_cache: bool,
     format: &[Export],
-    (scale, transparent): (u32, bool),
+    (scale, transparent, bookends): (u32, bool, bool),
     data: &DataArgs,
     lint: &LintArgs,
     color: bool,
@@ -29,6 +29,7 @@ pub fn run(
         png: format.contains(&Export::Png),
         scale,
         transparent,
+        bookends,
     };
     build_with(story, out, draft, !no_cache, &exports, data, lint, color)
 }

@@ -232,6 +232,10 @@ pub enum Command {
         /// PNG is painted with the theme's page colour.
         #[arg(long)]
         transparent: bool,
+        /// The HTML deck without its opening frame (title, byline, source)
+        /// and closing frame (the conclusion).
+        #[arg(long)]
+        frames_only: bool,
         #[command(flatten)]
         data: DataArgs,
         #[command(flatten)]

@@ -41,6 +41,9 @@ pub struct Exports {
     pub scale: u32,
     /// PNG frames without the painted page (`--transparent`).
     pub transparent: bool,
+    /// The HTML deck opens with a frame of the title, byline and source and
+    /// closes with the conclusion (off with `--frames-only`).
+    pub bookends: bool,
 }
 
 impl Default for Exports {
@@ -53,6 +56,7 @@ impl Default for Exports {
             png: false,
             scale: 2,
             transparent: false,
+            bookends: true,
         }
     }
 }
@@ -177,7 +181,7 @@ pub fn render_files(
             .iter()
             .zip(svgs.iter().map(String::as_str))
             .collect();
-        let html = crescendo_render::render_deck_html(plan, &pairs);
+        let html = crescendo_render::render_deck_html_with(plan, &pairs, exports.bookends);
         files.push(("index.html".to_string(), html.into_bytes()));
     }
     files.push((MANIFEST.to_string(), manifest.into_bytes()));

@@ -56,6 +56,7 @@ fn main() -> ExitCode {
             format,
             scale,
             transparent,
+            frames_only,
             data,
             lint,
         } => build::run(
@@ -64,7 +65,7 @@ fn main() -> ExitCode {
             draft,
             no_cache,
             &format,
-            (scale, transparent),
+            (scale, transparent, !frames_only),
             &data,
             &lint,
             color,

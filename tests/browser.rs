@@ -299,8 +299,11 @@ fn the_deck_works_in_a_real_browser() {
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     let manifest: Value =
         serde_json::from_slice(&std::fs::read(deck.join("deck.json")).unwrap()).unwrap();
-    let n = manifest["frames"].as_array().unwrap().len();
-    assert!(n >= 3);
+    let charts = manifest["frames"].as_array().unwrap().len();
+    assert!(charts >= 3);
+    // the opening frame (title, byline, source) and the closing frame (the
+    // conclusion) are frames of the HTML deck too
+    let n = charts + 2;
     let index: PathBuf = deck.join("index.html").canonicalize().unwrap();
 
     let profile = dir.join("profile");
@@ -323,6 +326,20 @@ fn the_deck_works_in_a_real_browser() {
     s.wait_for("Page.loadEventFired");
     assert_eq!(s.eval("document.readyState"), "complete");
 
+    assert_eq!(
+        s.eval("document.querySelectorAll('section.frame').length"),
+        json!(n)
+    );
+    assert_eq!(
+        s.eval("document.querySelector('#frame-1 .opening-title').textContent"),
+        manifest["title"]
+    );
+    assert_eq!(
+        s.eval(&format!(
+            "document.querySelector('#frame-{n} .closing-line').textContent"
+        )),
+        manifest["conclusion"]
+    );
     // Keys move between frames; exactly one frame shows, the expected one.
     assert_eq!(visible(&mut s), ["frame-1"]);
     let steps: [(&str, u32, usize); 6] = [
@@ -351,7 +368,9 @@ fn the_deck_works_in_a_real_browser() {
         );
     }
 
-    // The notes button works without the keyboard and does not move on.
+    // The notes button works without the keyboard and does not move on
+    // (on the first chart frame, which has notes).
+    s.press("ArrowRight", 39);
     s.eval("document.getElementById('talk-switch').click()");
     assert_eq!(
         s.eval("document.body.classList.contains('talk-shown')"),
@@ -362,15 +381,16 @@ fn the_deck_works_in_a_real_browser() {
         "true"
     );
     assert_eq!(
-        s.eval("getComputedStyle(document.querySelector('#frame-1 .talk')).display"),
+        s.eval("getComputedStyle(document.querySelector('#frame-2 .talk')).display"),
         "block"
     );
-    assert_eq!(visible(&mut s), ["frame-1"]);
+    assert_eq!(visible(&mut s), ["frame-2"]);
     s.eval("document.getElementById('talk-switch').click()");
     assert_eq!(
         s.eval("document.body.classList.contains('talk-shown')"),
         false
     );
+    s.press("Home", 36);
 
     // Notes and the speaker's desk never cover the frame, at a laptop's
     // and a projector's window size; the controls grow with the window.
@@ -379,9 +399,10 @@ fn the_deck_works_in_a_real_browser() {
             "Emulation.setDeviceMetricsOverride",
             json!({"width": w, "height": h, "deviceScaleFactor": 1, "mobile": false}),
         );
+        s.press("ArrowRight", 39);
         let shown = s.eval("document.querySelector('.frame.current').id");
-        assert_eq!(shown, "frame-1", "the first frame has notes");
-        assert_eq!(s.eval("!!document.querySelector('#frame-1 .talk')"), true);
+        assert_eq!(shown, "frame-2", "the first chart frame has notes");
+        assert_eq!(s.eval("!!document.querySelector('#frame-2 .talk')"), true);
         assert_eq!(
             s.eval(&format!(
                 "{APART}('#{} svg','#{} .talk')",
@@ -458,7 +479,7 @@ fn the_deck_works_in_a_real_browser() {
            return v.getAttribute('role')==='img'&&t&&t.textContent.length>0&&d&&d.textContent.length>0;\
          }).length",
     );
-    assert_eq!(named, json!(n));
+    assert_eq!(named, json!(charts));
 
     // A screenshot shows the frame: a PNG with ink on it.
     let shot = s.call("Page.captureScreenshot", json!({"format": "png"}));
@@ -522,10 +543,11 @@ fn script_in_story_or_data_never_runs_in_the_deck() {
         json!({"url": format!("file://{}", index.display())}),
     );
     s.wait_for("Page.loadEventFired");
-    // the deck's own script ran (it set the counter) ...
+    // the deck's own script ran (it set the counter; the one frame between
+    // the opening and the closing frame) ...
     assert_eq!(
         s.eval("document.getElementById('where').textContent"),
-        "1 / 1"
+        "1 / 3"
     );
     // ... and nothing from the data or the story did
     assert_eq!(s.eval("typeof window.__pwned"), "undefined");

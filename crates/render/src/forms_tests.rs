@@ -430,9 +430,9 @@ fn scatter_with_fit() {
     assert_eq!(count(&svg, "circle", "fill", ACCENT), 2);
     assert_eq!(count(&svg, "circle", "fill", "#848484"), 8);
     assert_eq!(
-        count(&svg, "polyline", "stroke", "#5A5A5A"),
+        count(&svg, "polyline", "stroke", "#848484"),
         1,
-        "the fit line"
+        "the fit line, in the context grey"
     );
     let hidden = render(scatter_chart(true));
     check(&hidden);

@@ -54,6 +54,10 @@ body{{overflow:hidden}}
 body.talk-shown .frame.current{{bottom:34vh}}
 body.talk-shown .frame.current .talk{{display:block}}
 .clock{{display:none}}
+.bookend{{flex-direction:column;align-items:flex-start;justify-content:center;padding:8vmin 10vmin}}
+.opening-title{{margin:0 0 0.5em;font-size:clamp(28px,7vmin,96px);line-height:1.15}}
+.closing-line{{margin:0 0 1em;font-size:clamp(24px,5.5vmin,72px);font-weight:bold;line-height:1.25;max-width:28em}}
+.byline,.origin{{margin:0.2em 0;font-size:clamp(16px,3vmin,40px);color:{muted}}}
 body.desk-shown .frame.current{{top:3.2em;right:36vw;bottom:0;left:0}}
 body.desk-shown .frame.coming{{display:flex;top:3.2em;left:64vw;right:0;bottom:auto;height:calc(36vw * 9 / 16);padding:1vmin;opacity:0.85}}
 body.desk-shown .frame.coming .talk{{display:none}}
@@ -67,6 +71,10 @@ html,body{{height:auto;overflow:visible}}
 .frame:last-child{{break-after:auto;page-break-after:auto}}
 .frame svg{{width:100%;height:auto;max-height:100vh}}
 .where,.controls,.clock{{display:none}}
+.bookend{{flex-direction:column;align-items:flex-start;justify-content:center;padding:8vmin 10vmin}}
+.opening-title{{margin:0 0 0.5em;font-size:clamp(28px,7vmin,96px);line-height:1.15}}
+.closing-line{{margin:0 0 1em;font-size:clamp(24px,5.5vmin,72px);font-weight:bold;line-height:1.25;max-width:28em}}
+.byline,.origin{{margin:0.2em 0;font-size:clamp(16px,3vmin,40px);color:{muted}}}
 .talk,body.talk-shown .frame.current .talk{{display:none}}
 body.talk-shown .frame .talk{{display:block;position:static;max-height:none;border:0;padding:0.5em 0;background:none;font-size:12pt}}
 }}
@@ -139,6 +147,42 @@ show(fromHash(),false);
 /// page. The SVG strings are trusted output of [`crate::render_frame`];
 /// every other text is escaped.
 pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> String {
+    render_deck_html_with(deck, frames, false)
+}
+
+/// The opening frame's content: the story's title, byline and source.
+fn opening_page(deck: &DeckPlan) -> String {
+    let mut page = format!("<h1 class=\"opening-title\">{}</h1>\n", escape(&deck.title));
+    for (class, text) in [("byline", &deck.byline), ("origin", &deck.source)] {
+        if let Some(t) = text.as_deref().filter(|t| !t.trim().is_empty()) {
+            let _ = writeln!(page, "<p class=\"{class}\">{}</p>", escape(t.trim()));
+        }
+    }
+    page
+}
+
+/// The closing frame's content: the story's conclusion, when it states one.
+fn closing_page(deck: &DeckPlan) -> Option<String> {
+    let conclusion = deck
+        .conclusion
+        .as_deref()
+        .filter(|c| !c.trim().is_empty())?;
+    Some(format!(
+        "<p class=\"closing-line\">{}</p>\n<p class=\"origin\">{}</p>\n",
+        escape(conclusion.trim()),
+        escape(&deck.title)
+    ))
+}
+
+/// [`render_deck_html`], with an opening frame (title, byline, source)
+/// before the frames and a closing frame (the conclusion) after them when
+/// `bookends` is set: sections like the others, counted and numbered with
+/// them.
+pub fn render_deck_html_with(
+    deck: &DeckPlan,
+    frames: &[(&FramePlan, &str)],
+    bookends: bool,
+) -> String {
     let mut out = String::new();
     // the audience's language: the story's locale, else English
     let lang = deck.locale.as_deref().unwrap_or("en");
@@ -163,16 +207,28 @@ pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> Strin
         "<main aria-roledescription=\"slide deck\" aria-label=\"{}\">",
         escape(&deck.title)
     );
-    let total = frames.len();
-    for (i, (frame, svg)) in frames.iter().enumerate() {
+    let opening = bookends.then(|| opening_page(deck));
+    let closing = if bookends { closing_page(deck) } else { None };
+    let total = frames.len() + usize::from(opening.is_some()) + usize::from(closing.is_some());
+    let mut i = 0;
+    let mut open = |out: &mut String, kind: &str, label: &str| {
         let current = if i == 0 { " current" } else { "" };
         let _ = writeln!(
             out,
-            "<section class=\"frame{current}\" id=\"frame-{}\" aria-roledescription=\"slide\" aria-label=\"{}\" aria-hidden=\"{}\">",
+            "<section class=\"frame{kind}{current}\" id=\"frame-{}\" aria-roledescription=\"slide\" aria-label=\"{}\" aria-hidden=\"{}\">",
             i + 1,
-            escape(&frame.headline),
+            escape(label),
             if i == 0 { "false" } else { "true" }
         );
+        i += 1;
+    };
+    if let Some(page) = &opening {
+        open(&mut out, " bookend", &deck.title);
+        out.push_str(page);
+        out.push_str("</section>\n");
+    }
+    for (frame, svg) in frames {
+        open(&mut out, "", &frame.headline);
         out.push_str(strip_xml_prolog(svg).trim());
         out.push('\n');
         if let Some(notes) = frame.notes.as_deref().filter(|n| !n.trim().is_empty()) {
@@ -182,6 +238,11 @@ pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> Strin
                 escape(notes.trim())
             );
         }
+        out.push_str("</section>\n");
+    }
+    if let Some(page) = &closing {
+        open(&mut out, " bookend", "Conclusion");
+        out.push_str(page);
         out.push_str("</section>\n");
     }
     out.push_str("</main>\n");

@@ -43,7 +43,7 @@ use std::fmt;
 
 pub use crescendo_look::display::DisplayList;
 pub use crescendo_look::metrics;
-pub use html::{render_deck_html, with_extra_script};
+pub use html::{render_deck_html, render_deck_html_with, with_extra_script};
 pub use lttb::lttb;
 pub use theme::{Rgb, Theme};
 

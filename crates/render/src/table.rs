@@ -49,45 +49,12 @@ pub(crate) fn draw(
         return Ok(());
     }
     let lh = line_height(theme.label_size);
-    let mut widths: Vec<f64> = chart
-        .columns
-        .iter()
-        .enumerate()
-        .map(|(c, col)| {
-            chart
-                .rows
-                .iter()
-                .filter_map(|r| r.cells.get(c))
-                .map(|t| text_width(&metrics::normalize(t), theme.label_size, true))
-                .fold(
-                    text_width(&metrics::normalize(&col.title), theme.label_size, true),
-                    f64::max,
-                )
-        })
-        .collect();
-    let inner = region.right - region.left - 2.0 * BAND_OVERHANG;
-    let gaps = (ncol - 1) as f64 * COLUMN_GAP;
-    let natural: f64 = widths.iter().sum();
-    if natural + gaps > inner && natural > 0.0 {
-        let k = ((inner - gaps) / natural).max(0.0);
-        for w in &mut widths {
-            *w *= k;
-        }
-    }
-    // Spread over the width: the room left over goes into the gaps.
-    let gap = if ncol > 1 && natural + gaps < inner {
-        ((inner - natural) / (ncol - 1) as f64).min(MAX_COLUMN_GAP)
-    } else {
-        COLUMN_GAP
-    };
+    let (widths, lefts) = columns(theme, chart, region);
     let table_left = region.left + BAND_OVERHANG;
-    let mut lefts = Vec::with_capacity(ncol);
-    let mut x = table_left;
-    for w in &widths {
-        lefts.push(x);
-        x += w + gap;
-    }
-    let table_right = x - gap;
+    let table_right = lefts
+        .last()
+        .zip(widths.last())
+        .map_or(table_left, |(l, w)| l + w);
     let anchor = |c: usize| -> (f64, Align) {
         if chart.columns[c].numeric {
             (lefts[c] + widths[c], Align::End)
@@ -195,6 +162,51 @@ pub(crate) fn draw(
         })?;
     }
     Ok(())
+}
+
+/// The columns' widths and left edges: as wide as their widest text,
+/// shrunk together when the table is wider than the region, spread apart
+/// over its width when narrower.
+fn columns(theme: &Theme, chart: &TableChart, region: Region) -> (Vec<f64>, Vec<f64>) {
+    let ncol = chart.columns.len();
+    let mut widths: Vec<f64> = chart
+        .columns
+        .iter()
+        .enumerate()
+        .map(|(c, col)| {
+            chart
+                .rows
+                .iter()
+                .filter_map(|r| r.cells.get(c))
+                .map(|t| text_width(&metrics::normalize(t), theme.label_size, true))
+                .fold(
+                    text_width(&metrics::normalize(&col.title), theme.label_size, true),
+                    f64::max,
+                )
+        })
+        .collect();
+    let inner = region.right - region.left - 2.0 * BAND_OVERHANG;
+    let gaps = ncol.saturating_sub(1) as f64 * COLUMN_GAP;
+    let natural: f64 = widths.iter().sum();
+    if natural + gaps > inner && natural > 0.0 {
+        let k = ((inner - gaps) / natural).max(0.0);
+        for w in &mut widths {
+            *w *= k;
+        }
+    }
+    // Spread over the width: the room left over goes into the gaps.
+    let gap = if ncol > 1 && natural + gaps < inner {
+        ((inner - natural) / (ncol - 1) as f64).min(MAX_COLUMN_GAP)
+    } else {
+        COLUMN_GAP
+    };
+    let mut lefts = Vec::with_capacity(ncol);
+    let mut x = region.left + BAND_OVERHANG;
+    for w in &widths {
+        lefts.push(x);
+        x += w + gap;
+    }
+    (widths, lefts)
 }
 
 /// The slot of the "… N more rows" line, and N.

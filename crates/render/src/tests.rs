@@ -899,3 +899,31 @@ fn one_grid_for_every_frame_of_the_deck() {
     assert_eq!(regions[0].tick_column(1.0), regions[0].gutter.max(1.0));
     assert_eq!(regions[0].tick_column(0.0), 0.0);
 }
+
+// The opening frame shows the title, byline and source; the closing frame
+// the conclusion; both are counted with the chart frames, escaped, and
+// left out when asked.
+#[test]
+fn deck_html_opens_and_closes_with_frames_of_its_own() {
+    let f1 = frame(1, 1, "First", None, line_chart());
+    let mut d = deck(vec![f1.clone()]);
+    d.byline = Some("Housing team <east>".into());
+    d.source = Some("Invented survey".into());
+    d.conclusion = Some("Fund the uplands & coast".into());
+    let s1 = render_frame(&d, &f1).unwrap();
+    let html = crate::render_deck_html_with(&d, &[(&f1, &s1)], true);
+    assert_eq!(html.matches("<section ").count(), 3);
+    assert!(html.contains("class=\"frame bookend current\" id=\"frame-1\""));
+    assert!(html.contains("<p class=\"byline\">Housing team &lt;east&gt;</p>"));
+    assert!(html.contains("<p class=\"origin\">Invented survey</p>"));
+    assert!(html.contains("id=\"frame-3\""));
+    assert!(html.contains("<p class=\"closing-line\">Fund the uplands &amp; coast</p>"));
+    assert!(html.contains(">1 / 3</div>"));
+    // no conclusion, no closing frame; switched off, neither
+    d.conclusion = None;
+    let html = crate::render_deck_html_with(&d, &[(&f1, &s1)], true);
+    assert_eq!(html.matches("<section ").count(), 2);
+    let bare = crate::render_deck_html_with(&d, &[(&f1, &s1)], false);
+    assert_eq!(bare, render_deck_html(&d, &[(&f1, &s1)]));
+    assert_eq!(bare.matches("<section ").count(), 1);
+}
