@@ -223,6 +223,21 @@ pub enum Item {
         /// Fill colour.
         color: Rgb,
     },
+    /// A filled circular sector (a pie slice), drawn as a true arc: from
+    /// angle `from` to `to` in radians, clockwise from 12 o'clock; a whole
+    /// turn is a disc.
+    Wedge {
+        /// Centre.
+        centre: (f64, f64),
+        /// Radius in px.
+        radius: f64,
+        /// Start angle.
+        from: f64,
+        /// End angle (greater than `from`).
+        to: f64,
+        /// Fill colour.
+        color: Rgb,
+    },
     /// Items that belong together, with what they are.
     Group {
         /// What the group is.
@@ -275,6 +290,7 @@ impl DisplayList {
                     }
                     Item::Rect { color, .. }
                     | Item::Dot { color, .. }
+                    | Item::Wedge { color, .. }
                     | Item::Polygon { color, .. } => Some(Mark {
                         color: *color,
                         fill: true,

@@ -149,6 +149,26 @@ impl Canvas {
         })
     }
 
+    /// A pie slice as a true arc ([`Item::Wedge`]).
+    pub fn wedge(
+        &self,
+        centre: (f64, f64),
+        radius: f64,
+        (from, to): (f64, f64),
+        color: Rgb,
+    ) -> Result<(), RenderError> {
+        if !(to > from) || radius <= 0.0 {
+            return Ok(());
+        }
+        self.push(Item::Wedge {
+            centre,
+            radius,
+            from,
+            to,
+            color,
+        })
+    }
+
     /// The items drawn, in order.
     pub fn finish(self) -> Vec<Item> {
         let mut open = self.open.into_inner();

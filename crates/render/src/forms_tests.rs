@@ -614,14 +614,22 @@ fn pie() {
     let svg = render(pie_chart(false));
     let boxes = check(&svg);
     assert!(has(&boxes, "Westbrook 38%") && has(&boxes, "Other pools 5%"));
-    assert_eq!(count(&svg, "polygon", "fill", ACCENT), 1);
+    // slices are true arcs: SVG paths with an elliptical-arc command, no
+    // polygons (and no placeholder left behind)
+    assert_eq!(count(&svg, "path", "fill", ACCENT), 1);
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    let paths: Vec<&str> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("path"))
+        .filter_map(|n| n.attribute("d"))
+        .collect();
+    assert_eq!(paths.len(), 5);
+    assert!(paths.iter().all(|d| d.contains(" A") && d.ends_with('Z')));
     assert_eq!(
-        roxmltree::Document::parse(&svg)
-            .unwrap()
-            .descendants()
+        doc.descendants()
             .filter(|n| n.has_tag_name("polygon"))
             .count(),
-        5
+        0
     );
     // The first slice starts at twelve o'clock and runs clockwise, so the
     // focus label is on the right.

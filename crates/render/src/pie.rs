@@ -76,15 +76,7 @@ pub(crate) fn draw(
         if a1 - a0 <= 0.0 {
             continue;
         }
-        let steps = (((a1 - a0) / TAU) * 180.0).ceil().max(1.0) as usize;
-        let mut pts = Vec::with_capacity(steps + 2);
-        if a1 - a0 < TAU - 1e-9 {
-            pts.push(c);
-        }
-        for k in 0..=steps {
-            pts.push(at(c, radius, a0 + (a1 - a0) * k as f64 / steps as f64));
-        }
-        canvas.polygon(&pts, color)?;
+        canvas.wedge(c, radius, (a0, a1), color)?;
     }
     // Cuts between slices, where at least one neighbour is drawn.
     let n = chart.slices.len();
