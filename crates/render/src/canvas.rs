@@ -157,7 +157,12 @@ impl Canvas {
         (from, to): (f64, f64),
         color: Rgb,
     ) -> Result<(), RenderError> {
-        if !(to > from) || radius <= 0.0 {
+        if !to.is_finite()
+            || !from.is_finite()
+            || to <= from
+            || !radius.is_finite()
+            || radius <= 0.0
+        {
             return Ok(());
         }
         self.push(Item::Wedge {
