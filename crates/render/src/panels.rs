@@ -148,16 +148,8 @@ pub(crate) fn draw(
         let left = plot_left(col);
         let right = left + plot_w;
         if panel.role != Role::Hidden {
-            // Every title starts at its own plot's left edge, the first
-            // panel's too (not over the tick column).
-            panel_title(
-                canvas,
-                theme,
-                panel,
-                (left, right),
-                cell_top,
-                &mut obstacles,
-            )?;
+            let span = (left, right); // at its own plot's left edge
+            panel_title(canvas, theme, panel, span, cell_top, &mut obstacles)?;
         }
         let plot_top = cell_top + lh + 8.0 + slh / 2.0;
         let tick_top = cell_bottom - slh;
