@@ -108,6 +108,16 @@ pub fn look_span(input: &Input) -> Span {
         .unwrap_or(0..0)
 }
 
+/// Where a finding about frame `i` points: its headline, or the look's
+/// place when the frame has no anchors.
+pub fn frame_span(input: &Input, i: usize) -> Span {
+    input
+        .anchors
+        .frames
+        .get(i)
+        .map_or_else(|| look_span(input), |fa| fa.headline.clone())
+}
+
 /// A theme colour as an 8-bit colour for the colour science.
 pub fn rgb8(c: crescendo_look::Rgb) -> Rgb8 {
     Rgb8 {
