@@ -7,7 +7,7 @@ use crescendo_frame::{DeckPlan, FramePlan};
 use std::fmt::Write;
 
 /// Escapes text for HTML element content and attribute values.
-pub(crate) fn escape(text: &str) -> String {
+pub fn escape(text: &str) -> String {
     let mut out = String::with_capacity(text.len());
     for c in text.chars() {
         match c {

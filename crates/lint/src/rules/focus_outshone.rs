@@ -4,7 +4,7 @@ use crescendo_diag::Severity;
 use crescendo_look::theme::{lightness, LIGHTNESS_STEP};
 use crescendo_look::Rgb;
 
-use super::util::{frame_span, look_span};
+use super::util::colour_span;
 use crate::{Doc, Finding, Input, Rule};
 
 pub static RULE: Rule = Rule {
@@ -59,13 +59,9 @@ fn outshines(input: &Input, frame: Option<usize>, what: &str, grey: Rgb, out: &m
         return;
     }
     let way = if t.light_page() { "lighter" } else { "dimmer" };
-    let span = match frame {
-        Some(i) => frame_span(input, i),
-        None => look_span(input),
-    };
     out.push(Finding {
         frame,
-        span,
+        span: colour_span(input, frame),
         label: format!(
             "{what} {} at L* {:.1}, the accent {} at L* {:.1}",
             grey.hex(),

@@ -4,7 +4,7 @@
 use crescendo_diag::Severity;
 use crescendo_look::Rgb;
 
-use super::util::{frame_span, look_span, rgb8};
+use super::util::{colour_span, rgb8};
 use crate::colour::contrast_ratio;
 use crate::{Doc, Finding, Input, Rule};
 
@@ -59,13 +59,9 @@ fn faint(input: &Input, frame: Option<usize>, what: &str, colour: Rgb, out: &mut
     if ratio >= MINIMUM {
         return;
     }
-    let span = match frame {
-        Some(i) => frame_span(input, i),
-        None => look_span(input),
-    };
     out.push(Finding {
         frame,
-        span,
+        span: colour_span(input, frame),
         label: format!("{what} {} is {ratio:.2}:1 on {}", colour.hex(), page.hex()),
         message: format!("{what} marks are too faint: {ratio:.2}:1, below 3:1"),
         fix: "use a darker colour for the marks (WCAG 2.1 SC 1.4.11)".into(),
