@@ -188,7 +188,20 @@ fn exit_statuses_follow_claims_and_changes() {
     let resolved = crescendo(&dir, &["review", "story.cresc", "--format", "json"]);
     let v: Value = serde_json::from_str(&text(&resolved).0).unwrap();
     assert_eq!(v["lint"]["added"], serde_json::json!([]));
-    assert!(v["lint"]["removed"][0]
+    // deck-wide, naming its frame; and on the frame it was about
+    let removed = v["lint"]["removed"][0].as_str().unwrap();
+    assert!(
+        removed.starts_with("frame ") && removed.contains(": colour-key-text"),
+        "{removed}"
+    );
+    let on_frame: Vec<&Value> = v["frames"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|f| f["lint_removed"].as_array().is_some_and(|l| !l.is_empty()))
+        .collect();
+    assert_eq!(on_frame.len(), 1, "{v}");
+    assert!(on_frame[0]["lint_removed"][0]
         .as_str()
         .unwrap()
         .starts_with("colour-key-text"));

@@ -12,7 +12,8 @@ use serde::Serialize;
 pub struct Side<'a> {
     pub plan: &'a DeckPlan,
     pub svgs: Vec<String>,
-    pub lint: Vec<String>,
+    /// Each finding with the number of the frame it is about.
+    pub lint: Vec<(Option<usize>, String)>,
 }
 
 #[derive(Serialize, Clone, Copy, PartialEq, Eq, Debug)]
@@ -60,6 +61,9 @@ pub struct FrameReview {
     /// Sentences of the reviewed claims that rest on a value this frame
     /// quotes.
     pub claims: Vec<String>,
+    /// Lint findings about this frame that are new, and that are gone.
+    pub lint_added: Vec<String>,
+    pub lint_removed: Vec<String>,
     #[serde(skip)]
     pub old_svg: Option<String>,
     #[serde(skip)]
@@ -320,6 +324,8 @@ pub fn frames(old: &Side, new: &Side) -> Vec<FrameReview> {
                     texts,
                     figures,
                     claims: Vec::new(),
+                    lint_added: Vec::new(),
+                    lint_removed: Vec::new(),
                     old_svg: old.svgs.get(i).cloned(),
                     new_svg: new.svgs.get(j).cloned(),
                 }
@@ -348,6 +354,8 @@ fn lone(f: &FramePlan, status: Status, svg: Option<&String>) -> FrameReview {
         texts: Vec::new(),
         figures: Vec::new(),
         claims: Vec::new(),
+        lint_added: Vec::new(),
+        lint_removed: Vec::new(),
         old_svg: old.and(svg.cloned()),
         new_svg: new.and(svg.cloned()),
     }
@@ -437,25 +445,56 @@ fn link(frames: &mut [FrameReview], claims: &[ClaimReview], old: &DeckPlan, new:
     }
 }
 
+/// Lint findings that came and went: a finding about a frame is the same
+/// finding when its text is the same and its frame is the paired one. Each
+/// frame gets its own; the deck-wide lists name the frame.
+fn lint_changes(old: &Side, new: &Side, frames: &mut [FrameReview]) -> Lint {
+    // old frame number -> new frame number, for paired frames
+    let paired: Vec<(usize, usize)> = frames
+        .iter()
+        .filter_map(|f| Some((f.old?, f.new?)))
+        .collect();
+    let to_new = |o: Option<usize>| -> Option<Option<usize>> {
+        match o {
+            None => Some(None),
+            Some(o) => paired.iter().find(|p| p.0 == o).map(|p| Some(p.1)),
+        }
+    };
+    let named = |frame: Option<usize>, text: &str| match frame {
+        Some(n) => format!("frame {n}: {text}"),
+        None => text.to_string(),
+    };
+    let mut lint = Lint::default();
+    for (f, text) in &new.lint {
+        let was = old
+            .lint
+            .iter()
+            .any(|(o, t)| t == text && to_new(*o) == Some(*f));
+        if !was {
+            lint.added.push(named(*f, text));
+            if let Some(fr) = frames.iter_mut().find(|fr| f.is_some() && fr.new == *f) {
+                fr.lint_added.push(text.clone());
+            }
+        }
+    }
+    for (o, text) in &old.lint {
+        let stays = to_new(*o).is_some_and(|f| new.lint.iter().any(|(n, t)| t == text && *n == f));
+        if !stays {
+            lint.removed.push(named(*o, text));
+            if let Some(fr) = frames.iter_mut().find(|fr| o.is_some() && fr.old == *o) {
+                fr.lint_removed.push(text.clone());
+            }
+        }
+    }
+    lint
+}
+
 /// The whole review.
 pub fn review(old: &Side, new: &Side, against: (&str, &str), near: f64) -> Review {
     let mut frames = frames(old, new);
     let claims = claims(old.plan, new.plan, near);
     link(&mut frames, &claims, old.plan, new.plan);
-    let lint = Lint {
-        added: new
-            .lint
-            .iter()
-            .filter(|l| !old.lint.contains(l))
-            .cloned()
-            .collect(),
-        removed: old
-            .lint
-            .iter()
-            .filter(|l| !new.lint.contains(l))
-            .cloned()
-            .collect(),
-    };
+    let lint = lint_changes(old, new, &mut frames);
     let count = |s: Status| frames.iter().filter(|f| f.status == s).count();
     let counts = Counts {
         changed: count(Status::Changed),

@@ -50,6 +50,12 @@ pub fn what_changed(f: &FrameReview) -> Vec<String> {
     for sentence in &f.claims {
         parts.push(format!("rests on “{sentence}”"));
     }
+    for l in &f.lint_added {
+        parts.push(format!("new lint finding: {l}"));
+    }
+    for l in &f.lint_removed {
+        parts.push(format!("lint finding gone: {l}"));
+    }
     if f.status == Status::Changed
         && f.picture_changed
         && f.figures.is_empty()
@@ -111,7 +117,9 @@ pub fn write(r: &Review) -> String {
     let changed: Vec<&FrameReview> = r
         .frames
         .iter()
-        .filter(|f| f.status != Status::Unchanged)
+        .filter(|f| {
+            f.status != Status::Unchanged || !f.lint_added.is_empty() || !f.lint_removed.is_empty()
+        })
         .collect();
     if !changed.is_empty() {
         out.push_str("\n### Frames\n\n| frame | headline | what changed |\n| --- | --- | --- |\n");

@@ -73,12 +73,21 @@ fn draw<'a>(planned: &'a Planned, lint: &LintArgs) -> Result<Side<'a>, Diagnosti
     }
     let lint = crate::planning::run_lint(planned, lint)
         .iter()
-        .map(|d| format!("{}: {}", d.code, d.message))
+        .map(|d| (finding_frame(d), format!("{}: {}", d.code, d.message)))
         .collect();
     Ok(Side {
         plan: &planned.plan,
         svgs,
         lint,
+    })
+}
+
+/// The number of the frame a lint finding is about (its `in frame N`
+/// note), or `None` for the whole story.
+fn finding_frame(d: &Diagnostic) -> Option<usize> {
+    d.notes.iter().find_map(|n| {
+        let rest = n.strip_prefix("in frame ")?;
+        rest.split(' ').next()?.parse().ok()
     })
 }
 

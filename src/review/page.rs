@@ -104,7 +104,8 @@ fn frame(out: &mut String, f: &FrameReview, r: &Review) {
         &format!("{} now", f.headline),
     ));
     out.push_str("</div>\n");
-    if f.status == Status::Changed {
+    let lint_changed = !f.lint_added.is_empty() || !f.lint_removed.is_empty();
+    if f.status == Status::Changed || lint_changed {
         out.push_str("<ul class=\"changes\">");
         for q in &f.figures {
             let show = |v: &Option<String>| escape(v.as_deref().unwrap_or("—"));
@@ -143,6 +144,12 @@ fn frame(out: &mut String, f: &FrameReview, r: &Review) {
         }
         if f.picture_changed && f.figures.is_empty() && f.texts.is_empty() {
             out.push_str("<li>the chart changed</li>");
+        }
+        for l in &f.lint_added {
+            let _ = write!(out, "<li>new lint finding: {}</li>", escape(l));
+        }
+        for l in &f.lint_removed {
+            let _ = write!(out, "<li>lint finding gone: {}</li>", escape(l));
         }
         out.push_str("</ul>\n");
     }
@@ -218,14 +225,19 @@ pub fn html(r: &Review) -> String {
     let mut i = 0;
     while i < r.frames.len() {
         let f = &r.frames[i];
-        if f.status != Status::Unchanged {
+        let lint_changed = !f.lint_added.is_empty() || !f.lint_removed.is_empty();
+        if f.status != Status::Unchanged || lint_changed {
             frame(&mut out, f, r);
             i += 1;
             continue;
         }
         let run: Vec<&FrameReview> = r.frames[i..]
             .iter()
-            .take_while(|f| f.status == Status::Unchanged)
+            .take_while(|f| {
+                f.status == Status::Unchanged
+                    && f.lint_added.is_empty()
+                    && f.lint_removed.is_empty()
+            })
             .collect();
         let numbers: Vec<String> = run
             .iter()
