@@ -12,7 +12,7 @@ use std::sync::Arc;
 
 use crescendo_diag::{closest, Diagnostic, Source};
 
-use crate::load::{parse_as, parse_number, Columns, CsvSpec, LoadError, ReadLimits};
+use crate::load::{parse_as, parse_number, Columns, CsvSpec, LoadError, ReadLimits, MAX_ERRORS};
 use crate::model::{Cell, ColType, Column, Table, Values};
 use crate::record::{field_span, forbidden_char, scan_fields, too_long, RawRecord, ScanError};
 use crate::time::{parse_date, parse_month};
@@ -102,6 +102,10 @@ pub(crate) struct Loader<'s> {
     pub(crate) columns: Vec<Builder>,
     /// Data rows read.
     pub(crate) rows: usize,
+    /// The located problems found so far, in file order: a bad row or cell
+    /// does not stop the read, so one run reports them all (up to
+    /// [`MAX_ERRORS`]).
+    errors: Vec<Diagnostic>,
 }
 
 /// How often (in rows) the memory the rows take is measured.
@@ -125,6 +129,56 @@ impl<'s> Loader<'s> {
             limits,
             columns: Vec::new(),
             rows: 0,
+            errors: Vec::new(),
+        }
+    }
+
+    /// Keep a row's or cell's problem and read on.
+    fn push(&mut self, e: LoadError) {
+        match e {
+            LoadError::Csv(d) => self.errors.push(d),
+            LoadError::Many(ds) => self.errors.extend(ds),
+            LoadError::Story { .. } => {}
+        }
+    }
+
+    /// Has the read found as many problems as it reports?
+    pub(crate) fn full(&self) -> bool {
+        self.errors.len() >= MAX_ERRORS
+    }
+
+    /// The problems found, as one error (`Ok` when there are none). At the
+    /// cap, the last one says that the read stopped there.
+    pub(crate) fn errors(&mut self) -> Result<(), LoadError> {
+        let mut ds = std::mem::take(&mut self.errors);
+        if ds.len() >= MAX_ERRORS {
+            if let Some(last) = ds.last_mut() {
+                let note = format!(
+                    "reading `{}` stopped at {MAX_ERRORS} errors (the most one read reports); \
+                     there may be more after this one",
+                    self.spec.display_name
+                );
+                *last = last.clone().note(note);
+            }
+        }
+        match ds.len() {
+            0 => Ok(()),
+            1 => Err(LoadError::Csv(ds.remove(0))),
+            _ => Err(LoadError::Many(ds)),
+        }
+    }
+
+    /// A problem that stops the read, after the ones found before it. A
+    /// problem not located in the file (a limit) waits until those are
+    /// fixed.
+    pub(crate) fn fatal(&mut self, e: LoadError) -> LoadError {
+        if self.errors.is_empty() {
+            return e;
+        }
+        self.push(e);
+        match self.errors() {
+            Err(all) => all,
+            Ok(()) => LoadError::Many(Vec::new()),
         }
     }
 
@@ -203,9 +257,13 @@ impl<'s> Loader<'s> {
         if index > 0 {
             self.check_rows(index)?;
         }
-        self.check_quotes(index, raw)?;
         if index == 0 {
+            self.check_quotes(index, raw)?;
             return self.header(record, raw);
+        }
+        if let Err(e) = self.check_quotes(index, raw) {
+            self.push(e);
+            return Ok(());
         }
         let n = self.columns.len();
         if record.len() != n {
@@ -238,14 +296,15 @@ impl<'s> Loader<'s> {
                     "every row needs one field per header column; quote fields that contain commas",
                 )
             };
-            return Err(LoadError::Csv(d));
+            self.push(LoadError::Csv(d));
+            return Ok(());
         }
         for (j, cell) in record.iter().enumerate() {
             let text = match std::str::from_utf8(cell) {
                 Ok(t) => t,
                 Err(_) => {
                     let name = &self.columns[j].name;
-                    return Err(LoadError::Csv(
+                    let e = LoadError::Csv(
                         self.located(
                             "bad-encoding",
                             format!("row {index}, column `{name}` is not valid UTF-8 text"),
@@ -254,27 +313,36 @@ impl<'s> Loader<'s> {
                             "invalid UTF-8",
                         )
                         .help("save the data file as UTF-8"),
-                    ));
+                    );
+                    self.cell_error(j, e);
+                    continue;
                 }
             };
             let col = &self.columns[j];
             if !col.keep && col.declared.is_none() {
                 continue;
             }
-            self.check_text(index, j, text, raw)?;
+            if let Err(e) = self.check_text(index, j, text, raw) {
+                self.cell_error(j, e);
+                continue;
+            }
             if self.spec.missing.iter().any(|m| m == text) {
                 if self.columns[j].keep {
                     self.columns[j].values.push_cell(Cell::Missing);
                 }
                 continue;
             }
-            let col = &mut self.columns[j];
-            let value = match col.declared {
+            let value = match self.columns[j].declared {
                 Some(ty) => match parse_as(ty, text) {
                     Some(v) => v,
-                    None => return Err(self.bad_value(index, j, ty, text, raw)),
+                    None => {
+                        let e = self.bad_value(index, j, ty, text, raw);
+                        self.cell_error(j, e);
+                        continue;
+                    }
                 },
                 None => {
+                    let col = &mut self.columns[j];
                     let inf = &mut col.infer;
                     inf.any = true;
                     inf.month = inf.month && parse_month(text).is_some();
@@ -286,12 +354,22 @@ impl<'s> Loader<'s> {
                     continue;
                 }
             };
+            let col = &mut self.columns[j];
             if col.keep {
                 col.values.push(value);
             }
         }
         self.rows += 1;
         Ok(())
+    }
+
+    /// A cell's problem: kept, and the cell read as missing so the
+    /// columns stay aligned while the read goes on.
+    fn cell_error(&mut self, j: usize, e: LoadError) {
+        self.push(e);
+        if self.columns[j].keep {
+            self.columns[j].values.push_cell(Cell::Missing);
+        }
     }
 
     /// May row `index` be read? Within the row limit, or (without one)

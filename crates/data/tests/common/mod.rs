@@ -57,6 +57,7 @@ pub fn load_err(name: &str, bytes: &[u8], declared: &[(&str, ColType)]) -> LoadE
 pub fn describe(e: &LoadError) -> String {
     match e {
         LoadError::Csv(d) => crescendo_diag::render(std::slice::from_ref(d), false),
+        LoadError::Many(ds) => crescendo_diag::render(ds, false),
         LoadError::Story {
             code,
             message,

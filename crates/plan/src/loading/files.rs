@@ -88,6 +88,19 @@ pub(crate) fn reported<T>(
             decl.file.span.clone(),
             format!("while loading `{}`", decl.name.name),
         ),
+        Err(LoadError::Many(ds)) => {
+            // every bad row and cell of the file, each located in it
+            let mut last = None;
+            for d in ds {
+                let d = d.also(
+                    cx.src,
+                    decl.file.span.clone(),
+                    format!("while loading `{}`", decl.name.name),
+                );
+                last = Some(cx.report(d));
+            }
+            return Err(last.unwrap_or_else(|| cx.already_reported()));
+        }
         Err(LoadError::Story {
             code,
             message,
