@@ -49,6 +49,7 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
         display_name: display.clone(),
         declared: Vec::new(),
         missing: vec![String::new(), "NA".into()],
+        numbers: Default::default(),
     };
     let mut table = load_csv(&spec).map_err(|e| match e {
         LoadError::Csv(d) => d,

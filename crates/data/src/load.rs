@@ -48,6 +48,7 @@ use std::path::PathBuf;
 
 use crescendo_diag::Diagnostic;
 
+use crate::digits::NumberStyle;
 use crate::files::ReadAt;
 use crate::loader::Loader;
 use crate::model::{ColType, Table, Value};
@@ -65,6 +66,9 @@ pub struct CsvSpec {
     pub declared: Vec<(String, ColType)>,
     /// Exact cell texts that mean "missing"; callers pass `["", "NA"]` by default.
     pub missing: Vec<String>,
+    /// How the file writes its numbers (the `thousands` and `decimal`
+    /// options); plain by default.
+    pub numbers: NumberStyle,
 }
 
 /// Limits on one read, so that a hostile or broken file stops with a clear
@@ -380,11 +384,12 @@ pub fn parse_number(s: &str) -> Option<f64> {
     s.parse::<f64>().ok().filter(|v| v.is_finite())
 }
 
-/// Parse one cell as `ty`; `None` when it does not parse.
-pub(crate) fn parse_as(ty: ColType, s: &str) -> Option<Value> {
+/// Parse one cell as `ty` (numbers written in `style`); `None` when it
+/// does not parse.
+pub(crate) fn parse_as(style: &NumberStyle, ty: ColType, s: &str) -> Option<Value> {
     match ty {
         ColType::Text => Some(Value::Text(s.to_owned())),
-        ColType::Number => parse_number(s).map(Value::Number),
+        ColType::Number => style.parse(s).map(Value::Number),
         ColType::Date => parse_date(s).map(Value::Date),
         ColType::Month => parse_month_or_date(s).map(Value::Month),
         ColType::Year => parse_year(s).map(Value::Year),

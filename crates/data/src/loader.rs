@@ -12,7 +12,7 @@ use std::sync::Arc;
 
 use crescendo_diag::{closest, Diagnostic, Source};
 
-use crate::load::{parse_as, parse_number, Columns, CsvSpec, LoadError, ReadLimits, MAX_ERRORS};
+use crate::load::{parse_as, Columns, CsvSpec, LoadError, ReadLimits, MAX_ERRORS};
 use crate::model::{Cell, ColType, Column, Table, Values};
 use crate::record::{field_span, forbidden_char, scan_fields, too_long, RawRecord, ScanError};
 use crate::time::{parse_date, parse_month};
@@ -333,7 +333,7 @@ impl<'s> Loader<'s> {
                 continue;
             }
             let value = match self.columns[j].declared {
-                Some(ty) => match parse_as(ty, text) {
+                Some(ty) => match parse_as(&self.spec.numbers, ty, text) {
                     Some(v) => v,
                     None => {
                         let e = self.bad_value(index, j, ty, text, raw);
@@ -342,12 +342,13 @@ impl<'s> Loader<'s> {
                     }
                 },
                 None => {
+                    let numbers = &self.spec.numbers;
                     let col = &mut self.columns[j];
                     let inf = &mut col.infer;
                     inf.any = true;
                     inf.month = inf.month && parse_month(text).is_some();
                     inf.date = inf.date && parse_date(text).is_some();
-                    inf.number = inf.number && parse_number(text).is_some();
+                    inf.number = inf.number && numbers.parse(text).is_some();
                     if col.keep {
                         col.values.push_cell(Cell::Text(text));
                     }
@@ -480,19 +481,15 @@ impl<'s> Loader<'s> {
             field_span(raw.bytes, j),
             expected(ty),
         );
-        d = if text.trim() != text && parse_as(ty, text.trim()).is_some() {
+        d = if text.trim() != text && parse_as(&self.spec.numbers, ty, text.trim()).is_some() {
             d.note("spaces are part of a CSV field, so the value is not read as trimmed")
                 .help(format!(
                     "remove the spaces around `{}` in the data file",
                     show(text.trim())
                 ))
-        } else if grouped_number(ty, text) {
+        } else if let Some(style) = number_hint(&self.spec.numbers, ty, text) {
             // a real value: never suggest reading it as missing
-            d.note("crescendo reads numbers without thousands separators")
-                .help(format!(
-                    "write `{}` without separators in the data file, or declare `{name}` as text",
-                    show(text)
-                ))
+            d.note(style.0).help(style.1)
         } else if !looks_missing(text) {
             // a value in another form ("eighty", "12a"): never suggest
             // reading it as missing
@@ -637,6 +634,7 @@ impl<'s> Loader<'s> {
             });
         }
         let rows = self.rows;
+        let numbers = self.spec.numbers;
         let columns = self
             .columns
             .into_iter()
@@ -655,7 +653,7 @@ impl<'s> Loader<'s> {
                 }
                 let values = if b.declared.is_none() && ty != ColType::Text {
                     // each distinct text is parsed once
-                    b.values.map_texts(|s| parse_as(ty, s))
+                    b.values.map_texts(|s| parse_as(&numbers, ty, s))
                 } else {
                     let mut v = b.values;
                     v.shrink_to_fit();
@@ -670,6 +668,47 @@ impl<'s> Loader<'s> {
             .collect();
         Ok(Table { columns })
     }
+}
+
+/// For a number cell written with groups or a decimal comma: a note on
+/// how the file is read and a help naming the data item's options that
+/// read it (`thousands ","`). `None` for a cell no such option reads.
+pub(crate) fn number_hint(
+    style: &crate::digits::NumberStyle,
+    ty: ColType,
+    text: &str,
+) -> Option<(String, String)> {
+    if ty != ColType::Number {
+        return None;
+    }
+    if !style.is_plain() {
+        let groups = match style.thousands {
+            Some(' ') => "grouped with spaces".to_owned(),
+            Some(t) => format!("grouped with `{t}`"),
+            None => "without groups".to_owned(),
+        };
+        let written = text.trim().chars().any(|c| c.is_ascii_digit())
+            && crate::digits::GROUPING.iter().any(|&g| text.contains(g));
+        return written.then(|| {
+            (
+                format!(
+                    "the data item reads numbers {groups} and with a decimal `{}`; digits after \
+                     a group separator come in groups of three",
+                    style.decimal
+                ),
+                "correct the cell in the data file, or change the data item's `thousands` and \
+                 `decimal` options"
+                    .to_owned(),
+            )
+        });
+    }
+    let options = crate::digits::suggest(text)?;
+    Some((
+        "numbers are read with a decimal point and no group separators unless the data item \
+         says otherwise"
+            .to_owned(),
+        format!("name how the file writes numbers on the data item: `{options}`"),
+    ))
 }
 
 /// Whether a cell reads as a placeholder for "no value" (`n.a.`, `-`,

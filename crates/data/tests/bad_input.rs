@@ -14,6 +14,7 @@ fn missing_file_is_a_story_error_naming_the_file() {
         display_name: "data/nope.csv".into(),
         declared: vec![],
         missing: vec![],
+        numbers: Default::default(),
     };
     match load_csv(&spec) {
         Err(LoadError::Story {
@@ -40,6 +41,7 @@ fn a_directory_is_not_readable_data() {
         display_name: "folder".into(),
         declared: vec![],
         missing: vec![],
+        numbers: Default::default(),
     };
     let err = load_csv(&spec).expect_err("a directory is not a CSV file");
     assert_eq!(err.code(), "data-file");
@@ -400,8 +402,8 @@ fn every_bad_row_and_cell_is_reported_at_once() {
     };
     // Worked out by hand: line 1 is the header, so data row N is line N+1;
     // columns count characters from 1 ("s2," is 3 wide, "s2,2024-13-01," 14).
-    let got: Vec<(&str, Option<(String, usize, usize)>)> =
-        ds.iter().map(|d| (d.code, d.location())).collect();
+    type At = Option<(String, usize, usize)>;
+    let got: Vec<(&str, At)> = ds.iter().map(|d| (d.code, d.location())).collect();
     let at = |line, col| Some(("hostile.csv".to_owned(), line, col));
     assert_eq!(
         got,
@@ -417,9 +419,18 @@ fn every_bad_row_and_cell_is_reported_at_once() {
     );
     assert_eq!(err.code(), "bad-value");
     let out = describe(&err);
-    assert!(out.contains("column `day` is declared date, but row 2 holds `2024-13-01`"), "{out}");
-    assert!(out.contains("column `riders` is declared number, but row 2 holds `eighty`"), "{out}");
-    assert!(out.contains("row 3 has 5 fields, but the header has 4"), "{out}");
+    assert!(
+        out.contains("column `day` is declared date, but row 2 holds `2024-13-01`"),
+        "{out}"
+    );
+    assert!(
+        out.contains("column `riders` is declared number, but row 2 holds `eighty`"),
+        "{out}"
+    );
+    assert!(
+        out.contains("row 3 has 5 fields, but the header has 4"),
+        "{out}"
+    );
     assert!(!out.contains("stopped at"), "{out}");
 }
 
@@ -431,7 +442,11 @@ fn bad_cells_beyond_the_cap_stop_the_read_and_say_so() {
     for i in 1..=30 {
         body.push_str(&format!("s{i},many{i}\n"));
     }
-    let err = load_err("capped.csv", body.as_bytes(), &[("riders", ColType::Number)]);
+    let err = load_err(
+        "capped.csv",
+        body.as_bytes(),
+        &[("riders", ColType::Number)],
+    );
     let LoadError::Many(ds) = &err else {
         panic!("expected several errors, got {err:?}");
     };

@@ -29,6 +29,7 @@ pub fn spec_for(name: &str, bytes: &[u8]) -> CsvSpec {
         display_name: name.to_owned(),
         declared: Vec::new(),
         missing: vec![String::new(), "NA".to_owned()],
+        numbers: Default::default(),
     }
 }
 
