@@ -141,7 +141,7 @@ fn declared_number_holding_text_points_into_the_csv() {
 }
 
 /// A number written with a thousands separator is a real value: the help
-/// says how to write it and never suggests reading it as missing (that once
+/// names the data item's option that reads it and never suggests reading it as missing (that once
 /// dropped a month's rows from a total without a word).
 #[test]
 fn a_grouped_number_is_never_suggested_as_missing() {
@@ -152,8 +152,15 @@ fn a_grouped_number_is_never_suggested_as_missing() {
     let csv = GOOD_CSV.replace("2024-02,Elm Row,85", "2024-02,Elm Row,\"1,050\"");
     let err = run_broken("grouped-number", &story, Some(&csv));
     assert_located(&err, "loans.csv:5:17");
-    assert!(err.contains("without thousands separators"), "{err}");
-    assert!(err.contains("write `1,050` without separators"), "{err}");
+    assert!(
+        err.contains("no group separators unless the data item says"),
+        "{err}"
+    );
+    // the help names the option that reads the cell as the number it is
+    assert!(
+        err.contains("name how the file writes numbers on the data item: `thousands \",\"`"),
+        "{err}"
+    );
     assert!(!err.contains("missing-value"), "{err}");
 }
 
@@ -302,4 +309,49 @@ fn control_characters_in_the_story_are_located() {
     assert_located(&stderr, "story.cresc:11:26");
     assert!(stderr.contains("error[control-character]"), "{stderr}");
     assert!(stderr.contains("U+0007"), "{stderr}");
+}
+
+/// A data file with several bad cells: one build lists them all, and the
+/// streamed read (a view starting with `by`) and the whole load (a chart on
+/// the data itself) report exactly the same located errors.
+#[test]
+fn every_bad_cell_of_a_data_file_is_reported_at_once_on_both_read_paths() {
+    let declared = GOOD_STORY.replace(
+        "data loans from \"loans.csv\"",
+        "data loans from \"loans.csv\" { month: month, loans: number }",
+    );
+    // the same lines up to the data item: only the reader differs
+    let loaded = declared.replace(
+        "line by_branch: x month, y loans, series branch",
+        "line loans: x month, y loans, series branch",
+    );
+    assert_ne!(declared, loaded);
+    let csv = "month,branch,loans\n\
+               2024-01,Quarry Street,120\n\
+               2024-01,Elm Row,eighty\n\
+               2024-13,Quarry Street,130\n\
+               2024-02,Elm Row,85,extra\n\
+               2024-03,Elm Row,n/a\n";
+    let streamed = run_broken("all-at-once-streamed", &declared, Some(csv));
+    let whole = run_broken("all-at-once-loaded", &loaded, Some(csv));
+    for (line_col, what) in [
+        (
+            "loans.csv:3:17",
+            "column `loans` is declared number, but row 2 holds `eighty`",
+        ),
+        (
+            "loans.csv:4:1",
+            "column `month` is declared month, but row 3 holds `2024-13`",
+        ),
+        ("loans.csv:5:20", "row 4 has 4 fields, but the header has 3"),
+        (
+            "loans.csv:6:17",
+            "column `loans` is declared number, but row 5 holds `n/a`",
+        ),
+    ] {
+        assert!(streamed.contains(line_col), "{line_col}\n{streamed}");
+        assert!(streamed.contains(what), "{what}\n{streamed}");
+    }
+    assert!(streamed.contains("4 errors"), "{streamed}");
+    assert_eq!(streamed, whole);
 }

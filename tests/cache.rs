@@ -356,3 +356,66 @@ fn serve_shows_the_deck_on_loopback_and_signals_rebuilds() {
     }
     let _: PathBuf = dir;
 }
+
+/// `thousands` and `decimal` on a data item: the same totals on the
+/// streamed path (a view starting with `by`) and the loaded one (a value on
+/// the data itself), and part of the view cache's key, so changing them
+/// recomputes the view instead of reusing numbers read the other way.
+#[test]
+fn number_options_read_the_same_on_both_paths_and_key_the_cache() {
+    let dir = scratch("number-options");
+    // "1.050" is 1050 with `thousands "." decimal ","` and 1.05 without
+    fs::write(
+        dir.join("tolls.csv"),
+        "month,gate,takings\n2024-01,North,1.050\n2024-01,South,\"2.100,5\"\n2024-02,North,980\n",
+    )
+    .unwrap();
+    let story = |options: &str, total: &str, direct: bool| {
+        // a value on the data itself: the item is loaded, not streamed
+        let read = if direct { "tolls" } else { "monthly" };
+        format!(
+            "story \"Tolls\"\nsource \"Invented test data\"\n\
+             data tolls from \"tolls.csv\" {options} {{ month: month, gate: text, takings: number }}\n\
+             view monthly = tolls\n  | by month: takings = sum(takings)\n\
+             value total = sum({read}.takings)\n\
+             claim total = {total} \"The gates took {total}\"\n\
+             frame \"Tolls\" {{\n  bars monthly: category month, value takings\n  y title \"Takings\"\n}}\n"
+        )
+    };
+    // worked out by hand: 1050 + 2100.5 + 980 = 4130.5
+    for direct in [false, true] {
+        fs::write(
+            dir.join("story.cresc"),
+            story("thousands \".\" decimal \",\"", "4130.5", direct),
+        )
+        .unwrap();
+        let out = crescendo(&dir, &["build", "story.cresc"]);
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+    }
+    // The same bytes read with other options: a new cache key, never the
+    // numbers read the other way. By hand: "1.050" + 980 is 1050 + 980 =
+    // 2030 with `thousands "." decimal ","`, 1.05 + 980 = 981.05 without.
+    fs::write(
+        dir.join("tolls.csv"),
+        "month,gate,takings\n2024-01,North,1.050\n2024-02,North,980\n",
+    )
+    .unwrap();
+    for (options, total) in [
+        ("thousands \".\" decimal \",\"", "2030"),
+        ("", "981.05"),
+        ("thousands \".\" decimal \",\"", "2030"),
+    ] {
+        fs::write(dir.join("story.cresc"), story(options, total, false)).unwrap();
+        let out = crescendo(&dir, &["build", "story.cresc"]);
+        assert!(
+            out.status.success(),
+            "{options}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+    }
+    let _ = fs::remove_dir_all(&dir);
+}

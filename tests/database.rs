@@ -323,6 +323,7 @@ fn load_csv(
         display_name: csv.display().to_string(),
         declared: declared.to_vec(),
         missing: vec![String::new(), "NA".to_string()],
+        numbers: Default::default(),
     };
     let t = crescendo_data::load_csv(&spec).expect("the demo CSV loads");
     let q = |s: &str| format!("\"{}\"", s.replace('"', "\"\""));

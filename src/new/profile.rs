@@ -49,9 +49,12 @@ pub fn profile_file(data: &Path) -> Result<(Table, Profile), Diagnostic> {
         display_name: display.clone(),
         declared: Vec::new(),
         missing: vec![String::new(), "NA".into()],
+        numbers: Default::default(),
     };
     let mut table = load_csv(&spec).map_err(|e| match e {
         LoadError::Csv(d) => d,
+        // the first problem (a starter story is written from a clean file)
+        LoadError::Many(mut ds) => ds.remove(0),
         LoadError::Story {
             code,
             message,

@@ -3,6 +3,7 @@
 
 pub mod bucket;
 pub mod column;
+pub mod digits;
 pub mod files;
 pub mod format;
 mod hash;

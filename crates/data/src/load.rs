@@ -48,6 +48,7 @@ use std::path::PathBuf;
 
 use crescendo_diag::Diagnostic;
 
+use crate::digits::NumberStyle;
 use crate::files::ReadAt;
 use crate::loader::Loader;
 use crate::model::{ColType, Table, Value};
@@ -65,6 +66,9 @@ pub struct CsvSpec {
     pub declared: Vec<(String, ColType)>,
     /// Exact cell texts that mean "missing"; callers pass `["", "NA"]` by default.
     pub missing: Vec<String>,
+    /// How the file writes its numbers (the `thousands` and `decimal`
+    /// options); plain by default.
+    pub numbers: NumberStyle,
 }
 
 /// Limits on one read, so that a hostile or broken file stops with a clear
@@ -117,7 +121,16 @@ pub enum LoadError {
     /// offending record's text with its real 1-based line number, and the span
     /// covers the offending field.
     Csv(Diagnostic),
+    /// Several located problems in the CSV, in file order (each as in
+    /// [`LoadError::Csv`]): a read reports every bad row and cell of a file
+    /// at once, up to [`MAX_ERRORS`]; the last one says when the read
+    /// stopped there.
+    Many(Vec<Diagnostic>),
 }
+
+/// The most located problems one read of a data file reports; it stops
+/// reading at that many (and says so).
+pub const MAX_ERRORS: usize = 20;
 
 impl LoadError {
     /// The machine-readable code of the problem.
@@ -125,6 +138,16 @@ impl LoadError {
         match self {
             LoadError::Story { code, .. } => code,
             LoadError::Csv(d) => d.code,
+            LoadError::Many(ds) => ds.first().map_or("data-file", |d| d.code),
+        }
+    }
+
+    /// The located diagnostics of the error (none for [`LoadError::Story`]).
+    pub fn located(&self) -> &[Diagnostic] {
+        match self {
+            LoadError::Story { .. } => &[],
+            LoadError::Csv(d) => std::slice::from_ref(d),
+            LoadError::Many(ds) => ds,
         }
     }
 }
@@ -134,6 +157,10 @@ impl fmt::Display for LoadError {
         match self {
             LoadError::Story { message, .. } => f.write_str(message),
             LoadError::Csv(d) => f.write_str(&d.message),
+            LoadError::Many(ds) => match ds.first() {
+                Some(d) => write!(f, "{} (and {} more)", d.message, ds.len() - 1),
+                None => f.write_str("errors in the data file"),
+            },
         }
     }
 }
@@ -142,8 +169,9 @@ impl std::error::Error for LoadError {}
 
 /// Load a CSV file into a typed [`Table`].
 ///
-/// The first record is the header. Declared column types are enforced (the
-/// first cell that does not parse is reported); other columns are inferred
+/// The first record is the header. Declared column types are enforced
+/// (every cell that does not parse is reported, with the file's other bad
+/// rows and cells, up to [`MAX_ERRORS`]); other columns are inferred
 /// over all non-missing cells: `month` if every cell is `YYYY-MM`, `date` if
 /// every cell is `YYYY-MM-DD`, `number` if every cell is a plain decimal number
 /// (see [`parse_number`]), otherwise `text`. `year` is never inferred, and a
@@ -288,13 +316,19 @@ fn read<'s>(
         let end = rdr.position().byte();
         let tee = rdr.get_mut();
         let raw = RawRecord::new(tee.window(start, end), line);
-        loader.record(index, &record, &raw)?;
+        if let Err(e) = loader.record(index, &record, &raw) {
+            return Err(loader.fatal(e));
+        }
         tee.consumed(end);
         if index == 0 {
             data_start = bom + end;
         }
         index += 1;
+        if loader.full() {
+            break;
+        }
     }
+    loader.errors()?;
     Ok((loader, data_start))
 }
 
@@ -350,11 +384,12 @@ pub fn parse_number(s: &str) -> Option<f64> {
     s.parse::<f64>().ok().filter(|v| v.is_finite())
 }
 
-/// Parse one cell as `ty`; `None` when it does not parse.
-pub(crate) fn parse_as(ty: ColType, s: &str) -> Option<Value> {
+/// Parse one cell as `ty` (numbers written in `style`); `None` when it
+/// does not parse.
+pub(crate) fn parse_as(style: &NumberStyle, ty: ColType, s: &str) -> Option<Value> {
     match ty {
         ColType::Text => Some(Value::Text(s.to_owned())),
-        ColType::Number => parse_number(s).map(Value::Number),
+        ColType::Number => style.parse(s).map(Value::Number),
         ColType::Date => parse_date(s).map(Value::Date),
         ColType::Month => parse_month_or_date(s).map(Value::Month),
         ColType::Year => parse_year(s).map(Value::Year),

@@ -12,7 +12,7 @@ use std::sync::Arc;
 
 use crescendo_diag::{closest, Diagnostic, Source};
 
-use crate::load::{parse_as, parse_number, Columns, CsvSpec, LoadError, ReadLimits};
+use crate::load::{parse_as, Columns, CsvSpec, LoadError, ReadLimits, MAX_ERRORS};
 use crate::model::{Cell, ColType, Column, Table, Values};
 use crate::record::{field_span, forbidden_char, scan_fields, too_long, RawRecord, ScanError};
 use crate::time::{parse_date, parse_month};
@@ -102,6 +102,10 @@ pub(crate) struct Loader<'s> {
     pub(crate) columns: Vec<Builder>,
     /// Data rows read.
     pub(crate) rows: usize,
+    /// The located problems found so far, in file order: a bad row or cell
+    /// does not stop the read, so one run reports them all (up to
+    /// [`MAX_ERRORS`]).
+    errors: Vec<Diagnostic>,
 }
 
 /// How often (in rows) the memory the rows take is measured.
@@ -125,6 +129,56 @@ impl<'s> Loader<'s> {
             limits,
             columns: Vec::new(),
             rows: 0,
+            errors: Vec::new(),
+        }
+    }
+
+    /// Keep a row's or cell's problem and read on.
+    fn push(&mut self, e: LoadError) {
+        match e {
+            LoadError::Csv(d) => self.errors.push(d),
+            LoadError::Many(ds) => self.errors.extend(ds),
+            LoadError::Story { .. } => {}
+        }
+    }
+
+    /// Has the read found as many problems as it reports?
+    pub(crate) fn full(&self) -> bool {
+        self.errors.len() >= MAX_ERRORS
+    }
+
+    /// The problems found, as one error (`Ok` when there are none). At the
+    /// cap, the last one says that the read stopped there.
+    pub(crate) fn errors(&mut self) -> Result<(), LoadError> {
+        let mut ds = std::mem::take(&mut self.errors);
+        if ds.len() >= MAX_ERRORS {
+            if let Some(last) = ds.last_mut() {
+                let note = format!(
+                    "reading `{}` stopped at {MAX_ERRORS} errors (the most one read reports); \
+                     there may be more after this one",
+                    self.spec.display_name
+                );
+                *last = last.clone().note(note);
+            }
+        }
+        match ds.len() {
+            0 => Ok(()),
+            1 => Err(LoadError::Csv(ds.remove(0))),
+            _ => Err(LoadError::Many(ds)),
+        }
+    }
+
+    /// A problem that stops the read, after the ones found before it. A
+    /// problem not located in the file (a limit) waits until those are
+    /// fixed.
+    pub(crate) fn fatal(&mut self, e: LoadError) -> LoadError {
+        if self.errors.is_empty() {
+            return e;
+        }
+        self.push(e);
+        match self.errors() {
+            Err(all) => all,
+            Ok(()) => LoadError::Many(Vec::new()),
         }
     }
 
@@ -203,9 +257,13 @@ impl<'s> Loader<'s> {
         if index > 0 {
             self.check_rows(index)?;
         }
-        self.check_quotes(index, raw)?;
         if index == 0 {
+            self.check_quotes(index, raw)?;
             return self.header(record, raw);
+        }
+        if let Err(e) = self.check_quotes(index, raw) {
+            self.push(e);
+            return Ok(());
         }
         let n = self.columns.len();
         if record.len() != n {
@@ -238,14 +296,15 @@ impl<'s> Loader<'s> {
                     "every row needs one field per header column; quote fields that contain commas",
                 )
             };
-            return Err(LoadError::Csv(d));
+            self.push(LoadError::Csv(d));
+            return Ok(());
         }
         for (j, cell) in record.iter().enumerate() {
             let text = match std::str::from_utf8(cell) {
                 Ok(t) => t,
                 Err(_) => {
                     let name = &self.columns[j].name;
-                    return Err(LoadError::Csv(
+                    let e = LoadError::Csv(
                         self.located(
                             "bad-encoding",
                             format!("row {index}, column `{name}` is not valid UTF-8 text"),
@@ -254,44 +313,64 @@ impl<'s> Loader<'s> {
                             "invalid UTF-8",
                         )
                         .help("save the data file as UTF-8"),
-                    ));
+                    );
+                    self.cell_error(j, e);
+                    continue;
                 }
             };
             let col = &self.columns[j];
             if !col.keep && col.declared.is_none() {
                 continue;
             }
-            self.check_text(index, j, text, raw)?;
+            if let Err(e) = self.check_text(index, j, text, raw) {
+                self.cell_error(j, e);
+                continue;
+            }
             if self.spec.missing.iter().any(|m| m == text) {
                 if self.columns[j].keep {
                     self.columns[j].values.push_cell(Cell::Missing);
                 }
                 continue;
             }
-            let col = &mut self.columns[j];
-            let value = match col.declared {
-                Some(ty) => match parse_as(ty, text) {
+            let value = match self.columns[j].declared {
+                Some(ty) => match parse_as(&self.spec.numbers, ty, text) {
                     Some(v) => v,
-                    None => return Err(self.bad_value(index, j, ty, text, raw)),
+                    None => {
+                        let e = self.bad_value(index, j, ty, text, raw);
+                        self.cell_error(j, e);
+                        continue;
+                    }
                 },
                 None => {
+                    let numbers = &self.spec.numbers;
+                    let col = &mut self.columns[j];
                     let inf = &mut col.infer;
                     inf.any = true;
                     inf.month = inf.month && parse_month(text).is_some();
                     inf.date = inf.date && parse_date(text).is_some();
-                    inf.number = inf.number && parse_number(text).is_some();
+                    inf.number = inf.number && numbers.parse(text).is_some();
                     if col.keep {
                         col.values.push_cell(Cell::Text(text));
                     }
                     continue;
                 }
             };
+            let col = &mut self.columns[j];
             if col.keep {
                 col.values.push(value);
             }
         }
         self.rows += 1;
         Ok(())
+    }
+
+    /// A cell's problem: kept, and the cell read as missing so the
+    /// columns stay aligned while the read goes on.
+    fn cell_error(&mut self, j: usize, e: LoadError) {
+        self.push(e);
+        if self.columns[j].keep {
+            self.columns[j].values.push_cell(Cell::Missing);
+        }
     }
 
     /// May row `index` be read? Within the row limit, or (without one)
@@ -402,19 +481,15 @@ impl<'s> Loader<'s> {
             field_span(raw.bytes, j),
             expected(ty),
         );
-        d = if text.trim() != text && parse_as(ty, text.trim()).is_some() {
+        d = if text.trim() != text && parse_as(&self.spec.numbers, ty, text.trim()).is_some() {
             d.note("spaces are part of a CSV field, so the value is not read as trimmed")
                 .help(format!(
                     "remove the spaces around `{}` in the data file",
                     show(text.trim())
                 ))
-        } else if grouped_number(ty, text) {
+        } else if let Some(style) = number_hint(&self.spec.numbers, ty, text) {
             // a real value: never suggest reading it as missing
-            d.note("crescendo reads numbers without thousands separators")
-                .help(format!(
-                    "write `{}` without separators in the data file, or declare `{name}` as text",
-                    show(text)
-                ))
+            d.note(style.0).help(style.1)
         } else if !looks_missing(text) {
             // a value in another form ("eighty", "12a"): never suggest
             // reading it as missing
@@ -559,6 +634,7 @@ impl<'s> Loader<'s> {
             });
         }
         let rows = self.rows;
+        let numbers = self.spec.numbers;
         let columns = self
             .columns
             .into_iter()
@@ -577,7 +653,7 @@ impl<'s> Loader<'s> {
                 }
                 let values = if b.declared.is_none() && ty != ColType::Text {
                     // each distinct text is parsed once
-                    b.values.map_texts(|s| parse_as(ty, s))
+                    b.values.map_texts(|s| parse_as(&numbers, ty, s))
                 } else {
                     let mut v = b.values;
                     v.shrink_to_fit();
@@ -592,6 +668,47 @@ impl<'s> Loader<'s> {
             .collect();
         Ok(Table { columns })
     }
+}
+
+/// For a number cell written with groups or a decimal comma: a note on
+/// how the file is read and a help naming the data item's options that
+/// read it (`thousands ","`). `None` for a cell no such option reads.
+pub(crate) fn number_hint(
+    style: &crate::digits::NumberStyle,
+    ty: ColType,
+    text: &str,
+) -> Option<(String, String)> {
+    if ty != ColType::Number {
+        return None;
+    }
+    if !style.is_plain() {
+        let groups = match style.thousands {
+            Some(' ') => "grouped with spaces".to_owned(),
+            Some(t) => format!("grouped with `{t}`"),
+            None => "without groups".to_owned(),
+        };
+        let written = text.trim().chars().any(|c| c.is_ascii_digit())
+            && crate::digits::GROUPING.iter().any(|&g| text.contains(g));
+        return written.then(|| {
+            (
+                format!(
+                    "the data item reads numbers {groups} and with a decimal `{}`; digits after \
+                     a group separator come in groups of three",
+                    style.decimal
+                ),
+                "correct the cell in the data file, or change the data item's `thousands` and \
+                 `decimal` options"
+                    .to_owned(),
+            )
+        });
+    }
+    let options = crate::digits::suggest(text)?;
+    Some((
+        "numbers are read with a decimal point and no group separators unless the data item \
+         says otherwise"
+            .to_owned(),
+        format!("name how the file writes numbers on the data item: `{options}`"),
+    ))
 }
 
 /// Whether a cell reads as a placeholder for "no value" (`n.a.`, `-`,

@@ -54,7 +54,7 @@ use std::sync::atomic::{AtomicUsize, Ordering as AtomicOrdering};
 use std::sync::Mutex;
 
 use crate::files::ReadAt;
-use crate::load::{parse_number, CsvSpec, LoadError, ReadLimits};
+use crate::load::{CsvSpec, LoadError, ReadLimits};
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Value, Values};
 use crate::record::{forbidden_char, reader_builder, scan_fields, too_long, RawRecord, Tee};
 use crate::time::{parse_date, parse_month_or_date, parse_year};
@@ -546,6 +546,7 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
     let mut scratch: Vec<Cell<'static>> = Vec::with_capacity(ncols);
     let mut keybuf: Vec<u8> = Vec::with_capacity(64);
     let missing: Vec<&[u8]> = input.spec.missing.iter().map(|m| m.as_bytes()).collect();
+    let numbers = input.spec.numbers;
     let parsed: Vec<(usize, ColType)> = (0..ncols)
         .filter(|&j| input.parse.get(j).copied().unwrap_or(false))
         .map(|j| (j, input.schema[j].1))
@@ -603,7 +604,7 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
             };
             let c = match ty {
                 ColType::Text => Some(Cell::Text(text)),
-                ColType::Number => parse_number(text).map(Cell::Number),
+                ColType::Number => numbers.parse(text).map(Cell::Number),
                 ColType::Date => parse_date(text).map(Cell::Date),
                 ColType::Month => parse_month_or_date(text).map(Cell::Month),
                 ColType::Year => parse_year(text).map(Cell::Year),
@@ -611,7 +612,7 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
             let Some(c) = c else {
                 return out;
             };
-            if !text_done[j] && parse_number(text).is_none() {
+            if !text_done[j] && numbers.parse(text).is_none() {
                 text_done[j] = true;
                 out.first_text[j] = Some((out.rows, text.to_owned()));
             }

@@ -13,7 +13,8 @@
 
 use crescendo_diag::closest;
 
-use crate::load::{parse_as, parse_number, CsvSpec, LoadError};
+use crate::digits::NumberStyle;
+use crate::load::{parse_as, CsvSpec, LoadError};
 use crate::model::{ColType, Column, Table, Value, Values};
 use crate::time::{date_iso, month_of_day, parse_date, parse_month};
 
@@ -119,11 +120,11 @@ pub fn finish(
             .collect();
         let ty = match declared {
             Some(t) => t,
-            None => infer(&cells),
+            None => infer(&cells, &spec.numbers),
         };
         let mut values = Vec::with_capacity(rows);
         for (r, cell) in cells.iter().enumerate() {
-            match convert(cell, ty) {
+            match convert(cell, ty, &spec.numbers) {
                 Some(v) => values.push(v),
                 None => {
                     let what = match cell {
@@ -141,10 +142,17 @@ pub fn finish(
                             ty.name(),
                             locate(j, r)
                         ),
-                        Some(format!(
-                            "correct that cell, declare `{}` as text, or add its text to the missing-value tokens",
-                            c.name
-                        )),
+                        Some(match cell {
+                            // a real value: never suggest reading it as missing
+                            Typed::Text(s) if ty == ColType::Number && crate::digits::suggest(s).is_some() => format!(
+                                "name how the file writes its numbers on the data item: `{}`",
+                                crate::digits::suggest(s).unwrap_or_default()
+                            ),
+                            _ => format!(
+                                "correct that cell, declare `{}` as text, or add its text to the missing-value tokens if it means no value",
+                                c.name
+                            ),
+                        }),
                     ));
                 }
             }
@@ -167,7 +175,7 @@ pub fn finish(
 }
 
 /// The type of an undeclared column (see the module docs).
-fn infer(cells: &[Typed]) -> ColType {
+fn infer(cells: &[Typed], numbers: &NumberStyle) -> ColType {
     let present = || cells.iter().filter(|c| **c != Typed::Missing);
     if present().next().is_none() {
         return ColType::Text;
@@ -186,7 +194,7 @@ fn infer(cells: &[Typed]) -> ColType {
         ColType::Month
     } else if texts().all(|s| parse_date(&s).is_some()) {
         ColType::Date
-    } else if texts().all(|s| parse_number(&s).is_some()) {
+    } else if texts().all(|s| numbers.parse(&s).is_some()) {
         ColType::Number
     } else {
         ColType::Text
@@ -194,10 +202,10 @@ fn infer(cells: &[Typed]) -> ColType {
 }
 
 /// A cell as a value of type `ty`; `None` when it is not one.
-fn convert(cell: &Typed, ty: ColType) -> Option<Value> {
+fn convert(cell: &Typed, ty: ColType, numbers: &NumberStyle) -> Option<Value> {
     Some(match (cell, ty) {
         (Typed::Missing, _) => Value::Missing,
-        (Typed::Text(s), _) => return parse_as(ty, s),
+        (Typed::Text(s), _) => return parse_as(numbers, ty, s),
         (c, ColType::Text) => Value::Text(c.text()),
         (Typed::Number(x), ColType::Number) => Value::Number(*x),
         (Typed::Number(x), ColType::Year) if x.fract() == 0.0 && (0.0..=9999.0).contains(x) => {
@@ -219,6 +227,7 @@ mod tests {
             display_name: "book.xlsx".into(),
             declared,
             missing: vec![String::new(), "NA".into()],
+            numbers: Default::default(),
         }
     }
 

@@ -14,6 +14,7 @@ fn missing_file_is_a_story_error_naming_the_file() {
         display_name: "data/nope.csv".into(),
         declared: vec![],
         missing: vec![],
+        numbers: Default::default(),
     };
     match load_csv(&spec) {
         Err(LoadError::Story {
@@ -40,6 +41,7 @@ fn a_directory_is_not_readable_data() {
         display_name: "folder".into(),
         declared: vec![],
         missing: vec![],
+        numbers: Default::default(),
     };
     let err = load_csv(&spec).expect_err("a directory is not a CSV file");
     assert_eq!(err.code(), "data-file");
@@ -376,4 +378,87 @@ fn rows_beyond_the_limit_or_the_memory_allowed_stop_the_load() {
         ..ReadLimits::none()
     };
     assert!(load_limited("mem.csv", &bytes, &roomy).is_ok());
+}
+
+/// A hostile file with several bad rows and cells: one read reports them
+/// all, in file order, each located on its own line and field (a user once
+/// needed four runs to find four problems).
+#[test]
+fn every_bad_row_and_cell_is_reported_at_once() {
+    let body = "station,day,riders,note\n\
+                s1,2024-01-01,10,ok\n\
+                s2,2024-13-01,eighty,ok\n\
+                s3,2024-01-03,30,ok,extra\n\
+                s4,2024-01-04,4\u{1}0,ok\n\
+                s5,2024-01-05,\"1,050\",ok\n\
+                s6,2024-01-06,60,ok\n";
+    let err = load_err(
+        "hostile.csv",
+        body.as_bytes(),
+        &[("day", ColType::Date), ("riders", ColType::Number)],
+    );
+    let LoadError::Many(ds) = &err else {
+        panic!("expected several errors, got {err:?}");
+    };
+    // Worked out by hand: line 1 is the header, so data row N is line N+1;
+    // columns count characters from 1 ("s2," is 3 wide, "s2,2024-13-01," 14).
+    type At = Option<(String, usize, usize)>;
+    let got: Vec<(&str, At)> = ds.iter().map(|d| (d.code, d.location())).collect();
+    let at = |line, col| Some(("hostile.csv".to_owned(), line, col));
+    assert_eq!(
+        got,
+        vec![
+            ("bad-value", at(3, 4)),
+            ("bad-value", at(3, 15)),
+            ("ragged-row", at(4, 21)),
+            ("bad-character", at(5, 16)),
+            ("bad-value", at(6, 15)),
+        ],
+        "{}",
+        describe(&err)
+    );
+    assert_eq!(err.code(), "bad-value");
+    let out = describe(&err);
+    assert!(
+        out.contains("column `day` is declared date, but row 2 holds `2024-13-01`"),
+        "{out}"
+    );
+    assert!(
+        out.contains("column `riders` is declared number, but row 2 holds `eighty`"),
+        "{out}"
+    );
+    assert!(
+        out.contains("row 3 has 5 fields, but the header has 4"),
+        "{out}"
+    );
+    assert!(!out.contains("stopped at"), "{out}");
+}
+
+/// More bad cells than one read reports: the read stops at the cap and the
+/// last error says so.
+#[test]
+fn bad_cells_beyond_the_cap_stop_the_read_and_say_so() {
+    let mut body = String::from("station,riders\n");
+    for i in 1..=30 {
+        body.push_str(&format!("s{i},many{i}\n"));
+    }
+    let err = load_err(
+        "capped.csv",
+        body.as_bytes(),
+        &[("riders", ColType::Number)],
+    );
+    let LoadError::Many(ds) = &err else {
+        panic!("expected several errors, got {err:?}");
+    };
+    assert_eq!(ds.len(), crescendo_data::load::MAX_ERRORS);
+    assert_eq!(ds.len(), 20);
+    // the 20th bad cell is data row 20, line 21
+    assert_eq!(ds[19].location(), Some(("capped.csv".into(), 21, 5)));
+    let last = crescendo_diag::render(&ds[19..], false);
+    assert!(
+        last.contains("reading `capped.csv` stopped at 20 errors (the most one read reports)"),
+        "{last}"
+    );
+    let first = crescendo_diag::render(&ds[..19], false);
+    assert!(!first.contains("stopped at"), "{first}");
 }

@@ -23,6 +23,7 @@ fn penguins() -> Table {
         display_name: "penguins.csv".into(),
         declared: vec![],
         missing: vec![String::new(), "NA".into()],
+        numbers: Default::default(),
     };
     load_csv(&spec).unwrap_or_else(|e| panic!("penguins.csv loads: {e}"))
 }

@@ -20,6 +20,7 @@ fn penguins_spec() -> CsvSpec {
         display_name: "penguins.csv".into(),
         declared: vec![],
         missing: vec![String::new(), "NA".into()],
+        numbers: Default::default(),
     }
 }
 

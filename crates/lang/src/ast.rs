@@ -143,6 +143,12 @@ pub struct DataDecl {
     /// (so that messages about the source point at it).
     pub file: Str,
     pub missing: Option<Vec<Str>>,
+    /// `thousands ","`: the character grouping the digits of numbers in
+    /// the file's cells.
+    pub thousands: Option<Box<Str>>,
+    /// `decimal ","`: the character before the decimals of numbers in the
+    /// file's cells.
+    pub decimal: Option<Box<Str>>,
     pub columns: Vec<ColumnDecl>,
     pub span: Span,
     /// `sheet "NAME"`: the sheet of a workbook.

@@ -49,13 +49,16 @@ pub struct Tables {
     pub(crate) first_text: BTreeMap<(String, String), (usize, String)>,
 }
 
-/// What to say about a cell written with thousands separators (never that
-/// it could be read as missing: it is a real value).
-fn grouped(t: &str) -> &'static str {
-    if data::load::is_grouped_number(t) {
-        ", a number written with thousands separators, which crescendo does not read: write it without them in the data file"
-    } else {
-        ""
+/// What to say about a cell written with thousands separators or a
+/// decimal comma (never that it could be read as missing: it is a real
+/// value): the data item's options that read it.
+fn grouped(t: &str) -> String {
+    match data::digits::suggest(t) {
+        Some(options) => format!(
+            ", a number written with group separators or a decimal comma: name how the file \
+             writes numbers on the data item (`{options}`)"
+        ),
+        _ => String::new(),
     }
 }
 

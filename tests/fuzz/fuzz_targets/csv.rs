@@ -15,6 +15,7 @@ fuzz_target!(|data: &[u8]| {
         display_name: "fuzz.csv".into(),
         declared: Vec::new(),
         missing: vec![String::new(), "NA".into()],
+        numbers: Default::default(),
     };
     let _ = load_csv(&spec);
     spec.declared = vec![

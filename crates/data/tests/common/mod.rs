@@ -29,6 +29,7 @@ pub fn spec_for(name: &str, bytes: &[u8]) -> CsvSpec {
         display_name: name.to_owned(),
         declared: Vec::new(),
         missing: vec![String::new(), "NA".to_owned()],
+        numbers: Default::default(),
     }
 }
 
@@ -57,6 +58,7 @@ pub fn load_err(name: &str, bytes: &[u8], declared: &[(&str, ColType)]) -> LoadE
 pub fn describe(e: &LoadError) -> String {
     match e {
         LoadError::Csv(d) => crescendo_diag::render(std::slice::from_ref(d), false),
+        LoadError::Many(ds) => crescendo_diag::render(ds, false),
         LoadError::Story {
             code,
             message,

@@ -110,6 +110,8 @@ impl Printer<'_> {
             name,
             file,
             missing,
+            thousands,
+            decimal,
             columns,
             database,
             sheet,
@@ -160,6 +162,14 @@ impl Printer<'_> {
         if let Some(missing) = missing {
             self.s(" missing ");
             self.strs(missing);
+        }
+        if let Some(t) = thousands {
+            self.s(" thousands ");
+            self.raw(&t.span);
+        }
+        if let Some(d) = decimal {
+            self.s(" decimal ");
+            self.raw(&d.span);
         }
         let (Some(first), Some(last)) = (columns.first(), columns.last()) else {
             return;

@@ -123,7 +123,7 @@ impl Conv<'_> {
         Ok(AllowDecl { rule, reason, span })
     }
 
-    /// `data NAME from SOURCE [missing ...] [{ columns }]`.
+    /// `data NAME from SOURCE [missing ...] [thousands ...] [decimal ...] [{ columns }]`.
     fn data_item(&mut self, inner: Vec<Pair<Rule>>, span: Span) -> Res<DataDecl> {
         let mut it = inner.into_iter().skip(1);
         let name = self.ident(it.next().ok_or_else(|| internal(&span))?);
@@ -137,17 +137,21 @@ impl Conv<'_> {
         let mut missing = None;
         let mut columns = Vec::new();
         let (mut sheet, mut cells) = (None, None);
+        let (mut thousands, mut decimal) = (None, None);
         for p in it {
             match p.as_rule() {
-                Rule::sheet_clause | Rule::cells_clause => {
-                    let rule = p.as_rule();
+                rule @ (Rule::sheet_clause
+                | Rule::cells_clause
+                | Rule::thousands_clause
+                | Rule::decimal_clause) => {
                     let s = children(p)
                         .find(|q| q.as_rule() == Rule::string)
                         .map(|q| Box::new(self.string(q)));
-                    if rule == Rule::sheet_clause {
-                        sheet = s;
-                    } else {
-                        cells = s;
+                    match rule {
+                        Rule::sheet_clause => sheet = s,
+                        Rule::cells_clause => cells = s,
+                        Rule::thousands_clause => thousands = s,
+                        _ => decimal = s,
                     }
                 }
                 Rule::missing_clause => {
@@ -179,6 +183,8 @@ impl Conv<'_> {
             name,
             file,
             missing,
+            thousands,
+            decimal,
             columns,
             span,
             sheet,

@@ -3,6 +3,7 @@
 
 use std::path::Path;
 
+use crescendo_data::digits::NumberStyle;
 use crescendo_data::{ColType, CsvSpec, LoadError};
 use crescendo_diag::{closest, Diagnostic};
 use crescendo_lang::ast::{self, Ident};
@@ -58,6 +59,7 @@ pub(crate) fn data_spec(
             declared.push((c.name.name.clone(), t));
         }
     }
+    let numbers = number_style(cx, decl);
     cx.errors_since(cp)?;
     let path = match replacement {
         Some(p) => p.to_path_buf(),
@@ -71,7 +73,31 @@ pub(crate) fn data_spec(
             Some(m) => m.iter().map(|s| s.value.clone()).collect(),
             None => vec![String::new(), "NA".to_string()],
         },
+        numbers: numbers.unwrap_or_default(),
     })
+}
+
+/// How the item's file writes its numbers (`thousands`, `decimal`); a
+/// bad option is reported at it.
+fn number_style(cx: &mut Ctx, decl: &ast::DataDecl) -> Option<NumberStyle> {
+    let (t, d) = (decl.thousands.as_deref(), decl.decimal.as_deref());
+    match NumberStyle::new(t.map(|s| s.value.as_str()), d.map(|s| s.value.as_str())) {
+        Ok(style) => Some(style),
+        Err(why) => {
+            let at = match (t, d) {
+                (Some(t), Some(d)) => t.span.start..d.span.end,
+                (Some(s), None) | (None, Some(s)) => s.span.clone(),
+                (None, None) => decl.file.span.clone(),
+            };
+            let d = cx
+                .at("bad-option", why, at, "not a way to write numbers")
+                .help(
+                    "e.g. `thousands \",\"` for 1,050.5, or `thousands \".\" decimal \",\"` for 1.050,5",
+                );
+            cx.report(d);
+            None
+        }
+    }
 }
 
 /// The result of reading a data file, its error located in the story (and
@@ -88,6 +114,19 @@ pub(crate) fn reported<T>(
             decl.file.span.clone(),
             format!("while loading `{}`", decl.name.name),
         ),
+        Err(LoadError::Many(ds)) => {
+            // every bad row and cell of the file, each located in it
+            let mut last = None;
+            for d in ds {
+                let d = d.also(
+                    cx.src,
+                    decl.file.span.clone(),
+                    format!("while loading `{}`", decl.name.name),
+                );
+                last = Some(cx.report(d));
+            }
+            return Err(last.unwrap_or_else(|| cx.already_reported()));
+        }
         Err(LoadError::Story {
             code,
             message,

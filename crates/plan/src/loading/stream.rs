@@ -176,6 +176,7 @@ pub(crate) fn stream(
                 content.as_bytes(),
                 format!("{:?}", spec.declared).as_bytes(),
                 format!("{:?}", spec.missing).as_bytes(),
+                format!("{:?}", spec.numbers).as_bytes(),
                 format!("{parse:?}").as_bytes(),
                 keep_key.as_bytes(),
             ]))
