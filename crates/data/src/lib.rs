@@ -4,6 +4,7 @@
 pub mod bucket;
 pub mod column;
 pub mod files;
+pub mod fold;
 pub mod format;
 mod hash;
 pub mod load;
