@@ -160,6 +160,23 @@ fn explain_queries(sql: &[crescendo_sql::Explained]) {
             say!("--   ${} = {p:?}", i + 1);
         }
         say!("--   received {} rows, {} bytes", q.rows, q.bytes);
+        let remote = q.remote_sql();
+        if !remote.is_empty() {
+            say!(
+                "--   sent on to {} remote scan{} (the coordinator's plan):",
+                remote.len(),
+                if remote.len() == 1 { "" } else { "s" }
+            );
+            for r in remote {
+                say!("--     {r}");
+            }
+        }
+        if !q.plan.is_empty() {
+            say!("--   plan:");
+            for line in &q.plan {
+                say!("--     {line}");
+            }
+        }
     }
 }
 

@@ -62,6 +62,9 @@ pub struct DataArgs {
     /// `plugins` unless asked to load): no plugin code runs.
     #[arg(skip)]
     pub inspect_plugins: bool,
+    /// Ask the database for each query's plan too (`check --explain-sql`).
+    #[arg(skip)]
+    pub explain_plans: bool,
     /// Read the connection string of database data item NAME from the
     /// environment variable ENVVAR instead of the one the story names
     /// (repeatable), e.g. `--connection visits=STAGING_DB`.

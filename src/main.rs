@@ -84,9 +84,12 @@ fn main() -> ExitCode {
             story,
             format,
             explain_sql,
-            data,
+            mut data,
             lint,
-        } => check::run(&story, format, explain_sql, &data, &lint, color),
+        } => {
+            data.explain_plans = explain_sql;
+            check::run(&story, format, explain_sql, &data, &lint, color)
+        }
         Command::Explain { rule } => explain::run(rule.as_deref(), color),
         Command::Plugins {
             story,

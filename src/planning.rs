@@ -64,6 +64,7 @@ pub fn options(data: &DataArgs) -> Result<Options, Diagnostic> {
                     60.0
                 },
             ),
+            explain: data.explain_plans,
         },
         allow_paths: data.allow_paths.clone(),
         limits: data.limits.limits(),

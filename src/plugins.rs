@@ -15,6 +15,7 @@ pub fn run(story: &Path, allow_paths: Vec<PathBuf>, load_plugins: bool, color: b
         data: Vec::new(),
         no_plugins: false,
         inspect_plugins: !load_plugins,
+        explain_plans: false,
         connections: Vec::new(),
         statement_timeout: 60.0,
         allow_paths,

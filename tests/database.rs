@@ -105,13 +105,18 @@ fn free_port() -> u16 {
 }
 
 fn start() -> Result<Cluster, String> {
+    start_in("pgtest")
+}
+
+/// A throwaway cluster in `target/<folder>` (or the temporary folder).
+fn start_in(folder: &str) -> Result<Cluster, String> {
     let bin = find_bin()?;
     let uid = Command::new("id")
         .arg("-u")
         .output()
         .map_err(|e| e.to_string())?;
     let as_postgres = String::from_utf8_lossy(&uid.stdout).trim() == "0";
-    let mut base = root().join("target").join("pgtest");
+    let mut base = root().join("target").join(folder);
     if as_postgres {
         // The postgres user must reach the folder; a checkout under a
         // private home folder (say /root) is out of its reach, so the
@@ -123,7 +128,7 @@ fn start() -> Result<Cluster, String> {
             .status()
             .map_err(|e| format!("runuser: {e}"))?;
         if !reach.success() {
-            base = std::env::temp_dir().join("crescendo-pgtest");
+            base = std::env::temp_dir().join(format!("crescendo-{folder}"));
             println!(
                 "note: the postgres user cannot reach target/; the cluster lives in {}",
                 base.display()
@@ -1466,4 +1471,209 @@ fn an_unset_connection_variable_is_a_located_error() {
     let t = text(&out);
     assert!(!out.status.success());
     assert!(!t.contains("secret"), "{t}");
+}
+
+/// Start `n` clusters, or say why not (skipped unless required).
+fn start_or_skip(folders: &[&str]) -> Option<Vec<Cluster>> {
+    let mut out = Vec::new();
+    for f in folders {
+        match start_in(f) {
+            Ok(c) => out.push(c),
+            Err(why) => {
+                if std::env::var("CRESCENDO_REQUIRE_DB").as_deref() == Ok("1") {
+                    panic!("CRESCENDO_REQUIRE_DB=1 but the test cluster could not start: {why}");
+                }
+                println!("skipped: {why}");
+                return None;
+            }
+        }
+    }
+    Some(out)
+}
+
+/// One table spread over two servers: a coordinator whose partitioned
+/// table `sales` has two foreign partitions (postgres_fdw), each the table
+/// of a shard cluster. With partitionwise aggregation on, a view grouped by
+/// the partition key is aggregated on the shards (the coordinator's
+/// EXPLAIN VERBOSE shows `Foreign Scan` of an `Aggregate` with the GROUP BY
+/// in its remote SQL), and the deck equals the one built from the same
+/// rows as a CSV file.
+///
+/// Outside check: PostgreSQL's own planner and aggregates on the shards
+/// (PostgreSQL 15, postgres_fdw) against the local engine on the CSV file.
+#[test]
+fn a_table_over_two_shards_is_aggregated_on_the_shards() {
+    let Some(clusters) = start_or_skip(&["pgshard-coord", "pgshard-a", "pgshard-b"]) else {
+        return;
+    };
+    let (coord, shards) = (&clusters[0], &clusters[1..]);
+    let t0 = Instant::now();
+    // Each shard generates its own half of the million rows server-side.
+    let regions = [["north", "east"], ["south", "west"]];
+    for (shard, keep) in shards.iter().zip(regions) {
+        shard
+            .client()
+            .batch_execute(&format!(
+                "CREATE UNLOGGED TABLE sales_part (line bigint, region text, day date, amount numeric);
+                 INSERT INTO sales_part
+                   SELECT * FROM (
+                     SELECT g, (ARRAY['north','east','south','west'])[g % 4 + 1],
+                            date '2025-01-01' + (g % 365), ((g * 37) % 1000) / 10.0
+                     FROM generate_series(1, 1000000) g) r(line, region, day, amount)
+                   WHERE region IN ('{}', '{}');
+                 ANALYZE sales_part;",
+                keep[0], keep[1]
+            ))
+            .expect("generate the shard's rows");
+    }
+    let mut client = coord.client();
+    let mut setup = String::from(
+        "CREATE EXTENSION postgres_fdw;
+         CREATE TABLE sales (line bigint, region text, day date, amount numeric) PARTITION BY LIST (region);
+         ALTER DATABASE postgres SET enable_partitionwise_aggregate = on;",
+    );
+    for (i, (shard, keep)) in shards.iter().zip(regions).enumerate() {
+        setup.push_str(&format!(
+            "CREATE SERVER shard_{i} FOREIGN DATA WRAPPER postgres_fdw
+               OPTIONS (host '127.0.0.1', port '{port}', dbname 'postgres');
+             CREATE USER MAPPING FOR postgres SERVER shard_{i}
+               OPTIONS (user 'postgres', password '{PASSWORD}');
+             CREATE FOREIGN TABLE sales_{i} PARTITION OF sales FOR VALUES IN ('{a}', '{b}')
+               SERVER shard_{i} OPTIONS (table_name 'sales_part');",
+            port = shard.port,
+            a = keep[0],
+            b = keep[1],
+        ));
+    }
+    setup.push_str("ANALYZE sales;");
+    client.batch_execute(&setup).expect("attach the shards");
+    let rows: i64 = client
+        .query_one("SELECT count(*) FROM sales", &[])
+        .expect("count")
+        .get(0);
+    assert_eq!(rows, 1_000_000);
+    println!(
+        "shards: 1,000,000 rows generated and attached in {:.1} s",
+        t0.elapsed().as_secs_f64()
+    );
+
+    let dir = root().join("target").join("pgshards");
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    // The same rows, in line order, as a CSV file.
+    {
+        use std::io::Read;
+        let mut csv = Vec::new();
+        client
+            .copy_out("COPY (SELECT line, region, day, amount FROM sales ORDER BY line) TO STDOUT (FORMAT csv, HEADER true)")
+            .expect("copy out")
+            .read_to_end(&mut csv)
+            .expect("read the copy");
+        std::fs::write(dir.join("sales.csv"), csv).expect("write csv");
+    }
+    let story = |from: &str| {
+        format!(
+            r#"story "Ticket sales by region"
+source "Invented box-office ledger, one row per ticket"
+conclusion "Every region sold its share"
+data sales from {from} {{
+  line: number
+  region: text
+  day: date
+  amount: number
+}}
+view by_region = sales
+  | by region: takings = sum(amount), tickets = count()
+value north = sum(by_region.tickets where region = "north")
+claim north > 200000 "The north sold over 200,000 tickets"
+frame "Takings by region" {{
+  bars by_region: category region, value takings
+  y title "Takings"
+}}
+"#
+        )
+    };
+    std::fs::write(dir.join("csv.cresc"), story("\"sales.csv\"")).expect("write");
+    std::fs::write(
+        dir.join("db.cresc"),
+        story("table \"sales\" via CRESCENDO_TEST_DB in order of line"),
+    )
+    .expect("write");
+    let conn = coord.conn();
+    let env = [("CRESCENDO_TEST_DB", conn.as_str())];
+    let t1 = Instant::now();
+    let a = run(
+        &dir,
+        &["build", "csv.cresc", "--no-cache", "--out", "deck-csv"],
+        &[],
+    );
+    assert!(a.status.success(), "from CSV: {}", text_of(&a));
+    let csv_took = t1.elapsed();
+    let t2 = Instant::now();
+    let b = run(
+        &dir,
+        &["build", "db.cresc", "--no-cache", "--out", "deck-db"],
+        &env,
+    );
+    assert!(b.status.success(), "from the coordinator: {}", text_of(&b));
+    let db_took = t2.elapsed();
+    let (fa, fb) = (
+        read_dir_files(&dir.join("deck-csv")),
+        read_dir_files(&dir.join("deck-db")),
+    );
+    assert_eq!(
+        fa.iter().map(|(n, _)| n).collect::<Vec<_>>(),
+        fb.iter().map(|(n, _)| n).collect::<Vec<_>>()
+    );
+    for ((n, x), (_, y)) in fa.iter().zip(&fb) {
+        assert!(x == y, "`{n}` differs between the CSV and the sharded deck");
+    }
+    println!(
+        "shards: deck from CSV in {:.1} s, from the coordinator in {:.1} s",
+        csv_took.as_secs_f64(),
+        db_took.as_secs_f64()
+    );
+
+    // `check --explain-sql` shows the aggregation sent to both shards.
+    let out = run(&dir, &["check", "--explain-sql", "db.cresc"], &env);
+    let said = text_of(&out);
+    assert!(out.status.success(), "{said}");
+    println!("{said}");
+    assert!(said.contains("-- view by_region (data sales)"), "{said}");
+    assert!(said.contains("sent on to 2 remote scans"), "{said}");
+    let remote: Vec<&str> = said.lines().filter(|l| l.contains("Remote SQL:")).collect();
+    assert_eq!(remote.len(), 2, "{said}");
+    for r in &remote {
+        assert!(
+            r.contains("sum(amount)") && r.contains("count(") && r.contains("GROUP BY"),
+            "the aggregate did not run on the shard: {r}"
+        );
+    }
+    assert!(
+        said.contains("Relations: Aggregate on (public.sales_0"),
+        "{said}"
+    );
+    assert!(
+        said.contains("Relations: Aggregate on (public.sales_1"),
+        "{said}"
+    );
+    // The JSON report carries the plan too.
+    let out = run(
+        &dir,
+        &["check", "--explain-sql", "--format", "json", "db.cresc"],
+        &env,
+    );
+    let report: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json report");
+    let plan = report["sql"][0]["plan"].as_array().expect("a plan");
+    assert!(
+        plan.iter()
+            .filter(|l| l.as_str().is_some_and(|l| l.contains("Remote SQL:")))
+            .count()
+            == 2,
+        "{report}"
+    );
+    // Without --explain-sql nothing asks for a plan.
+    let out = run(&dir, &["check", "--format", "json", "db.cresc"], &env);
+    assert!(out.status.success(), "{}", text_of(&out));
+    let _ = std::fs::remove_dir_all(&dir);
 }

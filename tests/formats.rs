@@ -244,6 +244,13 @@ frame "North" {
         "{}",
         text(&b)
     );
+    // both views' `keep` and `by` ran on the row groups as they were
+    // decoded (the streamed path), and gave the CSV deck
+    assert!(
+        text(&b).contains("streamed views: 2 computed"),
+        "{}",
+        text(&b)
+    );
     assert_eq!(
         read_dir_files(&dir.join("deck-csv")),
         read_dir_files(&dir.join("deck-pq"))

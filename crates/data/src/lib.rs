@@ -5,6 +5,7 @@ pub mod bucket;
 pub mod column;
 pub mod digits;
 pub mod files;
+pub mod fold;
 pub mod format;
 mod hash;
 pub mod load;

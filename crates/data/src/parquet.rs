@@ -281,98 +281,129 @@ pub fn column_types(file: &File) -> Option<Vec<(String, Option<crate::model::Col
     )
 }
 
-/// [`load_parquet`], skipping the row groups in which no row can make any
-/// of `keeps` true (see the module docs; no skipping when `keeps` is
-/// empty). Returns the table and the number of row groups skipped.
-pub fn load_parquet_skipping(
-    spec: &CsvSpec,
-    file: &File,
-    columns: &Columns,
-    limits: &ReadLimits,
-    keeps: &[Expr],
-) -> Result<(Table, usize), LoadError> {
-    let name = &spec.display_name;
-    let damaged = |e: &dyn std::fmt::Display| {
-        story(
-            "data-file",
-            format!("cannot read Parquet file `{name}`: it is damaged, cut short or not a Parquet file ({e})"),
-            Some("write the file again, or export the data as CSV"),
-        )
-    };
-    let handle = file.try_clone().map_err(|e| damaged(&e))?;
-    let reader = SerializedFileReader::new(handle).map_err(|e| damaged(&e))?;
-    let schema = reader
-        .metadata()
-        .file_metadata()
-        .schema_descr()
-        .root_schema();
-    let mut cols: Vec<TypedColumn> = Vec::new();
-    let mut picked: Vec<Arc<Type>> = Vec::new();
-    for field in schema.get_fields() {
-        let title = field.name().to_string();
-        let keep = columns.keeps(&title) || spec.declared.iter().any(|(n, _)| *n == title);
-        if keep {
-            if let Some(why) = unsupported(field) {
-                return Err(story(
-                    "data-file",
-                    format!("column `{title}` of Parquet file `{name}` is {why}, which crescendo does not read"),
-                    Some("columns are read as numbers, texts, dates, timestamps (as their day) and true/false; flatten or convert this column, or leave it unused"),
-                ));
+/// A Parquet file opened for the columns a story reads.
+struct Opened {
+    reader: SerializedFileReader<File>,
+    /// The fields decoded (the projection).
+    picked: Vec<Arc<Type>>,
+    /// Every column's name and whether it is decoded, in file order.
+    names: Vec<(String, bool)>,
+    /// No nested column: statistics line up with the fields.
+    flat: bool,
+}
+
+fn damaged(name: &str, e: &dyn std::fmt::Display) -> LoadError {
+    story(
+        "data-file",
+        format!("cannot read Parquet file `{name}`: it is damaged, cut short or not a Parquet file ({e})"),
+        Some("write the file again, or export the data as CSV"),
+    )
+}
+
+impl Opened {
+    fn new(spec: &CsvSpec, file: &File, columns: &Columns) -> Result<Opened, LoadError> {
+        let name = &spec.display_name;
+        let handle = file.try_clone().map_err(|e| damaged(name, &e))?;
+        let reader = SerializedFileReader::new(handle).map_err(|e| damaged(name, &e))?;
+        let schema = reader
+            .metadata()
+            .file_metadata()
+            .schema_descr()
+            .root_schema()
+            .clone();
+        let mut names = Vec::new();
+        let mut picked: Vec<Arc<Type>> = Vec::new();
+        for field in schema.get_fields() {
+            let title = field.name().to_string();
+            let keep = columns.keeps(&title) || spec.declared.iter().any(|(n, _)| *n == title);
+            if keep {
+                if let Some(why) = unsupported(field) {
+                    return Err(story(
+                        "data-file",
+                        format!("column `{title}` of Parquet file `{name}` is {why}, which crescendo does not read"),
+                        Some("columns are read as numbers, texts, dates, timestamps (as their day) and true/false; flatten or convert this column, or leave it unused"),
+                    ));
+                }
+                picked.push(Arc::clone(field));
             }
-            picked.push(Arc::clone(field));
+            names.push((title, keep));
         }
-        cols.push(TypedColumn {
-            name: title,
-            keep,
-            cells: Vec::new(),
-        });
+        let flat = schema.get_fields().iter().all(|f| !f.is_group());
+        Ok(Opened {
+            reader,
+            picked,
+            names,
+            flat,
+        })
     }
-    let kept: Vec<usize> = (0..cols.len()).filter(|&j| cols[j].keep).collect();
-    let mut rows = 0usize;
-    let mut places: Vec<(usize, usize)> = Vec::new();
-    let flat = schema.get_fields().iter().all(|f| !f.is_group());
-    let mut skipped = 0;
-    for g in 0..reader.num_row_groups() {
-        let group = reader.get_row_group(g).map_err(|e| damaged(&e))?;
-        if flat && !keeps.is_empty() {
-            let meta = group.metadata();
-            let spans: Vec<Option<Bounds>> = schema
-                .get_fields()
-                .iter()
-                .enumerate()
-                .map(|(k, f)| bounds(f, meta.column(k).statistics()))
-                .collect();
-            if !keeps.iter().any(|e| may_hold(e, &spans)) {
-                skipped += 1;
-                continue;
-            }
+
+    /// Empty columns, one per file column.
+    fn columns(&self) -> Vec<TypedColumn> {
+        self.names
+            .iter()
+            .map(|(name, keep)| TypedColumn {
+                name: name.clone(),
+                keep: *keep,
+                cells: Vec::new(),
+            })
+            .collect()
+    }
+
+    /// Can no row of group `g` make any of `keeps` true (by its statistics)?
+    fn skips(&self, name: &str, g: usize, keeps: &[Expr]) -> Result<bool, LoadError> {
+        if !self.flat || keeps.is_empty() {
+            return Ok(false);
         }
+        let group = self
+            .reader
+            .get_row_group(g)
+            .map_err(|e| damaged(name, &e))?;
+        let meta = group.metadata();
+        let schema = self
+            .reader
+            .metadata()
+            .file_metadata()
+            .schema_descr()
+            .root_schema();
+        let spans: Vec<Option<Bounds>> = schema
+            .get_fields()
+            .iter()
+            .enumerate()
+            .map(|(k, f)| bounds(f, meta.column(k).statistics()))
+            .collect();
+        Ok(!keeps.iter().any(|e| may_hold(e, &spans)))
+    }
+
+    /// The rows of group `g`: decoded into `cols` (the kept columns) and
+    /// their places pushed to `places`; returns the number of rows.
+    fn decode(
+        &self,
+        (name, limits): (&str, &ReadLimits),
+        g: usize,
+        cols: &mut [TypedColumn],
+        places: &mut Vec<(usize, usize)>,
+    ) -> Result<usize, LoadError> {
+        let group = self
+            .reader
+            .get_row_group(g)
+            .map_err(|e| damaged(name, &e))?;
         let n = usize::try_from(group.metadata().num_rows()).unwrap_or(0);
-        if limits.rows.is_some_and(|max| rows + n > max) {
-            return Err(story(
-                "too-many-rows",
-                format!(
-                    "Parquet file `{name}` has more than {} rows",
-                    limits.rows.unwrap_or(0)
-                ),
-                Some("raise `--max-rows`"),
-            ));
-        }
+        let kept: Vec<usize> = (0..cols.len()).filter(|&j| cols[j].keep).collect();
         if kept.is_empty() {
             // no column is read: the rows are counted, not decoded
             places.extend((0..n).map(|i| (g, i)));
-            rows += n;
-            continue;
+            return Ok(n);
         }
         let projection = Type::group_type_builder("schema")
-            .with_fields(picked.clone())
+            .with_fields(self.picked.clone())
             .build()
-            .map_err(|e| damaged(&e))?;
+            .map_err(|e| damaged(name, &e))?;
         let iter = group
             .get_row_iter(Some(projection))
-            .map_err(|e| damaged(&e))?;
+            .map_err(|e| damaged(name, &e))?;
+        let mut rows = 0;
         for (i, row) in iter.enumerate() {
-            let row = row.map_err(|e| damaged(&e))?;
+            let row = row.map_err(|e| damaged(name, &e))?;
             for ((_, field), &j) in row.get_column_iter().zip(&kept) {
                 let cell = typed(field).ok_or_else(|| {
                     story(
@@ -403,19 +434,122 @@ pub fn load_parquet_skipping(
             places.push((g, i));
             rows += 1;
         }
+        Ok(rows)
     }
-    let names: Vec<String> = cols.iter().map(|c| c.name.clone()).collect();
-    let locate = |j: usize, r: usize| {
-        let (g, i) = places.get(r).copied().unwrap_or((0, r));
-        format!(
-            "Parquet file `{name}`, column `{}`, row {} (row {} of row group {})",
-            names.get(j).map_or("", String::as_str),
-            r + 1,
-            i + 1,
-            g + 1
-        )
-    };
+}
+
+/// Where cell `(column j, row r)` is, for messages.
+fn place(
+    name: &str,
+    names: &[(String, bool)],
+    places: &[(usize, usize)],
+    j: usize,
+    r: usize,
+) -> String {
+    let (g, i) = places.get(r).copied().unwrap_or((0, r));
+    format!(
+        "Parquet file `{name}`, column `{}`, row {} (row {} of row group {})",
+        names.get(j).map_or("", |n| n.0.as_str()),
+        r + 1,
+        i + 1,
+        g + 1
+    )
+}
+
+/// [`load_parquet`], skipping the row groups in which no row can make any
+/// of `keeps` true (see the module docs; no skipping when `keeps` is
+/// empty). Returns the table and the number of row groups skipped.
+pub fn load_parquet_skipping(
+    spec: &CsvSpec,
+    file: &File,
+    columns: &Columns,
+    limits: &ReadLimits,
+    keeps: &[Expr],
+) -> Result<(Table, usize), LoadError> {
+    let name = &spec.display_name;
+    let opened = Opened::new(spec, file, columns)?;
+    let mut cols = opened.columns();
+    let mut rows = 0usize;
+    let mut places: Vec<(usize, usize)> = Vec::new();
+    let mut skipped = 0;
+    for g in 0..opened.reader.num_row_groups() {
+        if opened.skips(name, g, keeps)? {
+            skipped += 1;
+            continue;
+        }
+        let group = opened
+            .reader
+            .get_row_group(g)
+            .map_err(|e| damaged(name, &e))?;
+        let n = usize::try_from(group.metadata().num_rows()).unwrap_or(0);
+        if limits.rows.is_some_and(|max| rows + n > max) {
+            return Err(story(
+                "too-many-rows",
+                format!(
+                    "Parquet file `{name}` has more than {} rows",
+                    limits.rows.unwrap_or(0)
+                ),
+                Some("raise `--max-rows`"),
+            ));
+        }
+        rows += opened.decode((name.as_str(), limits), g, &mut cols, &mut places)?;
+    }
+    let locate = |j: usize, r: usize| place(name, &opened.names, &places, j, r);
     finish(spec, cols, rows, &locate).map(|t| (t, skipped))
+}
+
+/// What [`each_group`] did.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Groups {
+    /// Row groups decoded and handed on.
+    pub read: usize,
+    /// Row groups skipped by their statistics.
+    pub skipped: usize,
+    /// The callback asked to stop.
+    pub stopped: bool,
+}
+
+/// The file one row group at a time, each typed as [`load_parquet`] types
+/// a whole file, handed to `each` (which returns `false` to stop); row
+/// groups `keeps` rule out are skipped as in [`load_parquet_skipping`].
+/// Only one group's rows are held at a time. Empty groups are passed over.
+/// An error is the first problem met; the whole load reports the same
+/// problems with rows counted over the file.
+pub fn each_group(
+    spec: &CsvSpec,
+    file: &File,
+    columns: &Columns,
+    limits: &ReadLimits,
+    keeps: &[Expr],
+    each: &mut dyn FnMut(Table) -> bool,
+) -> Result<Groups, LoadError> {
+    let name = &spec.display_name;
+    let opened = Opened::new(spec, file, columns)?;
+    let mut done = Groups {
+        read: 0,
+        skipped: 0,
+        stopped: false,
+    };
+    for g in 0..opened.reader.num_row_groups() {
+        if opened.skips(name, g, keeps)? {
+            done.skipped += 1;
+            continue;
+        }
+        let mut cols = opened.columns();
+        let mut places = Vec::new();
+        let rows = opened.decode((name.as_str(), limits), g, &mut cols, &mut places)?;
+        if rows == 0 {
+            continue;
+        }
+        let locate = |j: usize, r: usize| place(name, &opened.names, &places, j, r);
+        let table = finish(spec, cols, rows, &locate)?;
+        done.read += 1;
+        if !each(table) {
+            done.stopped = true;
+            break;
+        }
+    }
+    Ok(done)
 }
 
 #[cfg(test)]

@@ -54,6 +54,7 @@ use std::sync::atomic::{AtomicUsize, Ordering as AtomicOrdering};
 use std::sync::Mutex;
 
 use crate::files::ReadAt;
+use crate::fold::{states, Sink};
 use crate::load::{CsvSpec, LoadError, ReadLimits};
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Value, Values};
 use crate::record::{forbidden_char, reader_builder, scan_fields, too_long, RawRecord, Tee};
@@ -243,13 +244,13 @@ struct ChunkOut {
 
 /// Per view: groups, or kept rows.
 #[derive(Clone, Debug)]
-enum ViewState {
+pub(crate) enum ViewState {
     Groups(Groups),
     Rows(Vec<Values>),
 }
 
 #[derive(Clone, Debug, Default)]
-struct Groups {
+pub(crate) struct Groups {
     index: FxMap<Box<[u8]>, usize>,
     keys: Vec<Vec<Value>>,
     accs: Vec<Vec<Acc>>,
@@ -387,7 +388,7 @@ fn extreme(best: &mut Option<Value>, c: Cell<'_>, want: std::cmp::Ordering) {
 }
 
 impl Groups {
-    fn new(keys: &[usize], aggs: &[Aggregate]) -> Groups {
+    pub(crate) fn new(keys: &[usize], aggs: &[Aggregate]) -> Groups {
         let mut g = Groups::default();
         if keys.is_empty() {
             // Without keys the whole file is one group, even when empty.
@@ -437,11 +438,10 @@ impl Groups {
     }
 }
 
-/// Add one record (its cells by column) to the state of every view whose
-/// `keep`s it passes; `false` when a view then holds more kept rows than
-/// the limits allow, or its state does not fit its step.
-fn add_record(
-    input: &ScanInput<'_>,
+/// Add one record (cells by column) to every view whose `keep`s it passes;
+/// `false` when a view's kept rows outgrow the limits, or its state does not fit.
+pub(crate) fn add_record(
+    input: &Sink<'_>,
     cells: &[Cell<'_>],
     states: &mut [ViewState],
     kept: &mut [usize],
@@ -500,7 +500,7 @@ fn cells_allowed(limits: &ReadLimits, record: &csv::ByteRecord, check: &[usize])
 
 /// Do the kept rows held in `cols` fit the row limit (or, without one, the
 /// memory allowed)?
-fn rows_fit(limits: &ReadLimits, cols: &[Values]) -> bool {
+pub(crate) fn rows_fit(limits: &ReadLimits, cols: &[Values]) -> bool {
     match limits.rows {
         Some(max) => cols.first().map_or(0, Values::len) <= max,
         None => cols.iter().map(Values::heap_bytes).sum::<usize>() as u64 <= limits.memory,
@@ -520,14 +520,7 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
     let mut out = ChunkOut {
         end: End::Failed,
         rows: 0,
-        views: input
-            .views
-            .iter()
-            .map(|v| match &v.group {
-                Some((keys, aggs)) => ViewState::Groups(Groups::new(keys, aggs)),
-                None => ViewState::Rows(vec![Values::new(); ncols]),
-            })
-            .collect(),
+        views: states(input.views, ncols),
         first_text: vec![None; ncols],
     };
     let mut rdr = reader_builder()
@@ -541,6 +534,12 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
         })
         .collect();
     let mut kept = vec![0usize; input.views.len()];
+    let (views, keep_values, limits) = (input.views, input.keep_values, input.limits);
+    let sink = Sink {
+        views,
+        keep_values,
+        limits,
+    };
     let mut record = csv::ByteRecord::new();
     let mut target = 0usize;
     let mut scratch: Vec<Cell<'static>> = Vec::with_capacity(ncols);
@@ -618,7 +617,7 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
             }
             cells[j] = c;
         }
-        if !add_record(input, &cells, &mut out.views, &mut kept, &mut keybuf) {
+        if !add_record(&sink, &cells, &mut out.views, &mut kept, &mut keybuf) {
             return out;
         }
         scratch = recycle(cells);
@@ -709,7 +708,7 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
         .views
         .iter()
         .zip(out.views)
-        .map(|(v, state)| finish(input, v, state))
+        .map(|(v, state)| finish(input.schema, v, state))
         .collect();
     let first_text = (0..ncols)
         .map(|j| {
@@ -732,8 +731,7 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
 
 /// The table of one view's prefix: as the table engine's group step would
 /// give it, or the kept rows with every header column.
-fn finish(input: &ScanInput<'_>, view: &StreamView, state: ViewState) -> Table {
-    let schema = input.schema;
+pub(crate) fn finish(schema: &[(String, ColType)], view: &StreamView, state: ViewState) -> Table {
     match (state, &view.group) {
         (ViewState::Groups(g), Some((keys, aggs))) => {
             let mut columns: Vec<Column> = keys

@@ -137,6 +137,17 @@ pub trait Database {
         timeout: Duration,
     ) -> Result<(Vec<Row>, u64), SessionError>;
 
+    /// The plan of `sql` (not run), one line an entry; none where the
+    /// session cannot say.
+    fn explain(
+        &mut self,
+        _sql: &str,
+        _params: &[String],
+        _timeout: Duration,
+    ) -> Result<Vec<String>, SessionError> {
+        Ok(Vec::new())
+    }
+
     /// End the session (nothing was written).
     fn close(self: Box<Self>);
 }
@@ -157,6 +168,15 @@ impl Database for Session {
         timeout: Duration,
     ) -> Result<(Vec<Row>, u64), SessionError> {
         Session::rows(self, sql, params, timeout)
+    }
+
+    fn explain(
+        &mut self,
+        sql: &str,
+        params: &[String],
+        timeout: Duration,
+    ) -> Result<Vec<String>, SessionError> {
+        Session::explain(self, sql, params, timeout)
     }
 
     fn close(self: Box<Self>) {

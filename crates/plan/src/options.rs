@@ -35,6 +35,10 @@ pub struct DbOptions {
     pub connections: BTreeMap<String, String>,
     /// The statement timeout of every query.
     pub timeout: Duration,
+    /// Ask the database for each query's plan too (`EXPLAIN (VERBOSE)`,
+    /// for `check --explain-sql`): where each step ran, and the SQL a
+    /// coordinator sent on to its remote servers.
+    pub explain: bool,
 }
 
 impl Default for DbOptions {
@@ -42,6 +46,7 @@ impl Default for DbOptions {
         DbOptions {
             connections: Default::default(),
             timeout: Duration::from_secs(60),
+            explain: false,
         }
     }
 }

@@ -212,6 +212,22 @@ impl Session {
         Ok((out, bytes))
     }
 
+    /// The plan of `sql` (`EXPLAIN (VERBOSE, COSTS OFF)`, not run), one
+    /// line an entry.
+    pub fn explain(
+        &mut self,
+        sql: &str,
+        params: &[String],
+        timeout: Duration,
+    ) -> Result<Vec<String>, SessionError> {
+        let (rows, _) = self.rows(
+            &format!("EXPLAIN (VERBOSE, COSTS OFF) {sql}"),
+            params,
+            timeout,
+        )?;
+        Ok(rows.into_iter().flatten().flatten().collect())
+    }
+
     /// End the transaction (nothing was written).
     pub fn close(mut self) {
         let _ = self.client.batch_execute("ROLLBACK");

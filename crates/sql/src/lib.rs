@@ -52,6 +52,24 @@ pub struct Explained {
     /// Bytes of cell text received (a debug figure: the payload, without
     /// the protocol's framing).
     pub bytes: u64,
+    /// The database's plan of the query (`EXPLAIN (VERBOSE, COSTS OFF)`),
+    /// one line an entry, when asked for (`check --explain-sql`); a
+    /// coordinator's plan names the SQL it sent to each remote server
+    /// (`Remote SQL:` lines of postgres_fdw).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub plan: Vec<String>,
+}
+
+impl Explained {
+    /// The SQL the database sent on to remote servers (postgres_fdw's
+    /// `Remote SQL:` lines of the plan), in plan order.
+    pub fn remote_sql(&self) -> Vec<&str> {
+        self.plan
+            .iter()
+            .filter_map(|l| l.trim_start().strip_prefix("Remote SQL:"))
+            .map(str::trim)
+            .collect()
+    }
 }
 
 /// Where a database `data` item reads from.

@@ -44,6 +44,8 @@ struct Item<'a> {
     db: &'a ast::DatabaseSource,
     from: crescendo_sql::From,
     timeout: Duration,
+    /// Ask for each query's plan too (`DbOptions::explain`).
+    explain: bool,
 }
 
 impl Item<'_> {
@@ -102,6 +104,7 @@ pub(crate) fn load(
             DbFrom::Query(q) => crescendo_sql::From::Query(q.value.clone()),
         },
         timeout: cx.options.database.timeout,
+        explain: cx.options.database.explain,
     };
     let mut session = match cx.io.connect(&conn, item.timeout) {
         Ok(s) => s,
@@ -277,7 +280,15 @@ fn run(
     let (rows, bytes) = session
         .rows(&q.sql, &q.params, item.timeout)
         .map_err(|e| e.message)?;
+    let plan = if item.explain {
+        session
+            .explain(&q.sql, &q.params, item.timeout)
+            .map_err(|e| e.message)?
+    } else {
+        Vec::new()
+    };
     explained.push(Explained {
+        plan,
         data: item.name().to_string(),
         view,
         sql: q.sql.clone(),

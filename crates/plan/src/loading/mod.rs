@@ -50,6 +50,7 @@
 //! Database sources are read in `database.rs`; what the loads did comes
 //! back with the plan ([`LoadReport`], the SQL log).
 
+mod columnar;
 mod database;
 mod facts;
 mod files;
@@ -110,6 +111,24 @@ impl Loader {
         if crescendo_data::parquet::is_parquet(&spec.path) && !clause {
             let views = self.facts.streamable.get(&name);
             let keeps = skip::first_keeps(cx.src, &spec, &file, &keep, views);
+            if let Some(views) = views.cloned() {
+                let read = (decl, &spec, &file);
+                let streamed = columnar::stream_parquet(
+                    cx,
+                    self,
+                    tables,
+                    read,
+                    &views,
+                    (&keep, keeps.as_slice()),
+                );
+                if let Some((shell, n)) = streamed {
+                    if n > 0 {
+                        self.report.skipped_groups.push(format!("{name}: {n}"));
+                    }
+                    self.report.streamed.push(name);
+                    return Ok(shell);
+                }
+            }
             let read = crescendo_data::parquet::load_parquet_skipping(
                 &spec,
                 &file,

@@ -108,18 +108,18 @@ fn data_entry(
 /// A view's streamed prefix: the view, the number of its steps (as
 /// written) the prefix covers, its resolved steps, what the stream runs,
 /// and its cache key.
-struct Prefix {
+pub(crate) struct Prefix {
     view: String,
     ast_steps: usize,
     steps: Vec<Step>,
-    run: StreamView,
+    pub(crate) run: StreamView,
     key: Option<String>,
 }
 
 /// Check every view against the file's columns (quietly: the regular pass
 /// reports) and keep the resolved prefix steps. `None`: a view does not
 /// check or its prefix does not stream; load the file whole.
-fn prefixes(
+pub(crate) fn prefixes(
     cx: &Ctx,
     tables: &Tables,
     decl: &ast::DataDecl,
@@ -279,7 +279,7 @@ fn scan(
 
 /// Keep the prefixes' tables for their views, and say what was computed
 /// and what came from the cache.
-fn record(
+pub(crate) fn record(
     loader: &mut Loader,
     tables: &mut Tables,
     data_key: Option<String>,

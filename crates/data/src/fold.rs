@@ -1,0 +1,114 @@
+//! The streaming engine of [`crate::stream`] fed with whole tables (the
+//! typed row groups of a Parquet file) instead of CSV records.
+
+use crate::load::ReadLimits;
+use crate::model::Values;
+use crate::model::{Cell, ColType, Table};
+use crate::stream::{add_record, finish, rows_fit, Groups, StreamView, ViewState};
+
+/// The empty state of every view over `ncols` columns.
+pub(crate) fn states(views: &[StreamView], ncols: usize) -> Vec<ViewState> {
+    let state = |v: &StreamView| match &v.group {
+        Some((keys, aggs)) => ViewState::Groups(Groups::new(keys, aggs)),
+        None => ViewState::Rows(vec![Values::new(); ncols]),
+    };
+    views.iter().map(state).collect()
+}
+
+/// The views, per column whether kept rows carry its values, the limits.
+#[derive(Clone, Copy)]
+pub(crate) struct Sink<'a> {
+    pub(crate) views: &'a [StreamView],
+    pub(crate) keep_values: &'a [bool],
+    pub(crate) limits: &'a ReadLimits,
+}
+
+/// The same engine fed with whole tables (the row groups of a Parquet
+/// file, typed) instead of CSV records, one after another, so memory grows
+/// with the groups (and the rows a `keep`-only view keeps), not with the
+/// file. The tables must have the columns and types of `schema`; results
+/// equal those of the table engine over all the tables' rows together.
+pub struct Fold<'a> {
+    sink: Sink<'a>,
+    schema: Vec<(String, ColType)>,
+    states: Vec<ViewState>,
+    kept: Vec<usize>,
+    keybuf: Vec<u8>,
+    rows: usize,
+}
+
+impl<'a> Fold<'a> {
+    /// A fold of `views` over tables of `schema`; `keep_values`: per
+    /// column, whether the rows of `keep`-only views carry its values.
+    pub fn new(
+        views: &'a [StreamView],
+        keep_values: &'a [bool],
+        limits: &'a ReadLimits,
+        schema: Vec<(String, ColType)>,
+    ) -> Fold<'a> {
+        let states = states(views, schema.len());
+        Fold {
+            sink: Sink {
+                views,
+                keep_values,
+                limits,
+            },
+            schema,
+            states,
+            kept: vec![0; views.len()],
+            keybuf: Vec::with_capacity(64),
+            rows: 0,
+        }
+    }
+
+    /// Fold in the rows of `t`. `false`: its columns or types are not the
+    /// schema's, or kept rows outgrow the limits (load the file instead).
+    pub fn add(&mut self, t: &Table) -> bool {
+        let same = t.columns.len() == self.schema.len()
+            && t.columns
+                .iter()
+                .zip(&self.schema)
+                .all(|(c, (n, ty))| c.name == *n && c.ty == *ty);
+        if !same {
+            return false;
+        }
+        let n = t.columns.first().map_or(0, |c| c.values.len());
+        let mut cells: Vec<Cell<'_>> = Vec::with_capacity(t.columns.len());
+        for r in 0..n {
+            cells.clear();
+            cells.extend(t.columns.iter().map(|c| c.values.cell(r)));
+            let (states, kept, keybuf) = (&mut self.states, &mut self.kept, &mut self.keybuf);
+            if !add_record(&self.sink, &cells, states, kept, keybuf) {
+                return false;
+            }
+        }
+        self.rows += n;
+        true
+    }
+
+    /// Rows folded in so far.
+    pub fn rows(&self) -> usize {
+        self.rows
+    }
+
+    /// One table per view, as [`crate::stream::scan`] gives them; `None` when kept rows
+    /// outgrow the limits.
+    pub fn finish(self) -> Option<Vec<Table>> {
+        for state in &self.states {
+            if let ViewState::Rows(cols) = state {
+                if !rows_fit(self.sink.limits, cols) {
+                    return None;
+                }
+            }
+        }
+        let schema = &self.schema;
+        Some(
+            self.sink
+                .views
+                .iter()
+                .zip(self.states)
+                .map(|(v, state)| finish(schema, v, state))
+                .collect(),
+        )
+    }
+}

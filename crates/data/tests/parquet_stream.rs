@@ -1,0 +1,157 @@
+//! Parquet row groups streamed through the CSV stream's engine
+//! (`parquet::each_group` + `fold::Fold`) against the whole load
+//! (`load_parquet` + `run_view`): the same tables, bit for bit. Fixtures:
+//! the ledgers of `tests/formats` (pyarrow, row groups of 50 and 64 rows;
+//! `tests/formats/make_fixtures.py`).
+
+use std::fs::File;
+use std::path::PathBuf;
+
+use crescendo_data::fold::Fold;
+use crescendo_data::load::ReadLimits;
+use crescendo_data::parquet::{each_group, load_parquet};
+use crescendo_data::stream::StreamView;
+use crescendo_data::{
+    run_view, AggFn, Aggregate, CmpOp, ColType, Columns, CsvSpec, Expr, Step, Table, Value,
+};
+
+fn spec(file: &str, declared: Vec<(String, ColType)>) -> CsvSpec {
+    CsvSpec {
+        path: PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+            .join("../../tests/formats")
+            .join(file),
+        display_name: file.into(),
+        declared,
+        missing: vec![String::new()],
+        numbers: Default::default(),
+    }
+}
+
+/// Every aggregate over `amount` (2) and `day` (0), by `keys`.
+fn group(keys: Vec<usize>) -> (Vec<usize>, Vec<Aggregate>) {
+    let mut aggs = vec![Aggregate {
+        name: "rows".into(),
+        func: AggFn::Count,
+        column: None,
+    }];
+    for c in [0, 2] {
+        for (i, f) in [
+            AggFn::Count,
+            AggFn::Sum,
+            AggFn::Mean,
+            AggFn::Median,
+            AggFn::Min,
+            AggFn::Max,
+            AggFn::First,
+            AggFn::Last,
+        ]
+        .into_iter()
+        .enumerate()
+        {
+            if c == 0 && matches!(f, AggFn::Sum | AggFn::Mean | AggFn::Median) {
+                continue;
+            }
+            aggs.push(Aggregate {
+                name: format!("a{c}_{i}"),
+                func: f,
+                column: Some(c),
+            });
+        }
+    }
+    (keys, aggs)
+}
+
+fn steps(v: &StreamView) -> Vec<Step> {
+    let mut s: Vec<Step> = v.keeps.iter().cloned().map(Step::Keep).collect();
+    if let Some((keys, aggregates)) = &v.group {
+        s.push(Step::Group {
+            keys: keys.clone(),
+            aggregates: aggregates.clone(),
+        });
+    }
+    s
+}
+
+fn views() -> Vec<StreamView> {
+    let late = Expr::Cmp(
+        CmpOp::Ge,
+        Box::new(Expr::Col(0)),
+        Box::new(Expr::Lit(Value::Date(19_773))), // 2024-02-20
+    );
+    let big = Expr::Cmp(
+        CmpOp::Gt,
+        Box::new(Expr::Col(2)),
+        Box::new(Expr::Lit(Value::Number(100.0))),
+    );
+    vec![
+        StreamView {
+            keeps: vec![],
+            group: Some(group(vec![1])),
+        },
+        StreamView {
+            keeps: vec![],
+            group: Some(group(vec![])),
+        },
+        StreamView {
+            keeps: vec![late.clone(), big.clone()],
+            group: Some(group(vec![1, 0])),
+        },
+        StreamView {
+            keeps: vec![late],
+            group: None,
+        },
+    ]
+}
+
+/// Debug text compares `-0` and `0` (and every float) exactly.
+fn same(a: &Table, b: &Table) -> bool {
+    format!("{a:?}") == format!("{b:?}")
+}
+
+#[test]
+fn streamed_row_groups_give_the_loaded_tables() {
+    for name in ["ledger.parquet", "ledger-decimal.parquet"] {
+        let s = spec(name, vec![]);
+        let file = File::open(&s.path).expect("fixture");
+        let limits = ReadLimits::none();
+        let whole = load_parquet(&s, &file, &Columns::All, &limits).expect("load");
+        let schema: Vec<(String, ColType)> = whole
+            .columns
+            .iter()
+            .map(|c| (c.name.clone(), c.ty))
+            .collect();
+        let keep_values = vec![true; schema.len()];
+        let views = views();
+        let mut fold = Fold::new(&views, &keep_values, &limits, schema);
+        let mut add = |t: Table| fold.add(&t);
+        let done = each_group(&s, &file, &Columns::All, &limits, &[], &mut add).expect("groups");
+        assert!(!done.stopped, "{name}");
+        assert!(done.read >= 4, "{name}: {} row groups", done.read);
+        assert_eq!(fold.rows(), 240, "{name}");
+        let streamed = fold.finish().expect("fits");
+        for (v, got) in views.iter().zip(&streamed) {
+            let want = run_view(&whole, &steps(v));
+            assert!(same(got, &want), "{name}: {v:?}\n{got:?}\n{want:?}");
+        }
+    }
+}
+
+#[test]
+fn groups_whose_types_differ_stop_the_fold() {
+    let s = spec("ledger.parquet", vec![]);
+    let file = File::open(&s.path).expect("fixture");
+    let limits = ReadLimits::none();
+    // a schema that says `amount` is text: the first group disagrees
+    let schema = vec![
+        ("day".to_string(), ColType::Date),
+        ("branch".to_string(), ColType::Text),
+        ("amount".to_string(), ColType::Text),
+    ];
+    let keep_values = vec![true; 3];
+    let views = views();
+    let mut fold = Fold::new(&views, &keep_values, &limits, schema);
+    let mut add = |t: Table| fold.add(&t);
+    let done = each_group(&s, &file, &Columns::All, &limits, &[], &mut add).expect("groups");
+    assert!(done.stopped);
+    assert_eq!(done.read, 1);
+}

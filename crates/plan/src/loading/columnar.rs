@@ -1,0 +1,82 @@
+//! Streaming a Parquet file: its row groups, each typed as the whole load
+//! types a file, one at a time through the CSV stream's engine
+//! (`crescendo_data::fold`), so memory grows with the row groups (and the
+//! rows a `keep`-only view keeps), not with the file. The views' leading
+//! `keep` and `by` steps run per row group; the rest of each view runs on
+//! the small table they give, as for a streamed CSV file.
+//!
+//! The column types come from the first row group read; a later group
+//! whose types differ (say an undeclared text column whose first group
+//! held only months) or any problem in the file falls back to the whole
+//! load, which gives the same tables or reports the problem, located.
+
+use std::fs::File;
+
+use crescendo_data::fold::Fold;
+use crescendo_data::parquet::each_group;
+use crescendo_data::stream::StreamView;
+use crescendo_data::{Column, Columns, CsvSpec, Expr, Table, Values};
+use crescendo_lang::ast::{self, StepAst};
+
+use crate::context::Ctx;
+use crate::loading::facts::prefix_len;
+use crate::loading::state::Loader;
+use crate::loading::stream::{prefixes, record};
+use crate::tables::Tables;
+
+/// Stream a Parquet data item; the item's table without rows and the row
+/// groups skipped by their statistics. `None`: load it whole instead.
+pub(crate) fn stream_parquet(
+    cx: &mut Ctx,
+    loader: &mut Loader,
+    tables: &mut Tables,
+    (decl, spec, file): (&ast::DataDecl, &CsvSpec, &File),
+    views: &[ast::ViewDecl],
+    (keep, keeps): (&Columns, &[Expr]),
+) -> Option<(Table, usize)> {
+    let keep_only = views.iter().any(|v| {
+        let n = prefix_len(&v.steps);
+        !v.steps[..n].iter().any(|s| matches!(s, StepAst::By { .. }))
+    });
+    if keep_only && matches!(keep, Columns::All) {
+        // a `keep`-only prefix would keep every column of every row
+        return None;
+    }
+    let limits = loader.limits.clone();
+    // The first row group read gives the column types.
+    let mut first: Option<Table> = None;
+    let mut take_first = |t: Table| {
+        first = Some(t);
+        false
+    };
+    each_group(spec, file, keep, &limits, keeps, &mut take_first).ok()?;
+    let shell = Table {
+        columns: first?
+            .columns
+            .into_iter()
+            .map(|c| Column {
+                name: c.name,
+                ty: c.ty,
+                values: Values::new(),
+            })
+            .collect(),
+    };
+    let prefixes = prefixes(cx, tables, decl, &shell, views, None)?;
+    let runs: Vec<StreamView> = prefixes.iter().map(|p| p.run.clone()).collect();
+    let schema: Vec<_> = shell
+        .columns
+        .iter()
+        .map(|c| (c.name.clone(), c.ty))
+        .collect();
+    let keep_values: Vec<bool> = schema.iter().map(|(n, _)| keep.keeps(n)).collect();
+    let mut fold = Fold::new(&runs, &keep_values, &limits, schema);
+    let mut add = |t: Table| fold.add(&t);
+    let done = each_group(spec, file, keep, &limits, keeps, &mut add).ok()?;
+    if done.stopped || fold.rows() == 0 {
+        return None;
+    }
+    let found: Vec<Option<Table>> = fold.finish()?.into_iter().map(Some).collect();
+    let all: Vec<usize> = (0..found.len()).collect();
+    record(loader, tables, None, prefixes, found, &all)?;
+    Some((shell, done.skipped))
+}
