@@ -17,7 +17,7 @@ pub fn run(
     draft: bool,
     no_cache: bool,
     format: &[Export],
-    scale: u32,
+    (scale, transparent, bookends): (u32, bool, bool),
     data: &DataArgs,
     lint: &LintArgs,
     color: bool,
@@ -28,6 +28,8 @@ pub fn run(
         pdf: format.contains(&Export::Pdf),
         png: format.contains(&Export::Png),
         scale,
+        transparent,
+        bookends,
     };
     build_with(story, out, draft, !no_cache, &exports, data, lint, color)
 }

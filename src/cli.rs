@@ -227,6 +227,15 @@ pub enum Command {
         #[arg(long, value_name = "N", default_value_t = 2,
               value_parser = clap::value_parser!(u32).range(1..=4))]
         scale: u32,
+        /// PNG frames without the painted page (transparent behind the
+        /// drawing, for laying over a slide of your own); by default every
+        /// PNG is painted with the theme's page colour.
+        #[arg(long)]
+        transparent: bool,
+        /// The HTML deck without its opening frame (title, byline, source)
+        /// and closing frame (the conclusion).
+        #[arg(long)]
+        frames_only: bool,
         #[command(flatten)]
         data: DataArgs,
         #[command(flatten)]

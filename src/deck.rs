@@ -39,6 +39,11 @@ pub struct Exports {
     pub png: bool,
     /// PNG pixels per SVG px (1280·scale × 720·scale).
     pub scale: u32,
+    /// PNG frames without the painted page (`--transparent`).
+    pub transparent: bool,
+    /// The HTML deck opens with a frame of the title, byline and source and
+    /// closes with the conclusion (off with `--frames-only`).
+    pub bookends: bool,
 }
 
 impl Default for Exports {
@@ -50,6 +55,8 @@ impl Default for Exports {
             pdf: false,
             png: false,
             scale: 2,
+            transparent: false,
+            bookends: true,
         }
     }
 }
@@ -150,8 +157,9 @@ pub fn render_files(
             files.push((name, svg.clone().into_bytes()));
         }
         if exports.png {
-            let bytes = crate::export::png(svg, exports.scale, page)
-                .map_err(|e| export_err(&format!("PNG of frame {}", f.number), e))?;
+            let bytes =
+                crate::export::png(svg, exports.scale, (!exports.transparent).then_some(page))
+                    .map_err(|e| export_err(&format!("PNG of frame {}", f.number), e))?;
             files.push((png_name, bytes));
         }
     }
@@ -184,7 +192,7 @@ pub fn render_files(
             .iter()
             .zip(svgs.iter().map(String::as_str))
             .collect();
-        let html = crescendo_render::render_deck_html(plan, &pairs);
+        let html = crescendo_render::render_deck_html_with(plan, &pairs, exports.bookends);
         files.push(("index.html".to_string(), html.into_bytes()));
     }
     files.push((MANIFEST.to_string(), manifest.into_bytes()));

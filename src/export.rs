@@ -332,12 +332,15 @@ fn rewrite_references(body: &str, map: &BTreeMap<u32, u32>) -> String {
     out.into_inner()
 }
 
-/// One PNG of `svg` at `scale` (1280·scale × 720·scale px) on `page`.
-pub fn png(svg: &str, scale: u32, page: Rgb) -> Result<Vec<u8>, String> {
+/// One PNG of `svg` at `scale` (1280·scale × 720·scale px) on `page`, or
+/// transparent where nothing is drawn when `page` is `None`.
+pub fn png(svg: &str, scale: u32, page: Option<Rgb>) -> Result<Vec<u8>, String> {
     let tree = tree(svg)?;
     let mut pixmap = tiny_skia::Pixmap::new(WIDTH * scale, HEIGHT * scale)
         .ok_or_else(|| format!("cannot make a {}×{} image", WIDTH * scale, HEIGHT * scale))?;
-    pixmap.fill(tiny_skia::Color::from_rgba8(page.0, page.1, page.2, 255));
+    if let Some(page) = page {
+        pixmap.fill(tiny_skia::Color::from_rgba8(page.0, page.1, page.2, 255));
+    }
     let s = scale as f32;
     resvg::render(
         &tree,
@@ -380,12 +383,17 @@ mod tests {
 
     #[test]
     fn png_has_the_requested_size() {
-        let bytes = png(SVG, 2, Rgb(255, 255, 255)).unwrap();
+        let bytes = png(SVG, 2, Some(Rgb(255, 255, 255))).unwrap();
         let img = tiny_skia::Pixmap::decode_png(&bytes).unwrap();
+        // painted: the corner is the page, opaque
+        assert_eq!(img.pixel(0, 0).map(|p| p.alpha()), Some(255));
+        let clear = png(SVG, 1, None).unwrap();
+        let clear = tiny_skia::Pixmap::decode_png(&clear).unwrap();
+        assert_eq!(clear.pixel(0, 0).map(|p| p.alpha()), Some(0));
         assert_eq!((img.width(), img.height()), (2560, 1440));
         // the accent square, scaled
         let p = img.pixel(250, 250).unwrap();
         assert_eq!((p.red(), p.green(), p.blue()), (0xB4, 0x40, 0x0A));
-        assert_eq!(bytes, png(SVG, 2, Rgb(255, 255, 255)).unwrap());
+        assert_eq!(bytes, png(SVG, 2, Some(Rgb(255, 255, 255))).unwrap());
     }
 }

@@ -239,6 +239,13 @@ const VISIBLE: &str = "JSON.stringify(Array.from(document.querySelectorAll('sect
     .filter(function(s){return getComputedStyle(s).display!=='none'})\
     .map(function(s){return s.id}))";
 
+/// A function of two selectors: true when both elements are laid out and
+/// their rectangles do not overlap (a hidden element counts as apart).
+const APART: &str = "(function(a,b){var x=document.querySelector(a),y=document.querySelector(b);\
+if(!x||!y)return true;var r=x.getBoundingClientRect(),q=y.getBoundingClientRect();\
+if(r.width===0||r.height===0||q.width===0||q.height===0)return true;\
+return r.right<=q.left||q.right<=r.left||r.bottom<=q.top||q.bottom<=r.top;})";
+
 fn visible(s: &mut Session) -> Vec<String> {
     let v = s.eval(VISIBLE);
     serde_json::from_str(v.as_str().unwrap()).unwrap()
@@ -287,8 +294,11 @@ fn the_deck_works_in_a_real_browser() {
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     let manifest: Value =
         serde_json::from_slice(&std::fs::read(deck.join("deck.json")).unwrap()).unwrap();
-    let n = manifest["frames"].as_array().unwrap().len();
-    assert!(n >= 3);
+    let charts = manifest["frames"].as_array().unwrap().len();
+    assert!(charts >= 3);
+    // the opening frame (title, byline, source) and the closing frame (the
+    // conclusion) are frames of the HTML deck too
+    let n = charts + 2;
     let index: PathBuf = deck.join("index.html").canonicalize().unwrap();
 
     let profile = dir.join("profile");
@@ -311,6 +321,20 @@ fn the_deck_works_in_a_real_browser() {
     s.wait_for("Page.loadEventFired");
     assert_eq!(s.eval("document.readyState"), "complete");
 
+    assert_eq!(
+        s.eval("document.querySelectorAll('section.frame').length"),
+        json!(n)
+    );
+    assert_eq!(
+        s.eval("document.querySelector('#frame-1 .opening-title').textContent"),
+        manifest["title"]
+    );
+    assert_eq!(
+        s.eval(&format!(
+            "document.querySelector('#frame-{n} .closing-line').textContent"
+        )),
+        manifest["conclusion"]
+    );
     // Keys move between frames; exactly one frame shows, the expected one.
     assert_eq!(visible(&mut s), ["frame-1"]);
     let steps: [(&str, u32, usize); 6] = [
@@ -339,7 +363,9 @@ fn the_deck_works_in_a_real_browser() {
         );
     }
 
-    // The notes button works without the keyboard and does not move on.
+    // The notes button works without the keyboard and does not move on
+    // (on the first chart frame, which has notes).
+    s.press("ArrowRight", 39);
     s.eval("document.getElementById('talk-switch').click()");
     assert_eq!(
         s.eval("document.body.classList.contains('talk-shown')"),
@@ -350,14 +376,94 @@ fn the_deck_works_in_a_real_browser() {
         "true"
     );
     assert_eq!(
-        s.eval("getComputedStyle(document.querySelector('#frame-1 .talk')).display"),
+        s.eval("getComputedStyle(document.querySelector('#frame-2 .talk')).display"),
         "block"
     );
-    assert_eq!(visible(&mut s), ["frame-1"]);
+    assert_eq!(visible(&mut s), ["frame-2"]);
     s.eval("document.getElementById('talk-switch').click()");
     assert_eq!(
         s.eval("document.body.classList.contains('talk-shown')"),
         false
+    );
+    s.press("Home", 36);
+
+    // Notes and the speaker's desk never cover the frame, at a laptop's
+    // and a projector's window size; the controls grow with the window.
+    for (w, h) in [(1280, 800), (1920, 1080)] {
+        s.call(
+            "Emulation.setDeviceMetricsOverride",
+            json!({"width": w, "height": h, "deviceScaleFactor": 1, "mobile": false}),
+        );
+        s.press("ArrowRight", 39);
+        let shown = s.eval("document.querySelector('.frame.current').id");
+        assert_eq!(shown, "frame-2", "the first chart frame has notes");
+        assert_eq!(s.eval("!!document.querySelector('#frame-2 .talk')"), true);
+        assert_eq!(
+            s.eval(&format!(
+                "{APART}('#{} svg','#{} .talk')",
+                shown.as_str().unwrap(),
+                shown.as_str().unwrap()
+            )),
+            json!(true),
+            "{w}x{h}: hidden notes take no room"
+        );
+        s.press("n", 78);
+        let current = format!("#{} svg", shown.as_str().unwrap());
+        let talk = format!("#{} .talk", shown.as_str().unwrap());
+        assert_eq!(
+            s.eval(&format!(
+                "getComputedStyle(document.querySelector('{talk}')).display"
+            )),
+            "block"
+        );
+        assert_eq!(
+            s.eval(&format!("{APART}('{current}','{talk}')")),
+            json!(true),
+            "{w}x{h}: notes over the frame"
+        );
+        s.press("n", 78);
+        s.press("d", 68);
+        assert_eq!(
+            s.eval("document.body.classList.contains('desk-shown')"),
+            true
+        );
+        assert_eq!(
+            s.eval(&format!("{APART}('{current}','{talk}')")),
+            json!(true),
+            "{w}x{h}: desk notes over the frame"
+        );
+        assert_eq!(
+            s.eval(&format!("{APART}('{current}','.frame.coming svg')")),
+            json!(true),
+            "{w}x{h}: next frame over this one"
+        );
+        assert_eq!(
+            s.eval(&format!("{APART}('.frame.coming svg','{talk}')")),
+            json!(true),
+            "{w}x{h}: notes over the next frame"
+        );
+        let clock = s.eval("document.getElementById('clock').textContent");
+        assert!(
+            clock.as_str().is_some_and(|c| c.starts_with("0:0")),
+            "{clock}"
+        );
+        // the keys still move on with the desk open
+        s.press("ArrowRight", 39);
+        assert_ne!(s.eval("document.querySelector('.frame.current').id"), shown);
+        s.press("ArrowLeft", 37);
+        s.press("d", 68);
+        let size =
+            s.eval("parseFloat(getComputedStyle(document.getElementById('where')).fontSize)");
+        let size = size.as_f64().unwrap();
+        assert!(
+            size >= 13.0 && size >= f64::from(h.min(w)) * 0.02,
+            "{w}x{h}: counter at {size} px"
+        );
+        s.press("Home", 36);
+    }
+    s.call(
+        "Emulation.setDeviceMetricsOverride",
+        json!({"width": 1280, "height": 720, "deviceScaleFactor": 1, "mobile": false}),
     );
 
     // Every frame keeps its text alternative for screen readers.
@@ -368,7 +474,7 @@ fn the_deck_works_in_a_real_browser() {
            return v.getAttribute('role')==='img'&&t&&t.textContent.length>0&&d&&d.textContent.length>0;\
          }).length",
     );
-    assert_eq!(named, json!(n));
+    assert_eq!(named, json!(charts));
 
     // A screenshot shows the frame: a PNG with ink on it.
     let shot = s.call("Page.captureScreenshot", json!({"format": "png"}));
@@ -436,10 +542,11 @@ fn script_in_story_or_data_never_runs_in_the_deck() {
         json!({"url": format!("file://{}", index.display())}),
     );
     s.wait_for("Page.loadEventFired");
-    // the deck's own script ran (it set the counter) ...
+    // the deck's own script ran (it set the counter; the one frame between
+    // the opening and the closing frame) ...
     assert_eq!(
         s.eval("document.getElementById('where').textContent"),
-        "1 / 1"
+        "1 / 3"
     );
     // ... and nothing from the data or the story did
     assert_eq!(s.eval("typeof window.__pwned"), "undefined");

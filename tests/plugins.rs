@@ -79,7 +79,7 @@ fn the_demo_story_draws_with_both_plugins() {
     )
     .unwrap();
     // the slope chart's spotlighted line is drawn in the theme's accent
-    assert!(svg.contains("#B4400A"), "focus role styled by the theme");
+    assert!(svg.contains("#8E3005"), "focus role styled by the theme");
     assert!(svg.contains("Harbour Loop"));
     let listing = crescendo(
         &root(),

@@ -527,3 +527,66 @@ fn labels_stay_off_the_data_lines_in_every_demo_frame() {
         crossings.join("\n")
     );
 }
+
+/// The measure axes of a chart (every panel's too), with the values drawn
+/// on each.
+fn measure_axes(chart: &crescendo_plan::Chart) -> Vec<(&crescendo_plan::Axis, Vec<f64>)> {
+    use crescendo_plan::Chart;
+    match chart {
+        Chart::Line(l) => vec![(
+            &l.y,
+            l.series
+                .iter()
+                .flat_map(|s| s.points.iter().filter_map(|p| p.y))
+                .collect(),
+        )],
+        Chart::Bars(b) => vec![(&b.value, b.bars.iter().filter_map(|b| b.value).collect())],
+        Chart::Dots(d) => vec![(
+            &d.value,
+            d.rows
+                .iter()
+                .flat_map(|r| r.values.iter().flatten().copied())
+                .collect(),
+        )],
+        Chart::Panels(p) => p
+            .panels
+            .iter()
+            .flat_map(|x| measure_axes(&x.chart))
+            .collect(),
+        _ => Vec::new(),
+    }
+}
+
+// Every demo frame's measure axis runs from a labelled tick to a labelled
+// tick and holds all its data: the top tick at or above the maximum, the
+// axis line on a labelled value.
+#[test]
+fn demo_measure_axes_end_on_labelled_ticks() {
+    let mut checked = 0;
+    for (name, path) in stories() {
+        let planned = planned_of(&path);
+        for f in &planned.plan.frames {
+            for (axis, values) in measure_axes(&f.chart) {
+                let (Some(first), Some(last)) = (axis.ticks.first(), axis.ticks.last()) else {
+                    continue;
+                };
+                checked += 1;
+                assert_eq!(
+                    axis.domain,
+                    [first.value, last.value],
+                    "{name} frame {}: the axis ends on labelled ticks",
+                    f.number
+                );
+                for v in values {
+                    assert!(
+                        v >= first.value && v <= last.value,
+                        "{name} frame {}: {v} outside {:?}",
+                        f.number,
+                        axis.domain
+                    );
+                }
+            }
+        }
+    }
+    assert!(checked >= 15, "only {checked} axes checked");
+}

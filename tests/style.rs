@@ -161,5 +161,6 @@ fn the_demo_house_style_is_valid() {
     let text = fs::read_to_string(root().join("stories/volunteers/house.toml")).unwrap();
     let src = crescendo_diag::Source::file("house.toml", text);
     let style = crescendo_plan::style::parse(&src, "house.toml").unwrap();
-    assert_eq!(style.accent.as_deref(), Some("#0F6A4C"));
+    assert_eq!(style.accent.as_deref(), Some("#0B5A40"));
+    assert_eq!(style.context_light.as_deref(), Some("#909090"));
 }

@@ -79,7 +79,12 @@ fn comment(t: &Trend) -> String {
 /// months beyond.
 fn daily_bucket(table: &Table, time: &str) -> Option<(&'static str, &'static str)> {
     let col = table.columns.iter().find(|c| c.name == time)?;
-    if col.ty != ColType::Date || table.columns.iter().any(|c| c.name == "month" || c.name == "week") {
+    if col.ty != ColType::Date
+        || table
+            .columns
+            .iter()
+            .any(|c| c.name == "month" || c.name == "week")
+    {
         return None;
     }
     let days: std::collections::BTreeSet<i32> = col

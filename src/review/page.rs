@@ -40,20 +40,7 @@ details.same{margin:0 0 16px}
 details.same>summary{cursor:pointer;color:#4a5560}
 ";
 
-fn escape(text: &str) -> String {
-    let mut out = String::with_capacity(text.len());
-    for c in text.chars() {
-        match c {
-            '&' => out.push_str("&amp;"),
-            '<' => out.push_str("&lt;"),
-            '>' => out.push_str("&gt;"),
-            '"' => out.push_str("&quot;"),
-            '\'' => out.push_str("&#39;"),
-            c => out.push(c),
-        }
-    }
-    out
-}
+use crescendo_render::html_escape as escape;
 
 fn picture(svg: Option<&String>, caption: &str, alt: &str) -> String {
     match svg {

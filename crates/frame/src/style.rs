@@ -42,6 +42,9 @@ pub struct HouseStyle {
     pub small_text: Option<String>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub context: Option<String>,
+    /// The second, lighter context grey, `#RRGGBB`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub context_light: Option<String>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub context_labels: Option<String>,
     #[serde(default, skip_serializing_if = "Option::is_none")]

@@ -144,12 +144,19 @@ pub enum Part {
         /// Lines the whole headline needs.
         needed: usize,
     },
-    /// The takeaway lines.
-    Takeaway,
+    /// The takeaway lines; `needed` is how many lines the whole takeaway
+    /// needs (more than are drawn when it is cut).
+    Takeaway {
+        /// Lines the whole takeaway needs.
+        needed: usize,
+    },
     /// Notices drawn on a draft frame.
     Notices,
-    /// The source note.
-    Source,
+    /// The source note's lines; `needed` as for the takeaway.
+    Source {
+        /// Lines the whole source note needs.
+        needed: usize,
+    },
     /// The tick labels along a horizontal axis. `wanted` holds the width of
     /// every label the axis asked for, measured before any was dropped for
     /// lack of room.
@@ -159,6 +166,21 @@ pub enum Part {
     },
     /// Everything the chart form drew in its region.
     Chart,
+    /// A light fill behind the data (a highlighted band, a shaded or
+    /// tinted table row): a background, not a mark, so the marks' contrast
+    /// rules do not apply to it.
+    Tint,
+}
+
+/// A mark's colour as drawn: a fill (bar, segment, slice, dot, area) or a
+/// data line of 2 px or more (baselines, gridlines and thin rules are not
+/// marks), found inside the chart outside any [`Part::Tint`].
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Mark {
+    /// The colour drawn.
+    pub color: Rgb,
+    /// A fill (true) or a stroke (false).
+    pub fill: bool,
 }
 
 /// One thing to draw. Coordinates are canvas px; the writer rounds them to
@@ -201,6 +223,21 @@ pub enum Item {
         /// Fill colour.
         color: Rgb,
     },
+    /// A filled circular sector (a pie slice), drawn as a true arc: from
+    /// angle `from` to `to` in radians, clockwise from 12 o'clock; a whole
+    /// turn is a disc.
+    Wedge {
+        /// Centre.
+        centre: (f64, f64),
+        /// Radius in px.
+        radius: f64,
+        /// Start angle.
+        from: f64,
+        /// End angle (greater than `from`).
+        to: f64,
+        /// Fill colour.
+        color: Rgb,
+    },
     /// Items that belong together, with what they are.
     Group {
         /// What the group is.
@@ -235,6 +272,44 @@ impl DisplayList {
         }
         let mut out = Vec::new();
         walk(&self.items, &mut out);
+        out
+    }
+
+    /// The distinct mark colours drawn in the chart ([`Mark`]), in the
+    /// order first drawn.
+    pub fn marks(&self) -> Vec<Mark> {
+        fn walk(items: &[Item], in_chart: bool, out: &mut Vec<Mark>) {
+            for item in items {
+                let mark = match item {
+                    Item::Group {
+                        part: Part::Tint, ..
+                    } => None,
+                    Item::Group { part, items } => {
+                        walk(items, in_chart || *part == Part::Chart, out);
+                        None
+                    }
+                    Item::Rect { color, .. }
+                    | Item::Dot { color, .. }
+                    | Item::Wedge { color, .. }
+                    | Item::Polygon { color, .. } => Some(Mark {
+                        color: *color,
+                        fill: true,
+                    }),
+                    Item::Polyline { color, width, .. } if *width >= 2 => Some(Mark {
+                        color: *color,
+                        fill: false,
+                    }),
+                    Item::Polyline { .. } | Item::Text(_) => None,
+                };
+                if let Some(m) = mark.filter(|_| in_chart) {
+                    if !out.contains(&m) {
+                        out.push(m);
+                    }
+                }
+            }
+        }
+        let mut out = Vec::new();
+        walk(&self.items, false, &mut out);
         out
     }
 
@@ -358,6 +433,44 @@ mod tests {
         assert_eq!(texts, ["a", "b", "c"]);
         assert_eq!(list.groups(|p| matches!(p, Part::XTicks { .. })).len(), 1);
         assert_eq!(list.groups(|p| *p == Part::Headline { needed: 3 }).len(), 1);
-        assert_eq!(list.groups(|p| *p == Part::Source).len(), 0);
+        assert_eq!(list.groups(|p| matches!(p, Part::Source { .. })).len(), 0);
+    }
+
+    #[test]
+    fn marks_are_chart_fills_and_thick_lines_outside_tints() {
+        let rect = |c: u8| Item::Rect {
+            a: (0.0, 0.0),
+            b: (1.0, 1.0),
+            color: Rgb(c, c, c),
+        };
+        let line = |c: u8, width: u32| Item::Polyline {
+            points: vec![(0.0, 0.0), (1.0, 1.0)],
+            color: Rgb(c, c, c),
+            width,
+        };
+        let list = DisplayList {
+            items: vec![
+                Item::Group {
+                    part: Part::Page,
+                    items: vec![rect(1)],
+                },
+                Item::Group {
+                    part: Part::Chart,
+                    items: vec![
+                        Item::Group {
+                            part: Part::Tint,
+                            items: vec![rect(2)],
+                        },
+                        rect(3),
+                        rect(3),
+                        line(4, 1),
+                        line(5, 2),
+                    ],
+                },
+            ],
+            description: None,
+        };
+        let marks: Vec<(u8, bool)> = list.marks().iter().map(|m| (m.color.0, m.fill)).collect();
+        assert_eq!(marks, [(3, true), (5, false)]);
     }
 }

@@ -24,15 +24,26 @@ pub const HEIGHT: u32 = 720;
 /// registered with plotters under this same name.
 pub const FONT_FAMILY: &str = "DejaVu Sans, Helvetica, Arial, sans-serif";
 
-/// Headline size in px (bold). (30 cannot be written exactly through
-/// plotters' `size / 1.24`; 32 can.)
-pub const HEADLINE_SIZE: f64 = 32.0;
+/// Headline size in px (bold). Type for a room (common practice for
+/// projected slides, from memory): on the 1280 × 720 frame a headline of
+/// 36 px or more, a takeaway of 24, labels and ticks of 20 and a source
+/// note of 16 stay readable from the back row.
+pub const HEADLINE_SIZE: f64 = 36.0;
 /// Takeaway size in px.
-pub const TAKEAWAY_SIZE: f64 = 20.0;
+pub const TAKEAWAY_SIZE: f64 = 24.0;
 /// Tick labels, axis titles, category labels and direct labels, in px.
-pub const LABEL_SIZE: f64 = 16.0;
-/// Source note size in px; the smallest text drawn.
-pub const SOURCE_SIZE: f64 = 14.0;
+pub const LABEL_SIZE: f64 = 20.0;
+/// Source note size in px; the smallest text drawn, and the smallest the
+/// lint's `text-small` accepts.
+pub const SOURCE_SIZE: f64 = 16.0;
+/// The label size the forms' fixed lengths were chosen at
+/// ([`Theme::label_scaled`]).
+pub const LENGTHS_AT: f64 = 16.0;
+
+/// The smallest CIELAB L* difference between the accent and a context
+/// grey, so emphasis reads by lightness alone (in greyscale too): 20 L*
+/// (common practice; a value of our own choosing, not a standard's).
+pub const LIGHTNESS_STEP: f64 = 20.0;
 
 /// Left and right page margin.
 pub const MARGIN_X: f64 = 56.0;
@@ -107,8 +118,15 @@ pub struct Theme {
     pub takeaway: Rgb,
     /// Tick labels, axis titles, category labels and the source note.
     pub muted: Rgb,
-    /// Context marks (lines and bars).
+    /// Context marks (lines and bars): the one context grey. At least
+    /// [`LIGHTNESS_STEP`] CIELAB L* from the accent (lighter on a light page,
+    /// dimmer on a dark one) and at least 3:1 against the page.
     pub context: Rgb,
+    /// The second context grey, for forms that must tell two context shades
+    /// apart (alternate stack segments and slices, range lines, the start
+    /// and total bars of a plugin): lighter than [`Theme::context`], under
+    /// the same two rules.
+    pub context_light: Rgb,
     /// Direct labels of context series: close to [`Theme::context`] but dark
     /// enough to pass the 4.5:1 text contrast.
     pub context_text: Rgb,
@@ -155,17 +173,37 @@ impl Theme {
         crate::metrics::line_height(self.label_size) + 2.0
     }
 
-    /// A length chosen for the default 16 px labels (the widest a label may
-    /// be, the room kept for a column of labels), scaled to the theme's
-    /// label size so a label keeps about as many characters; exactly `px`
-    /// at the default size.
+    /// True when the page is light (CIELAB L* of 50 or more): there the
+    /// context greys must be lighter than the accent, on a dark page dimmer.
+    pub fn light_page(&self) -> bool {
+        lightness(self.page) >= 50.0
+    }
+
+    /// How far `grey` recedes behind the accent, in CIELAB L*: how much
+    /// lighter it is on a light page, how much dimmer on a dark one.
+    /// Negative when it stands out more than the accent; the rule asks for
+    /// [`LIGHTNESS_STEP`] or more.
+    pub fn recession(&self, grey: Rgb) -> f64 {
+        let d = lightness(grey) - lightness(self.accent);
+        if self.light_page() {
+            d
+        } else {
+            -d
+        }
+    }
+
+    /// A length chosen for 16 px labels ([`LENGTHS_AT`]: the widest a label
+    /// may be, the room kept for a column of labels), scaled to the theme's
+    /// label size so a label keeps about as many characters.
     pub fn label_scaled(&self, px: f64) -> f64 {
-        px * (self.label_size / LABEL_SIZE)
+        px * (self.label_size / LENGTHS_AT)
     }
 }
 
-/// The `clear` theme: transparent page, near-black text, grey context and a
-/// burnt-orange accent ("ember", #B4400A, 5.7:1 on white).
+/// The `clear` theme: white page, near-black text, grey context and a deep
+/// rust accent (#8E3005, 8.2:1 on white, CIELAB L* 33.7), dark enough that
+/// both context greys (L* 55.1 and 60.6) sit more than 20 L* above it and
+/// still reach 3:1 on white.
 pub const CLEAR: Theme = Theme {
     name: "clear",
     page: Rgb(0xFF, 0xFF, 0xFF),
@@ -173,11 +211,12 @@ pub const CLEAR: Theme = Theme {
     headline: Rgb(0x1F, 0x1F, 0x1F),
     takeaway: Rgb(0x3D, 0x3D, 0x3D),
     muted: Rgb(0x5A, 0x5A, 0x5A),
-    context: Rgb(0x8C, 0x8C, 0x8C),
+    context: Rgb(0x84, 0x84, 0x84),
+    context_light: Rgb(0x92, 0x92, 0x92),
     context_text: Rgb(0x70, 0x70, 0x70),
     baseline: Rgb(0xC8, 0xC8, 0xC8),
     grid: Rgb(0xEC, 0xEC, 0xEC),
-    accent: Rgb(0xB4, 0x40, 0x0A),
+    accent: Rgb(0x8E, 0x30, 0x05),
     context_stroke: 2,
     focus_stroke: 4,
     baseline_stroke: 1,
@@ -192,8 +231,9 @@ pub const CLEAR: Theme = Theme {
 };
 
 /// The `evening` theme, for projection in a dark room: a near-black blue-grey
-/// page (painted), light text, mid-grey context and an amber accent
-/// (#F0A04B, 8.2:1 on the page). Light text on a dark page glares less in a
+/// page (painted), light text, dim greys (L* 44.8 and 51.2, both over 3:1
+/// on the page) and an amber accent (#F0A04B, 8.2:1 on the page, L* 72.3)
+/// that outshines them. Light text on a dark page glares less in a
 /// darkened room (common practice for projection).
 pub const EVENING: Theme = Theme {
     name: "evening",
@@ -202,7 +242,8 @@ pub const EVENING: Theme = Theme {
     headline: Rgb(0xF2, 0xF2, 0xF2),
     takeaway: Rgb(0xD9, 0xD9, 0xD9),
     muted: Rgb(0xB0, 0xB0, 0xB0),
-    context: Rgb(0x78, 0x78, 0x78),
+    context: Rgb(0x6A, 0x6A, 0x6A),
+    context_light: Rgb(0x7A, 0x7A, 0x7A),
     context_text: Rgb(0x9E, 0x9E, 0x9E),
     baseline: Rgb(0x4A, 0x4D, 0x52),
     grid: Rgb(0x2B, 0x2F, 0x35),
@@ -221,8 +262,9 @@ pub const EVENING: Theme = Theme {
 };
 
 /// The `print` theme, for paper: black text, greys dark enough to survive
-/// toner and a deep blue accent (#1B4F8A) that stays darker than the grey
-/// when printed in black and white; context lines are a little heavier
+/// toner and a deep blue accent (#1B4F8A, L* 33.3) that stays more than
+/// 20 L* darker than both greys (L* 55.1 and 60.6) when printed in black
+/// and white; context lines are a little heavier
 /// because printers lighten thin lines (common practice).
 pub const PRINT: Theme = Theme {
     name: "print",
@@ -231,7 +273,8 @@ pub const PRINT: Theme = Theme {
     headline: Rgb(0x00, 0x00, 0x00),
     takeaway: Rgb(0x26, 0x26, 0x26),
     muted: Rgb(0x4A, 0x4A, 0x4A),
-    context: Rgb(0x8A, 0x8A, 0x8A),
+    context: Rgb(0x84, 0x84, 0x84),
+    context_light: Rgb(0x92, 0x92, 0x92),
     context_text: Rgb(0x66, 0x66, 0x66),
     baseline: Rgb(0x9A, 0x9A, 0x9A),
     grid: Rgb(0xDD, 0xDD, 0xDD),
@@ -278,6 +321,7 @@ pub fn effective(deck: &DeckPlan) -> Result<Theme, ThemeError> {
         set(&mut t.takeaway, &style.takeaway)?;
         set(&mut t.muted, &style.small_text)?;
         set(&mut t.context, &style.context)?;
+        set(&mut t.context_light, &style.context_light)?;
         set(&mut t.context_text, &style.context_labels)?;
         set(&mut t.baseline, &style.baseline)?;
         set(&mut t.grid, &style.grid)?;
@@ -310,6 +354,11 @@ pub fn effective(deck: &DeckPlan) -> Result<Theme, ThemeError> {
         t.accent = colour(hex)?;
     }
     Ok(t)
+}
+
+/// CIELAB L* of a colour (CIE 15, D65; [`colour::to_lab`]).
+pub fn lightness(c: Rgb) -> f64 {
+    colour::to_lab(c.into())[0]
 }
 
 impl Rgb {
@@ -366,6 +415,44 @@ mod tests {
             t.accent.contrast(t.context) > 1.5,
             "accent must differ from grey in lightness too"
         );
+    }
+
+    // Emphasis by lightness: both context greys at least LIGHTNESS_STEP
+    // CIELAB L* (CIE 15: L* = 116 f(Y/Yn) − 16) from the accent, lighter on
+    // the light pages and dimmer on the dark one, and both at 3:1 or more
+    // on the page (WCAG 2.1 SC 1.4.11, contrast ratio as WCAG 2.1 defines
+    // it), the second grey lighter than the first.
+    #[test]
+    fn every_theme_keeps_its_greys_behind_the_accent() {
+        for t in ALL {
+            for (what, grey) in [("context", t.context), ("context_light", t.context_light)] {
+                let step = t.recession(grey);
+                assert!(
+                    step >= LIGHTNESS_STEP,
+                    "{}: {what} only {step:.1} L*",
+                    t.name
+                );
+                let r = t.page.contrast(grey);
+                assert!(r >= 3.0, "{}: {what} {r:.2}:1 on the page", t.name);
+            }
+            assert!(
+                lightness(t.context_light) > lightness(t.context) + 4.0,
+                "{}",
+                t.name
+            );
+        }
+        assert!(CLEAR.light_page() && PRINT.light_page() && !EVENING.light_page());
+    }
+
+    // L* of reference greys by the CIE 15 formula, worked by hand from the
+    // WCAG 2.1 luminance: #777777 has Y = 0.18447 (the sRGB value 0x77
+    // linearised), so L* = 116 × 0.18447^(1/3) − 16 = 50.03; white is 100
+    // and black 0 by definition.
+    #[test]
+    fn lightness_reference_values() {
+        assert!((lightness(Rgb(255, 255, 255)) - 100.0).abs() < 0.01);
+        assert!(lightness(Rgb(0, 0, 0)).abs() < 0.01);
+        assert!((lightness(Rgb(0x77, 0x77, 0x77)) - 50.03).abs() < 0.02);
     }
 
     // The same thresholds for every built-in theme; the lint
@@ -460,7 +547,7 @@ mod tests {
         assert_eq!(t.baseline, CLEAR.baseline);
         assert_eq!(
             (t.headline_size, t.label_size, t.source_size),
-            (36.0, 18.0, 14.0)
+            (36.0, 18.0, 16.0)
         );
         assert_eq!(t.text_column(), 1280.0 - 128.0);
         assert_eq!(t.font_family, "'Atkinson Hyperlegible', sans-serif");
@@ -475,7 +562,7 @@ mod tests {
         let white = Rgb(255, 255, 255);
         assert!((black.contrast(white) - 21.0).abs() < 1e-9);
         assert!((white.contrast(white) - 1.0).abs() < 1e-9);
-        assert_eq!(CLEAR.accent.hex(), "#B4400A");
+        assert_eq!(CLEAR.accent.hex(), "#8E3005");
     }
 
     #[test]

@@ -259,6 +259,20 @@ impl Evaluator<'_> {
         })
     }
 
+    /// The numbers of a function's one selection argument, with what was
+    /// picked (for the value's description and provenance).
+    fn selected_numbers(
+        &self,
+        fname: &str,
+        args: &[CallArg],
+        span: &Span,
+    ) -> Result<(Picked, Vec<f64>), Vec<Diagnostic>> {
+        let sel = self.selection_arg(fname, args, span)?;
+        let p = self.pick(sel, true)?;
+        let xs = self.numbers(fname, sel, &p)?;
+        Ok((p, xs))
+    }
+
     fn numbers(
         &self,
         fname: &str,
@@ -426,9 +440,7 @@ impl Evaluator<'_> {
         args: &[CallArg],
         span: &Span,
     ) -> Result<Quantity, Vec<Diagnostic>> {
-        let sel = self.selection_arg(fname, args, span)?;
-        let p = self.pick(sel, true)?;
-        let xs = self.numbers(fname, sel, &p)?;
+        let (p, xs) = self.selected_numbers(fname, args, span)?;
         let r = match fname {
             "sum" => stats::sum(&xs),
             "mean" => stats::mean(&xs),
@@ -444,9 +456,7 @@ impl Evaluator<'_> {
         args: &[CallArg],
         span: &Span,
     ) -> Result<Quantity, Vec<Diagnostic>> {
-        let sel = self.selection_arg(fname, args, span)?;
-        let p = self.pick(sel, true)?;
-        let xs = self.numbers(fname, sel, &p)?;
+        let (p, xs) = self.selected_numbers(fname, args, span)?;
         let divisor = if fname.starts_with("sample") {
             stats::Divisor::Sample
         } else {
@@ -497,9 +507,7 @@ impl Evaluator<'_> {
         args: &[CallArg],
         span: &Span,
     ) -> Result<Quantity, Vec<Diagnostic>> {
-        let sel = self.selection_arg(fname, args, span)?;
-        let p = self.pick(sel, true)?;
-        let xs = self.numbers(fname, sel, &p)?;
+        let (p, xs) = self.selected_numbers(fname, args, span)?;
         let all: Vec<f64> = p.all.iter().filter_map(num).collect();
         let r = stats::sum(&xs)
             .and_then(|part| stats::sum(&all).and_then(|total| stats::share(part, total)));
@@ -513,9 +521,7 @@ impl Evaluator<'_> {
         args: &[CallArg],
         span: &Span,
     ) -> Result<Quantity, Vec<Diagnostic>> {
-        let sel = self.selection_arg(fname, args, span)?;
-        let p = self.pick(sel, true)?;
-        let xs = self.numbers(fname, sel, &p)?;
+        let (p, xs) = self.selected_numbers(fname, args, span)?;
         let r = match (xs.first(), xs.last()) {
             (Some(a), Some(b)) if xs.len() >= 2 => {
                 if fname == "change" {
@@ -599,9 +605,7 @@ impl Evaluator<'_> {
         args: &[CallArg],
         span: &Span,
     ) -> Result<Quantity, Vec<Diagnostic>> {
-        let sel = self.selection_arg(fname, args, span)?;
-        let p = self.pick(sel, true)?;
-        let xs = self.numbers(fname, sel, &p)?;
+        let (p, xs) = self.selected_numbers(fname, args, span)?;
         if xs.len() != 1 {
             return Err(vec![self
                 .err(

@@ -354,9 +354,12 @@ fn nonzero_domain(lo: f64, hi: f64) -> [f64; 2] {
 
 /// A linear axis for values in `[dmin, dmax]`.
 ///
-/// About five ticks by [`extended`] (flexible, so end ticks may fall inside
-/// the data). The domain is `[min(first tick, dmin), max(last tick, dmax)]`,
-/// so no data point ever leaves the plot. With `include_zero` (bars) the
+/// About five ticks by [`extended`], loose: the first and last ticks lie on
+/// or outside the data, and the domain runs from the first tick to the
+/// last, so the axis starts and ends on a labelled value, its line sits on
+/// a labelled tick and no peak rises above the top label. (Should the
+/// search give none, the domain is `[min(first tick, dmin), max(last tick,
+/// dmax)]`, so no data point ever leaves the plot.) With `include_zero` (bars) the
 /// range is extended to contain 0; all-zero data then gets the axis
 /// `[0, 1]`, and ticks on the side of zero where there is no data are
 /// dropped (bars of positive values never get a negative tick). Labels come
@@ -374,7 +377,7 @@ pub fn linear_axis(dmin: f64, dmax: f64, include_zero: bool, title: Option<Strin
     }
     let mut ticks = Vec::new();
     let mut domain = nonzero_domain(lo, hi);
-    if let Some(nice) = nice_ticks(lo, hi, LINEAR_TICKS, false, false) {
+    if let Some(nice) = nice_ticks(lo, hi, LINEAR_TICKS, true, false) {
         let mut values = nice.values;
         if include_zero {
             values.retain(|&v| (v >= 0.0 || lo < 0.0) && (v <= 0.0 || hi > 0.0));
@@ -400,6 +403,25 @@ pub fn linear_axis(dmin: f64, dmax: f64, include_zero: bool, title: Option<Strin
 
 /// A time axis over exactly `[lo, hi]` (lines start and end at the data).
 ///
+/// Share of the data's range kept free at each end of a dot or scatter
+/// axis, so no dot touches the axis line or the plot's edge.
+pub const DOT_PAD: f64 = 0.04;
+
+/// A linear axis for dots and scatter points: [`linear_axis`] over the
+/// data's range widened by [`DOT_PAD`] at each end, so the loose ticks
+/// (which include the widened range) keep every dot off the edges.
+pub fn padded_axis(dmin: f64, dmax: f64, title: Option<String>) -> Axis {
+    let (lo, hi) = sanitize(dmin, dmax);
+    let (lo, hi) = if lo <= hi { (lo, hi) } else { (hi, lo) };
+    let pad = (hi - lo) * DOT_PAD;
+    let (plo, phi) = (lo - pad, hi + pad);
+    if plo.is_finite() && phi.is_finite() {
+        linear_axis(plo, phi, false, title)
+    } else {
+        linear_axis(lo, hi, false, title)
+    }
+}
+
 /// Ticks sit on calendar boundaries inside the domain, at most eight; the
 /// finest spacing that keeps to that limit wins.
 ///
@@ -877,13 +899,14 @@ mod tests {
         let a = linear_axis(0.97, 3.03, false, Some("Rate".into()));
         assert_eq!(a.scale, ScaleKind::Linear);
         assert_eq!(a.title.as_deref(), Some("Rate"));
-        assert_eq!(labels(&a), ["1", "1.5", "2", "2.5", "3"]);
-        assert_eq!(a.domain, [0.97, 3.03]);
+        // loose ticks: the axis ends on labelled values around the data
+        assert_eq!(labels(&a), ["0.8", "1.2", "1.6", "2", "2.4", "2.8", "3.2"]);
+        assert_eq!(a.domain, [0.8, 3.2]);
 
         // Bars: zero included; ticks from 0; the domain reaches the data.
         let a = linear_axis(12.0, 17.2, true, None);
-        assert_eq!(labels(&a), ["0", "4", "8", "12", "16"]);
-        assert_eq!(a.domain, [0.0, 17.2]);
+        assert_eq!(labels(&a), ["0", "5", "10", "15", "20"]);
+        assert_eq!(a.domain, [0.0, 20.0]);
         let a = linear_axis(-13.7, -2.0, true, None);
         assert!(a.domain[0] <= -13.7 && a.domain[1] == 0.0, "{:?}", a.domain);
         assert!(values(&a).iter().all(|&v| v <= 0.0), "{:?}", values(&a));
@@ -904,6 +927,29 @@ mod tests {
         // Non-finite input still gives a usable axis.
         let a = linear_axis(f64::NAN, f64::NAN, true, None);
         assert_eq!(a.domain, [0.0, 1.0]);
+    }
+
+    // A measure axis runs from a labelled tick to a labelled tick that
+    // include all the data: no peak above the top label, the axis line on
+    // a labelled value (the loose variant of Talbot, Lin & Hanrahan 2010).
+    #[test]
+    fn linear_axes_end_on_labelled_ticks_around_the_data() {
+        for (lo, hi, zero) in [
+            (2318.0, 12_740.0, false),
+            (0.0, 20_310.0, true),
+            (-13.7, 2.3, true),
+            (0.97, 3.03, false),
+            (48.2, 48.9, false),
+        ] {
+            let a = linear_axis(lo, hi, zero, None);
+            let v = values(&a);
+            let (first, last) = (v[0], v[v.len() - 1]);
+            assert_eq!(a.domain, [first, last], "{lo}..{hi}");
+            assert!(first <= lo && last >= hi, "{lo}..{hi}: {v:?}");
+        }
+        // dots and scatter points keep off the edges
+        let a = padded_axis(10.0, 50.0, None);
+        assert!(a.domain[0] < 10.0 && a.domain[1] > 50.0, "{:?}", a.domain);
     }
 
     #[test]

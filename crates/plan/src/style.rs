@@ -8,7 +8,7 @@
 //! ```toml
 //! fonts = ["DejaVu Sans", "Verdana", "sans-serif"]   # the SVG's font stack
 //!
-//! [sizes]            # whole px, 10 to 72 (the lint warns below 14)
+//! [sizes]            # whole px, 10 to 72 (the lint warns below 16)
 //! headline = 34
 //! takeaway = 20
 //! labels = 16
@@ -77,6 +77,7 @@ struct RawColours {
 #[serde(deny_unknown_fields, rename_all = "kebab-case")]
 struct RawGreys {
     context: Option<Spanned<String>>,
+    context_light: Option<Spanned<String>>,
     context_labels: Option<Spanned<String>>,
     baseline: Option<Spanned<String>>,
     grid: Option<Spanned<String>>,
@@ -150,7 +151,7 @@ impl Checker {
                     "not allowed here"
                 },
             )
-            .note("text below 14 px is hard to read when projected; the lint warns below that");
+            .note("text below 16 px is hard to read when projected; the lint warns below that");
             self.diags.push(d);
             return None;
         }
@@ -288,6 +289,7 @@ pub fn parse(src: &Arc<Source>, name: &str) -> Result<HouseStyle, Vec<Diagnostic
     }
     if let Some(s) = raw.greys {
         style.context = c.colour("context", s.context);
+        style.context_light = c.colour("context-light", s.context_light);
         style.context_labels = c.colour("context-labels", s.context_labels);
         style.baseline = c.colour("baseline", s.baseline);
         style.grid = c.colour("grid", s.grid);

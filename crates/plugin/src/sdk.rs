@@ -78,9 +78,20 @@ pub unsafe fn options_entry(forms: &[(&str, &dyn Form)], out: *mut OutBuffer) ->
     if out.is_null() {
         return 1;
     }
-    let encoded = catch_unwind(AssertUnwindSafe(|| {
-        serde_json::to_vec(&declared_options(forms))
-    }));
+    // SAFETY: `out` is non-null and writable per the contract.
+    unsafe { write_json(out, || serde_json::to_vec(&declared_options(forms))) }
+}
+
+/// Encode a message with `encode` (a panic caught) into the non-null,
+/// writable `out`: 0, or 1 when it could not be encoded.
+///
+/// # Safety
+/// `out` must be non-null and valid for a write of one [`OutBuffer`].
+unsafe fn write_json(
+    out: *mut OutBuffer,
+    encode: impl FnOnce() -> serde_json::Result<Vec<u8>>,
+) -> i32 {
+    let encoded = catch_unwind(AssertUnwindSafe(encode));
     match encoded {
         Ok(Ok(json)) => {
             // SAFETY: `out` is non-null and writable per the contract.
@@ -251,21 +262,8 @@ pub unsafe fn render_entry(
         // SAFETY: non-null, and the host promises `request_len` bytes.
         unsafe { std::slice::from_raw_parts(request, request_len) }
     };
-    let encoded = catch_unwind(AssertUnwindSafe(|| {
-        serde_json::to_vec(&answer(forms, bytes))
-    }));
-    match encoded {
-        Ok(Ok(json)) => {
-            // SAFETY: `out` is non-null and writable per the contract.
-            unsafe { out.write(hand_over(json)) };
-            0
-        }
-        Ok(Err(_)) => 1,
-        Err(payload) => {
-            std::mem::forget(payload);
-            1
-        }
-    }
+    // SAFETY: `out` is non-null and writable per the contract.
+    unsafe { write_json(out, || serde_json::to_vec(&answer(forms, bytes))) }
 }
 
 /// Export forms from a plugin crate: writes the descriptor, the entry symbol

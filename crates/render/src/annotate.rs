@@ -12,6 +12,7 @@ use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{Annotation, LineChart, Role};
+use crescendo_look::display::Part;
 
 /// Widest a callout's text may be before it wraps (at 16 px labels;
 /// [`Theme::label_scaled`]).
@@ -54,7 +55,9 @@ pub(crate) fn draw_under(
             Annotation::Band { from, to, .. } if from.is_finite() && to.is_finite() => {
                 let x0 = xm(from.min(*to)).clamp(l.plot_left, l.plot_right);
                 let x1 = xm(from.max(*to)).clamp(l.plot_left, l.plot_right);
-                canvas.rect((x0, l.plot_top), (x1, l.plot_bottom), faint_fill(theme))?;
+                canvas.group(Part::Tint, || {
+                    canvas.rect((x0, l.plot_top), (x1, l.plot_bottom), faint_fill(theme))
+                })?;
             }
             Annotation::Reference { value, .. } if value.is_finite() => {
                 let y = ym(*value);

@@ -167,7 +167,11 @@ pub(crate) fn xy_layout(
     let (x_title_top, x_tick_top, plot_bottom) = bottom_rows(region.bottom, lh, x.title.is_some());
     let ticks = layout::visible_ticks(y);
     let tick_w = if y_ticks {
-        max_width(ticks.iter().map(|(_, l)| l.as_str()), size, false)
+        region.tick_column(max_width(
+            ticks.iter().map(|(_, l)| l.as_str()),
+            size,
+            false,
+        ))
     } else {
         0.0
     };

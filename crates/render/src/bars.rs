@@ -71,11 +71,11 @@ fn vertical(
     // bar charts place nothing around their labels
     let mut obstacles = Obstacles::default();
     let ticks = layout::visible_ticks(&chart.value);
-    let tick_w = max_width(
+    let tick_w = region.tick_column(max_width(
         ticks.iter().map(|(_, l)| l.as_str()),
         theme.label_size,
         false,
-    );
+    ));
     let plot_left = if tick_w > 0.0 {
         region.left + tick_w + PAD
     } else {

@@ -149,6 +149,31 @@ impl Canvas {
         })
     }
 
+    /// A pie slice as a true arc ([`Item::Wedge`]).
+    pub fn wedge(
+        &self,
+        centre: (f64, f64),
+        radius: f64,
+        (from, to): (f64, f64),
+        color: Rgb,
+    ) -> Result<(), RenderError> {
+        if !to.is_finite()
+            || !from.is_finite()
+            || to <= from
+            || !radius.is_finite()
+            || radius <= 0.0
+        {
+            return Ok(());
+        }
+        self.push(Item::Wedge {
+            centre,
+            radius,
+            from,
+            to,
+            color,
+        })
+    }
+
     /// The items drawn, in order.
     pub fn finish(self) -> Vec<Item> {
         let mut open = self.open.into_inner();
@@ -165,7 +190,7 @@ mod tests {
     fn groups_nest_in_drawing_order() {
         let c = Canvas::new();
         c.line((0.0, 0.0), (1.0, 1.0), Rgb(0, 0, 0), 1).unwrap();
-        c.group(Part::Source, || {
+        c.group(Part::Source { needed: 1 }, || {
             c.rect((0.0, 0.0), (2.0, 2.0), Rgb(1, 1, 1))?;
             c.group(Part::Chart, || c.dot((1.0, 1.0), 2, Rgb(2, 2, 2)))
         })
@@ -185,7 +210,7 @@ mod tests {
         let Item::Group { part, items } = &items[1] else {
             panic!("{items:?}")
         };
-        assert_eq!(*part, Part::Source);
+        assert_eq!(*part, Part::Source { needed: 1 });
         assert!(matches!(
             items[1],
             Item::Group {

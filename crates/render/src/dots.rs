@@ -7,7 +7,7 @@
 
 use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, mix, spread_widths, Obstacles};
+use crate::kit::{self, spread_widths, Obstacles};
 use crate::layout::{self, fit_label_at, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
@@ -219,7 +219,7 @@ fn row_marks(
     vmap: impl Fn(f64) -> f64,
     focus_row: bool,
 ) -> Result<(), RenderError> {
-    let range_color = mix(theme.context, theme.page, 0.45);
+    let range_color = theme.context_light;
     let visible: Vec<(f64, Role)> = chart
         .series
         .iter()

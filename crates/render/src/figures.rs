@@ -15,10 +15,10 @@ use crescendo_frame::{FigureChart, Role};
 pub(crate) const FIGURE_SIZE: f64 = 118.0;
 /// Smallest size a long figure is shrunk to before it is cut.
 const MIN_FIGURE_SIZE: f64 = 48.0;
-/// Caption size in px with the default 20 px takeaway: captions are set
+/// Caption size in px with the default 24 px takeaway: captions are set
 /// this much larger than the theme's takeaway ([`caption_size`]).
-pub(crate) const CAPTION_SIZE: f64 = 22.0;
-/// Line pitch of a caption beyond its size (28 px for 22 px captions).
+pub(crate) const CAPTION_SIZE: f64 = 26.0;
+/// Line pitch of a caption beyond its size (32 px for 26 px captions).
 const CAPTION_LEADING: f64 = 6.0;
 const CAPTION_LINES: usize = 3;
 /// Space between the two columns.
@@ -29,7 +29,7 @@ const FIGURE_TO_CAPTION: f64 = 10.0;
 /// The caption size for `theme`: 2 px over its takeaway size, lowered to
 /// the nearest whole size the SVG states exactly (never below the
 /// takeaway, which the SVG always states exactly).
-fn caption_size(theme: &Theme) -> f64 {
+pub(crate) fn caption_size(theme: &Theme) -> f64 {
     let mut size = theme.takeaway_size + (CAPTION_SIZE - crate::layout::TAKEAWAY_SIZE);
     while size > theme.takeaway_size && crate::svg::requested_size(size) / 1.24 != size {
         size -= 1.0;

@@ -8,7 +8,7 @@ use crate::inspect::{canvas_size, text_boxes, TextBox};
 use crate::render_frame;
 use crescendo_frame::*;
 
-const ACCENT: &str = "#B4400A";
+const ACCENT: &str = "#8E3005";
 
 /// A tick label as the planner writes one: at most one decimal, no
 /// trailing zeros, thousands grouped.
@@ -364,7 +364,7 @@ fn dot_plot() {
         "series named directly"
     );
     assert_eq!(count(&svg, "circle", "fill", ACCENT), 5);
-    assert_eq!(count(&svg, "circle", "fill", "#8C8C8C"), 5);
+    assert_eq!(count(&svg, "circle", "fill", "#848484"), 5);
     // Series names sit above the top row.
     let top_row = find(&boxes, "Library cards issued");
     assert!(find(&boxes, "2024").y1 <= top_row.y0);
@@ -439,11 +439,11 @@ fn scatter_with_fit() {
         "with up to 12 points every point is named"
     );
     assert_eq!(count(&svg, "circle", "fill", ACCENT), 2);
-    assert_eq!(count(&svg, "circle", "fill", "#8C8C8C"), 8);
+    assert_eq!(count(&svg, "circle", "fill", "#848484"), 8);
     assert_eq!(
-        count(&svg, "polyline", "stroke", "#5A5A5A"),
+        count(&svg, "polyline", "stroke", "#848484"),
         1,
-        "the fit line"
+        "the fit line, in the context grey"
     );
     let hidden = render(scatter_chart(true));
     check(&hidden);
@@ -485,7 +485,12 @@ fn figures() {
     let big = find(&boxes, "2.3×");
     let other = find(&boxes, "41%");
     assert!(svg.contains("font-size=\"118\""), "figures at 118 px");
-    assert!(svg.contains("font-size=\"22\""), "captions at 22 px");
+    let caption = crate::figures::caption_size(&crate::theme::CLEAR);
+    assert!(caption > crate::theme::TAKEAWAY_SIZE, "{caption}");
+    assert!(
+        svg.contains(&format!("font-size=\"{caption}\"")),
+        "captions at {caption} px"
+    );
     assert_eq!(big.y0, other.y0, "side by side");
     assert!(big.x1 < other.x0);
     let cap = find(&boxes, "of all visits came after 6 pm");
@@ -628,14 +633,22 @@ fn pie() {
     let svg = render(pie_chart(false));
     let boxes = check(&svg);
     assert!(has(&boxes, "Westbrook 38%") && has(&boxes, "Other pools 5%"));
-    assert_eq!(count(&svg, "polygon", "fill", ACCENT), 1);
+    // slices are true arcs: SVG paths with an elliptical-arc command, no
+    // polygons (and no placeholder left behind)
+    assert_eq!(count(&svg, "path", "fill", ACCENT), 1);
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    let paths: Vec<&str> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("path"))
+        .filter_map(|n| n.attribute("d"))
+        .collect();
+    assert_eq!(paths.len(), 5);
+    assert!(paths.iter().all(|d| d.contains(" A") && d.ends_with('Z')));
     assert_eq!(
-        roxmltree::Document::parse(&svg)
-            .unwrap()
-            .descendants()
+        doc.descendants()
             .filter(|n| n.has_tag_name("polygon"))
             .count(),
-        5
+        0
     );
     // The first slice starts at twelve o'clock and runs clockwise, so the
     // focus label is on the right.
@@ -716,7 +729,7 @@ fn panels_with_a_common_scale() {
     // Six panels in two rows of four and two; y labels once per row.
     assert_eq!(boxes.iter().filter(|b| b.text == "40").count(), 2);
     assert_eq!(count(&svg, "polyline", "stroke", ACCENT), 1);
-    assert_eq!(count(&svg, "polyline", "stroke", "#8C8C8C"), 5);
+    assert_eq!(count(&svg, "polyline", "stroke", "#848484"), 5);
     // The same units per pixel: every panel's baseline is equally long.
     let doc = roxmltree::Document::parse(&svg).unwrap();
     let bases: Vec<String> = doc
@@ -755,7 +768,7 @@ fn trimmed_panels_keep_units_per_pixel() {
         .descendants()
         .filter(|n| {
             n.has_tag_name("polyline")
-                && matches!(n.attribute("stroke"), Some("#8C8C8C") | Some(ACCENT))
+                && matches!(n.attribute("stroke"), Some("#848484") | Some(ACCENT))
         })
         .enumerate()
     {
@@ -1058,7 +1071,7 @@ fn every_form_takes_sizes_and_margins_from_the_house_style() {
         // style's sizes, written exactly (figures add their own two).
         for (text, size) in &sizes {
             let allowed = match size.as_str() {
-                "32" | "22" | "18" | "15" => true,
+                "36" | "22" | "18" | "15" => true,
                 "24" | "118" => name == "figures",
                 _ => false,
             };
@@ -1170,7 +1183,7 @@ fn gridlines_are_light_under_the_data_and_only_on_request() {
                 let grid = colour == Some(GRID);
                 if grid {
                     assert_eq!(n.attribute("stroke-width"), Some("1"), "{name}");
-                } else if ![Some(ACCENT), Some("#8C8C8C")].contains(&colour) {
+                } else if ![Some(ACCENT), Some("#848484")].contains(&colour) {
                     return None;
                 }
                 Some((grid, bounds(&n)?))

@@ -7,7 +7,7 @@ use crescendo_frame::{DeckPlan, FramePlan};
 use std::fmt::Write;
 
 /// Escapes text for HTML element content and attribute values.
-pub(crate) fn escape(text: &str) -> String {
+pub fn escape(text: &str) -> String {
     let mut out = String::with_capacity(text.len());
     for c in text.chars() {
         match c {
@@ -23,10 +23,15 @@ pub(crate) fn escape(text: &str) -> String {
 }
 
 /// The deck's stylesheet, coloured by the effective theme: `page` and
-/// `text` colour the page, `muted` the counter and the notes button,
-/// `panel` and `rule` the notes panel. `@media print` lays out one frame
-/// per page, without the counter and the button; speaker notes print below
-/// their frame only when they were shown (`n`) before printing.
+/// `text` colour the page, `muted` the counter and the buttons, `panel`
+/// and `rule` the notes panel. Shown notes take the bottom third of the
+/// window and the frame shrinks above them, so notes never cover the
+/// frame. The speaker's desk (`body.desk-shown`) splits the window: the
+/// current frame on the left, the next frame, the elapsed time and the
+/// notes in a column on the right. Controls are sized to the window.
+/// `@media print` lays out one frame per page, without the controls;
+/// speaker notes print below their frame only when they were shown (`n`)
+/// before printing.
 fn style(theme: &Theme) -> String {
     let page = theme.page.hex();
     let text = theme.headline.hex();
@@ -41,18 +46,35 @@ body{{overflow:hidden}}
 .frame{{position:fixed;inset:0;display:none;align-items:center;justify-content:center;padding:2vmin}}
 .frame.current{{display:flex}}
 .frame svg{{display:block;width:100%;height:100%}}
-.where{{position:fixed;right:1.2em;bottom:0.8em;font-size:13px;color:{muted};user-select:none}}
-.talk-switch{{position:fixed;right:1.2em;top:0.6em;z-index:2;font:inherit;font-size:13px;color:{muted};background:{page};border:1px solid {rule};border-radius:4px;padding:0.25em 0.7em;cursor:pointer}}
-.talk-switch:focus-visible{{outline:2px solid {text};outline-offset:2px}}
-.talk{{display:none;position:fixed;left:0;right:0;bottom:0;max-height:40vh;overflow:auto;margin:0;padding:1em 1.5em;background:{panel};border-top:1px solid {rule};font-size:18px;line-height:1.45;color:{text};white-space:pre-wrap}}
+.where{{position:fixed;right:1.2em;bottom:0.5em;font-size:clamp(13px,2.2vmin,30px);color:{muted};user-select:none}}
+.controls{{position:fixed;right:1.2em;top:0.6em;z-index:2;display:flex;gap:0.5em}}
+.talk-switch,.desk-switch{{font:inherit;font-size:clamp(13px,2.2vmin,30px);color:{muted};background:{page};border:1px solid {rule};border-radius:4px;padding:0.25em 0.7em;cursor:pointer}}
+.talk-switch:focus-visible,.desk-switch:focus-visible{{outline:2px solid {text};outline-offset:2px}}
+.talk{{display:none;position:fixed;left:0;right:0;bottom:0;height:34vh;overflow:auto;margin:0;padding:1em 1.5em;background:{panel};border-top:1px solid {rule};font-size:clamp(16px,2.6vmin,34px);line-height:1.45;color:{text};white-space:pre-wrap}}
+body.talk-shown .frame.current{{bottom:34vh}}
 body.talk-shown .frame.current .talk{{display:block}}
+.clock{{display:none}}
+.bookend{{flex-direction:column;align-items:flex-start;justify-content:center;padding:8vmin 10vmin}}
+.opening-title{{margin:0 0 0.5em;font-size:clamp(28px,7vmin,96px);line-height:1.15}}
+.closing-line{{margin:0 0 1em;font-size:clamp(24px,5.5vmin,72px);font-weight:bold;line-height:1.25;max-width:28em}}
+.byline,.origin{{margin:0.2em 0;font-size:clamp(16px,3vmin,40px);color:{muted}}}
+body.desk-shown .frame.current{{top:3.2em;right:36vw;bottom:0;left:0}}
+body.desk-shown .frame.coming{{display:flex;top:3.2em;left:64vw;right:0;bottom:auto;height:calc(36vw * 9 / 16);padding:1vmin;opacity:0.85}}
+body.desk-shown .frame.coming .talk{{display:none}}
+body.desk-shown .frame.current .talk{{display:block;top:calc(3.2em + 36vw * 9 / 16 + 1em);left:64vw;right:0;bottom:0;height:auto;border-top:0;border-left:1px solid {rule}}}
+body.desk-shown .clock{{display:block;position:fixed;left:1.2em;top:0.5em;font-size:clamp(16px,2.6vmin,34px);color:{text};font-variant-numeric:tabular-nums}}
+body.desk-shown .where{{left:1.2em;right:auto;bottom:auto;top:0.5em;margin-left:6em}}
 @media print{{
 @page{{size:landscape;margin:8mm}}
 html,body{{height:auto;overflow:visible}}
 .frame,.frame.current{{position:static;display:block;padding:0;break-after:page;page-break-after:always;break-inside:avoid}}
 .frame:last-child{{break-after:auto;page-break-after:auto}}
 .frame svg{{width:100%;height:auto;max-height:100vh}}
-.where,.talk-switch{{display:none}}
+.where,.controls,.clock{{display:none}}
+.bookend{{flex-direction:column;align-items:flex-start;justify-content:center;padding:8vmin 10vmin}}
+.opening-title{{margin:0 0 0.5em;font-size:clamp(28px,7vmin,96px);line-height:1.15}}
+.closing-line{{margin:0 0 1em;font-size:clamp(24px,5.5vmin,72px);font-weight:bold;line-height:1.25;max-width:28em}}
+.byline,.origin{{margin:0.2em 0;font-size:clamp(16px,3vmin,40px);color:{muted}}}
 .talk,body.talk-shown .frame.current .talk{{display:none}}
 body.talk-shown .frame .talk{{display:block;position:static;max-height:none;border:0;padding:0.5em 0;background:none;font-size:12pt}}
 }}
@@ -71,31 +93,39 @@ const SCRIPT: &str = "\
 var frames=document.querySelectorAll('.frame');
 var count=document.getElementById('where');
 var toggle=document.getElementById('talk-switch');
+var desk=document.getElementById('desk-switch');
+var clock=document.getElementById('clock');
+var started=0,ticking=0;
+function tick(){var s=Math.floor((Date.now()-started)/1000);var m=Math.floor(s/60);s=s%60;clock.textContent=m+':'+(s<10?'0':'')+s;}
 function notes(){var on=document.body.classList.toggle('talk-shown');if(toggle){toggle.setAttribute('aria-pressed',on?'true':'false');}}
+function room(){var on=document.body.classList.toggle('desk-shown');if(desk){desk.setAttribute('aria-pressed',on?'true':'false');}
+if(on&&!ticking){started=Date.now();tick();ticking=setInterval(tick,1000);}}
 if(toggle){toggle.addEventListener('click',function(e){e.stopPropagation();notes();});}
+if(desk){desk.addEventListener('click',function(e){e.stopPropagation();room();});}
 var n=frames.length,cur=0;
 function show(i,push){
 if(n===0)return;
 cur=Math.max(0,Math.min(n-1,i));
-for(var k=0;k<n;k++){frames[k].classList.toggle('current',k===cur);frames[k].setAttribute('aria-hidden',k===cur?'false':'true');}
+for(var k=0;k<n;k++){frames[k].classList.toggle('current',k===cur);frames[k].classList.toggle('coming',k===cur+1);frames[k].setAttribute('aria-hidden',k===cur?'false':'true');}
 count.textContent=(cur+1)+' / '+n;
 if(push!==false&&location.hash!=='#'+(cur+1)){history.replaceState(null,'','#'+(cur+1));}
 }
 function fromHash(){var m=/^#(\\d+)$/.exec(location.hash);return m?parseInt(m[1],10)-1:0;}
 document.addEventListener('keydown',function(e){
 if(e.altKey||e.ctrlKey||e.metaKey)return;
-if(e.target===toggle&&(e.key===' '||e.key==='Enter'))return;
+if((e.target===toggle||e.target===desk)&&(e.key===' '||e.key==='Enter'))return;
 switch(e.key){
 case 'ArrowRight':case 'PageDown':case ' ':show(cur+1);break;
 case 'ArrowLeft':case 'PageUp':show(cur-1);break;
 case 'Home':show(0);break;
 case 'End':show(n-1);break;
 case 'n':case 'N':notes();break;
+case 'd':case 'D':room();break;
 default:return;}
 e.preventDefault();
 });
 document.addEventListener('click',function(e){
-if(e.target.closest&&e.target.closest('.talk,.talk-switch'))return;
+if(e.target.closest&&e.target.closest('.talk,.controls'))return;
 show(e.clientX>=window.innerWidth/2?cur+1:cur-1);
 });
 window.addEventListener('hashchange',function(){show(fromHash(),false);});
@@ -109,13 +139,50 @@ show(fromHash(),false);
 ///
 /// Keys: ArrowRight, PageDown and Space go forward; ArrowLeft and PageUp go
 /// back; Home and End jump to the first and last frame; `n` toggles the
-/// speaker notes. A click on the right half goes forward, on the left half
-/// back. The URL hash (`#3`) follows the current frame. A button (when any
+/// speaker notes, `d` the speaker's desk (current frame, next frame, notes
+/// and the time since the desk opened, side by side in the one window). A
+/// click on the right half goes forward, on the left half back. The URL hash (`#3`) follows the current frame. A button (when any
 /// frame has notes) toggles the notes without the keyboard. Colours follow
 /// the deck's effective theme; a print stylesheet puts one frame on each
 /// page. The SVG strings are trusted output of [`crate::render_frame`];
 /// every other text is escaped.
 pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> String {
+    render_deck_html_with(deck, frames, false)
+}
+
+/// The opening frame's content: the story's title, byline and source.
+fn opening_page(deck: &DeckPlan) -> String {
+    let mut page = format!("<h1 class=\"opening-title\">{}</h1>\n", escape(&deck.title));
+    for (class, text) in [("byline", &deck.byline), ("origin", &deck.source)] {
+        if let Some(t) = text.as_deref().filter(|t| !t.trim().is_empty()) {
+            let _ = writeln!(page, "<p class=\"{class}\">{}</p>", escape(t.trim()));
+        }
+    }
+    page
+}
+
+/// The closing frame's content: the story's conclusion, when it states one.
+fn closing_page(deck: &DeckPlan) -> Option<String> {
+    let conclusion = deck
+        .conclusion
+        .as_deref()
+        .filter(|c| !c.trim().is_empty())?;
+    Some(format!(
+        "<p class=\"closing-line\">{}</p>\n<p class=\"origin\">{}</p>\n",
+        escape(conclusion.trim()),
+        escape(&deck.title)
+    ))
+}
+
+/// [`render_deck_html`], with an opening frame (title, byline, source)
+/// before the frames and a closing frame (the conclusion) after them when
+/// `bookends` is set: sections like the others, counted and numbered with
+/// them.
+pub fn render_deck_html_with(
+    deck: &DeckPlan,
+    frames: &[(&FramePlan, &str)],
+    bookends: bool,
+) -> String {
     let mut out = String::new();
     // the audience's language: the story's locale, else English
     let lang = deck.locale.as_deref().unwrap_or("en");
@@ -140,16 +207,28 @@ pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> Strin
         "<main aria-roledescription=\"slide deck\" aria-label=\"{}\">",
         escape(&deck.title)
     );
-    let total = frames.len();
-    for (i, (frame, svg)) in frames.iter().enumerate() {
+    let opening = bookends.then(|| opening_page(deck));
+    let closing = if bookends { closing_page(deck) } else { None };
+    let total = frames.len() + usize::from(opening.is_some()) + usize::from(closing.is_some());
+    let mut i = 0;
+    let mut open = |out: &mut String, kind: &str, label: &str| {
         let current = if i == 0 { " current" } else { "" };
         let _ = writeln!(
             out,
-            "<section class=\"frame{current}\" id=\"frame-{}\" aria-roledescription=\"slide\" aria-label=\"{}\" aria-hidden=\"{}\">",
+            "<section class=\"frame{kind}{current}\" id=\"frame-{}\" aria-roledescription=\"slide\" aria-label=\"{}\" aria-hidden=\"{}\">",
             i + 1,
-            escape(&frame.headline),
+            escape(label),
             if i == 0 { "false" } else { "true" }
         );
+        i += 1;
+    };
+    if let Some(page) = &opening {
+        open(&mut out, " bookend", &deck.title);
+        out.push_str(page);
+        out.push_str("</section>\n");
+    }
+    for (frame, svg) in frames {
+        open(&mut out, "", &frame.headline);
         out.push_str(strip_xml_prolog(svg).trim());
         out.push('\n');
         if let Some(notes) = frame.notes.as_deref().filter(|n| !n.trim().is_empty()) {
@@ -161,15 +240,25 @@ pub fn render_deck_html(deck: &DeckPlan, frames: &[(&FramePlan, &str)]) -> Strin
         }
         out.push_str("</section>\n");
     }
+    if let Some(page) = &closing {
+        open(&mut out, " bookend", "Conclusion");
+        out.push_str(page);
+        out.push_str("</section>\n");
+    }
     out.push_str("</main>\n");
     let any_notes = frames
         .iter()
         .any(|(f, _)| f.notes.as_deref().is_some_and(|n| !n.trim().is_empty()));
+    out.push_str("<div class=\"controls\">");
     if any_notes {
         out.push_str(
-            "<button type=\"button\" class=\"talk-switch\" id=\"talk-switch\" aria-pressed=\"false\" title=\"Show or hide the speaker notes (key n)\">Notes</button>\n",
+            "<button type=\"button\" class=\"talk-switch\" id=\"talk-switch\" aria-pressed=\"false\" title=\"Show or hide the speaker notes (key n)\">Notes</button>",
         );
     }
+    out.push_str(
+        "<button type=\"button\" class=\"desk-switch\" id=\"desk-switch\" aria-pressed=\"false\" title=\"The speaker's desk: this frame, the next one, the notes and the time since it opened (key d)\">Desk</button>",
+    );
+    out.push_str("</div>\n<div class=\"clock\" id=\"clock\" aria-hidden=\"true\">0:00</div>\n");
     let _ = writeln!(
         out,
         "<div class=\"where\" id=\"where\" aria-live=\"polite\">{} / {}</div>",

@@ -13,25 +13,21 @@ pub(crate) fn mix(a: Rgb, b: Rgb, t: f64) -> Rgb {
     Rgb(c(a.0, b.0), c(a.1, b.1), c(a.2, b.2))
 }
 
-/// `n` distinct greys around the theme's context grey, from darker (index
-/// 0) to lighter, for context parts that must be told apart.
-///
-/// The steps run from the context grey blended 45% toward the headline ink
-/// to the context grey blended 40% toward the page. On the light theme the
-/// lightest steps fall below 3:1 against the page (#8C8C8C itself is 3.4:1);
-/// that is accepted for segments that touch darker neighbours and carry a
-/// direct label, since no lighter grey can reach 3:1 and still differ from
-/// its neighbours.
+/// The context greys of `n` context parts that must be told apart: the
+/// theme's one context grey and its lighter second grey, alternating, so
+/// neighbours differ and no grey ever outweighs the accent (both stay at
+/// least [`crate::theme::LIGHTNESS_STEP`] L* from it and 3:1 on the page;
+/// the page-coloured cuts and the direct labels carry the rest).
 pub(crate) fn context_greys(theme: &Theme, n: usize) -> Vec<Rgb> {
-    let dark = mix(theme.context, theme.headline, 0.45);
-    let light = mix(theme.context, theme.page, 0.40);
-    match n {
-        0 => Vec::new(),
-        1 => vec![theme.context],
-        _ => (0..n)
-            .map(|i| mix(dark, light, i as f64 / (n - 1) as f64))
-            .collect(),
-    }
+    (0..n)
+        .map(|i| {
+            if i % 2 == 0 {
+                theme.context
+            } else {
+                theme.context_light
+            }
+        })
+        .collect()
 }
 
 /// A very light fill for bands and shaded rows.
@@ -168,12 +164,13 @@ mod tests {
     use super::*;
 
     #[test]
-    fn greys_run_dark_to_light_and_differ() {
-        let g = context_greys(&crate::theme::CLEAR, 4);
-        assert_eq!(g.len(), 4);
-        for w in g.windows(2) {
-            assert!(w[0].relative_luminance() < w[1].relative_luminance());
-        }
+    fn greys_alternate_the_themes_two_greys() {
+        let t = &crate::theme::CLEAR;
+        let g = context_greys(t, 4);
+        assert_eq!(
+            g,
+            vec![t.context, t.context_light, t.context, t.context_light]
+        );
         assert_eq!(
             context_greys(&crate::theme::CLEAR, 1),
             vec![crate::theme::CLEAR.context]

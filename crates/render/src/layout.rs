@@ -3,15 +3,16 @@
 //! the rectangle left for the chart.
 //!
 //! Everything that decides where the chart goes is computed over the whole
-//! build-up sequence the frame belongs to, so the axes of consecutive frames
-//! of one sequence coincide exactly even when their headlines wrap
-//! differently.
+//! deck: one grid, with the same bands for headline, takeaway and source
+//! and the same chart region on every frame, so the chart does not jump
+//! between frames even when their headlines wrap differently or one frame
+//! has no takeaway.
 
 use crate::canvas::{Align, Canvas, Label, HEIGHT, WIDTH};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_frame::{Axis, DeckPlan, FramePlan};
+use crescendo_frame::{Axis, Chart, DeckPlan, FramePlan, Orientation};
 use crescendo_look::display::Part;
 
 pub use crescendo_look::theme::{
@@ -24,8 +25,10 @@ const LINE_PITCH: f64 = 1.25;
 const HEADLINE_GAP: f64 = 8.0;
 const HEADER_TO_CHART: f64 = 26.0;
 const CHART_TO_SOURCE: f64 = 18.0;
-/// At most this many lines of headline and of takeaway.
+/// At most this many lines of headline, of takeaway and of source note.
 const MAX_TEXT_LINES: usize = 2;
+/// Line pitch of a wrapped source note, as a multiple of its size.
+const SOURCE_PITCH: f64 = 1.2;
 
 /// Vertical distance between two rows of 16 px labels (the default theme;
 /// [`Theme::label_step`] follows a house style).
@@ -50,6 +53,50 @@ pub struct Region {
     pub right: f64,
     /// Bottom edge.
     pub bottom: f64,
+    /// Width of the widest tick label on a vertical measure axis of any
+    /// frame of the deck: the forms with such an axis (lines, columns,
+    /// vertical stacks, scatter) give their tick column this width at
+    /// least, so the plot's left edge is the same on all of them.
+    pub gutter: f64,
+}
+
+impl Region {
+    /// The width of the tick column of a vertical axis whose labels are
+    /// `own` wide: the deck's [`Region::gutter`] when there are labels.
+    pub fn tick_column(&self, own: f64) -> f64 {
+        if own > 0.0 {
+            own.max(self.gutter)
+        } else {
+            0.0
+        }
+    }
+}
+
+/// The vertical measure axis a chart draws its tick labels beside, if any.
+fn left_axis(chart: &Chart) -> Option<&Axis> {
+    match chart {
+        Chart::Line(l) => Some(&l.y),
+        Chart::Bars(b) if b.orientation == Orientation::Vertical => Some(&b.value),
+        Chart::Parts(p) if p.orientation == Orientation::Vertical => Some(&p.value),
+        Chart::Scatter(s) => Some(&s.y),
+        _ => None,
+    }
+}
+
+/// The deck's tick gutter ([`Region::gutter`]).
+fn gutter(deck: &DeckPlan, frame: &FramePlan, theme: &Theme) -> f64 {
+    grid_frames(deck, frame)
+        .iter()
+        .filter_map(|f| left_axis(&f.chart))
+        .map(|axis| {
+            let ticks = visible_ticks(axis);
+            max_width(
+                ticks.iter().map(|(_, l)| l.as_str()),
+                theme.label_size,
+                false,
+            )
+        })
+        .fold(0.0, f64::max)
 }
 
 struct Header<'t> {
@@ -115,13 +162,10 @@ impl<'t> Header<'t> {
     }
 }
 
-/// The frames of `frame`'s build-up sequence (always including `frame`).
-fn sequence<'a>(deck: &'a DeckPlan, frame: &'a FramePlan) -> Vec<&'a FramePlan> {
-    let mut frames: Vec<&FramePlan> = deck
-        .frames
-        .iter()
-        .filter(|f| f.sequence == frame.sequence)
-        .collect();
+/// The frames the grid is computed over: every frame of the deck (always
+/// including `frame`).
+fn grid_frames<'a>(deck: &'a DeckPlan, frame: &'a FramePlan) -> Vec<&'a FramePlan> {
+    let mut frames: Vec<&FramePlan> = deck.frames.iter().collect();
     if !frames.contains(&frame) {
         frames.push(frame);
     }
@@ -137,8 +181,38 @@ fn source_of<'a>(deck: &'a DeckPlan, frame: &'a FramePlan) -> Option<String> {
         .filter(|s| !s.is_empty())
 }
 
+/// The width a frame's source note may take: the text column, or half of
+/// it beside a draft frame's notices.
+fn source_width(theme: &Theme, frame: &FramePlan) -> f64 {
+    if frame.notices.is_empty() {
+        theme.text_column()
+    } else {
+        theme.text_column() / 2.0 - 12.0
+    }
+}
+
+/// The source note's lines (at most [`MAX_TEXT_LINES`]) and how many the
+/// whole note needs.
+fn source_lines(deck: &DeckPlan, frame: &FramePlan, theme: &Theme) -> (Vec<String>, usize) {
+    let Some(source) = source_of(deck, frame) else {
+        return (Vec::new(), 0);
+    };
+    let width = source_width(theme, frame);
+    let all = metrics::wrap(&source, theme.source_size, false, width, usize::MAX);
+    let lines = metrics::wrap(&source, theme.source_size, false, width, MAX_TEXT_LINES);
+    (lines, all.len())
+}
+
+/// Top of the source band when it holds `lines` lines.
+fn source_band_top(theme: &Theme, lines: usize) -> f64 {
+    HEIGHT as f64
+        - theme.margin_bottom
+        - line_height(theme.source_size)
+        - lines.saturating_sub(1) as f64 * theme.source_size * SOURCE_PITCH
+}
+
 fn source_top(theme: &Theme) -> f64 {
-    HEIGHT as f64 - theme.margin_bottom - line_height(theme.source_size)
+    source_band_top(theme, 1)
 }
 
 /// Draws the headline, takeaway and source note of `frame` and returns the
@@ -174,27 +248,40 @@ pub fn draw_page(
         Ok(())
     })?;
     let takeaway_top = header.takeaway_top();
-    canvas.group(Part::Takeaway, || {
-        for (i, line) in header.takeaway.iter().enumerate() {
-            canvas.text(&Label {
-                text: line,
-                x: margin_x,
-                top: takeaway_top + i as f64 * theme.takeaway_size * LINE_PITCH,
-                size: theme.takeaway_size,
-                bold: false,
-                color: theme.takeaway,
-                align: Align::Start,
-            })?;
-        }
-        Ok(())
-    })?;
+    let takeaway_needed = frame.takeaway.as_deref().map_or(0, |t| {
+        metrics::wrap(
+            t,
+            theme.takeaway_size,
+            false,
+            theme.text_column(),
+            usize::MAX,
+        )
+        .len()
+    });
+    canvas.group(
+        Part::Takeaway {
+            needed: takeaway_needed,
+        },
+        || {
+            for (i, line) in header.takeaway.iter().enumerate() {
+                canvas.text(&Label {
+                    text: line,
+                    x: margin_x,
+                    top: takeaway_top + i as f64 * theme.takeaway_size * LINE_PITCH,
+                    size: theme.takeaway_size,
+                    bold: false,
+                    color: theme.takeaway,
+                    align: Align::Start,
+                })?;
+            }
+            Ok(())
+        },
+    )?;
     // A draft build marks frames whose texts rest on a claim the data no
     // longer supports: bold, in the accent colour, at the bottom right.
     let notice = frame.notices.join("  ·  ");
-    let source_width = if notice.is_empty() {
-        theme.text_column()
-    } else {
-        let half = theme.text_column() / 2.0 - 12.0;
+    if !notice.is_empty() {
+        let half = source_width(theme, frame);
         let text = metrics::ellipsize(&notice, theme.source_size, true, half);
         canvas.group(Part::Notices, || {
             canvas.text(&Label {
@@ -207,24 +294,34 @@ pub fn draw_page(
                 align: Align::End,
             })
         })?;
-        half
-    };
-    if let Some(source) = source_of(deck, frame) {
-        let text = metrics::ellipsize(&source, theme.source_size, false, source_width);
-        canvas.group(Part::Source, || {
-            canvas.text(&Label {
-                text: &text,
-                x: margin_x,
-                top: source_top(theme),
-                size: theme.source_size,
-                bold: false,
-                color: theme.muted,
-                align: Align::Start,
-            })
+    }
+    let frames = grid_frames(deck, frame);
+    // The source band holds as many lines as the longest note of the deck
+    // needs (at most two), the lines set from the top of the band.
+    let band_lines = frames
+        .iter()
+        .map(|f| source_lines(deck, f, theme).0.len())
+        .max()
+        .unwrap_or(0);
+    let (lines, needed) = source_lines(deck, frame, theme);
+    if !lines.is_empty() {
+        let top = source_band_top(theme, band_lines);
+        canvas.group(Part::Source { needed }, || {
+            for (i, line) in lines.iter().enumerate() {
+                canvas.text(&Label {
+                    text: line,
+                    x: margin_x,
+                    top: top + i as f64 * theme.source_size * SOURCE_PITCH,
+                    size: theme.source_size,
+                    bold: false,
+                    color: theme.muted,
+                    align: Align::Start,
+                })?;
+            }
+            Ok(())
         })?;
     }
 
-    let frames = sequence(deck, frame);
     let header_bottom = frames
         .iter()
         .map(|f| Header::of(f, theme).bottom())
@@ -233,7 +330,7 @@ pub fn draw_page(
         .iter()
         .any(|f| source_of(deck, f).is_some() || !f.notices.is_empty());
     let bottom = if any_source {
-        source_top(theme) - CHART_TO_SOURCE
+        source_band_top(theme, band_lines.max(1)) - CHART_TO_SOURCE
     } else {
         HEIGHT as f64 - theme.margin_bottom
     };
@@ -242,6 +339,7 @@ pub fn draw_page(
         top: header_bottom + HEADER_TO_CHART,
         right: WIDTH as f64 - margin_x,
         bottom,
+        gutter: gutter(deck, frame, theme),
     })
 }
 

@@ -44,7 +44,10 @@ use std::fmt;
 
 pub use crescendo_look::display::DisplayList;
 pub use crescendo_look::metrics;
-pub use html::{policy_without_scripts, render_deck_html, with_extra_script};
+pub use html::{
+    escape as html_escape, policy_without_scripts, render_deck_html, render_deck_html_with,
+    with_extra_script,
+};
 pub use lttb::lttb;
 pub use theme::{Rgb, Theme};
 

@@ -43,11 +43,11 @@ pub(crate) fn layout(chart: &LineChart, region: Region, theme: &Theme) -> LineLa
         crate::axis::bottom_rows(region.bottom, lh, titled);
 
     let y_ticks = layout::visible_ticks(&chart.y);
-    let tick_w = max_width(
+    let tick_w = region.tick_column(max_width(
         y_ticks.iter().map(|(_, l)| l.as_str()),
         theme.label_size,
         false,
-    );
+    ));
     let tick_column_left = region.left;
     let tick_column_right = region.left + tick_w;
     let plot_left = if tick_w > 0.0 {

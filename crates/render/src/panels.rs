@@ -148,8 +148,8 @@ pub(crate) fn draw(
         let left = plot_left(col);
         let right = left + plot_w;
         if panel.role != Role::Hidden {
-            let x = left - if shared_ticks && col > 0 { 0.0 } else { lead };
-            panel_title(canvas, theme, panel, (x, right), cell_top, &mut obstacles)?;
+            let span = (left, right); // at its own plot's left edge
+            panel_title(canvas, theme, panel, span, cell_top, &mut obstacles)?;
         }
         let plot_top = cell_top + lh + 8.0 + slh / 2.0;
         let tick_top = cell_bottom - slh;

@@ -64,15 +64,20 @@ fn extents(chart: &PartsChart, c: usize) -> Vec<Option<(f64, f64)>> {
 
 /// Colour of each part (None when hidden).
 fn colours(theme: &Theme, chart: &PartsChart) -> Vec<Option<Rgb>> {
-    let greys = context_greys(theme, chart.parts.len());
+    // The greys alternate over the context parts in order, so two context
+    // parts next to each other (around a focus part too) always differ.
+    let n = chart.parts.iter().filter(|p| p.role != Role::Focus).count();
+    let mut greys = context_greys(theme, n).into_iter();
     chart
         .parts
         .iter()
-        .enumerate()
-        .map(|(j, p)| match p.role {
-            Role::Hidden => None,
+        .map(|p| match p.role {
             Role::Focus => Some(theme.accent),
-            Role::Context => greys.get(j).copied(),
+            Role::Hidden => {
+                greys.next();
+                None
+            }
+            Role::Context => greys.next(),
         })
         .collect()
 }
@@ -317,11 +322,11 @@ fn vertical(
         .map(|p| part_text(theme, &p.name))
         .collect();
     let ticks = layout::visible_ticks(&chart.value);
-    let tick_w = max_width(
+    let tick_w = region.tick_column(max_width(
         ticks.iter().map(|(_, l)| l.as_str()),
         theme.label_size,
         false,
-    );
+    ));
     let plot_left = if tick_w > 0.0 {
         region.left + tick_w + PAD
     } else {

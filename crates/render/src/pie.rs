@@ -6,7 +6,6 @@
 //! leaves its wedge empty and its label slot unused.
 
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::mix;
 use crate::layout::{self, Region};
 use crate::metrics::{self, line_height};
 use crate::theme::Theme;
@@ -64,29 +63,20 @@ pub(crate) fn draw(
         bounds.push(acc * TAU);
     }
 
-    let light = mix(theme.context, theme.page, 0.35);
     for (i, s) in chart.slices.iter().enumerate() {
         let color = match s.role {
             Role::Hidden => continue,
             Role::Focus => theme.accent,
-            // Every other slice a lighter grey (it stays under 3:1 on the
-            // light page; the cuts and labels carry the distinction).
+            // Every other slice the theme's second grey (both greys pass
+            // 3:1 on the page; the cuts and labels carry the rest).
             Role::Context if i % 2 == 0 => theme.context,
-            Role::Context => light,
+            Role::Context => theme.context_light,
         };
         let (a0, a1) = (bounds[i], bounds[i + 1]);
         if a1 - a0 <= 0.0 {
             continue;
         }
-        let steps = (((a1 - a0) / TAU) * 180.0).ceil().max(1.0) as usize;
-        let mut pts = Vec::with_capacity(steps + 2);
-        if a1 - a0 < TAU - 1e-9 {
-            pts.push(c);
-        }
-        for k in 0..=steps {
-            pts.push(at(c, radius, a0 + (a1 - a0) * k as f64 / steps as f64));
-        }
-        canvas.polygon(&pts, color)?;
+        canvas.wedge(c, radius, (a0, a1), color)?;
     }
     // Cuts between slices, where at least one neighbour is drawn.
     let n = chart.slices.len();

@@ -29,6 +29,18 @@ impl PluginDrawer for SkipPlugins {
     }
 }
 
+/// The fill of an area, rectangle or circle: marks never take the faint
+/// baseline grey, so an axis-role fill (a waterfall's start and total) is
+/// the theme's second context grey, at 3:1 or more on the page.
+fn fill(theme: &Theme, role: Role) -> Rgb {
+    match role {
+        Role::Focus => theme.accent,
+        Role::Context => theme.context,
+        Role::Annotation => theme.muted,
+        Role::Axis => theme.context_light,
+    }
+}
+
 fn ink(theme: &Theme, role: Role) -> (Rgb, u32) {
     match role {
         Role::Focus => (theme.accent, theme.focus_stroke),
@@ -94,12 +106,12 @@ pub fn draw(
                 canvas.polyline(&pts, c, w)?;
             }
             Primitive::Area { points, role } => {
-                let (c, _) = ink(theme, *role);
+                let c = fill(theme, *role);
                 let pts: Vec<(f64, f64)> = points.iter().map(at).collect();
                 canvas.polygon(&pts, c)?;
             }
             Primitive::Rect { from, to, role } => {
-                let (c, _) = ink(theme, *role);
+                let c = fill(theme, *role);
                 canvas.rect(at(from), at(to), c)?;
             }
             Primitive::Circle {
@@ -107,7 +119,7 @@ pub fn draw(
                 radius,
                 role,
             } => {
-                let (c, _) = ink(theme, *role);
+                let c = fill(theme, *role);
                 canvas.dot(at(center), radius.round().max(1.0) as u32, c)?;
             }
             Primitive::Text {

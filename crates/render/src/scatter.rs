@@ -106,7 +106,7 @@ pub(crate) fn draw(
                 y1: l.plot_bottom,
             };
             if let Some((a, b)) = clip_to(a, b, &plot) {
-                canvas.line(a, b, theme.muted, 2)?;
+                canvas.line(a, b, theme.context, 2)?;
                 obstacles.segments.push((a, b));
                 fit_segment = Some((a, b));
             }

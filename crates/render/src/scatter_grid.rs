@@ -79,6 +79,9 @@ pub(crate) fn draw(
             top: top + lh + 6.0,
             right: left + width,
             bottom: top + height,
+            // panels size their own tick column (the deck's gutter is for
+            // whole-frame plots)
+            gutter: 0.0,
         };
         scatter::draw(canvas, theme, sc, cell)?;
     }

@@ -143,8 +143,109 @@ fn draw_text(area: &Area<'_>, t: &Text) -> Result<(), RenderError> {
         .map_err(err)
 }
 
-fn draw_item(area: &Area<'_>, item: &Item) -> Result<(), RenderError> {
+/// Pie slices waiting to be written as true arcs: plotters draws only
+/// whole-pixel polygons, so each wedge is drawn as a tiny polygon in a
+/// placeholder colour no other item uses, and [`Wedges::write`] replaces
+/// that element with an SVG path whose arc is exact.
+#[derive(Default)]
+struct Wedges {
+    /// Every colour the list draws (placeholders avoid them).
+    used: Vec<Rgb>,
+    /// Placeholder colour and the path element that replaces it.
+    placed: Vec<(Rgb, String)>,
+}
+
+impl Wedges {
+    fn of(list: &DisplayList) -> Self {
+        let mut used = Vec::new();
+        for item in list.flat() {
+            let c = match item {
+                Item::Text(t) => t.color,
+                Item::Polyline { color, .. }
+                | Item::Rect { color, .. }
+                | Item::Dot { color, .. }
+                | Item::Polygon { color, .. }
+                | Item::Wedge { color, .. } => *color,
+                Item::Group { .. } => continue,
+            };
+            if !used.contains(&c) {
+                used.push(c);
+            }
+        }
+        Self {
+            used,
+            placed: Vec::new(),
+        }
+    }
+
+    /// A colour for the next placeholder, used by nothing else.
+    fn placeholder(&self) -> Rgb {
+        (0u32..)
+            .map(|k| Rgb(1, (k / 256 % 256) as u8, (k % 256) as u8))
+            .find(|c| !self.used.contains(c) && !self.placed.iter().any(|(p, _)| p == c))
+            .unwrap_or(Rgb(1, 1, 1))
+    }
+
+    /// The SVG path of a wedge: from the centre out along `from`, along
+    /// the arc clockwise to `to`, back to the centre (a whole turn is two
+    /// half arcs). Coordinates to 1/100 px.
+    fn path(centre: (f64, f64), r: f64, from: f64, to: f64, color: Rgb) -> String {
+        let at = |a: f64| (centre.0 + r * a.sin(), centre.1 - r * a.cos());
+        let d = if to - from >= std::f64::consts::TAU - 1e-9 {
+            let (top, bottom) = (at(0.0), at(std::f64::consts::PI));
+            format!(
+                "M{:.2},{:.2} A{r:.2},{r:.2} 0 1 1 {:.2},{:.2} A{r:.2},{r:.2} 0 1 1 {:.2},{:.2} Z",
+                top.0, top.1, bottom.0, bottom.1, top.0, top.1
+            )
+        } else {
+            let (a, b) = (at(from), at(to));
+            let large = u8::from(to - from > std::f64::consts::PI);
+            format!(
+                "M{:.2},{:.2} L{:.2},{:.2} A{r:.2},{r:.2} 0 {large} 1 {:.2},{:.2} Z",
+                centre.0, centre.1, a.0, a.1, b.0, b.1
+            )
+        };
+        format!("<path d=\"{d}\" fill=\"{}\"/>", color.hex())
+    }
+
+    /// `svg` with every placeholder polygon replaced by its path.
+    fn write(&self, mut svg: String) -> Result<String, RenderError> {
+        for (placeholder, path) in &self.placed {
+            let mark = format!("fill=\"{}\"", placeholder.hex());
+            let found = svg.find(&mark).and_then(|at| {
+                let start = svg[..at].rfind("<polygon")?;
+                let end = at + svg[at..].find("/>")? + 2;
+                Some((start, end))
+            });
+            let Some((start, end)) = found else {
+                return Err(RenderError::new("a pie slice could not be written"));
+            };
+            svg.replace_range(start..end, path);
+        }
+        Ok(svg)
+    }
+}
+
+fn draw_item(area: &Area<'_>, item: &Item, wedges: &mut Wedges) -> Result<(), RenderError> {
     match item {
+        Item::Wedge {
+            centre,
+            radius,
+            from,
+            to,
+            color,
+        } => {
+            let placeholder = wedges.placeholder();
+            let c = (px(centre.0), px(centre.1));
+            area.draw(&Polygon::new(
+                vec![c, (c.0 + 1, c.1), (c.0, c.1 + 1)],
+                shape(placeholder, true, 0),
+            ))
+            .map_err(err)?;
+            let path = Wedges::path(*centre, *radius, *from, *to, *color);
+            wedges.placed.push((placeholder, path));
+            Ok(())
+        }
         Item::Text(t) => draw_text(area, t),
         Item::Polyline {
             points: pts,
@@ -183,7 +284,7 @@ fn draw_item(area: &Area<'_>, item: &Item) -> Result<(), RenderError> {
             area.draw(&Polygon::new(points(pts), shape(*color, true, 0)))
                 .map_err(err)
         }
-        Item::Group { items, .. } => items.iter().try_for_each(|i| draw_item(area, i)),
+        Item::Group { items, .. } => items.iter().try_for_each(|i| draw_item(area, i, wedges)),
     }
 }
 
@@ -192,14 +293,15 @@ fn draw_item(area: &Area<'_>, item: &Item) -> Result<(), RenderError> {
 pub(crate) fn plot(list: &DisplayList) -> Result<String, RenderError> {
     register_fonts()?;
     let mut buf = String::new();
+    let mut wedges = Wedges::of(list);
     {
         let area = SVGBackend::with_string(&mut buf, (WIDTH, HEIGHT)).into_drawing_area();
         for item in &list.items {
-            draw_item(&area, item)?;
+            draw_item(&area, item, &mut wedges)?;
         }
         area.present().map_err(err)?;
     }
-    Ok(buf)
+    wedges.write(buf)
 }
 
 /// Writes a house style's font stack and text sizes into an SVG drawn by

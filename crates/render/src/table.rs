@@ -5,19 +5,23 @@
 //!
 //! Columns are as wide as their widest text (measured bold, so a spotlight
 //! never changes the layout), shrunk together when the table is wider than
-//! the region, with cells cut by an ellipsis. Rows are capped to what fits
+//! the region, with cells cut by an ellipsis; a narrower table spreads its
+//! columns over the chart area's width, and few rows grow apart (up to
+//! [`MAX_ROW_GROWTH`]) to fill its height. A spotlighted row is tinted
+//! across the table in a light wash of the accent. Rows are capped to what fits
 //! the region: when some are left out, a line says how many more there
 //! are. Spotlighted rows (and rows with a spotlighted cell) are always
 //! drawn: when they lie beyond the rows that fit, they follow that line,
 //! in place of the last rows before it.
 
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::faint_fill;
+use crate::kit::{faint_fill, mix};
 use crate::layout::Region;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{Role, TableChart};
+use crescendo_look::display::Part;
 
 /// Space between columns.
 const COLUMN_GAP: f64 = 36.0;
@@ -25,6 +29,10 @@ const COLUMN_GAP: f64 = 36.0;
 const ROW_PAD: f64 = 6.0;
 /// Shading reaches this far beyond the first and last column.
 const BAND_OVERHANG: f64 = 10.0;
+/// Rows may grow to this multiple of their height to fill the chart area.
+const MAX_ROW_GROWTH: f64 = 1.8;
+/// Widest gap columns are spread to, in px.
+const MAX_COLUMN_GAP: f64 = 160.0;
 
 fn row_height(theme: &Theme) -> f64 {
     line_height(theme.label_size) + 2.0 * ROW_PAD
@@ -41,39 +49,12 @@ pub(crate) fn draw(
         return Ok(());
     }
     let lh = line_height(theme.label_size);
-    let mut widths: Vec<f64> = chart
-        .columns
-        .iter()
-        .enumerate()
-        .map(|(c, col)| {
-            chart
-                .rows
-                .iter()
-                .filter_map(|r| r.cells.get(c))
-                .map(|t| text_width(&metrics::normalize(t), theme.label_size, true))
-                .fold(
-                    text_width(&metrics::normalize(&col.title), theme.label_size, true),
-                    f64::max,
-                )
-        })
-        .collect();
-    let inner = region.right - region.left - 2.0 * BAND_OVERHANG;
-    let gaps = (ncol - 1) as f64 * COLUMN_GAP;
-    let natural: f64 = widths.iter().sum();
-    if natural + gaps > inner && natural > 0.0 {
-        let k = ((inner - gaps) / natural).max(0.0);
-        for w in &mut widths {
-            *w *= k;
-        }
-    }
+    let (widths, lefts) = columns(theme, chart, region);
     let table_left = region.left + BAND_OVERHANG;
-    let mut lefts = Vec::with_capacity(ncol);
-    let mut x = table_left;
-    for w in &widths {
-        lefts.push(x);
-        x += w + COLUMN_GAP;
-    }
-    let table_right = x - COLUMN_GAP;
+    let table_right = lefts
+        .last()
+        .zip(widths.last())
+        .map_or(table_left, |(l, w)| l + w);
     let anchor = |c: usize| -> (f64, Align) {
         if chart.columns[c].numeric {
             (lefts[c] + widths[c], Align::End)
@@ -111,8 +92,15 @@ pub(crate) fn draw(
 
     // Rows: as many as fit; if some do not, one slot counts them.
     let rows_top = rule_y + 4.0;
-    let step = row_height(theme);
-    let fit = ((region.bottom - rows_top) / step).floor().max(0.0) as usize;
+    let base = row_height(theme);
+    let fit = ((region.bottom - rows_top) / base).floor().max(0.0) as usize;
+    // Few rows grow apart to fill the height, up to MAX_ROW_GROWTH.
+    let step = if chart.rows.len() < fit && !chart.rows.is_empty() {
+        ((region.bottom - rows_top) / chart.rows.len() as f64).min(base * MAX_ROW_GROWTH)
+    } else {
+        base
+    };
+    let pad = (step - line_height(theme.label_size)) / 2.0;
     let lit: Vec<bool> = chart
         .rows
         .iter()
@@ -120,17 +108,25 @@ pub(crate) fn draw(
         .collect();
     let (drawn, more) = rows_to_draw(&lit, fit);
     let fill = faint_fill(theme);
+    let wash = mix(theme.page, theme.accent, 0.12);
     for (i, row) in drawn.iter().map(|&(slot, r)| (slot, &chart.rows[r])) {
         if row.role == Role::Hidden {
             continue;
         }
         let top = rows_top + i as f64 * step;
-        if row.shaded {
-            canvas.rect(
-                (table_left - BAND_OVERHANG, top),
-                (table_right + BAND_OVERHANG, top + step),
-                fill,
-            )?;
+        let tint = if row.role == Role::Focus {
+            Some(wash)
+        } else {
+            row.shaded.then_some(fill)
+        };
+        if let Some(tint) = tint {
+            canvas.group(Part::Tint, || {
+                canvas.rect(
+                    (table_left - BAND_OVERHANG, top),
+                    (table_right + BAND_OVERHANG, top + step),
+                    tint,
+                )
+            })?;
         }
         for (c, &width) in widths.iter().enumerate() {
             let cell = row
@@ -144,7 +140,7 @@ pub(crate) fn draw(
             canvas.text(&Label {
                 text: &text,
                 x,
-                top: top + ROW_PAD,
+                top: top + pad,
                 size: theme.label_size,
                 bold: focus,
                 color: if focus { theme.accent } else { theme.takeaway },
@@ -158,7 +154,7 @@ pub(crate) fn draw(
         canvas.text(&Label {
             text: &text,
             x: table_left,
-            top: rows_top + slot as f64 * step + ROW_PAD,
+            top: rows_top + slot as f64 * step + pad,
             size: theme.label_size,
             bold: false,
             color: theme.muted,
@@ -166,6 +162,51 @@ pub(crate) fn draw(
         })?;
     }
     Ok(())
+}
+
+/// The columns' widths and left edges: as wide as their widest text,
+/// shrunk together when the table is wider than the region, spread apart
+/// over its width when narrower.
+fn columns(theme: &Theme, chart: &TableChart, region: Region) -> (Vec<f64>, Vec<f64>) {
+    let ncol = chart.columns.len();
+    let mut widths: Vec<f64> = chart
+        .columns
+        .iter()
+        .enumerate()
+        .map(|(c, col)| {
+            chart
+                .rows
+                .iter()
+                .filter_map(|r| r.cells.get(c))
+                .map(|t| text_width(&metrics::normalize(t), theme.label_size, true))
+                .fold(
+                    text_width(&metrics::normalize(&col.title), theme.label_size, true),
+                    f64::max,
+                )
+        })
+        .collect();
+    let inner = region.right - region.left - 2.0 * BAND_OVERHANG;
+    let gaps = ncol.saturating_sub(1) as f64 * COLUMN_GAP;
+    let natural: f64 = widths.iter().sum();
+    if natural + gaps > inner && natural > 0.0 {
+        let k = ((inner - gaps) / natural).max(0.0);
+        for w in &mut widths {
+            *w *= k;
+        }
+    }
+    // Spread over the width: the room left over goes into the gaps.
+    let gap = if ncol > 1 && natural + gaps < inner {
+        ((inner - natural) / (ncol - 1) as f64).min(MAX_COLUMN_GAP)
+    } else {
+        COLUMN_GAP
+    };
+    let mut lefts = Vec::with_capacity(ncol);
+    let mut x = region.left + BAND_OVERHANG;
+    for w in &widths {
+        lefts.push(x);
+        x += w + gap;
+    }
+    (widths, lefts)
 }
 
 /// The slot of the "… N more rows" line, and N.

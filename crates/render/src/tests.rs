@@ -292,11 +292,11 @@ fn line_frame_snapshot_and_look() {
     let lines = elements(&doc, "polyline");
     let grey = lines
         .iter()
-        .filter(|n| n.attribute("stroke") == Some("#8C8C8C"))
+        .filter(|n| n.attribute("stroke") == Some("#848484"))
         .count();
     let accent: Vec<_> = lines
         .iter()
-        .filter(|n| n.attribute("stroke") == Some("#B4400A"))
+        .filter(|n| n.attribute("stroke") == Some("#8E3005"))
         .collect();
     assert_eq!(
         grey, 3,
@@ -311,7 +311,7 @@ fn line_frame_snapshot_and_look() {
         .rev()
         .find(|n| n.attribute("stroke") != Some("#C8C8C8"))
         .unwrap();
-    assert_eq!(last_line.attribute("stroke"), Some("#B4400A"));
+    assert_eq!(last_line.attribute("stroke"), Some("#8E3005"));
     // Sizes on screen are the intended ones.
     let sizes: std::collections::BTreeSet<&str> = elements(&doc, "text")
         .iter()
@@ -319,7 +319,7 @@ fn line_frame_snapshot_and_look() {
         .collect();
     assert_eq!(
         sizes.into_iter().collect::<Vec<_>>(),
-        vec!["14", "16", "20", "32"]
+        vec!["16", "20", "24", "36"]
     );
     // Direct labels sit to the right of every line.
     let uplands = boxes.iter().find(|b| b.text == "Uplands").unwrap();
@@ -353,7 +353,7 @@ fn horizontal_bar_snapshot_and_look() {
     assert_eq!(
         rects
             .iter()
-            .filter(|r| r.attribute("fill") == Some("#B4400A"))
+            .filter(|r| r.attribute("fill") == Some("#8E3005"))
             .count(),
         1
     );
@@ -478,11 +478,11 @@ fn long_headline_and_takeaway_wrap_and_stay_inside() {
     let doc = roxmltree::Document::parse(&svg).unwrap();
     let big = elements(&doc, "text")
         .iter()
-        .filter(|n| n.attribute("font-size") == Some("32"))
+        .filter(|n| n.attribute("font-size") == Some("36"))
         .count();
     let medium = elements(&doc, "text")
         .iter()
-        .filter(|n| n.attribute("font-size") == Some("20"))
+        .filter(|n| n.attribute("font-size") == Some("24"))
         .count();
     assert_eq!((big, medium), (2, 2));
     assert!(boxes[1].text.ends_with('\u{2026}'));
@@ -746,10 +746,13 @@ fn axes_do_not_move_within_a_sequence() {
             .map(|t| (t.x0, t.y0))
     };
     assert_eq!(pos(&a), pos(&b));
-    // Rendered alone, the short frame would place its plot higher: the
-    // sequence really is what holds it still.
-    let alone = render_frame(&deck(vec![first.clone()]), &first).unwrap();
-    assert_ne!(skeleton(&alone), skeleton(&a));
+    // Rendered alone, the short frame would place its chart higher: the
+    // deck's grid really is what holds it still.
+    let theme = crate::theme::CLEAR;
+    let region = |d: &DeckPlan| {
+        crate::layout::draw_page(&crate::canvas::Canvas::new(), &theme, d, &first).unwrap()
+    };
+    assert!(region(&deck(vec![first.clone()])).top < region(&d).top);
 }
 
 #[test]
@@ -867,4 +870,61 @@ fn empty_deck_html() {
     let html = render_deck_html(&d, &[]);
     assert!(html.contains(">0 / 0</div>"));
     assert!(!html.contains("<section"));
+}
+
+// One grid for the deck: frames of different sequences, one with a
+// two-line headline and a takeaway, one with neither, get the same chart
+// region and the same tick gutter, so the plot does not jump.
+#[test]
+fn one_grid_for_every_frame_of_the_deck() {
+    let d = deck(vec![
+        frame(
+            1,
+            1,
+            "A much longer headline that has to wrap onto a second line at this size, surely",
+            Some("A takeaway under it"),
+            line_chart(),
+        ),
+        frame(2, 2, "Short", None, bar_chart(Orientation::Vertical)),
+    ]);
+    let theme = crate::theme::effective(&d).unwrap();
+    let regions: Vec<crate::layout::Region> = d
+        .frames
+        .iter()
+        .map(|f| crate::layout::draw_page(&crate::canvas::Canvas::new(), &theme, &d, f).unwrap())
+        .collect();
+    assert_eq!(regions[0], regions[1]);
+    // the widest vertical tick label of the deck ("40" of the bars or the
+    // line's labels) sets the gutter of both
+    assert!(regions[0].gutter > 0.0);
+    assert_eq!(regions[0].tick_column(1.0), regions[0].gutter.max(1.0));
+    assert_eq!(regions[0].tick_column(0.0), 0.0);
+}
+
+// The opening frame shows the title, byline and source; the closing frame
+// the conclusion; both are counted with the chart frames, escaped, and
+// left out when asked.
+#[test]
+fn deck_html_opens_and_closes_with_frames_of_its_own() {
+    let f1 = frame(1, 1, "First", None, line_chart());
+    let mut d = deck(vec![f1.clone()]);
+    d.byline = Some("Housing team <east>".into());
+    d.source = Some("Invented survey".into());
+    d.conclusion = Some("Fund the uplands & coast".into());
+    let s1 = render_frame(&d, &f1).unwrap();
+    let html = crate::render_deck_html_with(&d, &[(&f1, &s1)], true);
+    assert_eq!(html.matches("<section ").count(), 3);
+    assert!(html.contains("class=\"frame bookend current\" id=\"frame-1\""));
+    assert!(html.contains("<p class=\"byline\">Housing team &lt;east&gt;</p>"));
+    assert!(html.contains("<p class=\"origin\">Invented survey</p>"));
+    assert!(html.contains("id=\"frame-3\""));
+    assert!(html.contains("<p class=\"closing-line\">Fund the uplands &amp; coast</p>"));
+    assert!(html.contains(">1 / 3</div>"));
+    // no conclusion, no closing frame; switched off, neither
+    d.conclusion = None;
+    let html = crate::render_deck_html_with(&d, &[(&f1, &s1)], true);
+    assert_eq!(html.matches("<section ").count(), 2);
+    let bare = crate::render_deck_html_with(&d, &[(&f1, &s1)], false);
+    assert_eq!(bare, render_deck_html(&d, &[(&f1, &s1)]));
+    assert_eq!(bare.matches("<section ").count(), 1);
 }

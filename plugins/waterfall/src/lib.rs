@@ -210,7 +210,8 @@ fn draw(r: &Request, bars: &[Bar], decimals: usize) -> Vec<Primitive> {
         y: y.clamp(0.0, h),
         space: Space::Plot,
     };
-    let max_chars = ((slot / (font * 0.6)).floor() as usize).max(1);
+    // DejaVu Sans Bold averages about 0.7 em a character (from its metrics)
+    let max_chars = ((slot / (font * 0.7)).floor() as usize).max(1);
 
     let mut prims = Vec::new();
     let mut labels = Vec::new();

@@ -13,7 +13,7 @@ pub static RULE: Rule = Rule {
     summary: "gridlines as strong as the data they support",
     doc: Doc {
         before: concat!(
-            "style \"heavy.toml\"   # its [greys] set grid = \"#8A8A8A\", as dark as the data\n",
+            "style \"heavy.toml\"   # its [greys] set grid = \"#7A7A7A\", as dark as the data\n",
             "...\n",
             "  gridlines",
         ),

@@ -9,6 +9,7 @@ mod bars_unsorted;
 mod colour_key_text;
 mod conclusion_missing;
 mod focus_confusable;
+mod focus_outshone;
 mod frame_empty;
 mod grid_heavy;
 mod headline_cut;
@@ -26,6 +27,7 @@ mod small_counts;
 mod source_missing;
 mod spotlight_crowd;
 mod stack_spotlight_floats;
+mod text_cut;
 mod text_faint;
 mod text_small;
 mod text_unfinished;
@@ -54,11 +56,13 @@ pub static RULES: &[&Rule] = &[
     &sign_doubled::RULE,
     &axes_shift::RULE,
     &headline_cut::RULE,
+    &text_cut::RULE,
     &text_small::RULE,
     &text_faint::RULE,
     &marks_faint::RULE,
     &grid_heavy::RULE,
     &focus_confusable::RULE,
+    &focus_outshone::RULE,
     &spotlight_crowd::RULE,
     &colour_key_text::RULE,
     &pie_crowded::RULE,

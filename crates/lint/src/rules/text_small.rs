@@ -4,10 +4,11 @@ use crescendo_diag::Severity;
 
 use crate::{Doc, Finding, Input, Rule};
 
-/// Common practice for projected slides: nothing under 14 px on a 720 px
-/// high frame (about a 24 pt minimum on a 1280 × 720 slide, from memory of
-/// presentation guidance).
-const MIN: f64 = 14.0;
+/// Common practice for projected slides: nothing under 16 px on a 720 px
+/// high frame, the size of the default source note
+/// ([`crescendo_look::theme::SOURCE_SIZE`]; from memory of presentation
+/// guidance).
+const MIN: f64 = crescendo_look::theme::SOURCE_SIZE;
 
 pub static RULE: Rule = Rule {
     name: "text-small",
@@ -15,9 +16,9 @@ pub static RULE: Rule = Rule {
     summary: "text is too small to read when the deck is projected",
     doc: Doc {
         before: "style \"small.toml\"   # its [sizes] set labels = 12",
-        after: "style \"fine.toml\"   # labels = 16: 14 px or more for every text",
+        after: "style \"fine.toml\"   # labels = 20: 16 px or more for every text",
         why: "A projected frame is read from across a room: labels, tick values and source notes\n\
-              set below 14 px on the 1280 × 720 frame become unreadable at the back, and the\n\
+              set below 16 px on the 1280 × 720 frame become unreadable at the back, and the\n\
               audience stops reading the chart to squint at it (common practice: keep every text\n\
               large enough for the last row). For a deck meant only for print, allow the rule with\n\
               that reason.",
@@ -44,7 +45,7 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
                     .unwrap_or(0..0),
                 label: format!("{what} text at {size} px"),
                 message: format!("{what} text at {size} px is too small to read when projected"),
-                fix: "use 14 px or more, or allow this for a print-only deck".into(),
+                fix: "use 16 px or more, or allow this for a print-only deck".into(),
             });
         }
     }

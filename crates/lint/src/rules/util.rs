@@ -108,6 +108,25 @@ pub fn look_span(input: &Input) -> Span {
         .unwrap_or(0..0)
 }
 
+/// Where a finding about frame `i` points: its headline, or the look's
+/// place when the frame has no anchors.
+/// Where a finding about colours points: the frame that draws them, or
+/// the story's look (accent, theme, style) for the whole deck.
+pub fn colour_span(input: &Input, frame: Option<usize>) -> Span {
+    match frame {
+        Some(i) => frame_span(input, i),
+        None => look_span(input),
+    }
+}
+
+pub fn frame_span(input: &Input, i: usize) -> Span {
+    input
+        .anchors
+        .frames
+        .get(i)
+        .map_or_else(|| look_span(input), |fa| fa.headline.clone())
+}
+
 /// A theme colour as an 8-bit colour for the colour science.
 pub fn rgb8(c: crescendo_look::Rgb) -> Rgb8 {
     Rgb8 {

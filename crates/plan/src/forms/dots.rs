@@ -43,7 +43,7 @@ impl FormPlanner for Dots {
         let val = &t.columns[spec.y];
         // Dots mark positions, not lengths: the axis need not start at zero
         // (common practice; Cleveland & McGill 1984 rank position first).
-        let value = scale::linear_axis(lo, hi, false, Some(humanize(&val.name)));
+        let value = scale::padded_axis(lo, hi, Some(humanize(&val.name)));
         let rows: Vec<DotRow> = order
             .iter()
             .map(|&i| DotRow {

@@ -172,6 +172,6 @@ fn axis_of(col: &Column, vs: &[f64]) -> Axis {
         ColType::Month => scale::time_axis(ScaleKind::Months, lo, hi, None),
         ColType::Date => scale::time_axis(ScaleKind::Days, lo, hi, None),
         ColType::Year => scale::time_axis(ScaleKind::Years, lo, hi, None),
-        _ => scale::linear_axis(lo, hi, false, Some(humanize(&col.name))),
+        _ => scale::padded_axis(lo, hi, Some(humanize(&col.name))),
     }
 }

@@ -366,11 +366,12 @@ fn finish(
         // chart and in its description alike
         crate::numbers::write_labels(&mut chart, &said.texts.numbers);
         let description = describe(&chart, &st.key_name, said.takeaway.as_deref());
-        // The slug comes from the headline as written, so file names stay
-        // the same when the quoted numbers change.
+        // The slug comes from the headline's own words, its quoted values
+        // left out, so file names stay the same when the numbers change
+        // and never carry the words of an expression.
         frames.push(FramePlan {
             number: budget.before + 1 + frames.len(),
-            slug: slug(&f.headline.value),
+            slug: slug(&own_words(&f.headline)),
             sequence,
             headline: headline.text.clone(),
             takeaway: said.takeaway.clone(),
@@ -388,4 +389,16 @@ fn finish(
         texts: said.texts,
         anchors,
     })
+}
+
+/// The literal words of a text, each quoted value replaced by a space.
+fn own_words(text: &crescendo_lang::ast::Text) -> String {
+    text.template
+        .parts
+        .iter()
+        .map(|p| match p {
+            crescendo_lang::ast::TextPart::Literal(l) => l.as_str(),
+            crescendo_lang::ast::TextPart::Quote { .. } => " ",
+        })
+        .collect()
 }

@@ -26,6 +26,9 @@ pub(crate) fn apply_state(st: &SeqState) -> Chart {
         y: st.y_title.as_ref().map(|t| t.text.clone()),
     };
     let mut chart = apply_roles(&st.chart, &role, &titles, &st.cells);
+    if let Chart::Parts(p) = &mut chart {
+        visible_totals(p);
+    }
     if let Chart::Plugin(p) = &mut chart {
         // A plugin gets the role of every item it may draw.
         p.request.roles = st
@@ -48,6 +51,26 @@ pub(crate) fn apply_state(st: &SeqState) -> Chart {
             .collect();
     }
     chart
+}
+
+/// The total over each stack's visible parts: while a stack unfolds, the
+/// number above it is what the audience sees stacked, never the total of
+/// parts still hidden. (A frame with every part shown keeps the total of
+/// all parts.)
+fn visible_totals(chart: &mut PartsChart) {
+    if !chart.parts.iter().any(|p| p.role == Role::Hidden) {
+        return;
+    }
+    let shown: Vec<bool> = chart.parts.iter().map(|p| p.role != Role::Hidden).collect();
+    for cat in &mut chart.categories {
+        let visible = cat
+            .values
+            .iter()
+            .zip(&shown)
+            .filter(|(_, s)| **s)
+            .filter_map(|(v, _)| *v);
+        cat.total_label = crate::scale::value_label(crescendo_data::stats::total(visible));
+    }
 }
 
 /// The axis titles a frame sets (`x title`, `y title`).
