@@ -446,7 +446,7 @@ fn frames_carry_a_text_alternative_generated_from_the_data() {
     assert_eq!(title.text(), Some(f.headline.as_str()));
     // bars name every visible bar and mark the spotlight
     let bars = &plan.frames[3];
-    assert!(bars.description.starts_with("Bar chart of visits in 2024 by pool, 4 bars: Westbrook 114,161 (highlighted); Alder Park"), "{}", bars.description);
+    assert!(bars.description.starts_with("Bar chart of Visits in 2024 by pool, 4 bars: Westbrook 114,161 (highlighted); Alder Park"), "{}", bars.description);
 }
 
 /// Data lines of a laid-out frame: polylines drawn 2px or heavier, as segments.
