@@ -422,7 +422,7 @@ fn frames_carry_a_text_alternative_generated_from_the_data() {
     let f = &plan.frames[2];
     assert_eq!(
         f.description,
-        "Line chart of visits per month from Jan 2021 to Dec 2024, one line per pool: \
+        "Line chart of Visits per month from Jan 2021 to Dec 2024, one line per pool: \
          Alder Park, Westbrook, Millrace, Harrow Lane. Highlighted: Westbrook rose from 3,510 \
          in Jan 2021 to 7,835 in Dec 2024, with a high of 12,589 in Aug 2024. Takeaway: \
          Monthly visits at Westbrook are now well above any other pool."
@@ -446,7 +446,7 @@ fn frames_carry_a_text_alternative_generated_from_the_data() {
     assert_eq!(title.text(), Some(f.headline.as_str()));
     // bars name every visible bar and mark the spotlight
     let bars = &plan.frames[3];
-    assert!(bars.description.starts_with("Bar chart of visits in 2024 by pool, 4 bars: Westbrook 114,161 (highlighted); Alder Park"), "{}", bars.description);
+    assert!(bars.description.starts_with("Bar chart of Visits in 2024 by pool, 4 bars: Westbrook 114,161 (highlighted); Alder Park"), "{}", bars.description);
 }
 
 /// Data lines of a laid-out frame: polylines drawn 2px or heavier, as segments.

@@ -321,12 +321,23 @@ pub fn tick_labels_ascii(values: &[f64], step: f64) -> Vec<String> {
         .collect()
 }
 
-/// Suffixes of [`compact`]: thousand, million, billion, trillion (short
-/// scale, the common practice of English-language business writing).
-const COMPACT_SUFFIXES: [(i64, &str); 4] = [(12, "T"), (9, "B"), (6, "M"), (3, "k")];
+/// One step of a compact form: from 10^`from` up, the value is written in
+/// units of 10^`unit` followed by `suffix` (`(6, 6, "M")`: 4,500,000 is
+/// "4.5M"). Steps are listed from the largest `from` down.
+pub type CompactStep = (i64, i64, &'static str);
+
+/// The crescendo convention: thousand, million, billion, trillion (short
+/// scale, the common practice of English-language business writing). A
+/// locale brings its own steps (`crate::locale`).
+pub const COMPACT_STEPS: &[CompactStep] = &[(12, 12, "T"), (9, 9, "B"), (6, 6, "M"), (3, 3, "k")];
 
 /// Significant digits shown by [`compact`].
 pub const COMPACT_SIGNIFICANT: usize = 3;
+
+/// The step for a value whose decimal exponent is `exponent`.
+fn step_for(steps: &[CompactStep], exponent: i64) -> Option<CompactStep> {
+    steps.iter().copied().find(|&(from, _, _)| exponent >= from)
+}
 
 /// A short form for long labels: three significant digits and a suffix
 /// `k`, `M`, `B` or `T` from a thousand up: `12_300` → `"12.3k"`,
@@ -335,9 +346,14 @@ pub const COMPACT_SIGNIFICANT: usize = 3;
 /// Values below a thousand are rounded to three significant digits without
 /// a suffix (`0.012345` → `"0.0123"`); from 10^15 up the `T` suffix is kept
 /// with a grouped mantissa (`2e15` → `"2,000T"`). Trailing zeros are
-/// stripped; NaN and infinities print as `"n/a"`.
+/// stripped; NaN and infinities print as `"n/a"`. In a story with a locale
+/// the locale's own steps and symbols are used (`"1,2 Mio."` in German).
 pub fn compact(v: f64) -> String {
-    crate::locale::localize_number(compact_ascii(v))
+    let c = crate::locale::current();
+    match &c.locale {
+        Some(l) => l.number(&compact_with(v, l.compact_steps())),
+        None => compact_ascii(v),
+    }
 }
 
 /// [`compact`] with exactly `decimals` decimals in the suffix's unit. The
@@ -345,57 +361,66 @@ pub fn compact(v: f64) -> String {
 /// (`999_950` to one decimal is `"1.0M"`, not `"1,000.0k"`), and `T` is the
 /// last (`2e12` → `"2.0T"`).
 pub fn compact_fixed_ascii(v: f64, decimals: usize) -> String {
+    compact_fixed_with(v, decimals, COMPACT_STEPS)
+}
+
+/// [`compact_fixed_ascii`] with the given steps (ASCII digits, comma
+/// groups; the suffix as the steps write it).
+pub fn compact_fixed_with(v: f64, decimals: usize, steps: &[CompactStep]) -> String {
     if !v.is_finite() {
         return NOT_A_NUMBER.to_string();
     }
     let places = decimals.min(MAX_DECIMALS);
     let d = Decimal::of(v);
-    let mut power = COMPACT_SUFFIXES
-        .iter()
-        .map(|&(p, _)| p)
-        .find(|&p| !d.is_zero() && d.point > p)
-        .unwrap_or(0);
-    loop {
+    let mut exponent = if d.is_zero() { i64::MIN } else { d.point - 1 };
+    // a carry can move the value up one step; a step further is impossible
+    for _ in 0..4 {
+        let step = step_for(steps, exponent);
+        let unit = step.map_or(0, |s| s.1);
         let mut scaled = d.clone();
         if !scaled.is_zero() {
-            scaled.point -= power;
+            scaled.point -= unit;
         }
         scaled.round_decimals(places);
-        // the rounding carried to a thousand units: the next suffix
-        if scaled.point > 3 && power < 12 {
-            power += 3;
+        let rounded = if scaled.is_zero() {
+            i64::MIN
+        } else {
+            scaled.point - 1 + unit
+        };
+        if step_for(steps, rounded) != step && rounded > exponent {
+            exponent = rounded;
             continue;
         }
-        let suffix = COMPACT_SUFFIXES
-            .iter()
-            .find(|&&(p, _)| p == power)
-            .map_or("", |&(_, s)| s);
+        let suffix = step.map_or("", |s| s.2);
         return with_sign(
             v < 0.0,
             &scaled,
             format!("{}{suffix}", scaled.render(places)),
         );
     }
+    NOT_A_NUMBER.to_string()
 }
 
 /// [`compact`] in the crescendo convention whatever the locale.
 pub fn compact_ascii(v: f64) -> String {
+    compact_with(v, COMPACT_STEPS)
+}
+
+/// [`compact`] with the given steps (ASCII digits, comma groups).
+pub fn compact_with(v: f64, steps: &[CompactStep]) -> String {
     if !v.is_finite() {
         return NOT_A_NUMBER.to_string();
     }
     let mut d = Decimal::of(v);
     d.round_significant(COMPACT_SIGNIFICANT);
-    for (power, suffix) in COMPACT_SUFFIXES {
-        // `point - 1` is the decimal exponent of the (rounded) value, so
-        // `point > power` means "at least 10^power".
-        if !d.is_zero() && d.point > power {
-            let scaled = Decimal {
-                digits: d.digits.clone(),
-                point: d.point - power,
-            };
-            let shown = scaled.decimals_needed();
-            return with_sign(v < 0.0, &d, format!("{}{suffix}", scaled.render(shown)));
-        }
+    // `point - 1` is the decimal exponent of the (rounded) value
+    if let Some((_, unit, suffix)) = step_for(steps, d.point - 1).filter(|_| !d.is_zero()) {
+        let scaled = Decimal {
+            digits: d.digits.clone(),
+            point: d.point - unit,
+        };
+        let shown = scaled.decimals_needed();
+        return with_sign(v < 0.0, &d, format!("{}{suffix}", scaled.render(shown)));
     }
     let shown = d.decimals_needed();
     with_sign(v < 0.0, &d, d.render(shown))

@@ -31,6 +31,8 @@ use icu_datetime::fieldsets::{M, MD, YM, YMD};
 use icu_datetime::FixedCalendarDateTimeFormatter;
 use icu_decimal::DecimalFormatter;
 
+use crate::format::CompactStep;
+
 /// A locale's formatters, built once per story.
 pub struct Locale {
     tag: String,
@@ -41,6 +43,81 @@ pub struct Locale {
     month_year: FixedCalendarDateTimeFormatter<Gregorian, YM>,
     day: FixedCalendarDateTimeFormatter<Gregorian, MD>,
     day_year: FixedCalendarDateTimeFormatter<Gregorian, YMD>,
+    /// Percent and compact patterns ([`Forms`]).
+    forms: Option<&'static Forms>,
+    /// The language subtag (`de`).
+    language: String,
+}
+
+/// A locale's percent and compact forms. ICU4X's stable components do not
+/// format percentages or compact numbers (those live in its experimental
+/// crate), so the CLDR patterns of the languages crescendo ships are here:
+/// CLDR `percentFormats` "standard" and `decimalFormats` "short" (checked
+/// against cldr-json 44.1 `numbers.json` for de and fr; es and en, and the
+/// kind of space in each pattern, from memory of the same data, unchanged
+/// through CLDR 49 as far as known). A language without an entry keeps
+/// the crescendo forms (`12.3%`, `4.5M`), its digits still localised.
+#[derive(Debug)]
+pub struct Forms {
+    /// The text after a percentage's digits ("%", "\u{a0}%").
+    pub percent_suffix: &'static str,
+    /// The compact steps, from the largest down.
+    pub compact: &'static [CompactStep],
+}
+
+/// The crescendo forms (no locale, or a language without patterns).
+pub const CRESCENDO_FORMS: Forms = Forms {
+    percent_suffix: "%",
+    compact: crate::format::COMPACT_STEPS,
+};
+
+/// The forms of a language (its CLDR patterns), `None` when crescendo
+/// ships none for it.
+pub fn forms_of(language: &str) -> Option<&'static Forms> {
+    const EN: Forms = Forms {
+        // "#,##0%"; short: "0K", "0M", "0B", "0T"
+        percent_suffix: "%",
+        compact: &[(12, 12, "T"), (9, 9, "B"), (6, 6, "M"), (3, 3, "K")],
+    };
+    const DE: Forms = Forms {
+        // "#,##0 %"; short: thousands stay whole ("0"), "0 Mio'.'",
+        // "0 Mrd'.'", "0 Bio'.'" (the space a no-break space)
+        percent_suffix: "\u{a0}%",
+        compact: &[
+            (12, 12, "\u{a0}Bio."),
+            (9, 9, "\u{a0}Mrd."),
+            (6, 6, "\u{a0}Mio."),
+        ],
+    };
+    const FR: Forms = Forms {
+        // "#,##0 %" with U+202F NARROW NO-BREAK SPACE; short: "0 k",
+        // "0 M", "0 Md", "0 Bn"
+        percent_suffix: "\u{202f}%",
+        compact: &[
+            (12, 12, "\u{a0}Bn"),
+            (9, 9, "\u{a0}Md"),
+            (6, 6, "\u{a0}M"),
+            (3, 3, "\u{a0}k"),
+        ],
+    };
+    const ES: Forms = Forms {
+        // "#,##0 %"; short: "0 mil", "0 M", "0000 M" (10^9 in millions),
+        // "00 mil M" (10^10), "0 B" (10^12)
+        percent_suffix: "\u{a0}%",
+        compact: &[
+            (12, 12, "\u{a0}B"),
+            (10, 9, "\u{a0}mil\u{a0}M"),
+            (6, 6, "\u{a0}M"),
+            (3, 3, "\u{a0}mil"),
+        ],
+    };
+    match language {
+        "en" => Some(&EN),
+        "de" => Some(&DE),
+        "fr" => Some(&FR),
+        "es" => Some(&ES),
+        _ => None,
+    }
 }
 
 impl std::fmt::Debug for Locale {
@@ -73,7 +150,10 @@ impl Locale {
             .map_err(|e| fail("date", &e))?;
         let day_year = FixedCalendarDateTimeFormatter::try_new((&parsed).into(), YMD::medium())
             .map_err(|e| fail("date", &e))?;
+        let forms = forms_of(parsed.id.language.as_str());
         let locale = Locale {
+            forms,
+            language: parsed.id.language.as_str().to_string(),
             tag: parsed.to_string(),
             decimal,
             ungrouped,
@@ -98,10 +178,33 @@ impl Locale {
         &self.tag
     }
 
+    /// Whether crescendo ships this language's own patterns (percent,
+    /// compact, sentences); without them the crescendo forms are used.
+    pub fn has_patterns(&self) -> bool {
+        self.forms.is_some()
+    }
+
+    /// The language subtag (`de` for `de-AT`).
+    pub fn language(&self) -> &str {
+        &self.language
+    }
+
+    /// The compact steps of this locale (CLDR's short decimal formats).
+    pub fn compact_steps(&self) -> &'static [CompactStep] {
+        self.forms.unwrap_or(&CRESCENDO_FORMS).compact
+    }
+
+    /// What follows a percentage's digits ("%", "\u{a0}%").
+    pub fn percent_suffix(&self) -> &'static str {
+        self.forms.unwrap_or(&CRESCENDO_FORMS).percent_suffix
+    }
+
     /// Rewrite a number written the crescendo way (`-12,345.6`, ASCII,
-    /// comma groups, optional `k`/`M`/`B`/`T` suffix) in this locale.
+    /// comma groups, optional suffix such as `k` or `\u{a0}Mio.`) in this
+    /// locale.
     pub fn number(&self, ascii: &str) -> String {
-        let (body, suffix) = match ascii.find(|c: char| c.is_ascii_alphabetic()) {
+        let end = ascii.find(|c: char| !(c.is_ascii_digit() || matches!(c, '.' | ',' | '-')));
+        let (body, suffix) = match end {
             Some(i) => ascii.split_at(i),
             None => (ascii, ""),
         };

@@ -158,6 +158,16 @@ pub fn month_iso(m: i32) -> String {
     format!("{:04}-{:02}", month_year(m), month_of_year(m))
 }
 
+/// A date quoted in a text: as the axis writes a day with its year in the
+/// story's locale ("20.06.2024", "20 juin 2024"), ISO without a locale.
+pub fn date_text(d: i32) -> String {
+    let (y, m, day) = civil_from_days(d);
+    match &crate::locale::current().locale {
+        Some(l) => l.day(y, m, day, true),
+        None => date_iso(d),
+    }
+}
+
 /// `YYYY-MM-DD` text of a day count.
 pub fn date_iso(d: i32) -> String {
     let (y, m, day) = civil_from_days(d);

@@ -1,14 +1,18 @@
 //! A text alternative for each frame, generated from its chart: the form,
 //! what the axes show, the items, the range and direction of what is
-//! spotlighted, and the takeaway.
+//! spotlighted, and the takeaway. Written from the sentence patterns of
+//! the story's locale (`sentences.rs`); names and titles as written.
 
 use crescendo_data::time;
+
+use crate::sentences::{current as sentences, fill};
 
 use crate::model::*;
 
 /// The text alternative of a frame drawing `chart`; `key` names what its
 /// items are (the chart's key column).
 pub(crate) fn describe(chart: &Chart, key: &str, takeaway: Option<&str>) -> String {
+    let t = sentences();
     let mut out = match chart {
         Chart::Line(l) => line(l, key),
         Chart::Bars(b) => bars(b, key),
@@ -18,14 +22,11 @@ pub(crate) fn describe(chart: &Chart, key: &str, takeaway: Option<&str>) -> Stri
         Chart::Figures(f) => figures(f),
         Chart::Table(t) => table(t),
         Chart::Pie(p) => pie(p, key),
-        Chart::Plugin(p) => format!(
-            "Chart drawn by the plugin {} {} (form {}).",
-            p.plugin_name, p.plugin_version, p.form
-        ),
+        Chart::Plugin(p) => fill(t.plugin, &[&p.plugin_name, &p.plugin_version, &p.form]),
         Chart::Panels(pc) => panels(pc, key),
     };
-    if let Some(t) = takeaway {
-        out.push_str(&format!(" Takeaway: {t}"));
+    if let Some(takeaway) = takeaway {
+        out.push_str(&fill(t.takeaway, &[takeaway]));
     }
     out
 }
@@ -38,25 +39,24 @@ fn fig(v: f64) -> String {
 /// " (highlighted)" for an item in focus.
 fn lit(r: Role) -> &'static str {
     if r == Role::Focus {
-        " (highlighted)"
+        sentences().highlighted
     } else {
         ""
     }
 }
 
-/// What an axis measures, in lower case.
+/// What an axis measures: its title as written.
 fn measure(a: &Axis) -> String {
     a.title
         .clone()
-        .unwrap_or_else(|| "the measure".into())
-        .to_lowercase()
+        .unwrap_or_else(|| sentences().the_measure.into())
 }
 
 /// A position on an axis as its reader would name it.
 fn tick_label(axis: &Axis, v: f64) -> String {
     match axis.scale {
         ScaleKind::Months => time::month_label(v.round() as i32),
-        ScaleKind::Days => time::date_iso(v.round() as i32),
+        ScaleKind::Days => time::date_text(v.round() as i32),
         ScaleKind::Years => format!("{}", v.round() as i64),
         ScaleKind::Categories => axis
             .ticks
@@ -69,15 +69,18 @@ fn tick_label(axis: &Axis, v: f64) -> String {
 
 fn line(l: &LineChart, key: &str) -> String {
     let shown: Vec<&Series> = l.series.iter().filter(|s| s.role != Role::Hidden).collect();
-    let mut out = format!(
-        "Line chart of {} from {} to {}",
-        measure(&l.y),
-        tick_label(&l.x, l.x.domain[0]),
-        tick_label(&l.x, l.x.domain[1])
+    let t = sentences();
+    let mut out = fill(
+        t.line,
+        &[
+            &measure(&l.y),
+            &tick_label(&l.x, l.x.domain[0]),
+            &tick_label(&l.x, l.x.domain[1]),
+        ],
     );
     if l.series.len() > 1 {
         let names: Vec<&str> = shown.iter().map(|s| s.name.as_str()).collect();
-        out.push_str(&format!(", one line per {key}: {}", names.join(", ")));
+        out.push_str(&fill(t.one_line_per, &[key, &names.join(", ")]));
     }
     out.push('.');
     for s in shown.iter().filter(|s| s.role == Role::Focus) {
@@ -93,22 +96,24 @@ fn line(l: &LineChart, key: &str) -> String {
             .iter()
             .copied()
             .fold(*first, |a, b| if b.1 > a.1 { b } else { a });
-        let direction = if last.1 > first.1 {
-            "rose"
+        let pattern = if last.1 > first.1 {
+            t.rose
         } else if last.1 < first.1 {
-            "fell"
+            t.fell
         } else {
-            "ended level"
+            t.level
         };
-        out.push_str(&format!(
-            " Highlighted: {} {direction} from {} in {} to {} in {}, with a high of {} in {}.",
-            s.name,
-            fig(first.1),
-            tick_label(&l.x, first.0),
-            fig(last.1),
-            tick_label(&l.x, last.0),
-            fig(peak.1),
-            tick_label(&l.x, peak.0)
+        out.push_str(&fill(
+            pattern,
+            &[
+                &s.name,
+                &fig(first.1),
+                &tick_label(&l.x, first.0),
+                &fig(last.1),
+                &tick_label(&l.x, last.0),
+                &fig(peak.1),
+                &tick_label(&l.x, peak.0),
+            ],
         ));
     }
     out
@@ -121,18 +126,22 @@ fn bars(b: &BarChart, key: &str) -> String {
         .filter(|x| x.role != Role::Hidden)
         .map(|x| format!("{} {}{}", x.label, x.value_label, lit(x.role)))
         .collect();
-    format!(
-        "Bar chart of {} by {key}, {} bars: {}.",
-        measure(&b.value),
-        shown.len(),
-        shown.join("; ")
+    fill(
+        sentences().bars,
+        &[
+            &measure(&b.value),
+            key,
+            &shown.len().to_string(),
+            &shown.join("; "),
+        ],
     )
 }
 
 fn parts(p: &PartsChart, key: &str) -> String {
-    let kind = match p.mode {
-        PartsMode::Stacked => "Stacked bar chart",
-        PartsMode::Grouped => "Grouped bar chart",
+    let t = sentences();
+    let pattern = match p.mode {
+        PartsMode::Stacked => t.stacked,
+        PartsMode::Grouped => t.grouped,
     };
     let parts: Vec<String> = p
         .parts
@@ -145,12 +154,15 @@ fn parts(p: &PartsChart, key: &str) -> String {
         .iter()
         .map(|c| format!("{} {}", c.label, c.total_label))
         .collect();
-    format!(
-        "{kind} of {}, {} categories split by {key} into {}. Totals: {}.",
-        measure(&p.value),
-        p.categories.len(),
-        parts.join(", "),
-        cats.join("; ")
+    fill(
+        pattern,
+        &[
+            &measure(&p.value),
+            &p.categories.len().to_string(),
+            key,
+            &parts.join(", "),
+            &cats.join("; "),
+        ],
     )
 }
 
@@ -163,27 +175,25 @@ fn dots(d: &DotChart) -> String {
             let vs: Vec<String> = r
                 .values
                 .iter()
-                .map(|v| v.map_or_else(|| "no data".into(), fig))
+                .map(|v| v.map_or_else(|| sentences().no_data.into(), fig))
                 .collect();
             format!("{} {}{}", r.label, vs.join(" / "), lit(r.role))
         })
         .collect();
-    format!("Dot plot of {}: {}.", measure(&d.value), rows.join("; "))
+    fill(sentences().dots, &[&measure(&d.value), &rows.join("; ")])
 }
 
 fn scatter(s: &ScatterChart) -> String {
-    let mut out = format!(
-        "Scatter of {} against {}, {} points",
-        measure(&s.y),
-        measure(&s.x),
-        s.points.len()
+    let t = sentences();
+    let mut out = fill(
+        t.scatter,
+        &[&measure(&s.y), &measure(&s.x), &s.points.len().to_string()],
     );
     if let Some(f) = &s.fit {
-        out.push_str(&format!(
-            "; fitted line rises {} per unit{}",
-            fig(f.slope),
-            f.r.map_or(String::new(), |r| format!(", correlation {}", fig(r)))
-        ));
+        out.push_str(&fill(t.fit, &[&fig(f.slope)]));
+        if let Some(r) = f.r {
+            out.push_str(&fill(t.correlation, &[&fig(r)]));
+        }
     }
     let mut focus: Vec<&str> = Vec::new();
     for p in s.points.iter().filter(|p| p.role == Role::Focus) {
@@ -197,7 +207,7 @@ fn scatter(s: &ScatterChart) -> String {
         }
     }
     if !focus.is_empty() {
-        out.push_str(&format!("; highlighted: {}", focus.join(", ")));
+        out.push_str(&fill(t.highlighted_list, &[&focus.join(", ")]));
     }
     out.push('.');
     out
@@ -209,11 +219,9 @@ fn figures(f: &FigureChart) -> String {
         .iter()
         .map(|x| format!("{}: {}", x.text, x.caption))
         .collect();
-    format!(
-        "Key figure{}: {}.",
-        if figs.len() == 1 { "" } else { "s" },
-        figs.join("; ")
-    )
+    let t = sentences();
+    let pattern = if figs.len() == 1 { t.figure } else { t.figures };
+    fill(pattern, &[&figs.join("; ")])
 }
 
 fn table(t: &TableChart) -> String {
@@ -224,13 +232,10 @@ fn table(t: &TableChart) -> String {
         .filter(|r| r.role == Role::Focus || r.focus_cell.is_some())
         .filter_map(|r| r.cells.first().map(String::as_str))
         .collect();
-    let mut out = format!(
-        "Table of {} rows with columns {}",
-        t.rows.len(),
-        cols.join(", ")
-    );
+    let words = sentences();
+    let mut out = fill(words.table, &[&t.rows.len().to_string(), &cols.join(", ")]);
     if !focus.is_empty() {
-        out.push_str(&format!("; highlighted: {}", focus.join(", ")));
+        out.push_str(&fill(words.highlighted_list, &[&focus.join(", ")]));
     }
     out.push('.');
     out
@@ -243,7 +248,7 @@ fn pie(p: &PieChart, key: &str) -> String {
         .filter(|s| s.role != Role::Hidden)
         .map(|s| format!("{} {}{}", s.label, s.share_label, lit(s.role)))
         .collect();
-    format!("Pie chart of shares by {key}: {}.", slices.join("; "))
+    fill(sentences().pie, &[key, &slices.join("; ")])
 }
 
 fn panels(pc: &PanelChart, key: &str) -> String {
@@ -253,13 +258,102 @@ fn panels(pc: &PanelChart, key: &str) -> String {
         .filter(|p| p.role != Role::Hidden)
         .map(|p| format!("{}{}", p.title, lit(p.role)))
         .collect();
-    format!(
-        "Small multiples, one panel per {key} on {}: {}.",
-        if pc.common_scale {
-            "one common scale"
-        } else {
-            "separate scales"
-        },
-        panels.join(", ")
-    )
+    let t = sentences();
+    let scale = if pc.common_scale {
+        t.common_scale
+    } else {
+        t.separate_scales
+    };
+    fill(t.panels, &[key, scale, &panels.join(", ")])
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crescendo_data::locale::{scoped, Conventions};
+
+    fn axis(title: Option<&str>, scale: ScaleKind, domain: [f64; 2]) -> Axis {
+        Axis {
+            title: title.map(str::to_string),
+            scale,
+            domain,
+            ticks: Vec::new(),
+            grid: false,
+        }
+    }
+
+    /// A line chart (months, two stations, one in focus) and a bar chart,
+    /// described in the four languages crescendo ships; German nouns keep
+    /// their capitals, names stay as written.
+    #[test]
+    fn descriptions_in_four_locales() {
+        let jul_2022 = 2022 * 12 + 6;
+        let point = |x: i32, y: f64| Point {
+            x: f64::from(x),
+            y: Some(y),
+        };
+        let series = |name: &str, role, ys: [f64; 3]| Series {
+            name: name.into(),
+            label: name.into(),
+            role,
+            points: (0..3)
+                .map(|k| point(jul_2022 + k * 6, ys[k as usize]))
+                .collect(),
+            end_values: Vec::new(),
+        };
+        let line = Chart::Line(LineChart {
+            x: axis(
+                None,
+                ScaleKind::Months,
+                [f64::from(jul_2022), f64::from(jul_2022 + 12)],
+            ),
+            y: axis(
+                Some("Einnahmen je Monat in Euro"),
+                ScaleKind::Linear,
+                [0.0, 1.0],
+            ),
+            series: vec![
+                series("Nord", Role::Focus, [1200.5, 1800.0, 1500.25]),
+                series("Süd", Role::Context, [900.0, 950.0, 990.0]),
+            ],
+            annotations: Vec::new(),
+            end_labels: false,
+        });
+        let bars = |tag| {
+            Chart::Bars(BarChart {
+                orientation: Orientation::Vertical,
+                category_title: None,
+                value: axis(Some("Anteil Online"), ScaleKind::Linear, [0.0, 1.0]),
+                bars: ["Nord", "Süd"]
+                    .iter()
+                    .zip([0.527, 0.31])
+                    .map(|(l, v)| Bar {
+                        label: (*l).into(),
+                        value: Some(v),
+                        value_label: scoped(Conventions::of(Some(tag), None), || {
+                            crate::numbers::share_label(v)
+                        }),
+                        role: if *l == "Nord" {
+                            Role::Focus
+                        } else {
+                            Role::Context
+                        },
+                    })
+                    .collect(),
+            })
+        };
+        let mut out = String::new();
+        for tag in ["en-GB", "de-DE", "fr-FR", "es-ES", "ja-JP"] {
+            let c = Conventions::of(Some(tag), None);
+            let text = scoped(c, || {
+                format!(
+                    "{}\n{}",
+                    describe(&line, "Stelle", Some("Nord führt.")),
+                    describe(&bars(tag), "Stelle", None)
+                )
+            });
+            out.push_str(&format!("[{tag}]\n{text}\n\n"));
+        }
+        insta::assert_snapshot!(out);
+    }
 }

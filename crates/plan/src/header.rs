@@ -264,7 +264,22 @@ pub(crate) fn read_conventions(
                     continue;
                 }
                 match crescendo_data::locale::Locale::new(&t.text.value) {
-                    Ok(l) => locale = Some((l.tag().to_string(), t.span.clone())),
+                    Ok(l) => {
+                        if crate::sentences::of_language(l.language()).is_none() {
+                            diags.push(
+                                Diagnostic::warning(
+                                    "locale-sentences",
+                                    format!(
+                                        "crescendo has no sentences in the language of `{}`: descriptions are written in English",
+                                        l.tag()
+                                    ),
+                                )
+                                .at(src, t.text.span.clone(), "numbers and dates follow this locale")
+                                .note("descriptions (the text a screen reader reads) are written in English, German, French and Spanish"),
+                            );
+                        }
+                        locale = Some((l.tag().to_string(), t.span.clone()));
+                    }
                     Err(message) => diags.push(
                         Diagnostic::error("bad-locale", message)
                             .at(src, t.text.span.clone(), "not a locale crescendo knows")

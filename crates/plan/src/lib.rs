@@ -35,6 +35,7 @@ pub mod plugins;
 mod rows;
 pub mod scale;
 mod scope;
+mod sentences;
 mod sequence;
 mod sources;
 pub mod style;

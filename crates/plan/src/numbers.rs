@@ -41,16 +41,21 @@ pub fn drawn(figure: String) -> String {
 }
 
 /// A quoted number as its format prints it, in the story's locale, with a
-/// hyphen-minus (the machine form; [`drawn`] makes it the drawn one).
+/// hyphen-minus (the machine form; [`drawn`] makes it the drawn one). A
+/// locale brings its percent and compact patterns (`52,7\u{a0}%`,
+/// `1,2\u{a0}Mio.`; see `crescendo_data::locale::Forms`).
 pub fn figure(v: f64, spec: &FormatSpec) -> String {
+    let conventions = crescendo_data::locale::current();
+    let locale = conventions.locale.as_ref();
+    let steps = locale.map_or(format::COMPACT_STEPS, |l| l.compact_steps());
     let (shift, suffix) = match spec.style {
-        NumberStyle::Percent => (2, "%"),
+        NumberStyle::Percent => (2, locale.map_or("%", |l| l.percent_suffix())),
         _ => (0, ""),
     };
     let a = v.abs();
     let body = match (spec.style, spec.decimals) {
-        (NumberStyle::Compact, None) => format::compact_ascii(a),
-        (NumberStyle::Compact, Some(d)) => format::compact_fixed_ascii(a, d),
+        (NumberStyle::Compact, None) => format::compact_with(a, steps),
+        (NumberStyle::Compact, Some(d)) => format::compact_fixed_with(a, d, steps),
         (_, Some(d)) => format::fixed_ascii(a, shift, d),
         (_, None) => format::significant_ascii(a, shift, DEFAULT_SIGNIFICANT),
     };
@@ -557,6 +562,53 @@ mod tests {
         }
     }
 
+    /// Percent and compact forms in four locales, each expected string
+    /// from CLDR's patterns: `percentFormats` "standard" and
+    /// `decimalFormats` "short" (checked against cldr-json 44.1
+    /// `numbers.json` for de and fr, es and en and the kind of each space
+    /// from memory of the same data; CLDR 49 as shipped in ICU4X 2.4 for
+    /// the digits, groups and decimal separators). Our rounding chooses the
+    /// digits (three significant, half away from zero).
+    #[test]
+    fn percent_and_compact_follow_the_locale() {
+        use crescendo_data::locale::{scoped, Conventions};
+        use NumberStyle::*;
+        let pct = spec(false, None, Percent);
+        let cpt = spec(false, None, Compact);
+        let cpt1 = spec(false, Some(1), Compact);
+        let cases: &[(&str, f64, FormatSpec, &str)] = &[
+            ("de-DE", 0.527, pct, "52,7\u{a0}%"),
+            ("de-DE", 548_123.0, cpt, "548.000"),
+            ("de-DE", 1_040_000.0, cpt, "1,04\u{a0}Mio."),
+            ("de-DE", 2.5e9, cpt, "2,5\u{a0}Mrd."),
+            ("de-DE", 3e12, cpt, "3\u{a0}Bio."),
+            ("de-DE", 999_950.0, cpt1, "999.950,0"),
+            ("de-DE", 999_999.96, cpt1, "1,0\u{a0}Mio."),
+            ("fr-FR", 0.527, pct, "52,7\u{202f}%"),
+            ("fr-FR", 548_123.0, cpt, "548\u{a0}k"),
+            ("fr-FR", 2.5e9, cpt, "2,5\u{a0}Md"),
+            ("fr-FR", 3e12, cpt, "3\u{a0}Bn"),
+            ("es-ES", 0.527, pct, "52,7\u{a0}%"),
+            ("es-ES", 548_123.0, cpt, "548\u{a0}mil"),
+            ("es-ES", 1_040_000.0, cpt, "1,04\u{a0}M"),
+            ("es-ES", 2.5e9, cpt, "2500\u{a0}M"),
+            ("es-ES", 25e9, cpt, "25\u{a0}mil\u{a0}M"),
+            ("es-ES", 3e12, cpt, "3\u{a0}B"),
+            ("es-ES", 999_950.0, cpt1, "1,0\u{a0}M"),
+            ("en-US", 0.527, pct, "52.7%"),
+            ("en-US", 548_123.0, cpt, "548K"),
+            ("en-US", 1_040_000.0, cpt, "1.04M"),
+        ];
+        for (tag, v, s, want) in cases {
+            let c = Conventions::of(Some(tag), None);
+            let got = scoped(c, || figure(*v, s));
+            assert_eq!(&got, want, "{tag} {v} {s:?}");
+        }
+        // without a locale: the crescendo forms
+        assert_eq!(figure(0.527, &pct), "52.7%");
+        assert_eq!(figure(548_123.0, &cpt), "548k");
+    }
+
     #[test]
     fn fit_labels_show_three_significant_digits_or_the_quoted_figure() {
         // the number policy: three significant digits, half away from zero
@@ -654,7 +706,7 @@ mod tests {
     /// The number of a drawn figure (minus, groups and suffix read back).
     fn read(s: &str) -> f64 {
         s.replace(MINUS, "-")
-            .replace([',', '%'], "")
+            .replace([',', '%', '\u{a0}', '\u{202f}'], "")
             .parse()
             .unwrap_or(f64::NAN)
     }

@@ -44,7 +44,11 @@ impl Quantity {
 
     /// The plain figure used in messages and manifests.
     pub fn figure(&self) -> String {
-        format_quantity(self, &FormatSpec::default())
+        match self {
+            // a date in a message or manifest stays ISO (machine form)
+            Quantity::Time(ColType::Date, d) => time::date_iso(*d),
+            _ => format_quantity(self, &FormatSpec::default()),
+        }
     }
 }
 
@@ -440,7 +444,9 @@ pub fn format_quantity(q: &Quantity, spec: &FormatSpec) -> String {
             }
         }
         Quantity::Time(ColType::Month, m) => time::month_label(*m),
-        Quantity::Time(ColType::Date, d) => time::date_iso(*d),
+        // a quoted date reads like the axis's dates in the story's locale
+        // (ISO without a locale)
+        Quantity::Time(ColType::Date, d) => time::date_text(*d),
         Quantity::Time(_, y) => y.to_string(),
         Quantity::Number(v) => crate::numbers::figure(*v, spec),
     }
@@ -624,5 +630,29 @@ mod tests {
         for (q, s, want) in cases {
             assert_eq!(format_quantity(q, s), *want, "{q:?} {s:?}");
         }
+    }
+
+    /// A quoted date reads like the axis's dates: CLDR's medium date
+    /// pattern of the locale (CLDR 49 as shipped in ICU4X 2.4's compiled
+    /// data: de "dd.MM.y", fr "d MMM y", es "d MMM y", en "MMM d, y");
+    /// ISO without a locale; the machine figure stays ISO.
+    #[test]
+    fn quoted_dates_follow_the_locale() {
+        use crescendo_data::locale::{scoped, Conventions};
+        let d = Quantity::Time(ColType::Date, time::days_from_civil(2024, 6, 20));
+        let plain = FormatSpec::default();
+        for (tag, want) in [
+            ("de-DE", "20.06.2024"),
+            ("fr-FR", "20 juin 2024"),
+            ("es-ES", "20 jun 2024"),
+            ("en-US", "Jun 20, 2024"),
+        ] {
+            let got = scoped(Conventions::of(Some(tag), None), || {
+                (format_quantity(&d, &plain), d.figure())
+            });
+            assert_eq!(got.0, want, "{tag}");
+            assert_eq!(got.1, "2024-06-20", "{tag}: machine form");
+        }
+        assert_eq!(format_quantity(&d, &plain), "2024-06-20");
     }
 }

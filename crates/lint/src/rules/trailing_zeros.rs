@@ -25,9 +25,7 @@ pub static RULE: Rule = Rule {
 /// `separator` is the deck's decimal separator ("," in a `locale "de-DE"`
 /// story, where "1.000" is a thousand).
 fn has_trailing_zero(figure: &str, separator: &str) -> bool {
-    let core = figure
-        .trim_end_matches(['%', 'k', 'M', 'B', 'T'])
-        .trim_end();
+    let core = figure.trim_end_matches(|c: char| !c.is_ascii_digit());
     match core.split_once(separator) {
         Some((_, frac)) => frac.chars().all(|c| c.is_ascii_digit()) && frac.ends_with('0'),
         None => false,
