@@ -455,6 +455,7 @@ pub enum OptName {
     Group,
     Label,
     Fit,
+    Heading,
 }
 
 impl OptName {
@@ -472,6 +473,7 @@ impl OptName {
             OptName::Group => "group",
             OptName::Label => "label",
             OptName::Fit => "fit",
+            OptName::Heading => "heading",
         }
     }
 }
@@ -481,6 +483,8 @@ impl OptName {
 pub struct ChartOpt {
     pub name: OptName,
     pub column: Option<Ident>,
+    /// The quoted text of `heading COL "Text"`.
+    pub text: Option<Str>,
     pub span: Span,
 }
 
