@@ -590,3 +590,85 @@ fn demo_measure_axes_end_on_labelled_ticks() {
     }
     assert!(checked >= 15, "only {checked} axes checked");
 }
+
+/// The data marks of a frame's chart as boxes and line segments: filled
+/// rectangles and dots, and data lines of 2 px or more, inside the chart
+/// and outside any tint (the same reading as the marks lint).
+struct DataMarks {
+    boxes: Vec<crescendo_look::display::Rect>,
+    segments: Vec<((f64, f64), (f64, f64))>,
+}
+
+fn data_marks(list: &crescendo_render::DisplayList) -> DataMarks {
+    use crescendo_look::display::{Item, Part, Rect};
+    fn walk(items: &[Item], in_chart: bool, out: &mut DataMarks) {
+        for item in items {
+            match item {
+                Item::Group {
+                    part: Part::Tint, ..
+                } => {}
+                Item::Group { part, items } => walk(items, in_chart || *part == Part::Chart, out),
+                _ if !in_chart => {}
+                Item::Rect { a, b, .. } => out.boxes.push(Rect {
+                    x0: a.0.min(b.0),
+                    y0: a.1.min(b.1),
+                    x1: a.0.max(b.0),
+                    y1: a.1.max(b.1),
+                }),
+                Item::Dot { at, radius, .. } => {
+                    let r = f64::from(*radius);
+                    out.boxes.push(Rect {
+                        x0: at.0 - r,
+                        y0: at.1 - r,
+                        x1: at.0 + r,
+                        y1: at.1 + r,
+                    })
+                }
+                Item::Polyline { points, width, .. } if *width >= 2 => {
+                    for w in points.windows(2) {
+                        out.segments.push((w[0], w[1]));
+                    }
+                }
+                _ => {}
+            }
+        }
+    }
+    let mut out = DataMarks {
+        boxes: Vec::new(),
+        segments: Vec::new(),
+    };
+    walk(&list.items, false, &mut out);
+    out
+}
+
+/// Labels keep off the data: over every demo frame, read from the display
+/// list, no text is crossed by a data line and no text covers a bar,
+/// segment or dot (a text may sit inside a mark only when it lies wholly
+/// inside it, as a segment's own name does).
+#[test]
+fn every_demo_label_keeps_off_the_data_marks() {
+    let mut found = Vec::new();
+    for (name, path) in stories() {
+        let (plan, lists) = layouts_of(&path);
+        for (f, list) in plan.frames.iter().zip(&lists) {
+            let marks = data_marks(list);
+            for t in list.texts() {
+                // 1 px of slack for the whole-pixel rounding of the writer
+                let b = t.bounds.grow(-1.0);
+                let crossed = marks.segments.iter().any(|(p, q)| b.hit_by(*p, *q));
+                let covered = marks
+                    .boxes
+                    .iter()
+                    .any(|m| b.overlaps(m, 0.0) && !t.bounds.inside(&m.grow(1.0)));
+                if crossed || covered {
+                    found.push(format!("{name} frame {}: \"{}\"", f.number, t.text));
+                }
+            }
+        }
+    }
+    assert!(
+        found.is_empty(),
+        "texts on data marks:\n{}",
+        found.join("\n")
+    );
+}

@@ -461,6 +461,7 @@ pub enum OptName {
     Group,
     Label,
     Fit,
+    Heading,
 }
 
 impl OptName {
@@ -478,6 +479,7 @@ impl OptName {
             OptName::Group => "group",
             OptName::Label => "label",
             OptName::Fit => "fit",
+            OptName::Heading => "heading",
         }
     }
 }
@@ -487,6 +489,8 @@ impl OptName {
 pub struct ChartOpt {
     pub name: OptName,
     pub column: Option<Ident>,
+    /// The quoted text of `heading COL "Text"`.
+    pub text: Option<Str>,
     pub span: Span,
 }
 

@@ -19,6 +19,8 @@ pub(crate) struct SeqState {
     pub(crate) y_title: Option<Resolved>,
     pub(crate) view_name: String,
     pub(crate) key_name: String,
+    /// A table's columns: the view's name of each and its header text.
+    pub(crate) column_titles: Vec<(String, String)>,
     /// Spotlighted table cells: (row key, column title).
     pub(crate) cells: BTreeSet<(String, String)>,
     /// The measure column's name (`split ... by` must name it).
@@ -39,6 +41,7 @@ impl SeqState {
             y_title: None,
             view_name: String::new(),
             key_name: String::new(),
+            column_titles: Vec::new(),
             cells: BTreeSet::new(),
             measure_name: String::new(),
             anchors: FrameAnchors::default(),

@@ -252,3 +252,41 @@ frame "A and B" {
     assert_eq!(rooms[4], None, "no room is given for `or`");
     assert!(!plan.claims[3].holds);
 }
+
+#[test]
+fn table_columns_take_header_text() {
+    let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                 frame \"a\" {\n  table sales: heading sales \"Sales in units\", heading shop \"Shop\"\n}\n";
+    let plan = plan_with("heading", story, SALES).expect("plans").plan;
+    let Chart::Table(t) = &plan.frames[0].chart else {
+        panic!("a table");
+    };
+    let titles: Vec<&str> = t.columns.iter().map(|c| c.title.as_str()).collect();
+    // the month keeps its readable name; the two others take the text given
+    assert_eq!(titles, ["Month", "Shop", "Sales in units"]);
+}
+
+#[test]
+fn table_headings_are_checked() {
+    let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                 frame \"a\" {\n  table sales: heading salez \"Sales\"\n}\n\
+                 frame \"b\" {\n  table sales: heading shop, heading month \"A\", heading month \"B\"\n}\n\
+                 frame \"c\" {\n  bars sales: category shop, value sales, heading shop \"Shop\"\n}\n";
+    let errs = errors(plan_with("heading-bad", story, SALES));
+    let msgs: Vec<&str> = errs.iter().map(|d| d.message.as_str()).collect();
+    assert!(
+        msgs.iter().any(|m| m.contains("needs its text in quotes")),
+        "{msgs:#?}"
+    );
+    assert!(msgs.iter().any(|m| m.contains("given twice")), "{msgs:#?}");
+    assert!(
+        msgs.iter().any(|m| m.contains("not an option of bars")),
+        "{msgs:#?}"
+    );
+    // the unknown column is reported at its name, line 4
+    assert!(
+        errs.iter()
+            .any(|d| d.location() == Some(("t.cresc".into(), 4, 24))),
+        "{errs:#?}"
+    );
+}

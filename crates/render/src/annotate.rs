@@ -9,6 +9,7 @@ use crate::kit::{self, faint_fill, Obstacles, Rect};
 use crate::layout::map;
 use crate::line_layout::LineLayout;
 use crate::metrics::{self, line_height, text_width};
+use crate::place::{self, Pick};
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{Annotation, LineChart, Role};
@@ -71,30 +72,15 @@ pub(crate) fn draw_under(
     Ok(())
 }
 
-/// The first candidate clear of text, else the best-scoring one clear of
-/// text, inside `bounds` (candidates are slid sideways into it first).
-fn choose(cands: &[Rect], obstacles: &Obstacles, bounds: &Rect, first_clear: bool) -> Option<Rect> {
-    let mut best: Option<(f64, Rect)> = None;
-    for (k, c) in cands.iter().enumerate() {
-        let w = c.x1 - c.x0;
-        let x0 = c.x0.max(bounds.x0).min(bounds.x1 - w);
-        let c = Rect {
-            x0,
-            x1: x0 + w,
-            ..*c
-        };
-        if !c.inside(bounds) || !obstacles.clear_of_text(&c) {
-            continue;
-        }
-        if first_clear {
-            return Some(c);
-        }
-        let s = obstacles.score(&c) + k as f64 * 0.5;
-        if best.is_none_or(|(b, _)| s < b) {
-            best = Some((s, c));
-        }
-    }
-    best.map(|(_, r)| r)
+/// The placer's pick ([`crate::place::pick`]): the first candidate free of
+/// marks and text when `first_free`, else the best-scoring one.
+fn choose(cands: &[Rect], obstacles: &Obstacles, bounds: &Rect, first_free: bool) -> Option<Rect> {
+    let how = if first_free {
+        Pick::FirstFree
+    } else {
+        Pick::Fewest
+    };
+    place::pick(cands, obstacles, bounds, how)
 }
 
 /// Draws the texts of the notes: band names, reference names, end values
@@ -359,37 +345,14 @@ fn callouts(
             .fold(0.0, f64::max);
         let h = (lines.len() - 1) as f64 * step + lh;
         let p = (xm(*x), ym(*y));
-        let mut cands = Vec::new();
-        for dist in [22.0, 44.0, 76.0, 120.0] {
-            let diag = dist * 0.7;
-            for (x0, y0) in [
-                (p.0 + diag, p.1 - diag - h),
-                (p.0 - diag - w, p.1 - diag - h),
-                (p.0 + diag, p.1 + diag),
-                (p.0 - diag - w, p.1 + diag),
-                (p.0 - w / 2.0, p.1 - dist - h),
-                (p.0 - w / 2.0, p.1 + dist),
-                (p.0 + dist, p.1 - h / 2.0),
-                (p.0 - dist - w, p.1 - h / 2.0),
-            ] {
-                cands.push(Rect {
-                    x0,
-                    y0,
-                    x1: x0 + w,
-                    y1: y0 + h,
-                });
-            }
-        }
-        let Some(r) = choose(&cands, obstacles, &area, false) else {
+        // nearest free spot around the point (clear of lines, marks and
+        // text), else the one crossing the fewest
+        let cands = place::around(p, w, h, &[22.0, 44.0, 76.0, 120.0]);
+        let Some(r) = choose(&cands, obstacles, &area, true) else {
             continue;
         };
         // Leader from near the point to the nearest edge of the text block.
-        let g = r.grow(4.0);
-        let to = (p.0.clamp(g.x0, g.x1), p.1.clamp(g.y0, g.y1));
-        let (dx, dy) = (to.0 - p.0, to.1 - p.1);
-        let len = (dx * dx + dy * dy).sqrt();
-        if len > 8.0 {
-            let from = (p.0 + dx / len * 4.0, p.1 + dy / len * 4.0);
+        if let Some((from, to)) = place::leader(p, &r) {
             canvas.line(from, to, theme.muted, 1)?;
             obstacles.segments.push((from, to));
         }

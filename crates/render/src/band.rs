@@ -5,8 +5,9 @@
 //! code whichever way the bars run.
 
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, Obstacles};
+use crate::kit::{self, Obstacles, Rect};
 use crate::metrics::{self, line_height};
+use crate::place::{self, Pick};
 use crate::theme::{Rgb, Theme};
 use crate::RenderError;
 use crescendo_frame::{Orientation, Role};
@@ -115,24 +116,87 @@ pub(crate) fn bar(
     positive: bool,
     color: Rgb,
     focus_label: Option<&str>,
+    obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
     let centre = band.centre(i);
     let across = (centre - thickness / 2.0, centre + thickness / 2.0);
     band.mark(canvas, across, (zero, end), color)?;
+    obstacles.add_mark(band.point(across.0, zero), band.point(across.1, end));
     if let Some(text) = focus_label {
         let lh = line_height(theme.label_size);
         let (x, top, align) = band.end_label(end, centre, lh, positive);
-        canvas.text(&Label {
-            text: &metrics::normalize(text),
+        let text = metrics::normalize(text);
+        let label = Label {
+            text: &text,
             x,
             top,
             size: theme.label_size,
             bold: true,
             color: theme.accent,
             align,
-        })?;
+        };
+        let dir = if positive { 1.0 } else { -1.0 };
+        end_value(canvas, theme, band, obstacles, &label, dir)?;
     }
     Ok(())
+}
+
+/// Draws the value label at the end of a mark through the label placer
+/// ([`crate::place`]): at its usual place past the end when that is free,
+/// else pushed further out along the values (`dir` is +1 where the mark
+/// grows towards larger canvas values along, -1 otherwise) with a leader
+/// back to the mark's end. Never on another text: it stays at its usual
+/// place when every spot is taken.
+fn end_value(
+    canvas: &Canvas,
+    theme: &Theme,
+    band: &Band,
+    obstacles: &mut Obstacles,
+    label: &Label<'_>,
+    dir: f64,
+) -> Result<(), RenderError> {
+    let home = kit::label_rect(label);
+    let lh = line_height(theme.label_size);
+    let shift = |k: f64| match band.orientation {
+        // vertical bars grow upwards: outward is up for positive values
+        Orientation::Vertical => (0.0, -dir * k * (lh + VALUE_GAP)),
+        Orientation::Horizontal => (dir * k * (lh + VALUE_GAP), 0.0),
+    };
+    let cands: Vec<Rect> = (0..4)
+        .map(|k| {
+            let (dx, dy) = shift(f64::from(k));
+            Rect {
+                x0: home.x0 + dx,
+                y0: home.y0 + dy,
+                x1: home.x1 + dx,
+                y1: home.y1 + dy,
+            }
+        })
+        .collect();
+    let canvas_box = Rect {
+        x0: 0.0,
+        y0: 0.0,
+        x1: f64::from(crate::canvas::WIDTH),
+        y1: f64::from(crate::canvas::HEIGHT),
+    };
+    let chosen = place::pick(&cands, obstacles, &canvas_box, Pick::FirstFree);
+    let Some(r) = chosen.filter(|r| *r != home && obstacles.clear_of_text(r)) else {
+        return kit::put(canvas, obstacles, label);
+    };
+    // the end of the mark: the edge of the usual box nearest the mark
+    let anchor = match band.orientation {
+        Orientation::Vertical if dir > 0.0 => ((home.x0 + home.x1) / 2.0, home.y1 + VALUE_GAP),
+        Orientation::Vertical => ((home.x0 + home.x1) / 2.0, home.y0 - VALUE_GAP),
+        Orientation::Horizontal if dir > 0.0 => (home.x0 - VALUE_GAP, (home.y0 + home.y1) / 2.0),
+        Orientation::Horizontal => (home.x1 + VALUE_GAP, (home.y0 + home.y1) / 2.0),
+    };
+    obstacles.place(canvas, theme.muted, Some(anchor), r)?;
+    canvas.text(&Label {
+        x: r.x0,
+        top: r.y0,
+        align: Align::Start,
+        ..*label
+    })
 }
 
 /// The parts of one category of stacked or grouped bars: each part's mark
@@ -157,6 +221,8 @@ pub(crate) fn parts(
             continue;
         };
         band.mark(canvas, across(j), (vmap(*a), vmap(*b)), *color)?;
+        let (f, t) = across(j);
+        obstacles.add_mark(band.point(f, vmap(*a)), band.point(t, vmap(*b)));
     }
     let Some((total, role)) = total else {
         return Ok(());
@@ -181,7 +247,7 @@ pub(crate) fn parts(
             color: if focus { theme.accent } else { theme.muted },
             align,
         };
-        kit::put(canvas, obstacles, &label)?;
+        end_value(canvas, theme, band, obstacles, &label, 1.0)?;
     }
     Ok(())
 }

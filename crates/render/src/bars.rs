@@ -68,7 +68,7 @@ fn vertical(
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let domain = value_domain(chart);
-    // bar charts place nothing around their labels
+    // texts and bars so far, for the value labels ([`crate::place`])
     let mut obstacles = Obstacles::default();
     let ticks = layout::visible_ticks(&chart.value);
     let tick_w = region.tick_column(max_width(
@@ -186,6 +186,7 @@ fn vertical(
             (zero, vmap(value)),
             bar,
             color,
+            &mut obstacles,
         )?;
     }
     let baseline = (theme.baseline, theme.baseline_stroke);
@@ -209,6 +210,7 @@ fn marks(
     (zero, end): (f64, f64),
     bar: &Bar,
     color: crate::theme::Rgb,
+    obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
     let positive = bar.value.is_some_and(|v| v >= 0.0);
     let label = (bar.role == Role::Focus).then_some(bar.value_label.as_str());
@@ -222,6 +224,7 @@ fn marks(
         positive,
         color,
         label,
+        obstacles,
     )
 }
 
@@ -234,7 +237,7 @@ fn horizontal(
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let domain = value_domain(chart);
-    // bar charts place nothing around their labels
+    // texts and bars so far, for the value labels ([`crate::place`])
     let mut obstacles = Obstacles::default();
 
     let mut top = region.top;
@@ -326,6 +329,7 @@ fn horizontal(
             (zero, vmap(value)),
             bar,
             color,
+            &mut obstacles,
         )?;
     }
     let baseline = (theme.baseline, theme.baseline_stroke);

@@ -1,5 +1,6 @@
 //! Figures: one or two numbers set very large, each with a caption under it,
-//! left-aligned in the chart region and side by side when there are two. A
+//! left-aligned in the chart region, centred on its height, and side by
+//! side when there are two. A
 //! focus figure is in the accent, a context figure in the headline ink; a
 //! hidden figure keeps its column empty.
 
@@ -83,8 +84,11 @@ pub(crate) fn draw(
         } else {
             0.0
         };
-    // A little above the middle of the region.
-    let top = region.top + ((region.bottom - region.top - block) * 0.35).max(0.0);
+    // On the grid: the block's middle on the middle of the chart region
+    // (the plot rectangle of the chart frames), so the figure sits where
+    // the data sits on the frames around it and no band of the frame is
+    // left empty.
+    let top = region.top + ((region.bottom - region.top - block) / 2.0).max(0.0);
     for (i, (figure, caption)) in chart.figures.iter().zip(&captions).enumerate() {
         let color = match figure.role {
             Role::Hidden => continue,

@@ -492,6 +492,14 @@ fn figures() {
         "captions at {caption} px"
     );
     assert_eq!(big.y0, other.y0, "side by side");
+    // composed on the grid: the block's middle near the canvas's middle
+    // band, nothing like an empty bottom 40%
+    let cap_last = find(&boxes, "of all visits came after 6 pm").y1;
+    let middle = (big.y0 + cap_last) / 2.0;
+    assert!(
+        (300.0..=420.0).contains(&middle),
+        "block middle at {middle}"
+    );
     assert!(big.x1 < other.x0);
     let cap = find(&boxes, "of all visits came after 6 pm");
     assert!(

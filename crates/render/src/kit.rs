@@ -1,5 +1,5 @@
 //! Small shared pieces for the chart forms: colour steps derived from the
-//! theme, text boxes and obstacle scoring for label placement, and
+//! theme, text boxes (label placement itself is [`crate::place`]), and
 //! horizontal de-overlapping of labels of different widths.
 
 use crate::canvas::{Align, Canvas, Label};
@@ -47,42 +47,7 @@ pub(crate) fn label_rect(l: &Label<'_>) -> Rect {
     text_rect(l.text, l.x, l.top, l.size, l.bold, l.align)
 }
 
-/// What a new label should avoid: texts already placed and line segments.
-#[derive(Clone, Debug, Default)]
-pub(crate) struct Obstacles {
-    /// Boxes of texts already drawn (or reserved).
-    pub boxes: Vec<Rect>,
-    /// Line segments of the marks.
-    pub segments: Vec<((f64, f64), (f64, f64))>,
-}
-
-impl Obstacles {
-    /// True if `r` (grown by a 2 px safety margin) touches no text box.
-    pub fn clear_of_text(&self, r: &Rect) -> bool {
-        let g = r.grow(2.0);
-        self.boxes.iter().all(|b| g.overlap(b) == 0.0)
-    }
-
-    /// Penalty of putting a label at `r`: overlapping text weighs far more
-    /// than crossing a line.
-    pub fn score(&self, r: &Rect) -> f64 {
-        let g = r.grow(2.0);
-        let text: f64 = self.boxes.iter().map(|b| g.overlap(b)).sum();
-        let lines = self
-            .segments
-            .iter()
-            .filter(|(a, b)| r.hit_by(*a, *b))
-            .count();
-        text * 1000.0 + lines as f64 * 50.0
-    }
-
-    /// Adds the segments of a polyline.
-    pub fn add_polyline(&mut self, pts: &[(f64, f64)]) {
-        for w in pts.windows(2) {
-            self.segments.push((w[0], w[1]));
-        }
-    }
-}
+pub(crate) use crate::place::Obstacles;
 
 /// Draws `label` and records its box.
 pub(crate) fn put(

@@ -31,6 +31,7 @@ pub mod lttb;
 mod panels;
 mod parts;
 mod pie;
+mod place;
 pub mod plugin;
 mod scatter;
 mod scatter_grid;

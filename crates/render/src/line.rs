@@ -11,7 +11,7 @@ use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, Obstacles};
 use crate::layout::{self, map, Region};
-use crate::line_layout::layout;
+use crate::line_layout::{end_rows, layout, needs_leader};
 use crate::metrics::line_height;
 use crate::theme::Theme;
 use crate::RenderError;
@@ -107,24 +107,10 @@ pub(crate) fn draw(
     }
 
     // Direct labels, de-overlapped over every series (hidden ones too) so a
-    // label never moves when another series appears.
-    let mut ends: Vec<(f64, usize)> = chart
-        .series
-        .iter()
-        .enumerate()
-        .filter_map(|(i, s)| {
-            s.points
-                .iter()
-                .rev()
-                .find_map(|p| p.y.filter(|y| y.is_finite()))
-                .map(|y| (ymap(y), i))
-        })
-        .collect();
-    ends.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
-    let wanted: Vec<f64> = ends.iter().map(|e| e.0).collect();
-    let placed = layout::spread(&wanted, theme.label_step(), l.plot_top, l.plot_bottom);
-    for ((_, i), centre) in ends.iter().zip(placed) {
-        let series = &chart.series[*i];
+    // label never moves when another series appears; a label moved away
+    // from its line's end gets a leader across the gap.
+    for (wanted, centre, i) in end_rows(chart, theme, l.plot_top, l.plot_bottom) {
+        let series = &chart.series[i];
         let (color, bold) = match series.role {
             Role::Hidden => continue,
             Role::Focus => (theme.accent, true),
@@ -139,6 +125,12 @@ pub(crate) fn draw(
             true,
         )
         .join(" ");
+        if needs_leader(wanted, centre, theme) {
+            let from = (l.plot_right + 4.0, wanted);
+            let to = (l.label_column_left - 4.0, centre);
+            canvas.line(from, to, theme.muted, 1)?;
+            obstacles.segments.push((from, to));
+        }
         kit::put(
             canvas,
             &mut obstacles,

@@ -10,6 +10,9 @@ use crescendo_frame::LineChart;
 const MAX_LABEL_COLUMN: f64 = 280.0;
 /// Space between tick labels or direct labels and the plot.
 const PAD: f64 = 12.0;
+/// Space between the plot and the direct labels when some label moved away
+/// from its line's end and needs a leader ([`crate::place`]).
+const LEADER_PAD: f64 = 28.0;
 
 /// Plot geometry of a line chart. Depends only on the axes and the names of
 /// all series (hidden ones included), never on roles.
@@ -26,6 +29,44 @@ pub(crate) struct LineLayout {
     pub plot_top: f64,
     pub plot_bottom: f64,
     pub x_tick_top: f64,
+}
+
+/// The direct labels at the right: for each series with a value, its line
+/// end's y (`wanted`), the centre its label gets after de-overlapping
+/// (`placed`) and its index, ordered top to bottom. Every series counts,
+/// hidden ones too, so a label never moves when another series appears.
+pub(crate) fn end_rows(
+    chart: &LineChart,
+    theme: &Theme,
+    plot_top: f64,
+    plot_bottom: f64,
+) -> Vec<(f64, f64, usize)> {
+    let ymap = |y: f64| layout::map(y, chart.y.domain, plot_bottom, plot_top);
+    let mut ends: Vec<(f64, usize)> = chart
+        .series
+        .iter()
+        .enumerate()
+        .filter_map(|(i, s)| {
+            s.points
+                .iter()
+                .rev()
+                .find_map(|p| p.y.filter(|y| y.is_finite()))
+                .map(|y| (ymap(y), i))
+        })
+        .collect();
+    ends.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+    let wanted: Vec<f64> = ends.iter().map(|e| e.0).collect();
+    let placed = layout::spread(&wanted, theme.label_step(), plot_top, plot_bottom);
+    ends.iter()
+        .zip(placed)
+        .map(|((w, i), p)| (*w, p, *i))
+        .collect()
+}
+
+/// True when a direct label sits so far from its line's end that it needs
+/// a leader.
+pub(crate) fn needs_leader(wanted: f64, placed: f64, theme: &Theme) -> bool {
+    (wanted - placed).abs() > line_height(theme.label_size) / 2.0
 }
 
 pub(crate) fn layout(chart: &LineChart, region: Region, theme: &Theme) -> LineLayout {
@@ -62,8 +103,12 @@ pub(crate) fn layout(chart: &LineChart, region: Region, theme: &Theme) -> LineLa
         true,
     )
     .min(MAX_LABEL_COLUMN);
+    let leaders = end_rows(chart, theme, plot_top, plot_bottom)
+        .iter()
+        .any(|(w, p, _)| needs_leader(*w, *p, theme));
+    let pad = if leaders { LEADER_PAD } else { PAD };
     let plot_right = if label_w > 0.0 {
-        region.right - label_w - PAD
+        region.right - label_w - pad
     } else {
         region.right
     };
@@ -72,7 +117,7 @@ pub(crate) fn layout(chart: &LineChart, region: Region, theme: &Theme) -> LineLa
         x_title_top,
         tick_column_left,
         tick_column_right,
-        label_column_left: plot_right + PAD,
+        label_column_left: plot_right + pad,
         label_column_width: label_w,
         plot_left,
         plot_right,

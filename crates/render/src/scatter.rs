@@ -53,18 +53,7 @@ pub(crate) fn candidates(p: (f64, f64), r: f64, w: f64, h: f64) -> Vec<Rect> {
 /// The candidate with the lowest penalty that lies inside `bounds` and is
 /// clear of text, if any.
 pub(crate) fn best_spot(cands: &[Rect], obstacles: &Obstacles, bounds: &Rect) -> Option<Rect> {
-    let mut best: Option<(f64, Rect)> = None;
-    for (k, c) in cands.iter().enumerate() {
-        if !c.inside(bounds) || !obstacles.clear_of_text(c) {
-            continue;
-        }
-        // Earlier candidates are nearer and preferred on ties.
-        let s = obstacles.score(c) + k as f64 * 0.5;
-        if best.is_none_or(|(b, _)| s < b) {
-            best = Some((s, *c));
-        }
-    }
-    best.map(|(_, r)| r)
+    crate::place::pick(cands, obstacles, bounds, crate::place::Pick::Fewest)
 }
 
 pub(crate) fn draw(

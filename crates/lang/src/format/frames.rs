@@ -90,6 +90,10 @@ impl Printer<'_> {
                         self.s(" ");
                         self.raw(&col.span);
                     }
+                    if let Some(text) = &o.text {
+                        self.s(" ");
+                        self.raw(&text.span);
+                    }
                 }
             }
             FrameStmt::Draw(d) => {

@@ -196,7 +196,7 @@ fn describe(rule: Rule, context: Context) -> Option<String> {
             Rule::close_paren => "`)`",
             Rule::targets => "`all`, `none`, `focus` or quoted names",
             Rule::chart_opt | Rule::opt_name => {
-                "a chart option (x, y, series, category, value, ordered)"
+                "a chart option (x, y, series, category, value, ordered, heading)"
             }
             _ => return None,
         }
@@ -223,6 +223,7 @@ fn keywords_of(rule: Rule) -> Vec<String> {
             "group",
             "label",
             "fit",
+            "heading",
         ],
         Rule::targets => &["all", "none", "focus"],
         _ => {

@@ -123,11 +123,20 @@ impl Conv<'_> {
                 Some("group") => OptName::Group,
                 Some("label") => OptName::Label,
                 Some("fit") => OptName::Fit,
+                Some("heading") => OptName::Heading,
                 _ => return Err(internal(&ospan)),
             };
+            let (mut column, mut text) = (None, None);
+            for p in oi {
+                match p.as_rule() {
+                    Rule::ident => column = Some(self.ident(p)),
+                    _ => text = Some(self.string(p)),
+                }
+            }
             opts.push(ChartOpt {
                 name,
-                column: oi.next().map(|c| self.ident(c)),
+                column,
+                text,
                 span: ospan,
             });
         }

@@ -8,6 +8,7 @@ mod bars_off_zero;
 mod bars_unsorted;
 mod colour_key_text;
 mod conclusion_missing;
+mod figure_echoes_headline;
 mod focus_confusable;
 mod focus_outshone;
 mod frame_empty;
@@ -70,6 +71,7 @@ pub static RULES: &[&Rule] = &[
     &stack_spotlight_floats::RULE,
     &panels_own_scales::RULE,
     &frame_empty::RULE,
+    &figure_echoes_headline::RULE,
     &small_counts::RULE,
     &source_missing::RULE,
     &conclusion_missing::RULE,

@@ -120,6 +120,7 @@ mod tests {
             OptName::Group,
             OptName::Label,
             OptName::Fit,
+            OptName::Heading,
         ] {
             assert!(seen.contains(&o), "no form takes {o:?}");
         }

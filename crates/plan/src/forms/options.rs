@@ -13,11 +13,18 @@ use crate::context::{Ctx, Outcome};
 pub(crate) struct Opt {
     pub(crate) name: OptName,
     pub(crate) column: bool,
+    /// Names a column and gives it a quoted text (`heading gdp "Output"`);
+    /// may be given once per column.
+    pub(crate) text: bool,
 }
 
 /// An option that names a column.
 pub(crate) const fn column(name: OptName) -> Opt {
-    Opt { name, column: true }
+    Opt {
+        name,
+        column: true,
+        text: false,
+    }
 }
 
 /// An option that stands alone.
@@ -25,6 +32,16 @@ pub(crate) const fn flag(name: OptName) -> Opt {
     Opt {
         name,
         column: false,
+        text: false,
+    }
+}
+
+/// An option that gives a column a quoted text, once per column.
+pub(crate) const fn column_text(name: OptName) -> Opt {
+    Opt {
+        name,
+        column: true,
+        text: true,
     }
 }
 
@@ -82,7 +99,15 @@ pub(crate) fn choose<'c>(
             cx.report(d);
             continue;
         };
-        if chosen.has(o.name) {
+        let again = if rule.text {
+            let col = o.column.as_ref().map(|c| c.name.as_str());
+            opts.iter()
+                .take_while(|p| !std::ptr::eq(*p, o))
+                .any(|p| p.name == o.name && p.column.as_ref().map(|c| c.name.as_str()) == col)
+        } else {
+            chosen.has(o.name)
+        };
+        if again {
             cx.error(
                 "chart-option",
                 format!("`{}` is given twice", o.name.keyword()),
@@ -108,7 +133,28 @@ pub(crate) fn choose<'c>(
                     "remove this",
                 );
             }
-            _ => chosen.given.push((o.name, o.column.as_ref())),
+            _ => match (&o.text, rule.text) {
+                (None, true) => {
+                    let d = cx
+                        .at(
+                            "chart-option",
+                            format!("`{}` needs its text in quotes", o.name.keyword()),
+                            o.span.clone(),
+                            "which text?",
+                        )
+                        .help(format!("write `{} COLUMN \"Text\"`", o.name.keyword()));
+                    cx.report(d);
+                }
+                (Some(t), false) => {
+                    cx.error(
+                        "chart-option",
+                        format!("`{}` takes no text", o.name.keyword()),
+                        t.span.clone(),
+                        "remove this",
+                    );
+                }
+                _ => chosen.given.push((o.name, o.column.as_ref())),
+            },
         }
     }
     cx.errors_since(cp)?;

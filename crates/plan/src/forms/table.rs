@@ -3,11 +3,11 @@
 use std::collections::BTreeSet;
 
 use crescendo_data::{ColType, Value};
-use crescendo_lang::ast::ChartStmt;
+use crescendo_lang::ast::{ChartStmt, OptName};
 
 use crate::context::{Ctx, Outcome};
 use crate::forms::form::FormPlanner;
-use crate::forms::options::Opt;
+use crate::forms::options::{column_text, Opt};
 use crate::forms::spec::{self, ChartSpec, SpecInput};
 use crate::labels::{display, humanize, number};
 use crate::model::*;
@@ -15,11 +15,29 @@ use crate::sequence::SeqState;
 
 pub(crate) struct Table;
 
-/// A table takes no options.
-pub(crate) const OPTIONS: &[Opt] = &[];
+/// A table takes header texts for its columns: `heading gdp "Output"`.
+pub(crate) const OPTIONS: &[Opt] = &[column_text(OptName::Heading)];
+
+/// The header text given for column `name` (`heading COL "Text"`), if any.
+fn heading<'c>(c: &'c ChartStmt, name: &str) -> Option<&'c str> {
+    c.opts
+        .iter()
+        .filter(|o| o.name == OptName::Heading)
+        .find(|o| o.column.as_ref().is_some_and(|i| i.name == name))
+        .and_then(|o| o.text.as_ref())
+        .map(|t| t.value.as_str())
+}
 
 impl FormPlanner for Table {
-    fn spec(&self, _: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
+    fn spec(&self, cx: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
+        // every heading names a column of the view (all errors at once)
+        let cp = cx.checkpoint();
+        for o in input.c.opts.iter().filter(|o| o.name == OptName::Heading) {
+            if let Some(id) = &o.column {
+                let _ = input.lookup(cx, id);
+            }
+        }
+        cx.errors_since(cp)?;
         Ok(input.spec(0, 0))
     }
 
@@ -29,9 +47,9 @@ impl FormPlanner for Table {
         let columns: Vec<TableColumn> = t
             .columns
             .iter()
-            .map(|c| TableColumn {
-                title: humanize(&c.name),
-                numeric: c.ty == ColType::Number,
+            .map(|col| TableColumn {
+                title: heading(c, &col.name).map_or_else(|| humanize(&col.name), str::to_string),
+                numeric: col.ty == ColType::Number,
             })
             .collect();
         // Per column, one number of decimals (the figures line up), enough
@@ -78,11 +96,18 @@ impl FormPlanner for Table {
                 .collect()
         };
         let key_name = first.map_or_else(String::new, |c| c.name.clone());
+        let column_titles = t
+            .columns
+            .iter()
+            .zip(&columns)
+            .map(|(c, col)| (c.name.clone(), col.title.clone()))
+            .collect();
         Ok(SeqState {
             names,
             measure_name: t.columns[spec.y].name.clone(),
             view_name: spec.table_name.clone(),
             key_name,
+            column_titles,
             anchors: spec::anchors(c, spec),
             ..SeqState::new(Chart::Table(TableChart { columns, rows }))
         })

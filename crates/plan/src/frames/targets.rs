@@ -94,7 +94,12 @@ fn table_cells(
             }
             return Err(cx.report(d));
         }
-        let title = humanize(&col.name);
+        // the header text the table shows for that column
+        let title = st
+            .column_titles
+            .iter()
+            .find(|(name, _)| *name == col.name)
+            .map_or_else(|| humanize(&col.name), |(_, t)| t.clone());
         if !t.columns.iter().any(|c| c.title == title) {
             return Err(cx.error(
                 "unknown-column",

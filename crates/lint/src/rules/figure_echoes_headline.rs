@@ -1,0 +1,90 @@
+//! `figure-echoes-headline`: a big figure that only repeats a number the
+//! headline already states.
+
+use crescendo_diag::Severity;
+use crescendo_frame::Chart;
+
+use super::util::frames;
+use crate::{Doc, Finding, Input, Rule};
+
+pub static RULE: Rule = Rule {
+    name: "figure-echoes-headline",
+    severity: Severity::Warning,
+    summary: "a big figure repeats the number the headline already states",
+    doc: Doc {
+        before: concat!(
+            "frame \"E-books were {share as percent} of loans\" {\n",
+            "  figure \"{share as percent}\" \"of loans were e-books\"\n",
+            "}",
+        ),
+        after: concat!(
+            "frame \"E-books have become a fixture of lending\" {\n",
+            "  figure \"{share as percent}\" \"of loans were e-books\"\n",
+            "}",
+        ),
+        why: "A big figure is the frame's one message. When the headline prints the same number,\n\
+              the audience reads it twice and the frame says nothing more: let the headline say\n\
+              what the number means and the figure show it (common practice of one message per\n\
+              slide).",
+    },
+    check,
+};
+
+/// Whether `headline` holds `figure` as a whole number (not inside a
+/// longer one: "12%" does not echo "2%").
+fn echoes(headline: &str, figure: &str) -> bool {
+    let figure = figure.trim();
+    if figure.is_empty() || !figure.chars().any(|c| c.is_ascii_digit()) {
+        return false;
+    }
+    headline.match_indices(figure).any(|(at, _)| {
+        let before = headline[..at].chars().next_back();
+        let mut rest = headline[at + figure.len()..].chars();
+        let (next, then) = (rest.next(), rest.next());
+        let digit = |c: Option<char>| c.is_some_and(|c| c.is_ascii_digit());
+        let mark = |c: Option<char>| c.is_some_and(|c| c == '.' || c == ',');
+        let joined_before = digit(before) || mark(before);
+        let joined_after = digit(next) || (mark(next) && digit(then));
+        !joined_before && !joined_after
+    })
+}
+
+fn check(input: &Input, out: &mut Vec<Finding>) {
+    for (i, f, a) in frames(input) {
+        let Chart::Figures(figures) = &f.chart else {
+            continue;
+        };
+        for fig in &figures.figures {
+            if echoes(&f.headline, &fig.text) {
+                out.push(Finding {
+                    frame: Some(i),
+                    span: a.headline.clone(),
+                    label: format!("the headline already prints {}", fig.text),
+                    message: format!("the big figure \"{}\" repeats the headline", fig.text),
+                    fix: "let the headline say what the number means, and the figure show it"
+                        .into(),
+                });
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::echoes;
+
+    #[test]
+    fn a_whole_number_in_the_headline_echoes() {
+        for (headline, figure, want) in [
+            ("E-books were 31% of loans", "31%", true),
+            ("E-books were 31%", "31%", true),
+            ("E-books were 131% of loans", "31%", false),
+            ("Up 2.31% on last year", "31%", false),
+            ("E-books have become a fixture", "31%", false),
+            ("Loans grew 3.4×, a record", "3.4×", true),
+            ("Chapter one", "one", false),
+        ] {
+            assert_eq!(echoes(headline, figure), want, "{headline}");
+        }
+    }
+}
