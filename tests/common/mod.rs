@@ -17,10 +17,36 @@ pub fn root() -> PathBuf {
 
 /// A fresh, empty temporary folder for one test.
 pub fn scratch(name: &str) -> PathBuf {
+    sweep_dead_scratch();
     let d = std::env::temp_dir().join(format!("crescendo-e2e-{}-{name}", std::process::id()));
     let _ = fs::remove_dir_all(&d);
     fs::create_dir_all(&d).expect("create scratch folder");
     d
+}
+
+/// Scratch folders of test processes that have ended are removed (once
+/// per process), so test runs do not fill the temporary folder: a folder
+/// is named `crescendo-e2e-PID-…`, and a PID with no `/proc/PID` is gone.
+fn sweep_dead_scratch() {
+    static ONCE: std::sync::Once = std::sync::Once::new();
+    ONCE.call_once(|| {
+        let Ok(entries) = fs::read_dir(std::env::temp_dir()) else {
+            return;
+        };
+        for e in entries.flatten() {
+            let name = e.file_name().to_string_lossy().to_string();
+            let Some(pid) = name
+                .strip_prefix("crescendo-e2e-")
+                .and_then(|rest| rest.split('-').next())
+                .and_then(|p| p.parse::<u32>().ok())
+            else {
+                continue;
+            };
+            if pid != std::process::id() && !Path::new(&format!("/proc/{pid}")).exists() {
+                let _ = fs::remove_dir_all(e.path());
+            }
+        }
+    });
 }
 
 /// Run the `crescendo` binary in `dir`.
