@@ -248,17 +248,7 @@ pub const EVENING: Theme = Theme {
     baseline: Rgb(0x4A, 0x4D, 0x52),
     grid: Rgb(0x2B, 0x2F, 0x35),
     accent: Rgb(0xF0, 0xA0, 0x4B),
-    context_stroke: 2,
-    focus_stroke: 4,
-    baseline_stroke: 1,
-    font_family: Cow::Borrowed(FONT_FAMILY),
-    headline_size: HEADLINE_SIZE,
-    takeaway_size: TAKEAWAY_SIZE,
-    label_size: LABEL_SIZE,
-    source_size: SOURCE_SIZE,
-    margin_x: MARGIN_X,
-    margin_top: MARGIN_TOP,
-    margin_bottom: MARGIN_BOTTOM,
+    ..CLEAR
 };
 
 /// The `print` theme, for paper: black text, greys dark enough to survive
@@ -281,15 +271,7 @@ pub const PRINT: Theme = Theme {
     accent: Rgb(0x1B, 0x4F, 0x8A),
     context_stroke: 3,
     focus_stroke: 5,
-    baseline_stroke: 1,
-    font_family: Cow::Borrowed(FONT_FAMILY),
-    headline_size: HEADLINE_SIZE,
-    takeaway_size: TAKEAWAY_SIZE,
-    label_size: LABEL_SIZE,
-    source_size: SOURCE_SIZE,
-    margin_x: MARGIN_X,
-    margin_top: MARGIN_TOP,
-    margin_bottom: MARGIN_BOTTOM,
+    ..CLEAR
 };
 
 /// Every built-in theme, in the order of [`THEMES`].
