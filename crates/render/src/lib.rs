@@ -17,6 +17,7 @@
 mod annotate;
 mod axis;
 mod band;
+mod band_axes;
 mod bars;
 pub mod canvas;
 mod dots;

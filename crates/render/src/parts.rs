@@ -8,8 +8,8 @@
 //! may carry their totals at their ends. Hidden parts and categories leave
 //! their space empty; nothing else moves.
 
-use crate::axis;
 use crate::band::{self, Band, VALUE_GAP};
+use crate::band_axes::{self, PAD};
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, context_greys, spread_widths, Obstacles};
 use crate::layout::{self, fit_label_at, map, max_width, Region};
@@ -18,8 +18,6 @@ use crate::theme::{Rgb, Theme};
 use crate::RenderError;
 use crescendo_frame::{Orientation, PartsChart, PartsMode, Role};
 
-/// Space between a label column and the plot.
-const PAD: f64 = 12.0;
 /// Share of a category band filled by its bar (stacked) or group.
 const BAR_SHARE: f64 = 0.62;
 const GROUP_SHARE: f64 = 0.8;
@@ -162,6 +160,13 @@ fn roomiest(chart: &PartsChart) -> usize {
     best.0
 }
 
+/// Where the part names go: beside vertical bars (`rows` is the span they
+/// may take, right of `plot_right`), or above and beside horizontal ones.
+enum Naming {
+    Beside { rows: (f64, f64), plot_right: f64 },
+    Above { row_top: f64, plot: (f64, f64, f64) },
+}
+
 pub(crate) fn draw(
     canvas: &Canvas,
     theme: &Theme,
@@ -169,11 +174,41 @@ pub(crate) fn draw(
     region: Region,
 ) -> Result<(), RenderError> {
     layout::check_axis(&chart.value, "value")?;
-    match chart.orientation {
-        Orientation::Vertical => vertical(canvas, theme, chart, region),
-        Orientation::Horizontal => horizontal(canvas, theme, chart, region),
+    let mut obstacles = Obstacles::default();
+    let (s, cats, across, naming) = match chart.orientation {
+        Orientation::Vertical => vertical(canvas, theme, chart, region, &mut obstacles)?,
+        Orientation::Horizontal => horizontal(canvas, theme, chart, region, &mut obstacles)?,
+    };
+    categories(canvas, theme, chart, &s, cats, &mut obstacles)?;
+    let zero = s.vmap(0.0);
+    let baseline = (theme.baseline, theme.baseline_stroke);
+    s.bands.rule(canvas, across, zero, baseline.0, baseline.1)?;
+    match naming {
+        Naming::Beside { rows, plot_right } => name_parts_vertical(
+            canvas,
+            theme,
+            chart,
+            &s,
+            rows,
+            (plot_right, region),
+            &mut obstacles,
+        ),
+        Naming::Above { row_top, plot } => name_parts_horizontal(
+            canvas,
+            theme,
+            chart,
+            &s,
+            row_top,
+            plot,
+            region,
+            &mut obstacles,
+        ),
     }
 }
+
+/// What a layout hands to the drawing: the slots, how category names are
+/// set, the baseline's extent across the bands and where part names go.
+type Frame = (Slots, Categories, (f64, f64), Naming);
 
 /// Where the parts go: the category bands, the value mapping, and each
 /// part's place across its band.
@@ -305,81 +340,42 @@ fn names(theme: &Theme, chart: &PartsChart) -> Vec<String> {
         .collect()
 }
 
+/// Vertical bars: value ticks at the left, names under the bars, part
+/// names beside the last bar (stacked) or above the roomiest group.
 fn vertical(
     canvas: &Canvas,
     theme: &Theme,
     chart: &PartsChart,
     region: Region,
-) -> Result<(), RenderError> {
+    obstacles: &mut Obstacles,
+) -> Result<Frame, RenderError> {
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let dom = domain(chart);
     let stacked = chart.mode == PartsMode::Stacked;
-    let mut obstacles = Obstacles::default();
-    let names: Vec<String> = chart
-        .parts
-        .iter()
-        .map(|p| part_text(theme, &p.name))
-        .collect();
-    let ticks = layout::visible_ticks(&chart.value);
-    let tick_w = region.tick_column(max_width(
-        ticks.iter().map(|(_, l)| l.as_str()),
-        theme.label_size,
-        false,
-    ));
-    let plot_left = if tick_w > 0.0 {
-        region.left + tick_w + PAD
-    } else {
-        region.left
-    };
     let label_col = if stacked {
-        max_width(names.iter().map(String::as_str), theme.label_size, true)
+        max_width(
+            names(theme, chart).iter().map(String::as_str),
+            theme.label_size,
+            true,
+        )
     } else {
         0.0
     };
-    let plot_right = if label_col > 0.0 {
-        region.right - label_col - PAD - 8.0
-    } else {
-        region.right
-    };
-    let n = chart.categories.len().max(1);
-    let band = (plot_right - plot_left) / n as f64;
-    let cat_w = band - 8.0;
-    let two_lines = chart
-        .categories
-        .iter()
-        .any(|c| text_width(&metrics::normalize(&c.label), theme.label_size, false) > cat_w);
-    let cat_lines = if two_lines { 2 } else { 1 };
-
-    let mut top = region.top;
-    if let Some(title) = chart.value.title.as_deref() {
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            region.right - region.left,
-            (region.left, top),
-            Align::Start,
-        )?;
-        top += lh + 8.0;
-    }
-    let mut bottom = region.bottom;
-    if let Some(title) = chart.category_title.as_deref() {
-        bottom -= lh;
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            plot_right - plot_left,
-            ((plot_left + plot_right) / 2.0, bottom),
-            Align::Middle,
-        )?;
-        bottom -= 6.0;
-    }
-    let cat_top = bottom - (cat_lines - 1) as f64 * step - lh;
-    let mut value_bottom = cat_top - 10.0;
+    let labels: Vec<&str> = chart.categories.iter().map(|c| c.label.as_str()).collect();
+    let cat = chart.category_title.as_deref();
+    let u = band_axes::upright(
+        canvas,
+        obstacles,
+        theme,
+        region,
+        &chart.value,
+        cat,
+        &labels,
+        label_col,
+    )?;
+    let top = u.top;
+    let mut value_bottom = u.names_top - 10.0;
     if dom[0] < 0.0 && stacked {
         value_bottom -= lh + VALUE_GAP;
     }
@@ -396,64 +392,28 @@ fn vertical(
         top - (y - 6.0 - rows)
     });
     let vmap = |v: f64| map(v, dom, value_bottom, value_top);
-
-    let (size, right) = (theme.label_size, region.left + tick_w);
-    axis::column(
-        canvas,
-        &mut obstacles,
-        theme,
-        size,
-        &chart.value,
-        vmap,
-        right,
-    )?;
-
-    axis::gridlines(
-        canvas,
-        theme,
-        &chart.value,
-        vmap,
-        plot_left,
-        plot_right,
-        axis::Across::Rows,
-        Some(vmap(0.0)),
-    )?;
+    u.value_axis(canvas, obstacles, theme, &chart.value, vmap)?;
     let bands = Band {
         orientation: Orientation::Vertical,
-        start: plot_left,
-        size: band,
+        start: u.plot.0,
+        size: u.band,
     };
     let bar_w = if stacked {
-        (band * BAR_SHARE).min(140.0)
+        (u.band * BAR_SHARE).min(140.0)
     } else {
-        (band * GROUP_SHARE).min(60.0 * k.max(1) as f64)
+        (u.band * GROUP_SHARE).min(60.0 * k.max(1) as f64)
     };
     let s = Slots::new(bands, dom, (value_bottom, value_top), bar_w, k, stacked);
     let cats = Categories {
-        width: cat_w,
-        lines: cat_lines,
-        start: cat_top,
+        width: u.name_width,
+        lines: u.name_lines,
+        start: u.names_top,
     };
-    categories(canvas, theme, chart, &s, cats, &mut obstacles)?;
-    let zero = s.vmap(0.0);
-    let baseline = (theme.baseline, theme.baseline_stroke);
-    bands.rule(
-        canvas,
-        (plot_left, plot_right),
-        zero,
-        baseline.0,
-        baseline.1,
-    )?;
-    let rows = (value_top.min(top + lh / 2.0), value_bottom);
-    name_parts_vertical(
-        canvas,
-        theme,
-        chart,
-        &s,
-        rows,
-        (plot_right, region),
-        &mut obstacles,
-    )
+    let naming = Naming::Beside {
+        rows: (value_top.min(top + lh / 2.0), value_bottom),
+        plot_right: u.plot.1,
+    };
+    Ok((s, cats, u.plot, naming))
 }
 
 /// Names of the parts of vertical bars: stacked ones beside the last
@@ -541,44 +501,24 @@ fn name_parts_vertical(
     }
     Ok(())
 }
+/// Horizontal bars: names in a column at the left, value ticks under,
+/// part names in a row above (stacked) or right of the roomiest group.
 fn horizontal(
     canvas: &Canvas,
     theme: &Theme,
     chart: &PartsChart,
     region: Region,
-) -> Result<(), RenderError> {
+    obstacles: &mut Obstacles,
+) -> Result<Frame, RenderError> {
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let dom = domain(chart);
     let stacked = chart.mode == PartsMode::Stacked;
-    let mut obstacles = Obstacles::default();
-    let names: Vec<String> = chart
-        .parts
-        .iter()
-        .map(|p| part_text(theme, &p.name))
-        .collect();
     let k = chart.parts.len();
-
-    let mut top = region.top;
-    if let Some(title) = chart.category_title.as_deref() {
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            region.right - region.left,
-            (region.left, top),
-            Align::Start,
-        )?;
-        top += lh + 8.0;
-    }
-    let names_row_top = top;
-    if stacked {
-        top += lh + 12.0;
-    }
-    let plot_top = top;
-    let titled = chart.value.title.is_some();
-    let (value_title_top, tick_top, plot_bottom) = axis::bottom_rows(region.bottom, lh, titled);
+    let titles = (chart.category_title.as_deref(), chart.value.title.is_some());
+    let names_row = if stacked { lh + 12.0 } else { 0.0 };
+    let l = band_axes::lying(canvas, obstacles, theme, region, titles, names_row)?;
+    let (plot_top, plot_bottom) = (l.plot_top, l.plot_bottom);
 
     let n = chart.categories.len().max(1);
     let band = (plot_bottom - plot_top) / n as f64;
@@ -590,8 +530,7 @@ fn horizontal(
     );
     let (col_w, cat_lines) = band::name_column(widest, cap, band, step);
     let col_right = region.left + col_w;
-    let plot_left = col_right + PAD;
-    let plot_right = region.right;
+    let plot = (col_right + PAD, region.right);
 
     let total_w = if stacked {
         max_width(
@@ -603,30 +542,17 @@ fn horizontal(
         0.0
     };
     let (left_pad, right_pad) = band::end_room(dom, total_w, total_w > 0.0);
-    let value_left = plot_left + left_pad;
+    let value_left = plot.0 + left_pad;
     // Grouped names go right of the roomiest group: pull the end of the
     // scale in until they fit.
+    let names = names(theme, chart);
     let names_w = max_width(names.iter().map(String::as_str), theme.label_size, true);
     let over = |x: f64| x + 8.0 + names_w - region.right;
-    let value_right = fit_scale(chart, dom, value_left, plot_right - right_pad, -1.0, over);
+    let value_right = fit_scale(chart, dom, value_left, plot.1 - right_pad, -1.0, over);
+    let values = (value_left, value_right);
     let vmap = |v: f64| map(v, dom, value_left, value_right);
-
-    let row = axis::Row {
-        top: tick_top,
-        lo: region.left,
-        hi: plot_right,
-        gap: 12.0,
-        fit: axis::Fit::AsWritten,
-        keep_left: false,
-    };
-    let under = axis::Under {
-        title: value_title_top
-            .map(|t| (t, plot_right - plot_left, (value_left + value_right) / 2.0)),
-        row,
-        across: (plot_top, plot_bottom),
-        skip_zero: true,
-    };
-    axis::under(canvas, &mut obstacles, theme, &chart.value, vmap, under)?;
+    let value = (&chart.value, vmap);
+    l.value_axis(canvas, obstacles, theme, value, region.left, plot, values)?;
     let bands = Band {
         orientation: Orientation::Horizontal,
         start: plot_top,
@@ -637,33 +563,17 @@ fn horizontal(
     } else {
         (band * GROUP_SHARE).min(28.0 * k.max(1) as f64)
     };
-    let s = Slots::new(bands, dom, (value_left, value_right), bar_h, k, stacked);
+    let s = Slots::new(bands, dom, values, bar_h, k, stacked);
     let cats = Categories {
         width: col_w,
         lines: cat_lines,
         start: col_right,
     };
-    categories(canvas, theme, chart, &s, cats, &mut obstacles)?;
-    let zero = s.vmap(0.0);
-    let baseline = (theme.baseline, theme.baseline_stroke);
-    bands.rule(
-        canvas,
-        (plot_top, plot_bottom),
-        zero,
-        baseline.0,
-        baseline.1,
-    )?;
-    let across = (plot_left, plot_top, plot_bottom);
-    name_parts_horizontal(
-        canvas,
-        theme,
-        chart,
-        &s,
-        names_row_top,
-        across,
-        region,
-        &mut obstacles,
-    )
+    let naming = Naming::Above {
+        row_top: l.names_row_top,
+        plot: (plot.0, plot_top, plot_bottom),
+    };
+    Ok((s, cats, (plot_top, plot_bottom), naming))
 }
 
 /// Names of the parts of horizontal bars: stacked ones in a row above the
