@@ -30,6 +30,8 @@ mod line;
 mod line_layout;
 pub mod lttb;
 mod panels;
+mod part_names;
+mod part_slots;
 mod parts;
 mod pie;
 mod place;
