@@ -195,8 +195,9 @@ pub(crate) fn lying(
 }
 
 impl Lying {
-    /// The value title and ticks under bars whose plot runs `plot` across
-    /// and whose values run `values` across, ticks kept right of `lo`, and
+    /// The value title and ticks under bars whose plot runs from `plot_left`
+    /// to `plot_right` and whose values run `values` across, ticks kept
+    /// right of `lo`, and
     /// gridlines down the plot (none at zero, where the baseline goes).
     pub fn value_axis(
         &self,
@@ -204,8 +205,7 @@ impl Lying {
         obstacles: &mut Obstacles,
         theme: &Theme,
         (value, vmap): (&Axis, impl Fn(f64) -> f64 + Copy),
-        lo: f64,
-        (plot_left, plot_right): (f64, f64),
+        (lo, plot_left, plot_right): (f64, f64, f64),
         (value_left, value_right): (f64, f64),
     ) -> Result<(), RenderError> {
         let row = axis::Row {

@@ -198,7 +198,8 @@ fn horizontal(
     let values = (plot.0 + left_pad, plot.1 - right_pad);
     let vmap = |v: f64| map(v, domain, values.0, values.1);
     let value = (&chart.value, vmap);
-    l.value_axis(canvas, obstacles, theme, value, region.left, plot, values)?;
+    let plot_span = (region.left, plot.0, plot.1);
+    l.value_axis(canvas, obstacles, theme, value, plot_span, values)?;
     let bands = Band {
         orientation: Orientation::Horizontal,
         start: plot_top,

@@ -177,7 +177,7 @@ fn grouped_above(
 ) -> Result<(), RenderError> {
     let (g, ext, g_top) = n.group(f64::min);
     let k = n.chart.parts.len();
-    for j in 0..k {
+    for (j, e) in ext.iter().enumerate() {
         let row = k - 1 - j;
         let label_top = g_top - 6.0 - (row as f64 + 1.0) * n.step + 2.0;
         let (x0, x1) = n.s.across(g, j);
@@ -187,7 +187,7 @@ fn grouped_above(
         let Some(label) = n.label(j, x, label_top, Align::Start) else {
             continue;
         };
-        let bar_top = ext[j].map(|e| n.s.vmap(e.1.max(0.0))).unwrap_or(n.zero);
+        let bar_top = e.map(|e| n.s.vmap(e.1.max(0.0))).unwrap_or(n.zero);
         let (from, to) = ((cx, label_top + n.lh + 1.0), (cx, bar_top - 2.0));
         canvas.line(from, to, n.theme.baseline, 1)?;
         kit::put(canvas, obstacles, &label)?;

@@ -300,7 +300,8 @@ fn horizontal(
     let values = (value_left, value_right);
     let vmap = |v: f64| map(v, dom, value_left, value_right);
     let value = (&chart.value, vmap);
-    l.value_axis(canvas, obstacles, theme, value, region.left, plot, values)?;
+    let plot_span = (region.left, plot.0, plot.1);
+    l.value_axis(canvas, obstacles, theme, value, plot_span, values)?;
     let bands = Band {
         orientation: Orientation::Horizontal,
         start: plot_top,
