@@ -5,7 +5,7 @@
 //! [`crate::band::Band`] transform.
 
 use crate::axis;
-use crate::canvas::{Align, Canvas};
+use crate::canvas::Canvas;
 use crate::kit::Obstacles;
 use crate::layout::{self, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
@@ -75,31 +75,12 @@ pub(crate) fn upright(
         .any(|n| text_width(&metrics::normalize(n), theme.label_size, false) > name_width);
     let name_lines = if two_lines { 2 } else { 1 };
 
-    let mut top = region.top;
-    if let Some(title) = value.title.as_deref() {
-        axis::title(
-            canvas,
-            obstacles,
-            theme,
-            title,
-            region.right - region.left,
-            (region.left, top),
-            Align::Start,
-        )?;
-        top += lh + 8.0;
-    }
+    let top = axis::title_above(canvas, obstacles, theme, region, value.title.as_deref())?;
     let mut bottom = region.bottom;
     if let Some(title) = category_title {
         bottom -= lh;
-        axis::title(
-            canvas,
-            obstacles,
-            theme,
-            title,
-            plot_right - plot_left,
-            ((plot_left + plot_right) / 2.0, bottom),
-            Align::Middle,
-        )?;
+        let plot = (plot_left, plot_right);
+        axis::title_centred(canvas, obstacles, theme, title, plot, bottom)?;
         bottom -= 6.0;
     }
     Ok(Upright {
@@ -166,19 +147,7 @@ pub(crate) fn lying(
     names_row: f64,
 ) -> Result<Lying, RenderError> {
     let lh = line_height(theme.label_size);
-    let mut top = region.top;
-    if let Some(title) = category_title {
-        axis::title(
-            canvas,
-            obstacles,
-            theme,
-            title,
-            region.right - region.left,
-            (region.left, top),
-            Align::Start,
-        )?;
-        top += lh + 8.0;
-    }
+    let mut top = axis::title_above(canvas, obstacles, theme, region, category_title)?;
     let names_row_top = top;
     if names_row > 0.0 {
         top += names_row;

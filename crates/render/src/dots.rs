@@ -32,19 +32,8 @@ pub(crate) fn draw(
     layout::check_axis(&chart.value, "value")?;
     let lh = line_height(theme.label_size);
     let mut obstacles = Obstacles::default();
-    let mut top = region.top;
-    if let Some(title) = chart.category_title.as_deref() {
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            region.right - region.left,
-            (region.left, top),
-            Align::Start,
-        )?;
-        top += lh + 8.0;
-    }
+    let cat = chart.category_title.as_deref();
+    let mut top = axis::title_above(canvas, &mut obstacles, theme, region, cat)?;
     let several = chart.series.len() > 1;
     let series_row_top = top;
     if several {

@@ -95,20 +95,8 @@ pub(crate) fn draw(
         Chart::Bars(b) => (b.value.title.clone(), b.category_title.clone()),
         _ => (None, None),
     };
-    let mut top = region.top;
-    if let Some(title) = measure_title.as_deref() {
-        let (width, at) = (region.right - region.left, (region.left, top));
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            width,
-            at,
-            Align::Start,
-        )?;
-        top += lh + 8.0;
-    }
+    let measure = measure_title.as_deref();
+    let top = axis::title_above(canvas, &mut obstacles, theme, region, measure)?;
     let mut bottom = region.bottom;
     let other_top = other_title.as_ref().map(|_| {
         bottom -= lh;
@@ -191,16 +179,8 @@ pub(crate) fn draw(
         }
     }
     if let (Some(t), Some(title)) = (other_top, other_title.as_deref()) {
-        let at = ((region.left + region.right) / 2.0, t);
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            width,
-            at,
-            Align::Middle,
-        )?;
+        let span = (region.left, region.right);
+        axis::title_centred(canvas, &mut obstacles, theme, title, span, t)?;
     }
     Ok(())
 }
