@@ -10,7 +10,7 @@ use crate::kit::Obstacles;
 use crate::layout::{self, map, max_width, Region};
 use crate::metrics::line_height;
 use crate::theme::Theme;
-use crate::RenderError;
+use crate::{Drawn, RenderError};
 use crescendo_frame::{Bar, BarChart, Orientation, Role};
 
 /// Share of a category band filled by the bar.
@@ -55,12 +55,7 @@ struct Frame {
     names: Vec<(f64, f64, Align, Vec<String>)>,
 }
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &BarChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &BarChart, region: Region) -> Drawn {
     layout::check_axis(&chart.value, "value")?;
     let step = theme.label_step();
     let domain = value_domain(chart);

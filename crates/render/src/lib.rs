@@ -62,6 +62,9 @@ pub struct RenderError {
     pub message: String,
 }
 
+/// What every drawer returns: nothing, or why the frame cannot be drawn.
+pub(crate) type Drawn = Result<(), RenderError>;
+
 impl RenderError {
     /// Builds an error from a message.
     pub fn new(message: impl Into<String>) -> Self {

@@ -14,15 +14,10 @@ use crate::layout::{self, map, Region};
 use crate::line_layout::{end_rows, layout, needs_leader};
 use crate::metrics::line_height;
 use crate::theme::Theme;
-use crate::RenderError;
+use crate::{Drawn, RenderError};
 use crescendo_frame::{LineChart, Role, Series};
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &LineChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &LineChart, region: Region) -> Drawn {
     layout::check_axis(&chart.x, "x")?;
     layout::check_axis(&chart.y, "y")?;
     let l = layout(chart, region, theme);

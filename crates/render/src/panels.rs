@@ -17,7 +17,7 @@ use crate::layout::{self, map, max_width, Region};
 use crate::line;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::{Rgb, Theme};
-use crate::RenderError;
+use crate::{Drawn, RenderError};
 use crescendo_frame::{Axis, BarChart, Chart, LineChart, Orientation, Panel, PanelChart, Role};
 
 /// Panels per row at most.
@@ -61,12 +61,7 @@ fn mark_colour(theme: &Theme, panel: Role, own: Role) -> Option<Rgb> {
     }
 }
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &PanelChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: Region) -> Drawn {
     let n = chart.panels.len();
     if n == 0 {
         return Ok(());

@@ -18,7 +18,7 @@ use crate::metrics::line_height;
 use crate::part_names::{self, Naming};
 use crate::part_slots::{extents, roomiest, Slots};
 use crate::theme::{Rgb, Theme};
-use crate::RenderError;
+use crate::{Drawn, RenderError};
 use crescendo_frame::{Orientation, PartsChart, PartsMode, Role};
 
 /// Share of a category band filled by its bar (stacked) or group.
@@ -83,12 +83,7 @@ fn fit_scale(
     end
 }
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &PartsChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PartsChart, region: Region) -> Drawn {
     layout::check_axis(&chart.value, "value")?;
     let mut obstacles = Obstacles::default();
     let (s, cats, across, naming) = match chart.orientation {

@@ -9,7 +9,7 @@ use crate::kit::{self, Obstacles, Rect};
 use crate::layout::{self, map, Region};
 use crate::metrics::{self, line_height};
 use crate::theme::Theme;
-use crate::RenderError;
+use crate::Drawn;
 use crescendo_frame::{Role, ScatterChart};
 
 /// Radius of a context dot, in px.
@@ -56,12 +56,7 @@ pub(crate) fn best_spot(cands: &[Rect], obstacles: &Obstacles, bounds: &Rect) ->
     crate::place::pick(cands, obstacles, bounds, crate::place::Pick::Fewest)
 }
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &ScatterChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region: Region) -> Drawn {
     layout::check_axis(&chart.x, "x")?;
     layout::check_axis(&chart.y, "y")?;
     let lh = line_height(theme.label_size);
