@@ -5,7 +5,7 @@
 //! where it covers the fewest other labels and lines.
 
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, faint_fill, Obstacles, Rect};
+use crate::kit::{self, faint_fill, rect, Obstacles, Rect};
 use crate::layout::map;
 use crate::line_layout::LineLayout;
 use crate::metrics::{self, line_height, text_width};
@@ -35,12 +35,12 @@ fn ymap(chart: &LineChart, l: &LineLayout) -> impl Fn(f64) -> f64 {
 
 /// Where labels may go: the plot, with half a line of room at the top.
 fn bounds(theme: &Theme, l: &LineLayout) -> Rect {
-    Rect {
-        x0: l.plot_left,
-        y0: l.plot_top - line_height(theme.label_size) / 2.0,
-        x1: l.plot_right,
-        y1: l.plot_bottom - 2.0,
-    }
+    rect(
+        l.plot_left,
+        l.plot_top - line_height(theme.label_size) / 2.0,
+        l.plot_right,
+        l.plot_bottom - 2.0,
+    )
 }
 
 /// Draws the bands and reference lines, under the data.
@@ -131,12 +131,7 @@ fn band_names(
         let cands: Vec<Rect> = (0..4)
             .map(|k| {
                 let top = l.plot_top + 6.0 + k as f64 * theme.label_step();
-                Rect {
-                    x0: x0 + 6.0,
-                    y0: top,
-                    x1: x0 + 6.0 + w,
-                    y1: top + lh,
-                }
+                rect(x0 + 6.0, top, x0 + 6.0 + w, top + lh)
             })
             .collect();
         if let Some(r) = choose(&cands, obstacles, &area, true) {
@@ -183,30 +178,10 @@ fn reference_names(
         let above = y - 4.0 - lh;
         let below = y + 4.0;
         let cands = [
-            Rect {
-                x0: l.plot_right - w,
-                y0: above,
-                x1: l.plot_right,
-                y1: above + lh,
-            },
-            Rect {
-                x0: l.plot_right - w,
-                y0: below,
-                x1: l.plot_right,
-                y1: below + lh,
-            },
-            Rect {
-                x0: l.plot_left,
-                y0: above,
-                x1: l.plot_left + w,
-                y1: above + lh,
-            },
-            Rect {
-                x0: l.plot_left,
-                y0: below,
-                x1: l.plot_left + w,
-                y1: below + lh,
-            },
+            rect(l.plot_right - w, above, l.plot_right, above + lh),
+            rect(l.plot_right - w, below, l.plot_right, below + lh),
+            rect(l.plot_left, above, l.plot_left + w, above + lh),
+            rect(l.plot_left, below, l.plot_left + w, below + lh),
         ];
         if let Some(r) = choose(&cands, obstacles, &area, true) {
             kit::put(canvas, obstacles, &plain(theme, &text, r))?;
@@ -257,36 +232,11 @@ fn end_values(
                 let d = 8.0;
                 let side = if k == 0 { p.0 + d } else { p.0 - d - w };
                 let cands = [
-                    Rect {
-                        x0: p.0 - w / 2.0,
-                        y0: p.1 - d - lh,
-                        x1: p.0 + w / 2.0,
-                        y1: p.1 - d,
-                    },
-                    Rect {
-                        x0: p.0 - w / 2.0,
-                        y0: p.1 + d,
-                        x1: p.0 + w / 2.0,
-                        y1: p.1 + d + lh,
-                    },
-                    Rect {
-                        x0: side,
-                        y0: p.1 - d - lh,
-                        x1: side + w,
-                        y1: p.1 - d,
-                    },
-                    Rect {
-                        x0: side,
-                        y0: p.1 + d,
-                        x1: side + w,
-                        y1: p.1 + d + lh,
-                    },
-                    Rect {
-                        x0: side,
-                        y0: p.1 - lh / 2.0,
-                        x1: side + w,
-                        y1: p.1 + lh / 2.0,
-                    },
+                    rect(p.0 - w / 2.0, p.1 - d - lh, p.0 + w / 2.0, p.1 - d),
+                    rect(p.0 - w / 2.0, p.1 + d, p.0 + w / 2.0, p.1 + d + lh),
+                    rect(side, p.1 - d - lh, side + w, p.1 - d),
+                    rect(side, p.1 + d, side + w, p.1 + d + lh),
+                    rect(side, p.1 - lh / 2.0, side + w, p.1 + lh / 2.0),
                 ];
                 if let Some(r) = choose(&cands, obstacles, &area, false) {
                     kit::put(

@@ -288,22 +288,8 @@ pub(crate) fn draw_xy_axes(
         keep_left: false,
     };
     row(canvas, obstacles, theme, size, x, xmap, x_row)?;
-    gridlines(
-        canvas,
-        theme,
-        y,
-        ymap,
-        l.plot_left,
-        l.plot_right,
-        Across::Rows,
-        Some(l.plot_bottom),
-    )?;
-    canvas.line(
-        (l.plot_left, l.plot_bottom),
-        (l.plot_right, l.plot_bottom),
-        theme.baseline,
-        theme.baseline_stroke,
-    )
+    let plot = (l.plot_left, l.plot_right, l.plot_bottom);
+    rows_and_baseline(canvas, theme, y, ymap, plot)
 }
 
 /// An axis title: one muted line at the label size, fitted into `width`,
@@ -321,6 +307,72 @@ pub(crate) fn title(
     let text = fit_one(title, width, theme.label_size);
     let label = muted_label(theme, theme.label_size, &text, x, top, align);
     put(canvas, obstacles, &label)
+}
+
+/// The title of an axis above a plot, at the top left of `region` over
+/// its whole width, when there is one. Returns the top of what follows.
+pub(crate) fn title_above(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    theme: &Theme,
+    region: Region,
+    text: Option<&str>,
+) -> Result<f64, RenderError> {
+    let mut top = region.top;
+    if let Some(text) = text {
+        let (width, at) = (region.right - region.left, (region.left, top));
+        title(canvas, obstacles, theme, text, width, at, Align::Start)?;
+        top += line_height(theme.label_size) + 8.0;
+    }
+    Ok(top)
+}
+
+/// The title of an axis centred over `left..right`, its top at `top`.
+pub(crate) fn title_centred(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    theme: &Theme,
+    text: &str,
+    (left, right): (f64, f64),
+    top: f64,
+) -> Result<(), RenderError> {
+    let at = ((left + right) / 2.0, top);
+    title(
+        canvas,
+        obstacles,
+        theme,
+        text,
+        right - left,
+        at,
+        Align::Middle,
+    )
+}
+
+/// Gridlines across an x/y plot at the ticks of `y` (when asked for) and
+/// the baseline along the plot's bottom.
+pub(crate) fn rows_and_baseline(
+    canvas: &Canvas,
+    theme: &Theme,
+    y: &Axis,
+    ymap: impl Fn(f64) -> f64,
+    (left, right, bottom): (f64, f64, f64),
+) -> Result<(), RenderError> {
+    gridlines(
+        canvas,
+        theme,
+        y,
+        ymap,
+        left,
+        right,
+        Across::Rows,
+        Some(bottom),
+    )?;
+    canvas.line(
+        (left, bottom),
+        (right, bottom),
+        theme.baseline,
+        theme.baseline_stroke,
+    )
 }
 
 /// A value axis under horizontal bands (bars, parts, dots).

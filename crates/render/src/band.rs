@@ -5,7 +5,7 @@
 //! code whichever way the bars run.
 
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, Obstacles, Rect};
+use crate::kit::{self, rect, Obstacles, Rect};
 use crate::metrics::{self, line_height};
 use crate::place::{self, Pick};
 use crate::theme::{Rgb, Theme};
@@ -165,20 +165,15 @@ fn end_value(
     let cands: Vec<Rect> = (0..4)
         .map(|k| {
             let (dx, dy) = shift(f64::from(k));
-            Rect {
-                x0: home.x0 + dx,
-                y0: home.y0 + dy,
-                x1: home.x1 + dx,
-                y1: home.y1 + dy,
-            }
+            rect(home.x0 + dx, home.y0 + dy, home.x1 + dx, home.y1 + dy)
         })
         .collect();
-    let canvas_box = Rect {
-        x0: 0.0,
-        y0: 0.0,
-        x1: f64::from(crate::canvas::WIDTH),
-        y1: f64::from(crate::canvas::HEIGHT),
-    };
+    let canvas_box = rect(
+        0.0,
+        0.0,
+        f64::from(crate::canvas::WIDTH),
+        f64::from(crate::canvas::HEIGHT),
+    );
     let chosen = place::pick(&cands, obstacles, &canvas_box, Pick::FirstFree);
     let Some(r) = chosen.filter(|r| *r != home && obstacles.clear_of_text(r)) else {
         return kit::put(canvas, obstacles, label);

@@ -3,18 +3,16 @@
 //! bars right-align them in a column at the left. Focus bars carry their
 //! value at the bar end; hidden bars leave their slot empty.
 
-use crate::axis;
 use crate::band::{self, Band, VALUE_GAP};
+use crate::band_axes::{self, PAD};
 use crate::canvas::{Align, Canvas, Label, WIDTH};
 use crate::kit::Obstacles;
 use crate::layout::{self, map, max_width, Region};
-use crate::metrics::{line_height, text_width};
+use crate::metrics::line_height;
 use crate::theme::Theme;
-use crate::RenderError;
+use crate::{Drawn, RenderError};
 use crescendo_frame::{Bar, BarChart, Orientation, Role};
 
-/// Space between a label column and the plot.
-const PAD: f64 = 12.0;
 /// Share of a category band filled by the bar.
 const BAR_SHARE: f64 = 0.62;
 /// Widest category column of horizontal bars, as a share of the canvas.
@@ -46,216 +44,132 @@ fn muted_label<'a>(theme: &Theme, text: &'a str, x: f64, top: f64, align: Align)
     }
 }
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &BarChart,
-    region: Region,
-) -> Result<(), RenderError> {
-    layout::check_axis(&chart.value, "value")?;
-    match chart.orientation {
-        Orientation::Vertical => vertical(canvas, theme, chart, region),
-        Orientation::Horizontal => horizontal(canvas, theme, chart, region),
-    }
+/// Where a bar chart's parts go: the bands, the thickness of a bar, the
+/// positions of the value domain's ends, the extent of the baseline across
+/// the bands, and each category name's place and lines.
+struct Frame {
+    bands: Band,
+    thickness: f64,
+    ends: (f64, f64),
+    across: (f64, f64),
+    names: Vec<(f64, f64, Align, Vec<String>)>,
 }
 
-fn vertical(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &BarChart,
-    region: Region,
-) -> Result<(), RenderError> {
-    let lh = line_height(theme.label_size);
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &BarChart, region: Region) -> Drawn {
+    layout::check_axis(&chart.value, "value")?;
     let step = theme.label_step();
     let domain = value_domain(chart);
     // texts and bars so far, for the value labels ([`crate::place`])
     let mut obstacles = Obstacles::default();
-    let ticks = layout::visible_ticks(&chart.value);
-    let tick_w = region.tick_column(max_width(
-        ticks.iter().map(|(_, l)| l.as_str()),
-        theme.label_size,
-        false,
-    ));
-    let plot_left = if tick_w > 0.0 {
-        region.left + tick_w + PAD
-    } else {
-        region.left
+    let f = match chart.orientation {
+        Orientation::Vertical => vertical(canvas, theme, chart, region, &mut obstacles)?,
+        Orientation::Horizontal => horizontal(canvas, theme, chart, region, &mut obstacles)?,
     };
-    let plot_right = region.right;
-    let n = chart.bars.len().max(1);
-    let band = (plot_right - plot_left) / n as f64;
-    let cat_w = band - 8.0;
-    let two_lines = chart.bars.iter().any(|b| {
-        text_width(
-            &crate::metrics::normalize(&b.label),
-            theme.label_size,
-            false,
-        ) > cat_w
-    });
-    let cat_lines = if two_lines { 2 } else { 1 };
-
-    let mut top = region.top;
-    if let Some(title) = chart.value.title.as_deref() {
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            region.right - region.left,
-            (region.left, top),
-            Align::Start,
-        )?;
-        top += lh + 8.0;
-    }
-    let mut bottom = region.bottom;
-    if let Some(title) = chart.category_title.as_deref() {
-        bottom -= lh;
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            plot_right - plot_left,
-            ((plot_left + plot_right) / 2.0, bottom),
-            Align::Middle,
-        )?;
-        bottom -= 6.0;
-    }
-    let cat_top = bottom - (cat_lines - 1) as f64 * step - lh;
-    // Room for value labels above positive and below negative bars.
-    let value_top = top + lh + VALUE_GAP;
-    let mut value_bottom = cat_top - 10.0;
-    if domain[0] < 0.0 {
-        value_bottom -= lh + VALUE_GAP;
-    }
-    let vmap = |v: f64| map(v, domain, value_bottom, value_top);
-
-    let (size, right) = (theme.label_size, region.left + tick_w);
-    axis::column(
-        canvas,
-        &mut obstacles,
-        theme,
-        size,
-        &chart.value,
-        vmap,
-        right,
-    )?;
-
+    let vmap = |v: f64| map(v, domain, f.ends.0, f.ends.1);
     let zero = vmap(0.0);
-    axis::gridlines(
-        canvas,
-        theme,
-        &chart.value,
-        vmap,
-        plot_left,
-        plot_right,
-        axis::Across::Rows,
-        Some(zero),
-    )?;
-    let bar_w = (band * BAR_SHARE).min(160.0);
-    let bands = Band {
-        orientation: Orientation::Vertical,
-        start: plot_left,
-        size: band,
-    };
     for (i, bar) in chart.bars.iter().enumerate() {
-        let centre = bands.centre(i);
-        for (k, line) in layout::fit_label_at(theme.label_size, &bar.label, cat_w, cat_lines, false)
-            .iter()
-            .enumerate()
-        {
-            canvas.text(&muted_label(
-                theme,
-                line,
-                centre,
-                cat_top + k as f64 * step,
-                Align::Middle,
-            ))?;
+        if let Some((x, first_top, align, lines)) = f.names.get(i) {
+            for (k, line) in lines.iter().enumerate() {
+                let top = first_top + k as f64 * step;
+                canvas.text(&muted_label(theme, line, *x, top, *align))?;
+            }
         }
         let (Some(color), Some(value)) =
             (bar_color(theme, bar), bar.value.filter(|v| v.is_finite()))
         else {
             continue;
         };
-        marks(
+        let positive = bar.value.is_some_and(|v| v >= 0.0);
+        let label = (bar.role == Role::Focus).then_some(bar.value_label.as_str());
+        band::bar(
             canvas,
             theme,
-            &bands,
+            &f.bands,
             i,
-            bar_w,
+            f.thickness,
             (zero, vmap(value)),
-            bar,
+            positive,
             color,
+            label,
             &mut obstacles,
         )?;
     }
     let baseline = (theme.baseline, theme.baseline_stroke);
-    bands.rule(
-        canvas,
-        (plot_left, plot_right),
-        zero,
-        baseline.0,
-        baseline.1,
-    )
+    f.bands.rule(canvas, f.across, zero, baseline.0, baseline.1)
 }
 
-/// Bar `i`'s mark from `zero` to `end` and, in focus, its value.
-#[allow(clippy::too_many_arguments)]
-fn marks(
+/// Vertical bars: value ticks at the left, names under the bars.
+fn vertical(
     canvas: &Canvas,
     theme: &Theme,
-    bands: &Band,
-    i: usize,
-    thickness: f64,
-    (zero, end): (f64, f64),
-    bar: &Bar,
-    color: crate::theme::Rgb,
+    chart: &BarChart,
+    region: Region,
     obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
-    let positive = bar.value.is_some_and(|v| v >= 0.0);
-    let label = (bar.role == Role::Focus).then_some(bar.value_label.as_str());
-    band::bar(
+) -> Result<Frame, RenderError> {
+    let lh = line_height(theme.label_size);
+    let domain = value_domain(chart);
+    let names: Vec<&str> = chart.bars.iter().map(|b| b.label.as_str()).collect();
+    let cat = chart.category_title.as_deref();
+    let u = band_axes::upright(
         canvas,
-        theme,
-        bands,
-        i,
-        thickness,
-        (zero, end),
-        positive,
-        color,
-        label,
         obstacles,
-    )
+        theme,
+        region,
+        &chart.value,
+        cat,
+        &names,
+        0.0,
+    )?;
+    // Room for value labels above positive and below negative bars.
+    let value_top = u.top + lh + VALUE_GAP;
+    let mut value_bottom = u.names_top - 10.0;
+    if domain[0] < 0.0 {
+        value_bottom -= lh + VALUE_GAP;
+    }
+    let vmap = |v: f64| map(v, domain, value_bottom, value_top);
+    u.value_axis(canvas, obstacles, theme, &chart.value, vmap)?;
+    let bands = Band {
+        orientation: Orientation::Vertical,
+        start: u.plot.0,
+        size: u.band,
+    };
+    let names = chart
+        .bars
+        .iter()
+        .enumerate()
+        .map(|(i, bar)| {
+            let lines = layout::fit_label_at(
+                theme.label_size,
+                &bar.label,
+                u.name_width,
+                u.name_lines,
+                false,
+            );
+            (bands.centre(i), u.names_top, Align::Middle, lines)
+        })
+        .collect();
+    Ok(Frame {
+        bands,
+        thickness: (u.band * BAR_SHARE).min(160.0),
+        ends: (value_bottom, value_top),
+        across: u.plot,
+        names,
+    })
 }
 
+/// Horizontal bars: names in a column at the left, value ticks under.
 fn horizontal(
     canvas: &Canvas,
     theme: &Theme,
     chart: &BarChart,
     region: Region,
-) -> Result<(), RenderError> {
-    let lh = line_height(theme.label_size);
+    obstacles: &mut Obstacles,
+) -> Result<Frame, RenderError> {
     let step = theme.label_step();
     let domain = value_domain(chart);
-    // texts and bars so far, for the value labels ([`crate::place`])
-    let mut obstacles = Obstacles::default();
-
-    let mut top = region.top;
-    if let Some(title) = chart.category_title.as_deref() {
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            region.right - region.left,
-            (region.left, top),
-            Align::Start,
-        )?;
-        top += lh + 8.0;
-    }
-    let plot_top = top;
-    let titled = chart.value.title.is_some();
-    let (value_title_top, tick_top, plot_bottom) = axis::bottom_rows(region.bottom, lh, titled);
+    let titles = (chart.category_title.as_deref(), chart.value.title.is_some());
+    let l = band_axes::lying(canvas, obstacles, theme, region, titles, 0.0)?;
+    let (plot_top, plot_bottom) = (l.plot_top, l.plot_bottom);
 
     let n = chart.bars.len().max(1);
     let band = (plot_bottom - plot_top) / n as f64;
@@ -267,8 +181,7 @@ fn horizontal(
     );
     let (col_w, cat_lines) = band::name_column(widest, cap, band, step);
     let col_right = region.left + col_w;
-    let plot_left = col_right + PAD;
-    let plot_right = region.right;
+    let plot = (col_right + PAD, region.right);
 
     // Room for value labels beyond the ends of the bars.
     let value_w = max_width(
@@ -277,69 +190,27 @@ fn horizontal(
         true,
     );
     let (left_pad, right_pad) = band::end_room(domain, value_w, true);
-    let (value_left, value_right) = (plot_left + left_pad, plot_right - right_pad);
-    let vmap = |v: f64| map(v, domain, value_left, value_right);
-
-    let row = axis::Row {
-        top: tick_top,
-        lo: region.left,
-        hi: plot_right,
-        gap: 12.0,
-        fit: axis::Fit::AsWritten,
-        keep_left: false,
-    };
-    let under = axis::Under {
-        title: value_title_top
-            .map(|t| (t, plot_right - plot_left, (value_left + value_right) / 2.0)),
-        row,
-        across: (plot_top, plot_bottom),
-        skip_zero: true,
-    };
-    axis::under(canvas, &mut obstacles, theme, &chart.value, vmap, under)?;
-    let zero = vmap(0.0);
-    let bar_h = (band * BAR_SHARE).min(56.0);
+    let values = (plot.0 + left_pad, plot.1 - right_pad);
+    let vmap = |v: f64| map(v, domain, values.0, values.1);
+    let value = (&chart.value, vmap);
+    let plot_span = (region.left, plot.0, plot.1);
+    l.value_axis(canvas, obstacles, theme, value, plot_span, values)?;
     let bands = Band {
         orientation: Orientation::Horizontal,
         start: plot_top,
         size: band,
     };
-    let labels = name_rows(theme, chart, &bands, col_w, cat_lines);
-    for (i, bar) in chart.bars.iter().enumerate() {
-        let (first_top, lines) = &labels[i];
-        for (k, line) in lines.iter().enumerate() {
-            canvas.text(&muted_label(
-                theme,
-                line,
-                col_right,
-                first_top + k as f64 * step,
-                Align::End,
-            ))?;
-        }
-        let (Some(color), Some(value)) =
-            (bar_color(theme, bar), bar.value.filter(|v| v.is_finite()))
-        else {
-            continue;
-        };
-        marks(
-            canvas,
-            theme,
-            &bands,
-            i,
-            bar_h,
-            (zero, vmap(value)),
-            bar,
-            color,
-            &mut obstacles,
-        )?;
-    }
-    let baseline = (theme.baseline, theme.baseline_stroke);
-    bands.rule(
-        canvas,
-        (plot_top, plot_bottom),
-        zero,
-        baseline.0,
-        baseline.1,
-    )
+    let names = name_rows(theme, chart, &bands, col_w, cat_lines)
+        .into_iter()
+        .map(|(top, lines)| (col_right, top, Align::End, lines))
+        .collect();
+    Ok(Frame {
+        bands,
+        thickness: (band * BAR_SHARE).min(56.0),
+        ends: values,
+        across: (plot_top, plot_bottom),
+        names,
+    })
 }
 
 /// The names of horizontal bars, centred on their bands in a column

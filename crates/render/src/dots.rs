@@ -11,7 +11,7 @@ use crate::kit::{self, spread_widths, Obstacles};
 use crate::layout::{self, fit_label_at, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
-use crate::RenderError;
+use crate::{Drawn, RenderError};
 use crescendo_frame::{DotChart, DotRow, Role};
 
 /// Dot radius in px (smaller when rows are tight).
@@ -23,28 +23,12 @@ const MAX_SERIES_LABEL: f64 = 240.0;
 /// Widest category column, as a share of the region.
 const MAX_CATEGORY_SHARE: f64 = 0.32;
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &DotChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &DotChart, region: Region) -> Drawn {
     layout::check_axis(&chart.value, "value")?;
     let lh = line_height(theme.label_size);
     let mut obstacles = Obstacles::default();
-    let mut top = region.top;
-    if let Some(title) = chart.category_title.as_deref() {
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            region.right - region.left,
-            (region.left, top),
-            Align::Start,
-        )?;
-        top += lh + 8.0;
-    }
+    let cat = chart.category_title.as_deref();
+    let mut top = axis::title_above(canvas, &mut obstacles, theme, region, cat)?;
     let several = chart.series.len() > 1;
     let series_row_top = top;
     if several {

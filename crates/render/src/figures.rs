@@ -8,7 +8,7 @@ use crate::canvas::{Align, Canvas, Label};
 use crate::layout::Region;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
-use crate::RenderError;
+use crate::Drawn;
 use crescendo_frame::{FigureChart, Role};
 
 /// Size of a figure when it fits its column, in px (bold). (120 cannot be
@@ -38,12 +38,7 @@ pub(crate) fn caption_size(theme: &Theme) -> f64 {
     size.max(theme.takeaway_size)
 }
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &FigureChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &FigureChart, region: Region) -> Drawn {
     let n = chart.figures.len();
     if n == 0 {
         return Ok(());

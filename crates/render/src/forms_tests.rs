@@ -1244,3 +1244,32 @@ fn bounds(n: &roxmltree::Node) -> Option<[f64; 4]> {
         _ => None,
     }
 }
+
+/// Small multiples of bars, both ways: the panel drawer lays both out on
+/// one band transform, and this picture holds every pixel of it.
+#[test]
+fn panels_of_bars_both_ways() {
+    for (name, orientation) in [
+        ("panels_bars_vertical", Orientation::Vertical),
+        ("panels_bars_horizontal", Orientation::Horizontal),
+    ] {
+        let panels = ["North", "South", "East"]
+            .iter()
+            .enumerate()
+            .map(|(i, n)| Panel {
+                title: n.to_string(),
+                role: if i == 1 { Role::Focus } else { Role::Context },
+                chart: plain_bars(orientation),
+            })
+            .collect();
+        let svg = render(Chart::Panels(PanelChart {
+            key: "area".to_string(),
+            common_scale: true,
+            trimmed: false,
+            panels,
+        }));
+        let boxes = check(&svg);
+        assert!(has(&boxes, "E-books"), "{name}");
+        insta::assert_snapshot!(name, svg);
+    }
+}

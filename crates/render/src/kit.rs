@@ -47,7 +47,7 @@ pub(crate) fn label_rect(l: &Label<'_>) -> Rect {
     text_rect(l.text, l.x, l.top, l.size, l.bold, l.align)
 }
 
-pub(crate) use crate::place::Obstacles;
+pub(crate) use crate::place::{rect, Obstacles};
 
 /// Draws `label` and records its box.
 pub(crate) fn put(

@@ -17,6 +17,7 @@
 mod annotate;
 mod axis;
 mod band;
+mod band_axes;
 mod bars;
 pub mod canvas;
 mod dots;
@@ -29,6 +30,8 @@ mod line;
 mod line_layout;
 pub mod lttb;
 mod panels;
+mod part_names;
+mod part_slots;
 mod parts;
 mod pie;
 mod place;
@@ -58,6 +61,9 @@ pub struct RenderError {
     /// Human-readable explanation.
     pub message: String,
 }
+
+/// What every drawer returns: nothing, or why the frame cannot be drawn.
+pub(crate) type Drawn = Result<(), RenderError>;
 
 impl RenderError {
     /// Builds an error from a message.

@@ -14,15 +14,10 @@ use crate::layout::{self, map, Region};
 use crate::line_layout::{end_rows, layout, needs_leader};
 use crate::metrics::line_height;
 use crate::theme::Theme;
-use crate::RenderError;
+use crate::{Drawn, RenderError};
 use crescendo_frame::{LineChart, Role, Series};
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &LineChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &LineChart, region: Region) -> Drawn {
     layout::check_axis(&chart.x, "x")?;
     layout::check_axis(&chart.y, "y")?;
     let l = layout(chart, region, theme);
@@ -38,19 +33,8 @@ pub(crate) fn draw(
         axis::title(canvas, &mut obstacles, theme, title, full, at, Align::Start)?;
     }
     if let (Some(top), Some(title)) = (l.x_title_top, chart.x.title.as_deref()) {
-        let (width, centre) = (
-            l.plot_right - l.plot_left,
-            (l.plot_left + l.plot_right) / 2.0,
-        );
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            width,
-            (centre, top),
-            Align::Middle,
-        )?;
+        let plot = (l.plot_left, l.plot_right);
+        axis::title_centred(canvas, &mut obstacles, theme, title, plot, top)?;
     }
 
     // Y ticks, right-aligned in their column, thinned if crowded.
@@ -69,25 +53,10 @@ pub(crate) fn draw(
     };
     axis::row(canvas, &mut obstacles, theme, size, &chart.x, xmap, row)?;
 
-    // Gridlines, when asked for, under everything else in the plot.
-    axis::gridlines(
-        canvas,
-        theme,
-        &chart.y,
-        ymap,
-        l.plot_left,
-        l.plot_right,
-        axis::Across::Rows,
-        Some(l.plot_bottom),
-    )?;
-
-    // Baseline along the bottom of the plot.
-    canvas.line(
-        (l.plot_left, l.plot_bottom),
-        (l.plot_right, l.plot_bottom),
-        theme.baseline,
-        theme.baseline_stroke,
-    )?;
+    // Gridlines, when asked for, under everything else in the plot, and
+    // the baseline along its bottom.
+    let plot = (l.plot_left, l.plot_right, l.plot_bottom);
+    axis::rows_and_baseline(canvas, theme, &chart.y, ymap, plot)?;
 
     annotate::draw_under(canvas, theme, chart, &l)?;
 

@@ -17,7 +17,7 @@ use crate::layout::{self, map, max_width, Region};
 use crate::line;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::{Rgb, Theme};
-use crate::RenderError;
+use crate::{Drawn, RenderError};
 use crescendo_frame::{Axis, BarChart, Chart, LineChart, Orientation, Panel, PanelChart, Role};
 
 /// Panels per row at most.
@@ -61,12 +61,7 @@ fn mark_colour(theme: &Theme, panel: Role, own: Role) -> Option<Rgb> {
     }
 }
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &PanelChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: Region) -> Drawn {
     let n = chart.panels.len();
     if n == 0 {
         return Ok(());
@@ -95,20 +90,8 @@ pub(crate) fn draw(
         Chart::Bars(b) => (b.value.title.clone(), b.category_title.clone()),
         _ => (None, None),
     };
-    let mut top = region.top;
-    if let Some(title) = measure_title.as_deref() {
-        let (width, at) = (region.right - region.left, (region.left, top));
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            width,
-            at,
-            Align::Start,
-        )?;
-        top += lh + 8.0;
-    }
+    let measure = measure_title.as_deref();
+    let top = axis::title_above(canvas, &mut obstacles, theme, region, measure)?;
     let mut bottom = region.bottom;
     let other_top = other_title.as_ref().map(|_| {
         bottom -= lh;
@@ -183,27 +166,16 @@ pub(crate) fn draw(
                 let at = (dom, ticks_here);
                 line_panel(canvas, theme, l, panel.role, at, &g, &mut obstacles)?;
             }
-            Chart::Bars(b) if across_bars => {
-                bars_across(canvas, theme, b, panel.role, dom, &g, &mut obstacles)?;
-            }
             Chart::Bars(b) => {
-                let at = (dom, ticks_here);
-                bars_up(canvas, theme, b, panel.role, at, &g, &mut obstacles)?;
+                let (how, at) = ((panel.role, across_bars), (dom, ticks_here));
+                panel_bars(canvas, theme, b, how, at, &g, &mut obstacles)?;
             }
             _ => {}
         }
     }
     if let (Some(t), Some(title)) = (other_top, other_title.as_deref()) {
-        let at = ((region.left + region.right) / 2.0, t);
-        axis::title(
-            canvas,
-            &mut obstacles,
-            theme,
-            title,
-            width,
-            at,
-            Align::Middle,
-        )?;
+        let span = (region.left, region.right);
+        axis::title_centred(canvas, &mut obstacles, theme, title, span, t)?;
     }
     Ok(())
 }
@@ -255,165 +227,100 @@ fn line_panel(
     Ok(())
 }
 
-/// Horizontal bars in one panel: value ticks along the bottom, category
-/// names in the lead column, bars rightwards from zero.
-fn bars_across(
-    canvas: &Canvas,
-    theme: &Theme,
-    b: &BarChart,
-    role: Role,
-    dom: [f64; 2],
-    g: &Geom,
-    obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
-    let slh = line_height(theme.source_size);
-    let vmap = |v: f64| map(v, dom, g.left, g.right);
-    axis::gridlines(
-        canvas,
-        theme,
-        &b.value,
-        vmap,
-        g.top,
-        g.bottom,
-        axis::Across::Columns,
-        Some(vmap(0.0)),
-    )?;
-    // Value ticks along the bottom of every panel.
-    let row = axis::Row {
-        top: g.tick_top,
-        lo: g.left,
-        hi: g.right,
-        gap: 8.0,
-        fit: axis::Fit::AsWritten,
-        keep_left: true,
-    };
-    let size = theme.source_size;
-    axis::row(canvas, obstacles, theme, size, &b.value, vmap, row)?;
-    let nb = b.bars.len().max(1);
-    let band = (g.bottom - g.top) / nb as f64;
-    let spans: Vec<(f64, f64)> = (0..b.bars.len())
-        .map(|k| {
-            let c = g.top + (k as f64 + 0.5) * band;
-            (c - slh / 2.0, c + slh / 2.0)
-        })
-        .collect();
-    let keep = layout::thin(&spans, 0.0);
-    let bands = Band {
-        orientation: Orientation::Horizontal,
-        start: g.top,
-        size: band,
-    };
-    for (k, bar) in b.bars.iter().enumerate() {
-        let c = bands.centre(k);
-        if keep.get(k).copied().unwrap_or(false) {
-            let text = metrics::ellipsize(
-                &metrics::normalize(&bar.label),
-                theme.source_size,
-                false,
-                g.lead_w,
-            );
-            kit::put(
-                canvas,
-                obstacles,
-                &muted_label(
-                    theme,
-                    theme.source_size,
-                    &text,
-                    g.lead_right,
-                    c - slh / 2.0,
-                    Align::End,
-                ),
-            )?;
-        }
-        let (Some(color), Some(v)) = (
-            mark_colour(theme, role, bar.role),
-            bar.value.filter(|v| v.is_finite()),
-        ) else {
-            continue;
-        };
-        let h = (band * 0.62).min(40.0);
-        bands.mark(
-            canvas,
-            (c - h / 2.0, c + h / 2.0),
-            (vmap(0.0), vmap(v)),
-            color,
-        )?;
-    }
-    let baseline = (theme.baseline, theme.baseline_stroke);
-    bands.rule(canvas, (g.top, g.bottom), vmap(0.0), baseline.0, baseline.1)
-}
-
-/// Vertical bars in one panel: value ticks in the lead column, category
+/// Bars in one panel, through one band transform. Lying bars (`across`):
+/// value ticks along the bottom, category names in the lead column, bars
+/// rightwards from zero. Upright bars: value ticks in the lead column,
 /// names under the bars, bars upwards from zero.
-fn bars_up(
+fn panel_bars(
     canvas: &Canvas,
     theme: &Theme,
     b: &BarChart,
-    role: Role,
+    (role, across): (Role, bool),
     (dom, ticks_here): ([f64; 2], bool),
     g: &Geom,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    value_ticks(canvas, theme, &b.value, dom, g, ticks_here, obstacles)?;
-    let vmap = |v: f64| map(v, dom, g.bottom, g.top);
-    axis::gridlines(
-        canvas,
-        theme,
-        &b.value,
-        vmap,
-        g.left,
-        g.right,
-        axis::Across::Rows,
-        Some(vmap(0.0)),
-    )?;
-    let nb = b.bars.len().max(1);
-    let band = (g.right - g.left) / nb as f64;
-    let spans: Vec<(f64, f64)> = b
-        .bars
-        .iter()
-        .enumerate()
-        .map(|(k, bar)| {
-            let c = g.left + (k as f64 + 0.5) * band;
-            let w = text_width(
-                &metrics::ellipsize(
-                    &metrics::normalize(&bar.label),
-                    theme.source_size,
-                    false,
-                    band - 4.0,
-                ),
-                theme.source_size,
-                false,
-            );
-            (c - w / 2.0, c + w / 2.0)
-        })
-        .collect();
-    let keep = layout::thin(&spans, 6.0);
+    let slh = line_height(theme.source_size);
+    let size = theme.source_size;
+    let (lo, hi) = if across {
+        (g.left, g.right)
+    } else {
+        (g.bottom, g.top)
+    };
+    let vmap = |v: f64| map(v, dom, lo, hi);
+    // the bands run across the values, between these edges
+    let (start, end) = if across {
+        axis::gridlines(
+            canvas,
+            theme,
+            &b.value,
+            vmap,
+            g.top,
+            g.bottom,
+            axis::Across::Columns,
+            Some(vmap(0.0)),
+        )?;
+        // Value ticks along the bottom of every panel.
+        let row = axis::Row {
+            top: g.tick_top,
+            lo: g.left,
+            hi: g.right,
+            gap: 8.0,
+            fit: axis::Fit::AsWritten,
+            keep_left: true,
+        };
+        axis::row(canvas, obstacles, theme, size, &b.value, vmap, row)?;
+        (g.top, g.bottom)
+    } else {
+        value_ticks(canvas, theme, &b.value, dom, g, ticks_here, obstacles)?;
+        axis::gridlines(
+            canvas,
+            theme,
+            &b.value,
+            vmap,
+            g.left,
+            g.right,
+            axis::Across::Rows,
+            Some(vmap(0.0)),
+        )?;
+        (g.left, g.right)
+    };
+    let band = (end - start) / b.bars.len().max(1) as f64;
     let bands = Band {
-        orientation: Orientation::Vertical,
-        start: g.left,
+        orientation: if across {
+            Orientation::Horizontal
+        } else {
+            Orientation::Vertical
+        },
+        start,
         size: band,
     };
-    for (k, bar) in b.bars.iter().enumerate() {
+    let fit = if across { g.lead_w } else { band - 4.0 };
+    let texts: Vec<String> = (b.bars.iter())
+        .map(|bar| metrics::ellipsize(&metrics::normalize(&bar.label), size, false, fit))
+        .collect();
+    let spans: Vec<(f64, f64)> = (texts.iter().enumerate())
+        .map(|(k, text)| {
+            let c = bands.centre(k);
+            let half = if across {
+                slh / 2.0
+            } else {
+                text_width(text, size, false) / 2.0
+            };
+            (c - half, c + half)
+        })
+        .collect();
+    let keep = layout::thin(&spans, if across { 0.0 } else { 6.0 });
+    for (k, (bar, text)) in b.bars.iter().zip(&texts).enumerate() {
         let c = bands.centre(k);
         if keep.get(k).copied().unwrap_or(false) {
-            let text = metrics::ellipsize(
-                &metrics::normalize(&bar.label),
-                theme.source_size,
-                false,
-                band - 4.0,
-            );
-            kit::put(
-                canvas,
-                obstacles,
-                &muted_label(
-                    theme,
-                    theme.source_size,
-                    &text,
-                    c,
-                    g.tick_top,
-                    Align::Middle,
-                ),
-            )?;
+            let (x, top, align) = if across {
+                (g.lead_right, c - slh / 2.0, Align::End)
+            } else {
+                (c, g.tick_top, Align::Middle)
+            };
+            let label = muted_label(theme, size, text, x, top, align);
+            kit::put(canvas, obstacles, &label)?;
         }
         let (Some(color), Some(v)) = (
             mark_colour(theme, role, bar.role),
@@ -421,16 +328,12 @@ fn bars_up(
         ) else {
             continue;
         };
-        let w = (band * 0.62).min(60.0);
-        bands.mark(
-            canvas,
-            (c - w / 2.0, c + w / 2.0),
-            (vmap(0.0), vmap(v)),
-            color,
-        )?;
+        let w = (band * 0.62).min(if across { 40.0 } else { 60.0 });
+        let thick = (c - w / 2.0, c + w / 2.0);
+        bands.mark(canvas, thick, (vmap(0.0), vmap(v)), color)?;
     }
     let baseline = (theme.baseline, theme.baseline_stroke);
-    bands.rule(canvas, (g.left, g.right), vmap(0.0), baseline.0, baseline.1)
+    bands.rule(canvas, (start, end), vmap(0.0), baseline.0, baseline.1)
 }
 
 /// The width of the lead column left of each plot: the widest category

@@ -9,7 +9,7 @@ use crate::canvas::{Align, Canvas, Label};
 use crate::layout::{self, Region};
 use crate::metrics::{self, line_height};
 use crate::theme::Theme;
-use crate::RenderError;
+use crate::{Drawn, RenderError};
 use crescendo_frame::{PieChart, Role};
 use std::f64::consts::TAU;
 
@@ -27,12 +27,7 @@ fn at(c: (f64, f64), r: f64, angle: f64) -> (f64, f64) {
     (c.0 + r * angle.sin(), c.1 - r * angle.cos())
 }
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &PieChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PieChart, region: Region) -> Drawn {
     if chart
         .slices
         .iter()

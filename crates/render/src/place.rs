@@ -29,6 +29,11 @@ use crate::canvas::Canvas;
 use crate::RenderError;
 use crescendo_look::display::Rect;
 
+/// The rectangle from `(x0, y0)` (top left) to `(x1, y1)`.
+pub(crate) fn rect(x0: f64, y0: f64, x1: f64, y1: f64) -> Rect {
+    Rect { x0, y0, x1, y1 }
+}
+
 /// Margin kept around every placed text, in px.
 pub(crate) const MARGIN: f64 = 2.0;
 /// A label this far (px) or more from its anchor gets a leader line.
@@ -82,12 +87,8 @@ impl Obstacles {
 
     /// Adds the box of a mark between two corners (any order).
     pub fn add_mark(&mut self, a: (f64, f64), b: (f64, f64)) {
-        self.marks.push(Rect {
-            x0: a.0.min(b.0),
-            y0: a.1.min(b.1),
-            x1: a.0.max(b.0),
-            y1: a.1.max(b.1),
-        });
+        self.marks
+            .push(rect(a.0.min(b.0), a.1.min(b.1), a.0.max(b.0), a.1.max(b.1)));
     }
 
     /// Records a placed label box and draws its leader from `anchor` when
@@ -136,12 +137,7 @@ pub(crate) fn around(anchor: (f64, f64), w: f64, h: f64, dists: &[f64]) -> Vec<R
             (x + g, y + g),
             (x - g - w, y + g),
         ] {
-            out.push(Rect {
-                x0,
-                y0,
-                x1: x0 + w,
-                y1: y0 + h,
-            });
+            out.push(rect(x0, y0, x0 + w, y0 + h));
         }
     }
     out

@@ -5,11 +5,11 @@
 
 use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, Obstacles, Rect};
+use crate::kit::{self, rect, Obstacles, Rect};
 use crate::layout::{self, map, Region};
 use crate::metrics::{self, line_height};
 use crate::theme::Theme;
-use crate::RenderError;
+use crate::Drawn;
 use crescendo_frame::{Role, ScatterChart};
 
 /// Radius of a context dot, in px.
@@ -40,12 +40,7 @@ pub(crate) fn candidates(p: (f64, f64), r: f64, w: f64, h: f64) -> Vec<Rect> {
             (p.0 + d * 0.7, p.1 + d * 0.7),
             (p.0 - d * 0.7 - w, p.1 + d * 0.7),
         ];
-        out.extend(spots.iter().map(|&(x0, y0)| Rect {
-            x0,
-            y0,
-            x1: x0 + w,
-            y1: y0 + h,
-        }));
+        out.extend(spots.iter().map(|&(x0, y0)| rect(x0, y0, x0 + w, y0 + h)));
     }
     out
 }
@@ -56,12 +51,7 @@ pub(crate) fn best_spot(cands: &[Rect], obstacles: &Obstacles, bounds: &Rect) ->
     crate::place::pick(cands, obstacles, bounds, crate::place::Pick::Fewest)
 }
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &ScatterChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region: Region) -> Drawn {
     layout::check_axis(&chart.x, "x")?;
     layout::check_axis(&chart.y, "y")?;
     let lh = line_height(theme.label_size);
@@ -88,12 +78,7 @@ pub(crate) fn draw(
         if lo < hi && fit.slope.is_finite() && fit.intercept.is_finite() {
             let a = (xmap(lo), ymap(fit.intercept + fit.slope * lo));
             let b = (xmap(hi), ymap(fit.intercept + fit.slope * hi));
-            let plot = Rect {
-                x0: l.plot_left,
-                y0: l.plot_top,
-                x1: l.plot_right,
-                y1: l.plot_bottom,
-            };
+            let plot = rect(l.plot_left, l.plot_top, l.plot_right, l.plot_bottom);
             if let Some((a, b)) = clip_to(a, b, &plot) {
                 canvas.line(a, b, theme.context, 2)?;
                 obstacles.segments.push((a, b));
@@ -120,12 +105,12 @@ pub(crate) fn draw(
     // are few, else the focus points'. A label with no free spot is left
     // out rather than drawn over another text. (Kept small and local: the
     // candidates and the scoring are the whole placer.)
-    let bounds = Rect {
-        x0: l.plot_left,
-        y0: l.plot_top - lh / 2.0,
-        x1: l.plot_right,
-        y1: l.plot_bottom - 2.0,
-    };
+    let bounds = rect(
+        l.plot_left,
+        l.plot_top - lh / 2.0,
+        l.plot_right,
+        l.plot_bottom - 2.0,
+    );
     let labelled = finite
         .iter()
         .filter(|p| p.role != Role::Hidden && !p.label.is_empty())

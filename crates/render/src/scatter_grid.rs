@@ -12,7 +12,7 @@ use crate::metrics::line_height;
 use crate::panels::panel_title;
 use crate::scatter;
 use crate::theme::Theme;
-use crate::RenderError;
+use crate::{Drawn, RenderError};
 use crescendo_frame::{Chart, PanelChart, Role};
 
 /// Space between panels across and down.
@@ -39,12 +39,7 @@ pub(crate) fn all_scatters(chart: &PanelChart) -> bool {
             .all(|p| matches!(p.chart, Chart::Scatter(_)))
 }
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &PanelChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: Region) -> Drawn {
     let n = chart.panels.len();
     let cols = columns(n);
     let rows = n.div_ceil(cols);

@@ -19,7 +19,7 @@ use crate::kit::{faint_fill, mix};
 use crate::layout::Region;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
-use crate::RenderError;
+use crate::Drawn;
 use crescendo_frame::{Role, TableChart};
 use crescendo_look::display::Part;
 
@@ -38,12 +38,7 @@ fn row_height(theme: &Theme) -> f64 {
     line_height(theme.label_size) + 2.0 * ROW_PAD
 }
 
-pub(crate) fn draw(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &TableChart,
-    region: Region,
-) -> Result<(), RenderError> {
+pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &TableChart, region: Region) -> Drawn {
     let ncol = chart.columns.len();
     if ncol == 0 {
         return Ok(());

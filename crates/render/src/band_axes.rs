@@ -1,0 +1,198 @@
+//! The frame around a band chart (bars, stacked and grouped bars, dot
+//! plots), for either orientation: where the axis titles, the value axis
+//! and the category names go, and the plot between them. Bars and parts
+//! lay out their frame here and then draw their marks through one
+//! [`crate::band::Band`] transform.
+
+use crate::axis;
+use crate::canvas::Canvas;
+use crate::kit::Obstacles;
+use crate::layout::{self, max_width, Region};
+use crate::metrics::{self, line_height, text_width};
+use crate::theme::Theme;
+use crate::RenderError;
+use crescendo_frame::Axis;
+
+/// Space between a label column and the plot.
+pub(crate) const PAD: f64 = 12.0;
+
+/// The frame of upright bands (vertical bars): value ticks in a column at
+/// the left, the value title above, category names under the bands and
+/// the category title under them.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Upright {
+    /// The top of the plot area, below the value title.
+    pub top: f64,
+    /// The right edge of the tick column.
+    pub tick_right: f64,
+    /// The plot's left and right edges.
+    pub plot: (f64, f64),
+    /// The width of one category band.
+    pub band: f64,
+    /// The width and line count of a category name.
+    pub name_width: f64,
+    pub name_lines: usize,
+    /// The top of the category names.
+    pub names_top: f64,
+}
+
+/// Lays out and titles upright bands: `names` are the category names,
+/// `beside` the width of a column of labels kept right of the plot (none
+/// when 0).
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn upright(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    theme: &Theme,
+    region: Region,
+    value: &Axis,
+    category_title: Option<&str>,
+    names: &[&str],
+    beside: f64,
+) -> Result<Upright, RenderError> {
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
+    let ticks = layout::visible_ticks(value);
+    let tick_w = region.tick_column(max_width(
+        ticks.iter().map(|(_, l)| l.as_str()),
+        theme.label_size,
+        false,
+    ));
+    let plot_left = if tick_w > 0.0 {
+        region.left + tick_w + PAD
+    } else {
+        region.left
+    };
+    let plot_right = if beside > 0.0 {
+        region.right - beside - PAD - 8.0
+    } else {
+        region.right
+    };
+    let band = (plot_right - plot_left) / names.len().max(1) as f64;
+    let name_width = band - 8.0;
+    let two_lines = names
+        .iter()
+        .any(|n| text_width(&metrics::normalize(n), theme.label_size, false) > name_width);
+    let name_lines = if two_lines { 2 } else { 1 };
+
+    let top = axis::title_above(canvas, obstacles, theme, region, value.title.as_deref())?;
+    let mut bottom = region.bottom;
+    if let Some(title) = category_title {
+        bottom -= lh;
+        let plot = (plot_left, plot_right);
+        axis::title_centred(canvas, obstacles, theme, title, plot, bottom)?;
+        bottom -= 6.0;
+    }
+    Ok(Upright {
+        top,
+        tick_right: region.left + tick_w,
+        plot: (plot_left, plot_right),
+        band,
+        name_width,
+        name_lines,
+        names_top: bottom - (name_lines - 1) as f64 * step - lh,
+    })
+}
+
+impl Upright {
+    /// The value ticks in the column and the gridlines across the plot.
+    pub fn value_axis(
+        &self,
+        canvas: &Canvas,
+        obstacles: &mut Obstacles,
+        theme: &Theme,
+        value: &Axis,
+        vmap: impl Fn(f64) -> f64 + Copy,
+    ) -> Result<(), RenderError> {
+        let size = theme.label_size;
+        axis::column(canvas, obstacles, theme, size, value, vmap, self.tick_right)?;
+        let (left, right) = self.plot;
+        let zero = Some(vmap(0.0));
+        axis::gridlines(
+            canvas,
+            theme,
+            value,
+            vmap,
+            left,
+            right,
+            axis::Across::Rows,
+            zero,
+        )
+    }
+}
+
+/// The frame of lying bands (horizontal bars, dot rows): the category
+/// title above, an optional row of names under it, the value ticks and
+/// title under the plot.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Lying {
+    /// The top of the row of names under the category title.
+    pub names_row_top: f64,
+    /// The plot's top and bottom edges.
+    pub plot_top: f64,
+    pub plot_bottom: f64,
+    /// The top of the value title, when there is one, and of the ticks.
+    pub value_title_top: Option<f64>,
+    pub tick_top: f64,
+}
+
+/// Lays out lying bands and draws the category title: `names_row` is the
+/// height kept for a row of names above the plot (0 for none).
+pub(crate) fn lying(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    theme: &Theme,
+    region: Region,
+    (category_title, value_titled): (Option<&str>, bool),
+    names_row: f64,
+) -> Result<Lying, RenderError> {
+    let lh = line_height(theme.label_size);
+    let mut top = axis::title_above(canvas, obstacles, theme, region, category_title)?;
+    let names_row_top = top;
+    if names_row > 0.0 {
+        top += names_row;
+    }
+    let (value_title_top, tick_top, plot_bottom) =
+        axis::bottom_rows(region.bottom, lh, value_titled);
+    Ok(Lying {
+        names_row_top,
+        plot_top: top,
+        plot_bottom,
+        value_title_top,
+        tick_top,
+    })
+}
+
+impl Lying {
+    /// The value title and ticks under bars whose plot runs from `plot_left`
+    /// to `plot_right` and whose values run `values` across, ticks kept
+    /// right of `lo`, and
+    /// gridlines down the plot (none at zero, where the baseline goes).
+    pub fn value_axis(
+        &self,
+        canvas: &Canvas,
+        obstacles: &mut Obstacles,
+        theme: &Theme,
+        (value, vmap): (&Axis, impl Fn(f64) -> f64 + Copy),
+        (lo, plot_left, plot_right): (f64, f64, f64),
+        (value_left, value_right): (f64, f64),
+    ) -> Result<(), RenderError> {
+        let row = axis::Row {
+            top: self.tick_top,
+            lo,
+            hi: plot_right,
+            gap: 12.0,
+            fit: axis::Fit::AsWritten,
+            keep_left: false,
+        };
+        let under = axis::Under {
+            title: self
+                .value_title_top
+                .map(|t| (t, plot_right - plot_left, (value_left + value_right) / 2.0)),
+            row,
+            across: (self.plot_top, self.plot_bottom),
+            skip_zero: true,
+        };
+        axis::under(canvas, obstacles, theme, value, vmap, under)
+    }
+}
