@@ -10,12 +10,11 @@
 
 use std::fs::{self, File};
 use std::path::{Path, PathBuf};
-use std::time::{Duration, SystemTime, UNIX_EPOCH};
+use std::time::{SystemTime, UNIX_EPOCH};
 
 use crescendo_data::files::{OpenError, ReadAt};
-use crescendo_data::load::ReadLimits;
 use crescendo_plan::cache::{hash_hex, hash_reader, FORMAT};
-use crescendo_plan::io::{Database, Disk, Io, PluginFile, ViewCache};
+use crescendo_plan::io::{Disk, Io, ViewCache};
 use serde::de::DeserializeOwned;
 use serde::{Deserialize, Serialize};
 
@@ -182,52 +181,6 @@ impl Io for Reading {
 
     fn open(&self, dir: Option<&Path>, path: &Path) -> Result<File, OpenError> {
         self.disk.open(dir, path)
-    }
-
-    fn load_csv(
-        &self,
-        spec: &crescendo_data::CsvSpec,
-        file: &File,
-        columns: &crescendo_data::Columns,
-        limits: &ReadLimits,
-    ) -> Result<crescendo_data::Table, crescendo_data::LoadError> {
-        self.disk.load_csv(spec, file, columns, limits)
-    }
-
-    fn probe_csv(
-        &self,
-        read: (&crescendo_data::CsvSpec, &File),
-        columns: &crescendo_data::Columns,
-        sample: usize,
-        limits: &ReadLimits,
-    ) -> Result<crescendo_data::Probe, crescendo_data::LoadError> {
-        self.disk.probe_csv(read, columns, sample, limits)
-    }
-
-    fn scan_csv(
-        &self,
-        input: &crescendo_data::stream::ScanInput,
-    ) -> Result<crescendo_data::stream::ScanOutput, crescendo_data::stream::ScanFailure> {
-        self.disk.scan_csv(input)
-    }
-
-    fn load_plugin(
-        &mut self,
-        file: &PluginFile,
-    ) -> Result<crescendo_plugin_host::Plugin, crescendo_plugin_host::PluginError> {
-        self.disk.load_plugin(file)
-    }
-
-    fn env_var(&self, name: &str) -> Option<String> {
-        self.disk.env_var(name)
-    }
-
-    fn connect(
-        &mut self,
-        connection: &str,
-        timeout: Duration,
-    ) -> Result<Box<dyn Database>, crescendo_sql::SessionError> {
-        self.disk.connect(connection, timeout)
     }
 
     fn cache(&mut self) -> Option<&mut dyn ViewCache> {

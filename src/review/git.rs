@@ -7,17 +7,11 @@
 use std::fs::File;
 use std::io::{Seek, SeekFrom, Write};
 use std::path::{Component, Path, PathBuf};
-use std::time::Duration;
 
 use crescendo_data::files::OpenError;
-use crescendo_data::load::ReadLimits;
-use crescendo_data::stream::{ScanFailure, ScanInput, ScanOutput};
-use crescendo_data::{Columns, CsvSpec, LoadError, Probe, Table};
 use crescendo_diag::Diagnostic;
-use crescendo_plan::io::{Database, Disk, Io, PluginFile, ViewCache};
+use crescendo_plan::io::{Disk, Io};
 use crescendo_plan::Options;
-use crescendo_plugin_host::{Plugin, PluginError};
-use crescendo_sql::SessionError;
 
 /// The first line of a large-file pointer: a small text file kept in the
 /// repository in place of the data, which lives elsewhere.
@@ -320,50 +314,6 @@ impl Io for AtRevision<'_> {
             ))),
             Blob::Problem(why) => Err(OpenError::Io(std::io::Error::other(why))),
         }
-    }
-
-    fn load_csv(
-        &self,
-        spec: &CsvSpec,
-        file: &File,
-        columns: &Columns,
-        limits: &ReadLimits,
-    ) -> Result<Table, LoadError> {
-        self.disk.load_csv(spec, file, columns, limits)
-    }
-
-    fn probe_csv(
-        &self,
-        read: (&CsvSpec, &File),
-        columns: &Columns,
-        sample: usize,
-        limits: &ReadLimits,
-    ) -> Result<Probe, LoadError> {
-        self.disk.probe_csv(read, columns, sample, limits)
-    }
-
-    fn scan_csv(&self, input: &ScanInput) -> Result<ScanOutput, ScanFailure> {
-        self.disk.scan_csv(input)
-    }
-
-    fn load_plugin(&mut self, file: &PluginFile) -> Result<Plugin, PluginError> {
-        self.disk.load_plugin(file)
-    }
-
-    fn env_var(&self, name: &str) -> Option<String> {
-        self.disk.env_var(name)
-    }
-
-    fn connect(
-        &mut self,
-        connection: &str,
-        timeout: Duration,
-    ) -> Result<Box<dyn Database>, SessionError> {
-        self.disk.connect(connection, timeout)
-    }
-
-    fn cache(&mut self) -> Option<&mut dyn ViewCache> {
-        None
     }
 }
 

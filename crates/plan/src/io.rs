@@ -12,9 +12,13 @@
 //! streaming thread, the whole load, the house style's text) goes through
 //! the one open file, never through the path again.
 //!
-//! [`Disk`] is the plain implementation: it reads the story's files and
-//! plugins and connects to databases, and keeps no cache. The command wraps
-//! it with the cache folder beside the deck.
+//! What differs between implementations is where files come from (the
+//! required methods: confine, size, open); parsing an opened file, loading
+//! a plugin through [`Io::confine`], reading the environment and connecting
+//! to a database are provided methods that the implementations inherit.
+//! [`Disk`] is the plain implementation: today's files, no cache. The
+//! command wraps it with the cache folder beside the deck; `review` reads a
+//! git revision instead; tests read from memory.
 
 use std::fs::File;
 use std::io::Read;
@@ -62,47 +66,69 @@ pub trait Io {
     }
 
     /// The columns `columns` of a CSV file, whole, read through `file`
-    /// (opened by [`Io::open`] for `spec.path`) within `limits`.
+    /// (opened by [`Io::open`] for `spec.path`) within `limits`. Parsing an
+    /// opened file is the same everywhere, so this is rarely overridden.
     fn load_csv(
         &self,
         spec: &CsvSpec,
         file: &File,
         columns: &Columns,
         limits: &ReadLimits,
-    ) -> Result<Table, LoadError>;
+    ) -> Result<Table, LoadError> {
+        load_file(spec, file, columns, limits)
+    }
 
     /// The header and the first `sample` records of a CSV file, read
     /// through `file`.
     fn probe_csv(
         &self,
-        read: (&CsvSpec, &File),
+        (spec, file): (&CsvSpec, &File),
         columns: &Columns,
         sample: usize,
         limits: &ReadLimits,
-    ) -> Result<Probe, LoadError>;
+    ) -> Result<Probe, LoadError> {
+        probe_file(spec, file, columns, sample, limits)
+    }
 
     /// One streaming pass over a CSV file (see `crescendo_data::stream`),
     /// every thread reading the open file `input.file`.
-    fn scan_csv(&self, input: &ScanInput) -> Result<ScanOutput, ScanFailure>;
+    fn scan_csv(&self, input: &ScanInput) -> Result<ScanOutput, ScanFailure> {
+        crescendo_data::stream::scan(input, &Chunks::Auto)
+    }
 
     /// A plugin library the story names: opened once, the opened file's
-    /// real path confined like the story's other files, its bytes hashed
-    /// and checked against the pin; then exactly those bytes are loaded, or
-    /// (when only inspecting) nothing is, so no plugin code runs.
-    fn load_plugin(&mut self, file: &PluginFile) -> Result<Plugin, PluginError>;
+    /// real path confined like the story's other files (by
+    /// [`Io::confine`]), its bytes hashed and checked against the pin; then
+    /// exactly those bytes are loaded, or (when only inspecting) nothing
+    /// is, so no plugin code runs.
+    fn load_plugin(&mut self, file: &PluginFile) -> Result<Plugin, PluginError> {
+        let inside = |real: &Path| self.confine(file.dir, &real.to_string_lossy()).is_ok();
+        let verified = Verified::read(file.path, file.pin, &inside)?;
+        if file.inspect {
+            Ok(Plugin::inspected(verified))
+        } else {
+            Plugin::load_verified(verified)
+        }
+    }
 
     /// An environment variable (a database connection string).
-    fn env_var(&self, name: &str) -> Option<String>;
+    fn env_var(&self, name: &str) -> Option<String> {
+        std::env::var(name).ok()
+    }
 
     /// Open a read-only database session.
     fn connect(
         &mut self,
         connection: &str,
         timeout: Duration,
-    ) -> Result<Box<dyn Database>, SessionError>;
+    ) -> Result<Box<dyn Database>, SessionError> {
+        Ok(Box::new(Session::open(connection, timeout)?))
+    }
 
     /// The view cache, when the build keeps one.
-    fn cache(&mut self) -> Option<&mut dyn ViewCache>;
+    fn cache(&mut self) -> Option<&mut dyn ViewCache> {
+        None
+    }
 }
 
 /// A plugin library a story names, and how far to go with it.
@@ -224,56 +250,6 @@ impl Io for Disk {
             Some(dir) => crate::paths::within(dir, &self.allowed).open(path),
             None => Within::anywhere().open(path),
         }
-    }
-
-    fn load_csv(
-        &self,
-        spec: &CsvSpec,
-        file: &File,
-        columns: &Columns,
-        limits: &ReadLimits,
-    ) -> Result<Table, LoadError> {
-        load_file(spec, file, columns, limits)
-    }
-
-    fn probe_csv(
-        &self,
-        (spec, file): (&CsvSpec, &File),
-        columns: &Columns,
-        sample: usize,
-        limits: &ReadLimits,
-    ) -> Result<Probe, LoadError> {
-        probe_file(spec, file, columns, sample, limits)
-    }
-
-    fn scan_csv(&self, input: &ScanInput) -> Result<ScanOutput, ScanFailure> {
-        crescendo_data::stream::scan(input, &Chunks::Auto)
-    }
-
-    fn load_plugin(&mut self, file: &PluginFile) -> Result<Plugin, PluginError> {
-        let inside = |real: &Path| self.confine(file.dir, &real.to_string_lossy()).is_ok();
-        let verified = Verified::read(file.path, file.pin, &inside)?;
-        if file.inspect {
-            Ok(Plugin::inspected(verified))
-        } else {
-            Plugin::load_verified(verified)
-        }
-    }
-
-    fn env_var(&self, name: &str) -> Option<String> {
-        std::env::var(name).ok()
-    }
-
-    fn connect(
-        &mut self,
-        connection: &str,
-        timeout: Duration,
-    ) -> Result<Box<dyn Database>, SessionError> {
-        Ok(Box::new(Session::open(connection, timeout)?))
-    }
-
-    fn cache(&mut self) -> Option<&mut dyn ViewCache> {
-        None
     }
 }
 

@@ -8,9 +8,6 @@ use std::path::{Path, PathBuf};
 use std::time::Duration;
 
 use crescendo_data::files::{OpenError, ReadAt};
-use crescendo_data::load::ReadLimits;
-use crescendo_data::stream::{ScanFailure, ScanInput, ScanOutput};
-use crescendo_data::{Columns, CsvSpec, LoadError, Probe, Table};
 use crescendo_diag::Source;
 use crescendo_plan::io::{Database, Disk, Io, PluginFile, ViewCache};
 use crescendo_plan::{plan_story_with, Options};
@@ -48,27 +45,6 @@ impl Io for Memory {
     }
     fn open(&self, dir: Option<&Path>, path: &Path) -> Result<File, OpenError> {
         self.disk.open(dir, path)
-    }
-    fn load_csv(
-        &self,
-        spec: &CsvSpec,
-        file: &File,
-        columns: &Columns,
-        limits: &ReadLimits,
-    ) -> Result<Table, LoadError> {
-        self.disk.load_csv(spec, file, columns, limits)
-    }
-    fn probe_csv(
-        &self,
-        read: (&CsvSpec, &File),
-        c: &Columns,
-        n: usize,
-        limits: &ReadLimits,
-    ) -> Result<Probe, LoadError> {
-        self.disk.probe_csv(read, c, n, limits)
-    }
-    fn scan_csv(&self, input: &ScanInput) -> Result<ScanOutput, ScanFailure> {
-        self.disk.scan_csv(input)
     }
     fn load_plugin(&mut self, _: &PluginFile) -> Result<Plugin, PluginError> {
         Err(PluginError::Unreadable("no plugins here".into()))
