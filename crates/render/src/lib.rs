@@ -19,6 +19,7 @@ mod axis;
 mod band;
 mod bars;
 pub mod canvas;
+mod cite;
 mod dots;
 mod figures;
 mod html;
@@ -146,6 +147,7 @@ fn lay_out(
                 plugin_description = plugin::draw(&canvas, theme, chart, region, plugins)?;
             }
         }
+        cite::draw(&canvas, theme, frame, region)?;
         Ok(())
     })?;
     // A plugin's own description of its panel says more than the planner's

@@ -116,6 +116,13 @@ pub(crate) fn draw(
         }
     }
 
+    for (i, p) in chart.points.iter().enumerate() {
+        if p.x.is_finite() && p.y.is_finite() && p.role != Role::Hidden {
+            let (c, r) = ((xmap(p.x), ymap(p.y)), f64::from(FOCUS_DOT));
+            canvas.anchor((i, 0), (c.0 - r, c.1 - r), (c.0 + r, c.1 + r));
+        }
+    }
+
     // Labels beside their dots, focus points first: every point's when there
     // are few, else the focus points'. A label with no free spot is left
     // out rather than drawn over another text. (Kept small and local: the
