@@ -122,7 +122,11 @@ pub(crate) fn bar(
     let across = (centre - thickness / 2.0, centre + thickness / 2.0);
     band.mark(canvas, across, (zero, end), color)?;
     obstacles.add_mark(band.point(across.0, zero), band.point(across.1, end));
-    canvas.anchor((i, 0), band.point(across.0, zero), band.point(across.1, end));
+    canvas.anchor(
+        (i, 0),
+        band.point(across.0, zero),
+        band.point(across.1, end),
+    );
     if let Some(text) = focus_label {
         let lh = line_height(theme.label_size);
         let (x, top, align) = band.end_label(end, centre, lh, positive);

@@ -77,8 +77,18 @@ impl Canvas {
     }
 
     /// Records where slice `item` of a pie was drawn.
-    pub(crate) fn anchor_arc(&self, item: usize, centre: (f64, f64), radius: f64, (from, to): (f64, f64)) {
-        self.anchor((item, 0), (centre.0 - radius, centre.1 - radius), (centre.0 + radius, centre.1 + radius));
+    pub(crate) fn anchor_arc(
+        &self,
+        item: usize,
+        centre: (f64, f64),
+        radius: f64,
+        (from, to): (f64, f64),
+    ) {
+        self.anchor(
+            (item, 0),
+            (centre.0 - radius, centre.1 - radius),
+            (centre.0 + radius, centre.1 + radius),
+        );
         if let Some(a) = self.anchors.borrow_mut().last_mut() {
             a.arc = Some((centre, radius, from, to));
         }
@@ -94,7 +104,9 @@ impl Canvas {
         fn flat(items: &[Item], out: &mut Vec<Item>) {
             for i in items {
                 match i {
-                    Item::Group { part: Part::Tint, .. } => {}
+                    Item::Group {
+                        part: Part::Tint, ..
+                    } => {}
                     Item::Group { items, .. } => flat(items, out),
                     other => out.push(other.clone()),
                 }

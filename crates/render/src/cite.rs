@@ -252,7 +252,9 @@ fn wedge_box(c: (f64, f64), r: f64, from: f64, to: f64) -> Option<Rect> {
     let n = 16;
     hull(
         std::iter::once(c)
-            .chain((0..=n).map(|k| on_circle(c, r, from + (to - from) * f64::from(k) / f64::from(n))))
+            .chain(
+                (0..=n).map(|k| on_circle(c, r, from + (to - from) * f64::from(k) / f64::from(n))),
+            )
             .map(|p| Rect {
                 x0: p.0,
                 y0: p.1,
@@ -439,7 +441,13 @@ fn between(
     let sw = stage.sideways;
     let to_px = |across: f64, along: f64| if sw { (along, across) } else { (across, along) };
     let out = if sw { 1.0 } else { -1.0 };
-    let mid = |r: &Rect| if sw { (r.y0 + r.y1) / 2.0 } else { (r.x0 + r.x1) / 2.0 };
+    let mid = |r: &Rect| {
+        if sw {
+            (r.y0 + r.y1) / 2.0
+        } else {
+            (r.x0 + r.x1) / 2.0
+        }
+    };
     let end = |r: &Rect| if sw { r.x1 } else { r.y0 };
     let (ca, cb) = (mid(&a.rect), mid(&b.rect));
     let (lo, hi) = (ca.min(cb), ca.max(cb));
@@ -460,7 +468,9 @@ fn between(
             .filter(|r| in_lane(r))
             .filter(|r| (near_edge(r) - level) * out <= 3.0 && (far_edge(r) - level) * out >= -3.0)
             .map(far_edge)
-            .fold(None, |acc: Option<f64>, e| Some(acc.map_or(e, |x| further(x, e))));
+            .fold(None, |acc: Option<f64>, e| {
+                Some(acc.map_or(e, |x| further(x, e)))
+            });
         match blocking {
             Some(e) => level = e + out * 6.0,
             None => break,

@@ -53,7 +53,9 @@ pub(crate) fn cite(
         Err(NoProv::Literal) => {
             let mut d = cx.at(
                 "cite",
-                format!("`{name}` is computed from numbers written in the story, not from rows of data"),
+                format!(
+                    "`{name}` is computed from numbers written in the story, not from rows of data"
+                ),
                 id.span.clone(),
                 "nothing on the chart to cite",
             );
@@ -87,7 +89,19 @@ pub(crate) fn cite(
         return Err(cx.report(d));
     };
     let view = first_view(&prov);
-    if view != stmt.view.name {
+    let table = &scope.tables.by_name[&view].table;
+    // a value of another view is drawn where that view's rows have marks
+    // here: a view of the same rows (the same columns) that kept them
+    let same = view == stmt.view.name;
+    let chart_table = scope.tables.by_name.get(&stmt.view.name).map(|n| &n.table);
+    let same_grain = chart_table.is_some_and(|c| {
+        table.columns.len() == c.columns.len()
+            && table
+                .columns
+                .iter()
+                .all(|t| c.columns.iter().any(|x| x.name == t.name))
+    });
+    if !same && !same_grain {
         let mut d = cx.at(
             "cite",
             format!(
@@ -105,15 +119,36 @@ pub(crate) fn cite(
         ));
         return Err(cx.report(d));
     }
-    let table = &scope.tables.by_name[&view].table;
     let q = scope.values.by_name.get(name);
-    let shape = shape(&Marks { st, stmt: &stmt, table }, &prov)
-        .map_err(|why| {
-            let d = cx
-                .at("cite", format!("`{name}` cannot be cited on this chart: {why}"), id.span.clone(), "not drawn here")
-                .help("show the rows it was computed from, or cite it on a chart that draws them");
-            cx.report(d)
-        })?;
+    let shape = shape(
+        &Marks {
+            st,
+            stmt: &stmt,
+            table,
+        },
+        &prov,
+    )
+    .map_err(|why| {
+        let mut d = cx.at(
+            "cite",
+            format!("`{name}` cannot be cited on this chart: {why}"),
+            id.span.clone(),
+            "not drawn here",
+        );
+        if let (false, Some(at)) = (same, defined.clone()) {
+            d = d.also(cx.src, at, format!("computed from `{view}` here"));
+        }
+        let d = if same {
+            d.help("show the rows it was computed from, or cite it on a chart that draws them")
+        } else {
+            d.note(format!(
+                "this chart draws `{}`, which leaves out rows of `{view}`",
+                stmt.view.name
+            ))
+            .help(format!("a chart of `{view}` would show it"))
+        };
+        cx.report(d)
+    })?;
     let figure = q.map_or_else(String::new, |q| {
         crate::numbers::drawn(format_quantity(q, &default_spec(&prov)))
     });
@@ -183,7 +218,13 @@ struct Marks<'a> {
 impl Marks<'_> {
     /// The column playing option `o` in the chart statement.
     fn col(&self, o: OptName) -> Option<usize> {
-        let name = self.stmt.opts.iter().find(|x| x.name == o)?.column.as_ref()?;
+        let name = self
+            .stmt
+            .opts
+            .iter()
+            .find(|x| x.name == o)?
+            .column
+            .as_ref()?;
         self.table.columns.iter().position(|c| c.name == name.name)
     }
 
@@ -220,25 +261,49 @@ impl Marks<'_> {
         };
         let one = |item| Ok(MarkRef { item, part: 0 });
         match &self.st.chart {
-            Chart::Bars(b) => {
-                one(by_name(b.bars.iter().map(|x| x.label.as_str()).collect(), self.col(OptName::Category), "category")?)
-            }
-            Chart::Pie(p) => {
-                one(by_name(p.slices.iter().map(|x| x.label.as_str()).collect(), self.col(OptName::Category), "category")?)
-            }
+            Chart::Bars(b) => one(by_name(
+                b.bars.iter().map(|x| x.label.as_str()).collect(),
+                self.col(OptName::Category),
+                "category",
+            )?),
+            Chart::Pie(p) => one(by_name(
+                p.slices.iter().map(|x| x.label.as_str()).collect(),
+                self.col(OptName::Category),
+                "category",
+            )?),
             Chart::Parts(p) => {
                 let part_col = self.col(OptName::Stack).or(self.col(OptName::Group));
                 Ok(MarkRef {
-                    item: by_name(p.categories.iter().map(|x| x.label.as_str()).collect(), self.col(OptName::Category), "category")?,
-                    part: by_name(p.parts.iter().map(|x| x.name.as_str()).collect(), part_col, "stack or group")?,
+                    item: by_name(
+                        p.categories.iter().map(|x| x.label.as_str()).collect(),
+                        self.col(OptName::Category),
+                        "category",
+                    )?,
+                    part: by_name(
+                        p.parts.iter().map(|x| x.name.as_str()).collect(),
+                        part_col,
+                        "stack or group",
+                    )?,
                 })
             }
             Chart::Dots(d) => Ok(MarkRef {
-                item: by_name(d.rows.iter().map(|x| x.label.as_str()).collect(), self.col(OptName::Category), "category")?,
-                part: by_name(d.series.iter().map(|x| x.name.as_str()).collect(), self.col(OptName::Series), "series")?,
+                item: by_name(
+                    d.rows.iter().map(|x| x.label.as_str()).collect(),
+                    self.col(OptName::Category),
+                    "category",
+                )?,
+                part: by_name(
+                    d.series.iter().map(|x| x.name.as_str()).collect(),
+                    self.col(OptName::Series),
+                    "series",
+                )?,
             }),
             Chart::Line(l) => {
-                let s = by_name(l.series.iter().map(|x| x.name.as_str()).collect(), self.col(OptName::Series), "series")?;
+                let s = by_name(
+                    l.series.iter().map(|x| x.name.as_str()).collect(),
+                    self.col(OptName::Series),
+                    "series",
+                )?;
                 let x = self
                     .col(OptName::X)
                     .and_then(|c| provenance::position(&self.cell(c, r)))
@@ -251,11 +316,18 @@ impl Marks<'_> {
                 Ok(MarkRef { item: s, part: k })
             }
             Chart::Scatter(sc) => {
-                let at = |o| self.col(o).and_then(|c| provenance::position(&self.cell(c, r)));
+                let at = |o| {
+                    self.col(o)
+                        .and_then(|c| provenance::position(&self.cell(c, r)))
+                };
                 let (Some(x), Some(y)) = (at(OptName::X), at(OptName::Y)) else {
                     return Err("name the x and y columns in the chart statement".into());
                 };
-                one(sc.points.iter().position(|p| p.x == x && p.y == y).ok_or("that point is not drawn in this chart")?)
+                one(sc
+                    .points
+                    .iter()
+                    .position(|p| p.x == x && p.y == y)
+                    .ok_or("that point is not drawn in this chart")?)
             }
             _ => Err("`cite` draws on line, bars, dots, scatter and pie charts".into()),
         }
@@ -267,7 +339,10 @@ impl Marks<'_> {
             .rows
             .iter()
             .copied()
-            .filter(|r| p.column.is_some_and(|c| !matches!(self.cell(c, *r), Value::Missing)))
+            .filter(|r| {
+                p.column
+                    .is_some_and(|c| !matches!(self.cell(c, *r), Value::Missing))
+            })
             .collect();
         let row = match p.func.as_str() {
             "first" => present.first().copied(),
@@ -407,4 +482,3 @@ mod tests {
         assert_eq!(p, vec![(1.0, 2.0), (3.0, 6.0)]);
     }
 }
-

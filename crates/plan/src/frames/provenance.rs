@@ -107,7 +107,11 @@ fn pair(at: (&Scope, &Arc<Source>), a: &Expr, b: &Expr, depth: usize) -> Result<
 /// `where` filter through the view engine, then `by` order, rows without a
 /// position skipped).
 fn pick((scope, src): (&Scope, &Arc<Source>), func: &str, s: &Selection) -> Result<Picked, NoProv> {
-    let named = scope.tables.by_name.get(&s.view.name).ok_or(NoProv::Broken)?;
+    let named = scope
+        .tables
+        .by_name
+        .get(&s.view.name)
+        .ok_or(NoProv::Broken)?;
     let table: &Table = &named.table;
     let schema = schema_of(table);
     let find = |name: &str| table.columns.iter().position(|c| c.name == name);
@@ -124,8 +128,8 @@ fn pick((scope, src): (&Scope, &Arc<Source>), func: &str, s: &Selection) -> Resu
         None => (0..n).collect(),
         Some(f) => {
             let mut diags = Vec::new();
-            let cond = rows::check_condition(src, &schema, "", f, &mut diags)
-                .ok_or(NoProv::Broken)?;
+            let cond =
+                rows::check_condition(src, &schema, "", f, &mut diags).ok_or(NoProv::Broken)?;
             let mut t = table.clone();
             t.columns.push(data::Column {
                 name: "\u{0}row".into(),
