@@ -166,6 +166,14 @@ pub enum Part {
     },
     /// Everything the chart form drew in its region.
     Chart,
+    /// The figure of a `cite`d value (empty when no spot clear of text
+    /// was found); `covers` when it could only go over data.
+    Cite {
+        /// The value's name.
+        value: String,
+        /// The figure covers a data mark or line, or was not drawn.
+        covers: bool,
+    },
     /// A light fill behind the data (a highlighted band, a shaded or
     /// tinted table row): a background, not a mark, so the marks' contrast
     /// rules do not apply to it.

@@ -99,13 +99,15 @@ impl Canvas {
         self.anchors.borrow().clone()
     }
 
-    /// Every item drawn so far, groups opened included, flattened.
+    /// Every item drawn so far, groups opened included, flattened (the
+    /// painted page and light tints left out: they are backgrounds).
     pub(crate) fn drawn(&self) -> Vec<Item> {
         fn flat(items: &[Item], out: &mut Vec<Item>) {
             for i in items {
                 match i {
                     Item::Group {
-                        part: Part::Tint, ..
+                        part: Part::Tint | Part::Page,
+                        ..
                     } => {}
                     Item::Group { items, .. } => flat(items, out),
                     other => out.push(other.clone()),
@@ -114,7 +116,7 @@ impl Canvas {
         }
         let mut out = Vec::new();
         for (part, items) in self.open.borrow().iter() {
-            if *part != Some(Part::Tint) {
+            if !matches!(part, Some(Part::Tint | Part::Page)) {
                 flat(items, &mut out);
             }
         }

@@ -20,7 +20,7 @@ use crate::place::{self, Obstacles, Pick};
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{Chart, Cite, CiteShape, FramePlan, MarkRef, Orientation};
-use crescendo_look::display::{Item, Rect};
+use crescendo_look::display::{Item, Part, Rect};
 
 /// Distances (px) at which the figure is tried around its anchor.
 const DISTANCES: [f64; 5] = [8.0, 20.0, 40.0, 70.0, 110.0];
@@ -36,28 +36,26 @@ struct Stage {
     sideways: bool,
 }
 
-/// Draws every cite of `frame`. Returns the values whose figure could not
-/// be placed without covering data (for the build's warning).
+/// Draws every cite of `frame`. Each figure is recorded in a
+/// [`Part::Cite`] group that says whether it had to cover data (the lint
+/// warns about it, naming the frame).
 pub(crate) fn draw(
     canvas: &Canvas,
     theme: &Theme,
     frame: &FramePlan,
     region: Region,
-) -> Result<Vec<String>, RenderError> {
+) -> Result<(), RenderError> {
     if frame.cites.is_empty() {
-        return Ok(Vec::new());
+        return Ok(());
     }
     let Some(stage) = stage(canvas, theme, frame, region) else {
-        return Ok(Vec::new());
+        return Ok(());
     };
     let mut obstacles = obstacles_of(&canvas.drawn());
-    let mut covering = Vec::new();
     for c in &frame.cites {
-        if !one(canvas, theme, &stage, c, &mut obstacles)? {
-            covering.push(c.value.clone());
-        }
+        one(canvas, theme, &stage, c, &mut obstacles)?;
     }
-    Ok(covering)
+    Ok(())
 }
 
 fn stage(canvas: &Canvas, theme: &Theme, frame: &FramePlan, region: Region) -> Option<Stage> {
@@ -264,32 +262,31 @@ fn wedge_box(c: (f64, f64), r: f64, from: f64, to: f64) -> Option<Rect> {
     )
 }
 
-/// Draws one cite; false when its figure had to cover data (or found no
-/// room at all).
+/// Draws one cite (nothing when its marks are not drawn in this frame).
 fn one(
     canvas: &Canvas,
     theme: &Theme,
     stage: &Stage,
     cite: &Cite,
     obstacles: &mut Obstacles,
-) -> Result<bool, RenderError> {
+) -> Result<(), RenderError> {
     let find = |m: &MarkRef| stage.marks.iter().find(|a| a.mark == *m).copied();
     let anchor = match &cite.shape {
         CiteShape::Between { from, to } => {
             let (Some(a), Some(b)) = (find(from), find(to)) else {
-                return Ok(true);
+                return Ok(());
             };
             between(canvas, theme, stage, (a, b), obstacles)?
         }
         CiteShape::Change { from, to } => {
             let (Some(a), Some(b)) = (find(from), find(to)) else {
-                return Ok(true);
+                return Ok(());
             };
             change(canvas, theme, (centre(&a.rect), centre(&b.rect)), obstacles)?
         }
         CiteShape::One { mark } => {
             let Some(a) = find(mark) else {
-                return Ok(true);
+                return Ok(());
             };
             outline(canvas, theme, stage, &a, obstacles)?
         }
@@ -305,12 +302,12 @@ fn one(
                     let h = hull(found.iter().map(|a| a.rect)).unwrap_or(stage.plot);
                     end_of(stage, &h)
                 }
-                _ => return Ok(true),
+                _ => return Ok(()),
             }
         }
         CiteShape::Path { points } => {
             let Some(((ax, bx), (ay, by))) = stage.map else {
-                return Ok(true);
+                return Ok(());
             };
             let px: Vec<(f64, f64)> = points
                 .iter()
@@ -321,11 +318,11 @@ fn one(
             obstacles.add_polyline(&px);
             match px.last() {
                 Some(p) => *p,
-                None => return Ok(true),
+                None => return Ok(()),
             }
         }
     };
-    figure(canvas, theme, stage, &cite.figure, anchor, obstacles)
+    figure(canvas, theme, stage, cite, anchor, obstacles)
 }
 
 /// Where a label of a bar goes from: the middle of its end.
@@ -337,39 +334,45 @@ fn end_of(stage: &Stage, r: &Rect) -> (f64, f64) {
     }
 }
 
-/// Places the figure near `anchor` through the label placer; false when
-/// it could only go over data.
+/// Places the figure near `anchor` through the label placer, in a
+/// [`Part::Cite`] group that says whether it could only go over data.
 fn figure(
     canvas: &Canvas,
     theme: &Theme,
     stage: &Stage,
-    text: &str,
+    cite: &Cite,
     anchor: (f64, f64),
     obstacles: &mut Obstacles,
-) -> Result<bool, RenderError> {
+) -> Result<(), RenderError> {
+    let text = cite.figure.as_str();
     if text.is_empty() {
-        return Ok(true);
+        return Ok(());
     }
     let (w, h) = (
         text_width(text, theme.label_size, true),
         line_height(theme.label_size),
     );
     let cands = place::around(anchor, w, h, &DISTANCES);
-    let Some(r) = place::pick(&cands, obstacles, &stage.plot, Pick::FirstFree) else {
-        return Ok(false);
+    let chosen = place::pick(&cands, obstacles, &stage.plot, Pick::FirstFree);
+    let part = Part::Cite {
+        value: cite.value.clone(),
+        covers: chosen.is_none_or(|r| !obstacles.free(&r)),
     };
-    let free = obstacles.free(&r);
+    let Some(r) = chosen else {
+        return canvas.group(part, || Ok(()));
+    };
     obstacles.place(canvas, theme.muted, Some(anchor), r)?;
-    canvas.text(&Label {
-        text,
-        x: r.x0,
-        top: r.y0,
-        size: theme.label_size,
-        bold: true,
-        color: theme.takeaway,
-        align: Align::Start,
-    })?;
-    Ok(free)
+    canvas.group(part, || {
+        canvas.text(&Label {
+            text,
+            x: r.x0,
+            top: r.y0,
+            size: theme.label_size,
+            bold: true,
+            color: theme.takeaway,
+            align: Align::Start,
+        })
+    })
 }
 
 /// A mark outlined (a bar or a segment), ringed (a point) or its rim
@@ -476,6 +479,12 @@ fn between(
             None => break,
         }
     }
+    // never past the plot's far edge
+    level = if sw {
+        level.min(stage.plot.x1 - 2.0)
+    } else {
+        level.max(stage.plot.y0 + 2.0)
+    };
     let legs = |c: f64, r: &Rect| [to_px(c, end(r) + out * 3.0), to_px(c, level)];
     let bracket = [
         legs(ca, &a.rect)[0],

@@ -153,6 +153,8 @@ pub(crate) fn cite(
         crate::numbers::drawn(format_quantity(q, &default_spec(&prov)))
     });
     st.cites.retain(|(c, _)| c.value != *name);
+    st.anchors.cites.retain(|(v, _)| v != name);
+    st.anchors.cites.push((name.clone(), span.clone()));
     st.cites.push((
         Cite {
             value: name.clone(),
