@@ -334,6 +334,25 @@ fn a_refreshed_value_moves_its_annotation() {
     let _ = fs::remove_dir_all(&dir);
 }
 
+/// A cite stays through its sequence, and keeps its place while the
+/// build-up shows, hides and lights other marks.
+#[test]
+fn a_cite_keeps_its_place_through_the_sequence() {
+    let dir = root().join("tests/cite");
+    let frames = "frame \"a\" {\n  line months: x month, y sales, series store\n  hide all\n  show \"North\"\n  cite north_peak\n}\n\
+                  frame \"b\" {\n  show all\n}\n\
+                  frame \"c\" {\n  spotlight \"South\"\n}\n\
+                  frame \"d\" {\n  bars stores: category store, value sales\n  cite shop_ratio\n}\n\
+                  frame \"e\" {\n  spotlight \"Northgate\"\n}\n";
+    let deck = plan(&dir, &format!("{DATA}{frames}")).plan;
+    let at: Vec<Rect> = (deck.frames.iter())
+        .map(|f| check_geometry(&f.headline, &deck, f).bounds)
+        .collect();
+    assert_eq!(at[0], at[1], "line: showing South moved the figure");
+    assert_eq!(at[0], at[2], "line: lighting South moved the figure");
+    assert_eq!(at[3], at[4], "bars: lighting Northgate moved the figure");
+}
+
 /// A value of a view cited on a chart of a view of the same rows that
 /// kept its row: drawn there.
 #[test]

@@ -34,6 +34,10 @@ struct Stage {
     map: Option<((f64, f64), (f64, f64))>,
     /// Bars that grow sideways.
     sideways: bool,
+    /// What the figure avoids in every frame of the sequence, drawn or not
+    /// in this one (every line, hidden ones too; the room of every bar's
+    /// value label), so it keeps its place while the build-up changes.
+    steady: Obstacles,
 }
 
 /// Draws every cite of `frame`. Each figure is recorded in a
@@ -52,6 +56,10 @@ pub(crate) fn draw(
         return Ok(());
     };
     let mut obstacles = obstacles_of(&canvas.drawn());
+    obstacles.marks.extend(stage.steady.marks.iter().copied());
+    obstacles
+        .segments
+        .extend(stage.steady.segments.iter().copied());
     for c in &frame.cites {
         one(canvas, theme, &stage, c, &mut obstacles)?;
     }
@@ -72,6 +80,12 @@ fn stage(canvas: &Canvas, theme: &Theme, frame: &FramePlan, region: Region) -> O
             let xm = |x: f64| map(x, dx, l.plot_left, l.plot_right);
             let ym = |y: f64| map(y, dy, l.plot_bottom, l.plot_top);
             let mut marks = Vec::new();
+            let mut steady = Obstacles::default();
+            for s in &chart.series {
+                for run in crate::line::runs(s, &xm, &ym) {
+                    steady.add_polyline(&run);
+                }
+            }
             for (i, s) in chart.series.iter().enumerate() {
                 for (k, p) in s.points.iter().enumerate() {
                     if let Some(y) = p.y.filter(|y| y.is_finite() && p.x.is_finite()) {
@@ -92,6 +106,7 @@ fn stage(canvas: &Canvas, theme: &Theme, frame: &FramePlan, region: Region) -> O
                 },
                 map: ax.zip(ay),
                 sideways: false,
+                steady,
             })
         }
         Chart::Bars(_) | Chart::Parts(_) | Chart::Dots(_) | Chart::Scatter(_) | Chart::Pie(_) => {
@@ -123,15 +138,36 @@ fn stage(canvas: &Canvas, theme: &Theme, frame: &FramePlan, region: Region) -> O
                 Chart::Scatter(s) => scatter_map(&marks, s),
                 _ => None,
             };
+            let steady = label_room(&frame.chart, &marks, sideways, theme);
             Some(Stage {
                 marks,
                 plot,
                 map,
                 sideways,
+                steady,
             })
         }
         _ => None,
     }
+}
+
+/// The room of every bar's value label past its end, whether or not this
+/// frame labels it (a spotlight labels the bars it lights).
+fn label_room(chart: &Chart, marks: &[Anchor], sideways: bool, theme: &Theme) -> Obstacles {
+    let mut o = Obstacles::default();
+    if !matches!(chart, Chart::Bars(_) | Chart::Parts(_)) {
+        return o;
+    }
+    let lh = line_height(theme.label_size);
+    for a in marks {
+        let r = a.rect;
+        if sideways {
+            o.add_mark((r.x1, r.y0), (r.x1 + 8.0 + 4.0 * lh, r.y1));
+        } else {
+            o.add_mark((r.x0, r.y0 - 6.0 - lh), (r.x1, r.y0));
+        }
+    }
+    o
 }
 
 /// The box around a point mark.
