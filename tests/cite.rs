@@ -353,6 +353,18 @@ fn a_cite_keeps_its_place_through_the_sequence() {
     assert_eq!(at[3], at[4], "bars: lighting Northgate moved the figure");
 }
 
+/// Small multiples end the cites of their sequence: each panel is a chart
+/// of its own.
+#[test]
+fn a_split_ends_the_cites() {
+    let dir = root().join("tests/cite");
+    let frames = "frame \"a\" {\n  line months: x month, y sales, series store\n  cite north_peak\n}\n\
+                  frame \"b\" {\n  split store\n}\n";
+    let deck = plan(&dir, &format!("{DATA}{frames}")).plan;
+    assert_eq!(deck.frames[0].cites.len(), 1);
+    assert!(deck.frames[1].cites.is_empty());
+}
+
 /// A value of a view cited on a chart of a view of the same rows that
 /// kept its row: drawn there.
 #[test]

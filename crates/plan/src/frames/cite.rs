@@ -168,8 +168,15 @@ pub(crate) fn cite(
 
 /// The figure of each value cited in this frame, as this frame's texts
 /// quote it (the same number policy as the text), kept through the rest
-/// of the sequence.
+/// of the sequence (until `split` turns it into small multiples).
 pub(crate) fn settle(st: &mut SeqState, quoted: &BTreeMap<String, String>) {
+    if matches!(st.chart, Chart::Panels(_)) {
+        // small multiples end the cites of the sequence (each panel is a
+        // chart of its own; cite the value on one chart)
+        st.cites.clear();
+        st.anchors.cites.clear();
+        return;
+    }
     for (c, fresh) in &mut st.cites {
         if *fresh {
             if let Some(f) = quoted.get(&c.value) {
@@ -177,6 +184,81 @@ pub(crate) fn settle(st: &mut SeqState, quoted: &BTreeMap<String, String>) {
             }
             *fresh = false;
         }
+    }
+}
+
+/// The sentence a screen reader hears about the frame's cites, in the
+/// story's language (empty without cites).
+pub(crate) fn describe(chart: &Chart, cites: &[Cite]) -> String {
+    let s = crate::sentences::current();
+    let fill = crate::sentences::fill;
+    let mut out = String::new();
+    for c in cites {
+        let name = |m: &MarkRef| mark_name(chart, m);
+        out.push_str(&match &c.shape {
+            CiteShape::Between { from, to } => {
+                fill(s.cited_pair, &[&c.figure, &name(from), &name(to)])
+            }
+            CiteShape::Change { from, to } => {
+                fill(s.cited_change, &[&c.figure, &name(from), &name(to)])
+            }
+            CiteShape::One { mark } => fill(s.cited, &[&c.figure, &name(mark)]),
+            CiteShape::Part { marks } => {
+                let names: Vec<String> = marks.iter().map(name).collect();
+                fill(s.cited, &[&c.figure, &names.join(", ")])
+            }
+            CiteShape::Path { .. } => fill(s.cited_path, &[&c.figure]),
+        });
+    }
+    out
+}
+
+/// A mark as its reader would name it: the bar, the category and part,
+/// the series and the time.
+fn mark_name(chart: &Chart, m: &MarkRef) -> String {
+    let two = |a: Option<&str>, b: Option<&str>| match (a, b) {
+        (Some(a), Some(b)) => format!("{a} {b}"),
+        (a, b) => a.or(b).unwrap_or_default().to_string(),
+    };
+    match chart {
+        Chart::Bars(b) => b
+            .bars
+            .get(m.item)
+            .map(|x| x.label.clone())
+            .unwrap_or_default(),
+        Chart::Pie(p) => p
+            .slices
+            .get(m.item)
+            .map(|x| x.label.clone())
+            .unwrap_or_default(),
+        Chart::Parts(p) => two(
+            p.categories.get(m.item).map(|x| x.label.as_str()),
+            p.parts.get(m.part).map(|x| x.name.as_str()),
+        ),
+        Chart::Dots(d) => two(
+            d.rows.get(m.item).map(|x| x.label.as_str()),
+            (d.series.len() > 1)
+                .then(|| d.series.get(m.part).map(|x| x.name.as_str()))
+                .flatten(),
+        ),
+        Chart::Line(l) => {
+            let s = l.series.get(m.item);
+            let at = s
+                .and_then(|s| s.points.get(m.part))
+                .map(|p| crate::describe::tick_label(&l.x, p.x));
+            two(
+                (l.series.len() > 1)
+                    .then(|| s.map(|s| s.name.as_str()))
+                    .flatten(),
+                at.as_deref(),
+            )
+        }
+        Chart::Scatter(sc) => sc
+            .points
+            .get(m.item)
+            .map(|p| p.label.clone())
+            .unwrap_or_default(),
+        _ => String::new(),
     }
 }
 

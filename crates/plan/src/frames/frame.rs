@@ -372,7 +372,8 @@ fn finish(
         // labels of quantities the texts quote print as quoted, in the
         // chart and in its description alike
         crate::numbers::write_labels(&mut chart, &said.texts.numbers);
-        let description = describe(&chart, &st.key_name, said.takeaway.as_deref());
+        let mut description = describe(&chart, &st.key_name, said.takeaway.as_deref());
+        description.push_str(&cite::describe(&chart, &cites));
         // The slug comes from the headline's own words, its quoted values
         // left out, so file names stay the same when the numbers change
         // and never carry the words of an expression.
