@@ -358,7 +358,8 @@ fn a_cite_keeps_its_place_through_the_sequence() {
 #[test]
 fn a_split_ends_the_cites() {
     let dir = root().join("tests/cite");
-    let frames = "frame \"a\" {\n  line months: x month, y sales, series store\n  cite north_peak\n}\n\
+    let frames =
+        "frame \"a\" {\n  line months: x month, y sales, series store\n  cite north_peak\n}\n\
                   frame \"b\" {\n  split store\n}\n";
     let deck = plan(&dir, &format!("{DATA}{frames}")).plan;
     assert_eq!(deck.frames[0].cites.len(), 1);
@@ -399,6 +400,10 @@ fn cite_errors_are_located() {
         (
             "many_rows",
             "value all = sum(stores.sales)\nframe \"f\" {\n  bars stores: category store, value sales\n  cite all\n}",
+        ),
+        (
+            "hidden",
+            "frame \"f\" {\n  line months: x month, y sales, series store\n  hide all\n  show \"South\"\n  cite north_peak\n}",
         ),
         (
             "unknown",

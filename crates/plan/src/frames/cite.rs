@@ -187,6 +187,62 @@ pub(crate) fn settle(st: &mut SeqState, quoted: &BTreeMap<String, String>) {
     }
 }
 
+/// A value cited in this frame (`within`) whose marks the frame hides
+/// (after any `unfold` shows them all) is an error: nothing would show it.
+pub(crate) fn check_shown(
+    cx: &mut Ctx,
+    chart: &Chart,
+    cites: &[Cite],
+    said: &[(String, Span)],
+    within: &Span,
+) -> Outcome<()> {
+    for c in cites {
+        let Some((_, span)) = said
+            .iter()
+            .find(|(v, s)| *v == c.value && s.start >= within.start && s.end <= within.end)
+        else {
+            continue;
+        };
+        let marks = match &c.shape {
+            CiteShape::Between { from, to } | CiteShape::Change { from, to } => vec![*from, *to],
+            CiteShape::One { mark } => vec![*mark],
+            CiteShape::Part { marks } => marks.clone(),
+            CiteShape::Path { .. } => Vec::new(),
+        };
+        if let Some(m) = marks.iter().find(|m| hidden(chart, m)) {
+            let what = mark_name(chart, m);
+            let d = cx
+                .at(
+                    "cite",
+                    format!("`{}` rests on \"{what}\", which this frame hides", c.value),
+                    span.clone(),
+                    "hidden here",
+                )
+                .help("show it (`show` or `spotlight`) before citing the value");
+            return Err(cx.report(d));
+        }
+    }
+    Ok(())
+}
+
+/// Whether a mark is hidden in this frame.
+fn hidden(chart: &Chart, m: &MarkRef) -> bool {
+    let h = |r: Option<Role>| r == Some(Role::Hidden);
+    match chart {
+        Chart::Bars(b) => h(b.bars.get(m.item).map(|x| x.role)),
+        Chart::Pie(p) => h(p.slices.get(m.item).map(|x| x.role)),
+        Chart::Parts(p) => {
+            h(p.categories.get(m.item).map(|x| x.role)) || h(p.parts.get(m.part).map(|x| x.role))
+        }
+        Chart::Dots(d) => {
+            h(d.rows.get(m.item).map(|x| x.role)) || h(d.series.get(m.part).map(|x| x.role))
+        }
+        Chart::Line(l) => h(l.series.get(m.item).map(|x| x.role)),
+        Chart::Scatter(s) => h(s.points.get(m.item).map(|x| x.role)),
+        _ => false,
+    }
+}
+
 /// The sentence a screen reader hears about the frame's cites, in the
 /// story's language (empty without cites).
 pub(crate) fn describe(chart: &Chart, cites: &[Cite]) -> String {

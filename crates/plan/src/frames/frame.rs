@@ -364,11 +364,15 @@ fn finish(
     let steps = unfold::steps(cx, st, said.unfold.as_ref(), budget)?;
     let source = deck_source.map(|s| s.text.clone());
     let mut frames = Vec::with_capacity(steps.len());
-    for shown in steps {
+    let last = steps.len().saturating_sub(1);
+    for (k, shown) in steps.into_iter().enumerate() {
         if let Some(n) = &shown {
             st.hidden.remove(n);
         }
         let mut chart = roles::apply_state(st);
+        if k == last {
+            cite::check_shown(cx, &chart, &cites, &st.anchors.cites, &f.span)?;
+        }
         // labels of quantities the texts quote print as quoted, in the
         // chart and in its description alike
         crate::numbers::write_labels(&mut chart, &said.texts.numbers);
