@@ -19,7 +19,7 @@ use crate::metrics::{line_height, text_width};
 use crate::place::{self, Obstacles, Pick};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_frame::{Chart, Cite, CiteShape, FramePlan, MarkRef, Orientation};
+use crescendo_frame::{Chart, Cite, CiteShape, FramePlan, MarkRef, Orientation, PartsMode};
 use crescendo_look::display::{Item, Part, Rect};
 
 /// Distances (px) at which the figure is tried around its anchor.
@@ -34,6 +34,9 @@ struct Stage {
     map: Option<((f64, f64), (f64, f64))>,
     /// Bars that grow sideways.
     sideways: bool,
+    /// Stacked parts: a part's figure goes beside it, not past its end
+    /// (where the total is).
+    stacked: bool,
     /// What the figure avoids in every frame of the sequence, drawn or not
     /// in this one (every line, hidden ones too; the room of every bar's
     /// value label), so it keeps its place while the build-up changes.
@@ -106,6 +109,7 @@ fn stage(canvas: &Canvas, theme: &Theme, frame: &FramePlan, region: Region) -> O
                 },
                 map: ax.zip(ay),
                 sideways: false,
+                stacked: false,
                 steady,
             })
         }
@@ -139,11 +143,13 @@ fn stage(canvas: &Canvas, theme: &Theme, frame: &FramePlan, region: Region) -> O
                 _ => None,
             };
             let steady = label_room(&frame.chart, &marks, sideways, theme);
+            let stacked = matches!(&frame.chart, Chart::Parts(p) if p.mode == PartsMode::Stacked);
             Some(Stage {
                 marks,
                 plot,
                 map,
                 sideways,
+                stacked,
                 steady,
             })
         }
@@ -388,7 +394,15 @@ fn figure(
         text_width(text, theme.label_size, true),
         line_height(theme.label_size),
     );
-    let cands = place::around(anchor, w, h, &DISTANCES);
+    // spots whose leader would cross a text come last
+    let crosses = |r: &Rect| {
+        place::leader(anchor, r)
+            .is_some_and(|(a, b)| obstacles.boxes.iter().any(|t| t.hit_by(a, b)))
+    };
+    let (mut cands, later): (Vec<Rect>, Vec<Rect>) = place::around(anchor, w, h, &DISTANCES)
+        .into_iter()
+        .partition(|r| !crosses(r));
+    cands.extend(later);
     let chosen = place::pick(&cands, obstacles, &stage.plot, Pick::FirstFree);
     let part = Part::Cite {
         value: cite.value.clone(),
@@ -450,7 +464,11 @@ fn outline(
     ];
     canvas.polyline(&frame, theme.takeaway, 2)?;
     obstacles.add_mark((g.x0, g.y0), (g.x1, g.y1));
-    Ok(end_of(stage, &g))
+    Ok(match (stage.stacked, stage.sideways) {
+        (true, false) => (g.x1, (g.y0 + g.y1) / 2.0),
+        (true, true) => ((g.x0 + g.x1) / 2.0, g.y1),
+        _ => end_of(stage, &g),
+    })
 }
 
 /// Two marks compared: a bracket past the ends of two bars, or a connector
