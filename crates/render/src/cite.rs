@@ -490,6 +490,10 @@ fn between(
         let (ux, uy) = (dx / len * 8.0, dy / len * 8.0);
         let seg = [(p.0 + ux, p.1 + uy), (q.0 - ux, q.1 - uy)];
         canvas.polyline(&seg, theme.takeaway, 1)?;
+        for end in [p, q] {
+            canvas.dot(end, 4, theme.takeaway)?;
+            obstacles.add_mark((end.0 - 4.0, end.1 - 4.0), (end.0 + 4.0, end.1 + 4.0));
+        }
         obstacles.add_polyline(&seg);
         return Ok(((p.0 + q.0) / 2.0, (p.1 + q.1) / 2.0));
     }
