@@ -66,6 +66,10 @@ const FRAMES: &[(&str, &str)] = &[
         "frame \"Northgate is {north_share as percent to 1 decimal} of sales\" {\n  pie stores: category store, value sales\n  cite north_share\n}",
     ),
     (
+        "pie_ratio",
+        "frame \"Northgate sells {shop_ratio to 2 decimals}× Riverside\" {\n  pie stores: category store, value sales\n  cite shop_ratio\n}",
+    ),
+    (
         "scatter_slope",
         "frame \"Each opening hour brings {hours_slope to 1 decimal} in sales\" {\n  scatter stores: x hours, y sales, label store\n  cite hours_slope\n}",
     ),

@@ -484,7 +484,12 @@ fn between(
         && (a.rect.x1 - a.rect.x0).max(a.rect.y1 - a.rect.y0) > 16.0
         && (b.rect.x1 - b.rect.x0).max(b.rect.y1 - b.rect.y0) > 16.0;
     if !bars {
-        let (p, q) = (centre(&a.rect), centre(&b.rect));
+        // a slice is met inside its arc, a point at its centre
+        let at = |x: &Anchor| match x.arc {
+            Some((c, r, from, to)) => on_circle(c, r * 0.7, (from + to) / 2.0),
+            None => centre(&x.rect),
+        };
+        let (p, q) = (at(&a), at(&b));
         let (dx, dy) = (q.0 - p.0, q.1 - p.1);
         let len = (dx * dx + dy * dy).sqrt().max(1.0);
         let (ux, uy) = (dx / len * 8.0, dy / len * 8.0);
