@@ -41,6 +41,7 @@ value first_north = first(months.sales by month where store = "North")
 value first_south = first(months.sales by month where store = "South")
 value first_gap = first_south - first_north
 value north_peak = max(months.sales where store = "North")
+value first_to_last = percent_change(stores.sales)
 "#;
 
 /// (name, frame) for every function × form combination.
@@ -64,6 +65,14 @@ const FRAMES: &[(&str, &str)] = &[
     (
         "pie_share",
         "frame \"Northgate is {north_share as percent to 1 decimal} of sales\" {\n  pie stores: category store, value sales\n  cite north_share\n}",
+    ),
+    (
+        "bars_change",
+        "frame \"Bayview sells {first_to_last as signed percent to 0 decimals} against Northgate\" {\n  bars stores: category store, value sales\n  cite first_to_last\n}",
+    ),
+    (
+        "sideways_grouped_ratio",
+        "frame \"Fresh is {fresh_ratio as percent to 0 decimals} of pantry at Northgate\" {\n  bars kinds: category store, value sales, group kind, horizontal\n  cite fresh_ratio\n}",
     ),
     (
         "pie_ratio",
@@ -253,6 +262,8 @@ fn every_function_and_form_draws_its_evidence() {
         };
         let want = match *name {
             n if n.ends_with("ratio") || n.ends_with("difference") => "between",
+            // a change between two bars is a bracket
+            "bars_change" => "between",
             n if n.ends_with("share") => "part",
             n if n.ends_with("change") => "change",
             n if n.ends_with("growth") || n.ends_with("slope") => "path",
