@@ -312,23 +312,41 @@ fn one(
     cite: &Cite,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
+    let anchor = canvas.group(Part::Evidence, || {
+        evidence(canvas, theme, stage, cite, obstacles)
+    })?;
+    let Some(anchor) = anchor else {
+        return Ok(());
+    };
+    figure(canvas, theme, stage, cite, anchor, obstacles)
+}
+
+/// Draws what a cite marks on the data; returns where its figure goes
+/// from (`None` when its marks are not drawn in this frame).
+fn evidence(
+    canvas: &Canvas,
+    theme: &Theme,
+    stage: &Stage,
+    cite: &Cite,
+    obstacles: &mut Obstacles,
+) -> Result<Option<(f64, f64)>, RenderError> {
     let find = |m: &MarkRef| stage.marks.iter().find(|a| a.mark == *m).copied();
     let anchor = match &cite.shape {
         CiteShape::Between { from, to } => {
             let (Some(a), Some(b)) = (find(from), find(to)) else {
-                return Ok(());
+                return Ok(None);
             };
             between(canvas, theme, stage, (a, b), obstacles)?
         }
         CiteShape::Change { from, to } => {
             let (Some(a), Some(b)) = (find(from), find(to)) else {
-                return Ok(());
+                return Ok(None);
             };
             change(canvas, theme, (centre(&a.rect), centre(&b.rect)), obstacles)?
         }
         CiteShape::One { mark } => {
             let Some(a) = find(mark) else {
-                return Ok(());
+                return Ok(None);
             };
             outline(canvas, theme, stage, &a, obstacles)?
         }
@@ -344,12 +362,12 @@ fn one(
                     let h = hull(found.iter().map(|a| a.rect)).unwrap_or(stage.plot);
                     end_of(stage, &h)
                 }
-                _ => return Ok(()),
+                _ => return Ok(None),
             }
         }
         CiteShape::Path { points } => {
             let Some(((ax, bx), (ay, by))) = stage.map else {
-                return Ok(());
+                return Ok(None);
             };
             let px: Vec<(f64, f64)> = points
                 .iter()
@@ -360,11 +378,11 @@ fn one(
             obstacles.add_polyline(&px);
             match px.last() {
                 Some(p) => *p,
-                None => return Ok(()),
+                None => return Ok(None),
             }
         }
     };
-    figure(canvas, theme, stage, cite, anchor, obstacles)
+    Ok(Some(anchor))
 }
 
 /// Where a label of a bar goes from: the middle of its end.
