@@ -295,6 +295,7 @@ mod tests {
             quoted: Default::default(),
             templates: Default::default(),
             notices: Vec::new(),
+            cites: Vec::new(),
             chart: Chart::Figures(FigureChart {
                 figures: Vec::new(),
             }),

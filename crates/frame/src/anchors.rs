@@ -52,6 +52,8 @@ pub struct FrameAnchors {
     pub measure_is_count: bool,
     /// A line over text categories.
     pub x_is_text: bool,
+    /// `cite VALUE` statements in effect: the value's name and where.
+    pub cites: Vec<(String, Span)>,
 }
 
 /// Positions that concern the whole story.

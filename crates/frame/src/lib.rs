@@ -8,7 +8,9 @@
 //! diagnostics); [`style`] is a validated house style.
 
 pub mod anchors;
+mod cite;
 mod model;
 pub mod style;
 
+pub use cite::*;
 pub use model::*;

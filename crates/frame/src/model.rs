@@ -98,6 +98,9 @@ pub struct FramePlan {
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub notices: Vec<String>,
     pub chart: Chart,
+    /// `cite VALUE`: values whose evidence is drawn on the chart.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub cites: Vec<crate::Cite>,
 }
 
 /// What a frame draws.

@@ -586,6 +586,11 @@ pub enum FrameStmt {
         text: Text,
         span: Span,
     },
+    /// `cite VALUE`: the evidence of a named value drawn on the chart.
+    Cite {
+        value: Ident,
+        span: Span,
+    },
     /// `label ends`
     LabelEnds {
         span: Span,
@@ -618,6 +623,7 @@ impl FrameStmt {
             | FrameStmt::Callout { span, .. }
             | FrameStmt::Band { span, .. }
             | FrameStmt::Reference { span, .. }
+            | FrameStmt::Cite { span, .. }
             | FrameStmt::LabelEnds { span }
             | FrameStmt::Gridlines { span, .. } => span.clone(),
         }

@@ -196,6 +196,7 @@ pub fn walk_frame_stmt<'a, V: Visit<'a> + ?Sized>(v: &mut V, stmt: &'a FrameStmt
             s.order.iter().for_each(|o| v.visit_str(o));
         }
         FrameStmt::Unfold { order, .. } => order.iter().for_each(|o| v.visit_str(o)),
+        FrameStmt::Cite { value, .. } => v.visit_ident(value),
         FrameStmt::Callout { at, on, text, .. } => {
             walk_position(v, at);
             if let Some(on) = on {

@@ -166,6 +166,17 @@ pub enum Part {
     },
     /// Everything the chart form drew in its region.
     Chart,
+    /// The outlines, brackets and paths a `cite` draws over the data: an
+    /// annotation, not a mark (the marks' colour rules skip it).
+    Evidence,
+    /// The figure of a `cite`d value (empty when no spot clear of text
+    /// was found); `covers` when it could only go over data.
+    Cite {
+        /// The value's name.
+        value: String,
+        /// The figure covers a data mark or line, or was not drawn.
+        covers: bool,
+    },
     /// A light fill behind the data (a highlighted band, a shaded or
     /// tinted table row): a background, not a mark, so the marks' contrast
     /// rules do not apply to it.
@@ -276,13 +287,14 @@ impl DisplayList {
     }
 
     /// The distinct mark colours drawn in the chart ([`Mark`]), in the
-    /// order first drawn.
+    /// order first drawn (light tints and a cite's evidence are not marks).
     pub fn marks(&self) -> Vec<Mark> {
         fn walk(items: &[Item], in_chart: bool, out: &mut Vec<Mark>) {
             for item in items {
                 let mark = match item {
                     Item::Group {
-                        part: Part::Tint, ..
+                        part: Part::Tint | Part::Evidence,
+                        ..
                     } => None,
                     Item::Group { part, items } => {
                         walk(items, in_chart || *part == Part::Chart, out);

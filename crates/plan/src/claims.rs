@@ -34,6 +34,7 @@ pub(crate) fn define_value(cx: &mut Ctx, scope: &mut Scope, v: &ast::ValueDecl) 
     let values = &mut scope.values;
     values.spans.insert(name.clone(), v.name.span.clone());
     values.deps.insert(name.clone(), deps);
+    values.exprs.insert(name.clone(), v.expr.clone());
     match result {
         Ok(q) => {
             values.by_name.insert(name.clone(), q);

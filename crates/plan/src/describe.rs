@@ -53,7 +53,7 @@ fn measure(a: &Axis) -> String {
 }
 
 /// A position on an axis as its reader would name it.
-fn tick_label(axis: &Axis, v: f64) -> String {
+pub(crate) fn tick_label(axis: &Axis, v: f64) -> String {
     match axis.scale {
         ScaleKind::Months => time::month_label(v.round() as i32),
         ScaleKind::Days => time::date_text(v.round() as i32),

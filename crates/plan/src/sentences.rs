@@ -33,6 +33,14 @@ pub(crate) struct Sentences {
     pub separate_scales: &'static str,
     pub plugin: &'static str,
     pub takeaway: &'static str,
+    /// `cite`: one mark or the marks of a share.
+    pub cited: &'static str,
+    /// `cite`: a ratio or difference of two marks.
+    pub cited_pair: &'static str,
+    /// `cite`: a change from one point to another.
+    pub cited_change: &'static str,
+    /// `cite`: a growth or fit drawn as a path.
+    pub cited_path: &'static str,
 }
 
 const EN: Sentences = Sentences {
@@ -62,6 +70,10 @@ const EN: Sentences = Sentences {
     separate_scales: "separate scales",
     plugin: "Chart drawn by the plugin {1} {2} (form {3}).",
     takeaway: " Takeaway: {1}",
+    cited: " Marked: {1} at {2}.",
+    cited_pair: " Marked: {1} between {2} and {3}.",
+    cited_change: " Marked: {1} from {2} to {3}.",
+    cited_path: " Marked: {1}, as a thin path over the data.",
 };
 
 const DE: Sentences = Sentences {
@@ -92,6 +104,10 @@ const DE: Sentences = Sentences {
     separate_scales: "getrennten Skalen",
     plugin: "Diagramm des Plugins {1} {2} (Form {3}).",
     takeaway: " Kernaussage: {1}",
+    cited: " Markiert: {1} bei {2}.",
+    cited_pair: " Markiert: {1} zwischen {2} und {3}.",
+    cited_change: " Markiert: {1} von {2} bis {3}.",
+    cited_path: " Markiert: {1}, als dünne Linie über den Daten.",
 };
 
 const FR: Sentences = Sentences {
@@ -120,6 +136,10 @@ const FR: Sentences = Sentences {
     separate_scales: "des échelles séparées",
     plugin: "Graphique dessiné par le plugin {1} {2} (forme {3}).",
     takeaway: " À retenir\u{a0}: {1}",
+    cited: " Marqué\u{a0}: {1} à {2}.",
+    cited_pair: " Marqué\u{a0}: {1} entre {2} et {3}.",
+    cited_change: " Marqué\u{a0}: {1} de {2} à {3}.",
+    cited_path: " Marqué\u{a0}: {1}, en tracé fin sur les données.",
 };
 
 const ES: Sentences = Sentences {
@@ -150,6 +170,10 @@ const ES: Sentences = Sentences {
     separate_scales: "escalas separadas",
     plugin: "Gráfico dibujado por el plugin {1} {2} (forma {3}).",
     takeaway: " Conclusión: {1}",
+    cited: " Marcado: {1} en {2}.",
+    cited_pair: " Marcado: {1} entre {2} y {3}.",
+    cited_change: " Marcado: {1} de {2} a {3}.",
+    cited_path: " Marcado: {1}, como trazo fino sobre los datos.",
 };
 
 /// The patterns of a language (`de`), `None` when crescendo ships none.

@@ -27,6 +27,12 @@ pub(crate) struct SeqState {
     pub(crate) measure_name: String,
     /// Where things were said, for the lint.
     pub(crate) anchors: FrameAnchors,
+    /// The chart statement that started the sequence (`cite` reads which
+    /// column plays which part).
+    pub(crate) chart_stmt: Option<crescendo_lang::ast::ChartStmt>,
+    /// `cite`d values, each with whether its figure may still follow how
+    /// this frame's texts quote it.
+    pub(crate) cites: Vec<(crescendo_frame::Cite, bool)>,
 }
 
 impl SeqState {
@@ -45,6 +51,8 @@ impl SeqState {
             cells: BTreeSet::new(),
             measure_name: String::new(),
             anchors: FrameAnchors::default(),
+            chart_stmt: None,
+            cites: Vec::new(),
         }
     }
 }

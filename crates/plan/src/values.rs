@@ -62,6 +62,8 @@ pub struct Values {
     pub broken: BTreeSet<String>,
     /// Where each value was defined.
     pub spans: BTreeMap<String, std::ops::Range<usize>>,
+    /// Each value's definition (for `cite`, which draws where it came from).
+    pub exprs: BTreeMap<String, Expr>,
 }
 
 impl Values {

@@ -122,6 +122,11 @@ pub(crate) fn bar(
     let across = (centre - thickness / 2.0, centre + thickness / 2.0);
     band.mark(canvas, across, (zero, end), color)?;
     obstacles.add_mark(band.point(across.0, zero), band.point(across.1, end));
+    canvas.anchor(
+        (i, 0),
+        band.point(across.0, zero),
+        band.point(across.1, end),
+    );
     if let Some(text) = focus_label {
         let lh = line_height(theme.label_size);
         let (x, top, align) = band.end_label(end, centre, lh, positive);
@@ -218,6 +223,7 @@ pub(crate) fn parts(
         band.mark(canvas, across(j), (vmap(*a), vmap(*b)), *color)?;
         let (f, t) = across(j);
         obstacles.add_mark(band.point(f, vmap(*a)), band.point(t, vmap(*b)));
+        canvas.anchor((c, j), band.point(f, vmap(*a)), band.point(t, vmap(*b)));
     }
     let Some((total, role)) = total else {
         return Ok(());

@@ -38,6 +38,17 @@ pub struct Label<'a> {
 pub struct Canvas {
     /// The open groups, innermost last; the first is the whole list.
     open: RefCell<Vec<(Option<Part>, Vec<Item>)>>,
+    /// Where the plan's marks were drawn (for notes bound to values).
+    anchors: RefCell<Vec<Anchor>>,
+}
+
+/// Where a mark of the plan was drawn: its box and, for a pie slice, its
+/// arc (centre, radius, from, to). Read by [`crate::cite`].
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) struct Anchor {
+    pub mark: crescendo_frame::MarkRef,
+    pub rect: crescendo_look::display::Rect,
+    pub arc: Option<((f64, f64), f64, f64, f64)>,
 }
 
 impl Canvas {
@@ -46,7 +57,70 @@ impl Canvas {
     pub fn new() -> Self {
         Self {
             open: RefCell::new(vec![(None, Vec::new())]),
+            anchors: RefCell::new(Vec::new()),
         }
+    }
+
+    /// Records where mark (`item`, `part`) of the plan was drawn, between
+    /// two corners (any order).
+    pub(crate) fn anchor(&self, (item, part): (usize, usize), a: (f64, f64), b: (f64, f64)) {
+        self.anchors.borrow_mut().push(Anchor {
+            mark: crescendo_frame::MarkRef { item, part },
+            rect: crescendo_look::display::Rect {
+                x0: a.0.min(b.0),
+                y0: a.1.min(b.1),
+                x1: a.0.max(b.0),
+                y1: a.1.max(b.1),
+            },
+            arc: None,
+        });
+    }
+
+    /// Records where slice `item` of a pie was drawn.
+    pub(crate) fn anchor_arc(
+        &self,
+        item: usize,
+        centre: (f64, f64),
+        radius: f64,
+        (from, to): (f64, f64),
+    ) {
+        self.anchor(
+            (item, 0),
+            (centre.0 - radius, centre.1 - radius),
+            (centre.0 + radius, centre.1 + radius),
+        );
+        if let Some(a) = self.anchors.borrow_mut().last_mut() {
+            a.arc = Some((centre, radius, from, to));
+        }
+    }
+
+    /// The marks recorded with [`Canvas::anchor`], in drawing order.
+    pub(crate) fn anchors(&self) -> Vec<Anchor> {
+        self.anchors.borrow().clone()
+    }
+
+    /// Every item drawn so far, groups opened included, flattened (the
+    /// painted page and light tints left out: they are backgrounds).
+    pub(crate) fn drawn(&self) -> Vec<Item> {
+        fn flat(items: &[Item], out: &mut Vec<Item>) {
+            for i in items {
+                match i {
+                    Item::Group {
+                        part: Part::Tint | Part::Page,
+                        ..
+                    } => {}
+                    Item::Group { items, .. } => flat(items, out),
+                    other => out.push(other.clone()),
+                }
+            }
+        }
+        let mut out = Vec::new();
+        for (part, items) in self.open.borrow().iter() {
+            if !matches!(part, Some(Part::Tint | Part::Page)) {
+                flat(items, &mut out);
+            }
+        }
+        out
     }
 
     fn push(&self, item: Item) -> Result<(), RenderError> {

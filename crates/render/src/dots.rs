@@ -112,6 +112,12 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &DotChart, region: Reg
         }
         let focus_row = !any_focus_series && row.role == Role::Focus;
         row_marks(canvas, theme, chart, row, (y, radius), vmap, focus_row)?;
+        for (j, (s, v)) in chart.series.iter().zip(&row.values).enumerate() {
+            if let (Some(v), true) = (v.filter(|v| v.is_finite()), s.role != Role::Hidden) {
+                let (x, r) = (vmap(v), radius.max(4.0));
+                canvas.anchor((i, j), (x - r, y - r), (x + r, y + r));
+            }
+        }
     }
 
     // Series names above the top row, over each series' first dot.

@@ -20,6 +20,7 @@ mod band;
 mod band_axes;
 mod bars;
 pub mod canvas;
+mod cite;
 mod dots;
 mod figures;
 mod html;
@@ -152,6 +153,7 @@ fn lay_out(
                 plugin_description = plugin::draw(&canvas, theme, chart, region, plugins)?;
             }
         }
+        cite::draw(&canvas, theme, frame, region)?;
         Ok(())
     })?;
     // A plugin's own description of its panel says more than the planner's

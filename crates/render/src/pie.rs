@@ -72,6 +72,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PieChart, region: Reg
             continue;
         }
         canvas.wedge(c, radius, (a0, a1), color)?;
+        canvas.anchor_arc(i, c, radius, (a0, a1));
     }
     // Cuts between slices, where at least one neighbour is drawn.
     let n = chart.slices.len();

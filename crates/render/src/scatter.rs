@@ -101,6 +101,8 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
         }
     }
 
+    anchor_points(canvas, chart, (&xmap, &ymap));
+
     // Labels beside their dots, focus points first: every point's when there
     // are few, else the focus points'. A label with no free spot is left
     // out rather than drawn over another text. (Kept small and local: the
@@ -184,6 +186,19 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
         }
     }
     Ok(())
+}
+
+/// A map from data to canvas px along one axis.
+type Map<'a> = &'a dyn Fn(f64) -> f64;
+
+/// Records where each drawn point is, for notes bound to values.
+fn anchor_points(canvas: &Canvas, chart: &ScatterChart, (xmap, ymap): (Map, Map)) {
+    for (i, p) in chart.points.iter().enumerate() {
+        if p.x.is_finite() && p.y.is_finite() && p.role != Role::Hidden {
+            let (c, r) = ((xmap(p.x), ymap(p.y)), f64::from(FOCUS_DOT));
+            canvas.anchor((i, 0), (c.0 - r, c.1 - r), (c.0 + r, c.1 + r));
+        }
+    }
 }
 
 /// The part of segment `a`–`b` inside `plot` (Liang–Barsky clipping, a

@@ -86,6 +86,7 @@ fn frame(
         quoted: Default::default(),
         templates: Default::default(),
         notices: Vec::new(),
+        cites: Vec::new(),
         chart,
     }
 }

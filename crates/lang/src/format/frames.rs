@@ -211,6 +211,10 @@ impl Printer<'_> {
                 self.s(" ");
                 self.raw(&text.span);
             }
+            FrameStmt::Cite { value, .. } => {
+                self.s("cite ");
+                self.raw(&value.span);
+            }
             FrameStmt::LabelEnds { .. } => self.s("label ends"),
             FrameStmt::Gridlines { on, .. } => {
                 self.s(if *on { "gridlines" } else { "gridlines off" })

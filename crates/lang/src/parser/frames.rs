@@ -71,6 +71,10 @@ impl Conv<'_> {
                 text: self.text(part(2)?),
                 span,
             },
+            Rule::cite_stmt => FrameStmt::Cite {
+                value: self.ident(part(1)?),
+                span,
+            },
             Rule::label_ends_stmt => FrameStmt::LabelEnds { span },
             Rule::gridlines_stmt => FrameStmt::Gridlines {
                 on: !inner.iter().any(|p| p.as_rule() == Rule::kw_off),

@@ -867,3 +867,29 @@ fn a_comma_in_an_add_step_says_one_column_per_step() {
     let (_, d) = parse_str("view v = d | keep a > 1, b\n");
     assert!(!d[0].message.contains("`add`"), "{}", d[0].message);
 }
+
+#[test]
+fn cite_names_one_value() {
+    let text = "frame \"a\" {\n  cite quarry_ratio\n}\n";
+    let (ast, diags) = parse_str(text);
+    assert!(diags.is_empty(), "{diags:?}");
+    let Item::Frame(a) = &ast.items[0] else {
+        panic!()
+    };
+    let FrameStmt::Cite { value, span } = &a.stmts[0] else {
+        panic!("{:?}", a.stmts)
+    };
+    assert_eq!(value.name, "quarry_ratio");
+    assert_eq!(&text[span.clone()], "cite quarry_ratio");
+    // a quoted name, two names, or none: located on its line
+    for bad in ["cite \"x\"", "cite a b", "cite"] {
+        let (_, diags) = parse_str(&format!("frame \"a\" {{\n  {bad}\n}}\n"));
+        assert_eq!(diags.len(), 1, "{bad}: {diags:#?}");
+        assert_eq!(diags[0].location().map(|l| l.1), Some(2), "{bad}");
+    }
+    // a misspelling gets a suggestion; `cite` is still a name elsewhere
+    let (_, diags) = parse_str("frame \"a\" { cit x }\n");
+    assert_eq!(diags[0].help.as_deref(), Some("did you mean `cite`?"));
+    let (_, diags) = parse_str("view cite = d\n");
+    assert!(diags.is_empty(), "{diags:?}");
+}

@@ -6,6 +6,7 @@ mod bars_cramped_labels;
 mod bars_crowded;
 mod bars_off_zero;
 mod bars_unsorted;
+mod cite_covers_data;
 mod colour_key_text;
 mod conclusion_missing;
 mod figure_echoes_headline;
@@ -72,6 +73,7 @@ pub static RULES: &[&Rule] = &[
     &panels_own_scales::RULE,
     &frame_empty::RULE,
     &figure_echoes_headline::RULE,
+    &cite_covers_data::RULE,
     &small_counts::RULE,
     &source_missing::RULE,
     &conclusion_missing::RULE,

@@ -13,7 +13,7 @@ use crate::describe::describe;
 use crate::forms;
 use crate::frames::texts::FrameTexts;
 use crate::frames::unfold::{self, Budget};
-use crate::frames::{annotations, axes, roles, split, targets};
+use crate::frames::{annotations, axes, cite, roles, split, targets};
 use crate::header::Header;
 use crate::labels::slug;
 use crate::model::*;
@@ -121,6 +121,10 @@ fn statement(
                 return Err(broken(deck, cx.report(d)));
             }
             let started = forms::start(cx, &deck.scope.tables, deck.header.compare.as_ref(), c);
+            let started = started.map(|mut st| {
+                st.chart_stmt = Some(c.clone());
+                st
+            });
             open(deck, started)
         }
         FrameStmt::Draw(d) => {
@@ -311,6 +315,7 @@ fn build_up(
             annotations::reference(cx, scope, st, *value, text, span)?
         }
         FrameStmt::LabelEnds { span } => annotations::label_ends(cx, st, span)?,
+        FrameStmt::Cite { value, span } => cite::cite(cx, scope, st, value, span)?,
         FrameStmt::Gridlines { on, span } => axes::gridlines(cx, st, *on, span)?,
         FrameStmt::Unfold { order, span } => {
             if said.unfold.replace((order.clone(), span.clone())).is_some() {
@@ -354,18 +359,25 @@ fn finish(
         allows: own.allows,
         ..st.anchors.clone()
     };
+    cite::settle(st, &said.texts.quoted);
+    let cites: Vec<_> = st.cites.iter().map(|c| c.0.clone()).collect();
     let steps = unfold::steps(cx, st, said.unfold.as_ref(), budget)?;
     let source = deck_source.map(|s| s.text.clone());
     let mut frames = Vec::with_capacity(steps.len());
-    for shown in steps {
+    let last = steps.len().saturating_sub(1);
+    for (k, shown) in steps.into_iter().enumerate() {
         if let Some(n) = &shown {
             st.hidden.remove(n);
         }
         let mut chart = roles::apply_state(st);
+        if k == last {
+            cite::check_shown(cx, &chart, &cites, &st.anchors.cites, &f.span)?;
+        }
         // labels of quantities the texts quote print as quoted, in the
         // chart and in its description alike
         crate::numbers::write_labels(&mut chart, &said.texts.numbers);
-        let description = describe(&chart, &st.key_name, said.takeaway.as_deref());
+        let mut description = describe(&chart, &st.key_name, said.takeaway.as_deref());
+        description.push_str(&cite::describe(&chart, &cites));
         // The slug comes from the headline's own words, its quoted values
         // left out, so file names stay the same when the numbers change
         // and never carry the words of an expression.
@@ -382,6 +394,7 @@ fn finish(
             templates: BTreeMap::new(),
             notices: Vec::new(),
             chart,
+            cites: cites.clone(),
         });
     }
     Ok(Made {

@@ -4,7 +4,9 @@
 
 mod annotations;
 mod axes;
+mod cite;
 mod frame;
+mod provenance;
 mod roles;
 mod split;
 mod targets;
