@@ -166,6 +166,10 @@ pub enum Part {
     },
     /// Everything the chart form drew in its region.
     Chart,
+    /// The plot rectangle of a chart with axes (empty: a mark for readers
+    /// of the layout): left and right are the plot's edges, the same on
+    /// every chart frame of a deck; top and bottom span the value range.
+    Plot(Rect),
     /// A light fill behind the data (a highlighted band, a shaded or
     /// tinted table row): a background, not a mark, so the marks' contrast
     /// rules do not apply to it.

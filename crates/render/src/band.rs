@@ -78,21 +78,30 @@ impl Band {
 }
 
 /// The column of category names beside horizontal bars: as wide as the
-/// widest name up to `cap`, and two lines when a name is wider than that
-/// and a band has room for two. Returns the width and the line count.
-pub(crate) fn name_column(widest: f64, cap: f64, band: f64, step: f64) -> (f64, usize) {
-    let lines = if widest > cap && band >= 2.0 * step {
+/// widest name up to `cap`, and at least the deck's `gutter` (so the plot
+/// starts where every other frame's does); two lines when a name is wider
+/// than that and a band has room for two. Returns the width and the line
+/// count.
+pub(crate) fn name_column(
+    widest: f64,
+    (cap, gutter): (f64, f64),
+    band: f64,
+    step: f64,
+) -> (f64, usize) {
+    let width = widest.min(cap).max(gutter);
+    let lines = if widest > width && band >= 2.0 * step {
         2
     } else {
         1
     };
-    (widest.min(cap), lines)
+    (width, lines)
 }
 
 /// Room past the ends of the marks for labels `width` wide (when
 /// `labelled`): below zero when the domain has negative values, above it
-/// when it has positive ones. Returns (below, above).
-pub(crate) fn end_room(dom: [f64; 2], width: f64, labelled: bool) -> (f64, f64) {
+/// when it has positive ones, less the `gutter` kept beyond the plot's end
+/// for them. Returns (below, above).
+pub(crate) fn end_room(dom: [f64; 2], width: f64, labelled: bool, gutter: f64) -> (f64, f64) {
     let room = |needed: bool| {
         if labelled && needed {
             width + VALUE_GAP
@@ -100,7 +109,7 @@ pub(crate) fn end_room(dom: [f64; 2], width: f64, labelled: bool) -> (f64, f64) 
             0.0
         }
     };
-    (room(dom[0] < 0.0), room(dom[1] > 0.0))
+    (room(dom[0] < 0.0), (room(dom[1] > 0.0) - gutter).max(0.0))
 }
 
 /// One bar of a bar chart: its mark from `zero` to `end` and, in focus, its

@@ -63,11 +63,13 @@ pub(crate) fn upright(
     } else {
         region.left
     };
-    let plot_right = if beside > 0.0 {
-        region.right - beside - PAD - 8.0
+    // the deck's label gutter holds the plot's right edge still
+    let own = if beside > 0.0 {
+        beside + layout::PART_NAMES_PAD
     } else {
-        region.right
+        0.0
     };
+    let plot_right = region.right - own.max(region.label_gutter);
     let band = (plot_right - plot_left) / names.len().max(1) as f64;
     let name_width = band - 8.0;
     let two_lines = names

@@ -5,7 +5,7 @@
 
 use crate::band::{self, Band, VALUE_GAP};
 use crate::band_axes::{self, PAD};
-use crate::canvas::{Align, Canvas, Label, WIDTH};
+use crate::canvas::{Align, Canvas, Label};
 use crate::kit::Obstacles;
 use crate::layout::{self, map, max_width, Region};
 use crate::metrics::line_height;
@@ -15,8 +15,6 @@ use crescendo_frame::{Bar, BarChart, Orientation, Role};
 
 /// Share of a category band filled by the bar.
 const BAR_SHARE: f64 = 0.62;
-/// Widest category column of horizontal bars, as a share of the canvas.
-const MAX_CATEGORY_SHARE: f64 = 0.3;
 
 fn bar_color(theme: &Theme, bar: &Bar) -> Option<crate::theme::Rgb> {
     match bar.role {
@@ -127,6 +125,7 @@ fn vertical(
         value_bottom -= lh + VALUE_GAP;
     }
     let vmap = |v: f64| map(v, domain, value_bottom, value_top);
+    canvas.plot((u.plot.0, value_top), (u.plot.1, value_bottom))?;
     u.value_axis(canvas, obstacles, theme, &chart.value, vmap)?;
     let bands = Band {
         orientation: Orientation::Vertical,
@@ -173,15 +172,15 @@ fn horizontal(
 
     let n = chart.bars.len().max(1);
     let band = (plot_bottom - plot_top) / n as f64;
-    let cap = WIDTH as f64 * MAX_CATEGORY_SHARE;
+    let cap = (region.right - region.left) * layout::NAME_COLUMN_SHARE;
     let widest = max_width(
         chart.bars.iter().map(|b| b.label.as_str()),
         theme.label_size,
         false,
     );
-    let (col_w, cat_lines) = band::name_column(widest, cap, band, step);
+    let (col_w, cat_lines) = band::name_column(widest, (cap, region.gutter), band, step);
     let col_right = region.left + col_w;
-    let plot = (col_right + PAD, region.right);
+    let plot = (col_right + PAD, region.right - region.label_gutter);
 
     // Room for value labels beyond the ends of the bars.
     let value_w = max_width(
@@ -189,10 +188,11 @@ fn horizontal(
         theme.label_size,
         true,
     );
-    let (left_pad, right_pad) = band::end_room(domain, value_w, true);
+    let (left_pad, right_pad) = band::end_room(domain, value_w, true, region.label_gutter);
     let values = (plot.0 + left_pad, plot.1 - right_pad);
     let vmap = |v: f64| map(v, domain, values.0, values.1);
     let value = (&chart.value, vmap);
+    canvas.plot((plot.0, plot_top), (plot.1, plot_bottom))?;
     let plot_span = (region.left, plot.0, plot.1);
     l.value_axis(canvas, obstacles, theme, value, plot_span, values)?;
     let bands = Band {

@@ -76,6 +76,13 @@ impl Canvas {
         result
     }
 
+    /// Marks the plot rectangle of a chart with axes, from `(x0, y0)` to
+    /// `(x1, y1)`, for readers of the layout ([`Part::Plot`]); draws nothing.
+    pub fn plot(&self, (x0, y0): (f64, f64), (x1, y1): (f64, f64)) -> Result<(), RenderError> {
+        let r = crescendo_look::display::Rect { x0, y0, x1, y1 };
+        self.group(Part::Plot(r), || Ok(()))
+    }
+
     /// One line of text (the caller has measured and fitted it).
     pub fn text(&self, label: &Label<'_>) -> Result<(), RenderError> {
         if label.text.is_empty() {

@@ -6,16 +6,11 @@
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, spread_widths, Obstacles};
 use crate::layout::{self, Region};
-use crate::metrics::{self, line_height, text_width};
+use crate::metrics::{line_height, text_width};
 use crate::part_slots::{extents, roomiest, Slots};
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{PartsChart, Role};
-
-/// Space between the plot and a column of names.
-const PAD: f64 = 12.0;
-/// Widest a part name may be (at 16 px labels; [`Theme::label_scaled`]).
-const MAX_PART_LABEL: f64 = 240.0;
 
 /// Where the part names go: beside vertical bars (`rows` is the span they
 /// may take, right of `plot_right`), or above and beside horizontal ones
@@ -27,17 +22,8 @@ pub(crate) enum Naming {
 
 /// The part names as drawn (bold width, cut to the widest a name may be).
 pub(crate) fn names(theme: &Theme, chart: &PartsChart) -> Vec<String> {
-    chart
-        .parts
-        .iter()
-        .map(|p| {
-            metrics::ellipsize(
-                &metrics::normalize(&p.name),
-                theme.label_size,
-                true,
-                theme.label_scaled(MAX_PART_LABEL),
-            )
-        })
+    (chart.parts.iter())
+        .map(|p| layout::part_name(theme, &p.name))
         .collect()
 }
 
@@ -155,7 +141,7 @@ fn stacked_beside(
     let wanted = n.segments(true);
     let ys: Vec<f64> = wanted.iter().map(|w| w.0).collect();
     let placed = layout::spread(&ys, n.step, rows_top, value_bottom);
-    let x = plot_right + PAD + 8.0;
+    let x = plot_right + layout::PART_NAMES_PAD;
     for (&(y0, j, bar_right), y) in wanted.iter().zip(placed) {
         let Some(label) = n.label(j, x, y - n.lh / 2.0, Align::Start) else {
             continue;

@@ -24,8 +24,6 @@ use crescendo_frame::{Orientation, PartsChart, PartsMode, Role};
 /// Share of a category band filled by its bar (stacked) or group.
 const BAR_SHARE: f64 = 0.62;
 const GROUP_SHARE: f64 = 0.8;
-/// Widest category column of horizontal bars, as a share of the region.
-const MAX_CATEGORY_SHARE: f64 = 0.3;
 
 /// The value domain widened to include zero (bars start at zero).
 fn domain(chart: &PartsChart) -> [f64; 2] {
@@ -220,6 +218,7 @@ fn vertical(
         top - (y - 6.0 - rows)
     });
     let vmap = |v: f64| map(v, dom, value_bottom, value_top);
+    canvas.plot((u.plot.0, value_top), (u.plot.1, value_bottom))?;
     u.value_axis(canvas, obstacles, theme, &chart.value, vmap)?;
     let bands = Band {
         orientation: Orientation::Vertical,
@@ -265,15 +264,15 @@ fn horizontal(
 
     let n = chart.categories.len().max(1);
     let band = (plot_bottom - plot_top) / n as f64;
-    let cap = (region.right - region.left) * MAX_CATEGORY_SHARE;
+    let cap = (region.right - region.left) * layout::NAME_COLUMN_SHARE;
     let widest = max_width(
         chart.categories.iter().map(|c| c.label.as_str()),
         theme.label_size,
         true,
     );
-    let (col_w, cat_lines) = band::name_column(widest, cap, band, step);
+    let (col_w, cat_lines) = band::name_column(widest, (cap, region.gutter), band, step);
     let col_right = region.left + col_w;
-    let plot = (col_right + PAD, region.right);
+    let plot = (col_right + PAD, region.right - region.label_gutter);
 
     let total_w = if stacked {
         max_width(
@@ -284,7 +283,7 @@ fn horizontal(
     } else {
         0.0
     };
-    let (left_pad, right_pad) = band::end_room(dom, total_w, total_w > 0.0);
+    let (left_pad, right_pad) = band::end_room(dom, total_w, total_w > 0.0, region.label_gutter);
     let value_left = plot.0 + left_pad;
     // Grouped names go right of the roomiest group: pull the end of the
     // scale in until they fit.
@@ -295,6 +294,7 @@ fn horizontal(
     let values = (value_left, value_right);
     let vmap = |v: f64| map(v, dom, value_left, value_right);
     let value = (&chart.value, vmap);
+    canvas.plot((plot.0, plot_top), (plot.1, plot_bottom))?;
     let plot_span = (region.left, plot.0, plot.1);
     l.value_axis(canvas, obstacles, theme, value, plot_span, values)?;
     let bands = Band {

@@ -55,8 +55,10 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
     layout::check_axis(&chart.x, "x")?;
     layout::check_axis(&chart.y, "y")?;
     let lh = line_height(theme.label_size);
-    let l = axis::xy_layout(&chart.x, &chart.y, region, 0.0, theme.label_size, true);
+    let reserve = region.label_gutter;
+    let l = axis::xy_layout(&chart.x, &chart.y, region, reserve, theme.label_size, true);
     let mut obstacles = Obstacles::default();
+    canvas.plot((l.plot_left, l.plot_top), (l.plot_right, l.plot_bottom))?;
     axis::draw_xy_axes(canvas, theme, &chart.x, &chart.y, &l, true, &mut obstacles)?;
     let xmap = |x: f64| map(x, chart.x.domain, l.plot_left, l.plot_right);
     let ymap = |y: f64| map(y, chart.y.domain, l.plot_bottom, l.plot_top);
