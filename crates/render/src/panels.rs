@@ -12,10 +12,11 @@
 use crate::axis;
 use crate::band::Band;
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, muted_label, Obstacles};
+use crate::kit::{muted_label, Obstacles};
 use crate::layout::{self, map, max_width, Region};
 use crate::line;
 use crate::metrics::{self, line_height, text_width};
+use crate::place;
 use crate::theme::{Rgb, Theme};
 use crate::{Drawn, RenderError};
 use crescendo_frame::{Axis, BarChart, Chart, LineChart, Orientation, Panel, PanelChart, Role};
@@ -320,7 +321,7 @@ fn panel_bars(
                 (c, g.tick_top, Align::Middle)
             };
             let label = muted_label(theme, size, text, x, top, align);
-            kit::put(canvas, obstacles, &label)?;
+            place::settle(canvas, theme.baseline, obstacles, &label, (&[], None))?;
         }
         let (Some(color), Some(v)) = (
             mark_colour(theme, role, bar.role),
@@ -402,7 +403,7 @@ pub(crate) fn panel_title(
         color: if focus { theme.accent } else { theme.takeaway },
         align: Align::Start,
     };
-    kit::put(canvas, obstacles, &label)
+    place::settle(canvas, theme.baseline, obstacles, &label, (&[], None))
 }
 
 /// The widest value domain of any panel (trimmed panels keep its units

@@ -4,10 +4,11 @@
 //! over or beside the group with the most room, with short leader lines.
 
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, spread_widths, Obstacles};
+use crate::kit::{spread_widths, Obstacles};
 use crate::layout::{self, Region};
 use crate::metrics::{line_height, text_width};
 use crate::part_slots::{extents, roomiest, Slots};
+use crate::place;
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{PartsChart, Role};
@@ -146,9 +147,15 @@ fn stacked_beside(
         let Some(label) = n.label(j, x, y - n.lh / 2.0, Align::Start) else {
             continue;
         };
-        let line = [(bar_right + 3.0, y0), (x - 4.0, y)];
-        canvas.polyline(&line, n.theme.baseline, 1)?;
-        kit::put(canvas, obstacles, &label)?;
+        let lead = |dx: f64, dy: f64| ((bar_right + 3.0, y0), (x - 4.0 + dx, y + dy));
+        let moves = place::shifts(n.step, 2, false, None);
+        place::settle(
+            canvas,
+            n.theme.baseline,
+            obstacles,
+            &label,
+            (&moves, Some((true, &lead))),
+        )?;
     }
     Ok(())
 }
@@ -174,9 +181,16 @@ fn grouped_above(
             continue;
         };
         let bar_top = e.map(|e| n.s.vmap(e.1.max(0.0))).unwrap_or(n.zero);
-        let (from, to) = ((cx, label_top + n.lh + 1.0), (cx, bar_top - 2.0));
-        canvas.line(from, to, n.theme.baseline, 1)?;
-        kit::put(canvas, obstacles, &label)?;
+        // moved up only, so the leader stays on its bar
+        let lead = |_: f64, dy: f64| ((cx, label_top + dy + n.lh + 1.0), (cx, bar_top - 2.0));
+        let moves = place::shifts(n.step, 3, false, Some(-1.0));
+        place::settle(
+            canvas,
+            n.theme.baseline,
+            obstacles,
+            &label,
+            (&moves, Some((false, &lead))),
+        )?;
     }
     Ok(())
 }
@@ -201,9 +215,15 @@ fn stacked_row(
         let Some(label) = n.label(j, x, row_top, Align::Middle) else {
             continue;
         };
-        let line = [(x, row_top + n.lh + 2.0), (x0, bar_top - 2.0)];
-        canvas.polyline(&line, n.theme.baseline, 1)?;
-        kit::put(canvas, obstacles, &label)?;
+        let lead = |dx: f64, dy: f64| ((x + dx, row_top + dy + n.lh + 2.0), (x0, bar_top - 2.0));
+        let moves = place::shifts(n.step, 2, false, Some(-1.0));
+        place::settle(
+            canvas,
+            n.theme.baseline,
+            obstacles,
+            &label,
+            (&moves, Some((true, &lead))),
+        )?;
     }
     Ok(())
 }
@@ -235,7 +255,8 @@ fn grouped_right(
         let Some(label) = n.label(j, x, y - n.lh / 2.0, Align::Start) else {
             continue;
         };
-        kit::put(canvas, obstacles, &label)?;
+        let moves = place::shifts(n.step, 3, true, Some(1.0));
+        place::settle(canvas, n.theme.baseline, obstacles, &label, (&moves, None))?;
     }
     Ok(())
 }

@@ -12,11 +12,12 @@
 use crate::band::{self, Band, VALUE_GAP};
 use crate::band_axes::{self, PAD};
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, context_greys, Obstacles};
+use crate::kit::{context_greys, Obstacles};
 use crate::layout::{self, fit_label_at, map, max_width, Region};
 use crate::metrics::line_height;
 use crate::part_names::{self, Naming};
 use crate::part_slots::{extents, roomiest, Slots};
+use crate::place;
 use crate::theme::{Rgb, Theme};
 use crate::{Drawn, RenderError};
 use crescendo_frame::{Orientation, PartsChart, PartsMode, Role};
@@ -150,7 +151,7 @@ fn categories(
                 color: if focus { theme.accent } else { theme.muted },
                 align,
             };
-            kit::put(canvas, obstacles, &label)?;
+            place::settle(canvas, theme.baseline, obstacles, &label, (&[], None))?;
         }
         if cat.role == Role::Hidden {
             continue;
