@@ -183,16 +183,18 @@ fn end_value(
         f64::from(crate::canvas::WIDTH),
         f64::from(crate::canvas::HEIGHT),
     );
-    let chosen = place::pick(&cands, obstacles, &canvas_box, Pick::FirstFree);
-    let Some(r) = chosen.filter(|r| *r != home && obstacles.clear_of_text(r)) else {
-        return kit::put(canvas, obstacles, label);
-    };
     // the end of the mark: the edge of the usual box nearest the mark
     let anchor = match band.orientation {
         Orientation::Vertical if dir > 0.0 => ((home.x0 + home.x1) / 2.0, home.y1 + VALUE_GAP),
         Orientation::Vertical => ((home.x0 + home.x1) / 2.0, home.y0 - VALUE_GAP),
         Orientation::Horizontal if dir > 0.0 => (home.x0 - VALUE_GAP, (home.y0 + home.y1) / 2.0),
         Orientation::Horizontal => (home.x1 + VALUE_GAP, (home.y0 + home.y1) / 2.0),
+    };
+    // a moved label's leader must not run over another mark
+    let led = |r: &Rect| place::leader(anchor, r).is_none_or(|(a, b)| obstacles.leader_clear(a, b));
+    let chosen = place::pick(&cands, obstacles, &canvas_box, Pick::FirstFree);
+    let Some(r) = chosen.filter(|r| *r != home && obstacles.clear_of_text(r) && led(r)) else {
+        return kit::put(canvas, obstacles, label);
     };
     obstacles.place(canvas, theme.muted, Some(anchor), r)?;
     canvas.text(&Label {
