@@ -4,7 +4,7 @@
 //! value at the bar end; hidden bars leave their slot empty.
 
 use crate::band::{self, Band, VALUE_GAP};
-use crate::band_axes::{self, PAD};
+use crate::band_axes;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::Obstacles;
 use crate::layout::{self, map, max_width, Region};
@@ -164,23 +164,15 @@ fn horizontal(
     region: Region,
     obstacles: &mut Obstacles,
 ) -> Result<Frame, RenderError> {
-    let step = theme.label_step();
     let domain = value_domain(chart);
     let titles = (chart.category_title.as_deref(), chart.value.title.is_some());
     let l = band_axes::lying(canvas, obstacles, theme, region, titles, 0.0)?;
     let (plot_top, plot_bottom) = (l.plot_top, l.plot_bottom);
 
-    let n = chart.bars.len().max(1);
-    let band = (plot_bottom - plot_top) / n as f64;
-    let cap = (region.right - region.left) * layout::NAME_COLUMN_SHARE;
-    let widest = max_width(
-        chart.bars.iter().map(|b| b.label.as_str()),
-        theme.label_size,
-        false,
-    );
-    let (col_w, cat_lines) = band::name_column(widest, (cap, region.gutter), band, step);
-    let col_right = region.left + col_w;
-    let plot = (col_right + PAD, region.right - region.label_gutter);
+    let names = chart.bars.iter().map(|b| b.label.as_str());
+    let col = l.names(theme, region, names, false);
+    let (band, col_w, cat_lines, col_right, plot) =
+        (col.band, col.width, col.lines, col.right, col.plot);
 
     // Room for value labels beyond the ends of the bars.
     let value_w = max_width(

@@ -32,6 +32,15 @@ pub struct Label<'a> {
     pub align: Align,
 }
 
+impl Label<'_> {
+    /// The box the text takes, as the display list measures it.
+    pub fn bounds(&self) -> crescendo_look::display::Rect {
+        text_box(
+            self.text, self.x, self.top, self.size, self.bold, self.align,
+        )
+    }
+}
+
 /// Records what layout draws, in order, into a display list. Groups
 /// ([`Canvas::group`]) nest.
 #[derive(Default)]
@@ -96,14 +105,7 @@ impl Canvas {
             bold: label.bold,
             color: label.color,
             align: label.align,
-            bounds: text_box(
-                label.text,
-                label.x,
-                label.top,
-                label.size,
-                label.bold,
-                label.align,
-            ),
+            bounds: label.bounds(),
         }))
     }
 

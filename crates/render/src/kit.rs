@@ -37,14 +37,9 @@ pub(crate) fn faint_fill(theme: &Theme) -> Rgb {
 
 pub(crate) use crescendo_look::display::Rect;
 
-/// The box of one line of text as the display list measures it.
-pub(crate) fn text_rect(text: &str, x: f64, top: f64, size: f64, bold: bool, align: Align) -> Rect {
-    crescendo_look::display::text_box(text, x, top, size, bold, align)
-}
-
 /// The box a [`Label`] occupies.
 pub(crate) fn label_rect(l: &Label<'_>) -> Rect {
-    text_rect(l.text, l.x, l.top, l.size, l.bold, l.align)
+    l.bounds()
 }
 
 pub(crate) use crate::place::{rect, Obstacles};

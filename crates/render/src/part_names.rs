@@ -96,6 +96,19 @@ impl Namer<'_> {
     }
 }
 
+impl Namer<'_> {
+    /// A part name through the placer ([`place::settle`]).
+    fn settle(
+        &self,
+        canvas: &Canvas,
+        obstacles: &mut Obstacles,
+        label: &Label<'_>,
+        how: (&[(f64, f64)], Option<place::Lead<'_>>),
+    ) -> Result<(), RenderError> {
+        place::settle(canvas, self.theme.baseline, obstacles, label, how)
+    }
+}
+
 /// Names every part of `chart` as `naming` says.
 pub(crate) fn draw(
     canvas: &Canvas,
@@ -149,13 +162,7 @@ fn stacked_beside(
         };
         let lead = |dx: f64, dy: f64| ((bar_right + 3.0, y0), (x - 4.0 + dx, y + dy));
         let moves = place::shifts(n.step, 2, false, None);
-        place::settle(
-            canvas,
-            n.theme.baseline,
-            obstacles,
-            &label,
-            (&moves, Some((true, &lead))),
-        )?;
+        n.settle(canvas, obstacles, &label, (&moves, Some((true, &lead))))?;
     }
     Ok(())
 }
@@ -184,13 +191,7 @@ fn grouped_above(
         // moved up only, so the leader stays on its bar
         let lead = |_: f64, dy: f64| ((cx, label_top + dy + n.lh + 1.0), (cx, bar_top - 2.0));
         let moves = place::shifts(n.step, 3, false, Some(-1.0));
-        place::settle(
-            canvas,
-            n.theme.baseline,
-            obstacles,
-            &label,
-            (&moves, Some((false, &lead))),
-        )?;
+        n.settle(canvas, obstacles, &label, (&moves, Some((false, &lead))))?;
     }
     Ok(())
 }
@@ -217,13 +218,7 @@ fn stacked_row(
         };
         let lead = |dx: f64, dy: f64| ((x + dx, row_top + dy + n.lh + 2.0), (x0, bar_top - 2.0));
         let moves = place::shifts(n.step, 2, false, Some(-1.0));
-        place::settle(
-            canvas,
-            n.theme.baseline,
-            obstacles,
-            &label,
-            (&moves, Some((true, &lead))),
-        )?;
+        n.settle(canvas, obstacles, &label, (&moves, Some((true, &lead))))?;
     }
     Ok(())
 }
@@ -256,7 +251,7 @@ fn grouped_right(
             continue;
         };
         let moves = place::shifts(n.step, 3, true, Some(1.0));
-        place::settle(canvas, n.theme.baseline, obstacles, &label, (&moves, None))?;
+        n.settle(canvas, obstacles, &label, (&moves, None))?;
     }
     Ok(())
 }

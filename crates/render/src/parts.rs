@@ -10,7 +10,7 @@
 //! `part_slots.rs`, how they are named `part_names.rs`.
 
 use crate::band::{self, Band, VALUE_GAP};
-use crate::band_axes::{self, PAD};
+use crate::band_axes;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{context_greys, Obstacles};
 use crate::layout::{self, fit_label_at, map, max_width, Region};
@@ -254,7 +254,6 @@ fn horizontal(
     obstacles: &mut Obstacles,
 ) -> Result<Frame, RenderError> {
     let lh = line_height(theme.label_size);
-    let step = theme.label_step();
     let dom = domain(chart);
     let stacked = chart.mode == PartsMode::Stacked;
     let k = chart.parts.len();
@@ -263,17 +262,10 @@ fn horizontal(
     let l = band_axes::lying(canvas, obstacles, theme, region, titles, names_row)?;
     let (plot_top, plot_bottom) = (l.plot_top, l.plot_bottom);
 
-    let n = chart.categories.len().max(1);
-    let band = (plot_bottom - plot_top) / n as f64;
-    let cap = (region.right - region.left) * layout::NAME_COLUMN_SHARE;
-    let widest = max_width(
-        chart.categories.iter().map(|c| c.label.as_str()),
-        theme.label_size,
-        true,
-    );
-    let (col_w, cat_lines) = band::name_column(widest, (cap, region.gutter), band, step);
-    let col_right = region.left + col_w;
-    let plot = (col_right + PAD, region.right - region.label_gutter);
+    let names = chart.categories.iter().map(|c| c.label.as_str());
+    let col = l.names(theme, region, names, true);
+    let (band, col_w, cat_lines, col_right, plot) =
+        (col.band, col.width, col.lines, col.right, col.plot);
 
     let total_w = if stacked {
         max_width(

@@ -34,7 +34,7 @@
 use crate::canvas::{Canvas, Label, HEIGHT, WIDTH};
 use crate::theme::Rgb;
 use crate::RenderError;
-use crescendo_look::display::{text_box, Rect};
+use crescendo_look::display::Rect;
 
 /// The rectangle from `(x0, y0)` (top left) to `(x1, y1)`.
 pub(crate) fn rect(x0: f64, y0: f64, x1: f64, y1: f64) -> Rect {
@@ -231,14 +231,7 @@ pub(crate) fn settle(
     label: &Label<'_>,
     (shifts, lead): (&[(f64, f64)], Option<Lead<'_>>),
 ) -> Result<(), RenderError> {
-    let home = text_box(
-        label.text,
-        label.x,
-        label.top,
-        label.size,
-        label.bold,
-        label.align,
-    );
+    let home = label.bounds();
     let cands: Vec<Rect> = (std::iter::once(&(0.0, 0.0)).chain(shifts))
         .map(|&(dx, dy)| rect(home.x0 + dx, home.y0 + dy, home.x1 + dx, home.y1 + dy))
         .collect();
@@ -265,10 +258,7 @@ pub(crate) fn settle(
     if moved.text.is_empty() {
         return Ok(());
     }
-    let l = &moved;
-    obstacles
-        .boxes
-        .push(text_box(l.text, l.x, l.top, l.size, l.bold, l.align));
+    obstacles.boxes.push(moved.bounds());
     canvas.text(&moved)
 }
 
@@ -338,14 +328,7 @@ mod tests {
         // its own bar at the left, a text on its usual place, and a bar
         // right above it, so the way up is barred and the way down is free
         obstacles.add_mark((400.0, 310.0), (440.0, 500.0));
-        obstacles.boxes.push(text_box(
-            label.text,
-            label.x,
-            label.top,
-            label.size,
-            label.bold,
-            label.align,
-        ));
+        obstacles.boxes.push(label.bounds());
         let step = theme.label_step();
         obstacles.add_mark((450.0, 200.0), (470.0, 305.0));
         let lead = |dx: f64, dy: f64| ((443.0, 320.0), (496.0 + dx, 300.0 + dy));
