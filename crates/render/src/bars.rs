@@ -6,6 +6,7 @@
 use crate::band::{self, Band, VALUE_GAP};
 use crate::band_axes;
 use crate::canvas::{Align, Canvas, Label};
+use crate::fit;
 use crate::kit::Obstacles;
 use crate::layout::{self, map, max_width, Region};
 use crate::metrics::line_height;
@@ -132,21 +133,13 @@ fn vertical(
         start: u.plot.0,
         size: u.band,
     };
-    let names = chart
-        .bars
-        .iter()
-        .enumerate()
+    let how = (theme.label_size, false);
+    let names = (chart.bars.iter().enumerate())
         .map(|(i, bar)| {
-            let lines = layout::fit_label_at(
-                theme.label_size,
-                &bar.label,
-                u.name_width,
-                u.name_lines,
-                false,
-            );
-            (bands.centre(i), u.names_top, Align::Middle, lines)
+            let lines = fit::lines(canvas, &bar.label, how, u.name_width, u.name_lines)?;
+            Ok((bands.centre(i), u.names_top, Align::Middle, lines))
         })
-        .collect();
+        .collect::<Result<_, RenderError>>()?;
     Ok(Frame {
         bands,
         thickness: (u.band * BAR_SHARE).min(160.0),
@@ -192,7 +185,7 @@ fn horizontal(
         start: plot_top,
         size: band,
     };
-    let names = name_rows(theme, chart, &bands, col_w, cat_lines)
+    let names = name_rows(canvas, theme, chart, &bands, (col_w, cat_lines))?
         .into_iter()
         .map(|(top, lines)| (col_right, top, Align::End, lines))
         .collect();
@@ -209,33 +202,31 @@ fn horizontal(
 /// `col_w` wide: each name's first top and lines, no lines for a name
 /// dropped so that none collide (a safety net for more bars than rows).
 fn name_rows(
+    canvas: &Canvas,
     theme: &Theme,
     chart: &BarChart,
     bands: &Band,
-    col_w: f64,
-    cat_lines: usize,
-) -> Vec<(f64, Vec<String>)> {
+    (col_w, cat_lines): (f64, usize),
+) -> Result<Vec<(f64, Vec<String>)>, RenderError> {
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
-    let labels: Vec<(f64, Vec<String>)> = chart
-        .bars
-        .iter()
-        .enumerate()
+    let how = (theme.label_size, false);
+    let labels: Vec<(f64, Vec<String>)> = (chart.bars.iter().enumerate())
         .map(|(i, bar)| {
             let centre = bands.centre(i);
-            let lines = layout::fit_label_at(theme.label_size, &bar.label, col_w, cat_lines, false);
+            let lines = fit::lines(canvas, &bar.label, how, col_w, cat_lines)?;
             let first_top = centre - ((lines.len().max(1) - 1) as f64 * step + lh) / 2.0;
-            (first_top, lines)
+            Ok((first_top, lines))
         })
-        .collect();
+        .collect::<Result<_, RenderError>>()?;
     let spans: Vec<(f64, f64)> = labels
         .iter()
         .map(|(t, lines)| (*t, t + (lines.len().max(1) - 1) as f64 * step + lh))
         .collect();
     let keep = layout::thin(&spans, 0.0);
-    labels
+    Ok(labels
         .into_iter()
         .zip(keep)
         .map(|((top, lines), keep)| (top, if keep { lines } else { Vec::new() }))
-        .collect()
+        .collect())
 }

@@ -7,8 +7,9 @@
 
 use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
+use crate::fit;
 use crate::kit::{self, spread_widths, Obstacles};
-use crate::layout::{self, fit_label_at, map, max_width, Region};
+use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::{Drawn, RenderError};
@@ -94,7 +95,8 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &DotChart, region: Reg
         let y = centre(i);
         if keep.get(i).copied().unwrap_or(false) && row.role != Role::Hidden {
             // Fitted at bold width so the text is the same in every role.
-            let text = fit_label_at(theme.label_size, &row.label, col_w, 1, true).join(" ");
+            let how = (theme.label_size, true);
+            let text = fit::lines(canvas, &row.label, how, col_w, 1)?.join(" ");
             let focus = row.role == Role::Focus;
             kit::put(
                 canvas,
@@ -154,12 +156,10 @@ fn name_series(
                 .iter()
                 .find_map(|r| r.values.get(k).copied().flatten().filter(|v| v.is_finite()))
                 .map(&vmap)?;
-            let text = metrics::ellipsize(
-                &metrics::normalize(&s.name),
-                theme.label_size,
-                true,
-                theme.label_scaled(MAX_SERIES_LABEL),
-            );
+            let name = metrics::normalize(&s.name);
+            let how = (theme.label_size, true);
+            let room = theme.label_scaled(MAX_SERIES_LABEL);
+            let text = fit::one(canvas, &name, how, room).ok()?;
             Some((x, text_width(&text, theme.label_size, true), k, text))
         })
         .collect();

@@ -22,6 +22,7 @@ mod bars;
 pub mod canvas;
 mod dots;
 mod figures;
+mod fit;
 mod html;
 pub mod inspect;
 mod kit;

@@ -12,6 +12,7 @@
 use crate::axis;
 use crate::band::Band;
 use crate::canvas::{Align, Canvas, Label};
+use crate::fit;
 use crate::kit::{muted_label, Obstacles};
 use crate::layout::{self, map, max_width, Region};
 use crate::line;
@@ -298,8 +299,8 @@ fn panel_bars(
     };
     let fit = if across { g.lead_w } else { band - 4.0 };
     let texts: Vec<String> = (b.bars.iter())
-        .map(|bar| metrics::ellipsize(&metrics::normalize(&bar.label), size, false, fit))
-        .collect();
+        .map(|bar| fit::one(canvas, &metrics::normalize(&bar.label), (size, false), fit))
+        .collect::<Result<_, _>>()?;
     let spans: Vec<(f64, f64)> = (texts.iter().enumerate())
         .map(|(k, text)| {
             let c = bands.centre(k);
@@ -387,12 +388,8 @@ pub(crate) fn panel_title(
     top: f64,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let text = metrics::ellipsize(
-        &metrics::normalize(&panel.title),
-        theme.label_size,
-        true,
-        right - x,
-    );
+    let title = metrics::normalize(&panel.title);
+    let text = fit::one(canvas, &title, (theme.label_size, true), right - x)?;
     let focus = panel.role == Role::Focus;
     let label = Label {
         text: &text,

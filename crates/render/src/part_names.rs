@@ -118,11 +118,15 @@ pub(crate) fn draw(
     region: Region,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
+    let names = names(theme, chart);
+    for (p, shown) in chart.parts.iter().zip(&names) {
+        crate::fit::note(canvas, &p.name, std::slice::from_ref(shown))?;
+    }
     let n = Namer {
         theme,
         chart,
         s,
-        names: names(theme, chart),
+        names,
         lh: line_height(theme.label_size),
         step: theme.label_step(),
         zero: s.vmap(0.0),

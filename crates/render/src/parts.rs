@@ -12,8 +12,9 @@
 use crate::band::{self, Band, VALUE_GAP};
 use crate::band_axes;
 use crate::canvas::{Align, Canvas, Label};
+use crate::fit;
 use crate::kit::{context_greys, Obstacles};
-use crate::layout::{self, fit_label_at, map, max_width, Region};
+use crate::layout::{self, map, max_width, Region};
 use crate::metrics::line_height;
 use crate::part_names::{self, Naming};
 use crate::part_slots::{extents, roomiest, Slots};
@@ -140,7 +141,8 @@ fn categories(
         } else {
             (s.bands.centre(c), cats.start, Align::Middle, true)
         };
-        let lines = fit_label_at(theme.label_size, &cat.label, cats.width, cats.lines, true);
+        let how = (theme.label_size, true);
+        let lines = fit::lines(canvas, &cat.label, how, cats.width, cats.lines)?;
         for (i, line) in lines.iter().enumerate().filter(|_| shown) {
             let label = Label {
                 text: line,

@@ -5,6 +5,7 @@
 
 use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
+use crate::fit;
 use crate::kit::{self, rect, Obstacles, Rect};
 use crate::layout::{self, map, Region};
 use crate::metrics::{self, line_height};
@@ -126,12 +127,9 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
         if !focus && labelled > LABEL_ALL {
             continue;
         }
-        let text = metrics::ellipsize(
-            &metrics::normalize(&p.label),
-            theme.label_size,
-            focus,
-            theme.label_scaled(MAX_LABEL),
-        );
+        let label = metrics::normalize(&p.label);
+        let how = (theme.label_size, focus);
+        let text = fit::one(canvas, &label, how, theme.label_scaled(MAX_LABEL))?;
         if text.is_empty() {
             continue;
         }
