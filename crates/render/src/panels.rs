@@ -108,7 +108,17 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: R
     let lead_w = lead_width(theme, chart, across_bars, region, cols);
     let lead = if lead_w > 0.0 { lead_w + PAD } else { 0.0 };
     let shared_ticks = chart.common_scale && !chart.trimmed && !across_bars;
-    let width = region.right - region.left;
+    // The panels subdivide the deck's plot rectangle: the first plot
+    // starts at the deck's left plot edge (when its own lead column fits
+    // in the deck's gutter), the last ends at the deck's right one.
+    let deck_left = region.left + region.gutter + crate::band_axes::PAD;
+    let start = if region.gutter > 0.0 {
+        (deck_left - lead).max(region.left)
+    } else {
+        region.left
+    };
+    let end = region.right - region.label_gutter;
+    let width = end - start;
     let plot_w = if shared_ticks {
         (width - lead - (cols - 1) as f64 * GAP_X) / cols as f64
     } else {
@@ -117,11 +127,12 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: R
     .max(1.0);
     let plot_left = |col: usize| {
         if shared_ticks {
-            region.left + lead + col as f64 * (plot_w + GAP_X)
+            start + lead + col as f64 * (plot_w + GAP_X)
         } else {
-            region.left + col as f64 * (lead + plot_w + GAP_X) + lead
+            start + col as f64 * (lead + plot_w + GAP_X) + lead
         }
     };
+    canvas.plot((plot_left(0), top), (plot_left(cols - 1) + plot_w, bottom))?;
     let row_h = ((bottom - top - (rows - 1) as f64 * GAP_Y) / rows as f64).max(1.0);
     // Trimmed panels: the same units per pixel, each cut to its extent.
     let max_span = widest_span(chart);
