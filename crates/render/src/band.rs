@@ -239,7 +239,12 @@ pub(crate) fn parts(
         }
     }
     let text = metrics::normalize(total);
-    let high = extents.iter().flatten().map(|e| e.1).fold(0.0, f64::max);
+    // the total sits on the parts drawn, not on hidden ones still to come
+    let shown = |j: &usize| colors.get(*j).is_some_and(Option::is_some);
+    let high = (extents.iter().enumerate())
+        .filter(|(j, _)| shown(j))
+        .filter_map(|(_, e)| e.map(|e| e.1))
+        .fold(0.0, f64::max);
     if !text.is_empty() {
         let lh = line_height(theme.label_size);
         let (x, top, align) = band.end_label(vmap(high), band.centre(c), lh, true);
