@@ -57,6 +57,27 @@ pub(crate) fn put(
     canvas.text(label)
 }
 
+/// Draws `text` with its top left at `spot` (where the placer put it),
+/// and records its box.
+pub(crate) fn put_in(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    text: &str,
+    spot: &Rect,
+    (size, bold, color): (f64, bool, Rgb),
+) -> Result<(), RenderError> {
+    let label = Label {
+        text,
+        x: spot.x0,
+        top: spot.y0,
+        size,
+        bold,
+        color,
+        align: Align::Start,
+    };
+    put(canvas, obstacles, &label)
+}
+
 /// Places labels of different widths along one line as close as possible
 /// to their wanted centres, `gap` apart and inside `lo..=hi`. Labels keep
 /// their order (sorted by wanted centre). Returns the centres; when they

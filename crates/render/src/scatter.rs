@@ -4,7 +4,7 @@
 //! line over the x range of the points in a dark grey with its correlation.
 
 use crate::axis;
-use crate::canvas::{Align, Canvas, Label};
+use crate::canvas::Canvas;
 use crate::fit;
 use crate::kit::{self, rect, Obstacles, Rect};
 use crate::layout::{self, map, Region};
@@ -138,19 +138,9 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
         let r = f64::from(if focus { FOCUS_DOT } else { DOT });
         let cands = candidates(c, r, w, lh);
         if let Some(spot) = best_spot(&cands, &obstacles, &bounds) {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text: &text,
-                    x: spot.x0,
-                    top: spot.y0,
-                    size: theme.label_size,
-                    bold: focus,
-                    color: if focus { theme.accent } else { theme.muted },
-                    align: Align::Start,
-                },
-            )?;
+            let color = if focus { theme.accent } else { theme.muted };
+            let ink = (theme.label_size, focus, color);
+            kit::put_in(canvas, &mut obstacles, &text, &spot, ink)?;
         }
     }
 
@@ -168,19 +158,8 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
             cands.extend(candidates(p, 2.0, w, lh));
         }
         if let Some(spot) = best_spot(&cands, &obstacles, &bounds) {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text: &text,
-                    x: spot.x0,
-                    top: spot.y0,
-                    size: theme.label_size,
-                    bold: false,
-                    color: theme.muted,
-                    align: Align::Start,
-                },
-            )?;
+            let ink = (theme.label_size, false, theme.muted);
+            kit::put_in(canvas, &mut obstacles, &text, &spot, ink)?;
         }
     }
     Ok(())
