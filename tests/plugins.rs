@@ -548,3 +548,36 @@ fn listing_and_planning_run_no_plugin_code_unless_asked() {
         );
     }
 }
+
+/// A waterfall category name that cannot fit under its bar, even wrapped,
+/// stops the build with a located error that names it; nothing is cut
+/// with an ellipsis, and no deck is written.
+#[test]
+fn a_waterfall_name_that_cannot_fit_is_reported() {
+    let dir = scratch("waterfall-fit");
+    fs::write(
+        dir.join("budget.csv"),
+        "item,amount\nStart,100\nRefurbishmentandrecommissioningworks,20\nEnd,120\n",
+    )
+    .unwrap();
+    fs::write(
+        dir.join("s.cresc"),
+        format!(
+            "story \"Plugins\"\nsource \"Invented\"\nconclusion \"Act.\"\n\
+             use plugin \"{}\" as w\n\
+             data budget from \"budget.csv\"\n\
+             frame \"Budget\" {{\n  draw w.waterfall budget: category item, value amount\n  takeaway \"Act.\"\n}}\n",
+            lib("crescendo_waterfall").display()
+        ),
+    )
+    .unwrap();
+    let run = crescendo(&dir, &["build", "s.cresc"]);
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert_eq!(run.status.code(), Some(1), "{err}");
+    assert!(
+        err.contains("\"Refurbishmentandrecommissioningworks\" cannot fit under its bar"),
+        "{err}"
+    );
+    assert!(err.contains("s.cresc:7:3"), "{err}");
+    assert!(!dir.join("deck").exists());
+}

@@ -672,3 +672,36 @@ fn every_demo_label_keeps_off_the_data_marks() {
         found.join("\n")
     );
 }
+
+/// One plot rectangle for a deck: every chart frame with one plot (lines,
+/// bars, stacks, dots, scatter) starts and ends its plot at the same left
+/// and right edges, whatever its tick labels, category names or direct
+/// labels, read from the layout.
+#[test]
+fn every_chart_frame_of_a_deck_shares_its_plot_edges() {
+    use crescendo_look::display::Part;
+    let mut checked = 0;
+    for (name, path) in stories() {
+        let (plan, lists) = layouts_of(&path);
+        let edges: Vec<(u32, f64, f64)> = (plan.frames.iter().zip(&lists))
+            .filter_map(|(f, list)| {
+                let plots = list.groups(|p| matches!(p, Part::Plot(_)));
+                match plots.as_slice() {
+                    [(Part::Plot(r), _)] => Some((f.number as u32, r.x0, r.x1)),
+                    _ => None,
+                }
+            })
+            .collect();
+        let Some(&(_, left, right)) = edges.first() else {
+            continue;
+        };
+        for &(number, l, r) in &edges {
+            assert!(
+                (l - left).abs() < 0.01 && (r - right).abs() < 0.01,
+                "{name} frame {number}: plot {l:.1}..{r:.1}, the deck's {left:.1}..{right:.1}"
+            );
+        }
+        checked += edges.len();
+    }
+    assert!(checked >= 20, "only {checked} chart frames checked");
+}

@@ -177,6 +177,17 @@ pub enum Part {
         /// The figure covers a data mark or line, or was not drawn.
         covers: bool,
     },
+    /// The plot rectangle of a chart with axes (empty: a mark for readers
+    /// of the layout): left and right are the plot's edges, the same on
+    /// every chart frame of a deck; top and bottom span the value range.
+    Plot(Rect),
+    /// A label inside a chart cut with an ellipsis to fit its room (empty:
+    /// a note for the lint, which reports every cut); `full` is the whole
+    /// text.
+    Cut {
+        /// The text before it was cut.
+        full: String,
+    },
     /// A light fill behind the data (a highlighted band, a shaded or
     /// tinted table row): a background, not a mark, so the marks' contrast
     /// rules do not apply to it.

@@ -4,8 +4,9 @@
 //! draws its ticks through it.
 
 use crate::canvas::{Align, Canvas};
+use crate::fit;
 use crate::kit::{self, muted_label, put, Obstacles};
-use crate::layout::{self, fit_label_at, map, max_width, Region};
+use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
@@ -251,7 +252,8 @@ pub(crate) fn draw_xy_axes(
     let size = l.size;
     let muted = muted_label;
     if let (Some(top), Some(title)) = (l.y_title_top, y.title.as_deref()) {
-        let text = fit_one(title, l.plot_right - l.left, l.size);
+        let width = (l.plot_right - l.left).max(0.0);
+        let text = fit::lines(canvas, title, (l.size, false), width, 1)?.join(" ");
         put(
             canvas,
             obstacles,
@@ -259,7 +261,8 @@ pub(crate) fn draw_xy_axes(
         )?;
     }
     if let (Some(top), Some(title)) = (l.x_title_top, x.title.as_deref()) {
-        let text = fit_one(title, l.plot_right - l.plot_left, l.size);
+        let width = (l.plot_right - l.plot_left).max(0.0);
+        let text = fit::lines(canvas, title, (l.size, false), width, 1)?.join(" ");
         put(
             canvas,
             obstacles,
@@ -304,7 +307,7 @@ pub(crate) fn title(
     (x, top): (f64, f64),
     align: Align,
 ) -> Result<(), RenderError> {
-    let text = fit_one(title, width, theme.label_size);
+    let text = fit::lines(canvas, title, (theme.label_size, false), width.max(0.0), 1)?.join(" ");
     let label = muted_label(theme, theme.label_size, &text, x, top, align);
     put(canvas, obstacles, &label)
 }
@@ -437,9 +440,4 @@ pub(crate) fn bottom_rows(bottom: f64, lh: f64, titled: bool) -> (Option<f64>, f
     });
     let tick_top = bottom - lh;
     (title_top, tick_top, tick_top - 8.0)
-}
-
-/// One line of text fitted into `width` at `size`.
-pub(crate) fn fit_one(text: &str, width: f64, size: f64) -> String {
-    fit_label_at(size, text, width.max(0.0), 1, false).join(" ")
 }

@@ -78,21 +78,30 @@ impl Band {
 }
 
 /// The column of category names beside horizontal bars: as wide as the
-/// widest name up to `cap`, and two lines when a name is wider than that
-/// and a band has room for two. Returns the width and the line count.
-pub(crate) fn name_column(widest: f64, cap: f64, band: f64, step: f64) -> (f64, usize) {
-    let lines = if widest > cap && band >= 2.0 * step {
+/// widest name up to `cap`, and at least the deck's `gutter` (so the plot
+/// starts where every other frame's does); two lines when a name is wider
+/// than that and a band has room for two. Returns the width and the line
+/// count.
+pub(crate) fn name_column(
+    widest: f64,
+    (cap, gutter): (f64, f64),
+    band: f64,
+    step: f64,
+) -> (f64, usize) {
+    let width = widest.min(cap).max(gutter);
+    let lines = if widest > width && band >= 2.0 * step {
         2
     } else {
         1
     };
-    (widest.min(cap), lines)
+    (width, lines)
 }
 
 /// Room past the ends of the marks for labels `width` wide (when
 /// `labelled`): below zero when the domain has negative values, above it
-/// when it has positive ones. Returns (below, above).
-pub(crate) fn end_room(dom: [f64; 2], width: f64, labelled: bool) -> (f64, f64) {
+/// when it has positive ones, less the `gutter` kept beyond the plot's end
+/// for them. Returns (below, above).
+pub(crate) fn end_room(dom: [f64; 2], width: f64, labelled: bool, gutter: f64) -> (f64, f64) {
     let room = |needed: bool| {
         if labelled && needed {
             width + VALUE_GAP
@@ -100,7 +109,7 @@ pub(crate) fn end_room(dom: [f64; 2], width: f64, labelled: bool) -> (f64, f64) 
             0.0
         }
     };
-    (room(dom[0] < 0.0), room(dom[1] > 0.0))
+    (room(dom[0] < 0.0), (room(dom[1] > 0.0) - gutter).max(0.0))
 }
 
 /// One bar of a bar chart: its mark from `zero` to `end` and, in focus, its
@@ -179,16 +188,18 @@ fn end_value(
         f64::from(crate::canvas::WIDTH),
         f64::from(crate::canvas::HEIGHT),
     );
-    let chosen = place::pick(&cands, obstacles, &canvas_box, Pick::FirstFree);
-    let Some(r) = chosen.filter(|r| *r != home && obstacles.clear_of_text(r)) else {
-        return kit::put(canvas, obstacles, label);
-    };
     // the end of the mark: the edge of the usual box nearest the mark
     let anchor = match band.orientation {
         Orientation::Vertical if dir > 0.0 => ((home.x0 + home.x1) / 2.0, home.y1 + VALUE_GAP),
         Orientation::Vertical => ((home.x0 + home.x1) / 2.0, home.y0 - VALUE_GAP),
         Orientation::Horizontal if dir > 0.0 => (home.x0 - VALUE_GAP, (home.y0 + home.y1) / 2.0),
         Orientation::Horizontal => (home.x1 + VALUE_GAP, (home.y0 + home.y1) / 2.0),
+    };
+    // a moved label's leader must not run over another mark
+    let led = |r: &Rect| place::leader(anchor, r).is_none_or(|(a, b)| obstacles.leader_clear(a, b));
+    let chosen = place::pick(&cands, obstacles, &canvas_box, Pick::FirstFree);
+    let Some(r) = chosen.filter(|r| *r != home && obstacles.clear_of_text(r) && led(r)) else {
+        return kit::put(canvas, obstacles, label);
     };
     obstacles.place(canvas, theme.muted, Some(anchor), r)?;
     canvas.text(&Label {
@@ -234,7 +245,12 @@ pub(crate) fn parts(
         }
     }
     let text = metrics::normalize(total);
-    let high = extents.iter().flatten().map(|e| e.1).fold(0.0, f64::max);
+    // the total sits on the parts drawn, not on hidden ones still to come
+    let shown = |j: &usize| colors.get(*j).is_some_and(Option::is_some);
+    let high = (extents.iter().enumerate())
+        .filter(|(j, _)| shown(j))
+        .filter_map(|(_, e)| e.map(|e| e.1))
+        .fold(0.0, f64::max);
     if !text.is_empty() {
         let lh = line_height(theme.label_size);
         let (x, top, align) = band.end_label(vmap(high), band.centre(c), lh, true);

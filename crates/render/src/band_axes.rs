@@ -63,11 +63,13 @@ pub(crate) fn upright(
     } else {
         region.left
     };
-    let plot_right = if beside > 0.0 {
-        region.right - beside - PAD - 8.0
+    // the deck's label gutter holds the plot's right edge still
+    let own = if beside > 0.0 {
+        beside + layout::PART_NAMES_PAD
     } else {
-        region.right
+        0.0
     };
+    let plot_right = region.right - own.max(region.label_gutter);
     let band = (plot_right - plot_left) / names.len().max(1) as f64;
     let name_width = band - 8.0;
     let two_lines = names
@@ -163,7 +165,46 @@ pub(crate) fn lying(
     })
 }
 
+/// The category-name column left of lying bands and the plot right of it.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct NameColumn {
+    /// The height of one band.
+    pub band: f64,
+    /// The column's width and how many lines a name may take.
+    pub width: f64,
+    pub lines: usize,
+    /// The column's right edge (names are right-aligned on it).
+    pub right: f64,
+    /// The plot's left and right edges.
+    pub plot: (f64, f64),
+}
+
 impl Lying {
+    /// The name column for `names` (bold-measured when `bold`): at most
+    /// [`layout::NAME_COLUMN_SHARE`] of the region, at least the deck's
+    /// gutter; the plot ends at the deck's label gutter.
+    pub fn names<'a>(
+        &self,
+        theme: &Theme,
+        region: Region,
+        names: impl ExactSizeIterator<Item = &'a str>,
+        bold: bool,
+    ) -> NameColumn {
+        let band = (self.plot_bottom - self.plot_top) / names.len().max(1) as f64;
+        let cap = (region.right - region.left) * layout::NAME_COLUMN_SHARE;
+        let widest = max_width(names, theme.label_size, bold);
+        let step = theme.label_step();
+        let (width, lines) = crate::band::name_column(widest, (cap, region.gutter), band, step);
+        let right = region.left + width;
+        NameColumn {
+            band,
+            width,
+            lines,
+            right,
+            plot: (right + PAD, region.right - region.label_gutter),
+        }
+    }
+
     /// The value title and ticks under bars whose plot runs from `plot_left`
     /// to `plot_right` and whose values run `values` across, ticks kept
     /// right of `lo`, and

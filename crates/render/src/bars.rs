@@ -4,8 +4,9 @@
 //! value at the bar end; hidden bars leave their slot empty.
 
 use crate::band::{self, Band, VALUE_GAP};
-use crate::band_axes::{self, PAD};
-use crate::canvas::{Align, Canvas, Label, WIDTH};
+use crate::band_axes;
+use crate::canvas::{Align, Canvas, Label};
+use crate::fit;
 use crate::kit::Obstacles;
 use crate::layout::{self, map, max_width, Region};
 use crate::metrics::line_height;
@@ -15,8 +16,6 @@ use crescendo_frame::{Bar, BarChart, Orientation, Role};
 
 /// Share of a category band filled by the bar.
 const BAR_SHARE: f64 = 0.62;
-/// Widest category column of horizontal bars, as a share of the canvas.
-const MAX_CATEGORY_SHARE: f64 = 0.3;
 
 fn bar_color(theme: &Theme, bar: &Bar) -> Option<crate::theme::Rgb> {
     match bar.role {
@@ -127,27 +126,20 @@ fn vertical(
         value_bottom -= lh + VALUE_GAP;
     }
     let vmap = |v: f64| map(v, domain, value_bottom, value_top);
+    canvas.plot((u.plot.0, value_top), (u.plot.1, value_bottom))?;
     u.value_axis(canvas, obstacles, theme, &chart.value, vmap)?;
     let bands = Band {
         orientation: Orientation::Vertical,
         start: u.plot.0,
         size: u.band,
     };
-    let names = chart
-        .bars
-        .iter()
-        .enumerate()
+    let how = (theme.label_size, false);
+    let names = (chart.bars.iter().enumerate())
         .map(|(i, bar)| {
-            let lines = layout::fit_label_at(
-                theme.label_size,
-                &bar.label,
-                u.name_width,
-                u.name_lines,
-                false,
-            );
-            (bands.centre(i), u.names_top, Align::Middle, lines)
+            let lines = fit::lines(canvas, &bar.label, how, u.name_width, u.name_lines)?;
+            Ok((bands.centre(i), u.names_top, Align::Middle, lines))
         })
-        .collect();
+        .collect::<Result<_, RenderError>>()?;
     Ok(Frame {
         bands,
         thickness: (u.band * BAR_SHARE).min(160.0),
@@ -165,23 +157,15 @@ fn horizontal(
     region: Region,
     obstacles: &mut Obstacles,
 ) -> Result<Frame, RenderError> {
-    let step = theme.label_step();
     let domain = value_domain(chart);
     let titles = (chart.category_title.as_deref(), chart.value.title.is_some());
     let l = band_axes::lying(canvas, obstacles, theme, region, titles, 0.0)?;
     let (plot_top, plot_bottom) = (l.plot_top, l.plot_bottom);
 
-    let n = chart.bars.len().max(1);
-    let band = (plot_bottom - plot_top) / n as f64;
-    let cap = WIDTH as f64 * MAX_CATEGORY_SHARE;
-    let widest = max_width(
-        chart.bars.iter().map(|b| b.label.as_str()),
-        theme.label_size,
-        false,
-    );
-    let (col_w, cat_lines) = band::name_column(widest, cap, band, step);
-    let col_right = region.left + col_w;
-    let plot = (col_right + PAD, region.right);
+    let names = chart.bars.iter().map(|b| b.label.as_str());
+    let col = l.names(theme, region, names, false);
+    let (band, col_w, cat_lines, col_right, plot) =
+        (col.band, col.width, col.lines, col.right, col.plot);
 
     // Room for value labels beyond the ends of the bars.
     let value_w = max_width(
@@ -189,10 +173,11 @@ fn horizontal(
         theme.label_size,
         true,
     );
-    let (left_pad, right_pad) = band::end_room(domain, value_w, true);
+    let (left_pad, right_pad) = band::end_room(domain, value_w, true, region.label_gutter);
     let values = (plot.0 + left_pad, plot.1 - right_pad);
     let vmap = |v: f64| map(v, domain, values.0, values.1);
     let value = (&chart.value, vmap);
+    canvas.plot((plot.0, plot_top), (plot.1, plot_bottom))?;
     let plot_span = (region.left, plot.0, plot.1);
     l.value_axis(canvas, obstacles, theme, value, plot_span, values)?;
     let bands = Band {
@@ -200,7 +185,7 @@ fn horizontal(
         start: plot_top,
         size: band,
     };
-    let names = name_rows(theme, chart, &bands, col_w, cat_lines)
+    let names = name_rows(canvas, theme, chart, &bands, (col_w, cat_lines))?
         .into_iter()
         .map(|(top, lines)| (col_right, top, Align::End, lines))
         .collect();
@@ -217,33 +202,31 @@ fn horizontal(
 /// `col_w` wide: each name's first top and lines, no lines for a name
 /// dropped so that none collide (a safety net for more bars than rows).
 fn name_rows(
+    canvas: &Canvas,
     theme: &Theme,
     chart: &BarChart,
     bands: &Band,
-    col_w: f64,
-    cat_lines: usize,
-) -> Vec<(f64, Vec<String>)> {
+    (col_w, cat_lines): (f64, usize),
+) -> Result<Vec<(f64, Vec<String>)>, RenderError> {
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
-    let labels: Vec<(f64, Vec<String>)> = chart
-        .bars
-        .iter()
-        .enumerate()
+    let how = (theme.label_size, false);
+    let labels: Vec<(f64, Vec<String>)> = (chart.bars.iter().enumerate())
         .map(|(i, bar)| {
             let centre = bands.centre(i);
-            let lines = layout::fit_label_at(theme.label_size, &bar.label, col_w, cat_lines, false);
+            let lines = fit::lines(canvas, &bar.label, how, col_w, cat_lines)?;
             let first_top = centre - ((lines.len().max(1) - 1) as f64 * step + lh) / 2.0;
-            (first_top, lines)
+            Ok((first_top, lines))
         })
-        .collect();
+        .collect::<Result<_, RenderError>>()?;
     let spans: Vec<(f64, f64)> = labels
         .iter()
         .map(|(t, lines)| (*t, t + (lines.len().max(1) - 1) as f64 * step + lh))
         .collect();
     let keep = layout::thin(&spans, 0.0);
-    labels
+    Ok(labels
         .into_iter()
         .zip(keep)
         .map(|((top, lines), keep)| (top, if keep { lines } else { Vec::new() }))
-        .collect()
+        .collect())
 }

@@ -32,6 +32,15 @@ pub struct Label<'a> {
     pub align: Align,
 }
 
+impl Label<'_> {
+    /// The box the text takes, as the display list measures it.
+    pub fn bounds(&self) -> crescendo_look::display::Rect {
+        text_box(
+            self.text, self.x, self.top, self.size, self.bold, self.align,
+        )
+    }
+}
+
 /// Records what layout draws, in order, into a display list. Groups
 /// ([`Canvas::group`]) nest.
 #[derive(Default)]
@@ -150,6 +159,13 @@ impl Canvas {
         result
     }
 
+    /// Marks the plot rectangle of a chart with axes, from `(x0, y0)` to
+    /// `(x1, y1)`, for readers of the layout ([`Part::Plot`]); draws nothing.
+    pub fn plot(&self, (x0, y0): (f64, f64), (x1, y1): (f64, f64)) -> Result<(), RenderError> {
+        let r = crescendo_look::display::Rect { x0, y0, x1, y1 };
+        self.group(Part::Plot(r), || Ok(()))
+    }
+
     /// One line of text (the caller has measured and fitted it).
     pub fn text(&self, label: &Label<'_>) -> Result<(), RenderError> {
         if label.text.is_empty() {
@@ -163,14 +179,7 @@ impl Canvas {
             bold: label.bold,
             color: label.color,
             align: label.align,
-            bounds: text_box(
-                label.text,
-                label.x,
-                label.top,
-                label.size,
-                label.bold,
-                label.align,
-            ),
+            bounds: label.bounds(),
         }))
     }
 

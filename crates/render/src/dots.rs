@@ -7,8 +7,9 @@
 
 use crate::axis;
 use crate::canvas::{Align, Canvas, Label};
+use crate::fit;
 use crate::kit::{self, spread_widths, Obstacles};
-use crate::layout::{self, fit_label_at, map, max_width, Region};
+use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::{Drawn, RenderError};
@@ -20,8 +21,6 @@ const DOT: f64 = 6.0;
 const PAD: f64 = 12.0;
 /// Widest a series name may be (at 16 px labels; [`Theme::label_scaled`]).
 const MAX_SERIES_LABEL: f64 = 240.0;
-/// Widest category column, as a share of the region.
-const MAX_CATEGORY_SHARE: f64 = 0.32;
 
 pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &DotChart, region: Region) -> Drawn {
     layout::check_axis(&chart.value, "value")?;
@@ -43,19 +42,24 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &DotChart, region: Reg
         theme.label_size,
         true,
     );
-    let col_w = widest.min((region.right - region.left) * MAX_CATEGORY_SHARE);
+    // at least the deck's gutter, so the plot starts where every other
+    // frame's does
+    let cap = (region.right - region.left) * layout::NAME_COLUMN_SHARE;
+    let col_w = widest.min(cap).max(region.gutter);
+    let right = region.right - region.label_gutter;
     let col_right = region.left + col_w;
     let n = chart.rows.len().max(1);
     let band = (plot_bottom - plot_top) / n as f64;
     let radius = DOT.min(band * 0.35).max(2.0);
     let value_left = col_right + PAD + DOT;
-    let value_right = region.right - DOT;
+    let value_right = right - DOT;
     let vmap = |v: f64| map(v, chart.value.domain, value_left, value_right);
+    canvas.plot((col_right + PAD, plot_top), (right, plot_bottom))?;
 
     let row = axis::Row {
         top: tick_top,
         lo: col_right + PAD,
-        hi: region.right,
+        hi: right,
         gap: 12.0,
         fit: axis::Fit::AsWritten,
         keep_left: false,
@@ -75,7 +79,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &DotChart, region: Reg
     axis::under(canvas, &mut obstacles, theme, &chart.value, vmap, under)?;
     canvas.line(
         (col_right + PAD, plot_bottom),
-        (region.right, plot_bottom),
+        (right, plot_bottom),
         theme.baseline,
         theme.baseline_stroke,
     )?;
@@ -91,7 +95,8 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &DotChart, region: Reg
         let y = centre(i);
         if keep.get(i).copied().unwrap_or(false) && row.role != Role::Hidden {
             // Fitted at bold width so the text is the same in every role.
-            let text = fit_label_at(theme.label_size, &row.label, col_w, 1, true).join(" ");
+            let how = (theme.label_size, true);
+            let text = fit::lines(canvas, &row.label, how, col_w, 1)?.join(" ");
             let focus = row.role == Role::Focus;
             kit::put(
                 canvas,
@@ -157,12 +162,10 @@ fn name_series(
                 .iter()
                 .find_map(|r| r.values.get(k).copied().flatten().filter(|v| v.is_finite()))
                 .map(&vmap)?;
-            let text = metrics::ellipsize(
-                &metrics::normalize(&s.name),
-                theme.label_size,
-                true,
-                theme.label_scaled(MAX_SERIES_LABEL),
-            );
+            let name = metrics::normalize(&s.name);
+            let how = (theme.label_size, true);
+            let room = theme.label_scaled(MAX_SERIES_LABEL);
+            let text = fit::one(canvas, &name, how, room).ok()?;
             Some((x, text_width(&text, theme.label_size, true), k, text))
         })
         .collect();

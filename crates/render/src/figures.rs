@@ -5,6 +5,7 @@
 //! hidden figure keeps its column empty.
 
 use crate::canvas::{Align, Canvas, Label};
+use crate::fit;
 use crate::layout::Region;
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
@@ -91,7 +92,12 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &FigureChart, region: 
             Role::Context => theme.headline,
         };
         let left = region.left + i as f64 * (column + COLUMN_GAP);
-        let text = metrics::ellipsize(&metrics::normalize(&figure.text), size, true, column);
+        let text = fit::one(
+            canvas,
+            &metrics::normalize(&figure.text),
+            (size, true),
+            column,
+        )?;
         canvas.text(&Label {
             text: &text,
             x: left,

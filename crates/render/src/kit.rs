@@ -37,14 +37,9 @@ pub(crate) fn faint_fill(theme: &Theme) -> Rgb {
 
 pub(crate) use crescendo_look::display::Rect;
 
-/// The box of one line of text as the display list measures it.
-pub(crate) fn text_rect(text: &str, x: f64, top: f64, size: f64, bold: bool, align: Align) -> Rect {
-    crescendo_look::display::text_box(text, x, top, size, bold, align)
-}
-
 /// The box a [`Label`] occupies.
 pub(crate) fn label_rect(l: &Label<'_>) -> Rect {
-    text_rect(l.text, l.x, l.top, l.size, l.bold, l.align)
+    l.bounds()
 }
 
 pub(crate) use crate::place::{rect, Obstacles};
@@ -60,6 +55,27 @@ pub(crate) fn put(
     }
     obstacles.boxes.push(label_rect(label));
     canvas.text(label)
+}
+
+/// Draws `text` with its top left at `spot` (where the placer put it),
+/// and records its box.
+pub(crate) fn put_in(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    text: &str,
+    spot: &Rect,
+    (size, bold, color): (f64, bool, Rgb),
+) -> Result<(), RenderError> {
+    let label = Label {
+        text,
+        x: spot.x0,
+        top: spot.y0,
+        size,
+        bold,
+        color,
+        align: Align::Start,
+    };
+    put(canvas, obstacles, &label)
 }
 
 /// Places labels of different widths along one line as close as possible

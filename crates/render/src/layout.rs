@@ -12,7 +12,7 @@ use crate::canvas::{Align, Canvas, Label, HEIGHT, WIDTH};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_frame::{Axis, Chart, DeckPlan, FramePlan, Orientation};
+use crescendo_frame::{Axis, Chart, DeckPlan, FramePlan, Orientation, PartsMode};
 use crescendo_look::display::Part;
 
 pub use crescendo_look::theme::{
@@ -58,6 +58,10 @@ pub struct Region {
     /// vertical stacks, scatter) give their tick column this width at
     /// least, so the plot's left edge is the same on all of them.
     pub gutter: f64,
+    /// Room right of the plot for direct labels (line labels, bar values,
+    /// stack totals, part names): the most any chart frame of the deck
+    /// needs, so every plot ends at the same right edge.
+    pub label_gutter: f64,
 }
 
 impl Region {
@@ -83,20 +87,110 @@ fn left_axis(chart: &Chart) -> Option<&Axis> {
     }
 }
 
-/// The deck's tick gutter ([`Region::gutter`]).
-fn gutter(deck: &DeckPlan, frame: &FramePlan, theme: &Theme) -> f64 {
+/// Widest category-name column left of a plot, as a share of the region.
+pub(crate) const NAME_COLUMN_SHARE: f64 = 0.3;
+/// Widest column of line labels right of a plot.
+pub(crate) const LINE_LABEL_COLUMN: f64 = 280.0;
+/// Space between line ends and their labels when leaders are drawn.
+pub(crate) const LEADER_PAD: f64 = 28.0;
+/// Widest a part name may be (at 16 px labels; [`Theme::label_scaled`]).
+const MAX_PART_LABEL: f64 = 240.0;
+/// Space between the plot and a column of part names beside it.
+pub(crate) const PART_NAMES_PAD: f64 = 20.0;
+
+/// A part's name as drawn beside stacked and grouped bars: bold, cut to
+/// the widest a name may be.
+pub(crate) fn part_name(theme: &Theme, name: &str) -> String {
+    metrics::ellipsize(
+        &metrics::normalize(name),
+        theme.label_size,
+        true,
+        theme.label_scaled(MAX_PART_LABEL),
+    )
+}
+
+/// The room a chart wants left of its plot: its vertical axis' widest
+/// tick label, or its widest category name set in a column (at most
+/// [`NAME_COLUMN_SHARE`] of `width`).
+fn left_room(chart: &Chart, theme: &Theme, width: f64) -> f64 {
+    let size = theme.label_size;
+    let names = |names: &mut dyn Iterator<Item = &str>, bold: bool| {
+        max_width(names, size, bold).min(width * NAME_COLUMN_SHARE)
+    };
+    match chart {
+        Chart::Bars(b) if b.orientation == Orientation::Horizontal => {
+            names(&mut b.bars.iter().map(|b| b.label.as_str()), false)
+        }
+        Chart::Parts(p) if p.orientation == Orientation::Horizontal => {
+            names(&mut p.categories.iter().map(|c| c.label.as_str()), true)
+        }
+        Chart::Dots(d) => names(&mut d.rows.iter().map(|r| r.label.as_str()), true),
+        _ => left_axis(chart)
+            .map(|axis| {
+                let ticks = visible_ticks(axis);
+                max_width(ticks.iter().map(|(_, l)| l.as_str()), size, false)
+            })
+            .unwrap_or(0.0),
+    }
+}
+
+/// The room a chart wants right of its plot for the labels it sets there.
+fn right_room(chart: &Chart, theme: &Theme) -> f64 {
+    let size = theme.label_size;
+    // labels past the ends of bars that grow rightwards
+    let ends = |dom: [f64; 2], w: f64| {
+        let top = dom[0].max(dom[1]);
+        if w > 0.0 && top > 0.0 {
+            w + crate::band::VALUE_GAP
+        } else {
+            0.0
+        }
+    };
+    match chart {
+        Chart::Line(l) => {
+            let w = max_width(l.series.iter().map(|s| s.label.as_str()), size, true)
+                .min(LINE_LABEL_COLUMN);
+            if w > 0.0 {
+                w + LEADER_PAD
+            } else {
+                0.0
+            }
+        }
+        Chart::Bars(b) if b.orientation == Orientation::Horizontal => {
+            let w = max_width(b.bars.iter().map(|b| b.value_label.as_str()), size, true);
+            ends(b.value.domain, w)
+        }
+        Chart::Parts(p) if p.mode == PartsMode::Stacked => {
+            if p.orientation == Orientation::Horizontal {
+                let totals = p.categories.iter().map(|c| c.total_label.as_str());
+                ends(p.value.domain, max_width(totals, size, true))
+            } else {
+                let names: Vec<String> =
+                    p.parts.iter().map(|q| part_name(theme, &q.name)).collect();
+                let w = max_width(names.iter().map(String::as_str), size, true);
+                if w > 0.0 {
+                    w + PART_NAMES_PAD
+                } else {
+                    0.0
+                }
+            }
+        }
+        _ => 0.0,
+    }
+}
+
+/// The deck's gutters ([`Region::gutter`], [`Region::label_gutter`]): the
+/// most room any frame of the deck wants left and right of its plot.
+fn gutters(deck: &DeckPlan, frame: &FramePlan, theme: &Theme, width: f64) -> (f64, f64) {
     grid_frames(deck, frame)
         .iter()
-        .filter_map(|f| left_axis(&f.chart))
-        .map(|axis| {
-            let ticks = visible_ticks(axis);
-            max_width(
-                ticks.iter().map(|(_, l)| l.as_str()),
-                theme.label_size,
-                false,
+        .map(|f| {
+            (
+                left_room(&f.chart, theme, width),
+                right_room(&f.chart, theme),
             )
         })
-        .fold(0.0, f64::max)
+        .fold((0.0, 0.0), |(l, r), (a, b)| (l.max(a), r.max(b)))
 }
 
 struct Header<'t> {
@@ -334,12 +428,15 @@ pub fn draw_page(
     } else {
         HEIGHT as f64 - theme.margin_bottom
     };
+    let (left, right) = (margin_x, WIDTH as f64 - margin_x);
+    let (gutter, label_gutter) = gutters(deck, frame, theme, right - left);
     Ok(Region {
-        left: margin_x,
+        left,
         top: header_bottom + HEADER_TO_CHART,
-        right: WIDTH as f64 - margin_x,
+        right,
         bottom,
-        gutter: gutter(deck, frame, theme),
+        gutter,
+        label_gutter,
     })
 }
 

@@ -23,6 +23,7 @@ pub mod canvas;
 mod cite;
 mod dots;
 mod figures;
+mod fit;
 mod html;
 pub mod inspect;
 mod kit;

@@ -26,6 +26,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &LineChart, region: Re
     let xmap = |x: f64| map(x, chart.x.domain, l.plot_left, l.plot_right);
     let ymap = |y: f64| map(y, chart.y.domain, l.plot_bottom, l.plot_top);
     let mut obstacles = Obstacles::default();
+    canvas.plot((l.plot_left, l.plot_top), (l.plot_right, l.plot_bottom))?;
 
     // Axis titles.
     if let (Some(top), Some(title)) = (l.y_title_top, chart.y.title.as_deref()) {

@@ -6,13 +6,13 @@ use crate::metrics::line_height;
 use crate::theme::Theme;
 use crescendo_frame::LineChart;
 
-/// Widest direct-label column, in px; longer labels are cut with an ellipsis.
-const MAX_LABEL_COLUMN: f64 = 280.0;
-/// Space between tick labels or direct labels and the plot.
-const PAD: f64 = 12.0;
 /// Space between the plot and the direct labels when some label moved away
 /// from its line's end and needs a leader ([`crate::place`]).
-const LEADER_PAD: f64 = 28.0;
+use crate::layout::LEADER_PAD;
+/// Widest direct-label column, in px; longer labels are cut with an ellipsis.
+use crate::layout::LINE_LABEL_COLUMN as MAX_LABEL_COLUMN;
+/// Space between tick labels or direct labels and the plot.
+const PAD: f64 = 12.0;
 
 /// Plot geometry of a line chart. Depends only on the axes and the names of
 /// all series (hidden ones included), never on roles.
@@ -107,11 +107,9 @@ pub(crate) fn layout(chart: &LineChart, region: Region, theme: &Theme) -> LineLa
         .iter()
         .any(|(w, p, _)| needs_leader(*w, *p, theme));
     let pad = if leaders { LEADER_PAD } else { PAD };
-    let plot_right = if label_w > 0.0 {
-        region.right - label_w - pad
-    } else {
-        region.right
-    };
+    // the deck's label gutter holds the plot's right edge still
+    let own = if label_w > 0.0 { label_w + pad } else { 0.0 };
+    let plot_right = region.right - own.max(region.label_gutter);
     LineLayout {
         y_title_top,
         x_title_top,

@@ -12,10 +12,12 @@
 use crate::axis;
 use crate::band::Band;
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, muted_label, Obstacles};
+use crate::fit;
+use crate::kit::{muted_label, Obstacles};
 use crate::layout::{self, map, max_width, Region};
 use crate::line;
 use crate::metrics::{self, line_height, text_width};
+use crate::place;
 use crate::theme::{Rgb, Theme};
 use crate::{Drawn, RenderError};
 use crescendo_frame::{Axis, BarChart, Chart, LineChart, Orientation, Panel, PanelChart, Role};
@@ -106,7 +108,17 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: R
     let lead_w = lead_width(theme, chart, across_bars, region, cols);
     let lead = if lead_w > 0.0 { lead_w + PAD } else { 0.0 };
     let shared_ticks = chart.common_scale && !chart.trimmed && !across_bars;
-    let width = region.right - region.left;
+    // The panels subdivide the deck's plot rectangle: the first plot
+    // starts at the deck's left plot edge (when its own lead column fits
+    // in the deck's gutter), the last ends at the deck's right one.
+    let deck_left = region.left + region.gutter + crate::band_axes::PAD;
+    let start = if region.gutter > 0.0 {
+        (deck_left - lead).max(region.left)
+    } else {
+        region.left
+    };
+    let end = region.right - region.label_gutter;
+    let width = end - start;
     let plot_w = if shared_ticks {
         (width - lead - (cols - 1) as f64 * GAP_X) / cols as f64
     } else {
@@ -115,11 +127,12 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: R
     .max(1.0);
     let plot_left = |col: usize| {
         if shared_ticks {
-            region.left + lead + col as f64 * (plot_w + GAP_X)
+            start + lead + col as f64 * (plot_w + GAP_X)
         } else {
-            region.left + col as f64 * (lead + plot_w + GAP_X) + lead
+            start + col as f64 * (lead + plot_w + GAP_X) + lead
         }
     };
+    canvas.plot((plot_left(0), top), (plot_left(cols - 1) + plot_w, bottom))?;
     let row_h = ((bottom - top - (rows - 1) as f64 * GAP_Y) / rows as f64).max(1.0);
     // Trimmed panels: the same units per pixel, each cut to its extent.
     let max_span = widest_span(chart);
@@ -297,8 +310,8 @@ fn panel_bars(
     };
     let fit = if across { g.lead_w } else { band - 4.0 };
     let texts: Vec<String> = (b.bars.iter())
-        .map(|bar| metrics::ellipsize(&metrics::normalize(&bar.label), size, false, fit))
-        .collect();
+        .map(|bar| fit::one(canvas, &metrics::normalize(&bar.label), (size, false), fit))
+        .collect::<Result<_, _>>()?;
     let spans: Vec<(f64, f64)> = (texts.iter().enumerate())
         .map(|(k, text)| {
             let c = bands.centre(k);
@@ -320,7 +333,7 @@ fn panel_bars(
                 (c, g.tick_top, Align::Middle)
             };
             let label = muted_label(theme, size, text, x, top, align);
-            kit::put(canvas, obstacles, &label)?;
+            place::settle(canvas, theme.baseline, obstacles, &label, (&[], None))?;
         }
         let (Some(color), Some(v)) = (
             mark_colour(theme, role, bar.role),
@@ -386,12 +399,8 @@ pub(crate) fn panel_title(
     top: f64,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let text = metrics::ellipsize(
-        &metrics::normalize(&panel.title),
-        theme.label_size,
-        true,
-        right - x,
-    );
+    let title = metrics::normalize(&panel.title);
+    let text = fit::one(canvas, &title, (theme.label_size, true), right - x)?;
     let focus = panel.role == Role::Focus;
     let label = Label {
         text: &text,
@@ -402,7 +411,7 @@ pub(crate) fn panel_title(
         color: if focus { theme.accent } else { theme.takeaway },
         align: Align::Start,
     };
-    kit::put(canvas, obstacles, &label)
+    place::settle(canvas, theme.baseline, obstacles, &label, (&[], None))
 }
 
 /// The widest value domain of any panel (trimmed panels keep its units

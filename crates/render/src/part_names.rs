@@ -4,18 +4,14 @@
 //! over or beside the group with the most room, with short leader lines.
 
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, spread_widths, Obstacles};
+use crate::kit::{spread_widths, Obstacles};
 use crate::layout::{self, Region};
-use crate::metrics::{self, line_height, text_width};
+use crate::metrics::{line_height, text_width};
 use crate::part_slots::{extents, roomiest, Slots};
+use crate::place;
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{PartsChart, Role};
-
-/// Space between the plot and a column of names.
-const PAD: f64 = 12.0;
-/// Widest a part name may be (at 16 px labels; [`Theme::label_scaled`]).
-const MAX_PART_LABEL: f64 = 240.0;
 
 /// Where the part names go: beside vertical bars (`rows` is the span they
 /// may take, right of `plot_right`), or above and beside horizontal ones
@@ -27,17 +23,8 @@ pub(crate) enum Naming {
 
 /// The part names as drawn (bold width, cut to the widest a name may be).
 pub(crate) fn names(theme: &Theme, chart: &PartsChart) -> Vec<String> {
-    chart
-        .parts
-        .iter()
-        .map(|p| {
-            metrics::ellipsize(
-                &metrics::normalize(&p.name),
-                theme.label_size,
-                true,
-                theme.label_scaled(MAX_PART_LABEL),
-            )
-        })
+    (chart.parts.iter())
+        .map(|p| layout::part_name(theme, &p.name))
         .collect()
 }
 
@@ -109,6 +96,19 @@ impl Namer<'_> {
     }
 }
 
+impl Namer<'_> {
+    /// A part name through the placer ([`place::settle`]).
+    fn settle(
+        &self,
+        canvas: &Canvas,
+        obstacles: &mut Obstacles,
+        label: &Label<'_>,
+        how: (&[(f64, f64)], Option<place::Lead<'_>>),
+    ) -> Result<(), RenderError> {
+        place::settle(canvas, self.theme.baseline, obstacles, label, how)
+    }
+}
+
 /// Names every part of `chart` as `naming` says.
 pub(crate) fn draw(
     canvas: &Canvas,
@@ -118,11 +118,15 @@ pub(crate) fn draw(
     region: Region,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
+    let names = names(theme, chart);
+    for (p, shown) in chart.parts.iter().zip(&names) {
+        crate::fit::note(canvas, &p.name, std::slice::from_ref(shown))?;
+    }
     let n = Namer {
         theme,
         chart,
         s,
-        names: names(theme, chart),
+        names,
         lh: line_height(theme.label_size),
         step: theme.label_step(),
         zero: s.vmap(0.0),
@@ -155,14 +159,14 @@ fn stacked_beside(
     let wanted = n.segments(true);
     let ys: Vec<f64> = wanted.iter().map(|w| w.0).collect();
     let placed = layout::spread(&ys, n.step, rows_top, value_bottom);
-    let x = plot_right + PAD + 8.0;
+    let x = plot_right + layout::PART_NAMES_PAD;
     for (&(y0, j, bar_right), y) in wanted.iter().zip(placed) {
         let Some(label) = n.label(j, x, y - n.lh / 2.0, Align::Start) else {
             continue;
         };
-        let line = [(bar_right + 3.0, y0), (x - 4.0, y)];
-        canvas.polyline(&line, n.theme.baseline, 1)?;
-        kit::put(canvas, obstacles, &label)?;
+        let lead = |dx: f64, dy: f64| ((bar_right + 3.0, y0), (x - 4.0 + dx, y + dy));
+        let moves = place::shifts(n.step, 2, false, None);
+        n.settle(canvas, obstacles, &label, (&moves, Some((true, &lead))))?;
     }
     Ok(())
 }
@@ -188,9 +192,10 @@ fn grouped_above(
             continue;
         };
         let bar_top = e.map(|e| n.s.vmap(e.1.max(0.0))).unwrap_or(n.zero);
-        let (from, to) = ((cx, label_top + n.lh + 1.0), (cx, bar_top - 2.0));
-        canvas.line(from, to, n.theme.baseline, 1)?;
-        kit::put(canvas, obstacles, &label)?;
+        // moved up only, so the leader stays on its bar
+        let lead = |_: f64, dy: f64| ((cx, label_top + dy + n.lh + 1.0), (cx, bar_top - 2.0));
+        let moves = place::shifts(n.step, 3, false, Some(-1.0));
+        n.settle(canvas, obstacles, &label, (&moves, Some((false, &lead))))?;
     }
     Ok(())
 }
@@ -215,9 +220,9 @@ fn stacked_row(
         let Some(label) = n.label(j, x, row_top, Align::Middle) else {
             continue;
         };
-        let line = [(x, row_top + n.lh + 2.0), (x0, bar_top - 2.0)];
-        canvas.polyline(&line, n.theme.baseline, 1)?;
-        kit::put(canvas, obstacles, &label)?;
+        let lead = |dx: f64, dy: f64| ((x + dx, row_top + dy + n.lh + 2.0), (x0, bar_top - 2.0));
+        let moves = place::shifts(n.step, 2, false, Some(-1.0));
+        n.settle(canvas, obstacles, &label, (&moves, Some((true, &lead))))?;
     }
     Ok(())
 }
@@ -249,7 +254,8 @@ fn grouped_right(
         let Some(label) = n.label(j, x, y - n.lh / 2.0, Align::Start) else {
             continue;
         };
-        kit::put(canvas, obstacles, &label)?;
+        let moves = place::shifts(n.step, 3, true, Some(1.0));
+        n.settle(canvas, obstacles, &label, (&moves, None))?;
     }
     Ok(())
 }

@@ -10,13 +10,15 @@
 //! `part_slots.rs`, how they are named `part_names.rs`.
 
 use crate::band::{self, Band, VALUE_GAP};
-use crate::band_axes::{self, PAD};
+use crate::band_axes;
 use crate::canvas::{Align, Canvas, Label};
-use crate::kit::{self, context_greys, Obstacles};
-use crate::layout::{self, fit_label_at, map, max_width, Region};
+use crate::fit;
+use crate::kit::{context_greys, Obstacles};
+use crate::layout::{self, map, max_width, Region};
 use crate::metrics::line_height;
 use crate::part_names::{self, Naming};
 use crate::part_slots::{extents, roomiest, Slots};
+use crate::place;
 use crate::theme::{Rgb, Theme};
 use crate::{Drawn, RenderError};
 use crescendo_frame::{Orientation, PartsChart, PartsMode, Role};
@@ -24,8 +26,6 @@ use crescendo_frame::{Orientation, PartsChart, PartsMode, Role};
 /// Share of a category band filled by its bar (stacked) or group.
 const BAR_SHARE: f64 = 0.62;
 const GROUP_SHARE: f64 = 0.8;
-/// Widest category column of horizontal bars, as a share of the region.
-const MAX_CATEGORY_SHARE: f64 = 0.3;
 
 /// The value domain widened to include zero (bars start at zero).
 fn domain(chart: &PartsChart) -> [f64; 2] {
@@ -141,7 +141,8 @@ fn categories(
         } else {
             (s.bands.centre(c), cats.start, Align::Middle, true)
         };
-        let lines = fit_label_at(theme.label_size, &cat.label, cats.width, cats.lines, true);
+        let how = (theme.label_size, true);
+        let lines = fit::lines(canvas, &cat.label, how, cats.width, cats.lines)?;
         for (i, line) in lines.iter().enumerate().filter(|_| shown) {
             let label = Label {
                 text: line,
@@ -152,7 +153,7 @@ fn categories(
                 color: if focus { theme.accent } else { theme.muted },
                 align,
             };
-            kit::put(canvas, obstacles, &label)?;
+            place::settle(canvas, theme.baseline, obstacles, &label, (&[], None))?;
         }
         if cat.role == Role::Hidden {
             continue;
@@ -220,6 +221,7 @@ fn vertical(
         top - (y - 6.0 - rows)
     });
     let vmap = |v: f64| map(v, dom, value_bottom, value_top);
+    canvas.plot((u.plot.0, value_top), (u.plot.1, value_bottom))?;
     u.value_axis(canvas, obstacles, theme, &chart.value, vmap)?;
     let bands = Band {
         orientation: Orientation::Vertical,
@@ -254,7 +256,6 @@ fn horizontal(
     obstacles: &mut Obstacles,
 ) -> Result<Frame, RenderError> {
     let lh = line_height(theme.label_size);
-    let step = theme.label_step();
     let dom = domain(chart);
     let stacked = chart.mode == PartsMode::Stacked;
     let k = chart.parts.len();
@@ -263,17 +264,10 @@ fn horizontal(
     let l = band_axes::lying(canvas, obstacles, theme, region, titles, names_row)?;
     let (plot_top, plot_bottom) = (l.plot_top, l.plot_bottom);
 
-    let n = chart.categories.len().max(1);
-    let band = (plot_bottom - plot_top) / n as f64;
-    let cap = (region.right - region.left) * MAX_CATEGORY_SHARE;
-    let widest = max_width(
-        chart.categories.iter().map(|c| c.label.as_str()),
-        theme.label_size,
-        true,
-    );
-    let (col_w, cat_lines) = band::name_column(widest, cap, band, step);
-    let col_right = region.left + col_w;
-    let plot = (col_right + PAD, region.right);
+    let names = chart.categories.iter().map(|c| c.label.as_str());
+    let col = l.names(theme, region, names, true);
+    let (band, col_w, cat_lines, col_right, plot) =
+        (col.band, col.width, col.lines, col.right, col.plot);
 
     let total_w = if stacked {
         max_width(
@@ -284,7 +278,7 @@ fn horizontal(
     } else {
         0.0
     };
-    let (left_pad, right_pad) = band::end_room(dom, total_w, total_w > 0.0);
+    let (left_pad, right_pad) = band::end_room(dom, total_w, total_w > 0.0, region.label_gutter);
     let value_left = plot.0 + left_pad;
     // Grouped names go right of the roomiest group: pull the end of the
     // scale in until they fit.
@@ -295,6 +289,7 @@ fn horizontal(
     let values = (value_left, value_right);
     let vmap = |v: f64| map(v, dom, value_left, value_right);
     let value = (&chart.value, vmap);
+    canvas.plot((plot.0, plot_top), (plot.1, plot_bottom))?;
     let plot_span = (region.left, plot.0, plot.1);
     l.value_axis(canvas, obstacles, theme, value, plot_span, values)?;
     let bands = Band {

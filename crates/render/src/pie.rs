@@ -6,6 +6,7 @@
 //! leaves its wedge empty and its label slot unused.
 
 use crate::canvas::{Align, Canvas, Label};
+use crate::fit;
 use crate::layout::{self, Region};
 use crate::metrics::{self, line_height};
 use crate::theme::Theme;
@@ -130,7 +131,8 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PieChart, region: Reg
                 metrics::normalize(&s.share_label)
             );
             // Fitted at bold width so the text is the same in every role.
-            let text = metrics::ellipsize(raw.trim(), theme.label_size, true, room.max(0.0));
+            let how = (theme.label_size, true);
+            let text = fit::one(canvas, raw.trim(), how, room.max(0.0))?;
             canvas.text(&Label {
                 text: &text,
                 x,

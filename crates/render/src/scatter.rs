@@ -4,7 +4,8 @@
 //! line over the x range of the points in a dark grey with its correlation.
 
 use crate::axis;
-use crate::canvas::{Align, Canvas, Label};
+use crate::canvas::Canvas;
+use crate::fit;
 use crate::kit::{self, rect, Obstacles, Rect};
 use crate::layout::{self, map, Region};
 use crate::metrics::{self, line_height};
@@ -55,8 +56,10 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
     layout::check_axis(&chart.x, "x")?;
     layout::check_axis(&chart.y, "y")?;
     let lh = line_height(theme.label_size);
-    let l = axis::xy_layout(&chart.x, &chart.y, region, 0.0, theme.label_size, true);
+    let reserve = region.label_gutter;
+    let l = axis::xy_layout(&chart.x, &chart.y, region, reserve, theme.label_size, true);
     let mut obstacles = Obstacles::default();
+    canvas.plot((l.plot_left, l.plot_top), (l.plot_right, l.plot_bottom))?;
     axis::draw_xy_axes(canvas, theme, &chart.x, &chart.y, &l, true, &mut obstacles)?;
     let xmap = |x: f64| map(x, chart.x.domain, l.plot_left, l.plot_right);
     let ymap = |y: f64| map(y, chart.y.domain, l.plot_bottom, l.plot_top);
@@ -126,12 +129,9 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
         if !focus && labelled > LABEL_ALL {
             continue;
         }
-        let text = metrics::ellipsize(
-            &metrics::normalize(&p.label),
-            theme.label_size,
-            focus,
-            theme.label_scaled(MAX_LABEL),
-        );
+        let label = metrics::normalize(&p.label);
+        let how = (theme.label_size, focus);
+        let text = fit::one(canvas, &label, how, theme.label_scaled(MAX_LABEL))?;
         if text.is_empty() {
             continue;
         }
@@ -140,19 +140,9 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
         let r = f64::from(if focus { FOCUS_DOT } else { DOT });
         let cands = candidates(c, r, w, lh);
         if let Some(spot) = best_spot(&cands, &obstacles, &bounds) {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text: &text,
-                    x: spot.x0,
-                    top: spot.y0,
-                    size: theme.label_size,
-                    bold: focus,
-                    color: if focus { theme.accent } else { theme.muted },
-                    align: Align::Start,
-                },
-            )?;
+            let color = if focus { theme.accent } else { theme.muted };
+            let ink = (theme.label_size, focus, color);
+            kit::put_in(canvas, &mut obstacles, &text, &spot, ink)?;
         }
     }
 
@@ -170,19 +160,8 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
             cands.extend(candidates(p, 2.0, w, lh));
         }
         if let Some(spot) = best_spot(&cands, &obstacles, &bounds) {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text: &text,
-                    x: spot.x0,
-                    top: spot.y0,
-                    size: theme.label_size,
-                    bold: false,
-                    color: theme.muted,
-                    align: Align::Start,
-                },
-            )?;
+            let ink = (theme.label_size, false, theme.muted);
+            kit::put_in(canvas, &mut obstacles, &text, &spot, ink)?;
         }
     }
     Ok(())

@@ -77,6 +77,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: R
             // panels size their own tick column (the deck's gutter is for
             // whole-frame plots)
             gutter: 0.0,
+            label_gutter: 0.0,
         };
         scatter::draw(canvas, theme, sc, cell)?;
     }

@@ -15,6 +15,7 @@
 //! in place of the last rows before it.
 
 use crate::canvas::{Align, Canvas, Label};
+use crate::fit;
 use crate::kit::{faint_fill, mix};
 use crate::layout::Region;
 use crate::metrics::{self, line_height, text_width};
@@ -60,12 +61,8 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &TableChart, region: R
 
     // Header and the one rule under it.
     for (c, col) in chart.columns.iter().enumerate() {
-        let text = metrics::ellipsize(
-            &metrics::normalize(&col.title),
-            theme.label_size,
-            true,
-            widths[c],
-        );
+        let title = metrics::normalize(&col.title);
+        let text = fit::one(canvas, &title, (theme.label_size, true), widths[c])?;
         let (x, align) = anchor(c);
         canvas.text(&Label {
             text: &text,
@@ -130,7 +127,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &TableChart, region: R
                 .map(|s| metrics::normalize(s))
                 .unwrap_or_default();
             let focus = row.role == Role::Focus || row.focus_cell == Some(c);
-            let text = metrics::ellipsize(&cell, theme.label_size, true, width);
+            let text = fit::one(canvas, &cell, (theme.label_size, true), width)?;
             let (x, align) = anchor(c);
             canvas.text(&Label {
                 text: &text,

@@ -89,7 +89,7 @@ fn waterfall(r: &Request) -> Result<Drawing, String> {
     let bars = bars_of(r, &rows, claimed)?;
     let decimals = decimals_needed(bars.iter().map(Bar::value), 2);
     Ok(Drawing {
-        primitives: draw(r, &bars, decimals),
+        primitives: draw(r, &bars, decimals)?,
         data_domain: None,
         description: Some(describe(&bars, decimals)),
     })
@@ -188,8 +188,9 @@ fn bars_of(r: &Request, rows: &[Row], claimed: Option<Row>) -> Result<Vec<Bar>, 
 
 /// The chart's primitives: one slot per bar, with connectors between
 /// shown bars and the zero line; value labels above, categories below,
-/// drawn last.
-fn draw(r: &Request, bars: &[Bar], decimals: usize) -> Vec<Primitive> {
+/// drawn last. Category names wrap onto up to [`NAME_LINES`] lines under
+/// their bar; a name that cannot fit so is an error, never cut.
+fn draw(r: &Request, bars: &[Bar], decimals: usize) -> Result<Vec<Primitive>, String> {
     // Lay labels out for the host's text size.
     let font = r.label_size.clamp(8.0, 72.0);
     let line = (font * 1.25).ceil();
@@ -200,8 +201,14 @@ fn draw(r: &Request, bars: &[Bar], decimals: usize) -> Vec<Primitive> {
     let (w, h) = (r.area.width, r.area.height);
     let slot = w / bars.len() as f64;
     let bar_w = slot * FILL;
+    // DejaVu Sans Bold averages about 0.7 em a character (from its metrics)
+    let max_chars = ((slot / (font * 0.7)).floor() as usize).max(1);
+    let names = (bars.iter())
+        .map(|b| wrap_name(&b.label, max_chars))
+        .collect::<Result<Vec<_>, _>>()?;
+    let rows = names.iter().map(Vec::len).max().unwrap_or(1).max(1) as f64;
     let top = (line + 4.0).min(h / 3.0);
-    let bottom = (h - line - 6.0).max(top + 1.0).min(h);
+    let bottom = (h - rows * line - 6.0).max(top + 1.0).min(h);
     let [lo, hi] =
         extent(bars.iter().flat_map(|b| [b.from, b.to]).chain([0.0])).unwrap_or([0.0, 1.0]);
     let y = Linear::new([lo, hi], [bottom, top]);
@@ -210,8 +217,6 @@ fn draw(r: &Request, bars: &[Bar], decimals: usize) -> Vec<Primitive> {
         y: y.clamp(0.0, h),
         space: Space::Plot,
     };
-    // DejaVu Sans Bold averages about 0.7 em a character (from its metrics)
-    let max_chars = ((slot / (font * 0.7)).floor() as usize).max(1);
 
     let mut prims = Vec::new();
     let mut labels = Vec::new();
@@ -238,13 +243,16 @@ fn draw(r: &Request, bars: &[Bar], decimals: usize) -> Vec<Primitive> {
             bold,
             role,
         });
-        labels.push(Primitive::Text {
-            at: pt(centre, h - line),
-            text: shorten(&bar.label, max_chars),
-            anchor: Anchor::Middle,
-            bold,
-            role: Role::Axis,
-        });
+        let lines = names.get(i).map(Vec::as_slice).unwrap_or_default();
+        for (k, text) in lines.iter().enumerate() {
+            labels.push(Primitive::Text {
+                at: pt(centre, h - (rows - k as f64) * line),
+                text: text.clone(),
+                anchor: Anchor::Middle,
+                bold,
+                role: Role::Axis,
+            });
+        }
         // A connector from this bar's end to the next bar, when both show.
         if let Some(next) = bars.get(i + 1) {
             if next.shown != Shown::Hidden {
@@ -265,18 +273,37 @@ fn draw(r: &Request, bars: &[Bar], decimals: usize) -> Vec<Primitive> {
         role: Role::Axis,
     });
     prims.extend(labels);
-    prims
+    Ok(prims)
 }
 
-/// `name` cut to `max` characters with an ellipsis.
-fn shorten(name: &str, max: usize) -> String {
-    if name.chars().count() <= max {
-        name.to_string()
-    } else {
-        let mut s: String = name.chars().take(max.saturating_sub(1)).collect();
-        s.push('…');
-        s
+/// Most lines a category name may take under its bar.
+const NAME_LINES: usize = 3;
+
+/// `name` wrapped at its spaces into lines of at most `max` characters.
+/// A name that needs more than [`NAME_LINES`] lines, or holds a word
+/// longer than a line, cannot fit under its bar: an error that says so,
+/// never a cut name.
+fn wrap_name(name: &str, max: usize) -> Result<Vec<String>, String> {
+    let mut lines: Vec<String> = Vec::new();
+    for word in name.split_whitespace() {
+        let len = word.chars().count();
+        match lines.last_mut() {
+            Some(last) if last.chars().count() + 1 + len <= max => {
+                last.push(' ');
+                last.push_str(word);
+            }
+            _ => lines.push(word.to_string()),
+        }
     }
+    let too_wide = lines.iter().any(|l| l.chars().count() > max);
+    if too_wide || lines.len() > NAME_LINES {
+        return Err(format!(
+            "the category name \"{name}\" cannot fit under its bar: at this size a \
+             bar has room for {NAME_LINES} lines of {max} characters; shorten the name \
+             in the data or show fewer steps"
+        ));
+    }
+    Ok(lines)
 }
 
 /// "Waterfall from Budget 2023 1,000 to End 1,075 in 3 steps: 2 up (+120 in
@@ -542,8 +569,25 @@ mod tests {
     }
 
     #[test]
-    fn long_names_are_shortened() {
-        assert_eq!(shorten("Operating expenses", 6), "Opera…");
-        assert_eq!(shorten("Tax", 6), "Tax");
+    fn long_names_wrap_and_never_are_cut() {
+        assert_eq!(
+            wrap_name("Operating expenses", 10).unwrap(),
+            ["Operating", "expenses"]
+        );
+        assert_eq!(wrap_name("Tax", 6).unwrap(), ["Tax"]);
+        assert_eq!(
+            wrap_name("New boat lease", 9).unwrap(),
+            ["New boat", "lease"]
+        );
+        // a word longer than a line, or more than three lines: an error
+        let err = wrap_name("Refurbishment", 6).unwrap_err();
+        assert!(err.contains("\"Refurbishment\" cannot fit"), "{err}");
+        assert!(err.contains("3 lines of 6 characters"), "{err}");
+        assert!(wrap_name("a b c d e f g h", 3).is_err());
+        // and through the whole chart: no ellipsis anywhere
+        let r = request(&["Start", "Operating expenses", "End"], &[10.0, -2.0, 8.0]);
+        let d = waterfall(&r).unwrap();
+        assert!(texts(&d).iter().all(|t| !t.contains('…')));
+        assert!(texts(&d).contains(&"expenses".to_string()));
     }
 }
