@@ -610,6 +610,12 @@ fn a_locale_and_a_fiscal_year_change_numbers_dates_and_ticks() {
         html.contains("<html lang=\"fr-FR\">"),
         "the deck's language"
     );
+    // and its own words are French too
+    assert!(
+        html.contains("aria-roledescription=\"diapositive\""),
+        "{html}"
+    );
+    assert!(html.contains(">Pupitre</button>"), "{html}");
     let (_, svg) = read_dir_files(&dir.join("deck"))
         .into_iter()
         .find(|(n, _)| n.ends_with(".svg"))

@@ -19,6 +19,7 @@ mod axis;
 mod band;
 mod bars;
 pub mod canvas;
+mod deck_words;
 mod dots;
 mod figures;
 mod html;
