@@ -18,14 +18,43 @@ pub struct Content {
     /// Each data point: its key (item, then position) and its value as
     /// written by the shortest digits that read back the same (`null` when
     /// missing).
-    #[serde(default, skip_serializing_if = "Vec::is_empty")]
-    pub data: Vec<(String, Option<String>)>,
+    #[serde(default, skip_serializing_if = "Keyed::is_empty")]
+    pub data: Keyed<Option<String>>,
     /// Each named item (series, bar, part, row, slice, panel …) and its role.
-    #[serde(default, skip_serializing_if = "Vec::is_empty")]
-    pub roles: Vec<(String, String)>,
+    #[serde(default, skip_serializing_if = "Keyed::is_empty")]
+    pub roles: Keyed<String>,
     /// Each annotation in words.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub annotations: Vec<String>,
+}
+
+/// Values by key, written as one JSON object (one line per entry in
+/// `deck.json`); a key met again gets ` #2`, ` #3`, … so nothing is lost.
+#[derive(Serialize, Deserialize, Clone, Debug, PartialEq)]
+#[serde(transparent)]
+pub struct Keyed<V>(pub BTreeMap<String, V>);
+
+impl<V> Default for Keyed<V> {
+    fn default() -> Self {
+        Keyed(BTreeMap::new())
+    }
+}
+
+impl<V> Keyed<V> {
+    pub fn is_empty(&self) -> bool {
+        self.0.is_empty()
+    }
+
+    /// Add an entry, its key made unique.
+    pub fn push(&mut self, (key, value): (String, V)) {
+        let mut unique = key.clone();
+        let mut n = 1;
+        while self.0.contains_key(&unique) {
+            n += 1;
+            unique = format!("{key} #{n}");
+        }
+        self.0.insert(unique, value);
+    }
 }
 
 /// One kind of change in a frame's chart.
@@ -251,35 +280,17 @@ impl Content {
     }
 }
 
-/// Pairs of a list keyed by name: the n-th `key` of one with the n-th of the
-/// other (keys may repeat), in the order of the newer list, then what is
-/// only in the older.
-fn paired<'a, V: PartialEq>(
-    old: &'a [(String, V)],
-    new: &'a [(String, V)],
+/// Every key of either side in order, with its value on each side.
+fn paired<'a, V>(
+    old: &'a Keyed<V>,
+    new: &'a Keyed<V>,
 ) -> Vec<(&'a str, Option<&'a V>, Option<&'a V>)> {
-    let mut olds: BTreeMap<&str, Vec<&V>> = BTreeMap::new();
-    for (k, v) in old {
-        olds.entry(k).or_default().push(v);
-    }
-    let mut used: BTreeMap<&str, usize> = BTreeMap::new();
-    let mut out = Vec::new();
-    for (k, v) in new {
-        let n = used.entry(k).or_default();
-        out.push((
-            k.as_str(),
-            olds.get(k.as_str()).and_then(|o| o.get(*n).copied()),
-            Some(v),
-        ));
-        *n += 1;
-    }
-    for (k, vs) in &olds {
-        let n = used.get(k).copied().unwrap_or(0);
-        for v in vs.iter().skip(n) {
-            out.push((k, Some(*v), None));
-        }
-    }
-    out
+    let mut keys: Vec<&String> = old.0.keys().chain(new.0.keys()).collect();
+    keys.sort();
+    keys.dedup();
+    keys.into_iter()
+        .map(|k| (k.as_str(), old.0.get(k), new.0.get(k)))
+        .collect()
 }
 
 fn shown(v: Option<&Option<String>>) -> String {
@@ -353,18 +364,17 @@ mod tests {
     use super::*;
 
     fn content(data: &[(&str, Option<&str>)], roles: &[(&str, &str)], notes: &[&str]) -> Content {
-        Content {
-            titles: BTreeMap::new(),
-            data: data
-                .iter()
-                .map(|(k, v)| (k.to_string(), v.map(str::to_string)))
-                .collect(),
-            roles: roles
-                .iter()
-                .map(|(k, v)| (k.to_string(), v.to_string()))
-                .collect(),
+        let mut c = Content {
             annotations: notes.iter().map(|s| s.to_string()).collect(),
+            ..Content::default()
+        };
+        for (k, v) in data {
+            c.data.push((k.to_string(), v.map(str::to_string)));
         }
+        for (k, v) in roles {
+            c.roles.push((k.to_string(), v.to_string()));
+        }
+        c
     }
 
     #[test]
@@ -395,13 +405,13 @@ mod tests {
             [
                 "A 2024-01: 10 → 12",
                 "A 2024-02: missing → 4",
+                "B 2024-01 gone (was 3)",
                 "C 2024-01 new: 3",
-                "B 2024-01 gone (was 3)"
             ]
         );
         assert_eq!(
             changes[1].items,
-            ["A focus → context", "C — → focus", "B context → —"]
+            ["A focus → context", "B context → —", "C — → focus"]
         );
         assert_eq!(
             changes[2].items,
@@ -414,10 +424,10 @@ mod tests {
     }
 
     #[test]
-    fn repeated_keys_pair_in_order_and_long_lists_are_cut() {
+    fn repeated_keys_are_numbered_and_long_lists_are_cut() {
         let old = content(&[("x", Some("1")), ("x", Some("2"))], &[], &[]);
         let new = content(&[("x", Some("1")), ("x", Some("5"))], &[], &[]);
-        assert_eq!(compare(&old, &new)[0].items, ["x: 2 → 5"]);
+        assert_eq!(compare(&old, &new)[0].items, ["x #2: 2 → 5"]);
         let many = ChartChange {
             kind: "chart data",
             items: (0..8).map(|i| i.to_string()).collect(),

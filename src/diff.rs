@@ -286,7 +286,7 @@ mod tests {
 
     #[test]
     fn a_frame_whose_text_and_chart_changed_names_both_and_every_moved_value() {
-        let content = |v: &str, role: &str| json!({"data": [["Westbrook 2024-03", v]], "roles": [["Westbrook", role]]});
+        let content = |v: &str, role: &str| json!({"data": {"Westbrook 2024-03": v}, "roles": {"Westbrook": role}});
         let old = json!({"values": {"lead": "1.57", "alder": "73,188"}, "frames": [
             {"number": 1, "headline": "H", "takeaway": "Grew a few percent.", "sha256": "x",
              "quoted": {}, "content": content("4210", "focus")},
