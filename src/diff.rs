@@ -53,6 +53,7 @@ pub fn changed(old: &Value, new: &Value) -> bool {
     o.len() != n.len()
         || o.iter().zip(&n).any(|(a, b)| !same(a, b))
         || old["values"] != new["values"]
+        || old["exact"] != new["exact"]
 }
 
 /// A line for each claim that does not hold in the deck `m`.
@@ -220,9 +221,10 @@ pub fn values(old: &Value, new: &Value) -> Vec<String> {
             .iter()
             .chain(frames(old).iter())
             .filter(|f| f["quoted"].get(name).is_some())
-            .map(|f| f["number"].to_string())
+            .filter_map(|f| f["number"].as_u64())
             .collect::<std::collections::BTreeSet<_>>()
             .into_iter()
+            .map(|n| n.to_string())
             .collect();
         match at.len() {
             0 => "quoted nowhere".to_string(),
@@ -230,17 +232,22 @@ pub fn values(old: &Value, new: &Value) -> Vec<String> {
             _ => format!("quoted in frames {}", at.join(", ")),
         }
     };
+    // the exact number beside each figure: a value may move by less than
+    // its figure shows
+    let exact = |m: &Value, k: &str| m["exact"].get(k).and_then(Value::as_f64);
     names
         .into_iter()
-        .filter(|k| o.get(*k) != n.get(*k))
+        .filter(|k| o.get(*k) != n.get(*k) || exact(old, k) != exact(new, k))
         .map(|k| {
             let show = |v: Option<&Value>| v.map_or("—".to_string(), text);
-            format!(
-                "value {k} {} → {} ({})",
-                show(o.get(k)),
-                show(n.get(k)),
-                quoting(k)
-            )
+            let (a, b) = (show(o.get(k)), show(n.get(k)));
+            match (exact(old, k), exact(new, k)) {
+                (Some(x), Some(y)) if a == b => format!(
+                    "value {k} {a} (exact {x} → {y}, the same when rounded; {})",
+                    quoting(k)
+                ),
+                _ => format!("value {k} {a} → {b} ({})", quoting(k)),
+            }
         })
         .collect()
 }
@@ -315,6 +322,16 @@ mod tests {
                 "frame 1 unchanged",
                 "value alder 73,188 → 1 (quoted nowhere)"
             ]
+        );
+        // a value that moved by less than its figure shows
+        let mut exact = old.clone();
+        exact["exact"] = json!({"lead": 1.5705});
+        let mut moved = old.clone();
+        moved["exact"] = json!({"lead": 1.5667});
+        assert!(changed(&exact, &moved));
+        assert_eq!(
+            values(&exact, &moved),
+            ["value lead 1.57 (exact 1.5705 → 1.5667, the same when rounded; quoted nowhere)"]
         );
     }
 

@@ -133,12 +133,34 @@ pub struct Review {
 pub struct ValueChange {
     #[serde(flatten)]
     pub figure: Figure,
+    /// The exact numbers, when they moved though the figure did not.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub exact: Option<[f64; 2]>,
     pub quoted_in: Vec<usize>,
 }
 
-/// Every value of either deck whose figure differs.
+/// Every value of either deck whose figure or exact number differs.
 fn values(old: &DeckPlan, new: &DeckPlan, plain: bool) -> Vec<ValueChange> {
-    figures(&old.values, &new.values, plain)
+    let mut moved = figures(&old.values, &new.values, plain);
+    // moved by less than the figure shows: the same figure, other digits
+    for (name, x) in &old.exact {
+        let y = new.exact.get(name);
+        let figure = old.values.get(name);
+        if y.is_some_and(|y| y != x)
+            && figure.is_some()
+            && figure == new.values.get(name)
+            && !moved.iter().any(|f| &f.name == name)
+        {
+            moved.push(Figure {
+                name: name.clone(),
+                old: figure.cloned(),
+                new: figure.cloned(),
+                change: None,
+            });
+        }
+    }
+    moved.sort_by(|a, b| a.name.cmp(&b.name));
+    moved
         .into_iter()
         .map(|figure| {
             let quoting = |p: &DeckPlan| {
@@ -152,7 +174,15 @@ fn values(old: &DeckPlan, new: &DeckPlan, plain: bool) -> Vec<ValueChange> {
             if quoted_in.is_empty() {
                 quoted_in = quoting(old);
             }
-            ValueChange { figure, quoted_in }
+            let exact = match (old.exact.get(&figure.name), new.exact.get(&figure.name)) {
+                (Some(x), Some(y)) if figure.old == figure.new => Some([*x, *y]),
+                _ => None,
+            };
+            ValueChange {
+                figure,
+                exact,
+                quoted_in,
+            }
         })
         .collect()
 }
@@ -582,6 +612,26 @@ mod tests {
         assert_eq!(figure_change("2.3×", "2.3×"), None);
         assert_eq!(figure_change("March 2024", "4 weeks"), None);
         assert_eq!(figure_change("12%", "12 people"), None);
+    }
+
+    #[test]
+    fn every_moved_value_is_listed_even_below_its_rounding() {
+        let deck = |lead: f64, total: &str| -> DeckPlan {
+            serde_json::from_value(serde_json::json!({
+                "title": "t", "byline": null, "source": null, "theme": "clear",
+                "conclusion": null, "frames": [],
+                "values": {"lead": "1.57", "total": total},
+                "exact": {"lead": lead}
+            }))
+            .unwrap()
+        };
+        let moved = values(&deck(1.5705, "60"), &deck(1.5667, "66"), true);
+        let names: Vec<&str> = moved.iter().map(|v| v.figure.name.as_str()).collect();
+        assert_eq!(names, ["lead", "total"]);
+        assert_eq!(moved[0].exact, Some([1.5705, 1.5667]));
+        assert_eq!(moved[1].figure.change.as_deref(), Some("+6"));
+        assert!(moved.iter().all(|v| v.quoted_in.is_empty()));
+        assert!(values(&deck(1.5, "60"), &deck(1.5, "60"), true).is_empty());
     }
 
     #[test]

@@ -72,7 +72,14 @@ pub fn what_changed(f: &FrameReview) -> Vec<String> {
 pub fn value_line(v: &ValueChange) -> String {
     let f = &v.figure;
     let show = |v: &Option<String>| v.clone().unwrap_or_else(|| "—".into());
-    let mut s = format!("`{}` {} → {}", f.name, show(&f.old), show(&f.new));
+    let mut s = match v.exact {
+        Some([x, y]) => format!(
+            "`{}` {} (exact {x} → {y}, the same when rounded)",
+            f.name,
+            show(&f.new)
+        ),
+        None => format!("`{}` {} → {}", f.name, show(&f.old), show(&f.new)),
+    };
     if let Some(c) = &f.change {
         let _ = write!(s, " ({c})");
     }
