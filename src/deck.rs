@@ -147,6 +147,7 @@ pub fn render_files(
             "quoted": f.quoted,
             "templates": f.templates,
             "notices": f.notices,
+            "content": crate::content::Content::of(f),
             "sha256": hex(&Sha256::digest(svg.as_bytes())),
         });
         if exports.png {

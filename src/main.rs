@@ -20,6 +20,7 @@ mod build;
 mod check;
 mod cli;
 mod completions;
+mod content;
 mod deck;
 mod diff;
 mod explain;

@@ -38,9 +38,17 @@ macro_rules! tell {
     ($($arg:tt)*) => {{
         let text = format!($($arg)*);
         let safe = crescendo_diag::terminal_safe(&text);
-        eprintln!("{safe}");
+        $crate::output::to_stderr(&format!("{safe}\n"));
         $crate::output::record(&safe);
     }};
+}
+
+/// Write to standard error. A closed standard error (`crescendo diff A B
+/// 2>&1 | head`) loses the message instead of panicking; the command goes
+/// on, and its exit status still says how it went.
+pub fn to_stderr(text: &str) {
+    use std::io::Write as _;
+    let _ = std::io::stderr().write_all(text.as_bytes());
 }
 
 thread_local! {
@@ -64,7 +72,7 @@ pub fn diagnostics(diags: &[Diagnostic], color: bool) {
     if diags.is_empty() {
         return;
     }
-    eprint!("{}", render(diags, color));
+    to_stderr(&render(diags, color));
     TRANSCRIPT.with(|t| {
         if let Some(s) = t.borrow_mut().as_mut() {
             s.push_str(&render(diags, false));

@@ -213,3 +213,65 @@ fn rebuilds_and_diff_name_the_numbers_that_moved() {
     let missing = crescendo(&dir, &["diff", "nov", "nowhere"]);
     assert_eq!(missing.status.code(), Some(2));
 }
+
+/// A frame whose takeaway and chart change together, a spotlight moved, a
+/// callout added and a value quoted nowhere that moved: `diff` names each.
+#[test]
+fn diff_lists_every_kind_of_change_and_every_moved_value() {
+    let dir = scratch("diff-kinds");
+    let story = |takeaway: &str, focus: &str, note: &str| {
+        format!(
+            "story \"Loans\"\n\ndata loans from \"loans.csv\" {{\n  month: month\n  branch: text\n  loans: number\n}}\n\n\
+             view monthly = loans | by month, branch: loans = sum(loans)\n\
+             value total = sum(loans.loans)\n\n\
+             frame \"Loans by branch\" {{\n  line monthly: x month, y loans, series branch\n  spotlight \"{focus}\"\n{note}  takeaway \"{takeaway}\"\n}}\n"
+        )
+    };
+    let data = |march: u32| {
+        format!("month,branch,loans\n2024-01,East,10\n2024-01,West,7\n2024-02,East,12\n2024-02,West,8\n2024-03,East,{march}\n2024-03,West,9\n")
+    };
+    fs::write(dir.join("loans.csv"), data(14)).unwrap();
+    fs::write(dir.join("s.cresc"), story("East leads.", "East", "")).unwrap();
+    let built = crescendo(&dir, &["build", "s.cresc", "--out", "old"]);
+    assert!(
+        built.status.success(),
+        "{}",
+        String::from_utf8_lossy(&built.stderr)
+    );
+    fs::write(dir.join("loans.csv"), data(20)).unwrap();
+    let note = "  callout \"2024-03\" on \"East\" \"New branch hours\"\n";
+    fs::write(dir.join("s.cresc"), story("East pulls away.", "West", note)).unwrap();
+    let built = crescendo(&dir, &["build", "s.cresc", "--out", "new"]);
+    assert!(
+        built.status.success(),
+        "{}",
+        String::from_utf8_lossy(&built.stderr)
+    );
+    let run = crescendo(&dir, &["diff", "old", "new"]);
+    assert_eq!(run.status.code(), Some(1));
+    assert_eq!(
+        String::from_utf8_lossy(&run.stdout),
+        "frame 1 \"Loans by branch\": changed\n\
+         \x20 takeaway: “East leads.” → “East pulls away.”\n\
+         \x20 chart data: East 2024-03: 14 → 20\n\
+         \x20 roles: East focus → context; West context → focus\n\
+         \x20 annotations: added callout “New branch hours” at 2024-03, 20\n\
+         value total 60 → 66 (quoted nowhere)\n"
+    );
+    // piped into a reader that is gone (`| head`): a quiet end, no panic
+    for args in [["diff", "old", "new"], ["diff", "old", "nowhere"]] {
+        let mut child = std::process::Command::new(env!("CARGO_BIN_EXE_crescendo"))
+            .current_dir(&dir)
+            .args(args)
+            .stdout(std::process::Stdio::piped())
+            .stderr(std::process::Stdio::piped())
+            .spawn()
+            .unwrap();
+        // close both ends before the command has written anything
+        drop(child.stdout.take());
+        drop(child.stderr.take());
+        let status = child.wait().unwrap();
+        assert_ne!(status.code(), Some(101), "{args:?} panicked");
+        assert!(status.code().is_some(), "{args:?} was killed");
+    }
+}

@@ -610,14 +610,82 @@ fn a_locale_and_a_fiscal_year_change_numbers_dates_and_ticks() {
         html.contains("<html lang=\"fr-FR\">"),
         "the deck's language"
     );
+    // and its own words are French too
+    assert!(
+        html.contains("aria-roledescription=\"diapositive\""),
+        "{html}"
+    );
+    assert!(html.contains(">Pupitre</button>"), "{html}");
     let (_, svg) = read_dir_files(&dir.join("deck"))
         .into_iter()
         .find(|(n, _)| n.ends_with(".svg"))
         .expect("the one frame");
     let svg = String::from_utf8_lossy(&svg);
-    // the frame draws French figures and fiscal quarters
+    // the frame draws French figures and fiscal quarters with the French
+    // fiscal names (exercice, trimestre)
     assert!(svg.contains("39\u{202f}093,00"), "{svg}");
-    assert!(svg.contains("FY2024 Q1"), "{svg}");
+    // (the plan's no-break space is drawn as a space, as every drawn text)
+    assert!(svg.contains("Ex. 2024 T1"), "{svg}");
+    assert!(!svg.contains("FY2024"), "{svg}");
+}
+
+/// A story names its own fiscal periods: ticks, the fiscal buckets of a
+/// view and quoted periods all read them; a part it leaves out keeps the
+/// locale's name; a wrong name is a located error.
+#[test]
+fn a_story_names_its_fiscal_periods() {
+    let dir = scratch("fiscal-names");
+    let plan = conventions_story(
+        &dir,
+        "locale \"de-DE\"\nfiscal year starts July\nfiscal names year \"GJ \", quarter \"Quartal \"",
+    );
+    assert!(
+        plan.contains("up to Jun 2025 (GJ 2025 Quartal 4)"),
+        "{plan}"
+    );
+    assert!(plan.contains("\"label\": \"GJ 2024 Quartal 1\""), "{plan}");
+    assert!(plan.contains("\"label\": \"Quartal 2\""), "{plan}");
+    // German default names where the story names none
+    let plan = conventions_story(&dir, "locale \"de-DE\"\nfiscal year starts July");
+    assert!(plan.contains("(GJ\u{a0}2025 Q4)"), "{plan}");
+    // a view grouped by fiscal year and quarter, with the story's names
+    fs::write(
+        dir.join("views.cresc"),
+        "story \"Sales\"\nsource \"Invented\"\nfiscal year starts July\nfiscal names year \"Budget \", quarter \"P\"\n\
+         data sales from \"sales.csv\"\n\
+         view by_year = sales | add year = fiscal_year(month) | by year: sales = sum(sales)\n\
+         view by_quarter = sales | add quarter = fiscal_quarter(month) | by quarter: sales = sum(sales)\n\
+         frame \"Years\" {\n  bars by_year: category year, value sales\n}\n\
+         frame \"Quarters\" {\n  bars by_quarter: category quarter, value sales\n}\n",
+    )
+    .unwrap();
+    let out = crescendo(&dir, &["plan", "views.cresc"]);
+    let (plan, err) = text(&out);
+    assert!(out.status.success(), "{err}");
+    // the data run July 2023 to June 2025: two fiscal years, eight quarters
+    for label in [
+        "Budget 2024",
+        "Budget 2025",
+        "Budget 2024 P1",
+        "Budget 2025 P4",
+    ] {
+        assert!(
+            plan.contains(&format!("\"label\": \"{label}\"")),
+            "{label}: {plan}"
+        );
+    }
+    assert!(!plan.contains("FY20"), "{plan}");
+    // a quote inside a name: an error with a caret on the name
+    fs::write(
+        dir.join("bad.cresc"),
+        "story \"S\"\nfiscal year starts July\nfiscal names half \"H\\\\\"\n",
+    )
+    .unwrap();
+    let out = crescendo(&dir, &["check", "bad.cresc"]);
+    let (_, err) = text(&out);
+    assert!(!out.status.success());
+    assert!(err.contains("error[bad-fiscal-name]"), "{err}");
+    assert!(err.contains("bad.cresc:3:19"), "{err}");
 }
 
 #[test]

@@ -604,7 +604,8 @@ fn formats(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
 
 /// Time buckets computed in the database and locally give the same plan:
 /// a daily ledger across year ends (2020-W53, 2025-W01), a leap day and a
-/// missing day, grouped by month, quarter, fiscal year and quarter, ISO
+/// missing day, grouped by month, quarter, fiscal year and quarter (with
+/// the story's own fiscal names), ISO
 /// week, week start and weekday, and filtered by year.
 fn buckets(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
     use crescendo_data::ColType;
@@ -643,6 +644,7 @@ fn buckets(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
     );
     let story = "story \"Buckets\"\n\
          fiscal year starts July\n\
+         fiscal names year \"GJ \", quarter \"P\"\n\
          data d from SOURCE { day: date, branch: text, amount: number }\n\
          view periods = d\n\
          \x20 | add m = month(day)\n\
@@ -698,11 +700,12 @@ fn buckets(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
     }
     assert_eq!(pa, pb);
     // ISO 8601 weeks at year ends, fiscal years named by their last year
+    // (with the story's fiscal names, in SQL as in memory)
     for want in [
         "2020-W53",
         "2025-W01",
-        "FY2021 Q1",
-        "FY2025 Q2",
+        "GJ 2021 P1",
+        "GJ 2025 P2",
         "2024 Q1",
         "Sun",
     ] {

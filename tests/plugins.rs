@@ -581,3 +581,55 @@ fn a_waterfall_name_that_cannot_fit_is_reported() {
     assert!(err.contains("s.cresc:7:3"), "{err}");
     assert!(!dir.join("deck").exists());
 }
+
+/// Under `locale "de-DE"` a plugin's labels read like the deck's own
+/// figures: the request carries the story's writing, and the SDK applies
+/// it (`1.230`, as `deck.json` writes the quoted value).
+#[test]
+fn a_plugin_writes_numbers_and_periods_in_the_story_locale() {
+    ensure_plugins();
+    let dir = scratch("plugin-locale");
+    fs::write(
+        dir.join("riders.csv"),
+        "route,month,riders\nLoop,2024-01,1000\nLoop,2024-03,1230\nBay,2024-01,2500.5\nBay,2024-03,-1200\n",
+    )
+    .unwrap();
+    fs::write(
+        dir.join("s.cresc"),
+        format!(
+            "story \"Plugins\"\nsource \"Invented\"\nlocale \"de-DE\"\n\
+             use plugin \"{}\" as p\n\
+             data riders from \"riders.csv\"\n\
+             value loop = sum(riders.riders where route = \"Loop\" and month = \"2024-03\")\n\
+             frame \"Loop {{loop}}\" {{\n  draw p.slope riders: category route, value riders, period month\n}}\n",
+            lib("crescendo_slope").display()
+        ),
+    )
+    .unwrap();
+    let run = crescendo(&dir, &["build", "s.cresc"]);
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    let manifest = fs::read_to_string(dir.join("deck/deck.json")).unwrap();
+    assert!(manifest.contains("\"loop\": \"1.230\""), "{manifest}");
+    let svg = fs::read_to_string(dir.join("deck/01-loop.svg")).unwrap();
+    // the plugin's own labels: German groups and decimal comma, the true
+    // minus, the periods as the axis writes months in German
+    // (month names: CLDR 49's German abbreviations, as the host's axis)
+    for label in [
+        "1.230",
+        "Loop 1.000",
+        "Bay 2.500,5",
+        "\u{2212}1.200",
+        "Jan 2024",
+        "Mär 2024",
+    ] {
+        assert!(
+            svg.contains(&format!(">\n{label}\n</text>")),
+            "{label} in {svg}"
+        );
+    }
+    assert!(!svg.contains("1,230"), "{svg}");
+}

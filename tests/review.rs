@@ -75,7 +75,12 @@ fn a_review_names_moved_numbers_failed_claims_and_moved_frames() {
         "{out}"
     );
     assert!(
-        out.contains("| 3 → 1 | The numbers | moved; the chart changed |"),
+        out.contains("| 3 → 1 | The numbers | moved; chart data: East Loans: 480 → 418;"),
+        "{out}"
+    );
+    // a value quoted nowhere that moved is listed too, as `diff` lists it
+    assert!(
+        out.contains("- `total` 1,000 → 1,048 (+48), quoted nowhere"),
         "{out}"
     );
 

@@ -8,6 +8,8 @@ use std::collections::BTreeMap;
 use crescendo_plan::{ClaimPlan, DeckPlan, FramePlan};
 use serde::Serialize;
 
+use crate::content::{compare, ChartChange, Content};
+
 /// One deck as drawn: its plan, each frame's SVG, its lint findings.
 pub struct Side<'a> {
     pub plan: &'a DeckPlan,
@@ -58,6 +60,9 @@ pub struct FrameReview {
     pub picture_changed: bool,
     pub texts: Vec<TextChange>,
     pub figures: Vec<Figure>,
+    /// What the chart shows differently: data, roles, annotations, titles
+    /// (the same comparison `crescendo diff` prints).
+    pub chart: Vec<ChartChange>,
     /// Sentences of the reviewed claims that rest on a value this frame
     /// quotes.
     pub claims: Vec<String>,
@@ -116,8 +121,70 @@ pub struct Review {
     pub commit: String,
     pub counts: Counts,
     pub frames: Vec<FrameReview>,
+    /// Every named value whose figure moved, came or went, quoted or not.
+    pub values: Vec<ValueChange>,
     pub claims: Vec<ClaimReview>,
     pub lint: Lint,
+}
+
+/// A named value that moved, with the frames (new numbers, or old ones for
+/// removed frames) that quote it; none when it is quoted nowhere.
+#[derive(Serialize, Debug)]
+pub struct ValueChange {
+    #[serde(flatten)]
+    pub figure: Figure,
+    /// The exact numbers, when they moved though the figure did not.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub exact: Option<[f64; 2]>,
+    pub quoted_in: Vec<usize>,
+}
+
+/// Every value of either deck whose figure or exact number differs.
+fn values(old: &DeckPlan, new: &DeckPlan, plain: bool) -> Vec<ValueChange> {
+    let mut moved = figures(&old.values, &new.values, plain);
+    // moved by less than the figure shows: the same figure, other digits
+    for (name, x) in &old.exact {
+        let y = new.exact.get(name);
+        let figure = old.values.get(name);
+        if y.is_some_and(|y| y != x)
+            && figure.is_some()
+            && figure == new.values.get(name)
+            && !moved.iter().any(|f| &f.name == name)
+        {
+            moved.push(Figure {
+                name: name.clone(),
+                old: figure.cloned(),
+                new: figure.cloned(),
+                change: None,
+            });
+        }
+    }
+    moved.sort_by(|a, b| a.name.cmp(&b.name));
+    moved
+        .into_iter()
+        .map(|figure| {
+            let quoting = |p: &DeckPlan| {
+                p.frames
+                    .iter()
+                    .filter(|f| f.quoted.contains_key(&figure.name))
+                    .map(|f| f.number)
+                    .collect::<Vec<_>>()
+            };
+            let mut quoted_in = quoting(new);
+            if quoted_in.is_empty() {
+                quoted_in = quoting(old);
+            }
+            let exact = match (old.exact.get(&figure.name), new.exact.get(&figure.name)) {
+                (Some(x), Some(y)) if figure.old == figure.new => Some([*x, *y]),
+                _ => None,
+            };
+            ValueChange {
+                figure,
+                exact,
+                quoted_in,
+            }
+        })
+        .collect()
 }
 
 impl Review {
@@ -207,7 +274,10 @@ fn texts(old: &FramePlan, new: &FramePlan) -> Vec<TextChange> {
         .iter()
         .filter_map(|(part, get)| {
             let (o, n) = (get(old), get(new));
-            (o != n).then_some(TextChange {
+            // the same words with other quoted figures: the figures say it
+            let (t_old, t_new) = (old.templates.get(*part), new.templates.get(*part));
+            let same_words = t_old.is_some() && t_old == t_new;
+            (o != n && !same_words).then_some(TextChange {
                 part,
                 old: o,
                 new: n,
@@ -309,7 +379,12 @@ pub fn frames(old: &Side, new: &Side) -> Vec<FrameReview> {
                 let texts = texts(o, n);
                 let figures = figures(&o.quoted, &n.quoted, plain);
                 let picture_changed = old.svgs.get(i) != new.svgs.get(j);
-                let same = !moved && !picture_changed && texts.is_empty() && figures.is_empty();
+                let chart = compare(&Content::of(o), &Content::of(n));
+                let same = !moved
+                    && !picture_changed
+                    && texts.is_empty()
+                    && figures.is_empty()
+                    && chart.is_empty();
                 FrameReview {
                     status: if same {
                         Status::Unchanged
@@ -323,6 +398,7 @@ pub fn frames(old: &Side, new: &Side) -> Vec<FrameReview> {
                     picture_changed,
                     texts,
                     figures,
+                    chart,
                     claims: Vec::new(),
                     lint_added: Vec::new(),
                     lint_removed: Vec::new(),
@@ -353,6 +429,7 @@ fn lone(f: &FramePlan, status: Status, svg: Option<&String>) -> FrameReview {
         picture_changed: true,
         texts: Vec::new(),
         figures: Vec::new(),
+        chart: Vec::new(),
         claims: Vec::new(),
         lint_added: Vec::new(),
         lint_removed: Vec::new(),
@@ -492,6 +569,8 @@ fn lint_changes(old: &Side, new: &Side, frames: &mut [FrameReview]) -> Lint {
 /// The whole review.
 pub fn review(old: &Side, new: &Side, against: (&str, &str), near: f64) -> Review {
     let mut frames = frames(old, new);
+    let plain = old.plan.locale.is_none() && new.plan.locale.is_none();
+    let values = values(old.plan, new.plan, plain);
     let claims = claims(old.plan, new.plan, near);
     link(&mut frames, &claims, old.plan, new.plan);
     let lint = lint_changes(old, new, &mut frames);
@@ -511,6 +590,7 @@ pub fn review(old: &Side, new: &Side, against: (&str, &str), near: f64) -> Revie
         commit: against.1.to_string(),
         counts,
         frames,
+        values,
         claims,
         lint,
     }
@@ -532,6 +612,26 @@ mod tests {
         assert_eq!(figure_change("2.3×", "2.3×"), None);
         assert_eq!(figure_change("March 2024", "4 weeks"), None);
         assert_eq!(figure_change("12%", "12 people"), None);
+    }
+
+    #[test]
+    fn every_moved_value_is_listed_even_below_its_rounding() {
+        let deck = |lead: f64, total: &str| -> DeckPlan {
+            serde_json::from_value(serde_json::json!({
+                "title": "t", "byline": null, "source": null, "theme": "clear",
+                "conclusion": null, "frames": [],
+                "values": {"lead": "1.57", "total": total},
+                "exact": {"lead": lead}
+            }))
+            .unwrap()
+        };
+        let moved = values(&deck(1.5705, "60"), &deck(1.5667, "66"), true);
+        let names: Vec<&str> = moved.iter().map(|v| v.figure.name.as_str()).collect();
+        assert_eq!(names, ["lead", "total"]);
+        assert_eq!(moved[0].exact, Some([1.5705, 1.5667]));
+        assert_eq!(moved[1].figure.change.as_deref(), Some("+6"));
+        assert!(moved.iter().all(|v| v.quoted_in.is_empty()));
+        assert!(values(&deck(1.5, "60"), &deck(1.5, "60"), true).is_empty());
     }
 
     #[test]

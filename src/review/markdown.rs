@@ -2,7 +2,7 @@
 
 use std::fmt::Write;
 
-use super::compare::{ClaimReview, FrameReview, Review, Status};
+use super::compare::{ClaimReview, FrameReview, Review, Status, ValueChange};
 
 /// Markdown table cells: no line breaks, no column bars.
 fn cell(s: &str) -> String {
@@ -47,6 +47,7 @@ pub fn what_changed(f: &FrameReview) -> Vec<String> {
             parts.push(format!("{} {} → {}", t.part, show(&t.old), show(&t.new)));
         }
     }
+    parts.extend(f.chart.iter().map(|c| c.summary()));
     for sentence in &f.claims {
         parts.push(format!("rests on “{sentence}”"));
     }
@@ -60,10 +61,35 @@ pub fn what_changed(f: &FrameReview) -> Vec<String> {
         && f.picture_changed
         && f.figures.is_empty()
         && f.texts.is_empty()
+        && f.chart.is_empty()
     {
         parts.push("the chart changed".to_string());
     }
     parts
+}
+
+/// `` `total` 60 → 66 (+6), quoted nowhere ``.
+pub fn value_line(v: &ValueChange) -> String {
+    let f = &v.figure;
+    let show = |v: &Option<String>| v.clone().unwrap_or_else(|| "—".into());
+    let mut s = match v.exact {
+        Some([x, y]) => format!(
+            "`{}` {} (exact {x} → {y}, the same when rounded)",
+            f.name,
+            show(&f.new)
+        ),
+        None => format!("`{}` {} → {}", f.name, show(&f.old), show(&f.new)),
+    };
+    if let Some(c) = &f.change {
+        let _ = write!(s, " ({c})");
+    }
+    let frames: Vec<String> = v.quoted_in.iter().map(usize::to_string).collect();
+    let _ = match frames.len() {
+        0 => write!(s, ", quoted nowhere"),
+        1 => write!(s, ", quoted in frame {}", frames[0]),
+        _ => write!(s, ", quoted in frames {}", frames.join(", ")),
+    };
+    s
 }
 
 /// A claim's room as a percentage, with a true minus sign.
@@ -131,6 +157,12 @@ pub fn write(r: &Review) -> String {
                 cell(&f.headline),
                 cell(&what_changed(f).join("; "))
             );
+        }
+    }
+    if !r.values.is_empty() {
+        out.push_str("\n### Values\n\n");
+        for v in &r.values {
+            let _ = writeln!(out, "- {}", cell(&value_line(v)));
         }
     }
     if !r.lint.added.is_empty() || !r.lint.removed.is_empty() {

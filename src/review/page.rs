@@ -142,7 +142,10 @@ fn frame(out: &mut String, f: &FrameReview, r: &Review) {
                 c.verdict
             );
         }
-        if f.picture_changed && f.figures.is_empty() && f.texts.is_empty() {
+        for c in &f.chart {
+            let _ = write!(out, "<li>{}</li>", escape(&c.summary()));
+        }
+        if f.picture_changed && f.figures.is_empty() && f.texts.is_empty() && f.chart.is_empty() {
             out.push_str("<li>the chart changed</li>");
         }
         for l in &f.lint_added {
@@ -211,6 +214,14 @@ pub fn html(r: &Review) -> String {
             claim(&mut out, cl);
         }
         out.push_str("</div>\n");
+    }
+    if !r.values.is_empty() {
+        out.push_str("<div class=\"box\" id=\"values\"><h2>Values</h2><ul>\n");
+        for v in &r.values {
+            let line = super::markdown::value_line(v).replace('`', "");
+            let _ = writeln!(out, "<li>{}</li>", escape(&line));
+        }
+        out.push_str("</ul></div>\n");
     }
     if !r.lint.added.is_empty() || !r.lint.removed.is_empty() {
         out.push_str("<div class=\"box\" id=\"lint\"><h2>Lint</h2><ul>\n");

@@ -6,8 +6,8 @@
 //! | `Month` | date | its month |
 //! | `Year` | date, month | its calendar year |
 //! | `Quarter` | date, month | text `2025 Q3` |
-//! | `FiscalYear(s)` | date, month | text `FY2025` (named by the calendar year it ends in) |
-//! | `FiscalQuarter(s)` | date, month | text `FY2025 Q1` |
+//! | `FiscalYear(f)` | date, month | text `FY2025` (named by the calendar year it ends in, with the story's prefix) |
+//! | `FiscalQuarter(f)` | date, month | text `FY2025 Q1` (with the story's names) |
 //! | `WeekStart` | date | the Monday that starts its ISO 8601 week (a date) |
 //! | `Week` | date | text `2025-W07`: its ISO 8601 week-numbering year and week |
 //! | `Weekday` | date | text `Mon` … `Sun` |
@@ -27,9 +27,9 @@ pub enum Bucket {
     Month,
     Year,
     Quarter,
-    /// The fiscal year whose first month (1 to 12) is given.
-    FiscalYear(u32),
-    FiscalQuarter(u32),
+    /// The fiscal year (its first month and its names).
+    FiscalYear(Fiscal),
+    FiscalQuarter(Fiscal),
     WeekStart,
     Week,
     Weekday,
@@ -69,11 +69,8 @@ impl Bucket {
             (Bucket::Month, Some(_)) => Value::Month(y * 12 + m as i32 - 1),
             (Bucket::Year, _) => Value::Year(y),
             (Bucket::Quarter, _) => Value::Text(Fiscal::default().quarter_label(y, m)),
-            (Bucket::FiscalYear(s), _) => Value::Text(format!("FY{}", fiscal(s).year_of(y, m))),
-            (Bucket::FiscalQuarter(s), _) => {
-                let f = fiscal(s);
-                Value::Text(format!("FY{} Q{}", f.year_of(y, m), f.quarter_of(m)))
-            }
+            (Bucket::FiscalYear(f), _) => Value::Text(f.year_label(y, m)),
+            (Bucket::FiscalQuarter(f), _) => Value::Text(f.quarter_label(y, m)),
             (Bucket::WeekStart, Some(d)) => Value::Date(d - weekday(d)),
             (Bucket::Week, Some(d)) => {
                 let (wy, w) = iso_week(d);
@@ -82,12 +79,6 @@ impl Bucket {
             (Bucket::Weekday, Some(d)) => Value::Text(WEEKDAYS[weekday(d) as usize].to_string()),
             _ => Value::Missing,
         }
-    }
-}
-
-fn fiscal(start: u32) -> Fiscal {
-    Fiscal {
-        start_month: start.clamp(1, 12),
     }
 }
 
@@ -154,18 +145,48 @@ mod tests {
         assert_eq!(Bucket::Year.apply(may), Value::Year(2024));
         assert_eq!(Bucket::Quarter.apply(may), text("2024 Q2"));
         // a year starting in July: July 2024 to June 2025 is FY2025
-        assert_eq!(Bucket::FiscalYear(7).apply(may), text("FY2024"));
-        assert_eq!(Bucket::FiscalQuarter(7).apply(may), text("FY2024 Q4"));
+        assert_eq!(
+            Bucket::FiscalYear(Fiscal::starting(7)).apply(may),
+            text("FY2024")
+        );
+        assert_eq!(
+            Bucket::FiscalQuarter(Fiscal::starting(7)).apply(may),
+            text("FY2024 Q4")
+        );
         let july = Cell::Month(2024 * 12 + 6);
-        assert_eq!(Bucket::FiscalYear(7).apply(july), text("FY2025"));
-        assert_eq!(Bucket::FiscalQuarter(7).apply(july), text("FY2025 Q1"));
+        assert_eq!(
+            Bucket::FiscalYear(Fiscal::starting(7)).apply(july),
+            text("FY2025")
+        );
+        assert_eq!(
+            Bucket::FiscalQuarter(Fiscal::starting(7)).apply(july),
+            text("FY2025 Q1")
+        );
         assert_eq!(Bucket::Quarter.apply(july), text("2024 Q3"));
         assert_eq!(Bucket::Year.apply(july), Value::Year(2024));
         // a month has no month, week or weekday bucket
         assert_eq!(Bucket::Month.apply(july), Value::Missing);
         assert_eq!(Bucket::Weekday.apply(july), Value::Missing);
         assert_eq!(Bucket::Year.apply(Cell::Missing), Value::Missing);
-        assert_eq!(Bucket::FiscalYear(1).apply(may), text("FY2024"));
+        // a year from January is the calendar year, without a prefix
+        assert_eq!(
+            Bucket::FiscalYear(Fiscal::starting(1)).apply(may),
+            text("2024")
+        );
+        // a story's own names
+        let named = Fiscal {
+            start_month: 4,
+            names: &crate::locale::FiscalNames {
+                year: "GJ ",
+                quarter: "Quartal ",
+                half: "HJ",
+            },
+        };
+        assert_eq!(Bucket::FiscalYear(named).apply(may), text("GJ 2025"));
+        assert_eq!(
+            Bucket::FiscalQuarter(named).apply(may),
+            text("GJ 2025 Quartal 1")
+        );
     }
 
     #[test]

@@ -275,20 +275,110 @@ impl Locale {
     }
 }
 
+/// What a story calls its fiscal periods: the year's prefix (`FY` in
+/// `FY2025`), and the quarter's and the half's (`Q` in `Q3`, `H` in `H1`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct FiscalNames {
+    pub year: &'static str,
+    pub quarter: &'static str,
+    pub half: &'static str,
+}
+
+/// The English names, and crescendo's without a locale.
+pub const FISCAL_NAMES: FiscalNames = FiscalNames {
+    year: "FY",
+    quarter: "Q",
+    half: "H",
+};
+
+/// The names a language's readers expect (common practice of business
+/// writing, from memory, not from CLDR, which has no fiscal labels): German
+/// `GJ 2025` (Geschäftsjahr) with `Q1`, `H1`; French `Ex. 2025`
+/// (exercice) with `T1` (trimestre), `S1` (semestre); Spanish `Ej. 2025`
+/// (ejercicio) with `T1`, `S1`. Other languages keep the English names.
+pub fn fiscal_names_of(language: &str) -> &'static FiscalNames {
+    const DE: FiscalNames = FiscalNames {
+        year: "GJ\u{a0}",
+        quarter: "Q",
+        half: "H",
+    };
+    const FR: FiscalNames = FiscalNames {
+        year: "Ex.\u{a0}",
+        quarter: "T",
+        half: "S",
+    };
+    const ES: FiscalNames = FiscalNames {
+        year: "Ej.\u{a0}",
+        quarter: "T",
+        half: "S",
+    };
+    match language {
+        "de" => &DE,
+        "fr" => &FR,
+        "es" => &ES,
+        _ => &FISCAL_NAMES,
+    }
+}
+
+/// The names a story gave (`fiscal names year "GJ"`), each kept once for
+/// the life of the process so that [`Fiscal`] stays a plain value: a story
+/// has one set, and a `watch` session re-planning it meets the same one.
+pub fn intern_names(names: FiscalNamesOwned) -> &'static FiscalNames {
+    use std::sync::{Mutex, OnceLock};
+    static KEPT: OnceLock<Mutex<Vec<&'static FiscalNames>>> = OnceLock::new();
+    let kept = KEPT.get_or_init(|| Mutex::new(Vec::new()));
+    let mut kept = kept.lock().unwrap_or_else(|e| e.into_inner());
+    let same = |n: &&&'static FiscalNames| {
+        n.year == names.year && n.quarter == names.quarter && n.half == names.half
+    };
+    if let Some(n) = kept.iter().find(same) {
+        return n;
+    }
+    let leak = |s: String| -> &'static str { Box::leak(s.into_boxed_str()) };
+    let made: &'static FiscalNames = Box::leak(Box::new(FiscalNames {
+        year: leak(names.year),
+        quarter: leak(names.quarter),
+        half: leak(names.half),
+    }));
+    kept.push(made);
+    made
+}
+
+/// Fiscal names as a story writes them, before [`intern_names`].
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct FiscalNamesOwned {
+    pub year: String,
+    pub quarter: String,
+    pub half: String,
+}
+
 /// When the year starts: `1` is the calendar year; `7` a fiscal year from
-/// July to June, named by the calendar year in which it ends.
+/// July to June, named by the calendar year in which it ends; and what the
+/// fiscal periods are called.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct Fiscal {
     pub start_month: u32,
+    pub names: &'static FiscalNames,
 }
 
 impl Default for Fiscal {
     fn default() -> Self {
-        Fiscal { start_month: 1 }
+        Fiscal {
+            start_month: 1,
+            names: &FISCAL_NAMES,
+        }
     }
 }
 
 impl Fiscal {
+    /// A fiscal year from `start_month` with the English names.
+    pub fn starting(start_month: u32) -> Fiscal {
+        Fiscal {
+            start_month: start_month.clamp(1, 12),
+            names: &FISCAL_NAMES,
+        }
+    }
+
     /// True for a year that does not start in January.
     pub fn is_fiscal(self) -> bool {
         self.start_month != 1
@@ -316,21 +406,41 @@ impl Fiscal {
         i64::from(self.start_month.clamp(1, 12)) - 1
     }
 
-    /// "FY2025" (fiscal) or "2025" (calendar).
+    /// "FY2025" (fiscal, with the story's prefix) or "2025" (calendar).
     pub fn year_label(self, year: i32, month: u32) -> String {
         if self.is_fiscal() {
-            format!("FY{}", self.year_of(year, month))
+            format!("{}{}", self.names.year, self.year_of(year, month))
         } else {
             year.to_string()
         }
     }
 
+    /// "Q3" (fiscal: the story's quarter name; calendar: `Q`).
+    pub fn quarter_name(self, quarter: u32) -> String {
+        let name = if self.is_fiscal() {
+            self.names.quarter
+        } else {
+            "Q"
+        };
+        format!("{name}{quarter}")
+    }
+
+    /// "H1" (fiscal: the story's half name; calendar: `H`).
+    pub fn half_name(self, half: u32) -> String {
+        let name = if self.is_fiscal() {
+            self.names.half
+        } else {
+            "H"
+        };
+        format!("{name}{half}")
+    }
+
     /// "FY2025 Q3" (fiscal) or "2025 Q3" (calendar).
     pub fn quarter_label(self, year: i32, month: u32) -> String {
         format!(
-            "{} Q{}",
+            "{} {}",
             self.year_label(year, month),
-            self.quarter_of(month)
+            self.quarter_name(self.quarter_of(month))
         )
     }
 }
@@ -347,10 +457,27 @@ impl Conventions {
     /// the plan accepted always builds; should it not, numbers fall back to
     /// the default conventions rather than failing the drawing.
     pub fn of(locale: Option<&str>, fiscal_start: Option<u32>) -> Rc<Conventions> {
+        Conventions::named(locale, fiscal_start, None)
+    }
+
+    /// [`Conventions::of`] with the fiscal names a story gave; without
+    /// them, the locale's ([`fiscal_names_of`]).
+    pub fn named(
+        locale: Option<&str>,
+        fiscal_start: Option<u32>,
+        names: Option<&'static FiscalNames>,
+    ) -> Rc<Conventions> {
+        let locale = locale.and_then(|t| Locale::new(t).ok());
+        let names = names.unwrap_or_else(|| {
+            locale
+                .as_ref()
+                .map_or(&FISCAL_NAMES, |l| fiscal_names_of(l.language()))
+        });
         Rc::new(Conventions {
-            locale: locale.and_then(|t| Locale::new(t).ok()),
+            locale,
             fiscal: Fiscal {
                 start_month: fiscal_start.unwrap_or(1).clamp(1, 12),
+                names,
             },
         })
     }
@@ -461,14 +588,14 @@ mod tests {
         // July 2024 .. June 2025 is FY2025. Quarters: Jul-Sep Q1,
         // Oct-Dec Q2, Jan-Mar Q3, Apr-Jun Q4. So March 2025 is FY2025 Q3,
         // July 2024 is FY2025 Q1 and June 2024 is FY2024 Q4.
-        let f = Fiscal { start_month: 7 };
+        let f = Fiscal::starting(7);
         assert_eq!(f.quarter_label(2025, 3), "FY2025 Q3");
         assert_eq!(f.quarter_label(2024, 7), "FY2025 Q1");
         assert_eq!(f.quarter_label(2024, 6), "FY2024 Q4");
         assert_eq!(f.year_label(2024, 12), "FY2025");
         // A year starting in April (as in several national budgets):
         // April 2024 .. March 2025 is FY2025; January 2025 is its Q4.
-        let apr = Fiscal { start_month: 4 };
+        let apr = Fiscal::starting(4);
         assert_eq!(apr.quarter_label(2025, 1), "FY2025 Q4");
         assert_eq!(apr.quarter_label(2024, 4), "FY2025 Q1");
         // The calendar year: no prefix.

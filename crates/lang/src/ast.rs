@@ -71,7 +71,11 @@ pub enum Item {
         month: Ident,
         span: Span,
     },
+    /// `fiscal names year "GJ ", quarter "Q", half "HJ"`.
+    FiscalNames(FiscalNamesDecl),
 }
+
+pub use crate::fiscal_ast::{FiscalName, FiscalNamesDecl, FiscalPart};
 
 /// `use plugin "path" as NAME [sha256 "hex"]`
 #[derive(Clone, Debug, PartialEq)]
@@ -106,6 +110,7 @@ impl Item {
         match self {
             Item::Title(t) | Item::Byline(t) | Item::Source(t) | Item::Conclusion(t) => &t.span,
             Item::Theme { span, .. } | Item::Focus { span, .. } | Item::Fiscal { span, .. } => span,
+            Item::FiscalNames(f) => &f.span,
             Item::Data(d) => &d.span,
             Item::View(v) => &v.span,
             Item::Compare(c) => &c.span,

@@ -4,6 +4,7 @@
 //! canonical layout ([`format`]).
 
 pub mod ast;
+mod fiscal_ast;
 pub mod format;
 pub mod parser;
 pub mod source;

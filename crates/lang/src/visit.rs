@@ -63,6 +63,11 @@ pub fn walk_item<'a, V: Visit<'a> + ?Sized>(v: &mut V, item: &'a Item) {
         Item::Accent(t) | Item::Style(t) | Item::Locale(t) => v.visit_str(&t.text),
         Item::Theme { name, .. } => v.visit_ident(name),
         Item::Fiscal { month, .. } => v.visit_ident(month),
+        Item::FiscalNames(FiscalNamesDecl { names, .. }) => {
+            for n in names {
+                v.visit_str(&n.text);
+            }
+        }
         Item::Data(d) => v.visit_data(d),
         Item::View(view) => {
             v.visit_ident(&view.name);

@@ -64,7 +64,15 @@ pub fn plan_story_with(
         return Err(diags);
     }
     let (locale, fiscal_start) = header::read_conventions(src, &story, &mut diags);
-    let conventions = crescendo_data::locale::Conventions::of(locale.as_deref(), fiscal_start);
+    let names = crate::fiscal_names::read(
+        src,
+        &story,
+        locale.as_deref(),
+        fiscal_start.is_some(),
+        &mut diags,
+    );
+    let conventions =
+        crescendo_data::locale::Conventions::named(locale.as_deref(), fiscal_start, names);
     let mut cx = Ctx::new(src, story_dir, options, io, diags);
     // every drawn string, numbers included, in the story's locale
     let mut planned = crescendo_data::locale::scoped(conventions, || run(&mut cx, &story));

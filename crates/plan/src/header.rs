@@ -113,7 +113,7 @@ impl Header {
             }),
             Item::Accent(t) => self.accent(cx, t, anchors),
             // read before planning (`read_conventions`)
-            Item::Locale(_) | Item::Fiscal { .. } => {}
+            Item::Locale(_) | Item::Fiscal { .. } | Item::FiscalNames(_) => {}
             Item::Data(_)
             | Item::View(_)
             | Item::Value(_)

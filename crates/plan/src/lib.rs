@@ -17,6 +17,7 @@ mod claims;
 mod context;
 mod describe;
 mod driver;
+mod fiscal_names;
 mod forms;
 mod frames;
 mod functions;

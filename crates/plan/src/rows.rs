@@ -257,8 +257,8 @@ impl Checker<'_> {
                 );
                 return None;
             }
-            Kind::FiscalYear => Bucket::FiscalYear(fiscal.start_month),
-            Kind::FiscalQuarter => Bucket::FiscalQuarter(fiscal.start_month),
+            Kind::FiscalYear => Bucket::FiscalYear(fiscal),
+            Kind::FiscalQuarter => Bucket::FiscalQuarter(fiscal),
             Kind::Plain(b) => b,
         };
         let (of, t) = self.check(arg)?;

@@ -537,7 +537,8 @@ fn month_ticks(lo: f64, hi: f64) -> Vec<Tick> {
 
 /// The label of a fiscal tick every `step` months (3 or more) at `month`
 /// of `year`: "FY2025" for years; "FY2025 Q1" at the start of a fiscal
-/// year, then "Q2", "Q3", "Q4"; likewise "FY2025 H1", "H2" for halves. The
+/// year, then "Q2", "Q3", "Q4"; likewise "FY2025 H1", "H2" for halves (with
+/// the story's or the locale's fiscal names). The
 /// first tick names its fiscal year too, unless the next tick starts one
 /// (two long labels side by side would crowd each other out).
 fn fiscal_label(fiscal: Fiscal, step: i64, year: i32, month: u32, first: bool) -> String {
@@ -547,14 +548,18 @@ fn fiscal_label(fiscal: Fiscal, step: i64, year: i32, month: u32, first: bool) -
     } else if step == 6 {
         let half = if quarter <= 2 { 1 } else { 2 };
         if half == 1 {
-            format!("{} H{half}", fiscal.year_label(year, month))
+            format!(
+                "{} {}",
+                fiscal.year_label(year, month),
+                fiscal.half_name(half)
+            )
         } else {
-            format!("H{half}")
+            fiscal.half_name(half)
         }
     } else if quarter == 1 || (first && quarter < 4) {
         fiscal.quarter_label(year, month)
     } else {
-        format!("Q{quarter}")
+        fiscal.quarter_name(quarter)
     }
 }
 

@@ -19,6 +19,7 @@ pub mod abi;
 pub mod message;
 pub mod sdk;
 pub mod validate;
+mod writing;
 
 pub use abi::{Descriptor, OutBuffer, ABI_VERSION, ENTRY_SYMBOL};
 pub use message::*;

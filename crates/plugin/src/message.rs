@@ -77,6 +77,74 @@ pub struct Request {
     /// times this): lay labels out for it so they do not collide.
     #[serde(default = "default_label_size")]
     pub label_size: f64,
+    /// How the story writes numbers and dates (its `locale`): format
+    /// labels with it ([`Writing::number`], [`Writing::time`]) so they
+    /// read like the frame's own. A host that sends none means English.
+    #[serde(default)]
+    pub writing: Box<Writing>,
+}
+
+/// How the story writes numbers and dates, taken from the host's number
+/// policy in the story's locale (not a table of its own): the symbols
+/// around the digits, the percent and compact patterns, and each time cell
+/// of the request's columns as the host writes it on an axis. The SDK's
+/// methods (`crate::sdk`'s `writing.rs`) apply it with the host's rounding.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(default)]
+pub struct Writing {
+    /// The story's locale as a BCP 47 tag (`de-DE`); `None` without one.
+    pub locale: Option<String>,
+    /// The decimal separator (`.`, `,`).
+    pub decimal: String,
+    /// The group separator (`,`, `.`, U+202F).
+    pub group: String,
+    /// The fewest whole digits a number has before it is grouped (4 where
+    /// `1,234` is grouped; 5 where `1234` stays whole, as in Spanish).
+    pub group_from: usize,
+    /// The sign of negative numbers in drawn text (U+2212 MINUS SIGN).
+    pub minus: String,
+    /// The digits zero to nine.
+    pub digits: String,
+    /// What follows a percentage's digits (`%`, `\u{a0}%`).
+    pub percent: String,
+    /// The compact steps, largest first (`4.5M`, `4,5 Mio.`).
+    pub compact: Vec<CompactStep>,
+    /// Each time cell of the request's columns (`2024-07`, `2024-07-31`)
+    /// as the host writes it (`Jul 2024`, `31.07.2024`).
+    #[serde(skip_serializing_if = "BTreeMap::is_empty")]
+    pub times: BTreeMap<String, String>,
+}
+
+/// A compact step: numbers with at least `from` + 1 whole digits are
+/// divided by 10^`unit` and written with `suffix`.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct CompactStep {
+    pub from: u32,
+    pub unit: u32,
+    pub suffix: String,
+}
+
+impl Default for Writing {
+    /// The host's writing without a locale: `-1,234.5` with a true minus,
+    /// `12.3%`, `4.5M`.
+    fn default() -> Self {
+        let step = |from: u32, suffix: &str| CompactStep {
+            from,
+            unit: from,
+            suffix: suffix.to_string(),
+        };
+        Writing {
+            locale: None,
+            decimal: ".".into(),
+            group: ",".into(),
+            group_from: 4,
+            minus: "\u{2212}".into(),
+            digits: "0123456789".into(),
+            percent: "%".into(),
+            compact: vec![step(12, "T"), step(9, "B"), step(6, "M"), step(3, "k")],
+            times: BTreeMap::new(),
+        }
+    }
 }
 
 fn default_label_size() -> f64 {

@@ -386,7 +386,9 @@ pub fn extent(values: impl IntoIterator<Item = f64>) -> Option<[f64; 2]> {
 
 /// A number for a label: at most `decimals` decimals, no trailing zeros,
 /// thousands separated by commas, a minus sign for negatives
-/// (`1234.50` → `1,234.5`, `-0.0` → `0`).
+/// (`1234.50` → `1,234.5`, `-0.0` → `0`), always in English. To write
+/// like the story (its locale, the true minus, the host's rounding), use
+/// the request's [`Writing`](crate::Writing): `request.writing.number(v, d)`.
 pub fn format_number(v: f64, decimals: usize) -> String {
     if !v.is_finite() {
         return if v.is_nan() {
@@ -634,6 +636,7 @@ mod tests {
                 height: 100.0,
             },
             label_size: 16.0,
+            writing: Default::default(),
         }
     }
 

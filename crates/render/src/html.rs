@@ -202,9 +202,13 @@ pub fn render_deck_html_with(
         policy(&[&script], &css)
     );
     let _ = write!(out, "<style>{css}</style>\n</head>\n<body>\n");
+    let (words, own) = crate::deck_words::of_locale(deck.locale.as_deref());
+    // English standing in for a language without words says it is English
+    let en = if own { "" } else { " lang=\"en\"" };
     let _ = writeln!(
         out,
-        "<main aria-roledescription=\"slide deck\" aria-label=\"{}\">",
+        "<main aria-roledescription=\"{}\" aria-label=\"{}\">",
+        escape(words.deck),
         escape(&deck.title)
     );
     let opening = bookends.then(|| opening_page(deck));
@@ -215,8 +219,9 @@ pub fn render_deck_html_with(
         let current = if i == 0 { " current" } else { "" };
         let _ = writeln!(
             out,
-            "<section class=\"frame{kind}{current}\" id=\"frame-{}\" aria-roledescription=\"slide\" aria-label=\"{}\" aria-hidden=\"{}\">",
+            "<section class=\"frame{kind}{current}\" id=\"frame-{}\" aria-roledescription=\"{}\" aria-label=\"{}\" aria-hidden=\"{}\">",
             i + 1,
+            escape(words.frame),
             escape(label),
             if i == 0 { "false" } else { "true" }
         );
@@ -234,14 +239,15 @@ pub fn render_deck_html_with(
         if let Some(notes) = frame.notes.as_deref().filter(|n| !n.trim().is_empty()) {
             let _ = writeln!(
                 out,
-                "<aside class=\"talk\" aria-label=\"Speaker notes\">{}</aside>",
+                "<aside class=\"talk\" aria-label=\"{}\">{}</aside>",
+                escape(words.notes),
                 escape(notes.trim())
             );
         }
         out.push_str("</section>\n");
     }
     if let Some(page) = &closing {
-        open(&mut out, " bookend", "Conclusion");
+        open(&mut out, " bookend", words.conclusion);
         out.push_str(page);
         out.push_str("</section>\n");
     }
@@ -249,16 +255,26 @@ pub fn render_deck_html_with(
     let any_notes = frames
         .iter()
         .any(|(f, _)| f.notes.as_deref().is_some_and(|n| !n.trim().is_empty()));
-    out.push_str("<div class=\"controls\">");
+    let _ = write!(out, "<div class=\"controls\"{en}>");
     if any_notes {
-        out.push_str(
-            "<button type=\"button\" class=\"talk-switch\" id=\"talk-switch\" aria-pressed=\"false\" title=\"Show or hide the speaker notes (key n)\">Notes</button>",
+        let _ = write!(
+            out,
+            "<button type=\"button\" class=\"talk-switch\" id=\"talk-switch\" aria-pressed=\"false\" title=\"{}\">{}</button>",
+            escape(words.notes_tip),
+            escape(words.notes_button)
         );
     }
-    out.push_str(
-        "<button type=\"button\" class=\"desk-switch\" id=\"desk-switch\" aria-pressed=\"false\" title=\"The speaker's desk: this frame, the next one, the notes and the time since it opened (key d)\">Desk</button>",
+    let _ = write!(
+        out,
+        "<button type=\"button\" class=\"desk-switch\" id=\"desk-switch\" aria-pressed=\"false\" title=\"{}\">{}</button>",
+        escape(words.desk_tip),
+        escape(words.desk_button)
     );
-    out.push_str("</div>\n<div class=\"clock\" id=\"clock\" aria-hidden=\"true\">0:00</div>\n");
+    let _ = writeln!(
+        out,
+        "</div>\n<div class=\"clock\" id=\"clock\" aria-hidden=\"true\" title=\"{}\"{en}>0:00</div>",
+        escape(words.clock)
+    );
     let _ = writeln!(
         out,
         "<div class=\"where\" id=\"where\" aria-live=\"polite\">{} / {}</div>",

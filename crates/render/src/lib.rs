@@ -21,6 +21,7 @@ mod band_axes;
 mod bars;
 pub mod canvas;
 mod cite;
+mod deck_words;
 mod dots;
 mod figures;
 mod fit;

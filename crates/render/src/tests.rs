@@ -929,3 +929,63 @@ fn deck_html_opens_and_closes_with_frames_of_its_own() {
     assert_eq!(bare, render_deck_html(&d, &[(&f1, &s1)]));
     assert_eq!(bare.matches("<section ").count(), 1);
 }
+
+/// The deck's interface without the frames' pictures, its stylesheet and
+/// script: what a reader hears and reads around the frames.
+fn interface(html: &str) -> String {
+    let mut out = String::new();
+    let mut rest = html;
+    while let Some(start) = rest.find("<svg ") {
+        out.push_str(&rest[..start]);
+        let end = rest[start..].find("</svg>").unwrap() + start + "</svg>".len();
+        out.push_str("<svg …/>");
+        rest = &rest[end..];
+    }
+    out.push_str(rest);
+    for tag in ["style", "script"] {
+        let body = inline(&out, tag);
+        out = out.replace(&body, "…");
+    }
+    out.lines()
+        .filter(|l| !l.contains("Content-Security-Policy"))
+        .collect::<Vec<_>>()
+        .join("\n")
+}
+
+// The deck's own words follow the story's locale in the four languages
+// descriptions are written in; the page stays one file under the same
+// policy (its own script and style by hash); a language without words
+// gets English ones marked as English.
+#[test]
+fn deck_interface_speaks_the_story_language() {
+    let f1 = frame(1, 1, "First", None, line_chart());
+    let mut d = deck(vec![f1.clone()]);
+    d.conclusion = Some("Fund the coast".into());
+    let s1 = render_frame(&d, &f1).unwrap();
+    for (locale, button) in [
+        (None, ">Notes</button>"),
+        (Some("de-DE"), ">Notizen</button>"),
+        (Some("fr-FR"), ">Notes</button>"),
+        (Some("es-ES"), ">Notas</button>"),
+    ] {
+        d.locale = locale.map(str::to_string);
+        let html = crate::render_deck_html_with(&d, &[(&f1, &s1)], true);
+        assert!(html.contains(button), "{locale:?}");
+        assert!(
+            !html.contains("lang=\"en\"><"),
+            "{locale:?}: words of its own"
+        );
+        let meta = "<meta http-equiv=\"Content-Security-Policy\" content=\"";
+        let start = html.find(meta).unwrap() + meta.len();
+        let policy = &html[start..start + html[start..].find('"').unwrap()];
+        assert!(policy.contains(&sha256_source(&inline(&html, "script"))));
+        assert!(policy.contains(&sha256_source(&inline(&html, "style"))));
+        let name = format!("deck_interface_{}", locale.unwrap_or("en"));
+        insta::assert_snapshot!(name, interface(&html));
+    }
+    d.locale = Some("ja-JP".into());
+    let html = crate::render_deck_html_with(&d, &[(&f1, &s1)], true);
+    assert!(html.contains("<html lang=\"ja-JP\">"));
+    assert!(html.contains("<div class=\"controls\" lang=\"en\"><button"));
+    assert!(html.contains(">Notes</button>"));
+}

@@ -11,8 +11,8 @@
 use std::collections::BTreeMap;
 
 use crescendo_plugin::sdk::{
-    cell_number, cell_text, column, decimals_needed, extent, format_number, shown, spread,
-    text_width, Form, Linear, Shown,
+    cell_number, cell_text, column, decimals_needed, extent, shown, spread, text_width, Form,
+    Linear, Shown,
 };
 use crescendo_plugin::{Anchor, Column, Drawing, OptionDecl, Primitive, Pt, Request, Role, Space};
 
@@ -75,7 +75,9 @@ fn slope(r: &Request) -> Result<Drawing, String> {
     let (items, left_out) = items_of(r, [cat, val, per], &labels)?;
 
     let decimals = decimals_needed(items.iter().flat_map(|i| i.values), 2);
-    let fmt = |v: f64| format_number(v, decimals);
+    // numbers and periods as the story's locale writes them
+    let fmt = |v: f64| r.writing.number(v, decimals);
+    let labels = labels.map(|l| r.writing.time(&l).to_string());
     Ok(Drawing {
         primitives: draw(r, &items, &labels, &fmt),
         data_domain: None,
@@ -454,6 +456,7 @@ mod tests {
                 height: 400.0,
             },
             label_size: 16.0,
+            writing: Default::default(),
         }
     }
 

@@ -8,8 +8,8 @@
 //! refuses the chart, naming both numbers, when they differ. See README.md.
 
 use crescendo_plugin::sdk::{
-    cell_number, cell_text, column, decimals_needed, extent, format_number, format_signed, shown,
-    Form, Linear, Shown,
+    cell_number, cell_text, column, decimals_needed, extent, format_number, shown, Form, Linear,
+    Shown,
 };
 use crescendo_plugin::{Anchor, Column, Drawing, OptionDecl, Primitive, Pt, Request, Role, Space};
 
@@ -91,7 +91,7 @@ fn waterfall(r: &Request) -> Result<Drawing, String> {
     Ok(Drawing {
         primitives: draw(r, &bars, decimals)?,
         data_domain: None,
-        description: Some(describe(&bars, decimals)),
+        description: Some(describe(r, &bars, decimals)),
     })
 }
 
@@ -195,8 +195,8 @@ fn draw(r: &Request, bars: &[Bar], decimals: usize) -> Result<Vec<Primitive>, St
     let font = r.label_size.clamp(8.0, 72.0);
     let line = (font * 1.25).ceil();
     let label_of = |b: &Bar| match b.kind {
-        Kind::Step => format_signed(b.value(), decimals),
-        _ => format_number(b.value(), decimals),
+        Kind::Step => r.writing.signed(b.value(), decimals),
+        _ => r.writing.number(b.value(), decimals),
     };
     let (w, h) = (r.area.width, r.area.height);
     let slot = w / bars.len() as f64;
@@ -307,10 +307,10 @@ fn wrap_name(name: &str, max: usize) -> Result<Vec<String>, String> {
 }
 
 /// "Waterfall from Budget 2023 1,000 to End 1,075 in 3 steps: 2 up (+120 in
-/// all), 1 down (-45 in all); the largest step is Sales +100."
-fn describe(bars: &[Bar], decimals: usize) -> String {
-    let n = |v: f64| format_number(v, decimals);
-    let s = |v: f64| format_signed(v, decimals);
+/// all), 1 down (−45 in all); the largest step is Sales +100."
+fn describe(r: &Request, bars: &[Bar], decimals: usize) -> String {
+    let n = |v: f64| r.writing.number(v, decimals);
+    let s = |v: f64| r.writing.signed(v, decimals);
     let (Some(first), Some(last)) = (bars.first(), bars.last()) else {
         return String::new();
     };
@@ -409,6 +409,7 @@ mod tests {
                 height: 300.0,
             },
             label_size: 16.0,
+            writing: Default::default(),
         }
     }
 
@@ -443,7 +444,15 @@ mod tests {
     fn computes_the_end_and_labels_with_signs() {
         let d = waterfall(&sample()).unwrap();
         let t = texts(&d);
-        for want in ["1,000", "+100", "-45", "+20", "1,075", "Opening", "End"] {
+        for want in [
+            "1,000",
+            "+100",
+            "\u{2212}45",
+            "+20",
+            "1,075",
+            "Opening",
+            "End",
+        ] {
             assert!(t.contains(&want.to_string()), "{want} missing from {t:?}");
         }
         let r = rects(&d);
@@ -484,7 +493,7 @@ mod tests {
         assert_eq!(connectors, 4);
         assert_eq!(
             d.description.as_deref(),
-            Some("Waterfall from Opening 1,000 to End 1,075 in 3 steps: 2 up (+120 in all), 1 down (-45 in all); the largest step is Sales +100.")
+            Some("Waterfall from Opening 1,000 to End 1,075 in 3 steps: 2 up (+120 in all), 1 down (\u{2212}45 in all); the largest step is Sales +100.")
         );
     }
 
@@ -520,7 +529,10 @@ mod tests {
         r.roles.insert("Refunds".into(), Role::Focus);
         let d = waterfall(&r).unwrap();
         assert_eq!(rects(&d)[2].2, Role::Focus);
-        assert!(d.description.unwrap().ends_with("in focus: Refunds -45."));
+        assert!(d
+            .description
+            .unwrap()
+            .ends_with("in focus: Refunds \u{2212}45."));
         let all = waterfall(&sample()).unwrap();
         let mut r = sample();
         r.hidden.push("Grants".into());
@@ -552,7 +564,7 @@ mod tests {
                 );
             }
         }
-        assert!(texts(&d).contains(&"-40".to_string()));
+        assert!(texts(&d).contains(&"\u{2212}40".to_string()));
     }
 
     #[test]

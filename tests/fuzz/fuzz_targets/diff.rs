@@ -9,6 +9,11 @@ mod deck {
     pub const MANIFEST: &str = "deck.json";
 }
 
+/// The chart contents `diff` compares.
+#[allow(dead_code)]
+#[path = "../../../src/content.rs"]
+mod content;
+
 #[allow(dead_code)]
 #[path = "../../../src/diff.rs"]
 mod diff;

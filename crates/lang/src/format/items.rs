@@ -34,6 +34,17 @@ impl Printer<'_> {
                 self.s("fiscal year starts ");
                 self.raw(&month.span);
             }
+            Item::FiscalNames(FiscalNamesDecl { names, .. }) => {
+                self.s("fiscal names ");
+                for (i, n) in names.iter().enumerate() {
+                    if i > 0 {
+                        self.s(", ");
+                    }
+                    self.s(n.part.word());
+                    self.s(" ");
+                    self.raw(&n.text.span);
+                }
+            }
             Item::Theme { name, .. } => {
                 self.s("theme ");
                 self.raw(&name.span);

@@ -7,6 +7,20 @@ use super::{children, internal, Conv, Res, Rule};
 use crate::ast::*;
 
 impl Conv<'_> {
+    /// `year "FY"`, `quarter "Q"` or `half "H"`.
+    fn fiscal_name(&mut self, pair: Pair<Rule>) -> Res<FiscalName> {
+        let span = self.span_of(&pair);
+        let mut it = children(pair);
+        let part = match it.next().map(|p| p.as_rule()) {
+            Some(Rule::kw_year) => FiscalPart::Year,
+            Some(Rule::kw_quarter) => FiscalPart::Quarter,
+            Some(Rule::kw_half) => FiscalPart::Half,
+            _ => return Err(internal(&span)),
+        };
+        let text = self.string(it.next().ok_or_else(|| internal(&span))?);
+        Ok(FiscalName { part, text, span })
+    }
+
     pub(super) fn item(&mut self, pair: Pair<Rule>) -> Res<Item> {
         let span = self.span_of(&pair);
         let rule = pair.as_rule();
@@ -28,6 +42,14 @@ impl Conv<'_> {
                 month: self.ident(last(&mut inner, &span)?),
                 span,
             },
+            Rule::fiscal_names_item => Item::FiscalNames(FiscalNamesDecl {
+                names: inner
+                    .into_iter()
+                    .filter(|p| p.as_rule() == Rule::fiscal_name)
+                    .map(|p| self.fiscal_name(p))
+                    .collect::<Res<Vec<_>>>()?,
+                span,
+            }),
             Rule::plugin_item => {
                 let mut it = inner.into_iter().skip(2);
                 let path = self.string(it.next().ok_or_else(|| internal(&span))?);

@@ -15,6 +15,7 @@ mod plugin;
 mod scatter;
 mod spec;
 mod table;
+mod writing;
 
 use crescendo_lang::ast::{ChartForm, ChartStmt, CompareDecl};
 

@@ -102,6 +102,7 @@ pub(crate) fn draw(cx: &mut Ctx, scope: &Scope, d: &DrawStmt) -> Outcome<SeqStat
                 height: 0.0,
             },
             label_size: 16.0,
+            writing: Box::new(super::writing::of(table)),
         },
     });
     Ok(SeqState {

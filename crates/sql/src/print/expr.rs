@@ -178,11 +178,17 @@ pub(super) fn bucket_sql(bucket: Bucket, x: &str) -> String {
         Bucket::Quarter => {
             format!("(CAST({year} AS text) || ' Q' || CAST(({month} + 2) / 3 AS text))")
         }
-        Bucket::FiscalYear(s) => format!("('FY' || {})", fiscal_year(&year, &month, s)),
-        Bucket::FiscalQuarter(s) => format!(
-            "('FY' || {} || ' Q' || CAST(({month} + {}) % 12 / 3 + 1 AS text))",
-            fiscal_year(&year, &month, s),
-            12 - s.clamp(1, 12)
+        Bucket::FiscalYear(f) => format!(
+            "({} || {})",
+            text_literal(year_prefix(f)),
+            fiscal_year(&year, &month, f.start_month)
+        ),
+        Bucket::FiscalQuarter(f) => format!(
+            "({} || {} || {} || CAST(({month} + {}) % 12 / 3 + 1 AS text))",
+            text_literal(year_prefix(f)),
+            fiscal_year(&year, &month, f.start_month),
+            text_literal(&format!(" {}", quarter_prefix(f))),
+            12 - f.start_month.clamp(1, 12)
         ),
         Bucket::WeekStart => format!(
             "to_char({day} - (CAST(extract(isodow FROM {day}) AS integer) - 1), 'YYYY-MM-DD')"
@@ -190,6 +196,31 @@ pub(super) fn bucket_sql(bucket: Bucket, x: &str) -> String {
         Bucket::Week => format!("to_char({day}, 'IYYY-\"W\"IW')"),
         Bucket::Weekday => format!("to_char({day}, 'Dy')"),
     }
+}
+
+/// The text before a fiscal year's number, as `Fiscal::year_label` writes
+/// it (none for a calendar year).
+fn year_prefix(f: crescendo_data::locale::Fiscal) -> &'static str {
+    if f.is_fiscal() {
+        f.names.year
+    } else {
+        ""
+    }
+}
+
+/// The text before a quarter's number, as `Fiscal::quarter_name` writes it.
+fn quarter_prefix(f: crescendo_data::locale::Fiscal) -> &'static str {
+    if f.is_fiscal() {
+        f.names.quarter
+    } else {
+        "Q"
+    }
+}
+
+/// A PostgreSQL string literal (standard conforming: a quote is doubled,
+/// a backslash is itself).
+fn text_literal(text: &str) -> String {
+    format!("'{}'", text.replace('\'', "''"))
 }
 
 /// The fiscal year (named by the calendar year it ends in) as text.
