@@ -582,7 +582,7 @@ pub enum FrameStmt {
         span: Span,
     },
     Reference {
-        value: f64,
+        value: Position,
         text: Text,
         span: Span,
     },
@@ -628,7 +628,12 @@ impl FrameStmt {
 #[derive(Clone, Debug, PartialEq)]
 pub enum Position {
     Text(Str),
-    Number { value: f64, span: Span },
+    Number {
+        value: f64,
+        span: Span,
+    },
+    /// A value or an expression of values, computed on every build.
+    Value(Expr),
 }
 
 impl Position {
@@ -636,6 +641,7 @@ impl Position {
         match self {
             Position::Text(s) => s.span.clone(),
             Position::Number { span, .. } => span.clone(),
+            Position::Value(e) => e.span(),
         }
     }
 }

@@ -177,8 +177,11 @@ pub fn walk_frame_stmt<'a, V: Visit<'a> + ?Sized>(v: &mut V, stmt: &'a FrameStmt
         FrameStmt::Draw(d) => v.visit_draw(d),
         FrameStmt::AxisTitle { text, .. }
         | FrameStmt::Takeaway { text, .. }
-        | FrameStmt::Notes { text, .. }
-        | FrameStmt::Reference { text, .. } => v.visit_text(text),
+        | FrameStmt::Notes { text, .. } => v.visit_text(text),
+        FrameStmt::Reference { value, text, .. } => {
+            walk_position(v, value);
+            v.visit_text(text);
+        }
         FrameStmt::Show { targets, .. }
         | FrameStmt::Hide { targets, .. }
         | FrameStmt::Spotlight { targets, .. } => walk_targets(v, targets),
@@ -214,8 +217,10 @@ pub fn walk_frame_stmt<'a, V: Visit<'a> + ?Sized>(v: &mut V, stmt: &'a FrameStmt
 }
 
 fn walk_position<'a, V: Visit<'a> + ?Sized>(v: &mut V, p: &'a Position) {
-    if let Position::Text(s) = p {
-        v.visit_str(s);
+    match p {
+        Position::Text(s) => v.visit_str(s),
+        Position::Value(e) => v.visit_expr(e),
+        Position::Number { .. } => {}
     }
 }
 

@@ -205,9 +205,9 @@ impl Printer<'_> {
                     self.raw(&t.span);
                 }
             }
-            FrameStmt::Reference { text, span, .. } => {
+            FrameStmt::Reference { value, text, .. } => {
                 self.s("reference ");
-                self.word(span, 1);
+                self.position(value);
                 self.s(" ");
                 self.raw(&text.span);
             }

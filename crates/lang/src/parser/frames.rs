@@ -67,7 +67,7 @@ impl Conv<'_> {
                 span,
             },
             Rule::reference_stmt => FrameStmt::Reference {
-                value: self.signed_number(&part(1)?)?,
+                value: self.position(part(1)?)?,
                 text: self.text(part(2)?),
                 span,
             },
@@ -277,7 +277,14 @@ impl Conv<'_> {
         let p = children(pair).next().ok_or_else(|| internal(&span))?;
         match p.as_rule() {
             Rule::string => Ok(Position::Text(self.string(p))),
+            Rule::position_value => {
+                let e = children(p).next().ok_or_else(|| internal(&span))?;
+                Ok(Position::Value(self.expr(e)?))
+            }
             _ => {
+                // the number's own span: the position's may end in the
+                // blank space its lookahead skipped
+                let span = self.span_of(&p);
                 let value = finite(p.as_str()).ok_or_else(|| ConvertError {
                     span: span.clone(),
                     message: format!("`{}` is not a number", p.as_str()),

@@ -13,7 +13,7 @@ use crate::describe::describe;
 use crate::forms;
 use crate::frames::texts::FrameTexts;
 use crate::frames::unfold::{self, Budget};
-use crate::frames::{annotations, axes, roles, split, targets};
+use crate::frames::{annotations, axes, positions, roles, split, targets};
 use crate::header::Header;
 use crate::labels::slug;
 use crate::model::*;
@@ -299,6 +299,7 @@ fn build_up(
             st.anchors.split = Some(sp.span.clone());
         }
         FrameStmt::Callout { at, on, text, span } => {
+            positions::names(scope, at, &mut said.texts.depends);
             annotations::callout(cx, scope, st, at, on, text, span)?
         }
         FrameStmt::Band {
@@ -306,9 +307,14 @@ fn build_up(
             to,
             text,
             span,
-        } => annotations::band(cx, scope, st, from, to, text, span)?,
+        } => {
+            positions::names(scope, from, &mut said.texts.depends);
+            positions::names(scope, to, &mut said.texts.depends);
+            annotations::band(cx, scope, st, from, to, text, span)?
+        }
         FrameStmt::Reference { value, text, span } => {
-            annotations::reference(cx, scope, st, *value, text, span)?
+            positions::names(scope, value, &mut said.texts.depends);
+            annotations::reference(cx, scope, st, value, text, span)?
         }
         FrameStmt::LabelEnds { span } => annotations::label_ends(cx, st, span)?,
         FrameStmt::Gridlines { on, span } => axes::gridlines(cx, st, *on, span)?,

@@ -1,0 +1,225 @@
+//! Marks bound to the data: `reference` and `band` at values, `moment`
+//! markers on a time axis, callouts on every form and the claims footnote.
+//! Stories and data in `tests/marks/`; pictures are snapshot-tested, and
+//! geometry is read from display lists: every mark inside the plot, no
+//! label on another text or on the data it does not annotate.
+
+mod common;
+
+use std::fs;
+use std::path::{Path, PathBuf};
+use std::sync::Arc;
+
+use common::{crescendo, root, scratch};
+use crescendo_diag::Source;
+use crescendo_look::display::Item;
+use crescendo_plan::{Annotation, Chart, DeckPlan};
+use crescendo_render::DisplayList;
+
+fn marks_dir() -> PathBuf {
+    root().join("tests/marks")
+}
+
+/// The plan of a story file and the display list of each frame.
+fn laid_out(path: &Path) -> (DeckPlan, Vec<DisplayList>) {
+    let text = fs::read_to_string(path).expect("read story");
+    let src: Arc<Source> = Source::file(path.display().to_string(), text);
+    let planned = crescendo_plan::plan_story(&src, path.parent().unwrap(), &Default::default())
+        .unwrap_or_else(|d| panic!("{}", crescendo_diag::render(&d, false)));
+    let lists = (planned.plan.frames.iter())
+        .map(|f| crescendo_render::display_list(&planned.plan, f, None).expect("layout"))
+        .collect();
+    (planned.plan, lists)
+}
+
+/// A copy of a story of `tests/marks/` in a scratch folder, with its data
+/// file replaced by `csv`.
+fn with_data(story: &str, csv: &str, tag: &str) -> PathBuf {
+    let dir = scratch(&format!("marks-{tag}"));
+    fs::create_dir_all(dir.join("data")).unwrap();
+    fs::copy(marks_dir().join(story), dir.join(story)).unwrap();
+    fs::write(dir.join("data/visits.csv"), csv).unwrap();
+    dir.join(story)
+}
+
+/// The month-by-site data of the tests, with `lift` added to North's
+/// visits from the 16th month on.
+fn visits_csv(lift: f64) -> String {
+    let mut out = String::from("month,site,visits\n");
+    for i in 0..24 {
+        let (y, m) = (2023 + i / 12, i % 12 + 1);
+        for (site, base, growth) in [("North", 400.0, 6.0), ("South", 300.0, 3.0)] {
+            let season = (60.0 * (f64::from(i) / 12.0 * std::f64::consts::TAU).sin()).trunc();
+            let mut v = base + growth * f64::from(i) + season;
+            if site == "North" && i >= 15 {
+                v += lift;
+            }
+            out.push_str(&format!("{y}-{m:02},{site},{v}\n"));
+        }
+    }
+    out
+}
+
+/// North's mean, computed here from the file's text, not by crescendo.
+fn north_mean(csv: &str) -> f64 {
+    let v: Vec<f64> = csv
+        .lines()
+        .skip(1)
+        .filter_map(|l| l.strip_prefix_site("North"))
+        .collect();
+    v.iter().sum::<f64>() / v.len() as f64
+}
+
+trait Site {
+    fn strip_prefix_site(&self, site: &str) -> Option<f64>;
+}
+
+impl Site for str {
+    fn strip_prefix_site(&self, site: &str) -> Option<f64> {
+        let mut f = self.split(',');
+        let (_, s, v) = (f.next()?, f.next()?, f.next()?);
+        (s == site).then(|| v.parse().ok()).flatten()
+    }
+}
+
+fn references(plan: &DeckPlan) -> Vec<(f64, String)> {
+    let Chart::Line(l) = &plan.frames[0].chart else {
+        panic!("a line chart")
+    };
+    l.annotations
+        .iter()
+        .filter_map(|a| match a {
+            Annotation::Reference { value, text } => Some((*value, text.clone())),
+            _ => None,
+        })
+        .collect()
+}
+
+/// Thin horizontal rules drawn across the chart above its baseline (the
+/// reference lines), by y.
+fn rules(list: &DisplayList) -> Vec<f64> {
+    let mut ys: Vec<f64> = list
+        .flat()
+        .into_iter()
+        .filter_map(|i| match i {
+            Item::Polyline {
+                points, width: 1, ..
+            } if points.len() == 2
+                && points[0].1 == points[1].1
+                && points[1].0 - points[0].0 > 300.0 =>
+            {
+                Some(points[0].1)
+            }
+            _ => None,
+        })
+        .collect();
+    let base = ys.iter().copied().fold(f64::MIN, f64::max);
+    ys.retain(|y| *y < base);
+    ys
+}
+
+// A reference written as a value follows the data: with North's later
+// months lifted, the average and the 10% target rise, and so do their
+// lines and labels on the picture.
+#[test]
+fn references_at_values_move_with_refreshed_data() {
+    let (before_csv, after_csv) = (visits_csv(0.0), visits_csv(200.0));
+    let before = with_data("reference.cresc", &before_csv, "before");
+    let after = with_data("reference.cresc", &after_csv, "after");
+    let ((p0, l0), (p1, l1)) = (laid_out(&before), laid_out(&after));
+    let (r0, r1) = (references(&p0), references(&p1));
+    assert_eq!(r0.len(), 2);
+    for (refs, csv) in [(&r0, &before_csv), (&r1, &after_csv)] {
+        let mean = north_mean(csv);
+        assert!((refs[0].0 - mean).abs() < 1e-9, "{refs:?} vs {mean}");
+        assert!((refs[1].0 - mean * 1.1).abs() < 1e-9);
+    }
+    assert!(r1[0].0 > r0[0].0 + 50.0, "{r0:?} -> {r1:?}");
+    // on each picture the rules stand where the axis puts the values
+    for (plan, lists, refs) in [(&p0, &l0, &r0), (&p1, &l1, &r1)] {
+        let to_px = y_scale(plan, &lists[0]);
+        let ys = rules(&lists[0]);
+        assert_eq!(ys.len(), 2, "{ys:?}");
+        for ((v, _), y) in refs.iter().zip(&ys) {
+            assert!((to_px(*v) - y).abs() < 1.5, "{v} drawn at {y}");
+        }
+    }
+}
+
+/// Data to px along the line chart's y axis, read from the centres of its
+/// first and last tick labels on the picture.
+fn y_scale(plan: &DeckPlan, list: &DisplayList) -> impl Fn(f64) -> f64 {
+    let Chart::Line(l) = &plan.frames[0].chart else {
+        panic!("a line chart")
+    };
+    let centre = |label: &str| {
+        let t = (list.texts().into_iter())
+            .filter(|t| t.text == label)
+            .min_by(|a, b| a.bounds.x0.total_cmp(&b.bounds.x0))
+            .unwrap_or_else(|| panic!("no tick {label}"));
+        (t.bounds.y0 + t.bounds.y1) / 2.0
+    };
+    let (lo, hi) = (l.y.ticks.first().unwrap(), l.y.ticks.last().unwrap());
+    let (y_lo, y_hi) = (centre(&lo.label), centre(&hi.label));
+    let (v_lo, v_hi) = (lo.value, hi.value);
+    move |v| y_lo + (v - v_lo) / (v_hi - v_lo) * (y_hi - y_lo)
+}
+
+/// Builds `story` of `tests/marks/` and returns the SVG of its frames.
+fn svgs(story: &str) -> Vec<(String, String)> {
+    let out = scratch(&format!("svg-{}", story.trim_end_matches(".cresc")));
+    let r = crescendo(
+        &marks_dir(),
+        &["build", story, "--out", out.to_str().unwrap()],
+    );
+    assert!(r.status.success(), "{}", String::from_utf8_lossy(&r.stderr));
+    let mut files: Vec<(String, String)> = fs::read_dir(&out)
+        .unwrap()
+        .filter_map(|e| {
+            let p = e.unwrap().path();
+            let name = p.file_name()?.to_string_lossy().to_string();
+            name.ends_with(".svg")
+                .then(|| (name, fs::read_to_string(&p).unwrap()))
+        })
+        .collect();
+    files.sort();
+    let _ = fs::remove_dir_all(&out);
+    files
+}
+
+#[test]
+fn references_at_values_draw_as_their_snapshot() {
+    for (name, svg) in svgs("reference.cresc") {
+        insta::assert_snapshot!(format!("marks_reference_{name}"), svg);
+    }
+}
+
+/// What `crescendo check` prints for a story fragment after the header of
+/// `reference.cresc`.
+fn check_error(fragment: &str, tag: &str) -> String {
+    let dir = scratch(&format!("err-{tag}"));
+    fs::create_dir_all(dir.join("data")).unwrap();
+    fs::write(dir.join("data/visits.csv"), visits_csv(0.0)).unwrap();
+    let head = fs::read_to_string(marks_dir().join("reference.cresc")).unwrap();
+    let head = head.split("frame ").next().unwrap().to_string();
+    fs::write(dir.join("story.cresc"), head + fragment).unwrap();
+    let r = crescendo(&dir, &["check", "story.cresc"]);
+    assert!(!r.status.success());
+    let err = String::from_utf8_lossy(&r.stderr).to_string();
+    assert!(!err.contains("panicked"), "{err}");
+    err
+}
+
+#[test]
+fn positions_that_are_not_values_of_the_axis_are_located_errors() {
+    let line = "frame \"F\" {\n  line monthly: x month, y visits, series site\n";
+    let cases = [
+        ("reference_month", "  reference first_month \"Start\"\n}\n"),
+        ("reference_unknown", "  reference avrage \"Average\"\n}\n"),
+        ("band_number", "  band average to \"2024-01\"\n}\n"),
+    ];
+    for (tag, stmt) in cases {
+        let err = check_error(&format!("{line}{stmt}"), tag);
+        insta::assert_snapshot!(format!("marks_error_{tag}"), err);
+    }
+}
