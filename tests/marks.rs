@@ -223,3 +223,156 @@ fn positions_that_are_not_values_of_the_axis_are_located_errors() {
         insta::assert_snapshot!(format!("marks_error_{tag}"), err);
     }
 }
+
+/// Data lines (2 px or more) of a frame, as segments.
+fn data_lines(list: &DisplayList) -> Vec<((f64, f64), (f64, f64))> {
+    let mut out = Vec::new();
+    for item in list.flat() {
+        if let Item::Polyline { points, width, .. } = item {
+            if *width >= 2 {
+                out.extend(points.windows(2).map(|w| (w[0], w[1])));
+            }
+        }
+    }
+    out
+}
+
+/// The plot's box: left and right from the baseline, top from the top
+/// tick label's centre.
+fn plot_box(plan: &DeckPlan, list: &DisplayList) -> crescendo_look::display::Rect {
+    let to_px = y_scale(plan, list);
+    let Chart::Line(l) = &plan.frames[0].chart else {
+        panic!("a line chart")
+    };
+    let bottom = to_px(l.y.domain[0]);
+    let base = list
+        .flat()
+        .into_iter()
+        .find_map(|i| match i {
+            Item::Polyline { points, .. }
+                if points.len() == 2 && (points[0].1 - bottom).abs() < 1.0 =>
+            {
+                Some((points[0].0, points[1].0))
+            }
+            _ => None,
+        })
+        .expect("the baseline");
+    crescendo_look::display::Rect {
+        x0: base.0,
+        y0: to_px(l.y.domain[1]) - 12.0,
+        x1: base.1,
+        y1: bottom,
+    }
+}
+
+// The moments of the test story: planned where the story says (the one
+// written as a value at the month it computes to), their labels inside
+// the plot, off the data lines and every other text, and in the same
+// place on both frames of the sequence.
+#[test]
+fn moments_mark_their_times_and_their_labels_keep_off_the_data() {
+    let (plan, lists) = laid_out(&marks_dir().join("moments.cresc"));
+    let Chart::Line(l) = &plan.frames[0].chart else {
+        panic!("a line chart")
+    };
+    // months are counted as year * 12 + month - 1
+    let month = |y: f64, m: f64| y * 12.0 + m - 1.0;
+    let marks: Vec<(f64, Option<f64>, &str)> = (l.annotations.iter())
+        .filter_map(|a| match a {
+            Annotation::Moment { from, to, text } => Some((*from, *to, text.as_str())),
+            _ => None,
+        })
+        .collect();
+    assert_eq!(
+        marks,
+        vec![
+            (month(2024.0, 4.0), None, "New hall opens"),
+            (month(2023.0, 7.0), Some(month(2023.0, 9.0)), "Roof repairs"),
+            (month(2024.0, 1.0), None, "Fees cut"),
+        ]
+    );
+    let mut places = Vec::new();
+    for list in &lists {
+        let plot = plot_box(&plan, list);
+        let lines = data_lines(list);
+        let texts = list.texts();
+        let mut here = Vec::new();
+        for (_, _, label) in &marks {
+            let t = texts
+                .iter()
+                .find(|t| t.text == *label)
+                .unwrap_or_else(|| panic!("no label {label}"));
+            let b = t.bounds;
+            assert!(b.inside(&plot), "{label}: {b:?} outside {plot:?}");
+            let inner = b.grow(-1.0);
+            assert!(
+                !lines.iter().any(|(p, q)| inner.hit_by(*p, *q)),
+                "{label} crosses a data line"
+            );
+            for other in texts.iter().filter(|o| o.text != *label) {
+                assert!(
+                    !inner.overlaps(&other.bounds, 0.0),
+                    "{label} on {}",
+                    other.text
+                );
+            }
+            here.push(b);
+        }
+        places.push(here);
+    }
+    assert_eq!(places[0], places[1], "labels keep their place");
+    // a dashed line at each point moment, drawn at its month's x
+    let list = &lists[0];
+    let dash_xs: Vec<f64> = (list.flat().into_iter())
+        .filter_map(|i| match i {
+            Item::Polyline {
+                points, width: 1, ..
+            } if points.len() == 2
+                && points[0].0 == points[1].0
+                && (points[1].1 - points[0].1 - 6.0).abs() < 1e-9 =>
+            {
+                Some(points[0].0)
+            }
+            _ => None,
+        })
+        .collect();
+    let plot = plot_box(&plan, list);
+    let x_of = |m: f64| {
+        plot.x0 + (m - l.x.domain[0]) / (l.x.domain[1] - l.x.domain[0]) * (plot.x1 - plot.x0)
+    };
+    for m in [month(2024.0, 4.0), month(2024.0, 1.0)] {
+        let n = dash_xs
+            .iter()
+            .filter(|x| (**x - x_of(m)).abs() < 0.5)
+            .count();
+        assert!(n > 20, "{n} dashes at month {m}");
+    }
+}
+
+#[test]
+fn moments_draw_as_their_snapshot() {
+    for (name, svg) in svgs("moments.cresc") {
+        insta::assert_snapshot!(format!("marks_moments_{name}"), svg);
+    }
+}
+
+#[test]
+fn moments_off_a_time_axis_are_located_errors() {
+    let line = "frame \"F\" {\n  line monthly: x month, y visits, series site\n";
+    let cases = [
+        (
+            "moment_on_bars",
+            "frame \"F\" {\n  bars by_site: category site, value visits\n  moment \"2024-01\" \"Fees cut\"\n}\n".to_string(),
+        ),
+        ("moment_outside", format!("{line}  moment \"2026-01\" \"Later\"\n}}\n")),
+        (
+            "moment_backwards",
+            format!("{line}  moment \"2024-03\" to \"2024-01\" \"Works\"\n}}\n"),
+        ),
+        ("moment_number", format!("{line}  moment average \"Average\"\n}}\n")),
+    ];
+    for (tag, story) in cases {
+        let err = check_error(&story, tag);
+        insta::assert_snapshot!(format!("marks_error_{tag}"), err);
+    }
+}

@@ -213,6 +213,15 @@ pub enum Annotation {
     },
     /// A line across the plot at a value of the measure, with its label.
     Reference { value: f64, text: String },
+    /// A time the story names (`moment`): a dashed line across the plot at
+    /// `from`, or a light band from `from` to `to` for a period, with a
+    /// short label placed clear of the data.
+    Moment {
+        from: f64,
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        to: Option<f64>,
+        text: String,
+    },
 }
 
 /// Stacked parts share one bar; grouped parts stand side by side.

@@ -3,6 +3,8 @@
 
 use std::ops::Range;
 
+pub use crate::position::Position;
+
 /// A byte range in the story file.
 pub type Span = Range<usize>;
 
@@ -586,6 +588,13 @@ pub enum FrameStmt {
         text: Text,
         span: Span,
     },
+    /// `moment AT [to UNTIL] "text"`: a time or period marked on a time axis.
+    Moment {
+        at: Position,
+        until: Option<Position>,
+        text: Text,
+        span: Span,
+    },
     /// `label ends`
     LabelEnds {
         span: Span,
@@ -618,30 +627,9 @@ impl FrameStmt {
             | FrameStmt::Callout { span, .. }
             | FrameStmt::Band { span, .. }
             | FrameStmt::Reference { span, .. }
+            | FrameStmt::Moment { span, .. }
             | FrameStmt::LabelEnds { span }
             | FrameStmt::Gridlines { span, .. } => span.clone(),
-        }
-    }
-}
-
-/// A position along x as written: a quoted time or a number.
-#[derive(Clone, Debug, PartialEq)]
-pub enum Position {
-    Text(Str),
-    Number {
-        value: f64,
-        span: Span,
-    },
-    /// A value or an expression of values, computed on every build.
-    Value(Expr),
-}
-
-impl Position {
-    pub fn span(&self) -> Span {
-        match self {
-            Position::Text(s) => s.span.clone(),
-            Position::Number { span, .. } => span.clone(),
-            Position::Value(e) => e.span(),
         }
     }
 }

@@ -6,6 +6,7 @@
 pub mod ast;
 pub mod format;
 pub mod parser;
+mod position;
 pub mod source;
 pub mod visit;
 

@@ -206,6 +206,15 @@ pub fn walk_frame_stmt<'a, V: Visit<'a> + ?Sized>(v: &mut V, stmt: &'a FrameStmt
             }
             v.visit_text(text);
         }
+        FrameStmt::Moment {
+            at, until, text, ..
+        } => {
+            walk_position(v, at);
+            if let Some(u) = until {
+                walk_position(v, u);
+            }
+            v.visit_text(text);
+        }
         FrameStmt::Band { from, to, text, .. } => {
             walk_position(v, from);
             walk_position(v, to);

@@ -28,6 +28,7 @@ pub mod layout;
 mod line;
 mod line_layout;
 pub mod lttb;
+mod moments;
 mod panels;
 mod parts;
 mod pie;

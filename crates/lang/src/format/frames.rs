@@ -185,6 +185,20 @@ impl Printer<'_> {
                     self.strs(order);
                 }
             }
+            FrameStmt::Callout { .. }
+            | FrameStmt::Band { .. }
+            | FrameStmt::Reference { .. }
+            | FrameStmt::Moment { .. } => self.annotation(st),
+            FrameStmt::LabelEnds { .. } => self.s("label ends"),
+            FrameStmt::Gridlines { on, .. } => {
+                self.s(if *on { "gridlines" } else { "gridlines off" })
+            }
+        }
+    }
+
+    /// The notes drawn on a chart: `callout`, `band`, `reference`, `moment`.
+    fn annotation(&mut self, st: &FrameStmt) {
+        match st {
             FrameStmt::Callout { at, on, text, .. } => {
                 self.s("callout ");
                 self.position(at);
@@ -211,10 +225,19 @@ impl Printer<'_> {
                 self.s(" ");
                 self.raw(&text.span);
             }
-            FrameStmt::LabelEnds { .. } => self.s("label ends"),
-            FrameStmt::Gridlines { on, .. } => {
-                self.s(if *on { "gridlines" } else { "gridlines off" })
+            FrameStmt::Moment {
+                at, until, text, ..
+            } => {
+                self.s("moment ");
+                self.position(at);
+                if let Some(u) = until {
+                    self.s(" to ");
+                    self.position(u);
+                }
+                self.s(" ");
+                self.raw(&text.span);
             }
+            _ => {}
         }
     }
 }

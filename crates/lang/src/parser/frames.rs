@@ -71,6 +71,7 @@ impl Conv<'_> {
                 text: self.text(part(2)?),
                 span,
             },
+            Rule::moment_stmt => self.moment(inner, span)?,
             Rule::label_ends_stmt => FrameStmt::LabelEnds { span },
             Rule::gridlines_stmt => FrameStmt::Gridlines {
                 on: !inner.iter().any(|p| p.as_rule() == Rule::kw_off),
@@ -234,6 +235,26 @@ impl Conv<'_> {
             at,
             on,
             text: self.text(text),
+            span,
+        })
+    }
+
+    /// `moment AT [to UNTIL] "text"`.
+    fn moment(&mut self, inner: Vec<Pair<Rule>>, span: Span) -> Res<FrameStmt> {
+        let mut positions = Vec::new();
+        let mut text = None;
+        for p in inner {
+            match p.as_rule() {
+                Rule::position => positions.push(self.position(p)?),
+                Rule::string => text = Some(self.text(p)),
+                _ => {}
+            }
+        }
+        let mut positions = positions.into_iter();
+        Ok(FrameStmt::Moment {
+            at: positions.next().ok_or_else(|| internal(&span))?,
+            until: positions.next(),
+            text: text.ok_or_else(|| internal(&span))?,
             span,
         })
     }

@@ -11,7 +11,7 @@ use crate::scope::Scope;
 use crate::sequence::SeqState;
 
 /// The line chart a statement annotates; reports any other chart.
-fn line_of<'s>(
+pub(super) fn line_of<'s>(
     cx: &mut Ctx,
     st: &'s mut SeqState,
     span: &Span,
@@ -39,7 +39,7 @@ fn x_axis_of(cx: &mut Ctx, st: &mut SeqState, span: &Span, what: &str) -> Outcom
 }
 
 /// Read a position along a line chart's x axis.
-fn x_position(cx: &mut Ctx, axis: &Axis, p: &Position) -> Outcome<f64> {
+pub(super) fn x_position(cx: &mut Ctx, axis: &Axis, p: &Position) -> Outcome<f64> {
     let found = match (axis.scale, p) {
         (ScaleKind::Months, Position::Text(s)) => time::parse_month(&s.value)
             .map(f64::from)

@@ -13,7 +13,7 @@ use crate::describe::describe;
 use crate::forms;
 use crate::frames::texts::FrameTexts;
 use crate::frames::unfold::{self, Budget};
-use crate::frames::{annotations, axes, positions, roles, split, targets};
+use crate::frames::{annotations, axes, moments, positions, roles, split, targets};
 use crate::header::Header;
 use crate::labels::slug;
 use crate::model::*;
@@ -315,6 +315,21 @@ fn build_up(
         FrameStmt::Reference { value, text, span } => {
             positions::names(scope, value, &mut said.texts.depends);
             annotations::reference(cx, scope, st, value, text, span)?
+        }
+        FrameStmt::Moment {
+            at,
+            until,
+            text,
+            span,
+        } => {
+            positions::names(scope, at, &mut said.texts.depends);
+            if let Some(u) = until {
+                positions::names(scope, u, &mut said.texts.depends);
+            }
+            let r = scope.text(cx, text);
+            // what the label quotes counts, but it is no field of its own
+            said.texts.depends.extend(r.depends.iter().cloned());
+            moments::moment(cx, scope, st, (at, until.as_ref()), r.text, span)?
         }
         FrameStmt::LabelEnds { span } => annotations::label_ends(cx, st, span)?,
         FrameStmt::Gridlines { on, span } => axes::gridlines(cx, st, *on, span)?,

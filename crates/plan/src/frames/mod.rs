@@ -5,6 +5,7 @@
 mod annotations;
 mod axes;
 mod frame;
+mod moments;
 mod positions;
 mod roles;
 mod split;
