@@ -295,6 +295,7 @@ mod tests {
             quoted: Default::default(),
             templates: Default::default(),
             notices: Vec::new(),
+            claim_notes: Vec::new(),
             chart: Chart::Figures(FigureChart {
                 figures: Vec::new(),
             }),

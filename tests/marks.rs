@@ -376,3 +376,94 @@ fn moments_off_a_time_axis_are_located_errors() {
         insta::assert_snapshot!(format!("marks_error_{tag}"), err);
     }
 }
+
+/// The y of the chart's baseline (the lowest long horizontal rule).
+fn baseline_y(list: &DisplayList) -> f64 {
+    (list.flat().into_iter())
+        .filter_map(|i| match i {
+            Item::Polyline { points, .. }
+                if points.len() == 2
+                    && points[0].1 == points[1].1
+                    && points[1].0 - points[0].0 > 300.0 =>
+            {
+                Some(points[0].1)
+            }
+            _ => None,
+        })
+        .fold(f64::MIN, f64::max)
+}
+
+// `footnote claims` prints each claim the frame's texts rest on, with its
+// operands' figures, in small type above the source note; a frame without
+// it prints none, and both frames keep the same chart region (one grid).
+#[test]
+fn the_claims_footnote_lists_the_claims_a_frame_rests_on() {
+    let (plan, lists) = laid_out(&marks_dir().join("claims.cresc"));
+    let notes = &plan.frames[0].claim_notes;
+    assert_eq!(
+        notes,
+        &vec![
+            "Holds: \u{201c}North had over a third more visits than South\u{201d} \u{2014} lead > 1.3: 1.54 > 1.3".to_string(),
+            "Holds: \u{201c}North grew by over a quarter in two years\u{201d} \u{2014} north_rise > 0.25: 0.573 > 0.25".to_string(),
+            "Holds: \u{201c}South is not a small site\u{201d} \u{2014} south > 1000: 8,026 > 1,000".to_string(),
+        ]
+    );
+    assert!(plan.frames[1].claim_notes.is_empty(), "off by default");
+    // drawn above the source note, on the first frame only
+    let texts = lists[0].texts();
+    let source = texts
+        .iter()
+        .find(|t| t.text == "Invented test data")
+        .unwrap();
+    let foot: Vec<_> = texts
+        .iter()
+        .filter(|t| t.text.starts_with("Holds"))
+        .collect();
+    assert_eq!(foot.len(), 3);
+    assert!(foot.iter().all(|t| t.bounds.y1 <= source.bounds.y0 + 0.5));
+    assert!(foot.iter().all(|t| t.bounds.y0 > baseline_y(&lists[0])));
+    assert!(!lists[1].texts().iter().any(|t| t.text.starts_with("Holds")));
+    assert_eq!(baseline_y(&lists[0]), baseline_y(&lists[1]), "one grid");
+}
+
+// A claim the data no longer supports is printed as failing (in a draft
+// build), with the figures that break it.
+#[test]
+fn the_claims_footnote_says_when_a_claim_fails() {
+    let story = with_data("claims.cresc", &visits_csv(-300.0), "claims-fail");
+    let (plan, _) = laid_out(&story);
+    let notes = &plan.frames[0].claim_notes;
+    assert!(
+        notes[0].starts_with("Fails: \u{201c}North had over a third more"),
+        "{notes:?}"
+    );
+    // the figure is North's total over South's, read here from the file
+    let csv = visits_csv(-300.0);
+    let total = |site: &str| -> f64 {
+        (csv.lines().skip(1))
+            .filter_map(|l| l.strip_prefix_site(site))
+            .sum()
+    };
+    let lead = format!("{:.2}", total("North") / total("South"));
+    assert!(
+        notes[0].contains(&format!("lead > 1.3: {lead} > 1.3")),
+        "{notes:?} {lead}"
+    );
+    assert!(notes[1].contains("\u{2212}0."), "a drawn minus: {notes:?}");
+    assert!(notes[2].starts_with("Holds:"), "{notes:?}");
+    // the build stops without --draft, and a draft build draws the frame
+    let dir = story.parent().unwrap();
+    let r = crescendo(dir, &["build", "claims.cresc", "--out", "deck"]);
+    assert!(!r.status.success());
+    let r = crescendo(dir, &["build", "claims.cresc", "--draft", "--out", "deck"]);
+    assert!(r.status.success(), "{}", String::from_utf8_lossy(&r.stderr));
+    let svg = fs::read_to_string(dir.join("deck/01-north-had-south-s-visits.svg")).unwrap();
+    assert!(svg.contains("Fails: "), "the failing claim is drawn");
+}
+
+#[test]
+fn the_claims_footnote_draws_as_its_snapshot() {
+    for (name, svg) in svgs("claims.cresc") {
+        insta::assert_snapshot!(format!("marks_claims_{name}"), svg);
+    }
+}

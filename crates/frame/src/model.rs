@@ -97,6 +97,11 @@ pub struct FramePlan {
     /// Warnings drawn on the frame (a draft build with a failed claim).
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub notices: Vec<String>,
+    /// `footnote claims`: one line per claim the frame's texts rest on,
+    /// with its operands' figures and whether it holds, as drawn in small
+    /// type above the source note. Empty unless asked for.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub claim_notes: Vec<String>,
     pub chart: Chart,
 }
 

@@ -604,6 +604,11 @@ pub enum FrameStmt {
         on: bool,
         span: Span,
     },
+    /// `footnote claims` (`claims: true`) or `footnote off`.
+    Footnote {
+        claims: bool,
+        span: Span,
+    },
     Draw(DrawStmt),
 }
 
@@ -629,7 +634,8 @@ impl FrameStmt {
             | FrameStmt::Reference { span, .. }
             | FrameStmt::Moment { span, .. }
             | FrameStmt::LabelEnds { span }
-            | FrameStmt::Gridlines { span, .. } => span.clone(),
+            | FrameStmt::Gridlines { span, .. }
+            | FrameStmt::Footnote { span, .. } => span.clone(),
         }
     }
 }

@@ -185,7 +185,10 @@ pub fn walk_frame_stmt<'a, V: Visit<'a> + ?Sized>(v: &mut V, stmt: &'a FrameStmt
         FrameStmt::Show { targets, .. }
         | FrameStmt::Hide { targets, .. }
         | FrameStmt::Spotlight { targets, .. } => walk_targets(v, targets),
-        FrameStmt::Range { .. } | FrameStmt::LabelEnds { .. } | FrameStmt::Gridlines { .. } => {}
+        FrameStmt::Range { .. }
+        | FrameStmt::LabelEnds { .. }
+        | FrameStmt::Gridlines { .. }
+        | FrameStmt::Footnote { .. } => {}
         FrameStmt::Allow(a) => walk_allow(v, a),
         FrameStmt::Figure { text, caption, .. } => {
             v.visit_text(text);

@@ -74,6 +74,7 @@ fn frame(headline: &str, chart: Chart) -> FramePlan {
         quoted: Default::default(),
         templates: Default::default(),
         notices: Vec::new(),
+        claim_notes: Vec::new(),
         chart,
     }
 }

@@ -21,6 +21,7 @@ mod bars;
 pub mod canvas;
 mod dots;
 mod figures;
+mod footnote;
 mod html;
 pub mod inspect;
 mod kit;

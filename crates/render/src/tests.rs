@@ -86,6 +86,7 @@ fn frame(
         quoted: Default::default(),
         templates: Default::default(),
         notices: Vec::new(),
+        claim_notes: Vec::new(),
         chart,
     }
 }

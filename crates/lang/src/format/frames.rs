@@ -190,6 +190,11 @@ impl Printer<'_> {
             | FrameStmt::Reference { .. }
             | FrameStmt::Moment { .. } => self.annotation(st),
             FrameStmt::LabelEnds { .. } => self.s("label ends"),
+            FrameStmt::Footnote { claims, .. } => self.s(if *claims {
+                "footnote claims"
+            } else {
+                "footnote off"
+            }),
             FrameStmt::Gridlines { on, .. } => {
                 self.s(if *on { "gridlines" } else { "gridlines off" })
             }

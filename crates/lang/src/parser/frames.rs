@@ -73,6 +73,10 @@ impl Conv<'_> {
             },
             Rule::moment_stmt => self.moment(inner, span)?,
             Rule::label_ends_stmt => FrameStmt::LabelEnds { span },
+            Rule::footnote_stmt => FrameStmt::Footnote {
+                claims: inner.iter().any(|p| p.as_rule() == Rule::kw_claims),
+                span,
+            },
             Rule::gridlines_stmt => FrameStmt::Gridlines {
                 on: !inner.iter().any(|p| p.as_rule() == Rule::kw_off),
                 span,

@@ -39,11 +39,14 @@ pub(crate) struct Made {
     pub(crate) frames: Vec<FramePlan>,
     pub(crate) texts: FrameTexts,
     pub(crate) anchors: FrameAnchors,
+    /// `footnote claims`: print the claims the texts rest on.
+    pub(crate) footnote: bool,
 }
 
 /// What a frame's own statements said.
 #[derive(Default)]
 struct Said {
+    footnote: bool,
     takeaway: Option<String>,
     notes: Option<String>,
     unfold: Option<(Vec<Str>, Span)>,
@@ -333,6 +336,7 @@ fn build_up(
         }
         FrameStmt::LabelEnds { span } => annotations::label_ends(cx, st, span)?,
         FrameStmt::Gridlines { on, span } => axes::gridlines(cx, st, *on, span)?,
+        FrameStmt::Footnote { claims, .. } => said.footnote = *claims,
         FrameStmt::Unfold { order, span } => {
             if said.unfold.replace((order.clone(), span.clone())).is_some() {
                 return Err(cx.error(
@@ -402,6 +406,7 @@ fn finish(
             quoted: BTreeMap::new(),
             templates: BTreeMap::new(),
             notices: Vec::new(),
+            claim_notes: Vec::new(),
             chart,
         });
     }
@@ -409,6 +414,7 @@ fn finish(
         frames,
         texts: said.texts,
         anchors,
+        footnote: said.footnote,
     })
 }
 
