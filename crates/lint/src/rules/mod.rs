@@ -20,6 +20,7 @@ mod line_too_short;
 mod lines_tangle;
 mod marks_faint;
 mod measure_unnamed;
+mod mention_unmarked;
 mod panels_own_scales;
 mod pie_crowded;
 mod shades_crowded;
@@ -72,6 +73,7 @@ pub static RULES: &[&Rule] = &[
     &panels_own_scales::RULE,
     &frame_empty::RULE,
     &figure_echoes_headline::RULE,
+    &mention_unmarked::RULE,
     &small_counts::RULE,
     &source_missing::RULE,
     &conclusion_missing::RULE,
