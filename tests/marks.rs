@@ -467,3 +467,119 @@ fn the_claims_footnote_draws_as_its_snapshot() {
         insta::assert_snapshot!(format!("marks_claims_{name}"), svg);
     }
 }
+
+/// The notes of `callouts.cresc`, by frame: the text's first line.
+const NOTES: [&str; 6] = [
+    "New reading room",
+    "Harbour's e-books passed",
+    "Print still leads here",
+    "The one branch where",
+    "Above the line for its hours",
+    "Highest per staff member",
+];
+
+// A callout on every form but lines: each note is drawn, inside the chart
+// region (below the headline, above the source), on no other text, and on
+// no data mark (a bar, segment or dot) — its leader may cross the mark it
+// names, its text may not.
+#[test]
+fn callouts_on_every_form_keep_off_texts_and_marks() {
+    use crescendo_look::display::Rect;
+    let (plan, lists) = laid_out(&marks_dir().join("callouts.cresc"));
+    assert_eq!(plan.frames.len(), NOTES.len());
+    for ((f, list), note) in plan.frames.iter().zip(&lists).zip(NOTES) {
+        assert_eq!(f.mark_notes.len(), 1, "frame {}", f.number);
+        let texts = list.texts();
+        let t = (texts.iter())
+            .find(|t| t.text.starts_with(note))
+            .unwrap_or_else(|| panic!("frame {}: no note \"{note}\"", f.number));
+        let headline = texts.iter().find(|t| t.text == f.headline).unwrap();
+        let source = texts
+            .iter()
+            .find(|t| t.text == "Invented test data")
+            .unwrap();
+        assert!(t.bounds.y0 > headline.bounds.y1 && t.bounds.y1 < source.bounds.y0);
+        let inner = t.bounds.grow(-1.0);
+        for other in texts.iter().filter(|o| o.text != t.text) {
+            assert!(
+                !inner.overlaps(&other.bounds, 0.0),
+                "frame {}: note on \"{}\"",
+                f.number,
+                other.text
+            );
+        }
+        let mut marks: Vec<Rect> = Vec::new();
+        for item in list.flat() {
+            match item {
+                Item::Rect { a, b, .. } => marks.push(Rect {
+                    x0: a.0.min(b.0),
+                    y0: a.1.min(b.1),
+                    x1: a.0.max(b.0),
+                    y1: a.1.max(b.1),
+                }),
+                Item::Dot { at, radius, .. } => {
+                    let r = f64::from(*radius);
+                    marks.push(Rect {
+                        x0: at.0 - r,
+                        y0: at.1 - r,
+                        x1: at.0 + r,
+                        y1: at.1 + r,
+                    })
+                }
+                _ => {}
+            }
+        }
+        // a table's row shading is a background, not a mark
+        if !matches!(f.chart, Chart::Table(_)) {
+            assert!(
+                !marks.iter().any(|m| inner.overlaps(m, 0.0)),
+                "frame {}: note on a mark",
+                f.number
+            );
+        }
+    }
+}
+
+#[test]
+fn callouts_on_every_form_draw_as_their_snapshot() {
+    for (name, svg) in svgs("callouts.cresc") {
+        insta::assert_snapshot!(format!("marks_callouts_{name}"), svg);
+    }
+}
+
+/// What `crescendo check` prints for a frame after the header of
+/// `callouts.cresc`.
+fn callout_error(frame: &str, tag: &str) -> String {
+    let dir = scratch(&format!("callout-{tag}"));
+    fs::create_dir_all(dir.join("data")).unwrap();
+    fs::copy(
+        marks_dir().join("data/branches.csv"),
+        dir.join("data/branches.csv"),
+    )
+    .unwrap();
+    let head = fs::read_to_string(marks_dir().join("callouts.cresc")).unwrap();
+    let head = head.split("frame ").next().unwrap().to_string();
+    fs::write(dir.join("story.cresc"), head + frame).unwrap();
+    let r = crescendo(&dir, &["check", "story.cresc"]);
+    assert!(!r.status.success());
+    let err = String::from_utf8_lossy(&r.stderr).to_string();
+    assert!(!err.contains("panicked"), "{err}");
+    err
+}
+
+#[test]
+fn callouts_that_name_no_mark_are_located_errors() {
+    let bars = "frame \"F\" {\n  bars totals: category branch, value loans\n";
+    let dots = "frame \"F\" {\n  dots loans: category branch, value loans, series format\n";
+    let cases = [
+        ("pie", "frame \"F\" {\n  pie totals: category branch, value loans\n  callout \"Harbour\" \"Note\"\n}\n".to_string()),
+        ("unknown", format!("{bars}  callout \"Harbor\" \"Note\"\n}}\n")),
+        ("number", format!("{bars}  callout 2 \"Note\"\n}}\n")),
+        ("parts_on_bars", format!("{bars}  callout \"Harbour\" on \"Print\" \"Note\"\n}}\n")),
+        ("dots_ambiguous", format!("{dots}  callout \"Harbour\" \"Note\"\n}}\n")),
+    ];
+    for (tag, frame) in cases {
+        let err = callout_error(&frame, tag);
+        insta::assert_snapshot!(format!("marks_error_callout_{tag}"), err);
+    }
+}

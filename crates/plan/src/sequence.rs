@@ -27,6 +27,9 @@ pub(crate) struct SeqState {
     pub(crate) measure_name: String,
     /// Where things were said, for the lint.
     pub(crate) anchors: FrameAnchors,
+    /// Callouts on marks of forms other than lines (kept through the
+    /// sequence, like a line chart's annotations).
+    pub(crate) mark_notes: Vec<crate::model::MarkNote>,
 }
 
 impl SeqState {
@@ -45,6 +48,7 @@ impl SeqState {
             cells: BTreeSet::new(),
             measure_name: String::new(),
             anchors: FrameAnchors::default(),
+            mark_notes: Vec::new(),
         }
     }
 }

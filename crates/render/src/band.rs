@@ -122,6 +122,7 @@ pub(crate) fn bar(
     let across = (centre - thickness / 2.0, centre + thickness / 2.0);
     band.mark(canvas, across, (zero, end), color)?;
     obstacles.add_mark(band.point(across.0, zero), band.point(across.1, end));
+    canvas.anchor(i, None, band.point(centre, end));
     if let Some(text) = focus_label {
         let lh = line_height(theme.label_size);
         let (x, top, align) = band.end_label(end, centre, lh, positive);
@@ -223,7 +224,11 @@ pub(crate) fn parts(
         band.mark(canvas, across(j), (vmap(*a), vmap(*b)), *color)?;
         let (f, t) = across(j);
         obstacles.add_mark(band.point(f, vmap(*a)), band.point(t, vmap(*b)));
+        let mid = band.point((f + t) / 2.0, (vmap(*a) + vmap(*b)) / 2.0);
+        canvas.anchor(c, Some(j), mid);
     }
+    let far = extents.iter().flatten().map(|e| e.1).fold(0.0, f64::max);
+    canvas.anchor(c, None, band.point(band.centre(c), vmap(far)));
     let Some((total, role)) = total else {
         return Ok(());
     };

@@ -32,12 +32,18 @@ pub struct Label<'a> {
     pub align: Align,
 }
 
+/// A data mark by its item index and, where the form has them, its part.
+type MarkKey = (usize, Option<usize>);
+
 /// Records what layout draws, in order, into a display list. Groups
 /// ([`Canvas::group`]) nest.
 #[derive(Default)]
 pub struct Canvas {
     /// The open groups, innermost last; the first is the whole list.
     open: RefCell<Vec<(Option<Part>, Vec<Item>)>>,
+    /// Where each data mark was drawn (its item and part indexes, see
+    /// [`Canvas::anchor`]), for the notes placed on marks afterwards.
+    anchors: RefCell<Vec<(MarkKey, (f64, f64))>>,
 }
 
 impl Canvas {
@@ -46,7 +52,44 @@ impl Canvas {
     pub fn new() -> Self {
         Self {
             open: RefCell::new(vec![(None, Vec::new())]),
+            anchors: RefCell::default(),
         }
+    }
+
+    /// Records the point a note on mark `item` (bar, category, row, point
+    /// or table row), `part` (part, series or column) points at. Draws
+    /// nothing.
+    pub(crate) fn anchor(&self, item: usize, part: Option<usize>, at: (f64, f64)) {
+        self.anchors.borrow_mut().push(((item, part), at));
+    }
+
+    /// The point recorded for a mark, the first if several.
+    pub(crate) fn anchor_of(&self, item: usize, part: Option<usize>) -> Option<(f64, f64)> {
+        (self.anchors.borrow().iter())
+            .find(|(k, _)| *k == (item, part))
+            .map(|(_, at)| *at)
+    }
+
+    /// Every item drawn so far, in open groups too, groups opened; tints
+    /// and the page left out (backgrounds, not marks).
+    pub(crate) fn drawn(&self) -> Vec<Item> {
+        fn walk(items: &[Item], out: &mut Vec<Item>) {
+            for i in items {
+                match i {
+                    Item::Group {
+                        part: Part::Tint | Part::Page,
+                        ..
+                    } => {}
+                    Item::Group { items, .. } => walk(items, out),
+                    other => out.push(other.clone()),
+                }
+            }
+        }
+        let mut out = Vec::new();
+        for (_, items) in self.open.borrow().iter() {
+            walk(items, &mut out);
+        }
+        out
     }
 
     fn push(&self, item: Item) -> Result<(), RenderError> {

@@ -128,6 +128,11 @@ pub(crate) fn draw(
         }
         let focus_row = !any_focus_series && row.role == Role::Focus;
         row_marks(canvas, theme, chart, row, (y, radius), vmap, focus_row)?;
+        for (j, (v, s)) in row.values.iter().zip(&chart.series).enumerate() {
+            if let Some(v) = v.filter(|v| v.is_finite() && s.role != Role::Hidden) {
+                canvas.anchor(i, Some(j), (vmap(v), y));
+            }
+        }
     }
 
     // Series names above the top row, over each series' first dot.

@@ -75,6 +75,7 @@ fn frame(headline: &str, chart: Chart) -> FramePlan {
         templates: Default::default(),
         notices: Vec::new(),
         claim_notes: Vec::new(),
+        mark_notes: Vec::new(),
         chart,
     }
 }

@@ -29,6 +29,7 @@ pub mod layout;
 mod line;
 mod line_layout;
 pub mod lttb;
+mod mark_notes;
 mod moments;
 mod panels;
 mod parts;
@@ -148,7 +149,7 @@ fn lay_out(
                 plugin_description = plugin::draw(&canvas, theme, chart, region, plugins)?;
             }
         }
-        Ok(())
+        mark_notes::draw(&canvas, theme, &frame.mark_notes, region)
     })?;
     // A plugin's own description of its panel says more than the planner's
     // generic one.

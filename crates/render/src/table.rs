@@ -109,7 +109,7 @@ pub(crate) fn draw(
     let (drawn, more) = rows_to_draw(&lit, fit);
     let fill = faint_fill(theme);
     let wash = mix(theme.page, theme.accent, 0.12);
-    for (i, row) in drawn.iter().map(|&(slot, r)| (slot, &chart.rows[r])) {
+    for (i, r, row) in drawn.iter().map(|&(slot, r)| (slot, r, &chart.rows[r])) {
         if row.role == Role::Hidden {
             continue;
         }
@@ -137,6 +137,14 @@ pub(crate) fn draw(
             let focus = row.role == Role::Focus || row.focus_cell == Some(c);
             let text = metrics::ellipsize(&cell, theme.label_size, true, width);
             let (x, align) = anchor(c);
+            let w = text_width(&text, theme.label_size, focus);
+            let mid = match align {
+                Align::Start => x + w / 2.0,
+                Align::End => x - w / 2.0,
+                _ => x,
+            };
+            let centre = (mid, top + pad + line_height(theme.label_size) / 2.0);
+            canvas.anchor(r, Some(c), centre);
             canvas.text(&Label {
                 text: &text,
                 x,

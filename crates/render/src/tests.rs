@@ -87,6 +87,7 @@ fn frame(
         templates: Default::default(),
         notices: Vec::new(),
         claim_notes: Vec::new(),
+        mark_notes: Vec::new(),
         chart,
     }
 }

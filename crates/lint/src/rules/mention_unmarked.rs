@@ -143,6 +143,32 @@ fn month_marked(chart: &Chart, m: f64) -> bool {
     })
 }
 
+/// The names of the marks the frame's callouts point at (bars, categories,
+/// parts, rows, series, points).
+fn noted(frame: &FramePlan) -> Vec<&str> {
+    let mut out = Vec::new();
+    for n in &frame.mark_notes {
+        let (item, part) = match &frame.chart {
+            Chart::Bars(b) => (b.bars.get(n.item).map(|b| b.label.as_str()), None),
+            Chart::Parts(p) => (
+                p.categories.get(n.item).map(|c| c.label.as_str()),
+                n.part.and_then(|j| p.parts.get(j)).map(|s| s.name.as_str()),
+            ),
+            Chart::Dots(d) => (
+                d.rows.get(n.item).map(|r| r.label.as_str()),
+                n.part
+                    .and_then(|j| d.series.get(j))
+                    .map(|s| s.name.as_str()),
+            ),
+            Chart::Scatter(s) => (s.points.get(n.item).map(|p| p.label.as_str()), None),
+            _ => (None, None),
+        };
+        out.extend(item);
+        out.extend(part);
+    }
+    out
+}
+
 /// The spotlight that would mark `name` beside what is in focus already.
 fn spotlight_with(frame: &FramePlan, name: &str) -> String {
     let list: Vec<String> = (focused(frame).into_iter())
@@ -159,6 +185,7 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
             f.takeaway.as_deref().zip(a.takeaway.as_ref()),
         ];
         let things = named_things(&f.chart);
+        let noted = noted(f);
         let months_axis = matches!(&f.chart, Chart::Line(l) if l.x.scale == ScaleKind::Months);
         for (text, span) in texts.into_iter().flatten() {
             let mut found: Vec<(String, String)> = Vec::new();
@@ -169,7 +196,7 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
                     kind.iter().filter(|(n, _)| names(text, n)).collect();
                 if kind.len() > 1 && named.len() * 2 < kind.len() {
                     for (name, role) in named {
-                        if *role != Role::Focus {
+                        if *role != Role::Focus && !noted.contains(name) {
                             found.push((format!("\"{name}\""), spotlight_with(f, name)));
                         }
                     }
@@ -190,7 +217,7 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
                     span: span.clone(),
                     label: format!("names {what}"),
                     message: format!("the text names {what}, but the chart does not mark it"),
-                    fix: format!("mark it: `{fix}`"),
+                    fix: format!("mark it: `{fix}` (or a `callout` on it)"),
                 });
             }
         }

@@ -13,7 +13,7 @@ use crate::describe::describe;
 use crate::forms;
 use crate::frames::texts::FrameTexts;
 use crate::frames::unfold::{self, Budget};
-use crate::frames::{annotations, axes, moments, positions, roles, split, targets};
+use crate::frames::{annotations, axes, mark_notes, moments, positions, roles, split, targets};
 use crate::header::Header;
 use crate::labels::slug;
 use crate::model::*;
@@ -303,7 +303,13 @@ fn build_up(
         }
         FrameStmt::Callout { at, on, text, span } => {
             positions::names(scope, at, &mut said.texts.depends);
-            annotations::callout(cx, scope, st, at, on, text, span)?
+            if matches!(st.chart, Chart::Line(_)) {
+                annotations::callout(cx, scope, st, at, on, text, span)?
+            } else {
+                let r = scope.text(cx, text);
+                said.texts.depends.extend(r.depends.iter().cloned());
+                mark_notes::callout(cx, scope, st, (at, on.as_ref()), r.text, span)?
+            }
         }
         FrameStmt::Band {
             from,
@@ -407,6 +413,7 @@ fn finish(
             templates: BTreeMap::new(),
             notices: Vec::new(),
             claim_notes: Vec::new(),
+            mark_notes: mark_notes::kept(&chart, &st.mark_notes),
             chart,
         });
     }

@@ -6,6 +6,7 @@ mod annotations;
 mod axes;
 mod footnote;
 mod frame;
+mod mark_notes;
 mod moments;
 mod positions;
 mod roles;
