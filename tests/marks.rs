@@ -583,3 +583,21 @@ fn callouts_that_name_no_mark_are_located_errors() {
         insta::assert_snapshot!(format!("marks_error_callout_{tag}"), err);
     }
 }
+
+// `--claims-footnote` prints the footnote on every frame whose texts rest
+// on a claim, without editing the story.
+#[test]
+fn the_claims_footnote_option_covers_every_frame() {
+    let r = crescendo(&marks_dir(), &["plan", "claims.cresc", "--claims-footnote"]);
+    assert!(r.status.success(), "{}", String::from_utf8_lossy(&r.stderr));
+    let plan: DeckPlan = serde_json::from_slice(&r.stdout).unwrap();
+    assert_eq!(plan.frames[0].claim_notes.len(), 3);
+    // frame 2 quotes only `lead` (North's total over South's): the claims
+    // about `lead` and about `south` rest on it, the one about the rise not
+    let notes = &plan.frames[1].claim_notes;
+    assert_eq!(notes.len(), 2, "{notes:?}");
+    assert!(notes[0].contains("lead > 1.3") && notes[1].contains("south > 1000"));
+    let r = crescendo(&marks_dir(), &["plan", "claims.cresc"]);
+    let plan: DeckPlan = serde_json::from_slice(&r.stdout).unwrap();
+    assert!(plan.frames[1].claim_notes.is_empty(), "off by default");
+}

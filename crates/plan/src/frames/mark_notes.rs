@@ -111,10 +111,12 @@ pub(crate) fn callout(
                 name.span.clone(),
                 format!("not a {item_word} here"),
             )
-            .help(match crescendo_diag::closest(&name.value, items.iter().copied()) {
-                Some(c) => format!("did you mean \"{c}\"?"),
-                None => format!("this chart has {known}"),
-            });
+            .help(
+                match crescendo_diag::closest(&name.value, items.iter().copied()) {
+                    Some(c) => format!("did you mean \"{c}\"?"),
+                    None => format!("this chart has {known}"),
+                },
+            );
         return Err(cx.report(d));
     };
     let part = match on {

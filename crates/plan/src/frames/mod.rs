@@ -68,7 +68,7 @@ pub(crate) fn plan_frames(
                         .push(format!("Draft: the data does not support \"{sentence}\""));
                 }
             }
-            if made.footnote {
+            if made.footnote || cx.options.claims_footnote {
                 fp.claim_notes = footnote::lines(claims, &made.texts.depends);
             }
             fp.quoted = made.texts.quoted.clone();
