@@ -21,7 +21,7 @@ const CALLOUT_WIDTH: f64 = 260.0;
 /// Most lines a callout may take.
 const CALLOUT_LINES: usize = 3;
 
-pub(crate) fn xmap(chart: &LineChart, l: &LineLayout) -> impl Fn(f64) -> f64 {
+fn xmap(chart: &LineChart, l: &LineLayout) -> impl Fn(f64) -> f64 {
     let d = chart.x.domain;
     let (a, b) = (l.plot_left, l.plot_right);
     move |x| map(x, d, a, b)
@@ -34,7 +34,7 @@ fn ymap(chart: &LineChart, l: &LineLayout) -> impl Fn(f64) -> f64 {
 }
 
 /// Where labels may go: the plot, with half a line of room at the top.
-pub(crate) fn bounds(theme: &Theme, l: &LineLayout) -> Rect {
+fn bounds(theme: &Theme, l: &LineLayout) -> Rect {
     Rect {
         x0: l.plot_left,
         y0: l.plot_top - line_height(theme.label_size) / 2.0,

@@ -4,7 +4,7 @@
 //! the line, on whichever side is clear of the data, a row lower when both
 //! are taken.
 
-use crate::annotate::{bounds, xmap};
+use crate::layout::map;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, faint_fill, Obstacles, Rect};
 use crate::line_layout::LineLayout;
@@ -21,6 +21,23 @@ const DASH: (f64, f64) = (6.0, 4.0);
 const GAP: f64 = 6.0;
 /// Rows down from the top of the plot a label may move to.
 const ROWS: usize = 8;
+
+/// Data to px along the x axis.
+fn xmap(chart: &LineChart, l: &LineLayout) -> impl Fn(f64) -> f64 {
+    let (d, a, b) = (chart.x.domain, l.plot_left, l.plot_right);
+    move |x| map(x, d, a, b)
+}
+
+/// Where labels may go: the plot, with half a line of room at the top (as
+/// for the other notes of a line chart).
+fn bounds(theme: &Theme, l: &LineLayout) -> Rect {
+    Rect {
+        x0: l.plot_left,
+        y0: l.plot_top - line_height(theme.label_size) / 2.0,
+        x1: l.plot_right,
+        y1: l.plot_bottom - 2.0,
+    }
+}
 
 /// The moments of a chart as (from, to, text), finite only.
 fn moments(chart: &LineChart) -> impl Iterator<Item = (f64, Option<f64>, &str)> {
