@@ -4,9 +4,9 @@
 //! the line, on whichever side is clear of the data, a row lower when both
 //! are taken.
 
-use crate::layout::map;
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, faint_fill, Obstacles, Rect};
+use crate::layout::map;
 use crate::line_layout::LineLayout;
 use crate::metrics::{self, line_height, text_width};
 use crate::place::{self, Pick};
