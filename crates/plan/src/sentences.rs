@@ -33,6 +33,8 @@ pub(crate) struct Sentences {
     pub separate_scales: &'static str,
     pub plugin: &'static str,
     pub takeaway: &'static str,
+    /// A `moment` on a line chart: its label and its time.
+    pub marked: &'static str,
 }
 
 const EN: Sentences = Sentences {
@@ -62,6 +64,7 @@ const EN: Sentences = Sentences {
     separate_scales: "separate scales",
     plugin: "Chart drawn by the plugin {1} {2} (form {3}).",
     takeaway: " Takeaway: {1}",
+    marked: " Marked: {1} ({2}).",
 };
 
 const DE: Sentences = Sentences {
@@ -92,6 +95,7 @@ const DE: Sentences = Sentences {
     separate_scales: "getrennten Skalen",
     plugin: "Diagramm des Plugins {1} {2} (Form {3}).",
     takeaway: " Kernaussage: {1}",
+    marked: " Markiert: {1} ({2}).",
 };
 
 const FR: Sentences = Sentences {
@@ -120,6 +124,7 @@ const FR: Sentences = Sentences {
     separate_scales: "des échelles séparées",
     plugin: "Graphique dessiné par le plugin {1} {2} (forme {3}).",
     takeaway: " À retenir\u{a0}: {1}",
+    marked: " Repère\u{a0}: {1} ({2}).",
 };
 
 const ES: Sentences = Sentences {
@@ -150,6 +155,7 @@ const ES: Sentences = Sentences {
     separate_scales: "escalas separadas",
     plugin: "Gráfico dibujado por el plugin {1} {2} (forma {3}).",
     takeaway: " Conclusión: {1}",
+    marked: " Marcado: {1} ({2}).",
 };
 
 /// The patterns of a language (`de`), `None` when crescendo ships none.
@@ -249,6 +255,7 @@ mod tests {
                 s.separate_scales,
                 s.plugin,
                 s.takeaway,
+                s.marked,
             ]
         };
         for lang in ["de", "fr", "es"] {
