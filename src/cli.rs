@@ -58,6 +58,11 @@ pub struct DataArgs {
     /// runs with your rights).
     #[arg(long)]
     pub no_plugins: bool,
+    /// Print under every frame the claims its texts rest on, with their
+    /// figures and whether they hold, as `footnote claims` does for one
+    /// frame (a copy of the deck for review).
+    #[arg(long)]
+    pub claims_footnote: bool,
     /// Check plugins (path, file, pin) without loading them (`plan` and
     /// `plugins` unless asked to load): no plugin code runs.
     #[arg(skip)]

@@ -129,6 +129,12 @@ fn annotation(x: &Axis, a: &Annotation) -> String {
             position(x, *to)
         ),
         Annotation::Reference { value, text } => format!("reference “{text}” at {}", num(*value)),
+        Annotation::Moment { from, to, text } => format!(
+            "moment “{text}” at {}{}",
+            position(x, *from),
+            to.map(|t| format!(" to {}", position(x, t)))
+                .unwrap_or_default()
+        ),
     }
 }
 
@@ -137,6 +143,13 @@ impl Content {
     pub fn of(frame: &FramePlan) -> Content {
         let mut c = Content::default();
         c.add(&frame.chart, "");
+        for n in &frame.mark_notes {
+            let part = n.part.map(|p| format!(" part {p}")).unwrap_or_default();
+            (c.annotations).push(format!("callout “{}” on mark {}{part}", n.text, n.item));
+        }
+        for cite in &frame.cites {
+            (c.annotations).push(format!("cite {} “{}”", cite.value, cite.figure));
+        }
         c
     }
 

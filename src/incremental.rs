@@ -296,6 +296,8 @@ mod tests {
             templates: Default::default(),
             notices: Vec::new(),
             cites: Vec::new(),
+            claim_notes: Vec::new(),
+            mark_notes: Vec::new(),
             chart: Chart::Figures(FigureChart {
                 figures: Vec::new(),
             }),

@@ -50,6 +50,7 @@ pub fn options(data: &DataArgs) -> Result<Options, Diagnostic> {
     Ok(Options {
         data: data.data.iter().cloned().collect::<BTreeMap<_, _>>(),
         no_plugins: data.no_plugins,
+        claims_footnote: data.claims_footnote,
         inspect_plugins: data.inspect_plugins,
         database: crescendo_plan::DbOptions {
             connections: data

@@ -14,6 +14,7 @@ pub fn run(story: &Path, allow_paths: Vec<PathBuf>, load_plugins: bool, color: b
     let none = DataArgs {
         data: Vec::new(),
         no_plugins: false,
+        claims_footnote: false,
         inspect_plugins: !load_plugins,
         explain_plans: false,
         connections: Vec::new(),

@@ -424,7 +424,8 @@ fn frames_carry_a_text_alternative_generated_from_the_data() {
         f.description,
         "Line chart of Visits per month from Jan 2021 to Dec 2024, one line per pool: \
          Alder Park, Westbrook, Millrace, Harrow Lane. Highlighted: Westbrook rose from 3,510 \
-         in Jan 2021 to 7,835 in Dec 2024, with a high of 12,589 in Aug 2024. Takeaway: \
+         in Jan 2021 to 7,835 in Dec 2024, with a high of 12,589 in Aug 2024. Marked: Closed \
+         for repairs (Feb 2022). Marked: Evening swims begin (Apr 2023). Takeaway: \
          Monthly visits at Westbrook are now well above any other pool."
     );
     let svg = crescendo_render::render_frame(&plan, f).unwrap();

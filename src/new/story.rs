@@ -387,6 +387,14 @@ fn periods(
         &[
             format!("bars by_period: category {category}, value {measure}, group {period}"),
             format!("y title {}", quote(&capital(&m))),
+            // the headline names the leader: the chart marks its bar (and
+            // keeps the mark through the frames that build on this one)
+            format!(
+                "callout {} on {} {}",
+                quote(&leader),
+                quote(&focus),
+                quote(&format!("Highest in {focus}"))
+            ),
             "takeaway \"TODO: what the bars show\"".into(),
         ],
     );

@@ -97,10 +97,32 @@ pub struct FramePlan {
     /// Warnings drawn on the frame (a draft build with a failed claim).
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub notices: Vec<String>,
+    /// Callouts on the marks of forms other than lines (bars, parts, dots,
+    /// scatter points, table cells), in story order.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub mark_notes: Vec<MarkNote>,
+    /// `footnote claims`: one line per claim the frame's texts rest on,
+    /// with its operands' figures and whether it holds, as drawn in small
+    /// type above the source note. Empty unless asked for.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub claim_notes: Vec<String>,
     pub chart: Chart,
     /// `cite VALUE`: values whose evidence is drawn on the chart.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub cites: Vec<crate::Cite>,
+}
+
+/// A callout on one mark of a chart that is not a line chart.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct MarkNote {
+    /// The bar, category, dot row, scatter point or table row, by its index
+    /// in the chart's display order.
+    pub item: usize,
+    /// The part (stacked or grouped bars), series (dots) or column (table)
+    /// within it; `None` for the whole bar, stack or row.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub part: Option<usize>,
+    pub text: String,
 }
 
 /// What a frame draws.
@@ -216,6 +238,15 @@ pub enum Annotation {
     },
     /// A line across the plot at a value of the measure, with its label.
     Reference { value: f64, text: String },
+    /// A time the story names (`moment`): a dashed line across the plot at
+    /// `from`, or a light band from `from` to `to` for a period, with a
+    /// short label placed clear of the data.
+    Moment {
+        from: f64,
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        to: Option<f64>,
+        text: String,
+    },
 }
 
 /// Stacked parts share one bar; grouped parts stand side by side.

@@ -3,6 +3,8 @@
 
 use std::ops::Range;
 
+pub use crate::position::Position;
+
 /// A byte range in the story file.
 pub type Span = Range<usize>;
 
@@ -587,7 +589,14 @@ pub enum FrameStmt {
         span: Span,
     },
     Reference {
-        value: f64,
+        value: Position,
+        text: Text,
+        span: Span,
+    },
+    /// `moment AT [to UNTIL] "text"`: a time or period marked on a time axis.
+    Moment {
+        at: Position,
+        until: Option<Position>,
         text: Text,
         span: Span,
     },
@@ -603,6 +612,11 @@ pub enum FrameStmt {
     /// `gridlines` (`on: true`) or `gridlines off` (`on: false`).
     Gridlines {
         on: bool,
+        span: Span,
+    },
+    /// `footnote claims` (`claims: true`) or `footnote off`.
+    Footnote {
+        claims: bool,
         span: Span,
     },
     Draw(DrawStmt),
@@ -629,24 +643,10 @@ impl FrameStmt {
             | FrameStmt::Band { span, .. }
             | FrameStmt::Reference { span, .. }
             | FrameStmt::Cite { span, .. }
+            | FrameStmt::Moment { span, .. }
             | FrameStmt::LabelEnds { span }
-            | FrameStmt::Gridlines { span, .. } => span.clone(),
-        }
-    }
-}
-
-/// A position along x as written: a quoted time or a number.
-#[derive(Clone, Debug, PartialEq)]
-pub enum Position {
-    Text(Str),
-    Number { value: f64, span: Span },
-}
-
-impl Position {
-    pub fn span(&self) -> Span {
-        match self {
-            Position::Text(s) => s.span.clone(),
-            Position::Number { span, .. } => span.clone(),
+            | FrameStmt::Gridlines { span, .. }
+            | FrameStmt::Footnote { span, .. } => span.clone(),
         }
     }
 }

@@ -7,6 +7,7 @@ pub mod ast;
 mod fiscal_ast;
 pub mod format;
 pub mod parser;
+mod position;
 pub mod source;
 pub mod visit;
 

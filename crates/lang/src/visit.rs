@@ -182,12 +182,18 @@ pub fn walk_frame_stmt<'a, V: Visit<'a> + ?Sized>(v: &mut V, stmt: &'a FrameStmt
         FrameStmt::Draw(d) => v.visit_draw(d),
         FrameStmt::AxisTitle { text, .. }
         | FrameStmt::Takeaway { text, .. }
-        | FrameStmt::Notes { text, .. }
-        | FrameStmt::Reference { text, .. } => v.visit_text(text),
+        | FrameStmt::Notes { text, .. } => v.visit_text(text),
+        FrameStmt::Reference { value, text, .. } => {
+            walk_position(v, value);
+            v.visit_text(text);
+        }
         FrameStmt::Show { targets, .. }
         | FrameStmt::Hide { targets, .. }
         | FrameStmt::Spotlight { targets, .. } => walk_targets(v, targets),
-        FrameStmt::Range { .. } | FrameStmt::LabelEnds { .. } | FrameStmt::Gridlines { .. } => {}
+        FrameStmt::Range { .. }
+        | FrameStmt::LabelEnds { .. }
+        | FrameStmt::Gridlines { .. }
+        | FrameStmt::Footnote { .. } => {}
         FrameStmt::Allow(a) => walk_allow(v, a),
         FrameStmt::Figure { text, caption, .. } => {
             v.visit_text(text);
@@ -209,6 +215,15 @@ pub fn walk_frame_stmt<'a, V: Visit<'a> + ?Sized>(v: &mut V, stmt: &'a FrameStmt
             }
             v.visit_text(text);
         }
+        FrameStmt::Moment {
+            at, until, text, ..
+        } => {
+            walk_position(v, at);
+            if let Some(u) = until {
+                walk_position(v, u);
+            }
+            v.visit_text(text);
+        }
         FrameStmt::Band { from, to, text, .. } => {
             walk_position(v, from);
             walk_position(v, to);
@@ -220,8 +235,10 @@ pub fn walk_frame_stmt<'a, V: Visit<'a> + ?Sized>(v: &mut V, stmt: &'a FrameStmt
 }
 
 fn walk_position<'a, V: Visit<'a> + ?Sized>(v: &mut V, p: &'a Position) {
-    if let Position::Text(s) = p {
-        v.visit_str(s);
+    match p {
+        Position::Text(s) => v.visit_str(s),
+        Position::Value(e) => v.visit_expr(e),
+        Position::Number { .. } => {}
     }
 }
 

@@ -14,7 +14,7 @@ use crate::model::*;
 pub(crate) fn describe(chart: &Chart, key: &str, takeaway: Option<&str>) -> String {
     let t = sentences();
     let mut out = match chart {
-        Chart::Line(l) => line(l, key),
+        Chart::Line(l) => line(l, key) + &moments(l),
         Chart::Bars(b) => bars(b, key),
         Chart::Parts(p) => parts(p, key),
         Chart::Dots(d) => dots(d),
@@ -65,6 +65,22 @@ pub(crate) fn tick_label(axis: &Axis, v: f64) -> String {
             .map_or_else(String::new, |t| t.label.clone()),
         ScaleKind::Linear => fig(v),
     }
+}
+
+/// The moments of a line chart, each as a sentence: its label and time.
+fn moments(l: &LineChart) -> String {
+    let t = sentences();
+    let mut out = String::new();
+    for a in &l.annotations {
+        if let Annotation::Moment { from, to, text } = a {
+            let when = match to {
+                Some(to) => format!("{} – {}", tick_label(&l.x, *from), tick_label(&l.x, *to)),
+                None => tick_label(&l.x, *from),
+            };
+            out.push_str(&fill(t.marked, &[text, &when]));
+        }
+    }
+    out
 }
 
 fn line(l: &LineChart, key: &str) -> String {

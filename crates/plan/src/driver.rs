@@ -128,7 +128,11 @@ fn run(cx: &mut Ctx, story: &ast::StoryAst) -> Planned {
     anchors.conclusion = h.conclusion.as_ref().map(|t| t.span.clone());
     anchors.source = h.source.as_ref().map(|t| t.span.clone());
     anchors.byline = h.byline.as_ref().map(|t| t.span.clone());
-    let with = (texts.source.as_ref(), failed.as_slice());
+    let with = (
+        texts.source.as_ref(),
+        failed.as_slice(),
+        claim_plans.as_slice(),
+    );
     let frames = frames::plan_frames(cx, &scope, &h, &frame_items, with, &mut anchors);
     let style = h.style.as_ref().and_then(|s| house_style(cx, s));
     let plan = DeckPlan {

@@ -12,6 +12,9 @@ pub struct Options {
     pub data: BTreeMap<String, PathBuf>,
     /// `--no-plugins`: refuse every `use plugin`.
     pub no_plugins: bool,
+    /// `--claims-footnote`: every frame prints the claims its texts rest on
+    /// (as if each said `footnote claims`).
+    pub claims_footnote: bool,
     /// Check each plugin's path, file and pin, but load none, so no plugin
     /// code runs (`plan` and `plugins` without `--load-plugins`). A frame a
     /// plugin draws is planned with the form the story names (if any), the

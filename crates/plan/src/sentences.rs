@@ -41,6 +41,8 @@ pub(crate) struct Sentences {
     pub cited_change: &'static str,
     /// `cite`: a growth or fit drawn as a path.
     pub cited_path: &'static str,
+    /// A `moment` on a line chart: its label and its time.
+    pub marked: &'static str,
 }
 
 const EN: Sentences = Sentences {
@@ -74,6 +76,7 @@ const EN: Sentences = Sentences {
     cited_pair: " Marked: {1} between {2} and {3}.",
     cited_change: " Marked: {1} from {2} to {3}.",
     cited_path: " Marked: {1}, as a thin path over the data.",
+    marked: " Marked: {1} ({2}).",
 };
 
 const DE: Sentences = Sentences {
@@ -108,6 +111,7 @@ const DE: Sentences = Sentences {
     cited_pair: " Markiert: {1} zwischen {2} und {3}.",
     cited_change: " Markiert: {1} von {2} bis {3}.",
     cited_path: " Markiert: {1}, als dünne Linie über den Daten.",
+    marked: " Markiert: {1} ({2}).",
 };
 
 const FR: Sentences = Sentences {
@@ -140,6 +144,7 @@ const FR: Sentences = Sentences {
     cited_pair: " Marqué\u{a0}: {1} entre {2} et {3}.",
     cited_change: " Marqué\u{a0}: {1} de {2} à {3}.",
     cited_path: " Marqué\u{a0}: {1}, en tracé fin sur les données.",
+    marked: " Repère\u{a0}: {1} ({2}).",
 };
 
 const ES: Sentences = Sentences {
@@ -174,6 +179,7 @@ const ES: Sentences = Sentences {
     cited_pair: " Marcado: {1} entre {2} y {3}.",
     cited_change: " Marcado: {1} de {2} a {3}.",
     cited_path: " Marcado: {1}, como trazo fino sobre los datos.",
+    marked: " Marcado: {1} ({2}).",
 };
 
 /// The patterns of a language (`de`), `None` when crescendo ships none.
@@ -273,6 +279,7 @@ mod tests {
                 s.separate_scales,
                 s.plugin,
                 s.takeaway,
+                s.marked,
             ]
         };
         for lang in ["de", "fr", "es"] {

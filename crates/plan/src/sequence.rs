@@ -33,6 +33,9 @@ pub(crate) struct SeqState {
     /// `cite`d values, each with whether its figure may still follow how
     /// this frame's texts quote it.
     pub(crate) cites: Vec<(crescendo_frame::Cite, bool)>,
+    /// Callouts on marks of forms other than lines (kept through the
+    /// sequence, like a line chart's annotations).
+    pub(crate) mark_notes: Vec<crate::model::MarkNote>,
 }
 
 impl SeqState {
@@ -53,6 +56,7 @@ impl SeqState {
             anchors: FrameAnchors::default(),
             chart_stmt: None,
             cites: Vec::new(),
+            mark_notes: Vec::new(),
         }
     }
 }

@@ -50,6 +50,7 @@ pub(crate) fn draw_under(
     chart: &LineChart,
     l: &LineLayout,
 ) -> Result<(), RenderError> {
+    crate::moments::draw_under(canvas, theme, chart, l)?;
     let (xm, ym) = (xmap(chart, l), ymap(chart, l));
     for a in &chart.annotations {
         match a {
@@ -93,6 +94,7 @@ pub(crate) fn draw_over(
     l: &LineLayout,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
+    crate::moments::draw_over(canvas, theme, chart, l, obstacles)?;
     band_names(canvas, theme, chart, l, obstacles)?;
     reference_names(canvas, theme, chart, l, obstacles)?;
     end_values(canvas, theme, chart, l, obstacles)?;

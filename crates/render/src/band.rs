@@ -136,6 +136,7 @@ pub(crate) fn bar(
         band.point(across.0, zero),
         band.point(across.1, end),
     );
+    canvas.point(i, None, band.point(centre, end));
     if let Some(text) = focus_label {
         let lh = line_height(theme.label_size);
         let (x, top, align) = band.end_label(end, centre, lh, positive);
@@ -235,7 +236,11 @@ pub(crate) fn parts(
         let (f, t) = across(j);
         obstacles.add_mark(band.point(f, vmap(*a)), band.point(t, vmap(*b)));
         canvas.anchor((c, j), band.point(f, vmap(*a)), band.point(t, vmap(*b)));
+        let mid = band.point((f + t) / 2.0, (vmap(*a) + vmap(*b)) / 2.0);
+        canvas.point(c, Some(j), mid);
     }
+    let far = extents.iter().flatten().map(|e| e.1).fold(0.0, f64::max);
+    canvas.point(c, None, band.point(band.centre(c), vmap(far)));
     let Some((total, role)) = total else {
         return Ok(());
     };

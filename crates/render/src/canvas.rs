@@ -40,6 +40,8 @@ impl Label<'_> {
         )
     }
 }
+/// A data mark by its item index and, where the form has them, its part.
+type MarkKey = (usize, Option<usize>);
 
 /// Records what layout draws, in order, into a display list. Groups
 /// ([`Canvas::group`]) nest.
@@ -49,6 +51,9 @@ pub struct Canvas {
     open: RefCell<Vec<(Option<Part>, Vec<Item>)>>,
     /// Where the plan's marks were drawn (for notes bound to values).
     anchors: RefCell<Vec<Anchor>>,
+    /// The point a callout on each data mark points at (its item and part
+    /// indexes, see [`Canvas::point`]).
+    points: RefCell<Vec<(MarkKey, (f64, f64))>>,
 }
 
 /// Where a mark of the plan was drawn: its box and, for a pie slice, its
@@ -67,7 +72,22 @@ impl Canvas {
         Self {
             open: RefCell::new(vec![(None, Vec::new())]),
             anchors: RefCell::new(Vec::new()),
+            points: RefCell::default(),
         }
+    }
+
+    /// Records the point a note on mark `item` (bar, category, row, point
+    /// or table row), `part` (part, series or column) points at. Draws
+    /// nothing.
+    pub(crate) fn point(&self, item: usize, part: Option<usize>, at: (f64, f64)) {
+        self.points.borrow_mut().push(((item, part), at));
+    }
+
+    /// The point recorded for a mark, the first if several.
+    pub(crate) fn point_of(&self, item: usize, part: Option<usize>) -> Option<(f64, f64)> {
+        (self.points.borrow().iter())
+            .find(|(k, _)| *k == (item, part))
+            .map(|(_, at)| *at)
     }
 
     /// Records where mark (`item`, `part`) of the plan was drawn, between

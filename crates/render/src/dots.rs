@@ -121,6 +121,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &DotChart, region: Reg
             if let (Some(v), true) = (v.filter(|v| v.is_finite()), s.role != Role::Hidden) {
                 let (x, r) = (vmap(v), radius.max(4.0));
                 canvas.anchor((i, j), (x - r, y - r), (x + r, y + r));
+                canvas.point(i, Some(j), (x, y));
             }
         }
     }

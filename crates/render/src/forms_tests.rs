@@ -75,6 +75,8 @@ fn frame(headline: &str, chart: Chart) -> FramePlan {
         templates: Default::default(),
         notices: Vec::new(),
         cites: Vec::new(),
+        claim_notes: Vec::new(),
+        mark_notes: Vec::new(),
         chart,
     }
 }

@@ -397,9 +397,14 @@ pub fn draw_page(
         .map(|f| source_lines(deck, f, theme).0.len())
         .max()
         .unwrap_or(0);
+    // The claims footnote's band sits above the source note's.
+    let foot_lines = crate::footnote::band(theme, &frames);
+    let pitch = theme.source_size * SOURCE_PITCH;
+    let foot_top = source_band_top(theme, band_lines + foot_lines);
+    crate::footnote::draw(canvas, theme, frame, foot_top, pitch)?;
     let (lines, needed) = source_lines(deck, frame, theme);
     if !lines.is_empty() {
-        let top = source_band_top(theme, band_lines);
+        let top = foot_top + foot_lines as f64 * pitch;
         canvas.group(Part::Source { needed }, || {
             for (i, line) in lines.iter().enumerate() {
                 canvas.text(&Label {
@@ -422,9 +427,9 @@ pub fn draw_page(
         .fold(theme.margin_top, f64::max);
     let any_source = frames
         .iter()
-        .any(|f| source_of(deck, f).is_some() || !f.notices.is_empty());
+        .any(|f| source_of(deck, f).is_some() || !f.notices.is_empty() || foot_lines > 0);
     let bottom = if any_source {
-        source_band_top(theme, band_lines.max(1)) - CHART_TO_SOURCE
+        source_band_top(theme, (band_lines + foot_lines).max(1)) - CHART_TO_SOURCE
     } else {
         HEIGHT as f64 - theme.margin_bottom
     };

@@ -25,6 +25,7 @@ mod deck_words;
 mod dots;
 mod figures;
 mod fit;
+mod footnote;
 mod html;
 pub mod inspect;
 mod kit;
@@ -32,6 +33,8 @@ pub mod layout;
 mod line;
 mod line_layout;
 pub mod lttb;
+mod mark_notes;
+mod moments;
 mod panels;
 mod part_names;
 mod part_slots;
@@ -155,6 +158,7 @@ fn lay_out(
                 plugin_description = plugin::draw(&canvas, theme, chart, region, plugins)?;
             }
         }
+        mark_notes::draw(&canvas, theme, &frame.mark_notes, region)?;
         cite::draw(&canvas, theme, frame, region)?;
         Ok(())
     })?;

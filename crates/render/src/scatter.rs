@@ -98,6 +98,9 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
             };
             let c = (xmap(p.x), ymap(p.y));
             canvas.dot(c, r, color)?;
+            if let Some(k) = chart.points.iter().position(|q| std::ptr::eq(q, *p)) {
+                canvas.point(k, None, c);
+            }
             let r = f64::from(r);
             obstacles.segments.push(((c.0 - r, c.1), (c.0 + r, c.1)));
             obstacles.segments.push(((c.0, c.1 - r), (c.0, c.1 + r)));

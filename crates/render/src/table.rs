@@ -101,7 +101,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &TableChart, region: R
     let (drawn, more) = rows_to_draw(&lit, fit);
     let fill = faint_fill(theme);
     let wash = mix(theme.page, theme.accent, 0.12);
-    for (i, row) in drawn.iter().map(|&(slot, r)| (slot, &chart.rows[r])) {
+    for (i, r, row) in drawn.iter().map(|&(slot, r)| (slot, r, &chart.rows[r])) {
         if row.role == Role::Hidden {
             continue;
         }
@@ -129,6 +129,14 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &TableChart, region: R
             let focus = row.role == Role::Focus || row.focus_cell == Some(c);
             let text = fit::one(canvas, &cell, (theme.label_size, true), width)?;
             let (x, align) = anchor(c);
+            let w = text_width(&text, theme.label_size, focus);
+            let mid = match align {
+                Align::Start => x + w / 2.0,
+                Align::End => x - w / 2.0,
+                _ => x,
+            };
+            let centre = (mid, top + pad + line_height(theme.label_size) / 2.0);
+            canvas.point(r, Some(c), centre);
             canvas.text(&Label {
                 text: &text,
                 x,

@@ -87,6 +87,8 @@ fn frame(
         templates: Default::default(),
         notices: Vec::new(),
         cites: Vec::new(),
+        claim_notes: Vec::new(),
+        mark_notes: Vec::new(),
         chart,
     }
 }

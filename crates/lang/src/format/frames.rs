@@ -185,6 +185,26 @@ impl Printer<'_> {
                     self.strs(order);
                 }
             }
+            FrameStmt::Callout { .. }
+            | FrameStmt::Band { .. }
+            | FrameStmt::Reference { .. }
+            | FrameStmt::Moment { .. }
+            | FrameStmt::Cite { .. } => self.annotation(st),
+            FrameStmt::LabelEnds { .. } => self.s("label ends"),
+            FrameStmt::Footnote { claims, .. } => self.s(if *claims {
+                "footnote claims"
+            } else {
+                "footnote off"
+            }),
+            FrameStmt::Gridlines { on, .. } => {
+                self.s(if *on { "gridlines" } else { "gridlines off" })
+            }
+        }
+    }
+
+    /// The notes drawn on a chart: `callout`, `band`, `reference`, `moment`.
+    fn annotation(&mut self, st: &FrameStmt) {
+        match st {
             FrameStmt::Callout { at, on, text, .. } => {
                 self.s("callout ");
                 self.position(at);
@@ -205,9 +225,21 @@ impl Printer<'_> {
                     self.raw(&t.span);
                 }
             }
-            FrameStmt::Reference { text, span, .. } => {
+            FrameStmt::Reference { value, text, .. } => {
                 self.s("reference ");
-                self.word(span, 1);
+                self.position(value);
+                self.s(" ");
+                self.raw(&text.span);
+            }
+            FrameStmt::Moment {
+                at, until, text, ..
+            } => {
+                self.s("moment ");
+                self.position(at);
+                if let Some(u) = until {
+                    self.s(" to ");
+                    self.position(u);
+                }
                 self.s(" ");
                 self.raw(&text.span);
             }
@@ -215,10 +247,7 @@ impl Printer<'_> {
                 self.s("cite ");
                 self.raw(&value.span);
             }
-            FrameStmt::LabelEnds { .. } => self.s("label ends"),
-            FrameStmt::Gridlines { on, .. } => {
-                self.s(if *on { "gridlines" } else { "gridlines off" })
-            }
+            _ => {}
         }
     }
 }

@@ -67,7 +67,7 @@ impl Conv<'_> {
                 span,
             },
             Rule::reference_stmt => FrameStmt::Reference {
-                value: self.signed_number(&part(1)?)?,
+                value: self.position(part(1)?)?,
                 text: self.text(part(2)?),
                 span,
             },
@@ -75,7 +75,12 @@ impl Conv<'_> {
                 value: self.ident(part(1)?),
                 span,
             },
+            Rule::moment_stmt => self.moment(inner, span)?,
             Rule::label_ends_stmt => FrameStmt::LabelEnds { span },
+            Rule::footnote_stmt => FrameStmt::Footnote {
+                claims: inner.iter().any(|p| p.as_rule() == Rule::kw_claims),
+                span,
+            },
             Rule::gridlines_stmt => FrameStmt::Gridlines {
                 on: !inner.iter().any(|p| p.as_rule() == Rule::kw_off),
                 span,
@@ -242,6 +247,26 @@ impl Conv<'_> {
         })
     }
 
+    /// `moment AT [to UNTIL] "text"`.
+    fn moment(&mut self, inner: Vec<Pair<Rule>>, span: Span) -> Res<FrameStmt> {
+        let mut positions = Vec::new();
+        let mut text = None;
+        for p in inner {
+            match p.as_rule() {
+                Rule::position => positions.push(self.position(p)?),
+                Rule::string => text = Some(self.text(p)),
+                _ => {}
+            }
+        }
+        let mut positions = positions.into_iter();
+        Ok(FrameStmt::Moment {
+            at: positions.next().ok_or_else(|| internal(&span))?,
+            until: positions.next(),
+            text: text.ok_or_else(|| internal(&span))?,
+            span,
+        })
+    }
+
     fn targets(&mut self, pair: Pair<Rule>) -> Targets {
         let span = self.span_of(&pair);
         let first = children(pair.clone()).next();
@@ -281,7 +306,14 @@ impl Conv<'_> {
         let p = children(pair).next().ok_or_else(|| internal(&span))?;
         match p.as_rule() {
             Rule::string => Ok(Position::Text(self.string(p))),
+            Rule::position_value => {
+                let e = children(p).next().ok_or_else(|| internal(&span))?;
+                Ok(Position::Value(self.expr(e)?))
+            }
             _ => {
+                // the number's own span: the position's may end in the
+                // blank space its lookahead skipped
+                let span = self.span_of(&p);
                 let value = finite(p.as_str()).ok_or_else(|| ConvertError {
                     span: span.clone(),
                     message: format!("`{}` is not a number", p.as_str()),

@@ -893,3 +893,56 @@ fn cite_names_one_value() {
     let (_, diags) = parse_str("view cite = d\n");
     assert!(diags.is_empty(), "{diags:?}");
 }
+
+#[test]
+fn positions_may_be_values_and_moments_and_footnotes_parse() {
+    let text = "frame \"a\" {\n  reference avg * 1.1 \"Target\"\n  reference -5 \"Floor\"\n  \
+                band opened to \"2024-06\"\n  moment \"2023-04\" \"Begins\"\n  \
+                moment start to 2024 \"Works\"\n  callout \"Harbour\" on \"E-book\" \"Note\"\n  \
+                footnote claims\n  footnote off\n}\n";
+    let (ast, diags) = parse_str(text);
+    assert!(diags.is_empty(), "{diags:?}");
+    let Item::Frame(f) = &ast.items[0] else {
+        panic!()
+    };
+    let FrameStmt::Reference { value, .. } = &f.stmts[0] else {
+        panic!("{:?}", f.stmts[0])
+    };
+    let Position::Value(e) = value else {
+        panic!("{value:?}")
+    };
+    assert_eq!(&text[e.span()], "avg * 1.1");
+    let FrameStmt::Reference { value, .. } = &f.stmts[1] else {
+        panic!()
+    };
+    // a written number keeps its own span (not the blank after it)
+    assert!(
+        matches!(value, Position::Number { value, span } if *value == -5.0 && &text[span.clone()] == "-5")
+    );
+    let FrameStmt::Band { from, to, .. } = &f.stmts[2] else {
+        panic!()
+    };
+    assert!(matches!(from, Position::Value(_)) && matches!(to, Position::Text(_)));
+    let FrameStmt::Moment {
+        at, until, text: t, ..
+    } = &f.stmts[3]
+    else {
+        panic!("{:?}", f.stmts[3])
+    };
+    assert!(matches!(at, Position::Text(s) if s.value == "2023-04") && until.is_none());
+    assert_eq!(t.value, "Begins");
+    let FrameStmt::Moment { at, until, .. } = &f.stmts[4] else {
+        panic!()
+    };
+    assert!(matches!(at, Position::Value(_)));
+    assert!(matches!(until, Some(Position::Number { value, .. }) if *value == 2024.0));
+    assert!(matches!(&f.stmts[5], FrameStmt::Callout { on: Some(on), .. } if on.value == "E-book"));
+    assert!(matches!(
+        f.stmts[6],
+        FrameStmt::Footnote { claims: true, .. }
+    ));
+    assert!(matches!(
+        f.stmts[7],
+        FrameStmt::Footnote { claims: false, .. }
+    ));
+}

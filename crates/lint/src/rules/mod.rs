@@ -21,6 +21,7 @@ mod line_too_short;
 mod lines_tangle;
 mod marks_faint;
 mod measure_unnamed;
+mod mention_unmarked;
 mod panels_own_scales;
 mod pie_crowded;
 mod shades_crowded;
@@ -74,6 +75,7 @@ pub static RULES: &[&Rule] = &[
     &frame_empty::RULE,
     &figure_echoes_headline::RULE,
     &cite_covers_data::RULE,
+    &mention_unmarked::RULE,
     &small_counts::RULE,
     &source_missing::RULE,
     &conclusion_missing::RULE,

@@ -5,12 +5,13 @@ use crescendo_data::{format, time};
 use crescendo_lang::ast::{Position, Span, Str, Text};
 
 use crate::context::{Ctx, Outcome};
+use crate::frames::positions;
 use crate::model::*;
 use crate::scope::Scope;
 use crate::sequence::SeqState;
 
 /// The line chart a statement annotates; reports any other chart.
-fn line_of<'s>(
+pub(super) fn line_of<'s>(
     cx: &mut Ctx,
     st: &'s mut SeqState,
     span: &Span,
@@ -38,7 +39,7 @@ fn x_axis_of(cx: &mut Ctx, st: &mut SeqState, span: &Span, what: &str) -> Outcom
 }
 
 /// Read a position along a line chart's x axis.
-fn x_position(cx: &mut Ctx, axis: &Axis, p: &Position) -> Outcome<f64> {
+pub(super) fn x_position(cx: &mut Ctx, axis: &Axis, p: &Position) -> Outcome<f64> {
     let found = match (axis.scale, p) {
         (ScaleKind::Months, Position::Text(s)) => time::parse_month(&s.value)
             .map(f64::from)
@@ -57,8 +58,9 @@ fn x_position(cx: &mut Ctx, axis: &Axis, p: &Position) -> Outcome<f64> {
             .map(|t| t.value)
             .ok_or_else(|| format!("\"{}\" is not a category of this chart", s.value)),
         (_, Position::Number { .. }) => {
-            Err("this axis runs over time: write the time in quotes".into())
+            Err("this axis runs over time, and this is a number: write the time in quotes, or name a value that is a time".into())
         }
+        (_, Position::Value(_)) => Err("this value was not computed".into()),
         (_, Position::Text(s)) => Err(format!(
             "this axis runs over numbers: write {} without quotes",
             s.value
@@ -79,6 +81,7 @@ pub(crate) fn callout(
 ) -> Outcome<()> {
     let resolved = scope.text(cx, text).text;
     let x_axis = x_axis_of(cx, st, span, "callout")?;
+    let at = &positions::literal(cx, scope, at)?;
     let x = x_position(cx, &x_axis, at)?;
     let series = callout_series(cx, st, on, span)?;
     let line = line_of(cx, st, span, "callout")?;
@@ -157,7 +160,14 @@ pub(crate) fn band(
     span: &Span,
 ) -> Outcome<()> {
     let x_axis = x_axis_of(cx, st, span, "band")?;
-    let (a, b) = (x_position(cx, &x_axis, from)?, x_position(cx, &x_axis, to)?);
+    let (from, to) = (
+        positions::literal(cx, scope, from)?,
+        positions::literal(cx, scope, to)?,
+    );
+    let (a, b) = (
+        x_position(cx, &x_axis, &from)?,
+        x_position(cx, &x_axis, &to)?,
+    );
     if a >= b {
         return Err(cx.error(
             "annotation",
@@ -182,11 +192,12 @@ pub(crate) fn reference(
     cx: &mut Ctx,
     scope: &Scope,
     st: &mut SeqState,
-    value: f64,
+    value: &Position,
     text: &Text,
     span: &Span,
 ) -> Outcome<()> {
     let label = scope.text(cx, text).text;
+    let value = positions::measure(cx, scope, value)?;
     let line = line_of(cx, st, span, "reference")?;
     let [lo, hi] = line.y.domain;
     if value < lo || value > hi {

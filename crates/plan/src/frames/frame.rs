@@ -13,7 +13,9 @@ use crate::describe::describe;
 use crate::forms;
 use crate::frames::texts::FrameTexts;
 use crate::frames::unfold::{self, Budget};
-use crate::frames::{annotations, axes, cite, roles, split, targets};
+use crate::frames::{
+    annotations, axes, cite, mark_notes, moments, positions, roles, split, targets,
+};
 use crate::header::Header;
 use crate::labels::slug;
 use crate::model::*;
@@ -39,11 +41,14 @@ pub(crate) struct Made {
     pub(crate) frames: Vec<FramePlan>,
     pub(crate) texts: FrameTexts,
     pub(crate) anchors: FrameAnchors,
+    /// `footnote claims`: print the claims the texts rest on.
+    pub(crate) footnote: bool,
 }
 
 /// What a frame's own statements said.
 #[derive(Default)]
 struct Said {
+    footnote: bool,
     takeaway: Option<String>,
     notes: Option<String>,
     unfold: Option<(Vec<Str>, Span)>,
@@ -303,20 +308,48 @@ fn build_up(
             st.anchors.split = Some(sp.span.clone());
         }
         FrameStmt::Callout { at, on, text, span } => {
-            annotations::callout(cx, scope, st, at, on, text, span)?
+            positions::names(scope, at, &mut said.texts.depends);
+            if matches!(st.chart, Chart::Line(_)) {
+                annotations::callout(cx, scope, st, at, on, text, span)?
+            } else {
+                let r = scope.text(cx, text);
+                said.texts.depends.extend(r.depends.iter().cloned());
+                mark_notes::callout(cx, scope, st, (at, on.as_ref()), r.text, span)?
+            }
         }
         FrameStmt::Band {
             from,
             to,
             text,
             span,
-        } => annotations::band(cx, scope, st, from, to, text, span)?,
+        } => {
+            positions::names(scope, from, &mut said.texts.depends);
+            positions::names(scope, to, &mut said.texts.depends);
+            annotations::band(cx, scope, st, from, to, text, span)?
+        }
         FrameStmt::Reference { value, text, span } => {
-            annotations::reference(cx, scope, st, *value, text, span)?
+            positions::names(scope, value, &mut said.texts.depends);
+            annotations::reference(cx, scope, st, value, text, span)?
+        }
+        FrameStmt::Moment {
+            at,
+            until,
+            text,
+            span,
+        } => {
+            positions::names(scope, at, &mut said.texts.depends);
+            if let Some(u) = until {
+                positions::names(scope, u, &mut said.texts.depends);
+            }
+            let r = scope.text(cx, text);
+            // what the label quotes counts, but it is no field of its own
+            said.texts.depends.extend(r.depends.iter().cloned());
+            moments::moment(cx, scope, st, (at, until.as_ref()), r.text, span)?
         }
         FrameStmt::LabelEnds { span } => annotations::label_ends(cx, st, span)?,
         FrameStmt::Cite { value, span } => cite::cite(cx, scope, st, value, span)?,
         FrameStmt::Gridlines { on, span } => axes::gridlines(cx, st, *on, span)?,
+        FrameStmt::Footnote { claims, .. } => said.footnote = *claims,
         FrameStmt::Unfold { order, span } => {
             if said.unfold.replace((order.clone(), span.clone())).is_some() {
                 return Err(cx.error(
@@ -393,6 +426,8 @@ fn finish(
             quoted: BTreeMap::new(),
             templates: BTreeMap::new(),
             notices: Vec::new(),
+            claim_notes: Vec::new(),
+            mark_notes: mark_notes::kept(&chart, &st.mark_notes),
             chart,
             cites: cites.clone(),
         });
@@ -401,6 +436,7 @@ fn finish(
         frames,
         texts: said.texts,
         anchors,
+        footnote: said.footnote,
     })
 }
 

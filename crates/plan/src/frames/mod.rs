@@ -5,7 +5,11 @@
 mod annotations;
 mod axes;
 mod cite;
+mod footnote;
 mod frame;
+mod mark_notes;
+mod moments;
+mod positions;
 mod provenance;
 mod roles;
 mod split;
@@ -20,7 +24,7 @@ use crescendo_lang::ast;
 use crate::anchors::Anchors;
 use crate::context::Ctx;
 use crate::header::Header;
-use crate::model::FramePlan;
+use crate::model::{ClaimPlan, FramePlan};
 use crate::scope::Scope;
 use crate::sequence::Sequence;
 use crate::values::Resolved;
@@ -38,7 +42,7 @@ pub(crate) fn plan_frames(
     scope: &Scope,
     header: &Header,
     items: &[&ast::FrameDecl],
-    (source, failed): (Option<&Resolved>, &[FailedClaim]),
+    (source, failed, claims): (Option<&Resolved>, &[FailedClaim], &[ClaimPlan]),
     anchors: &mut Anchors,
 ) -> Vec<FramePlan> {
     let mut deck = Deck {
@@ -65,6 +69,9 @@ pub(crate) fn plan_frames(
                     fp.notices
                         .push(format!("Draft: the data does not support \"{sentence}\""));
                 }
+            }
+            if made.footnote || cx.options.claims_footnote {
+                fp.claim_notes = footnote::lines(claims, &made.texts.depends);
             }
             fp.quoted = made.texts.quoted.clone();
             fp.templates = made.texts.templates.clone();
