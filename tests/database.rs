@@ -311,6 +311,7 @@ fn database_sources_against_a_real_server() {
     equivalence(&cluster);
     hostile_names(&cluster);
     faults(&cluster);
+    unmatched_texts(&cluster);
     scale(&cluster);
 }
 
@@ -753,7 +754,7 @@ fn aggregates(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
          data h from SOURCE_H { quarter: text, task: text, hours: number }\n\
          data v from SOURCE_V { month: month, pool: text, visits: number }\n\
          view by_task = h\n\
-         \x20 | keep hours * 1.5 > 30 or not (task in (\"Driving\", \"Sorting donated produce\"))\n\
+         \x20 | keep hours * 1.5 > 30 or not (task in (\"Warehouse inventory\", \"Sorting donated produce\"))\n\
          \x20 | by task: total = sum(hours), avg = mean(hours), mid = median(hours), lo = min(hours), hi = max(hours), one = first(hours), final = last(hours), n = count(), nh = count(hours)\n\
          view by_pool = v\n\
          \x20 | keep month >= \"2022-01\" and visits / 3 < 2000\n\
@@ -1049,7 +1050,7 @@ fn hostile_names(cluster: &Cluster) {
 data odd from table "sch;ema ü"."we\"ird; tab'le ü" via CRESCENDO_TEST_DB in order of line
 data unordered from table "sch;ema ü"."we\"ird; tab'le ü" via CRESCENDO_TEST_DB
 view totals = odd
-  | keep cat != "nothing" and n > 0
+  | keep (cat != "ünïcødé; ok" or n > 5) and n > 0
   | by cat: total = sum(n), first_line = first(line)
 view counted = unordered
   | keep cat in ("'); DROP TABLE x; --", "O'Brien \"quoted\"")
@@ -1347,6 +1348,67 @@ fn faults(cluster: &Cluster) {
         "the query was never seen running"
     );
     std::fs::write(dir.join("story.cresc"), &good).expect("write");
+}
+
+/// A `keep` the database computes with a text no row reaching it holds
+/// (before and after its `by`): a located error with a suggestion, asked
+/// of the database; spelt right, the build succeeds.
+fn unmatched_texts(cluster: &Cluster) {
+    let mut client = cluster.client();
+    client
+        .batch_execute(
+            "DROP TABLE IF EXISTS probe_t; CREATE TABLE probe_t (line integer, k text, c text, v numeric);
+             INSERT INTO probe_t VALUES (1, 'North', 'Oslo', 1), (2, 'South', 'Rome', 2), (3, 'North', 'Bergen', 3);",
+        )
+        .expect("probe fixture");
+    let dir = root().join("target").join("pgprobe");
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let conn = cluster.conn();
+    let build = |steps: &str| {
+        let story = format!(
+            "story \"Probe\"\n\ndata f from table \"probe_t\" via CRESCENDO_TEST_DB in order of line\nview t = f\n{steps}\nframe \"T\" {{\n  bars t: category k, value v\n}}\n"
+        );
+        std::fs::write(dir.join("story.cresc"), story).expect("write");
+        let out = run(
+            &dir,
+            &["build", "story.cresc", "--no-cache"],
+            &[("CRESCENDO_TEST_DB", conn.as_str())],
+        );
+        (out.status.success(), text(&out))
+    };
+    let cases = [
+        // before the group: no row has the text
+        (
+            "  | keep k = \"Nrth\"\n  | by k: v = sum(v)\n",
+            "story.cresc:5:14",
+            "did you mean \"North\"?",
+        ),
+        // the rows reaching the second keep are the northern ones
+        (
+            "  | keep k = \"North\"\n  | keep c in (\"Oslo\", \"Rome\")\n  | by k: v = sum(v)\n",
+            "story.cresc:6:24",
+            "`c` holds \"Oslo\", \"Bergen\"",
+        ),
+        // after the group
+        (
+            "  | by k: v = sum(v)\n  | keep k != \"Suth\"\n",
+            "story.cresc:6:15",
+            "did you mean \"South\"?",
+        ),
+    ];
+    for (steps, at, help) in cases {
+        let (ok, t) = build(steps);
+        assert!(!ok, "{steps}: the build should fail\n{t}");
+        assert!(t.contains("error[no-match]"), "{steps}: {t}");
+        assert!(t.contains(at), "{steps}: not at {at}\n{t}");
+        assert!(t.contains(help), "{steps}: {t}");
+    }
+    let (ok, t) = build("  | keep k = \"North\" and c != \"Rome\"\n  | by k: v = sum(v)\n");
+    // one step: Rome is a row's city (a southern one), so no error
+    assert!(ok, "{t}");
+    let (ok, t) = build("  | keep k = \"North\"\n  | by k: v = sum(v)\n  | keep k = \"North\"\n");
+    assert!(ok, "{t}");
 }
 
 /// Ten million rows generated inside the server aggregate there; the bytes

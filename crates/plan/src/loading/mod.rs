@@ -52,6 +52,7 @@
 
 mod columnar;
 mod database;
+mod db_probe;
 mod facts;
 mod files;
 mod skip;
@@ -121,7 +122,8 @@ impl Loader {
                     &views,
                     (&keep, keeps.as_slice()),
                 );
-                if let Some((shell, n)) = streamed {
+                if let Some(streamed) = streamed {
+                    let (shell, n) = streamed?;
                     if n > 0 {
                         self.report.skipped_groups.push(format!("{name}: {n}"));
                     }

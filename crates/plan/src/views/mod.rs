@@ -77,6 +77,24 @@ pub(crate) fn build_view_with(
         }
         // The prefix computed during the read ends with this step.
         let ends = prefix.filter(|p| index + 1 == p.ast_steps);
+        // A text literal no row holds (the steps of a prefix computed
+        // during the read were checked there; a table without rows is a
+        // data item's columns only).
+        let read = prefix.is_some_and(|p| index < p.ast_steps);
+        if let (ast::StepAst::Keep { expr, .. }, false) = (step_ast, read) {
+            if built
+                .table
+                .columns
+                .first()
+                .is_some_and(|c| !c.values.is_empty())
+            {
+                let unmatched = crate::unmatched::in_table(src, &built.table, expr);
+                if !unmatched.is_empty() {
+                    diags.extend(unmatched);
+                    return None;
+                }
+            }
+        }
         match checked? {
             Checked::Columns(picked) => {
                 built.table = Table {
