@@ -39,6 +39,8 @@ pub(crate) struct Made {
     pub(crate) frames: Vec<FramePlan>,
     pub(crate) texts: FrameTexts,
     pub(crate) anchors: FrameAnchors,
+    /// The name of the chart's key (for descriptions written again).
+    pub(crate) key_name: String,
 }
 
 /// What a frame's own statements said.
@@ -388,6 +390,7 @@ fn finish(
         frames,
         texts: said.texts,
         anchors,
+        key_name: st.key_name.clone(),
     })
 }
 
