@@ -521,6 +521,7 @@ fn equivalence(cluster: &Cluster) {
     aggregates(cluster, &mut client, &work);
     pipelines(cluster, &mut client, &work);
     buckets(cluster, &mut client, &work);
+    quarters(cluster, &mut client, &work);
     formats(cluster, &mut client, &work);
 }
 
@@ -714,6 +715,76 @@ fn buckets(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
     let t = String::from_utf8_lossy(&e.stdout).to_string();
     assert_eq!(t.matches("-- view ").count(), 4, "{t}");
     assert!(t.contains("'IYYY-\"W\"IW'") && t.contains("isodow"), "{t}");
+}
+
+/// A year and a quarter column made one quarterly time
+/// (`year_quarter`), pushed down and computed locally: identical plans,
+/// with numbers and texts (`Q1`, ` q2 `, `3`) for the quarter, years and
+/// whole numbers for the year, and cells that make no quarter (5, `Q5`,
+/// 2024.5, missing) missing on both sides.
+fn quarters(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
+    use crescendo_data::ColType;
+    let dir = work.join("quarters");
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let csv = "yr,yn,qn,qt,amount\n\
+        2023,2023,1,Q1,10\n2023,2023,2, q2 ,11\n2023,2023,3,3,12\n2023,2023,4,Q4,13\n\
+        2024,2024,1,q1,14\n2024,2024.5,2,Q2,15\n2024,2024,5,Q5,16\n2024,,4,,17\n";
+    std::fs::write(dir.join("q.csv"), csv).expect("write");
+    load_csv(
+        client,
+        "quarters_t",
+        &dir.join("q.csv"),
+        &[
+            ("yr".into(), ColType::Year),
+            ("yn".into(), ColType::Number),
+            ("qn".into(), ColType::Number),
+            ("qt".into(), ColType::Text),
+            ("amount".into(), ColType::Number),
+        ],
+    );
+    let story = "story \"Quarters\"\n\
+         data d from SOURCE { yr: year, yn: number, qn: number, qt: text, amount: number }\n\
+         view made = d\n\
+         \x20 | add a = year_quarter(yr, qn)\n\
+         \x20 | add b = year_quarter(yn, qt)\n\
+         \x20 | keep a >= \"2023-04\"\n\
+         view per_quarter = d\n\
+         \x20 | add time = year_quarter(yr, qt)\n\
+         \x20 | by time: total = sum(amount)\n\
+         frame \"Made\" {\n  table made\n}\n\
+         frame \"Per quarter\" {\n  line per_quarter: x time, y total\n}\n";
+    std::fs::write(dir.join("csv.cresc"), story.replace("SOURCE", "\"q.csv\"")).expect("write");
+    std::fs::write(
+        dir.join("db.cresc"),
+        story.replace(
+            "SOURCE",
+            "table \"quarters_t\" via CRESCENDO_TEST_DB in order of line",
+        ),
+    )
+    .expect("write");
+    let conn = cluster.conn();
+    let env = [("CRESCENDO_TEST_DB", conn.as_str())];
+    let a = run(&dir, &["plan", "csv.cresc"], &env);
+    assert!(a.status.success(), "{}", text(&a));
+    let b = run(&dir, &["plan", "db.cresc"], &env);
+    assert!(b.status.success(), "{}", text(&b));
+    let (pa, pb) = (
+        String::from_utf8_lossy(&a.stdout),
+        String::from_utf8_lossy(&b.stdout),
+    );
+    for (la, lb) in pa.lines().zip(pb.lines()) {
+        assert_eq!(la, lb, "the plans differ");
+    }
+    assert_eq!(pa, pb);
+    // 2023 Q2 starts in April; the fourth quarter in October
+    for want in ["Apr 2023", "Oct 2023"] {
+        assert!(pa.contains(want), "`{want}` in {pa}");
+    }
+    let e = run(&dir, &["check", "--explain-sql", "db.cresc"], &env);
+    let t = String::from_utf8_lossy(&e.stdout).to_string();
+    assert!(e.status.success(), "{}", text(&e));
+    assert_eq!(t.matches("-- view ").count(), 2, "{t}");
+    assert!(t.contains("lpad("), "{t}");
 }
 
 /// Every aggregate, filters with arithmetic and missing cells, pushed down

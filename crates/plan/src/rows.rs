@@ -195,6 +195,9 @@ impl Checker<'_> {
             Expr::Call { func, args, span } if bucket_named(&func.name).is_some() => {
                 self.bucket(func, args, span, false)
             }
+            Expr::Call { func, args, span } if func.name == "year_quarter" => {
+                self.year_quarter(args, span)
+            }
             Expr::Call { func, span, .. } => {
                 self.not_in_a_row(
                     span.clone(),
@@ -293,6 +296,41 @@ impl Checker<'_> {
             ty,
         };
         Some((e, Ty::Col(ty)))
+    }
+
+    /// `year_quarter(YEAR, QUARTER)`: a year column (or whole numbers) and a
+    /// quarter column (numbers 1 to 4, or texts `Q1` to `Q4`) as one
+    /// quarterly time, a month (`crescendo_data::bucket::year_quarter`).
+    fn year_quarter(
+        &mut self,
+        args: &[ast::CallArg],
+        span: &ast::Span,
+    ) -> Option<(data::Expr, Ty)> {
+        let [ast::CallArg::Value(y), ast::CallArg::Value(q)] = args else {
+            self.err(
+                span.clone(),
+                "`year_quarter(...)` takes a year column and a quarter column".into(),
+                "two arguments",
+            );
+            return None;
+        };
+        let (ye, yt) = self.check(y)?;
+        let (qe, qt) = self.check(q)?;
+        if !matches!(yt, Ty::Col(ColType::Year | ColType::Number)) {
+            let msg = format!(
+                "the year of `year_quarter` must be a year or number column, but this is {}",
+                yt.describe()
+            );
+            self.err(y.span(), msg, "not a year");
+            return None;
+        }
+        if !matches!(qt, Ty::Col(ColType::Number | ColType::Text)) {
+            let msg = format!("the quarter of `year_quarter` must be a number (1 to 4) or text (`Q1` to `Q4`) column, but this is {}", qt.describe());
+            self.err(q.span(), msg, "not a quarter");
+            return None;
+        }
+        let e = data::Expr::YearQuarter(Box::new(ye), Box::new(qe));
+        Some((e, Ty::Col(ColType::Month)))
     }
 
     fn not_in_a_row(&mut self, span: ast::Span, message: String, label: &str, help: &str) {
