@@ -48,6 +48,26 @@ fn a_year_and_a_quarter_make_one_point_per_quarter() {
     assert_eq!(xs, want);
     let ys: Vec<Option<f64>> = l.series[0].points.iter().map(|p| p.y).collect();
     assert_eq!(ys[2], Some(12.5));
+    // ticks name quarters (never the months between them); so does the
+    // description
+    let ticks: Vec<&str> = l.x.ticks.iter().map(|t| t.label.as_str()).collect();
+    assert_eq!(
+        ticks,
+        ["2022 Q1", "Q2", "Q3", "Q4", "2023 Q1", "Q2", "Q3", "Q4"]
+    );
+    assert!(
+        f.description.contains("from 2022 Q1 to 2023 Q4"),
+        "{}",
+        f.description
+    );
+    // two quarters: a tick at each, none at the months between
+    let planned = plan("view v = d | add time = year_quarter(year, quarter) | keep time >= \"2023-07\" | by time: output = sum(output)")
+        .unwrap_or_else(|e| panic!("{}", crescendo_diag::render(&e, false)));
+    let Chart::Line(l) = &planned.plan.frames[0].chart else {
+        panic!("not a line")
+    };
+    let ticks: Vec<&str> = l.x.ticks.iter().map(|t| t.label.as_str()).collect();
+    assert_eq!(ticks, ["2023 Q3", "Q4"]);
 }
 
 #[test]
