@@ -163,12 +163,17 @@ fn the_cache_never_hides_the_error() {
 /// loaded whole: both say the same.
 #[test]
 fn parquet_and_workbook_sources_say_the_same() {
-    for file in ["ledger.parquet", "ledger.xlsx"] {
+    for (file, decl) in [
+        ("ledger.parquet", ""),
+        ("ledger.xlsx", ""),
+        // declared, read through the typed path
+        ("ledger.parquet", " { branch: text }"),
+    ] {
         let dir = scratch("unmatched-formats");
         let from = common::root().join("tests").join("formats").join(file);
         fs::copy(&from, dir.join(file)).unwrap();
         let s = format!(
-            "story \"U\"\ndata d from \"{file}\"\nview v = d | keep branch = \"Harbor\" | by branch: total = sum(amount)\nframe \"f\" {{\n  bars v: category branch, value total\n}}\n"
+            "story \"U\"\ndata d from \"{file}\"{decl}\nview v = d | keep branch = \"Harbor\" | by branch: total = sum(amount)\nframe \"f\" {{\n  bars v: category branch, value total\n}}\n"
         );
         let src = Source::file("s.cresc", s.clone());
         let errs = match crescendo_plan::plan_story(&src, &dir, &Default::default()) {

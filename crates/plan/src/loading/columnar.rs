@@ -14,6 +14,7 @@ use std::fs::File;
 
 use crescendo_data::fold::Fold;
 use crescendo_data::parquet::each_group;
+use crescendo_data::probe::{Probe, Seen};
 use crescendo_data::stream::StreamView;
 use crescendo_data::{Column, Columns, CsvSpec, Expr, Table, Values};
 use crescendo_lang::ast::{self, StepAst};
@@ -79,6 +80,13 @@ pub(crate) fn stream_parquet(
         return None;
     }
     let probes = fold.probes();
+    let unread = |met: &Vec<(Probe, Seen)>| met.iter().any(|(p, s)| p.keep == 0 && !s.found);
+    if done.skipped > 0 && probes.iter().any(unread) {
+        // a first `keep`'s text may be held only by rows of skipped groups,
+        // which were never read: the whole load checks it (see
+        // `crate::unmatched::Which`)
+        return None;
+    }
     let found: Vec<Option<Table>> = fold.finish()?.into_iter().map(Some).collect();
     let all: Vec<usize> = (0..found.len()).collect();
     let unmatched = probed(cx, &schema_of, views, &all, &probes);

@@ -126,6 +126,7 @@ impl Loader {
                     let (shell, n) = streamed?;
                     if n > 0 {
                         self.report.skipped_groups.push(format!("{name}: {n}"));
+                        tables.thinned.insert(name.clone());
                     }
                     self.report.streamed.push(name);
                     return Ok(shell);
@@ -140,6 +141,7 @@ impl Loader {
             );
             if let Ok((_, n @ 1..)) = &read {
                 self.report.skipped_groups.push(format!("{name}: {n}"));
+                tables.thinned.insert(name.clone());
             }
             self.report.loaded.push(name);
             return files::reported(cx, decl, read.map(|(t, _)| t));

@@ -81,14 +81,14 @@ pub(crate) fn build_view_with(
         // during the read were checked there; a table without rows is a
         // data item's columns only).
         let read = prefix.is_some_and(|p| index < p.ast_steps);
+        let thinned = index == 0 && input.is_data && tables.thinned.contains(&input.root);
+        let rows = built.table.columns.first().map_or(0, |c| c.values.len());
         if let (ast::StepAst::Keep { expr, .. }, false) = (step_ast, read) {
-            if built
-                .table
-                .columns
-                .first()
-                .is_some_and(|c| !c.values.is_empty())
-            {
-                let unmatched = crate::unmatched::in_table(src, &built.table, expr);
+            // (a Parquet item whose row groups were all skipped has no rows)
+            if thinned || rows > 0 {
+                use crate::unmatched::{in_table_checking, Which};
+                let which = if thinned { Which::Positive } else { Which::All };
+                let unmatched = in_table_checking(src, &built.table, expr, which);
                 if !unmatched.is_empty() {
                     diags.extend(unmatched);
                     return None;
