@@ -225,11 +225,11 @@ fn new_makes_sense_of_real_data() {
             "macrodata.csv",
             "tests/starters",
             &[
-                "line of realgdp over year (quarter folded into year)",
-                "averaged per year, never summed",
+                "line of realgdp over period (year and quarter made one quarterly time)",
+                "averaged per period, never summed",
                 "scatter of cpi against realgdp (two measures, never added)",
                 "codes and identifiers (not measures): none",
-                "parts of a time (folded into the year): quarter",
+                "parts of a time (never measures): quarter",
                 "rates and levels (averaged, never summed): realgdp, cpi, unemp, infl, realint",
             ],
             &[
@@ -277,14 +277,22 @@ fn new_makes_sense_of_real_data() {
                 "{csv}: sums {col}:\n{story}"
             );
         }
-        // No two measures added: no computed columns, no `+` outside texts.
+        // No two measures added: no computed column but a time made of
+        // its parts, no `+` outside texts.
         for line in story.lines().filter(|l| !l.trim_start().starts_with('#')) {
             let code: String = line.split('"').step_by(2).collect();
+            let made_time = code.contains("= year_quarter(");
             assert!(
-                !code.contains("| add ") && !code.contains('+'),
+                (!code.contains("| add ") || made_time) && !code.contains('+'),
                 "{csv}: {line}"
             );
         }
+        // a year and a quarter column: one quarterly time
+        assert_eq!(
+            story.contains("| add period = year_quarter(year, quarter)"),
+            csv == "macrodata.csv",
+            "{csv}:\n{story}"
+        );
         // The first frame's headline states a fact protected by a claim.
         assert!(
             story.contains("# The headline below states this"),

@@ -311,6 +311,7 @@ fn database_sources_against_a_real_server() {
     equivalence(&cluster);
     hostile_names(&cluster);
     faults(&cluster);
+    unmatched_texts(&cluster);
     scale(&cluster);
 }
 
@@ -520,6 +521,7 @@ fn equivalence(cluster: &Cluster) {
     aggregates(cluster, &mut client, &work);
     pipelines(cluster, &mut client, &work);
     buckets(cluster, &mut client, &work);
+    quarters(cluster, &mut client, &work);
     formats(cluster, &mut client, &work);
 }
 
@@ -718,6 +720,76 @@ fn buckets(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
     assert!(t.contains("'IYYY-\"W\"IW'") && t.contains("isodow"), "{t}");
 }
 
+/// A year and a quarter column made one quarterly time
+/// (`year_quarter`), pushed down and computed locally: identical plans,
+/// with numbers and texts (`Q1`, ` q2 `, `3`) for the quarter, years and
+/// whole numbers for the year, and cells that make no quarter (5, `Q5`,
+/// 2024.5, missing) missing on both sides.
+fn quarters(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
+    use crescendo_data::ColType;
+    let dir = work.join("quarters");
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let csv = "yr,yn,qn,qt,amount\n\
+        2023,2023,1,Q1,10\n2023,2023,2, q2 ,11\n2023,2023,3,3,12\n2023,2023,4,Q4,13\n\
+        2024,2024,1,q1,14\n2024,2024.5,2,Q2,15\n2024,2024,5,Q5,16\n2024,,4,,17\n";
+    std::fs::write(dir.join("q.csv"), csv).expect("write");
+    load_csv(
+        client,
+        "quarters_t",
+        &dir.join("q.csv"),
+        &[
+            ("yr".into(), ColType::Year),
+            ("yn".into(), ColType::Number),
+            ("qn".into(), ColType::Number),
+            ("qt".into(), ColType::Text),
+            ("amount".into(), ColType::Number),
+        ],
+    );
+    let story = "story \"Quarters\"\n\
+         data d from SOURCE { yr: year, yn: number, qn: number, qt: text, amount: number }\n\
+         view made = d\n\
+         \x20 | add a = year_quarter(yr, qn)\n\
+         \x20 | add b = year_quarter(yn, qt)\n\
+         \x20 | keep a >= \"2023-04\"\n\
+         view per_quarter = d\n\
+         \x20 | add time = year_quarter(yr, qt)\n\
+         \x20 | by time: total = sum(amount)\n\
+         frame \"Made\" {\n  table made\n}\n\
+         frame \"Per quarter\" {\n  line per_quarter: x time, y total\n}\n";
+    std::fs::write(dir.join("csv.cresc"), story.replace("SOURCE", "\"q.csv\"")).expect("write");
+    std::fs::write(
+        dir.join("db.cresc"),
+        story.replace(
+            "SOURCE",
+            "table \"quarters_t\" via CRESCENDO_TEST_DB in order of line",
+        ),
+    )
+    .expect("write");
+    let conn = cluster.conn();
+    let env = [("CRESCENDO_TEST_DB", conn.as_str())];
+    let a = run(&dir, &["plan", "csv.cresc"], &env);
+    assert!(a.status.success(), "{}", text(&a));
+    let b = run(&dir, &["plan", "db.cresc"], &env);
+    assert!(b.status.success(), "{}", text(&b));
+    let (pa, pb) = (
+        String::from_utf8_lossy(&a.stdout),
+        String::from_utf8_lossy(&b.stdout),
+    );
+    for (la, lb) in pa.lines().zip(pb.lines()) {
+        assert_eq!(la, lb, "the plans differ");
+    }
+    assert_eq!(pa, pb);
+    // 2023 Q2 starts in April; the fourth quarter in October
+    for want in ["Apr 2023", "Oct 2023"] {
+        assert!(pa.contains(want), "`{want}` in {pa}");
+    }
+    let e = run(&dir, &["check", "--explain-sql", "db.cresc"], &env);
+    let t = String::from_utf8_lossy(&e.stdout).to_string();
+    assert!(e.status.success(), "{}", text(&e));
+    assert_eq!(t.matches("-- view ").count(), 2, "{t}");
+    assert!(t.contains("lpad("), "{t}");
+}
+
 /// Every aggregate, filters with arithmetic and missing cells, pushed down
 /// and computed locally: the frame plans (which hold every bar's value at
 /// full precision) are identical. Data: the volunteers' hours (one
@@ -756,7 +828,7 @@ fn aggregates(cluster: &Cluster, client: &mut postgres::Client, work: &Path) {
          data h from SOURCE_H { quarter: text, task: text, hours: number }\n\
          data v from SOURCE_V { month: month, pool: text, visits: number }\n\
          view by_task = h\n\
-         \x20 | keep hours * 1.5 > 30 or not (task in (\"Driving\", \"Sorting donated produce\"))\n\
+         \x20 | keep hours * 1.5 > 30 or not (task in (\"Warehouse inventory\", \"Sorting donated produce\"))\n\
          \x20 | by task: total = sum(hours), avg = mean(hours), mid = median(hours), lo = min(hours), hi = max(hours), one = first(hours), final = last(hours), n = count(), nh = count(hours)\n\
          view by_pool = v\n\
          \x20 | keep month >= \"2022-01\" and visits / 3 < 2000\n\
@@ -1052,7 +1124,7 @@ fn hostile_names(cluster: &Cluster) {
 data odd from table "sch;ema ü"."we\"ird; tab'le ü" via CRESCENDO_TEST_DB in order of line
 data unordered from table "sch;ema ü"."we\"ird; tab'le ü" via CRESCENDO_TEST_DB
 view totals = odd
-  | keep cat != "nothing" and n > 0
+  | keep (cat != "ünïcødé; ok" or n > 5) and n > 0
   | by cat: total = sum(n), first_line = first(line)
 view counted = unordered
   | keep cat in ("'); DROP TABLE x; --", "O'Brien \"quoted\"")
@@ -1350,6 +1422,67 @@ fn faults(cluster: &Cluster) {
         "the query was never seen running"
     );
     std::fs::write(dir.join("story.cresc"), &good).expect("write");
+}
+
+/// A `keep` the database computes with a text no row reaching it holds
+/// (before and after its `by`): a located error with a suggestion, asked
+/// of the database; spelt right, the build succeeds.
+fn unmatched_texts(cluster: &Cluster) {
+    let mut client = cluster.client();
+    client
+        .batch_execute(
+            "DROP TABLE IF EXISTS probe_t; CREATE TABLE probe_t (line integer, k text, c text, v numeric);
+             INSERT INTO probe_t VALUES (1, 'North', 'Oslo', 1), (2, 'South', 'Rome', 2), (3, 'North', 'Bergen', 3);",
+        )
+        .expect("probe fixture");
+    let dir = root().join("target").join("pgprobe");
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let conn = cluster.conn();
+    let build = |steps: &str| {
+        let story = format!(
+            "story \"Probe\"\n\ndata f from table \"probe_t\" via CRESCENDO_TEST_DB in order of line\nview t = f\n{steps}\nframe \"T\" {{\n  bars t: category k, value v\n}}\n"
+        );
+        std::fs::write(dir.join("story.cresc"), story).expect("write");
+        let out = run(
+            &dir,
+            &["build", "story.cresc", "--no-cache"],
+            &[("CRESCENDO_TEST_DB", conn.as_str())],
+        );
+        (out.status.success(), text(&out))
+    };
+    let cases = [
+        // before the group: no row has the text
+        (
+            "  | keep k = \"Nrth\"\n  | by k: v = sum(v)\n",
+            "story.cresc:5:14",
+            "did you mean \"North\"?",
+        ),
+        // the rows reaching the second keep are the northern ones
+        (
+            "  | keep k = \"North\"\n  | keep c in (\"Oslo\", \"Rome\")\n  | by k: v = sum(v)\n",
+            "story.cresc:6:24",
+            "`c` holds \"Oslo\", \"Bergen\"",
+        ),
+        // after the group
+        (
+            "  | by k: v = sum(v)\n  | keep k != \"Suth\"\n",
+            "story.cresc:6:15",
+            "did you mean \"South\"?",
+        ),
+    ];
+    for (steps, at, help) in cases {
+        let (ok, t) = build(steps);
+        assert!(!ok, "{steps}: the build should fail\n{t}");
+        assert!(t.contains("error[no-match]"), "{steps}: {t}");
+        assert!(t.contains(at), "{steps}: not at {at}\n{t}");
+        assert!(t.contains(help), "{steps}: {t}");
+    }
+    let (ok, t) = build("  | keep k = \"North\" and c != \"Rome\"\n  | by k: v = sum(v)\n");
+    // one step: Rome is a row's city (a southern one), so no error
+    assert!(ok, "{t}");
+    let (ok, t) = build("  | keep k = \"North\"\n  | by k: v = sum(v)\n  | keep k = \"North\"\n");
+    assert!(ok, "{t}");
 }
 
 /// Ten million rows generated inside the server aggregate there; the bytes

@@ -4,7 +4,8 @@
 //! and UTC timestamps) builds byte-identical decks through `--data
 //! NAME=FILE`; broken files are located errors that leave the previous
 //! deck as it was. Fixtures: `tests/formats/make_fixtures.py` (openpyxl,
-//! odfpy, msoffcrypto-tool, pyarrow).
+//! odfpy, msoffcrypto-tool, pyarrow) and `tests/formats/make_cells.py`
+//! (formulas with cached values and bad cells, written part by part).
 
 mod common;
 
@@ -282,5 +283,66 @@ frame "North" {
     );
     assert!(c.status.success(), "{}", text(&c));
     assert!(!text(&c).contains("row groups skipped"), "{}", text(&c));
+    let _ = fs::remove_dir_all(&dir);
+}
+
+/// Every bad cell of a workbook at once, each naming its sheet and A1
+/// cell, up to the cap a CSV file has (20; the last says the read stopped).
+/// Fixture: `tests/formats/make_cells.py` (hand-written OOXML parts).
+#[test]
+fn a_workbook_reports_every_bad_cell_up_to_the_cap() {
+    let dir = setup("formats-bad-cells");
+    let story = |sheet: &str| {
+        format!(
+            "story \"Bad cells\"\ndata d from \"bad-cells.xlsx\" sheet \"{sheet}\" {{ day: date, amount: number }}\n\
+             view v = d | by branch: amount = sum(amount)\nframe \"f\" {{\n  bars v: category branch, value amount\n}}\n"
+        )
+    };
+    fs::write(dir.join("few.cresc"), story("Few")).unwrap();
+    let o = crescendo(&dir, &["check", "few.cresc"]);
+    assert!(!o.status.success());
+    let t = text(&o);
+    for w in [
+        "sheet `Few` of `bad-cells.xlsx`, cell C3 holds the spreadsheet error #DIV/0!",
+        "sheet `Few` of `bad-cells.xlsx`, cell A4 holds the text `soon`",
+        "sheet `Few` of `bad-cells.xlsx`, cell C5 holds the text `12 units`",
+        "3 errors",
+    ] {
+        assert!(t.contains(w), "`{w}` in {t}");
+    }
+    assert_eq!(t.matches("error[bad-value]").count(), 3, "{t}");
+    assert!(t.contains("few.cresc:2:"), "located at the data item: {t}");
+    fs::write(dir.join("many.cresc"), story("Many")).unwrap();
+    let o = crescendo(&dir, &["check", "many.cresc"]);
+    let t = text(&o);
+    assert!(!o.status.success());
+    assert_eq!(t.matches("error[bad-value]").count(), 20, "{t}");
+    assert!(
+        t.contains("cell C21 holds the spreadsheet error #N/A"),
+        "{t}"
+    );
+    assert!(!t.contains("cell C22"), "{t}");
+    assert!(t.contains("stopped at 20 errors"), "{t}");
+    let _ = fs::remove_dir_all(&dir);
+}
+
+/// A formula cell is read as the value the workbook cached when it was
+/// last saved (numbers and texts), never recalculated. Fixture:
+/// `tests/formats/make_cells.py`.
+#[test]
+fn formula_cells_are_read_from_their_cached_values() {
+    let dir = setup("formats-formulas");
+    let story = "story \"Formulas\"\ndata d from \"formulas.xlsx\"\n\
+        value doubled = sum(d.double where branch != \"Total\")\nvalue total = last(d.double)\n\
+        value harbour = sum(d.double where branch = \"Harbour\")\n\
+        value total_amount = last(d.amount)\nvalue tag = first(d.tag)\n\
+        frame \"f\" {\n  bars d: category branch, value double\n  notes \"{doubled}|{total}|{total_amount}|{tag}|{harbour}\"\n}\n";
+    fs::write(dir.join("f.cresc"), story).unwrap();
+    let o = crescendo(&dir, &["plan", "f.cresc"]);
+    let t = text(&o);
+    assert!(o.status.success(), "{t}");
+    // cached: 24 + 15 + 60 = 99 over the three rows, the SUM row's 99 and
+    // 49.5, the text formula's "North!", Harbour's 7.5 * 2
+    assert!(t.contains("99|99|49.5|North!|15"), "{t}");
     let _ = fs::remove_dir_all(&dir);
 }

@@ -139,7 +139,7 @@ data grants from "data/grants.csv" missing "NA", "-" {
 }
 
 view per_year = grants
-  | keep year >= 2020 and not (region in ("Nowhere", "Test"))
+  | keep year >= 2020 and not (region in ("West", "Test"))
   | add thousands = amount / 1000 + 0 * -1
   | by year, region: total = sum(thousands), n = count(), first_day = first(day),
       top_amount = max(amount), low = min(amount), last_day = last(day)

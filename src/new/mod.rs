@@ -8,7 +8,8 @@
 //! Each number column then gets a role (`roles.rs`): an amount (summed),
 //! a rate or level (averaged, never summed), a code or identifier (never a
 //! measure), or the quarter or month number of a year column (part of the
-//! time, folded into the year).
+//! time: a year and a quarter become one quarterly time with
+//! `year_quarter(year, quarter)`; a month number is folded into the year).
 //!
 //! The chart form follows the data's shape and the question it most likely
 //! answers (common practice of chart choice):

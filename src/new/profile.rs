@@ -295,7 +295,7 @@ pub fn summary(p: &Profile, shape: Option<&Shape>) -> String {
     );
     let _ = writeln!(
         s,
-        "parts of a time (folded into the year): {}",
+        "parts of a time (never measures): {}",
         roles(&|r| matches!(r, ColumnRole::Quarter | ColumnRole::MonthNumber))
     );
     let _ = writeln!(s, "categories: {}", list(&|t| t == ColType::Text));

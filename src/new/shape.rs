@@ -20,6 +20,9 @@ pub enum Shape {
         agg: &'static str,
         series: Option<String>,
         parts: Option<String>,
+        /// `(year, quarter)`: the time is made of these two columns as one
+        /// quarterly time (`year_quarter(year, quarter)`), named `time`.
+        made: Option<(String, String)>,
         other: Option<String>,
         other_agg: &'static str,
         /// A text column whose values are different measures (a long
@@ -105,11 +108,12 @@ pub fn choose_shape(p: &Profile) -> Result<Shape, String> {
         .iter()
         .filter(|c| c.distinct >= 2 && c.distinct < p.rows)
         .min_by_key(|c| c.distinct);
-    let parts = p
+    let part = p
         .columns
         .iter()
-        .find(|c| matches!(c.role, ColumnRole::Quarter | ColumnRole::MonthNumber))
-        .map(|c| c.name.clone());
+        .find(|c| matches!(c.role, ColumnRole::Quarter | ColumnRole::MonthNumber));
+    let quarterly = part.is_some_and(|c| c.role == ColumnRole::Quarter);
+    let parts = part.map(|c| (c.name.clone(), quarterly));
     if let Some(time) = times
         .iter()
         .find(|t| t.ty != ColType::Year || t.distinct >= 3)
@@ -212,7 +216,7 @@ fn trend_shape(
     time: &ColumnProfile,
     texts: &[&ColumnProfile],
     measures: &[&ColumnProfile],
-    parts: Option<String>,
+    parts: Option<(String, bool)>,
 ) -> Shape {
     // A text column that names each row with the time holds different
     // series (in a long file, different measures): one line each when there
@@ -235,12 +239,27 @@ fn trend_shape(
         .filter(|c| c.distinct > MAX_LINES)
         .map(|c| (c.name.clone(), c.first.clone()));
     let measure = measures.first();
+    let parts = parts.filter(|_| time.ty == ColType::Year);
+    // a year and a quarter: one quarterly time, named so that it takes no
+    // column's name
+    let made = parts
+        .as_ref()
+        .filter(|(_, quarterly)| *quarterly)
+        .map(|(q, _)| (time.name.clone(), q.clone()));
+    let name = ["period", "quarter_time", "year_and_quarter"]
+        .into_iter()
+        .find(|n| p.columns.iter().all(|c| c.name != *n))
+        .unwrap_or("period_made");
     Shape::Trend {
-        time: time.name.clone(),
+        time: match made {
+            Some(_) => name.to_string(),
+            None => time.name.clone(),
+        },
         measure: measure.map_or(String::new(), |m| m.name.clone()),
         agg: measure.map_or("mean", |m| m.role.aggregate()),
         series,
-        parts: parts.filter(|_| time.ty == ColType::Year),
+        parts: parts.filter(|(_, quarterly)| !quarterly).map(|(q, _)| q),
+        made,
         other: measures.get(1).map(|c| c.name.clone()),
         other_agg: measures.get(1).map_or("mean", |c| c.role.aggregate()),
         only,
@@ -265,14 +284,18 @@ pub(super) fn why(shape: &Shape) -> String {
             agg,
             series,
             parts,
+            made,
             other,
             only,
             ..
         } => format!(
-            "line of {measure} over {time}{}{} (change over time; {}){}",
+            "line of {measure} over {time}{}{}{} (change over time; {}){}",
             parts
                 .as_ref()
                 .map_or(String::new(), |q| format!(" ({q} folded into {time})")),
+            made.as_ref().map_or(String::new(), |(y, q)| format!(
+                " ({y} and {q} made one quarterly time)"
+            )),
             series
                 .as_ref()
                 .map_or(String::new(), |s| format!(", one line per {s}")),

@@ -20,6 +20,8 @@ pub(super) struct Trend<'a> {
     pub agg: &'a str,
     pub series: Option<&'a str>,
     pub parts: Option<&'a str>,
+    /// `(year, quarter)`: `time` is made of them (`year_quarter`).
+    pub made: Option<(&'a str, &'a str)>,
     pub other: Option<&'a str>,
     /// The aggregate of `other` (by the same rule as the measure's).
     pub other_agg: &'a str,
@@ -129,20 +131,63 @@ fn bucketed(table: &Table, day: &str, (func, name): (&str, &str)) -> Table {
     out
 }
 
+/// `table` with the column `name`: the quarterly time of its `year` and
+/// `quarter` columns, as the story's `| add` computes it.
+fn quarterly(table: &Table, name: &str, (year, quarter): (&str, &str)) -> Table {
+    let mut out = table.clone();
+    let col = |n: &str| table.columns.iter().find(|c| c.name == n);
+    let (Some(y), Some(q)) = (col(year), col(quarter)) else {
+        return out;
+    };
+    let values = y
+        .values
+        .iter()
+        .zip(q.values.iter())
+        .map(
+            |(y, q)| match crescendo_data::bucket::year_quarter(y.cell(), q.cell()) {
+                Some(m) => Value::Month(m),
+                None => Value::Missing,
+            },
+        )
+        .collect();
+    out.columns.push(crescendo_data::Column {
+        name: name.to_string(),
+        ty: ColType::Month,
+        values,
+    });
+    out
+}
+
 pub(super) fn trend(s: &mut String, table: &Table, t: &Trend) {
+    // a year and a quarter column: one quarterly time (a line of four
+    // points per year, not one point per year)
+    if let Some((year, q)) = t.made {
+        let table = quarterly(table, t.time, (year, q));
+        let step = format!("| add {} = year_quarter({year}, {q})", t.time);
+        let why = format!(
+            "# `{year}` and `{q}` together name each quarter: made one quarterly time,\n\
+             # so the line has a point per quarter ({q} is never a measure)."
+        );
+        return trend_of(s, &table, t, Some((step, why)));
+    }
     // daily rows: summed (or averaged) per week or month first; a line of
     // hundreds of days is noise (the lint rule `line-crowded`)
     if let Some(b) = daily_bucket(table, t.time) {
         let day = t.time;
         let table = bucketed(table, day, b);
         let t = Trend { time: b.1, ..*t };
-        return trend_of(s, &table, &t, Some((b.0, day)));
+        let step = format!("| add {} = {}({day})", b.1, b.0);
+        let why = format!(
+            "# `{day}` holds many days: taken together per {}, as a daily line would be noise.",
+            b.1
+        );
+        return trend_of(s, &table, &t, Some((step, why)));
     }
     trend_of(s, table, t, None)
 }
 
-/// `bucket`: the function and daily column the time was made from.
-fn trend_of(s: &mut String, table: &Table, t: &Trend, bucket: Option<(&str, &str)>) {
+/// `made`: the `add` step that makes the time, and why (a comment).
+fn trend_of(s: &mut String, table: &Table, t: &Trend, made: Option<(String, String)>) {
     let Trend {
         time,
         measure,
@@ -161,12 +206,9 @@ fn trend_of(s: &mut String, table: &Table, t: &Trend, bucket: Option<(&str, &str
         steps.push(format!("| keep {col} = {}", quote(v)));
     }
     let mut why = comment(t);
-    if let Some((func, day)) = bucket {
-        steps.push(format!("| add {time} = {func}({day})"));
-        let _ = write!(
-            why,
-            "\n# `{day}` holds many days: taken together per {time}, as a daily line would be noise."
-        );
+    if let Some((step, made_why)) = made {
+        steps.push(step);
+        let _ = write!(why, "\n{made_why}");
     }
     steps.push(format!("| by {keys}: {aggs}"));
     steps.push(format!("| sort {time}"));

@@ -82,6 +82,32 @@ impl Bucket {
     }
 }
 
+/// A year and a quarter (two columns of a table that counts time in
+/// quarters) as one time: the month index of the quarter's first month.
+/// The year is a year, or a whole number from 1 to 9999; the quarter a
+/// number 1 to 4, or a text `1` to `4` or `Q1` to `Q4` (any case, spaces
+/// around it ignored). Anything else gives none (a missing value).
+pub fn year_quarter(year: Cell<'_>, quarter: Cell<'_>) -> Option<i32> {
+    let y = match year {
+        Cell::Year(y) => y,
+        Cell::Number(x) if x.fract() == 0.0 && (1.0..=9999.0).contains(&x) => x as i32,
+        _ => return None,
+    };
+    let q = match quarter {
+        Cell::Number(x) if [1.0, 2.0, 3.0, 4.0].contains(&x) => x as i32,
+        Cell::Text(t) => {
+            let t = t.trim_matches(' ');
+            let t = t.strip_prefix(['Q', 'q']).unwrap_or(t);
+            match t {
+                "1" | "2" | "3" | "4" => t.parse().ok()?,
+                _ => return None,
+            }
+        }
+        _ => return None,
+    };
+    Some(y * 12 + (q - 1) * 3)
+}
+
 /// 0 for Monday … 6 for Sunday (1970-01-01 was a Thursday).
 pub fn weekday(d: i32) -> i32 {
     (d + 3).rem_euclid(7)
@@ -106,6 +132,46 @@ mod tests {
 
     fn text(s: &str) -> Value {
         Value::Text(s.to_string())
+    }
+
+    #[test]
+    fn a_year_and_a_quarter_are_one_time() {
+        let m = |y: i32, q: u32| Some(y * 12 + (q as i32 - 1) * 3);
+        // 2024 Q3 starts in July: month index 2024 * 12 + 6 (worked by hand)
+        assert_eq!(
+            year_quarter(Cell::Year(2024), Cell::Number(3.0)),
+            m(2024, 3)
+        );
+        assert_eq!(
+            year_quarter(Cell::Number(1999.0), Cell::Text("Q4")),
+            m(1999, 4)
+        );
+        assert_eq!(
+            year_quarter(Cell::Number(1999.0), Cell::Text(" q1 ")),
+            m(1999, 1)
+        );
+        assert_eq!(year_quarter(Cell::Year(2024), Cell::Text("2")), m(2024, 2));
+        for bad in [
+            Cell::Number(0.0),
+            Cell::Number(5.0),
+            Cell::Number(2.5),
+            Cell::Text("Q5"),
+            Cell::Text("III"),
+            Cell::Missing,
+        ] {
+            assert_eq!(year_quarter(Cell::Year(2024), bad), None, "{bad:?}");
+        }
+        for bad in [
+            Cell::Number(2024.5),
+            Cell::Number(0.0),
+            Cell::Text("2024"),
+            Cell::Missing,
+        ] {
+            assert_eq!(year_quarter(bad, Cell::Number(1.0)), None, "{bad:?}");
+        }
+        let label =
+            crate::time::month_iso(year_quarter(Cell::Year(2024), Cell::Number(3.0)).unwrap_or(0));
+        assert_eq!(label, "2024-07");
     }
 
     #[test]

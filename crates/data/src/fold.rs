@@ -4,6 +4,7 @@
 use crate::load::ReadLimits;
 use crate::model::Values;
 use crate::model::{Cell, ColType, Table};
+use crate::probe::{Probe, Seen, Watch};
 use crate::stream::{add_record, finish, rows_fit, Groups, StreamView, ViewState};
 
 /// The empty state of every view over `ncols` columns.
@@ -32,6 +33,7 @@ pub struct Fold<'a> {
     sink: Sink<'a>,
     schema: Vec<(String, ColType)>,
     states: Vec<ViewState>,
+    watches: Vec<Watch>,
     kept: Vec<usize>,
     keybuf: Vec<u8>,
     rows: usize,
@@ -55,6 +57,7 @@ impl<'a> Fold<'a> {
             },
             schema,
             states,
+            watches: views.iter().map(|v| Watch::new(&v.keeps)).collect(),
             kept: vec![0; views.len()],
             keybuf: Vec::with_capacity(64),
             rows: 0,
@@ -77,8 +80,9 @@ impl<'a> Fold<'a> {
         for r in 0..n {
             cells.clear();
             cells.extend(t.columns.iter().map(|c| c.values.cell(r)));
-            let (states, kept, keybuf) = (&mut self.states, &mut self.kept, &mut self.keybuf);
-            if !add_record(&self.sink, &cells, states, kept, keybuf) {
+            let views = (&mut self.states[..], &mut self.watches[..]);
+            let (kept, keybuf) = (&mut self.kept, &mut self.keybuf);
+            if !add_record(&self.sink, &cells, views, kept, keybuf) {
                 return false;
             }
         }
@@ -89,6 +93,12 @@ impl<'a> Fold<'a> {
     /// Rows folded in so far.
     pub fn rows(&self) -> usize {
         self.rows
+    }
+
+    /// Per view: the text literals of its `keep`s and what each met so far
+    /// (see [`crate::probe`]).
+    pub fn probes(&self) -> Vec<Vec<(Probe, Seen)>> {
+        self.watches.iter().cloned().map(Watch::finish).collect()
     }
 
     /// One table per view, as [`crate::stream::scan`] gives them; `None` when kept rows

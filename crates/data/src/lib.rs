@@ -13,6 +13,7 @@ mod loader;
 pub mod locale;
 pub mod model;
 pub mod parquet;
+pub mod probe;
 pub mod progress;
 mod record;
 pub mod stats;

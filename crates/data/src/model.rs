@@ -150,6 +150,9 @@ pub enum Expr {
         of: Box<Expr>,
         ty: ColType,
     },
+    /// `year_quarter(year, quarter)`: the quarter as one time, the month
+    /// it starts with (see [`crate::bucket::year_quarter`]).
+    YearQuarter(Box<Expr>, Box<Expr>),
 }
 
 impl Expr {
@@ -157,6 +160,7 @@ impl Expr {
     pub fn value_type(&self) -> ColType {
         match self {
             Expr::Bucket { ty, .. } => *ty,
+            Expr::YearQuarter(..) => ColType::Month,
             _ => ColType::Number,
         }
     }

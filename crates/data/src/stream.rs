@@ -57,9 +57,10 @@ use crate::files::ReadAt;
 use crate::fold::{states, Sink};
 use crate::load::{CsvSpec, LoadError, ReadLimits};
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Value, Values};
+use crate::probe::{Probe, Seen, Watch};
 use crate::record::{forbidden_char, reader_builder, scan_fields, too_long, RawRecord, Tee};
 use crate::time::{parse_date, parse_month_or_date, parse_year};
-use crate::view::{compare_cells, encode_key, sum_value, truth, FxMap, Sum};
+use crate::view::{compare_cells, encode_key, sum_value, FxMap, Sum};
 
 /// The streamable prefix of one view.
 #[derive(Clone, Debug, PartialEq)]
@@ -117,6 +118,8 @@ pub struct ScanOutput {
     pub first_text: Vec<Option<(usize, String)>>,
     /// How many chunk guesses turned out to be inside a quoted field.
     pub absorbed: usize,
+    /// Per view: what the text literals of its `keep`s met ([`crate::probe`]).
+    pub probes: Vec<Vec<(Probe, Seen)>>,
 }
 
 /// Why a scan gave no result.
@@ -239,6 +242,7 @@ struct ChunkOut {
     end: End,
     rows: usize,
     views: Vec<ViewState>,
+    watches: Vec<Watch>,
     first_text: Vec<Option<(usize, String)>>,
 }
 
@@ -443,13 +447,13 @@ impl Groups {
 pub(crate) fn add_record(
     input: &Sink<'_>,
     cells: &[Cell<'_>],
-    states: &mut [ViewState],
+    (states, watches): (&mut [ViewState], &mut [Watch]),
     kept: &mut [usize],
     keybuf: &mut Vec<u8>,
 ) -> bool {
     let row = |c: usize| cells.get(c).copied().unwrap_or(Cell::Missing);
-    for (vi, (view, state)) in input.views.iter().zip(states).enumerate() {
-        if !view.keeps.iter().all(|k| truth(&row, k)) {
+    for (vi, ((view, state), watch)) in input.views.iter().zip(states).zip(watches).enumerate() {
+        if !watch.passes(&row, &view.keeps) {
             continue;
         }
         match (state, &view.group) {
@@ -521,6 +525,7 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
         end: End::Failed,
         rows: 0,
         views: states(input.views, ncols),
+        watches: input.views.iter().map(|v| Watch::new(&v.keeps)).collect(),
         first_text: vec![None; ncols],
     };
     let mut rdr = reader_builder()
@@ -617,7 +622,8 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
             }
             cells[j] = c;
         }
-        if !add_record(&sink, &cells, &mut out.views, &mut kept, &mut keybuf) {
+        let views = (&mut out.views[..], &mut out.watches[..]);
+        if !add_record(&sink, &cells, views, &mut kept, &mut keybuf) {
             return out;
         }
         scratch = recycle(cells);
@@ -666,6 +672,7 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
                     }
                 }
                 a.rows += chunk.rows;
+                Watch::merge_all(&mut a.watches, chunk.watches);
                 for (mine, later) in a.views.iter_mut().zip(chunk.views) {
                     match (mine, later) {
                         (ViewState::Groups(x), ViewState::Groups(y)) => x.merge(y),
@@ -704,6 +711,7 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
             }
         }
     }
+    let probes = out.watches.into_iter().map(Watch::finish).collect();
     let tables = input
         .views
         .iter()
@@ -726,6 +734,7 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
         rows: out.rows,
         first_text,
         absorbed,
+        probes,
     })
 }
 

@@ -14,7 +14,7 @@
 use crescendo_diag::closest;
 
 use crate::digits::NumberStyle;
-use crate::load::{parse_as, CsvSpec, LoadError};
+use crate::load::{parse_as, CsvSpec, LoadError, MAX_ERRORS};
 use crate::model::{ColType, Column, Table, Value, Values};
 use crate::time::{date_iso, month_of_day, parse_date, parse_month};
 
@@ -68,6 +68,18 @@ pub fn finish(
     columns: Vec<TypedColumn>,
     rows: usize,
     locate: Locate<'_>,
+) -> Result<Table, LoadError> {
+    finish_after(spec, columns, rows, locate, Vec::new())
+}
+
+/// [`finish`] after the cell problems found while reading (`earlier`):
+/// every problem is reported at once, up to [`MAX_ERRORS`] ([`all_of`]).
+pub fn finish_after(
+    spec: &CsvSpec,
+    columns: Vec<TypedColumn>,
+    rows: usize,
+    locate: Locate<'_>,
+    mut errs: Vec<LoadError>,
 ) -> Result<Table, LoadError> {
     let names: Vec<&str> = columns.iter().map(|c| c.name.as_str()).collect();
     for (i, (want, _)) in spec.declared.iter().enumerate() {
@@ -134,7 +146,11 @@ pub fn finish(
                         Typed::Bool(b) => format!("`{b}`"),
                         Typed::Missing => "nothing".to_string(),
                     };
-                    return Err(located(
+                    values.push(Value::Missing);
+                    if errs.len() >= MAX_ERRORS {
+                        continue;
+                    }
+                    errs.push(located(
                         "bad-value",
                         format!(
                             "column `{}` is declared {}, but {} holds {what}",
@@ -171,7 +187,45 @@ pub fn finish(
             });
         }
     }
+    if !errs.is_empty() {
+        return Err(all_of(errs, &spec.display_name));
+    }
     Ok(Table { columns: out })
+}
+
+/// Problems of one read as one error: the one, or all of them (each with
+/// its help) as [`LoadError::Many`]; at [`MAX_ERRORS`], the last says the
+/// read stopped there.
+pub fn all_of(mut errs: Vec<LoadError>, name: &str) -> LoadError {
+    if errs.len() == 1 {
+        return errs.remove(0);
+    }
+    let full = errs.len() >= MAX_ERRORS;
+    let mut ds: Vec<crescendo_diag::Diagnostic> = errs
+        .into_iter()
+        .take(MAX_ERRORS)
+        .flat_map(|e| match e {
+            LoadError::Story {
+                code,
+                message,
+                help,
+                ..
+            } => {
+                let mut d = crescendo_diag::Diagnostic::error(code, message);
+                d.help = help;
+                vec![d]
+            }
+            LoadError::Csv(d) => vec![d],
+            LoadError::Many(ds) => ds,
+        })
+        .collect();
+    if let (true, Some(last)) = (full, ds.last_mut()) {
+        *last = last.clone().note(format!(
+            "reading `{name}` stopped at {MAX_ERRORS} errors (the most one read reports); \
+             there may be more after this one"
+        ));
+    }
+    LoadError::Many(ds)
 }
 
 /// The type of an undeclared column (see the module docs).

@@ -194,6 +194,10 @@ pub(crate) fn eval<'a, R: Fn(usize) -> Cell<'a>>(row: &R, e: &'a Expr) -> Cell<'
             Value::Year(y) => Cell::Year(y),
             _ => Cell::Missing,
         },
+        Expr::YearQuarter(y, q) => match crate::bucket::year_quarter(eval(row, y), eval(row, q)) {
+            Some(m) => Cell::Month(m),
+            None => Cell::Missing,
+        },
         Expr::Cmp(..) | Expr::And(..) | Expr::Or(..) | Expr::Not(..) | Expr::In(..) => {
             Cell::Missing
         }
@@ -245,7 +249,12 @@ pub(crate) fn truth<'a, R: Fn(usize) -> Cell<'a>>(row: &R, e: &'a Expr) -> bool 
             list.iter()
                 .any(|item| compare_op(CmpOp::Eq, v, item.cell()))
         }
-        Expr::Col(_) | Expr::Lit(_) | Expr::Neg(_) | Expr::Arith(..) | Expr::Bucket { .. } => false,
+        Expr::Col(_)
+        | Expr::Lit(_)
+        | Expr::Neg(_)
+        | Expr::Arith(..)
+        | Expr::Bucket { .. }
+        | Expr::YearQuarter(..) => false,
     }
 }
 
@@ -271,6 +280,9 @@ fn derive(mut t: Table, name: &str, expr: &Expr) -> Table {
     let values = match expr {
         Expr::Bucket { bucket, of, .. } => (0..row_count(&t))
             .map(|r| bucket.apply(eval(&row_of(&t, r), of)))
+            .collect(),
+        Expr::YearQuarter(..) => (0..row_count(&t))
+            .map(|r| eval(&row_of(&t, r), expr).to_value())
             .collect(),
         _ => (0..row_count(&t))
             .map(|r| match num_of(eval(&row_of(&t, r), expr)) {

@@ -36,10 +36,10 @@ use std::io::{BufReader, Read, Seek};
 use calamine::{Data, Ods, Range, Reader, Xlsx};
 use crescendo_diag::closest;
 
-use crate::load::{Columns, CsvSpec, LoadError, ReadLimits};
+use crate::load::{Columns, CsvSpec, LoadError, ReadLimits, MAX_ERRORS};
 use crate::model::Table;
 use crate::time::days_from_civil;
-use crate::typed::{finish, Typed, TypedColumn};
+use crate::typed::{finish_after, Typed, TypedColumn};
 
 /// Which sheet and block of a workbook to read.
 #[derive(Clone, Debug, Default, PartialEq, Eq)]
@@ -326,7 +326,11 @@ fn read_range(
         ));
     }
     let mut rows: Vec<u32> = Vec::new();
+    let mut errs: Vec<LoadError> = Vec::new();
     for r in r0 + 1..=r1 {
+        if errs.len() >= MAX_ERRORS {
+            break;
+        }
         if (c0..=c1).all(|c| matches!(range.get_value((r, c)), None | Some(Data::Empty))) {
             continue;
         }
@@ -344,18 +348,10 @@ fn read_range(
             if !col.keep {
                 continue;
             }
-            let cell = typed(range.get_value((r, c))).map_err(|why| {
-                story(
-                    "bad-value",
-                    format!("{} holds {why}", at((r, c))),
-                    Some(
-                        "correct the cell in the workbook, or clear it to leave the value missing",
-                    ),
-                )
-            })?;
-            if let Typed::Text(s) = &cell {
-                if s.chars().count() > limits.text {
-                    return Err(story(
+            // every bad cell is reported (up to the cap), as in a CSV file
+            let cell = match typed(range.get_value((r, c))) {
+                Ok(Typed::Text(s)) if s.chars().count() > limits.text => {
+                    errs.push(story(
                         "too-long",
                         format!(
                             "{}: the text is longer than {} characters",
@@ -364,8 +360,18 @@ fn read_range(
                         ),
                         Some("raise `--max-text`"),
                     ));
+                    Typed::Missing
                 }
-            }
+                Ok(cell) => cell,
+                Err(why) => {
+                    errs.push(story(
+                        "bad-value",
+                        format!("{} holds {why}", at((r, c))),
+                        Some("correct the cell in the workbook, or clear it to leave the value missing"),
+                    ));
+                    Typed::Missing
+                }
+            };
             col.cells.push(cell);
         }
         rows.push(r);
@@ -376,7 +382,7 @@ fn read_range(
             positions.get(j).copied().unwrap_or(c0),
         ))
     };
-    finish(spec, cols, rows.len(), &locate)
+    finish_after(spec, cols, rows.len(), &locate, errs)
 }
 
 #[cfg(test)]

@@ -493,3 +493,45 @@ fn an_overflowing_sum_streams_as_it_loads() {
         );
     }
 }
+
+/// What the text literals of `keep`s met (`crescendo_data::probe`) is the
+/// same whatever the chunks: found anywhere in the file, or not at all with
+/// the distinct texts in order of first appearance.
+#[test]
+fn probes_are_the_same_whatever_the_chunks() {
+    let text = |t: &str| Box::new(Expr::Lit(Value::Text(t.into())));
+    let eq = |c: usize, t: &str| Expr::Cmp(CmpOp::Eq, Box::new(Expr::Col(c)), text(t));
+    let views = vec![
+        // "late" only in the last rows; "nowhere" never
+        StreamView {
+            keeps: vec![Expr::Or(vec![eq(0, "late"), eq(0, "nowhere")])],
+            group: None,
+        },
+        // the second keep sees only the rows where key = "a"
+        StreamView {
+            keeps: vec![eq(0, "a"), eq(1, "y")],
+            group: None,
+        },
+    ];
+    let mut bytes = b"key,note\n".to_vec();
+    for i in 0..3000 {
+        let (k, n) = [("a", "x"), ("b", "y"), ("c", "z")][i % 3];
+        bytes.extend_from_slice(format!("{k},{n}\n").as_bytes());
+    }
+    bytes.extend_from_slice(b"late,w\n");
+    let spec = common::spec_for("probes.csv", &bytes);
+    let len = bytes.len() as u64;
+    let one = scan_all(&spec, &views, &Chunks::At(vec![], 1)).expect("scan");
+    let met = |v: usize, i: usize| one.probes[v][i].clone();
+    assert!(met(0, 0).1.found && met(0, 0).0.text == "late");
+    assert!(!met(0, 1).1.found);
+    assert_eq!(met(0, 1).1.values, vec!["a", "b", "c", "late"]);
+    assert!(met(1, 0).1.found && met(1, 0).0.text == "a");
+    assert_eq!(met(1, 1).0.text, "y");
+    assert!(!met(1, 1).1.found);
+    assert_eq!(met(1, 1).1.values, vec!["x"]);
+    for cuts in [vec![len / 2], vec![len / 3, 2 * len / 3], vec![len - 4]] {
+        let out = scan_all(&spec, &views, &Chunks::At(cuts.clone(), 3)).expect("scan");
+        assert_eq!(out.probes, one.probes, "{cuts:?}");
+    }
+}

@@ -6,7 +6,7 @@ use std::io::Read;
 use std::path::Path;
 
 /// Bump when the meaning of an entry changes.
-pub const FORMAT: u32 = 1;
+pub const FORMAT: u32 = 2;
 
 /// A 128-bit hash as 32 hex digits (xxh3-128: fast, not cryptographic; the
 /// cache only needs to tell its own inputs apart).

@@ -52,9 +52,27 @@ fn measure(a: &Axis) -> String {
         .unwrap_or_else(|| sentences().the_measure.into())
 }
 
+/// A month axis of quarterly data ([`crate::scale::quarter_axis`]): its
+/// positions are named as quarters too. (Under a fiscal year, monthly data
+/// get quarter ticks as well, so their positions keep their months.)
+fn quarterly(axis: &Axis) -> bool {
+    !crescendo_data::locale::current().fiscal.is_fiscal()
+        && !axis.ticks.is_empty()
+        && axis.ticks.iter().all(|t| {
+            ["Q1", "Q2", "Q3", "Q4"]
+                .iter()
+                .any(|q| t.label == *q || t.label.ends_with(&format!(" {q}")))
+        })
+}
+
 /// A position on an axis as its reader would name it.
 pub(crate) fn tick_label(axis: &Axis, v: f64) -> String {
     match axis.scale {
+        ScaleKind::Months if quarterly(axis) => {
+            let i = v.round() as i32;
+            let fiscal = crescendo_data::locale::current().fiscal;
+            fiscal.quarter_label(i.div_euclid(12), (i.rem_euclid(12) + 1) as u32)
+        }
         ScaleKind::Months => time::month_label(v.round() as i32),
         ScaleKind::Days => time::date_text(v.round() as i32),
         ScaleKind::Years => format!("{}", v.round() as i64),

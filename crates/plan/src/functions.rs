@@ -181,7 +181,7 @@ impl Evaluator<'_> {
             Some(f) => {
                 let cond = rows::check_condition(self.src, &schema, &place, f, &mut diags)
                     .ok_or_else(|| diags.clone())?;
-                let unmatched = rows::unmatched_texts(self.src, table, f);
+                let unmatched = crate::unmatched::in_table(self.src, table, f);
                 if !unmatched.is_empty() {
                     return Err(unmatched);
                 }

@@ -41,6 +41,7 @@ mod sequence;
 mod sources;
 pub mod style;
 mod tables;
+mod unmatched;
 pub mod values;
 mod views;
 

@@ -15,7 +15,9 @@
 //!   `14.499999999999998`); compact carries to the next suffix (`999,950`
 //!   to one decimal is `1.0M`) and ends at `T`;
 //! - **a label never shows fewer significant digits than a quoted text of
-//!   the same frame shows for the same quantity** ([`raise_labels`]);
+//!   the same frame shows for the same quantity** ([`write_labels`]), and
+//!   a quote in any frame of a build-up sequence counts for every frame of
+//!   it (`frames::sequence_labels`), descriptions included;
 //! - **the true minus sign** U+2212 in drawn text ([`drawn`]); machine
 //!   outputs (`check`, `check --format json`, `deck.json`'s values) keep the
 //!   hyphen-minus and carry the exact number beside the display string.

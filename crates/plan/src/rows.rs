@@ -195,6 +195,9 @@ impl Checker<'_> {
             Expr::Call { func, args, span } if bucket_named(&func.name).is_some() => {
                 self.bucket(func, args, span, false)
             }
+            Expr::Call { func, args, span } if func.name == "year_quarter" => {
+                self.year_quarter(args, span)
+            }
             Expr::Call { func, span, .. } => {
                 self.not_in_a_row(
                     span.clone(),
@@ -293,6 +296,41 @@ impl Checker<'_> {
             ty,
         };
         Some((e, Ty::Col(ty)))
+    }
+
+    /// `year_quarter(YEAR, QUARTER)`: a year column (or whole numbers) and a
+    /// quarter column (numbers 1 to 4, or texts `Q1` to `Q4`) as one
+    /// quarterly time, a month (`crescendo_data::bucket::year_quarter`).
+    fn year_quarter(
+        &mut self,
+        args: &[ast::CallArg],
+        span: &ast::Span,
+    ) -> Option<(data::Expr, Ty)> {
+        let [ast::CallArg::Value(y), ast::CallArg::Value(q)] = args else {
+            self.err(
+                span.clone(),
+                "`year_quarter(...)` takes a year column and a quarter column".into(),
+                "two arguments",
+            );
+            return None;
+        };
+        let (ye, yt) = self.check(y)?;
+        let (qe, qt) = self.check(q)?;
+        if !matches!(yt, Ty::Col(ColType::Year | ColType::Number)) {
+            let msg = format!(
+                "the year of `year_quarter` must be a year or number column, but this is {}",
+                yt.describe()
+            );
+            self.err(y.span(), msg, "not a year");
+            return None;
+        }
+        if !matches!(qt, Ty::Col(ColType::Number | ColType::Text)) {
+            let msg = format!("the quarter of `year_quarter` must be a number (1 to 4) or text (`Q1` to `Q4`) column, but this is {}", qt.describe());
+            self.err(q.span(), msg, "not a quarter");
+            return None;
+        }
+        let e = data::Expr::YearQuarter(Box::new(ye), Box::new(qe));
+        Some((e, Ty::Col(ColType::Month)))
     }
 
     fn not_in_a_row(&mut self, span: ast::Span, message: String, label: &str, help: &str) {
@@ -502,86 +540,5 @@ pub fn check_condition(
             );
             None
         }
-    }
-}
-
-/// Every equality (`=`, `!=`, `in`) in `expr` between a text column of
-/// `table` and a text literal that matches no value of that column, as a
-/// located error with the closest value as a suggestion: a misspelt
-/// category would otherwise select nothing, silently (and `count` of it is
-/// 0, so a claim on it passes).
-pub fn unmatched_texts(src: &Arc<Source>, table: &Table, expr: &Expr) -> Vec<Diagnostic> {
-    let mut out = Vec::new();
-    unmatched_walk(src, table, expr, &mut out);
-    out
-}
-
-fn unmatched_walk(src: &Arc<Source>, table: &Table, expr: &Expr, out: &mut Vec<Diagnostic>) {
-    let mut check = |col: &Expr, lit: &Expr| {
-        let (Expr::Name(id), Expr::Text(s)) = (col, lit) else {
-            return;
-        };
-        let Some(c) = table
-            .columns
-            .iter()
-            .find(|c| c.name == id.name && c.ty == ColType::Text)
-        else {
-            return;
-        };
-        let mut seen: Vec<String> = Vec::new();
-        for v in c.values.iter() {
-            if let Value::Text(t) = v {
-                if t == s.value {
-                    return;
-                }
-                if !seen.contains(&t) && seen.len() < 10_000 {
-                    seen.push(t);
-                }
-            }
-        }
-        let mut d = Diagnostic::error(
-            "no-match",
-            format!("no row has `{}` = \"{}\"", id.name, s.value),
-        )
-        .at(
-            src,
-            s.span.clone(),
-            "matches no value of this column".to_string(),
-        );
-        d = match closest(&s.value, seen.iter().map(String::as_str)) {
-            Some(c) => d.help(format!("did you mean \"{c}\"?")),
-            None => {
-                let shown: Vec<String> = seen.iter().take(5).map(|t| format!("\"{t}\"")).collect();
-                let more = if seen.len() > 5 { ", …" } else { "" };
-                d.help(format!("`{}` holds {}{more}", id.name, shown.join(", ")))
-            }
-        };
-        out.push(d);
-    };
-    match expr {
-        Expr::Compare {
-            op: BinOp::Eq | BinOp::Ne,
-            left,
-            right,
-            ..
-        } => {
-            check(left, right);
-            check(right, left);
-        }
-        Expr::In {
-            expr: col, list, ..
-        } => {
-            for lit in list {
-                check(col, lit);
-            }
-        }
-        Expr::Not { expr, .. } => unmatched_walk(src, table, expr, out),
-        Expr::Chain { first, rest, .. } => {
-            unmatched_walk(src, table, first, out);
-            for Link { operand, .. } in rest {
-                unmatched_walk(src, table, operand, out);
-            }
-        }
-        _ => {}
     }
 }

@@ -450,7 +450,7 @@ pub fn time_axis(scale: ScaleKind, lo: f64, hi: f64, title: Option<String>) -> A
     let ticks = match scale {
         // Categories carry their own labels; callers build that axis.
         ScaleKind::Linear | ScaleKind::Categories => return linear_axis(lo, hi, false, title),
-        ScaleKind::Months => month_ticks(lo, hi),
+        ScaleKind::Months => month_ticks(lo, hi, false),
         ScaleKind::Days => day_ticks(lo, hi),
         ScaleKind::Years => year_ticks(lo, hi),
     };
@@ -459,6 +459,22 @@ pub fn time_axis(scale: ScaleKind, lo: f64, hi: f64, title: Option<String>) -> A
         scale,
         domain: nonzero_domain(lo, hi),
         ticks,
+        grid: false,
+    }
+}
+
+/// The time axis of quarterly data (every point on a quarter's first
+/// month, as `year_quarter` makes them): ticks every quarter or more,
+/// never between quarters, labelled as quarters ("2024 Q1", "Q2", …, or
+/// fiscal quarters under a fiscal year) or years.
+pub fn quarter_axis(lo: f64, hi: f64, title: Option<String>) -> Axis {
+    let (lo, hi) = sanitize(lo, hi);
+    let (lo, hi) = if lo <= hi { (lo, hi) } else { (hi, lo) };
+    Axis {
+        title,
+        scale: ScaleKind::Months,
+        domain: nonzero_domain(lo, hi),
+        ticks: month_ticks(lo, hi, true),
         grid: false,
     }
 }
@@ -491,7 +507,7 @@ const MONTH_LIMIT: i64 = 1_200_000_000;
 /// inside the range of the calendar functions.
 const DAY_LIMIT: i64 = 100_000_000;
 
-fn month_ticks(lo: f64, hi: f64) -> Vec<Tick> {
+fn month_ticks(lo: f64, hi: f64, quarterly: bool) -> Vec<Tick> {
     let Some((first, last)) = int_bounds(lo, hi, MONTH_LIMIT) else {
         return Vec::new();
     };
@@ -505,7 +521,8 @@ fn month_ticks(lo: f64, hi: f64) -> Vec<Tick> {
     } else {
         0
     };
-    let steps = [1, 2, 3, 6].into_iter().chain(year_steps().map(|y| 12 * y));
+    let finest: &[i64] = if quarterly { &[3] } else { &[1, 2, 3, 6] };
+    let steps = finest.iter().copied().chain(year_steps().map(|y| 12 * y));
     for step in steps {
         let count = (last - offset).div_euclid(step) - ceil_to(first - offset, step) / step + 1;
         if count as usize <= MAX_TIME_TICKS || step >= MONTH_LIMIT {
@@ -514,7 +531,7 @@ fn month_ticks(lo: f64, hi: f64) -> Vec<Tick> {
             while idx <= last && ticks.len() < MAX_TIME_TICKS {
                 let year = idx.div_euclid(12);
                 let month = (idx.rem_euclid(12) + 1) as u32;
-                let label = if fiscal.is_fiscal() && step >= 3 {
+                let label = if (fiscal.is_fiscal() || quarterly) && step >= 3 {
                     fiscal_label(fiscal, step, year as i32, month, ticks.is_empty())
                 } else if step >= 12 {
                     year.to_string()

@@ -47,6 +47,11 @@ pub struct Tables {
     /// For streamed data items, (data item, column) → the first data row
     /// (0-based) and text of a text column's cell that is not a number.
     pub(crate) first_text: BTreeMap<(String, String), (usize, String)>,
+    /// Parquet data items some of whose row groups were skipped by their
+    /// statistics: the first `keep` of a view over one is not checked for
+    /// texts no row holds (the skipped rows were never read; see
+    /// `crate::unmatched`).
+    pub(crate) thinned: std::collections::BTreeSet<String>,
 }
 
 /// What to say about a cell written with thousands separators or a

@@ -92,7 +92,17 @@ impl FormPlanner for Line {
         for s in &mut series {
             s.points.sort_by(|a, b| a.x.total_cmp(&b.x));
         }
-        let x = x_axis(xcol, &categories, lo, hi);
+        let quarterly = xcol.ty == ColType::Month
+            && series.iter().flat_map(|s| &s.points).count() > 1
+            && series
+                .iter()
+                .flat_map(|s| &s.points)
+                .all(|p| (p.x.round() as i64).rem_euclid(3) == 0);
+        let x = match quarterly {
+            // every point a quarter's first month: quarterly data
+            true => scale::quarter_axis(lo, hi, None),
+            false => x_axis(xcol, &categories, lo, hi),
+        };
         let y = scale::linear_axis(ylo, yhi, false, Some(humanize(&ycol.name)));
         let chart = Chart::Line(LineChart {
             x,

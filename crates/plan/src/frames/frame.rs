@@ -43,6 +43,8 @@ pub(crate) struct Made {
     pub(crate) anchors: FrameAnchors,
     /// `footnote claims`: print the claims the texts rest on.
     pub(crate) footnote: bool,
+    /// The name of the chart's key (for descriptions written again).
+    pub(crate) key_name: String,
 }
 
 /// What a frame's own statements said.
@@ -437,6 +439,7 @@ fn finish(
         texts: said.texts,
         anchors,
         footnote: said.footnote,
+        key_name: st.key_name.clone(),
     })
 }
 

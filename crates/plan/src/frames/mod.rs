@@ -25,6 +25,7 @@ use crate::anchors::Anchors;
 use crate::context::Ctx;
 use crate::header::Header;
 use crate::model::{ClaimPlan, FramePlan};
+use crate::numbers::Quoted;
 use crate::scope::Scope;
 use crate::sequence::Sequence;
 use crate::values::Resolved;
@@ -53,6 +54,8 @@ pub(crate) fn plan_frames(
         sequence: 0,
     };
     let mut planned = Vec::new();
+    // per planned frame: the numbers its texts quote and its key's name
+    let mut quotes = Vec::new();
     for (i, f) in items.iter().enumerate() {
         let budget = Budget {
             before: planned.len(),
@@ -76,7 +79,36 @@ pub(crate) fn plan_frames(
             fp.quoted = made.texts.quoted.clone();
             fp.templates = made.texts.templates.clone();
             planned.push(fp);
+            quotes.push((made.texts.numbers.clone(), made.key_name.clone()));
         }
     }
+    sequence_labels(&mut planned, &quotes);
     planned
+}
+
+/// Labels agree across a build-up sequence: a quantity quoted by a text of
+/// any frame of the sequence prints as quoted (or with at least as many
+/// significant digits) in every frame of it, and the descriptions follow
+/// (see `crate::numbers`). Each frame already did so for its own texts.
+fn sequence_labels(planned: &mut [FramePlan], quotes: &[(Vec<Quoted>, String)]) {
+    let mut start = 0;
+    while start < planned.len() {
+        let seq = planned[start].sequence;
+        let end = start
+            + planned[start..]
+                .iter()
+                .take_while(|f| f.sequence == seq)
+                .count();
+        let all: Vec<Quoted> = quotes[start..end]
+            .iter()
+            .flat_map(|(q, _)| q.iter().cloned())
+            .collect();
+        for (fp, (own, key)) in planned[start..end].iter_mut().zip(&quotes[start..end]) {
+            if all.len() > own.len() {
+                crate::numbers::write_labels(&mut fp.chart, &all);
+                fp.description = crate::describe::describe(&fp.chart, key, fp.takeaway.as_deref());
+            }
+        }
+        start = end;
+    }
 }

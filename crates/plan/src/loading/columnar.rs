@@ -14,18 +14,21 @@ use std::fs::File;
 
 use crescendo_data::fold::Fold;
 use crescendo_data::parquet::each_group;
+use crescendo_data::probe::{Probe, Seen};
 use crescendo_data::stream::StreamView;
 use crescendo_data::{Column, Columns, CsvSpec, Expr, Table, Values};
 use crescendo_lang::ast::{self, StepAst};
 
-use crate::context::Ctx;
+use crate::context::{Ctx, Outcome};
 use crate::loading::facts::prefix_len;
 use crate::loading::state::Loader;
-use crate::loading::stream::{prefixes, record};
+use crate::loading::stream::{prefixes, probed, record};
 use crate::tables::Tables;
 
 /// Stream a Parquet data item; the item's table without rows and the row
-/// groups skipped by their statistics. `None`: load it whole instead.
+/// groups skipped by their statistics. `None`: load it whole instead;
+/// `Some(Err)`: a `keep` compares a column with a text no row holds
+/// (reported).
 pub(crate) fn stream_parquet(
     cx: &mut Ctx,
     loader: &mut Loader,
@@ -33,7 +36,7 @@ pub(crate) fn stream_parquet(
     (decl, spec, file): (&ast::DataDecl, &CsvSpec, &File),
     views: &[ast::ViewDecl],
     (keep, keeps): (&Columns, &[Expr]),
-) -> Option<(Table, usize)> {
+) -> Option<Outcome<(Table, usize)>> {
     let keep_only = views.iter().any(|v| {
         let n = prefix_len(&v.steps);
         !v.steps[..n].iter().any(|s| matches!(s, StepAst::By { .. }))
@@ -69,14 +72,28 @@ pub(crate) fn stream_parquet(
         .map(|c| (c.name.clone(), c.ty))
         .collect();
     let keep_values: Vec<bool> = schema.iter().map(|(n, _)| keep.keeps(n)).collect();
+    let schema_of = schema.clone();
     let mut fold = Fold::new(&runs, &keep_values, &limits, schema);
     let mut add = |t: Table| fold.add(&t);
     let done = each_group(spec, file, keep, &limits, keeps, &mut add).ok()?;
     if done.stopped || fold.rows() == 0 {
         return None;
     }
+    let probes = fold.probes();
+    let unread = |met: &Vec<(Probe, Seen)>| met.iter().any(|(p, s)| p.keep == 0 && !s.found);
+    if done.skipped > 0 && probes.iter().any(unread) {
+        // a first `keep`'s text may be held only by rows of skipped groups,
+        // which were never read: the whole load checks it (see
+        // `crate::unmatched::Which`)
+        return None;
+    }
     let found: Vec<Option<Table>> = fold.finish()?.into_iter().map(Some).collect();
     let all: Vec<usize> = (0..found.len()).collect();
+    let unmatched = probed(cx, &schema_of, views, &all, &probes);
+    if !unmatched.is_empty() {
+        let reported = unmatched.into_iter().map(|d| cx.report(d)).last();
+        return reported.map(Err);
+    }
     record(loader, tables, None, prefixes, found, &all)?;
-    Some((shell, done.skipped))
+    Some(Ok((shell, done.skipped)))
 }

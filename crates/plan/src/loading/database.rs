@@ -28,6 +28,7 @@ use crescendo_sql::{types, Explained, SrcColumn};
 
 use crate::context::{Ctx, Outcome};
 use crate::io::Database;
+use crate::loading::db_probe;
 use crate::loading::facts::database_prefix_len;
 use crate::loading::files::data_spec;
 use crate::loading::state::Loader;
@@ -35,8 +36,9 @@ use crate::tables::{Streamed, Tables};
 use crate::views::resolved_quietly;
 
 /// A view's prefix query: the view, the number of its steps (as written)
-/// the prefix covers, the resolved prefix steps and the query.
-type PrefixQuery = (String, usize, Vec<Step>, print::Query);
+/// the prefix covers, the resolved prefix steps, the query, and the
+/// queries that ask about the text literals of its `keep`s.
+type PrefixQuery = (String, usize, Vec<Step>, print::Query, Vec<db_probe::Probe>);
 
 /// The database data item being read.
 struct Item<'a> {
@@ -317,7 +319,23 @@ fn fetch_views(
     prefixes: Vec<PrefixQuery>,
 ) -> Outcome<()> {
     let span = item.decl.file.span.clone();
-    for (view, n, steps, q) in prefixes {
+    let views = loader.facts.streamable.get(item.name()).cloned();
+    for (view, n, steps, q, asked) in prefixes {
+        let decl = views.iter().flatten().find(|v| v.name.name == view);
+        if let (Some(decl), false) = (decl, asked.is_empty()) {
+            match db_probe::check(cx, &mut *session, item.timeout, decl, &asked) {
+                Ok(ds) if ds.is_empty() => {}
+                Ok(ds) => {
+                    let reported = ds.into_iter().map(|d| cx.report(d)).last();
+                    return Err(reported.unwrap_or_else(|| cx.already_reported()));
+                }
+                Err(m) => {
+                    let msg = format!("{m} (checking the texts of view `{view}`)");
+                    let d = item.fail(cx, span, msg, "while reading this source");
+                    return Err(cx.report(d));
+                }
+            }
+        }
         let table = match run(
             item,
             (&mut *session, &mut *explained),
@@ -414,6 +432,7 @@ fn prefix_queries(
         // steps, so their picks are found by name in the schema the
         // steps before them give (run over the empty shell).
         let mut pieces = Vec::new();
+        let mut asked = Vec::new();
         let mut resolved = steps.iter();
         let mut schema = shell.clone();
         for s in v.steps.get(..n)? {
@@ -433,8 +452,12 @@ fn prefix_queries(
                 }
                 _ => {
                     let step = resolved.next()?.clone();
-                    schema = crescendo_data::run_view(&schema, std::slice::from_ref(&step));
+                    let before = schema;
+                    schema = crescendo_data::run_view(&before, std::slice::from_ref(&step));
                     pieces.push(print::Piece::Step(step));
+                    let at = pieces.len() - 1;
+                    let source = (from, order, cols.as_slice());
+                    asked.extend(db_probe::of_keep(source, &pieces, at, &before));
                 }
             }
         }
@@ -449,7 +472,7 @@ fn prefix_queries(
             })
             .collect();
         let q = print::pipeline(from, order, cols, &pieces);
-        out.push((v.name.name.clone(), n, prefix, q));
+        out.push((v.name.name.clone(), n, prefix, q, asked));
     }
     Some(out)
 }

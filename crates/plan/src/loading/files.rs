@@ -118,11 +118,13 @@ pub(crate) fn reported<T>(
             // every bad row and cell of the file, each located in it
             let mut last = None;
             for d in ds {
-                let d = d.also(
-                    cx.src,
-                    decl.file.span.clone(),
-                    format!("while loading `{}`", decl.name.name),
-                );
+                let label = format!("while loading `{}`", decl.name.name);
+                // a workbook's cells are named in the message (sheet and
+                // A1 cell): such a problem is at the data item
+                let d = match d.location() {
+                    Some(_) => d.also(cx.src, decl.file.span.clone(), label),
+                    None => d.at(cx.src, decl.file.span.clone(), label),
+                };
                 last = Some(cx.report(d));
             }
             return Err(last.unwrap_or_else(|| cx.already_reported()));

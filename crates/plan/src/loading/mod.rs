@@ -52,6 +52,7 @@
 
 mod columnar;
 mod database;
+mod db_probe;
 mod facts;
 mod files;
 mod skip;
@@ -121,9 +122,11 @@ impl Loader {
                     &views,
                     (&keep, keeps.as_slice()),
                 );
-                if let Some((shell, n)) = streamed {
+                if let Some(streamed) = streamed {
+                    let (shell, n) = streamed?;
                     if n > 0 {
                         self.report.skipped_groups.push(format!("{name}: {n}"));
+                        tables.thinned.insert(name.clone());
                     }
                     self.report.streamed.push(name);
                     return Ok(shell);
@@ -138,6 +141,7 @@ impl Loader {
             );
             if let Ok((_, n @ 1..)) = &read {
                 self.report.skipped_groups.push(format!("{name}: {n}"));
+                tables.thinned.insert(name.clone());
             }
             self.report.loaded.push(name);
             return files::reported(cx, decl, read.map(|(t, _)| t));

@@ -6,9 +6,11 @@ use std::collections::BTreeSet;
 use std::fs::File;
 
 use crescendo_data::load::ReadLimits;
+use crescendo_data::probe::{Probe, Seen};
 use crescendo_data::store::StoredTable;
 use crescendo_data::stream::{ScanFailure, ScanInput, StreamView};
 use crescendo_data::{ColType, Column, Columns, CsvSpec, Step, Table, Values};
+use crescendo_diag::Diagnostic;
 use crescendo_lang::ast::{self, StepAst};
 use serde::de::DeserializeOwned;
 use serde::{Deserialize, Serialize};
@@ -20,6 +22,7 @@ use crate::loading::facts::{names_in_steps, prefix_len};
 use crate::loading::files;
 use crate::loading::state::Loader;
 use crate::tables::{Streamed, Tables};
+use crate::unmatched::{unmatched, Lookup};
 use crate::views::resolved_quietly;
 
 /// Records read to guess the types of undeclared columns.
@@ -214,6 +217,11 @@ pub(crate) fn stream(
             Err(e) => return Some(files::reported(cx, decl, Err(*e))),
         };
         first_text = tables_read.0;
+        let unmatched = probed(cx, &entry.schema, views, &missing, &tables_read.2);
+        if !unmatched.is_empty() {
+            let reported = unmatched.into_iter().map(|d| cx.report(d)).last();
+            return reported.map(Err);
+        }
         for (&i, t) in missing.iter().zip(tables_read.1) {
             if let Some(k) = &prefixes[i].key {
                 put(cx.io.cache(), "views", k, &StoredTable::from(&t));
@@ -241,8 +249,47 @@ pub(crate) fn stream(
 }
 
 /// What one pass over a file gives: per column the first cell of a text
-/// column that is not a number (row, text), and the prefix tables.
-type Scanned = (Vec<Option<(usize, String)>>, Vec<Table>);
+/// column that is not a number (row, text), the prefix tables, and what
+/// the text literals of their `keep`s met.
+type Scanned = (
+    Vec<Option<(usize, String)>>,
+    Vec<Table>,
+    Vec<Vec<(Probe, Seen)>>,
+);
+
+/// The text literals of the streamed views' `keep`s that no row reaching
+/// them holds (see `crate::unmatched`), as located errors: `probes[k]` is
+/// what the view `views[missing[k]]` met.
+pub(crate) fn probed(
+    cx: &Ctx,
+    schema: &[(String, ColType)],
+    views: &[ast::ViewDecl],
+    missing: &[usize],
+    probes: &[Vec<(Probe, Seen)>],
+) -> Vec<Diagnostic> {
+    let mut out = Vec::new();
+    for (&i, met) in missing.iter().zip(probes) {
+        let Some(v) = views.get(i) else { continue };
+        // the streamed `keep`s are the view's first steps
+        for (k, step) in v.steps.iter().enumerate() {
+            let StepAst::Keep { expr, .. } = step else {
+                break;
+            };
+            out.extend(unmatched(cx.src, expr, &mut |name, text| {
+                let column = schema.iter().position(|(n, _)| n == name);
+                let hit = met
+                    .iter()
+                    .find(|(p, _)| p.keep == k && Some(p.column) == column && p.text == text);
+                match hit {
+                    Some((_, seen)) if seen.found => Lookup::Found,
+                    Some((_, seen)) => Lookup::Absent(seen.values.clone()),
+                    None => Lookup::Unknown,
+                }
+            }));
+        }
+    }
+    out
+}
 
 /// The first non-number texts and the tables of the views `missing`, in
 /// one pass over the file. `Ok(None)`: fall back to the whole load.
@@ -271,7 +318,7 @@ fn scan(
     match cx.io.scan_csv(&input) {
         // "a header but no data rows" is the loader's to say
         Ok(out) if out.rows == 0 => Ok(None),
-        Ok(out) => Ok(Some((out.first_text, out.tables))),
+        Ok(out) => Ok(Some((out.first_text, out.tables, out.probes))),
         Err(ScanFailure::Fallback) => Ok(None),
         Err(ScanFailure::Io(e)) => Err(e),
     }

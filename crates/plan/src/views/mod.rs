@@ -77,6 +77,24 @@ pub(crate) fn build_view_with(
         }
         // The prefix computed during the read ends with this step.
         let ends = prefix.filter(|p| index + 1 == p.ast_steps);
+        // A text literal no row holds (the steps of a prefix computed
+        // during the read were checked there; a table without rows is a
+        // data item's columns only).
+        let read = prefix.is_some_and(|p| index < p.ast_steps);
+        let thinned = index == 0 && input.is_data && tables.thinned.contains(&input.root);
+        let rows = built.table.columns.first().map_or(0, |c| c.values.len());
+        if let (ast::StepAst::Keep { expr, .. }, false) = (step_ast, read) {
+            // (a Parquet item whose row groups were all skipped has no rows)
+            if thinned || rows > 0 {
+                use crate::unmatched::{in_table_checking, Which};
+                let which = if thinned { Which::Positive } else { Which::All };
+                let unmatched = in_table_checking(src, &built.table, expr, which);
+                if !unmatched.is_empty() {
+                    diags.extend(unmatched);
+                    return None;
+                }
+            }
+        }
         match checked? {
             Checked::Columns(picked) => {
                 built.table = Table {

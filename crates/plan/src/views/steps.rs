@@ -111,12 +111,11 @@ fn add(at: &At, new: &Ident, expr: &Expr, diags: &mut Vec<Diagnostic>) -> Option
     }
     let mut ck = at.checker(diags);
     match ck.check_added(expr) {
-        Some((e @ data::Expr::Bucket { .. }, _)) | Some((e, Ty::Col(ColType::Number))) => {
-            Some(Step::Derive {
-                name: new.name.clone(),
-                expr: e,
-            })
-        }
+        Some((e @ (data::Expr::Bucket { .. } | data::Expr::YearQuarter(..)), _))
+        | Some((e, Ty::Col(ColType::Number))) => Some(Step::Derive {
+            name: new.name.clone(),
+            expr: e,
+        }),
         Some((_, t)) => {
             ck.err(
                 expr.span(),

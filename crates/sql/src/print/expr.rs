@@ -42,6 +42,7 @@ impl Printer {
                 Value::Year(_) => ColType::Year,
             },
             Expr::Bucket { ty, .. } => *ty,
+            Expr::YearQuarter(..) => ColType::Month,
             _ => ColType::Number,
         }
     }
@@ -80,6 +81,11 @@ impl Printer {
             Expr::Bucket { bucket, of, .. } => {
                 let x = self.value(of);
                 bucket_sql(*bucket, &x)
+            }
+            Expr::YearQuarter(y, q) => {
+                let (yt, qt) = (self.ty_of(y), self.ty_of(q));
+                let (y, q) = (self.value(y), self.value(q));
+                year_quarter_sql((&y, yt), (&q, qt))
             }
             // A predicate used as a value is missing (as in the engine).
             _ => "NULL".to_string(),
@@ -221,6 +227,30 @@ fn quarter_prefix(f: crescendo_data::locale::Fiscal) -> &'static str {
 /// a backslash is itself).
 fn text_literal(text: &str) -> String {
     format!("'{}'", text.replace('\'', "''"))
+}
+
+/// `year_quarter(y, q)` as `crescendo_data::bucket::year_quarter` computes
+/// it: the ISO text (`YYYY-MM`) of the quarter's first month, NULL unless
+/// the year is a year or a whole number 1 to 9999 and the quarter a number
+/// 1 to 4 or a text `1`..`4`, `Q1`..`Q4` (any case, spaces around it
+/// ignored).
+pub(super) fn year_quarter_sql((y, yt): (&str, ColType), (q, qt): (&str, ColType)) -> String {
+    let year = match yt {
+        ColType::Year => y.to_string(),
+        _ => format!(
+            "(CASE WHEN {y} = trunc({y}) AND {y} BETWEEN 1 AND 9999 THEN CAST({y} AS integer) END)"
+        ),
+    };
+    let quarter = match qt {
+        ColType::Text => format!(
+            "(CASE WHEN upper(trim(' ' FROM {q})) IN ('1', '2', '3', '4', 'Q1', 'Q2', 'Q3', 'Q4') \
+             THEN CAST(right(trim(' ' FROM {q}), 1) AS integer) END)"
+        ),
+        _ => format!("(CASE WHEN {q} IN (1, 2, 3, 4) THEN CAST({q} AS integer) END)"),
+    };
+    format!(
+        "(lpad(CAST({year} AS text), 4, '0') || '-' || lpad(CAST(({quarter} - 1) * 3 + 1 AS text), 2, '0'))"
+    )
 }
 
 /// The fiscal year (named by the calendar year it ends in) as text.

@@ -23,6 +23,7 @@
 //! | arithmetic in doubles                           | `::double precision`                         |
 //! | `add NAME = EXPR` (a number column)             | the expression, inlined where it is used     |
 //! | time buckets of dates and months (`crescendo_data::bucket`) | `substr` of the ISO text; `to_char` with `IYYY`, `IW`, `Dy` for weeks and weekdays (`expr::bucket_sql`) |
+//! | `year_quarter(y, q)`: the quarter's first month, or missing | `lpad` of the year and month in ISO text, `CASE` for the cells that make a quarter (`expr::year_quarter_sql`) |
 //! | number keys are doubles (`-0` is `0`)           | `GROUP BY x::double precision`               |
 //! | groups in order of first appearance             | `ORDER BY min(r)`                            |
 //! | a missing key is a group of its own             | `GROUP BY` puts NULLs in one group           |
