@@ -13,9 +13,8 @@ use crate::describe::describe;
 use crate::forms;
 use crate::frames::texts::FrameTexts;
 use crate::frames::unfold::{self, Budget};
-use crate::frames::{
-    annotations, axes, cite, mark_notes, moments, positions, roles, split, targets,
-};
+use crate::frames::{annotations, axes, cite, mark_notes, moments};
+use crate::frames::{positions, roles, split, targets};
 use crate::header::Header;
 use crate::labels::slug;
 use crate::model::*;
