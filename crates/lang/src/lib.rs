@@ -9,6 +9,7 @@ pub mod format;
 pub mod parser;
 mod position;
 pub mod source;
+mod template_ast;
 pub mod visit;
 
 pub use format::{format_source, format_story};
