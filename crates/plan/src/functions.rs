@@ -7,7 +7,7 @@ use crescendo_diag::{closest, Diagnostic};
 use crescendo_lang::ast::{CallArg, Expr, Selection, Span};
 
 use crate::rows::{self, schema_of};
-use crate::values::{Evaluator, Quantity};
+use crate::values::{Computed, Evaluator, Quantity};
 
 const FUNCTIONS: &[&str] = &[
     "last",
@@ -69,7 +69,7 @@ impl Evaluator<'_> {
         fspan: &Span,
         args: &[CallArg],
         span: &Span,
-    ) -> Result<Quantity, Vec<Diagnostic>> {
+    ) -> Computed {
         match fname {
             "ratio" => self.ratio(args, span),
             "count" => self.count(fname, args, span),
@@ -110,7 +110,7 @@ impl Evaluator<'_> {
         r: Result<f64, stats::StatError>,
         p: &Picked,
         span: &Span,
-    ) -> Result<Quantity, Vec<Diagnostic>> {
+    ) -> Computed {
         r.map(Quantity::Number)
             .map_err(|e| self.stat_err(fname, e, p, span))
     }
@@ -323,7 +323,7 @@ impl Evaluator<'_> {
     }
 
     /// `ratio(a, b)`.
-    fn ratio(&self, args: &[CallArg], span: &Span) -> Result<Quantity, Vec<Diagnostic>> {
+    fn ratio(&self, args: &[CallArg], span: &Span) -> Computed {
         let [CallArg::Value(a), CallArg::Value(b)] = args else {
             return Err(vec![self
                 .err(
@@ -362,12 +362,7 @@ impl Evaluator<'_> {
     }
 
     /// `count(VIEW [where ...])` or `count(VIEW.COLUMN ...)`: rows, or present cells.
-    fn count(
-        &self,
-        fname: &str,
-        args: &[CallArg],
-        span: &Span,
-    ) -> Result<Quantity, Vec<Diagnostic>> {
+    fn count(&self, fname: &str, args: &[CallArg], span: &Span) -> Computed {
         let sel = self.selection_arg(fname, args, span)?;
         let p = self.pick(sel, false)?;
         let n = if sel.column.is_some() {
@@ -382,12 +377,7 @@ impl Evaluator<'_> {
     }
 
     /// `first`, `last`, `min`, `max` of a column.
-    fn extreme(
-        &self,
-        fname: &str,
-        args: &[CallArg],
-        span: &Span,
-    ) -> Result<Quantity, Vec<Diagnostic>> {
+    fn extreme(&self, fname: &str, args: &[CallArg], span: &Span) -> Computed {
         let sel = self.selection_arg(fname, args, span)?;
         let p = self.pick(sel, true)?;
         let present: Vec<&Value> = p
@@ -434,12 +424,7 @@ impl Evaluator<'_> {
     }
 
     /// `sum`, `mean`, `median` of a number column.
-    fn sums(
-        &self,
-        fname: &str,
-        args: &[CallArg],
-        span: &Span,
-    ) -> Result<Quantity, Vec<Diagnostic>> {
+    fn sums(&self, fname: &str, args: &[CallArg], span: &Span) -> Computed {
         let (p, xs) = self.selected_numbers(fname, args, span)?;
         let r = match fname {
             "sum" => stats::sum(&xs),
@@ -450,12 +435,7 @@ impl Evaluator<'_> {
     }
 
     /// `sample_variance`, `population_variance` and their square roots.
-    fn spread(
-        &self,
-        fname: &str,
-        args: &[CallArg],
-        span: &Span,
-    ) -> Result<Quantity, Vec<Diagnostic>> {
+    fn spread(&self, fname: &str, args: &[CallArg], span: &Span) -> Computed {
         let (p, xs) = self.selected_numbers(fname, args, span)?;
         let divisor = if fname.starts_with("sample") {
             stats::Divisor::Sample
@@ -501,12 +481,7 @@ impl Evaluator<'_> {
     }
 
     /// `share`: the selected part of the column's total.
-    fn share(
-        &self,
-        fname: &str,
-        args: &[CallArg],
-        span: &Span,
-    ) -> Result<Quantity, Vec<Diagnostic>> {
+    fn share(&self, fname: &str, args: &[CallArg], span: &Span) -> Computed {
         let (p, xs) = self.selected_numbers(fname, args, span)?;
         let all: Vec<f64> = p.all.iter().filter_map(num).collect();
         let r = stats::sum(&xs)
@@ -515,12 +490,7 @@ impl Evaluator<'_> {
     }
 
     /// `change` and `percent_change` from the first to the last number.
-    fn change(
-        &self,
-        fname: &str,
-        args: &[CallArg],
-        span: &Span,
-    ) -> Result<Quantity, Vec<Diagnostic>> {
+    fn change(&self, fname: &str, args: &[CallArg], span: &Span) -> Computed {
         let (p, xs) = self.selected_numbers(fname, args, span)?;
         let r = match (xs.first(), xs.last()) {
             (Some(a), Some(b)) if xs.len() >= 2 => {
@@ -539,12 +509,7 @@ impl Evaluator<'_> {
     }
 
     /// `growth`: the compound yearly rate along a time column.
-    fn growth(
-        &self,
-        fname: &str,
-        args: &[CallArg],
-        span: &Span,
-    ) -> Result<Quantity, Vec<Diagnostic>> {
+    fn growth(&self, fname: &str, args: &[CallArg], span: &Span) -> Computed {
         let sel = self.selection_arg(fname, args, span)?;
         let p = self.pick(sel, true)?;
         let Some((bt, bys)) = &p.by else {
@@ -599,12 +564,7 @@ impl Evaluator<'_> {
     }
 
     /// `rank`: the place of the one selected number among the column's.
-    fn rank(
-        &self,
-        fname: &str,
-        args: &[CallArg],
-        span: &Span,
-    ) -> Result<Quantity, Vec<Diagnostic>> {
+    fn rank(&self, fname: &str, args: &[CallArg], span: &Span) -> Computed {
         let (p, xs) = self.selected_numbers(fname, args, span)?;
         if xs.len() != 1 {
             return Err(vec![self
@@ -626,7 +586,7 @@ impl Evaluator<'_> {
     }
 
     /// `slope`, `intercept`, `correlation` of a least-squares fit along a column.
-    fn fit(&self, fname: &str, args: &[CallArg], span: &Span) -> Result<Quantity, Vec<Diagnostic>> {
+    fn fit(&self, fname: &str, args: &[CallArg], span: &Span) -> Computed {
         let sel = self.selection_arg(fname, args, span)?;
         let p = self.pick(sel, true)?;
         self.numbers(fname, sel, &p)?;

@@ -98,6 +98,9 @@ pub fn names_in(e: &Expr, out: &mut BTreeSet<String>) {
     Names(out).visit_expr(e);
 }
 
+/// A value computed, or why it cannot be.
+pub type Computed = Result<Quantity, Vec<Diagnostic>>;
+
 /// Evaluates value expressions against the story's tables.
 pub struct Evaluator<'a> {
     pub src: &'a Arc<Source>,
@@ -127,7 +130,7 @@ impl Evaluator<'_> {
     }
 
     /// Evaluate a value expression; errors are returned located.
-    pub fn eval(&self, e: &Expr) -> Result<Quantity, Vec<Diagnostic>> {
+    pub fn eval(&self, e: &Expr) -> Computed {
         match e {
             Expr::Number { value, .. } => Ok(Quantity::Number(*value)),
             Expr::Name(id) => self.name(id),
@@ -162,7 +165,7 @@ impl Evaluator<'_> {
     }
 
     /// The value of a name.
-    fn name(&self, id: &Ident) -> Result<Quantity, Vec<Diagnostic>> {
+    fn name(&self, id: &Ident) -> Computed {
         if let Some(q) = self.values.by_name.get(&id.name) {
             return Ok(q.clone());
         }
@@ -190,7 +193,7 @@ impl Evaluator<'_> {
 
     /// `a + b - c` or `a * b / c`, left to right in a loop. Every operand
     /// is evaluated, so that each problem is reported.
-    fn arithmetic(&self, first: &Expr, rest: &[Link]) -> Result<Quantity, Vec<Diagnostic>> {
+    fn arithmetic(&self, first: &Expr, rest: &[Link]) -> Computed {
         let mut acc = self.eval(first);
         let mut left_end = first;
         for link in rest {
@@ -211,7 +214,7 @@ impl Evaluator<'_> {
         op: BinOp,
         (l, first, left_end): (Quantity, &Expr, &Expr),
         (r, right): (Quantity, &Expr),
-    ) -> Result<Quantity, Vec<Diagnostic>> {
+    ) -> Computed {
         let span = span_from(first, right);
         let (Quantity::Number(a), Quantity::Number(b)) = (&l, &r) else {
             let (bad, q) = if matches!(l, Quantity::Number(_)) {
