@@ -6,7 +6,6 @@
 
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, faint_fill, rect, Obstacles, Rect};
-use crate::layout::map;
 use crate::line_layout::LineLayout;
 use crate::metrics::{self, line_height, text_width};
 use crate::place::{self, Pick};
@@ -21,28 +20,6 @@ const CALLOUT_WIDTH: f64 = 260.0;
 /// Most lines a callout may take.
 const CALLOUT_LINES: usize = 3;
 
-fn xmap(chart: &LineChart, l: &LineLayout) -> impl Fn(f64) -> f64 {
-    let d = chart.x.domain;
-    let (a, b) = (l.plot_left, l.plot_right);
-    move |x| map(x, d, a, b)
-}
-
-fn ymap(chart: &LineChart, l: &LineLayout) -> impl Fn(f64) -> f64 {
-    let d = chart.y.domain;
-    let (a, b) = (l.plot_bottom, l.plot_top);
-    move |y| map(y, d, a, b)
-}
-
-/// Where labels may go: the plot, with half a line of room at the top.
-fn bounds(theme: &Theme, l: &LineLayout) -> Rect {
-    rect(
-        l.plot_left,
-        l.plot_top - line_height(theme.label_size) / 2.0,
-        l.plot_right,
-        l.plot_bottom - 2.0,
-    )
-}
-
 /// Draws the bands and reference lines, under the data.
 pub(crate) fn draw_under(
     canvas: &Canvas,
@@ -51,7 +28,7 @@ pub(crate) fn draw_under(
     l: &LineLayout,
 ) -> Result<(), RenderError> {
     crate::moments::draw_under(canvas, theme, chart, l)?;
-    let (xm, ym) = (xmap(chart, l), ymap(chart, l));
+    let (xm, ym) = (l.xmap(chart), l.ymap(chart));
     for a in &chart.annotations {
         match a {
             Annotation::Band { from, to, .. } if from.is_finite() && to.is_finite() => {
@@ -109,9 +86,9 @@ fn band_names(
     l: &LineLayout,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let xm = xmap(chart, l);
+    let xm = l.xmap(chart);
     let lh = line_height(theme.label_size);
-    let area = bounds(theme, l);
+    let area = l.note_bounds(theme);
     let plot_w = l.plot_right - l.plot_left;
     for a in &chart.annotations {
         let Annotation::Band {
@@ -152,9 +129,9 @@ fn reference_names(
     l: &LineLayout,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let ym = ymap(chart, l);
+    let ym = l.ymap(chart);
     let lh = line_height(theme.label_size);
-    let area = bounds(theme, l);
+    let area = l.note_bounds(theme);
     let plot_w = l.plot_right - l.plot_left;
     for a in &chart.annotations {
         let Annotation::Reference { value, text } = a else {
@@ -201,9 +178,9 @@ fn end_values(
     l: &LineLayout,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let (xm, ym) = (xmap(chart, l), ymap(chart, l));
+    let (xm, ym) = (l.xmap(chart), l.ymap(chart));
     let lh = line_height(theme.label_size);
-    let area = bounds(theme, l);
+    let area = l.note_bounds(theme);
     if chart.end_labels {
         for s in &chart.series {
             if s.end_values.is_empty() {
@@ -269,9 +246,9 @@ fn callouts(
     l: &LineLayout,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let (xm, ym) = (xmap(chart, l), ymap(chart, l));
+    let (xm, ym) = (l.xmap(chart), l.ymap(chart));
     let lh = line_height(theme.label_size);
-    let area = bounds(theme, l);
+    let area = l.note_bounds(theme);
     let plot_w = l.plot_right - l.plot_left;
     for a in &chart.annotations {
         let Annotation::Callout { x, y, text } = a else {
@@ -308,21 +285,8 @@ fn callouts(
             canvas.line(from, to, theme.muted, 1)?;
             obstacles.segments.push((from, to));
         }
-        for (k, line) in lines.iter().enumerate() {
-            kit::put(
-                canvas,
-                obstacles,
-                &Label {
-                    text: line,
-                    x: r.x0,
-                    top: r.y0 + k as f64 * step,
-                    size: theme.label_size,
-                    bold: false,
-                    color: theme.takeaway,
-                    align: Align::Start,
-                },
-            )?;
-        }
+        let style = (theme.label_size, false, theme.takeaway);
+        kit::put_lines(canvas, obstacles, &lines, (&r, step), style)?;
     }
     Ok(())
 }

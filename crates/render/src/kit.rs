@@ -78,6 +78,23 @@ pub(crate) fn put_in(
     put(canvas, obstacles, &label)
 }
 
+/// Draws the lines of a note, one under the other `step` apart, from the
+/// top left of `spot`, and records their boxes.
+pub(crate) fn put_lines<S: AsRef<str>>(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    lines: &[S],
+    (spot, step): (&Rect, f64),
+    style: (f64, bool, Rgb),
+) -> Result<(), RenderError> {
+    for (k, line) in lines.iter().enumerate() {
+        let top = spot.y0 + k as f64 * step;
+        let at = Rect { y0: top, ..*spot };
+        put_in(canvas, obstacles, line.as_ref(), &at, style)?;
+    }
+    Ok(())
+}
+
 /// Places labels of different widths along one line as close as possible
 /// to their wanted centres, `gap` apart and inside `lo..=hi`. Labels keep
 /// their order (sorted by wanted centre). Returns the centres; when they

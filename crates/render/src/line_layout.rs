@@ -31,6 +31,31 @@ pub(crate) struct LineLayout {
     pub x_tick_top: f64,
 }
 
+impl LineLayout {
+    /// Data to px along the x axis of `chart`.
+    pub(crate) fn xmap(&self, chart: &LineChart) -> impl Fn(f64) -> f64 {
+        let (d, a, b) = (chart.x.domain, self.plot_left, self.plot_right);
+        move |x| layout::map(x, d, a, b)
+    }
+
+    /// Data to px along the y axis of `chart`.
+    pub(crate) fn ymap(&self, chart: &LineChart) -> impl Fn(f64) -> f64 {
+        let (d, a, b) = (chart.y.domain, self.plot_bottom, self.plot_top);
+        move |y| layout::map(y, d, a, b)
+    }
+
+    /// Where notes on the chart may go: the plot, with half a line of room
+    /// at the top.
+    pub(crate) fn note_bounds(&self, theme: &Theme) -> crate::kit::Rect {
+        crate::kit::Rect {
+            x0: self.plot_left,
+            y0: self.plot_top - line_height(theme.label_size) / 2.0,
+            x1: self.plot_right,
+            y1: self.plot_bottom - 2.0,
+        }
+    }
+}
+
 /// The direct labels at the right: for each series with a value, its line
 /// end's y (`wanted`), the centre its label gets after de-overlapping
 /// (`placed`) and its index, ordered top to bottom. Every series counts,

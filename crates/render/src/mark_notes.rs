@@ -6,7 +6,7 @@
 //! avoiding every text and data mark the form drew, inside the chart's
 //! region, with a leader back to the mark when it had to move away.
 
-use crate::canvas::{Align, Canvas, Label};
+use crate::canvas::Canvas;
 use crate::kit::{self, Obstacles, Rect};
 use crate::layout::Region;
 use crate::metrics::{self, line_height, text_width};
@@ -83,21 +83,8 @@ pub(crate) fn draw(
             canvas.line(from, to, theme.muted, 1)?;
             obstacles.segments.push((from, to));
         }
-        for (k, line) in lines.iter().enumerate() {
-            kit::put(
-                canvas,
-                &mut obstacles,
-                &Label {
-                    text: line,
-                    x: r.x0,
-                    top: r.y0 + k as f64 * step,
-                    size: theme.label_size,
-                    bold: false,
-                    color: theme.takeaway,
-                    align: Align::Start,
-                },
-            )?;
-        }
+        let style = (theme.label_size, false, theme.takeaway);
+        kit::put_lines(canvas, &mut obstacles, &lines, (&r, step), style)?;
     }
     Ok(())
 }

@@ -4,9 +4,8 @@
 //! the line, on whichever side is clear of the data, a row lower when both
 //! are taken.
 
-use crate::canvas::{Align, Canvas, Label};
+use crate::canvas::Canvas;
 use crate::kit::{self, faint_fill, Obstacles, Rect};
-use crate::layout::map;
 use crate::line_layout::LineLayout;
 use crate::metrics::{self, line_height, text_width};
 use crate::place::{self, Pick};
@@ -21,23 +20,6 @@ const DASH: (f64, f64) = (6.0, 4.0);
 const GAP: f64 = 6.0;
 /// Rows down from the top of the plot a label may move to.
 const ROWS: usize = 8;
-
-/// Data to px along the x axis.
-fn xmap(chart: &LineChart, l: &LineLayout) -> impl Fn(f64) -> f64 {
-    let (d, a, b) = (chart.x.domain, l.plot_left, l.plot_right);
-    move |x| map(x, d, a, b)
-}
-
-/// Where labels may go: the plot, with half a line of room at the top (as
-/// for the other notes of a line chart).
-fn bounds(theme: &Theme, l: &LineLayout) -> Rect {
-    Rect {
-        x0: l.plot_left,
-        y0: l.plot_top - line_height(theme.label_size) / 2.0,
-        x1: l.plot_right,
-        y1: l.plot_bottom - 2.0,
-    }
-}
 
 /// The moments of a chart as (from, to, text), finite only.
 fn moments(chart: &LineChart) -> impl Iterator<Item = (f64, Option<f64>, &str)> {
@@ -70,7 +52,7 @@ pub(crate) fn draw_under(
     chart: &LineChart,
     l: &LineLayout,
 ) -> Result<(), RenderError> {
-    let xm = xmap(chart, l);
+    let xm = l.xmap(chart);
     for (from, to, _) in moments(chart) {
         let x0 = xm(from).clamp(l.plot_left, l.plot_right);
         match to {
@@ -116,8 +98,8 @@ pub(crate) fn draw_over(
     l: &LineLayout,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let xm = xmap(chart, l);
-    let area = bounds(theme, l);
+    let xm = l.xmap(chart);
+    let area = l.note_bounds(theme);
     let lh = line_height(theme.label_size);
     let room = (l.plot_right - l.plot_left) * 0.4;
     // every marker line first: no moment's label may cross another's line
@@ -136,19 +118,8 @@ pub(crate) fn draw_over(
         let top = l.plot_top + 2.0;
         let cands = candidates(x, w, lh, top, theme.label_step());
         if let Some(r) = place::pick(&cands, obstacles, &area, Pick::FirstFree) {
-            kit::put(
-                canvas,
-                obstacles,
-                &Label {
-                    text: &text,
-                    x: r.x0,
-                    top: r.y0,
-                    size: theme.label_size,
-                    bold: false,
-                    color: theme.takeaway,
-                    align: Align::Start,
-                },
-            )?;
+            let style = (theme.label_size, false, theme.takeaway);
+            kit::put_in(canvas, obstacles, &text, &r, style)?;
         }
     }
     Ok(())
