@@ -288,11 +288,22 @@ pub(crate) fn add_record(
     true
 }
 
-/// Do the cells the loader checks (`check`) hold no character XML cannot
-/// carry, and none over the text limit?
-fn cells_allowed(limits: &ReadLimits, record: &csv::ByteRecord, check: &[usize]) -> bool {
+/// Do the cells the loader checks (`check`, read with `field`) of a record
+/// (all its fields: `whole`) hold no character XML cannot carry, and none
+/// over the text limit? Most records have no byte that could be either, and
+/// are passed at once.
+fn cells_allowed<'a>(
+    limits: &ReadLimits,
+    whole: &'a str,
+    check: &[usize],
+    field: impl Fn(usize) -> Option<&'a str>,
+) -> bool {
+    let suspect = whole.bytes().any(|b| b < 0x20 || b == 0xEF);
+    if !suspect && whole.len() <= limits.text {
+        return true;
+    }
     check.iter().all(|&j| {
-        let Some(Ok(text)) = record.get(j).map(std::str::from_utf8) else {
+        let Some(text) = field(j) else {
             return true;
         };
         forbidden_char(text).is_none() && too_long(text, limits.text).is_none()
@@ -345,7 +356,7 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
     let mut target = 0usize;
     let mut scratch: Vec<Cell<'static>> = Vec::with_capacity(ncols);
     let mut keybuf: Vec<u8> = Vec::with_capacity(64);
-    let missing: Vec<&[u8]> = input.spec.missing.iter().map(|m| m.as_bytes()).collect();
+    let missing: Vec<&str> = input.spec.missing.iter().map(String::as_str).collect();
     let numbers = input.spec.numbers;
     let parsed: Vec<(usize, ColType)> = (0..ncols)
         .filter(|&j| input.parse.get(j).copied().unwrap_or(false))
@@ -378,30 +389,27 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
         if record.len() != ncols {
             return out;
         }
-        // UTF-8: the whole record at once, then no field may start in the
-        // middle of a character.
-        if std::str::from_utf8(record.as_slice()).is_err()
-            || record
-                .iter()
-                .any(|f| f.first().is_some_and(|&b| (0x80..0xC0).contains(&b)))
-        {
+        // UTF-8: the whole record checked once; then each field is a slice
+        // of it that must start (and end) between characters.
+        let Ok(whole) = std::str::from_utf8(record.as_slice()) else {
+            return out;
+        };
+        let field = |j: usize| record.range(j).and_then(|r| whole.get(r));
+        if (0..ncols).any(|j| field(j).is_none()) {
             return out;
         }
-        if !cells_allowed(input.limits, &record, &check) {
+        if !cells_allowed(input.limits, whole, &check, field) {
             return out;
         }
         let mut cells = recycle(std::mem::take(&mut scratch));
         cells.resize(ncols, Cell::Missing);
         for &(j, ty) in &parsed {
-            let Some(f) = record.get(j) else {
+            let Some(text) = field(j) else {
                 return out;
             };
-            if missing.contains(&f) {
+            if missing.contains(&text) {
                 continue;
             }
-            let Ok(text) = std::str::from_utf8(f) else {
-                return out;
-            };
             let c = match ty {
                 ColType::Text => Some(Cell::Text(text)),
                 ColType::Number => numbers.parse(text).map(Cell::Number),
