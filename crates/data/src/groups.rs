@@ -57,7 +57,11 @@ impl KeyIndex {
     /// is new.
     pub(crate) fn id(&mut self, h: u64, key: &[u8]) -> (usize, bool) {
         let arena = &self.arena;
-        let same = |e: &Entry| arena.get(e.start..e.start + key.len()) == Some(key);
+        let same = |e: &Entry| {
+            arena
+                .get(e.start..e.start + key.len())
+                .is_some_and(|k| same_bytes(k, key))
+        };
         if let Some(e) = self.index.find(h, same) {
             return (e.id, false);
         }
@@ -293,6 +297,28 @@ fn extreme(best: &mut Option<Value>, c: Cell<'_>, want: std::cmp::Ordering) {
     }
 }
 
+/// Equal byte strings of equal length: word by word (group keys are
+/// short, and a call to `memcmp` cost more than the comparison).
+fn same_bytes(a: &[u8], b: &[u8]) -> bool {
+    let n = a.len();
+    if n != b.len() || n < 8 {
+        return a == b;
+    }
+    let word = |s: &[u8], i: usize| {
+        s.get(i..i + 8)
+            .map(|w| u64::from_le_bytes([w[0], w[1], w[2], w[3], w[4], w[5], w[6], w[7]]))
+    };
+    let mut i = 0;
+    while i + 8 < n {
+        if word(a, i) != word(b, i) {
+            return false;
+        }
+        i += 8;
+    }
+    // the last word (overlapping the one before when `n` is not a multiple)
+    word(a, n - 8) == word(b, n - 8)
+}
+
 /// The bytes of key `g`.
 fn key_of<'a>(arena: &'a [u8], ends: &[usize], g: usize) -> &'a [u8] {
     let end = ends.get(g).copied().unwrap_or(0);
@@ -441,5 +467,38 @@ fn decode_key(bytes: &[u8]) -> (Cell<'_>, &[u8]) {
     match decoded {
         Some((c, used)) => (c, rest.get(used..).unwrap_or(&[])),
         None => (Cell::Missing, rest),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn keys_compare_word_by_word_at_every_length() {
+        for n in 0..40usize {
+            let a: Vec<u8> = (0..n as u8).collect();
+            assert!(same_bytes(&a, &a.clone()));
+            for i in 0..n {
+                let mut b = a.clone();
+                b[i] ^= 0x40;
+                assert!(!same_bytes(&a, &b), "length {n}, byte {i}");
+            }
+            assert!(!same_bytes(&a, &a[..n.saturating_sub(1)]) || n == 0);
+        }
+    }
+
+    #[test]
+    fn keys_are_numbered_in_order_of_first_appearance() {
+        let mut k = KeyIndex::default();
+        let keys: Vec<Vec<u8>> = (0..5000u32)
+            .map(|i| format!("key{}", i % 1700).into_bytes())
+            .collect();
+        for (i, key) in keys.iter().enumerate() {
+            let (id, new) = k.id(hash_bytes(key), key);
+            assert_eq!((id, new), (i % 1700, i < 1700));
+        }
+        assert_eq!(k.len(), 1700);
+        assert_eq!(k.key(1234), b"key1234");
     }
 }

@@ -321,6 +321,22 @@ pub(crate) struct Sum {
 impl Sum {
     pub(crate) fn add(&mut self, x: f64) {
         self.n += 1;
+        // the common case, one partial and no scaling: the loop of `push`
+        // unrolled (the same two-sum, so the same partials)
+        if let [y] = self.partials[..] {
+            if !self.scaled && x.abs() < BIG && y.abs() < BIG {
+                let (a, b) = if x.abs() < y.abs() { (y, x) } else { (x, y) };
+                let hi = a + b;
+                let lo = b - (hi - a);
+                if lo == 0.0 {
+                    self.partials[0] = hi;
+                } else {
+                    self.partials[0] = lo;
+                    self.partials.push(hi);
+                }
+                return;
+            }
+        }
         self.push(x, false);
     }
 
