@@ -394,7 +394,17 @@ impl Opened {
             places.extend((0..n).map(|i| (g, i)));
             return Ok(n);
         }
-        let projection = Type::group_type_builder("schema")
+        // the projection's root must bear the file's root name ("schema"
+        // from some writers, "root" from others), or the reader refuses it
+        let root = self
+            .reader
+            .metadata()
+            .file_metadata()
+            .schema_descr()
+            .root_schema()
+            .name()
+            .to_owned();
+        let projection = Type::group_type_builder(&root)
             .with_fields(self.picked.clone())
             .build()
             .map_err(|e| damaged(name, &e))?;
