@@ -205,3 +205,17 @@ fn a_root_of_any_name_is_projected() {
     );
     std::fs::remove_dir_all(&dir).ok();
 }
+
+/// A sound file in a codec this build does not read says so, instead of
+/// calling the file damaged (fixture: `tests/formats/make_zstd_fixture.py`).
+#[test]
+fn an_unread_codec_is_named() {
+    let s = spec("zstd.parquet", vec![]);
+    let file = File::open(&s.path).expect("open");
+    let e = load_parquet(&s, &file, &Columns::All, &ReadLimits::default()).expect_err("refused");
+    let text = format!("{e:?}");
+    assert!(
+        text.contains("compressed with zstd") && text.contains("Snappy"),
+        "{text}"
+    );
+}
