@@ -2,7 +2,7 @@
 //! drawing; print a summary (or JSON for CI) and, with `--explain-sql`, the
 //! queries sent to a database.
 
-use std::path::Path;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use crescendo_diag::Diagnostic;
@@ -32,11 +32,15 @@ pub fn run(
     story: &Path,
     format: Format,
     explain_sql: bool,
-    data: &DataArgs,
+    (data, cache): (&DataArgs, Option<PathBuf>),
     lint: &LintArgs,
     color: bool,
 ) -> ExitCode {
-    let result = plan_quietly(story, data, None);
+    let result = plan_quietly(story, data, cache.clone());
+    if let (Ok(p), Some(dir)) = (&result, &cache) {
+        // as a good build does: forget entries this story no longer uses
+        crate::incremental::prune(dir, &p.report);
+    }
     let (planned, mut errors) = match result {
         Ok(p) => (Some(p), Vec::new()),
         Err(d) => (None, d),
@@ -79,6 +83,11 @@ pub fn run(
                 "exact": planned.as_ref().map(|p| p.plan.exact.clone()),
                 "claims": planned.as_ref().map(|p| p.plan.claims.clone()),
                 "sql": planned.as_ref().filter(|_| explain_sql).map(|p| p.sql.clone()),
+                // the streamed views' prefixes: from the cache or computed
+                "views": planned.as_ref().map(|p| serde_json::json!({
+                    "cached": p.report.cached_views,
+                    "computed": p.report.computed_views,
+                })),
             });
             match serde_json::to_string_pretty(&report) {
                 Ok(s) => say!("{}", crate::output::json(&s)),

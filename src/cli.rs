@@ -152,13 +152,41 @@ pub fn parse_connection_arg(s: &str) -> Result<(String, String), Diagnostic> {
     }
 }
 
+/// The view cache `check` and `plan` share with `build`: the one beside
+/// the deck the story builds into.
+#[derive(clap::Args, Clone, Default)]
+pub struct CacheArgs {
+    /// The deck folder whose cache of computed views to read and update,
+    /// as `build --out` names it (default: `deck/` beside the story).
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+    /// Compute every view, without reading or writing the cache.
+    #[arg(long)]
+    pub no_cache: bool,
+}
+
+impl CacheArgs {
+    /// The cache folder to use for `story` (none with `--no-cache`).
+    pub fn dir(&self, story: &std::path::Path) -> Option<PathBuf> {
+        (!self.no_cache).then(|| {
+            let out = self
+                .out
+                .clone()
+                .unwrap_or_else(|| crate::planning::default_out(story));
+            crate::incremental::cache_dir(&out)
+        })
+    }
+}
+
 /// Limits on what one build reads and makes; a story or data file over a
 /// limit stops the build with a located error.
 #[derive(clap::Args, Clone)]
 pub struct LimitArgs {
-    /// Largest story or data file, in bytes.
-    #[arg(long, value_name = "BYTES", default_value_t = crescendo_plan::limits::Limits::default().input_bytes)]
-    pub max_input_bytes: u64,
+    /// Largest story or data file, in bytes [default: 4 GiB for a story and
+    /// a data file read whole; none for a data file streamed record by
+    /// record].
+    #[arg(long, value_name = "BYTES")]
+    pub max_input_bytes: Option<u64>,
     /// Most rows of a data file held in memory [default: as many as fit in
     /// half the memory available].
     #[arg(long, value_name = "N")]
@@ -284,6 +312,8 @@ pub enum Command {
         #[arg(long)]
         explain_sql: bool,
         #[command(flatten)]
+        cache: CacheArgs,
+        #[command(flatten)]
         data: DataArgs,
         #[command(flatten)]
         lint: LintArgs,
@@ -318,6 +348,8 @@ pub enum Command {
         /// checked forms.
         #[arg(long, conflicts_with = "no_plugins")]
         load_plugins: bool,
+        #[command(flatten)]
+        cache: CacheArgs,
         #[command(flatten)]
         data: DataArgs,
     },

@@ -238,7 +238,7 @@ fn views_line(r: &LoadReport) -> Option<String> {
 /// Delete the view and data entries of the planner's cache in `dir` that
 /// the build (whose loads `report` describes) did not use: stale after a
 /// data refresh or an edited view.
-fn prune(dir: &Path, report: &LoadReport) {
+pub(crate) fn prune(dir: &Path, report: &LoadReport) {
     let used: BTreeSet<&str> = report.cache_keys.iter().map(String::as_str).collect();
     for kind in ["views", "data"] {
         let Ok(entries) = std::fs::read_dir(dir.join(kind)) else {

@@ -85,11 +85,13 @@ fn main() -> ExitCode {
             story,
             format,
             explain_sql,
+            cache,
             mut data,
             lint,
         } => {
             data.explain_plans = explain_sql;
-            check::run(&story, format, explain_sql, &data, &lint, color)
+            let cache = cache.dir(&story);
+            check::run(&story, format, explain_sql, (&data, cache), &lint, color)
         }
         Command::Explain { rule } => explain::run(rule.as_deref(), color),
         Command::Plugins {
@@ -100,8 +102,9 @@ fn main() -> ExitCode {
         Command::Plan {
             story,
             load_plugins,
+            cache,
             data,
-        } => plan::run(&story, data, load_plugins, color),
+        } => plan::run(&story, data, load_plugins, cache.dir(&story), color),
         Command::New { data, out, force } => new::run(&data, out.as_deref(), force, color),
         Command::Fmt { check, files } => fmt::run(&files, check, color),
         Command::Completions { shell } => completions::run(shell),

@@ -243,6 +243,65 @@ fn stale_view_entries_are_pruned_after_a_good_build() {
     assert_eq!((entries(&dir, "views"), entries(&dir, "data")), (3, 2));
 }
 
+/// The streamed views `check --format json` reports: (cached, computed).
+fn checked_views(dir: &Path, extra: &[&str]) -> (Vec<String>, Vec<String>) {
+    let mut args = vec!["check", "story.cresc", "--format", "json"];
+    args.extend_from_slice(extra);
+    let run = crescendo(dir, &args);
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&run.stdout).unwrap();
+    (names(&v["views"]["cached"]), names(&v["views"]["computed"]))
+}
+
+#[test]
+fn check_and_plan_share_the_view_cache_with_build() {
+    let dir = scratch("cache-check-plan");
+    write_story(&dir, 0);
+    let all = ["by_route", "busiest", "fare_mean"];
+    // without a cache: nothing is written
+    let (cached, computed) = checked_views(&dir, &["--no-cache"]);
+    assert!(cached.is_empty());
+    assert_eq!(computed, all);
+    assert!(!dir.join(".crescendo-cache").exists());
+    // a first check computes the views and keeps them beside the deck...
+    let (cached, computed) = checked_views(&dir, &[]);
+    assert!(cached.is_empty());
+    assert_eq!(computed, all);
+    assert_eq!(entries(&dir, "views"), 3);
+    // ...where the next check and the build find them
+    let (cached, computed) = checked_views(&dir, &[]);
+    assert_eq!(
+        (cached, computed.len()),
+        (all.map(String::from).to_vec(), 0)
+    );
+    build(&dir, "deck", &[]);
+    let r = report(&dir, "deck");
+    assert_eq!(names(&r["cached_views"]), all);
+    assert!(names(&r["computed_views"]).is_empty());
+    // `plan` refreshes the entries of a changed file (pruning the stale
+    // ones), so the build after it computes nothing
+    write_story(&dir, 1);
+    let plan = crescendo(&dir, &["plan", "story.cresc"]);
+    assert!(plan.status.success());
+    assert_eq!(entries(&dir, "views"), 3);
+    build(&dir, "deck", &[]);
+    let r = report(&dir, "deck");
+    assert!(names(&r["computed_views"]).is_empty(), "{r}");
+    // another deck's cache is named with `--out`, as in `build`
+    let (cached, _) = checked_views(&dir, &["--out", "other"]);
+    assert!(cached.is_empty());
+    build(&dir, "other", &[]);
+    assert_eq!(names(&report(&dir, "other")["cached_views"]), all);
+    // and the plan is the same with or without the cache
+    let a = crescendo(&dir, &["plan", "story.cresc"]);
+    let b = crescendo(&dir, &["plan", "story.cresc", "--no-cache"]);
+    assert_eq!(a.stdout, b.stdout);
+}
+
 #[test]
 fn editing_one_frame_redraws_only_it() {
     let dir = scratch("cache-frames");

@@ -265,6 +265,24 @@ fn every_limit_is_an_option_with_a_located_error() {
         );
         assert!(err.contains(at), "{option}: {err}");
     }
+    // a file only views read is streamed: no default byte limit (checked
+    // in `limits.rs`), but one the user sets holds for it too
+    let streamed = format!(
+        "{STORY}view v = t\n  | by c: n = sum(n)\nframe \"One\" {{\n  bars v: category c, value n\n}}\n"
+    );
+    fs::write(dir.join("streamed.cresc"), streamed).unwrap();
+    let run = crescendo(
+        &dir,
+        &["check", "streamed.cresc", "--max-input-bytes", "210"],
+    );
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert!(err.contains("more than the limit of 210"), "{err}");
+    let run = crescendo(&dir, &["check", "streamed.cresc"]);
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
     // the story file itself is bounded too
     let run = crescendo(&dir, &["check", "story.cresc", "--max-input-bytes", "100"]);
     let err = String::from_utf8_lossy(&run.stderr);

@@ -1,12 +1,13 @@
 #!/usr/bin/env python3
 """The benchmark story's four views computed by polars with a lazy scan
-(the comparison of tests/bench/run). Usage: polars_views.py sales.csv"""
+(the comparison of tests/bench/run). Usage: polars_views.py sales.csv, or
+polars_views.py sales.parquet (the same rows written by convert.py)"""
 import sys
 
 import polars as pl
 
 path = sys.argv[1]
-scan = pl.scan_csv(
+scan = pl.scan_parquet(path) if path.endswith(".parquet") else pl.scan_csv(
     path,
     schema={
         "day": pl.Date,

@@ -1,11 +1,12 @@
 //! The streaming engine of [`crate::stream`] fed with whole tables (the
 //! typed row groups of a Parquet file) instead of CSV records.
 
+use crate::groups::Groups;
 use crate::load::ReadLimits;
 use crate::model::Values;
 use crate::model::{Cell, ColType, Table};
 use crate::probe::{Probe, Seen, Watch};
-use crate::stream::{add_record, finish, rows_fit, Groups, StreamView, ViewState};
+use crate::stream::{add_record, finish, rows_fit, StreamView, ViewState};
 
 /// The empty state of every view over `ncols` columns.
 pub(crate) fn states(views: &[StreamView], ncols: usize) -> Vec<ViewState> {

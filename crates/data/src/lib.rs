@@ -7,6 +7,7 @@ pub mod digits;
 pub mod files;
 pub mod fold;
 pub mod format;
+mod groups;
 mod hash;
 pub mod load;
 mod loader;

@@ -293,6 +293,15 @@ struct Opened {
 }
 
 fn damaged(name: &str, e: &dyn std::fmt::Display) -> LoadError {
+    let text = e.to_string();
+    if let Some(codec) = text.strip_prefix("Parquet error: Disabled feature at compile time: ") {
+        // a sound file in a compression this build does not read
+        return story(
+            "data-file",
+            format!("cannot read Parquet file `{name}`: it is compressed with {codec}, which crescendo does not read"),
+            Some("write it again with Snappy compression (or none), or export the data as CSV"),
+        );
+    }
     story(
         "data-file",
         format!("cannot read Parquet file `{name}`: it is damaged, cut short or not a Parquet file ({e})"),
@@ -394,7 +403,17 @@ impl Opened {
             places.extend((0..n).map(|i| (g, i)));
             return Ok(n);
         }
-        let projection = Type::group_type_builder("schema")
+        // the projection's root must bear the file's root name ("schema"
+        // from some writers, "root" from others), or the reader refuses it
+        let root = self
+            .reader
+            .metadata()
+            .file_metadata()
+            .schema_descr()
+            .root_schema()
+            .name()
+            .to_owned();
+        let projection = Type::group_type_builder(&root)
             .with_fields(self.picked.clone())
             .build()
             .map_err(|e| damaged(name, &e))?;

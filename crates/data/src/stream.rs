@@ -55,12 +55,12 @@ use std::sync::Mutex;
 
 use crate::files::ReadAt;
 use crate::fold::{states, Sink};
+use crate::groups::Groups;
 use crate::load::{CsvSpec, LoadError, ReadLimits};
-use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Value, Values};
+use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Values};
 use crate::probe::{Probe, Seen, Watch};
 use crate::record::{forbidden_char, reader_builder, scan_fields, too_long, RawRecord, Tee};
 use crate::time::{parse_date, parse_month_or_date, parse_year};
-use crate::view::{compare_cells, encode_key, sum_value, FxMap, Sum};
 
 /// The streamable prefix of one view.
 #[derive(Clone, Debug, PartialEq)]
@@ -253,195 +253,6 @@ pub(crate) enum ViewState {
     Rows(Vec<Values>),
 }
 
-#[derive(Clone, Debug, Default)]
-pub(crate) struct Groups {
-    index: FxMap<Box<[u8]>, usize>,
-    keys: Vec<Vec<Value>>,
-    accs: Vec<Vec<Acc>>,
-}
-
-/// One aggregate's state in one group.
-#[derive(Clone, Debug)]
-enum Acc {
-    /// `count()` of rows.
-    Rows(u64),
-    /// `count(col)`: non-missing cells.
-    Count(u64),
-    Sum(Sum),
-    Mean(Sum),
-    Median(Vec<f64>),
-    Min(Option<Value>),
-    Max(Option<Value>),
-    First(Option<Value>),
-    Last(Option<Value>),
-    /// An aggregate without a column that is not `count` (the type check
-    /// rules it out): always missing, as in the table engine.
-    Nothing,
-}
-
-impl Acc {
-    fn new(a: &Aggregate) -> Acc {
-        match (a.func, a.column) {
-            (AggFn::Count, None) => Acc::Rows(0),
-            (_, None) => Acc::Nothing,
-            (AggFn::Count, Some(_)) => Acc::Count(0),
-            (AggFn::Sum, _) => Acc::Sum(Sum::default()),
-            (AggFn::Mean, _) => Acc::Mean(Sum::default()),
-            (AggFn::Median, _) => Acc::Median(Vec::new()),
-            (AggFn::Min, _) => Acc::Min(None),
-            (AggFn::Max, _) => Acc::Max(None),
-            (AggFn::First, _) => Acc::First(None),
-            (AggFn::Last, _) => Acc::Last(None),
-        }
-    }
-
-    /// Add one row whose aggregate column holds `c`.
-    fn add(&mut self, c: Cell<'_>) {
-        if let Acc::Rows(n) = self {
-            *n += 1;
-            return;
-        }
-        if matches!(c, Cell::Missing) {
-            return;
-        }
-        let num = match c {
-            Cell::Number(x) => Some(x),
-            Cell::Year(y) => Some(f64::from(y)),
-            _ => None,
-        };
-        match self {
-            Acc::Rows(_) | Acc::Nothing => {}
-            Acc::Count(n) => *n += 1,
-            Acc::Sum(s) | Acc::Mean(s) => {
-                if let Some(x) = num {
-                    s.add(x);
-                }
-            }
-            Acc::Median(xs) => xs.extend(num),
-            Acc::Min(best) => extreme(best, c, std::cmp::Ordering::Less),
-            Acc::Max(best) => extreme(best, c, std::cmp::Ordering::Greater),
-            Acc::First(v) => {
-                if v.is_none() {
-                    *v = Some(c.to_value());
-                }
-            }
-            Acc::Last(v) => match v {
-                // Skip the copy when the cell is the same (bit for bit).
-                Some(old) if same(old.cell(), c) => {}
-                _ => *v = Some(c.to_value()),
-            },
-        }
-    }
-
-    /// Fold in the state of the same group over the rows that follow.
-    fn merge(&mut self, later: Acc) {
-        match (self, later) {
-            (Acc::Rows(a), Acc::Rows(b)) | (Acc::Count(a), Acc::Count(b)) => *a += b,
-            (Acc::Sum(a), Acc::Sum(b)) | (Acc::Mean(a), Acc::Mean(b)) => a.merge(&b),
-            (Acc::Median(a), Acc::Median(b)) => a.extend(b),
-            (Acc::Min(a), Acc::Min(Some(b))) => extreme(a, b.cell(), std::cmp::Ordering::Less),
-            (Acc::Max(a), Acc::Max(Some(b))) => extreme(a, b.cell(), std::cmp::Ordering::Greater),
-            (Acc::First(a), Acc::First(b)) if a.is_none() => *a = b,
-            (Acc::Last(a), Acc::Last(b)) if b.is_some() => *a = b,
-            _ => {}
-        }
-    }
-
-    fn finish(self) -> Value {
-        let number = |x: Option<f64>| match x {
-            Some(x) if x.is_finite() => Value::Number(x),
-            _ => Value::Missing,
-        };
-        match self {
-            Acc::Rows(n) | Acc::Count(n) => Value::Number(n as f64),
-            Acc::Sum(s) => sum_value(s.total()),
-            Acc::Mean(s) => number(s.mean()),
-            Acc::Median(mut xs) => {
-                xs.sort_by(f64::total_cmp);
-                let m = xs.len();
-                number(match m {
-                    0 => None,
-                    _ if m % 2 == 1 => Some(xs[m / 2]),
-                    _ => Some(xs[m / 2 - 1] / 2.0 + xs[m / 2] / 2.0),
-                })
-            }
-            Acc::Min(v) | Acc::Max(v) | Acc::First(v) | Acc::Last(v) => v.unwrap_or(Value::Missing),
-            Acc::Nothing => Value::Missing,
-        }
-    }
-}
-
-/// Identical cells (numbers bit for bit, so `-0` differs from `0`).
-fn same(a: Cell<'_>, b: Cell<'_>) -> bool {
-    match (a, b) {
-        (Cell::Number(x), Cell::Number(y)) => x.to_bits() == y.to_bits(),
-        _ => a == b,
-    }
-}
-
-/// Replace `best` when `c` is strictly more `want` (the first of equal
-/// extremes wins, as in the table engine).
-fn extreme(best: &mut Option<Value>, c: Cell<'_>, want: std::cmp::Ordering) {
-    let replace = match best {
-        None => true,
-        Some(b) => compare_cells(c, b.cell()) == Some(want),
-    };
-    if replace {
-        *best = Some(c.to_value());
-    }
-}
-
-impl Groups {
-    pub(crate) fn new(keys: &[usize], aggs: &[Aggregate]) -> Groups {
-        let mut g = Groups::default();
-        if keys.is_empty() {
-            // Without keys the whole file is one group, even when empty.
-            g.index.insert(Box::default(), 0);
-            g.keys.push(Vec::new());
-            g.accs.push(aggs.iter().map(Acc::new).collect());
-        }
-        g
-    }
-
-    /// The group of a key, created (with `key`'s values) when new.
-    fn slot(&mut self, buf: &[u8], key: impl FnOnce() -> Vec<Value>, aggs: &[Aggregate]) -> usize {
-        if let Some(&g) = self.index.get(buf) {
-            return g;
-        }
-        let g = self.keys.len();
-        self.index.insert(buf.into(), g);
-        self.keys.push(key());
-        self.accs.push(aggs.iter().map(Acc::new).collect());
-        g
-    }
-
-    /// Fold in the groups of the following chunk, in their order.
-    fn merge(&mut self, later: Groups) {
-        let mut order: Vec<(Box<[u8]>, usize)> = later.index.into_iter().collect();
-        order.sort_by_key(|(_, g)| *g);
-        let mut accs: Vec<Option<Vec<Acc>>> = later.accs.into_iter().map(Some).collect();
-        let mut keys: Vec<Option<Vec<Value>>> = later.keys.into_iter().map(Some).collect();
-        for (k, g) in order {
-            let (Some(a), Some(key)) = (accs[g].take(), keys[g].take()) else {
-                continue;
-            };
-            match self.index.get(&k) {
-                Some(&mine) => {
-                    for (x, y) in self.accs[mine].iter_mut().zip(a) {
-                        x.merge(y);
-                    }
-                }
-                None => {
-                    let mine = self.keys.len();
-                    self.index.insert(k, mine);
-                    self.keys.push(key);
-                    self.accs.push(a);
-                }
-            }
-        }
-    }
-}
-
 /// Add one record (cells by column) to every view whose `keep`s it passes;
 /// `false` when a view's kept rows outgrow the limits, or its state does not fit.
 pub(crate) fn add_record(
@@ -458,18 +269,7 @@ pub(crate) fn add_record(
         }
         match (state, &view.group) {
             (ViewState::Groups(g), Some((keys, aggs))) => {
-                keybuf.clear();
-                for &k in keys {
-                    encode_key(keybuf, row(k));
-                }
-                let slot = g.slot(
-                    keybuf,
-                    || keys.iter().map(|&k| row(k).to_value()).collect(),
-                    aggs,
-                );
-                for (acc, a) in g.accs[slot].iter_mut().zip(aggs) {
-                    acc.add(a.column.map_or(Cell::Missing, row));
-                }
+                g.add(keybuf, (keys, aggs), &row);
             }
             (ViewState::Rows(cols), _) => {
                 for (j, col) in cols.iter_mut().enumerate() {
@@ -491,11 +291,22 @@ pub(crate) fn add_record(
     true
 }
 
-/// Do the cells the loader checks (`check`) hold no character XML cannot
-/// carry, and none over the text limit?
-fn cells_allowed(limits: &ReadLimits, record: &csv::ByteRecord, check: &[usize]) -> bool {
+/// Do the cells the loader checks (`check`, read with `field`) of a record
+/// (all its fields: `whole`) hold no character XML cannot carry, and none
+/// over the text limit? Most records have no byte that could be either, and
+/// are passed at once.
+fn cells_allowed<'a>(
+    limits: &ReadLimits,
+    whole: &'a str,
+    check: &[usize],
+    field: impl Fn(usize) -> Option<&'a str>,
+) -> bool {
+    let suspect = whole.bytes().any(|b| b < 0x20 || b == 0xEF);
+    if !suspect && whole.len() <= limits.text {
+        return true;
+    }
     check.iter().all(|&j| {
-        let Some(Ok(text)) = record.get(j).map(std::str::from_utf8) else {
+        let Some(text) = field(j) else {
             return true;
         };
         forbidden_char(text).is_none() && too_long(text, limits.text).is_none()
@@ -549,7 +360,7 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
     let mut target = 0usize;
     let mut scratch: Vec<Cell<'static>> = Vec::with_capacity(ncols);
     let mut keybuf: Vec<u8> = Vec::with_capacity(64);
-    let missing: Vec<&[u8]> = input.spec.missing.iter().map(|m| m.as_bytes()).collect();
+    let missing: Vec<&str> = input.spec.missing.iter().map(String::as_str).collect();
     let numbers = input.spec.numbers;
     let parsed: Vec<(usize, ColType)> = (0..ncols)
         .filter(|&j| input.parse.get(j).copied().unwrap_or(false))
@@ -582,30 +393,27 @@ fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
         if record.len() != ncols {
             return out;
         }
-        // UTF-8: the whole record at once, then no field may start in the
-        // middle of a character.
-        if std::str::from_utf8(record.as_slice()).is_err()
-            || record
-                .iter()
-                .any(|f| f.first().is_some_and(|&b| (0x80..0xC0).contains(&b)))
-        {
+        // UTF-8: the whole record checked once; then each field is a slice
+        // of it that must start (and end) between characters.
+        let Ok(whole) = std::str::from_utf8(record.as_slice()) else {
+            return out;
+        };
+        let field = |j: usize| record.range(j).and_then(|r| whole.get(r));
+        if (0..ncols).any(|j| field(j).is_none()) {
             return out;
         }
-        if !cells_allowed(input.limits, &record, &check) {
+        if !cells_allowed(input.limits, whole, &check, field) {
             return out;
         }
         let mut cells = recycle(std::mem::take(&mut scratch));
         cells.resize(ncols, Cell::Missing);
         for &(j, ty) in &parsed {
-            let Some(f) = record.get(j) else {
+            let Some(text) = field(j) else {
                 return out;
             };
-            if missing.contains(&f) {
+            if missing.contains(&text) {
                 continue;
             }
-            let Ok(text) = std::str::from_utf8(f) else {
-                return out;
-            };
             let c = match ty {
                 ColType::Text => Some(Cell::Text(text)),
                 ColType::Number => numbers.parse(text).map(Cell::Number),
@@ -743,20 +551,15 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
 pub(crate) fn finish(schema: &[(String, ColType)], view: &StreamView, state: ViewState) -> Table {
     match (state, &view.group) {
         (ViewState::Groups(g), Some((keys, aggs))) => {
-            let mut columns: Vec<Column> = keys
+            let key_cols = keys
                 .iter()
-                .map(|&k| Column {
-                    name: schema.get(k).map_or(String::new(), |c| c.0.clone()),
-                    ty: schema.get(k).map_or(ColType::Text, |c| c.1),
-                    values: Values::new(),
+                .map(|&k| {
+                    schema
+                        .get(k)
+                        .map_or((String::new(), ColType::Text), |c| c.clone())
                 })
                 .collect();
-            for key in &g.keys {
-                for (c, v) in columns.iter_mut().zip(key) {
-                    c.values.push(v.clone());
-                }
-            }
-            let mut agg_cols: Vec<Column> = aggs
+            let agg_cols = aggs
                 .iter()
                 .map(|a| {
                     let in_ty = a
@@ -767,20 +570,12 @@ pub(crate) fn finish(schema: &[(String, ColType)], view: &StreamView, state: Vie
                         AggFn::Min | AggFn::Max | AggFn::First | AggFn::Last => in_ty,
                         _ => ColType::Number,
                     };
-                    Column {
-                        name: a.name.clone(),
-                        ty,
-                        values: Values::new(),
-                    }
+                    (a.name.clone(), ty)
                 })
                 .collect();
-            for accs in g.accs {
-                for (c, a) in agg_cols.iter_mut().zip(accs) {
-                    c.values.push(a.finish());
-                }
+            Table {
+                columns: g.finish(key_cols, agg_cols),
             }
-            columns.extend(agg_cols);
-            Table { columns }
         }
         (ViewState::Rows(cols), _) => Table {
             columns: schema

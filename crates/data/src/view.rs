@@ -33,11 +33,11 @@
 //!
 //! See [`run_view`] and the doc of each step's function.
 
+use smallvec::SmallVec;
 use std::cmp::Ordering;
-use std::collections::HashMap;
-use std::hash::BuildHasherDefault;
 
-use crate::hash::Fx;
+use crate::groups::KeyIndex;
+use crate::hash::hash_bytes;
 use crate::model::{
     AggFn, Aggregate, ArithOp, Cell, CmpOp, ColType, Column, Expr, Step, Table, Value, Values,
 };
@@ -322,7 +322,9 @@ const UP: f64 = 18_446_744_073_709_551_616.0;
 /// total really is beyond the largest double, and [`Sum::mean`] never is.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub(crate) struct Sum {
-    partials: Vec<f64>,
+    /// Nearly always one or two partials: kept inline, so a sum per group
+    /// allocates nothing.
+    partials: SmallVec<[f64; 2]>,
     n: usize,
     /// The partials hold the sum times 2^-64.
     scaled: bool,
@@ -331,6 +333,22 @@ pub(crate) struct Sum {
 impl Sum {
     pub(crate) fn add(&mut self, x: f64) {
         self.n += 1;
+        // the common case, one partial and no scaling: the loop of `push`
+        // unrolled (the same two-sum, so the same partials)
+        if let [y] = self.partials[..] {
+            if !self.scaled && x.abs() < BIG && y.abs() < BIG {
+                let (a, b) = if x.abs() < y.abs() { (y, x) } else { (x, y) };
+                let hi = a + b;
+                let lo = b - (hi - a);
+                if lo == 0.0 {
+                    self.partials[0] = hi;
+                } else {
+                    self.partials[0] = lo;
+                    self.partials.push(hi);
+                }
+                return;
+            }
+        }
         self.push(x, false);
     }
 
@@ -365,6 +383,11 @@ impl Sum {
         }
         self.partials.truncate(i);
         self.partials.push(x);
+    }
+
+    /// No terms yet?
+    pub(crate) fn is_empty(&self) -> bool {
+        self.n == 0
     }
 
     /// Add every term of `other` (exactly).
@@ -467,29 +490,71 @@ pub(crate) fn encode_key(buf: &mut Vec<u8>, c: Cell<'_>) {
     }
 }
 
-pub(crate) type FxMap<K, V> = HashMap<K, V, BuildHasherDefault<Fx>>;
-
 /// Partition `rows` by the cells of `cols`, in order of first appearance.
-fn partition(t: &Table, cols: &[usize], rows: impl Iterator<Item = usize>) -> Vec<Vec<usize>> {
-    let mut index: FxMap<Box<[u8]>, usize> = FxMap::default();
-    let mut groups: Vec<Vec<usize>> = Vec::new();
+fn partition(t: &Table, cols: &[usize], rows: impl Iterator<Item = usize>) -> Parts {
+    // number each row's key (interned once, see `crate::groups`), then
+    // place the rows group by group, each group's rows in their order
+    let mut index = KeyIndex::default();
+    let mut ids: Vec<(usize, usize)> = Vec::new();
     let mut key = Vec::new();
     for r in rows {
         key.clear();
         for &c in cols {
             encode_key(&mut key, cell(t, c, r));
         }
-        let g = match index.get(key.as_slice()) {
-            Some(&g) => g,
-            None => {
-                index.insert(key.as_slice().into(), groups.len());
-                groups.push(Vec::new());
-                groups.len() - 1
-            }
-        };
-        groups[g].push(r);
+        ids.push((r, index.id(hash_bytes(&key), &key).0));
     }
-    groups
+    let groups = index.len();
+    drop(index);
+    let mut starts = vec![0usize; groups + 1];
+    for &(_, g) in &ids {
+        starts[g + 1] += 1;
+    }
+    for g in 0..groups {
+        starts[g + 1] += starts[g];
+    }
+    let mut next = starts.clone();
+    let mut placed = vec![0usize; ids.len()];
+    for (r, g) in ids {
+        placed[next[g]] = r;
+        next[g] += 1;
+    }
+    Parts {
+        rows: placed,
+        starts,
+    }
+}
+
+/// Rows partitioned into groups: group `g`'s rows, in their order, are
+/// `rows[starts[g]..starts[g + 1]]` (one allocation for all groups).
+struct Parts {
+    rows: Vec<usize>,
+    starts: Vec<usize>,
+}
+
+impl Parts {
+    fn len(&self) -> usize {
+        self.starts.len().saturating_sub(1)
+    }
+
+    fn get(&self, g: usize) -> &[usize] {
+        match (self.starts.get(g), self.starts.get(g + 1)) {
+            (Some(&a), Some(&b)) => self.rows.get(a..b).unwrap_or(&[]),
+            _ => &[],
+        }
+    }
+
+    fn iter(&self) -> impl Iterator<Item = &[usize]> + '_ {
+        (0..self.len()).map(|g| self.get(g))
+    }
+
+    /// All rows as one group.
+    fn one(n: usize) -> Parts {
+        Parts {
+            rows: (0..n).collect(),
+            starts: vec![0, n],
+        }
+    }
 }
 
 /// Group rows by `keys` and compute `aggregates` per group.
@@ -513,7 +578,7 @@ fn partition(t: &Table, cols: &[usize], rows: impl Iterator<Item = usize>) -> Ve
 fn group(t: &Table, keys: &[usize], aggregates: &[Aggregate]) -> Table {
     let n = row_count(t);
     let groups = if keys.is_empty() {
-        vec![(0..n).collect()]
+        Parts::one(n)
     } else {
         partition(t, keys, 0..n)
     };
@@ -688,7 +753,7 @@ fn top(t: &Table, key: usize, by: usize, n: usize, rest: &str) -> Table {
     });
     let mut kept_row = vec![false; rows];
     for &(i, _) in ranked.iter().take(n) {
-        for &r in &cats[i] {
+        for &r in cats.get(i) {
             kept_row[r] = true;
         }
     }
@@ -705,7 +770,7 @@ fn top(t: &Table, key: usize, by: usize, n: usize, rest: &str) -> Table {
         .filter(|&c| c == key || relabeled.columns[c].ty != ColType::Number)
         .collect();
     let folds = partition(&relabeled, &dims, 0..folded);
-    for rs in &folds {
+    for rs in folds.iter() {
         for (c, col) in out.columns.iter_mut().enumerate() {
             let v = if dims.contains(&c) {
                 rs.first()

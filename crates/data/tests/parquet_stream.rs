@@ -155,3 +155,67 @@ fn groups_whose_types_differ_stop_the_fold() {
     assert!(done.stopped);
     assert_eq!(done.read, 1);
 }
+
+/// Writers name the root of a Parquet schema as they like ("schema" from
+/// pyarrow, "root" from others): a file whose root has another name is
+/// read with a projection too (only the columns the story reads).
+#[test]
+fn a_root_of_any_name_is_projected() {
+    use parquet::data_type::DoubleType;
+    use parquet::file::writer::SerializedFileWriter;
+    use parquet::schema::parser::parse_message_type;
+    let dir = std::env::temp_dir().join(format!("crescendo-parquet-root-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("scratch folder");
+    let path = dir.join("root.parquet");
+    let schema = parse_message_type("message root { required double x; required double y; }")
+        .expect("schema");
+    let out = File::create(&path).expect("create");
+    let mut w = SerializedFileWriter::new(out, std::sync::Arc::new(schema), Default::default())
+        .expect("writer");
+    let mut rg = w.next_row_group().expect("row group");
+    let mut k = 0.0;
+    while let Some(mut col) = rg.next_column().expect("column") {
+        k += 1.0;
+        let values = [k, k * 10.0, k * 100.0];
+        col.typed::<DoubleType>()
+            .write_batch(&values, None, None)
+            .expect("write");
+        col.close().expect("close column");
+    }
+    rg.close().expect("close row group");
+    w.close().expect("close file");
+    let s = CsvSpec {
+        path: path.clone(),
+        display_name: "root.parquet".into(),
+        declared: vec![],
+        missing: vec![String::new()],
+        numbers: Default::default(),
+    };
+    let file = File::open(&path).expect("open");
+    let only = Columns::Only(["y".to_string()].into_iter().collect());
+    let t = load_parquet(&s, &file, &only, &ReadLimits::default()).expect("projected load");
+    let y: Vec<Value> = t.columns[1].values.to_vec();
+    assert_eq!(
+        y,
+        vec![
+            Value::Number(2.0),
+            Value::Number(20.0),
+            Value::Number(200.0)
+        ]
+    );
+    std::fs::remove_dir_all(&dir).ok();
+}
+
+/// A sound file in a codec this build does not read says so, instead of
+/// calling the file damaged (fixture: `tests/formats/make_zstd_fixture.py`).
+#[test]
+fn an_unread_codec_is_named() {
+    let s = spec("zstd.parquet", vec![]);
+    let file = File::open(&s.path).expect("open");
+    let e = load_parquet(&s, &file, &Columns::All, &ReadLimits::default()).expect_err("refused");
+    let text = format!("{e:?}");
+    assert!(
+        text.contains("compressed with zstd") && text.contains("Snappy"),
+        "{text}"
+    );
+}

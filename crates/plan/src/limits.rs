@@ -17,11 +17,18 @@ use crescendo_data::{Cell, Table};
 use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::{Item, StoryAst};
 
+/// The byte limit of a story and of a data file read whole when the user
+/// sets none: 4 GiB. A streamed data file has no default byte limit (its
+/// memory does not grow with its size).
+pub const DEFAULT_INPUT_BYTES: u64 = 4 << 30;
+
 /// The limits of one build.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Limits {
-    /// Largest story or data file, in bytes.
-    pub input_bytes: u64,
+    /// Largest story or data file, in bytes; `None`: the user set none, so
+    /// a story or a data file read whole may have [`DEFAULT_INPUT_BYTES`]
+    /// and a streamed data file any size.
+    pub input_bytes: Option<u64>,
     /// Most rows of a data file held in memory; `None`: as many as fit in
     /// half the available memory (see the module docs).
     pub rows: Option<usize>,
@@ -34,7 +41,7 @@ pub struct Limits {
 impl Default for Limits {
     fn default() -> Self {
         Self {
-            input_bytes: 4 << 30,
+            input_bytes: None,
             rows: None,
             frames: 500,
             text: 10_000,
@@ -42,19 +49,30 @@ impl Default for Limits {
     }
 }
 
-/// Is the file at `path` within the size limit? (A file that cannot be
-/// read is left to the reader's own error.)
+/// Is the file at `path`, read whole, within the size limit? (A file that
+/// cannot be read is left to the reader's own error.)
 pub fn file_size(path: &Path, limits: &Limits) -> Result<(), String> {
-    size(path, std::fs::metadata(path).ok().map(|m| m.len()), limits)
+    size(
+        path,
+        std::fs::metadata(path).ok().map(|m| m.len()),
+        limits,
+        false,
+    )
 }
 
 /// Is a file of `len` bytes (`None`: unreadable) within the size limit?
-pub fn size(path: &Path, len: Option<u64>, limits: &Limits) -> Result<(), String> {
+/// `streamed`: the file is read record by record, so only a limit the user
+/// set applies.
+pub fn size(path: &Path, len: Option<u64>, limits: &Limits, streamed: bool) -> Result<(), String> {
+    let limit = match limits.input_bytes {
+        Some(l) => l,
+        None if streamed => return Ok(()),
+        None => DEFAULT_INPUT_BYTES,
+    };
     match len {
-        Some(len) if len > limits.input_bytes => Err(format!(
-            "`{}` has {len} bytes, more than the limit of {} (--max-input-bytes)",
+        Some(len) if len > limit => Err(format!(
+            "`{}` has {len} bytes, more than the limit of {limit} (--max-input-bytes)",
             path.display(),
-            limits.input_bytes
         )),
         _ => Ok(()),
     }
@@ -222,7 +240,7 @@ mod tests {
 
     fn limits() -> Limits {
         Limits {
-            input_bytes: 10,
+            input_bytes: Some(10),
             rows: Some(2),
             frames: 1,
             text: 5,
@@ -271,5 +289,12 @@ mod tests {
         std::fs::write(&p, "0123456789a").unwrap();
         assert!(file_size(&p, &limits()).unwrap_err().contains("11 bytes"));
         assert!(file_size(&p.with_extension("none"), &limits()).is_ok());
+        // without a limit set: the default for a file read whole, none for
+        // a streamed file; a limit the user sets holds for both
+        let big = Some(DEFAULT_INPUT_BYTES + 1);
+        let default = Limits::default();
+        assert!(size(&p, big, &default, false).is_err());
+        assert!(size(&p, big, &default, true).is_ok());
+        assert!(size(&p, Some(11), &limits(), true).is_err());
     }
 }

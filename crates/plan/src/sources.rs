@@ -76,7 +76,10 @@ fn read(
             cx.dir.join(&d.file.value)
         }
     };
-    if let Err(why) = crate::limits::size(&path, cx.io.file_len(&path), &options.limits) {
+    // a file that may be streamed is checked against the default limit
+    // only if it has to be read whole after all (`Loader::load`)
+    let streamed = loader.may_stream(d, &path);
+    if let Err(why) = crate::limits::size(&path, cx.io.file_len(&path), &options.limits, streamed) {
         return Err(cx.error("limit", why, d.file.span.clone(), "this file"));
     }
     let table = loader.load(cx, tables, d, replacement.as_deref())?;

@@ -132,6 +132,7 @@ impl Loader {
                     return Ok(shell);
                 }
             }
+            whole_size(cx, decl, &spec)?;
             let read = crescendo_data::parquet::load_parquet_skipping(
                 &spec,
                 &file,
@@ -158,9 +159,35 @@ impl Loader {
                 return table;
             }
         }
+        whole_size(cx, decl, &spec)?;
         self.report.loaded.push(name);
         let read = cx.io.load_csv(&spec, &file, &keep, &self.limits);
         files::reported(cx, decl, read)
+    }
+}
+
+impl Loader {
+    /// May the file of `decl` at `path` be streamed (so that only a byte
+    /// limit the user set applies to it, unless it is read whole after
+    /// all)? A CSV or Parquet file (no `sheet` or `cells`) that only views
+    /// starting with `keep` or `by` read.
+    pub(crate) fn may_stream(&self, decl: &ast::DataDecl, path: &Path) -> bool {
+        decl.database.is_none()
+            && decl.sheet.is_none()
+            && decl.cells.is_none()
+            && !crescendo_data::workbook::is_workbook(path)
+            && self.facts.streamable.contains_key(&decl.name.name)
+    }
+}
+
+/// A file about to be read whole is within the byte limit, the default
+/// one included (the check before the read skipped it for a file that
+/// might have been streamed).
+fn whole_size(cx: &mut Ctx, decl: &ast::DataDecl, spec: &CsvSpec) -> Outcome<()> {
+    let len = cx.io.file_len(&spec.path);
+    match crate::limits::size(&spec.path, len, &cx.options.limits, false) {
+        Ok(()) => Ok(()),
+        Err(why) => Err(cx.error("limit", why, decl.file.span.clone(), "this file")),
     }
 }
 
