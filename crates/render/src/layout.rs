@@ -258,7 +258,7 @@ impl<'t> Header<'t> {
 
 /// The frames the grid is computed over: every frame of the deck (always
 /// including `frame`).
-fn grid_frames<'a>(deck: &'a DeckPlan, frame: &'a FramePlan) -> Vec<&'a FramePlan> {
+pub(crate) fn grid_frames<'a>(deck: &'a DeckPlan, frame: &'a FramePlan) -> Vec<&'a FramePlan> {
     let mut frames: Vec<&FramePlan> = deck.frames.iter().collect();
     if !frames.contains(&frame) {
         frames.push(frame);

@@ -904,6 +904,39 @@ fn one_grid_for_every_frame_of_the_deck() {
     assert_eq!(regions[0].tick_column(0.0), 0.0);
 }
 
+// One plot rectangle: a line chart, vertical bars with two titles and
+// long names, and horizontal bars keep different rooms above and below
+// their plots, yet all three plots share all four edges.
+#[test]
+fn every_chart_form_of_a_deck_draws_on_one_plot_rectangle() {
+    use crescendo_look::display::Part;
+    let d = deck(vec![
+        frame(1, 1, "Lines", Some("A takeaway"), line_chart()),
+        frame(2, 2, "Upright", None, bar_chart(Orientation::Vertical)),
+        frame(3, 3, "Lying", None, bar_chart(Orientation::Horizontal)),
+    ]);
+    let plots: Vec<crescendo_look::display::Rect> = (d.frames.iter())
+        .map(|f| {
+            let list = crate::display_list(&d, f, None).unwrap();
+            match list.groups(|p| matches!(p, Part::Plot(_))).as_slice() {
+                [(Part::Plot(r), _)] => *r,
+                other => panic!("frame {}: {} plots", f.number, other.len()),
+            }
+        })
+        .collect();
+    for r in &plots[1..] {
+        assert_eq!(*r, plots[0]);
+    }
+    // the upright bars' names and category title (the most room below)
+    // lift the line chart's plot bottom above where its own ticks need
+    let line_alone = deck(vec![frame(1, 1, "Lines", Some("A takeaway"), line_chart())]);
+    let list = crate::display_list(&line_alone, &line_alone.frames[0], None).unwrap();
+    let [(Part::Plot(alone), _)] = list.groups(|p| matches!(p, Part::Plot(_))).as_slice() else {
+        panic!("one plot");
+    };
+    assert!(alone.y1 > plots[0].y1 + 10.0, "{alone:?} {:?}", plots[0]);
+}
+
 // The opening frame shows the title, byline and source; the closing frame
 // the conclusion; both are counted with the chart frames, escaped, and
 // left out when asked.
