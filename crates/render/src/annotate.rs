@@ -5,6 +5,7 @@
 //! where it covers the fewest other labels and lines.
 
 use crate::canvas::{Align, Canvas, Label};
+use crate::fit;
 use crate::kit::{self, faint_fill, rect, Obstacles, Rect};
 use crate::line_layout::LineLayout;
 use crate::metrics::{self, line_height, text_width};
@@ -105,6 +106,7 @@ fn band_names(
         let x0 = xm(from.min(*to)).clamp(l.plot_left, l.plot_right);
         let x1 = xm(from.max(*to)).clamp(l.plot_left, l.plot_right);
         let room = (x1 - x0 - 12.0).max(120.0).min(plot_w);
+        let full = text;
         let text = metrics::ellipsize(&metrics::normalize(text), theme.label_size, false, room);
         let w = text_width(&text, theme.label_size, false);
         let cands: Vec<Rect> = (0..4)
@@ -114,6 +116,8 @@ fn band_names(
             })
             .collect();
         if let Some(r) = choose(&cands, obstacles, &area, true) {
+            // a name cut to the band's room is noted for the lint
+            fit::note(canvas, full, std::slice::from_ref(&text))?;
             kit::put(canvas, obstacles, &plain(theme, &text, r))?;
         }
     }
@@ -147,6 +151,7 @@ fn reference_names(
         obstacles
             .segments
             .push(((l.plot_left, y), (l.plot_right, y)));
+        let full = text;
         let text = metrics::ellipsize(
             &metrics::normalize(text),
             theme.label_size,
@@ -163,6 +168,8 @@ fn reference_names(
             rect(l.plot_left, below, l.plot_left + w, below + lh),
         ];
         if let Some(r) = choose(&cands, obstacles, &area, true) {
+            // a name cut to half the plot is noted for the lint
+            fit::note(canvas, full, std::slice::from_ref(&text))?;
             kit::put(canvas, obstacles, &plain(theme, &text, r))?;
         }
     }

@@ -937,6 +937,52 @@ fn every_chart_form_of_a_deck_draws_on_one_plot_rectangle() {
     assert!(alone.y1 > plots[0].y1 + 10.0, "{alone:?} {:?}", plots[0]);
 }
 
+// Names of bands, reference lines and moments on a line chart that must be
+// cut to their room are noted (`Part::Cut`) for the text-cut lint; names
+// that fit are not.
+#[test]
+fn cut_annotation_names_on_a_line_chart_are_noted() {
+    use crescendo_frame::Annotation;
+    use crescendo_look::display::Part;
+    let long = "A name far too long for any room on this chart, going on and on \
+                about what happened in these years and why it matters to the reader";
+    let Chart::Line(mut chart) = line_chart() else {
+        unreachable!()
+    };
+    chart.annotations = vec![
+        Annotation::Band {
+            from: 2016.0,
+            to: 2017.0,
+            text: Some(format!("Band: {long}")),
+        },
+        Annotation::Reference {
+            value: 30.0,
+            text: format!("Line: {long}"),
+        },
+        Annotation::Moment {
+            from: 2020.0,
+            to: None,
+            text: format!("Moment: {long}"),
+        },
+        Annotation::Reference {
+            value: 5.0,
+            text: "Short".to_string(),
+        },
+    ];
+    let d = deck(vec![frame(1, 1, "Notes", None, Chart::Line(chart))]);
+    let list = crate::display_list(&d, &d.frames[0], None).unwrap();
+    let mut cut: Vec<String> = list
+        .groups(|p| matches!(p, Part::Cut { .. }))
+        .into_iter()
+        .filter_map(|(p, _)| match p {
+            Part::Cut { full } => Some(full.split(':').next().unwrap_or("").to_string()),
+            _ => None,
+        })
+        .collect();
+    cut.sort();
+    assert_eq!(cut, ["Band", "Line", "Moment"]);
+}
+
 // The opening frame shows the title, byline and source; the closing frame
 // the conclusion; both are counted with the chart frames, escaped, and
 // left out when asked.
