@@ -282,9 +282,14 @@ fn callouts(
         let h = (lines.len() - 1) as f64 * step + lh;
         let p = (xm(*x), ym(*y));
         // nearest free spot around the point (clear of lines, marks and
-        // text), else the one crossing the fewest
-        let cands = place::around(p, w, h, &[22.0, 44.0, 76.0, 120.0]);
-        let Some(r) = choose(&cands, obstacles, &area, true) else {
+        // text) whose leader crosses no other line or mark (a leader over
+        // a peak points at the wrong line), else the nearest free spot,
+        // else the one crossing the fewest
+        let cands = place::around(p, w, h, &[22.0, 44.0, 76.0, 120.0, 170.0]);
+        let lead = |r: &Rect| place::leader(p, r);
+        let Some(r) = place::pick_led(&cands, obstacles, &area, lead)
+            .or_else(|| choose(&cands, obstacles, &area, true))
+        else {
             continue;
         };
         // Leader from near the point to the nearest edge of the text block.

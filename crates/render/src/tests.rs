@@ -983,6 +983,75 @@ fn cut_annotation_names_on_a_line_chart_are_noted() {
     assert_eq!(cut, ["Band", "Line", "Moment"]);
 }
 
+// A callout on a line's peak with another line peaking right above it:
+// the leader runs where it crosses no other line (not up through the
+// other peak's vertex), and the text is drawn.
+#[test]
+fn a_line_callout_leader_crosses_no_other_line() {
+    use crescendo_frame::Annotation;
+    use crescendo_look::display::Item;
+    let peak = |top: f64, base: f64| -> Vec<Option<f64>> {
+        (0..10)
+            .map(|i| Some(if i == 5 { top } else { base }))
+            .collect()
+    };
+    let chart = Chart::Line(LineChart {
+        annotations: vec![Annotation::Callout {
+            x: 2020.0,
+            y: 25.0,
+            text: "A summer campaign began".to_string(),
+        }],
+        end_labels: false,
+        x: year_axis(),
+        y: pct_axis(),
+        series: vec![
+            series("Focus", Role::Focus, &peak(25.0, 20.0)),
+            series("Other", Role::Context, &peak(31.0, 25.0)),
+        ],
+    });
+    let d = deck(vec![frame(1, 1, "Peaks", None, chart)]);
+    let list = crate::display_list(&d, &d.frames[0], None).unwrap();
+    let items = list.flat();
+    let data: Vec<&Vec<(f64, f64)>> = (items.iter())
+        .filter_map(|i| match i {
+            Item::Polyline { points, width, .. } if *width >= 2 && points.len() > 2 => Some(points),
+            _ => None,
+        })
+        .collect();
+    assert_eq!(data.len(), 2);
+    // the callout's point: the focus line's vertex at 2020
+    let p = data
+        .iter()
+        .map(|d| d[5])
+        .fold((0.0, f64::MIN), |a, b| if b.1 > a.1 { b } else { a });
+    let leaders: Vec<((f64, f64), (f64, f64))> = (items.iter())
+        .filter_map(|i| match i {
+            Item::Polyline {
+                points, width: 1, ..
+            } if points.len() == 2 => Some((points[0], points[1])),
+            _ => None,
+        })
+        .filter(|(a, _)| (a.0 - p.0).hypot(a.1 - p.1) < 6.0)
+        .collect();
+    assert_eq!(leaders.len(), 1, "{leaders:?}");
+    let (a, b) = leaders[0];
+    let side = |s: (f64, f64), t: (f64, f64), q: (f64, f64)| {
+        (t.0 - s.0) * (q.1 - s.1) - (t.1 - s.1) * (q.0 - s.0)
+    };
+    for w in data.iter().flat_map(|d| d.windows(2)) {
+        let (s, t) = (w[0], w[1]);
+        let apart = side(s, t, a) * side(s, t, b) >= 0.0 || side(a, b, s) * side(a, b, t) > 0.0;
+        assert!(apart, "leader {a:?}-{b:?} crosses {s:?}-{t:?}");
+    }
+    let texts: Vec<&str> = (items.iter())
+        .filter_map(|i| match i {
+            Item::Text(t) => Some(t.text.as_str()),
+            _ => None,
+        })
+        .collect();
+    assert!(texts.contains(&"A summer campaign began"), "{texts:?}");
+}
+
 // The opening frame shows the title, byline and source; the closing frame
 // the conclusion; both are counted with the chart frames, escaped, and
 // left out when asked.
