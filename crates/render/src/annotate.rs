@@ -297,6 +297,7 @@ fn callouts(
             canvas.line(from, to, theme.muted, 1)?;
             obstacles.segments.push((from, to));
         }
+        fit::note(canvas, text, &lines)?;
         let style = (theme.label_size, false, theme.takeaway);
         kit::put_lines(canvas, obstacles, &lines, (&r, step), style)?;
     }

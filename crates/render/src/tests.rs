@@ -937,8 +937,8 @@ fn every_chart_form_of_a_deck_draws_on_one_plot_rectangle() {
     assert!(alone.y1 > plots[0].y1 + 10.0, "{alone:?} {:?}", plots[0]);
 }
 
-// Names of bands, reference lines and moments on a line chart that must be
-// cut to their room are noted (`Part::Cut`) for the text-cut lint; names
+// Names of bands, reference lines, moments and series and callouts on a
+// line chart that must be cut to their room are noted (`Part::Cut`) for the text-cut lint; names
 // that fit are not.
 #[test]
 fn cut_annotation_names_on_a_line_chart_are_noted() {
@@ -968,7 +968,13 @@ fn cut_annotation_names_on_a_line_chart_are_noted() {
             value: 5.0,
             text: "Short".to_string(),
         },
+        Annotation::Callout {
+            x: 2018.0,
+            y: 8.0,
+            text: format!("Callout: {long} {long}"),
+        },
     ];
+    chart.series[0].label = format!("Series: {long}");
     let d = deck(vec![frame(1, 1, "Notes", None, Chart::Line(chart))]);
     let list = crate::display_list(&d, &d.frames[0], None).unwrap();
     let mut cut: Vec<String> = list
@@ -980,7 +986,7 @@ fn cut_annotation_names_on_a_line_chart_are_noted() {
         })
         .collect();
     cut.sort();
-    assert_eq!(cut, ["Band", "Line", "Moment"]);
+    assert_eq!(cut, ["Band", "Callout", "Line", "Moment", "Series"]);
 }
 
 // A callout on a line's peak with another line peaking right above it:
