@@ -687,11 +687,19 @@ fn every_chart_frame_of_a_deck_shares_its_plot_edges() {
         let (plan, lists) = layouts_of(&path);
         let plots: Vec<(u32, Rect)> = (plan.frames.iter().zip(&lists))
             .filter_map(|(f, list)| {
+                // one plot, or the cells of a split scatter together
                 let plots = list.groups(|p| matches!(p, Part::Plot(_)));
-                match plots.as_slice() {
-                    [(Part::Plot(r), _)] => Some((f.number as u32, *r)),
+                let rects = plots.iter().filter_map(|(p, _)| match p {
+                    Part::Plot(r) => Some(*r),
                     _ => None,
-                }
+                });
+                let union = rects.reduce(|a, r| Rect {
+                    x0: a.x0.min(r.x0),
+                    y0: a.y0.min(r.y0),
+                    x1: a.x1.max(r.x1),
+                    y1: a.y1.max(r.y1),
+                })?;
+                Some((f.number as u32, union))
             })
             .collect();
         let Some(&(_, deck)) = plots.first() else {

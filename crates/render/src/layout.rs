@@ -83,6 +83,7 @@ fn left_axis(chart: &Chart) -> Option<&Axis> {
         Chart::Bars(b) if b.orientation == Orientation::Vertical => Some(&b.value),
         Chart::Parts(p) if p.orientation == Orientation::Vertical => Some(&p.value),
         Chart::Scatter(s) => Some(&s.y),
+        Chart::Panels(p) if crate::scatter_grid::all_scatters(p) => crate::scatter_grid::y_axis(p),
         _ => None,
     }
 }

@@ -52,8 +52,7 @@ pub(crate) fn fit(deck: &DeckPlan, frame: &FramePlan, theme: &Theme, region: Reg
 }
 
 /// The room `chart` keeps above and below its plot in `region`; `None`
-/// for forms without a plot rectangle (figures, tables, pies, split
-/// scatters, plugins).
+/// for forms without a plot rectangle (figures, tables, pies, plugins).
 fn rooms(chart: &Chart, theme: &Theme, region: Region) -> Option<Rooms> {
     let lh = line_height(theme.label_size);
     let title = |t: bool| if t { lh + 8.0 } else { 0.0 };
@@ -121,7 +120,18 @@ fn rooms(chart: &Chart, theme: &Theme, region: Region) -> Option<Rooms> {
                 + if d.series.len() > 1 { lh + 6.0 } else { 0.0 },
             bottom: under(d.value.title.is_some()),
         },
-        Chart::Panels(p) if !scatter_grid::all_scatters(p) => {
+        Chart::Panels(p) if scatter_grid::all_scatters(p) => {
+            let first = p.panels.iter().find_map(|q| match &q.chart {
+                Chart::Scatter(s) => Some(s),
+                _ => None,
+            })?;
+            // each row: the panel title, then a whole scatter
+            Rooms {
+                top: lh + 6.0 + title(first.y.title.is_some()) + lh / 2.0,
+                bottom: under(first.x.title.is_some()),
+            }
+        }
+        Chart::Panels(p) => {
             let (measure, other) = crate::panels::titles(p);
             Rooms {
                 top: title(measure.is_some()),
