@@ -1393,3 +1393,42 @@ fn a_split_scatter_subdivides_the_decks_plot() {
         assert!(same, "frame {}: {b:?}, the deck's {:?}", i + 1, boxes[0]);
     }
 }
+
+/// A scatter's x tick label too wide for the plot is cut and noted
+/// (`Part::Cut`) for the text-cut lint.
+#[test]
+fn a_cut_tick_label_is_noted() {
+    use crescendo_look::display::Part;
+    let Chart::Scatter(mut chart) = scatter_chart(false) else {
+        unreachable!()
+    };
+    let long = "A tick label written far too long for any plot ".repeat(4);
+    chart.x.ticks = vec![Tick {
+        value: 50.0,
+        label: long.clone(),
+    }];
+    let f = frame("A headline for the form", Chart::Scatter(chart));
+    let d = DeckPlan {
+        title: "t".to_string(),
+        byline: None,
+        source: None,
+        theme: "clear".to_string(),
+        conclusion: None,
+        accent: None,
+        style: None,
+        values: Default::default(),
+        exact: Default::default(),
+        claims: Vec::new(),
+        frames: vec![f.clone()],
+        locale: None,
+        fiscal_start: None,
+    };
+    let list = crate::display_list(&d, &f, None).unwrap();
+    let cut: Vec<&str> = (list.groups(|p| matches!(p, Part::Cut { .. })).iter())
+        .filter_map(|(p, _)| match p {
+            Part::Cut { full } => Some(full.as_str()),
+            _ => None,
+        })
+        .collect();
+    assert_eq!(cut, [long.trim_end()]);
+}
