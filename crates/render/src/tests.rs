@@ -1058,6 +1058,30 @@ fn a_line_callout_leader_crosses_no_other_line() {
     assert!(texts.contains(&"A summer campaign began"), "{texts:?}");
 }
 
+// A claim in the footnote cut to the text column is noted for the lint;
+// one that fits and the line counting the claims left out are not.
+#[test]
+fn a_cut_claim_in_the_footnote_is_noted() {
+    use crescendo_look::display::Part;
+    let long = format!("Holds: {}", "the claim goes on and on ".repeat(12));
+    let mut f = frame(1, 1, "Claims", None, line_chart());
+    f.claim_notes = vec![
+        long.clone(),
+        "Holds: short".to_string(),
+        "Holds: a".to_string(),
+        "Fails: b".to_string(),
+    ];
+    let d = deck(vec![f]);
+    let list = crate::display_list(&d, &d.frames[0], None).unwrap();
+    let cut: Vec<&str> = (list.groups(|p| matches!(p, Part::Cut { .. })).iter())
+        .filter_map(|(p, _)| match p {
+            Part::Cut { full } => Some(full.as_str()),
+            _ => None,
+        })
+        .collect();
+    assert_eq!(cut, [long.trim_end()]);
+}
+
 // The opening frame shows the title, byline and source; the closing frame
 // the conclusion; both are counted with the chart frames, escaped, and
 // left out when asked.
