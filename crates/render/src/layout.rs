@@ -377,7 +377,7 @@ pub fn draw_page(
     let notice = frame.notices.join("  ·  ");
     if !notice.is_empty() {
         let half = source_width(theme, frame);
-        let text = metrics::ellipsize(&notice, theme.source_size, true, half);
+        let text = crate::fit::one(canvas, &notice, (theme.source_size, true), half)?;
         canvas.group(Part::Notices, || {
             canvas.text(&Label {
                 text: &text,

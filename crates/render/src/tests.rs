@@ -1058,10 +1058,11 @@ fn a_line_callout_leader_crosses_no_other_line() {
     assert!(texts.contains(&"A summer campaign began"), "{texts:?}");
 }
 
-// A claim in the footnote cut to the text column is noted for the lint;
-// one that fits and the line counting the claims left out are not.
+// A draft notice or a claim in the footnote cut to its room is noted for
+// the lint; a claim that fits and the line counting the claims left out
+// are not.
 #[test]
-fn a_cut_claim_in_the_footnote_is_noted() {
+fn a_cut_notice_or_footnote_claim_is_noted() {
     use crescendo_look::display::Part;
     let long = format!("Holds: {}", "the claim goes on and on ".repeat(12));
     let mut f = frame(1, 1, "Claims", None, line_chart());
@@ -1071,6 +1072,8 @@ fn a_cut_claim_in_the_footnote_is_noted() {
         "Holds: a".to_string(),
         "Fails: b".to_string(),
     ];
+    let notice = format!("Draft: {}", "a claim no longer holds ".repeat(6));
+    f.notices = vec![notice.clone()];
     let d = deck(vec![f]);
     let list = crate::display_list(&d, &d.frames[0], None).unwrap();
     let cut: Vec<&str> = (list.groups(|p| matches!(p, Part::Cut { .. })).iter())
@@ -1079,7 +1082,7 @@ fn a_cut_claim_in_the_footnote_is_noted() {
             _ => None,
         })
         .collect();
-    assert_eq!(cut, [long.trim_end()]);
+    assert_eq!(cut, [notice.trim_end(), long.trim_end()]);
 }
 
 // The opening frame shows the title, byline and source; the closing frame
