@@ -12,7 +12,7 @@ use crate::canvas::{Align, Canvas, Label, HEIGHT, WIDTH};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_frame::{Axis, Chart, DeckPlan, FramePlan, Orientation, PartsMode};
+use crescendo_frame::{Axis, Chart, DeckPlan, FramePlan, Orientation, PanelChart, PartsMode};
 use crescendo_look::display::Part;
 
 pub use crescendo_look::theme::{
@@ -83,9 +83,20 @@ fn left_axis(chart: &Chart) -> Option<&Axis> {
         Chart::Bars(b) if b.orientation == Orientation::Vertical => Some(&b.value),
         Chart::Parts(p) if p.orientation == Orientation::Vertical => Some(&p.value),
         Chart::Scatter(s) => Some(&s.y),
-        Chart::Panels(p) if crate::scatter_grid::all_scatters(p) => crate::scatter_grid::y_axis(p),
+        Chart::Panels(p) => split_scatter_y(p),
         _ => None,
     }
+}
+
+/// The y axis every panel of a split scatter shares (the first panel's);
+/// `None` unless every panel is a scatter.
+pub(crate) fn split_scatter_y(chart: &PanelChart) -> Option<&Axis> {
+    let mut ys = chart.panels.iter().map(|p| match &p.chart {
+        Chart::Scatter(s) => Some(&s.y),
+        _ => None,
+    });
+    let first = ys.next()??;
+    ys.all(|y| y.is_some()).then_some(first)
 }
 
 /// Widest category-name column left of a plot, as a share of the region.
@@ -571,16 +582,7 @@ pub fn fit_label(text: &str, width: f64, lines: usize, bold: bool) -> Vec<String
 
 /// [`fit_label`] at `size` px (a theme's [`Theme::label_size`]).
 pub fn fit_label_at(size: f64, text: &str, width: f64, lines: usize, bold: bool) -> Vec<String> {
-    if lines <= 1 {
-        let t = metrics::ellipsize(&metrics::normalize(text), size, bold, width);
-        if t.is_empty() {
-            Vec::new()
-        } else {
-            vec![t]
-        }
-    } else {
-        metrics::wrap(text, size, bold, width, lines)
-    }
+    crate::fit::shown(size, text, width, lines, bold)
 }
 
 #[cfg(test)]

@@ -14,7 +14,7 @@ use crate::panels::panel_title;
 use crate::scatter;
 use crate::theme::Theme;
 use crate::{Drawn, RenderError};
-use crescendo_frame::{Axis, Chart, PanelChart, Role};
+use crescendo_frame::{Chart, PanelChart, Role};
 
 /// Space between panels across and down.
 const GAP_X: f64 = 40.0;
@@ -40,14 +40,6 @@ pub(crate) fn all_scatters(chart: &PanelChart) -> bool {
             .all(|p| matches!(p.chart, Chart::Scatter(_)))
 }
 
-/// The first panel's y axis, whose tick column every panel shares.
-pub(crate) fn y_axis(chart: &PanelChart) -> Option<&Axis> {
-    chart.panels.iter().find_map(|p| match &p.chart {
-        Chart::Scatter(s) => Some(&s.y),
-        _ => None,
-    })
-}
-
 pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: Region) -> Drawn {
     let n = chart.panels.len();
     let cols = columns(n);
@@ -57,7 +49,9 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: R
     // axes, so their tick columns are one width), the last column's end at
     // its right edge; the rows' plots run from the deck's plot top to its
     // bottom ([`crate::rooms`]).
-    let ticks = y_axis(chart).map(layout::visible_ticks).unwrap_or_default();
+    let ticks = (layout::split_scatter_y(chart))
+        .map(layout::visible_ticks)
+        .unwrap_or_default();
     let tick_w = layout::max_width(
         ticks.iter().map(|(_, l)| l.as_str()),
         theme.label_size,
