@@ -680,29 +680,48 @@ fn every_demo_label_keeps_off_the_data_marks() {
 /// labels, read from the layout.
 #[test]
 fn every_chart_frame_of_a_deck_shares_its_plot_edges() {
-    use crescendo_look::display::Part;
+    use crescendo_look::display::{Part, Rect};
     let mut checked = 0;
+    let mut wrong = Vec::new();
     for (name, path) in stories() {
         let (plan, lists) = layouts_of(&path);
-        let edges: Vec<(u32, f64, f64)> = (plan.frames.iter().zip(&lists))
+        let plots: Vec<(u32, Rect)> = (plan.frames.iter().zip(&lists))
             .filter_map(|(f, list)| {
+                // one plot, or the cells of a split scatter together
                 let plots = list.groups(|p| matches!(p, Part::Plot(_)));
-                match plots.as_slice() {
-                    [(Part::Plot(r), _)] => Some((f.number as u32, r.x0, r.x1)),
+                let rects = plots.iter().filter_map(|(p, _)| match p {
+                    Part::Plot(r) => Some(*r),
                     _ => None,
-                }
+                });
+                let union = rects.reduce(|a, r| Rect {
+                    x0: a.x0.min(r.x0),
+                    y0: a.y0.min(r.y0),
+                    x1: a.x1.max(r.x1),
+                    y1: a.y1.max(r.y1),
+                })?;
+                Some((f.number as u32, union))
             })
             .collect();
-        let Some(&(_, left, right)) = edges.first() else {
+        let Some(&(_, deck)) = plots.first() else {
             continue;
         };
-        for &(number, l, r) in &edges {
-            assert!(
-                (l - left).abs() < 0.01 && (r - right).abs() < 0.01,
-                "{name} frame {number}: plot {l:.1}..{r:.1}, the deck's {left:.1}..{right:.1}"
-            );
+        for &(number, r) in &plots {
+            let edges = [
+                (r.x0, deck.x0),
+                (r.y0, deck.y0),
+                (r.x1, deck.x1),
+                (r.y1, deck.y1),
+            ];
+            if edges.iter().any(|(a, b)| (a - b).abs() >= 0.01) {
+                wrong.push(format!(
+                    "{name} frame {number}: plot ({:.1}, {:.1})..({:.1}, {:.1}), \
+                     the deck's ({:.1}, {:.1})..({:.1}, {:.1})",
+                    r.x0, r.y0, r.x1, r.y1, deck.x0, deck.y0, deck.x1, deck.y1
+                ));
+            }
         }
-        checked += edges.len();
+        checked += plots.len();
     }
+    assert!(wrong.is_empty(), "{}", wrong.join("\n"));
     assert!(checked >= 20, "only {checked} chart frames checked");
 }

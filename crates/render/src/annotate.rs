@@ -5,6 +5,7 @@
 //! where it covers the fewest other labels and lines.
 
 use crate::canvas::{Align, Canvas, Label};
+use crate::fit;
 use crate::kit::{self, faint_fill, rect, Obstacles, Rect};
 use crate::line_layout::LineLayout;
 use crate::metrics::{self, line_height, text_width};
@@ -105,6 +106,7 @@ fn band_names(
         let x0 = xm(from.min(*to)).clamp(l.plot_left, l.plot_right);
         let x1 = xm(from.max(*to)).clamp(l.plot_left, l.plot_right);
         let room = (x1 - x0 - 12.0).max(120.0).min(plot_w);
+        let full = text;
         let text = metrics::ellipsize(&metrics::normalize(text), theme.label_size, false, room);
         let w = text_width(&text, theme.label_size, false);
         let cands: Vec<Rect> = (0..4)
@@ -114,6 +116,8 @@ fn band_names(
             })
             .collect();
         if let Some(r) = choose(&cands, obstacles, &area, true) {
+            // a name cut to the band's room is noted for the lint
+            fit::note(canvas, full, std::slice::from_ref(&text))?;
             kit::put(canvas, obstacles, &plain(theme, &text, r))?;
         }
     }
@@ -147,6 +151,7 @@ fn reference_names(
         obstacles
             .segments
             .push(((l.plot_left, y), (l.plot_right, y)));
+        let full = text;
         let text = metrics::ellipsize(
             &metrics::normalize(text),
             theme.label_size,
@@ -163,6 +168,8 @@ fn reference_names(
             rect(l.plot_left, below, l.plot_left + w, below + lh),
         ];
         if let Some(r) = choose(&cands, obstacles, &area, true) {
+            // a name cut to half the plot is noted for the lint
+            fit::note(canvas, full, std::slice::from_ref(&text))?;
             kit::put(canvas, obstacles, &plain(theme, &text, r))?;
         }
     }
@@ -275,9 +282,14 @@ fn callouts(
         let h = (lines.len() - 1) as f64 * step + lh;
         let p = (xm(*x), ym(*y));
         // nearest free spot around the point (clear of lines, marks and
-        // text), else the one crossing the fewest
-        let cands = place::around(p, w, h, &[22.0, 44.0, 76.0, 120.0]);
-        let Some(r) = choose(&cands, obstacles, &area, true) else {
+        // text) whose leader crosses no other line or mark (a leader over
+        // a peak points at the wrong line), else the nearest free spot,
+        // else the one crossing the fewest
+        let cands = place::around(p, w, h, &[22.0, 44.0, 76.0, 120.0, 170.0]);
+        let lead = |r: &Rect| place::leader(p, r);
+        let Some(r) = place::pick_led(&cands, obstacles, &area, lead)
+            .or_else(|| choose(&cands, obstacles, &area, true))
+        else {
             continue;
         };
         // Leader from near the point to the nearest edge of the text block.
@@ -285,6 +297,7 @@ fn callouts(
             canvas.line(from, to, theme.muted, 1)?;
             obstacles.segments.push((from, to));
         }
+        fit::note(canvas, text, &lines)?;
         let style = (theme.label_size, false, theme.takeaway);
         kit::put_lines(canvas, obstacles, &lines, (&r, step), style)?;
     }

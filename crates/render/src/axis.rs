@@ -85,9 +85,10 @@ pub(crate) fn row(
     let wanted = (ticks.iter())
         .map(|(_, text)| text_width(text, size, false))
         .collect();
-    let placed: Vec<(f64, f64, String)> = ticks
+    let placed: Vec<(f64, f64, String, String)> = ticks
         .into_iter()
-        .map(|(v, text)| {
+        .map(|(v, full)| {
+            let text = full.clone();
             let (text, w) = match row.fit {
                 Fit::AsWritten => {
                     let w = text_width(&text, size, false);
@@ -109,22 +110,30 @@ pub(crate) fn row(
                 row.hi
             };
             let centre = at(v).max(row.lo + w / 2.0).min(hi - w / 2.0);
-            (centre, w, text)
+            (centre, w, text, full)
         })
         .collect();
     let spans: Vec<(f64, f64)> = placed
         .iter()
-        .map(|(c, w, _)| (c - w / 2.0, c + w / 2.0))
+        .map(|(c, w, _, _)| (c - w / 2.0, c + w / 2.0))
         .collect();
+    let keep = layout::thin(&spans, row.gap);
     canvas.group(Part::XTicks { wanted }, || {
-        for ((c, _, text), keep) in placed.iter().zip(layout::thin(&spans, row.gap)) {
-            if keep {
+        for ((c, _, text, _), keep) in placed.iter().zip(&keep) {
+            if *keep {
                 let label = muted_label(theme, size, text, *c, row.top, Align::Middle);
                 kit::put(canvas, obstacles, &label)?;
             }
         }
         Ok(())
-    })
+    })?;
+    // a tick label cut to its room is noted for the lint
+    for ((_, _, text, full), keep) in placed.iter().zip(&keep) {
+        if *keep {
+            crate::fit::note(canvas, full, std::slice::from_ref(text))?;
+        }
+    }
+    Ok(())
 }
 
 /// Geometry of a plain x/y plot: y ticks right-aligned at the left, an

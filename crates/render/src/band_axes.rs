@@ -36,22 +36,25 @@ pub(crate) struct Upright {
     pub names_top: f64,
 }
 
-/// Lays out and titles upright bands: `names` are the category names,
-/// `beside` the width of a column of labels kept right of the plot (none
-/// when 0).
-#[allow(clippy::too_many_arguments)]
-pub(crate) fn upright(
-    canvas: &Canvas,
-    obstacles: &mut Obstacles,
+/// The columns of upright bands, which depend on the region's left and
+/// right edges and gutters only: the tick column's width, the plot's left
+/// and right edges, a band's width and a category name's width and lines.
+pub(crate) struct UprightColumns {
+    pub tick_w: f64,
+    pub plot: (f64, f64),
+    pub band: f64,
+    pub name_width: f64,
+    pub name_lines: usize,
+}
+
+/// [`UprightColumns`] of [`upright`] bands.
+pub(crate) fn upright_columns(
     theme: &Theme,
     region: Region,
     value: &Axis,
-    category_title: Option<&str>,
     names: &[&str],
     beside: f64,
-) -> Result<Upright, RenderError> {
-    let lh = line_height(theme.label_size);
-    let step = theme.label_step();
+) -> UprightColumns {
     let ticks = layout::visible_ticks(value);
     let tick_w = region.tick_column(max_width(
         ticks.iter().map(|(_, l)| l.as_str()),
@@ -77,6 +80,38 @@ pub(crate) fn upright(
         .any(|n| text_width(&metrics::normalize(n), theme.label_size, false) > name_width);
     let name_lines = if two_lines { 2 } else { 1 };
 
+    UprightColumns {
+        tick_w,
+        plot: (plot_left, plot_right),
+        band,
+        name_width,
+        name_lines,
+    }
+}
+
+/// Lays out and titles upright bands: `names` are the category names,
+/// `beside` the width of a column of labels kept right of the plot (none
+/// when 0).
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn upright(
+    canvas: &Canvas,
+    obstacles: &mut Obstacles,
+    theme: &Theme,
+    region: Region,
+    value: &Axis,
+    category_title: Option<&str>,
+    names: &[&str],
+    beside: f64,
+) -> Result<Upright, RenderError> {
+    let lh = line_height(theme.label_size);
+    let step = theme.label_step();
+    let UprightColumns {
+        tick_w,
+        plot: (plot_left, plot_right),
+        band,
+        name_width,
+        name_lines,
+    } = upright_columns(theme, region, value, names, beside);
     let top = axis::title_above(canvas, obstacles, theme, region, value.title.as_deref())?;
     let mut bottom = region.bottom;
     if let Some(title) = category_title {

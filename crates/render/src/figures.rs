@@ -108,6 +108,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &FigureChart, region: 
             align: Align::Start,
         })?;
         let caption_top = top + line_height(size) + FIGURE_TO_CAPTION;
+        fit::note(canvas, &figure.caption, caption)?;
         for (k, line) in caption.iter().enumerate() {
             canvas.text(&Label {
                 text: line,

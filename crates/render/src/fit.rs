@@ -4,7 +4,6 @@
 //! and no label is ever cut silently.
 
 use crate::canvas::Canvas;
-use crate::layout;
 use crate::metrics;
 use crate::RenderError;
 use crescendo_look::display::Part;
@@ -32,8 +31,23 @@ pub(crate) fn one(
     Ok(shown)
 }
 
-/// `text` on at most `lines` lines `width` wide ([`layout::fit_label_at`]),
-/// the cut noted.
+/// `text` as drawn on at most `lines` lines `width` wide at `size` px:
+/// ellipsized on one line, else wrapped (the last line ellipsized).
+pub(crate) fn shown(size: f64, text: &str, width: f64, lines: usize, bold: bool) -> Vec<String> {
+    if lines <= 1 {
+        let t = metrics::ellipsize(&metrics::normalize(text), size, bold, width);
+        if t.is_empty() {
+            Vec::new()
+        } else {
+            vec![t]
+        }
+    } else {
+        metrics::wrap(text, size, bold, width, lines)
+    }
+}
+
+/// `text` on at most `lines` lines `width` wide ([`shown`]), the cut
+/// noted.
 pub(crate) fn lines(
     canvas: &Canvas,
     text: &str,
@@ -41,7 +55,7 @@ pub(crate) fn lines(
     width: f64,
     lines: usize,
 ) -> Result<Vec<String>, RenderError> {
-    let shown = layout::fit_label_at(size, text, width, lines, bold);
+    let shown = shown(size, text, width, lines, bold);
     note(canvas, text, &shown)?;
     Ok(shown)
 }

@@ -49,7 +49,14 @@ pub(crate) fn draw(
     top: f64,
     pitch: f64,
 ) -> Result<(), RenderError> {
+    let notes = &frame.claim_notes;
     for (i, (text, fails)) in lines(theme, frame).iter().enumerate() {
+        // a claim cut to the text column is noted for the lint (the line
+        // that counts the claims left out is not a claim)
+        let counted = notes.len() > MAX_LINES && i == MAX_LINES - 1;
+        if let Some(full) = notes.get(i).filter(|_| !counted) {
+            crate::fit::note(canvas, full, std::slice::from_ref(text))?;
+        }
         canvas.text(&Label {
             text,
             x: theme.margin_x,

@@ -1310,3 +1310,125 @@ fn panels_of_bars_both_ways() {
         insta::assert_snapshot!(name, svg);
     }
 }
+
+/// The bounding box of a frame's plots (`Part::Plot`): one rectangle, or
+/// the cells of a split scatter together.
+fn plot_box(list: &crate::DisplayList) -> crescendo_look::display::Rect {
+    use crescendo_look::display::{Part, Rect};
+    let plots = list.groups(|p| matches!(p, Part::Plot(_)));
+    assert!(!plots.is_empty(), "no plot");
+    (plots.iter())
+        .filter_map(|(p, _)| match p {
+            Part::Plot(r) => Some(*r),
+            _ => None,
+        })
+        .fold(
+            Rect {
+                x0: f64::MAX,
+                y0: f64::MAX,
+                x1: f64::MIN,
+                y1: f64::MIN,
+            },
+            |a, r| Rect {
+                x0: a.x0.min(r.x0),
+                y0: a.y0.min(r.y0),
+                x1: a.x1.max(r.x1),
+                y1: a.y1.max(r.y1),
+            },
+        )
+}
+
+/// A split scatter's cells subdivide the deck's plot rectangle: together
+/// they span exactly the plot of a whole scatter and of vertical bars in
+/// the same deck.
+#[test]
+fn a_split_scatter_subdivides_the_decks_plot() {
+    let panels = ["North", "South", "East", "West"]
+        .iter()
+        .map(|n| Panel {
+            title: n.to_string(),
+            role: Role::Context,
+            chart: scatter_of(false, 6),
+        })
+        .collect();
+    let split = Chart::Panels(PanelChart {
+        key: "area".to_string(),
+        common_scale: true,
+        trimmed: false,
+        panels,
+    });
+    let frames: Vec<FramePlan> = [
+        scatter_chart(false),
+        split,
+        plain_bars(Orientation::Vertical),
+    ]
+    .into_iter()
+    .enumerate()
+    .map(|(i, c)| FramePlan {
+        number: i + 1,
+        ..frame("A headline for the form", c)
+    })
+    .collect();
+    let d = DeckPlan {
+        title: "t".to_string(),
+        byline: None,
+        source: None,
+        theme: "clear".to_string(),
+        conclusion: None,
+        accent: None,
+        style: None,
+        values: Default::default(),
+        exact: Default::default(),
+        claims: Vec::new(),
+        frames: frames.clone(),
+        locale: None,
+        fiscal_start: None,
+    };
+    let boxes: Vec<_> = (frames.iter())
+        .map(|f| plot_box(&crate::display_list(&d, f, None).unwrap()))
+        .collect();
+    for (i, b) in boxes.iter().enumerate() {
+        let [p, q] = [b, &boxes[0]].map(|r| [r.x0, r.y0, r.x1, r.y1]);
+        let same = p.iter().zip(q).all(|(a, b)| (a - b).abs() < 0.01);
+        assert!(same, "frame {}: {b:?}, the deck's {:?}", i + 1, boxes[0]);
+    }
+}
+
+/// A scatter's x tick label too wide for the plot is cut and noted
+/// (`Part::Cut`) for the text-cut lint.
+#[test]
+fn a_cut_tick_label_is_noted() {
+    use crescendo_look::display::Part;
+    let Chart::Scatter(mut chart) = scatter_chart(false) else {
+        unreachable!()
+    };
+    let long = "A tick label written far too long for any plot ".repeat(4);
+    chart.x.ticks = vec![Tick {
+        value: 50.0,
+        label: long.clone(),
+    }];
+    let f = frame("A headline for the form", Chart::Scatter(chart));
+    let d = DeckPlan {
+        title: "t".to_string(),
+        byline: None,
+        source: None,
+        theme: "clear".to_string(),
+        conclusion: None,
+        accent: None,
+        style: None,
+        values: Default::default(),
+        exact: Default::default(),
+        claims: Vec::new(),
+        frames: vec![f.clone()],
+        locale: None,
+        fiscal_start: None,
+    };
+    let list = crate::display_list(&d, &f, None).unwrap();
+    let cut: Vec<&str> = (list.groups(|p| matches!(p, Part::Cut { .. })).iter())
+        .filter_map(|(p, _)| match p {
+            Part::Cut { full } => Some(full.as_str()),
+            _ => None,
+        })
+        .collect();
+    assert_eq!(cut, [long.trim_end()]);
+}

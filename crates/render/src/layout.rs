@@ -12,7 +12,7 @@ use crate::canvas::{Align, Canvas, Label, HEIGHT, WIDTH};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_frame::{Axis, Chart, DeckPlan, FramePlan, Orientation, PartsMode};
+use crescendo_frame::{Axis, Chart, DeckPlan, FramePlan, Orientation, PanelChart, PartsMode};
 use crescendo_look::display::Part;
 
 pub use crescendo_look::theme::{
@@ -83,8 +83,20 @@ fn left_axis(chart: &Chart) -> Option<&Axis> {
         Chart::Bars(b) if b.orientation == Orientation::Vertical => Some(&b.value),
         Chart::Parts(p) if p.orientation == Orientation::Vertical => Some(&p.value),
         Chart::Scatter(s) => Some(&s.y),
+        Chart::Panels(p) => split_scatter_y(p),
         _ => None,
     }
+}
+
+/// The y axis every panel of a split scatter shares (the first panel's);
+/// `None` unless every panel is a scatter.
+pub(crate) fn split_scatter_y(chart: &PanelChart) -> Option<&Axis> {
+    let mut ys = chart.panels.iter().map(|p| match &p.chart {
+        Chart::Scatter(s) => Some(&s.y),
+        _ => None,
+    });
+    let first = ys.next()??;
+    ys.all(|y| y.is_some()).then_some(first)
 }
 
 /// Widest category-name column left of a plot, as a share of the region.
@@ -258,7 +270,7 @@ impl<'t> Header<'t> {
 
 /// The frames the grid is computed over: every frame of the deck (always
 /// including `frame`).
-fn grid_frames<'a>(deck: &'a DeckPlan, frame: &'a FramePlan) -> Vec<&'a FramePlan> {
+pub(crate) fn grid_frames<'a>(deck: &'a DeckPlan, frame: &'a FramePlan) -> Vec<&'a FramePlan> {
     let mut frames: Vec<&FramePlan> = deck.frames.iter().collect();
     if !frames.contains(&frame) {
         frames.push(frame);
@@ -376,7 +388,7 @@ pub fn draw_page(
     let notice = frame.notices.join("  ·  ");
     if !notice.is_empty() {
         let half = source_width(theme, frame);
-        let text = metrics::ellipsize(&notice, theme.source_size, true, half);
+        let text = crate::fit::one(canvas, &notice, (theme.source_size, true), half)?;
         canvas.group(Part::Notices, || {
             canvas.text(&Label {
                 text: &text,
@@ -570,16 +582,7 @@ pub fn fit_label(text: &str, width: f64, lines: usize, bold: bool) -> Vec<String
 
 /// [`fit_label`] at `size` px (a theme's [`Theme::label_size`]).
 pub fn fit_label_at(size: f64, text: &str, width: f64, lines: usize, bold: bool) -> Vec<String> {
-    if lines <= 1 {
-        let t = metrics::ellipsize(&metrics::normalize(text), size, bold, width);
-        if t.is_empty() {
-            Vec::new()
-        } else {
-            vec![t]
-        }
-    } else {
-        metrics::wrap(text, size, bold, width, lines)
-    }
+    crate::fit::shown(size, text, width, lines, bold)
 }
 
 #[cfg(test)]

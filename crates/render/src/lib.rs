@@ -42,6 +42,7 @@ mod parts;
 mod pie;
 mod place;
 pub mod plugin;
+mod rooms;
 mod scatter;
 mod scatter_grid;
 pub mod svg;
@@ -141,21 +142,23 @@ fn lay_out(
     }
     let region = layout::draw_page(&canvas, theme, deck, frame)?;
     canvas.group(Part::Chart, || {
+        // the deck's plot top and bottom ([`rooms`])
+        let plot_region = rooms::fit(deck, frame, theme, region);
         match &frame.chart {
-            Chart::Line(chart) => line::draw(&canvas, theme, chart, region)?,
-            Chart::Bars(chart) => bars::draw(&canvas, theme, chart, region)?,
-            Chart::Parts(chart) => parts::draw(&canvas, theme, chart, region)?,
-            Chart::Dots(chart) => dots::draw(&canvas, theme, chart, region)?,
-            Chart::Scatter(chart) => scatter::draw(&canvas, theme, chart, region)?,
-            Chart::Figures(chart) => figures::draw(&canvas, theme, chart, region)?,
-            Chart::Table(chart) => table::draw(&canvas, theme, chart, region)?,
-            Chart::Pie(chart) => pie::draw(&canvas, theme, chart, region)?,
+            Chart::Line(chart) => line::draw(&canvas, theme, chart, plot_region)?,
+            Chart::Bars(chart) => bars::draw(&canvas, theme, chart, plot_region)?,
+            Chart::Parts(chart) => parts::draw(&canvas, theme, chart, plot_region)?,
+            Chart::Dots(chart) => dots::draw(&canvas, theme, chart, plot_region)?,
+            Chart::Scatter(chart) => scatter::draw(&canvas, theme, chart, plot_region)?,
+            Chart::Figures(chart) => figures::draw(&canvas, theme, chart, plot_region)?,
+            Chart::Table(chart) => table::draw(&canvas, theme, chart, plot_region)?,
+            Chart::Pie(chart) => pie::draw(&canvas, theme, chart, plot_region)?,
             Chart::Panels(chart) if scatter_grid::all_scatters(chart) => {
-                scatter_grid::draw(&canvas, theme, chart, region)?
+                scatter_grid::draw(&canvas, theme, chart, plot_region)?
             }
-            Chart::Panels(chart) => panels::draw(&canvas, theme, chart, region)?,
+            Chart::Panels(chart) => panels::draw(&canvas, theme, chart, plot_region)?,
             Chart::Plugin(chart) => {
-                plugin_description = plugin::draw(&canvas, theme, chart, region, plugins)?;
+                plugin_description = plugin::draw(&canvas, theme, chart, plot_region, plugins)?;
             }
         }
         mark_notes::draw(&canvas, theme, &frame.mark_notes, region)?;

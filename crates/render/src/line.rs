@@ -87,14 +87,9 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &LineChart, region: Re
             Role::Context => (theme.context_text, false),
         };
         // Fitted at bold width so the text is the same in every role.
-        let text = layout::fit_label_at(
-            theme.label_size,
-            &series.label,
-            l.label_column_width,
-            1,
-            true,
-        )
-        .join(" ");
+        let how = (theme.label_size, true);
+        let text = crate::fit::lines(canvas, &series.label, how, l.label_column_width, 1)?;
+        let text = text.join(" ");
         if needs_leader(wanted, centre, theme) {
             let from = (l.plot_right + 4.0, wanted);
             let to = (l.label_column_left - 4.0, centre);

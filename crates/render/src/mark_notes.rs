@@ -83,6 +83,7 @@ pub(crate) fn draw(
             canvas.line(from, to, theme.muted, 1)?;
             obstacles.segments.push((from, to));
         }
+        crate::fit::note(canvas, &note.text, &lines)?;
         let style = (theme.label_size, false, theme.takeaway);
         kit::put_lines(canvas, &mut obstacles, &lines, (&r, step), style)?;
     }

@@ -113,11 +113,14 @@ pub(crate) fn draw_over(
     }
     for (from, _, text) in moments(chart) {
         let x = xm(from).clamp(l.plot_left, l.plot_right);
+        let full = text;
         let text = metrics::ellipsize(&metrics::normalize(text), theme.label_size, false, room);
         let w = text_width(&text, theme.label_size, false);
         let top = l.plot_top + 2.0;
         let cands = candidates(x, w, lh, top, theme.label_step());
         if let Some(r) = place::pick(&cands, obstacles, &area, Pick::FirstFree) {
+            // a name cut to its room is noted for the lint
+            crate::fit::note(canvas, full, std::slice::from_ref(&text))?;
             let style = (theme.label_size, false, theme.takeaway);
             kit::put_in(canvas, obstacles, &text, &r, style)?;
         }

@@ -63,6 +63,20 @@ fn mark_colour(theme: &Theme, panel: Role, own: Role) -> Option<Rgb> {
     }
 }
 
+/// The grid's axis titles: the measure's (at the top left) and the other
+/// axis' (centred at the bottom), taken from the first panel.
+pub(crate) fn titles(chart: &PanelChart) -> (Option<String>, Option<String>) {
+    let Some(first) = chart.panels.first().map(|p| &p.chart) else {
+        return (None, None);
+    };
+    match first {
+        Chart::Line(l) => (l.y.title.clone(), l.x.title.clone()),
+        Chart::Bars(b) if horizontal(first) => (b.category_title.clone(), b.value.title.clone()),
+        Chart::Bars(b) => (b.value.title.clone(), b.category_title.clone()),
+        _ => (None, None),
+    }
+}
+
 pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: Region) -> Drawn {
     let n = chart.panels.len();
     if n == 0 {
@@ -86,12 +100,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: R
 
     // Axis titles once for the grid: the measure's at the top left, the
     // other axis' centred at the bottom.
-    let (measure_title, other_title) = match first {
-        Chart::Line(l) => (l.y.title.clone(), l.x.title.clone()),
-        Chart::Bars(b) if across_bars => (b.category_title.clone(), b.value.title.clone()),
-        Chart::Bars(b) => (b.value.title.clone(), b.category_title.clone()),
-        _ => (None, None),
-    };
+    let (measure_title, other_title) = titles(chart);
     let measure = measure_title.as_deref();
     let top = axis::title_above(canvas, &mut obstacles, theme, region, measure)?;
     let mut bottom = region.bottom;

@@ -221,7 +221,14 @@ fn vertical(
         top - (y - 6.0 - rows)
     });
     let vmap = |v: f64| map(v, dom, value_bottom, value_top);
-    canvas.plot((u.plot.0, value_top), (u.plot.1, value_bottom))?;
+    // The plot is the deck's rectangle; a grouped scale may start lower in
+    // it, leaving rows for the part names above the roomiest group.
+    let plot_top = if stacked {
+        value_top
+    } else {
+        top + lh / 2.0 + 2.0
+    };
+    canvas.plot((u.plot.0, plot_top), (u.plot.1, value_bottom))?;
     u.value_axis(canvas, obstacles, theme, &chart.value, vmap)?;
     let bands = Band {
         orientation: Orientation::Vertical,

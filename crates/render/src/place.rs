@@ -280,14 +280,16 @@ pub(crate) fn shifts(d: f64, k: usize, across: bool, one_way: Option<f64>) -> Ve
     out
 }
 
-/// Whether two segments cross (touching ends count as apart).
+/// Whether the segment `s` (a leader) crosses the segment `t`: an end of
+/// `s` on `t` counts as apart, an end of `t` inside `s` as a crossing (a
+/// leader through the vertex of a peak crosses that line).
 fn crosses(s: ((f64, f64), (f64, f64)), t: ((f64, f64), (f64, f64))) -> bool {
     let side = |a: (f64, f64), b: (f64, f64), p: (f64, f64)| {
         (b.0 - a.0) * (p.1 - a.1) - (b.1 - a.1) * (p.0 - a.0)
     };
     let (d1, d2) = (side(t.0, t.1, s.0), side(t.0, t.1, s.1));
     let (d3, d4) = (side(s.0, s.1, t.0), side(s.0, s.1, t.1));
-    d1 * d2 < 0.0 && d3 * d4 < 0.0
+    d1 * d2 < 0.0 && d3 * d4 <= 0.0
 }
 
 /// The leader from near `anchor` to the nearest edge of the box `r` (grown
@@ -307,6 +309,21 @@ mod tests {
 
     fn rect(x0: f64, y0: f64, x1: f64, y1: f64) -> Rect {
         Rect { x0, y0, x1, y1 }
+    }
+
+    /// A leader through the vertex of another line crosses it; one that
+    /// ends on a line, or passes a vertex beyond its end, does not.
+    #[test]
+    fn a_leader_through_a_vertex_crosses_the_line() {
+        let leader = ((0.0, 0.0), (0.0, 10.0));
+        assert!(crosses(leader, ((-5.0, 8.0), (0.0, 5.0))));
+        assert!(crosses(leader, ((0.0, 5.0), (5.0, 8.0))));
+        assert!(crosses(leader, ((-5.0, 5.0), (5.0, 5.0))));
+        assert!(!crosses(leader, ((-5.0, 12.0), (0.0, 12.0))));
+        assert!(!crosses(
+            ((0.0, 0.0), (0.0, 5.0)),
+            ((-5.0, 5.0), (5.0, 5.0))
+        ));
     }
 
     /// A part name whose usual place is taken moves to the nearest free

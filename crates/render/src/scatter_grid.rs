@@ -5,9 +5,10 @@
 //! pixel and the eye can compare positions across panels. A hidden panel
 //! keeps its cell empty; the focus panel's title is in the accent.
 
+use crate::axis;
 use crate::canvas::Canvas;
 use crate::kit::Obstacles;
-use crate::layout::Region;
+use crate::layout::{self, Region};
 use crate::metrics::line_height;
 use crate::panels::panel_title;
 use crate::scatter;
@@ -43,7 +44,31 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: R
     let n = chart.panels.len();
     let cols = columns(n);
     let rows = n.div_ceil(cols);
-    let width = (region.right - region.left - GAP_X * (cols - 1) as f64) / cols as f64;
+    // The grid subdivides the deck's plot rectangle: the first column's
+    // plots start at the deck's left plot edge (the panels share their
+    // axes, so their tick columns are one width), the last column's end at
+    // its right edge; the rows' plots run from the deck's plot top to its
+    // bottom ([`crate::rooms`]).
+    let ticks = (layout::split_scatter_y(chart))
+        .map(layout::visible_ticks)
+        .unwrap_or_default();
+    let tick_w = layout::max_width(
+        ticks.iter().map(|(_, l)| l.as_str()),
+        theme.label_size,
+        false,
+    );
+    let lead = if tick_w > 0.0 {
+        tick_w + axis::PAD
+    } else {
+        0.0
+    };
+    let start = if region.gutter > 0.0 {
+        (region.left + region.gutter + axis::PAD - lead).max(region.left)
+    } else {
+        region.left
+    };
+    let end = region.right - region.label_gutter;
+    let width = (end - start - GAP_X * (cols - 1) as f64) / cols as f64;
     let height = (region.bottom - region.top - GAP_Y * (rows - 1) as f64) / rows as f64;
     let lh = line_height(theme.label_size);
     if width < 120.0 || height < 3.0 * lh + 60.0 {
@@ -58,7 +83,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: R
         let Chart::Scatter(sc) = &panel.chart else {
             continue;
         };
-        let left = region.left + (k % cols) as f64 * (width + GAP_X);
+        let left = start + (k % cols) as f64 * (width + GAP_X);
         let top = region.top + (k / cols) as f64 * (height + GAP_Y);
         let mut obstacles = Obstacles::default();
         panel_title(
@@ -74,8 +99,8 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PanelChart, region: R
             top: top + lh + 6.0,
             right: left + width,
             bottom: top + height,
-            // panels size their own tick column (the deck's gutter is for
-            // whole-frame plots)
+            // panels size their own tick column, set left of `start`
+            // above
             gutter: 0.0,
             label_gutter: 0.0,
         };

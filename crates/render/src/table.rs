@@ -150,7 +150,9 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &TableChart, region: R
     }
     if let Some((slot, more)) = more {
         let note = format!("… {more} more row{}", if more == 1 { "" } else { "s" });
-        let text = metrics::ellipsize(&note, theme.label_size, false, region.right - table_left);
+        // cut only in a very narrow region, and then noted for the lint
+        let how = (theme.label_size, false);
+        let text = fit::one(canvas, &note, how, region.right - table_left)?;
         canvas.text(&Label {
             text: &text,
             x: table_left,

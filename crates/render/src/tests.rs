@@ -904,6 +904,187 @@ fn one_grid_for_every_frame_of_the_deck() {
     assert_eq!(regions[0].tick_column(0.0), 0.0);
 }
 
+// One plot rectangle: a line chart, vertical bars with two titles and
+// long names, and horizontal bars keep different rooms above and below
+// their plots, yet all three plots share all four edges.
+#[test]
+fn every_chart_form_of_a_deck_draws_on_one_plot_rectangle() {
+    use crescendo_look::display::Part;
+    let d = deck(vec![
+        frame(1, 1, "Lines", Some("A takeaway"), line_chart()),
+        frame(2, 2, "Upright", None, bar_chart(Orientation::Vertical)),
+        frame(3, 3, "Lying", None, bar_chart(Orientation::Horizontal)),
+    ]);
+    let plots: Vec<crescendo_look::display::Rect> = (d.frames.iter())
+        .map(|f| {
+            let list = crate::display_list(&d, f, None).unwrap();
+            match list.groups(|p| matches!(p, Part::Plot(_))).as_slice() {
+                [(Part::Plot(r), _)] => *r,
+                other => panic!("frame {}: {} plots", f.number, other.len()),
+            }
+        })
+        .collect();
+    for r in &plots[1..] {
+        assert_eq!(*r, plots[0]);
+    }
+    // the upright bars' names and category title (the most room below)
+    // lift the line chart's plot bottom above where its own ticks need
+    let line_alone = deck(vec![frame(1, 1, "Lines", Some("A takeaway"), line_chart())]);
+    let list = crate::display_list(&line_alone, &line_alone.frames[0], None).unwrap();
+    let [(Part::Plot(alone), _)] = list.groups(|p| matches!(p, Part::Plot(_))).as_slice() else {
+        panic!("one plot");
+    };
+    assert!(alone.y1 > plots[0].y1 + 10.0, "{alone:?} {:?}", plots[0]);
+}
+
+// Names of bands, reference lines, moments and series and callouts on a
+// line chart that must be cut to their room are noted (`Part::Cut`) for the text-cut lint; names
+// that fit are not.
+#[test]
+fn cut_annotation_names_on_a_line_chart_are_noted() {
+    use crescendo_frame::Annotation;
+    use crescendo_look::display::Part;
+    let long = "A name far too long for any room on this chart, going on and on \
+                about what happened in these years and why it matters to the reader";
+    let Chart::Line(mut chart) = line_chart() else {
+        unreachable!()
+    };
+    chart.annotations = vec![
+        Annotation::Band {
+            from: 2016.0,
+            to: 2017.0,
+            text: Some(format!("Band: {long}")),
+        },
+        Annotation::Reference {
+            value: 30.0,
+            text: format!("Line: {long}"),
+        },
+        Annotation::Moment {
+            from: 2020.0,
+            to: None,
+            text: format!("Moment: {long}"),
+        },
+        Annotation::Reference {
+            value: 5.0,
+            text: "Short".to_string(),
+        },
+        Annotation::Callout {
+            x: 2018.0,
+            y: 8.0,
+            text: format!("Callout: {long} {long}"),
+        },
+    ];
+    chart.series[0].label = format!("Series: {long}");
+    let d = deck(vec![frame(1, 1, "Notes", None, Chart::Line(chart))]);
+    let list = crate::display_list(&d, &d.frames[0], None).unwrap();
+    let mut cut: Vec<String> = list
+        .groups(|p| matches!(p, Part::Cut { .. }))
+        .into_iter()
+        .filter_map(|(p, _)| match p {
+            Part::Cut { full } => Some(full.split(':').next().unwrap_or("").to_string()),
+            _ => None,
+        })
+        .collect();
+    cut.sort();
+    assert_eq!(cut, ["Band", "Callout", "Line", "Moment", "Series"]);
+}
+
+// A callout on a line's peak with another line peaking right above it:
+// the leader runs where it crosses no other line (not up through the
+// other peak's vertex), and the text is drawn.
+#[test]
+fn a_line_callout_leader_crosses_no_other_line() {
+    use crescendo_frame::Annotation;
+    use crescendo_look::display::Item;
+    let peak = |top: f64, base: f64| -> Vec<Option<f64>> {
+        (0..10)
+            .map(|i| Some(if i == 5 { top } else { base }))
+            .collect()
+    };
+    let chart = Chart::Line(LineChart {
+        annotations: vec![Annotation::Callout {
+            x: 2020.0,
+            y: 25.0,
+            text: "A summer campaign began".to_string(),
+        }],
+        end_labels: false,
+        x: year_axis(),
+        y: pct_axis(),
+        series: vec![
+            series("Focus", Role::Focus, &peak(25.0, 20.0)),
+            series("Other", Role::Context, &peak(31.0, 25.0)),
+        ],
+    });
+    let d = deck(vec![frame(1, 1, "Peaks", None, chart)]);
+    let list = crate::display_list(&d, &d.frames[0], None).unwrap();
+    let items = list.flat();
+    let data: Vec<&Vec<(f64, f64)>> = (items.iter())
+        .filter_map(|i| match i {
+            Item::Polyline { points, width, .. } if *width >= 2 && points.len() > 2 => Some(points),
+            _ => None,
+        })
+        .collect();
+    assert_eq!(data.len(), 2);
+    // the callout's point: the focus line's vertex at 2020
+    let p = data
+        .iter()
+        .map(|d| d[5])
+        .fold((0.0, f64::MIN), |a, b| if b.1 > a.1 { b } else { a });
+    let leaders: Vec<((f64, f64), (f64, f64))> = (items.iter())
+        .filter_map(|i| match i {
+            Item::Polyline {
+                points, width: 1, ..
+            } if points.len() == 2 => Some((points[0], points[1])),
+            _ => None,
+        })
+        .filter(|(a, _)| (a.0 - p.0).hypot(a.1 - p.1) < 6.0)
+        .collect();
+    assert_eq!(leaders.len(), 1, "{leaders:?}");
+    let (a, b) = leaders[0];
+    let side = |s: (f64, f64), t: (f64, f64), q: (f64, f64)| {
+        (t.0 - s.0) * (q.1 - s.1) - (t.1 - s.1) * (q.0 - s.0)
+    };
+    for w in data.iter().flat_map(|d| d.windows(2)) {
+        let (s, t) = (w[0], w[1]);
+        let apart = side(s, t, a) * side(s, t, b) >= 0.0 || side(a, b, s) * side(a, b, t) > 0.0;
+        assert!(apart, "leader {a:?}-{b:?} crosses {s:?}-{t:?}");
+    }
+    let texts: Vec<&str> = (items.iter())
+        .filter_map(|i| match i {
+            Item::Text(t) => Some(t.text.as_str()),
+            _ => None,
+        })
+        .collect();
+    assert!(texts.contains(&"A summer campaign began"), "{texts:?}");
+}
+
+// A draft notice or a claim in the footnote cut to its room is noted for
+// the lint; a claim that fits and the line counting the claims left out
+// are not.
+#[test]
+fn a_cut_notice_or_footnote_claim_is_noted() {
+    use crescendo_look::display::Part;
+    let long = format!("Holds: {}", "the claim goes on and on ".repeat(12));
+    let mut f = frame(1, 1, "Claims", None, line_chart());
+    f.claim_notes = vec![
+        long.clone(),
+        "Holds: short".to_string(),
+        "Holds: a".to_string(),
+        "Fails: b".to_string(),
+    ];
+    let notice = format!("Draft: {}", "a claim no longer holds ".repeat(6));
+    f.notices = vec![notice.clone()];
+    let d = deck(vec![f]);
+    let list = crate::display_list(&d, &d.frames[0], None).unwrap();
+    let cut: Vec<&str> = (list.groups(|p| matches!(p, Part::Cut { .. })).iter())
+        .filter_map(|(p, _)| match p {
+            Part::Cut { full } => Some(full.as_str()),
+            _ => None,
+        })
+        .collect();
+    assert_eq!(cut, [notice.trim_end(), long.trim_end()]);
+}
+
 // The opening frame shows the title, byline and source; the closing frame
 // the conclusion; both are counted with the chart frames, escaped, and
 // left out when asked.

@@ -43,7 +43,7 @@ fn cut_labels(input: &Input, out: &mut Vec<Finding>) {
                 span: a.chart.clone(),
                 label: "a label here is cut".into(),
                 message: format!(
-                    "the label \"{full}\" does not fit its room in the chart and is cut short"
+                    "the text \"{full}\" does not fit its room on the frame and is cut short"
                 ),
                 fix: "shorten it (in the data, or where the story writes it), or give the \
                       chart more room"
