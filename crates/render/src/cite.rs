@@ -20,7 +20,7 @@ use crate::place::{self, Obstacles, Pick};
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{Chart, Cite, CiteShape, FramePlan, MarkRef, Orientation, PartsMode};
-use crescendo_look::display::{Item, Part, Rect};
+use crescendo_look::display::{Item, NoteOf, Part, Rect};
 
 /// Distances (px) at which the figure is tried around its anchor.
 const DISTANCES: [f64; 5] = [8.0, 20.0, 40.0, 70.0, 110.0];
@@ -44,7 +44,7 @@ struct Stage {
 }
 
 /// Draws every cite of `frame`. Each figure is recorded in a
-/// [`Part::Cite`] group that says whether it had to cover data (the lint
+/// [`Part::Note`] group that says whether it had to cover data (the lint
 /// warns about it, naming the frame).
 pub(crate) fn draw(
     canvas: &Canvas,
@@ -395,7 +395,7 @@ fn end_of(stage: &Stage, r: &Rect) -> (f64, f64) {
 }
 
 /// Places the figure near `anchor` through the label placer, in a
-/// [`Part::Cite`] group that says whether it could only go over data.
+/// [`Part::Note`] group that says whether it could only go over data.
 fn figure(
     canvas: &Canvas,
     theme: &Theme,
@@ -422,10 +422,7 @@ fn figure(
         .partition(|r| !crosses(r));
     cands.extend(later);
     let chosen = place::pick(&cands, obstacles, &stage.plot, Pick::FirstFree);
-    let part = Part::Cite {
-        value: cite.value.clone(),
-        covers: chosen.is_none_or(|r| !obstacles.free(&r)),
-    };
+    let part = place::note_part(NoteOf::Cite(cite.value.clone()), chosen, obstacles);
     let Some(r) = chosen else {
         return canvas.group(part, || Ok(()));
     };
