@@ -38,8 +38,9 @@ struct Stage {
     /// (where the total is).
     stacked: bool,
     /// What the figure avoids in every frame of the sequence, drawn or not
-    /// in this one (every line, hidden ones too; the room of every bar's
-    /// value label), so it keeps its place while the build-up changes.
+    /// in this one (every line, bar, part, dot and point, hidden ones too;
+    /// the room of every bar's value label), so it keeps its place while
+    /// the build-up changes.
     steady: Obstacles,
 }
 
@@ -115,12 +116,14 @@ fn stage(canvas: &Canvas, theme: &Theme, frame: &FramePlan, region: Region) -> O
         }
         Chart::Bars(_) | Chart::Parts(_) | Chart::Dots(_) | Chart::Scatter(_) | Chart::Pie(_) => {
             let marks = canvas.anchors();
+            // marks hidden here and shown later in the sequence
+            let ghosts = canvas.ghosts();
             let sideways = match &frame.chart {
                 Chart::Bars(b) => b.orientation == Orientation::Horizontal,
                 Chart::Parts(p) => p.orientation == Orientation::Horizontal,
                 _ => false,
             };
-            let hull = hull(marks.iter().map(|a| a.rect))?;
+            let hull = hull(marks.iter().map(|a| a.rect).chain(ghosts.iter().copied()))?;
             let plot = match &frame.chart {
                 Chart::Pie(_) => whole,
                 Chart::Bars(_) | Chart::Parts(_) if sideways => Rect {
@@ -142,7 +145,11 @@ fn stage(canvas: &Canvas, theme: &Theme, frame: &FramePlan, region: Region) -> O
                 Chart::Scatter(s) => scatter_map(&marks, s),
                 _ => None,
             };
-            let steady = label_room(&frame.chart, &marks, sideways, theme);
+            let every: Vec<Rect> = (marks.iter().map(|a| a.rect))
+                .chain(ghosts.iter().copied())
+                .collect();
+            let mut steady = label_room(&frame.chart, &every, sideways, theme);
+            steady.marks.extend(ghosts);
             let stacked = matches!(&frame.chart, Chart::Parts(p) if p.mode == PartsMode::Stacked);
             Some(Stage {
                 marks,
@@ -158,15 +165,16 @@ fn stage(canvas: &Canvas, theme: &Theme, frame: &FramePlan, region: Region) -> O
 }
 
 /// The room of every bar's value label past its end, whether or not this
-/// frame labels it (a spotlight labels the bars it lights).
-fn label_room(chart: &Chart, marks: &[Anchor], sideways: bool, theme: &Theme) -> Obstacles {
+/// frame labels it (a spotlight labels the bars it lights) or shows the bar
+/// (hidden bars are shown later).
+fn label_room(chart: &Chart, marks: &[Rect], sideways: bool, theme: &Theme) -> Obstacles {
     let mut o = Obstacles::default();
     if !matches!(chart, Chart::Bars(_) | Chart::Parts(_)) {
         return o;
     }
     let lh = line_height(theme.label_size);
-    for a in marks {
-        let r = a.rect;
+    for r in marks {
+        let r = *r;
         if sideways {
             o.add_mark((r.x1, r.y0), (r.x1 + 8.0 + 4.0 * lh, r.y1));
         } else {
