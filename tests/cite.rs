@@ -368,6 +368,57 @@ fn a_cite_keeps_its_place_through_the_sequence() {
     assert_eq!(at[3], at[4], "bars: lighting Northgate moved the figure");
 }
 
+/// Marks hidden in the citing frame and shown later (bars, parts, dots)
+/// keep their places from the start: the figure does not move when they
+/// appear.
+#[test]
+fn a_cite_keeps_its_place_when_hidden_marks_appear() {
+    let dir = root().join("tests/cite");
+    // the first two moved before hidden marks were reserved: a sideways
+    // bar or group shown later took the figure's spot
+    let cases = [
+        (
+            "sideways_bars",
+            "bars stores: category store, value sales, horizontal\n  hide \"Northgate\", \"Old Town\"",
+            "river_shop",
+        ),
+        (
+            "sideways_group",
+            "bars kinds: category store, value sales, group kind, horizontal\n  hide \"Fresh\"",
+            "pantry_share",
+        ),
+        (
+            "bars_ratio",
+            "bars stores: category store, value sales\n  hide all\n  show \"Northgate\", \"Riverside\"",
+            "shop_ratio",
+        ),
+        (
+            "stack",
+            "bars kinds: category store, value sales, stack kind\n  hide \"Pantry\"",
+            "fresh_north",
+        ),
+        (
+            "dots",
+            "dots kinds: category store, value sales, series kind\n  hide \"Pantry\"",
+            "fresh_north",
+        ),
+    ];
+    let mut moved = Vec::new();
+    for (name, chart, value) in cases {
+        let frames = format!(
+            "frame \"{name} a\" {{\n  {chart}\n  cite {value}\n}}\nframe \"{name} b\" {{\n  show all\n}}\n"
+        );
+        let deck = plan(&dir, &format!("{DATA}{frames}")).plan;
+        let at: Vec<Rect> = (deck.frames.iter())
+            .map(|f| check_geometry(&f.headline, &deck, f).bounds)
+            .collect();
+        if at[0] != at[1] {
+            moved.push(format!("{name}: {:?} -> {:?}", at[0], at[1]));
+        }
+    }
+    assert!(moved.is_empty(), "the figure moved:\n{}", moved.join("\n"));
+}
+
 /// Small multiples end the cites of their sequence: each panel is a chart
 /// of its own.
 #[test]

@@ -12,7 +12,7 @@ use std::sync::Arc;
 
 use common::{crescendo, root, scratch};
 use crescendo_diag::Source;
-use crescendo_look::display::Item;
+use crescendo_look::display::{Item, NoteOf, Part};
 use crescendo_plan::{Annotation, Chart, DeckPlan};
 use crescendo_render::DisplayList;
 
@@ -600,4 +600,76 @@ fn the_claims_footnote_option_covers_every_frame() {
     let r = crescendo(&marks_dir(), &["plan", "claims.cresc"]);
     let plan: DeckPlan = serde_json::from_slice(&r.stdout).unwrap();
     assert!(plan.frames[1].claim_notes.is_empty(), "off by default");
+}
+
+// A note that finds no spot clear of the data is a warning naming the
+// frame, located at its statement: six long callouts on one bar fill the
+// room around it, so the last ones go over the bars or are left out.
+#[test]
+fn callouts_that_can_only_cover_the_data_are_warnings_naming_the_frame() {
+    let notes = [
+        "A new reading room opened in the spring",
+        "Longer hours on Saturdays all year",
+        "A school visit every week of term",
+        "The mobile van stops here on Mondays",
+        "Volunteers run a homework club",
+        "The café reopened after the works",
+    ];
+    let mut frame = String::from(
+        "frame \"Every branch has a story\" {\n  bars totals: category branch, value loans\n  y title \"Loans\"\n",
+    );
+    for n in notes {
+        frame.push_str(&format!("  callout \"Central\" \"{n}\"\n"));
+    }
+    frame.push_str("}\n");
+    let dir = scratch("callout-crowded");
+    fs::create_dir_all(dir.join("data")).unwrap();
+    fs::copy(
+        marks_dir().join("data/branches.csv"),
+        dir.join("data/branches.csv"),
+    )
+    .unwrap();
+    let head = fs::read_to_string(marks_dir().join("callouts.cresc")).unwrap();
+    let head = head.split("frame ").next().unwrap().to_string();
+    fs::write(dir.join("story.cresc"), head + &frame).unwrap();
+    let r = crescendo(&dir, &["check", "story.cresc"]);
+    let err = String::from_utf8_lossy(&r.stderr).to_string();
+    assert!(
+        r.status.success(),
+        "a warning does not stop the check:\n{err}"
+    );
+    let warnings: Vec<&str> = err
+        .split("\n\n")
+        .filter(|w| w.contains("warning[note-covers-data]"))
+        .collect();
+    assert!(!warnings.is_empty(), "no warning:\n{err}");
+    for w in &warnings {
+        assert!(w.contains("in frame 1 \"Every branch has a story\""), "{w}");
+        assert!(
+            w.contains("callout \"Central\""),
+            "located at the callout: {w}"
+        );
+    }
+    // the first notes found room; the last found none clear of text
+    assert!(!err.contains(notes[0]) && !err.contains(notes[1]), "{err}");
+    let last = (warnings.iter())
+        .find(|w| w.contains(notes[5]))
+        .unwrap_or_else(|| panic!("the last note is not reported:\n{err}"));
+    assert!(last.contains("was left out"), "{last}");
+    // the display list agrees: every note reported is one that covers data
+    // or was left out, and the first one is drawn clear
+    let (_, lists) = laid_out(&dir.join("story.cresc"));
+    let groups = lists[0].groups(|p| matches!(p, Part::Note { .. }));
+    assert_eq!(groups.len(), notes.len());
+    let covering = (groups.iter())
+        .filter(|(p, _)| matches!(p, Part::Note { covers: true, .. }))
+        .count();
+    assert_eq!(covering, warnings.len());
+    assert!(matches!(
+        groups[0].0,
+        Part::Note {
+            of: NoteOf::Callout(0),
+            covers: false
+        }
+    ));
 }

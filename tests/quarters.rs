@@ -87,3 +87,83 @@ fn wrong_arguments_are_located_errors() {
         assert_eq!(errs[0].location().map(|(_, l, c)| (l, c)), Some(at), "{t}");
     }
 }
+
+/// The errors of `crescendo check` on `view` over `csv` (no declared
+/// types: the year and quarter columns are read as numbers or texts).
+fn check_errors(csv: &str, view: &str) -> Vec<crescendo_diag::Diagnostic> {
+    static RUN: AtomicUsize = AtomicUsize::new(0);
+    let dir = scratch(&format!(
+        "quarters-bad-{}",
+        RUN.fetch_add(1, Ordering::SeqCst)
+    ));
+    fs::write(dir.join("q.csv"), csv).unwrap();
+    let story = format!(
+        "story \"Q\"\ndata d from \"q.csv\"\n{view}\n\
+         frame \"Output\" {{\n  line v: x time, y output\n}}\n"
+    );
+    let src = Source::file("q.cresc", story);
+    let out = crescendo_plan::plan_story(&src, &dir, &Default::default());
+    let _ = fs::remove_dir_all(&dir);
+    match out {
+        Ok(_) => Vec::new(),
+        Err(e) => e,
+    }
+}
+
+/// A quarter of 5 or `Q5`, or a year of 2024.5, is a located data error
+/// naming the row and the cell (never a silent missing time); every such
+/// row is reported at once; a missing cell stays missing.
+#[test]
+fn cells_that_make_no_quarter_are_located_errors() {
+    let view =
+        "view v = d | add time = year_quarter(year, quarter) | by time: output = sum(output)";
+    let numbers = "year,quarter,output\n2022,1,10\n2022,5,11\n2022.5,2,12\n2023,3,14\n2023,,13\n";
+    let errs = check_errors(numbers, view);
+    let t = crescendo_diag::render(&errs, false);
+    assert_eq!(errs.len(), 2, "{t}");
+    assert!(errs.iter().all(|e| e.code == "bad-value"), "{t}");
+    assert!(
+        t.contains("row 2 of `d`, column `quarter`: 5 is not a quarter (1 to 4, or `Q1` to `Q4`)"),
+        "{t}"
+    );
+    assert!(
+        t.contains("row 3 of `d`, column `year`: 2022.5 is not a year"),
+        "{t}"
+    );
+    // located at the call in the story (line 3, column 25)
+    for e in &errs {
+        assert_eq!(e.location().map(|(_, l, c)| (l, c)), Some((3, 25)), "{t}");
+    }
+    // texts; rows reaching the step after a `keep`
+    let texts = "year,quarter,output\n2022,Q1,10\n2022,Q5,11\n2023,q2,12\n2023,III,13\n";
+    let errs = check_errors(texts, view);
+    let t = crescendo_diag::render(&errs, false);
+    assert_eq!(errs.len(), 2, "{t}");
+    assert!(
+        t.contains("row 2 of `d`, column `quarter`: \"Q5\" is not a quarter"),
+        "{t}"
+    );
+    assert!(
+        t.contains("row 4 of `d`, column `quarter`: \"III\" is not a quarter"),
+        "{t}"
+    );
+    let kept = "view v = d | keep output > 10 | add time = year_quarter(year, quarter) | by time: output = sum(output)";
+    let errs = check_errors(texts, kept);
+    let t = crescendo_diag::render(&errs, false);
+    assert!(
+        t.contains("row 1 reaching this step, column `quarter`: \"Q5\""),
+        "{t}"
+    );
+    // a row left out before the step is not checked
+    let fixed = "view v = d | keep quarter != \"Q5\" and quarter != \"III\" | add time = year_quarter(year, quarter) | by time: output = sum(output)";
+    assert!(check_errors(texts, fixed).is_empty());
+    // all at once, up to the cap of one read, the last saying so
+    let mut many = String::from("year,quarter,output\n");
+    for i in 0..30 {
+        many.push_str(&format!("2022,{},1\n", 5 + i));
+    }
+    let errs = check_errors(&many, view);
+    assert_eq!(errs.len(), crescendo_data::load::MAX_ERRORS);
+    let last = crescendo_diag::render(&errs[errs.len() - 1..], false);
+    assert!(last.contains("stopped at 20 errors"), "{last}");
+}

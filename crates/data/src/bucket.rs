@@ -88,24 +88,67 @@ impl Bucket {
 /// number 1 to 4, or a text `1` to `4` or `Q1` to `Q4` (any case, spaces
 /// around it ignored). Anything else gives none (a missing value).
 pub fn year_quarter(year: Cell<'_>, quarter: Cell<'_>) -> Option<i32> {
-    let y = match year {
-        Cell::Year(y) => y,
-        Cell::Number(x) if x.fract() == 0.0 && (1.0..=9999.0).contains(&x) => x as i32,
-        _ => return None,
-    };
-    let q = match quarter {
-        Cell::Number(x) if [1.0, 2.0, 3.0, 4.0].contains(&x) => x as i32,
+    let (y, q) = (quarter_year(year)?, quarter_number(quarter)?);
+    Some(y * 12 + (q - 1) * 3)
+}
+
+/// The year of [`year_quarter`]: a year, or a whole number 1 to 9999.
+pub fn quarter_year(year: Cell<'_>) -> Option<i32> {
+    match year {
+        Cell::Year(y) => Some(y),
+        Cell::Number(x) if x.fract() == 0.0 && (1.0..=9999.0).contains(&x) => Some(x as i32),
+        _ => None,
+    }
+}
+
+/// The quarter of [`year_quarter`], 1 to 4: a number, or a text `1` to
+/// `4` or `Q1` to `Q4` (any case, spaces around it ignored).
+pub fn quarter_number(quarter: Cell<'_>) -> Option<i32> {
+    match quarter {
+        Cell::Number(x) if [1.0, 2.0, 3.0, 4.0].contains(&x) => Some(x as i32),
         Cell::Text(t) => {
             let t = t.trim_matches(' ');
             let t = t.strip_prefix(['Q', 'q']).unwrap_or(t);
             match t {
-                "1" | "2" | "3" | "4" => t.parse().ok()?,
-                _ => return None,
+                "1" | "2" | "3" | "4" => t.parse().ok(),
+                _ => None,
             }
         }
-        _ => return None,
-    };
-    Some(y * 12 + (q - 1) * 3)
+        _ => None,
+    }
+}
+
+/// A row whose year and quarter cells are both present but make no quarter
+/// ([`year_quarter`] gives none): the row, which cell is at fault (the
+/// year's when both are), and that cell.
+#[derive(Clone, Debug, PartialEq)]
+pub struct BadQuarter {
+    /// The row's index in the table (0-based).
+    pub row: usize,
+    /// The year's cell is at fault (else the quarter's).
+    pub year: bool,
+    /// The cell at fault.
+    pub cell: Value,
+}
+
+/// Checks one row's cells for [`year_quarter`]: `None` when they make a
+/// quarter or either is missing (a missing cell stays missing).
+pub fn bad_quarter(row: usize, year: Cell<'_>, quarter: Cell<'_>) -> Option<BadQuarter> {
+    if matches!(year, Cell::Missing) || matches!(quarter, Cell::Missing) {
+        return None;
+    }
+    if quarter_year(year).is_none() {
+        return Some(BadQuarter {
+            row,
+            year: true,
+            cell: year.to_value(),
+        });
+    }
+    quarter_number(quarter).is_none().then(|| BadQuarter {
+        row,
+        year: false,
+        cell: quarter.to_value(),
+    })
 }
 
 /// 0 for Monday … 6 for Sunday (1970-01-01 was a Thursday).
@@ -172,6 +215,23 @@ mod tests {
         let label =
             crate::time::month_iso(year_quarter(Cell::Year(2024), Cell::Number(3.0)).unwrap_or(0));
         assert_eq!(label, "2024-07");
+    }
+
+    #[test]
+    fn a_bad_quarter_names_the_cell_at_fault() {
+        let bad = |y, q| bad_quarter(7, y, q);
+        assert_eq!(bad(Cell::Year(2024), Cell::Number(4.0)), None);
+        // a missing cell stays missing: no fault
+        assert_eq!(bad(Cell::Missing, Cell::Number(9.0)), None);
+        assert_eq!(bad(Cell::Number(2024.5), Cell::Missing), None);
+        let q5 = bad(Cell::Year(2024), Cell::Text("Q5")).unwrap();
+        assert_eq!(
+            (q5.row, q5.year, q5.cell),
+            (7, false, Value::Text("Q5".into()))
+        );
+        // both wrong: the year is named
+        let y = bad(Cell::Number(2024.5), Cell::Number(5.0)).unwrap();
+        assert_eq!((y.year, y.cell), (true, Value::Number(2024.5)));
     }
 
     #[test]

@@ -27,4 +27,4 @@ pub mod workbook;
 
 pub use load::{load_csv, load_csv_columns, probe, Columns, CsvSpec, LoadError, Probe};
 pub use model::*;
-pub use view::run_view;
+pub use view::{bad_quarters, run_view};

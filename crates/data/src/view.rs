@@ -204,6 +204,23 @@ pub(crate) fn eval<'a, R: Fn(usize) -> Cell<'a>>(row: &R, e: &'a Expr) -> Cell<'
     }
 }
 
+/// The rows of `t` (up to `most`) where `year_quarter(year, quarter)`
+/// meets two cells that make no quarter (see
+/// [`crate::bucket::bad_quarter`]), in row order.
+pub fn bad_quarters(
+    t: &Table,
+    (year, quarter): (&Expr, &Expr),
+    most: usize,
+) -> Vec<crate::bucket::BadQuarter> {
+    (0..row_count(t))
+        .filter_map(|r| {
+            let row = row_of(t, r);
+            crate::bucket::bad_quarter(r, eval(&row, year), eval(&row, quarter))
+        })
+        .take(most)
+        .collect()
+}
+
 /// Order of two non-missing cells of comparable kinds; `None` otherwise.
 pub(crate) fn compare_cells(a: Cell<'_>, b: Cell<'_>) -> Option<Ordering> {
     match (a, b) {

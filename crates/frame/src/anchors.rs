@@ -54,6 +54,11 @@ pub struct FrameAnchors {
     pub x_is_text: bool,
     /// `cite VALUE` statements in effect: the value's name and where.
     pub cites: Vec<(String, Span)>,
+    /// `callout` statements in effect, in the order written (the renderer
+    /// numbers a frame's callouts in this order).
+    pub callouts: Vec<Span>,
+    /// `moment` statements in effect, in the order written.
+    pub moments: Vec<Span>,
 }
 
 /// Positions that concern the whole story.

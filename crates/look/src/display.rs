@@ -169,12 +169,14 @@ pub enum Part {
     /// The outlines, brackets and paths a `cite` draws over the data: an
     /// annotation, not a mark (the marks' colour rules skip it).
     Evidence,
-    /// The figure of a `cite`d value (empty when no spot clear of text
-    /// was found); `covers` when it could only go over data.
-    Cite {
-        /// The value's name.
-        value: String,
-        /// The figure covers a data mark or line, or was not drawn.
+    /// A note the label placer put on the chart: a `cite`d value's
+    /// figure, a callout, a moment's label (empty when no spot clear of
+    /// text was found); `covers` when it could only go over data or was
+    /// left out.
+    Note {
+        /// Which note.
+        of: NoteOf,
+        /// The note covers a data mark or line, or was not drawn.
         covers: bool,
     },
     /// The plot rectangle of a chart with axes (empty: a mark for readers
@@ -192,6 +194,19 @@ pub enum Part {
     /// tinted table row): a background, not a mark, so the marks' contrast
     /// rules do not apply to it.
     Tint,
+}
+
+/// Which note a [`Part::Note`] holds, as the lint finds where it was
+/// written.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum NoteOf {
+    /// The figure of a `cite`d value, by the value's name.
+    Cite(String),
+    /// The frame's callout number `k`, in the order the callouts were
+    /// written through the sequence (on a line or on any form's marks).
+    Callout(usize),
+    /// The label of the frame's moment number `k`, in the order written.
+    Moment(usize),
 }
 
 /// A mark's colour as drawn: a fill (bar, segment, slice, dot, area) or a

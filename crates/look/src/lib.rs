@@ -18,5 +18,5 @@ pub mod display;
 pub mod metrics;
 pub mod theme;
 
-pub use display::{Align, DisplayList, Item, Part, Rect, Text};
+pub use display::{Align, DisplayList, Item, NoteOf, Part, Rect, Text};
 pub use theme::{effective, Rgb, Theme, ThemeError, THEMES};

@@ -33,6 +33,7 @@ mod order;
 mod overflow;
 pub mod paths;
 pub mod plugins;
+mod quarter_cells;
 mod rows;
 pub mod scale;
 mod scope;

@@ -13,7 +13,7 @@ use crate::place::{self, Pick};
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{Annotation, LineChart, Role};
-use crescendo_look::display::Part;
+use crescendo_look::display::{NoteOf, Part};
 
 /// Widest a callout's text may be before it wraps (at 16 px labels;
 /// [`Theme::label_scaled`]).
@@ -245,7 +245,9 @@ fn end_values(
     Ok(())
 }
 
-/// Callouts, last: they have the most freedom.
+/// Callouts, last: they have the most freedom. Each is drawn in a
+/// [`Part::Note`] group that says when it could only go over data or
+/// found no room (the lint warns, naming the frame).
 fn callouts(
     canvas: &Canvas,
     theme: &Theme,
@@ -257,10 +259,11 @@ fn callouts(
     let lh = line_height(theme.label_size);
     let area = l.note_bounds(theme);
     let plot_w = l.plot_right - l.plot_left;
-    for a in &chart.annotations {
-        let Annotation::Callout { x, y, text } = a else {
-            continue;
-        };
+    let callouts = chart.annotations.iter().filter_map(|a| match a {
+        Annotation::Callout { x, y, text } => Some((x, y, text)),
+        _ => None,
+    });
+    for (k, (x, y, text)) in callouts.enumerate() {
         if !x.is_finite() || !y.is_finite() {
             continue;
         }
@@ -287,19 +290,22 @@ fn callouts(
         // else the one crossing the fewest
         let cands = place::around(p, w, h, &[22.0, 44.0, 76.0, 120.0, 170.0]);
         let lead = |r: &Rect| place::leader(p, r);
-        let Some(r) = place::pick_led(&cands, obstacles, &area, lead)
-            .or_else(|| choose(&cands, obstacles, &area, true))
-        else {
-            continue;
-        };
-        // Leader from near the point to the nearest edge of the text block.
-        if let Some((from, to)) = place::leader(p, &r) {
-            canvas.line(from, to, theme.muted, 1)?;
-            obstacles.segments.push((from, to));
+        let chosen = place::pick_led(&cands, obstacles, &area, lead)
+            .or_else(|| choose(&cands, obstacles, &area, true));
+        if chosen.is_some() {
+            fit::note(canvas, text, &lines)?;
         }
-        fit::note(canvas, text, &lines)?;
-        let style = (theme.label_size, false, theme.takeaway);
-        kit::put_lines(canvas, obstacles, &lines, (&r, step), style)?;
+        let part = place::note_part(NoteOf::Callout(k), chosen, obstacles);
+        canvas.group(part, || {
+            let Some(r) = chosen else { return Ok(()) };
+            // Leader from near the point to the nearest edge of the text block.
+            if let Some((from, to)) = place::leader(p, &r) {
+                canvas.line(from, to, theme.muted, 1)?;
+                obstacles.segments.push((from, to));
+            }
+            let style = (theme.label_size, false, theme.takeaway);
+            kit::put_lines(canvas, obstacles, &lines, (&r, step), style)
+        })?;
     }
     Ok(())
 }

@@ -28,6 +28,14 @@ pub(crate) struct Band {
 }
 
 impl Band {
+    /// Records where bar `i` would be drawn from `zero` to `end` while it is
+    /// hidden ([`Canvas::ghost`]).
+    pub(crate) fn ghost(&self, canvas: &Canvas, i: usize, thickness: f64, (zero, end): (f64, f64)) {
+        let centre = self.centre(i);
+        let across = (centre - thickness / 2.0, centre + thickness / 2.0);
+        canvas.ghost(self.point(across.0, zero), self.point(across.1, end));
+    }
+
     /// The centre of band `i`.
     pub fn centre(&self, i: usize) -> f64 {
         self.start + (i as f64 + 0.5) * self.size
@@ -229,7 +237,13 @@ pub(crate) fn parts(
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
     for (j, e) in extents.iter().enumerate() {
-        let (Some((a, b)), Some(Some(color))) = (e, colors.get(j)) else {
+        let Some((a, b)) = e else {
+            continue;
+        };
+        let Some(Some(color)) = colors.get(j) else {
+            // a hidden part: its place is kept for the frame that shows it
+            let (f, t) = across(j);
+            canvas.ghost(band.point(f, vmap(*a)), band.point(t, vmap(*b)));
             continue;
         };
         band.mark(canvas, across(j), (vmap(*a), vmap(*b)), *color)?;

@@ -73,9 +73,12 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &BarChart, region: Reg
                 canvas.text(&muted_label(theme, line, *x, top, *align))?;
             }
         }
-        let (Some(color), Some(value)) =
-            (bar_color(theme, bar), bar.value.filter(|v| v.is_finite()))
-        else {
+        let Some(value) = bar.value.filter(|v| v.is_finite()) else {
+            continue;
+        };
+        let Some(color) = bar_color(theme, bar) else {
+            // hidden: its place is kept for the frame that shows it
+            f.bands.ghost(canvas, i, f.thickness, (zero, vmap(value)));
             continue;
         };
         let positive = bar.value.is_some_and(|v| v >= 0.0);

@@ -54,6 +54,9 @@ pub struct Canvas {
     /// The point a callout on each data mark points at (its item and part
     /// indexes, see [`Canvas::point`]).
     points: RefCell<Vec<(MarkKey, (f64, f64))>>,
+    /// Where marks hidden in this frame would be drawn when a later frame
+    /// of the sequence shows them (see [`Canvas::ghost`]).
+    ghosts: RefCell<Vec<crescendo_look::display::Rect>>,
 }
 
 /// Where a mark of the plan was drawn: its box and, for a pie slice, its
@@ -73,7 +76,28 @@ impl Canvas {
             open: RefCell::new(vec![(None, Vec::new())]),
             anchors: RefCell::new(Vec::new()),
             points: RefCell::default(),
+            ghosts: RefCell::default(),
         }
+    }
+
+    /// Records where a mark hidden in this frame (a bar, a part, a dot, a
+    /// point) would be drawn, between two corners (any order): draws
+    /// nothing, but a cite's figure keeps off it, so the figure stays in
+    /// place when the build-up shows the mark.
+    pub(crate) fn ghost(&self, a: (f64, f64), b: (f64, f64)) {
+        self.ghosts
+            .borrow_mut()
+            .push(crescendo_look::display::Rect {
+                x0: a.0.min(b.0),
+                y0: a.1.min(b.1),
+                x1: a.0.max(b.0),
+                y1: a.1.max(b.1),
+            });
+    }
+
+    /// The boxes recorded with [`Canvas::ghost`].
+    pub(crate) fn ghosts(&self) -> Vec<crescendo_look::display::Rect> {
+        self.ghosts.borrow().clone()
     }
 
     /// Records the point a note on mark `item` (bar, category, row, point

@@ -20,7 +20,7 @@ use crate::place::{self, Obstacles, Pick};
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{Chart, Cite, CiteShape, FramePlan, MarkRef, Orientation, PartsMode};
-use crescendo_look::display::{Item, Part, Rect};
+use crescendo_look::display::{Item, NoteOf, Part, Rect};
 
 /// Distances (px) at which the figure is tried around its anchor.
 const DISTANCES: [f64; 5] = [8.0, 20.0, 40.0, 70.0, 110.0];
@@ -38,13 +38,14 @@ struct Stage {
     /// (where the total is).
     stacked: bool,
     /// What the figure avoids in every frame of the sequence, drawn or not
-    /// in this one (every line, hidden ones too; the room of every bar's
-    /// value label), so it keeps its place while the build-up changes.
+    /// in this one (every line, bar, part, dot and point, hidden ones too;
+    /// the room of every bar's value label), so it keeps its place while
+    /// the build-up changes.
     steady: Obstacles,
 }
 
 /// Draws every cite of `frame`. Each figure is recorded in a
-/// [`Part::Cite`] group that says whether it had to cover data (the lint
+/// [`Part::Note`] group that says whether it had to cover data (the lint
 /// warns about it, naming the frame).
 pub(crate) fn draw(
     canvas: &Canvas,
@@ -115,12 +116,14 @@ fn stage(canvas: &Canvas, theme: &Theme, frame: &FramePlan, region: Region) -> O
         }
         Chart::Bars(_) | Chart::Parts(_) | Chart::Dots(_) | Chart::Scatter(_) | Chart::Pie(_) => {
             let marks = canvas.anchors();
+            // marks hidden here and shown later in the sequence
+            let ghosts = canvas.ghosts();
             let sideways = match &frame.chart {
                 Chart::Bars(b) => b.orientation == Orientation::Horizontal,
                 Chart::Parts(p) => p.orientation == Orientation::Horizontal,
                 _ => false,
             };
-            let hull = hull(marks.iter().map(|a| a.rect))?;
+            let hull = hull(marks.iter().map(|a| a.rect).chain(ghosts.iter().copied()))?;
             let plot = match &frame.chart {
                 Chart::Pie(_) => whole,
                 Chart::Bars(_) | Chart::Parts(_) if sideways => Rect {
@@ -142,7 +145,11 @@ fn stage(canvas: &Canvas, theme: &Theme, frame: &FramePlan, region: Region) -> O
                 Chart::Scatter(s) => scatter_map(&marks, s),
                 _ => None,
             };
-            let steady = label_room(&frame.chart, &marks, sideways, theme);
+            let every: Vec<Rect> = (marks.iter().map(|a| a.rect))
+                .chain(ghosts.iter().copied())
+                .collect();
+            let mut steady = label_room(&frame.chart, &every, sideways, theme);
+            steady.marks.extend(ghosts);
             let stacked = matches!(&frame.chart, Chart::Parts(p) if p.mode == PartsMode::Stacked);
             Some(Stage {
                 marks,
@@ -158,15 +165,16 @@ fn stage(canvas: &Canvas, theme: &Theme, frame: &FramePlan, region: Region) -> O
 }
 
 /// The room of every bar's value label past its end, whether or not this
-/// frame labels it (a spotlight labels the bars it lights).
-fn label_room(chart: &Chart, marks: &[Anchor], sideways: bool, theme: &Theme) -> Obstacles {
+/// frame labels it (a spotlight labels the bars it lights) or shows the bar
+/// (hidden bars are shown later).
+fn label_room(chart: &Chart, marks: &[Rect], sideways: bool, theme: &Theme) -> Obstacles {
     let mut o = Obstacles::default();
     if !matches!(chart, Chart::Bars(_) | Chart::Parts(_)) {
         return o;
     }
     let lh = line_height(theme.label_size);
-    for a in marks {
-        let r = a.rect;
+    for r in marks {
+        let r = *r;
         if sideways {
             o.add_mark((r.x1, r.y0), (r.x1 + 8.0 + 4.0 * lh, r.y1));
         } else {
@@ -395,7 +403,7 @@ fn end_of(stage: &Stage, r: &Rect) -> (f64, f64) {
 }
 
 /// Places the figure near `anchor` through the label placer, in a
-/// [`Part::Cite`] group that says whether it could only go over data.
+/// [`Part::Note`] group that says whether it could only go over data.
 fn figure(
     canvas: &Canvas,
     theme: &Theme,
@@ -422,10 +430,7 @@ fn figure(
         .partition(|r| !crosses(r));
     cands.extend(later);
     let chosen = place::pick(&cands, obstacles, &stage.plot, Pick::FirstFree);
-    let part = Part::Cite {
-        value: cite.value.clone(),
-        covers: chosen.is_none_or(|r| !obstacles.free(&r)),
-    };
+    let part = place::note_part(NoteOf::Cite(cite.value.clone()), chosen, obstacles);
     let Some(r) = chosen else {
         return canvas.group(part, || Ok(()));
     };

@@ -112,14 +112,19 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &DotChart, region: Reg
                 },
             )?;
         }
-        if row.role == Role::Hidden {
-            continue;
+        if row.role != Role::Hidden {
+            let focus_row = !any_focus_series && row.role == Role::Focus;
+            row_marks(canvas, theme, chart, row, (y, radius), vmap, focus_row)?;
         }
-        let focus_row = !any_focus_series && row.role == Role::Focus;
-        row_marks(canvas, theme, chart, row, (y, radius), vmap, focus_row)?;
         for (j, (s, v)) in chart.series.iter().zip(&row.values).enumerate() {
-            if let (Some(v), true) = (v.filter(|v| v.is_finite()), s.role != Role::Hidden) {
-                let (x, r) = (vmap(v), radius.max(4.0));
+            let Some(v) = v.filter(|v| v.is_finite()) else {
+                continue;
+            };
+            let (x, r) = (vmap(v), radius.max(4.0));
+            if s.role == Role::Hidden || row.role == Role::Hidden {
+                // its place is kept for the frame that shows it
+                canvas.ghost((x - r, y - r), (x + r, y + r));
+            } else {
                 canvas.anchor((i, j), (x - r, y - r), (x + r, y + r));
                 canvas.point(i, Some(j), (x, y));
             }

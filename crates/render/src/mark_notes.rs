@@ -14,7 +14,7 @@ use crate::place::{self, Pick};
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::MarkNote;
-use crescendo_look::display::Item;
+use crescendo_look::display::{Item, NoteOf};
 
 /// Widest a note's text may be before it wraps (at 16 px labels).
 const WIDTH: f64 = 240.0;
@@ -43,7 +43,9 @@ fn obstacles(canvas: &Canvas) -> Obstacles {
 }
 
 /// Draws the notes of a frame on the marks its form recorded; a note whose
-/// mark is not drawn (hidden) is left out.
+/// mark is not drawn (hidden) is left out. Each note is drawn in a
+/// [`crescendo_look::Part::Note`] group that says when it could only go
+/// over data or found no room (the lint warns, naming the frame).
 pub(crate) fn draw(
     canvas: &Canvas,
     theme: &Theme,
@@ -62,7 +64,7 @@ pub(crate) fn draw(
     };
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
-    for note in notes {
+    for (k, note) in notes.iter().enumerate() {
         let Some(at) = canvas.point_of(note.item, note.part) else {
             continue;
         };
@@ -76,16 +78,20 @@ pub(crate) fn draw(
             .fold(0.0, f64::max);
         let h = (lines.len() - 1) as f64 * step + lh;
         let cands = place::around(at, w, h, &DISTANCES);
-        let Some(r) = place::pick(&cands, &obstacles, &bounds, Pick::FirstFree) else {
-            continue;
-        };
-        if let Some((from, to)) = place::leader(at, &r) {
-            canvas.line(from, to, theme.muted, 1)?;
-            obstacles.segments.push((from, to));
+        let chosen = place::pick(&cands, &obstacles, &bounds, Pick::FirstFree);
+        if chosen.is_some() {
+            crate::fit::note(canvas, &note.text, &lines)?;
         }
-        crate::fit::note(canvas, &note.text, &lines)?;
-        let style = (theme.label_size, false, theme.takeaway);
-        kit::put_lines(canvas, &mut obstacles, &lines, (&r, step), style)?;
+        let part = place::note_part(NoteOf::Callout(k), chosen, &obstacles);
+        canvas.group(part, || {
+            let Some(r) = chosen else { return Ok(()) };
+            if let Some((from, to)) = place::leader(at, &r) {
+                canvas.line(from, to, theme.muted, 1)?;
+                obstacles.segments.push((from, to));
+            }
+            let style = (theme.label_size, false, theme.takeaway);
+            kit::put_lines(canvas, &mut obstacles, &lines, (&r, step), style)
+        })?;
     }
     Ok(())
 }

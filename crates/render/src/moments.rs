@@ -12,7 +12,7 @@ use crate::place::{self, Pick};
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{Annotation, LineChart};
-use crescendo_look::display::Part;
+use crescendo_look::display::{NoteOf, Part};
 
 /// Length of a dash and of the gap after it, in px.
 const DASH: (f64, f64) = (6.0, 4.0);
@@ -21,16 +21,17 @@ const GAP: f64 = 6.0;
 /// Rows down from the top of the plot a label may move to.
 const ROWS: usize = 8;
 
-/// The moments of a chart as (from, to, text), finite only.
-fn moments(chart: &LineChart) -> impl Iterator<Item = (f64, Option<f64>, &str)> {
-    chart.annotations.iter().filter_map(|a| match a {
-        Annotation::Moment { from, to, text }
-            if from.is_finite() && to.is_none_or(f64::is_finite) =>
-        {
-            Some((*from, *to, text.as_str()))
-        }
-        _ => None,
-    })
+/// The moments of a chart as (number, from, to, text), finite only; the
+/// number counts every moment of the chart, in the order written.
+fn moments(chart: &LineChart) -> impl Iterator<Item = (usize, f64, Option<f64>, &str)> {
+    (chart.annotations.iter())
+        .filter_map(|a| match a {
+            Annotation::Moment { from, to, text } => Some((*from, *to, text.as_str())),
+            _ => None,
+        })
+        .enumerate()
+        .filter(|(_, (from, to, _))| from.is_finite() && to.is_none_or(f64::is_finite))
+        .map(|(k, (from, to, text))| (k, from, to, text))
 }
 
 /// The dashes of a vertical line at `x` from `top` to `bottom`.
@@ -53,7 +54,7 @@ pub(crate) fn draw_under(
     l: &LineLayout,
 ) -> Result<(), RenderError> {
     let xm = l.xmap(chart);
-    for (from, to, _) in moments(chart) {
+    for (_, from, to, _) in moments(chart) {
         let x0 = xm(from).clamp(l.plot_left, l.plot_right);
         match to {
             Some(to) => {
@@ -90,7 +91,8 @@ fn candidates(x: f64, w: f64, h: f64, top: f64, step: f64) -> Vec<Rect> {
 
 /// Records each marker line so labels keep off it, then places the
 /// moments' labels (before any other note, so the story's named times get
-/// the best spots).
+/// the best spots), each in a [`Part::Note`] group that says when it could
+/// only go over data or found no room (the lint warns, naming the frame).
 pub(crate) fn draw_over(
     canvas: &Canvas,
     theme: &Theme,
@@ -103,7 +105,7 @@ pub(crate) fn draw_over(
     let lh = line_height(theme.label_size);
     let room = (l.plot_right - l.plot_left) * 0.4;
     // every marker line first: no moment's label may cross another's line
-    for (from, to, _) in moments(chart) {
+    for (_, from, to, _) in moments(chart) {
         if to.is_none() {
             let x = xm(from).clamp(l.plot_left, l.plot_right);
             obstacles
@@ -111,19 +113,26 @@ pub(crate) fn draw_over(
                 .push(((x, l.plot_top), (x, l.plot_bottom)));
         }
     }
-    for (from, _, text) in moments(chart) {
+    for (k, from, _, text) in moments(chart) {
         let x = xm(from).clamp(l.plot_left, l.plot_right);
         let full = text;
         let text = metrics::ellipsize(&metrics::normalize(text), theme.label_size, false, room);
         let w = text_width(&text, theme.label_size, false);
         let top = l.plot_top + 2.0;
         let cands = candidates(x, w, lh, top, theme.label_step());
-        if let Some(r) = place::pick(&cands, obstacles, &area, Pick::FirstFree) {
+        let chosen = place::pick(&cands, obstacles, &area, Pick::FirstFree);
+        if chosen.is_some() {
             // a name cut to its room is noted for the lint
             crate::fit::note(canvas, full, std::slice::from_ref(&text))?;
-            let style = (theme.label_size, false, theme.takeaway);
-            kit::put_in(canvas, obstacles, &text, &r, style)?;
         }
+        let part = place::note_part(NoteOf::Moment(k), chosen, obstacles);
+        canvas.group(part, || match chosen {
+            Some(r) => {
+                let style = (theme.label_size, false, theme.takeaway);
+                kit::put_in(canvas, obstacles, &text, &r, style)
+            }
+            None => Ok(()),
+        })?;
     }
     Ok(())
 }

@@ -155,11 +155,18 @@ fn categories(
             };
             place::settle(canvas, theme.baseline, obstacles, &label, (&[], None))?;
         }
+        let ext = extents(chart, c);
         if cat.role == Role::Hidden {
+            // its places are kept for the frame that shows it
+            for (j, e) in ext.iter().enumerate() {
+                if let Some((a, b)) = e {
+                    let (f, t) = s.across(c, j);
+                    canvas.ghost(s.bands.point(f, s.vmap(*a)), s.bands.point(t, s.vmap(*b)));
+                }
+            }
             continue;
         }
         let total = s.stacked.then_some((cat.total_label.as_str(), cat.role));
-        let ext = extents(chart, c);
         let across = |j| s.across(c, j);
         let vmap = |v| s.vmap(v);
         band::parts(

@@ -34,7 +34,7 @@
 use crate::canvas::{Canvas, Label, HEIGHT, WIDTH};
 use crate::theme::Rgb;
 use crate::RenderError;
-use crescendo_look::display::Rect;
+use crescendo_look::display::{NoteOf, Part, Rect};
 
 /// The rectangle from `(x0, y0)` (top left) to `(x1, y1)`.
 pub(crate) fn rect(x0: f64, y0: f64, x1: f64, y1: f64) -> Rect {
@@ -129,6 +129,16 @@ impl Obstacles {
         }
         self.boxes.push(r);
         Ok(())
+    }
+}
+
+/// The group a placed note is drawn in: it says whether the note's box
+/// (`None`: no spot clear of text, so it was left out) covers a data mark
+/// or line, for the lint.
+pub(crate) fn note_part(of: NoteOf, chosen: Option<Rect>, obstacles: &Obstacles) -> Part {
+    Part::Note {
+        of,
+        covers: chosen.is_none_or(|r| !obstacles.free(&r)),
     }
 }
 

@@ -173,12 +173,17 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
 /// A map from data to canvas px along one axis.
 type Map<'a> = &'a dyn Fn(f64) -> f64;
 
-/// Records where each drawn point is, for notes bound to values.
+/// Records where each drawn point is, for notes bound to values, and
+/// where each hidden one will be when the build-up shows it.
 fn anchor_points(canvas: &Canvas, chart: &ScatterChart, (xmap, ymap): (Map, Map)) {
     for (i, p) in chart.points.iter().enumerate() {
-        if p.x.is_finite() && p.y.is_finite() && p.role != Role::Hidden {
+        if p.x.is_finite() && p.y.is_finite() {
             let (c, r) = ((xmap(p.x), ymap(p.y)), f64::from(FOCUS_DOT));
-            canvas.anchor((i, 0), (c.0 - r, c.1 - r), (c.0 + r, c.1 + r));
+            if p.role == Role::Hidden {
+                canvas.ghost((c.0 - r, c.1 - r), (c.0 + r, c.1 + r));
+            } else {
+                canvas.anchor((i, 0), (c.0 - r, c.1 - r), (c.0 + r, c.1 + r));
+            }
         }
     }
 }

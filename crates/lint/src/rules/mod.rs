@@ -6,7 +6,6 @@ mod bars_cramped_labels;
 mod bars_crowded;
 mod bars_off_zero;
 mod bars_unsorted;
-mod cite_covers_data;
 mod colour_key_text;
 mod conclusion_missing;
 mod figure_echoes_headline;
@@ -22,6 +21,7 @@ mod lines_tangle;
 mod marks_faint;
 mod measure_unnamed;
 mod mention_unmarked;
+mod note_covers_data;
 mod panels_own_scales;
 mod pie_crowded;
 mod shades_crowded;
@@ -74,7 +74,7 @@ pub static RULES: &[&Rule] = &[
     &panels_own_scales::RULE,
     &frame_empty::RULE,
     &figure_echoes_headline::RULE,
-    &cite_covers_data::RULE,
+    &note_covers_data::RULE,
     &mention_unmarked::RULE,
     &small_counts::RULE,
     &source_missing::RULE,

@@ -317,6 +317,7 @@ fn build_up(
                 said.texts.depends.extend(r.depends.iter().cloned());
                 mark_notes::callout(cx, scope, st, (at, on.as_ref()), r.text, span)?
             }
+            st.anchors.callouts.push(span.clone());
         }
         FrameStmt::Band {
             from,
@@ -345,7 +346,8 @@ fn build_up(
             let r = scope.text(cx, text);
             // what the label quotes counts, but it is no field of its own
             said.texts.depends.extend(r.depends.iter().cloned());
-            moments::moment(cx, scope, st, (at, until.as_ref()), r.text, span)?
+            moments::moment(cx, scope, st, (at, until.as_ref()), r.text, span)?;
+            st.anchors.moments.push(span.clone());
         }
         FrameStmt::LabelEnds { span } => annotations::label_ends(cx, st, span)?,
         FrameStmt::Cite { value, span } => cite::cite(cx, scope, st, value, span)?,

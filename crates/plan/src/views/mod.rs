@@ -113,6 +113,17 @@ pub(crate) fn build_view_with(
                 }
             }
             Checked::Step(step) => {
+                // a year and a quarter that make no quarter (the steps of a
+                // prefix computed during the read were checked there)
+                if !read {
+                    let of =
+                        (index == 0 && input.is_data && !thinned).then_some(input.root.as_str());
+                    let bad = crate::quarter_cells::check(src, step_ast, &step, &built.table, of);
+                    if !bad.is_empty() {
+                        diags.extend(bad);
+                        return None;
+                    }
+                }
                 note(&mut built, &step);
                 resolved.push(step.clone());
                 built.table = match ends {
