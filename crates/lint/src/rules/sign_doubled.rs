@@ -3,22 +3,9 @@
 use crescendo_diag::Severity;
 
 use super::util::{frames, quoting_span};
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "sign-doubled",
-    severity: Severity::Advice,
-    summary: "a word of direction stands before a figure that carries its own sign",
-    doc: Doc {
-        before: "frame \"Tickets up {growth as signed percent}\" {   # prints Tickets up +478%",
-        after: "frame \"Tickets up {growth as percent}\" {   # prints Tickets up 478%",
-        why:
-            "\"Up +103%\" says the direction twice, and \"down −4%\" reads as a double negative:\n\
-              down by minus four percent is up. Say the direction once, in the word or in the\n\
-              sign (common practice of editing figures in prose).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("sign-doubled", Severity::Advice, check);
 
 /// Words that already say which way a figure went.
 const DIRECTION: &[&str] = &[

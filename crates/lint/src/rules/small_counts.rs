@@ -4,28 +4,9 @@ use crescendo_diag::Severity;
 use crescendo_frame::{Chart, Role};
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "small-counts",
-    severity: Severity::Warning,
-    summary: "a chart shows counts small enough to identify individuals",
-    doc: Doc {
-        before: "view c = v | by clinic: patients = count()   # one clinic saw 3 patients",
-        after: concat!(
-            "view c = v | by clinic: patients = count() | keep patients >= 5\n",
-            "# or merge small clinics (`top N ... rest`), widen the period, or show a rate",
-        ),
-        why:
-            "In a published chart, a cell of 1, 2 or 3 people can identify them, especially next\n\
-              to other public facts. The rule flags a chart whose measure counts rows (`count` in\n\
-              its view) and shows a value above zero but below the threshold (5 unless\n\
-              `--small-counts N`). Official statistics suppress or merge cells below a small\n\
-              threshold, often 5 or 10 (common practice); follow your organisation's own\n\
-              disclosure rules, which may be stricter.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("small-counts", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     let threshold = input.small_counts;

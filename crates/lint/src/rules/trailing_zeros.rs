@@ -3,23 +3,9 @@
 use crescendo_diag::Severity;
 
 use super::util::{frames, quoting_span};
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "trailing-zeros",
-    severity: Severity::Advice,
-    summary: "a figure or tick label ends in zeros after the decimal point",
-    doc: Doc {
-        before: "frame \"The busiest queue has {top to 1 decimal} tickets\" {   # prints 520.0",
-        after: "frame \"The busiest queue has {top} tickets\" {   # prints 520",
-        why: "Trailing zeros add ink and reading time without adding information: \"520\" says what\n\
-              \"520.0\" says, and \"20%\" what \"20.0%\" says. They also suggest a precision the number\n\
-              may not have (common practice: no trailing zeros unless a column of figures must\n\
-              line up). Without `to N decimals` crescendo prints none, in quoted figures and tick\n\
-              labels alike.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("trailing-zeros", Severity::Advice, check);
 
 /// "20.0", "2.50%", "1.0k": a decimal point followed by digits ending in 0.
 /// `separator` is the deck's decimal separator ("," in a `locale "de-DE"`
