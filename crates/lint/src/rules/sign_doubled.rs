@@ -1,8 +1,9 @@
 //! `sign-doubled`: a word of direction before a signed figure ("up +103%").
 
 use crescendo_diag::Severity;
+use crescendo_frame::FramePlan;
 
-use super::util::{frames, quoting_span};
+use super::util::flag_quoted;
 use crate::{Finding, Input, Rule};
 
 pub static RULE: Rule = Rule::new("sign-doubled", Severity::Advice, check);
@@ -67,20 +68,16 @@ fn doubled(text: &str, figure: &str) -> bool {
 }
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
-    for (i, f, a) in frames(input) {
+    let doubled_in = |f: &FramePlan, figure: &str| {
         let texts = [Some(&f.headline), f.takeaway.as_ref(), f.notes.as_ref()];
-        for (name, figure) in &f.quoted {
-            if texts.iter().flatten().any(|t| doubled(t, figure)) {
-                out.push(Finding {
-                    frame: Some(i),
-                    span: quoting_span(f, a, name),
-                    label: format!("`{name}` prints as {figure}"),
-                    message: format!("a word of direction already stands before \"{figure}\""),
-                    fix: format!("quote `{name}` without `signed`, or drop the word"),
-                });
-            }
-        }
-    }
+        texts.iter().flatten().any(|t| doubled(t, figure))
+    };
+    flag_quoted(input, out, doubled_in, |name, figure| {
+        (
+            format!("a word of direction already stands before \"{figure}\""),
+            format!("quote `{name}` without `signed`, or drop the word"),
+        )
+    });
 }
 
 #[cfg(test)]

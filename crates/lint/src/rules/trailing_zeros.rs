@@ -1,8 +1,9 @@
 //! `trailing-zeros`: figures printed with zeros that carry no information.
 
 use crescendo_diag::Severity;
+use crescendo_frame::FramePlan;
 
-use super::util::{frames, quoting_span};
+use super::util::flag_quoted;
 use crate::{Finding, Input, Rule};
 
 pub static RULE: Rule = Rule::new("trailing-zeros", Severity::Advice, check);
@@ -25,19 +26,13 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
             .locale
             .as_ref()
             .map_or_else(|| ".".to_string(), |l| l.decimal_separator());
-    for (i, f, a) in frames(input) {
-        for (name, figure) in &f.quoted {
-            if has_trailing_zero(figure, &separator) {
-                out.push(Finding {
-                    frame: Some(i),
-                    span: quoting_span(f, a, name),
-                    label: format!("`{name}` prints as {figure}"),
-                    message: format!("\"{figure}\" ends in a zero that says nothing"),
-                    fix: format!("quote `{name}` without `to N decimals`"),
-                });
-            }
-        }
-    }
+    let zero_ended = |_: &FramePlan, figure: &str| has_trailing_zero(figure, &separator);
+    flag_quoted(input, out, zero_ended, |name, figure| {
+        (
+            format!("\"{figure}\" ends in a zero that says nothing"),
+            format!("quote `{name}` without `to N decimals`"),
+        )
+    });
 }
 
 #[cfg(test)]

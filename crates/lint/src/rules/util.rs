@@ -4,7 +4,7 @@ use crescendo_frame::anchors::{FrameAnchors, Span};
 use crescendo_frame::{Chart, FramePlan, Role};
 
 use crate::colour::Rgb8;
-use crate::Input;
+use crate::{Finding, Input};
 
 /// Frames with their anchors, by index.
 pub fn frames<'a>(
@@ -145,5 +145,30 @@ pub fn quoting_span(frame: &FramePlan, fa: &FrameAnchors, name: &str) -> Span {
         fa.notes.clone().unwrap_or(fa.headline.clone())
     } else {
         fa.headline.clone()
+    }
+}
+
+/// A finding on each figure a frame quotes that `flagged` picks, on the
+/// text that quotes it; `said` gives the message and the fix from the
+/// value's name and the figure.
+pub fn flag_quoted(
+    input: &Input,
+    out: &mut Vec<Finding>,
+    flagged: impl Fn(&FramePlan, &str) -> bool,
+    said: impl Fn(&str, &str) -> (String, String),
+) {
+    for (i, f, a) in frames(input) {
+        for (name, figure) in &f.quoted {
+            if flagged(f, figure) {
+                let (message, fix) = said(name, figure);
+                out.push(Finding {
+                    frame: Some(i),
+                    span: quoting_span(f, a, name),
+                    label: format!("`{name}` prints as {figure}"),
+                    message,
+                    fix,
+                });
+            }
+        }
     }
 }
