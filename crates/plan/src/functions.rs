@@ -2,7 +2,7 @@
 //! (`last(monthly.riders where route = "Loop")`) or, for `ratio`, two
 //! values, and computes one figure with `crescendo_data::stats`.
 
-use crescendo_data::{self as data, stats, ColType, Step, Table, Value};
+use crescendo_data::{stats, ColType, Table, Value};
 use crescendo_diag::{closest, Diagnostic};
 use crescendo_lang::ast::{CallArg, Expr, Selection, Span};
 
@@ -185,26 +185,7 @@ impl Evaluator<'_> {
                 if !unmatched.is_empty() {
                     return Err(unmatched);
                 }
-                // Run the filter through the view engine on a table that
-                // carries the row numbers.
-                let mut t = table.clone();
-                let n = t.columns.first().map_or(0, |c| c.values.len());
-                t.columns.push(data::Column {
-                    name: "\u{0}row".into(),
-                    ty: ColType::Number,
-                    values: (0..n).map(|i| Value::Number(i as f64)).collect(),
-                });
-                let kept = data::run_view(&t, &[Step::Keep(cond)]);
-                kept.columns
-                    .last()
-                    .map(|c| {
-                        c.values
-                            .iter()
-                            .filter_map(|v| num(&v))
-                            .map(|x| x as usize)
-                            .collect()
-                    })
-                    .unwrap_or_default()
+                rows::kept_rows(table, cond)
             }
         };
         let mut order = rows.clone();
