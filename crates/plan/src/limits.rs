@@ -16,6 +16,7 @@ use crescendo_data::load::ReadLimits;
 use crescendo_data::{Cell, Table};
 use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::{Item, StoryAst};
+use crescendo_lang::source::{comment_end, literal_end};
 
 /// The limits of one build.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -115,23 +116,11 @@ fn literals(text: &str) -> Vec<std::ops::Range<usize>> {
         match b {
             b'"' => {
                 let start = i;
-                i += 1;
-                while let Some(&c) = bytes.get(i) {
-                    match c {
-                        b'\\' => i += 1,
-                        b'"' | b'\n' => break,
-                        _ => {}
-                    }
-                    i += 1;
-                }
+                i = literal_end(bytes, i);
                 let end = (i + 1).min(text.len());
                 out.push(start..end);
             }
-            b'#' => {
-                while bytes.get(i).is_some_and(|&c| c != b'\n') {
-                    i += 1;
-                }
-            }
+            b'#' => i = comment_end(bytes, i),
             _ => {}
         }
         i += 1;
