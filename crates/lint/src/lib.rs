@@ -309,26 +309,17 @@ pub fn lint(input: &Input, options: &Options) -> Vec<Diagnostic> {
             out.push(d);
         }
     }
-    // allowances that allowed nothing
-    for (k, a) in input.anchors.allows.iter().enumerate() {
-        if story_allows[k] && !used.contains(&(None, k)) {
-            out.push(
-                Diagnostic::warning(
-                    "unused-allow",
-                    format!("`{}` finds nothing to allow in this story", a.rule),
-                )
-                .at(input.src, a.rule_span.clone(), "nothing to allow")
-                .help("remove the allowance"),
-            );
-        }
-    }
-    for (i, fa) in input.anchors.frames.iter().enumerate() {
-        for (k, a) in fa.allows.iter().enumerate() {
-            if frame_allows[i][k] && !used.contains(&(Some(i), k)) {
+    // allowances that allowed nothing, the story's then each frame's
+    let story = (None, "story", &input.anchors.allows, &story_allows);
+    let frames = (input.anchors.frames.iter().enumerate())
+        .map(|(i, fa)| (Some(i), "frame", &fa.allows, &frame_allows[i]));
+    for (frame, place, allows, active) in std::iter::once(story).chain(frames) {
+        for (k, a) in allows.iter().enumerate() {
+            if active[k] && !used.contains(&(frame, k)) {
                 out.push(
                     Diagnostic::warning(
                         "unused-allow",
-                        format!("`{}` finds nothing to allow in this frame", a.rule),
+                        format!("`{}` finds nothing to allow in this {place}", a.rule),
                     )
                     .at(input.src, a.rule_span.clone(), "nothing to allow")
                     .help("remove the allowance"),

@@ -494,18 +494,8 @@ impl Evaluator<'_> {
         let sel = self.selection_arg(fname, args, span)?;
         let p = self.pick(sel, true)?;
         let Some((bt, bys)) = &p.by else {
-            return Err(vec![self
-                .err(
-                    "value-argument",
-                    "`growth` needs the time column it grows along".into(),
-                    sel.span.clone(),
-                    "",
-                )
-                .help(format!(
-                    "write `growth({}.{} by YEAR_OR_MONTH_COLUMN where ...)`",
-                    sel.view.name,
-                    sel.column.as_ref().map_or("COLUMN", |c| c.name.as_str())
-                ))]);
+            let message = "`growth` needs the time column it grows along";
+            return Err(self.needs_by(sel, "growth", message.into(), "YEAR_OR_MONTH_COLUMN"));
         };
         let xs = self.numbers(fname, sel, &p)?;
         let pairs: Vec<(f64, &Value)> = p
@@ -544,6 +534,24 @@ impl Evaluator<'_> {
         self.wrap(fname, stats::growth_rate(first.0, last.0, years), &p, span)
     }
 
+    /// The error for `fname` called without the `by` column it runs along;
+    /// the help shows the call with `by PLACEHOLDER`.
+    fn needs_by(
+        &self,
+        sel: &Selection,
+        fname: &str,
+        message: String,
+        placeholder: &str,
+    ) -> Vec<Diagnostic> {
+        let column = sel.column.as_ref().map_or("COLUMN", |c| c.name.as_str());
+        let call = format!(
+            "{fname}({}.{column} by {placeholder} where ...)",
+            sel.view.name
+        );
+        let d = self.err("value-argument", message, sel.span.clone(), "");
+        vec![d.help(format!("write `{call}`"))]
+    }
+
     /// `rank`: the place of the one selected number among the column's.
     fn rank(&self, fname: &str, args: &[CallArg], span: &Span) -> Computed {
         let (p, xs) = self.selected_numbers(fname, args, span)?;
@@ -572,18 +580,8 @@ impl Evaluator<'_> {
         let p = self.pick(sel, true)?;
         self.numbers(fname, sel, &p)?;
         let Some((_, bys)) = &p.by else {
-            return Err(vec![self
-                .err(
-                    "value-argument",
-                    format!("`{fname}` needs the column to fit along"),
-                    sel.span.clone(),
-                    "",
-                )
-                .help(format!(
-                    "write `{fname}({}.{} by X_COLUMN where ...)`",
-                    sel.view.name,
-                    sel.column.as_ref().map_or("COLUMN", |c| c.name.as_str())
-                ))]);
+            let message = format!("`{fname}` needs the column to fit along");
+            return Err(self.needs_by(sel, fname, message, "X_COLUMN"));
         };
         let (xs, ys): (Vec<f64>, Vec<f64>) = p
             .cells
