@@ -172,3 +172,16 @@ pub fn flag_quoted(
         }
     }
 }
+
+/// The frames whose chart `is_form` picks and that show more than `max`
+/// marks, with their anchors and the number shown.
+pub fn crowded<'a>(
+    input: &'a Input,
+    is_form: fn(&Chart) -> bool,
+    max: usize,
+) -> impl Iterator<Item = (usize, &'a FrameAnchors, usize)> {
+    frames(input).filter_map(move |(i, f, a)| {
+        let n = visible(f);
+        (is_form(&f.chart) && n > max).then_some((i, a, n))
+    })
+}
