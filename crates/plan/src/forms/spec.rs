@@ -134,18 +134,24 @@ impl SpecInput<'_> {
         if col.1 == ColType::Number {
             return Ok(());
         }
-        let mut d = cx.at(
-            "chart-type",
-            format!(
-                "{what} must be a number column, but `{}` is {}",
-                self.schema[col.0].0,
-                col.1.name()
-            ),
-            span,
-            "not a number",
-        );
-        d.notes.extend(self.why_text(col.0));
-        Err(cx.report(d))
+        let needed = format!("{what} must be a number column");
+        Err(self.not_a_number(cx, col, span, &needed))
+    }
+
+    /// The error for column `col` where `needed` says a number must stand,
+    /// with the data row that made the column text when there is one.
+    pub(crate) fn not_a_number(
+        &self,
+        cx: &mut Ctx,
+        (index, ty): (usize, ColType),
+        span: Span,
+        needed: &str,
+    ) -> Reported {
+        let name = &self.schema[index].0;
+        let message = format!("{needed}, but `{name}` is {}", ty.name());
+        let mut d = cx.at("chart-type", message, span, "not a number");
+        d.notes.extend(self.why_text(index));
+        cx.report(d)
     }
 
     /// Does the view count rows in column `col`?
