@@ -1,7 +1,7 @@
 //! `small-counts`: counts small enough to identify people.
 
 use crescendo_diag::Severity;
-use crescendo_frame::{Chart, Role};
+use crescendo_frame::{Chart, LineChart, Role};
 
 use super::util::frames;
 use crate::{Finding, Input, Rule};
@@ -10,79 +10,54 @@ pub static RULE: Rule = Rule::new("small-counts", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     let threshold = input.small_counts;
+    let small = |v: Option<f64>| v.is_some_and(|v| v > 0.0 && v < threshold);
+    let small_in = |vs: &[Option<f64>]| vs.iter().any(|v| small(*v));
+    let line_small = |l: &LineChart| l.series.iter().any(|s| s.points.iter().any(|p| small(p.y)));
     for (i, f, a) in frames(input) {
         if !a.measure_is_count {
             continue;
         }
-        let small: Vec<String> = match &f.chart {
-            Chart::Bars(b) => b
-                .bars
-                .iter()
-                .filter(|b| b.role != Role::Hidden)
-                .filter(|b| b.value.is_some_and(|v| v > 0.0 && v < threshold))
-                .map(|b| format!("{} ({})", b.label, b.value_label))
-                .collect(),
-            Chart::Line(l) => l
-                .series
-                .iter()
-                .filter(|s| s.role != Role::Hidden)
-                .filter(|s| {
-                    s.points
-                        .iter()
-                        .any(|p| p.y.is_some_and(|v| v > 0.0 && v < threshold))
+        // each mark of the chart: its role, whether it shows a small count, its name
+        let marks: Vec<(Role, bool, String)> = match &f.chart {
+            Chart::Bars(b) => (b.bars.iter())
+                .map(|b| {
+                    (
+                        b.role,
+                        small(b.value),
+                        format!("{} ({})", b.label, b.value_label),
+                    )
                 })
-                .map(|s| s.name.clone())
                 .collect(),
-            Chart::Parts(p) => p
-                .categories
-                .iter()
-                .filter(|c| c.role != Role::Hidden)
-                .filter(|c| {
-                    c.values
-                        .iter()
-                        .any(|v| v.is_some_and(|v| v > 0.0 && v < threshold))
+            Chart::Line(l) => (l.series.iter())
+                .map(|s| (s.role, s.points.iter().any(|p| small(p.y)), s.name.clone()))
+                .collect(),
+            Chart::Parts(p) => (p.categories.iter())
+                .map(|c| (c.role, small_in(&c.values), c.label.clone()))
+                .collect(),
+            Chart::Dots(d) => (d.rows.iter())
+                .map(|r| (r.role, small_in(&r.values), r.label.clone()))
+                .collect(),
+            Chart::Pie(p) => (p.slices.iter())
+                .map(|s| (s.role, small(Some(s.value)), s.label.clone()))
+                .collect(),
+            Chart::Panels(p) => (p.panels.iter())
+                .map(|x| {
+                    let shows_small = match &x.chart {
+                        Chart::Line(l) => line_small(l),
+                        Chart::Bars(b) => b.bars.iter().any(|b| small(b.value)),
+                        _ => false,
+                    };
+                    (x.role, shows_small, x.title.clone())
                 })
-                .map(|c| c.label.clone())
-                .collect(),
-            Chart::Dots(d) => d
-                .rows
-                .iter()
-                .filter(|r| r.role != Role::Hidden)
-                .filter(|r| {
-                    r.values
-                        .iter()
-                        .any(|v| v.is_some_and(|v| v > 0.0 && v < threshold))
-                })
-                .map(|r| r.label.clone())
-                .collect(),
-            Chart::Pie(p) => p
-                .slices
-                .iter()
-                .filter(|s| s.role != Role::Hidden && s.value > 0.0 && s.value < threshold)
-                .map(|s| s.label.clone())
-                .collect(),
-            Chart::Panels(p) => p
-                .panels
-                .iter()
-                .filter(|x| x.role != Role::Hidden)
-                .filter(|x| match &x.chart {
-                    Chart::Line(l) => l.series.iter().any(|s| {
-                        s.points
-                            .iter()
-                            .any(|p| p.y.is_some_and(|v| v > 0.0 && v < threshold))
-                    }),
-                    Chart::Bars(b) => b
-                        .bars
-                        .iter()
-                        .any(|b| b.value.is_some_and(|v| v > 0.0 && v < threshold)),
-                    _ => false,
-                })
-                .map(|x| x.title.clone())
                 .collect(),
             Chart::Scatter(_) | Chart::Figures(_) | Chart::Table(_) | Chart::Plugin(_) => {
                 Vec::new()
             }
         };
+        let small: Vec<String> = (marks.into_iter())
+            .filter(|(role, shows_small, _)| *role != Role::Hidden && *shows_small)
+            .map(|(_, _, name)| name)
+            .collect();
         if !small.is_empty() {
             out.push(Finding {
                 frame: Some(i),
