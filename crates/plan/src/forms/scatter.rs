@@ -118,14 +118,12 @@ impl FormPlanner for Scatter {
         let key_name = groups
             .or(labels)
             .map_or_else(|| yc.name.clone(), |l| l.name.clone());
-        Ok(SeqState {
+        Ok(spec.state(
+            Chart::Scatter(ScatterChart { x, y, points, fit }),
             names,
-            measure_name: yc.name.clone(),
-            view_name: spec.table_name.clone(),
             key_name,
-            anchors: spec::anchors(c, spec),
-            ..SeqState::new(Chart::Scatter(ScatterChart { x, y, points, fit }))
-        })
+            spec::anchors(c, spec),
+        ))
     }
 }
 

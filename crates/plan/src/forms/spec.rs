@@ -9,8 +9,9 @@ use crescendo_lang::ast::{ChartStmt, CompareDecl, Ident, OptName, Span};
 use crate::anchors::FrameAnchors;
 use crate::context::{Ctx, Outcome, Reported};
 use crate::forms::options::Chosen;
-use crate::model::{Orientation, PartsMode};
+use crate::model::{Chart, Orientation, PartsMode};
 use crate::rows::{self, Schema};
+use crate::sequence::SeqState;
 use crate::tables::Tables;
 
 /// A resolved chart statement: the table and the columns playing each role.
@@ -38,6 +39,25 @@ pub(crate) struct ChartSpec {
 }
 
 impl ChartSpec {
+    /// The build-up state of a chart planned from this spec: its names, its
+    /// measure (the y column), its view and its key.
+    pub(crate) fn state(
+        &self,
+        chart: Chart,
+        names: Vec<String>,
+        key_name: String,
+        anchors: FrameAnchors,
+    ) -> SeqState {
+        SeqState {
+            names,
+            measure_name: self.table.columns[self.y].name.clone(),
+            view_name: self.table_name.clone(),
+            key_name,
+            anchors,
+            ..SeqState::new(chart)
+        }
+    }
+
     /// The error for a view without a value of the measure.
     pub(crate) fn no_values(&self, cx: &mut Ctx, c: &ChartStmt) -> Reported {
         cx.error(
