@@ -404,3 +404,32 @@ fn a_callout_on_a_part_the_chart_lacks_lists_its_parts() {
         "{err}"
     );
 }
+
+#[test]
+fn keep_without_a_condition_is_told() {
+    let story = GOOD_STORY.replace(
+        "  | by month, branch: loans = sum(loans)\n",
+        "  | keep loans\n  | by month, branch: loans = sum(loans)\n",
+    );
+    let err = run_broken("step-types", &story, Some(GOOD_CSV));
+    assert!(
+        err.contains("`keep` needs a condition, but this is"),
+        "{err}"
+    );
+    assert!(err.contains("not a condition"), "{err}");
+    assert_located(&err, "story.cresc:7:10");
+}
+
+#[test]
+fn add_without_a_number_is_told() {
+    let story = GOOD_STORY.replace(
+        "  | by month, branch: loans = sum(loans)\n",
+        "  | add label = branch\n  | by month, branch: loans = sum(loans)\n",
+    );
+    let err = run_broken("add-type", &story, Some(GOOD_CSV));
+    assert!(
+        err.contains("`add` computes a number, but this is"),
+        "{err}"
+    );
+    assert!(err.contains("not a number"), "{err}");
+}
