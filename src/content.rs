@@ -159,6 +159,27 @@ impl Content {
         }
     }
 
+    /// A chart of items by parts (stacked or grouped bars, dots by
+    /// series): the parts' roles, then each item's role and its value for
+    /// each part, in order.
+    fn grid<'a>(
+        &mut self,
+        p: &str,
+        parts: &[(&str, Role)],
+        items: impl Iterator<Item = (&'a str, Role, &'a [Option<f64>])>,
+    ) {
+        for (name, r) in parts {
+            self.roles.push((format!("{p}{name}"), role(*r)));
+        }
+        for (label, r, values) in items {
+            self.roles.push((format!("{p}{label}"), role(r)));
+            for ((part, _), v) in parts.iter().zip(values) {
+                let key = format!("{p}{label} {part}");
+                self.data.push((key, v.map(num)));
+            }
+        }
+    }
+
     fn add(&mut self, chart: &Chart, p: &str) {
         let point = |v: Option<f64>| v.map(num);
         match chart {
@@ -188,33 +209,24 @@ impl Content {
             Chart::Parts(c) => {
                 self.title("category title", p, &c.category_title);
                 self.title("value title", p, &c.value.title);
-                for part in &c.parts {
-                    self.roles
-                        .push((format!("{p}{}", part.name), role(part.role)));
-                }
-                for cat in &c.categories {
-                    self.roles
-                        .push((format!("{p}{}", cat.label), role(cat.role)));
-                    for (part, v) in c.parts.iter().zip(&cat.values) {
-                        let key = format!("{p}{} {}", cat.label, part.name);
-                        self.data.push((key, point(*v)));
-                    }
-                }
+                let parts: Vec<_> = c.parts.iter().map(|x| (x.name.as_str(), x.role)).collect();
+                let cats = c.categories.iter();
+                self.grid(
+                    p,
+                    &parts,
+                    cats.map(|x| (x.label.as_str(), x.role, &x.values[..])),
+                );
             }
             Chart::Dots(d) => {
                 self.title("category title", p, &d.category_title);
                 self.title("value title", p, &d.value.title);
-                for s in &d.series {
-                    self.roles.push((format!("{p}{}", s.name), role(s.role)));
-                }
-                for row in &d.rows {
-                    self.roles
-                        .push((format!("{p}{}", row.label), role(row.role)));
-                    for (s, v) in d.series.iter().zip(&row.values) {
-                        let key = format!("{p}{} {}", row.label, s.name);
-                        self.data.push((key, point(*v)));
-                    }
-                }
+                let series: Vec<_> = d.series.iter().map(|x| (x.name.as_str(), x.role)).collect();
+                let rows = d.rows.iter();
+                self.grid(
+                    p,
+                    &series,
+                    rows.map(|x| (x.label.as_str(), x.role, &x.values[..])),
+                );
             }
             Chart::Scatter(s) => {
                 self.title("x title", p, &s.x.title);

@@ -355,3 +355,81 @@ fn every_bad_cell_of_a_data_file_is_reported_at_once_on_both_read_paths() {
     assert!(streamed.contains("4 errors"), "{streamed}");
     assert_eq!(streamed, whole);
 }
+
+#[test]
+fn a_frame_saying_its_takeaway_or_notes_twice_is_told_each() {
+    let story = GOOD_STORY.replace(
+        "  spotlight \"Quarry Street\"\n",
+        "  takeaway \"One\"\n  takeaway \"Two\"\n  notes \"A\"\n  notes \"B\"\n",
+    );
+    let err = run_broken("frame-texts", &story, Some(GOOD_CSV));
+    assert_located(&err, "story.cresc:12:3");
+    assert_located(&err, "story.cresc:14:3");
+    for text in [
+        "this frame has two takeaways",
+        "second takeaway",
+        "this frame has two notes",
+        "second notes",
+    ] {
+        assert!(err.contains(text), "{text}: {err}");
+    }
+}
+
+#[test]
+fn unfold_over_a_name_the_chart_lacks_suggests_the_closest() {
+    let story = GOOD_STORY.replace("  spotlight \"Quarry Street\"\n", "  unfold \"Elm Raw\"\n");
+    let err = run_broken("unfold-name", &story, Some(GOOD_CSV));
+    assert!(
+        err.contains("nothing named \"Elm Raw\" to unfold in this chart"),
+        "{err}"
+    );
+    assert!(err.contains("not in this chart"), "{err}");
+    assert!(err.contains("did you mean \"Elm Row\"?"), "{err}");
+}
+
+#[test]
+fn a_callout_on_a_part_the_chart_lacks_lists_its_parts() {
+    let story = GOOD_STORY.replace(
+        "  line by_branch: x month, y loans, series branch\n  spotlight \"Quarry Street\"\n",
+        "  bars by_branch: category branch, value loans, stack month\n  callout \"Elm Row\" on \"2025-01\" \"text\"\n",
+    );
+    let err = run_broken("callout-part", &story, Some(GOOD_CSV));
+    assert!(
+        err.contains("no part named \"2025-01\" in this chart"),
+        "{err}"
+    );
+    assert!(err.contains("not a part here"), "{err}");
+    assert!(
+        err.contains("this chart has \"Jan 2024\", \"Feb 2024\""),
+        "{err}"
+    );
+}
+
+#[test]
+fn keep_without_a_condition_is_told() {
+    let story = GOOD_STORY.replace(
+        "  | by month, branch: loans = sum(loans)\n",
+        "  | keep loans\n  | by month, branch: loans = sum(loans)\n",
+    );
+    let err = run_broken("step-types", &story, Some(GOOD_CSV));
+    assert!(
+        err.contains("`keep` needs a condition, but this is"),
+        "{err}"
+    );
+    assert!(err.contains("not a condition"), "{err}");
+    assert_located(&err, "story.cresc:7:10");
+}
+
+#[test]
+fn add_without_a_number_is_told() {
+    let story = GOOD_STORY.replace(
+        "  | by month, branch: loans = sum(loans)\n",
+        "  | add label = branch\n  | by month, branch: loans = sum(loans)\n",
+    );
+    let err = run_broken("add-type", &story, Some(GOOD_CSV));
+    assert!(
+        err.contains("`add` computes a number, but this is"),
+        "{err}"
+    );
+    assert!(err.contains("not a number"), "{err}");
+}

@@ -116,8 +116,8 @@ fn every_rule_document_quotes_its_own_cases() {
     let dir = root().join("tests/lint");
     for rule in crescendo_lint::RULES {
         for (excerpt, file) in [
-            (rule.doc.before, "fires.cresc"),
-            (rule.doc.after, "passes.cresc"),
+            (rule.doc().before, "fires.cresc"),
+            (rule.doc().after, "passes.cresc"),
         ] {
             let story = code_lines(&fs::read_to_string(dir.join(rule.name).join(file)).unwrap());
             let mut rest = story.iter();

@@ -251,11 +251,9 @@ pub fn summary(p: &Profile, shape: Option<&Shape>) -> String {
             c.missing
         );
     }
-    let list = |ty: &dyn Fn(ColType) -> bool| {
-        let v: Vec<&str> = p
-            .columns
-            .iter()
-            .filter(|c| ty(c.ty))
+    // the names of the columns `pick` takes, or "none"
+    let names = |pick: &dyn Fn(&ColumnProfile) -> bool| {
+        let v: Vec<&str> = (p.columns.iter().filter(|c| pick(c)))
             .map(|c| c.name.as_str())
             .collect();
         if v.is_empty() {
@@ -264,20 +262,8 @@ pub fn summary(p: &Profile, shape: Option<&Shape>) -> String {
             v.join(", ")
         }
     };
-    let _ = writeln!(s, "time columns: {}", list(&|t: ColType| t.is_time()));
-    let roles = |r: &dyn Fn(ColumnRole) -> bool| {
-        let v: Vec<String> = p
-            .columns
-            .iter()
-            .filter(|c| c.ty == ColType::Number && r(c.role))
-            .map(|c| c.name.clone())
-            .collect();
-        if v.is_empty() {
-            "none".to_string()
-        } else {
-            v.join(", ")
-        }
-    };
+    let _ = writeln!(s, "time columns: {}", names(&|c| c.ty.is_time()));
+    let roles = |r: &dyn Fn(ColumnRole) -> bool| names(&|c| c.ty == ColType::Number && r(c.role));
     let _ = writeln!(
         s,
         "amounts (summed): {}",
@@ -298,7 +284,7 @@ pub fn summary(p: &Profile, shape: Option<&Shape>) -> String {
         "parts of a time (never measures): {}",
         roles(&|r| matches!(r, ColumnRole::Quarter | ColumnRole::MonthNumber))
     );
-    let _ = writeln!(s, "categories: {}", list(&|t| t == ColType::Text));
+    let _ = writeln!(s, "categories: {}", names(&|c| c.ty == ColType::Text));
     if let Some(shape) = shape {
         let _ = writeln!(s, "chart: {}", why(shape));
     }

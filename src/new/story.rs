@@ -297,6 +297,24 @@ pub(super) fn frame(s: &mut String, comment: &str, headline: &str, lines: &[Stri
     let _ = writeln!(s);
 }
 
+/// The focus ranks first among the KEYs of VIEW by MEASURE: the value
+/// `focus_rank`, the fact `said` that holds it to 1, then `compare` and
+/// `focus`.
+pub(super) fn ranked_focus(
+    s: &mut String,
+    (view, key, measure): (&str, &str, &str),
+    focus: &str,
+    said: &str,
+) {
+    let _ = writeln!(
+        s,
+        "value focus_rank = rank({view}.{measure} where {key} = {})",
+        literal(focus)
+    );
+    fact(s, "focus_rank = 1", said);
+    compare_focus(s, key, measure, focus);
+}
+
 /// `compare KEY by MEASURE` and `focus "NAME"`, then a blank line.
 pub(super) fn compare_focus(s: &mut String, key: &str, measure: &str, focus: &str) {
     let _ = writeln!(s, "compare {key} by {measure}");
@@ -555,17 +573,12 @@ fn part_of_whole(s: &mut String, table: &Table, category: &str, part: &str, meas
     );
     value_and_claim(s, "parts", measure);
     let focus = largest(&totals(table, part, measure)).unwrap_or_default();
-    let _ = writeln!(
+    ranked_focus(
         s,
-        "value focus_rank = rank(part_totals.{measure} where {part} = {})",
-        literal(&focus)
-    );
-    fact(
-        s,
-        "focus_rank = 1",
+        ("part_totals", part, measure),
+        &focus,
         &format!("{focus} is the largest {} in total", words(part)),
     );
-    compare_focus(s, part, measure, &focus);
     let y_title = format!("y title {}", quote(&capital(&m)));
     frame(
         s,
@@ -615,17 +628,12 @@ fn distribution(s: &mut String, table: &Table, name: &str, measure: &str) {
     );
     value_and_claim(s, "spread", measure);
     let focus = largest(&totals(table, name, measure)).unwrap_or_default();
-    let _ = writeln!(
+    ranked_focus(
         s,
-        "value focus_rank = rank(spread.{measure} where {name} = {})",
-        literal(&focus)
-    );
-    fact(
-        s,
-        "focus_rank = 1",
+        ("spread", name, measure),
+        &focus,
         &format!("{focus} has the highest {}", words(measure)),
     );
-    compare_focus(s, name, measure, &focus);
     frame(
         s,
         "1. Context: every value as a dot.",
@@ -688,13 +696,12 @@ fn comparison(
     );
     value_and_claim(s, "ranked", measure);
     let focus = largest(&aggregates(table, category, measure, agg, None)).unwrap_or_default();
-    let _ = writeln!(
+    ranked_focus(
         s,
-        "value focus_rank = rank(ranked.{measure} where {category} = {})",
-        literal(&focus)
+        ("ranked", category, measure),
+        &focus,
+        &format!("{focus} has the highest {m}"),
     );
-    fact(s, "focus_rank = 1", &format!("{focus} has the highest {m}"));
-    compare_focus(s, category, measure, &focus);
     let orient = if horizontal { ", horizontal" } else { "" };
     frame(
         s,

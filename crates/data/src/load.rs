@@ -133,6 +133,16 @@ pub enum LoadError {
 pub const MAX_ERRORS: usize = 20;
 
 impl LoadError {
+    /// A problem not located inside the file, with a suggested fix if any.
+    pub fn story(code: &'static str, message: String, help: Option<&str>) -> LoadError {
+        LoadError::Story {
+            code,
+            message,
+            help: help.map(str::to_owned),
+            declared: None,
+        }
+    }
+
     /// The machine-readable code of the problem.
     pub fn code(&self) -> &'static str {
         match self {
@@ -302,9 +312,10 @@ fn read<'s>(
             Err(e) => {
                 return Err(match e.into_kind() {
                     csv::ErrorKind::Io(io) => io_error(spec, &io),
-                    other => story(
+                    other => LoadError::story(
                         "data-file",
                         format!("cannot read data file `{}`: {other:?}", spec.display_name),
+                        None,
                     ),
                 })
             }
@@ -401,15 +412,6 @@ pub(crate) fn parse_as(style: &NumberStyle, ty: ColType, s: &str) -> Option<Valu
     }
 }
 
-fn story(code: &'static str, message: String) -> LoadError {
-    LoadError::Story {
-        code,
-        message,
-        help: None,
-        declared: None,
-    }
-}
-
 /// Why a data file could not be opened or read, as a [`LoadError`].
 pub fn io_error(spec: &CsvSpec, e: &io::Error) -> LoadError {
     let reason = match e.kind() {
@@ -424,9 +426,10 @@ pub fn io_error(spec: &CsvSpec, e: &io::Error) -> LoadError {
             }
         }
     };
-    story(
+    LoadError::story(
         "data-file",
         format!("cannot read data file `{}`: {reason}", spec.display_name),
+        None,
     )
 }
 

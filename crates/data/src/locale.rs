@@ -111,11 +111,18 @@ pub fn forms_of(language: &str) -> Option<&'static Forms> {
             (3, 3, "\u{a0}mil"),
         ],
     };
+    by_language(language, [&EN, &DE, &FR, &ES])
+}
+
+/// Of things given for the languages crescendo ships words and patterns
+/// for, in the order English, German, French, Spanish, the one for
+/// `language` (a language subtag such as `de`); `None` for another.
+pub fn by_language<T>(language: &str, [en, de, fr, es]: [T; 4]) -> Option<T> {
     match language {
-        "en" => Some(&EN),
-        "de" => Some(&DE),
-        "fr" => Some(&FR),
-        "es" => Some(&ES),
+        "en" => Some(en),
+        "de" => Some(de),
+        "fr" => Some(fr),
+        "es" => Some(es),
         _ => None,
     }
 }
@@ -312,12 +319,7 @@ pub fn fiscal_names_of(language: &str) -> &'static FiscalNames {
         quarter: "T",
         half: "S",
     };
-    match language {
-        "de" => &DE,
-        "fr" => &FR,
-        "es" => &ES,
-        _ => &FISCAL_NAMES,
-    }
+    by_language(language, [&FISCAL_NAMES, &DE, &FR, &ES]).unwrap_or(&FISCAL_NAMES)
 }
 
 /// The names a story gave (`fiscal names year "GJ"`), each kept once for

@@ -53,15 +53,6 @@ pub fn is_parquet(path: &std::path::Path) -> bool {
         .is_some_and(|e| e.eq_ignore_ascii_case("parquet"))
 }
 
-fn story(code: &'static str, message: String, help: Option<&str>) -> LoadError {
-    LoadError::Story {
-        code,
-        message,
-        help: help.map(str::to_owned),
-        declared: None,
-    }
-}
-
 /// Why a leaf column's type is not read, or `None` when it is.
 fn unsupported(t: &Type) -> Option<String> {
     if t.is_group() {
@@ -296,13 +287,13 @@ fn damaged(name: &str, e: &dyn std::fmt::Display) -> LoadError {
     let text = e.to_string();
     if let Some(codec) = text.strip_prefix("Parquet error: Disabled feature at compile time: ") {
         // a sound file in a compression this build does not read
-        return story(
+        return LoadError::story(
             "data-file",
             format!("cannot read Parquet file `{name}`: it is compressed with {codec}, which crescendo does not read"),
             Some("write it again with Snappy compression (or none), or export the data as CSV"),
         );
     }
-    story(
+    LoadError::story(
         "data-file",
         format!("cannot read Parquet file `{name}`: it is damaged, cut short or not a Parquet file ({e})"),
         Some("write the file again, or export the data as CSV"),
@@ -327,7 +318,7 @@ impl Opened {
             let keep = columns.keeps(&title) || spec.declared.iter().any(|(n, _)| *n == title);
             if keep {
                 if let Some(why) = unsupported(field) {
-                    return Err(story(
+                    return Err(LoadError::story(
                         "data-file",
                         format!("column `{title}` of Parquet file `{name}` is {why}, which crescendo does not read"),
                         Some("columns are read as numbers, texts, dates, timestamps (as their day) and true/false; flatten or convert this column, or leave it unused"),
@@ -425,7 +416,7 @@ impl Opened {
             let row = row.map_err(|e| damaged(name, &e))?;
             for ((_, field), &j) in row.get_column_iter().zip(&kept) {
                 let cell = typed(field).ok_or_else(|| {
-                    story(
+                    LoadError::story(
                         "bad-value",
                         format!(
                             "column `{}` of Parquet file `{name}` holds a value crescendo cannot read in row group {}, row {}",
@@ -438,7 +429,7 @@ impl Opened {
                 })?;
                 if let Typed::Text(s) = &cell {
                     if s.chars().count() > limits.text {
-                        return Err(story(
+                        return Err(LoadError::story(
                             "too-long",
                             format!(
                                 "column `{}` of `{name}`: a text is longer than {} characters",
@@ -502,7 +493,7 @@ pub fn load_parquet_skipping(
             .map_err(|e| damaged(name, &e))?;
         let n = usize::try_from(group.metadata().num_rows()).unwrap_or(0);
         if limits.rows.is_some_and(|max| rows + n > max) {
-            return Err(story(
+            return Err(LoadError::story(
                 "too-many-rows",
                 format!(
                     "Parquet file `{name}` has more than {} rows",

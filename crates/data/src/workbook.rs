@@ -59,15 +59,6 @@ pub fn is_workbook(path: &std::path::Path) -> bool {
     matches!(ext.as_deref(), Some("xlsx" | "xlsm" | "ods"))
 }
 
-fn story(code: &'static str, message: String, help: Option<&str>) -> LoadError {
-    LoadError::Story {
-        code,
-        message,
-        help: help.map(str::to_owned),
-        declared: None,
-    }
-}
-
 /// Column letters of a 0-based column: 0 → `A`, 26 → `AA`.
 pub fn column_name(mut c: u32) -> String {
     let mut out = Vec::new();
@@ -166,13 +157,13 @@ pub fn load_workbook(
 
 fn open_error(name: &str, why: &str, password: bool) -> LoadError {
     if password {
-        return story(
+        return LoadError::story(
             "data-file",
             format!("workbook `{name}` is encrypted (protected with a password)"),
             Some("save a copy without a password, or export the sheet as CSV"),
         );
     }
-    story(
+    LoadError::story(
         "data-file",
         format!(
             "cannot read workbook `{name}`: it is damaged, cut short or not a workbook ({why})"
@@ -196,7 +187,7 @@ where
         None => match names.first() {
             Some(first) => first.clone(),
             None => {
-                return Err(story(
+                return Err(LoadError::story(
                     "empty-data",
                     format!("workbook `{name}` has no sheet"),
                     None,
@@ -220,7 +211,7 @@ where
     }
     match book.worksheet_range(&wanted) {
         Ok(r) => Ok((wanted, r)),
-        Err(e) => Err(story(
+        Err(e) => Err(LoadError::story(
             "data-file",
             format!("cannot read sheet `{wanted}` of workbook `{name}`: it is damaged or cut short ({e})"),
             Some("open it in a spreadsheet program and save it again, or export the sheet as CSV"),
@@ -261,7 +252,7 @@ fn read_range(
         Some(c) => match parse_block(c) {
             Some(b) => Some(b),
             None => {
-                return Err(story(
+                return Err(LoadError::story(
                     "bad-cells",
                     format!("`{c}` is not a block of cells"),
                     Some("write its corners in A1 style, top left first, e.g. `B3:F200`"),
@@ -271,7 +262,7 @@ fn read_range(
         None => range.start().zip(range.end()),
     };
     let Some(((r0, c0), (r1, c1))) = block else {
-        return Err(story(
+        return Err(LoadError::story(
             "empty-data",
             format!("sheet `{sheet_name}` of workbook `{name}` is empty"),
             None,
@@ -294,14 +285,14 @@ fn read_range(
             if below_empty && sheet.cells.is_none() {
                 continue; // an empty column at the edge of the used cells
             }
-            return Err(story(
+            return Err(LoadError::story(
                 "bad-header",
                 format!("{}: the header cell is blank", at((r0, c))),
                 Some("give every column a name in the header row; a merged header cell leaves all but its first cell blank, so unmerge it"),
             ));
         };
         if let Some(k) = cols.iter().position(|p| p.name == title) {
-            return Err(story(
+            return Err(LoadError::story(
                 "bad-header",
                 format!(
                     "{}: the column name `{title}` is already the name of cell {}",
@@ -319,7 +310,7 @@ fn read_range(
         positions.push(c);
     }
     if cols.is_empty() {
-        return Err(story(
+        return Err(LoadError::story(
             "empty-data",
             format!("sheet `{sheet_name}` of workbook `{name}` has no header"),
             Some("the first row of the block must name the columns"),
@@ -335,7 +326,7 @@ fn read_range(
             continue;
         }
         if limits.rows.is_some_and(|max| rows.len() >= max) {
-            return Err(story(
+            return Err(LoadError::story(
                 "too-many-rows",
                 format!(
                     "sheet `{sheet_name}` of `{name}` has more than {} rows",
@@ -351,7 +342,7 @@ fn read_range(
             // every bad cell is reported (up to the cap), as in a CSV file
             let cell = match typed(range.get_value((r, c))) {
                 Ok(Typed::Text(s)) if s.chars().count() > limits.text => {
-                    errs.push(story(
+                    errs.push(LoadError::story(
                         "too-long",
                         format!(
                             "{}: the text is longer than {} characters",
@@ -364,7 +355,7 @@ fn read_range(
                 }
                 Ok(cell) => cell,
                 Err(why) => {
-                    errs.push(story(
+                    errs.push(LoadError::story(
                         "bad-value",
                         format!("{} holds {why}", at((r, c))),
                         Some("correct the cell in the workbook, or clear it to leave the value missing"),

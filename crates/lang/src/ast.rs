@@ -41,6 +41,24 @@ pub struct StoryAst {
     pub items: Vec<Item>,
 }
 
+impl StoryAst {
+    /// The data items, in source order.
+    pub fn data(&self) -> impl Iterator<Item = &DataDecl> {
+        self.items.iter().filter_map(|i| match i {
+            Item::Data(d) => Some(d),
+            _ => None,
+        })
+    }
+
+    /// The views, in source order.
+    pub fn views(&self) -> impl Iterator<Item = &ViewDecl> {
+        self.items.iter().filter_map(|i| match i {
+            Item::View(v) => Some(v),
+            _ => None,
+        })
+    }
+}
+
 /// A top-level item.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Item {

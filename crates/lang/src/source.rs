@@ -48,6 +48,32 @@ pub fn decode(name: &str, bytes: Vec<u8>) -> Result<Arc<Source>, Vec<Diagnostic>
     .help("save the story as UTF-8")])
 }
 
+/// Where the string literal opening at `bytes[open]` (a `"`) stops: the
+/// index of its closing quote or of the end of its line (a backslash
+/// escapes the byte after it); past the end when the text ends first.
+pub fn literal_end(bytes: &[u8], open: usize) -> usize {
+    let mut i = open + 1;
+    while let Some(&c) = bytes.get(i) {
+        match c {
+            b'\\' => i += 1,
+            b'"' | b'\n' => break,
+            _ => {}
+        }
+        i += 1;
+    }
+    i
+}
+
+/// Where the comment starting at `bytes[at]` (a `#`) stops: the index of
+/// the end of its line, or the end of the text.
+pub fn comment_end(bytes: &[u8], at: usize) -> usize {
+    let mut i = at;
+    while bytes.get(i).is_some_and(|&c| c != b'\n') {
+        i += 1;
+    }
+    i
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -80,5 +106,21 @@ mod tests {
             "{}",
             d.message
         );
+    }
+}
+
+#[cfg(test)]
+mod scan_tests {
+    use super::{comment_end, literal_end};
+
+    #[test]
+    fn literals_and_comments_end_where_written() {
+        let text = br#"a "x\"y" b "open
+# note
+"#;
+        assert_eq!(literal_end(text, 2), 7); // the closing quote
+        assert_eq!(literal_end(text, 11), 16); // the end of the line
+        assert_eq!(comment_end(text, 17), 23);
+        assert_eq!(literal_end(b"\"ab\\", 0), 5); // a last backslash: past the end
     }
 }

@@ -2,11 +2,13 @@
 //! story's texts) for clutter, distortion, contrast and colour-vision
 //! safety, and reports located diagnostics with a suggested fix.
 //!
-//! One rule per file in `rules/`. Every rule carries its documentation: a
-//! one-line summary, a story excerpt the rule flags (before), the same
-//! excerpt fixed (after), and why (what the audience misreads, with its
-//! source); `crescendo explain RULE` prints exactly that text.
+//! One rule per file in `rules/`. Every rule has its documentation in
+//! `rule_docs.txt`: a one-line summary, a story excerpt the rule flags
+//! (before), the same excerpt fixed (after), and why (what the audience
+//! misreads, with its source); `crescendo explain RULE` prints exactly that
+//! text.
 
+mod docs;
 mod rules;
 
 /// The colour science the rules use (moved to `crescendo-look`).
@@ -39,10 +41,32 @@ pub struct Rule {
     /// Short, our own, describes the flagged pattern.
     pub name: &'static str,
     pub severity: Severity,
-    /// One line.
-    pub summary: &'static str,
-    pub doc: Doc,
     pub check: fn(&Input, &mut Vec<Finding>),
+}
+
+impl Rule {
+    /// A rule; its documentation is its part of `rule_docs.txt`.
+    pub const fn new(
+        name: &'static str,
+        severity: Severity,
+        check: fn(&Input, &mut Vec<Finding>),
+    ) -> Rule {
+        Rule {
+            name,
+            severity,
+            check,
+        }
+    }
+
+    /// One line.
+    pub fn summary(&self) -> &'static str {
+        docs::entry(self.name).summary
+    }
+
+    /// The parts of the documentation after the summary.
+    pub fn doc(&self) -> &'static Doc {
+        &docs::entry(self.name).doc
+    }
 }
 
 /// What the rules look at.
@@ -124,10 +148,10 @@ pub fn explain(name: &str) -> Option<String> {
         "{} ({})\n{}\n\nBefore\n{}\n\nAfter\n{}\n\nWhy\n{}\n",
         r.name,
         severity_name(r.severity),
-        r.summary,
-        indent(r.doc.before),
-        indent(r.doc.after),
-        indent(r.doc.why),
+        r.summary(),
+        indent(r.doc().before),
+        indent(r.doc().after),
+        indent(r.doc().why),
     ))
 }
 
@@ -136,7 +160,7 @@ pub fn explain(name: &str) -> Option<String> {
 pub fn reference_markdown() -> String {
     let mut out = String::from(
         "# Lint rules\n\n\
-         <!-- Generated from the rules' own documentation (crates/lint/src/rules/*.rs) by\n\
+         <!-- Generated from the rules' own documentation (crates/lint/src/rule_docs.txt) by\n\
          `UPDATE_DOCS=1 cargo test --test docs`; do not edit by hand. -->\n\n\
          `crescendo build` and `crescendo check` run every rule on every frame. Errors stop the\n\
          build; warnings and advice are printed (`--strict` lets warnings stop it too, for\n\
@@ -158,7 +182,7 @@ pub fn reference_markdown() -> String {
             r.name,
             r.name,
             severity_name(r.severity),
-            r.summary
+            r.summary()
         ));
     }
     for r in RULES.iter() {
@@ -167,10 +191,10 @@ pub fn reference_markdown() -> String {
              **After**\n\n```text\n{}\n```\n\n**Why.** {}\n",
             r.name,
             severity_name(r.severity),
-            r.summary,
-            r.doc.before,
-            r.doc.after,
-            one_paragraph(r.doc.why),
+            r.summary(),
+            r.doc().before,
+            r.doc().after,
+            one_paragraph(r.doc().why),
         ));
     }
     out
@@ -191,7 +215,7 @@ pub fn list() -> String {
                 "{:width$}  {:8}  {}\n",
                 r.name,
                 severity_name(r.severity),
-                r.summary
+                r.summary()
             )
         })
         .collect()
@@ -285,26 +309,17 @@ pub fn lint(input: &Input, options: &Options) -> Vec<Diagnostic> {
             out.push(d);
         }
     }
-    // allowances that allowed nothing
-    for (k, a) in input.anchors.allows.iter().enumerate() {
-        if story_allows[k] && !used.contains(&(None, k)) {
-            out.push(
-                Diagnostic::warning(
-                    "unused-allow",
-                    format!("`{}` finds nothing to allow in this story", a.rule),
-                )
-                .at(input.src, a.rule_span.clone(), "nothing to allow")
-                .help("remove the allowance"),
-            );
-        }
-    }
-    for (i, fa) in input.anchors.frames.iter().enumerate() {
-        for (k, a) in fa.allows.iter().enumerate() {
-            if frame_allows[i][k] && !used.contains(&(Some(i), k)) {
+    // allowances that allowed nothing, the story's then each frame's
+    let story = (None, "story", &input.anchors.allows, &story_allows);
+    let frames = (input.anchors.frames.iter().enumerate())
+        .map(|(i, fa)| (Some(i), "frame", &fa.allows, &frame_allows[i]));
+    for (frame, place, allows, active) in std::iter::once(story).chain(frames) {
+        for (k, a) in allows.iter().enumerate() {
+            if active[k] && !used.contains(&(frame, k)) {
                 out.push(
                     Diagnostic::warning(
                         "unused-allow",
-                        format!("`{}` finds nothing to allow in this frame", a.rule),
+                        format!("`{}` finds nothing to allow in this {place}", a.rule),
                     )
                     .at(input.src, a.rule_span.clone(), "nothing to allow")
                     .help("remove the allowance"),
@@ -335,6 +350,13 @@ mod tests {
     }
 
     #[test]
+    fn rule_docs_has_one_part_per_rule() {
+        let mut names: Vec<&str> = RULES.iter().map(|r| r.name).collect();
+        names.sort_unstable();
+        assert_eq!(docs::names(), names);
+    }
+
+    #[test]
     fn every_rule_is_documented() {
         for r in RULES {
             assert!(
@@ -343,15 +365,15 @@ mod tests {
                 r.name
             );
             for (part, text) in [
-                ("summary", r.summary),
-                ("before", r.doc.before),
-                ("after", r.doc.after),
-                ("why", r.doc.why),
+                ("summary", r.summary()),
+                ("before", r.doc().before),
+                ("after", r.doc().after),
+                ("why", r.doc().why),
             ] {
                 assert!(text.trim().len() >= 10, "{}: `{part}` is too thin", r.name);
             }
-            assert!(!r.summary.contains('\n'), "{}: one line", r.name);
-            assert_ne!(r.doc.before, r.doc.after, "{}", r.name);
+            assert!(!r.summary().contains('\n'), "{}: one line", r.name);
+            assert_ne!(r.doc().before, r.doc().after, "{}", r.name);
             let text = explain(r.name).unwrap();
             let at = |h: &str| text.find(&format!("\n\n{h}\n"));
             assert!(

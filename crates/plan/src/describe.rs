@@ -153,13 +153,20 @@ fn line(l: &LineChart, key: &str) -> String {
     out
 }
 
+/// The items not hidden, each as `text` writes it with its role's mark.
+fn shown<T>(items: &[T], role: fn(&T) -> Role, text: impl Fn(&T) -> String) -> Vec<String> {
+    (items.iter())
+        .filter(|x| role(x) != Role::Hidden)
+        .map(|x| format!("{}{}", text(x), lit(role(x))))
+        .collect()
+}
+
 fn bars(b: &BarChart, key: &str) -> String {
-    let shown: Vec<String> = b
-        .bars
-        .iter()
-        .filter(|x| x.role != Role::Hidden)
-        .map(|x| format!("{} {}{}", x.label, x.value_label, lit(x.role)))
-        .collect();
+    let shown = shown(
+        &b.bars,
+        |x| x.role,
+        |x| format!("{} {}", x.label, x.value_label),
+    );
     fill(
         sentences().bars,
         &[
@@ -177,12 +184,7 @@ fn parts(p: &PartsChart, key: &str) -> String {
         PartsMode::Stacked => t.stacked,
         PartsMode::Grouped => t.grouped,
     };
-    let parts: Vec<String> = p
-        .parts
-        .iter()
-        .filter(|x| x.role != Role::Hidden)
-        .map(|x| format!("{}{}", x.name, lit(x.role)))
-        .collect();
+    let parts = shown(&p.parts, |x| x.role, |x| x.name.clone());
     let cats: Vec<String> = p
         .categories
         .iter()
@@ -201,19 +203,16 @@ fn parts(p: &PartsChart, key: &str) -> String {
 }
 
 fn dots(d: &DotChart) -> String {
-    let rows: Vec<String> = d
-        .rows
-        .iter()
-        .filter(|r| r.role != Role::Hidden)
-        .map(|r| {
-            let vs: Vec<String> = r
-                .values
-                .iter()
+    let rows = shown(
+        &d.rows,
+        |r| r.role,
+        |r| {
+            let vs: Vec<String> = (r.values.iter())
                 .map(|v| v.map_or_else(|| sentences().no_data.into(), fig))
                 .collect();
-            format!("{} {}{}", r.label, vs.join(" / "), lit(r.role))
-        })
-        .collect();
+            format!("{} {}", r.label, vs.join(" / "))
+        },
+    );
     fill(sentences().dots, &[&measure(&d.value), &rows.join("; ")])
 }
 
@@ -276,22 +275,16 @@ fn table(t: &TableChart) -> String {
 }
 
 fn pie(p: &PieChart, key: &str) -> String {
-    let slices: Vec<String> = p
-        .slices
-        .iter()
-        .filter(|s| s.role != Role::Hidden)
-        .map(|s| format!("{} {}{}", s.label, s.share_label, lit(s.role)))
-        .collect();
+    let slices = shown(
+        &p.slices,
+        |s| s.role,
+        |s| format!("{} {}", s.label, s.share_label),
+    );
     fill(sentences().pie, &[key, &slices.join("; ")])
 }
 
 fn panels(pc: &PanelChart, key: &str) -> String {
-    let panels: Vec<String> = pc
-        .panels
-        .iter()
-        .filter(|p| p.role != Role::Hidden)
-        .map(|p| format!("{}{}", p.title, lit(p.role)))
-        .collect();
+    let panels = shown(&pc.panels, |p| p.role, |p| p.title.clone());
     let t = sentences();
     let scale = if pc.common_scale {
         t.common_scale

@@ -2,7 +2,7 @@
 //! (`last(monthly.riders where route = "Loop")`) or, for `ratio`, two
 //! values, and computes one figure with `crescendo_data::stats`.
 
-use crescendo_data::{self as data, stats, ColType, Step, Table, Value};
+use crescendo_data::{stats, ColType, Table, Value};
 use crescendo_diag::{closest, Diagnostic};
 use crescendo_lang::ast::{CallArg, Expr, Selection, Span};
 
@@ -185,26 +185,7 @@ impl Evaluator<'_> {
                 if !unmatched.is_empty() {
                     return Err(unmatched);
                 }
-                // Run the filter through the view engine on a table that
-                // carries the row numbers.
-                let mut t = table.clone();
-                let n = t.columns.first().map_or(0, |c| c.values.len());
-                t.columns.push(data::Column {
-                    name: "\u{0}row".into(),
-                    ty: ColType::Number,
-                    values: (0..n).map(|i| Value::Number(i as f64)).collect(),
-                });
-                let kept = data::run_view(&t, &[Step::Keep(cond)]);
-                kept.columns
-                    .last()
-                    .map(|c| {
-                        c.values
-                            .iter()
-                            .filter_map(|v| num(&v))
-                            .map(|x| x as usize)
-                            .collect()
-                    })
-                    .unwrap_or_default()
+                rows::kept_rows(table, cond)
             }
         };
         let mut order = rows.clone();
@@ -513,18 +494,8 @@ impl Evaluator<'_> {
         let sel = self.selection_arg(fname, args, span)?;
         let p = self.pick(sel, true)?;
         let Some((bt, bys)) = &p.by else {
-            return Err(vec![self
-                .err(
-                    "value-argument",
-                    "`growth` needs the time column it grows along".into(),
-                    sel.span.clone(),
-                    "",
-                )
-                .help(format!(
-                    "write `growth({}.{} by YEAR_OR_MONTH_COLUMN where ...)`",
-                    sel.view.name,
-                    sel.column.as_ref().map_or("COLUMN", |c| c.name.as_str())
-                ))]);
+            let message = "`growth` needs the time column it grows along";
+            return Err(self.needs_by(sel, "growth", message.into(), "YEAR_OR_MONTH_COLUMN"));
         };
         let xs = self.numbers(fname, sel, &p)?;
         let pairs: Vec<(f64, &Value)> = p
@@ -563,6 +534,24 @@ impl Evaluator<'_> {
         self.wrap(fname, stats::growth_rate(first.0, last.0, years), &p, span)
     }
 
+    /// The error for `fname` called without the `by` column it runs along;
+    /// the help shows the call with `by PLACEHOLDER`.
+    fn needs_by(
+        &self,
+        sel: &Selection,
+        fname: &str,
+        message: String,
+        placeholder: &str,
+    ) -> Vec<Diagnostic> {
+        let column = sel.column.as_ref().map_or("COLUMN", |c| c.name.as_str());
+        let call = format!(
+            "{fname}({}.{column} by {placeholder} where ...)",
+            sel.view.name
+        );
+        let d = self.err("value-argument", message, sel.span.clone(), "");
+        vec![d.help(format!("write `{call}`"))]
+    }
+
     /// `rank`: the place of the one selected number among the column's.
     fn rank(&self, fname: &str, args: &[CallArg], span: &Span) -> Computed {
         let (p, xs) = self.selected_numbers(fname, args, span)?;
@@ -591,18 +580,8 @@ impl Evaluator<'_> {
         let p = self.pick(sel, true)?;
         self.numbers(fname, sel, &p)?;
         let Some((_, bys)) = &p.by else {
-            return Err(vec![self
-                .err(
-                    "value-argument",
-                    format!("`{fname}` needs the column to fit along"),
-                    sel.span.clone(),
-                    "",
-                )
-                .help(format!(
-                    "write `{fname}({}.{} by X_COLUMN where ...)`",
-                    sel.view.name,
-                    sel.column.as_ref().map_or("COLUMN", |c| c.name.as_str())
-                ))]);
+            let message = format!("`{fname}` needs the column to fit along");
+            return Err(self.needs_by(sel, fname, message, "X_COLUMN"));
         };
         let (xs, ys): (Vec<f64>, Vec<f64>) = p
             .cells

@@ -60,29 +60,20 @@ fn set_once<T>(cx: &mut Ctx, slot: &mut Option<T>, value: T, span: &ast::Span, w
     }
 }
 
+/// A text header item (title, byline, source note, conclusion), set once.
+fn set_text(cx: &mut Ctx, slot: &mut Option<Text>, t: &ast::TextItem, what: &str) {
+    set_once(cx, slot, t.text.clone(), &t.span, what);
+}
+
 impl Header {
     /// Take a header item (or a story-wide `allow`); `false` for the other
     /// items.
     pub(crate) fn take(&mut self, cx: &mut Ctx, item: &Item, anchors: &mut Anchors) -> bool {
         match item {
-            Item::Title(t) => set_once(
-                cx,
-                &mut self.title,
-                t.text.clone(),
-                &t.span,
-                "title (`story`)",
-            ),
-            Item::Byline(t) => set_once(cx, &mut self.byline, t.text.clone(), &t.span, "byline"),
-            Item::Source(t) => {
-                set_once(cx, &mut self.source, t.text.clone(), &t.span, "source note")
-            }
-            Item::Conclusion(t) => set_once(
-                cx,
-                &mut self.conclusion,
-                t.text.clone(),
-                &t.span,
-                "conclusion",
-            ),
+            Item::Title(t) => set_text(cx, &mut self.title, t, "title (`story`)"),
+            Item::Byline(t) => set_text(cx, &mut self.byline, t, "byline"),
+            Item::Source(t) => set_text(cx, &mut self.source, t, "source note"),
+            Item::Conclusion(t) => set_text(cx, &mut self.conclusion, t, "conclusion"),
             Item::Theme { name, span } => {
                 set_once(cx, &mut self.theme, name.clone(), span, "theme")
             }

@@ -16,6 +16,7 @@ use crescendo_data::load::ReadLimits;
 use crescendo_data::{Cell, Table};
 use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::{Item, StoryAst};
+use crescendo_lang::source::{comment_end, literal_end};
 
 /// The byte limit of a story and of a data file read whole when the user
 /// sets none: 4 GiB. A streamed data file has no default byte limit (its
@@ -133,23 +134,11 @@ fn literals(text: &str) -> Vec<std::ops::Range<usize>> {
         match b {
             b'"' => {
                 let start = i;
-                i += 1;
-                while let Some(&c) = bytes.get(i) {
-                    match c {
-                        b'\\' => i += 1,
-                        b'"' | b'\n' => break,
-                        _ => {}
-                    }
-                    i += 1;
-                }
+                i = literal_end(bytes, i);
                 let end = (i + 1).min(text.len());
                 out.push(start..end);
             }
-            b'#' => {
-                while bytes.get(i).is_some_and(|&c| c != b'\n') {
-                    i += 1;
-                }
-            }
+            b'#' => i = comment_end(bytes, i),
             _ => {}
         }
         i += 1;

@@ -513,6 +513,32 @@ fn arith_op(op: BinOp) -> ArithOp {
     }
 }
 
+/// The positions of the rows of `table` that `cond` keeps, in order: the
+/// condition runs through the view engine on a copy that carries the row
+/// numbers.
+pub fn kept_rows(table: &Table, cond: data::Expr) -> Vec<usize> {
+    let n = table.columns.first().map_or(0, |c| c.values.len());
+    let mut t = table.clone();
+    t.columns.push(data::Column {
+        name: "\u{0}row".into(),
+        ty: ColType::Number,
+        values: (0..n).map(|i| Value::Number(i as f64)).collect(),
+    });
+    let kept = data::run_view(&t, &[data::Step::Keep(cond)]);
+    kept.columns
+        .last()
+        .map(|c| {
+            c.values
+                .iter()
+                .filter_map(|v| match v {
+                    Value::Number(x) => Some(x as usize),
+                    _ => None,
+                })
+                .collect()
+        })
+        .unwrap_or_default()
+}
+
 /// Type-check a row condition (a `where` of a value selection) against a
 /// schema; `place` says where the columns were looked for.
 pub fn check_condition(

@@ -184,13 +184,7 @@ const ES: Sentences = Sentences {
 
 /// The patterns of a language (`de`), `None` when crescendo ships none.
 pub(crate) fn of_language(language: &str) -> Option<&'static Sentences> {
-    match language {
-        "en" => Some(&EN),
-        "de" => Some(&DE),
-        "fr" => Some(&FR),
-        "es" => Some(&ES),
-        _ => None,
-    }
+    crescendo_data::locale::by_language(language, [&EN, &DE, &FR, &ES])
 }
 
 /// The patterns of the story being planned (English without a locale or

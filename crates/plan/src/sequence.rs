@@ -3,8 +3,11 @@
 
 use std::collections::BTreeSet;
 
+use crescendo_diag::closest;
+use crescendo_lang::ast::Str;
+
 use crate::anchors::FrameAnchors;
-use crate::context::Reported;
+use crate::context::{Ctx, Reported};
 use crate::model::Chart;
 use crate::values::Resolved;
 
@@ -58,6 +61,22 @@ impl SeqState {
             cites: Vec::new(),
             mark_notes: Vec::new(),
         }
+    }
+
+    /// The error for `name`, which is none of the chart's names: `message`
+    /// at its place with `label`, and the closest name as a suggestion.
+    pub(crate) fn unknown(
+        &self,
+        cx: &mut Ctx,
+        name: &Str,
+        message: String,
+        label: &str,
+    ) -> Reported {
+        let mut d = cx.at("unknown-series", message, name.span.clone(), label);
+        if let Some(c) = closest(&name.value, self.names.iter().map(String::as_str)) {
+            d = d.help(format!("did you mean \"{c}\"?"));
+        }
+        cx.report(d)
     }
 }
 

@@ -7,7 +7,7 @@ use std::collections::BTreeSet;
 use std::path::PathBuf;
 
 use crescendo_diag::{closest, Diagnostic};
-use crescendo_lang::ast::{self, Ident, Item};
+use crescendo_lang::ast::{self, Ident};
 
 use crate::context::{Ctx, Outcome};
 use crate::loading::Loader;
@@ -123,14 +123,7 @@ pub(crate) fn view_item(cx: &mut Ctx, tables: &mut Tables, v: &ast::ViewDecl) {
 /// item of the story (a database one, for `--connection`).
 pub(crate) fn check_named(cx: &mut Ctx, story: &ast::StoryAst) {
     let options = cx.options;
-    let data: Vec<&ast::DataDecl> = story
-        .items
-        .iter()
-        .filter_map(|i| match i {
-            Item::Data(d) => Some(d),
-            _ => None,
-        })
-        .collect();
+    let data: Vec<&ast::DataDecl> = story.data().collect();
     for name in options.data.keys() {
         if data.iter().any(|d| d.name.name == *name) {
             continue;

@@ -9,6 +9,8 @@ use std::sync::Arc;
 
 use crescendo_diag::{Diagnostic, Source};
 
+use crate::source::{comment_end, literal_end};
+
 /// Deepest nesting of parentheses, brackets, braces and unary operators
 /// (`-`, `not`) a story may use; no real story comes near it.
 pub const MAX_NESTING: usize = 48;
@@ -45,21 +47,11 @@ fn too_deep(text: &str) -> Option<usize> {
         match b {
             b'"' => {
                 // to the closing quote (or the end of the line)
-                i += 1;
-                while let Some(&c) = bytes.get(i) {
-                    match c {
-                        b'\\' => i += 1,
-                        b'"' | b'\n' => break,
-                        _ => {}
-                    }
-                    i += 1;
-                }
+                i = literal_end(bytes, i);
                 run = 0;
             }
             b'#' => {
-                while bytes.get(i).is_some_and(|&c| c != b'\n') {
-                    i += 1;
-                }
+                i = comment_end(bytes, i);
                 continue;
             }
             b'(' | b'[' | b'{' => {

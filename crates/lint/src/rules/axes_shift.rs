@@ -4,35 +4,9 @@ use crescendo_diag::Severity;
 use crescendo_frame::{Axis, Chart};
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "axes-shift",
-    severity: Severity::Warning,
-    summary: "an axis moves between frames of one build-up sequence",
-    doc: Doc {
-        before: concat!(
-            "frame \"Context\" {\n",
-            "  line by_area: x month, y cases, series area\n",
-            "}\n",
-            "frame \"Zoomed\" {\n",
-            "  y range 0 to 300   # the same chart, a new scale",
-        ),
-        after: concat!(
-            "frame \"Context\" {\n",
-            "  line by_area: x month, y cases, series area\n",
-            "  y range 0 to 300   # in the frame that starts the sequence\n",
-            "}",
-        ),
-        why:
-            "Across a build-up the audience compares each frame with the one before. If the scale\n\
-              moves part-way through, unchanged data appears to jump, and real changes are hidden\n\
-              by the rescaling (common practice: fix the axes over the whole sequence; crescendo\n\
-              computes them over all of its frames for that reason). To show a new scale, start a\n\
-              new sequence with its own chart statement, so the change is visible as a new chart.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("axes-shift", Severity::Warning, check);
 
 /// The measure's axis of a chart, if it has one.
 fn value_axis(chart: &Chart) -> Option<&Axis> {

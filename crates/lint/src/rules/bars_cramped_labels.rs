@@ -4,25 +4,9 @@ use crescendo_diag::Severity;
 use crescendo_frame::{Chart, Orientation};
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "bars-cramped-labels",
-    severity: Severity::Warning,
-    summary: "vertical bars with category names too long to sit under them",
-    doc: Doc {
-        before: "bars t: category team, value tickets, vertical   # long team names",
-        after: concat!(
-            "bars t: category team, value tickets, horizontal\n",
-            "# (without either word such bars turn horizontal by themselves)",
-        ),
-        why: "Long or many names under narrow vertical bars get broken over lines or cut, and\n\
-              readers tilt their heads to match names to bars. Horizontal bars give every name a\n\
-              line of its own, left-aligned and level (common practice; crescendo never rotates\n\
-              text).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("bars-cramped-labels", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     for (i, f, a) in frames(input) {

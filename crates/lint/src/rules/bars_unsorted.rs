@@ -4,26 +4,9 @@ use crescendo_diag::Severity;
 use crescendo_frame::Chart;
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "bars-unsorted",
-    severity: Severity::Advice,
-    summary: "bars over unordered categories are not sorted by value",
-    doc: Doc {
-        before: "bars t: category team, value tickets, ordered   # kept in the file's order",
-        after: concat!(
-            "bars t: category team, value tickets   # largest first\n",
-            "# or keep `ordered` and allow the rule, saying why that order matters",
-        ),
-        why: "With categories that have no natural order, sorting by value turns a search into a\n\
-              glance: the ranking, the largest and the smallest are read off directly, and\n\
-              neighbours are the ones worth comparing (common practice). Bars drawn in the data's\n\
-              order make the audience hunt for the ranking; keep that order only when it means\n\
-              something (a scale, a sequence).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("bars-unsorted", Severity::Advice, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     for (i, f, a) in frames(input) {

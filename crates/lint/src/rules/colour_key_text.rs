@@ -3,7 +3,7 @@
 use crescendo_diag::Severity;
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
 const COLOURS: &[&str] = &[
     "red", "orange", "amber", "yellow", "green", "teal", "blue", "purple", "violet", "pink",
@@ -30,22 +30,7 @@ fn colour_phrase(text: &str) -> Option<String> {
     None
 }
 
-pub static RULE: Rule = Rule {
-    name: "colour-key-text",
-    severity: Severity::Warning,
-    summary: "a text tells the audience which colour means what",
-    doc: Doc {
-        before: "notes \"The orange line pulled away; grey lines are the other areas.\"",
-        after: "notes \"North pulled away from South and East.\"   # its label and spotlight tie it to the line",
-        why: "A headline, takeaway or note that identifies data by colour (\"the orange line\",\n\
-              \"shown in blue\") is a colour key written into the words: the audience looks back and\n\
-              forth between words and marks, where labels beside the data remove that search\n\
-              (common practice: direct labels instead of legends). Colour words also break: the\n\
-              accent changes with the theme (light, dark and print themes differ) and with a house\n\
-              style, and readers with a colour-vision deficiency may not see the colour named.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("colour-key-text", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     for (i, f, a) in frames(input) {

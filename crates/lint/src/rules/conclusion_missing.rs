@@ -2,31 +2,9 @@
 
 use crescendo_diag::Severity;
 
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "conclusion-missing",
-    severity: Severity::Warning,
-    summary: "the story never states its conclusion in its last frame",
-    doc: Doc {
-        before: concat!(
-            "conclusion \"Act on it.\"\n",
-            "...\n",
-            "  takeaway \"North leads.\"   # the last frame says something else",
-        ),
-        after: concat!(
-            "conclusion \"Act on it.\"\n",
-            "...\n",
-            "  takeaway \"{conclusion}\"   # or the sentence in the last headline",
-        ),
-        why: "Decision makers act on the finding, not on the charts. A story without a\n\
-              `conclusion`, or whose last frame does not state it in its headline or takeaway,\n\
-              stops at the evidence and leaves each reader to infer a different conclusion;\n\
-              stating it in words at the end of the build-up is what turns charts into a\n\
-              recommendation (common practice).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("conclusion-missing", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     let plan = input.plan;

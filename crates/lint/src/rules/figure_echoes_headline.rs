@@ -5,30 +5,9 @@ use crescendo_diag::Severity;
 use crescendo_frame::Chart;
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "figure-echoes-headline",
-    severity: Severity::Warning,
-    summary: "a big figure repeats the number the headline already states",
-    doc: Doc {
-        before: concat!(
-            "frame \"E-books were {share as percent} of loans\" {\n",
-            "  figure \"{share as percent}\" \"of loans were e-books\"\n",
-            "}",
-        ),
-        after: concat!(
-            "frame \"E-books have become a fixture of lending\" {\n",
-            "  figure \"{share as percent}\" \"of loans were e-books\"\n",
-            "}",
-        ),
-        why: "A big figure is the frame's one message. When the headline prints the same number,\n\
-              the audience reads it twice and the frame says nothing more: let the headline say\n\
-              what the number means and the figure show it (common practice of one message per\n\
-              slide).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("figure-echoes-headline", Severity::Warning, check);
 
 /// Whether `headline` holds `figure` as a whole number (not inside a
 /// longer one: "12%" does not echo "2%").

@@ -5,26 +5,9 @@ use crescendo_look::theme::{lightness, LIGHTNESS_STEP};
 use crescendo_look::Rgb;
 
 use super::util::colour_span;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "focus-outshone",
-    severity: Severity::Warning,
-    summary: "a context grey is not clearly lighter (dimmer on a dark page) than the spotlight",
-    doc: Doc {
-        before: "accent \"#D08A3C\"   # a light orange: the grey bars look darker than it",
-        after: "accent \"#8E3005\"   # a deep rust: 20 L* darker than both greys",
-        why: "The eye goes to the strongest mark first. On a light page the darkest mark is the\n\
-              strongest, on a dark page the brightest; when a context grey is as dark as the\n\
-              accent (as bright, on a dark page) the context bars dominate and the spotlight\n\
-              disappears, and in greyscale print or for readers who cannot tell the hue it is\n\
-              gone entirely. The rule asks every context grey of the theme and house style, and\n\
-              every other colour a frame draws as a mark beside the accent, to sit at least 20\n\
-              CIELAB L* (CIE 15) lighter than the accent on a light page and dimmer on a dark\n\
-              page (the step is common practice, chosen by us).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("focus-outshone", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     let t = input.theme;

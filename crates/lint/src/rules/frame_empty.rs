@@ -3,26 +3,9 @@
 use crescendo_diag::Severity;
 
 use super::util::{frames, roles, visible};
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "frame-empty",
-    severity: Severity::Warning,
-    summary: "a frame hides every series or bar",
-    doc: Doc {
-        before: "line by_area: x month, y cases, series area\nhide all",
-        after: concat!(
-            "line by_area: x month, y cases, series area\n",
-            "hide all\n",
-            "show \"North\"   # or allow the rule, saying the empty axes are meant",
-        ),
-        why:
-            "An empty plot with axes but no data puzzles the audience: it looks like a fault. If\n\
-              the frame sets up the axes before the data arrives, say so; otherwise it is a slip\n\
-              in the build-up (common practice: every frame adds something to look at).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("frame-empty", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     for (i, f, a) in frames(input) {

@@ -5,27 +5,9 @@ use crescendo_frame::Chart;
 
 use super::util::{frames, rgb8};
 use crate::colour::contrast_ratio;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "grid-heavy",
-    severity: Severity::Warning,
-    summary: "gridlines as strong as the data they support",
-    doc: Doc {
-        before: concat!(
-            "style \"heavy.toml\"   # its [greys] set grid = \"#7A7A7A\", as dark as the data\n",
-            "...\n",
-            "  gridlines",
-        ),
-        after: "  gridlines   # in the theme's light grid grey",
-        why: "Gridlines are supporting lines: they help the eye read values off the axis and must\n\
-              recede behind the data (common practice: no gridlines by default, light ones on\n\
-              request). In a grid colour whose contrast against the page reaches that of the\n\
-              context grey, they compete with the marks, add clutter and blur which lines are data\n\
-              and which are scaffolding. The built-in themes use about #ECECEC on a white page.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("grid-heavy", Severity::Warning, check);
 
 /// Whether a chart draws gridlines along its measure's axis.
 fn has_grid(chart: &Chart) -> bool {

@@ -4,22 +4,9 @@ use crescendo_diag::Severity;
 use crescendo_look::Part;
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "headline-cut",
-    severity: Severity::Warning,
-    summary: "a headline does not fit in two lines and is cut short",
-    doc: Doc {
-        before: "frame \"In every month of the year the North area recorded more cases than the South and the East together, and the gap widened in the second half of the year as well\" {",
-        after: "frame \"North had the most cases every month\" {   # the detail goes in `takeaway`",
-        why: "The headline is the sentence the audience reads first, often the only one. One that\n\
-              needs more than two lines at headline size is cut with an ellipsis: it loses its\n\
-              verb or its number; long, it pushes the chart down and competes with it (common\n\
-              practice: one short sentence that states the point).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("headline-cut", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     // The headline as laid out with the effective theme (a house style may

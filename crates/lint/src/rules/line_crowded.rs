@@ -5,31 +5,12 @@ use crescendo_frame::{Chart, Role};
 use crescendo_look::display::Item;
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
 /// Points closer than this (in px, on average) cannot be told apart.
 const MIN_GAP: f64 = 3.0;
 
-pub static RULE: Rule = Rule {
-    name: "line-crowded",
-    severity: Severity::Warning,
-    summary: "a line with far more points than the chart is wide enough to show apart",
-    doc: Doc {
-        before: "line ledger: x day, y amount, series branch   # 540 days",
-        after: concat!(
-            "view monthly = ledger\n",
-            "  | add month = month(day)\n",
-            "  | by month, branch: amount = sum(amount)\n",
-            "line monthly: x month, y amount, series branch"
-        ),
-        why: "A line whose points are closer than a few pixels becomes a band of noise: day-to-day\n\
-              swings hide the movement the story is about, and several such lines tangle into one\n\
-              grey mass. The drawing thins such a line to what the pixels can hold, but the reader\n\
-              still sees the noise. Sum or average the days into weeks or months with a time bucket\n\
-              (`month(day)`, `week_start(day)`) first (common practice).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("line-crowded", Severity::Warning, check);
 
 /// The width in px the frame's lines and gridlines span.
 fn plot_width(input: &Input, frame: usize) -> Option<f64> {

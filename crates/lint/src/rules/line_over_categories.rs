@@ -3,23 +3,9 @@
 use crescendo_diag::Severity;
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "line-over-categories",
-    severity: Severity::Warning,
-    summary: "a line joins categories that have no order",
-    doc: Doc {
-        before: "line t: x team, y tickets   # teams have no order",
-        after:
-            "bars t: category team, value tickets   # lines stay for time and other ordered values",
-        why: "A line says \"from here to there\": readers see its slope as change between\n\
-              neighbours. Between text categories (regions, products, teams) that slope means\n\
-              nothing, and reordering the categories would draw a different line from the same\n\
-              data (common practice: lines for continuous or ordered data, bars for categories).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("line-over-categories", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     for (i, f, a) in frames(input) {

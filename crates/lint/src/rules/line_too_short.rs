@@ -4,21 +4,9 @@ use crescendo_diag::Severity;
 use crescendo_frame::{Chart, Role};
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "line-too-short",
-    severity: Severity::Advice,
-    summary: "a line chart with fewer than three points per line",
-    doc: Doc {
-        before: "line y: x year, y budget   # only 2023 and 2024",
-        after: "bars y: category year, value budget   # or add the years in between",
-        why: "A line of two points is a single slope: it hides what happened in between and\n\
-              invites reading a trend into two observations. Two values compare more honestly side\n\
-              by side (common practice).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("line-too-short", Severity::Advice, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     for (i, f, a) in frames(input) {

@@ -6,28 +6,12 @@ use crescendo_look::Rgb;
 
 use super::util::{colour_span, rgb8};
 use crate::colour::contrast_ratio;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
 /// WCAG 2.1 SC 1.4.11 (Non-text Contrast): 3:1.
 const MINIMUM: f64 = 3.0;
 
-pub static RULE: Rule = Rule {
-    name: "marks-faint",
-    severity: Severity::Warning,
-    summary: "lines or bars too faint against the background (WCAG 2.1 3:1)",
-    doc: Doc {
-        before: "accent \"#B8D8F0\"   # a pale blue: 1.5:1 on white",
-        after: "accent \"#1D5FA8\"   # a deep blue: 6.4:1 on white",
-        why: "Faint lines and bars fade on projectors and for readers with low vision, and the\n\
-              spotlight stops standing out. WCAG 2.1 success criterion 1.4.11 (Non-text Contrast)\n\
-              asks for 3:1 for the parts of graphics needed to understand the content; the rule\n\
-              checks the accent, both context greys of the theme and house style, and every\n\
-              colour a frame actually draws as a mark: bars, stack segments, slices, dots,\n\
-              start and total bars, data lines. Let weight and colour, not faintness, carry\n\
-              the emphasis.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("marks-faint", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     let t = input.theme;

@@ -5,25 +5,9 @@ use crescendo_diag::Severity;
 use crescendo_frame::{Chart, Orientation};
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "measure-unnamed",
-    severity: Severity::Advice,
-    summary: "the measure's axis is titled only by its column name",
-    doc: Doc {
-        before: "line by_area: x month, y cases, series area   # the axis says \"Cases\"",
-        after: concat!(
-            "line by_area: x month, y cases, series area\n",
-            "y title \"Cases per month\"   # what, per what, in what unit",
-        ),
-        why: "Column names are written for the data, not the audience: they rarely say what was\n\
-              counted, over what period, or in what unit (\"Cases\" per day? per month? thousands?).\n\
-              Without `y title` the axis shows the column's name; the axis title is where the unit\n\
-              goes (common practice).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("measure-unnamed", Severity::Advice, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     let mut seen_chart = Vec::new();

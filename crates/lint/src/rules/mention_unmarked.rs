@@ -8,30 +8,7 @@ use crescendo_frame::{Annotation, Chart, CiteShape, FramePlan, Role, ScaleKind};
 use super::util::{focused, frames};
 use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "mention-unmarked",
-    severity: Severity::Advice,
-    summary: "a text names something the chart shows but the frame does not mark it",
-    doc: crate::Doc {
-        before: concat!(
-            "frame \"Hardware returns had the fewest tickets\" {\n",
-            "  bars t: category team, value tickets\n",
-            "}",
-        ),
-        after: concat!(
-            "frame \"Hardware returns had the fewest tickets\" {\n",
-            "  bars t: category team, value tickets\n",
-            "  spotlight \"Hardware returns\"\n",
-            "}",
-        ),
-        why: "A headline that names one bar, line or month of a chart among several sends the\n\
-              eye searching: every mark looks the same, and the reader may settle on the wrong\n\
-              one. Emphasising the thing the sentence is about (a spotlight, a callout, a moment\n\
-              on the time axis) lets the chart show what the text says (common practice: the\n\
-              title and the highlight agree).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("mention-unmarked", Severity::Advice, check);
 
 const MONTHS: [&str; 12] = [
     "January",

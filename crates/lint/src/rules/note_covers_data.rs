@@ -8,27 +8,9 @@ use crescendo_look::display::{Item, NoteOf};
 use crescendo_look::Part;
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "note-covers-data",
-    severity: Severity::Warning,
-    summary: "a cited figure, a callout or a moment's label could only be put over the data",
-    doc: Doc {
-        before:
-            "line ledger: x day, y amount, series branch   # 540 days, the plot full of lines\n\
-                 cite quietest",
-        after: "line monthly: x month, y amount, series branch\n\
-                cite quietest",
-        why: "`cite`, `callout` and `moment` put their text near what it speaks of, clear of\n\
-              every other text, data mark and data line. When the plot is so full that no\n\
-              such spot exists, the text goes where it covers the least, or is left out: a\n\
-              note printed over the data hides the very marks it speaks for, and is hard to\n\
-              read (common practice). Show fewer marks (a coarser time step, fewer series or\n\
-              bars), shorten the note, or give it room with `y range`.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("note-covers-data", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     for (i, _, a) in frames(input) {

@@ -4,22 +4,9 @@ use crescendo_diag::Severity;
 use crescendo_frame::Chart;
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "panels-own-scales",
-    severity: Severity::Warning,
-    summary: "small multiples drawn on different scales",
-    doc: Doc {
-        before: "split area own scales   # each panel fitted to its own data",
-        after: "split area trim   # one common scale, each panel cut to its own extent",
-        why: "Small multiples invite the eye to compare panels side by side. With `own scales`,\n\
-              equal heights mean different amounts, so a small series looks as large as a big one\n\
-              and the comparison the layout offers is false (common practice: one common scale for\n\
-              compared panels). `trim` keeps the same units per pixel in every panel.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("panels-own-scales", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     for (i, f, a) in frames(input) {

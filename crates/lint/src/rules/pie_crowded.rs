@@ -4,34 +4,14 @@ use crescendo_diag::Severity;
 use crescendo_frame::{Chart, Role};
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
 /// More visible slices than this crowd a pie.
 const MAX_SLICES: usize = 5;
 /// Slices whose shares differ by less than this cannot be ranked by eye.
 const CLOSE: f64 = 0.03;
 
-pub static RULE: Rule = Rule {
-    name: "pie-crowded",
-    severity: Severity::Warning,
-    summary: "a pie with more than 5 slices, or slices too close in size to compare",
-    doc: Doc {
-        before: concat!(
-            "view top8 = p | top 7 product by sales rest \"Other products\"\n",
-            "pie top8: category product, value sales   # 8 slices",
-        ),
-        after: concat!(
-            "view top8 = p | top 7 product by sales rest \"Other products\"\n",
-            "bars top8: category product, value sales   # or a pie of 2 or 3 clearly different parts",
-        ),
-        why: "A pie asks the eye to compare angles and areas, which people judge far less\n\
-              accurately than positions on a common scale (Cleveland & McGill 1984 rank angle and\n\
-              area below position and length). With more than 5 slices, or two slices within 3\n\
-              percentage points of each other, the ranking the chart is meant to show cannot be\n\
-              read.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("pie-crowded", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     for (i, f, a) in frames(input) {

@@ -1,24 +1,12 @@
 //! `sign-doubled`: a word of direction before a signed figure ("up +103%").
 
 use crescendo_diag::Severity;
+use crescendo_frame::FramePlan;
 
-use super::util::{frames, quoting_span};
-use crate::{Doc, Finding, Input, Rule};
+use super::util::flag_quoted;
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "sign-doubled",
-    severity: Severity::Advice,
-    summary: "a word of direction stands before a figure that carries its own sign",
-    doc: Doc {
-        before: "frame \"Tickets up {growth as signed percent}\" {   # prints Tickets up +478%",
-        after: "frame \"Tickets up {growth as percent}\" {   # prints Tickets up 478%",
-        why:
-            "\"Up +103%\" says the direction twice, and \"down −4%\" reads as a double negative:\n\
-              down by minus four percent is up. Say the direction once, in the word or in the\n\
-              sign (common practice of editing figures in prose).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("sign-doubled", Severity::Advice, check);
 
 /// Words that already say which way a figure went.
 const DIRECTION: &[&str] = &[
@@ -80,20 +68,16 @@ fn doubled(text: &str, figure: &str) -> bool {
 }
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
-    for (i, f, a) in frames(input) {
+    let doubled_in = |f: &FramePlan, figure: &str| {
         let texts = [Some(&f.headline), f.takeaway.as_ref(), f.notes.as_ref()];
-        for (name, figure) in &f.quoted {
-            if texts.iter().flatten().any(|t| doubled(t, figure)) {
-                out.push(Finding {
-                    frame: Some(i),
-                    span: quoting_span(f, a, name),
-                    label: format!("`{name}` prints as {figure}"),
-                    message: format!("a word of direction already stands before \"{figure}\""),
-                    fix: format!("quote `{name}` without `signed`, or drop the word"),
-                });
-            }
-        }
-    }
+        texts.iter().flatten().any(|t| doubled(t, figure))
+    };
+    flag_quoted(input, out, doubled_in, |name, figure| {
+        (
+            format!("a word of direction already stands before \"{figure}\""),
+            format!("quote `{name}` without `signed`, or drop the word"),
+        )
+    });
 }
 
 #[cfg(test)]

@@ -1,107 +1,63 @@
 //! `small-counts`: counts small enough to identify people.
 
 use crescendo_diag::Severity;
-use crescendo_frame::{Chart, Role};
+use crescendo_frame::{Chart, LineChart, Role};
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "small-counts",
-    severity: Severity::Warning,
-    summary: "a chart shows counts small enough to identify individuals",
-    doc: Doc {
-        before: "view c = v | by clinic: patients = count()   # one clinic saw 3 patients",
-        after: concat!(
-            "view c = v | by clinic: patients = count() | keep patients >= 5\n",
-            "# or merge small clinics (`top N ... rest`), widen the period, or show a rate",
-        ),
-        why:
-            "In a published chart, a cell of 1, 2 or 3 people can identify them, especially next\n\
-              to other public facts. The rule flags a chart whose measure counts rows (`count` in\n\
-              its view) and shows a value above zero but below the threshold (5 unless\n\
-              `--small-counts N`). Official statistics suppress or merge cells below a small\n\
-              threshold, often 5 or 10 (common practice); follow your organisation's own\n\
-              disclosure rules, which may be stricter.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("small-counts", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     let threshold = input.small_counts;
+    let small = |v: Option<f64>| v.is_some_and(|v| v > 0.0 && v < threshold);
+    let small_in = |vs: &[Option<f64>]| vs.iter().any(|v| small(*v));
+    let line_small = |l: &LineChart| l.series.iter().any(|s| s.points.iter().any(|p| small(p.y)));
     for (i, f, a) in frames(input) {
         if !a.measure_is_count {
             continue;
         }
-        let small: Vec<String> = match &f.chart {
-            Chart::Bars(b) => b
-                .bars
-                .iter()
-                .filter(|b| b.role != Role::Hidden)
-                .filter(|b| b.value.is_some_and(|v| v > 0.0 && v < threshold))
-                .map(|b| format!("{} ({})", b.label, b.value_label))
-                .collect(),
-            Chart::Line(l) => l
-                .series
-                .iter()
-                .filter(|s| s.role != Role::Hidden)
-                .filter(|s| {
-                    s.points
-                        .iter()
-                        .any(|p| p.y.is_some_and(|v| v > 0.0 && v < threshold))
+        // each mark of the chart: its role, whether it shows a small count, its name
+        let marks: Vec<(Role, bool, String)> = match &f.chart {
+            Chart::Bars(b) => (b.bars.iter())
+                .map(|b| {
+                    (
+                        b.role,
+                        small(b.value),
+                        format!("{} ({})", b.label, b.value_label),
+                    )
                 })
-                .map(|s| s.name.clone())
                 .collect(),
-            Chart::Parts(p) => p
-                .categories
-                .iter()
-                .filter(|c| c.role != Role::Hidden)
-                .filter(|c| {
-                    c.values
-                        .iter()
-                        .any(|v| v.is_some_and(|v| v > 0.0 && v < threshold))
+            Chart::Line(l) => (l.series.iter())
+                .map(|s| (s.role, s.points.iter().any(|p| small(p.y)), s.name.clone()))
+                .collect(),
+            Chart::Parts(p) => (p.categories.iter())
+                .map(|c| (c.role, small_in(&c.values), c.label.clone()))
+                .collect(),
+            Chart::Dots(d) => (d.rows.iter())
+                .map(|r| (r.role, small_in(&r.values), r.label.clone()))
+                .collect(),
+            Chart::Pie(p) => (p.slices.iter())
+                .map(|s| (s.role, small(Some(s.value)), s.label.clone()))
+                .collect(),
+            Chart::Panels(p) => (p.panels.iter())
+                .map(|x| {
+                    let shows_small = match &x.chart {
+                        Chart::Line(l) => line_small(l),
+                        Chart::Bars(b) => b.bars.iter().any(|b| small(b.value)),
+                        _ => false,
+                    };
+                    (x.role, shows_small, x.title.clone())
                 })
-                .map(|c| c.label.clone())
-                .collect(),
-            Chart::Dots(d) => d
-                .rows
-                .iter()
-                .filter(|r| r.role != Role::Hidden)
-                .filter(|r| {
-                    r.values
-                        .iter()
-                        .any(|v| v.is_some_and(|v| v > 0.0 && v < threshold))
-                })
-                .map(|r| r.label.clone())
-                .collect(),
-            Chart::Pie(p) => p
-                .slices
-                .iter()
-                .filter(|s| s.role != Role::Hidden && s.value > 0.0 && s.value < threshold)
-                .map(|s| s.label.clone())
-                .collect(),
-            Chart::Panels(p) => p
-                .panels
-                .iter()
-                .filter(|x| x.role != Role::Hidden)
-                .filter(|x| match &x.chart {
-                    Chart::Line(l) => l.series.iter().any(|s| {
-                        s.points
-                            .iter()
-                            .any(|p| p.y.is_some_and(|v| v > 0.0 && v < threshold))
-                    }),
-                    Chart::Bars(b) => b
-                        .bars
-                        .iter()
-                        .any(|b| b.value.is_some_and(|v| v > 0.0 && v < threshold)),
-                    _ => false,
-                })
-                .map(|x| x.title.clone())
                 .collect(),
             Chart::Scatter(_) | Chart::Figures(_) | Chart::Table(_) | Chart::Plugin(_) => {
                 Vec::new()
             }
         };
+        let small: Vec<String> = (marks.into_iter())
+            .filter(|(role, shows_small, _)| *role != Role::Hidden && *shows_small)
+            .map(|(_, _, name)| name)
+            .collect();
         if !small.is_empty() {
             out.push(Finding {
                 frame: Some(i),

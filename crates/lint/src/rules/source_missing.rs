@@ -2,25 +2,9 @@
 
 use crescendo_diag::Severity;
 
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "source-missing",
-    severity: Severity::Warning,
-    summary: "the deck does not say where its numbers come from",
-    doc: Doc {
-        before: "story \"Cases by area in 2024\"   # and no `source` line",
-        after: concat!(
-            "story \"Cases by area in 2024\"\n",
-            "source \"Case register, three areas, 2024 (invented)\"   # it may quote values too",
-        ),
-        why:
-            "A chart without its source cannot be checked or trusted, and a deck shown again next\n\
-              quarter must say which export it was built from (common practice: a source note at\n\
-              the bottom of every chart).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("source-missing", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     if input

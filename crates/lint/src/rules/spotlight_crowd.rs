@@ -3,25 +3,9 @@
 use crescendo_diag::Severity;
 
 use super::util::{focused, frames};
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "spotlight-crowd",
-    severity: Severity::Advice,
-    summary: "more than one series or bar is spotlighted in a frame",
-    doc: Doc {
-        before: "spotlight \"North\", \"South\"",
-        after: concat!(
-            "spotlight \"North\"   # and \"South\" in the next frame\n",
-            "# or, when the pair is the point, allow the rule and say so",
-        ),
-        why:
-            "Colour and weight pop out pre-attentively only when one thing differs from the rest;\n\
-              with several accented marks the eye has to search again, and none of them reads as\n\
-              the point (common practice: one emphasis per frame).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("spotlight-crowd", Severity::Advice, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     for (i, f, a) in frames(input) {

@@ -5,25 +5,9 @@ use crescendo_diag::Severity;
 use crescendo_look::Part;
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "text-cut",
-    severity: Severity::Warning,
-    summary: "a takeaway, source note or chart label does not fit and is cut short",
-    doc: Doc {
-        before: "  takeaway \"North recorded more cases than any other area in every single month of the year, and the gap between North and the rest kept widening through the second half of the year until December, long after the other areas had settled back to their spring levels\"",
-        after: "  takeaway \"North led every month, and the gap widened after June\"",
-        why: "Every text on a frame wraps; what still does not fit in two lines at its size is cut\n\
-              with an ellipsis, and the audience reads half a sentence or a source without its\n\
-              year. The layout keeps two lines for the takeaway and for the source note on\n\
-              every frame of the deck (common practice: one line that states the point, one\n\
-              that names the data). Shorten the text, or move the detail into `notes`. Labels\n\
-              inside the chart (names, titles, cells) wrap where they can; one that still\n\
-              does not fit is cut, and reported here, never silently.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("text-cut", Severity::Warning, check);
 
 /// Labels inside the chart that the layout had to cut ([`Part::Cut`]),
 /// each once per frame.

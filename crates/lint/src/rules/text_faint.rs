@@ -4,27 +4,12 @@ use crescendo_diag::Severity;
 
 use super::util::{look_span, rgb8};
 use crate::colour::contrast_ratio;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
 /// WCAG 2.x SC 1.4.3 (AA): 4.5:1 for normal text, 3:1 for large text.
 const NORMAL: f64 = 4.5;
 
-pub static RULE: Rule = Rule {
-    name: "text-faint",
-    severity: Severity::Error,
-    summary: "text too faint against the background (WCAG 2.x 4.5:1)",
-    doc: Doc {
-        before: "accent \"#F2B134\"   # a light gold: 1.9:1 on white",
-        after: "accent \"#1D5FA8\"   # a deep blue: 6.4:1 on white",
-        why: "Faint text is skipped or misread, most of all on a washed-out projector. WCAG 2.x\n\
-              success criterion 1.4.3 (Contrast, Minimum) asks for 4.5:1 for text and 3:1 for\n\
-              large text (the headline), so that people with low vision and everyone in a bright\n\
-              room can read it. The rule checks every text colour of the deck: headline, takeaway,\n\
-              labels, and the accent, which labels the spotlighted series (the message prints the\n\
-              ratio).",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("text-faint", Severity::Error, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     let t = input.theme;

@@ -2,7 +2,7 @@
 
 use crescendo_diag::Severity;
 
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
 /// Common practice for projected slides: nothing under 16 px on a 720 px
 /// high frame, the size of the default source note
@@ -10,21 +10,7 @@ use crate::{Doc, Finding, Input, Rule};
 /// guidance).
 const MIN: f64 = crescendo_look::theme::SOURCE_SIZE;
 
-pub static RULE: Rule = Rule {
-    name: "text-small",
-    severity: Severity::Warning,
-    summary: "text is too small to read when the deck is projected",
-    doc: Doc {
-        before: "style \"small.toml\"   # its [sizes] set labels = 12",
-        after: "style \"fine.toml\"   # labels = 20: 16 px or more for every text",
-        why: "A projected frame is read from across a room: labels, tick values and source notes\n\
-              set below 16 px on the 1280 × 720 frame become unreadable at the back, and the\n\
-              audience stops reading the chart to squint at it (common practice: keep every text\n\
-              large enough for the last row). For a deck meant only for print, allow the rule with\n\
-              that reason.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("text-small", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     let t = input.theme;

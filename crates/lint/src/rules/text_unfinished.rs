@@ -4,24 +4,11 @@
 
 use crescendo_diag::Severity;
 
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
 type Span = std::ops::Range<usize>;
 
-pub static RULE: Rule = Rule {
-    name: "text-unfinished",
-    severity: Severity::Warning,
-    summary: "a text the audience reads still holds a placeholder such as TODO",
-    doc: Doc {
-        before: "takeaway \"TODO: what the line shows\"",
-        after: "takeaway \"North leads the other areas\"",
-        why: "A starter story marks the texts it cannot write with placeholders. Shown to an\n\
-              audience, \"TODO\" in a headline or a source note tells them the deck was not\n\
-              finished and makes every number on it suspect; the build cannot tell, so the lint\n\
-              says so before the deck leaves your desk.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("text-unfinished", Severity::Warning, check);
 
 /// Placeholder words, matched as whole words in capitals.
 const WORDS: &[&str] = &["TODO", "TBD", "FIXME", "XXX"];

@@ -5,24 +5,9 @@ use crescendo_frame::Chart;
 use crescendo_look::Part;
 
 use super::util::frames;
-use crate::{Doc, Finding, Input, Rule};
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "ticks-crowded",
-    severity: Severity::Warning,
-    summary: "an axis has more tick labels than fit side by side",
-    doc: Doc {
-        before: "line t: x team, y tickets   # six long team names along x",
-        after: "bars t: category team, value tickets   # each name on a line of its own",
-        why: "When an x axis's labels, laid side by side, are wider than the plot, some would\n\
-              overlap and are dropped (crescendo never rotates them). Overlapping or rotated\n\
-              labels are slow to read and easy to misread; silently dropped labels hide\n\
-              categories. Few ticks at nice values read best (common practice; Talbot, Lin &\n\
-              Hanrahan 2010 weigh legibility and density). Use horizontal bars for many named\n\
-              categories, fewer categories (`top N`), or shorter names.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("ticks-crowded", Severity::Warning, check);
 
 fn check(input: &Input, out: &mut Vec<Finding>) {
     // The room a plot has at most: the text column less a tick-label column.

@@ -1,25 +1,12 @@
 //! `trailing-zeros`: figures printed with zeros that carry no information.
 
 use crescendo_diag::Severity;
+use crescendo_frame::FramePlan;
 
-use super::util::{frames, quoting_span};
-use crate::{Doc, Finding, Input, Rule};
+use super::util::flag_quoted;
+use crate::{Finding, Input, Rule};
 
-pub static RULE: Rule = Rule {
-    name: "trailing-zeros",
-    severity: Severity::Advice,
-    summary: "a figure or tick label ends in zeros after the decimal point",
-    doc: Doc {
-        before: "frame \"The busiest queue has {top to 1 decimal} tickets\" {   # prints 520.0",
-        after: "frame \"The busiest queue has {top} tickets\" {   # prints 520",
-        why: "Trailing zeros add ink and reading time without adding information: \"520\" says what\n\
-              \"520.0\" says, and \"20%\" what \"20.0%\" says. They also suggest a precision the number\n\
-              may not have (common practice: no trailing zeros unless a column of figures must\n\
-              line up). Without `to N decimals` crescendo prints none, in quoted figures and tick\n\
-              labels alike.",
-    },
-    check,
-};
+pub static RULE: Rule = Rule::new("trailing-zeros", Severity::Advice, check);
 
 /// "20.0", "2.50%", "1.0k": a decimal point followed by digits ending in 0.
 /// `separator` is the deck's decimal separator ("," in a `locale "de-DE"`
@@ -39,19 +26,13 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
             .locale
             .as_ref()
             .map_or_else(|| ".".to_string(), |l| l.decimal_separator());
-    for (i, f, a) in frames(input) {
-        for (name, figure) in &f.quoted {
-            if has_trailing_zero(figure, &separator) {
-                out.push(Finding {
-                    frame: Some(i),
-                    span: quoting_span(f, a, name),
-                    label: format!("`{name}` prints as {figure}"),
-                    message: format!("\"{figure}\" ends in a zero that says nothing"),
-                    fix: format!("quote `{name}` without `to N decimals`"),
-                });
-            }
-        }
-    }
+    let zero_ended = |_: &FramePlan, figure: &str| has_trailing_zero(figure, &separator);
+    flag_quoted(input, out, zero_ended, |name, figure| {
+        (
+            format!("\"{figure}\" ends in a zero that says nothing"),
+            format!("quote `{name}` without `to N decimals`"),
+        )
+    });
 }
 
 #[cfg(test)]

@@ -4,7 +4,7 @@ use crescendo_frame::anchors::{FrameAnchors, Span};
 use crescendo_frame::{Chart, FramePlan, Role};
 
 use crate::colour::Rgb8;
-use crate::Input;
+use crate::{Finding, Input};
 
 /// Frames with their anchors, by index.
 pub fn frames<'a>(
@@ -146,4 +146,42 @@ pub fn quoting_span(frame: &FramePlan, fa: &FrameAnchors, name: &str) -> Span {
     } else {
         fa.headline.clone()
     }
+}
+
+/// A finding on each figure a frame quotes that `flagged` picks, on the
+/// text that quotes it; `said` gives the message and the fix from the
+/// value's name and the figure.
+pub fn flag_quoted(
+    input: &Input,
+    out: &mut Vec<Finding>,
+    flagged: impl Fn(&FramePlan, &str) -> bool,
+    said: impl Fn(&str, &str) -> (String, String),
+) {
+    for (i, f, a) in frames(input) {
+        for (name, figure) in &f.quoted {
+            if flagged(f, figure) {
+                let (message, fix) = said(name, figure);
+                out.push(Finding {
+                    frame: Some(i),
+                    span: quoting_span(f, a, name),
+                    label: format!("`{name}` prints as {figure}"),
+                    message,
+                    fix,
+                });
+            }
+        }
+    }
+}
+
+/// The frames whose chart `is_form` picks and that show more than `max`
+/// marks, with their anchors and the number shown.
+pub fn crowded<'a>(
+    input: &'a Input,
+    is_form: fn(&Chart) -> bool,
+    max: usize,
+) -> impl Iterator<Item = (usize, &'a FrameAnchors, usize)> {
+    frames(input).filter_map(move |(i, f, a)| {
+        let n = visible(f);
+        (is_form(&f.chart) && n > max).then_some((i, a, n))
+    })
 }

@@ -67,14 +67,7 @@ impl FormPlanner for Bars {
             .find(|o| matches!(o.name, OptName::Horizontal | OptName::Vertical))
             .map(|o| o.span.clone());
         anchors.orientation_by_rule = Some(by_rule);
-        Ok(SeqState {
-            names,
-            measure_name: ycol.name.clone(),
-            view_name: spec.table_name.clone(),
-            key_name: xcol.name.clone(),
-            anchors,
-            ..SeqState::new(chart)
-        })
+        Ok(spec.state(chart, names, xcol.name.clone(), anchors))
     }
 }
 

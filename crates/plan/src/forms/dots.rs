@@ -69,13 +69,6 @@ impl FormPlanner for Dots {
         });
         let mut anchors = spec::anchors(c, spec);
         anchors.x_is_text = t.columns[spec.x].ty == ColType::Text;
-        Ok(SeqState {
-            names,
-            measure_name: val.name.clone(),
-            view_name: spec.table_name.clone(),
-            key_name,
-            anchors,
-            ..SeqState::new(chart)
-        })
+        Ok(spec.state(chart, names, key_name, anchors))
     }
 }

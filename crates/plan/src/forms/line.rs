@@ -113,16 +113,13 @@ impl FormPlanner for Line {
         });
         let mut anchors = spec::anchors(c, spec);
         anchors.x_is_text = xcol.ty == ColType::Text;
-        Ok(SeqState {
+        Ok(spec.state(
+            chart,
             names,
-            measure_name: ycol.name.clone(),
-            view_name: spec.table_name.clone(),
-            key_name: spec
-                .series
+            spec.series
                 .map_or(ycol.name.clone(), |s| t.columns[s].name.clone()),
             anchors,
-            ..SeqState::new(chart)
-        })
+        ))
     }
 }
 

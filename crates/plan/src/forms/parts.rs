@@ -76,12 +76,5 @@ pub(crate) fn chart(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Se
     let mut anchors = spec::anchors(c, spec);
     anchors.x_is_text = t.columns[spec.x].ty == ColType::Text;
     anchors.orientation_by_rule = Some(by_rule);
-    Ok(SeqState {
-        names: grid.keys,
-        measure_name: val.name.clone(),
-        view_name: spec.table_name.clone(),
-        key_name,
-        anchors,
-        ..SeqState::new(chart)
-    })
+    Ok(spec.state(chart, grid.keys, key_name, anchors))
 }

@@ -69,13 +69,11 @@ impl FormPlanner for Pie {
                 })
                 .collect(),
         });
-        Ok(SeqState {
+        Ok(spec.state(
+            chart,
             names,
-            measure_name: spec.table.columns[spec.y].name.clone(),
-            view_name: spec.table_name.clone(),
-            key_name: spec.table.columns[spec.x].name.clone(),
-            anchors: spec::anchors(c, spec),
-            ..SeqState::new(chart)
-        })
+            spec.table.columns[spec.x].name.clone(),
+            spec::anchors(c, spec),
+        ))
     }
 }

@@ -209,6 +209,7 @@ fn check_declared(
         })
         .collect::<Vec<_>>()
         .join("; ");
+    let of_form = format!("the `{form}` form of plugin `{}`", d.plugin.name);
     // a required option suggested for a misspelt one is not reported again
     let mut suggested = Vec::new();
     for (k, v) in &d.opts {
@@ -216,10 +217,7 @@ fn check_declared(
             let mut diag = cx
                 .at(
                     "chart-option",
-                    format!(
-                        "the `{form}` form of plugin `{}` takes no option `{}`",
-                        d.plugin.name, k.name
-                    ),
+                    format!("{of_form} takes no option `{}`", k.name),
                     k.span.clone(),
                     "unknown option",
                 )
@@ -272,10 +270,7 @@ fn check_declared(
             let diag = cx
                 .at(
                     "chart-option",
-                    format!(
-                        "the `{form}` form of plugin `{}` needs the option `{}`{about}",
-                        d.plugin.name, o.name
-                    ),
+                    format!("{of_form} needs the option `{}`{about}", o.name),
                     d.span.clone(),
                     format!("no `{}` here", o.name),
                 )

@@ -50,18 +50,8 @@ impl FormPlanner for Scatter {
         let y = pick(cx, OptName::Y, "y")?;
         for (col, opt) in [(x, OptName::X), (y, OptName::Y)] {
             if !(col.1 == ColType::Number || col.1.is_time()) {
-                let mut d = cx.at(
-                    "chart-type",
-                    format!(
-                        "a scatter places numbers, but `{}` is {}",
-                        input.schema[col.0].0,
-                        col.1.name()
-                    ),
-                    input.span_of(opt),
-                    "not a number",
-                );
-                d.notes.extend(input.why_text(col.0));
-                return Err(cx.report(d));
+                let needed = "a scatter places numbers";
+                return Err(input.not_a_number(cx, col, input.span_of(opt), needed));
             }
         }
         let series = input.optional(cx, input.given(OptName::Series))?;
@@ -128,14 +118,12 @@ impl FormPlanner for Scatter {
         let key_name = groups
             .or(labels)
             .map_or_else(|| yc.name.clone(), |l| l.name.clone());
-        Ok(SeqState {
+        Ok(spec.state(
+            Chart::Scatter(ScatterChart { x, y, points, fit }),
             names,
-            measure_name: yc.name.clone(),
-            view_name: spec.table_name.clone(),
             key_name,
-            anchors: spec::anchors(c, spec),
-            ..SeqState::new(Chart::Scatter(ScatterChart { x, y, points, fit }))
-        })
+            spec::anchors(c, spec),
+        ))
     }
 }
 

@@ -9,8 +9,9 @@ use crescendo_lang::ast::{ChartStmt, CompareDecl, Ident, OptName, Span};
 use crate::anchors::FrameAnchors;
 use crate::context::{Ctx, Outcome, Reported};
 use crate::forms::options::Chosen;
-use crate::model::{Orientation, PartsMode};
+use crate::model::{Chart, Orientation, PartsMode};
 use crate::rows::{self, Schema};
+use crate::sequence::SeqState;
 use crate::tables::Tables;
 
 /// A resolved chart statement: the table and the columns playing each role.
@@ -38,6 +39,25 @@ pub(crate) struct ChartSpec {
 }
 
 impl ChartSpec {
+    /// The build-up state of a chart planned from this spec: its names, its
+    /// measure (the y column), its view and its key.
+    pub(crate) fn state(
+        &self,
+        chart: Chart,
+        names: Vec<String>,
+        key_name: String,
+        anchors: FrameAnchors,
+    ) -> SeqState {
+        SeqState {
+            names,
+            measure_name: self.table.columns[self.y].name.clone(),
+            view_name: self.table_name.clone(),
+            key_name,
+            anchors,
+            ..SeqState::new(chart)
+        }
+    }
+
     /// The error for a view without a value of the measure.
     pub(crate) fn no_values(&self, cx: &mut Ctx, c: &ChartStmt) -> Reported {
         cx.error(
@@ -134,18 +154,24 @@ impl SpecInput<'_> {
         if col.1 == ColType::Number {
             return Ok(());
         }
-        let mut d = cx.at(
-            "chart-type",
-            format!(
-                "{what} must be a number column, but `{}` is {}",
-                self.schema[col.0].0,
-                col.1.name()
-            ),
-            span,
-            "not a number",
-        );
-        d.notes.extend(self.why_text(col.0));
-        Err(cx.report(d))
+        let needed = format!("{what} must be a number column");
+        Err(self.not_a_number(cx, col, span, &needed))
+    }
+
+    /// The error for column `col` where `needed` says a number must stand,
+    /// with the data row that made the column text when there is one.
+    pub(crate) fn not_a_number(
+        &self,
+        cx: &mut Ctx,
+        (index, ty): (usize, ColType),
+        span: Span,
+        needed: &str,
+    ) -> Reported {
+        let name = &self.schema[index].0;
+        let message = format!("{needed}, but `{name}` is {}", ty.name());
+        let mut d = cx.at("chart-type", message, span, "not a number");
+        d.notes.extend(self.why_text(index));
+        cx.report(d)
     }
 
     /// Does the view count rows in column `col`?

@@ -399,26 +399,18 @@ impl Marks<'_> {
                 }
             }
         };
+        let category = |names| by_name(names, self.col(OptName::Category), "category");
+        let series = |names| by_name(names, self.col(OptName::Series), "series");
         let one = |item| Ok(MarkRef { item, part: 0 });
         match &self.st.chart {
-            Chart::Bars(b) => one(by_name(
-                b.bars.iter().map(|x| x.label.as_str()).collect(),
-                self.col(OptName::Category),
-                "category",
-            )?),
-            Chart::Pie(p) => one(by_name(
+            Chart::Bars(b) => one(category(b.bars.iter().map(|x| x.label.as_str()).collect())?),
+            Chart::Pie(p) => one(category(
                 p.slices.iter().map(|x| x.label.as_str()).collect(),
-                self.col(OptName::Category),
-                "category",
             )?),
             Chart::Parts(p) => {
                 let part_col = self.col(OptName::Stack).or(self.col(OptName::Group));
                 Ok(MarkRef {
-                    item: by_name(
-                        p.categories.iter().map(|x| x.label.as_str()).collect(),
-                        self.col(OptName::Category),
-                        "category",
-                    )?,
+                    item: category(p.categories.iter().map(|x| x.label.as_str()).collect())?,
                     part: by_name(
                         p.parts.iter().map(|x| x.name.as_str()).collect(),
                         part_col,
@@ -427,23 +419,11 @@ impl Marks<'_> {
                 })
             }
             Chart::Dots(d) => Ok(MarkRef {
-                item: by_name(
-                    d.rows.iter().map(|x| x.label.as_str()).collect(),
-                    self.col(OptName::Category),
-                    "category",
-                )?,
-                part: by_name(
-                    d.series.iter().map(|x| x.name.as_str()).collect(),
-                    self.col(OptName::Series),
-                    "series",
-                )?,
+                item: category(d.rows.iter().map(|x| x.label.as_str()).collect())?,
+                part: series(d.series.iter().map(|x| x.name.as_str()).collect())?,
             }),
             Chart::Line(l) => {
-                let s = by_name(
-                    l.series.iter().map(|x| x.name.as_str()).collect(),
-                    self.col(OptName::Series),
-                    "series",
-                )?;
+                let s = series(l.series.iter().map(|x| x.name.as_str()).collect())?;
                 let x = self
                     .col(OptName::X)
                     .and_then(|c| provenance::position(&self.cell(c, r)))

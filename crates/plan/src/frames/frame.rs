@@ -57,6 +57,31 @@ struct Said {
     anchors: FrameAnchors,
 }
 
+impl Said {
+    /// The frame text `field` (takeaway, notes) resolved, its quoted values
+    /// kept for the frame.
+    fn text(&mut self, cx: &mut Ctx, scope: &Scope, field: &str, text: &Text) -> String {
+        let r = scope.text(cx, text);
+        self.texts.add(field, &r);
+        r.text
+    }
+}
+
+/// A text a frame says once: a second one (`[plural, singular]` name it)
+/// is an error.
+fn once(
+    cx: &mut Ctx,
+    slot: &mut Option<String>,
+    text: String,
+    span: &Span,
+    [many, one]: [&str; 2],
+) {
+    if slot.replace(text).is_some() {
+        let message = format!("this frame has two {many}");
+        cx.error("duplicate", message, span.clone(), format!("second {one}"));
+    }
+}
+
 /// Plan a frame item: the frame (or the frames its `unfold` makes).
 pub(crate) fn plan(
     cx: &mut Ctx,
@@ -277,29 +302,13 @@ fn build_up(
         } => axes::range(cx, st, *axis, *from, *to, span)?,
         FrameStmt::Takeaway { text, span } => {
             said.anchors.takeaway = Some(span.clone());
-            let r = scope.text(cx, text);
-            said.texts.add("takeaway", &r);
-            if said.takeaway.replace(r.text).is_some() {
-                cx.error(
-                    "duplicate",
-                    "this frame has two takeaways",
-                    span.clone(),
-                    "second takeaway",
-                );
-            }
+            let r = said.text(cx, scope, "takeaway", text);
+            once(cx, &mut said.takeaway, r, span, ["takeaways", "takeaway"]);
         }
         FrameStmt::Notes { text, span } => {
             said.anchors.notes = Some(span.clone());
-            let r = scope.text(cx, text);
-            said.texts.add("notes", &r);
-            if said.notes.replace(r.text).is_some() {
-                cx.error(
-                    "duplicate",
-                    "this frame has two notes",
-                    span.clone(),
-                    "second notes",
-                );
-            }
+            let r = said.text(cx, scope, "notes", text);
+            once(cx, &mut said.notes, r, span, ["notes", "notes"]);
         }
         FrameStmt::Show { .. } | FrameStmt::Hide { .. } | FrameStmt::Spotlight { .. } => {
             targets::apply(cx, h, st, stmt)?

@@ -7,7 +7,7 @@
 
 use crescendo_lang::ast::{Position, Span, Str};
 
-use crate::context::{Ctx, Outcome};
+use crate::context::{Ctx, Outcome, Reported};
 use crate::frames::positions;
 use crate::model::*;
 use crate::scope::Scope;
@@ -65,6 +65,26 @@ fn form(chart: &Chart) -> &'static str {
     }
 }
 
+/// Names in quotes, joined by commas.
+fn quoted(names: &[&str]) -> String {
+    let quoted: Vec<String> = names.iter().map(|n| format!("\"{n}\"")).collect();
+    quoted.join(", ")
+}
+
+/// The error for a callout naming a WORD (category, part, ...) the chart
+/// does not have, with `help` below.
+fn not_in_chart(cx: &mut Ctx, word: &str, name: &Str, help: String) -> Reported {
+    let d = cx
+        .at(
+            "annotation",
+            format!("no {word} named \"{}\" in this chart", name.value),
+            name.span.clone(),
+            format!("not a {word} here"),
+        )
+        .help(help);
+    cx.report(d)
+}
+
 /// Plans a callout on a mark of `st`'s chart; `text` is already resolved.
 pub(crate) fn callout(
     cx: &mut Ctx,
@@ -98,26 +118,11 @@ pub(crate) fn callout(
         ));
     };
     let Some(item) = items.iter().position(|n| *n == name.value) else {
-        let known = items
-            .iter()
-            .take(6)
-            .map(|n| format!("\"{n}\""))
-            .collect::<Vec<_>>()
-            .join(", ");
-        let d = cx
-            .at(
-                "annotation",
-                format!("no {item_word} named \"{}\" in this chart", name.value),
-                name.span.clone(),
-                format!("not a {item_word} here"),
-            )
-            .help(
-                match crescendo_diag::closest(&name.value, items.iter().copied()) {
-                    Some(c) => format!("did you mean \"{c}\"?"),
-                    None => format!("this chart has {known}"),
-                },
-            );
-        return Err(cx.report(d));
+        let help = match crescendo_diag::closest(&name.value, items.iter().copied()) {
+            Some(c) => format!("did you mean \"{c}\"?"),
+            None => format!("this chart has {}", quoted(&items[..items.len().min(6)])),
+        };
+        return Err(not_in_chart(cx, item_word, name, help));
     };
     let part = match on {
         None if parts.len() > 1 && matches!(st.chart, Chart::Dots(_)) => {
@@ -159,20 +164,8 @@ pub(crate) fn callout(
         }) {
             Some(j) => Some(j),
             None => {
-                let known = parts
-                    .iter()
-                    .map(|n| format!("\"{n}\""))
-                    .collect::<Vec<_>>()
-                    .join(", ");
-                let d = cx
-                    .at(
-                        "annotation",
-                        format!("no {part_word} named \"{}\" in this chart", p.value),
-                        p.span.clone(),
-                        format!("not a {part_word} here"),
-                    )
-                    .help(format!("this chart has {known}"));
-                return Err(cx.report(d));
+                let help = format!("this chart has {}", quoted(&parts));
+                return Err(not_in_chart(cx, part_word, p, help));
             }
         },
     };

@@ -2,7 +2,7 @@
 //! from, or the two values a ratio or a difference compares. Read from the
 //! value's definition, so it follows the data on every build.
 
-use crescendo_data::{self as data, ColType, Step, Table, Value};
+use crescendo_data::{Table, Value};
 use crescendo_lang::ast::{BinOp, CallArg, Expr, Selection};
 
 use std::sync::Arc;
@@ -130,25 +130,7 @@ fn pick((scope, src): (&Scope, &Arc<Source>), func: &str, s: &Selection) -> Resu
             let mut diags = Vec::new();
             let cond =
                 rows::check_condition(src, &schema, "", f, &mut diags).ok_or(NoProv::Broken)?;
-            let mut t = table.clone();
-            t.columns.push(data::Column {
-                name: "\u{0}row".into(),
-                ty: ColType::Number,
-                values: (0..n).map(|i| Value::Number(i as f64)).collect(),
-            });
-            let kept = data::run_view(&t, &[Step::Keep(cond)]);
-            kept.columns
-                .last()
-                .map(|c| {
-                    c.values
-                        .iter()
-                        .filter_map(|v| match v {
-                            Value::Number(x) => Some(x as usize),
-                            _ => None,
-                        })
-                        .collect()
-                })
-                .unwrap_or_default()
+            rows::kept_rows(table, cond)
         }
     };
     if let Some(bi) = by {

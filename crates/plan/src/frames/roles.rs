@@ -79,10 +79,15 @@ struct Titles {
     y: Option<String>,
 }
 
-/// Replace `slot` by the title `t`, when one is set.
-fn set(slot: &mut Option<String>, t: &Option<String>) {
-    if t.is_some() {
-        *slot = t.clone();
+impl Titles {
+    /// Replace the chart's titles along x and y by those set, each when
+    /// one is.
+    fn set(&self, x: &mut Option<String>, y: &mut Option<String>) {
+        for (slot, t) in [(x, &self.x), (y, &self.y)] {
+            if t.is_some() {
+                *slot = t.clone();
+            }
+        }
     }
 }
 
@@ -106,29 +111,25 @@ fn apply_roles(
     let mut chart = chart.clone();
     match &mut chart {
         Chart::Line(l) => {
-            set(&mut l.x.title, &titles.x);
-            set(&mut l.y.title, &titles.y);
+            titles.set(&mut l.x.title, &mut l.y.title);
             for s in &mut l.series {
                 s.role = role(&s.name);
             }
         }
         Chart::Bars(b) => {
-            set(&mut b.category_title, &titles.x);
-            set(&mut b.value.title, &titles.y);
+            titles.set(&mut b.category_title, &mut b.value.title);
             for bar in &mut b.bars {
                 bar.role = role(&bar.label);
             }
         }
         Chart::Parts(p) => {
-            set(&mut p.category_title, &titles.x);
-            set(&mut p.value.title, &titles.y);
+            titles.set(&mut p.category_title, &mut p.value.title);
             for part in &mut p.parts {
                 part.role = role(&part.name);
             }
         }
         Chart::Dots(d) => {
-            set(&mut d.category_title, &titles.x);
-            set(&mut d.value.title, &titles.y);
+            titles.set(&mut d.category_title, &mut d.value.title);
             if d.series.len() > 1 {
                 for s in &mut d.series {
                     s.role = role(&s.name);
@@ -140,8 +141,7 @@ fn apply_roles(
             }
         }
         Chart::Scatter(sc) => {
-            set(&mut sc.x.title, &titles.x);
-            set(&mut sc.y.title, &titles.y);
+            titles.set(&mut sc.x.title, &mut sc.y.title);
             for p in &mut sc.points {
                 p.role = scatter_role(role, p);
             }

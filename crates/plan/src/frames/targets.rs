@@ -83,16 +83,8 @@ fn table_cells(
             ));
         }
         if !st.names.contains(&row.value) {
-            let mut d = cx.at(
-                "unknown-series",
-                format!("no row \"{}\" in this table", row.value),
-                row.span.clone(),
-                "not a row of this table",
-            );
-            if let Some(c) = closest(&row.value, st.names.iter().map(String::as_str)) {
-                d = d.help(format!("did you mean \"{c}\"?"));
-            }
-            return Err(cx.report(d));
+            let message = format!("no row \"{}\" in this table", row.value);
+            return Err(st.unknown(cx, row, message, "not a row of this table"));
         }
         // the header text the table shows for that column
         let title = st

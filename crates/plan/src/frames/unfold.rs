@@ -2,7 +2,6 @@
 //! one more. The frames it makes count against `--max-frames` before any
 //! of them is built.
 
-use crescendo_diag::closest;
 use crescendo_lang::ast::{Span, Str};
 
 use crate::context::{Ctx, Outcome};
@@ -40,16 +39,8 @@ pub(crate) fn steps(
         let mut items = Vec::new();
         for o in order {
             if !st.names.contains(&o.value) {
-                let mut d = cx.at(
-                    "unknown-series",
-                    format!("nothing named \"{}\" to unfold in this chart", o.value),
-                    o.span.clone(),
-                    "not in this chart",
-                );
-                if let Some(c) = closest(&o.value, st.names.iter().map(String::as_str)) {
-                    d = d.help(format!("did you mean \"{c}\"?"));
-                }
-                return Err(cx.report(d));
+                let message = format!("nothing named \"{}\" to unfold in this chart", o.value);
+                return Err(st.unknown(cx, o, message, "not in this chart"));
             }
             items.push(o.value.clone());
         }

@@ -136,14 +136,7 @@ impl StoryFacts {
             idents.extend(names_in_item(item, false));
             idents_outside_order.extend(names_in_item(item, true));
         }
-        let views: Vec<&ast::ViewDecl> = story
-            .items
-            .iter()
-            .filter_map(|i| match i {
-                Item::View(v) => Some(v),
-                _ => None,
-            })
-            .collect();
+        let views: Vec<&ast::ViewDecl> = story.views().collect();
         let top_before_by = views.iter().any(|v| {
             let by = v.steps.iter().position(|s| matches!(s, StepAst::By { .. }));
             let top = v

@@ -91,18 +91,13 @@ fn columns(at: &At, names: &[Ident], diags: &mut Vec<Diagnostic>) -> Vec<usize> 
 
 fn keep(at: &At, expr: &Expr, diags: &mut Vec<Diagnostic>) -> Option<Step> {
     let mut ck = at.checker(diags);
-    match ck.check(expr) {
-        Some((e, Ty::Bool)) => Some(Step::Keep(e)),
-        Some((_, t)) => {
-            ck.err(
-                expr.span(),
-                format!("`keep` needs a condition, but this is {}", t.describe()),
-                "not a condition",
-            );
-            None
-        }
-        None => None,
+    let (e, t) = ck.check(expr)?;
+    if matches!(t, Ty::Bool) {
+        return Some(Step::Keep(e));
     }
+    let message = format!("`keep` needs a condition, but this is {}", t.describe());
+    ck.err(expr.span(), message, "not a condition");
+    None
 }
 
 fn add(at: &At, new: &Ident, expr: &Expr, diags: &mut Vec<Diagnostic>) -> Option<Step> {
@@ -110,22 +105,15 @@ fn add(at: &At, new: &Ident, expr: &Expr, diags: &mut Vec<Diagnostic>) -> Option
         return None;
     }
     let mut ck = at.checker(diags);
-    match ck.check_added(expr) {
-        Some((e @ (data::Expr::Bucket { .. } | data::Expr::YearQuarter(..)), _))
-        | Some((e, Ty::Col(ColType::Number))) => Some(Step::Derive {
-            name: new.name.clone(),
-            expr: e,
-        }),
-        Some((_, t)) => {
-            ck.err(
-                expr.span(),
-                format!("`add` computes a number, but this is {}", t.describe()),
-                "not a number",
-            );
-            None
-        }
-        None => None,
+    let (e, t) = ck.check_added(expr)?;
+    let time = matches!(e, data::Expr::Bucket { .. } | data::Expr::YearQuarter(..));
+    if time || matches!(t, Ty::Col(ColType::Number)) {
+        let name = new.name.clone();
+        return Some(Step::Derive { name, expr: e });
     }
+    let message = format!("`add` computes a number, but this is {}", t.describe());
+    ck.err(expr.span(), message, "not a number");
+    None
 }
 
 /// `by KEYS: name = aggregate(column), ...`.
