@@ -99,6 +99,7 @@ fn the_same_rows_in_every_format_build_the_same_deck() {
         "ledger-1904.xlsx",
         "ledger.ods",
         "ledger.parquet",
+        "ledger-zstd.parquet",
         "ledger-decimal.parquet",
     ] {
         let out = format!("deck-{file}");

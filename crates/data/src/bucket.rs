@@ -18,7 +18,7 @@
 //! 2021-01-03 is in `2020-W53` and 2024-12-30 in `2025-W01`.
 
 use crate::locale::Fiscal;
-use crate::model::{Cell, ColType, Value};
+use crate::model::{Cell, ColType, Expr, Table, Value};
 use crate::time::{civil_from_days, days_from_civil, month_of_year, month_year};
 
 /// A time bucket (see the module docs).
@@ -163,6 +163,23 @@ pub fn iso_week(d: i32) -> (i32, u32) {
     let (y, _, _) = civil_from_days(thursday);
     let week = (thursday - days_from_civil(y, 1, 1)) / 7 + 1;
     (y, week as u32)
+}
+
+/// The rows of `t` (up to `most`) where `year_quarter(year, quarter)`
+/// meets two cells that make no quarter (see
+/// [`bad_quarter`]), in row order.
+pub fn bad_quarters(t: &Table, (year, quarter): (&Expr, &Expr), most: usize) -> Vec<BadQuarter> {
+    (0..crate::view::row_count(t))
+        .filter_map(|r| {
+            let row = crate::view::row_of(t, r);
+            bad_quarter(
+                r,
+                crate::view::eval(&row, year),
+                crate::view::eval(&row, quarter),
+            )
+        })
+        .take(most)
+        .collect()
 }
 
 #[cfg(test)]

@@ -25,6 +25,7 @@ pub mod typed;
 pub mod view;
 pub mod workbook;
 
+pub use bucket::bad_quarters;
 pub use load::{load_csv, load_csv_columns, probe, Columns, CsvSpec, LoadError, Probe};
 pub use model::*;
-pub use view::{bad_quarters, run_view};
+pub use view::run_view;

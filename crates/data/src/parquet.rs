@@ -1,9 +1,10 @@
-//! Parquet files read with the Apache `parquet` crate (its record reader;
-//! no Arrow) into a [`Table`].
+//! Parquet files read with the Apache `parquet` crate (its typed column
+//! readers; no Arrow) into a [`Table`].
 //!
 //! Only the columns the story can read are decoded (a projection), row
-//! group by row group. Types, by the column's logical (or converted) type
-//! over its physical one:
+//! group by row group, each column chunk in batches of a few thousand
+//! values (definition levels mark the missing ones). Types, by the
+//! column's logical (or converted) type over its physical one:
 //!
 //! | Parquet | column |
 //! | --- | --- |
@@ -17,8 +18,8 @@
 //! Anything else (binary, times of day, intervals, UUIDs, 96-bit
 //! timestamps, nested groups, lists and maps) in a column the story reads
 //! is an error naming the column; a damaged or cut-short file is an error.
-//! Files are read with Snappy compression or none (the `snap` feature);
-//! another codec is an error that says which.
+//! Files are read with Snappy or zstd compression or none (the `snap` and
+//! `zstd` features); another codec is an error that says which.
 //!
 //! # Row groups skipped by their statistics
 //!
@@ -35,13 +36,12 @@
 #![allow(clippy::result_large_err)]
 
 use std::fs::File;
-use std::sync::Arc;
 
 use parquet::basic::{ConvertedType, LogicalType, TimeUnit, Type as Physical};
-use parquet::data_type::Decimal;
+use parquet::column::reader::{ColumnReader, ColumnReaderImpl};
+use parquet::data_type::{ByteArray, DataType, Decimal, FixedLenByteArray};
 use parquet::file::reader::{FileReader, SerializedFileReader};
-use parquet::record::Field;
-use parquet::schema::types::Type;
+use parquet::schema::types::{ColumnDescriptor, Type};
 
 use crate::load::{parse_number, Columns, CsvSpec, LoadError, ReadLimits};
 use crate::model::{CmpOp, Expr, Table, Value};
@@ -111,29 +111,124 @@ fn day(x: i64, per_day: i64) -> Option<i32> {
     i32::try_from(x.div_euclid(per_day)).ok()
 }
 
-/// A cell as a typed cell; `None` when it has no reading.
-fn typed(f: &Field) -> Option<Typed> {
-    Some(match f {
-        Field::Null => Typed::Missing,
-        Field::Bool(b) => Typed::Bool(*b),
-        Field::Byte(x) => Typed::Number(f64::from(*x)),
-        Field::Short(x) => Typed::Number(f64::from(*x)),
-        Field::Int(x) => Typed::Number(f64::from(*x)),
-        Field::Long(x) => Typed::Number(*x as f64),
-        Field::UByte(x) => Typed::Number(f64::from(*x)),
-        Field::UShort(x) => Typed::Number(f64::from(*x)),
-        Field::UInt(x) => Typed::Number(f64::from(*x)),
-        Field::ULong(x) => Typed::Number(*x as f64),
-        Field::Float16(x) => Typed::Number(f64::from(*x)),
-        Field::Float(x) => Typed::Number(f64::from(*x)),
-        Field::Double(x) => Typed::Number(*x),
-        Field::Decimal(d) => Typed::Number(parse_number(&decimal_text(d)?)?),
-        Field::Str(s) => Typed::Text(s.clone()),
-        Field::Date(d) => Typed::Date(*d),
-        Field::TimestampMillis(x) => Typed::Date(day(*x, DAY_MS)?),
-        Field::TimestampMicros(x) => Typed::Date(day(*x, DAY_MS * 1000)?),
-        _ => return None,
-    })
+/// Values decoded from a column chunk at a time (a few thousand, so the
+/// buffers stay small whatever the row group's size).
+const BATCH: usize = 4096;
+
+/// Why a column chunk stopped being read.
+enum Stop {
+    Damaged(parquet::errors::ParquetError),
+    /// The row (of the row group) whose value has no reading.
+    Unreadable(usize),
+}
+
+/// The cells of one column chunk appended to `cells`, batch by batch
+/// through the typed column reader: `cell` reads a stored value, the
+/// definition levels mark the missing ones.
+fn read_chunk<T: DataType>(
+    mut reader: ColumnReaderImpl<T>,
+    max_def: i16,
+    cells: &mut Vec<Typed>,
+    mut cell: impl FnMut(&T::T) -> Option<Typed>,
+) -> Result<(), Stop> {
+    let start = cells.len();
+    let mut values: Vec<T::T> = Vec::with_capacity(BATCH);
+    let mut defs: Vec<i16> = Vec::with_capacity(BATCH);
+    loop {
+        values.clear();
+        defs.clear();
+        let (records, _, levels) = reader
+            .read_records(BATCH, Some(&mut defs), None, &mut values)
+            .map_err(Stop::Damaged)?;
+        if records == 0 {
+            return Ok(());
+        }
+        let unread = |cells: &Vec<Typed>| Stop::Unreadable(cells.len() - start);
+        if max_def == 0 {
+            for v in &values {
+                let c = cell(v).ok_or_else(|| unread(cells))?;
+                cells.push(c);
+            }
+        } else {
+            let mut stored = values.iter();
+            for &d in &defs[..levels] {
+                let c = match (d == max_def).then(|| stored.next()).flatten() {
+                    Some(v) => cell(v).ok_or_else(|| unread(cells))?,
+                    None => Typed::Missing,
+                };
+                cells.push(c);
+            }
+        }
+    }
+}
+
+/// A decimal's cell: its text read as a CSV cell is.
+fn decimal_cell(d: &Decimal) -> Option<Typed> {
+    Some(Typed::Number(parse_number(&decimal_text(d)?)?))
+}
+
+/// A column chunk's cells appended to `cells`, each value read by the
+/// column's physical and converted type as the `parquet` crate's record
+/// API reads it (integers by their width and sign, dates, timestamps as
+/// their day, decimals, UTF-8 texts).
+fn read_leaf(
+    reader: ColumnReader,
+    descr: &ColumnDescriptor,
+    cells: &mut Vec<Typed>,
+) -> Result<(), Stop> {
+    use ConvertedType as C;
+    let max_def = descr.max_def_level();
+    let converted = descr.converted_type();
+    let (precision, scale) = (descr.type_precision(), descr.type_scale());
+    match reader {
+        ColumnReader::BoolColumnReader(r) => {
+            read_chunk(r, max_def, cells, |b| Some(Typed::Bool(*b)))
+        }
+        ColumnReader::Int32ColumnReader(r) => read_chunk(r, max_def, cells, |&v| {
+            let number = |x: f64| Some(Typed::Number(x));
+            match converted {
+                C::INT_8 => number(f64::from(v as i8)),
+                C::INT_16 => number(f64::from(v as i16)),
+                C::INT_32 | C::NONE => number(f64::from(v)),
+                C::UINT_8 => number(f64::from(v as u8)),
+                C::UINT_16 => number(f64::from(v as u16)),
+                C::UINT_32 => number(f64::from(v as u32)),
+                C::DATE => Some(Typed::Date(v)),
+                C::DECIMAL => decimal_cell(&Decimal::from_i32(v, precision, scale)),
+                _ => None,
+            }
+        }),
+        ColumnReader::Int64ColumnReader(r) => read_chunk(r, max_def, cells, |&v| match converted {
+            C::INT_64 | C::NONE => Some(Typed::Number(v as f64)),
+            C::UINT_64 => Some(Typed::Number(v as u64 as f64)),
+            C::TIMESTAMP_MILLIS => Some(Typed::Date(day(v, DAY_MS)?)),
+            C::TIMESTAMP_MICROS => Some(Typed::Date(day(v, DAY_MS * 1000)?)),
+            C::DECIMAL => decimal_cell(&Decimal::from_i64(v, precision, scale)),
+            _ => None,
+        }),
+        ColumnReader::FloatColumnReader(r) => {
+            read_chunk(r, max_def, cells, |&x| Some(Typed::Number(f64::from(x))))
+        }
+        ColumnReader::DoubleColumnReader(r) => {
+            read_chunk(r, max_def, cells, |&x| Some(Typed::Number(x)))
+        }
+        ColumnReader::ByteArrayColumnReader(r) => {
+            read_chunk(r, max_def, cells, |v: &ByteArray| match converted {
+                C::UTF8 | C::ENUM | C::JSON => {
+                    Some(Typed::Text(std::str::from_utf8(v.data()).ok()?.to_owned()))
+                }
+                C::DECIMAL => decimal_cell(&Decimal::from_bytes(v.clone(), precision, scale)),
+                _ => None,
+            })
+        }
+        ColumnReader::FixedLenByteArrayColumnReader(r) => {
+            read_chunk(r, max_def, cells, |v: &FixedLenByteArray| match converted {
+                C::DECIMAL => decimal_cell(&Decimal::from_bytes((**v).clone(), precision, scale)),
+                _ => None,
+            })
+        }
+        ColumnReader::Int96ColumnReader(r) => read_chunk(r, max_def, cells, |_| None),
+    }
 }
 
 /// The least and greatest value of a column in a row group.
@@ -275,8 +370,9 @@ pub fn column_types(file: &File) -> Option<Vec<(String, Option<crate::model::Col
 /// A Parquet file opened for the columns a story reads.
 struct Opened {
     reader: SerializedFileReader<File>,
-    /// The fields decoded (the projection).
-    picked: Vec<Arc<Type>>,
+    /// The columns decoded (the projection): each one's place among the
+    /// file's columns and its leaf column in the schema.
+    picked: Vec<(usize, usize)>,
     /// Every column's name and whether it is decoded, in file order.
     names: Vec<(String, bool)>,
     /// No nested column: statistics line up with the fields.
@@ -290,7 +386,7 @@ fn damaged(name: &str, e: &dyn std::fmt::Display) -> LoadError {
         return LoadError::story(
             "data-file",
             format!("cannot read Parquet file `{name}`: it is compressed with {codec}, which crescendo does not read"),
-            Some("write it again with Snappy compression (or none), or export the data as CSV"),
+            Some("write it again with Snappy or zstd compression (or none), or export the data as CSV"),
         );
     }
     LoadError::story(
@@ -311,9 +407,10 @@ impl Opened {
             .schema_descr()
             .root_schema()
             .clone();
+        let descr = reader.metadata().file_metadata().schema_descr_ptr();
         let mut names = Vec::new();
-        let mut picked: Vec<Arc<Type>> = Vec::new();
-        for field in schema.get_fields() {
+        let mut picked = Vec::new();
+        for (k, field) in schema.get_fields().iter().enumerate() {
             let title = field.name().to_string();
             let keep = columns.keeps(&title) || spec.declared.iter().any(|(n, _)| *n == title);
             if keep {
@@ -324,7 +421,12 @@ impl Opened {
                         Some("columns are read as numbers, texts, dates, timestamps (as their day) and true/false; flatten or convert this column, or leave it unused"),
                     ));
                 }
-                picked.push(Arc::clone(field));
+                // a kept column is a leaf (groups are refused above)
+                let leaf = (0..descr.num_columns()).find(|&i| descr.get_column_root_idx(i) == k);
+                picked.push((
+                    k,
+                    leaf.ok_or_else(|| damaged(name, &"a column has no leaf"))?,
+                ));
             }
             names.push((title, keep));
         }
@@ -374,49 +476,32 @@ impl Opened {
         Ok(!keeps.iter().any(|e| may_hold(e, &spans)))
     }
 
-    /// The rows of group `g`: decoded into `cols` (the kept columns) and
-    /// their places pushed to `places`; returns the number of rows.
+    /// The rows of group `g`: its kept columns decoded into `cols`,
+    /// column chunk by column chunk; returns the number of rows.
     fn decode(
         &self,
         (name, limits): (&str, &ReadLimits),
         g: usize,
         cols: &mut [TypedColumn],
-        places: &mut Vec<(usize, usize)>,
     ) -> Result<usize, LoadError> {
         let group = self
             .reader
             .get_row_group(g)
             .map_err(|e| damaged(name, &e))?;
         let n = usize::try_from(group.metadata().num_rows()).unwrap_or(0);
-        let kept: Vec<usize> = (0..cols.len()).filter(|&j| cols[j].keep).collect();
-        if kept.is_empty() {
-            // no column is read: the rows are counted, not decoded
-            places.extend((0..n).map(|i| (g, i)));
-            return Ok(n);
-        }
-        // the projection's root must bear the file's root name ("schema"
-        // from some writers, "root" from others), or the reader refuses it
-        let root = self
-            .reader
-            .metadata()
-            .file_metadata()
-            .schema_descr()
-            .root_schema()
-            .name()
-            .to_owned();
-        let projection = Type::group_type_builder(&root)
-            .with_fields(self.picked.clone())
-            .build()
-            .map_err(|e| damaged(name, &e))?;
-        let iter = group
-            .get_row_iter(Some(projection))
-            .map_err(|e| damaged(name, &e))?;
-        let mut rows = 0;
-        for (i, row) in iter.enumerate() {
-            let row = row.map_err(|e| damaged(name, &e))?;
-            for ((_, field), &j) in row.get_column_iter().zip(&kept) {
-                let cell = typed(field).ok_or_else(|| {
-                    LoadError::story(
+        let schema = self.reader.metadata().file_metadata().schema_descr_ptr();
+        for &(j, leaf) in &self.picked {
+            let reader = group
+                .get_column_reader(leaf)
+                .map_err(|e| damaged(name, &e))?;
+            let cells = &mut cols[j].cells;
+            let start = cells.len();
+            cells.reserve(n);
+            match read_leaf(reader, &schema.column(leaf), cells) {
+                Ok(()) => {}
+                Err(Stop::Damaged(e)) => return Err(damaged(name, &e)),
+                Err(Stop::Unreadable(i)) => {
+                    return Err(LoadError::story(
                         "bad-value",
                         format!(
                             "column `{}` of Parquet file `{name}` holds a value crescendo cannot read in row group {}, row {}",
@@ -425,43 +510,50 @@ impl Opened {
                             i + 1
                         ),
                         None,
-                    )
-                })?;
-                if let Typed::Text(s) = &cell {
-                    if s.chars().count() > limits.text {
-                        return Err(LoadError::story(
-                            "too-long",
-                            format!(
-                                "column `{}` of `{name}`: a text is longer than {} characters",
-                                cols[j].name, limits.text
-                            ),
-                            Some("raise `--max-text`"),
-                        ));
-                    }
+                    ))
                 }
-                cols[j].cells.push(cell);
             }
-            places.push((g, i));
-            rows += 1;
+            let cells = &cols[j].cells[start..];
+            if cells.len() != n {
+                let why = format!(
+                    "column `{}` holds {} of the row group's {n} rows",
+                    cols[j].name,
+                    cells.len()
+                );
+                return Err(damaged(name, &why));
+            }
+            let long = |c: &Typed| matches!(c, Typed::Text(s) if s.len() > limits.text && s.chars().count() > limits.text);
+            if cells.iter().any(long) {
+                return Err(LoadError::story(
+                    "too-long",
+                    format!(
+                        "column `{}` of `{name}`: a text is longer than {} characters",
+                        cols[j].name, limits.text
+                    ),
+                    Some("raise `--max-text`"),
+                ));
+            }
         }
-        Ok(rows)
+        Ok(n)
     }
 }
 
-/// Where cell `(column j, row r)` is, for messages.
+/// Where cell `(column j, row r)` is, for messages; `starts`: the first
+/// row (over the rows read) of each row group read, and the group.
 fn place(
     name: &str,
     names: &[(String, bool)],
-    places: &[(usize, usize)],
+    starts: &[(usize, usize)],
     j: usize,
     r: usize,
 ) -> String {
-    let (g, i) = places.get(r).copied().unwrap_or((0, r));
+    let k = starts.partition_point(|&(first, _)| first <= r);
+    let (first, g) = k.checked_sub(1).map_or((0, 0), |k| starts[k]);
     format!(
         "Parquet file `{name}`, column `{}`, row {} (row {} of row group {})",
         names.get(j).map_or("", |n| n.0.as_str()),
         r + 1,
-        i + 1,
+        r - first + 1,
         g + 1
     )
 }
@@ -480,7 +572,7 @@ pub fn load_parquet_skipping(
     let opened = Opened::new(spec, file, columns)?;
     let mut cols = opened.columns();
     let mut rows = 0usize;
-    let mut places: Vec<(usize, usize)> = Vec::new();
+    let mut starts: Vec<(usize, usize)> = Vec::new();
     let mut skipped = 0;
     for g in 0..opened.reader.num_row_groups() {
         if opened.skips(name, g, keeps)? {
@@ -502,9 +594,10 @@ pub fn load_parquet_skipping(
                 Some("raise `--max-rows`"),
             ));
         }
-        rows += opened.decode((name.as_str(), limits), g, &mut cols, &mut places)?;
+        starts.push((rows, g));
+        rows += opened.decode((name.as_str(), limits), g, &mut cols)?;
     }
-    let locate = |j: usize, r: usize| place(name, &opened.names, &places, j, r);
+    let locate = |j: usize, r: usize| place(name, &opened.names, &starts, j, r);
     finish(spec, cols, rows, &locate).map(|t| (t, skipped))
 }
 
@@ -546,12 +639,12 @@ pub fn each_group(
             continue;
         }
         let mut cols = opened.columns();
-        let mut places = Vec::new();
-        let rows = opened.decode((name.as_str(), limits), g, &mut cols, &mut places)?;
+        let rows = opened.decode((name.as_str(), limits), g, &mut cols)?;
         if rows == 0 {
             continue;
         }
-        let locate = |j: usize, r: usize| place(name, &opened.names, &places, j, r);
+        let starts = [(0, g)];
+        let locate = |j: usize, r: usize| place(name, &opened.names, &starts, j, r);
         let table = finish(spec, cols, rows, &locate)?;
         done.read += 1;
         if !each(table) {

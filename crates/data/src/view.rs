@@ -98,7 +98,7 @@ pub fn overflow(t: &Table) -> Option<Overflow> {
 }
 
 /// Number of rows of a table (the length of its first column).
-fn row_count(t: &Table) -> usize {
+pub(crate) fn row_count(t: &Table) -> usize {
     t.columns.first().map_or(0, |c| c.values.len())
 }
 
@@ -204,23 +204,6 @@ pub(crate) fn eval<'a, R: Fn(usize) -> Cell<'a>>(row: &R, e: &'a Expr) -> Cell<'
     }
 }
 
-/// The rows of `t` (up to `most`) where `year_quarter(year, quarter)`
-/// meets two cells that make no quarter (see
-/// [`crate::bucket::bad_quarter`]), in row order.
-pub fn bad_quarters(
-    t: &Table,
-    (year, quarter): (&Expr, &Expr),
-    most: usize,
-) -> Vec<crate::bucket::BadQuarter> {
-    (0..row_count(t))
-        .filter_map(|r| {
-            let row = row_of(t, r);
-            crate::bucket::bad_quarter(r, eval(&row, year), eval(&row, quarter))
-        })
-        .take(most)
-        .collect()
-}
-
 /// Order of two non-missing cells of comparable kinds; `None` otherwise.
 pub(crate) fn compare_cells(a: Cell<'_>, b: Cell<'_>) -> Option<Ordering> {
     match (a, b) {
@@ -276,7 +259,7 @@ pub(crate) fn truth<'a, R: Fn(usize) -> Cell<'a>>(row: &R, e: &'a Expr) -> bool 
 }
 
 /// The cells of row `row` of `t`, for [`eval`] and [`truth`].
-fn row_of<'a>(t: &'a Table, row: usize) -> impl Fn(usize) -> Cell<'a> + 'a {
+pub(crate) fn row_of<'a>(t: &'a Table, row: usize) -> impl Fn(usize) -> Cell<'a> + 'a {
     move |c| cell(t, c, row)
 }
 
