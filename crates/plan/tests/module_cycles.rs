@@ -80,8 +80,11 @@ fn read_path(s: &str, mut head: Vec<String>, out: &mut Vec<Vec<String>>) {
         let name: String = s.chars().take_while(|c| is_ident(*c)).collect();
         if name.is_empty() {
             if let Some(group) = s.strip_prefix('{') {
-                for member in split_group(group) {
-                    read_path(member.trim(), head.clone(), out);
+                // a trailing comma leaves an empty member: not a path
+                for member in split_group(group).iter().map(|m| m.trim()) {
+                    if !member.is_empty() {
+                        read_path(member, head.clone(), out);
+                    }
                 }
                 return;
             }
@@ -291,6 +294,11 @@ fn cycles_are_found() {
         cycle(&edges).map(|c| show(&c)),
         Some("a → b → b::h → a".to_string())
     );
+    // a group written over several lines with a trailing comma (as
+    // rustfmt writes a long one) names its members, not its parent
+    let mut paths = Vec::new();
+    read_path("b::{\n    g,\n    h,\n};", Vec::new(), &mut paths);
+    assert_eq!(paths, vec![vec!["b", "g"], vec!["b", "h"]]);
     // without the path back from `b::h`, no cycle
     let mut fixed = edges.clone();
     fixed.insert("b::h".into(), BTreeSet::new());
