@@ -645,9 +645,12 @@ pub struct Groups {
 /// The file one row group at a time, each typed as [`load_parquet`] types
 /// a whole file, handed to `each` (which returns `false` to stop); row
 /// groups `keeps` rule out are skipped as in [`load_parquet_skipping`].
-/// Only one group's rows are held at a time. Empty groups are passed over.
-/// An error is the first problem met; the whole load reports the same
-/// problems with rows counted over the file.
+/// Empty groups are passed over. An error is the first problem met; the
+/// whole load reports the same problems with rows counted over the file.
+///
+/// With two cores or more, a second thread decodes the next row group
+/// while `each` takes the one before, so at most three groups' rows are
+/// held at a time; the groups reach `each` in file order either way.
 pub fn each_group(
     spec: &CsvSpec,
     file: &File,
@@ -656,34 +659,87 @@ pub fn each_group(
     keeps: &[Expr],
     each: &mut dyn FnMut(Table) -> bool,
 ) -> Result<Groups, LoadError> {
-    let name = &spec.display_name;
     let opened = Opened::new(spec, file, columns)?;
     let mut done = Groups {
         read: 0,
         skipped: 0,
         stopped: false,
     };
-    for g in 0..opened.reader.num_row_groups() {
-        if opened.skips(name, g, keeps)? {
-            done.skipped += 1;
-            continue;
+    let groups = opened.reader.num_row_groups();
+    let read = |g: usize| read_group(&opened, (spec, limits), keeps, g);
+    let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
+    if groups < 2 || cores < 2 {
+        for g in 0..groups {
+            if !hand_on(read(g)?, &mut done, each) {
+                break;
+            }
         }
-        let mut cols = opened.columns();
-        let mut flats: Vec<Option<Flat>> = cols.iter().map(|_| None).collect();
-        let rows = opened.decode((name.as_str(), limits), g, &mut cols, Some(&mut flats))?;
-        if rows == 0 {
-            continue;
+        return Ok(done);
+    }
+    std::thread::scope(|s| {
+        let (tx, rx) = std::sync::mpsc::sync_channel(1);
+        s.spawn(move || {
+            for g in 0..groups {
+                let r = read(g);
+                let failed = r.is_err();
+                // a closed channel: `each` stopped, or a problem was met
+                if tx.send(r).is_err() || failed {
+                    break;
+                }
+            }
+        });
+        for r in rx {
+            if !hand_on(r?, &mut done, each) {
+                break;
+            }
         }
-        let starts = [(0, g)];
-        let locate = |j: usize, r: usize| place(name, &opened.names, &starts, j, r);
-        let table = finish_flat(spec, cols, flats, rows, &locate)?;
-        done.read += 1;
-        if !each(table) {
-            done.stopped = true;
-            break;
+        Ok(done)
+    })
+}
+
+/// A row group as [`each_group`] reads it.
+enum Read {
+    Skipped,
+    Empty,
+    Rows(Table),
+}
+
+/// Row group `g` skipped by its statistics, empty, or decoded and typed.
+fn read_group(
+    opened: &Opened,
+    (spec, limits): (&CsvSpec, &ReadLimits),
+    keeps: &[Expr],
+    g: usize,
+) -> Result<Read, LoadError> {
+    let name = &spec.display_name;
+    if opened.skips(name, g, keeps)? {
+        return Ok(Read::Skipped);
+    }
+    let mut cols = opened.columns();
+    let mut flats: Vec<Option<Flat>> = cols.iter().map(|_| None).collect();
+    let rows = opened.decode((name.as_str(), limits), g, &mut cols, Some(&mut flats))?;
+    if rows == 0 {
+        return Ok(Read::Empty);
+    }
+    let starts = [(0, g)];
+    let locate = |j: usize, r: usize| place(name, &opened.names, &starts, j, r);
+    finish_flat(spec, cols, flats, rows, &locate).map(Read::Rows)
+}
+
+/// Count a row group read and hand its rows to `each`; `false`: stop.
+fn hand_on(read: Read, done: &mut Groups, each: &mut dyn FnMut(Table) -> bool) -> bool {
+    match read {
+        Read::Skipped => done.skipped += 1,
+        Read::Empty => {}
+        Read::Rows(table) => {
+            done.read += 1;
+            if !each(table) {
+                done.stopped = true;
+                return false;
+            }
         }
     }
-    Ok(done)
+    true
 }
 
 #[cfg(test)]
