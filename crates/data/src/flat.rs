@@ -195,8 +195,15 @@ pub(crate) fn read_flat(
         ColumnReader::ByteArrayColumnReader(r) => match converted {
             C::UTF8 | C::ENUM | C::JSON => {
                 let mut dict = Dict::default();
+                let mut seen = Seen::default();
                 let ids = chunk(r, max_def, NO_TEXT, |v: &ByteArray| {
-                    dict.intern(std::str::from_utf8(v.data()).ok()?)
+                    let bytes = v.data();
+                    if let Some(id) = seen.get(bytes, &dict) {
+                        return Some(id);
+                    }
+                    let id = dict.intern(std::str::from_utf8(bytes).ok()?)?;
+                    seen.put(bytes, id);
+                    Some(id)
                 })?;
                 ids.map(|ids| Flat::Texts(ids, dict))
             }
@@ -204,6 +211,46 @@ pub(crate) fn read_flat(
         },
         _ => None,
     })
+}
+
+/// Slots of [`Seen`] (a power of two).
+const SEEN_SLOTS: usize = 1024;
+
+/// The ids of texts recently read, by where their bytes lie: values read
+/// through a Parquet dictionary are slices of the one dictionary page, so
+/// the same text comes back at the same address. A slot is a hint only:
+/// its text is compared with the dictionary's before its id is taken, so
+/// a reused address never gives a wrong id. Hashing each text and
+/// checking it is UTF-8 took a third of a scan.
+struct Seen {
+    slots: Vec<(usize, u32)>,
+}
+
+impl Default for Seen {
+    fn default() -> Seen {
+        Seen {
+            slots: vec![(0, NO_TEXT); SEEN_SLOTS],
+        }
+    }
+}
+
+impl Seen {
+    fn slot(bytes: &[u8]) -> usize {
+        // Fibonacci hashing of the address (Knuth, TAOCP vol. 3, 6.4)
+        let at = bytes.as_ptr() as u64;
+        (at.wrapping_mul(0x9E37_79B9_7F4A_7C15) >> 54) as usize & (SEEN_SLOTS - 1)
+    }
+
+    /// The id of `bytes` if its slot holds it (the same text).
+    fn get(&self, bytes: &[u8], dict: &Dict) -> Option<u32> {
+        let (at, id) = self.slots[Self::slot(bytes)];
+        (at == bytes.as_ptr() as usize && id != NO_TEXT && dict.get(id).as_bytes() == bytes)
+            .then_some(id)
+    }
+
+    fn put(&mut self, bytes: &[u8], id: u32) {
+        self.slots[Self::slot(bytes)] = (bytes.as_ptr() as usize, id);
+    }
 }
 
 /// The column of a flat chunk, typed as [`crate::typed::finish`] types the
