@@ -90,7 +90,7 @@ impl Dict {
     }
 
     /// The id of `s`, added when new; `None` when the dictionary is full.
-    fn intern(&mut self, s: &str) -> Option<u32> {
+    pub(crate) fn intern(&mut self, s: &str) -> Option<u32> {
         let h = hash_bytes(s.as_bytes());
         let Dict { text, ends, index } = self;
         if let Some(&id) = index.find(h, |&id| slice(text, ends, id) == s) {
@@ -283,6 +283,68 @@ impl Values {
             let mut all: Vec<Value> = (0..store.len()).map(|r| store.cell(r).to_value()).collect();
             all.push(c.to_value());
             *store = Store::Mixed(all);
+        }
+    }
+
+    /// A column of numbers (`NaN` marks a missing cell), as pushing each
+    /// one gives it: all missing is a column of missing cells.
+    pub(crate) fn from_numbers(v: Vec<f64>) -> Values {
+        if v.iter().all(|x| x.is_nan()) {
+            return Values::missing(v.len());
+        }
+        Values(Arc::new(Store::Numbers(v)))
+    }
+
+    /// A column of dates, months or years (by `ty`; `i32::MIN` marks a
+    /// missing cell), as pushing each one gives it; the cells back for
+    /// another type.
+    pub(crate) fn from_times(ty: crate::model::ColType, v: Vec<i32>) -> Result<Values, Vec<i32>> {
+        use crate::model::ColType;
+        let kind = match ty {
+            ColType::Date => Time::Date,
+            ColType::Month => Time::Month,
+            ColType::Year => Time::Year,
+            ColType::Number | ColType::Text => return Err(v),
+        };
+        if v.iter().all(|&t| t == NO_TIME) {
+            return Ok(Values::missing(v.len()));
+        }
+        Ok(Values(Arc::new(Store::Times(kind, v))))
+    }
+
+    /// A column of texts by their ids in `dict` (`u32::MAX` marks a
+    /// missing cell), as pushing each one gives it when `dict` holds the
+    /// texts in order of first appearance.
+    pub(crate) fn from_texts(ids: Vec<u32>, dict: Dict) -> Values {
+        if ids.iter().all(|&id| id == NO_TEXT) {
+            return Values::missing(ids.len());
+        }
+        Values(Arc::new(Store::Texts(ids, Arc::new(dict))))
+    }
+
+    /// The column's texts as ids into its dictionary (`u32::MAX`:
+    /// missing), when it is held so.
+    pub(crate) fn text_ids(&self) -> Option<(&[u32], &Dict)> {
+        match &*self.0 {
+            Store::Texts(v, d) => Some((v, d)),
+            _ => None,
+        }
+    }
+
+    /// The column's dates, months or years (`i32::MIN`: missing), when it
+    /// is held so.
+    pub(crate) fn times(&self) -> Option<&[i32]> {
+        match &*self.0 {
+            Store::Times(_, v) => Some(v),
+            _ => None,
+        }
+    }
+
+    /// The column's numbers (`NaN`: missing), when it is held so.
+    pub(crate) fn numbers(&self) -> Option<&[f64]> {
+        match &*self.0 {
+            Store::Numbers(v) => Some(v),
+            _ => None,
         }
     }
 

@@ -1,6 +1,7 @@
 //! The streaming engine of [`crate::stream`] fed with whole tables (the
 //! typed row groups of a Parquet file) instead of CSV records.
 
+use crate::colfold::FastGroups;
 use crate::groups::Groups;
 use crate::load::ReadLimits;
 use crate::model::Values;
@@ -34,6 +35,10 @@ pub struct Fold<'a> {
     sink: Sink<'a>,
     schema: Vec<(String, ColType)>,
     states: Vec<ViewState>,
+    /// Per view: its group step evaluated column by column, when its
+    /// aggregates allow (see [`crate::colfold`]); its state in `states`
+    /// is then unused.
+    fast: Vec<Option<FastGroups>>,
     watches: Vec<Watch>,
     kept: Vec<usize>,
     keybuf: Vec<u8>,
@@ -58,6 +63,13 @@ impl<'a> Fold<'a> {
             },
             schema,
             states,
+            fast: views
+                .iter()
+                .map(|v| {
+                    let (keys, aggs) = v.group.as_ref()?;
+                    FastGroups::new(keys, aggs)
+                })
+                .collect(),
             watches: views.iter().map(|v| Watch::new(&v.keeps)).collect(),
             kept: vec![0; views.len()],
             keybuf: Vec::with_capacity(64),
@@ -77,18 +89,50 @@ impl<'a> Fold<'a> {
             return false;
         }
         let n = t.columns.first().map_or(0, |c| c.values.len());
+        let cell =
+            |c: usize, r: usize| t.columns.get(c).map_or(Cell::Missing, |v| v.values.cell(r));
         let mut cells: Vec<Cell<'_>> = Vec::with_capacity(t.columns.len());
-        for r in 0..n {
-            cells.clear();
-            cells.extend(t.columns.iter().map(|c| c.values.cell(r)));
-            let views = (&mut self.states[..], &mut self.watches[..]);
-            let (kept, keybuf) = (&mut self.kept, &mut self.keybuf);
-            if !add_record(&self.sink, &cells, views, kept, keybuf) {
-                return false;
+        for vi in 0..self.sink.views.len() {
+            let keeps = &self.sink.views[vi].keeps;
+            let watch = &mut self.watches[vi];
+            match &mut self.fast[vi] {
+                // once every `keep` text was met, the whole table at once
+                Some(f) if watch.settled() => f.add_table(t, keeps, &mut self.keybuf),
+                Some(f) => {
+                    for r in 0..n {
+                        let row = |c: usize| cell(c, r);
+                        if watch.passes(&row, keeps) {
+                            f.add_row(&mut self.keybuf, &row);
+                        }
+                    }
+                }
+                None => {
+                    let sink = Sink {
+                        views: &self.sink.views[vi..=vi],
+                        ..self.sink
+                    };
+                    for r in 0..n {
+                        cells.clear();
+                        cells.extend(t.columns.iter().map(|c| c.values.cell(r)));
+                        let views = (&mut self.states[vi..=vi], &mut self.watches[vi..=vi]);
+                        let kept = &mut self.kept[vi..=vi];
+                        if !add_record(&sink, &cells, views, kept, &mut self.keybuf) {
+                            return false;
+                        }
+                    }
+                }
             }
         }
         self.rows += n;
         true
+    }
+
+    /// The same fold, every view evaluated row by row (for tests of the
+    /// column-by-column evaluation).
+    #[cfg(test)]
+    pub(crate) fn row_by_row(mut self) -> Fold<'a> {
+        self.fast.iter_mut().for_each(|f| *f = None);
+        self
     }
 
     /// Rows folded in so far.
@@ -117,8 +161,11 @@ impl<'a> Fold<'a> {
             self.sink
                 .views
                 .iter()
-                .zip(self.states)
-                .map(|(v, state)| finish(schema, v, state))
+                .zip(self.states.into_iter().zip(self.fast))
+                .map(|(v, (state, fast))| match (fast, &v.group) {
+                    (Some(f), Some((_, aggs))) => f.finish(schema, aggs),
+                    _ => finish(schema, v, state),
+                })
                 .collect(),
         )
     }

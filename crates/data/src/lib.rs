@@ -2,9 +2,11 @@
 //! runs resolved view steps, and number/date formatting.
 
 pub mod bucket;
+mod colfold;
 pub mod column;
 pub mod digits;
 pub mod files;
+mod flat;
 pub mod fold;
 pub mod format;
 mod groups;

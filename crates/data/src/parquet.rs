@@ -43,9 +43,10 @@ use parquet::data_type::{ByteArray, DataType, Decimal, FixedLenByteArray};
 use parquet::file::reader::{FileReader, SerializedFileReader};
 use parquet::schema::types::{ColumnDescriptor, Type};
 
+use crate::flat::{read_flat, Flat};
 use crate::load::{parse_number, Columns, CsvSpec, LoadError, ReadLimits};
 use crate::model::{CmpOp, Expr, Table, Value};
-use crate::typed::{finish, Typed, TypedColumn};
+use crate::typed::{finish, finish_flat, Typed, TypedColumn};
 
 /// Files read here, by name.
 pub fn is_parquet(path: &std::path::Path) -> bool {
@@ -477,12 +478,15 @@ impl Opened {
     }
 
     /// The rows of group `g`: its kept columns decoded into `cols`,
-    /// column chunk by column chunk; returns the number of rows.
+    /// column chunk by column chunk; returns the number of rows. With
+    /// `flats` (one per column), a chunk that can be is decoded flat into
+    /// it instead (see [`crate::flat`]).
     fn decode(
         &self,
         (name, limits): (&str, &ReadLimits),
         g: usize,
         cols: &mut [TypedColumn],
+        mut flats: Option<&mut [Option<Flat>]>,
     ) -> Result<usize, LoadError> {
         let group = self
             .reader
@@ -491,6 +495,28 @@ impl Opened {
         let n = usize::try_from(group.metadata().num_rows()).unwrap_or(0);
         let schema = self.reader.metadata().file_metadata().schema_descr_ptr();
         for &(j, leaf) in &self.picked {
+            if let Some(slot) = flats.as_deref_mut().and_then(|f| f.get_mut(j)) {
+                let reader = group
+                    .get_column_reader(leaf)
+                    .map_err(|e| damaged(name, &e))?;
+                let flat =
+                    read_flat(reader, &schema.column(leaf)).map_err(|e| damaged(name, &e))?;
+                if let Some(flat) = flat {
+                    if flat.len() != n {
+                        let why = format!(
+                            "column `{}` holds {} of the row group's {n} rows",
+                            cols[j].name,
+                            flat.len()
+                        );
+                        return Err(damaged(name, &why));
+                    }
+                    if flat.too_long(limits.text) {
+                        return Err(too_long(name, &cols[j].name, limits));
+                    }
+                    *slot = Some(flat);
+                    continue;
+                }
+            }
             let reader = group
                 .get_column_reader(leaf)
                 .map_err(|e| damaged(name, &e))?;
@@ -524,18 +550,22 @@ impl Opened {
             }
             let long = |c: &Typed| matches!(c, Typed::Text(s) if s.len() > limits.text && s.chars().count() > limits.text);
             if cells.iter().any(long) {
-                return Err(LoadError::story(
-                    "too-long",
-                    format!(
-                        "column `{}` of `{name}`: a text is longer than {} characters",
-                        cols[j].name, limits.text
-                    ),
-                    Some("raise `--max-text`"),
-                ));
+                return Err(too_long(name, &cols[j].name, limits));
             }
         }
         Ok(n)
     }
+}
+
+fn too_long(name: &str, column: &str, limits: &ReadLimits) -> LoadError {
+    LoadError::story(
+        "too-long",
+        format!(
+            "column `{column}` of `{name}`: a text is longer than {} characters",
+            limits.text
+        ),
+        Some("raise `--max-text`"),
+    )
 }
 
 /// Where cell `(column j, row r)` is, for messages; `starts`: the first
@@ -595,7 +625,7 @@ pub fn load_parquet_skipping(
             ));
         }
         starts.push((rows, g));
-        rows += opened.decode((name.as_str(), limits), g, &mut cols)?;
+        rows += opened.decode((name.as_str(), limits), g, &mut cols, None)?;
     }
     let locate = |j: usize, r: usize| place(name, &opened.names, &starts, j, r);
     finish(spec, cols, rows, &locate).map(|t| (t, skipped))
@@ -615,9 +645,12 @@ pub struct Groups {
 /// The file one row group at a time, each typed as [`load_parquet`] types
 /// a whole file, handed to `each` (which returns `false` to stop); row
 /// groups `keeps` rule out are skipped as in [`load_parquet_skipping`].
-/// Only one group's rows are held at a time. Empty groups are passed over.
-/// An error is the first problem met; the whole load reports the same
-/// problems with rows counted over the file.
+/// Empty groups are passed over. An error is the first problem met; the
+/// whole load reports the same problems with rows counted over the file.
+///
+/// With two cores or more, a second thread decodes the next row group
+/// while `each` takes the one before, so at most three groups' rows are
+/// held at a time; the groups reach `each` in file order either way.
 pub fn each_group(
     spec: &CsvSpec,
     file: &File,
@@ -626,33 +659,87 @@ pub fn each_group(
     keeps: &[Expr],
     each: &mut dyn FnMut(Table) -> bool,
 ) -> Result<Groups, LoadError> {
-    let name = &spec.display_name;
     let opened = Opened::new(spec, file, columns)?;
     let mut done = Groups {
         read: 0,
         skipped: 0,
         stopped: false,
     };
-    for g in 0..opened.reader.num_row_groups() {
-        if opened.skips(name, g, keeps)? {
-            done.skipped += 1;
-            continue;
+    let groups = opened.reader.num_row_groups();
+    let read = |g: usize| read_group(&opened, (spec, limits), keeps, g);
+    let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
+    if groups < 2 || cores < 2 {
+        for g in 0..groups {
+            if !hand_on(read(g)?, &mut done, each) {
+                break;
+            }
         }
-        let mut cols = opened.columns();
-        let rows = opened.decode((name.as_str(), limits), g, &mut cols)?;
-        if rows == 0 {
-            continue;
+        return Ok(done);
+    }
+    std::thread::scope(|s| {
+        let (tx, rx) = std::sync::mpsc::sync_channel(1);
+        s.spawn(move || {
+            for g in 0..groups {
+                let r = read(g);
+                let failed = r.is_err();
+                // a closed channel: `each` stopped, or a problem was met
+                if tx.send(r).is_err() || failed {
+                    break;
+                }
+            }
+        });
+        for r in rx {
+            if !hand_on(r?, &mut done, each) {
+                break;
+            }
         }
-        let starts = [(0, g)];
-        let locate = |j: usize, r: usize| place(name, &opened.names, &starts, j, r);
-        let table = finish(spec, cols, rows, &locate)?;
-        done.read += 1;
-        if !each(table) {
-            done.stopped = true;
-            break;
+        Ok(done)
+    })
+}
+
+/// A row group as [`each_group`] reads it.
+enum Read {
+    Skipped,
+    Empty,
+    Rows(Table),
+}
+
+/// Row group `g` skipped by its statistics, empty, or decoded and typed.
+fn read_group(
+    opened: &Opened,
+    (spec, limits): (&CsvSpec, &ReadLimits),
+    keeps: &[Expr],
+    g: usize,
+) -> Result<Read, LoadError> {
+    let name = &spec.display_name;
+    if opened.skips(name, g, keeps)? {
+        return Ok(Read::Skipped);
+    }
+    let mut cols = opened.columns();
+    let mut flats: Vec<Option<Flat>> = cols.iter().map(|_| None).collect();
+    let rows = opened.decode((name.as_str(), limits), g, &mut cols, Some(&mut flats))?;
+    if rows == 0 {
+        return Ok(Read::Empty);
+    }
+    let starts = [(0, g)];
+    let locate = |j: usize, r: usize| place(name, &opened.names, &starts, j, r);
+    finish_flat(spec, cols, flats, rows, &locate).map(Read::Rows)
+}
+
+/// Count a row group read and hand its rows to `each`; `false`: stop.
+fn hand_on(read: Read, done: &mut Groups, each: &mut dyn FnMut(Table) -> bool) -> bool {
+    match read {
+        Read::Skipped => done.skipped += 1,
+        Read::Empty => {}
+        Read::Rows(table) => {
+            done.read += 1;
+            if !each(table) {
+                done.stopped = true;
+                return false;
+            }
         }
     }
-    Ok(done)
+    true
 }
 
 #[cfg(test)]

@@ -107,6 +107,11 @@ impl Watch {
         }
     }
 
+    /// Has every probe found its text (so rows need no more looking at)?
+    pub(crate) fn settled(&self) -> bool {
+        self.open == 0
+    }
+
     /// Does the row pass every `keep`? Probes of a step look at the row
     /// when it passed the steps before.
     pub(crate) fn passes<'c>(

@@ -14,6 +14,7 @@
 use crescendo_diag::closest;
 
 use crate::digits::NumberStyle;
+use crate::flat::{flat_column, Flat};
 use crate::load::{parse_as, CsvSpec, LoadError, MAX_ERRORS};
 use crate::model::{ColType, Column, Table, Value, Values};
 use crate::time::{date_iso, month_of_day, parse_date, parse_month};
@@ -81,6 +82,49 @@ pub fn finish_after(
     locate: Locate<'_>,
     mut errs: Vec<LoadError>,
 ) -> Result<Table, LoadError> {
+    check(spec, &columns, rows)?;
+    let mut out = Vec::with_capacity(columns.len());
+    for (j, c) in columns.into_iter().enumerate() {
+        out.push(typed_column(spec, (j, c), rows, locate, &mut errs));
+    }
+    if !errs.is_empty() {
+        return Err(all_of(errs, &spec.display_name));
+    }
+    Ok(Table { columns: out })
+}
+
+/// [`finish`] of columns some of which were read flat (`flats[j]` for
+/// column `j`, see [`crate::flat`]): the same table, or the same errors.
+pub(crate) fn finish_flat(
+    spec: &CsvSpec,
+    columns: Vec<TypedColumn>,
+    flats: Vec<Option<Flat>>,
+    rows: usize,
+    locate: Locate<'_>,
+) -> Result<Table, LoadError> {
+    check(spec, &columns, rows)?;
+    let mut errs = Vec::new();
+    let mut out = Vec::with_capacity(columns.len());
+    for (j, (mut c, flat)) in columns.into_iter().zip(flats).enumerate() {
+        if let Some(flat) = flat {
+            match flat_column(spec, (&c.name, c.keep), flat) {
+                Ok(column) => {
+                    out.push(column);
+                    continue;
+                }
+                Err(flat) => c.cells = flat.typed(),
+            }
+        }
+        out.push(typed_column(spec, (j, c), rows, locate, &mut errs));
+    }
+    if !errs.is_empty() {
+        return Err(all_of(errs, &spec.display_name));
+    }
+    Ok(Table { columns: out })
+}
+
+/// The declared columns are present and there are rows.
+fn check(spec: &CsvSpec, columns: &[TypedColumn], rows: usize) -> Result<(), LoadError> {
     let names: Vec<&str> = columns.iter().map(|c| c.name.as_str()).collect();
     for (i, (want, _)) in spec.declared.iter().enumerate() {
         if !names.contains(&want.as_str()) {
@@ -107,90 +151,90 @@ pub fn finish_after(
             None,
         ));
     }
-    let mut out = Vec::with_capacity(columns.len());
-    for (j, c) in columns.into_iter().enumerate() {
-        let declared = spec
-            .declared
-            .iter()
-            .find(|(n, _)| *n == c.name)
-            .map(|(_, t)| *t);
-        if !c.keep && declared.is_none() {
-            out.push(Column {
-                name: c.name,
-                ty: ColType::Text,
-                values: Values::missing(rows),
-            });
-            continue;
-        }
-        let cells: Vec<Typed> = c
-            .cells
-            .into_iter()
-            .map(|t| match t {
-                Typed::Text(s) if spec.missing.contains(&s) => Typed::Missing,
-                t => t,
-            })
-            .collect();
-        let ty = match declared {
-            Some(t) => t,
-            None => infer(&cells, &spec.numbers),
+    Ok(())
+}
+
+/// Column `j` typed; the cells that do not convert are added to `errs`
+/// (up to [`MAX_ERRORS`]).
+fn typed_column(
+    spec: &CsvSpec,
+    (j, c): (usize, TypedColumn),
+    rows: usize,
+    locate: Locate<'_>,
+    errs: &mut Vec<LoadError>,
+) -> Column {
+    let declared = spec
+        .declared
+        .iter()
+        .find(|(n, _)| *n == c.name)
+        .map(|(_, t)| *t);
+    if !c.keep && declared.is_none() {
+        return Column {
+            name: c.name,
+            ty: ColType::Text,
+            values: Values::missing(rows),
         };
-        let mut values = Vec::with_capacity(rows);
-        for (r, cell) in cells.iter().enumerate() {
-            match convert(cell, ty, &spec.numbers) {
-                Some(v) => values.push(v),
-                None => {
-                    let what = match cell {
-                        Typed::Text(s) => format!("the text `{s}`"),
-                        Typed::Number(x) => format!("the number {x}"),
-                        Typed::Date(d) => format!("the date {}", date_iso(*d)),
-                        Typed::Bool(b) => format!("`{b}`"),
-                        Typed::Missing => "nothing".to_string(),
-                    };
-                    values.push(Value::Missing);
-                    if errs.len() >= MAX_ERRORS {
-                        continue;
-                    }
-                    errs.push(located(
-                        "bad-value",
-                        format!(
-                            "column `{}` is declared {}, but {} holds {what}",
-                            c.name,
-                            ty.name(),
-                            locate(j, r)
-                        ),
-                        Some(match cell {
-                            // a real value: never suggest reading it as missing
-                            Typed::Text(s) if ty == ColType::Number && crate::digits::suggest(s).is_some() => format!(
-                                "name how the file writes its numbers on the data item: `{}`",
-                                crate::digits::suggest(s).unwrap_or_default()
-                            ),
-                            _ => format!(
-                                "correct that cell, declare `{}` as text, or add its text to the missing-value tokens if it means no value",
-                                c.name
-                            ),
-                        }),
-                    ));
+    }
+    let cells: Vec<Typed> = c
+        .cells
+        .into_iter()
+        .map(|t| match t {
+            Typed::Text(s) if spec.missing.contains(&s) => Typed::Missing,
+            t => t,
+        })
+        .collect();
+    let ty = match declared {
+        Some(t) => t,
+        None => infer(&cells, &spec.numbers),
+    };
+    let mut values = Vec::with_capacity(rows);
+    for (r, cell) in cells.iter().enumerate() {
+        match convert(cell, ty, &spec.numbers) {
+            Some(v) => values.push(v),
+            None => {
+                let what = match cell {
+                    Typed::Text(s) => format!("the text `{s}`"),
+                    Typed::Number(x) => format!("the number {x}"),
+                    Typed::Date(d) => format!("the date {}", date_iso(*d)),
+                    Typed::Bool(b) => format!("`{b}`"),
+                    Typed::Missing => "nothing".to_string(),
+                };
+                values.push(Value::Missing);
+                if errs.len() >= MAX_ERRORS {
+                    continue;
                 }
+                errs.push(located(
+                    "bad-value",
+                    format!(
+                        "column `{}` is declared {}, but {} holds {what}",
+                        c.name,
+                        ty.name(),
+                        locate(j, r)
+                    ),
+                    Some(match cell {
+                        // a real value: never suggest reading it as missing
+                        Typed::Text(s) if ty == ColType::Number && crate::digits::suggest(s).is_some() => format!(
+                            "name how the file writes its numbers on the data item: `{}`",
+                            crate::digits::suggest(s).unwrap_or_default()
+                        ),
+                        _ => format!(
+                            "correct that cell, declare `{}` as text, or add its text to the missing-value tokens if it means no value",
+                            c.name
+                        ),
+                    }),
+                ));
             }
         }
-        if c.keep {
-            out.push(Column {
-                name: c.name,
-                ty,
-                values: values.into_iter().collect(),
-            });
+    }
+    Column {
+        name: c.name,
+        ty,
+        values: if c.keep {
+            values.into_iter().collect()
         } else {
-            out.push(Column {
-                name: c.name,
-                ty,
-                values: Values::missing(rows),
-            });
-        }
+            Values::missing(rows)
+        },
     }
-    if !errs.is_empty() {
-        return Err(all_of(errs, &spec.display_name));
-    }
-    Ok(Table { columns: out })
 }
 
 /// Problems of one read as one error: the one, or all of them (each with
