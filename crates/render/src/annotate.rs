@@ -8,12 +8,13 @@ use crate::canvas::{Align, Canvas, Label};
 use crate::fit;
 use crate::kit::{self, faint_fill, rect, Obstacles, Rect};
 use crate::line_layout::LineLayout;
+use crate::mark_notes;
 use crate::metrics::{self, line_height, text_width};
 use crate::place::{self, Pick};
 use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{Annotation, LineChart, Role};
-use crescendo_look::display::{NoteOf, Part};
+use crescendo_look::display::Part;
 
 /// Widest a callout's text may be before it wraps (at 16 px labels;
 /// [`Theme::label_scaled`]).
@@ -256,7 +257,6 @@ fn callouts(
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
     let (xm, ym) = (l.xmap(chart), l.ymap(chart));
-    let lh = line_height(theme.label_size);
     let area = l.note_bounds(theme);
     let plot_w = l.plot_right - l.plot_left;
     let callouts = chart.annotations.iter().filter_map(|a| match a {
@@ -277,12 +277,7 @@ fn callouts(
         if lines.is_empty() {
             continue;
         }
-        let step = theme.label_step();
-        let w = lines
-            .iter()
-            .map(|t| text_width(t, theme.label_size, false))
-            .fold(0.0, f64::max);
-        let h = (lines.len() - 1) as f64 * step + lh;
+        let (w, h) = mark_notes::block_size(theme, &lines);
         let p = (xm(*x), ym(*y));
         // nearest free spot around the point (clear of lines, marks and
         // text) whose leader crosses no other line or mark (a leader over
@@ -292,20 +287,7 @@ fn callouts(
         let lead = |r: &Rect| place::leader(p, r);
         let chosen = place::pick_led(&cands, obstacles, &area, lead)
             .or_else(|| choose(&cands, obstacles, &area, true));
-        if chosen.is_some() {
-            fit::note(canvas, text, &lines)?;
-        }
-        let part = place::note_part(NoteOf::Callout(k), chosen, obstacles);
-        canvas.group(part, || {
-            let Some(r) = chosen else { return Ok(()) };
-            // Leader from near the point to the nearest edge of the text block.
-            if let Some((from, to)) = place::leader(p, &r) {
-                canvas.line(from, to, theme.muted, 1)?;
-                obstacles.segments.push((from, to));
-            }
-            let style = (theme.label_size, false, theme.takeaway);
-            kit::put_lines(canvas, obstacles, &lines, (&r, step), style)
-        })?;
+        mark_notes::put_callout(canvas, theme, obstacles, (k, text, &lines), p, chosen)?;
     }
     Ok(())
 }
