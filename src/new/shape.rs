@@ -265,19 +265,19 @@ fn aggregated(agg: &str, per: &str) -> String {
 /// drawn against the first in a scatter (never added to it).
 #[derive(Clone, Debug, PartialEq)]
 pub struct TrendShape {
-    pub time: String,
-    pub measure: String,
-    pub agg: &'static str,
-    pub series: Option<String>,
-    pub parts: Option<String>,
+    time: String,
+    measure: String,
+    agg: &'static str,
+    series: Option<String>,
+    parts: Option<String>,
     /// `(year, quarter)`: the time is made of these two columns as one
     /// quarterly time (`year_quarter(year, quarter)`), named `time`.
-    pub made: Option<(String, String)>,
-    pub other: Option<String>,
-    pub other_agg: &'static str,
+    made: Option<(String, String)>,
+    other: Option<String>,
+    other_agg: &'static str,
     /// A text column whose values are different measures (a long
     /// file) with too many of them for one line each: one is kept.
-    pub only: Option<(String, String)>,
+    only: Option<(String, String)>,
 }
 
 impl TrendShape {
