@@ -160,14 +160,17 @@ impl Content {
     }
 
     /// A chart of items by parts (stacked or grouped bars, dots by
-    /// series): the parts' roles, then each item's role and its value for
-    /// each part, in order.
+    /// series): its category and value titles, the parts' roles, then each
+    /// item's role and its value for each part, in order.
     fn grid<'a>(
         &mut self,
         p: &str,
+        (category, value): (&Option<String>, &Option<String>),
         parts: &[(&str, Role)],
         items: impl Iterator<Item = (&'a str, Role, &'a [Option<f64>])>,
     ) {
+        self.title("category title", p, category);
+        self.title("value title", p, value);
         for (name, r) in parts {
             self.roles.push((format!("{p}{name}"), role(*r)));
         }
@@ -207,26 +210,15 @@ impl Content {
                 }
             }
             Chart::Parts(c) => {
-                self.title("category title", p, &c.category_title);
-                self.title("value title", p, &c.value.title);
                 let parts: Vec<_> = c.parts.iter().map(|x| (x.name.as_str(), x.role)).collect();
-                let cats = c.categories.iter();
-                self.grid(
-                    p,
-                    &parts,
-                    cats.map(|x| (x.label.as_str(), x.role, &x.values[..])),
-                );
+                let cats = (c.categories.iter()).map(|x| (x.label.as_str(), x.role, &x.values[..]));
+                let titles = (&c.category_title, &c.value.title);
+                self.grid(p, titles, &parts, cats);
             }
             Chart::Dots(d) => {
-                self.title("category title", p, &d.category_title);
-                self.title("value title", p, &d.value.title);
                 let series: Vec<_> = d.series.iter().map(|x| (x.name.as_str(), x.role)).collect();
-                let rows = d.rows.iter();
-                self.grid(
-                    p,
-                    &series,
-                    rows.map(|x| (x.label.as_str(), x.role, &x.values[..])),
-                );
+                let rows = (d.rows.iter()).map(|x| (x.label.as_str(), x.role, &x.values[..]));
+                self.grid(p, (&d.category_title, &d.value.title), &series, rows);
             }
             Chart::Scatter(s) => {
                 self.title("x title", p, &s.x.title);

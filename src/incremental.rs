@@ -307,18 +307,9 @@ mod tests {
     fn deck(frames: Vec<FramePlan>) -> DeckPlan {
         DeckPlan {
             title: "t".into(),
-            byline: None,
-            source: None,
             theme: "clear".into(),
-            conclusion: None,
-            accent: None,
-            style: None,
-            values: Default::default(),
-            exact: Default::default(),
-            claims: Vec::new(),
             frames,
-            locale: None,
-            fiscal_start: None,
+            ..Default::default()
         }
     }
 

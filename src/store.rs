@@ -192,10 +192,16 @@ impl Io for Reading {
 mod tests {
     use super::*;
 
+    /// An empty scratch folder of this test process.
+    pub(super) fn scratch(name: &str) -> PathBuf {
+        let d = std::env::temp_dir().join(format!("crescendo-{name}-{}", std::process::id()));
+        let _ = fs::remove_dir_all(&d);
+        d
+    }
+
     #[test]
     fn corrupt_or_foreign_entries_are_ignored() {
-        let dir = std::env::temp_dir().join(format!("crescendo-cache-test-{}", std::process::id()));
-        let _ = fs::remove_dir_all(&dir);
+        let dir = scratch("cache-test");
         let c = Cache::new(&dir);
         assert_eq!(c.get::<u32>("v", "k"), None);
         c.put("v", "k", &7u32);
@@ -219,12 +225,12 @@ mod tests {
 
 #[cfg(test)]
 mod opening {
+    use super::tests::scratch;
     use super::*;
 
     #[test]
     fn reading_checks_the_opened_file_and_hashes_it() {
-        let d = std::env::temp_dir().join(format!("crescendo-reading-{}", std::process::id()));
-        let _ = fs::remove_dir_all(&d);
+        let d = scratch("reading");
         fs::create_dir_all(d.join("story")).unwrap();
         fs::create_dir_all(d.join("private")).unwrap();
         fs::write(d.join("private/secret.csv"), "a\nsecret\n").unwrap();

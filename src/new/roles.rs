@@ -197,46 +197,23 @@ mod tests {
         v.iter().map(|x| Value::Number(*x)).collect()
     }
 
+    /// A number column for [`table`].
+    fn number<'a>(name: &'a str, v: &[f64]) -> (&'a str, ColType, Vec<Value>) {
+        (name, ColType::Number, nums(v))
+    }
+
     #[test]
     fn quarters_codes_rates_and_amounts() {
         let years: Vec<Value> = (0..8).map(|k| Value::Year(2000 + k / 4)).collect();
         let t = table(&[
             ("year", ColType::Year, years),
-            (
-                "quarter",
-                ColType::Number,
-                nums(&[1., 2., 3., 4., 1., 2., 3., 4.]),
-            ),
-            (
-                "unemp",
-                ColType::Number,
-                nums(&[5., 5., 6., 6., 7., 6., 5., 5.]),
-            ),
-            (
-                "realgdp",
-                ColType::Number,
-                nums(&[2.5, 2.6, 2.7, 2.8, 2.9, 3.0, 3.1, 3.2]),
-            ),
-            (
-                "visits",
-                ColType::Number,
-                nums(&[1., 2., 3., 4., 5., 6., 7., 9.]),
-            ),
-            (
-                "region_id",
-                ColType::Number,
-                nums(&[10., 11., 12., 13., 14., 15., 16., 17.]),
-            ),
-            (
-                "n",
-                ColType::Number,
-                nums(&[1., 2., 3., 4., 5., 6., 7., 8.]),
-            ),
-            (
-                "share",
-                ColType::Number,
-                nums(&[0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8]),
-            ),
+            number("quarter", &[1., 2., 3., 4., 1., 2., 3., 4.]),
+            number("unemp", &[5., 5., 6., 6., 7., 6., 5., 5.]),
+            number("realgdp", &[2.5, 2.6, 2.7, 2.8, 2.9, 3.0, 3.1, 3.2]),
+            number("visits", &[1., 2., 3., 4., 5., 6., 7., 9.]),
+            number("region_id", &[10., 11., 12., 13., 14., 15., 16., 17.]),
+            number("n", &[1., 2., 3., 4., 5., 6., 7., 8.]),
+            number("share", &[0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8]),
         ]);
         let roles: Vec<ColumnRole> = (0..8).map(|i| role_of(&t, i)).collect();
         assert_eq!(
@@ -256,15 +233,11 @@ mod tests {
 
     #[test]
     fn few_repeating_whole_numbers_are_a_code() {
-        let t = table(&[(
-            "group",
-            ColType::Number,
-            nums(&[1., 2., 3., 1., 2., 3., 1., 2., 3., 1.]),
-        )]);
+        let t = table(&[number("group", &[1., 2., 3., 1., 2., 3., 1., 2., 3., 1.])]);
         assert_eq!(role_of(&t, 0), ColumnRole::Code);
         // Anscombe's x: 11 values, not few.
         let x: Vec<f64> = (4..15).map(f64::from).collect();
-        let t = table(&[("x", ColType::Number, nums(&[x.clone(), x.clone()].concat()))]);
+        let t = table(&[number("x", &[x.clone(), x].concat())]);
         assert_eq!(role_of(&t, 0), ColumnRole::Amount);
     }
 }

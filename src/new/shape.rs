@@ -5,30 +5,15 @@ use crescendo_data::ColType;
 
 use super::profile::{ColumnProfile, Profile};
 use super::roles::ColumnRole;
+use super::trend::Trend;
 
 /// The chart form chosen, with the roles of the columns. `agg` is the
 /// aggregate a `by` step uses for the measure: `sum` for an amount, `mean`
 /// for a rate or level (see [`super::roles`]).
 #[derive(Clone, Debug, PartialEq)]
 pub enum Shape {
-    /// `time`, `measure`, optional `series`; `parts` names the quarter or
-    /// month-number column folded into the year; `other` a second measure,
-    /// drawn against the first in a scatter (never added to it).
-    Trend {
-        time: String,
-        measure: String,
-        agg: &'static str,
-        series: Option<String>,
-        parts: Option<String>,
-        /// `(year, quarter)`: the time is made of these two columns as one
-        /// quarterly time (`year_quarter(year, quarter)`), named `time`.
-        made: Option<(String, String)>,
-        other: Option<String>,
-        other_agg: &'static str,
-        /// A text column whose values are different measures (a long
-        /// file) with too many of them for one line each: one is kept.
-        only: Option<(String, String)>,
-    },
+    /// A measure over time.
+    Trend(TrendShape),
     /// Few periods: bars of `category` grouped by `period`.
     Periods {
         period: String,
@@ -250,7 +235,7 @@ fn trend_shape(
         .into_iter()
         .find(|n| p.columns.iter().all(|c| c.name != *n))
         .unwrap_or("period_made");
-    Shape::Trend {
+    Shape::Trend(TrendShape {
         time: match made {
             Some(_) => name.to_string(),
             None => time.name.clone(),
@@ -263,7 +248,7 @@ fn trend_shape(
         other: measures.get(1).map(|c| c.name.clone()),
         other_agg: measures.get(1).map_or("mean", |c| c.role.aggregate()),
         only,
-    }
+    })
 }
 
 /// How a measure is aggregated, in words.
@@ -275,10 +260,50 @@ fn aggregated(agg: &str, per: &str) -> String {
     }
 }
 
+/// `time`, `measure`, optional `series`; `parts` names the quarter or
+/// month-number column folded into the year; `other` a second measure,
+/// drawn against the first in a scatter (never added to it).
+#[derive(Clone, Debug, PartialEq)]
+pub struct TrendShape {
+    time: String,
+    measure: String,
+    agg: &'static str,
+    series: Option<String>,
+    parts: Option<String>,
+    /// `(year, quarter)`: the time is made of these two columns as one
+    /// quarterly time (`year_quarter(year, quarter)`), named `time`.
+    made: Option<(String, String)>,
+    other: Option<String>,
+    other_agg: &'static str,
+    /// A text column whose values are different measures (a long
+    /// file) with too many of them for one line each: one is kept.
+    only: Option<(String, String)>,
+}
+
+impl TrendShape {
+    /// The trend as the story writer takes it.
+    pub(super) fn borrowed(&self) -> Trend<'_> {
+        fn pair(p: &Option<(String, String)>) -> Option<(&str, &str)> {
+            p.as_ref().map(|(a, b)| (a.as_str(), b.as_str()))
+        }
+        Trend {
+            time: &self.time,
+            measure: &self.measure,
+            agg: self.agg,
+            series: self.series.as_deref(),
+            parts: self.parts.as_deref(),
+            made: pair(&self.made),
+            other: self.other.as_deref(),
+            other_agg: self.other_agg,
+            only: pair(&self.only),
+        }
+    }
+}
+
 /// Why the form was chosen, in one line.
 pub(super) fn why(shape: &Shape) -> String {
     match shape {
-        Shape::Trend {
+        Shape::Trend(TrendShape {
             time,
             measure,
             agg,
@@ -288,7 +313,7 @@ pub(super) fn why(shape: &Shape) -> String {
             other,
             only,
             ..
-        } => format!(
+        }) => format!(
             "line of {measure} over {time}{}{}{} (change over time; {}){}",
             parts
                 .as_ref()

@@ -165,31 +165,7 @@ pub fn write_story(table: &Table, p: &Profile, shape: &Shape, data_path: &str) -
     let s_before = s.len();
     let _ = writeln!(s);
     match shape {
-        Shape::Trend {
-            time,
-            measure,
-            agg,
-            series,
-            parts,
-            made,
-            other,
-            other_agg,
-            only,
-        } => super::trend::trend(
-            &mut s,
-            table,
-            &super::trend::Trend {
-                time,
-                measure,
-                agg,
-                series: series.as_deref(),
-                parts: parts.as_deref(),
-                made: made.as_ref().map(|(y, q)| (y.as_str(), q.as_str())),
-                other: other.as_deref(),
-                other_agg,
-                only: only.as_ref().map(|(c, v)| (c.as_str(), v.as_str())),
-            },
-        ),
+        Shape::Trend(t) => super::trend::trend(&mut s, table, &t.borrowed()),
         Shape::Periods {
             period,
             category,

@@ -102,6 +102,14 @@ pub struct Lint {
     pub removed: Vec<String>,
 }
 
+impl Lint {
+    /// Each finding with what became of it (`new`, then `resolved`).
+    pub fn changes(&self) -> impl Iterator<Item = (&'static str, &str)> {
+        let added = self.added.iter().map(|l| ("new", l.as_str()));
+        added.chain(self.removed.iter().map(|l| ("resolved", l.as_str())))
+    }
+}
+
 #[derive(Serialize, Debug, Default, PartialEq, Eq)]
 pub struct Counts {
     pub changed: usize,

@@ -167,11 +167,8 @@ pub fn write(r: &Review) -> String {
     }
     if !r.lint.added.is_empty() || !r.lint.removed.is_empty() {
         out.push_str("\n### Lint\n\n");
-        for l in &r.lint.added {
-            let _ = writeln!(out, "- new: {}", cell(l));
-        }
-        for l in &r.lint.removed {
-            let _ = writeln!(out, "- resolved: {}", cell(l));
+        for (what, l) in r.lint.changes() {
+            let _ = writeln!(out, "- {what}: {}", cell(l));
         }
     }
     out

@@ -225,11 +225,8 @@ pub fn html(r: &Review) -> String {
     }
     if !r.lint.added.is_empty() || !r.lint.removed.is_empty() {
         out.push_str("<div class=\"box\" id=\"lint\"><h2>Lint</h2><ul>\n");
-        for l in &r.lint.added {
-            let _ = writeln!(out, "<li>new: {}</li>", escape(l));
-        }
-        for l in &r.lint.removed {
-            let _ = writeln!(out, "<li>resolved: {}</li>", escape(l));
+        for (what, l) in r.lint.changes() {
+            let _ = writeln!(out, "<li>{what}: {}</li>", escape(l));
         }
         out.push_str("</ul></div>\n");
     }

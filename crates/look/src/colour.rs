@@ -479,27 +479,18 @@ mod tests {
 
     #[test]
     fn worst_picks_the_smallest_difference_and_breaks_ties_in_order() {
-        let d = Distinction {
-            normal: 50.0,
-            protanopia: 40.0,
-            deuteranopia: 19.5,
-            tritanopia: 19.5,
+        // the differences for normal vision, then the three deficiencies
+        let d = |[normal, protanopia, deuteranopia, tritanopia]: [f64; 4]| Distinction {
+            normal,
+            protanopia,
+            deuteranopia,
+            tritanopia,
         };
-        assert_eq!(d.worst(), (Some(Deficiency::Deuteranopia), 19.5));
-        let d = Distinction {
-            normal: 5.0,
-            protanopia: 5.0,
-            deuteranopia: 6.0,
-            tritanopia: 7.0,
-        };
-        assert_eq!(d.worst(), (None, 5.0));
-        let d = Distinction {
-            normal: 5.0,
-            protanopia: 6.0,
-            deuteranopia: 6.0,
-            tritanopia: 4.0,
-        };
-        assert_eq!(d.worst(), (Some(Deficiency::Tritanopia), 4.0));
+        let worst = d([50.0, 40.0, 19.5, 19.5]).worst();
+        assert_eq!(worst, (Some(Deficiency::Deuteranopia), 19.5));
+        assert_eq!(d([5.0, 5.0, 6.0, 7.0]).worst(), (None, 5.0));
+        let worst = d([5.0, 6.0, 6.0, 4.0]).worst();
+        assert_eq!(worst, (Some(Deficiency::Tritanopia), 4.0));
     }
 
     #[test]

@@ -66,12 +66,16 @@ impl Rect {
         self.x0 >= outer.x0 && self.y0 >= outer.y0 && self.x1 <= outer.x1 && self.y1 <= outer.y1
     }
 
-    /// Whether the segment `a`–`b` passes through the rectangle
-    /// (Liang–Barsky clipping).
+    /// Whether the segment `a`–`b` passes through the rectangle.
     pub fn hit_by(&self, a: (f64, f64), b: (f64, f64)) -> bool {
+        self.clip(a, b).is_some()
+    }
+
+    /// The part of segment `a`–`b` inside the rectangle, if any
+    /// (Liang–Barsky clipping, a published method: Liang & Barsky 1984).
+    pub fn clip(&self, a: (f64, f64), b: (f64, f64)) -> Option<((f64, f64), (f64, f64))> {
         let (dx, dy) = (b.0 - a.0, b.1 - a.1);
-        let mut t0: f64 = 0.0;
-        let mut t1: f64 = 1.0;
+        let (mut t0, mut t1) = (0.0_f64, 1.0_f64);
         for (p, q) in [
             (-dx, a.0 - self.x0),
             (dx, self.x1 - a.0),
@@ -80,18 +84,22 @@ impl Rect {
         ] {
             if p == 0.0 {
                 if q < 0.0 {
-                    return false;
+                    return None;
                 }
+                continue;
+            }
+            let t = q / p;
+            if p < 0.0 {
+                t0 = t0.max(t);
             } else {
-                let r = q / p;
-                if p < 0.0 {
-                    t0 = t0.max(r);
-                } else {
-                    t1 = t1.min(r);
-                }
+                t1 = t1.min(t);
+            }
+            if t0 > t1 {
+                return None;
             }
         }
-        t0 <= t1
+        let at = |t: f64| (a.0 + t * dx, a.1 + t * dy);
+        Some((at(t0), at(t1)))
     }
 }
 

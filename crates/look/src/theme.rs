@@ -489,18 +489,9 @@ mod tests {
     fn deck_with(style: Option<crescendo_frame::style::HouseStyle>) -> DeckPlan {
         DeckPlan {
             title: "t".into(),
-            byline: None,
-            source: None,
             theme: "clear".into(),
-            conclusion: None,
-            accent: None,
             style,
-            values: Default::default(),
-            exact: Default::default(),
-            claims: Vec::new(),
-            frames: Vec::new(),
-            locale: None,
-            fiscal_start: None,
+            ..Default::default()
         }
     }
 

@@ -363,146 +363,46 @@ mod tests {
     #[test]
     fn every_surface_table() {
         use NumberStyle::*;
+        // headlines and all quoted texts
+        let plain = spec(false, None, Plain);
+        let plain1 = spec(false, Some(1), Plain);
+        let plain2 = spec(false, Some(2), Plain);
+        let pct1 = spec(false, Some(1), Percent);
+        let pct0 = spec(false, Some(0), Percent);
+        let pct = spec(false, None, Percent);
+        let signed_pct0 = spec(true, Some(0), Percent);
+        let cpt1 = spec(false, Some(1), Compact);
+        let cpt = spec(false, None, Compact);
+        let cpt2 = spec(false, Some(2), Compact);
+        let texts: &[(f64, FormatSpec, &str, &str)] = &[
+            (0.1234, plain, "0.123", "D"),
+            (12345.6, plain, "12,346", "D: whole digits kept"),
+            (0.001234, plain, "0.00123", "D"),
+            (0.004, plain, "0.004", "D: never 0"),
+            (1e-7, plain, "0.0000001", "D: never 0"),
+            (-0.0001, plain, "\u{2212}0.0001", "D, M"),
+            (2.25, plain1, "2.3", "H (2.25 is exact in binary)"),
+            (2.675, plain2, "2.68", "H on the decimal 2.675"),
+            (5.42, pct1, "542.0%", "P"),
+            (0.145, pct0, "15%", "P, H: not 14"),
+            (0.285, pct0, "29%", "P, H: not 28"),
+            (1.005, pct0, "101%", "P, H: not 100"),
+            (1.005, pct, "101%", "D of 100.5, H"),
+            (0.1234, pct, "12.3%", "D, P"),
+            (-0.031, signed_pct0, "\u{2212}3%", "M"),
+            (0.125, signed_pct0, "+13%", "H, P"),
+            (-0.001, signed_pct0, "0%", "no -0"),
+            (999_950.0, cpt1, "1.0M", "C: not 1,000.0k"),
+            (2e12, cpt1, "2.0T", "C: T, not 2,000.0B"),
+            (999_950.0, cpt, "1M", "C, D"),
+            (4_560_000.0, cpt1, "4.6M", "C"),
+            (999.96, cpt1, "1.0k", "C from units"),
+            (12_345.0, cpt2, "12.35k", "H"),
+        ];
+        for (v, s, want, rule) in texts {
+            assert_eq!(headline(*v, *s), *want, "text: rule {rule}");
+        }
         let cases: &[(&str, String, &str, &str)] = &[
-            // headlines and all quoted texts
-            (
-                "text",
-                headline(0.1234, spec(false, None, Plain)),
-                "0.123",
-                "D",
-            ),
-            (
-                "text",
-                headline(12345.6, spec(false, None, Plain)),
-                "12,346",
-                "D: whole digits kept",
-            ),
-            (
-                "text",
-                headline(0.001234, spec(false, None, Plain)),
-                "0.00123",
-                "D",
-            ),
-            (
-                "text",
-                headline(0.004, spec(false, None, Plain)),
-                "0.004",
-                "D: never 0",
-            ),
-            (
-                "text",
-                headline(1e-7, spec(false, None, Plain)),
-                "0.0000001",
-                "D: never 0",
-            ),
-            (
-                "text",
-                headline(-0.0001, spec(false, None, Plain)),
-                "\u{2212}0.0001",
-                "D, M",
-            ),
-            (
-                "text",
-                headline(2.25, spec(false, Some(1), Plain)),
-                "2.3",
-                "H (2.25 is exact in binary)",
-            ),
-            (
-                "text",
-                headline(2.675, spec(false, Some(2), Plain)),
-                "2.68",
-                "H on the decimal 2.675",
-            ),
-            (
-                "text",
-                headline(5.42, spec(false, Some(1), Percent)),
-                "542.0%",
-                "P",
-            ),
-            (
-                "text",
-                headline(0.145, spec(false, Some(0), Percent)),
-                "15%",
-                "P, H: not 14",
-            ),
-            (
-                "text",
-                headline(0.285, spec(false, Some(0), Percent)),
-                "29%",
-                "P, H: not 28",
-            ),
-            (
-                "text",
-                headline(1.005, spec(false, Some(0), Percent)),
-                "101%",
-                "P, H: not 100",
-            ),
-            (
-                "text",
-                headline(1.005, spec(false, None, Percent)),
-                "101%",
-                "D of 100.5, H",
-            ),
-            (
-                "text",
-                headline(0.1234, spec(false, None, Percent)),
-                "12.3%",
-                "D, P",
-            ),
-            (
-                "text",
-                headline(-0.031, spec(true, Some(0), Percent)),
-                "\u{2212}3%",
-                "M",
-            ),
-            (
-                "text",
-                headline(0.125, spec(true, Some(0), Percent)),
-                "+13%",
-                "H, P",
-            ),
-            (
-                "text",
-                headline(-0.001, spec(true, Some(0), Percent)),
-                "0%",
-                "no -0",
-            ),
-            (
-                "text",
-                headline(999_950.0, spec(false, Some(1), Compact)),
-                "1.0M",
-                "C: not 1,000.0k",
-            ),
-            (
-                "text",
-                headline(2e12, spec(false, Some(1), Compact)),
-                "2.0T",
-                "C: T, not 2,000.0B",
-            ),
-            (
-                "text",
-                headline(999_950.0, spec(false, None, Compact)),
-                "1M",
-                "C, D",
-            ),
-            (
-                "text",
-                headline(4_560_000.0, spec(false, Some(1), Compact)),
-                "4.6M",
-                "C",
-            ),
-            (
-                "text",
-                headline(999.96, spec(false, Some(1), Compact)),
-                "1.0k",
-                "C from units",
-            ),
-            (
-                "text",
-                headline(12_345.0, spec(false, Some(2), Compact)),
-                "12.35k",
-                "H",
-            ),
             // data labels (bars), stack totals, split labels
             ("label", label(5.42), "5.42", "D: not the ticks' \"5\""),
             ("label", label(4.78), "4.78", "D"),

@@ -121,20 +121,22 @@ mod tests {
     use super::*;
     use std::fs;
 
-    fn tree(name: &str) -> PathBuf {
+    /// A scratch folder holding `story/data/a.csv` and
+    /// `private/secret.csv`, and its story folder.
+    fn tree(name: &str) -> (PathBuf, PathBuf) {
         let d = std::env::temp_dir().join(format!("crescendo-paths-{}-{name}", std::process::id()));
         let _ = fs::remove_dir_all(&d);
         fs::create_dir_all(d.join("story/data")).unwrap();
         fs::create_dir_all(d.join("private")).unwrap();
         fs::write(d.join("story/data/a.csv"), "x\n1\n").unwrap();
         fs::write(d.join("private/secret.csv"), "x\n1\n").unwrap();
-        d
+        let story = d.join("story");
+        (d, story)
     }
 
     #[test]
     fn inside_the_story_folder_is_fine() {
-        let d = tree("inside");
-        let s = d.join("story");
+        let (_, s) = tree("inside");
         assert_eq!(confine(&s, "data/a.csv", &[]), Ok(s.join("data/a.csv")));
         assert!(confine(&s, "./data/../data/a.csv", &[]).is_ok());
         // missing files are left to the loader's own error
@@ -143,8 +145,7 @@ mod tests {
 
     #[test]
     fn leaving_the_story_folder_is_refused() {
-        let d = tree("outside");
-        let s = d.join("story");
+        let (d, s) = tree("outside");
         for p in [
             "../private/secret.csv",
             "data/../../private/secret.csv",
@@ -162,8 +163,7 @@ mod tests {
 
     #[test]
     fn symbolic_links_out_are_refused() {
-        let d = tree("links");
-        let s = d.join("story");
+        let (d, s) = tree("links");
         std::os::unix::fs::symlink(d.join("private/secret.csv"), s.join("data/link.csv")).unwrap();
         std::os::unix::fs::symlink(d.join("private"), s.join("data/dir")).unwrap();
         assert!(confine(&s, "data/link.csv", &[]).is_err());
@@ -173,8 +173,7 @@ mod tests {
 
     #[test]
     fn an_allowed_folder_may_be_read() {
-        let d = tree("allowed");
-        let s = d.join("story");
+        let (d, s) = tree("allowed");
         let allow = [d.join("private")];
         assert!(confine(&s, "../private/secret.csv", &allow).is_ok());
         assert!(confine(&s, "/etc/passwd", &allow).is_err());

@@ -1021,10 +1021,11 @@ mod tests {
         assert_eq!(labels(&a), ["Mar 2024", "Apr", "May", "Jun", "Jul", "Aug"]);
     }
 
-    /// Ticks in a fiscal year that starts in July (see
-    /// `crescendo_data::locale`): July 2024 to June 2025 is FY2025.
-    fn fiscal_july<R>(f: impl FnOnce() -> R) -> R {
-        crescendo_data::locale::scoped(crescendo_data::locale::Conventions::of(None, Some(7)), f)
+    /// The time axis from `lo` to `hi` in a fiscal year that starts in July
+    /// (see `crescendo_data::locale`): July 2024 to June 2025 is FY2025.
+    fn fiscal_axis(kind: ScaleKind, lo: f64, hi: f64) -> Axis {
+        let july = crescendo_data::locale::Conventions::of(None, Some(7));
+        crescendo_data::locale::scoped(july, || time_axis(kind, lo, hi, None))
     }
 
     #[test]
@@ -1033,44 +1034,43 @@ mod tests {
         // FY2024 (July 2023 to June 2024, named by the year it ends in), so
         // Jul-Sep 2023 is FY2024 Q1, Oct-Dec Q2, Jan-Mar 2024 Q3, Apr-Jun
         // Q4; July 2024 starts FY2025.
-        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2023, 7), month(2024, 12), None));
+        let a = fiscal_axis(ScaleKind::Months, month(2023, 7), month(2024, 12));
         assert_eq!(
             labels(&a),
             ["FY2024 Q1", "Q2", "Q3", "Q4", "FY2025 Q1", "Q2"]
         );
         assert_eq!(a.ticks[0].value, month(2023, 7));
         // Starting mid-quarter: the first tick names its fiscal year.
-        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2023, 9), month(2025, 2), None));
+        let a = fiscal_axis(ScaleKind::Months, month(2023, 9), month(2025, 2));
         assert_eq!(
             labels(&a),
             ["FY2024 Q2", "Q3", "Q4", "FY2025 Q1", "Q2", "Q3"]
         );
         // ...unless the next tick starts one (Q4 of FY2023, then FY2024).
-        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2023, 4), month(2024, 9), None));
+        let a = fiscal_axis(ScaleKind::Months, month(2023, 4), month(2024, 9));
         assert_eq!(
             labels(&a),
             ["Q4", "FY2024 Q1", "Q2", "Q3", "Q4", "FY2025 Q1"]
         );
         // Three years: half-years from July. The first tick is the second
         // half of FY2022 and the next starts FY2023, so it says only "H2".
-        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2022, 1), month(2024, 12), None));
+        let a = fiscal_axis(ScaleKind::Months, month(2022, 1), month(2024, 12));
         assert_eq!(
             labels(&a),
             ["H2", "FY2023 H1", "H2", "FY2024 H1", "H2", "FY2025 H1"]
         );
         // Twenty-five years: fiscal years, each tick at a July.
-        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(1999, 6), month(2024, 6), None));
+        let a = fiscal_axis(ScaleKind::Months, month(1999, 6), month(2024, 6));
         assert_eq!(
             labels(&a),
             ["FY2000", "FY2005", "FY2010", "FY2015", "FY2020"]
         );
         assert_eq!(a.ticks[0].value, month(1999, 7));
         // Months stay months.
-        let a = fiscal_july(|| time_axis(ScaleKind::Months, month(2024, 1), month(2024, 6), None));
+        let a = fiscal_axis(ScaleKind::Months, month(2024, 1), month(2024, 6));
         assert_eq!(labels(&a), ["Jan 2024", "Feb", "Mar", "Apr", "May", "Jun"]);
         // Days over a year and a half: fiscal quarters on the 1st.
-        let a =
-            fiscal_july(|| time_axis(ScaleKind::Days, day(2023, 7, 1), day(2024, 12, 31), None));
+        let a = fiscal_axis(ScaleKind::Days, day(2023, 7, 1), day(2024, 12, 31));
         assert_eq!(
             labels(&a),
             ["FY2024 Q1", "Q2", "Q3", "Q4", "FY2025 Q1", "Q2"]

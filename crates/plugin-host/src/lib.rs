@@ -402,6 +402,19 @@ struct ReadDescriptor {
     free: FreeFn,
 }
 
+/// Refuses a pointer of the descriptor that is null or not aligned for
+/// `T`, saying which with `null` or `unaligned`.
+fn check_pointer<T>(p: *const T, null: &str, unaligned: &str) -> Result<(), PluginError> {
+    let problem = if p.is_null() {
+        null
+    } else if !p.is_aligned() {
+        unaligned
+    } else {
+        return Ok(());
+    };
+    Err(PluginError::BadDescriptor(problem.into()))
+}
+
 /// Read a descriptor defensively: the ABI version first (nothing else is
 /// read when it differs, since another version may lay the struct out
 /// differently), then every pointer checked for null, every string bounded.
@@ -413,16 +426,11 @@ struct ReadDescriptor {
 /// least [`MAX_NAME_BYTES`] + 1 long, and whose non-null `forms` points to
 /// `form_count` readable pointers when `form_count` is at most [`MAX_FORMS`].
 unsafe fn read_descriptor(descriptor: *const Descriptor) -> Result<ReadDescriptor, PluginError> {
-    if descriptor.is_null() {
-        return Err(PluginError::BadDescriptor(
-            "the entry point returned a null descriptor".into(),
-        ));
-    }
-    if !descriptor.is_aligned() {
-        return Err(PluginError::BadDescriptor(
-            "the descriptor is not aligned".into(),
-        ));
-    }
+    check_pointer(
+        descriptor,
+        "the entry point returned a null descriptor",
+        "the descriptor is not aligned",
+    )?;
     // SAFETY (for every read below): see the function's contract; we read
     // fields through raw pointers without forming a reference to the whole
     // struct, and read the version alone first.
@@ -446,16 +454,11 @@ unsafe fn read_descriptor(descriptor: *const Descriptor) -> Result<ReadDescripto
             "it declares {count} forms; at most {MAX_FORMS} are allowed"
         )));
     }
-    if forms_ptr.is_null() {
-        return Err(PluginError::BadDescriptor(
-            "its list of forms is a null pointer".into(),
-        ));
-    }
-    if !forms_ptr.is_aligned() {
-        return Err(PluginError::BadDescriptor(
-            "its list of forms is not aligned".into(),
-        ));
-    }
+    check_pointer(
+        forms_ptr,
+        "its list of forms is a null pointer",
+        "its list of forms is not aligned",
+    )?;
     let mut forms = Vec::with_capacity(count);
     for i in 0..count {
         let p = unsafe { forms_ptr.add(i).read() };

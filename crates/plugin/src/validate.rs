@@ -146,6 +146,14 @@ pub fn validate(drawing: Drawing, area: Area) -> Result<Validated, PluginError> 
     for (i, p) in drawing.primitives.into_iter().enumerate() {
         let at =
             |m: String| PluginError::Invalid(format!("primitive {} ({}): {m}", i + 1, kind_of(&p)));
+        // the points of a polyline or an area, at least `least` of them
+        let path = |points: &[Pt], least: usize, what: &str| {
+            if points.len() < least {
+                let n = points.len();
+                return Err(at(format!("{what} needs at least {least} points, not {n}")));
+            }
+            mapper.map_all(points).map_err(at)
+        };
         let mapped = match &p {
             Primitive::Line { from, to, role } => Primitive::Line {
                 from: mapper.map(*from).map_err(at)?,
@@ -157,30 +165,14 @@ pub fn validate(drawing: Drawing, area: Area) -> Result<Validated, PluginError> 
                 to: mapper.map(*to).map_err(at)?,
                 role: *role,
             },
-            Primitive::Polyline { points, role } => {
-                if points.len() < 2 {
-                    return Err(at(format!(
-                        "a polyline needs at least 2 points, not {}",
-                        points.len()
-                    )));
-                }
-                Primitive::Polyline {
-                    points: mapper.map_all(points).map_err(at)?,
-                    role: *role,
-                }
-            }
-            Primitive::Area { points, role } => {
-                if points.len() < 3 {
-                    return Err(at(format!(
-                        "an area needs at least 3 points, not {}",
-                        points.len()
-                    )));
-                }
-                Primitive::Area {
-                    points: mapper.map_all(points).map_err(at)?,
-                    role: *role,
-                }
-            }
+            Primitive::Polyline { points, role } => Primitive::Polyline {
+                points: path(points, 2, "a polyline")?,
+                role: *role,
+            },
+            Primitive::Area { points, role } => Primitive::Area {
+                points: path(points, 3, "an area")?,
+                role: *role,
+            },
             Primitive::Circle {
                 center,
                 radius,

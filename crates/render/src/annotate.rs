@@ -4,16 +4,17 @@
 //! and callouts: a short text near a data point with a leader line, put
 //! where it covers the fewest other labels and lines.
 
-use crate::canvas::{Align, Canvas, Label};
+use crate::canvas::{Align, Label};
 use crate::fit;
 use crate::kit::{self, faint_fill, rect, Obstacles, Rect};
-use crate::line_layout::LineLayout;
+use crate::line_layout::LinePlot;
+use crate::mark_notes;
 use crate::metrics::{self, line_height, text_width};
 use crate::place::{self, Pick};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_frame::{Annotation, LineChart, Role};
-use crescendo_look::display::{NoteOf, Part};
+use crescendo_frame::{Annotation, Role};
+use crescendo_look::display::Part;
 
 /// Widest a callout's text may be before it wraps (at 16 px labels;
 /// [`Theme::label_scaled`]).
@@ -22,13 +23,9 @@ const CALLOUT_WIDTH: f64 = 260.0;
 const CALLOUT_LINES: usize = 3;
 
 /// Draws the bands and reference lines, under the data.
-pub(crate) fn draw_under(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &LineChart,
-    l: &LineLayout,
-) -> Result<(), RenderError> {
-    crate::moments::draw_under(canvas, theme, chart, l)?;
+pub(crate) fn draw_under(on: LinePlot<'_>) -> Result<(), RenderError> {
+    let (canvas, theme, chart, l) = (on.canvas, on.theme, on.chart, on.l);
+    crate::moments::draw_under(on)?;
     let (xm, ym) = (l.xmap(chart), l.ymap(chart));
     for a in &chart.annotations {
         match a {
@@ -65,28 +62,17 @@ fn choose(cands: &[Rect], obstacles: &Obstacles, bounds: &Rect, first_free: bool
 /// Draws the texts of the notes: band names, reference names, end values
 /// and callouts, avoiding every text already in `obstacles` and, as far as
 /// possible, the line segments in it.
-pub(crate) fn draw_over(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &LineChart,
-    l: &LineLayout,
-    obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
-    crate::moments::draw_over(canvas, theme, chart, l, obstacles)?;
-    band_names(canvas, theme, chart, l, obstacles)?;
-    reference_names(canvas, theme, chart, l, obstacles)?;
-    end_values(canvas, theme, chart, l, obstacles)?;
-    callouts(canvas, theme, chart, l, obstacles)
+pub(crate) fn draw_over(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), RenderError> {
+    crate::moments::draw_over(on, obstacles)?;
+    band_names(on, obstacles)?;
+    reference_names(on, obstacles)?;
+    end_values(on, obstacles)?;
+    callouts(on, obstacles)
 }
 
 /// Band names at the top left inside the band, a row lower if taken.
-fn band_names(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &LineChart,
-    l: &LineLayout,
-    obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
+fn band_names(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), RenderError> {
+    let (theme, chart, l) = (on.theme, on.chart, on.l);
     let xm = l.xmap(chart);
     let lh = line_height(theme.label_size);
     let area = l.note_bounds(theme);
@@ -115,24 +101,16 @@ fn band_names(
                 rect(x0 + 6.0, top, x0 + 6.0 + w, top + lh)
             })
             .collect();
-        if let Some(r) = choose(&cands, obstacles, &area, true) {
-            // a name cut to the band's room is noted for the lint
-            fit::note(canvas, full, std::slice::from_ref(&text))?;
-            kit::put(canvas, obstacles, &plain(theme, &text, r))?;
-        }
+        // a name cut to the band's room
+        put_name(on, obstacles, (&cands, &area), (full, &text))?;
     }
     Ok(())
 }
 
 /// Reference names at the right end, above the line (else below, else at
 /// the left end).
-fn reference_names(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &LineChart,
-    l: &LineLayout,
-    obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
+fn reference_names(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), RenderError> {
+    let (theme, chart, l) = (on.theme, on.chart, on.l);
     let ym = l.ymap(chart);
     let lh = line_height(theme.label_size);
     let area = l.note_bounds(theme);
@@ -167,24 +145,31 @@ fn reference_names(
             rect(l.plot_left, above, l.plot_left + w, above + lh),
             rect(l.plot_left, below, l.plot_left + w, below + lh),
         ];
-        if let Some(r) = choose(&cands, obstacles, &area, true) {
-            // a name cut to half the plot is noted for the lint
-            fit::note(canvas, full, std::slice::from_ref(&text))?;
-            kit::put(canvas, obstacles, &plain(theme, &text, r))?;
-        }
+        // a name cut to half the plot
+        put_name(on, obstacles, (&cands, &area), (full, &text))?;
+    }
+    Ok(())
+}
+
+/// Puts a name at the first free spot of `cands` inside `area` (else the
+/// best), `text` as cut from `full`: a cut is noted for the lint.
+fn put_name(
+    on: LinePlot<'_>,
+    obstacles: &mut Obstacles,
+    (cands, area): (&[Rect], &Rect),
+    (full, text): (&str, &str),
+) -> Result<(), RenderError> {
+    if let Some(r) = choose(cands, obstacles, area, true) {
+        fit::note(on.canvas, full, &[text.to_string()])?;
+        kit::put(on.canvas, obstacles, &plain(on.theme, text, r))?;
     }
     Ok(())
 }
 
 /// Values at the first and last point of the focus lines (of every
 /// visible line when none is in focus), as the plan wrote them.
-fn end_values(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &LineChart,
-    l: &LineLayout,
-    obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
+fn end_values(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), RenderError> {
+    let (canvas, theme, chart, l) = (on.canvas, on.theme, on.chart, on.l);
     let (xm, ym) = (l.xmap(chart), l.ymap(chart));
     let lh = line_height(theme.label_size);
     let area = l.note_bounds(theme);
@@ -248,15 +233,9 @@ fn end_values(
 /// Callouts, last: they have the most freedom. Each is drawn in a
 /// [`Part::Note`] group that says when it could only go over data or
 /// found no room (the lint warns, naming the frame).
-fn callouts(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &LineChart,
-    l: &LineLayout,
-    obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
+fn callouts(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), RenderError> {
+    let (canvas, theme, chart, l) = (on.canvas, on.theme, on.chart, on.l);
     let (xm, ym) = (l.xmap(chart), l.ymap(chart));
-    let lh = line_height(theme.label_size);
     let area = l.note_bounds(theme);
     let plot_w = l.plot_right - l.plot_left;
     let callouts = chart.annotations.iter().filter_map(|a| match a {
@@ -277,12 +256,7 @@ fn callouts(
         if lines.is_empty() {
             continue;
         }
-        let step = theme.label_step();
-        let w = lines
-            .iter()
-            .map(|t| text_width(t, theme.label_size, false))
-            .fold(0.0, f64::max);
-        let h = (lines.len() - 1) as f64 * step + lh;
+        let (w, h) = mark_notes::block_size(theme, &lines);
         let p = (xm(*x), ym(*y));
         // nearest free spot around the point (clear of lines, marks and
         // text) whose leader crosses no other line or mark (a leader over
@@ -292,20 +266,7 @@ fn callouts(
         let lead = |r: &Rect| place::leader(p, r);
         let chosen = place::pick_led(&cands, obstacles, &area, lead)
             .or_else(|| choose(&cands, obstacles, &area, true));
-        if chosen.is_some() {
-            fit::note(canvas, text, &lines)?;
-        }
-        let part = place::note_part(NoteOf::Callout(k), chosen, obstacles);
-        canvas.group(part, || {
-            let Some(r) = chosen else { return Ok(()) };
-            // Leader from near the point to the nearest edge of the text block.
-            if let Some((from, to)) = place::leader(p, &r) {
-                canvas.line(from, to, theme.muted, 1)?;
-                obstacles.segments.push((from, to));
-            }
-            let style = (theme.label_size, false, theme.takeaway);
-            kit::put_lines(canvas, obstacles, &lines, (&r, step), style)
-        })?;
+        mark_notes::put_callout(canvas, theme, obstacles, (k, text, &lines), p, chosen)?;
     }
     Ok(())
 }

@@ -59,7 +59,13 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &LineChart, region: Re
     let plot = (l.plot_left, l.plot_right, l.plot_bottom);
     axis::rows_and_baseline(canvas, theme, &chart.y, ymap, plot)?;
 
-    annotate::draw_under(canvas, theme, chart, &l)?;
+    let on = crate::line_layout::LinePlot {
+        canvas,
+        theme,
+        chart,
+        l: &l,
+    };
+    annotate::draw_under(on)?;
 
     // Lines: context first, focus on top; a missing value breaks the line.
     let target = (2.0 * (l.plot_right - l.plot_left)).max(3.0) as usize;
@@ -110,7 +116,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &LineChart, region: Re
             },
         )?;
     }
-    annotate::draw_over(canvas, theme, chart, &l, &mut obstacles)
+    annotate::draw_over(on, &mut obstacles)
 }
 
 /// The runs of a series in px: a missing (or non-finite) value ends a run.

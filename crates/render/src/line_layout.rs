@@ -1,6 +1,7 @@
 //! Plot geometry of a line chart, shared by the line drawer
 //! ([`crate::line`]) and the notes drawn over it ([`crate::annotate`]).
 
+use crate::canvas::Canvas;
 use crate::layout::{self, max_width, Region};
 use crate::metrics::line_height;
 use crate::theme::Theme;
@@ -13,6 +14,15 @@ use crate::layout::LEADER_PAD;
 use crate::layout::LINE_LABEL_COLUMN as MAX_LABEL_COLUMN;
 /// Space between tick labels or direct labels and the plot.
 const PAD: f64 = 12.0;
+
+/// A line chart as laid out on the canvas: what its notes are drawn over.
+#[derive(Clone, Copy)]
+pub(crate) struct LinePlot<'a> {
+    pub canvas: &'a Canvas,
+    pub theme: &'a Theme,
+    pub chart: &'a LineChart,
+    pub l: &'a LineLayout,
+}
 
 /// Plot geometry of a line chart. Depends only on the axes and the names of
 /// all series (hidden ones included), never on roles.

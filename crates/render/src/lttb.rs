@@ -98,12 +98,17 @@ mod tests {
         ys.iter().enumerate().map(|(i, &y)| (i as f64, y)).collect()
     }
 
+    /// The series of examples A and C: (7i² + 3i) mod 23 for i below `n`.
+    fn wave(n: i32) -> Vec<(f64, f64)> {
+        let ys: Vec<f64> = (0..n).map(|i| ((7 * i * i + 3 * i) % 23) as f64).collect();
+        indexed(&ys)
+    }
+
     // Examples A, B and C of shared/refs/reference-values.md §6.2,
     // "computed with lttb 0.3.1" (`lttb.downsample(points, 6)`).
     #[test]
     fn example_a() {
-        let ys: Vec<f64> = (0..20).map(|i| ((7 * i * i + 3 * i) % 23) as f64).collect();
-        assert_eq!(lttb(&indexed(&ys), 6), vec![0, 1, 9, 13, 18, 19]);
+        assert_eq!(lttb(&wave(20), 6), vec![0, 1, 9, 13, 18, 19]);
     }
 
     #[test]
@@ -116,8 +121,7 @@ mod tests {
 
     #[test]
     fn example_c() {
-        let ys: Vec<f64> = (0..22).map(|i| ((7 * i * i + 3 * i) % 23) as f64).collect();
-        assert_eq!(lttb(&indexed(&ys), 6), vec![0, 1, 9, 13, 20, 21]);
+        assert_eq!(lttb(&wave(22), 6), vec![0, 1, 9, 13, 20, 21]);
     }
 
     #[test]

@@ -62,8 +62,6 @@ pub(crate) fn draw(
         x1: region.right,
         y1: region.bottom,
     };
-    let lh = line_height(theme.label_size);
-    let step = theme.label_step();
     for (k, note) in notes.iter().enumerate() {
         let Some(at) = canvas.point_of(note.item, note.part) else {
             continue;
@@ -73,25 +71,53 @@ pub(crate) fn draw(
         if lines.is_empty() {
             continue;
         }
-        let w = (lines.iter())
-            .map(|t| text_width(t, theme.label_size, false))
-            .fold(0.0, f64::max);
-        let h = (lines.len() - 1) as f64 * step + lh;
+        let (w, h) = block_size(theme, &lines);
         let cands = place::around(at, w, h, &DISTANCES);
         let chosen = place::pick(&cands, &obstacles, &bounds, Pick::FirstFree);
-        if chosen.is_some() {
-            crate::fit::note(canvas, &note.text, &lines)?;
-        }
-        let part = place::note_part(NoteOf::Callout(k), chosen, &obstacles);
-        canvas.group(part, || {
-            let Some(r) = chosen else { return Ok(()) };
-            if let Some((from, to)) = place::leader(at, &r) {
-                canvas.line(from, to, theme.muted, 1)?;
-                obstacles.segments.push((from, to));
-            }
-            let style = (theme.label_size, false, theme.takeaway);
-            kit::put_lines(canvas, &mut obstacles, &lines, (&r, step), style)
-        })?;
+        put_callout(
+            canvas,
+            theme,
+            &mut obstacles,
+            (k, &note.text, &lines),
+            at,
+            chosen,
+        )?;
     }
     Ok(())
+}
+
+/// The width and height of a note's wrapped lines in label text.
+pub(crate) fn block_size(theme: &Theme, lines: &[String]) -> (f64, f64) {
+    let w = (lines.iter())
+        .map(|t| text_width(t, theme.label_size, false))
+        .fold(0.0, f64::max);
+    let h = (lines.len() - 1) as f64 * theme.label_step() + line_height(theme.label_size);
+    (w, h)
+}
+
+/// Draws callout `k` (its `text` wrapped into `lines`) at `chosen`, with a
+/// leader from near `at` to the nearest edge of the text block, in a
+/// [`crescendo_look::display::Part::Note`] group that says when it covers
+/// data or found no room; a text cut to fit is noted for the lint.
+pub(crate) fn put_callout(
+    canvas: &Canvas,
+    theme: &Theme,
+    obstacles: &mut Obstacles,
+    (k, text, lines): (usize, &str, &[String]),
+    at: (f64, f64),
+    chosen: Option<Rect>,
+) -> Result<(), RenderError> {
+    if chosen.is_some() {
+        crate::fit::note(canvas, text, lines)?;
+    }
+    let part = place::note_part(NoteOf::Callout(k), chosen, obstacles);
+    canvas.group(part, || {
+        let Some(r) = chosen else { return Ok(()) };
+        if let Some((from, to)) = place::leader(at, &r) {
+            canvas.line(from, to, theme.muted, 1)?;
+            obstacles.segments.push((from, to));
+        }
+        let style = (theme.label_size, false, theme.takeaway);
+        kit::put_lines(canvas, obstacles, lines, (&r, theme.label_step()), style)
+    })
 }

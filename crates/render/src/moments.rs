@@ -4,12 +4,10 @@
 //! the line, on whichever side is clear of the data, a row lower when both
 //! are taken.
 
-use crate::canvas::Canvas;
 use crate::kit::{self, faint_fill, Obstacles, Rect};
-use crate::line_layout::LineLayout;
+use crate::line_layout::LinePlot;
 use crate::metrics::{self, line_height, text_width};
 use crate::place::{self, Pick};
-use crate::theme::Theme;
 use crate::RenderError;
 use crescendo_frame::{Annotation, LineChart};
 use crescendo_look::display::{NoteOf, Part};
@@ -47,12 +45,8 @@ fn dashes(x: f64, top: f64, bottom: f64) -> Vec<((f64, f64), (f64, f64))> {
 }
 
 /// Draws the moments' lines and bands, under the data.
-pub(crate) fn draw_under(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &LineChart,
-    l: &LineLayout,
-) -> Result<(), RenderError> {
+pub(crate) fn draw_under(on: LinePlot<'_>) -> Result<(), RenderError> {
+    let (canvas, theme, chart, l) = (on.canvas, on.theme, on.chart, on.l);
     let xm = l.xmap(chart);
     for (_, from, to, _) in moments(chart) {
         let x0 = xm(from).clamp(l.plot_left, l.plot_right);
@@ -93,13 +87,8 @@ fn candidates(x: f64, w: f64, h: f64, top: f64, step: f64) -> Vec<Rect> {
 /// moments' labels (before any other note, so the story's named times get
 /// the best spots), each in a [`Part::Note`] group that says when it could
 /// only go over data or found no room (the lint warns, naming the frame).
-pub(crate) fn draw_over(
-    canvas: &Canvas,
-    theme: &Theme,
-    chart: &LineChart,
-    l: &LineLayout,
-    obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
+pub(crate) fn draw_over(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), RenderError> {
+    let (canvas, theme, chart, l) = (on.canvas, on.theme, on.chart, on.l);
     let xm = l.xmap(chart);
     let area = l.note_bounds(theme);
     let lh = line_height(theme.label_size);

@@ -270,18 +270,19 @@ fn panel_bars(
         (g.bottom, g.top)
     };
     let vmap = |v: f64| map(v, dom, lo, hi);
-    // the bands run across the values, between these edges
-    let (start, end) = if across {
-        axis::gridlines(
-            canvas,
-            theme,
-            &b.value,
-            vmap,
-            g.top,
-            g.bottom,
-            axis::Across::Columns,
-            Some(vmap(0.0)),
-        )?;
+    // the bands run across the values, between these edges, and so do
+    // the gridlines
+    let (start, end, lines) = if across {
+        (g.top, g.bottom, axis::Across::Columns)
+    } else {
+        (g.left, g.right, axis::Across::Rows)
+    };
+    if !across {
+        value_ticks(canvas, theme, &b.value, dom, g, ticks_here, obstacles)?;
+    }
+    let zero = Some(vmap(0.0));
+    axis::gridlines(canvas, theme, &b.value, vmap, start, end, lines, zero)?;
+    if across {
         // Value ticks along the bottom of every panel.
         let row = axis::Row {
             top: g.tick_top,
@@ -292,21 +293,7 @@ fn panel_bars(
             keep_left: true,
         };
         axis::row(canvas, obstacles, theme, size, &b.value, vmap, row)?;
-        (g.top, g.bottom)
-    } else {
-        value_ticks(canvas, theme, &b.value, dom, g, ticks_here, obstacles)?;
-        axis::gridlines(
-            canvas,
-            theme,
-            &b.value,
-            vmap,
-            g.left,
-            g.right,
-            axis::Across::Rows,
-            Some(vmap(0.0)),
-        )?;
-        (g.left, g.right)
-    };
+    }
     let band = (end - start) / b.bars.len().max(1) as f64;
     let bands = Band {
         orientation: if across {

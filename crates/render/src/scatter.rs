@@ -82,7 +82,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
             let a = (xmap(lo), ymap(fit.intercept + fit.slope * lo));
             let b = (xmap(hi), ymap(fit.intercept + fit.slope * hi));
             let plot = rect(l.plot_left, l.plot_top, l.plot_right, l.plot_bottom);
-            if let Some((a, b)) = clip_to(a, b, &plot) {
+            if let Some((a, b)) = plot.clip(a, b) {
                 canvas.line(a, b, theme.context, 2)?;
                 obstacles.segments.push((a, b));
                 fit_segment = Some((a, b));
@@ -188,37 +188,6 @@ fn anchor_points(canvas: &Canvas, chart: &ScatterChart, (xmap, ymap): (Map, Map)
     }
 }
 
-/// The part of segment `a`–`b` inside `plot` (Liang–Barsky clipping, a
-/// published method: Liang & Barsky 1984), if any.
-fn clip_to(a: (f64, f64), b: (f64, f64), plot: &Rect) -> Option<((f64, f64), (f64, f64))> {
-    let (dx, dy) = (b.0 - a.0, b.1 - a.1);
-    let (mut t0, mut t1) = (0.0_f64, 1.0_f64);
-    for (p, q) in [
-        (-dx, a.0 - plot.x0),
-        (dx, plot.x1 - a.0),
-        (-dy, a.1 - plot.y0),
-        (dy, plot.y1 - a.1),
-    ] {
-        if p == 0.0 {
-            if q < 0.0 {
-                return None;
-            }
-            continue;
-        }
-        let t = q / p;
-        if p < 0.0 {
-            t0 = t0.max(t);
-        } else {
-            t1 = t1.min(t);
-        }
-        if t0 > t1 {
-            return None;
-        }
-    }
-    let at = |t: f64| (a.0 + t * dx, a.1 + t * dy);
-    Some((at(t0), at(t1)))
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -231,12 +200,12 @@ mod tests {
             x1: 100.0,
             y1: 100.0,
         };
-        let c = clip_to((0.0, -10.0), (10.0, 10.0), &plot).unwrap();
+        let c = plot.clip((0.0, -10.0), (10.0, 10.0)).unwrap();
         assert_eq!(c, ((5.0, 0.0), (10.0, 10.0)));
-        assert!(clip_to((0.0, -10.0), (10.0, -5.0), &plot).is_none());
+        assert!(plot.clip((0.0, -10.0), (10.0, -5.0)).is_none());
         // Cut at the right edge too (an `x range` narrower than the data).
-        let c = clip_to((50.0, 50.0), (150.0, 60.0), &plot).unwrap();
+        let c = plot.clip((50.0, 50.0), (150.0, 60.0)).unwrap();
         assert_eq!(c, ((50.0, 50.0), (100.0, 55.0)));
-        assert!(clip_to((110.0, 10.0), (120.0, 20.0), &plot).is_none());
+        assert!(plot.clip((110.0, 10.0), (120.0, 20.0)).is_none());
     }
 }

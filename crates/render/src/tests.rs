@@ -96,18 +96,9 @@ fn frame(
 fn deck(frames: Vec<FramePlan>) -> DeckPlan {
     DeckPlan {
         title: "Heat at home".to_string(),
-        byline: None,
-        source: None,
         theme: "clear".to_string(),
-        conclusion: None,
-        accent: None,
-        style: None,
-        values: Default::default(),
-        exact: Default::default(),
-        claims: Vec::new(),
         frames,
-        locale: None,
-        fiscal_start: None,
+        ..Default::default()
     }
 }
 

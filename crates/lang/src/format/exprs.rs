@@ -134,10 +134,7 @@ impl Printer<'_> {
             self.s(".");
             self.raw(&c.span);
         }
-        if let Some(by) = &s.by {
-            self.s(" by ");
-            self.raw(&by.span);
-        }
+        self.opt(" by ", s.by.as_ref());
         if let Some(f) = &s.filter {
             self.s(" where ");
             self.expr(f, 0);

@@ -86,14 +86,8 @@ impl Printer<'_> {
                         self.gap(",", c.opts[i - 1].span.end, o.span.start, true);
                     }
                     self.s(o.name.keyword());
-                    if let Some(col) = &o.column {
-                        self.s(" ");
-                        self.raw(&col.span);
-                    }
-                    if let Some(text) = &o.text {
-                        self.s(" ");
-                        self.raw(&text.span);
-                    }
+                    self.opt(" ", o.column.as_ref());
+                    self.opt(" ", o.text.as_ref());
                 }
             }
             FrameStmt::Draw(d) => {
@@ -163,10 +157,7 @@ impl Printer<'_> {
                     Some(false) => self.s(" ascending"),
                     None => {}
                 }
-                if let Some(by) = &s.by {
-                    self.s(" by ");
-                    self.raw(&by.span);
-                }
+                self.opt(" by ", s.by.as_ref());
                 if !s.order.is_empty() {
                     self.s(" order ");
                     self.strs(&s.order);
@@ -208,10 +199,7 @@ impl Printer<'_> {
             FrameStmt::Callout { at, on, text, .. } => {
                 self.s("callout ");
                 self.position(at);
-                if let Some(on) = on {
-                    self.s(" on ");
-                    self.raw(&on.span);
-                }
+                self.opt(" on ", on.as_ref());
                 self.s(" ");
                 self.raw(&text.span);
             }
@@ -220,10 +208,7 @@ impl Printer<'_> {
                 self.position(from);
                 self.s(" to ");
                 self.position(to);
-                if let Some(t) = text {
-                    self.s(" ");
-                    self.raw(&t.span);
-                }
+                self.opt(" ", text.as_ref());
             }
             FrameStmt::Reference { value, text, .. } => {
                 self.s("reference ");

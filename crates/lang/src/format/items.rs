@@ -79,10 +79,7 @@ impl Printer<'_> {
                 self.raw(&p.path.span);
                 self.s(" as ");
                 self.raw(&p.alias.span);
-                if let Some(pin) = &p.pin {
-                    self.s(" sha256 ");
-                    self.raw(&pin.span);
-                }
+                self.opt(" sha256 ", p.pin.as_ref());
             }
             Item::Frame(f) => self.frame(f),
         }
@@ -162,26 +159,14 @@ impl Printer<'_> {
                 }
             }
         }
-        if let Some(sheet) = sheet {
-            self.s(" sheet ");
-            self.raw(&sheet.span);
-        }
-        if let Some(cells) = cells {
-            self.s(" cells ");
-            self.raw(&cells.span);
-        }
+        self.opt(" sheet ", sheet.as_deref());
+        self.opt(" cells ", cells.as_deref());
         if let Some(missing) = missing {
             self.s(" missing ");
             self.strs(missing);
         }
-        if let Some(t) = thousands {
-            self.s(" thousands ");
-            self.raw(&t.span);
-        }
-        if let Some(d) = decimal {
-            self.s(" decimal ");
-            self.raw(&d.span);
-        }
+        self.opt(" thousands ", thousands.as_deref());
+        self.opt(" decimal ", decimal.as_deref());
         let (Some(first), Some(last)) = (columns.first(), columns.last()) else {
             return;
         };
@@ -313,10 +298,7 @@ impl Printer<'_> {
                 self.raw(&key.span);
                 self.s(" by ");
                 self.raw(&by.span);
-                if let Some(r) = rest {
-                    self.s(" rest ");
-                    self.raw(&r.span);
-                }
+                self.opt(" rest ", rest.as_ref());
             }
             StepAst::Columns { names, .. } => {
                 self.s("columns ");

@@ -193,6 +193,15 @@ impl<'a> Printer<'a> {
         self.out.push_str(t);
     }
 
+    /// `word` and the node's source text, when the optional node is given
+    /// (` sheet "Q1"`, ` by region`).
+    fn opt<N: Node>(&mut self, word: &str, node: Option<&N>) {
+        if let Some(node) = node {
+            self.s(word);
+            self.raw(node.span());
+        }
+    }
+
     fn indent(&mut self) {
         for _ in 0..self.level {
             self.out.push_str(INDENT);
@@ -322,4 +331,27 @@ fn has_empty_line(gap: &str) -> bool {
         && parts[1..parts.len() - 1]
             .iter()
             .any(|l| l.trim().is_empty())
+}
+
+/// A name or a quoted string: a node the formatter copies as it stands.
+trait Node {
+    fn span(&self) -> &Span;
+}
+
+impl Node for crate::ast::Ident {
+    fn span(&self) -> &Span {
+        &self.span
+    }
+}
+
+impl Node for crate::ast::Str {
+    fn span(&self) -> &Span {
+        &self.span
+    }
+}
+
+impl Node for crate::ast::Text {
+    fn span(&self) -> &Span {
+        &self.span
+    }
 }
