@@ -134,6 +134,9 @@ struct Col {
     ty: ColType,
     /// A binary double (summed through its shortest text).
     float: bool,
+    /// A column of the source itself (`s.c3`): cheap to name several
+    /// times in one expression.
+    source: bool,
     name: String,
 }
 
@@ -284,7 +287,7 @@ mod tests {
         assert!(!q.sql.contains("DROP"), "{}", q.sql);
         assert_eq!(
             q.sql,
-            "SELECT s.c0::text, sum(s.c2::numeric)::text FROM (SELECT \"month\"::text AS c0, \
+            "SELECT s.c0::text, sum(s.c2)::text FROM (SELECT \"month\"::text AS c0, \
              \"po\"\"ol; x\"::text AS c1, \"visits\" AS c2, \"line\" AS r FROM \"s\"\"1\".\"t;\") AS s \
              WHERE COALESCE((s.c1 COLLATE \"C\") = ($1::text COLLATE \"C\"), false) \
              GROUP BY s.c0 ORDER BY min(s.r) NULLS LAST, s.c0 COLLATE \"C\" NULLS LAST"
