@@ -130,8 +130,40 @@ impl Printer {
         out
     }
 
-    /// A predicate, never NULL.
-    pub(super) fn truth(&mut self, e: &Expr) -> String {
+    /// A predicate that alone decides whether a row is kept (a `WHERE`
+    /// conjunct), where NULL drops the row as false does. Under `AND` and
+    /// `OR` (three-valued), a result is true exactly when it is true with
+    /// every NULL read as false (both are monotone, and true whichever
+    /// value a NULL stands for), so comparisons print without the
+    /// `COALESCE` of [`Self::truth`], which only a `NOT` needs.
+    pub(super) fn filter(&mut self, e: &Expr) -> String {
+        match e {
+            Expr::Cmp(..) | Expr::In(..) => match self.comparison(e) {
+                Some(bare) => format!("({bare})"),
+                None => "false".to_string(),
+            },
+            Expr::And(parts) | Expr::Or(parts) if !parts.is_empty() => {
+                let word = if matches!(e, Expr::And(_)) {
+                    "AND"
+                } else {
+                    "OR"
+                };
+                let (first, rest) = parts.split_at(1);
+                let mut out = "(".repeat(rest.len());
+                out.push_str(&self.filter(&first[0]));
+                for p in rest {
+                    let t = self.filter(p);
+                    out.push_str(&format!(" {word} {t})"));
+                }
+                out
+            }
+            _ => self.truth(e),
+        }
+    }
+
+    /// A comparison or an `in` list as SQL, NULL where an operand is
+    /// missing; `None` for an empty list (false) and other expressions.
+    fn comparison(&mut self, e: &Expr) -> Option<String> {
         match e {
             Expr::Cmp(op, a, b) => {
                 let (x, y) = (self.operand(a, b), self.operand(b, a));
@@ -143,16 +175,10 @@ impl Printer {
                     CmpOp::Gt => ">",
                     CmpOp::Ge => ">=",
                 };
-                format!("COALESCE({x} {op} {y}, false)")
+                Some(format!("{x} {op} {y}"))
             }
-            Expr::And(parts) => self.joined(parts, "AND", "true"),
-            Expr::Or(parts) => self.joined(parts, "OR", "false"),
-            Expr::Not(a) => format!("(NOT {})", self.truth(a)),
             Expr::In(a, list) => {
-                if list.is_empty() {
-                    return "false".to_string();
-                }
-                let first = Expr::Lit(list[0].clone());
+                let first = Expr::Lit(list.first()?.clone());
                 let x = self.operand(a, &first);
                 let items: Vec<String> = list
                     .iter()
@@ -161,8 +187,22 @@ impl Printer {
                         self.operand(&lit, a)
                     })
                     .collect();
-                format!("COALESCE({x} IN ({}), false)", items.join(", "))
+                Some(format!("{x} IN ({})", items.join(", ")))
             }
+            _ => None,
+        }
+    }
+
+    /// A predicate, never NULL.
+    pub(super) fn truth(&mut self, e: &Expr) -> String {
+        match e {
+            Expr::Cmp(..) | Expr::In(..) => match self.comparison(e) {
+                Some(c) => format!("COALESCE({c}, false)"),
+                None => "false".to_string(),
+            },
+            Expr::And(parts) => self.joined(parts, "AND", "true"),
+            Expr::Or(parts) => self.joined(parts, "OR", "false"),
+            Expr::Not(a) => format!("(NOT {})", self.truth(a)),
             // A value used as a predicate is false (as in the engine).
             _ => "false".to_string(),
         }

@@ -234,7 +234,7 @@ pub fn pipeline(from: &From, order: &RowOrder, cols: &[SrcColumn], pieces: &[Pie
     for piece in later {
         match piece {
             Piece::Step(Step::Keep(e)) => {
-                let pred = p.truth(e);
+                let pred = p.filter(e);
                 rel = p.wrap(&rel, k, &format!("t{k}.r"), Some(pred));
                 k += 1;
             }

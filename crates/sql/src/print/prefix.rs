@@ -101,7 +101,7 @@ pub(super) fn start(order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Sta
     let mut group = None;
     for step in steps {
         match step {
-            Step::Keep(e) => preds.push(p.truth(e)),
+            Step::Keep(e) => preds.push(p.filter(e)),
             Step::Derive { name, expr } => {
                 // Arithmetic prints parenthesised; a column or a literal
                 // needs no parentheses.
