@@ -17,7 +17,7 @@
 //!
 //! | local engine                                   | SQL                                          |
 //! |------------------------------------------------|----------------------------------------------|
-//! | a comparison with a missing operand is false   | `COALESCE(a op b, false)`                    |
+//! | a comparison with a missing operand is false   | `COALESCE(a op b, false)`; plain `a op b` in a `WHERE` outside any `NOT` (NULL drops the row as false does; `Printer::filter`) |
 //! | texts compare by bytes                          | `COLLATE "C"` (UTF-8 byte order)             |
 //! | `x / 0` is missing                              | `x / NULLIF(y, 0)`                           |
 //! | arithmetic in doubles                           | `::double precision`                         |
@@ -27,7 +27,7 @@
 //! | number keys are doubles (`-0` is `0`)           | `GROUP BY x::double precision`               |
 //! | groups in order of first appearance             | `ORDER BY min(r)`                            |
 //! | a missing key is a group of its own             | `GROUP BY` puts NULLs in one group           |
-//! | `sum`: exact, rounded once                       | `sum(x::numeric)` (exact), parsed once       |
+//! | `sum`: exact, rounded once                       | exact in SQL, parsed once: `sum(x)` of integers and `numeric`; a double of the source summed as the integers `round(x * 10^6)` where that is its shortest text (at most six decimals, magnitude below 2^32), through its text (`x::text::numeric`) elsewhere, and always for an `add` column (`Printer::exact_sum`) |
 //! | `mean`: the sum over the count                   | sum and count, divided locally               |
 //! | `median`: the middle value, or the two middle values halved and added | `percentile_disc(0.5)` ascending and descending, and the count; combined locally |
 //! | `min`/`max` (texts by bytes)                     | `min`/`max` (`COLLATE "C"`)                  |
@@ -47,7 +47,9 @@
 //! the last bit; an arithmetic overflow is an error in PostgreSQL where the
 //! engine gives a missing value (so is an underflow of a mean or a median
 //! after a group); `-0` and `0` compare equal in SQL (a sort tells them
-//! apart as the engine does); dates and months compare as their ISO text,
+//! apart as the engine does); a sum of a `smallint` or `integer` column is
+//! a `bigint`, which only more than 2^32 rows of the largest values
+//! overflow; dates and months compare as their ISO text,
 //! which is their order for years 0 to 9999.
 //!
 //! The printer is in parts: `expr.rs` prints expressions and columns,
@@ -134,6 +136,9 @@ struct Col {
     ty: ColType,
     /// A binary double (summed through its shortest text).
     float: bool,
+    /// A column of the source itself (`s.c3`): cheap to name several
+    /// times in one expression.
+    source: bool,
     name: String,
 }
 
@@ -284,9 +289,9 @@ mod tests {
         assert!(!q.sql.contains("DROP"), "{}", q.sql);
         assert_eq!(
             q.sql,
-            "SELECT s.c0::text, sum(s.c2::numeric)::text FROM (SELECT \"month\"::text AS c0, \
+            "SELECT s.c0::text, sum(s.c2)::text FROM (SELECT \"month\"::text AS c0, \
              \"po\"\"ol; x\"::text AS c1, \"visits\" AS c2, \"line\" AS r FROM \"s\"\"1\".\"t;\") AS s \
-             WHERE COALESCE((s.c1 COLLATE \"C\") = ($1::text COLLATE \"C\"), false) \
+             WHERE ((s.c1 COLLATE \"C\") = ($1::text COLLATE \"C\")) \
              GROUP BY s.c0 ORDER BY min(s.r) NULLS LAST, s.c0 COLLATE \"C\" NULLS LAST"
         );
     }
@@ -403,7 +408,9 @@ mod tests {
         );
         let half = "(s.c2::double precision / NULLIF(CAST($1::text AS double precision), 0))";
         assert!(
-            q.sql.contains(&format!("WHERE COALESCE({half}::double precision > CAST($2::text AS double precision), false)")),
+            q.sql.contains(&format!(
+                "WHERE ({half}::double precision > CAST($2::text AS double precision))"
+            )),
             "{}",
             q.sql
         );
@@ -457,9 +464,18 @@ mod tests {
         ));
         let c = "s.c2::double precision";
         assert!(q.sql.contains(&format!("(({c} + {c}) - {c})")), "{}", q.sql);
+        // a filter of its own: NULL drops the row as false does
         let q = keep(Expr::Or(vec![gt(1.0), gt(2.0), gt(3.0)]));
         assert!(
-            q.sql.contains("((COALESCE(") && q.sql.contains(", false) OR COALESCE("),
+            q.sql.contains(" WHERE (((s.c2") && q.sql.contains(") OR (s.c2"),
+            "{}",
+            q.sql
+        );
+        assert!(!q.sql.contains("COALESCE"), "{}", q.sql);
+        // under `not`, a missing operand must read as false first
+        let q = keep(Expr::Not(Box::new(Expr::Or(vec![gt(1.0), gt(2.0)]))));
+        assert!(
+            q.sql.contains("(NOT (COALESCE(") && q.sql.contains(", false) OR COALESCE("),
             "{}",
             q.sql
         );

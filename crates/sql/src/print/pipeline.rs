@@ -50,13 +50,13 @@ impl Printer {
                 (format!("count({c})::double precision"), ColType::Number)
             }
             (AggFn::Sum, Some(i), Some(_)) => (
-                format!("sum({})::double precision", self.exact(i)),
+                format!("{}::double precision", self.exact_sum(i)),
                 ColType::Number,
             ),
             (AggFn::Mean, Some(i), Some(c)) => (
                 format!(
-                    "(sum({})::double precision / NULLIF(count({c}), 0)::double precision)",
-                    self.exact(i)
+                    "({}::double precision / NULLIF(count({c}), 0)::double precision)",
+                    self.exact_sum(i)
                 ),
                 ColType::Number,
             ),
@@ -179,6 +179,7 @@ pub fn pipeline(from: &From, order: &RowOrder, cols: &[SrcColumn], pieces: &[Pie
                     sql: String::new(),
                     ty: p.col_ty(k),
                     float: true,
+                    source: false,
                     name: p.cols.get(k).map_or(String::new(), |c| c.name.clone()),
                 });
             }
@@ -189,6 +190,7 @@ pub fn pipeline(from: &From, order: &RowOrder, cols: &[SrcColumn], pieces: &[Pie
                     sql: String::new(),
                     ty,
                     float: true,
+                    source: false,
                     name: a.name.clone(),
                 });
             }
@@ -215,6 +217,7 @@ pub fn pipeline(from: &From, order: &RowOrder, cols: &[SrcColumn], pieces: &[Pie
                     sql: String::new(),
                     ty: p.col_ty(i),
                     float: true,
+                    source: false,
                     name: p.cols.get(i).map_or(String::new(), |c| c.name.clone()),
                 });
             }
@@ -231,7 +234,7 @@ pub fn pipeline(from: &From, order: &RowOrder, cols: &[SrcColumn], pieces: &[Pie
     for piece in later {
         match piece {
             Piece::Step(Step::Keep(e)) => {
-                let pred = p.truth(e);
+                let pred = p.filter(e);
                 rel = p.wrap(&rel, k, &format!("t{k}.r"), Some(pred));
                 k += 1;
             }
@@ -246,6 +249,7 @@ pub fn pipeline(from: &From, order: &RowOrder, cols: &[SrcColumn], pieces: &[Pie
                         sql: c.sql.clone(),
                         ty: c.ty,
                         float: c.float,
+                        source: c.source,
                         name: c.name.clone(),
                     })
                     .collect();

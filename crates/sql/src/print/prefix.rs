@@ -48,6 +48,7 @@ pub(super) fn start(order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Sta
                 sql: format!("s.c{i}"),
                 ty: c.ty,
                 float: c.read == Read::Float,
+                source: true,
                 name: c.name.clone(),
             })
             .collect(),
@@ -100,7 +101,7 @@ pub(super) fn start(order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Sta
     let mut group = None;
     for step in steps {
         match step {
-            Step::Keep(e) => preds.push(p.truth(e)),
+            Step::Keep(e) => preds.push(p.filter(e)),
             Step::Derive { name, expr } => {
                 // Arithmetic prints parenthesised; a column or a literal
                 // needs no parentheses.
@@ -158,11 +159,11 @@ pub fn prefix_steps(from: &From, order: &RowOrder, cols: &[SrcColumn], steps: &[
                         outputs.push(value(ColType::Number));
                     }
                     (AggFn::Sum, Some(i), Some(_)) => {
-                        select.push(format!("sum({})::text", p.exact(i)));
+                        select.push(format!("{}::text", p.exact_sum(i)));
                         outputs.push(value(ColType::Number));
                     }
                     (AggFn::Mean, Some(i), Some(c)) => {
-                        select.push(format!("sum({})::text", p.exact(i)));
+                        select.push(format!("{}::text", p.exact_sum(i)));
                         select.push(format!("count({c})::text"));
                         outputs.push(Output::Mean { name });
                     }
