@@ -80,10 +80,9 @@ impl<'i> Decoder<'i> {
         (row, first_text): (usize, &mut [Option<(usize, String)>]),
     ) -> bool {
         let field = |j: usize| fields.get(j).and_then(|r| text.get(r.clone()));
-        if odd || fields.iter().map(|r| r.len()).sum::<usize>() > self.input.limits.text {
-            if !checked_cells_allowed(self.input.limits, &self.check, field) {
-                return false;
-            }
+        let suspect = odd || fields.iter().map(|r| r.len()).sum::<usize>() > self.input.limits.text;
+        if suspect && !checked_cells_allowed(self.input.limits, &self.check, field) {
+            return false;
         }
         let numbers = self.input.spec.numbers;
         for &(j, ty) in &self.parsed {

@@ -2,6 +2,7 @@
 //! runs resolved view steps, and number/date formatting.
 
 pub mod bucket;
+mod chunk;
 pub mod column;
 pub mod digits;
 pub mod files;
@@ -16,7 +17,6 @@ pub mod model;
 pub mod parquet;
 pub mod probe;
 pub mod progress;
-mod chunk;
 mod record;
 mod split;
 pub mod stats;

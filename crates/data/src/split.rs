@@ -53,8 +53,8 @@ fn odd(b: u8) -> bool {
 #[inline(always)]
 fn block_masks(block: &[u8]) -> (u64, u64) {
     use std::arch::x86_64::{
-        __m128i, _mm_andnot_si128, _mm_cmpeq_epi8, _mm_min_epu8, _mm_movemask_epi8,
-        _mm_or_si128, _mm_set1_epi8, _mm_set_epi64x,
+        __m128i, _mm_andnot_si128, _mm_cmpeq_epi8, _mm_min_epu8, _mm_movemask_epi8, _mm_or_si128,
+        _mm_set1_epi8, _mm_set_epi64x,
     };
     let (mut marks, mut odd) = (0u64, 0u64);
     // SAFETY: these SSE2 intrinsics touch no memory (the bytes are passed
@@ -146,7 +146,9 @@ pub(crate) enum Next {
     /// The buffer ends inside a record (or inside line breaks that may be
     /// followed by one): read more of the file from `at`, the first byte
     /// not yet used.
-    More { at: usize },
+    More {
+        at: usize,
+    },
     /// A quoting error.
     Bad,
 }
@@ -248,7 +250,13 @@ impl<'a> Records<'a> {
         let n = buf.len();
         out.clear();
         fields.clear();
-        let more = |eof: bool| if eof { None } else { Some(Next::More { at: start }) };
+        let more = |eof: bool| {
+            if eof {
+                None
+            } else {
+                Some(Next::More { at: start })
+            }
+        };
         let mut i = start;
         let body = loop {
             let from = out.len();
@@ -357,7 +365,10 @@ mod tests {
                 Ok(false) => return Some(out),
                 Err(_) => return None,
             }
-            let raw = crate::record::RawRecord::new(&text[start as usize..rdr.position().byte() as usize], 1);
+            let raw = crate::record::RawRecord::new(
+                &text[start as usize..rdr.position().byte() as usize],
+                1,
+            );
             if raw.bytes.contains(&b'"') && crate::record::scan_fields(raw.bytes).is_err() {
                 return None;
             }
@@ -368,17 +379,22 @@ mod tests {
     #[test]
     fn plain_quoted_and_broken_records() {
         let text = b"a,b\r\n\n\"x,\"\"y\"\"\",\nlast,\"q\"";
-        let want: Vec<Vec<&[u8]>> = vec![
-            vec![b"a", b"b"],
-            vec![b"x,\"y\"", b""],
-            vec![b"last", b"q"],
-        ];
+        let want: Vec<Vec<&[u8]>> =
+            vec![vec![b"a", b"b"], vec![b"x,\"y\"", b""], vec![b"last", b"q"]];
         let got = split(text, 1 << 20).unwrap_or_default();
-        assert_eq!(got, want.iter().map(|r| r.iter().map(|f| f.to_vec()).collect::<Vec<_>>()).collect::<Vec<_>>());
+        assert_eq!(
+            got,
+            want.iter()
+                .map(|r| r.iter().map(|f| f.to_vec()).collect::<Vec<_>>())
+                .collect::<Vec<_>>()
+        );
         assert_eq!(split(b"a,\"b\"c\n", 64), None);
         assert_eq!(split(b"a,\"b\n", 64), None);
         // a quote inside an unquoted field is data
-        assert_eq!(split(b"a\"b,c", 64).map(|r| r[0][0].clone()), Some(b"a\"b".to_vec()));
+        assert_eq!(
+            split(b"a\"b,c", 64).map(|r| r[0][0].clone()),
+            Some(b"a\"b".to_vec())
+        );
     }
 
     #[test]
@@ -386,9 +402,14 @@ mod tests {
         for round in 0..8usize {
             // every byte value once in four blocks, in a different order
             // each round
-            let bytes: Vec<u8> = (0..256usize).map(|i| ((i * 67 + round * 13) % 256) as u8).collect();
+            let bytes: Vec<u8> = (0..256usize)
+                .map(|i| ((i * 67 + round * 13) % 256) as u8)
+                .collect();
             for block in bytes.chunks_exact(BLOCK) {
-                assert_eq!(block_masks(block), (mask(block, structural), mask(block, odd)));
+                assert_eq!(
+                    block_masks(block),
+                    (mask(block, structural), mask(block, odd))
+                );
             }
         }
     }
@@ -434,7 +455,13 @@ mod tests {
             for (k, (cells, end)) in rows.into_iter().enumerate() {
                 let cells: Vec<String> = cells
                     .into_iter()
-                    .map(|(c, quote)| if quote { format!("\"{}\"", c.replace('"', "\"\"")) } else { c })
+                    .map(|(c, quote)| {
+                        if quote {
+                            format!("\"{}\"", c.replace('"', "\"\""))
+                        } else {
+                            c
+                        }
+                    })
                     .collect();
                 s.push_str(&cells.join(","));
                 if k + 1 < n || last {
