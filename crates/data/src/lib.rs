@@ -2,6 +2,7 @@
 //! runs resolved view steps, and number/date formatting.
 
 pub mod bucket;
+mod chunk;
 mod colfold;
 pub mod column;
 pub mod digits;
@@ -19,6 +20,7 @@ pub mod parquet;
 pub mod probe;
 pub mod progress;
 mod record;
+mod split;
 pub mod stats;
 pub mod store;
 pub mod stream;

@@ -54,13 +54,11 @@ use std::sync::atomic::{AtomicUsize, Ordering as AtomicOrdering};
 use std::sync::Mutex;
 
 use crate::files::ReadAt;
-use crate::fold::{states, Sink};
+use crate::fold::Sink;
 use crate::groups::Groups;
 use crate::load::{CsvSpec, LoadError, ReadLimits};
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Values};
 use crate::probe::{Probe, Seen, Watch};
-use crate::record::{forbidden_char, reader_builder, scan_fields, too_long, RawRecord, Tee};
-use crate::time::{parse_date, parse_month_or_date, parse_year};
 
 /// The streamable prefix of one view.
 #[derive(Clone, Debug, PartialEq)]
@@ -161,7 +159,7 @@ pub fn scan(input: &ScanInput<'_>, chunks: &Chunks) -> Result<ScanOutput, ScanFa
         if k >= starts.len() {
             break;
         }
-        let out = run_chunk(input, starts[k], &starts[k + 1..]);
+        let out = crate::chunk::run_chunk(input, starts[k], &starts[k + 1..]);
         if let Ok(mut r) = results.lock() {
             r[k] = Some(out);
         }
@@ -227,7 +225,7 @@ fn chunk_starts(
 
 /// Where a chunk's worker stopped.
 #[derive(Clone, Debug)]
-enum End {
+pub(crate) enum End {
     /// At the end of the file.
     Eof,
     /// At the verified start of chunk `k + 1 + i`, where `k` is its own
@@ -238,12 +236,12 @@ enum End {
 }
 
 #[derive(Clone, Debug)]
-struct ChunkOut {
-    end: End,
-    rows: usize,
-    views: Vec<ViewState>,
-    watches: Vec<Watch>,
-    first_text: Vec<Option<(usize, String)>>,
+pub(crate) struct ChunkOut {
+    pub(crate) end: End,
+    pub(crate) rows: usize,
+    pub(crate) views: Vec<ViewState>,
+    pub(crate) watches: Vec<Watch>,
+    pub(crate) first_text: Vec<Option<(usize, String)>>,
 }
 
 /// Per view: groups, or kept rows.
@@ -291,169 +289,12 @@ pub(crate) fn add_record(
     true
 }
 
-/// Do the cells the loader checks (`check`, read with `field`) of a record
-/// (all its fields: `whole`) hold no character XML cannot carry, and none
-/// over the text limit? Most records have no byte that could be either, and
-/// are passed at once.
-fn cells_allowed<'a>(
-    limits: &ReadLimits,
-    whole: &'a str,
-    check: &[usize],
-    field: impl Fn(usize) -> Option<&'a str>,
-) -> bool {
-    let suspect = whole.bytes().any(|b| b < 0x20 || b == 0xEF);
-    if !suspect && whole.len() <= limits.text {
-        return true;
-    }
-    check.iter().all(|&j| {
-        let Some(text) = field(j) else {
-            return true;
-        };
-        forbidden_char(text).is_none() && too_long(text, limits.text).is_none()
-    })
-}
-
 /// Do the kept rows held in `cols` fit the row limit (or, without one, the
 /// memory allowed)?
 pub(crate) fn rows_fit(limits: &ReadLimits, cols: &[Values]) -> bool {
     match limits.rows {
         Some(max) => cols.first().map_or(0, Values::len) <= max,
         None => cols.iter().map(Values::heap_bytes).sum::<usize>() as u64 <= limits.memory,
-    }
-}
-
-/// Reusable per-record storage for cells borrowed from the current record.
-fn recycle<'a>(mut v: Vec<Cell<'_>>) -> Vec<Cell<'a>> {
-    v.clear();
-    v.into_iter().map(|_| Cell::Missing).collect()
-}
-
-/// Read one chunk: records from `start` until a verified boundary among
-/// `next` (the starts of the chunks after it) or the end of the file.
-fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
-    let ncols = input.schema.len();
-    let mut out = ChunkOut {
-        end: End::Failed,
-        rows: 0,
-        views: states(input.views, ncols),
-        watches: input.views.iter().map(|v| Watch::new(&v.keeps)).collect(),
-        first_text: vec![None; ncols],
-    };
-    let mut rdr = reader_builder()
-        .buffer_capacity(256 * 1024)
-        .from_reader(Tee::new(ReadAt::new(input.file, start)));
-    // the cells the loader checks: those of kept and declared columns
-    let check: Vec<usize> = (0..ncols)
-        .filter(|&j| {
-            input.parse.get(j).copied().unwrap_or(false)
-                || input.keep_values.get(j).copied().unwrap_or(false)
-        })
-        .collect();
-    let mut kept = vec![0usize; input.views.len()];
-    let (views, keep_values, limits) = (input.views, input.keep_values, input.limits);
-    let sink = Sink {
-        views,
-        keep_values,
-        limits,
-    };
-    let mut record = csv::ByteRecord::new();
-    let mut target = 0usize;
-    let mut scratch: Vec<Cell<'static>> = Vec::with_capacity(ncols);
-    let mut keybuf: Vec<u8> = Vec::with_capacity(64);
-    let missing: Vec<&str> = input.spec.missing.iter().map(String::as_str).collect();
-    let numbers = input.spec.numbers;
-    let parsed: Vec<(usize, ColType)> = (0..ncols)
-        .filter(|&j| input.parse.get(j).copied().unwrap_or(false))
-        .map(|j| (j, input.schema[j].1))
-        .collect();
-    let mut text_done: Vec<bool> = (0..ncols)
-        .map(|j| input.schema[j].1 != ColType::Text)
-        .collect();
-    loop {
-        match rdr.read_byte_record(&mut record) {
-            Ok(true) => {}
-            Ok(false) => {
-                // A chunk that runs into the end of the file has verified
-                // nothing after it; that is right only for the last one.
-                out.end = End::Eof;
-                return out;
-            }
-            Err(_) => return out,
-        }
-        let rec_start = record.position().map_or(0, |p| p.byte());
-        let rec_end = rdr.position().byte();
-        {
-            let tee = rdr.get_mut();
-            let window = tee.window(rec_start, rec_end);
-            let raw = RawRecord::new(window, 1);
-            if raw.bytes.contains(&b'"') && scan_fields(raw.bytes).is_err() {
-                return out;
-            }
-        }
-        if record.len() != ncols {
-            return out;
-        }
-        // UTF-8: the whole record checked once; then each field is a slice
-        // of it that must start (and end) between characters.
-        let Ok(whole) = std::str::from_utf8(record.as_slice()) else {
-            return out;
-        };
-        let field = |j: usize| record.range(j).and_then(|r| whole.get(r));
-        if (0..ncols).any(|j| field(j).is_none()) {
-            return out;
-        }
-        if !cells_allowed(input.limits, whole, &check, field) {
-            return out;
-        }
-        let mut cells = recycle(std::mem::take(&mut scratch));
-        cells.resize(ncols, Cell::Missing);
-        for &(j, ty) in &parsed {
-            let Some(text) = field(j) else {
-                return out;
-            };
-            if missing.contains(&text) {
-                continue;
-            }
-            let c = match ty {
-                ColType::Text => Some(Cell::Text(text)),
-                ColType::Number => numbers.parse(text).map(Cell::Number),
-                ColType::Date => parse_date(text).map(Cell::Date),
-                ColType::Month => parse_month_or_date(text).map(Cell::Month),
-                ColType::Year => parse_year(text).map(Cell::Year),
-            };
-            let Some(c) = c else {
-                return out;
-            };
-            if !text_done[j] && numbers.parse(text).is_none() {
-                text_done[j] = true;
-                out.first_text[j] = Some((out.rows, text.to_owned()));
-            }
-            cells[j] = c;
-        }
-        let views = (&mut out.views[..], &mut out.watches[..]);
-        if !add_record(&sink, &cells, views, &mut kept, &mut keybuf) {
-            return out;
-        }
-        scratch = recycle(cells);
-        out.rows += 1;
-        rdr.get_mut().consumed(rec_end);
-        // Verify the next boundary once this record reaches it.
-        let p = start + rec_end;
-        while let Some(&s) = next.get(target) {
-            if p > s {
-                // The record spans the guessed boundary: that chunk's start
-                // was inside a quoted field. Absorb it.
-                target += 1;
-                continue;
-            }
-            let gap = (s - p) as usize;
-            let after = rdr.get_mut().window(rec_end, rec_end + gap as u64);
-            if after.len() == gap && after.iter().all(|&b| b == b'\n' || b == b'\r') {
-                out.end = End::Boundary(target);
-                return out;
-            }
-            break;
-        }
     }
 }
 

@@ -1,0 +1,243 @@
+//! One chunk of a streamed CSV file ([`crate::stream`]): its records found
+//! by our own splitter ([`crate::split`]) in large buffers, the cells of the
+//! columns the story reads (or declares) decoded and checked, and every
+//! record fed to the views.
+
+use std::io::{ErrorKind, Read};
+use std::ops::Range;
+
+use crate::files::ReadAt;
+use crate::fold::{states, Sink};
+use crate::load::ReadLimits;
+use crate::model::{Cell, ColType};
+use crate::probe::Watch;
+use crate::record::{forbidden_char, too_long};
+use crate::split::{Index, Next, Records};
+use crate::stream::{add_record, ChunkOut, End, ScanInput};
+use crate::time::{parse_date, parse_month_or_date, parse_year};
+
+/// Bytes read at a time (a buffer grows when one record is longer).
+const BUFFER: usize = 1 << 20;
+
+/// Reusable per-record storage for cells borrowed from the current buffer.
+fn recycle<'a>(mut v: Vec<Cell<'_>>) -> Vec<Cell<'a>> {
+    v.clear();
+    v.into_iter().map(|_| Cell::Missing).collect()
+}
+
+/// Do the cells the loader checks (`check`) hold no character XML cannot
+/// carry, and none over the text limit? `field` gives a cell's text.
+fn checked_cells_allowed<'a>(
+    limits: &ReadLimits,
+    check: &[usize],
+    field: impl Fn(usize) -> Option<&'a str>,
+) -> bool {
+    check.iter().all(|&j| {
+        field(j).is_none_or(|t| forbidden_char(t).is_none() && too_long(t, limits.text).is_none())
+    })
+}
+
+/// How the cells of one chunk are read: per column whether (and as what)
+/// it is parsed, the last date-like cell of each column (ledgers repeat
+/// them row after row), whether a text column has shown a non-number yet.
+struct Decoder<'i> {
+    input: &'i ScanInput<'i>,
+    parsed: Vec<(usize, ColType)>,
+    check: Vec<usize>,
+    missing: Vec<&'i str>,
+    last: Vec<(Vec<u8>, Option<Cell<'static>>)>,
+    text_done: Vec<bool>,
+}
+
+impl<'i> Decoder<'i> {
+    fn new(input: &'i ScanInput<'i>) -> Self {
+        let ncols = input.schema.len();
+        let parse = |j: usize| input.parse.get(j).copied().unwrap_or(false);
+        Decoder {
+            input,
+            parsed: (0..ncols)
+                .filter(|&j| parse(j))
+                .map(|j| (j, input.schema[j].1))
+                .collect(),
+            // the cells the loader checks: those of kept and declared columns
+            check: (0..ncols)
+                .filter(|&j| parse(j) || input.keep_values.get(j).copied().unwrap_or(false))
+                .collect(),
+            missing: input.spec.missing.iter().map(String::as_str).collect(),
+            last: vec![(Vec::new(), None); ncols],
+            text_done: (0..ncols)
+                .map(|j| input.schema[j].1 != ColType::Text)
+                .collect(),
+        }
+    }
+
+    /// The cells of one record (fields as ranges of `text`) into `cells`;
+    /// `false` when a cell is not allowed or does not parse.
+    fn decode<'t>(
+        &mut self,
+        (text, fields, odd): (&'t str, &[Range<usize>], bool),
+        cells: &mut [Cell<'t>],
+        (row, first_text): (usize, &mut [Option<(usize, String)>]),
+    ) -> bool {
+        let field = |j: usize| fields.get(j).and_then(|r| text.get(r.clone()));
+        let suspect = odd || fields.iter().map(|r| r.len()).sum::<usize>() > self.input.limits.text;
+        if suspect && !checked_cells_allowed(self.input.limits, &self.check, field) {
+            return false;
+        }
+        let numbers = self.input.spec.numbers;
+        for &(j, ty) in &self.parsed {
+            let Some(text) = field(j) else {
+                return false;
+            };
+            if self.missing.contains(&text) {
+                continue;
+            }
+            let c = match ty {
+                ColType::Text => Some(Cell::Text(text)),
+                ColType::Number => numbers.parse(text).map(Cell::Number),
+                ColType::Date | ColType::Month | ColType::Year => {
+                    let (seen, cell) = &mut self.last[j];
+                    if seen.as_slice() != text.as_bytes() || cell.is_none() {
+                        seen.clear();
+                        seen.extend_from_slice(text.as_bytes());
+                        *cell = match ty {
+                            ColType::Date => parse_date(text).map(Cell::Date),
+                            ColType::Month => parse_month_or_date(text).map(Cell::Month),
+                            _ => parse_year(text).map(Cell::Year),
+                        };
+                    }
+                    *cell
+                }
+            };
+            let Some(c) = c else {
+                return false;
+            };
+            if !self.text_done[j] && numbers.parse(text).is_none() {
+                self.text_done[j] = true;
+                first_text[j] = Some((row, text.to_owned()));
+            }
+            cells[j] = c;
+        }
+        true
+    }
+}
+
+/// Fill `buf[len..]` from `file` (less only at the end of the file).
+fn fill(file: &mut ReadAt<'_>, buf: &mut [u8], mut len: usize) -> std::io::Result<(usize, bool)> {
+    while len < buf.len() {
+        match file.read(&mut buf[len..]) {
+            Ok(0) => return Ok((len, true)),
+            Ok(n) => {
+                crate::progress::advance(n as u64);
+                len += n;
+            }
+            Err(e) if e.kind() == ErrorKind::Interrupted => {}
+            Err(e) => return Err(e),
+        }
+    }
+    Ok((len, false))
+}
+
+/// Read one chunk: records from `start` until a verified boundary among
+/// `next` (the starts of the chunks after it) or the end of the file.
+pub(crate) fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
+    let ncols = input.schema.len();
+    let mut out = ChunkOut {
+        end: End::Failed,
+        rows: 0,
+        views: states(input.views, ncols),
+        watches: input.views.iter().map(|v| Watch::new(&v.keeps)).collect(),
+        first_text: vec![None; ncols],
+    };
+    let sink = Sink {
+        views: input.views,
+        keep_values: input.keep_values,
+        limits: input.limits,
+    };
+    let mut decoder = Decoder::new(input);
+    let mut kept = vec![0usize; input.views.len()];
+    let mut scratch: Vec<Cell<'static>> = Vec::with_capacity(ncols);
+    let mut keybuf: Vec<u8> = Vec::with_capacity(64);
+    let mut file = ReadAt::new(input.file, start);
+    let mut buf = vec![0u8; BUFFER];
+    let (mut len, mut base, mut target) = (0usize, start, 0usize);
+    let mut index = Index::default();
+    let (mut fields, mut decoded) = (Vec::with_capacity(ncols), Vec::new());
+    loop {
+        let eof;
+        (len, eof) = match fill(&mut file, &mut buf, len) {
+            Ok(r) => r,
+            Err(_) => return out,
+        };
+        let data = &buf[..len];
+        index.build(data);
+        // UTF-8: the whole buffer checked once (a character cut at its end
+        // is checked again with the next buffer); no record may reach
+        // past the first invalid byte
+        let text = match std::str::from_utf8(data) {
+            Ok(t) => t,
+            Err(e) => {
+                let valid = &data[..e.valid_up_to()];
+                std::str::from_utf8(valid).unwrap_or_default()
+            }
+        };
+        let mut recs = Records::new(data, &index, eof, 0);
+        let at = loop {
+            let r = match recs.next(&mut fields, &mut decoded) {
+                Next::Record(r) => r,
+                Next::End => {
+                    out.end = End::Eof;
+                    return out;
+                }
+                Next::More { at } => break at,
+                Next::Bad => return out,
+            };
+            if r.raw.end > text.len() || fields.len() != ncols {
+                return out;
+            }
+            let src = if r.decoded {
+                match std::str::from_utf8(&decoded) {
+                    Ok(t) => t,
+                    Err(_) => return out,
+                }
+            } else {
+                text
+            };
+            let mut cells = recycle(std::mem::take(&mut scratch));
+            cells.resize(ncols, Cell::Missing);
+            let rec = (src, &fields[..], r.odd);
+            if !decoder.decode(rec, &mut cells, (out.rows, &mut out.first_text)) {
+                return out;
+            }
+            let views = (&mut out.views[..], &mut out.watches[..]);
+            if !add_record(&sink, &cells, views, &mut kept, &mut keybuf) {
+                return out;
+            }
+            scratch = recycle(cells);
+            out.rows += 1;
+            // Verify the next boundary once this record reaches it.
+            let p = base + r.end as u64;
+            while let Some(&s) = next.get(target) {
+                if p > s {
+                    // The record spans the guessed boundary: that chunk's
+                    // start was inside a quoted field. Absorb it.
+                    target += 1;
+                    continue;
+                }
+                let gap = data.get(r.end..r.end + (s - p) as usize);
+                if gap.is_some_and(|g| g.iter().all(|&b| b == b'\n' || b == b'\r')) {
+                    out.end = End::Boundary(target);
+                    return out;
+                }
+                break;
+            }
+        };
+        if at == 0 && len == buf.len() {
+            // one record longer than the buffer
+            buf.resize(buf.len() * 2, 0);
+        }
+        buf.copy_within(at..len, 0);
+        len -= at;
+        base += at as u64;
+    }
+}
