@@ -13,6 +13,7 @@ pub mod load;
 mod loader;
 pub mod locale;
 pub mod model;
+mod order;
 pub mod parquet;
 pub mod probe;
 pub mod progress;

@@ -690,6 +690,10 @@ fn extreme<'a>(cells: impl Iterator<Item = Cell<'a>>, want: Ordering) -> Value {
 /// by byte order, numbers by value, times chronologically. Rows that tie on
 /// every key keep their input order.
 fn sort(t: &Table, keys: &[(usize, bool)]) -> Table {
+    // by precomputed codes when every key column has them (the same order)
+    if let Some(rows) = crate::order::sorted_rows(t, keys, row_count(t)) {
+        return take_rows(t, &rows);
+    }
     let mut rows: Vec<usize> = (0..row_count(t)).collect();
     rows.sort_by(|&a, &b| {
         for &(col, desc) in keys {
@@ -739,20 +743,14 @@ fn top(t: &Table, key: usize, by: usize, n: usize, rest: &str) -> Table {
     if cats.len() <= n {
         return t.clone();
     }
-    let mut ranked: Vec<(usize, Option<f64>)> = cats
+    let ranked: Vec<(usize, Option<f64>)> = cats
         .iter()
         .enumerate()
         .map(|(i, rs)| (i, sum_of(rs.iter().map(|&r| cell(t, by, r))).total()))
         .collect();
-    // Stable: equal totals keep first-appearance order.
-    ranked.sort_by(|a, b| match (a.1, b.1) {
-        (Some(x), Some(y)) => y.total_cmp(&x),
-        (Some(_), None) => Ordering::Less,
-        (None, Some(_)) => Ordering::Greater,
-        (None, None) => Ordering::Equal,
-    });
+    // Equal totals keep first-appearance order (as a stable sort).
     let mut kept_row = vec![false; rows];
-    for &(i, _) in ranked.iter().take(n) {
+    for &(i, _) in &crate::order::first_ranked(ranked, n) {
         for &r in cats.get(i) {
             kept_row[r] = true;
         }
