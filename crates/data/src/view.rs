@@ -320,23 +320,39 @@ const UP: f64 = 18_446_744_073_709_551_616.0;
 /// below about 1e-300 lose their lowest bits then, far below the rounding
 /// of a total that large). [`Sum::total`] is then infinite only when the
 /// total really is beyond the largest double, and [`Sum::mean`] never is.
+///
+/// A sum takes 32 bytes, aligned to 32, so a group's sum in a flat array of
+/// a million is one cache line, never two.
 #[derive(Clone, Debug, Default, PartialEq)]
+#[repr(align(32))]
 pub(crate) struct Sum {
     /// Nearly always one or two partials: kept inline, so a sum per group
     /// allocates nothing.
     partials: SmallVec<[f64; 2]>,
-    n: usize,
-    /// The partials hold the sum times 2^-64.
-    scaled: bool,
+    /// The number of terms; in the top bit ([`SCALED`]) whether the
+    /// partials hold the sum times 2^-64.
+    n: u64,
 }
 
+/// The bit of [`Sum::n`] that says the partials are scaled.
+const SCALED: u64 = 1 << 63;
+
 impl Sum {
+    fn scaled(&self) -> bool {
+        self.n & SCALED != 0
+    }
+
+    /// The number of terms.
+    fn count(&self) -> u64 {
+        self.n & !SCALED
+    }
+
     pub(crate) fn add(&mut self, x: f64) {
         self.n += 1;
         // the common case, one partial and no scaling: the loop of `push`
         // unrolled (the same two-sum, so the same partials)
         if let [y] = self.partials[..] {
-            if !self.scaled && x.abs() < BIG && y.abs() < BIG {
+            if !self.scaled() && x.abs() < BIG && y.abs() < BIG {
                 let (a, b) = if x.abs() < y.abs() { (y, x) } else { (x, y) };
                 let hi = a + b;
                 let lo = b - (hi - a);
@@ -354,15 +370,15 @@ impl Sum {
 
     /// Add `x` (already scaled by 2^-64 when `x_scaled`).
     fn push(&mut self, x: f64, x_scaled: bool) {
-        if !self.scaled
+        if !self.scaled()
             && (x_scaled || x.abs() >= BIG || self.partials.last().is_some_and(|p| p.abs() >= BIG))
         {
             for p in &mut self.partials {
                 *p *= DOWN;
             }
-            self.scaled = true;
+            self.n |= SCALED;
         }
-        let mut x = if self.scaled && !x_scaled {
+        let mut x = if self.scaled() && !x_scaled {
             x * DOWN
         } else {
             x
@@ -387,15 +403,15 @@ impl Sum {
 
     /// No terms yet?
     pub(crate) fn is_empty(&self) -> bool {
-        self.n == 0
+        self.count() == 0
     }
 
     /// Add every term of `other` (exactly).
     pub(crate) fn merge(&mut self, other: &Sum) {
         for &p in &other.partials {
-            self.push(p, other.scaled);
+            self.push(p, other.scaled());
         }
-        self.n += other.n;
+        self.n += other.count();
     }
 
     /// The partials rounded once to the nearest double (as `math.fsum`).
@@ -433,20 +449,20 @@ impl Sum {
     /// The sum; infinite when it is beyond the largest double; `None`
     /// without terms.
     pub(crate) fn total(&self) -> Option<f64> {
-        if self.n == 0 {
+        if self.count() == 0 {
             return None;
         }
         let t = self.rounded();
-        Some(if self.scaled { t * UP } else { t })
+        Some(if self.scaled() { t * UP } else { t })
     }
 
     /// The mean of the terms; `None` without terms.
     pub(crate) fn mean(&self) -> Option<f64> {
-        if self.n == 0 {
+        if self.count() == 0 {
             return None;
         }
-        let m = self.rounded() / self.n as f64;
-        Some(if self.scaled { m * UP } else { m })
+        let m = self.rounded() / self.count() as f64;
+        Some(if self.scaled() { m * UP } else { m })
     }
 }
 
@@ -471,8 +487,15 @@ pub(crate) fn encode_key(buf: &mut Vec<u8>, c: Cell<'_>) {
             buf.extend_from_slice(&bits.to_le_bytes());
         }
         Cell::Text(s) => {
+            // the length in 7-bit groups, low first, the high bit set on all
+            // but the last (LEB128): one byte for texts under 128 bytes
             buf.push(2);
-            buf.extend_from_slice(&(s.len() as u64).to_le_bytes());
+            let mut n = s.len() as u64;
+            while n >= 0x80 {
+                buf.push((n as u8 & 0x7f) | 0x80);
+                n >>= 7;
+            }
+            buf.push(n as u8);
             buf.extend_from_slice(s.as_bytes());
         }
         Cell::Date(d) => {
@@ -1324,6 +1347,12 @@ mod tests {
         let mut small = Sum::default();
         [0.1, 0.2, 0.3].iter().for_each(|&x| small.add(x));
         assert_eq!(small.total(), Some(0.6));
+    }
+
+    #[test]
+    fn a_sum_is_half_a_cache_line() {
+        assert_eq!(std::mem::size_of::<Sum>(), 32);
+        assert_eq!(std::mem::align_of::<Sum>(), 32);
     }
 
     #[test]
