@@ -19,7 +19,7 @@ use hashbrown::HashTable;
 
 use crate::hash::hash_bytes;
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Value, Values};
-use crate::view::{compare_cells, encode_key, sum_value, Sum};
+use crate::view::{compare_cells, sum_value, Sum};
 
 /// Distinct encoded keys numbered in order of first appearance, interned
 /// in one arena.
@@ -476,6 +476,43 @@ impl Groups {
             });
         }
         columns
+    }
+}
+
+/// Append a key cell to `buf` so that two rows get equal bytes exactly when
+/// they belong to one group (`-0` and `0` are one key).
+pub(crate) fn encode_key(buf: &mut Vec<u8>, c: Cell<'_>) {
+    match c {
+        Cell::Missing => buf.push(0),
+        Cell::Number(x) => {
+            buf.push(1);
+            let bits = if x == 0.0 { 0 } else { x.to_bits() };
+            buf.extend_from_slice(&bits.to_le_bytes());
+        }
+        Cell::Text(s) => {
+            // the length in 7-bit groups, low first, the high bit set on all
+            // but the last (LEB128): one byte for texts under 128 bytes
+            buf.push(2);
+            let mut n = s.len() as u64;
+            while n >= 0x80 {
+                buf.push((n as u8 & 0x7f) | 0x80);
+                n >>= 7;
+            }
+            buf.push(n as u8);
+            buf.extend_from_slice(s.as_bytes());
+        }
+        Cell::Date(d) => {
+            buf.push(3);
+            buf.extend_from_slice(&d.to_le_bytes());
+        }
+        Cell::Month(m) => {
+            buf.push(4);
+            buf.extend_from_slice(&m.to_le_bytes());
+        }
+        Cell::Year(y) => {
+            buf.push(5);
+            buf.extend_from_slice(&y.to_le_bytes());
+        }
     }
 }
 
