@@ -19,16 +19,13 @@ use hashbrown::HashTable;
 
 use crate::hash::hash_bytes;
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Value, Values};
-use crate::view::{compare_cells, encode_key, sum_value, Sum};
+use crate::view::{compare_cells, sum_value, Sum};
 
 /// Distinct encoded keys numbered in order of first appearance, interned
 /// in one arena.
 #[derive(Clone, Debug, Default)]
 pub(crate) struct KeyIndex {
-    /// Per key: where it starts in `arena`, and its number; hashed by the
-    /// key. A lookup compares the arena's bytes at `start` with the key
-    /// directly (encoded keys of one column list are prefix-free, so equal
-    /// bytes up to the key's length mean the same key).
+    /// Per key: its number and its first bytes; hashed by the key.
     index: HashTable<Entry>,
     /// Every key, one after another.
     arena: Vec<u8>,
@@ -36,10 +33,19 @@ pub(crate) struct KeyIndex {
     ends: Vec<usize>,
 }
 
+/// Bytes of a key held in its hash-table entry.
+const HEAD: usize = 12;
+
+/// A key's number and its first [`HEAD`] bytes (zeros after its end). A
+/// lookup of a key no longer than that compares the entry alone: the
+/// table's lines are the only memory it reads, not the arena's. Encoded
+/// keys of one key list are prefix-free (no key is the start of another),
+/// so equal heads mean the same key when the sought key fits in one, and
+/// a longer key compares the rest with the arena.
 #[derive(Clone, Copy, Debug)]
 struct Entry {
-    start: usize,
-    id: usize,
+    id: u32,
+    head: [u8; HEAD],
 }
 
 impl KeyIndex {
@@ -56,25 +62,51 @@ impl KeyIndex {
     /// The number of `key` (hashed `h`, see [`hash_bytes`]), and whether it
     /// is new.
     pub(crate) fn id(&mut self, h: u64, key: &[u8]) -> (usize, bool) {
-        let arena = &self.arena;
+        let mut head = [0u8; HEAD];
+        let n = key.len().min(HEAD);
+        head[..n].copy_from_slice(&key[..n]);
+        let (arena, ends) = (&self.arena, &self.ends);
         let same = |e: &Entry| {
-            arena
-                .get(e.start..e.start + key.len())
-                .is_some_and(|k| same_bytes(k, key))
+            e.head == head
+                && (key.len() <= HEAD || {
+                    let start = key_start(ends, e.id as usize);
+                    arena
+                        .get(start + HEAD..start + key.len())
+                        .is_some_and(|k| same_bytes(k, &key[HEAD..]))
+                })
         };
         if let Some(e) = self.index.find(h, same) {
-            return (e.id, false);
+            return (e.id as usize, false);
         }
-        let entry = Entry {
-            start: self.arena.len(),
-            id: self.ends.len(),
-        };
+        let id = self.ends.len();
         self.arena.extend_from_slice(key);
         self.ends.push(self.arena.len());
+        // past 2^32 keys (more than memory holds) the table cannot number
+        // them: the arena is searched instead (never in practice)
+        let Ok(id32) = u32::try_from(id) else {
+            return self.slow_id(key, id);
+        };
         let (arena, ends) = (&self.arena, &self.ends);
+        let entry = Entry { id: id32, head };
         self.index
-            .insert_unique(h, entry, |e| hash_bytes(key_of(arena, ends, e.id)));
-        (entry.id, true)
+            .insert_unique(h, entry, |e| hash_bytes(key_of(arena, ends, e.id as usize)));
+        (id, true)
+    }
+
+    /// The number of `key`, just appended as key `id`, among the keys past
+    /// those the table numbers.
+    #[cold]
+    fn slow_id(&mut self, key: &[u8], id: usize) -> (usize, bool) {
+        let first = u32::MAX as usize + 1;
+        let found = (first..id).find(|&g| same_bytes(self.key(g), key));
+        match found {
+            Some(g) => {
+                self.ends.pop();
+                self.arena.truncate(key_start(&self.ends, id));
+                (g, false)
+            }
+            None => (id, true),
+        }
     }
 }
 
@@ -322,11 +354,14 @@ fn same_bytes(a: &[u8], b: &[u8]) -> bool {
 /// The bytes of key `g`.
 fn key_of<'a>(arena: &'a [u8], ends: &[usize], g: usize) -> &'a [u8] {
     let end = ends.get(g).copied().unwrap_or(0);
-    let start = g
-        .checked_sub(1)
+    arena.get(key_start(ends, g)..end).unwrap_or(&[])
+}
+
+/// Where key `g` starts in the arena.
+fn key_start(ends: &[usize], g: usize) -> usize {
+    g.checked_sub(1)
         .and_then(|p| ends.get(p).copied())
-        .unwrap_or(0);
-    arena.get(start..end).unwrap_or(&[])
+        .unwrap_or(0)
 }
 
 impl Groups {
@@ -444,6 +479,43 @@ impl Groups {
     }
 }
 
+/// Append a key cell to `buf` so that two rows get equal bytes exactly when
+/// they belong to one group (`-0` and `0` are one key).
+pub(crate) fn encode_key(buf: &mut Vec<u8>, c: Cell<'_>) {
+    match c {
+        Cell::Missing => buf.push(0),
+        Cell::Number(x) => {
+            buf.push(1);
+            let bits = if x == 0.0 { 0 } else { x.to_bits() };
+            buf.extend_from_slice(&bits.to_le_bytes());
+        }
+        Cell::Text(s) => {
+            // the length in 7-bit groups, low first, the high bit set on all
+            // but the last (LEB128): one byte for texts under 128 bytes
+            buf.push(2);
+            let mut n = s.len() as u64;
+            while n >= 0x80 {
+                buf.push((n as u8 & 0x7f) | 0x80);
+                n >>= 7;
+            }
+            buf.push(n as u8);
+            buf.extend_from_slice(s.as_bytes());
+        }
+        Cell::Date(d) => {
+            buf.push(3);
+            buf.extend_from_slice(&d.to_le_bytes());
+        }
+        Cell::Month(m) => {
+            buf.push(4);
+            buf.extend_from_slice(&m.to_le_bytes());
+        }
+        Cell::Year(y) => {
+            buf.push(5);
+            buf.extend_from_slice(&y.to_le_bytes());
+        }
+    }
+}
+
 /// The first key cell encoded at the start of `bytes` (see
 /// [`encode_key`]), and the bytes after it.
 fn decode_key(bytes: &[u8]) -> (Cell<'_>, &[u8]) {
@@ -454,11 +526,24 @@ fn decode_key(bytes: &[u8]) -> (Cell<'_>, &[u8]) {
     };
     let decoded = match tag {
         1 => word(rest).map(|w| (Cell::Number(f64::from_bits(w)), 8)),
-        2 => word(rest).and_then(|n| {
-            let n = usize::try_from(n).ok()?;
-            let text = std::str::from_utf8(rest.get(8..8 + n)?).ok()?;
-            Some((Cell::Text(text), 8 + n))
-        }),
+        2 => {
+            // the length as `encode_key` writes it (LEB128)
+            let (mut n, mut shift, mut used) = (0u64, 0u32, 0usize);
+            loop {
+                let Some(&b) = rest.get(used) else { break None };
+                used += 1;
+                n |= u64::from(b & 0x7f).checked_shl(shift).unwrap_or(0);
+                shift += 7;
+                if b < 0x80 {
+                    break Some(());
+                }
+            }
+            .and_then(|()| {
+                let n = usize::try_from(n).ok()?;
+                let text = std::str::from_utf8(rest.get(used..used.checked_add(n)?)?).ok()?;
+                Some((Cell::Text(text), used + n))
+            })
+        }
         3 => int(rest).map(|t| (Cell::Date(t), 4)),
         4 => int(rest).map(|t| (Cell::Month(t), 4)),
         5 => int(rest).map(|t| (Cell::Year(t), 4)),
@@ -485,6 +570,52 @@ mod tests {
                 assert!(!same_bytes(&a, &b), "length {n}, byte {i}");
             }
             assert!(!same_bytes(&a, &a[..n.saturating_sub(1)]) || n == 0);
+        }
+    }
+
+    #[test]
+    fn keys_decode_as_encoded_at_every_text_length() {
+        // lengths around the one-byte and two-byte length encodings and
+        // around the head held in the table entry
+        for n in [0usize, 1, 5, 11, 12, 13, 127, 128, 129, 300, 16_400] {
+            let text: String = (0..n).map(|i| char::from(b'a' + (i % 26) as u8)).collect();
+            let mut buf = Vec::new();
+            let cells = [Cell::Text(&text), Cell::Number(-2.5), Cell::Missing];
+            for c in cells {
+                encode_key(&mut buf, c);
+            }
+            let mut rest = &buf[..];
+            for want in cells {
+                let (got, after) = decode_key(rest);
+                assert_eq!(got, want, "length {n}");
+                rest = after;
+            }
+            assert!(rest.is_empty());
+        }
+    }
+
+    #[test]
+    fn short_and_long_keys_sharing_a_head_are_distinct() {
+        // two-column keys: texts whose encodings share their first bytes,
+        // short ones held whole in the entry, long ones compared with the
+        // arena past it
+        let mut k = KeyIndex::default();
+        let mut keys = Vec::new();
+        for a in ["", "x", "xxxxxxxxxx", "xxxxxxxxxxx", "xxxxxxxxxxxxxxxxxxxx"] {
+            for b in ["", "x", "y", "xxxxxxxxxxxxxxxx", "xxxxxxxxxxxxxxxy"] {
+                let mut key = Vec::new();
+                encode_key(&mut key, Cell::Text(a));
+                encode_key(&mut key, Cell::Text(b));
+                keys.push(key);
+            }
+        }
+        for round in 0..2 {
+            for (i, key) in keys.iter().enumerate() {
+                assert_eq!(k.id(hash_bytes(key), key), (i, round == 0));
+            }
+        }
+        for (i, key) in keys.iter().enumerate() {
+            assert_eq!(k.key(i), &key[..]);
         }
     }
 

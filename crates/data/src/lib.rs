@@ -16,6 +16,7 @@ pub mod load;
 mod loader;
 pub mod locale;
 pub mod model;
+mod order;
 pub mod parquet;
 pub mod probe;
 pub mod progress;
