@@ -659,6 +659,40 @@ pub fn each_group(
     keeps: &[Expr],
     each: &mut dyn FnMut(Table) -> bool,
 ) -> Result<Groups, LoadError> {
+    each_group_from(spec, file, (columns, limits, keeps), 0, each)
+}
+
+/// The first row group that holds rows, read on this thread alone (no
+/// group after it is decoded): its number, its table, and how many groups
+/// before it were skipped by their statistics. `None`: no group holds rows.
+/// A caller that needs the column types before it can take the groups
+/// reads this one, then the rest with [`each_group_from`] from the next
+/// number, so no group is decoded twice.
+pub fn first_group(
+    spec: &CsvSpec,
+    file: &File,
+    (columns, limits, keeps): (&Columns, &ReadLimits, &[Expr]),
+) -> Result<Option<(usize, Table, usize)>, LoadError> {
+    let opened = Opened::new(spec, file, columns)?;
+    let mut skipped = 0;
+    for g in 0..opened.reader.num_row_groups() {
+        match read_group(&opened, (spec, limits), keeps, g)? {
+            Read::Skipped => skipped += 1,
+            Read::Empty => {}
+            Read::Rows(table) => return Ok(Some((g, table, skipped))),
+        }
+    }
+    Ok(None)
+}
+
+/// [`each_group`] from row group number `from` on.
+pub fn each_group_from(
+    spec: &CsvSpec,
+    file: &File,
+    (columns, limits, keeps): (&Columns, &ReadLimits, &[Expr]),
+    from: usize,
+    each: &mut dyn FnMut(Table) -> bool,
+) -> Result<Groups, LoadError> {
     let opened = Opened::new(spec, file, columns)?;
     let mut done = Groups {
         read: 0,
@@ -668,8 +702,8 @@ pub fn each_group(
     let groups = opened.reader.num_row_groups();
     let read = |g: usize| read_group(&opened, (spec, limits), keeps, g);
     let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
-    if groups < 2 || cores < 2 {
-        for g in 0..groups {
+    if groups < from + 2 || cores < 2 {
+        for g in from..groups {
             if !hand_on(read(g)?, &mut done, each) {
                 break;
             }
@@ -679,7 +713,7 @@ pub fn each_group(
     std::thread::scope(|s| {
         let (tx, rx) = std::sync::mpsc::sync_channel(1);
         s.spawn(move || {
-            for g in 0..groups {
+            for g in from..groups {
                 let r = read(g);
                 let failed = r.is_err();
                 // a closed channel: `each` stopped, or a problem was met

@@ -13,7 +13,7 @@
 use std::fs::File;
 
 use crescendo_data::fold::Fold;
-use crescendo_data::parquet::each_group;
+use crescendo_data::parquet::{each_group_from, first_group};
 use crescendo_data::probe::{Probe, Seen};
 use crescendo_data::stream::StreamView;
 use crescendo_data::{Column, Columns, CsvSpec, Expr, Table, Values};
@@ -46,19 +46,15 @@ pub(crate) fn stream_parquet(
         return None;
     }
     let limits = loader.limits.clone();
-    // The first row group read gives the column types.
-    let mut first: Option<Table> = None;
-    let mut take_first = |t: Table| {
-        first = Some(t);
-        false
-    };
-    each_group(spec, file, keep, &limits, keeps, &mut take_first).ok()?;
+    // The first row group that holds rows gives the column types; it is
+    // folded first, then the groups after it.
+    let (g0, first, skipped_before) = first_group(spec, file, (keep, &limits, keeps)).ok()??;
     let shell = Table {
-        columns: first?
+        columns: first
             .columns
-            .into_iter()
+            .iter()
             .map(|c| Column {
-                name: c.name,
+                name: c.name.clone(),
                 ty: c.ty,
                 values: Values::new(),
             })
@@ -74,8 +70,14 @@ pub(crate) fn stream_parquet(
     let keep_values: Vec<bool> = schema.iter().map(|(n, _)| keep.keeps(n)).collect();
     let schema_of = schema.clone();
     let mut fold = Fold::new(&runs, &keep_values, &limits, schema);
+    if !fold.add(&first) {
+        return None;
+    }
+    drop(first);
     let mut add = |t: Table| fold.add(&t);
-    let done = each_group(spec, file, keep, &limits, keeps, &mut add).ok()?;
+    let from = g0 + 1;
+    let mut done = each_group_from(spec, file, (keep, &limits, keeps), from, &mut add).ok()?;
+    done.skipped += skipped_before;
     if done.stopped || fold.rows() == 0 {
         return None;
     }
