@@ -380,6 +380,13 @@ struct Opened {
     flat: bool,
 }
 
+/// A column chunk that holds another number of values than its row group
+/// has rows: the file is damaged.
+fn short_column(name: &str, column: &str, got: usize, rows: usize) -> LoadError {
+    let why = format!("column `{column}` holds {got} of the row group's {rows} rows");
+    damaged(name, &why)
+}
+
 fn damaged(name: &str, e: &dyn std::fmt::Display) -> LoadError {
     let text = e.to_string();
     if let Some(codec) = text.strip_prefix("Parquet error: Disabled feature at compile time: ") {
@@ -503,12 +510,7 @@ impl Opened {
                     read_flat(reader, &schema.column(leaf)).map_err(|e| damaged(name, &e))?;
                 if let Some(flat) = flat {
                     if flat.len() != n {
-                        let why = format!(
-                            "column `{}` holds {} of the row group's {n} rows",
-                            cols[j].name,
-                            flat.len()
-                        );
-                        return Err(damaged(name, &why));
+                        return Err(short_column(name, &cols[j].name, flat.len(), n));
                     }
                     if flat.too_long(limits.text) {
                         return Err(too_long(name, &cols[j].name, limits));
@@ -541,12 +543,7 @@ impl Opened {
             }
             let cells = &cols[j].cells[start..];
             if cells.len() != n {
-                let why = format!(
-                    "column `{}` holds {} of the row group's {n} rows",
-                    cols[j].name,
-                    cells.len()
-                );
-                return Err(damaged(name, &why));
+                return Err(short_column(name, &cols[j].name, cells.len(), n));
             }
             let long = |c: &Typed| matches!(c, Typed::Text(s) if s.len() > limits.text && s.chars().count() > limits.text);
             if cells.iter().any(long) {
