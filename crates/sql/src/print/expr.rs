@@ -475,3 +475,50 @@ pub fn exact_fallback(sql: &str) -> Option<String> {
     }
     Some(out)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_fallback_swaps_each_scaled_sum_for_the_exact_one() {
+        let sql = format!(
+            "SELECT {}::text, {} FROM t WHERE x > 0 AND {}",
+            decimal_sum("s.c4"),
+            decimal_sum("s.c7"),
+            decimal_sum("s.c4")
+        );
+        let exact = exact_fallback(&sql).expect("scaled sums");
+        assert_eq!(
+            exact,
+            format!(
+                "SELECT {}::text, {} FROM t WHERE x > 0 AND {}",
+                exact_decimal_sum("s.c4"),
+                exact_decimal_sum("s.c7"),
+                exact_decimal_sum("s.c4")
+            )
+        );
+        assert!(!exact.contains(NOT_SCALED));
+        // a query wrapped around it keeps its wrapping
+        let wrapped = format!("SELECT EXISTS ({sql})::text");
+        assert_eq!(
+            exact_fallback(&wrapped),
+            Some(format!("SELECT EXISTS ({exact})::text"))
+        );
+    }
+
+    #[test]
+    fn a_query_without_scaled_sums_has_no_fallback() {
+        assert_eq!(exact_fallback("SELECT sum(s.c1) FROM t"), None);
+        assert_eq!(exact_fallback(&exact_decimal_sum("s.c4")), None);
+        // the marker alone, in a source query of the user's, is left alone
+        let user = format!("SELECT CASE WHEN a THEN 1 ELSE (b{NOT_SCALED} FROM t");
+        assert_eq!(exact_fallback(&user), None);
+        // ... also next to a printed sum, which alone is swapped
+        let both = format!("{user} UNION {}", decimal_sum("s.c2"));
+        assert_eq!(
+            exact_fallback(&both),
+            Some(format!("{user} UNION {}", exact_decimal_sum("s.c2")))
+        );
+    }
+}
