@@ -1547,7 +1547,10 @@ fn float_sums(cluster: &Cluster) {
                FROM generate_series(0, 6) k, generate_series(1, 2000);",
         )
         .expect("make the short decimal table");
-    assert_eq!(printed_sums(cluster, &mut client, "short_sums", true).len(), 9);
+    assert_eq!(
+        printed_sums(cluster, &mut client, "short_sums", true).len(),
+        9
+    );
     let group = |g: &str| {
         printed
             .iter()

@@ -235,7 +235,8 @@ impl Session {
                 self.client.query(exact, params)
             }
             Ok(rows) => {
-                self.client.batch_execute("RELEASE SAVEPOINT crescendo_scaled")?;
+                self.client
+                    .batch_execute("RELEASE SAVEPOINT crescendo_scaled")?;
                 Ok(rows)
             }
             Err(e) => Err(e),
