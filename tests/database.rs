@@ -1509,9 +1509,6 @@ fn trimmed(d: &str) -> &str {
 /// decimals and with more, at and around the 2^32 bound, tiny, huge,
 /// `-0`, NaN, infinities, NULLs and random values of every scale.
 fn float_sums(cluster: &Cluster) {
-    use crescendo_data::{AggFn, Aggregate, ColType};
-    use crescendo_sql::print::{prefix, RowOrder};
-    use crescendo_sql::{Read, SrcColumn};
     let mut client = cluster.client();
     client
         .batch_execute(
@@ -1535,6 +1532,52 @@ fn float_sums(cluster: &Cluster) {
                SELECT 'raw', (random() * 2 - 1) * 10 ^ (random() * 24 - 12) FROM generate_series(1, 20000);",
         )
         .expect("make the float table");
+    let printed = printed_sums(cluster, &mut client, "float_sums", false);
+    assert_eq!(printed.len(), 18);
+    // the values with at most six decimals below 2^32 are summed as the
+    // scaled integers, with no second query
+    client
+        .batch_execute(
+            "DROP TABLE IF EXISTS short_sums;
+             CREATE TABLE short_sums (line bigint GENERATED ALWAYS AS IDENTITY, g text, x double precision);
+             INSERT INTO short_sums (g, x) VALUES ('edge', '-0'), ('edge', NULL), ('edge', 4294967295.999999),
+               ('edge', -4294967295.5), ('edge', 0.000001), ('nulls', NULL);
+             INSERT INTO short_sums (g, x)
+               SELECT 'scale ' || k, round(((random() * 2 - 1) * 10 ^ (random() * 9) * 10 ^ k)::numeric)::double precision / 10 ^ k
+               FROM generate_series(0, 6) k, generate_series(1, 2000);",
+        )
+        .expect("make the short decimal table");
+    assert_eq!(
+        printed_sums(cluster, &mut client, "short_sums", true).len(),
+        9
+    );
+    let group = |g: &str| {
+        printed
+            .iter()
+            .find(|r| r[0].as_deref() == Some(g))
+            .expect("group")
+    };
+    assert_eq!(group("nulls")[1], None);
+    assert_eq!(group("zero")[1].as_deref().map(trimmed), Some("0"));
+    assert_eq!(group("nan")[1].as_deref(), Some("NaN"));
+    assert_eq!(group("inf")[1].as_deref(), Some("Infinity"));
+}
+
+/// The sum and mean of double column `x` by group `g` of `table`, as the
+/// printer writes them, run through a crescendo session; each group's
+/// cells equal those of the sums of the shortest texts. `scaled`: whether
+/// the printed query runs as it is, without the exact sums of its
+/// fallback (`crescendo_sql::print::exact_fallback`); otherwise it stops
+/// with `numeric_value_out_of_range`.
+fn printed_sums(
+    cluster: &Cluster,
+    client: &mut postgres::Client,
+    table: &str,
+    scaled: bool,
+) -> Vec<Vec<Option<String>>> {
+    use crescendo_data::{AggFn, Aggregate, ColType};
+    use crescendo_sql::print::{prefix, RowOrder};
+    use crescendo_sql::{Read, SrcColumn};
     let cols = vec![
         SrcColumn {
             name: "g".into(),
@@ -1555,7 +1598,7 @@ fn float_sums(cluster: &Cluster) {
     let q = prefix(
         &crescendo_sql::From::Table {
             schema: None,
-            name: "float_sums".into(),
+            name: table.into(),
         },
         &RowOrder {
             columns: vec![("line".into(), false)],
@@ -1564,41 +1607,42 @@ fn float_sums(cluster: &Cluster) {
         &[],
         Some((&[0], &[agg("s", AggFn::Sum), agg("m", AggFn::Mean)])),
     );
-    assert!(q.sql.contains("::bigint) FILTER"), "{}", q.sql);
+    assert!(q.sql.contains("::bigint ELSE"), "{}", q.sql);
+    let direct = client.query(&q.sql, &[]);
+    match &direct {
+        Ok(_) => assert!(scaled, "{table}: the scaled sums ran"),
+        Err(e) => assert!(
+            !scaled && e.code() == Some(&postgres::error::SqlState::NUMERIC_VALUE_OUT_OF_RANGE),
+            "{table}: {e}"
+        ),
+    }
+    let timeout = Duration::from_secs(120);
+    let mut session =
+        crescendo_sql::client::Session::open(&cluster.conn(), timeout).expect("open a session");
+    let (printed, _) = session
+        .rows(&q.sql, &q.params, timeout)
+        .expect("the printed query runs");
+    session.close();
     let cell = |r: &postgres::Row, i: usize| r.get::<_, Option<String>>(i);
-    let printed: Vec<Vec<Option<String>>> = client
-        .query(&q.sql, &[])
-        .expect("the printed query runs")
-        .iter()
-        .map(|r| (0..4).map(|i| cell(r, i)).collect())
-        .collect();
     let reference: Vec<Vec<Option<String>>> = client
         .query(
-            "SELECT g, sum(x::text::numeric)::text, sum(x::text::numeric)::text, count(x)::text \
-             FROM float_sums GROUP BY g ORDER BY min(line)",
+            &format!(
+                "SELECT g, sum(x::text::numeric)::text, sum(x::text::numeric)::text, count(x)::text \
+                 FROM {table} GROUP BY g ORDER BY min(line)"
+            ),
             &[],
         )
         .expect("the reference query runs")
         .iter()
         .map(|r| (0..4).map(|i| cell(r, i)).collect())
         .collect();
-    assert_eq!(printed.len(), 18);
     assert_eq!(printed.len(), reference.len());
     for (p, r) in printed.iter().zip(&reference) {
         let norm = |c: &Option<String>| c.as_deref().map(trimmed).map(str::to_owned);
         let (p, r): (Vec<_>, Vec<_>) = (p.iter().map(norm).collect(), r.iter().map(norm).collect());
-        assert_eq!(p, r, "group {:?}", r[0]);
+        assert_eq!(p, r, "{table}: group {:?}", r[0]);
     }
-    let group = |g: &str| {
-        printed
-            .iter()
-            .find(|r| r[0].as_deref() == Some(g))
-            .expect("group")
-    };
-    assert_eq!(group("nulls")[1], None);
-    assert_eq!(group("zero")[1].as_deref().map(trimmed), Some("0"));
-    assert_eq!(group("nan")[1].as_deref(), Some("NaN"));
-    assert_eq!(group("inf")[1].as_deref(), Some("Infinity"));
+    printed
 }
 
 /// Ten million rows generated inside the server aggregate there; the bytes

@@ -183,7 +183,10 @@ impl Session {
     }
 
     /// Run `sql` with text parameters; every output column must be text.
-    /// Returns the rows and the bytes of cell text received.
+    /// Returns the rows and the bytes of cell text received. A query whose
+    /// sums of doubles take the scaled integers
+    /// ([`crate::print::exact_fallback`]) runs again with the exact sums
+    /// when a value stops it.
     pub fn rows(
         &mut self,
         sql: &str,
@@ -192,10 +195,11 @@ impl Session {
     ) -> Result<(Vec<Row>, u64), SessionError> {
         let refs: Vec<&(dyn ToSql + Sync)> =
             params.iter().map(|p| p as &(dyn ToSql + Sync)).collect();
-        let rows = self
-            .client
-            .query(sql, &refs)
-            .map_err(|e| describe(&e, &self.conn, timeout))?;
+        let rows = match crate::print::exact_fallback(sql) {
+            None => self.client.query(sql, &refs),
+            Some(exact) => self.scaled_or_exact(sql, &exact, &refs),
+        }
+        .map_err(|e| describe(&e, &self.conn, timeout))?;
         let mut bytes = 0u64;
         let mut out = Vec::with_capacity(rows.len());
         for row in &rows {
@@ -210,6 +214,33 @@ impl Session {
             out.push(cells);
         }
         Ok((out, bytes))
+    }
+
+    /// Run `scaled` inside a savepoint; when it stops with
+    /// `numeric_value_out_of_range` (a double that is not a short decimal,
+    /// or an overflow of the query's own arithmetic, which `exact` then
+    /// reports again), roll back to the savepoint and run `exact`.
+    fn scaled_or_exact(
+        &mut self,
+        scaled: &str,
+        exact: &str,
+        params: &[&(dyn ToSql + Sync)],
+    ) -> Result<Vec<postgres::Row>, postgres::Error> {
+        use postgres::error::SqlState;
+        self.client.batch_execute("SAVEPOINT crescendo_scaled")?;
+        match self.client.query(scaled, params) {
+            Err(e) if e.code() == Some(&SqlState::NUMERIC_VALUE_OUT_OF_RANGE) => {
+                self.client
+                    .batch_execute("ROLLBACK TO SAVEPOINT crescendo_scaled")?;
+                self.client.query(exact, params)
+            }
+            Ok(rows) => {
+                self.client
+                    .batch_execute("RELEASE SAVEPOINT crescendo_scaled")?;
+                Ok(rows)
+            }
+            Err(e) => Err(e),
+        }
     }
 
     /// The plan of `sql` (`EXPLAIN (VERBOSE, COSTS OFF)`, not run), one

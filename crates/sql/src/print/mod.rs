@@ -27,7 +27,7 @@
 //! | number keys are doubles (`-0` is `0`)           | `GROUP BY x::double precision`               |
 //! | groups in order of first appearance             | `ORDER BY min(r)`                            |
 //! | a missing key is a group of its own             | `GROUP BY` puts NULLs in one group           |
-//! | `sum`: exact, rounded once                       | exact in SQL, parsed once: `sum(x)` of integers and `numeric`; a double of the source summed as the integers `round(x * 10^6)` where that is its shortest text (at most six decimals, magnitude below 2^32), through its text (`x::text::numeric`) elsewhere, and always for an `add` column (`Printer::exact_sum`) |
+//! | `sum`: exact, rounded once                       | exact in SQL, parsed once: `sum(x)` of integers and `numeric`; a double of the source summed as the integers `round(x * 10^6)` when that is every value's shortest text (at most six decimals, magnitude below 2^32); otherwise the query stops and runs again with the other values through their text (`x::text::numeric`; `expr::exact_fallback`, `Session::rows`), as an `add` column always is (`Printer::exact_sum`) |
 //! | `mean`: the sum over the count                   | sum and count, divided locally               |
 //! | `median`: the middle value, or the two middle values halved and added | `percentile_disc(0.5)` ascending and descending, and the count; combined locally |
 //! | `min`/`max` (texts by bytes)                     | `min`/`max` (`COLLATE "C"`)                  |
@@ -64,6 +64,7 @@ use crescendo_data::{ColType, Step};
 
 use crate::From;
 
+pub use expr::exact_fallback;
 pub use pipeline::pipeline;
 pub use prefix::{prefix, prefix_steps};
 
