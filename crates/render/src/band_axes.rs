@@ -16,6 +16,15 @@ use crescendo_frame::Axis;
 /// Space between a label column and the plot.
 pub(crate) const PAD: f64 = 12.0;
 
+/// Where a band chart is drawn: the canvas, the theme and the chart's
+/// region, which each orientation's drawer and its frame share.
+#[derive(Clone, Copy)]
+pub(crate) struct Surface<'a> {
+    pub canvas: &'a Canvas,
+    pub theme: &'a Theme,
+    pub region: Region,
+}
+
 /// The frame of upright bands (vertical bars): value ticks in a column at
 /// the left, the value title above, category names under the bands and
 /// the category title under them.
@@ -92,17 +101,15 @@ pub(crate) fn upright_columns(
 /// Lays out and titles upright bands: `names` are the category names,
 /// `beside` the width of a column of labels kept right of the plot (none
 /// when 0).
-#[allow(clippy::too_many_arguments)]
 pub(crate) fn upright(
-    canvas: &Canvas,
+    on: Surface,
     obstacles: &mut Obstacles,
-    theme: &Theme,
-    region: Region,
     value: &Axis,
     category_title: Option<&str>,
     names: &[&str],
     beside: f64,
 ) -> Result<Upright, RenderError> {
+    let (canvas, theme, region) = (on.canvas, on.theme, on.region);
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let UprightColumns {
@@ -176,13 +183,12 @@ pub(crate) struct Lying {
 /// Lays out lying bands and draws the category title: `names_row` is the
 /// height kept for a row of names above the plot (0 for none).
 pub(crate) fn lying(
-    canvas: &Canvas,
+    on: Surface,
     obstacles: &mut Obstacles,
-    theme: &Theme,
-    region: Region,
     (category_title, value_titled): (Option<&str>, bool),
     names_row: f64,
 ) -> Result<Lying, RenderError> {
+    let (canvas, theme, region) = (on.canvas, on.theme, on.region);
     let lh = line_height(theme.label_size);
     let mut top = axis::title_above(canvas, obstacles, theme, region, category_title)?;
     let names_row_top = top;

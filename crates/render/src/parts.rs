@@ -10,7 +10,7 @@
 //! `part_slots.rs`, how they are named `part_names.rs`.
 
 use crate::band::{self, Band, VALUE_GAP};
-use crate::band_axes;
+use crate::band_axes::{self, Surface};
 use crate::canvas::{Align, Canvas, Label};
 use crate::fit;
 use crate::kit::{context_greys, Obstacles};
@@ -86,9 +86,14 @@ fn fit_scale(
 pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PartsChart, region: Region) -> Drawn {
     layout::check_axis(&chart.value, "value")?;
     let mut obstacles = Obstacles::default();
+    let on = Surface {
+        canvas,
+        theme,
+        region,
+    };
     let (s, cats, across, naming) = match chart.orientation {
-        Orientation::Vertical => vertical(canvas, theme, chart, region, &mut obstacles)?,
-        Orientation::Horizontal => horizontal(canvas, theme, chart, region, &mut obstacles)?,
+        Orientation::Vertical => vertical(on, chart, &mut obstacles)?,
+        Orientation::Horizontal => horizontal(on, chart, &mut obstacles)?,
     };
     categories(canvas, theme, chart, &s, cats, &mut obstacles)?;
     let zero = s.vmap(0.0);
@@ -179,12 +184,11 @@ fn categories(
 /// Vertical bars: value ticks at the left, names under the bars, part
 /// names beside the last bar (stacked) or above the roomiest group.
 fn vertical(
-    canvas: &Canvas,
-    theme: &Theme,
+    on: Surface,
     chart: &PartsChart,
-    region: Region,
     obstacles: &mut Obstacles,
 ) -> Result<Frame, RenderError> {
+    let (canvas, theme) = (on.canvas, on.theme);
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let dom = domain(chart);
@@ -200,16 +204,7 @@ fn vertical(
     };
     let labels: Vec<&str> = chart.categories.iter().map(|c| c.label.as_str()).collect();
     let cat = chart.category_title.as_deref();
-    let u = band_axes::upright(
-        canvas,
-        obstacles,
-        theme,
-        region,
-        &chart.value,
-        cat,
-        &labels,
-        label_col,
-    )?;
+    let u = band_axes::upright(on, obstacles, &chart.value, cat, &labels, label_col)?;
     let top = u.top;
     let mut value_bottom = u.names_top - 10.0;
     if dom[0] < 0.0 && stacked {
@@ -263,19 +258,18 @@ fn vertical(
 /// Horizontal bars: names in a column at the left, value ticks under,
 /// part names in a row above (stacked) or right of the roomiest group.
 fn horizontal(
-    canvas: &Canvas,
-    theme: &Theme,
+    on: Surface,
     chart: &PartsChart,
-    region: Region,
     obstacles: &mut Obstacles,
 ) -> Result<Frame, RenderError> {
+    let (canvas, theme, region) = (on.canvas, on.theme, on.region);
     let lh = line_height(theme.label_size);
     let dom = domain(chart);
     let stacked = chart.mode == PartsMode::Stacked;
     let k = chart.parts.len();
     let titles = (chart.category_title.as_deref(), chart.value.title.is_some());
     let names_row = if stacked { lh + 12.0 } else { 0.0 };
-    let l = band_axes::lying(canvas, obstacles, theme, region, titles, names_row)?;
+    let l = band_axes::lying(on, obstacles, titles, names_row)?;
     let (plot_top, plot_bottom) = (l.plot_top, l.plot_bottom);
 
     let names = chart.categories.iter().map(|c| c.label.as_str());
