@@ -273,22 +273,26 @@ pub(super) fn frame(s: &mut String, comment: &str, headline: &str, lines: &[Stri
     let _ = writeln!(s);
 }
 
-/// The focus ranks first among the KEYs of VIEW by MEASURE: the value
-/// `focus_rank`, the fact `said` that holds it to 1, then `compare` and
-/// `focus`.
+/// The focus, the KEY largest in `amounts`, ranks first among the KEYs of
+/// VIEW by MEASURE: the value `focus_rank`, the fact `said(focus)` that
+/// holds it to 1, then `compare` and `focus`. Returns the fact's sentence
+/// (the spotlight frame's headline).
 pub(super) fn ranked_focus(
     s: &mut String,
     (view, key, measure): (&str, &str, &str),
-    focus: &str,
-    said: &str,
-) {
+    amounts: &BTreeMap<String, f64>,
+    said: impl FnOnce(&str) -> String,
+) -> String {
+    let focus = largest(amounts).unwrap_or_default();
+    let said = said(&focus);
     let _ = writeln!(
         s,
         "value focus_rank = rank({view}.{measure} where {key} = {})",
-        literal(focus)
+        literal(&focus)
     );
-    fact(s, "focus_rank = 1", said);
-    compare_focus(s, key, measure, focus);
+    fact(s, "focus_rank = 1", &said);
+    compare_focus(s, key, measure, &focus);
+    said
 }
 
 /// `compare KEY by MEASURE` and `focus "NAME"`, then a blank line.
@@ -548,12 +552,11 @@ fn part_of_whole(s: &mut String, table: &Table, category: &str, part: &str, meas
         &[format!("| by {part}: {measure} = sum({measure})")],
     );
     value_and_claim(s, "parts", measure);
-    let focus = largest(&totals(table, part, measure)).unwrap_or_default();
-    ranked_focus(
+    let said = ranked_focus(
         s,
         ("part_totals", part, measure),
-        &focus,
-        &format!("{focus} is the largest {} in total", words(part)),
+        &totals(table, part, measure),
+        |focus| format!("{focus} is the largest {} in total", words(part)),
     );
     let y_title = format!("y title {}", quote(&capital(&m)));
     frame(
@@ -584,7 +587,7 @@ fn part_of_whole(s: &mut String, table: &Table, category: &str, part: &str, meas
     spotlight_frame(
         s,
         "3. Spotlight: the largest part in colour.",
-        format!("{focus} is the largest {} in total", words(part)),
+        said,
         "Its highest value: {highest}.",
     );
     conclusion_frame(s);
@@ -603,12 +606,11 @@ fn distribution(s: &mut String, table: &Table, name: &str, measure: &str) {
         &[format!("| sort {measure} descending")],
     );
     value_and_claim(s, "spread", measure);
-    let focus = largest(&totals(table, name, measure)).unwrap_or_default();
-    ranked_focus(
+    let said = ranked_focus(
         s,
         ("spread", name, measure),
-        &focus,
-        &format!("{focus} has the highest {}", words(measure)),
+        &totals(table, name, measure),
+        |focus| format!("{focus} has the highest {m}"),
     );
     frame(
         s,
@@ -629,7 +631,7 @@ fn distribution(s: &mut String, table: &Table, name: &str, measure: &str) {
     spotlight_frame(
         s,
         "3. Spotlight: the highest value.",
-        format!("{focus} has the highest {}", words(measure)),
+        said,
         "TODO: why it matters",
     );
     conclusion_frame(s);
@@ -671,12 +673,11 @@ fn comparison(
         &steps,
     );
     value_and_claim(s, "ranked", measure);
-    let focus = largest(&aggregates(table, category, measure, agg, None)).unwrap_or_default();
-    ranked_focus(
+    let said = ranked_focus(
         s,
         ("ranked", category, measure),
-        &focus,
-        &format!("{focus} has the highest {m}"),
+        &aggregates(table, category, measure, agg, None),
+        |focus| format!("{focus} has the highest {m}"),
     );
     let orient = if horizontal { ", horizontal" } else { "" };
     frame(
@@ -698,7 +699,7 @@ fn comparison(
     spotlight_frame(
         s,
         "3. Spotlight: the focus in colour, the rest in grey.",
-        format!("{focus} has the highest {m}"),
+        said,
         "TODO: why it leads",
     );
     conclusion_frame(s);
