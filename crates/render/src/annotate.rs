@@ -75,7 +75,6 @@ fn band_names(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), RenderE
     let (theme, chart, l) = (on.theme, on.chart, on.l);
     let xm = l.xmap(chart);
     let lh = line_height(theme.label_size);
-    let plot_w = l.plot_right - l.plot_left;
     for a in &chart.annotations {
         let Annotation::Band {
             from,
@@ -91,7 +90,7 @@ fn band_names(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), RenderE
         let x0 = xm(from.min(*to)).clamp(l.plot_left, l.plot_right);
         let x1 = xm(from.max(*to)).clamp(l.plot_left, l.plot_right);
         // a name cut to the band's room
-        let room = (x1 - x0 - 12.0).max(120.0).min(plot_w);
+        let room = (x1 - x0 - 12.0).max(120.0).min(l.plot_width());
         put_name(on, obstacles, (text, room), |w| {
             (0..4)
                 .map(|k| {
@@ -110,7 +109,6 @@ fn reference_names(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), Re
     let (theme, chart, l) = (on.theme, on.chart, on.l);
     let ym = l.ymap(chart);
     let lh = line_height(theme.label_size);
-    let plot_w = l.plot_right - l.plot_left;
     for a in &chart.annotations {
         let Annotation::Reference { value, text } = a else {
             continue;
@@ -128,7 +126,7 @@ fn reference_names(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), Re
         let above = y - 4.0 - lh;
         let below = y + 4.0;
         // a name cut to half the plot
-        put_name(on, obstacles, (text, plot_w / 2.0), |w| {
+        put_name(on, obstacles, (text, l.plot_width() / 2.0), |w| {
             vec![
                 rect(l.plot_right - w, above, l.plot_right, above + lh),
                 rect(l.plot_right - w, below, l.plot_right, below + lh),
@@ -231,7 +229,7 @@ fn callouts(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), RenderErr
     let (canvas, theme, chart, l) = (on.canvas, on.theme, on.chart, on.l);
     let (xm, ym) = (l.xmap(chart), l.ymap(chart));
     let area = l.note_bounds(theme);
-    let plot_w = l.plot_right - l.plot_left;
+    let plot_w = l.plot_width();
     let callouts = chart.annotations.iter().filter_map(|a| match a {
         Annotation::Callout { x, y, text } => Some((x, y, text)),
         _ => None,
