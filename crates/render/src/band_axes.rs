@@ -5,13 +5,14 @@
 //! [`crate::band::Band`] transform.
 
 use crate::axis;
+use crate::band::Band;
 use crate::canvas::Canvas;
 use crate::kit::Obstacles;
-use crate::layout::{self, max_width, Region};
+use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_frame::Axis;
+use crescendo_frame::{Axis, Orientation};
 
 /// Space between a label column and the plot.
 pub(crate) const PAD: f64 = 12.0;
@@ -246,22 +247,26 @@ impl Lying {
         }
     }
 
-    /// The value title and ticks under bars whose plot runs from `plot_left`
-    /// to `plot_right` and whose values run `values` across, ticks kept
-    /// right of `lo`, and
-    /// gridlines down the plot (none at zero, where the baseline goes).
-    pub fn value_axis(
+    /// Draws the plot right of the name column `col`, the value title and
+    /// ticks under it (kept right of the region's left edge), `value`'s
+    /// `domain` running `values` across, and gridlines down the plot (none
+    /// at zero, where the baseline goes); returns the bands, one a name
+    /// from the top of the plot.
+    pub fn plot(
         &self,
-        canvas: &Canvas,
+        on: Surface,
         obstacles: &mut Obstacles,
-        theme: &Theme,
-        (value, vmap): (&Axis, impl Fn(f64) -> f64 + Copy),
-        (lo, plot_left, plot_right): (f64, f64, f64),
+        col: &NameColumn,
+        (value, domain): (&Axis, [f64; 2]),
         (value_left, value_right): (f64, f64),
-    ) -> Result<(), RenderError> {
+    ) -> Result<Band, RenderError> {
+        let (canvas, theme) = (on.canvas, on.theme);
+        let (plot_left, plot_right) = col.plot;
+        let vmap = |v: f64| map(v, domain, value_left, value_right);
+        canvas.plot((plot_left, self.plot_top), (plot_right, self.plot_bottom))?;
         let row = axis::Row {
             top: self.tick_top,
-            lo,
+            lo: on.region.left,
             hi: plot_right,
             gap: 12.0,
             fit: axis::Fit::AsWritten,
@@ -275,6 +280,11 @@ impl Lying {
             across: (self.plot_top, self.plot_bottom),
             skip_zero: true,
         };
-        axis::under(canvas, obstacles, theme, value, vmap, under)
+        axis::under(canvas, obstacles, theme, value, vmap, under)?;
+        Ok(Band {
+            orientation: Orientation::Horizontal,
+            start: self.plot_top,
+            size: col.band,
+        })
     }
 }

@@ -172,16 +172,7 @@ fn horizontal(
     );
     let (left_pad, right_pad) = band::end_room(domain, value_w, true, region.label_gutter);
     let values = (plot.0 + left_pad, plot.1 - right_pad);
-    let vmap = |v: f64| map(v, domain, values.0, values.1);
-    let value = (&chart.value, vmap);
-    canvas.plot((plot.0, plot_top), (plot.1, plot_bottom))?;
-    let plot_span = (region.left, plot.0, plot.1);
-    l.value_axis(canvas, obstacles, theme, value, plot_span, values)?;
-    let bands = Band {
-        orientation: Orientation::Horizontal,
-        start: plot_top,
-        size: band,
-    };
+    let bands = l.plot(on, obstacles, &col, (&chart.value, domain), values)?;
     let names = name_rows(canvas, theme, chart, &bands, (col_w, cat_lines))?
         .into_iter()
         .map(|(top, lines)| (col_right, top, Align::End, lines))

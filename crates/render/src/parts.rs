@@ -262,7 +262,7 @@ fn horizontal(
     chart: &PartsChart,
     obstacles: &mut Obstacles,
 ) -> Result<Frame, RenderError> {
-    let (canvas, theme, region) = (on.canvas, on.theme, on.region);
+    let (theme, region) = (on.theme, on.region);
     let lh = line_height(theme.label_size);
     let dom = domain(chart);
     let stacked = chart.mode == PartsMode::Stacked;
@@ -295,16 +295,7 @@ fn horizontal(
     let over = |x: f64| x + 8.0 + names_w - region.right;
     let value_right = fit_scale(chart, dom, value_left, plot.1 - right_pad, -1.0, over);
     let values = (value_left, value_right);
-    let vmap = |v: f64| map(v, dom, value_left, value_right);
-    let value = (&chart.value, vmap);
-    canvas.plot((plot.0, plot_top), (plot.1, plot_bottom))?;
-    let plot_span = (region.left, plot.0, plot.1);
-    l.value_axis(canvas, obstacles, theme, value, plot_span, values)?;
-    let bands = Band {
-        orientation: Orientation::Horizontal,
-        start: plot_top,
-        size: band,
-    };
+    let bands = l.plot(on, obstacles, &col, (&chart.value, dom), values)?;
     let bar_h = if stacked {
         (band * BAR_SHARE).min(56.0)
     } else {
