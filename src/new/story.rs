@@ -332,6 +332,25 @@ pub(super) fn spotlight_frame(s: &mut String, comment: &str, headline: String, t
     );
 }
 
+/// The last frames of a story over one value per name: 2, the values
+/// from the `top` to the `bottom` (`comparison`); 3, a spotlight on the
+/// focus (`spotlight`: its comment, headline and takeaway); the conclusion.
+fn top_to_bottom(
+    s: &mut String,
+    (comparison, top, bottom): (&str, &str, &str),
+    (spotlight, headline, takeaway): (&str, String, &str),
+) {
+    frame(
+        s,
+        &format!("2. Comparison: {comparison}."),
+        &quote(&format!("From the {top} to the {bottom}")),
+        &["takeaway \"From {highest} down to {lowest}.\"".into()],
+    );
+    let comment = format!("3. Spotlight: {spotlight}.");
+    spotlight_frame(s, &comment, headline, takeaway);
+    conclusion_frame(s);
+}
+
 fn periods(
     s: &mut String,
     table: &Table,
@@ -622,19 +641,11 @@ fn distribution(s: &mut String, table: &Table, name: &str, measure: &str) {
             "takeaway \"TODO: where most values lie\"".into(),
         ],
     );
-    frame(
+    top_to_bottom(
         s,
-        "2. Comparison: the highest against the rest.",
-        "\"From the highest to the lowest\"",
-        &["takeaway \"From {highest} down to {lowest}.\"".into()],
+        ("the highest against the rest", "highest", "lowest"),
+        ("the highest value", said, "TODO: why it matters"),
     );
-    spotlight_frame(
-        s,
-        "3. Spotlight: the highest value.",
-        said,
-        "TODO: why it matters",
-    );
-    conclusion_frame(s);
 }
 
 fn comparison(
@@ -690,19 +701,15 @@ fn comparison(
             "takeaway \"TODO: what the ranking shows\"".into(),
         ],
     );
-    frame(
+    top_to_bottom(
         s,
-        "2. Comparison: the largest against the smallest.",
-        "\"From the largest to the smallest\"",
-        &["takeaway \"From {highest} down to {lowest}.\"".into()],
+        ("the largest against the smallest", "largest", "smallest"),
+        (
+            "the focus in colour, the rest in grey",
+            said,
+            "TODO: why it leads",
+        ),
     );
-    spotlight_frame(
-        s,
-        "3. Spotlight: the focus in colour, the rest in grey.",
-        said,
-        "TODO: why it leads",
-    );
-    conclusion_frame(s);
 }
 
 #[cfg(test)]
