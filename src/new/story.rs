@@ -504,33 +504,29 @@ fn relationship(
     if let Some(g) = group {
         let _ = write!(chart, ", series {g}");
     }
-    let titles = [
-        format!("x title {}", quote(&capital(&words(x)))),
-        format!("y title {}", quote(&capital(&words(y)))),
-    ];
-    let mut first = vec![chart.clone()];
-    if let Some(g) = group {
-        first.push(format!("split {g}"));
-    }
-    first.extend(titles.iter().cloned());
-    first.push("takeaway \"TODO: what the cloud of points shows\"".into());
+    // the chart statement, split by the group, titled, and the takeaway
+    let stmts = |chart: String, takeaway: &str| -> Vec<String> {
+        let split = group.map(|g| format!("split {g}"));
+        let titles = [
+            format!("x title {}", quote(&capital(&words(x)))),
+            format!("y title {}", quote(&capital(&words(y)))),
+        ];
+        let takeaway = format!("takeaway \"{takeaway}\"");
+        let mut all = vec![chart];
+        all.extend(split.into_iter().chain(titles).chain([takeaway]));
+        all
+    };
     frame(
         s,
         "1. Context: every row as a point.",
         &quote(&headline),
-        &first,
+        &stmts(chart.clone(), "TODO: what the cloud of points shows"),
     );
-    let mut second = vec![format!("{chart}, fit")];
-    if let Some(g) = group {
-        second.push(format!("split {g}"));
-    }
-    second.extend(titles.iter().cloned());
-    second.push("takeaway \"Correlation r = {fit}.\"".into());
     frame(
         s,
         "2. Comparison: the fitted line and its correlation.",
         "\"How closely they move together\"",
-        &second,
+        &stmts(format!("{chart}, fit"), "Correlation r = {fit}."),
     );
     // without names to point at, the takeaway carries the point
     let mut lines: Vec<String> = focus
