@@ -176,6 +176,16 @@ pub struct Located {
     pub label: String,
 }
 
+impl Located {
+    fn new(source: &Arc<Source>, span: Range<usize>, label: impl Into<String>) -> Self {
+        Located {
+            source: Arc::clone(source),
+            span,
+            label: label.into(),
+        }
+    }
+}
+
 /// One problem found in a story, its data, or its output.
 #[derive(Clone, Debug)]
 pub struct Diagnostic {
@@ -217,11 +227,7 @@ impl Diagnostic {
         span: Range<usize>,
         label: impl Into<String>,
     ) -> Self {
-        self.primary = Some(Located {
-            source: Arc::clone(source),
-            span,
-            label: label.into(),
-        });
+        self.primary = Some(Located::new(source, span, label));
         self
     }
 
@@ -232,11 +238,7 @@ impl Diagnostic {
         span: Range<usize>,
         label: impl Into<String>,
     ) -> Self {
-        self.secondary.push(Located {
-            source: Arc::clone(source),
-            span,
-            label: label.into(),
-        });
+        self.secondary.push(Located::new(source, span, label));
         self
     }
 
