@@ -11,9 +11,9 @@
 
 use crate::band::{self, Band, VALUE_GAP};
 use crate::band_axes::{self, Surface};
-use crate::canvas::{Align, Canvas, Label};
+use crate::canvas::{Align, Canvas};
 use crate::fit;
-use crate::kit::{context_greys, Obstacles};
+use crate::kit::{context_greys, mark_label, Obstacles};
 use crate::layout::{self, map, max_width, Region};
 use crate::metrics::line_height;
 use crate::part_names::{self, Naming};
@@ -149,15 +149,7 @@ fn categories(
         let how = (theme.label_size, true);
         let lines = fit::lines(canvas, &cat.label, how, cats.width, cats.lines)?;
         for (i, line) in lines.iter().enumerate().filter(|_| shown) {
-            let label = Label {
-                text: line,
-                x,
-                top: first + i as f64 * step,
-                size: theme.label_size,
-                bold: focus,
-                color: if focus { theme.accent } else { theme.muted },
-                align,
-            };
+            let label = mark_label(theme, line, (x, first + i as f64 * step, align), focus);
             place::settle(canvas, theme.baseline, obstacles, &label, (&[], None))?;
         }
         let ext = extents(chart, c);
