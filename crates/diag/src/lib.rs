@@ -252,6 +252,15 @@ impl Diagnostic {
         self
     }
 
+    /// Help that names the candidate closest to a misspelt `name` (see
+    /// [`closest`]), when one is close enough; else the diagnostic as it is.
+    pub fn suggest<'a>(self, name: &str, candidates: impl IntoIterator<Item = &'a str>) -> Self {
+        match closest(name, candidates) {
+            Some(s) => self.help(format!("did you mean `{s}`?")),
+            None => self,
+        }
+    }
+
     pub fn is_error(&self) -> bool {
         self.severity == Severity::Error
     }
@@ -456,6 +465,14 @@ fn edit_distance(a: &str, b: &str) -> usize {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn suggest_names_only_a_close_candidate() {
+        let d = Diagnostic::error("x", "m").suggest("colums", ["rows", "columns"]);
+        assert_eq!(d.help.as_deref(), Some("did you mean `columns`?"));
+        let d = Diagnostic::error("x", "m").suggest("zzzzzz", ["rows", "columns"]);
+        assert_eq!(d.help, None);
+    }
 
     #[test]
     fn line_col_counts_characters_from_one() {

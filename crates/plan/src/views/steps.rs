@@ -5,7 +5,7 @@
 use std::sync::Arc;
 
 use crescendo_data::{self as data, AggFn, Aggregate, ColType, Step};
-use crescendo_diag::{closest, Diagnostic, Source};
+use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::{self, Expr, Ident, StepAst};
 
 use crate::rows::{column, Checker, Schema, Ty};
@@ -284,9 +284,7 @@ fn agg_fn(src: &Arc<Source>, id: &Ident, diags: &mut Vec<Diagnostic>) -> Option<
             let mut d = Diagnostic::error("unknown-name", format!("unknown aggregate `{other}`"))
                 .at(src, id.span.clone(), "not an aggregate")
                 .note(format!("aggregates are {}", NAMES.join(", ")));
-            if let Some(s) = closest(other, NAMES) {
-                d = d.help(format!("did you mean `{s}`?"));
-            }
+            d = d.suggest(other, NAMES);
             diags.push(d);
             return None;
         }
