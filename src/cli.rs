@@ -48,6 +48,21 @@ pub struct LintArgs {
     pub small_counts: f64,
 }
 
+/// The story and where its deck goes, shared by `build` and `watch`.
+#[derive(clap::Args)]
+pub struct DeckArgs {
+    /// The story file (.cresc).
+    pub story: PathBuf,
+    /// Output folder (default: `deck/` beside the story). It is replaced
+    /// only when the whole build succeeded.
+    #[arg(long)]
+    pub out: Option<PathBuf>,
+    /// Build even when claims fail, marking every frame whose text
+    /// depends on a failed claim.
+    #[arg(long)]
+    pub draft: bool,
+}
+
 #[derive(clap::Args)]
 pub struct DataArgs {
     /// Read data item NAME from FILE instead of the file the story names
@@ -235,16 +250,8 @@ fn parse_data_arg(s: &str) -> Result<(String, PathBuf), String> {
 pub enum Command {
     /// Build the deck: numbered SVG frames, deck.json and index.html.
     Build {
-        /// The story file (.cresc).
-        story: PathBuf,
-        /// Output folder (default: `deck/` beside the story). It is replaced
-        /// only when the whole build succeeded.
-        #[arg(long)]
-        out: Option<PathBuf>,
-        /// Build even when claims fail, marking every frame whose text
-        /// depends on a failed claim.
-        #[arg(long)]
-        draft: bool,
+        #[command(flatten)]
+        deck: DeckArgs,
         /// Compute every view and draw every frame, without reading or
         /// writing the cache beside the deck.
         #[arg(long)]
@@ -280,14 +287,8 @@ pub enum Command {
     /// Rebuild the deck whenever the story, its data, its style file or a
     /// plugin changes; errors are printed and the last good deck stays.
     Watch {
-        /// The story file (.cresc).
-        story: PathBuf,
-        /// Output folder (default: `deck/` beside the story).
-        #[arg(long)]
-        out: Option<PathBuf>,
-        /// Build even when claims fail (see `build --draft`).
-        #[arg(long)]
-        draft: bool,
+        #[command(flatten)]
+        deck: DeckArgs,
         /// Serve the deck on 127.0.0.1 and reload the browser after each
         /// rebuild.
         #[arg(long)]

@@ -11,7 +11,7 @@
 use std::io::IsTerminal;
 use std::process::ExitCode;
 
-use cli::Command;
+use cli::{Command, DeckArgs};
 
 #[macro_use]
 mod output;
@@ -51,9 +51,7 @@ fn main() -> ExitCode {
     let color = std::io::stderr().is_terminal() && std::env::var_os("NO_COLOR").is_none();
     match cli.command {
         Command::Build {
-            story,
-            out,
-            draft,
+            deck: DeckArgs { story, out, draft },
             no_cache,
             format,
             scale,
@@ -73,9 +71,7 @@ fn main() -> ExitCode {
             color,
         ),
         Command::Watch {
-            story,
-            out,
-            draft,
+            deck: DeckArgs { story, out, draft },
             serve,
             port,
             data,

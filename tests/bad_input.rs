@@ -119,6 +119,21 @@ fn unknown_column_suggests_the_closest() {
 }
 
 #[test]
+fn a_column_named_twice_in_a_step_is_located() {
+    let story = GOOD_STORY.replace("by month, branch:", "by month, branch, month:");
+    let err = run_broken("key-twice", &story, Some(GOOD_CSV));
+    assert_located(&err, "story.cresc:7:23");
+    assert!(err.contains("`month` is already a key"), "{err}");
+    assert!(err.contains("repeated key"), "{err}");
+    let columns = "  | columns month, branch, loans, month\n  | by month";
+    let story = GOOD_STORY.replace("  | by month", columns);
+    let err = run_broken("column-twice", &story, Some(GOOD_CSV));
+    assert_located(&err, "story.cresc:7:35");
+    assert!(err.contains("`month` is listed twice"), "{err}");
+    assert!(err.contains("again here"), "{err}");
+}
+
+#[test]
 fn text_used_as_a_number_names_the_first_offending_row() {
     let csv = GOOD_CSV.replace("2024-02,Quarry Street,130", "2024-02,Quarry Street,n/a");
     let err = run_broken("text-number", GOOD_STORY, Some(&csv));

@@ -273,22 +273,26 @@ pub(super) fn frame(s: &mut String, comment: &str, headline: &str, lines: &[Stri
     let _ = writeln!(s);
 }
 
-/// The focus ranks first among the KEYs of VIEW by MEASURE: the value
-/// `focus_rank`, the fact `said` that holds it to 1, then `compare` and
-/// `focus`.
+/// The focus, the KEY largest in `amounts`, ranks first among the KEYs of
+/// VIEW by MEASURE: the value `focus_rank`, the fact `said(focus)` that
+/// holds it to 1, then `compare` and `focus`. Returns the fact's sentence
+/// (the spotlight frame's headline).
 pub(super) fn ranked_focus(
     s: &mut String,
     (view, key, measure): (&str, &str, &str),
-    focus: &str,
-    said: &str,
-) {
+    amounts: &BTreeMap<String, f64>,
+    said: impl FnOnce(&str) -> String,
+) -> String {
+    let focus = largest(amounts).unwrap_or_default();
+    let said = said(&focus);
     let _ = writeln!(
         s,
         "value focus_rank = rank({view}.{measure} where {key} = {})",
-        literal(focus)
+        literal(&focus)
     );
-    fact(s, "focus_rank = 1", said);
-    compare_focus(s, key, measure, focus);
+    fact(s, "focus_rank = 1", &said);
+    compare_focus(s, key, measure, &focus);
+    said
 }
 
 /// `compare KEY by MEASURE` and `focus "NAME"`, then a blank line.
@@ -326,6 +330,25 @@ pub(super) fn spotlight_frame(s: &mut String, comment: &str, headline: String, t
         &quote(&headline),
         &["spotlight focus".into(), format!("takeaway \"{takeaway}\"")],
     );
+}
+
+/// The last frames of a story over one value per name: 2, the values
+/// from the `top` to the `bottom` (`comparison`); 3, a spotlight on the
+/// focus (`spotlight`: its comment, headline and takeaway); the conclusion.
+fn top_to_bottom(
+    s: &mut String,
+    (comparison, top, bottom): (&str, &str, &str),
+    (spotlight, headline, takeaway): (&str, String, &str),
+) {
+    frame(
+        s,
+        &format!("2. Comparison: {comparison}."),
+        &quote(&format!("From the {top} to the {bottom}")),
+        &["takeaway \"From {highest} down to {lowest}.\"".into()],
+    );
+    let comment = format!("3. Spotlight: {spotlight}.");
+    spotlight_frame(s, &comment, headline, takeaway);
+    conclusion_frame(s);
 }
 
 fn periods(
@@ -481,33 +504,29 @@ fn relationship(
     if let Some(g) = group {
         let _ = write!(chart, ", series {g}");
     }
-    let titles = [
-        format!("x title {}", quote(&capital(&words(x)))),
-        format!("y title {}", quote(&capital(&words(y)))),
-    ];
-    let mut first = vec![chart.clone()];
-    if let Some(g) = group {
-        first.push(format!("split {g}"));
-    }
-    first.extend(titles.iter().cloned());
-    first.push("takeaway \"TODO: what the cloud of points shows\"".into());
+    // the chart statement, split by the group, titled, and the takeaway
+    let stmts = |chart: String, takeaway: &str| -> Vec<String> {
+        let split = group.map(|g| format!("split {g}"));
+        let titles = [
+            format!("x title {}", quote(&capital(&words(x)))),
+            format!("y title {}", quote(&capital(&words(y)))),
+        ];
+        let takeaway = format!("takeaway \"{takeaway}\"");
+        let mut all = vec![chart];
+        all.extend(split.into_iter().chain(titles).chain([takeaway]));
+        all
+    };
     frame(
         s,
         "1. Context: every row as a point.",
         &quote(&headline),
-        &first,
+        &stmts(chart.clone(), "TODO: what the cloud of points shows"),
     );
-    let mut second = vec![format!("{chart}, fit")];
-    if let Some(g) = group {
-        second.push(format!("split {g}"));
-    }
-    second.extend(titles.iter().cloned());
-    second.push("takeaway \"Correlation r = {fit}.\"".into());
     frame(
         s,
         "2. Comparison: the fitted line and its correlation.",
         "\"How closely they move together\"",
-        &second,
+        &stmts(format!("{chart}, fit"), "Correlation r = {fit}."),
     );
     // without names to point at, the takeaway carries the point
     let mut lines: Vec<String> = focus
@@ -548,12 +567,11 @@ fn part_of_whole(s: &mut String, table: &Table, category: &str, part: &str, meas
         &[format!("| by {part}: {measure} = sum({measure})")],
     );
     value_and_claim(s, "parts", measure);
-    let focus = largest(&totals(table, part, measure)).unwrap_or_default();
-    ranked_focus(
+    let said = ranked_focus(
         s,
         ("part_totals", part, measure),
-        &focus,
-        &format!("{focus} is the largest {} in total", words(part)),
+        &totals(table, part, measure),
+        |focus| format!("{focus} is the largest {} in total", words(part)),
     );
     let y_title = format!("y title {}", quote(&capital(&m)));
     frame(
@@ -584,7 +602,7 @@ fn part_of_whole(s: &mut String, table: &Table, category: &str, part: &str, meas
     spotlight_frame(
         s,
         "3. Spotlight: the largest part in colour.",
-        format!("{focus} is the largest {} in total", words(part)),
+        said,
         "Its highest value: {highest}.",
     );
     conclusion_frame(s);
@@ -603,12 +621,11 @@ fn distribution(s: &mut String, table: &Table, name: &str, measure: &str) {
         &[format!("| sort {measure} descending")],
     );
     value_and_claim(s, "spread", measure);
-    let focus = largest(&totals(table, name, measure)).unwrap_or_default();
-    ranked_focus(
+    let said = ranked_focus(
         s,
         ("spread", name, measure),
-        &focus,
-        &format!("{focus} has the highest {}", words(measure)),
+        &totals(table, name, measure),
+        |focus| format!("{focus} has the highest {m}"),
     );
     frame(
         s,
@@ -620,19 +637,11 @@ fn distribution(s: &mut String, table: &Table, name: &str, measure: &str) {
             "takeaway \"TODO: where most values lie\"".into(),
         ],
     );
-    frame(
+    top_to_bottom(
         s,
-        "2. Comparison: the highest against the rest.",
-        "\"From the highest to the lowest\"",
-        &["takeaway \"From {highest} down to {lowest}.\"".into()],
+        ("the highest against the rest", "highest", "lowest"),
+        ("the highest value", said, "TODO: why it matters"),
     );
-    spotlight_frame(
-        s,
-        "3. Spotlight: the highest value.",
-        format!("{focus} has the highest {}", words(measure)),
-        "TODO: why it matters",
-    );
-    conclusion_frame(s);
 }
 
 fn comparison(
@@ -671,12 +680,11 @@ fn comparison(
         &steps,
     );
     value_and_claim(s, "ranked", measure);
-    let focus = largest(&aggregates(table, category, measure, agg, None)).unwrap_or_default();
-    ranked_focus(
+    let said = ranked_focus(
         s,
         ("ranked", category, measure),
-        &focus,
-        &format!("{focus} has the highest {m}"),
+        &aggregates(table, category, measure, agg, None),
+        |focus| format!("{focus} has the highest {m}"),
     );
     let orient = if horizontal { ", horizontal" } else { "" };
     frame(
@@ -689,19 +697,15 @@ fn comparison(
             "takeaway \"TODO: what the ranking shows\"".into(),
         ],
     );
-    frame(
+    top_to_bottom(
         s,
-        "2. Comparison: the largest against the smallest.",
-        "\"From the largest to the smallest\"",
-        &["takeaway \"From {highest} down to {lowest}.\"".into()],
+        ("the largest against the smallest", "largest", "smallest"),
+        (
+            "the focus in colour, the rest in grey",
+            said,
+            "TODO: why it leads",
+        ),
     );
-    spotlight_frame(
-        s,
-        "3. Spotlight: the focus in colour, the rest in grey.",
-        format!("{focus} has the highest {m}"),
-        "TODO: why it leads",
-    );
-    conclusion_frame(s);
 }
 
 #[cfg(test)]

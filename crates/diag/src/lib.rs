@@ -176,6 +176,16 @@ pub struct Located {
     pub label: String,
 }
 
+impl Located {
+    fn new(source: &Arc<Source>, span: Range<usize>, label: impl Into<String>) -> Self {
+        Located {
+            source: Arc::clone(source),
+            span,
+            label: label.into(),
+        }
+    }
+}
+
 /// One problem found in a story, its data, or its output.
 #[derive(Clone, Debug)]
 pub struct Diagnostic {
@@ -217,11 +227,7 @@ impl Diagnostic {
         span: Range<usize>,
         label: impl Into<String>,
     ) -> Self {
-        self.primary = Some(Located {
-            source: Arc::clone(source),
-            span,
-            label: label.into(),
-        });
+        self.primary = Some(Located::new(source, span, label));
         self
     }
 
@@ -232,11 +238,7 @@ impl Diagnostic {
         span: Range<usize>,
         label: impl Into<String>,
     ) -> Self {
-        self.secondary.push(Located {
-            source: Arc::clone(source),
-            span,
-            label: label.into(),
-        });
+        self.secondary.push(Located::new(source, span, label));
         self
     }
 
@@ -248,6 +250,15 @@ impl Diagnostic {
     pub fn help(mut self, help: impl Into<String>) -> Self {
         self.help = Some(help.into());
         self
+    }
+
+    /// Help that names the candidate closest to a misspelt `name` (see
+    /// [`closest`]), when one is close enough; else the diagnostic as it is.
+    pub fn suggest<'a>(self, name: &str, candidates: impl IntoIterator<Item = &'a str>) -> Self {
+        match closest(name, candidates) {
+            Some(s) => self.help(format!("did you mean `{s}`?")),
+            None => self,
+        }
     }
 
     pub fn is_error(&self) -> bool {
@@ -454,6 +465,14 @@ fn edit_distance(a: &str, b: &str) -> usize {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn suggest_names_only_a_close_candidate() {
+        let d = Diagnostic::error("x", "m").suggest("colums", ["rows", "columns"]);
+        assert_eq!(d.help.as_deref(), Some("did you mean `columns`?"));
+        let d = Diagnostic::error("x", "m").suggest("zzzzzz", ["rows", "columns"]);
+        assert_eq!(d.help, None);
+    }
 
     #[test]
     fn line_col_counts_characters_from_one() {

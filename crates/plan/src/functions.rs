@@ -3,7 +3,7 @@
 //! values, and computes one figure with `crescendo_data::stats`.
 
 use crescendo_data::{stats, ColType, Table, Value};
-use crescendo_diag::{closest, Diagnostic};
+use crescendo_diag::Diagnostic;
 use crescendo_lang::ast::{CallArg, Expr, Selection, Span};
 
 use crate::rows::{self, schema_of};
@@ -95,9 +95,7 @@ impl Evaluator<'_> {
                     "not a value function",
                 );
                 d = d.note(format!("value functions: {}", FUNCTIONS.join(", ")));
-                if let Some(s) = closest(other, FUNCTIONS.iter().copied()) {
-                    d = d.help(format!("did you mean `{s}`?"));
-                }
+                d = d.suggest(other, FUNCTIONS.iter().copied());
                 Err(vec![d])
             }
         }

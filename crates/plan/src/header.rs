@@ -6,7 +6,7 @@ use std::collections::BTreeSet;
 use std::sync::Arc;
 
 use crescendo_data::time;
-use crescendo_diag::{closest, Diagnostic, Source};
+use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::{self, Ident, Item, Str, Text};
 
 use crate::anchors::{Allowance, Anchors};
@@ -164,8 +164,7 @@ impl Header {
                     "unknown column",
                 )
                 .note("`compare KEY by MEASURE` names columns of the views the frames draw");
-            d.help =
-                closest(&id.name, columns.iter().copied()).map(|s| format!("did you mean `{s}`?"));
+            d = d.suggest(&id.name, columns.iter().copied());
             cx.report(d);
         }
     }
@@ -224,9 +223,7 @@ impl Header {
                         "not a built-in theme",
                     )
                     .note(format!("built-in themes: {}", THEMES.join(", ")));
-                if let Some(s) = closest(&t.name, THEMES.iter().copied()) {
-                    d = d.help(format!("did you mean `{s}`?"));
-                }
+                d = d.suggest(&t.name, THEMES.iter().copied());
                 cx.report(d);
                 String::new()
             }

@@ -7,7 +7,7 @@ use std::sync::Arc;
 
 use crescendo_data::bucket::Bucket;
 use crescendo_data::{self as data, ArithOp, CmpOp, ColType, Table, Value};
-use crescendo_diag::{closest, Diagnostic, Source};
+use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::{self, BinOp, Expr, Ident, Link};
 
 /// A column name and type.
@@ -35,9 +35,7 @@ pub fn column(
         format!("no column named `{}` {table_name}", id.name),
     )
     .at(src, id.span.clone(), "unknown column");
-    if let Some(s) = closest(&id.name, schema.iter().map(|(n, _)| n.as_str())) {
-        d = d.help(format!("did you mean `{s}`?"));
-    }
+    d = d.suggest(&id.name, schema.iter().map(|(n, _)| n.as_str()));
     let names: Vec<&str> = schema.iter().map(|(n, _)| n.as_str()).collect();
     diags.push(d.note(format!("columns here: {}", names.join(", "))));
     None

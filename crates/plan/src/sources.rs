@@ -6,7 +6,6 @@
 use std::collections::BTreeSet;
 use std::path::PathBuf;
 
-use crescendo_diag::{closest, Diagnostic};
 use crescendo_lang::ast::{self, Ident};
 
 use crate::context::{Ctx, Outcome};
@@ -137,7 +136,7 @@ pub(crate) fn check_named(cx: &mut Ctx, story: &ast::StoryAst) {
                 "in this story",
             )
             .note(format!("data items: {}", names.join(", ")));
-        cx.report(suggest(d, name, &names));
+        cx.report(d.suggest(name, names.iter().copied()));
     }
     let databases: Vec<&str> = data
         .iter()
@@ -159,13 +158,6 @@ pub(crate) fn check_named(cx: &mut Ctx, story: &ast::StoryAst) {
         } else {
             d.note(format!("database data items: {}", databases.join(", ")))
         };
-        cx.report(suggest(d, name, &databases));
-    }
-}
-
-fn suggest(d: Diagnostic, name: &str, names: &[&str]) -> Diagnostic {
-    match closest(name, names.iter().copied()) {
-        Some(s) => d.help(format!("did you mean `{s}`?")),
-        None => d,
+        cx.report(d.suggest(name, databases.iter().copied()));
     }
 }

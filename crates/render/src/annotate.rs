@@ -75,8 +75,6 @@ fn band_names(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), RenderE
     let (theme, chart, l) = (on.theme, on.chart, on.l);
     let xm = l.xmap(chart);
     let lh = line_height(theme.label_size);
-    let area = l.note_bounds(theme);
-    let plot_w = l.plot_right - l.plot_left;
     for a in &chart.annotations {
         let Annotation::Band {
             from,
@@ -91,18 +89,16 @@ fn band_names(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), RenderE
         }
         let x0 = xm(from.min(*to)).clamp(l.plot_left, l.plot_right);
         let x1 = xm(from.max(*to)).clamp(l.plot_left, l.plot_right);
-        let room = (x1 - x0 - 12.0).max(120.0).min(plot_w);
-        let full = text;
-        let text = metrics::ellipsize(&metrics::normalize(text), theme.label_size, false, room);
-        let w = text_width(&text, theme.label_size, false);
-        let cands: Vec<Rect> = (0..4)
-            .map(|k| {
-                let top = l.plot_top + 6.0 + k as f64 * theme.label_step();
-                rect(x0 + 6.0, top, x0 + 6.0 + w, top + lh)
-            })
-            .collect();
         // a name cut to the band's room
-        put_name(on, obstacles, (&cands, &area), (full, &text))?;
+        let room = (x1 - x0 - 12.0).max(120.0).min(l.plot_width());
+        put_name(on, obstacles, (text, room), |w| {
+            (0..4)
+                .map(|k| {
+                    let top = l.plot_top + 6.0 + k as f64 * theme.label_step();
+                    rect(x0 + 6.0, top, x0 + 6.0 + w, top + lh)
+                })
+                .collect()
+        })?;
     }
     Ok(())
 }
@@ -113,8 +109,6 @@ fn reference_names(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), Re
     let (theme, chart, l) = (on.theme, on.chart, on.l);
     let ym = l.ymap(chart);
     let lh = line_height(theme.label_size);
-    let area = l.note_bounds(theme);
-    let plot_w = l.plot_right - l.plot_left;
     for a in &chart.annotations {
         let Annotation::Reference { value, text } = a else {
             continue;
@@ -129,39 +123,37 @@ fn reference_names(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), Re
         obstacles
             .segments
             .push(((l.plot_left, y), (l.plot_right, y)));
-        let full = text;
-        let text = metrics::ellipsize(
-            &metrics::normalize(text),
-            theme.label_size,
-            false,
-            plot_w / 2.0,
-        );
-        let w = text_width(&text, theme.label_size, false);
         let above = y - 4.0 - lh;
         let below = y + 4.0;
-        let cands = [
-            rect(l.plot_right - w, above, l.plot_right, above + lh),
-            rect(l.plot_right - w, below, l.plot_right, below + lh),
-            rect(l.plot_left, above, l.plot_left + w, above + lh),
-            rect(l.plot_left, below, l.plot_left + w, below + lh),
-        ];
         // a name cut to half the plot
-        put_name(on, obstacles, (&cands, &area), (full, &text))?;
+        put_name(on, obstacles, (text, l.plot_width() / 2.0), |w| {
+            vec![
+                rect(l.plot_right - w, above, l.plot_right, above + lh),
+                rect(l.plot_right - w, below, l.plot_right, below + lh),
+                rect(l.plot_left, above, l.plot_left + w, above + lh),
+                rect(l.plot_left, below, l.plot_left + w, below + lh),
+            ]
+        })?;
     }
     Ok(())
 }
 
-/// Puts a name at the first free spot of `cands` inside `area` (else the
-/// best), `text` as cut from `full`: a cut is noted for the lint.
+/// Cuts the name `full` to `room` and puts it at the first free spot of
+/// `spots(width of the cut name)` inside the notes' area (else the best):
+/// a cut is noted for the lint.
 fn put_name(
     on: LinePlot<'_>,
     obstacles: &mut Obstacles,
-    (cands, area): (&[Rect], &Rect),
-    (full, text): (&str, &str),
+    (full, room): (&str, f64),
+    spots: impl FnOnce(f64) -> Vec<Rect>,
 ) -> Result<(), RenderError> {
-    if let Some(r) = choose(cands, obstacles, area, true) {
-        fit::note(on.canvas, full, &[text.to_string()])?;
-        kit::put(on.canvas, obstacles, &plain(on.theme, text, r))?;
+    let size = on.theme.label_size;
+    let text = metrics::ellipsize(&metrics::normalize(full), size, false, room);
+    let cands = spots(text_width(&text, size, false));
+    let area = on.l.note_bounds(on.theme);
+    if let Some(r) = choose(&cands, obstacles, &area, true) {
+        fit::note(on.canvas, full, std::slice::from_ref(&text))?;
+        kit::put(on.canvas, obstacles, &plain(on.theme, &text, r))?;
     }
     Ok(())
 }
@@ -237,7 +229,7 @@ fn callouts(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(), RenderErr
     let (canvas, theme, chart, l) = (on.canvas, on.theme, on.chart, on.l);
     let (xm, ym) = (l.xmap(chart), l.ymap(chart));
     let area = l.note_bounds(theme);
-    let plot_w = l.plot_right - l.plot_left;
+    let plot_w = l.plot_width();
     let callouts = chart.annotations.iter().filter_map(|a| match a {
         Annotation::Callout { x, y, text } => Some((x, y, text)),
         _ => None,

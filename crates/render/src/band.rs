@@ -274,15 +274,7 @@ pub(crate) fn parts(
         let lh = line_height(theme.label_size);
         let (x, top, align) = band.end_label(vmap(high), band.centre(c), lh, true);
         let focus = role == Role::Focus;
-        let label = Label {
-            text: &text,
-            x,
-            top,
-            size: theme.label_size,
-            bold: focus,
-            color: if focus { theme.accent } else { theme.muted },
-            align,
-        };
+        let label = kit::mark_label(theme, &text, (x, top, align), focus);
         end_value(canvas, theme, band, obstacles, &label, 1.0)?;
     }
     Ok(())

@@ -5,16 +5,26 @@
 //! [`crate::band::Band`] transform.
 
 use crate::axis;
+use crate::band::Band;
 use crate::canvas::Canvas;
 use crate::kit::Obstacles;
-use crate::layout::{self, max_width, Region};
+use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
 use crate::RenderError;
-use crescendo_frame::Axis;
+use crescendo_frame::{Axis, Orientation};
 
 /// Space between a label column and the plot.
 pub(crate) const PAD: f64 = 12.0;
+
+/// Where a band chart is drawn: the canvas, the theme and the chart's
+/// region, which each orientation's drawer and its frame share.
+#[derive(Clone, Copy)]
+pub(crate) struct Surface<'a> {
+    pub canvas: &'a Canvas,
+    pub theme: &'a Theme,
+    pub region: Region,
+}
 
 /// The frame of upright bands (vertical bars): value ticks in a column at
 /// the left, the value title above, category names under the bands and
@@ -92,17 +102,15 @@ pub(crate) fn upright_columns(
 /// Lays out and titles upright bands: `names` are the category names,
 /// `beside` the width of a column of labels kept right of the plot (none
 /// when 0).
-#[allow(clippy::too_many_arguments)]
 pub(crate) fn upright(
-    canvas: &Canvas,
+    on: Surface,
     obstacles: &mut Obstacles,
-    theme: &Theme,
-    region: Region,
     value: &Axis,
     category_title: Option<&str>,
     names: &[&str],
     beside: f64,
 ) -> Result<Upright, RenderError> {
+    let (canvas, theme, region) = (on.canvas, on.theme, on.region);
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let UprightColumns {
@@ -176,13 +184,12 @@ pub(crate) struct Lying {
 /// Lays out lying bands and draws the category title: `names_row` is the
 /// height kept for a row of names above the plot (0 for none).
 pub(crate) fn lying(
-    canvas: &Canvas,
+    on: Surface,
     obstacles: &mut Obstacles,
-    theme: &Theme,
-    region: Region,
     (category_title, value_titled): (Option<&str>, bool),
     names_row: f64,
 ) -> Result<Lying, RenderError> {
+    let (canvas, theme, region) = (on.canvas, on.theme, on.region);
     let lh = line_height(theme.label_size);
     let mut top = axis::title_above(canvas, obstacles, theme, region, category_title)?;
     let names_row_top = top;
@@ -240,22 +247,26 @@ impl Lying {
         }
     }
 
-    /// The value title and ticks under bars whose plot runs from `plot_left`
-    /// to `plot_right` and whose values run `values` across, ticks kept
-    /// right of `lo`, and
-    /// gridlines down the plot (none at zero, where the baseline goes).
-    pub fn value_axis(
+    /// Draws the plot right of the name column `col`, the value title and
+    /// ticks under it (kept right of the region's left edge), `value`'s
+    /// `domain` running `values` across, and gridlines down the plot (none
+    /// at zero, where the baseline goes); returns the bands, one a name
+    /// from the top of the plot.
+    pub fn plot(
         &self,
-        canvas: &Canvas,
+        on: Surface,
         obstacles: &mut Obstacles,
-        theme: &Theme,
-        (value, vmap): (&Axis, impl Fn(f64) -> f64 + Copy),
-        (lo, plot_left, plot_right): (f64, f64, f64),
+        col: &NameColumn,
+        (value, domain): (&Axis, [f64; 2]),
         (value_left, value_right): (f64, f64),
-    ) -> Result<(), RenderError> {
+    ) -> Result<Band, RenderError> {
+        let (canvas, theme) = (on.canvas, on.theme);
+        let (plot_left, plot_right) = col.plot;
+        let vmap = |v: f64| map(v, domain, value_left, value_right);
+        canvas.plot((plot_left, self.plot_top), (plot_right, self.plot_bottom))?;
         let row = axis::Row {
             top: self.tick_top,
-            lo,
+            lo: on.region.left,
             hi: plot_right,
             gap: 12.0,
             fit: axis::Fit::AsWritten,
@@ -269,6 +280,11 @@ impl Lying {
             across: (self.plot_top, self.plot_bottom),
             skip_zero: true,
         };
-        axis::under(canvas, obstacles, theme, value, vmap, under)
+        axis::under(canvas, obstacles, theme, value, vmap, under)?;
+        Ok(Band {
+            orientation: Orientation::Horizontal,
+            start: self.plot_top,
+            size: col.band,
+        })
     }
 }

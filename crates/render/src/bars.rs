@@ -4,7 +4,7 @@
 //! value at the bar end; hidden bars leave their slot empty.
 
 use crate::band::{self, Band, VALUE_GAP};
-use crate::band_axes;
+use crate::band_axes::{self, Surface};
 use crate::canvas::{Align, Canvas, Label};
 use crate::fit;
 use crate::kit::Obstacles;
@@ -60,9 +60,14 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &BarChart, region: Reg
     let domain = value_domain(chart);
     // texts and bars so far, for the value labels ([`crate::place`])
     let mut obstacles = Obstacles::default();
+    let on = Surface {
+        canvas,
+        theme,
+        region,
+    };
     let f = match chart.orientation {
-        Orientation::Vertical => vertical(canvas, theme, chart, region, &mut obstacles)?,
-        Orientation::Horizontal => horizontal(canvas, theme, chart, region, &mut obstacles)?,
+        Orientation::Vertical => vertical(on, chart, &mut obstacles)?,
+        Orientation::Horizontal => horizontal(on, chart, &mut obstacles)?,
     };
     let vmap = |v: f64| map(v, domain, f.ends.0, f.ends.1);
     let zero = vmap(0.0);
@@ -102,26 +107,16 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &BarChart, region: Reg
 
 /// Vertical bars: value ticks at the left, names under the bars.
 fn vertical(
-    canvas: &Canvas,
-    theme: &Theme,
+    on: Surface,
     chart: &BarChart,
-    region: Region,
     obstacles: &mut Obstacles,
 ) -> Result<Frame, RenderError> {
+    let (canvas, theme) = (on.canvas, on.theme);
     let lh = line_height(theme.label_size);
     let domain = value_domain(chart);
     let names: Vec<&str> = chart.bars.iter().map(|b| b.label.as_str()).collect();
     let cat = chart.category_title.as_deref();
-    let u = band_axes::upright(
-        canvas,
-        obstacles,
-        theme,
-        region,
-        &chart.value,
-        cat,
-        &names,
-        0.0,
-    )?;
+    let u = band_axes::upright(on, obstacles, &chart.value, cat, &names, 0.0)?;
     // Room for value labels above positive and below negative bars.
     let value_top = u.top + lh + VALUE_GAP;
     let mut value_bottom = u.names_top - 10.0;
@@ -154,15 +149,14 @@ fn vertical(
 
 /// Horizontal bars: names in a column at the left, value ticks under.
 fn horizontal(
-    canvas: &Canvas,
-    theme: &Theme,
+    on: Surface,
     chart: &BarChart,
-    region: Region,
     obstacles: &mut Obstacles,
 ) -> Result<Frame, RenderError> {
+    let (canvas, theme, region) = (on.canvas, on.theme, on.region);
     let domain = value_domain(chart);
     let titles = (chart.category_title.as_deref(), chart.value.title.is_some());
-    let l = band_axes::lying(canvas, obstacles, theme, region, titles, 0.0)?;
+    let l = band_axes::lying(on, obstacles, titles, 0.0)?;
     let (plot_top, plot_bottom) = (l.plot_top, l.plot_bottom);
 
     let names = chart.bars.iter().map(|b| b.label.as_str());
@@ -178,16 +172,7 @@ fn horizontal(
     );
     let (left_pad, right_pad) = band::end_room(domain, value_w, true, region.label_gutter);
     let values = (plot.0 + left_pad, plot.1 - right_pad);
-    let vmap = |v: f64| map(v, domain, values.0, values.1);
-    let value = (&chart.value, vmap);
-    canvas.plot((plot.0, plot_top), (plot.1, plot_bottom))?;
-    let plot_span = (region.left, plot.0, plot.1);
-    l.value_axis(canvas, obstacles, theme, value, plot_span, values)?;
-    let bands = Band {
-        orientation: Orientation::Horizontal,
-        start: plot_top,
-        size: band,
-    };
+    let bands = l.plot(on, obstacles, &col, (&chart.value, domain), values)?;
     let names = name_rows(canvas, theme, chart, &bands, (col_w, cat_lines))?
         .into_iter()
         .map(|(top, lines)| (col_right, top, Align::End, lines))

@@ -101,15 +101,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &DotChart, region: Reg
             kit::put(
                 canvas,
                 &mut obstacles,
-                &Label {
-                    text: &text,
-                    x: col_right,
-                    top: y - lh / 2.0,
-                    size: theme.label_size,
-                    bold: focus,
-                    color: if focus { theme.accent } else { theme.muted },
-                    align: Align::End,
-                },
+                &kit::mark_label(theme, &text, (col_right, y - lh / 2.0, Align::End), focus),
             )?;
         }
         if row.role != Role::Hidden {

@@ -137,6 +137,25 @@ pub(crate) fn spread_widths(
     c
 }
 
+/// The name or value of a mark at the label size: bold in the accent
+/// colour when the mark is in focus, else plain and muted.
+pub(crate) fn mark_label<'a>(
+    theme: &Theme,
+    text: &'a str,
+    (x, top, align): (f64, f64, Align),
+    focus: bool,
+) -> Label<'a> {
+    Label {
+        text,
+        x,
+        top,
+        size: theme.label_size,
+        bold: focus,
+        color: if focus { theme.accent } else { theme.muted },
+        align,
+    }
+}
+
 /// A muted (tick, title, category) label.
 pub(crate) fn muted_label<'a>(
     theme: &Theme,

@@ -49,7 +49,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &LineChart, region: Re
         lo: l.plot_left,
         hi: l.plot_right,
         gap: 12.0,
-        fit: axis::Fit::Capped(l.plot_right - l.plot_left),
+        fit: axis::Fit::Capped(l.plot_width()),
         keep_left: false,
     };
     axis::row(canvas, &mut obstacles, theme, size, &chart.x, xmap, row)?;
@@ -68,7 +68,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &LineChart, region: Re
     annotate::draw_under(on)?;
 
     // Lines: context first, focus on top; a missing value breaks the line.
-    let target = (2.0 * (l.plot_right - l.plot_left)).max(3.0) as usize;
+    let target = (2.0 * l.plot_width()).max(3.0) as usize;
     for pass in [Role::Context, Role::Focus] {
         for series in chart.series.iter().filter(|s| s.role == pass) {
             let (color, width) = match pass {

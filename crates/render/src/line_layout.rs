@@ -42,6 +42,11 @@ pub(crate) struct LineLayout {
 }
 
 impl LineLayout {
+    /// The plot's width in px.
+    pub(crate) fn plot_width(&self) -> f64 {
+        self.plot_right - self.plot_left
+    }
+
     /// Data to px along the x axis of `chart`.
     pub(crate) fn xmap(&self, chart: &LineChart) -> impl Fn(f64) -> f64 {
         let (d, a, b) = (chart.x.domain, self.plot_left, self.plot_right);

@@ -92,7 +92,7 @@ pub(crate) fn draw_over(on: LinePlot<'_>, obstacles: &mut Obstacles) -> Result<(
     let xm = l.xmap(chart);
     let area = l.note_bounds(theme);
     let lh = line_height(theme.label_size);
-    let room = (l.plot_right - l.plot_left) * 0.4;
+    let room = l.plot_width() * 0.4;
     // every marker line first: no moment's label may cross another's line
     for (_, from, to, _) in moments(chart) {
         if to.is_none() {

@@ -10,10 +10,10 @@
 //! `part_slots.rs`, how they are named `part_names.rs`.
 
 use crate::band::{self, Band, VALUE_GAP};
-use crate::band_axes;
-use crate::canvas::{Align, Canvas, Label};
+use crate::band_axes::{self, Surface};
+use crate::canvas::{Align, Canvas};
 use crate::fit;
-use crate::kit::{context_greys, Obstacles};
+use crate::kit::{context_greys, mark_label, Obstacles};
 use crate::layout::{self, map, max_width, Region};
 use crate::metrics::line_height;
 use crate::part_names::{self, Naming};
@@ -86,9 +86,14 @@ fn fit_scale(
 pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PartsChart, region: Region) -> Drawn {
     layout::check_axis(&chart.value, "value")?;
     let mut obstacles = Obstacles::default();
+    let on = Surface {
+        canvas,
+        theme,
+        region,
+    };
     let (s, cats, across, naming) = match chart.orientation {
-        Orientation::Vertical => vertical(canvas, theme, chart, region, &mut obstacles)?,
-        Orientation::Horizontal => horizontal(canvas, theme, chart, region, &mut obstacles)?,
+        Orientation::Vertical => vertical(on, chart, &mut obstacles)?,
+        Orientation::Horizontal => horizontal(on, chart, &mut obstacles)?,
     };
     categories(canvas, theme, chart, &s, cats, &mut obstacles)?;
     let zero = s.vmap(0.0);
@@ -144,15 +149,7 @@ fn categories(
         let how = (theme.label_size, true);
         let lines = fit::lines(canvas, &cat.label, how, cats.width, cats.lines)?;
         for (i, line) in lines.iter().enumerate().filter(|_| shown) {
-            let label = Label {
-                text: line,
-                x,
-                top: first + i as f64 * step,
-                size: theme.label_size,
-                bold: focus,
-                color: if focus { theme.accent } else { theme.muted },
-                align,
-            };
+            let label = mark_label(theme, line, (x, first + i as f64 * step, align), focus);
             place::settle(canvas, theme.baseline, obstacles, &label, (&[], None))?;
         }
         let ext = extents(chart, c);
@@ -179,12 +176,11 @@ fn categories(
 /// Vertical bars: value ticks at the left, names under the bars, part
 /// names beside the last bar (stacked) or above the roomiest group.
 fn vertical(
-    canvas: &Canvas,
-    theme: &Theme,
+    on: Surface,
     chart: &PartsChart,
-    region: Region,
     obstacles: &mut Obstacles,
 ) -> Result<Frame, RenderError> {
+    let (canvas, theme) = (on.canvas, on.theme);
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let dom = domain(chart);
@@ -200,16 +196,7 @@ fn vertical(
     };
     let labels: Vec<&str> = chart.categories.iter().map(|c| c.label.as_str()).collect();
     let cat = chart.category_title.as_deref();
-    let u = band_axes::upright(
-        canvas,
-        obstacles,
-        theme,
-        region,
-        &chart.value,
-        cat,
-        &labels,
-        label_col,
-    )?;
+    let u = band_axes::upright(on, obstacles, &chart.value, cat, &labels, label_col)?;
     let top = u.top;
     let mut value_bottom = u.names_top - 10.0;
     if dom[0] < 0.0 && stacked {
@@ -263,19 +250,18 @@ fn vertical(
 /// Horizontal bars: names in a column at the left, value ticks under,
 /// part names in a row above (stacked) or right of the roomiest group.
 fn horizontal(
-    canvas: &Canvas,
-    theme: &Theme,
+    on: Surface,
     chart: &PartsChart,
-    region: Region,
     obstacles: &mut Obstacles,
 ) -> Result<Frame, RenderError> {
+    let (theme, region) = (on.theme, on.region);
     let lh = line_height(theme.label_size);
     let dom = domain(chart);
     let stacked = chart.mode == PartsMode::Stacked;
     let k = chart.parts.len();
     let titles = (chart.category_title.as_deref(), chart.value.title.is_some());
     let names_row = if stacked { lh + 12.0 } else { 0.0 };
-    let l = band_axes::lying(canvas, obstacles, theme, region, titles, names_row)?;
+    let l = band_axes::lying(on, obstacles, titles, names_row)?;
     let (plot_top, plot_bottom) = (l.plot_top, l.plot_bottom);
 
     let names = chart.categories.iter().map(|c| c.label.as_str());
@@ -301,16 +287,7 @@ fn horizontal(
     let over = |x: f64| x + 8.0 + names_w - region.right;
     let value_right = fit_scale(chart, dom, value_left, plot.1 - right_pad, -1.0, over);
     let values = (value_left, value_right);
-    let vmap = |v: f64| map(v, dom, value_left, value_right);
-    let value = (&chart.value, vmap);
-    canvas.plot((plot.0, plot_top), (plot.1, plot_bottom))?;
-    let plot_span = (region.left, plot.0, plot.1);
-    l.value_axis(canvas, obstacles, theme, value, plot_span, values)?;
-    let bands = Band {
-        orientation: Orientation::Horizontal,
-        start: plot_top,
-        size: band,
-    };
+    let bands = l.plot(on, obstacles, &col, (&chart.value, dom), values)?;
     let bar_h = if stacked {
         (band * BAR_SHARE).min(56.0)
     } else {

@@ -4,7 +4,7 @@
 
 use std::sync::Arc;
 
-use crescendo_diag::{closest, Diagnostic, Source};
+use crescendo_diag::{Diagnostic, Source};
 use pest::error::ErrorVariant;
 
 use super::{leading_trivia, Rule, TOP_KEYWORDS};
@@ -358,9 +358,7 @@ pub(super) fn syntax_error(
     };
     let mut d = Diagnostic::error(code, message).at(source, start..end, "not expected here");
     if is_unknown_word {
-        if let Some(s) = closest(&word, keywords.iter().map(String::as_str)) {
-            d = d.help(format!("did you mean `{s}`?"));
-        }
+        d = d.suggest(&word, keywords.iter().map(String::as_str));
     }
     d
 }

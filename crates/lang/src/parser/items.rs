@@ -22,9 +22,7 @@ impl Conv<'_> {
     }
 
     pub(super) fn item(&mut self, pair: Pair<Rule>) -> Res<Item> {
-        let span = self.span_of(&pair);
-        let rule = pair.as_rule();
-        let mut inner: Vec<Pair<Rule>> = children(pair).collect();
+        let (span, rule, mut inner) = self.open(pair);
         fn last<'i>(inner: &mut Vec<Pair<'i, Rule>>, span: &Span) -> Res<Pair<'i, Rule>> {
             inner.pop().ok_or_else(|| internal(span))
         }

@@ -239,6 +239,12 @@ fn children(pair: Pair<Rule>) -> impl Iterator<Item = Pair<Rule>> {
     pair.into_inner().filter(|p| !is_punct(p.as_rule()))
 }
 
+/// The `i`th of a statement's children `inner`; its absence is an
+/// internal error at the statement's `span`.
+fn nth<'i>(inner: &[Pair<'i, Rule>], i: usize, span: &Span) -> Res<Pair<'i, Rule>> {
+    inner.get(i).cloned().ok_or_else(|| internal(span))
+}
+
 /// Turns pest's pairs into the tree. Spans are made absolute by adding
 /// `base` (the offset of the parsed piece in the story); the problems found
 /// in texts (their quoted values) are collected in `diags`.
@@ -255,6 +261,15 @@ impl<'s> Conv<'s> {
             base,
             diags: Vec::new(),
         }
+    }
+
+    /// A statement's span, its rule and its meaningful children.
+    fn open<'i>(&self, pair: Pair<'i, Rule>) -> (Span, Rule, Vec<Pair<'i, Rule>>) {
+        (
+            self.span_of(&pair),
+            pair.as_rule(),
+            children(pair).collect(),
+        )
     }
 
     fn span_of(&self, pair: &Pair<Rule>) -> Span {

@@ -2,15 +2,13 @@
 
 use pest::iterators::Pair;
 
-use super::{children, internal, Conv, ConvertError, Res, Rule};
+use super::{children, internal, nth, Conv, ConvertError, Res, Rule};
 use crate::ast::*;
 
 impl Conv<'_> {
     pub(super) fn step(&mut self, pair: Pair<Rule>) -> Res<StepAst> {
-        let span = self.span_of(&pair);
-        let rule = pair.as_rule();
-        let inner: Vec<Pair<Rule>> = children(pair).collect();
-        let part = |i: usize| inner.get(i).cloned().ok_or_else(|| internal(&span));
+        let (span, rule, inner) = self.open(pair);
+        let part = |i: usize| nth(&inner, i, &span);
         Ok(match rule {
             Rule::keep_step => StepAst::Keep {
                 expr: self.expr(part(1)?)?,

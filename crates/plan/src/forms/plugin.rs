@@ -136,9 +136,7 @@ fn form(cx: &mut Ctx, plugin: &Plugin, d: &DrawStmt) -> Outcome<String> {
                     "unknown form",
                 )
                 .note(format!("its forms: {}", info.forms.join(", ")));
-            if let Some(s) = closest(&f.name, info.forms.iter().map(String::as_str)) {
-                diag = diag.help(format!("did you mean `{s}`?"));
-            }
+            diag = diag.suggest(&f.name, info.forms.iter().map(String::as_str));
             Err(cx.report(diag))
         }
         None if info.forms.len() == 1 => Ok(info.forms[0].clone()),

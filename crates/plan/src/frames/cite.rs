@@ -10,7 +10,6 @@
 use std::collections::BTreeMap;
 
 use crescendo_data::{stats, time, Table, Value};
-use crescendo_diag::closest;
 use crescendo_lang::ast::{ChartStmt, FormatSpec, Ident, NumberStyle, OptName, Span};
 
 use super::provenance::{self, NoProv, Picked, Prov};
@@ -39,9 +38,7 @@ pub(crate) fn cite(
             id.span.clone(),
             "not a value of this story",
         );
-        if let Some(s) = closest(name, scope.values.exprs.keys().map(String::as_str)) {
-            d = d.help(format!("did you mean `{s}`?"));
-        }
+        d = d.suggest(name, scope.values.exprs.keys().map(String::as_str));
         return Err(cx.report(d));
     };
     if scope.values.broken.contains(name) {

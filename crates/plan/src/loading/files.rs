@@ -5,7 +5,7 @@ use std::path::Path;
 
 use crescendo_data::digits::NumberStyle;
 use crescendo_data::{ColType, CsvSpec, LoadError};
-use crescendo_diag::{closest, Diagnostic};
+use crescendo_diag::Diagnostic;
 use crescendo_lang::ast::{self, Ident};
 
 use crate::context::{Ctx, Outcome};
@@ -27,9 +27,7 @@ fn col_type(cx: &mut Ctx, id: &Ident) -> Outcome<ColType> {
                     "not a type",
                 )
                 .note("column types are text, number, date (YYYY-MM-DD), month (YYYY-MM) and year (YYYY)");
-            if let Some(s) = closest(other, ["text", "number", "date", "month", "year"]) {
-                d = d.help(format!("did you mean `{s}`?"));
-            }
+            d = d.suggest(other, ["text", "number", "date", "month", "year"]);
             return Err(cx.report(d));
         }
     })

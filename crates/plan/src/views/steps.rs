@@ -5,7 +5,7 @@
 use std::sync::Arc;
 
 use crescendo_data::{self as data, AggFn, Aggregate, ColType, Step};
-use crescendo_diag::{closest, Diagnostic, Source};
+use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::{self, Expr, Ident, StepAst};
 
 use crate::rows::{column, Checker, Schema, Ty};
@@ -74,19 +74,36 @@ pub(crate) fn check(at: &At, step: &StepAst, diags: &mut Vec<Diagnostic>) -> Opt
 
 /// `columns a, b, c`: keep only these columns, in this order.
 fn columns(at: &At, names: &[Ident], diags: &mut Vec<Diagnostic>) -> Vec<usize> {
-    let mut picked: Vec<usize> = Vec::new();
+    let twice = ("is listed twice", "again here");
+    let found = found_columns(at, names, twice, diags);
+    found.into_iter().map(|(i, _, _)| i).collect()
+}
+
+/// The columns `names` name, in order, with their names and types (an
+/// unknown one is reported and left out); a column named again is
+/// reported, as `` `NAME` `` and `said`, under a caret labelled `label`.
+fn found_columns<'n>(
+    at: &At,
+    names: &'n [Ident],
+    (said, label): (&str, &str),
+    diags: &mut Vec<Diagnostic>,
+) -> Vec<(usize, &'n Ident, ColType)> {
+    let mut found: Vec<(usize, &Ident, ColType)> = Vec::new();
     for n in names {
-        if let Some((i, _)) = at.column(n, diags) {
-            if picked.contains(&i) {
+        if let Some((i, t)) = at.column(n, diags) {
+            if found.iter().any(|f| f.0 == i) {
                 diags.push(
-                    Diagnostic::error("duplicate-name", format!("`{}` is listed twice", n.name))
-                        .at(at.src, n.span.clone(), "again here"),
+                    Diagnostic::error("duplicate-name", format!("`{}` {said}", n.name)).at(
+                        at.src,
+                        n.span.clone(),
+                        label,
+                    ),
                 );
             }
-            picked.push(i);
+            found.push((i, n, t));
         }
     }
-    picked
+    found
 }
 
 fn keep(at: &At, expr: &Expr, diags: &mut Vec<Diagnostic>) -> Option<Step> {
@@ -123,20 +140,11 @@ fn by(
     aggregates: &[ast::AggregateAst],
     diags: &mut Vec<Diagnostic>,
 ) -> Option<Step> {
-    let mut key_idx = Vec::new();
-    let mut out: Schema = Vec::new();
-    for k in keys {
-        if let Some((i, t)) = at.column(k, diags) {
-            if key_idx.contains(&i) {
-                diags.push(
-                    Diagnostic::error("duplicate-name", format!("`{}` is already a key", k.name))
-                        .at(at.src, k.span.clone(), "repeated key"),
-                );
-            }
-            key_idx.push(i);
-            out.push((k.name.clone(), t));
-        }
-    }
+    let found = found_columns(at, keys, ("is already a key", "repeated key"), diags);
+    let key_idx = found.iter().map(|(i, _, _)| *i).collect();
+    let mut out: Schema = (found.into_iter())
+        .map(|(_, k, t)| (k.name.clone(), t))
+        .collect();
     let mut aggs = Vec::new();
     for a in aggregates {
         if !check_new_name(at.src, &out, &a.name, diags) {
@@ -276,9 +284,7 @@ fn agg_fn(src: &Arc<Source>, id: &Ident, diags: &mut Vec<Diagnostic>) -> Option<
             let mut d = Diagnostic::error("unknown-name", format!("unknown aggregate `{other}`"))
                 .at(src, id.span.clone(), "not an aggregate")
                 .note(format!("aggregates are {}", NAMES.join(", ")));
-            if let Some(s) = closest(other, NAMES) {
-                d = d.help(format!("did you mean `{s}`?"));
-            }
+            d = d.suggest(other, NAMES);
             diags.push(d);
             return None;
         }
