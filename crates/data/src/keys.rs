@@ -127,8 +127,10 @@ impl KeyIndex {
     }
 
     /// Make the table `n` slots long (a power of two) and enter every key
-    /// the table numbers again (read from the arena in order).
+    /// the table numbers again (read from the arena in order, so the old
+    /// table is freed first: old and new are never held together).
     fn rebuild(&mut self, n: usize) {
+        self.slots = Vec::new();
         let mut slots = vec![FREE; n];
         let mask = n - 1;
         let numbered = self.ends.len().min(EMPTY as usize);
