@@ -134,18 +134,29 @@ impl KeyIndex {
         let mut slots = vec![FREE; n];
         let mask = n - 1;
         let numbered = self.ends.len().min(EMPTY as usize);
-        for g in 0..numbered {
-            let key = key_of(&self.arena, &self.ends, g);
-            let h = hash_bytes(key);
-            let mut i = h as usize & mask;
-            while slots.get(i).is_some_and(|e| e.id != EMPTY) {
-                i = (i + 1) & mask;
+        // a block of keys at a time: their slots are fetched together
+        // (new slots are scattered over the whole table)
+        const BLOCK: usize = 32;
+        let mut hashes = [0u64; BLOCK];
+        for first in (0..numbered).step_by(BLOCK) {
+            let block = first..numbered.min(first + BLOCK);
+            for (g, h) in block.clone().zip(&mut hashes) {
+                *h = hash_bytes(key_of(&self.arena, &self.ends, g));
+                if let Some(slot) = slots.get(*h as usize & mask) {
+                    prefetch(slot);
+                }
             }
-            if let Some(slot) = slots.get_mut(i) {
-                *slot = Entry {
-                    head: head_of(key, h),
-                    id: g as u32,
-                };
+            for (g, &h) in block.zip(&hashes) {
+                let mut i = h as usize & mask;
+                while slots.get(i).is_some_and(|e| e.id != EMPTY) {
+                    i = (i + 1) & mask;
+                }
+                if let Some(slot) = slots.get_mut(i) {
+                    *slot = Entry {
+                        head: head_of(key_of(&self.arena, &self.ends, g), h),
+                        id: g as u32,
+                    };
+                }
             }
         }
         self.slots = slots;
