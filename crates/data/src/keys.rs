@@ -58,7 +58,51 @@ pub(crate) struct KeyIndex {
     /// Every key, one after another.
     arena: Vec<u8>,
     /// Where each key ends in `arena`.
-    ends: Vec<usize>,
+    ends: Ends,
+}
+
+/// Where each key ends in the arena: the low 32 bits of each end (4 bytes
+/// a key, not 8), and the keys whose end passed another multiple of 2^32
+/// (none while the arena is under 4 GiB).
+#[derive(Clone, Debug, Default)]
+struct Ends {
+    low: Vec<u32>,
+    wraps: Vec<usize>,
+}
+
+impl Ends {
+    fn len(&self) -> usize {
+        self.low.len()
+    }
+
+    /// Where key `g` ends.
+    fn get(&self, g: usize) -> Option<usize> {
+        let low = u64::from(*self.low.get(g)?);
+        let wraps = match self.wraps.is_empty() {
+            true => 0,
+            false => self.wraps.partition_point(|&w| w <= g) as u64,
+        };
+        usize::try_from(low + (wraps << 32)).ok()
+    }
+
+    /// The next key ends at `end` (not before the last end).
+    fn push(&mut self, end: usize) {
+        let g = self.len();
+        let before = g.checked_sub(1).and_then(|p| self.get(p)).unwrap_or(0) as u64;
+        for _ in (before >> 32)..(end as u64 >> 32) {
+            self.wraps.push(g);
+        }
+        self.low.push(end as u32);
+    }
+
+    /// Forget the last key.
+    fn pop(&mut self) {
+        let g = self.len().wrapping_sub(1);
+        while self.wraps.last() == Some(&g) {
+            self.wraps.pop();
+        }
+        self.low.pop();
+    }
 }
 
 impl KeyIndex {
@@ -217,15 +261,15 @@ pub(crate) fn same_bytes(a: &[u8], b: &[u8]) -> bool {
 }
 
 /// The bytes of key `g`.
-fn key_of<'a>(arena: &'a [u8], ends: &[usize], g: usize) -> &'a [u8] {
-    let end = ends.get(g).copied().unwrap_or(0);
+fn key_of<'a>(arena: &'a [u8], ends: &Ends, g: usize) -> &'a [u8] {
+    let end = ends.get(g).unwrap_or(0);
     arena.get(key_start(ends, g)..end).unwrap_or(&[])
 }
 
 /// Where key `g` starts in the arena.
-fn key_start(ends: &[usize], g: usize) -> usize {
+fn key_start(ends: &Ends, g: usize) -> usize {
     g.checked_sub(1)
-        .and_then(|p| ends.get(p).copied())
+        .and_then(|p| ends.get(p))
         .unwrap_or(0)
 }
 
@@ -305,6 +349,23 @@ mod tests {
         }
         assert_eq!(k.len(), 1700);
         assert_eq!(k.key(1234), b"key1234");
+    }
+
+    #[test]
+    #[cfg(target_pointer_width = "64")]
+    fn key_ends_past_four_gib_are_kept() {
+        let mut ends = Ends::default();
+        let at = [0usize, 5, u32::MAX as usize, (1 << 32) + 3, (1 << 32) + 3, (3 << 32) + 1];
+        for &e in &at {
+            ends.push(e);
+        }
+        for (g, &e) in at.iter().enumerate() {
+            assert_eq!(ends.get(g), Some(e), "key {g}");
+        }
+        ends.pop();
+        ends.push((1 << 32) + 9);
+        assert_eq!(ends.get(5), Some((1 << 32) + 9));
+        assert_eq!(ends.get(6), None);
     }
 
     proptest! {
