@@ -16,8 +16,8 @@
 //! the output is bit for bit the table engine's.
 
 use crate::hash::hash_bytes;
-pub(crate) use crate::keys::KeyIndex;
 use crate::keys::prefetch;
+pub(crate) use crate::keys::KeyIndex;
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Value, Values};
 use crate::view::{compare_cells, sum_value, Sum};
 
@@ -372,8 +372,10 @@ impl Groups {
             let h = hash_bytes(p.keys.get(start..).unwrap_or(&[]));
             self.keys.prefetch(h);
             p.rows.push((p.keys.len(), h, zeros));
-            p.cells
-                .extend(aggs.iter().map(|a| a.column.map_or(Num::Missing, |c| Num::of(row(c)))));
+            p.cells.extend(
+                aggs.iter()
+                    .map(|a| a.column.map_or(Num::Missing, |c| Num::of(row(c)))),
+            );
             if p.rows.len() == BATCH {
                 self.flush();
             }
@@ -438,7 +440,9 @@ impl Groups {
         let mut zeros = later.negative_zero.iter().peekable();
         for h in 0..later.len() {
             // the slot of a key some rows ahead, fetched while these are added
-            if let Some(k) = (h + MERGE_AHEAD < later.len()).then(|| later.keys.key(h + MERGE_AHEAD)) {
+            if let Some(k) =
+                (h + MERGE_AHEAD < later.len()).then(|| later.keys.key(h + MERGE_AHEAD))
+            {
                 self.keys.prefetch(hash_bytes(k));
             }
             let (g, new) = self.id(later.keys.key(h));
@@ -661,7 +665,13 @@ mod tests {
         }
         let names = |n: usize| (0..n).map(|i| (format!("c{i}"), ColType::Number)).collect();
         let columns = all.finish(names(2), names(aggs.len()));
-        format!("{:?}", columns.iter().map(|c| c.values.to_vec()).collect::<Vec<_>>())
+        format!(
+            "{:?}",
+            columns
+                .iter()
+                .map(|c| c.values.to_vec())
+                .collect::<Vec<_>>()
+        )
     }
 
     proptest::proptest! {

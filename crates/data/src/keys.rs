@@ -146,8 +146,8 @@ impl KeyIndex {
             if e.id == EMPTY {
                 break;
             }
-            let same =
-                e.head == head && (key.len() <= HEAD || same_bytes(key_of(arena, ends, e.id as usize), key));
+            let same = e.head == head
+                && (key.len() <= HEAD || same_bytes(key_of(arena, ends, e.id as usize), key));
             if same {
                 return (e.id as usize, false);
             }
@@ -268,9 +268,7 @@ fn key_of<'a>(arena: &'a [u8], ends: &Ends, g: usize) -> &'a [u8] {
 
 /// Where key `g` starts in the arena.
 fn key_start(ends: &Ends, g: usize) -> usize {
-    g.checked_sub(1)
-        .and_then(|p| ends.get(p))
-        .unwrap_or(0)
+    g.checked_sub(1).and_then(|p| ends.get(p)).unwrap_or(0)
 }
 
 #[cfg(test)]
@@ -355,7 +353,14 @@ mod tests {
     #[cfg(target_pointer_width = "64")]
     fn key_ends_past_four_gib_are_kept() {
         let mut ends = Ends::default();
-        let at = [0usize, 5, u32::MAX as usize, (1 << 32) + 3, (1 << 32) + 3, (3 << 32) + 1];
+        let at = [
+            0usize,
+            5,
+            u32::MAX as usize,
+            (1 << 32) + 3,
+            (1 << 32) + 3,
+            (3 << 32) + 1,
+        ];
         for &e in &at {
             ends.push(e);
         }
