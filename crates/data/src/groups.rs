@@ -34,7 +34,7 @@ pub(crate) struct Groups {
     accs: Vec<AccColumn>,
     /// Rows waiting for their group, when every aggregate
     /// [`AccColumn::takes_nums`] (`None` otherwise).
-    pending: Option<Pending>,
+    pending: Option<Box<Pending>>,
 }
 
 /// Rows read but not yet added to their groups. Each row's table slot is
@@ -322,7 +322,7 @@ impl Groups {
         let batched = keys.len() <= 64 && accs.iter().all(AccColumn::takes_nums);
         let mut g = Groups {
             accs,
-            pending: batched.then(Pending::default),
+            pending: batched.then(Box::default),
             ..Groups::default()
         };
         if keys.is_empty() {
