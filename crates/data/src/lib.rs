@@ -12,6 +12,7 @@ pub mod fold;
 pub mod format;
 mod groups;
 mod hash;
+mod keys;
 pub mod load;
 mod loader;
 pub mod locale;
