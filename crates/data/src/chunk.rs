@@ -6,6 +6,7 @@
 use std::io::{ErrorKind, Read};
 use std::ops::Range;
 
+use crate::codes::Coded;
 use crate::files::ReadAt;
 use crate::fold::{states, Sink};
 use crate::load::ReadLimits;
@@ -13,7 +14,7 @@ use crate::model::{Cell, ColType};
 use crate::probe::Watch;
 use crate::record::{forbidden_char, too_long};
 use crate::split::{Index, Next, Records};
-use crate::stream::{add_record, ChunkOut, End, ScanInput};
+use crate::stream::{ChunkOut, End, ScanInput};
 use crate::time::{parse_date, parse_month_or_date, parse_year};
 
 /// Bytes read at a time (a buffer grows when one record is longer).
@@ -155,6 +156,7 @@ pub(crate) fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> Chun
         limits: input.limits,
     };
     let mut decoder = Decoder::new(input);
+    let mut coded = Coded::new(&sink, input.schema, input.parse);
     let mut kept = vec![0usize; input.views.len()];
     let mut scratch: Vec<Cell<'static>> = Vec::with_capacity(ncols);
     let mut keybuf: Vec<u8> = Vec::with_capacity(64);
@@ -210,7 +212,7 @@ pub(crate) fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> Chun
                 return out;
             }
             let views = (&mut out.views[..], &mut out.watches[..]);
-            if !add_record(&sink, &cells, views, &mut kept, &mut keybuf) {
+            if !coded.add(&sink, &cells, views, (&mut kept, &mut keybuf)) {
                 return out;
             }
             scratch = recycle(cells);

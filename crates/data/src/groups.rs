@@ -401,6 +401,18 @@ impl Groups {
         (keys, aggs): (&[usize], &[Aggregate]),
         row: &impl Fn(usize) -> Cell<'c>,
     ) {
+        let g = self.group(keybuf, keys, row);
+        self.add_at(g, aggs, row);
+    }
+
+    /// The group of the row's cells in `keys`, created (with empty
+    /// accumulators) when new.
+    pub(crate) fn group<'c>(
+        &mut self,
+        keybuf: &mut Vec<u8>,
+        keys: &[usize],
+        row: &impl Fn(usize) -> Cell<'c>,
+    ) -> usize {
         keybuf.clear();
         for &k in keys {
             encode_key(keybuf, row(k));
@@ -413,6 +425,16 @@ impl Groups {
                 }
             }
         }
+        g
+    }
+
+    /// Add the row's cells of `aggs` to group `g` (see [`Groups::group`]).
+    pub(crate) fn add_at<'c>(
+        &mut self,
+        g: usize,
+        aggs: &[Aggregate],
+        row: &impl Fn(usize) -> Cell<'c>,
+    ) {
         for (acc, a) in self.accs.iter_mut().zip(aggs) {
             acc.add(g, a.column.map_or(Cell::Missing, row));
         }

@@ -3,6 +3,7 @@
 
 pub mod bucket;
 mod chunk;
+mod codes;
 mod colfold;
 pub mod column;
 pub mod digits;

@@ -1,0 +1,294 @@
+//! Dictionary codes for the records of one chunk of a streamed CSV file
+//! ([`crate::chunk`]), so that per record the views do table look-ups
+//! instead of text comparisons and key hashing.
+//!
+//! * Each text column that a view's `keep` or group key reads gets a dense
+//!   code per distinct text met in the chunk (0 for a missing cell). Past
+//!   [`MAX_CODES`] distinct texts the column is no longer coded for the
+//!   rest of the chunk: the plain path takes over.
+//! * A `keep` is split at its top-level `and`s; a part that reads one coded
+//!   column is evaluated once per code and remembered.
+//! * A group key of at most two columns, each a coded text column or a
+//!   date, month or year column (small integers), is turned into a pair of
+//!   numbers: its group is looked up in the view's group table only the
+//!   first time the chunk meets the pair.
+//!
+//! Codes only cache what the plain path ([`crate::stream::add_record`])
+//! computes: a code stands for exactly one cell, parts are pure, and a
+//! group is created in the table at its first row, as before. So groups,
+//! their order and sums are those of the plain path, bit for bit; the tests
+//! compare both on random tables.
+
+use std::hash::BuildHasherDefault;
+
+use hashbrown::{HashMap, HashTable};
+
+use crate::colfold::{conjuncts, only_column};
+use crate::fold::Sink;
+use crate::hash::{hash_bytes, Fx};
+use crate::model::{Cell, ColType, Expr};
+use crate::probe::Watch;
+use crate::stream::{add_passed, ViewState};
+use crate::view::truth;
+
+/// Most distinct texts one column may hold in a chunk and stay coded.
+pub(crate) const MAX_CODES: usize = 4096;
+
+/// The code of a cell that has none (an uncoded column, or one past
+/// [`MAX_CODES`]).
+const NONE: u64 = u64::MAX;
+
+/// The distinct texts of one column in one chunk, numbered from 1.
+#[derive(Default)]
+struct Dict {
+    /// Codes, hashed by their text.
+    table: HashTable<u32>,
+    arena: String,
+    /// Where each text ends in `arena`.
+    ends: Vec<usize>,
+}
+
+fn text_of<'a>(arena: &'a str, ends: &[usize], code: u32) -> &'a str {
+    let i = code as usize - 1;
+    let start = if i == 0 { 0 } else { ends[i - 1] };
+    &arena[start..ends[i]]
+}
+
+impl Dict {
+    /// The code of `t`, numbered when new; `None` once the column holds
+    /// [`MAX_CODES`] texts and `t` is not one of them.
+    fn code(&mut self, t: &str) -> Option<u32> {
+        let h = hash_bytes(t.as_bytes());
+        let (arena, ends) = (&self.arena, &self.ends);
+        if let Some(&c) = self.table.find(h, |&c| text_of(arena, ends, c) == t) {
+            return Some(c);
+        }
+        if self.ends.len() >= MAX_CODES {
+            return None;
+        }
+        self.arena.push_str(t);
+        self.ends.push(self.arena.len());
+        let c = self.ends.len() as u32;
+        let (arena, ends) = (&self.arena, &self.ends);
+        self.table
+            .insert_unique(h, c, |&c| hash_bytes(text_of(arena, ends, c).as_bytes()));
+        Some(c)
+    }
+}
+
+/// How a column's cells are coded.
+enum Kind {
+    /// Not at all.
+    Plain,
+    /// Text: by its dictionary (`None` once past [`MAX_CODES`]).
+    Text(Option<Dict>),
+    /// Date, month or year: its number plus one (0 for a missing cell).
+    Time,
+}
+
+/// One part of a view's `keep`s (they all must hold).
+enum Part<'v> {
+    /// Reads only coded text column `.0`: its truth per code (0 not yet
+    /// known, 1 false, 2 true).
+    Memo(usize, &'v Expr, Vec<u8>),
+    /// Evaluated per row.
+    Plain(&'v Expr),
+}
+
+/// A view's groups by the codes of their key cells.
+struct Cache {
+    keys: Vec<usize>,
+    /// The last pair looked up and its group (ledgers repeat a date or
+    /// month row after row).
+    last: Option<([u64; 2], u32)>,
+    groups: HashMap<[u64; 2], u32, BuildHasherDefault<Fx>>,
+}
+
+impl Cache {
+    /// The pair of codes of the row's key cells, if all are coded.
+    fn pair(&self, codes: &[u64]) -> Option<[u64; 2]> {
+        let mut pair = [0u64; 2];
+        for (p, &k) in pair.iter_mut().zip(&self.keys) {
+            *p = codes[k];
+            if *p == NONE {
+                return None;
+            }
+        }
+        Some(pair)
+    }
+}
+
+/// Per view: its `keep` parts and its group cache.
+struct Plan<'v> {
+    parts: Vec<Part<'v>>,
+    cache: Option<Cache>,
+}
+
+/// The codes of one chunk's records and the views' plans over them.
+pub(crate) struct Coded<'v> {
+    kinds: Vec<Kind>,
+    /// The coded columns.
+    coded: Vec<usize>,
+    /// Per column: the current record's code ([`NONE`] if uncoded).
+    codes: Vec<u64>,
+    plans: Vec<Plan<'v>>,
+}
+
+impl<'v> Coded<'v> {
+    /// Codes for the views of `sink` over columns of `schema`, of which
+    /// those marked in `parse` are decoded.
+    pub(crate) fn new(sink: &Sink<'v>, schema: &[(String, ColType)], parse: &[bool]) -> Self {
+        let ncols = schema.len();
+        let ty = |j: usize| {
+            let parsed = parse.get(j).copied().unwrap_or(false);
+            schema.get(j).filter(|_| parsed).map(|c| c.1)
+        };
+        let mut kinds: Vec<Kind> = (0..ncols).map(|_| Kind::Plain).collect();
+        let mut plans = Vec::with_capacity(sink.views.len());
+        for v in sink.views {
+            let mut found = Vec::new();
+            v.keeps.iter().for_each(|e| conjuncts(e, &mut found));
+            let parts = found
+                .into_iter()
+                .map(
+                    |e| match only_column(e).filter(|&c| ty(c) == Some(ColType::Text)) {
+                        Some(c) => {
+                            kinds[c] = Kind::Text(Some(Dict::default()));
+                            Part::Memo(c, e, Vec::new())
+                        }
+                        None => Part::Plain(e),
+                    },
+                )
+                .collect();
+            let cache = v.group.as_ref().and_then(|(keys, _)| {
+                if keys.len() > 2 {
+                    return None;
+                }
+                let kinds_of = keys.iter().map(|&k| match ty(k)? {
+                    ColType::Text => Some((k, Kind::Text(Some(Dict::default())))),
+                    ColType::Date | ColType::Month | ColType::Year => Some((k, Kind::Time)),
+                    ColType::Number => None,
+                });
+                for (k, kind) in kinds_of.collect::<Option<Vec<_>>>()? {
+                    if matches!(kinds[k], Kind::Plain) {
+                        kinds[k] = kind;
+                    }
+                }
+                Some(Cache {
+                    keys: keys.clone(),
+                    last: None,
+                    groups: HashMap::default(),
+                })
+            });
+            plans.push(Plan { parts, cache });
+        }
+        let coded = (0..ncols)
+            .filter(|&j| !matches!(kinds[j], Kind::Plain))
+            .collect();
+        Coded {
+            kinds,
+            coded,
+            codes: vec![NONE; ncols],
+            plans,
+        }
+    }
+
+    /// Code the cells of one record.
+    fn code(&mut self, cells: &[Cell<'_>]) {
+        for &j in &self.coded {
+            let cell = cells.get(j).copied().unwrap_or(Cell::Missing);
+            self.codes[j] = match (&mut self.kinds[j], cell) {
+                (Kind::Text(Some(_)) | Kind::Time, Cell::Missing) => 0,
+                (Kind::Text(dict @ Some(_)), Cell::Text(t)) => {
+                    match dict.as_mut().and_then(|d| d.code(t)) {
+                        Some(c) => u64::from(c),
+                        None => {
+                            // too many texts: plain from here on
+                            *dict = None;
+                            NONE
+                        }
+                    }
+                }
+                (Kind::Time, Cell::Date(v) | Cell::Month(v) | Cell::Year(v)) => {
+                    u64::from(v as u32) + 1
+                }
+                _ => NONE,
+            };
+        }
+    }
+
+    /// Add one record (cells by column) to every view whose `keep`s it
+    /// passes, as [`crate::stream::add_record`] does.
+    pub(crate) fn add(
+        &mut self,
+        input: &Sink<'_>,
+        cells: &[Cell<'_>],
+        (states, watches): (&mut [ViewState], &mut [Watch]),
+        (kept, keybuf): (&mut [usize], &mut Vec<u8>),
+    ) -> bool {
+        self.code(cells);
+        let row = |c: usize| cells.get(c).copied().unwrap_or(Cell::Missing);
+        let codes = &self.codes;
+        let views = input.views.iter().zip(states).zip(watches);
+        for (vi, ((view, state), watch)) in views.enumerate() {
+            let plan = &mut self.plans[vi];
+            let pass = if watch.settled() {
+                plan.passes(codes, &row)
+            } else {
+                watch.passes(&row, &view.keeps)
+            };
+            if !pass {
+                continue;
+            }
+            let cached = match (&mut plan.cache, &mut *state, &view.group) {
+                (Some(cache), ViewState::Groups(g), Some((keys, aggs))) => {
+                    cache.pair(codes).map(|pair| {
+                        let id = match cache.last {
+                            Some((p, id)) if p == pair => id,
+                            _ => {
+                                let id = *cache
+                                    .groups
+                                    .entry(pair)
+                                    .or_insert_with(|| g.group(keybuf, keys, &row) as u32);
+                                cache.last = Some((pair, id));
+                                id
+                            }
+                        };
+                        g.add_at(id as usize, aggs, &row);
+                    })
+                }
+                _ => None,
+            };
+            if cached.is_none() && !add_passed(input, vi, state, (kept, keybuf), &row) {
+                return false;
+            }
+        }
+        true
+    }
+}
+
+impl<'v> Plan<'v> {
+    /// Does the row (with `codes`) pass every part?
+    fn passes<'c>(&mut self, codes: &[u64], row: &impl Fn(usize) -> Cell<'c>) -> bool
+    where
+        'v: 'c,
+    {
+        self.parts.iter_mut().all(|part| match part {
+            Part::Plain(e) => truth(row, *e),
+            Part::Memo(c, e, memo) => {
+                let code = codes[*c];
+                if code == NONE {
+                    return truth(row, *e);
+                }
+                let i = code as usize;
+                if i >= memo.len() {
+                    memo.resize(i + 1, 0);
+                }
+                if memo[i] == 0 {
+                    memo[i] = 1 + u8::from(truth(row, *e));
+                }
+                memo[i] == 2
+            }
+        })
+    }
+}
