@@ -292,3 +292,175 @@ impl<'v> Plan<'v> {
         })
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use proptest::prelude::*;
+
+    use super::*;
+    use crate::fold::states;
+    use crate::load::ReadLimits;
+    use crate::model::{AggFn, Aggregate, CmpOp, Value};
+    use crate::stream::{add_record, finish, StreamView};
+
+    /// One random row: month, region, product, amount.
+    type Row = (Option<i32>, Option<String>, Option<String>, Option<f64>);
+
+    fn col(c: usize) -> Box<Expr> {
+        Box::new(Expr::Col(c))
+    }
+
+    fn text(t: &str) -> Value {
+        Value::Text(t.into())
+    }
+
+    fn agg(func: AggFn, column: Option<usize>) -> Aggregate {
+        Aggregate {
+            name: format!("{func:?}{column:?}"),
+            func,
+            column,
+        }
+    }
+
+    /// Columns: month, region (text), product (text), amount.
+    fn schema() -> Vec<(String, ColType)> {
+        [
+            ("month", ColType::Month),
+            ("region", ColType::Text),
+            ("product", ColType::Text),
+            ("amount", ColType::Number),
+        ]
+        .map(|(n, t)| (n.to_string(), t))
+        .to_vec()
+    }
+
+    /// Views of every kind: memoised and plain `keep` parts, cached group
+    /// keys of text and time columns, a number key and three keys (not
+    /// cached), no key, a `keep`-only view.
+    fn views() -> Vec<StreamView> {
+        let sum = |c| agg(AggFn::Sum, Some(c));
+        let regions = vec![text("r1"), text("r2"), text("r30")];
+        let large = Expr::Cmp(CmpOp::Gt, col(3), Box::new(Expr::Lit(Value::Number(50.0))));
+        let r7 = Expr::Cmp(CmpOp::Eq, col(1), Box::new(Expr::Lit(text("r7"))));
+        let not_p3 = Expr::Cmp(CmpOp::Ne, col(2), Box::new(Expr::Lit(text("p3"))));
+        let v = |keeps: Vec<Expr>, group: Option<(Vec<usize>, Vec<Aggregate>)>| StreamView {
+            keeps,
+            group,
+        };
+        let count_min = vec![agg(AggFn::Count, None), agg(AggFn::Min, Some(3))];
+        vec![
+            v(
+                vec![Expr::In(col(1), regions)],
+                Some((vec![0, 1], vec![sum(3)])),
+            ),
+            v(vec![], Some((vec![2], count_min))),
+            v(
+                vec![Expr::And(vec![r7, large])],
+                Some((vec![0], vec![agg(AggFn::Last, Some(3))])),
+            ),
+            v(vec![], Some((vec![1], vec![agg(AggFn::Mean, Some(3))]))),
+            v(vec![not_p3.clone()], None),
+            v(vec![], Some((vec![3], vec![agg(AggFn::Count, Some(1))]))),
+            v(
+                vec![not_p3],
+                Some((vec![0, 1, 2], vec![sum(3), agg(AggFn::First, Some(2))])),
+            ),
+            v(vec![], Some((vec![], vec![sum(3)]))),
+        ]
+    }
+
+    /// `n` random rows (xorshift from `seed`), texts from `cards` distinct
+    /// values per text column, some cells missing, amounts with `-0`.
+    fn rows(seed: u64, n: usize, cards: (u64, u64)) -> Vec<Row> {
+        let mut s = seed | 1;
+        let mut next = move |m: u64| {
+            s ^= s << 13;
+            s ^= s >> 7;
+            s ^= s << 17;
+            s % m
+        };
+        (0..n)
+            .map(|i| {
+                let month = (next(20) > 0).then(|| 24_000 + (i / 50) as i32 % 40);
+                let region = (next(30) > 0).then(|| format!("r{}", next(cards.0)));
+                let product = (next(30) > 0).then(|| format!("p{}", next(cards.1)));
+                let amount = match next(10) {
+                    0 => None,
+                    1 => Some(-0.0),
+                    _ => Some(next(1000) as f64 / 10.0),
+                };
+                (month, region, product, amount)
+            })
+            .collect()
+    }
+
+    /// Each view's table and probes after all rows, by the coded or the
+    /// plain path.
+    fn run(coded: bool, rows: &[Row]) -> String {
+        let (schema, views) = (schema(), views());
+        let limits = ReadLimits::none();
+        let keep_values = vec![true; 4];
+        let sink = Sink {
+            views: &views,
+            keep_values: &keep_values,
+            limits: &limits,
+        };
+        let mut st = states(&views, 4);
+        let mut watches: Vec<Watch> = views.iter().map(|v| Watch::new(&v.keeps)).collect();
+        let (mut kept, mut keybuf) = (vec![0; views.len()], Vec::new());
+        let mut codes = Coded::new(&sink, &schema, &[true; 4]);
+        for (m, r, p, a) in rows {
+            let cells = [
+                m.map_or(Cell::Missing, Cell::Month),
+                r.as_deref().map_or(Cell::Missing, Cell::Text),
+                p.as_deref().map_or(Cell::Missing, Cell::Text),
+                a.map_or(Cell::Missing, Cell::Number),
+            ];
+            let state = (&mut st[..], &mut watches[..]);
+            let ok = if coded {
+                codes.add(&sink, &cells, state, (&mut kept, &mut keybuf))
+            } else {
+                add_record(&sink, &cells, state, &mut kept, &mut keybuf)
+            };
+            assert!(ok);
+        }
+        let tables: Vec<_> = views
+            .iter()
+            .zip(st)
+            .map(|(v, s)| finish(&schema, v, s))
+            .collect();
+        let probes: Vec<_> = watches.into_iter().map(Watch::finish).collect();
+        // Debug text tells -0 from 0
+        format!("{tables:?}\n{probes:?}")
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(48))]
+        #[test]
+        fn coded_path_equals_plain_path(
+            seed in any::<u64>(),
+            n in 0usize..3000,
+            cards in prop_oneof![
+                Just((3u64, 5u64)),
+                Just((40, 300)),
+                Just((8, MAX_CODES as u64 + 200)),
+                Just((MAX_CODES as u64 * 2, 6)),
+            ],
+        ) {
+            // a cardinality past the threshold needs rows enough to pass it
+            let n = if cards.0.max(cards.1) > MAX_CODES as u64 { n + 6000 } else { n };
+            let rows = rows(seed, n, cards);
+            prop_assert_eq!(run(true, &rows), run(false, &rows));
+        }
+    }
+
+    #[test]
+    fn a_column_past_the_threshold_is_no_longer_coded() {
+        let mut d = Dict::default();
+        for i in 0..MAX_CODES {
+            assert_eq!(d.code(&format!("t{i}")), Some(i as u32 + 1));
+        }
+        assert_eq!(d.code("t7"), Some(8));
+        assert_eq!(d.code("new"), None);
+    }
+}
