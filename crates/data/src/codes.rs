@@ -19,13 +19,11 @@
 //! their order and sums are those of the plain path, bit for bit; the tests
 //! compare both on random tables.
 
-use std::hash::BuildHasherDefault;
-
-use hashbrown::{HashMap, HashTable};
+use hashbrown::HashTable;
 
 use crate::colfold::{conjuncts, only_column};
 use crate::fold::Sink;
-use crate::hash::{hash_bytes, Fx};
+use crate::hash::hash_bytes;
 use crate::model::{Cell, ColType, Expr};
 use crate::probe::Watch;
 use crate::stream::{add_passed, ViewState};
@@ -38,11 +36,41 @@ pub(crate) const MAX_CODES: usize = 4096;
 /// [`MAX_CODES`]).
 const NONE: u64 = u64::MAX;
 
+/// Bytes of a text held in its dictionary entry.
+const HEAD: usize = 16;
+
+/// A text's code, length and first [`HEAD`] bytes (zeros after its end):
+/// a text no longer than that is matched without reading the arena.
+#[derive(Clone, Copy)]
+struct Entry {
+    head: [u64; 2],
+    len: u32,
+    code: u32,
+}
+
+/// The first [`HEAD`] bytes of `t` as two words, zeros after its end.
+fn head(t: &[u8]) -> [u64; 2] {
+    let mut b = [0u8; HEAD];
+    let n = t.len().min(HEAD);
+    b[..n].copy_from_slice(&t[..n]);
+    let (lo, hi) = b.split_at(8);
+    let word = |w: &[u8]| u64::from_le_bytes(w.try_into().unwrap_or_default());
+    [word(lo), word(hi)]
+}
+
+/// The hash of two words: the two halves of their 128-bit product
+/// (after a xor with constants, digits of pi) xored, a folded multiply
+/// (common practice). Bits of both words reach both ends of the hash.
+fn mix(w: [u64; 2]) -> u64 {
+    let p = u128::from(w[0] ^ 0x243f_6a88_85a3_08d3) * u128::from(w[1] ^ 0x1319_8a2e_0370_7344);
+    (p as u64) ^ ((p >> 64) as u64)
+}
+
 /// The distinct texts of one column in one chunk, numbered from 1.
 #[derive(Default)]
 struct Dict {
     /// Codes, hashed by their text.
-    table: HashTable<u32>,
+    table: HashTable<Entry>,
     arena: String,
     /// Where each text ends in `arena`.
     ends: Vec<usize>,
@@ -58,21 +86,30 @@ impl Dict {
     /// The code of `t`, numbered when new; `None` once the column holds
     /// [`MAX_CODES`] texts and `t` is not one of them.
     fn code(&mut self, t: &str) -> Option<u32> {
-        let h = hash_bytes(t.as_bytes());
+        let bytes = t.as_bytes();
+        let (w, long) = (head(bytes), bytes.len() > HEAD);
+        let len = u32::try_from(bytes.len()).ok()?;
+        let h = if long { hash_bytes(bytes) } else { mix(w) };
         let (arena, ends) = (&self.arena, &self.ends);
-        if let Some(&c) = self.table.find(h, |&c| text_of(arena, ends, c) == t) {
-            return Some(c);
+        let same =
+            |e: &Entry| e.len == len && e.head == w && (!long || text_of(arena, ends, e.code) == t);
+        if let Some(e) = self.table.find(h, same) {
+            return Some(e.code);
         }
         if self.ends.len() >= MAX_CODES {
             return None;
         }
         self.arena.push_str(t);
         self.ends.push(self.arena.len());
-        let c = self.ends.len() as u32;
+        let code = self.ends.len() as u32;
         let (arena, ends) = (&self.arena, &self.ends);
-        self.table
-            .insert_unique(h, c, |&c| hash_bytes(text_of(arena, ends, c).as_bytes()));
-        Some(c)
+        let rehash = |e: &Entry| match e.len as usize {
+            n if n > HEAD => hash_bytes(text_of(arena, ends, e.code).as_bytes()),
+            _ => mix(e.head),
+        };
+        let entry = Entry { head: w, len, code };
+        self.table.insert_unique(h, entry, rehash);
+        Some(code)
     }
 }
 
@@ -101,7 +138,8 @@ struct Cache {
     /// The last pair looked up and its group (ledgers repeat a date or
     /// month row after row).
     last: Option<([u64; 2], u32)>,
-    groups: HashMap<[u64; 2], u32, BuildHasherDefault<Fx>>,
+    /// Each pair met and its group, hashed by [`mix`].
+    groups: HashTable<([u64; 2], u32)>,
 }
 
 impl Cache {
@@ -177,7 +215,7 @@ impl<'v> Coded<'v> {
                 Some(Cache {
                     keys: keys.clone(),
                     last: None,
-                    groups: HashMap::default(),
+                    groups: HashTable::new(),
                 })
             });
             plans.push(Plan { parts, cache });
@@ -246,10 +284,15 @@ impl<'v> Coded<'v> {
                         let id = match cache.last {
                             Some((p, id)) if p == pair => id,
                             _ => {
-                                let id = *cache
-                                    .groups
-                                    .entry(pair)
-                                    .or_insert_with(|| g.group(keybuf, keys, &row) as u32);
+                                let h = mix(pair);
+                                let id = match cache.groups.find(h, |e| e.0 == pair) {
+                                    Some(e) => e.1,
+                                    None => {
+                                        let id = g.group(keybuf, keys, &row) as u32;
+                                        cache.groups.insert_unique(h, (pair, id), |e| mix(e.0));
+                                        id
+                                    }
+                                };
                                 cache.last = Some((pair, id));
                                 id
                             }
