@@ -21,6 +21,7 @@ mod order;
 pub mod parquet;
 pub mod probe;
 pub mod progress;
+mod quicknum;
 mod record;
 mod split;
 pub mod stats;
