@@ -48,6 +48,8 @@ struct Decoder<'i> {
     missing: Vec<&'i str>,
     last: Vec<(Vec<u8>, Option<Cell<'static>>)>,
     text_done: Vec<bool>,
+    /// Are numbers written plainly (no digit groups, a decimal point)?
+    plain: bool,
 }
 
 impl<'i> Decoder<'i> {
@@ -69,6 +71,16 @@ impl<'i> Decoder<'i> {
             text_done: (0..ncols)
                 .map(|j| input.schema[j].1 != ColType::Text)
                 .collect(),
+            plain: input.spec.numbers.is_plain(),
+        }
+    }
+
+    /// The number a cell holds, in the file's number style.
+    fn number(&self, text: &str) -> Option<f64> {
+        if self.plain {
+            crate::load::parse_number(text)
+        } else {
+            self.input.spec.numbers.parse(text)
         }
     }
 
@@ -85,7 +97,6 @@ impl<'i> Decoder<'i> {
         if suspect && !checked_cells_allowed(self.input.limits, &self.check, field) {
             return false;
         }
-        let numbers = self.input.spec.numbers;
         for &(j, ty) in &self.parsed {
             let Some(text) = field(j) else {
                 return false;
@@ -95,7 +106,7 @@ impl<'i> Decoder<'i> {
             }
             let c = match ty {
                 ColType::Text => Some(Cell::Text(text)),
-                ColType::Number => numbers.parse(text).map(Cell::Number),
+                ColType::Number => self.number(text).map(Cell::Number),
                 ColType::Date | ColType::Month | ColType::Year => {
                     let (seen, cell) = &mut self.last[j];
                     if seen.as_slice() != text.as_bytes() || cell.is_none() {
@@ -113,7 +124,7 @@ impl<'i> Decoder<'i> {
             let Some(c) = c else {
                 return false;
             };
-            if !self.text_done[j] && numbers.parse(text).is_none() {
+            if !self.text_done[j] && self.number(text).is_none() {
                 self.text_done[j] = true;
                 first_text[j] = Some((row, text.to_owned()));
             }
