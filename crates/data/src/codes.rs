@@ -317,18 +317,18 @@ impl<'v> Plan<'v> {
         'v: 'c,
     {
         self.parts.iter_mut().all(|part| match part {
-            Part::Plain(e) => truth(row, *e),
+            Part::Plain(e) => truth(row, e),
             Part::Memo(c, e, memo) => {
                 let code = codes[*c];
                 if code == NONE {
-                    return truth(row, *e);
+                    return truth(row, e);
                 }
                 let i = code as usize;
                 if i >= memo.len() {
                     memo.resize(i + 1, 0);
                 }
                 if memo[i] == 0 {
-                    memo[i] = 1 + u8::from(truth(row, *e));
+                    memo[i] = 1 + u8::from(truth(row, e));
                 }
                 memo[i] == 2
             }
