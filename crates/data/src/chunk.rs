@@ -6,6 +6,7 @@
 use std::io::{ErrorKind, Read};
 use std::ops::Range;
 
+use crate::codes::Coded;
 use crate::files::ReadAt;
 use crate::fold::{states, Sink};
 use crate::load::ReadLimits;
@@ -13,7 +14,7 @@ use crate::model::{Cell, ColType};
 use crate::probe::Watch;
 use crate::record::{forbidden_char, too_long};
 use crate::split::{Index, Next, Records};
-use crate::stream::{add_record, ChunkOut, End, ScanInput};
+use crate::stream::{ChunkOut, End, ScanInput};
 use crate::time::{parse_date, parse_month_or_date, parse_year};
 
 /// Bytes read at a time (a buffer grows when one record is longer).
@@ -47,6 +48,8 @@ struct Decoder<'i> {
     missing: Vec<&'i str>,
     last: Vec<(Vec<u8>, Option<Cell<'static>>)>,
     text_done: Vec<bool>,
+    /// Are numbers written plainly (no digit groups, a decimal point)?
+    plain: bool,
 }
 
 impl<'i> Decoder<'i> {
@@ -68,6 +71,16 @@ impl<'i> Decoder<'i> {
             text_done: (0..ncols)
                 .map(|j| input.schema[j].1 != ColType::Text)
                 .collect(),
+            plain: input.spec.numbers.is_plain(),
+        }
+    }
+
+    /// The number a cell holds, in the file's number style.
+    fn number(&self, text: &str) -> Option<f64> {
+        if self.plain {
+            crate::load::parse_number(text)
+        } else {
+            self.input.spec.numbers.parse(text)
         }
     }
 
@@ -84,7 +97,6 @@ impl<'i> Decoder<'i> {
         if suspect && !checked_cells_allowed(self.input.limits, &self.check, field) {
             return false;
         }
-        let numbers = self.input.spec.numbers;
         for &(j, ty) in &self.parsed {
             let Some(text) = field(j) else {
                 return false;
@@ -94,7 +106,7 @@ impl<'i> Decoder<'i> {
             }
             let c = match ty {
                 ColType::Text => Some(Cell::Text(text)),
-                ColType::Number => numbers.parse(text).map(Cell::Number),
+                ColType::Number => self.number(text).map(Cell::Number),
                 ColType::Date | ColType::Month | ColType::Year => {
                     let (seen, cell) = &mut self.last[j];
                     if seen.as_slice() != text.as_bytes() || cell.is_none() {
@@ -112,7 +124,7 @@ impl<'i> Decoder<'i> {
             let Some(c) = c else {
                 return false;
             };
-            if !self.text_done[j] && numbers.parse(text).is_none() {
+            if !self.text_done[j] && self.number(text).is_none() {
                 self.text_done[j] = true;
                 first_text[j] = Some((row, text.to_owned()));
             }
@@ -155,6 +167,7 @@ pub(crate) fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> Chun
         limits: input.limits,
     };
     let mut decoder = Decoder::new(input);
+    let mut coded = Coded::new(&sink, input.schema, input.parse);
     let mut kept = vec![0usize; input.views.len()];
     let mut scratch: Vec<Cell<'static>> = Vec::with_capacity(ncols);
     let mut keybuf: Vec<u8> = Vec::with_capacity(64);
@@ -210,7 +223,7 @@ pub(crate) fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> Chun
                 return out;
             }
             let views = (&mut out.views[..], &mut out.watches[..]);
-            if !add_record(&sink, &cells, views, &mut kept, &mut keybuf) {
+            if !coded.add(&sink, &cells, views, (&mut kept, &mut keybuf)) {
                 return out;
             }
             scratch = recycle(cells);

@@ -242,7 +242,7 @@ fn select(t: &Table, keeps: &[Expr], n: usize) -> Vec<u32> {
 }
 
 /// The parts of `e` that must all hold (its top-level `and`s split).
-fn conjuncts<'e>(e: &'e Expr, out: &mut Vec<&'e Expr>) {
+pub(crate) fn conjuncts<'e>(e: &'e Expr, out: &mut Vec<&'e Expr>) {
     match e {
         Expr::And(parts) => parts.iter().for_each(|p| conjuncts(p, out)),
         _ => out.push(e),
@@ -250,7 +250,7 @@ fn conjuncts<'e>(e: &'e Expr, out: &mut Vec<&'e Expr>) {
 }
 
 /// The one column `e` reads, if it reads exactly one.
-fn only_column(e: &Expr) -> Option<usize> {
+pub(crate) fn only_column(e: &Expr) -> Option<usize> {
     fn walk(e: &Expr, found: &mut Vec<usize>) {
         match e {
             Expr::Col(c) => found.push(*c),

@@ -392,6 +392,22 @@ impl Groups {
             }
             return;
         }
+        let g = self.group(keybuf, keys, row);
+        self.add_at(g, aggs, row);
+    }
+
+    /// The group of the row's cells in `keys`, created (with empty
+    /// accumulators) when new. Rows waiting in a batch are added first, so
+    /// groups are still numbered in the order their first rows came.
+    pub(crate) fn group<'c>(
+        &mut self,
+        keybuf: &mut Vec<u8>,
+        keys: &[usize],
+        row: &impl Fn(usize) -> Cell<'c>,
+    ) -> usize {
+        if self.pending.as_ref().is_some_and(|p| !p.rows.is_empty()) {
+            self.flush();
+        }
         keybuf.clear();
         for &k in keys {
             encode_key(keybuf, row(k));
@@ -404,6 +420,16 @@ impl Groups {
                 }
             }
         }
+        g
+    }
+
+    /// Add the row's cells of `aggs` to group `g` (see [`Groups::group`]).
+    pub(crate) fn add_at<'c>(
+        &mut self,
+        g: usize,
+        aggs: &[Aggregate],
+        row: &impl Fn(usize) -> Cell<'c>,
+    ) {
         for (acc, a) in self.accs.iter_mut().zip(aggs) {
             acc.add(g, a.column.map_or(Cell::Missing, row));
         }

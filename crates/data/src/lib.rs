@@ -3,6 +3,7 @@
 
 pub mod bucket;
 mod chunk;
+mod codes;
 mod colfold;
 pub mod column;
 pub mod digits;
@@ -21,6 +22,7 @@ mod order;
 pub mod parquet;
 pub mod probe;
 pub mod progress;
+mod quicknum;
 mod record;
 mod split;
 pub mod stats;

@@ -356,6 +356,9 @@ pub fn is_grouped_number(s: &str) -> bool {
 /// and values too large for a finite `f64`.
 pub fn parse_number(s: &str) -> Option<f64> {
     let b = s.as_bytes();
+    if let Some(v) = crate::quicknum::short_decimal(b) {
+        return Some(v);
+    }
     let mut i = 0;
     if i < b.len() && (b[i] == b'+' || b[i] == b'-') {
         i += 1;

@@ -262,29 +262,42 @@ pub(crate) fn add_record(
 ) -> bool {
     let row = |c: usize| cells.get(c).copied().unwrap_or(Cell::Missing);
     for (vi, ((view, state), watch)) in input.views.iter().zip(states).zip(watches).enumerate() {
-        if !watch.passes(&row, &view.keeps) {
-            continue;
+        if watch.passes(&row, &view.keeps) && !add_passed(input, vi, state, (kept, keybuf), &row) {
+            return false;
         }
-        match (state, &view.group) {
-            (ViewState::Groups(g), Some((keys, aggs))) => {
-                g.add(keybuf, (keys, aggs), &row);
-            }
-            (ViewState::Rows(cols), _) => {
-                for (j, col) in cols.iter_mut().enumerate() {
-                    let keep = input.keep_values.get(j).copied().unwrap_or(false);
-                    col.push_cell(if keep { row(j) } else { Cell::Missing });
-                }
-                let n = kept.get_mut(vi).map_or(0, |n| {
-                    *n += 1;
-                    *n
-                });
-                let over_limit = input.limits.rows.is_some_and(|m| n > m);
-                if over_limit || (n.is_multiple_of(8192) && !rows_fit(input.limits, cols)) {
-                    return false;
-                }
-            }
-            _ => return false,
+    }
+    true
+}
+
+/// Add a row that passed the `keep`s of view `vi` to its state `state`;
+/// `false` when the view's kept rows outgrow the limits, or its state does
+/// not fit.
+pub(crate) fn add_passed<'c>(
+    input: &Sink<'_>,
+    vi: usize,
+    state: &mut ViewState,
+    (kept, keybuf): (&mut [usize], &mut Vec<u8>),
+    row: &impl Fn(usize) -> Cell<'c>,
+) -> bool {
+    match (state, &input.views[vi].group) {
+        (ViewState::Groups(g), Some((keys, aggs))) => {
+            g.add(keybuf, (keys, aggs), row);
         }
+        (ViewState::Rows(cols), _) => {
+            for (j, col) in cols.iter_mut().enumerate() {
+                let keep = input.keep_values.get(j).copied().unwrap_or(false);
+                col.push_cell(if keep { row(j) } else { Cell::Missing });
+            }
+            let n = kept.get_mut(vi).map_or(0, |n| {
+                *n += 1;
+                *n
+            });
+            let over_limit = input.limits.rows.is_some_and(|m| n > m);
+            if over_limit || (n.is_multiple_of(8192) && !rows_fit(input.limits, cols)) {
+                return false;
+            }
+        }
+        _ => return false,
     }
     true
 }
