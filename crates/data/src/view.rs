@@ -38,10 +38,10 @@ use std::cmp::Ordering;
 pub(crate) use crate::groups::encode_key;
 use crate::groups::KeyIndex;
 use crate::hash::hash_bytes;
-pub(crate) use crate::sum::Sum;
 use crate::model::{
     AggFn, Aggregate, ArithOp, Cell, CmpOp, ColType, Column, Expr, Step, Table, Value, Values,
 };
+pub(crate) use crate::sum::Sum;
 
 /// Run `steps` in order over `input` and return the resulting table.
 ///
