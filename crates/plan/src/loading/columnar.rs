@@ -1,6 +1,8 @@
 //! Streaming a Parquet file: its row groups, each typed as the whole load
-//! types a file, one at a time through the CSV stream's engine
-//! (`crescendo_data::fold`), so memory grows with the row groups (and the
+//! types a file, through the CSV stream's engine (`crescendo_data::fold`):
+//! after the first, the groups are split into one run of consecutive
+//! groups per core, each run folded on its own thread and the folds merged
+//! in file order. Memory grows with the row groups (and the
 //! rows a `keep`-only view keeps), not with the file. The views' leading
 //! `keep` and `by` steps run per row group; the rest of each view runs on
 //! the small table they give, as for a streamed CSV file.
