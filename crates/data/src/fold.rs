@@ -18,6 +18,24 @@ pub(crate) fn states(views: &[StreamView], ncols: usize) -> Vec<ViewState> {
     views.iter().map(state).collect()
 }
 
+/// Fold each view's state of a later part of the rows into `mine`, view
+/// by view (groups merged, kept rows appended); `false` when two states
+/// are not of one kind.
+pub(crate) fn merge_states(mine: &mut [ViewState], later: Vec<ViewState>) -> bool {
+    for (m, l) in mine.iter_mut().zip(later) {
+        match (m, l) {
+            (ViewState::Groups(x), ViewState::Groups(y)) => x.merge(y),
+            (ViewState::Rows(x), ViewState::Rows(y)) => {
+                for (cx, cy) in x.iter_mut().zip(y) {
+                    cx.extend_from(&cy);
+                }
+            }
+            _ => return false,
+        }
+    }
+    true
+}
+
 /// The views, per column whether kept rows carry its values, the limits.
 #[derive(Clone, Copy)]
 pub(crate) struct Sink<'a> {
@@ -124,6 +142,26 @@ impl<'a> Fold<'a> {
             }
         }
         self.rows += n;
+        true
+    }
+
+    /// Fold in `later`, a fold of the same views over tables that come
+    /// after this one's (row groups read on another thread): as if its
+    /// tables had been added here. `false`: its states do not match.
+    pub fn merge(&mut self, later: Fold<'a>) -> bool {
+        if !merge_states(&mut self.states, later.states) {
+            return false;
+        }
+        for (mine, theirs) in self.fast.iter_mut().zip(&later.fast) {
+            if let (Some(x), Some(y)) = (mine, theirs) {
+                x.merge(y);
+            }
+        }
+        Watch::merge_all(&mut self.watches, later.watches);
+        for (k, l) in self.kept.iter_mut().zip(later.kept) {
+            *k += l;
+        }
+        self.rows += later.rows;
         true
     }
 

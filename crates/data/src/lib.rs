@@ -28,6 +28,7 @@ mod split;
 pub mod stats;
 pub mod store;
 pub mod stream;
+mod sum;
 pub mod time;
 pub mod typed;
 pub mod view;

@@ -48,6 +48,9 @@ use crate::load::{parse_number, Columns, CsvSpec, LoadError, ReadLimits};
 use crate::model::{CmpOp, Expr, Table, Value};
 use crate::typed::{finish, finish_flat, Typed, TypedColumn};
 
+mod parts;
+pub use parts::{fold_groups_from, Parts};
+
 /// Files read here, by name.
 pub fn is_parquet(path: &std::path::Path) -> bool {
     path.extension()

@@ -54,7 +54,7 @@ use std::sync::atomic::{AtomicUsize, Ordering as AtomicOrdering};
 use std::sync::Mutex;
 
 use crate::files::ReadAt;
-use crate::fold::Sink;
+use crate::fold::{merge_states, Sink};
 use crate::groups::Groups;
 use crate::load::{CsvSpec, LoadError, ReadLimits};
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Values};
@@ -335,16 +335,8 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
                 }
                 a.rows += chunk.rows;
                 Watch::merge_all(&mut a.watches, chunk.watches);
-                for (mine, later) in a.views.iter_mut().zip(chunk.views) {
-                    match (mine, later) {
-                        (ViewState::Groups(x), ViewState::Groups(y)) => x.merge(y),
-                        (ViewState::Rows(x), ViewState::Rows(y)) => {
-                            for (cx, cy) in x.iter_mut().zip(y) {
-                                cx.extend_from(&cy);
-                            }
-                        }
-                        _ => return Err(ScanFailure::Fallback),
-                    }
+                if !merge_states(&mut a.views, chunk.views) {
+                    return Err(ScanFailure::Fallback);
                 }
                 a
             }

@@ -9,7 +9,9 @@ use std::path::PathBuf;
 
 use crescendo_data::fold::Fold;
 use crescendo_data::load::ReadLimits;
-use crescendo_data::parquet::{each_group, each_group_from, first_group, load_parquet};
+use crescendo_data::parquet::{
+    each_group, each_group_from, first_group, fold_groups_from, load_parquet, Parts,
+};
 use crescendo_data::stream::StreamView;
 use crescendo_data::{
     run_view, AggFn, Aggregate, CmpOp, ColType, Columns, CsvSpec, Expr, Step, Table, Value,
@@ -174,6 +176,20 @@ fn the_first_group_and_the_rest_are_the_groups_of_one_pass() {
         )
         .expect("rest");
         assert_eq!(rest, all, "keeps: {keeps:?}");
+        // the rest split among the cores: the parts in order are the rest
+        let new = Vec::new;
+        let parts = Parts {
+            first: vec![format!("{first:?}")],
+            new: &new,
+            each: &|part: &mut Vec<String>, t: Table| {
+                part.push(format!("{t:?}"));
+                true
+            },
+        };
+        let read = (&Columns::All, &limits, &keeps[..]);
+        let (parts, split) = fold_groups_from(&s, &file, read, g0 + 1, parts).expect("split");
+        assert_eq!(parts.concat(), all, "keeps: {keeps:?}");
+        assert_eq!(split, after);
         assert_eq!(skipped + after.skipped, one.skipped);
         assert_eq!(1 + after.read, one.read);
         assert_eq!(

@@ -1,6 +1,8 @@
 //! Streaming a Parquet file: its row groups, each typed as the whole load
-//! types a file, one at a time through the CSV stream's engine
-//! (`crescendo_data::fold`), so memory grows with the row groups (and the
+//! types a file, through the CSV stream's engine (`crescendo_data::fold`):
+//! after the first, the groups are split into one run of consecutive
+//! groups per core, each run folded on its own thread and the folds merged
+//! in file order. Memory grows with the row groups (and the
 //! rows a `keep`-only view keeps), not with the file. The views' leading
 //! `keep` and `by` steps run per row group; the rest of each view runs on
 //! the small table they give, as for a streamed CSV file.
@@ -13,7 +15,7 @@
 use std::fs::File;
 
 use crescendo_data::fold::Fold;
-use crescendo_data::parquet::{each_group_from, first_group};
+use crescendo_data::parquet::{first_group, fold_groups_from, Parts};
 use crescendo_data::probe::{Probe, Seen};
 use crescendo_data::stream::StreamView;
 use crescendo_data::{Column, Columns, CsvSpec, Expr, Table, Values};
@@ -68,15 +70,28 @@ pub(crate) fn stream_parquet(
         .map(|c| (c.name.clone(), c.ty))
         .collect();
     let keep_values: Vec<bool> = schema.iter().map(|(n, _)| keep.keeps(n)).collect();
-    let schema_of = schema.clone();
-    let mut fold = Fold::new(&runs, &keep_values, &limits, schema);
+    let new = || Fold::new(&runs, &keep_values, &limits, schema.clone());
+    let mut fold = new();
     if !fold.add(&first) {
         return None;
     }
     drop(first);
-    let mut add = |t: Table| fold.add(&t);
-    let from = g0 + 1;
-    let mut done = each_group_from(spec, file, (keep, &limits, keeps), from, &mut add).ok()?;
+    // the groups after the first split among the cores, each run folded
+    // apart, the folds merged in file order
+    let parts = Parts {
+        first: fold,
+        new: &new,
+        each: &|f: &mut Fold, t: Table| f.add(&t),
+    };
+    let read = (keep, &limits, keeps);
+    let (folds, mut done) = fold_groups_from(spec, file, read, g0 + 1, parts).ok()?;
+    let mut folds = folds.into_iter();
+    let mut fold = folds.next()?;
+    for later in folds {
+        if !fold.merge(later) {
+            return None;
+        }
+    }
     done.skipped += skipped_before;
     if done.stopped || fold.rows() == 0 {
         return None;
@@ -91,7 +106,7 @@ pub(crate) fn stream_parquet(
     }
     let found: Vec<Option<Table>> = fold.finish()?.into_iter().map(Some).collect();
     let all: Vec<usize> = (0..found.len()).collect();
-    let unmatched = probed(cx, &schema_of, views, &all, &probes);
+    let unmatched = probed(cx, &schema, views, &all, &probes);
     if !unmatched.is_empty() {
         let reported = unmatched.into_iter().map(|d| cx.report(d)).last();
         return reported.map(Err);
