@@ -1147,9 +1147,9 @@ mod tests {
     }
 
     #[test]
-    fn a_sum_is_half_a_cache_line() {
-        assert_eq!(std::mem::size_of::<Sum>(), 32);
-        assert_eq!(std::mem::align_of::<Sum>(), 32);
+    fn a_sum_is_forty_bytes() {
+        // three partials inline, the count: a million groups' sums in 40 MB
+        assert_eq!(std::mem::size_of::<Sum>(), 40);
     }
 
     #[test]
