@@ -324,3 +324,32 @@ fn every_misused_chart_option_is_located_with_its_own_label() {
         .collect();
     assert_eq!(got, want, "{errs:#?}");
 }
+
+#[test]
+fn a_locale_or_fiscal_year_given_twice_points_at_both() {
+    let story = "story \"s\"\nlocale \"de-DE\"\nfiscal year starts July\n\
+                 locale \"fr-FR\"\nfiscal year starts April\n\
+                 data sales from \"data.csv\"\n\
+                 frame \"a\" {\n  line sales: x month, y sales, series shop\n}\n";
+    let errs = errors(plan_with("twice", story, SALES));
+    let got: Vec<(&str, Option<(String, usize, usize)>, usize)> = errs
+        .iter()
+        .map(|d| (d.message.as_str(), d.location(), d.secondary.len()))
+        .collect();
+    assert_eq!(
+        got,
+        [
+            (
+                "the story sets its locale twice",
+                Some(("t.cresc".into(), 4, 1)),
+                1
+            ),
+            (
+                "the story says twice when its year starts",
+                Some(("t.cresc".into(), 5, 1)),
+                1
+            ),
+        ],
+        "{errs:#?}"
+    );
+}
