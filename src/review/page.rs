@@ -108,28 +108,18 @@ fn frame(out: &mut String, f: &FrameReview, r: &Review) {
     if f.status == Status::Changed || lint_changed {
         out.push_str("<ul class=\"changes\">");
         for q in &f.figures {
-            let show = |v: &Option<String>| escape(v.as_deref().unwrap_or("—"));
+            let change = q.change.as_ref().map(|c| format!(" ({})", escape(c)));
             let _ = write!(
                 out,
-                "<li><code>{}</code>: <del>{}</del> → <ins>{}</ins>{}</li>",
+                "<li><code>{}</code>: {}{}</li>",
                 escape(&q.name),
-                show(&q.old),
-                show(&q.new),
-                q.change
-                    .as_ref()
-                    .map(|c| format!(" ({})", escape(c)))
-                    .unwrap_or_default()
+                replaced(&q.old, &q.new, "—"),
+                change.unwrap_or_default()
             );
         }
         for t in &f.texts {
-            let show = |v: &Option<String>| escape(v.as_deref().unwrap_or("(none)"));
-            let _ = write!(
-                out,
-                "<li>{}: <del>{}</del> → <ins>{}</ins></li>",
-                t.part,
-                show(&t.old),
-                show(&t.new)
-            );
+            let was = replaced(&t.old, &t.new, "(none)");
+            let _ = write!(out, "<li>{}: {was}</li>", t.part);
         }
         if f.moved {
             out.push_str("<li>moved to another place in the deck</li>");
@@ -181,6 +171,12 @@ fn claim(out: &mut String, c: &ClaimReview) {
         }
     }
     out.push_str("</p>\n");
+}
+
+/// `old` struck out, then `new` (`none` stands for a missing one).
+fn replaced(old: &Option<String>, new: &Option<String>, none: &str) -> String {
+    let show = |v: &Option<String>| escape(v.as_deref().unwrap_or(none));
+    format!("<del>{}</del> → <ins>{}</ins>", show(old), show(new))
 }
 
 /// The page's HTML.
@@ -288,4 +284,22 @@ pub fn write_file(out: &Path, r: &Review) -> Result<(), Diagnostic> {
         let _ = std::fs::remove_file(&tmp);
         err(e)
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::replaced;
+
+    #[test]
+    fn a_replaced_value_is_escaped_and_a_missing_one_named() {
+        let old = Some("a<b".to_string());
+        assert_eq!(
+            replaced(&old, &None, "(none)"),
+            "<del>a&lt;b</del> → <ins>(none)</ins>"
+        );
+        assert_eq!(
+            replaced(&None, &old, "—"),
+            "<del>—</del> → <ins>a&lt;b</ins>"
+        );
+    }
 }

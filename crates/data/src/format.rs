@@ -64,6 +64,19 @@ impl Decimal {
         d
     }
 
+    /// `|v| × 10^shift`, exactly (the decimal point moves; no binary
+    /// product), or `None` for NaN and infinities.
+    fn shifted(v: f64, shift: i64) -> Option<Decimal> {
+        if !v.is_finite() {
+            return None;
+        }
+        let mut d = Decimal::of(v);
+        if !d.is_zero() {
+            d.point += shift;
+        }
+        Some(d)
+    }
+
     /// Drop trailing zero digits and normalise zero to an empty digit list.
     fn trim(&mut self) {
         while self.digits.last() == Some(&0) {
@@ -187,22 +200,16 @@ pub fn number(v: f64, decimals: Option<usize>) -> String {
 /// [`number`] in the crescendo convention whatever the story's locale
 /// (comma groups, `.` for decimals): for text that is parsed again.
 pub fn number_ascii(v: f64, decimals: Option<usize>) -> String {
+    if let Some(places) = decimals {
+        return fixed_ascii(v, 0, places);
+    }
     if !v.is_finite() {
         return NOT_A_NUMBER.to_string();
     }
     let mut d = Decimal::of(v);
-    match decimals {
-        None => {
-            d.round_significant(MAX_SIGNIFICANT);
-            let shown = d.decimals_needed();
-            with_sign(v < 0.0, &d, d.render(shown))
-        }
-        Some(places) => {
-            let places = places.min(MAX_DECIMALS);
-            d.round_decimals(places);
-            with_sign(v < 0.0, &d, d.render(places))
-        }
-    }
+    d.round_significant(MAX_SIGNIFICANT);
+    let shown = d.decimals_needed();
+    with_sign(v < 0.0, &d, d.render(shown))
 }
 
 /// Significant digits the default format keeps (the number policy: a
@@ -216,13 +223,9 @@ pub const DEFAULT_SIGNIFICANT: usize = 3;
 /// prints as `0`: its first significant digit is always kept. Rounding is
 /// half away from zero on the decimal digits.
 pub fn significant_ascii(v: f64, shift: i64, sig: usize) -> String {
-    if !v.is_finite() {
+    let Some(mut d) = Decimal::shifted(v, shift) else {
         return NOT_A_NUMBER.to_string();
-    }
-    let mut d = Decimal::of(v);
-    if !d.is_zero() {
-        d.point += shift;
-    }
+    };
     let sig = sig.clamp(1, MAX_SIGNIFICANT) as i64;
     if d.point >= sig {
         d.round_decimals(0);
@@ -248,13 +251,9 @@ pub fn decimal_point(v: f64) -> i64 {
 /// decimals: `(0.145, 2, 0)` → `"15"`, where the binary product
 /// `0.145 * 100 = 14.499999999999998` would give 14.
 pub fn fixed_ascii(v: f64, shift: i64, decimals: usize) -> String {
-    if !v.is_finite() {
+    let Some(mut d) = Decimal::shifted(v, shift) else {
         return NOT_A_NUMBER.to_string();
-    }
-    let mut d = Decimal::of(v);
-    if !d.is_zero() {
-        d.point += shift;
-    }
+    };
     let places = decimals.min(MAX_DECIMALS);
     d.round_decimals(places);
     with_sign(v < 0.0, &d, d.render(places))

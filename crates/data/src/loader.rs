@@ -508,55 +508,34 @@ impl<'s> Loader<'s> {
     fn header(&mut self, record: &csv::ByteRecord, raw: &RawRecord<'_>) -> Result<(), LoadError> {
         let mut names: Vec<String> = Vec::with_capacity(record.len());
         for (j, cell) in record.iter().enumerate() {
+            // A diagnostic pointing at header field `j`.
+            let at_field = |code: &'static str, message: String, label: &str| {
+                self.located(code, message, raw, field_span(raw.bytes, j), label)
+            };
             let Ok(name) = std::str::from_utf8(cell) else {
-                return Err(LoadError::Csv(
-                    self.located(
-                        "bad-encoding",
-                        format!("header field {} is not valid UTF-8 text", j + 1),
-                        raw,
-                        field_span(raw.bytes, j),
-                        "invalid UTF-8",
-                    )
-                    .help("save the data file as UTF-8"),
-                ));
+                let message = format!("header field {} is not valid UTF-8 text", j + 1);
+                let d = at_field("bad-encoding", message, "invalid UTF-8");
+                return Err(LoadError::Csv(d.help("save the data file as UTF-8")));
             };
             if let Some((_, c)) = forbidden_char(name) {
-                return Err(LoadError::Csv(
-                    self.located(
-                        "bad-character",
-                        format!(
-                            "header field {} holds the control character U+{:04X}",
-                            j + 1,
-                            c as u32
-                        ),
-                        raw,
-                        field_span(raw.bytes, j),
-                        "this column name",
-                    )
-                    .note(CHAR_NOTE)
-                    .help(CHAR_HELP),
-                ));
+                let message = format!(
+                    "header field {} holds the control character U+{:04X}",
+                    j + 1,
+                    c as u32
+                );
+                let d = at_field("bad-character", message, "this column name");
+                return Err(LoadError::Csv(d.note(CHAR_NOTE).help(CHAR_HELP)));
             }
             if name.is_empty() {
+                let message = format!("header field {} has no name", j + 1);
+                let d = at_field("bad-header", message, "empty column name");
                 return Err(LoadError::Csv(
-                    self.located(
-                        "bad-header",
-                        format!("header field {} has no name", j + 1),
-                        raw,
-                        field_span(raw.bytes, j),
-                        "empty column name",
-                    )
-                    .help("give every column a name in the first line of the file"),
+                    d.help("give every column a name in the first line of the file"),
                 ));
             }
             if let Some(first) = names.iter().position(|n| n == name) {
-                let d = self.located(
-                    "bad-header",
-                    format!("column `{name}` appears twice in the header"),
-                    raw,
-                    field_span(raw.bytes, j),
-                    "second column with this name",
-                );
+                let message = format!("column `{name}` appears twice in the header");
+                let d = at_field("bad-header", message, "second column with this name");
                 let first_span = field_span(raw.bytes, first);
                 let src = d.primary.as_ref().map(|p| Arc::clone(&p.source));
                 let d = match src {

@@ -130,29 +130,31 @@ pub fn load_workbook(
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("ods"));
     let reader = BufReader::new(file);
-    let opened = if ods {
-        Ods::new(reader)
-            .map_err(|e| {
-                open_error(
-                    name,
-                    &e.to_string(),
-                    matches!(e, calamine::OdsError::Password),
-                )
-            })
-            .and_then(|mut b| pick(name, &mut b, sheet))
+    let (sheet_name, range) = if ods {
+        open::<_, Ods<_>>(name, reader, sheet, |e| {
+            matches!(e, calamine::OdsError::Password)
+        })
     } else {
-        Xlsx::new(reader)
-            .map_err(|e| {
-                open_error(
-                    name,
-                    &e.to_string(),
-                    matches!(e, calamine::XlsxError::Password),
-                )
-            })
-            .and_then(|mut b| pick(name, &mut b, sheet))
-    };
-    let (sheet_name, range) = opened?;
+        open::<_, Xlsx<_>>(name, reader, sheet, |e| {
+            matches!(e, calamine::XlsxError::Password)
+        })
+    }?;
     read_range(spec, &sheet_name, &range, sheet, columns, limits)
+}
+
+/// Open a workbook of format `R` and pick its sheet; `locked` tells the
+/// opening errors that mean the workbook is protected with a password.
+fn open<RS: Read + Seek, R: Reader<RS>>(
+    name: &str,
+    reader: RS,
+    sheet: &SheetSpec,
+    locked: fn(&R::Error) -> bool,
+) -> Result<(String, Range<Data>), LoadError>
+where
+    R::Error: std::fmt::Display,
+{
+    let mut book = R::new(reader).map_err(|e| open_error(name, &e.to_string(), locked(&e)))?;
+    pick(name, &mut book, sheet)
 }
 
 fn open_error(name: &str, why: &str, password: bool) -> LoadError {

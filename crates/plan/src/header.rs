@@ -231,6 +231,13 @@ impl Header {
     }
 }
 
+/// A statement the story may give once, given `again` after `first`.
+fn twice(src: &Arc<Source>, message: &str, again: &ast::Span, first: &ast::Span) -> Diagnostic {
+    Diagnostic::error("duplicate", message)
+        .at(src, again.clone(), "second one here")
+        .also(src, first.clone(), "first one here")
+}
+
 /// The story's `locale` and `fiscal year starts` statements, checked: an
 /// unknown locale or month, or a statement given twice, is an error.
 pub(crate) fn read_conventions(
@@ -244,11 +251,8 @@ pub(crate) fn read_conventions(
         match item {
             Item::Locale(t) => {
                 if let Some((_, first)) = &locale {
-                    diags.push(
-                        Diagnostic::error("duplicate", "the story sets its locale twice")
-                            .at(src, t.span.clone(), "second one here")
-                            .also(src, first.clone(), "first one here"),
-                    );
+                    let what = "the story sets its locale twice";
+                    diags.push(twice(src, what, &t.span, first));
                     continue;
                 }
                 match crescendo_data::locale::Locale::new(&t.text.value) {
@@ -277,11 +281,8 @@ pub(crate) fn read_conventions(
             }
             Item::Fiscal { month, span } => {
                 if let Some((_, first)) = &fiscal {
-                    diags.push(
-                        Diagnostic::error("duplicate", "the story says twice when its year starts")
-                            .at(src, span.clone(), "second one here")
-                            .also(src, first.clone(), "first one here"),
-                    );
+                    let what = "the story says twice when its year starts";
+                    diags.push(twice(src, what, span, first));
                     continue;
                 }
                 match time::month_from_name(&month.name) {

@@ -95,7 +95,8 @@ pub(crate) fn view_item(cx: &mut Ctx, tables: &mut Tables, v: &ast::ViewDecl) {
     }
     let built = tables.named(cx, &v.input).and_then(|input| {
         let src = cx.src;
-        let built = cx.collect(|diags| build_view(src, v, tables, input, diags))?;
+        let prefix = tables.prefix_of(v, input);
+        let built = cx.collect(|diags| build_view(src, v, tables, input, diags, prefix))?;
         Ok((built, input.root.clone()))
     });
     match built {

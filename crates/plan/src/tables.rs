@@ -68,6 +68,16 @@ fn grouped(t: &str) -> String {
 }
 
 impl Tables {
+    /// The prefix of view `decl` computed while its data item `input` was
+    /// read (see `loading/`), if it was streamed.
+    pub(crate) fn prefix_of(&self, decl: &ast::ViewDecl, input: &Named) -> Option<&Streamed> {
+        if input.is_data && input.root == decl.input.name {
+            self.streamed.get(&decl.name.name)
+        } else {
+            None
+        }
+    }
+
     /// Why a column is text rather than number: the first cell of the same
     /// column in the table's data that is not a number, as a note such as
     /// "`riders` was read as text: data row 14 of `trips` holds `n/a`".

@@ -290,3 +290,60 @@ fn table_headings_are_checked() {
         "{errs:#?}"
     );
 }
+
+#[test]
+fn every_misused_chart_option_is_located_with_its_own_label() {
+    let story = "story \"s\"\ndata sales from \"data.csv\"\n\
+                 frame \"a\" {\n  bars sales: category shop, value sales, x month\n}\n\
+                 frame \"b\" {\n  bars sales: category shop, value sales, ordered, ordered\n}\n\
+                 frame \"c\" {\n  bars sales: category, value sales\n}\n\
+                 frame \"d\" {\n  bars sales: category shop, value sales, ordered shop\n}\n\
+                 frame \"e\" {\n  bars sales: category shop, value sales \"Units\"\n}\n";
+    let errs = errors(plan_with("option-misuse", story, SALES));
+    let got: Vec<(String, usize, usize, String)> = errs
+        .iter()
+        .map(|d| {
+            let (_, line, col) = d.location().expect("located");
+            let label = d
+                .primary
+                .as_ref()
+                .map_or(String::new(), |p| p.label.clone());
+            (d.message.clone(), line, col, label)
+        })
+        .collect();
+    let want = [
+        ("`x` is not an option of bars", 4, 43, "not allowed here"),
+        ("`ordered` is given twice", 7, 52, "again here"),
+        ("`category` needs a column name", 10, 15, "which column?"),
+        ("`ordered` takes no column", 13, 51, "remove this"),
+        ("`value` takes no text", 16, 42, "remove this"),
+    ];
+    let want: Vec<(String, usize, usize, String)> = want
+        .iter()
+        .map(|(m, l, c, s)| (m.to_string(), *l, *c, s.to_string()))
+        .collect();
+    assert_eq!(got, want, "{errs:#?}");
+}
+
+#[test]
+fn a_locale_or_fiscal_year_given_twice_points_at_both() {
+    let story = "story \"s\"\nlocale \"de-DE\"\nfiscal year starts July\n\
+                 locale \"fr-FR\"\nfiscal year starts April\n\
+                 data sales from \"data.csv\"\n\
+                 frame \"a\" {\n  line sales: x month, y sales, series shop\n}\n";
+    let errs = errors(plan_with("twice", story, SALES));
+    let messages: Vec<&str> = errs.iter().map(|d| d.message.as_str()).collect();
+    assert_eq!(
+        messages,
+        [
+            "the story sets its locale twice",
+            "the story says twice when its year starts"
+        ]
+    );
+    // each at the second statement (line, column), pointing back at the first
+    let places: Vec<_> = errs
+        .iter()
+        .map(|d| (d.location().map(|(_, l, c)| (l, c)), d.secondary.len()))
+        .collect();
+    assert_eq!(places, [(Some((4, 1)), 1), (Some((5, 1)), 1)], "{errs:#?}");
+}

@@ -58,8 +58,7 @@ impl FormPlanner for Bars {
             value,
             bars,
         });
-        let mut anchors = spec::anchors(c, spec);
-        anchors.x_is_text = xcol.ty == ColType::Text;
+        let mut anchors = spec::category_anchors(c, spec);
         anchors.orientation = c
             .opts
             .iter()

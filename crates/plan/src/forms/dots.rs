@@ -1,7 +1,6 @@
 //! Dot plots: a dot per category (and per series), on a value axis that
 //! need not start at zero.
 
-use crescendo_data::ColType;
 use crescendo_lang::ast::{ChartStmt, OptName};
 
 use crate::context::{Ctx, Outcome};
@@ -67,8 +66,7 @@ impl FormPlanner for Dots {
             series: grid.parts(),
             rows,
         });
-        let mut anchors = spec::anchors(c, spec);
-        anchors.x_is_text = t.columns[spec.x].ty == ColType::Text;
+        let anchors = spec::category_anchors(c, spec);
         Ok(spec.state(chart, names, key_name, anchors))
     }
 }

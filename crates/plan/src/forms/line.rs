@@ -111,8 +111,7 @@ impl FormPlanner for Line {
             annotations: Vec::new(),
             end_labels: false,
         });
-        let mut anchors = spec::anchors(c, spec);
-        anchors.x_is_text = xcol.ty == ColType::Text;
+        let anchors = spec::category_anchors(c, spec);
         Ok(spec.state(
             chart,
             names,

@@ -3,7 +3,8 @@
 //! column missing or one too many are reported from the table, not from
 //! code written per form.
 
-use crescendo_lang::ast::{ChartOpt, Ident, OptName};
+use crescendo_diag::Diagnostic;
+use crescendo_lang::ast::{ChartOpt, Ident, OptName, Span};
 
 use crate::context::{Ctx, Outcome};
 
@@ -75,6 +76,12 @@ impl<'c> Chosen<'c> {
     }
 }
 
+/// An error about the use of option `o` ("`NAME` WHAT"), at `span`.
+fn misuse(cx: &Ctx, o: &ChartOpt, what: &str, span: &Span, label: &str) -> Diagnostic {
+    let message = format!("`{}` {what}", o.name.keyword());
+    cx.at("chart-option", message, span.clone(), label)
+}
+
 /// Check the options of a chart statement of form `form` against the
 /// form's table `accepted`; reports every problem, then fails.
 pub(crate) fn choose<'c>(
@@ -88,13 +95,8 @@ pub(crate) fn choose<'c>(
     for o in opts {
         let Some(rule) = accepted.iter().find(|a| a.name == o.name) else {
             let names: Vec<&str> = accepted.iter().map(|a| a.name.keyword()).collect();
-            let d = cx
-                .at(
-                    "chart-option",
-                    format!("`{}` is not an option of {form}", o.name.keyword()),
-                    o.span.clone(),
-                    "not allowed here",
-                )
+            let what = format!("is not an option of {form}");
+            let d = misuse(cx, o, &what, &o.span, "not allowed here")
                 .note(format!("{form} takes: {}", names.join(", ")));
             cx.report(d);
             continue;
@@ -108,54 +110,21 @@ pub(crate) fn choose<'c>(
             chosen.has(o.name)
         };
         if again {
-            cx.error(
-                "chart-option",
-                format!("`{}` is given twice", o.name.keyword()),
-                o.span.clone(),
-                "again here",
-            );
+            cx.report(misuse(cx, o, "is given twice", &o.span, "again here"));
             continue;
         }
-        match (&o.column, rule.column) {
-            (None, true) => {
-                cx.error(
-                    "chart-option",
-                    format!("`{}` needs a column name", o.name.keyword()),
-                    o.span.clone(),
-                    "which column?",
-                );
+        let d = match (&o.column, rule.column, &o.text, rule.text) {
+            (None, true, ..) => misuse(cx, o, "needs a column name", &o.span, "which column?"),
+            (Some(col), false, ..) => misuse(cx, o, "takes no column", &col.span, "remove this"),
+            (_, _, None, true) => misuse(cx, o, "needs its text in quotes", &o.span, "which text?")
+                .help(format!("write `{} COLUMN \"Text\"`", o.name.keyword())),
+            (_, _, Some(t), false) => misuse(cx, o, "takes no text", &t.span, "remove this"),
+            _ => {
+                chosen.given.push((o.name, o.column.as_ref()));
+                continue;
             }
-            (Some(col), false) => {
-                cx.error(
-                    "chart-option",
-                    format!("`{}` takes no column", o.name.keyword()),
-                    col.span.clone(),
-                    "remove this",
-                );
-            }
-            _ => match (&o.text, rule.text) {
-                (None, true) => {
-                    let d = cx
-                        .at(
-                            "chart-option",
-                            format!("`{}` needs its text in quotes", o.name.keyword()),
-                            o.span.clone(),
-                            "which text?",
-                        )
-                        .help(format!("write `{} COLUMN \"Text\"`", o.name.keyword()));
-                    cx.report(d);
-                }
-                (Some(t), false) => {
-                    cx.error(
-                        "chart-option",
-                        format!("`{}` takes no text", o.name.keyword()),
-                        t.span.clone(),
-                        "remove this",
-                    );
-                }
-                _ => chosen.given.push((o.name, o.column.as_ref())),
-            },
-        }
+        };
+        cx.report(d);
     }
     cx.errors_since(cp)?;
     Ok(chosen)

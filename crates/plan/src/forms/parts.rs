@@ -1,6 +1,6 @@
 //! Stacked and grouped bars: each category's bar split into parts.
 
-use crescendo_data::{stats, ColType};
+use crescendo_data::stats;
 use crescendo_lang::ast::ChartStmt;
 
 use crate::context::{Ctx, Outcome};
@@ -73,8 +73,7 @@ pub(crate) fn chart(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Se
         parts: grid.parts(),
         categories,
     });
-    let mut anchors = spec::anchors(c, spec);
-    anchors.x_is_text = t.columns[spec.x].ty == ColType::Text;
+    let mut anchors = spec::category_anchors(c, spec);
     anchors.orientation_by_rule = Some(by_rule);
     Ok(spec.state(chart, grid.keys, key_name, anchors))
 }

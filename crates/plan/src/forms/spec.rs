@@ -212,3 +212,12 @@ pub(crate) fn anchors(c: &ChartStmt, spec: &ChartSpec) -> FrameAnchors {
         ..FrameAnchors::default()
     }
 }
+
+/// [`anchors`] of a chart over the categories of column `spec.x`: whether
+/// they are texts.
+pub(crate) fn category_anchors(c: &ChartStmt, spec: &ChartSpec) -> FrameAnchors {
+    FrameAnchors {
+        x_is_text: spec.table.columns[spec.x].ty == ColType::Text,
+        ..anchors(c, spec)
+    }
+}

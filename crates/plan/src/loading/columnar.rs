@@ -12,19 +12,17 @@
 //! held only months) or any problem in the file falls back to the whole
 //! load, which gives the same tables or reports the problem, located.
 
-use std::fs::File;
-
 use crescendo_data::fold::Fold;
 use crescendo_data::parquet::{first_group, fold_groups_from, Parts};
 use crescendo_data::probe::{Probe, Seen};
 use crescendo_data::stream::StreamView;
-use crescendo_data::{Column, Columns, CsvSpec, Expr, Table, Values};
-use crescendo_lang::ast::{self, StepAst};
+use crescendo_data::{Column, Columns, Expr, Table, Values};
+use crescendo_lang::ast::StepAst;
 
 use crate::context::{Ctx, Outcome};
 use crate::loading::facts::prefix_len;
 use crate::loading::state::Loader;
-use crate::loading::stream::{prefixes, probed, record};
+use crate::loading::stream::{prefixes, probed, record, StreamItem};
 use crate::tables::Tables;
 
 /// Stream a Parquet data item; the item's table without rows and the row
@@ -35,11 +33,10 @@ pub(crate) fn stream_parquet(
     cx: &mut Ctx,
     loader: &mut Loader,
     tables: &mut Tables,
-    (decl, spec, file): (&ast::DataDecl, &CsvSpec, &File),
-    views: &[ast::ViewDecl],
+    item: &StreamItem,
     (keep, keeps): (&Columns, &[Expr]),
 ) -> Option<Outcome<(Table, usize)>> {
-    let keep_only = views.iter().any(|v| {
+    let keep_only = item.views.iter().any(|v| {
         let n = prefix_len(&v.steps);
         !v.steps[..n].iter().any(|s| matches!(s, StepAst::By { .. }))
     });
@@ -50,7 +47,8 @@ pub(crate) fn stream_parquet(
     let limits = loader.limits.clone();
     // The first row group that holds rows gives the column types; it is
     // folded first, then the groups after it.
-    let (g0, first, skipped_before) = first_group(spec, file, (keep, &limits, keeps)).ok()??;
+    let (g0, first, skipped_before) =
+        first_group(item.spec, item.file, (keep, &limits, keeps)).ok()??;
     let shell = Table {
         columns: first
             .columns
@@ -62,7 +60,7 @@ pub(crate) fn stream_parquet(
             })
             .collect(),
     };
-    let prefixes = prefixes(cx, tables, decl, &shell, views, None)?;
+    let prefixes = prefixes(cx, tables, item.decl, &shell, item.views, None)?;
     let runs: Vec<StreamView> = prefixes.iter().map(|p| p.run.clone()).collect();
     let schema: Vec<_> = shell
         .columns
@@ -84,7 +82,7 @@ pub(crate) fn stream_parquet(
         each: &|f: &mut Fold, t: Table| f.add(&t),
     };
     let read = (keep, &limits, keeps);
-    let (folds, mut done) = fold_groups_from(spec, file, read, g0 + 1, parts).ok()?;
+    let (folds, mut done) = fold_groups_from(item.spec, item.file, read, g0 + 1, parts).ok()?;
     let mut folds = folds.into_iter();
     let mut fold = folds.next()?;
     for later in folds {
@@ -106,7 +104,7 @@ pub(crate) fn stream_parquet(
     }
     let found: Vec<Option<Table>> = fold.finish()?.into_iter().map(Some).collect();
     let all: Vec<usize> = (0..found.len()).collect();
-    let unmatched = probed(cx, &schema, views, &all, &probes);
+    let unmatched = probed(cx, &schema, item.views, &all, &probes);
     if !unmatched.is_empty() {
         let reported = unmatched.into_iter().map(|d| cx.report(d)).last();
         return reported.map(Err);

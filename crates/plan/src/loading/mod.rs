@@ -74,6 +74,7 @@ use crate::tables::Tables;
 
 pub use state::LoadReport;
 pub(crate) use state::Loader;
+use stream::StreamItem;
 
 impl Loader {
     /// Load one `data` item: streamed (its views' prefixes computed, the
@@ -109,19 +110,18 @@ impl Loader {
         };
         let name = decl.name.name.clone();
         let clause = decl.sheet.is_some() || decl.cells.is_some();
+        let views = self.facts.streamable.get(&name).cloned();
+        let item = views.as_deref().map(|views| StreamItem {
+            decl,
+            spec: &spec,
+            file: &file,
+            views,
+        });
         if crescendo_data::parquet::is_parquet(&spec.path) && !clause {
-            let views = self.facts.streamable.get(&name);
-            let keeps = skip::first_keeps(cx.src, &spec, &file, &keep, views);
-            if let Some(views) = views.cloned() {
-                let read = (decl, &spec, &file);
-                let streamed = columnar::stream_parquet(
-                    cx,
-                    self,
-                    tables,
-                    read,
-                    &views,
-                    (&keep, keeps.as_slice()),
-                );
+            let keeps = skip::first_keeps(cx.src, &spec, &file, &keep, views.as_ref());
+            if let Some(item) = &item {
+                let streamed =
+                    columnar::stream_parquet(cx, self, tables, item, (&keep, keeps.as_slice()));
                 if let Some(streamed) = streamed {
                     let (shell, n) = streamed?;
                     if n > 0 {
@@ -151,10 +151,8 @@ impl Loader {
             self.report.loaded.push(name);
             return files::reported(cx, decl, read);
         }
-        if let Some(views) = self.facts.streamable.get(&name).cloned() {
-            let read = (decl, &spec, &file);
-            let streamed = stream::stream(cx, self, tables, read, &views, &keep);
-            if let Some(table) = streamed {
+        if let Some(item) = &item {
+            if let Some(table) = stream::stream(cx, self, tables, item, &keep) {
                 self.report.streamed.push(name);
                 return table;
             }

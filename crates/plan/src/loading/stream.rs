@@ -158,6 +158,15 @@ pub(crate) fn prefixes(
     Some(out)
 }
 
+/// A data item to stream: its declaration, read spec and open file, and
+/// the views over it whose prefixes the pass computes.
+pub(crate) struct StreamItem<'a> {
+    pub(crate) decl: &'a ast::DataDecl,
+    pub(crate) spec: &'a CsvSpec,
+    pub(crate) file: &'a File,
+    pub(crate) views: &'a [ast::ViewDecl],
+}
+
 /// Stream a data item. `None`: load it whole instead (a problem in the
 /// file, a wrong type guess, or a view that does not check); `Some(Err)`:
 /// the file could not be read (reported).
@@ -165,28 +174,27 @@ pub(crate) fn stream(
     cx: &mut Ctx,
     loader: &mut Loader,
     tables: &mut Tables,
-    (decl, spec, file): (&ast::DataDecl, &CsvSpec, &File),
-    views: &[ast::ViewDecl],
+    item: &StreamItem,
     keep: &Columns,
 ) -> Option<Outcome<Table>> {
-    let (parse, keep_key) = parsed(spec, views, keep)?;
+    let (parse, keep_key) = parsed(item.spec, item.views, keep)?;
     let data_key = match cx.io.cache() {
         Some(c) => {
             // an unreadable file: let the load report it
-            let content = c.content_hash(&spec.path, file).ok()?;
+            let content = c.content_hash(&item.spec.path, item.file).ok()?;
             Some(hash_hex(&[
                 &FORMAT.to_le_bytes(),
                 content.as_bytes(),
-                format!("{:?}", spec.declared).as_bytes(),
-                format!("{:?}", spec.missing).as_bytes(),
-                format!("{:?}", spec.numbers).as_bytes(),
+                format!("{:?}", item.spec.declared).as_bytes(),
+                format!("{:?}", item.spec.missing).as_bytes(),
+                format!("{:?}", item.spec.numbers).as_bytes(),
                 format!("{parse:?}").as_bytes(),
                 keep_key.as_bytes(),
             ]))
         }
         None => None,
     };
-    let read = (spec, file, &loader.limits);
+    let read = (item.spec, item.file, &loader.limits);
     let (entry, known) = data_entry(cx, read, &parse, data_key.as_deref())?;
     let shell = Table {
         columns: entry
@@ -199,7 +207,14 @@ pub(crate) fn stream(
             })
             .collect(),
     };
-    let prefixes = prefixes(cx, tables, decl, &shell, views, data_key.as_deref())?;
+    let prefixes = prefixes(
+        cx,
+        tables,
+        item.decl,
+        &shell,
+        item.views,
+        data_key.as_deref(),
+    )?;
     let mut found: Vec<Option<Table>> = prefixes
         .iter()
         .map(|p| match (&p.key, known) {
@@ -214,10 +229,10 @@ pub(crate) fn stream(
         let tables_read = match scanned {
             Ok(Some(t)) => t,
             Ok(None) => return None,
-            Err(e) => return Some(files::reported(cx, decl, Err(*e))),
+            Err(e) => return Some(files::reported(cx, item.decl, Err(*e))),
         };
         first_text = tables_read.0;
-        let unmatched = probed(cx, &entry.schema, views, &missing, &tables_read.2);
+        let unmatched = probed(cx, &entry.schema, item.views, &missing, &tables_read.2);
         if !unmatched.is_empty() {
             let reported = unmatched.into_iter().map(|d| cx.report(d)).last();
             return reported.map(Err);
@@ -236,7 +251,7 @@ pub(crate) fn stream(
             put(cx.io.cache(), "data", k, &e);
         }
     }
-    let name = &decl.name.name;
+    let name = &item.decl.name.name;
     for (j, t) in first_text.iter().enumerate() {
         if let (Some((row, text)), Some((col, _))) = (t, entry.schema.get(j)) {
             tables

@@ -24,36 +24,20 @@ pub(crate) struct Built {
     pub(crate) rest: Option<String>,
     /// Its columns that count rows (see [`Named::counts`]).
     pub(crate) counts: BTreeSet<String>,
+    /// Its steps, resolved.
+    pub(crate) steps: Vec<Step>,
 }
 
-/// Type-check one view's steps against its input and run them.
+/// Type-check one view's steps against its input and run them; `prefix`
+/// is the table of a prefix computed during the read, used in place of
+/// running those steps (see [`Tables::prefix_of`]).
 pub(crate) fn build_view(
     src: &Arc<Source>,
     decl: &ast::ViewDecl,
     tables: &Tables,
     input: &Named,
     diags: &mut Vec<Diagnostic>,
-) -> Option<Built> {
-    // A view over a streamed data item: its prefix was computed while the
-    // file was read (see `loading/`).
-    let prefix = if input.is_data && input.root == decl.input.name {
-        tables.streamed.get(&decl.name.name)
-    } else {
-        None
-    };
-    build_view_with(src, decl, tables, input, diags, prefix, &mut Vec::new())
-}
-
-/// [`build_view`], with the table of a computed prefix to use in place of
-/// running it, and the resolved steps in `resolved`.
-pub(crate) fn build_view_with(
-    src: &Arc<Source>,
-    decl: &ast::ViewDecl,
-    tables: &Tables,
-    input: &Named,
-    diags: &mut Vec<Diagnostic>,
     prefix: Option<&Streamed>,
-    resolved: &mut Vec<Step>,
 ) -> Option<Built> {
     let why = |col: &str| tables.why_text(&decl.input.name, col);
     let place = format!("at this step of `{}`", decl.name.name);
@@ -61,6 +45,7 @@ pub(crate) fn build_view_with(
         table: input.table.clone(),
         rest: input.rest.clone(),
         counts: input.counts.clone(),
+        steps: Vec::new(),
     };
     for (index, step_ast) in decl.steps.iter().enumerate() {
         let schema = schema_of(&built.table);
@@ -109,7 +94,7 @@ pub(crate) fn build_view_with(
                     .retain(|c| table.columns.iter().any(|t| t.name == *c));
                 // A prefix computed in the database may end with `columns`.
                 if let Some(p) = ends {
-                    built.table = prefix_table(decl, p, resolved, diags)?;
+                    built.table = prefix_table(decl, p, &built.steps, diags)?;
                 }
             }
             Checked::Step(step) => {
@@ -125,9 +110,9 @@ pub(crate) fn build_view_with(
                     }
                 }
                 note(&mut built, &step);
-                resolved.push(step.clone());
+                built.steps.push(step.clone());
                 built.table = match ends {
-                    Some(p) => prefix_table(decl, p, resolved, diags)?,
+                    Some(p) => prefix_table(decl, p, &built.steps, diags)?,
                     None => data::run_view(&built.table, std::slice::from_ref(&step)),
                 };
                 // a sum too large for a number, streamed or computed here
@@ -160,9 +145,8 @@ pub(crate) fn resolved_quietly(
         counts: BTreeSet::new(),
     };
     let mut scratch = Vec::new();
-    let mut steps = Vec::new();
-    build_view_with(src, v, tables, &named, &mut scratch, None, &mut steps)?;
-    scratch.is_empty().then_some(steps)
+    let built = build_view(src, v, tables, &named, &mut scratch, None)?;
+    scratch.is_empty().then_some(built.steps)
 }
 
 /// What a step changes besides the table: the columns that count rows,
@@ -246,8 +230,9 @@ mod tests {
             },
         );
         let mut diags = Vec::new();
-        let out =
-            build_view(&src, view, &tables, &tables.by_name["d"], &mut diags).map(|b| b.table);
+        let input = &tables.by_name["d"];
+        let prefix = tables.prefix_of(view, input);
+        let out = build_view(&src, view, &tables, input, &mut diags, prefix).map(|b| b.table);
         (out, diags)
     }
 

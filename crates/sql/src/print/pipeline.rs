@@ -157,12 +157,7 @@ pub fn pipeline(from: &From, order: &RowOrder, cols: &[SrcColumn], pieces: &[Pie
     if later.is_empty() {
         return prefix_steps(from, order, cols, &head);
     }
-    let (mut p, inner, preds, group) = start(order, cols, &head);
-    let filter = if preds.is_empty() {
-        String::new()
-    } else {
-        format!(" WHERE {}", preds.join(" AND "))
-    };
+    let (mut p, inner, filter, group) = start(order, cols, &head);
     let source = format!(
         "(SELECT {} FROM {}) AS s",
         inner.join(", "),

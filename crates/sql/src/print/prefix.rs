@@ -30,12 +30,13 @@ pub fn prefix(
 }
 
 /// The start of every query: the printer over the source's columns, the
-/// inner select list (`c0`, `c1`, …, `r`), the leading `keep`s (as
-/// predicates; `add` columns are inlined) and the first group, if any.
+/// inner select list (`c0`, `c1`, …, `r`), the leading `keep`s (as a
+/// `WHERE` clause with its leading space, empty when there is none; `add`
+/// columns are inlined) and the first group, if any.
 pub(super) type Start = (
     Printer,
     Vec<String>,
-    Vec<String>,
+    String,
     Option<(Vec<usize>, Vec<Aggregate>)>,
 );
 
@@ -114,7 +115,12 @@ pub(super) fn start(order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Sta
             Step::Sort { .. } | Step::Top { .. } => break,
         }
     }
-    (p, inner, preds, group)
+    let filter = if preds.is_empty() {
+        String::new()
+    } else {
+        format!(" WHERE {}", preds.join(" AND "))
+    };
+    (p, inner, filter, group)
 }
 
 /// Print a view prefix made of `keep` and `add` steps, then at most one
@@ -122,7 +128,7 @@ pub(super) fn start(order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Sta
 /// column is its expression, inlined where it is used (its parameters are
 /// shared, not bound twice).
 pub fn prefix_steps(from: &From, order: &RowOrder, cols: &[SrcColumn], steps: &[Step]) -> Query {
-    let (p, inner, preds, group) = start(order, cols, steps);
+    let (p, inner, filter, group) = start(order, cols, steps);
     let group = group.as_ref().map(|(k, a)| (k.as_slice(), a.as_slice()));
     let mut outputs = Vec::new();
     let mut select = Vec::new();
@@ -193,17 +199,10 @@ pub fn prefix_steps(from: &From, order: &RowOrder, cols: &[SrcColumn], steps: &[
             }
             if !keys.is_empty() {
                 let ks: Vec<String> = keys.iter().map(|&k| p.key(k)).collect();
-                let ties: Vec<String> = keys
-                    .iter()
-                    .map(|&k| match p.col_ty(k) {
-                        ColType::Number => format!("{} NULLS LAST", p.key(k)),
-                        _ => format!("{} NULLS LAST", p.sortable(k)),
-                    })
-                    .collect();
                 tail = format!(
-                    " GROUP BY {} ORDER BY min(s.r) NULLS LAST, {}",
+                    " GROUP BY {} ORDER BY {}",
                     ks.join(", "),
-                    ties.join(", ")
+                    p.group_order(keys)
                 );
             }
         }
@@ -221,11 +220,6 @@ pub fn prefix_steps(from: &From, order: &RowOrder, cols: &[SrcColumn], steps: &[
     if select.is_empty() {
         select.push("NULL::text".to_string());
     }
-    let filter = if preds.is_empty() {
-        String::new()
-    } else {
-        format!(" WHERE {}", preds.join(" AND "))
-    };
     let sql = format!(
         "SELECT {} FROM (SELECT {} FROM {}) AS s{filter}{tail}",
         select.join(", "),
