@@ -40,52 +40,85 @@ pub(crate) struct Row {
     pub keep_left: bool,
 }
 
-/// The tick labels of `axis` in a column, right-aligned at `right`, each
-/// centred on its position `at(value)`, thinned 2 px apart.
+/// Where the tick labels of an axis go.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) enum Place {
+    /// In a column, right-aligned at `right`, each centred on its
+    /// position, thinned 2 px apart.
+    Column { right: f64 },
+    /// In a row, centred under their positions, the outermost moved inside
+    /// `row.lo..row.hi`, thinned `row.gap` apart. The group records the
+    /// width of every label the axis asked for.
+    Row(Row),
+}
+
+/// The tick labels of `axis` at their positions `at(value)`, placed as
+/// `place` says.
 #[allow(clippy::too_many_arguments)]
-pub(crate) fn column(
+pub(crate) fn ticks(
     canvas: &Canvas,
     obstacles: &mut Obstacles,
     theme: &Theme,
     size: f64,
     axis: &Axis,
     at: impl Fn(f64) -> f64,
-    right: f64,
+    place: Place,
 ) -> Result<(), RenderError> {
-    let lh = line_height(size);
     let ticks = layout::visible_ticks(axis);
-    let spans: Vec<(f64, f64)> = ticks
-        .iter()
-        .map(|(v, _)| (at(*v) - lh / 2.0, at(*v) + lh / 2.0))
+    let row = match place {
+        Place::Row(row) => row,
+        Place::Column { right } => {
+            let lh = line_height(size);
+            let spans: Vec<(f64, f64)> = ticks
+                .iter()
+                .map(|(v, _)| (at(*v) - lh / 2.0, at(*v) + lh / 2.0))
+                .collect();
+            for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
+                if keep {
+                    let top = at(*v) - lh / 2.0;
+                    let label = muted_label(theme, size, text, right, top, Align::End);
+                    kit::put(canvas, obstacles, &label)?;
+                }
+            }
+            return Ok(());
+        }
+    };
+    let wanted = (ticks.iter())
+        .map(|(_, text)| text_width(text, size, false))
         .collect();
-    for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
-        if keep {
-            let label = muted_label(theme, size, text, right, at(*v) - lh / 2.0, Align::End);
-            kit::put(canvas, obstacles, &label)?;
+    let placed = in_row(ticks, size, at, row);
+    let spans: Vec<(f64, f64)> = placed
+        .iter()
+        .map(|(c, w, _, _)| (c - w / 2.0, c + w / 2.0))
+        .collect();
+    let keep = layout::thin(&spans, row.gap);
+    canvas.group(Part::XTicks { wanted }, || {
+        for ((c, _, text, _), keep) in placed.iter().zip(&keep) {
+            if *keep {
+                let label = muted_label(theme, size, text, *c, row.top, Align::Middle);
+                kit::put(canvas, obstacles, &label)?;
+            }
+        }
+        Ok(())
+    })?;
+    // a tick label cut to its room is noted for the lint
+    for ((_, _, text, full), keep) in placed.iter().zip(&keep) {
+        if *keep {
+            crate::fit::note(canvas, full, std::slice::from_ref(text))?;
         }
     }
     Ok(())
 }
 
-/// The tick labels of `axis` in a row, centred under their positions
-/// `at(value)`, the outermost moved inside `row.lo..row.hi`, thinned
-/// `row.gap` apart. The group records the width of every label the axis
-/// asked for.
-#[allow(clippy::too_many_arguments)]
-pub(crate) fn row(
-    canvas: &Canvas,
-    obstacles: &mut Obstacles,
-    theme: &Theme,
+/// Each tick label fitted as `row.fit` says and centred under its
+/// position, moved inside the row: `(centre, width, text, full text)`.
+fn in_row(
+    ticks: Vec<(f64, String)>,
     size: f64,
-    axis: &Axis,
     at: impl Fn(f64) -> f64,
     row: Row,
-) -> Result<(), RenderError> {
-    let ticks = layout::visible_ticks(axis);
-    let wanted = (ticks.iter())
-        .map(|(_, text)| text_width(text, size, false))
-        .collect();
-    let placed: Vec<(f64, f64, String, String)> = ticks
+) -> Vec<(f64, f64, String, String)> {
+    ticks
         .into_iter()
         .map(|(v, full)| {
             let text = full.clone();
@@ -112,28 +145,7 @@ pub(crate) fn row(
             let centre = at(v).max(row.lo + w / 2.0).min(hi - w / 2.0);
             (centre, w, text, full)
         })
-        .collect();
-    let spans: Vec<(f64, f64)> = placed
-        .iter()
-        .map(|(c, w, _, _)| (c - w / 2.0, c + w / 2.0))
-        .collect();
-    let keep = layout::thin(&spans, row.gap);
-    canvas.group(Part::XTicks { wanted }, || {
-        for ((c, _, text, _), keep) in placed.iter().zip(&keep) {
-            if *keep {
-                let label = muted_label(theme, size, text, *c, row.top, Align::Middle);
-                kit::put(canvas, obstacles, &label)?;
-            }
-        }
-        Ok(())
-    })?;
-    // a tick label cut to its room is noted for the lint
-    for ((_, _, text, full), keep) in placed.iter().zip(&keep) {
-        if *keep {
-            crate::fit::note(canvas, full, std::slice::from_ref(text))?;
-        }
-    }
-    Ok(())
+        .collect()
 }
 
 /// Geometry of a plain x/y plot: y ticks right-aligned at the left, an
@@ -288,7 +300,10 @@ pub(crate) fn draw_xy_axes(
     let ymap = |v: f64| map(v, y.domain, l.plot_bottom, l.plot_top);
     let xmap = |v: f64| map(v, x.domain, l.plot_left, l.plot_right);
     if y_ticks {
-        column(canvas, obstacles, theme, size, y, ymap, l.tick_right)?;
+        let place = Place::Column {
+            right: l.tick_right,
+        };
+        ticks(canvas, obstacles, theme, size, y, ymap, place)?;
     }
     let width = l.plot_right - l.plot_left;
     let x_row = Row {
@@ -299,7 +314,7 @@ pub(crate) fn draw_xy_axes(
         fit: Fit::Ellipsize(width.max(0.0)),
         keep_left: false,
     };
-    row(canvas, obstacles, theme, size, x, xmap, x_row)?;
+    ticks(canvas, obstacles, theme, size, x, xmap, Place::Row(x_row))?;
     let plot = (l.plot_left, l.plot_right, l.plot_bottom);
     rows_and_baseline(canvas, theme, y, ymap, plot)
 }
@@ -422,14 +437,15 @@ pub(crate) fn under(
             Align::Middle,
         )?;
     }
-    row(
+    let size = theme.label_size;
+    ticks(
         canvas,
         obstacles,
         theme,
-        theme.label_size,
+        size,
         axis,
         vmap,
-        u.row,
+        Place::Row(u.row),
     )?;
     let skip = u.skip_zero.then(|| vmap(0.0));
     let (from, to) = u.across;

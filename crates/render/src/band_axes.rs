@@ -4,7 +4,7 @@
 //! lay out their frame here and then draw their marks through one
 //! [`crate::band::Band`] transform.
 
-use crate::axis;
+use crate::axis::{self, Place};
 use crate::band::Band;
 use crate::canvas::Canvas;
 use crate::kit::Obstacles;
@@ -150,7 +150,10 @@ impl Upright {
         vmap: impl Fn(f64) -> f64 + Copy,
     ) -> Result<(), RenderError> {
         let size = theme.label_size;
-        axis::column(canvas, obstacles, theme, size, value, vmap, self.tick_right)?;
+        let place = Place::Column {
+            right: self.tick_right,
+        };
+        axis::ticks(canvas, obstacles, theme, size, value, vmap, place)?;
         let (left, right) = self.plot;
         let zero = Some(vmap(0.0));
         axis::gridlines(

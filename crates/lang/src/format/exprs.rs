@@ -55,7 +55,9 @@ impl Printer<'_> {
                 self.expr(expr, Prec::Not);
             }
             Expr::Chain { first, rest, .. } => {
-                let (l, r) = rest.first().map_or((Prec::Top, Prec::Top), |link| sides(link.op));
+                let (l, r) = rest
+                    .first()
+                    .map_or((Prec::Top, Prec::Top), |link| sides(link.op));
                 self.expr(first, l);
                 for link in rest {
                     self.s(" ");
@@ -156,7 +158,9 @@ fn sides(op: BinOp) -> (Prec, Prec) {
         BinOp::And => (Prec::And, Prec::Not),
         BinOp::Add | BinOp::Sub => (Prec::Sum, Prec::Mul),
         BinOp::Mul | BinOp::Div => (Prec::Mul, Prec::Neg),
-        BinOp::Eq | BinOp::Ne | BinOp::Lt | BinOp::Le | BinOp::Gt | BinOp::Ge => (Prec::Sum, Prec::Sum),
+        BinOp::Eq | BinOp::Ne | BinOp::Lt | BinOp::Le | BinOp::Gt | BinOp::Ge => {
+            (Prec::Sum, Prec::Sum)
+        }
     }
 }
 
