@@ -271,31 +271,21 @@ pub(crate) fn draw_xy_axes(
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
     let size = l.size;
-    let muted = muted_label;
-    if let (Some(top), Some(title)) = (l.y_title_top, y.title.as_deref()) {
-        let width = (l.plot_right - l.left).max(0.0);
-        let text = fit::lines(canvas, title, (l.size, false), width, 1)?.join(" ");
-        put(
+    if let (Some(top), Some(text)) = (l.y_title_top, y.title.as_deref()) {
+        let width = l.plot_right - l.left;
+        title(
             canvas,
             obstacles,
-            &muted(theme, size, &text, l.left, top, Align::Start),
+            theme,
+            text,
+            width,
+            (l.left, top),
+            Align::Start,
         )?;
     }
-    if let (Some(top), Some(title)) = (l.x_title_top, x.title.as_deref()) {
-        let width = (l.plot_right - l.plot_left).max(0.0);
-        let text = fit::lines(canvas, title, (l.size, false), width, 1)?.join(" ");
-        put(
-            canvas,
-            obstacles,
-            &muted(
-                theme,
-                size,
-                &text,
-                (l.plot_left + l.plot_right) / 2.0,
-                top,
-                Align::Middle,
-            ),
-        )?;
+    if let (Some(top), Some(text)) = (l.x_title_top, x.title.as_deref()) {
+        let plot = (l.plot_left, l.plot_right);
+        title_centred(canvas, obstacles, theme, text, plot, top)?;
     }
     let ymap = |v: f64| map(v, y.domain, l.plot_bottom, l.plot_top);
     let xmap = |v: f64| map(v, x.domain, l.plot_left, l.plot_right);
