@@ -273,15 +273,8 @@ pub(crate) fn draw_xy_axes(
     let size = l.size;
     if let (Some(top), Some(text)) = (l.y_title_top, y.title.as_deref()) {
         let width = l.plot_right - l.left;
-        title(
-            canvas,
-            obstacles,
-            theme,
-            text,
-            width,
-            (l.left, top),
-            Align::Start,
-        )?;
+        let at = (l.left, top);
+        title(canvas, obstacles, theme, text, width, at, Align::Start)?;
     }
     if let (Some(top), Some(text)) = (l.x_title_top, x.title.as_deref()) {
         let plot = (l.plot_left, l.plot_right);
@@ -417,15 +410,8 @@ pub(crate) fn under(
     u: Under,
 ) -> Result<(), RenderError> {
     if let (Some((top, width, centre)), Some(text)) = (u.title, axis.title.as_deref()) {
-        title(
-            canvas,
-            obstacles,
-            theme,
-            text,
-            width,
-            (centre, top),
-            Align::Middle,
-        )?;
+        let at = (centre, top);
+        title(canvas, obstacles, theme, text, width, at, Align::Middle)?;
     }
     let size = theme.label_size;
     ticks(
