@@ -5,7 +5,7 @@
 
 use crate::canvas::{Align, Canvas};
 use crate::fit;
-use crate::kit::{self, muted_label, put, Obstacles};
+use crate::kit::{self, muted_label, put, Obstacles, Rect};
 use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
@@ -157,10 +157,8 @@ pub(crate) struct XyLayout {
     pub y_title_top: Option<f64>,
     pub x_title_top: Option<f64>,
     pub tick_right: f64,
-    pub plot_left: f64,
-    pub plot_right: f64,
-    pub plot_top: f64,
-    pub plot_bottom: f64,
+    /// The plot area.
+    pub plot: Rect,
     pub x_tick_top: f64,
     /// Tick label size.
     pub size: f64,
@@ -197,19 +195,18 @@ pub(crate) fn xy_layout(
     } else {
         0.0
     };
+    let plot_left = if tick_w > 0.0 {
+        region.left + tick_w + PAD
+    } else {
+        region.left
+    };
+    let plot_right = region.right - right_reserve;
     XyLayout {
         left: region.left,
         y_title_top,
         x_title_top,
         tick_right: region.left + tick_w,
-        plot_left: if tick_w > 0.0 {
-            region.left + tick_w + PAD
-        } else {
-            region.left
-        },
-        plot_right: region.right - right_reserve,
-        plot_top: top + lh / 2.0,
-        plot_bottom,
+        plot: kit::rect(plot_left, top + lh / 2.0, plot_right, plot_bottom),
         x_tick_top,
         size,
     }
@@ -272,33 +269,33 @@ pub(crate) fn draw_xy_axes(
 ) -> Result<(), RenderError> {
     let size = l.size;
     if let (Some(top), Some(text)) = (l.y_title_top, y.title.as_deref()) {
-        let width = l.plot_right - l.left;
+        let width = l.plot.x1 - l.left;
         let at = (l.left, top);
         title(canvas, obstacles, theme, text, width, at, Align::Start)?;
     }
     if let (Some(top), Some(text)) = (l.x_title_top, x.title.as_deref()) {
-        let plot = (l.plot_left, l.plot_right);
+        let plot = (l.plot.x0, l.plot.x1);
         title_centred(canvas, obstacles, theme, text, plot, top)?;
     }
-    let ymap = |v: f64| map(v, y.domain, l.plot_bottom, l.plot_top);
-    let xmap = |v: f64| map(v, x.domain, l.plot_left, l.plot_right);
+    let ymap = |v: f64| map(v, y.domain, l.plot.y1, l.plot.y0);
+    let xmap = |v: f64| map(v, x.domain, l.plot.x0, l.plot.x1);
     if y_ticks {
         let place = Place::Column {
             right: l.tick_right,
         };
         ticks(canvas, obstacles, theme, size, y, ymap, place)?;
     }
-    let width = l.plot_right - l.plot_left;
+    let width = l.plot.x1 - l.plot.x0;
     let x_row = Row {
         top: l.x_tick_top,
-        lo: l.plot_left,
-        hi: l.plot_right,
+        lo: l.plot.x0,
+        hi: l.plot.x1,
         gap: 12.0,
         fit: Fit::Ellipsize(width.max(0.0)),
         keep_left: false,
     };
     ticks(canvas, obstacles, theme, size, x, xmap, Place::Row(x_row))?;
-    let plot = (l.plot_left, l.plot_right, l.plot_bottom);
+    let plot = (l.plot.x0, l.plot.x1, l.plot.y1);
     rows_and_baseline(canvas, theme, y, ymap, plot)
 }
 
