@@ -139,8 +139,7 @@ impl Printer<'_> {
     fn selection(&mut self, s: &Selection) {
         self.raw(&s.view.span);
         if let Some(c) = &s.column {
-            self.s(".");
-            self.raw(&c.span);
+            self.put(".", c);
         }
         self.opt(" by ", s.by.as_ref());
         if let Some(f) = &s.filter {
