@@ -3,10 +3,9 @@
 //! do until the author fills them in.
 
 use crescendo_diag::Severity;
+use crescendo_frame::anchors::Span;
 
 use crate::{Finding, Input, Rule};
-
-type Span = std::ops::Range<usize>;
 
 pub static RULE: Rule = Rule::new("text-unfinished", Severity::Warning, check);
 
