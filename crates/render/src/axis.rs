@@ -152,30 +152,26 @@ fn in_row(
 /// optional y title above them, x ticks and an optional x title below.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub(crate) struct XyLayout {
-    /// Left edge of the region (where the y title starts).
-    pub left: f64,
-    pub y_title_top: Option<f64>,
+    /// Where the y title starts: the region's left edge, and its top.
+    pub y_title_at: Option<(f64, f64)>,
     pub x_title_top: Option<f64>,
     pub tick_right: f64,
     /// The plot area.
     pub plot: Rect,
     pub x_tick_top: f64,
-    /// Tick label size.
-    pub size: f64,
 }
 
 /// Space between tick labels and the plot.
 pub(crate) const PAD: f64 = 12.0;
 
-/// Lays out an x/y plot in `region`, leaving `right_reserve` px free at the
-/// right; `y_ticks` false drops the tick column (small multiples).
+/// Lays out an x/y plot in `region`, its labels `size` px, leaving
+/// `right_reserve` px free at the right.
 pub(crate) fn xy_layout(
     x: &Axis,
     y: &Axis,
     region: Region,
     right_reserve: f64,
     size: f64,
-    y_ticks: bool,
 ) -> XyLayout {
     let lh = line_height(size);
     let mut top = region.top;
@@ -186,15 +182,11 @@ pub(crate) fn xy_layout(
     });
     let (x_title_top, x_tick_top, plot_bottom) = bottom_rows(region.bottom, lh, x.title.is_some());
     let ticks = layout::visible_ticks(y);
-    let tick_w = if y_ticks {
-        region.tick_column(max_width(
-            ticks.iter().map(|(_, l)| l.as_str()),
-            size,
-            false,
-        ))
-    } else {
-        0.0
-    };
+    let tick_w = region.tick_column(max_width(
+        ticks.iter().map(|(_, l)| l.as_str()),
+        size,
+        false,
+    ));
     let plot_left = if tick_w > 0.0 {
         region.left + tick_w + PAD
     } else {
@@ -202,13 +194,11 @@ pub(crate) fn xy_layout(
     };
     let plot_right = region.right - right_reserve;
     XyLayout {
-        left: region.left,
-        y_title_top,
+        y_title_at: y_title_top.map(|top| (region.left, top)),
         x_title_top,
         tick_right: region.left + tick_w,
         plot: kit::rect(plot_left, top + lh / 2.0, plot_right, plot_bottom),
         x_tick_top,
-        size,
     }
 }
 
@@ -256,21 +246,19 @@ pub(crate) fn gridlines(
 }
 
 /// Draws the titles, tick labels, gridlines (when the y axis asks for
-/// them) and baseline of an x/y plot; records the text boxes in `obstacles`. `y_ticks` false leaves the y labels out (the
-/// plot keeps its place).
+/// them) and baseline of an x/y plot at the theme's label size; records
+/// the text boxes in `obstacles`.
 pub(crate) fn draw_xy_axes(
     canvas: &Canvas,
     theme: &Theme,
     x: &Axis,
     y: &Axis,
     l: &XyLayout,
-    y_ticks: bool,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let size = l.size;
-    if let (Some(top), Some(text)) = (l.y_title_top, y.title.as_deref()) {
-        let width = l.plot.x1 - l.left;
-        let at = (l.left, top);
+    let size = theme.label_size;
+    if let (Some(at), Some(text)) = (l.y_title_at, y.title.as_deref()) {
+        let width = l.plot.x1 - at.0;
         title(canvas, obstacles, theme, text, width, at, Align::Start)?;
     }
     if let (Some(top), Some(text)) = (l.x_title_top, x.title.as_deref()) {
@@ -279,12 +267,10 @@ pub(crate) fn draw_xy_axes(
     }
     let ymap = |v: f64| map(v, y.domain, l.plot.y1, l.plot.y0);
     let xmap = |v: f64| map(v, x.domain, l.plot.x0, l.plot.x1);
-    if y_ticks {
-        let place = Place::Column {
-            right: l.tick_right,
-        };
-        ticks(canvas, obstacles, theme, size, y, ymap, place)?;
-    }
+    let place = Place::Column {
+        right: l.tick_right,
+    };
+    ticks(canvas, obstacles, theme, size, y, ymap, place)?;
     let width = l.plot.x1 - l.plot.x0;
     let x_row = Row {
         top: l.x_tick_top,

@@ -57,10 +57,10 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
     layout::check_axis(&chart.y, "y")?;
     let lh = line_height(theme.label_size);
     let reserve = region.label_gutter;
-    let l = axis::xy_layout(&chart.x, &chart.y, region, reserve, theme.label_size, true);
+    let l = axis::xy_layout(&chart.x, &chart.y, region, reserve, theme.label_size);
     let mut obstacles = Obstacles::default();
     canvas.plot((l.plot.x0, l.plot.y0), (l.plot.x1, l.plot.y1))?;
-    axis::draw_xy_axes(canvas, theme, &chart.x, &chart.y, &l, true, &mut obstacles)?;
+    axis::draw_xy_axes(canvas, theme, &chart.x, &chart.y, &l, &mut obstacles)?;
     let xmap = |x: f64| map(x, chart.x.domain, l.plot.x0, l.plot.x1);
     let ymap = |y: f64| map(y, chart.y.domain, l.plot.y1, l.plot.y0);
     let finite: Vec<_> = chart
