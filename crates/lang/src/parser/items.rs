@@ -142,10 +142,18 @@ impl Conv<'_> {
         } else {
             (self.string(source), None)
         };
-        let mut missing = None;
-        let mut columns = Vec::new();
-        let (mut sheet, mut cells) = (None, None);
-        let (mut thousands, mut decimal) = (None, None);
+        let mut decl = DataDecl {
+            name,
+            file,
+            database,
+            span,
+            missing: None,
+            thousands: None,
+            decimal: None,
+            sheet: None,
+            cells: None,
+            columns: Vec::new(),
+        };
         for p in it {
             match p.as_rule() {
                 rule @ (Rule::sheet_clause
@@ -155,15 +163,16 @@ impl Conv<'_> {
                     let s = children(p)
                         .find(|q| q.as_rule() == Rule::string)
                         .map(|q| Box::new(self.string(q)));
-                    match rule {
-                        Rule::sheet_clause => sheet = s,
-                        Rule::cells_clause => cells = s,
-                        Rule::thousands_clause => thousands = s,
-                        _ => decimal = s,
-                    }
+                    let clause = match rule {
+                        Rule::sheet_clause => &mut decl.sheet,
+                        Rule::cells_clause => &mut decl.cells,
+                        Rule::thousands_clause => &mut decl.thousands,
+                        _ => &mut decl.decimal,
+                    };
+                    *clause = s;
                 }
                 Rule::missing_clause => {
-                    missing = Some(
+                    decl.missing = Some(
                         children(p)
                             .filter(|q| q.as_rule() == Rule::string)
                             .map(|q| self.string(q))
@@ -173,7 +182,7 @@ impl Conv<'_> {
                 Rule::column_block => {
                     for c in children(p) {
                         let (cspan, _, parts) = self.open(c);
-                        columns.push(ColumnDecl {
+                        decl.columns.push(ColumnDecl {
                             name: self.ident(nth(&parts, 0, &cspan)?),
                             ty: self.ident(nth(&parts, 1, &cspan)?),
                             span: cspan,
@@ -183,18 +192,7 @@ impl Conv<'_> {
                 _ => {}
             }
         }
-        Ok(DataDecl {
-            name,
-            file,
-            missing,
-            thousands,
-            decimal,
-            columns,
-            span,
-            sheet,
-            cells,
-            database,
-        })
+        Ok(decl)
     }
 
     /// A `db_source`: the string that names the table or holds the query
