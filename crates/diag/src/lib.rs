@@ -15,6 +15,9 @@ use codespan_reporting::files::{Error as FilesError, Files};
 use codespan_reporting::term::{self, termcolor};
 use serde::Serialize;
 
+/// A byte range in a source.
+pub type Span = Range<usize>;
+
 /// How bad a diagnostic is.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Serialize)]
 #[serde(rename_all = "lowercase")]
@@ -172,12 +175,12 @@ impl Shown {
 #[derive(Clone, Debug)]
 pub struct Located {
     pub source: Arc<Source>,
-    pub span: Range<usize>,
+    pub span: Span,
     pub label: String,
 }
 
 impl Located {
-    fn new(source: &Arc<Source>, span: Range<usize>, label: impl Into<String>) -> Self {
+    fn new(source: &Arc<Source>, span: Span, label: impl Into<String>) -> Self {
         Located {
             source: Arc::clone(source),
             span,
@@ -221,23 +224,13 @@ impl Diagnostic {
     }
 
     /// Point the diagnostic at `span` in `source`.
-    pub fn at(
-        mut self,
-        source: &Arc<Source>,
-        span: Range<usize>,
-        label: impl Into<String>,
-    ) -> Self {
+    pub fn at(mut self, source: &Arc<Source>, span: Span, label: impl Into<String>) -> Self {
         self.primary = Some(Located::new(source, span, label));
         self
     }
 
     /// Add a secondary location (for example, where a name was declared).
-    pub fn also(
-        mut self,
-        source: &Arc<Source>,
-        span: Range<usize>,
-        label: impl Into<String>,
-    ) -> Self {
+    pub fn also(mut self, source: &Arc<Source>, span: Span, label: impl Into<String>) -> Self {
         self.secondary.push(Located::new(source, span, label));
         self
     }

@@ -1,13 +1,11 @@
 //! The syntax tree. Every node carries the byte span it came from, so later
 //! stages can point diagnostics into the story source.
 
-use std::ops::Range;
-
 pub use crate::position::Position;
 pub use crate::template_ast::{FormatSpec, NumberStyle, Template, TextPart, MAX_DECIMALS};
 
 /// A byte range in the story file.
-pub type Span = Range<usize>;
+pub use crescendo_diag::Span;
 
 /// A name as written.
 #[derive(Clone, Debug, PartialEq)]

@@ -5,7 +5,7 @@
 
 use crate::canvas::{Align, Canvas};
 use crate::fit;
-use crate::kit::{self, muted_label, put, Obstacles};
+use crate::kit::{self, muted_label, put, Obstacles, Rect};
 use crate::layout::{self, map, max_width, Region};
 use crate::metrics::{self, line_height, text_width};
 use crate::theme::Theme;
@@ -40,52 +40,85 @@ pub(crate) struct Row {
     pub keep_left: bool,
 }
 
-/// The tick labels of `axis` in a column, right-aligned at `right`, each
-/// centred on its position `at(value)`, thinned 2 px apart.
+/// Where the tick labels of an axis go.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) enum Place {
+    /// In a column, right-aligned at `right`, each centred on its
+    /// position, thinned 2 px apart.
+    Column { right: f64 },
+    /// In a row, centred under their positions, the outermost moved inside
+    /// `row.lo..row.hi`, thinned `row.gap` apart. The group records the
+    /// width of every label the axis asked for.
+    Row(Row),
+}
+
+/// The tick labels of `axis` at their positions `at(value)`, placed as
+/// `place` says.
 #[allow(clippy::too_many_arguments)]
-pub(crate) fn column(
+pub(crate) fn ticks(
     canvas: &Canvas,
     obstacles: &mut Obstacles,
     theme: &Theme,
     size: f64,
     axis: &Axis,
     at: impl Fn(f64) -> f64,
-    right: f64,
+    place: Place,
 ) -> Result<(), RenderError> {
-    let lh = line_height(size);
     let ticks = layout::visible_ticks(axis);
-    let spans: Vec<(f64, f64)> = ticks
-        .iter()
-        .map(|(v, _)| (at(*v) - lh / 2.0, at(*v) + lh / 2.0))
+    let row = match place {
+        Place::Row(row) => row,
+        Place::Column { right } => {
+            let lh = line_height(size);
+            let spans: Vec<(f64, f64)> = ticks
+                .iter()
+                .map(|(v, _)| (at(*v) - lh / 2.0, at(*v) + lh / 2.0))
+                .collect();
+            for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
+                if keep {
+                    let top = at(*v) - lh / 2.0;
+                    let label = muted_label(theme, size, text, right, top, Align::End);
+                    kit::put(canvas, obstacles, &label)?;
+                }
+            }
+            return Ok(());
+        }
+    };
+    let wanted = (ticks.iter())
+        .map(|(_, text)| text_width(text, size, false))
         .collect();
-    for ((v, text), keep) in ticks.iter().zip(layout::thin(&spans, 2.0)) {
-        if keep {
-            let label = muted_label(theme, size, text, right, at(*v) - lh / 2.0, Align::End);
-            kit::put(canvas, obstacles, &label)?;
+    let placed = in_row(ticks, size, at, row);
+    let spans: Vec<(f64, f64)> = placed
+        .iter()
+        .map(|(c, w, _, _)| (c - w / 2.0, c + w / 2.0))
+        .collect();
+    let keep = layout::thin(&spans, row.gap);
+    canvas.group(Part::XTicks { wanted }, || {
+        for ((c, _, text, _), keep) in placed.iter().zip(&keep) {
+            if *keep {
+                let label = muted_label(theme, size, text, *c, row.top, Align::Middle);
+                kit::put(canvas, obstacles, &label)?;
+            }
+        }
+        Ok(())
+    })?;
+    // a tick label cut to its room is noted for the lint
+    for ((_, _, text, full), keep) in placed.iter().zip(&keep) {
+        if *keep {
+            crate::fit::note(canvas, full, std::slice::from_ref(text))?;
         }
     }
     Ok(())
 }
 
-/// The tick labels of `axis` in a row, centred under their positions
-/// `at(value)`, the outermost moved inside `row.lo..row.hi`, thinned
-/// `row.gap` apart. The group records the width of every label the axis
-/// asked for.
-#[allow(clippy::too_many_arguments)]
-pub(crate) fn row(
-    canvas: &Canvas,
-    obstacles: &mut Obstacles,
-    theme: &Theme,
+/// Each tick label fitted as `row.fit` says and centred under its
+/// position, moved inside the row: `(centre, width, text, full text)`.
+fn in_row(
+    ticks: Vec<(f64, String)>,
     size: f64,
-    axis: &Axis,
     at: impl Fn(f64) -> f64,
     row: Row,
-) -> Result<(), RenderError> {
-    let ticks = layout::visible_ticks(axis);
-    let wanted = (ticks.iter())
-        .map(|(_, text)| text_width(text, size, false))
-        .collect();
-    let placed: Vec<(f64, f64, String, String)> = ticks
+) -> Vec<(f64, f64, String, String)> {
+    ticks
         .into_iter()
         .map(|(v, full)| {
             let text = full.clone();
@@ -112,60 +145,33 @@ pub(crate) fn row(
             let centre = at(v).max(row.lo + w / 2.0).min(hi - w / 2.0);
             (centre, w, text, full)
         })
-        .collect();
-    let spans: Vec<(f64, f64)> = placed
-        .iter()
-        .map(|(c, w, _, _)| (c - w / 2.0, c + w / 2.0))
-        .collect();
-    let keep = layout::thin(&spans, row.gap);
-    canvas.group(Part::XTicks { wanted }, || {
-        for ((c, _, text, _), keep) in placed.iter().zip(&keep) {
-            if *keep {
-                let label = muted_label(theme, size, text, *c, row.top, Align::Middle);
-                kit::put(canvas, obstacles, &label)?;
-            }
-        }
-        Ok(())
-    })?;
-    // a tick label cut to its room is noted for the lint
-    for ((_, _, text, full), keep) in placed.iter().zip(&keep) {
-        if *keep {
-            crate::fit::note(canvas, full, std::slice::from_ref(text))?;
-        }
-    }
-    Ok(())
+        .collect()
 }
 
 /// Geometry of a plain x/y plot: y ticks right-aligned at the left, an
 /// optional y title above them, x ticks and an optional x title below.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub(crate) struct XyLayout {
-    /// Left edge of the region (where the y title starts).
-    pub left: f64,
-    pub y_title_top: Option<f64>,
+    /// Where the y title starts: the region's left edge, and its top.
+    pub y_title_at: Option<(f64, f64)>,
     pub x_title_top: Option<f64>,
     pub tick_right: f64,
-    pub plot_left: f64,
-    pub plot_right: f64,
-    pub plot_top: f64,
-    pub plot_bottom: f64,
+    /// The plot area.
+    pub plot: Rect,
     pub x_tick_top: f64,
-    /// Tick label size.
-    pub size: f64,
 }
 
 /// Space between tick labels and the plot.
 pub(crate) const PAD: f64 = 12.0;
 
-/// Lays out an x/y plot in `region`, leaving `right_reserve` px free at the
-/// right; `y_ticks` false drops the tick column (small multiples).
+/// Lays out an x/y plot in `region`, its labels `size` px, leaving
+/// `right_reserve` px free at the right.
 pub(crate) fn xy_layout(
     x: &Axis,
     y: &Axis,
     region: Region,
     right_reserve: f64,
     size: f64,
-    y_ticks: bool,
 ) -> XyLayout {
     let lh = line_height(size);
     let mut top = region.top;
@@ -176,30 +182,23 @@ pub(crate) fn xy_layout(
     });
     let (x_title_top, x_tick_top, plot_bottom) = bottom_rows(region.bottom, lh, x.title.is_some());
     let ticks = layout::visible_ticks(y);
-    let tick_w = if y_ticks {
-        region.tick_column(max_width(
-            ticks.iter().map(|(_, l)| l.as_str()),
-            size,
-            false,
-        ))
+    let tick_w = region.tick_column(max_width(
+        ticks.iter().map(|(_, l)| l.as_str()),
+        size,
+        false,
+    ));
+    let plot_left = if tick_w > 0.0 {
+        region.left + tick_w + PAD
     } else {
-        0.0
+        region.left
     };
+    let plot_right = region.right - right_reserve;
     XyLayout {
-        left: region.left,
-        y_title_top,
+        y_title_at: y_title_top.map(|top| (region.left, top)),
         x_title_top,
         tick_right: region.left + tick_w,
-        plot_left: if tick_w > 0.0 {
-            region.left + tick_w + PAD
-        } else {
-            region.left
-        },
-        plot_right: region.right - right_reserve,
-        plot_top: top + lh / 2.0,
-        plot_bottom,
+        plot: kit::rect(plot_left, top + lh / 2.0, plot_right, plot_bottom),
         x_tick_top,
-        size,
     }
 }
 
@@ -247,60 +246,42 @@ pub(crate) fn gridlines(
 }
 
 /// Draws the titles, tick labels, gridlines (when the y axis asks for
-/// them) and baseline of an x/y plot; records the text boxes in `obstacles`. `y_ticks` false leaves the y labels out (the
-/// plot keeps its place).
+/// them) and baseline of an x/y plot at the theme's label size; records
+/// the text boxes in `obstacles`.
 pub(crate) fn draw_xy_axes(
     canvas: &Canvas,
     theme: &Theme,
     x: &Axis,
     y: &Axis,
     l: &XyLayout,
-    y_ticks: bool,
     obstacles: &mut Obstacles,
 ) -> Result<(), RenderError> {
-    let size = l.size;
-    let muted = muted_label;
-    if let (Some(top), Some(title)) = (l.y_title_top, y.title.as_deref()) {
-        let width = (l.plot_right - l.left).max(0.0);
-        let text = fit::lines(canvas, title, (l.size, false), width, 1)?.join(" ");
-        put(
-            canvas,
-            obstacles,
-            &muted(theme, size, &text, l.left, top, Align::Start),
-        )?;
+    let size = theme.label_size;
+    if let (Some(at), Some(text)) = (l.y_title_at, y.title.as_deref()) {
+        let width = l.plot.x1 - at.0;
+        title(canvas, obstacles, theme, text, width, at, Align::Start)?;
     }
-    if let (Some(top), Some(title)) = (l.x_title_top, x.title.as_deref()) {
-        let width = (l.plot_right - l.plot_left).max(0.0);
-        let text = fit::lines(canvas, title, (l.size, false), width, 1)?.join(" ");
-        put(
-            canvas,
-            obstacles,
-            &muted(
-                theme,
-                size,
-                &text,
-                (l.plot_left + l.plot_right) / 2.0,
-                top,
-                Align::Middle,
-            ),
-        )?;
+    if let (Some(top), Some(text)) = (l.x_title_top, x.title.as_deref()) {
+        let plot = (l.plot.x0, l.plot.x1);
+        title_centred(canvas, obstacles, theme, text, plot, top)?;
     }
-    let ymap = |v: f64| map(v, y.domain, l.plot_bottom, l.plot_top);
-    let xmap = |v: f64| map(v, x.domain, l.plot_left, l.plot_right);
-    if y_ticks {
-        column(canvas, obstacles, theme, size, y, ymap, l.tick_right)?;
-    }
-    let width = l.plot_right - l.plot_left;
+    let ymap = |v: f64| map(v, y.domain, l.plot.y1, l.plot.y0);
+    let xmap = |v: f64| map(v, x.domain, l.plot.x0, l.plot.x1);
+    let place = Place::Column {
+        right: l.tick_right,
+    };
+    ticks(canvas, obstacles, theme, size, y, ymap, place)?;
+    let width = l.plot.x1 - l.plot.x0;
     let x_row = Row {
         top: l.x_tick_top,
-        lo: l.plot_left,
-        hi: l.plot_right,
+        lo: l.plot.x0,
+        hi: l.plot.x1,
         gap: 12.0,
         fit: Fit::Ellipsize(width.max(0.0)),
         keep_left: false,
     };
-    row(canvas, obstacles, theme, size, x, xmap, x_row)?;
-    let plot = (l.plot_left, l.plot_right, l.plot_bottom);
+    ticks(canvas, obstacles, theme, size, x, xmap, Place::Row(x_row))?;
+    let plot = (l.plot.x0, l.plot.x1, l.plot.y1);
     rows_and_baseline(canvas, theme, y, ymap, plot)
 }
 
@@ -412,24 +393,18 @@ pub(crate) fn under(
     u: Under,
 ) -> Result<(), RenderError> {
     if let (Some((top, width, centre)), Some(text)) = (u.title, axis.title.as_deref()) {
-        title(
-            canvas,
-            obstacles,
-            theme,
-            text,
-            width,
-            (centre, top),
-            Align::Middle,
-        )?;
+        let at = (centre, top);
+        title(canvas, obstacles, theme, text, width, at, Align::Middle)?;
     }
-    row(
+    let size = theme.label_size;
+    ticks(
         canvas,
         obstacles,
         theme,
-        theme.label_size,
+        size,
         axis,
         vmap,
-        u.row,
+        Place::Row(u.row),
     )?;
     let skip = u.skip_zero.then(|| vmap(0.0));
     let (from, to) = u.across;

@@ -4,7 +4,7 @@
 //! lay out their frame here and then draw their marks through one
 //! [`crate::band::Band`] transform.
 
-use crate::axis;
+use crate::axis::{self, Place};
 use crate::band::Band;
 use crate::canvas::Canvas;
 use crate::kit::Obstacles;
@@ -140,29 +140,33 @@ pub(crate) fn upright(
 }
 
 impl Upright {
-    /// The value ticks in the column and the gridlines across the plot.
-    pub fn value_axis(
+    /// The plot from `top` to `bottom` (values run upwards), the value ticks
+    /// in the column and the gridlines across it; returns the bands (the
+    /// counterpart of [`Lying::plot`]).
+    pub fn plot_bands(
         &self,
-        canvas: &Canvas,
+        on: Surface,
         obstacles: &mut Obstacles,
-        theme: &Theme,
         value: &Axis,
         vmap: impl Fn(f64) -> f64 + Copy,
-    ) -> Result<(), RenderError> {
-        let size = theme.label_size;
-        axis::column(canvas, obstacles, theme, size, value, vmap, self.tick_right)?;
+        (top, bottom): (f64, f64),
+    ) -> Result<Band, RenderError> {
+        let (canvas, theme) = (on.canvas, on.theme);
         let (left, right) = self.plot;
+        canvas.plot((left, top), (right, bottom))?;
+        let size = theme.label_size;
+        let place = Place::Column {
+            right: self.tick_right,
+        };
+        axis::ticks(canvas, obstacles, theme, size, value, vmap, place)?;
         let zero = Some(vmap(0.0));
-        axis::gridlines(
-            canvas,
-            theme,
-            value,
-            vmap,
-            left,
-            right,
-            axis::Across::Rows,
-            zero,
-        )
+        let across = axis::Across::Rows;
+        axis::gridlines(canvas, theme, value, vmap, left, right, across, zero)?;
+        Ok(Band {
+            orientation: Orientation::Vertical,
+            start: left,
+            size: self.band,
+        })
     }
 }
 

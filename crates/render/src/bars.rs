@@ -45,29 +45,29 @@ fn muted_label<'a>(theme: &Theme, text: &'a str, x: f64, top: f64, align: Align)
 
 /// Where a bar chart's parts go: the bands, the thickness of a bar, the
 /// positions of the value domain's ends, the extent of the baseline across
-/// the bands, and each category name's place and lines.
+/// the bands, each category name's place and lines, and the texts placed
+/// so far (for the value labels, [`crate::place`]).
 struct Frame {
     bands: Band,
     thickness: f64,
     ends: (f64, f64),
     across: (f64, f64),
     names: Vec<(f64, f64, Align, Vec<String>)>,
+    obstacles: Obstacles,
 }
 
 pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &BarChart, region: Region) -> Drawn {
     layout::check_axis(&chart.value, "value")?;
     let step = theme.label_step();
     let domain = value_domain(chart);
-    // texts and bars so far, for the value labels ([`crate::place`])
-    let mut obstacles = Obstacles::default();
     let on = Surface {
         canvas,
         theme,
         region,
     };
-    let f = match chart.orientation {
-        Orientation::Vertical => vertical(on, chart, &mut obstacles)?,
-        Orientation::Horizontal => horizontal(on, chart, &mut obstacles)?,
+    let mut f = match chart.orientation {
+        Orientation::Vertical => vertical(on, chart)?,
+        Orientation::Horizontal => horizontal(on, chart)?,
     };
     let vmap = |v: f64| map(v, domain, f.ends.0, f.ends.1);
     let zero = vmap(0.0);
@@ -98,7 +98,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &BarChart, region: Reg
             positive,
             color,
             label,
-            &mut obstacles,
+            &mut f.obstacles,
         )?;
     }
     let baseline = (theme.baseline, theme.baseline_stroke);
@@ -106,17 +106,14 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &BarChart, region: Reg
 }
 
 /// Vertical bars: value ticks at the left, names under the bars.
-fn vertical(
-    on: Surface,
-    chart: &BarChart,
-    obstacles: &mut Obstacles,
-) -> Result<Frame, RenderError> {
+fn vertical(on: Surface, chart: &BarChart) -> Result<Frame, RenderError> {
+    let mut obstacles = Obstacles::default();
     let (canvas, theme) = (on.canvas, on.theme);
     let lh = line_height(theme.label_size);
     let domain = value_domain(chart);
     let names: Vec<&str> = chart.bars.iter().map(|b| b.label.as_str()).collect();
     let cat = chart.category_title.as_deref();
-    let u = band_axes::upright(on, obstacles, &chart.value, cat, &names, 0.0)?;
+    let u = band_axes::upright(on, &mut obstacles, &chart.value, cat, &names, 0.0)?;
     // Room for value labels above positive and below negative bars.
     let value_top = u.top + lh + VALUE_GAP;
     let mut value_bottom = u.names_top - 10.0;
@@ -124,13 +121,8 @@ fn vertical(
         value_bottom -= lh + VALUE_GAP;
     }
     let vmap = |v: f64| map(v, domain, value_bottom, value_top);
-    canvas.plot((u.plot.0, value_top), (u.plot.1, value_bottom))?;
-    u.value_axis(canvas, obstacles, theme, &chart.value, vmap)?;
-    let bands = Band {
-        orientation: Orientation::Vertical,
-        start: u.plot.0,
-        size: u.band,
-    };
+    let ends = (value_top, value_bottom);
+    let bands = u.plot_bands(on, &mut obstacles, &chart.value, vmap, ends)?;
     let how = (theme.label_size, false);
     let names = (chart.bars.iter().enumerate())
         .map(|(i, bar)| {
@@ -144,19 +136,17 @@ fn vertical(
         ends: (value_bottom, value_top),
         across: u.plot,
         names,
+        obstacles,
     })
 }
 
 /// Horizontal bars: names in a column at the left, value ticks under.
-fn horizontal(
-    on: Surface,
-    chart: &BarChart,
-    obstacles: &mut Obstacles,
-) -> Result<Frame, RenderError> {
+fn horizontal(on: Surface, chart: &BarChart) -> Result<Frame, RenderError> {
+    let mut obstacles = Obstacles::default();
     let (canvas, theme, region) = (on.canvas, on.theme, on.region);
     let domain = value_domain(chart);
     let titles = (chart.category_title.as_deref(), chart.value.title.is_some());
-    let l = band_axes::lying(on, obstacles, titles, 0.0)?;
+    let l = band_axes::lying(on, &mut obstacles, titles, 0.0)?;
     let (plot_top, plot_bottom) = (l.plot_top, l.plot_bottom);
 
     let names = chart.bars.iter().map(|b| b.label.as_str());
@@ -172,7 +162,7 @@ fn horizontal(
     );
     let (left_pad, right_pad) = band::end_room(domain, value_w, true, region.label_gutter);
     let values = (plot.0 + left_pad, plot.1 - right_pad);
-    let bands = l.plot(on, obstacles, &col, (&chart.value, domain), values)?;
+    let bands = l.plot(on, &mut obstacles, &col, (&chart.value, domain), values)?;
     let names = name_rows(canvas, theme, chart, &bands, (col_w, cat_lines))?
         .into_iter()
         .map(|(top, lines)| (col_right, top, Align::End, lines))
@@ -183,6 +173,7 @@ fn horizontal(
         ends: values,
         across: (plot_top, plot_bottom),
         names,
+        obstacles,
     })
 }
 

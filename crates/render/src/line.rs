@@ -7,7 +7,7 @@
 //! points per pixel of plot width are thinned with LTTB ([`crate::lttb`]).
 
 use crate::annotate;
-use crate::axis;
+use crate::axis::{self, Place};
 use crate::canvas::{Align, Canvas, Label};
 use crate::kit::{self, Obstacles};
 use crate::layout::{self, map, Region};
@@ -40,8 +40,10 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &LineChart, region: Re
 
     // Y ticks, right-aligned in their column, thinned if crowded.
     let size = theme.label_size;
-    let right = l.tick_column_right;
-    axis::column(canvas, &mut obstacles, theme, size, &chart.y, ymap, right)?;
+    let place = Place::Column {
+        right: l.tick_column_right,
+    };
+    axis::ticks(canvas, &mut obstacles, theme, size, &chart.y, ymap, place)?;
 
     // X ticks, centred, the outermost clamped inside the plot.
     let row = axis::Row {
@@ -52,7 +54,8 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &LineChart, region: Re
         fit: axis::Fit::Capped(l.plot_width()),
         keep_left: false,
     };
-    axis::row(canvas, &mut obstacles, theme, size, &chart.x, xmap, row)?;
+    let place = Place::Row(row);
+    axis::ticks(canvas, &mut obstacles, theme, size, &chart.x, xmap, place)?;
 
     // Gridlines, when asked for, under everything else in the plot, and
     // the baseline along its bottom.

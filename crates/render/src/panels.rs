@@ -9,7 +9,7 @@
 //!
 //! Panels name no series of their own: the panel title is the label.
 
-use crate::axis;
+use crate::axis::{self, Place};
 use crate::band::Band;
 use crate::canvas::{Align, Canvas, Label};
 use crate::fit;
@@ -292,7 +292,15 @@ fn panel_bars(
             fit: axis::Fit::AsWritten,
             keep_left: true,
         };
-        axis::row(canvas, obstacles, theme, size, &b.value, vmap, row)?;
+        axis::ticks(
+            canvas,
+            obstacles,
+            theme,
+            size,
+            &b.value,
+            vmap,
+            Place::Row(row),
+        )?;
     }
     let band = (end - start) / b.bars.len().max(1) as f64;
     let bands = Band {
@@ -457,14 +465,17 @@ fn value_ticks(
         return Ok(());
     }
     let ymap = |v: f64| map(v, dom, g.bottom, g.top);
-    axis::column(
+    let place = Place::Column {
+        right: g.lead_right,
+    };
+    axis::ticks(
         canvas,
         obstacles,
         theme,
         theme.source_size,
         axis,
         ymap,
-        g.lead_right,
+        place,
     )
 }
 
@@ -485,5 +496,6 @@ fn x_ticks(
         keep_left: false,
     };
     let xmap = |v: f64| map(v, axis.domain, g.left, g.right);
-    axis::row(canvas, obstacles, theme, theme.source_size, axis, xmap, row)
+    let size = theme.source_size;
+    axis::ticks(canvas, obstacles, theme, size, axis, xmap, Place::Row(row))
 }

@@ -30,6 +30,7 @@ pub(crate) fn names(theme: &Theme, chart: &PartsChart) -> Vec<String> {
 
 /// What every way of naming parts shares.
 struct Namer<'a> {
+    canvas: &'a Canvas,
     theme: &'a Theme,
     chart: &'a PartsChart,
     s: &'a Slots,
@@ -94,18 +95,15 @@ impl Namer<'_> {
             .fold(self.zero, outer);
         (g, ext, end)
     }
-}
 
-impl Namer<'_> {
     /// A part name through the placer ([`place::settle`]).
     fn settle(
         &self,
-        canvas: &Canvas,
         obstacles: &mut Obstacles,
         label: &Label<'_>,
         how: (&[(f64, f64)], Option<place::Lead<'_>>),
     ) -> Result<(), RenderError> {
-        place::settle(canvas, self.theme.baseline, obstacles, label, how)
+        place::settle(self.canvas, self.theme.baseline, obstacles, label, how)
     }
 }
 
@@ -123,6 +121,7 @@ pub(crate) fn draw(
         crate::fit::note(canvas, &p.name, std::slice::from_ref(shown))?;
     }
     let n = Namer {
+        canvas,
         theme,
         chart,
         s,
@@ -134,128 +133,122 @@ pub(crate) fn draw(
     let grouped = !s.stacked && !chart.parts.is_empty();
     match naming {
         Naming::Beside { rows, plot_right } if s.stacked => {
-            stacked_beside(canvas, &n, rows, plot_right, obstacles)
+            n.stacked_beside(rows, plot_right, obstacles)
         }
-        Naming::Beside { .. } if grouped => grouped_above(canvas, &n, region, obstacles),
+        Naming::Beside { .. } if grouped => n.grouped_above(region, obstacles),
         Naming::Above { row_top, plot } if s.stacked => {
-            stacked_row(canvas, &n, row_top, (plot.0, region.right), obstacles)
+            n.stacked_row(row_top, (plot.0, region.right), obstacles)
         }
-        Naming::Above { plot, .. } if grouped => {
-            grouped_right(canvas, &n, (plot.1, plot.2), obstacles)
-        }
+        Naming::Above { plot, .. } if grouped => n.grouped_right((plot.1, plot.2), obstacles),
         _ => Ok(()),
     }
 }
 
-/// Stacked vertical bars: names beside the last category with a value for
-/// each part, spread over `rows`, with leaders to their segments.
-fn stacked_beside(
-    canvas: &Canvas,
-    n: &Namer<'_>,
-    (rows_top, value_bottom): (f64, f64),
-    plot_right: f64,
-    obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
-    let wanted = n.segments(true);
-    let ys: Vec<f64> = wanted.iter().map(|w| w.0).collect();
-    let placed = layout::spread(&ys, n.step, rows_top, value_bottom);
-    let x = plot_right + layout::PART_NAMES_PAD;
-    for (&(y0, j, bar_right), y) in wanted.iter().zip(placed) {
-        let Some(label) = n.label(j, x, y - n.lh / 2.0, Align::Start) else {
-            continue;
-        };
-        let lead = |dx: f64, dy: f64| ((bar_right + 3.0, y0), (x - 4.0 + dx, y + dy));
-        let moves = place::shifts(n.step, 2, false, None);
-        n.settle(canvas, obstacles, &label, (&moves, Some((true, &lead))))?;
+impl Namer<'_> {
+    /// Stacked vertical bars: names beside the last category with a value for
+    /// each part, spread over `rows`, with leaders to their segments.
+    fn stacked_beside(
+        &self,
+        (rows_top, value_bottom): (f64, f64),
+        plot_right: f64,
+        obstacles: &mut Obstacles,
+    ) -> Result<(), RenderError> {
+        let wanted = self.segments(true);
+        let ys: Vec<f64> = wanted.iter().map(|w| w.0).collect();
+        let placed = layout::spread(&ys, self.step, rows_top, value_bottom);
+        let x = plot_right + layout::PART_NAMES_PAD;
+        for (&(y0, j, bar_right), y) in wanted.iter().zip(placed) {
+            let Some(label) = self.label(j, x, y - self.lh / 2.0, Align::Start) else {
+                continue;
+            };
+            let lead = |dx: f64, dy: f64| ((bar_right + 3.0, y0), (x - 4.0 + dx, y + dy));
+            let moves = place::shifts(self.step, 2, false, None);
+            self.settle(obstacles, &label, (&moves, Some((true, &lead))))?;
+        }
+        Ok(())
     }
-    Ok(())
-}
 
-/// Grouped vertical bars: rows above the roomiest group, the rightmost
-/// bar's name lowest, so leaders never cross a name.
-fn grouped_above(
-    canvas: &Canvas,
-    n: &Namer<'_>,
-    region: Region,
-    obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
-    let (g, ext, g_top) = n.group(f64::min);
-    let k = n.chart.parts.len();
-    for (j, e) in ext.iter().enumerate() {
-        let row = k - 1 - j;
-        let label_top = g_top - 6.0 - (row as f64 + 1.0) * n.step + 2.0;
-        let (x0, x1) = n.s.across(g, j);
-        let cx = (x0 + x1) / 2.0;
-        let w = text_width(&n.names[j], n.theme.label_size, true);
-        let x = (cx - 2.0).min(region.right - w).max(region.left);
-        let Some(label) = n.label(j, x, label_top, Align::Start) else {
-            continue;
-        };
-        let bar_top = e.map(|e| n.s.vmap(e.1.max(0.0))).unwrap_or(n.zero);
-        // moved up only, so the leader stays on its bar
-        let lead = |_: f64, dy: f64| ((cx, label_top + dy + n.lh + 1.0), (cx, bar_top - 2.0));
-        let moves = place::shifts(n.step, 3, false, Some(-1.0));
-        n.settle(canvas, obstacles, &label, (&moves, Some((false, &lead))))?;
+    /// Grouped vertical bars: rows above the roomiest group, the rightmost
+    /// bar's name lowest, so leaders never cross a name.
+    fn grouped_above(&self, region: Region, obstacles: &mut Obstacles) -> Result<(), RenderError> {
+        let (g, ext, g_top) = self.group(f64::min);
+        let k = self.chart.parts.len();
+        for (j, e) in ext.iter().enumerate() {
+            let row = k - 1 - j;
+            let label_top = g_top - 6.0 - (row as f64 + 1.0) * self.step + 2.0;
+            let (x0, x1) = self.s.across(g, j);
+            let cx = (x0 + x1) / 2.0;
+            let w = text_width(&self.names[j], self.theme.label_size, true);
+            let x = (cx - 2.0).min(region.right - w).max(region.left);
+            let Some(label) = self.label(j, x, label_top, Align::Start) else {
+                continue;
+            };
+            let bar_top = e.map(|e| self.s.vmap(e.1.max(0.0))).unwrap_or(self.zero);
+            // moved up only, so the leader stays on its bar
+            let lead =
+                |_: f64, dy: f64| ((cx, label_top + dy + self.lh + 1.0), (cx, bar_top - 2.0));
+            let moves = place::shifts(self.step, 3, false, Some(-1.0));
+            self.settle(obstacles, &label, (&moves, Some((false, &lead))))?;
+        }
+        Ok(())
     }
-    Ok(())
-}
 
-/// Stacked horizontal bars: a row of names at `row_top` above the first
-/// bar, each over its segment, kept inside `span`.
-fn stacked_row(
-    canvas: &Canvas,
-    n: &Namer<'_>,
-    row_top: f64,
-    (lo, hi): (f64, f64),
-    obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
-    let wanted = n.segments(false);
-    let widths: Vec<f64> = wanted
-        .iter()
-        .map(|w| text_width(&n.names[w.1], n.theme.label_size, true))
-        .collect();
-    let xs: Vec<f64> = wanted.iter().map(|w| w.0).collect();
-    let centres = spread_widths(&xs, &widths, 14.0, lo, hi);
-    for (&(x0, j, bar_top), x) in wanted.iter().zip(centres) {
-        let Some(label) = n.label(j, x, row_top, Align::Middle) else {
-            continue;
-        };
-        let lead = |dx: f64, dy: f64| ((x + dx, row_top + dy + n.lh + 2.0), (x0, bar_top - 2.0));
-        let moves = place::shifts(n.step, 2, false, Some(-1.0));
-        n.settle(canvas, obstacles, &label, (&moves, Some((true, &lead))))?;
+    /// Stacked horizontal bars: a row of names at `row_top` above the first
+    /// bar, each over its segment, kept inside `span`.
+    fn stacked_row(
+        &self,
+        row_top: f64,
+        (lo, hi): (f64, f64),
+        obstacles: &mut Obstacles,
+    ) -> Result<(), RenderError> {
+        let wanted = self.segments(false);
+        let widths: Vec<f64> = wanted
+            .iter()
+            .map(|w| text_width(&self.names[w.1], self.theme.label_size, true))
+            .collect();
+        let xs: Vec<f64> = wanted.iter().map(|w| w.0).collect();
+        let centres = spread_widths(&xs, &widths, 14.0, lo, hi);
+        for (&(x0, j, bar_top), x) in wanted.iter().zip(centres) {
+            let Some(label) = self.label(j, x, row_top, Align::Middle) else {
+                continue;
+            };
+            let lead =
+                |dx: f64, dy: f64| ((x + dx, row_top + dy + self.lh + 2.0), (x0, bar_top - 2.0));
+            let moves = place::shifts(self.step, 2, false, Some(-1.0));
+            self.settle(obstacles, &label, (&moves, Some((true, &lead))))?;
+        }
+        Ok(())
     }
-    Ok(())
-}
 
-/// Grouped horizontal bars: names right of the roomiest group, one per
-/// bar, spread apart inside the plot's `top..bottom`.
-fn grouped_right(
-    canvas: &Canvas,
-    n: &Namer<'_>,
-    (plot_top, plot_bottom): (f64, f64),
-    obstacles: &mut Obstacles,
-) -> Result<(), RenderError> {
-    let (g, ext, end) = n.group(f64::max);
-    let x = end + 8.0;
-    let wanted: Vec<f64> = (0..n.chart.parts.len())
-        .map(|j| {
-            let (y0, y1) = n.s.across(g, j);
-            (y0 + y1) / 2.0
-        })
-        .collect();
-    let (lo, hi) = (plot_top + n.lh / 2.0, plot_bottom - n.lh / 2.0);
-    let placed = layout::spread(&wanted, n.step, lo, hi);
-    let moved = placed.iter().zip(&wanted).any(|(p, w)| (p - w).abs() > 0.5);
-    for (j, y) in placed.into_iter().enumerate() {
-        // Beside its own bar when the names fit the bars' rows; else all
-        // past the longest bar of the group.
-        let own = ext[j].map(|e| n.s.vmap(e.1.max(0.0)) + 8.0).unwrap_or(x);
-        let x = if moved { x } else { own };
-        let Some(label) = n.label(j, x, y - n.lh / 2.0, Align::Start) else {
-            continue;
-        };
-        let moves = place::shifts(n.step, 3, true, Some(1.0));
-        n.settle(canvas, obstacles, &label, (&moves, None))?;
+    /// Grouped horizontal bars: names right of the roomiest group, one per
+    /// bar, spread apart inside the plot's `top..bottom`.
+    fn grouped_right(
+        &self,
+        (plot_top, plot_bottom): (f64, f64),
+        obstacles: &mut Obstacles,
+    ) -> Result<(), RenderError> {
+        let (g, ext, end) = self.group(f64::max);
+        let x = end + 8.0;
+        let wanted: Vec<f64> = (0..self.chart.parts.len())
+            .map(|j| {
+                let (y0, y1) = self.s.across(g, j);
+                (y0 + y1) / 2.0
+            })
+            .collect();
+        let (lo, hi) = (plot_top + self.lh / 2.0, plot_bottom - self.lh / 2.0);
+        let placed = layout::spread(&wanted, self.step, lo, hi);
+        let moved = placed.iter().zip(&wanted).any(|(p, w)| (p - w).abs() > 0.5);
+        for (j, y) in placed.into_iter().enumerate() {
+            // Beside its own bar when the names fit the bars' rows; else all
+            // past the longest bar of the group.
+            let own = ext[j].map(|e| self.s.vmap(e.1.max(0.0)) + 8.0).unwrap_or(x);
+            let x = if moved { x } else { own };
+            let Some(label) = self.label(j, x, y - self.lh / 2.0, Align::Start) else {
+                continue;
+            };
+            let moves = place::shifts(self.step, 3, true, Some(1.0));
+            self.settle(obstacles, &label, (&moves, None))?;
+        }
+        Ok(())
     }
-    Ok(())
 }

@@ -9,7 +9,7 @@
 //! their space empty; nothing else moves. Where parts sit is
 //! `part_slots.rs`, how they are named `part_names.rs`.
 
-use crate::band::{self, Band, VALUE_GAP};
+use crate::band::{self, VALUE_GAP};
 use crate::band_axes::{self, Surface};
 use crate::canvas::{Align, Canvas};
 use crate::fit;
@@ -85,15 +85,14 @@ fn fit_scale(
 
 pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PartsChart, region: Region) -> Drawn {
     layout::check_axis(&chart.value, "value")?;
-    let mut obstacles = Obstacles::default();
     let on = Surface {
         canvas,
         theme,
         region,
     };
-    let (s, cats, across, naming) = match chart.orientation {
-        Orientation::Vertical => vertical(on, chart, &mut obstacles)?,
-        Orientation::Horizontal => horizontal(on, chart, &mut obstacles)?,
+    let (s, cats, across, naming, mut obstacles) = match chart.orientation {
+        Orientation::Vertical => vertical(on, chart)?,
+        Orientation::Horizontal => horizontal(on, chart)?,
     };
     categories(canvas, theme, chart, &s, cats, &mut obstacles)?;
     let zero = s.vmap(0.0);
@@ -103,8 +102,9 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &PartsChart, region: R
 }
 
 /// What a layout hands to the drawing: the slots, how category names are
-/// set, the baseline's extent across the bands and where part names go.
-type Frame = (Slots, Categories, (f64, f64), Naming);
+/// set, the baseline's extent across the bands, where part names go, and
+/// the texts placed so far (for the names and labels still to place).
+type Frame = (Slots, Categories, (f64, f64), Naming, Obstacles);
 
 /// How category names are set: at most `lines` lines `width` wide, from
 /// `start` (the top of the names under vertical bars, the right edge of the
@@ -175,12 +175,9 @@ fn categories(
 
 /// Vertical bars: value ticks at the left, names under the bars, part
 /// names beside the last bar (stacked) or above the roomiest group.
-fn vertical(
-    on: Surface,
-    chart: &PartsChart,
-    obstacles: &mut Obstacles,
-) -> Result<Frame, RenderError> {
-    let (canvas, theme) = (on.canvas, on.theme);
+fn vertical(on: Surface, chart: &PartsChart) -> Result<Frame, RenderError> {
+    let mut obstacles = Obstacles::default();
+    let theme = on.theme;
     let lh = line_height(theme.label_size);
     let step = theme.label_step();
     let dom = domain(chart);
@@ -196,7 +193,7 @@ fn vertical(
     };
     let labels: Vec<&str> = chart.categories.iter().map(|c| c.label.as_str()).collect();
     let cat = chart.category_title.as_deref();
-    let u = band_axes::upright(on, obstacles, &chart.value, cat, &labels, label_col)?;
+    let u = band_axes::upright(on, &mut obstacles, &chart.value, cat, &labels, label_col)?;
     let top = u.top;
     let mut value_bottom = u.names_top - 10.0;
     if dom[0] < 0.0 && stacked {
@@ -222,13 +219,8 @@ fn vertical(
     } else {
         top + lh / 2.0 + 2.0
     };
-    canvas.plot((u.plot.0, plot_top), (u.plot.1, value_bottom))?;
-    u.value_axis(canvas, obstacles, theme, &chart.value, vmap)?;
-    let bands = Band {
-        orientation: Orientation::Vertical,
-        start: u.plot.0,
-        size: u.band,
-    };
+    let ends = (plot_top, value_bottom);
+    let bands = u.plot_bands(on, &mut obstacles, &chart.value, vmap, ends)?;
     let bar_w = if stacked {
         (u.band * BAR_SHARE).min(140.0)
     } else {
@@ -244,16 +236,13 @@ fn vertical(
         rows: (value_top.min(top + lh / 2.0), value_bottom),
         plot_right: u.plot.1,
     };
-    Ok((s, cats, u.plot, naming))
+    Ok((s, cats, u.plot, naming, obstacles))
 }
 
 /// Horizontal bars: names in a column at the left, value ticks under,
 /// part names in a row above (stacked) or right of the roomiest group.
-fn horizontal(
-    on: Surface,
-    chart: &PartsChart,
-    obstacles: &mut Obstacles,
-) -> Result<Frame, RenderError> {
+fn horizontal(on: Surface, chart: &PartsChart) -> Result<Frame, RenderError> {
+    let mut obstacles = Obstacles::default();
     let (theme, region) = (on.theme, on.region);
     let lh = line_height(theme.label_size);
     let dom = domain(chart);
@@ -261,7 +250,7 @@ fn horizontal(
     let k = chart.parts.len();
     let titles = (chart.category_title.as_deref(), chart.value.title.is_some());
     let names_row = if stacked { lh + 12.0 } else { 0.0 };
-    let l = band_axes::lying(on, obstacles, titles, names_row)?;
+    let l = band_axes::lying(on, &mut obstacles, titles, names_row)?;
     let (plot_top, plot_bottom) = (l.plot_top, l.plot_bottom);
 
     let names = chart.categories.iter().map(|c| c.label.as_str());
@@ -287,7 +276,7 @@ fn horizontal(
     let over = |x: f64| x + 8.0 + names_w - region.right;
     let value_right = fit_scale(chart, dom, value_left, plot.1 - right_pad, -1.0, over);
     let values = (value_left, value_right);
-    let bands = l.plot(on, obstacles, &col, (&chart.value, dom), values)?;
+    let bands = l.plot(on, &mut obstacles, &col, (&chart.value, dom), values)?;
     let bar_h = if stacked {
         (band * BAR_SHARE).min(56.0)
     } else {
@@ -303,5 +292,5 @@ fn horizontal(
         row_top: l.names_row_top,
         plot: (plot.0, plot_top, plot_bottom),
     };
-    Ok((s, cats, (plot_top, plot_bottom), naming))
+    Ok((s, cats, (plot_top, plot_bottom), naming, obstacles))
 }

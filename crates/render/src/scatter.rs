@@ -57,12 +57,12 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
     layout::check_axis(&chart.y, "y")?;
     let lh = line_height(theme.label_size);
     let reserve = region.label_gutter;
-    let l = axis::xy_layout(&chart.x, &chart.y, region, reserve, theme.label_size, true);
+    let l = axis::xy_layout(&chart.x, &chart.y, region, reserve, theme.label_size);
     let mut obstacles = Obstacles::default();
-    canvas.plot((l.plot_left, l.plot_top), (l.plot_right, l.plot_bottom))?;
-    axis::draw_xy_axes(canvas, theme, &chart.x, &chart.y, &l, true, &mut obstacles)?;
-    let xmap = |x: f64| map(x, chart.x.domain, l.plot_left, l.plot_right);
-    let ymap = |y: f64| map(y, chart.y.domain, l.plot_bottom, l.plot_top);
+    canvas.plot((l.plot.x0, l.plot.y0), (l.plot.x1, l.plot.y1))?;
+    axis::draw_xy_axes(canvas, theme, &chart.x, &chart.y, &l, &mut obstacles)?;
+    let xmap = |x: f64| map(x, chart.x.domain, l.plot.x0, l.plot.x1);
+    let ymap = |y: f64| map(y, chart.y.domain, l.plot.y1, l.plot.y0);
     let finite: Vec<_> = chart
         .points
         .iter()
@@ -81,8 +81,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
         if lo < hi && fit.slope.is_finite() && fit.intercept.is_finite() {
             let a = (xmap(lo), ymap(fit.intercept + fit.slope * lo));
             let b = (xmap(hi), ymap(fit.intercept + fit.slope * hi));
-            let plot = rect(l.plot_left, l.plot_top, l.plot_right, l.plot_bottom);
-            if let Some((a, b)) = plot.clip(a, b) {
+            if let Some((a, b)) = l.plot.clip(a, b) {
                 canvas.line(a, b, theme.context, 2)?;
                 obstacles.segments.push((a, b));
                 fit_segment = Some((a, b));
@@ -113,12 +112,7 @@ pub(crate) fn draw(canvas: &Canvas, theme: &Theme, chart: &ScatterChart, region:
     // are few, else the focus points'. A label with no free spot is left
     // out rather than drawn over another text. (Kept small and local: the
     // candidates and the scoring are the whole placer.)
-    let bounds = rect(
-        l.plot_left,
-        l.plot_top - lh / 2.0,
-        l.plot_right,
-        l.plot_bottom - 2.0,
-    );
+    let bounds = rect(l.plot.x0, l.plot.y0 - lh / 2.0, l.plot.x1, l.plot.y1 - 2.0);
     let labelled = finite
         .iter()
         .filter(|p| p.role != Role::Hidden && !p.label.is_empty())

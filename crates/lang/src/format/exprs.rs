@@ -4,15 +4,21 @@
 use super::Printer;
 use crate::ast::*;
 
-// Precedence levels of expressions (higher binds tighter).
-const P_OR: u8 = 1;
-const P_AND: u8 = 2;
-const P_NOT: u8 = 3;
-const P_CMP: u8 = 4;
-const P_SUM: u8 = 5;
-const P_MUL: u8 = 6;
-const P_NEG: u8 = 7;
-const P_ATOM: u8 = 8;
+/// Precedence levels of expressions, loosest first (a later level binds
+/// tighter). `Top` is the place of a whole expression: nothing needs
+/// parentheses there.
+#[derive(Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+enum Prec {
+    Top,
+    Or,
+    And,
+    Not,
+    Cmp,
+    Sum,
+    Mul,
+    Neg,
+    Atom,
+}
 
 impl Printer<'_> {
     fn open(&mut self, need: bool) {
@@ -29,11 +35,11 @@ impl Printer<'_> {
 
     /// An expression at the top of its place (no parentheses around it).
     pub(super) fn top_expr(&mut self, e: &Expr) {
-        self.expr(e, 0);
+        self.expr(e, Prec::Top);
     }
 
     /// An expression; parenthesised when it binds looser than `min`.
-    fn expr(&mut self, e: &Expr, min: u8) {
+    fn expr(&mut self, e: &Expr, min: Prec) {
         let paren = prec(e) < min;
         self.open(paren);
         match e {
@@ -42,14 +48,16 @@ impl Printer<'_> {
             Expr::Text(s) => self.raw(&s.span),
             Expr::Neg { expr, .. } => {
                 self.s("-");
-                self.expr(expr, P_NEG);
+                self.expr(expr, Prec::Neg);
             }
             Expr::Not { expr, .. } => {
                 self.s("not ");
-                self.expr(expr, P_NOT);
+                self.expr(expr, Prec::Not);
             }
             Expr::Chain { first, rest, .. } => {
-                let (l, r) = rest.first().map_or((0, 0), |link| sides(link.op));
+                let (l, r) = rest
+                    .first()
+                    .map_or((Prec::Top, Prec::Top), |link| sides(link.op));
                 self.expr(first, l);
                 for link in rest {
                     self.s(" ");
@@ -61,11 +69,11 @@ impl Printer<'_> {
             Expr::Compare {
                 op, left, right, ..
             } => {
-                self.expr(left, P_SUM);
+                self.expr(left, Prec::Sum);
                 self.s(" ");
                 self.s(op.symbol());
                 self.s(" ");
-                self.expr(right, P_SUM);
+                self.expr(right, Prec::Sum);
             }
             Expr::In {
                 expr,
@@ -79,9 +87,9 @@ impl Printer<'_> {
                 tolerance,
                 ..
             } => {
-                self.expr(left, P_SUM);
+                self.expr(left, Prec::Sum);
                 self.s(" about ");
-                self.expr(right, P_SUM);
+                self.expr(right, Prec::Sum);
                 self.s(" within ");
                 self.raw(&tolerance.span);
             }
@@ -92,7 +100,7 @@ impl Printer<'_> {
 
     /// `expr [not] in (a, b, ...)`, keeping the list's line breaks.
     fn in_list(&mut self, expr: &Expr, list: &[Expr], negated: bool) {
-        self.expr(expr, P_SUM);
+        self.expr(expr, Prec::Sum);
         self.s(if negated { " not in (" } else { " in (" });
         let open_at = list.first().map_or(0, |x| x.span().start);
         let paren_at = self.src[..open_at].rfind('(').map_or(open_at, |p| p + 1);
@@ -102,7 +110,7 @@ impl Printer<'_> {
             } else {
                 self.gap(",", list[i - 1].span().end, x.span().start, true);
             }
-            self.expr(x, P_ATOM);
+            self.expr(x, Prec::Atom);
         }
         self.s(")");
     }
@@ -122,7 +130,7 @@ impl Printer<'_> {
             }
             match a {
                 CallArg::Selection(s) => self.selection(s),
-                CallArg::Value(v) => self.expr(v, 0),
+                CallArg::Value(v) => self.expr(v, Prec::Top),
             }
         }
         self.s(")");
@@ -131,40 +139,41 @@ impl Printer<'_> {
     fn selection(&mut self, s: &Selection) {
         self.raw(&s.view.span);
         if let Some(c) = &s.column {
-            self.s(".");
-            self.raw(&c.span);
+            self.put(".", c);
         }
         self.opt(" by ", s.by.as_ref());
         if let Some(f) = &s.filter {
             self.s(" where ");
-            self.expr(f, 0);
+            self.expr(f, Prec::Top);
         }
     }
 }
 
 /// Minimum precedence of the left and right operand of a binary operator
 /// (operators are left-associative; comparisons do not chain).
-fn sides(op: BinOp) -> (u8, u8) {
+fn sides(op: BinOp) -> (Prec, Prec) {
     match op {
-        BinOp::Or => (P_OR, P_AND),
-        BinOp::And => (P_AND, P_NOT),
-        BinOp::Add | BinOp::Sub => (P_SUM, P_MUL),
-        BinOp::Mul | BinOp::Div => (P_MUL, P_NEG),
-        BinOp::Eq | BinOp::Ne | BinOp::Lt | BinOp::Le | BinOp::Gt | BinOp::Ge => (P_SUM, P_SUM),
+        BinOp::Or => (Prec::Or, Prec::And),
+        BinOp::And => (Prec::And, Prec::Not),
+        BinOp::Add | BinOp::Sub => (Prec::Sum, Prec::Mul),
+        BinOp::Mul | BinOp::Div => (Prec::Mul, Prec::Neg),
+        BinOp::Eq | BinOp::Ne | BinOp::Lt | BinOp::Le | BinOp::Gt | BinOp::Ge => {
+            (Prec::Sum, Prec::Sum)
+        }
     }
 }
 
-fn prec(e: &Expr) -> u8 {
+fn prec(e: &Expr) -> Prec {
     match e {
-        Expr::Name(_) | Expr::Number { .. } | Expr::Text(_) | Expr::Call { .. } => P_ATOM,
-        Expr::Neg { .. } => P_NEG,
-        Expr::Not { .. } => P_NOT,
-        Expr::Compare { .. } | Expr::In { .. } | Expr::About { .. } => P_CMP,
+        Expr::Name(_) | Expr::Number { .. } | Expr::Text(_) | Expr::Call { .. } => Prec::Atom,
+        Expr::Neg { .. } => Prec::Neg,
+        Expr::Not { .. } => Prec::Not,
+        Expr::Compare { .. } | Expr::In { .. } | Expr::About { .. } => Prec::Cmp,
         Expr::Chain { rest, .. } => match rest.first().map(|l| l.op) {
-            Some(BinOp::Or) => P_OR,
-            Some(BinOp::And) => P_AND,
-            Some(BinOp::Mul | BinOp::Div) => P_MUL,
-            _ => P_SUM,
+            Some(BinOp::Or) => Prec::Or,
+            Some(BinOp::And) => Prec::And,
+            Some(BinOp::Mul | BinOp::Div) => Prec::Mul,
+            _ => Prec::Sum,
         },
     }
 }

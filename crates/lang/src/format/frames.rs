@@ -5,8 +5,7 @@ use crate::ast::*;
 
 impl Printer<'_> {
     pub(super) fn frame(&mut self, f: &FrameDecl) {
-        self.s("frame ");
-        self.raw(&f.headline.span);
+        self.put("frame ", &f.headline);
         let open = self.src[f.headline.span.end..]
             .find('{')
             .map_or(f.headline.span.end, |o| f.headline.span.end + o);
@@ -53,8 +52,7 @@ impl Printer<'_> {
                         self.gap(",", cells[i - 1].1.span.end, name.span.start, true);
                     }
                     self.raw(&name.span);
-                    self.s(" in ");
-                    self.raw(&col.span);
+                    self.put(" in ", col);
                 }
             }
         }
@@ -77,8 +75,7 @@ impl Printer<'_> {
         match st {
             FrameStmt::Chart(c) => {
                 self.s(c.form.keyword());
-                self.s(" ");
-                self.raw(&c.view.span);
+                self.put(" ", &c.view);
                 for (i, o) in c.opts.iter().enumerate() {
                     if i == 0 {
                         self.s(": ");
@@ -91,14 +88,11 @@ impl Printer<'_> {
                 }
             }
             FrameStmt::Draw(d) => {
-                self.s("draw ");
-                self.raw(&d.plugin.span);
+                self.put("draw ", &d.plugin);
                 if let Some(form) = &d.form {
-                    self.s(".");
-                    self.raw(&form.span);
+                    self.put(".", form);
                 }
-                self.s(" ");
-                self.raw(&d.view.span);
+                self.put(" ", &d.view);
                 for (i, (opt, col)) in d.opts.iter().enumerate() {
                     if i == 0 {
                         self.s(": ");
@@ -106,14 +100,12 @@ impl Printer<'_> {
                         self.gap(",", d.opts[i - 1].1.span.end, opt.span.start, true);
                     }
                     self.raw(&opt.span);
-                    self.s(" ");
-                    self.raw(&col.span);
+                    self.put(" ", col);
                 }
             }
             FrameStmt::AxisTitle { axis, text, .. } => {
                 self.s(axis_kw(*axis));
-                self.s(" title ");
-                self.raw(&text.span);
+                self.put(" title ", text);
             }
             FrameStmt::Show { targets, .. } => {
                 self.s("show ");
@@ -128,12 +120,10 @@ impl Printer<'_> {
                 self.targets(targets);
             }
             FrameStmt::Takeaway { text, .. } => {
-                self.s("takeaway ");
-                self.raw(&text.span);
+                self.put("takeaway ", text);
             }
             FrameStmt::Notes { text, .. } => {
-                self.s("notes ");
-                self.raw(&text.span);
+                self.put("notes ", text);
             }
             FrameStmt::Range { axis, span, .. } => {
                 self.s(axis_kw(*axis));
@@ -144,14 +134,11 @@ impl Printer<'_> {
             }
             FrameStmt::Allow(a) => self.allow(a),
             FrameStmt::Figure { text, caption, .. } => {
-                self.s("figure ");
-                self.raw(&text.span);
-                self.s(" ");
-                self.raw(&caption.span);
+                self.put("figure ", text);
+                self.put(" ", caption);
             }
             FrameStmt::Split(s) => {
-                self.s("split ");
-                self.raw(&s.key.span);
+                self.put("split ", &s.key);
                 match s.descending {
                     Some(true) => self.s(" descending"),
                     Some(false) => self.s(" ascending"),
@@ -200,8 +187,7 @@ impl Printer<'_> {
                 self.s("callout ");
                 self.position(at);
                 self.opt(" on ", on.as_ref());
-                self.s(" ");
-                self.raw(&text.span);
+                self.put(" ", text);
             }
             FrameStmt::Band { from, to, text, .. } => {
                 self.s("band ");
@@ -213,8 +199,7 @@ impl Printer<'_> {
             FrameStmt::Reference { value, text, .. } => {
                 self.s("reference ");
                 self.position(value);
-                self.s(" ");
-                self.raw(&text.span);
+                self.put(" ", text);
             }
             FrameStmt::Moment {
                 at, until, text, ..
@@ -225,12 +210,10 @@ impl Printer<'_> {
                     self.s(" to ");
                     self.position(u);
                 }
-                self.s(" ");
-                self.raw(&text.span);
+                self.put(" ", text);
             }
             FrameStmt::Cite { value, .. } => {
-                self.s("cite ");
-                self.raw(&value.span);
+                self.put("cite ", value);
             }
             _ => {}
         }

@@ -31,8 +31,7 @@ impl Printer<'_> {
             Item::Style(t) => self.text_item("style", &t.text.span),
             Item::Locale(t) => self.text_item("locale", &t.text.span),
             Item::Fiscal { month, .. } => {
-                self.s("fiscal year starts ");
-                self.raw(&month.span);
+                self.put("fiscal year starts ", month);
             }
             Item::FiscalNames(FiscalNamesDecl { names, .. }) => {
                 self.s("fiscal names ");
@@ -41,44 +40,36 @@ impl Printer<'_> {
                         self.s(", ");
                     }
                     self.s(n.part.word());
-                    self.s(" ");
-                    self.raw(&n.text.span);
+                    self.put(" ", &n.text);
                 }
             }
             Item::Theme { name, .. } => {
-                self.s("theme ");
-                self.raw(&name.span);
+                self.put("theme ", name);
             }
             Item::Data(d) => self.data(d),
             Item::View(v) => self.view(v),
             Item::Compare(c) => {
-                self.s("compare ");
-                self.raw(&c.key.span);
-                self.s(" by ");
-                self.raw(&c.measure.span);
+                self.put("compare ", &c.key);
+                self.put(" by ", &c.measure);
             }
             Item::Focus { names, .. } => {
                 self.s("focus ");
                 self.strs(names);
             }
             Item::Value(v) => {
-                self.s("value ");
-                self.raw(&v.name.span);
+                self.put("value ", &v.name);
                 self.s(" = ");
                 self.top_expr(&v.expr);
             }
             Item::Claim(c) => {
                 self.s("claim ");
                 self.top_expr(&c.condition);
-                self.s(" ");
-                self.raw(&c.sentence.span);
+                self.put(" ", &c.sentence);
             }
             Item::Allow(a) => self.allow(a),
             Item::Plugin(p) => {
-                self.s("use plugin ");
-                self.raw(&p.path.span);
-                self.s(" as ");
-                self.raw(&p.alias.span);
+                self.put("use plugin ", &p.path);
+                self.put(" as ", &p.alias);
                 self.opt(" sha256 ", p.pin.as_ref());
             }
             Item::Frame(f) => self.frame(f),
@@ -86,10 +77,8 @@ impl Printer<'_> {
     }
 
     pub(super) fn allow(&mut self, a: &AllowDecl) {
-        self.s("allow ");
-        self.raw(&a.rule.span);
-        self.s(" ");
-        self.raw(&a.reason.span);
+        self.put("allow ", &a.rule);
+        self.put(" ", &a.reason);
     }
 
     /// `"A", "B", ...` keeping the author's line breaks.
@@ -126,8 +115,7 @@ impl Printer<'_> {
             cells,
             span: _,
         } = d;
-        self.s("data ");
-        self.raw(&name.span);
+        self.put("data ", name);
         self.s(" from ");
         match database {
             None => self.raw(&file.span),
@@ -147,12 +135,10 @@ impl Printer<'_> {
                         self.raw(&name.span);
                     }
                     DbFrom::Query(q) => {
-                        self.s("query ");
-                        self.raw(&q.span);
+                        self.put("query ", q);
                     }
                 }
-                self.s(" via ");
-                self.raw(&env.span);
+                self.put(" via ", env);
                 if !order.is_empty() {
                     self.s(" in order of ");
                     self.idents(order);
@@ -213,15 +199,12 @@ impl Printer<'_> {
 
     fn column(&mut self, c: &ColumnDecl) {
         self.raw(&c.name.span);
-        self.s(": ");
-        self.raw(&c.ty.span);
+        self.put(": ", &c.ty);
     }
 
     fn view(&mut self, v: &ViewDecl) {
-        self.s("view ");
-        self.raw(&v.name.span);
-        self.s(" = ");
-        self.raw(&v.input.span);
+        self.put("view ", &v.name);
+        self.put(" = ", &v.input);
         self.last_end = v.input.span.end;
         self.level += 1;
         for step in &v.steps {
@@ -258,8 +241,7 @@ impl Printer<'_> {
                         self.gap(",", aggregates[i - 1].span.end, a.span.start, true);
                     }
                     self.raw(&a.name.span);
-                    self.s(" = ");
-                    self.raw(&a.func.span);
+                    self.put(" = ", &a.func);
                     self.s("(");
                     if let Some(c) = &a.column {
                         self.raw(&c.span);
@@ -268,8 +250,7 @@ impl Printer<'_> {
                 }
             }
             StepAst::Add { name, expr, .. } => {
-                self.s("add ");
-                self.raw(&name.span);
+                self.put("add ", name);
                 self.s(" = ");
                 self.top_expr(expr);
             }
@@ -294,10 +275,8 @@ impl Printer<'_> {
             } => {
                 self.s("top ");
                 self.raw(n_span);
-                self.s(" ");
-                self.raw(&key.span);
-                self.s(" by ");
-                self.raw(&by.span);
+                self.put(" ", key);
+                self.put(" by ", by);
                 self.opt(" rest ", rest.as_ref());
             }
             StepAst::Columns { names, .. } => {

@@ -197,9 +197,14 @@ impl<'a> Printer<'a> {
     /// (` sheet "Q1"`, ` by region`).
     fn opt<N: Node>(&mut self, word: &str, node: Option<&N>) {
         if let Some(node) = node {
-            self.s(word);
-            self.raw(node.span());
+            self.put(word, node);
         }
+    }
+
+    /// `word` and the node's source text (`theme `, `classic`).
+    fn put(&mut self, word: &str, node: &impl Node) {
+        self.s(word);
+        self.raw(node.span());
     }
 
     fn indent(&mut self) {

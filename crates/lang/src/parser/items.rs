@@ -3,7 +3,7 @@
 
 use pest::iterators::Pair;
 
-use super::{children, internal, Conv, Res, Rule};
+use super::{children, internal, nth, Conv, Res, Rule};
 use crate::ast::*;
 
 impl Conv<'_> {
@@ -26,6 +26,7 @@ impl Conv<'_> {
         fn last<'i>(inner: &mut Vec<Pair<'i, Rule>>, span: &Span) -> Res<Pair<'i, Rule>> {
             inner.pop().ok_or_else(|| internal(span))
         }
+        let part = |i: usize| nth(&inner, i, &span);
         Ok(match rule {
             Rule::title_item => Item::Title(self.text_item(last(&mut inner, &span)?, &span)),
             Rule::byline_item => Item::Byline(self.text_item(last(&mut inner, &span)?, &span)),
@@ -67,18 +68,14 @@ impl Conv<'_> {
                 span,
             },
             Rule::data_item => Item::Data(self.data_item(inner, span)?),
-            Rule::view_item => {
-                let mut it = inner.into_iter().skip(1);
-                let name = self.ident(it.next().ok_or_else(|| internal(&span))?);
-                let input = self.ident(it.next().ok_or_else(|| internal(&span))?);
-                let steps = it.map(|p| self.step(p)).collect::<Res<Vec<_>>>()?;
-                Item::View(ViewDecl {
-                    name,
-                    input,
-                    steps,
-                    span,
-                })
-            }
+            Rule::view_item => Item::View(ViewDecl {
+                name: self.ident(part(1)?),
+                input: self.ident(part(2)?),
+                steps: (inner[3..].iter())
+                    .map(|p| self.step(p.clone()))
+                    .collect::<Res<_>>()?,
+                span,
+            }),
             Rule::compare_item => {
                 let key = self.ident(inner.remove(1));
                 let measure = self.ident(inner.remove(2));
@@ -92,32 +89,23 @@ impl Conv<'_> {
                     .collect(),
                 span,
             },
-            Rule::value_item => {
-                let mut it = inner.into_iter().skip(1);
-                let name = self.ident(it.next().ok_or_else(|| internal(&span))?);
-                let expr = self.expr(it.next().ok_or_else(|| internal(&span))?)?;
-                Item::Value(ValueDecl { name, expr, span })
-            }
-            Rule::claim_item => {
-                let mut it = inner.into_iter().skip(1);
-                let condition = self.expr(it.next().ok_or_else(|| internal(&span))?)?;
-                let sentence = self.string(it.next().ok_or_else(|| internal(&span))?);
-                Item::Claim(ClaimDecl {
-                    condition,
-                    sentence,
-                    span,
-                })
-            }
-            Rule::frame_item => {
-                let mut it = inner.into_iter().skip(1);
-                let headline = self.text(it.next().ok_or_else(|| internal(&span))?);
-                let stmts = it.map(|p| self.frame_stmt(p)).collect::<Res<Vec<_>>>()?;
-                Item::Frame(FrameDecl {
-                    headline,
-                    stmts,
-                    span,
-                })
-            }
+            Rule::value_item => Item::Value(ValueDecl {
+                name: self.ident(part(1)?),
+                expr: self.expr(part(2)?)?,
+                span,
+            }),
+            Rule::claim_item => Item::Claim(ClaimDecl {
+                condition: self.expr(part(1)?)?,
+                sentence: self.string(part(2)?),
+                span,
+            }),
+            Rule::frame_item => Item::Frame(FrameDecl {
+                headline: self.text(part(1)?),
+                stmts: (inner[2..].iter())
+                    .map(|p| self.frame_stmt(p.clone()))
+                    .collect::<Res<_>>()?,
+                span,
+            }),
             _ => return Err(internal(&span)),
         })
     }
@@ -154,10 +142,18 @@ impl Conv<'_> {
         } else {
             (self.string(source), None)
         };
-        let mut missing = None;
-        let mut columns = Vec::new();
-        let (mut sheet, mut cells) = (None, None);
-        let (mut thousands, mut decimal) = (None, None);
+        let mut decl = DataDecl {
+            name,
+            file,
+            database,
+            span,
+            missing: None,
+            thousands: None,
+            decimal: None,
+            sheet: None,
+            cells: None,
+            columns: Vec::new(),
+        };
         for p in it {
             match p.as_rule() {
                 rule @ (Rule::sheet_clause
@@ -167,15 +163,16 @@ impl Conv<'_> {
                     let s = children(p)
                         .find(|q| q.as_rule() == Rule::string)
                         .map(|q| Box::new(self.string(q)));
-                    match rule {
-                        Rule::sheet_clause => sheet = s,
-                        Rule::cells_clause => cells = s,
-                        Rule::thousands_clause => thousands = s,
-                        _ => decimal = s,
-                    }
+                    let clause = match rule {
+                        Rule::sheet_clause => &mut decl.sheet,
+                        Rule::cells_clause => &mut decl.cells,
+                        Rule::thousands_clause => &mut decl.thousands,
+                        _ => &mut decl.decimal,
+                    };
+                    *clause = s;
                 }
                 Rule::missing_clause => {
-                    missing = Some(
+                    decl.missing = Some(
                         children(p)
                             .filter(|q| q.as_rule() == Rule::string)
                             .map(|q| self.string(q))
@@ -184,14 +181,10 @@ impl Conv<'_> {
                 }
                 Rule::column_block => {
                     for c in children(p) {
-                        let cspan = self.span_of(&c);
-                        let mut ci = children(c);
-                        let (Some(n), Some(t)) = (ci.next(), ci.next()) else {
-                            return Err(internal(&cspan));
-                        };
-                        columns.push(ColumnDecl {
-                            name: self.ident(n),
-                            ty: self.ident(t),
+                        let (cspan, _, parts) = self.open(c);
+                        decl.columns.push(ColumnDecl {
+                            name: self.ident(nth(&parts, 0, &cspan)?),
+                            ty: self.ident(nth(&parts, 1, &cspan)?),
                             span: cspan,
                         });
                     }
@@ -199,18 +192,7 @@ impl Conv<'_> {
                 _ => {}
             }
         }
-        Ok(DataDecl {
-            name,
-            file,
-            missing,
-            thousands,
-            decimal,
-            columns,
-            span,
-            sheet,
-            cells,
-            database,
-        })
+        Ok(decl)
     }
 
     /// A `db_source`: the string that names the table or holds the query

@@ -60,15 +60,11 @@ impl Conv<'_> {
             match p.as_rule() {
                 Rule::ident => keys.push(self.ident(p)),
                 Rule::aggregate => {
-                    let aspan = self.span_of(&p);
-                    let mut a = children(p);
-                    let (Some(n), Some(f)) = (a.next(), a.next()) else {
-                        return Err(internal(&aspan));
-                    };
+                    let (aspan, _, parts) = self.open(p);
                     aggregates.push(AggregateAst {
-                        name: self.ident(n),
-                        func: self.ident(f),
-                        column: a.next().map(|c| self.ident(c)),
+                        name: self.ident(nth(&parts, 0, &aspan)?),
+                        func: self.ident(nth(&parts, 1, &aspan)?),
+                        column: parts.get(2).map(|c| self.ident(c.clone())),
                         span: aspan,
                     });
                 }

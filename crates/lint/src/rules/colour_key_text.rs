@@ -15,7 +15,7 @@ const MARKS: &[&str] = &[
 ];
 
 /// The first "COLOUR MARK" or "in COLOUR" phrase of a text, if any.
-fn colour_phrase(text: &str) -> Option<String> {
+pub(super) fn colour_phrase(text: &str) -> Option<String> {
     let words: Vec<String> = text
         .split(|c: char| !c.is_alphanumeric())
         .filter(|w| !w.is_empty())
@@ -53,22 +53,5 @@ fn check(input: &Input, out: &mut Vec<Finding>) {
                 });
             }
         }
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    #[test]
-    fn colour_phrases() {
-        assert_eq!(
-            super::colour_phrase("The orange line pulled away").as_deref(),
-            Some("orange line")
-        );
-        assert_eq!(
-            super::colour_phrase("shown in Blue.").as_deref(),
-            Some("in blue")
-        );
-        assert_eq!(super::colour_phrase("Greyhound buses rose"), None);
-        assert_eq!(super::colour_phrase("Green Park leads"), None);
     }
 }

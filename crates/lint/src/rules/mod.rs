@@ -38,6 +38,9 @@ mod ticks_crowded;
 mod trailing_zeros;
 mod util;
 
+#[cfg(test)]
+mod tests;
+
 use crate::Rule;
 
 pub use focus_confusable::THRESHOLD as CONFUSABLE_THRESHOLD;
