@@ -15,6 +15,7 @@
 //! key; a group whose first row held `-0` keeps it (a short side list), so
 //! the output is bit for bit the table engine's.
 
+use crate::dict::{Dict, NO_TEXT};
 use crate::hash::hash_bytes;
 use crate::keys::prefetch;
 pub(crate) use crate::keys::KeyIndex;
@@ -510,22 +511,11 @@ impl Groups {
         // the keys are only read from now on
         self.keys.drop_table();
         let n = self.len();
-        let mut keys: Vec<Values> = vec![Values::new(); key_cols.len()];
-        let mut zeros = self.negative_zero.iter().peekable();
-        for g in 0..n {
-            let mut bytes = self.keys.key(g);
-            for (j, col) in keys.iter_mut().enumerate() {
-                let (cell, rest) = decode_key(bytes);
-                bytes = rest;
-                let negative = zeros.peek().is_some_and(|&&(zg, zj)| zg == g && zj == j);
-                if negative {
-                    zeros.next();
-                    col.push_cell(Cell::Number(-0.0));
-                } else {
-                    col.push_cell(cell);
-                }
-            }
-        }
+        let keys = match key_cols.len() {
+            1 => self.text_keys().map(|col| vec![col]),
+            _ => None,
+        };
+        let keys = keys.unwrap_or_else(|| self.key_columns(key_cols.len()));
         let mut columns: Vec<Column> = key_cols
             .into_iter()
             .zip(keys)
@@ -539,6 +529,45 @@ impl Groups {
             });
         }
         columns
+    }
+
+    /// The key column of groups keyed by one column of texts (and missing
+    /// cells): one text per group, so the texts are distinct and enter the
+    /// column's dictionary without a lookup ([`Dict::push_distinct`]).
+    /// `None` for a key of any other cell.
+    fn text_keys(&self) -> Option<Values> {
+        let n = self.len();
+        let mut dict = Dict::with_capacity(n, self.keys.bytes());
+        let mut ids = Vec::with_capacity(n);
+        for g in 0..n {
+            match decode_key(self.keys.key(g)) {
+                (Cell::Text(s), []) => ids.push(dict.push_distinct(s)?),
+                (Cell::Missing, []) => ids.push(NO_TEXT),
+                _ => return None,
+            }
+        }
+        Some(Values::from_texts(ids, dict))
+    }
+
+    /// The `width` key columns, cell by cell from the keys.
+    fn key_columns(&self, width: usize) -> Vec<Values> {
+        let mut keys: Vec<Values> = vec![Values::new(); width];
+        let mut zeros = self.negative_zero.iter().peekable();
+        for g in 0..self.len() {
+            let mut bytes = self.keys.key(g);
+            for (j, col) in keys.iter_mut().enumerate() {
+                let (cell, rest) = decode_key(bytes);
+                bytes = rest;
+                let negative = zeros.peek().is_some_and(|&&(zg, zj)| zg == g && zj == j);
+                if negative {
+                    zeros.next();
+                    col.push_cell(Cell::Number(-0.0));
+                } else {
+                    col.push_cell(cell);
+                }
+            }
+        }
+        keys
     }
 }
 

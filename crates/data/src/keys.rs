@@ -111,6 +111,11 @@ impl KeyIndex {
         self.ends.len()
     }
 
+    /// The bytes of all keys together.
+    pub(crate) fn bytes(&self) -> usize {
+        self.arena.len()
+    }
+
     /// The bytes of key `g`.
     pub(crate) fn key(&self, g: usize) -> &[u8] {
         key_of(&self.arena, &self.ends, g)

@@ -15,7 +15,9 @@
 
 use std::cmp::Ordering;
 
-use crate::model::{Cell, Table};
+use crate::dict::NO_TEXT;
+use crate::model::{Cell, ColType, Column, Table};
+use crate::view::{num_of, sum_of, sum_value, Sum};
 
 /// The code of a missing cell: after every other code.
 const MISSING: u64 = u64::MAX;
@@ -183,6 +185,103 @@ pub(crate) fn first_ranked(
     ranked
 }
 
+/// The top step (see [`crate::view::top_by_cells`]) over a table whose
+/// `key` column is held as text ids ([`Values::text_ids`]) and whose other
+/// columns are all numbers: a category is its text's id (a dictionary holds
+/// each text once), so no key is hashed, and the rest folds into one row.
+/// The same table as the step's cell-by-cell path, bit for bit; `None` for
+/// any other table.
+pub(crate) fn top_by_ids(t: &Table, key: usize, by: usize, n: usize, rest: &str) -> Option<Table> {
+    const NONE: u32 = u32::MAX;
+    let (ids, dict) = t.columns.get(key)?.values.text_ids()?;
+    let rows = ids.len();
+    let plain = t
+        .columns
+        .iter()
+        .enumerate()
+        .all(|(c, col)| col.values.len() == rows && (c == key || col.ty == ColType::Number));
+    if !plain {
+        return None;
+    }
+    let rest_id = (0..dict.len()).find(|&id| dict.get(id as u32) == rest);
+    // per text id (the missing cell after them): its category, numbered in
+    // order of first appearance; per row: its category (`NONE`: the rest)
+    let mut cat_of = vec![NONE; dict.len() + 1];
+    let mut cats: Vec<u32> = Vec::with_capacity(rows);
+    let mut totals: Vec<Sum> = Vec::new();
+    let by = t.columns.get(by).map(|c| &c.values);
+    for (r, &id) in ids.iter().enumerate() {
+        let slot = if id == NO_TEXT {
+            dict.len()
+        } else {
+            id as usize
+        };
+        if Some(slot) == rest_id {
+            cats.push(NONE);
+            continue;
+        }
+        let c = cat_of.get_mut(slot)?;
+        if *c == NONE {
+            *c = u32::try_from(totals.len()).ok().filter(|&c| c != NONE)?;
+            totals.push(Sum::default());
+        }
+        if let (Some(total), Some(x)) = (
+            totals.get_mut(*c as usize),
+            by.and_then(|v| num_of(v.cell(r))),
+        ) {
+            total.add(x);
+        }
+        cats.push(*c);
+    }
+    drop(cat_of);
+    if totals.len() <= n {
+        return Some(t.clone());
+    }
+    let mut kept_cat = vec![false; totals.len()];
+    let ranked = totals
+        .iter()
+        .enumerate()
+        .map(|(i, s)| (i, s.total()))
+        .collect();
+    drop(totals);
+    for (i, _) in first_ranked(ranked, n) {
+        if let Some(k) = kept_cat.get_mut(i) {
+            *k = true;
+        }
+    }
+    let kept_row = |r: usize| {
+        cats.get(r)
+            .is_some_and(|&c| c != NONE && kept_cat.get(c as usize) == Some(&true))
+    };
+    let kept: Vec<usize> = (0..rows).filter(|&r| kept_row(r)).collect();
+    let folded = kept.len() < rows;
+    let columns = t.columns.iter().enumerate().map(|(c, col)| {
+        let mut values = if c == key {
+            // a dictionary of the kept texts only: the rest's text is
+            // added to it without copying the whole one
+            kept.iter().map(|&r| col.values.cell(r)).collect()
+        } else {
+            col.values.gather(&kept)
+        };
+        if folded && c == key {
+            values.push_cell(Cell::Text(rest));
+        } else if folded {
+            let rest_rows = (0..rows).filter(|&r| !kept_row(r));
+            values.push(sum_value(
+                sum_of(rest_rows.map(|r| col.values.cell(r))).total(),
+            ));
+        }
+        Column {
+            name: col.name.clone(),
+            ty: col.ty,
+            values,
+        }
+    });
+    Some(Table {
+        columns: columns.collect(),
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -308,6 +407,52 @@ mod tests {
         let missing = col(vec![Value::Missing, Value::Missing]);
         assert_eq!(codes(&missing, 0, true), Some(vec![MISSING, MISSING]));
         assert_eq!(codes(&missing, 5, true), None);
+    }
+
+    proptest::proptest! {
+        /// The top step by text ids gives the cell-by-cell step's table bit
+        /// for bit: categories with several rows, a missing key, a key that
+        /// is already the rest's text, totals that tie, are missing, or
+        /// overflow, and a second number column folded beside them.
+        #[test]
+        fn top_by_ids_equals_top_by_cells(
+            rows in proptest::collection::vec((0u8..9, 0u8..8, 0u8..8), 0..60),
+            n in 0usize..8,
+        ) {
+            const TEXTS: [&str; 7] = ["a", "b", "rest", "", "é", "ab", "c"];
+            let numbers = [-0.0, 0.0, 1.5, 2.5, 1e308, -1e308, 0.1];
+            let num = |k: u8| match k {
+                7 => Value::Missing,
+                k => Value::Number(numbers[usize::from(k)]),
+            };
+            let key: Vec<Value> = rows
+                .iter()
+                .map(|r| match r.0 {
+                    7 | 8 => Value::Missing,
+                    k => Value::Text(TEXTS[usize::from(k)].to_string()),
+                })
+                .collect();
+            let col = |name: &str, ty, values: Vec<Value>| Column {
+                name: name.into(),
+                ty,
+                values: values.into(),
+            };
+            let t = Table {
+                columns: vec![
+                    col("amount", ColType::Number, rows.iter().map(|r| num(r.1)).collect()),
+                    col("key", ColType::Text, key),
+                    col("units", ColType::Number, rows.iter().map(|r| num(r.2)).collect()),
+                ],
+            };
+            let want = crate::view::top_by_cells(&t, 1, 0, n, "rest");
+            let got = top_by_ids(&t, 1, 0, n, "rest");
+            let show = |t: &Table| format!("{:?}", t.columns.iter().map(|c| (&c.name, c.ty, c.values.to_vec())).collect::<Vec<_>>());
+            let texts = t.columns[1].values.text_ids().is_some();
+            proptest::prop_assert_eq!(got.is_some(), texts);
+            if let Some(got) = got {
+                proptest::prop_assert_eq!(show(&got), show(&want));
+            }
+        }
     }
 
     #[test]
