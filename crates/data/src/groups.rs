@@ -17,12 +17,12 @@
 
 use crate::dict::{Dict, NO_TEXT};
 use crate::hash::hash_bytes;
-use crate::keys::prefetch;
 pub(crate) use crate::keys::KeyIndex;
+use crate::keys::{prefetch, NOT_FOUND};
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Value, Values};
 use crate::view::{compare_cells, sum_value, Sum};
 
-/// How many keys ahead [`Groups::merge`] fetches a key's table slot.
+/// How many keys ahead [`Groups::merge`] fetches a group's accumulators.
 const MERGE_AHEAD: usize = 16;
 
 /// The groups of one view's group step.
@@ -475,15 +475,22 @@ impl Groups {
         later.flush();
         // the later keys are only read from now on
         later.keys.drop_table();
+        // the keys this table holds already, looked up on both cores; the
+        // others are numbered below, in their order
+        let found = self.keys.find_all(&later.keys);
         let mut zeros = later.negative_zero.iter().peekable();
-        for h in 0..later.len() {
-            // the slot of a key some rows ahead, fetched while these are added
-            if let Some(k) =
-                (h + MERGE_AHEAD < later.len()).then(|| later.keys.key(h + MERGE_AHEAD))
-            {
-                self.keys.prefetch(hash_bytes(k));
+        for (h, &f) in found.iter().enumerate() {
+            // the accumulators of a group some keys ahead, fetched while
+            // these are added
+            if let Some(&ahead) = found.get(h + MERGE_AHEAD).filter(|&&g| g != NOT_FOUND) {
+                for a in &self.accs {
+                    a.prefetch(ahead as usize);
+                }
             }
-            let (g, new) = self.id(later.keys.key(h));
+            let (g, new) = match f {
+                NOT_FOUND => self.id(later.keys.key(h)),
+                g => (g as usize, false),
+            };
             while let Some(&&(zg, j)) = zeros.peek() {
                 if zg != h {
                     break;
