@@ -452,7 +452,7 @@ mod tests {
         let key = |i: u32| -> Vec<u8> {
             let mut k = Vec::new();
             let long = format!("a key longer than a head {i}");
-            encode_key(&mut k, Cell::Text(if i % 3 == 0 { &long } else { "k" }));
+            encode_key(&mut k, Cell::Text(if i.is_multiple_of(3) { &long } else { "k" }));
             encode_key(&mut k, Cell::Number(f64::from(i)));
             k
         };
@@ -460,7 +460,7 @@ mod tests {
         let mut table = KeyIndex::default();
         let mut other = KeyIndex::default();
         for i in 0..n {
-            if i % 2 == 0 {
+            if i.is_multiple_of(2) {
                 table.id(hash_bytes(&key(i)), &key(i));
             }
             // the other table's keys in another order
