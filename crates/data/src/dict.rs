@@ -3,7 +3,7 @@
 //!
 //! Its hash index (text to id) is only needed to add texts one at a time
 //! ([`Dict::intern`]). A dictionary made from texts known to be distinct
-//! ([`Dict::push_distinct`], e.g. the keys of a group table, which are
+//! ([`Dict::distinct`], e.g. the keys of a group table, which are
 //! distinct by construction) leaves them out of the index until a text is
 //! next interned: a million group keys that are only read again never pay
 //! for the index, its growth or its memory.
@@ -40,13 +40,20 @@ fn slice<'a>(text: &'a str, ends: &[usize], id: u32) -> &'a str {
 }
 
 impl Dict {
-    /// An empty dictionary with room for `n` texts of `bytes` bytes in all.
-    pub(crate) fn with_capacity(n: usize, bytes: usize) -> Dict {
-        Dict {
-            text: String::with_capacity(bytes),
-            ends: Vec::with_capacity(n),
+    /// The dictionary of texts known to be distinct: `text` holds them one
+    /// after another, `ends` where each ends (each at a character
+    /// boundary); `None` when there are too many for ids or an end is out
+    /// of order.
+    pub(crate) fn distinct(text: String, ends: Vec<usize>) -> Option<Dict> {
+        let ordered = ends.windows(2).all(|w| w[0] <= w[1]);
+        let bounded = ends.last().is_none_or(|&e| e == text.len());
+        let fits = ends.len() < NO_TEXT as usize;
+        let boundaries = ends.iter().all(|&e| text.is_char_boundary(e));
+        (ordered && bounded && fits && boundaries).then_some(Dict {
+            text,
+            ends,
             ..Dict::default()
-        }
+        })
     }
 
     /// The text with this id.
@@ -74,11 +81,9 @@ impl Dict {
         Some(id)
     }
 
-    /// Add `s`, which the caller knows differs from every text already
-    /// held, without looking it up; its id, `None` when the dictionary is
-    /// full. (A text added twice would get two ids: the column would still
-    /// read right, but equal texts would no longer share an id.)
-    pub(crate) fn push_distinct(&mut self, s: &str) -> Option<u32> {
+    /// Add `s`, known to differ from every text held, without looking it
+    /// up; its id, `None` when the dictionary is full.
+    fn push_distinct(&mut self, s: &str) -> Option<u32> {
         let id = u32::try_from(self.ends.len())
             .ok()
             .filter(|&id| id != NO_TEXT)?;
@@ -120,21 +125,26 @@ mod tests {
     use super::*;
 
     #[test]
-    fn texts_pushed_as_distinct_are_found_by_later_interns() {
-        let mut d = Dict::with_capacity(3, 8);
-        assert_eq!(d.intern("a"), Some(0));
-        for (i, s) in ["b", "cc", ""].iter().enumerate() {
-            assert_eq!(d.push_distinct(s), Some(i as u32 + 1));
-        }
-        assert_eq!(d.len(), 4);
-        for (i, s) in ["a", "b", "cc", ""].iter().enumerate() {
-            assert_eq!(d.intern(s), Some(i as u32), "{s:?}");
+    fn texts_known_distinct_are_found_by_later_interns() {
+        let texts = ["a", "b", "cc", "", "é"];
+        let ends = texts.iter().scan(0, |end, s| {
+            *end += s.len();
+            Some(*end)
+        });
+        let mut d = Dict::distinct(texts.concat(), ends.collect()).expect("distinct");
+        assert_eq!(d.len(), 5);
+        for (i, s) in texts.iter().enumerate() {
             assert_eq!(d.get(i as u32), *s);
+            assert_eq!(d.intern(s), Some(i as u32), "{s:?}");
         }
-        assert_eq!(d.intern("new"), Some(4));
-        assert_eq!(d.push_distinct("later"), Some(5));
-        assert_eq!(d.intern("later"), Some(5));
-        assert_eq!(d.intern("new"), Some(4));
+        assert_eq!(d.intern("new"), Some(5));
+        assert_eq!(d.intern("b"), Some(1));
+        assert_eq!(d.intern("new"), Some(5));
         assert_eq!(d.len(), 6);
+        // ends out of order, past the text, or inside a character
+        assert!(Dict::distinct("ab".into(), vec![2, 1]).is_none());
+        assert!(Dict::distinct("ab".into(), vec![1]).is_none());
+        assert!(Dict::distinct("é".into(), vec![1, 2]).is_none());
+        assert!(Dict::distinct(String::new(), Vec::new()).is_some());
     }
 }

@@ -258,13 +258,27 @@ impl AccColumn {
             Some(x) if x.is_finite() => Value::Number(x),
             _ => Value::Missing,
         };
+        // numbers, a missing one as `NaN` (no sum, mean or count is one)
+        let numbers = |v: Vec<f64>| Values::from_numbers(v);
+        let missing_nan = |v: Value| match v {
+            Value::Number(x) => x,
+            _ => f64::NAN,
+        };
         let mut out = Values::new();
         match self {
-            AccColumn::Rows(v) | AccColumn::Count(v) => v
-                .into_iter()
-                .for_each(|n| out.push_cell(Cell::Number(n as f64))),
-            AccColumn::Sum(v) => v.iter().for_each(|s| out.push(sum_value(s.total()))),
-            AccColumn::Mean(v) => v.iter().for_each(|s| out.push(number(s.mean()))),
+            AccColumn::Rows(v) | AccColumn::Count(v) => {
+                return numbers(v.into_iter().map(|n| n as f64).collect())
+            }
+            AccColumn::Sum(v) => {
+                return numbers(
+                    v.iter()
+                        .map(|s| missing_nan(sum_value(s.total())))
+                        .collect(),
+                )
+            }
+            AccColumn::Mean(v) => {
+                return numbers(v.iter().map(|s| missing_nan(number(s.mean()))).collect())
+            }
             AccColumn::Median(v) => v.into_iter().for_each(|xs| out.push(number(median(xs)))),
             AccColumn::Min(v) | AccColumn::Max(v) | AccColumn::First(v) | AccColumn::Last(v) => v
                 .into_iter()
@@ -540,19 +554,30 @@ impl Groups {
 
     /// The key column of groups keyed by one column of texts (and missing
     /// cells): one text per group, so the texts are distinct and enter the
-    /// column's dictionary without a lookup ([`Dict::push_distinct`]).
+    /// column's dictionary without a lookup ([`Dict::distinct`]).
     /// `None` for a key of any other cell.
     fn text_keys(&self) -> Option<Values> {
         let n = self.len();
-        let mut dict = Dict::with_capacity(n, self.keys.bytes());
+        let mut text = Vec::with_capacity(self.keys.bytes());
+        let mut ends = Vec::with_capacity(n);
         let mut ids = Vec::with_capacity(n);
         for g in 0..n {
-            match decode_key(self.keys.key(g)) {
-                (Cell::Text(s), []) => ids.push(dict.push_distinct(s)?),
-                (Cell::Missing, []) => ids.push(NO_TEXT),
+            match self.keys.key(g) {
+                [0] => ids.push(NO_TEXT),
+                [2, rest @ ..] => {
+                    let (bytes, used) = text_bytes(rest)?;
+                    if used != rest.len() {
+                        return None;
+                    }
+                    ids.push(u32::try_from(ends.len()).ok()?);
+                    text.extend_from_slice(bytes);
+                    ends.push(text.len());
+                }
                 _ => return None,
             }
         }
+        // each key was a text: the texts together are one (checked once)
+        let dict = Dict::distinct(String::from_utf8(text).ok()?, ends)?;
         Some(Values::from_texts(ids, dict))
     }
 
@@ -615,6 +640,25 @@ pub(crate) fn encode_key(buf: &mut Vec<u8>, c: Cell<'_>) {
     }
 }
 
+/// The bytes of a text key cell whose tag `encode_key` wrote just before
+/// `rest`, and the number of bytes of `rest` its length and text take.
+fn text_bytes(rest: &[u8]) -> Option<(&[u8], usize)> {
+    // the length as `encode_key` writes it (LEB128)
+    let (mut n, mut shift, mut used) = (0u64, 0u32, 0usize);
+    loop {
+        let &b = rest.get(used)?;
+        used += 1;
+        n |= u64::from(b & 0x7f).checked_shl(shift).unwrap_or(0);
+        shift += 7;
+        if b < 0x80 {
+            break;
+        }
+    }
+    let n = usize::try_from(n).ok()?;
+    let end = used.checked_add(n)?;
+    Some((rest.get(used..end)?, end))
+}
+
 /// The first key cell encoded at the start of `bytes` (see
 /// [`encode_key`]), and the bytes after it.
 fn decode_key(bytes: &[u8]) -> (Cell<'_>, &[u8]) {
@@ -625,24 +669,8 @@ fn decode_key(bytes: &[u8]) -> (Cell<'_>, &[u8]) {
     };
     let decoded = match tag {
         1 => word(rest).map(|w| (Cell::Number(f64::from_bits(w)), 8)),
-        2 => {
-            // the length as `encode_key` writes it (LEB128)
-            let (mut n, mut shift, mut used) = (0u64, 0u32, 0usize);
-            loop {
-                let Some(&b) = rest.get(used) else { break None };
-                used += 1;
-                n |= u64::from(b & 0x7f).checked_shl(shift).unwrap_or(0);
-                shift += 7;
-                if b < 0x80 {
-                    break Some(());
-                }
-            }
-            .and_then(|()| {
-                let n = usize::try_from(n).ok()?;
-                let text = std::str::from_utf8(rest.get(used..used.checked_add(n)?)?).ok()?;
-                Some((Cell::Text(text), used + n))
-            })
-        }
+        2 => text_bytes(rest)
+            .and_then(|(text, used)| Some((Cell::Text(std::str::from_utf8(text).ok()?), used))),
         3 => int(rest).map(|t| (Cell::Date(t), 4)),
         4 => int(rest).map(|t| (Cell::Month(t), 4)),
         5 => int(rest).map(|t| (Cell::Year(t), 4)),
@@ -750,6 +778,32 @@ mod tests {
     }
 
     proptest::proptest! {
+        /// A key of one text column gives, from the arena, the column that
+        /// decoding key by key gives, each text once in its dictionary.
+        #[test]
+        fn text_keys_equal_decoded_keys(picks in proptest::collection::vec(0usize..7, 0..200)) {
+            const TEXTS: [&str; 6] = ["a", "", "é", "a much longer text than a head", "ab", "\u{1}"];
+            let aggs = [Aggregate { name: String::new(), func: AggFn::Count, column: None }];
+            let mut g = Groups::new(&[0], &aggs);
+            let mut keybuf = Vec::new();
+            for &p in &picks {
+                let c = TEXTS.get(p).map_or(Cell::Missing, |&t| Cell::Text(t));
+                g.add(&mut keybuf, (&[0], &aggs), &|_| c);
+            }
+            let decoded = g.key_columns(1);
+            match g.text_keys() {
+                Some(col) => {
+                    proptest::prop_assert_eq!(format!("{col:?}"), format!("{:?}", decoded[0]));
+                    if let Some((ids, dict)) = col.text_ids() {
+                        let texts = ids.iter().filter(|&&id| id != NO_TEXT).count();
+                        proptest::prop_assert_eq!(dict.len(), texts);
+                    }
+                }
+                // every key here is a text or missing
+                None => proptest::prop_assert!(false, "no text keys"),
+            }
+        }
+
         /// Batched rows (and merged parts) give the groups, first cells
         /// (`-0` included) and accumulators bit for bit of rows added one
         /// at a time in one table.

@@ -452,7 +452,10 @@ mod tests {
         let key = |i: u32| -> Vec<u8> {
             let mut k = Vec::new();
             let long = format!("a key longer than a head {i}");
-            encode_key(&mut k, Cell::Text(if i.is_multiple_of(3) { &long } else { "k" }));
+            encode_key(
+                &mut k,
+                Cell::Text(if i.is_multiple_of(3) { &long } else { "k" }),
+            );
             encode_key(&mut k, Cell::Number(f64::from(i)));
             k
         };
