@@ -21,13 +21,12 @@
 use std::fmt;
 use std::sync::Arc;
 
-use hashbrown::HashTable;
 use serde::ser::{Serialize, SerializeSeq, Serializer};
 
-use crate::hash::hash_bytes;
+pub(crate) use crate::dict::Dict;
+use crate::dict::NO_TEXT;
 use crate::model::{Cell, Value};
 
-const NO_TEXT: u32 = u32::MAX;
 const NO_TIME: i32 = i32::MIN;
 
 /// The three kinds of time cell, all held as `i32`.
@@ -55,58 +54,6 @@ impl Time {
             Cell::Year(t) => Some((Time::Year, t)),
             _ => None,
         }
-    }
-}
-
-/// Distinct texts, each held once: all of them in one string, the end of
-/// each in `ends`, and a hash index from text to id.
-#[derive(Clone, Default)]
-pub(crate) struct Dict {
-    text: String,
-    ends: Vec<usize>,
-    index: HashTable<u32>,
-}
-
-/// Text `id` of a dictionary's parts (empty when out of range).
-fn slice<'a>(text: &'a str, ends: &[usize], id: u32) -> &'a str {
-    let i = id as usize;
-    let end = ends.get(i).copied().unwrap_or(0);
-    let start = match i.checked_sub(1) {
-        Some(p) => ends.get(p).copied().unwrap_or(0),
-        None => 0,
-    };
-    text.get(start..end).unwrap_or("")
-}
-
-impl Dict {
-    /// The text with this id.
-    pub(crate) fn get(&self, id: u32) -> &str {
-        slice(&self.text, &self.ends, id)
-    }
-
-    /// Number of distinct texts.
-    pub(crate) fn len(&self) -> usize {
-        self.ends.len()
-    }
-
-    /// The id of `s`, added when new; `None` when the dictionary is full.
-    pub(crate) fn intern(&mut self, s: &str) -> Option<u32> {
-        let h = hash_bytes(s.as_bytes());
-        let Dict { text, ends, index } = self;
-        if let Some(&id) = index.find(h, |&id| slice(text, ends, id) == s) {
-            return Some(id);
-        }
-        let id = u32::try_from(ends.len()).ok().filter(|&id| id != NO_TEXT)?;
-        text.push_str(s);
-        ends.push(text.len());
-        let (text, ends) = (&*text, &*ends);
-        index.insert_unique(h, id, |&id| hash_bytes(slice(text, ends, id).as_bytes()));
-        Some(id)
-    }
-
-    fn heap_bytes(&self) -> usize {
-        // a hash-table bucket is the id and one control byte
-        self.text.capacity() + self.ends.capacity() * 8 + self.index.capacity() * 5
     }
 }
 

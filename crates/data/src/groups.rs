@@ -15,13 +15,14 @@
 //! key; a group whose first row held `-0` keeps it (a short side list), so
 //! the output is bit for bit the table engine's.
 
+use crate::dict::{Dict, NO_TEXT};
 use crate::hash::hash_bytes;
-use crate::keys::prefetch;
 pub(crate) use crate::keys::KeyIndex;
+use crate::keys::{prefetch, NOT_FOUND};
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Value, Values};
 use crate::view::{compare_cells, sum_value, Sum};
 
-/// How many keys ahead [`Groups::merge`] fetches a key's table slot.
+/// How many keys ahead [`Groups::merge`] fetches a group's accumulators.
 const MERGE_AHEAD: usize = 16;
 
 /// The groups of one view's group step.
@@ -257,13 +258,27 @@ impl AccColumn {
             Some(x) if x.is_finite() => Value::Number(x),
             _ => Value::Missing,
         };
+        // numbers, a missing one as `NaN` (no sum, mean or count is one)
+        let numbers = |v: Vec<f64>| Values::from_numbers(v);
+        let missing_nan = |v: Value| match v {
+            Value::Number(x) => x,
+            _ => f64::NAN,
+        };
         let mut out = Values::new();
         match self {
-            AccColumn::Rows(v) | AccColumn::Count(v) => v
-                .into_iter()
-                .for_each(|n| out.push_cell(Cell::Number(n as f64))),
-            AccColumn::Sum(v) => v.iter().for_each(|s| out.push(sum_value(s.total()))),
-            AccColumn::Mean(v) => v.iter().for_each(|s| out.push(number(s.mean()))),
+            AccColumn::Rows(v) | AccColumn::Count(v) => {
+                return numbers(v.into_iter().map(|n| n as f64).collect())
+            }
+            AccColumn::Sum(v) => {
+                return numbers(
+                    v.iter()
+                        .map(|s| missing_nan(sum_value(s.total())))
+                        .collect(),
+                )
+            }
+            AccColumn::Mean(v) => {
+                return numbers(v.iter().map(|s| missing_nan(number(s.mean()))).collect())
+            }
             AccColumn::Median(v) => v.into_iter().for_each(|xs| out.push(number(median(xs)))),
             AccColumn::Min(v) | AccColumn::Max(v) | AccColumn::First(v) | AccColumn::Last(v) => v
                 .into_iter()
@@ -474,15 +489,22 @@ impl Groups {
         later.flush();
         // the later keys are only read from now on
         later.keys.drop_table();
+        // the keys this table holds already, looked up on both cores; the
+        // others are numbered below, in their order
+        let found = self.keys.find_all(&later.keys);
         let mut zeros = later.negative_zero.iter().peekable();
-        for h in 0..later.len() {
-            // the slot of a key some rows ahead, fetched while these are added
-            if let Some(k) =
-                (h + MERGE_AHEAD < later.len()).then(|| later.keys.key(h + MERGE_AHEAD))
-            {
-                self.keys.prefetch(hash_bytes(k));
+        for (h, &f) in found.iter().enumerate() {
+            // the accumulators of a group some keys ahead, fetched while
+            // these are added
+            if let Some(&ahead) = found.get(h + MERGE_AHEAD).filter(|&&g| g != NOT_FOUND) {
+                for a in &self.accs {
+                    a.prefetch(ahead as usize);
+                }
             }
-            let (g, new) = self.id(later.keys.key(h));
+            let (g, new) = match f {
+                NOT_FOUND => self.id(later.keys.key(h)),
+                g => (g as usize, false),
+            };
             while let Some(&&(zg, j)) = zeros.peek() {
                 if zg != h {
                     break;
@@ -510,22 +532,11 @@ impl Groups {
         // the keys are only read from now on
         self.keys.drop_table();
         let n = self.len();
-        let mut keys: Vec<Values> = vec![Values::new(); key_cols.len()];
-        let mut zeros = self.negative_zero.iter().peekable();
-        for g in 0..n {
-            let mut bytes = self.keys.key(g);
-            for (j, col) in keys.iter_mut().enumerate() {
-                let (cell, rest) = decode_key(bytes);
-                bytes = rest;
-                let negative = zeros.peek().is_some_and(|&&(zg, zj)| zg == g && zj == j);
-                if negative {
-                    zeros.next();
-                    col.push_cell(Cell::Number(-0.0));
-                } else {
-                    col.push_cell(cell);
-                }
-            }
-        }
+        let keys = match key_cols.len() {
+            1 => self.text_keys().map(|col| vec![col]),
+            _ => None,
+        };
+        let keys = keys.unwrap_or_else(|| self.key_columns(key_cols.len()));
         let mut columns: Vec<Column> = key_cols
             .into_iter()
             .zip(keys)
@@ -539,6 +550,56 @@ impl Groups {
             });
         }
         columns
+    }
+
+    /// The key column of groups keyed by one column of texts (and missing
+    /// cells): one text per group, so the texts are distinct and enter the
+    /// column's dictionary without a lookup ([`Dict::distinct`]).
+    /// `None` for a key of any other cell.
+    fn text_keys(&self) -> Option<Values> {
+        let n = self.len();
+        let mut text = Vec::with_capacity(self.keys.bytes());
+        let mut ends = Vec::with_capacity(n);
+        let mut ids = Vec::with_capacity(n);
+        for g in 0..n {
+            match self.keys.key(g) {
+                [0] => ids.push(NO_TEXT),
+                [2, rest @ ..] => {
+                    let (bytes, used) = text_bytes(rest)?;
+                    if used != rest.len() {
+                        return None;
+                    }
+                    ids.push(u32::try_from(ends.len()).ok()?);
+                    text.extend_from_slice(bytes);
+                    ends.push(text.len());
+                }
+                _ => return None,
+            }
+        }
+        // each key was a text: the texts together are one (checked once)
+        let dict = Dict::distinct(String::from_utf8(text).ok()?, ends)?;
+        Some(Values::from_texts(ids, dict))
+    }
+
+    /// The `width` key columns, cell by cell from the keys.
+    fn key_columns(&self, width: usize) -> Vec<Values> {
+        let mut keys: Vec<Values> = vec![Values::new(); width];
+        let mut zeros = self.negative_zero.iter().peekable();
+        for g in 0..self.len() {
+            let mut bytes = self.keys.key(g);
+            for (j, col) in keys.iter_mut().enumerate() {
+                let (cell, rest) = decode_key(bytes);
+                bytes = rest;
+                let negative = zeros.peek().is_some_and(|&&(zg, zj)| zg == g && zj == j);
+                if negative {
+                    zeros.next();
+                    col.push_cell(Cell::Number(-0.0));
+                } else {
+                    col.push_cell(cell);
+                }
+            }
+        }
+        keys
     }
 }
 
@@ -579,6 +640,25 @@ pub(crate) fn encode_key(buf: &mut Vec<u8>, c: Cell<'_>) {
     }
 }
 
+/// The bytes of a text key cell whose tag `encode_key` wrote just before
+/// `rest`, and the number of bytes of `rest` its length and text take.
+fn text_bytes(rest: &[u8]) -> Option<(&[u8], usize)> {
+    // the length as `encode_key` writes it (LEB128)
+    let (mut n, mut shift, mut used) = (0u64, 0u32, 0usize);
+    loop {
+        let &b = rest.get(used)?;
+        used += 1;
+        n |= u64::from(b & 0x7f).checked_shl(shift).unwrap_or(0);
+        shift += 7;
+        if b < 0x80 {
+            break;
+        }
+    }
+    let n = usize::try_from(n).ok()?;
+    let end = used.checked_add(n)?;
+    Some((rest.get(used..end)?, end))
+}
+
 /// The first key cell encoded at the start of `bytes` (see
 /// [`encode_key`]), and the bytes after it.
 fn decode_key(bytes: &[u8]) -> (Cell<'_>, &[u8]) {
@@ -589,24 +669,8 @@ fn decode_key(bytes: &[u8]) -> (Cell<'_>, &[u8]) {
     };
     let decoded = match tag {
         1 => word(rest).map(|w| (Cell::Number(f64::from_bits(w)), 8)),
-        2 => {
-            // the length as `encode_key` writes it (LEB128)
-            let (mut n, mut shift, mut used) = (0u64, 0u32, 0usize);
-            loop {
-                let Some(&b) = rest.get(used) else { break None };
-                used += 1;
-                n |= u64::from(b & 0x7f).checked_shl(shift).unwrap_or(0);
-                shift += 7;
-                if b < 0x80 {
-                    break Some(());
-                }
-            }
-            .and_then(|()| {
-                let n = usize::try_from(n).ok()?;
-                let text = std::str::from_utf8(rest.get(used..used.checked_add(n)?)?).ok()?;
-                Some((Cell::Text(text), used + n))
-            })
-        }
+        2 => text_bytes(rest)
+            .and_then(|(text, used)| Some((Cell::Text(std::str::from_utf8(text).ok()?), used))),
         3 => int(rest).map(|t| (Cell::Date(t), 4)),
         4 => int(rest).map(|t| (Cell::Month(t), 4)),
         5 => int(rest).map(|t| (Cell::Year(t), 4)),
@@ -714,6 +778,32 @@ mod tests {
     }
 
     proptest::proptest! {
+        /// A key of one text column gives, from the arena, the column that
+        /// decoding key by key gives, each text once in its dictionary.
+        #[test]
+        fn text_keys_equal_decoded_keys(picks in proptest::collection::vec(0usize..7, 0..200)) {
+            const TEXTS: [&str; 6] = ["a", "", "é", "a much longer text than a head", "ab", "\u{1}"];
+            let aggs = [Aggregate { name: String::new(), func: AggFn::Count, column: None }];
+            let mut g = Groups::new(&[0], &aggs);
+            let mut keybuf = Vec::new();
+            for &p in &picks {
+                let c = TEXTS.get(p).map_or(Cell::Missing, |&t| Cell::Text(t));
+                g.add(&mut keybuf, (&[0], &aggs), &|_| c);
+            }
+            let decoded = g.key_columns(1);
+            match g.text_keys() {
+                Some(col) => {
+                    proptest::prop_assert_eq!(format!("{col:?}"), format!("{:?}", decoded[0]));
+                    if let Some((ids, dict)) = col.text_ids() {
+                        let texts = ids.iter().filter(|&&id| id != NO_TEXT).count();
+                        proptest::prop_assert_eq!(dict.len(), texts);
+                    }
+                }
+                // every key here is a text or missing
+                None => proptest::prop_assert!(false, "no text keys"),
+            }
+        }
+
         /// Batched rows (and merged parts) give the groups, first cells
         /// (`-0` included) and accumulators bit for bit of rows added one
         /// at a time in one table.

@@ -17,6 +17,16 @@ const HEAD: usize = 12;
 /// The id of an empty slot.
 const EMPTY: u32 = u32::MAX;
 
+/// A key [`KeyIndex::find_all`] did not find.
+pub(crate) const NOT_FOUND: u32 = u32::MAX;
+
+/// Keys from which [`KeyIndex::find_all`] looks up on two threads (fewer
+/// cost less than starting a thread).
+const PARALLEL_FROM: usize = 1 << 16;
+
+/// How many keys ahead [`KeyIndex::find_all`] fetches a key's slot.
+const AHEAD: usize = 16;
+
 /// A key's number and its head: a key of at most [`HEAD`] bytes whole
 /// (zeros after its end); a longer key's first 8 bytes (the first with
 /// its top bit set, which no key's first byte has) and 32 bits of its
@@ -111,6 +121,11 @@ impl KeyIndex {
         self.ends.len()
     }
 
+    /// The bytes of all keys together.
+    pub(crate) fn bytes(&self) -> usize {
+        self.arena.len()
+    }
+
     /// The bytes of key `g`.
     pub(crate) fn key(&self, g: usize) -> &[u8] {
         key_of(&self.arena, &self.ends, g)
@@ -139,20 +154,10 @@ impl KeyIndex {
             self.rebuild(16);
         }
         let head = head_of(key, h);
-        let mask = self.slots.len() - 1;
-        let mut i = h as usize & mask;
-        let (arena, ends) = (&self.arena, &self.ends);
-        while let Some(e) = self.slots.get(i) {
-            if e.id == EMPTY {
-                break;
-            }
-            let same = e.head == head
-                && (key.len() <= HEAD || same_bytes(key_of(arena, ends, e.id as usize), key));
-            if same {
-                return (e.id as usize, false);
-            }
-            i = (i + 1) & mask;
-        }
+        let i = match self.probe(h, key, &head) {
+            Ok(id) => return (id, false),
+            Err(i) => i,
+        };
         let id = self.ends.len();
         self.arena.extend_from_slice(key);
         self.ends.push(self.arena.len());
@@ -168,6 +173,73 @@ impl KeyIndex {
             self.rebuild(self.slots.len() * 2);
         }
         (id, true)
+    }
+
+    /// The number of `key` (hashed `h`, with head `head`), or the empty
+    /// slot where its probe ended.
+    #[inline]
+    fn probe(&self, h: u64, key: &[u8], head: &[u8; HEAD]) -> Result<usize, usize> {
+        let mask = self.slots.len().wrapping_sub(1);
+        let mut i = h as usize & mask;
+        while let Some(e) = self.slots.get(i) {
+            if e.id == EMPTY {
+                break;
+            }
+            let same = e.head == *head
+                && (key.len() <= HEAD
+                    || same_bytes(key_of(&self.arena, &self.ends, e.id as usize), key));
+            if same {
+                return Ok(e.id as usize);
+            }
+            i = (i + 1) & mask;
+        }
+        Err(i)
+    }
+
+    /// The number in this table of every key of `other`, in `other`'s
+    /// order ([`NOT_FOUND`] for a key it lacks, or one past the numbers the
+    /// table holds), looked up on two threads when there are many: the
+    /// table is only read.
+    pub(crate) fn find_all(&self, other: &KeyIndex) -> Vec<u32> {
+        let n = other.len();
+        let mut found = vec![NOT_FOUND; n];
+        let cores = std::thread::available_parallelism().map_or(1, |c| c.get());
+        if n < PARALLEL_FROM || cores < 2 || self.slots.is_empty() {
+            self.find_range(other, 0, &mut found);
+            return found;
+        }
+        let (first, second) = found.split_at_mut(n / 2);
+        std::thread::scope(|s| {
+            s.spawn(|| self.find_range(other, n / 2, second));
+            self.find_range(other, 0, first);
+        });
+        found
+    }
+
+    /// [`KeyIndex::find_all`] of `other`'s keys from number `from` on, into
+    /// `out`; each key's slot is fetched [`AHEAD`] keys early.
+    fn find_range(&self, other: &KeyIndex, from: usize, out: &mut [u32]) {
+        if self.slots.is_empty() {
+            return;
+        }
+        let mut hashes = [0u64; AHEAD];
+        let hash_at = |k: usize| hash_bytes(other.key(from + k));
+        for (k, h) in hashes.iter_mut().enumerate().take(out.len()) {
+            *h = hash_at(k);
+            self.prefetch(*h);
+        }
+        for k in 0..out.len() {
+            let h = hashes[k % AHEAD];
+            if k + AHEAD < out.len() {
+                let next = hash_at(k + AHEAD);
+                self.prefetch(next);
+                hashes[k % AHEAD] = next;
+            }
+            let key = other.key(from + k);
+            if let (Some(f), Ok(id)) = (out.get_mut(k), self.probe(h, key, &head_of(key, h))) {
+                *f = u32::try_from(id).unwrap_or(NOT_FOUND);
+            }
+        }
     }
 
     /// Make the table `n` slots long (a power of two) and enter every key
@@ -371,6 +443,45 @@ mod tests {
         ends.push((1 << 32) + 9);
         assert_eq!(ends.get(5), Some((1 << 32) + 9));
         assert_eq!(ends.get(6), None);
+    }
+
+    #[test]
+    fn keys_of_another_table_are_found_on_two_threads_as_one_by_one() {
+        // enough keys for the two-thread lookup; half of them missing,
+        // short and long keys
+        let key = |i: u32| -> Vec<u8> {
+            let mut k = Vec::new();
+            let long = format!("a key longer than a head {i}");
+            encode_key(
+                &mut k,
+                Cell::Text(if i.is_multiple_of(3) { &long } else { "k" }),
+            );
+            encode_key(&mut k, Cell::Number(f64::from(i)));
+            k
+        };
+        let n = (PARALLEL_FROM * 2) as u32;
+        let mut table = KeyIndex::default();
+        let mut other = KeyIndex::default();
+        for i in 0..n {
+            if i.is_multiple_of(2) {
+                table.id(hash_bytes(&key(i)), &key(i));
+            }
+            // the other table's keys in another order
+            let j = (i * 7919) % n;
+            other.id(hash_bytes(&key(j)), &key(j));
+        }
+        let ids: std::collections::HashMap<&[u8], usize> =
+            (0..table.len()).map(|g| (table.key(g), g)).collect();
+        let found = table.find_all(&other);
+        assert_eq!(found.len(), other.len());
+        for (h, &f) in found.iter().enumerate() {
+            let want = ids.get(other.key(h)).map_or(NOT_FOUND, |&g| g as u32);
+            assert_eq!(f, want, "key {h}");
+        }
+        // both halves hold found and missing keys
+        for half in found.chunks(n as usize / 2) {
+            assert!(half.contains(&NOT_FOUND) && half.iter().any(|&f| f != NOT_FOUND));
+        }
     }
 
     proptest! {

@@ -6,6 +6,7 @@ mod chunk;
 mod codes;
 mod colfold;
 pub mod column;
+mod dict;
 pub mod digits;
 pub mod files;
 mod flat;

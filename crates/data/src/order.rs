@@ -15,7 +15,9 @@
 
 use std::cmp::Ordering;
 
-use crate::model::{Cell, Table};
+use crate::dict::NO_TEXT;
+use crate::model::{Cell, ColType, Column, Table};
+use crate::view::{num_of, sum_of, sum_value, Sum};
 
 /// The code of a missing cell: after every other code.
 const MISSING: u64 = u64::MAX;
@@ -136,11 +138,10 @@ pub(crate) fn sorted_rows(t: &Table, keys: &[(usize, bool)], rows: usize) -> Opt
         .map(|&(col, desc)| codes(t, col, desc))
         .collect::<Option<_>>()?;
     if let [one] = &coded[..] {
-        let mut pairs: Vec<(u64, usize)> = (0..rows)
+        let pairs: Vec<(u64, usize)> = (0..rows)
             .map(|r| (one.get(r).copied().unwrap_or(MISSING), r))
             .collect();
-        pairs.sort_unstable();
-        return Some(pairs.into_iter().map(|(_, r)| r).collect());
+        return Some(by_code(pairs).into_iter().map(|(_, r)| r).collect());
     }
     let mut order: Vec<usize> = (0..rows).collect();
     let code = |k: &Vec<u64>, r: usize| k.get(r).copied().unwrap_or(MISSING);
@@ -152,6 +153,48 @@ pub(crate) fn sorted_rows(t: &Table, keys: &[(usize, bool)], rows: usize) -> Opt
             .unwrap_or_else(|| a.cmp(&b))
     });
     Some(order)
+}
+
+/// Rows from which [`by_code`] sorts by radix: below, a comparison sort
+/// costs less than its byte counts.
+const RADIX_FROM: usize = 1 << 12;
+
+/// `pairs` (code, row), in rows order, sorted by code, equal codes in
+/// their order. From [`RADIX_FROM`] pairs on, a least-significant-digit
+/// radix sort (Knuth, TAOCP vol. 3, 5.2.5): one stable pass per byte of
+/// the codes, skipping the bytes every code shares.
+fn by_code(mut pairs: Vec<(u64, usize)>) -> Vec<(u64, usize)> {
+    if pairs.len() < RADIX_FROM {
+        pairs.sort_unstable();
+        return pairs;
+    }
+    let mut counts = vec![[0usize; 256]; 8];
+    for &(code, _) in &pairs {
+        for (byte, count) in counts.iter_mut().enumerate() {
+            count[(code >> (8 * byte)) as usize & 0xff] += 1;
+        }
+    }
+    let mut other = vec![(0u64, 0usize); pairs.len()];
+    for (byte, count) in counts.iter().enumerate() {
+        if count.contains(&pairs.len()) {
+            continue;
+        }
+        let mut next = [0usize; 256];
+        let mut at = 0;
+        for (slot, &c) in next.iter_mut().zip(count) {
+            *slot = at;
+            at += c;
+        }
+        for &pair in &pairs {
+            let digit = (pair.0 >> (8 * byte)) as usize & 0xff;
+            if let Some(to) = other.get_mut(next[digit]) {
+                *to = pair;
+            }
+            next[digit] += 1;
+        }
+        std::mem::swap(&mut pairs, &mut other);
+    }
+    pairs
 }
 
 /// The rank order of the top step: larger totals first, a category
@@ -181,6 +224,103 @@ pub(crate) fn first_ranked(
     }
     ranked.sort_unstable_by(by_rank);
     ranked
+}
+
+/// The top step (see [`crate::view::top_by_cells`]) over a table whose
+/// `key` column is held as text ids ([`Values::text_ids`]) and whose other
+/// columns are all numbers: a category is its text's id (a dictionary holds
+/// each text once), so no key is hashed, and the rest folds into one row.
+/// The same table as the step's cell-by-cell path, bit for bit; `None` for
+/// any other table.
+pub(crate) fn top_by_ids(t: &Table, key: usize, by: usize, n: usize, rest: &str) -> Option<Table> {
+    const NONE: u32 = u32::MAX;
+    let (ids, dict) = t.columns.get(key)?.values.text_ids()?;
+    let rows = ids.len();
+    let plain = t
+        .columns
+        .iter()
+        .enumerate()
+        .all(|(c, col)| col.values.len() == rows && (c == key || col.ty == ColType::Number));
+    if !plain {
+        return None;
+    }
+    let rest_id = (0..dict.len()).find(|&id| dict.get(id as u32) == rest);
+    // per text id (the missing cell after them): its category, numbered in
+    // order of first appearance; per row: its category (`NONE`: the rest)
+    let mut cat_of = vec![NONE; dict.len() + 1];
+    let mut cats: Vec<u32> = Vec::with_capacity(rows);
+    let mut totals: Vec<Sum> = Vec::new();
+    let by = t.columns.get(by).map(|c| &c.values);
+    for (r, &id) in ids.iter().enumerate() {
+        let slot = if id == NO_TEXT {
+            dict.len()
+        } else {
+            id as usize
+        };
+        if Some(slot) == rest_id {
+            cats.push(NONE);
+            continue;
+        }
+        let c = cat_of.get_mut(slot)?;
+        if *c == NONE {
+            *c = u32::try_from(totals.len()).ok().filter(|&c| c != NONE)?;
+            totals.push(Sum::default());
+        }
+        if let (Some(total), Some(x)) = (
+            totals.get_mut(*c as usize),
+            by.and_then(|v| num_of(v.cell(r))),
+        ) {
+            total.add(x);
+        }
+        cats.push(*c);
+    }
+    drop(cat_of);
+    if totals.len() <= n {
+        return Some(t.clone());
+    }
+    let mut kept_cat = vec![false; totals.len()];
+    let ranked = totals
+        .iter()
+        .enumerate()
+        .map(|(i, s)| (i, s.total()))
+        .collect();
+    drop(totals);
+    for (i, _) in first_ranked(ranked, n) {
+        if let Some(k) = kept_cat.get_mut(i) {
+            *k = true;
+        }
+    }
+    let kept_row = |r: usize| {
+        cats.get(r)
+            .is_some_and(|&c| c != NONE && kept_cat.get(c as usize) == Some(&true))
+    };
+    let kept: Vec<usize> = (0..rows).filter(|&r| kept_row(r)).collect();
+    let folded = kept.len() < rows;
+    let columns = t.columns.iter().enumerate().map(|(c, col)| {
+        let mut values = if c == key {
+            // a dictionary of the kept texts only: the rest's text is
+            // added to it without copying the whole one
+            kept.iter().map(|&r| col.values.cell(r)).collect()
+        } else {
+            col.values.gather(&kept)
+        };
+        if folded && c == key {
+            values.push_cell(Cell::Text(rest));
+        } else if folded {
+            let rest_rows = (0..rows).filter(|&r| !kept_row(r));
+            values.push(sum_value(
+                sum_of(rest_rows.map(|r| col.values.cell(r))).total(),
+            ));
+        }
+        Column {
+            name: col.name.clone(),
+            ty: col.ty,
+            values,
+        }
+    });
+    Some(Table {
+        columns: columns.collect(),
+    })
 }
 
 #[cfg(test)]
@@ -290,6 +430,28 @@ mod tests {
     }
 
     #[test]
+    fn radix_order_equals_a_sort_of_pairs() {
+        let mut g = Lcg(5);
+        for rows in [0, 1, RADIX_FROM - 1, RADIX_FROM, 3 * RADIX_FROM + 7] {
+            for spread in [1u64, 3, 1 << 20, u64::MAX] {
+                // codes that share bytes, tie often, or differ in every byte
+                let pairs: Vec<(u64, usize)> = (0..rows)
+                    .map(|r| {
+                        (
+                            ((g.next() << 31 ^ g.next()) % spread).wrapping_mul(0x0101),
+                            r,
+                        )
+                    })
+                    .chain([(MISSING, rows), (0, rows + 1)])
+                    .collect();
+                let mut want = pairs.clone();
+                want.sort_unstable();
+                assert_eq!(by_code(pairs), want, "{rows} rows, spread {spread}");
+            }
+        }
+    }
+
+    #[test]
     fn mixed_columns_and_all_bits_not_a_number_have_no_codes() {
         let col = |values: Vec<Value>| Table {
             columns: vec![Column {
@@ -308,6 +470,52 @@ mod tests {
         let missing = col(vec![Value::Missing, Value::Missing]);
         assert_eq!(codes(&missing, 0, true), Some(vec![MISSING, MISSING]));
         assert_eq!(codes(&missing, 5, true), None);
+    }
+
+    proptest::proptest! {
+        /// The top step by text ids gives the cell-by-cell step's table bit
+        /// for bit: categories with several rows, a missing key, a key that
+        /// is already the rest's text, totals that tie, are missing, or
+        /// overflow, and a second number column folded beside them.
+        #[test]
+        fn top_by_ids_equals_top_by_cells(
+            rows in proptest::collection::vec((0u8..9, 0u8..8, 0u8..8), 0..60),
+            n in 0usize..8,
+        ) {
+            const TEXTS: [&str; 7] = ["a", "b", "rest", "", "é", "ab", "c"];
+            let numbers = [-0.0, 0.0, 1.5, 2.5, 1e308, -1e308, 0.1];
+            let num = |k: u8| match k {
+                7 => Value::Missing,
+                k => Value::Number(numbers[usize::from(k)]),
+            };
+            let key: Vec<Value> = rows
+                .iter()
+                .map(|r| match r.0 {
+                    7 | 8 => Value::Missing,
+                    k => Value::Text(TEXTS[usize::from(k)].to_string()),
+                })
+                .collect();
+            let col = |name: &str, ty, values: Vec<Value>| Column {
+                name: name.into(),
+                ty,
+                values: values.into(),
+            };
+            let t = Table {
+                columns: vec![
+                    col("amount", ColType::Number, rows.iter().map(|r| num(r.1)).collect()),
+                    col("key", ColType::Text, key),
+                    col("units", ColType::Number, rows.iter().map(|r| num(r.2)).collect()),
+                ],
+            };
+            let want = crate::view::top_by_cells(&t, 1, 0, n, "rest");
+            let got = top_by_ids(&t, 1, 0, n, "rest");
+            let show = |t: &Table| format!("{:?}", t.columns.iter().map(|c| (&c.name, c.ty, c.values.to_vec())).collect::<Vec<_>>());
+            let texts = t.columns[1].values.text_ids().is_some();
+            proptest::prop_assert_eq!(got.is_some(), texts);
+            if let Some(got) = got {
+                proptest::prop_assert_eq!(show(&got), show(&want));
+            }
+        }
     }
 
     #[test]

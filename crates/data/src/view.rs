@@ -128,7 +128,7 @@ fn take_rows(t: &Table, rows: &[usize]) -> Table {
 // ---------------------------------------------------------------- expressions
 
 /// The numeric value of a number (or year) cell.
-fn num_of(c: Cell<'_>) -> Option<f64> {
+pub(crate) fn num_of(c: Cell<'_>) -> Option<f64> {
     match c {
         Cell::Number(x) => Some(x),
         Cell::Year(y) => Some(f64::from(y)),
@@ -483,7 +483,7 @@ fn aggregate(t: &Table, func: AggFn, column: Option<usize>, rows: &[usize]) -> V
     }
 }
 
-fn sum_of<'a>(cells: impl Iterator<Item = Cell<'a>>) -> Sum {
+pub(crate) fn sum_of<'a>(cells: impl Iterator<Item = Cell<'a>>) -> Sum {
     let mut s = Sum::default();
     for x in cells.filter_map(num_of) {
         s.add(x);
@@ -557,6 +557,12 @@ fn sort(t: &Table, keys: &[(usize, bool)]) -> Table {
 ///   infinite when too large, as a group's sum).
 ///   The folded rows follow the kept rows.
 fn top(t: &Table, key: usize, by: usize, n: usize, rest: &str) -> Table {
+    crate::order::top_by_ids(t, key, by, n, rest)
+        .unwrap_or_else(|| top_by_cells(t, key, by, n, rest))
+}
+
+/// [`top`] of any table, cell by cell.
+pub(crate) fn top_by_cells(t: &Table, key: usize, by: usize, n: usize, rest: &str) -> Table {
     let rows = row_count(t);
     let is_rest = |v: Cell<'_>| matches!(v, Cell::Text(s) if s == rest);
     let cats = partition(t, &[key], (0..rows).filter(|&r| !is_rest(cell(t, key, r))));
