@@ -62,11 +62,30 @@ pub(crate) fn head(t: &[u8]) -> [u64; 2] {
         let tail = word(&t[n - 8..]).checked_shr(8 * (HEAD - n) as u32);
         [word(t), tail.unwrap_or(0)]
     } else {
-        let w = t
-            .iter()
-            .enumerate()
-            .fold(0u64, |w, (i, &b)| w | u64::from(b) << (8 * i));
-        [w, 0]
+        [short_word(t), 0]
+    }
+}
+
+/// The bytes of `t` (at most 8) as a little-endian word, zeros after its
+/// end: two overlapping loads of 4 (or 2) bytes, or'ed where they overlap
+/// (the same bytes at the same places).
+#[inline]
+fn short_word(t: &[u8]) -> u64 {
+    let n = t.len();
+    let two = |w: &[u8]| {
+        w.first_chunk::<2>()
+            .map_or(0, |w| u64::from(u16::from_le_bytes(*w)))
+    };
+    let four = |w: &[u8]| {
+        w.first_chunk::<4>()
+            .map_or(0, |w| u64::from(u32::from_le_bytes(*w)))
+    };
+    match n {
+        0 => 0,
+        1 => u64::from(t[0]),
+        2..=3 => two(t) | two(&t[n - 2..]) << (8 * (n - 2)),
+        4..=7 => four(t) | four(&t[n - 4..]) << (8 * (n - 4)),
+        _ => t.first_chunk::<8>().map_or(0, |w| u64::from_le_bytes(*w)),
     }
 }
 
