@@ -64,12 +64,16 @@ impl Seen {
     }
 }
 
-/// How the cells of one chunk are read: per column whether (and as what)
-/// it is parsed, the last date-like cell of each column (ledgers repeat
-/// them row after row), whether a text column has shown a non-number yet.
+/// How the cells of one chunk are read: the parsed columns by type, the
+/// last date-like cell of each column (ledgers repeat them row after row),
+/// whether a text column has shown a non-number yet.
 struct Decoder<'i> {
     input: &'i ScanInput<'i>,
-    parsed: Vec<(usize, ColType)>,
+    /// The parsed text, number and date, month or year columns (each
+    /// kind in its own loop, so that a loop does not branch on the type).
+    texts: Vec<usize>,
+    numbers: Vec<usize>,
+    times: Vec<(usize, ColType)>,
     check: Vec<usize>,
     missing: Vec<&'i str>,
     /// One bit per length (up to 63, longer ones at 63) of a missing text.
@@ -84,12 +88,18 @@ impl<'i> Decoder<'i> {
     fn new(input: &'i ScanInput<'i>) -> Self {
         let ncols = input.schema.len();
         let parse = |j: usize| input.parse.get(j).copied().unwrap_or(false);
+        let of = |want: fn(ColType) -> bool| -> Vec<(usize, ColType)> {
+            (0..ncols)
+                .filter(|&j| parse(j) && want(input.schema[j].1))
+                .map(|j| (j, input.schema[j].1))
+                .collect()
+        };
+        let only = |v: Vec<(usize, ColType)>| v.into_iter().map(|(j, _)| j).collect();
         Decoder {
             input,
-            parsed: (0..ncols)
-                .filter(|&j| parse(j))
-                .map(|j| (j, input.schema[j].1))
-                .collect(),
+            texts: only(of(|t| t == ColType::Text)),
+            numbers: only(of(|t| t == ColType::Number)),
+            times: of(|t| !matches!(t, ColType::Text | ColType::Number)),
             // the cells the loader checks: those of kept and declared columns
             check: (0..ncols)
                 .filter(|&j| parse(j) || input.keep_values.get(j).copied().unwrap_or(false))
@@ -143,39 +153,47 @@ impl<'i> Decoder<'i> {
             return false;
         }
         let bytes = text.as_bytes();
-        for &(j, ty) in &self.parsed {
-            // fields end at ASCII bytes, so only a text cell needs its
-            // character boundaries checked
-            let Some(b) = fields.get(j).and_then(|r| bytes.get(r.clone())) else {
-                return false;
-            };
+        // fields end at ASCII bytes, so only a text cell needs its
+        // character boundaries checked; `None`: no such field
+        let cell = |j: usize| fields.get(j).and_then(|r| bytes.get(r.clone()));
+        // the order of the loops does not matter: any cell that does not
+        // parse fails the record
+        for &j in &self.numbers {
+            let Some(b) = cell(j) else { return false };
+            if !self.is_missing(b) {
+                let Some(x) = self.number(b, || field(j)) else {
+                    return false;
+                };
+                cells[j] = Cell::Number(x);
+            }
+        }
+        for &(j, ty) in &self.times {
+            let Some(b) = cell(j) else { return false };
             if self.is_missing(b) {
                 continue;
             }
-            let c = match ty {
-                ColType::Text => field(j).map(Cell::Text),
-                ColType::Number => self.number(b, || field(j)).map(Cell::Number),
-                ColType::Date | ColType::Month | ColType::Year => {
-                    let (seen, cell) = &mut self.last[j];
-                    if !seen.is(b) || cell.is_none() {
-                        seen.set(b);
-                        *cell = field(j).and_then(|t| match ty {
-                            ColType::Date => parse_date(t).map(Cell::Date),
-                            ColType::Month => parse_month_or_date(t).map(Cell::Month),
-                            _ => parse_year(t).map(Cell::Year),
-                        });
-                    }
-                    *cell
-                }
-            };
-            let Some(c) = c else {
-                return false;
-            };
-            if !self.text_done[j] && self.number(b, || field(j)).is_none() {
-                self.text_done[j] = true;
-                first_text[j] = Some((row, field(j).unwrap_or_default().to_owned()));
+            let (seen, c) = &mut self.last[j];
+            if !seen.is(b) || c.is_none() {
+                seen.set(b);
+                *c = field(j).and_then(|t| match ty {
+                    ColType::Date => parse_date(t).map(Cell::Date),
+                    ColType::Month => parse_month_or_date(t).map(Cell::Month),
+                    _ => parse_year(t).map(Cell::Year),
+                });
             }
+            let Some(c) = *c else { return false };
             cells[j] = c;
+        }
+        for &j in &self.texts {
+            let Some(t) = field(j) else { return false };
+            if self.is_missing(t.as_bytes()) {
+                continue;
+            }
+            if !self.text_done[j] && self.number(t.as_bytes(), || Some(t)).is_none() {
+                self.text_done[j] = true;
+                first_text[j] = Some((row, t.to_owned()));
+            }
+            cells[j] = Cell::Text(t);
         }
         true
     }
