@@ -321,3 +321,32 @@ pub(crate) fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> Chun
         base += at as u64;
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use proptest::prelude::*;
+
+    use super::Seen;
+
+    /// Texts from a small alphabet, short and long, so that equal and
+    /// nearly equal pairs are common.
+    fn text() -> impl Strategy<Value = Vec<u8>> {
+        prop::collection::vec(prop::sample::select(b"ab-0\xc3".to_vec()), 0..40)
+    }
+
+    proptest! {
+        #[test]
+        fn the_last_text_is_met_again_exactly(a in text(), b in text()) {
+            let mut seen = Seen::default();
+            seen.set(&a);
+            prop_assert!(seen.is(&a));
+            prop_assert_eq!(seen.is(&b), a == b);
+            // a text with its last byte changed
+            if let Some((last, head)) = a.split_last() {
+                let mut c = head.to_vec();
+                c.push(last ^ 1);
+                prop_assert!(!seen.is(&c));
+            }
+        }
+    }
+}
