@@ -294,9 +294,11 @@ struct Plan<'v> {
 
 /// The codes of one chunk's records and the views' plans over them.
 pub(crate) struct Coded<'v> {
-    kinds: Vec<Kind>,
-    /// The coded columns.
-    coded: Vec<usize>,
+    /// The coded text columns and their dictionaries (`None` once past
+    /// [`MAX_CODES`]), and the coded date, month or year columns: each
+    /// kind in its own loop.
+    texts: Vec<(usize, Option<Dict>)>,
+    times: Vec<usize>,
     /// Per column: the current record's code ([`NONE`] if uncoded).
     codes: Vec<u64>,
     plans: Vec<Plan<'v>>,
@@ -346,12 +348,17 @@ impl<'v> Coded<'v> {
             });
             plans.push(Plan { parts, cache });
         }
-        let coded = (0..ncols)
-            .filter(|&j| !matches!(kinds[j], Kind::Plain))
-            .collect();
+        let (mut texts, mut times) = (Vec::new(), Vec::new());
+        for (j, kind) in kinds.into_iter().enumerate() {
+            match kind {
+                Kind::Text(dict) => texts.push((j, dict)),
+                Kind::Time => times.push(j),
+                Kind::Plain => {}
+            }
+        }
         Coded {
-            kinds,
-            coded,
+            texts,
+            times,
             codes: vec![NONE; ncols],
             plans,
         }
@@ -359,23 +366,24 @@ impl<'v> Coded<'v> {
 
     /// Code the cells of one record.
     fn code(&mut self, cells: &[Cell<'_>]) {
-        for &j in &self.coded {
-            let cell = cells.get(j).copied().unwrap_or(Cell::Missing);
-            self.codes[j] = match (&mut self.kinds[j], cell) {
-                (Kind::Text(Some(_)) | Kind::Time, Cell::Missing) => 0,
-                (Kind::Text(dict @ Some(_)), Cell::Text(t)) => {
-                    match dict.as_mut().and_then(|d| d.code(t)) {
-                        Some(c) => u64::from(c),
-                        None => {
-                            // too many texts: plain from here on
-                            *dict = None;
-                            NONE
-                        }
-                    }
-                }
-                (Kind::Time, Cell::Date(v) | Cell::Month(v) | Cell::Year(v)) => {
-                    u64::from(v as u32) + 1
-                }
+        let cell = |j: usize| cells.get(j).copied().unwrap_or(Cell::Missing);
+        for (j, dict) in &mut self.texts {
+            let c = cell(*j);
+            self.codes[*j] = match (dict.as_mut(), c) {
+                (None, _) => NONE,
+                (Some(_), Cell::Missing) => 0,
+                (Some(d), Cell::Text(t)) => d.code(t).map_or(NONE, u64::from),
+                _ => NONE,
+            };
+            if self.codes[*j] == NONE && matches!(c, Cell::Text(_)) {
+                // too many texts: plain from here on
+                *dict = None;
+            }
+        }
+        for &j in &self.times {
+            self.codes[j] = match cell(j) {
+                Cell::Missing => 0,
+                Cell::Date(v) | Cell::Month(v) | Cell::Year(v) => u64::from(v as u32) + 1,
                 _ => NONE,
             };
         }
