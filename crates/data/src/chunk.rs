@@ -6,7 +6,7 @@
 use std::io::{ErrorKind, Read};
 use std::ops::Range;
 
-use crate::codes::Coded;
+use crate::codes::{head, Coded, HEAD};
 use crate::files::ReadAt;
 use crate::fold::{states, Sink};
 use crate::load::ReadLimits;
@@ -38,15 +38,47 @@ fn checked_cells_allowed<'a>(
     })
 }
 
-/// How the cells of one chunk are read: per column whether (and as what)
-/// it is parsed, the last date-like cell of each column (ledgers repeat
-/// them row after row), whether a text column has shown a non-number yet.
+/// The last text of a column: its length and first [`HEAD`] bytes as words
+/// (compared at once), the whole text when longer.
+#[derive(Clone, Default)]
+struct Seen {
+    len: usize,
+    head: [u64; 2],
+    long: Vec<u8>,
+}
+
+impl Seen {
+    /// Is `t` the text last seen?
+    #[inline]
+    fn is(&self, t: &[u8]) -> bool {
+        t.len() == self.len && head(t) == self.head && (t.len() <= HEAD || self.long == t)
+    }
+
+    fn set(&mut self, t: &[u8]) {
+        self.len = t.len();
+        self.head = head(t);
+        self.long.clear();
+        if t.len() > HEAD {
+            self.long.extend_from_slice(t);
+        }
+    }
+}
+
+/// How the cells of one chunk are read: the parsed columns by type, the
+/// last date-like cell of each column (ledgers repeat them row after row),
+/// whether a text column has shown a non-number yet.
 struct Decoder<'i> {
     input: &'i ScanInput<'i>,
-    parsed: Vec<(usize, ColType)>,
+    /// The parsed text, number and date, month or year columns (each
+    /// kind in its own loop, so that a loop does not branch on the type).
+    texts: Vec<usize>,
+    numbers: Vec<usize>,
+    times: Vec<(usize, ColType)>,
     check: Vec<usize>,
     missing: Vec<&'i str>,
-    last: Vec<(Vec<u8>, Option<Cell<'static>>)>,
+    /// One bit per length (up to 63, longer ones at 63) of a missing text.
+    missing_lens: u64,
+    last: Vec<(Seen, Option<Cell<'static>>)>,
     text_done: Vec<bool>,
     /// Are numbers written plainly (no digit groups, a decimal point)?
     plain: bool,
@@ -56,18 +88,29 @@ impl<'i> Decoder<'i> {
     fn new(input: &'i ScanInput<'i>) -> Self {
         let ncols = input.schema.len();
         let parse = |j: usize| input.parse.get(j).copied().unwrap_or(false);
+        let of = |want: fn(ColType) -> bool| -> Vec<(usize, ColType)> {
+            (0..ncols)
+                .filter(|&j| parse(j) && want(input.schema[j].1))
+                .map(|j| (j, input.schema[j].1))
+                .collect()
+        };
+        let only = |v: Vec<(usize, ColType)>| v.into_iter().map(|(j, _)| j).collect();
         Decoder {
             input,
-            parsed: (0..ncols)
-                .filter(|&j| parse(j))
-                .map(|j| (j, input.schema[j].1))
-                .collect(),
+            texts: only(of(|t| t == ColType::Text)),
+            numbers: only(of(|t| t == ColType::Number)),
+            times: of(|t| !matches!(t, ColType::Text | ColType::Number)),
             // the cells the loader checks: those of kept and declared columns
             check: (0..ncols)
                 .filter(|&j| parse(j) || input.keep_values.get(j).copied().unwrap_or(false))
                 .collect(),
             missing: input.spec.missing.iter().map(String::as_str).collect(),
-            last: vec![(Vec::new(), None); ncols],
+            missing_lens: input
+                .spec
+                .missing
+                .iter()
+                .fold(0, |m, t| m | 1 << t.len().min(63)),
+            last: vec![(Seen::default(), None); ncols],
             text_done: (0..ncols)
                 .map(|j| input.schema[j].1 != ColType::Text)
                 .collect(),
@@ -75,60 +118,82 @@ impl<'i> Decoder<'i> {
         }
     }
 
-    /// The number a cell holds, in the file's number style.
-    fn number(&self, text: &str) -> Option<f64> {
+    /// The number a cell (bytes `b`, text `text()`) holds, in the file's
+    /// number style.
+    #[inline]
+    fn number<'t>(&self, b: &[u8], text: impl Fn() -> Option<&'t str>) -> Option<f64> {
         if self.plain {
-            crate::load::parse_number(text)
+            // the common short decimal inline, then the full parser
+            crate::quicknum::short_decimal(b).or_else(|| text().and_then(crate::load::parse_number))
         } else {
-            self.input.spec.numbers.parse(text)
+            text().and_then(|t| self.input.spec.numbers.parse(t))
         }
     }
 
+    /// Is `b` one of the texts that mean "missing"? (Most cells are
+    /// ruled out by their length alone.)
+    #[inline]
+    fn is_missing(&self, b: &[u8]) -> bool {
+        self.missing_lens >> b.len().min(63) & 1 == 1
+            && self.missing.iter().any(|m| m.as_bytes() == b)
+    }
+
     /// The cells of one record (fields as ranges of `text`) into `cells`;
-    /// `false` when a cell is not allowed or does not parse.
+    /// `false` when a cell is not allowed or does not parse. `suspect`:
+    /// the record may hold a cell that is not allowed (a byte a cell check
+    /// must look at, or more bytes than the text limit).
     fn decode<'t>(
         &mut self,
-        (text, fields, odd): (&'t str, &[Range<usize>], bool),
+        (text, fields, suspect): (&'t str, &[Range<usize>], bool),
         cells: &mut [Cell<'t>],
         (row, first_text): (usize, &mut [Option<(usize, String)>]),
     ) -> bool {
         let field = |j: usize| fields.get(j).and_then(|r| text.get(r.clone()));
-        let suspect = odd || fields.iter().map(|r| r.len()).sum::<usize>() > self.input.limits.text;
         if suspect && !checked_cells_allowed(self.input.limits, &self.check, field) {
             return false;
         }
-        for &(j, ty) in &self.parsed {
-            let Some(text) = field(j) else {
-                return false;
-            };
-            if self.missing.contains(&text) {
+        let bytes = text.as_bytes();
+        // fields end at ASCII bytes, so only a text cell needs its
+        // character boundaries checked; `None`: no such field
+        let cell = |j: usize| fields.get(j).and_then(|r| bytes.get(r.clone()));
+        // the order of the loops does not matter: any cell that does not
+        // parse fails the record
+        for &j in &self.numbers {
+            let Some(b) = cell(j) else { return false };
+            if !self.is_missing(b) {
+                let Some(x) = self.number(b, || field(j)) else {
+                    return false;
+                };
+                cells[j] = Cell::Number(x);
+            }
+        }
+        for &(j, ty) in &self.times {
+            let Some(b) = cell(j) else { return false };
+            if self.is_missing(b) {
                 continue;
             }
-            let c = match ty {
-                ColType::Text => Some(Cell::Text(text)),
-                ColType::Number => self.number(text).map(Cell::Number),
-                ColType::Date | ColType::Month | ColType::Year => {
-                    let (seen, cell) = &mut self.last[j];
-                    if seen.as_slice() != text.as_bytes() || cell.is_none() {
-                        seen.clear();
-                        seen.extend_from_slice(text.as_bytes());
-                        *cell = match ty {
-                            ColType::Date => parse_date(text).map(Cell::Date),
-                            ColType::Month => parse_month_or_date(text).map(Cell::Month),
-                            _ => parse_year(text).map(Cell::Year),
-                        };
-                    }
-                    *cell
-                }
-            };
-            let Some(c) = c else {
-                return false;
-            };
-            if !self.text_done[j] && self.number(text).is_none() {
-                self.text_done[j] = true;
-                first_text[j] = Some((row, text.to_owned()));
+            let (seen, c) = &mut self.last[j];
+            if !seen.is(b) || c.is_none() {
+                seen.set(b);
+                *c = field(j).and_then(|t| match ty {
+                    ColType::Date => parse_date(t).map(Cell::Date),
+                    ColType::Month => parse_month_or_date(t).map(Cell::Month),
+                    _ => parse_year(t).map(Cell::Year),
+                });
             }
+            let Some(c) = *c else { return false };
             cells[j] = c;
+        }
+        for &j in &self.texts {
+            let Some(t) = field(j) else { return false };
+            if self.is_missing(t.as_bytes()) {
+                continue;
+            }
+            if !self.text_done[j] && self.number(t.as_bytes(), || Some(t)).is_none() {
+                self.text_done[j] = true;
+                first_text[j] = Some((row, t.to_owned()));
+            }
+            cells[j] = Cell::Text(t);
         }
         true
     }
@@ -218,7 +283,9 @@ pub(crate) fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> Chun
             };
             let mut cells = recycle(std::mem::take(&mut scratch));
             cells.resize(ncols, Cell::Missing);
-            let rec = (src, &fields[..], r.odd);
+            // the raw record is at least as long as its cells together
+            let suspect = r.odd || r.raw.len() > input.limits.text;
+            let rec = (src, &fields[..], suspect);
             if !decoder.decode(rec, &mut cells, (out.rows, &mut out.first_text)) {
                 return out;
             }
@@ -252,5 +319,34 @@ pub(crate) fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> Chun
         buf.copy_within(at..len, 0);
         len -= at;
         base += at as u64;
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use proptest::prelude::*;
+
+    use super::Seen;
+
+    /// Texts from a small alphabet, short and long, so that equal and
+    /// nearly equal pairs are common.
+    fn text() -> impl Strategy<Value = Vec<u8>> {
+        prop::collection::vec(prop::sample::select(b"ab-0\xc3".to_vec()), 0..40)
+    }
+
+    proptest! {
+        #[test]
+        fn the_last_text_is_met_again_exactly(a in text(), b in text()) {
+            let mut seen = Seen::default();
+            seen.set(&a);
+            prop_assert!(seen.is(&a));
+            prop_assert_eq!(seen.is(&b), a == b);
+            // a text with its last byte changed
+            if let Some((last, head)) = a.split_last() {
+                let mut c = head.to_vec();
+                c.push(last ^ 1);
+                prop_assert!(!seen.is(&c));
+            }
+        }
     }
 }

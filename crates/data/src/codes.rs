@@ -37,7 +37,7 @@ pub(crate) const MAX_CODES: usize = 4096;
 const NONE: u64 = u64::MAX;
 
 /// Bytes of a text held in its dictionary entry.
-const HEAD: usize = 16;
+pub(crate) const HEAD: usize = 16;
 
 /// A text's code, length and first [`HEAD`] bytes (zeros after its end):
 /// a text no longer than that is matched without reading the arena.
@@ -49,13 +49,44 @@ struct Entry {
 }
 
 /// The first [`HEAD`] bytes of `t` as two words, zeros after its end.
-fn head(t: &[u8]) -> [u64; 2] {
-    let mut b = [0u8; HEAD];
-    let n = t.len().min(HEAD);
-    b[..n].copy_from_slice(&t[..n]);
-    let (lo, hi) = b.split_at(8);
-    let word = |w: &[u8]| u64::from_le_bytes(w.try_into().unwrap_or_default());
-    [word(lo), word(hi)]
+/// A text of 8 to 16 bytes is read as two overlapping 8-byte loads (no
+/// copy), the second shifted so that its bytes past the end are zeros.
+#[inline]
+pub(crate) fn head(t: &[u8]) -> [u64; 2] {
+    let word = |w: &[u8]| w.first_chunk::<8>().map_or(0, |w| u64::from_le_bytes(*w));
+    let n = t.len();
+    if n >= HEAD {
+        [word(t), word(&t[8..])]
+    } else if n >= 8 {
+        // the last 8 bytes hold bytes 8..n in their top `n - 8`
+        let tail = word(&t[n - 8..]).checked_shr(8 * (HEAD - n) as u32);
+        [word(t), tail.unwrap_or(0)]
+    } else {
+        [short_word(t), 0]
+    }
+}
+
+/// The bytes of `t` (at most 8) as a little-endian word, zeros after its
+/// end: two overlapping loads of 4 (or 2) bytes, or'ed where they overlap
+/// (the same bytes at the same places).
+#[inline]
+fn short_word(t: &[u8]) -> u64 {
+    let n = t.len();
+    let two = |w: &[u8]| {
+        w.first_chunk::<2>()
+            .map_or(0, |w| u64::from(u16::from_le_bytes(*w)))
+    };
+    let four = |w: &[u8]| {
+        w.first_chunk::<4>()
+            .map_or(0, |w| u64::from(u32::from_le_bytes(*w)))
+    };
+    match n {
+        0 => 0,
+        1 => u64::from(t[0]),
+        2..=3 => two(t) | two(&t[n - 2..]) << (8 * (n - 2)),
+        4..=7 => four(t) | four(&t[n - 4..]) << (8 * (n - 4)),
+        _ => t.first_chunk::<8>().map_or(0, |w| u64::from_le_bytes(*w)),
+    }
 }
 
 /// The hash of two words: the two halves of their 128-bit product
@@ -138,11 +169,79 @@ struct Cache {
     /// The last pair looked up and its group (ledgers repeat a date or
     /// month row after row).
     last: Option<([u64; 2], u32)>,
+    /// Groups by the text code of one key, while the other half of the
+    /// pair stays the same (when a key is a coded text column).
+    dense: Option<Dense>,
     /// Each pair met and its group, hashed by [`mix`].
     groups: HashTable<([u64; 2], u32)>,
 }
 
+/// The groups of the pairs met whose half `at` is a text code and whose
+/// other half is `other`: per code, the stamp of the `other` it was met
+/// with and its group. A new `other` takes a new stamp, so no entry has to
+/// be cleared.
+struct Dense {
+    at: usize,
+    other: u64,
+    stamp: u32,
+    ids: Vec<(u32, u32)>,
+}
+
+impl Dense {
+    fn new(at: usize) -> Dense {
+        Dense {
+            at,
+            other: NONE,
+            stamp: 0,
+            ids: Vec::new(),
+        }
+    }
+
+    /// The group of `pair`, if met since its other half last changed.
+    #[inline]
+    fn get(&mut self, pair: [u64; 2]) -> Option<u32> {
+        let other = pair[1 - self.at];
+        if other != self.other {
+            self.other = other;
+            self.stamp = self.stamp.wrapping_add(1);
+            if self.stamp == 0 {
+                // stamps wrapped: forget every entry
+                self.ids.fill((0, 0));
+                self.stamp = 1;
+            }
+            return None;
+        }
+        match self.ids.get(pair[self.at] as usize) {
+            Some(&(s, id)) if s == self.stamp => Some(id),
+            _ => None,
+        }
+    }
+
+    /// Remember the group of `pair` (whose other half is the current one).
+    fn put(&mut self, pair: [u64; 2], id: u32) {
+        let code = pair[self.at] as usize;
+        if code >= self.ids.len() {
+            self.ids.resize(code + 1, (0, 0));
+        }
+        self.ids[code] = (self.stamp, id);
+    }
+}
+
 impl Cache {
+    fn new(keys: &[usize], kinds: &[Kind]) -> Cache {
+        let text = |i: usize| {
+            keys.get(i)
+                .is_some_and(|&k| matches!(kinds[k], Kind::Text(_)))
+        };
+        let at = (0..keys.len()).rev().find(|&i| text(i));
+        Cache {
+            keys: keys.to_vec(),
+            last: None,
+            dense: at.map(Dense::new),
+            groups: HashTable::new(),
+        }
+    }
+
     /// The pair of codes of the row's key cells, if all are coded.
     fn pair(&self, codes: &[u64]) -> Option<[u64; 2]> {
         let mut pair = [0u64; 2];
@@ -154,6 +253,37 @@ impl Cache {
         }
         Some(pair)
     }
+
+    /// The group of `pair`; `new` creates it when the chunk meets the pair
+    /// for the first time.
+    #[inline]
+    fn id(&mut self, pair: [u64; 2], new: impl FnOnce() -> u32) -> u32 {
+        if let Some((p, id)) = self.last {
+            if p == pair {
+                return id;
+            }
+        }
+        let id = match self.dense.as_mut().and_then(|d| d.get(pair)) {
+            Some(id) => id,
+            None => {
+                let h = mix(pair);
+                let id = match self.groups.find(h, |e| e.0 == pair) {
+                    Some(e) => e.1,
+                    None => {
+                        let id = new();
+                        self.groups.insert_unique(h, (pair, id), |e| mix(e.0));
+                        id
+                    }
+                };
+                if let Some(d) = self.dense.as_mut() {
+                    d.put(pair, id);
+                }
+                id
+            }
+        };
+        self.last = Some((pair, id));
+        id
+    }
 }
 
 /// Per view: its `keep` parts and its group cache.
@@ -164,9 +294,11 @@ struct Plan<'v> {
 
 /// The codes of one chunk's records and the views' plans over them.
 pub(crate) struct Coded<'v> {
-    kinds: Vec<Kind>,
-    /// The coded columns.
-    coded: Vec<usize>,
+    /// The coded text columns and their dictionaries (`None` once past
+    /// [`MAX_CODES`]), and the coded date, month or year columns: each
+    /// kind in its own loop.
+    texts: Vec<(usize, Option<Dict>)>,
+    times: Vec<usize>,
     /// Per column: the current record's code ([`NONE`] if uncoded).
     codes: Vec<u64>,
     plans: Vec<Plan<'v>>,
@@ -212,20 +344,21 @@ impl<'v> Coded<'v> {
                         kinds[k] = kind;
                     }
                 }
-                Some(Cache {
-                    keys: keys.clone(),
-                    last: None,
-                    groups: HashTable::new(),
-                })
+                Some(Cache::new(keys, &kinds))
             });
             plans.push(Plan { parts, cache });
         }
-        let coded = (0..ncols)
-            .filter(|&j| !matches!(kinds[j], Kind::Plain))
-            .collect();
+        let (mut texts, mut times) = (Vec::new(), Vec::new());
+        for (j, kind) in kinds.into_iter().enumerate() {
+            match kind {
+                Kind::Text(dict) => texts.push((j, dict)),
+                Kind::Time => times.push(j),
+                Kind::Plain => {}
+            }
+        }
         Coded {
-            kinds,
-            coded,
+            texts,
+            times,
             codes: vec![NONE; ncols],
             plans,
         }
@@ -233,23 +366,24 @@ impl<'v> Coded<'v> {
 
     /// Code the cells of one record.
     fn code(&mut self, cells: &[Cell<'_>]) {
-        for &j in &self.coded {
-            let cell = cells.get(j).copied().unwrap_or(Cell::Missing);
-            self.codes[j] = match (&mut self.kinds[j], cell) {
-                (Kind::Text(Some(_)) | Kind::Time, Cell::Missing) => 0,
-                (Kind::Text(dict @ Some(_)), Cell::Text(t)) => {
-                    match dict.as_mut().and_then(|d| d.code(t)) {
-                        Some(c) => u64::from(c),
-                        None => {
-                            // too many texts: plain from here on
-                            *dict = None;
-                            NONE
-                        }
-                    }
-                }
-                (Kind::Time, Cell::Date(v) | Cell::Month(v) | Cell::Year(v)) => {
-                    u64::from(v as u32) + 1
-                }
+        let cell = |j: usize| cells.get(j).copied().unwrap_or(Cell::Missing);
+        for (j, dict) in &mut self.texts {
+            let c = cell(*j);
+            self.codes[*j] = match (dict.as_mut(), c) {
+                (None, _) => NONE,
+                (Some(_), Cell::Missing) => 0,
+                (Some(d), Cell::Text(t)) => d.code(t).map_or(NONE, u64::from),
+                _ => NONE,
+            };
+            if self.codes[*j] == NONE && matches!(c, Cell::Text(_)) {
+                // too many texts: plain from here on
+                *dict = None;
+            }
+        }
+        for &j in &self.times {
+            self.codes[j] = match cell(j) {
+                Cell::Missing => 0,
+                Cell::Date(v) | Cell::Month(v) | Cell::Year(v) => u64::from(v as u32) + 1,
                 _ => NONE,
             };
         }
@@ -281,22 +415,7 @@ impl<'v> Coded<'v> {
             let cached = match (&mut plan.cache, &mut *state, &view.group) {
                 (Some(cache), ViewState::Groups(g), Some((keys, aggs))) => {
                     cache.pair(codes).map(|pair| {
-                        let id = match cache.last {
-                            Some((p, id)) if p == pair => id,
-                            _ => {
-                                let h = mix(pair);
-                                let id = match cache.groups.find(h, |e| e.0 == pair) {
-                                    Some(e) => e.1,
-                                    None => {
-                                        let id = g.group(keybuf, keys, &row) as u32;
-                                        cache.groups.insert_unique(h, (pair, id), |e| mix(e.0));
-                                        id
-                                    }
-                                };
-                                cache.last = Some((pair, id));
-                                id
-                            }
-                        };
+                        let id = cache.id(pair, || g.group(keybuf, keys, &row) as u32);
                         g.add_at(id as usize, aggs, &row);
                     })
                 }
@@ -494,6 +613,18 @@ mod tests {
             let n = if cards.0.max(cards.1) > MAX_CODES as u64 { n + 6000 } else { n };
             let rows = rows(seed, n, cards);
             prop_assert_eq!(run(true, &rows), run(false, &rows));
+        }
+    }
+
+    proptest! {
+        #[test]
+        fn head_is_the_first_bytes_then_zeros(t in prop::collection::vec(any::<u8>(), 0..40)) {
+            let mut b = [0u8; HEAD];
+            let n = t.len().min(HEAD);
+            b[..n].copy_from_slice(&t[..n]);
+            let (lo, hi) = b.split_at(8);
+            let word = |w: &[u8]| u64::from_le_bytes(w.try_into().unwrap_or_default());
+            prop_assert_eq!(head(&t), [word(lo), word(hi)]);
         }
     }
 

@@ -16,6 +16,7 @@ const POW10: [f64; 16] = [
 /// The value of `s` when it is a sign, at most 15 digits and at most one
 /// decimal point (and at least one digit); `None` for anything else (the
 /// full parser decides those).
+#[inline]
 pub(crate) fn short_decimal(s: &[u8]) -> Option<f64> {
     let (negative, b) = match s.split_first() {
         Some((b'-', rest)) => (true, rest),
@@ -25,21 +26,28 @@ pub(crate) fn short_decimal(s: &[u8]) -> Option<f64> {
     if b.is_empty() || b.len() > 16 {
         return None;
     }
-    let (mut m, mut digits, mut point) = (0u64, 0usize, None);
+    // every byte is a digit but at most one point: the digits are the
+    // bytes less the point
+    let (mut m, mut point) = (0u64, usize::MAX);
     for (i, &c) in b.iter().enumerate() {
-        match c {
-            b'0'..=b'9' => {
-                m = m * 10 + u64::from(c - b'0');
-                digits += 1;
-            }
-            b'.' if point.is_none() => point = Some(i),
-            _ => return None,
+        let d = c.wrapping_sub(b'0');
+        if d < 10 {
+            m = m * 10 + u64::from(d);
+        } else if c == b'.' && point == usize::MAX {
+            point = i;
+        } else {
+            return None;
         }
     }
+    let k = if point == usize::MAX {
+        0
+    } else {
+        b.len() - point - 1
+    };
+    let digits = b.len() - usize::from(point != usize::MAX);
     if digits == 0 || digits > 15 {
         return None;
     }
-    let k = point.map_or(0, |p| b.len() - p - 1);
     let v = m as f64 / POW10[k];
     Some(if negative { -v } else { v })
 }

@@ -95,6 +95,9 @@ pub(crate) struct Index {
     marks: Vec<u32>,
     /// Every byte for which [`odd`] holds, in order.
     odd: Vec<u32>,
+    /// Does the buffer hold a quote? Without one, every mark is a
+    /// separator or a line break.
+    quotes: bool,
 }
 
 impl Index {
@@ -102,6 +105,7 @@ impl Index {
     pub(crate) fn build(&mut self, buf: &[u8]) {
         self.marks.clear();
         self.odd.clear();
+        self.quotes = memchr::memchr(b'"', buf).is_some();
         let push = |v: &mut Vec<u32>, base: usize, mut m: u64| {
             while m != 0 {
                 v.push((base + m.trailing_zeros() as usize) as u32);
@@ -198,14 +202,15 @@ impl<'a> Records<'a> {
         fields.clear();
         let mut field = start;
         let mut mark = self.mark;
+        let quotes = self.index.quotes;
         let (body, end) = loop {
-            if buf.get(field) == Some(&b'"') {
+            if quotes && buf.get(field) == Some(&b'"') {
                 return self.quoted(start, fields, decoded);
             }
             // a quote elsewhere in an unquoted field is data: skip it
             let next = loop {
                 match marks.get(mark) {
-                    Some(&m) if buf[m as usize] == b'"' => mark += 1,
+                    Some(&m) if quotes && buf[m as usize] == b'"' => mark += 1,
                     Some(&m) => break Some(m as usize),
                     None => break None,
                 }
