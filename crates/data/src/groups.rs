@@ -5,8 +5,8 @@
 //! Keys are encoded once ([`encode_key`]) into one byte arena; a hash table
 //! holds only group numbers (it compares candidates against the arena).
 //! Each aggregate keeps its accumulators in one flat array indexed by the
-//! group number: counts as integers, sums as exact sums whose few partials
-//! live inline ([`Sum`]). A million groups of one text key and one sum take
+//! group number: counts as integers, sums as exact sums of 32 bytes that
+//! allocate only for rare terms ([`Sum`]). A million groups of one text key and one sum take
 //! well under 100 bytes each, where a map of boxed keys, a vector of key
 //! values and a vector of accumulators per group took about 800.
 //!
