@@ -150,11 +150,9 @@ impl Evaluator<'_> {
         let table: &Table = &named.table;
         let schema = schema_of(table);
         let place = format!("in `{}`", sel.view.name);
+        let at = rows::At::new(self.src, &schema, &place);
         let column = match &sel.column {
-            Some(c) => Some(
-                rows::column(self.src, &schema, &place, c, &mut diags)
-                    .ok_or_else(|| diags.clone())?,
-            ),
+            Some(c) => Some(at.column(c, &mut diags).ok_or_else(|| diags.clone())?),
             None if need_column => {
                 return Err(vec![self
                     .err(
@@ -168,17 +166,13 @@ impl Evaluator<'_> {
             None => None,
         };
         let by = match &sel.by {
-            Some(b) => Some(
-                rows::column(self.src, &schema, &place, b, &mut diags)
-                    .ok_or_else(|| diags.clone())?,
-            ),
+            Some(b) => Some(at.column(b, &mut diags).ok_or_else(|| diags.clone())?),
             None => None,
         };
         let rows: Vec<usize> = match &sel.filter {
             None => (0..table.columns.first().map_or(0, |c| c.values.len())).collect(),
             Some(f) => {
-                let cond = rows::check_condition(self.src, &schema, &place, f, &mut diags)
-                    .ok_or_else(|| diags.clone())?;
+                let cond = at.condition(f, &mut diags).ok_or_else(|| diags.clone())?;
                 let unmatched = crate::unmatched::in_table(self.src, table, f);
                 if !unmatched.is_empty() {
                     return Err(unmatched);

@@ -165,10 +165,10 @@ fn form(cx: &mut Ctx, plugin: &Plugin, d: &DrawStmt) -> Outcome<String> {
 fn options(cx: &mut Ctx, table: &Table, d: &DrawStmt) -> Outcome<BTreeMap<String, String>> {
     let schema = schema_of(table);
     let place = format!("in `{}`", d.view.name);
-    let src = cx.src;
+    let at = rows::At::new(cx.src, &schema, &place);
     let mut options = BTreeMap::new();
     for (k, v) in &d.opts {
-        cx.collect(|diags| rows::column(src, &schema, &place, v, diags))?;
+        cx.collect(|diags| at.column(v, diags))?;
         if options.insert(k.name.clone(), v.name.clone()).is_some() {
             return Err(cx.error(
                 "chart-option",

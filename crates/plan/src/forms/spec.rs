@@ -126,7 +126,7 @@ impl SpecInput<'_> {
     pub(crate) fn lookup(&self, cx: &mut Ctx, id: &Ident) -> Outcome<(usize, ColType)> {
         let place = format!("in `{}`", self.view);
         let src = cx.src;
-        cx.collect(|diags| rows::column(src, &self.schema, &place, id, diags))
+        cx.collect(|diags| rows::At::new(src, &self.schema, &place).column(id, diags))
     }
 
     /// The column of option `name`, looked up when given.
