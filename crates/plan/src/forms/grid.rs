@@ -128,19 +128,17 @@ pub(crate) fn cells(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Gr
                 Some(e) => format!("\"{label}\" and {} \"{key}\"", e.name),
                 None => format!("\"{label}\""),
             };
-            let d = cx
-                .at(
-                    "duplicate-point",
-                    format!("`{}` has several rows for {what}", spec.table_name),
-                    c.span.clone(),
-                    "in this chart",
-                )
-                .help(format!(
+            return Err(cx.error_with_help(
+                "duplicate-point",
+                format!("`{}` has several rows for {what}", spec.table_name),
+                c.span.clone(),
+                "in this chart",
+                format!(
                     "group the view first, e.g. `| by {}{}: ...`",
                     cat.name,
                     extra.map_or(String::new(), |e| format!(", {}", e.name))
-                ));
-            return Err(cx.report(d));
+                ),
+            ));
         }
         grid.values[ci][ki] = number(&val.values.value(r));
     }
