@@ -17,17 +17,8 @@ pub(crate) fn spec(cx: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
     let (c, view) = (input.c, &input.view);
     let form = c.form.keyword();
     let which = |cx: &mut Ctx, name: OptName, what: &str| {
-        let d = cx
-            .at(
-                "chart-option",
-                format!("which column holds the {what}?"),
-                c.span.clone(),
-                format!("no `{}` given", name.keyword()),
-            )
-            .help(format!(
-                "write `{form} {view}: category COLUMN, value COLUMN`"
-            ));
-        cx.report(d)
+        let help = format!("write `{form} {view}: category COLUMN, value COLUMN`");
+        input.missing(cx, name, format!("which column holds the {what}?"), help)
     };
     let cat = match input.given_or_key(OptName::Category) {
         Some(id) => input.lookup(cx, id)?,

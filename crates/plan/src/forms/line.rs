@@ -25,7 +25,7 @@ pub(crate) const OPTIONS: &[Opt] = &[
 
 impl FormPlanner for Line {
     fn spec(&self, cx: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
-        let (c, view) = (input.c, &input.view);
+        let view = &input.view;
         let x = match input.given(OptName::X) {
             Some(id) => input.lookup(cx, id)?,
             None => {
@@ -37,13 +37,9 @@ impl FormPlanner for Line {
                     .map(|(i, _)| i)
                     .collect();
                 let [only] = times[..] else {
-                    return Err(cx.error_with_help(
-                        "chart-option",
-                        "which column runs along x?",
-                        c.span.clone(),
-                        "no `x` given",
-                        format!("write `line {view}: x COLUMN, ...`"),
-                    ));
+                    let help = format!("write `line {view}: x COLUMN, ...`");
+                    let question = "which column runs along x?".into();
+                    return Err(input.missing(cx, OptName::X, question, help));
                 };
                 (only, input.schema[only].1)
             }
@@ -51,13 +47,10 @@ impl FormPlanner for Line {
         // A line over text categories is allowed but linted
         // (`line-over-categories`): the line implies an order.
         let Some(y) = input.given_or_measure(OptName::Y) else {
-            return Err(cx.error_with_help(
-                "chart-option",
-                "which column is the measure?",
-                c.span.clone(),
-                "no `y` given",
-                format!("write `line {view}: y COLUMN`, or declare `compare KEY by MEASURE`"),
-            ));
+            let help =
+                format!("write `line {view}: y COLUMN`, or declare `compare KEY by MEASURE`");
+            let question = "which column is the measure?".into();
+            return Err(input.missing(cx, OptName::Y, question, help));
         };
         let y = input.lookup(cx, y)?;
         input.number_column(cx, y, input.span_of(OptName::Y), "the measure")?;

@@ -30,11 +30,10 @@ impl FormPlanner for Scatter {
         let pick = |cx: &mut Ctx, n: OptName, what: &str| -> Outcome<(usize, ColType)> {
             match input.given(n) {
                 Some(id) => input.lookup(cx, id),
-                None => Err(cx.error_with_help(
-                    "chart-option",
+                None => Err(input.missing(
+                    cx,
+                    n,
                     format!("which column runs along {what}?"),
-                    input.c.span.clone(),
-                    "",
                     format!("write `scatter {}: x COLUMN, y COLUMN`", input.view),
                 )),
             }
