@@ -88,15 +88,17 @@ impl Evaluator<'_> {
                 if let Some(d) = self.ambiguous_spread(other, fspan) {
                     return Err(vec![d]);
                 }
-                let mut d = self.err(
+                let d = self.err(
                     "unknown-name",
                     format!("unknown function `{other}`"),
                     fspan.clone(),
                     "not a value function",
                 );
-                d = d.note(format!("value functions: {}", FUNCTIONS.join(", ")));
-                d = d.suggest(other, FUNCTIONS.iter().copied());
-                Err(vec![d])
+                Err(vec![d.among(
+                    other,
+                    "value functions",
+                    FUNCTIONS.iter().copied(),
+                )])
             }
         }
     }

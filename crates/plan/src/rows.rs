@@ -53,14 +53,14 @@ impl<'a> At<'a> {
         if let Some(i) = schema.iter().position(|(n, _)| *n == id.name) {
             return Some((i, schema[i].1));
         }
-        let mut d = Diagnostic::error(
+        let names = schema.iter().map(|(n, _)| n.as_str());
+        let d = Diagnostic::error(
             "unknown-column",
             format!("no column named `{}` {}", id.name, self.place),
         )
-        .at(self.src, id.span.clone(), "unknown column");
-        d = d.suggest(&id.name, schema.iter().map(|(n, _)| n.as_str()));
-        let names: Vec<&str> = schema.iter().map(|(n, _)| n.as_str()).collect();
-        diags.push(d.note(format!("columns here: {}", names.join(", "))));
+        .at(self.src, id.span.clone(), "unknown column")
+        .among(&id.name, "columns here", names);
+        diags.push(d);
         None
     }
 

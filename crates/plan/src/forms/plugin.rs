@@ -128,15 +128,14 @@ fn form(cx: &mut Ctx, plugin: &Plugin, d: &DrawStmt) -> Outcome<String> {
         }
         Some(f) if info.forms.contains(&f.name) => Ok(f.name.clone()),
         Some(f) => {
-            let mut diag = cx
+            let diag = cx
                 .at(
                     "unknown-name",
                     format!("plugin `{}` has no form `{}`", d.plugin.name, f.name),
                     f.span.clone(),
                     "unknown form",
                 )
-                .note(format!("its forms: {}", info.forms.join(", ")));
-            diag = diag.suggest(&f.name, info.forms.iter().map(String::as_str));
+                .among(&f.name, "its forms", info.forms.iter().map(String::as_str));
             Err(cx.report(diag))
         }
         None if info.forms.len() == 1 => Ok(info.forms[0].clone()),
