@@ -120,11 +120,13 @@ pub fn text_box(text: &str, x: f64, top: f64, size: f64, bold: bool, align: Alig
     }
 }
 
-/// One line of text, positioned by the top of its box.
+/// One line of text, positioned by the top of its box. The display list
+/// owns its text; the renderer lays text out with a borrowed one
+/// (`Text<&str>`).
 #[derive(Clone, Debug, PartialEq)]
-pub struct Text {
+pub struct Text<S = String> {
     /// The text as drawn (already fitted).
-    pub text: String,
+    pub text: S,
     /// Anchor position along x (see [`Text::align`]).
     pub x: f64,
     /// Top of the text box.
@@ -137,8 +139,37 @@ pub struct Text {
     pub color: Rgb,
     /// What `x` refers to.
     pub align: Align,
-    /// The measured box ([`text_box`]).
-    pub bounds: Rect,
+}
+
+impl<S: AsRef<str>> Text<S> {
+    /// The box the text takes ([`text_box`]).
+    pub fn bounds(&self) -> Rect {
+        let Text {
+            text,
+            x,
+            top,
+            size,
+            bold,
+            align,
+            ..
+        } = self;
+        text_box(text.as_ref(), *x, *top, *size, *bold, *align)
+    }
+}
+
+impl Text<&str> {
+    /// The same text, owning its string (for the display list).
+    pub fn to_owned_text(&self) -> Text {
+        Text {
+            text: self.text.to_string(),
+            x: self.x,
+            top: self.top,
+            size: self.size,
+            bold: self.bold,
+            color: self.color,
+            align: self.align,
+        }
+    }
 }
 
 /// What a group of items is, for readers of the display list.
@@ -456,7 +487,6 @@ mod tests {
                 bold: false,
                 color: Rgb(0, 0, 0),
                 align: Align::Start,
-                bounds: text_box(t, 0.0, 0.0, 16.0, false, Align::Start),
             })
         };
         let list = DisplayList {
