@@ -102,6 +102,22 @@ fn unknown_view_name_suggests_the_closest() {
 }
 
 #[test]
+fn a_missing_column_option_names_the_option_and_how_to_give_it() {
+    let story = GOOD_STORY.replace(
+        "line by_branch: x month, y loans, series branch",
+        "scatter by_branch: y loans",
+    );
+    let err = run_broken("no-x", &story, Some(GOOD_CSV));
+    assert_located(&err, "story.cresc:10:3");
+    assert!(err.contains("which column runs along x?"), "{err}");
+    assert!(err.contains("no `x` given"), "{err}");
+    assert!(
+        err.contains("write `scatter by_branch: x COLUMN, y COLUMN`"),
+        "{err}"
+    );
+}
+
+#[test]
 fn unknown_data_name_suggests_the_closest() {
     let story = GOOD_STORY.replace("view by_branch = loans", "view by_branch = laons");
     let err = run_broken("data-name", &story, Some(GOOD_CSV));

@@ -183,12 +183,12 @@ fn check_geometry(name: &str, deck: &DeckPlan, frame: &FramePlan) -> Text {
         .filter(|t| t.text == *figure && t.bold && t.size < 30.0)
         .collect();
     assert_eq!(drawn.len(), 1, "{name}: the figure {figure:?} once");
-    let f = drawn[0].bounds;
+    let f = drawn[0].bounds();
     // inside the page, below the headline and above the source
     let headline_bottom = texts
         .iter()
         .filter(|t| t.size > 30.0)
-        .map(|t| t.bounds.y1)
+        .map(|t| t.bounds().y1)
         .fold(0.0, f64::max);
     assert!(
         f.y0 > headline_bottom && f.x0 >= 0.0 && f.x1 <= 1280.0,
@@ -198,7 +198,7 @@ fn check_geometry(name: &str, deck: &DeckPlan, frame: &FramePlan) -> Text {
         if std::ptr::eq(*t, *drawn[0]) {
             continue;
         }
-        assert_eq!(f.overlap(&t.bounds), 0.0, "{name}: on {:?}", t.text);
+        assert_eq!(f.overlap(&t.bounds()), 0.0, "{name}: on {:?}", t.text);
     }
     for i in &items {
         let mark = match i {
@@ -341,10 +341,10 @@ fn a_refreshed_value_moves_its_annotation() {
     let at_after = check_geometry("after", &after, &after.frames[0]);
     assert_eq!(at_after.text, "240");
     assert!(
-        at_after.bounds.x1 < at_before.bounds.x0 - 300.0,
+        at_after.bounds().x1 < at_before.bounds().x0 - 300.0,
         "the figure moved to March 2023: {:?} -> {:?}",
-        at_before.bounds,
-        at_after.bounds
+        at_before.bounds(),
+        at_after.bounds()
     );
     let _ = fs::remove_dir_all(&dir);
 }
@@ -361,7 +361,7 @@ fn a_cite_keeps_its_place_through_the_sequence() {
                   frame \"e\" {\n  spotlight \"Northgate\"\n}\n";
     let deck = plan(&dir, &format!("{DATA}{frames}")).plan;
     let at: Vec<Rect> = (deck.frames.iter())
-        .map(|f| check_geometry(&f.headline, &deck, f).bounds)
+        .map(|f| check_geometry(&f.headline, &deck, f).bounds())
         .collect();
     assert_eq!(at[0], at[1], "line: showing South moved the figure");
     assert_eq!(at[0], at[2], "line: lighting South moved the figure");
@@ -410,7 +410,7 @@ fn a_cite_keeps_its_place_when_hidden_marks_appear() {
         );
         let deck = plan(&dir, &format!("{DATA}{frames}")).plan;
         let at: Vec<Rect> = (deck.frames.iter())
-            .map(|f| check_geometry(&f.headline, &deck, f).bounds)
+            .map(|f| check_geometry(&f.headline, &deck, f).bounds())
             .collect();
         if at[0] != at[1] {
             moved.push(format!("{name}: {:?} -> {:?}", at[0], at[1]));

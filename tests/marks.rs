@@ -155,9 +155,9 @@ fn y_scale(plan: &DeckPlan, list: &DisplayList) -> impl Fn(f64) -> f64 {
     let centre = |label: &str| {
         let t = (list.texts().into_iter())
             .filter(|t| t.text == label)
-            .min_by(|a, b| a.bounds.x0.total_cmp(&b.bounds.x0))
+            .min_by(|a, b| a.bounds().x0.total_cmp(&b.bounds().x0))
             .unwrap_or_else(|| panic!("no tick {label}"));
-        (t.bounds.y0 + t.bounds.y1) / 2.0
+        (t.bounds().y0 + t.bounds().y1) / 2.0
     };
     let (lo, hi) = (l.y.ticks.first().unwrap(), l.y.ticks.last().unwrap());
     let (y_lo, y_hi) = (centre(&lo.label), centre(&hi.label));
@@ -302,7 +302,7 @@ fn moments_mark_their_times_and_their_labels_keep_off_the_data() {
                 .iter()
                 .find(|t| t.text == *label)
                 .unwrap_or_else(|| panic!("no label {label}"));
-            let b = t.bounds;
+            let b = t.bounds();
             assert!(b.inside(&plot), "{label}: {b:?} outside {plot:?}");
             let inner = b.grow(-1.0);
             assert!(
@@ -311,7 +311,7 @@ fn moments_mark_their_times_and_their_labels_keep_off_the_data() {
             );
             for other in texts.iter().filter(|o| o.text != *label) {
                 assert!(
-                    !inner.overlaps(&other.bounds, 0.0),
+                    !inner.overlaps(&other.bounds(), 0.0),
                     "{label} on {}",
                     other.text
                 );
@@ -420,8 +420,10 @@ fn the_claims_footnote_lists_the_claims_a_frame_rests_on() {
         .filter(|t| t.text.starts_with("Holds"))
         .collect();
     assert_eq!(foot.len(), 3);
-    assert!(foot.iter().all(|t| t.bounds.y1 <= source.bounds.y0 + 0.5));
-    assert!(foot.iter().all(|t| t.bounds.y0 > baseline_y(&lists[0])));
+    assert!(foot
+        .iter()
+        .all(|t| t.bounds().y1 <= source.bounds().y0 + 0.5));
+    assert!(foot.iter().all(|t| t.bounds().y0 > baseline_y(&lists[0])));
     assert!(!lists[1].texts().iter().any(|t| t.text.starts_with("Holds")));
     assert_eq!(baseline_y(&lists[0]), baseline_y(&lists[1]), "one grid");
 }
@@ -498,11 +500,11 @@ fn callouts_on_every_form_keep_off_texts_and_marks() {
             .iter()
             .find(|t| t.text == "Invented test data")
             .unwrap();
-        assert!(t.bounds.y0 > headline.bounds.y1 && t.bounds.y1 < source.bounds.y0);
-        let inner = t.bounds.grow(-1.0);
+        assert!(t.bounds().y0 > headline.bounds().y1 && t.bounds().y1 < source.bounds().y0);
+        let inner = t.bounds().grow(-1.0);
         for other in texts.iter().filter(|o| o.text != t.text) {
             assert!(
-                !inner.overlaps(&other.bounds, 0.0),
+                !inner.overlaps(&other.bounds(), 0.0),
                 "frame {}: note on \"{}\"",
                 f.number,
                 other.text

@@ -298,14 +298,14 @@ fn every_demo_frame_is_well_formed_and_has_no_overlapping_text() {
             let boxes = crescendo_render::inspect::text_boxes(&svg).unwrap();
             assert_eq!(boxes.len(), texts.len());
             for (t, b) in texts.iter().zip(&boxes) {
-                let r = &t.bounds;
+                let r = &t.bounds();
                 let close = [(r.x0, b.x0), (r.y0, b.y0), (r.x1, b.x1), (r.y1, b.y1)]
                     .iter()
                     .all(|(a, b)| (a - b).abs() <= 1.0);
                 assert!(close, "{name} frame {}: {t:?} is drawn at {b:?}", f.number);
             }
             for t in &texts {
-                let b = &t.bounds;
+                let b = &t.bounds();
                 assert!(
                     b.x0 >= 0.0 && b.y0 >= 0.0 && b.x1 <= w && b.y1 <= h,
                     "{name} frame {}: \"{}\" leaves the canvas: {:?}",
@@ -317,7 +317,7 @@ fn every_demo_frame_is_well_formed_and_has_no_overlapping_text() {
             for (i, a) in texts.iter().enumerate() {
                 for b in &texts[i + 1..] {
                     assert!(
-                        !a.bounds.overlaps(&b.bounds, 0.0),
+                        !a.bounds().overlaps(&b.bounds(), 0.0),
                         "{name} frame {}: \"{}\" overlaps \"{}\"",
                         f.number,
                         a.text,
@@ -511,7 +511,7 @@ fn labels_stay_off_the_data_lines_in_every_demo_frame() {
             for t in list.texts() {
                 labels += 1;
                 // shrink by a pixel: touching is not crossing
-                let inner = t.bounds.grow(-1.0);
+                let inner = t.bounds().grow(-1.0);
                 if segs.iter().any(|s| crosses(*s, &inner)) {
                     crossings.push(format!("{name} frame {}: \"{}\"", f.number, t.text));
                 }
@@ -655,12 +655,12 @@ fn every_demo_label_keeps_off_the_data_marks() {
             let marks = data_marks(list);
             for t in list.texts() {
                 // 1 px of slack for the whole-pixel rounding of the writer
-                let b = t.bounds.grow(-1.0);
+                let b = t.bounds().grow(-1.0);
                 let crossed = marks.segments.iter().any(|(p, q)| b.hit_by(*p, *q));
                 let covered = marks
                     .boxes
                     .iter()
-                    .any(|m| b.overlaps(m, 0.0) && !t.bounds.inside(&m.grow(1.0)));
+                    .any(|m| b.overlaps(m, 0.0) && !t.bounds().inside(&m.grow(1.0)));
                 if crossed || covered {
                     found.push(format!("{name} frame {}: \"{}\"", f.number, t.text));
                 }

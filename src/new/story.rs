@@ -273,17 +273,17 @@ pub(super) fn frame(s: &mut String, comment: &str, headline: &str, lines: &[Stri
     let _ = writeln!(s);
 }
 
-/// The focus, the KEY largest in `amounts`, ranks first among the KEYs of
-/// VIEW by MEASURE: the value `focus_rank`, the fact `said(focus)` that
-/// holds it to 1, then `compare` and `focus`. Returns the fact's sentence
-/// (the spotlight frame's headline).
+/// The focus, the KEY with the largest `agg` of MEASURE in `table`, ranks
+/// first among the KEYs of VIEW by MEASURE: the value `focus_rank`, the
+/// fact `said(focus)` that holds it to 1, then `compare` and `focus`.
+/// Returns the fact's sentence (the spotlight frame's headline).
 pub(super) fn ranked_focus(
     s: &mut String,
-    (view, key, measure): (&str, &str, &str),
-    amounts: &BTreeMap<String, f64>,
+    table: &Table,
+    (view, key, measure, agg): (&str, &str, &str, &str),
     said: impl FnOnce(&str) -> String,
 ) -> String {
-    let focus = largest(amounts).unwrap_or_default();
+    let focus = largest(&aggregates(table, key, measure, agg, None)).unwrap_or_default();
     let said = said(&focus);
     let _ = writeln!(
         s,
@@ -567,12 +567,9 @@ fn part_of_whole(s: &mut String, table: &Table, category: &str, part: &str, meas
         &[format!("| by {part}: {measure} = sum({measure})")],
     );
     value_and_claim(s, "parts", measure);
-    let said = ranked_focus(
-        s,
-        ("part_totals", part, measure),
-        &totals(table, part, measure),
-        |focus| format!("{focus} is the largest {} in total", words(part)),
-    );
+    let said = ranked_focus(s, table, ("part_totals", part, measure, "sum"), |focus| {
+        format!("{focus} is the largest {} in total", words(part))
+    });
     let y_title = format!("y title {}", quote(&capital(&m)));
     frame(
         s,
@@ -621,12 +618,9 @@ fn distribution(s: &mut String, table: &Table, name: &str, measure: &str) {
         &[format!("| sort {measure} descending")],
     );
     value_and_claim(s, "spread", measure);
-    let said = ranked_focus(
-        s,
-        ("spread", name, measure),
-        &totals(table, name, measure),
-        |focus| format!("{focus} has the highest {m}"),
-    );
+    let said = ranked_focus(s, table, ("spread", name, measure, "sum"), |focus| {
+        format!("{focus} has the highest {m}")
+    });
     frame(
         s,
         "1. Context: every value as a dot.",
@@ -680,12 +674,9 @@ fn comparison(
         &steps,
     );
     value_and_claim(s, "ranked", measure);
-    let said = ranked_focus(
-        s,
-        ("ranked", category, measure),
-        &aggregates(table, category, measure, agg, None),
-        |focus| format!("{focus} has the highest {m}"),
-    );
+    let said = ranked_focus(s, table, ("ranked", category, measure, agg), |focus| {
+        format!("{focus} has the highest {m}")
+    });
     let orient = if horizontal { ", horizontal" } else { "" };
     frame(
         s,

@@ -254,6 +254,19 @@ impl Diagnostic {
         }
     }
 
+    /// For a `name` that is none of `candidates`: a note listing them
+    /// (`"{what}: a, b, c"`) and the closest as help ([`Self::suggest`]).
+    pub fn among<'a>(
+        self,
+        name: &str,
+        what: &str,
+        candidates: impl IntoIterator<Item = &'a str>,
+    ) -> Self {
+        let candidates: Vec<&str> = candidates.into_iter().collect();
+        self.note(format!("{what}: {}", candidates.join(", ")))
+            .suggest(name, candidates)
+    }
+
     pub fn is_error(&self) -> bool {
         self.severity == Severity::Error
     }
@@ -458,6 +471,15 @@ fn edit_distance(a: &str, b: &str) -> usize {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn among_lists_the_candidates_and_suggests_the_closest() {
+        let d = Diagnostic::error("x", "m").among("colums", "columns here", ["rows", "columns"]);
+        assert_eq!(d.notes, ["columns here: rows, columns"]);
+        assert_eq!(d.help.as_deref(), Some("did you mean `columns`?"));
+        let d = Diagnostic::error("x", "m").among("zzzzzz", "columns here", ["rows"]);
+        assert_eq!((d.notes.len(), d.help), (1, None));
+    }
 
     #[test]
     fn suggest_names_only_a_close_candidate() {

@@ -120,11 +120,13 @@ pub fn text_box(text: &str, x: f64, top: f64, size: f64, bold: bool, align: Alig
     }
 }
 
-/// One line of text, positioned by the top of its box.
+/// One line of text, positioned by the top of its box. The display list
+/// owns its text; the renderer lays text out with a borrowed one
+/// (`Text<&str>`).
 #[derive(Clone, Debug, PartialEq)]
-pub struct Text {
+pub struct Text<S = String> {
     /// The text as drawn (already fitted).
-    pub text: String,
+    pub text: S,
     /// Anchor position along x (see [`Text::align`]).
     pub x: f64,
     /// Top of the text box.
@@ -137,8 +139,37 @@ pub struct Text {
     pub color: Rgb,
     /// What `x` refers to.
     pub align: Align,
-    /// The measured box ([`text_box`]).
-    pub bounds: Rect,
+}
+
+impl<S: AsRef<str>> Text<S> {
+    /// The box the text takes ([`text_box`]).
+    pub fn bounds(&self) -> Rect {
+        let Text {
+            text,
+            x,
+            top,
+            size,
+            bold,
+            align,
+            ..
+        } = self;
+        text_box(text.as_ref(), *x, *top, *size, *bold, *align)
+    }
+}
+
+impl Text<&str> {
+    /// The same text, owning its string (for the display list).
+    pub fn to_owned_text(&self) -> Text {
+        Text {
+            text: self.text.to_string(),
+            x: self.x,
+            top: self.top,
+            size: self.size,
+            bold: self.bold,
+            color: self.color,
+            align: self.align,
+        }
+    }
 }
 
 /// What a group of items is, for readers of the display list.
@@ -394,129 +425,5 @@ impl DisplayList {
 }
 
 #[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn overlap_is_strict() {
-        let a = Rect {
-            x0: 0.0,
-            y0: 0.0,
-            x1: 10.0,
-            y1: 10.0,
-        };
-        let b = Rect { x0: 10.0, ..a };
-        let c = Rect {
-            x0: 5.0,
-            y0: 5.0,
-            x1: 20.0,
-            y1: 20.0,
-        };
-        assert!(!a.overlaps(&b, 0.0));
-        assert_eq!(a.overlap(&b), 0.0);
-        assert!(a.overlaps(&c, 0.0));
-        assert_eq!(a.overlap(&c), 25.0);
-        assert!(!a.overlaps(&c, 6.0));
-    }
-
-    #[test]
-    fn segments_hit_rectangles() {
-        let r = Rect {
-            x0: 0.0,
-            y0: 0.0,
-            x1: 10.0,
-            y1: 10.0,
-        };
-        assert!(r.hit_by((-5.0, 5.0), (15.0, 5.0)));
-        assert!(!r.hit_by((-5.0, 15.0), (15.0, 15.0)));
-        assert!(r.hit_by((5.0, 5.0), (6.0, 6.0)));
-        assert!(!r.hit_by((11.0, -1.0), (20.0, 5.0)));
-    }
-
-    #[test]
-    fn text_boxes_follow_the_alignment() {
-        let w = text_width("Pools", 16.0, false);
-        let s = text_box("Pools", 100.0, 10.0, 16.0, false, Align::Start);
-        let m = text_box("Pools", 100.0, 10.0, 16.0, false, Align::Middle);
-        let e = text_box("Pools", 100.0, 10.0, 16.0, false, Align::End);
-        assert_eq!((s.x0, s.x1), (100.0, 100.0 + w));
-        assert_eq!((m.x0, m.x1), (100.0 - w / 2.0, 100.0 + w / 2.0));
-        assert_eq!((e.x0, e.x1), (100.0 - w, 100.0));
-        assert_eq!(s.y1 - s.y0, line_height(16.0));
-    }
-
-    #[test]
-    fn groups_are_found_and_flattened() {
-        let text = |t: &str| {
-            Item::Text(Text {
-                text: t.into(),
-                x: 0.0,
-                top: 0.0,
-                size: 16.0,
-                bold: false,
-                color: Rgb(0, 0, 0),
-                align: Align::Start,
-                bounds: text_box(t, 0.0, 0.0, 16.0, false, Align::Start),
-            })
-        };
-        let list = DisplayList {
-            items: vec![
-                Item::Group {
-                    part: Part::Headline { needed: 3 },
-                    items: vec![text("a"), text("b")],
-                },
-                Item::Group {
-                    part: Part::Chart,
-                    items: vec![Item::Group {
-                        part: Part::XTicks { wanted: vec![1.0] },
-                        items: vec![text("c")],
-                    }],
-                },
-            ],
-            description: None,
-        };
-        let texts: Vec<&str> = list.texts().iter().map(|t| t.text.as_str()).collect();
-        assert_eq!(texts, ["a", "b", "c"]);
-        assert_eq!(list.groups(|p| matches!(p, Part::XTicks { .. })).len(), 1);
-        assert_eq!(list.groups(|p| *p == Part::Headline { needed: 3 }).len(), 1);
-        assert_eq!(list.groups(|p| matches!(p, Part::Source { .. })).len(), 0);
-    }
-
-    #[test]
-    fn marks_are_chart_fills_and_thick_lines_outside_tints() {
-        let rect = |c: u8| Item::Rect {
-            a: (0.0, 0.0),
-            b: (1.0, 1.0),
-            color: Rgb(c, c, c),
-        };
-        let line = |c: u8, width: u32| Item::Polyline {
-            points: vec![(0.0, 0.0), (1.0, 1.0)],
-            color: Rgb(c, c, c),
-            width,
-        };
-        let list = DisplayList {
-            items: vec![
-                Item::Group {
-                    part: Part::Page,
-                    items: vec![rect(1)],
-                },
-                Item::Group {
-                    part: Part::Chart,
-                    items: vec![
-                        Item::Group {
-                            part: Part::Tint,
-                            items: vec![rect(2)],
-                        },
-                        rect(3),
-                        rect(3),
-                        line(4, 1),
-                        line(5, 2),
-                    ],
-                },
-            ],
-            description: None,
-        };
-        let marks: Vec<(u8, bool)> = list.marks().iter().map(|m| (m.color.0, m.fill)).collect();
-        assert_eq!(marks, [(3, true), (5, false)]);
-    }
-}
+#[path = "display_tests.rs"]
+mod tests;

@@ -81,6 +81,20 @@ impl<'a> Ctx<'a> {
         self.report(d)
     }
 
+    /// Report an error located in the story, with the one help line that
+    /// says how to fix it.
+    pub(crate) fn error_with_help(
+        &mut self,
+        code: &'static str,
+        message: impl Into<String>,
+        span: Span,
+        label: impl Into<String>,
+        help: impl Into<String>,
+    ) -> Reported {
+        let d = self.at(code, message, span, label).help(help);
+        self.report(d)
+    }
+
     /// Report an error.
     pub(crate) fn report(&mut self, d: Diagnostic) -> Reported {
         debug_assert!(d.is_error(), "{d:?} is not an error");

@@ -88,15 +88,17 @@ impl Evaluator<'_> {
                 if let Some(d) = self.ambiguous_spread(other, fspan) {
                     return Err(vec![d]);
                 }
-                let mut d = self.err(
+                let d = self.err(
                     "unknown-name",
                     format!("unknown function `{other}`"),
                     fspan.clone(),
                     "not a value function",
                 );
-                d = d.note(format!("value functions: {}", FUNCTIONS.join(", ")));
-                d = d.suggest(other, FUNCTIONS.iter().copied());
-                Err(vec![d])
+                Err(vec![d.among(
+                    other,
+                    "value functions",
+                    FUNCTIONS.iter().copied(),
+                )])
             }
         }
     }
@@ -150,11 +152,9 @@ impl Evaluator<'_> {
         let table: &Table = &named.table;
         let schema = schema_of(table);
         let place = format!("in `{}`", sel.view.name);
+        let at = rows::At::new(self.src, &schema, &place);
         let column = match &sel.column {
-            Some(c) => Some(
-                rows::column(self.src, &schema, &place, c, &mut diags)
-                    .ok_or_else(|| diags.clone())?,
-            ),
+            Some(c) => Some(at.column(c, &mut diags).ok_or_else(|| diags.clone())?),
             None if need_column => {
                 return Err(vec![self
                     .err(
@@ -168,17 +168,13 @@ impl Evaluator<'_> {
             None => None,
         };
         let by = match &sel.by {
-            Some(b) => Some(
-                rows::column(self.src, &schema, &place, b, &mut diags)
-                    .ok_or_else(|| diags.clone())?,
-            ),
+            Some(b) => Some(at.column(b, &mut diags).ok_or_else(|| diags.clone())?),
             None => None,
         };
         let rows: Vec<usize> = match &sel.filter {
             None => (0..table.columns.first().map_or(0, |c| c.values.len())).collect(),
             Some(f) => {
-                let cond = rows::check_condition(self.src, &schema, &place, f, &mut diags)
-                    .ok_or_else(|| diags.clone())?;
+                let cond = at.condition(f, &mut diags).ok_or_else(|| diags.clone())?;
                 let unmatched = crate::unmatched::in_table(self.src, table, f);
                 if !unmatched.is_empty() {
                     return Err(unmatched);

@@ -215,15 +215,14 @@ impl Header {
             None => THEMES[0].to_string(),
             Some(t) if THEMES.contains(&t.name.as_str()) => t.name.clone(),
             Some(t) => {
-                let mut d = cx
+                let d = cx
                     .at(
                         "unknown-theme",
                         format!("unknown theme `{}`", t.name),
                         t.span.clone(),
                         "not a built-in theme",
                     )
-                    .note(format!("built-in themes: {}", THEMES.join(", ")));
-                d = d.suggest(&t.name, THEMES.iter().copied());
+                    .among(&t.name, "built-in themes", THEMES.iter().copied());
                 cx.report(d);
                 String::new()
             }

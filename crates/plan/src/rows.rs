@@ -17,28 +17,73 @@ pub fn schema_of(t: &Table) -> Schema {
     t.columns.iter().map(|c| (c.name.clone(), c.ty)).collect()
 }
 
-/// Find a column; reports unknown names with a suggestion. `table_name` says
-/// where the column was looked for ("in `monthly`", "at this step of
-/// `monthly`").
-pub fn column(
-    src: &Arc<Source>,
-    schema: &Schema,
-    table_name: &str,
-    id: &Ident,
-    diags: &mut Vec<Diagnostic>,
-) -> Option<(usize, ColType)> {
-    if let Some(i) = schema.iter().position(|(n, _)| *n == id.name) {
-        return Some((i, schema[i].1));
-    }
-    let mut d = Diagnostic::error(
-        "unknown-column",
-        format!("no column named `{}` {table_name}", id.name),
-    )
-    .at(src, id.span.clone(), "unknown column");
-    d = d.suggest(&id.name, schema.iter().map(|(n, _)| n.as_str()));
-    let names: Vec<&str> = schema.iter().map(|(n, _)| n.as_str()).collect();
-    diags.push(d.note(format!("columns here: {}", names.join(", "))));
+/// Where columns are looked up: the columns, where they are ("in
+/// `monthly`", "at this step of `monthly`", for messages), and why a
+/// column is text (a note for type errors).
+pub(crate) struct At<'a> {
+    pub(crate) src: &'a Arc<Source>,
+    pub(crate) schema: &'a Schema,
+    pub(crate) place: &'a str,
+    pub(crate) why: &'a dyn Fn(&str) -> Option<String>,
+}
+
+/// No note on why a column is text.
+fn no_reason(_: &str) -> Option<String> {
     None
+}
+
+impl<'a> At<'a> {
+    /// Columns with no note on why one is text.
+    pub(crate) fn new(src: &'a Arc<Source>, schema: &'a Schema, place: &'a str) -> Self {
+        At {
+            src,
+            schema,
+            place,
+            why: &no_reason,
+        }
+    }
+
+    /// Find a column; reports unknown names with a suggestion.
+    pub(crate) fn column(
+        &self,
+        id: &Ident,
+        diags: &mut Vec<Diagnostic>,
+    ) -> Option<(usize, ColType)> {
+        let schema = self.schema;
+        if let Some(i) = schema.iter().position(|(n, _)| *n == id.name) {
+            return Some((i, schema[i].1));
+        }
+        let names = schema.iter().map(|(n, _)| n.as_str());
+        let d = Diagnostic::error(
+            "unknown-column",
+            format!("no column named `{}` {}", id.name, self.place),
+        )
+        .at(self.src, id.span.clone(), "unknown column")
+        .among(&id.name, "columns here", names);
+        diags.push(d);
+        None
+    }
+
+    /// A checker of row expressions against these columns.
+    pub(crate) fn checker<'d>(&'d self, diags: &'d mut Vec<Diagnostic>) -> Checker<'d> {
+        Checker { at: self, diags }
+    }
+
+    /// Type-check a row condition (a `where` of a value selection).
+    pub(crate) fn condition(&self, expr: &Expr, diags: &mut Vec<Diagnostic>) -> Option<data::Expr> {
+        let mut ck = self.checker(diags);
+        match ck.check(expr)? {
+            (e, Ty::Bool) => Some(e),
+            (_, t) => {
+                ck.err(
+                    expr.span(),
+                    format!("`where` needs a condition, but this is {}", t.describe()),
+                    "not a condition",
+                );
+                None
+            }
+        }
+    }
 }
 
 /// The type of an expression while checking it.
@@ -62,19 +107,17 @@ impl Ty {
 
 /// Checks row expressions against one table's columns.
 pub(crate) struct Checker<'a> {
-    pub(crate) src: &'a Arc<Source>,
-    pub(crate) schema: &'a Schema,
-    /// Where the columns are looked for, for messages.
-    pub(crate) table: &'a str,
+    pub(crate) at: &'a At<'a>,
     pub(crate) diags: &'a mut Vec<Diagnostic>,
-    /// Why a column is text (a note for type errors).
-    pub(crate) why: &'a dyn Fn(&str) -> Option<String>,
 }
 
 impl Checker<'_> {
     pub(crate) fn err(&mut self, span: ast::Span, message: String, label: &str) {
-        self.diags
-            .push(Diagnostic::error("type", message).at(self.src, span, label.to_string()));
+        self.diags.push(Diagnostic::error("type", message).at(
+            self.at.src,
+            span,
+            label.to_string(),
+        ));
     }
 
     /// A literal coerced to `ty`, or an error at `span`.
@@ -142,7 +185,7 @@ impl Checker<'_> {
     pub(crate) fn check(&mut self, e: &Expr) -> Option<(data::Expr, Ty)> {
         match e {
             Expr::Name(id) => {
-                let (i, t) = column(self.src, self.schema, self.table, id, self.diags)?;
+                let (i, t) = self.at.column(id, self.diags)?;
                 Some((data::Expr::Col(i), Ty::Col(t)))
             }
             Expr::Number { value, .. } => Some((
@@ -253,7 +296,7 @@ impl Checker<'_> {
                         "type",
                         format!("`{}(...)` needs the story's fiscal year", func.name),
                     )
-                    .at(self.src, func.span.clone(), "no fiscal year")
+                    .at(self.at.src, func.span.clone(), "no fiscal year")
                     .help("say when it starts at the top of the story, e.g. `fiscal year starts July`; for calendar periods use `year(...)` or `quarter(...)`"),
                 );
                 return None;
@@ -334,7 +377,7 @@ impl Checker<'_> {
     fn not_in_a_row(&mut self, span: ast::Span, message: String, label: &str, help: &str) {
         self.diags.push(
             Diagnostic::error("syntax", message)
-                .at(self.src, span, label.to_string())
+                .at(self.at.src, span, label.to_string())
                 .help(help.to_string()),
         );
     }
@@ -417,7 +460,7 @@ impl Checker<'_> {
             label,
         );
         if let (false, Expr::Name(id)) = (logic, side) {
-            if let Some(n) = (self.why)(&id.name) {
+            if let Some(n) = (self.at.why)(&id.name) {
                 if let Some(d) = self.diags.last_mut() {
                     d.notes.push(n);
                 }
@@ -535,34 +578,4 @@ pub fn kept_rows(table: &Table, cond: data::Expr) -> Vec<usize> {
                 .collect()
         })
         .unwrap_or_default()
-}
-
-/// Type-check a row condition (a `where` of a value selection) against a
-/// schema; `place` says where the columns were looked for.
-pub fn check_condition(
-    src: &Arc<Source>,
-    schema: &Schema,
-    place: &str,
-    expr: &Expr,
-    diags: &mut Vec<Diagnostic>,
-) -> Option<data::Expr> {
-    let no_why = |_: &str| None;
-    let mut ck = Checker {
-        src,
-        schema,
-        table: place,
-        diags,
-        why: &no_why,
-    };
-    match ck.check(expr)? {
-        (e, Ty::Bool) => Some(e),
-        (_, t) => {
-            ck.err(
-                expr.span(),
-                format!("`where` needs a condition, but this is {}", t.describe()),
-                "not a condition",
-            );
-            None
-        }
-    }
 }

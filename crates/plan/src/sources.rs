@@ -128,7 +128,7 @@ pub(crate) fn check_named(cx: &mut Ctx, story: &ast::StoryAst) {
         if data.iter().any(|d| d.name.name == *name) {
             continue;
         }
-        let names: Vec<&str> = data.iter().map(|d| d.name.name.as_str()).collect();
+        let names = data.iter().map(|d| d.name.name.as_str());
         let d = cx
             .at(
                 "unknown-name",
@@ -136,8 +136,8 @@ pub(crate) fn check_named(cx: &mut Ctx, story: &ast::StoryAst) {
                 0..0,
                 "in this story",
             )
-            .note(format!("data items: {}", names.join(", ")));
-        cx.report(d.suggest(name, names.iter().copied()));
+            .among(name, "data items", names);
+        cx.report(d);
     }
     let databases: Vec<&str> = data
         .iter()
@@ -157,8 +157,8 @@ pub(crate) fn check_named(cx: &mut Ctx, story: &ast::StoryAst) {
         let d = if databases.is_empty() {
             d.note("no data item of this story reads a database")
         } else {
-            d.note(format!("database data items: {}", databases.join(", ")))
+            d.among(name, "database data items", databases.iter().copied())
         };
-        cx.report(d.suggest(name, databases.iter().copied()));
+        cx.report(d);
     }
 }

@@ -7,39 +7,16 @@
 use std::cell::RefCell;
 
 pub use crescendo_look::display::Align;
-use crescendo_look::display::{text_box, Item, Part, Text};
+use crescendo_look::display::{Item, Part, Text};
 pub use crescendo_look::theme::{FONT_FAMILY, HEIGHT, WIDTH};
 
 use crate::theme::Rgb;
 use crate::RenderError;
 
-/// One piece of text to draw.
-#[derive(Clone, Debug)]
-pub struct Label<'a> {
-    /// The text, already fitted (the writer escapes it).
-    pub text: &'a str,
-    /// Anchor position along x (see [`Label::align`]).
-    pub x: f64,
-    /// Top of the text box (see [`crate::metrics::line_height`]).
-    pub top: f64,
-    /// Font size in px, as it will appear in the SVG.
-    pub size: f64,
-    /// Bold weight.
-    pub bold: bool,
-    /// Fill colour.
-    pub color: Rgb,
-    /// What `x` refers to.
-    pub align: Align,
-}
+/// One piece of text to draw, borrowing its text (already fitted; the
+/// writer escapes it).
+pub type Label<'a> = Text<&'a str>;
 
-impl Label<'_> {
-    /// The box the text takes, as the display list measures it.
-    pub fn bounds(&self) -> crescendo_look::display::Rect {
-        text_box(
-            self.text, self.x, self.top, self.size, self.bold, self.align,
-        )
-    }
-}
 /// A data mark by its item index and, where the form has them, its part.
 type MarkKey = (usize, Option<usize>);
 
@@ -215,16 +192,7 @@ impl Canvas {
         if label.text.is_empty() {
             return Ok(());
         }
-        self.push(Item::Text(Text {
-            text: label.text.to_string(),
-            x: label.x,
-            top: label.top,
-            size: label.size,
-            bold: label.bold,
-            color: label.color,
-            align: label.align,
-            bounds: label.bounds(),
-        }))
+        self.push(Item::Text(label.to_owned_text()))
     }
 
     /// A straight line.

@@ -249,7 +249,7 @@ fn obstacles_of(items: &[Item]) -> Obstacles {
     let mut o = Obstacles::default();
     for item in items {
         match item {
-            Item::Text(t) => o.boxes.push(t.bounds),
+            Item::Text(t) => o.boxes.push(t.bounds()),
             Item::Rect { a, b, .. } => o.add_mark(*a, *b),
             Item::Dot { at, radius, .. } => {
                 let r = f64::from(*radius);

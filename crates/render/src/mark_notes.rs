@@ -29,7 +29,7 @@ fn obstacles(canvas: &Canvas) -> Obstacles {
     let mut o = Obstacles::default();
     for item in canvas.drawn() {
         match item {
-            Item::Text(t) => o.boxes.push(t.bounds),
+            Item::Text(t) => o.boxes.push(t.bounds()),
             Item::Rect { a, b, .. } => o.add_mark(a, b),
             Item::Dot { at, radius, .. } => {
                 let r = f64::from(radius);

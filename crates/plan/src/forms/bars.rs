@@ -85,21 +85,16 @@ fn rows(
     for r in 0..xcol.values.len() {
         let label = display(&xcol.values.value(r));
         if rows.iter().any(|(l, _, _)| *l == label) {
-            let d = cx
-                .at(
-                    "duplicate-point",
-                    format!(
-                        "bars need one row per category, but `{}` has several rows for \"{}\"",
-                        spec.table_name, label
-                    ),
-                    c.span.clone(),
-                    "in this chart",
-                )
-                .help(format!(
-                    "group the view first, e.g. `| by {}: ...`",
-                    xcol.name
-                ));
-            return Err(cx.report(d));
+            return Err(cx.error_with_help(
+                "duplicate-point",
+                format!(
+                    "bars need one row per category, but `{}` has several rows for \"{}\"",
+                    spec.table_name, label
+                ),
+                c.span.clone(),
+                "in this chart",
+                format!("group the view first, e.g. `| by {}: ...`", xcol.name),
+            ));
         }
         let v = match &ycol.values.value(r) {
             Value::Number(v) => Some(*v),

@@ -17,17 +17,8 @@ pub(crate) fn spec(cx: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
     let (c, view) = (input.c, &input.view);
     let form = c.form.keyword();
     let which = |cx: &mut Ctx, name: OptName, what: &str| {
-        let d = cx
-            .at(
-                "chart-option",
-                format!("which column holds the {what}?"),
-                c.span.clone(),
-                format!("no `{}` given", name.keyword()),
-            )
-            .help(format!(
-                "write `{form} {view}: category COLUMN, value COLUMN`"
-            ));
-        cx.report(d)
+        let help = format!("write `{form} {view}: category COLUMN, value COLUMN`");
+        input.missing(cx, name, format!("which column holds the {what}?"), help)
     };
     let cat = match input.given_or_key(OptName::Category) {
         Some(id) => input.lookup(cx, id)?,
@@ -128,19 +119,17 @@ pub(crate) fn cells(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Gr
                 Some(e) => format!("\"{label}\" and {} \"{key}\"", e.name),
                 None => format!("\"{label}\""),
             };
-            let d = cx
-                .at(
-                    "duplicate-point",
-                    format!("`{}` has several rows for {what}", spec.table_name),
-                    c.span.clone(),
-                    "in this chart",
-                )
-                .help(format!(
+            return Err(cx.error_with_help(
+                "duplicate-point",
+                format!("`{}` has several rows for {what}", spec.table_name),
+                c.span.clone(),
+                "in this chart",
+                format!(
                     "group the view first, e.g. `| by {}{}: ...`",
                     cat.name,
                     extra.map_or(String::new(), |e| format!(", {}", e.name))
-                ));
-            return Err(cx.report(d));
+                ),
+            ));
         }
         grid.values[ci][ki] = number(&val.values.value(r));
     }

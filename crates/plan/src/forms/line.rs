@@ -25,7 +25,7 @@ pub(crate) const OPTIONS: &[Opt] = &[
 
 impl FormPlanner for Line {
     fn spec(&self, cx: &mut Ctx, input: &SpecInput) -> Outcome<ChartSpec> {
-        let (c, view) = (input.c, &input.view);
+        let view = &input.view;
         let x = match input.given(OptName::X) {
             Some(id) => input.lookup(cx, id)?,
             None => {
@@ -37,15 +37,9 @@ impl FormPlanner for Line {
                     .map(|(i, _)| i)
                     .collect();
                 let [only] = times[..] else {
-                    let d = cx
-                        .at(
-                            "chart-option",
-                            "which column runs along x?",
-                            c.span.clone(),
-                            "no `x` given",
-                        )
-                        .help(format!("write `line {view}: x COLUMN, ...`"));
-                    return Err(cx.report(d));
+                    let help = format!("write `line {view}: x COLUMN, ...`");
+                    let question = "which column runs along x?".into();
+                    return Err(input.missing(cx, OptName::X, question, help));
                 };
                 (only, input.schema[only].1)
             }
@@ -53,17 +47,10 @@ impl FormPlanner for Line {
         // A line over text categories is allowed but linted
         // (`line-over-categories`): the line implies an order.
         let Some(y) = input.given_or_measure(OptName::Y) else {
-            let d = cx
-                .at(
-                    "chart-option",
-                    "which column is the measure?",
-                    c.span.clone(),
-                    "no `y` given",
-                )
-                .help(format!(
-                    "write `line {view}: y COLUMN`, or declare `compare KEY by MEASURE`"
-                ));
-            return Err(cx.report(d));
+            let help =
+                format!("write `line {view}: y COLUMN`, or declare `compare KEY by MEASURE`");
+            let question = "which column is the measure?".into();
+            return Err(input.missing(cx, OptName::Y, question, help));
         };
         let y = input.lookup(cx, y)?;
         input.number_column(cx, y, input.span_of(OptName::Y), "the measure")?;
@@ -160,25 +147,23 @@ fn collect(cx: &mut Ctx, spec: &ChartSpec, c: &ChartStmt) -> Outcome<Lines> {
             _ => None,
         };
         if !seen.insert((name.clone(), (x + 0.0).to_bits())) {
-            let d = cx
-                .at(
-                    "duplicate-point",
-                    format!(
-                        "a line needs one value per x and series, but `{}` has several rows for \"{}\" at {}",
-                        spec.table_name,
-                        name,
-                        display(&xcol.values.value(r))
-                    ),
-                    c.span.clone(),
-                    "in this chart",
-                )
-                .help(format!(
+            return Err(cx.error_with_help(
+                "duplicate-point",
+                format!(
+                    "a line needs one value per x and series, but `{}` has several rows for \"{}\" at {}",
+                    spec.table_name,
+                    name,
+                    display(&xcol.values.value(r))
+                ),
+                c.span.clone(),
+                "in this chart",
+                format!(
                     "group the view first, e.g. `| by {}{}: ...`",
                     xcol.name,
                     spec.series
                         .map_or(String::new(), |s| format!(", {}", t.columns[s].name))
-                ));
-            return Err(cx.report(d));
+                ),
+            ));
         }
         out.x = (out.x.0.min(x), out.x.1.max(x));
         if let Some(y) = y {

@@ -67,15 +67,13 @@ pub(crate) fn start(
     };
     let spec = planner.spec(cx, &input)?;
     if spec.rows() == 0 {
-        let d = cx
-            .at(
-                "empty-view",
-                format!("`{}` has no rows to draw", spec.table_name),
-                c.view.span.clone(),
-                "empty",
-            )
-            .help("check the view's `keep` conditions against the data");
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "empty-view",
+            format!("`{}` has no rows to draw", spec.table_name),
+            c.view.span.clone(),
+            "empty",
+            "check the view's `keep` conditions against the data",
+        ));
     }
     planner.chart(cx, &spec, c)
 }

@@ -22,15 +22,13 @@ impl FormPlanner for Pie {
         for (i, (label, _)) in grid.cats.iter().enumerate() {
             match grid.values[i].first().copied().flatten() {
                 Some(v) if v < 0.0 => {
-                    let d = cx
-                        .at(
-                            "chart-type",
-                            format!("a pie shows parts of a whole, but \"{label}\" is negative"),
-                            c.span.clone(),
-                            "negative slice",
-                        )
-                        .help("use bars for values that can be negative");
-                    return Err(cx.report(d));
+                    return Err(cx.error_with_help(
+                        "chart-type",
+                        format!("a pie shows parts of a whole, but \"{label}\" is negative"),
+                        c.span.clone(),
+                        "negative slice",
+                        "use bars for values that can be negative",
+                    ));
                 }
                 Some(v) => slices.push((label.clone(), v)),
                 None => {}

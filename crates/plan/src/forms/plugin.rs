@@ -128,15 +128,14 @@ fn form(cx: &mut Ctx, plugin: &Plugin, d: &DrawStmt) -> Outcome<String> {
         }
         Some(f) if info.forms.contains(&f.name) => Ok(f.name.clone()),
         Some(f) => {
-            let mut diag = cx
+            let diag = cx
                 .at(
                     "unknown-name",
                     format!("plugin `{}` has no form `{}`", d.plugin.name, f.name),
                     f.span.clone(),
                     "unknown form",
                 )
-                .note(format!("its forms: {}", info.forms.join(", ")));
-            diag = diag.suggest(&f.name, info.forms.iter().map(String::as_str));
+                .among(&f.name, "its forms", info.forms.iter().map(String::as_str));
             Err(cx.report(diag))
         }
         None if info.forms.len() == 1 => Ok(info.forms[0].clone()),
@@ -165,10 +164,10 @@ fn form(cx: &mut Ctx, plugin: &Plugin, d: &DrawStmt) -> Outcome<String> {
 fn options(cx: &mut Ctx, table: &Table, d: &DrawStmt) -> Outcome<BTreeMap<String, String>> {
     let schema = schema_of(table);
     let place = format!("in `{}`", d.view.name);
-    let src = cx.src;
+    let at = rows::At::new(cx.src, &schema, &place);
     let mut options = BTreeMap::new();
     for (k, v) in &d.opts {
-        cx.collect(|diags| rows::column(src, &schema, &place, v, diags))?;
+        cx.collect(|diags| at.column(v, diags))?;
         if options.insert(k.name.clone(), v.name.clone()).is_some() {
             return Err(cx.error(
                 "chart-option",

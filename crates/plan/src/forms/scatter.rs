@@ -30,20 +30,12 @@ impl FormPlanner for Scatter {
         let pick = |cx: &mut Ctx, n: OptName, what: &str| -> Outcome<(usize, ColType)> {
             match input.given(n) {
                 Some(id) => input.lookup(cx, id),
-                None => {
-                    let d = cx
-                        .at(
-                            "chart-option",
-                            format!("which column runs along {what}?"),
-                            input.c.span.clone(),
-                            "",
-                        )
-                        .help(format!(
-                            "write `scatter {}: x COLUMN, y COLUMN`",
-                            input.view
-                        ));
-                    Err(cx.report(d))
-                }
+                None => Err(input.missing(
+                    cx,
+                    n,
+                    format!("which column runs along {what}?"),
+                    format!("write `scatter {}: x COLUMN, y COLUMN`", input.view),
+                )),
             }
         };
         let x = pick(cx, OptName::X, "x")?;

@@ -98,6 +98,19 @@ impl SpecInput<'_> {
         self.chosen.column(name)
     }
 
+    /// The error for a column option the chart needs and was not given:
+    /// `question` asks for the column, `help` shows the statement with it.
+    pub(crate) fn missing(
+        &self,
+        cx: &mut Ctx,
+        name: OptName,
+        question: String,
+        help: String,
+    ) -> Reported {
+        let label = format!("no `{}` given", name.keyword());
+        cx.error_with_help("chart-option", question, self.c.span.clone(), label, help)
+    }
+
     /// The column given for `name`, else the comparison's key when the
     /// view has it.
     pub(crate) fn given_or_key(&self, name: OptName) -> Option<&Ident> {
@@ -126,7 +139,7 @@ impl SpecInput<'_> {
     pub(crate) fn lookup(&self, cx: &mut Ctx, id: &Ident) -> Outcome<(usize, ColType)> {
         let place = format!("in `{}`", self.view);
         let src = cx.src;
-        cx.collect(|diags| rows::column(src, &self.schema, &place, id, diags))
+        cx.collect(|diags| rows::At::new(src, &self.schema, &place).column(id, diags))
     }
 
     /// The column of option `name`, looked up when given.

@@ -19,17 +19,13 @@ pub(super) fn line_of<'s>(
 ) -> Outcome<&'s mut LineChart> {
     match &mut st.chart {
         Chart::Line(l) => Ok(l),
-        _ => {
-            let d = cx
-                .at(
-                    "annotation",
-                    format!("`{what}` annotates line charts"),
-                    span.clone(),
-                    "this frame's chart is not a line",
-                )
-                .help("start a line chart, or state the point in the takeaway");
-            Err(cx.report(d))
-        }
+        _ => Err(cx.error_with_help(
+            "annotation",
+            format!("`{what}` annotates line charts"),
+            span.clone(),
+            "this frame's chart is not a line",
+            "start a line chart, or state the point in the takeaway",
+        )),
     }
 }
 
@@ -132,20 +128,16 @@ fn callout_series(cx: &mut Ctx, st: &SeqState, on: &Option<Str>, span: &Span) ->
     };
     match <[String; 1]>::try_from(candidates) {
         Ok([one]) => Ok(one),
-        Err(candidates) => {
-            let d = cx
-                .at(
-                    "annotation",
-                    format!(
-                        "which series does this callout point at? ({} are shown)",
-                        candidates.len()
-                    ),
-                    span.clone(),
-                    "ambiguous",
-                )
-                .help("write `callout AT on \"Series\" \"text\"`");
-            Err(cx.report(d))
-        }
+        Err(candidates) => Err(cx.error_with_help(
+            "annotation",
+            format!(
+                "which series does this callout point at? ({} are shown)",
+                candidates.len()
+            ),
+            span.clone(),
+            "ambiguous",
+            "write `callout AT on \"Series\" \"text\"`",
+        )),
     }
 }
 
@@ -202,18 +194,16 @@ pub(crate) fn reference(
     let [lo, hi] = line.y.domain;
     if value < lo || value > hi {
         let (lo_s, hi_s) = (format::number(lo, None), format::number(hi, None));
-        let d = cx
-            .at(
-                "annotation",
-                format!(
-                    "the reference {} lies outside the axis ({lo_s} to {hi_s})",
-                    format::number(value, None)
-                ),
-                span.clone(),
-                "off the chart",
-            )
-            .help("widen the axis with `y range`, or leave the reference out");
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "annotation",
+            format!(
+                "the reference {} lies outside the axis ({lo_s} to {hi_s})",
+                format::number(value, None)
+            ),
+            span.clone(),
+            "off the chart",
+            "widen the axis with `y range`, or leave the reference out",
+        ));
     }
     line.annotations
         .push(Annotation::Reference { value, text: label });

@@ -37,10 +37,13 @@ pub(crate) fn range(
     let mut targets = Vec::new();
     if let Err(why) = ranged_axes(&mut st.chart, axis, &mut targets) {
         let (message, help) = why;
-        let d = cx
-            .at("axis-range", message, span.clone(), "not for this chart")
-            .help(help);
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "axis-range",
+            message,
+            span.clone(),
+            "not for this chart",
+            help,
+        ));
     }
     let values: Vec<f64> = targets
         .iter()
@@ -49,21 +52,19 @@ pub(crate) fn range(
     let lo = values.iter().copied().fold(f64::INFINITY, f64::min);
     let hi = values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
     if lo < from || hi > to {
-        let d = cx
-            .at(
-                "axis-range",
-                format!(
-                    "the range {} to {} would cut off data: the values run from {} to {}",
-                    format::number(from, None),
-                    format::number(to, None),
-                    format::number(lo, None),
-                    format::number(hi, None)
-                ),
-                span.clone(),
-                "data outside this range",
-            )
-            .help("widen the range, or leave it out to fit the axis to the data");
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "axis-range",
+            format!(
+                "the range {} to {} would cut off data: the values run from {} to {}",
+                format::number(from, None),
+                format::number(to, None),
+                format::number(lo, None),
+                format::number(hi, None)
+            ),
+            span.clone(),
+            "data outside this range",
+            "widen the range, or leave it out to fit the axis to the data",
+        ));
     }
     for (axis, _) in targets {
         let fitted = scale::linear_axis(from, to, false, axis.title.clone());
@@ -184,18 +185,14 @@ pub(crate) fn gridlines(cx: &mut Ctx, st: &mut SeqState, on: bool, span: &Span) 
             Chart::Plugin(_) => "a plugin's chart",
             _ => "this chart",
         };
-        let d = cx
-            .at(
-                "gridlines",
-                format!("`gridlines` needs a measure's axis, and {form} has none"),
-                span.clone(),
-                "no axis to draw gridlines along",
-            )
-            .help(
-                "use gridlines with line, bars, dots or scatter charts (or their panels), \
-                 or remove the statement",
-            );
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "gridlines",
+            format!("`gridlines` needs a measure's axis, and {form} has none"),
+            span.clone(),
+            "no axis to draw gridlines along",
+            "use gridlines with line, bars, dots or scatter charts (or their panels), \
+             or remove the statement",
+        ));
     }
     st.anchors.gridlines = on.then(|| span.clone());
     Ok(())

@@ -63,27 +63,23 @@ pub(crate) fn cite(
             return Err(cx.report(d));
         }
         Err(NoProv::Broken) => {
-            let d = cx
-                .at(
-                    "cite",
-                    format!("the evidence of `{name}` cannot be drawn"),
-                    id.span.clone(),
-                    "not one function of a view's rows, nor a ratio or difference of two",
-                )
-                .help("cite a function of a view (`max`, `last`, `share`, `change`, `growth`, `slope`, ...) or a value `a / b` or `a - b` of two of them");
-            return Err(cx.report(d));
+            return Err(cx.error_with_help(
+                "cite",
+                format!("the evidence of `{name}` cannot be drawn"),
+                id.span.clone(),
+                "not one function of a view's rows, nor a ratio or difference of two",
+                "cite a function of a view (`max`, `last`, `share`, `change`, `growth`, `slope`, ...) or a value `a / b` or `a - b` of two of them",
+            ));
         }
     };
     let Some(stmt) = st.chart_stmt.clone() else {
-        let d = cx
-            .at(
-                "cite",
-                "`cite` draws on a chart of a view",
-                span.clone(),
-                "this frame's chart is not one",
-            )
-            .help("cite the value in a frame with a line, bars, dots, scatter or pie chart");
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "cite",
+            "`cite` draws on a chart of a view",
+            span.clone(),
+            "this frame's chart is not one",
+            "cite the value in a frame with a line, bars, dots, scatter or pie chart",
+        ));
     };
     let view = first_view(&prov);
     let table = &scope.tables.by_name[&view].table;
@@ -208,15 +204,13 @@ pub(crate) fn check_shown(
         };
         if let Some(m) = marks.iter().find(|m| hidden(chart, m)) {
             let what = mark_name(chart, m);
-            let d = cx
-                .at(
-                    "cite",
-                    format!("`{}` rests on \"{what}\", which this frame hides", c.value),
-                    span.clone(),
-                    "hidden here",
-                )
-                .help("show it (`show` or `spotlight`) before citing the value");
-            return Err(cx.report(d));
+            return Err(cx.error_with_help(
+                "cite",
+                format!("`{}` rests on \"{what}\", which this frame hides", c.value),
+                span.clone(),
+                "hidden here",
+                "show it (`show` or `spotlight`) before citing the value",
+            ));
         }
     }
     Ok(())

@@ -248,15 +248,13 @@ fn figure(
         return Err(cx.already_reported());
     };
     if fc.figures.len() == 2 {
-        let d = cx
-            .at(
-                "figures",
-                "a frame holds at most two figures",
-                span.clone(),
-                "a third figure",
-            )
-            .help("one figure is the message; a second may compare with it");
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "figures",
+            "a frame holds at most two figures",
+            span.clone(),
+            "a third figure",
+            "one figure is the message; a second may compare with it",
+        ));
     }
     fc.figures.push(Figure {
         text: figure.text,

@@ -96,18 +96,16 @@ pub(crate) fn callout(
 ) -> Outcome<()> {
     let at = positions::literal(cx, scope, at)?;
     let Some((items, parts, [item_word, part_word])) = names(&st.chart) else {
-        let d = cx
-            .at(
-                "annotation",
-                format!(
-                    "a callout has no mark to point at: this frame's chart is {}",
-                    form(&st.chart)
-                ),
-                span.clone(),
-                "no mark here",
-            )
-            .help(format!("{WHERE}; say it in the takeaway instead"));
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "annotation",
+            format!(
+                "a callout has no mark to point at: this frame's chart is {}",
+                form(&st.chart)
+            ),
+            span.clone(),
+            "no mark here",
+            format!("{WHERE}; say it in the takeaway instead"),
+        ));
     };
     let Position::Text(name) = &at else {
         return Err(cx.error(
@@ -126,22 +124,20 @@ pub(crate) fn callout(
     };
     let part = match on {
         None if parts.len() > 1 && matches!(st.chart, Chart::Dots(_)) => {
-            let d = cx
-                .at(
-                    "annotation",
-                    format!(
-                        "which dot of \"{}\" does this callout point at? ({} series)",
-                        name.value,
-                        parts.len()
-                    ),
-                    span.clone(),
-                    "ambiguous",
-                )
-                .help(format!(
+            return Err(cx.error_with_help(
+                "annotation",
+                format!(
+                    "which dot of \"{}\" does this callout point at? ({} series)",
+                    name.value,
+                    parts.len()
+                ),
+                span.clone(),
+                "ambiguous",
+                format!(
                     "write `callout \"{}\" on \"{}\" \"text\"`",
                     name.value, parts[0]
-                ));
-            return Err(cx.report(d));
+                ),
+            ));
         }
         None if matches!(st.chart, Chart::Dots(_)) => Some(0),
         None => None,

@@ -26,15 +26,13 @@ pub(crate) fn moment(
         axis.scale,
         ScaleKind::Days | ScaleKind::Months | ScaleKind::Years
     ) {
-        let d = cx
-            .at(
-                "annotation",
-                "`moment` marks a time, but this chart's x axis does not run over time",
-                span.clone(),
-                "no time axis here",
-            )
-            .help("use `callout` for a point, or `band` for a range of this axis");
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "annotation",
+            "`moment` marks a time, but this chart's x axis does not run over time",
+            span.clone(),
+            "no time axis here",
+            "use `callout` for a point, or `band` for a range of this axis",
+        ));
     }
     let at_lit = positions::literal(cx, scope, at)?;
     let from = x_position(cx, &axis, &at_lit)?;
@@ -62,19 +60,17 @@ pub(crate) fn moment(
             ScaleKind::Days => time::date_iso(v.round() as i32),
             _ => format!("{}", v.round()),
         };
-        let d = cx
-            .at(
-                "annotation",
-                format!(
-                    "this moment lies outside the time the chart shows ({} to {})",
-                    shown(lo),
-                    shown(hi)
-                ),
-                at.span(),
-                "off the chart",
-            )
-            .help("mark a time inside the chart, or widen the data the view keeps");
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "annotation",
+            format!(
+                "this moment lies outside the time the chart shows ({} to {})",
+                shown(lo),
+                shown(hi)
+            ),
+            at.span(),
+            "off the chart",
+            "mark a time inside the chart, or widen the data the view keeps",
+        ));
     }
     if text.trim().is_empty() {
         return Err(cx.error(

@@ -57,17 +57,13 @@ pub(crate) fn literal(cx: &mut Ctx, scope: &Scope, p: &Position) -> Outcome<Posi
 pub(crate) fn measure(cx: &mut Ctx, scope: &Scope, p: &Position) -> Outcome<f64> {
     match literal(cx, scope, p)? {
         Position::Number { value, .. } => Ok(value),
-        other => {
-            let d = cx
-                .at(
-                    "annotation",
-                    "a reference stands at a number of the measure",
-                    other.span(),
-                    "not a number",
-                )
-                .help("write a number (`reference 100 \"Target\"`) or a value that is one");
-            Err(cx.report(d))
-        }
+        other => Err(cx.error_with_help(
+            "annotation",
+            "a reference stands at a number of the measure",
+            other.span(),
+            "not a number",
+            "write a number (`reference 100 \"Target\"`) or a value that is one",
+        )),
     }
 }
 

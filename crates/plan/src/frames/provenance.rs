@@ -128,8 +128,9 @@ fn pick((scope, src): (&Scope, &Arc<Source>), func: &str, s: &Selection) -> Resu
         None => (0..n).collect(),
         Some(f) => {
             let mut diags = Vec::new();
-            let cond =
-                rows::check_condition(src, &schema, "", f, &mut diags).ok_or(NoProv::Broken)?;
+            let cond = rows::At::new(src, &schema, "")
+                .condition(f, &mut diags)
+                .ok_or(NoProv::Broken)?;
             rows::kept_rows(table, cond)
         }
     };

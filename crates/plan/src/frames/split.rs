@@ -23,18 +23,16 @@ type PanelDraft = (String, Chart, f64);
 /// Turn the current chart into small multiples.
 pub(crate) fn split(cx: &mut Ctx, st: &mut SeqState, s: &SplitStmt) -> Outcome<()> {
     if s.key.name != st.key_name {
-        let d = cx
-            .at(
-                "split",
-                format!(
-                    "this chart can be split by `{}`, not by `{}`",
-                    st.key_name, s.key.name
-                ),
-                s.key.span.clone(),
-                "not the chart's key",
-            )
-            .help(format!("write `split {}`", st.key_name));
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "split",
+            format!(
+                "this chart can be split by `{}`, not by `{}`",
+                st.key_name, s.key.name
+            ),
+            s.key.span.clone(),
+            "not the chart's key",
+            format!("write `split {}`", st.key_name),
+        ));
     }
     let mut panels = panels(cx, &st.chart, s)?;
     order(cx, st, s, &mut panels)?;
@@ -87,47 +85,37 @@ fn panels(cx: &mut Ctx, chart: &Chart, s: &SplitStmt) -> Outcome<Vec<PanelDraft>
         Chart::Scatter(sc) => {
             let panels = scatter_panels(sc);
             if panels.iter().all(|p| p.0.is_empty()) {
-                let d = cx
-                    .at(
-                        "split",
-                        "this scatter has no groups to split into panels",
-                        s.span.clone(),
-                        "no groups",
-                    )
-                    .help("name the column that groups the points: `scatter VIEW: x A, y B, series GROUP`");
-                return Err(cx.report(d));
+                return Err(cx.error_with_help(
+                    "split",
+                    "this scatter has no groups to split into panels",
+                    s.span.clone(),
+                    "no groups",
+                    "name the column that groups the points: `scatter VIEW: x A, y B, series GROUP`",
+                ));
             }
             if panels.len() > MAX_SCATTER_PANELS {
-                let d = cx
-                    .at(
-                        "split",
-                        format!(
-                            "a scatter splits into at most {MAX_SCATTER_PANELS} panels, and `{}` has {} groups",
-                            s.key.name,
-                            panels.len()
-                        ),
-                        s.span.clone(),
-                        "too many panels",
-                    )
-                    .help("keep fewer groups in the view (`keep`), or spotlight one group instead of splitting");
-                return Err(cx.report(d));
+                return Err(cx.error_with_help(
+                    "split",
+                    format!(
+                        "a scatter splits into at most {MAX_SCATTER_PANELS} panels, and `{}` has {} groups",
+                        s.key.name,
+                        panels.len()
+                    ),
+                    s.span.clone(),
+                    "too many panels",
+                    "keep fewer groups in the view (`keep`), or spotlight one group instead of splitting",
+                ));
             }
             Ok(panels)
         }
-        _ => {
-            let d = cx
-                .at(
-                    "split",
-                    "only line charts, scatters and stacked or grouped bars split into panels",
-                    s.span.clone(),
-                    "cannot split this chart",
-                )
-                .help(
-                    "split a line chart by its series, a scatter by its `series` column, \
-                     or bars by their `stack`/`group` column",
-                );
-            Err(cx.report(d))
-        }
+        _ => Err(cx.error_with_help(
+            "split",
+            "only line charts, scatters and stacked or grouped bars split into panels",
+            s.span.clone(),
+            "cannot split this chart",
+            "split a line chart by its series, a scatter by its `series` column, \
+                 or bars by their `stack`/`group` column",
+        )),
     }
 }
 
@@ -211,21 +199,19 @@ fn part_panel(p: &PartsChart, i: usize) -> PanelDraft {
 /// or by the measure's last value or total (`by MEASURE asc|desc`).
 fn order(cx: &mut Ctx, st: &SeqState, s: &SplitStmt, panels: &mut Vec<PanelDraft>) -> Outcome<()> {
     if let Some(by) = s.by.as_ref().filter(|by| by.name != st.measure_name) {
-        let d = cx
-            .at(
-                "split",
-                format!(
-                    "panels are ordered by the chart's measure `{}`",
-                    st.measure_name
-                ),
-                by.span.clone(),
-                "not the chart's measure",
-            )
-            .help(format!(
+        return Err(cx.error_with_help(
+            "split",
+            format!(
+                "panels are ordered by the chart's measure `{}`",
+                st.measure_name
+            ),
+            by.span.clone(),
+            "not the chart's measure",
+            format!(
                 "write `by {}`, or give the order with `order \"A\", \"B\"`",
                 st.measure_name
-            ));
-        return Err(cx.report(d));
+            ),
+        ));
     }
     if !s.order.is_empty() {
         let mut ordered = Vec::new();

@@ -30,15 +30,13 @@ pub(crate) fn apply(cx: &mut Ctx, h: &Header, st: &mut SeqState, stmt: &FrameStm
         FrameStmt::Spotlight { targets, span } => {
             st.anchors.spotlight = Some(span.clone());
             if let Targets::All(s) = targets {
-                let d = cx
-                    .at(
-                        "spotlight-all",
-                        "a spotlight on everything highlights nothing",
-                        s.clone(),
-                        "",
-                    )
-                    .help("use `spotlight none` to remove the spotlight");
-                return Err(cx.report(d));
+                return Err(cx.error_with_help(
+                    "spotlight-all",
+                    "a spotlight on everything highlights nothing",
+                    s.clone(),
+                    "",
+                    "use `spotlight none` to remove the spotlight",
+                ));
             }
             if let Targets::Cells(cells) = targets {
                 st.cells = table_cells(cx, st, cells)?;
@@ -136,28 +134,24 @@ fn names(
             if verb == "spotlight" {
                 return Ok(Vec::new());
             }
-            let d = cx
-                .at(
-                    "targets",
-                    format!("`{verb} none` does nothing"),
-                    s.clone(),
-                    "",
-                )
-                .help(format!("name the {what} to {verb}, or write `{verb} all`"));
-            return Err(cx.report(d));
+            return Err(cx.error_with_help(
+                "targets",
+                format!("`{verb} none` does nothing"),
+                s.clone(),
+                "",
+                format!("name the {what} to {verb}, or write `{verb} all`"),
+            ));
         }
         Targets::Focus(s) => match &h.focus {
             Some(f) => f.clone(),
             None => {
-                let d = cx
-                    .at(
-                        "no-focus",
-                        "the story has no focus to refer to",
-                        s.clone(),
-                        "`focus` used here",
-                    )
-                    .help("add a top-level line like `focus \"Harbour Loop\"`, or name the series here");
-                return Err(cx.report(d));
+                return Err(cx.error_with_help(
+                    "no-focus",
+                    "the story has no focus to refer to",
+                    s.clone(),
+                    "`focus` used here",
+                    "add a top-level line like `focus \"Harbour Loop\"`, or name the series here",
+                ));
             }
         },
         Targets::Names(n) => n.clone(),

@@ -47,34 +47,30 @@ pub(crate) fn steps(
         items
     };
     if items.is_empty() {
-        let d = cx
-            .at(
-                "unfold",
-                "nothing is hidden, so there is nothing to unfold",
-                span.clone(),
-                "nothing to unfold",
-            )
-            .help("hide the series first (`hide all`), then unfold them");
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "unfold",
+            "nothing is hidden, so there is nothing to unfold",
+            span.clone(),
+            "nothing to unfold",
+            "hide the series first (`hide all`), then unfold them",
+        ));
     }
     let total = budget
         .before
         .saturating_add(items.len())
         .saturating_add(budget.after);
     if total > budget.limit {
-        let d = cx
-            .at(
-                "limit",
-                format!(
-                    "this `unfold` makes {} frames, which brings the story to {total} frames, more than the limit of {} (--max-frames)",
-                    items.len(),
-                    budget.limit
-                ),
-                span.clone(),
-                "too many frames",
-            )
-            .help("unfold fewer items (name them: `unfold \"A\", \"B\"`), or raise --max-frames");
-        return Err(cx.report(d));
+        return Err(cx.error_with_help(
+            "limit",
+            format!(
+                "this `unfold` makes {} frames, which brings the story to {total} frames, more than the limit of {} (--max-frames)",
+                items.len(),
+                budget.limit
+            ),
+            span.clone(),
+            "too many frames",
+            "unfold fewer items (name them: `unfold \"A\", \"B\"`), or raise --max-frames",
+        ));
     }
     Ok(items.into_iter().map(Some).collect())
 }

@@ -89,15 +89,13 @@ impl Loader {
     ) -> Outcome<Table> {
         if let Some(db) = decl.database.as_ref().filter(|_| replacement.is_none()) {
             if let Some(o) = decl.thousands.as_ref().or(decl.decimal.as_ref()) {
-                let d = cx
-                    .at(
-                        "bad-option",
-                        "a database sends numbers as numbers: `thousands` and `decimal` go with a file",
-                        o.span.clone(),
-                        "not for a database",
-                    )
-                    .help("remove the option");
-                return Err(cx.report(d));
+                return Err(cx.error_with_help(
+                    "bad-option",
+                    "a database sends numbers as numbers: `thousands` and `decimal` go with a file",
+                    o.span.clone(),
+                    "not for a database",
+                    "remove the option",
+                ));
             }
             return database::load(cx, self, tables, (decl, db));
         }

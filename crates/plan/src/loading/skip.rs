@@ -9,7 +9,7 @@ use crescendo_data::{parquet, ColType, Columns, CsvSpec, Expr};
 use crescendo_diag::Source;
 use crescendo_lang::ast;
 
-use crate::rows::{check_condition, Schema};
+use crate::rows::{At, Schema};
 
 /// The conditions, or an empty list when skipping is not safe: a view
 /// that does not start with `keep`, a condition that does not resolve, or
@@ -44,7 +44,7 @@ pub(crate) fn first_keeps(
             return Vec::new();
         };
         let mut quiet = Vec::new();
-        match check_condition(src, &schema, "in the file", expr, &mut quiet) {
+        match At::new(src, &schema, "in the file").condition(expr, &mut quiet) {
             Some(e) if quiet.is_empty() => out.push(e),
             _ => return Vec::new(),
         }

@@ -15,7 +15,9 @@ use crescendo_lang::ast;
 
 use crate::rows::schema_of;
 use crate::tables::{Named, Streamed, Tables};
-use steps::{At, Checked};
+use steps::Checked;
+
+use crate::rows::At;
 
 /// A view checked and run.
 pub(crate) struct Built {

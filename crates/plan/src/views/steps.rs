@@ -8,37 +8,12 @@ use crescendo_data::{self as data, AggFn, Aggregate, ColType, Step};
 use crescendo_diag::{Diagnostic, Source};
 use crescendo_lang::ast::{self, Expr, Ident, StepAst};
 
-use crate::rows::{column, Checker, Schema, Ty};
+use crate::rows::{At, Schema, Ty};
 
 /// A step checked: the columns a `columns` step keeps, or an engine step.
 pub(crate) enum Checked {
     Columns(Vec<usize>),
     Step(Step),
-}
-
-/// What a step is checked against: the columns before it, where that is
-/// ("at this step of `v`"), and why a column is text (for notes).
-pub(crate) struct At<'a> {
-    pub(crate) src: &'a Arc<Source>,
-    pub(crate) schema: &'a Schema,
-    pub(crate) place: &'a str,
-    pub(crate) why: &'a dyn Fn(&str) -> Option<String>,
-}
-
-impl At<'_> {
-    fn column(&self, id: &Ident, diags: &mut Vec<Diagnostic>) -> Option<(usize, ColType)> {
-        column(self.src, self.schema, self.place, id, diags)
-    }
-
-    fn checker<'d>(&'d self, diags: &'d mut Vec<Diagnostic>) -> Checker<'d> {
-        Checker {
-            src: self.src,
-            schema: self.schema,
-            table: self.place,
-            diags,
-            why: self.why,
-        }
-    }
 }
 
 /// Check one step; `None` after an error (the caller also looks for
