@@ -267,7 +267,10 @@ mod tests {
     use proptest::prelude::*;
 
     /// The sum as it was before the fixed-point part: every term through
-    /// Shewchuk's partials in the order given, rounded once (no scaling).
+    /// Shewchuk's partials in the order given, rounded once (no scaling),
+    /// the published method (Shewchuk 1997, as Python's `math.fsum`). The
+    /// outside check of the totals themselves is the `math.fsum` fixture
+    /// made by `crates/data/tests/fixtures/make_values_expected.py`.
     fn reference(xs: &[f64]) -> f64 {
         let mut partials = Partials::new();
         xs.iter().for_each(|&x| add_partial(&mut partials, x));
