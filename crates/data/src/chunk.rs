@@ -11,6 +11,7 @@ use crate::files::ReadAt;
 use crate::fold::{states, Sink};
 use crate::load::ReadLimits;
 use crate::model::{Cell, ColType};
+use crate::pieces::Pieces;
 use crate::probe::Watch;
 use crate::record::{forbidden_char, too_long};
 use crate::split::{Index, Next, Records};
@@ -215,13 +216,17 @@ fn fill(file: &mut ReadAt<'_>, buf: &mut [u8], mut len: usize) -> std::io::Resul
     Ok((len, false))
 }
 
-/// Read one chunk: records from `start` until a verified boundary among
-/// `next` (the starts of the chunks after it) or the end of the file.
-pub(crate) fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> ChunkOut {
+/// One run: records from the start of piece `k` until the verified start of
+/// a piece where another run started ([`Pieces::pass`]), or the end of the
+/// file.
+pub(crate) fn run_chunk(input: &ScanInput<'_>, pieces: &Pieces, k: usize) -> ChunkOut {
     let ncols = input.schema.len();
+    let start = pieces.starts[k];
+    let next = &pieces.starts[k + 1..];
     let mut out = ChunkOut {
         end: End::Failed,
         rows: 0,
+        absorbed: 0,
         views: states(input.views, ncols),
         watches: input.views.iter().map(|v| Watch::new(&v.keeps)).collect(),
         first_text: vec![None; ncols],
@@ -298,15 +303,23 @@ pub(crate) fn run_chunk(input: &ScanInput<'_>, start: u64, next: &[u64]) -> Chun
             // Verify the next boundary once this record reaches it.
             let p = base + r.end as u64;
             while let Some(&s) = next.get(target) {
+                let j = k + 1 + target;
                 if p > s {
-                    // The record spans the guessed boundary: that chunk's
+                    // The record spans the guessed boundary: that piece's
                     // start was inside a quoted field. Absorb it.
+                    pieces.absorb(j);
+                    out.absorbed += 1;
                     target += 1;
                     continue;
                 }
                 let gap = data.get(r.end..r.end + (s - p) as usize);
                 if gap.is_some_and(|g| g.iter().all(|&b| b == b'\n' || b == b'\r')) {
-                    out.end = End::Boundary(target);
+                    if pieces.pass(j) {
+                        // read on into piece `j`
+                        target += 1;
+                        continue;
+                    }
+                    out.end = End::Piece(j);
                     return out;
                 }
                 break;

@@ -446,7 +446,21 @@ impl Groups {
         row: &impl Fn(usize) -> Cell<'c>,
     ) {
         for (acc, a) in self.accs.iter_mut().zip(aggs) {
-            acc.add(g, a.column.map_or(Cell::Missing, row));
+            let c = a.column.map_or(Cell::Missing, row);
+            // the common cases at once, the same as `AccColumn::add`
+            match (acc, c) {
+                (AccColumn::Sum(v) | AccColumn::Mean(v), Cell::Number(x)) => {
+                    if let Some(s) = v.get_mut(g) {
+                        s.add(x);
+                    }
+                }
+                (AccColumn::Rows(v), _) => {
+                    if let Some(n) = v.get_mut(g) {
+                        *n += 1;
+                    }
+                }
+                (acc, c) => acc.add(g, c),
+            }
         }
     }
 

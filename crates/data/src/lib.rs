@@ -21,6 +21,7 @@ pub mod locale;
 pub mod model;
 mod order;
 pub mod parquet;
+mod pieces;
 pub mod probe;
 pub mod progress;
 mod quicknum;

@@ -16,17 +16,20 @@
 //!
 //! # Two cores, same result
 //!
-//! The file is cut into chunks at nominal offsets; each chunk starts after
-//! the first line break at or after its offset. Such a line break may sit
-//! inside a quoted field, so every chunk boundary is *verified* by the
-//! worker of the chunk before it: that worker reads on past its nominal end
-//! until a record ends exactly at the boundary (or only line breaks lie
-//! between the record's end and the boundary). If a record spans the
-//! boundary instead, the guess was wrong: the worker absorbs the next chunk
-//! and verifies the boundary after it, and the next chunk's own result is
-//! discarded. Results are merged in chunk order (groups in order of first
-//! appearance, first before last), and sums are exact, so the merged result
-//! is bit-for-bit the one-pass result, whatever the chunking.
+//! The file is cut into pieces at nominal offsets; each piece starts after
+//! the first line break at or after its offset. A run per core reads
+//! pieces one after another, and a core that finishes early takes over
+//! pieces no run has reached yet ([`crate::pieces`]). A piece's line break
+//! may sit inside a quoted field, so every boundary is *verified* by the
+//! run that reaches it: it reads on until a record ends exactly at the
+//! boundary (or only line breaks lie between the record's end and the
+//! boundary), and stops there only if another run started at that piece.
+//! If a record spans the boundary instead, the guess was wrong: the run
+//! absorbs the piece and reads on, and the result of a run started there is
+//! discarded. Results are merged in file order, from the first piece along
+//! the chain of verified stops (groups in order of first appearance, first
+//! before last), and sums are exact, so the merged result is bit-for-bit
+//! the one-pass result, whatever the cutting and whichever core read what.
 //!
 //! # Errors
 //!
@@ -58,6 +61,7 @@ use crate::fold::{merge_states, Sink};
 use crate::groups::Groups;
 use crate::load::{CsvSpec, LoadError, ReadLimits};
 use crate::model::{AggFn, Aggregate, Cell, ColType, Column, Expr, Table, Values};
+use crate::pieces::{Pieces, SMALL_STATE};
 use crate::probe::{Probe, Seen, Watch};
 
 /// The streamable prefix of one view.
@@ -97,12 +101,25 @@ pub struct ScanInput<'a> {
 /// How to cut the file.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub enum Chunks {
-    /// One chunk per available core (at most 8), one chunk for small files.
+    /// Pieces of about [`PIECE`] bytes (at most [`MAX_PIECES`]), one run
+    /// per available core (at most 8), a core that finishes early taking
+    /// over pieces ([`crate::pieces`]); one piece for small files.
     Auto,
     /// Nominal cut offsets (file offsets, any order; out-of-range ones are
-    /// ignored) and the number of threads. For tests.
+    /// ignored) and the number of threads; a run starts at every piece.
+    /// For tests.
     At(Vec<u64>, usize),
+    /// Nominal cut offsets, the number of runs started at first (evenly
+    /// spaced) and the number of threads: as [`Chunks::Auto`] does. For
+    /// tests.
+    Shared(Vec<u64>, usize, usize),
 }
+
+/// Bytes per piece of a large file (see [`Chunks::Auto`]).
+pub const PIECE: u64 = 4 << 20;
+
+/// Most pieces a file is cut into.
+pub const MAX_PIECES: u64 = 64;
 
 /// The result of a scan.
 #[derive(Clone, Debug, PartialEq)]
@@ -137,31 +154,59 @@ pub fn scan(input: &ScanInput<'_>, chunks: &Chunks) -> Result<ScanOutput, ScanFa
         .metadata()
         .map_err(|e| ScanFailure::Io(Box::new(io_failure(input.spec, &e))))?
         .len();
-    let (offsets, threads) = match chunks {
+    let cores = || {
+        std::thread::available_parallelism()
+            .map_or(1, |n| n.get())
+            .min(8)
+    };
+    let (offsets, runs, threads) = match chunks {
         Chunks::Auto => {
-            let threads = std::thread::available_parallelism()
-                .map_or(1, |n| n.get())
-                .min(8);
             let data = len.saturating_sub(input.data_start);
-            let n = if data < (4 << 20) { 1 } else { threads as u64 };
+            let n = if data < PIECE {
+                1
+            } else {
+                (data / PIECE).clamp(2, MAX_PIECES)
+            };
             let offsets = (1..n).map(|k| input.data_start + data * k / n).collect();
-            (offsets, threads)
+            (offsets, Some(cores()), cores())
         }
-        Chunks::At(o, t) => (o.clone(), (*t).max(1)),
+        Chunks::At(o, t) => (o.clone(), None, (*t).max(1)),
+        Chunks::Shared(o, r, t) => (o.clone(), Some((*r).max(1)), (*t).max(1)),
     };
     let starts = chunk_starts(input, len, offsets)?;
-    let _task = crate::progress::Task::begin(&input.spec.display_name, len);
-    let results: Mutex<Vec<Option<ChunkOut>>> = Mutex::new(vec![None; starts.len()]);
-    let next = AtomicUsize::new(0);
-    let workers = threads.min(starts.len()).max(1);
-    let work = || loop {
-        let k = next.fetch_add(1, AtomicOrdering::SeqCst);
-        if k >= starts.len() {
-            break;
+    // the pieces where runs start at first: every one, or `r` evenly spaced
+    let first: Vec<usize> = match runs {
+        None => (0..starts.len()).collect(),
+        Some(r) => {
+            let n = starts.len();
+            let mut v: Vec<usize> = (0..r.min(n)).map(|i| i * n / r.min(n)).collect();
+            v.dedup();
+            v
         }
-        let out = crate::chunk::run_chunk(input, starts[k], &starts[k + 1..]);
-        if let Ok(mut r) = results.lock() {
-            r[k] = Some(out);
+    };
+    let pieces = Pieces::new(starts, &first);
+    let _task = crate::progress::Task::begin(&input.spec.display_name, len);
+    let results: Mutex<Vec<Option<ChunkOut>>> = Mutex::new(vec![None; pieces.starts.len()]);
+    let next = AtomicUsize::new(0);
+    let workers = threads.min(pieces.starts.len()).max(1);
+    let work = || {
+        let mut small = true;
+        loop {
+            let k = next.fetch_add(1, AtomicOrdering::SeqCst);
+            let k = match first.get(k) {
+                Some(&k) => k,
+                // no run left to start: take over pieces while this core's
+                // last state was small
+                None => match small.then(|| pieces.take_over()).flatten() {
+                    Some(k) => k,
+                    None => break,
+                },
+            };
+            let out = crate::chunk::run_chunk(input, &pieces, k);
+            small = out.entries() <= SMALL_STATE;
+            if let Ok(mut r) = results.lock() {
+                r[k] = Some(out);
+            }
         }
     };
     if workers == 1 {
@@ -223,22 +268,25 @@ fn chunk_starts(
     Ok(starts)
 }
 
-/// Where a chunk's worker stopped.
+/// Where a run stopped.
 #[derive(Clone, Debug)]
 pub(crate) enum End {
     /// At the end of the file.
     Eof,
-    /// At the verified start of chunk `k + 1 + i`, where `k` is its own
-    /// index (`i` counts the chunks it absorbed).
-    Boundary(usize),
-    /// A problem in the file (or a wrong type guess) in this chunk.
+    /// At the verified start of piece `j`, where another run started.
+    Piece(usize),
+    /// A problem in the file (or a wrong type guess) in this run.
     Failed,
 }
 
+/// What one run read ([`crate::pieces`]).
 #[derive(Clone, Debug)]
 pub(crate) struct ChunkOut {
     pub(crate) end: End,
     pub(crate) rows: usize,
+    /// Piece starts that a record of this run spanned (guesses inside a
+    /// quoted field).
+    pub(crate) absorbed: usize,
     pub(crate) views: Vec<ViewState>,
     pub(crate) watches: Vec<Watch>,
     pub(crate) first_text: Vec<Option<(usize, String)>>,
@@ -311,8 +359,19 @@ pub(crate) fn rows_fit(limits: &ReadLimits, cols: &[Values]) -> bool {
     }
 }
 
-/// Chain the chunks from the first: each verified boundary names the next
-/// chunk whose result counts.
+impl ChunkOut {
+    /// Groups and kept rows over all views: how much memory the state holds.
+    pub(crate) fn entries(&self) -> usize {
+        let one = |v: &ViewState| match v {
+            ViewState::Groups(g) => g.len(),
+            ViewState::Rows(cols) => cols.first().map_or(0, Values::len),
+        };
+        self.views.iter().map(one).sum()
+    }
+}
+
+/// Chain the runs from the first piece: each run's stop names the piece
+/// where the next run whose result counts started.
 fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOutput, ScanFailure> {
     let ncols = input.schema.len();
     let mut results: Vec<Option<ChunkOut>> = results;
@@ -325,6 +384,7 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
             .and_then(Option::take)
             .ok_or(ScanFailure::Fallback)?;
         let end = chunk.end.clone();
+        absorbed += chunk.absorbed;
         acc = Some(match acc {
             None => chunk,
             Some(mut a) => {
@@ -343,17 +403,10 @@ fn merge(input: &ScanInput<'_>, results: Vec<Option<ChunkOut>>) -> Result<ScanOu
         });
         match end {
             End::Failed => return Err(ScanFailure::Fallback),
-            End::Eof => {
-                if k + 1 < results.len() && results[k + 1..].iter().any(Option::is_some) {
-                    // Chunks after one that ran to the end were all absorbed.
-                    absorbed += results.len() - k - 1;
-                }
-                break;
-            }
-            End::Boundary(i) => {
-                absorbed += i;
-                k = k + 1 + i;
-            }
+            End::Eof => break,
+            // a later piece: the chain cannot loop
+            End::Piece(j) if j > k => k = j,
+            End::Piece(_) => return Err(ScanFailure::Fallback),
         }
     }
     let out = acc.ok_or(ScanFailure::Fallback)?;

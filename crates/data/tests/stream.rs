@@ -228,12 +228,20 @@ fn parallel_equals_sequential_at_every_cut_through_quoted_line_breaks() {
         cases.push(vec![a, (a * 7) % len]);
     }
     for cuts in cases {
-        let out = scan_all(&spec, &views, &Chunks::At(cuts.clone(), 2))
-            .unwrap_or_else(|e| panic!("cuts {cuts:?}: {e:?}"));
-        absorbed += out.absorbed;
-        assert_eq!(out.rows, one.rows, "cuts {cuts:?}");
-        for (got, want) in out.tables.iter().zip(&one.tables) {
-            assert!(same(got, want), "cuts {cuts:?}\n{got:?}\n{want:?}");
+        // a run at every piece; or one or two runs at first, the other
+        // cores taking over pieces no run has reached (crate::pieces)
+        for chunks in [
+            Chunks::At(cuts.clone(), 2),
+            Chunks::Shared(cuts.clone(), 1, 2),
+            Chunks::Shared(cuts.clone(), 2, 3),
+        ] {
+            let out =
+                scan_all(&spec, &views, &chunks).unwrap_or_else(|e| panic!("{chunks:?}: {e:?}"));
+            absorbed += out.absorbed;
+            assert_eq!(out.rows, one.rows, "{chunks:?}");
+            for (got, want) in out.tables.iter().zip(&one.tables) {
+                assert!(same(got, want), "{chunks:?}\n{got:?}\n{want:?}");
+            }
         }
     }
     // The file was built so that some guesses land inside quoted fields.
@@ -250,10 +258,16 @@ fn random_files_many_chunk_counts() {
         let len = bytes.len() as u64;
         for n in 1..24u64 {
             let cuts: Vec<u64> = (1..n).map(|k| len * k / n + seed).collect();
-            let out = scan_all(&spec, &views, &Chunks::At(cuts, 2)).expect("scan");
-            for (v, got) in views.iter().zip(&out.tables) {
-                let want = run_view(&table, &steps(v));
-                assert!(same(got, &want), "seed {seed}, {n} chunks");
+            for chunks in [
+                Chunks::At(cuts.clone(), 2),
+                Chunks::Shared(cuts.clone(), 1, 2),
+                Chunks::Shared(cuts, 2, 2),
+            ] {
+                let out = scan_all(&spec, &views, &chunks).expect("scan");
+                for (v, got) in views.iter().zip(&out.tables) {
+                    let want = run_view(&table, &steps(v));
+                    assert!(same(got, &want), "seed {seed}, {chunks:?}");
+                }
             }
         }
     }
@@ -285,10 +299,12 @@ fn problems_fall_back_to_the_loader() {
             vec![len - 30],
             vec![len / 3, len - 10],
         ] {
-            assert!(matches!(
-                scan_all(&spec, &views, &Chunks::At(cuts, 2)),
-                Err(ScanFailure::Fallback)
-            ));
+            for chunks in [Chunks::At(cuts.clone(), 2), Chunks::Shared(cuts, 1, 2)] {
+                assert!(matches!(
+                    scan_all(&spec, &views, &chunks),
+                    Err(ScanFailure::Fallback)
+                ));
+            }
         }
         assert!(load_csv(&spec).is_err());
     }
@@ -531,7 +547,12 @@ fn probes_are_the_same_whatever_the_chunks() {
     assert!(!met(1, 1).1.found);
     assert_eq!(met(1, 1).1.values, vec!["x"]);
     for cuts in [vec![len / 2], vec![len / 3, 2 * len / 3], vec![len - 4]] {
-        let out = scan_all(&spec, &views, &Chunks::At(cuts.clone(), 3)).expect("scan");
-        assert_eq!(out.probes, one.probes, "{cuts:?}");
+        for chunks in [
+            Chunks::At(cuts.clone(), 3),
+            Chunks::Shared(cuts.clone(), 1, 3),
+        ] {
+            let out = scan_all(&spec, &views, &chunks).expect("scan");
+            assert_eq!(out.probes, one.probes, "{chunks:?}");
+        }
     }
 }
