@@ -167,8 +167,8 @@ enum Part<'v> {
 struct Cache {
     keys: Vec<usize>,
     /// The last pair looked up and its group (ledgers repeat a date or
-    /// month row after row).
-    last: Option<([u64; 2], u32)>,
+    /// month row after row); no pair has a [`NONE`] half.
+    last: (u64, u64, u32),
     /// Groups by the text code of one key, while the other half of the
     /// pair stays the same (when a key is a coded text column).
     dense: Option<Dense>,
@@ -236,38 +236,41 @@ impl Cache {
         let at = (0..keys.len()).rev().find(|&i| text(i));
         Cache {
             keys: keys.to_vec(),
-            last: None,
+            last: (NONE, NONE, 0),
             dense: at.map(Dense::new),
             groups: HashTable::new(),
         }
     }
 
     /// The pair of codes of the row's key cells, if all are coded.
+    ///
+    /// The two halves are kept as two words, never built in memory: a pair
+    /// stored as two words and read back at once as one 16-byte value
+    /// stalls the processor (a store that cannot be forwarded to the load).
+    #[inline]
     fn pair(&self, codes: &[u64]) -> Option<[u64; 2]> {
-        let mut pair = [0u64; 2];
-        for (p, &k) in pair.iter_mut().zip(&self.keys) {
-            *p = codes[k];
-            if *p == NONE {
-                return None;
-            }
-        }
-        Some(pair)
+        let code = |i: usize| {
+            self.keys
+                .get(i)
+                .map_or(Some(0), |&k| Some(codes[k]).filter(|&c| c != NONE))
+        };
+        Some([code(0)?, code(1)?])
     }
 
     /// The group of `pair`; `new` creates it when the chunk meets the pair
     /// for the first time.
     #[inline]
     fn id(&mut self, pair: [u64; 2], new: impl FnOnce() -> u32) -> u32 {
-        if let Some((p, id)) = self.last {
-            if p == pair {
-                return id;
-            }
+        // the halves as two words (see `Cache::pair`)
+        let (a, b) = (pair[0], pair[1]);
+        if self.last.0 == a && self.last.1 == b {
+            return self.last.2;
         }
-        let id = match self.dense.as_mut().and_then(|d| d.get(pair)) {
+        let id = match self.dense.as_mut().and_then(|d| d.get([a, b])) {
             Some(id) => id,
             None => {
                 let h = mix(pair);
-                let id = match self.groups.find(h, |e| e.0 == pair) {
+                let id = match self.groups.find(h, move |e| e.0[0] == a && e.0[1] == b) {
                     Some(e) => e.1,
                     None => {
                         let id = new();
@@ -281,7 +284,7 @@ impl Cache {
                 id
             }
         };
-        self.last = Some((pair, id));
+        self.last = (a, b, id);
         id
     }
 }
