@@ -394,6 +394,7 @@ impl<'v> Coded<'v> {
 
     /// Add one record (cells by column) to every view whose `keep`s it
     /// passes, as [`crate::stream::add_record`] does.
+    #[inline(always)]
     pub(crate) fn add(
         &mut self,
         input: &Sink<'_>,

@@ -439,6 +439,7 @@ impl Groups {
     }
 
     /// Add the row's cells of `aggs` to group `g` (see [`Groups::group`]).
+    #[inline]
     pub(crate) fn add_at<'c>(
         &mut self,
         g: usize,
