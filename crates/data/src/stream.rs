@@ -119,7 +119,7 @@ pub enum Chunks {
 pub const PIECE: u64 = 4 << 20;
 
 /// Most pieces a file is cut into.
-pub const MAX_PIECES: u64 = 64;
+pub const MAX_PIECES: u64 = 1024;
 
 /// The result of a scan.
 #[derive(Clone, Debug, PartialEq)]
@@ -240,7 +240,8 @@ fn chunk_starts(
 ) -> Result<Vec<u64>, ScanFailure> {
     offsets.sort_unstable();
     let mut starts = vec![input.data_start];
-    let mut buf = vec![0u8; 64 * 1024];
+    // a line break is nearly always within the first bytes: small reads
+    let mut buf = vec![0u8; 4096];
     for o in offsets {
         let from = o.max(input.data_start + 1) - 1;
         let Some(&last) = starts.last() else { break };
