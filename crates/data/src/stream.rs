@@ -131,7 +131,8 @@ pub struct ScanOutput {
     /// Per column that is parsed as text: the first cell (0-based data row
     /// and text) that is not a number, to explain why it is text.
     pub first_text: Vec<Option<(usize, String)>>,
-    /// How many chunk guesses turned out to be inside a quoted field.
+    /// How many piece starts turned out to be inside a quoted field (on
+    /// the chain of runs whose results count).
     pub absorbed: usize,
     /// Per view: what the text literals of its `keep`s met ([`crate::probe`]).
     pub probes: Vec<Vec<(Probe, Seen)>>,
